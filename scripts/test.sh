@@ -1,0 +1,13 @@
+#!/usr/bin/env bash
+# Runs every test of Doublespar: formatting, lints, unit, integration and property tests, and the
+# command line's golden outputs. Installs nothing but what the Rust toolchain itself provides.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+echo "== format"
+cargo fmt --all -- --check
+echo "== clippy"
+cargo clippy --all-targets -- -D warnings
+echo "== tests"
+cargo test --all-targets
+echo "== doc tests"
+cargo test --doc

@@ -1,0 +1,181 @@
+//! Reading a JSON object field by field, with the path of every field kept for error messages.
+//!
+//! The scenario contract demands that an unknown field or a wrongly typed value be reported with
+//! the full path of the field (`elements[1].axis.tilt_deg`). A derived deserializer reports only
+//! a line and column, so the contract is read here by hand: each object is wrapped in a [`Fields`]
+//! that hands out its members by name and, when done, names any member nobody asked for.
+
+use crate::error::{Error, join_path};
+use serde_json::{Map, Value};
+
+/// A JSON object being read, with its path.
+pub struct Fields<'a> {
+    path: String,
+    map: &'a Map<String, Value>,
+    taken: Vec<&'static str>,
+}
+
+/// The JSON type name of a value, for messages.
+pub fn type_name(v: &Value) -> &'static str {
+    match v {
+        Value::Null => "null",
+        Value::Bool(_) => "a boolean",
+        Value::Number(_) => "a number",
+        Value::String(_) => "a string",
+        Value::Array(_) => "a list",
+        Value::Object(_) => "an object",
+    }
+}
+
+impl<'a> Fields<'a> {
+    /// Wraps `value`, which must be an object, found at `path`.
+    ///
+    /// # Errors
+    /// `path` when the value is not an object.
+    pub fn new(path: &str, value: &'a Value) -> Result<Self, Error> {
+        match value {
+            Value::Object(map) => Ok(Fields {
+                path: path.to_string(),
+                map,
+                taken: Vec::new(),
+            }),
+            other => Err(Error::new(path, format!("must be an object, got {}", type_name(other)))),
+        }
+    }
+
+    /// The path of a member of this object.
+    pub fn path_of(&self, name: &str) -> String {
+        join_path(&self.path, name)
+    }
+
+    /// The member `name`, if present (JSON `null` counts as absent).
+    pub fn get(&mut self, name: &'static str) -> Option<&'a Value> {
+        self.taken.push(name);
+        self.map.get(name).filter(|v| !v.is_null())
+    }
+
+    /// Whether the member `name` is present and not null (does not mark it as read).
+    pub fn has(&self, name: &str) -> bool {
+        self.map.get(name).is_some_and(|v| !v.is_null())
+    }
+
+    /// The member `name` as a number, if present.
+    ///
+    /// # Errors
+    /// The member's path when it is present but not a number.
+    pub fn number(&mut self, name: &'static str) -> Result<Option<f64>, Error> {
+        let path = self.path_of(name);
+        self.get(name).map(|v| as_number(&path, v)).transpose()
+    }
+
+    /// The member `name` as a number, or `default` when absent.
+    ///
+    /// # Errors
+    /// The member's path when it is present but not a number.
+    pub fn number_or(&mut self, name: &'static str, default: f64) -> Result<f64, Error> {
+        Ok(self.number(name)?.unwrap_or(default))
+    }
+
+    /// The member `name` as a number, which must be present.
+    ///
+    /// # Errors
+    /// The member's path when it is absent or not a number.
+    pub fn required_number(&mut self, name: &'static str) -> Result<f64, Error> {
+        let path = self.path_of(name);
+        self.number(name)?
+            .ok_or_else(|| Error::new(path, "is required (a number)"))
+    }
+
+    /// The member `name` as a string, if present.
+    ///
+    /// # Errors
+    /// The member's path when it is present but not a string.
+    pub fn string(&mut self, name: &'static str) -> Result<Option<&'a str>, Error> {
+        let path = self.path_of(name);
+        match self.get(name) {
+            None => Ok(None),
+            Some(Value::String(s)) => Ok(Some(s.as_str())),
+            Some(other) => Err(Error::new(path, format!("must be a string, got {}", type_name(other)))),
+        }
+    }
+
+    /// Fails on the first member that was never asked for, naming it.
+    ///
+    /// # Errors
+    /// The unknown member's path, with the names this object accepts.
+    pub fn finish(self) -> Result<(), Error> {
+        for key in self.map.keys() {
+            if !self.taken.iter().any(|t| t == key) {
+                let mut known: Vec<&str> = self.taken.clone();
+                known.sort_unstable();
+                known.dedup();
+                return Err(Error::new(
+                    self.path_of(key),
+                    format!("unknown field '{key}'; expected one of: {}", known.join(", ")),
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// A value as a finite number.
+///
+/// # Errors
+/// `path` when the value is not a JSON number (strings such as "10" are refused, not guessed).
+pub fn as_number(path: &str, v: &Value) -> Result<f64, Error> {
+    match v.as_f64() {
+        Some(x) if v.is_number() && x.is_finite() => Ok(x),
+        _ => Err(Error::new(path, format!("must be a number, got {}", type_name(v)))),
+    }
+}
+
+/// A value as a list of exactly `n` numbers.
+///
+/// # Errors
+/// `path` (or `path[i]`) when the value is not a list of `n` numbers.
+pub fn number_list(path: &str, v: &Value, n: usize) -> Result<Vec<f64>, Error> {
+    let Value::Array(items) = v else {
+        return Err(Error::new(
+            path,
+            format!("must be a list of {n} numbers, got {}", type_name(v)),
+        ));
+    };
+    if items.len() != n {
+        return Err(Error::new(
+            path,
+            format!("must be a list of {n} numbers, got {} items", items.len()),
+        ));
+    }
+    items
+        .iter()
+        .enumerate()
+        .map(|(i, x)| as_number(&format!("{path}[{i}]"), x))
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    #[test]
+    fn unknown_members_are_named_with_their_path() {
+        let v = json!({"a": 1, "typo": 2});
+        let mut f = Fields::new("beam", &v).unwrap();
+        assert_eq!(f.number("a").unwrap(), Some(1.0));
+        let e = f.finish().unwrap_err();
+        assert_eq!(e.field, "beam.typo");
+        assert!(e.message.contains("expected one of: a"), "{}", e.message);
+    }
+
+    #[test]
+    fn types_are_checked() {
+        let v = json!({"x": "10", "l": [1, 2]});
+        let mut f = Fields::new("", &v).unwrap();
+        assert_eq!(f.number("x").unwrap_err().field, "x");
+        assert_eq!(number_list("l", &v["l"], 3).unwrap_err().field, "l");
+        assert_eq!(number_list("l", &json!([1, "a"]), 2).unwrap_err().field, "l[1]");
+        assert!(Fields::new("beam", &json!([1])).is_err());
+    }
+}

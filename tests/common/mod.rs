@@ -1,0 +1,47 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use doublespar::scenario::Scenario;
+use doublespar::trace::{ElementReport, TraceResult, trace};
+
+/// Parses and traces a scenario document, panicking with the error on failure.
+pub fn run(doc: &str) -> TraceResult {
+    let s = Scenario::from_json_str(doc).unwrap_or_else(|e| panic!("scenario rejected: {e}\n{doc}"));
+    trace(&s).unwrap_or_else(|e| panic!("trace failed: {e}\n{doc}"))
+}
+
+/// The report of element `i`, which must be a crystal: (separation_mm, retardance_rad, o walk-off, e walk-off).
+pub fn crystal(r: &TraceResult, i: usize) -> (Option<f64>, Option<f64>, Option<f64>, Option<f64>) {
+    match &r.elements[i] {
+        ElementReport::Crystal {
+            separation_mm,
+            retardance_rad,
+            o,
+            e,
+            ..
+        } => (*separation_mm, *retardance_rad, o.walkoff_deg, e.walkoff_deg),
+        other => panic!("element {i} is not a crystal: {other:?}"),
+    }
+}
+
+/// Asserts |a − b| ≤ tol, printing both and what is compared.
+#[track_caller]
+pub fn near(actual: f64, expected: f64, tol: f64, what: &str) {
+    assert!(
+        (actual - expected).abs() <= tol && actual.is_finite(),
+        "{what}: expected {expected:.15e}, got {actual:.15e} (diff {:.3e} > {tol:.1e})",
+        (actual - expected).abs()
+    );
+}
+
+/// A one-crystal scenario with custom indices.
+#[allow(clippy::too_many_arguments)] // mirrors the document's fields one to one
+pub fn plate(no: f64, ne: f64, l: f64, tilt: f64, az: f64, polar: f64, paz: f64, pol_az: f64, losses: &str) -> String {
+    format!(
+        r#"{{"wavelength_nm": 632.8, "interface_losses": "{losses}",
+            "beam": {{"diameter_mm": 1, "incidence": {{"polar_deg": {polar}, "azimuth_deg": {paz}}},
+                      "polarization": {{"kind": "linear", "azimuth_deg": {pol_az}}}}},
+            "elements": [{{"kind": "crystal", "no": {no}, "ne": {ne}, "thickness_mm": {l},
+                           "axis": {{"tilt_deg": {tilt}, "azimuth_deg": {az}}}}}]}}"#
+    )
+}
