@@ -82,11 +82,25 @@ pub struct Mode {
     pub d: CVector3,
     /// Whether the mode propagates (real q_z) rather than being evanescent.
     pub propagating: bool,
+    /// Unit ray direction from the closed form (q for o-waves and isotropic media, A·q for
+    /// e-waves); `None` when evanescent. Agrees with Re(E × H*) (tested) and is exact where that
+    /// product would carry rounding, e.g. it gives exactly zero walk-off for o-waves.
+    ray: Option<Vector3<f64>>,
 }
 
 impl Mode {
-    fn build(kind: ModeKind, travel: Travel, q: CVector3, e: CVector3, d: CVector3, propagating: bool) -> Self {
+    fn build(
+        kind: ModeKind,
+        travel: Travel,
+        q: CVector3,
+        e: CVector3,
+        d: CVector3,
+        propagating: bool,
+        ray: Vector3<f64>,
+    ) -> Self {
         let h = q.cross(&e);
+        let ray_norm = ray.norm();
+        let ray = (propagating && ray_norm > 0.0).then(|| ray / ray_norm);
         let mut mode = Mode {
             kind,
             travel,
@@ -95,6 +109,7 @@ impl Mode {
             h,
             d,
             propagating,
+            ray,
         };
         let scale = if propagating {
             let sz = mode.poynting().z.abs();
@@ -137,12 +152,7 @@ impl Mode {
 
     /// Unit ray (energy) direction, or `None` for an evanescent mode.
     pub fn ray_direction(&self) -> Option<Vector3<f64>> {
-        if !self.propagating {
-            return None;
-        }
-        let s = self.poynting();
-        let n = s.norm();
-        (n > 0.0).then(|| s / n)
+        self.ray
     }
 }
 
@@ -214,8 +224,16 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
     let _ = eps;
 
     [
-        Mode::build(ModeKind::Ordinary, travel, q_o, e_o, d_o, prop_o),
-        Mode::build(ModeKind::Extraordinary, travel, q_e, e_e, d_e, prop_e),
+        Mode::build(ModeKind::Ordinary, travel, q_o, e_o, d_o, prop_o, q_o.map(|z| z.re)),
+        Mode::build(
+            ModeKind::Extraordinary,
+            travel,
+            q_e,
+            e_e,
+            d_e,
+            prop_e,
+            m * q_e.map(|z| z.re),
+        ),
     ]
 }
 
@@ -251,7 +269,7 @@ pub fn isotropic_modes(n: f64, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
     let n2 = Complex64::from(n * n);
     let mk = |kind, e: Vector3<f64>| {
         let ec = real3(e);
-        Mode::build(kind, travel, q, ec, ec * n2, propagating)
+        Mode::build(kind, travel, q, ec, ec * n2, propagating, q.map(|z| z.re))
     };
     [mk(ModeKind::Ordinary, e1), mk(ModeKind::Extraordinary, e2)]
 }
@@ -312,6 +330,10 @@ mod tests {
             assert!(fo.poynting().z > 0.0 && fe.poynting().z > 0.0);
             for m in [o, e, fo, fe] {
                 assert!(wave_equation_residual(&cr, &m) < 1e-13);
+                // Cross-method: the closed-form ray (q or A·q) is the direction of Re(E × H*).
+                let s = m.poynting();
+                let ray = m.ray_direction().unwrap();
+                assert!((s / s.norm() - ray).norm() < 1e-14, "{ray:?} vs {s:?}");
             }
         }
     }

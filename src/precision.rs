@@ -19,6 +19,10 @@ pub const EVANESCENT_IM: f64 = 1e-13;
 /// diameter is far below any separation a displacer is built for, and far above rounding.
 pub const SPOT_FRACTION_OF_DIAMETER: f64 = 1e-3;
 
+/// A power lost at an element that is smaller than this fraction of the power entering it is
+/// rounding, and is reported as zero.
+pub const POWER_ROUNDING: f64 = 1e-13;
+
 /// `|S3| / S0` below which an ellipse is reported as linear, and the degree of polarization below
 /// which a state is reported as unpolarized.
 pub const LINEAR_ELLIPTICITY: f64 = 1e-12;

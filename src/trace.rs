@@ -24,10 +24,10 @@ use crate::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::jones::{self, Jones, JonesMatrix};
 use crate::material::Indices;
 use crate::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
-use crate::precision::SPOT_FRACTION_OF_DIAMETER;
+use crate::precision::{POWER_ROUNDING, SPOT_FRACTION_OF_DIAMETER};
 use crate::scenario::{ElementKind, Medium, Polarization, Scenario};
 use crate::stokes::{self, Ellipse};
-use crate::uniaxial::{OpticAxis, Uniaxial, angle_between};
+use crate::uniaxial::{OpticAxis, Uniaxial, angle_between, max_walkoff_cut};
 use nalgebra::Vector3;
 use num_complex::Complex64;
 use serde::Serialize;
@@ -159,6 +159,11 @@ pub enum ElementReport {
         retardance_rad: Option<f64>,
         /// The same in waves.
         retardance_waves: Option<f64>,
+        /// Cut angle (between optic axis and plate normal) of maximum walk-off at normal incidence
+        /// for this material at this wavelength, degrees: tan θ = n_e/n_o.
+        max_walkoff_cut_deg: f64,
+        /// That maximum walk-off, degrees: tan ρ = |n_e² − n_o²| / (2 n_o n_e).
+        max_walkoff_deg: f64,
         /// Power entering this plate (sum over its input rays).
         power_in: f64,
         /// Power reflected at its two faces and lost (0 for ideal faces).
@@ -274,6 +279,17 @@ pub fn input_state(p: &Polarization) -> (Option<Jones>, [f64; 4]) {
     }
 }
 
+/// Power lost between `before` and `after`, with rounding below [`POWER_ROUNDING`] of `before`
+/// reported as exactly zero (an ideal face loses nothing; 1e-16 would only be noise).
+fn lost_power(before: f64, after: f64) -> f64 {
+    let lost = before - after;
+    if lost <= POWER_ROUNDING * before.abs().max(f64::MIN_POSITIVE) {
+        0.0
+    } else {
+        lost
+    }
+}
+
 fn power_of(m: &JonesMatrix, s_in: &[f64; 4]) -> f64 {
     stokes::apply(&stokes::mueller(m), s_in)[0]
 }
@@ -303,7 +319,12 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
     let s = mode.ray_direction().unwrap_or(k / k.norm());
     let khat = k / k.norm();
     let lean = s - khat * s.dot(&khat);
-    let walkoff = angle_between(&k, &s);
+    // The o-wave's ray is its wave vector exactly; say so rather than report rounding.
+    let walkoff = if mode.kind == ModeKind::Ordinary {
+        0.0
+    } else {
+        angle_between(&k, &s)
+    };
     let angle_axis = angle_between(&k, &axis.unit());
     ModeReport {
         status: ModeStatus::Propagating,
@@ -440,6 +461,7 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                 let both = fwd[0].propagating && fwd[1].propagating;
                 let sep_vec = [shifts[1][0] - shifts[0][0], shifts[1][1] - shifts[0][1]];
                 let retardance = k0 * (fwd[1].qz().re - fwd[0].qz().re) * l;
+                let max_cut = max_walkoff_cut(indices);
                 reports.push(ElementReport::Crystal {
                     material: name,
                     no: indices.no,
@@ -453,8 +475,10 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                     separation_vector_mm: both.then_some(sep_vec),
                     retardance_rad: both.then_some(retardance),
                     retardance_waves: both.then_some(retardance / TAU),
+                    max_walkoff_cut_deg: max_cut.0.to_degrees(),
+                    max_walkoff_deg: max_cut.1.abs().to_degrees(),
                     power_in,
-                    reflected_power: (power_in - power_out).max(0.0),
+                    reflected_power: lost_power(power_in, power_out),
                 });
                 z += l;
             }
@@ -480,7 +504,7 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                 let power_out: f64 = paths.iter().map(|p| power_of(&p.m, &s_in)).sum();
                 reports.push(ElementReport::Polarizer {
                     power_in,
-                    absorbed_power: (power_in - power_out).max(0.0),
+                    absorbed_power: lost_power(power_in, power_out),
                 });
             }
             ElementKind::Rotator { angle_deg } => {
