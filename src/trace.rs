@@ -60,6 +60,9 @@ pub struct Ray {
     pub jones: Option<JonesJson>,
     /// Accumulated propagation phase Σ k0 q_z L over layers and gaps, radians.
     pub phase_rad: f64,
+    /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm: the polyline it
+    /// follows through the stack (the last point is the exit point).
+    pub points_mm: Vec<[f64; 3]>,
 }
 
 /// Rays that leave from one point in one direction, with their fields added.
@@ -236,6 +239,7 @@ struct Path {
     m: JonesMatrix,
     pos: [f64; 2],
     phase: f64,
+    points: Vec<[f64; 3]>,
 }
 
 fn to_json(j: &Jones) -> JonesJson {
@@ -367,6 +371,7 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
         m: JonesMatrix::identity(),
         pos: [0.0, 0.0],
         phase: 0.0,
+        points: vec![[0.0, 0.0, 0.0]],
     }];
     let mut z = 0.0;
 
@@ -380,6 +385,7 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                 path.pos[1] += el.gap_mm * u.y / u.z;
                 path.phase += ph;
                 path.m *= f;
+                path.points.push([path.pos[0], path.pos[1], z + el.gap_mm]);
             }
             z += el.gap_mm;
         }
@@ -441,11 +447,15 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                         let step: JonesMatrix = col * row * Complex64::from_polar(1.0, ph);
                         let mut label = path.label.clone();
                         label.push(if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' });
+                        let pos = [path.pos[0] + shifts[m][0], path.pos[1] + shifts[m][1]];
+                        let mut points = path.points.clone();
+                        points.push([pos[0], pos[1], z + l]);
                         next.push(Path {
                             label,
                             m: step * path.m,
-                            pos: [path.pos[0] + shifts[m][0], path.pos[1] + shifts[m][1]],
+                            pos,
                             phase: path.phase + ph,
+                            points,
                         });
                     }
                 }
@@ -536,6 +546,7 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
                 ellipse: stokes::ellipse(&s),
                 jones: j_in.map(|j| to_json(&(p.m * j))),
                 phase_rad: p.phase,
+                points_mm: p.points.clone(),
             }
         })
         .collect();

@@ -203,3 +203,16 @@ fn evanescent_modes_are_reported_in_immersion() {
     let text = serde_json::to_string(&r).unwrap();
     assert!(!text.contains("NaN") && !text.contains("inf"));
 }
+
+#[test]
+fn ray_polylines_end_at_the_exit_points() {
+    let r = run(include_str!("../examples/recombiner.json"));
+    for ray in &r.rays {
+        let last = ray.points_mm.last().unwrap();
+        assert_eq!([last[0], last[1]], ray.exit_position_mm, "{}", ray.label);
+        near(last[2], ray.exit_z_mm, 1e-12, "exit z");
+        assert_eq!(ray.points_mm[0], [0.0, 0.0, 0.0], "starts on the beam axis at z = 0");
+        // One point per gap or plate face crossed: z = 0, plate 1 back, gap, plate 2 front, back.
+        assert_eq!(ray.points_mm.len(), 5, "{:?}", ray.points_mm);
+    }
+}
