@@ -3,6 +3,7 @@
 //! ```text
 //! doublespar trace FILE|- [--table] [--pretty]   trace a scenario (FILE or standard input)
 //! doublespar materials [--at NM] [--json]         the crystal catalogue, with citations
+//! doublespar draw VIEW FILE|- [--size WxH] [--dark]  one view as an SVG document
 //! doublespar demo                                  print the demo scenario
 //! ```
 //! Errors print `{"error": {"field": …, "message": …}}` on standard output (a readable line on
@@ -12,7 +13,7 @@ use doublespar::error::Error;
 use doublespar::material;
 use doublespar::scenario::Scenario;
 use doublespar::wavelength::Wavelength;
-use doublespar::{table, trace};
+use doublespar::{svg, table, trace, views};
 use serde_json::json;
 use std::io::Read;
 use std::process::ExitCode;
@@ -22,6 +23,8 @@ const DEMO: &str = include_str!("../../examples/demo.json");
 const USAGE: &str = "usage:
   doublespar trace FILE|- [--table] [--pretty]   trace a scenario (JSON file, or - for standard input)
   doublespar materials [--at NM] [--json]         list the crystal catalogue with citations
+  doublespar draw VIEW FILE|- [--size WxH] [--dark]  draw one view as SVG; VIEW is one of
+        side, end, poincare, walkoff-tilt, separation-wavelength, retardance-wavelength
   doublespar demo                                  print the demo scenario
   doublespar --version | --help
 
@@ -166,6 +169,50 @@ fn cmd_materials(args: &[String]) -> ExitCode {
     ExitCode::SUCCESS
 }
 
+fn cmd_draw(args: &[String]) -> ExitCode {
+    let (mut view, mut file, mut size, mut dark) = (None, None, (900.0, 420.0), false);
+    let mut it = args.iter();
+    while let Some(a) = it.next() {
+        match a.as_str() {
+            "--dark" => dark = true,
+            "--size" => {
+                let parsed = it.next().and_then(|v| {
+                    let (w, h) = v.split_once('x')?;
+                    Some((w.parse::<f64>().ok()?, h.parse::<f64>().ok()?))
+                });
+                match parsed {
+                    Some((w, h)) if (50.0..=10000.0).contains(&w) && (50.0..=10000.0).contains(&h) => size = (w, h),
+                    _ => return usage_error("--size takes WIDTHxHEIGHT in pixels, 50 to 10000 each"),
+                }
+            }
+            s if view.is_none() && !s.starts_with("--") => view = Some(s.to_string()),
+            s if file.is_none() && (s == "-" || !s.starts_with("--")) => file = Some(s.to_string()),
+            other => return usage_error(&format!("unexpected argument '{other}'")),
+        }
+    }
+    let (Some(view), Some(file)) = (view, file) else {
+        return usage_error("draw needs a view name and a scenario file");
+    };
+    let result = read_input(&file)
+        .and_then(|t| Scenario::from_json_str(&t))
+        .and_then(|s| {
+            let r = trace::trace(&s)?;
+            views::build(&view, &s, &r)
+        });
+    match result {
+        Err(e) => fail(&e, false),
+        Ok(scene) => {
+            let palette = if dark {
+                svg::Palette::dark()
+            } else {
+                svg::Palette::light()
+            };
+            print!("{}", svg::to_svg(&scene, size.0, size.1, &palette));
+            ExitCode::SUCCESS
+        }
+    }
+}
+
 fn usage_error(msg: &str) -> ExitCode {
     eprintln!("doublespar: {msg}\n\n{USAGE}");
     ExitCode::from(2)
@@ -176,6 +223,7 @@ fn main() -> ExitCode {
     match args.first().map(String::as_str) {
         Some("trace") => cmd_trace(&args[1..]),
         Some("materials") => cmd_materials(&args[1..]),
+        Some("draw") => cmd_draw(&args[1..]),
         Some("demo") => {
             print!("{DEMO}");
             ExitCode::SUCCESS

@@ -1,0 +1,275 @@
+//! An SVG writer for scenes: the same display list the canvas draws, as a standalone document.
+//!
+//! The SVG uses screen coordinates (pixels, y down) from [`Viewport::fit`], so its geometry can
+//! be compared with the scene's world coordinates through the same map. Colours come from a
+//! [`Palette`]; the document carries no script and references nothing external.
+
+use crate::scene::{Anchor, Item, Role, Scene, Viewport};
+use std::fmt::Write;
+
+/// Colours for each role, as CSS colour strings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Palette {
+    /// Background.
+    pub background: String,
+    /// Foreground text and frames.
+    pub ink: String,
+    /// Secondary text, grids.
+    pub muted: String,
+    /// o-rays.
+    pub o_ray: String,
+    /// e-rays.
+    pub e_ray: String,
+    /// The incident beam.
+    pub incident: String,
+    /// Crystal fill.
+    pub crystal_fill: String,
+    /// Crystal outline.
+    pub crystal_edge: String,
+    /// Optic axis.
+    pub axis: String,
+    /// Dimensions and angles.
+    pub dimension: String,
+    /// Curves and markers on plots.
+    pub curve: String,
+    /// The current point.
+    pub marker: String,
+    /// Warnings.
+    pub warning: String,
+}
+
+impl Palette {
+    /// The light scheme (also the page's default).
+    pub fn light() -> Palette {
+        Palette {
+            background: "#fbfaf7".into(),
+            ink: "#1d232b".into(),
+            muted: "#7a8491".into(),
+            o_ray: "#0f6e8c".into(),
+            e_ray: "#b3471d".into(),
+            incident: "#5b6470".into(),
+            crystal_fill: "rgba(120, 160, 190, 0.16)".into(),
+            crystal_edge: "#6f8ea8".into(),
+            axis: "#6a4c93".into(),
+            dimension: "#2f3a45".into(),
+            curve: "#0f6e8c".into(),
+            marker: "#b3471d".into(),
+            warning: "#a15c00".into(),
+        }
+    }
+
+    /// The dark scheme.
+    pub fn dark() -> Palette {
+        Palette {
+            background: "#15191e".into(),
+            ink: "#e6e9ed".into(),
+            muted: "#8d97a3".into(),
+            o_ray: "#5cc3e0".into(),
+            e_ray: "#f08a5d".into(),
+            incident: "#aab3bd".into(),
+            crystal_fill: "rgba(120, 170, 210, 0.14)".into(),
+            crystal_edge: "#7fa6c6".into(),
+            axis: "#b99be0".into(),
+            dimension: "#d5dbe1".into(),
+            curve: "#5cc3e0".into(),
+            marker: "#f08a5d".into(),
+            warning: "#e0a040".into(),
+        }
+    }
+
+    /// Stroke colour of a role.
+    pub fn stroke(&self, role: Role) -> &str {
+        match role {
+            Role::ORay => &self.o_ray,
+            Role::ERay => &self.e_ray,
+            Role::Incident => &self.incident,
+            Role::Crystal => &self.crystal_edge,
+            Role::Element | Role::Frame | Role::Label | Role::ScaleBar => &self.ink,
+            Role::Axis => &self.axis,
+            Role::Dimension | Role::Angle => &self.dimension,
+            Role::Grid | Role::Caption => &self.muted,
+            Role::Curve | Role::Spot | Role::Ellipse => &self.curve,
+            Role::Marker | Role::InputState => &self.marker,
+            Role::Warning => &self.warning,
+        }
+    }
+
+    /// Fill colour of a role (for polygons, filled circles, dots).
+    pub fn fill(&self, role: Role) -> &str {
+        match role {
+            Role::Crystal => &self.crystal_fill,
+            Role::Frame | Role::Grid => "none",
+            other => self.stroke(other),
+        }
+    }
+}
+
+fn esc(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// Writes `scene` as an SVG document of `width` × `height` pixels.
+pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> String {
+    let vp = Viewport::fit(scene, width, height, 28.0);
+    let mut out = String::new();
+    let _ = write!(
+        out,
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" viewBox="0 0 {width} {height}" font-family="system-ui, sans-serif">"#
+    );
+    let _ = write!(
+        out,
+        r#"<title>{}</title><rect width="100%" height="100%" fill="{}"/>"#,
+        esc(&scene.title),
+        palette.background
+    );
+    for item in &scene.items {
+        match item {
+            Item::Polyline {
+                points,
+                role,
+                dash,
+                width: w,
+                tag,
+            } => {
+                let pts: Vec<String> = points
+                    .iter()
+                    .map(|p| vp.map(*p))
+                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
+                    .collect();
+                let dash = if dash.is_empty() {
+                    String::new()
+                } else {
+                    format!(
+                        r#" stroke-dasharray="{}""#,
+                        dash.iter().map(|d| d.to_string()).collect::<Vec<_>>().join(" ")
+                    )
+                };
+                let _ = write!(
+                    out,
+                    r#"<polyline data-tag="{}" points="{}" fill="none" stroke="{}" stroke-width="{w}"{dash}/>"#,
+                    esc(tag),
+                    pts.join(" "),
+                    palette.stroke(*role)
+                );
+            }
+            Item::Polygon { points, role, tag } => {
+                let pts: Vec<String> = points
+                    .iter()
+                    .map(|p| vp.map(*p))
+                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
+                    .collect();
+                let _ = write!(
+                    out,
+                    r#"<polygon data-tag="{}" points="{}" fill="{}" stroke="{}" stroke-width="1"/>"#,
+                    esc(tag),
+                    pts.join(" "),
+                    palette.fill(*role),
+                    palette.stroke(*role)
+                );
+            }
+            Item::Circle {
+                center,
+                radius,
+                role,
+                filled,
+                tag,
+            } => {
+                let [x, y] = vp.map(*center);
+                let fill = if *filled { palette.fill(*role) } else { "none" };
+                let _ = write!(
+                    out,
+                    r#"<ellipse data-tag="{}" cx="{x:.3}" cy="{y:.3}" rx="{:.3}" ry="{:.3}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
+                    esc(tag),
+                    radius * vp.sx,
+                    radius * vp.sy,
+                    palette.stroke(*role)
+                );
+            }
+            Item::Dot {
+                center,
+                radius_px,
+                role,
+                filled,
+                tag,
+            } => {
+                let [x, y] = vp.map(*center);
+                let fill = if *filled { palette.fill(*role) } else { "none" };
+                let _ = write!(
+                    out,
+                    r#"<circle data-tag="{}" cx="{x:.3}" cy="{y:.3}" r="{radius_px}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
+                    esc(tag),
+                    palette.stroke(*role)
+                );
+            }
+            Item::Arrow {
+                from,
+                to,
+                role,
+                head_px,
+                tag,
+            } => {
+                let ([x0, y0], [x1, y1]) = (vp.map(*from), vp.map(*to));
+                let c = palette.stroke(*role);
+                let _ = write!(
+                    out,
+                    r#"<line data-tag="{}" x1="{x0:.3}" y1="{y0:.3}" x2="{x1:.3}" y2="{y1:.3}" stroke="{c}" stroke-width="1.5"/>"#,
+                    esc(tag)
+                );
+                let a = (y1 - y0).atan2(x1 - x0);
+                let (h, spread) = (*head_px, 0.45f64);
+                let p1 = [x1 - h * (a - spread).cos(), y1 - h * (a - spread).sin()];
+                let p2 = [x1 - h * (a + spread).cos(), y1 - h * (a + spread).sin()];
+                let _ = write!(
+                    out,
+                    r#"<polygon points="{x1:.3},{y1:.3} {:.3},{:.3} {:.3},{:.3}" fill="{c}"/>"#,
+                    p1[0], p1[1], p2[0], p2[1]
+                );
+            }
+            Item::Text {
+                at,
+                text,
+                size_px,
+                anchor,
+                role,
+                angle,
+            } => {
+                let [x, y] = vp.map(*at);
+                let anchor = match anchor {
+                    Anchor::Start => "start",
+                    Anchor::Middle => "middle",
+                    Anchor::End => "end",
+                };
+                let rot = if *angle != 0.0 {
+                    format!(r#" transform="rotate({:.3} {x:.3} {y:.3})""#, -angle.to_degrees())
+                } else {
+                    String::new()
+                };
+                let _ = write!(
+                    out,
+                    r#"<text x="{x:.3}" y="{:.3}" font-size="{size_px}" text-anchor="{anchor}" fill="{}"{rot}>{}</text>"#,
+                    y - 3.0,
+                    palette.stroke(*role),
+                    esc(text)
+                );
+            }
+        }
+    }
+    let _ = write!(
+        out,
+        r#"<text x="8" y="16" font-size="13" font-weight="600" fill="{}">{}</text>"#,
+        palette.ink,
+        esc(&scene.title)
+    );
+    let _ = write!(
+        out,
+        r#"<text x="8" y="{:.1}" font-size="11" fill="{}">{}</text>"#,
+        height - 8.0,
+        palette.muted,
+        esc(&scene.caption)
+    );
+    out.push_str("</svg>\n");
+    out
+}

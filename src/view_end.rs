@@ -1,0 +1,265 @@
+//! The end view: the output beams as seen looking back toward the source.
+//!
+//! World coordinates are millimetres in the exit plane, x to the right and y up, as seen by an
+//! observer downstream looking toward the source (`../shared/CONVENTIONS.md`); the caption says so.
+//! Each spot (rays that leave from one point, added as fields) is a circle of the beam diameter
+//! at its exit point, holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
+//! semi-axes in the ratio tan |χ|, and an arrowhead giving the sense of rotation — clockwise in
+//! this view for right-handed light (Born & Wolf's convention: right-handed turns clockwise for
+//! an observer looking toward the source). Linear light is a double-headed line; unpolarized
+//! light a dashed ring. Each spot carries its power as text; the largest distance between spots
+//! is dimensioned; a cross marks where the undeviated incident beam would be.
+
+use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, length_text, nice_step, significant};
+use crate::stokes::{Handedness, ellipse};
+use crate::trace::TraceResult;
+use crate::view_side::dimension;
+
+/// Builds the end view of a traced result for a beam of `diameter_mm`.
+pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
+    let mut scene = Scene::new(
+        "End view (output)",
+        "looking toward the source · x → right, y ↑",
+        Aspect::Equal,
+    );
+    let r = 0.5 * diameter_mm;
+    let u = result.input.direction;
+    let z = result.rays.first().map_or(0.0, |x| x.exit_z_mm);
+    let undeviated: Point = if u[2] > 0.0 {
+        [u[0] / u[2] * z, u[1] / u[2] * z]
+    } else {
+        [0.0, 0.0]
+    };
+
+    let mut pts: Vec<Point> = vec![undeviated];
+    for spot in &result.spots {
+        let c = spot.position_mm;
+        pts.push([c[0] - r, c[1] - r]);
+        pts.push([c[0] + r, c[1] + r]);
+    }
+    let bounds = Rect::around(pts).at_least(4.0 * r, 3.0 * r);
+
+    // Undeviated beam position.
+    let k = 0.25 * r;
+    scene.line(
+        vec![[undeviated[0] - k, undeviated[1]], [undeviated[0] + k, undeviated[1]]],
+        Role::Grid,
+        vec![],
+        1.0,
+        "undeviated",
+    );
+    scene.line(
+        vec![[undeviated[0], undeviated[1] - k], [undeviated[0], undeviated[1] + k]],
+        Role::Grid,
+        vec![],
+        1.0,
+        "undeviated",
+    );
+
+    for (i, spot) in result.spots.iter().enumerate() {
+        let c = spot.position_mm;
+        let name = spot.rays.join("+");
+        let name = if name.is_empty() { "out".to_string() } else { name };
+        let dim = spot.power < 1e-6;
+        scene.items.push(Item::Circle {
+            center: c,
+            radius: r,
+            role: if dim { Role::Grid } else { Role::Spot },
+            filled: false,
+            tag: format!("spot {name}"),
+        });
+        for label in &spot.rays {
+            let ray = result.rays.iter().find(|x| &x.label == label);
+            if let Some(ray) = ray {
+                scene.items.push(Item::Dot {
+                    center: ray.exit_position_mm,
+                    radius_px: 2.0,
+                    role: Role::Label,
+                    filled: true,
+                    tag: format!("exit {label}"),
+                });
+            }
+        }
+        polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
+        let power = format!("{name}: P {}", significant(spot.power, 4));
+        scene.text([c[0], c[1] - 1.25 * r], power, 12.0, Anchor::Middle, Role::Label);
+        let _ = i;
+    }
+
+    // Dimension between the two spots farthest apart.
+    let mut best = (0.0, 0, 0);
+    for i in 0..result.spots.len() {
+        for j in i + 1..result.spots.len() {
+            let (a, b) = (result.spots[i].position_mm, result.spots[j].position_mm);
+            let d = (a[0] - b[0]).hypot(a[1] - b[1]);
+            if d > best.0 {
+                best = (d, i, j);
+            }
+        }
+    }
+    if best.0 > 0.0 {
+        let (a, b) = (result.spots[best.1].position_mm, result.spots[best.2].position_mm);
+        // Offset the dimension line above the spots, perpendicular to the line joining them.
+        let (dx, dy) = ((b[0] - a[0]) / best.0, (b[1] - a[1]) / best.0);
+        let (mut nx, mut ny) = (-dy, dx);
+        if ny < 0.0 || (ny == 0.0 && nx < 0.0) {
+            nx = -nx;
+            ny = -ny;
+        }
+        let off = 1.5 * r;
+        dimension(
+            &mut scene,
+            [a[0] + nx * off, a[1] + ny * off],
+            [b[0] + nx * off, b[1] + ny * off],
+            &length_text(best.0),
+            "separation",
+        );
+    }
+
+    // Scale bar under the spots.
+    let bar = nice_step(bounds.width() / 4.0);
+    let y = bounds.y0 - 0.6 * r;
+    scene.line(
+        vec![[bounds.x0, y], [bounds.x0 + bar, y]],
+        Role::ScaleBar,
+        vec![],
+        3.0,
+        "scale",
+    );
+    scene.text(
+        [bounds.x0 + 0.5 * bar, y],
+        length_text(bar),
+        11.0,
+        Anchor::Middle,
+        Role::ScaleBar,
+    );
+    scene.bounds = Rect {
+        x0: bounds.x0,
+        y0: y,
+        x1: bounds.x1,
+        y1: bounds.y1 + 1.8 * r,
+    }
+    .padded(0.08, 0.08);
+    scene
+}
+
+/// Draws the polarization ellipse of Stokes vector `s` at `c`, its major semi-axis `a` long.
+pub fn polarization_glyph(scene: &mut Scene, c: Point, a: f64, s: &[f64; 4], tag: &str) {
+    let e = ellipse(s);
+    let psi = e.azimuth_deg.to_radians();
+    let chi = e.ellipticity_deg.to_radians();
+    let (cp, sp) = (psi.cos(), psi.sin());
+    let at = |t: f64, b: f64| -> Point {
+        let (x, y) = (a * t.cos(), b * t.sin());
+        [c[0] + x * cp - y * sp, c[1] + x * sp + y * cp]
+    };
+    match e.handedness {
+        Handedness::Unpolarized => {
+            let ring: Vec<Point> = (0..=48)
+                .map(|i| at(i as f64 / 48.0 * std::f64::consts::TAU, a))
+                .collect();
+            scene.line(ring, Role::Ellipse, vec![3.0, 3.0], 1.5, tag);
+            scene.text(c, "unpolarized", 10.0, Anchor::Middle, Role::Caption);
+        }
+        Handedness::Linear => {
+            let (p, q) = (at(0.0, 0.0), at(std::f64::consts::PI, 0.0));
+            scene.items.push(Item::Arrow {
+                from: c,
+                to: p,
+                role: Role::Ellipse,
+                head_px: 7.0,
+                tag: tag.to_string(),
+            });
+            scene.items.push(Item::Arrow {
+                from: c,
+                to: q,
+                role: Role::Ellipse,
+                head_px: 7.0,
+                tag: tag.to_string(),
+            });
+        }
+        Handedness::Right | Handedness::Left => {
+            let b = a * chi.tan().abs();
+            let pts: Vec<Point> = (0..=64)
+                .map(|i| at(i as f64 / 64.0 * std::f64::consts::TAU, b))
+                .collect();
+            scene.line(pts, Role::Ellipse, vec![], 1.8, tag);
+            // Parameter t runs counter-clockwise on screen; right-handed light turns clockwise in
+            // this view, so its arrow points toward decreasing t.
+            let sign = if e.handedness == Handedness::Right { -1.0 } else { 1.0 };
+            let t0 = 0.5 * std::f64::consts::PI;
+            scene.items.push(Item::Arrow {
+                from: at(t0 - sign * 0.35, b),
+                to: at(t0, b),
+                role: Role::Ellipse,
+                head_px: 8.0,
+                tag: format!(
+                    "{tag} sense {}",
+                    if sign < 0.0 { "clockwise" } else { "counter-clockwise" }
+                ),
+            });
+            let hand = if e.handedness == Handedness::Right { "R" } else { "L" };
+            scene.text(
+                [c[0] + 1.05 * a, c[1] + 0.6 * a],
+                hand,
+                11.0,
+                Anchor::Start,
+                Role::Ellipse,
+            );
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scenario::Scenario;
+    use crate::trace::trace;
+
+    fn build(doc: &str) -> (TraceResult, Scene) {
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = end_view(&r, sc.beam.diameter_mm);
+        (r, scene)
+    }
+
+    #[test]
+    fn spots_sit_at_the_traced_exit_points_with_the_beam_diameter() {
+        let (r, scene) = build(include_str!("../examples/demo.json"));
+        assert!(scene.is_finite());
+        assert!(scene.caption.contains("looking toward the source"));
+        for spot in &r.spots {
+            let tag = format!("spot {}", spot.rays.join("+"));
+            let Some(Item::Circle { center, radius, .. }) = scene.tagged(&tag).next() else {
+                panic!()
+            };
+            assert_eq!(*center, spot.position_mm);
+            assert_eq!(*radius, 0.4, "demo beam diameter 0.8 mm");
+        }
+        let Some(Item::Polyline { points, .. }) = scene.tagged("separation").next() else {
+            panic!()
+        };
+        let span = (points[1][0] - points[0][0]).hypot(points[1][1] - points[0][1]);
+        assert!((span - 1.3554544373106694).abs() < 1e-12, "{span}");
+        assert!(scene.texts().iter().any(|t| t.contains("P 0.5")));
+    }
+
+    #[test]
+    fn right_handed_light_turns_clockwise_in_this_view() {
+        // Common practice (Born & Wolf convention): right-handed light, S3 > 0, turns clockwise
+        // for an observer looking toward the source.
+        let (_, scene) = build(
+            r#"{"beam": {"polarization": {"kind": "circular", "handedness": "right"}}, "elements": [{"kind": "rotator", "angle_deg": 0}]}"#,
+        );
+        assert!(
+            scene.tagged("ellipse out sense clockwise").next().is_some(),
+            "{:?}",
+            scene.items
+        );
+        let Some(Item::Arrow { from, to, .. }) = scene.tagged("ellipse out sense clockwise").next() else {
+            panic!()
+        };
+        // At the top of the circle (t = 90°) clockwise motion runs toward +x.
+        assert!(to[0] > from[0], "{from:?} → {to:?}");
+    }
+}

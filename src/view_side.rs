@@ -1,0 +1,491 @@
+//! The side view: the stack in the x–z plane, to scale, with every ray through it.
+//!
+//! World coordinates are millimetres with z along world x (to the right) and the lab x along
+//! world y (up), as `../shared/CONVENTIONS.md` asks; +y of the lab points out of the screen.
+//! Plates are drawn to scale. When the stack is much longer than it is wide, the transverse
+//! direction is drawn stretched by a round factor ([`Scene::y_stretch`]), said in the caption and
+//! shown by a second scale bar; all coordinates in the scene stay physical.
+//!
+//! What it shows: each crystal with its optic axis (the projection on x–z as a double arrow, and
+//! ⊙ or ⊗ with the out-of-plane component when the axis leaves the plane), each ideal element as a
+//! thin bar, the incident beam, o-rays solid and e-rays dashed in every crystal (rays in the
+//! outside medium keep the style of their last crystal), a label at the end of each ray, a
+//! dimension line across the exit spots, the walk-off angle of the first crystal marked with its
+//! value, and scale bars.
+
+use crate::scenario::{ElementKind, Scenario};
+use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, length_text, nice_step, significant};
+use crate::trace::{ElementReport, TraceResult};
+use crate::uniaxial::OpticAxis;
+
+/// Rays with less power than this (fraction of the input) are drawn as dark (grey, thin).
+pub const DARK_RAY: f64 = 1e-9;
+
+/// Dash pattern of e-rays (px).
+pub const E_DASH: [f64; 2] = [7.0, 4.0];
+
+fn mode_style(letter: Option<char>) -> (Role, Vec<f64>) {
+    match letter {
+        Some('o') => (Role::ORay, vec![]),
+        Some('e') => (Role::ERay, E_DASH.to_vec()),
+        _ => (Role::Incident, vec![]),
+    }
+}
+
+/// The z intervals of the crystals, in stack order.
+fn crystal_spans(result: &TraceResult) -> Vec<(f64, f64)> {
+    result
+        .elements
+        .iter()
+        .filter_map(|e| match e {
+            ElementReport::Crystal {
+                z_front_mm, z_back_mm, ..
+            } => Some((*z_front_mm, *z_back_mm)),
+            _ => None,
+        })
+        .collect()
+}
+
+/// Builds the side view of a traced scenario.
+pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
+    let mut scene = Scene::new("Side view (x–z)", "", Aspect::Equal);
+    let d = scenario.beam.diameter_mm;
+    let u = result.input.direction;
+    let spans = crystal_spans(result);
+    let z_end_stack = result.rays.first().map_or(0.0, |r| r.exit_z_mm);
+    let stack_len = z_end_stack.max(1e-9);
+    let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
+    let (z_min, z_max) = (-lead, z_end_stack + lead);
+    let slope = if u[2] > 0.0 { u[0] / u[2] } else { 0.0 };
+
+    // Transverse extent: every ray point, the beam around them, and the lead-in/out.
+    let mut xs: Vec<f64> = vec![slope * z_min];
+    for ray in &result.rays {
+        xs.extend(ray.points_mm.iter().map(|p| p[0]));
+        xs.push(ray.exit_position_mm[0] + slope * lead);
+    }
+    let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
+    let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
+    let half = x_lo.abs().max(x_hi.abs());
+    let (px0, px1) = (x_lo.min(-half * 0.6), x_hi.max(half * 0.6));
+
+    // Stretch the transverse axis by a round factor when the view would be a thin strip.
+    let z_extent = z_max - z_min;
+    let x_extent = (px1 - px0).max(1e-9);
+    let wanted = z_extent / x_extent / 2.5;
+    let stretch = if wanted > 1.5 {
+        nice_step(wanted.min(1000.0)).max(1.0)
+    } else {
+        1.0
+    };
+    scene.y_stretch = stretch;
+    let s = stretch;
+    scene.caption = if s > 1.0 {
+        format!(
+            "z → right, x ↑ (lab y out of the page); transverse scale ×{}",
+            significant(s, 2)
+        )
+    } else {
+        "z → right, x ↑ (lab y out of the page); to scale".to_string()
+    };
+
+    // Plates and ideal elements.
+    let mut crystal_index = 0usize;
+    let mut z_cursor = 0.0;
+    for (i, (el, rep)) in scenario.elements.iter().zip(result.elements.iter()).enumerate() {
+        z_cursor += el.gap_mm;
+        match (&el.kind, rep) {
+            (
+                ElementKind::Crystal(plate),
+                ElementReport::Crystal {
+                    z_front_mm,
+                    z_back_mm,
+                    material,
+                    ..
+                },
+            ) => {
+                let (z0, z1) = (*z_front_mm, *z_back_mm);
+                scene.items.push(Item::Polygon {
+                    points: vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]],
+                    role: Role::Crystal,
+                    tag: format!("plate {crystal_index}"),
+                });
+                scene.text(
+                    [0.5 * (z0 + z1), px1],
+                    format!("{material} {}", length_text(z1 - z0)),
+                    11.0,
+                    Anchor::Middle,
+                    Role::Caption,
+                );
+                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg) {
+                    axis_mark(
+                        &mut scene,
+                        axis,
+                        [0.5 * (z0 + z1), 0.5 * (px0 + px1)],
+                        (z1 - z0).min((px1 - px0) * s) * 0.3,
+                        s,
+                        crystal_index,
+                    );
+                }
+                crystal_index += 1;
+                z_cursor = z1;
+            }
+            (kind, _) => {
+                let (name, tag) = match kind {
+                    ElementKind::Retarder {
+                        retardance_waves,
+                        fast_axis_deg,
+                    } => (
+                        format!(
+                            "Γ {} λ @ {}°",
+                            significant(*retardance_waves, 3),
+                            significant(*fast_axis_deg, 3)
+                        ),
+                        "retarder",
+                    ),
+                    ElementKind::Polarizer { transmission_axis_deg } => {
+                        (format!("pol. {}°", significant(*transmission_axis_deg, 3)), "polarizer")
+                    }
+                    ElementKind::Rotator { angle_deg } => (format!("rot. {}°", significant(*angle_deg, 3)), "rotator"),
+                    ElementKind::Crystal(_) => (String::new(), "crystal"),
+                };
+                scene.items.push(Item::Polyline {
+                    points: vec![[z_cursor, px0], [z_cursor, px1]],
+                    role: Role::Element,
+                    dash: vec![],
+                    width: 3.0,
+                    tag: format!("{tag} {i}"),
+                });
+                scene.text([z_cursor, px0], name, 11.0, Anchor::Middle, Role::Caption);
+            }
+        }
+    }
+
+    // Incident beam.
+    scene.line(
+        vec![[z_min, slope * z_min], [0.0, 0.0]],
+        Role::Incident,
+        vec![],
+        2.0,
+        "incident",
+    );
+    scene.text([z_min, slope * z_min], "in", 12.0, Anchor::Start, Role::Label);
+
+    // Rays, segment by segment.
+    for ray in &result.rays {
+        let letters: Vec<char> = ray.label.chars().collect();
+        let mut last: Option<char> = None;
+        for w in ray.points_mm.windows(2) {
+            let (a, b) = (w[0], w[1]);
+            let mid = 0.5 * (a[2] + b[2]);
+            let inside = spans.iter().position(|(z0, z1)| mid > *z0 && mid < *z1);
+            let letter = match inside {
+                Some(k) => letters.get(k).copied(),
+                None => last,
+            };
+            if inside.is_some() {
+                last = letter;
+            }
+            let (role, dash) = mode_style(letter);
+            scene.line(
+                vec![[a[2], a[0]], [b[2], b[0]]],
+                role,
+                dash,
+                2.0,
+                format!("ray {} segment", ray.label),
+            );
+        }
+        let exit: Point = [ray.exit_z_mm, ray.exit_position_mm[0]];
+        let end: Point = [z_max, ray.exit_position_mm[0] + slope * (z_max - ray.exit_z_mm)];
+        let (role, dash) = mode_style(last);
+        // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
+        // is still shown, thin and grey, so that the reader sees where it would go.
+        let (role, width) = if ray.power < DARK_RAY {
+            (Role::Grid, 1.0)
+        } else {
+            (role, 2.0)
+        };
+        scene.line(vec![exit, end], role, dash, width, format!("ray {}", ray.label));
+        scene.items.push(Item::Dot {
+            center: exit,
+            radius_px: 3.0,
+            role,
+            filled: true,
+            tag: format!("exit {}", ray.label),
+        });
+    }
+    // One label per spot, at the end of its rays.
+    for spot in &result.spots {
+        let name = if spot.rays.is_empty() {
+            "out".to_string()
+        } else {
+            spot.rays.join("+")
+        };
+        let x = spot.position_mm[0] + slope * (z_max - z_end_stack);
+        let name = if spot.power < DARK_RAY {
+            format!("{name} (no power)")
+        } else {
+            name
+        };
+        scene.text([z_max, x], name, 12.0, Anchor::Start, Role::Label);
+    }
+
+    // Walk-off of the first crystal with a propagating e-wave.
+    if let Some((rep_e, z0)) = result.elements.iter().find_map(|e| match e {
+        ElementReport::Crystal { e, z_front_mm, .. } if e.ray_direction.is_some() => Some((e.clone(), *z_front_mm)),
+        _ => None,
+    }) {
+        let x_entry = result
+            .rays
+            .first()
+            .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
+            .map_or(0.0, |p| p[0]);
+        if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
+            walkoff_mark(
+                &mut scene,
+                [z0, x_entry],
+                k,
+                ray,
+                w,
+                0.4 * spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * z_extent),
+                s,
+            );
+        }
+    }
+
+    // Dimension across the exit points.
+    let exit_xs: Vec<f64> = result.spots.iter().map(|p| p.position_mm[0]).collect();
+    if exit_xs.len() >= 2 {
+        let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
+        let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+        let zd = z_end_stack + 0.35 * lead;
+        if hi - lo > 0.0 {
+            let has_y = result.spots.iter().any(|p| p.position_mm[1].abs() > 1e-9 * d);
+            let label = if has_y {
+                format!("Δx {}", length_text(hi - lo))
+            } else {
+                length_text(hi - lo)
+            };
+            dimension(&mut scene, [zd, lo], [zd, hi], &label, "dimension");
+        }
+    }
+
+    // Scale bars.
+    let bar = nice_step(z_extent / 5.0);
+    let yb = px0 - 0.12 * (px1 - px0);
+    scene.line(
+        vec![[z_min, yb], [z_min + bar, yb]],
+        Role::ScaleBar,
+        vec![],
+        3.0,
+        "scale z",
+    );
+    scene.text(
+        [z_min + 0.5 * bar, yb],
+        length_text(bar),
+        11.0,
+        Anchor::Middle,
+        Role::ScaleBar,
+    );
+    if s > 1.0 {
+        let tb = nice_step((px1 - px0) / 3.0);
+        let zb = z_max - 0.02 * z_extent;
+        scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
+        scene.text(
+            [zb - 0.01 * z_extent, yb + 0.5 * tb],
+            format!("{} (x)", length_text(tb)),
+            11.0,
+            Anchor::End,
+            Role::ScaleBar,
+        );
+    }
+    scene.bounds = Rect {
+        x0: z_min,
+        y0: yb,
+        x1: z_max,
+        y1: px1,
+    }
+    .padded(0.03, 0.12);
+    scene
+}
+
+/// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
+fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f64, index: usize) {
+    let v = axis.unit();
+    // In-plane projection (z, x), drawn at its true screen angle despite the stretch.
+    let (pz, px) = (v.z, v.x);
+    let n = pz.hypot(px);
+    if n > 1e-6 {
+        let half = 0.5 * len * n;
+        let (dz, dx) = (pz / n * half, px / n * half / stretch);
+        scene.items.push(Item::Arrow {
+            from: [c[0] - dz, c[1] - dx],
+            to: [c[0] + dz, c[1] + dx],
+            role: Role::Axis,
+            head_px: 6.0,
+            tag: format!("axis {index}"),
+        });
+        scene.items.push(Item::Arrow {
+            from: [c[0] + dz, c[1] + dx],
+            to: [c[0] - dz, c[1] - dx],
+            role: Role::Axis,
+            head_px: 6.0,
+            tag: format!("axis {index} back"),
+        });
+        scene.text([c[0] + dz, c[1] + dx], "c", 12.0, Anchor::Start, Role::Axis);
+    }
+    // Out-of-plane part: +y of the lab points toward the viewer.
+    if v.y.abs() > 0.02 {
+        let glyph = if v.y > 0.0 { "⊙" } else { "⊗" };
+        scene.text(
+            [c[0], c[1]],
+            format!("{glyph} c_y {}", significant(v.y, 2)),
+            12.0,
+            Anchor::Middle,
+            Role::Axis,
+        );
+    }
+}
+
+/// Marks the walk-off angle between wave vector `k` and ray `ray` at `at`.
+fn walkoff_mark(scene: &mut Scene, at: Point, k: [f64; 3], ray: [f64; 3], walkoff_deg: f64, radius: f64, stretch: f64) {
+    // Screen angles of the projections on the x–z plane.
+    let ak = (k[0] * stretch).atan2(k[2]);
+    let ar = (ray[0] * stretch).atan2(ray[2]);
+    let r = radius.max(1e-9);
+    let to_world = |a: f64, rr: f64| -> Point { [at[0] + rr * a.cos(), at[1] + rr * a.sin() / stretch] };
+    scene.line(
+        vec![at, to_world(ak, 1.3 * r)],
+        Role::Angle,
+        vec![2.0, 3.0],
+        1.0,
+        "wave vector",
+    );
+    let steps = 24;
+    let arc: Vec<Point> = (0..=steps)
+        .map(|i| to_world(ak + (ar - ak) * i as f64 / steps as f64, r))
+        .collect();
+    scene.line(arc, Role::Angle, vec![], 1.5, "walk-off arc");
+    let mid = to_world(0.5 * (ak + ar) + if ar >= ak { 0.15 } else { -0.15 }, 1.15 * r);
+    scene.text(
+        mid,
+        format!("ρ = {}°", significant(walkoff_deg, 3)),
+        12.0,
+        Anchor::Start,
+        Role::Angle,
+    );
+}
+
+/// A dimension line between `a` and `b` with arrowheads at both ends and a label.
+pub fn dimension(scene: &mut Scene, a: Point, b: Point, label: &str, tag: &str) {
+    scene.line(vec![a, b], Role::Dimension, vec![], 1.0, tag);
+    let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
+    scene.items.push(Item::Arrow {
+        from: mid,
+        to: a,
+        role: Role::Dimension,
+        head_px: 7.0,
+        tag: format!("{tag} end"),
+    });
+    scene.items.push(Item::Arrow {
+        from: mid,
+        to: b,
+        role: Role::Dimension,
+        head_px: 7.0,
+        tag: format!("{tag} end"),
+    });
+    scene.text(mid, format!(" {label}"), 12.0, Anchor::Start, Role::Dimension);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::trace::trace;
+
+    fn build(doc: &str) -> (TraceResult, Scene) {
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view(&sc, &r);
+        (r, scene)
+    }
+
+    fn first_point(scene: &Scene, tag: &str) -> Point {
+        match scene.tagged(tag).next() {
+            Some(Item::Polyline { points, .. }) => points[0],
+            Some(Item::Dot { center, .. }) => *center,
+            other => panic!("no {tag}: {other:?}"),
+        }
+    }
+
+    #[test]
+    fn exit_points_in_the_view_are_the_traced_ones() {
+        let (r, scene) = build(include_str!("../examples/demo.json"));
+        assert!(scene.is_finite());
+        for ray in &r.rays {
+            let p = first_point(&scene, &format!("ray {}", ray.label));
+            assert_eq!(p, [ray.exit_z_mm, ray.exit_position_mm[0]], "ray {}", ray.label);
+            assert_eq!(first_point(&scene, &format!("exit {}", ray.label)), p);
+        }
+        // o solid, e dashed.
+        let style = |tag: &str| match scene.tagged(tag).next() {
+            Some(Item::Polyline { role, dash, .. }) => (*role, dash.clone()),
+            _ => panic!(),
+        };
+        assert_eq!(style("ray o"), (Role::ORay, vec![]));
+        assert_eq!(style("ray e"), (Role::ERay, E_DASH.to_vec()));
+    }
+
+    #[test]
+    fn the_dimension_spans_the_separation_and_says_it() {
+        let (r, scene) = build(include_str!("../examples/demo.json"));
+        let ElementReport::Crystal { separation_mm, .. } = r.elements[0] else {
+            panic!()
+        };
+        let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        let span = (points[1][1] - points[0][1]).abs();
+        assert!((span - separation_mm.unwrap()).abs() < 1e-12, "{span}");
+        assert!(
+            scene.texts().iter().any(|t| t.contains("1.36 mm")),
+            "{:?}",
+            scene.texts()
+        );
+        assert!(
+            scene.texts().iter().any(|t| t.starts_with("ρ = 6.19")),
+            "{:?}",
+            scene.texts()
+        );
+    }
+
+    #[test]
+    fn the_plate_is_drawn_to_scale_and_the_axis_shown() {
+        let (_, scene) = build(include_str!("../examples/demo.json"));
+        let Some(Item::Polygon { points, .. }) = scene.tagged("plate 0").next() else {
+            panic!()
+        };
+        assert_eq!(points[0][0], 5.0);
+        assert_eq!(points[1][0], 17.5);
+        // The demo's axis lies in the x–z plane at 45° from z.
+        let Some(Item::Arrow { from, to, .. }) = scene.tagged("axis 0").next() else {
+            panic!()
+        };
+        let screen_angle = ((to[1] - from[1]) * scene.y_stretch)
+            .atan2(to[0] - from[0])
+            .to_degrees();
+        assert!((screen_angle - 45.0).abs() < 1e-9, "{screen_angle}");
+        assert!(scene.caption.contains("transverse scale") || scene.caption.contains("to scale"));
+    }
+
+    #[test]
+    fn out_of_plane_axes_get_a_mark() {
+        let (_, scene) = build(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#,
+        );
+        assert!(scene.texts().iter().any(|t| t.starts_with("⊙")), "{:?}", scene.texts());
+        let (_, scene) = build(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {"tilt_deg": 45, "azimuth_deg": -90}}]}"#,
+        );
+        assert!(scene.texts().iter().any(|t| t.starts_with("⊗")));
+    }
+}

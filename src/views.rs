@@ -1,0 +1,76 @@
+//! The set of views and how to build each one from a scenario and its traced result.
+//!
+//! One name per view, shared by the page, the command line and the tests: `side`, `end`,
+//! `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots describe
+//! the first crystal of the stack.
+
+use crate::error::Error;
+use crate::scenario::Scenario;
+use crate::scene::Scene;
+use crate::sweep;
+use crate::trace::TraceResult;
+use crate::{view_end, view_plot, view_poincare, view_side};
+
+/// Every view, by name.
+pub const VIEW_NAMES: [&str; 6] = [
+    "side",
+    "end",
+    "poincare",
+    "walkoff-tilt",
+    "separation-wavelength",
+    "retardance-wavelength",
+];
+
+/// Builds the view called `name`.
+///
+/// # Errors
+/// `view` for an unknown name; `wavelength_nm` if a plot's formula breaks down.
+pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Scene, Error> {
+    Ok(match name {
+        "side" => view_side::side_view(scenario, result),
+        "end" => view_end::end_view(result, scenario.beam.diameter_mm),
+        "poincare" => view_poincare::poincare_view(result),
+        "walkoff-tilt" => view_plot::plot(&sweep::walkoff_vs_tilt(scenario, 0)?),
+        "separation-wavelength" => view_plot::plot(&sweep::separation_vs_wavelength(scenario, 0)),
+        "retardance-wavelength" => view_plot::plot(&sweep::retardance_vs_wavelength(scenario, 0)),
+        other => {
+            return Err(Error::new(
+                "view",
+                format!("unknown view '{other}'; expected one of: {}", VIEW_NAMES.join(", ")),
+            ));
+        }
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::trace::trace;
+
+    #[test]
+    fn every_view_of_every_example_is_drawable() {
+        for doc in [
+            include_str!("../examples/demo.json"),
+            include_str!("../examples/recombiner.json"),
+            include_str!("../examples/quarter-wave.json"),
+        ] {
+            let sc = Scenario::from_json_str(doc).unwrap();
+            let r = trace(&sc).unwrap();
+            for name in VIEW_NAMES {
+                let scene = build(name, &sc, &r).unwrap();
+                assert!(scene.is_finite(), "{name}");
+                assert!(!scene.items.is_empty(), "{name}");
+            }
+        }
+        assert_eq!(
+            build(
+                "top",
+                &Scenario::from_json_str(include_str!("../examples/demo.json")).unwrap(),
+                &trace(&Scenario::from_json_str(include_str!("../examples/demo.json")).unwrap()).unwrap()
+            )
+            .unwrap_err()
+            .field,
+            "view"
+        );
+    }
+}
