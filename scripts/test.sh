@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # Runs every test of Doublespar: formatting, lints, unit, integration and property tests, and the
-# command line's golden outputs. Installs nothing but what the Rust toolchain itself provides.
+# command line's golden outputs, and the independent numpy reference (which makes a Python venv
+# under target/ and installs numpy into it from the registry).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 echo "== format"
@@ -11,3 +12,5 @@ echo "== tests"
 cargo test --all-targets
 echo "== doc tests"
 cargo test --doc
+echo "== independent numpy reference"
+tests/reference/run.sh

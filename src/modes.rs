@@ -22,7 +22,8 @@
 //! power carried across a face. Evanescent modes are normalized to |E| = 1.
 //!
 //! Degenerate direction: when q is (almost) along c the two modes are degenerate and any
-//! transverse pair is a valid basis; we then take D_o ∥ q × x̂ (or q × ŷ, whichever is larger).
+//! transverse pair is a valid basis; we then take D_o ∥ q × x̂ (or q × ŷ, whichever is larger,
+//! ties going to q × x̂: at normal incidence along the axis D_o ∥ ŷ and D_e ∥ x̂).
 //!
 //! Basis of the outside medium (forward): the transverse pair e1, e2 obtained from x̂, ŷ by the
 //! smallest rotation that carries ẑ onto the beam direction u, so that at normal incidence e1 = x̂,
@@ -210,7 +211,10 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
     let d_o_of = |q: &CVector3| -> CVector3 {
         let d = q.cross(&cc);
         if d.norm() > DEGENERATE_DIRECTION * q.norm() {
-            d
+            // Near the optic axis |q × c| is small and its rounding error is not: remove the
+            // spurious part along q, so that D stays transverse to machine precision
+            // (found by the independent 4×4 cross-check).
+            d - q * (q.dot(&d) / q.dot(q))
         } else {
             let dx = q.cross(&real3(Vector3::x()));
             let dy = q.cross(&real3(Vector3::y()));
