@@ -1,6 +1,8 @@
 //! Doublespar: exact double refraction and polarization in stacks of uniaxial crystal plates.
 #![warn(missing_docs)]
 
+#[cfg(target_arch = "wasm32")]
+pub mod canvas;
 pub mod error;
 pub mod interface;
 pub mod jones;
@@ -22,3 +24,5 @@ pub mod view_poincare;
 pub mod view_side;
 pub mod views;
 pub mod wavelength;
+#[cfg(target_arch = "wasm32")]
+pub mod web;

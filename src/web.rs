@@ -1,0 +1,181 @@
+//! The page's WebAssembly bindings: a thin layer that converts at the boundary and draws.
+//!
+//! Exported to JavaScript (and only this): a [`Session`] that holds the last good scenario and
+//! its trace, takes a new scenario as JSON text or a plain JS object, returns the result as a JS
+//! object (through serde-wasm-bindgen), and draws any view on a canvas. A bad scenario returns
+//! `{field, message}` and leaves the last good state in place, so the page keeps its picture.
+//! A panic hook writes any bug's message into the page (element `#panic`) instead of leaving a
+//! dead canvas.
+
+use crate::error::Error;
+use crate::scenario::Scenario;
+use crate::svg::{self, Palette};
+use crate::trace::{TraceResult, trace};
+use crate::{canvas, material, views};
+use serde::Serialize;
+use wasm_bindgen::prelude::*;
+use web_sys::HtmlCanvasElement;
+
+const DEMO: &str = include_str!("../examples/demo.json");
+
+fn to_js<T: Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    value
+        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
+        .map_err(|e| JsValue::from_str(&format!("cannot convert the result: {e}")))
+}
+
+/// The one place where a core error becomes a JavaScript value: `{field, message}`.
+fn js_error(e: Error) -> JsValue {
+    to_js(&serde_json::json!({"field": e.field, "message": e.message}))
+        .unwrap_or_else(|_| JsValue::from_str(&e.to_string()))
+}
+
+/// Shows a panic's message in the page and on the console.
+#[wasm_bindgen(start)]
+pub fn start() {
+    std::panic::set_hook(Box::new(|info| {
+        let msg = format!(
+            "Doublespar hit an internal error and stopped: {info}. Reload the page; please report the scenario link."
+        );
+        web_sys::console::error_1(&JsValue::from_str(&msg));
+        if let Some(el) = web_sys::window()
+            .and_then(|w| w.document())
+            .and_then(|d| d.get_element_by_id("panic"))
+        {
+            el.set_text_content(Some(&msg));
+            let _ = el.remove_attribute("hidden");
+        }
+    }));
+}
+
+/// The demo scenario, as JSON text.
+#[wasm_bindgen(js_name = demoScenario)]
+pub fn demo_scenario() -> String {
+    DEMO.to_string()
+}
+
+/// The crystal catalogue: `[{key, name, sign, range_nm, citation}]`.
+///
+/// # Errors
+/// Never in practice (conversion of plain data).
+#[wasm_bindgen]
+pub fn materials() -> Result<JsValue, JsValue> {
+    let list: Vec<serde_json::Value> = material::catalogue()
+        .iter()
+        .map(|m| {
+            serde_json::json!({
+                "key": m.key, "name": m.name,
+                "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
+                "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
+            })
+        })
+        .collect();
+    to_js(&list)
+}
+
+/// The names of the views that [`Session::draw`] accepts.
+///
+/// # Errors
+/// Never in practice.
+#[wasm_bindgen(js_name = viewNames)]
+pub fn view_names() -> Result<JsValue, JsValue> {
+    to_js(&views::VIEW_NAMES)
+}
+
+/// A scenario and its trace, kept between edits.
+#[wasm_bindgen]
+pub struct Session {
+    scenario: Scenario,
+    result: TraceResult,
+}
+
+impl Session {
+    fn accept(&mut self, parsed: Result<Scenario, Error>) -> Result<JsValue, JsValue> {
+        let scenario = parsed.map_err(js_error)?;
+        let result = trace(&scenario).map_err(js_error)?;
+        let out = to_js(&result)?;
+        self.scenario = scenario;
+        self.result = result;
+        Ok(out)
+    }
+}
+
+#[wasm_bindgen]
+impl Session {
+    /// A session showing the demo scenario.
+    ///
+    /// # Errors
+    /// Only if the built-in demo were invalid (tested natively).
+    #[wasm_bindgen(constructor)]
+    pub fn new() -> Result<Session, JsValue> {
+        let scenario = Scenario::from_json_str(DEMO).map_err(js_error)?;
+        let result = trace(&scenario).map_err(js_error)?;
+        Ok(Session { scenario, result })
+    }
+
+    /// Traces a scenario given as JSON text and keeps it. Returns the result object.
+    ///
+    /// # Errors
+    /// `{field, message}` for a bad scenario; the previous scenario and result are kept.
+    #[wasm_bindgen(js_name = updateJson)]
+    pub fn update_json(&mut self, text: &str) -> Result<JsValue, JsValue> {
+        self.accept(Scenario::from_json_str(text))
+    }
+
+    /// Traces a scenario given as a plain JavaScript object and keeps it.
+    ///
+    /// # Errors
+    /// As [`Session::update_json`].
+    pub fn update(&mut self, scenario: JsValue) -> Result<JsValue, JsValue> {
+        let value: serde_json::Value = serde_wasm_bindgen::from_value(scenario)
+            .map_err(|e| js_error(Error::new("", format!("not a scenario object: {e}"))))?;
+        self.accept(Scenario::from_json(&value))
+    }
+
+    /// The current result object.
+    ///
+    /// # Errors
+    /// Never in practice.
+    pub fn result(&self) -> Result<JsValue, JsValue> {
+        to_js(&self.result)
+    }
+
+    /// The current scenario with every default written out, as JSON text.
+    #[wasm_bindgen(js_name = scenarioJson)]
+    pub fn scenario_json(&self) -> String {
+        self.scenario.to_json().to_string()
+    }
+
+    /// The display list of a view, for tests and tools.
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view.
+    pub fn scene(&self, view: &str) -> Result<JsValue, JsValue> {
+        to_js(&views::build(view, &self.scenario, &self.result).map_err(js_error)?)
+    }
+
+    /// Draws a view on a canvas, in the dark or light palette.
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view; a JavaScript error if the canvas fails.
+    pub fn draw(&self, view: &str, canvas: &HtmlCanvasElement, dark: bool) -> Result<(), JsValue> {
+        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let palette = if dark { Palette::dark() } else { Palette::light() };
+        canvas::draw(&scene, canvas, &palette)
+    }
+
+    /// A view as an SVG document of the given size in pixels.
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view.
+    pub fn svg(&self, view: &str, width: f64, height: f64, dark: bool) -> Result<String, JsValue> {
+        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let palette = if dark { Palette::dark() } else { Palette::light() };
+        Ok(svg::to_svg(
+            &scene,
+            width.clamp(50.0, 10000.0),
+            height.clamp(50.0, 10000.0),
+            &palette,
+        ))
+    }
+}
