@@ -15,13 +15,17 @@ fi
 if ! command -v wasm-opt >/dev/null 2>&1 && command -v apt-get >/dev/null 2>&1 && [ "$(id -u)" = 0 ]; then
   (apt-get install -y binaryen >/dev/null 2>&1 || (apt-get update >/dev/null && apt-get install -y binaryen >/dev/null)) || true
 fi
-cargo build --lib --target wasm32-unknown-unknown --release
+# Built without reference types so that wasm-bindgen emits nothing Debian's wasm-opt 108 cannot
+# read (it predates table.fill); the flag is set here, not in .cargo/config.toml, so that the
+# browser tests keep the toolchain's defaults.
+CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="-C target-feature=-reference-types" \
+  cargo build --lib --target wasm32-unknown-unknown --release
 RAW=target/wasm32-unknown-unknown/release/doublespar.wasm
 WORK=target/web-build
 rm -rf "$WORK" && mkdir -p "$WORK" www/pkg
 # Features the optimizer must accept. The target-features section is stripped first: the crate is
-# built without reference types (see .cargo/config.toml) so that wasm-bindgen emits nothing that
-# Debian's wasm-opt 108 cannot read.
+# built without reference types (above) so that wasm-bindgen emits nothing that
+# Debian's wasm-opt 108 cannot read (its section would otherwise tell wasm-bindgen that std uses them).
 FEATURES="--enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-mutable-globals --enable-multivalue"
 if command -v wasm-opt >/dev/null 2>&1; then
   # shellcheck disable=SC2086

@@ -1,8 +1,11 @@
 #!/usr/bin/env bash
-# Builds Doublespar and shows the demo scenario.
-# Until the page exists (issue 3), this runs the command line on the demo scenario and prints the
-# readable table; the JSON form is one flag away (drop --table).
+# Builds the page (installing the wasm target and the pinned wasm-bindgen CLI if missing) and
+# serves www/ on 127.0.0.1 with Python's static file server, which needs no network.
+# PORT=9000 scripts/serve.sh picks another port.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-cargo build --release --bin doublespar
-./target/release/doublespar trace examples/demo.json --table
+scripts/build-web.sh
+PORT="${PORT:-8080}"
+echo
+echo "Doublespar is at http://127.0.0.1:${PORT}/  (Ctrl-C stops the server)"
+exec python3 -m http.server "$PORT" --bind 127.0.0.1 --directory www
