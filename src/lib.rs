@@ -3,15 +3,21 @@
 
 #[cfg(target_arch = "wasm32")]
 pub mod canvas;
+pub mod design;
+pub mod design_displacer;
+pub mod design_recombiner;
+pub mod design_waveplate;
 pub mod error;
 pub mod interface;
 pub mod jones;
 pub mod json_fields;
 pub mod material;
 pub mod modes;
+pub mod plate;
 pub mod precision;
 pub mod scenario;
 pub mod scene;
+pub mod statistics;
 pub mod stokes;
 pub mod svg;
 pub mod sweep;

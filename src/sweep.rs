@@ -9,9 +9,8 @@
 
 use crate::error::Error;
 use crate::material::Indices;
-use crate::modes::{Travel, crystal_modes};
+use crate::plate::plate_optics;
 use crate::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
-use crate::uniaxial::{OpticAxis, Uniaxial, angle_between};
 use crate::wavelength::Wavelength;
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -73,14 +72,7 @@ fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
 
 /// (walk-off rad, separation mm, retardance rad) of one plate, or None if a mode is evanescent.
 fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
-    let axis = OpticAxis::from_degrees(tilt, az).ok()?;
-    let [o, e] = crystal_modes(&Uniaxial::new(ix, axis), qt, Travel::Forward);
-    let (so, se) = (o.ray_direction()?, e.ray_direction()?);
-    let walk = angle_between(&e.wave_vector(), &se);
-    let dx = l * (se.x / se.z - so.x / so.z);
-    let dy = l * (se.y / se.z - so.y / so.z);
-    let ret = wl.k0_per_mm() * (e.qz().re - o.qz().re) * l;
-    Some((walk, dx.hypot(dy), ret))
+    plate_optics(ix, tilt, az, l, wl, qt).map(|p| (p.walkoff_rad, p.separation_mm, p.retardance_rad))
 }
 
 fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {

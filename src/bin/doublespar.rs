@@ -4,6 +4,8 @@
 //! doublespar trace FILE|- [--table] [--pretty]   trace a scenario (FILE or standard input)
 //! doublespar materials [--at NM] [--json]         the crystal catalogue, with citations
 //! doublespar draw VIEW FILE|- [--size WxH] [--dark]  one view as an SVG document
+//! doublespar design FILE|- [--table]               solve a design request (displacer, waveplate,
+//!                                                  achromat, recombiner)
 //! doublespar demo                                  print the demo scenario
 //! ```
 //! Errors print `{"error": {"field": …, "message": …}}` on standard output (a readable line on
@@ -13,7 +15,7 @@ use doublespar::error::Error;
 use doublespar::material;
 use doublespar::scenario::Scenario;
 use doublespar::wavelength::Wavelength;
-use doublespar::{svg, table, trace, views};
+use doublespar::{design, svg, table, trace, views};
 use serde_json::json;
 use std::io::Read;
 use std::process::ExitCode;
@@ -25,6 +27,8 @@ const USAGE: &str = "usage:
   doublespar materials [--at NM] [--json]         list the crystal catalogue with citations
   doublespar draw VIEW FILE|- [--size WxH] [--dark]  draw one view as SVG; VIEW is one of
         side, end, poincare, walkoff-tilt, separation-wavelength, retardance-wavelength
+  doublespar design FILE|- [--table]               solve a design request; its kind is one of
+        displacer, waveplate, achromat, recombiner (see DEVELOPERS.md)
   doublespar demo                                  print the demo scenario
   doublespar --version | --help
 
@@ -94,6 +98,31 @@ fn cmd_trace(args: &[String]) -> ExitCode {
                         Err(e) => return fail(&Error::new("", format!("cannot write the result: {e}")), false),
                     }
                 }
+            }
+            ExitCode::SUCCESS
+        }
+    }
+}
+
+fn cmd_design(args: &[String]) -> ExitCode {
+    let (mut file, mut table) = (None, false);
+    for a in args {
+        match a.as_str() {
+            "--table" => table = true,
+            s if file.is_none() && (s == "-" || !s.starts_with("--")) => file = Some(s.to_string()),
+            other => return usage_error(&format!("unexpected argument '{other}'")),
+        }
+    }
+    let Some(file) = file else {
+        return usage_error("design needs a request file, or - for standard input");
+    };
+    match read_input(&file).and_then(|t| design::solve_str(&t)) {
+        Err(e) => fail(&e, table),
+        Ok(v) => {
+            if table {
+                print!("{}", design::summary_text(&v));
+            } else {
+                println!("{v}");
             }
             ExitCode::SUCCESS
         }
@@ -224,6 +253,7 @@ fn main() -> ExitCode {
         Some("trace") => cmd_trace(&args[1..]),
         Some("materials") => cmd_materials(&args[1..]),
         Some("draw") => cmd_draw(&args[1..]),
+        Some("design") => cmd_design(&args[1..]),
         Some("demo") => {
             print!("{DEMO}");
             ExitCode::SUCCESS
