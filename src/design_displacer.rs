@@ -324,6 +324,33 @@ impl DisplacerRequest {
     }
 }
 
+/// Monte Carlo samples are drawn in chunks of this many, chunk k from its own generator seeded
+/// with (seed, k), so that a caller running chunk by chunk (the page's worker, with progress)
+/// gets exactly the samples of one run.
+pub const MC_CHUNK: usize = 10_000;
+
+/// The separations (mm) of Monte Carlo chunk `chunk` of a request, for a plate of cut `tilt_deg`
+/// and length `length_mm` (the design's); the last chunk holds the remainder of `samples`.
+/// Samples whose model cannot be evaluated (an evanescent mode) are left out.
+pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, chunk: usize) -> Vec<f64> {
+    let start = chunk.saturating_mul(MC_CHUNK);
+    let n = req.samples.saturating_sub(start).min(MC_CHUNK);
+    let mut rng = Rng::new(req.seed.wrapping_mul(0x0100_0000_01B3).wrapping_add(chunk as u64));
+    let (t, nm) = (req.tolerances, req.wavelength.nm());
+    (0..n)
+        .filter_map(|_| {
+            let (a, b, c, d) = (rng.normal(), rng.normal(), rng.normal(), rng.normal());
+            separation(
+                &req.medium,
+                tilt_deg + t.tilt_deg * a,
+                t.incidence_deg * b,
+                length_mm + t.thickness_mm * c,
+                nm + t.wavelength_nm * d,
+            )
+        })
+        .collect()
+}
+
 /// Separation of a plate at normal-incidence-plus-errors, the model the tolerances perturb.
 fn separation(medium: &Medium, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
@@ -423,18 +450,9 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     .sqrt();
 
     let monte_carlo = (req.samples > 0).then(|| {
-        let mut rng = Rng::new(req.seed);
-        let samples: Vec<f64> = (0..req.samples)
-            .filter_map(|_| {
-                let (a, b, c, d) = (rng.normal(), rng.normal(), rng.normal(), rng.normal());
-                separation(
-                    m,
-                    tilt + t.tilt_deg * a,
-                    t.incidence_deg * b,
-                    length_mm + t.thickness_mm * c,
-                    nm + t.wavelength_nm * d,
-                )
-            })
+        let chunks = req.samples.div_ceil(MC_CHUNK);
+        let samples: Vec<f64> = (0..chunks)
+            .flat_map(|k| monte_carlo_chunk(req, tilt, length_mm, k))
             .collect();
         summarize(&samples, req.bins)
     });
@@ -584,6 +602,18 @@ mod tests {
             d.separation_mm
         );
         assert!(mc.p5 < mc.mean && mc.mean < mc.p95);
+    }
+
+    #[test]
+    fn chunked_runs_reproduce_the_whole_run() {
+        let r = request(r#"{"material": "calcite", "separation_mm": 1, "samples": 25000, "seed": 9}"#);
+        let d = design(&r).unwrap();
+        let all: Vec<f64> = (0..3)
+            .flat_map(|k| monte_carlo_chunk(&r, d.cut_tilt_deg, d.length_mm, k))
+            .collect();
+        assert_eq!(all.len(), 25_000);
+        assert_eq!(summarize(&all, r.bins), d.monte_carlo.unwrap());
+        assert!(monte_carlo_chunk(&r, d.cut_tilt_deg, d.length_mm, 3).is_empty());
     }
 
     #[test]

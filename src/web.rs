@@ -1,27 +1,34 @@
 //! The page's WebAssembly bindings: a thin layer that converts at the boundary and draws.
 //!
 //! Exported to JavaScript (and only this): a [`Session`] that holds the last good scenario and
-//! its trace, takes a new scenario as JSON text or a plain JS object, returns the result as a JS
-//! object (through serde-wasm-bindgen), and draws any view on a canvas. A bad scenario returns
+//! its trace, takes a new scenario as JSON text or a plain JS object (read through
+//! serde-wasm-bindgen), returns the result as a JS object, and draws any view on a canvas. A bad scenario returns
 //! `{field, message}` and leaves the last good state in place, so the page keeps its picture.
 //! A panic hook writes any bug's message into the page (element `#panic`) instead of leaving a
 //! dead canvas.
 
 use crate::error::Error;
+#[cfg(feature = "design-worker")]
+use crate::json_fields::Fields;
 use crate::scenario::Scenario;
 use crate::svg::{self, Palette};
 use crate::trace::{TraceResult, trace};
 use crate::{canvas, material, views};
+#[cfg(feature = "design-worker")]
+use crate::{design, design_displacer, statistics};
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
 use web_sys::HtmlCanvasElement;
 
 const DEMO: &str = include_str!("../examples/demo.json");
 
+/// Results cross the boundary as JSON text parsed by the browser: one serializer (serde_json,
+/// shortest round-trip numbers, so every double arrives exact) instead of a second one
+/// monomorphized for every result type, which keeps the wasm within its size budget.
 fn to_js<T: Serialize>(value: &T) -> Result<JsValue, JsValue> {
-    value
-        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
-        .map_err(|e| JsValue::from_str(&format!("cannot convert the result: {e}")))
+    let text =
+        serde_json::to_string(value).map_err(|e| JsValue::from_str(&format!("cannot convert the result: {e}")))?;
+    js_sys::JSON::parse(&text)
 }
 
 /// The one place where a core error becomes a JavaScript value: `{field, message}`.
@@ -80,6 +87,53 @@ pub fn materials() -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = viewNames)]
 pub fn view_names() -> Result<JsValue, JsValue> {
     to_js(&views::VIEW_NAMES)
+}
+
+/// Solves a design request (JSON text, see `doublespar design`); returns the design object.
+///
+/// # Errors
+/// `{field, message}` for a bad request.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = designJson)]
+pub fn design_json(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&design::solve_str(text).map_err(js_error)?)
+}
+
+/// Monte Carlo chunk `chunk` (of [`design_displacer::MC_CHUNK`] samples) of a displacer
+/// request: the sampled separations in mm. Running chunks 0, 1, … and summarizing them gives
+/// exactly the `monte_carlo` of [`design_json`], so a worker can report progress between chunks.
+///
+/// # Errors
+/// `{field, message}` for a bad request.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = displacerChunk)]
+pub fn displacer_chunk(text: &str, chunk: usize) -> Result<Vec<f64>, JsValue> {
+    let value: serde_json::Value =
+        serde_json::from_str(text).map_err(|e| js_error(Error::new("", format!("not valid JSON: {e}"))))?;
+    let mut f = Fields::new("", &value).map_err(js_error)?;
+    let _ = f.string("kind");
+    let mut req = design_displacer::DisplacerRequest::from_json(&mut f).map_err(js_error)?;
+    f.finish().map_err(js_error)?;
+    let samples = req.samples;
+    req.samples = 0;
+    let nominal = design_displacer::design(&req).map_err(js_error)?;
+    req.samples = samples;
+    Ok(design_displacer::monte_carlo_chunk(
+        &req,
+        nominal.cut_tilt_deg,
+        nominal.length_mm,
+        chunk,
+    ))
+}
+
+/// Summary statistics (mean, std, p5, p95, histogram) of samples, as the design reports them.
+///
+/// # Errors
+/// Never in practice.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen]
+pub fn summarize(samples: &[f64], bins: usize) -> Result<JsValue, JsValue> {
+    to_js(&statistics::summarize(samples, bins))
 }
 
 /// A scenario and its trace, kept between edits.
