@@ -400,6 +400,23 @@ pub fn nice_step(max: f64) -> f64 {
     p
 }
 
+/// The smallest "nice" step (1, 2 or 5 × 10ⁿ) not below `min`: tick spacing that keeps labels
+/// apart.
+///
+/// Degenerate case: a non-positive or non-finite `min` gives 1.
+pub fn nice_step_at_least(min: f64) -> f64 {
+    if !(min.is_finite() && min > 0.0) {
+        return 1.0;
+    }
+    let p = 10f64.powf(min.log10().floor());
+    for m in [1.0, 2.0, 5.0, 10.0] {
+        if m * p >= min * (1.0 - 1e-12) {
+            return m * p;
+        }
+    }
+    10.0 * p
+}
+
 /// Formats a length in mm with a sensible unit (nm, µm, mm, m) and 3 significant digits.
 pub fn length_text(mm: f64) -> String {
     let a = mm.abs();
@@ -437,6 +454,9 @@ mod tests {
         assert_eq!(nice_step(0.031), 0.02);
         assert_eq!(nice_step(1.0), 1.0);
         assert_eq!(nice_step(f64::NAN), 1.0);
+        assert_eq!(nice_step_at_least(394.0), 500.0);
+        assert_eq!(nice_step_at_least(0.03), 0.05);
+        assert_eq!(nice_step_at_least(1.0), 1.0);
         assert_eq!(length_text(1.3554), "1.36 mm");
         assert_eq!(length_text(0.0123), "12.3 µm");
         assert_eq!(length_text(2.5e-5), "25.0 nm");

@@ -1,10 +1,10 @@
 //! A plot of a [`Series`]: axes with ticks, units and labels, the curve, and the current point.
 //!
 //! World coordinates are the data's own units (x and y scaled independently, [`Aspect::Free`]).
-//! Ticks fall on round values ([`nice_step`]); the current operating point is a marker with its
+//! Ticks fall on round values ([`nice_step_at_least`]); the current operating point is a marker with its
 //! value written beside it. An empty series gives a framed panel with its note.
 
-use crate::scene::{Anchor, Aspect, Item, Rect, Role, Scene, nice_step, significant};
+use crate::scene::{Anchor, Aspect, Item, Rect, Role, Scene, nice_step_at_least, significant};
 use crate::sweep::Series;
 
 /// Builds the plot of a series.
@@ -40,8 +40,9 @@ pub fn plot(series: &Series) -> Scene {
     let (w, h) = (x1 - x0, y1 - y0);
 
     // Grid, ticks and tick labels.
-    let xs = nice_step(w / 5.0);
-    let ys = nice_step(h / 4.0);
+    // At most about five labels per axis, so that they stay apart in a narrow panel.
+    let xs = nice_step_at_least(w / 5.0);
+    let ys = nice_step_at_least(h / 5.0);
     let mut t = (x0 / xs).ceil() * xs;
     while t <= x1 + 1e-9 * w {
         scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
