@@ -1,0 +1,1498 @@
+// Doublespar page: builds the controls, traces the scenario with the WebAssembly core on every
+// edit, draws the six views and writes the results as text. No framework and no network access:
+// the only import is the local bindings module (pkg/doublespar.js, built by scripts/build-web.sh).
+//
+// Data flow: controls -> scenario object -> session.updateJson(text) -> result -> results text,
+// canvases, aria-labels, URL fragment. A rejected scenario shows its message beside the control
+// named by the error's field path and leaves the last good picture and results in place.
+
+'use strict';
+
+const MAX_ELEMENTS = 64;
+const MAX_CRYSTALS = 12;
+const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
+const FRAGMENT_KEY = '#scenario=';
+const FRAGMENT_INTERVAL_MS = 250; // at most four address updates a second while dragging
+const MINUS = '\u2212';
+const NUMBER_RE = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+// Starting points besides the built-in demo (the same documents as examples/*.json).
+const PRESETS = {
+  recombiner: {
+    version: 1,
+    wavelength_nm: 1064,
+    beam: { diameter_mm: 0.5, polarization: { kind: 'linear', azimuth_deg: 30 } },
+    elements: [
+      { kind: 'crystal', material: 'yvo4', thickness_mm: 8, axis: { tilt_deg: 45, azimuth_deg: 0 } },
+      { kind: 'retarder', retardance_waves: 0.5, fast_axis_deg: 45, gap_mm: 2 },
+      { kind: 'crystal', material: 'yvo4', thickness_mm: 8, axis: { tilt_deg: 45, azimuth_deg: 0 }, gap_mm: 2 },
+    ],
+  },
+  'quarter-wave': {
+    version: 1,
+    wavelength_nm: 532,
+    interface_losses: 'uncoated',
+    beam: {
+      diameter_mm: 2,
+      incidence: { polar_deg: 8, azimuth_deg: 20 },
+      polarization: { kind: 'linear', azimuth_deg: 45 },
+    },
+    elements: [
+      { kind: 'crystal', material: 'quartz', thickness_mm: 0.0166, axis: { tilt_deg: 90, azimuth_deg: 0 } },
+    ],
+  },
+};
+
+// Defaults used when a new element is added or a loaded document leaves a field out.
+const ELEMENT_DEFAULTS = {
+  crystal: { material: 'calcite', thickness_mm: 10, tilt_deg: 45, azimuth_deg: 0, no: 1.6584, ne: 1.4864 },
+  retarder: { retardance_waves: 0.25, fast_axis_deg: 0 },
+  polarizer: { transmission_axis_deg: 0 },
+  rotator: { angle_deg: 45 },
+};
+const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator' };
+
+let core = null; // the bindings module
+let session = null;
+let materialList = [];
+let viewList = [];
+const darkQuery = window.matchMedia('(prefers-color-scheme: dark)');
+
+// ---------------------------------------------------------------------------------------------
+// Never silently dead: internal errors go to #panic.
+
+function showPanic(text) {
+  const el = document.getElementById('panic');
+  if (!el) return;
+  const line = String(text);
+  if (!el.hidden && el.textContent) {
+    if (el.textContent.includes(line) || el.childElementCount > 4) return;
+    const extra = document.createElement('span');
+    extra.className = 'panic-extra';
+    extra.textContent = line;
+    el.appendChild(extra);
+  } else {
+    el.textContent = line;
+  }
+  el.hidden = false;
+}
+
+window.addEventListener('error', (ev) => {
+  const what = ev.error && ev.error.message ? ev.error.message : ev.message;
+  showPanic(`The page hit an error and may not update any more: ${what}. Reload the page; the link keeps your set-up.`);
+});
+window.addEventListener('unhandledrejection', (ev) => {
+  const r = ev.reason;
+  const what = r && r.message ? r.message : String(r);
+  showPanic(`The page hit an error and may not update any more: ${what}. Reload the page; the link keeps your set-up.`);
+});
+
+// ---------------------------------------------------------------------------------------------
+// Small DOM helpers (textContent only; never innerHTML).
+
+let uidCounter = 0;
+function uid(prefix) {
+  uidCounter += 1;
+  return `${prefix}-${uidCounter}`;
+}
+
+function h(tag, attrs, ...children) {
+  const el = document.createElement(tag);
+  if (attrs) {
+    for (const [k, v] of Object.entries(attrs)) {
+      if (v === undefined || v === null || v === false) continue;
+      if (k === 'text') el.textContent = v;
+      else if (k === 'className') el.className = v;
+      else if (v === true) el.setAttribute(k, '');
+      else el.setAttribute(k, String(v));
+    }
+  }
+  for (const c of children) {
+    if (c === null || c === undefined || c === false) continue;
+    el.appendChild(typeof c === 'string' ? document.createTextNode(c) : c);
+  }
+  return el;
+}
+
+function setText(el, text) {
+  if (el.textContent !== text) el.textContent = text;
+}
+
+function setAttr(el, name, value) {
+  if (el.getAttribute(name) !== value) el.setAttribute(name, value);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Number handling.
+
+/** A finite number, or the raw string so that the core names the field in a type error. */
+function readNumber(raw) {
+  const t = raw.trim().replace(/\u2212/g, '-');
+  if (NUMBER_RE.test(t)) {
+    const v = Number(t);
+    if (Number.isFinite(v)) return v;
+  }
+  return raw;
+}
+
+/** How a loaded value is written into a text control. */
+function asInputText(v) {
+  if (v === undefined || v === null) return '';
+  if (typeof v === 'number') return String(v);
+  if (typeof v === 'string') return v;
+  try {
+    return JSON.stringify(v);
+  } catch {
+    return String(v);
+  }
+}
+
+function minus(s) {
+  return s.charAt(0) === '-' ? MINUS + s.slice(1) : s;
+}
+
+function plainNumber(v, digits) {
+  let s = v.toFixed(digits);
+  if (/^-0(?:\.0*)?$/.test(s)) s = s.slice(1);
+  return minus(s);
+}
+
+/** Fixed decimals; values below `floor` in magnitude are shown as 0. */
+function fixed(v, digits, floor = 0) {
+  if (v === null || v === undefined) return '—';
+  if (typeof v !== 'number') return String(v);
+  if (!Number.isFinite(v)) return String(v);
+  return plainNumber(Math.abs(v) < floor ? 0 : v, digits);
+}
+
+/** Significant digits with plain notation in the usual range and a×10ⁿ outside it. */
+function significant(v, n) {
+  if (v === null || v === undefined) return '—';
+  if (typeof v !== 'number' || !Number.isFinite(v)) return String(v);
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 1e-4 && a < 1e7) {
+    const digits = Math.max(0, n - 1 - Math.floor(Math.log10(a)));
+    return plainNumber(v, Math.min(digits, 12));
+  }
+  const [m, e] = v.toExponential(n - 1).split('e');
+  return `${minus(m)}×10${superscript(e)}`;
+}
+
+const SUPERSCRIPTS = { '-': '⁻', '+': '', 0: '⁰', 1: '¹', 2: '²', 3: '³', 4: '⁴', 5: '⁵', 6: '⁶', 7: '⁷', 8: '⁸', 9: '⁹' };
+function superscript(s) {
+  return [...s].map((c) => SUPERSCRIPTS[c] ?? c).join('');
+}
+
+const fmt = {
+  index: (v) => fixed(v, 6),
+  deg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)}°`),
+  ellipseDeg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 2, 5e-13)}°`),
+  mm: (v) => {
+    if (v === null || v === undefined) return '—';
+    if (Math.abs(v) < 1e-9) return '0 mm';
+    if (Math.abs(v) >= 1e-3) return `${fixed(v, 4)} mm`;
+    return `${significant(v, 3)} mm`;
+  },
+  power: (v) => {
+    if (v === null || v === undefined) return '—';
+    if (Math.abs(v) < 1e-15) return '0';
+    if (Math.abs(v) >= 1e-3) return fixed(v, 4);
+    return significant(v, 3);
+  },
+  rad: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} rad`),
+  waves: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} waves`),
+  dop: (v) => fixed(v, 4, 5e-13),
+  text: (v) => (v === null || v === undefined ? '—' : String(v)),
+  labels: (v) => (Array.isArray(v) ? v.map((x) => x || '(no crystal)').join(' + ') : String(v)),
+};
+
+// ---------------------------------------------------------------------------------------------
+// Controls. Every control carries data-field (its contract path); every field has an error
+// element with data-error-for (the same path) beside it.
+
+/** Fields whose path depends on where they sit (stack cards), renamed on reorder. */
+class Field {
+  constructor(key, { label, unit, slider, hint, kind = 'number', options, wide = false }) {
+    this.key = key; // path relative to its owner
+    this.kind = kind;
+    const id = uid('f');
+    this.input = null;
+    this.range = null;
+    this.unitEl = null;
+    this.labelEl = h('label', { for: id, text: label });
+    this.error = h('p', { className: 'field-error', id: `${id}-err`, hidden: true, 'aria-live': 'polite' });
+    const control = h('div', { className: 'control' });
+    if (kind === 'select') {
+      this.input = h('select', { id, 'aria-describedby': `${id}-err` });
+      for (const [value, text] of options) this.input.appendChild(h('option', { value, text }));
+      control.appendChild(this.input);
+    } else {
+      this.input = h('input', {
+        id,
+        type: 'text',
+        className: 'num',
+        inputmode: 'decimal',
+        autocomplete: 'off',
+        spellcheck: 'false',
+        'aria-describedby': `${id}-err`,
+      });
+      control.appendChild(this.input);
+      if (unit) {
+        this.unitEl = h('span', { className: 'unit', text: unit, 'aria-hidden': 'true' });
+        control.appendChild(this.unitEl);
+        this.input.setAttribute('aria-label', `${label} (${unitWord(unit)})`);
+      }
+    }
+    this.row = h('div', { className: `field${slider ? ' has-slider' : ''}${wide ? ' wide' : ''}` }, this.labelEl, control);
+    if (slider) {
+      const rid = `${id}-range`;
+      this.rangeLabel = h('label', { for: rid, className: 'visually-hidden', text: `${label} slider` });
+      this.range = h('input', {
+        id: rid,
+        type: 'range',
+        min: slider.min,
+        max: slider.max,
+        step: slider.step ?? 0.1,
+        'aria-describedby': `${id}-err`,
+      });
+      this.row.appendChild(h('div', { className: 'slider' }, this.rangeLabel, this.range));
+      this.input.range = this.range;
+      this.range.num = this.input;
+    }
+    if (hint) this.row.appendChild(h('p', { className: 'hint', text: hint }));
+    this.row.appendChild(this.error);
+    this.label = label;
+  }
+
+  setPath(path, labelPrefix) {
+    setAttr(this.input, 'data-field', path);
+    if (this.range) setAttr(this.range, 'data-field', path);
+    setAttr(this.error, 'data-error-for', path);
+    if (labelPrefix !== undefined) {
+      const full = `${this.label}, ${labelPrefix}`;
+      if (this.unitEl) setAttr(this.input, 'aria-label', `${full} (${unitWord(this.unitEl.textContent)})`);
+      else setAttr(this.input, 'aria-label', full);
+      if (this.range) setAttr(this.range, 'aria-label', `${full}, slider`);
+    }
+  }
+
+  get value() {
+    return this.kind === 'select' ? this.input.value : readNumber(this.input.value);
+  }
+
+  set(v) {
+    if (this.kind === 'select') {
+      const text = asInputText(v);
+      for (const o of this.input.querySelectorAll('option[data-extra]')) {
+        if (o.value !== text) o.remove();
+      }
+      if (![...this.input.options].some((o) => o.value === text)) {
+        // Keep a value the list does not know, so that the core can name it.
+        this.input.appendChild(h('option', { value: text, text: `${text} (unknown)`, 'data-extra': 'true' }));
+      }
+      if (this.input.value !== text) this.input.value = text;
+    } else {
+      const text = asInputText(v);
+      if (this.input.value !== text) {
+        this.input.value = text;
+        this.syncRange();
+      }
+    }
+  }
+
+  syncRange() {
+    if (!this.range) return;
+    const v = readNumber(this.input.value);
+    if (typeof v === 'number' && this.range.value !== String(v)) this.range.value = String(v);
+  }
+}
+
+function unitWord(unit) {
+  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves' }[unit] ?? unit;
+}
+
+const ANGLE = (min, max) => ({ min, max, step: 0.1 });
+
+// Top-level controls, keyed by their contract path.
+const top = {};
+
+function addTop(container, path, field) {
+  field.setPath(path);
+  top[path] = field;
+  container.appendChild(field.row);
+  return field;
+}
+
+function buildTopControls() {
+  const light = document.getElementById('light-fields');
+  addTop(light, 'wavelength_nm', new Field('wavelength_nm', { label: 'Wavelength', unit: 'nm' }));
+  addTop(light, 'outside_index', new Field('outside_index', { label: 'Outside index', unit: '', hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
+  addTop(light, 'interface_losses', new Field('interface_losses', {
+    label: 'Crystal faces',
+    kind: 'select',
+    options: [['ideal', 'ideal, no losses'], ['uncoated', 'uncoated, Fresnel']],
+  }));
+  addTop(light, 'beam.diameter_mm', new Field('beam.diameter_mm', { label: 'Beam diameter', unit: 'mm' }));
+
+  const inc = document.getElementById('incidence-fields');
+  inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam', hidden: true }));
+  inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.incidence', hidden: true }));
+  addTop(inc, 'beam.incidence.polar_deg', new Field('polar_deg', { label: 'Polar angle', unit: '°', slider: ANGLE(-89.9, 89.9) }));
+  addTop(inc, 'beam.incidence.azimuth_deg', new Field('azimuth_deg', { label: 'Azimuth', unit: '°', slider: ANGLE(-180, 180) }));
+
+  const pol = document.getElementById('polarization-fields');
+  pol.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization', hidden: true }));
+  addTop(pol, 'beam.polarization.kind', new Field('kind', {
+    label: 'Kind',
+    kind: 'select',
+    options: [
+      ['linear', 'linear'],
+      ['circular', 'circular'],
+      ['elliptical', 'elliptical'],
+      ['jones', 'Jones vector'],
+      ['stokes', 'Stokes vector'],
+      ['unpolarized', 'unpolarized'],
+    ],
+  }));
+  const azimuth = addTop(pol, 'beam.polarization.azimuth_deg', new Field('azimuth_deg', {
+    label: 'Azimuth', unit: '°', slider: ANGLE(-180, 180),
+  }));
+  const ellipticity = addTop(pol, 'beam.polarization.ellipticity_deg', new Field('ellipticity_deg', {
+    label: 'Ellipticity angle', unit: '°', slider: ANGLE(-45, 45), hint: 'χ with tan χ = ±b/a; positive is right-handed (S3 > 0).',
+  }));
+  const handed = addTop(pol, 'beam.polarization.handedness', new Field('handedness', {
+    label: 'Handedness',
+    kind: 'select',
+    options: [['right', 'right-handed (S3 > 0)'], ['left', 'left-handed (S3 < 0)']],
+  }));
+
+  const jones = h('div', { className: 'subgroup', role: 'group', 'aria-labelledby': 'jones-title' },
+    h('p', { className: 'subgroup-title', id: 'jones-title', text: 'Jones vector on (e1, e2)' }));
+  const jgrid = h('div', { className: 'pair-grid' });
+  jones.appendChild(jgrid);
+  const jLabels = [['Re E1', 0, 0], ['Im E1', 0, 1], ['Re E2', 1, 0], ['Im E2', 1, 1]];
+  for (const [label, a, b] of jLabels) {
+    addTop(jgrid, `beam.polarization.jones[${a}][${b}]`, new Field('', { label }));
+  }
+  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[0]', hidden: true }));
+  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[1]', hidden: true }));
+  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones', hidden: true }));
+  jones.appendChild(h('p', { className: 'hint', text: 'Scaled to unit power; e1 and e2 are x̂ and ŷ at normal incidence.' }));
+  pol.appendChild(jones);
+
+  const stokes = h('div', { className: 'subgroup', role: 'group', 'aria-labelledby': 'stokes-title' },
+    h('p', { className: 'subgroup-title', id: 'stokes-title', text: 'Stokes vector' }));
+  const sgrid = h('div', { className: 'pair-grid' });
+  stokes.appendChild(sgrid);
+  for (let i = 0; i < 4; i += 1) {
+    addTop(sgrid, `beam.polarization.stokes[${i}]`, new Field('', { label: `S${i}` }));
+  }
+  stokes.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.stokes', hidden: true }));
+  stokes.appendChild(h('p', { className: 'hint', text: 'Partially polarized light is allowed: √(S1² + S2² + S3²) ≤ S0. Scaled to S0 = 1.' }));
+  pol.appendChild(stokes);
+
+  const unpolarizedNote = h('p', { className: 'hint', text: 'Unpolarized light: no further settings.' });
+  pol.appendChild(unpolarizedNote);
+
+  polarizationParts = {
+    linear: [azimuth.row],
+    circular: [handed.row],
+    elliptical: [azimuth.row, ellipticity.row],
+    jones: [jones],
+    stokes: [stokes],
+    unpolarized: [unpolarizedNote],
+  };
+  polarizationAll = [azimuth.row, ellipticity.row, handed.row, jones, stokes, unpolarizedNote];
+
+  // Values for the kinds not shown, so that switching kind starts from something sensible.
+  azimuth.set(45);
+  ellipticity.set(20);
+  handed.set('right');
+  top['beam.polarization.jones[0][0]'].set(1);
+  top['beam.polarization.jones[0][1]'].set(0);
+  top['beam.polarization.jones[1][0]'].set(0);
+  top['beam.polarization.jones[1][1]'].set(1);
+  top['beam.polarization.stokes[0]'].set(1);
+  top['beam.polarization.stokes[1]'].set(0.5);
+  top['beam.polarization.stokes[2]'].set(0);
+  top['beam.polarization.stokes[3]'].set(0);
+}
+
+let polarizationParts = {};
+let polarizationAll = [];
+
+function showPolarizationKind() {
+  const kind = top['beam.polarization.kind'].value;
+  const shown = new Set(polarizationParts[kind] ?? []);
+  for (const el of polarizationAll) {
+    if (el.hidden !== !shown.has(el)) el.hidden = !shown.has(el);
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// The stack: one card per element.
+
+const cards = [];
+const stackList = () => document.getElementById('stack-list');
+
+class Card {
+  constructor(kind) {
+    this.uid = uid('card');
+    this.el = h('li', { className: 'card', id: this.uid });
+    this.el.card = this;
+    const fs = h('fieldset', { className: 'card-body' });
+    this.legend = h('legend', { className: 'card-number' });
+    fs.appendChild(this.legend);
+
+    this.kindField = new Field('kind', {
+      label: 'Kind',
+      kind: 'select',
+      options: Object.entries(KIND_NAMES).map(([k, v]) => [k, v]),
+    });
+    this.kindField.row.classList.add('kind-row');
+    this.up = h('button', { type: 'button', className: 'icon', 'data-action': 'up', text: '↑' });
+    this.down = h('button', { type: 'button', className: 'icon', 'data-action': 'down', text: '↓' });
+    this.remove = h('button', { type: 'button', className: 'icon danger', 'data-action': 'remove', text: '✕' });
+    const head = h('div', { className: 'card-head' }, this.kindField.row, h('div', { className: 'card-tools' }, this.up, this.down, this.remove));
+    fs.appendChild(head);
+    this.cardError = h('p', { className: 'field-error', hidden: true });
+    fs.appendChild(this.cardError);
+
+    this.f = {};
+    const f = this.f;
+    f.gap = new Field('gap_mm', { label: 'Gap before', unit: 'mm' });
+
+    // Crystal.
+    const matOptions = materialList.map((m) => [m.key, m.name === m.key ? m.key : `${m.name}`]);
+    matOptions.push(['custom', 'custom indices']);
+    f.material = new Field('material', { label: 'Material', kind: 'select', options: matOptions });
+    this.materialNote = h('p', { className: 'hint material-note' });
+    f.material.row.insertBefore(this.materialNote, f.material.error);
+    f.no = new Field('no', { label: 'nₒ, ordinary index', unit: '' });
+    f.ne = new Field('ne', { label: 'nₑ, extraordinary index', unit: '' });
+    this.customBox = h('div', { className: 'subgroup custom-indices' }, f.no.row, f.ne.row);
+    f.thickness = new Field('thickness_mm', { label: 'Thickness', unit: 'mm' });
+    f.tilt = new Field('axis.tilt_deg', { label: 'Axis tilt', unit: '°', slider: ANGLE(0, 180), hint: 'Cut angle: optic axis from the plate normal +z.' });
+    f.azimuth = new Field('axis.azimuth_deg', { label: 'Axis azimuth', unit: '°', slider: ANGLE(-180, 180) });
+    this.axisError = h('p', { className: 'field-error', hidden: true });
+    const axisBox = h('div', { className: 'subgroup axis' }, h('p', { className: 'subgroup-title', text: 'Optic axis' }), f.tilt.row, f.azimuth.row, this.axisError);
+    this.groups = {
+      crystal: h('div', { className: 'kind-fields' }, f.material.row, this.customBox, f.thickness.row, axisBox),
+    };
+
+    // Retarder.
+    f.retardance = new Field('retardance_waves', { label: 'Retardance', unit: 'waves' });
+    f.fast = new Field('fast_axis_deg', { label: 'Fast axis', unit: '°', slider: ANGLE(-180, 180) });
+    this.groups.retarder = h('div', { className: 'kind-fields' }, f.retardance.row, f.fast.row);
+    // Polarizer.
+    f.transmission = new Field('transmission_axis_deg', { label: 'Transmission axis', unit: '°', slider: ANGLE(-180, 180) });
+    this.groups.polarizer = h('div', { className: 'kind-fields' }, f.transmission.row);
+    // Rotator.
+    f.angle = new Field('angle_deg', { label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
+    this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
+
+    fs.appendChild(f.gap.row);
+    for (const g of Object.values(this.groups)) fs.appendChild(g);
+    this.el.appendChild(fs);
+
+    const d = ELEMENT_DEFAULTS;
+    f.gap.set(0);
+    f.material.set(materialList.some((m) => m.key === d.crystal.material) ? d.crystal.material : (materialList[0]?.key ?? 'custom'));
+    f.no.set(d.crystal.no);
+    f.ne.set(d.crystal.ne);
+    f.thickness.set(d.crystal.thickness_mm);
+    f.tilt.set(d.crystal.tilt_deg);
+    f.azimuth.set(d.crystal.azimuth_deg);
+    f.retardance.set(d.retarder.retardance_waves);
+    f.fast.set(d.retarder.fast_axis_deg);
+    f.transmission.set(d.polarizer.transmission_axis_deg);
+    f.angle.set(d.rotator.angle_deg);
+    this.setKind(kind);
+  }
+
+  get kind() {
+    return this.kindField.value;
+  }
+
+  setKind(kind) {
+    this.kindField.set(kind);
+    for (const [k, g] of Object.entries(this.groups)) {
+      if (g.hidden !== (k !== this.kind)) g.hidden = k !== this.kind;
+    }
+    this.showMaterial();
+  }
+
+  showMaterial() {
+    const key = this.f.material.value;
+    if (this.customBox.hidden !== (key !== 'custom')) this.customBox.hidden = key !== 'custom';
+    const m = materialList.find((x) => x.key === key);
+    if (m) {
+      setText(this.materialNote, `${m.sign} uniaxial · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm`);
+      setAttr(this.materialNote, 'title', m.citation);
+      this.materialNote.hidden = false;
+    } else if (key === 'custom') {
+      setText(this.materialNote, 'Fixed indices, no dispersion.');
+      this.materialNote.removeAttribute('title');
+      this.materialNote.hidden = false;
+    } else {
+      this.materialNote.hidden = true;
+    }
+  }
+
+  setIndex(i, count) {
+    this.index = i;
+    const p = `elements[${i}]`;
+    const n = i + 1;
+    setText(this.legend, `Element ${n}`);
+    this.kindField.setPath(`${p}.kind`, `element ${n}`);
+    for (const field of Object.values(this.f)) field.setPath(`${p}.${field.key}`, `element ${n}`);
+    setAttr(this.cardError, 'data-error-for', p);
+    setAttr(this.axisError, 'data-error-for', `${p}.axis`);
+    setAttr(this.up, 'aria-label', `Move element ${n} up`);
+    setAttr(this.down, 'aria-label', `Move element ${n} down`);
+    setAttr(this.remove, 'aria-label', `Remove element ${n}`);
+    setAttr(this.up, 'title', `Move element ${n} up`);
+    setAttr(this.down, 'title', `Move element ${n} down`);
+    setAttr(this.remove, 'title', `Remove element ${n}`);
+    this.up.disabled = i === 0;
+    this.down.disabled = i === count - 1;
+  }
+
+  /** The element as a contract object, in the order the contract writes it. */
+  build() {
+    const f = this.f;
+    const kind = this.kind;
+    const o = { kind };
+    if (kind === 'crystal') {
+      if (f.material.value === 'custom') {
+        o.no = f.no.value;
+        o.ne = f.ne.value;
+      } else {
+        o.material = f.material.value;
+      }
+      o.thickness_mm = f.thickness.value;
+      o.axis = { tilt_deg: f.tilt.value, azimuth_deg: f.azimuth.value };
+    } else if (kind === 'retarder') {
+      o.retardance_waves = f.retardance.value;
+      o.fast_axis_deg = f.fast.value;
+    } else if (kind === 'polarizer') {
+      o.transmission_axis_deg = f.transmission.value;
+    } else if (kind === 'rotator') {
+      o.angle_deg = f.angle.value;
+    }
+    o.gap_mm = f.gap.value;
+    return o;
+  }
+
+  /** Loads an element object, tolerating anything (a bad value stays visible for its error). */
+  load(o) {
+    const obj = o && typeof o === 'object' && !Array.isArray(o) ? o : {};
+    const kind = Object.prototype.hasOwnProperty.call(KIND_NAMES, obj.kind) ? obj.kind : 'crystal';
+    const f = this.f;
+    const d = ELEMENT_DEFAULTS;
+    f.gap.set(obj.gap_mm ?? 0);
+    if (kind === 'crystal') {
+      if (obj.material !== undefined) {
+        f.material.set(obj.material);
+      } else if (obj.no !== undefined || obj.ne !== undefined) {
+        f.material.set('custom');
+        f.no.set(obj.no);
+        f.ne.set(obj.ne);
+      }
+      f.thickness.set(obj.thickness_mm);
+      const axis = obj.axis && typeof obj.axis === 'object' ? obj.axis : {};
+      f.tilt.set(axis.tilt_deg);
+      f.azimuth.set(axis.azimuth_deg ?? 0);
+    } else if (kind === 'retarder') {
+      f.retardance.set(obj.retardance_waves ?? d.retarder.retardance_waves);
+      f.fast.set(obj.fast_axis_deg ?? 0);
+    } else if (kind === 'polarizer') {
+      f.transmission.set(obj.transmission_axis_deg ?? 0);
+    } else if (kind === 'rotator') {
+      f.angle.set(obj.angle_deg);
+    }
+    this.setKind(kind);
+  }
+}
+
+function renumberCards() {
+  const n = cards.length;
+  cards.forEach((c, i) => c.setIndex(i, n));
+  const crystals = cards.filter((c) => c.kind === 'crystal').length;
+  for (const b of document.querySelectorAll('[data-add]')) {
+    b.disabled = n >= MAX_ELEMENTS || (b.dataset.add === 'crystal' && crystals >= MAX_CRYSTALS);
+  }
+}
+
+function addCard(kind, obj) {
+  const card = new Card(kind);
+  if (obj) card.load(obj);
+  cards.push(card);
+  stackList().appendChild(card.el);
+  return card;
+}
+
+/** Makes the cards match a list of element objects, reusing the cards already there. */
+function loadCards(list) {
+  const items = list.slice(0, MAX_ELEMENTS + 1);
+  while (cards.length > items.length) cards.pop().el.remove();
+  items.forEach((o, i) => {
+    if (i < cards.length) cards[i].load(o);
+    else addCard('crystal', o);
+  });
+  renumberCards();
+}
+
+function announce(text) {
+  const el = document.getElementById('stack-status');
+  if (el) el.textContent = text;
+}
+
+function onStackClick(ev) {
+  const btn = ev.target.closest('button[data-action]');
+  if (!btn) return;
+  const card = btn.closest('li.card')?.card;
+  if (!card) return;
+  const i = cards.indexOf(card);
+  const action = btn.dataset.action;
+  if (action === 'up' && i > 0) {
+    cards.splice(i, 1);
+    cards.splice(i - 1, 0, card);
+    stackList().insertBefore(card.el, cards[i].el);
+    renumberCards();
+    (card.up.disabled ? card.down : card.up).focus();
+    announce(`Element ${i + 1} moved up to position ${i}.`);
+  } else if (action === 'down' && i < cards.length - 1) {
+    cards.splice(i, 1);
+    cards.splice(i + 1, 0, card);
+    stackList().insertBefore(card.el, cards[i + 2]?.el ?? null);
+    renumberCards();
+    (card.down.disabled ? card.up : card.down).focus();
+    announce(`Element ${i + 1} moved down to position ${i + 2}.`);
+  } else if (action === 'remove') {
+    cards.splice(i, 1);
+    card.el.remove();
+    renumberCards();
+    const next = cards[i] ?? cards[i - 1];
+    if (next) next.remove.focus();
+    else document.querySelector('[data-add="crystal"]').focus();
+    announce(`Element ${i + 1} removed.`);
+  } else {
+    return;
+  }
+  schedule();
+}
+
+function onAddClick(ev) {
+  const btn = ev.target.closest('button[data-add]');
+  if (!btn || btn.disabled) return;
+  const card = addCard(btn.dataset.add);
+  renumberCards();
+  const first = card.el.querySelector('.kind-fields:not([hidden]) input, .kind-fields:not([hidden]) select') ?? card.kindField.input;
+  first.focus();
+  card.el.scrollIntoView({ block: 'nearest' });
+  announce(`Element ${cards.length} added: ${KIND_NAMES[btn.dataset.add]}.`);
+  schedule();
+}
+
+// ---------------------------------------------------------------------------------------------
+// Scenario <-> controls.
+
+function buildScenario() {
+  const v = (p) => top[p].value;
+  const kind = v('beam.polarization.kind');
+  let polarization;
+  switch (kind) {
+    case 'linear':
+      polarization = { kind, azimuth_deg: v('beam.polarization.azimuth_deg') };
+      break;
+    case 'circular':
+      polarization = { kind, handedness: v('beam.polarization.handedness') };
+      break;
+    case 'elliptical':
+      polarization = { kind, azimuth_deg: v('beam.polarization.azimuth_deg'), ellipticity_deg: v('beam.polarization.ellipticity_deg') };
+      break;
+    case 'jones':
+      polarization = {
+        kind,
+        jones: [
+          [v('beam.polarization.jones[0][0]'), v('beam.polarization.jones[0][1]')],
+          [v('beam.polarization.jones[1][0]'), v('beam.polarization.jones[1][1]')],
+        ],
+      };
+      break;
+    case 'stokes':
+      polarization = { kind, stokes: [0, 1, 2, 3].map((i) => v(`beam.polarization.stokes[${i}]`)) };
+      break;
+    default:
+      polarization = { kind };
+  }
+  return {
+    version: 1,
+    wavelength_nm: v('wavelength_nm'),
+    outside_index: v('outside_index'),
+    interface_losses: v('interface_losses'),
+    beam: {
+      diameter_mm: v('beam.diameter_mm'),
+      incidence: { polar_deg: v('beam.incidence.polar_deg'), azimuth_deg: v('beam.incidence.azimuth_deg') },
+      polarization,
+    },
+    elements: cards.map((c) => c.build()),
+  };
+}
+
+function member(o, k) {
+  return o && typeof o === 'object' && !Array.isArray(o) ? o[k] : undefined;
+}
+
+/** Writes a scenario object into the controls; missing fields take the contract's defaults. */
+function loadControls(s) {
+  const set = (p, v) => top[p].set(v);
+  set('wavelength_nm', member(s, 'wavelength_nm') ?? 632.8);
+  set('outside_index', member(s, 'outside_index') ?? 1);
+  set('interface_losses', member(s, 'interface_losses') ?? 'ideal');
+  const beam = member(s, 'beam');
+  set('beam.diameter_mm', member(beam, 'diameter_mm') ?? 1);
+  const inc = member(beam, 'incidence');
+  set('beam.incidence.polar_deg', member(inc, 'polar_deg') ?? 0);
+  set('beam.incidence.azimuth_deg', member(inc, 'azimuth_deg') ?? 0);
+  const pol = member(beam, 'polarization') ?? { kind: 'linear', azimuth_deg: 45 };
+  const kind = member(pol, 'kind') ?? 'linear';
+  set('beam.polarization.kind', kind);
+  if (kind === 'linear' || kind === 'elliptical') set('beam.polarization.azimuth_deg', member(pol, 'azimuth_deg') ?? 0);
+  if (kind === 'elliptical') set('beam.polarization.ellipticity_deg', member(pol, 'ellipticity_deg'));
+  if (kind === 'circular') set('beam.polarization.handedness', member(pol, 'handedness'));
+  if (kind === 'jones') {
+    const j = member(pol, 'jones');
+    for (const a of [0, 1]) {
+      for (const b of [0, 1]) {
+        const row = Array.isArray(j) ? j[a] : undefined;
+        set(`beam.polarization.jones[${a}][${b}]`, Array.isArray(row) ? row[b] : undefined);
+      }
+    }
+  }
+  if (kind === 'stokes') {
+    const st = member(pol, 'stokes');
+    for (let i = 0; i < 4; i += 1) set(`beam.polarization.stokes[${i}]`, Array.isArray(st) ? st[i] : undefined);
+  }
+  showPolarizationKind();
+  const els = member(s, 'elements');
+  loadCards(Array.isArray(els) ? els : []);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Errors beside their controls.
+
+function parentPath(p) {
+  if (!p) return null;
+  const m = /^(.*?)(?:\.[^.[\]]*|\[\d+\])$/.exec(p);
+  return m ? m[1] : '';
+}
+
+function toFieldError(e) {
+  if (e && typeof e === 'object' && !(e instanceof Error) && typeof e.message === 'string') {
+    return { field: typeof e.field === 'string' ? e.field : '', message: e.message };
+  }
+  return null;
+}
+
+let errorShown = false;
+
+function visibleErrorTarget(path) {
+  for (let p = path.replace(/\.$/, ''); p !== null; p = parentPath(p)) {
+    for (const el of document.querySelectorAll(`[data-error-for="${CSS.escape(p)}"]`)) {
+      if (el.id === 'scenario-error') continue;
+      if (!el.parentElement || el.parentElement.closest('[hidden]')) continue;
+      return el;
+    }
+  }
+  return null;
+}
+
+function showFieldError(err) {
+  clearErrors();
+  errorShown = true;
+  const field = err.field;
+  const target = visibleErrorTarget(field);
+  const general = document.getElementById('scenario-error');
+  if (target) {
+    target.textContent = err.message;
+    target.hidden = false;
+  } else {
+    general.textContent = `${field ? `${field}: ` : ''}${err.message}`;
+    general.hidden = false;
+  }
+  const stale = document.getElementById('stale-note');
+  stale.textContent = `Not updated: ${field ? `the input at ${field} needs attention` : 'the set-up needs attention'}. The views and results show the last set-up that traced.`;
+  stale.hidden = false;
+  let marked = [...document.querySelectorAll(`[data-field="${CSS.escape(field)}"]`)];
+  if (marked.length === 0 && /(jones|stokes)(\[\d\])?$/.test(field)) {
+    marked = [...document.querySelectorAll('[data-field]')].filter((el) => el.dataset.field.startsWith(`${field}[`));
+  }
+  for (const el of marked) el.setAttribute('aria-invalid', 'true');
+  document.body.classList.add('has-error');
+}
+
+function clearErrors() {
+  if (!errorShown) return;
+  errorShown = false;
+  for (const el of document.querySelectorAll('[data-error-for]')) {
+    if (!el.hidden) {
+      el.hidden = true;
+      el.textContent = '';
+    }
+  }
+  for (const el of document.querySelectorAll('[aria-invalid="true"]')) el.removeAttribute('aria-invalid');
+  const stale = document.getElementById('stale-note');
+  stale.hidden = true;
+  stale.textContent = '';
+  document.body.classList.remove('has-error');
+}
+
+// ---------------------------------------------------------------------------------------------
+// Results as text: data-quantity = path into the result, data-value = String(value).
+
+let resultShape = null;
+let cells = [];
+const showAll = { rays: false, spots: false };
+
+function cell(tag, path, get, format, attrs) {
+  const el = h(tag, { 'data-quantity': path, ...(attrs ?? {}) });
+  cells.push({ el, get, format, last: undefined });
+  return el;
+}
+
+function shapeOf(r) {
+  const parts = [
+    r.elements.map((e) => e.kind).join(','),
+    r.rays.map((x) => x.label).join(','),
+    r.spots.length,
+    showAll.rays,
+    showAll.spots,
+  ];
+  return parts.join('|');
+}
+
+/** A last table row saying how many rows are hidden, with a button to show them all. */
+function moreRow(which, shown, total, colspan) {
+  const noun = which === 'rays' ? 'rays' : 'spots';
+  const btn = h('button', {
+    type: 'button',
+    className: 'show-all',
+    'data-show-all': which,
+    text: showAll[which] ? `Show the first ${shown} only` : `Show all ${total} ${noun}`,
+  });
+  const note = showAll[which] ? `All ${total} ${noun} shown. ` : `${shown} of ${total} ${noun} shown. `;
+  return h('tr', { className: 'more-row' }, h('td', { colspan, className: 'empty' }, note, btn));
+}
+
+function buildResults(r) {
+  cells = [];
+  const elBox = document.getElementById('element-results');
+  const frag = document.createDocumentFragment();
+  r.elements.forEach((e, i) => {
+    const p = `elements[${i}]`;
+    const card = h('article', { className: `result-card result-${e.kind}` });
+    const title = h('h4', {}, h('span', { className: 'result-index', text: `${i + 1}` }), ' ');
+    const rows = h('dl', { className: 'quantities' });
+    const row = (label, path, get, format) => {
+      rows.appendChild(h('div', { className: 'q' }, h('dt', { text: label }), cell('dd', path, get, format)));
+    };
+    if (e.kind === 'crystal') {
+      title.appendChild(cell('span', `${p}.material`, (x) => x.elements[i].material, (v) => (v === 'custom' ? 'crystal, custom indices' : `${materialName(v)} crystal`)));
+      row('nₒ', `${p}.no`, (x) => x.elements[i].no, fmt.index);
+      row('nₑ', `${p}.ne`, (x) => x.elements[i].ne, fmt.index);
+      row('o-wave index', `${p}.o.index`, (x) => x.elements[i].o.index, fmt.index);
+      row('e-wave index', `${p}.e.index`, (x) => x.elements[i].e.index, fmt.index);
+      row('o walk-off', `${p}.o.walkoff_deg`, (x) => x.elements[i].o.walkoff_deg, fmt.deg);
+      row('e walk-off', `${p}.e.walkoff_deg`, (x) => x.elements[i].e.walkoff_deg, fmt.deg);
+      row('o/e separation', `${p}.separation_mm`, (x) => x.elements[i].separation_mm, fmt.mm);
+      row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
+      row('retardance', `${p}.retardance_waves`, (x) => x.elements[i].retardance_waves, fmt.waves);
+      row('reflected power', `${p}.reflected_power`, (x) => x.elements[i].reflected_power, fmt.power);
+      row('largest walk-off', `${p}.max_walkoff_deg`, (x) => x.elements[i].max_walkoff_deg, fmt.deg);
+      row('… at a cut of', `${p}.max_walkoff_cut_deg`, (x) => x.elements[i].max_walkoff_cut_deg, fmt.deg);
+      row('o mode', `${p}.o.status`, (x) => x.elements[i].o.status, fmt.text);
+      row('e mode', `${p}.e.status`, (x) => x.elements[i].e.status, fmt.text);
+    } else if (e.kind === 'retarder') {
+      title.appendChild(document.createTextNode('retarder'));
+      row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+    } else if (e.kind === 'polarizer') {
+      title.appendChild(document.createTextNode('polarizer'));
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+      row('absorbed', `${p}.absorbed_power`, (x) => x.elements[i].absorbed_power, fmt.power);
+    } else if (e.kind === 'rotator') {
+      title.appendChild(document.createTextNode('rotator'));
+      row('rotation', `${p}.angle_deg`, (x) => x.elements[i].angle_deg, fmt.deg);
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+    }
+    card.insertBefore(title, null);
+    card.appendChild(rows);
+    frag.appendChild(card);
+  });
+  elBox.replaceChildren(frag);
+
+  const rayRows = document.createDocumentFragment();
+  const rayCount = showAll.rays ? r.rays.length : Math.min(r.rays.length, ROW_LIMIT);
+  r.rays.slice(0, rayCount).forEach((ray, k) => {
+    const p = `rays.${ray.label}`;
+    const tr = h('tr', {}, h('th', { scope: 'row', className: `ray-label${rayClass(ray.label)}`, text: ray.label || '(no crystal)' }));
+    tr.appendChild(cell('td', `${p}.power`, (x) => x.rays[k].power, fmt.power));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], fmt.mm));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], fmt.mm));
+    tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => x.rays[k].ellipse.azimuth_deg, fmt.ellipseDeg));
+    tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => x.rays[k].ellipse.ellipticity_deg, fmt.ellipseDeg));
+    tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => x.rays[k].ellipse.handedness, fmt.text, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => x.rays[k].degree_of_polarization, fmt.dop));
+    rayRows.appendChild(tr);
+  });
+  if (r.rays.length === 0) {
+    rayRows.appendChild(h('tr', {}, h('td', { colspan: 8, className: 'empty', text: 'No ray leaves the stack.' })));
+  } else if (r.rays.length > ROW_LIMIT) {
+    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, 8));
+  }
+  document.getElementById('ray-rows').replaceChildren(rayRows);
+
+  const spotRows = document.createDocumentFragment();
+  const spotCount = showAll.spots ? r.spots.length : Math.min(r.spots.length, ROW_LIMIT);
+  r.spots.slice(0, spotCount).forEach((spot, k) => {
+    const p = `spots[${k}]`;
+    const tr = h('tr', {}, h('th', { scope: 'row', text: `${k + 1}` }));
+    tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, fmt.labels, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], fmt.mm));
+    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], fmt.mm));
+    tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
+    tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => x.spots[k].ellipse.azimuth_deg, fmt.ellipseDeg));
+    tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => x.spots[k].ellipse.ellipticity_deg, fmt.ellipseDeg));
+    tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => x.spots[k].ellipse.handedness, fmt.text, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => x.spots[k].degree_of_polarization, fmt.dop));
+    spotRows.appendChild(tr);
+  });
+  if (r.spots.length === 0) {
+    spotRows.appendChild(h('tr', {}, h('td', { colspan: 9, className: 'empty', text: 'No spot: no light leaves the stack.' })));
+  } else if (r.spots.length > ROW_LIMIT) {
+    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 9));
+  }
+  document.getElementById('spot-rows').replaceChildren(spotRows);
+
+  const summary = document.getElementById('summary');
+  summary.replaceChildren(
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Total power out' }), cell('span', 'total_power', (x) => x.total_power, fmt.power, { className: 'summary-value' })),
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Output rays' }), h('span', { className: 'summary-value', text: String(r.rays.length) })),
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Spots' }), h('span', { className: 'summary-value', text: String(r.spots.length) })),
+  );
+}
+
+function rayClass(label) {
+  const last = label.charAt(label.length - 1);
+  return last === 'o' ? ' ray-o' : last === 'e' ? ' ray-e' : '';
+}
+
+function materialName(key) {
+  const m = materialList.find((x) => x.key === key);
+  return m ? m.name : key;
+}
+
+let lastWarnings = null;
+
+function renderResults(r) {
+  const shape = shapeOf(r);
+  if (shape !== resultShape) {
+    buildResults(r);
+    resultShape = shape;
+  }
+  for (const c of cells) {
+    const v = c.get(r);
+    const s = String(v);
+    if (s !== c.last) {
+      c.last = s;
+      c.el.setAttribute('data-value', s);
+      c.el.textContent = c.format(v);
+    }
+  }
+  const w = r.warnings.join('\n');
+  if (w !== lastWarnings) {
+    lastWarnings = w;
+    const list = document.getElementById('warning-list');
+    list.replaceChildren(...r.warnings.map((t) => h('li', { text: t })));
+    document.getElementById('no-warnings').hidden = r.warnings.length > 0;
+    document.getElementById('warnings').classList.toggle('has-warnings', r.warnings.length > 0);
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Views.
+
+const views = [];
+let lastResult = null;
+let lastScenario = null;
+
+function drawView(v) {
+  try {
+    session.draw(v.name, v.canvas, darkQuery.matches);
+    if (v.failed) {
+      v.failed = false;
+      viewErrors.delete(v.name);
+      showViewErrors();
+    }
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    v.failed = true;
+    viewErrors.set(v.name, fe.message);
+    showViewErrors();
+  }
+}
+
+const viewErrors = new Map();
+function showViewErrors() {
+  const el = document.getElementById('view-error');
+  const text = [...viewErrors].map(([k, m]) => `${k}: ${m}`).join(' · ');
+  el.textContent = text ? `Could not draw ${text}` : '';
+  el.hidden = !text;
+}
+
+/** Redraws every view synchronously. */
+function redraw() {
+  for (const v of views) drawView(v);
+  describeViews();
+}
+
+let dirtyViews = new Set();
+let resizeFrame = 0;
+function onResize(entries) {
+  for (const e of entries) {
+    const v = views.find((x) => x.box === e.target);
+    if (v) dirtyViews.add(v);
+  }
+  if (!resizeFrame) {
+    resizeFrame = requestAnimationFrame(() => {
+      resizeFrame = 0;
+      const todo = dirtyViews;
+      dirtyViews = new Set();
+      for (const v of todo) drawView(v);
+    });
+  }
+}
+
+function num(v, digits) {
+  return fixed(v, digits, 5e-13);
+}
+
+function lengthText(v) {
+  return fmt.mm(v);
+}
+
+function maxSpotDistance(spots) {
+  if (spots.length < 2) return 0;
+  let best = 0;
+  if (spots.length <= 64) {
+    for (let i = 0; i < spots.length; i += 1) {
+      for (let j = i + 1; j < spots.length; j += 1) {
+        const a = spots[i].position_mm;
+        const b = spots[j].position_mm;
+        best = Math.max(best, Math.hypot(a[0] - b[0], a[1] - b[1]));
+      }
+    }
+    return best;
+  }
+  let x0 = Infinity; let x1 = -Infinity; let y0 = Infinity; let y1 = -Infinity;
+  for (const s of spots) {
+    x0 = Math.min(x0, s.position_mm[0]); x1 = Math.max(x1, s.position_mm[0]);
+    y0 = Math.min(y0, s.position_mm[1]); y1 = Math.max(y1, s.position_mm[1]);
+  }
+  return Math.hypot(x1 - x0, y1 - y0);
+}
+
+function ellipseWords(e) {
+  if (e.handedness === 'unpolarized') return 'unpolarized';
+  if (e.handedness === 'linear') return `linear at ${num(e.azimuth_deg, 1)}°`;
+  if (Math.abs(Math.abs(e.ellipticity_deg) - 45) < 0.05) return `${e.handedness}-handed circular`;
+  return `${e.handedness}-handed elliptical, azimuth ${num(e.azimuth_deg, 1)}°, ellipticity ${num(e.ellipticity_deg, 1)}°`;
+}
+
+function listed(items, limit, describe) {
+  const shown = items.slice(0, limit).map(describe);
+  if (items.length > limit) shown.push(`and ${items.length - limit} more`);
+  return shown.join('; ');
+}
+
+function describeViews() {
+  const r = lastResult;
+  if (!r) return;
+  const crystals = [];
+  r.elements.forEach((e, i) => { if (e.kind === 'crystal') crystals.push(i); });
+  const texts = {};
+  const spots = r.spots;
+  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${s.rays.join(' + ')})`);
+
+  if (r.rays.length === 0) {
+    texts.side = 'Side view (x–z plane, light travelling along +z): no ray leaves the stack.';
+  } else if (crystals.length === 0) {
+    texts.side = `Side view (x–z plane, light travelling along +z): ${r.elements.length} ideal element${r.elements.length === 1 ? '' : 's'} and no crystal; the beam passes undivided.`;
+  } else if (crystals.length === 1) {
+    const c = r.elements[crystals[0]];
+    texts.side = c.separation_mm === null
+      ? `Side view (x–z plane, light travelling along +z): one ${materialName(c.material)} plate; one of its modes is evanescent, so the beam is not split.`
+      : `Side view (x–z plane, light travelling along +z): e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${materialName(c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
+  } else {
+    texts.side = `Side view (x–z plane, light travelling along +z): ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
+  }
+
+  texts.end = spots.length === 0
+    ? 'End view, looking back toward the source: no light leaves the stack.'
+    : `End view, looking back toward the source (x to the right, y up): ${spots.length} spot${spots.length === 1 ? '' : 's'}. ${listed(spots, 6, (s, k) => `${spotName(s, k)} at (${num(s.position_mm[0], 3)}, ${num(s.position_mm[1], 3)}) mm, power ${fmt.power(s.power)}, ${ellipseWords(s.ellipse)}`)}.`;
+
+  const norm = (st) => (st[0] > 0 ? [st[1] / st[0], st[2] / st[0], st[3] / st[0]] : [0, 0, 0]);
+  const triple = (st) => `(${norm(st).map((x) => num(x, 3)).join(', ')})`;
+  texts.poincare = `Poincaré sphere, (S1, S2, S3)/S0: input ${triple(r.input.stokes)}, ${ellipseWords(r.input.ellipse)}${spots.length ? `; ${listed(spots, 6, (s, k) => `${spotName(s, k)} ${triple(s.stokes)}`)}` : ''}.`;
+
+  if (crystals.length === 0) {
+    const none = 'no crystal in the stack, nothing to plot.';
+    texts['walkoff-tilt'] = `Walk-off against cut tilt: ${none}`;
+    texts['separation-wavelength'] = `Separation against wavelength: ${none}`;
+    texts['retardance-wavelength'] = `Retardance against wavelength: ${none}`;
+  } else {
+    const i = crystals[0];
+    const c = r.elements[i];
+    const which = `element ${i + 1} (${describeMaterial(c.material)})`;
+    const sc = lastScenario?.elements?.[i];
+    const tilt = sc?.axis?.tilt_deg;
+    const walk = c.e.walkoff_deg === null ? 'the e-mode is evanescent' : `e walk-off ${num(c.e.walkoff_deg, 3)}°`;
+    texts['walkoff-tilt'] = `Walk-off against cut tilt for ${which}: ${walk} at the present tilt${typeof tilt === 'number' ? ` of ${num(tilt, 2)}°` : ''}; at normal incidence the largest walk-off, ${num(c.max_walkoff_deg, 3)}°, comes at a cut of ${num(c.max_walkoff_cut_deg, 2)}°.`;
+    texts['separation-wavelength'] = `Separation against wavelength for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(r.wavelength_nm, 1)} nm.`;
+    texts['retardance-wavelength'] = `Retardance against wavelength for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(r.wavelength_nm, 1)} nm.`;
+  }
+  for (const v of views) {
+    if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
+  }
+  const plotNote = crystals.length === 0
+    ? 'No crystal in the stack: nothing to plot.'
+    : `Element ${crystals[0] + 1}, ${describeMaterial(r.elements[crystals[0]].material)}: the first crystal of the stack.`;
+  for (const el of document.querySelectorAll('.plot-caption')) setText(el, plotNote);
+}
+
+function describeMaterial(key) {
+  return key === 'custom' ? 'custom indices' : materialName(key);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Tracing.
+
+let framePending = false;
+let lastAttempt = null;
+let lastGoodText = null;
+
+function schedule() {
+  if (framePending) return;
+  framePending = true;
+  requestAnimationFrame(() => {
+    framePending = false;
+    commit();
+  });
+}
+
+function accept(result, text, scenarioObj, drawn = false) {
+  lastResult = result;
+  lastScenario = scenarioObj;
+  lastGoodText = text;
+  if (!drawn) for (const v of views) drawView(v);
+  clearErrors();
+  renderResults(result);
+  describeViews();
+}
+
+/** Traces what the controls say; on an error, shows it and keeps the last good state. */
+function commit() {
+  const scenario = buildScenario();
+  const text = JSON.stringify(scenario);
+  if (text === lastAttempt) return;
+  lastAttempt = text;
+  let result;
+  try {
+    result = session.updateJson(text);
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    showFieldError(fe);
+    return;
+  }
+  accept(result, text, scenario);
+  scheduleFragment();
+}
+
+/** Loads a scenario object into the controls and traces it: the result, or throws {field, message}. */
+function applyScenario(obj) {
+  return loadScenario(obj, true);
+}
+
+function loadScenario(obj, updateAddress) {
+  let text;
+  try {
+    text = JSON.stringify(obj);
+  } catch (e) {
+    throw { field: '', message: `not a scenario object: ${e.message}` };
+  }
+  if (typeof text !== 'string' || obj === null || typeof obj !== 'object' || Array.isArray(obj)) {
+    const err = { field: '', message: 'not a scenario object: expected a JSON object' };
+    showFieldError(err);
+    throw err;
+  }
+  let result;
+  try {
+    result = session.updateJson(text);
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    loadControls(obj);
+    lastAttempt = JSON.stringify(buildScenario());
+    showFieldError(fe);
+    throw fe;
+  }
+  const normal = JSON.parse(session.scenarioJson());
+  // Draw first, while the layout is still clean (the canvases read their size), then write the
+  // controls and the results.
+  lastResult = result;
+  lastScenario = normal;
+  for (const v of views) drawView(v);
+  loadControls(normal);
+  const scenario = buildScenario();
+  const built = JSON.stringify(scenario);
+  lastAttempt = built;
+  accept(result, built, scenario, true);
+  if (updateAddress) scheduleFragment();
+  return result;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The URL fragment and the link.
+
+let fragmentTimer = 0;
+let lastFragmentWrite = -Infinity;
+
+function linkFor(text) {
+  return `${location.origin}${location.pathname}${location.search}${FRAGMENT_KEY}${encodeURIComponent(text)}`;
+}
+
+function writeFragment() {
+  fragmentTimer = 0;
+  lastFragmentWrite = performance.now();
+  if (lastGoodText === null) return;
+  const hash = FRAGMENT_KEY + encodeURIComponent(lastGoodText);
+  if (location.hash !== hash) {
+    history.replaceState(history.state, '', `${location.pathname}${location.search}${hash}`);
+  }
+  const fe = document.getElementById('fragment-error');
+  if (!fe.hidden) {
+    fe.hidden = true;
+    fe.textContent = '';
+  }
+}
+
+/** Writes the fragment now, or (while edits come fast) once the interval has passed. */
+function scheduleFragment() {
+  if (fragmentTimer) return;
+  const wait = FRAGMENT_INTERVAL_MS - (performance.now() - lastFragmentWrite);
+  if (wait <= 0) writeFragment();
+  else fragmentTimer = setTimeout(writeFragment, wait);
+}
+
+function flushFragment() {
+  if (fragmentTimer) {
+    clearTimeout(fragmentTimer);
+    writeFragment();
+  }
+}
+
+/** Reads the fragment: null when there is none, else {text} or {error}. */
+function readFragment() {
+  const hash = location.hash;
+  if (!hash.startsWith(FRAGMENT_KEY)) return null;
+  try {
+    return { text: decodeURIComponent(hash.slice(FRAGMENT_KEY.length)) };
+  } catch {
+    return { error: 'its text is not valid URI encoding (the link may have been cut short or mangled)' };
+  }
+}
+
+function showFragmentError(text) {
+  const el = document.getElementById('fragment-error');
+  el.textContent = `The set-up in this link could not be loaded, so the demo is shown instead: ${text}`;
+  el.hidden = false;
+}
+
+function loadDemo() {
+  loadScenario(JSON.parse(core.demoScenario()), false);
+}
+
+/** Loads the scenario of the fragment, or the demo (with a visible message when it is bad). */
+function loadFromLocation() {
+  const frag = readFragment();
+  if (frag === null) {
+    loadDemo();
+    return;
+  }
+  if (frag.error) {
+    showFragmentError(frag.error);
+    loadDemo();
+    return;
+  }
+  let obj = null;
+  try {
+    obj = JSON.parse(frag.text);
+  } catch (e) {
+    obj = undefined;
+    showFragmentError(`not valid JSON (${e.message})`);
+  }
+  if (obj !== undefined) {
+    try {
+      session.updateJson(frag.text);
+      const el = document.getElementById('fragment-error');
+      el.hidden = true;
+      el.textContent = '';
+      loadScenario(obj, false);
+      return;
+    } catch (e) {
+      const fe = toFieldError(e);
+      if (!fe) throw e;
+      showFragmentError(fe.field ? `${fe.field}: ${fe.message}` : fe.message);
+    }
+  }
+  // The bad link stays in the address bar (and its message on screen) until the user edits.
+  loadDemo();
+}
+
+async function copyLink() {
+  flushFragment();
+  if (lastGoodText === null) return;
+  const url = linkFor(lastGoodText);
+  if (location.href !== url) history.replaceState(history.state, '', url);
+  const status = document.getElementById('copy-status');
+  const field = document.getElementById('link-text');
+  field.value = url;
+  const note = errorShown ? ' (the last set-up that traced; the current input has an error)' : '';
+  let copied = false;
+  if (navigator.clipboard && window.isSecureContext) {
+    try {
+      await Promise.race([
+        navigator.clipboard.writeText(url),
+        new Promise((_, reject) => { setTimeout(() => reject(new Error('timeout')), 1500); }),
+      ]);
+      copied = true;
+    } catch {
+      copied = false;
+    }
+  }
+  if (copied) {
+    status.textContent = `Link copied${note}.`;
+    return;
+  }
+  document.getElementById('link-row').hidden = false;
+  field.focus();
+  field.select();
+  try {
+    copied = document.execCommand('copy');
+  } catch {
+    copied = false;
+  }
+  status.textContent = copied ? `Link copied${note}.` : `Copy the selected link below${note}.`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Wiring.
+
+function onControlEvent(ev) {
+  const t = ev.target;
+  if (!(t instanceof HTMLElement) || !t.dataset.field) return;
+  if (t.type === 'range' && t.num) {
+    t.num.value = t.value;
+  } else if (t.classList.contains('num') && t.range) {
+    const v = readNumber(t.value);
+    if (typeof v === 'number') t.range.value = String(v);
+  }
+  const field = t.dataset.field;
+  if (field === 'beam.polarization.kind') showPolarizationKind();
+  const card = t.closest('li.card')?.card;
+  if (card) {
+    if (field.endsWith('.kind')) {
+      card.setKind(t.value);
+      renumberCards();
+    } else if (field.endsWith('.material')) {
+      card.showMaterial();
+    }
+  }
+  schedule();
+}
+
+function setupViews() {
+  const ro = new ResizeObserver(onResize);
+  for (const canvas of document.querySelectorAll('canvas[data-view]')) {
+    const name = canvas.dataset.view;
+    if (!viewList.includes(name)) continue;
+    const v = { name, canvas, box: canvas.parentElement, failed: false };
+    views.push(v);
+    ro.observe(v.box);
+  }
+  darkQuery.addEventListener('change', () => redraw());
+}
+
+async function main() {
+  const loading = document.getElementById('loading');
+  try {
+    core = await import('./pkg/doublespar.js');
+    await core.default();
+  } catch (e) {
+    const msg = `The optics core could not be loaded (${e && e.message ? e.message : e}). `
+      + 'The page needs www/pkg/doublespar.js and doublespar_bg.wasm, built by scripts/build-web.sh, '
+      + 'and a browser with WebAssembly.';
+    loading.textContent = 'The controls are not available because the optics core did not load (see the message above).';
+    loading.classList.add('field-error');
+    showPanic(msg);
+    for (const b of document.querySelectorAll('button, select')) b.disabled = true;
+    return;
+  }
+  session = new core.Session();
+  materialList = core.materials();
+  viewList = core.viewNames();
+
+  buildTopControls();
+  const status = h('p', { id: 'stack-status', className: 'visually-hidden', role: 'status', 'aria-live': 'polite' });
+  document.getElementById('stack').appendChild(status);
+
+  const form = document.getElementById('controls');
+  form.addEventListener('submit', (ev) => ev.preventDefault());
+  form.addEventListener('input', onControlEvent);
+  form.addEventListener('change', onControlEvent);
+  stackList().addEventListener('click', onStackClick);
+  document.querySelector('.add-row').addEventListener('click', onAddClick);
+  document.getElementById('copy-link').addEventListener('click', () => { copyLink(); });
+  document.getElementById('load-preset').addEventListener('click', () => {
+    const key = document.getElementById('preset').value;
+    const doc = key === 'demo' ? JSON.parse(core.demoScenario()) : structuredClone(PRESETS[key]);
+    applyScenario(doc);
+    flushFragment();
+  });
+  window.addEventListener('hashchange', () => {
+    if (lastGoodText !== null && location.hash === FRAGMENT_KEY + encodeURIComponent(lastGoodText)) return;
+    loadFromLocation();
+  });
+
+  document.getElementById('results').addEventListener('click', (ev) => {
+    const btn = ev.target.closest('button[data-show-all]');
+    if (!btn || !lastResult) return;
+    const which = btn.dataset.showAll;
+    showAll[which] = !showAll[which];
+    renderResults(lastResult);
+    document.querySelector(`button[data-show-all="${which}"]`)?.focus();
+  });
+
+  setupViews();
+  loadFromLocation();
+  loading.remove();
+  document.body.classList.add('ready');
+  window.doublespar = { session, redraw, applyScenario };
+}
+
+main();
