@@ -1,16 +1,36 @@
 #!/usr/bin/env bash
-# Runs every test of Doublespar: formatting, lints, unit, integration and property tests, and the
-# command line's golden outputs, and the independent numpy reference (which makes a Python venv
-# under target/ and installs numpy into it from the registry).
+# Runs every test of Doublespar: formatting and lints (native and wasm), the native unit,
+# integration, property and golden tests, the independent numpy reference, the wasm size budget,
+# the bindings in headless Chromium, and the page end to end. Installs what it needs on the way
+# (the wasm target and pinned wasm-bindgen CLI through scripts/build-web.sh, numpy in a venv under
+# target/, playwright-core under tests/e2e/node_modules); Chromium and its driver come from
+# Debian's packages (.ci/run installs them).
 set -euo pipefail
 cd "$(dirname "$0")/.."
+WASM_BUDGET=300000
 echo "== format"
 cargo fmt --all -- --check
-echo "== clippy"
+echo "== clippy (native)"
 cargo clippy --all-targets -- -D warnings
-echo "== tests"
+echo "== web build"
+scripts/build-web.sh
+echo "== clippy (wasm)"
+cargo clippy --lib --target wasm32-unknown-unknown -- -D warnings
+cargo clippy --lib --target wasm32-unknown-unknown --features design-worker -- -D warnings
+echo "== wasm size budget"
+SIZE=$(wc -c < www/pkg/doublespar_bg.wasm)
+if [ "$SIZE" -gt "$WASM_BUDGET" ]; then
+  echo "www/pkg/doublespar_bg.wasm is $SIZE bytes, over the budget of $WASM_BUDGET" >&2
+  exit 1
+fi
+echo "$SIZE bytes (budget $WASM_BUDGET)"
+echo "== native tests"
 cargo test --all-targets
 echo "== doc tests"
 cargo test --doc
 echo "== independent numpy reference"
 tests/reference/run.sh
+echo "== bindings in headless Chromium"
+CHROMEDRIVER="${CHROMEDRIVER:-/usr/bin/chromedriver}" cargo test --target wasm32-unknown-unknown --test wasm
+echo "== page end to end"
+tests/e2e/run.sh

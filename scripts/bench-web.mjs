@@ -1,0 +1,268 @@
+#!/usr/bin/env node
+// Benchmark of the page (a measurement, not a test): loads www/ from a local server in headless
+// Chromium, applies a three-crystal stack with eight output rays, and times in the page
+// N iterations of session.updateJson(json) + window.doublespar.redraw(): the recompute and a full
+// redraw of every view. Also the time to the first complete render, and the wasm's size.
+//
+// Usage: node scripts/bench-web.mjs [--iterations N] [--warmup N]   (scripts/bench-web.sh builds
+// the page first). Needs www/pkg (scripts/build-web.sh) and playwright-core in tests/e2e
+// (npm ci there).
+//
+// Budgets: median ≤ 4 ms (reported only, never asserted: it depends on the machine);
+// wasm ≤ 300 KB (300 000 bytes; the exit status is 1 when it is over).
+// Prints a readable summary, then one line of JSON.
+
+import fs from 'node:fs';
+import zlib from 'node:zlib';
+import path from 'node:path';
+import { startServer, launchBrowser, openPage, waitReady, WASM, ROOT } from '../tests/e2e/support.mjs';
+
+const BUDGET_MEDIAN_MS = 4;
+const BUDGET_WASM_BYTES = 300_000;
+
+const args = process.argv.slice(2);
+const opt = (name, dflt) => {
+  const i = args.indexOf(name);
+  return i >= 0 && args[i + 1] !== undefined ? Number(args[i + 1]) : dflt;
+};
+const N = Math.max(200, Math.floor(opt('--iterations', 300)));
+const WARMUP = Math.max(0, Math.floor(opt('--warmup', 20)));
+
+// Three crystals, each splitting every ray in two: 8 output rays. Oblique incidence out of the
+// plane of the first axis, elliptical input, so that no mode is empty.
+const SCENARIO = {
+  version: 1,
+  wavelength_nm: 632.8,
+  beam: {
+    diameter_mm: 1.0,
+    incidence: { polar_deg: 12, azimuth_deg: 20 },
+    polarization: { kind: 'elliptical', azimuth_deg: 30, ellipticity_deg: 10 },
+  },
+  elements: [
+    { kind: 'crystal', material: 'calcite', thickness_mm: 10, axis: { tilt_deg: 45, azimuth_deg: 0 } },
+    { kind: 'crystal', material: 'yvo4', thickness_mm: 3, axis: { tilt_deg: 45, azimuth_deg: 45 }, gap_mm: 2 },
+    { kind: 'crystal', material: 'quartz', thickness_mm: 2, axis: { tilt_deg: 90, azimuth_deg: 22.5 }, gap_mm: 2 },
+  ],
+};
+const JSON_TEXT = JSON.stringify(SCENARIO);
+
+function stats(xs) {
+  const s = [...xs].sort((a, b) => a - b);
+  const rank = (p) => s[Math.min(s.length - 1, Math.max(0, Math.ceil(p * s.length) - 1))];
+  return {
+    n: s.length,
+    median: s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2,
+    p90: rank(0.9),
+    mean: s.reduce((a, b) => a + b, 0) / s.length,
+    min: s[0],
+    max: s[s.length - 1],
+  };
+}
+
+const round = (x, d = 3) => (x === null || x === undefined ? x : Number(x.toFixed(d)));
+const roundStats = (st) => Object.fromEntries(Object.entries(st).map(([k, v]) => [k, k === 'n' ? v : round(v)]));
+
+/**
+ * Instrumentation for the first render, installed before any page script: every drawing call on
+ * a 2-D context stamps its canvas with performance.now() (milliseconds since navigation start).
+ * A poll after each task notes the first moment every canvas[data-view] has been drawn on, and
+ * the time of the last drawing call by then.
+ */
+function firstRenderProbe() {
+  const proto = CanvasRenderingContext2D.prototype;
+  const last = new WeakMap();
+  for (const name of ['fillRect', 'stroke', 'fill', 'fillText', 'strokeText', 'arc', 'lineTo']) {
+    const orig = proto[name];
+    if (typeof orig !== 'function') continue;
+    proto[name] = function (...a) {
+      last.set(this.canvas, performance.now());
+      return orig.apply(this, a);
+    };
+  }
+  window.__firstRender = null;
+  const poll = () => {
+    const cs = [...document.querySelectorAll('canvas[data-view]')];
+    // A canvas counts once it had more drawing calls than one background fill: look for a
+    // stamp, and let the task that drew finish (this runs in a later task).
+    if (cs.length > 0 && cs.every((c) => last.has(c))) {
+      window.__firstRender = { ms: Math.max(...cs.map((c) => last.get(c))), seenMs: performance.now(), views: cs.length };
+      return;
+    }
+    setTimeout(poll, 0);
+  };
+  setTimeout(poll, 0);
+}
+
+/** Counts pixels off the commonest colour on every view (to confirm the render was not blank). */
+const blankViews = (page) =>
+  page.$$eval('canvas[data-view]', (cs) =>
+    cs
+      .filter((c) => {
+        if (!c.width || !c.height) return true;
+        const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+        const counts = new Map();
+        for (let i = 0; i < d.length; i += 4) {
+          const k = ((d[i] << 24) | (d[i + 1] << 16) | (d[i + 2] << 8) | d[i + 3]) >>> 0;
+          counts.set(k, (counts.get(k) || 0) + 1);
+        }
+        const top = Math.max(...counts.values());
+        return c.width * c.height - top < Math.max(200, 0.002 * c.width * c.height);
+      })
+      .map((c) => c.dataset.view),
+  );
+
+async function main() {
+  if (!fs.existsSync(WASM)) {
+    console.error(`no ${path.relative(ROOT, WASM)}: run scripts/build-web.sh (or scripts/bench-web.sh)`);
+    process.exit(2);
+  }
+  const wasm = fs.readFileSync(WASM);
+  const wasmBytes = wasm.length;
+  const wasmGzip = zlib.gzipSync(wasm, { level: 9 }).length;
+
+  const server = await startServer();
+  const browser = await launchBrowser();
+  const problems = [];
+  let out;
+  try {
+    // 1. First render, on a fresh page with the probe.
+    const first = await openPage(browser, server.origin, { viewport: { width: 1280, height: 900 } });
+    await first.context.addInitScript(firstRenderProbe);
+    const t0 = Date.now();
+    await first.page.goto(`${server.origin}/`, { waitUntil: 'load' });
+    await first.page.waitForFunction(() => window.__firstRender !== null, null, { timeout: 30000 });
+    const wallToDrawn = Date.now() - t0;
+    const probe = await first.page.evaluate(() => window.__firstRender);
+    await waitReady(first.page);
+    const blankAtFirst = await blankViews(first.page);
+    if (blankAtFirst.length) problems.push(`blank views after the first render: ${blankAtFirst.join(', ')}`);
+    const nav = await first.page.evaluate(() => {
+      const e = performance.getEntriesByType('navigation')[0];
+      const marks = performance.getEntriesByType('mark').map((m) => ({ name: m.name, ms: m.startTime }));
+      const measures = performance.getEntriesByType('measure').map((m) => ({ name: m.name, ms: m.duration }));
+      return { domContentLoaded: e?.domContentLoadedEventEnd, load: e?.loadEventEnd, marks, measures };
+    });
+    problems.push(...collect(first.log, 'first-render page'));
+    await first.context.close();
+
+    // 2. The loop, on a fresh page without instrumentation.
+    const { context, page, log } = await openPage(browser, server.origin, { viewport: { width: 1280, height: 900 } });
+    await page.goto(`${server.origin}/`, { waitUntil: 'load' });
+    await waitReady(page);
+    const loop = await page.evaluate(
+      async ({ json, n, warmup }) => {
+        const ds = window.doublespar;
+        const applied = ds.applyScenario(JSON.parse(json));
+        if (applied && typeof applied.then === 'function') await applied;
+        const rays = ds.session.result().rays.length;
+        const views = [...document.querySelectorAll('canvas[data-view]')];
+        const once = async (flush) => {
+          const a = performance.now();
+          ds.session.updateJson(json);
+          const b = performance.now();
+          const p = ds.redraw();
+          if (p && typeof p.then === 'function') await p;
+          const c = performance.now();
+          // Canvas drawing is recorded and rasterized later; reading one pixel of every view
+          // forces the rasterization into the timed span.
+          if (flush) for (const v of views) v.getContext('2d').getImageData(0, 0, 1, 1);
+          const d = performance.now();
+          return [c - a, b - a, c - b, d - a];
+        };
+        const total = [];
+        const update = [];
+        const redraw = [];
+        const flushed = [];
+        for (let i = 0; i < warmup + n; i++) {
+          const [t, u, r] = await once(false);
+          if (i >= warmup) total.push(t), update.push(u), redraw.push(r);
+        }
+        for (let i = 0; i < warmup + n; i++) {
+          const [, , , f] = await once(true);
+          if (i >= warmup) flushed.push(f);
+        }
+        return {
+          rays,
+          views: views.map((v) => `${v.dataset.view} ${v.width}x${v.height}`),
+          total,
+          update,
+          redraw,
+          flushed,
+          dpr: window.devicePixelRatio,
+        };
+      },
+      { json: JSON_TEXT, n: N, warmup: WARMUP },
+    );
+    if (loop.rays !== 8) problems.push(`the bench scenario gave ${loop.rays} rays in the page, expected 8`);
+    const blankAfter = await blankViews(page);
+    if (blankAfter.length) problems.push(`blank views after the loop: ${blankAfter.join(', ')}`);
+    problems.push(...collect(log, 'loop page'));
+    await context.close();
+
+    const chromium = browser.version();
+    const total = stats(loop.total);
+    out = {
+      benchmark: 'doublespar-web',
+      chromium,
+      scenario: '3 crystals (calcite 10 mm, YVO4 3 mm axis az 45°, quartz 2 mm a-cut), 12° incidence, 8 rays',
+      iterations: N,
+      warmup: WARMUP,
+      viewport: '1280x900',
+      device_pixel_ratio: loop.dpr,
+      views: loop.views,
+      update_redraw_ms: roundStats(total),
+      update_ms: roundStats(stats(loop.update)),
+      redraw_ms: roundStats(stats(loop.redraw)),
+      update_redraw_flush_ms: roundStats(stats(loop.flushed)),
+      first_render_ms: round(probe.ms, 1),
+      first_render_wall_ms: wallToDrawn,
+      dom_content_loaded_ms: round(nav.domContentLoaded, 1),
+      load_ms: round(nav.load, 1),
+      page_marks: nav.marks,
+      page_measures: nav.measures,
+      wasm_bytes: wasmBytes,
+      wasm_gzip_bytes: wasmGzip,
+      budget: { median_ms: BUDGET_MEDIAN_MS, wasm_bytes: BUDGET_WASM_BYTES },
+      median_within_budget: total.median <= BUDGET_MEDIAN_MS,
+      wasm_within_budget: wasmBytes <= BUDGET_WASM_BYTES,
+      problems,
+    };
+  } finally {
+    await browser.close();
+    await server.close();
+  }
+
+  const s = out.update_redraw_ms;
+  const kb = (b) => `${(b / 1000).toFixed(1)} KB`;
+  console.log(`Doublespar web benchmark — Chromium ${out.chromium}, ${out.viewport} at dpr ${out.device_pixel_ratio}`);
+  console.log(`  scenario: ${out.scenario}; ${out.views.length} views (${out.views.join(', ')})`);
+  console.log(
+    `  updateJson + redraw, ${N} iterations after ${WARMUP} warm-up: median ${s.median} ms, p90 ${s.p90} ms, mean ${s.mean} ms (min ${s.min}, max ${s.max})` +
+      `  [budget median ≤ ${BUDGET_MEDIAN_MS} ms: ${out.median_within_budget ? 'within' : 'OVER (reported only)'}]`,
+  );
+  console.log(`    of which updateJson: median ${out.update_ms.median} ms; redraw: median ${out.redraw_ms.median} ms`);
+  console.log(`    with a raster flush of every view: median ${out.update_redraw_flush_ms.median} ms, p90 ${out.update_redraw_flush_ms.p90} ms`);
+  console.log(
+    `  first complete render: ${out.first_render_ms} ms after navigation start (last drawing call once every view was drawn; ${out.first_render_wall_ms} ms wall from page.goto)`,
+  );
+  console.log(
+    `  wasm: ${kb(wasmBytes)} (${wasmBytes} bytes), gzip -9 ${kb(wasmGzip)} (${wasmGzip} bytes)  [budget ≤ ${kb(BUDGET_WASM_BYTES)}: ${out.wasm_within_budget ? 'within' : 'OVER'}]`,
+  );
+  for (const p of problems) console.log(`  problem: ${p}`);
+  console.log(JSON.stringify(out));
+  if (!out.wasm_within_budget) process.exitCode = 1;
+  if (problems.length) process.exitCode = process.exitCode || 3;
+}
+
+function collect(log, where) {
+  return [
+    ...log.pageErrors.map((e) => `${where}: page error ${e}`),
+    ...log.consoleErrors.map((e) => `${where}: console error ${e}`),
+    ...log.foreign.map((u) => `${where}: request to another host ${u}`),
+  ];
+}
+
+main().catch((e) => {
+  console.error(e && e.stack ? e.stack : e);
+  process.exit(2);
+});
