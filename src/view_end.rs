@@ -86,14 +86,15 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         let _ = i;
     }
 
-    // Dimension between the two spots farthest apart.
+    // Dimension between the two spots farthest apart (they lie on the convex hull).
+    let hull = convex_hull(&result.spots.iter().map(|s| s.position_mm).collect::<Vec<_>>());
     let mut best = (0.0, 0, 0);
-    for i in 0..result.spots.len() {
-        for j in i + 1..result.spots.len() {
+    for (x, &i) in hull.iter().enumerate() {
+        for &j in &hull[x + 1..] {
             let (a, b) = (result.spots[i].position_mm, result.spots[j].position_mm);
             let d = (a[0] - b[0]).hypot(a[1] - b[1]);
             if d > best.0 {
-                best = (d, i, j);
+                best = (d, i.min(j), i.max(j));
             }
         }
     }
@@ -141,6 +142,38 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     }
     .padded(0.08, 0.08);
     scene
+}
+
+/// Indices of the points on the convex hull of `pts` (A. M. Andrew's monotone chain, Inf. Proc.
+/// Lett. 9, 216 (1979)); every point when there are three or fewer.
+pub fn convex_hull(pts: &[Point]) -> Vec<usize> {
+    let mut idx: Vec<usize> = (0..pts.len()).collect();
+    if idx.len() <= 3 {
+        return idx;
+    }
+    idx.sort_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
+    let cross = |o: usize, a: usize, b: usize| {
+        (pts[a][0] - pts[o][0]) * (pts[b][1] - pts[o][1]) - (pts[a][1] - pts[o][1]) * (pts[b][0] - pts[o][0])
+    };
+    let mut hull: Vec<usize> = Vec::new();
+    for pass in 0..2 {
+        let start = hull.len();
+        let order: Vec<usize> = if pass == 0 {
+            idx.clone()
+        } else {
+            idx.iter().rev().copied().collect()
+        };
+        for &p in &order {
+            while hull.len() >= start + 2 && cross(hull[hull.len() - 2], hull[hull.len() - 1], p) <= 0.0 {
+                hull.pop();
+            }
+            hull.push(p);
+        }
+        hull.pop();
+    }
+    hull.sort_unstable();
+    hull.dedup();
+    hull
 }
 
 /// Draws the polarization ellipse of Stokes vector `s` at `c`, its major semi-axis `a` long.
@@ -242,6 +275,33 @@ mod tests {
         let span = (points[1][0] - points[0][0]).hypot(points[1][1] - points[0][1]);
         assert!((span - 1.3554544373106694).abs() < 1e-12, "{span}");
         assert!(scene.texts().iter().any(|t| t.contains("P 0.5")));
+    }
+
+    #[test]
+    fn the_hull_holds_the_farthest_pair() {
+        // Cross-method: the farthest pair over the hull equals the brute-force farthest pair.
+        let mut rng = crate::statistics::Rng::new(11);
+        for n in [1usize, 2, 3, 5, 40, 300] {
+            let pts: Vec<Point> = (0..n).map(|_| [rng.normal(), 0.3 * rng.normal()]).collect();
+            let far = |idx: &[usize]| {
+                let mut best = 0.0f64;
+                for (x, &i) in idx.iter().enumerate() {
+                    for &j in &idx[x + 1..] {
+                        best = best.max((pts[i][0] - pts[j][0]).hypot(pts[i][1] - pts[j][1]));
+                    }
+                }
+                best
+            };
+            let all: Vec<usize> = (0..n).collect();
+            assert_eq!(far(&convex_hull(&pts)), far(&all), "{n} points");
+        }
+        // Collinear and repeated points.
+        let line: Vec<Point> = (0..10)
+            .map(|i| [i as f64, 2.0 * i as f64])
+            .chain([[0.0, 0.0]])
+            .collect();
+        let h = convex_hull(&line);
+        assert!(h.contains(&9) && (h.contains(&0) || h.contains(&10)), "{h:?}");
     }
 
     #[test]

@@ -186,6 +186,12 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
             if inside.is_some() {
                 last = letter;
             }
+            // Rays that agree on their first c letters share this segment (c = crystals crossed
+            // by its end): draw it once, for the ray whose remaining letters are all "o".
+            let crossed = spans.iter().filter(|(_, z1)| *z1 <= b[2] + 1e-12).count();
+            if letters.iter().skip(crossed).any(|&l| l != 'o') {
+                continue;
+            }
             let (role, dash) = mode_style(letter);
             scene.line(
                 vec![[a[2], a[0]], [b[2], b[0]]],
