@@ -15,33 +15,44 @@ fi
 if ! command -v wasm-opt >/dev/null 2>&1 && command -v apt-get >/dev/null 2>&1 && [ "$(id -u)" = 0 ]; then
   (apt-get install -y binaryen >/dev/null 2>&1 || (apt-get update >/dev/null && apt-get install -y binaryen >/dev/null)) || true
 fi
-# Built without reference types so that wasm-bindgen emits nothing Debian's wasm-opt 108 cannot
-# read (it predates table.fill); the flag is set here, not in .cargo/config.toml, so that the
-# browser tests keep the toolchain's defaults.
-CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="-C target-feature=-reference-types" \
-  cargo build --lib --target wasm32-unknown-unknown --release
-RAW=target/wasm32-unknown-unknown/release/doublespar.wasm
-WORK=target/web-build
-rm -rf "$WORK" && mkdir -p "$WORK" www/pkg
-# Features the optimizer must accept. The target-features section is stripped first: the crate is
-# built without reference types (above) so that wasm-bindgen emits nothing that
-# Debian's wasm-opt 108 cannot read (its section would otherwise tell wasm-bindgen that std uses them).
+# Features the optimizer must accept. The crate is built without reference types so that
+# wasm-bindgen emits nothing Debian's wasm-opt 108 cannot read (it predates table.fill), and the
+# target-features section is stripped before wasm-bindgen (it would otherwise tell wasm-bindgen
+# that std uses them). The flag is set here, not in .cargo/config.toml, so that the browser tests
+# keep the toolchain's defaults.
 FEATURES="--enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-mutable-globals --enable-multivalue"
-if command -v wasm-opt >/dev/null 2>&1; then
-  # shellcheck disable=SC2086
-  wasm-opt $FEATURES --strip-target-features -o "$WORK/doublespar.wasm" "$RAW"
-else
-  cp "$RAW" "$WORK/doublespar.wasm"
-fi
-wasm-bindgen --target web --no-typescript --out-dir "$WORK/pkg" "$WORK/doublespar.wasm"
-if command -v wasm-opt >/dev/null 2>&1; then
-  # shellcheck disable=SC2086
-  wasm-opt -Oz $FEATURES -o www/pkg/doublespar_bg.wasm "$WORK/pkg/doublespar_bg.wasm"
-else
-  echo "warning: wasm-opt not found; the wasm is not size-optimized" >&2
-  cp "$WORK/pkg/doublespar_bg.wasm" www/pkg/doublespar_bg.wasm
-fi
-cp "$WORK/pkg/doublespar.js" www/pkg/doublespar.js
-SIZE=$(wc -c < www/pkg/doublespar_bg.wasm)
-GZ=$(gzip -9c www/pkg/doublespar_bg.wasm | wc -c)
-echo "www/pkg/doublespar_bg.wasm: $SIZE bytes ($GZ bytes gzipped)"
+
+# build_module OUT_DIR CARGO_TARGET_DIR [cargo feature flags…]: one optimized module in www/OUT_DIR.
+build_module() {
+  local out="$1" tdir="$2"
+  shift 2
+  CARGO_TARGET_DIR="$tdir" CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="-C target-feature=-reference-types" \
+    cargo build --lib --target wasm32-unknown-unknown --release "$@"
+  local raw="$tdir/wasm32-unknown-unknown/release/doublespar.wasm"
+  local work="target/web-build/$out"
+  rm -rf "$work" && mkdir -p "$work" "www/$out"
+  if command -v wasm-opt >/dev/null 2>&1; then
+    # shellcheck disable=SC2086
+    wasm-opt $FEATURES --strip-target-features -o "$work/doublespar.wasm" "$raw"
+  else
+    cp "$raw" "$work/doublespar.wasm"
+  fi
+  wasm-bindgen --target web --no-typescript --out-dir "$work/pkg" "$work/doublespar.wasm"
+  if command -v wasm-opt >/dev/null 2>&1; then
+    # shellcheck disable=SC2086
+    wasm-opt -Oz $FEATURES -o "www/$out/doublespar_bg.wasm" "$work/pkg/doublespar_bg.wasm"
+  else
+    echo "warning: wasm-opt not found; the wasm is not size-optimized" >&2
+    cp "$work/pkg/doublespar_bg.wasm" "www/$out/doublespar_bg.wasm"
+  fi
+  cp "$work/pkg/doublespar.js" "www/$out/doublespar.js"
+  local size gz
+  size=$(wc -c < "www/$out/doublespar_bg.wasm")
+  gz=$(gzip -9c "www/$out/doublespar_bg.wasm" | wc -c)
+  echo "www/$out/doublespar_bg.wasm: $size bytes ($gz bytes gzipped)"
+}
+
+# The page's module, and the design worker's (the solvers and the Monte Carlo run, off the main
+# thread), each in its own target folder so that both stay cached.
+build_module pkg target
+build_module pkg-design target/design-wasm --features design-worker

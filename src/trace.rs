@@ -598,14 +598,18 @@ fn group_spots(
     // in a grid of cells `tol` wide, so only the 3 × 3 neighbouring cells are searched (linear
     // time for thousands of rays instead of quadratic).
     let cell = |p: &[f64; 2]| -> (i64, i64) { ((p[0] / tol).floor() as i64, (p[1] / tol).floor() as i64) };
-    let mut grid: std::collections::HashMap<(i64, i64), Vec<usize>> = std::collections::HashMap::new();
+    // The grid is a sorted list of (cell, group) rather than a hash map: as fast here, and far
+    // less code in the WebAssembly module.
+    let mut grid: Vec<((i64, i64), usize)> = Vec::new();
     let mut groups: Vec<Vec<usize>> = Vec::new();
     for (i, p) in paths.iter().enumerate() {
         let (cx, cy) = cell(&p.pos);
         let mut found: Option<usize> = None;
         for dx in -1..=1 {
             for dy in -1..=1 {
-                for &g in grid.get(&(cx + dx, cy + dy)).map_or(&[][..], |v| v.as_slice()) {
+                let key = (cx + dx, cy + dy);
+                let start = grid.partition_point(|e| e.0 < key);
+                for &(_, g) in grid[start..].iter().take_while(|e| e.0 == key) {
                     let q = &paths[groups[g][0]];
                     if (p.pos[0] - q.pos[0]).hypot(p.pos[1] - q.pos[1]) <= tol && found.is_none_or(|f| g < f) {
                         found = Some(g);
@@ -616,7 +620,9 @@ fn group_spots(
         match found {
             Some(g) => groups[g].push(i),
             None => {
-                grid.entry((cx, cy)).or_default().push(groups.len());
+                let key = (cx, cy);
+                let at = grid.partition_point(|e| e.0 <= key);
+                grid.insert(at, (key, groups.len()));
                 groups.push(vec![i]);
             }
         }

@@ -171,8 +171,6 @@ pub fn convex_hull(pts: &[Point]) -> Vec<usize> {
         }
         hull.pop();
     }
-    hull.sort_unstable();
-    hull.dedup();
     hull
 }
 
