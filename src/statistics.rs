@@ -7,7 +7,7 @@
 //! Percentiles use linear interpolation between order statistics (the "type 7" rule of
 //! R. J. Hyndman and Y. Fan, Am. Stat. 50, 361 (1996)), the default of common numerical tools.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// A seeded pseudo-random generator of uniform and normal deviates.
 #[derive(Debug, Clone)]
@@ -48,7 +48,7 @@ impl Rng {
 }
 
 /// A histogram with equal bins.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Histogram {
     /// Bin edges, one more than the counts.
     pub edges: Vec<f64>,
@@ -57,7 +57,7 @@ pub struct Histogram {
 }
 
 /// Mean, spread, percentiles and histogram of a sample.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Summary {
     /// Number of samples.
     pub n: usize,

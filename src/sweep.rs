@@ -12,7 +12,7 @@ use crate::material::Indices;
 use crate::plate::plate_optics;
 use crate::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
 use crate::wavelength::Wavelength;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use std::f64::consts::TAU;
 
 /// Wavelength range used for crystals with fixed custom indices, nm.
@@ -21,7 +21,7 @@ pub const CUSTOM_RANGE_NM: (f64, f64) = (400.0, 1600.0);
 pub const WAVELENGTH_POINTS: usize = 121;
 
 /// A sampled curve with its axes and the current operating point.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Series {
     /// What is plotted, e.g. "walk-off against cut tilt".
     pub title: String,

@@ -5,6 +5,7 @@
 //! value written beside it. An empty series gives a framed panel with its note.
 
 use crate::scene::{Anchor, Aspect, Item, Rect, Role, Scene, nice_step_at_least, significant};
+use crate::statistics::Summary;
 use crate::sweep::Series;
 
 /// Builds the plot of a series.
@@ -139,6 +140,99 @@ pub fn plot(series: &Series) -> Scene {
     scene
 }
 
+/// Builds a histogram of a Monte Carlo [`Summary`]: one bar per bin, with the nominal value,
+/// the mean and the 5th and 95th percentiles marked and written out.
+pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nominal: Option<f64>) -> Scene {
+    let mut scene = Scene::new(title, &format!("{} samples", summary.n), Aspect::Free);
+    let h = &summary.histogram;
+    let peak = h.counts.iter().copied().max().unwrap_or(0) as f64;
+    if h.counts.is_empty() || h.edges.len() != h.counts.len() + 1 || peak <= 0.0 {
+        scene.bounds = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 1.0,
+            y1: 1.0,
+        };
+        scene.text([0.5, 0.5], "no samples", 12.0, Anchor::Middle, Role::Caption);
+        return scene;
+    }
+    let (x0, x1) = (h.edges[0], h.edges[h.edges.len() - 1]);
+    let (x0, x1) = if x1 > x0 {
+        (x0, x1)
+    } else {
+        (x0 - 0.5 * x0.abs().max(1e-12), x1 + 0.5 * x1.abs().max(1e-12))
+    };
+    let (w, top) = (x1 - x0, peak * 1.15);
+    for (i, &c) in h.counts.iter().enumerate() {
+        let (a, b) = (h.edges[i], h.edges[i + 1]);
+        let (a, b) = if b > a { (a, b) } else { (x0, x1) };
+        scene.items.push(Item::Polygon {
+            points: vec![[a, 0.0], [b, 0.0], [b, c as f64], [a, c as f64]],
+            role: Role::Curve,
+            tag: format!("bin {i}"),
+        });
+    }
+    let xs = nice_step_at_least(w / 4.0);
+    let mut t = (x0 / xs).ceil() * xs;
+    while t <= x1 + 1e-9 * w {
+        scene.text(
+            [t, -0.06 * top],
+            significant_tick(t, xs),
+            10.0,
+            Anchor::Middle,
+            Role::Caption,
+        );
+        t += xs;
+    }
+    let mut marks: Vec<(f64, String, Role)> = vec![
+        (summary.p5, format!("p5 {}", significant(summary.p5, 5)), Role::Grid),
+        (summary.p95, format!("p95 {}", significant(summary.p95, 5)), Role::Grid),
+        (
+            summary.mean,
+            format!("mean {}", significant(summary.mean, 5)),
+            Role::Marker,
+        ),
+    ];
+    if let Some(n) = nominal {
+        marks.push((n, format!("nominal {}", significant(n, 5)), Role::Label));
+    }
+    for (k, (x, label, role)) in marks.iter().enumerate() {
+        scene.line(
+            vec![[*x, 0.0], [*x, top]],
+            *role,
+            vec![4.0, 3.0],
+            1.2,
+            format!("mark {label}"),
+        );
+        scene.text(
+            [*x, top * (1.0 - 0.07 * k as f64)],
+            label.clone(),
+            10.0,
+            Anchor::Start,
+            *role,
+        );
+    }
+    scene.items.push(Item::Polygon {
+        points: vec![[x0, 0.0], [x1, 0.0], [x1, top], [x0, top]],
+        role: Role::Frame,
+        tag: "frame".into(),
+    });
+    scene.text(
+        [0.5 * (x0 + x1), -0.16 * top],
+        format!("{quantity} ({unit}) · σ {}", significant(summary.std, 3)),
+        11.0,
+        Anchor::Middle,
+        Role::Label,
+    );
+    scene.bounds = Rect {
+        x0: x0 - 0.05 * w,
+        y0: -0.22 * top,
+        x1: x1 + 0.05 * w,
+        y1: top * 1.05,
+    };
+    scene
+}
+
 fn significant_tick(v: f64, step: f64) -> String {
     let decimals = if step >= 1.0 {
         0
@@ -173,6 +267,24 @@ mod tests {
         );
         let scene = plot(&separation_vs_wavelength(&sc, 0));
         assert!(scene.texts().iter().any(|t| t == &"wavelength (nm)"));
+    }
+
+    #[test]
+    fn histograms_hold_every_sample_and_mark_the_percentiles() {
+        let mut rng = crate::statistics::Rng::new(2);
+        let xs: Vec<f64> = (0..5000).map(|_| 2.0 + 0.01 * rng.normal()).collect();
+        let s = crate::statistics::summarize(&xs, 30);
+        let scene = histogram("Separation spread", "separation", "mm", &s, Some(2.0));
+        assert!(scene.is_finite());
+        let total: f64 = (0..30)
+            .map(|i| match scene.tagged(&format!("bin {i}")).next() {
+                Some(Item::Polygon { points, .. }) => points[2][1],
+                _ => panic!("bin {i}"),
+            })
+            .sum();
+        assert_eq!(total, 5000.0);
+        assert!(scene.texts().iter().any(|t| t.starts_with("p95 ")));
+        assert!(histogram("x", "y", "z", &crate::statistics::summarize(&[], 5), None).is_finite());
     }
 
     #[test]

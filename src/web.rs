@@ -11,9 +11,10 @@ use crate::error::Error;
 #[cfg(feature = "design-worker")]
 use crate::json_fields::Fields;
 use crate::scenario::Scenario;
+use crate::statistics as statistics_summary;
 use crate::svg::{self, Palette};
 use crate::trace::{TraceResult, trace};
-use crate::{canvas, material, views};
+use crate::{canvas, material, sweep, view_plot, views};
 #[cfg(feature = "design-worker")]
 use crate::{design, design_displacer, statistics};
 use serde::Serialize;
@@ -134,6 +135,45 @@ pub fn displacer_chunk(text: &str, chunk: usize) -> Result<Vec<f64>, JsValue> {
 #[wasm_bindgen]
 pub fn summarize(samples: &[f64], bins: usize) -> Result<JsValue, JsValue> {
     to_js(&statistics::summarize(samples, bins))
+}
+
+/// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
+/// points: [[x, y], …], current: [x, y] | null, note}`), for curves computed elsewhere (the design
+/// worker).
+///
+/// # Errors
+/// `{field: "series", message}` when the text is not such a series.
+#[wasm_bindgen(js_name = drawSeries)]
+pub fn draw_series(canvas: &HtmlCanvasElement, series_json: &str, dark: bool) -> Result<(), JsValue> {
+    let series: sweep::Series = serde_json::from_str(series_json)
+        .map_err(|e| js_error(Error::new("series", format!("not a data series: {e}"))))?;
+    let palette = if dark { Palette::dark() } else { Palette::light() };
+    canvas::draw(&view_plot::plot(&series), canvas, &palette)
+}
+
+/// Draws the histogram of a Monte Carlo summary given as JSON text (the `monte_carlo` object of
+/// a displacer design), with the nominal value marked when given.
+///
+/// # Errors
+/// `{field: "summary", message}` when the text is not such a summary.
+#[wasm_bindgen(js_name = drawHistogram)]
+pub fn draw_histogram(
+    canvas: &HtmlCanvasElement,
+    summary_json: &str,
+    title: &str,
+    quantity: &str,
+    unit: &str,
+    nominal: Option<f64>,
+    dark: bool,
+) -> Result<(), JsValue> {
+    let summary: statistics_summary::Summary = serde_json::from_str(summary_json)
+        .map_err(|e| js_error(Error::new("summary", format!("not a Monte Carlo summary: {e}"))))?;
+    let palette = if dark { Palette::dark() } else { Palette::light() };
+    canvas::draw(
+        &view_plot::histogram(title, quantity, unit, &summary, nominal),
+        canvas,
+        &palette,
+    )
 }
 
 /// A scenario and its trace, kept between edits.
