@@ -7,7 +7,10 @@
 //! Percentiles use linear interpolation between order statistics (the "type 7" rule of
 //! R. J. Hyndman and Y. Fan, Am. Stat. 50, 361 (1996)), the default of common numerical tools.
 
-use serde::{Deserialize, Serialize};
+use crate::error::Error;
+use crate::json_fields::{Fields, as_number, type_name};
+use serde::Serialize;
+use serde_json::Value;
 
 /// A seeded pseudo-random generator of uniform and normal deviates.
 #[derive(Debug, Clone)]
@@ -48,7 +51,7 @@ impl Rng {
 }
 
 /// A histogram with equal bins.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Histogram {
     /// Bin edges, one more than the counts.
     pub edges: Vec<f64>,
@@ -57,7 +60,7 @@ pub struct Histogram {
 }
 
 /// Mean, spread, percentiles and histogram of a sample.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Summary {
     /// Number of samples.
     pub n: usize,
@@ -75,6 +78,61 @@ pub struct Summary {
     pub max: f64,
     /// Histogram over [min, max].
     pub histogram: Histogram,
+}
+
+impl Summary {
+    /// Reads a summary written as JSON (the shape it serializes to), by hand to keep the page's
+    /// WebAssembly module small.
+    ///
+    /// # Errors
+    /// The path of the first offending field, under `summary`.
+    pub fn from_json(v: &Value) -> Result<Summary, Error> {
+        let mut f = Fields::new("summary", v)?;
+        let list = |path: &str, v: Option<&Value>| -> Result<Vec<f64>, Error> {
+            match v {
+                Some(Value::Array(items)) => items
+                    .iter()
+                    .enumerate()
+                    .map(|(i, x)| as_number(&format!("{path}[{i}]"), x))
+                    .collect(),
+                Some(other) => Err(Error::new(
+                    path,
+                    format!("must be a list of numbers, got {}", type_name(other)),
+                )),
+                None => Ok(Vec::new()),
+            }
+        };
+        let n = f.number_or("n", 0.0)?;
+        let (mean, std, p5, p95, min, max) = (
+            f.number_or("mean", 0.0)?,
+            f.number_or("std", 0.0)?,
+            f.number_or("p5", 0.0)?,
+            f.number_or("p95", 0.0)?,
+            f.number_or("min", 0.0)?,
+            f.number_or("max", 0.0)?,
+        );
+        let (edges, counts) = match f.get("histogram") {
+            None => (Vec::new(), Vec::new()),
+            Some(h) => {
+                let mut g = Fields::new("summary.histogram", h)?;
+                let edges = list("summary.histogram.edges", g.get("edges"))?;
+                let counts = list("summary.histogram.counts", g.get("counts"))?;
+                g.finish()?;
+                (edges, counts.iter().map(|c| c.max(0.0) as u64).collect())
+            }
+        };
+        f.finish()?;
+        Ok(Summary {
+            n: n.max(0.0) as usize,
+            mean,
+            std,
+            p5,
+            p95,
+            min,
+            max,
+            histogram: Histogram { edges, counts },
+        })
+    }
 }
 
 /// The `q`-quantile (0–1) of sorted data by linear interpolation (type 7).
@@ -164,6 +222,17 @@ mod tests {
             s.p95
         );
         assert_eq!(s.histogram.counts.iter().sum::<u64>(), 200_000);
+    }
+
+    #[test]
+    fn summaries_read_back_what_they_write() {
+        let s = summarize(&[1.0, 2.0, 2.5, 4.0], 3);
+        let v = serde_json::to_value(&s).unwrap();
+        assert_eq!(Summary::from_json(&v).unwrap(), s);
+        assert_eq!(
+            Summary::from_json(&serde_json::json!({"mean": "x"})).unwrap_err().field,
+            "summary.mean"
+        );
     }
 
     #[test]

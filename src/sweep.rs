@@ -8,11 +8,13 @@
 //! a mode is evanescent or the dispersion formula breaks down are left out.
 
 use crate::error::Error;
+use crate::json_fields::{Fields, number_list};
 use crate::material::Indices;
 use crate::plate::plate_optics;
 use crate::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
 use crate::wavelength::Wavelength;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
+use serde_json::Value;
 use std::f64::consts::TAU;
 
 /// Wavelength range used for crystals with fixed custom indices, nm.
@@ -21,7 +23,7 @@ pub const CUSTOM_RANGE_NM: (f64, f64) = (400.0, 1600.0);
 pub const WAVELENGTH_POINTS: usize = 121;
 
 /// A sampled curve with its axes and the current operating point.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Series {
     /// What is plotted, e.g. "walk-off against cut tilt".
     pub title: String,
@@ -39,6 +41,55 @@ pub struct Series {
     pub current: Option<[f64; 2]>,
     /// A remark for the reader (no dispersion, evanescent range, …).
     pub note: String,
+}
+
+impl Series {
+    /// Reads a series written as JSON (the shape it serializes to). Read by hand rather than
+    /// derived, which keeps the page's WebAssembly module small.
+    ///
+    /// # Errors
+    /// The path of the first offending field, under `series`.
+    pub fn from_json(v: &Value) -> Result<Series, Error> {
+        let mut f = Fields::new("series", v)?;
+        let text = |f: &mut Fields, name: &'static str| -> Result<String, Error> {
+            Ok(f.string(name)?.unwrap_or_default().to_string())
+        };
+        let (title, x_label, x_unit, y_label, y_unit, note) = (
+            text(&mut f, "title")?,
+            text(&mut f, "x_label")?,
+            text(&mut f, "x_unit")?,
+            text(&mut f, "y_label")?,
+            text(&mut f, "y_unit")?,
+            text(&mut f, "note")?,
+        );
+        let points = match f.get("points") {
+            Some(Value::Array(items)) => items
+                .iter()
+                .enumerate()
+                .map(|(i, p)| number_list(&format!("series.points[{i}]"), p, 2).map(|xy| [xy[0], xy[1]]))
+                .collect::<Result<Vec<_>, _>>()?,
+            None => Vec::new(),
+            Some(_) => return Err(Error::new("series.points", "must be a list of [x, y] pairs")),
+        };
+        let current = match f.get("current") {
+            None => None,
+            Some(c) => {
+                let xy = number_list("series.current", c, 2)?;
+                Some([xy[0], xy[1]])
+            }
+        };
+        f.finish()?;
+        Ok(Series {
+            title,
+            x_label,
+            x_unit,
+            y_label,
+            y_unit,
+            points,
+            current,
+            note,
+        })
+    }
 }
 
 struct Setting {
@@ -229,6 +280,15 @@ mod tests {
             .fold([0.0, 0.0], |a, p| if p[1] > a[1] { p } else { a });
         assert!((peak[0] - 42.0).abs() <= 1.0, "{peak:?}");
         assert!(w.points[0][1].abs() < 1e-9 && w.points[90][1].abs() < 1e-9);
+    }
+
+    #[test]
+    fn series_read_back_what_they_write() {
+        let sc = Scenario::from_json_str(include_str!("../examples/demo.json")).unwrap();
+        let s = separation_vs_wavelength(&sc, 0);
+        assert_eq!(Series::from_json(&serde_json::to_value(&s).unwrap()).unwrap(), s);
+        let bad = serde_json::json!({"points": [[1, 2], [3]]});
+        assert_eq!(Series::from_json(&bad).unwrap_err().field, "series.points[1]");
     }
 
     #[test]

@@ -145,8 +145,9 @@ pub fn summarize(samples: &[f64], bins: usize) -> Result<JsValue, JsValue> {
 /// `{field: "series", message}` when the text is not such a series.
 #[wasm_bindgen(js_name = drawSeries)]
 pub fn draw_series(canvas: &HtmlCanvasElement, series_json: &str, dark: bool) -> Result<(), JsValue> {
-    let series: sweep::Series = serde_json::from_str(series_json)
-        .map_err(|e| js_error(Error::new("series", format!("not a data series: {e}"))))?;
+    let value: serde_json::Value =
+        serde_json::from_str(series_json).map_err(|e| js_error(Error::new("series", format!("not JSON: {e}"))))?;
+    let series = sweep::Series::from_json(&value).map_err(js_error)?;
     let palette = if dark { Palette::dark() } else { Palette::light() };
     canvas::draw(&view_plot::plot(&series), canvas, &palette)
 }
@@ -166,8 +167,9 @@ pub fn draw_histogram(
     nominal: Option<f64>,
     dark: bool,
 ) -> Result<(), JsValue> {
-    let summary: statistics_summary::Summary = serde_json::from_str(summary_json)
-        .map_err(|e| js_error(Error::new("summary", format!("not a Monte Carlo summary: {e}"))))?;
+    let value: serde_json::Value =
+        serde_json::from_str(summary_json).map_err(|e| js_error(Error::new("summary", format!("not JSON: {e}"))))?;
+    let summary = statistics_summary::Summary::from_json(&value).map_err(js_error)?;
     let palette = if dark { Palette::dark() } else { Palette::light() };
     canvas::draw(
         &view_plot::histogram(title, quantity, unit, &summary, nominal),
