@@ -74,7 +74,7 @@ pub fn solve_str(text: &str) -> Result<Value, Error> {
     if text.len() > crate::scenario::MAX_DOCUMENT_BYTES {
         return Err(Error::new("", "the request is larger than 1 MiB"));
     }
-    let v: Value = serde_json::from_str(text).map_err(|e| Error::new("", format!("not valid JSON: {e}")))?;
+    let v: Value = crate::json_fields::parse_text(text)?;
     solve(&v)
 }
 

@@ -179,3 +179,113 @@ mod tests {
         assert!(Fields::new("beam", &json!([1])).is_err());
     }
 }
+
+/// Parses JSON text, and when it is not valid JSON names the field at which it went wrong.
+///
+/// serde_json reports a line and column; the path of the member being read there is recovered
+/// by a small scan of the text up to that point (strings, keys, objects and arrays), so that a
+/// number out of range, a truncated document or a stray character is reported at
+/// `elements[0].thickness_mm` rather than at line 1, column 93 alone.
+///
+/// # Errors
+/// The path at the error (empty for the top level) with serde_json's message.
+pub fn parse_text(text: &str) -> Result<Value, crate::error::Error> {
+    serde_json::from_str(text).map_err(|e| {
+        let offset = byte_offset(text, e.line(), e.column());
+        crate::error::Error::new(path_at(text, offset), format!("not valid JSON: {e}"))
+    })
+}
+
+fn byte_offset(text: &str, line: usize, column: usize) -> usize {
+    let mut offset = 0;
+    for (i, l) in text.split_inclusive('\n').enumerate() {
+        if i + 1 == line {
+            return (offset + column.saturating_sub(1)).min(text.len());
+        }
+        offset += l.len();
+    }
+    text.len()
+}
+
+/// The path of the member being read at byte `offset` of JSON text (best effort: the text is
+/// only scanned, not validated).
+pub fn path_at(text: &str, offset: usize) -> String {
+    enum Frame {
+        Object(Option<String>),
+        Array(usize),
+    }
+    let bytes = text.as_bytes();
+    let mut stack: Vec<Frame> = Vec::new();
+    let mut i = 0;
+    let end = offset.min(bytes.len());
+    while i < end {
+        match bytes[i] {
+            b'"' => {
+                let start = i + 1;
+                i += 1;
+                while i < bytes.len() && bytes[i] != b'"' {
+                    i += if bytes[i] == b'\\' { 2 } else { 1 };
+                }
+                let s = text.get(start..i.min(text.len())).unwrap_or("").to_string();
+                // A string directly followed by ':' is a key.
+                let mut j = i + 1;
+                while j < bytes.len() && bytes[j].is_ascii_whitespace() {
+                    j += 1;
+                }
+                if j < bytes.len()
+                    && bytes[j] == b':'
+                    && let Some(Frame::Object(key)) = stack.last_mut()
+                {
+                    *key = Some(s);
+                }
+            }
+            b'{' => stack.push(Frame::Object(None)),
+            b'[' => stack.push(Frame::Array(0)),
+            b'}' | b']' => {
+                stack.pop();
+            }
+            b',' => match stack.last_mut() {
+                Some(Frame::Array(n)) => *n += 1,
+                Some(Frame::Object(key)) => *key = None,
+                None => {}
+            },
+            _ => {}
+        }
+        i += 1;
+    }
+    // Name at most the first eight levels: deeper than that the path names no field of the
+    // contract anyway (a document nested hundreds deep is refused for its depth).
+    let mut path = String::new();
+    for f in stack.iter().take(8) {
+        match f {
+            Frame::Object(Some(k)) => path = crate::error::join_path(&path, k),
+            Frame::Object(None) => {}
+            Frame::Array(n) => path.push_str(&format!("[{n}]")),
+        }
+    }
+    path
+}
+
+#[cfg(test)]
+mod path_tests {
+    use super::*;
+
+    #[test]
+    fn syntax_errors_name_the_member_being_read() {
+        let cases = [
+            (
+                r#"{"elements": [{"kind": "crystal", "thickness_mm": 1e999}]}"#,
+                "elements[0].thickness_mm",
+            ),
+            (r#"{"elements": [{"kind": "crystal", "thick"#, "elements[0]"),
+            (r#"{"beam": {"diameter_mm": NaN}}"#, "beam.diameter_mm"),
+            (r#"{"elements": [1, 2, {"a": [0, }]}"#, "elements[2].a[1]"),
+            (r#"{"a": "x\"y", "b": tru}"#, "b"),
+            ("", ""),
+        ];
+        for (doc, field) in cases {
+            let e = parse_text(doc).unwrap_err();
+            assert_eq!(e.field, field, "{doc}: {}", e.message);
+        }
+    }
+}

@@ -169,7 +169,7 @@ impl Scenario {
                 ),
             ));
         }
-        let value: Value = serde_json::from_str(text).map_err(|e| Error::new("", format!("not valid JSON: {e}")))?;
+        let value: Value = crate::json_fields::parse_text(text)?;
         Scenario::from_json(&value)
     }
 

@@ -146,3 +146,28 @@ fn svg_writes_an_svg_document() {
         assert!(text.trim_end().ends_with("</svg>"));
     }
 }
+
+#[wasm_bindgen_test]
+fn every_bad_scenario_is_refused_with_its_field_and_the_last_good_state_kept() {
+    // The same table the command line is tested with (tests/bad_input.rs).
+    let table: Vec<serde_json::Value> = serde_json::from_str(include_str!("bad/scenarios.json")).unwrap();
+    assert!(table.len() >= 40);
+    let mut session = Session::new().unwrap();
+    let good = session.update_json(&demo_with_thickness(7.0)).unwrap();
+    let good_sep = get_f64(&first_element(&good), "separation_mm");
+    for case in &table {
+        let (name, doc, field) = (
+            case["name"].as_str().unwrap(),
+            case["doc"].as_str().unwrap(),
+            case["field"].as_str().unwrap(),
+        );
+        let err = session.update_json(doc).expect_err(name);
+        assert_eq!(get(&err, "field").as_string().as_deref(), Some(field), "{name}");
+        assert!(
+            !get(&err, "message").as_string().unwrap_or_default().is_empty(),
+            "{name}"
+        );
+        let kept = get_f64(&first_element(&session.result().unwrap()), "separation_mm");
+        assert_eq!(kept, good_sep, "{name}: the last good result must stay");
+    }
+}
