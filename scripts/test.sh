@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Runs every test of Doublespar: formatting and lints (native and wasm), the native unit,
 # integration, property and golden tests, the independent numpy reference, the wasm size budget,
-# the bindings in headless Chromium, and the page end to end. Installs what it needs on the way
+# the bindings in headless Chromium, the page end to end, and a bounded fuzzing run. Installs what it needs on the way
 # (the wasm target and pinned wasm-bindgen CLI through scripts/build-web.sh, numpy in a venv under
 # target/, playwright-core under tests/e2e/node_modules); Chromium and its driver come from
 # Debian's packages (.ci/run installs them).
@@ -34,3 +34,5 @@ echo "== bindings in headless Chromium"
 CHROMEDRIVER="${CHROMEDRIVER:-/usr/bin/chromedriver}" cargo test --target wasm32-unknown-unknown --test wasm
 echo "== page end to end"
 tests/e2e/run.sh
+echo "== fuzzing (bounded: FUZZ_SECONDS per target, default 45)"
+FUZZ_SECONDS="${FUZZ_SECONDS:-45}" fuzz/run.sh
