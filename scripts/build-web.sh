@@ -27,8 +27,8 @@ build_module() {
   local out="$1" tdir="$2"
   shift 2
   CARGO_TARGET_DIR="$tdir" CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="-C target-feature=-reference-types" \
-    cargo build --lib --target wasm32-unknown-unknown --release "$@"
-  local raw="$tdir/wasm32-unknown-unknown/release/doublespar.wasm"
+    cargo build --lib --target wasm32-unknown-unknown --profile web "$@"
+  local raw="$tdir/wasm32-unknown-unknown/web/doublespar.wasm"
   local work="target/web-build/$out"
   rm -rf "$work" && mkdir -p "$work" "www/$out"
   if command -v wasm-opt >/dev/null 2>&1; then

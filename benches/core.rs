@@ -1,0 +1,97 @@
+//! Native benchmarks of the core, run by `cargo bench --bench core` (see `scripts/bench.sh`).
+//!
+//! Figures are wall-clock medians over repeated runs on this machine, printed as one JSON line
+//! for the comparison script; they are reported, never asserted (speed targets are met in
+//! benchmarks, not in timed tests).
+//!
+//! - `trace`: full traces per second of a three-crystal stack (eight rays), result built.
+//! - `walkoff_sweep`: 10⁶ closed-form walk-off values ρ(θ) over the cut tilt, the same sweep the
+//!   numpy baseline computes with vectorized arrays.
+//! - `exact_sweep`: 10⁵ walk-off values from the exact plane-wave modes (oblique incidence).
+//! - `monte_carlo`: a 100 000-sample displacer tolerance run.
+
+use doublespar::design;
+use doublespar::material::Indices;
+use doublespar::plate::{plate_optics, tangential};
+use doublespar::scenario::Scenario;
+use doublespar::trace::trace;
+use doublespar::uniaxial::walkoff;
+use doublespar::wavelength::Wavelength;
+use std::hint::black_box;
+use std::time::Instant;
+
+const STACK: &str = r#"{"wavelength_nm": 632.8, "beam": {"incidence": {"polar_deg": 12, "azimuth_deg": 20}},
+  "elements": [
+    {"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 0}},
+    {"kind": "crystal", "material": "yvo4", "thickness_mm": 3, "axis": {"tilt_deg": 45, "azimuth_deg": 45}, "gap_mm": 1},
+    {"kind": "crystal", "material": "quartz", "thickness_mm": 2, "axis": {"tilt_deg": 90, "azimuth_deg": 0}, "gap_mm": 1}]}"#;
+
+fn median(mut v: Vec<f64>) -> f64 {
+    v.sort_by(|a, b| a.total_cmp(b));
+    v[v.len() / 2]
+}
+
+fn time<F: FnMut() -> f64>(runs: usize, mut f: F) -> (f64, f64) {
+    let mut times = Vec::with_capacity(runs);
+    let mut check = 0.0;
+    for _ in 0..runs {
+        let t = Instant::now();
+        check = black_box(f());
+        times.push(t.elapsed().as_secs_f64());
+    }
+    (median(times), check)
+}
+
+/// The closed-form sweep over `n` tilts in [0, 90°]: Σ ρ as a checksum.
+pub fn walkoff_sweep(ix: Indices, n: usize) -> f64 {
+    let step = std::f64::consts::FRAC_PI_2 / (n - 1) as f64;
+    (0..n).map(|i| walkoff(ix, i as f64 * step)).sum()
+}
+
+fn main() {
+    let sc = Scenario::from_json_str(STACK).unwrap();
+    let (t_trace, _) = time(7, || {
+        let mut s = 0.0;
+        for _ in 0..2000 {
+            s += trace(black_box(&sc)).unwrap().total_power;
+        }
+        s
+    });
+    let traces_per_s = 2000.0 / t_trace;
+
+    let ix = Indices::new(1.6556901060179166, 1.484909030214121).unwrap();
+    let (t_sweep, sum) = time(9, || walkoff_sweep(black_box(ix), 1_000_000));
+
+    let wl = Wavelength::from_nm(632.8).unwrap();
+    let qt = tangential(1.0, 10.0, 30.0);
+    let (t_exact, _) = time(7, || {
+        (0..100_000)
+            .filter_map(|i| plate_optics(ix, 90.0 * i as f64 / 99_999.0, 15.0, 1.0, wl, qt))
+            .map(|p| p.walkoff_rad)
+            .sum()
+    });
+
+    let request = r#"{"kind": "displacer", "material": "calcite", "separation_mm": 2, "samples": 100000, "seed": 1}"#;
+    let (t_mc, _) = time(5, || {
+        design::solve_str(request).unwrap()["monte_carlo"]["std"]
+            .as_f64()
+            .unwrap()
+    });
+
+    println!(
+        "trace (3 crystals, 8 rays): {traces_per_s:.0} traces/s ({:.1} µs each)",
+        1e6 / traces_per_s
+    );
+    println!(
+        "closed-form walk-off sweep, 10^6 points: {:.2} ms (checksum {sum:.12e})",
+        t_sweep * 1e3
+    );
+    println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
+    println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
+    println!(
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4}}}",
+        t_sweep * 1e3,
+        t_exact * 1e3,
+        t_mc * 1e3
+    );
+}
