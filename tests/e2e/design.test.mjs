@@ -1,0 +1,594 @@
+// End-to-end tests of the page's design panel (www/, section #design) in headless Chromium:
+// every design number the page shows against the command line (`target/release/doublespar
+// design -`) on the very request the panel builds (`window.doublespar.designRequest()`), the
+// Monte Carlo run in the module worker (progress, a responsive page, cancel), errors beside their
+// fields, the plots, and "Use this part". Every page here is served with the strict content
+// security policy the page is deployed with.
+//
+// Run: `cd tests/e2e && npm ci && node --test` (or tests/e2e/run.sh, which builds first).
+
+import { test, before, after } from 'node:test';
+import assert from 'node:assert/strict';
+import fs from 'node:fs';
+import path from 'node:path';
+import { spawnSync } from 'node:child_process';
+import { ROOT, CLI, WWW, startServer, launchBrowser, openPage, waitReady, ensureBuilt, resolvePath, close } from './support.mjs';
+
+const ARTIFACTS = path.join(ROOT, 'target', 'e2e');
+const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'";
+const DESIGN_WASM = path.join(WWW, 'pkg-design', 'doublespar_bg.wasm');
+
+let server;
+let browser;
+
+before(
+  async () => {
+    ensureBuilt();
+    if (!fs.existsSync(DESIGN_WASM)) {
+      const r = spawnSync(path.join(ROOT, 'scripts', 'build-web.sh'), [], { cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'] });
+      assert.equal(r.status, 0, 'scripts/build-web.sh');
+    }
+    fs.mkdirSync(ARTIFACTS, { recursive: true });
+    server = await startServer();
+    browser = await launchBrowser();
+  },
+  { timeout: 30 * 60 * 1000 },
+);
+
+after(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+// ---------------------------------------------------------------------------------------------
+// Helpers
+
+/** `doublespar design -` on a request object: the parsed design (or {error}). */
+function cliDesign(request) {
+  const r = spawnSync(CLI, ['design', '-'], { input: JSON.stringify(request), encoding: 'utf8' });
+  if (r.status !== 0 && r.status !== 2) throw new Error(`doublespar design - exited ${r.status}: ${r.stdout}${r.stderr}`);
+  return JSON.parse(r.stdout);
+}
+
+/** Records every content-security-policy violation the page (or its worker) reports. */
+function cspProbe() {
+  window.__cspViolations = [];
+  document.addEventListener('securitypolicyviolation', (e) => {
+    window.__cspViolations.push(`${e.violatedDirective} ${e.blockedURI}`);
+  });
+}
+
+/**
+ * Opens the page under the strict CSP (unless `csp` is false), waits for its first result, runs
+ * `body({page, log})`, then checks what every test must hold: no console or page error, no CSP
+ * violation, no request to any host but the local server, the worker and its wasm served by that
+ * server, no file missing, and the panic banner hidden. (Under the CSP a request to another host
+ * is refused before it is made, and the worker's refusals reach no listener here: one test runs
+ * without it, so that such an attempt shows as a request.)
+ */
+async function withPage(body, { csp = true, ...options } = {}) {
+  const missingBefore = server.missing.length;
+  const { context, page, log } = await openPage(browser, server.origin, options);
+  const withPolicy = [];
+  // Registered after openPage's route, so it runs first: local responses get the CSP header;
+  // anything else falls back to openPage's route, which aborts it.
+  await context.route('**', async (route) => {
+    const url = route.request().url();
+    if (!csp || !url.startsWith(`${server.origin}/`)) return route.fallback();
+    const response = await route.fetch();
+    withPolicy.push(new URL(url).pathname);
+    return route.fulfill({ response, headers: { ...response.headers(), 'content-security-policy': CSP } });
+  });
+  await context.addInitScript(cspProbe);
+  // (The page's console events carry the worker's console too.)
+  const workers = [];
+  page.on('worker', (w) => workers.push(w.url()));
+  try {
+    await page.goto(`${server.origin}/`, { waitUntil: 'load' });
+    await waitReady(page);
+    await body({ page, log });
+    const panic = await page.evaluate(() => {
+      const el = document.getElementById('panic');
+      return el && !el.hidden ? el.textContent : '';
+    });
+    assert.equal(panic, '', `the page reported an internal error: ${panic}`);
+    assert.deepEqual(await page.evaluate(() => window.__cspViolations), [], 'content security policy violations');
+  } catch (e) {
+    const said = [...log.pageErrors.map((x) => `page error: ${x}`), ...log.consoleErrors.map((x) => `console error: ${x}`)];
+    if (said.length && e instanceof Error) e.message += `\n  the page said:\n    ${said.join('\n    ')}`;
+    throw e;
+  } finally {
+    await context.close();
+  }
+  assert.deepEqual(log.pageErrors, [], 'uncaught errors in the page');
+  assert.deepEqual(log.consoleErrors, [], 'console errors');
+  assert.deepEqual(log.foreign, [], `requests to hosts other than ${server.origin}`);
+  for (const f of ['/design-worker.js', '/pkg-design/doublespar.js', '/pkg-design/doublespar_bg.wasm']) {
+    assert.ok(log.requests.includes(`${server.origin}${f}`), `${f} was requested from the local server`);
+    if (csp) assert.ok(withPolicy.includes(f), `${f} was served under the CSP`);
+  }
+  assert.deepEqual(server.missing.slice(missingBefore), [], 'files the page asked for that www/ lacks');
+  assert.ok(workers.length > 0 && workers.every((u) => u === `${server.origin}/design-worker.js`), `the page ran its design worker from the server: ${workers}`);
+}
+
+const field = (p) => `[data-design-field="${p}"]`;
+
+/** Types into a design field as a user would (fill, then leave it). */
+async function enter(page, p, value) {
+  const el = page.locator(field(p));
+  assert.equal(await el.count(), 1, `exactly one control ${field(p)}`);
+  assert.ok(await el.isVisible(), `${field(p)} is visible`);
+  await el.fill(String(value));
+  await el.press('Tab');
+}
+
+async function choose(page, p, value) {
+  const el = page.locator(field(p));
+  assert.equal(await el.count(), 1, `exactly one control ${field(p)}`);
+  await el.selectOption(value);
+}
+
+const designState = (page) => page.evaluate(() => document.getElementById('design').dataset.state);
+
+/** Clicks Solve and waits for the state `until` (done by default); returns the final state. */
+async function solve(page, until = ['done'], timeout = 30000) {
+  await page.click('#design-solve');
+  await page
+    .waitForFunction((states) => states.includes(document.getElementById('design').dataset.state), until, { timeout })
+    .catch(async () => assert.fail(`the design panel is ${await designState(page)}, not ${until}: ${await page.textContent('#design-status')}`));
+  return designState(page);
+}
+
+/** Every [data-quantity^="design."] on the page as [path, data-value]. */
+const designQuantities = (page) =>
+  page.$$eval('[data-quantity^="design."]', (els) => els.map((e) => [e.getAttribute('data-quantity'), e.getAttribute('data-value')]));
+
+/**
+ * Numbers the core gets by central differences (DEVELOPERS.md: "sensitivities are central
+ * differences of the exact plate model"), and what follows from them. A difference with step h
+ * turns the last-bit differences between the wasm build's and the native build's transcendental
+ * functions (≈1e-16 of a value F) into ≈1e-16·F/h: with h = 1e-4° for walkoff_slope and 1e-3°
+ * for the cut-tilt sensitivity that is ≈1e-11 relative, measured 4e-11 for a custom-index plate
+ * cut at 30°. Where a test opts in (`fdTolerance`), these compare to 1e-8 relative with a floor of
+ * 1e-10 in their unit; everything else stays at 1e-12.
+ */
+const FINITE_DIFFERENCES = /^design\.(walkoff_slope|sensitivities\..*|length_sensitivity\.\d|tilt_sensitivity\.\d|length_mismatch_to_break_mm\.\d|tilt_mismatch_to_break_deg\.\d)$/;
+
+/**
+ * Compares the design numbers on the page with the command line's design: every path in
+ * `required` must be shown, and every shown path must agree (numbers to 1e-12 relative with an
+ * absolute floor of 1e-15, strings and booleans as String(value)).
+ */
+function mismatches(shown, cli, required, { fdTolerance = false } = {}) {
+  const out = [];
+  const paths = new Set(shown.map(([p]) => p));
+  for (const p of required) if (!paths.has(p)) out.push(`${p}: not on the page`);
+  const root = { design: cli };
+  for (const [p, value] of shown) {
+    const expected = resolvePath(root, p);
+    if (expected === undefined) out.push(`${p}: no such path in the design (data-value=${value})`);
+    else if (typeof expected === 'number') {
+      const [rel, floor] = fdTolerance && FINITE_DIFFERENCES.test(p) ? [1e-8, 1e-10] : [1e-12, 1e-15];
+      if (!close(Number(value), expected, rel, floor)) out.push(`${p}: page ${value}, command line ${expected}`);
+    } else if (typeof expected === 'string' || typeof expected === 'boolean') {
+      if (value !== String(expected)) out.push(`${p}: page ${value}, command line ${expected}`);
+    } else {
+      out.push(`${p}: the design holds ${JSON.stringify(expected).slice(0, 60)} there, not a value`);
+    }
+  }
+  return out;
+}
+
+async function expectAgreement(page, required, what, options = {}) {
+  const request = await page.evaluate(() => window.doublespar.designRequest());
+  const shown = await page.evaluate(() => window.doublespar.designShown());
+  assert.ok(shown && shown.complete, `${what}: a complete design is shown`);
+  assert.deepEqual(shown.request, request, `${what}: the design shown is for the request the fields say`);
+  const cli = cliDesign(request);
+  assert.ok(!cli.error, `${what}: the command line solves the request: ${JSON.stringify(cli.error)}`);
+  const q = await designQuantities(page);
+  assert.deepEqual(mismatches(q, cli, required, options), [], `${what}: the page and the command line disagree`);
+  return { request, cli, quantities: Object.fromEntries(q) };
+}
+
+/** Per canvas[data-design-plot]: name, label, size, pixels off the commonest colour, hash. */
+const plotStats = (page) =>
+  page.$$eval('canvas[data-design-plot]', (canvases) =>
+    canvases.map((c) => {
+      const base = { plot: c.getAttribute('data-design-plot'), label: c.getAttribute('aria-label'), w: c.width, h: c.height };
+      const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+      const counts = new Map();
+      let hash = 2166136261;
+      for (let i = 0; i < d.length; i += 4) {
+        const k = ((d[i] << 24) | (d[i + 1] << 16) | (d[i + 2] << 8) | d[i + 3]) >>> 0;
+        counts.set(k, (counts.get(k) || 0) + 1);
+        hash = Math.imul(hash ^ k, 16777619) >>> 0;
+      }
+      let bg = 0;
+      let bgCount = 0;
+      for (const [k, n] of counts) if (n > bgCount) [bg, bgCount] = [k, n];
+      const total = c.width * c.height;
+      return { ...base, total, differing: total - bgCount, background: bg >>> 8, hash };
+    }),
+  );
+
+async function expectPlots(page, names, what) {
+  const stats = await plotStats(page);
+  assert.deepEqual(stats.map((s) => s.plot).sort(), [...names].sort(), `${what}: the plots shown`);
+  for (const s of stats) {
+    assert.ok(s.total > 0 && s.differing >= Math.max(200, 0.002 * s.total), `${what}: ${s.plot} is drawn (${s.differing} of ${s.total} pixels off the background)`);
+    assert.ok(s.label && s.label.length > 20, `${what}: ${s.plot} has a text alternative`);
+  }
+  return stats;
+}
+
+const errorText = (page, p) =>
+  page.evaluate((f) => {
+    const el = [...document.querySelectorAll('[data-design-error-for]')].find((e) => e.getAttribute('data-design-error-for') === f);
+    if (!el) return null;
+    return !el.hidden && el.getClientRects().length > 0 ? el.textContent.trim() : '';
+  }, p);
+
+async function expectError(page, p, what) {
+  await page
+    .waitForFunction(
+      (f) => {
+        const el = [...document.querySelectorAll('[data-design-error-for]')].find((e) => e.getAttribute('data-design-error-for') === f);
+        return el && !el.hidden && el.getClientRects().length > 0 && el.textContent.trim() !== '';
+      },
+      p,
+      { timeout: 10000 },
+    )
+    .catch(async () => assert.fail(`${what}: [data-design-error-for="${p}"] shows ${JSON.stringify(await errorText(page, p))}; status: ${await page.textContent('#design-status')}`));
+  const text = await errorText(page, p);
+  assert.ok(text.length > 5, `${what}: a readable message (${text})`);
+  return text;
+}
+
+const DISPLACER_REQUIRED = [
+  'design.cut_tilt_deg', 'design.length_mm', 'design.walkoff_deg', 'design.separation_mm', 'design.clear_aperture_mm',
+  'design.crosstalk', 'design.band.min_mm', 'design.band.max_mm', 'design.cut_note', 'design.no', 'design.ne',
+  'design.sensitivities.tilt_mm_per_deg', 'design.sensitivities.incidence_mm_per_deg', 'design.sensitivities.thickness_mm_per_mm',
+  'design.sensitivities.wavelength_mm_per_nm', 'design.sensitivities.linear_std_mm',
+  'design.monte_carlo.n', 'design.monte_carlo.mean', 'design.monte_carlo.std', 'design.monte_carlo.p5', 'design.monte_carlo.p95',
+];
+
+async function fillDisplacer(page, samples) {
+  await choose(page, 'kind', 'displacer');
+  await choose(page, 'material', 'calcite');
+  await enter(page, 'wavelength_nm', '632.8');
+  await enter(page, 'separation_mm', '2');
+  await enter(page, 'beam_diameter_mm', '1');
+  await enter(page, 'samples', String(samples));
+  await enter(page, 'seed', '5');
+}
+
+// ---------------------------------------------------------------------------------------------
+// Tests
+
+test('a displacer solved through the controls agrees with the command line, Monte Carlo included, and loads into the set-up', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    assert.equal(await designState(page), 'idle');
+    assert.equal(await page.locator('[data-quantity^="design."]').count(), 0, 'no design numbers before a solve');
+    await fillDisplacer(page, 20000);
+    // Record what the progress line says and the panel's states as they happen.
+    await page.evaluate(() => {
+      const rec = { texts: [], states: [] };
+      window.__designRec = rec;
+      const text = document.getElementById('design-progress-text');
+      const run = document.getElementById('design-run');
+      const bar = document.getElementById('design-progress');
+      new MutationObserver(() => {
+        rec.texts.push({ text: text.textContent, visible: !run.hidden && run.getClientRects().length > 0, value: bar.value, max: bar.max });
+      }).observe(text, { childList: true, characterData: true, subtree: true });
+      const panel = document.getElementById('design');
+      new MutationObserver(() => {
+        rec.states.push({ state: panel.dataset.state, mc: !!document.querySelector('[data-quantity="design.monte_carlo.mean"]'), nominal: !!document.querySelector('[data-quantity="design.length_mm"]') });
+      }).observe(panel, { attributes: true, attributeFilter: ['data-state'] });
+    });
+    await solve(page);
+    const { request, cli } = await expectAgreement(page, DISPLACER_REQUIRED, 'displacer, 20000 samples');
+    assert.deepEqual(
+      request,
+      {
+        kind: 'displacer', material: 'calcite', wavelength_nm: 632.8, separation_mm: 2, beam_diameter_mm: 1, aperture_factor: 2,
+        tolerances: { tilt_deg: 0.1, incidence_deg: 0.1, thickness_mm: 0.05, wavelength_nm: 0.5 }, samples: 20000, seed: 5,
+      },
+      'the request the controls say',
+    );
+    assert.equal(cli.monte_carlo.n, 20000);
+
+    const rec = await page.evaluate(() => window.__designRec);
+    const texts = rec.texts.filter((t) => t.visible).map((t) => t.text);
+    for (const t of ['10000 of 20000 samples', '20000 of 20000 samples']) assert.ok(texts.includes(t), `the progress said "${t}" (it said ${JSON.stringify(texts)})`);
+    assert.ok(rec.texts.some((t) => t.text === '10000 of 20000 samples' && t.value === 10000 && t.max === 20000), 'the <progress> bar followed');
+    const running = rec.states.find((s) => s.state === 'running');
+    assert.ok(running && running.nominal && !running.mc, `the nominal design was shown while the run went on: ${JSON.stringify(rec.states)}`);
+    assert.equal(rec.states[rec.states.length - 1].state, 'done');
+
+    await expectPlots(page, ['separation-wavelength', 'tolerance-histogram'], 'displacer');
+    const cutNote = await page.locator('[data-quantity="design.cut_note"]').first().textContent();
+    assert.equal(cutNote.trim(), cli.cut_note, 'the cut note is shown');
+
+    // "Use this part": the main views show the designed plate.
+    await page.click('#design-use');
+    await page
+      .waitForFunction(() => Math.abs(Number(document.querySelector('[data-quantity="elements[0].separation_mm"]')?.getAttribute('data-value')) - 2) <= 2e-9, null, { timeout: 5000 })
+      .catch(async () => assert.fail(`elements[0].separation_mm is ${await page.getAttribute('[data-quantity="elements[0].separation_mm"]', 'data-value')}`));
+    const sep = Number(await page.getAttribute('[data-quantity="elements[0].separation_mm"]', 'data-value'));
+    assert.ok(close(sep, 2, 1e-9), `the traced separation is 2 mm (${sep})`);
+    const sc = JSON.parse(await page.evaluate(() => window.doublespar.session.scenarioJson()));
+    assert.equal(sc.elements.length, 1);
+    assert.equal(sc.elements[0].thickness_mm, cli.length_mm, 'the plate has the designed length');
+    assert.ok(close(sc.elements[0].axis.tilt_deg, cli.cut_tilt_deg), 'and the designed cut');
+    assert.match(await page.evaluate(() => location.hash), /^#scenario=/, 'the address holds the new set-up');
+  });
+});
+
+test('a 100000-sample run keeps the page responsive and agrees with the command line; Cancel stops a run (no CSP: any request shows)', { timeout: 180000 }, async () => {
+  await withPage(async ({ page }) => {
+    await fillDisplacer(page, 100000);
+    // Count animation frames (and the longest gap between two) while the run goes on.
+    await page.evaluate(() => {
+      const f = { count: 0, last: 0, maxGap: 0, running: true };
+      window.__frames = f;
+      const tick = (t) => {
+        if (f.last) f.maxGap = Math.max(f.maxGap, t - f.last);
+        f.last = t;
+        f.count += 1;
+        if (f.running) requestAnimationFrame(tick);
+      };
+      requestAnimationFrame(tick);
+    });
+    const before = await page.evaluate(() => window.__frames.count);
+    const t0 = Date.now();
+    await solve(page);
+    const frames = await page.evaluate(() => {
+      window.__frames.running = false;
+      return window.__frames;
+    });
+    const ms = Date.now() - t0;
+    console.log(`# 100000 samples: ${ms} ms from the click to the summary, ${frames.count - before} frames, longest frame gap ${frames.maxGap.toFixed(1)} ms`);
+    assert.ok(frames.count - before >= 2, `the page kept drawing frames during the run (${frames.count - before} in ${ms} ms)`);
+    assert.ok(frames.maxGap < 500, `no frame took half a second (longest gap ${frames.maxGap} ms)`);
+    const { cli } = await expectAgreement(page, DISPLACER_REQUIRED, 'displacer, 100000 samples');
+    assert.equal(cli.monte_carlo.n, 100000);
+    assert.equal(await page.textContent('#design-progress-text'), '100000 of 100000 samples');
+
+    // Cancel: a million samples, stopped after the first progress.
+    await enter(page, 'samples', '1000000');
+    await solve(page, ['running']);
+    await page.waitForFunction(() => /^[1-9]\d* of 1000000 samples$/.test(document.getElementById('design-progress-text').textContent), null, { timeout: 20000 });
+    assert.equal(await page.locator('#design-cancel').isEnabled(), true, 'Cancel is enabled during the run');
+    await page.click('#design-cancel');
+    assert.equal(await designState(page), 'cancelled');
+    const stopped = await page.textContent('#design-progress-text');
+    await page.waitForTimeout(400);
+    assert.equal(await page.textContent('#design-progress-text'), stopped, 'the progress stops');
+    assert.equal(await page.locator('[data-quantity="design.monte_carlo.mean"]').count(), 0, 'no summary after a cancel');
+    assert.ok(await page.locator('[data-quantity="design.length_mm"]').count() > 0, 'the nominal design stays');
+    assert.equal(await page.locator('#design-cancel').isDisabled(), true);
+    assert.match(await page.textContent('#design-status'), /Cancelled after \d+ of 1000000 samples/);
+    // The restarted worker solves again.
+    await enter(page, 'samples', '20000');
+    await solve(page);
+    await expectAgreement(page, DISPLACER_REQUIRED, 'displacer after a cancel');
+  }, { csp: false });
+});
+
+test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plots redraw in the dark scheme', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    await choose(page, 'kind', 'waveplate');
+    await choose(page, 'order', 'zero');
+    await choose(page, 'material', 'quartz');
+    await enter(page, 'wavelength_nm', '632.8');
+    await enter(page, 'retardance_waves', '0.25');
+    assert.equal(await page.locator(field('order_number')).isVisible(), false, 'no order number for a zero-order plate');
+    assert.equal(await page.locator(field('separation_mm')).count(), 0, 'no displacer fields for a waveplate');
+    await solve(page);
+    const { quantities: q } = await expectAgreement(page, [
+      'design.plates.0.thickness_mm', 'design.retardance_waves', 'design.acceptance_deg', 'design.no', 'design.ne',
+      'design.angular.0.acceptance_deg', 'design.angular.1.acceptance_deg', 'design.angular.2.acceptance_deg',
+    ], 'quartz quarter-wave');
+    const [no, ne, t] = [q['design.no'], q['design.ne'], q['design.plates.0.thickness_mm']].map(Number);
+    const expected = 632.8e-6 / (4 * Math.abs(ne - no));
+    assert.ok(close(t, expected, 1e-12), `thickness ${t} mm, λ/(4|nₑ − nₒ|) = ${expected} mm`);
+    const plots = ['retardance-wavelength', 'retardance-angle-0', 'retardance-angle-45', 'retardance-angle-90'];
+    const light = await expectPlots(page, plots, 'waveplate, light');
+    const worst = await page.getAttribute('canvas[data-design-plot="retardance-angle-0"]', 'aria-label');
+    assert.match(worst, /plane at 0° to the optic axis/);
+
+    await page.emulateMedia({ colorScheme: 'dark' });
+    await page.waitForFunction(() => window.matchMedia('(prefers-color-scheme: dark)').matches);
+    let dark;
+    const end = Date.now() + 5000;
+    do {
+      await page.waitForTimeout(50);
+      dark = await plotStats(page);
+    } while (Date.now() < end && dark.some((s, i) => s.hash === light[i].hash));
+    for (const [i, s] of dark.entries()) {
+      assert.notEqual(s.hash, light[i].hash, `${s.plot} was redrawn for the dark scheme`);
+      const lum = (c) => ((c >> 16) & 255) + ((c >> 8) & 255) + (c & 255);
+      assert.ok(lum(s.background) < lum(light[i].background), `${s.plot}: the dark background is darker`);
+    }
+    await expectPlots(page, plots, 'waveplate, dark');
+
+    // A resize redraws the plots at their new size.
+    const w0 = dark[0].w;
+    await page.setViewportSize({ width: 700, height: 900 });
+    await page.waitForFunction((w) => document.querySelector('canvas[data-design-plot="retardance-wavelength"]').width !== w, w0, { timeout: 5000 });
+    await expectPlots(page, plots, 'waveplate, after a resize');
+  });
+});
+
+test('bad values show their message beside their field and keep what was typed', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    await choose(page, 'kind', 'waveplate');
+    await enter(page, 'retardance_waves', 'abc');
+    await solve(page, ['error']);
+    const m1 = await expectError(page, 'retardance_waves', 'retardance "abc"');
+    assert.match(m1, /number/);
+    assert.equal(await page.inputValue(field('retardance_waves')), 'abc', 'the typed text stays');
+    assert.equal(await page.getAttribute(field('retardance_waves'), 'aria-invalid'), 'true');
+
+    await enter(page, 'retardance_waves', '0.5');
+    await solve(page);
+    assert.equal(await errorText(page, 'retardance_waves'), '', 'a good value clears the message');
+
+    // A displacer: first a good design, then a bad separation; the good design stays.
+    await choose(page, 'kind', 'displacer');
+    await enter(page, 'separation_mm', '2');
+    await enter(page, 'samples', '0');
+    await solve(page);
+    const length = await page.getAttribute('[data-quantity="design.length_mm"]', 'data-value');
+    await enter(page, 'separation_mm', '-1');
+    await solve(page, ['error']);
+    await expectError(page, 'separation_mm', 'separation -1');
+    assert.equal(await page.inputValue(field('separation_mm')), '-1', 'the typed value stays');
+    assert.equal(await page.getAttribute('[data-quantity="design.length_mm"]', 'data-value'), length, 'the last design stays');
+    assert.ok(await page.locator('#design-stale').isVisible(), 'and says it is the last one that solved');
+
+    // Errors inside groups: a field of the band, the band as a whole, a tolerance, the samples.
+    await enter(page, 'separation_mm', '2');
+    for (const [what, fill, errorField] of [
+      ['band to blank', [['band_nm[0]', '500'], ['band_nm[1]', '']], 'band_nm[1]'],
+      ['band reversed', [['band_nm[0]', '900'], ['band_nm[1]', '500']], 'band_nm'],
+      ['negative tolerance', [['band_nm[0]', ''], ['band_nm[1]', ''], ['tolerances.tilt_deg', '-1']], 'tolerances.tilt_deg'],
+      ['too many samples', [['tolerances.tilt_deg', '0.1'], ['samples', '2000000']], 'samples'],
+    ]) {
+      for (const [p, v] of fill) await enter(page, p, v);
+      await solve(page, ['error']);
+      await expectError(page, errorField, what);
+      for (const [p, v] of fill) assert.equal(await page.inputValue(field(p)), v, `${what}: ${p} keeps what was typed`);
+    }
+    // Enter in a field solves (the keyboard path).
+    await page.fill(field('samples'), '0');
+    await page.press(field('samples'), 'Enter');
+    await page.waitForFunction(() => document.getElementById('design').dataset.state === 'done', null, { timeout: 10000 });
+    assert.equal(await errorText(page, 'samples'), '');
+  });
+});
+
+test('an achromatic pair and a recombiner agree with the command line', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    await choose(page, 'kind', 'achromat');
+    await choose(page, 'first.material', 'quartz');
+    await choose(page, 'second.material', 'mgf2');
+    await enter(page, 'retardance_waves', '0.25');
+    await enter(page, 'wavelengths_nm[0]', '500');
+    await enter(page, 'wavelengths_nm[1]', '900');
+    await solve(page);
+    await expectAgreement(page, [
+      'design.plates.0.thickness_mm', 'design.plates.1.thickness_mm', 'design.at_design_wavelengths.0.0', 'design.at_design_wavelengths.0.1',
+      'design.at_design_wavelengths.1.0', 'design.at_design_wavelengths.1.1', 'design.max_error_waves',
+    ], 'achromat');
+    await expectPlots(page, ['retardance-wavelength'], 'achromat');
+
+    await choose(page, 'kind', 'recombiner');
+    await choose(page, 'material', 'calcite');
+    await enter(page, 'wavelength_nm', '632.8');
+    await enter(page, 'length_mm', '10');
+    await enter(page, 'length_mismatch_mm', '0.002');
+    await solve(page);
+    const { cli } = await expectAgreement(page, [
+      'design.recombined', 'design.residual_separation_mm', 'design.phase_difference_rad',
+      'design.length_mismatch_to_break_mm.0', 'design.length_mismatch_to_break_mm.1',
+      'design.tilt_mismatch_to_break_deg.0', 'design.tilt_mismatch_to_break_deg.1',
+    ], 'recombiner');
+    assert.equal(cli.recombined, true);
+    await expectPlots(page, [], 'recombiner');
+    await page.click('#design-use');
+    await page.waitForFunction(() => document.querySelectorAll('[data-quantity^="rays."][data-quantity$=".power"]').length === 4, null, { timeout: 5000 });
+  });
+});
+
+test('variants: custom indices with a fixed cut, a multiple-order plate, a rotator, a narrow band', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    const cases = [
+      ['displacer, custom indices, cut 30°, band', async () => {
+        await choose(page, 'kind', 'displacer');
+        await choose(page, 'material', 'custom');
+        await enter(page, 'no', '1.65');
+        await enter(page, 'ne', '1.48');
+        await enter(page, 'separation_mm', '1.5');
+        await enter(page, 'cut_tilt_deg', '30');
+        await enter(page, 'band_nm[0]', '500');
+        await enter(page, 'band_nm[1]', '900');
+        await enter(page, 'samples', '15000');
+      }, ['design.cut_tilt_deg', 'design.walkoff_slope', 'design.band.min_at_nm', 'design.monte_carlo.mean'], ['separation-wavelength', 'tolerance-histogram']],
+      ['waveplate, order 7 half-wave in MgF2 at 1064 nm', async () => {
+        await choose(page, 'kind', 'waveplate');
+        await choose(page, 'material', 'mgf2');
+        await choose(page, 'order', 'multiple');
+        await enter(page, 'order_number', '7');
+        await enter(page, 'wavelength_nm', '1064');
+        await enter(page, 'retardance_waves', '0.5');
+        await enter(page, 'band_nm[0]', '');
+        await enter(page, 'band_nm[1]', '');
+      }, ['design.plates.0.thickness_mm', 'design.order_number', 'design.acceptance_deg'], ['retardance-wavelength', 'retardance-angle-0', 'retardance-angle-45', 'retardance-angle-90']],
+      ['achromat, band narrower than the design wavelengths', async () => {
+        await choose(page, 'kind', 'achromat');
+        await enter(page, 'band_nm[0]', '600');
+        await enter(page, 'band_nm[1]', '800');
+      }, ['design.max_error_waves'], ['retardance-wavelength']],
+      ['recombiner, YVO4 with a rotator and a cut mismatch', async () => {
+        await choose(page, 'kind', 'recombiner');
+        await choose(page, 'material', 'yvo4');
+        await enter(page, 'wavelength_nm', '1064');
+        await enter(page, 'length_mm', '8');
+        await enter(page, 'cut_tilt_deg', '45');
+        await choose(page, 'middle', 'rotator');
+        await enter(page, 'rotator_deg', '90');
+        await enter(page, 'tilt_mismatch_deg', '0.01');
+      }, ['design.overlap', 'design.tilt_sensitivity.0'], []],
+    ];
+    for (const [what, fill, required, plots] of cases) {
+      await fill();
+      await solve(page);
+      await expectAgreement(page, required, what, { fdTolerance: true });
+      await expectPlots(page, plots, what);
+    }
+  });
+});
+
+test('the panel is labelled, reachable by keyboard and fits 1280 px and 400 px (target/e2e/design*.png)', { timeout: 120000 }, async () => {
+  for (const [width, name, scheme] of [[1280, 'design.png', 'light'], [400, 'design-narrow.png', 'dark']]) {
+    await withPage(
+      async ({ page }) => {
+        for (const kind of ['displacer', 'waveplate', 'achromat', 'recombiner']) {
+          await choose(page, 'kind', kind);
+          const unlabelled = await page.$$eval('#design [data-design-field]', (els) =>
+            els
+              .filter((el) => el.getClientRects().length > 0)
+              .filter((el) => !(el.labels && el.labels.length && el.labels[0].textContent.trim()) && !el.getAttribute('aria-label'))
+              .map((el) => el.dataset.designField),
+          );
+          assert.deepEqual(unlabelled, [], `${kind}: every field has a label`);
+          const slots = await page.$$eval('#design [data-design-field]', (els) =>
+            els
+              .filter((el) => el.getClientRects().length > 0)
+              .filter((el) => !document.querySelector(`[data-design-error-for="${CSS.escape(el.dataset.designField)}"]`))
+              .map((el) => el.dataset.designField),
+          );
+          assert.deepEqual(slots, [], `${kind}: every field has its error slot`);
+        }
+        await choose(page, 'kind', 'displacer');
+        await enter(page, 'separation_mm', '2');
+        await enter(page, 'band_nm[0]', '550');
+        await enter(page, 'band_nm[1]', '750');
+        // From the last field, Tab reaches Solve; Space presses it.
+        await page.focus(field('seed'));
+        await page.keyboard.press('Tab');
+        assert.equal(await page.evaluate(() => document.activeElement.id), 'design-solve', 'Tab from the last field reaches Solve');
+        await page.keyboard.press('Space');
+        await page.waitForFunction(() => document.getElementById('design').dataset.state === 'done', null, { timeout: 30000 });
+        await expectPlots(page, ['separation-wavelength', 'tolerance-histogram'], `${width} px`);
+        const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+        assert.ok(overflow <= 1, `at ${width} px the page is ${overflow} px wider than the window`);
+        await page.locator('#design').screenshot({ path: path.join(ARTIFACTS, name) });
+      },
+      { viewport: { width, height: 900 }, colorScheme: scheme },
+    );
+    assert.ok(fs.statSync(path.join(ARTIFACTS, name)).size > 1000, `${name} written`);
+  }
+});
