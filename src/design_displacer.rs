@@ -128,7 +128,7 @@ pub struct DisplacerDesign {
     pub length_mm: f64,
     /// The separation the exact trace gives for that length, mm.
     pub separation_mm: f64,
-    /// Direction of the e-ray's displacement for an optic axis at azimuth 0: "+x" or "−x".
+    /// Direction of the e-ray's displacement for an optic axis at azimuth 0: "+x" or "-x".
     pub displacement_direction: String,
     /// Separation over the band (the design wavelength alone if no band is given).
     pub band: BandSeparation,
@@ -227,6 +227,16 @@ pub(crate) fn crystal_element(
     c
 }
 
+/// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
+pub(crate) fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, hi: f64) -> Result<f64, Error> {
+    let path = f.path_of(name);
+    let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;
+    if v.fract() != 0.0 {
+        return Err(Error::new(path, format!("must be a whole number, got {v}")));
+    }
+    Ok(v)
+}
+
 /// The request's `wavelength_nm` (default 632.8).
 pub(crate) fn wavelength_field(f: &mut Fields) -> Result<Wavelength, Error> {
     Wavelength::from_nm(in_range(
@@ -245,10 +255,10 @@ pub(crate) fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f6
             let b = number_list(&path, v, 2)?;
             let lo = in_range(&format!("{path}[0]"), b[0], 1.0, 1e6)?;
             let hi = in_range(&format!("{path}[1]"), b[1], 1.0, 1e6)?;
-            if hi <= lo {
+            if hi < lo {
                 return Err(Error::new(
                     path,
-                    format!("must be [shortest, longest] with shortest < longest, got [{lo}, {hi}]"),
+                    format!("must be [shortest, longest] with shortest ≤ longest, got [{lo}, {hi}]"),
                 ));
             }
             Ok(Some((lo, hi)))
@@ -305,9 +315,9 @@ impl DisplacerRequest {
                 tol
             }
         };
-        let samples = in_range("samples", f.number_or("samples", 100_000.0)?, 0.0, MAX_SAMPLES as f64)? as usize;
-        let seed = in_range("seed", f.number_or("seed", 1.0)?, 0.0, 9.007_199_254_740_991e15)? as u64;
-        let bins = in_range("bins", f.number_or("bins", 40.0)?, 1.0, 1000.0)? as usize;
+        let samples = whole(f, "samples", 100_000.0, 0.0, MAX_SAMPLES as f64)? as usize;
+        let seed = whole(f, "seed", 1.0, 0.0, 9.007_199_254_740_991e15)? as u64;
+        let bins = whole(f, "bins", 40.0, 1.0, 1000.0)? as usize;
         Ok(DisplacerRequest {
             medium,
             wavelength,
@@ -356,6 +366,18 @@ fn separation(medium: &Medium, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -
     let wl = Wavelength::from_nm(nm).ok()?;
     let ix = indices_of(medium, wl).ok()?;
     plate_optics(ix, tilt_deg, 0.0, l, wl, tangential(1.0, polar_deg, 0.0)).map(|p| p.separation_mm)
+}
+
+/// d(tan ρ)/dθ for the walk-off of [`walkoff`] at normal incidence.
+///
+/// Formula: with a = n_o² − n_e², b = n_e² cos²θ + n_o² sin²θ, tan ρ = a sin θ cos θ / b, so
+/// d(tan ρ)/dθ = a (cos 2θ · b − sin θ cos θ · a · sin 2θ) / b² = a (n_e² cos²θ − n_o² sin²θ) / b²,
+/// whose numerator vanishes at tan θ = n_e/n_o.
+pub fn dtan_walkoff(ix: Indices, theta: f64) -> f64 {
+    let (no2, ne2) = (ix.no * ix.no, ix.ne * ix.ne);
+    let (s, c) = theta.sin_cos();
+    let b = ne2 * c * c + no2 * s * s;
+    (no2 - ne2) * (ne2 * c * c - no2 * s * s) / (b * b)
 }
 
 fn central(f: impl Fn(f64) -> Option<f64>, x: f64, h: f64) -> Option<f64> {
@@ -438,9 +460,12 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         )
     };
     let m = &req.medium;
-    let s_tilt = central(|t| separation(m, t, 0.0, length_mm, nm), tilt, 1e-3).ok_or_else(bad)?;
+    // Tilt and length: the closed form at normal incidence, s = L |tan ρ(θ)|, differentiated
+    // (exactly zero at the maximum-walk-off cut, where a difference quotient would only show
+    // rounding). Incidence and wavelength: central differences of the exact model.
+    let s_tilt = length_mm * rho.tan().signum() * dtan_walkoff(ix, tilt.to_radians()) * std::f64::consts::PI / 180.0;
     let s_inc = central(|p| separation(m, tilt, p, length_mm, nm), 0.0, 1e-3).ok_or_else(bad)?;
-    let s_len = central(|l| separation(m, tilt, 0.0, l, nm), length_mm, 1e-4 * length_mm).ok_or_else(bad)?;
+    let s_len = rho.tan().abs();
     let s_wl = central(|w| separation(m, tilt, 0.0, length_mm, w), nm, 1e-2).ok_or_else(bad)?;
     let t = req.tolerances;
     let linear_std_mm = ((s_tilt * t.tilt_deg).powi(2)
@@ -479,7 +504,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         displacement_direction: if optics.separation_vector_mm[0] >= 0.0 {
             "+x".into()
         } else {
-            "−x".into()
+            "-x".into()
         },
         band: BandSeparation {
             min_mm: min[1],

@@ -81,10 +81,17 @@ pub struct RecombinerCheck {
     pub length_sensitivity: [f64; 2],
     /// ∂(residual dx)/∂Δθ, mm per degree, and ∂Δφ/∂Δθ, rad per degree.
     pub tilt_sensitivity: [f64; 2],
-    /// Length mismatch (mm) that breaks the overlap, and that breaks the phase.
-    pub length_mismatch_to_break_mm: [f64; 2],
-    /// Cut mismatch (°) that breaks the overlap, and that breaks the phase.
-    pub tilt_mismatch_to_break_deg: [f64; 2],
+    /// Length mismatch of the second displacer (mm, against a perfect pair) at which the
+    /// overlap breaks, and at which the phase breaks; null when it does not break within ±L.
+    pub length_mismatch_to_break_mm: [Option<f64>; 2],
+    /// Cut mismatch of the second displacer (°) at which the overlap breaks, and at which the
+    /// phase breaks; null when it does not break within ±10°.
+    pub tilt_mismatch_to_break_deg: [Option<f64>; 2],
+    /// Whether this pair, with its mismatches, is broken: not one spot, overlap below
+    /// [`MIN_OVERLAP`], or phase beyond [`MAX_PHASE_ERROR`].
+    pub broken: bool,
+    /// The verdict in words.
+    pub verdict: String,
     /// The scenario checked, ready to load.
     pub scenario: Value,
 }
@@ -217,13 +224,56 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
     let ls = [(lp.dx[0] - lm.dx[0]) / (2.0 * hl), (lp.phase - lm.phase) / (2.0 * hl)];
     let ts = [(tp.dx[0] - tm.dx[0]) / (2.0 * ht), (tp.phase - tm.phase) / (2.0 * ht)];
     let max_res = w * (-MIN_OVERLAP.ln()).sqrt();
-    let limit = |budget: f64, slope: f64| {
-        if slope.abs() > 0.0 {
-            budget / slope.abs()
-        } else {
-            f64::MAX
-        }
+    let broken_overlap = res > max_res || !at.recombined;
+    let broken_phase = reduce(at.phase).abs() > MAX_PHASE_ERROR;
+    let verdict = match (at.recombined, broken_overlap, broken_phase) {
+        (false, _, _) => "broken: the paths leave as separate spots".to_string(),
+        (true, true, _) => format!(
+            "broken: the recombining beams overlap to only {:.4}",
+            (-(res * res) / (w * w)).exp()
+        ),
+        (true, false, true) => format!(
+            "broken: the recombined phase is off by {:.3} rad (limit π/10)",
+            reduce(at.phase)
+        ),
+        _ => "recombines: one spot, overlap and phase within their limits".to_string(),
     };
+    // Break points: search the exact trace outward from a perfect pair on a logarithmic grid in
+    // both directions, then bisect the first crossing; the smaller magnitude of the two sides.
+    let search = |max: f64, eval: &dyn Fn(f64) -> Option<(f64, f64)>| -> [Option<f64>; 2] {
+        let mut out = [None, None];
+        for (k, out_k) in out.iter_mut().enumerate() {
+            let bad = |d: f64| {
+                eval(d).map(|(r, p)| {
+                    if k == 0 {
+                        r > max_res
+                    } else {
+                        reduce(p).abs() > MAX_PHASE_ERROR
+                    }
+                })
+            };
+            for sign in [1.0, -1.0] {
+                let mut prev = 0.0;
+                for i in 0..=90 {
+                    let d = sign * max * 10f64.powf(-9.0 + 9.0 * i as f64 / 90.0);
+                    if bad(d) == Some(true) {
+                        let (mut lo, mut hi) = (prev, d);
+                        for _ in 0..60 {
+                            let mid = 0.5 * (lo + hi);
+                            if bad(mid) == Some(true) { hi = mid } else { lo = mid }
+                        }
+                        let m = hi.abs();
+                        *out_k = Some(out_k.map_or(m, |o: f64| o.min(m)));
+                        break;
+                    }
+                    prev = d;
+                }
+            }
+        }
+        out
+    };
+    let along_length = |d: f64| outcome(req, d, 0.0).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
+    let along_tilt = |d: f64| outcome(req, 0.0, d).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
     Ok(RecombinerCheck {
         recombined: at.recombined,
         residual_vector_mm: at.dx,
@@ -234,8 +284,10 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
         stray_power: at.stray.max(0.0),
         length_sensitivity: ls,
         tilt_sensitivity: ts,
-        length_mismatch_to_break_mm: [limit(max_res, ls[0]), limit(MAX_PHASE_ERROR, ls[1])],
-        tilt_mismatch_to_break_deg: [limit(max_res, ts[0]), limit(MAX_PHASE_ERROR, ts[1])],
+        length_mismatch_to_break_mm: search(req.length_mm, &along_length),
+        tilt_mismatch_to_break_deg: search(10.0, &along_tilt),
+        broken: broken_overlap || broken_phase,
+        verdict,
         scenario: req.scenario(dl0, dt0),
     })
 }
@@ -291,10 +343,20 @@ mod tests {
             c.length_sensitivity[1],
             k0 * (n_th - ix.no)
         );
-        // The phase breaks long before the overlap does.
-        assert!(c.length_mismatch_to_break_mm[1] < 1e-3 * c.length_mismatch_to_break_mm[0]);
-        // At the maximum-walk-off cut the residual is insensitive to a cut mismatch.
+        // The phase breaks long before the overlap does; both break points agree with the
+        // linearization (overlap: Δs = tan ρ ΔL reaches 0.1 w; phase: Δφ reaches π/10).
+        let [lo, lp] = c.length_mismatch_to_break_mm.map(Option::unwrap);
+        assert!(lp < 1e-3 * lo, "{lp} vs {lo}");
+        let expect_lo = 0.5 * (-MIN_OVERLAP.ln()).sqrt() / rho.tan().abs();
+        assert!((lo - expect_lo).abs() < 1e-6 * expect_lo, "{lo} vs {expect_lo}");
+        let expect_lp = MAX_PHASE_ERROR / (k0 * (n_th - ix.no).abs());
+        assert!((lp - expect_lp).abs() < 1e-3 * expect_lp, "{lp} vs {expect_lp}");
+        // At the maximum-walk-off cut the residual is insensitive to a cut mismatch to first
+        // order; the phase still breaks, and first.
         assert!(c.tilt_sensitivity[0].abs() < 1e-4, "{}", c.tilt_sensitivity[0]);
+        let [to, tp] = c.tilt_mismatch_to_break_deg;
+        assert!(tp.unwrap() < to.unwrap_or(f64::INFINITY));
+        assert!(!c.broken, "{}", c.verdict);
     }
 
     #[test]
@@ -314,5 +376,7 @@ mod tests {
             c.residual_separation_mm
         );
         assert!(c.overlap < 1.0);
+        // 50 µm of length mismatch puts the phase far beyond π/10: the pair is broken.
+        assert!(c.broken, "{}", c.verdict);
     }
 }

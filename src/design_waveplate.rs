@@ -22,7 +22,7 @@
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
 //! memory).
 
-use crate::design_displacer::{band, crystal_element, indices_of, medium_name, parse_medium, wavelength_field};
+use crate::design_displacer::{band, crystal_element, indices_of, medium_name, parse_medium, wavelength_field, whole};
 use crate::error::{Error, in_range};
 use crate::json_fields::{Fields, number_list};
 use crate::material::{Indices, OpticalSign};
@@ -75,8 +75,10 @@ pub struct AngularCurve {
     /// Samples [incidence °, retardance waves].
     pub curve: Vec<[f64; 2]>,
     /// Largest incidence (°) up to which |Γ − Γ(0)| stays within the error; the curve's end if
-    /// it never leaves.
+    /// it never leaves (then `acceptance_reached` is false: the acceptance is *at least* this).
     pub acceptance_deg: f64,
+    /// Whether the error limit was reached within the curve.
+    pub acceptance_reached: bool,
 }
 
 /// A plate of a design.
@@ -93,6 +95,12 @@ pub struct PlateSpec {
 /// A solved waveplate.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct WaveplateDesign {
+    /// Design wavelength, nm.
+    pub wavelength_nm: f64,
+    /// Largest angle of incidence of the angular curves, degrees.
+    pub max_incidence_deg: f64,
+    /// Retardance error that defines the acceptance angle, waves.
+    pub acceptance_error_waves: f64,
     /// Indices at the design wavelength.
     pub no: f64,
     /// Extraordinary principal index.
@@ -160,6 +168,7 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
                 })
                 .collect();
             let mut acceptance = max_deg;
+            let mut reached = false;
             if let Some(k) = curve.iter().position(|p| (p[1] - g0).abs() > err_waves) {
                 // Bisect between the last good sample and the first bad one.
                 let (mut lo, mut hi) = (curve[k.saturating_sub(1)][0], curve[k][0]);
@@ -171,11 +180,13 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
                     }
                 }
                 acceptance = lo;
+                reached = true;
             }
             AngularCurve {
                 plane_azimuth_deg: plane,
                 curve,
                 acceptance_deg: acceptance,
+                acceptance_reached: reached,
             }
         })
         .collect()
@@ -192,9 +203,7 @@ impl WaveplateRequest {
         let retardance_waves = in_range("retardance_waves", f.required_number("retardance_waves")?, 1e-6, 1e4)?;
         let order = match f.string("order")? {
             None | Some("zero") => Order::Zero,
-            Some("multiple") => {
-                Order::Multiple(in_range("order_number", f.number_or("order_number", 1.0)?, 0.0, 1e5)?.round() as u32)
-            }
+            Some("multiple") => Order::Multiple(whole(f, "order_number", 1.0, 0.0, 1e5)? as u32),
             Some("compound") => Order::Compound {
                 base_mm: in_range("base_mm", f.number_or("base_mm", 1.0)?, 1e-3, 100.0)?,
             },
@@ -265,6 +274,9 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .collect();
     let scenario = json!({"version": 1, "wavelength_nm": nm, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 45.0}}, "elements": elements});
     Ok(WaveplateDesign {
+        wavelength_nm: nm,
+        max_incidence_deg: req.max_incidence_deg,
+        acceptance_error_waves: req.acceptance_error_waves,
         no: ix.no,
         ne: ix.ne,
         birefringence: dn,
@@ -308,7 +320,7 @@ pub struct AchromatRequest {
 pub struct AchromatDesign {
     /// The plates: thickness of each; a crossed plate has its axis at 90°.
     pub plates: Vec<PlateSpec>,
-    /// Retardance at the two design wavelengths, waves (equal to the target).
+    /// Retardance at the two design wavelengths, waves (the target, to rounding: ~1e-12).
     pub at_design_wavelengths: [[f64; 2]; 2],
     /// Retardance against wavelength [nm, waves].
     pub wavelength_curve: Vec<[f64; 2]>,

@@ -191,7 +191,12 @@ mod tests {
 /// The path at the error (empty for the top level) with serde_json's message.
 pub fn parse_text(text: &str) -> Result<Value, crate::error::Error> {
     serde_json::from_str(text).map_err(|e| {
-        let offset = byte_offset(text, e.line(), e.column());
+        // At the end of a truncated document, everything read so far counts.
+        let offset = if e.is_eof() {
+            text.len()
+        } else {
+            byte_offset(text, e.line(), e.column())
+        };
         crate::error::Error::new(path_at(text, offset), format!("not valid JSON: {e}"))
     })
 }

@@ -641,7 +641,7 @@ mod tests {
                 "elements[0].retardance_waves",
             ),
             (r#"[1, 2]"#, ""),
-            (r#"{"elements": [{"kind": "rotator", "angle_deg": 1}"#, ""),
+            (r#"{"elements": [{"kind": "rotator", "angle_deg": 1}"#, "elements[0]"),
         ];
         for (doc, field) in cases {
             let e = Scenario::from_json_str(doc).unwrap_err();

@@ -112,7 +112,15 @@ pub fn displacer_chunk(text: &str, chunk: usize) -> Result<Vec<f64>, JsValue> {
     let value: serde_json::Value =
         serde_json::from_str(text).map_err(|e| js_error(Error::new("", format!("not valid JSON: {e}"))))?;
     let mut f = Fields::new("", &value).map_err(js_error)?;
-    let _ = f.string("kind");
+    match f.string("kind").map_err(js_error)? {
+        None | Some("displacer") => {}
+        Some(other) => {
+            return Err(js_error(Error::new(
+                "kind",
+                format!("Monte Carlo chunks are for displacers, not '{other}'"),
+            )));
+        }
+    }
     let mut req = design_displacer::DisplacerRequest::from_json(&mut f).map_err(js_error)?;
     f.finish().map_err(js_error)?;
     let samples = req.samples;
