@@ -131,6 +131,17 @@ pub struct WaveplateDesign {
     pub scenario: Value,
 }
 
+fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
+    plates
+        .iter()
+        .map(|(md, l, az)| PlateSpec {
+            material: medium_name(md),
+            thickness_mm: *l,
+            axis_azimuth_deg: *az,
+        })
+        .collect()
+}
+
 fn sign_word(ix: Indices) -> &'static str {
     match ix.sign() {
         Some(OpticalSign::Negative) => "optic axis",
@@ -282,14 +293,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         birefringence: dn,
         order: order.into(),
         order_number,
-        plates: plates
-            .iter()
-            .map(|(md, l, az)| PlateSpec {
-                material: medium_name(md),
-                thickness_mm: *l,
-                axis_azimuth_deg: *az,
-            })
-            .collect(),
+        plates: plate_specs(&plates),
         effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
         retardance_waves: g,
         fast_axis: sign_word(ix).into(),
@@ -438,14 +442,7 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         .map(|(md, l, az)| crystal_element(md, *l, 90.0, *az, 0.0))
         .collect();
     Ok(AchromatDesign {
-        plates: plates
-            .iter()
-            .map(|(md, l, az)| PlateSpec {
-                material: medium_name(md),
-                thickness_mm: *l,
-                axis_azimuth_deg: *az,
-            })
-            .collect(),
+        plates: plate_specs(&plates),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,
