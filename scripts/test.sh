@@ -26,8 +26,9 @@ fi
 echo "$SIZE bytes (budget $WASM_BUDGET)"
 echo "== native tests"
 cargo test --all-targets
-echo "== doc tests"
+echo "== doc tests and documentation"
 cargo test --doc
+RUSTDOCFLAGS="-D warnings" cargo doc --no-deps --quiet
 echo "== independent numpy reference"
 tests/reference/run.sh
 echo "== bindings in headless Chromium"
