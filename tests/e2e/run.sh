@@ -4,6 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 scripts/build-web.sh
+scripts/build-single.sh
 cargo build --release --bin doublespar
 cd tests/e2e
 if [ -f package-lock.json ]; then

@@ -1,0 +1,241 @@
+// The single offline file (target/single/doublespar.html, from scripts/build-single.sh) and the
+// embedding (www/embed.js, www/embed.html, www/embed-example.html) in headless Chromium.
+//
+// (a) The single file opened from file:// with every request that is not the file itself
+//     aborted: it renders, follows a control, runs a design in its worker, asks for nothing.
+// (b) The example documentation page from the local server: two <spar-figure> elements show
+//     their own scenarios, changing one leaves the other's pixels alone, the iframe renders.
+
+import { test, before, after } from 'node:test';
+import assert from 'node:assert/strict';
+import fs from 'node:fs';
+import path from 'node:path';
+import { spawnSync } from 'node:child_process';
+import { pathToFileURL } from 'node:url';
+import { ROOT, startServer, launchBrowser, openPage, ensureBuilt, cliTrace, close } from './support.mjs';
+
+const SINGLE = path.join(ROOT, 'target', 'single', 'doublespar.html');
+
+let server;
+let browser;
+
+before(
+  async () => {
+    ensureBuilt();
+    if (!fs.existsSync(SINGLE)) {
+      const r = spawnSync(path.join(ROOT, 'scripts', 'build-single.sh'), [], { cwd: ROOT, stdio: 'inherit' });
+      if (r.status !== 0) throw new Error('scripts/build-single.sh failed');
+    }
+    server = await startServer();
+    browser = await launchBrowser();
+  },
+  { timeout: 30 * 60 * 1000 },
+);
+
+after(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+/** Counts the non-background pixels of every canvas matching `selector` (run in the page). */
+function inkOf(selector) {
+  const out = [];
+  for (const c of document.querySelectorAll(selector)) {
+    if (c.width === 0 || c.height === 0) {
+      out.push({ view: c.dataset.view, ink: 0 });
+      continue;
+    }
+    const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+    let ink = 0;
+    for (let i = 0; i < d.length; i += 4) {
+      if (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2]) ink += 1;
+    }
+    out.push({ view: c.dataset.view, ink });
+  }
+  return out;
+}
+
+test('the single file works from file:// with no network: it renders, follows a control, runs a design, fetches nothing', { timeout: 120000 }, async () => {
+  assert.ok(fs.existsSync(SINGLE), `${SINGLE} exists (scripts/build-single.sh)`);
+  const size = fs.statSync(SINGLE).size;
+  assert.ok(size <= 600 * 1024, `the single file is ${size} bytes, within 600 KiB`);
+  const fileUrl = pathToFileURL(SINGLE).href;
+  const context = await browser.newContext({ colorScheme: 'light' });
+  const requests = [];
+  const aborted = [];
+  const consoleErrors = [];
+  const pageErrors = [];
+  await context.route('**', (route) => {
+    const url = route.request().url();
+    if (url.startsWith('file:') || url.startsWith('data:') || url.startsWith('blob:')) return route.continue();
+    aborted.push(url);
+    return route.abort('blockedbyclient');
+  });
+  context.on('request', (req) => requests.push(req.url()));
+  const page = await context.newPage();
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') consoleErrors.push(msg.text());
+  });
+  page.on('pageerror', (err) => pageErrors.push(String(err && err.stack ? err.stack : err)));
+  try {
+    await page.goto(fileUrl);
+    await page.waitForFunction(() => {
+      const q = document.querySelector('[data-quantity="elements[0].separation_mm"]');
+      return window.doublespar && q && q.getAttribute('data-value');
+    }, null, { timeout: 30000 });
+
+    // Renders: every view canvas has ink.
+    const ink = await page.evaluate(inkOf, 'canvas[data-view]');
+    assert.ok(ink.length >= 2, `views found: ${JSON.stringify(ink)}`);
+    for (const v of ink) assert.ok(v.ink > 100, `the ${v.view} view is drawn (${v.ink} non-background pixels)`);
+
+    // Follows a control: the thickness field changes the separation, as the command line says.
+    const sel = '[data-quantity="elements[0].separation_mm"]';
+    const sep0 = Number(await page.getAttribute(sel, 'data-value'));
+    const thick = page.locator('input:not([type=range])[data-field="elements[0].thickness_mm"]');
+    await thick.fill('3.7');
+    await thick.press('Tab');
+    await page.waitForFunction(([s, v]) => Number(document.querySelector(s).getAttribute('data-value')) !== v, [sel, sep0], { timeout: 10000 });
+    const sep1 = Number(await page.getAttribute(sel, 'data-value'));
+    const cli = cliTrace(await page.evaluate(() => window.doublespar.session.scenarioJson()));
+    assert.ok(close(sep1, cli.elements[0].separation_mm), `separation ${sep1} equals the command line's ${cli.elements[0].separation_mm}`);
+    assert.ok(!close(sep0, sep1, 1e-6), `the separation changed (${sep0} → ${sep1})`);
+
+    // The design panel's worker: a displacer with a short Monte Carlo run finishes.
+    await page.selectOption('[data-design-field="kind"]', 'displacer');
+    for (const [f, v] of [['separation_mm', '2'], ['samples', '20000']]) {
+      await page.fill(`[data-design-field="${f}"]`, v);
+      await page.press(`[data-design-field="${f}"]`, 'Tab');
+    }
+    await page.click('#design-solve');
+    await page.waitForFunction(() => document.getElementById('design').dataset.state === 'done', null, { timeout: 30000 })
+      .catch(async () => assert.fail(`the design panel is ${await page.evaluate(() => document.getElementById('design').dataset.state)}: ${await page.textContent('#design-status')}`));
+    const n = await page.getAttribute('[data-quantity="design.monte_carlo.n"]', 'data-value');
+    assert.ok(Number(n) > 0, `the Monte Carlo summary is shown (n = ${n})`);
+
+    // Nothing but the file itself (and inline data:/blob: URLs).
+    const foreign = requests.filter((u) => u !== fileUrl && !u.startsWith('data:') && !u.startsWith('blob:'));
+    assert.deepEqual(foreign, [], 'no request but the file itself');
+    assert.deepEqual(aborted, [], 'nothing had to be blocked');
+    assert.deepEqual(pageErrors, [], 'no page error');
+    assert.deepEqual(consoleErrors, [], 'no console error');
+    assert.equal(await page.isHidden('#panic'), true, 'no panic banner');
+  } finally {
+    await context.close();
+  }
+});
+
+test('the example documentation page: two independent figures and an iframe', { timeout: 90000 }, async () => {
+  const missingBefore = server.missing.length;
+  const { context, page, log } = await openPage(browser, server.origin);
+  try {
+    await page.goto(`${server.origin}/embed-example.html`);
+    await page.waitForFunction(() => {
+      const figs = [...document.querySelectorAll('spar-figure')];
+      return figs.length === 2 && figs.every((f) => f.getAttribute('data-state') === 'ready');
+    }, null, { timeout: 30000 });
+
+    // Each shows its own scenario.
+    const info = await page.evaluate(() => [...document.querySelectorAll('spar-figure')].map((f) => ({
+      id: f.id,
+      material: f.scenario.elements[0].material,
+      elements: f.result.elements.length,
+      views: [...f.shadowRoot.querySelectorAll('canvas[data-view]')].map((c) => c.dataset.view),
+      sep: Number(f.shadowRoot.querySelector('[data-quantity="elements[0].separation_mm"]').getAttribute('data-value')),
+    })));
+    assert.equal(info[0].id, 'fig-displacer');
+    assert.equal(info[0].material, 'calcite');
+    assert.equal(info[0].elements, 1);
+    assert.deepEqual(info[0].views, ['side', 'end']);
+    assert.equal(info[1].material, 'yvo4');
+    assert.equal(info[1].elements, 3);
+    assert.deepEqual(info[1].views, ['side', 'end', 'poincare']);
+    assert.ok(await page.evaluate(() => {
+      const [a, b] = document.querySelectorAll('spar-figure');
+      return a.session !== b.session;
+    }), 'each figure has its own Session');
+    const cli = cliTrace(await page.evaluate(() => document.getElementById('fig-displacer').session.scenarioJson()));
+    assert.ok(close(info[0].sep, cli.elements[0].separation_mm), `figure 1 separation ${info[0].sep} is the command line's`);
+
+    const pixels = (id) => page.evaluate((fid) => [...document.getElementById(fid).shadowRoot.querySelectorAll('canvas')].map((c) => {
+      const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+      let h = 0;
+      let ink = 0;
+      for (let i = 0; i < d.length; i += 1) {
+        h = (h * 31 + d[i]) >>> 0;
+        if (i % 4 === 0 && (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2])) ink += 1;
+      }
+      return { w: c.width, h: c.height, hash: h, ink };
+    }), id);
+    const a0 = await pixels('fig-displacer');
+    const b0 = await pixels('fig-pair');
+    for (const p of [...a0, ...b0]) assert.ok(p.ink > 100, `every view is drawn (${JSON.stringify(p)})`);
+
+    // The interactive thickness slider of figure 1 changes its separation and pixels only.
+    await page.evaluate(() => {
+      const s = document.getElementById('fig-displacer').shadowRoot.querySelector('input[type=range][data-field="elements[0].thickness_mm"]');
+      s.value = '4';
+      s.dispatchEvent(new Event('input', { bubbles: true }));
+    });
+    const sepA = await page.evaluate(() => Number(document.getElementById('fig-displacer').shadowRoot.querySelector('[data-quantity="elements[0].separation_mm"]').getAttribute('data-value')));
+    assert.ok(!close(sepA, info[0].sep, 1e-6), `the slider changed the separation (${info[0].sep} → ${sepA})`);
+    assert.equal(await page.evaluate(() => document.getElementById('fig-displacer').scenario.elements[0].thickness_mm), 4);
+    const a1 = await pixels('fig-displacer');
+    assert.notDeepEqual(a1.map((p) => p.hash), a0.map((p) => p.hash), 'figure 1 was redrawn');
+    assert.deepEqual(await pixels('fig-pair'), b0, "figure 2's pixels did not change");
+
+    // Setting figure 2's scenario attribute changes figure 2 only.
+    await page.evaluate(() => {
+      const f = document.getElementById('fig-pair');
+      const sc = f.scenario;
+      sc.elements[0].thickness_mm = 3;
+      f.setAttribute('scenario', JSON.stringify(sc));
+    });
+    assert.equal(await page.evaluate(() => document.getElementById('fig-pair').scenario.elements[0].thickness_mm), 3);
+    assert.notDeepEqual((await pixels('fig-pair')).map((p) => p.hash), b0.map((p) => p.hash), 'figure 2 was redrawn');
+    assert.deepEqual(await pixels('fig-displacer'), a1, "figure 1's pixels did not change");
+
+    // A bad scenario shows its message inside the element and keeps the picture.
+    await page.evaluate(() => document.getElementById('fig-pair').setAttribute('scenario', '{"version": 1, "wavelength_nm": -5, "elements": []}'));
+    const err = await page.evaluate(() => {
+      const e = document.getElementById('fig-pair').shadowRoot.querySelector('.error');
+      return { hidden: e.hidden, text: e.textContent, state: document.getElementById('fig-pair').getAttribute('data-state') };
+    });
+    assert.equal(err.hidden, false, 'the error is shown');
+    assert.match(err.text, /wavelength_nm/, 'the error names its field');
+    assert.equal(err.state, 'error');
+
+    // The iframe renders its views.
+    const frame = page.frameLocator('#frame-pair');
+    await frame.locator('spar-figure[data-state="ready"]').waitFor({ timeout: 30000 });
+    const frameInfo = await page.frame({ url: /embed\.html/ }).evaluate(() => {
+      const f = document.querySelector('spar-figure');
+      return {
+        views: [...f.shadowRoot.querySelectorAll('canvas')].map((c) => {
+          const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+          let ink = 0;
+          for (let i = 0; i < d.length; i += 4) if (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2]) ink += 1;
+          return { view: c.dataset.view, ink };
+        }),
+        elements: f.result.elements.length,
+      };
+    });
+    assert.deepEqual(frameInfo.views.map((v) => v.view), ['side', 'end']);
+    for (const v of frameInfo.views) assert.ok(v.ink > 100, `the iframe's ${v.view} view is drawn (${v.ink})`);
+    assert.equal(frameInfo.elements, 3, 'the iframe shows the scenario of its fragment');
+
+    // Resizing a figure redraws it at the new size.
+    await page.evaluate(() => { document.getElementById('fig-pair').style.height = '20rem'; });
+    await page.waitForFunction(() => {
+      const c = document.getElementById('fig-pair').shadowRoot.querySelector('canvas');
+      return c.height > 0 && Math.abs(c.height - c.clientHeight * devicePixelRatio) < 2;
+    }, null, { timeout: 5000 });
+
+    assert.deepEqual(log.foreign, [], 'no request to any other host');
+    assert.deepEqual(log.pageErrors, [], 'no page error');
+    assert.deepEqual(log.consoleErrors, [], 'no console error');
+    assert.deepEqual(server.missing.slice(missingBefore), [], 'no file missing');
+  } finally {
+    await context.close();
+  }
+});
