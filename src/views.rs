@@ -42,6 +42,20 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
     })
 }
 
+/// The data behind a plot view (`walkoff-tilt`, `separation-wavelength`,
+/// `retardance-wavelength`), for export; `None` for views that are not plots.
+///
+/// # Errors
+/// `wavelength_nm` if the formula breaks down.
+pub fn series(name: &str, scenario: &Scenario) -> Result<Option<sweep::Series>, Error> {
+    Ok(match name {
+        "walkoff-tilt" => Some(sweep::walkoff_vs_tilt(scenario, 0)?),
+        "separation-wavelength" => Some(sweep::separation_vs_wavelength(scenario, 0)),
+        "retardance-wavelength" => Some(sweep::retardance_vs_wavelength(scenario, 0)),
+        _ => None,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

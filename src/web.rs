@@ -268,6 +268,18 @@ impl Session {
         canvas::draw(&scene, canvas, &palette)
     }
 
+    /// The data of a plot view as `{title, x_label, x_unit, y_label, y_unit, points, current,
+    /// note}`, or `null` for a view that is not a plot (for CSV and JSON export).
+    ///
+    /// # Errors
+    /// `{field, message}` if the formula breaks down.
+    pub fn series(&self, view: &str) -> Result<JsValue, JsValue> {
+        match views::series(view, &self.scenario).map_err(js_error)? {
+            Some(s) => to_js(&s),
+            None => Ok(JsValue::NULL),
+        }
+    }
+
     /// A view as an SVG document of the given size in pixels.
     ///
     /// # Errors
