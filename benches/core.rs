@@ -71,6 +71,10 @@ fn main() {
     let (t_pointwise, sum_pointwise) = time(9, || walkoff_sweep(black_box(ix), 1_000_000));
     let mut buffer = vec![0.0; 1_000_000];
     let (t_sweep, sum) = time(9, || walkoff_sweep_dense(black_box(ix), &mut buffer));
+    let (t_single, _) = time(9, || {
+        doublespar::sweep::walkoff_sweep_into(black_box(ix), 0.0, std::f64::consts::FRAC_PI_2, &mut buffer);
+        buffer.iter().sum()
+    });
     assert!(
         (sum - sum_pointwise).abs() < 1e-8,
         "dense {sum} vs pointwise {sum_pointwise}"
@@ -104,9 +108,10 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
+        t_single * 1e3,
         t_exact * 1e3,
         t_mc * 1e3
     );

@@ -135,6 +135,20 @@ pub fn displacer_chunk(text: &str, chunk: usize) -> Result<Vec<f64>, JsValue> {
     ))
 }
 
+/// Benchmark hook: the dense 10ⁿ-point walk-off sweep of [`crate::sweep::walkoff_sweep_into`]
+/// for calcite-like indices over 0–90°, returning Σ ρ as a checksum (scripts/bench.sh runs it
+/// under Node beside the native build).
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = benchWalkoffSweep)]
+pub fn bench_walkoff_sweep(n: usize) -> f64 {
+    let Ok(ix) = crate::material::Indices::new(1.6556901060179166, 1.484909030214121) else {
+        return f64::NAN;
+    };
+    let mut out = vec![0.0; n];
+    crate::sweep::walkoff_sweep_into(ix, 0.0, std::f64::consts::FRAC_PI_2, &mut out);
+    out.iter().sum()
+}
+
 /// Summary statistics (mean, std, p5, p95, histogram) of samples, as the design reports them.
 ///
 /// # Errors
