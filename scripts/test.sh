@@ -35,6 +35,8 @@ echo "== bindings in headless Chromium"
 CHROMEDRIVER="${CHROMEDRIVER:-/usr/bin/chromedriver}" cargo test --target wasm32-unknown-unknown --test wasm
 echo "== page end to end"
 tests/e2e/run.sh
+echo "== budgets: page load to first render and wasm size (the benchmark, enforcing those two)"
+node scripts/bench-web.mjs --iterations 200 --mc-runs 5
 echo "== fuzzing (bounded: FUZZ_SECONDS per target, default 45)"
 FUZZ_SECONDS="${FUZZ_SECONDS:-45}" fuzz/run.sh
 # Every suite above stops the script on failure (set -e), so reaching here means all passed.
