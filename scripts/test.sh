@@ -26,6 +26,8 @@ fi
 echo "$SIZE bytes (budget $WASM_BUDGET)"
 echo "== native tests"
 cargo test --all-targets
+echo "== property tests at scale"
+PROPTEST_CASES="${PROPTEST_CASES:-4000}" cargo test --test invariants
 echo "== doc tests and documentation"
 cargo test --doc
 RUSTDOCFLAGS="-D warnings" cargo doc --no-deps --quiet

@@ -145,7 +145,9 @@ fn check_physical(r: &TraceResult) {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 400, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig {
+        // 400 cases by default; CI runs them at scale with PROPTEST_CASES (scripts/test.sh).
+        cases: std::env::var("PROPTEST_CASES").ok().and_then(|v| v.parse().ok()).unwrap_or(400), ..ProptestConfig::default() })]
 
     #[test]
     fn ideal_stacks_conserve_power(
