@@ -5,7 +5,7 @@
 //! the scene is fitted with the same [`Viewport`] the SVG writer uses, and coloured from the same
 //! [`Palette`].
 
-use crate::scene::{Anchor, Item, Scene, Viewport};
+use crate::scene::{Anchor, Item, Scene, Viewport, arrow_head};
 use crate::svg::Palette;
 use wasm_bindgen::JsValue;
 use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
@@ -57,13 +57,7 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 ctx.set_line_dash(&arr)?;
                 ctx.set_stroke_style_str(palette.stroke(*role));
                 ctx.set_line_width(*width);
-                ctx.begin_path();
-                let [x, y] = vp.map(points[0]);
-                ctx.move_to(x, y);
-                for p in &points[1..] {
-                    let [x, y] = vp.map(*p);
-                    ctx.line_to(x, y);
-                }
+                path(&ctx, &vp, points);
                 ctx.stroke();
                 ctx.set_line_dash(&empty)?;
             }
@@ -71,13 +65,7 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 if points.is_empty() {
                     continue;
                 }
-                ctx.begin_path();
-                let [x, y] = vp.map(points[0]);
-                ctx.move_to(x, y);
-                for p in &points[1..] {
-                    let [x, y] = vp.map(*p);
-                    ctx.line_to(x, y);
-                }
+                path(&ctx, &vp, points);
                 ctx.close_path();
                 let fill = palette.fill(*role);
                 if fill != "none" {
@@ -106,13 +94,7 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                     0.0,
                     std::f64::consts::TAU,
                 )?;
-                if *filled {
-                    ctx.set_fill_style_str(palette.fill(*role));
-                    ctx.fill();
-                }
-                ctx.set_stroke_style_str(palette.stroke(*role));
-                ctx.set_line_width(1.5);
-                ctx.stroke();
+                fill_and_stroke(&ctx, palette, *role, *filled);
             }
             Item::Dot {
                 center,
@@ -124,13 +106,7 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 let [x, y] = vp.map(*center);
                 ctx.begin_path();
                 ctx.arc(x, y, *radius_px, 0.0, std::f64::consts::TAU)?;
-                if *filled {
-                    ctx.set_fill_style_str(palette.fill(*role));
-                    ctx.fill();
-                }
-                ctx.set_stroke_style_str(palette.stroke(*role));
-                ctx.set_line_width(1.5);
-                ctx.stroke();
+                fill_and_stroke(&ctx, palette, *role, *filled);
             }
             Item::Arrow {
                 from,
@@ -148,12 +124,11 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 ctx.move_to(x0, y0);
                 ctx.line_to(x1, y1);
                 ctx.stroke();
-                let a = (y1 - y0).atan2(x1 - x0);
-                let spread = 0.45f64;
+                let [p1, p2] = arrow_head([x0, y0], [x1, y1], *head_px);
                 ctx.begin_path();
                 ctx.move_to(x1, y1);
-                ctx.line_to(x1 - head_px * (a - spread).cos(), y1 - head_px * (a - spread).sin());
-                ctx.line_to(x1 - head_px * (a + spread).cos(), y1 - head_px * (a + spread).sin());
+                ctx.line_to(p1[0], p1[1]);
+                ctx.line_to(p2[0], p2[1]);
                 ctx.close_path();
                 ctx.fill();
             }
@@ -193,6 +168,30 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
     ctx.set_fill_style_str(&palette.muted);
     ctx.fill_text(&scene.caption, 8.0, h - 8.0)?;
     Ok(())
+}
+
+/// Fills the current path (when `filled`) and outlines it, in the role's colours.
+fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: crate::scene::Role, filled: bool) {
+    if filled {
+        ctx.set_fill_style_str(palette.fill(role));
+        ctx.fill();
+    }
+    ctx.set_stroke_style_str(palette.stroke(role));
+    ctx.set_line_width(1.5);
+    ctx.stroke();
+}
+
+/// Starts a path through `points` mapped to the screen (nothing for no points).
+fn path(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[crate::scene::Point]) {
+    ctx.begin_path();
+    if let Some((first, rest)) = points.split_first() {
+        let [x, y] = vp.map(*first);
+        ctx.move_to(x, y);
+        for p in rest {
+            let [x, y] = vp.map(*p);
+            ctx.line_to(x, y);
+        }
+    }
 }
 
 trait IntoContext {

@@ -131,6 +131,26 @@ impl RecombinerRequest {
             }
         };
         let _ = f.get("rotator_deg");
+        // The second displacer must still be a plate: refused, not clamped, when the mismatch
+        // would make its length non-positive or its tilt leave 0–180°.
+        let length_mismatch_mm = in_range(
+            "length_mismatch_mm",
+            f.number_or("length_mismatch_mm", 0.0)?,
+            -length_mm,
+            1e3,
+        )?;
+        if length_mm + length_mismatch_mm <= 0.0 {
+            return Err(Error::new(
+                "length_mismatch_mm",
+                format!("must leave the second displacer a positive length (more than −{length_mm} mm)"),
+            ));
+        }
+        let tilt_mismatch_deg = in_range(
+            "tilt_mismatch_deg",
+            f.number_or("tilt_mismatch_deg", 0.0)?,
+            -cut_tilt_deg,
+            180.0 - cut_tilt_deg,
+        )?;
         Ok(RecombinerRequest {
             medium,
             wavelength,
@@ -138,8 +158,8 @@ impl RecombinerRequest {
             cut_tilt_deg,
             beam_diameter_mm,
             middle,
-            length_mismatch_mm: in_range("length_mismatch_mm", f.number_or("length_mismatch_mm", 0.0)?, -1e3, 1e3)?,
-            tilt_mismatch_deg: in_range("tilt_mismatch_deg", f.number_or("tilt_mismatch_deg", 0.0)?, -90.0, 90.0)?,
+            length_mismatch_mm,
+            tilt_mismatch_deg,
         })
     }
 
@@ -155,7 +175,7 @@ impl RecombinerRequest {
             "version": 1, "wavelength_nm": self.wavelength.nm(),
             "beam": {"diameter_mm": self.beam_diameter_mm, "polarization": {"kind": "linear", "azimuth_deg": 45.0}},
             "elements": [plate(self.length_mm, self.cut_tilt_deg), middle,
-                         plate((self.length_mm + dl).max(1e-9), (self.cut_tilt_deg + dt).clamp(0.0, 180.0))],
+                         plate(self.length_mm + dl, self.cut_tilt_deg + dt)],
         })
     }
 }
@@ -357,6 +377,24 @@ mod tests {
         let [to, tp] = c.tilt_mismatch_to_break_deg;
         assert!(tp.unwrap() < to.unwrap_or(f64::INFINITY));
         assert!(!c.broken, "{}", c.verdict);
+    }
+
+    #[test]
+    fn impossible_mismatches_are_refused_not_clamped() {
+        for (doc, field) in [
+            (
+                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
+                "length_mismatch_mm",
+            ),
+            (
+                r#"{"material": "calcite", "length_mm": 5, "cut_tilt_deg": 45, "tilt_mismatch_deg": 140}"#,
+                "tilt_mismatch_deg",
+            ),
+        ] {
+            let v: Value = serde_json::from_str(doc).unwrap();
+            let mut f = Fields::new("", &v).unwrap();
+            assert_eq!(RecombinerRequest::from_json(&mut f).unwrap_err().field, field, "{doc}");
+        }
     }
 
     #[test]

@@ -384,6 +384,14 @@ impl Viewport {
     }
 }
 
+/// The two back corners of an arrowhead (screen pixels) whose tip is `tip` on a shaft coming from
+/// `tail`: `head_px` long, spread ±0.45 rad. Shared by the canvas and the SVG writer.
+pub fn arrow_head(tail: Point, tip: Point, head_px: f64) -> [Point; 2] {
+    let a = (tip[1] - tail[1]).atan2(tip[0] - tail[0]);
+    let corner = |d: f64| [tip[0] - head_px * (a + d).cos(), tip[1] - head_px * (a + d).sin()];
+    [corner(-0.45), corner(0.45)]
+}
+
 /// A "nice" length for a scale bar or tick step: 1, 2 or 5 × 10ⁿ, the largest not above `max`.
 ///
 /// Degenerate case: a non-positive or non-finite `max` gives 1.
@@ -461,6 +469,16 @@ mod tests {
         assert_eq!(length_text(0.0123), "12.3 µm");
         assert_eq!(length_text(2.5e-5), "25.0 nm");
         assert_eq!(significant(123.456, 3), "123");
+    }
+
+    #[test]
+    fn arrow_heads_sit_behind_the_tip_symmetrically() {
+        let [p, q] = arrow_head([0.0, 0.0], [10.0, 0.0], 5.0);
+        assert!(
+            (p[0] - q[0]).abs() < 1e-12 && (p[1] + q[1]).abs() < 1e-12,
+            "mirror images about the shaft"
+        );
+        assert!((10.0 - p[0] - 5.0 * 0.45f64.cos()).abs() < 1e-12 && p[0] < 10.0);
     }
 
     #[test]

@@ -4,7 +4,7 @@
 //! be compared with the scene's world coordinates through the same map. Colours come from a
 //! [`Palette`]; the document carries no script and references nothing external.
 
-use crate::scene::{Anchor, Item, Role, Scene, Viewport};
+use crate::scene::{Anchor, Item, Role, Scene, Viewport, arrow_head};
 use std::fmt::Write;
 
 /// Colours for each role, as CSS colour strings.
@@ -111,6 +111,21 @@ fn esc(s: &str) -> String {
         .replace('"', "&quot;")
 }
 
+/// A circle or ellipse (semi-axes `r` in pixels) at `c`, outlined in the role's colour.
+fn round(out: &mut String, palette: &Palette, c: [f64; 2], r: [f64; 2], role: Role, filled: bool, tag: &str) {
+    let fill = if filled { palette.fill(role) } else { "none" };
+    let _ = write!(
+        out,
+        r#"<ellipse data-tag="{}" cx="{:.3}" cy="{:.3}" rx="{:.3}" ry="{:.3}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
+        esc(tag),
+        c[0],
+        c[1],
+        r[0],
+        r[1],
+        palette.stroke(role)
+    );
+}
+
 /// Writes `scene` as an SVG document of `width` × `height` pixels.
 pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> String {
     let vp = Viewport::fit(scene, width, height, 28.0);
@@ -177,15 +192,14 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
                 filled,
                 tag,
             } => {
-                let [x, y] = vp.map(*center);
-                let fill = if *filled { palette.fill(*role) } else { "none" };
-                let _ = write!(
-                    out,
-                    r#"<ellipse data-tag="{}" cx="{x:.3}" cy="{y:.3}" rx="{:.3}" ry="{:.3}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
-                    esc(tag),
-                    radius * vp.sx,
-                    radius * vp.sy,
-                    palette.stroke(*role)
+                round(
+                    &mut out,
+                    palette,
+                    vp.map(*center),
+                    [radius * vp.sx, radius * vp.sy],
+                    *role,
+                    *filled,
+                    tag,
                 );
             }
             Item::Dot {
@@ -195,13 +209,14 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
                 filled,
                 tag,
             } => {
-                let [x, y] = vp.map(*center);
-                let fill = if *filled { palette.fill(*role) } else { "none" };
-                let _ = write!(
-                    out,
-                    r#"<circle data-tag="{}" cx="{x:.3}" cy="{y:.3}" r="{radius_px}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
-                    esc(tag),
-                    palette.stroke(*role)
+                round(
+                    &mut out,
+                    palette,
+                    vp.map(*center),
+                    [*radius_px, *radius_px],
+                    *role,
+                    *filled,
+                    tag,
                 );
             }
             Item::Arrow {
@@ -218,10 +233,7 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
                     r#"<line data-tag="{}" x1="{x0:.3}" y1="{y0:.3}" x2="{x1:.3}" y2="{y1:.3}" stroke="{c}" stroke-width="1.5"/>"#,
                     esc(tag)
                 );
-                let a = (y1 - y0).atan2(x1 - x0);
-                let (h, spread) = (*head_px, 0.45f64);
-                let p1 = [x1 - h * (a - spread).cos(), y1 - h * (a - spread).sin()];
-                let p2 = [x1 - h * (a + spread).cos(), y1 - h * (a + spread).sin()];
+                let [p1, p2] = arrow_head([x0, y0], [x1, y1], *head_px);
                 let _ = write!(
                     out,
                     r#"<polygon points="{x1:.3},{y1:.3} {:.3},{:.3} {:.3},{:.3}" fill="{c}"/>"#,

@@ -7,7 +7,7 @@
 //! A panic hook writes any bug's message into the page (element `#panic`) instead of leaving a
 //! dead canvas.
 
-use crate::error::Error;
+use crate::error::{Error, in_range};
 #[cfg(feature = "design-worker")]
 use crate::json_fields::Fields;
 use crate::scenario::Scenario;
@@ -294,18 +294,15 @@ impl Session {
         }
     }
 
-    /// A view as an SVG document of the given size in pixels.
+    /// A view as an SVG document of the given size in pixels (50 to 10 000 each).
     ///
     /// # Errors
-    /// `{field: "view", message}` for an unknown view.
+    /// `{field: "view", message}` for an unknown view; `width` or `height` out of range.
     pub fn svg(&self, view: &str, width: f64, height: f64, dark: bool) -> Result<String, JsValue> {
+        let width = in_range("width", width, 50.0, 10_000.0).map_err(js_error)?;
+        let height = in_range("height", height, 50.0, 10_000.0).map_err(js_error)?;
         let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
         let palette = if dark { Palette::dark() } else { Palette::light() };
-        Ok(svg::to_svg(
-            &scene,
-            width.clamp(50.0, 10000.0),
-            height.clamp(50.0, 10000.0),
-            &palette,
-        ))
+        Ok(svg::to_svg(&scene, width, height, &palette))
     }
 }

@@ -887,6 +887,16 @@ function moreRow(which, shown, total, colspan) {
   return h('tr', { className: 'more-row' }, h('td', { colspan, className: 'empty' }, note, btn));
 }
 
+
+/** The polarization columns shared by the ray and spot tables: ellipse azimuth, ellipticity,
+ * handedness and degree of polarization of the item that `pick(result)` selects. */
+function appendPolarizationCells(tr, p, pick) {
+  tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => pick(x).ellipse.azimuth_deg, fmt.ellipseDeg));
+  tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => pick(x).ellipse.ellipticity_deg, fmt.ellipseDeg));
+  tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => pick(x).ellipse.handedness, fmt.text, { className: 'word' }));
+  tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
+}
+
 function buildResults(r) {
   cells = [];
   const elBox = document.getElementById('element-results');
@@ -942,10 +952,7 @@ function buildResults(r) {
     tr.appendChild(cell('td', `${p}.power`, (x) => x.rays[k].power, fmt.power));
     tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], fmt.mm));
     tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], fmt.mm));
-    tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => x.rays[k].ellipse.azimuth_deg, fmt.ellipseDeg));
-    tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => x.rays[k].ellipse.ellipticity_deg, fmt.ellipseDeg));
-    tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => x.rays[k].ellipse.handedness, fmt.text, { className: 'word' }));
-    tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => x.rays[k].degree_of_polarization, fmt.dop));
+    appendPolarizationCells(tr, p, (x) => x.rays[k]);
     rayRows.appendChild(tr);
   });
   if (r.rays.length === 0) {
@@ -964,10 +971,7 @@ function buildResults(r) {
     tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], fmt.mm));
     tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], fmt.mm));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
-    tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => x.spots[k].ellipse.azimuth_deg, fmt.ellipseDeg));
-    tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => x.spots[k].ellipse.ellipticity_deg, fmt.ellipseDeg));
-    tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => x.spots[k].ellipse.handedness, fmt.text, { className: 'word' }));
-    tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => x.spots[k].degree_of_polarization, fmt.dop));
+    appendPolarizationCells(tr, p, (x) => x.spots[k]);
     spotRows.appendChild(tr);
   });
   if (r.spots.length === 0) {
