@@ -1204,6 +1204,7 @@ function accept(result, text, scenarioObj, drawn = false) {
   lastGoodText = text;
   if (!drawn) for (const v of views) drawView(v);
   clearErrors();
+  clearFileError();
   renderResults(result);
   describeViews();
   updatePrintSheet(JSON.parse(session.scenarioJson()));
@@ -1322,9 +1323,16 @@ function readFragment() {
   }
 }
 
-function showFragmentError(text) {
+/** `field: message`, naming the whole document when the core gives no field. */
+function fieldText(fe) {
+  return `${fe.field || 'document'}: ${fe.message}`;
+}
+
+/** On first load nothing is there to keep (`kept` false): the demo is shown instead. */
+function showFragmentError(text, kept = false) {
   const el = document.getElementById('fragment-error');
-  el.textContent = `The set-up in this link could not be loaded, so the demo is shown instead: ${text}`;
+  const what = kept ? 'the current set-up was kept' : 'so the demo is shown instead';
+  el.textContent = `The set-up in this link could not be loaded, ${what}: ${text}`;
   el.hidden = false;
 }
 
@@ -1332,41 +1340,117 @@ function loadDemo() {
   loadScenario(JSON.parse(core.demoScenario()), false);
 }
 
-/** Loads the scenario of the fragment, or the demo (with a visible message when it is bad). */
-function loadFromLocation() {
+/**
+ * Checks a scenario's text with the core before anything on the page changes: {obj} when it
+ * traces (the session then holds it), else {error: {field, message}} (the session keeps the last
+ * good scenario).
+ */
+function tryScenarioText(text) {
+  try {
+    session.updateJson(text);
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    return { error: fe };
+  }
+  try {
+    return { obj: JSON.parse(text) };
+  } catch (e) {
+    return { error: { field: '', message: `not valid JSON (${e.message})` } };
+  }
+}
+
+/**
+ * Loads the scenario of the fragment. On first load (`previousHash` undefined) a bad fragment
+ * shows its message and the demo; the bad link stays in the address bar until the user edits.
+ * Later (the hash changed to `previousHash`'s successor) a bad fragment keeps the set-up on
+ * screen and puts its address back.
+ */
+function loadFromLocation(previousHash) {
+  const kept = previousHash !== undefined && lastGoodText !== null;
   const frag = readFragment();
   if (frag === null) {
     loadDemo();
     return;
   }
-  if (frag.error) {
-    showFragmentError(frag.error);
-    loadDemo();
-    return;
-  }
-  let obj = null;
-  try {
-    obj = JSON.parse(frag.text);
-  } catch (e) {
-    obj = undefined;
-    showFragmentError(`not valid JSON (${e.message})`);
-  }
-  if (obj !== undefined) {
-    try {
-      session.updateJson(frag.text);
+  let problem = frag.error;
+  if (!problem) {
+    const tried = tryScenarioText(frag.text);
+    if (tried.obj !== undefined) {
       const el = document.getElementById('fragment-error');
       el.hidden = true;
       el.textContent = '';
-      loadScenario(obj, false);
+      loadScenario(tried.obj, false);
       return;
-    } catch (e) {
-      const fe = toFieldError(e);
-      if (!fe) throw e;
-      showFragmentError(fe.field ? `${fe.field}: ${fe.message}` : fe.message);
     }
+    problem = fieldText(tried.error);
   }
-  // The bad link stays in the address bar (and its message on screen) until the user edits.
-  loadDemo();
+  showFragmentError(problem, kept);
+  if (!kept) {
+    loadDemo();
+    return;
+  }
+  const good = FRAGMENT_KEY + encodeURIComponent(lastGoodText);
+  const back = previousHash === '' || previousHash === good ? previousHash : good;
+  history.replaceState(history.state, '', `${location.pathname}${location.search}${back}`);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Opening a scenario file: checked by the core before anything on the page changes.
+
+const MAX_FILE_BYTES = 2 * 1024 * 1024;
+let fileToken = 0;
+
+function showFileError(name, text) {
+  const el = document.getElementById('file-error');
+  el.textContent = `${name} could not be opened, the current set-up was kept: ${text}`;
+  el.hidden = false;
+}
+
+function clearFileError() {
+  const el = document.getElementById('file-error');
+  if (!el.hidden) {
+    el.hidden = true;
+    el.textContent = '';
+  }
+}
+
+async function openScenarioFile(file) {
+  fileToken += 1;
+  const token = fileToken;
+  if (file.size > MAX_FILE_BYTES) {
+    const mib = (file.size / (1024 * 1024)).toFixed(1);
+    showFileError(file.name, `document: the file holds ${mib} MiB; a scenario file may be at most ${MAX_FILE_BYTES / (1024 * 1024)} MiB`);
+    return;
+  }
+  let text;
+  try {
+    text = await file.text();
+  } catch (e) {
+    if (token === fileToken) showFileError(file.name, `document: the file could not be read (${e && e.message ? e.message : e})`);
+    return;
+  }
+  // A later choice wins over a slow read of an earlier one.
+  if (token !== fileToken) return;
+  const tried = tryScenarioText(text);
+  if (tried.error) {
+    showFileError(file.name, fieldText(tried.error));
+    return;
+  }
+  loadScenario(tried.obj, true);
+  flushFragment();
+  announce(`Opened ${file.name}.`);
+}
+
+function setupFileOpen() {
+  const input = document.getElementById('scenario-file');
+  document.getElementById('open-scenario').addEventListener('click', () => input.click());
+  input.addEventListener('change', () => {
+    const file = input.files && input.files[0];
+    // Cleared, so that choosing the same file again (after fixing it) is a change too.
+    input.value = '';
+    if (file) openScenarioFile(file);
+  });
 }
 
 async function copyLink() {
@@ -2820,10 +2904,11 @@ async function main() {
     applyScenario(doc);
     flushFragment();
   });
-  window.addEventListener('hashchange', () => {
+  window.addEventListener('hashchange', (ev) => {
     if (lastGoodText !== null && location.hash === FRAGMENT_KEY + encodeURIComponent(lastGoodText)) return;
-    loadFromLocation();
+    loadFromLocation(new URL(ev.oldURL).hash);
   });
+  setupFileOpen();
 
   document.getElementById('results').addEventListener('click', (ev) => {
     const btn = ev.target.closest('button[data-show-all]');

@@ -10,17 +10,16 @@ import fs from 'node:fs';
 import path from 'node:path';
 import {
   ROOT,
-  startServer,
-  launchBrowser,
-  openPage,
-  waitReady,
-  ensureBuilt,
+  ARTIFACTS,
+  useBrowser,
+  withPage as openAt,
   cliTrace,
   resolvePath,
   close,
+  canvasStats as statsInPage,
+  drawn,
 } from './support.mjs';
 
-const ARTIFACTS = path.join(ROOT, 'target', 'e2e');
 const example = (name) => fs.readFileSync(path.join(ROOT, 'examples', name), 'utf8');
 
 const F_THICK = 'elements[0].thickness_mm';
@@ -30,58 +29,18 @@ const SEL_TILT_NUM = `input.num[data-field="${F_TILT}"]`;
 const SEL_TILT_RANGE = `input[type=range][data-field="${F_TILT}"]`;
 const SEL_SEP = '[data-quantity="elements[0].separation_mm"]';
 
-let server;
-let browser;
-
-before(
-  async () => {
-    ensureBuilt();
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    server = await startServer();
-    browser = await launchBrowser();
-  },
-  { timeout: 30 * 60 * 1000 },
-);
-
-after(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const env = useBrowser();
 
 // ---------------------------------------------------------------------------------------------
 // Helpers
 
 /**
  * Opens the page at `hash`, waits for its first result, runs `body({page, log})`, then checks
- * what every test must hold: no console error, no page error, no request to any host but the
- * local server, no file missing on the server, and the panic banner still hidden.
+ * what every test must hold (support.mjs): no console error, no page error, no CSP violation, no
+ * request to any host but the local server, no file missing on the server, and the panic banner
+ * still hidden.
  */
-async function withPage(hash, body, options = {}) {
-  const missingBefore = server.missing.length;
-  const { context, page, log } = await openPage(browser, server.origin, options);
-  try {
-    await page.goto(`${server.origin}/${hash}`, { waitUntil: 'load' });
-    await waitReady(page);
-    await body({ page, log });
-    const panic = await page.evaluate(() => {
-      const el = document.getElementById('panic');
-      return el && !el.hidden ? el.textContent : '';
-    });
-    assert.equal(panic, '', `the page reported an internal error: ${panic}`);
-  } catch (e) {
-    // Say what the page said, too: a page error is often the cause of a timeout.
-    const said = [...log.pageErrors.map((x) => `page error: ${x}`), ...log.consoleErrors.map((x) => `console error: ${x}`)];
-    if (said.length && e instanceof Error) e.message += `\n  the page said:\n    ${said.join('\n    ')}`;
-    throw e;
-  } finally {
-    await context.close();
-  }
-  assert.deepEqual(log.pageErrors, [], 'uncaught errors in the page');
-  assert.deepEqual(log.consoleErrors, [], 'console errors');
-  assert.deepEqual(log.foreign, [], `requests to hosts other than ${server.origin}`);
-  assert.ok(log.requests.length > 0, 'the request log saw the page load');
-  assert.deepEqual(server.missing.slice(missingBefore), [], 'files the page asked for that www/ lacks');
-}
+const withPage = (hash, body, options = {}) => openAt(env, `/${hash}`, body, options);
 
 /** The page's current scenario, with every default written out. */
 const pageScenario = async (page) =>
@@ -181,30 +140,7 @@ async function enter(page, selector, value) {
 }
 
 /** Per canvas[data-view]: size, pixels that differ from the commonest colour, and a hash. */
-const canvasStats = (page) =>
-  page.$$eval('canvas[data-view]', (canvases) =>
-    canvases.map((c) => {
-      const base = { view: c.getAttribute('data-view'), label: c.getAttribute('aria-label'), w: c.width, h: c.height };
-      const ctx = c.width && c.height ? c.getContext('2d') : null;
-      if (!ctx) return { ...base, total: 0, differing: 0, hash: 0 };
-      const d = ctx.getImageData(0, 0, c.width, c.height).data;
-      const counts = new Map();
-      let hash = 2166136261;
-      for (let i = 0; i < d.length; i += 4) {
-        const k = ((d[i] << 24) | (d[i + 1] << 16) | (d[i + 2] << 8) | d[i + 3]) >>> 0;
-        counts.set(k, (counts.get(k) || 0) + 1);
-        hash = Math.imul(hash ^ k, 16777619) >>> 0;
-      }
-      let bg = 0;
-      let bgCount = 0;
-      for (const [k, n] of counts) if (n > bgCount) [bg, bgCount] = [k, n];
-      const total = c.width * c.height;
-      return { ...base, total, differing: total - bgCount, background: bg.toString(16).padStart(8, '0'), hash };
-    }),
-  );
-
-/** A meaningful drawing: at least 200 pixels and 0.2 % of the canvas off the background. */
-const drawn = (s) => s.total > 0 && s.differing >= Math.max(200, 0.002 * s.total);
+const canvasStats = (page) => page.evaluate(statsInPage);
 
 async function expectCanvasesDrawn(page, what) {
   let stats;
@@ -432,24 +368,32 @@ test('a scenario in the fragment: the recombiner shows four rays that agree with
 });
 
 const recombinerFragment = encodeURIComponent(JSON.stringify(JSON.parse(example('recombiner.json'))));
-for (const [what, hash] of [
+const BAD_FRAGMENTS = [
   ['not JSON (%7Bbad)', '#scenario=%7Bbad'],
   ['truncated', `#scenario=${recombinerFragment.slice(0, Math.floor(recombinerFragment.length / 2))}`],
   ['a bad percent escape', '#scenario=%E0%A4%A'],
   ['valid JSON, invalid scenario', `#scenario=${encodeURIComponent('{"elements": []}')}`],
-]) {
-  test(`an invalid fragment (${what}) shows #fragment-error and the demo loads`, { timeout: 60000 }, async () => {
+];
+
+/** The text of #fragment-error once it is shown. */
+async function fragmentError(page) {
+  const handle = await page
+    .waitForFunction(
+      () => {
+        const el = document.getElementById('fragment-error');
+        return el && !el.hidden && el.getClientRects().length > 0 && el.textContent.trim() !== '' ? el.textContent : false;
+      },
+      null,
+      { timeout: 5000 },
+    )
+    .catch(() => assert.fail('#fragment-error is not shown'));
+  return handle.jsonValue();
+}
+
+for (const [what, hash] of BAD_FRAGMENTS) {
+  test(`an invalid fragment (${what}) on first load shows #fragment-error and the demo loads`, { timeout: 60000 }, async () => {
     await withPage(hash, async ({ page }) => {
-      await page
-        .waitForFunction(
-          () => {
-            const el = document.getElementById('fragment-error');
-            return el && !el.hidden && el.getClientRects().length > 0 && el.textContent.trim() !== '';
-          },
-          null,
-          { timeout: 5000 },
-        )
-        .catch(() => assert.fail('#fragment-error is not shown'));
+      assert.match(await fragmentError(page), /demo is shown instead/);
       const cli = cliTrace(await pageScenario(page));
       assert.deepEqual(cli, cliTrace(example('demo.json')), 'the demo is shown instead');
       await expectAgreement(page, cli, requiredPaths(cli), `demo after a bad fragment (${what})`);
@@ -457,6 +401,26 @@ for (const [what, hash] of [
     });
   });
 }
+
+test('an invalid fragment after an edit keeps the current set-up, its views and its address', { timeout: 60000 }, async () => {
+  await withPage('', async ({ page }) => {
+    await enter(page, SEL_THICK, '4.2');
+    const good = await waitScenario(page, (s) => s.elements[0].thickness_mm === 4.2, 'thickness 4.2 taken');
+    await page.waitForFunction(() => location.hash.startsWith('#scenario='), null, { timeout: 5000 });
+    const hashBefore = await page.evaluate(() => location.hash);
+    const viewsBefore = (await canvasStats(page)).map((s) => [s.view, s.hash]);
+    for (const [what, hash] of BAD_FRAGMENTS) {
+      await page.evaluate((h) => { location.hash = h; }, hash);
+      const text = await fragmentError(page);
+      assert.match(text, /current set-up was kept/, `${what}: the message says so`);
+      assert.deepEqual(await pageScenario(page), good, `${what}: the set-up is kept`);
+      assert.equal(await page.evaluate(() => location.hash), hashBefore, `${what}: the address holds the set-up again`);
+      assert.deepEqual((await canvasStats(page)).map((s) => [s.view, s.hash]), viewsBefore, `${what}: the views stay`);
+    }
+    const cli = cliTrace(good);
+    await expectAgreement(page, cli, requiredPaths(cli), 'after the bad fragments');
+  });
+});
 
 test('the fragment follows the edits and #copy-link copies the address with it', { timeout: 60000 }, async () => {
   await withPage(
@@ -499,7 +463,7 @@ test('the fragment follows the edits and #copy-link copies the address with it',
         });
         if (!copied) await page.waitForTimeout(50);
       }
-      assert.ok(copied.startsWith(`${server.origin}/`), `the copied text is this page's address: ${copied}`);
+      assert.ok(copied.startsWith(`${env.server.origin}/`), `the copied text is this page's address: ${copied}`);
       const copiedScenario = fromHash(copied);
       assert.deepEqual(cliTrace(copiedScenario), cliTrace(await pageScenario(page)), 'the copied link holds the page\'s set-up');
     },

@@ -1,9 +1,11 @@
 // Shared by the end-to-end tests and scripts/bench-web.mjs: a static file server for www/, the
-// Chromium launch, the command line as reference, and the contract's result paths.
+// Chromium launch, one way to open a page and check what every test must hold, the command line
+// as reference, the contract's result paths, and pixel counts of canvases.
 //
 // Nothing here reaches the network: the server listens on 127.0.0.1 at a free port, and every
 // page opened through openPage() has each request it makes logged and, unless it goes to that
-// server, aborted.
+// server, aborted. Every response carries the page's content security policy (CSP), and every
+// violation of it that the page, a frame or a worker reports is logged.
 
 import http from 'node:http';
 import fs from 'node:fs';
@@ -11,6 +13,8 @@ import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { createRequire } from 'node:module';
+import { before, after } from 'node:test';
+import assert from 'node:assert/strict';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 export const ROOT = path.resolve(here, '..', '..');
@@ -18,6 +22,13 @@ export const ROOT = path.resolve(here, '..', '..');
 export const WWW = process.env.E2E_WWW ? path.resolve(process.env.E2E_WWW) : path.join(ROOT, 'www');
 export const CLI = path.join(ROOT, 'target', 'release', 'doublespar');
 export const WASM = path.join(WWW, 'pkg', 'doublespar_bg.wasm');
+export const ARTIFACTS = path.join(ROOT, 'target', 'e2e');
+
+/**
+ * The policy the page is deployed with (also in the <meta> of every page in www/): scripts and
+ * everything else from the page's own origin only, wasm compiled from bytes, nothing inline.
+ */
+export const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'";
 
 /** Chromium as installed by Debian (the CI installs it with apt-get). */
 export const CHROMIUM = process.env.CHROMIUM || '/usr/bin/chromium';
@@ -76,6 +87,7 @@ export function startServer(root = WWW) {
         'content-type': MIME[path.extname(file).toLowerCase()] || 'application/octet-stream',
         'content-length': body.length,
         'cache-control': 'no-store',
+        'content-security-policy': CSP,
       });
       res.end(req.method === 'HEAD' ? undefined : body);
     });
@@ -117,15 +129,31 @@ export async function launchBrowser() {
   return chromium.launch({ executablePath: CHROMIUM, headless: true, args: CHROMIUM_ARGS });
 }
 
+/** Run in every document before its own scripts: reports each CSP violation to the test. */
+function cspProbe() {
+  document.addEventListener('securitypolicyviolation', (e) => {
+    window.__dsReportCsp(`${e.violatedDirective} blocked ${e.blockedURI || '(inline)'} at ${e.sourceFile}:${e.lineNumber}`);
+  });
+}
+
+/** Chromium's console message for a refused load, from a page or a worker. */
+const CSP_CONSOLE = /Content Security Policy/i;
+
 /**
- * A new context and page whose every request, console error and page error is recorded in
- * `log`: {requests: [url], foreign: [url], consoleErrors: [text], pageErrors: [text]}.
- * Requests to anything but `origin` are aborted (and listed in `foreign`).
+ * A new context and page whose every request, console error, page error and CSP violation is
+ * recorded in `log`: {requests: [url], foreign: [url], consoleErrors: [text], pageErrors: [text],
+ * csp: [text], workers: [url]}. Requests to anything but `origin` are aborted (and listed in
+ * `foreign`); `origin` null allows only file:, data: and blob: URLs. Under the CSP a worker's
+ * refused request is never made, so it shows only as a console message: that is caught too.
  */
 export async function openPage(browser, origin, options = {}) {
   const context = await browser.newContext({ colorScheme: 'light', ...options });
-  const log = { requests: [], foreign: [], consoleErrors: [], pageErrors: [] };
-  const local = (url) => url === origin || url.startsWith(origin + '/');
+  const log = { requests: [], foreign: [], consoleErrors: [], pageErrors: [], csp: [], workers: [] };
+  await context.exposeBinding('__dsReportCsp', (_source, text) => log.csp.push(String(text)));
+  await context.addInitScript(cspProbe);
+  const local = origin === null
+    ? (url) => url.startsWith('file:')
+    : (url) => url === origin || url.startsWith(origin + '/');
   // data: and blob: URLs are no request to any host.
   const inline = (url) => url.startsWith('data:') || url.startsWith('blob:');
   await context.route('**', (route) => {
@@ -141,14 +169,122 @@ export async function openPage(browser, origin, options = {}) {
     if (!local(url) && !inline(url) && !log.foreign.includes(url)) log.foreign.push(url);
   });
   page.on('console', (msg) => {
-    if (msg.type() === 'error') {
-      const loc = msg.location();
-      log.consoleErrors.push(`${msg.text()} (${loc.url}:${loc.lineNumber})`);
-    }
+    const loc = msg.location();
+    const text = `${msg.text()} (${loc.url}:${loc.lineNumber})`;
+    if (CSP_CONSOLE.test(msg.text())) log.csp.push(text);
+    else if (msg.type() === 'error') log.consoleErrors.push(text);
   });
   page.on('pageerror', (err) => log.pageErrors.push(String(err && err.stack ? err.stack : err)));
+  page.on('worker', (w) => log.workers.push(w.url()));
   return { context, page, log };
 }
+
+/**
+ * What every page must hold at the end of a test: no uncaught page error, no console error, no
+ * CSP violation, no request to another host and (with a server) no file missing on it since
+ * `missingBefore`.
+ */
+export function expectClean(log, server = null, missingBefore = 0) {
+  assert.deepEqual(log.pageErrors, [], 'uncaught errors in the page');
+  assert.deepEqual(log.consoleErrors, [], 'console errors');
+  assert.deepEqual(log.csp, [], 'content security policy violations');
+  assert.deepEqual(log.foreign, [], 'requests to other hosts');
+  if (server) assert.deepEqual(server.missing.slice(missingBefore), [], 'files the page asked for that www/ lacks');
+}
+
+/**
+ * Registers before/after hooks that build what is missing, start the server and the browser, and
+ * stop both; returns {server, browser}, filled in once `before` has run.
+ */
+export function useBrowser({ cli = true } = {}) {
+  const env = { server: null, browser: null };
+  before(
+    async () => {
+      ensureBuilt({ cli });
+      fs.mkdirSync(ARTIFACTS, { recursive: true });
+      env.server = await startServer();
+      env.browser = await launchBrowser();
+    },
+    { timeout: 30 * 60 * 1000 },
+  );
+  after(async () => {
+    await env.browser?.close();
+    await env.server?.close();
+  });
+  return env;
+}
+
+/**
+ * Opens `env.server`'s page at `address` (e.g. '/', '/#scenario=…', '/embed-example.html'),
+ * waits for its first result unless `ready` is false, runs `body({page, log, context})`, then
+ * checks that the panic banner (if the page has one) stays hidden and expectClean(). What the
+ * page said is added to a failure's message: a page error is often the cause of a timeout.
+ */
+export async function withPage(env, address, body, { ready = true, ...options } = {}) {
+  const { server, browser } = env;
+  const missingBefore = server.missing.length;
+  const { context, page, log } = await openPage(browser, server.origin, options);
+  try {
+    await page.goto(`${server.origin}${address}`, { waitUntil: 'load' });
+    if (ready) await waitReady(page);
+    await body({ page, log, context });
+    const panic = await page.evaluate(() => {
+      const el = document.getElementById('panic');
+      return el && !el.hidden ? el.textContent : '';
+    });
+    assert.equal(panic, '', `the page reported an internal error: ${panic}`);
+  } catch (e) {
+    const said = [
+      ...log.pageErrors.map((x) => `page error: ${x}`),
+      ...log.consoleErrors.map((x) => `console error: ${x}`),
+      ...log.csp.map((x) => `CSP: ${x}`),
+    ];
+    if (said.length && e instanceof Error) e.message += `\n  the page said:\n    ${said.join('\n    ')}`;
+    throw e;
+  } finally {
+    await context.close();
+  }
+  assert.ok(log.requests.length > 0, 'the request log saw the page load');
+  expectClean(log, server, missingBefore);
+  return log;
+}
+
+/**
+ * Run in the page (page.evaluate(canvasStats, {selector, host})): per canvas matching
+ * `selector` (inside the shadow root of `host` when given), its data-view, data-design-plot,
+ * aria-label and size, the pixels that differ from its commonest colour (the background), that
+ * colour as 8 hex digits (RGBA) and a hash of every pixel.
+ */
+export function canvasStats({ selector = 'canvas[data-view]', host = null } = {}) {
+  const root = host ? document.querySelector(host).shadowRoot : document;
+  return [...root.querySelectorAll(selector)].map((c) => {
+    const base = {
+      view: c.getAttribute('data-view'),
+      plot: c.getAttribute('data-design-plot'),
+      label: c.getAttribute('aria-label'),
+      w: c.width,
+      h: c.height,
+    };
+    const ctx = c.width && c.height ? c.getContext('2d') : null;
+    if (!ctx) return { ...base, total: 0, differing: 0, background: '', hash: 0 };
+    const d = ctx.getImageData(0, 0, c.width, c.height).data;
+    const counts = new Map();
+    let hash = 2166136261;
+    for (let i = 0; i < d.length; i += 4) {
+      const k = ((d[i] << 24) | (d[i + 1] << 16) | (d[i + 2] << 8) | d[i + 3]) >>> 0;
+      counts.set(k, (counts.get(k) || 0) + 1);
+      hash = Math.imul(hash ^ k, 16777619) >>> 0;
+    }
+    let bg = 0;
+    let bgCount = 0;
+    for (const [k, n] of counts) if (n > bgCount) [bg, bgCount] = [k, n];
+    const total = c.width * c.height;
+    return { ...base, total, differing: total - bgCount, background: bg.toString(16).padStart(8, '0'), hash };
+  });
+}
+
+/** A meaningful drawing: at least 200 pixels and 0.2 % of the canvas off the background. */
+export const drawn = (s) => s.total > 0 && s.differing >= Math.max(200, 0.002 * s.total);
 
 /** Waits until the page has traced and shown its first result. */
 export async function waitReady(page, timeout = 20000) {
