@@ -13,10 +13,16 @@
 //
 // Every rewrite must match exactly once, or the build fails (so a change to app.js or the glue
 // cannot silently leave a file:// load behind).
+//
+// The page's content security policy allows 'self', which a file:// page does not have; the
+// single file gets its own, stricter policy instead (see singlePolicy below): nothing but the one
+// inline script and the one inline style, known by their hashes, the worker from a blob: URL,
+// and the favicon as a data: URL.
 
 import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
+import crypto from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -117,14 +123,40 @@ function __dsStartWorker() {
 
 const script = scriptSafe(loader + glue + app);
 
+/** A CSP source for exactly this inline text (what the browser hashes: the element's content). */
+const hashSource = (text) => `'sha256-${crypto.createHash('sha256').update(text, 'utf8').digest('base64')}'`;
+
+/**
+ * The single file's policy. The module script and the style are allowed by hash only; the wasm is
+ * compiled from bytes ('wasm-unsafe-eval'). The design worker is a classic worker from a blob:
+ * URL: worker-src governs that load, and the worker inherits this policy (so its own wasm needs
+ * 'wasm-unsafe-eval' too, and it can fetch nothing). Nothing is fetched: no connect-src.
+ */
+function singlePolicy(scriptText, styleText) {
+  return [
+    "default-src 'none'",
+    `script-src ${hashSource(scriptText)} 'wasm-unsafe-eval'`,
+    `style-src ${hashSource(styleText)}`,
+    'worker-src blob:',
+    'img-src data:',
+    "base-uri 'none'",
+    "form-action 'none'",
+  ].join('; ');
+}
+
+const PAGE_POLICY = `<meta http-equiv="Content-Security-Policy" content="default-src 'self'; script-src 'self' 'wasm-unsafe-eval'">`;
+
 let html = read('index.html');
 const favicon = 'data:image/svg+xml;base64,' + Buffer.from(read('favicon.svg')).toString('base64');
 html = replaceOnce(html, '<link rel="icon" href="favicon.svg" type="image/svg+xml">',
   `<link rel="icon" href="${favicon}" type="image/svg+xml">`, 'index.html');
-html = replaceOnce(html, '<link rel="stylesheet" href="style.css">',
-  `<style>\n${read('style.css').replace(/<\/(style)/gi, '<\\/$1')}\n</style>`, 'index.html');
+const styleText = `\n${read('style.css').replace(/<\/(style)/gi, '<\\/$1')}\n`;
+const scriptText = `\n${script}\n`;
+html = replaceOnce(html, PAGE_POLICY,
+  `<meta http-equiv="Content-Security-Policy" content="${singlePolicy(scriptText, styleText)}">`, 'index.html');
+html = replaceOnce(html, '<link rel="stylesheet" href="style.css">', `<style>${styleText}</style>`, 'index.html');
 html = replaceOnce(html, '<script type="module" src="app.js"></script>',
-  `<script type="module">\n${script}\n</script>`, 'index.html');
+  `<script type="module">${scriptText}</script>`, 'index.html');
 if (/\b(src|href)="(?!#|data:)[^"]*"/.test(html.replace(/<script type="module">[\s\S]*<\/script>/, ''))) {
   const m = /\b(src|href)="(?!#|data:)[^"]*"/.exec(html.replace(/<script type="module">[\s\S]*<\/script>/, ''));
   console.warn(`build-single: note: the page still links ${m[0]}`);

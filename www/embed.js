@@ -63,6 +63,16 @@ output { font-variant-numeric: tabular-nums; min-width: 4.5em; }
 @media (prefers-color-scheme: dark) { .error { color: #ff8a80; } }
 `;
 
+let sheet = null;
+/** One constructed sheet of STYLE, adopted by every figure's shadow root. */
+function sharedSheet() {
+  if (!sheet) {
+    sheet = new CSSStyleSheet();
+    sheet.replaceSync(STYLE);
+  }
+  return sheet;
+}
+
 function el(tag, props = {}, ...children) {
   const node = document.createElement(tag);
   for (const [k, v] of Object.entries(props)) {
@@ -94,7 +104,8 @@ class SparFigure extends HTMLElement {
     this._views = [];
     this._started = false;
     const root = this.attachShadow({ mode: 'open' });
-    root.append(el('style', { textContent: STYLE }));
+    // A constructed sheet, not a <style> element: the page's CSP allows no inline style.
+    root.adoptedStyleSheets = [sharedSheet()];
     this._error = el('p', { className: 'error', role: 'alert', part: 'error', hidden: '' });
     this._viewBox = el('div', { className: 'views', part: 'views' });
     this._bar = el('div', { className: 'bar', part: 'controls' });

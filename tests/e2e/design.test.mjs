@@ -2,43 +2,28 @@
 // every design number the page shows against the command line (`target/release/doublespar
 // design -`) on the very request the panel builds (`window.doublespar.designRequest()`), the
 // Monte Carlo run in the module worker (progress, a responsive page, cancel), errors beside their
-// fields, the plots, and "Use this part". Every page here is served with the strict content
-// security policy the page is deployed with.
+// fields, the plots, and "Use this part". Like every test page, these run under the page's strict
+// content security policy (support.mjs), the worker included.
 //
 // Run: `cd tests/e2e && npm ci && node --test` (or tests/e2e/run.sh, which builds first).
 
-import { test, before, after } from 'node:test';
+import { test, before } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
 import { spawnSync } from 'node:child_process';
-import { ROOT, CLI, WWW, startServer, launchBrowser, openPage, waitReady, ensureBuilt, resolvePath, close } from './support.mjs';
+import { ROOT, ARTIFACTS, CLI, WWW, useBrowser, withPage as openAt, canvasStats, drawn, resolvePath, close } from './support.mjs';
 
-const ARTIFACTS = path.join(ROOT, 'target', 'e2e');
-const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'";
 const DESIGN_WASM = path.join(WWW, 'pkg-design', 'doublespar_bg.wasm');
 
-let server;
-let browser;
+const env = useBrowser();
 
-before(
-  async () => {
-    ensureBuilt();
-    if (!fs.existsSync(DESIGN_WASM)) {
-      const r = spawnSync(path.join(ROOT, 'scripts', 'build-web.sh'), [], { cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'] });
-      assert.equal(r.status, 0, 'scripts/build-web.sh');
-    }
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    server = await startServer();
-    browser = await launchBrowser();
-  },
-  { timeout: 30 * 60 * 1000 },
-);
-
-after(async () => {
-  await browser?.close();
-  await server?.close();
-});
+before(() => {
+  if (!fs.existsSync(DESIGN_WASM)) {
+    const r = spawnSync(path.join(ROOT, 'scripts', 'build-web.sh'), [], { cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'] });
+    assert.equal(r.status, 0, 'scripts/build-web.sh');
+  }
+}, { timeout: 30 * 60 * 1000 });
 
 // ---------------------------------------------------------------------------------------------
 // Helpers
@@ -50,65 +35,20 @@ function cliDesign(request) {
   return JSON.parse(r.stdout);
 }
 
-/** Records every content-security-policy violation the page (or its worker) reports. */
-function cspProbe() {
-  window.__cspViolations = [];
-  document.addEventListener('securitypolicyviolation', (e) => {
-    window.__cspViolations.push(`${e.violatedDirective} ${e.blockedURI}`);
-  });
-}
-
 /**
- * Opens the page under the strict CSP (unless `csp` is false), waits for its first result, runs
- * `body({page, log})`, then checks what every test must hold: no console or page error, no CSP
- * violation, no request to any host but the local server, the worker and its wasm served by that
- * server, no file missing, and the panic banner hidden. (Under the CSP a request to another host
- * is refused before it is made, and the worker's refusals reach no listener here: one test runs
- * without it, so that such an attempt shows as a request.)
+ * Opens the page, waits for its first result, runs `body({page, log})`, then checks what every
+ * test page must hold (support.mjs: no console or page error, no CSP violation, no request to
+ * another host, no file missing, no panic) and that the worker and its wasm came from the local
+ * server. (Under the CSP a request to another host is refused before it is made; the worker's
+ * refusals show as console messages about the policy, which fail the test too.)
  */
-async function withPage(body, { csp = true, ...options } = {}) {
-  const missingBefore = server.missing.length;
-  const { context, page, log } = await openPage(browser, server.origin, options);
-  const withPolicy = [];
-  // Registered after openPage's route, so it runs first: local responses get the CSP header;
-  // anything else falls back to openPage's route, which aborts it.
-  await context.route('**', async (route) => {
-    const url = route.request().url();
-    if (!csp || !url.startsWith(`${server.origin}/`)) return route.fallback();
-    const response = await route.fetch();
-    withPolicy.push(new URL(url).pathname);
-    return route.fulfill({ response, headers: { ...response.headers(), 'content-security-policy': CSP } });
-  });
-  await context.addInitScript(cspProbe);
-  // (The page's console events carry the worker's console too.)
-  const workers = [];
-  page.on('worker', (w) => workers.push(w.url()));
-  try {
-    await page.goto(`${server.origin}/`, { waitUntil: 'load' });
-    await waitReady(page);
-    await body({ page, log });
-    const panic = await page.evaluate(() => {
-      const el = document.getElementById('panic');
-      return el && !el.hidden ? el.textContent : '';
-    });
-    assert.equal(panic, '', `the page reported an internal error: ${panic}`);
-    assert.deepEqual(await page.evaluate(() => window.__cspViolations), [], 'content security policy violations');
-  } catch (e) {
-    const said = [...log.pageErrors.map((x) => `page error: ${x}`), ...log.consoleErrors.map((x) => `console error: ${x}`)];
-    if (said.length && e instanceof Error) e.message += `\n  the page said:\n    ${said.join('\n    ')}`;
-    throw e;
-  } finally {
-    await context.close();
-  }
-  assert.deepEqual(log.pageErrors, [], 'uncaught errors in the page');
-  assert.deepEqual(log.consoleErrors, [], 'console errors');
-  assert.deepEqual(log.foreign, [], `requests to hosts other than ${server.origin}`);
+async function withPage(body, options = {}) {
+  const { origin } = env.server;
+  const log = await openAt(env, '/', body, options);
   for (const f of ['/design-worker.js', '/pkg-design/doublespar.js', '/pkg-design/doublespar_bg.wasm']) {
-    assert.ok(log.requests.includes(`${server.origin}${f}`), `${f} was requested from the local server`);
-    if (csp) assert.ok(withPolicy.includes(f), `${f} was served under the CSP`);
+    assert.ok(log.requests.includes(`${origin}${f}`), `${f} was requested from the local server`);
   }
-  assert.deepEqual(server.missing.slice(missingBefore), [], 'files the page asked for that www/ lacks');
-  assert.ok(workers.length > 0 && workers.every((u) => u === `${server.origin}/design-worker.js`), `the page ran its design worker from the server: ${workers}`);
+  assert.ok(log.workers.length > 0 && log.workers.every((u) => u === `${origin}/design-worker.js`), `the page ran its design worker from the server: ${log.workers}`);
 }
 
 const field = (p) => `[data-design-field="${p}"]`;
@@ -192,31 +132,13 @@ async function expectAgreement(page, required, what, options = {}) {
 }
 
 /** Per canvas[data-design-plot]: name, label, size, pixels off the commonest colour, hash. */
-const plotStats = (page) =>
-  page.$$eval('canvas[data-design-plot]', (canvases) =>
-    canvases.map((c) => {
-      const base = { plot: c.getAttribute('data-design-plot'), label: c.getAttribute('aria-label'), w: c.width, h: c.height };
-      const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
-      const counts = new Map();
-      let hash = 2166136261;
-      for (let i = 0; i < d.length; i += 4) {
-        const k = ((d[i] << 24) | (d[i + 1] << 16) | (d[i + 2] << 8) | d[i + 3]) >>> 0;
-        counts.set(k, (counts.get(k) || 0) + 1);
-        hash = Math.imul(hash ^ k, 16777619) >>> 0;
-      }
-      let bg = 0;
-      let bgCount = 0;
-      for (const [k, n] of counts) if (n > bgCount) [bg, bgCount] = [k, n];
-      const total = c.width * c.height;
-      return { ...base, total, differing: total - bgCount, background: bg >>> 8, hash };
-    }),
-  );
+const plotStats = (page) => page.evaluate(canvasStats, { selector: 'canvas[data-design-plot]' });
 
 async function expectPlots(page, names, what) {
   const stats = await plotStats(page);
   assert.deepEqual(stats.map((s) => s.plot).sort(), [...names].sort(), `${what}: the plots shown`);
   for (const s of stats) {
-    assert.ok(s.total > 0 && s.differing >= Math.max(200, 0.002 * s.total), `${what}: ${s.plot} is drawn (${s.differing} of ${s.total} pixels off the background)`);
+    assert.ok(drawn(s), `${what}: ${s.plot} is drawn (${s.differing} of ${s.total} pixels off the background)`);
     assert.ok(s.label && s.label.length > 20, `${what}: ${s.plot} has a text alternative`);
   }
   return stats;
@@ -325,7 +247,7 @@ test('a displacer solved through the controls agrees with the command line, Mont
   });
 });
 
-test('a 100000-sample run keeps the page responsive and agrees with the command line; Cancel stops a run (no CSP: any request shows)', { timeout: 180000 }, async () => {
+test('a 100000-sample run keeps the page responsive and agrees with the command line; Cancel stops a run', { timeout: 180000 }, async () => {
   await withPage(async ({ page }) => {
     await fillDisplacer(page, 100000);
     // Count animation frames (and the longest gap between two) while the run goes on.
@@ -373,7 +295,7 @@ test('a 100000-sample run keeps the page responsive and agrees with the command 
     await enter(page, 'samples', '20000');
     await solve(page);
     await expectAgreement(page, DISPLACER_REQUIRED, 'displacer after a cancel');
-  }, { csp: false });
+  });
 });
 
 test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plots redraw in the dark scheme', { timeout: 120000 }, async () => {
@@ -408,7 +330,7 @@ test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plo
     } while (Date.now() < end && dark.some((s, i) => s.hash === light[i].hash));
     for (const [i, s] of dark.entries()) {
       assert.notEqual(s.hash, light[i].hash, `${s.plot} was redrawn for the dark scheme`);
-      const lum = (c) => ((c >> 16) & 255) + ((c >> 8) & 255) + (c & 255);
+      const lum = (c) => [0, 2, 4].reduce((sum, k) => sum + parseInt(c.slice(k, k + 2), 16), 0);
       assert.ok(lum(s.background) < lum(light[i].background), `${s.plot}: the dark background is darker`);
     }
     await expectPlots(page, plots, 'waveplate, dark');

@@ -4,49 +4,20 @@
 //
 // Run: `cd tests/e2e && npm ci && node --test` (or tests/e2e/run.sh, which builds first).
 
-import { test, before, after } from 'node:test';
+import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
-import { ROOT, startServer, launchBrowser, openPage, waitReady, ensureBuilt } from './support.mjs';
+import { ARTIFACTS, useBrowser, withPage as openAt } from './support.mjs';
 
-const ARTIFACTS = path.join(ROOT, 'target', 'e2e');
 const VIEWS = ['side', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
 const PLOTS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
 const PNG_SIGNATURE = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
 
-let server;
-let browser;
+const env = useBrowser({ cli: false });
 
-before(
-  async () => {
-    ensureBuilt({ cli: false });
-    fs.mkdirSync(ARTIFACTS, { recursive: true });
-    server = await startServer();
-    browser = await launchBrowser();
-  },
-  { timeout: 30 * 60 * 1000 },
-);
-
-after(async () => {
-  await browser?.close();
-  await server?.close();
-});
-
-/** Opens the page (demo set-up), runs `body(page)`, then checks no error and no foreign request. */
-async function withPage(body, options = {}) {
-  const { context, page, log } = await openPage(browser, server.origin, { acceptDownloads: true, ...options });
-  try {
-    await page.goto(`${server.origin}/`, { waitUntil: 'load' });
-    await waitReady(page);
-    await body(page);
-  } finally {
-    await context.close();
-  }
-  assert.deepEqual(log.pageErrors, [], 'uncaught errors in the page');
-  assert.deepEqual(log.consoleErrors, [], 'console errors');
-  assert.deepEqual(log.foreign, [], `requests to hosts other than ${server.origin}`);
-}
+/** Opens the page (demo set-up), runs `body(page)`, then checks it as every test page (support.mjs). */
+const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), { acceptDownloads: true, ...options });
 
 /** Clicks the export button `what` and returns {name, body: Buffer} of the download. */
 async function exported(page, what) {

@@ -6,88 +6,78 @@
 // (b) The example documentation page from the local server: two <spar-figure> elements show
 //     their own scenarios, changing one leaves the other's pixels alone, the iframe renders.
 
-import { test, before, after } from 'node:test';
+import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { pathToFileURL } from 'node:url';
-import { ROOT, startServer, launchBrowser, openPage, ensureBuilt, cliTrace, close } from './support.mjs';
+import {
+  ROOT,
+  useBrowser,
+  openPage,
+  withPage,
+  expectClean,
+  canvasStats,
+  drawn,
+  cliTrace,
+  close,
+  expectAgreement,
+  requiredPaths,
+} from './support.mjs';
 
 const SINGLE = path.join(ROOT, 'target', 'single', 'doublespar.html');
+const example = (name) => fs.readFileSync(path.join(ROOT, 'examples', name), 'utf8');
 
-let server;
-let browser;
+const env = useBrowser();
 
-before(
-  async () => {
-    ensureBuilt();
-    if (!fs.existsSync(SINGLE)) {
-      const r = spawnSync(path.join(ROOT, 'scripts', 'build-single.sh'), [], { cwd: ROOT, stdio: 'inherit' });
-      if (r.status !== 0) throw new Error('scripts/build-single.sh failed');
-    }
-    server = await startServer();
-    browser = await launchBrowser();
-  },
-  { timeout: 30 * 60 * 1000 },
-);
-
-after(async () => {
-  await browser?.close();
-  await server?.close();
-});
-
-/** Counts the non-background pixels of every canvas matching `selector` (run in the page). */
-function inkOf(selector) {
-  const out = [];
-  for (const c of document.querySelectorAll(selector)) {
-    if (c.width === 0 || c.height === 0) {
-      out.push({ view: c.dataset.view, ink: 0 });
-      continue;
-    }
-    const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
-    let ink = 0;
-    for (let i = 0; i < d.length; i += 4) {
-      if (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2]) ink += 1;
-    }
-    out.push({ view: c.dataset.view, ink });
-  }
-  return out;
+/** Builds the single file if it is missing (run.sh always rebuilds it). */
+function ensureSingle() {
+  if (fs.existsSync(SINGLE)) return;
+  const r = spawnSync(path.join(ROOT, 'scripts', 'build-single.sh'), [], { cwd: ROOT, stdio: 'inherit' });
+  if (r.status !== 0) throw new Error('scripts/build-single.sh failed');
 }
 
-test('the single file works from file:// with no network: it renders, follows a control, runs a design, fetches nothing', { timeout: 120000 }, async () => {
-  assert.ok(fs.existsSync(SINGLE), `${SINGLE} exists (scripts/build-single.sh)`);
-  const size = fs.statSync(SINGLE).size;
-  assert.ok(size <= 600 * 1024, `the single file is ${size} bytes, within 600 KiB`);
+/**
+ * Opens the single file from file:// (with `hash`), every request but file:, data: and blob: URLs
+ * aborted; waits for its first result, runs `body(page)`, then checks that it fetched nothing but
+ * itself, reported no CSP violation, no console or page error, and no panic.
+ */
+async function withSingle(hash, body) {
+  ensureSingle();
   const fileUrl = pathToFileURL(SINGLE).href;
-  const context = await browser.newContext({ colorScheme: 'light' });
-  const requests = [];
-  const aborted = [];
-  const consoleErrors = [];
-  const pageErrors = [];
-  await context.route('**', (route) => {
-    const url = route.request().url();
-    if (url.startsWith('file:') || url.startsWith('data:') || url.startsWith('blob:')) return route.continue();
-    aborted.push(url);
-    return route.abort('blockedbyclient');
-  });
-  context.on('request', (req) => requests.push(req.url()));
-  const page = await context.newPage();
-  page.on('console', (msg) => {
-    if (msg.type() === 'error') consoleErrors.push(msg.text());
-  });
-  page.on('pageerror', (err) => pageErrors.push(String(err && err.stack ? err.stack : err)));
+  const { context, page, log } = await openPage(env.browser, null);
   try {
-    await page.goto(fileUrl);
+    await page.goto(fileUrl + hash);
     await page.waitForFunction(() => {
-      const q = document.querySelector('[data-quantity="elements[0].separation_mm"]');
+      const q = document.querySelector('[data-quantity][data-value]');
       return window.doublespar && q && q.getAttribute('data-value');
     }, null, { timeout: 30000 });
+    await body(page);
+    assert.equal(await page.isHidden('#panic'), true, 'no panic banner');
+  } finally {
+    await context.close();
+  }
+  const foreign = log.requests.filter((u) => !u.startsWith(fileUrl) && !u.startsWith('data:') && !u.startsWith('blob:'));
+  assert.deepEqual(foreign, [], 'no request but the file itself');
+  expectClean(log);
+}
 
+test('the single file works from file:// with no network under its own strict CSP: it renders, follows a control, runs a design, fetches nothing', { timeout: 120000 }, async () => {
+  ensureSingle();
+  const size = fs.statSync(SINGLE).size;
+  assert.ok(size <= 600 * 1024, `the single file is ${size} bytes, within 600 KiB`);
+  const html = fs.readFileSync(SINGLE, 'utf8');
+  const policies = [...html.matchAll(/<meta http-equiv="Content-Security-Policy" content="([^"]*)">/g)].map((m) => m[1]);
+  assert.equal(policies.length, 1, 'one CSP <meta>');
+  assert.match(policies[0], /^default-src 'none'; script-src 'sha256-[A-Za-z0-9+/=]+' 'wasm-unsafe-eval'; style-src 'sha256-[A-Za-z0-9+/=]+';/);
+  assert.doesNotMatch(policies[0], /unsafe-inline|'self'|\*/, 'nothing inline but by hash, no origin, no wildcard');
+
+  await withSingle('', async (page) => {
     // Renders: every view canvas has ink.
-    const ink = await page.evaluate(inkOf, 'canvas[data-view]');
-    assert.ok(ink.length >= 2, `views found: ${JSON.stringify(ink)}`);
-    for (const v of ink) assert.ok(v.ink > 100, `the ${v.view} view is drawn (${v.ink} non-background pixels)`);
+    const stats = await page.evaluate(canvasStats);
+    assert.ok(stats.length >= 2, `views found: ${stats.map((s) => s.view)}`);
+    for (const v of stats) assert.ok(drawn(v), `the ${v.view} view is drawn (${v.differing} of ${v.total} pixels)`);
 
     // Follows a control: the thickness field changes the separation, as the command line says.
     const sel = '[data-quantity="elements[0].separation_mm"]';
@@ -112,24 +102,23 @@ test('the single file works from file:// with no network: it renders, follows a 
       .catch(async () => assert.fail(`the design panel is ${await page.evaluate(() => document.getElementById('design').dataset.state)}: ${await page.textContent('#design-status')}`));
     const n = await page.getAttribute('[data-quantity="design.monte_carlo.n"]', 'data-value');
     assert.ok(Number(n) > 0, `the Monte Carlo summary is shown (n = ${n})`);
+  });
+});
 
-    // Nothing but the file itself (and inline data:/blob: URLs).
-    const foreign = requests.filter((u) => u !== fileUrl && !u.startsWith('data:') && !u.startsWith('blob:'));
-    assert.deepEqual(foreign, [], 'no request but the file itself');
-    assert.deepEqual(aborted, [], 'nothing had to be blocked');
-    assert.deepEqual(pageErrors, [], 'no page error');
-    assert.deepEqual(consoleErrors, [], 'no console error');
-    assert.equal(await page.isHidden('#panic'), true, 'no panic banner');
-  } finally {
-    await context.close();
-  }
+test('the single file from file:// with a #scenario= fragment: the recombiner shows four rays that agree with the command line', { timeout: 60000 }, async () => {
+  const doc = JSON.parse(example('recombiner.json'));
+  await withSingle(`#scenario=${encodeURIComponent(JSON.stringify(doc))}`, async (page) => {
+    const sc = JSON.parse(await page.evaluate(() => window.doublespar.session.scenarioJson()));
+    const cli = cliTrace(sc);
+    assert.deepEqual(cli, cliTrace(doc), 'the page holds exactly the fragment\'s scenario');
+    assert.deepEqual(cli.rays.map((r) => r.label).sort(), ['ee', 'eo', 'oe', 'oo']);
+    await expectAgreement(page, cli, requiredPaths(cli), 'recombiner in the single file');
+    assert.equal(await page.isHidden('#fragment-error'), true, 'no fragment error');
+  });
 });
 
 test('the example documentation page: two independent figures and an iframe', { timeout: 90000 }, async () => {
-  const missingBefore = server.missing.length;
-  const { context, page, log } = await openPage(browser, server.origin);
-  try {
-    await page.goto(`${server.origin}/embed-example.html`);
+  await withPage(env, '/embed-example.html', async ({ page }) => {
     await page.waitForFunction(() => {
       const figs = [...document.querySelectorAll('spar-figure')];
       return figs.length === 2 && figs.every((f) => f.getAttribute('data-state') === 'ready');
@@ -157,19 +146,10 @@ test('the example documentation page: two independent figures and an iframe', { 
     const cli = cliTrace(await page.evaluate(() => document.getElementById('fig-displacer').session.scenarioJson()));
     assert.ok(close(info[0].sep, cli.elements[0].separation_mm), `figure 1 separation ${info[0].sep} is the command line's`);
 
-    const pixels = (id) => page.evaluate((fid) => [...document.getElementById(fid).shadowRoot.querySelectorAll('canvas')].map((c) => {
-      const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
-      let h = 0;
-      let ink = 0;
-      for (let i = 0; i < d.length; i += 1) {
-        h = (h * 31 + d[i]) >>> 0;
-        if (i % 4 === 0 && (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2])) ink += 1;
-      }
-      return { w: c.width, h: c.height, hash: h, ink };
-    }), id);
+    const pixels = (id) => page.evaluate(canvasStats, { selector: 'canvas', host: `#${id}` });
     const a0 = await pixels('fig-displacer');
     const b0 = await pixels('fig-pair');
-    for (const p of [...a0, ...b0]) assert.ok(p.ink > 100, `every view is drawn (${JSON.stringify(p)})`);
+    for (const p of [...a0, ...b0]) assert.ok(drawn(p), `every view is drawn (${JSON.stringify(p)})`);
 
     // The interactive thickness slider of figure 1 changes its separation and pixels only.
     await page.evaluate(() => {
@@ -206,23 +186,13 @@ test('the example documentation page: two independent figures and an iframe', { 
     assert.equal(err.state, 'error');
 
     // The iframe renders its views.
-    const frame = page.frameLocator('#frame-pair');
-    await frame.locator('spar-figure[data-state="ready"]').waitFor({ timeout: 30000 });
-    const frameInfo = await page.frame({ url: /embed\.html/ }).evaluate(() => {
-      const f = document.querySelector('spar-figure');
-      return {
-        views: [...f.shadowRoot.querySelectorAll('canvas')].map((c) => {
-          const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
-          let ink = 0;
-          for (let i = 0; i < d.length; i += 4) if (d[i] !== d[0] || d[i + 1] !== d[1] || d[i + 2] !== d[2]) ink += 1;
-          return { view: c.dataset.view, ink };
-        }),
-        elements: f.result.elements.length,
-      };
-    });
-    assert.deepEqual(frameInfo.views.map((v) => v.view), ['side', 'end']);
-    for (const v of frameInfo.views) assert.ok(v.ink > 100, `the iframe's ${v.view} view is drawn (${v.ink})`);
-    assert.equal(frameInfo.elements, 3, 'the iframe shows the scenario of its fragment');
+    await page.frameLocator('#frame-pair').locator('spar-figure[data-state="ready"]').waitFor({ timeout: 30000 });
+    const frame = page.frame({ url: /embed\.html/ });
+    const frameViews = await frame.evaluate(canvasStats, { selector: 'canvas', host: 'spar-figure' });
+    assert.deepEqual(frameViews.map((v) => v.view), ['side', 'end']);
+    for (const v of frameViews) assert.ok(drawn(v), `the iframe's ${v.view} view is drawn (${v.differing} of ${v.total})`);
+    assert.equal(await frame.evaluate(() => document.querySelector('spar-figure').result.elements.length), 3,
+      'the iframe shows the scenario of its fragment');
 
     // Resizing a figure redraws it at the new size.
     await page.evaluate(() => { document.getElementById('fig-pair').style.height = '20rem'; });
@@ -230,12 +200,5 @@ test('the example documentation page: two independent figures and an iframe', { 
       const c = document.getElementById('fig-pair').shadowRoot.querySelector('canvas');
       return c.height > 0 && Math.abs(c.height - c.clientHeight * devicePixelRatio) < 2;
     }, null, { timeout: 5000 });
-
-    assert.deepEqual(log.foreign, [], 'no request to any other host');
-    assert.deepEqual(log.pageErrors, [], 'no page error');
-    assert.deepEqual(log.consoleErrors, [], 'no console error');
-    assert.deepEqual(server.missing.slice(missingBefore), [], 'no file missing');
-  } finally {
-    await context.close();
-  }
+  }, { ready: false });
 });

@@ -14,8 +14,9 @@ import {
   useBrowser,
   withPage as openAt,
   cliTrace,
-  resolvePath,
   close,
+  expectAgreement,
+  requiredPaths,
   canvasStats as statsInPage,
   drawn,
 } from './support.mjs';
@@ -45,79 +46,6 @@ const withPage = (hash, body, options = {}) => openAt(env, `/${hash}`, body, opt
 /** The page's current scenario, with every default written out. */
 const pageScenario = async (page) =>
   JSON.parse(await page.evaluate(() => window.doublespar.session.scenarioJson()));
-
-/** Every [data-quantity] on the page as [path, data-value]. */
-const quantities = (page) =>
-  page.$$eval('[data-quantity]', (els) =>
-    els.map((e) => [e.getAttribute('data-quantity'), e.getAttribute('data-value')]),
-  );
-
-const isBlank = (v) => v === null || v.trim() === '';
-
-/**
- * Compares what the page shows with the command line's result: every path in `required` must be
- * on the page, and every [data-quantity] on the page must agree with the result at that path.
- * Numbers: 1e-12 relative, with an absolute floor of 1e-15 for the `required` paths and 1e-12
- * for the others (angles and positions that are zero up to rounding come out as ~1e-15 in the
- * wasm build and exactly 0 natively, e.g. an ellipticity in degrees). A null in the result may
- * show as no value; strings, booleans and lists compare as String(value), as the page writes
- * them. Returns a list of readable mismatches (empty when all agree).
- */
-function mismatches(shown, cli, required = []) {
-  const out = [];
-  const paths = new Set(shown.map(([p]) => p));
-  const strict = new Set(required);
-  for (const p of required) if (!paths.has(p)) out.push(`${p}: not on the page`);
-  for (const [p, value] of shown) {
-    const expected = resolvePath(cli, p);
-    if (expected === undefined) {
-      out.push(`${p}: no such path in the result (data-value=${value})`);
-    } else if (expected === null) {
-      if (!isBlank(value) && Number.isFinite(Number(value))) {
-        out.push(`${p}: the result has null, the page shows ${value}`);
-      }
-    } else if (typeof expected === 'number') {
-      const got = isBlank(value) ? NaN : Number(value);
-      if (!close(got, expected, 1e-12, strict.has(p) ? 1e-15 : 1e-12)) {
-        out.push(`${p}: page ${value}, command line ${expected}`);
-      }
-    } else if (
-      typeof expected === 'string' ||
-      typeof expected === 'boolean' ||
-      (Array.isArray(expected) && expected.every((x) => typeof x !== 'object'))
-    ) {
-      if (value !== String(expected)) out.push(`${p}: page ${value}, command line ${String(expected)}`);
-    } else {
-      out.push(`${p}: the result holds an object there, not a value (data-value=${value})`);
-    }
-  }
-  return out;
-}
-
-/** The paths the brief singles out, for every crystal in the result and every ray. */
-function requiredPaths(cli, crystalsToo = true) {
-  const req = [];
-  if (crystalsToo) {
-    cli.elements.forEach((el, i) => {
-      if (el.kind !== 'crystal') return;
-      req.push(`elements[${i}].separation_mm`, `elements[${i}].retardance_rad`, `elements[${i}].e.walkoff_deg`);
-    });
-  }
-  for (const r of cli.rays) req.push(`rays.${r.label}.power`, `rays.${r.label}.exit_position_mm.0`);
-  return req;
-}
-
-/** Polls until the page agrees with `cli` (the page may update on the next frame). */
-async function expectAgreement(page, cli, required, what, timeout = 5000) {
-  const end = Date.now() + timeout;
-  let bad;
-  for (;;) {
-    bad = mismatches(await quantities(page), cli, required);
-    if (bad.length === 0 || Date.now() > end) break;
-    await page.waitForTimeout(50);
-  }
-  assert.deepEqual(bad, [], `${what}: the page and the command line disagree`);
-}
 
 /** Waits until the page's scenario satisfies `pred`; returns it. */
 async function waitScenario(page, pred, what, timeout = 5000) {
