@@ -1331,8 +1331,8 @@ function fieldText(fe) {
 /** On first load nothing is there to keep (`kept` false): the demo is shown instead. */
 function showFragmentError(text, kept = false) {
   const el = document.getElementById('fragment-error');
-  const what = kept ? 'the current set-up was kept' : 'so the demo is shown instead';
-  el.textContent = `The set-up in this link could not be loaded, ${what}: ${text}`;
+  const outcome = kept ? '; the current set-up was kept' : ', so the demo is shown instead';
+  el.textContent = `The set-up in this link could not be loaded${outcome}: ${text}`;
   el.hidden = false;
 }
 
@@ -1403,7 +1403,7 @@ let fileToken = 0;
 
 function showFileError(name, text) {
   const el = document.getElementById('file-error');
-  el.textContent = `${name} could not be opened, the current set-up was kept: ${text}`;
+  el.textContent = `${name} could not be opened; the current set-up was kept: ${text}`;
   el.hidden = false;
 }
 
