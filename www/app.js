@@ -1356,6 +1356,9 @@ function tryScenarioText(text) {
   try {
     return { obj: JSON.parse(text) };
   } catch (e) {
+    // Not expected (the core's JSON is the stricter), but the session must not stay ahead of
+    // the page.
+    if (lastGoodText !== null) session.updateJson(lastGoodText);
     return { error: { field: '', message: `not valid JSON (${e.message})` } };
   }
 }
@@ -1363,8 +1366,9 @@ function tryScenarioText(text) {
 /**
  * Loads the scenario of the fragment. On first load (`previousHash` undefined) a bad fragment
  * shows its message and the demo; the bad link stays in the address bar until the user edits.
- * Later (the hash changed to `previousHash`'s successor) a bad fragment keeps the set-up on
- * screen and puts its address back.
+ * On a later change (`previousHash` is the hash before it) a bad fragment keeps the set-up on
+ * screen and puts the address back: to `previousHash` when that was the set-up's own fragment or
+ * none, else to the set-up's fragment.
  */
 function loadFromLocation(previousHash) {
   const kept = previousHash !== undefined && lastGoodText !== null;
@@ -1385,11 +1389,14 @@ function loadFromLocation(previousHash) {
     }
     problem = fieldText(tried.error);
   }
-  showFragmentError(problem, kept);
   if (!kept) {
+    showFragmentError(problem);
     loadDemo();
     return;
   }
+  // A fragment write still pending from an edit would clear the message that follows.
+  flushFragment();
+  showFragmentError(problem, true);
   const good = FRAGMENT_KEY + encodeURIComponent(lastGoodText);
   const back = previousHash === '' || previousHash === good ? previousHash : good;
   history.replaceState(history.state, '', `${location.pathname}${location.search}${back}`);

@@ -347,6 +347,20 @@ test('an invalid fragment after an edit keeps the current set-up, its views and 
     }
     const cli = cliTrace(good);
     await expectAgreement(page, cli, requiredPaths(cli), 'after the bad fragments');
+
+    // A bad fragment right after an edit, while the page may still hold back writing the edit's
+    // fragment: the message stays, and the address ends up holding the edit.
+    // (The first edit's fragment is written at once, the second's held back.)
+    await enter(page, SEL_THICK, '4.25');
+    await enter(page, SEL_THICK, '4.3');
+    const edited = await waitScenario(page, (s) => s.elements[0].thickness_mm === 4.3, 'thickness 4.3 taken');
+    await page.evaluate((h) => { location.hash = h; }, BAD_FRAGMENTS[0][1]);
+    await page.waitForTimeout(600); // more than the page's 250 ms between address writes
+    assert.match(await fragmentError(page), /current set-up was kept/, 'the message stays after the pending write');
+    assert.deepEqual(await pageScenario(page), edited, 'the edited set-up is kept');
+    const hash = await page.evaluate(() => location.hash);
+    assert.equal(JSON.parse(decodeURIComponent(hash.slice('#scenario='.length))).elements[0].thickness_mm, 4.3,
+      `the address holds the edit: ${hash}`);
   });
 });
 
