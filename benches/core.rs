@@ -5,9 +5,10 @@
 //! benchmarks, not in timed tests).
 //!
 //! - `trace`: full traces per second of a three-crystal stack (eight rays), result built.
-//! - `walkoff_sweep`: 10⁶ closed-form walk-off values ρ(θ) over the cut tilt, the same sweep the
-//!   numpy baseline computes with vectorized arrays: through the core's dense sweep on two
-//!   threads, and point by point for comparison.
+//! - `walkoff_sweep`: 10⁶ closed-form walk-off values ρ(θ) over the cut tilt and their checksum,
+//!   the same work the numpy baseline does with vectorized arrays (`scripts/bench/walkoff_numpy.py`
+//!   sums its array too): through the core's dense sweep on two threads and on one, and point by
+//!   point through `uniaxial::walkoff` for comparison.
 //! - `exact_sweep`: 10⁵ walk-off values from the exact plane-wave modes (oblique incidence).
 //! - `monte_carlo`: a 100 000-sample displacer tolerance run.
 
@@ -53,7 +54,7 @@ pub fn walkoff_sweep(ix: Indices, n: usize) -> f64 {
 /// The same sweep through the core's dense sweep on two threads (this machine's cores).
 pub fn walkoff_sweep_dense(ix: Indices, out: &mut [f64]) -> f64 {
     doublespar::sweep::walkoff_sweep_parallel(ix, 0.0, std::f64::consts::FRAC_PI_2, out, 2);
-    out.iter().sum()
+    doublespar::sweep::checksum(out)
 }
 
 fn main() {
@@ -73,7 +74,7 @@ fn main() {
     let (t_sweep, sum) = time(9, || walkoff_sweep_dense(black_box(ix), &mut buffer));
     let (t_single, _) = time(9, || {
         doublespar::sweep::walkoff_sweep_into(black_box(ix), 0.0, std::f64::consts::FRAC_PI_2, &mut buffer);
-        buffer.iter().sum()
+        doublespar::sweep::checksum(&buffer)
     });
     assert!(
         (sum - sum_pointwise).abs() < 1e-8,
@@ -101,8 +102,9 @@ fn main() {
         1e6 / traces_per_s
     );
     println!(
-        "closed-form walk-off sweep, 10^6 points: {:.2} ms dense on 2 threads, {:.2} ms point by point (checksum {sum:.12e})",
+        "closed-form walk-off sweep, 10^6 points: {:.2} ms dense on 2 threads, {:.2} ms on one, {:.2} ms point by point (checksum {sum:.12e})",
         t_sweep * 1e3,
+        t_single * 1e3,
         t_pointwise * 1e3
     );
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);

@@ -1,25 +1,57 @@
 #!/usr/bin/env bash
-# Native benchmarks of the core beside the numpy baseline and the same sweep in WebAssembly (under
-# Node), measured side by side in one run, with the ratios. (The page's figures come from scripts/bench-web.sh.) Figures are reported, never
-# asserted. numpy is installed into the venv under target/ (as the reference tests do).
+# Every benchmark in one run, side by side on this machine, with the ratios: the native core
+# (cargo bench --bench core), the numpy baseline of the same sweep, the same sweep in WebAssembly
+# under Node, and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
+# first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
+# Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
+# whose excess makes the exit status 1 as it does in scripts/test.sh.
+# numpy is installed into the venv under target/ (as the reference tests do).
+# Usage: scripts/bench.sh [--no-page]
 set -euo pipefail
 cd "$(dirname "$0")/.."
+page=1
+[ "${1:-}" = --no-page ] && page=0
 venv=target/refenv
 [ -x "$venv/bin/python" ] || python3 -m venv "$venv"
 "$venv/bin/python" -c "import numpy" 2>/dev/null || "$venv/bin/python" -m pip install --quiet numpy
-native=$(cargo bench --quiet --bench core 2>/dev/null | tee /dev/stderr | tail -1)
+scripts/build-web.sh >/dev/null
+native_out=$(cargo bench --quiet --bench core 2>/dev/null)
+echo "$native_out"
+native=$(printf '%s\n' "$native_out" | tail -1)
 # OPENBLAS_* slow numpy down on some processors here; unset for this command only.
 baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/walkoff_numpy.py)
 echo "$baseline"
-[ -f www/pkg-design/doublespar_bg.wasm ] || scripts/build-web.sh >/dev/null
 wasm=$(node scripts/bench/wasm_sweep.mjs)
 echo "$wasm"
-python3 - "$native" "$baseline" "$wasm" <<'PY'
+web='{}'
+status=0
+if [ "$page" = 1 ]; then
+  if [ ! -d tests/e2e/node_modules/playwright-core ]; then
+    (cd tests/e2e && npm ci --no-audit --no-fund --loglevel=error)
+  fi
+  web_out=$(node scripts/bench-web.mjs) || status=$?
+  echo "$web_out"
+  web=$(printf '%s\n' "$web_out" | tail -1)
+  case "$web" in \{*) ;; *) web='{}' ;; esac
+fi
+echo
+python3 - "$native" "$baseline" "$wasm" "$web" <<'PY'
 import json, sys
-n, b, w = json.loads(sys.argv[1]), json.loads(sys.argv[2]), json.loads(sys.argv[3])
-one = n["walkoff_sweep_one_thread_1e6_ms"]
-print(f"walk-off sweep, 10^6 points, one thread: native {one:.2f} ms, WebAssembly under Node {w['walkoff_sweep_1e6_ms']:.2f} ms: wasm takes {w['walkoff_sweep_1e6_ms'] / one:.2f}x the native time")
+n, b, w, p = (json.loads(a) for a in sys.argv[1:5])
 assert abs(n["walkoff_sweep_checksum"] - b["walkoff_sweep_checksum"]) < 1e-6 * abs(b["walkoff_sweep_checksum"]), "the two sweeps disagree"
-ratio = b["walkoff_sweep_1e6_ms"] / n["walkoff_sweep_1e6_ms"]
-print(f"walk-off sweep, 10^6 points: native {n['walkoff_sweep_1e6_ms']:.2f} ms, numpy {b['walkoff_sweep_1e6_ms']:.2f} ms: native is {ratio:.2f}x as fast")
+assert abs(n["walkoff_sweep_checksum"] - w["walkoff_sweep_checksum"]) < 1e-9 * abs(w["walkoff_sweep_checksum"]), "native and wasm sweeps disagree"
+one, two, base = n["walkoff_sweep_one_thread_1e6_ms"], n["walkoff_sweep_1e6_ms"], b["walkoff_sweep_1e6_ms"]
+print("summary")
+print(f"  native trace, three crystals and eight rays: {n['trace_per_s']:.0f} traces/s")
+for label, ms in (("2 threads", two), ("one thread", one)):
+    print(f"  walk-off sweep, 10^6 points: native on {label} {ms:.2f} ms, numpy {base:.2f} ms: native is {base / ms:.1f}x as fast (target 5x)")
+wm = w["walkoff_sweep_1e6_ms"]
+print(f"  walk-off sweep, 10^6 points, one thread: WebAssembly under Node {wm:.2f} ms, native {one:.2f} ms: wasm takes {wm / one:.2f}x the native time (target within 2x)")
+print(f"  Monte Carlo, displacer, 10^5 samples, native: {n['monte_carlo_1e5_ms']:.1f} ms")
+if p:
+    print(f"  page, recompute + redraw of every view: median {p['update_redraw_ms']['median']} ms")
+    print(f"  page, first complete render: {p['first_render_ms']} ms (budget 1500 ms, {'within' if p['first_render_within_budget'] else 'OVER'})")
+    print(f"  page wasm: {p['wasm_bytes']} bytes (budget 300000, {'within' if p['wasm_within_budget'] else 'OVER'})")
+    print(f"  Monte Carlo, displacer, 10^5 samples, in the page's worker: median {p['monte_carlo']['post_to_summary_ms']['median']} ms")
 PY
+exit "$status"

@@ -20,15 +20,19 @@ fi
 # target-features section is stripped before wasm-bindgen (it would otherwise tell wasm-bindgen
 # that std uses them). The flag is set here, not in .cargo/config.toml, so that the browser tests
 # keep the toolchain's defaults.
-FEATURES="--enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-mutable-globals --enable-multivalue"
+FEATURES="--enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-mutable-globals --enable-multivalue --enable-simd"
 
-# build_module OUT_DIR CARGO_TARGET_DIR [cargo feature flags…]: one optimized module in www/OUT_DIR.
+# build_module OUT_DIR CARGO_TARGET_DIR PROFILE [cargo feature flags…]: one optimized module in
+# www/OUT_DIR.
 build_module() {
-  local out="$1" tdir="$2"
-  shift 2
-  CARGO_TARGET_DIR="$tdir" CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="-C target-feature=-reference-types" \
-    cargo build --lib --target wasm32-unknown-unknown --profile web "$@"
-  local raw="$tdir/wasm32-unknown-unknown/web/doublespar.wasm"
+  local out="$1" tdir="$2" profile="$3" flags="-C target-feature=-reference-types"
+  shift 3
+  # The speed-tuned module may use WebAssembly SIMD (fixed-width 128-bit), which its loops
+  # auto-vectorize into; the size-tuned page module does not vectorize, so it leaves SIMD off.
+  if [ "$profile" = web-fast ]; then flags="$flags,+simd128"; fi
+  CARGO_TARGET_DIR="$tdir" CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUSTFLAGS="$flags" \
+    cargo build --lib --target wasm32-unknown-unknown --profile "$profile" "$@"
+  local raw="$tdir/wasm32-unknown-unknown/$profile/doublespar.wasm"
   local work="target/web-build/$out"
   rm -rf "$work" && mkdir -p "$work" "www/$out"
   if command -v wasm-opt >/dev/null 2>&1; then
@@ -54,5 +58,5 @@ build_module() {
 
 # The page's module, and the design worker's (the solvers and the Monte Carlo run, off the main
 # thread), each in its own target folder so that both stay cached.
-build_module pkg target
-build_module pkg-design target/design-wasm --features design-worker
+build_module pkg target web
+build_module pkg-design target/design-wasm web-fast --features design-worker

@@ -146,7 +146,7 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
     };
     let mut out = vec![0.0; n];
     crate::sweep::walkoff_sweep_into(ix, 0.0, std::f64::consts::FRAC_PI_2, &mut out);
-    out.iter().sum()
+    crate::sweep::checksum(&out)
 }
 
 /// Summary statistics (mean, std, p5, p95, histogram) of samples, as the design reports them.
