@@ -1,20 +1,28 @@
 // Doublespar page: builds the controls, traces the scenario with the WebAssembly core on every
 // edit, draws the six views and writes the results as text. No framework and no network access:
-// the only import is the local bindings module (pkg/doublespar.js, built by scripts/build-web.sh).
+// the bindings module (pkg/doublespar.js, built by scripts/build-web.sh) is loaded here, and
+// every other import is one of the page's own modules beside this file: the helpers (dom.js,
+// format.js, field-error.js).
 //
 // Data flow: controls -> scenario object -> session.updateJson(text) -> result -> results text,
 // canvases, aria-labels, URL fragment. A rejected scenario shows its message beside the control
 // named by the error's field path and leaves the last good picture and results in place.
+//
+// Contract: DEVELOPERS.md, "The page" (data-field, data-error-for, data-quantity, data-view, the
+// fragment, the file chooser) and the test hook window.doublespar = {session, redraw(),
+// applyScenario(obj), designRequest(), designShown()}, set once the page is ready.
 
 'use strict';
+
+import { h, setAttr, setText, uid } from './dom.js';
+import { fixed, fmt, minus, readNumber, significant, unitWord } from './format.js';
+import { parentPath, toFieldError } from './field-error.js';
 
 const MAX_ELEMENTS = 64;
 const MAX_CRYSTALS = 12;
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
 const FRAGMENT_KEY = '#scenario=';
 const FRAGMENT_INTERVAL_MS = 250; // at most four address updates a second while dragging
-const MINUS = '\u2212';
-const NUMBER_RE = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?$/;
 
 // Starting points besides the built-in demo (the same documents as examples/*.json).
 const PRESETS = {
@@ -88,52 +96,8 @@ window.addEventListener('unhandledrejection', (ev) => {
 });
 
 // ---------------------------------------------------------------------------------------------
-// Small DOM helpers (textContent only; never innerHTML).
-
-let uidCounter = 0;
-function uid(prefix) {
-  uidCounter += 1;
-  return `${prefix}-${uidCounter}`;
-}
-
-function h(tag, attrs, ...children) {
-  const el = document.createElement(tag);
-  if (attrs) {
-    for (const [k, v] of Object.entries(attrs)) {
-      if (v === undefined || v === null || v === false) continue;
-      if (k === 'text') el.textContent = v;
-      else if (k === 'className') el.className = v;
-      else if (v === true) el.setAttribute(k, '');
-      else el.setAttribute(k, String(v));
-    }
-  }
-  for (const c of children) {
-    if (c === null || c === undefined || c === false) continue;
-    el.appendChild(typeof c === 'string' ? document.createTextNode(c) : c);
-  }
-  return el;
-}
-
-function setText(el, text) {
-  if (el.textContent !== text) el.textContent = text;
-}
-
-function setAttr(el, name, value) {
-  if (el.getAttribute(name) !== value) el.setAttribute(name, value);
-}
-
-// ---------------------------------------------------------------------------------------------
-// Number handling.
-
-/** A finite number, or the raw string so that the core names the field in a type error. */
-function readNumber(raw) {
-  const t = raw.trim().replace(/\u2212/g, '-');
-  if (NUMBER_RE.test(t)) {
-    const v = Number(t);
-    if (Number.isFinite(v)) return v;
-  }
-  return raw;
-}
+// Controls. Every control carries data-field (its contract path); every field has an error
+// element with data-error-for (the same path) beside it.
 
 /** How a loaded value is written into a text control. */
 function asInputText(v) {
@@ -146,70 +110,6 @@ function asInputText(v) {
     return String(v);
   }
 }
-
-function minus(s) {
-  return s.charAt(0) === '-' ? MINUS + s.slice(1) : s;
-}
-
-function plainNumber(v, digits) {
-  let s = v.toFixed(digits);
-  if (/^-0(?:\.0*)?$/.test(s)) s = s.slice(1);
-  return minus(s);
-}
-
-/** Fixed decimals; values below `floor` in magnitude are shown as 0. */
-function fixed(v, digits, floor = 0) {
-  if (v === null || v === undefined) return '—';
-  if (typeof v !== 'number') return String(v);
-  if (!Number.isFinite(v)) return String(v);
-  return plainNumber(Math.abs(v) < floor ? 0 : v, digits);
-}
-
-/** Significant digits with plain notation in the usual range and a×10ⁿ outside it. */
-function significant(v, n) {
-  if (v === null || v === undefined) return '—';
-  if (typeof v !== 'number' || !Number.isFinite(v)) return String(v);
-  if (v === 0) return '0';
-  const a = Math.abs(v);
-  if (a >= 1e-4 && a < 1e7) {
-    const digits = Math.max(0, n - 1 - Math.floor(Math.log10(a)));
-    return plainNumber(v, Math.min(digits, 12));
-  }
-  const [m, e] = v.toExponential(n - 1).split('e');
-  return `${minus(m)}×10${superscript(e)}`;
-}
-
-const SUPERSCRIPTS = { '-': '⁻', '+': '', 0: '⁰', 1: '¹', 2: '²', 3: '³', 4: '⁴', 5: '⁵', 6: '⁶', 7: '⁷', 8: '⁸', 9: '⁹' };
-function superscript(s) {
-  return [...s].map((c) => SUPERSCRIPTS[c] ?? c).join('');
-}
-
-const fmt = {
-  index: (v) => fixed(v, 6),
-  deg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)}°`),
-  ellipseDeg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 2, 5e-13)}°`),
-  mm: (v) => {
-    if (v === null || v === undefined) return '—';
-    if (Math.abs(v) < 1e-9) return '0 mm';
-    if (Math.abs(v) >= 1e-3) return `${fixed(v, 4)} mm`;
-    return `${significant(v, 3)} mm`;
-  },
-  power: (v) => {
-    if (v === null || v === undefined) return '—';
-    if (Math.abs(v) < 1e-15) return '0';
-    if (Math.abs(v) >= 1e-3) return fixed(v, 4);
-    return significant(v, 3);
-  },
-  rad: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} rad`),
-  waves: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} waves`),
-  dop: (v) => fixed(v, 4, 5e-13),
-  text: (v) => (v === null || v === undefined ? '—' : String(v)),
-  labels: (v) => (Array.isArray(v) ? v.map((x) => x || '(no crystal)').join(' + ') : String(v)),
-};
-
-// ---------------------------------------------------------------------------------------------
-// Controls. Every control carries data-field (its contract path); every field has an error
-// element with data-error-for (the same path) beside it.
 
 /** Fields whose path depends on where they sit (stack cards), renamed on reorder. */
 class Field {
@@ -306,10 +206,6 @@ class Field {
     const v = readNumber(this.input.value);
     if (typeof v === 'number' && this.range.value !== String(v)) this.range.value = String(v);
   }
-}
-
-function unitWord(unit) {
-  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves' }[unit] ?? unit;
 }
 
 const ANGLE = (min, max) => ({ min, max, step: 0.1 });
@@ -783,19 +679,6 @@ function loadControls(s) {
 
 // ---------------------------------------------------------------------------------------------
 // Errors beside their controls.
-
-function parentPath(p) {
-  if (!p) return null;
-  const m = /^(.*?)(?:\.[^.[\]]*|\[\d+\])$/.exec(p);
-  return m ? m[1] : '';
-}
-
-function toFieldError(e) {
-  if (e && typeof e === 'object' && !(e instanceof Error) && typeof e.message === 'string') {
-    return { field: typeof e.field === 'string' ? e.field : '', message: e.message };
-  }
-  return null;
-}
 
 let errorShown = false;
 
@@ -2849,6 +2732,9 @@ function updatePrintSheet(scenario) {
   }
   box.replaceChildren(top, h('h3', { text: 'Stack' }), list);
 }
+
+// ---------------------------------------------------------------------------------------------
+// Printing: the sheet goes on paper, so the views are drawn in the light palette.
 
 let printDark = false;
 function beforePrint() {
