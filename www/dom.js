@@ -4,7 +4,8 @@
 // Contract: `h(tag, attrs, ...children)` makes an element (attrs: `text` sets textContent,
 // `className` the class, `true` an empty attribute; null, undefined and false are left out;
 // string children become text nodes); `setText` and `setAttr` write only when the value
-// changes; `uid(prefix)` gives an id unique in the page (`prefix-N`).
+// changes; `uid(prefix)` gives an id unique in the page (`prefix-N`); `numberInput(id, attrs)`
+// the text input of a number field.
 
 let uidCounter = 0;
 export function uid(prefix) {
@@ -36,4 +37,10 @@ export function setText(el, text) {
 
 export function setAttr(el, name, value) {
   if (el.getAttribute(name) !== value) el.setAttribute(name, value);
+}
+
+/** A text input for a number (class `num`, the decimal keypad, no autocomplete or spell check);
+ *  `attrs` as for h, after those. */
+export function numberInput(id, attrs) {
+  return h('input', { id, type: 'text', className: 'num', inputmode: 'decimal', autocomplete: 'off', spellcheck: 'false', ...attrs });
 }
