@@ -2,8 +2,9 @@
 // edit, draws the six views and writes the results as text. No framework and no network access:
 // the bindings module (pkg/doublespar.js, built by scripts/build-web.sh) is loaded here, and
 // every other import is one of the page's own modules beside this file: the design panel
-// (design-panel.js) and the helpers they share (dom.js, format.js, field-error.js). This module
-// starts the page (main) and wires them together, handing each what it needs as parameters.
+// (design-panel.js), the exports and print sheet (export.js), and the helpers they share
+// (dom.js, format.js, field-error.js). This module starts the page (main) and wires them
+// together, handing each what it needs as parameters.
 //
 // Data flow: controls -> scenario object -> session.updateJson(text) -> result -> results text,
 // canvases, aria-labels, URL fragment. A rejected scenario shows its message beside the control
@@ -16,9 +17,10 @@
 'use strict';
 
 import { h, numberInput, setAttr, setText, uid } from './dom.js';
-import { fixed, fmt, minus, readNumber, unitWord } from './format.js';
+import { fixed, fmt, readNumber, unitWord } from './format.js';
 import { nearestErrorSlot, toFieldError } from './field-error.js';
 import { setupDesign } from './design-panel.js';
+import { setupExport, updatePrintSheet } from './export.js';
 
 const MAX_ELEMENTS = 64;
 const MAX_CRYSTALS = 12;
@@ -1078,7 +1080,7 @@ function accept(result, text, scenarioObj, drawn = false) {
   clearFileError();
   renderResults(result);
   describeViews();
-  updatePrintSheet(JSON.parse(session.scenarioJson()));
+  updatePrintSheet(JSON.parse(session.scenarioJson()), KIND_NAMES);
 }
 
 /** Traces what the controls say; on an error, shows it and keeps the last good state. */
@@ -1394,190 +1396,7 @@ function onControlEvent(ev) {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Export: each view as SVG or PNG, the plots' data as CSV or JSON, the results and the set-up.
-// Every file is made in the page and handed over through a Blob URL and a temporary
-// <a download>: nothing is sent anywhere.
-
-const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
-const VIEW_TITLES = {
-  side: 'side view',
-  end: 'end view',
-  poincare: 'Poincaré sphere',
-  'walkoff-tilt': 'walk-off against cut tilt plot',
-  'separation-wavelength': 'separation against wavelength plot',
-  'retardance-wavelength': 'retardance against wavelength plot',
-};
-const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
-
-function exportStatus(text, failed = false) {
-  const el = document.getElementById('export-status');
-  if (!el) return;
-  el.textContent = text;
-  el.classList.toggle('field-error', failed);
-}
-
-function download(filename, blob) {
-  const url = URL.createObjectURL(blob);
-  const a = h('a', { href: url, download: filename, hidden: true });
-  document.body.appendChild(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10000);
-  exportStatus(`Saved ${filename}.`);
-}
-
-function csvField(v) {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : '';
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-function csvLine(fields) {
-  return fields.map(csvField).join(',');
-}
-
-function withUnit(label, unit) {
-  return unit ? `${label} (${unit})` : label;
-}
-
-/** A plot's data as CSV: a header naming the columns with units, the samples, then the
- * scenario's own operating point marked "current" in the third column. */
-function seriesCsv(s) {
-  const lines = [csvLine([withUnit(s.x_label, s.x_unit), withUnit(s.y_label, s.y_unit), 'point'])];
-  for (const [x, y] of s.points) lines.push(csvLine([x, y, 'sample']));
-  if (s.current) lines.push(csvLine([s.current[0], s.current[1], 'current']));
-  return lines.join('\r\n') + '\r\n';
-}
-
-/** The results as CSV: one row per output ray, then one per crystal of the stack. */
-function resultsCsv(r) {
-  const lines = [csvLine(['label', 'power', 'exit_x_mm', 'exit_y_mm', 'S0', 'S1', 'S2', 'S3',
-    'ellipse_azimuth_deg', 'ellipticity_deg', 'handedness'])];
-  for (const ray of r.rays) {
-    const st = ray.stokes ?? [];
-    lines.push(csvLine([ray.label, ray.power, ray.exit_position_mm?.[0], ray.exit_position_mm?.[1],
-      st[0], st[1], st[2], st[3], ray.ellipse?.azimuth_deg, ray.ellipse?.ellipticity_deg, ray.ellipse?.handedness]));
-  }
-  lines.push('');
-  lines.push(csvLine(['element', 'material', 'no', 'ne', 'separation_mm', 'retardance_rad']));
-  r.elements.forEach((e, i) => {
-    if (e.kind !== 'crystal') return;
-    lines.push(csvLine([i + 1, e.material, e.no, e.ne, e.separation_mm, e.retardance_rad]));
-  });
-  return lines.join('\r\n') + '\r\n';
-}
-
-function jsonBlob(value) {
-  return new Blob([JSON.stringify(value, null, 2) + '\n'], { type: 'application/json' });
-}
-
-function exportView(view, format) {
-  const v = views.find((x) => x.name === view);
-  if (!v) return;
-  const name = `doublespar-${view}.${format}`;
-  if (format === 'svg') {
-    const w = Math.max(1, Math.round(v.canvas.clientWidth));
-    const hgt = Math.max(1, Math.round(v.canvas.clientHeight));
-    download(name, new Blob([session.svg(view, w, hgt, false)], { type: 'image/svg+xml' }));
-  } else if (format === 'png') {
-    v.canvas.toBlob((blob) => {
-      if (blob) download(name, blob);
-      else exportStatus(`Could not make ${name}: the view has no picture yet.`, true);
-    }, 'image/png');
-  } else {
-    const s = session.series(view);
-    if (!s) {
-      exportStatus(`The ${VIEW_TITLES[view] ?? view} has no data series.`, true);
-      return;
-    }
-    if (format === 'csv') download(name, new Blob([seriesCsv(s)], { type: 'text/csv' }));
-    else download(name, jsonBlob(s));
-  }
-}
-
-function exportResults(what, format) {
-  if (what === 'scenario') {
-    download('doublespar-scenario.json', jsonBlob(JSON.parse(session.scenarioJson())));
-  } else if (format === 'json') {
-    download('doublespar-results.json', jsonBlob({
-      scenario: JSON.parse(session.scenarioJson()),
-      result: session.result(),
-    }));
-  } else {
-    download('doublespar-results.csv', new Blob([resultsCsv(session.result())], { type: 'text/csv' }));
-  }
-}
-
-function onExportClick(ev) {
-  const btn = ev.target.closest('button[data-export]');
-  if (!btn || !session) return;
-  const [what, format] = btn.dataset.export.split(':');
-  try {
-    if (what === 'results' || what === 'scenario') exportResults(what, format);
-    else exportView(what, format);
-  } catch (e) {
-    const fe = toFieldError(e);
-    if (!fe) throw e;
-    exportStatus(`Could not export: ${fe.message}`, true);
-  }
-}
-
-function setupExport() {
-  for (const v of views) {
-    const title = VIEW_TITLES[v.name] ?? v.name;
-    const formats = PLOT_VIEWS.includes(v.name) ? ['svg', 'png', 'csv', 'json'] : ['svg', 'png'];
-    const row = h('div', { className: 'export-row', role: 'group', 'aria-label': `Export the ${title}` },
-      h('span', { className: 'export-label', 'aria-hidden': 'true', text: 'Export' }));
-    for (const f of formats) {
-      const data = f === 'csv' || f === 'json' ? ' data' : '';
-      row.appendChild(h('button', {
-        type: 'button',
-        'data-export': `${v.name}:${f}`,
-        'aria-label': `Download the ${title}${data} as ${EXPORT_FORMATS[f]}`,
-        text: EXPORT_FORMATS[f],
-      }));
-    }
-    v.box.after(row);
-  }
-  document.getElementById('views').addEventListener('click', onExportClick);
-  document.getElementById('results').addEventListener('click', onExportClick);
-}
-
-// The print sheet: a compact read-only summary of the set-up, shown only when printing.
-
-function setupValue(v) {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'number') return minus(String(v));
-  if (typeof v !== 'object') return String(v);
-  if (Array.isArray(v)) return v.map(setupValue).join(', ');
-  return Object.entries(v).map(([k, x]) => `${k.replace(/_/g, ' ')} ${setupValue(x)}`).join(', ');
-}
-
-function updatePrintSheet(scenario) {
-  const box = document.getElementById('print-setup');
-  if (!box || !scenario) return;
-  const top = h('dl', { className: 'print-list' });
-  for (const [k, v] of Object.entries(scenario)) {
-    if (k === 'elements' || k === 'version') continue;
-    if (v && typeof v === 'object' && !Array.isArray(v)) {
-      for (const [k2, v2] of Object.entries(v)) {
-        top.appendChild(h('div', {}, h('dt', { text: `${k} ${k2}`.replace(/_/g, ' ') }), h('dd', { text: setupValue(v2) })));
-      }
-    } else {
-      top.appendChild(h('div', {}, h('dt', { text: k.replace(/_/g, ' ') }), h('dd', { text: setupValue(v) })));
-    }
-  }
-  const list = h('ol', { className: 'print-elements' });
-  for (const e of scenario.elements ?? []) {
-    const { kind, ...rest } = e;
-    list.appendChild(h('li', {}, h('strong', { text: KIND_NAMES[kind] ?? String(kind) }), ` ${setupValue(rest)}`));
-  }
-  box.replaceChildren(top, h('h3', { text: 'Stack' }), list);
-}
-
-// ---------------------------------------------------------------------------------------------
-// Printing: the sheet goes on paper, so the views are drawn in the light palette.
+// Printing: the sheet (export.js) goes on paper, so the views are drawn in the light palette.
 
 let printDark = false;
 function beforePrint() {
@@ -1656,7 +1475,7 @@ async function main() {
   });
 
   setupViews();
-  setupExport();
+  setupExport({ session, views });
   window.addEventListener('beforeprint', beforePrint);
   window.addEventListener('afterprint', afterPrint);
   loadFromLocation();
