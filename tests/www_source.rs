@@ -262,6 +262,7 @@ fn the_page_sources_turn_no_data_into_markup_or_code() {
         "format.js",
         "field-error.js",
         "results.js",
+        "views.js",
         "design-panel.js",
         "export.js",
         "index.html",
