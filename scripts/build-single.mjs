@@ -5,14 +5,15 @@
 // - www/style.css in a <style>, the favicon as a data: URL;
 // - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
 //   superset of the page's exports, so one wasm serves the page and the design worker) with its
-//   `export`s removed and wrapped in a function, then a copy of www/app.js with its two loads
+//   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
+//   modules it imports, see PAGE_MODULES) concatenated by bundlePage below, with their two loads
 //   rewritten (the bindings import, and the design worker's script);
 // - the wasm, gzipped and base64-encoded, inflated in the browser with DecompressionStream;
 // - the design worker's source (the same glue + www/design-worker.js, its import and init
 //   rewritten), started from a Blob URL; the page posts it the wasm bytes.
 //
-// Every rewrite must match exactly once, or the build fails (so a change to app.js or the glue
-// cannot silently leave a file:// load behind).
+// Every rewrite must match exactly once, or the build fails (so a change to the page's modules or
+// the glue cannot silently leave a file:// load behind).
 //
 // The page's content security policy allows 'self', which a file:// page does not have; the
 // single file gets its own, stricter policy instead (see singlePolicy below): nothing but the one
@@ -57,6 +58,85 @@ function wrapGlue(glue) {
   return `function __dsMakeCore() {\n${body}\nreturn { ${exportsList} };\n}\n`;
 }
 
+// The page's ES modules, in www/ beside app.js. A module that app.js (or one of these) imports
+// must be listed here, and every one listed must be reached from app.js: the build fails
+// otherwise, so that adding a module is a deliberate change to the single file too.
+const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'results.js', 'views.js', 'design-panel.js', 'export.js'];
+
+const IDENT = '[A-Za-z_$][\\w$]*';
+// A top-level declaration starts its line (the page's style): `[export ][async ]function[*] name`,
+// `[export ]class name`, `[export ]const|let|var name`.
+const DECLARATION = new RegExp(`^(export\\s+)?(?:(?:async\\s+)?function(?:\\s*\\*\\s*|\\s+)|class\\s+|(?:const|let|var)\\s+)(${IDENT})`, 'gm');
+
+/** The names that a script's top level declares (see DECLARATION); `what` names it in errors. */
+function topLevelNames(text, what) {
+  if (/^(?:export\s+)?(?:const|let|var)\s*[[{]/m.test(text)) {
+    throw new Error(`build-single: ${what} has a destructuring declaration at its top level; declare one name at a time`);
+  }
+  return [...text.matchAll(DECLARATION)].map((m) => m[2]);
+}
+
+/**
+ * The page's modules as one script, in the order the browser evaluates them (each after the
+ * modules it imports, in the order of its import lines, from app.js), with their import lines
+ * removed and their `export ` keywords stripped. Strict, because the modules now share one scope
+ * and nothing checks the result but the browser: an import must be `import { a, b } from
+ * './x.js';` of a module in PAGE_MODULES (no default, namespace or renamed import; the bindings
+ * are loaded with import(), which the caller rewrites), each name one that module exports; an
+ * export must be `export function|class|const|let name`; a top-level name may be declared in one
+ * module only; no cycle. Returns {text, order, declared: Map name -> module}.
+ */
+function bundlePage() {
+  const modules = new Map(); // file -> {imports: [{from, names}], body, exported: Set}
+  const parse = (file) => {
+    let source = read(file);
+    const imports = [];
+    source = source.replace(/^import\b[^\n]*\n/gm, (line) => {
+      const m = new RegExp(`^import \\{ (${IDENT}(?:, ${IDENT})*) \\} from '\\./([\\w-]+\\.js)';\\n$`).exec(line);
+      if (!m) throw new Error(`build-single: ${file}: an import the single file cannot inline (only \`import { a, b } from './x.js';\`): ${line.trim()}`);
+      if (!PAGE_MODULES.includes(m[2])) throw new Error(`build-single: ${file} imports ./${m[2]}, which is not one of the page's modules (PAGE_MODULES: ${PAGE_MODULES.join(', ')})`);
+      imports.push({ from: m[2], names: m[1].split(', ') });
+      return '';
+    });
+    if (/^\s*import\b(?!\s*\()/m.test(source)) throw new Error(`build-single: ${file}: an import that does not start its line`);
+    const exported = new Set();
+    for (const m of source.matchAll(DECLARATION)) if (m[1]) exported.add(m[2]);
+    const body = source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b|let\b)/gm, '');
+    if (/^\s*export\b/m.test(body)) throw new Error(`build-single: ${file}: an export the single file cannot inline (only \`export function|class|const|let name\`)`);
+    return { imports, body, exported };
+  };
+  const order = [];
+  const visiting = new Set();
+  const visit = (file, chain) => {
+    if (order.includes(file)) return;
+    if (visiting.has(file)) throw new Error(`build-single: the page's modules import each other in a cycle: ${[...chain, file].join(' -> ')}`);
+    visiting.add(file);
+    const mod = parse(file);
+    modules.set(file, mod);
+    for (const imp of mod.imports) visit(imp.from, [...chain, file]);
+    visiting.delete(file);
+    order.push(file);
+  };
+  visit('app.js', []);
+  const unused = PAGE_MODULES.filter((f) => !order.includes(f));
+  if (unused.length) throw new Error(`build-single: PAGE_MODULES lists ${unused.join(', ')}, which app.js does not reach; update the list`);
+  const declared = new Map();
+  for (const file of order) {
+    const mod = modules.get(file);
+    for (const imp of mod.imports) {
+      for (const name of imp.names) {
+        if (!modules.get(imp.from).exported.has(name)) throw new Error(`build-single: ${file} imports ${name} from ./${imp.from}, which does not export it`);
+      }
+    }
+    for (const name of topLevelNames(mod.body, file)) {
+      if (declared.has(name)) throw new Error(`build-single: ${name} is declared at the top level of both ${declared.get(name)} and ${file}; in the single file they share one scope`);
+      declared.set(name, file);
+    }
+  }
+  const text = order.map((file) => `// --- www/${file}\n${modules.get(file).body}`).join('\n');
+  return { text, order, declared };
+}
+
 const glue = wrapGlue(read('pkg-design/doublespar.js'));
 
 // The design worker: the glue, then design-worker.js getting its bindings from it and its wasm
@@ -74,13 +154,19 @@ worker = replaceOnce(worker,
 worker = replaceOnce(worker, 'init()\n  .then(', '__dsBytes\n  .then((bytes) => init({ module_or_path: bytes }))\n  .then(', 'design-worker.js');
 const workerSource = glue + worker;
 
-// The page's script.
-let app = read('app.js');
+// The page's script: its modules as one, then the two loads rewritten, each exactly once in the
+// whole (whichever module holds it).
+const page = bundlePage();
+let app = page.text;
 app = replaceOnce(app,
   "core = await import('./pkg/doublespar.js');\n    await core.default();",
   'core = __dsMakeCore();\n    await core.default({ module_or_path: await __dsWasmBytes() });',
-  'app.js');
-app = replaceOnce(app, "new Worker('design-worker.js', { type: 'module' })", '__dsStartWorker()', 'app.js');
+  `the page's modules (${page.order.join(', ')})`);
+app = replaceOnce(app, "new Worker('design-worker.js', { type: 'module' })", '__dsStartWorker()',
+  `the page's modules (${page.order.join(', ')})`);
+if (/\bimport\s*\(/.test(app) || app.includes('import.meta')) {
+  throw new Error("build-single: the page's modules still load something at run time (import() or import.meta)");
+}
 
 const wasm = fs.readFileSync(path.join(WWW, 'pkg-design', 'doublespar_bg.wasm'));
 const wasmB64 = zlib.gzipSync(wasm, { level: 9 }).toString('base64');
@@ -121,6 +207,13 @@ function __dsStartWorker() {
 }
 `;
 
+// The page's modules share one scope in the single file: none may declare what the loader or
+// the glue's wrapper declares.
+for (const name of [...topLevelNames(loader, 'the loader'), '__dsMakeCore']) {
+  if (page.declared.has(name)) {
+    throw new Error(`build-single: ${page.declared.get(name)} declares ${name}, which the single file's loader declares too`);
+  }
+}
 const script = scriptSafe(loader + glue + app);
 
 /** A CSP source for exactly this inline text (what the browser hashes: the element's content). */

@@ -256,7 +256,20 @@ fn the_page_sources_turn_no_data_into_markup_or_code() {
         .iter()
         .map(|f| f.strip_prefix(&www).unwrap().display().to_string())
         .collect();
-    for must in ["app.js", "index.html", "embed.js", "embed.html", "design-worker.js"] {
+    for must in [
+        "app.js",
+        "dom.js",
+        "format.js",
+        "field-error.js",
+        "results.js",
+        "views.js",
+        "design-panel.js",
+        "export.js",
+        "index.html",
+        "embed.js",
+        "embed.html",
+        "design-worker.js",
+    ] {
         assert!(
             names.iter().any(|n| n == must),
             "www/{must} is scanned; scanned: {names:?}"

@@ -1,0 +1,1151 @@
+// Doublespar design panel ("what must I buy"): section#design of the page. Its own controls,
+// each with data-design-field = the path of a design-request field (DEVELOPERS.md, "Design
+// requests") and an error element [data-design-error-for] beside it. Solve posts the request to a
+// module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
+// arrives in chunks with progress, and Cancel terminates the worker (a new one starts). Results
+// are text with data-quantity="design.<path into the design JSON>" and data-value =
+// String(value); the curves are drawn with the core's drawSeries / drawHistogram.
+//
+// Contract: one export, setupDesign(pageLinks), called once by app.js after the core has
+// loaded. It receives everything it uses of the page as explicit parameters (see there) and
+// returns the test hooks designRequest() (the request the fields say) and designShown() (a copy
+// of the design on screen, or null). section#design[data-state] is idle, solving, running, done,
+// error or cancelled; #design-use loads the shown part into the set-up (page.applyScenario).
+
+import { h, numberInput, setText, uid } from './dom.js';
+import { fixed, fmt, minus, readNumber, significant, unitWord } from './format.js';
+import { nearestErrorSlot, toFieldError } from './field-error.js';
+
+const DESIGN_KINDS = [
+  ['displacer', 'beam displacer'],
+  ['waveplate', 'waveplate'],
+  ['achromat', 'achromatic waveplate pair'],
+  ['recombiner', 'recombiner check'],
+];
+// A recombiner "breaks" when the overlap drops below 99 % or the phase moves by more than π/10
+// (DEVELOPERS.md, "Design requests"; src/design_recombiner.rs).
+const RECOMBINER_MIN_OVERLAP = 0.99;
+const RECOMBINER_MAX_PHASE_RAD = Math.PI / 10;
+// Defaults of the request fields the page reads back to label its plots (DEVELOPERS.md).
+const WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR = 0.01;
+const DESIGN_DEFAULT_SAMPLES = 100000;
+// The material a kind starts from, until the user picks one (common choices for each part).
+const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite' };
+const NBSP = '\u00a0';
+
+let page = null; // what the page gives the panel (setupDesign's pageLinks)
+const dfields = {}; // request path -> DesignField
+const dlayout = {}; // kind -> [row or group element, …] in the order shown
+const dhints = {}; // kind -> {path: hint text}
+const design = {
+  worker: null,
+  nextId: 1,
+  active: null, // {id, request, t0, nominal, done, total}
+  shown: null, // {request, design, complete, run: {done, total, cancelled} | null}
+  plots: [], // {name, canvas, box, draw(dark)}
+  resize: null,
+};
+
+/** A design-request control: an input or select with its label, unit, hint and error slot. */
+class DesignField {
+  constructor(path, { label, spoken, unit, kind = 'number', options, value, placeholder, hint }) {
+    this.path = path;
+    this.kind = kind;
+    this.label = label;
+    const id = uid('d');
+    this.labelEl = h('label', { for: id, text: label });
+    this.error = h('p', {
+      className: 'field-error',
+      id: `${id}-err`,
+      'data-design-error-for': path,
+      hidden: true,
+      'aria-live': 'polite',
+    });
+    this.hintEl = h('p', { className: 'hint', id: `${id}-hint`, hidden: !hint, text: hint ?? '' });
+    const describedBy = `${id}-err ${id}-hint`;
+    const control = h('div', { className: 'control' });
+    if (kind === 'select') {
+      this.input = h('select', { id, 'data-design-field': path, 'aria-describedby': describedBy });
+      for (const [v, t] of options) this.input.appendChild(h('option', { value: v, text: t }));
+      control.appendChild(this.input);
+      if (spoken) this.input.setAttribute('aria-label', spoken);
+    } else {
+      this.input = numberInput(id, { placeholder, 'data-design-field': path, 'aria-describedby': describedBy });
+      control.appendChild(this.input);
+      // Every number field has a unit column, so that the fields line up.
+      control.appendChild(h('span', { className: 'unit', text: unit ?? '', 'aria-hidden': 'true' }));
+      // The spoken name: the label (or a fuller one where the group gives the context), with its unit.
+      const name = spoken ?? label;
+      if (unit) this.input.setAttribute('aria-label', `${name} (${unitWord(unit)})`);
+      else if (spoken) this.input.setAttribute('aria-label', spoken);
+    }
+    if (value !== undefined) this.input.value = String(value);
+    this.row = h('div', { className: 'field' }, this.labelEl, control, this.hintEl, this.error);
+  }
+
+  get blank() {
+    return this.kind !== 'select' && this.input.value.trim() === '';
+  }
+
+  /** A number, or the text as typed (so that the solver names the field in its message). */
+  get value() {
+    return this.kind === 'select' ? this.input.value : readNumber(this.input.value);
+  }
+
+  setHint(text) {
+    setText(this.hintEl, text ?? '');
+    if (this.hintEl.hidden !== !text) this.hintEl.hidden = !text;
+  }
+}
+
+function dfield(path, spec) {
+  const f = new DesignField(path, spec);
+  dfields[path] = f;
+  return f;
+}
+
+/** A titled group of fields with its own error slot (for errors that name the whole group). */
+function designGroup(title, errorPath, children, { pair = false, hint } = {}) {
+  const tid = uid('dg');
+  const body = pair ? h('div', { className: 'pair-grid' }, ...children) : null;
+  const hintEl = h('p', { className: 'hint', hidden: !hint, text: hint ?? '' });
+  const box = h(
+    'div',
+    { className: 'subgroup', role: 'group', 'aria-labelledby': tid },
+    h('p', { className: 'subgroup-title', id: tid, text: title }),
+    ...(pair ? [body] : children),
+    hintEl,
+    h('p', { className: 'field-error', 'data-design-error-for': errorPath, hidden: true, 'aria-live': 'polite' }),
+  );
+  box.hintEl = hintEl;
+  return box;
+}
+
+function setGroupHint(box, text) {
+  setText(box.hintEl, text ?? '');
+  if (box.hintEl.hidden !== !text) box.hintEl.hidden = !text;
+}
+
+/** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
+function mediumFields(prefix, fallback, whose) {
+  const options = page.materialList.map((m) => [m.key, m.name]);
+  options.push(['custom', 'custom indices']);
+  const of = whose ? ` of the ${whose}` : '';
+  const material = dfield(`${prefix}material`, { label: 'Material', spoken: whose ? `Material${of}` : undefined, kind: 'select', options });
+  const key = page.materialList.some((m) => m.key === fallback) ? fallback : (page.materialList[0]?.key ?? 'custom');
+  material.input.value = key;
+  const no = dfield(`${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${of}`, value: 1.6584 });
+  const ne = dfield(`${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${of}`, value: 1.4864 });
+  const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
+  return { material, custom, nodes: [material.row, custom] };
+}
+
+function buildDesignFields() {
+  const kind = dfield('kind', { label: 'Part', kind: 'select', options: DESIGN_KINDS });
+  kind.row.classList.add('design-kind');
+  const order = dfield('order', {
+    label: 'Order',
+    kind: 'select',
+    options: [['zero', 'zero order'], ['multiple', 'multiple order'], ['compound', 'compound zero order']],
+  });
+  const orderNumber = dfield('order_number', { label: 'Order number m', value: 1, hint: 'm whole waves more than the target.' });
+  const base = dfield('base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
+
+  const medium = mediumFields('', 'calcite');
+  const wl = dfield('wavelength_nm', { label: 'Wavelength', unit: 'nm', value: 632.8 });
+  const band = designGroup('Band (optional)', 'band_nm', [
+    dfield('band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
+    dfield('band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
+  ], { pair: true });
+  const separation = dfield('separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
+  const beam = dfield('beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
+  const cut = dfield('cut_tilt_deg', { label: 'Cut tilt', unit: '°', placeholder: 'auto' });
+  const aperture = dfield('aperture_factor', {
+    label: 'Aperture factor',
+    value: 2,
+    hint: 'Clear aperture = separation + factor × beam diameter.',
+  });
+  const tolerances = designGroup('Tolerances, one standard deviation each', 'tolerances', [
+    dfield('tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
+    dfield('tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
+    dfield('tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
+    dfield('tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
+  ], { hint: 'The incidence error lies in the walk-off plane.' });
+  const samples = dfield('samples', {
+    label: 'Monte Carlo samples',
+    value: DESIGN_DEFAULT_SAMPLES,
+    hint: 'At most 1 000 000; 0 skips the tolerance run.',
+  });
+  const seed = dfield('seed', { label: 'Random seed', value: 1 });
+
+  const retardance = dfield('retardance_waves', { label: 'Retardance', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
+  const maxInc = dfield('max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
+  const accErr = dfield('acceptance_error_waves', {
+    label: 'Acceptance error',
+    unit: 'waves',
+    value: WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR,
+    hint: 'The acceptance angle is where the retardance has moved this far from its value at normal incidence.',
+  });
+
+  const first = mediumFields('first.', 'quartz', 'first plate');
+  const second = mediumFields('second.', 'mgf2', 'second plate');
+  const firstBox = designGroup('First plate', 'first', first.nodes);
+  const secondBox = designGroup('Second plate', 'second', second.nodes);
+  const wavelengths = designGroup('Design wavelengths', 'wavelengths_nm', [
+    dfield('wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
+    dfield('wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
+  ], { pair: true, hint: 'The pair has exactly the target retardance at both.' });
+
+  const length = dfield('length_mm', { label: 'Length of each displacer', unit: 'mm', value: 10 });
+  const middle = dfield('middle', {
+    label: 'Between the displacers',
+    kind: 'select',
+    options: [['half-wave', 'half-wave plate at 45°'], ['rotator', 'rotator']],
+  });
+  const rotator = dfield('rotator_deg', { label: 'Rotation', unit: '°', value: 90 });
+  const lengthMis = dfield('length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
+  const tiltMis = dfield('tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
+
+  const fieldsBox = document.getElementById('design-fields');
+  fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
+  dlayout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
+  dlayout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, wl.row, retardance.row, band, maxInc.row, accErr.row];
+  dlayout.achromat = [firstBox, secondBox, retardance.row, wavelengths, band];
+  dlayout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
+
+  const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
+  dhints.displacer = { band: 'Empty: the design wavelength alone.', cut_tilt_deg: cutHint };
+  dhints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
+  dhints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
+  dhints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
+  design.bandBox = band;
+  design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
+}
+
+/** Shows the fields of the chosen kind, in its order, and the ones its selects call for. */
+function layoutDesignFields() {
+  const kind = dfields.kind.value;
+  const nodes = dlayout[kind] ?? dlayout.displacer;
+  const box = document.getElementById('design-kind-fields');
+  const current = [...box.children];
+  if (current.length !== nodes.length || current.some((n, i) => n !== nodes[i])) {
+    const focused = document.activeElement;
+    box.replaceChildren(...nodes);
+    if (focused && focused !== document.activeElement && box.contains(focused)) focused.focus();
+  }
+  const material = dfields.material;
+  const start = DESIGN_MATERIALS[kind];
+  if (!material.touched && start && material.input.value !== start && page.materialList.some((m) => m.key === start)) {
+    material.input.value = start;
+  }
+  const hints = dhints[kind] ?? {};
+  setGroupHint(design.bandBox, hints.band);
+  dfields.cut_tilt_deg.setHint(hints.cut_tilt_deg);
+  for (const [prefix, custom] of design.mediumBoxes) {
+    const hide = dfields[`${prefix}material`].value !== 'custom';
+    if (custom.hidden !== hide) custom.hidden = hide;
+  }
+  const order = dfields.order.value;
+  dfields.order_number.row.hidden = order !== 'multiple';
+  dfields.base_mm.row.hidden = order !== 'compound';
+  dfields.rotator_deg.row.hidden = dfields.middle.value !== 'rotator';
+}
+
+/** The design request the panel's fields say (numbers, or text as typed where it is no number). */
+function designRequest() {
+  const kind = dfields.kind.value;
+  const req = { kind };
+  const put = (path) => {
+    const f = dfields[path];
+    if (!f.blank) req[path] = f.value;
+  };
+  const medium = (prefix) => {
+    const out = {};
+    const m = dfields[`${prefix}material`].value;
+    if (m === 'custom') {
+      for (const k of ['no', 'ne']) {
+        const f = dfields[`${prefix}${k}`];
+        if (!f.blank) out[k] = f.value;
+      }
+    } else {
+      out.material = m;
+    }
+    return out;
+  };
+  const pair = (name) => {
+    const a = dfields[`${name}[0]`];
+    const b = dfields[`${name}[1]`];
+    if (a.blank && b.blank) return;
+    req[name] = [a.blank ? a.input.value : a.value, b.blank ? b.input.value : b.value];
+  };
+  if (kind === 'displacer') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    pair('band_nm');
+    put('separation_mm');
+    put('beam_diameter_mm');
+    put('cut_tilt_deg');
+    put('aperture_factor');
+    const tol = {};
+    for (const k of ['tilt_deg', 'incidence_deg', 'thickness_mm', 'wavelength_nm']) {
+      const f = dfields[`tolerances.${k}`];
+      if (!f.blank) tol[k] = f.value;
+    }
+    if (Object.keys(tol).length) req.tolerances = tol;
+    put('samples');
+    put('seed');
+  } else if (kind === 'waveplate') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    put('retardance_waves');
+    req.order = dfields.order.value;
+    if (req.order === 'multiple') put('order_number');
+    if (req.order === 'compound') put('base_mm');
+    pair('band_nm');
+    put('max_incidence_deg');
+    put('acceptance_error_waves');
+  } else if (kind === 'achromat') {
+    req.first = medium('first.');
+    req.second = medium('second.');
+    put('retardance_waves');
+    pair('wavelengths_nm');
+    pair('band_nm');
+  } else if (kind === 'recombiner') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    put('length_mm');
+    put('cut_tilt_deg');
+    put('beam_diameter_mm');
+    req.middle = dfields.middle.value;
+    if (req.middle === 'rotator') put('rotator_deg');
+    put('length_mismatch_mm');
+    put('tilt_mismatch_deg');
+  }
+  return req;
+}
+
+// --- errors beside the design fields (the same walk-up rule as the set-up's) -----------------
+
+let designErrorShown = false;
+
+function designErrorTarget(path) {
+  return nearestErrorSlot(document.getElementById('design'), 'data-design-error-for', path);
+}
+
+function showDesignError(err) {
+  clearDesignErrors();
+  designErrorShown = true;
+  const target = designErrorTarget(err.field);
+  if (target) {
+    target.textContent = target.id === 'design-error' && err.field ? `${err.field}: ${err.message}` : err.message;
+    target.hidden = false;
+  }
+  const panel = document.getElementById('design');
+  for (const el of panel.querySelectorAll('[data-design-field]')) {
+    const p = el.dataset.designField;
+    if (err.field && (p === err.field || p.startsWith(`${err.field}[`) || p.startsWith(`${err.field}.`))) {
+      el.setAttribute('aria-invalid', 'true');
+    }
+  }
+}
+
+function clearDesignErrors() {
+  if (!designErrorShown) return;
+  designErrorShown = false;
+  const panel = document.getElementById('design');
+  for (const el of panel.querySelectorAll('[data-design-error-for]')) {
+    if (!el.hidden) {
+      el.hidden = true;
+      el.textContent = '';
+    }
+  }
+  for (const el of panel.querySelectorAll('[aria-invalid="true"]')) el.removeAttribute('aria-invalid');
+}
+
+// --- number formats for the design's results ------------------------------------------------
+
+/** A plain number with at most `digits` decimals and no trailing zeros. */
+function trimmed(v, digits) {
+  let s = v.toFixed(digits);
+  if (s.includes('.')) s = s.replace(/0+$/, '').replace(/\.$/, '');
+  if (/^-0$/.test(s)) s = '0';
+  return minus(s);
+}
+
+const dfmt = {
+  text: (v) => String(v),
+  yes: (v) => (v ? 'yes' : 'no'),
+  index: (v) => fixed(v, 6),
+  deg: (v) => `${fixed(v, 4, 5e-13)}°`,
+  nm: (v) => `${trimmed(v, 3)}${NBSP}nm`,
+  length: (v) => {
+    const a = Math.abs(v);
+    if (a >= 1) return `${fixed(v, 4)}${NBSP}mm`;
+    if (a < 1e-12) return `0${NBSP}mm`;
+    const mm = `${significant(v, 5)}${NBSP}mm`;
+    return a < 0.1 ? `${mm} (${significant(v * 1000, 5)}${NBSP}µm)` : mm;
+  },
+  waves: (v) => `${fixed(v, 5, 5e-13)}${NBSP}waves`,
+  rad: (v) => `${fixed(v, 4, 5e-13)}${NBSP}rad`,
+  count: (v) => String(v),
+  power: (v) => fmt.power(v),
+  fraction: (v) => fixed(v, 8),
+  /** Significant digits with a unit; "no limit" for the solver's "never" (f64::MAX). */
+  sig: (unit, n = 4) => (v) => {
+    if (Math.abs(v) >= 1e300) return 'no limit (zero sensitivity)';
+    const sep = unit === '°' || unit === '' ? '' : NBSP;
+    return `${significant(v, n)}${sep}${unit}`;
+  },
+};
+
+/** The value at a dotted path ("band.min_mm", "plates.0.thickness_mm") of a design. */
+function designValue(d, path) {
+  let v = d;
+  for (const k of path.split('.')) {
+    if (v === null || v === undefined || typeof v !== 'object') return undefined;
+    v = Array.isArray(v) ? v[Number(k)] : v[k];
+  }
+  return v;
+}
+
+/** A result as text: data-quantity = design.<path>, data-value = String(value). */
+function dq(d, path, format, tag = 'span', attrs = {}) {
+  const v = designValue(d, path);
+  if (v === undefined) return null;
+  return h(tag, { ...attrs, 'data-quantity': `design.${path}`, 'data-value': String(v), text: v === null ? '—' : format(v) });
+}
+
+/** A card of labelled results of design `d`. rows: [label, path, format] or [label, element] or null. */
+function designCard(d, title, rows, { note, className } = {}) {
+  const dl = h('dl', { className: 'quantities' });
+  for (const r of rows) {
+    if (!r) continue;
+    const [label, a, format] = r;
+    const dd = typeof a === 'string' ? dq(d, a, format, 'dd') : h('dd', {}, a);
+    if (!dd) continue;
+    dl.appendChild(h('div', { className: 'q' }, h('dt', { text: label }), dd));
+  }
+  return h(
+    'article',
+    { className: `result-card${className ? ` ${className}` : ''}` },
+    h('h4', { text: title }),
+    dl,
+    note ? h('p', { className: 'hint card-note' }, ...[].concat(note)) : null,
+  );
+}
+
+function designMaterialName(key) {
+  return key === 'custom' ? 'custom-index' : page.materialName(key);
+}
+
+// --- results by kind -------------------------------------------------------------------------
+
+function displacerResults(d, run) {
+  const s = d;
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `A ${designMaterialName(s.material)} plate `,
+    dq(d, 'length_mm', dfmt.length, 'strong'),
+    ' long, cut at ',
+    dq(d, 'cut_tilt_deg', dfmt.deg, 'strong'),
+    ' (optic axis from the face normal), with a clear aperture of at least ',
+    dq(d, 'clear_aperture_mm', dfmt.length, 'strong'),
+    '.',
+  );
+  const cards = [
+    designCard(d, 'What to order', [
+      ['material', 'material', (v) => designMaterialName(v)],
+      ['length', 'length_mm', dfmt.length],
+      ['cut tilt', 'cut_tilt_deg', dfmt.deg],
+      ['clear aperture', 'clear_aperture_mm', dfmt.length],
+    ], { note: dq(d, 'cut_note', dfmt.text, 'span', { className: 'cut-note' }), className: 'design-main' }),
+    designCard(d, 'Beams at the exit', [
+      ['o/e separation', 'separation_mm', dfmt.length],
+      ['e-ray displaced toward (axis at 0°)', 'displacement_direction', dfmt.text],
+      ['e walk-off', 'walkoff_deg', dfmt.deg],
+      ['crosstalk (overlap)', 'crosstalk', dfmt.sig('', 3)],
+      ['separation / beam diameter', 'clearance_ratio', dfmt.sig('', 4)],
+      ['clipped per beam', 'clipping_per_beam', dfmt.sig('', 3)],
+      ['o–e exit phase', 'exit_phase_rad', dfmt.rad],
+      ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', dfmt.rad],
+    ]),
+    designCard(d, 'Crystal', [
+      ['wavelength', 'wavelength_nm', dfmt.nm],
+      ['nₒ', 'no', dfmt.index],
+      ['nₑ', 'ne', dfmt.index],
+      ['cut of largest walk-off', 'max_walkoff_cut_deg', dfmt.deg],
+      ['dρ/dθ at the cut', 'walkoff_slope', dfmt.sig('°/°', 3)],
+    ]),
+    designCard(d, 'Over the band', [
+      ['smallest separation', 'band.min_mm', dfmt.length],
+      ['… at', 'band.min_at_nm', dfmt.nm],
+      ['largest separation', 'band.max_mm', dfmt.length],
+      ['… at', 'band.max_at_nm', dfmt.nm],
+    ], { note: d.band.curve.length < 2 ? 'No band was given: the design wavelength alone.' : null }),
+    designCard(d, 'Sensitivity of the separation', [
+      ['to cut tilt', 'sensitivities.tilt_mm_per_deg', dfmt.sig('mm/°', 4)],
+      ['to incidence', 'sensitivities.incidence_mm_per_deg', dfmt.sig('mm/°', 4)],
+      ['to length', 'sensitivities.thickness_mm_per_mm', dfmt.sig('mm/mm', 4)],
+      ['to wavelength', 'sensitivities.wavelength_mm_per_nm', dfmt.sig('mm/nm', 4)],
+      ['linearized spread (1σ)', 'sensitivities.linear_std_mm', dfmt.sig('mm', 4)],
+    ], {
+      note: ['For σ = ', dq(d, 'tolerances.tilt_deg', dfmt.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', dfmt.sig('°', 3)),
+        ' incidence, ', dq(d, 'tolerances.thickness_mm', dfmt.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', dfmt.sig('nm', 3)), ' wavelength.'],
+    }),
+    monteCarloCard(d, run),
+  ];
+  return [headline, ...cards];
+}
+
+function monteCarloCard(d, run) {
+  if (d.monte_carlo) {
+    return designCard(d, 'Monte Carlo: separation', [
+      ['samples', 'monte_carlo.n', dfmt.count],
+      ['mean', 'monte_carlo.mean', dfmt.length],
+      ['standard deviation', 'monte_carlo.std', dfmt.sig('mm', 4)],
+      ['5th percentile', 'monte_carlo.p5', dfmt.length],
+      ['95th percentile', 'monte_carlo.p95', dfmt.length],
+      ['smallest', 'monte_carlo.min', dfmt.length],
+      ['largest', 'monte_carlo.max', dfmt.length],
+    ], { className: 'design-mc' });
+  }
+  let text = 'Not run (0 samples).';
+  if (run && run.cancelled) text = `Cancelled after ${run.done} of ${run.total} samples.`;
+  else if (run) text = 'Running…';
+  return h(
+    'article',
+    { className: 'result-card design-mc' },
+    h('h4', { text: 'Monte Carlo: separation' }),
+    h('p', { className: 'muted', id: 'design-mc-state', text }),
+  );
+}
+
+function waveplateResults(d) {
+  const plates = d.plates;
+  const mat = designMaterialName(plates[0].material);
+  const headline = h('p', { className: 'design-headline' });
+  if (plates.length === 1) {
+    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'), ' thick, optic axis in the face',
+      d.order === 'multiple' ? `, order ${d.order_number}` : ', zero order', '.');
+  } else {
+    headline.append(`Two ${mat} plates, `, dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'), ' and ',
+      dq(d, 'plates.1.thickness_mm', dfmt.length, 'strong'), ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
+  }
+  const plateRows = [];
+  plates.forEach((p, i) => {
+    const n = plates.length > 1 ? ` ${i + 1}` : '';
+    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
+    plateRows.push([`plate${n}: thickness`, `plates.${i}.thickness_mm`, dfmt.length]);
+    plateRows.push([`plate${n}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, dfmt.deg]);
+  });
+  const worst = worstPlane(d);
+  return [
+    headline,
+    designCard(d, 'What to order', [
+      ...plateRows,
+      ['net retarding thickness', 'effective_thickness_mm', dfmt.length],
+      ['order', 'order', dfmt.text],
+      ['order number', 'order_number', dfmt.count],
+    ], { className: 'design-main', note: 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
+    designCard(d, 'Retardance', [
+      ['at the design wavelength', 'retardance_waves', dfmt.waves],
+      ['fast axis', 'fast_axis', dfmt.text],
+      ['nₒ', 'no', dfmt.index],
+      ['nₑ', 'ne', dfmt.index],
+      ['nₑ − nₒ', 'birefringence', dfmt.sig('', 6)],
+    ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
+    designCard(d, 'Angle of incidence', [
+      ['acceptance (worst plane)', 'acceptance_deg', dfmt.deg],
+      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, dfmt.deg]),
+    ], {
+      note: `Largest incidence up to which the retardance stays within the acceptance error of its value at normal incidence; the worst plane is at ${trimmed(worst.plane_azimuth_deg, 2)}° to the optic axis. A value at the end of the curve means it never leaves.`,
+    }),
+  ];
+}
+
+function worstPlane(d) {
+  return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
+}
+
+function achromatResults(d) {
+  const p = d.plates;
+  const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `A ${designMaterialName(p[0].material)} plate `,
+    dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'),
+    ` thick, ${axis(p[0])}, and a ${designMaterialName(p[1].material)} plate `,
+    dq(d, 'plates.1.thickness_mm', dfmt.length, 'strong'),
+    ` thick, ${axis(p[1])}; optic axes in the faces.`,
+  );
+  const rows = [];
+  p.forEach((q, i) => {
+    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
+    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, dfmt.length]);
+    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, dfmt.deg]);
+  });
+  return [
+    headline,
+    designCard(d, 'What to order', rows, { className: 'design-main' }),
+    designCard(d, 'Retardance', [
+      ['first design wavelength', 'at_design_wavelengths.0.0', dfmt.nm],
+      ['… retardance there', 'at_design_wavelengths.0.1', dfmt.waves],
+      ['second design wavelength', 'at_design_wavelengths.1.0', dfmt.nm],
+      ['… retardance there', 'at_design_wavelengths.1.1', dfmt.waves],
+      ['largest error over the band', 'max_error_waves', dfmt.waves],
+    ]),
+  ];
+}
+
+function recombinerResults(d) {
+  const overlapOk = d.overlap >= RECOMBINER_MIN_OVERLAP;
+  const phaseOk = Math.abs(d.phase_difference_rad) <= RECOMBINER_MAX_PHASE_RAD;
+  const works = d.recombined && overlapOk && phaseOk;
+  const why = [];
+  if (!d.recombined) why.push('the two paths leave as separate spots');
+  if (!overlapOk) why.push('the beams overlap by less than 0.99');
+  if (!phaseOk) why.push('their phase differs by more than π/10');
+  const headline = h(
+    'p',
+    { className: `design-headline ${works ? 'verdict-good' : 'verdict-bad'}` },
+    works ? 'The pair recombines: one spot, overlap at least 0.99 and phase within π/10.' : `The pair does not recombine well: ${why.join(', ')}.`,
+  );
+  const unreachable = (path) => Math.abs(designValue(d, path)) > 90;
+  const notes = [];
+  if (unreachable('tilt_mismatch_to_break_deg.0') || unreachable('tilt_mismatch_to_break_deg.1')) {
+    notes.push('A cut mismatch above 90° is a linear extrapolation beyond any real cut: at the cut of largest walk-off the residual grows only to second order in the mismatch, which the linear estimate does not see.');
+  }
+  return [
+    headline,
+    designCard(d, 'Recombination', [
+      ['one spot', 'recombined', dfmt.yes],
+      ['overlap of the beams', 'overlap', dfmt.fraction],
+      ['phase difference', 'phase_difference_rad', dfmt.rad],
+      ['power in the spot', 'recombined_power', dfmt.power],
+      ['power elsewhere', 'stray_power', dfmt.power],
+    ], { className: 'design-main', note: 'It breaks when the overlap drops below 0.99 or the phase moves by more than π/10.' }),
+    designCard(d, 'Residual separation', [
+      ['length', 'residual_separation_mm', dfmt.length],
+      ['x', 'residual_vector_mm.0', dfmt.length],
+      ['y', 'residual_vector_mm.1', dfmt.length],
+    ]),
+    designCard(d, 'Sensitivity to a mismatch', [
+      ['residual per length', 'length_sensitivity.0', dfmt.sig('mm/mm', 4)],
+      ['phase per length', 'length_sensitivity.1', dfmt.sig('rad/mm', 4)],
+      ['residual per cut', 'tilt_sensitivity.0', dfmt.sig('mm/°', 4)],
+      ['phase per cut', 'tilt_sensitivity.1', dfmt.sig('rad/°', 4)],
+    ]),
+    designCard(d, 'Mismatch that breaks it', [
+      ['length, for the overlap', 'length_mismatch_to_break_mm.0', dfmt.sig('mm', 4)],
+      ['length, for the phase', 'length_mismatch_to_break_mm.1', dfmt.sig('mm', 4)],
+      ['cut, for the overlap', 'tilt_mismatch_to_break_deg.0', dfmt.sig('°', 4)],
+      ['cut, for the phase', 'tilt_mismatch_to_break_deg.1', dfmt.sig('°', 4)],
+    ], { note: notes.length ? notes : 'Linear estimates from the sensitivities.' }),
+  ];
+}
+
+// --- plots -------------------------------------------------------------------------------------
+
+function seriesJson(s) {
+  return JSON.stringify(s);
+}
+
+/** Draws a series with two marked points: drawSeries marks one, so a second drawing with the
+ *  other marked is laid over it wherever it differs from a drawing with neither. The two points
+ *  lie on the curve and are added to it, so that all three drawings share their axes; a point
+ *  outside the curve's span would change them, and then only the first is marked. */
+function drawTwoMarkers(plot, series, a, b, dark) {
+  const xs = series.points.map((p) => p[0]);
+  const within = (p) => xs.length > 1 && p[0] >= Math.min(...xs) && p[0] <= Math.max(...xs);
+  if (!within(a) || !within(b)) {
+    page.core.drawSeries(plot.canvas, seriesJson({ ...series, current: a }), dark);
+    return;
+  }
+  const points = [...series.points, a, b].sort((p, q) => p[0] - q[0]);
+  const s = { ...series, points };
+  page.core.drawSeries(plot.canvas, seriesJson({ ...s, current: a }), dark);
+  const [pb, pc] = plot.probes;
+  page.core.drawSeries(pb, seriesJson({ ...s, current: b }), dark);
+  page.core.drawSeries(pc, seriesJson({ ...s, current: null }), dark);
+  const { width, height } = plot.canvas;
+  if (pb.width !== width || pb.height !== height || pc.width !== width || pc.height !== height) return;
+  const ctx = plot.canvas.getContext('2d');
+  const img = ctx.getImageData(0, 0, width, height);
+  const db = pb.getContext('2d').getImageData(0, 0, width, height).data;
+  const dc = pc.getContext('2d').getImageData(0, 0, width, height).data;
+  const out = img.data;
+  const n = width * height;
+  const differs = (x, y, k) => x[k] !== y[k] || x[k + 1] !== y[k + 1] || x[k + 2] !== y[k + 2] || x[k + 3] !== y[k + 3];
+  // What the second marker adds (its dot and its label), and the bounding boxes of both marks.
+  const mb = new Uint8Array(n);
+  const boxA = [width, height, -1, -1];
+  const boxB = [width, height, -1, -1];
+  const grow = (bx, x, y) => {
+    bx[0] = Math.min(bx[0], x); bx[1] = Math.min(bx[1], y); bx[2] = Math.max(bx[2], x); bx[3] = Math.max(bx[3], y);
+  };
+  for (let i = 0; i < n; i += 1) {
+    const x = i % width;
+    const y = (i - x) / width;
+    if (differs(db, dc, 4 * i)) {
+      mb[i] = 1;
+      grow(boxB, x, y);
+    }
+    if (differs(out, dc, 4 * i)) grow(boxA, x, y);
+  }
+  const dpr = width / Math.max(1, plot.canvas.clientWidth);
+  const gap = 4 * dpr;
+  const apart = boxA[2] < 0 || boxB[2] < 0 || boxB[0] > boxA[2] + gap || boxA[0] > boxB[2] + gap
+    || boxB[1] > boxA[3] + gap || boxA[1] > boxB[3] + gap;
+  let keep = () => true;
+  if (!apart) {
+    // The labels would overwrite each other: lay over only the second marker's dot, the one
+    // place where the added pixels hold a solid square (a dot of 5 px radius holds 7 × 7 px).
+    const side = Math.max(3, Math.floor(7 * dpr));
+    let sx = 0;
+    let sy = 0;
+    let count = 0;
+    for (let y = 0; y + side <= height; y += 1) {
+      for (let x = 0; x + side <= width; x += 1) {
+        let full = true;
+        for (let v = 0; v < side && full; v += 1) {
+          const row = (y + v) * width + x;
+          for (let u = 0; u < side; u += 1) {
+            if (!mb[row + u]) {
+              full = false;
+              break;
+            }
+          }
+        }
+        if (full) {
+          sx += x + side / 2;
+          sy += y + side / 2;
+          count += 1;
+        }
+      }
+    }
+    if (count === 0) return;
+    const cx = sx / count;
+    const cy = sy / count;
+    const r2 = (7.5 * dpr) ** 2;
+    keep = (x, y) => (x - cx) ** 2 + (y - cy) ** 2 <= r2;
+  }
+  for (let i = 0; i < n; i += 1) {
+    if (!mb[i]) continue;
+    const x = i % width;
+    if (!keep(x, (i - x) / width)) continue;
+    const k = 4 * i;
+    out[k] = db[k];
+    out[k + 1] = db[k + 1];
+    out[k + 2] = db[k + 2];
+    out[k + 3] = db[k + 3];
+  }
+  ctx.putImageData(img, 0, 0);
+}
+
+function designPlot(name, { caption, label, draw, wide = false, small = false, probes = 0 }) {
+  const canvas = h('canvas', { 'data-design-plot': name, role: 'img', 'aria-label': label });
+  const box = h('div', { className: 'canvas-box' }, canvas);
+  const plot = { name, canvas, box, draw, small, probes: [] };
+  for (let i = 0; i < probes; i += 1) {
+    const p = h('canvas', { className: 'probe', 'aria-hidden': 'true' });
+    plot.probes.push(p);
+    box.appendChild(p);
+  }
+  plot.figure = h(
+    'figure',
+    { className: `view design-plot${wide ? ' wide' : ''}${small ? ' small' : ''}` },
+    box,
+    caption ? h('figcaption', { text: caption }) : null,
+  );
+  return plot;
+}
+
+function plotsFor(kind, d, request, run) {
+  const g = (v, n = 4) => significant(v, n);
+  if (kind === 'displacer') {
+    const c = d.band.curve;
+    const one = c.length < 2;
+    const band = designPlot('separation-wavelength', {
+      wide: true,
+      label: one
+        ? `Separation against wavelength: ${g(d.separation_mm)} mm at the design wavelength ${trimmed(d.wavelength_nm, 3)} nm; no band was given.`
+        : `Separation against wavelength, ${trimmed(c[0][0], 3)} to ${trimmed(c[c.length - 1][0], 3)} nm: from ${g(d.band.min_mm)} mm at ${trimmed(d.band.min_at_nm, 3)} nm to ${g(d.band.max_mm)} mm at ${trimmed(d.band.max_at_nm, 3)} nm; ${g(d.separation_mm)} mm at ${trimmed(d.wavelength_nm, 3)} nm.`,
+      caption: one ? 'Give a band to see the separation over it.' : 'The designed plate over the band.',
+      draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+        title: 'Separation against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'separation', y_unit: 'mm',
+        points: c, current: [d.wavelength_nm, d.separation_mm],
+        note: one ? 'design wavelength only' : `${c.length} wavelengths`,
+      }), dark),
+    });
+    const plots = [band];
+    if (d.monte_carlo || run) {
+      const mc = d.monte_carlo;
+      const title = mc ? 'Separation over the tolerances' : run && run.cancelled ? 'Monte Carlo run cancelled' : 'Monte Carlo run in progress';
+      plots.push(designPlot('tolerance-histogram', {
+        wide: true,
+        label: mc
+          ? `Histogram of the separation over ${mc.n} Monte Carlo samples: mean ${g(mc.mean, 6)} mm, standard deviation ${g(mc.std, 3)} mm, 5th to 95th percentile ${g(mc.p5, 6)} to ${g(mc.p95, 6)} mm; the nominal design gives ${g(d.separation_mm, 6)} mm.`
+          : `${title}: no samples yet.`,
+        caption: 'Every sample traces the plate with all four errors drawn at once; the nominal separation is marked.',
+        draw: (p, dark) => page.core.drawHistogram(p.canvas, JSON.stringify(mc ?? { n: 0 }), title, 'separation', 'mm', d.separation_mm, dark),
+      }));
+    }
+    return plots;
+  }
+  if (kind === 'waveplate') {
+    const c = d.wavelength_curve;
+    const worst = worstPlane(d);
+    const err = typeof request.acceptance_error_waves === 'number' ? request.acceptance_error_waves : WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR;
+    const plots = [designPlot('retardance-wavelength', {
+      wide: true,
+      label: c.length
+        ? `Retardance against wavelength, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm: from ${g(c[0][1])} to ${g(c[c.length - 1][1])} waves; ${g(d.retardance_waves)} waves at ${trimmed(request.wavelength_nm ?? 632.8, 3)} nm.`
+        : 'Retardance against wavelength: no point of the band could be evaluated.',
+      caption: 'At normal incidence; crossed plates count negative.',
+      draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+        title: 'Retardance against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
+        points: c, current: [designWavelength(request), d.retardance_waves],
+        note: `${d.order} order`,
+      }), dark),
+    })];
+    d.angular.forEach((a) => {
+      const pts = a.curve;
+      const g0 = pts.length ? pts[0][1] : d.retardance_waves;
+      const end = pts.length ? pts[pts.length - 1][0] : 0;
+      const leaves = pts.length > 0 && a.acceptance_deg < end;
+      // Where it leaves, the retardance is g0 ± the acceptance error (the solver bisects for it).
+      let current = null;
+      if (leaves) {
+        const beyond = pts.find((q) => q[0] > a.acceptance_deg) ?? pts[pts.length - 1];
+        current = [a.acceptance_deg, g0 + Math.sign(beyond[1] - g0) * err];
+      }
+      const az = trimmed(a.plane_azimuth_deg, 2);
+      const isWorst = a === worst;
+      const title = `Plane at ${az}° to the axis${isWorst ? ' (worst)' : ''}`;
+      plots.push(designPlot(`retardance-angle-${az}`, {
+        small: true,
+        label: `Retardance against angle of incidence in the plane at ${az}° to the optic axis${isWorst ? ', the worst plane' : ''}: ${g(g0)} waves at normal incidence, ${pts.length ? g(pts[pts.length - 1][1]) : '—'} waves at ${trimmed(end, 2)}°; ${leaves ? `it moves by ${err} waves at ${g(a.acceptance_deg)}°` : `it stays within ${err} waves up to ${trimmed(end, 2)}°`}.`,
+        caption: leaves ? `Acceptance ${g(a.acceptance_deg)}° (±${err} waves).` : `Within ±${err} waves up to ${trimmed(end, 2)}°.`,
+        draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+          title, x_label: 'incidence', x_unit: '°', y_label: 'retardance', y_unit: 'waves',
+          points: pts, current, note: `acceptance ${g(a.acceptance_deg)}°`,
+        }), dark),
+      }));
+    });
+    return plots;
+  }
+  if (kind === 'achromat') {
+    const c = d.wavelength_curve;
+    const [a, b] = d.at_design_wavelengths;
+    const inBand = (p) => c.length > 1 && p[0] >= c[0][0] && p[0] <= c[c.length - 1][0];
+    const bothInside = inBand(a) && inBand(b);
+    return [designPlot('retardance-wavelength', {
+      wide: true,
+      probes: 2,
+      label: `Retardance of the pair against wavelength${c.length ? `, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm` : ''}: ${g(a[1])} waves at ${trimmed(a[0], 3)} nm and ${g(b[1])} waves at ${trimmed(b[0], 3)} nm, the two design points (${bothInside ? 'both marked' : 'only the first is marked: the band does not hold both'}); largest departure from the target over the band ${g(d.max_error_waves, 3)} waves.`,
+      caption: bothInside
+        ? 'Both design wavelengths are marked (the second one unlabelled where the labels would overlap); their values are in the Retardance card.'
+        : 'The band does not hold both design wavelengths: only the first is marked.',
+      draw: (p, dark) => drawTwoMarkers(p, {
+        title: 'Retardance of the pair against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
+        points: c, note: 'design points marked',
+      }, a, b, dark),
+    })];
+  }
+  return [];
+}
+
+function designWavelength(request) {
+  return typeof request.wavelength_nm === 'number' ? request.wavelength_nm : 632.8;
+}
+
+function drawDesignPlot(p) {
+  try {
+    p.draw(p, page.darkQuery.matches);
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    showDesignError({ field: '', message: `Could not draw the plot ${p.name}: ${fe.message}` });
+  }
+}
+
+function redrawDesign() {
+  for (const p of design.plots) drawDesignPlot(p);
+}
+
+/** Writes the shown design: its results as text, then its plots. */
+function renderDesign() {
+  const s = design.shown;
+  const results = document.getElementById('design-results');
+  const cardBox = document.getElementById('design-cards');
+  const plotBox = document.getElementById('design-plots');
+  const rowBox = document.getElementById('design-plots-row');
+  if (!s) {
+    results.replaceChildren();
+    cardBox.replaceChildren();
+    plotBox.replaceChildren();
+    rowBox.replaceChildren();
+    design.plots = [];
+    document.getElementById('design-empty').hidden = false;
+    return;
+  }
+  document.getElementById('design-empty').hidden = true;
+  const d = s.design;
+  const kind = d.kind;
+  const parts = kind === 'displacer' ? displacerResults(d, s.run)
+    : kind === 'waveplate' ? waveplateResults(d)
+      : kind === 'achromat' ? achromatResults(d)
+        : recombinerResults(d);
+  const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
+  const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
+  results.replaceChildren(head, parts[0]);
+  cardBox.replaceChildren(...parts.slice(1));
+
+  for (const p of design.plots) design.resize.unobserve(p.box);
+  design.plots = plotsFor(kind, d, s.request, s.run);
+  plotBox.replaceChildren(...design.plots.filter((p) => !p.small).map((p) => p.figure));
+  rowBox.replaceChildren(...design.plots.filter((p) => p.small).map((p) => p.figure));
+  for (const p of design.plots) {
+    drawDesignPlot(p);
+    design.resize.observe(p.box);
+  }
+  document.getElementById('design-use').disabled = false;
+  updateDesignStale();
+}
+
+// --- the worker ----------------------------------------------------------------------------
+
+function setDesignState(state) {
+  const panel = document.getElementById('design');
+  if (panel.dataset.state !== state) panel.dataset.state = state;
+  const running = state === 'solving' || state === 'running';
+  const cancel = document.getElementById('design-cancel');
+  if (!running && document.activeElement === cancel) document.getElementById('design-solve').focus();
+  cancel.disabled = !running;
+  // The results are being replaced while a run goes on (the status line, in the form, still speaks).
+  document.getElementById('design-output').setAttribute('aria-busy', running ? 'true' : 'false');
+}
+
+function designStatus(text) {
+  setText(document.getElementById('design-status'), text);
+}
+
+function startDesignWorker() {
+  let w;
+  try {
+    w = new Worker('design-worker.js', { type: 'module' });
+  } catch (e) {
+    designFailed(`The design worker could not start: ${e && e.message ? e.message : e}`);
+    return;
+  }
+  design.worker = w;
+  w.onmessage = (ev) => {
+    if (w === design.worker) onDesignMessage(ev.data);
+  };
+  w.onerror = (ev) => {
+    ev.preventDefault();
+    if (w !== design.worker) return;
+    designFailed(`The design worker stopped: ${ev.message || 'its script or the design core could not be loaded'}.`);
+  };
+  w.onmessageerror = () => {
+    if (w === design.worker) designFailed('The design worker sent a message the page could not read.');
+  };
+}
+
+function stopDesignWorker() {
+  if (design.worker) design.worker.terminate();
+  design.worker = null;
+}
+
+function designFailed(message) {
+  stopDesignWorker();
+  const a = design.active;
+  design.active = null;
+  if (a && a.nominal && design.shown && design.shown.run) {
+    design.shown.run.cancelled = true;
+    renderDesign();
+  } else {
+    document.getElementById('design-run').hidden = true;
+  }
+  showDesignError({ field: '', message: `${message} Press Solve to try again.` });
+  setDesignState('error');
+  designStatus('Not solved.');
+}
+
+function showProgress(done, total) {
+  const bar = document.getElementById('design-progress');
+  if (bar.max !== total) bar.max = total;
+  bar.value = done;
+  setText(document.getElementById('design-progress-text'), `${done} of ${total} samples`);
+}
+
+function onDesignMessage(msg) {
+  if (!msg || typeof msg !== 'object') return;
+  if (msg.type === 'ready') return;
+  if (msg.type === 'failed') {
+    designFailed(msg.message);
+    return;
+  }
+  const a = design.active;
+  if (!a || msg.id !== a.id) return;
+  if (msg.type === 'nominal') {
+    a.nominal = msg.design;
+    const total = Math.floor(typeof a.request.samples === 'number' ? a.request.samples : DESIGN_DEFAULT_SAMPLES);
+    a.total = total;
+    design.shown = { request: a.request, design: msg.design, complete: false, run: { done: 0, total, cancelled: false } };
+    document.getElementById('design-run').hidden = false;
+    showProgress(0, total);
+    setDesignState('running');
+    designStatus('Nominal design shown; the tolerance run goes on in the background.');
+    clearDesignErrors();
+    renderDesign();
+  } else if (msg.type === 'progress') {
+    a.done = msg.done;
+    a.total = msg.total;
+    if (design.shown && design.shown.run) design.shown.run.done = msg.done;
+    showProgress(msg.done, msg.total);
+    const st = document.getElementById('design-mc-state');
+    if (st) setText(st, `Running: ${msg.done} of ${msg.total} samples.`);
+  } else if (msg.type === 'done') {
+    const ms = performance.now() - a.t0;
+    design.active = null;
+    design.lastMs = ms;
+    design.shown = { request: a.request, design: msg.design, complete: true, run: null };
+    if (!a.nominal) document.getElementById('design-run').hidden = true;
+    clearDesignErrors();
+    setDesignState('done');
+    const mc = msg.design.monte_carlo;
+    designStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
+    renderDesign();
+  } else if (msg.type === 'error') {
+    design.active = null;
+    if (a.nominal && design.shown && design.shown.run) {
+      design.shown.run.cancelled = true;
+      renderDesign();
+    }
+    if (msg.internal) {
+      // The core may be in a bad state after an internal error: start afresh.
+      stopDesignWorker();
+      startDesignWorker();
+    }
+    document.getElementById('design-run').hidden = true;
+    showDesignError(msg.error);
+    setDesignState('error');
+    designStatus(`Not solved: ${msg.error.field ? `the field ${msg.error.field} needs attention` : 'see the message above'}.`);
+    updateDesignStale(true);
+  }
+}
+
+function solveDesign() {
+  const request = designRequest();
+  if (design.active) stopDesignWorker(); // a new request replaces the one under way
+  if (!design.worker) startDesignWorker();
+  if (!design.worker) return;
+  clearDesignErrors();
+  const id = design.nextId;
+  design.nextId += 1;
+  design.active = { id, request, t0: performance.now(), nominal: null, done: 0, total: 0 };
+  setDesignState('solving');
+  designStatus('Solving…');
+  design.worker.postMessage({ type: 'solve', id, request });
+}
+
+function cancelDesign() {
+  const a = design.active;
+  if (!a) return;
+  stopDesignWorker();
+  startDesignWorker();
+  design.active = null;
+  if (a.nominal && design.shown && design.shown.run) {
+    design.shown.run.cancelled = true;
+    design.shown.run.done = a.done;
+    setDesignState('cancelled');
+    designStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
+    renderDesign();
+  } else {
+    setDesignState(design.shown ? 'done' : 'idle');
+    designStatus('Cancelled.');
+  }
+  document.getElementById('design-solve').focus();
+}
+
+function useDesign() {
+  const s = design.shown;
+  if (!s) return;
+  try {
+    page.applyScenario(structuredClone(s.design.scenario));
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    showDesignError({ field: '', message: `The part could not be loaded into the set-up: ${fe.field ? `${fe.field}: ` : ''}${fe.message}` });
+    return;
+  }
+  page.flushFragment();
+  designStatus('The designed part is now the set-up: the views and results above show it.');
+  document.getElementById('views').focus();
+}
+
+/** Says so when the fields no longer match the design shown (or the last request failed). */
+function updateDesignStale(failed = false) {
+  const note = document.getElementById('design-stale');
+  const s = design.shown;
+  let text = '';
+  if (s && failed) {
+    text = 'Not solved: the results below are for the last request that solved.';
+  } else if (s && !design.active && JSON.stringify(designRequest()) !== JSON.stringify(s.request)) {
+    text = 'The fields have changed since this design was solved: press Solve to update it.';
+  }
+  setText(note, text);
+  if (note.hidden !== !text) note.hidden = !text;
+}
+
+/**
+ * Builds the panel in section#design and starts its worker. `pageLinks` is what the panel uses
+ * of the page: `core` (the bindings: drawSeries, drawHistogram), `materialList`
+ * (core.materials()), `materialName(key)`, `darkQuery` (the prefers-color-scheme: dark query),
+ * `applyScenario(obj)` (loads a scenario into the set-up; throws {field, message}) and
+ * `flushFragment()` (writes the address now). Returns the test hooks `designRequest()` and
+ * `designShown()`.
+ */
+export function setupDesign(pageLinks) {
+  page = pageLinks;
+  buildDesignFields();
+  layoutDesignFields();
+  const form = document.getElementById('design-form');
+  form.addEventListener('submit', (ev) => {
+    ev.preventDefault();
+    solveDesign();
+  });
+  const onEdit = (ev) => {
+    const f = ev.target instanceof HTMLElement ? ev.target.dataset.designField : undefined;
+    if (f === undefined) return;
+    if (dfields[f]) dfields[f].touched = true;
+    if (ev.target.tagName === 'SELECT') layoutDesignFields();
+    if (!designErrorShown) updateDesignStale();
+  };
+  form.addEventListener('input', onEdit);
+  form.addEventListener('change', onEdit);
+  document.getElementById('design-cancel').addEventListener('click', cancelDesign);
+  document.getElementById('design-use').addEventListener('click', useDesign);
+  design.resize = new ResizeObserver((entries) => {
+    const todo = new Set();
+    for (const e of entries) {
+      const p = design.plots.find((x) => x.box === e.target);
+      if (p) todo.add(p);
+    }
+    requestAnimationFrame(() => {
+      for (const p of todo) if (design.plots.includes(p)) drawDesignPlot(p);
+    });
+  });
+  page.darkQuery.addEventListener('change', () => redrawDesign());
+  startDesignWorker();
+  return {
+    designRequest,
+    designShown: () => (design.shown ? structuredClone({ request: design.shown.request, design: design.shown.design, complete: design.shown.complete }) : null),
+  };
+}

@@ -1,0 +1,38 @@
+// Doublespar page: the core's errors, `{field, message}`, as the page's modules handle them.
+//
+// Contract: `toFieldError(e)` gives `{field, message}` (field '' when the core names none) for
+// an error thrown by the core's bindings, and null for anything else (a bug, rethrown by the
+// caller). `nearestErrorSlot(root, attr, path, skip)` finds where a message about `path` is
+// shown: the error slot `[attr="<path>"]` under `root`, or else that of the nearest path above it
+// (`elements[0].axis.tilt_deg` -> `elements[0].axis` -> `elements[0]` -> `elements` -> ''),
+// taking only slots that are not inside a hidden element.
+
+/** The path one step up; '' above a top-level name, null above ''. */
+function parentPath(p) {
+  if (!p) return null;
+  const m = /^(.*?)(?:\.[^.[\]]*|\[\d+\])$/.exec(p);
+  return m ? m[1] : '';
+}
+
+export function toFieldError(e) {
+  if (e && typeof e === 'object' && !(e instanceof Error) && typeof e.message === 'string') {
+    return { field: typeof e.field === 'string' ? e.field : '', message: e.message };
+  }
+  return null;
+}
+
+/**
+ * The first element under `root` with `attr` equal to `path` (a trailing '.' dropped) or, where
+ * there is none, to the nearest path above it, whose parent lies in no hidden element and which
+ * `skip(el)` does not leave out; null when there is none (not even for '').
+ */
+export function nearestErrorSlot(root, attr, path, skip = () => false) {
+  for (let p = path.replace(/\.$/, ''); p !== null; p = parentPath(p)) {
+    for (const el of root.querySelectorAll(`[${attr}="${CSS.escape(p)}"]`)) {
+      if (skip(el)) continue;
+      if (!el.parentElement || el.parentElement.closest('[hidden]')) continue;
+      return el;
+    }
+  }
+  return null;
+}

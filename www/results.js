@@ -1,0 +1,196 @@
+// Doublespar page: the results as text, in #element-results (a card per element), #ray-rows,
+// #spot-rows, #summary and the warnings list. Every shown number carries data-quantity = its path
+// into the result (DEVELOPERS.md, "Page contract") and data-value = String(value); the text is
+// rounded, with its unit.
+//
+// Contract: setupResults({materialName}) once, then renderResults(r) after every trace. The rows
+// are built again only when the result's shape changes (element kinds, ray labels, spot count,
+// what is shown of the long tables); otherwise a cell's text and data-value are written only
+// when its value changed. The ray and spot tables show ROW_LIMIT rows and a "show all" button
+// (data-show-all="rays" or "spots"), whose click the page answers with toggleShowAll(which) and
+// a new render.
+
+import { h } from './dom.js';
+import { fmt } from './format.js';
+
+const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
+
+let nameOfMaterial = null; // the page's materialName (setupResults)
+let resultShape = null;
+let cells = [];
+const showAll = { rays: false, spots: false };
+
+function cell(tag, path, get, format, attrs) {
+  const el = h(tag, { 'data-quantity': path, ...(attrs ?? {}) });
+  cells.push({ el, get, format, last: undefined });
+  return el;
+}
+
+function shapeOf(r) {
+  const parts = [
+    r.elements.map((e) => e.kind).join(','),
+    r.rays.map((x) => x.label).join(','),
+    r.spots.length,
+    showAll.rays,
+    showAll.spots,
+  ];
+  return parts.join('|');
+}
+
+/** A last table row saying how many rows are hidden, with a button to show them all. */
+function moreRow(which, shown, total, colspan) {
+  const noun = which === 'rays' ? 'rays' : 'spots';
+  const btn = h('button', {
+    type: 'button',
+    className: 'show-all',
+    'data-show-all': which,
+    text: showAll[which] ? `Show the first ${shown} only` : `Show all ${total} ${noun}`,
+  });
+  const note = showAll[which] ? `All ${total} ${noun} shown. ` : `${shown} of ${total} ${noun} shown. `;
+  return h('tr', { className: 'more-row' }, h('td', { colspan, className: 'empty' }, note, btn));
+}
+
+
+/** The polarization columns shared by the ray and spot tables: ellipse azimuth, ellipticity,
+ * handedness and degree of polarization of the item that `pick(result)` selects. */
+function appendPolarizationCells(tr, p, pick) {
+  tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => pick(x).ellipse.azimuth_deg, fmt.ellipseDeg));
+  tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => pick(x).ellipse.ellipticity_deg, fmt.ellipseDeg));
+  tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => pick(x).ellipse.handedness, fmt.text, { className: 'word' }));
+  tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
+}
+
+function buildResults(r) {
+  cells = [];
+  const elBox = document.getElementById('element-results');
+  const frag = document.createDocumentFragment();
+  r.elements.forEach((e, i) => {
+    const p = `elements[${i}]`;
+    const card = h('article', { className: `result-card result-${e.kind}` });
+    const title = h('h4', {}, h('span', { className: 'result-index', text: `${i + 1}` }), ' ');
+    const rows = h('dl', { className: 'quantities' });
+    const row = (label, path, get, format) => {
+      rows.appendChild(h('div', { className: 'q' }, h('dt', { text: label }), cell('dd', path, get, format)));
+    };
+    if (e.kind === 'crystal') {
+      title.appendChild(cell('span', `${p}.material`, (x) => x.elements[i].material, (v) => (v === 'custom' ? 'crystal, custom indices' : `${nameOfMaterial(v)} crystal`)));
+      row('nₒ', `${p}.no`, (x) => x.elements[i].no, fmt.index);
+      row('nₑ', `${p}.ne`, (x) => x.elements[i].ne, fmt.index);
+      row('o-wave index', `${p}.o.index`, (x) => x.elements[i].o.index, fmt.index);
+      row('e-wave index', `${p}.e.index`, (x) => x.elements[i].e.index, fmt.index);
+      row('o walk-off', `${p}.o.walkoff_deg`, (x) => x.elements[i].o.walkoff_deg, fmt.deg);
+      row('e walk-off', `${p}.e.walkoff_deg`, (x) => x.elements[i].e.walkoff_deg, fmt.deg);
+      row('o/e separation', `${p}.separation_mm`, (x) => x.elements[i].separation_mm, fmt.mm);
+      row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
+      row('retardance', `${p}.retardance_waves`, (x) => x.elements[i].retardance_waves, fmt.waves);
+      row('reflected power', `${p}.reflected_power`, (x) => x.elements[i].reflected_power, fmt.power);
+      row('largest walk-off', `${p}.max_walkoff_deg`, (x) => x.elements[i].max_walkoff_deg, fmt.deg);
+      row('… at a cut of', `${p}.max_walkoff_cut_deg`, (x) => x.elements[i].max_walkoff_cut_deg, fmt.deg);
+      row('o mode', `${p}.o.status`, (x) => x.elements[i].o.status, fmt.text);
+      row('e mode', `${p}.e.status`, (x) => x.elements[i].e.status, fmt.text);
+    } else if (e.kind === 'retarder') {
+      title.appendChild(document.createTextNode('retarder'));
+      row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+    } else if (e.kind === 'polarizer') {
+      title.appendChild(document.createTextNode('polarizer'));
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+      row('absorbed', `${p}.absorbed_power`, (x) => x.elements[i].absorbed_power, fmt.power);
+    } else if (e.kind === 'rotator') {
+      title.appendChild(document.createTextNode('rotator'));
+      row('rotation', `${p}.angle_deg`, (x) => x.elements[i].angle_deg, fmt.deg);
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+    }
+    card.insertBefore(title, null);
+    card.appendChild(rows);
+    frag.appendChild(card);
+  });
+  elBox.replaceChildren(frag);
+
+  const rayRows = document.createDocumentFragment();
+  const rayCount = showAll.rays ? r.rays.length : Math.min(r.rays.length, ROW_LIMIT);
+  r.rays.slice(0, rayCount).forEach((ray, k) => {
+    const p = `rays.${ray.label}`;
+    const tr = h('tr', {}, h('th', { scope: 'row', className: `ray-label${rayClass(ray.label)}`, text: ray.label || '(no crystal)' }));
+    tr.appendChild(cell('td', `${p}.power`, (x) => x.rays[k].power, fmt.power));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], fmt.mm));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], fmt.mm));
+    appendPolarizationCells(tr, p, (x) => x.rays[k]);
+    rayRows.appendChild(tr);
+  });
+  if (r.rays.length === 0) {
+    rayRows.appendChild(h('tr', {}, h('td', { colspan: 8, className: 'empty', text: 'No ray leaves the stack.' })));
+  } else if (r.rays.length > ROW_LIMIT) {
+    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, 8));
+  }
+  document.getElementById('ray-rows').replaceChildren(rayRows);
+
+  const spotRows = document.createDocumentFragment();
+  const spotCount = showAll.spots ? r.spots.length : Math.min(r.spots.length, ROW_LIMIT);
+  r.spots.slice(0, spotCount).forEach((spot, k) => {
+    const p = `spots[${k}]`;
+    const tr = h('tr', {}, h('th', { scope: 'row', text: `${k + 1}` }));
+    tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, fmt.labels, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], fmt.mm));
+    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], fmt.mm));
+    tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
+    appendPolarizationCells(tr, p, (x) => x.spots[k]);
+    spotRows.appendChild(tr);
+  });
+  if (r.spots.length === 0) {
+    spotRows.appendChild(h('tr', {}, h('td', { colspan: 9, className: 'empty', text: 'No spot: no light leaves the stack.' })));
+  } else if (r.spots.length > ROW_LIMIT) {
+    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 9));
+  }
+  document.getElementById('spot-rows').replaceChildren(spotRows);
+
+  const summary = document.getElementById('summary');
+  summary.replaceChildren(
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Total power out' }), cell('span', 'total_power', (x) => x.total_power, fmt.power, { className: 'summary-value' })),
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Output rays' }), h('span', { className: 'summary-value', text: String(r.rays.length) })),
+    h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Spots' }), h('span', { className: 'summary-value', text: String(r.spots.length) })),
+  );
+}
+
+function rayClass(label) {
+  const last = label.charAt(label.length - 1);
+  return last === 'o' ? ' ray-o' : last === 'e' ? ' ray-e' : '';
+}
+
+let lastWarnings = null;
+
+/** Rewrites the results from result `r`; see the contract above. */
+export function renderResults(r) {
+  const shape = shapeOf(r);
+  if (shape !== resultShape) {
+    buildResults(r);
+    resultShape = shape;
+  }
+  for (const c of cells) {
+    const v = c.get(r);
+    const s = String(v);
+    if (s !== c.last) {
+      c.last = s;
+      c.el.setAttribute('data-value', s);
+      c.el.textContent = c.format(v);
+    }
+  }
+  const w = r.warnings.join('\n');
+  if (w !== lastWarnings) {
+    lastWarnings = w;
+    const list = document.getElementById('warning-list');
+    list.replaceChildren(...r.warnings.map((t) => h('li', { text: t })));
+    document.getElementById('no-warnings').hidden = r.warnings.length > 0;
+    document.getElementById('warnings').classList.toggle('has-warnings', r.warnings.length > 0);
+  }
+}
+
+/** Flips the ray or spot table (`which`: 'rays' or 'spots') between its first rows and all. */
+export function toggleShowAll(which) {
+  showAll[which] = !showAll[which];
+}
+
+/** Once, before the first render: `materialName(key)` names a material of the catalogue. */
+export function setupResults({ materialName }) {
+  nameOfMaterial = materialName;
+}

@@ -1,0 +1,208 @@
+// Doublespar page: the views, the six canvas[data-view] drawn by the core (side, end, Poincaré
+// sphere and three plots), with a text alternative in each aria-label and the plots' captions
+// (.plot-caption) saying which crystal they show. A view that cannot be drawn says so in
+// #view-error and keeps its last picture. For printing (the sheet goes on paper) the views are
+// drawn in the light palette.
+//
+// Contract: setupViews({session, darkQuery, viewList, materialName, current}) once, after the
+// core has loaded; it returns the list of views ({name, canvas, box}). Then drawViews() draws
+// them all, describeViews() writes their descriptions from current(), and redraw() does both.
+
+import { setAttr, setText } from './dom.js';
+import { fixed, fmt } from './format.js';
+import { toFieldError } from './field-error.js';
+
+const views = []; // {name, canvas, box, failed}
+let viewLinks = null; // what the page gives (setupViews)
+
+function drawView(v) {
+  try {
+    viewLinks.session.draw(v.name, v.canvas, viewLinks.darkQuery.matches && !printDark);
+    if (v.failed) {
+      v.failed = false;
+      viewErrors.delete(v.name);
+      showViewErrors();
+    }
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    v.failed = true;
+    viewErrors.set(v.name, fe.message);
+    showViewErrors();
+  }
+}
+
+const viewErrors = new Map();
+function showViewErrors() {
+  const el = document.getElementById('view-error');
+  const text = [...viewErrors].map(([k, m]) => `${k}: ${m}`).join(' · ');
+  el.textContent = text ? `Could not draw ${text}` : '';
+  el.hidden = !text;
+}
+
+/** Draws every view synchronously (their descriptions are left as they are). */
+export function drawViews() {
+  for (const v of views) drawView(v);
+}
+
+/** Redraws every view synchronously, and describes them again. */
+export function redraw() {
+  for (const v of views) drawView(v);
+  describeViews();
+}
+
+let dirtyViews = new Set();
+let resizeFrame = 0;
+function onResize(entries) {
+  for (const e of entries) {
+    const v = views.find((x) => x.box === e.target);
+    if (v) dirtyViews.add(v);
+  }
+  if (!resizeFrame) {
+    resizeFrame = requestAnimationFrame(() => {
+      resizeFrame = 0;
+      const todo = dirtyViews;
+      dirtyViews = new Set();
+      for (const v of todo) drawView(v);
+    });
+  }
+}
+
+function num(v, digits) {
+  return fixed(v, digits, 5e-13);
+}
+
+function lengthText(v) {
+  return fmt.mm(v);
+}
+
+function maxSpotDistance(spots) {
+  if (spots.length < 2) return 0;
+  let best = 0;
+  if (spots.length <= 64) {
+    for (let i = 0; i < spots.length; i += 1) {
+      for (let j = i + 1; j < spots.length; j += 1) {
+        const a = spots[i].position_mm;
+        const b = spots[j].position_mm;
+        best = Math.max(best, Math.hypot(a[0] - b[0], a[1] - b[1]));
+      }
+    }
+    return best;
+  }
+  let x0 = Infinity; let x1 = -Infinity; let y0 = Infinity; let y1 = -Infinity;
+  for (const s of spots) {
+    x0 = Math.min(x0, s.position_mm[0]); x1 = Math.max(x1, s.position_mm[0]);
+    y0 = Math.min(y0, s.position_mm[1]); y1 = Math.max(y1, s.position_mm[1]);
+  }
+  return Math.hypot(x1 - x0, y1 - y0);
+}
+
+function ellipseWords(e) {
+  if (e.handedness === 'unpolarized') return 'unpolarized';
+  if (e.handedness === 'linear') return `linear at ${num(e.azimuth_deg, 1)}°`;
+  if (Math.abs(Math.abs(e.ellipticity_deg) - 45) < 0.05) return `${e.handedness}-handed circular`;
+  return `${e.handedness}-handed elliptical, azimuth ${num(e.azimuth_deg, 1)}°, ellipticity ${num(e.ellipticity_deg, 1)}°`;
+}
+
+function listed(items, limit, describe) {
+  const shown = items.slice(0, limit).map(describe);
+  if (items.length > limit) shown.push(`and ${items.length - limit} more`);
+  return shown.join('; ');
+}
+
+/** Writes each view's aria-label and the plots' captions from the page's current result. */
+export function describeViews() {
+  const { result: r, scenario: shownScenario } = viewLinks.current();
+  if (!r) return;
+  const crystals = [];
+  r.elements.forEach((e, i) => { if (e.kind === 'crystal') crystals.push(i); });
+  const texts = {};
+  const spots = r.spots;
+  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${s.rays.join(' + ')})`);
+
+  if (r.rays.length === 0) {
+    texts.side = 'Side view (x–z plane, light travelling along +z): no ray leaves the stack.';
+  } else if (crystals.length === 0) {
+    texts.side = `Side view (x–z plane, light travelling along +z): ${r.elements.length} ideal element${r.elements.length === 1 ? '' : 's'} and no crystal; the beam passes undivided.`;
+  } else if (crystals.length === 1) {
+    const c = r.elements[crystals[0]];
+    texts.side = c.separation_mm === null
+      ? `Side view (x–z plane, light travelling along +z): one ${viewLinks.materialName(c.material)} plate; one of its modes is evanescent, so the beam is not split.`
+      : `Side view (x–z plane, light travelling along +z): e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${viewLinks.materialName(c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
+  } else {
+    texts.side = `Side view (x–z plane, light travelling along +z): ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
+  }
+
+  texts.end = spots.length === 0
+    ? 'End view, looking back toward the source: no light leaves the stack.'
+    : `End view, looking back toward the source (x to the right, y up): ${spots.length} spot${spots.length === 1 ? '' : 's'}. ${listed(spots, 6, (s, k) => `${spotName(s, k)} at (${num(s.position_mm[0], 3)}, ${num(s.position_mm[1], 3)}) mm, power ${fmt.power(s.power)}, ${ellipseWords(s.ellipse)}`)}.`;
+
+  const norm = (st) => (st[0] > 0 ? [st[1] / st[0], st[2] / st[0], st[3] / st[0]] : [0, 0, 0]);
+  const triple = (st) => `(${norm(st).map((x) => num(x, 3)).join(', ')})`;
+  texts.poincare = `Poincaré sphere, (S1, S2, S3)/S0: input ${triple(r.input.stokes)}, ${ellipseWords(r.input.ellipse)}${spots.length ? `; ${listed(spots, 6, (s, k) => `${spotName(s, k)} ${triple(s.stokes)}`)}` : ''}.`;
+
+  if (crystals.length === 0) {
+    const none = 'no crystal in the stack, nothing to plot.';
+    texts['walkoff-tilt'] = `Walk-off against cut tilt: ${none}`;
+    texts['separation-wavelength'] = `Separation against wavelength: ${none}`;
+    texts['retardance-wavelength'] = `Retardance against wavelength: ${none}`;
+  } else {
+    const i = crystals[0];
+    const c = r.elements[i];
+    const which = `element ${i + 1} (${describeMaterial(c.material)})`;
+    const sc = shownScenario?.elements?.[i];
+    const tilt = sc?.axis?.tilt_deg;
+    const walk = c.e.walkoff_deg === null ? 'the e-mode is evanescent' : `e walk-off ${num(c.e.walkoff_deg, 3)}°`;
+    texts['walkoff-tilt'] = `Walk-off against cut tilt for ${which}: ${walk} at the present tilt${typeof tilt === 'number' ? ` of ${num(tilt, 2)}°` : ''}; at normal incidence the largest walk-off, ${num(c.max_walkoff_deg, 3)}°, comes at a cut of ${num(c.max_walkoff_cut_deg, 2)}°.`;
+    texts['separation-wavelength'] = `Separation against wavelength for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(r.wavelength_nm, 1)} nm.`;
+    texts['retardance-wavelength'] = `Retardance against wavelength for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(r.wavelength_nm, 1)} nm.`;
+  }
+  for (const v of views) {
+    if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
+  }
+  const plotNote = crystals.length === 0
+    ? 'No crystal in the stack: nothing to plot.'
+    : `Element ${crystals[0] + 1}, ${describeMaterial(r.elements[crystals[0]].material)}: the first crystal of the stack.`;
+  for (const el of document.querySelectorAll('.plot-caption')) setText(el, plotNote);
+}
+
+function describeMaterial(key) {
+  return key === 'custom' ? 'custom indices' : viewLinks.materialName(key);
+}
+
+// Printing: the sheet (export.js) goes on paper, so the views are drawn in the light palette.
+
+let printDark = false;
+function beforePrint() {
+  // The sheet is printed on paper: draw the views with the light palette.
+  printDark = viewLinks.darkQuery.matches;
+  if (printDark) redraw();
+}
+function afterPrint() {
+  if (printDark) {
+    printDark = false;
+    redraw();
+  }
+}
+
+/**
+ * Finds the views (canvas[data-view] naming one of `viewList`), redraws each when its box is
+ * resized, all of them when the colour scheme changes (`darkQuery`) and around printing, and
+ * returns their list. `session` draws them; `materialName(key)` names a material;
+ * `current()` gives the page's {result, scenario} (the last that traced; null before the first).
+ */
+export function setupViews({ session, darkQuery, viewList, materialName, current }) {
+  viewLinks = { session, darkQuery, materialName, current };
+  const ro = new ResizeObserver(onResize);
+  for (const canvas of document.querySelectorAll('canvas[data-view]')) {
+    const name = canvas.dataset.view;
+    if (!viewList.includes(name)) continue;
+    const v = { name, canvas, box: canvas.parentElement, failed: false };
+    views.push(v);
+    ro.observe(v.box);
+  }
+  darkQuery.addEventListener('change', () => redraw());
+  window.addEventListener('beforeprint', beforePrint);
+  window.addEventListener('afterprint', afterPrint);
+  return views;
+}
