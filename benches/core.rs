@@ -71,8 +71,8 @@ fn main() {
     let ix = Indices::new(1.6556901060179166, 1.484909030214121).unwrap();
     let (t_pointwise, sum_pointwise) = time(9, || walkoff_sweep(black_box(ix), 1_000_000));
     let mut buffer = vec![0.0; 1_000_000];
-    let (t_sweep, sum) = time(9, || walkoff_sweep_dense(black_box(ix), &mut buffer));
-    let (t_single, _) = time(9, || {
+    let (t_sweep, sum) = time(21, || walkoff_sweep_dense(black_box(ix), &mut buffer));
+    let (t_single, _) = time(21, || {
         doublespar::sweep::walkoff_sweep_into(black_box(ix), 0.0, std::f64::consts::FRAC_PI_2, &mut buffer);
         doublespar::sweep::checksum(&buffer)
     });
