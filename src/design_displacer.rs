@@ -46,6 +46,17 @@ pub struct Tolerances {
     pub wavelength_nm: f64,
 }
 
+impl Tolerances {
+    /// The tolerances a request gets when it names none (DEVELOPERS.md, "Design requests"):
+    /// 0.1° of cut and of incidence, 0.05 mm of length, 0.5 nm of wavelength.
+    pub const DEFAULT: Tolerances = Tolerances {
+        tilt_deg: 0.1,
+        incidence_deg: 0.1,
+        thickness_mm: 0.05,
+        wavelength_nm: 0.5,
+    };
+}
+
 /// What the designer asks for.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DisplacerRequest {
@@ -287,29 +298,18 @@ impl DisplacerRequest {
             .transpose()?;
         let aperture_factor = in_range("aperture_factor", f.number_or("aperture_factor", 2.0)?, 1.0, 10.0)?;
         let tolerances = match f.get("tolerances") {
-            None => Tolerances {
-                tilt_deg: 0.1,
-                incidence_deg: 0.1,
-                thickness_mm: 0.05,
-                wavelength_nm: 0.5,
-            },
+            None => Tolerances::DEFAULT,
             Some(v) => {
                 let mut t = Fields::new("tolerances", v)?;
+                let d = Tolerances::DEFAULT;
+                let mut read = |key: &'static str, default: f64, max: f64| {
+                    in_range(&format!("tolerances.{key}"), t.number_or(key, default)?, 0.0, max)
+                };
                 let tol = Tolerances {
-                    tilt_deg: in_range("tolerances.tilt_deg", t.number_or("tilt_deg", 0.1)?, 0.0, 10.0)?,
-                    incidence_deg: in_range(
-                        "tolerances.incidence_deg",
-                        t.number_or("incidence_deg", 0.1)?,
-                        0.0,
-                        10.0,
-                    )?,
-                    thickness_mm: in_range("tolerances.thickness_mm", t.number_or("thickness_mm", 0.05)?, 0.0, 10.0)?,
-                    wavelength_nm: in_range(
-                        "tolerances.wavelength_nm",
-                        t.number_or("wavelength_nm", 0.5)?,
-                        0.0,
-                        100.0,
-                    )?,
+                    tilt_deg: read("tilt_deg", d.tilt_deg, 10.0)?,
+                    incidence_deg: read("incidence_deg", d.incidence_deg, 10.0)?,
+                    thickness_mm: read("thickness_mm", d.thickness_mm, 10.0)?,
+                    wavelength_nm: read("wavelength_nm", d.wavelength_nm, 100.0)?,
                 };
                 t.finish()?;
                 tol

@@ -174,6 +174,9 @@ pub const SWEEP_SERIES_LIMIT: f64 = 1e-3;
 
 /// [`walkoff_sweep_into`] split over `threads` threads (natively; one thread on WebAssembly),
 /// each filling its own contiguous part: identical values, shared work.
+///
+/// Degenerate cases: `threads` is taken as 1 when 0 and as 64 when larger (it is a work split,
+/// not an input a user gives); sweeps under 4096 samples run on the calling thread.
 pub fn walkoff_sweep_parallel(indices: Indices, theta0: f64, theta1: f64, out: &mut [f64], threads: usize) {
     let n = out.len();
     let threads = if cfg!(target_arch = "wasm32") {
@@ -409,6 +412,9 @@ mod tests {
             .fold(0.0, f64::max)
     }
 
+    // Independent method: the direct closed form of the walk-off (Born & Wolf, Principles of
+    // Optics, §15.3) evaluated point by point through `uniaxial::walkoff`, against the blocked
+    // series of the dense sweep.
     #[test]
     fn the_dense_sweep_agrees_with_the_direct_formula() {
         use std::f64::consts::{FRAC_PI_2, PI};

@@ -386,20 +386,15 @@ fn walkoff_mark(scene: &mut Scene, at: Point, k: [f64; 3], ray: [f64; 3], walkof
 pub fn dimension(scene: &mut Scene, a: Point, b: Point, label: &str, tag: &str) {
     scene.line(vec![a, b], Role::Dimension, vec![], 1.0, tag);
     let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
-    scene.items.push(Item::Arrow {
-        from: mid,
-        to: a,
-        role: Role::Dimension,
-        head_px: 7.0,
-        tag: format!("{tag} end"),
-    });
-    scene.items.push(Item::Arrow {
-        from: mid,
-        to: b,
-        role: Role::Dimension,
-        head_px: 7.0,
-        tag: format!("{tag} end"),
-    });
+    for end in [a, b] {
+        scene.items.push(Item::Arrow {
+            from: mid,
+            to: end,
+            role: Role::Dimension,
+            head_px: 7.0,
+            tag: format!("{tag} end"),
+        });
+    }
     scene.text(mid, format!(" {label}"), 12.0, Anchor::Start, Role::Dimension);
 }
 

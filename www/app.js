@@ -762,19 +762,30 @@ function accept(result, text, scenarioObj, drawn = false) {
   updatePrintSheet(JSON.parse(session.scenarioJson()), KIND_NAMES);
 }
 
+/**
+ * Hands a scenario's text to the core: {result} when it traces (the session then holds it), else
+ * {error: {field, message}} (the session keeps its last good scenario). Anything else is a bug and
+ * is rethrown.
+ */
+function traceText(text) {
+  try {
+    return { result: session.updateJson(text) };
+  } catch (e) {
+    const fe = toFieldError(e);
+    if (!fe) throw e;
+    return { error: fe };
+  }
+}
+
 /** Traces what the controls say; on an error, shows it and keeps the last good state. */
 function commit() {
   const scenario = buildScenario();
   const text = JSON.stringify(scenario);
   if (text === lastAttempt) return;
   lastAttempt = text;
-  let result;
-  try {
-    result = session.updateJson(text);
-  } catch (e) {
-    const fe = toFieldError(e);
-    if (!fe) throw e;
-    showFieldError(fe);
+  const { result, error } = traceText(text);
+  if (error) {
+    showFieldError(error);
     return;
   }
   accept(result, text, scenario);
@@ -798,16 +809,12 @@ function loadScenario(obj, updateAddress) {
     showFieldError(err);
     throw err;
   }
-  let result;
-  try {
-    result = session.updateJson(text);
-  } catch (e) {
-    const fe = toFieldError(e);
-    if (!fe) throw e;
+  const { result, error } = traceText(text);
+  if (error) {
     loadControls(obj);
     lastAttempt = JSON.stringify(buildScenario());
-    showFieldError(fe);
-    throw fe;
+    showFieldError(error);
+    throw error;
   }
   const normal = JSON.parse(session.scenarioJson());
   // Draw first, while the layout is still clean (the canvases read their size), then write the
@@ -898,13 +905,8 @@ function loadDemo() {
  * good scenario).
  */
 function tryScenarioText(text) {
-  try {
-    session.updateJson(text);
-  } catch (e) {
-    const fe = toFieldError(e);
-    if (!fe) throw e;
-    return { error: fe };
-  }
+  const { error } = traceText(text);
+  if (error) return { error };
   try {
     return { obj: JSON.parse(text) };
   } catch (e) {
