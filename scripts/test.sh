@@ -3,11 +3,14 @@
 # integration, property and golden tests, the independent numpy reference, the wasm size budget,
 # the bindings in headless Chromium, the page end to end, and a bounded fuzzing run. Installs what it needs on the way
 # (the wasm target and pinned wasm-bindgen CLI through scripts/build-web.sh, numpy in a venv under
-# target/, playwright-core under tests/e2e/node_modules); Chromium and its driver come from
-# Debian's packages (.ci/run installs them).
+# target/, playwright-core under tests/e2e/node_modules); Chromium, its driver, binaryen, Node.js
+# with npm and Python's venv come from Debian's packages through scripts/install-test-tools.sh,
+# which installs them as root when they are missing (and says what to install otherwise).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 WASM_BUDGET=300000
+echo "== tools"
+scripts/install-test-tools.sh
 echo "== format"
 cargo fmt --all -- --check
 echo "== clippy (native)"
