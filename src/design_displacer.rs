@@ -393,15 +393,18 @@ pub fn d2tan_walkoff(ix: Indices, theta: f64) -> f64 {
 ///
 /// Formula: ρ = atan T with T = tan ρ, so ρ' = T'/(1 + T²) and
 /// ρ'' = T''/(1 + T²) − 2 T T'²/(1 + T²)²; |ρ| takes the sign of T. At the maximum-walk-off cut
-/// tan θ = n_e/n_o the first derivative vanishes by symmetry and is returned as exactly 0 (the cut
-/// is recognised within [`crate::precision::STATIONARY_CUT_RAD`]); the second there reduces to
+/// tan θ = n_e/n_o (and at its mirror image π − θ) the first derivative vanishes by symmetry and is
+/// returned as exactly 0 (the cut is recognised within [`crate::precision::STATIONARY_CUT_RAD`]); the second there reduces to
 /// |ρ|'' = −2 |n_o² − n_e²| / (n_o n_e) = −4 tan ρ_max.
 pub fn walkoff_derivatives(ix: Indices, theta: f64) -> (f64, f64) {
     let t = walkoff(ix, theta).tan();
     let sign = t.signum();
     let (d1, d2) = (dtan_walkoff(ix, theta), d2tan_walkoff(ix, theta));
     let q = 1.0 + t * t;
-    let first = if (theta - max_walkoff_cut(ix).0).abs() <= crate::precision::STATIONARY_CUT_RAD {
+    // |ρ(θ)| = |ρ(π − θ)|: the cut mirrored about 90° is stationary too.
+    let tm = max_walkoff_cut(ix).0;
+    let off = (theta - tm).abs().min((theta - (std::f64::consts::PI - tm)).abs());
+    let first = if off <= crate::precision::STATIONARY_CUT_RAD {
         0.0
     } else {
         sign * d1 / q
@@ -675,6 +678,20 @@ mod tests {
         )))
         .unwrap();
         assert_eq!(again.walkoff_slope, 0.0);
+        // So is its mirror image about 90° (|ρ(θ)| = |ρ(180° − θ)|), with the same curvature.
+        let mirror = design(&request(&format!(
+            r#"{{"material": "calcite", "separation_mm": 1, "samples": 0, "cut_tilt_deg": {}}}"#,
+            180.0 - d.cut_tilt_deg
+        )))
+        .unwrap();
+        assert_eq!(mirror.walkoff_slope, 0.0);
+        assert_close(
+            mirror.walkoff_second_order_per_deg2,
+            d.walkoff_second_order_per_deg2,
+            1e-9,
+            0.0,
+            "mirrored cut",
+        );
     }
 
     #[test]
