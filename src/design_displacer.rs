@@ -102,8 +102,11 @@ pub struct BandSeparation {
 /// Sensitivity of the separation to each error (linearized), and the resulting spread.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Sensitivities {
-    /// ∂s/∂(cut tilt), mm per degree.
+    /// ∂s/∂(cut tilt), mm per degree: exactly 0 at the maximum-walk-off cut.
     pub tilt_mm_per_deg: f64,
+    /// The second-order coefficient ½ ∂²s/∂θ², mm per degree²: a cut error Δθ changes the
+    /// separation by `tilt_mm_per_deg`·Δθ + this·Δθ².
+    pub tilt_second_order_mm_per_deg2: f64,
     /// ∂s/∂(incidence in the walk-off plane), mm per degree.
     pub incidence_mm_per_deg: f64,
     /// ∂s/∂L, mm per mm (= tan ρ).
@@ -131,8 +134,12 @@ pub struct DisplacerDesign {
     pub max_walkoff_cut_deg: f64,
     /// Walk-off at the design cut, degrees.
     pub walkoff_deg: f64,
-    /// dρ/dθ at the design cut (0 at the maximum-walk-off cut), degrees per degree.
+    /// d|ρ|/dθ at the design cut, degrees per degree: exactly 0 at the maximum-walk-off cut,
+    /// where it vanishes by symmetry.
     pub walkoff_slope: f64,
+    /// The second-order coefficient ½ d²|ρ|/dθ², degrees per degree²: a cut error Δθ changes the
+    /// walk-off by `walkoff_slope`·Δθ + this·Δθ².
+    pub walkoff_second_order_per_deg2: f64,
     /// Why the cut is what it is.
     pub cut_note: String,
     /// Plate length, mm.
@@ -368,6 +375,43 @@ fn separation(medium: &Medium, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -
     plate_optics(ix, tilt_deg, 0.0, l, wl, tangential(1.0, polar_deg, 0.0)).map(|p| p.separation_mm)
 }
 
+/// d²(tan ρ)/dθ² for the walk-off of [`walkoff`] at normal incidence.
+///
+/// Formula: with a = n_o² − n_e², b = n_e² cos²θ + n_o² sin²θ and N = n_e² cos²θ − n_o² sin²θ
+/// (so that d(tan ρ)/dθ = a N / b², see [`dtan_walkoff`]), N' = −(n_o² + n_e²) sin 2θ and
+/// b' = a sin 2θ give d²(tan ρ)/dθ² = a (N' b − 2 N b') / b³.
+pub fn d2tan_walkoff(ix: Indices, theta: f64) -> f64 {
+    let (no2, ne2) = (ix.no * ix.no, ix.ne * ix.ne);
+    let (s, c) = theta.sin_cos();
+    let (a, b, n) = (no2 - ne2, ne2 * c * c + no2 * s * s, ne2 * c * c - no2 * s * s);
+    let s2 = (2.0 * theta).sin();
+    a * (-(no2 + ne2) * s2 * b - 2.0 * n * a * s2) / (b * b * b)
+}
+
+/// The first and second derivatives of the walk-off magnitude |ρ(θ)| with respect to the cut θ,
+/// both in radians (so the first is also degrees per degree), at normal incidence.
+///
+/// Formula: ρ = atan T with T = tan ρ, so ρ' = T'/(1 + T²) and
+/// ρ'' = T''/(1 + T²) − 2 T T'²/(1 + T²)²; |ρ| takes the sign of T. At the maximum-walk-off cut
+/// tan θ = n_e/n_o (and at its mirror image π − θ) the first derivative vanishes by symmetry and is
+/// returned as exactly 0 (the cut is recognised within [`crate::precision::STATIONARY_CUT_RAD`]); the second there reduces to
+/// |ρ|'' = −2 |n_o² − n_e²| / (n_o n_e) = −4 tan ρ_max.
+pub fn walkoff_derivatives(ix: Indices, theta: f64) -> (f64, f64) {
+    let t = walkoff(ix, theta).tan();
+    let sign = t.signum();
+    let (d1, d2) = (dtan_walkoff(ix, theta), d2tan_walkoff(ix, theta));
+    let q = 1.0 + t * t;
+    // |ρ(θ)| = |ρ(π − θ)|: the cut mirrored about 90° is stationary too.
+    let tm = max_walkoff_cut(ix).0;
+    let off = (theta - tm).abs().min((theta - (std::f64::consts::PI - tm)).abs());
+    let first = if off <= crate::precision::STATIONARY_CUT_RAD {
+        0.0
+    } else {
+        sign * d1 / q
+    };
+    (first, sign * (d2 / q - 2.0 * t * d1 * d1 / (q * q)))
+}
+
 /// d(tan ρ)/dθ for the walk-off of [`walkoff`] at normal incidence.
 ///
 /// Formula: with a = n_o² − n_e², b = n_e² cos²θ + n_o² sin²θ, tan ρ = a sin θ cos θ / b, so
@@ -413,13 +457,20 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let nm = req.wavelength.nm();
     let optics = plate_optics(ix, tilt, 0.0, length_mm, req.wavelength, [0.0, 0.0])
         .ok_or_else(|| Error::new("separation_mm", "the plate model cannot be evaluated at the design"))?;
-    let h = 1e-4;
-    let slope = (walkoff(ix, (tilt + h).to_radians()).abs() - walkoff(ix, (tilt - h).to_radians()).abs()) / (2.0 * h);
-    let cut_note = if req.cut_tilt_deg.is_none() {
-        "cut of maximum walk-off, tan θ = n_e/n_o: there dρ/dθ = 0, so a cut-angle error changes the separation only to second order".to_string()
+    // d|ρ|/dθ is dimensionless (rad/rad = °/°); the second derivative per degree² is the one per
+    // radian² times π/180 (ρ in degrees: × 180/π; θ in degrees: × (π/180)²).
+    let (slope, curvature_rad) = walkoff_derivatives(ix, tilt.to_radians());
+    let deg = std::f64::consts::PI / 180.0;
+    let slope_2 = 0.5 * curvature_rad * deg;
+    let cut_note = if slope == 0.0 {
+        format!(
+            "cut of maximum walk-off, tan θ = n_e/n_o: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
+            crate::scene::significant(slope_2, 3)
+        )
     } else {
         format!(
-            "cut fixed by the request; the maximum-walk-off cut would be {max_cut_deg:.4}° (dρ/dθ = 0 there, here {slope:.3e} °/°)"
+            "cut fixed by the request; the maximum-walk-off cut would be {max_cut_deg:.4}° (dρ/dθ = 0 there, here {} °/°)",
+            crate::scene::significant(slope, 3)
         )
     };
 
@@ -463,7 +514,10 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     // Tilt and length: the closed form at normal incidence, s = L |tan ρ(θ)|, differentiated
     // (exactly zero at the maximum-walk-off cut, where a difference quotient would only show
     // rounding). Incidence and wavelength: central differences of the exact model.
-    let s_tilt = length_mm * rho.tan().signum() * dtan_walkoff(ix, tilt.to_radians()) * std::f64::consts::PI / 180.0;
+    // With s = L tan|ρ|: ds/dθ = L (1 + tan²ρ) |ρ|' and d²s/dθ² = L (1 + tan²ρ)(|ρ|'' + 2 tan|ρ| |ρ|'²).
+    let sec2 = 1.0 + rho.tan().powi(2);
+    let s_tilt = length_mm * sec2 * slope * deg;
+    let s_tilt_2 = 0.5 * length_mm * sec2 * (curvature_rad + 2.0 * rho.tan().abs() * slope * slope) * deg * deg;
     let s_inc = central(|p| separation(m, tilt, p, length_mm, nm), 0.0, 1e-3).ok_or_else(bad)?;
     let s_len = rho.tan().abs();
     let s_wl = central(|w| separation(m, tilt, 0.0, length_mm, w), nm, 1e-2).ok_or_else(bad)?;
@@ -498,6 +552,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         max_walkoff_cut_deg: max_cut_deg,
         walkoff_deg: rho.abs().to_degrees(),
         walkoff_slope: slope,
+        walkoff_second_order_per_deg2: slope_2,
         cut_note,
         length_mm,
         separation_mm: s,
@@ -525,6 +580,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         },
         sensitivities: Sensitivities {
             tilt_mm_per_deg: s_tilt,
+            tilt_second_order_mm_per_deg2: s_tilt_2,
             incidence_mm_per_deg: s_inc,
             thickness_mm_per_mm: s_len,
             wavelength_mm_per_nm: s_wl,
@@ -539,6 +595,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::precision::assert_close;
     use crate::scenario::Scenario;
     use crate::trace::{ElementReport, trace};
 
@@ -576,11 +633,103 @@ mod tests {
             .atan()
             .to_degrees();
         assert!((d.walkoff_deg - expect).abs() < 1e-12, "{} vs {expect}", d.walkoff_deg);
-        assert!(d.walkoff_slope.abs() < 1e-6, "dρ/dθ = {}", d.walkoff_slope);
-        assert!(
-            d.sensitivities.tilt_mm_per_deg.abs() < 1e-6,
-            "{}",
-            d.sensitivities.tilt_mm_per_deg
+        // Zero by symmetry, reported as exactly zero (not rounding noise of about 1e-17).
+        assert_eq!(d.walkoff_slope, 0.0);
+        assert_eq!(d.sensitivities.tilt_mm_per_deg, 0.0);
+        // Second order, closed form derived from the same formula: |ρ|'' = −4 tan ρ_max per rad²,
+        // so the coefficient of Δθ² (degrees) is −2 tan ρ_max · π/180 °/°².
+        let deg = std::f64::consts::PI / 180.0;
+        let tan_max = (d.ne * d.ne - d.no * d.no).abs() / (2.0 * d.no * d.ne);
+        assert_close(
+            d.walkoff_second_order_per_deg2,
+            -2.0 * tan_max * deg,
+            1e-12,
+            0.0,
+            "½ d²|ρ|/dθ² at the maximum-walk-off cut, closed form −2 tan ρ_max (derived from Born & Wolf §15.3's tan ρ)",
+        );
+        // Independent route: a second difference of the walk-off itself, in degrees.
+        let ix = Indices::new(d.no, d.ne).unwrap();
+        let rho_deg = |t: f64| walkoff(ix, t.to_radians()).abs().to_degrees();
+        let (t0, h) = (d.cut_tilt_deg, 0.01);
+        let fd = (rho_deg(t0 + h) - 2.0 * rho_deg(t0) + rho_deg(t0 - h)) / (h * h);
+        assert_close(
+            d.walkoff_second_order_per_deg2,
+            0.5 * fd,
+            1e-5,
+            0.0,
+            "second difference of |ρ(θ)|",
+        );
+        // The separation's second-order coefficient against a second difference of the exact
+        // plate model (an independent route: ray tracing, not the closed form).
+        let sep = |t: f64| separation(&Medium::Custom(ix), t, 0.0, d.length_mm, d.wavelength_nm).unwrap();
+        let fd = (sep(t0 + h) - 2.0 * sep(t0) + sep(t0 - h)) / (h * h);
+        assert_close(
+            d.sensitivities.tilt_second_order_mm_per_deg2,
+            0.5 * fd,
+            1e-5,
+            0.0,
+            "second difference of the traced separation",
+        );
+        assert!(d.cut_note.contains("second order"), "{}", d.cut_note);
+        // A cut typed in as the printed maximum-walk-off cut is the same cut.
+        let again = design(&request(&format!(
+            r#"{{"material": "calcite", "separation_mm": 1, "samples": 0, "cut_tilt_deg": {}}}"#,
+            d.cut_tilt_deg
+        )))
+        .unwrap();
+        assert_eq!(again.walkoff_slope, 0.0);
+        // So is its mirror image about 90° (|ρ(θ)| = |ρ(180° − θ)|), with the same curvature.
+        let mirror = design(&request(&format!(
+            r#"{{"material": "calcite", "separation_mm": 1, "samples": 0, "cut_tilt_deg": {}}}"#,
+            180.0 - d.cut_tilt_deg
+        )))
+        .unwrap();
+        assert_eq!(mirror.walkoff_slope, 0.0);
+        assert_close(
+            mirror.walkoff_second_order_per_deg2,
+            d.walkoff_second_order_per_deg2,
+            1e-9,
+            0.0,
+            "mirrored cut",
+        );
+    }
+
+    #[test]
+    fn the_walkoff_slope_is_in_degrees_per_degree() {
+        // Calcite, 632.8 nm, cut 30°: differentiating tan ρ = (n_o² − n_e²) sin θ cos θ /
+        // (n_e² cos²θ + n_o² sin²θ) (Born & Wolf §15.3; Yariv & Yeh ch. 4, from memory) gives
+        // dρ/dθ = (d tan ρ/dθ) / (1 + tan²ρ) ≈ 0.0940 rad/rad = 0.0940 °/°. A slope in rad/deg
+        // would be 57.3 times smaller (0.00164).
+        let d = design(&request(
+            r#"{"material": "calcite", "wavelength_nm": 632.8, "separation_mm": 1, "cut_tilt_deg": 30, "samples": 0}"#,
+        ))
+        .unwrap();
+        let (no, ne, th) = (d.no, d.ne, 30f64.to_radians());
+        let (a, b) = (
+            no * no - ne * ne,
+            ne * ne * th.cos().powi(2) + no * no * th.sin().powi(2),
+        );
+        let tan_rho = a * th.sin() * th.cos() / b;
+        let dtan = a * (ne * ne * th.cos().powi(2) - no * no * th.sin().powi(2)) / (b * b);
+        let closed = dtan / (1.0 + tan_rho * tan_rho);
+        assert_close(d.walkoff_slope, closed, 1e-12, 0.0, "dρ/dθ, differentiated closed form");
+        assert!((d.walkoff_slope - 0.0940).abs() < 5e-5, "{}", d.walkoff_slope);
+        // Independent route: a central difference of the walk-off in degrees over degrees.
+        let ix = Indices::new(no, ne).unwrap();
+        let rho_deg = |t: f64| walkoff(ix, t.to_radians()).abs().to_degrees();
+        let fd = (rho_deg(30.001) - rho_deg(29.999)) / 0.002;
+        assert_close(d.walkoff_slope, fd, 1e-7, 0.0, "central difference of |ρ| in °/°");
+        // The note quotes the same number.
+        assert!(d.cut_note.contains("0.0940 °/°"), "{}", d.cut_note);
+        // Second order off the stationary cut, against a second difference.
+        let h = 0.01;
+        let fd2 = (rho_deg(30.0 + h) - 2.0 * rho_deg(30.0) + rho_deg(30.0 - h)) / (h * h);
+        assert_close(
+            d.walkoff_second_order_per_deg2,
+            0.5 * fd2,
+            1e-5,
+            0.0,
+            "second difference of |ρ|",
         );
     }
 

@@ -67,6 +67,17 @@ pub struct WaveplateRequest {
     pub acceptance_error_waves: f64,
 }
 
+/// Whether an acceptance angle was found or is only a lower bound.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Bound {
+    /// The retardance error reached its limit at this angle (found by bisection).
+    Found,
+    /// The limit was not reached up to the largest angle computed: the acceptance is at least
+    /// this angle (written `≥` in readable output).
+    AtLeast,
+}
+
 /// Retardance against angle of incidence in one plane.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct AngularCurve {
@@ -79,6 +90,9 @@ pub struct AngularCurve {
     pub acceptance_deg: f64,
     /// Whether the error limit was reached within the curve.
     pub acceptance_reached: bool,
+    /// `found`, or `at_least` when the limit was not reached (the same fact as
+    /// `acceptance_reached`, in the shape every bound of a design answer takes).
+    pub acceptance_bound: Bound,
 }
 
 /// A plate of a design.
@@ -127,6 +141,9 @@ pub struct WaveplateDesign {
     pub angular: Vec<AngularCurve>,
     /// Smallest acceptance angle over the planes, degrees.
     pub acceptance_deg: f64,
+    /// `found`, or `at_least` when no plane reached the error limit within
+    /// `max_incidence_deg`: the acceptance is then only known to be at least `acceptance_deg`.
+    pub acceptance_bound: Bound,
     /// A scenario with these plates, ready to load.
     pub scenario: Value,
 }
@@ -198,6 +215,7 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
                 curve,
                 acceptance_deg: acceptance,
                 acceptance_reached: reached,
+                acceptance_bound: if reached { Bound::Found } else { Bound::AtLeast },
             }
         })
         .collect()
@@ -225,7 +243,6 @@ impl WaveplateRequest {
                 ));
             }
         };
-        let _ = (f.get("order_number"), f.get("base_mm"));
         Ok(WaveplateRequest {
             medium,
             wavelength,
@@ -240,6 +257,23 @@ impl WaveplateRequest {
                 1.0,
             )?,
         })
+    }
+}
+
+impl WaveplateRequest {
+    /// The band of the retardance curve: `band_nm`, or ±20 % of the wavelength by default.
+    pub fn band(&self) -> (f64, f64) {
+        let nm = self.wavelength.nm();
+        self.band_nm.unwrap_or((0.8 * nm, 1.2 * nm))
+    }
+}
+
+impl AchromatRequest {
+    /// The band of the retardance curve: `band_nm`, or from 80 % of the shorter design wavelength
+    /// to 120 % of the longer by default.
+    pub fn band(&self) -> (f64, f64) {
+        let (w1, w2) = self.wavelengths_nm;
+        self.band_nm.unwrap_or((w1.min(w2) * 0.8, w1.max(w2) * 1.2))
     }
 }
 
@@ -270,7 +304,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let g = stack_retardance(&plates, nm, [0.0, 0.0])
         .ok_or_else(|| Error::new("retardance_waves", "the plate model cannot be evaluated"))?
         / TAU;
-    let (lo, hi) = req.band_nm.unwrap_or((0.8 * nm, 1.2 * nm));
+    let (lo, hi) = req.band();
     let wavelength_curve = (0..=120)
         .filter_map(|i| {
             let w = lo + (hi - lo) * i as f64 / 120.0;
@@ -278,7 +312,13 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         })
         .collect();
     let angular = angular_curves(&plates, nm, req.max_incidence_deg, req.acceptance_error_waves);
-    let acceptance_deg = angular.iter().map(|a| a.acceptance_deg).fold(f64::INFINITY, f64::min);
+    // The worst plane decides; its bound is the answer's (a plane that never left the limit has
+    // the curve's end as its acceptance, never below a plane that did leave it).
+    let worst = angular
+        .iter()
+        .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
+        .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
+    let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
     let elements: Vec<Value> = plates
         .iter()
         .map(|(md, l, az)| crystal_element(md, *l, 90.0, *az, 0.0))
@@ -300,6 +340,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         wavelength_curve,
         angular,
         acceptance_deg,
+        acceptance_bound,
         scenario,
     })
 }
@@ -328,7 +369,8 @@ pub struct AchromatDesign {
     pub at_design_wavelengths: [[f64; 2]; 2],
     /// Retardance against wavelength [nm, waves].
     pub wavelength_curve: Vec<[f64; 2]>,
-    /// The largest departure from the target over the band, waves.
+    /// The largest departure from the target over the band, waves (refined between the curve's
+    /// samples, so it is the maximum, not a lower bound of it).
     pub max_error_waves: f64,
     /// A scenario with the pair, ready to load.
     pub scenario: Value,
@@ -373,6 +415,34 @@ impl AchromatRequest {
             band_nm: band(f, "band_nm")?,
         })
     }
+}
+
+/// The largest of `err` over a sampled curve's band, found, not sampled: the largest sample's
+/// neighbourhood (one grid step either side) is searched by golden section, so that a maximum
+/// between two samples is not under-reported. `target` is subtracted from the curve's values.
+fn largest_error(curve: &[[f64; 2]], err: impl Fn(f64) -> Option<f64>, target: f64) -> f64 {
+    let Some((k, best)) = curve
+        .iter()
+        .map(|p| (p[1] - target).abs())
+        .enumerate()
+        .max_by(|a, b| a.1.total_cmp(&b.1))
+    else {
+        return 0.0;
+    };
+    let (mut a, mut b) = (curve[k.saturating_sub(1)][0], curve[(k + 1).min(curve.len() - 1)][0]);
+    let r = 0.5 * (5f64.sqrt() - 1.0);
+    let mut found = best;
+    for _ in 0..80 {
+        let (c, d) = (b - r * (b - a), a + r * (b - a));
+        let (ec, ed) = (err(c).unwrap_or(0.0), err(d).unwrap_or(0.0));
+        found = found.max(ec).max(ed);
+        if ec > ed {
+            b = d;
+        } else {
+            a = c;
+        }
+    }
+    found
 }
 
 /// Solves a two-material achromatic pair.
@@ -429,14 +499,14 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     };
     let g1 = total(w1).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let g2 = total(w2).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
-    let (lo, hi) = req.band_nm.unwrap_or((w1.min(w2) * 0.8, w1.max(w2) * 1.2));
+    let (lo, hi) = req.band();
     let curve: Vec<[f64; 2]> = (0..=160)
         .filter_map(|i| {
             let w = lo + (hi - lo) * i as f64 / 160.0;
             total(w).map(|g| [w, g])
         })
         .collect();
-    let max_error_waves = curve.iter().map(|p| (p[1] - f).abs()).fold(0.0, f64::max);
+    let max_error_waves = largest_error(&curve, |w| total(w).map(|g| (g - f).abs()), f);
     let elements: Vec<Value> = plates
         .iter()
         .map(|(md, l, az)| crystal_element(md, *l, 90.0, *az, 0.0))
@@ -485,6 +555,12 @@ mod tests {
                 _ => 0.0,
             })
             .sum()
+    }
+
+    fn traced_at(scenario: &Value, nm: f64) -> f64 {
+        let mut sc = scenario.clone();
+        sc["wavelength_nm"] = json!(nm);
+        traced_retardance_waves(&sc)
     }
 
     #[test]
@@ -578,6 +654,21 @@ mod tests {
         };
         let (pair, one) = (spread(&d.wavelength_curve), spread(&single.wavelength_curve));
         assert!(pair < 0.25 * one, "pair {pair} vs single {one}; plates {:?}", d.plates);
+        // The reported largest error is the maximum, not a sample of it: a traced scan 20 times
+        // finer than the curve finds nothing larger (to 1e-12) and the curve's samples nothing more.
+        let (lo, hi) = (400.0, 1080.0);
+        let fine = (0..=3_200)
+            .map(|i| {
+                let w = lo + (hi - lo) * f64::from(i) / 3_200.0;
+                (traced_at(&d.scenario, w) - 0.25).abs()
+            })
+            .fold(0.0, f64::max);
+        assert!(
+            d.max_error_waves >= fine - 1e-12,
+            "{} vs fine scan {fine}",
+            d.max_error_waves
+        );
+        assert!(d.max_error_waves >= spread(&d.wavelength_curve));
     }
 
     #[test]

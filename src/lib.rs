@@ -5,6 +5,7 @@
 pub mod canvas;
 pub mod design;
 pub mod design_displacer;
+pub mod design_notes;
 pub mod design_recombiner;
 pub mod design_waveplate;
 pub mod error;

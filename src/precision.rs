@@ -19,6 +19,12 @@ pub const EVANESCENT_IM: f64 = 1e-13;
 /// diameter is far below any separation a displacer is built for, and far above rounding.
 pub const SPOT_FRACTION_OF_DIAMETER: f64 = 1e-3;
 
+/// A cut within this angle (radians) of the maximum-walk-off cut tan θ = n_e/n_o is that cut: the
+/// walk-off's first derivative there is zero by symmetry and is reported as exactly 0 instead of
+/// rounding noise (about 1e-17). The first-order term it hides is below |ρ''| · 1e-12 ≈ 1e-13
+/// degrees per degree, far below what any cut can be polished to.
+pub const STATIONARY_CUT_RAD: f64 = 1e-12;
+
 /// A power lost at an element that is smaller than this fraction of the power entering it is
 /// rounding, and is reported as zero.
 pub const POWER_ROUNDING: f64 = 1e-13;

@@ -197,3 +197,39 @@ fn materials_list_every_key_with_a_citation() {
         Some(2)
     );
 }
+
+#[test]
+fn materials_mark_a_breakdown_and_unverified_data() {
+    // At 10 µm calcite's formula gives n_o² < 0, quartz's sits on its 10 µm resonance and
+    // alpha-BBO's gives n_e ≈ 0.93 < 1: no index is listed for them, only the reason.
+    let out = bin().args(["materials", "--json", "--at", "10000"]).output().unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    for m in v["materials"].as_array().unwrap() {
+        if ["calcite", "quartz", "alpha-bbo"].contains(&m["key"].as_str().unwrap()) {
+            assert!(m["no"].is_null() && m["ne"].is_null(), "{m}");
+            assert_eq!(m["error"]["field"], "wavelength_nm", "{m}");
+        }
+    }
+    let text = String::from_utf8(bin().args(["materials", "--at", "10000"]).output().unwrap().stdout).unwrap();
+    let calcite = text.lines().find(|l| l.starts_with("calcite")).unwrap();
+    assert!(
+        calcite.contains("n/a: formula breaks down") && !calcite.contains("NaN"),
+        "{calcite}"
+    );
+    assert!(text.contains("below 1"), "{text}");
+    // The listing itself (no --at) flags the unverified formula, by name.
+    let out = bin().args(["materials", "--json"]).output().unwrap();
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    for m in v["materials"].as_array().unwrap() {
+        let flagged = m["warnings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|w| w.as_str().unwrap().contains("unverified data"));
+        assert_eq!(flagged, m["key"] == "alpha-bbo", "{m}");
+        assert_eq!(m["verified"], m["key"] != "alpha-bbo", "{m}");
+    }
+    let text = String::from_utf8(bin().arg("materials").output().unwrap().stdout).unwrap();
+    assert!(text.contains("warning: unverified data for alpha-bbo"), "{text}");
+}

@@ -158,6 +158,7 @@ fn cmd_materials(args: &[String]) -> ExitCode {
             "key": m.key, "name": m.name,
             "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
             "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
+            "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
         });
         if let Some(w) = at {
             match m.indices(w) {
@@ -166,7 +167,12 @@ fn cmd_materials(args: &[String]) -> ExitCode {
                     row["ne"] = json!(ev.indices.ne);
                     row["warnings"] = json!(ev.warnings);
                 }
-                Err(e) => row["error"] = json!({"field": e.field, "message": e.message}),
+                // No index is listed where the formula breaks down: null, and the reason.
+                Err(e) => {
+                    row["no"] = serde_json::Value::Null;
+                    row["ne"] = serde_json::Value::Null;
+                    row["error"] = json!({"field": e.field, "message": e.message});
+                }
             }
         }
         rows.push(row);
@@ -176,6 +182,7 @@ fn cmd_materials(args: &[String]) -> ExitCode {
     } else {
         for r in &rows {
             let idx = match (r.get("no"), r.get("ne")) {
+                _ if r.get("error").is_some() => "  n/a: formula breaks down".to_string(),
                 (Some(no), Some(ne)) => format!(
                     "  n_o {:.6}  n_e {:.6}",
                     no.as_f64().unwrap_or(f64::NAN),
@@ -193,6 +200,12 @@ fn cmd_materials(args: &[String]) -> ExitCode {
                 idx
             );
             println!("           {}", r["citation"].as_str().unwrap_or(""));
+            if let Some(m) = r["error"]["message"].as_str() {
+                println!("           n/a: {m}");
+            }
+            for w in r["warnings"].as_array().into_iter().flatten() {
+                println!("           warning: {}", w.as_str().unwrap_or(""));
+            }
         }
     }
     ExitCode::SUCCESS
