@@ -71,20 +71,21 @@ pub fn quoted(value: f64) -> String {
     text.replace('-', "\u{2212}")
 }
 
-/// The unit a field's value is given in, as a message writes it after a number (` mm`, `°`),
+/// The unit a field's value is given in, as a message writes it after a number (` mm`, `°`;
+/// a plain space, which JSON and terminals show as it is),
 /// read from the contract's suffix of the field's last name (`band_nm[1]` counts as `band_nm`);
 /// empty for a plain number.
 pub fn unit_after(field: &str) -> &'static str {
     let name = field.trim_end_matches(|c: char| c == ']' || c == '[' || c.is_ascii_digit());
     let name = name.rsplit('.').next().unwrap_or(name);
     if name.ends_with("_mm") {
-        "\u{a0}mm"
+        " mm"
     } else if name.ends_with("_nm") {
-        "\u{a0}nm"
+        " nm"
     } else if name.ends_with("_deg") {
         "°"
     } else if name.ends_with("_waves") {
-        "\u{a0}waves"
+        " waves"
     } else {
         ""
     }
@@ -94,10 +95,10 @@ pub fn unit_after(field: &str) -> &'static str {
 /// read from the contract's unit suffix of its last name.
 pub fn number_wanted(field: &str) -> &'static str {
     match unit_after(field) {
-        "\u{a0}mm" => "a number in millimetres, such as 2.5",
-        "\u{a0}nm" => "a number in nanometres, such as 632.8",
+        " mm" => "a number in millimetres, such as 2.5",
+        " nm" => "a number in nanometres, such as 632.8",
         "°" => "a number in degrees, such as 45",
-        "\u{a0}waves" => "a number of waves, such as 0.25",
+        " waves" => "a number of waves, such as 0.25",
         _ => "a number, such as 1.5",
     }
 }
@@ -145,6 +146,22 @@ pub fn non_negative(field: &str, value: f64) -> Result<f64, Error> {
     }
 }
 
+/// The message of a value outside a range, `must be <lo words> lo <hi words> hi (why), got v`,
+/// each number with the field's unit, so that the words say which ends belong to the range.
+fn range_error(field: &str, v: f64, (lo_words, lo): (&str, f64), (hi_words, hi): (&str, f64), why: &str) -> Error {
+    let u = unit_after(field);
+    let why = if why.is_empty() {
+        String::new()
+    } else {
+        format!(" ({why})")
+    };
+    let (lo, hi, v) = (quoted(lo), quoted(hi), quoted(v));
+    Error::new(
+        field,
+        format!("must be {lo_words} {lo}{u} {hi_words} {hi}{u}{why}, got {v}{u}"),
+    )
+}
+
 /// Checks that `value` is finite and within `[lo, hi]` (both ends included), naming `field`
 /// otherwise.
 ///
@@ -155,16 +172,7 @@ pub fn in_range(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error>
     if (lo..=hi).contains(&v) {
         Ok(v)
     } else {
-        let u = unit_after(field);
-        Err(Error::new(
-            field,
-            format!(
-                "must be from {}{u} to {}{u}, got {}{u}",
-                quoted(lo),
-                quoted(hi),
-                quoted(v)
-            ),
-        ))
+        Err(range_error(field, v, ("from", lo), ("to", hi), ""))
     }
 }
 
@@ -178,16 +186,7 @@ pub fn above(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error> {
     if v > lo && v <= hi {
         Ok(v)
     } else {
-        let u = unit_after(field);
-        Err(Error::new(
-            field,
-            format!(
-                "must be above {}{u} and at most {}{u}, got {}{u}",
-                quoted(lo),
-                quoted(hi),
-                quoted(v)
-            ),
-        ))
+        Err(range_error(field, v, ("above", lo), ("and at most", hi), ""))
     }
 }
 
@@ -201,21 +200,7 @@ pub fn strictly_between(field: &str, value: f64, lo: f64, hi: f64, why: &str) ->
     if v > lo && v < hi {
         Ok(v)
     } else {
-        let u = unit_after(field);
-        let why = if why.is_empty() {
-            String::new()
-        } else {
-            format!(" ({why})")
-        };
-        Err(Error::new(
-            field,
-            format!(
-                "must be above {}{u} and below {}{u}{why}, got {}{u}",
-                quoted(lo),
-                quoted(hi),
-                quoted(v)
-            ),
-        ))
+        Err(range_error(field, v, ("above", lo), ("and below", hi), why))
     }
 }
 
@@ -257,7 +242,7 @@ mod tests {
         assert_eq!(m(positive("a.length", -1.0)), "must be above 0, got \u{2212}1");
         assert_eq!(
             m(above("elements[1].thickness_mm", 0.0, 0.0, 1e4)),
-            "must be above 0\u{a0}mm and at most 10000\u{a0}mm, got 0\u{a0}mm"
+            "must be above 0 mm and at most 10000 mm, got 0 mm"
         );
         assert_eq!(
             m(in_range("axis.tilt_deg", 200.0, 0.0, 180.0)),
@@ -274,10 +259,7 @@ mod tests {
             "must be above \u{2212}90° and below 90° (grazing light never enters), got 90°"
         );
         let huge = m(in_range("wavelength_nm", 1e308, 1.0, 1e6));
-        assert!(
-            huge.ends_with("got 1e308\u{a0}nm") && huge.chars().count() < 60,
-            "{huge}"
-        );
+        assert!(huge.ends_with("got 1e308 nm") && huge.chars().count() < 60, "{huge}");
         assert_eq!(
             m(finite("gap_mm", f64::NAN)),
             "enter a number in millimetres, such as 2.5, not NaN"
@@ -289,8 +271,8 @@ mod tests {
     #[test]
     fn units_come_from_the_field_name() {
         assert_eq!(unit_after("elements[0].axis.tilt_deg"), "°");
-        assert_eq!(unit_after("band_nm[1]"), "\u{a0}nm");
-        assert_eq!(unit_after("wavelength_nm"), "\u{a0}nm");
+        assert_eq!(unit_after("band_nm[1]"), " nm");
+        assert_eq!(unit_after("wavelength_nm"), " nm");
         assert_eq!(unit_after("outside_index"), "");
         assert_eq!(unit_after("beam.polarization.jones[0][1]"), "");
         assert_eq!(unit_after(""), "");
