@@ -396,7 +396,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             if s[0].is_nan() || s[0] <= 0.0 {
                 return Err(Error::new(
                     format!("{path}[0]"),
-                    format!("S0, the total power, must be above 0, got {}", quoted(s[0])),
+                    format!("must be above 0 (S0 is the total power), got {}", quoted(s[0])),
                 ));
             }
             let pol = (s[1] * s[1] + s[2] * s[2] + s[3] * s[3]).sqrt();

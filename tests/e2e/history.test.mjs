@@ -112,6 +112,17 @@ test('Back and Forward walk through the committed set-ups without adding steps',
     await waitScenario(page, (s) => s.elements[0].thickness_mm === 6, 'Forward shows thickness 6');
     assert.equal(await page.evaluate(() => history.length), length, 'walking the history added no entry');
     assert.equal(await page.isDisabled('#redo'), true, 'at the newest step nothing is left to redo');
+
+    // A link put into the address is a step too, which Undo takes back.
+    const recombiner = fs.readFileSync(path.join(ROOT, 'examples', 'recombiner.json'), 'utf8');
+    await page.evaluate((h) => { location.hash = h; }, `#scenario=${encodeURIComponent(recombiner)}`);
+    await waitScenario(page, (s) => s.wavelength_nm === 1064, 'the link in the address loads');
+    assert.equal((await origin(page)).kind, 'link');
+    assert.match(await statusText(page), /^Loaded a shared link; it replaced the demo, edited\. Undo brings that back\.$/);
+    await page.click('#undo');
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 6, 'Undo goes back to the set-up before the link');
+    await page.click('#redo');
+    await waitScenario(page, (s) => s.wavelength_nm === 1064, 'Redo shows the link\'s set-up again');
   });
 });
 
