@@ -48,8 +48,10 @@ export class SetupHistory {
   }
 
   /**
-   * The first entry of this visit: the browser's current entry is rewritten. A reload keeps its
-   * place (and what Forward still holds) when the entry it finds is one of ours for the same text.
+   * The first entry of this visit: the browser's current entry gets its state, and its address
+   * stays as it came (a link that could not be loaded stays there until the first edit). A
+   * reload keeps its place (and what Forward still holds) when the entry it finds is one of ours
+   * for the same text.
    */
   start(entry) {
     const old = history.state;
@@ -57,7 +59,7 @@ export class SetupHistory {
     const index = keep ? old.index : 0;
     this.top = keep ? Math.max(old.top ?? index, index) : 0;
     this.entry = { ...entry, origin: keep ? old.origin : entry.origin, edited: keep ? old.edited : entry.edited, index };
-    this.write(false);
+    this.write(false, true);
   }
 
   /** A new step: after the entry on screen, dropping whatever Forward held. */
@@ -117,11 +119,11 @@ export class SetupHistory {
     return true;
   }
 
-  write(push) {
+  write(push, keepAddress = false) {
     this.timer = 0;
     this.lastWrite = performance.now();
     const state = { ...this.entry, tag: STATE_TAG, top: this.top };
-    const url = `${location.pathname}${location.search}${this.href(this.entry)}`;
+    const url = keepAddress ? location.href : `${location.pathname}${location.search}${this.href(this.entry)}`;
     if (push) history.pushState(state, '', url);
     else history.replaceState(state, '', url);
     this.changed();
