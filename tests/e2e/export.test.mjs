@@ -275,5 +275,17 @@ test('printing a solved design adds a one-page order sheet with everything a sho
       // does not break inside, so two pages in all means the order sheet is one page.
       assert.equal(pdfPages(pdf), 2, `the design sheet and the order sheet, one ${format} page each`);
     }
+
+    // A waveplate's thickness tolerance is the change that moves its retardance by the
+    // acceptance error: Γ = Δn·L/λ in waves (common practice), so δL = δΓ·λ/|Δn|.
+    await page.selectOption('[data-design-field="kind"]', 'waveplate');
+    await solveDesign(page);
+    const wp = await page.evaluate(() => window.doublespar.designShown().design);
+    const tol = (0.01 * wp.wavelength_nm * 1e-6) / Math.abs(wp.birefringence);
+    const rows = await page.evaluate(() => Object.fromEntries([...document.querySelectorAll('#order-sheet [data-order]')]
+      .map((r) => [r.dataset.order, r.querySelector('dd').textContent])));
+    assert.equal(rows.Part, 'Waveplate');
+    assert.equal(rows.Dimensions, `plate 1: ${Number(wp.plates[0].thickness_mm.toPrecision(4))} mm thick; ± ${Number(tol.toPrecision(2))} mm (moves the retardance by 0.01 waves)`);
+    assert.match(rows.Cut, /^optic axis in the face \(90° to the face normal\)/);
   });
 });
