@@ -57,6 +57,52 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
+/// A number as a message quotes it: short, whatever its size (`1e308`, not 309 digits;
+/// `2.5e-9`, not `0.0000000025`), with the minus sign a reader expects.
+///
+/// Plain decimal from 10⁻⁴ up to 10⁷ (Rust's shortest round-trip form), scientific outside it.
+pub fn quoted(value: f64) -> String {
+    let a = value.abs();
+    let text = if value == 0.0 || !value.is_finite() || (1e-4..1e7).contains(&a) {
+        format!("{value}")
+    } else {
+        format!("{value:e}")
+    };
+    text.replace('-', "\u{2212}")
+}
+
+/// The unit a field's value is given in, as a message writes it after a number (` mm`, `°`;
+/// a plain space, which JSON and terminals show as it is),
+/// read from the contract's suffix of the field's last name (`band_nm[1]` counts as `band_nm`);
+/// empty for a plain number.
+pub fn unit_after(field: &str) -> &'static str {
+    let name = field.trim_end_matches(|c: char| c == ']' || c == '[' || c.is_ascii_digit());
+    let name = name.rsplit('.').next().unwrap_or(name);
+    if name.ends_with("_mm") {
+        " mm"
+    } else if name.ends_with("_nm") {
+        " nm"
+    } else if name.ends_with("_deg") {
+        "°"
+    } else if name.ends_with("_waves") {
+        " waves"
+    } else {
+        ""
+    }
+}
+
+/// What a field wants, in words a person acts on (`a number in millimetres, such as 2.5`),
+/// read from the contract's unit suffix of its last name.
+pub fn number_wanted(field: &str) -> &'static str {
+    match unit_after(field) {
+        " mm" => "a number in millimetres, such as 2.5",
+        " nm" => "a number in nanometres, such as 632.8",
+        "°" => "a number in degrees, such as 45",
+        " waves" => "a number of waves, such as 0.25",
+        _ => "a number, such as 1.5",
+    }
+}
+
 /// Checks that `value` is a finite number, naming `field` otherwise.
 ///
 /// # Errors
@@ -65,7 +111,10 @@ pub fn finite(field: &str, value: f64) -> Result<f64, Error> {
     if value.is_finite() {
         Ok(value)
     } else {
-        Err(Error::new(field, format!("must be a finite number, got {value}")))
+        Err(Error::new(
+            field,
+            format!("enter {}, not {value}", number_wanted(field)),
+        ))
     }
 }
 
@@ -78,7 +127,8 @@ pub fn positive(field: &str, value: f64) -> Result<f64, Error> {
     if v > 0.0 {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must be greater than zero, got {v}")))
+        let u = unit_after(field);
+        Err(Error::new(field, format!("must be above 0{u}, got {}{u}", quoted(v))))
     }
 }
 
@@ -91,11 +141,29 @@ pub fn non_negative(field: &str, value: f64) -> Result<f64, Error> {
     if v >= 0.0 {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must not be negative, got {v}")))
+        let u = unit_after(field);
+        Err(Error::new(field, format!("must be 0{u} or more, got {}{u}", quoted(v))))
     }
 }
 
-/// Checks that `value` is finite and within `[lo, hi]`, naming `field` otherwise.
+/// The message of a value outside a range, `must be <lo words> lo <hi words> hi (why), got v`,
+/// each number with the field's unit, so that the words say which ends belong to the range.
+fn range_error(field: &str, v: f64, (lo_words, lo): (&str, f64), (hi_words, hi): (&str, f64), why: &str) -> Error {
+    let u = unit_after(field);
+    let why = if why.is_empty() {
+        String::new()
+    } else {
+        format!(" ({why})")
+    };
+    let (lo, hi, v) = (quoted(lo), quoted(hi), quoted(v));
+    Error::new(
+        field,
+        format!("must be {lo_words} {lo}{u} {hi_words} {hi}{u}{why}, got {v}{u}"),
+    )
+}
+
+/// Checks that `value` is finite and within `[lo, hi]` (both ends included), naming `field`
+/// otherwise.
 ///
 /// # Errors
 /// When `value` is NaN, infinite or outside the closed range.
@@ -104,7 +172,49 @@ pub fn in_range(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error>
     if (lo..=hi).contains(&v) {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must lie between {lo} and {hi}, got {v}")))
+        Err(range_error(field, v, ("from", lo), ("to", hi), ""))
+    }
+}
+
+/// Checks that `value` is finite, above `lo` (excluded) and at most `hi` (included): a length,
+/// a diameter, anything that must not be zero. Names `field` otherwise.
+///
+/// # Errors
+/// When `value` is NaN, infinite, at or below `lo`, or above `hi`.
+pub fn above(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error> {
+    let v = finite(field, value)?;
+    if v > lo && v <= hi {
+        Ok(v)
+    } else {
+        Err(range_error(field, v, ("above", lo), ("and at most", hi), ""))
+    }
+}
+
+/// Checks that `value` is finite, from `lo` (included) up to `hi` (excluded): an angle that may
+/// be 0 but must stay short of a right angle, say. Names `field` otherwise.
+///
+/// # Errors
+/// When `value` is NaN, infinite, below `lo`, or at or above `hi`.
+pub fn up_to_excluding(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error> {
+    let v = finite(field, value)?;
+    if v >= lo && v < hi {
+        Ok(v)
+    } else {
+        Err(range_error(field, v, ("from", lo), ("up to but not including", hi), ""))
+    }
+}
+
+/// Checks that `value` is finite and strictly between `lo` and `hi` (both ends excluded), naming
+/// `field` otherwise; `why` (may be empty) says why the ends are excluded.
+///
+/// # Errors
+/// When `value` is NaN, infinite, or at or beyond either end.
+pub fn strictly_between(field: &str, value: f64, lo: f64, hi: f64, why: &str) -> Result<f64, Error> {
+    let v = finite(field, value)?;
+    if v > lo && v < hi {
+        Ok(v)
+    } else {
+        Err(range_error(field, v, ("above", lo), ("and below", hi), why))
     }
 }
 
@@ -132,5 +242,58 @@ mod tests {
         assert!(non_negative("x", -1e-300).is_err());
         assert_eq!(non_negative("x", 0.0), Ok(0.0));
         assert!(in_range("x", 91.0, -90.0, 90.0).is_err());
+        assert!(above("x_mm", 0.0, 0.0, 1.0).is_err());
+        assert_eq!(above("x_mm", 1.0, 0.0, 1.0), Ok(1.0));
+        assert!(strictly_between("x_deg", 90.0, -90.0, 90.0, "").is_err());
+    }
+
+    /// Each message says whether an end belongs to the range (a range that excludes an end says
+    /// "above" or "below"; one that includes it says "from", "to", "at most"), with the unit the
+    /// field's name carries, and quotes a huge value compactly.
+    #[test]
+    fn range_messages_say_which_ends_are_included() {
+        let m = |r: Result<f64, Error>| r.unwrap_err().message;
+        assert_eq!(m(positive("a.length", -1.0)), "must be above 0, got \u{2212}1");
+        assert_eq!(
+            m(above("elements[1].thickness_mm", 0.0, 0.0, 1e4)),
+            "must be above 0 mm and at most 10000 mm, got 0 mm"
+        );
+        assert_eq!(
+            m(in_range("axis.tilt_deg", 200.0, 0.0, 180.0)),
+            "must be from 0° to 180°, got 200°"
+        );
+        assert_eq!(
+            m(strictly_between(
+                "polar_deg",
+                90.0,
+                -90.0,
+                90.0,
+                "grazing light never enters"
+            )),
+            "must be above \u{2212}90° and below 90° (grazing light never enters), got 90°"
+        );
+        assert_eq!(
+            m(up_to_excluding("max_incidence_deg", 90.0, 0.0, 90.0)),
+            "must be from 0° up to but not including 90°, got 90°"
+        );
+        assert_eq!(up_to_excluding("a_deg", 0.0, 0.0, 90.0), Ok(0.0));
+        let huge = m(in_range("wavelength_nm", 1e308, 1.0, 1e6));
+        assert!(huge.ends_with("got 1e308 nm") && huge.chars().count() < 60, "{huge}");
+        assert_eq!(
+            m(finite("gap_mm", f64::NAN)),
+            "enter a number in millimetres, such as 2.5, not NaN"
+        );
+        assert_eq!(quoted(2.5e-9), "2.5e\u{2212}9");
+        assert_eq!(quoted(0.5), "0.5");
+    }
+
+    #[test]
+    fn units_come_from_the_field_name() {
+        assert_eq!(unit_after("elements[0].axis.tilt_deg"), "°");
+        assert_eq!(unit_after("band_nm[1]"), " nm");
+        assert_eq!(unit_after("wavelength_nm"), " nm");
+        assert_eq!(unit_after("outside_index"), "");
+        assert_eq!(unit_after("beam.polarization.jones[0][1]"), "");
+        assert_eq!(unit_after(""), "");
     }
 }

@@ -5,7 +5,7 @@
 //! a line and column, so the contract is read here by hand: each object is wrapped in a [`Fields`]
 //! that hands out its members by name and, when done, names any member nobody asked for.
 
-use crate::error::{Error, join_path};
+use crate::error::{Error, join_path, number_wanted};
 use serde_json::{Map, Value};
 
 /// A JSON object being read, with its path.
@@ -83,7 +83,7 @@ impl<'a> Fields<'a> {
     pub fn required_number(&mut self, name: &'static str) -> Result<f64, Error> {
         let path = self.path_of(name);
         self.number(name)?
-            .ok_or_else(|| Error::new(path, "is required (a number)"))
+            .ok_or_else(|| Error::new(&path, format!("is required: enter {}", number_wanted(&path))))
     }
 
     /// The member `name` as a string, if present.
@@ -126,7 +126,10 @@ impl<'a> Fields<'a> {
 pub fn as_number(path: &str, v: &Value) -> Result<f64, Error> {
     match v.as_f64() {
         Some(x) if v.is_number() && x.is_finite() => Ok(x),
-        _ => Err(Error::new(path, format!("must be a number, got {}", type_name(v)))),
+        _ => Err(Error::new(
+            path,
+            format!("enter {} (got {})", number_wanted(path), type_name(v)),
+        )),
     }
 }
 

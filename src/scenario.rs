@@ -29,7 +29,7 @@
 //! Plates that touch (`gap_mm` = 0) are separated by a vanishing film of the outside medium, so
 //! every face is a crystal–outside-medium face.
 
-use crate::error::{Error, in_range};
+use crate::error::{Error, above, in_range, quoted, strictly_between};
 use crate::interface::Losses;
 use crate::json_fields::{Fields, number_list, type_name};
 use crate::material::{self, Indices, Material};
@@ -299,21 +299,18 @@ fn ranged(f: &mut Fields, name: &'static str, default: Option<f64>, lo: f64, hi:
 
 fn parse_beam(v: &Value) -> Result<Beam, Error> {
     let mut f = Fields::new("beam", v)?;
-    let diameter_mm = ranged(&mut f, "diameter_mm", Some(1.0), 0.0, 1000.0)?;
-    if diameter_mm <= 0.0 {
-        return Err(Error::new("beam.diameter_mm", "must be greater than zero"));
-    }
+    let diameter_mm = above("beam.diameter_mm", f.number_or("diameter_mm", 1.0)?, 0.0, 1000.0)?;
     let (polar_deg, azimuth_deg) = match f.get("incidence") {
         None => (0.0, 0.0),
         Some(iv) => {
             let mut g = Fields::new("beam.incidence", iv)?;
-            let p = ranged(&mut g, "polar_deg", Some(0.0), -90.0, 90.0)?;
-            if p.abs() >= 90.0 {
-                return Err(Error::new(
-                    "beam.incidence.polar_deg",
-                    format!("must lie strictly between −90 and 90 (grazing light never enters), got {p}"),
-                ));
-            }
+            let p = strictly_between(
+                "beam.incidence.polar_deg",
+                g.number_or("polar_deg", 0.0)?,
+                -90.0,
+                90.0,
+                "grazing light never enters",
+            )?;
             let a = ranged(&mut g, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
             g.finish()?;
             (p, a)
@@ -399,14 +396,18 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             if s[0].is_nan() || s[0] <= 0.0 {
                 return Err(Error::new(
                     format!("{path}[0]"),
-                    format!("S0 must be greater than zero, got {}", s[0]),
+                    format!("must be above 0 (S0 is the total power), got {}", quoted(s[0])),
                 ));
             }
             let pol = (s[1] * s[1] + s[2] * s[2] + s[3] * s[3]).sqrt();
             if !pol.is_finite() || pol > s[0] * (1.0 + crate::precision::STOKES_PHYSICAL) {
                 return Err(Error::new(
                     &path,
-                    format!("is not physical: √(S1² + S2² + S3²) = {pol} exceeds S0 = {}", s[0]),
+                    format!(
+                        "is not physical: √(S1² + S2² + S3²) = {} exceeds S0 = {}",
+                        quoted(pol),
+                        quoted(s[0])
+                    ),
                 ));
             }
             Polarization::Stokes([s[0], s[1], s[2], s[3]])
@@ -524,13 +525,7 @@ fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
     // Mark the alternatives as known so that `finish` accepts whichever form was used.
     let _ = (f.get("material"), f.get("no"), f.get("ne"));
     let thickness_path = f.path_of("thickness_mm");
-    let thickness_mm = ranged(f, "thickness_mm", None, 0.0, 1e4)?;
-    if thickness_mm <= 0.0 {
-        return Err(Error::new(
-            thickness_path,
-            format!("must be greater than zero, got {thickness_mm}"),
-        ));
-    }
+    let thickness_mm = above(&thickness_path, f.required_number("thickness_mm")?, 0.0, 1e4)?;
     let axis_path = f.path_of("axis");
     let av = f
         .get("axis")

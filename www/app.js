@@ -16,18 +16,19 @@
 
 'use strict';
 
-import { h, numberInput, setAttr, setText, uid } from './dom.js';
+import { h, numberInput, setAttr, setText, stepNumber, uid } from './dom.js';
 import { readNumber, unitWord } from './format.js';
-import { nearestErrorSlot, toFieldError } from './field-error.js';
+import { fieldLabel, labelled, nearestErrorSlot, toFieldError } from './field-error.js';
 import { setupDesign } from './design-panel.js';
 import { setupExport, updatePrintSheet } from './export.js';
 import { renderResults, setupResults, toggleShowAll } from './results.js';
 import { describeViews, drawViews, redraw, setupViews } from './views.js';
+import { SetupHistory } from './history.js';
 
 const MAX_ELEMENTS = 64;
 const MAX_CRYSTALS = 12;
 const FRAGMENT_KEY = '#scenario=';
-const FRAGMENT_INTERVAL_MS = 250; // at most four address updates a second while dragging
+const DESIGN_KEY = 'design=';
 
 // Starting points besides the built-in demo (the same documents as examples/*.json).
 const PRESETS = {
@@ -118,9 +119,11 @@ function asInputText(v) {
 
 /** Fields whose path depends on where they sit (stack cards), renamed on reorder. */
 class Field {
-  constructor(key, { label, unit, slider, hint, kind = 'number', options, wide = false }) {
+  constructor(key, { label, spoken, unit, slider, hint, step, kind = 'number', options, wide = false }) {
     this.key = key; // path relative to its owner
     this.kind = kind;
+    // The spoken name (aria-label) where the visible label needs its group to be told apart.
+    this.spoken = spoken ?? label;
     const id = uid('f');
     this.input = null;
     this.range = null;
@@ -132,19 +135,22 @@ class Field {
       this.input = h('select', { id, 'aria-describedby': `${id}-err` });
       for (const [value, text] of options) this.input.appendChild(h('option', { value, text }));
       control.appendChild(this.input);
+      if (spoken) this.input.setAttribute('aria-label', spoken);
     } else {
-      this.input = numberInput(id, { 'aria-describedby': `${id}-err` });
+      this.input = numberInput(id, { 'aria-describedby': `${id}-err`, 'data-step': step ?? STEPS[unit ?? ''] ?? 0.01 });
       control.appendChild(this.input);
       if (unit) {
         this.unitEl = h('span', { className: 'unit', text: unit, 'aria-hidden': 'true' });
         control.appendChild(this.unitEl);
-        this.input.setAttribute('aria-label', `${label} (${unitWord(unit)})`);
+        this.input.setAttribute('aria-label', `${this.spoken} (${unitWord(unit)})`);
+      } else if (spoken) {
+        this.input.setAttribute('aria-label', spoken);
       }
     }
     this.row = h('div', { className: `field${slider ? ' has-slider' : ''}${wide ? ' wide' : ''}` }, this.labelEl, control);
     if (slider) {
       const rid = `${id}-range`;
-      this.rangeLabel = h('label', { for: rid, className: 'visually-hidden', text: `${label} slider` });
+      this.rangeLabel = h('label', { for: rid, className: 'visually-hidden', text: `${this.spoken} slider` });
       this.range = h('input', {
         id: rid,
         type: 'range',
@@ -164,10 +170,11 @@ class Field {
 
   setPath(path, labelPrefix) {
     setAttr(this.input, 'data-field', path);
+    setAttr(this.input, 'data-label', this.label);
     if (this.range) setAttr(this.range, 'data-field', path);
     setAttr(this.error, 'data-error-for', path);
     if (labelPrefix !== undefined) {
-      const full = `${this.label}, ${labelPrefix}`;
+      const full = `${this.spoken}, ${labelPrefix}`;
       if (this.unitEl) setAttr(this.input, 'aria-label', `${full} (${unitWord(this.unitEl.textContent)})`);
       else setAttr(this.input, 'aria-label', full);
       if (this.range) setAttr(this.range, 'aria-label', `${full}, slider`);
@@ -206,6 +213,8 @@ class Field {
 }
 
 const ANGLE = (min, max) => ({ min, max, step: 0.1 });
+// Base steps of the arrow keys in a number field, by unit (Shift ×10, Alt ×0.1; dom.js).
+const STEPS = { '°': 1, nm: 1, mm: 0.1, waves: 0.01, '': 0.01 };
 
 // Top-level controls, keyed by their contract path.
 const top = {};
@@ -220,7 +229,7 @@ function addTop(container, path, field) {
 function buildTopControls() {
   const light = document.getElementById('light-fields');
   addTop(light, 'wavelength_nm', new Field('wavelength_nm', { label: 'Wavelength', unit: 'nm' }));
-  addTop(light, 'outside_index', new Field('outside_index', { label: 'Outside index', unit: '', hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
+  addTop(light, 'outside_index', new Field('outside_index', { label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
   addTop(light, 'interface_losses', new Field('interface_losses', {
     label: 'Crystal faces',
     kind: 'select',
@@ -232,12 +241,13 @@ function buildTopControls() {
   inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam', hidden: true }));
   inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.incidence', hidden: true }));
   addTop(inc, 'beam.incidence.polar_deg', new Field('polar_deg', { label: 'Polar angle', unit: '°', slider: ANGLE(-89.9, 89.9) }));
-  addTop(inc, 'beam.incidence.azimuth_deg', new Field('azimuth_deg', { label: 'Azimuth', unit: '°', slider: ANGLE(-180, 180) }));
+  addTop(inc, 'beam.incidence.azimuth_deg', new Field('azimuth_deg', { label: 'Azimuth', spoken: 'Incidence azimuth', unit: '°', slider: ANGLE(-180, 180) }));
 
   const pol = document.getElementById('polarization-fields');
   pol.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization', hidden: true }));
   addTop(pol, 'beam.polarization.kind', new Field('kind', {
     label: 'Kind',
+    spoken: 'Kind of input polarization',
     kind: 'select',
     options: [
       ['linear', 'linear'],
@@ -249,7 +259,7 @@ function buildTopControls() {
     ],
   }));
   const azimuth = addTop(pol, 'beam.polarization.azimuth_deg', new Field('azimuth_deg', {
-    label: 'Azimuth', unit: '°', slider: ANGLE(-180, 180),
+    label: 'Azimuth', spoken: 'Polarization azimuth', unit: '°', slider: ANGLE(-180, 180),
   }));
   const ellipticity = addTop(pol, 'beam.polarization.ellipticity_deg', new Field('ellipticity_deg', {
     label: 'Ellipticity angle', unit: '°', slider: ANGLE(-45, 45), hint: 'χ with tan χ = ±b/a; positive is right-handed (S3 > 0).',
@@ -266,7 +276,7 @@ function buildTopControls() {
   jones.appendChild(jgrid);
   const jLabels = [['Re E1', 0, 0], ['Im E1', 0, 1], ['Re E2', 1, 0], ['Im E2', 1, 1]];
   for (const [label, a, b] of jLabels) {
-    addTop(jgrid, `beam.polarization.jones[${a}][${b}]`, new Field('', { label }));
+    addTop(jgrid, `beam.polarization.jones[${a}][${b}]`, new Field('', { label, step: 0.1 }));
   }
   jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[0]', hidden: true }));
   jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[1]', hidden: true }));
@@ -279,7 +289,7 @@ function buildTopControls() {
   const sgrid = h('div', { className: 'pair-grid' });
   stokes.appendChild(sgrid);
   for (let i = 0; i < 4; i += 1) {
-    addTop(sgrid, `beam.polarization.stokes[${i}]`, new Field('', { label: `S${i}` }));
+    addTop(sgrid, `beam.polarization.stokes[${i}]`, new Field('', { label: `S${i}`, step: 0.1 }));
   }
   stokes.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.stokes', hidden: true }));
   stokes.appendChild(h('p', { className: 'hint', text: 'Partially polarized light is allowed: √(S1² + S2² + S3²) ≤ S0. Scaled to S0 = 1.' }));
@@ -362,8 +372,8 @@ class Card {
     f.material = new Field('material', { label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
     f.material.row.insertBefore(this.materialNote, f.material.error);
-    f.no = new Field('no', { label: 'nₒ, ordinary index', unit: '' });
-    f.ne = new Field('ne', { label: 'nₑ, extraordinary index', unit: '' });
+    f.no = new Field('no', { label: 'nₒ, ordinary index', unit: '', step: 0.001 });
+    f.ne = new Field('ne', { label: 'nₑ, extraordinary index', unit: '', step: 0.001 });
     this.customBox = h('div', { className: 'subgroup custom-indices' }, f.no.row, f.ne.row);
     f.thickness = new Field('thickness_mm', { label: 'Thickness', unit: 'mm' });
     f.tilt = new Field('axis.tilt_deg', { label: 'Axis tilt', unit: '°', slider: ANGLE(0, 180), hint: 'Cut angle: optic axis from the plate normal +z.' });
@@ -574,6 +584,7 @@ function onStackClick(ev) {
   } else {
     return;
   }
+  pendingEdit = {};
   schedule();
 }
 
@@ -586,6 +597,7 @@ function onAddClick(ev) {
   first.focus();
   card.el.scrollIntoView({ block: 'nearest' });
   announce(`Element ${cards.length} added: ${KIND_NAMES[btn.dataset.add]}.`);
+  pendingEdit = {};
   schedule();
 }
 
@@ -684,21 +696,40 @@ function visibleErrorTarget(path) {
   return nearestErrorSlot(document, 'data-error-for', path, (el) => el.id === 'scenario-error');
 }
 
+// Names of fields that have no control of their own (an error about a whole group).
+const GROUP_LABELS = {
+  '': 'Set-up',
+  version: 'Version',
+  elements: 'Stack',
+  beam: 'Beam',
+  'beam.incidence': 'Incidence',
+  'beam.polarization': 'Input polarization',
+  'beam.polarization.jones': 'Jones vector',
+  'beam.polarization.jones[0]': 'Jones vector, E1',
+  'beam.polarization.jones[1]': 'Jones vector, E2',
+  'beam.polarization.stokes': 'Stokes vector',
+  'elements[].axis': 'Optic axis',
+};
+
+/** The field at `path` as the page labels it: "Element 2 · Thickness", "Wavelength". */
+function labelFor(path) {
+  const own = (p) => [...document.querySelectorAll('[data-field][data-label]')].find((el) => el.dataset.field === p)?.dataset.label;
+  return fieldLabel(path, own, GROUP_LABELS);
+}
+
 function showFieldError(err) {
   clearErrors();
   errorShown = true;
   const field = err.field;
   const target = visibleErrorTarget(field);
   const general = document.getElementById('scenario-error');
-  if (target) {
-    target.textContent = err.message;
-    target.hidden = false;
-  } else {
-    general.textContent = `${field ? `${field}: ` : ''}${err.message}`;
-    general.hidden = false;
-  }
+  const label = field ? labelFor(field) : '';
+  const shown = target ?? general;
+  shown.textContent = labelled(field, err.message, label);
+  shown.setAttribute('data-error-field', field);
+  shown.hidden = false;
   const stale = document.getElementById('stale-note');
-  stale.textContent = `Not updated: ${field ? `the input at ${field} needs attention` : 'the set-up needs attention'}. The views and results show the last set-up that traced.`;
+  stale.textContent = `Not updated: ${field ? `${label} needs attention` : 'the set-up needs attention'}. The views and results show the last set-up that traced.`;
   stale.hidden = false;
   let marked = [...document.querySelectorAll(`[data-field="${CSS.escape(field)}"]`)];
   if (marked.length === 0 && /(jones|stokes)(\[\d\])?$/.test(field)) {
@@ -718,6 +749,7 @@ function clearErrors() {
     }
   }
   for (const el of document.querySelectorAll('[aria-invalid="true"]')) el.removeAttribute('aria-invalid');
+  for (const el of document.querySelectorAll('[data-error-field]')) el.removeAttribute('data-error-field');
   const stale = document.getElementById('stale-note');
   stale.hidden = true;
   stale.textContent = '';
@@ -779,6 +811,8 @@ function traceText(text) {
 
 /** Traces what the controls say; on an error, shows it and keeps the last good state. */
 function commit() {
+  const edit = pendingEdit;
+  pendingEdit = null;
   const scenario = buildScenario();
   const text = JSON.stringify(scenario);
   if (text === lastAttempt) return;
@@ -789,15 +823,19 @@ function commit() {
     return;
   }
   accept(result, text, scenario);
-  scheduleFragment();
+  recordEdit(edit);
 }
 
-/** Loads a scenario object into the controls and traces it: the result, or throws {field, message}. */
-function applyScenario(obj) {
-  return loadScenario(obj, true);
+/**
+ * Loads a scenario object into the controls and traces it: the result, or throws {field, message}.
+ * `origin` ({kind, name}, see originText) makes it a new step of the history, which Undo takes
+ * back; without one (the set-up at start, a step of the history shown again) nothing is recorded.
+ */
+function applyScenario(obj, origin = { kind: 'script', name: '' }) {
+  return loadScenario(obj, origin);
 }
 
-function loadScenario(obj, updateAddress) {
+function loadScenario(obj, origin) {
   let text;
   try {
     text = JSON.stringify(obj);
@@ -827,28 +865,67 @@ function loadScenario(obj, updateAddress) {
   const built = JSON.stringify(scenario);
   lastAttempt = built;
   accept(result, built, scenario, true);
-  if (updateAddress) scheduleFragment();
+  if (origin) recordLoad(origin);
   return result;
 }
 
 // ---------------------------------------------------------------------------------------------
-// The URL fragment and the link.
+// The history of the set-up (history.js): Undo, Redo, Back, Forward, where it came from.
 
-let fragmentTimer = 0;
-let lastFragmentWrite = -Infinity;
+let setupHistory = null;
+let designPanel = null; // the design panel's hooks (setupDesign)
+let designText = ''; // the design panel's inputs as they travel in the link ('' when at their defaults)
+let editGroup = null; // the control whose run of edits is one step (a drag, typing), until its change event
+let pendingEdit = null; // what the next commit records: a control's path or a structural action
 
-function linkFor(text) {
-  return `${location.origin}${location.pathname}${location.search}${FRAGMENT_KEY}${encodeURIComponent(text)}`;
+/** Where a set-up came from, in words: "the preset “…”", "the file x.json", … plus ", edited". */
+function originText(origin, edited = false) {
+  const name = origin && origin.name ? origin.name : '';
+  const words = {
+    demo: 'the demo',
+    preset: `the preset “${name}”`,
+    file: `the file ${name}`,
+    link: 'a shared link',
+    design: `the designed part${name ? ` (${name})` : ''}`,
+    script: 'a set-up applied by a script',
+  };
+  const base = words[origin?.kind] ?? 'the set-up';
+  return edited ? `${base}, edited` : base;
 }
 
-function writeFragment() {
-  fragmentTimer = 0;
-  lastFragmentWrite = performance.now();
-  if (lastGoodText === null) return;
-  const hash = FRAGMENT_KEY + encodeURIComponent(lastGoodText);
-  if (location.hash !== hash) {
-    history.replaceState(history.state, '', `${location.pathname}${location.search}${hash}`);
-  }
+function currentEntry() {
+  return setupHistory && setupHistory.current;
+}
+
+/** The fragment of an entry: `#scenario=<text>`, and `&design=<request>` when the panel was changed. */
+function entryHref(entry) {
+  const design = entry.design ? `&${DESIGN_KEY}${encodeURIComponent(entry.design)}` : '';
+  return `${FRAGMENT_KEY}${encodeURIComponent(entry.text)}${design}`;
+}
+
+function showOrigin() {
+  const e = currentEntry();
+  const el = document.getElementById('setup-origin');
+  if (!el || !e) return;
+  setText(el, `Now showing ${originText(e.origin, e.edited)}.`);
+  setAttr(el, 'data-origin', e.origin?.kind ?? '');
+  setAttr(el, 'data-edited', e.edited ? 'true' : 'false');
+}
+
+function historyChanged() {
+  const undo = document.getElementById('undo');
+  const redo = document.getElementById('redo');
+  if (undo) undo.disabled = !setupHistory.canUndo;
+  if (redo) redo.disabled = !setupHistory.canRedo;
+  showOrigin();
+}
+
+function historyStatus(text) {
+  const el = document.getElementById('history-status');
+  if (el) setText(el, text);
+}
+
+function clearFragmentError() {
   const fe = document.getElementById('fragment-error');
   if (!fe.hidden) {
     fe.hidden = true;
@@ -856,35 +933,158 @@ function writeFragment() {
   }
 }
 
-/** Writes the fragment now, or (while edits come fast) once the interval has passed. */
-function scheduleFragment() {
-  if (fragmentTimer) return;
-  const wait = FRAGMENT_INTERVAL_MS - (performance.now() - lastFragmentWrite);
-  if (wait <= 0) writeFragment();
-  else fragmentTimer = setTimeout(writeFragment, wait);
-}
-
-function flushFragment() {
-  if (fragmentTimer) {
-    clearTimeout(fragmentTimer);
-    writeFragment();
+/**
+ * After an edit traced: a new step, or the same step when it continues a run of edits to one
+ * control (`key`, its path; an object for a structural change, which is always a step).
+ */
+function recordEdit(key) {
+  const cur = currentEntry();
+  clearFragmentError();
+  if (!cur || cur.text === lastGoodText) return;
+  const entry = { text: lastGoodText, origin: cur.origin, edited: true, design: designText };
+  if (key && typeof key === 'string' && key === editGroup) {
+    setupHistory.replace(entry);
+  } else {
+    setupHistory.push(entry);
+    editGroup = typeof key === 'string' ? key : null;
+    historyStatus('');
   }
 }
 
-/** Reads the fragment: null when there is none, else {text} or {error}. */
+/** After a load (preset, file, link, designed part): a step of its own, and what it replaced. */
+function recordLoad(origin) {
+  const cur = currentEntry();
+  editGroup = null;
+  pendingEdit = null;
+  clearFragmentError();
+  const entry = { text: lastGoodText, origin, edited: false, design: designText };
+  if (!cur) {
+    setupHistory.start(entry);
+    return;
+  }
+  setupHistory.push(entry);
+  historyStatus(`Loaded ${originText(origin)}; it replaced ${originText(cur.origin, cur.edited)}. Undo brings that back.`);
+}
+
+/** Shows an entry of the history (Back, Forward, Undo, Redo) without recording anything. */
+function restoreEntry(entry) {
+  editGroup = null;
+  pendingEdit = null;
+  if (entry.text !== lastGoodText) {
+    let obj;
+    try {
+      obj = JSON.parse(entry.text);
+      loadScenario(obj, null);
+    } catch (e) {
+      const fe = toFieldError(e);
+      if (!fe && !(e instanceof SyntaxError)) throw e;
+      historyStatus(`That step could not be shown again: ${fe ? fe.message : e.message}`);
+      return;
+    }
+  }
+  historyStatus(`Showing ${originText(entry.origin, entry.edited)}, step ${entry.index + 1}.`);
+  if ((entry.design ?? '') !== designText) setupHistory.replace({ ...entry, design: designText }, { now: true });
+}
+
+function undo() {
+  flushPendingEdit();
+  if (!setupHistory.undo()) historyStatus('Nothing to undo.');
+}
+
+function redo() {
+  flushPendingEdit();
+  if (!setupHistory.redo()) historyStatus('Nothing to redo.');
+}
+
+/** An edit still waiting for its animation frame is committed first, so that Undo takes it back. */
+function flushPendingEdit() {
+  if (framePending) commit();
+}
+
+/**
+ * Ctrl/Cmd+Z undoes, Ctrl/Cmd+Shift+Z and Ctrl+Y redo, everywhere but in a text field one can
+ * type in: there the keys keep their usual meaning (the field's own text undo), and the Undo and
+ * Redo buttons serve the set-up.
+ */
+function onHistoryKey(ev) {
+  if (!(ev.ctrlKey || ev.metaKey) || ev.altKey) return;
+  const key = ev.key.toLowerCase();
+  const isUndo = key === 'z' && !ev.shiftKey;
+  const isRedo = (key === 'z' && ev.shiftKey) || (key === 'y' && ev.ctrlKey && !ev.shiftKey);
+  if (!isUndo && !isRedo) return;
+  const t = ev.target;
+  const typing = t instanceof HTMLElement && (t.isContentEditable || t.tagName === 'TEXTAREA'
+    || (t.tagName === 'INPUT' && !t.readOnly && !['range', 'checkbox', 'radio', 'button', 'submit', 'file', 'color'].includes(t.type)));
+  if (typing) return;
+  ev.preventDefault();
+  if (isUndo) undo();
+  else redo();
+}
+
+/** The arrow keys in a number field step its value (dom.js); the edit then goes as typed. */
+function onStepKey(ev) {
+  stepNumber(ev);
+}
+
+/** The design panel's inputs changed: the link carries them (no new step: they are not the set-up). */
+function onDesignInputs(text) {
+  designText = text;
+  const cur = currentEntry();
+  if (cur && (cur.design ?? '') !== text) setupHistory.replace({ ...cur, design: text });
+}
+
+// ---------------------------------------------------------------------------------------------
+// The URL fragment and the link.
+
+function flushFragment() {
+  setupHistory.flush();
+}
+
+/**
+ * Reads the fragment: null when there is none, else {text, design} or {error}; `design` is the
+ * design panel's part (`&design=`), as {text} or {error}, or null.
+ */
 function readFragment() {
   const hash = location.hash;
   if (!hash.startsWith(FRAGMENT_KEY)) return null;
+  const [scenarioPart, ...rest] = hash.slice(FRAGMENT_KEY.length).split('&');
+  let design = null;
+  const designPart = rest.find((p) => p.startsWith(DESIGN_KEY));
+  if (designPart !== undefined) {
+    try {
+      design = { text: decodeURIComponent(designPart.slice(DESIGN_KEY.length)) };
+    } catch {
+      design = { error: 'its text is not valid URI encoding' };
+    }
+  }
   try {
-    return { text: decodeURIComponent(hash.slice(FRAGMENT_KEY.length)) };
+    return { text: decodeURIComponent(scenarioPart), design };
   } catch {
-    return { error: 'its text is not valid URI encoding (the link may have been cut short or mangled)' };
+    return { error: 'its text is not valid URI encoding (the link may have been cut short or mangled)', design };
   }
 }
 
-/** `field: message`, naming the whole document when the core gives no field. */
+/** The design part of a link into the design panel: a bad field is named there, the rest is kept. */
+function loadDesignPart(design) {
+  if (!design || !designPanel) return;
+  if (design.error) {
+    designPanel.designLinkError({ field: '', message: `The design part of this link could not be read: ${design.error}.` });
+    return;
+  }
+  let obj;
+  try {
+    obj = JSON.parse(design.text);
+  } catch (e) {
+    designPanel.designLinkError({ field: '', message: `The design part of this link is not valid JSON (${e.message}); the design fields were kept.` });
+    return;
+  }
+  designPanel.setDesignInputs(obj);
+}
+
+/** `Label (path): message`, the label as the page shows it; `document` when the core names no field. */
 function fieldText(fe) {
-  return `${fe.field || 'document'}: ${fe.message}`;
+  if (!fe.field) return `document: ${fe.message}`;
+  return `${labelFor(fe.field)} (${fe.field}): ${fe.message}`;
 }
 
 /** On first load nothing is there to keep (`kept` false): the demo is shown instead. */
@@ -895,8 +1095,8 @@ function showFragmentError(text, kept = false) {
   el.hidden = false;
 }
 
-function loadDemo() {
-  loadScenario(JSON.parse(core.demoScenario()), false);
+function loadDemo(origin = null) {
+  loadScenario(JSON.parse(core.demoScenario()), origin);
 }
 
 /**
@@ -920,25 +1120,39 @@ function tryScenarioText(text) {
 /**
  * Loads the scenario of the fragment. On first load (`previousHash` undefined) a bad fragment
  * shows its message and the demo; the bad link stays in the address bar until the user edits.
- * On a later change (`previousHash` is the hash before it) a bad fragment keeps the set-up on
- * screen and puts the address back: to `previousHash` when that was the set-up's own fragment or
- * none, else to the set-up's fragment.
+ * On a later change (`previousHash` is the hash before it) a good fragment is a step of the
+ * history (the browser's entry for it is adopted), and a bad one keeps the set-up on screen and
+ * puts the address back to the set-up's own fragment.
  */
 function loadFromLocation(previousHash) {
-  const kept = previousHash !== undefined && lastGoodText !== null;
+  const first = previousHash === undefined;
+  const kept = !first && lastGoodText !== null;
   const frag = readFragment();
   if (frag === null) {
-    loadDemo();
+    if (first) {
+      loadDemo();
+      setupHistory.start({ text: lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: designText });
+    } else {
+      // The fragment was removed by hand: the set-up stays, and the address says it again.
+      setupHistory.adopt({ ...currentEntry() });
+    }
     return;
   }
   let problem = frag.error;
   if (!problem) {
     const tried = tryScenarioText(frag.text);
     if (tried.obj !== undefined) {
-      const el = document.getElementById('fragment-error');
-      el.hidden = true;
-      el.textContent = '';
-      loadScenario(tried.obj, false);
+      clearFragmentError();
+      const replaced = currentEntry();
+      loadScenario(tried.obj, null);
+      loadDesignPart(frag.design);
+      const entry = { text: lastGoodText, origin: { kind: 'link', name: '' }, edited: false, design: designText };
+      if (first) {
+        setupHistory.start(entry);
+      } else {
+        setupHistory.adopt(entry);
+        historyStatus(`Loaded ${originText(entry.origin)}; it replaced ${originText(replaced.origin, replaced.edited)}. Undo brings that back.`);
+      }
       return;
     }
     problem = fieldText(tried.error);
@@ -946,14 +1160,12 @@ function loadFromLocation(previousHash) {
   if (!kept) {
     showFragmentError(problem);
     loadDemo();
+    loadDesignPart(frag.design);
+    setupHistory.start({ text: lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: designText });
     return;
   }
-  // A fragment write still pending from an edit would clear the message that follows.
-  flushFragment();
   showFragmentError(problem, true);
-  const good = FRAGMENT_KEY + encodeURIComponent(lastGoodText);
-  const back = previousHash === '' || previousHash === good ? previousHash : good;
-  history.replaceState(history.state, '', `${location.pathname}${location.search}${back}`);
+  setupHistory.adopt({ ...currentEntry() });
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -998,7 +1210,7 @@ async function openScenarioFile(file) {
     showFileError(file.name, fieldText(tried.error));
     return;
   }
-  loadScenario(tried.obj, true);
+  loadScenario(tried.obj, { kind: 'file', name: file.name });
   flushFragment();
   announce(`Opened ${file.name}.`);
 }
@@ -1017,7 +1229,7 @@ function setupFileOpen() {
 async function copyLink() {
   flushFragment();
   if (lastGoodText === null) return;
-  const url = linkFor(lastGoodText);
+  const url = `${location.origin}${location.pathname}${location.search}${entryHref(currentEntry())}`;
   if (location.href !== url) history.replaceState(history.state, '', url);
   const status = document.getElementById('copy-status');
   const field = document.getElementById('link-text');
@@ -1056,6 +1268,10 @@ async function copyLink() {
 function onControlEvent(ev) {
   const t = ev.target;
   if (!(t instanceof HTMLElement) || !t.dataset.field) return;
+  // A run of input events on one control is one step of the history; its change event (a
+  // slider let go, a field left, a choice made) ends the run.
+  pendingEdit = pendingEdit === null || pendingEdit === t.dataset.field ? t.dataset.field : {};
+  if (ev.type === 'change' && editGroup === t.dataset.field) editGroup = null;
   if (t.type === 'range' && t.num) {
     t.num.value = t.value;
   } else if (t.classList.contains('num') && t.range) {
@@ -1108,15 +1324,29 @@ async function main() {
   document.querySelector('.add-row').addEventListener('click', onAddClick);
   document.getElementById('copy-link').addEventListener('click', () => { copyLink(); });
   document.getElementById('load-preset').addEventListener('click', () => {
-    const key = document.getElementById('preset').value;
+    const select = document.getElementById('preset');
+    const key = select.value;
     const doc = key === 'demo' ? JSON.parse(core.demoScenario()) : structuredClone(PRESETS[key]);
-    applyScenario(doc);
+    const name = select.selectedOptions[0]?.textContent ?? key;
+    applyScenario(doc, key === 'demo' ? { kind: 'demo', name: '' } : { kind: 'preset', name });
     flushFragment();
   });
   window.addEventListener('hashchange', (ev) => {
-    if (lastGoodText !== null && location.hash === FRAGMENT_KEY + encodeURIComponent(lastGoodText)) return;
+    // Back and Forward through the page's own steps are handled by the history (popstate).
+    if (SetupHistory.owns(history.state)) return;
+    const frag = readFragment();
+    if (frag && frag.text === lastGoodText) {
+      if (frag.design && frag.design.text !== designText) loadDesignPart(frag.design);
+      setupHistory.adopt({ ...currentEntry(), design: designText });
+      return;
+    }
     loadFromLocation(new URL(ev.oldURL).hash);
   });
+  setupHistory = new SetupHistory({ href: entryHref, restore: restoreEntry, changed: historyChanged });
+  document.getElementById('undo').addEventListener('click', undo);
+  document.getElementById('redo').addEventListener('click', redo);
+  document.addEventListener('keydown', onHistoryKey);
+  document.addEventListener('keydown', onStepKey);
   setupFileOpen();
 
   document.getElementById('results').addEventListener('click', (ev) => {
@@ -1132,16 +1362,16 @@ async function main() {
     session, darkQuery, viewList, materialName, current: () => ({ result: lastResult, scenario: lastScenario }),
   });
   setupExport({ session, views });
+  designPanel = setupDesign({ core, materialList, materialName, darkQuery, applyScenario, flushFragment, onDesignInputs });
   loadFromLocation();
   loading.remove();
-  const panel = setupDesign({ core, materialList, materialName, darkQuery, applyScenario, flushFragment });
   document.body.classList.add('ready');
   window.doublespar = {
     session,
     redraw,
     applyScenario,
-    designRequest: panel.designRequest,
-    designShown: panel.designShown,
+    designRequest: designPanel.designRequest,
+    designShown: designPanel.designShown,
   };
 }
 

@@ -9,12 +9,16 @@
 // Contract: one export, setupDesign(pageLinks), called once by app.js after the core has
 // loaded. It receives everything it uses of the page as explicit parameters (see there) and
 // returns the test hooks designRequest() (the request the fields say) and designShown() (a copy
-// of the design on screen, or null). section#design[data-state] is idle, solving, running, done,
+// of the design on screen, or null), and setDesignInputs(request) and designLinkError(err) for
+// the design part of a shared link (the fields' request travels in the link once it differs
+// from the panel's defaults: pageLinks.onDesignInputs(text)). The solved design is also the
+// print's order sheet (export.js, updateOrderSheet). section#design[data-state] is idle, solving, running, done,
 // error or cancelled; #design-use loads the shown part into the set-up (page.applyScenario).
 
 import { h, numberInput, setText, uid } from './dom.js';
 import { fixed, fmt, minus, readNumber, significant, unitWord } from './format.js';
-import { nearestErrorSlot, toFieldError } from './field-error.js';
+import { fieldLabel, labelled, nearestErrorSlot, toFieldError } from './field-error.js';
+import { updateOrderSheet } from './export.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -48,7 +52,7 @@ const design = {
 
 /** A design-request control: an input or select with its label, unit, hint and error slot. */
 class DesignField {
-  constructor(path, { label, spoken, unit, kind = 'number', options, value, placeholder, hint }) {
+  constructor(path, { label, spoken, unit, kind = 'number', options, value, placeholder, hint, step }) {
     this.path = path;
     this.kind = kind;
     this.label = label;
@@ -70,7 +74,8 @@ class DesignField {
       control.appendChild(this.input);
       if (spoken) this.input.setAttribute('aria-label', spoken);
     } else {
-      this.input = numberInput(id, { placeholder, 'data-design-field': path, 'aria-describedby': describedBy });
+      const unitStep = { '°': 1, nm: 1, mm: 0.1, waves: 0.01 }[unit ?? ''] ?? 0.1;
+      this.input = numberInput(id, { placeholder, 'data-design-field': path, 'aria-describedby': describedBy, 'data-step': step ?? unitStep });
       control.appendChild(this.input);
       // Every number field has a unit column, so that the fields line up.
       control.appendChild(h('span', { className: 'unit', text: unit ?? '', 'aria-hidden': 'true' }));
@@ -80,6 +85,7 @@ class DesignField {
       else if (spoken) this.input.setAttribute('aria-label', spoken);
     }
     if (value !== undefined) this.input.value = String(value);
+    this.spoken = spoken ?? label;
     this.row = h('div', { className: 'field' }, this.labelEl, control, this.hintEl, this.error);
   }
 
@@ -131,11 +137,11 @@ function mediumFields(prefix, fallback, whose) {
   const options = page.materialList.map((m) => [m.key, m.name]);
   options.push(['custom', 'custom indices']);
   const of = whose ? ` of the ${whose}` : '';
-  const material = dfield(`${prefix}material`, { label: 'Material', spoken: whose ? `Material${of}` : undefined, kind: 'select', options });
+  const material = dfield(`${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
   const key = page.materialList.some((m) => m.key === fallback) ? fallback : (page.materialList[0]?.key ?? 'custom');
   material.input.value = key;
-  const no = dfield(`${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${of}`, value: 1.6584 });
-  const ne = dfield(`${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${of}`, value: 1.4864 });
+  const no = dfield(`${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
+  const ne = dfield(`${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
   return { material, custom, nodes: [material.row, custom] };
 }
@@ -148,21 +154,22 @@ function buildDesignFields() {
     kind: 'select',
     options: [['zero', 'zero order'], ['multiple', 'multiple order'], ['compound', 'compound zero order']],
   });
-  const orderNumber = dfield('order_number', { label: 'Order number m', value: 1, hint: 'm whole waves more than the target.' });
+  const orderNumber = dfield('order_number', { label: 'Order number m', value: 1, step: 1, hint: 'm whole waves more than the target.' });
   const base = dfield('base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
 
   const medium = mediumFields('', 'calcite');
-  const wl = dfield('wavelength_nm', { label: 'Wavelength', unit: 'nm', value: 632.8 });
+  const wl = dfield('wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
   const band = designGroup('Band (optional)', 'band_nm', [
     dfield('band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
     dfield('band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
   ], { pair: true });
   const separation = dfield('separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
   const beam = dfield('beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
-  const cut = dfield('cut_tilt_deg', { label: 'Cut tilt', unit: '°', placeholder: 'auto' });
+  const cut = dfield('cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
   const aperture = dfield('aperture_factor', {
     label: 'Aperture factor',
     value: 2,
+    step: 0.1,
     hint: 'Clear aperture = separation + factor × beam diameter.',
   });
   const tolerances = designGroup('Tolerances, one standard deviation each', 'tolerances', [
@@ -174,11 +181,12 @@ function buildDesignFields() {
   const samples = dfield('samples', {
     label: 'Monte Carlo samples',
     value: DESIGN_DEFAULT_SAMPLES,
+    step: 1000,
     hint: 'At most 1 000 000; 0 skips the tolerance run.',
   });
-  const seed = dfield('seed', { label: 'Random seed', value: 1 });
+  const seed = dfield('seed', { label: 'Random seed', value: 1, step: 1 });
 
-  const retardance = dfield('retardance_waves', { label: 'Retardance', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
+  const retardance = dfield('retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
   const maxInc = dfield('max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
   const accErr = dfield('acceptance_error_waves', {
     label: 'Acceptance error',
@@ -202,7 +210,7 @@ function buildDesignFields() {
     kind: 'select',
     options: [['half-wave', 'half-wave plate at 45°'], ['rotator', 'rotator']],
   });
-  const rotator = dfield('rotator_deg', { label: 'Rotation', unit: '°', value: 90 });
+  const rotator = dfield('rotator_deg', { label: 'Rotation', spoken: 'Rotation between the displacers', unit: '°', value: 90 });
   const lengthMis = dfield('length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
   const tiltMis = dfield('tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
 
@@ -332,12 +340,35 @@ function designErrorTarget(path) {
   return nearestErrorSlot(document.getElementById('design'), 'data-design-error-for', path);
 }
 
+// Names of request fields that have no control of their own (an error about a whole group).
+const DESIGN_GROUPS = {
+  '': 'Design request',
+  band_nm: 'Band',
+  tolerances: 'Tolerances',
+  first: 'First plate',
+  second: 'Second plate',
+  wavelengths_nm: 'Design wavelengths',
+  kind: 'Part',
+};
+
+/** A request field as the panel labels it ("Band to", "Material of the first plate"). */
+function designLabel(path) {
+  return fieldLabel(path, (p) => dfields[p]?.spoken, DESIGN_GROUPS);
+}
+
 function showDesignError(err) {
   clearDesignErrors();
+  addDesignError(err);
+}
+
+/** Shows one more message beside its field (several may show at once: a link's bad fields). */
+function addDesignError(err) {
   designErrorShown = true;
   const target = designErrorTarget(err.field);
   if (target) {
-    target.textContent = target.id === 'design-error' && err.field ? `${err.field}: ${err.message}` : err.message;
+    const text = labelled(err.field, err.message, designLabel(err.field));
+    target.textContent = target.hidden || !target.textContent ? text : `${target.textContent} ${text}`;
+    target.setAttribute('data-error-field', err.field);
     target.hidden = false;
   }
   const panel = document.getElementById('design');
@@ -892,6 +923,7 @@ function renderDesign() {
     rowBox.replaceChildren();
     design.plots = [];
     document.getElementById('design-empty').hidden = false;
+    updateOrderSheet(null);
     return;
   }
   document.getElementById('design-empty').hidden = true;
@@ -916,6 +948,75 @@ function renderDesign() {
   }
   document.getElementById('design-use').disabled = false;
   updateDesignStale();
+  const kindName = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
+  updateOrderSheet({ kindName, request: s.request, design: d, complete: s.complete }, { materialList: page.materialList, materialName: designMaterialName });
+}
+
+// --- the design part of a shared link --------------------------------------------------------
+
+let defaultRequestText = ''; // the request of the fields as the panel starts
+
+/** Tells the page the request the fields say, for the link ('' while it is the default one). */
+function notifyDesignInputs() {
+  if (!page.onDesignInputs) return;
+  const text = JSON.stringify(designRequest());
+  page.onDesignInputs(text === defaultRequestText ? '' : text);
+}
+
+/** A request's fields by path (`tolerances.tilt_deg`, `band_nm[1]`), leaves only. */
+function requestLeaves(obj, prefix = '', out = []) {
+  for (const [k, v] of Object.entries(obj)) {
+    const path = prefix ? `${prefix}.${k}` : k;
+    if (Array.isArray(v)) v.forEach((x, i) => out.push([`${path}[${i}]`, x]));
+    else if (v && typeof v === 'object') requestLeaves(v, path, out);
+    else out.push([path, v]);
+  }
+  return out;
+}
+
+/**
+ * Fills the fields from a design request (the design part of a link). A field the panel does not
+ * have, or a value it cannot hold, is named beside its field (or in the panel's general slot)
+ * and left out; every other field is filled.
+ */
+function setDesignInputs(req) {
+  clearDesignErrors();
+  if (!req || typeof req !== 'object' || Array.isArray(req)) {
+    showDesignError({ field: '', message: 'The design part of this link is not a JSON object; the design fields were kept.' });
+    return;
+  }
+  const leaves = requestLeaves(req);
+  const problems = [];
+  // The kind first: it decides which fields show; custom indices choose the custom material.
+  leaves.sort(([a], [b]) => (b === 'kind') - (a === 'kind'));
+  for (const [path, v] of leaves) {
+    const f = dfields[path];
+    if (!f) {
+      problems.push({ field: path, message: 'the design panel has no such field; it was left out of the link\'s request' });
+      continue;
+    }
+    if (f.kind === 'select') {
+      if (![...f.input.options].some((o) => o.value === String(v))) {
+        problems.push({ field: path, message: `“${String(v).slice(0, 40)}” is not one of its choices; it was left as it was` });
+        continue;
+      }
+      f.input.value = String(v);
+      f.touched = true;
+      if (path === 'kind') layoutDesignFields();
+    } else if (typeof v === 'number' && Number.isFinite(v)) {
+      f.input.value = String(v);
+      const m = /^(.*?)(no|ne)$/.exec(path);
+      if (m && dfields[`${m[1]}material`] && !leaves.some(([p]) => p === `${m[1]}material`)) {
+        dfields[`${m[1]}material`].input.value = 'custom';
+        dfields[`${m[1]}material`].touched = true;
+      }
+    } else {
+      problems.push({ field: path, message: 'the link gives no number here; the field was left as it was' });
+    }
+  }
+  layoutDesignFields();
+  for (const p of problems) addDesignError(p);
+  notifyDesignInputs();
 }
 
 // --- the worker ----------------------------------------------------------------------------
@@ -1041,7 +1142,44 @@ function onDesignMessage(msg) {
   }
 }
 
+// What an empty band or pair of wavelengths means, by kind (see dhints), for a one-sided one.
+const BAND_DEFAULT_WORDS = {
+  displacer: 'the design wavelength alone',
+  waveplate: '±20 % around the design wavelength',
+  achromat: '0.8 × λ₁ to 1.2 × λ₂',
+};
+
+/**
+ * A pair of fields (a band, two design wavelengths) with one end given and the other empty
+ * explains itself: an error on the empty end saying what to do, or null.
+ */
+function oneSidedPair() {
+  const kind = dfields.kind.value;
+  const pairs = kind === 'achromat' ? ['wavelengths_nm', 'band_nm'] : ['band_nm'];
+  for (const name of pairs) {
+    if (!(dlayout[kind] ?? []).some((n) => n.contains(dfields[`${name}[0]`].row))) continue;
+    const blank = [0, 1].map((i) => dfields[`${name}[${i}]`].blank);
+    if (blank[0] === blank[1]) continue;
+    const empty = blank[0] ? 0 : 1;
+    const end = empty === 0 ? 'lower' : 'upper';
+    const message = name === 'band_nm'
+      ? `give the ${end} end of the band too, or leave both ends empty for ${BAND_DEFAULT_WORDS[kind] ?? 'the default'}`
+      : 'give both design wavelengths';
+    return { field: `${name}[${empty}]`, message };
+  }
+  return null;
+}
+
 function solveDesign() {
+  const oneSided = oneSidedPair();
+  if (oneSided) {
+    if (design.active) cancelDesign();
+    showDesignError(oneSided);
+    setDesignState('error');
+    designStatus(`Not solved: ${designLabel(oneSided.field)} is empty.`);
+    updateDesignStale(true);
+    return;
+  }
   const request = designRequest();
   if (design.active) stopDesignWorker(); // a new request replaces the one under way
   if (!design.worker) startDesignWorker();
@@ -1078,7 +1216,8 @@ function useDesign() {
   const s = design.shown;
   if (!s) return;
   try {
-    page.applyScenario(structuredClone(s.design.scenario));
+    const kindName = DESIGN_KINDS.find(([k]) => k === s.design.kind)?.[1] ?? s.design.kind;
+    page.applyScenario(structuredClone(s.design.scenario), { kind: 'design', name: kindName });
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
@@ -1108,9 +1247,11 @@ function updateDesignStale(failed = false) {
  * Builds the panel in section#design and starts its worker. `pageLinks` is what the panel uses
  * of the page: `core` (the bindings: drawSeries, drawHistogram), `materialList`
  * (core.materials()), `materialName(key)`, `darkQuery` (the prefers-color-scheme: dark query),
- * `applyScenario(obj)` (loads a scenario into the set-up; throws {field, message}) and
- * `flushFragment()` (writes the address now). Returns the test hooks `designRequest()` and
- * `designShown()`.
+ * `applyScenario(obj, origin)` (loads a scenario into the set-up as a step of its history;
+ * throws {field, message}), `flushFragment()` (writes the address now) and
+ * `onDesignInputs(text)` (the fields' request as JSON for the link, '' while it is the default).
+ * Returns the test hooks `designRequest()` and `designShown()`, and `setDesignInputs(request)`
+ * and `designLinkError(err)` for the design part of a link.
  */
 export function setupDesign(pageLinks) {
   page = pageLinks;
@@ -1127,6 +1268,7 @@ export function setupDesign(pageLinks) {
     if (dfields[f]) dfields[f].touched = true;
     if (ev.target.tagName === 'SELECT') layoutDesignFields();
     if (!designErrorShown) updateDesignStale();
+    notifyDesignInputs();
   };
   form.addEventListener('input', onEdit);
   form.addEventListener('change', onEdit);
@@ -1144,7 +1286,10 @@ export function setupDesign(pageLinks) {
   });
   page.darkQuery.addEventListener('change', () => redrawDesign());
   startDesignWorker();
+  defaultRequestText = JSON.stringify(designRequest());
   return {
+    setDesignInputs,
+    designLinkError: showDesignError,
     designRequest,
     designShown: () => (design.shown ? structuredClone({ request: design.shown.request, design: design.shown.design, complete: design.shown.complete }) : null),
   };

@@ -198,3 +198,114 @@ export function updatePrintSheet(scenario, kindNames) {
   }
   box.replaceChildren(top, h('h3', { text: 'Stack' }), list);
 }
+
+// The order sheet: the solved design (from the design panel) as one printed page of its own,
+// what a shop needs to make the part. Shown only when printing, and only once a design is solved.
+
+const SAFETY_LINE = 'Design guidance; defers to local laser-safety regulations and licensed practice.';
+
+/** A number for the sheet: `n` significant digits, no trailing zeros, the typographic minus. */
+function sheetNumber(v, n = 4) {
+  if (typeof v !== 'number' || !Number.isFinite(v)) return '—';
+  const a = Math.abs(v);
+  const s = a !== 0 && (a >= 1e6 || a < 1e-4) ? v.toExponential(n - 1).replace(/\.?0+e/, 'e') : String(Number(v.toPrecision(n)));
+  return minus(s);
+}
+
+const mm = (v, n = 4) => `${sheetNumber(v, n)} mm`;
+const deg = (v, n = 4) => `${sheetNumber(v, n)}°`;
+const nm = (v) => `${sheetNumber(v, 5)} nm`;
+
+/** "from … to … nm" over a curve's first and last points, or the one wavelength it holds. */
+function bandText(curve, wavelength) {
+  if (Array.isArray(curve) && curve.length > 1) {
+    const lo = curve[0][0];
+    const hi = curve[curve.length - 1][0];
+    if (hi > lo) return `${nm(lo)} to ${nm(hi)}`;
+  }
+  return `${nm(wavelength)} only (the request gave no band: the part is specified at this wavelength alone)`;
+}
+
+/** What the sheet says of a material: its name and the source of its data. */
+function materialRows(key, label, links) {
+  const m = links.materialList.find((x) => x.key === key);
+  if (!m) return [[label, `${links.materialName(key)}`], ['Data source', 'custom indices given in the request (no dispersion, no source)']];
+  const name = m.name.toLowerCase().includes(m.key) ? m.name : `${m.name} (${m.key})`;
+  return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm`], ['Data source', m.citation]];
+}
+
+/** The sheet's rows [term, text] for a solved design of each kind. */
+function orderRows(shown, links) {
+  const { design: d, request: r, kindName } = shown;
+  const part = `${kindName.charAt(0).toUpperCase()}${kindName.slice(1)}${shown.complete ? '' : ' (nominal design; the tolerance run did not finish)'}`;
+  const rows = [['Part', part]];
+  if (d.kind === 'displacer') {
+    const t = d.tolerances ?? {};
+    rows.push(...materialRows(d.material, 'Material', links));
+    rows.push(['Dimensions', `length ${mm(d.length_mm)} ± ${mm(t.thickness_mm, 3)} along the beam (the tolerance as one standard deviation)`]);
+    rows.push(['Cut', `optic axis at ${deg(d.cut_tilt_deg)} ± ${deg(t.tilt_deg, 3)} to the face normal, in the plane that holds the displacement (e-ray toward ${d.displacement_direction})`]);
+    rows.push(['Clear aperture', `at least ${mm(d.clear_aperture_mm)} (round), both faces`]);
+    rows.push(['Wavelength band', bandText(d.band?.curve, d.wavelength_nm)]);
+    rows.push(['Performance', `o/e separation ${mm(d.separation_mm)} at ${nm(d.wavelength_nm)}, e walk-off ${deg(d.walkoff_deg)}`]);
+  } else if (d.kind === 'waveplate' || d.kind === 'achromat') {
+    const plates = d.plates ?? [];
+    if (d.kind === 'achromat') {
+      plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, links)));
+    } else {
+      rows.push(...materialRows(plates[0]?.material, 'Material', links));
+    }
+    const wl = d.wavelength_nm ?? r.wavelength_nm;
+    // The thickness change that moves the retardance by the acceptance error: δL = δΓ·λ/|nₑ − nₒ|.
+    const dn = Math.abs(d.birefringence ?? 0);
+    const err = d.acceptance_error_waves;
+    const tol = dn > 0 && typeof err === 'number' && typeof wl === 'number' ? (err * wl * 1e-6) / dn : null;
+    const tolText = tol === null ? 'tolerance not computed for this part: check the retardance curve'
+      : `± ${mm(tol, 2)}${plates.length > 1 ? ' on the difference of the two' : ''} (moves the retardance by ${sheetNumber(err, 2)} waves)`;
+    rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)} thick`).join('; ')}; ${tolText}`]);
+    rows.push(['Cut', `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`]);
+    rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
+    rows.push(['Wavelength band', bandText(d.wavelength_curve, wl)]);
+    if (d.kind === 'waveplate') {
+      rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at ${nm(wl)}, ${d.order} order; acceptance ${deg(d.acceptance_deg, 3)} of incidence`]);
+    } else {
+      rows.push(['Performance', `largest departure from the target over the band ${sheetNumber(d.max_error_waves, 3)} waves`]);
+    }
+  } else if (d.kind === 'recombiner') {
+    rows.push(...materialRows(r.material ?? 'custom', 'Material', links));
+    const els = d.scenario?.elements ?? [];
+    const first = els.find((e) => e.kind === 'crystal');
+    const lenTol = Math.min(...(d.length_mismatch_to_break_mm ?? []).map(Math.abs).filter(Number.isFinite));
+    const tiltTol = Math.min(...(d.tilt_mismatch_to_break_deg ?? []).map(Math.abs).filter(Number.isFinite));
+    rows.push(['Dimensions', `two displacers, each ${mm(first?.thickness_mm ?? r.length_mm)} long, matched within ${mm(lenTol, 2)} (where the pair stops recombining)`]);
+    rows.push(['Cut', `optic axis at ${deg(first?.axis?.tilt_deg)} to the face normal in both, matched within ${deg(tiltTol, 2)}`]);
+    rows.push(['Clear aperture', 'to suit the beam and the displacement (the request sets none)']);
+    rows.push(['Wavelength band', bandText(null, d.scenario?.wavelength_nm ?? r.wavelength_nm ?? 632.8)]);
+    rows.push(['Performance', d.verdict ?? '']);
+  }
+  return rows;
+}
+
+/**
+ * Writes #order-sheet from the design shown in the design panel ({kindName, request, design,
+ * complete}), or empties it (null). `links` gives {materialList, materialName}.
+ */
+export function updateOrderSheet(shown, links) {
+  const box = document.getElementById('order-sheet');
+  if (!box) return;
+  if (!shown) {
+    box.replaceChildren();
+    box.removeAttribute('data-ready');
+    return;
+  }
+  const list = h('dl', { className: 'order-list' });
+  for (const [term, text] of orderRows(shown, links)) {
+    list.appendChild(h('div', { 'data-order': term }, h('dt', { text: term }), h('dd', { text })));
+  }
+  box.replaceChildren(
+    h('h2', { text: `Order sheet: ${shown.kindName}` }),
+    h('p', { className: 'small', text: 'From the design panel of Doublespar: what to order, with the tolerances the design assumed.' }),
+    list,
+    h('p', { className: 'order-safety', text: SAFETY_LINE }),
+  );
+  box.setAttribute('data-ready', 'true');
+}

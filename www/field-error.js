@@ -5,7 +5,9 @@
 // caller). `nearestErrorSlot(root, attr, path, skip)` finds where a message about `path` is
 // shown: the error slot `[attr="<path>"]` under `root`, or else that of the nearest path above it
 // (`elements[0].axis.tilt_deg` -> `elements[0].axis` -> `elements[0]` -> `elements` -> ''),
-// taking only slots that are not inside a hidden element.
+// taking only slots that are not inside a hidden element. `fieldLabel(path, ownLabel, groups)`
+// names a field as the page labels it ("Element 2 · Thickness"), elements numbered from 1;
+// `labelled(path, message, label)` is the message as shown beside its control.
 
 /** The path one step up; '' above a top-level name, null above ''. */
 function parentPath(p) {
@@ -35,4 +37,33 @@ export function nearestErrorSlot(root, attr, path, skip = () => false) {
     }
   }
   return null;
+}
+
+/** A contract name as words: `thickness_mm` -> `Thickness`, `band_nm[1]` -> `Band`. */
+export function humanName(path) {
+  const last = path.replace(/(\[\d+\])+$/, '').split('.').pop() ?? '';
+  const words = last.replace(/_(mm|nm|deg|waves|um|rad)$/, '').replace(/_/g, ' ').trim();
+  return words ? words.charAt(0).toUpperCase() + words.slice(1) : 'Set-up';
+}
+
+/**
+ * The name of the field at `path` as the page labels it: `ownLabel(path)` (the label of its
+ * control, or undefined), else `groups[path]` (names of groups of fields), else its contract name
+ * as words. A field of a stack element is prefixed with the element's number counted from 1:
+ * `elements[1].thickness_mm` -> `Element 2 · Thickness`.
+ */
+export function fieldLabel(path, ownLabel, groups = {}) {
+  const own = ownLabel(path);
+  const el = /^elements\[(\d+)\](?:\.(.+))?$/.exec(path);
+  if (el) {
+    const head = `Element ${Number(el[1]) + 1}`;
+    if (!el[2]) return head;
+    return `${head} · ${own ?? groups[`elements[].${el[2]}`] ?? humanName(el[2])}`;
+  }
+  return own ?? groups[path] ?? humanName(path);
+}
+
+/** A message as shown beside its control: `Label: message`, or the message alone for ''. */
+export function labelled(path, message, label) {
+  return path ? `${label}: ${message}` : message;
 }

@@ -1,6 +1,7 @@
 // End-to-end tests of the page's exports (issue 5, part 3): each view as SVG and PNG, the plots'
 // data as CSV and JSON, the results as JSON and CSV, the scenario as JSON, and the print sheet
-// (print media, and a one-page PDF written to target/e2e/sheet.pdf).
+// (print media, and a one-page PDF written to target/e2e/sheet.pdf), and the order sheet of a
+// solved design (a page of its own, A4 and Letter PDFs in target/e2e/order-*.pdf).
 //
 // Run: `cd tests/e2e && npm ci && node --test` (or tests/e2e/run.sh, which builds first).
 
@@ -8,7 +9,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
-import { ARTIFACTS, useBrowser, withPage as openAt } from './support.mjs';
+import { ARTIFACTS, useBrowser, withPage as openAt, solveDesign } from './support.mjs';
 
 const VIEWS = ['side', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
 const PLOTS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
@@ -228,5 +229,63 @@ test('the print sheet hides the controls, shows the set-up, results and views, a
       const pages = (text.match(/\/Type\s*\/Page(?![s\w])/g) ?? []).length;
       assert.equal(pages, 1, `the design sheet is one ${format} page, not ${pages}`);
     }
+  });
+});
+
+/** Pages of a PDF that Chromium wrote (its page objects). */
+const pdfPages = (pdf) => (pdf.toString('latin1').match(/\/Type\s*\/Page(?![s\w])/g) ?? []).length;
+
+test('printing a solved design adds a one-page order sheet with everything a shop needs (A4 and Letter)', { timeout: 120000 }, async () => {
+  await withPage(async (page) => {
+    await page.emulateMedia({ media: 'print' });
+    assert.equal(await page.evaluate(() => document.getElementById('order-sheet').getClientRects().length), 0,
+      'no order sheet before a design is solved');
+    await page.emulateMedia({ media: null });
+    await page.fill('[data-design-field="samples"]', '0');
+    await page.fill('[data-design-field="band_nm[0]"]', '550');
+    await page.fill('[data-design-field="band_nm[1]"]', '750');
+    await solveDesign(page);
+    const shown = await page.evaluate(() => window.doublespar.designShown().design);
+
+    await page.emulateMedia({ media: 'print' });
+    const sheet = await page.evaluate(() => {
+      const el = document.getElementById('order-sheet');
+      const rows = Object.fromEntries([...el.querySelectorAll('[data-order]')].map((r) => [r.dataset.order, r.querySelector('dd').textContent]));
+      return { shown: el.getClientRects().length > 0, rows, text: el.textContent, breakBefore: getComputedStyle(el).breakBefore };
+    });
+    assert.ok(sheet.shown, 'the order sheet is printed');
+    assert.equal(sheet.breakBefore, 'page', 'on a page of its own');
+    const r = sheet.rows;
+    assert.deepEqual(Object.keys(r), ['Part', 'Material', 'Data source', 'Dimensions', 'Cut', 'Clear aperture', 'Wavelength band', 'Performance']);
+    assert.equal(r.Part, 'Beam displacer');
+    assert.match(r.Material, /^calcite \(CaCO3\), negative uniaxial; data valid \d+–\d+ nm$/);
+    assert.ok(r['Data source'].length > 30 && /\d{4}/.test(r['Data source']), `a citation with its year: ${r['Data source']}`);
+    const len = Number(shown.length_mm.toPrecision(4));
+    assert.ok(r.Dimensions.startsWith(`length ${len} mm ± 0.05 mm`), `length with its tolerance: ${r.Dimensions}`);
+    assert.match(r.Cut, new RegExp(`^optic axis at ${Number(shown.cut_tilt_deg.toPrecision(4))}° ± 0\\.1° to the face normal`));
+    assert.match(r['Clear aperture'], new RegExp(`^at least ${Number(shown.clear_aperture_mm.toPrecision(4))} mm`));
+    assert.equal(r['Wavelength band'], '550 nm to 750 nm');
+    assert.match(sheet.text, /Design guidance; defers to local laser-safety regulations and licensed practice\./);
+
+    await page.emulateMedia({ media: null });
+    for (const format of ['A4', 'Letter']) {
+      const pdf = await page.pdf({ format, printBackground: true });
+      fs.writeFileSync(path.join(ARTIFACTS, `order-${format}.pdf`), pdf);
+      // The set-up's sheet is one page (the test above); the order sheet starts a page and
+      // does not break inside, so two pages in all means the order sheet is one page.
+      assert.equal(pdfPages(pdf), 2, `the design sheet and the order sheet, one ${format} page each`);
+    }
+
+    // A waveplate's thickness tolerance is the change that moves its retardance by the
+    // acceptance error: Γ = Δn·L/λ in waves (common practice), so δL = δΓ·λ/|Δn|.
+    await page.selectOption('[data-design-field="kind"]', 'waveplate');
+    await solveDesign(page);
+    const wp = await page.evaluate(() => window.doublespar.designShown().design);
+    const tol = (0.01 * wp.wavelength_nm * 1e-6) / Math.abs(wp.birefringence);
+    const rows = await page.evaluate(() => Object.fromEntries([...document.querySelectorAll('#order-sheet [data-order]')]
+      .map((r) => [r.dataset.order, r.querySelector('dd').textContent])));
+    assert.equal(rows.Part, 'Waveplate');
+    assert.equal(rows.Dimensions, `plate 1: ${Number(wp.plates[0].thickness_mm.toPrecision(4))} mm thick; ± ${Number(tol.toPrecision(2))} mm (moves the retardance by 0.01 waves)`);
+    assert.match(rows.Cut, /^optic axis in the face \(90° to the face normal\)/);
   });
 });

@@ -431,3 +431,55 @@ export function close(a, b, rel = 1e-12, floor = 1e-15) {
   if (!Number.isFinite(a) || !Number.isFinite(b)) return false;
   return Math.abs(a - b) <= Math.max(rel * Math.max(Math.abs(a), Math.abs(b)), floor);
 }
+
+// ---------------------------------------------------------------------------------------------
+// Driving the page as a user would (history, words and order-sheet tests).
+
+/** The page's current scenario, with every default written out. */
+export const pageScenario = async (page) => JSON.parse(await page.evaluate(() => window.doublespar.session.scenarioJson()));
+
+/** Waits until the page's scenario satisfies `pred`; returns it (fails saying `what`). */
+export async function waitScenario(page, pred, what, timeout = 5000) {
+  const end = Date.now() + timeout;
+  for (;;) {
+    const sc = await pageScenario(page);
+    if (pred(sc)) return sc;
+    if (Date.now() > end) assert.fail(`${what}; the page's scenario is ${JSON.stringify(sc).slice(0, 400)}`);
+    await page.waitForTimeout(40);
+  }
+}
+
+/** Types a value into the one control `selector` as a user would: fill, then leave (Tab). */
+export async function enterValue(page, selector, value) {
+  const field = page.locator(selector);
+  assert.equal(await field.count(), 1, `exactly one control ${selector}`);
+  await field.fill(String(value));
+  await field.press('Tab');
+}
+
+/** Clicks the design panel's Solve and waits for section#design[data-state="done"]. */
+export async function solveDesign(page, timeout = 30000) {
+  await page.click('#design-solve');
+  await page
+    .waitForFunction(() => document.getElementById('design').dataset.state === 'done', null, { timeout })
+    .catch(async () => assert.fail(`the design panel is ${await page.evaluate(() => document.getElementById('design').dataset.state)}: ${await page.textContent('#design-status')}`));
+}
+
+/** The text of the visible error slot `[attr="<path>"]`, '' when hidden or absent. */
+export function shownError(page, path, attr = 'data-error-for') {
+  return page.evaluate(([p, a]) => {
+    const el = [...document.querySelectorAll(`[${a}]`)].find((e) => e.getAttribute(a) === p && !e.hidden && e.getClientRects().length > 0);
+    return el ? el.textContent : '';
+  }, [path, attr]);
+}
+
+/** Waits until the error slot of `path` shows a message; returns it. */
+export async function waitError(page, path, attr = 'data-error-for', timeout = 5000) {
+  const end = Date.now() + timeout;
+  for (;;) {
+    const text = await shownError(page, path, attr);
+    if (text) return text;
+    if (Date.now() > end) assert.fail(`no message shown in [${attr}="${path}"]`);
+    await page.waitForTimeout(40);
+  }
+}
