@@ -2,6 +2,10 @@
 //!
 //! World coordinates are millimetres with z along world x (to the right) and the lab x along
 //! world y (up), as `../shared/CONVENTIONS.md` asks; +y of the lab points out of the screen.
+//! The same drawing can be made in another plane that holds z ([`SidePlane`]): the y–z plane
+//! (y up, lab x into the screen), or the plane of z and the first crystal's e-ray walk-off
+//! direction w (w up), so that a walk-off out of the x–z plane is seen. It is drawn by turning
+//! the traced geometry about z so that the chosen direction becomes x, and naming the axes.
 //! Plates are drawn to scale. When the stack is much longer than it is wide, the transverse
 //! direction is drawn stretched by a round factor ([`Scene::y_stretch`]), said in the caption and
 //! shown by a second scale bar; all coordinates in the scene stay physical.
@@ -46,9 +50,22 @@ fn crystal_spans(result: &TraceResult) -> Vec<(f64, f64)> {
         .collect()
 }
 
-/// Builds the side view of a traced scenario.
+/// Builds the side view of a traced scenario, in the x–z plane.
 pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
-    let mut scene = Scene::new("Side view (x–z)", "", Aspect::Equal);
+    side_view_in(scenario, result, SidePlane::Xz)
+}
+
+/// Builds the side view of a traced scenario in `plane`.
+pub fn side_view_in(scenario: &Scenario, result: &TraceResult, plane: SidePlane) -> Scene {
+    let (up, names) = plane.frame(result);
+    if up == (1.0, 0.0) {
+        return draw(scenario, result, &names);
+    }
+    draw(&turned_scenario(scenario, up), &turned_result(result, up), &names)
+}
+
+fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene {
+    let mut scene = Scene::new(&names.title, "", Aspect::Equal);
     let d = scenario.beam.diameter_mm;
     let u = result.input.direction;
     let spans = crystal_spans(result);
@@ -81,12 +98,9 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     scene.y_stretch = stretch;
     let s = stretch;
     scene.caption = if s > 1.0 {
-        format!(
-            "z → right, x ↑ (lab y out of the page); transverse scale ×{}",
-            significant(s, 2)
-        )
+        format!("{}; transverse scale ×{}", names.axes, significant(s, 2))
     } else {
-        "z → right, x ↑ (lab y out of the page); to scale".to_string()
+        format!("{}; to scale", names.axes)
     };
 
     // Plates and ideal elements.
@@ -268,7 +282,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         if hi - lo > 0.0 {
             let has_y = result.spots.iter().any(|p| p.position_mm[1].abs() > 1e-9 * d);
             let label = if has_y {
-                format!("Δx {}", length_text(hi - lo))
+                format!("Δ{} {}", names.up, length_text(hi - lo))
             } else {
                 length_text(hi - lo)
             };
@@ -299,7 +313,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
         scene.text(
             [zb - 0.01 * z_extent, yb + 0.5 * tb],
-            format!("{} (x)", length_text(tb)),
+            format!("{} ({})", length_text(tb), names.up),
             11.0,
             Anchor::End,
             Role::ScaleBar,
@@ -313,6 +327,155 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     }
     .padded(0.03, 0.12);
     scene
+}
+
+/// The plane of a side view: z to the right and one transverse lab direction up.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SidePlane {
+    /// x up, lab y out of the page (the contract's side view).
+    Xz,
+    /// y up, lab x into the page.
+    Yz,
+    /// The e-ray walk-off direction w of the first crystal with a propagating e-wave up
+    /// (its projection on x–y); the x–z plane when no crystal walks off.
+    Walkoff,
+}
+
+/// The words of a side view's plane.
+struct PlaneNames {
+    title: String,
+    /// The upward direction's name, for "Δx" and the transverse scale bar.
+    up: &'static str,
+    /// The caption's orientation phrase.
+    axes: String,
+}
+
+impl SidePlane {
+    /// The upward unit direction (cos φ, sin φ) in the lab x–y plane, and the plane's words.
+    fn frame(self, result: &TraceResult) -> ((f64, f64), PlaneNames) {
+        let xz = || PlaneNames {
+            title: "Side view (x–z)".into(),
+            up: "x",
+            axes: "z → right, x ↑ (lab y out of the page)".into(),
+        };
+        match self {
+            SidePlane::Xz => ((1.0, 0.0), xz()),
+            SidePlane::Yz => (
+                (0.0, 1.0),
+                PlaneNames {
+                    title: "Side view (y–z)".into(),
+                    up: "y",
+                    axes: "z → right, y ↑ (lab x into the page)".into(),
+                },
+            ),
+            SidePlane::Walkoff => match walkoff_azimuth(result) {
+                None => {
+                    let mut n = xz();
+                    n.title = "Side view (x–z: no walk-off to follow)".into();
+                    ((1.0, 0.0), n)
+                }
+                Some((c, s)) => {
+                    // To 0.1°, without a decimal tail for whole degrees and without "-0".
+                    let deg = (s.atan2(c).to_degrees() * 10.0).round() / 10.0 + 0.0;
+                    let phi = if deg.fract() == 0.0 {
+                        format!("{deg:.0}")
+                    } else {
+                        format!("{deg:.1}")
+                    };
+                    (
+                        (c, s),
+                        PlaneNames {
+                            title: format!("Side view along the walk-off ({phi}° from x)"),
+                            up: "w",
+                            axes: format!("z → right, w ↑ (e walk-off, {phi}° from x toward y)"),
+                        },
+                    )
+                }
+            },
+        }
+    }
+}
+
+/// (cos φ, sin φ) of the first crystal's e-ray walk-off direction projected on x–y.
+fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
+    result.elements.iter().find_map(|e| match e {
+        ElementReport::Crystal { e, .. } => {
+            let w = e.walkoff_direction?;
+            let n = w[0].hypot(w[1]);
+            (n > 1e-12).then(|| (w[0] / n, w[1] / n))
+        }
+        _ => None,
+    })
+}
+
+/// Lab (x, y) turned about z so that (c, s) becomes +x: x' = x c + y s, y' = −x s + y c.
+fn turn2(p: [f64; 2], (c, s): (f64, f64)) -> [f64; 2] {
+    [p[0] * c + p[1] * s, -p[0] * s + p[1] * c]
+}
+
+fn turn3(p: [f64; 3], up: (f64, f64)) -> [f64; 3] {
+    let [x, y] = turn2([p[0], p[1]], up);
+    [x, y, p[2]]
+}
+
+/// The scenario with each crystal's optic axis turned like the geometry (the only angles the
+/// side view draws; ideal elements' angles are shown as given).
+fn turned_scenario(scenario: &Scenario, (c, s): (f64, f64)) -> Scenario {
+    let mut sc = scenario.clone();
+    let phi = s.atan2(c).to_degrees();
+    for el in &mut sc.elements {
+        if let ElementKind::Crystal(plate) = &mut el.kind {
+            plate.azimuth_deg -= phi;
+        }
+    }
+    sc
+}
+
+/// The traced geometry (points, positions, directions, mode vectors) turned about z; Stokes
+/// vectors, ellipses and Jones vectors are left as they are (the side view draws none).
+fn turned_result(result: &TraceResult, up: (f64, f64)) -> TraceResult {
+    let mut r = result.clone();
+    let t3 = |v: &mut Option<[f64; 3]>| {
+        if let Some(p) = v {
+            *p = turn3(*p, up);
+        }
+    };
+    r.input.direction = turn3(r.input.direction, up);
+    for ray in &mut r.rays {
+        ray.exit_position_mm = turn2(ray.exit_position_mm, up);
+        ray.direction = turn3(ray.direction, up);
+        for p in &mut ray.points_mm {
+            *p = turn3(*p, up);
+        }
+    }
+    for spot in &mut r.spots {
+        spot.position_mm = turn2(spot.position_mm, up);
+        spot.direction = turn3(spot.direction, up);
+    }
+    for el in &mut r.elements {
+        if let ElementReport::Crystal {
+            o,
+            e,
+            separation_vector_mm,
+            ..
+        } = el
+        {
+            for m in [o, e] {
+                t3(&mut m.walkoff_direction);
+                t3(&mut m.wave_vector);
+                t3(&mut m.ray_direction);
+                t3(&mut m.d_polarization);
+                t3(&mut m.e_polarization);
+                if let Some(p) = &mut m.lateral_shift_mm {
+                    *p = turn2(*p, up);
+                }
+            }
+            if let Some(p) = separation_vector_mm {
+                *p = turn2(*p, up);
+            }
+        }
+    }
+    r
 }
 
 /// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
@@ -476,6 +639,98 @@ mod tests {
             .to_degrees();
         assert!((screen_angle - 45.0).abs() < 1e-9, "{screen_angle}");
         assert!(scene.caption.contains("transverse scale") || scene.caption.contains("to scale"));
+    }
+
+    /// A calcite plate whose optic axis leans toward +y (azimuth 90°) walks the e-ray off along
+    /// −y (away from the axis: calcite is negative): invisible in the x–z plane, the full separation in the y–z plane and along the
+    /// walk-off. Independent check: the trace's own `separation_mm` (and its vector along y).
+    #[test]
+    fn a_walkoff_along_y_shows_in_the_yz_and_walkoff_planes_only() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let ElementReport::Crystal {
+            separation_mm,
+            separation_vector_mm,
+            ..
+        } = &r.elements[0]
+        else {
+            panic!()
+        };
+        let sep = separation_mm.unwrap();
+        let v = separation_vector_mm.unwrap();
+        assert!(sep > 0.5 && v[0].abs() < 1e-12 * sep, "a walk-off along y: {v:?}");
+        let span = |scene: &Scene| {
+            let xs: Vec<f64> = r
+                .rays
+                .iter()
+                .map(|ray| first_point(scene, &format!("exit {}", ray.label))[1])
+                .collect();
+            xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) - xs.iter().cloned().fold(f64::INFINITY, f64::min)
+        };
+        let xz = side_view_in(&sc, &r, SidePlane::Xz);
+        assert_eq!(xz, side_view(&sc, &r));
+        assert!(span(&xz) < 1e-12 * sep, "x–z shows {} mm", span(&xz));
+        // (A dimension across rounding noise, if any, spans ~0 too.)
+        if let Some(Item::Polyline { points, .. }) = xz.tagged("dimension").next() {
+            assert!(
+                (points[1][1] - points[0][1]).abs() < 1e-12 * sep,
+                "x–z dimension {points:?}"
+            );
+        }
+        for (plane, title) in [
+            (SidePlane::Yz, "Side view (y–z)"),
+            (SidePlane::Walkoff, "Side view along the walk-off (-90° from x)"),
+        ] {
+            let scene = side_view_in(&sc, &r, plane);
+            assert!(scene.is_finite(), "{plane:?}");
+            assert_eq!(scene.title, title);
+            assert!(
+                (span(&scene) - sep).abs() < 1e-12 * sep,
+                "{plane:?}: {} vs {sep}",
+                span(&scene)
+            );
+            let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+                panic!("{plane:?}: no dimension")
+            };
+            let dim = (points[1][1] - points[0][1]).abs();
+            assert!(
+                (dim - sep).abs() < 1e-12 * sep,
+                "{plane:?}: dimension {dim} vs separation {sep}"
+            );
+        }
+        // The axis leans toward +y: in the y–z view it is drawn in the plane at 45° from z.
+        let yz = side_view_in(&sc, &r, SidePlane::Yz);
+        let Some(Item::Arrow { from, to, .. }) = yz.tagged("axis 0").next() else {
+            panic!()
+        };
+        let angle = ((to[1] - from[1]) * yz.y_stretch).atan2(to[0] - from[0]).to_degrees();
+        assert!((angle - 45.0).abs() < 1e-9, "{angle}");
+    }
+
+    #[test]
+    fn the_walkoff_plane_follows_any_azimuth_and_falls_back_without_walkoff() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 30}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
+            panic!()
+        };
+        let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        let dim = (points[1][1] - points[0][1]).abs();
+        assert!((dim - separation_mm.unwrap()).abs() < 1e-12, "{dim}");
+        // Calcite is negative: the e-ray leans away from the optic axis (azimuth 30° − 180°).
+        assert!(scene.title.contains("(-150° from x)"), "{}", scene.title);
+        // Along z the crystal does not walk off: the x–z plane, said so.
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 0, "azimuth_deg": 0}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        assert!(scene.title.contains("no walk-off"), "{}", scene.title);
+        assert!(scene.is_finite());
     }
 
     #[test]
