@@ -4,8 +4,8 @@
 //! world y (up), as `../shared/CONVENTIONS.md` asks; +y of the lab points out of the screen.
 //! The same drawing can be made in another plane that holds z ([`SidePlane`]): the y–z plane
 //! (y up, lab x into the screen), or the plane of z and the first crystal's e-ray walk-off
-//! direction w (w up), so that a walk-off out of the x–z plane is seen. It is drawn by turning
-//! the traced geometry about z so that the chosen direction becomes x, and naming the axes.
+//! direction w (w up), so that a walk-off out of the x–z plane is seen. Such a view draws each
+//! lab point's component along the chosen direction where the x–z view draws its x.
 //! Plates are drawn to scale. When the stack is much longer than it is wide, the transverse
 //! direction is drawn stretched by a round factor ([`Scene::y_stretch`]), said in the caption and
 //! shown by a second scale bar; all coordinates in the scene stay physical.
@@ -57,14 +57,13 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
 
 /// Builds the side view of a traced scenario in `plane`.
 pub fn side_view_in(scenario: &Scenario, result: &TraceResult, plane: SidePlane) -> Scene {
-    let (up, names) = plane.frame(result);
-    if up == (1.0, 0.0) {
-        return draw(scenario, result, &names);
-    }
-    draw(&turned_scenario(scenario, up), &turned_result(result, up), &names)
+    draw(scenario, result, &plane.frame(result))
 }
 
 fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene {
+    // The drawn transverse coordinate of a lab point, and its component out of the page.
+    let across = |p: [f64; 2]| names.turn(p)[0];
+    let across3 = |p: &[f64; 3]| across([p[0], p[1]]);
     let mut scene = Scene::new(&names.title, "", Aspect::Equal);
     let d = scenario.beam.diameter_mm;
     let u = result.input.direction;
@@ -73,13 +72,13 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     let stack_len = z_end_stack.max(1e-9);
     let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
     let (z_min, z_max) = (-lead, z_end_stack + lead);
-    let slope = if u[2] > 0.0 { u[0] / u[2] } else { 0.0 };
+    let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
 
     // Transverse extent: every ray point, the beam around them, and the lead-in/out.
     let mut xs: Vec<f64> = vec![slope * z_min];
     for ray in &result.rays {
-        xs.extend(ray.points_mm.iter().map(|p| p[0]));
-        xs.push(ray.exit_position_mm[0] + slope * lead);
+        xs.extend(ray.points_mm.iter().map(across3));
+        xs.push(across(ray.exit_position_mm) + slope * lead);
     }
     let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
     let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
@@ -131,7 +130,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                     Anchor::Middle,
                     Role::Caption,
                 );
-                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg) {
+                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg) {
                     axis_mark(
                         &mut scene,
                         axis,
@@ -208,15 +207,15 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             }
             let (role, dash) = mode_style(letter);
             scene.line(
-                vec![[a[2], a[0]], [b[2], b[0]]],
+                vec![[a[2], across3(&a)], [b[2], across3(&b)]],
                 role,
                 dash,
                 2.0,
                 format!("ray {} segment", ray.label),
             );
         }
-        let exit: Point = [ray.exit_z_mm, ray.exit_position_mm[0]];
-        let end: Point = [z_max, ray.exit_position_mm[0] + slope * (z_max - ray.exit_z_mm)];
+        let exit: Point = [ray.exit_z_mm, across(ray.exit_position_mm)];
+        let end: Point = [z_max, across(ray.exit_position_mm) + slope * (z_max - ray.exit_z_mm)];
         let (role, dash) = mode_style(last);
         // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
         // is still shown, thin and grey, so that the reader sees where it would go.
@@ -241,7 +240,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         } else {
             spot.rays.join("+")
         };
-        let x = spot.position_mm[0] + slope * (z_max - z_end_stack);
+        let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
         let name = if spot.power < DARK_RAY {
             format!("{name} (no power)")
         } else {
@@ -259,13 +258,13 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             .rays
             .first()
             .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
-            .map_or(0.0, |p| p[0]);
+            .map_or(0.0, across3);
         if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
             walkoff_mark(
                 &mut scene,
                 [z0, x_entry],
-                k,
-                ray,
+                names.turn3(k),
+                names.turn3(ray),
                 w,
                 0.4 * spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * z_extent),
                 s,
@@ -274,15 +273,18 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     }
 
     // Dimension across the exit points.
-    let exit_xs: Vec<f64> = result.spots.iter().map(|p| p.position_mm[0]).collect();
+    let exit_xs: Vec<f64> = result.spots.iter().map(|p| across(p.position_mm)).collect();
     if exit_xs.len() >= 2 {
         let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
         let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
         let zd = z_end_stack + 0.35 * lead;
         if hi - lo > 0.0 {
-            let has_y = result.spots.iter().any(|p| p.position_mm[1].abs() > 1e-9 * d);
+            let has_y = result
+                .spots
+                .iter()
+                .any(|p| names.turn(p.position_mm)[1].abs() > 1e-9 * d);
             let label = if has_y {
-                format!("Δ{} {}", names.up, length_text(hi - lo))
+                format!("Δ{} {}", names.up_name, length_text(hi - lo))
             } else {
                 length_text(hi - lo)
             };
@@ -313,7 +315,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
         scene.text(
             [zb - 0.01 * z_extent, yb + 0.5 * tb],
-            format!("{} ({})", length_text(tb), names.up),
+            format!("{} ({})", length_text(tb), names.up_name),
             11.0,
             Anchor::End,
             Role::ScaleBar,
@@ -341,55 +343,77 @@ pub enum SidePlane {
     Walkoff,
 }
 
-/// The words of a side view's plane.
+/// A side view's plane: its upward lab direction (cos φ, sin φ, 0) and its words.
 struct PlaneNames {
+    /// (cos φ, sin φ).
+    up: (f64, f64),
+    /// φ in degrees: crystal axes are drawn at their azimuth minus φ.
+    turn_deg: f64,
     title: String,
     /// The upward direction's name, for "Δx" and the transverse scale bar.
-    up: &'static str,
+    up_name: &'static str,
     /// The caption's orientation phrase.
     axes: String,
 }
 
+impl PlaneNames {
+    /// Lab (x, y) in the drawing's frame: [along the upward direction, out of the page]
+    /// (x' = x c + y s, y' = −x s + y c); x–z is left exactly as it is.
+    fn turn(&self, p: [f64; 2]) -> [f64; 2] {
+        let (c, s) = self.up;
+        if s == 0.0 && c == 1.0 {
+            p
+        } else {
+            [p[0] * c + p[1] * s, -p[0] * s + p[1] * c]
+        }
+    }
+
+    fn turn3(&self, p: [f64; 3]) -> [f64; 3] {
+        let [x, y] = self.turn([p[0], p[1]]);
+        [x, y, p[2]]
+    }
+}
+
 impl SidePlane {
-    /// The upward unit direction (cos φ, sin φ) in the lab x–y plane, and the plane's words.
-    fn frame(self, result: &TraceResult) -> ((f64, f64), PlaneNames) {
+    /// The plane's upward direction and words, for this result.
+    fn frame(self, result: &TraceResult) -> PlaneNames {
         let xz = || PlaneNames {
+            up: (1.0, 0.0),
+            turn_deg: 0.0,
             title: "Side view (x–z)".into(),
-            up: "x",
+            up_name: "x",
             axes: "z → right, x ↑ (lab y out of the page)".into(),
         };
         match self {
-            SidePlane::Xz => ((1.0, 0.0), xz()),
-            SidePlane::Yz => (
-                (0.0, 1.0),
-                PlaneNames {
-                    title: "Side view (y–z)".into(),
-                    up: "y",
-                    axes: "z → right, y ↑ (lab x into the page)".into(),
-                },
-            ),
+            SidePlane::Xz => xz(),
+            SidePlane::Yz => PlaneNames {
+                up: (0.0, 1.0),
+                turn_deg: 90.0,
+                title: "Side view (y–z)".into(),
+                up_name: "y",
+                axes: "z → right, y ↑ (lab x into the page)".into(),
+            },
             SidePlane::Walkoff => match walkoff_azimuth(result) {
-                None => {
-                    let mut n = xz();
-                    n.title = "Side view (x–z: no walk-off to follow)".into();
-                    ((1.0, 0.0), n)
-                }
+                None => PlaneNames {
+                    title: "Side view (x–z: no walk-off to follow)".into(),
+                    ..xz()
+                },
                 Some((c, s)) => {
+                    let turn_deg = s.atan2(c).to_degrees();
                     // To 0.1°, without a decimal tail for whole degrees and without "-0".
-                    let deg = (s.atan2(c).to_degrees() * 10.0).round() / 10.0 + 0.0;
+                    let deg = (turn_deg * 10.0).round() / 10.0 + 0.0;
                     let phi = if deg.fract() == 0.0 {
                         format!("{deg:.0}")
                     } else {
                         format!("{deg:.1}")
                     };
-                    (
-                        (c, s),
-                        PlaneNames {
-                            title: format!("Side view along the walk-off ({phi}° from x)"),
-                            up: "w",
-                            axes: format!("z → right, w ↑ (e walk-off, {phi}° from x toward y)"),
-                        },
-                    )
+                    PlaneNames {
+                        up: (c, s),
+                        turn_deg,
+                        title: format!("Side view along the walk-off ({phi}° from x)"),
+                        up_name: "w",
+                        axes: format!("z → right, w ↑ (e walk-off, {phi}° from x toward y)"),
+                    }
                 }
             },
         }
@@ -406,76 +430,6 @@ fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
         }
         _ => None,
     })
-}
-
-/// Lab (x, y) turned about z so that (c, s) becomes +x: x' = x c + y s, y' = −x s + y c.
-fn turn2(p: [f64; 2], (c, s): (f64, f64)) -> [f64; 2] {
-    [p[0] * c + p[1] * s, -p[0] * s + p[1] * c]
-}
-
-fn turn3(p: [f64; 3], up: (f64, f64)) -> [f64; 3] {
-    let [x, y] = turn2([p[0], p[1]], up);
-    [x, y, p[2]]
-}
-
-/// The scenario with each crystal's optic axis turned like the geometry (the only angles the
-/// side view draws; ideal elements' angles are shown as given).
-fn turned_scenario(scenario: &Scenario, (c, s): (f64, f64)) -> Scenario {
-    let mut sc = scenario.clone();
-    let phi = s.atan2(c).to_degrees();
-    for el in &mut sc.elements {
-        if let ElementKind::Crystal(plate) = &mut el.kind {
-            plate.azimuth_deg -= phi;
-        }
-    }
-    sc
-}
-
-/// The traced geometry (points, positions, directions, mode vectors) turned about z; Stokes
-/// vectors, ellipses and Jones vectors are left as they are (the side view draws none).
-fn turned_result(result: &TraceResult, up: (f64, f64)) -> TraceResult {
-    let mut r = result.clone();
-    let t3 = |v: &mut Option<[f64; 3]>| {
-        if let Some(p) = v {
-            *p = turn3(*p, up);
-        }
-    };
-    r.input.direction = turn3(r.input.direction, up);
-    for ray in &mut r.rays {
-        ray.exit_position_mm = turn2(ray.exit_position_mm, up);
-        ray.direction = turn3(ray.direction, up);
-        for p in &mut ray.points_mm {
-            *p = turn3(*p, up);
-        }
-    }
-    for spot in &mut r.spots {
-        spot.position_mm = turn2(spot.position_mm, up);
-        spot.direction = turn3(spot.direction, up);
-    }
-    for el in &mut r.elements {
-        if let ElementReport::Crystal {
-            o,
-            e,
-            separation_vector_mm,
-            ..
-        } = el
-        {
-            for m in [o, e] {
-                t3(&mut m.walkoff_direction);
-                t3(&mut m.wave_vector);
-                t3(&mut m.ray_direction);
-                t3(&mut m.d_polarization);
-                t3(&mut m.e_polarization);
-                if let Some(p) = &mut m.lateral_shift_mm {
-                    *p = turn2(*p, up);
-                }
-            }
-            if let Some(p) = separation_vector_mm {
-                *p = turn2(*p, up);
-            }
-        }
-    }
-    r
 }
 
 /// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
