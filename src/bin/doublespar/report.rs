@@ -249,7 +249,10 @@ fn range_of(curve: Option<&Value>) -> Option<(f64, f64, f64, f64)> {
 }
 
 fn displacer(r: &mut Report) {
-    let material = r.s("material").unwrap_or_else(|| "custom crystal".into());
+    let material = r
+        .s("material")
+        .filter(|m| m != "custom")
+        .unwrap_or_else(|| "custom crystal".into());
     let wl = r.f("wavelength_nm").map_or_else(String::new, num);
     r.title(&format!("Beam displacer · {material} · {wl} nm"));
     r.section("What to order");
@@ -338,6 +341,14 @@ fn displacer(r: &mut Report) {
     r.notes(&["cut_note"]);
 }
 
+/// Plate `i`'s catalogue key, or "custom crystal" for one given by its indices.
+fn plate_material(r: &mut Report, i: usize) -> String {
+    match r.s(&format!("plates.{i}.material")) {
+        Some(m) if m != "custom" => m,
+        _ => "custom crystal".into(),
+    }
+}
+
 fn plates(r: &mut Report) {
     let n = r.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len);
     for i in 0..n {
@@ -346,7 +357,7 @@ fn plates(r: &mut Report) {
         } else {
             format!("plate {}", i + 1)
         };
-        let m = r.s(&format!("plates.{i}.material")).unwrap_or_default();
+        let m = plate_material(r, i);
         let t = r.f(&format!("plates.{i}.thickness_mm")).map_or_else(String::new, num);
         let a = r
             .f(&format!("plates.{i}.axis_azimuth_deg"))
@@ -359,7 +370,7 @@ fn plates(r: &mut Report) {
 }
 
 fn waveplate(r: &mut Report) {
-    let material = r.s("plates.0.material").unwrap_or_default();
+    let material = plate_material(r, 0);
     let order = r.s("order").unwrap_or_default();
     let ret = r.f("retardance_waves").map_or_else(String::new, |x| num(x.abs()));
     let wl = r.f("wavelength_nm").map_or_else(String::new, num);
@@ -445,8 +456,7 @@ fn waveplate(r: &mut Report) {
 }
 
 fn achromat(r: &mut Report) {
-    let a = r.s("plates.0.material").unwrap_or_default();
-    let b = r.s("plates.1.material").unwrap_or_default();
+    let (a, b) = (plate_material(r, 0), plate_material(r, 1));
     r.title(&format!("Achromatic waveplate · {a} and {b}"));
     r.section("What to order");
     r.line(
@@ -500,7 +510,12 @@ fn recombiner(r: &mut Report) {
     let middle = els
         .iter()
         .find(|e| e.get("kind").and_then(Value::as_str) != Some("crystal"));
-    let material = crystals.first().map_or_else(String::new, |e| medium_words(e));
+    let material = crystals
+        .first()
+        .and_then(|e| e.get("material"))
+        .and_then(Value::as_str)
+        .unwrap_or("custom crystal")
+        .to_string();
     let wl =
         r.v.pointer("/scenario/wavelength_nm")
             .and_then(Value::as_f64)
