@@ -4,7 +4,13 @@
 //! print the JSON recorded in `tests/cli/golden/NAME.json` (numbers compared to 1e-12 relative, so
 //! that a last-bit difference in a libm does not fail the test, while any real change does). For
 //! the cases listed in `TABLES`, `--table` output must equal `golden/NAME.table.txt` exactly.
+//! Design reports (`design FILE --table`) must equal `design/golden/NAME.table.txt`.
 //! `UPDATE_GOLDEN=1 cargo test --test cli` rewrites the golden files; review the diff.
+//!
+//! Beyond the goldens: help on every command, usage errors that name the word and point to
+//! help, design requests from flags against the same request as JSON (byte for byte), bad flag
+//! values named by flag and field, material keys in any case, a closed standard output, and
+//! every side-view plane drawn.
 
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
