@@ -309,9 +309,10 @@ pub fn catalogue() -> &'static [Material] {
     &CATALOGUE
 }
 
-/// The material with contract key `key` (exact, case-sensitive), if catalogued.
+/// The material with contract key `key` (compared without regard to ASCII case, so `"YVO4"`
+/// finds `yvo4`), if catalogued. Results echo the canonical lower-case [`Material::key`].
 pub fn find(key: &str) -> Option<&'static Material> {
-    CATALOGUE.iter().find(|m| m.key == key)
+    CATALOGUE.iter().find(|m| m.key.eq_ignore_ascii_case(key))
 }
 
 /// The contract keys in catalogue order, for error messages such as
@@ -1044,7 +1045,16 @@ mod tests {
         for k in want {
             assert_eq!(find(k).map(|m| m.key), Some(k));
         }
-        for unknown in ["", "Calcite", "CALCITE", "bbo", "alpha_bbo", "calcite ", "TiO2"] {
+        // Keys are found in any case and answer with the canonical lower-case key.
+        for (spelled, key) in [
+            ("Calcite", "calcite"),
+            ("CALCITE", "calcite"),
+            ("YVO4", "yvo4"),
+            ("Alpha-BBO", "alpha-bbo"),
+        ] {
+            assert_eq!(find(spelled).map(|m| m.key), Some(key), "{spelled:?}");
+        }
+        for unknown in ["", "bbo", "alpha_bbo", "calcite ", "TiO2"] {
             assert_eq!(find(unknown), None, "{unknown:?}");
         }
     }

@@ -2,6 +2,10 @@
 //!
 //! World coordinates are millimetres with z along world x (to the right) and the lab x along
 //! world y (up), as `../shared/CONVENTIONS.md` asks; +y of the lab points out of the screen.
+//! The same drawing can be made in another plane that holds z ([`SidePlane`]): the y–z plane
+//! (y up, lab x into the screen), or the plane of z and the first crystal's e-ray walk-off
+//! direction w (w up), so that a walk-off out of the x–z plane is seen. Such a view draws each
+//! lab point's component along the chosen direction where the x–z view draws its x.
 //! Plates are drawn to scale. When the stack is much longer than it is wide, the transverse
 //! direction is drawn stretched by a round factor ([`Scene::y_stretch`]), said in the caption and
 //! shown by a second scale bar; all coordinates in the scene stay physical.
@@ -46,9 +50,21 @@ fn crystal_spans(result: &TraceResult) -> Vec<(f64, f64)> {
         .collect()
 }
 
-/// Builds the side view of a traced scenario.
+/// Builds the side view of a traced scenario, in the x–z plane.
 pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
-    let mut scene = Scene::new("Side view (x–z)", "", Aspect::Equal);
+    side_view_in(scenario, result, SidePlane::Xz)
+}
+
+/// Builds the side view of a traced scenario in `plane`.
+pub fn side_view_in(scenario: &Scenario, result: &TraceResult, plane: SidePlane) -> Scene {
+    draw(scenario, result, &plane.frame(result))
+}
+
+fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene {
+    // The drawn transverse coordinate of a lab point, and its component out of the page.
+    let across = |p: [f64; 2]| names.turn(p)[0];
+    let across3 = |p: &[f64; 3]| across([p[0], p[1]]);
+    let mut scene = Scene::new(&names.title, "", Aspect::Equal);
     let d = scenario.beam.diameter_mm;
     let u = result.input.direction;
     let spans = crystal_spans(result);
@@ -56,13 +72,13 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     let stack_len = z_end_stack.max(1e-9);
     let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
     let (z_min, z_max) = (-lead, z_end_stack + lead);
-    let slope = if u[2] > 0.0 { u[0] / u[2] } else { 0.0 };
+    let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
 
     // Transverse extent: every ray point, the beam around them, and the lead-in/out.
     let mut xs: Vec<f64> = vec![slope * z_min];
     for ray in &result.rays {
-        xs.extend(ray.points_mm.iter().map(|p| p[0]));
-        xs.push(ray.exit_position_mm[0] + slope * lead);
+        xs.extend(ray.points_mm.iter().map(across3));
+        xs.push(across(ray.exit_position_mm) + slope * lead);
     }
     let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
     let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
@@ -81,12 +97,9 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     scene.y_stretch = stretch;
     let s = stretch;
     scene.caption = if s > 1.0 {
-        format!(
-            "z → right, x ↑ (lab y out of the page); transverse scale ×{}",
-            significant(s, 2)
-        )
+        format!("{}; transverse scale ×{}", names.axes, significant(s, 2))
     } else {
-        "z → right, x ↑ (lab y out of the page); to scale".to_string()
+        format!("{}; to scale", names.axes)
     };
 
     // Plates and ideal elements.
@@ -117,7 +130,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
                     Anchor::Middle,
                     Role::Caption,
                 );
-                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg) {
+                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg) {
                     axis_mark(
                         &mut scene,
                         axis,
@@ -194,15 +207,15 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
             }
             let (role, dash) = mode_style(letter);
             scene.line(
-                vec![[a[2], a[0]], [b[2], b[0]]],
+                vec![[a[2], across3(&a)], [b[2], across3(&b)]],
                 role,
                 dash,
                 2.0,
                 format!("ray {} segment", ray.label),
             );
         }
-        let exit: Point = [ray.exit_z_mm, ray.exit_position_mm[0]];
-        let end: Point = [z_max, ray.exit_position_mm[0] + slope * (z_max - ray.exit_z_mm)];
+        let exit: Point = [ray.exit_z_mm, across(ray.exit_position_mm)];
+        let end: Point = [z_max, across(ray.exit_position_mm) + slope * (z_max - ray.exit_z_mm)];
         let (role, dash) = mode_style(last);
         // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
         // is still shown, thin and grey, so that the reader sees where it would go.
@@ -227,7 +240,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         } else {
             spot.rays.join("+")
         };
-        let x = spot.position_mm[0] + slope * (z_max - z_end_stack);
+        let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
         let name = if spot.power < DARK_RAY {
             format!("{name} (no power)")
         } else {
@@ -245,13 +258,13 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
             .rays
             .first()
             .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
-            .map_or(0.0, |p| p[0]);
+            .map_or(0.0, across3);
         if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
             walkoff_mark(
                 &mut scene,
                 [z0, x_entry],
-                k,
-                ray,
+                names.turn3(k),
+                names.turn3(ray),
                 w,
                 0.4 * spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * z_extent),
                 s,
@@ -260,15 +273,18 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     }
 
     // Dimension across the exit points.
-    let exit_xs: Vec<f64> = result.spots.iter().map(|p| p.position_mm[0]).collect();
+    let exit_xs: Vec<f64> = result.spots.iter().map(|p| across(p.position_mm)).collect();
     if exit_xs.len() >= 2 {
         let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
         let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
         let zd = z_end_stack + 0.35 * lead;
         if hi - lo > 0.0 {
-            let has_y = result.spots.iter().any(|p| p.position_mm[1].abs() > 1e-9 * d);
+            let has_y = result
+                .spots
+                .iter()
+                .any(|p| names.turn(p.position_mm)[1].abs() > 1e-9 * d);
             let label = if has_y {
-                format!("Δx {}", length_text(hi - lo))
+                format!("Δ{} {}", names.up_name, length_text(hi - lo))
             } else {
                 length_text(hi - lo)
             };
@@ -299,7 +315,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
         scene.text(
             [zb - 0.01 * z_extent, yb + 0.5 * tb],
-            format!("{} (x)", length_text(tb)),
+            format!("{} ({})", length_text(tb), names.up_name),
             11.0,
             Anchor::End,
             Role::ScaleBar,
@@ -313,6 +329,107 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     }
     .padded(0.03, 0.12);
     scene
+}
+
+/// The plane of a side view: z to the right and one transverse lab direction up.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SidePlane {
+    /// x up, lab y out of the page (the contract's side view).
+    Xz,
+    /// y up, lab x into the page.
+    Yz,
+    /// The e-ray walk-off direction w of the first crystal with a propagating e-wave up
+    /// (its projection on x–y); the x–z plane when no crystal walks off.
+    Walkoff,
+}
+
+/// A side view's plane: its upward lab direction (cos φ, sin φ, 0) and its words.
+struct PlaneNames {
+    /// (cos φ, sin φ).
+    up: (f64, f64),
+    /// φ in degrees: crystal axes are drawn at their azimuth minus φ.
+    turn_deg: f64,
+    title: String,
+    /// The upward direction's name, for "Δx" and the transverse scale bar.
+    up_name: &'static str,
+    /// The caption's orientation phrase.
+    axes: String,
+}
+
+impl PlaneNames {
+    /// Lab (x, y) in the drawing's frame: [along the upward direction, out of the page]
+    /// (x' = x c + y s, y' = −x s + y c); x–z is left exactly as it is.
+    fn turn(&self, p: [f64; 2]) -> [f64; 2] {
+        let (c, s) = self.up;
+        if s == 0.0 && c == 1.0 {
+            p
+        } else {
+            [p[0] * c + p[1] * s, -p[0] * s + p[1] * c]
+        }
+    }
+
+    fn turn3(&self, p: [f64; 3]) -> [f64; 3] {
+        let [x, y] = self.turn([p[0], p[1]]);
+        [x, y, p[2]]
+    }
+}
+
+impl SidePlane {
+    /// The plane's upward direction and words, for this result.
+    fn frame(self, result: &TraceResult) -> PlaneNames {
+        let xz = || PlaneNames {
+            up: (1.0, 0.0),
+            turn_deg: 0.0,
+            title: "Side view (x–z)".into(),
+            up_name: "x",
+            axes: "z → right, x ↑ (lab y out of the page)".into(),
+        };
+        match self {
+            SidePlane::Xz => xz(),
+            SidePlane::Yz => PlaneNames {
+                up: (0.0, 1.0),
+                turn_deg: 90.0,
+                title: "Side view (y–z)".into(),
+                up_name: "y",
+                axes: "z → right, y ↑ (lab x into the page)".into(),
+            },
+            SidePlane::Walkoff => match walkoff_azimuth(result) {
+                None => PlaneNames {
+                    title: "Side view (x–z: no walk-off to follow)".into(),
+                    ..xz()
+                },
+                Some((c, s)) => {
+                    let turn_deg = s.atan2(c).to_degrees();
+                    // To 0.1°, without a decimal tail for whole degrees and without "-0".
+                    let deg = (turn_deg * 10.0).round() / 10.0 + 0.0;
+                    let phi = if deg.fract() == 0.0 {
+                        format!("{deg:.0}")
+                    } else {
+                        format!("{deg:.1}")
+                    };
+                    PlaneNames {
+                        up: (c, s),
+                        turn_deg,
+                        title: format!("Side view along the walk-off ({phi}° from x)"),
+                        up_name: "w",
+                        axes: format!("z → right, w ↑ (e walk-off, {phi}° from x toward y)"),
+                    }
+                }
+            },
+        }
+    }
+}
+
+/// (cos φ, sin φ) of the first crystal's e-ray walk-off direction projected on x–y.
+fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
+    result.elements.iter().find_map(|e| match e {
+        ElementReport::Crystal { e, .. } => {
+            let w = e.walkoff_direction?;
+            let n = w[0].hypot(w[1]);
+            (n > 1e-12).then(|| (w[0] / n, w[1] / n))
+        }
+        _ => None,
+    })
 }
 
 /// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
@@ -476,6 +593,98 @@ mod tests {
             .to_degrees();
         assert!((screen_angle - 45.0).abs() < 1e-9, "{screen_angle}");
         assert!(scene.caption.contains("transverse scale") || scene.caption.contains("to scale"));
+    }
+
+    /// A calcite plate whose optic axis leans toward +y (azimuth 90°) walks the e-ray off along
+    /// −y (away from the axis: calcite is negative): invisible in the x–z plane, the full separation in the y–z plane and along the
+    /// walk-off. Independent check: the trace's own `separation_mm` (and its vector along y).
+    #[test]
+    fn a_walkoff_along_y_shows_in_the_yz_and_walkoff_planes_only() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let ElementReport::Crystal {
+            separation_mm,
+            separation_vector_mm,
+            ..
+        } = &r.elements[0]
+        else {
+            panic!()
+        };
+        let sep = separation_mm.unwrap();
+        let v = separation_vector_mm.unwrap();
+        assert!(sep > 0.5 && v[0].abs() < 1e-12 * sep, "a walk-off along y: {v:?}");
+        let span = |scene: &Scene| {
+            let xs: Vec<f64> = r
+                .rays
+                .iter()
+                .map(|ray| first_point(scene, &format!("exit {}", ray.label))[1])
+                .collect();
+            xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) - xs.iter().cloned().fold(f64::INFINITY, f64::min)
+        };
+        let xz = side_view_in(&sc, &r, SidePlane::Xz);
+        assert_eq!(xz, side_view(&sc, &r));
+        assert!(span(&xz) < 1e-12 * sep, "x–z shows {} mm", span(&xz));
+        // (A dimension across rounding noise, if any, spans ~0 too.)
+        if let Some(Item::Polyline { points, .. }) = xz.tagged("dimension").next() {
+            assert!(
+                (points[1][1] - points[0][1]).abs() < 1e-12 * sep,
+                "x–z dimension {points:?}"
+            );
+        }
+        for (plane, title) in [
+            (SidePlane::Yz, "Side view (y–z)"),
+            (SidePlane::Walkoff, "Side view along the walk-off (-90° from x)"),
+        ] {
+            let scene = side_view_in(&sc, &r, plane);
+            assert!(scene.is_finite(), "{plane:?}");
+            assert_eq!(scene.title, title);
+            assert!(
+                (span(&scene) - sep).abs() < 1e-12 * sep,
+                "{plane:?}: {} vs {sep}",
+                span(&scene)
+            );
+            let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+                panic!("{plane:?}: no dimension")
+            };
+            let dim = (points[1][1] - points[0][1]).abs();
+            assert!(
+                (dim - sep).abs() < 1e-12 * sep,
+                "{plane:?}: dimension {dim} vs separation {sep}"
+            );
+        }
+        // The axis leans toward +y: in the y–z view it is drawn in the plane at 45° from z.
+        let yz = side_view_in(&sc, &r, SidePlane::Yz);
+        let Some(Item::Arrow { from, to, .. }) = yz.tagged("axis 0").next() else {
+            panic!()
+        };
+        let angle = ((to[1] - from[1]) * yz.y_stretch).atan2(to[0] - from[0]).to_degrees();
+        assert!((angle - 45.0).abs() < 1e-9, "{angle}");
+    }
+
+    #[test]
+    fn the_walkoff_plane_follows_any_azimuth_and_falls_back_without_walkoff() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 30}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
+            panic!()
+        };
+        let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        let dim = (points[1][1] - points[0][1]).abs();
+        assert!((dim - separation_mm.unwrap()).abs() < 1e-12, "{dim}");
+        // Calcite is negative: the e-ray leans away from the optic axis (azimuth 30° − 180°).
+        assert!(scene.title.contains("(-150° from x)"), "{}", scene.title);
+        // Along z the crystal does not walk off: the x–z plane, said so.
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 0, "azimuth_deg": 0}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        assert!(scene.title.contains("no walk-off"), "{}", scene.title);
+        assert!(scene.is_finite());
     }
 
     #[test]

@@ -1,8 +1,10 @@
 //! The set of views and how to build each one from a scenario and its traced result.
 //!
-//! One name per view, shared by the page, the command line and the tests: `side`, `end`,
-//! `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots describe
-//! the first crystal of the stack.
+//! One name per view, shared by the page, the command line and the tests: `side` (the x–z
+//! plane), `side-yz` (the y–z plane), `side-walkoff` (the plane of z and the first crystal's
+//! e-ray walk-off direction, so a walk-off along y is seen; see [`view_side::SidePlane`]),
+//! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots
+//! describe the first crystal of the stack.
 
 use crate::error::Error;
 use crate::scenario::Scenario;
@@ -12,8 +14,10 @@ use crate::trace::TraceResult;
 use crate::{view_end, view_plot, view_poincare, view_side};
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 6] = [
+pub const VIEW_NAMES: [&str; 8] = [
     "side",
+    "side-yz",
+    "side-walkoff",
     "end",
     "poincare",
     "walkoff-tilt",
@@ -28,6 +32,8 @@ pub const VIEW_NAMES: [&str; 6] = [
 pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Scene, Error> {
     Ok(match name {
         "side" => view_side::side_view(scenario, result),
+        "side-yz" => view_side::side_view_in(scenario, result, view_side::SidePlane::Yz),
+        "side-walkoff" => view_side::side_view_in(scenario, result, view_side::SidePlane::Walkoff),
         "end" => view_end::end_view(result, scenario.beam.diameter_mm),
         "poincare" => view_poincare::poincare_view(result),
         "walkoff-tilt" => view_plot::plot(&sweep::walkoff_vs_tilt(scenario, 0)?),

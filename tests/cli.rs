@@ -4,7 +4,13 @@
 //! print the JSON recorded in `tests/cli/golden/NAME.json` (numbers compared to 1e-12 relative, so
 //! that a last-bit difference in a libm does not fail the test, while any real change does). For
 //! the cases listed in `TABLES`, `--table` output must equal `golden/NAME.table.txt` exactly.
+//! Design reports (`design FILE --table`) must equal `design/golden/NAME.table.txt`.
 //! `UPDATE_GOLDEN=1 cargo test --test cli` rewrites the golden files; review the diff.
+//!
+//! Beyond the goldens: help on every command, usage errors that name the word and point to
+//! help, design requests from flags against the same request as JSON (byte for byte), bad flag
+//! values named by flag and field, material keys in any case, a closed standard output, and
+//! every side-view plane drawn.
 
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
@@ -232,4 +238,432 @@ fn materials_mark_a_breakdown_and_unverified_data() {
     }
     let text = String::from_utf8(bin().arg("materials").output().unwrap().stdout).unwrap();
     assert!(text.contains("warning: unverified data for alpha-bbo"), "{text}");
+}
+
+// ---------------------------------------------------------------------------------------------
+// Help, usage errors, design flags, material keys, design reports, closed pipes, side planes.
+
+const COMMANDS: [&str; 6] = ["trace", "draw", "design", "materials", "demo", "help"];
+
+fn run(args: &[&str]) -> std::process::Output {
+    bin().args(args).output().unwrap()
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8(bytes.to_vec()).unwrap()
+}
+
+#[test]
+fn help_is_on_standard_output_for_every_command() {
+    let overview = run(&["help"]);
+    assert_eq!(overview.status.code(), Some(0));
+    let overview_text = text(&overview.stdout);
+    for c in COMMANDS {
+        assert!(overview_text.contains(&format!("\n  {c} ")), "overview lists {c}");
+        let by_help = run(&["help", c]);
+        assert_eq!(by_help.status.code(), Some(0), "help {c}");
+        let t = text(&by_help.stdout);
+        assert!(t.starts_with(&format!("usage: doublespar {c}")), "help {c}: {t}");
+        assert!(by_help.stderr.is_empty(), "help {c} writes nothing on standard error");
+        for flag in ["--help", "-h"] {
+            let out = run(&[c, flag]);
+            assert_eq!(out.status.code(), Some(0), "{c} {flag}");
+            assert_eq!(text(&out.stdout), t, "{c} {flag} prints the help of {c}");
+        }
+    }
+    for top in [&["--help"][..], &["-h"]] {
+        let out = run(top);
+        assert_eq!(out.status.code(), Some(0));
+        assert_eq!(text(&out.stdout), overview_text);
+    }
+    // --help wins over anything else on the line, even a bad word.
+    assert_eq!(run(&["trace", "--nonsense", "--help"]).status.code(), Some(0));
+}
+
+#[test]
+fn unknown_commands_flags_and_words_name_themselves_and_point_to_help() {
+    let cases: [(&[&str], &str, &str); 8] = [
+        (&["frobnicate"], "'frobnicate'", "doublespar help"),
+        (&["help", "frobnicate"], "'frobnicate'", "doublespar help"),
+        (&["trace", "--tabel", "x.json"], "'--tabel'", "doublespar help trace"),
+        (
+            &["draw", "side", "x.json", "--darker"],
+            "'--darker'",
+            "doublespar help draw",
+        ),
+        (&["draw", "top", "x.json"], "'top'", "doublespar help draw"),
+        (&["materials", "--at"], "'--at'", "doublespar help materials"),
+        (&["demo", "extra"], "'extra'", "doublespar help demo"),
+        (
+            &["design", "displacer", "--length-mm", "1"],
+            "'--length-mm'",
+            "doublespar help design",
+        ),
+    ];
+    for (args, names, points) in cases {
+        let out = run(args);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        let err = text(&out.stderr);
+        assert!(err.contains(names), "{args:?} names {names}: {err}");
+        assert!(err.contains(points), "{args:?} points to {points}: {err}");
+        assert!(!err.contains("panicked"), "{args:?}: {err}");
+    }
+}
+
+/// One request written both ways: flags after the kind, and the JSON document they stand for.
+struct FlagCase {
+    /// The words after `design`, separated by spaces.
+    flags: &'static str,
+    json: &'static str,
+}
+
+const FLAG_CASES: [FlagCase; 10] = [
+    FlagCase {
+        flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20",
+        json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
+                 "separation_mm": 1.5, "beam_diameter_mm": 0.5, "cut_tilt_deg": 40, "aperture_factor": 3,
+                 "tolerances": {"tilt_deg": 0.2, "incidence_deg": 0.05, "thickness_mm": 0.02, "wavelength_nm": 1},
+                 "samples": 3000, "seed": 7, "bins": 20}"#,
+    },
+    FlagCase {
+        flags: "displacer --no=1.6 --ne=1.5 --separation-mm=1 --samples=0",
+        json: r#"{"kind": "displacer", "no": 1.6, "ne": 1.5, "separation_mm": 1, "samples": 0}"#,
+    },
+    FlagCase {
+        flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02",
+        json: r#"{"kind": "waveplate", "material": "QUARTZ", "wavelength_nm": 1064, "retardance_waves": 0.25,
+                 "order": "multiple", "order_number": 3, "band_nm": [1000, 1100], "max_incidence_deg": 5,
+                 "acceptance_error_waves": 0.02}"#,
+    },
+    FlagCase {
+        flags: "waveplate --no 1.5 --ne 1.51 --retardance-waves 0.5 --order compound --base-mm 0.5",
+        json: r#"{"kind": "waveplate", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "order": "compound", "base_mm": 0.5}"#,
+    },
+    FlagCase {
+        flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100",
+        json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "MgF2"},
+                 "retardance_waves": 0.5, "wavelengths_nm": [600, 1000], "band_nm": [500, 1100]}"#,
+    },
+    FlagCase {
+        flags: "achromat --first-no 1.6 --first-ne 1.5 --second-material mgf2 --retardance-waves 0.25 --wavelengths-nm 500,900",
+        json: r#"{"kind": "achromat", "first": {"no": 1.6, "ne": 1.5}, "second": {"material": "mgf2"},
+                 "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
+    },
+    FlagCase {
+        flags: "achromat --first-material quartz --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25 --wavelengths-nm 500,900",
+        json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"no": 1.4, "ne": 1.41},
+                 "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
+    },
+    FlagCase {
+        flags: "achromat --first-material quartz --second-material mgf2 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25 --wavelengths-nm 500,900",
+        // Both a material and indices for the second plate: the same error on the same field,
+        // whose message from flags also names the flag.
+        json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "mgf2", "no": 1.4, "ne": 1.41},
+                 "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
+    },
+    FlagCase {
+        flags: "recombiner --material YVO4 --wavelength-nm 1064 --length-mm 8 --cut-tilt-deg 45 --beam-diameter-mm 0.5 --middle rotator --rotator-deg 90 --length-mismatch-mm 0.01 --tilt-mismatch-deg 0.001",
+        json: r#"{"kind": "recombiner", "material": "YVO4", "wavelength_nm": 1064, "length_mm": 8, "cut_tilt_deg": 45,
+                 "beam_diameter_mm": 0.5, "middle": "rotator", "rotator_deg": 90, "length_mismatch_mm": 0.01,
+                 "tilt_mismatch_deg": 0.001}"#,
+    },
+    FlagCase {
+        flags: "recombiner --no 1.6 --ne 1.5 --length-mm 5 --middle half-wave",
+        json: r#"{"kind": "recombiner", "no": 1.6, "ne": 1.5, "length_mm": 5, "middle": "half-wave"}"#,
+    },
+];
+
+/// The flags `doublespar help design` lists for `kind`.
+fn listed_flags(kind: &str) -> Vec<String> {
+    let help = text(&run(&["help", "design"]).stdout);
+    let section = help
+        .split(&format!("\n{kind} flags:\n"))
+        .nth(1)
+        .unwrap_or_else(|| panic!("no {kind} section in the design help"));
+    section
+        .lines()
+        .take_while(|l| l.starts_with("  --"))
+        .map(|l| l.split_whitespace().next().unwrap().to_string())
+        .collect()
+}
+
+#[test]
+fn design_flags_give_byte_identical_answers_to_the_json_request() {
+    let scratch = std::env::temp_dir().join(format!("doublespar-flags-{}", std::process::id()));
+    std::fs::create_dir_all(&scratch).unwrap();
+    let mut used: std::collections::BTreeMap<&str, std::collections::BTreeSet<String>> = Default::default();
+    for (i, case) in FLAG_CASES.iter().enumerate() {
+        let words: Vec<&str> = case.flags.split_whitespace().collect();
+        let kind = words[0];
+        for f in words.iter().filter(|f| f.starts_with("--")) {
+            used.entry(kind)
+                .or_default()
+                .insert(f.split('=').next().unwrap().to_string());
+        }
+        let file = scratch.join(format!("case-{i}.json"));
+        std::fs::write(&file, case.json).unwrap();
+        for extra in [&[][..], &["--table"]] {
+            let by_flags = bin().arg("design").args(&words).args(extra).output().unwrap();
+            let by_json = bin().arg("design").arg(&file).args(extra).output().unwrap();
+            assert_eq!(by_flags.status.code(), by_json.status.code(), "{kind} case {i}");
+            if by_json.status.code() == Some(2) && extra.is_empty() {
+                let (f, j): (Value, Value) = (
+                    serde_json::from_slice(&by_flags.stdout).unwrap(),
+                    serde_json::from_slice(&by_json.stdout).unwrap(),
+                );
+                assert_eq!(f["error"]["field"], j["error"]["field"], "{kind} case {i}");
+                let (fm, jm) = (
+                    f["error"]["message"].as_str().unwrap(),
+                    j["error"]["message"].as_str().unwrap(),
+                );
+                assert!(
+                    fm.starts_with(jm) && fm.contains("(flag --"),
+                    "{kind} case {i}: {fm} / {jm}"
+                );
+                continue;
+            }
+            if by_json.status.code() == Some(2) {
+                continue;
+            }
+            assert_eq!(
+                text(&by_flags.stdout),
+                text(&by_json.stdout),
+                "{kind} case {i} {extra:?}: flags and JSON differ"
+            );
+            assert_eq!(
+                text(&by_flags.stderr),
+                text(&by_json.stderr),
+                "{kind} case {i} {extra:?}"
+            );
+        }
+    }
+    // The cases use every flag the help lists, for every kind.
+    for kind in doublespar::design::KINDS {
+        let listed: std::collections::BTreeSet<String> = listed_flags(kind).into_iter().collect();
+        assert!(!listed.is_empty(), "{kind}");
+        assert_eq!(
+            used.get(kind),
+            Some(&listed),
+            "{kind}: flags used by the cases vs listed by help"
+        );
+    }
+    std::fs::remove_dir_all(&scratch).ok();
+}
+
+#[test]
+fn a_bad_flag_value_names_the_flag_and_the_request_field() {
+    let cases: [(&[&str], &str, &str); 5] = [
+        (
+            &["displacer", "--material", "calcite", "--separation-mm", "abc"],
+            "separation_mm",
+            "--separation-mm",
+        ),
+        (
+            &["displacer", "--material", "calcite", "--separation-mm", "-1"],
+            "separation_mm",
+            "--separation-mm",
+        ),
+        (
+            &[
+                "displacer",
+                "--material",
+                "calcite",
+                "--separation-mm",
+                "1",
+                "--band-nm",
+                "700",
+            ],
+            "band_nm",
+            "--band-nm",
+        ),
+        (
+            &["displacer", "--material", "unobtainium", "--separation-mm", "1"],
+            "material",
+            "--material",
+        ),
+        (
+            &[
+                "achromat",
+                "--first-material",
+                "quartz",
+                "--second-material",
+                "mgf2",
+                "--retardance-waves",
+                "0.5",
+                "--wavelengths-nm",
+                "500,1e400",
+            ],
+            "wavelengths_nm",
+            "--wavelengths-nm",
+        ),
+    ];
+    for (args, field, flag) in cases {
+        let out = bin().arg("design").args(args).output().unwrap();
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+        assert!(
+            v["error"]["field"].as_str().is_some_and(|f| f.starts_with(field)),
+            "{args:?}: {v}"
+        );
+        let msg = v["error"]["message"].as_str().unwrap();
+        assert!(msg.contains(flag), "{args:?}: the message names {flag}: {msg}");
+        assert!(msg.len() < 300, "{args:?}: a short message: {msg}");
+    }
+}
+
+#[test]
+fn material_keys_are_case_insensitive_and_echoed_in_lower_case() {
+    let lower = r#"{"elements": [{"kind": "crystal", "material": "yvo4", "thickness_mm": 2, "axis": {"tilt_deg": 45, "azimuth_deg": 0}}]}"#;
+    let scratch = std::env::temp_dir().join(format!("doublespar-case-{}", std::process::id()));
+    std::fs::create_dir_all(&scratch).unwrap();
+    let mut outputs = Vec::new();
+    for key in ["yvo4", "YVO4", "YvO4"] {
+        let file = scratch.join(format!("{key}.json"));
+        std::fs::write(&file, lower.replace("yvo4", key)).unwrap();
+        let out = bin().arg("trace").arg(&file).output().unwrap();
+        assert_eq!(out.status.code(), Some(0), "{key}");
+        outputs.push(text(&out.stdout));
+    }
+    assert!(outputs.iter().all(|o| o == &outputs[0]), "every spelling traces alike");
+    let v: Value = serde_json::from_str(&outputs[0]).unwrap();
+    assert_eq!(v["elements"][0]["material"], "yvo4");
+    let design = run(&[
+        "design",
+        "displacer",
+        "--material",
+        "Calcite",
+        "--separation-mm",
+        "1",
+        "--samples",
+        "0",
+    ]);
+    let v: Value = serde_json::from_slice(&design.stdout).unwrap();
+    assert_eq!(v["material"], "calcite");
+    assert_eq!(v["scenario"]["elements"][0]["material"], "calcite");
+    std::fs::remove_dir_all(&scratch).ok();
+}
+
+/// Design reports: what to order first, then performance, tolerances, notes; golden text for
+/// each kind (`tests/cli/design/golden/NAME.table.txt`).
+#[test]
+fn design_reports_read_top_down_and_match_their_golden_text() {
+    let folder = dir().join("design");
+    for name in [
+        "displacer-calcite",
+        "displacer-yvo4-fixed-cut",
+        "waveplate-mgf2-compound",
+        "waveplate-quartz-zero",
+        "achromat-quartz-mgf2",
+        "recombiner-calcite-mismatch",
+    ] {
+        let out = bin()
+            .arg("design")
+            .arg(folder.join(format!("{name}.json")))
+            .arg("--table")
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(0), "{name}");
+        let t = text(&out.stdout);
+        let at = |s: &str| {
+            t.find(&format!("\n{s}"))
+                .unwrap_or_else(|| panic!("{name}: no section {s}:\n{t}"))
+        };
+        let order = [
+            at("What to order"),
+            at("Performance"),
+            at("Tolerances"),
+            at("Notes and warnings"),
+        ];
+        assert!(
+            order.windows(2).all(|w| w[0] < w[1]),
+            "{name}: sections out of order:\n{t}"
+        );
+        assert!(!t.contains("Other figures"), "{name}: every figure has its place:\n{t}");
+        let golden_path = folder.join("golden").join(format!("{name}.table.txt"));
+        if updating() {
+            std::fs::write(&golden_path, &t).unwrap();
+            continue;
+        }
+        let golden =
+            std::fs::read_to_string(&golden_path).unwrap_or_else(|_| panic!("missing {}", golden_path.display()));
+        assert_eq!(t, golden, "{name}: report differs from {}", golden_path.display());
+    }
+}
+
+/// `doublespar … | head -1`: the reader goes away; the command ends quietly with status 0.
+/// The pipe's read end is closed before the command starts, so every write meets a closed pipe.
+#[test]
+fn writing_into_a_closed_pipe_ends_quietly() {
+    let demo = dir().join("demo.json");
+    let demo = demo.to_str().unwrap();
+    let cases: [&[&str]; 7] = [
+        &["trace", demo],
+        &["trace", demo, "--table"],
+        &[
+            "design",
+            "displacer",
+            "--material",
+            "calcite",
+            "--separation-mm",
+            "1",
+            "--samples",
+            "0",
+        ],
+        &[
+            "design",
+            "waveplate",
+            "--material",
+            "quartz",
+            "--retardance-waves",
+            "0.25",
+            "--table",
+        ],
+        &["draw", "side-walkoff", demo],
+        &["materials"],
+        &["help", "design"],
+    ];
+    for args in cases {
+        let (reader, writer) = std::io::pipe().unwrap();
+        drop(reader);
+        let out = bin()
+            .args(args)
+            .stdout(Stdio::from(writer))
+            .stderr(Stdio::piped())
+            .output()
+            .unwrap();
+        let err = text(&out.stderr);
+        assert!(!err.contains("panicked"), "{args:?}: {err}");
+        assert!(err.is_empty(), "{args:?} is quiet: {err}");
+        assert_eq!(out.status.code(), Some(0), "{args:?}");
+    }
+}
+
+#[test]
+fn every_side_plane_is_drawn_from_the_command_line() {
+    // Optic axis toward +y: the walk-off is along y (calcite is negative: toward −y).
+    let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#;
+    for (view, title) in [
+        ("side", "Side view (x–z)"),
+        ("side-yz", "Side view (y–z)"),
+        ("side-walkoff", "Side view along the walk-off (-90° from x)"),
+    ] {
+        let mut child = bin()
+            .args(["draw", view, "-"])
+            .stdin(Stdio::piped())
+            .stdout(Stdio::piped())
+            .spawn()
+            .unwrap();
+        {
+            use std::io::Write;
+            child.stdin.take().unwrap().write_all(doc.as_bytes()).unwrap();
+        }
+        let out = child.wait_with_output().unwrap();
+        assert_eq!(out.status.code(), Some(0), "{view}");
+        let svg = text(&out.stdout);
+        assert!(svg.starts_with("<svg") || svg.starts_with("<?xml"), "{view}");
+        assert!(svg.contains(title), "{view}: {title}");
+        // The separation, 1.08 mm for 10 mm of calcite at 45° (ρ = 6.19°, common practice:
+        // 10 mm × tan 6.19° ≈ 1.08 mm), is dimensioned in the planes that hold it.
+        assert_eq!(svg.contains("1.08 mm<"), view != "side", "{view}");
+    }
 }

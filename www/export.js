@@ -92,11 +92,12 @@ function jsonBlob(value) {
 function exportView(view, format) {
   const v = exportSource.views.find((x) => x.name === view);
   if (!v) return;
-  const name = `doublespar-${view}.${format}`;
+  const drawn = v.canvas.dataset.view; // the side view's plane may have changed it
+  const name = `doublespar-${drawn}.${format}`;
   if (format === 'svg') {
     const w = Math.max(1, Math.round(v.canvas.clientWidth));
     const hgt = Math.max(1, Math.round(v.canvas.clientHeight));
-    download(name, new Blob([exportSource.session.svg(view, w, hgt, false)], { type: 'image/svg+xml' }));
+    download(name, new Blob([exportSource.session.svg(drawn, w, hgt, false)], { type: 'image/svg+xml' }));
   } else if (format === 'png') {
     v.canvas.toBlob((blob) => {
       if (blob) download(name, blob);

@@ -2,22 +2,36 @@
 // sphere and three plots), with a text alternative in each aria-label and the plots' captions
 // (.plot-caption) saying which crystal they show. A view that cannot be drawn says so in
 // #view-error and keeps its last picture. For printing (the sheet goes on paper) the views are
-// drawn in the light palette.
+// drawn in the light palette. The side view has a plane chooser (select[data-side-plane]):
+// x–z, y–z or along the first crystal's walk-off; its canvas's data-view then names the view
+// drawn (side, side-yz, side-walkoff), and its caption follows.
 //
 // Contract: setupViews({session, darkQuery, viewList, materialName, current}) once, after the
 // core has loaded; it returns the list of views ({name, canvas, box}). Then drawViews() draws
 // them all, describeViews() writes their descriptions from current(), and redraw() does both.
 
-import { setAttr, setText } from './dom.js';
+import { h, setAttr, setText } from './dom.js';
 import { fixed, fmt } from './format.js';
 import { toFieldError } from './field-error.js';
 
-const views = []; // {name, canvas, box, failed}
+const views = []; // {name, canvas, box, failed}; the side view's canvas data-view is the plane's view
 let viewLinks = null; // what the page gives (setupViews)
+
+// The side view's planes: view name, the chooser's words, the plane in the text alternative and
+// the figure's caption.
+const SIDE_PLANES = [
+  ['side', 'x–z', 'x–z plane', 'Light travels along +z, to the right; x is up and y points out of the page. Each crystal shows its optic axis.'],
+  ['side-yz', 'y–z', 'y–z plane', 'Light travels along +z, to the right; y is up and x points into the page. Each crystal shows its optic axis.'],
+  ['side-walkoff', 'along the walk-off', 'plane of the first crystal\'s walk-off', 'Light travels along +z, to the right; up is the first crystal\'s e-ray walk-off direction, named in the title. Each crystal shows its optic axis.'],
+];
+
+function drawnName(v) {
+  return v.name === 'side' ? v.canvas.dataset.view : v.name;
+}
 
 function drawView(v) {
   try {
-    viewLinks.session.draw(v.name, v.canvas, viewLinks.darkQuery.matches && !printDark);
+    viewLinks.session.draw(drawnName(v), v.canvas, viewLinks.darkQuery.matches && !printDark);
     if (v.failed) {
       v.failed = false;
       viewErrors.delete(v.name);
@@ -118,19 +132,22 @@ export function describeViews() {
   r.elements.forEach((e, i) => { if (e.kind === 'crystal') crystals.push(i); });
   const texts = {};
   const spots = r.spots;
+  const sideView = views.find((v) => v.name === 'side');
+  const plane = (SIDE_PLANES.find((p) => sideView && p[0] === drawnName(sideView)) ?? SIDE_PLANES[0])[2];
+  const sideHead = `Side view (${plane}, light travelling along +z)`;
   const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${s.rays.join(' + ')})`);
 
   if (r.rays.length === 0) {
-    texts.side = 'Side view (x–z plane, light travelling along +z): no ray leaves the stack.';
+    texts.side = `${sideHead}: no ray leaves the stack.`;
   } else if (crystals.length === 0) {
-    texts.side = `Side view (x–z plane, light travelling along +z): ${r.elements.length} ideal element${r.elements.length === 1 ? '' : 's'} and no crystal; the beam passes undivided.`;
+    texts.side = `${sideHead}: ${r.elements.length} ideal element${r.elements.length === 1 ? '' : 's'} and no crystal; the beam passes undivided.`;
   } else if (crystals.length === 1) {
     const c = r.elements[crystals[0]];
     texts.side = c.separation_mm === null
-      ? `Side view (x–z plane, light travelling along +z): one ${viewLinks.materialName(c.material)} plate; one of its modes is evanescent, so the beam is not split.`
-      : `Side view (x–z plane, light travelling along +z): e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${viewLinks.materialName(c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
+      ? `${sideHead}: one ${viewLinks.materialName(c.material)} plate; one of its modes is evanescent, so the beam is not split.`
+      : `${sideHead}: e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${viewLinks.materialName(c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
   } else {
-    texts.side = `Side view (x–z plane, light travelling along +z): ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
+    texts.side = `${sideHead}: ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
   }
 
   texts.end = spots.length === 0
@@ -185,6 +202,24 @@ function afterPrint() {
   }
 }
 
+/** Puts the side view's plane chooser above its canvas (planes the core knows only). */
+function addPlaneChooser(v, viewList) {
+  const planes = SIDE_PLANES.filter((p) => viewList.includes(p[0]));
+  if (planes.length < 2) return;
+  const select = h('select', { 'data-side-plane': '', 'aria-label': 'Side view plane' },
+    ...planes.map(([value, words]) => h('option', { value, text: words })));
+  const chooser = h('label', { className: 'plane-chooser' }, 'Plane ', select);
+  v.box.parentElement.insertBefore(chooser, v.box);
+  select.addEventListener('change', () => {
+    const plane = planes.find((p) => p[0] === select.value) ?? planes[0];
+    setAttr(v.canvas, 'data-view', plane[0]);
+    const caption = v.box.parentElement.querySelector('figcaption');
+    if (caption) setText(caption, plane[3]);
+    drawView(v);
+    describeViews();
+  });
+}
+
 /**
  * Finds the views (canvas[data-view] naming one of `viewList`), redraws each when its box is
  * resized, all of them when the colour scheme changes (`darkQuery`) and around printing, and
@@ -200,6 +235,7 @@ export function setupViews({ session, darkQuery, viewList, materialName, current
     const v = { name, canvas, box: canvas.parentElement, failed: false };
     views.push(v);
     ro.observe(v.box);
+    if (name === 'side') addPlaneChooser(v, viewList);
   }
   darkQuery.addEventListener('change', () => redraw());
   window.addEventListener('beforeprint', beforePrint);

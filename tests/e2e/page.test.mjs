@@ -152,7 +152,7 @@ test('the demo loads without a fragment and every number agrees with the command
     assert.equal(await page.locator('#copy-link').count(), 1, '#copy-link exists');
     const names = await page.evaluate(() => [...document.querySelectorAll('canvas[data-view]')].map((c) => c.dataset.view));
     // DEVELOPERS.md, viewNames().
-    const known = ['side', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
+    const known = ['side', 'side-yz', 'side-walkoff', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
     for (const n of names) assert.ok(known.includes(n), `canvas[data-view="${n}"] is a known view (${known})`);
   });
 });
@@ -292,6 +292,31 @@ test('a scenario in the fragment: the recombiner shows four rays that agree with
     assert.equal(fragErr, '', 'no fragment error for a good fragment');
     await expectCanvasesDrawn(page, 'recombiner');
     await expectViewsCurrent(page, 'recombiner');
+  });
+});
+
+test('the side view\'s plane chooser shows a walk-off along y in the y–z plane and along the walk-off', { timeout: 60000 }, async () => {
+  // Optic axis toward +y: the e-ray walks off along y, out of the x–z plane.
+  const doc = { elements: [{ kind: 'crystal', material: 'calcite', thickness_mm: 10, axis: { tilt_deg: 45, azimuth_deg: 90 } }] };
+  await withPage(`#scenario=${encodeURIComponent(JSON.stringify(doc))}`, async ({ page }) => {
+    const canvas = page.locator('figure.view-side canvas');
+    const chooser = page.locator('select[data-side-plane]');
+    assert.equal(await chooser.count(), 1, 'one plane chooser');
+    assert.equal(await canvas.getAttribute('data-view'), 'side', 'x–z at first');
+    const sep = Number(await dataValue(page, SEL_SEP));
+    for (const [view, words] of [['side-yz', 'y–z plane'], ['side-walkoff', 'walk-off'], ['side', 'x–z plane']]) {
+      await chooser.selectOption(view);
+      assert.equal(await canvas.getAttribute('data-view'), view);
+      assert.ok((await canvas.getAttribute('aria-label')).includes(words), `${view}: the text alternative names the plane`);
+      await expectViewsCurrent(page, view);
+      // The dimension across the spots spans the separation in the planes that hold it.
+      const span = await page.evaluate((v) => {
+        const d = window.doublespar.session.scene(v).items.find((it) => it.tag === 'dimension');
+        return d ? Math.abs(d.points[1][1] - d.points[0][1]) : 0;
+      }, view);
+      if (view === 'side') assert.ok(span < 1e-9 * sep, `x–z: ${span}`);
+      else assert.ok(close(span, sep), `${view}: dimension ${span} vs separation ${sep}`);
+    }
   });
 });
 

@@ -1,0 +1,344 @@
+//! The `doublespar` command line: scenario JSON in, traced JSON, a table or a drawing out;
+//! design requests from a file or from flags.
+//!
+//! ```text
+//! doublespar trace FILE|- [--table] [--pretty]
+//! doublespar draw VIEW FILE|- [--size WxH] [--dark]
+//! doublespar design KIND [FLAGS] [--table]  |  doublespar design FILE|- [--table]
+//! doublespar materials [--at NM] [--json]
+//! doublespar demo
+//! doublespar help [COMMAND]      (and --help / -h on every command)
+//! ```
+//! A bad document prints `{"error": {"field": …, "message": …}}` on standard output (a readable
+//! line on standard error with `--table`) and exits with status 2; a mistake on the command line
+//! (an unknown command or flag, a missing word) names itself on standard error, points to
+//! `doublespar help COMMAND` and exits with status 2. Help goes to standard output, status 0.
+//! Output into a pipe that the reader has closed ends quietly (see [`output`]).
+
+mod args;
+mod design_flags;
+mod help;
+mod output;
+mod report;
+
+use args::{Parsed, Usage, scan};
+use doublespar::error::Error;
+use doublespar::material;
+use doublespar::scenario::Scenario;
+use doublespar::wavelength::Wavelength;
+use doublespar::{design, svg, table, trace, views};
+use serde_json::{Value, json};
+use std::io::Read;
+use std::process::ExitCode;
+
+const DEMO: &str = include_str!("../../../examples/demo.json");
+
+/// Prints a document error: JSON on standard output, or a line on standard error for tables.
+fn fail(err: &Error, table: bool) -> ExitCode {
+    if table {
+        output::err(&format!("error: {err}\n"));
+    } else {
+        let _ = output::out(&format!(
+            "{}\n",
+            json!({"error": {"field": err.field, "message": err.message}})
+        ));
+    }
+    ExitCode::from(2)
+}
+
+fn read_input(path: &str) -> Result<String, Error> {
+    let mut text = String::new();
+    let limit = doublespar::scenario::MAX_DOCUMENT_BYTES as u64 + 1;
+    let res = if path == "-" {
+        std::io::stdin().take(limit).read_to_string(&mut text)
+    } else {
+        std::fs::File::open(path).and_then(|f| f.take(limit).read_to_string(&mut text))
+    };
+    res.map_err(|e| Error::new("", format!("cannot read {}: {e}", args::quote(path))))?;
+    Ok(text)
+}
+
+/// The one input file of a command, from its positional words.
+fn one_file(command: &'static str, parsed: &Parsed, what: &str) -> Result<String, Usage> {
+    match parsed.positionals.as_slice() {
+        [f] => Ok(f.clone()),
+        [] => Err(Usage::new(command, format!("needs {what}, or - for standard input"))),
+        [_, extra, ..] => Err(Usage::new(command, format!("unexpected word '{}'", args::quote(extra)))),
+    }
+}
+
+fn cmd_trace(a: &[String]) -> Result<ExitCode, Usage> {
+    let p = scan("trace", a, &|f| match f {
+        "--table" | "--pretty" => Some(false),
+        _ => None,
+    })?;
+    let file = one_file("trace", &p, "a scenario file")?;
+    let is_table = p.has("--table");
+    let result = read_input(&file)
+        .and_then(|t| Scenario::from_json_str(&t))
+        .and_then(|s| trace::trace(&s));
+    Ok(match result {
+        Err(e) => fail(&e, is_table),
+        Ok(r) if is_table => output::out(&table::render(&r)),
+        Ok(r) => {
+            let text = if p.has("--pretty") {
+                serde_json::to_string_pretty(&r)
+            } else {
+                serde_json::to_string(&r)
+            };
+            match text {
+                Ok(t) => output::out(&(t + "\n")),
+                Err(e) => fail(&Error::new("", format!("cannot write the result: {e}")), false),
+            }
+        }
+    })
+}
+
+fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
+    // The flags a design accepts depend on its kind, the first word (after --table, if that
+    // comes first).
+    let kind = a
+        .iter()
+        .find(|w| *w != "--table")
+        .filter(|w| !w.starts_with('-') || *w == "-")
+        .cloned();
+    let by_kind = kind.as_deref().filter(|k| design::KINDS.contains(k));
+    let p = scan("design", a, &|f| match f {
+        "--table" => Some(false),
+        _ => by_kind.and_then(|k| design_flags::find(k, f)).map(|_| true),
+    })
+    .map_err(|u| match (&kind, by_kind) {
+        _ if !u.message.starts_with("unknown flag") => u,
+        (_, Some(k)) => Usage::new("design", format!("{} for a {k} request", u.message)),
+        _ => Usage::new(
+            "design",
+            format!(
+                "{}; request flags follow a design kind (displacer, waveplate, achromat, recombiner)",
+                u.message
+            ),
+        ),
+    })?;
+    let table = p.has("--table");
+    let answer = match by_kind {
+        Some(k) => match design_flags::request(k, &p)? {
+            Err(e) => return Ok(fail(&e, table)),
+            Ok(request) => design::solve(&request).map_err(|e| design_flags::name_the_flag(k, &p, e)),
+        },
+        None => {
+            let file = one_file(
+                "design",
+                &p,
+                "a design kind (displacer, waveplate, achromat, recombiner) or a request file",
+            )?;
+            read_input(&file).and_then(|t| design::solve_str(&t))
+        }
+    };
+    Ok(match answer {
+        Err(e) => fail(&e, table),
+        Ok(v) if table => output::out(&report::render(&v)),
+        Ok(v) => output::out(&format!("{v}\n")),
+    })
+}
+
+fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
+    let p = scan("materials", a, &|f| match f {
+        "--json" => Some(false),
+        "--at" => Some(true),
+        _ => None,
+    })?;
+    if let Some(extra) = p.positionals.first() {
+        return Err(Usage::new(
+            "materials",
+            format!("unexpected word '{}'", args::quote(extra)),
+        ));
+    }
+    let as_json = p.has("--json");
+    let mut at = None;
+    if let Some(v) = p.value("--at") {
+        match v
+            .trim()
+            .parse::<f64>()
+            .map_err(|_| {
+                Error::new(
+                    "wavelength_nm",
+                    format!("'{}' is not a number (flag --at)", args::quote(v)),
+                )
+            })
+            .and_then(Wavelength::from_nm)
+        {
+            Ok(w) => at = Some(w),
+            Err(e) => return Ok(fail(&e, !as_json)),
+        }
+    }
+    let mut rows = Vec::new();
+    for m in material::catalogue() {
+        let mut row = json!({
+            "key": m.key, "name": m.name,
+            "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
+            "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
+            "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
+        });
+        if let Some(w) = at {
+            match m.indices(w) {
+                Ok(ev) => {
+                    row["no"] = json!(ev.indices.no);
+                    row["ne"] = json!(ev.indices.ne);
+                    row["warnings"] = json!(ev.warnings);
+                }
+                // No index is listed where the formula breaks down: null, and the reason.
+                Err(e) => {
+                    row["no"] = Value::Null;
+                    row["ne"] = Value::Null;
+                    row["error"] = json!({"field": e.field, "message": e.message});
+                }
+            }
+        }
+        rows.push(row);
+    }
+    if as_json {
+        return Ok(output::out(&format!("{}\n", json!({ "materials": rows }))));
+    }
+    let mut text = String::new();
+    for r in &rows {
+        let idx = match (r.get("no").and_then(Value::as_f64), r.get("ne").and_then(Value::as_f64)) {
+            _ if r.get("error").is_some() => "  n/a: formula breaks down".to_string(),
+            (Some(no), Some(ne)) => format!("  n_o {no:.6}  n_e {ne:.6}"),
+            _ => String::new(),
+        };
+        text.push_str(&format!(
+            "{:<10} {:<38} {} {}–{} nm{}\n           {}\n",
+            r["key"].as_str().unwrap_or(""),
+            r["name"].as_str().unwrap_or(""),
+            r["sign"].as_str().unwrap_or(""),
+            r["range_nm"][0],
+            r["range_nm"][1],
+            idx,
+            r["citation"].as_str().unwrap_or("")
+        ));
+        if let Some(m) = r["error"]["message"].as_str() {
+            text.push_str(&format!("           n/a: {m}\n"));
+        }
+        for w in r["warnings"].as_array().into_iter().flatten() {
+            text.push_str(&format!("           warning: {}\n", w.as_str().unwrap_or("")));
+        }
+    }
+    Ok(output::out(&text))
+}
+
+fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {
+    let p = scan("draw", a, &|f| match f {
+        "--dark" => Some(false),
+        "--size" => Some(true),
+        _ => None,
+    })?;
+    let (view, file) = match p.positionals.as_slice() {
+        [v, f] => (v.clone(), f.clone()),
+        [_, _, extra, ..] => return Err(Usage::new("draw", format!("unexpected word '{}'", args::quote(extra)))),
+        _ => return Err(Usage::new("draw", "needs a view name and a scenario file (or -)")),
+    };
+    if !views::VIEW_NAMES.contains(&view.as_str()) {
+        return Err(Usage::new(
+            "draw",
+            format!(
+                "unknown view '{}'; views: {}",
+                args::quote(&view),
+                views::VIEW_NAMES.join(", ")
+            ),
+        ));
+    }
+    let mut size = (900.0, 420.0);
+    if let Some(v) = p.value("--size") {
+        let parsed = v
+            .split_once('x')
+            .and_then(|(w, h)| Some((w.parse::<f64>().ok()?, h.parse::<f64>().ok()?)));
+        match parsed {
+            Some((w, h)) if (50.0..=10000.0).contains(&w) && (50.0..=10000.0).contains(&h) => size = (w, h),
+            _ => {
+                return Err(Usage::new(
+                    "draw",
+                    format!(
+                        "--size takes WIDTHxHEIGHT in pixels, 50 to 10000 each, not '{}'",
+                        args::quote(v)
+                    ),
+                ));
+            }
+        }
+    }
+    let result = read_input(&file)
+        .and_then(|t| Scenario::from_json_str(&t))
+        .and_then(|s| {
+            let r = trace::trace(&s)?;
+            views::build(&view, &s, &r)
+        });
+    Ok(match result {
+        Err(e) => fail(&e, false),
+        Ok(scene) => {
+            let palette = if p.has("--dark") {
+                svg::Palette::dark()
+            } else {
+                svg::Palette::light()
+            };
+            output::out(&svg::to_svg(&scene, size.0, size.1, &palette))
+        }
+    })
+}
+
+fn cmd_demo(a: &[String]) -> Result<ExitCode, Usage> {
+    let p = scan("demo", a, &|_| None)?;
+    if let Some(extra) = p.positionals.first() {
+        return Err(Usage::new("demo", format!("unexpected word '{}'", args::quote(extra))));
+    }
+    Ok(output::out(DEMO))
+}
+
+fn cmd_help(a: &[String]) -> Result<ExitCode, Usage> {
+    match a {
+        [] => Ok(output::out(&help::text(None).unwrap_or_default())),
+        [c] => match help::text(Some(c)) {
+            Some(t) => Ok(output::out(&t)),
+            None => Err(Usage::new(
+                "help",
+                format!(
+                    "unknown command '{}'; commands: {}",
+                    args::quote(c),
+                    help::COMMANDS.join(", ")
+                ),
+            )),
+        },
+        [_, extra, ..] => Err(Usage::new("help", format!("unexpected word '{}'", args::quote(extra)))),
+    }
+}
+
+fn main() -> ExitCode {
+    let all: Vec<String> = std::env::args().skip(1).collect();
+    let Some(command) = all.first() else {
+        output::err(&help::text(None).unwrap_or_default());
+        return Usage::new("", "no command given").report();
+    };
+    let rest = &all[1..];
+    let run: fn(&[String]) -> Result<ExitCode, Usage> = match command.as_str() {
+        "--help" | "-h" => return output::out(&help::text(None).unwrap_or_default()),
+        "--version" | "-V" => return output::out(&format!("doublespar {}\n", env!("CARGO_PKG_VERSION"))),
+        "trace" => cmd_trace,
+        "draw" => cmd_draw,
+        "design" => cmd_design,
+        "materials" => cmd_materials,
+        "demo" => cmd_demo,
+        "help" => cmd_help,
+        other => {
+            return Usage::new(
+                "",
+                format!(
+                    "unknown command '{}'; commands: {}",
+                    args::quote(other),
+                    help::COMMANDS.join(", ")
+                ),
+            )
+            .report();
+        }
+    };
+    if args::wants_help(rest) {
+        return output::out(&help::text(Some(command)).unwrap_or_default());
+    }
+    run(rest).unwrap_or_else(|u| u.report())
+}
