@@ -566,6 +566,48 @@ mod tests {
         assert!(!line.contains('≥'), "{line}");
     }
 
+    /// A range that leaves out an end says so: a separation of −1 mm or 0 mm is "above 0 mm",
+    /// never "from 0 mm" (which would invite the 0 it refuses); a range that holds both ends
+    /// says "from … to …".
+    #[test]
+    fn range_messages_of_the_solvers_say_which_ends_they_hold() {
+        let message = |doc: &str| solve_str(doc).expect_err(doc);
+        for (doc, field, text) in [
+            (
+                r#"{"kind": "displacer", "material": "calcite", "separation_mm": -1}"#,
+                "separation_mm",
+                "must be above 0 mm and at most 1000 mm, got \u{2212}1 mm",
+            ),
+            (
+                r#"{"kind": "displacer", "material": "calcite", "separation_mm": 0}"#,
+                "separation_mm",
+                "must be above 0 mm and at most 1000 mm, got 0 mm",
+            ),
+            (
+                r#"{"kind": "displacer", "material": "calcite", "separation_mm": 1, "beam_diameter_mm": 0}"#,
+                "beam_diameter_mm",
+                "must be above 0 mm and at most 1000 mm, got 0 mm",
+            ),
+            (
+                r#"{"kind": "displacer", "material": "calcite", "separation_mm": 1, "aperture_factor": 0.5}"#,
+                "aperture_factor",
+                "must be from 1 to 10, got 0.5",
+            ),
+            (
+                r#"{"kind": "waveplate", "material": "quartz", "retardance_waves": 0.25, "max_incidence_deg": 90}"#,
+                "max_incidence_deg",
+                "must be from 0.01° to 80°, got 90°",
+            ),
+        ] {
+            let e = message(doc);
+            assert_eq!((e.field.as_str(), e.message.as_str()), (field, text), "{doc}");
+        }
+        // The largest value each excluding range holds is still taken.
+        solved(
+            r#"{"kind": "displacer", "material": "calcite", "separation_mm": 1000, "beam_diameter_mm": 1000, "samples": 0}"#,
+        );
+    }
+
     #[test]
     fn every_kind_solves_and_unknown_kinds_are_named() {
         for doc in [

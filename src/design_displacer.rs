@@ -19,7 +19,7 @@
 //! [`crate::plate`]; a Monte Carlo run draws all four errors from normal distributions of the
 //! given standard deviations and traces each sample exactly.
 
-use crate::error::{Error, in_range, positive};
+use crate::error::{Error, above, in_range, quoted};
 use crate::json_fields::{Fields, number_list};
 use crate::material::{self, Indices};
 use crate::plate::{plate_optics, tangential};
@@ -250,7 +250,7 @@ pub(crate) fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, h
     let path = f.path_of(name);
     let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;
     if v.fract() != 0.0 {
-        return Err(Error::new(path, format!("must be a whole number, got {v}")));
+        return Err(Error::new(path, format!("must be a whole number, got {}", quoted(v))));
     }
     Ok(v)
 }
@@ -276,7 +276,11 @@ pub(crate) fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f6
             if hi < lo {
                 return Err(Error::new(
                     path,
-                    format!("must be [shortest, longest] with shortest ≤ longest, got [{lo}, {hi}]"),
+                    format!(
+                        "must be [shortest, longest] with shortest ≤ longest, got [{}, {}]",
+                        quoted(lo),
+                        quoted(hi)
+                    ),
                 ));
             }
             Ok(Some((lo, hi)))
@@ -293,12 +297,9 @@ impl DisplacerRequest {
         let medium = parse_medium(f)?;
         let wavelength = wavelength_field(f)?;
         let band_nm = band(f, "band_nm")?;
-        let separation_mm = in_range("separation_mm", f.required_number("separation_mm")?, 0.0, 1e3)?;
-        positive("separation_mm", separation_mm)?;
-        let beam_diameter_mm = positive(
-            "beam_diameter_mm",
-            in_range("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?,
-        )?;
+        // Lengths that must not be zero: the range excludes 0, and the message says so.
+        let separation_mm = above("separation_mm", f.required_number("separation_mm")?, 0.0, 1e3)?;
+        let beam_diameter_mm = above("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?;
         let cut_tilt_deg = f
             .number("cut_tilt_deg")?
             .map(|t| in_range("cut_tilt_deg", t, 0.0, 180.0))

@@ -62,7 +62,9 @@ pub fn demo_scenario() -> String {
     DEMO.to_string()
 }
 
-/// The crystal catalogue: `[{key, name, sign, range_nm, citation}]`.
+/// The crystal catalogue: `[{key, name, sign, range_nm, citation, verified}]`; `verified` is
+/// false for a formula with no journal source, which the page marks "unverified data" wherever
+/// it names the material.
 ///
 /// # Errors
 /// Never in practice (conversion of plain data).
@@ -74,7 +76,7 @@ pub fn materials() -> Result<JsValue, JsValue> {
             serde_json::json!({
                 "key": m.key, "name": m.name,
                 "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
-                "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
+                "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation, "verified": m.verified,
             })
         })
         .collect();

@@ -367,7 +367,7 @@ class Card {
     f.gap = new Field('gap_mm', { label: 'Gap before', unit: 'mm' });
 
     // Crystal.
-    const matOptions = materialList.map((m) => [m.key, m.name === m.key ? m.key : `${m.name}`]);
+    const matOptions = materialList.map((m) => [m.key, materialName(m.key)]);
     matOptions.push(['custom', 'custom indices']);
     f.material = new Field('material', { label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
@@ -431,7 +431,8 @@ class Card {
     if (this.customBox.hidden !== (key !== 'custom')) this.customBox.hidden = key !== 'custom';
     const m = materialList.find((x) => x.key === key);
     if (m) {
-      setText(this.materialNote, `${m.sign} uniaxial · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm`);
+      const unverified = m.verified === false ? ' · unverified data: no journal source' : '';
+      setText(this.materialNote, `${m.sign} uniaxial · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`);
       setAttr(this.materialNote, 'title', m.citation);
       this.materialNote.hidden = false;
     } else if (key === 'custom') {
@@ -759,9 +760,12 @@ function clearErrors() {
 // ---------------------------------------------------------------------------------------------
 // Materials by name (results, view descriptions and the design panel).
 
+// A formula with no journal source (`verified` false) is named with "(unverified data)", so that
+// every list and description of the page that names it says so.
 function materialName(key) {
   const m = materialList.find((x) => x.key === key);
-  return m ? m.name : key;
+  if (!m) return key;
+  return m.verified === false ? `${m.name} (unverified data)` : m.name;
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -4,7 +4,9 @@
 // module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
 // arrives in chunks with progress, and Cancel terminates the worker (a new one starts). Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
-// String(value); the curves are drawn with the core's drawSeries / drawHistogram.
+// String(value) (a bound, "≥ 10°", also data-bound); the design's warnings and shop notes are
+// lists in the panel's words (.design-advice, role=status); the curves are drawn with the core's
+// drawSeries / drawHistogram.
 //
 // Contract: one export, setupDesign(pageLinks), called once by app.js after the core has
 // loaded. It receives everything it uses of the page as explicit parameters (see there) and
@@ -134,7 +136,9 @@ function setGroupHint(box, text) {
 
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
 function mediumFields(prefix, fallback, whose) {
-  const options = page.materialList.map((m) => [m.key, m.name]);
+  // The page's name of each material, which marks a formula without a journal source
+  // ("unverified data").
+  const options = page.materialList.map((m) => [m.key, page.materialName(m.key)]);
   options.push(['custom', 'custom indices']);
   const of = whose ? ` of the ${whose}` : '';
   const material = dfield(`${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
@@ -250,8 +254,13 @@ function layoutDesignFields() {
   setGroupHint(design.bandBox, hints.band);
   dfields.cut_tilt_deg.setHint(hints.cut_tilt_deg);
   for (const [prefix, custom] of design.mediumBoxes) {
-    const hide = dfields[`${prefix}material`].value !== 'custom';
+    const key = dfields[`${prefix}material`].value;
+    const hide = key !== 'custom';
     if (custom.hidden !== hide) custom.hidden = hide;
+    // A formula without a journal source says so beside its select, where a narrow select
+    // would cut the "(unverified data)" of its option text.
+    const unverified = page.materialList.some((m) => m.key === key && m.verified === false);
+    dfields[`${prefix}material`].setHint(unverified ? 'Unverified data: its dispersion formula has no journal source.' : null);
   }
   const order = dfields.order.value;
   dfields.order_number.row.hidden = order !== 'multiple';
@@ -408,6 +417,8 @@ const dfmt = {
   yes: (v) => (v ? 'yes' : 'no'),
   index: (v) => fixed(v, 6),
   deg: (v) => `${fixed(v, 4, 5e-13)}°`,
+  /** An angle to at most 4 decimals without trailing zeros ("≥ 10°" for a bound, not "10.0000°"). */
+  angle: (v) => `${trimmed(v, 4)}°`,
   nm: (v) => `${trimmed(v, 3)}${NBSP}nm`,
   length: (v) => {
     const a = Math.abs(v);
@@ -439,11 +450,27 @@ function designValue(d, path) {
   return v;
 }
 
-/** A result as text: data-quantity = design.<path>, data-value = String(value). */
+/**
+ * The bound flag of the result at `path`: its sibling `<name>_bound` (the name without its unit
+ * suffix, so `acceptance_deg` -> `acceptance_bound`; DEVELOPERS.md, "Bounds"), or undefined.
+ */
+function boundOf(d, path) {
+  const i = path.lastIndexOf('.');
+  const name = path.slice(i + 1).replace(/_(deg|mm|nm|waves|rad)$/, '');
+  const b = designValue(d, `${path.slice(0, i + 1)}${name}_bound`);
+  return typeof b === 'string' ? b : undefined;
+}
+
+/**
+ * A result as text: data-quantity = design.<path>, data-value = String(value). A value that is
+ * only a lower bound reads "≥ 10°" and carries data-bound (the flag, `at_least` or `found`).
+ */
 function dq(d, path, format, tag = 'span', attrs = {}) {
   const v = designValue(d, path);
   if (v === undefined) return null;
-  return h(tag, { ...attrs, 'data-quantity': `design.${path}`, 'data-value': String(v), text: v === null ? '—' : format(v) });
+  const bound = boundOf(d, path);
+  const text = v === null ? '—' : `${bound === 'at_least' ? `≥${NBSP}` : ''}${format(v)}`;
+  return h(tag, { ...attrs, 'data-quantity': `design.${path}`, 'data-value': String(v), 'data-bound': bound, text });
 }
 
 /** A card of labelled results of design `d`. rows: [label, path, format] or [label, element] or null. */
@@ -465,8 +492,46 @@ function designCard(d, title, rows, { note, className } = {}) {
   );
 }
 
+/** "A calcite", "An alpha barium borate": a name with its indefinite article (by its first letter). */
+function article(name, capital = true) {
+  const a = /^[aeiou]/i.test(name) ? 'an' : 'a';
+  return `${capital ? a.toUpperCase().slice(0, 1) + a.slice(1) : a} ${name}`;
+}
+
 function designMaterialName(key) {
   return key === 'custom' ? 'custom-index' : page.materialName(key);
+}
+
+// --- warnings and shop notes ----------------------------------------------------------------
+
+/**
+ * A warning or shop note of the design in the panel's words: the request field that begins a
+ * warning (`band_nm[1]: `, `band_nm (default): `; DEVELOPERS.md, "Design requests") becomes the
+ * label of that field ("Band to: …"). Returns {field, text}.
+ */
+function adviceText(raw) {
+  const text = String(raw);
+  const m = /^([A-Za-z_][\w.[\]]*)( \(default\))?: ([\s\S]*)$/.exec(text);
+  if (!m) return { field: '', text: text.charAt(0).toUpperCase() + text.slice(1) };
+  return { field: m[1], text: `${designLabel(m[1])}${m[2] ?? ''}: ${m[3]}` };
+}
+
+/** The design's warnings and shop notes in readable words: {warnings: [text], notes: [text]}. */
+function adviceOf(d) {
+  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(t)) : []);
+  return { warnings: words(d.warnings), notes: words(d.notes) };
+}
+
+/** The warnings and shop notes as visible lists (role=status), or null when there are none. */
+function adviceLists(advice) {
+  const box = (key, title, items, className) => (items.length
+    ? h('div', { className, 'data-design-advice': key },
+      h('h4', { text: title }),
+      h('ul', {}, ...items.map((a) => h('li', { 'data-field': a.field, text: a.text }))))
+    : null);
+  const warnings = box('warnings', 'Warnings', advice.warnings, 'warnings has-warnings design-warnings');
+  const notes = box('notes', 'Shop notes (guidance)', advice.notes, 'warnings design-notes');
+  return warnings || notes ? h('div', { className: 'design-advice', role: 'status' }, warnings, notes) : null;
 }
 
 // --- results by kind -------------------------------------------------------------------------
@@ -476,7 +541,7 @@ function displacerResults(d, run) {
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `A ${designMaterialName(s.material)} plate `,
+    `${article(designMaterialName(s.material))} plate `,
     dq(d, 'length_mm', dfmt.length, 'strong'),
     ' long, cut at ',
     dq(d, 'cut_tilt_deg', dfmt.deg, 'strong'),
@@ -587,10 +652,10 @@ function waveplateResults(d) {
       ['nₑ − nₒ', 'birefringence', dfmt.sig('', 6)],
     ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
     designCard(d, 'Angle of incidence', [
-      ['acceptance (worst plane)', 'acceptance_deg', dfmt.deg],
-      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, dfmt.deg]),
+      ['acceptance (worst plane)', 'acceptance_deg', dfmt.angle],
+      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, dfmt.angle]),
     ], {
-      note: `Largest incidence up to which the retardance stays within the acceptance error of its value at normal incidence; the worst plane is at ${trimmed(worst.plane_azimuth_deg, 2)}° to the optic axis. A value at the end of the curve means it never leaves.`,
+      note: `Largest incidence up to which the retardance stays within the acceptance error of its value at normal incidence; the worst plane is at ${trimmed(worst.plane_azimuth_deg, 2)}° to the optic axis. “≥” marks a bound: the retardance had not left by the largest incidence computed.`,
     }),
   ];
 }
@@ -605,9 +670,9 @@ function achromatResults(d) {
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `A ${designMaterialName(p[0].material)} plate `,
+    `${article(designMaterialName(p[0].material))} plate `,
     dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'),
-    ` thick, ${axis(p[0])}, and a ${designMaterialName(p[1].material)} plate `,
+    ` thick, ${axis(p[0])}, and ${article(designMaterialName(p[1].material), false)} plate `,
     dq(d, 'plates.1.thickness_mm', dfmt.length, 'strong'),
     ` thick, ${axis(p[1])}; optic axes in the faces.`,
   );
@@ -935,7 +1000,8 @@ function renderDesign() {
         : recombinerResults(d);
   const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
-  results.replaceChildren(head, parts[0]);
+  const advice = adviceOf(d);
+  results.replaceChildren(...[head, adviceLists(advice), parts[0]].filter(Boolean));
   cardBox.replaceChildren(...parts.slice(1));
 
   for (const p of design.plots) design.resize.unobserve(p.box);
@@ -949,7 +1015,11 @@ function renderDesign() {
   document.getElementById('design-use').disabled = false;
   updateDesignStale();
   const kindName = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
-  updateOrderSheet({ kindName, request: s.request, design: d, complete: s.complete }, { materialList: page.materialList, materialName: designMaterialName });
+  const words = (list) => list.map((a) => a.text);
+  updateOrderSheet(
+    { kindName, request: s.request, design: d, complete: s.complete, warnings: words(advice.warnings), notes: words(advice.notes) },
+    { materialList: page.materialList, materialName: designMaterialName },
+  );
 }
 
 // --- the design part of a shared link --------------------------------------------------------

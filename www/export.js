@@ -227,12 +227,16 @@ function bandText(curve, wavelength) {
   return `${nm(wavelength)} only (the request gave no band: the part is specified at this wavelength alone)`;
 }
 
-/** What the sheet says of a material: its name and the source of its data. */
+/**
+ * What the sheet says of a material: its name and the source of its data; a formula with no
+ * journal source (`verified` false in the catalogue) says "unverified data" beside its name.
+ */
 function materialRows(key, label, links) {
   const m = links.materialList.find((x) => x.key === key);
   if (!m) return [[label, `${links.materialName(key)}`], ['Data source', 'custom indices given in the request (no dispersion, no source)']];
   const name = m.name.toLowerCase().includes(m.key) ? m.name : `${m.name} (${m.key})`;
-  return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm`], ['Data source', m.citation]];
+  const unverified = m.verified === false ? '; unverified data: its formula has no journal source' : '';
+  return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`], ['Data source', m.citation]];
 }
 
 /** The sheet's rows [term, text] for a solved design of each kind. */
@@ -267,7 +271,11 @@ function orderRows(shown, links) {
     rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
     rows.push(['Wavelength band', bandText(d.wavelength_curve, wl)]);
     if (d.kind === 'waveplate') {
-      rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at ${nm(wl)}, ${d.order} order; acceptance ${deg(d.acceptance_deg, 3)} of incidence`]);
+      // A bound (`acceptance_bound` "at_least") is written as one: the limit was not reached.
+      const acceptance = d.acceptance_bound === 'at_least'
+        ? `≥ ${deg(d.acceptance_deg, 3)} of incidence (the limit was not reached within the angles computed)`
+        : `${deg(d.acceptance_deg, 3)} of incidence`;
+      rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at ${nm(wl)}, ${d.order} order; acceptance ${acceptance}`]);
     } else {
       rows.push(['Performance', `largest departure from the target over the band ${sheetNumber(d.max_error_waves, 3)} waves`]);
     }
@@ -283,12 +291,16 @@ function orderRows(shown, links) {
     rows.push(['Wavelength band', bandText(null, d.scenario?.wavelength_nm ?? r.wavelength_nm ?? 632.8)]);
     rows.push(['Performance', d.verdict ?? '']);
   }
+  // The design's warnings and the shop's notes, in the panel's words (lists of text).
+  if (shown.warnings?.length) rows.push(['Warnings', shown.warnings]);
+  if (shown.notes?.length) rows.push(['Shop notes', shown.notes]);
   return rows;
 }
 
 /**
  * Writes #order-sheet from the design shown in the design panel ({kindName, request, design,
- * complete}), or empties it (null). `links` gives {materialList, materialName}.
+ * complete, warnings, notes}; the last two lists of text in the panel's words), or empties it
+ * (null). `links` gives {materialList, materialName}.
  */
 export function updateOrderSheet(shown, links) {
   const box = document.getElementById('order-sheet');
@@ -300,7 +312,8 @@ export function updateOrderSheet(shown, links) {
   }
   const list = h('dl', { className: 'order-list' });
   for (const [term, text] of orderRows(shown, links)) {
-    list.appendChild(h('div', { 'data-order': term }, h('dt', { text: term }), h('dd', { text })));
+    const dd = Array.isArray(text) ? h('dd', {}, h('ul', {}, ...text.map((t) => h('li', { text: t })))) : h('dd', { text });
+    list.appendChild(h('div', { 'data-order': term }, h('dt', { text: term }), dd));
   }
   box.replaceChildren(
     h('h2', { text: `Order sheet: ${shown.kindName}` }),

@@ -119,13 +119,22 @@ function mismatches(shown, cli, required, { fdTolerance = false } = {}) {
   return out;
 }
 
-async function expectAgreement(page, required, what, options = {}) {
+/**
+ * The command line's design of the request the panel shows solved (the numbers themselves are
+ * compared by expectAgreement).
+ */
+async function shownAndCli(page, what) {
   const request = await page.evaluate(() => window.doublespar.designRequest());
   const shown = await page.evaluate(() => window.doublespar.designShown());
   assert.ok(shown && shown.complete, `${what}: a complete design is shown`);
   assert.deepEqual(shown.request, request, `${what}: the design shown is for the request the fields say`);
   const cli = cliDesign(request);
   assert.ok(!cli.error, `${what}: the command line solves the request: ${JSON.stringify(cli.error)}`);
+  return { request, cli };
+}
+
+async function expectAgreement(page, required, what, options = {}) {
+  const { request, cli } = await shownAndCli(page, what);
   const q = await designQuantities(page);
   assert.deepEqual(mismatches(q, cli, required, options), [], `${what}: the page and the command line disagree`);
   return { request, cli, quantities: Object.fromEntries(q) };
@@ -513,4 +522,105 @@ test('the panel is labelled, reachable by keyboard and fits 1280 px and 400 px (
     );
     assert.ok(fs.statSync(path.join(ARTIFACTS, name)).size > 1000, `${name} written`);
   }
+});
+
+/** The design's warnings and shop notes as the panel lists them: {warnings: [text], notes: [text], role}. */
+const adviceShown = (page) =>
+  page.evaluate(() => {
+    const list = (key) => [...document.querySelectorAll(`#design-results [data-design-advice="${key}"] li`)]
+      .filter((li) => li.getClientRects().length > 0)
+      .map((li) => li.textContent);
+    const box = document.querySelector('#design-results .design-advice');
+    return { warnings: list('warnings'), notes: list('notes'), role: box ? box.getAttribute('role') : null };
+  });
+
+/** The order sheet's rows as {term: text}. */
+const orderSheet = (page) =>
+  page.evaluate(() => Object.fromEntries([...document.querySelectorAll('#order-sheet [data-order]')]
+    .map((r) => [r.dataset.order, r.querySelector('dd').textContent])));
+
+test('warnings, shop notes and bounds read as words in the panel and on the order sheet; alpha-BBO is marked unverified wherever it is named', { timeout: 120000 }, async () => {
+  await withPage(async ({ page }) => {
+    // Every material list of the page (the set-up's and the panel's selects) marks the formula
+    // without a journal source, and only it (src/material.rs: alpha-BBO is the unverified one).
+    const options = await page.$$eval('select option', (els) => els
+      .filter((o) => /material$/.test(o.parentElement.dataset.field ?? o.parentElement.dataset.designField ?? ''))
+      .map((o) => [o.value, o.textContent]));
+    assert.ok(options.some(([v]) => v === 'alpha-bbo'), 'alpha-BBO is listed');
+    for (const [value, text] of options) {
+      assert.equal(/unverified data/.test(text), value === 'alpha-bbo', `option ${value}: ${text}`);
+    }
+
+    // An alpha-BBO displacer: the unverified-data warning, named by the label of its field.
+    await choose(page, 'kind', 'displacer');
+    await choose(page, 'material', 'alpha-bbo');
+    const hint = () => page.$eval(field('material'), (el) => {
+      const h = document.getElementById(`${el.id}-hint`);
+      return h && h.getClientRects().length > 0 ? h.textContent : '';
+    });
+    assert.match(await hint(), /^Unverified data/, 'the select says so beside it, where its option text may be cut');
+    await enter(page, 'wavelength_nm', '632.8');
+    await enter(page, 'separation_mm', '1');
+    await enter(page, 'samples', '0');
+    await solve(page);
+    const { cli } = await shownAndCli(page, 'alpha-BBO displacer');
+    let advice = await adviceShown(page);
+    assert.equal(advice.role, 'status', 'the lists are a status region');
+    assert.equal(advice.warnings.length, cli.warnings.length, `every warning of the command line is listed: ${advice.warnings}`);
+    assert.ok(advice.warnings.some((w) => /^Material of the part: unverified data for alpha-bbo/.test(w)), `the unverified-data warning in words: ${advice.warnings}`);
+    assert.ok(advice.warnings.every((w) => !/^[a-z_.[\]0-9]+: /.test(w)), `no request path opens a warning: ${advice.warnings}`);
+    const material = await page.textContent('#design-cards [data-quantity="design.material"]');
+    assert.match(material, /unverified data/, `the results' material line: ${material}`);
+    let sheet = await orderSheet(page);
+    assert.match(sheet.Material, /unverified data/, `the order sheet's material: ${sheet.Material}`);
+    assert.match(sheet.Warnings, /unverified data for alpha-bbo/, `the order sheet's warnings: ${sheet.Warnings}`);
+
+    // A displacer longer than about 100 mm (calcite, 12 mm separation: walk-off ≈ 6.2°, so
+    // L ≈ 12 mm / tan 6.2° ≈ 110 mm, from memory of calcite's indices) gets the long-crystal note.
+    await choose(page, 'material', 'calcite');
+    assert.equal(await hint(), '', 'no such hint for calcite');
+    await enter(page, 'separation_mm', '12');
+    await solve(page);
+    const long = await shownAndCli(page, 'long calcite displacer');
+    assert.ok(long.cli.length_mm > 100, `the plate is ${long.cli.length_mm} mm long`);
+    advice = await adviceShown(page);
+    assert.deepEqual(advice.warnings, [], 'calcite at 632.8 nm has no warning');
+    assert.equal(advice.notes.length, long.cli.notes.length, `every shop note is listed: ${advice.notes}`);
+    assert.ok(advice.notes.some((n) => /^The plate \(calcite\) is [\d.]+ mm long, longer than about 100 mm/.test(n)), `the long-crystal note: ${advice.notes}`);
+    sheet = await orderSheet(page);
+    assert.match(sheet['Shop notes'], /longer than about 100 mm/, `the order sheet's notes: ${sheet['Shop notes']}`);
+    assert.equal(sheet.Warnings, undefined, 'no warnings row without warnings');
+
+    // A zero-order quartz quarter-wave plate keeps its retardance within 0.01 waves up to the
+    // largest incidence asked (10°): its acceptance is a bound, shown as one.
+    await choose(page, 'kind', 'waveplate');
+    await choose(page, 'order', 'zero');
+    await choose(page, 'material', 'quartz');
+    await enter(page, 'retardance_waves', '0.25');
+    await solve(page);
+    const wp = await shownAndCli(page, 'quartz quarter-wave');
+    assert.equal(wp.cli.acceptance_bound, 'at_least');
+    const acc = await page.$eval('#design-cards [data-quantity="design.acceptance_deg"]', (el) => ({ text: el.textContent, value: el.dataset.value, bound: el.dataset.bound }));
+    assert.equal(acc.text, '≥\u00a010°', `a bound reads as one: ${acc.text}`);
+    assert.equal(acc.value, String(wp.cli.acceptance_deg), 'data-value stays the number');
+    assert.equal(acc.bound, 'at_least');
+    const planes = await page.$$eval('#design-cards [data-quantity^="design.angular."]', (els) => els.map((el) => [el.dataset.bound, el.textContent]));
+    assert.equal(planes.length, wp.cli.angular.length);
+    planes.forEach(([bound, text], i) => {
+      assert.equal(bound, wp.cli.angular[i].acceptance_bound);
+      assert.equal(text.startsWith('≥'), bound === 'at_least', `plane ${i}: ${text}`);
+    });
+    advice = await adviceShown(page);
+    assert.ok(advice.notes.some((n) => /thinner than about 0\.1 mm/.test(n)), `the thin-plate note: ${advice.notes}`);
+    sheet = await orderSheet(page);
+    assert.match(sheet.Performance, /acceptance ≥ 10° of incidence/, `the order sheet's acceptance: ${sheet.Performance}`);
+
+    // Where the limit is found (a 40° range: the plate leaves 0.01 waves before it), no "≥".
+    await enter(page, 'max_incidence_deg', '40');
+    await solve(page);
+    const found = await shownAndCli(page, 'quartz quarter-wave, 40°');
+    assert.equal(found.cli.acceptance_bound, 'found');
+    const accFound = await page.$eval('#design-cards [data-quantity="design.acceptance_deg"]', (el) => ({ text: el.textContent, bound: el.dataset.bound }));
+    assert.ok(!accFound.text.includes('≥') && accFound.bound === 'found', `a found acceptance is a plain angle: ${accFound.text}`);
+  });
 });
