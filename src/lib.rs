@@ -13,6 +13,7 @@ pub mod jones;
 pub mod json_fields;
 pub mod material;
 pub mod modes;
+pub mod numfmt;
 pub mod plate;
 pub mod precision;
 pub mod scenario;
