@@ -11,6 +11,7 @@ pub mod error;
 pub mod interface;
 pub mod jones;
 pub mod json_fields;
+pub mod label_layout;
 pub mod material;
 pub mod modes;
 pub mod numfmt;
