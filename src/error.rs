@@ -6,6 +6,7 @@
 //! the message beside the control that holds the bad value. Functions below the scenario layer fill
 //! in the leaf name; the scenario layer prefixes the path with [`Error::within`].
 
+use crate::numfmt::quote;
 use std::fmt;
 
 /// An input that Doublespar cannot use, with the field that holds it.
@@ -65,7 +66,10 @@ pub fn finite(field: &str, value: f64) -> Result<f64, Error> {
     if value.is_finite() {
         Ok(value)
     } else {
-        Err(Error::new(field, format!("must be a finite number, got {value}")))
+        Err(Error::new(
+            field,
+            format!("must be a finite number, got {}", quote(value)),
+        ))
     }
 }
 
@@ -78,7 +82,10 @@ pub fn positive(field: &str, value: f64) -> Result<f64, Error> {
     if v > 0.0 {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must be greater than zero, got {v}")))
+        Err(Error::new(
+            field,
+            format!("must be greater than zero, got {}", quote(v)),
+        ))
     }
 }
 
@@ -91,7 +98,7 @@ pub fn non_negative(field: &str, value: f64) -> Result<f64, Error> {
     if v >= 0.0 {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must not be negative, got {v}")))
+        Err(Error::new(field, format!("must not be negative, got {}", quote(v))))
     }
 }
 
@@ -104,7 +111,10 @@ pub fn in_range(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error>
     if (lo..=hi).contains(&v) {
         Ok(v)
     } else {
-        Err(Error::new(field, format!("must lie between {lo} and {hi}, got {v}")))
+        Err(Error::new(
+            field,
+            format!("must lie between {} and {}, got {}", quote(lo), quote(hi), quote(v)),
+        ))
     }
 }
 
@@ -132,5 +142,14 @@ mod tests {
         assert!(non_negative("x", -1e-300).is_err());
         assert_eq!(non_negative("x", 0.0), Ok(0.0));
         assert!(in_range("x", 91.0, -90.0, 90.0).is_err());
+    }
+
+    #[test]
+    fn messages_quote_huge_values_compactly() {
+        // The Display form of 1e308 has 309 digits; the message quotes "1e308".
+        let e = in_range("x", 1e308, 0.0, 1e4).unwrap_err();
+        assert!(e.message.contains("1e308") && e.message.len() < 60, "{}", e.message);
+        let e = positive("x", -1e-300).unwrap_err();
+        assert!(e.message.ends_with("got -1e-300"), "{}", e.message);
     }
 }

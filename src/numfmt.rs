@@ -89,6 +89,12 @@ fn signed(negative: bool, body: String) -> String {
 ///
 /// Degenerate cases: 0 (either sign) gives `0`; NaN gives `NaN`; infinities give `∞` and `−∞`.
 pub fn sig(v: f64, n: usize) -> String {
+    sig_within(v, n, MAX_DRAWN_CHARS)
+}
+
+/// As [`sig`], with a budget of `max_chars` characters (sign excluded) instead of
+/// [`MAX_DRAWN_CHARS`]: for text tables, whose columns hold more digits than a drawing.
+pub fn sig_within(v: f64, n: usize, max_chars: usize) -> String {
     if v.is_nan() {
         return "NaN".to_string();
     }
@@ -104,7 +110,7 @@ pub fn sig(v: f64, n: usize) -> String {
         for k in (1..=n).rev() {
             let (d, e) = digits_and_exponent(v, k);
             let p = plain_digits(&d, e);
-            if p.chars().count() <= MAX_DRAWN_CHARS || k == 1 {
+            if p.chars().count() <= max_chars || k == 1 {
                 return signed(v < 0.0, p);
             }
         }
@@ -117,7 +123,7 @@ pub fn sig(v: f64, n: usize) -> String {
             d.clone()
         };
         let s = format!("{m}×10{}", superscript(e));
-        if s.chars().count() <= MAX_DRAWN_CHARS || k == 1 {
+        if s.chars().count() <= max_chars || k == 1 {
             return signed(v < 0.0, s);
         }
     }
@@ -129,8 +135,13 @@ pub fn sig(v: f64, n: usize) -> String {
 /// characters (|v| ≥ 10⁷, or many decimals) it falls back to [`sig`] with `decimals` + 1 digits,
 /// so that it too stays short.
 pub fn fixed(v: f64, decimals: usize, floor: f64) -> String {
+    fixed_within(v, decimals, floor, MAX_DRAWN_CHARS)
+}
+
+/// As [`fixed`], with a budget of `max_chars` characters (sign excluded): for text tables.
+pub fn fixed_within(v: f64, decimals: usize, floor: f64, max_chars: usize) -> String {
     if !v.is_finite() || v.abs() >= 1e7 {
-        return sig(v, decimals + 1);
+        return sig_within(v, decimals + 1, max_chars);
     }
     let v = if v.abs() < floor { 0.0 } else { v };
     let s = format!("{:.*}", decimals.min(12), v);
@@ -138,8 +149,8 @@ pub fn fixed(v: f64, decimals: usize, floor: f64) -> String {
         Some(rest) => (rest.chars().any(|c| c.is_ascii_digit() && c != '0'), rest.to_string()),
         None => (false, s),
     };
-    if body.chars().count() > MAX_DRAWN_CHARS {
-        return sig(v, decimals + 1);
+    if body.chars().count() > max_chars {
+        return sig_within(v, decimals + 1, max_chars);
     }
     signed(negative, body)
 }
@@ -267,18 +278,20 @@ pub fn tick(v: f64, step: f64) -> String {
     sig(v, n)
 }
 
-/// A number from the input, quoted compactly for a message: its shortest round-trip form, or
-/// ASCII e-notation when shorter (`1e308`), cut to 6 significant digits when longer than 12
-/// characters.
+/// A number from the input, quoted compactly for a message: its shortest round-trip form when
+/// that takes at most 12 characters (`10000`, `0.25`), else in ASCII e-notation (`1e308`), cut to
+/// 6 significant digits when still longer.
 pub fn quote(v: f64) -> String {
     if !v.is_finite() {
         return format!("{v}");
     }
     let plain = format!("{v}");
     let exp = format!("{v:e}");
-    let best = if exp.len() < plain.len() { exp } else { plain };
-    if best.len() <= 12 {
-        return best;
+    if plain.len() <= 12 {
+        return plain;
+    }
+    if exp.len() <= 12 {
+        return exp;
     }
     let short = format!("{v:.5e}");
     let (m, e) = short.split_once('e').unwrap_or((&short, "0"));

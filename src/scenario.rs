@@ -33,6 +33,7 @@ use crate::error::{Error, in_range};
 use crate::interface::Losses;
 use crate::json_fields::{Fields, number_list, type_name};
 use crate::material::{self, Indices, Material};
+use crate::numfmt::{quote, quote_text};
 use crate::wavelength::Wavelength;
 use serde_json::{Value, json};
 
@@ -182,7 +183,10 @@ impl Scenario {
         if let Some(v) = f.get("version")
             && v.as_u64() != Some(1)
         {
-            return Err(Error::new("version", format!("only version 1 is understood, got {v}")));
+            return Err(Error::new(
+                "version",
+                format!("only version 1 is understood, got {}", quote_text(&v.to_string())),
+            ));
         }
         let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
         let wavelength = Wavelength::from_nm(wl_nm)?;
@@ -193,7 +197,10 @@ impl Scenario {
             Some(other) => {
                 return Err(Error::new(
                     "interface_losses",
-                    format!("unknown value '{other}'; expected \"ideal\" or \"uncoated\""),
+                    format!(
+                        "unknown value '{}'; expected \"ideal\" or \"uncoated\"",
+                        quote_text(other)
+                    ),
                 ));
             }
         };
@@ -311,7 +318,10 @@ fn parse_beam(v: &Value) -> Result<Beam, Error> {
             if p.abs() >= 90.0 {
                 return Err(Error::new(
                     "beam.incidence.polar_deg",
-                    format!("must lie strictly between −90 and 90 (grazing light never enters), got {p}"),
+                    format!(
+                        "must lie strictly between −90 and 90 (grazing light never enters), got {}",
+                        quote(p)
+                    ),
                 ));
             }
             let a = ranged(&mut g, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
@@ -351,7 +361,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             Some(other) => {
                 return Err(Error::new(
                     format!("{P}.handedness"),
-                    format!("unknown value '{other}'; expected \"right\" or \"left\""),
+                    format!("unknown value '{}'; expected \"right\" or \"left\"", quote_text(other)),
                 ));
             }
             None => {
@@ -399,7 +409,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             if s[0].is_nan() || s[0] <= 0.0 {
                 return Err(Error::new(
                     format!("{path}[0]"),
-                    format!("S0 must be greater than zero, got {}", s[0]),
+                    format!("S0 must be greater than zero, got {}", quote(s[0])),
                 ));
             }
             let pol = (s[1] * s[1] + s[2] * s[2] + s[3] * s[3]).sqrt();
@@ -415,7 +425,10 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
         other => {
             return Err(Error::new(
                 format!("{P}.kind"),
-                format!("unknown kind '{other}'; expected linear, circular, elliptical, jones, stokes or unpolarized"),
+                format!(
+                    "unknown kind '{}'; expected linear, circular, elliptical, jones, stokes or unpolarized",
+                    quote_text(other)
+                ),
             ));
         }
     };
@@ -479,7 +492,10 @@ fn parse_element(path: &str, v: &Value) -> Result<Element, Error> {
         other => {
             return Err(Error::new(
                 kind_path,
-                format!("unknown element kind '{other}'; expected crystal, retarder, polarizer or rotator"),
+                format!(
+                    "unknown element kind '{}'; expected crystal, retarder, polarizer or rotator",
+                    quote_text(other)
+                ),
             ));
         }
     };
@@ -501,7 +517,11 @@ fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
             let m = material::find(key).ok_or_else(|| {
                 Error::new(
                     &material_path,
-                    format!("unknown material '{key}'; known: {}", material::keys().join(", ")),
+                    format!(
+                        "unknown material '{}'; known: {}",
+                        quote_text(key),
+                        material::keys().join(", ")
+                    ),
                 )
             })?;
             Medium::Catalogue(m)
@@ -528,7 +548,7 @@ fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
     if thickness_mm <= 0.0 {
         return Err(Error::new(
             thickness_path,
-            format!("must be greater than zero, got {thickness_mm}"),
+            format!("must be greater than zero, got {}", quote(thickness_mm)),
         ));
     }
     let axis_path = f.path_of("axis");
