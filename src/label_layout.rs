@@ -58,67 +58,40 @@ pub const CAPTION_PX: f64 = 11.0;
 /// names.
 pub const BASELINE_LIFT_PX: f64 = 3.0;
 
+/// DejaVu Sans advance widths of the printable ASCII characters (space to `~`), in thousandths
+/// of an em (see the module header).
+const ASCII_MILLI_EM: [u16; 95] = [
+    318, 401, 460, 838, 636, 950, 780, 275, 390, 390, 500, 838, 318, 361, 318, 337, // space to /
+    636, 636, 636, 636, 636, 636, 636, 636, 636, 636, 337, 337, 838, 838, 838, 531, // 0 to ?
+    1000, 684, 686, 698, 770, 632, 575, 775, 752, 295, 295, 656, 557, 863, 748, 787, // @ to O
+    603, 787, 695, 635, 611, 732, 684, 989, 685, 611, 685, 390, 337, 390, 838, 500, // P to _
+    500, 613, 635, 550, 635, 615, 352, 635, 634, 278, 278, 579, 278, 974, 634, 612, // ` to o
+    635, 635, 411, 521, 392, 634, 592, 818, 592, 592, 525, 636, 337, 636, 838, // p to ~
+];
+
 /// Advance width of `c` in DejaVu Sans, in em (see the module header).
 pub fn char_width_em(c: char) -> f64 {
-    match c {
-        'i' | 'j' | 'l' | '\'' => 0.278,
-        ' ' | '.' | ',' | '·' => 0.3179, // 651/2048
-        ':' | ';' | '|' | '/' | '\\' => 0.337,
-        'I' | 'J' => 0.295,
-        'f' => 0.352,
-        '-' => 0.361,
-        '(' | ')' | '[' | ']' => 0.39,
-        't' => 0.392,
-        '!' | '⁰'..='⁹' | '¹' | '²' | '³' => 0.401,
-        'r' => 0.411,
-        'ₒ' | 'ₑ' => 0.417,
-        '"' => 0.46,
-        '*' | '_' | '°' | '–' => 0.5,
-        's' => 0.521,
-        'z' => 0.525,
-        '⁻' => 0.528,
-        '?' => 0.531,
-        'c' => 0.55,
-        'L' | 'Γ' => 0.557,
-        'F' => 0.575,
-        'χ' => 0.578,
-        'k' => 0.579,
-        'v' | 'x' | 'y' => 0.592,
-        'P' => 0.603,
-        'T' | 'Y' => 0.611,
-        'o' => 0.612,
-        'a' => 0.613,
-        'e' => 0.615,
-        'E' => 0.632,
-        'h' | 'n' | 'u' | 'σ' => 0.634,
-        'b' | 'd' | 'g' | 'p' | 'q' | 'S' | 'ρ' => 0.635,
-        '0'..='9' | '$' | '{' | '}' | 'µ' | '√' => 0.637,
-        'K' => 0.656,
-        'ψ' => 0.66,
-        'A' | 'V' | 'Δ' | 'X' | 'Z' => 0.685,
-        'B' | 'R' => 0.695,
-        'C' => 0.698,
-        'U' => 0.732,
-        'N' => 0.748,
-        'H' => 0.752,
-        'D' => 0.77,
-        'G' => 0.775,
-        '&' => 0.78,
-        'O' | 'Q' => 0.787,
-        'w' => 0.818,
-        '#' | '+' | '<' | '=' | '>' | '^' | '~' | '±' | '×' | '−' | '→' | '↑' | '⊙' | '⊗' | '≥' | '≤' | '≈' => {
-            0.838
-        }
-        'M' => 0.863,
-        '%' => 0.95,
-        'm' => 0.974,
-        'W' => 0.989,
-        _ => 1.0,
-    }
+    let milli = match c {
+        ' '..='~' => ASCII_MILLI_EM[c as usize - 32],
+        '·' => 318,
+        '⁰'..='⁹' | '¹' | '²' | '³' => 401,
+        'ₒ' | 'ₑ' => 417,
+        '°' | '–' => 500,
+        '⁻' => 528,
+        'Γ' => 557,
+        'χ' => 578,
+        'ρ' | 'σ' | 'µ' | '√' => 637,
+        'ψ' => 660,
+        'Δ' => 684,
+        '±' | '×' | '−' | '→' | '↑' | '⊙' | '⊗' | '≥' | '≤' | '≈' => 838,
+        _ => 1000,
+    };
+    f64::from(milli) / 1000.0
 }
 
 /// Estimated width in px of `text` drawn at `size_px` (the model of the module header, with its
 /// margin and a pixel of padding on each side).
+#[inline(never)] // one copy in the page's WebAssembly, not one per caller
 pub fn text_width_px(text: &str, size_px: f64) -> f64 {
     let em: f64 = text.chars().map(char_width_em).sum();
     em * size_px * WIDTH_MARGIN + 2.0
@@ -224,7 +197,8 @@ struct Request {
     fixed: bool,
     /// Wished box.
     bbox: BoxPx,
-    order: usize,
+    /// Where it went, once placed.
+    placed: Option<BoxPx>,
 }
 
 /// The scene's labels placed for a `width` × `height` panel with `margin` px around the drawing
@@ -249,47 +223,44 @@ pub fn truncate_to(text: &str, size_px: f64, max_px: f64) -> String {
     if text_width_px(text, size_px) <= max_px {
         return text.to_string();
     }
-    let mut out: String = String::new();
+    let mut out = String::new();
+    let mut width = text_width_px("…", size_px);
     for c in text.chars() {
-        let trial = format!("{out}{c}…");
-        if text_width_px(&trial, size_px) > max_px {
+        width += char_width_em(c) * size_px * WIDTH_MARGIN;
+        if width > max_px {
             break;
         }
         out.push(c);
     }
-    format!("{}…", out.trim_end())
+    while out.ends_with(' ') {
+        out.pop();
+    }
+    out.push('…');
+    out
 }
 
 /// `text` broken at spaces into at most `max_lines` lines of at most `max_px`, the last cut with
 /// an ellipsis when the text does not fit.
 pub fn wrap(text: &str, size_px: f64, max_px: f64, max_lines: usize) -> Vec<String> {
-    let mut lines: Vec<String> = Vec::new();
-    let mut current = String::new();
-    let words: Vec<&str> = text.split(' ').collect();
-    for (i, word) in words.iter().enumerate() {
-        let trial = if current.is_empty() {
-            word.to_string()
-        } else {
-            format!("{current} {word}")
-        };
-        if text_width_px(&trial, size_px) <= max_px || current.is_empty() {
-            current = trial;
-        } else {
-            lines.push(std::mem::take(&mut current));
-            if lines.len() == max_lines {
-                let rest = words[i..].join(" ");
-                let last = lines.pop().unwrap_or_default();
-                lines.push(truncate_to(&format!("{last} {rest}"), size_px, max_px));
-                return lines;
+    let mut lines: Vec<String> = vec![String::new()];
+    for word in text.split(' ') {
+        let full = lines.len() == max_lines;
+        if let Some(line) = lines.last_mut() {
+            let fits = text_width_px(line, size_px) + text_width_px(word, size_px) - 2.0
+                + char_width_em(' ') * size_px * WIDTH_MARGIN
+                <= max_px;
+            if line.is_empty() || fits || full {
+                if !line.is_empty() {
+                    line.push(' ');
+                }
+                line.push_str(word);
+                continue;
             }
-            current = word.to_string();
         }
+        lines.push(word.to_string());
     }
-    if !current.is_empty() {
-        lines.push(current);
-    }
-    if let Some(last) = lines.pop() {
-        lines.push(truncate_to(&last, size_px, max_px));
+    if let Some(line) = lines.last_mut() {
+        *line = truncate_to(line, size_px, max_px);
     }
     lines
 }
@@ -307,11 +278,13 @@ impl Grid {
         let cell = 48.0;
         let cols = (width / cell).ceil().clamp(1.0, 1000.0) as usize;
         let rows = (height / cell).ceil().clamp(1.0, 1000.0) as usize;
+        let mut cells = Vec::new();
+        cells.resize_with(cols * rows, Vec::new);
         Grid {
             cell,
             cols,
             rows,
-            cells: vec![Vec::new(); cols * rows],
+            cells,
         }
     }
 
@@ -323,7 +296,16 @@ impl Grid {
 
     fn free(&self, b: &BoxPx, boxes: &[BoxPx]) -> bool {
         let (c0, c1, r0, r1) = self.range(b);
-        (r0..=r1).all(|r| (c0..=c1).all(|c| self.cells[r * self.cols + c].iter().all(|&k| !boxes[k].overlaps(b))))
+        for r in r0..=r1 {
+            for c in c0..=c1 {
+                for &k in &self.cells[r * self.cols + c] {
+                    if boxes[k].overlaps(b) {
+                        return false;
+                    }
+                }
+            }
+        }
+        true
     }
 
     fn insert(&mut self, b: &BoxPx, index: usize) {
@@ -336,20 +318,34 @@ impl Grid {
     }
 }
 
+/// The places tried for a movable label, nearest first: (dx in half box widths, dy in half
+/// lines), up to a whole width sideways and four lines up or down, ordered by the cost
+/// 2 |dx| + 0.75 |dy| (a box is typically four lines wide, so moving up or down a line is
+/// preferred to moving sideways by half the box). A table rather than a sort at run time, which
+/// would add a sort's code to the page's WebAssembly.
+#[rustfmt::skip]
+const OFFSETS: [(i8, i8); 65] = [
+    (0, 0), (0, -1), (0, 1), (0, -2), (0, 2), (-1, 0), (1, 0), (0, -3),
+    (0, 3), (-1, -1), (1, -1), (-1, 1), (1, 1), (0, -4), (0, 4), (-1, -2),
+    (1, -2), (-1, 2), (1, 2), (-2, 0), (2, 0), (-1, -3), (1, -3), (-1, 3),
+    (1, 3), (0, -6), (0, 6), (-2, -1), (2, -1), (-2, 1), (2, 1), (-1, -4),
+    (1, -4), (-1, 4), (1, 4), (-2, -2), (2, -2), (-2, 2), (2, 2), (0, -8),
+    (0, 8), (-2, -3), (2, -3), (-2, 3), (2, 3), (-1, -6), (1, -6), (-1, 6),
+    (1, 6), (-2, -4), (2, -4), (-2, 4), (2, 4), (-1, -8), (1, -8), (-1, 8),
+    (1, 8), (-2, -6), (2, -6), (-2, 6), (2, 6), (-2, -8), (2, -8), (-2, 8),
+    (2, 8),
+];
+
 /// Offsets (px) tried for a movable label whose box is `w` × `h`, nearest first.
-fn offsets(w: f64, h: f64) -> Vec<(f64, f64)> {
+fn offsets(w: f64, h: f64) -> impl Iterator<Item = (f64, f64)> {
     let line = h + 2.0;
-    let dys = [0.0, -0.5, 0.5, -1.0, 1.0, -1.5, 1.5, -2.0, 2.0, -3.0, 3.0, -4.0, 4.0];
-    let dxs = [0.0, -0.5, 0.5, -1.0, 1.0];
-    let mut out: Vec<(f64, f64)> = dys
+    OFFSETS
         .iter()
-        .flat_map(|&dy| dxs.iter().map(move |&dx| (dx * (w + 4.0), dy * line)))
-        .collect();
-    out.sort_by(|a, b| (a.0.abs() + 1.5 * a.1.abs()).total_cmp(&(b.0.abs() + 1.5 * b.1.abs())));
-    out
+        .map(move |&(dx, dy)| (0.5 * f64::from(dx) * (w + 4.0), 0.5 * f64::from(dy) * line))
 }
 
 /// The box moved the least distance that puts it inside the panel's inset, if it fits at all.
+#[inline(never)]
 fn clamp_into(b: BoxPx, width: f64, height: f64) -> Option<BoxPx> {
     let (lo_x, hi_x, lo_y, hi_y) = (INSET_PX, width - INSET_PX, INSET_PX, height - INSET_PX);
     if b.x1 - b.x0 > hi_x - lo_x || b.y1 - b.y0 > hi_y - lo_y {
@@ -369,49 +365,72 @@ fn clamp_into(b: BoxPx, width: f64, height: f64) -> Option<BoxPx> {
     Some(b.shifted(dx, dy))
 }
 
+impl Request {
+    /// A label whose baseline starts at (`left`, `baseline`).
+    #[allow(clippy::too_many_arguments)]
+    #[inline(never)]
+    fn new(
+        text: String,
+        size_px: f64,
+        role: Role,
+        bold: bool,
+        priority: Priority,
+        fixed: bool,
+        left: f64,
+        baseline: f64,
+    ) -> Request {
+        let bbox = text_box(&text, size_px, bold, left, baseline);
+        Request {
+            text,
+            size_px,
+            role,
+            bold,
+            priority,
+            fixed,
+            bbox,
+            placed: None,
+        }
+    }
+}
+
 /// As [`layout`], with the placement rule chosen.
 pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placement: Placement) -> Layout {
     let vp = Viewport::fit(scene, width, height, margin);
     let small = width < SMALL_PANEL_WIDTH_PX || height < SMALL_PANEL_HEIGHT_PX;
     let mut requests: Vec<Request> = Vec::new();
-    let mut push =
-        |text: String, size_px: f64, role: Role, bold: bool, priority: Priority, fixed: bool, bbox: BoxPx| {
-            let order = requests.len();
-            requests.push(Request {
-                text,
-                size_px,
-                role,
-                bold,
-                priority,
-                fixed,
-                bbox,
-                order,
-            });
-        };
 
     // Title and caption, fitted to the width.
     let room = (width - 16.0).max(10.0);
     let title = truncate_to(&scene.title, TITLE_PX, room / BOLD_FACTOR);
-    push(
-        title.clone(),
+    requests.push(Request::new(
+        title,
         TITLE_PX,
         Role::Label,
         true,
         Priority::Key,
         true,
-        text_box(&title, TITLE_PX, true, 8.0, 16.0),
-    );
+        8.0,
+        16.0,
+    ));
     let lines = if scene.caption.is_empty() {
         Vec::new()
     } else {
         wrap(&scene.caption, CAPTION_PX, room, 2)
     };
-    let n = lines.len();
-    for (i, line) in lines.into_iter().enumerate() {
-        let step = (ASCENT_EM + DESCENT_EM) * CAPTION_PX + 3.0;
-        let baseline = height - 8.0 - (n - 1 - i) as f64 * step;
-        let b = text_box(&line, CAPTION_PX, false, 8.0, baseline);
-        push(line, CAPTION_PX, Role::Caption, false, Priority::Key, true, b);
+    let step = (ASCENT_EM + DESCENT_EM) * CAPTION_PX + 3.0;
+    let mut baseline = height - 8.0 - step * lines.len() as f64;
+    for line in lines {
+        baseline += step;
+        requests.push(Request::new(
+            line,
+            CAPTION_PX,
+            Role::Caption,
+            false,
+            Priority::Key,
+            true,
+            8.0,
+            baseline,
+        ));
     }
 
     let mut dimensions = Vec::new();
@@ -433,8 +452,16 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                     Anchor::Middle => x - 0.5 * w,
                     Anchor::End => x - w,
                 };
-                let b = text_box(text, *size_px, false, left, y - BASELINE_LIFT_PX);
-                push(text.clone(), *size_px, *role, false, *priority, *fixed, b);
+                requests.push(Request::new(
+                    text.clone(),
+                    *size_px,
+                    *role,
+                    false,
+                    *priority,
+                    *fixed,
+                    left,
+                    y - BASELINE_LIFT_PX,
+                ));
             }
             Item::Dimension { from, to, label, tag } => {
                 let (a, b) = (vp.map(*from), vp.map(*to));
@@ -449,70 +476,81 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                 });
                 let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
                 let size = 12.0;
-                let w = text_width_px(label, size);
                 // Beside a steep line, above a flat one.
-                let bx = if (b[1] - a[1]).abs() > (b[0] - a[0]).abs() {
-                    text_box(label, size, false, mid[0] + 4.0, mid[1] + 0.35 * size)
+                let (left, baseline) = if (b[1] - a[1]).abs() > (b[0] - a[0]).abs() {
+                    (mid[0] + 4.0, mid[1] + 0.35 * size)
                 } else {
-                    text_box(label, size, false, mid[0] - 0.5 * w, mid[1] - 4.0)
+                    (mid[0] - 0.5 * text_width_px(label, size), mid[1] - 4.0)
                 };
-                push(label.clone(), size, Role::Dimension, false, Priority::Key, false, bx);
+                requests.push(Request::new(
+                    label.clone(),
+                    size,
+                    Role::Dimension,
+                    false,
+                    Priority::Key,
+                    false,
+                    left,
+                    baseline,
+                ));
             }
             _ => {}
         }
     }
 
-    let mut order: Vec<usize> = (0..requests.len()).collect();
-    order.sort_by_key(|&i| (requests[i].priority, requests[i].order));
+    // Most important first, each priority in the scene's order.
     let mut grid = Grid::new(width, height);
     let mut boxes: Vec<BoxPx> = Vec::new();
-    let mut placed: Vec<(usize, BoxPx)> = Vec::new();
     let mut left_out = Vec::new();
-    for i in order {
-        let r = &requests[i];
-        if placement == Placement::AsAnchored {
-            placed.push((i, r.bbox));
-            continue;
-        }
-        if small && r.priority == Priority::Detail {
-            left_out.push(r.text.clone());
-            continue;
-        }
-        let (w, h) = (r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0);
-        let candidates: Vec<BoxPx> = if r.fixed {
-            vec![r.bbox]
-        } else {
-            offsets(w, h)
-                .into_iter()
-                .filter_map(|(dx, dy)| clamp_into(r.bbox.shifted(dx, dy), width, height))
-                .collect()
-        };
-        let inside = |b: &BoxPx| b.x0 >= 0.0 && b.y0 >= 0.0 && b.x1 <= width && b.y1 <= height;
-        match candidates.into_iter().find(|b| inside(b) && grid.free(b, &boxes)) {
-            Some(b) => {
-                grid.insert(&b, boxes.len());
-                boxes.push(b);
-                placed.push((i, b));
+    for priority in [Priority::Key, Priority::Normal, Priority::Detail] {
+        for r in requests.iter_mut() {
+            if r.priority != priority {
+                continue;
             }
-            None => left_out.push(r.text.clone()),
+            if placement == Placement::AsAnchored {
+                r.placed = Some(r.bbox);
+                continue;
+            }
+            let mut found = None;
+            if small && priority == Priority::Detail {
+                // Left out of small panels.
+            } else if r.fixed {
+                if r.bbox.inside(width, height) && grid.free(&r.bbox, &boxes) {
+                    found = Some(r.bbox);
+                }
+            } else {
+                for (dx, dy) in offsets(r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0) {
+                    if let Some(b) = clamp_into(r.bbox.shifted(dx, dy), width, height)
+                        && grid.free(&b, &boxes)
+                    {
+                        found = Some(b);
+                        break;
+                    }
+                }
+            }
+            match found {
+                Some(b) => {
+                    grid.insert(&b, boxes.len());
+                    boxes.push(b);
+                    r.placed = Some(b);
+                }
+                None => left_out.push(r.text.clone()),
+            }
         }
     }
-    placed.sort_by_key(|(i, _)| requests[*i].order);
-    let labels = placed
-        .into_iter()
-        .map(|(i, b)| {
-            let r = &requests[i];
-            PlacedLabel {
-                text: r.text.clone(),
+    let mut labels = Vec::new();
+    for r in requests {
+        if let Some(b) = r.placed {
+            labels.push(PlacedLabel {
+                baseline: b.y1 - 1.0 - DESCENT_EM * r.size_px,
+                x: b.x0 + 1.0,
+                text: r.text,
                 size_px: r.size_px,
                 role: r.role,
                 bold: r.bold,
-                x: b.x0 + 1.0,
-                baseline: b.y1 - 1.0 - DESCENT_EM * r.size_px,
                 bbox: b,
-            }
-        })
-        .collect();
+            });
+        }
+    }
     Layout {
         viewport: vp,
         width,
@@ -570,6 +608,20 @@ mod tests {
         // Bold (weight 600, 13 px): "Side view (x–z)" measured 109.08 px.
         let bold = text_width_px("Side view (x–z)", 13.0) * BOLD_FACTOR;
         assert!(bold >= 109.08, "{bold}");
+    }
+
+    #[test]
+    fn the_offsets_are_complete_and_nearest_first() {
+        let cost = |o: &(i8, i8)| 2.0 * f64::from(o.0.abs()) + 0.75 * f64::from(o.1.abs());
+        assert!(OFFSETS.windows(2).all(|w| cost(&w[0]) <= cost(&w[1])), "sorted");
+        for dx in [-2i8, -1, 0, 1, 2] {
+            for dy in [0i8, 1, 2, 3, 4, 6, 8] {
+                for dy in [dy, -dy] {
+                    assert_eq!(OFFSETS.iter().filter(|&&o| o == (dx, dy)).count(), 1, "({dx}, {dy})");
+                }
+            }
+        }
+        assert_eq!(OFFSETS[0], (0, 0));
     }
 
     #[test]

@@ -312,7 +312,7 @@ impl Scene {
 
     /// Adds a label of [`Priority::Normal`] that the placement pass may move.
     pub fn text(&mut self, at: Point, text: impl Into<String>, size_px: f64, anchor: Anchor, role: Role) {
-        self.label(at, text, size_px, anchor, role, Priority::Normal);
+        self.push_text(at, text.into(), size_px, anchor, role, Priority::Normal, false);
     }
 
     /// Adds a label of the given priority that the placement pass may move.
@@ -325,23 +325,36 @@ impl Scene {
         role: Role,
         priority: Priority,
     ) {
+        self.push_text(at, text.into(), size_px, anchor, role, priority, false);
+    }
+
+    /// The one place a text item is made (the public adders are generic over the text; this is
+    /// not, so that its code is compiled once).
+    #[allow(clippy::too_many_arguments)]
+    fn push_text(
+        &mut self,
+        at: Point,
+        text: String,
+        size_px: f64,
+        anchor: Anchor,
+        role: Role,
+        priority: Priority,
+        fixed: bool,
+    ) {
         self.items.push(Item::Text {
             at,
-            text: text.into(),
+            text,
             size_px,
             anchor,
             role,
             priority,
-            fixed: false,
+            fixed,
         });
     }
 
     /// Adds a label that stays at its anchor or is left out (tick labels).
     pub fn fixed_label(&mut self, at: Point, text: impl Into<String>, size_px: f64, anchor: Anchor, role: Role) {
-        self.label(at, text, size_px, anchor, role, Priority::Normal);
-        if let Some(Item::Text { fixed, .. }) = self.items.last_mut() {
-            *fixed = true;
-        }
+        self.push_text(at, text.into(), size_px, anchor, role, Priority::Normal, true);
     }
 
     /// Adds a dimension line from `from` to `to` labelled `label`.

@@ -107,7 +107,7 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         }
     }
     let bar = nice_step(bounds.width() / 4.0);
-    let unit = LengthUnit::for_values([best.0, bar]);
+    let unit = LengthUnit::for_values(&[best.0, bar]);
     if best.0 > 0.0 {
         let (a, b) = (result.spots[best.1].position_mm, result.spots[best.2].position_mm);
         // Offset the dimension line above the spots, perpendicular to the line joining them.

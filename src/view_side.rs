@@ -96,11 +96,9 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
     let bar = nice_step(z_extent / 5.0);
     let transverse_bar = nice_step((px1 - px0) / 3.0);
-    let unit = LengthUnit::for_values(spans.iter().map(|(z0, z1)| z1 - z0).chain([
-        spread,
-        bar,
-        if s > 1.0 { transverse_bar } else { 0.0 },
-    ]));
+    let mut lengths: Vec<f64> = spans.iter().map(|(z0, z1)| z1 - z0).collect();
+    lengths.extend([spread, bar, if s > 1.0 { transverse_bar } else { 0.0 }]);
+    let unit = LengthUnit::for_values(&lengths);
 
     // Plates and ideal elements.
     let mut crystal_index = 0usize;
