@@ -195,3 +195,42 @@ pub fn render(r: &TraceResult) -> String {
     }
     out
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::scenario::Scenario;
+    use crate::trace::trace;
+
+    fn table(doc: &str) -> String {
+        render(&trace(&Scenario::from_json_str(doc).unwrap()).unwrap())
+    }
+
+    #[test]
+    fn circular_light_shows_no_azimuth() {
+        let t = table(
+            r#"{"beam": {"polarization": {"kind": "circular", "handedness": "left"}}, "elements": [{"kind": "rotator", "angle_deg": 10}]}"#,
+        );
+        assert!(t.contains("left circular") && !t.contains('ψ'), "{t}");
+    }
+
+    #[test]
+    fn elements_and_spots_are_numbered_from_one() {
+        let t = table(include_str!("../examples/demo.json"));
+        assert!(t.contains("  1  crystal") && !t.contains("  0  crystal"), "{t}");
+        assert!(t.contains("  1  rays ") && t.contains("  2  rays "), "{t}");
+    }
+
+    #[test]
+    fn huge_values_keep_their_columns() {
+        // A 9999 mm plate and a retardance of millions of waves stay within the table's budget.
+        let t = table(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 9999, "axis": {"tilt_deg": 45}}]}"#,
+        );
+        let row = t.lines().find(|l| l.contains("crystal")).unwrap();
+        assert!(
+            row.split_whitespace().all(|w| w.chars().count() <= TABLE_CHARS + 1),
+            "{row}"
+        );
+    }
+}

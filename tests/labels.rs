@@ -247,3 +247,43 @@ fn without_the_placement_pass_labels_collide() {
     }
     assert!(found > 0, "the unplaced labels should collide somewhere");
 }
+
+#[test]
+fn rays_without_power_and_offsets_below_the_resolution_say_so() {
+    // A polarizer crossed with the only ray's polarization: the ray carries no power, and the
+    // views say "no power" instead of a number.
+    let blocked = r#"{"beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}}, "elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45}}, {"kind": "polarizer", "transmission_axis_deg": 90}]}"#;
+    let views = all_views("blocked", blocked);
+    let texts = |name: &str| -> Vec<String> {
+        views
+            .iter()
+            .find(|(w, _)| w.ends_with(name))
+            .map(|(_, s)| s.texts().iter().map(|t| t.to_string()).collect())
+            .unwrap()
+    };
+    assert!(
+        texts("/ side").iter().any(|t| t.ends_with("(no power)")),
+        "{:?}",
+        texts("/ side")
+    );
+    assert!(
+        texts("/ end").iter().any(|t| t.ends_with("no power")),
+        "{:?}",
+        texts("/ end")
+    );
+    assert!(
+        texts("/ poincare").iter().any(|t| t.ends_with("no power")),
+        "{:?}",
+        texts("/ poincare")
+    );
+    // A plate a nanometre thick splits the beam by far less than a pixel: the scene keeps the
+    // dimension, but no drawing at any size shows its line or its label.
+    let thin =
+        r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 1e-6, "axis": {"tilt_deg": 45}}]}"#;
+    for (what, scene) in all_views("thin", thin) {
+        for (w, h) in SIZES {
+            let lay = layout(&scene, w, h, MARGIN);
+            assert!(lay.dimensions.is_empty(), "{what} at {w}×{h}: {:?}", lay.dimensions);
+        }
+    }
+}
