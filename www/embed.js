@@ -60,7 +60,7 @@ const STYLE = `
 .views { flex: 1 1 auto; min-height: 0; display: grid; grid-auto-flow: column; grid-auto-columns: 1fr; gap: 1px;
   background: color-mix(in srgb, CanvasText 12%, transparent); }
 .box { position: relative; min-width: 0; min-height: 0; background: Canvas; }
-:host([data-stacked]) { height: auto; }
+:host([data-stacked]) { height: auto !important; } /* over a page's own height: both views show whole */
 :host([data-stacked]) .views { grid-auto-flow: row; grid-auto-columns: auto; grid-auto-rows: minmax(9rem, 1fr); }
 canvas { position: absolute; inset: 0; width: 100%; height: 100%; display: block; }
 .bar { display: flex; flex-wrap: wrap; gap: 0.25rem 1rem; align-items: center; padding: 0.3rem 0.6rem; }
