@@ -6,7 +6,7 @@
 //! with the renderers' [`Viewport`], estimates each label's box from a per-character width model
 //! of the font, and places the labels one by one, most important first: each goes to its wished
 //! place if that is free and inside the panel, else to the nearest free place among a set of
-//! nearby offsets (up to four lines away), else it is left out. A fixed label (a tick value) is
+//! nearby offsets (up to two lines away), else it is left out. A fixed label (a tick value) is
 //! never moved, only left out. Small panels (embeds narrower than [`SMALL_PANEL_WIDTH_PX`] or
 //! lower than [`SMALL_PANEL_HEIGHT_PX`]) leave out [`Priority::Detail`] labels first. The
 //! title and the caption are labels too (top left and bottom left; the caption wraps onto a
@@ -319,21 +319,16 @@ impl Grid {
 }
 
 /// The places tried for a movable label, nearest first: (dx in half box widths, dy in half
-/// lines), up to a whole width sideways and four lines up or down, ordered by the cost
+/// lines), up to half its width sideways and two lines up or down (farther, a label would name
+/// the wrong thing; it is left out instead), ordered by the cost
 /// 2 |dx| + 0.75 |dy| (a box is typically four lines wide, so moving up or down a line is
 /// preferred to moving sideways by half the box). A table rather than a sort at run time, which
 /// would add a sort's code to the page's WebAssembly.
 #[rustfmt::skip]
-const OFFSETS: [(i8, i8); 65] = [
-    (0, 0), (0, -1), (0, 1), (0, -2), (0, 2), (-1, 0), (1, 0), (0, -3),
-    (0, 3), (-1, -1), (1, -1), (-1, 1), (1, 1), (0, -4), (0, 4), (-1, -2),
-    (1, -2), (-1, 2), (1, 2), (-2, 0), (2, 0), (-1, -3), (1, -3), (-1, 3),
-    (1, 3), (0, -6), (0, 6), (-2, -1), (2, -1), (-2, 1), (2, 1), (-1, -4),
-    (1, -4), (-1, 4), (1, 4), (-2, -2), (2, -2), (-2, 2), (2, 2), (0, -8),
-    (0, 8), (-2, -3), (2, -3), (-2, 3), (2, 3), (-1, -6), (1, -6), (-1, 6),
-    (1, 6), (-2, -4), (2, -4), (-2, 4), (2, 4), (-1, -8), (1, -8), (-1, 8),
-    (1, 8), (-2, -6), (2, -6), (-2, 6), (2, 6), (-2, -8), (2, -8), (-2, 8),
-    (2, 8),
+const OFFSETS: [(i8, i8); 27] = [
+    (0, 0), (0, -1), (0, 1), (0, -2), (0, 2), (-1, 0), (1, 0), (0, -3), (0, 3),
+    (-1, -1), (1, -1), (-1, 1), (1, 1), (0, -4), (0, 4), (-1, -2), (1, -2), (-1, 2),
+    (1, 2), (-1, -3), (1, -3), (-1, 3), (1, 3), (-1, -4), (1, -4), (-1, 4), (1, 4),
 ];
 
 /// Offsets (px) tried for a movable label whose box is `w` × `h`, nearest first.
@@ -614,8 +609,8 @@ mod tests {
     fn the_offsets_are_complete_and_nearest_first() {
         let cost = |o: &(i8, i8)| 2.0 * f64::from(o.0.abs()) + 0.75 * f64::from(o.1.abs());
         assert!(OFFSETS.windows(2).all(|w| cost(&w[0]) <= cost(&w[1])), "sorted");
-        for dx in [-2i8, -1, 0, 1, 2] {
-            for dy in [0i8, 1, 2, 3, 4, 6, 8] {
+        for dx in [-1i8, 0, 1] {
+            for dy in [0i8, 1, 2, 3, 4] {
                 for dy in [dy, -dy] {
                     assert_eq!(OFFSETS.iter().filter(|&&o| o == (dx, dy)).count(), 1, "({dx}, {dy})");
                 }

@@ -135,12 +135,14 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         3.0,
         "scale",
     );
-    scene.text(
+    // The scale is read before any name: placed first.
+    scene.label(
         [bounds.x0 + 0.5 * bar, y],
         length(bar, unit, 3),
         11.0,
         Anchor::Middle,
         Role::ScaleBar,
+        Priority::Key,
     );
     scene.bounds = Rect {
         x0: bounds.x0,

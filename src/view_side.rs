@@ -301,12 +301,14 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         3.0,
         "scale z",
     );
-    scene.text(
+    // The scale is read before any name: placed first.
+    scene.label(
         [z_min + 0.5 * bar, yb],
         length(bar, unit, 3),
         11.0,
         Anchor::Middle,
         Role::ScaleBar,
+        Priority::Key,
     );
     if s > 1.0 {
         let tb = transverse_bar;
