@@ -6,7 +6,9 @@
 //! with the renderers' [`Viewport`], estimates each label's box from a per-character width model
 //! of the font, and places the labels one by one, most important first: each goes to its wished
 //! place if that is free and inside the panel, else to the nearest free place among a set of
-//! nearby offsets (up to two lines away), else it is left out. A fixed label (a tick value) is
+//! nearby offsets (up to two lines away), else it is left out; a movable label also keeps off the
+//! drawing's marks (dots and spot circles) unless it is a key label with no other place. A fixed
+//! label (a tick value) is
 //! never moved, only left out. Small panels (embeds narrower than [`SMALL_PANEL_WIDTH_PX`] or
 //! lower than [`SMALL_PANEL_HEIGHT_PX`]) leave out [`Priority::Detail`] labels first. The
 //! title and the caption are labels too (top left and bottom left; the caption wraps onto a
@@ -492,6 +494,28 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
         }
     }
 
+    // The marks labels should not cover: dots (exit points, states, markers) and small circles
+    // (spots), as boxes on screen.
+    let mut marks = Grid::new(width, height);
+    let mut mark_boxes: Vec<BoxPx> = Vec::new();
+    for item in &scene.items {
+        let (c, rx, ry) = match item {
+            Item::Dot { center, radius_px, .. } => (vp.map(*center), *radius_px, *radius_px),
+            Item::Circle { center, radius, .. } => (vp.map(*center), radius * vp.sx, radius * vp.sy),
+            _ => continue,
+        };
+        if rx < width / 3.0 && ry < height / 3.0 {
+            let b = BoxPx {
+                x0: c[0] - rx,
+                y0: c[1] - ry,
+                x1: c[0] + rx,
+                y1: c[1] + ry,
+            };
+            marks.insert(&b, mark_boxes.len());
+            mark_boxes.push(b);
+        }
+    }
+
     // Most important first, each priority in the scene's order.
     let mut grid = Grid::new(width, height);
     let mut boxes: Vec<BoxPx> = Vec::new();
@@ -513,12 +537,19 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                     found = Some(r.bbox);
                 }
             } else {
-                for (dx, dy) in offsets(r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0) {
-                    if let Some(b) = clamp_into(r.bbox.shifted(dx, dy), width, height)
-                        && grid.free(&b, &boxes)
-                    {
-                        found = Some(b);
+                // Clear of labels and marks; a key label that finds no such place may cover marks.
+                'search: for avoid_marks in [true, false] {
+                    if !avoid_marks && priority != Priority::Key {
                         break;
+                    }
+                    for (dx, dy) in offsets(r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0) {
+                        if let Some(b) = clamp_into(r.bbox.shifted(dx, dy), width, height)
+                            && grid.free(&b, &boxes)
+                            && (!avoid_marks || marks.free(&b, &mark_boxes))
+                        {
+                            found = Some(b);
+                            break 'search;
+                        }
                     }
                 }
             }

@@ -161,7 +161,7 @@ pub fn convex_hull(pts: &[Point]) -> Vec<usize> {
     if idx.len() <= 3 {
         return idx;
     }
-    idx.sort_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
+    idx.sort_unstable_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
     let cross = |o: usize, a: usize, b: usize| {
         (pts[a][0] - pts[o][0]) * (pts[b][1] - pts[o][1]) - (pts[a][1] - pts[o][1]) * (pts[b][0] - pts[o][0])
     };

@@ -66,7 +66,7 @@ pub fn plot(series: &Series) -> Scene {
     while t <= x1 + 1e-9 * w {
         scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
         scene.fixed_label(
-            [t, y0 - 0.05 * h],
+            [t, y0 - 0.1 * h],
             tick(t * fx, xs * fx),
             10.0,
             Anchor::Middle,
@@ -93,7 +93,7 @@ pub fn plot(series: &Series) -> Scene {
         tag: "frame".into(),
     });
     scene.label(
-        [0.5 * (x0 + x1), y0 - 0.13 * h],
+        [0.5 * (x0 + x1), y0 - 0.25 * h],
         format!("{} ({x_unit})", series.x_label),
         11.0,
         Anchor::Middle,
@@ -147,7 +147,7 @@ pub fn plot(series: &Series) -> Scene {
     }
     scene.bounds = Rect {
         x0: x0 - 0.1 * w,
-        y0: y0 - 0.2 * h,
+        y0: y0 - 0.31 * h,
         x1: x1 + 0.03 * w,
         y1: y1 + 0.1 * h,
     };

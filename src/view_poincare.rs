@@ -106,7 +106,7 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
             12.0,
             Anchor::Middle,
             Role::Label,
-            Priority::Detail,
+            Priority::Normal,
         );
     }
 
