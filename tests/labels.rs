@@ -287,3 +287,32 @@ fn rays_without_power_and_offsets_below_the_resolution_say_so() {
         }
     }
 }
+
+#[test]
+fn the_number_check_catches_the_old_unbounded_formatter() {
+    // The views' old formatter: fixed decimals from the magnitude, never an exponent. Planted
+    // back into a label (a 12 pm separation in mm), the same check as above must fail.
+    fn old_significant(v: f64, digits: usize) -> String {
+        let mag = v.abs().log10().floor() as i32;
+        let decimals = (digits as i32 - 1 - mag).max(0) as usize;
+        format!("{v:.decimals$}")
+    }
+    let mut scene = Scene::new("Side view (x–z)", "", doublespar::scene::Aspect::Equal);
+    scene.dimension(
+        [0.0, 0.0],
+        [0.0, 1.0],
+        format!("{} mm", old_significant(1.23e-11, 3)),
+        "dimension",
+    );
+    let found = check("planted", &scene);
+    assert!(found.iter().any(|p| p.contains("too long")), "{found:?}");
+    // The formatter of today writes the same value within the budget.
+    let mut scene = Scene::new("Side view (x–z)", "", doublespar::scene::Aspect::Equal);
+    scene.dimension(
+        [0.0, 0.0],
+        [0.0, 1.0],
+        doublespar::numfmt::length_auto(1.23e-11, 3),
+        "dimension",
+    );
+    assert!(check("today", &scene).is_empty(), "{:?}", check("today", &scene));
+}
