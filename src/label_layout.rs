@@ -34,6 +34,15 @@ pub const SMALL_PANEL_WIDTH_PX: f64 = 400.0;
 /// Panels lower than this leave out [`Priority::Detail`] labels.
 pub const SMALL_PANEL_HEIGHT_PX: f64 = 220.0;
 
+/// After this many movable labels of one priority found no place, the panel counts as full and
+/// the rest of that priority is left out without a search (4096 ray names would otherwise each
+/// try every place).
+pub const GIVE_UP_AFTER: usize = 256;
+
+/// At most this many marks (dots, spot circles) are kept clear of labels: beyond, the drawing is
+/// too crowded for names anyway, and the search would slow down.
+pub const MAX_MARKS: usize = 1024;
+
 /// Labels keep this far from the panel's edges (px).
 pub const INSET_PX: f64 = 2.0;
 
@@ -504,7 +513,7 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
             Item::Circle { center, radius, .. } => (vp.map(*center), radius * vp.sx, radius * vp.sy),
             _ => continue,
         };
-        if rx < width / 3.0 && ry < height / 3.0 {
+        if rx < width / 3.0 && ry < height / 3.0 && mark_boxes.len() < MAX_MARKS {
             let b = BoxPx {
                 x0: c[0] - rx,
                 y0: c[1] - ry,
@@ -521,6 +530,7 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
     let mut boxes: Vec<BoxPx> = Vec::new();
     let mut left_out = Vec::new();
     for priority in [Priority::Key, Priority::Normal, Priority::Detail] {
+        let mut failures = 0;
         for r in requests.iter_mut() {
             if r.priority != priority {
                 continue;
@@ -530,8 +540,8 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                 continue;
             }
             let mut found = None;
-            if small && priority == Priority::Detail {
-                // Left out of small panels.
+            if (small && priority == Priority::Detail) || failures >= GIVE_UP_AFTER {
+                // Left out of small panels, or of a panel already full.
             } else if r.fixed {
                 if r.bbox.inside(width, height) && grid.free(&r.bbox, &boxes) {
                     found = Some(r.bbox);
@@ -559,7 +569,13 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                     boxes.push(b);
                     r.placed = Some(b);
                 }
-                None => left_out.push(r.text.clone()),
+                None => {
+                    left_out.push(r.text.clone());
+                    // Tick labels fail one by one as they thin out; only names count.
+                    if priority != Priority::Key && !r.fixed {
+                        failures += 1;
+                    }
+                }
             }
         }
     }
