@@ -166,11 +166,11 @@ export const fmt = {
   index: (v) => fixed(v, 6),
   deg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)}°`),
   ellipseDeg: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 2, 5e-13)}°`),
+  // A length alone in its place, in its own unit (5 digits); below 1 pm, the rounding of a zero.
   mm: (v) => {
     if (v === null || v === undefined) return '—';
     if (Math.abs(v) < 1e-9) return '0 mm';
-    if (Math.abs(v) >= 1e-3) return `${fixed(v, 4)} mm`;
-    return `${significant(v, 3)} mm`;
+    return lengthIn(v, lengthUnitFor(v), 5);
   },
   power: (v) => {
     if (v === null || v === undefined) return '—';
