@@ -678,6 +678,50 @@ mod tests {
         assert!(lines[1].ends_with('…'));
     }
 
+    #[test]
+    fn random_scenes_at_random_sizes_never_collide() {
+        // Invariant over generated scenes: whatever the labels wish, the placed ones neither
+        // overlap nor leave the panel.
+        let mut rng = crate::statistics::Rng::new(7);
+        let words = [
+            "o",
+            "eeoe",
+            "1.36 mm",
+            "ρ = 6.19°",
+            "P 2.3×10⁻⁵",
+            "a long caption of sorts",
+            "⊙ c_y 0.43",
+        ];
+        for case in 0..200 {
+            let mut s = Scene::new("Random", "caption words that may wrap onto two lines", Aspect::Free);
+            s.bounds = Rect {
+                x0: 0.0,
+                y0: 0.0,
+                x1: 1.0,
+                y1: 1.0,
+            };
+            let n = 1 + (rng.uniform() * 80.0) as usize;
+            for k in 0..n {
+                let at = [1.4 * rng.uniform() - 0.2, 1.4 * rng.uniform() - 0.2];
+                let text = words[k % words.len()];
+                let anchor = [Anchor::Start, Anchor::Middle, Anchor::End][k % 3];
+                let priority = [Priority::Key, Priority::Normal, Priority::Detail][(k / 3) % 3];
+                if k % 5 == 0 {
+                    s.fixed_label(at, text, 10.0, anchor, Role::Caption);
+                } else {
+                    s.label(at, text, 8.0 + 8.0 * rng.uniform(), anchor, Role::Label, priority);
+                }
+            }
+            let (w, h) = (240.0 + 1360.0 * rng.uniform(), 120.0 + 800.0 * rng.uniform());
+            let lay = layout(&s, w, h, 28.0);
+            assert!(
+                problems(&lay).is_empty(),
+                "case {case} at {w}×{h}: {:?}",
+                problems(&lay)
+            );
+        }
+    }
+
     fn crowded() -> Scene {
         let mut s = Scene::new("Crowded", "a caption", Aspect::Free);
         s.bounds = Rect {
