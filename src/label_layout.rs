@@ -693,13 +693,7 @@ mod tests {
             "⊙ c_y 0.43",
         ];
         for case in 0..200 {
-            let mut s = Scene::new("Random", "caption words that may wrap onto two lines", Aspect::Free);
-            s.bounds = Rect {
-                x0: 0.0,
-                y0: 0.0,
-                x1: 1.0,
-                y1: 1.0,
-            };
+            let mut s = unit_scene("Random", "caption words that may wrap onto two lines");
             let n = 1 + (rng.uniform() * 80.0) as usize;
             for k in 0..n {
                 let at = [1.4 * rng.uniform() - 0.2, 1.4 * rng.uniform() - 0.2];
@@ -722,14 +716,20 @@ mod tests {
         }
     }
 
-    fn crowded() -> Scene {
-        let mut s = Scene::new("Crowded", "a caption", Aspect::Free);
+    /// An empty scene showing the unit square.
+    fn unit_scene(title: &str, caption: &str) -> Scene {
+        let mut s = Scene::new(title, caption, Aspect::Free);
         s.bounds = Rect {
             x0: 0.0,
             y0: 0.0,
             x1: 1.0,
             y1: 1.0,
         };
+        s
+    }
+
+    fn crowded() -> Scene {
+        let mut s = unit_scene("Crowded", "a caption");
         for k in 0..30 {
             s.text(
                 [0.5, 0.5 + 1e-3 * k as f64],
