@@ -2,16 +2,14 @@
 //! the canvas.
 //!
 //! The canvas is sized to its CSS box times the device pixel ratio, so lines and text stay crisp;
-//! the scene is fitted with the same [`Viewport`] the SVG writer uses, and coloured from the same
-//! [`Palette`].
+//! the scene is fitted with the same [`Viewport`] the SVG writer uses, its labels placed by the same
+//! pass ([`layout`]), and coloured from the same [`Palette`].
 
-use crate::scene::{Anchor, Item, Scene, Viewport, arrow_head};
-use crate::svg::Palette;
+use crate::label_layout::layout;
+use crate::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
+use crate::svg::{MARGIN_PX, Palette};
 use wasm_bindgen::JsValue;
 use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
-
-/// Margin around the drawing, CSS pixels.
-pub const MARGIN_PX: f64 = 28.0;
 
 /// Draws `scene` on `canvas`.
 ///
@@ -36,7 +34,8 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
     ctx.set_transform(dpr, 0.0, 0.0, dpr, 0.0, 0.0)?;
     ctx.set_fill_style_str(&palette.background);
     ctx.fill_rect(0.0, 0.0, w, h);
-    let vp = Viewport::fit(scene, w, h, MARGIN_PX);
+    let lay = layout(scene, w, h, MARGIN_PX);
+    let vp = lay.viewport;
     let empty = js_sys::Array::new();
     for item in &scene.items {
         match item {
@@ -114,64 +113,46 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 role,
                 head_px,
                 ..
-            } => {
-                let ([x0, y0], [x1, y1]) = (vp.map(*from), vp.map(*to));
-                let c = palette.stroke(*role);
-                ctx.set_stroke_style_str(c);
-                ctx.set_fill_style_str(c);
-                ctx.set_line_width(1.5);
-                ctx.begin_path();
-                ctx.move_to(x0, y0);
-                ctx.line_to(x1, y1);
-                ctx.stroke();
-                let [p1, p2] = arrow_head([x0, y0], [x1, y1], *head_px);
-                ctx.begin_path();
-                ctx.move_to(x1, y1);
-                ctx.line_to(p1[0], p1[1]);
-                ctx.line_to(p2[0], p2[1]);
-                ctx.close_path();
-                ctx.fill();
-            }
-            Item::Text {
-                at,
-                text,
-                size_px,
-                anchor,
-                role,
-                angle,
-            } => {
-                let [x, y] = vp.map(*at);
-                ctx.set_font(&format!("{size_px}px system-ui, sans-serif"));
-                ctx.set_text_align(match anchor {
-                    Anchor::Start => "start",
-                    Anchor::Middle => "center",
-                    Anchor::End => "end",
-                });
-                ctx.set_fill_style_str(palette.stroke(*role));
-                if *angle != 0.0 {
-                    ctx.save();
-                    ctx.translate(x, y - 3.0)?;
-                    ctx.rotate(-angle)?;
-                    ctx.fill_text(text, 0.0, 0.0)?;
-                    ctx.restore();
-                } else {
-                    ctx.fill_text(text, x, y - 3.0)?;
-                }
-            }
+            } => arrow(&ctx, vp.map(*from), vp.map(*to), palette.stroke(*role), *head_px, 1.5),
+            Item::Text { .. } | Item::Dimension { .. } => {}
         }
     }
+    let c = palette.stroke(Role::Dimension);
+    for d in &lay.dimensions {
+        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+        arrow(&ctx, mid, d.from, c, 7.0, 1.0);
+        arrow(&ctx, mid, d.to, c, 7.0, 1.0);
+    }
     ctx.set_text_align("start");
-    ctx.set_font("600 13px system-ui, sans-serif");
-    ctx.set_fill_style_str(&palette.ink);
-    ctx.fill_text(&scene.title, 8.0, 16.0)?;
-    ctx.set_font("11px system-ui, sans-serif");
-    ctx.set_fill_style_str(&palette.muted);
-    ctx.fill_text(&scene.caption, 8.0, h - 8.0)?;
+    for l in &lay.labels {
+        let weight = if l.bold { "600 " } else { "" };
+        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
+        ctx.set_fill_style_str(palette.stroke(l.role));
+        ctx.fill_text(&l.text, l.x, l.baseline)?;
+    }
     Ok(())
 }
 
+/// An arrow (shaft and filled head) from `a` to `b`, screen px.
+fn arrow(ctx: &CanvasRenderingContext2d, a: Point, b: Point, colour: &str, head_px: f64, width: f64) {
+    ctx.set_stroke_style_str(colour);
+    ctx.set_fill_style_str(colour);
+    ctx.set_line_width(width);
+    ctx.begin_path();
+    ctx.move_to(a[0], a[1]);
+    ctx.line_to(b[0], b[1]);
+    ctx.stroke();
+    let [p1, p2] = arrow_head(a, b, head_px);
+    ctx.begin_path();
+    ctx.move_to(b[0], b[1]);
+    ctx.line_to(p1[0], p1[1]);
+    ctx.line_to(p2[0], p2[1]);
+    ctx.close_path();
+    ctx.fill();
+}
+
 /// Fills the current path (when `filled`) and outlines it, in the role's colours.
-fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: crate::scene::Role, filled: bool) {
+fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: Role, filled: bool) {
     if filled {
         ctx.set_fill_style_str(palette.fill(role));
         ctx.fill();
@@ -182,7 +163,7 @@ fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: crat
 }
 
 /// Starts a path through `points` mapped to the screen (nothing for no points).
-fn path(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[crate::scene::Point]) {
+fn path(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[Point]) {
     ctx.begin_path();
     if let Some((first, rest)) = points.split_first() {
         let [x, y] = vp.map(*first);

@@ -304,7 +304,7 @@ pub fn summary_text(design: &Value) -> String {
                 || n.to_string(),
                 |x| {
                     if x == 0.0 || (1e-3..1e6).contains(&x.abs()) {
-                        crate::scene::significant(x, 7)
+                        crate::numfmt::sig(x, 7)
                     } else {
                         format!("{x:.6e}")
                     }

@@ -466,12 +466,12 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let cut_note = if slope == 0.0 {
         format!(
             "cut of maximum walk-off, tan θ = n_e/n_o: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
-            crate::scene::significant(slope_2, 3)
+            crate::numfmt::sig(slope_2, 3)
         )
     } else {
         format!(
             "cut fixed by the request; the maximum-walk-off cut would be {max_cut_deg:.4}° (dρ/dθ = 0 there, here {} °/°)",
-            crate::scene::significant(slope, 3)
+            crate::numfmt::sig(slope, 3)
         )
     };
 

@@ -37,7 +37,7 @@ pub const COMMON_APERTURE_MM: [(&str, f64); 8] = [
 
 /// A length for a note: three significant digits, in mm.
 fn mm(x: f64) -> String {
-    crate::scene::significant(x, 3)
+    crate::numfmt::sig(x, 3)
 }
 
 /// The notes on a part made of `plates` (material, thickness along the beam in mm, in the order

@@ -6,6 +6,7 @@
 //! the message beside the control that holds the bad value. Functions below the scenario layer fill
 //! in the leaf name; the scenario layer prefixes the path with [`Error::within`].
 
+use crate::numfmt::quote;
 use std::fmt;
 
 /// An input that Doublespar cannot use, with the field that holds it.
@@ -60,7 +61,9 @@ impl std::error::Error for Error {}
 /// A number as a message quotes it: short, whatever its size (`1e308`, not 309 digits;
 /// `2.5e-9`, not `0.0000000025`), with the minus sign a reader expects.
 ///
-/// Plain decimal from 10⁻⁴ up to 10⁷ (Rust's shortest round-trip form), scientific outside it.
+/// Plain decimal from 10⁻⁴ up to 10⁷ (Rust's shortest round-trip form), scientific outside it;
+/// a form longer than 12 characters is cut to six significant digits by the one formatter
+/// ([`crate::numfmt::quote`]).
 pub fn quoted(value: f64) -> String {
     let a = value.abs();
     let text = if value == 0.0 || !value.is_finite() || (1e-4..1e7).contains(&a) {
@@ -68,6 +71,7 @@ pub fn quoted(value: f64) -> String {
     } else {
         format!("{value:e}")
     };
+    let text = if text.len() > 12 { quote(value) } else { text };
     text.replace('-', "\u{2212}")
 }
 
@@ -295,5 +299,14 @@ mod tests {
         assert_eq!(unit_after("outside_index"), "");
         assert_eq!(unit_after("beam.polarization.jones[0][1]"), "");
         assert_eq!(unit_after(""), "");
+    }
+
+    #[test]
+    fn messages_quote_huge_values_compactly() {
+        // The Display form of 1e308 has 309 digits; the message quotes "1e308".
+        let e = in_range("x", 1e308, 0.0, 1e4).unwrap_err();
+        assert!(e.message.contains("1e308") && e.message.len() < 60, "{}", e.message);
+        let e = positive("x", -1e-300).unwrap_err();
+        assert!(e.message.ends_with("got \u{2212}1e\u{2212}300"), "{}", e.message);
     }
 }

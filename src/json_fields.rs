@@ -111,7 +111,11 @@ impl<'a> Fields<'a> {
                 known.dedup();
                 return Err(Error::new(
                     self.path_of(key),
-                    format!("unknown field '{key}'; expected one of: {}", known.join(", ")),
+                    format!(
+                        "unknown field '{}'; expected one of: {}",
+                        crate::numfmt::quote_text(key),
+                        known.join(", ")
+                    ),
                 ));
             }
         }

@@ -95,13 +95,10 @@ impl Breakdown {
             Breakdown::Wavelength => "the wavelength is not a positive number".into(),
             Breakdown::Resonance => "the wavelength is at a resonance (pole) of the formula".into(),
             Breakdown::NotReal(n2) if n2.is_finite() => {
-                format!(
-                    "it gives n² = {}, not a positive number",
-                    crate::scene::significant(*n2, 3)
-                )
+                format!("it gives n² = {}, not a positive number", crate::numfmt::sig(*n2, 3))
             }
             Breakdown::NotReal(_) => "it gives no finite n²".into(),
-            Breakdown::BelowOne(n) => format!("it gives n = {}, below 1", crate::scene::significant(*n, 4)),
+            Breakdown::BelowOne(n) => format!("it gives n = {}, below 1", crate::numfmt::sig(*n, 4)),
         }
     }
 }

@@ -33,6 +33,7 @@ use crate::error::{Error, above, in_range, quoted, strictly_between};
 use crate::interface::Losses;
 use crate::json_fields::{Fields, number_list, type_name};
 use crate::material::{self, Indices, Material};
+use crate::numfmt::quote_text;
 use crate::wavelength::Wavelength;
 use serde_json::{Value, json};
 
@@ -182,7 +183,10 @@ impl Scenario {
         if let Some(v) = f.get("version")
             && v.as_u64() != Some(1)
         {
-            return Err(Error::new("version", format!("only version 1 is understood, got {v}")));
+            return Err(Error::new(
+                "version",
+                format!("only version 1 is understood, got {}", quote_text(&v.to_string())),
+            ));
         }
         let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
         let wavelength = Wavelength::from_nm(wl_nm)?;
@@ -193,7 +197,10 @@ impl Scenario {
             Some(other) => {
                 return Err(Error::new(
                     "interface_losses",
-                    format!("unknown value '{other}'; expected \"ideal\" or \"uncoated\""),
+                    format!(
+                        "unknown value '{}'; expected \"ideal\" or \"uncoated\"",
+                        quote_text(other)
+                    ),
                 ));
             }
         };
@@ -348,7 +355,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             Some(other) => {
                 return Err(Error::new(
                     format!("{P}.handedness"),
-                    format!("unknown value '{other}'; expected \"right\" or \"left\""),
+                    format!("unknown value '{}'; expected \"right\" or \"left\"", quote_text(other)),
                 ));
             }
             None => {
@@ -416,7 +423,10 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
         other => {
             return Err(Error::new(
                 format!("{P}.kind"),
-                format!("unknown kind '{other}'; expected linear, circular, elliptical, jones, stokes or unpolarized"),
+                format!(
+                    "unknown kind '{}'; expected linear, circular, elliptical, jones, stokes or unpolarized",
+                    quote_text(other)
+                ),
             ));
         }
     };
@@ -480,7 +490,10 @@ fn parse_element(path: &str, v: &Value) -> Result<Element, Error> {
         other => {
             return Err(Error::new(
                 kind_path,
-                format!("unknown element kind '{other}'; expected crystal, retarder, polarizer or rotator"),
+                format!(
+                    "unknown element kind '{}'; expected crystal, retarder, polarizer or rotator",
+                    quote_text(other)
+                ),
             ));
         }
     };
@@ -502,7 +515,11 @@ fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
             let m = material::find(key).ok_or_else(|| {
                 Error::new(
                     &material_path,
-                    format!("unknown material '{key}'; known: {}", material::keys().join(", ")),
+                    format!(
+                        "unknown material '{}'; known: {}",
+                        quote_text(key),
+                        material::keys().join(", ")
+                    ),
                 )
             })?;
             Medium::Catalogue(m)

@@ -6,9 +6,12 @@
 //! writer draw the same scene, and native tests inspect it: the e-ray's exit point in the side
 //! view is a number in the scene, not a pixel.
 //!
-//! Conventions: world y points *up* (renderers flip it); angles are radians counter-clockwise on
-//! screen; text sizes are in CSS pixels, so that labels stay legible at any zoom; colours are not
-//! in the scene, only semantic [`Role`]s, which each renderer maps to its palette (light or dark).
+//! Conventions: world y points *up* (renderers flip it); text sizes are in CSS pixels, so that
+//! labels stay legible at any zoom; colours are not in the scene, only semantic [`Role`]s, which
+//! each renderer maps to its palette (light or dark). A text gives where it *wants* to be and a
+//! [`Priority`]; the placement pass ([`crate::label_layout`]) decides, for one screen size, where
+//! it goes or whether it is left out, so that no two labels overlap and none leaves the panel.
+//! Numbers in labels come from [`crate::numfmt`].
 
 use serde::Serialize;
 
@@ -72,6 +75,19 @@ pub enum Anchor {
     Middle,
     /// The point is the right end of the text.
     End,
+}
+
+/// How much a label matters, for the placement pass: more important labels are placed first, and
+/// small panels (embeds) leave out [`Priority::Detail`] labels altogether.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Priority {
+    /// The view's main readout (a separation, an axis title): placed first.
+    Key,
+    /// Names and values a reader looks for (ray names, powers, scale bars, ticks).
+    Normal,
+    /// Secondary text (element names, axis letters, glyph notes): left out of small panels.
+    Detail,
 }
 
 /// One drawn thing.
@@ -151,8 +167,25 @@ pub enum Item {
         anchor: Anchor,
         /// Semantic role.
         role: Role,
-        /// Rotation on screen, radians counter-clockwise (0 = horizontal).
-        angle: f64,
+        /// How much it matters when space is short.
+        priority: Priority,
+        /// Whether the label must stay at its anchor (a tick label): it is left out rather than
+        /// moved when its place is taken.
+        fixed: bool,
+    },
+    /// A dimension line between two world points, with arrowheads at both ends and its value as
+    /// a label. It is drawn only where it is long enough on screen to be read
+    /// ([`crate::label_layout::MIN_DIMENSION_PX`]): an offset below the drawing's resolution
+    /// gets no dimension line.
+    Dimension {
+        /// One end.
+        from: Point,
+        /// The other end.
+        to: Point,
+        /// The value, e.g. "1.36 mm".
+        label: String,
+        /// What it measures (e.g. "separation").
+        tag: String,
     },
 }
 
@@ -277,15 +310,60 @@ impl Scene {
         }
     }
 
-    /// Adds text.
+    /// Adds a label of [`Priority::Normal`] that the placement pass may move.
     pub fn text(&mut self, at: Point, text: impl Into<String>, size_px: f64, anchor: Anchor, role: Role) {
+        self.push_text(at, text.into(), size_px, anchor, role, Priority::Normal, false);
+    }
+
+    /// Adds a label of the given priority that the placement pass may move.
+    pub fn label(
+        &mut self,
+        at: Point,
+        text: impl Into<String>,
+        size_px: f64,
+        anchor: Anchor,
+        role: Role,
+        priority: Priority,
+    ) {
+        self.push_text(at, text.into(), size_px, anchor, role, priority, false);
+    }
+
+    /// The one place a text item is made (the public adders are generic over the text; this is
+    /// not, so that its code is compiled once).
+    #[allow(clippy::too_many_arguments)]
+    fn push_text(
+        &mut self,
+        at: Point,
+        text: String,
+        size_px: f64,
+        anchor: Anchor,
+        role: Role,
+        priority: Priority,
+        fixed: bool,
+    ) {
         self.items.push(Item::Text {
             at,
-            text: text.into(),
+            text,
             size_px,
             anchor,
             role,
-            angle: 0.0,
+            priority,
+            fixed,
+        });
+    }
+
+    /// Adds a label that stays at its anchor or is left out (tick labels).
+    pub fn fixed_label(&mut self, at: Point, text: impl Into<String>, size_px: f64, anchor: Anchor, role: Role) {
+        self.push_text(at, text.into(), size_px, anchor, role, Priority::Normal, true);
+    }
+
+    /// Adds a dimension line from `from` to `to` labelled `label`.
+    pub fn dimension(&mut self, from: Point, to: Point, label: impl Into<String>, tag: impl Into<String>) {
+        self.items.push(Item::Dimension {
+            from,
+            to,
+            label: label.into(),
+            tag: tag.into(),
         });
     }
 
@@ -307,17 +385,18 @@ impl Scene {
             | Item::Polygon { tag: t, .. }
             | Item::Circle { tag: t, .. }
             | Item::Dot { tag: t, .. }
-            | Item::Arrow { tag: t, .. } => t == tag,
+            | Item::Arrow { tag: t, .. }
+            | Item::Dimension { tag: t, .. } => t == tag,
             Item::Text { .. } => false,
         })
     }
 
-    /// All text items' strings, in order.
+    /// All text items' strings and dimension labels, in order.
     pub fn texts(&self) -> Vec<&str> {
         self.items
             .iter()
             .filter_map(|i| match i {
-                Item::Text { text, .. } => Some(text.as_str()),
+                Item::Text { text, .. } | Item::Dimension { label: text, .. } => Some(text.as_str()),
                 _ => None,
             })
             .collect()
@@ -334,7 +413,7 @@ impl Scene {
                 Item::Polyline { points, .. } | Item::Polygon { points, .. } => points.iter().all(ok),
                 Item::Circle { center, radius, .. } => ok(center) && radius.is_finite(),
                 Item::Dot { center, .. } => ok(center),
-                Item::Arrow { from, to, .. } => ok(from) && ok(to),
+                Item::Arrow { from, to, .. } | Item::Dimension { from, to, .. } => ok(from) && ok(to),
                 Item::Text { at, .. } => ok(at),
             })
     }
@@ -425,39 +504,12 @@ pub fn nice_step_at_least(min: f64) -> f64 {
     10.0 * p
 }
 
-/// Formats a length in mm with a sensible unit (nm, µm, mm, m) and 3 significant digits.
-pub fn length_text(mm: f64) -> String {
-    let a = mm.abs();
-    let (v, unit) = if a == 0.0 {
-        (0.0, "mm")
-    } else if a < 1e-3 {
-        (mm * 1e6, "nm")
-    } else if a < 1.0 {
-        (mm * 1e3, "µm")
-    } else if a < 1e3 {
-        (mm, "mm")
-    } else {
-        (mm * 1e-3, "m")
-    };
-    format!("{} {unit}", significant(v, 3))
-}
-
-/// `v` with `digits` significant digits, without exponent for everyday magnitudes.
-pub fn significant(v: f64, digits: usize) -> String {
-    if v == 0.0 || !v.is_finite() {
-        return format!("{v}");
-    }
-    let mag = v.abs().log10().floor() as i32;
-    let decimals = (digits as i32 - 1 - mag).max(0) as usize;
-    format!("{v:.decimals$}")
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
 
     #[test]
-    fn nice_steps_and_lengths() {
+    fn nice_steps() {
         assert_eq!(nice_step(7.3), 5.0);
         assert_eq!(nice_step(0.031), 0.02);
         assert_eq!(nice_step(1.0), 1.0);
@@ -465,10 +517,6 @@ mod tests {
         assert_eq!(nice_step_at_least(394.0), 500.0);
         assert_eq!(nice_step_at_least(0.03), 0.05);
         assert_eq!(nice_step_at_least(1.0), 1.0);
-        assert_eq!(length_text(1.3554), "1.36 mm");
-        assert_eq!(length_text(0.0123), "12.3 µm");
-        assert_eq!(length_text(2.5e-5), "25.0 nm");
-        assert_eq!(significant(123.456, 3), "123");
     }
 
     #[test]

@@ -1,10 +1,13 @@
 //! An SVG writer for scenes: the same display list the canvas draws, as a standalone document.
 //!
 //! The SVG uses screen coordinates (pixels, y down) from [`Viewport::fit`], so its geometry can
-//! be compared with the scene's world coordinates through the same map. Colours come from a
-//! [`Palette`]; the document carries no script and references nothing external.
+//! be compared with the scene's world coordinates through the same map. Labels, the title, the
+//! caption and the dimension lines are drawn where the placement pass ([`layout`]) put them for
+//! this size, exactly as on the canvas. Colours come from a [`Palette`]; the document carries no
+//! script and references nothing external.
 
-use crate::scene::{Anchor, Item, Role, Scene, Viewport, arrow_head};
+use crate::label_layout::{Layout, layout};
+use crate::scene::{Item, Point, Role, Scene, arrow_head};
 use std::fmt::Write;
 
 /// Colours for each role, as CSS colour strings.
@@ -126,9 +129,29 @@ fn round(out: &mut String, palette: &Palette, c: [f64; 2], r: [f64; 2], role: Ro
     );
 }
 
+/// An arrow (shaft and filled head) from `a` to `b`, screen px.
+fn arrow(out: &mut String, a: Point, b: Point, colour: &str, head_px: f64, width: f64, tag: &str) {
+    let ([x0, y0], [x1, y1]) = (a, b);
+    let _ = write!(
+        out,
+        r#"<line data-tag="{}" x1="{x0:.3}" y1="{y0:.3}" x2="{x1:.3}" y2="{y1:.3}" stroke="{colour}" stroke-width="{width}"/>"#,
+        esc(tag)
+    );
+    let [p1, p2] = arrow_head(a, b, head_px);
+    let _ = write!(
+        out,
+        r#"<polygon points="{x1:.3},{y1:.3} {:.3},{:.3} {:.3},{:.3}" fill="{colour}"/>"#,
+        p1[0], p1[1], p2[0], p2[1]
+    );
+}
+
+/// Margin around the drawing, px (the canvas uses the same).
+pub const MARGIN_PX: f64 = 28.0;
+
 /// Writes `scene` as an SVG document of `width` × `height` pixels.
 pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> String {
-    let vp = Viewport::fit(scene, width, height, 28.0);
+    let lay: Layout = layout(scene, width, height, MARGIN_PX);
+    let vp = lay.viewport;
     let mut out = String::new();
     let _ = write!(
         out,
@@ -225,63 +248,46 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
                 role,
                 head_px,
                 tag,
-            } => {
-                let ([x0, y0], [x1, y1]) = (vp.map(*from), vp.map(*to));
-                let c = palette.stroke(*role);
-                let _ = write!(
-                    out,
-                    r#"<line data-tag="{}" x1="{x0:.3}" y1="{y0:.3}" x2="{x1:.3}" y2="{y1:.3}" stroke="{c}" stroke-width="1.5"/>"#,
-                    esc(tag)
-                );
-                let [p1, p2] = arrow_head([x0, y0], [x1, y1], *head_px);
-                let _ = write!(
-                    out,
-                    r#"<polygon points="{x1:.3},{y1:.3} {:.3},{:.3} {:.3},{:.3}" fill="{c}"/>"#,
-                    p1[0], p1[1], p2[0], p2[1]
-                );
-            }
-            Item::Text {
-                at,
-                text,
-                size_px,
-                anchor,
-                role,
-                angle,
-            } => {
-                let [x, y] = vp.map(*at);
-                let anchor = match anchor {
-                    Anchor::Start => "start",
-                    Anchor::Middle => "middle",
-                    Anchor::End => "end",
-                };
-                let rot = if *angle != 0.0 {
-                    format!(r#" transform="rotate({:.3} {x:.3} {y:.3})""#, -angle.to_degrees())
-                } else {
-                    String::new()
-                };
-                let _ = write!(
-                    out,
-                    r#"<text x="{x:.3}" y="{:.3}" font-size="{size_px}" text-anchor="{anchor}" fill="{}"{rot}>{}</text>"#,
-                    y - 3.0,
-                    palette.stroke(*role),
-                    esc(text)
-                );
-            }
+            } => arrow(
+                &mut out,
+                vp.map(*from),
+                vp.map(*to),
+                palette.stroke(*role),
+                *head_px,
+                1.5,
+                tag,
+            ),
+            Item::Text { .. } | Item::Dimension { .. } => {}
         }
     }
-    let _ = write!(
-        out,
-        r#"<text x="8" y="16" font-size="13" font-weight="600" fill="{}">{}</text>"#,
-        palette.ink,
-        esc(&scene.title)
-    );
-    let _ = write!(
-        out,
-        r#"<text x="8" y="{:.1}" font-size="11" fill="{}">{}</text>"#,
-        height - 8.0,
-        palette.muted,
-        esc(&scene.caption)
-    );
+    for d in &lay.dimensions {
+        let c = palette.stroke(Role::Dimension);
+        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+        let _ = write!(
+            out,
+            r#"<polyline data-tag="{}" points="{:.3},{:.3} {:.3},{:.3}" fill="none" stroke="{c}" stroke-width="1"/>"#,
+            esc(&d.tag),
+            d.from[0],
+            d.from[1],
+            d.to[0],
+            d.to[1]
+        );
+        for end in [d.from, d.to] {
+            arrow(&mut out, mid, end, c, 7.0, 1.0, &format!("{} end", d.tag));
+        }
+    }
+    for l in &lay.labels {
+        let weight = if l.bold { r#" font-weight="600""# } else { "" };
+        let _ = write!(
+            out,
+            r#"<text x="{:.3}" y="{:.3}" font-size="{}"{weight} fill="{}">{}</text>"#,
+            l.x,
+            l.baseline,
+            l.size_px,
+            palette.stroke(l.role),
+            esc(&l.text)
+        );
+    }
     out.push_str("</svg>\n");
     out
 }

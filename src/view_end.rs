@@ -7,13 +7,15 @@
 //! semi-axes in the ratio tan |χ|, and an arrowhead giving the sense of rotation — clockwise in
 //! this view for right-handed light (Born & Wolf's convention: right-handed turns clockwise for
 //! an observer looking toward the source). Linear light is a double-headed line; unpolarized
-//! light a dashed ring. Each spot carries its power as text; the largest distance between spots
-//! is dimensioned; a cross marks where the undeviated incident beam would be.
+//! light a dashed ring. Each spot carries its power as text ("no power" below [`NO_POWER`], its
+//! circle then grey and its ellipse left out); the largest distance between spots is dimensioned
+//! (where it is long enough on screen), in the view's one length unit, which the scale bar
+//! shares; a cross marks where the undeviated incident beam would be.
 
-use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, length_text, nice_step, significant};
+use crate::numfmt::{LengthUnit, NO_POWER, length, power};
+use crate::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 use crate::stokes::{Handedness, ellipse};
 use crate::trace::TraceResult;
-use crate::view_side::dimension;
 
 /// Builds the end view of a traced result for a beam of `diameter_mm`.
 pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
@@ -60,7 +62,7 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         let c = spot.position_mm;
         let name = spot.rays.join("+");
         let name = if name.is_empty() { "out".to_string() } else { name };
-        let dim = spot.power < 1e-6;
+        let dim = spot.power < NO_POWER;
         scene.items.push(Item::Circle {
             center: c,
             radius: r,
@@ -80,9 +82,15 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
                 });
             }
         }
-        polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
-        let power = format!("{name}: P {}", significant(spot.power, 4));
-        scene.text([c[0], c[1] - 1.25 * r], power, 12.0, Anchor::Middle, Role::Label);
+        if !dim {
+            polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
+        }
+        let text = if dim {
+            format!("{name}: no power")
+        } else {
+            format!("{name}: P {}", power(spot.power, 4))
+        };
+        scene.text([c[0], c[1] - 1.25 * r], text, 12.0, Anchor::Middle, Role::Label);
         let _ = i;
     }
 
@@ -98,6 +106,8 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
             }
         }
     }
+    let bar = nice_step(bounds.width() / 4.0);
+    let unit = LengthUnit::for_values(&[best.0, bar]);
     if best.0 > 0.0 {
         let (a, b) = (result.spots[best.1].position_mm, result.spots[best.2].position_mm);
         // Offset the dimension line above the spots, perpendicular to the line joining them.
@@ -108,17 +118,15 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
             ny = -ny;
         }
         let off = 1.5 * r;
-        dimension(
-            &mut scene,
+        scene.dimension(
             [a[0] + nx * off, a[1] + ny * off],
             [b[0] + nx * off, b[1] + ny * off],
-            &length_text(best.0),
+            length(best.0, unit, 3),
             "separation",
         );
     }
 
     // Scale bar under the spots.
-    let bar = nice_step(bounds.width() / 4.0);
     let y = bounds.y0 - 0.6 * r;
     scene.line(
         vec![[bounds.x0, y], [bounds.x0 + bar, y]],
@@ -127,12 +135,14 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         3.0,
         "scale",
     );
-    scene.text(
+    // The scale is read before any name: placed first.
+    scene.label(
         [bounds.x0 + 0.5 * bar, y],
-        length_text(bar),
+        length(bar, unit, 3),
         11.0,
         Anchor::Middle,
         Role::ScaleBar,
+        Priority::Key,
     );
     scene.bounds = Rect {
         x0: bounds.x0,
@@ -151,7 +161,7 @@ pub fn convex_hull(pts: &[Point]) -> Vec<usize> {
     if idx.len() <= 3 {
         return idx;
     }
-    idx.sort_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
+    idx.sort_unstable_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
     let cross = |o: usize, a: usize, b: usize| {
         (pts[a][0] - pts[o][0]) * (pts[b][1] - pts[o][1]) - (pts[a][1] - pts[o][1]) * (pts[b][0] - pts[o][0])
     };
@@ -190,7 +200,7 @@ pub fn polarization_glyph(scene: &mut Scene, c: Point, a: f64, s: &[f64; 4], tag
                 .map(|i| at(i as f64 / 48.0 * std::f64::consts::TAU, a))
                 .collect();
             scene.line(ring, Role::Ellipse, vec![3.0, 3.0], 1.5, tag);
-            scene.text(c, "unpolarized", 10.0, Anchor::Middle, Role::Caption);
+            scene.label(c, "unpolarized", 10.0, Anchor::Middle, Role::Caption, Priority::Detail);
         }
         Handedness::Linear => {
             let (p, q) = (at(0.0, 0.0), at(std::f64::consts::PI, 0.0));
@@ -230,12 +240,13 @@ pub fn polarization_glyph(scene: &mut Scene, c: Point, a: f64, s: &[f64; 4], tag
                 ),
             });
             let hand = if e.handedness == Handedness::Right { "R" } else { "L" };
-            scene.text(
+            scene.label(
                 [c[0] + 1.05 * a, c[1] + 0.6 * a],
                 hand,
                 11.0,
                 Anchor::Start,
                 Role::Ellipse,
+                Priority::Detail,
             );
         }
     }
@@ -267,10 +278,10 @@ mod tests {
             assert_eq!(*center, spot.position_mm);
             assert_eq!(*radius, 0.4, "demo beam diameter 0.8 mm");
         }
-        let Some(Item::Polyline { points, .. }) = scene.tagged("separation").next() else {
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("separation").next() else {
             panic!()
         };
-        let span = (points[1][0] - points[0][0]).hypot(points[1][1] - points[0][1]);
+        let span = (to[0] - from[0]).hypot(to[1] - from[1]);
         assert!((span - 1.3554544373106694).abs() < 1e-12, "{span}");
         assert!(scene.texts().iter().any(|t| t.contains("P 0.5")));
     }

@@ -1,12 +1,28 @@
 //! A plot of a [`Series`]: axes with ticks, units and labels, the curve, and the current point.
 //!
 //! World coordinates are the data's own units (x and y scaled independently, [`Aspect::Free`]).
-//! Ticks fall on round values ([`nice_step_at_least`]); the current operating point is a marker with its
-//! value written beside it. An empty series gives a framed panel with its note.
+//! Ticks fall on round values ([`nice_step_at_least`]) and their labels stay at their ticks (the
+//! placement pass leaves out one that would touch its neighbour); the current operating point is
+//! a marker with its value written beside it. An empty series gives a framed panel with its note.
+//! Numbers come from [`crate::numfmt`]; an axis in mm is written in the one length unit its
+//! largest value chooses (a separation of 2 µm reads "2.00 µm", not "0.002 mm"), its geometry
+//! staying in the data's units.
 
-use crate::scene::{Anchor, Aspect, Item, Rect, Role, Scene, nice_step_at_least, significant};
+use crate::numfmt::{LengthUnit, sig, tick};
+use crate::scene::{Anchor, Aspect, Item, Priority, Rect, Role, Scene, nice_step_at_least};
 use crate::statistics::Summary;
 use crate::sweep::Series;
+
+/// How an axis writes its numbers: the factor from data units to shown units, and the unit shown.
+/// Lengths in mm take the unit their largest magnitude chooses; other units are shown as given.
+fn axis_unit(unit: &str, largest: f64) -> (f64, String) {
+    if unit == "mm" {
+        let u = LengthUnit::for_max(largest);
+        (u.per_mm(), u.symbol().to_string())
+    } else {
+        (1.0, unit.to_string())
+    }
+}
 
 /// Builds the plot of a series.
 pub fn plot(series: &Series) -> Scene {
@@ -39,6 +55,8 @@ pub fn plot(series: &Series) -> Scene {
         (data.x0 - 1.0, data.x1 + 1.0)
     };
     let (w, h) = (x1 - x0, y1 - y0);
+    let (fx, x_unit) = axis_unit(&series.x_unit, x0.abs().max(x1.abs()));
+    let (fy, y_unit) = axis_unit(&series.y_unit, y0.abs().max(y1.abs()));
 
     // Grid, ticks and tick labels.
     // At most about five labels per axis, so that they stay apart in a narrow panel.
@@ -47,9 +65,9 @@ pub fn plot(series: &Series) -> Scene {
     let mut t = (x0 / xs).ceil() * xs;
     while t <= x1 + 1e-9 * w {
         scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
-        scene.text(
-            [t, y0 - 0.05 * h],
-            significant_tick(t, xs),
+        scene.fixed_label(
+            [t, y0 - 0.1 * h],
+            tick(t * fx, xs * fx),
             10.0,
             Anchor::Middle,
             Role::Caption,
@@ -59,9 +77,9 @@ pub fn plot(series: &Series) -> Scene {
     let mut t = (y0 / ys).ceil() * ys;
     while t <= y1 + 1e-9 * h {
         scene.line(vec![[x0, t], [x1, t]], Role::Grid, vec![1.0, 3.0], 0.5, "grid y");
-        scene.text(
+        scene.fixed_label(
             [x0 - 0.015 * w, t - 0.02 * h],
-            significant_tick(t, ys),
+            tick(t * fy, ys * fy),
             10.0,
             Anchor::End,
             Role::Caption,
@@ -74,19 +92,21 @@ pub fn plot(series: &Series) -> Scene {
         role: Role::Frame,
         tag: "frame".into(),
     });
-    scene.text(
-        [0.5 * (x0 + x1), y0 - 0.13 * h],
-        format!("{} ({})", series.x_label, series.x_unit),
+    scene.label(
+        [0.5 * (x0 + x1), y0 - 0.25 * h],
+        format!("{} ({x_unit})", series.x_label),
         11.0,
         Anchor::Middle,
         Role::Label,
+        Priority::Key,
     );
-    scene.text(
+    scene.label(
         [x0, y1 + 0.04 * h],
-        format!("{} ({})", series.y_label, series.y_unit),
+        format!("{} ({y_unit})", series.y_label),
         11.0,
         Anchor::Start,
         Role::Label,
+        Priority::Key,
     );
 
     // Curve, split where samples are missing (gaps wider than twice the usual spacing).
@@ -116,13 +136,7 @@ pub fn plot(series: &Series) -> Scene {
             tag: "current".into(),
         });
         let right = c[0] < x0 + 0.7 * w;
-        let label = format!(
-            "{} {} at {} {}",
-            significant(c[1], 4),
-            series.y_unit,
-            significant(c[0], 4),
-            series.x_unit
-        );
+        let label = format!("{} {y_unit} at {} {x_unit}", sig(c[1] * fy, 4), sig(c[0] * fx, 4));
         scene.text(
             [c[0] + if right { 0.02 } else { -0.02 } * w, c[1] + 0.04 * h],
             label,
@@ -133,7 +147,7 @@ pub fn plot(series: &Series) -> Scene {
     }
     scene.bounds = Rect {
         x0: x0 - 0.1 * w,
-        y0: y0 - 0.2 * h,
+        y0: y0 - 0.31 * h,
         x1: x1 + 0.03 * w,
         y1: y1 + 0.1 * h,
     };
@@ -163,6 +177,19 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
         (x0 - 0.5 * x0.abs().max(1e-12), x1 + 0.5 * x1.abs().max(1e-12))
     };
     let (w, top) = (x1 - x0, peak * 1.15);
+    let (f, unit) = axis_unit(unit, x0.abs().max(x1.abs()));
+    // Digits enough to tell the marks apart: down to a tenth of the spread.
+    let resolved = |v: f64| {
+        let spread = if summary.std > 0.0 { summary.std } else { w };
+        let top = (v.abs() * f).log10().floor();
+        let bottom = (0.1 * spread * f).log10().floor();
+        let n = if top.is_finite() && bottom.is_finite() {
+            (top - bottom + 1.0).clamp(2.0, 8.0) as usize
+        } else {
+            4
+        };
+        sig(v * f, n)
+    };
     for (i, &c) in h.counts.iter().enumerate() {
         let (a, b) = (h.edges[i], h.edges[i + 1]);
         let (a, b) = if b > a { (a, b) } else { (x0, x1) };
@@ -175,9 +202,9 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
     let xs = nice_step_at_least(w / 4.0);
     let mut t = (x0 / xs).ceil() * xs;
     while t <= x1 + 1e-9 * w {
-        scene.text(
+        scene.fixed_label(
             [t, -0.06 * top],
-            significant_tick(t, xs),
+            tick(t * f, xs * f),
             10.0,
             Anchor::Middle,
             Role::Caption,
@@ -185,16 +212,12 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
         t += xs;
     }
     let mut marks: Vec<(f64, String, Role)> = vec![
-        (summary.p5, format!("p5 {}", significant(summary.p5, 5)), Role::Grid),
-        (summary.p95, format!("p95 {}", significant(summary.p95, 5)), Role::Grid),
-        (
-            summary.mean,
-            format!("mean {}", significant(summary.mean, 5)),
-            Role::Marker,
-        ),
+        (summary.p5, format!("p5 {}", resolved(summary.p5)), Role::Grid),
+        (summary.p95, format!("p95 {}", resolved(summary.p95)), Role::Grid),
+        (summary.mean, format!("mean {}", resolved(summary.mean)), Role::Marker),
     ];
     if let Some(n) = nominal {
-        marks.push((n, format!("nominal {}", significant(n, 5)), Role::Label));
+        marks.push((n, format!("nominal {}", resolved(n)), Role::Label));
     }
     for (k, (x, label, role)) in marks.iter().enumerate() {
         scene.line(
@@ -217,12 +240,13 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
         role: Role::Frame,
         tag: "frame".into(),
     });
-    scene.text(
+    scene.label(
         [0.5 * (x0 + x1), -0.16 * top],
-        format!("{quantity} ({unit}) · σ {}", significant(summary.std, 3)),
+        format!("{quantity} ({unit}) · σ {}", sig(summary.std * f, 3)),
         11.0,
         Anchor::Middle,
         Role::Label,
+        Priority::Key,
     );
     scene.bounds = Rect {
         x0: x0 - 0.05 * w,
@@ -231,16 +255,6 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
         y1: top * 1.05,
     };
     scene
-}
-
-fn significant_tick(v: f64, step: f64) -> String {
-    let decimals = if step >= 1.0 {
-        0
-    } else {
-        (-step.log10().floor()) as usize
-    };
-    let v = if v.abs() < 1e-12 * step { 0.0 } else { v };
-    format!("{v:.decimals$}")
 }
 
 #[cfg(test)]

@@ -6,9 +6,12 @@
 //! to the lower left, S2 to the lower right; the equator (linear states) and the S1–S3 and S2–S3
 //! great circles are drawn, solid on the near side and dotted on the far side, and so are the
 //! points. Below the sphere the numbers S1, S2, S3 and p are written for the input and every
-//! output spot. Conventions: S3 > 0 is right-handed (north pole = right circular).
+//! output spot (three decimals, from [`crate::numfmt`]); a spot that carries no power
+//! ([`NO_POWER`]) has no state to plot and is listed as such. Conventions: S3 > 0 is right-handed
+//! (north pole = right circular).
 
-use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, significant};
+use crate::numfmt::{NO_POWER, fixed};
+use crate::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene};
 use crate::trace::TraceResult;
 use std::f64::consts::TAU;
 
@@ -63,8 +66,7 @@ fn numbers(s: &[f64; 4]) -> String {
 }
 
 fn fmt(v: f64) -> String {
-    let v = if v.abs() < 5e-5 { 0.0 } else { v };
-    format!("{v:+.4}")
+    fixed(v, 3, 5e-4)
 }
 
 /// Builds the polarization panel of a traced result.
@@ -98,7 +100,14 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
             head_px: 6.0,
             tag: format!("axis {name}"),
         });
-        scene.text([x * 1.08, y * 1.08], name, 12.0, Anchor::Middle, Role::Label);
+        scene.label(
+            [x * 1.08, y * 1.08],
+            name,
+            12.0,
+            Anchor::Middle,
+            Role::Label,
+            Priority::Normal,
+        );
     }
 
     let mut lines: Vec<(String, Role)> = Vec::new();
@@ -112,7 +121,7 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
             tag: "state input".into(),
         });
         scene.text([x + 0.06, y + 0.06], "in", 11.0, Anchor::Start, Role::InputState);
-        lines.push((format!("in   {}", numbers(&result.input.stokes)), Role::InputState));
+        lines.push((format!("in: {}", numbers(&result.input.stokes)), Role::InputState));
     }
     for spot in &result.spots {
         let name = if spot.rays.is_empty() {
@@ -120,7 +129,8 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
         } else {
             spot.rays.join("+")
         };
-        if let Some(p) = normalized(&spot.stokes) {
+        let p = normalized(&spot.stokes).filter(|_| spot.power >= NO_POWER);
+        if let Some(p) = p {
             let (x, y, d) = project(p);
             scene.items.push(Item::Dot {
                 center: [x, y],
@@ -130,27 +140,27 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
                 tag: format!("state {name}"),
             });
             scene.text([x + 0.05, y - 0.09], name.clone(), 11.0, Anchor::Start, Role::Marker);
-            lines.push((format!("{name:<4} {}", numbers(&spot.stokes)), Role::Label));
+            lines.push((format!("{name}: {}", numbers(&spot.stokes)), Role::Label));
         } else {
-            lines.push((format!("{name:<4} no power"), Role::Caption));
+            lines.push((format!("{name}: no power"), Role::Caption));
         }
     }
     let mut y = -1.35;
     for (text, role) in lines.iter().take(12) {
-        scene.text([-1.25, y], text.clone(), 11.0, Anchor::Start, *role);
+        scene.label([-1.25, y], text.clone(), 11.0, Anchor::Start, *role, Priority::Detail);
         y -= 0.16;
     }
     if lines.len() > 12 {
-        scene.text(
+        scene.label(
             [-1.25, y],
             format!("… and {} more spots", lines.len() - 12),
             11.0,
             Anchor::Start,
             Role::Caption,
+            Priority::Detail,
         );
         y -= 0.16;
     }
-    let _ = significant;
     scene.bounds = Rect {
         x0: -1.35,
         y0: y,
@@ -188,7 +198,7 @@ mod tests {
             scene
                 .texts()
                 .iter()
-                .any(|t| t.starts_with("in   S1 +0.0000  S2 +1.0000  S3 +0.0000  p +1.0000")),
+                .any(|t| t.starts_with("in: S1 0.000  S2 1.000  S3 0.000  p 1.000")),
             "{:?}",
             scene.texts()
         );

@@ -15,15 +15,15 @@
 //! thin bar, the incident beam, o-rays solid and e-rays dashed in every crystal (rays in the
 //! outside medium keep the style of their last crystal), a label at the end of each ray, a
 //! dimension line across the exit spots, the walk-off angle of the first crystal marked with its
-//! value, and scale bars.
+//! value, and scale bars. Every length of the view is written in one unit, chosen from the largest
+//! ([`LengthUnit::for_values`]); rays that carry no power ([`NO_POWER`]) are drawn thin and grey
+//! and their spot is labelled "no power".
 
+use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
 use crate::scenario::{ElementKind, Scenario};
-use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, length_text, nice_step, significant};
+use crate::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 use crate::trace::{ElementReport, TraceResult};
 use crate::uniaxial::OpticAxis;
-
-/// Rays with less power than this (fraction of the input) are drawn as dark (grey, thin).
-pub const DARK_RAY: f64 = 1e-9;
 
 /// Dash pattern of e-rays (px).
 pub const E_DASH: [f64; 2] = [7.0, 4.0];
@@ -97,10 +97,21 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     scene.y_stretch = stretch;
     let s = stretch;
     scene.caption = if s > 1.0 {
-        format!("{}; transverse scale ×{}", names.axes, significant(s, 2))
+        format!("{}; transverse scale ×{}", names.axes, sig(s, 2))
     } else {
         format!("{}; to scale", names.axes)
     };
+
+    // The lengths the view writes, and the one unit they share.
+    let exit_xs: Vec<f64> = result.spots.iter().map(|p| across(p.position_mm)).collect();
+    let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+    let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
+    let bar = nice_step(z_extent / 5.0);
+    let transverse_bar = nice_step((px1 - px0) / 3.0);
+    let mut lengths: Vec<f64> = spans.iter().map(|(z0, z1)| z1 - z0).collect();
+    lengths.extend([spread, bar, if s > 1.0 { transverse_bar } else { 0.0 }]);
+    let unit = LengthUnit::for_values(&lengths);
 
     // Plates and ideal elements.
     let mut crystal_index = 0usize;
@@ -125,7 +136,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                 });
                 scene.text(
                     [0.5 * (z0 + z1), px1],
-                    format!("{material} {}", length_text(z1 - z0)),
+                    format!("{material} {}", length(z1 - z0, unit, 3)),
                     11.0,
                     Anchor::Middle,
                     Role::Caption,
@@ -149,17 +160,13 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                         retardance_waves,
                         fast_axis_deg,
                     } => (
-                        format!(
-                            "Γ {} λ @ {}°",
-                            significant(*retardance_waves, 3),
-                            significant(*fast_axis_deg, 3)
-                        ),
+                        format!("Γ {} λ @ {}°", sig(*retardance_waves, 3), sig(*fast_axis_deg, 3)),
                         "retarder",
                     ),
                     ElementKind::Polarizer { transmission_axis_deg } => {
-                        (format!("pol. {}°", significant(*transmission_axis_deg, 3)), "polarizer")
+                        (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
                     }
-                    ElementKind::Rotator { angle_deg } => (format!("rot. {}°", significant(*angle_deg, 3)), "rotator"),
+                    ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
                     ElementKind::Crystal(_) => (String::new(), "crystal"),
                 };
                 scene.items.push(Item::Polyline {
@@ -169,7 +176,14 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                     width: 3.0,
                     tag: format!("{tag} {i}"),
                 });
-                scene.text([z_cursor, px0], name, 11.0, Anchor::Middle, Role::Caption);
+                scene.label(
+                    [z_cursor, px0],
+                    name,
+                    11.0,
+                    Anchor::Middle,
+                    Role::Caption,
+                    Priority::Detail,
+                );
             }
         }
     }
@@ -182,7 +196,14 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         2.0,
         "incident",
     );
-    scene.text([z_min, slope * z_min], "in", 12.0, Anchor::Start, Role::Label);
+    scene.label(
+        [z_min, slope * z_min],
+        "in",
+        12.0,
+        Anchor::Start,
+        Role::Label,
+        Priority::Detail,
+    );
 
     // Rays, segment by segment.
     for ray in &result.rays {
@@ -219,7 +240,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         let (role, dash) = mode_style(last);
         // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
         // is still shown, thin and grey, so that the reader sees where it would go.
-        let (role, width) = if ray.power < DARK_RAY {
+        let (role, width) = if ray.power < NO_POWER {
             (Role::Grid, 1.0)
         } else {
             (role, 2.0)
@@ -241,7 +262,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             spot.rays.join("+")
         };
         let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
-        let name = if spot.power < DARK_RAY {
+        let name = if spot.power < NO_POWER {
             format!("{name} (no power)")
         } else {
             name
@@ -272,28 +293,22 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         }
     }
 
-    // Dimension across the exit points.
-    let exit_xs: Vec<f64> = result.spots.iter().map(|p| across(p.position_mm)).collect();
-    if exit_xs.len() >= 2 {
-        let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
-        let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+    // Dimension across the exit points (drawn where it is long enough on screen).
+    if spread > 0.0 {
         let zd = z_end_stack + 0.35 * lead;
-        if hi - lo > 0.0 {
-            let has_y = result
-                .spots
-                .iter()
-                .any(|p| names.turn(p.position_mm)[1].abs() > 1e-9 * d);
-            let label = if has_y {
-                format!("Δ{} {}", names.up_name, length_text(hi - lo))
-            } else {
-                length_text(hi - lo)
-            };
-            dimension(&mut scene, [zd, lo], [zd, hi], &label, "dimension");
-        }
+        let has_y = result
+            .spots
+            .iter()
+            .any(|p| names.turn(p.position_mm)[1].abs() > 1e-9 * d);
+        let label = if has_y {
+            format!("Δ{} {}", names.up_name, length(spread, unit, 3))
+        } else {
+            length(spread, unit, 3)
+        };
+        scene.dimension([zd, lo], [zd, hi], label, "dimension");
     }
 
     // Scale bars.
-    let bar = nice_step(z_extent / 5.0);
     let yb = px0 - 0.12 * (px1 - px0);
     scene.line(
         vec![[z_min, yb], [z_min + bar, yb]],
@@ -302,23 +317,26 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         3.0,
         "scale z",
     );
-    scene.text(
+    // The scale is read before any name: placed first.
+    scene.label(
         [z_min + 0.5 * bar, yb],
-        length_text(bar),
+        length(bar, unit, 3),
         11.0,
         Anchor::Middle,
         Role::ScaleBar,
+        Priority::Key,
     );
     if s > 1.0 {
-        let tb = nice_step((px1 - px0) / 3.0);
+        let tb = transverse_bar;
         let zb = z_max - 0.02 * z_extent;
         scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
-        scene.text(
+        scene.label(
             [zb - 0.01 * z_extent, yb + 0.5 * tb],
-            format!("{} ({})", length_text(tb), names.up_name),
+            format!("{} ({})", length(tb, unit, 3), names.up_name),
             11.0,
             Anchor::End,
             Role::ScaleBar,
+            Priority::Detail,
         );
     }
     scene.bounds = Rect {
@@ -455,17 +473,25 @@ fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f6
             head_px: 6.0,
             tag: format!("axis {index} back"),
         });
-        scene.text([c[0] + dz, c[1] + dx], "c", 12.0, Anchor::Start, Role::Axis);
+        scene.label(
+            [c[0] + dz, c[1] + dx],
+            "c",
+            12.0,
+            Anchor::Start,
+            Role::Axis,
+            Priority::Detail,
+        );
     }
     // Out-of-plane part: +y of the lab points toward the viewer.
     if v.y.abs() > 0.02 {
         let glyph = if v.y > 0.0 { "⊙" } else { "⊗" };
-        scene.text(
+        scene.label(
             [c[0], c[1]],
-            format!("{glyph} c_y {}", significant(v.y, 2)),
+            format!("{glyph} c_y {}", sig(v.y, 2)),
             12.0,
             Anchor::Middle,
             Role::Axis,
+            Priority::Detail,
         );
     }
 }
@@ -492,27 +518,11 @@ fn walkoff_mark(scene: &mut Scene, at: Point, k: [f64; 3], ray: [f64; 3], walkof
     let mid = to_world(0.5 * (ak + ar) + if ar >= ak { 0.15 } else { -0.15 }, 1.15 * r);
     scene.text(
         mid,
-        format!("ρ = {}°", significant(walkoff_deg, 3)),
+        format!("ρ = {}°", sig(walkoff_deg, 3)),
         12.0,
         Anchor::Start,
         Role::Angle,
     );
-}
-
-/// A dimension line between `a` and `b` with arrowheads at both ends and a label.
-pub fn dimension(scene: &mut Scene, a: Point, b: Point, label: &str, tag: &str) {
-    scene.line(vec![a, b], Role::Dimension, vec![], 1.0, tag);
-    let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
-    for end in [a, b] {
-        scene.items.push(Item::Arrow {
-            from: mid,
-            to: end,
-            role: Role::Dimension,
-            head_px: 7.0,
-            tag: format!("{tag} end"),
-        });
-    }
-    scene.text(mid, format!(" {label}"), 12.0, Anchor::Start, Role::Dimension);
 }
 
 #[cfg(test)]
@@ -559,10 +569,10 @@ mod tests {
         let ElementReport::Crystal { separation_mm, .. } = r.elements[0] else {
             panic!()
         };
-        let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
             panic!("no dimension")
         };
-        let span = (points[1][1] - points[0][1]).abs();
+        let span = (to[1] - from[1]).abs();
         assert!((span - separation_mm.unwrap()).abs() < 1e-12, "{span}");
         assert!(
             scene.texts().iter().any(|t| t.contains("1.36 mm")),
@@ -626,11 +636,8 @@ mod tests {
         assert_eq!(xz, side_view(&sc, &r));
         assert!(span(&xz) < 1e-12 * sep, "x–z shows {} mm", span(&xz));
         // (A dimension across rounding noise, if any, spans ~0 too.)
-        if let Some(Item::Polyline { points, .. }) = xz.tagged("dimension").next() {
-            assert!(
-                (points[1][1] - points[0][1]).abs() < 1e-12 * sep,
-                "x–z dimension {points:?}"
-            );
+        if let Some(Item::Dimension { from, to, .. }) = xz.tagged("dimension").next() {
+            assert!((to[1] - from[1]).abs() < 1e-12 * sep, "x–z dimension {from:?} {to:?}");
         }
         for (plane, title) in [
             (SidePlane::Yz, "Side view (y–z)"),
@@ -644,10 +651,10 @@ mod tests {
                 "{plane:?}: {} vs {sep}",
                 span(&scene)
             );
-            let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+            let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
                 panic!("{plane:?}: no dimension")
             };
-            let dim = (points[1][1] - points[0][1]).abs();
+            let dim = (to[1] - from[1]).abs();
             assert!(
                 (dim - sep).abs() < 1e-12 * sep,
                 "{plane:?}: dimension {dim} vs separation {sep}"
@@ -671,10 +678,10 @@ mod tests {
         let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
             panic!()
         };
-        let Some(Item::Polyline { points, .. }) = scene.tagged("dimension").next() else {
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
             panic!("no dimension")
         };
-        let dim = (points[1][1] - points[0][1]).abs();
+        let dim = (to[1] - from[1]).abs();
         assert!((dim - separation_mm.unwrap()).abs() < 1e-12, "{dim}");
         // Calcite is negative: the e-ray leans away from the optic axis (azimuth 30° − 180°).
         assert!(scene.title.contains("(-150° from x)"), "{}", scene.title);

@@ -42,7 +42,11 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         other => {
             return Err(Error::new(
                 "view",
-                format!("unknown view '{other}'; expected one of: {}", VIEW_NAMES.join(", ")),
+                format!(
+                    "unknown view '{}'; expected one of: {}",
+                    crate::numfmt::quote_text(other),
+                    VIEW_NAMES.join(", ")
+                ),
             ));
         }
     })

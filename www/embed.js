@@ -17,17 +17,26 @@
 // Each element has its own Session of the core (pkg/doublespar.js, next to this file, loaded
 // once per page). It is sized by CSS (the views share its height; 16rem unless the page says
 // otherwise) and redraws when resized. A bad scenario or view shows its message inside the
-// element; the last good picture stays. Nothing is fetched but the core, from beside this file.
+// element; the last good picture stays. Nothing is fetched but the core and format.js, from beside this file.
 //
 // For scripts (tests, pages that want the numbers): `el.result` (the last good result object),
 // `el.scenario` (the current scenario with every default written out, an object), `el.session`,
 // `el.ready` (a promise resolved after the first trace), and the attribute `data-state`
 // ("loading", "ready" or "error"). The separation of the first crystal plate is shown with
-// data-quantity="elements[i].separation_mm" and data-value, as on the page.
+// data-quantity="elements[i].separation_mm" and data-value, as on the page, its text written by
+// the page's formatter (format.js, beside this file: the core's rules, tested against the same
+// cases).
+//
+// Narrow figures (below STACK_BELOW_PX, e.g. a 240 px column) stack their views vertically, each
+// at least 9rem high (the attribute data-stacked on the element says so); the core's label
+// placement leaves out secondary labels in such small panels.
+
+import { lengthIn, lengthUnitFor } from './format.js';
 
 const CORE_URL = new URL('./pkg/doublespar.js', import.meta.url).href;
 const TAG = 'spar-figure';
 const DEFAULT_VIEWS = ['side', 'end'];
+const STACK_BELOW_PX = 480; // narrower figures stack their views
 
 let corePromise = null;
 function loadCore() {
@@ -51,6 +60,8 @@ const STYLE = `
 .views { flex: 1 1 auto; min-height: 0; display: grid; grid-auto-flow: column; grid-auto-columns: 1fr; gap: 1px;
   background: color-mix(in srgb, CanvasText 12%, transparent); }
 .box { position: relative; min-width: 0; min-height: 0; background: Canvas; }
+:host([data-stacked]) { height: auto !important; } /* over a page's own height: both views show whole */
+:host([data-stacked]) .views { grid-auto-flow: row; grid-auto-columns: auto; grid-auto-rows: minmax(9rem, 1fr); }
 canvas { position: absolute; inset: 0; width: 100%; height: 100%; display: block; }
 .bar { display: flex; flex-wrap: wrap; gap: 0.25rem 1rem; align-items: center; padding: 0.3rem 0.6rem; }
 .bar:empty { display: none; }
@@ -58,7 +69,8 @@ label { display: inline-flex; gap: 0.4rem; align-items: center; }
 input[type=range] { width: 8rem; }
 output { font-variant-numeric: tabular-nums; min-width: 4.5em; }
 .readout { font-variant-numeric: tabular-nums; }
-.error { margin: 0; padding: 0.3rem 0.6rem; color: #b00020; background: color-mix(in srgb, #b00020 10%, Canvas); }
+.error { margin: 0; padding: 0.3rem 0.6rem; color: #b00020; background: color-mix(in srgb, #b00020 10%, Canvas);
+  overflow-wrap: anywhere; }
 .error[hidden] { display: none; }
 @media (prefers-color-scheme: dark) { .error { color: #ff8a80; } }
 `;
@@ -113,6 +125,10 @@ class SparFigure extends HTMLElement {
     root.append(this._frame);
     this._ro = new ResizeObserver((entries) => {
       for (const entry of entries) {
+        if (entry.target === this) {
+          this.toggleAttribute('data-stacked', entry.contentRect.width < STACK_BELOW_PX);
+          continue;
+        }
         const v = this._views.find((x) => x.box === entry.target);
         if (v) this._drawOne(v);
       }
@@ -142,6 +158,7 @@ class SparFigure extends HTMLElement {
 
   connectedCallback() {
     darkQuery.addEventListener('change', this._onScheme);
+    this._ro.observe(this);
     if (this._started) {
       for (const v of this._views) this._ro.observe(v.box);
       return;
@@ -191,6 +208,7 @@ class SparFigure extends HTMLElement {
 
   _buildViews() {
     this._ro.disconnect();
+    this._ro.observe(this);
     this._viewBox.replaceChildren();
     this._views = [];
     const { names, bad, known } = this._viewNames();
@@ -298,7 +316,7 @@ class SparFigure extends HTMLElement {
     const e = this._result.elements && this._result.elements[i];
     const sep = e && typeof e.separation_mm === 'number' ? e.separation_mm : null;
     this._readout.setAttribute('data-value', sep === null ? '' : String(sep));
-    this._readout.textContent = sep === null ? '' : `o–e separation ${sep.toFixed(3)} mm`;
+    this._readout.textContent = sep === null ? '' : `o–e separation ${lengthIn(sep, lengthUnitFor(sep), 4)}`;
   }
 
   _drawAll() {

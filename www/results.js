@@ -9,9 +9,13 @@
 // when its value changed. The ray and spot tables show ROW_LIMIT rows and a "show all" button
 // (data-show-all="rays" or "spots"), whose click the page answers with toggleShowAll(which) and
 // a new render.
+//
+// Numbers follow format.js (the core's rules): each table writes its positions in one length
+// unit, chosen from its largest position (no "1.00 mm" beside "998 µm"); a ray or spot below
+// NO_POWER reads "no power"; circular light shows no azimuth ("—", the title says why).
 
 import { h } from './dom.js';
-import { fmt } from './format.js';
+import { fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
 
@@ -20,9 +24,32 @@ let resultShape = null;
 let cells = [];
 const showAll = { rays: false, spots: false };
 
-function cell(tag, path, get, format, attrs) {
+// The length unit of each table's positions, chosen at every render from its largest value.
+const units = { rays: lengthUnitForValues([]), spots: lengthUnitForValues([]) };
+
+function positionsUnit(items, key) {
+  const values = [];
+  for (const x of items) values.push(x[key][0], x[key][1]);
+  return lengthUnitForValues(values);
+}
+
+/** A position in the table's unit; below 1 pm (rounding of a zero) it is 0. */
+function positionIn(table) {
+  return (v) => (v === null || v === undefined ? '—' : lengthIn(Math.abs(v) < 1e-9 ? 0 : v, units[table], 5));
+}
+
+/** Whether the item `pick(r)` is circular light, whose azimuth means nothing. */
+function circular(pick) {
+  return (r) => !showsAzimuth(pick(r).ellipse.ellipticity_deg);
+}
+
+/**
+ * A result cell: `get(r)` its value (data-value), `format(v, r)` its text. `keyOf(r)`, when
+ * given, names what else the text depends on (a table's unit, whether the light is circular).
+ */
+function cell(tag, path, get, format, attrs, keyOf) {
   const el = h(tag, { 'data-quantity': path, ...(attrs ?? {}) });
-  cells.push({ el, get, format, last: undefined });
+  cells.push({ el, get, format, keyOf, last: undefined });
   return el;
 }
 
@@ -54,7 +81,9 @@ function moreRow(which, shown, total, colspan) {
 /** The polarization columns shared by the ray and spot tables: ellipse azimuth, ellipticity,
  * handedness and degree of polarization of the item that `pick(result)` selects. */
 function appendPolarizationCells(tr, p, pick) {
-  tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => pick(x).ellipse.azimuth_deg, fmt.ellipseDeg));
+  const isCircular = circular(pick);
+  const azimuth = (v, r) => (isCircular(r) ? '—' : fmt.ellipseDeg(v));
+  tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => pick(x).ellipse.azimuth_deg, azimuth, {}, (r) => String(isCircular(r))));
   tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => pick(x).ellipse.ellipticity_deg, fmt.ellipseDeg));
   tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => pick(x).ellipse.handedness, fmt.text, { className: 'word' }));
   tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
@@ -113,8 +142,9 @@ function buildResults(r) {
     const p = `rays.${ray.label}`;
     const tr = h('tr', {}, h('th', { scope: 'row', className: `ray-label${rayClass(ray.label)}`, text: ray.label || '(no crystal)' }));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.rays[k].power, fmt.power));
-    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], fmt.mm));
-    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], fmt.mm));
+    const rayUnit = () => units.rays.symbol;
+    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], positionIn('rays'), {}, rayUnit));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], positionIn('rays'), {}, rayUnit));
     appendPolarizationCells(tr, p, (x) => x.rays[k]);
     rayRows.appendChild(tr);
   });
@@ -131,8 +161,9 @@ function buildResults(r) {
     const p = `spots[${k}]`;
     const tr = h('tr', {}, h('th', { scope: 'row', text: `${k + 1}` }));
     tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, fmt.labels, { className: 'word' }));
-    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], fmt.mm));
-    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], fmt.mm));
+    const spotUnit = () => units.spots.symbol;
+    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], positionIn('spots'), {}, spotUnit));
+    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], positionIn('spots'), {}, spotUnit));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
     appendPolarizationCells(tr, p, (x) => x.spots[k]);
     spotRows.appendChild(tr);
@@ -166,13 +197,19 @@ export function renderResults(r) {
     buildResults(r);
     resultShape = shape;
   }
+  units.rays = positionsUnit(r.rays, 'exit_position_mm');
+  units.spots = positionsUnit(r.spots, 'position_mm');
   for (const c of cells) {
     const v = c.get(r);
     const s = String(v);
-    if (s !== c.last) {
-      c.last = s;
+    const key = c.keyOf ? `${s} ${c.keyOf(r)}` : s;
+    if (key !== c.last) {
+      c.last = key;
       c.el.setAttribute('data-value', s);
-      c.el.textContent = c.format(v);
+      const text = c.format(v, r);
+      c.el.textContent = text;
+      if (text === '—' && c.el.dataset.quantity.endsWith('.azimuth_deg')) c.el.title = 'circular light has no azimuth';
+      else if (c.el.title) c.el.title = '';
     }
   }
   const w = r.warnings.join('\n');

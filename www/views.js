@@ -4,14 +4,16 @@
 // #view-error and keeps its last picture. For printing (the sheet goes on paper) the views are
 // drawn in the light palette. The side view has a plane chooser (select[data-side-plane]):
 // x–z, y–z or along the first crystal's walk-off; its canvas's data-view then names the view
-// drawn (side, side-yz, side-walkoff), and its caption follows.
+// drawn (side, side-yz, side-walkoff), and its caption follows. Numbers follow format.js (the
+// core's rules): one length unit per description, chosen from its largest length; no azimuth
+// for circular light; "no power" below NO_POWER.
 //
 // Contract: setupViews({session, darkQuery, viewList, materialName, current}) once, after the
 // core has loaded; it returns the list of views ({name, canvas, box}). Then drawViews() draws
 // them all, describeViews() writes their descriptions from current(), and redraw() does both.
 
 import { h, setAttr, setText } from './dom.js';
-import { fixed, fmt } from './format.js';
+import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth } from './format.js';
 import { toFieldError } from './field-error.js';
 
 const views = []; // {name, canvas, box, failed}; the side view's canvas data-view is the plane's view
@@ -86,8 +88,9 @@ function num(v, digits) {
   return fixed(v, digits, 5e-13);
 }
 
+/** A length alone in its sentence, in its own unit. */
 function lengthText(v) {
-  return fmt.mm(v);
+  return v === null || v === undefined ? '—' : lengthIn(v, lengthUnitFor(v), 3);
 }
 
 function maxSpotDistance(spots) {
@@ -114,7 +117,7 @@ function maxSpotDistance(spots) {
 function ellipseWords(e) {
   if (e.handedness === 'unpolarized') return 'unpolarized';
   if (e.handedness === 'linear') return `linear at ${num(e.azimuth_deg, 1)}°`;
-  if (Math.abs(Math.abs(e.ellipticity_deg) - 45) < 0.05) return `${e.handedness}-handed circular`;
+  if (!showsAzimuth(e.ellipticity_deg)) return `${e.handedness}-handed circular`;
   return `${e.handedness}-handed elliptical, azimuth ${num(e.azimuth_deg, 1)}°, ellipticity ${num(e.ellipticity_deg, 1)}°`;
 }
 
@@ -150,9 +153,12 @@ export function describeViews() {
     texts.side = `${sideHead}: ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
   }
 
+  // One unit for every position of the end view's description.
+  const endUnit = lengthUnitForValues(spots.slice(0, 6).flatMap((s) => s.position_mm));
+  const at = (mm) => lengthIn(Math.abs(mm) < 1e-9 ? 0 : mm, endUnit, 4).split(' ')[0];
   texts.end = spots.length === 0
     ? 'End view, looking back toward the source: no light leaves the stack.'
-    : `End view, looking back toward the source (x to the right, y up): ${spots.length} spot${spots.length === 1 ? '' : 's'}. ${listed(spots, 6, (s, k) => `${spotName(s, k)} at (${num(s.position_mm[0], 3)}, ${num(s.position_mm[1], 3)}) mm, power ${fmt.power(s.power)}, ${ellipseWords(s.ellipse)}`)}.`;
+    : `End view, looking back toward the source (x to the right, y up): ${spots.length} spot${spots.length === 1 ? '' : 's'}. ${listed(spots, 6, (s, k) => `${spotName(s, k)} at (${at(s.position_mm[0])}, ${at(s.position_mm[1])}) ${endUnit.symbol}, ${fmt.power(s.power) === 'no power' ? 'no power' : `power ${fmt.power(s.power)}`}, ${ellipseWords(s.ellipse)}`)}.`;
 
   const norm = (st) => (st[0] > 0 ? [st[1] / st[0], st[2] / st[0], st[3] / st[0]] : [0, 0, 0]);
   const triple = (st) => `(${norm(st).map((x) => num(x, 3)).join(', ')})`;

@@ -13,24 +13,17 @@ use std::collections::BTreeSet;
 
 const LABEL_WIDTH: usize = 30;
 
-/// A number with 4 significant digits, in scientific notation when very small or large.
+/// A number with 4 significant digits by the one formatter (`numfmt`: plain for everyday
+/// magnitudes, m×10ⁿ beyond them, up to 12 characters since a report is not a drawing); whole
+/// numbers (counts, round inputs such as 45 ° or 1064 nm) without a decimal tail.
 fn num(x: f64) -> String {
     if !x.is_finite() {
         return "not defined".into();
     }
-    if x == 0.0 {
-        return "0".into();
+    if x.fract() == 0.0 && x.abs() < 1e6 {
+        return format!("{x:.0}").replace('-', "\u{2212}");
     }
-    let a = x.abs();
-    if x.fract() == 0.0 && a < 1e6 {
-        // Whole numbers (counts, round inputs such as 45 ° or 1064 nm) without a decimal tail.
-        format!("{x:.0}")
-    } else if (1e-3..1e6).contains(&a) {
-        doublespar::scene::significant(x, 4)
-    } else {
-        // Rust writes 1.125e-7: short and unambiguous.
-        format!("{x:.3e}")
-    }
+    doublespar::numfmt::sig_within(x, 4, 12)
 }
 
 struct Report<'a> {
