@@ -128,20 +128,25 @@ pub fn render(r: &TraceResult) -> String {
     let _ = writeln!(out);
     let _ = writeln!(
         out,
-        "Spots (coinciding rays added as fields; total power {:.6})",
+        "Spots (rays whose beams overlap added as fields; total power {:.6})",
         r.total_power
     );
     for (i, s) in r.spots.iter().enumerate() {
         let _ = writeln!(
             out,
-            "{:>3}  rays {:<12} power {:.4}  at ({:.6}, {:.6}) mm  {}  DoP {:.4}",
+            "{:>3}  rays {:<12} power {:.4}  at ({:.6}, {:.6}) mm  {}  DoP {:.4}{}",
             i,
             s.rays.join("+"),
             s.power,
             s.position_mm[0],
             s.position_mm[1],
             ellipse_text(&s.ellipse),
-            s.degree_of_polarization
+            s.degree_of_polarization,
+            if s.rays.len() > 1 {
+                format!("  overlap {:.5}", s.overlap)
+            } else {
+                String::new()
+            }
         );
     }
     if !r.warnings.is_empty() {

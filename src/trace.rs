@@ -19,12 +19,13 @@
 //! plane-wave phase at a fixed lateral point, so that paths that meet at one point compare
 //! correctly. Retardance of a plate: Γ = k0 (q_z,e − q_z,o) L, exact at oblique incidence.
 
+use crate::beam_overlap::GaussianBeam;
 use crate::error::Error;
 use crate::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::jones::{self, Jones, JonesMatrix};
 use crate::material::Indices;
 use crate::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
-use crate::precision::{POWER_ROUNDING, SPOT_FRACTION_OF_DIAMETER};
+use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, POWER_ROUNDING, SITE_FRACTION_OF_RADIUS, SPOT_LINK_OVERLAP};
 use crate::scenario::{ElementKind, Medium, Polarization, Scenario};
 use crate::stokes::{self, Ellipse};
 use crate::uniaxial::{OpticAxis, Uniaxial, angle_between, max_walkoff_cut};
@@ -65,26 +66,37 @@ pub struct Ray {
     pub points_mm: Vec<[f64; 3]>,
 }
 
-/// Rays that leave from one point in one direction, with their fields added.
+/// Output rays whose Gaussian beams overlap on the exit plane, with their fields added, each pair
+/// weighted by the overlap of its two beams (`beam_overlap.rs`).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Spot {
-    /// Labels of the rays in this spot.
+    /// Labels of the rays in this spot, in the order of `rays`.
     pub rays: Vec<String>,
-    /// Exit point [x, y] of the first ray of the spot, mm.
+    /// Indices of those rays in the result's `rays` (not serialized: the labels say the same).
+    #[serde(skip)]
+    pub ray_index: Vec<usize>,
+    /// Centre of the spot [x, y], mm: the power-weighted mean of its rays' exit points (their
+    /// plain mean when none carries power); the first ray's point when they coincide.
     pub position_mm: [f64; 2],
     /// Largest distance of a member ray from that point, mm.
     pub spread_mm: f64,
+    /// How well the spot's beams coincide, 0 to 1: exp(−4σ²/w² − k²w²σ_t²) with σ², σ_t² the
+    /// power-weighted variances of the rays' points and transverse directions; for two rays of
+    /// equal power, their power coupling exp(−d²/w²) (Joyce & DeLoach); 1 when they coincide.
+    pub overlap: f64,
     /// Unit direction.
     pub direction: [f64; 3],
-    /// Power of the coherent sum.
+    /// Power of the coherent sum, ∫|Σ E_i|² over the plane.
     pub power: f64,
-    /// Stokes vector of the coherent sum.
+    /// Stokes vector of the coherent sum, integrated over the plane.
     pub stokes: [f64; 4],
-    /// Degree of polarization.
+    /// Degree of polarization (below 1 where beams of different polarization overlap partly).
     pub degree_of_polarization: f64,
     /// Polarization ellipse.
     pub ellipse: Ellipse,
-    /// Jones vector of the coherent sum (fully polarized input only).
+    /// Jones vector of the field in one Gaussian beam centred on the spot (fully polarized input
+    /// only): Σ γ_i J_i, with γ_i the overlap of ray i's beam with that beam. It is the coherent
+    /// sum Σ J_i when the rays coincide; otherwise |J|² ≤ `power`.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub jones: Option<JonesJson>,
 }
@@ -226,7 +238,7 @@ pub struct TraceResult {
     pub rays: Vec<Ray>,
     /// Per element, in stack order.
     pub elements: Vec<ElementReport>,
-    /// Output rays grouped where they coincide.
+    /// Output rays grouped where their beams overlap on the exit plane.
     pub spots: Vec<Spot>,
     /// Sum of the spots' powers.
     pub total_power: f64,
@@ -298,14 +310,7 @@ fn lost_power(before: f64, after: f64) -> f64 {
 /// C = ½ [[S0 + S1, S2 + iS3], [S2 − iS3, S0 − S1]] (the same number as Mueller(M)·S, row 0,
 /// at a fraction of the cost; it is evaluated for every path at every element).
 fn power_of(m: &JonesMatrix, s_in: &[f64; 4]) -> f64 {
-    let c12 = Complex64::new(0.5 * s_in[2], 0.5 * s_in[3]);
-    let c = JonesMatrix::new(
-        (0.5 * (s_in[0] + s_in[1])).into(),
-        c12,
-        c12.conj(),
-        (0.5 * (s_in[0] - s_in[1])).into(),
-    );
-    (m * c * m.adjoint()).trace().re
+    (m * coherency(s_in) * m.adjoint()).trace().re
 }
 
 fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
@@ -561,7 +566,8 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
         })
         .collect();
 
-    let spots = group_spots(&paths, &s_in, j_in.as_ref(), sc.beam.diameter_mm, direction);
+    let beam = GaussianBeam::new(sc.beam.diameter_mm, k0 * n_out);
+    let spots = group_spots(&paths, &s_in, j_in.as_ref(), &beam, direction);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
         stokes: s_in,
@@ -583,71 +589,367 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
     })
 }
 
-/// Groups paths whose exit points lie within [`SPOT_FRACTION_OF_DIAMETER`] of the beam diameter
-/// of a spot's first ray and adds their fields. Every ray leaves parallel plates along the
-/// incident direction, so positions alone decide.
+/// The coherency matrix C = ½ [[S0 + S1, S2 + iS3], [S2 − iS3, S0 − S1]] of a Stokes vector.
+fn coherency(s: &[f64; 4]) -> JonesMatrix {
+    let c12 = Complex64::new(0.5 * s[2], 0.5 * s[3]);
+    JonesMatrix::new(
+        (0.5 * (s[0] + s[1])).into(),
+        c12,
+        c12.conj(),
+        (0.5 * (s[0] - s[1])).into(),
+    )
+}
+
+/// Groups paths into spots and adds their fields, weighted by the overlap of their beams.
+///
+/// Rule (`../shared/CONVENTIONS.md`, version 2, "spots"): two rays are linked when the amplitude
+/// overlap |γ| of their Gaussian beams is at least [`SPOT_LINK_OVERLAP`] (e⁻²: one beam diameter
+/// apart in one direction); a spot is a connected group of linked rays, listed in the order of its
+/// first ray. Its coherency matrix is C = Σ_ij γ_ij M_i C_in M_jᴴ over its rays (γ_ii = 1), the
+/// integral of E Eᴴ over the plane, so its power and Stokes vector include each pair's
+/// interference weighted by γ_ij and are physical for any input.
+///
+/// Cost. Rays within [`SITE_FRACTION_OF_RADIUS`] of each other share a *site* whose matrices are
+/// summed first (their γ is 1 to the last bit); sites are linked through a grid of cells one beam
+/// diameter wide (only the 3 × 3 neighbouring cells are searched), and inside a spot pairs whose
+/// γ is below e^−[`OVERLAP_NEGLIGIBLE_EXPONENT`] are skipped, so thousands of rays cost far less
+/// than every pair.
 fn group_spots(
     paths: &[Path],
     s_in: &[f64; 4],
     j_in: Option<&Jones>,
-    diameter_mm: f64,
+    beam: &GaussianBeam,
     direction: [f64; 3],
 ) -> Vec<Spot> {
-    let tol = SPOT_FRACTION_OF_DIAMETER * diameter_mm;
-    // Each path joins the earliest group whose first path lies within `tol`. Groups are indexed
-    // in a grid of cells `tol` wide, so only the 3 × 3 neighbouring cells are searched (linear
-    // time for thousands of rays instead of quadratic).
-    let cell = |p: &[f64; 2]| -> (i64, i64) { ((p[0] / tol).floor() as i64, (p[1] / tol).floor() as i64) };
-    // The grid is a sorted list of (cell, group) rather than a hash map: as fast here, and far
-    // less code in the WebAssembly module.
-    let mut grid: Vec<((i64, i64), usize)> = Vec::new();
-    let mut groups: Vec<Vec<usize>> = Vec::new();
-    for (i, p) in paths.iter().enumerate() {
-        let (cx, cy) = cell(&p.pos);
-        let mut found: Option<usize> = None;
-        for dx in -1..=1 {
-            for dy in -1..=1 {
+    // After plane-parallel plates every ray leaves along the incident direction: one transverse
+    // direction for all, so only offsets reduce the overlap here.
+    let t = [direction[0], direction[1]];
+    let w = beam.radius_mm;
+    let pos = |i: usize| paths[i].pos;
+
+    // 1. Sites: rays at one point (sorted by position, merged with the site's first ray).
+    let mut order: Vec<usize> = (0..paths.len()).collect();
+    order.sort_by(|&a, &b| {
+        let (p, q) = (pos(a), pos(b));
+        p[0].total_cmp(&q[0]).then(p[1].total_cmp(&q[1]))
+    });
+    let eps = SITE_FRACTION_OF_RADIUS * w;
+    let mut sites: Vec<Vec<usize>> = Vec::new();
+    for &i in &order {
+        match sites.last_mut() {
+            Some(site)
+                if {
+                    let (p, q) = (pos(site[0]), pos(i));
+                    (p[0] - q[0]).abs() <= eps && (p[1] - q[1]).abs() <= eps
+                } =>
+            {
+                site.push(i)
+            }
+            _ => sites.push(vec![i]),
+        }
+    }
+    for site in &mut sites {
+        site.sort_unstable();
+    }
+
+    // 2. Link sites whose beams overlap enough, through a grid of cells one diameter wide (a
+    // sorted list of (cell, site): as fast as a hash map here, and less WebAssembly).
+    let link_exponent = -SPOT_LINK_OVERLAP.ln();
+    let d = 2.0 * w;
+    let cell = |p: [f64; 2]| ((p[0] / d).floor(), (p[1] / d).floor());
+    let mut grid: Vec<((f64, f64), usize)> = sites.iter().enumerate().map(|(k, s)| (cell(pos(s[0])), k)).collect();
+    let key_cmp = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
+    grid.sort_by(|a, b| key_cmp(&a.0, &b.0).then(a.1.cmp(&b.1)));
+    let mut parent: Vec<usize> = (0..sites.len()).collect();
+    fn root(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    for (a, site) in sites.iter().enumerate() {
+        let p = pos(site[0]);
+        let (cx, cy) = cell(p);
+        for dx in [-1.0, 0.0, 1.0] {
+            for dy in [-1.0, 0.0, 1.0] {
                 let key = (cx + dx, cy + dy);
-                let start = grid.partition_point(|e| e.0 < key);
-                for &(_, g) in grid[start..].iter().take_while(|e| e.0 == key) {
-                    let q = &paths[groups[g][0]];
-                    if (p.pos[0] - q.pos[0]).hypot(p.pos[1] - q.pos[1]) <= tol && found.is_none_or(|f| g < f) {
-                        found = Some(g);
+                let start = grid.partition_point(|e| key_cmp(&e.0, &key).is_lt());
+                for &(k, b) in &grid[start..] {
+                    if key_cmp(&k, &key).is_ne() {
+                        break;
+                    }
+                    let (ra, rb) = (root(&mut parent, a), root(&mut parent, b));
+                    if ra == rb {
+                        continue;
+                    }
+                    let q = pos(sites[b][0]);
+                    if beam.overlap_exponent([p[0] - q[0], p[1] - q[1]], [0.0, 0.0]) <= link_exponent {
+                        parent[ra.max(rb)] = ra.min(rb);
                     }
                 }
             }
         }
-        match found {
-            Some(g) => groups[g].push(i),
+    }
+
+    // 3. Spots: the connected groups, in the order of their first ray.
+    let mut groups: Vec<(usize, Vec<usize>)> = Vec::new();
+    let mut slot: Vec<Option<usize>> = vec![None; sites.len()];
+    let mut by_first: Vec<usize> = (0..sites.len()).collect();
+    by_first.sort_by_key(|&k| sites[k][0]);
+    for k in by_first {
+        let r = root(&mut parent, k);
+        match slot[r] {
+            Some(g) => groups[g].1.push(k),
             None => {
-                let key = (cx, cy);
-                let at = grid.partition_point(|e| e.0 <= key);
-                grid.insert(at, (key, groups.len()));
-                groups.push(vec![i]);
+                slot[r] = Some(groups.len());
+                groups.push((sites[k][0], vec![k]));
             }
         }
     }
+
+    let c_in = coherency(s_in);
+    let power = |i: usize| power_of(&paths[i].m, s_in);
     groups
         .into_iter()
-        .map(|g| {
-            let first = &paths[g[0]];
-            let m: JonesMatrix = g.iter().map(|&i| paths[i].m).sum();
-            let s = stokes::apply(&stokes::mueller(&m), s_in);
-            let spread = g
+        .map(|(_, members)| {
+            let site_m: Vec<JonesMatrix> = members
                 .iter()
-                .map(|&i| (paths[i].pos[0] - first.pos[0]).hypot(paths[i].pos[1] - first.pos[1]))
-                .fold(0.0, f64::max);
+                .map(|&k| sites[k].iter().map(|&i| paths[i].m).sum())
+                .collect();
+            let mut rays: Vec<usize> = members.iter().flat_map(|&k| sites[k].iter().copied()).collect();
+            rays.sort_unstable();
+            // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
+            let first = pos(rays[0]);
+            let weights: Vec<f64> = rays.iter().map(|&i| power(i).max(0.0)).collect();
+            let total: f64 = weights.iter().sum();
+            let weight = |k: usize| {
+                if total > 0.0 {
+                    weights[k] / total
+                } else {
+                    1.0 / rays.len() as f64
+                }
+            };
+            let mut off = [0.0, 0.0];
+            for (k, &i) in rays.iter().enumerate() {
+                off[0] += weight(k) * (pos(i)[0] - first[0]);
+                off[1] += weight(k) * (pos(i)[1] - first[1]);
+            }
+            let centre = [first[0] + off[0], first[1] + off[1]];
+            let dist = |i: usize| (pos(i)[0] - centre[0]).hypot(pos(i)[1] - centre[1]);
+            let variance: f64 = rays.iter().enumerate().map(|(k, &i)| weight(k) * dist(i).powi(2)).sum();
+            let spread = rays.iter().map(|&i| dist(i)).fold(0.0, f64::max);
+            let overlap = (-2.0 * beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
+
+            let s = if members.len() == 1 {
+                // Rays at one point: the plain coherent sum.
+                stokes::apply(&stokes::mueller(&site_m[0]), s_in)
+            } else {
+                // C = Σ_ab γ_ab F_a C_in F_bᴴ over the sites, the pairs sorted along x so that
+                // far pairs end the inner loop.
+                let mut idx: Vec<usize> = (0..members.len()).collect();
+                let at = |a: usize| pos(sites[members[a]][0]);
+                idx.sort_by(|&a, &b| at(a)[0].total_cmp(&at(b)[0]));
+                let g: Vec<JonesMatrix> = site_m.iter().map(|f| f * c_in).collect();
+                let mut c = JonesMatrix::zeros();
+                for (x, &a) in idx.iter().enumerate() {
+                    c += g[a] * site_m[a].adjoint();
+                    let pa = at(a);
+                    for &b in &idx[x + 1..] {
+                        let pb = at(b);
+                        if (pb[0] - pa[0]).powi(2) / (2.0 * w * w) > OVERLAP_NEGLIGIBLE_EXPONENT {
+                            break;
+                        }
+                        let gamma = beam.overlap(pa, t, pb, t);
+                        if gamma.norm_sqr() == 0.0 {
+                            continue;
+                        }
+                        let term = g[a] * site_m[b].adjoint() * gamma;
+                        c += term + term.adjoint();
+                    }
+                }
+                [
+                    c[(0, 0)].re + c[(1, 1)].re,
+                    c[(0, 0)].re - c[(1, 1)].re,
+                    2.0 * c[(0, 1)].re,
+                    2.0 * c[(0, 1)].im,
+                ]
+            };
+            let jones = j_in.map(|j| {
+                let field: Jones = members
+                    .iter()
+                    .zip(&site_m)
+                    .map(|(&k, f)| f * j * beam.overlap(pos(sites[k][0]), t, centre, t))
+                    .sum();
+                to_json(&field)
+            });
             Spot {
-                rays: g.iter().map(|&i| paths[i].label.clone()).collect(),
-                position_mm: first.pos,
+                rays: rays.iter().map(|&i| paths[i].label.clone()).collect(),
+                ray_index: rays,
+                position_mm: centre,
                 spread_mm: spread,
+                overlap,
                 direction,
                 power: s[0],
                 stokes: s,
                 degree_of_polarization: stokes::degree_of_polarization(&s),
                 ellipse: stokes::ellipse(&s),
-                jones: j_in.map(|j| to_json(&(m * j))),
+                jones,
             }
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::precision::assert_close;
+    use std::f64::consts::PI;
+
+    fn run(doc: &str) -> TraceResult {
+        trace(&Scenario::from_json_str(doc).unwrap()).unwrap()
+    }
+
+    /// Two calcite displacers (axis tilt 45°, walk-off in x) with a half-wave plate at 45°
+    /// between them, the second longer by `mismatch_mm`: "oe" and "eo" leave tan ρ · mismatch
+    /// apart; `after` is appended to the elements.
+    fn pair(diameter_mm: f64, mismatch_mm: f64, after: &str) -> TraceResult {
+        run(&format!(
+            r#"{{"wavelength_nm": 632.8, "beam": {{"diameter_mm": {diameter_mm}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+               "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}},
+                            {{"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45}},
+                            {{"kind": "crystal", "material": "calcite", "thickness_mm": {}, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}{after}]}}"#,
+            2.0 + mismatch_mm
+        ))
+    }
+
+    fn offset(r: &TraceResult, a: &str, b: &str) -> f64 {
+        let p = |l: &str| r.rays.iter().find(|x| x.label == l).unwrap().exit_position_mm;
+        let (p, q) = (p(a), p(b));
+        (p[0] - q[0]).hypot(p[1] - q[1])
+    }
+
+    fn spot_of<'a>(r: &'a TraceResult, label: &str) -> &'a Spot {
+        r.spots.iter().find(|s| s.rays.iter().any(|x| x == label)).unwrap()
+    }
+
+    #[test]
+    fn twenty_nanometres_in_a_ten_micrometre_beam_recombine() {
+        // The convention's own example (CONVENTIONS.md, version 2, spots). The old rule (exit
+        // points within 10⁻³ of the beam diameter, 10 nm here) split this pair into two spots.
+        let tan_rho = {
+            let r = pair(0.01, 1.0, "");
+            offset(&r, "oe", "eo")
+        };
+        let r = pair(0.01, 2e-5 / tan_rho, "");
+        let d = offset(&r, "oe", "eo");
+        assert_close(d, 2e-5, 1e-6, 0.0, "residual tan ρ ΔL");
+        let s = spot_of(&r, "oe");
+        assert!(s.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        // Joyce & DeLoach (from memory): two equal beams offset by d couple exp(−d²/w²).
+        assert_close(
+            s.overlap,
+            (-(2e-5f64 / 5e-3).powi(2)).exp(),
+            1e-12,
+            0.0,
+            "overlap exp(−d²/w²)",
+        );
+        assert!(s.overlap > 0.9999);
+        // Orthogonal polarizations: no interference in the power, which is the whole beam.
+        assert_close(s.power, 1.0, 1e-12, 0.0, "power of the recombined spot");
+    }
+
+    #[test]
+    fn two_beam_diameters_apart_are_separate_spots() {
+        // A single displacer: o and e leave s apart; a beam of diameter s/2 puts them two
+        // diameters apart (overlap e⁻⁸ in amplitude): two spots, each with its own ray.
+        let doc = |dia: f64| {
+            format!(
+                r#"{{"beam": {{"diameter_mm": {dia}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+                    "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}]}}"#
+            )
+        };
+        let s = {
+            let r = run(&doc(1.0));
+            offset(&r, "o", "e")
+        };
+        let r = run(&doc(0.5 * s));
+        assert_eq!(r.spots.len(), 2, "{:?}", r.spots);
+        for spot in &r.spots {
+            assert_eq!(spot.rays.len(), 1);
+            assert_eq!(spot.overlap, 1.0);
+            assert_close(spot.power, 0.5, 1e-12, 0.0, "half the beam in each mode");
+        }
+        // A beam of diameter 2s puts them half a diameter apart (d = w): one spot whose beams
+        // overlap to exp(−1) in power and e^(−1/2) in amplitude; orthogonal, equal beams
+        // integrate to a degree of polarization |γ| (C = ½ [[1, γ], [γ, 1]] up to the phase):
+        // the two fields overlap only partly.
+        let r = run(&doc(2.0 * s));
+        assert_eq!(r.spots.len(), 1, "{:?}", r.spots);
+        let spot = &r.spots[0];
+        assert_close(spot.overlap, (-1f64).exp(), 1e-12, 0.0, "exp(−d²/w²), d = w");
+        assert_close(spot.power, 1.0, 1e-12, 0.0, "orthogonal beams: powers add");
+        assert_close(
+            spot.degree_of_polarization,
+            (-0.5f64).exp(),
+            1e-9,
+            0.0,
+            "degree of polarization |γ| = exp(−d²/(2w²))",
+        );
+        assert_close(
+            spot.spread_mm,
+            0.5 * s,
+            1e-12,
+            0.0,
+            "centre halfway between equal beams",
+        );
+    }
+
+    #[test]
+    fn interfering_spots_match_a_direct_integral_of_the_fields() {
+        // Independent method: the power and Stokes vector of a spot whose two beams interfere
+        // (a polarizer at 45° after a mismatched pair makes their polarizations equal), against
+        // ∫ E Eᴴ of E = Σ J_i g_i(r) summed on a grid from the rays' own Jones vectors and points.
+        let r = pair(0.2, 0.4, r#", {"kind": "polarizer", "transmission_axis_deg": 45}"#);
+        let spot = spot_of(&r, "oe");
+        assert!(spot.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        let rays: Vec<&Ray> = spot.ray_index.iter().map(|&i| &r.rays[i]).collect();
+        let w = 0.1;
+        let n = 400;
+        let (cx, cy) = (spot.position_mm[0], spot.position_mm[1]);
+        let half = 7.0 * w;
+        let h = 2.0 * half / n as f64;
+        let mut c = [[Complex64::ZERO; 2]; 2];
+        for a in 0..n {
+            let x = cx - half + (a as f64 + 0.5) * h;
+            for b in 0..n {
+                let y = cy - half + (b as f64 + 0.5) * h;
+                let mut e = [Complex64::ZERO; 2];
+                for ray in &rays {
+                    let p = ray.exit_position_mm;
+                    let g = (2.0 / (PI * w * w)).sqrt() * (-((x - p[0]).powi(2) + (y - p[1]).powi(2)) / (w * w)).exp();
+                    let j = ray.jones.unwrap();
+                    e[0] += Complex64::new(j[0][0], j[0][1]) * g;
+                    e[1] += Complex64::new(j[1][0], j[1][1]) * g;
+                }
+                for (u, row) in c.iter_mut().enumerate() {
+                    for (v, cell) in row.iter_mut().enumerate() {
+                        *cell += e[u] * e[v].conj() * h * h;
+                    }
+                }
+            }
+        }
+        let s = [
+            c[0][0].re + c[1][1].re,
+            c[0][0].re - c[1][1].re,
+            2.0 * c[0][1].re,
+            2.0 * c[0][1].im,
+        ];
+        for (k, (&got, &want)) in spot.stokes.iter().zip(&s).enumerate() {
+            assert_close(got, want, 1e-9, 1e-3, &format!("S{k}: spot vs ∫ E Eᴴ on a grid"));
+        }
+        // The interference is really there: not the sum of the rays' powers.
+        let sum: f64 = rays.iter().map(|x| x.power).sum();
+        assert!((spot.power - sum).abs() > 1e-3, "{} vs {sum}", spot.power);
+    }
 }

@@ -2,12 +2,14 @@
 //!
 //! World coordinates are millimetres in the exit plane, x to the right and y up, as seen by an
 //! observer downstream looking toward the source (`../shared/CONVENTIONS.md`); the caption says so.
-//! Each spot (rays that leave from one point, added as fields) is a circle of the beam diameter
-//! at its exit point, holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
+//! Each spot (rays whose beams overlap, added as fields: `trace.rs`) is a circle of the beam
+//! diameter at its centre, or, when its rays leave from visibly different points, one circle per
+//! point (their union is the spot's footprint), holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
 //! semi-axes in the ratio tan |χ|, and an arrowhead giving the sense of rotation — clockwise in
 //! this view for right-handed light (Born & Wolf's convention: right-handed turns clockwise for
 //! an observer looking toward the source). Linear light is a double-headed line; unpolarized
-//! light a dashed ring. Each spot carries its power as text; the largest distance between spots
+//! light a dashed ring. Each spot carries its power as text, and its overlap figure when its rays
+//! do not coincide; the largest distance between spots
 //! is dimensioned; a cross marks where the undeviated incident beam would be.
 
 use crate::scene::{Anchor, Aspect, Item, Point, Rect, Role, Scene, length_text, nice_step, significant};
@@ -33,9 +35,9 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
 
     let mut pts: Vec<Point> = vec![undeviated];
     for spot in &result.spots {
-        let c = spot.position_mm;
-        pts.push([c[0] - r, c[1] - r]);
-        pts.push([c[0] + r, c[1] + r]);
+        let (c, e) = (spot.position_mm, r + spot.spread_mm);
+        pts.push([c[0] - e, c[1] - e]);
+        pts.push([c[0] + e, c[1] + e]);
     }
     let bounds = Rect::around(pts).at_least(4.0 * r, 3.0 * r);
 
@@ -56,34 +58,57 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         "undeviated",
     );
 
-    for (i, spot) in result.spots.iter().enumerate() {
+    for spot in &result.spots {
         let c = spot.position_mm;
         let name = spot.rays.join("+");
         let name = if name.is_empty() { "out".to_string() } else { name };
-        let dim = spot.power < 1e-6;
-        scene.items.push(Item::Circle {
-            center: c,
-            radius: r,
-            role: if dim { Role::Grid } else { Role::Spot },
-            filled: false,
-            tag: format!("spot {name}"),
-        });
-        for label in &spot.rays {
-            let ray = result.rays.iter().find(|x| &x.label == label);
-            if let Some(ray) = ray {
+        let role = if spot.power < 1e-6 { Role::Grid } else { Role::Spot };
+        let tag = format!("spot {name}");
+        // One beam circle per visibly distinct exit point of the spot's rays, or one at its centre.
+        let points = distinct_points(
+            spot.ray_index
+                .iter()
+                .filter_map(|&i| result.rays.get(i))
+                .map(|x| x.exit_position_mm),
+            VISIBLE_FRACTION_OF_RADIUS * r,
+        );
+        let circles = if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r && points.len() > 1 {
+            points.clone()
+        } else {
+            vec![c]
+        };
+        for center in circles {
+            scene.items.push(Item::Circle {
+                center,
+                radius: r,
+                role,
+                filled: false,
+                tag: tag.clone(),
+            });
+        }
+        for &i in &spot.ray_index {
+            if let Some(ray) = result.rays.get(i) {
                 scene.items.push(Item::Dot {
                     center: ray.exit_position_mm,
                     radius_px: 2.0,
                     role: Role::Label,
                     filled: true,
-                    tag: format!("exit {label}"),
+                    tag: format!("exit {}", ray.label),
                 });
             }
         }
         polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
-        let power = format!("{name}: P {}", significant(spot.power, 4));
-        scene.text([c[0], c[1] - 1.25 * r], power, 12.0, Anchor::Middle, Role::Label);
-        let _ = i;
+        let mut text = format!("{name}: P {}", significant(spot.power, 4));
+        if points.len() > 1 {
+            text.push_str(&format!(" · overlap {}", significant(spot.overlap, 5)));
+        }
+        scene.text(
+            [c[0], c[1] - 1.25 * r - spot.spread_mm],
+            text,
+            12.0,
+            Anchor::Middle,
+            Role::Label,
+        );
     }
 
     // Dimension between the two spots farthest apart (they lie on the convex hull).
@@ -142,6 +167,30 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     }
     .padded(0.08, 0.08);
     scene
+}
+
+/// Offsets below this fraction of the beam radius are not visible in the end view: rays closer
+/// than that are drawn as one beam circle.
+const VISIBLE_FRACTION_OF_RADIUS: f64 = 0.01;
+
+/// The points of `pts` that lie farther than `tol` (in x or y) from every point kept before them,
+/// in their order (a sorted pass, not every pair, so thousands of rays stay cheap).
+fn distinct_points(pts: impl Iterator<Item = Point>, tol: f64) -> Vec<Point> {
+    let mut kept: Vec<Point> = Vec::new();
+    let mut sorted: Vec<Point> = Vec::new();
+    for p in pts {
+        let start = sorted.partition_point(|q| q[0] < p[0] - tol);
+        let near = sorted[start..]
+            .iter()
+            .take_while(|q| q[0] <= p[0] + tol)
+            .any(|q| (q[1] - p[1]).abs() <= tol);
+        if !near {
+            let at = sorted.partition_point(|q| q[0] < p[0]);
+            sorted.insert(at, p);
+            kept.push(p);
+        }
+    }
+    kept
 }
 
 /// Indices of the points on the convex hull of `pts` (A. M. Andrew's monotone chain, Inf. Proc.
