@@ -18,6 +18,7 @@ pub mod plate;
 pub mod precision;
 pub mod scenario;
 pub mod scene;
+pub mod spots;
 pub mod statistics;
 pub mod stokes;
 pub mod svg;

@@ -25,8 +25,10 @@ use crate::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::jones::{self, Jones, JonesMatrix};
 use crate::material::Indices;
 use crate::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
-use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, POWER_ROUNDING, SITE_FRACTION_OF_RADIUS, SPOT_LINK_OVERLAP};
+use crate::precision::POWER_ROUNDING;
 use crate::scenario::{ElementKind, Medium, Polarization, Scenario};
+pub use crate::spots::Spot;
+use crate::spots::{Exit, group_spots, power_of};
 use crate::stokes::{self, Ellipse};
 use crate::uniaxial::{OpticAxis, Uniaxial, angle_between, max_walkoff_cut};
 use nalgebra::Vector3;
@@ -64,41 +66,6 @@ pub struct Ray {
     /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm: the polyline it
     /// follows through the stack (the last point is the exit point).
     pub points_mm: Vec<[f64; 3]>,
-}
-
-/// Output rays whose Gaussian beams overlap on the exit plane, with their fields added, each pair
-/// weighted by the overlap of its two beams (`beam_overlap.rs`).
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Spot {
-    /// Labels of the rays in this spot, in the order of `rays`.
-    pub rays: Vec<String>,
-    /// Indices of those rays in the result's `rays` (not serialized: the labels say the same).
-    #[serde(skip)]
-    pub ray_index: Vec<usize>,
-    /// Centre of the spot [x, y], mm: the power-weighted mean of its rays' exit points (their
-    /// plain mean when none carries power); the first ray's point when they coincide.
-    pub position_mm: [f64; 2],
-    /// Largest distance of a member ray from that point, mm.
-    pub spread_mm: f64,
-    /// How well the spot's beams coincide, 0 to 1: exp(−4σ²/w² − k²w²σ_t²) with σ², σ_t² the
-    /// power-weighted variances of the rays' points and transverse directions; for two rays of
-    /// equal power, their power coupling exp(−d²/w²) (Joyce & DeLoach); 1 when they coincide.
-    pub overlap: f64,
-    /// Unit direction.
-    pub direction: [f64; 3],
-    /// Power of the coherent sum, ∫|Σ E_i|² over the plane.
-    pub power: f64,
-    /// Stokes vector of the coherent sum, integrated over the plane.
-    pub stokes: [f64; 4],
-    /// Degree of polarization (below 1 where beams of different polarization overlap partly).
-    pub degree_of_polarization: f64,
-    /// Polarization ellipse.
-    pub ellipse: Ellipse,
-    /// Jones vector of the field in one Gaussian beam centred on the spot (fully polarized input
-    /// only): Σ γ_i J_i, with γ_i the overlap of ray i's beam with that beam. It is the coherent
-    /// sum Σ J_i when the rays coincide; otherwise |J|² ≤ `power`.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub jones: Option<JonesJson>,
 }
 
 /// Whether a mode carries power into the crystal.
@@ -254,7 +221,7 @@ struct Path {
     points: Vec<[f64; 3]>,
 }
 
-fn to_json(j: &Jones) -> JonesJson {
+pub(crate) fn to_json(j: &Jones) -> JonesJson {
     [[j[0].re, j[0].im], [j[1].re, j[1].im]]
 }
 
@@ -304,13 +271,6 @@ fn lost_power(before: f64, after: f64) -> f64 {
     } else {
         lost
     }
-}
-
-/// Power of a path for input Stokes vector `s_in`: tr(M C Mᴴ) with the coherency matrix
-/// C = ½ [[S0 + S1, S2 + iS3], [S2 − iS3, S0 − S1]] (the same number as Mueller(M)·S, row 0,
-/// at a fraction of the cost; it is evaluated for every path at every element).
-fn power_of(m: &JonesMatrix, s_in: &[f64; 4]) -> f64 {
-    (m * coherency(s_in) * m.adjoint()).trace().re
 }
 
 fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
@@ -567,7 +527,15 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
         .collect();
 
     let beam = GaussianBeam::new(sc.beam.diameter_mm, k0 * n_out);
-    let spots = group_spots(&paths, &s_in, j_in.as_ref(), &beam, direction);
+    let exits: Vec<Exit> = paths
+        .iter()
+        .map(|p| Exit {
+            label: &p.label,
+            pos: p.pos,
+            m: p.m,
+        })
+        .collect();
+    let spots = group_spots(&exits, &s_in, j_in.as_ref(), &beam, direction);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
         stokes: s_in,
@@ -587,217 +555,6 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
         total_power,
         warnings,
     })
-}
-
-/// The coherency matrix C = ½ [[S0 + S1, S2 + iS3], [S2 − iS3, S0 − S1]] of a Stokes vector.
-fn coherency(s: &[f64; 4]) -> JonesMatrix {
-    let c12 = Complex64::new(0.5 * s[2], 0.5 * s[3]);
-    JonesMatrix::new(
-        (0.5 * (s[0] + s[1])).into(),
-        c12,
-        c12.conj(),
-        (0.5 * (s[0] - s[1])).into(),
-    )
-}
-
-/// Groups paths into spots and adds their fields, weighted by the overlap of their beams.
-///
-/// Rule (`../shared/CONVENTIONS.md`, version 2, "spots"): two rays are linked when the amplitude
-/// overlap |γ| of their Gaussian beams is at least [`SPOT_LINK_OVERLAP`] (e⁻²: one beam diameter
-/// apart in one direction); a spot is a connected group of linked rays, listed in the order of its
-/// first ray. Its coherency matrix is C = Σ_ij γ_ij M_i C_in M_jᴴ over its rays (γ_ii = 1), the
-/// integral of E Eᴴ over the plane, so its power and Stokes vector include each pair's
-/// interference weighted by γ_ij and are physical for any input.
-///
-/// Cost. Rays within [`SITE_FRACTION_OF_RADIUS`] of each other share a *site* whose matrices are
-/// summed first (their γ is 1 to the last bit); sites are linked through a grid of cells one beam
-/// diameter wide (only the 3 × 3 neighbouring cells are searched), and inside a spot pairs whose
-/// γ is below e^−[`OVERLAP_NEGLIGIBLE_EXPONENT`] are skipped, so thousands of rays cost far less
-/// than every pair.
-fn group_spots(
-    paths: &[Path],
-    s_in: &[f64; 4],
-    j_in: Option<&Jones>,
-    beam: &GaussianBeam,
-    direction: [f64; 3],
-) -> Vec<Spot> {
-    // After plane-parallel plates every ray leaves along the incident direction: one transverse
-    // direction for all, so only offsets reduce the overlap here.
-    let t = [direction[0], direction[1]];
-    let w = beam.radius_mm;
-    let pos = |i: usize| paths[i].pos;
-
-    // 1. Sites: rays at one point (sorted by position, merged with the site's first ray).
-    let mut order: Vec<usize> = (0..paths.len()).collect();
-    order.sort_by(|&a, &b| {
-        let (p, q) = (pos(a), pos(b));
-        p[0].total_cmp(&q[0]).then(p[1].total_cmp(&q[1]))
-    });
-    let eps = SITE_FRACTION_OF_RADIUS * w;
-    let mut sites: Vec<Vec<usize>> = Vec::new();
-    for &i in &order {
-        match sites.last_mut() {
-            Some(site)
-                if {
-                    let (p, q) = (pos(site[0]), pos(i));
-                    (p[0] - q[0]).abs() <= eps && (p[1] - q[1]).abs() <= eps
-                } =>
-            {
-                site.push(i)
-            }
-            _ => sites.push(vec![i]),
-        }
-    }
-    for site in &mut sites {
-        site.sort_unstable();
-    }
-
-    // 2. Link sites whose beams overlap enough, through a grid of cells one diameter wide (a
-    // sorted list of (cell, site): as fast as a hash map here, and less WebAssembly).
-    let link_exponent = -SPOT_LINK_OVERLAP.ln();
-    let d = 2.0 * w;
-    let cell = |p: [f64; 2]| ((p[0] / d).floor(), (p[1] / d).floor());
-    let mut grid: Vec<((f64, f64), usize)> = sites.iter().enumerate().map(|(k, s)| (cell(pos(s[0])), k)).collect();
-    let key_cmp = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
-    grid.sort_by(|a, b| key_cmp(&a.0, &b.0).then(a.1.cmp(&b.1)));
-    let mut parent: Vec<usize> = (0..sites.len()).collect();
-    fn root(parent: &mut [usize], mut i: usize) -> usize {
-        while parent[i] != i {
-            parent[i] = parent[parent[i]];
-            i = parent[i];
-        }
-        i
-    }
-    for (a, site) in sites.iter().enumerate() {
-        let p = pos(site[0]);
-        let (cx, cy) = cell(p);
-        for dx in [-1.0, 0.0, 1.0] {
-            for dy in [-1.0, 0.0, 1.0] {
-                let key = (cx + dx, cy + dy);
-                let start = grid.partition_point(|e| key_cmp(&e.0, &key).is_lt());
-                for &(k, b) in &grid[start..] {
-                    if key_cmp(&k, &key).is_ne() {
-                        break;
-                    }
-                    let (ra, rb) = (root(&mut parent, a), root(&mut parent, b));
-                    if ra == rb {
-                        continue;
-                    }
-                    let q = pos(sites[b][0]);
-                    if beam.overlap_exponent([p[0] - q[0], p[1] - q[1]], [0.0, 0.0]) <= link_exponent {
-                        parent[ra.max(rb)] = ra.min(rb);
-                    }
-                }
-            }
-        }
-    }
-
-    // 3. Spots: the connected groups, in the order of their first ray.
-    let mut groups: Vec<(usize, Vec<usize>)> = Vec::new();
-    let mut slot: Vec<Option<usize>> = vec![None; sites.len()];
-    let mut by_first: Vec<usize> = (0..sites.len()).collect();
-    by_first.sort_by_key(|&k| sites[k][0]);
-    for k in by_first {
-        let r = root(&mut parent, k);
-        match slot[r] {
-            Some(g) => groups[g].1.push(k),
-            None => {
-                slot[r] = Some(groups.len());
-                groups.push((sites[k][0], vec![k]));
-            }
-        }
-    }
-
-    let c_in = coherency(s_in);
-    let power = |i: usize| power_of(&paths[i].m, s_in);
-    groups
-        .into_iter()
-        .map(|(_, members)| {
-            let site_m: Vec<JonesMatrix> = members
-                .iter()
-                .map(|&k| sites[k].iter().map(|&i| paths[i].m).sum())
-                .collect();
-            let mut rays: Vec<usize> = members.iter().flat_map(|&k| sites[k].iter().copied()).collect();
-            rays.sort_unstable();
-            // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
-            let first = pos(rays[0]);
-            let weights: Vec<f64> = rays.iter().map(|&i| power(i).max(0.0)).collect();
-            let total: f64 = weights.iter().sum();
-            let weight = |k: usize| {
-                if total > 0.0 {
-                    weights[k] / total
-                } else {
-                    1.0 / rays.len() as f64
-                }
-            };
-            let mut off = [0.0, 0.0];
-            for (k, &i) in rays.iter().enumerate() {
-                off[0] += weight(k) * (pos(i)[0] - first[0]);
-                off[1] += weight(k) * (pos(i)[1] - first[1]);
-            }
-            let centre = [first[0] + off[0], first[1] + off[1]];
-            let dist = |i: usize| (pos(i)[0] - centre[0]).hypot(pos(i)[1] - centre[1]);
-            let variance: f64 = rays.iter().enumerate().map(|(k, &i)| weight(k) * dist(i).powi(2)).sum();
-            let spread = rays.iter().map(|&i| dist(i)).fold(0.0, f64::max);
-            let overlap = (-2.0 * beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
-
-            let s = if members.len() == 1 {
-                // Rays at one point: the plain coherent sum.
-                stokes::apply(&stokes::mueller(&site_m[0]), s_in)
-            } else {
-                // C = Σ_ab γ_ab F_a C_in F_bᴴ over the sites, the pairs sorted along x so that
-                // far pairs end the inner loop.
-                let mut idx: Vec<usize> = (0..members.len()).collect();
-                let at = |a: usize| pos(sites[members[a]][0]);
-                idx.sort_by(|&a, &b| at(a)[0].total_cmp(&at(b)[0]));
-                let g: Vec<JonesMatrix> = site_m.iter().map(|f| f * c_in).collect();
-                let mut c = JonesMatrix::zeros();
-                for (x, &a) in idx.iter().enumerate() {
-                    c += g[a] * site_m[a].adjoint();
-                    let pa = at(a);
-                    for &b in &idx[x + 1..] {
-                        let pb = at(b);
-                        if (pb[0] - pa[0]).powi(2) / (2.0 * w * w) > OVERLAP_NEGLIGIBLE_EXPONENT {
-                            break;
-                        }
-                        let gamma = beam.overlap(pa, t, pb, t);
-                        if gamma.norm_sqr() == 0.0 {
-                            continue;
-                        }
-                        let term = g[a] * site_m[b].adjoint() * gamma;
-                        c += term + term.adjoint();
-                    }
-                }
-                [
-                    c[(0, 0)].re + c[(1, 1)].re,
-                    c[(0, 0)].re - c[(1, 1)].re,
-                    2.0 * c[(0, 1)].re,
-                    2.0 * c[(0, 1)].im,
-                ]
-            };
-            let jones = j_in.map(|j| {
-                let field: Jones = members
-                    .iter()
-                    .zip(&site_m)
-                    .map(|(&k, f)| f * j * beam.overlap(pos(sites[k][0]), t, centre, t))
-                    .sum();
-                to_json(&field)
-            });
-            Spot {
-                rays: rays.iter().map(|&i| paths[i].label.clone()).collect(),
-                ray_index: rays,
-                position_mm: centre,
-                spread_mm: spread,
-                overlap,
-                direction,
-                power: s[0],
-                stokes: s,
-                degree_of_polarization: stokes::degree_of_polarization(&s),
-                ellipse: stokes::ellipse(&s),
-                jones,
-            }
-        })
-        .collect()
 }
 
 #[cfg(test)]
