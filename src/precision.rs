@@ -15,14 +15,14 @@ pub const DEGENERATE_DIRECTION: f64 = 1e-12;
 pub const EVANESCENT_IM: f64 = 1e-13;
 
 /// Two output rays belong to one spot when the amplitude overlap |γ| of their Gaussian beams
-/// (`beam_overlap.rs`) is at least this, e⁻²: for rays in one direction, when their points lie at
+/// (`beam_overlap.rs`) is at least e^−(this), e⁻²: for rays in one direction, when their points lie at
 /// most one beam diameter apart, so that the beam circles the end view draws touch or overlap.
 /// Spots are the connected groups of such pairs. Rays two diameters apart (|γ| = e⁻⁸ ≈ 3·10⁻⁴)
 /// are separate spots; inside a spot every pair interferes with its own weight γ, so a 20 nm
 /// residual in a 10 µm beam recombines with overlap 0.99998. Between separate spots the
 /// interference left out is at most 2 e⁻² √(P_i P_j) per pair, and none where the polarizations
 /// are orthogonal (as a displacer's are).
-pub const SPOT_LINK_OVERLAP: f64 = 0.135_335_283_236_612_7;
+pub const SPOT_LINK_EXPONENT: f64 = 2.0;
 
 /// Rays whose points lie closer than this fraction of the beam radius share one site: their mode
 /// overlap rounds to exactly 1 in double precision (1 − 5·10⁻¹⁹), so their fields are summed

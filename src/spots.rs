@@ -2,7 +2,7 @@
 //!
 //! Physics (`../shared/CONVENTIONS.md`, version 2, "spots"). Every ray stands for a Gaussian beam
 //! of the scenario's diameter (`beam_overlap.rs`). Two rays are *linked* when the amplitude overlap
-//! |γ| of their beams is at least [`SPOT_LINK_OVERLAP`] = e⁻²; after plane-parallel plates every
+//! |γ| of their beams is at least e^−[`SPOT_LINK_EXPONENT`] = e⁻²; after plane-parallel plates every
 //! ray leaves in the incident direction, so this is: their points lie at most one beam diameter
 //! D apart (their circles in the end view touch). A spot is a connected group of linked rays,
 //! listed in the order of its first ray. Its coherency matrix is the integral of E Eᴴ over the
@@ -27,7 +27,7 @@
 
 use crate::beam_overlap::GaussianBeam;
 use crate::jones::{Jones, JonesMatrix};
-use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, SITE_FRACTION_OF_RADIUS, SPOT_LINK_OVERLAP};
+use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, SITE_FRACTION_OF_RADIUS, SPOT_LINK_EXPONENT};
 use crate::stokes::{self, Ellipse};
 use crate::trace::{JonesJson, to_json};
 use num_complex::Complex64;
@@ -80,6 +80,23 @@ pub struct Spot {
     pub jones: Option<JonesJson>,
 }
 
+/// Spots with more rays than this are named by their first two and a count.
+const NAMED_RAYS: usize = 4;
+
+impl Spot {
+    /// The spot's name in views: its rays' labels joined by "+" ("out" for the ray of a stack
+    /// without crystals); past four rays the first two, "…" and the count ("oo+oe+… (4096 rays)"),
+    /// so that a label stays short however many rays a spot holds.
+    pub fn name(&self) -> String {
+        match self.rays.len() {
+            0 => "out".to_string(),
+            n if n > NAMED_RAYS => format!("{}+{}+… ({n} rays)", self.rays[0], self.rays[1]),
+            _ if self.rays.iter().all(|r| r.is_empty()) => "out".to_string(),
+            _ => self.rays.join("+"),
+        }
+    }
+}
+
 /// One output ray as the grouping sees it.
 #[derive(Debug, Clone, Copy)]
 pub struct Exit<'a> {
@@ -118,6 +135,42 @@ fn stokes_of(c: &JonesMatrix) -> [f64; 4] {
     ]
 }
 
+/// Orders (x, y, index) triples by x, then y, then index (heapsort). The one sort of this
+/// module, written out rather than taken from the standard library: each of its generic sorts
+/// adds kilobytes to the page's WebAssembly, and this adds a few hundred bytes.
+fn sort_keyed(v: &mut [(f64, f64, usize)]) {
+    fn less(a: &(f64, f64, usize), b: &(f64, f64, usize)) -> bool {
+        a.0.total_cmp(&b.0)
+            .then(a.1.total_cmp(&b.1))
+            .then(a.2.cmp(&b.2))
+            .is_lt()
+    }
+    fn sift(v: &mut [(f64, f64, usize)], mut root: usize, end: usize) {
+        loop {
+            let mut child = 2 * root + 1;
+            if child >= end {
+                return;
+            }
+            if child + 1 < end && less(&v[child], &v[child + 1]) {
+                child += 1;
+            }
+            if !less(&v[root], &v[child]) {
+                return;
+            }
+            v.swap(root, child);
+            root = child;
+        }
+    }
+    let n = v.len();
+    for start in (0..n / 2).rev() {
+        sift(v, start, n);
+    }
+    for end in (1..n).rev() {
+        v.swap(0, end);
+        sift(v, 0, end);
+    }
+}
+
 fn root(parent: &mut [usize], mut i: usize) -> usize {
     while parent[i] != i {
         parent[i] = parent[parent[i]];
@@ -146,33 +199,32 @@ pub fn group_spots(
     let pos = |i: usize| exits[i].pos;
 
     // 1. Sites: rays at one point (sorted by position, merged with the site's first ray).
-    let mut order: Vec<usize> = (0..exits.len()).collect();
-    order.sort_by(|&a, &b| {
-        let (p, q) = (pos(a), pos(b));
-        p[0].total_cmp(&q[0]).then(p[1].total_cmp(&q[1]))
-    });
+    let mut order: Vec<(f64, f64, usize)> = exits.iter().enumerate().map(|(i, e)| (e.pos[0], e.pos[1], i)).collect();
+    sort_keyed(&mut order);
     let eps = SITE_FRACTION_OF_RADIUS * w;
-    let mut sites: Vec<Vec<usize>> = Vec::new();
-    for &i in &order {
-        match sites.last_mut() {
-            Some(site)
-                if {
-                    let (p, q) = (pos(site[0]), pos(i));
-                    (p[0] - q[0]).abs() <= eps && (p[1] - q[1]).abs() <= eps
-                } =>
-            {
-                site.push(i)
-            }
-            _ => sites.push(vec![i]),
+    let mut site_of = vec![0; exits.len()];
+    let mut count = 0;
+    let mut lead = usize::MAX;
+    for &(_, _, i) in &order {
+        let near = lead != usize::MAX && {
+            let (p, q) = (pos(lead), pos(i));
+            (p[0] - q[0]).abs() <= eps && (p[1] - q[1]).abs() <= eps
+        };
+        if !near {
+            lead = i;
+            count += 1;
         }
+        site_of[i] = count - 1;
     }
-    for site in &mut sites {
-        site.sort_unstable();
+    // Each site's rays in ray order.
+    let mut sites: Vec<Vec<usize>> = vec![Vec::new(); count];
+    for (i, &k) in site_of.iter().enumerate() {
+        sites[k].push(i);
     }
     let at = |k: usize| pos(sites[k][0]);
 
     // 2. Links. With one direction for all rays, |γ| ≥ e⁻² ⇔ d ≤ D·√(−ln e⁻²/2) = D.
-    let reach = 2.0 * w * (-SPOT_LINK_OVERLAP.ln() / 2.0).sqrt();
+    let reach = 2.0 * w * (SPOT_LINK_EXPONENT / 2.0).sqrt();
     let linked = |a: usize, b: usize| {
         let (p, q) = (at(a), at(b));
         (p[0] - q[0]).hypot(p[1] - q[1]) <= reach
@@ -183,8 +235,14 @@ pub fn group_spots(
     let size = reach / 2f64.sqrt();
     let cell = |p: [f64; 2]| ((p[0] / size).floor(), (p[1] / size).floor());
     let key_cmp = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
-    let mut grid: Vec<((f64, f64), usize)> = (0..sites.len()).map(|k| (cell(at(k)), k)).collect();
-    grid.sort_by(|a, b| key_cmp(&a.0, &b.0).then(a.1.cmp(&b.1)));
+    let mut keyed: Vec<(f64, f64, usize)> = (0..sites.len())
+        .map(|k| {
+            let (cx, cy) = cell(at(k));
+            (cx, cy, k)
+        })
+        .collect();
+    sort_keyed(&mut keyed);
+    let grid: Vec<((f64, f64), usize)> = keyed.into_iter().map(|(cx, cy, k)| ((cx, cy), k)).collect();
     let mut cells: Vec<(usize, usize)> = Vec::new(); // [start, end) in `grid`
     for (n, e) in grid.iter().enumerate() {
         match cells.last_mut() {
@@ -227,9 +285,12 @@ pub fn group_spots(
     // 3. Spots: the connected groups, in the order of their first ray.
     let mut groups: Vec<Vec<usize>> = Vec::new();
     let mut slot: Vec<Option<usize>> = vec![None; sites.len()];
-    let mut by_first: Vec<usize> = (0..sites.len()).collect();
-    by_first.sort_by_key(|&k| sites[k][0]);
-    for k in by_first {
+    // Sites in the order of their first ray (each ray's site, read in ray order).
+    let mut first_of = vec![usize::MAX; exits.len()];
+    for (k, site) in sites.iter().enumerate() {
+        first_of[site[0]] = k;
+    }
+    for k in first_of.into_iter().filter(|&k| k != usize::MAX) {
         let r = root(&mut parent, k);
         match slot[r] {
             Some(g) => groups[g].push(k),
@@ -249,8 +310,12 @@ pub fn group_spots(
                 .iter()
                 .map(|&k| (at(k), sites[k].iter().map(|&i| exits[i].m).sum()))
                 .collect();
-            let mut rays: Vec<usize> = members.iter().flat_map(|&k| sites[k].iter().copied()).collect();
-            rays.sort_unstable();
+            let mut rays: Vec<(f64, f64, usize)> = members
+                .iter()
+                .flat_map(|&k| sites[k].iter().map(|&i| (i as f64, 0.0, i)))
+                .collect();
+            sort_keyed(&mut rays);
+            let rays: Vec<usize> = rays.into_iter().map(|r| r.2).collect();
             // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
             let first = pos(rays[0]);
             let weights: Vec<f64> = rays.iter().map(|&i| power_of(&exits[i].m, s_in).max(0.0)).collect();
@@ -343,14 +408,14 @@ fn grid_shape(fields: &[([f64; 2], JonesMatrix)], beam: &GaussianBeam) -> (usize
 /// The pair sum, pairs sorted along x so that far pairs end the inner loop.
 fn pairwise(fields: &[([f64; 2], JonesMatrix)], c_in: &JonesMatrix, beam: &GaussianBeam) -> JonesMatrix {
     let w = beam.radius_mm;
-    let mut idx: Vec<usize> = (0..fields.len()).collect();
-    idx.sort_by(|&a, &b| fields[a].0[0].total_cmp(&fields[b].0[0]));
+    let mut idx: Vec<(f64, f64, usize)> = fields.iter().enumerate().map(|(a, f)| (f.0[0], 0.0, a)).collect();
+    sort_keyed(&mut idx);
     let g: Vec<JonesMatrix> = fields.iter().map(|(_, f)| f * c_in).collect();
     let mut c = JonesMatrix::zeros();
-    for (x, &a) in idx.iter().enumerate() {
+    for (x, &(_, _, a)) in idx.iter().enumerate() {
         let (pa, fa) = fields[a];
         c += g[a] * fa.adjoint();
-        for &b in &idx[x + 1..] {
+        for &(_, _, b) in &idx[x + 1..] {
             let (pb, fb) = fields[b];
             if (pb[0] - pa[0]).powi(2) / (2.0 * w * w) > OVERLAP_NEGLIGIBLE_EXPONENT {
                 break;

@@ -9,8 +9,9 @@
 //!
 //! - fully polarized input: the output Jones vector of a path is M·J_in;
 //! - any input, partially polarized or not: the output Stokes vector is Mueller(M)·S_in;
-//! - rays that leave from one point in one direction (a *spot*) add as fields: the spot's matrix
-//!   is Σ M over its paths, and its Stokes vector Mueller(Σ M)·S_in.
+//! - rays whose beams overlap on the exit plane (a *spot*, `spots.rs`) add as fields, each pair
+//!   weighted by the overlap of its two Gaussian beams: for rays that leave from one point the
+//!   spot's matrix is Σ M over its paths, and its Stokes vector Mueller(Σ M)·S_in.
 //!
 //! Positions: a ray in a crystal follows its mode's Poynting vector S, so it moves laterally by
 //! L·S_t/S_z across a plate of thickness L; in a gap of the outside medium by g·u_t/u_z. The
@@ -64,7 +65,9 @@ pub struct Ray {
     /// Accumulated propagation phase Σ k0 q_z L over layers and gaps, radians.
     pub phase_rad: f64,
     /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm: the polyline it
-    /// follows through the stack (the last point is the exit point).
+    /// follows through the stack (the last point is the exit point). Never empty in a trace;
+    /// left out of the JSON when emptied (the page's bindings do, for speed).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
     pub points_mm: Vec<[f64; 3]>,
 }
 

@@ -60,8 +60,7 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
 
     for spot in &result.spots {
         let c = spot.position_mm;
-        let name = spot.rays.join("+");
-        let name = if name.is_empty() { "out".to_string() } else { name };
+        let name = spot.name();
         let role = if spot.power < 1e-6 { Role::Grid } else { Role::Spot };
         let tag = format!("spot {name}");
         // One beam circle per visibly distinct exit point of the spot's rays, or one at its centre.

@@ -172,6 +172,7 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     scene.text([z_min, slope * z_min], "in", 12.0, Anchor::Start, Role::Label);
 
     // Rays, segment by segment.
+    let rays_from = scene.items.len();
     for ray in &result.rays {
         let letters: Vec<char> = ray.label.chars().collect();
         let mut last: Option<char> = None;
@@ -220,13 +221,10 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
             tag: format!("exit {}", ray.label),
         });
     }
+    scene.group_styles(rays_from);
     // One label per spot, at the end of its rays.
     for spot in &result.spots {
-        let name = if spot.rays.is_empty() {
-            "out".to_string()
-        } else {
-            spot.rays.join("+")
-        };
+        let name = spot.name();
         let x = spot.position_mm[0] + slope * (z_max - z_end_stack);
         let name = if spot.power < DARK_RAY {
             format!("{name} (no power)")

@@ -118,7 +118,9 @@ export function describeViews() {
   r.elements.forEach((e, i) => { if (e.kind === 'crystal') crystals.push(i); });
   const texts = {};
   const spots = r.spots;
-  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${s.rays.join(' + ')})`);
+  // Past four rays a spot is named by its first two and a count, as the views name it.
+  const rayList = (s) => (s.rays.length > 4 ? `${s.rays[0]} + ${s.rays[1]} + … ${s.rays.length} rays` : s.rays.join(' + '));
+  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${rayList(s)})`);
 
   if (r.rays.length === 0) {
     texts.side = 'Side view (x–z plane, light travelling along +z): no ray leaves the stack.';
