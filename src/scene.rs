@@ -300,51 +300,6 @@ impl Scene {
         });
     }
 
-    /// Reorders the items from index `from` on so that polylines of one style (role, dash,
-    /// width), and dots of one style (role, fill), follow each other, keeping their order within
-    /// a style (a stable grouping by first appearance of the style). For runs of items whose
-    /// drawing order among themselves does not matter, such as thousands of rays: the canvas
-    /// then strokes each style's run as one path.
-    pub fn group_styles(&mut self, from: usize) {
-        if from >= self.items.len() {
-            return;
-        }
-        let tail = self.items.split_off(from);
-        let same = |a: &Item, b: &Item| match (a, b) {
-            (
-                Item::Polyline {
-                    role: r1,
-                    dash: d1,
-                    width: w1,
-                    ..
-                },
-                Item::Polyline {
-                    role: r2,
-                    dash: d2,
-                    width: w2,
-                    ..
-                },
-            ) => r1 == r2 && d1 == d2 && w1 == w2,
-            (
-                Item::Dot {
-                    role: r1, filled: f1, ..
-                },
-                Item::Dot {
-                    role: r2, filled: f2, ..
-                },
-            ) => r1 == r2 && f1 == f2,
-            _ => false,
-        };
-        let mut groups: Vec<Vec<Item>> = Vec::new();
-        for item in tail {
-            match groups.iter_mut().find(|g| same(&g[0], &item)) {
-                Some(g) => g.push(item),
-                None => groups.push(vec![item]),
-            }
-        }
-        self.items.extend(groups.into_iter().flatten());
-    }
-
     /// Items whose tag equals `tag` (for tests and for pointing at things).
     pub fn tagged<'a>(&'a self, tag: &'a str) -> impl Iterator<Item = &'a Item> + 'a {
         self.items.iter().filter(move |i| match i {
@@ -500,46 +455,6 @@ pub fn significant(v: f64, digits: usize) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn grouping_styles_keeps_every_item_and_the_order_within_a_style() {
-        let mut scene = Scene::new("t", "", Aspect::Equal);
-        scene.text([0.0, 0.0], "before", 10.0, Anchor::Start, Role::Label);
-        let dot = |x: f64, role| Item::Dot {
-            center: [x, 0.0],
-            radius_px: 2.0,
-            role,
-            filled: true,
-            tag: format!("dot {x}"),
-        };
-        for k in 0..3 {
-            let x = k as f64;
-            scene.line(vec![[x, 0.0], [x, 1.0]], Role::ORay, vec![], 2.0, format!("o {k}"));
-            scene.line(
-                vec![[x, 0.0], [x, 1.0]],
-                Role::ERay,
-                vec![4.0, 2.0],
-                2.0,
-                format!("e {k}"),
-            );
-            scene.items.push(dot(x, Role::ORay));
-        }
-        scene.group_styles(1);
-        let tags: Vec<&str> = scene
-            .items
-            .iter()
-            .map(|i| match i {
-                Item::Polyline { tag, .. } | Item::Dot { tag, .. } => tag.as_str(),
-                _ => "text",
-            })
-            .collect();
-        assert_eq!(
-            tags,
-            [
-                "text", "o 0", "o 1", "o 2", "e 0", "e 1", "e 2", "dot 0", "dot 1", "dot 2"
-            ]
-        );
-    }
 
     #[test]
     fn nice_steps_and_lengths() {

@@ -88,12 +88,12 @@ impl Spot {
     /// without crystals); past four rays the first two, "…" and the count ("oo+oe+… (4096 rays)"),
     /// so that a label stays short however many rays a spot holds.
     pub fn name(&self) -> String {
-        match self.rays.len() {
-            0 => "out".to_string(),
-            n if n > NAMED_RAYS => format!("{}+{}+… ({n} rays)", self.rays[0], self.rays[1]),
-            _ if self.rays.iter().all(|r| r.is_empty()) => "out".to_string(),
-            _ => self.rays.join("+"),
+        let n = self.rays.len();
+        if n > NAMED_RAYS {
+            return format!("{}+{}+… ({n} rays)", self.rays[0], self.rays[1]);
         }
+        let name = self.rays.join("+");
+        if name.is_empty() { "out".to_string() } else { name }
     }
 }
 
@@ -133,6 +133,12 @@ fn stokes_of(c: &JonesMatrix) -> [f64; 4] {
         2.0 * c[(0, 1)].re,
         2.0 * c[(0, 1)].im,
     ]
+}
+
+/// The overlap γ of the beams of two rays at points `p`, `q` that leave in one direction (as
+/// every ray after plane-parallel plates does): real, exp(−d²/(2w²)).
+fn same_direction_overlap(beam: &GaussianBeam, p: [f64; 2], q: [f64; 2]) -> f64 {
+    (-beam.overlap_exponent([p[0] - q[0], p[1] - q[1]], [0.0, 0.0])).exp()
 }
 
 /// Orders (x, y, index) triples by x, then y, then index (heapsort). The one sort of this
@@ -195,85 +201,81 @@ pub fn group_spots(
     beam: &GaussianBeam,
     direction: [f64; 3],
 ) -> Vec<Spot> {
+    // Plain loops over index arrays throughout: each iterator chain that collects into a new
+    // type costs the page's WebAssembly a copy of generic code.
     let w = beam.radius_mm;
-    let pos = |i: usize| exits[i].pos;
+    let n = exits.len();
 
-    // 1. Sites: rays at one point (sorted by position, merged with the site's first ray).
-    let mut order: Vec<(f64, f64, usize)> = exits.iter().enumerate().map(|(i, e)| (e.pos[0], e.pos[1], i)).collect();
+    // 1. Sites: rays at one point (sorted by position, merged with the site's lead ray).
+    let mut order: Vec<(f64, f64, usize)> = Vec::with_capacity(n);
+    for (i, e) in exits.iter().enumerate() {
+        order.push((e.pos[0], e.pos[1], i));
+    }
     sort_keyed(&mut order);
     let eps = SITE_FRACTION_OF_RADIUS * w;
-    let mut site_of = vec![0; exits.len()];
-    let mut count = 0;
-    let mut lead = usize::MAX;
-    for &(_, _, i) in &order {
-        let near = lead != usize::MAX && {
-            let (p, q) = (pos(lead), pos(i));
-            (p[0] - q[0]).abs() <= eps && (p[1] - q[1]).abs() <= eps
-        };
+    let mut site_of = vec![0; n];
+    let mut site_pos: Vec<[f64; 2]> = Vec::new();
+    for &(x, y, i) in &order {
+        let near = site_pos
+            .last()
+            .is_some_and(|p| (p[0] - x).abs() <= eps && (p[1] - y).abs() <= eps);
         if !near {
-            lead = i;
-            count += 1;
+            site_pos.push([x, y]);
         }
-        site_of[i] = count - 1;
+        site_of[i] = site_pos.len() - 1;
     }
-    // Each site's rays in ray order.
-    let mut sites: Vec<Vec<usize>> = vec![Vec::new(); count];
-    for (i, &k) in site_of.iter().enumerate() {
-        sites[k].push(i);
-    }
-    let at = |k: usize| pos(sites[k][0]);
+    let sites = site_pos.len();
 
-    // 2. Links. With one direction for all rays, |γ| ≥ e⁻² ⇔ d ≤ D·√(−ln e⁻²/2) = D.
+    // 2. Links. With one direction for all rays, |γ| ≥ e⁻² ⇔ d ≤ D·√(2/2) = D.
     let reach = 2.0 * w * (SPOT_LINK_EXPONENT / 2.0).sqrt();
     let linked = |a: usize, b: usize| {
-        let (p, q) = (at(a), at(b));
+        let (p, q) = (site_pos[a], site_pos[b]);
         (p[0] - q[0]).hypot(p[1] - q[1]) <= reach
     };
     // Cells reach/√2 wide: any two sites in one cell are linked; linked sites lie at most two
-    // cells apart. A sorted list of (cell, site) rather than a hash map: as fast here, and far
-    // less WebAssembly.
+    // cells apart. A sorted list of (cell x, cell y, site) rather than a hash map: as fast here,
+    // and far less WebAssembly.
     let size = reach / 2f64.sqrt();
-    let cell = |p: [f64; 2]| ((p[0] / size).floor(), (p[1] / size).floor());
-    let key_cmp = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
-    let mut keyed: Vec<(f64, f64, usize)> = (0..sites.len())
-        .map(|k| {
-            let (cx, cy) = cell(at(k));
-            (cx, cy, k)
-        })
-        .collect();
-    sort_keyed(&mut keyed);
-    let grid: Vec<((f64, f64), usize)> = keyed.into_iter().map(|(cx, cy, k)| ((cx, cy), k)).collect();
+    let mut grid: Vec<(f64, f64, usize)> = Vec::with_capacity(sites);
+    for (k, p) in site_pos.iter().enumerate() {
+        grid.push(((p[0] / size).floor(), (p[1] / size).floor(), k));
+    }
+    sort_keyed(&mut grid);
+    let same_cell = |a: &(f64, f64, usize), x: f64, y: f64| a.0 == x && a.1 == y;
     let mut cells: Vec<(usize, usize)> = Vec::new(); // [start, end) in `grid`
-    for (n, e) in grid.iter().enumerate() {
+    for (m, e) in grid.iter().enumerate() {
         match cells.last_mut() {
-            Some(c) if key_cmp(&grid[c.0].0, &e.0).is_eq() => c.1 = n + 1,
-            _ => cells.push((n, n + 1)),
+            Some(c) if same_cell(&grid[c.0], e.0, e.1) => c.1 = m + 1,
+            _ => cells.push((m, m + 1)),
         }
     }
-    let mut parent: Vec<usize> = (0..sites.len()).collect();
+    let mut parent: Vec<usize> = (0..sites).collect();
     for &(s, e) in &cells {
-        for n in s + 1..e {
-            join(&mut parent, grid[s].1, grid[n].1);
+        for m in s + 1..e {
+            join(&mut parent, grid[s].2, grid[m].2);
         }
     }
     for &(s, e) in &cells {
-        let (cx, cy) = grid[s].0;
+        let (cx, cy) = (grid[s].0, grid[s].1);
         for dx in -2..=2 {
             for dy in -2..=2 {
                 // Each pair of cells once: the neighbour later in the sorted order.
                 if (dx, dy) <= (0, 0) {
                     continue;
                 }
-                let key = (cx + dx as f64, cy + dy as f64);
-                let start = grid.partition_point(|g| key_cmp(&g.0, &key).is_lt());
-                let end = start + grid[start..].iter().take_while(|g| key_cmp(&g.0, &key).is_eq()).count();
-                if start == end || root(&mut parent, grid[s].1) == root(&mut parent, grid[start].1) {
+                let (x, y) = (cx + dx as f64, cy + dy as f64);
+                let start = grid.partition_point(|g| g.0 < x || (g.0 == x && g.1 < y));
+                let mut end = start;
+                while end < grid.len() && same_cell(&grid[end], x, y) {
+                    end += 1;
+                }
+                if start == end || root(&mut parent, grid[s].2) == root(&mut parent, grid[start].2) {
                     continue;
                 }
                 'pairs: for ga in &grid[s..e] {
                     for gb in &grid[start..end] {
-                        if linked(ga.1, gb.1) {
-                            join(&mut parent, ga.1, gb.1);
+                        if linked(ga.2, gb.2) {
+                            join(&mut parent, ga.2, gb.2);
                             break 'pairs;
                         }
                     }
@@ -282,87 +284,126 @@ pub fn group_spots(
         }
     }
 
-    // 3. Spots: the connected groups, in the order of their first ray.
-    let mut groups: Vec<Vec<usize>> = Vec::new();
-    let mut slot: Vec<Option<usize>> = vec![None; sites.len()];
-    // Sites in the order of their first ray (each ray's site, read in ray order).
-    let mut first_of = vec![usize::MAX; exits.len()];
-    for (k, site) in sites.iter().enumerate() {
-        first_of[site[0]] = k;
-    }
-    for k in first_of.into_iter().filter(|&k| k != usize::MAX) {
-        let r = root(&mut parent, k);
-        match slot[r] {
-            Some(g) => groups[g].push(k),
-            None => {
-                slot[r] = Some(groups.len());
-                groups.push(vec![k]);
-            }
+    // 3. Spots: the connected groups, numbered in the order of their first ray; each spot's
+    // rays and sites as ranges of two lists (rays in ray order).
+    let mut spot_of_root = vec![usize::MAX; sites];
+    let mut spot_of_ray = vec![0; n];
+    let mut spots = 0;
+    for (i, s) in spot_of_ray.iter_mut().enumerate() {
+        let r = root(&mut parent, site_of[i]);
+        if spot_of_root[r] == usize::MAX {
+            spot_of_root[r] = spots;
+            spots += 1;
         }
+        *s = spot_of_root[r];
+    }
+    let ranges = |of: &[usize]| -> (Vec<usize>, Vec<usize>) {
+        let mut start = vec![0; spots + 1];
+        for &s in of {
+            start[s + 1] += 1;
+        }
+        for s in 0..spots {
+            start[s + 1] += start[s];
+        }
+        let mut list = vec![0; of.len()];
+        for (i, &s) in of.iter().enumerate() {
+            list[start[s]] = i;
+            start[s] += 1;
+        }
+        // Each start has moved to the next spot's: shift back.
+        for s in (0..spots).rev() {
+            start[s + 1] = start[s];
+        }
+        start[0] = 0;
+        (start, list)
+    };
+    let (ray_start, ray_list) = ranges(&spot_of_ray);
+    let mut spot_of_site = vec![0; sites];
+    for (k, s) in spot_of_site.iter_mut().enumerate() {
+        *s = spot_of_root[root(&mut parent, k)];
+    }
+    let (site_start, site_list) = ranges(&spot_of_site);
+    // Each site's matrix, its rays summed in ray order.
+    let mut site_m: Vec<JonesMatrix> = Vec::with_capacity(sites);
+    for _ in 0..sites {
+        site_m.push(JonesMatrix::zeros());
+    }
+    for (i, e) in exits.iter().enumerate() {
+        site_m[site_of[i]] += e.m;
     }
 
     let c_in = coherency(s_in);
-    let t = [direction[0], direction[1]];
-    groups
-        .into_iter()
-        .map(|members| {
-            let fields: Vec<([f64; 2], JonesMatrix)> = members
-                .iter()
-                .map(|&k| (at(k), sites[k].iter().map(|&i| exits[i].m).sum()))
-                .collect();
-            let mut rays: Vec<(f64, f64, usize)> = members
-                .iter()
-                .flat_map(|&k| sites[k].iter().map(|&i| (i as f64, 0.0, i)))
-                .collect();
-            sort_keyed(&mut rays);
-            let rays: Vec<usize> = rays.into_iter().map(|r| r.2).collect();
-            // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
-            let first = pos(rays[0]);
-            let weights: Vec<f64> = rays.iter().map(|&i| power_of(&exits[i].m, s_in).max(0.0)).collect();
-            let total: f64 = weights.iter().sum();
-            let weight = |k: usize| {
-                if total > 0.0 {
-                    weights[k] / total
-                } else {
-                    1.0 / rays.len() as f64
-                }
-            };
-            let mut off = [0.0, 0.0];
-            for (k, &i) in rays.iter().enumerate() {
-                off[0] += weight(k) * (pos(i)[0] - first[0]);
-                off[1] += weight(k) * (pos(i)[1] - first[1]);
-            }
-            let centre = [first[0] + off[0], first[1] + off[1]];
-            let dist = |i: usize| (pos(i)[0] - centre[0]).hypot(pos(i)[1] - centre[1]);
-            let variance: f64 = rays.iter().enumerate().map(|(k, &i)| weight(k) * dist(i).powi(2)).sum();
-            let spread = rays.iter().map(|&i| dist(i)).fold(0.0, f64::max);
-            let overlap = (-2.0 * beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
-
-            let s = if fields.len() == 1 {
-                // Rays at one point: the plain coherent sum.
-                stokes::apply(&stokes::mueller(&fields[0].1), s_in)
+    let mut out = Vec::with_capacity(spots);
+    let mut fields: Vec<([f64; 2], JonesMatrix)> = Vec::new();
+    for s in 0..spots {
+        let rays = &ray_list[ray_start[s]..ray_start[s + 1]];
+        fields.clear();
+        for &k in &site_list[site_start[s]..site_start[s + 1]] {
+            fields.push((site_pos[k], site_m[k]));
+        }
+        let pos = |i: usize| exits[i].pos;
+        // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
+        let first = pos(rays[0]);
+        let mut weights = Vec::with_capacity(rays.len());
+        let mut total = 0.0;
+        for &i in rays {
+            let p = power_of(&exits[i].m, s_in).max(0.0);
+            weights.push(p);
+            total += p;
+        }
+        let weight = |k: usize| {
+            if total > 0.0 {
+                weights[k] / total
             } else {
-                stokes_of(&spot_coherency(&fields, &c_in, beam))
-            };
-            let jones = j_in.map(|j| {
-                let field: Jones = fields.iter().map(|(p, f)| f * j * beam.overlap(*p, t, centre, t)).sum();
-                to_json(&field)
-            });
-            Spot {
-                rays: rays.iter().map(|&i| exits[i].label.to_string()).collect(),
-                ray_index: rays,
-                position_mm: centre,
-                spread_mm: spread,
-                overlap,
-                direction,
-                power: s[0],
-                stokes: s,
-                degree_of_polarization: stokes::degree_of_polarization(&s),
-                ellipse: stokes::ellipse(&s),
-                jones,
+                1.0 / rays.len() as f64
             }
-        })
-        .collect()
+        };
+        let mut off = [0.0, 0.0];
+        for (k, &i) in rays.iter().enumerate() {
+            off[0] += weight(k) * (pos(i)[0] - first[0]);
+            off[1] += weight(k) * (pos(i)[1] - first[1]);
+        }
+        let centre = [first[0] + off[0], first[1] + off[1]];
+        let (mut variance, mut spread) = (0.0, 0.0f64);
+        for (k, &i) in rays.iter().enumerate() {
+            let d = (pos(i)[0] - centre[0]).hypot(pos(i)[1] - centre[1]);
+            variance += weight(k) * d * d;
+            spread = spread.max(d);
+        }
+        let overlap = (-2.0 * beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
+
+        let st = if fields.len() == 1 {
+            // Rays at one point: the plain coherent sum.
+            stokes::apply(&stokes::mueller(&fields[0].1), s_in)
+        } else {
+            stokes_of(&spot_coherency(&fields, &c_in, beam))
+        };
+        let jones = j_in.map(|j| {
+            let mut field = Jones::zeros();
+            for (p, f) in &fields {
+                field += f * j * Complex64::from(same_direction_overlap(beam, *p, centre));
+            }
+            to_json(&field)
+        });
+        let mut labels = Vec::with_capacity(rays.len());
+        for &i in rays {
+            labels.push(exits[i].label.to_string());
+        }
+        out.push(Spot {
+            rays: labels,
+            ray_index: rays.to_vec(),
+            position_mm: centre,
+            spread_mm: spread,
+            overlap,
+            direction,
+            power: st[0],
+            stokes: st,
+            degree_of_polarization: stokes::degree_of_polarization(&st),
+            ellipse: stokes::ellipse(&st),
+            jones,
+        });
+    }
+    out
 }
 
 /// C = Σ_ab γ_ab F_a C_in F_bᴴ over sites (point, summed matrix) of one direction, by the pair
@@ -420,11 +461,11 @@ fn pairwise(fields: &[([f64; 2], JonesMatrix)], c_in: &JonesMatrix, beam: &Gauss
             if (pb[0] - pa[0]).powi(2) / (2.0 * w * w) > OVERLAP_NEGLIGIBLE_EXPONENT {
                 break;
             }
-            let gamma = beam.overlap(pa, [0.0, 0.0], pb, [0.0, 0.0]);
-            if gamma.norm_sqr() == 0.0 {
+            let gamma = same_direction_overlap(beam, pa, pb);
+            if gamma == 0.0 {
                 continue;
             }
-            let term = g[a] * fb.adjoint() * gamma;
+            let term = g[a] * fb.adjoint() * Complex64::from(gamma);
             c += term + term.adjoint();
         }
     }

@@ -2,9 +2,9 @@
 //!
 //! World coordinates are millimetres in the exit plane, x to the right and y up, as seen by an
 //! observer downstream looking toward the source (`../shared/CONVENTIONS.md`); the caption says so.
-//! Each spot (rays whose beams overlap, added as fields: `trace.rs`) is a circle of the beam
-//! diameter at its centre, or, when its rays leave from visibly different points, one circle per
-//! point (their union is the spot's footprint), holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
+//! Each spot (rays whose beams overlap, added as fields: `spots.rs`) is a circle of the beam
+//! diameter at its centre, with a faint ring around its footprint when its rays leave from
+//! visibly different points, holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
 //! semi-axes in the ratio tan |χ|, and an arrowhead giving the sense of rotation — clockwise in
 //! this view for right-handed light (Born & Wolf's convention: right-handed turns clockwise for
 //! an observer looking toward the source). Linear light is a double-headed line; unpolarized
@@ -63,26 +63,22 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         let name = spot.name();
         let role = if spot.power < 1e-6 { Role::Grid } else { Role::Spot };
         let tag = format!("spot {name}");
-        // One beam circle per visibly distinct exit point of the spot's rays, or one at its centre.
-        let points = distinct_points(
-            spot.ray_index
-                .iter()
-                .filter_map(|&i| result.rays.get(i))
-                .map(|x| x.exit_position_mm),
-            VISIBLE_FRACTION_OF_RADIUS * r,
-        );
-        let circles = if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r && points.len() > 1 {
-            points.clone()
-        } else {
-            vec![c]
-        };
-        for center in circles {
+        scene.items.push(Item::Circle {
+            center: c,
+            radius: r,
+            role,
+            filled: false,
+            tag: tag.clone(),
+        });
+        // Rays that leave from visibly different points: the spot's footprint, a faint ring
+        // around the farthest of their beams.
+        if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r {
             scene.items.push(Item::Circle {
-                center,
-                radius: r,
-                role,
+                center: c,
+                radius: r + spot.spread_mm,
+                role: Role::Grid,
                 filled: false,
-                tag: tag.clone(),
+                tag: format!("footprint {name}"),
             });
         }
         for &i in &spot.ray_index {
@@ -98,7 +94,7 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         }
         polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
         let mut text = format!("{name}: P {}", significant(spot.power, 4));
-        if points.len() > 1 {
+        if spot.spread_mm > 0.0 {
             text.push_str(&format!(" · overlap {}", significant(spot.overlap, 5)));
         }
         scene.text(
@@ -168,29 +164,9 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     scene
 }
 
-/// Offsets below this fraction of the beam radius are not visible in the end view: rays closer
-/// than that are drawn as one beam circle.
+/// Offsets below this fraction of the beam radius are not visible in the end view: a spot whose
+/// rays lie closer together than that gets no footprint ring.
 const VISIBLE_FRACTION_OF_RADIUS: f64 = 0.01;
-
-/// The points of `pts` that lie farther than `tol` (in x or y) from every point kept before them,
-/// in their order (a sorted pass, not every pair, so thousands of rays stay cheap).
-fn distinct_points(pts: impl Iterator<Item = Point>, tol: f64) -> Vec<Point> {
-    let mut kept: Vec<Point> = Vec::new();
-    let mut sorted: Vec<Point> = Vec::new();
-    for p in pts {
-        let start = sorted.partition_point(|q| q[0] < p[0] - tol);
-        let near = sorted[start..]
-            .iter()
-            .take_while(|q| q[0] <= p[0] + tol)
-            .any(|q| (q[1] - p[1]).abs() <= tol);
-        if !near {
-            let at = sorted.partition_point(|q| q[0] < p[0]);
-            sorted.insert(at, p);
-            kept.push(p);
-        }
-    }
-    kept
-}
 
 /// Indices of the points on the convex hull of `pts` (A. M. Andrew's monotone chain, Inf. Proc.
 /// Lett. 9, 216 (1979)); every point when there are three or fewer.
@@ -321,6 +297,35 @@ mod tests {
         let span = (points[1][0] - points[0][0]).hypot(points[1][1] - points[0][1]);
         assert!((span - 1.3554544373106694).abs() < 1e-12, "{span}");
         assert!(scene.texts().iter().any(|t| t.contains("P 0.5")));
+    }
+
+    #[test]
+    fn a_spread_spot_shows_its_footprint_and_overlap() {
+        // Two calcite displacers, the second 0.4 mm longer: "oe" and "eo" leave about 40 µm
+        // apart in a 0.2 mm beam, one spot whose footprint ring reaches past the beam circle by
+        // its spread, labelled with its overlap.
+        let (r, scene) = build(
+            r#"{"beam": {"diameter_mm": 0.2, "polarization": {"kind": "linear", "azimuth_deg": 45}}, "elements": [
+                {"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {"tilt_deg": 45, "azimuth_deg": 0}},
+                {"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45},
+                {"kind": "crystal", "material": "calcite", "thickness_mm": 2.4, "axis": {"tilt_deg": 45, "azimuth_deg": 0}}]}"#,
+        );
+        let spot = r
+            .spots
+            .iter()
+            .find(|s| s.rays.len() == 2)
+            .expect("oe and eo in one spot");
+        assert!(spot.spread_mm > 0.01 && spot.overlap < 1.0, "{spot:?}");
+        let Some(Item::Circle { center, radius, .. }) = scene.tagged("footprint oe+eo").next() else {
+            panic!("no footprint ring")
+        };
+        assert_eq!(*center, spot.position_mm);
+        assert!((radius - (0.1 + spot.spread_mm)).abs() < 1e-12, "{radius}");
+        let label = format!("overlap {}", significant(spot.overlap, 5));
+        assert!(scene.texts().iter().any(|t| t.contains(&label)), "{:?}", scene.texts());
+        // A spot whose rays coincide has neither.
+        let (_, demo) = build(include_str!("../examples/demo.json"));
+        assert!(demo.texts().iter().all(|t| !t.contains("overlap")));
     }
 
     #[test]

@@ -171,8 +171,15 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
     );
     scene.text([z_min, slope * z_min], "in", 12.0, Anchor::Start, Role::Label);
 
-    // Rays, segment by segment.
-    let rays_from = scene.items.len();
+    // Rays, segment by segment. Each ray's items go to a bucket by kind and role (segments,
+    // exit lines, exit dots; o, e, other), appended in bucket order after the loop: the canvas
+    // strokes each run of one style as one path, which keeps thousands of rays cheap.
+    let mut buckets: [Vec<Item>; 9] = Default::default();
+    let bucket = |role: Role| match role {
+        Role::ORay => 0,
+        Role::ERay => 1,
+        _ => 2,
+    };
     for ray in &result.rays {
         let letters: Vec<char> = ray.label.chars().collect();
         let mut last: Option<char> = None;
@@ -194,13 +201,13 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
                 continue;
             }
             let (role, dash) = mode_style(letter);
-            scene.line(
-                vec![[a[2], a[0]], [b[2], b[0]]],
+            buckets[bucket(role)].push(Item::Polyline {
+                points: vec![[a[2], a[0]], [b[2], b[0]]],
                 role,
                 dash,
-                2.0,
-                format!("ray {} segment", ray.label),
-            );
+                width: 2.0,
+                tag: format!("ray {} segment", ray.label),
+            });
         }
         let exit: Point = [ray.exit_z_mm, ray.exit_position_mm[0]];
         let end: Point = [z_max, ray.exit_position_mm[0] + slope * (z_max - ray.exit_z_mm)];
@@ -212,8 +219,14 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
         } else {
             (role, 2.0)
         };
-        scene.line(vec![exit, end], role, dash, width, format!("ray {}", ray.label));
-        scene.items.push(Item::Dot {
+        buckets[3 + bucket(role)].push(Item::Polyline {
+            points: vec![exit, end],
+            role,
+            dash,
+            width,
+            tag: format!("ray {}", ray.label),
+        });
+        buckets[6 + bucket(role)].push(Item::Dot {
             center: exit,
             radius_px: 3.0,
             role,
@@ -221,7 +234,9 @@ pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
             tag: format!("exit {}", ray.label),
         });
     }
-    scene.group_styles(rays_from);
+    for b in &mut buckets {
+        scene.items.append(b);
+    }
     // One label per spot, at the end of its rays.
     for spot in &result.spots {
         let name = spot.name();

@@ -211,11 +211,10 @@ pub struct Session {
 /// which only the side view reads, and it is drawn here. For 4096 rays that halves the text to
 /// write and parse; `session.result()` still gives every field.
 fn to_js_without_polylines(result: &mut TraceResult) -> Result<JsValue, JsValue> {
-    let polylines: Vec<Vec<[f64; 3]>> = result
-        .rays
-        .iter_mut()
-        .map(|r| std::mem::take(&mut r.points_mm))
-        .collect();
+    let mut polylines: Vec<Vec<[f64; 3]>> = Vec::with_capacity(result.rays.len());
+    for ray in &mut result.rays {
+        polylines.push(std::mem::take(&mut ray.points_mm));
+    }
     let out = to_js(result);
     for (ray, points) in result.rays.iter_mut().zip(polylines) {
         ray.points_mm = points;
