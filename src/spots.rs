@@ -521,6 +521,69 @@ mod tests {
     use crate::statistics::Rng;
 
     #[test]
+    fn spots_are_the_connected_groups_of_rays_at_most_one_diameter_apart() {
+        // Cross-method: the cell-based linking against every pair, over random clouds dense and
+        // sparse, some rays exactly on top of each other.
+        let mut rng = Rng::new(3);
+        let beam = GaussianBeam::new(1.0, 1e4);
+        for spread in [0.3, 2.0, 8.0] {
+            let mut pos: Vec<[f64; 2]> = (0..300)
+                .map(|_| [spread * rng.normal(), spread * rng.normal()])
+                .collect();
+            pos.extend_from_within(..20);
+            let labels: Vec<String> = (0..pos.len()).map(|i| format!("r{i}")).collect();
+            let exits: Vec<Exit> = pos
+                .iter()
+                .zip(&labels)
+                .map(|(&p, l)| Exit {
+                    label: l,
+                    pos: p,
+                    m: JonesMatrix::identity(),
+                })
+                .collect();
+            let spots = group_spots(&exits, &[1.0, 0.0, 0.0, 0.0], None, &beam, [0.0, 0.0, 1.0]);
+            let mut spot_of = vec![usize::MAX; pos.len()];
+            for (s, spot) in spots.iter().enumerate() {
+                for &i in &spot.ray_index {
+                    spot_of[i] = s;
+                }
+            }
+            // Brute force: flood fill over every pair within one diameter.
+            let mut comp = vec![usize::MAX; pos.len()];
+            for start in 0..pos.len() {
+                if comp[start] != usize::MAX {
+                    continue;
+                }
+                let mut stack = vec![start];
+                comp[start] = start;
+                while let Some(i) = stack.pop() {
+                    for j in 0..pos.len() {
+                        let d = (pos[i][0] - pos[j][0]).hypot(pos[i][1] - pos[j][1]);
+                        if comp[j] == usize::MAX && d <= 1.0 {
+                            comp[j] = start;
+                            stack.push(j);
+                        }
+                    }
+                }
+            }
+            for i in 0..pos.len() {
+                for j in 0..pos.len() {
+                    assert_eq!(
+                        spot_of[i] == spot_of[j],
+                        comp[i] == comp[j],
+                        "spread {spread}: rays {i} and {j}"
+                    );
+                }
+            }
+            // Spots come in the order of their first ray, each with its rays in order.
+            for w in spots.windows(2) {
+                assert!(w[0].ray_index[0] < w[1].ray_index[0]);
+            }
+            assert!(spots.iter().all(|s| s.ray_index.windows(2).all(|p| p[0] < p[1])));
+        }
+    }
+
+    #[test]
     fn the_grid_integral_matches_the_pair_sum() {
         // Cross-method: the two ways of summing a spot give one coherency matrix, for a cloud of
         // beams with random fields, some interfering strongly, and a partly polarized input.
