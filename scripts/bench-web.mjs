@@ -9,7 +9,15 @@
 // start-up, the same run through the panel (click on Solve until the results and plots are
 // shown), and the size of the worker's wasm (www/pkg-design).
 //
-// Usage: node scripts/bench-web.mjs [--iterations N] [--warmup N] [--mc-runs N]
+// Large stack: 64 elements with 12 crystals (4096 rays), applied once, then per edit (a change of
+// the wavelength field, as a user types it) the time from the page's call of session.updateJson
+// to the end of its frame (trace, results text, every view drawn and described), median of
+// --large-edits edits; and a breakdown of one edit: the trace with its result handed to
+// JavaScript, the result alone handed again (session.result()), each view drawn, the results
+// text, the descriptions. Budget: median ≤ 300 ms per edit (reported only).
+//
+// Usage: node scripts/bench-web.mjs [--iterations N] [--warmup N] [--mc-runs N] [--large-edits N]
+//   [--only large] (only the large-stack part)
 // (scripts/bench-web.sh builds the page first). Needs www/pkg and www/pkg-design
 // (scripts/build-web.sh) and playwright-core in tests/e2e (npm ci there).
 //
@@ -38,6 +46,9 @@ const opt = (name, dflt) => {
 const N = Math.max(200, Math.floor(opt('--iterations', 300)));
 const WARMUP = Math.max(0, Math.floor(opt('--warmup', 20)));
 const MC_RUNS = Math.max(5, Math.floor(opt('--mc-runs', 7)));
+const LARGE_EDITS = Math.max(5, Math.floor(opt('--large-edits', 15)));
+const ONLY = args.includes('--only') ? args[args.indexOf('--only') + 1] : null;
+const BUDGET_LARGE_EDIT_MS = 300;
 
 // The Monte Carlo request: a calcite displacer for 2 mm with the default tolerances.
 const MC_REQUEST = {
@@ -67,6 +78,37 @@ const SCENARIO = {
   ],
 };
 const JSON_TEXT = JSON.stringify(SCENARIO);
+
+// The largest stack the page takes: 64 elements, 12 of them crystals (4096 output rays). Crystals
+// of four materials with axes at twelve azimuths, each followed by four or five ideal elements
+// (retarders, rotators, a polarizer near the end), oblique incidence and elliptical input: rays
+// spread over a few beam diameters, many partly overlapping.
+function largeScenario() {
+  const materials = ['calcite', 'yvo4', 'quartz', 'sapphire'];
+  const elements = [];
+  for (let c = 0; c < 12; c++) {
+    elements.push({
+      kind: 'crystal',
+      material: materials[c % 4],
+      thickness_mm: 0.5 + 0.25 * (c % 5),
+      axis: { tilt_deg: 30 + 5 * (c % 7), azimuth_deg: 30 * c },
+      gap_mm: 0.5,
+    });
+    const ideal = c < 4 ? 5 : 4;
+    for (let k = 0; k < ideal; k++) {
+      if (k % 3 === 0) elements.push({ kind: 'retarder', retardance_waves: 0.1 + 0.05 * k, fast_axis_deg: 10 * c + 7 * k });
+      else if (k % 3 === 1) elements.push({ kind: 'rotator', angle_deg: 5 + 3 * c });
+      else elements.push(c === 10 ? { kind: 'polarizer', transmission_axis_deg: 20 } : { kind: 'retarder', retardance_waves: 0.25, fast_axis_deg: 45 - 4 * c });
+    }
+  }
+  return {
+    version: 1,
+    wavelength_nm: 632.8,
+    beam: { ...SCENARIO.beam, incidence: { polar_deg: 5, azimuth_deg: 15 } },
+    elements,
+  };
+}
+const LARGE = largeScenario();
 
 function stats(xs) {
   const s = [...xs].sort((a, b) => a - b);
@@ -133,7 +175,111 @@ const blankViews = (page) =>
       .map((c) => c.dataset.view),
   );
 
+/**
+ * The large stack on a fresh page: applied once, then `edits` edits of the wavelength field (typed
+ * values alternating, so that every edit traces), each timed from the page's call of
+ * session.updateJson to the end of its frame; then one edit's parts, each called alone.
+ */
+async function largeStack(browser, origin) {
+  const { context, page, log } = await openPage(browser, origin, { viewport: { width: 1280, height: 900 } });
+  await page.goto(`${origin}/`, { waitUntil: 'load' });
+  await waitReady(page);
+  const m = await page.evaluate(
+    async ({ scenario, edits }) => {
+      const ds = window.doublespar;
+      const frame = () => new Promise((r) => requestAnimationFrame(() => r()));
+      let a = performance.now();
+      const applied = ds.applyScenario(scenario);
+      if (applied && typeof applied.then === 'function') await applied;
+      await frame();
+      const loadMs = performance.now() - a;
+      const session = ds.session;
+      const own = session.updateJson;
+      let start = 0;
+      let updateMs = 0;
+      session.updateJson = function (text) {
+        start = performance.now();
+        const r = own.call(session, text);
+        updateMs = performance.now() - start;
+        return r;
+      };
+      const input = document.querySelector('input.num[data-field="wavelength_nm"]');
+      const edit = [];
+      const update = [];
+      for (let i = 0; i < edits + 2; i++) {
+        input.value = String(630 + (i % 5));
+        input.dispatchEvent(new Event('input', { bubbles: true }));
+        await frame();
+        const end = performance.now();
+        if (i >= 2) edit.push(end - start), update.push(updateMs);
+      }
+      session.updateJson = own;
+      const result = session.result();
+      const timed = (f) => {
+        const t = performance.now();
+        f();
+        return performance.now() - t;
+      };
+      const parts = { result_to_js_ms: timed(() => session.result()) };
+      const dark = window.matchMedia('(prefers-color-scheme: dark)').matches;
+      for (const c of document.querySelectorAll('canvas[data-view]')) {
+        parts[`draw_${c.dataset.view}_ms`] = timed(() => session.draw(c.dataset.view, c, dark));
+      }
+      parts.redraw_and_describe_ms = timed(() => ds.redraw());
+      return { loadMs, edit, update, parts, rays: result.rays.length, spots: result.spots.length };
+    },
+    { scenario: LARGE, edits: LARGE_EDITS },
+  );
+  const problems = [];
+  if (m.rays !== 4096) problems.push(`the large stack gave ${m.rays} rays in the page, expected 4096`);
+  problems.push(...collect(log, 'large-stack page'));
+  await context.close();
+  const edit = stats(m.edit);
+  const update = stats(m.update);
+  return {
+    large_stack: {
+      elements: LARGE.elements.length,
+      rays: m.rays,
+      spots: m.spots,
+      edits: LARGE_EDITS,
+      load_ms: round(m.loadMs, 1),
+      edit_ms: roundStats(edit),
+      of_which_update_json_ms: roundStats(update),
+      parts: Object.fromEntries(Object.entries(m.parts).map(([k, v]) => [k, round(v, 1)])),
+      budget_edit_median_ms: BUDGET_LARGE_EDIT_MS,
+      within_budget: edit.median <= BUDGET_LARGE_EDIT_MS,
+    },
+    problems,
+  };
+}
+
+function printLarge(large) {
+  const l = large.large_stack;
+  console.log(
+    `  large stack (${l.elements} elements, 12 crystals, ${l.rays} rays, ${l.spots} spots), ${l.edits} edits: median ${l.edit_ms.median} ms per edit, p90 ${l.edit_ms.p90} ms` +
+      `  [budget median ≤ ${l.budget_edit_median_ms} ms: ${l.within_budget ? 'within' : 'OVER (reported only)'}]`,
+  );
+  console.log(`    of which session.updateJson (trace, result to JavaScript): median ${l.of_which_update_json_ms.median} ms; loading the stack ${l.load_ms} ms`);
+  console.log(`    one edit's parts alone: ${Object.entries(l.parts).map(([k, v]) => `${k.replace(/_ms$/, '')} ${v} ms`).join(', ')}`);
+}
+
 async function main() {
+  if (ONLY === 'large') {
+    const server = await startServer();
+    const browser = await launchBrowser();
+    try {
+      const large = await largeStack(browser, server.origin);
+      console.log(`Doublespar web benchmark, large stack only — Chromium ${browser.version()}`);
+      printLarge(large);
+      for (const p of large.problems) console.log(`  problem: ${p}`);
+      console.log(JSON.stringify(large));
+      if (large.problems.length) process.exitCode = 3;
+    } finally {
+      await browser.close();
+      await server.close();
+    }
+    return;
+  }
   if (!fs.existsSync(WASM)) {
     console.error(`no ${path.relative(ROOT, WASM)}: run scripts/build-web.sh (or scripts/bench-web.sh)`);
     process.exit(2);
@@ -315,6 +461,10 @@ async function main() {
     await mcPage.context.close();
     const mcStats = stats(mc.total);
 
+    // 4. The large stack, on a fresh page.
+    const large = await largeStack(browser, server.origin);
+    problems.push(...large.problems);
+
     const chromium = browser.version();
     const total = stats(loop.total);
     out = {
@@ -348,6 +498,7 @@ async function main() {
         worker_start_ms: round(mc.startMs),
         panel_click_to_shown_ms: roundStats(stats(panel)),
       },
+      large_stack: large.large_stack,
       design_wasm_bytes: designWasmBytes,
       design_wasm_gzip_bytes: designWasmGzip,
       budget: { median_ms: BUDGET_MEDIAN_MS, wasm_bytes: BUDGET_WASM_BYTES, monte_carlo_median_ms: BUDGET_MC_MS, first_render_ms: BUDGET_FIRST_RENDER_MS },
@@ -387,6 +538,7 @@ async function main() {
     `    nominal design after ${m.post_to_nominal_ms.median} ms (median); first run on a fresh worker ${m.first_run_fresh_worker_ms} ms; worker start-up (module and wasm) ${m.worker_start_ms} ms; through the panel, click to results shown: median ${m.panel_click_to_shown_ms.median} ms`,
   );
   console.log(`  design worker wasm (www/pkg-design): ${kb(designWasmBytes)} (${designWasmBytes} bytes), gzip -9 ${kb(designWasmGzip)} (${designWasmGzip} bytes)`);
+  printLarge(out);
   for (const p of problems) console.log(`  problem: ${p}`);
   console.log(JSON.stringify(out));
   if (!out.wasm_within_budget || !out.first_render_within_budget) process.exitCode = 1;

@@ -37,7 +37,12 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
     let lay = layout(scene, w, h, MARGIN_PX);
     let vp = lay.viewport;
     let empty = js_sys::Array::new();
-    for item in &scene.items {
+    // Runs of polylines (or dots) of one style are drawn as one path with one stroke: a stack
+    // of 12 crystals has thousands of ray segments, and every call into the canvas costs.
+    let mut k = 0;
+    while k < scene.items.len() {
+        let item = &scene.items[k];
+        k += 1;
         match item {
             Item::Polyline {
                 points,
@@ -46,9 +51,6 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 width,
                 ..
             } => {
-                if points.len() < 2 {
-                    continue;
-                }
                 let arr = js_sys::Array::new();
                 for d in dash {
                     arr.push(&JsValue::from_f64(*d));
@@ -56,7 +58,22 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 ctx.set_line_dash(&arr)?;
                 ctx.set_stroke_style_str(palette.stroke(*role));
                 ctx.set_line_width(*width);
-                path(&ctx, &vp, points);
+                ctx.begin_path();
+                subpath(&ctx, &vp, points);
+                while let Some(Item::Polyline {
+                    points: p,
+                    role: r,
+                    dash: d,
+                    width: w,
+                    ..
+                }) = scene.items.get(k)
+                {
+                    if r != role || d != dash || w != width {
+                        break;
+                    }
+                    subpath(&ctx, &vp, p);
+                    k += 1;
+                }
                 ctx.stroke();
                 ctx.set_line_dash(&empty)?;
             }
@@ -102,9 +119,22 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 filled,
                 ..
             } => {
-                let [x, y] = vp.map(*center);
                 ctx.begin_path();
-                ctx.arc(x, y, *radius_px, 0.0, std::f64::consts::TAU)?;
+                dot(&ctx, &vp, *center, *radius_px)?;
+                while let Some(Item::Dot {
+                    center: c,
+                    radius_px: r,
+                    role: ro,
+                    filled: f,
+                    ..
+                }) = scene.items.get(k)
+                {
+                    if ro != role || f != filled {
+                        break;
+                    }
+                    dot(&ctx, &vp, *c, *r)?;
+                    k += 1;
+                }
                 fill_and_stroke(&ctx, palette, *role, *filled);
             }
             Item::Arrow {
@@ -165,6 +195,26 @@ fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: Role
 /// Starts a path through `points` mapped to the screen (nothing for no points).
 fn path(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[Point]) {
     ctx.begin_path();
+    subpath(ctx, vp, points);
+}
+
+/// A circle of `radius_px` at `center`, as its own subpath of the current path.
+fn dot(
+    ctx: &CanvasRenderingContext2d,
+    vp: &Viewport,
+    center: crate::scene::Point,
+    radius_px: f64,
+) -> Result<(), JsValue> {
+    let [x, y] = vp.map(center);
+    ctx.move_to(x + radius_px, y);
+    ctx.arc(x, y, radius_px, 0.0, std::f64::consts::TAU)
+}
+
+/// Adds a subpath through `points` (a line needs two) to the current path.
+fn subpath(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[crate::scene::Point]) {
+    if points.len() < 2 {
+        return;
+    }
     if let Some((first, rest)) = points.split_first() {
         let [x, y] = vp.map(*first);
         ctx.move_to(x, y);

@@ -11,9 +11,12 @@
 //! of [`crate::trace`], the linear sensitivities by central differences of it.
 //!
 //! "Breaks": the beams no longer overlap to 99 % (Δs > 0.1 w, η = exp(−Δs²/w²), Joyce & DeLoach,
-//! Appl. Opt. 23, 4187 (1984)), or the recombined phase moves by more than π/10 (a twentieth of a
-//! wave), thresholds named below.
+//! Appl. Opt. 23, 4187 (1984), from `beam_overlap.rs`), or the recombined phase moves by more than
+//! π/10 (a twentieth of a wave), thresholds named below. Whether the two paths form one spot at
+//! all is the trace's own rule (their beams overlap: see `trace.rs`, spots), the same rule the
+//! page and the command line show.
 
+use crate::beam_overlap::GaussianBeam;
 use crate::design_displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
 use crate::error::{Error, in_range, positive};
 use crate::json_fields::Fields;
@@ -63,13 +66,13 @@ pub struct RecombinerRequest {
 /// The verdict.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RecombinerCheck {
-    /// Whether "oe" and "eo" leave as one spot (within the spot tolerance).
+    /// Whether "oe" and "eo" leave as one spot (their beams overlap, as the trace groups spots).
     pub recombined: bool,
     /// Exit point of "eo" minus that of "oe", [dx, dy] mm.
     pub residual_vector_mm: [f64; 2],
     /// Its length, mm.
     pub residual_separation_mm: f64,
-    /// Power overlap of the two recombining beams, exp(−Δs²/w²).
+    /// Power overlap of the two recombining beams, exp(−Δs²/w²) (Joyce & DeLoach).
     pub overlap: f64,
     /// Propagation phase of "eo" minus that of "oe", radians, reduced to (−π, π].
     pub phase_difference_rad: f64,
@@ -234,6 +237,8 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
     let (dl0, dt0) = (req.length_mismatch_mm, req.tilt_mismatch_deg);
     let at = outcome(req, dl0, dt0)?;
     let w = 0.5 * req.beam_diameter_mm;
+    // Both paths leave along the incident direction: an offset, no tilt.
+    let eta = |res: f64| GaussianBeam::new(req.beam_diameter_mm, 0.0).power_overlap(res, 0.0);
     let res = at.dx[0].hypot(at.dx[1]);
     // Sensitivities by central differences of the full trace (the phase unwrapped by using
     // differences small enough that it moves far less than π).
@@ -248,10 +253,7 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
     let broken_phase = reduce(at.phase).abs() > MAX_PHASE_ERROR;
     let verdict = match (at.recombined, broken_overlap, broken_phase) {
         (false, _, _) => "broken: the paths leave as separate spots".to_string(),
-        (true, true, _) => format!(
-            "broken: the recombining beams overlap to only {:.4}",
-            (-(res * res) / (w * w)).exp()
-        ),
+        (true, true, _) => format!("broken: the recombining beams overlap to only {:.4}", eta(res)),
         (true, false, true) => format!(
             "broken: the recombined phase is off by {:.3} rad (limit π/10)",
             reduce(at.phase)
@@ -298,7 +300,7 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
         recombined: at.recombined,
         residual_vector_mm: at.dx,
         residual_separation_mm: res,
-        overlap: (-(res * res) / (w * w)).exp(),
+        overlap: eta(res),
         phase_difference_rad: reduce(at.phase),
         recombined_power: at.power,
         stray_power: at.stray.max(0.0),
@@ -377,6 +379,35 @@ mod tests {
         let [to, tp] = c.tilt_mismatch_to_break_deg;
         assert!(tp.unwrap() < to.unwrap_or(f64::INFINITY));
         assert!(!c.broken, "{}", c.verdict);
+    }
+
+    #[test]
+    fn a_small_length_mismatch_inside_the_limits_is_not_broken() {
+        // The pair once called "separate spots" although its overlap (0.99998) and phase
+        // (−0.0185 rad) were inside their own limits: rays added as fields only within 10⁻³ of
+        // the beam diameter. With the overlap rule they form one spot. Expected numbers: Δs =
+        // tan ρ ΔL and η = exp(−Δs²/w²) (Joyce & DeLoach, from memory); Δφ = k0 (n(θ) − n_o) ΔL.
+        let c = run(
+            r#"{"material": "yvo4", "wavelength_nm": 1064, "length_mm": 8, "beam_diameter_mm": 0.5, "length_mismatch_mm": 0.01}"#,
+        );
+        assert!(c.recombined, "{}", c.verdict);
+        assert!(!c.broken, "{}", c.verdict);
+        assert!(c.verdict.starts_with("recombines"), "{}", c.verdict);
+        assert!(c.overlap > MIN_OVERLAP && c.overlap < 1.0, "{}", c.overlap);
+        assert!((c.overlap - 0.99998).abs() < 1e-5, "{}", c.overlap);
+        assert!(
+            (c.phase_difference_rad.abs() - 0.0185).abs() < 5e-4,
+            "{}",
+            c.phase_difference_rad
+        );
+        // The recombined spot holds (almost) the whole beam: the interference of the two paths
+        // is weighted by their overlap, and the phase error costs a little.
+        assert!(
+            c.recombined_power > 0.999 && c.stray_power < 1e-9,
+            "{} {}",
+            c.recombined_power,
+            c.stray_power
+        );
     }
 
     #[test]

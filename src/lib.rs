@@ -1,6 +1,7 @@
 //! Doublespar: exact double refraction and polarization in stacks of uniaxial crystal plates.
 #![warn(missing_docs)]
 
+pub mod beam_overlap;
 #[cfg(target_arch = "wasm32")]
 pub mod canvas;
 pub mod design;
@@ -20,6 +21,7 @@ pub mod plate;
 pub mod precision;
 pub mod scenario;
 pub mod scene;
+pub mod spots;
 pub mod statistics;
 pub mod stokes;
 pub mod svg;

@@ -170,20 +170,25 @@ pub fn render(r: &TraceResult) -> String {
     let _ = writeln!(out);
     let _ = writeln!(
         out,
-        "Spots (coinciding rays added as fields; total power {})",
+        "Spots (rays whose beams overlap added as fields; total power {})",
         num(r.total_power, 6)
     );
     for (i, s) in r.spots.iter().enumerate() {
         let _ = writeln!(
             out,
-            "{:>3}  rays {:<12} power {}  at ({}, {}) mm  {}  DoP {}",
+            "{:>3}  rays {:<12} power {}  at ({}, {}) mm  {}  DoP {}{}",
             i + 1,
             s.rays.join("+"),
             power_text(s.power),
             num(s.position_mm[0], 6),
             num(s.position_mm[1], 6),
             ellipse_text(&s.ellipse),
-            num(s.degree_of_polarization, 4)
+            num(s.degree_of_polarization, 4),
+            if s.rays.len() > 1 {
+                format!("  overlap {}", num(s.overlap, 5))
+            } else {
+                String::new()
+            }
         );
     }
     if !r.warnings.is_empty() {

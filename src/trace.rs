@@ -9,8 +9,9 @@
 //!
 //! - fully polarized input: the output Jones vector of a path is M·J_in;
 //! - any input, partially polarized or not: the output Stokes vector is Mueller(M)·S_in;
-//! - rays that leave from one point in one direction (a *spot*) add as fields: the spot's matrix
-//!   is Σ M over its paths, and its Stokes vector Mueller(Σ M)·S_in.
+//! - rays whose beams overlap on the exit plane (a *spot*, `spots.rs`) add as fields, each pair
+//!   weighted by the overlap of its two Gaussian beams: for rays that leave from one point the
+//!   spot's matrix is Σ M over its paths, and its Stokes vector Mueller(Σ M)·S_in.
 //!
 //! Positions: a ray in a crystal follows its mode's Poynting vector S, so it moves laterally by
 //! L·S_t/S_z across a plate of thickness L; in a gap of the outside medium by g·u_t/u_z. The
@@ -19,13 +20,16 @@
 //! plane-wave phase at a fixed lateral point, so that paths that meet at one point compare
 //! correctly. Retardance of a plate: Γ = k0 (q_z,e − q_z,o) L, exact at oblique incidence.
 
+use crate::beam_overlap::GaussianBeam;
 use crate::error::Error;
 use crate::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::jones::{self, Jones, JonesMatrix};
 use crate::material::Indices;
 use crate::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
-use crate::precision::{POWER_ROUNDING, SPOT_FRACTION_OF_DIAMETER};
+use crate::precision::POWER_ROUNDING;
 use crate::scenario::{ElementKind, Medium, Polarization, Scenario};
+pub use crate::spots::Spot;
+use crate::spots::{Exit, group_spots, power_of};
 use crate::stokes::{self, Ellipse};
 use crate::uniaxial::{OpticAxis, Uniaxial, angle_between, max_walkoff_cut};
 use nalgebra::Vector3;
@@ -61,32 +65,10 @@ pub struct Ray {
     /// Accumulated propagation phase Σ k0 q_z L over layers and gaps, radians.
     pub phase_rad: f64,
     /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm: the polyline it
-    /// follows through the stack (the last point is the exit point).
+    /// follows through the stack (the last point is the exit point). Never empty in a trace;
+    /// left out of the JSON when emptied (the page's bindings do, for speed).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
     pub points_mm: Vec<[f64; 3]>,
-}
-
-/// Rays that leave from one point in one direction, with their fields added.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Spot {
-    /// Labels of the rays in this spot.
-    pub rays: Vec<String>,
-    /// Exit point [x, y] of the first ray of the spot, mm.
-    pub position_mm: [f64; 2],
-    /// Largest distance of a member ray from that point, mm.
-    pub spread_mm: f64,
-    /// Unit direction.
-    pub direction: [f64; 3],
-    /// Power of the coherent sum.
-    pub power: f64,
-    /// Stokes vector of the coherent sum.
-    pub stokes: [f64; 4],
-    /// Degree of polarization.
-    pub degree_of_polarization: f64,
-    /// Polarization ellipse.
-    pub ellipse: Ellipse,
-    /// Jones vector of the coherent sum (fully polarized input only).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub jones: Option<JonesJson>,
 }
 
 /// Whether a mode carries power into the crystal.
@@ -226,7 +208,7 @@ pub struct TraceResult {
     pub rays: Vec<Ray>,
     /// Per element, in stack order.
     pub elements: Vec<ElementReport>,
-    /// Output rays grouped where they coincide.
+    /// Output rays grouped where their beams overlap on the exit plane.
     pub spots: Vec<Spot>,
     /// Sum of the spots' powers.
     pub total_power: f64,
@@ -242,7 +224,7 @@ struct Path {
     points: Vec<[f64; 3]>,
 }
 
-fn to_json(j: &Jones) -> JonesJson {
+pub(crate) fn to_json(j: &Jones) -> JonesJson {
     [[j[0].re, j[0].im], [j[1].re, j[1].im]]
 }
 
@@ -292,20 +274,6 @@ fn lost_power(before: f64, after: f64) -> f64 {
     } else {
         lost
     }
-}
-
-/// Power of a path for input Stokes vector `s_in`: tr(M C Mᴴ) with the coherency matrix
-/// C = ½ [[S0 + S1, S2 + iS3], [S2 − iS3, S0 − S1]] (the same number as Mueller(M)·S, row 0,
-/// at a fraction of the cost; it is evaluated for every path at every element).
-fn power_of(m: &JonesMatrix, s_in: &[f64; 4]) -> f64 {
-    let c12 = Complex64::new(0.5 * s_in[2], 0.5 * s_in[3]);
-    let c = JonesMatrix::new(
-        (0.5 * (s_in[0] + s_in[1])).into(),
-        c12,
-        c12.conj(),
-        (0.5 * (s_in[0] - s_in[1])).into(),
-    );
-    (m * c * m.adjoint()).trace().re
 }
 
 fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
@@ -561,7 +529,16 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
         })
         .collect();
 
-    let spots = group_spots(&paths, &s_in, j_in.as_ref(), sc.beam.diameter_mm, direction);
+    let beam = GaussianBeam::new(sc.beam.diameter_mm, k0 * n_out);
+    let exits: Vec<Exit> = paths
+        .iter()
+        .map(|p| Exit {
+            label: &p.label,
+            pos: p.pos,
+            m: p.m,
+        })
+        .collect();
+    let spots = group_spots(&exits, &s_in, j_in.as_ref(), &beam, direction);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
         stokes: s_in,
@@ -583,71 +560,156 @@ pub fn trace(sc: &Scenario) -> Result<TraceResult, Error> {
     })
 }
 
-/// Groups paths whose exit points lie within [`SPOT_FRACTION_OF_DIAMETER`] of the beam diameter
-/// of a spot's first ray and adds their fields. Every ray leaves parallel plates along the
-/// incident direction, so positions alone decide.
-fn group_spots(
-    paths: &[Path],
-    s_in: &[f64; 4],
-    j_in: Option<&Jones>,
-    diameter_mm: f64,
-    direction: [f64; 3],
-) -> Vec<Spot> {
-    let tol = SPOT_FRACTION_OF_DIAMETER * diameter_mm;
-    // Each path joins the earliest group whose first path lies within `tol`. Groups are indexed
-    // in a grid of cells `tol` wide, so only the 3 × 3 neighbouring cells are searched (linear
-    // time for thousands of rays instead of quadratic).
-    let cell = |p: &[f64; 2]| -> (i64, i64) { ((p[0] / tol).floor() as i64, (p[1] / tol).floor() as i64) };
-    // The grid is a sorted list of (cell, group) rather than a hash map: as fast here, and far
-    // less code in the WebAssembly module.
-    let mut grid: Vec<((i64, i64), usize)> = Vec::new();
-    let mut groups: Vec<Vec<usize>> = Vec::new();
-    for (i, p) in paths.iter().enumerate() {
-        let (cx, cy) = cell(&p.pos);
-        let mut found: Option<usize> = None;
-        for dx in -1..=1 {
-            for dy in -1..=1 {
-                let key = (cx + dx, cy + dy);
-                let start = grid.partition_point(|e| e.0 < key);
-                for &(_, g) in grid[start..].iter().take_while(|e| e.0 == key) {
-                    let q = &paths[groups[g][0]];
-                    if (p.pos[0] - q.pos[0]).hypot(p.pos[1] - q.pos[1]) <= tol && found.is_none_or(|f| g < f) {
-                        found = Some(g);
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::precision::assert_close;
+    use std::f64::consts::PI;
+
+    fn run(doc: &str) -> TraceResult {
+        trace(&Scenario::from_json_str(doc).unwrap()).unwrap()
+    }
+
+    /// Two calcite displacers (axis tilt 45°, walk-off in x) with a half-wave plate at 45°
+    /// between them, the second longer by `mismatch_mm`: "oe" and "eo" leave tan ρ · mismatch
+    /// apart; `after` is appended to the elements.
+    fn pair(diameter_mm: f64, mismatch_mm: f64, after: &str) -> TraceResult {
+        run(&format!(
+            r#"{{"wavelength_nm": 632.8, "beam": {{"diameter_mm": {diameter_mm}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+               "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}},
+                            {{"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45}},
+                            {{"kind": "crystal", "material": "calcite", "thickness_mm": {}, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}{after}]}}"#,
+            2.0 + mismatch_mm
+        ))
+    }
+
+    fn offset(r: &TraceResult, a: &str, b: &str) -> f64 {
+        let p = |l: &str| r.rays.iter().find(|x| x.label == l).unwrap().exit_position_mm;
+        let (p, q) = (p(a), p(b));
+        (p[0] - q[0]).hypot(p[1] - q[1])
+    }
+
+    fn spot_of<'a>(r: &'a TraceResult, label: &str) -> &'a Spot {
+        r.spots.iter().find(|s| s.rays.iter().any(|x| x == label)).unwrap()
+    }
+
+    #[test]
+    fn twenty_nanometres_in_a_ten_micrometre_beam_recombine() {
+        // The convention's own example (CONVENTIONS.md, version 2, spots). The old rule (exit
+        // points within 10⁻³ of the beam diameter, 10 nm here) split this pair into two spots.
+        let tan_rho = {
+            let r = pair(0.01, 1.0, "");
+            offset(&r, "oe", "eo")
+        };
+        let r = pair(0.01, 2e-5 / tan_rho, "");
+        let d = offset(&r, "oe", "eo");
+        assert_close(d, 2e-5, 1e-6, 0.0, "residual tan ρ ΔL");
+        let s = spot_of(&r, "oe");
+        assert!(s.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        // Joyce & DeLoach (from memory): two equal beams offset by d couple exp(−d²/w²).
+        assert_close(
+            s.overlap,
+            (-(2e-5f64 / 5e-3).powi(2)).exp(),
+            1e-12,
+            0.0,
+            "overlap exp(−d²/w²)",
+        );
+        assert!(s.overlap > 0.9999);
+        // Orthogonal polarizations: no interference in the power, which is the whole beam.
+        assert_close(s.power, 1.0, 1e-12, 0.0, "power of the recombined spot");
+    }
+
+    #[test]
+    fn two_beam_diameters_apart_are_separate_spots() {
+        // A single displacer: o and e leave s apart; a beam of diameter s/2 puts them two
+        // diameters apart (overlap e⁻⁸ in amplitude): two spots, each with its own ray.
+        let doc = |dia: f64| {
+            format!(
+                r#"{{"beam": {{"diameter_mm": {dia}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+                    "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}]}}"#
+            )
+        };
+        let s = {
+            let r = run(&doc(1.0));
+            offset(&r, "o", "e")
+        };
+        let r = run(&doc(0.5 * s));
+        assert_eq!(r.spots.len(), 2, "{:?}", r.spots);
+        for spot in &r.spots {
+            assert_eq!(spot.rays.len(), 1);
+            assert_eq!(spot.overlap, 1.0);
+            assert_close(spot.power, 0.5, 1e-12, 0.0, "half the beam in each mode");
+        }
+        // A beam of diameter 2s puts them half a diameter apart (d = w): one spot whose beams
+        // overlap to exp(−1) in power and e^(−1/2) in amplitude; orthogonal, equal beams
+        // integrate to a degree of polarization |γ| (C = ½ [[1, γ], [γ, 1]] up to the phase):
+        // the two fields overlap only partly.
+        let r = run(&doc(2.0 * s));
+        assert_eq!(r.spots.len(), 1, "{:?}", r.spots);
+        let spot = &r.spots[0];
+        assert_close(spot.overlap, (-1f64).exp(), 1e-12, 0.0, "exp(−d²/w²), d = w");
+        assert_close(spot.power, 1.0, 1e-12, 0.0, "orthogonal beams: powers add");
+        assert_close(
+            spot.degree_of_polarization,
+            (-0.5f64).exp(),
+            1e-9,
+            0.0,
+            "degree of polarization |γ| = exp(−d²/(2w²))",
+        );
+        assert_close(
+            spot.spread_mm,
+            0.5 * s,
+            1e-12,
+            0.0,
+            "centre halfway between equal beams",
+        );
+    }
+
+    #[test]
+    fn interfering_spots_match_a_direct_integral_of_the_fields() {
+        // Independent method: the power and Stokes vector of a spot whose two beams interfere
+        // (a polarizer at 45° after a mismatched pair makes their polarizations equal), against
+        // ∫ E Eᴴ of E = Σ J_i g_i(r) summed on a grid from the rays' own Jones vectors and points.
+        let r = pair(0.2, 0.4, r#", {"kind": "polarizer", "transmission_axis_deg": 45}"#);
+        let spot = spot_of(&r, "oe");
+        assert!(spot.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        let rays: Vec<&Ray> = spot.ray_index.iter().map(|&i| &r.rays[i]).collect();
+        let w = 0.1;
+        let n = 400;
+        let (cx, cy) = (spot.position_mm[0], spot.position_mm[1]);
+        let half = 7.0 * w;
+        let h = 2.0 * half / n as f64;
+        let mut c = [[Complex64::ZERO; 2]; 2];
+        for a in 0..n {
+            let x = cx - half + (a as f64 + 0.5) * h;
+            for b in 0..n {
+                let y = cy - half + (b as f64 + 0.5) * h;
+                let mut e = [Complex64::ZERO; 2];
+                for ray in &rays {
+                    let p = ray.exit_position_mm;
+                    let g = (2.0 / (PI * w * w)).sqrt() * (-((x - p[0]).powi(2) + (y - p[1]).powi(2)) / (w * w)).exp();
+                    let j = ray.jones.unwrap();
+                    e[0] += Complex64::new(j[0][0], j[0][1]) * g;
+                    e[1] += Complex64::new(j[1][0], j[1][1]) * g;
+                }
+                for (u, row) in c.iter_mut().enumerate() {
+                    for (v, cell) in row.iter_mut().enumerate() {
+                        *cell += e[u] * e[v].conj() * h * h;
                     }
                 }
             }
         }
-        match found {
-            Some(g) => groups[g].push(i),
-            None => {
-                let key = (cx, cy);
-                let at = grid.partition_point(|e| e.0 <= key);
-                grid.insert(at, (key, groups.len()));
-                groups.push(vec![i]);
-            }
+        let s = [
+            c[0][0].re + c[1][1].re,
+            c[0][0].re - c[1][1].re,
+            2.0 * c[0][1].re,
+            2.0 * c[0][1].im,
+        ];
+        for (k, (&got, &want)) in spot.stokes.iter().zip(&s).enumerate() {
+            assert_close(got, want, 1e-9, 1e-3, &format!("S{k}: spot vs ∫ E Eᴴ on a grid"));
         }
+        // The interference is really there: not the sum of the rays' powers.
+        let sum: f64 = rays.iter().map(|x| x.power).sum();
+        assert!((spot.power - sum).abs() > 1e-3, "{} vs {sum}", spot.power);
     }
-    groups
-        .into_iter()
-        .map(|g| {
-            let first = &paths[g[0]];
-            let m: JonesMatrix = g.iter().map(|&i| paths[i].m).sum();
-            let s = stokes::apply(&stokes::mueller(&m), s_in);
-            let spread = g
-                .iter()
-                .map(|&i| (paths[i].pos[0] - first.pos[0]).hypot(paths[i].pos[1] - first.pos[1]))
-                .fold(0.0, f64::max);
-            Spot {
-                rays: g.iter().map(|&i| paths[i].label.clone()).collect(),
-                position_mm: first.pos,
-                spread_mm: spread,
-                direction,
-                power: s[0],
-                stokes: s,
-                degree_of_polarization: stokes::degree_of_polarization(&s),
-                ellipse: stokes::ellipse(&s),
-                jones: j_in.map(|j| to_json(&(m * j))),
-            }
-        })
-        .collect()
 }

@@ -2,17 +2,20 @@
 //!
 //! World coordinates are millimetres in the exit plane, x to the right and y up, as seen by an
 //! observer downstream looking toward the source (`../shared/CONVENTIONS.md`); the caption says so.
-//! Each spot (rays that leave from one point, added as fields) is a circle of the beam diameter
-//! at its exit point, holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
+//! Each spot (rays whose beams overlap, added as fields: `spots.rs`) is a circle of the beam
+//! diameter at its centre, with a faint ring around its footprint when its rays leave from
+//! visibly different points, holding its polarization ellipse: azimuth from e1 (x) toward e2 (y),
 //! semi-axes in the ratio tan |χ|, and an arrowhead giving the sense of rotation — clockwise in
 //! this view for right-handed light (Born & Wolf's convention: right-handed turns clockwise for
 //! an observer looking toward the source). Linear light is a double-headed line; unpolarized
 //! light a dashed ring. Each spot carries its power as text ("no power" below [`NO_POWER`], its
-//! circle then grey and its ellipse left out); the largest distance between spots is dimensioned
-//! (where it is long enough on screen), in the view's one length unit, which the scale bar
-//! shares; a cross marks where the undeviated incident beam would be.
+//! circle then grey and its ellipse left out), and its overlap figure when its rays do not
+//! coincide (a faint ring marks the footprint of rays that leave from visibly different points);
+//! the largest distance between spots is dimensioned (where it is long enough on screen), in the
+//! view's one length unit, which the scale bar shares; a cross marks where the undeviated
+//! incident beam would be.
 
-use crate::numfmt::{LengthUnit, NO_POWER, length, power};
+use crate::numfmt::{LengthUnit, NO_POWER, length, power, sig};
 use crate::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 use crate::stokes::{Handedness, ellipse};
 use crate::trace::TraceResult;
@@ -35,9 +38,9 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
 
     let mut pts: Vec<Point> = vec![undeviated];
     for spot in &result.spots {
-        let c = spot.position_mm;
-        pts.push([c[0] - r, c[1] - r]);
-        pts.push([c[0] + r, c[1] + r]);
+        let (c, e) = (spot.position_mm, r + spot.spread_mm);
+        pts.push([c[0] - e, c[1] - e]);
+        pts.push([c[0] + e, c[1] + e]);
     }
     let bounds = Rect::around(pts).at_least(4.0 * r, 3.0 * r);
 
@@ -58,40 +61,59 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
         "undeviated",
     );
 
-    for (i, spot) in result.spots.iter().enumerate() {
+    for spot in &result.spots {
         let c = spot.position_mm;
-        let name = spot.rays.join("+");
-        let name = if name.is_empty() { "out".to_string() } else { name };
+        let name = spot.name();
         let dim = spot.power < NO_POWER;
+        let role = if dim { Role::Grid } else { Role::Spot };
+        let tag = format!("spot {name}");
         scene.items.push(Item::Circle {
             center: c,
             radius: r,
-            role: if dim { Role::Grid } else { Role::Spot },
+            role,
             filled: false,
-            tag: format!("spot {name}"),
+            tag: tag.clone(),
         });
-        for label in &spot.rays {
-            let ray = result.rays.iter().find(|x| &x.label == label);
-            if let Some(ray) = ray {
+        // Rays that leave from visibly different points: the spot's footprint, a faint ring
+        // around the farthest of their beams.
+        if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r {
+            scene.items.push(Item::Circle {
+                center: c,
+                radius: r + spot.spread_mm,
+                role: Role::Grid,
+                filled: false,
+                tag: format!("footprint {name}"),
+            });
+        }
+        for &i in &spot.ray_index {
+            if let Some(ray) = result.rays.get(i) {
                 scene.items.push(Item::Dot {
                     center: ray.exit_position_mm,
                     radius_px: 2.0,
                     role: Role::Label,
                     filled: true,
-                    tag: format!("exit {label}"),
+                    tag: format!("exit {}", ray.label),
                 });
             }
         }
         if !dim {
             polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
         }
-        let text = if dim {
+        let mut text = if dim {
             format!("{name}: no power")
         } else {
             format!("{name}: P {}", power(spot.power, 4))
         };
-        scene.text([c[0], c[1] - 1.25 * r], text, 12.0, Anchor::Middle, Role::Label);
-        let _ = i;
+        if spot.spread_mm > 0.0 && !dim {
+            text.push_str(&format!(" · overlap {}", sig(spot.overlap, 5)));
+        }
+        scene.text(
+            [c[0], c[1] - 1.25 * r - spot.spread_mm],
+            text,
+            12.0,
+            Anchor::Middle,
+            Role::Label,
+        );
     }
 
     // Dimension between the two spots farthest apart (they lie on the convex hull).
@@ -153,6 +175,10 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     .padded(0.08, 0.08);
     scene
 }
+
+/// Offsets below this fraction of the beam radius are not visible in the end view: a spot whose
+/// rays lie closer together than that gets no footprint ring.
+const VISIBLE_FRACTION_OF_RADIUS: f64 = 0.01;
 
 /// Indices of the points on the convex hull of `pts` (A. M. Andrew's monotone chain, Inf. Proc.
 /// Lett. 9, 216 (1979)); every point when there are three or fewer.
@@ -284,6 +310,35 @@ mod tests {
         let span = (to[0] - from[0]).hypot(to[1] - from[1]);
         assert!((span - 1.3554544373106694).abs() < 1e-12, "{span}");
         assert!(scene.texts().iter().any(|t| t.contains("P 0.5")));
+    }
+
+    #[test]
+    fn a_spread_spot_shows_its_footprint_and_overlap() {
+        // Two calcite displacers, the second 0.4 mm longer: "oe" and "eo" leave about 40 µm
+        // apart in a 0.2 mm beam, one spot whose footprint ring reaches past the beam circle by
+        // its spread, labelled with its overlap.
+        let (r, scene) = build(
+            r#"{"beam": {"diameter_mm": 0.2, "polarization": {"kind": "linear", "azimuth_deg": 45}}, "elements": [
+                {"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {"tilt_deg": 45, "azimuth_deg": 0}},
+                {"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45},
+                {"kind": "crystal", "material": "calcite", "thickness_mm": 2.4, "axis": {"tilt_deg": 45, "azimuth_deg": 0}}]}"#,
+        );
+        let spot = r
+            .spots
+            .iter()
+            .find(|s| s.rays.len() == 2)
+            .expect("oe and eo in one spot");
+        assert!(spot.spread_mm > 0.01 && spot.overlap < 1.0, "{spot:?}");
+        let Some(Item::Circle { center, radius, .. }) = scene.tagged("footprint oe+eo").next() else {
+            panic!("no footprint ring")
+        };
+        assert_eq!(*center, spot.position_mm);
+        assert!((radius - (0.1 + spot.spread_mm)).abs() < 1e-12, "{radius}");
+        let label = format!("overlap {}", sig(spot.overlap, 5));
+        assert!(scene.texts().iter().any(|t| t.contains(&label)), "{:?}", scene.texts());
+        // A spot whose rays coincide has neither.
+        let (_, demo) = build(include_str!("../examples/demo.json"));
+        assert!(demo.texts().iter().all(|t| !t.contains("overlap")));
     }
 
     #[test]

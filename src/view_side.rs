@@ -205,7 +205,15 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         Priority::Detail,
     );
 
-    // Rays, segment by segment.
+    // Rays, segment by segment. Each ray's items go to a bucket by kind and role (segments,
+    // exit lines, exit dots; o, e, other), appended in bucket order after the loop: the canvas
+    // strokes each run of one style as one path, which keeps thousands of rays cheap.
+    let mut buckets: [Vec<Item>; 9] = Default::default();
+    let bucket = |role: Role| match role {
+        Role::ORay => 0,
+        Role::ERay => 1,
+        _ => 2,
+    };
     for ray in &result.rays {
         let letters: Vec<char> = ray.label.chars().collect();
         let mut last: Option<char> = None;
@@ -227,13 +235,13 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                 continue;
             }
             let (role, dash) = mode_style(letter);
-            scene.line(
-                vec![[a[2], across3(&a)], [b[2], across3(&b)]],
+            buckets[bucket(role)].push(Item::Polyline {
+                points: vec![[a[2], across3(&a)], [b[2], across3(&b)]],
                 role,
                 dash,
-                2.0,
-                format!("ray {} segment", ray.label),
-            );
+                width: 2.0,
+                tag: format!("ray {} segment", ray.label),
+            });
         }
         let exit: Point = [ray.exit_z_mm, across(ray.exit_position_mm)];
         let end: Point = [z_max, across(ray.exit_position_mm) + slope * (z_max - ray.exit_z_mm)];
@@ -245,8 +253,14 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
         } else {
             (role, 2.0)
         };
-        scene.line(vec![exit, end], role, dash, width, format!("ray {}", ray.label));
-        scene.items.push(Item::Dot {
+        buckets[3 + bucket(role)].push(Item::Polyline {
+            points: vec![exit, end],
+            role,
+            dash,
+            width,
+            tag: format!("ray {}", ray.label),
+        });
+        buckets[6 + bucket(role)].push(Item::Dot {
             center: exit,
             radius_px: 3.0,
             role,
@@ -254,13 +268,12 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             tag: format!("exit {}", ray.label),
         });
     }
+    for b in &mut buckets {
+        scene.items.append(b);
+    }
     // One label per spot, at the end of its rays.
     for spot in &result.spots {
-        let name = if spot.rays.is_empty() {
-            "out".to_string()
-        } else {
-            spot.rays.join("+")
-        };
+        let name = spot.name();
         let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
         let name = if spot.power < NO_POWER {
             format!("{name} (no power)")

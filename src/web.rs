@@ -209,11 +209,26 @@ pub struct Session {
     result: TraceResult,
 }
 
+/// The result as an edit hands it to the page: everything but each ray's `points_mm` polyline,
+/// which only the side view reads, and it is drawn here. For 4096 rays that halves the text to
+/// write and parse; `session.result()` still gives every field.
+fn to_js_without_polylines(result: &mut TraceResult) -> Result<JsValue, JsValue> {
+    let mut polylines: Vec<Vec<[f64; 3]>> = Vec::with_capacity(result.rays.len());
+    for ray in &mut result.rays {
+        polylines.push(std::mem::take(&mut ray.points_mm));
+    }
+    let out = to_js(result);
+    for (ray, points) in result.rays.iter_mut().zip(polylines) {
+        ray.points_mm = points;
+    }
+    out
+}
+
 impl Session {
     fn accept(&mut self, parsed: Result<Scenario, Error>) -> Result<JsValue, JsValue> {
         let scenario = parsed.map_err(js_error)?;
-        let result = trace(&scenario).map_err(js_error)?;
-        let out = to_js(&result)?;
+        let mut result = trace(&scenario).map_err(js_error)?;
+        let out = to_js_without_polylines(&mut result)?;
         self.scenario = scenario;
         self.result = result;
         Ok(out)

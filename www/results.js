@@ -89,6 +89,9 @@ function appendPolarizationCells(tr, p, pick) {
   tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
 }
 
+/** A spot's rays as labels; past four, the first two and a count (a spot may hold 4096 rays). */
+const spotRays = (v) => fmt.labels(Array.isArray(v) && v.length > 4 ? [v[0], v[1], `… ${v.length} rays`] : v);
+
 function buildResults(r) {
   cells = [];
   const elBox = document.getElementById('element-results');
@@ -160,18 +163,19 @@ function buildResults(r) {
   r.spots.slice(0, spotCount).forEach((spot, k) => {
     const p = `spots[${k}]`;
     const tr = h('tr', {}, h('th', { scope: 'row', text: `${k + 1}` }));
-    tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, fmt.labels, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, spotRays, { className: 'word' }));
     const spotUnit = () => units.spots.symbol;
     tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], positionIn('spots'), {}, spotUnit));
     tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], positionIn('spots'), {}, spotUnit));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
+    tr.appendChild(cell('td', `${p}.overlap`, (x) => x.spots[k].overlap, fmt.dop));
     appendPolarizationCells(tr, p, (x) => x.spots[k]);
     spotRows.appendChild(tr);
   });
   if (r.spots.length === 0) {
-    spotRows.appendChild(h('tr', {}, h('td', { colspan: 9, className: 'empty', text: 'No spot: no light leaves the stack.' })));
+    spotRows.appendChild(h('tr', {}, h('td', { colspan: 10, className: 'empty', text: 'No spot: no light leaves the stack.' })));
   } else if (r.spots.length > ROW_LIMIT) {
-    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 9));
+    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 10));
   }
   document.getElementById('spot-rows').replaceChildren(spotRows);
 

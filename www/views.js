@@ -138,7 +138,9 @@ export function describeViews() {
   const sideView = views.find((v) => v.name === 'side');
   const plane = (SIDE_PLANES.find((p) => sideView && p[0] === drawnName(sideView)) ?? SIDE_PLANES[0])[2];
   const sideHead = `Side view (${plane}, light travelling along +z)`;
-  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${s.rays.join(' + ')})`);
+  // Past four rays a spot is named by its first two and a count, as the views name it.
+  const rayList = (s) => (s.rays.length > 4 ? `${s.rays[0]} + ${s.rays[1]} + … ${s.rays.length} rays` : s.rays.join(' + '));
+  const spotName = (s, k) => (s.rays.length === 1 ? `ray ${s.rays[0] || '(no crystal)'}` : `spot ${k + 1} (${rayList(s)})`);
 
   if (r.rays.length === 0) {
     texts.side = `${sideHead}: no ray leaves the stack.`;
