@@ -18,7 +18,7 @@
 
 use crate::beam_overlap::GaussianBeam;
 use crate::design_displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
-use crate::error::{Error, in_range, positive};
+use crate::error::{Error, above, in_range};
 use crate::json_fields::Fields;
 use crate::scenario::{Medium, Scenario};
 use crate::trace::trace;
@@ -107,17 +107,11 @@ impl RecombinerRequest {
     pub fn from_json(f: &mut Fields) -> Result<RecombinerRequest, Error> {
         let medium = parse_medium(f)?;
         let wavelength = wavelength_field(f)?;
-        let length_mm = positive(
-            "length_mm",
-            in_range("length_mm", f.required_number("length_mm")?, 0.0, 1e4)?,
-        )?;
+        let length_mm = above("length_mm", f.required_number("length_mm")?, 0.0, 1e4)?;
         let ix = indices_of(&medium, wavelength)?;
         let default_tilt = max_walkoff_cut(ix).0.to_degrees();
         let cut_tilt_deg = in_range("cut_tilt_deg", f.number_or("cut_tilt_deg", default_tilt)?, 0.0, 180.0)?;
-        let beam_diameter_mm = positive(
-            "beam_diameter_mm",
-            in_range("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?,
-        )?;
+        let beam_diameter_mm = above("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?;
         let middle = match f.string("middle")? {
             None | Some("half-wave") => Middle::HalfWave,
             Some("rotator") => Middle::Rotator(in_range(
@@ -135,19 +129,14 @@ impl RecombinerRequest {
         };
         let _ = f.get("rotator_deg");
         // The second displacer must still be a plate: refused, not clamped, when the mismatch
-        // would make its length non-positive or its tilt leave 0–180°.
-        let length_mismatch_mm = in_range(
+        // would make its length non-positive (the range's lower end is excluded) or its tilt
+        // leave 0–180°.
+        let length_mismatch_mm = above(
             "length_mismatch_mm",
             f.number_or("length_mismatch_mm", 0.0)?,
             -length_mm,
             1e3,
         )?;
-        if length_mm + length_mismatch_mm <= 0.0 {
-            return Err(Error::new(
-                "length_mismatch_mm",
-                format!("must leave the second displacer a positive length (more than −{length_mm} mm)"),
-            ));
-        }
         let tilt_mismatch_deg = in_range(
             "tilt_mismatch_deg",
             f.number_or("tilt_mismatch_deg", 0.0)?,
@@ -425,6 +414,22 @@ mod tests {
             let v: Value = serde_json::from_str(doc).unwrap();
             let mut f = Fields::new("", &v).unwrap();
             assert_eq!(RecombinerRequest::from_json(&mut f).unwrap_err().field, field, "{doc}");
+        }
+        // Ranges whose lower end is excluded say so ("above"), rather than "from 0".
+        for (doc, words) in [
+            (
+                r#"{"material": "calcite", "length_mm": 0}"#,
+                "must be above 0 mm and at most 10000 mm, got 0 mm",
+            ),
+            (
+                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
+                "must be above \u{2212}5 mm and at most 1000 mm, got \u{2212}5 mm",
+            ),
+        ] {
+            let v: Value = serde_json::from_str(doc).unwrap();
+            let mut f = Fields::new("", &v).unwrap();
+            let e = RecombinerRequest::from_json(&mut f).unwrap_err();
+            assert_eq!(e.message, words, "{doc}");
         }
     }
 

@@ -103,7 +103,9 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     };
 
     // The lengths the view writes, and the one unit they share.
-    let exit_xs: Vec<f64> = result.spots.iter().map(|p| across(p.position_mm)).collect();
+    // The dimension spans the rays' exit points, not the spots' centres: rays whose beams
+    // overlap form one spot, yet their separation is still the figure a reader looks for.
+    let exit_xs: Vec<f64> = result.rays.iter().map(|p| across(p.exit_position_mm)).collect();
     let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
     let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
     let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
@@ -310,9 +312,9 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     if spread > 0.0 {
         let zd = z_end_stack + 0.35 * lead;
         let has_y = result
-            .spots
+            .rays
             .iter()
-            .any(|p| names.turn(p.position_mm)[1].abs() > 1e-9 * d);
+            .any(|p| names.turn(p.exit_position_mm)[1].abs() > 1e-9 * d);
         let label = if has_y {
             format!("Δ{} {}", names.up_name, length(spread, unit, 3))
         } else {
@@ -680,6 +682,28 @@ mod tests {
         };
         let angle = ((to[1] - from[1]) * yz.y_stretch).atan2(to[0] - from[0]).to_degrees();
         assert!((angle - 45.0).abs() < 1e-9, "{angle}");
+    }
+
+    /// Rays whose beams overlap form one spot (0.05 mm apart in a 1 mm beam), yet the side view
+    /// still dimensions their separation: it spans the rays' exit points, not the spots'.
+    #[test]
+    fn rays_in_one_spot_still_get_their_separation_dimensioned() {
+        let doc = r#"{"beam": {"diameter_mm": 1}, "elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 0.5, "axis": {"tilt_deg": 45, "azimuth_deg": 0}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        assert_eq!(r.spots.len(), 1, "one spot");
+        let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
+            panic!()
+        };
+        let sep = separation_mm.unwrap();
+        let scene = side_view(&sc, &r);
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        assert!(
+            ((to[1] - from[1]).abs() - sep).abs() < 1e-12,
+            "{from:?} {to:?} vs {sep}"
+        );
     }
 
     #[test]

@@ -312,7 +312,7 @@ test('the side view\'s plane chooser shows a walk-off along y in the y–z plane
       // The dimension across the spots spans the separation in the planes that hold it.
       const span = await page.evaluate((v) => {
         const d = window.doublespar.session.scene(v).items.find((it) => it.tag === 'dimension');
-        return d ? Math.abs(d.points[1][1] - d.points[0][1]) : 0;
+        return d ? Math.abs(d.to[1] - d.from[1]) : 0;
       }, view);
       if (view === 'side') assert.ok(span < 1e-9 * sep, `x–z: ${span}`);
       else assert.ok(close(span, sep), `${view}: dimension ${span} vs separation ${sep}`);
