@@ -257,14 +257,18 @@ impl Session {
         self.accept(Scenario::from_json_str(text))
     }
 
-    /// Traces a scenario given as a plain JavaScript object and keeps it.
+    /// Traces a scenario given as a plain JavaScript object and keeps it. The object goes through
+    /// `JSON.stringify` and the strict reader of [`Session::update_json`], so that both forms
+    /// read one text the same way (and the module carries one reader).
     ///
     /// # Errors
     /// As [`Session::update_json`].
     pub fn update(&mut self, scenario: JsValue) -> Result<JsValue, JsValue> {
-        let value: serde_json::Value = serde_wasm_bindgen::from_value(scenario)
-            .map_err(|e| js_error(Error::new("", format!("not a scenario object: {e}"))))?;
-        self.accept(Scenario::from_json(&value))
+        let text = js_sys::JSON::stringify(&scenario)
+            .ok()
+            .and_then(|t| t.as_string())
+            .ok_or_else(|| js_error(Error::new("", "not a scenario object: JSON.stringify refused it")))?;
+        self.accept(Scenario::from_json_str(&text))
     }
 
     /// The current result object.
