@@ -1,6 +1,6 @@
 //! An SVG writer for scenes: the same display list the canvas draws, as a standalone document.
 //!
-//! The SVG uses screen coordinates (pixels, y down) from [`Viewport::fit`], so its geometry can
+//! The SVG uses screen coordinates (pixels, y down) from [`crate::scene::Viewport::fit`], so its geometry can
 //! be compared with the scene's world coordinates through the same map. Labels, the title, the
 //! caption and the dimension lines are drawn where the placement pass ([`layout`]) put them for
 //! this size, exactly as on the canvas. Colours come from a [`Palette`]; the document carries no

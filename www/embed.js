@@ -65,8 +65,8 @@ const STYLE = `
 canvas { position: absolute; inset: 0; width: 100%; height: 100%; display: block; }
 .bar { display: flex; flex-wrap: wrap; gap: 0.25rem 1rem; align-items: center; padding: 0.3rem 0.6rem; }
 .bar:empty { display: none; }
-label { display: inline-flex; gap: 0.4rem; align-items: center; }
-input[type=range] { width: 8rem; }
+label { display: inline-flex; gap: 0.4rem; align-items: center; max-width: 100%; }
+input[type=range] { width: 8rem; min-width: 3rem; flex: 0 1 8rem; } /* narrows before the readout is cut */
 output { font-variant-numeric: tabular-nums; min-width: 4.5em; }
 .readout { font-variant-numeric: tabular-nums; }
 .error { margin: 0; padding: 0.3rem 0.6rem; color: #b00020; background: color-mix(in srgb, #b00020 10%, Canvas);
