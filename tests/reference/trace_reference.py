@@ -44,9 +44,13 @@ EPS = 2.220446049250313e-16  # double-precision unit roundoff (x2)
 # the degenerate-direction rule (q x c shorter than this times |q|: D_o along q x x or q x y,
 # whichever is longer; DEVELOPERS.md / src/modes.rs header and src/precision.rs).
 DEGENERATE_DIRECTION = 1e-12
-# Spots: rays whose exit points lie within this fraction of the beam diameter of a spot's first
-# ray are one spot (DEVELOPERS.md, "Spots").
-SPOT_FRACTION = 1e-3
+# Spots (CONVENTIONS.md version 2, "spots"; DEVELOPERS.md, "Spots"): each ray is a Gaussian beam
+# of the scenario's diameter D = 2w (w the 1/e² intensity radius). Two parallel beams whose centres
+# lie d apart overlap with amplitude γ = exp(−d²/(2w²)) (the overlap integral of two equal
+# Gaussian modes; its square is Joyce & DeLoach's coupling, Appl. Opt. 23, 4187 (1984), from
+# memory). Rays link when γ ≥ e⁻², i.e. d ≤ D; a spot is a connected group of linked rays, and its
+# coherency matrix is Σ_ij γ_ij M_i C_in M_jᴴ. Written here from that statement alone, pair by pair.
+SPOT_LINK_DIAMETERS = 1.0
 
 # ---------------------------------------------------------------------------------------------
 # Catalogue: dispersion forms and coefficients as documented in src/material.rs.
@@ -556,27 +560,49 @@ def reference_trace(sc):
     for lab, m, pos, ph, nz in paths:
         st = stokes_of(m @ c_in @ m.conj().T)
         rays[lab] = {"power": st[0], "stokes": st, "pos": pos, "phase": ph, "pos_noise": nz}
-    # Spots: greedy grouping by distance to each spot's first ray; coherent sum of the matrices.
-    tol = SPOT_FRACTION * beam.get("diameter_mm", 1.0)
-    groups, ambiguous = [], False
-    for i, (_, _, pos, _, _) in enumerate(paths):
-        placed = False
-        for grp in groups:
-            d = np.linalg.norm(pos - paths[grp[0]][2])
-            if abs(d - tol) < 1e-6 * tol:  # positions agree far better than this
+    # Spots: connected groups of rays at most one diameter apart; fields summed with the overlap.
+    diameter = beam.get("diameter_mm", 1.0)
+    w = diameter / 2.0
+    link = SPOT_LINK_DIAMETERS * diameter
+    n = len(paths)
+    parent = list(range(n))
+
+    def find(i):
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+
+    ambiguous = False
+    for i in range(n):
+        for j in range(i + 1, n):
+            d = np.linalg.norm(paths[i][2] - paths[j][2])
+            if abs(d - link) < 1e-6 * link:  # a pair on the threshold: grouping not decidable
                 ambiguous = True
-            if d <= tol and not placed:
-                grp.append(i)
-                placed = True
-        if not placed:
-            groups.append([i])
+            if d <= link:
+                parent[find(i)] = find(j)
+    groups = {}
+    for i in range(n):
+        groups.setdefault(find(i), []).append(i)
     spots = []
-    for grp in groups:
-        msum = sum(paths[i][1] for i in grp)
-        st = stokes_of(msum @ c_in @ msum.conj().T)
+    for grp in sorted(groups.values()):
+        c = np.zeros((2, 2), dtype=complex)
+        for i in grp:
+            for j in grp:
+                d = np.linalg.norm(paths[i][2] - paths[j][2])
+                gamma = math.exp(-d * d / (2 * w * w))
+                c += gamma * (paths[i][1] @ c_in @ paths[j][1].conj().T)
+        st = stokes_of(c)
+        # Overlap figure: exp(−(2σ)²/w²), σ² the power-weighted spread of the ray points about
+        # their power-weighted centre (two equal beams d apart: exp(−d²/w²)).
+        pw = np.array([max(rays[paths[i][0]]["power"], 0.0) for i in grp])
+        wts = pw / pw.sum() if pw.sum() > 0 else np.full(len(grp), 1.0 / len(grp))
+        pts = np.array([paths[i][2][:2] for i in grp])
+        centre = wts @ pts
+        var = float(wts @ np.sum((pts - centre) ** 2, axis=1))
         phase_scale = max(abs(paths[i][3]) for i in grp)
         spots.append({"rays": [paths[i][0] for i in grp], "power": st[0], "stokes": st,
-                      "phase_scale": phase_scale})
+                      "overlap": math.exp(-4 * var / (w * w)), "phase_scale": phase_scale})
     return {"u": u, "rays": rays, "elements": elements, "spots": None if ambiguous else spots}
 
 
@@ -688,8 +714,8 @@ def check(ref, got, sc, comp, label):
         num(f"{q}.phase_rad", "phase_rad", rr["phase"], g["phase_rad"], floor=FLOOR_RAD)
         vec(f"{q}.direction", "direction", ref["u"], g["direction"])
     if ref["spots"] is not None:
-        gs = {tuple(s["rays"]): s for s in got["spots"]}
-        rs = {tuple(s["rays"]): s for s in ref["spots"]}
+        gs = {tuple(sorted(s["rays"])): s for s in got["spots"]}
+        rs = {tuple(sorted(s["rays"])): s for s in ref["spots"]}
         if sorted(gs) != sorted(rs):
             bad.append(("spots[].rays", sorted(rs), sorted(gs)))
         else:
@@ -701,6 +727,7 @@ def check(ref, got, sc, comp, label):
                 for k in range(4):
                     num(f"spots[{'+'.join(key)}].stokes[{k}]", "spot stokes", s["stokes"][k],
                         gs[key]["stokes"][k], scale=s["power"], floor=ftol)
+                num(f"spots[{'+'.join(key)}].overlap", "spot overlap", s["overlap"], gs[key]["overlap"])
     return bad
 
 
