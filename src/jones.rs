@@ -12,6 +12,14 @@
 use nalgebra::{Matrix2, Vector2};
 use num_complex::Complex64;
 
+/// A Jones vector as the contract writes it: [[re, im], [re, im]].
+pub type JonesJson = [[f64; 2]; 2];
+
+/// A Jones vector in the contract's form, [[re, im], [re, im]].
+pub fn to_json(j: &Jones) -> JonesJson {
+    [[j[0].re, j[0].im], [j[1].re, j[1].im]]
+}
+
 /// A Jones vector (E1, E2).
 pub type Jones = Vector2<Complex64>;
 /// A Jones matrix.

@@ -27,9 +27,9 @@
 
 use crate::beam_overlap::GaussianBeam;
 use crate::jones::{Jones, JonesMatrix};
+use crate::jones::{JonesJson, to_json};
 use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, SITE_FRACTION_OF_RADIUS, SPOT_LINK_EXPONENT};
 use crate::stokes::{self, Ellipse};
-use crate::trace::{JonesJson, to_json};
 use num_complex::Complex64;
 use serde::Serialize;
 use std::f64::consts::PI;

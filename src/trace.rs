@@ -23,7 +23,7 @@
 use crate::beam_overlap::GaussianBeam;
 use crate::error::Error;
 use crate::interface::{CMatrix2, Losses, bare_face, lossless_part};
-use crate::jones::{self, Jones, JonesMatrix};
+use crate::jones::{self, Jones, JonesMatrix, to_json};
 use crate::material::Indices;
 use crate::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
 use crate::precision::POWER_ROUNDING;
@@ -37,8 +37,7 @@ use num_complex::Complex64;
 use serde::Serialize;
 use std::f64::consts::TAU;
 
-/// A Jones vector as the contract writes it: [[re, im], [re, im]].
-pub type JonesJson = [[f64; 2]; 2];
+pub use crate::jones::JonesJson;
 
 /// One output ray.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -222,10 +221,6 @@ struct Path {
     pos: [f64; 2],
     phase: f64,
     points: Vec<[f64; 3]>,
-}
-
-pub(crate) fn to_json(j: &Jones) -> JonesJson {
-    [[j[0].re, j[0].im], [j[1].re, j[1].im]]
 }
 
 fn arr3(v: Vector3<f64>) -> [f64; 3] {
