@@ -143,9 +143,9 @@ const glue = wrapGlue(read('pkg-design/doublespar.js'));
 // bytes from the page's first message.
 let worker = read('design-worker.js');
 worker = replaceOnce(worker,
-  "import init, { designJson, displacerChunk, summarize } from './pkg-design/doublespar.js';",
+  "import init, { DesignRun } from './pkg-design/doublespar.js';",
   [
-    'const { default: init, designJson, displacerChunk, summarize } = __dsMakeCore();',
+    'const { default: init, DesignRun } = __dsMakeCore();',
     'let __dsGotBytes;',
     'const __dsBytes = new Promise((resolve) => { __dsGotBytes = resolve; });',
     "self.addEventListener('message', (ev) => { if (ev.data && ev.data.type === 'doublespar-wasm') __dsGotBytes(ev.data.bytes); });",

@@ -102,39 +102,128 @@ pub fn design_json(text: &str) -> Result<JsValue, JsValue> {
     to_js(&design::solve_str(text).map_err(js_error)?)
 }
 
-/// Monte Carlo chunk `chunk` (of [`design_displacer::MC_CHUNK`] samples) of a displacer
-/// request: the sampled separations in mm. Running chunks 0, 1, … and summarizing them gives
-/// exactly the `monte_carlo` of [`design_json`], so a worker can report progress between chunks.
-///
-/// # Errors
-/// `{field, message}` for a bad request.
+/// One design run, held by the design worker: the request read and checked once, its nominal
+/// design solved once, then Monte Carlo chunk by chunk (each of [`design_displacer::MC_CHUNK`]
+/// samples, so that the worker reports progress between chunks) and the summary. Chunks
+/// 0, 1, … summarized give exactly the `monte_carlo` of [`design_json`] (and of
+/// `doublespar design`) for the same request.
 #[cfg(feature = "design-worker")]
-#[wasm_bindgen(js_name = displacerChunk)]
-pub fn displacer_chunk(text: &str, chunk: usize) -> Result<Vec<f64>, JsValue> {
-    let value: serde_json::Value =
-        serde_json::from_str(text).map_err(|e| js_error(Error::new("", format!("not valid JSON: {e}"))))?;
-    let mut f = Fields::new("", &value).map_err(js_error)?;
-    match f.string("kind").map_err(js_error)? {
-        None | Some("displacer") => {}
-        Some(other) => {
-            return Err(js_error(Error::new(
-                "kind",
-                format!("Monte Carlo chunks are for displacers, not '{other}'"),
-            )));
+#[wasm_bindgen]
+pub struct DesignRun {
+    nominal: serde_json::Value,
+    /// The displacer request, its cut tilt (degrees) and length (mm), when it has samples to draw.
+    monte_carlo: Option<(design_displacer::DisplacerRequest, f64, f64)>,
+    /// The samples of each chunk drawn so far, by chunk index.
+    parts: Vec<Option<Vec<f64>>>,
+}
+
+#[cfg(feature = "design-worker")]
+impl DesignRun {
+    /// Reads and checks a request and solves its nominal design; a displacer with samples is
+    /// solved without them (every field but `samples` checked there, then the whole request).
+    fn new_checked(text: &str) -> Result<DesignRun, Error> {
+        let none = |nominal| DesignRun {
+            nominal,
+            monte_carlo: None,
+            parts: Vec::new(),
+        };
+        if text.len() > crate::scenario::MAX_DOCUMENT_BYTES {
+            return Err(Error::new("", "the request is larger than 1 MiB"));
         }
+        let value: serde_json::Value = crate::json_fields::parse_text(text)?;
+        let is_displacer = value.get("kind").and_then(serde_json::Value::as_str) == Some("displacer");
+        let has_samples = value.get("samples").is_none_or(|s| s.as_f64() != Some(0.0));
+        if !(is_displacer && has_samples) {
+            return Ok(none(design::solve(&value)?));
+        }
+        let mut without = value.clone();
+        if let Some(m) = without.as_object_mut() {
+            m.insert("samples".into(), serde_json::Value::from(0));
+        }
+        let nominal = design::solve(&without)?;
+        let mut f = Fields::new("", &value)?;
+        f.string("kind")?;
+        let mut req = design_displacer::DisplacerRequest::from_json(&mut f)?;
+        f.finish()?;
+        if req.samples == 0 {
+            return Ok(none(nominal));
+        }
+        let samples = req.samples;
+        req.samples = 0;
+        let d = design_displacer::design(&req)?;
+        req.samples = samples;
+        let parts = vec![None; samples.div_ceil(design_displacer::MC_CHUNK)];
+        Ok(DesignRun {
+            nominal,
+            monte_carlo: Some((req, d.cut_tilt_deg, d.length_mm)),
+            parts,
+        })
     }
-    let mut req = design_displacer::DisplacerRequest::from_json(&mut f).map_err(js_error)?;
-    f.finish().map_err(js_error)?;
-    let samples = req.samples;
-    req.samples = 0;
-    let nominal = design_displacer::design(&req).map_err(js_error)?;
-    req.samples = samples;
-    Ok(design_displacer::monte_carlo_chunk(
-        &req,
-        nominal.cut_tilt_deg,
-        nominal.length_mm,
-        chunk,
-    ))
+}
+
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen]
+impl DesignRun {
+    /// Reads a design request (JSON text, see `doublespar design`) and solves its nominal design.
+    ///
+    /// # Errors
+    /// `{field, message}` for a bad request.
+    #[wasm_bindgen(constructor)]
+    pub fn new(text: &str) -> Result<DesignRun, JsValue> {
+        DesignRun::new_checked(text).map_err(js_error)
+    }
+
+    /// The design without its Monte Carlo summary (for a request without samples: the whole
+    /// design).
+    ///
+    /// # Errors
+    /// Never in practice.
+    pub fn nominal(&self) -> Result<JsValue, JsValue> {
+        to_js(&self.nominal)
+    }
+
+    /// Samples the run draws (0: no Monte Carlo run).
+    #[wasm_bindgen(getter)]
+    pub fn samples(&self) -> usize {
+        self.monte_carlo.as_ref().map_or(0, |(r, _, _)| r.samples)
+    }
+
+    /// Chunks the run draws.
+    #[wasm_bindgen(getter)]
+    pub fn chunks(&self) -> usize {
+        self.parts.len()
+    }
+
+    /// Draws chunk `k` (once; again is a no-op) and returns how many samples the run has drawn
+    /// so far, for progress.
+    pub fn chunk(&mut self, k: usize) -> usize {
+        if let (Some((req, tilt, length)), Some(slot)) = (&self.monte_carlo, self.parts.get_mut(k))
+            && slot.is_none()
+        {
+            *slot = Some(design_displacer::monte_carlo_chunk(req, *tilt, *length, k));
+        }
+        let drawn = self.parts.iter().filter(|p| p.is_some()).count();
+        (drawn * design_displacer::MC_CHUNK).min(self.samples())
+    }
+
+    /// The Monte Carlo summary (mean, std, p5, p95, histogram) of every chunk, in chunk order
+    /// (samples the model cannot evaluate are left out), as the design's `monte_carlo`.
+    ///
+    /// # Errors
+    /// `{field: "", message}` when the run has no samples or a chunk was not drawn.
+    pub fn summary(&self) -> Result<JsValue, JsValue> {
+        let Some((req, _, _)) = &self.monte_carlo else {
+            return Err(js_error(Error::new("", "this design run has no Monte Carlo samples")));
+        };
+        let mut all = Vec::with_capacity(req.samples);
+        for (k, part) in self.parts.iter().enumerate() {
+            let part = part
+                .as_ref()
+                .ok_or_else(|| js_error(Error::new("", format!("Monte Carlo chunk {k} was not drawn"))))?;
+            all.extend_from_slice(part);
+        }
+        to_js(&statistics::summarize(&all, req.bins))
+    }
 }
 
 /// Benchmark hook: the dense 10ⁿ-point walk-off sweep of [`crate::sweep::walkoff_sweep_into`]
@@ -149,16 +238,6 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
     let mut out = vec![0.0; n];
     crate::sweep::walkoff_sweep_into(ix, 0.0, std::f64::consts::FRAC_PI_2, &mut out);
     crate::sweep::checksum(&out)
-}
-
-/// Summary statistics (mean, std, p5, p95, histogram) of samples, as the design reports them.
-///
-/// # Errors
-/// Never in practice.
-#[cfg(feature = "design-worker")]
-#[wasm_bindgen]
-pub fn summarize(samples: &[f64], bins: usize) -> Result<JsValue, JsValue> {
-    to_js(&statistics::summarize(samples, bins))
 }
 
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
