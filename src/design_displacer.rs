@@ -33,6 +33,9 @@ use serde_json::{Value, json};
 /// Most Monte Carlo samples a request may ask for.
 pub const MAX_SAMPLES: usize = 1_000_000;
 
+/// Monte Carlo samples of a request that names none.
+pub const DEFAULT_SAMPLES: usize = 100_000;
+
 /// Standard deviations of the manufacturing and alignment errors.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Tolerances {
@@ -323,7 +326,7 @@ impl DisplacerRequest {
                 tol
             }
         };
-        let samples = whole(f, "samples", 100_000.0, 0.0, MAX_SAMPLES as f64)? as usize;
+        let samples = whole(f, "samples", DEFAULT_SAMPLES as f64, 0.0, MAX_SAMPLES as f64)? as usize;
         let seed = whole(f, "seed", 1.0, 0.0, 9.007_199_254_740_991e15)? as u64;
         let bins = whole(f, "bins", 40.0, 1.0, 1000.0)? as usize;
         Ok(DisplacerRequest {

@@ -33,6 +33,10 @@ use serde::Serialize;
 use serde_json::{Value, json};
 use std::f64::consts::TAU;
 
+/// Acceptance error (waves) of a request that names none: the retardance may drift this far
+/// over the incidence cone.
+pub const DEFAULT_ACCEPTANCE_ERROR_WAVES: f64 = 0.01;
+
 /// How the plate reaches its retardance.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Order {
@@ -252,7 +256,7 @@ impl WaveplateRequest {
             max_incidence_deg: in_range("max_incidence_deg", f.number_or("max_incidence_deg", 10.0)?, 0.01, 80.0)?,
             acceptance_error_waves: in_range(
                 "acceptance_error_waves",
-                f.number_or("acceptance_error_waves", 0.01)?,
+                f.number_or("acceptance_error_waves", DEFAULT_ACCEPTANCE_ERROR_WAVES)?,
                 1e-9,
                 1.0,
             )?,

@@ -92,6 +92,27 @@ pub fn view_names() -> Result<JsValue, JsValue> {
     to_js(&views::VIEW_NAMES)
 }
 
+/// The design requests' constants the page shows or reads back, as the core holds them:
+/// `{chunk_samples, default_samples, max_samples, default_acceptance_error_waves,
+/// recombiner_min_overlap, recombiner_max_phase_rad}` (Monte Carlo chunk size, the default and
+/// largest sample counts, the waveplate's default acceptance error, and the overlap and phase
+/// limits at which a recombiner breaks).
+///
+/// # Errors
+/// Never in practice.
+#[wasm_bindgen(js_name = designLimits)]
+pub fn design_limits() -> Result<JsValue, JsValue> {
+    use crate::{design_displacer as dd, design_recombiner as dr};
+    to_js(&serde_json::json!({
+        "chunk_samples": dd::MC_CHUNK,
+        "default_samples": dd::DEFAULT_SAMPLES,
+        "max_samples": dd::MAX_SAMPLES,
+        "default_acceptance_error_waves": crate::design_waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES,
+        "recombiner_min_overlap": dr::MIN_OVERLAP,
+        "recombiner_max_phase_rad": dr::MAX_PHASE_ERROR,
+    }))
+}
+
 /// Solves a design request (JSON text, see `doublespar design`); returns the design object.
 ///
 /// # Errors

@@ -28,18 +28,14 @@ const DESIGN_KINDS = [
   ['achromat', 'achromatic waveplate pair'],
   ['recombiner', 'recombiner check'],
 ];
-// A recombiner "breaks" when the overlap drops below 99 % or the phase moves by more than π/10
-// (DEVELOPERS.md, "Design requests"; src/design_recombiner.rs).
-const RECOMBINER_MIN_OVERLAP = 0.99;
-const RECOMBINER_MAX_PHASE_RAD = Math.PI / 10;
-// Defaults of the request fields the page reads back to label its plots (DEVELOPERS.md).
-const WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR = 0.01;
-const DESIGN_DEFAULT_SAMPLES = 100000;
 // The material a kind starts from, until the user picks one (common choices for each part).
 const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite' };
 const NBSP = '\u00a0';
 
 let page = null; // what the page gives the panel (setupDesign's pageLinks)
+// The core's design constants (core.designLimits()): sample defaults and limits, the waveplate's
+// default acceptance error, the overlap and phase at which a recombiner breaks.
+let limits = null;
 const dfields = {}; // request path -> DesignField
 const dlayout = {}; // kind -> [row or group element, …] in the order shown
 const dhints = {}; // kind -> {path: hint text}
@@ -184,9 +180,9 @@ function buildDesignFields() {
   ], { hint: 'The incidence error lies in the walk-off plane.' });
   const samples = dfield('samples', {
     label: 'Monte Carlo samples',
-    value: DESIGN_DEFAULT_SAMPLES,
+    value: limits.default_samples,
     step: 1000,
-    hint: 'At most 1 000 000; 0 skips the tolerance run.',
+    hint: `At most ${limits.max_samples.toLocaleString('en-US').replace(/,/g, ' ')}; 0 skips the tolerance run.`,
   });
   const seed = dfield('seed', { label: 'Random seed', value: 1, step: 1 });
 
@@ -195,7 +191,7 @@ function buildDesignFields() {
   const accErr = dfield('acceptance_error_waves', {
     label: 'Acceptance error',
     unit: 'waves',
-    value: WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR,
+    value: limits.default_acceptance_error_waves,
     hint: 'The acceptance angle is where the retardance has moved this far from its value at normal incidence.',
   });
 
@@ -696,8 +692,8 @@ function achromatResults(d) {
 }
 
 function recombinerResults(d) {
-  const overlapOk = d.overlap >= RECOMBINER_MIN_OVERLAP;
-  const phaseOk = Math.abs(d.phase_difference_rad) <= RECOMBINER_MAX_PHASE_RAD;
+  const overlapOk = d.overlap >= limits.recombiner_min_overlap;
+  const phaseOk = Math.abs(d.phase_difference_rad) <= limits.recombiner_max_phase_rad;
   const works = d.recombined && overlapOk && phaseOk;
   const why = [];
   if (!d.recombined) why.push('the two paths leave as separate spots');
@@ -894,7 +890,7 @@ function plotsFor(kind, d, request, run) {
   if (kind === 'waveplate') {
     const c = d.wavelength_curve;
     const worst = worstPlane(d);
-    const err = typeof request.acceptance_error_waves === 'number' ? request.acceptance_error_waves : WAVEPLATE_DEFAULT_ACCEPTANCE_ERROR;
+    const err = typeof request.acceptance_error_waves === 'number' ? request.acceptance_error_waves : limits.default_acceptance_error_waves;
     const plots = [designPlot('retardance-wavelength', {
       wide: true,
       label: c.length
@@ -1166,7 +1162,7 @@ function onDesignMessage(msg) {
   if (!a || msg.id !== a.id) return;
   if (msg.type === 'nominal') {
     a.nominal = msg.design;
-    const total = Math.floor(typeof a.request.samples === 'number' ? a.request.samples : DESIGN_DEFAULT_SAMPLES);
+    const total = msg.total;
     a.total = total;
     design.shown = { request: a.request, design: msg.design, complete: false, run: { done: 0, total, cancelled: false } };
     document.getElementById('design-run').hidden = false;
@@ -1315,7 +1311,7 @@ function updateDesignStale(failed = false) {
 
 /**
  * Builds the panel in section#design and starts its worker. `pageLinks` is what the panel uses
- * of the page: `core` (the bindings: drawSeries, drawHistogram), `materialList`
+ * of the page: `core` (the bindings: drawSeries, drawHistogram, designLimits), `materialList`
  * (core.materials()), `materialName(key)`, `darkQuery` (the prefers-color-scheme: dark query),
  * `applyScenario(obj, origin)` (loads a scenario into the set-up as a step of its history;
  * throws {field, message}), `flushFragment()` (writes the address now) and
@@ -1325,6 +1321,7 @@ function updateDesignStale(failed = false) {
  */
 export function setupDesign(pageLinks) {
   page = pageLinks;
+  limits = page.core.designLimits();
   buildDesignFields();
   layoutDesignFields();
   const form = document.getElementById('design-form');

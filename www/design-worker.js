@@ -6,8 +6,9 @@
 // Protocol (every message carries the id of its request):
 //   page -> worker  {type: 'solve', id, request}          request: a design request object
 //   worker -> page  {type: 'ready'}                        once the core has loaded
-//                   {type: 'nominal', id, design}          displacer with samples > 0: the design
-//                                                          without its Monte Carlo summary
+//                   {type: 'nominal', id, design, total}   displacer with samples > 0: the design
+//                                                          without its Monte Carlo summary, and
+//                                                          the samples the run draws
 //                   {type: 'progress', id, done, total, chunk, chunks}   after each chunk
 //                   {type: 'done', id, design}             the complete design (for a displacer
 //                                                          run: with monte_carlo filled in)
@@ -43,7 +44,7 @@ function solve(id, request) {
       self.postMessage({ type: 'done', id, design });
       return;
     }
-    self.postMessage({ type: 'nominal', id, design });
+    self.postMessage({ type: 'nominal', id, design, total });
     const chunks = run.chunks;
     for (let k = 0; k < chunks; k += 1) {
       const done = run.chunk(k);
