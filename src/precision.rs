@@ -51,6 +51,21 @@ pub const LINEAR_ELLIPTICITY: f64 = 1e-12;
 /// `S0²`), so that a fully polarized state typed with rounded decimals is accepted.
 pub const STOKES_PHYSICAL: f64 = 1e-9;
 
+/// Asserts that `actual` is within `allowed` (absolute) of `expected` and finite, printing both
+/// values, the difference and `what` (which should name the source of the expected value). The one
+/// comparison every test of a number goes through.
+///
+/// # Panics
+/// When the values differ by more than `allowed`; this is meant for tests.
+#[track_caller]
+pub fn assert_within(actual: f64, expected: f64, allowed: f64, what: &str) {
+    let diff = (actual - expected).abs();
+    assert!(
+        diff <= allowed && actual.is_finite(),
+        "{what}: expected {expected:.15e}, got {actual:.15e} (difference {diff:.3e}, allowed {allowed:.3e})"
+    );
+}
+
 /// Asserts that `actual` is within `rel` (relative to `max(|expected|, floor)`) of `expected`,
 /// printing both values and `what` (which should name the source of the expected value).
 ///
@@ -58,11 +73,5 @@ pub const STOKES_PHYSICAL: f64 = 1e-9;
 /// When the values differ by more than the tolerance; this is meant for tests.
 #[track_caller]
 pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str) {
-    let scale = expected.abs().max(floor);
-    let diff = (actual - expected).abs();
-    assert!(
-        diff <= rel * scale && actual.is_finite(),
-        "{what}: expected {expected:.15e}, got {actual:.15e} (difference {diff:.3e}, allowed {:.3e})",
-        rel * scale
-    );
+    assert_within(actual, expected, rel * expected.abs().max(floor), what);
 }

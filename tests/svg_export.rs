@@ -2,6 +2,7 @@
 //! `doublespar draw` output is well-formed XML, and its key geometry — the exit points and the
 //! separation dimension — equals the traced result mapped into the SVG's own pixel coordinates.
 
+use doublespar::precision::assert_within;
 use doublespar::scenario::Scenario;
 use doublespar::scene::Viewport;
 use doublespar::trace::{ElementReport, trace};
@@ -29,12 +30,12 @@ fn points(attr: &str) -> Vec<[f64; 2]> {
         .collect()
 }
 
+#[track_caller]
 fn near(a: [f64; 2], b: [f64; 2], what: &str) {
     // The SVG writes coordinates with three decimals.
-    assert!(
-        (a[0] - b[0]).abs() <= 6e-4 && (a[1] - b[1]).abs() <= 6e-4,
-        "{what}: svg {a:?}, expected {b:?}"
-    );
+    for (axis, (got, want)) in ["x", "y"].into_iter().zip(a.into_iter().zip(b)) {
+        assert_within(got, want, 6e-4, &format!("{what}, {axis} in the svg"));
+    }
 }
 
 #[test]
