@@ -126,7 +126,12 @@ fn check_physical(r: &TraceResult) {
             );
             let sj = jones::stokes(&jv);
             for k in 0..4 {
-                assert!((sj[k] - s[k]).abs() < 1e-12, "Jones {sj:?} vs Stokes {s:?}");
+                near(
+                    sj[k],
+                    s[k],
+                    1e-12,
+                    &format!("Stokes component {k} from Jones {sj:?}, against the traced {s:?}"),
+                );
             }
         }
         assert!(ray.exit_position_mm.iter().all(|x| x.is_finite()));
