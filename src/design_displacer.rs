@@ -23,6 +23,7 @@ use crate::error::{Error, above, in_range, quoted};
 use crate::json_fields::{Fields, number_list};
 use crate::material::{self, Indices};
 use crate::plate::{plate_optics, tangential};
+use crate::precision::{DIFF_STEP_INCIDENCE_DEG, DIFF_STEP_WAVELENGTH_NM, NO_BIREFRINGENCE, NO_WALKOFF_RAD};
 use crate::scenario::Medium;
 use crate::statistics::{Rng, Summary, summarize};
 use crate::uniaxial::{max_walkoff_cut, walkoff};
@@ -439,7 +440,7 @@ fn central(f: impl Fn(f64) -> Option<f64>, x: f64, h: f64) -> Option<f64> {
 /// no walk-off; `separation_mm` when the model cannot be evaluated around the design.
 pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let ix = indices_of(&req.medium, req.wavelength)?;
-    if (ix.no - ix.ne).abs() < 1e-12 {
+    if (ix.no - ix.ne).abs() < NO_BIREFRINGENCE {
         return Err(Error::new(
             "material",
             "n_o equals n_e: this crystal has no walk-off to displace a beam with",
@@ -449,7 +450,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let max_cut_deg = theta_m.to_degrees();
     let tilt = req.cut_tilt_deg.unwrap_or(max_cut_deg);
     let rho = walkoff(ix, tilt.to_radians());
-    if rho.abs() < 1e-9 {
+    if rho.abs() < NO_WALKOFF_RAD {
         return Err(Error::new(
             "cut_tilt_deg",
             format!(
@@ -522,9 +523,9 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let sec2 = 1.0 + rho.tan().powi(2);
     let s_tilt = length_mm * sec2 * slope * deg;
     let s_tilt_2 = 0.5 * length_mm * sec2 * (curvature_rad + 2.0 * rho.tan().abs() * slope * slope) * deg * deg;
-    let s_inc = central(|p| separation(m, tilt, p, length_mm, nm), 0.0, 1e-3).ok_or_else(bad)?;
+    let s_inc = central(|p| separation(m, tilt, p, length_mm, nm), 0.0, DIFF_STEP_INCIDENCE_DEG).ok_or_else(bad)?;
     let s_len = rho.tan().abs();
-    let s_wl = central(|w| separation(m, tilt, 0.0, length_mm, w), nm, 1e-2).ok_or_else(bad)?;
+    let s_wl = central(|w| separation(m, tilt, 0.0, length_mm, w), nm, DIFF_STEP_WAVELENGTH_NM).ok_or_else(bad)?;
     let t = req.tolerances;
     let linear_std_mm = ((s_tilt * t.tilt_deg).powi(2)
         + (s_inc * t.incidence_deg).powi(2)

@@ -20,6 +20,9 @@ use crate::beam_overlap::GaussianBeam;
 use crate::design_displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
 use crate::error::{Error, above, in_range};
 use crate::json_fields::Fields;
+use crate::precision::{
+    BISECTION_STEPS, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL, DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
+};
 use crate::scenario::{Medium, Scenario};
 use crate::trace::trace;
 use crate::uniaxial::{max_walkoff_cut, walkoff};
@@ -217,7 +220,7 @@ fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> 
 /// As the trace of its scenario; `material` when a path does not exist.
 pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
     let ix = indices_of(&req.medium, req.wavelength)?;
-    if walkoff(ix, req.cut_tilt_deg.to_radians()).abs() < 1e-9 {
+    if walkoff(ix, req.cut_tilt_deg.to_radians()).abs() < NO_WALKOFF_RAD {
         return Err(Error::new(
             "cut_tilt_deg",
             "this cut gives no walk-off: there is nothing to recombine",
@@ -231,8 +234,8 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
     let res = at.dx[0].hypot(at.dx[1]);
     // Sensitivities by central differences of the full trace (the phase unwrapped by using
     // differences small enough that it moves far less than π).
-    let hl = 1e-6 * req.length_mm.max(1e-3);
-    let ht = 1e-5;
+    let hl = DIFF_STEP_LENGTH_REL * req.length_mm.max(DIFF_STEP_LENGTH_FLOOR_MM);
+    let ht = DIFF_STEP_TILT_DEG;
     let (lp, lm) = (outcome(req, dl0 + hl, dt0)?, outcome(req, dl0 - hl, dt0)?);
     let (tp, tm) = (outcome(req, dl0, dt0 + ht)?, outcome(req, dl0, dt0 - ht)?);
     let ls = [(lp.dx[0] - lm.dx[0]) / (2.0 * hl), (lp.phase - lm.phase) / (2.0 * hl)];
@@ -269,7 +272,7 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
                     let d = sign * max * 10f64.powf(-9.0 + 9.0 * i as f64 / 90.0);
                     if bad(d) == Some(true) {
                         let (mut lo, mut hi) = (prev, d);
-                        for _ in 0..60 {
+                        for _ in 0..BISECTION_STEPS {
                             let mid = 0.5 * (lo + hi);
                             if bad(mid) == Some(true) { hi = mid } else { lo = mid }
                         }

@@ -27,6 +27,9 @@ use crate::error::{Error, in_range};
 use crate::json_fields::{Fields, number_list};
 use crate::material::{Indices, OpticalSign};
 use crate::plate::{plate_optics, tangential};
+use crate::precision::{
+    BISECTION_STEPS, GOLDEN_SECTION_STEPS, NO_BIREFRINGENCE, SAME_ANGLE_DEG, SAME_WAVELENGTH_NM, SINGULAR_DETERMINANT,
+};
 use crate::scenario::Medium;
 use crate::wavelength::Wavelength;
 use serde::Serialize;
@@ -179,7 +182,7 @@ fn stack_retardance(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2]) -> Opt
     for (medium, l, az) in plates {
         let ix = indices_of(medium, wl).ok()?;
         let p = plate_optics(ix, 90.0, *az, *l, wl, qt)?;
-        let crossed = ((az - plates[0].2).abs() - 90.0).abs() < 1e-9;
+        let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
         total += if crossed { -p.retardance_rad } else { p.retardance_rad };
     }
     Some(total)
@@ -204,7 +207,7 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
             if let Some(k) = curve.iter().position(|p| (p[1] - g0).abs() > err_waves) {
                 // Bisect between the last good sample and the first bad one.
                 let (mut lo, mut hi) = (curve[k.saturating_sub(1)][0], curve[k][0]);
-                for _ in 0..60 {
+                for _ in 0..BISECTION_STEPS {
                     let mid = 0.5 * (lo + hi);
                     match at(mid) {
                         Some(g) if (g - g0).abs() <= err_waves => lo = mid,
@@ -289,7 +292,7 @@ impl AchromatRequest {
 pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let ix = indices_of(&req.medium, req.wavelength)?;
     let dn = ix.ne - ix.no;
-    if dn.abs() < 1e-12 {
+    if dn.abs() < NO_BIREFRINGENCE {
         return Err(Error::new("material", "n_o equals n_e: this crystal cannot retard"));
     }
     let lam_mm = req.wavelength.mm();
@@ -408,7 +411,7 @@ impl AchromatRequest {
             in_range("wavelengths_nm[0]", w[0], 1.0, 1e6)?,
             in_range("wavelengths_nm[1]", w[1], 1.0, 1e6)?,
         );
-        if (w1 - w2).abs() < 1e-9 {
+        if (w1 - w2).abs() < SAME_WAVELENGTH_NM {
             return Err(Error::new(path, "the two wavelengths must differ"));
         }
         Ok(AchromatRequest {
@@ -436,7 +439,7 @@ fn largest_error(curve: &[[f64; 2]], err: impl Fn(f64) -> Option<f64>, target: f
     let (mut a, mut b) = (curve[k.saturating_sub(1)][0], curve[(k + 1).min(curve.len() - 1)][0]);
     let r = 0.5 * (5f64.sqrt() - 1.0);
     let mut found = best;
-    for _ in 0..80 {
+    for _ in 0..GOLDEN_SECTION_STEPS {
         let (c, d) = (b - r * (b - a), a + r * (b - a));
         let (ec, ed) = (err(c).unwrap_or(0.0), err(d).unwrap_or(0.0));
         found = found.max(ec).max(ed);
@@ -469,7 +472,7 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         dn(&req.b, w2)? / l2,
     );
     let det = a11 * a22 - a12 * a21;
-    if det.abs() < 1e-9 * (a11 * a22).abs().max((a12 * a21).abs()).max(1e-300) {
+    if det.abs() < SINGULAR_DETERMINANT * (a11 * a22).abs().max((a12 * a21).abs()).max(1e-300) {
         return Err(Error::new(
             "second",
             "the two materials disperse in proportion: no pair of thicknesses is achromatic at both wavelengths",

@@ -33,6 +33,12 @@ impl Error {
         self.field = join_path(prefix, &self.field);
         self
     }
+
+    /// The error as the contract sends it: `{"field": …, "message": …}`. The command line wraps
+    /// it as `{"error": …}`; the page's bindings hand it over as it is.
+    pub fn to_json(&self) -> serde_json::Value {
+        serde_json::json!({"field": self.field, "message": self.message})
+    }
 }
 
 /// Joins a field path and a child name with the contract's separators (`.` for names, none before

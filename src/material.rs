@@ -301,6 +301,21 @@ impl Material {
     }
 }
 
+/// A material as the command line's `materials` listing and the page's catalogue show it:
+/// `{key, name, sign, range_nm, citation, verified, warnings}`, `sign` spelled `positive` or
+/// `negative`, `warnings` holding [`Material::data_warning`] if any.
+pub fn describe(m: &Material) -> serde_json::Value {
+    let sign = match m.sign {
+        OpticalSign::Positive => "positive",
+        OpticalSign::Negative => "negative",
+    };
+    serde_json::json!({
+        "key": m.key, "name": m.name, "sign": sign,
+        "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
+        "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
+    })
+}
+
 /// Every catalogued material, in a fixed order.
 pub fn catalogue() -> &'static [Material] {
     &CATALOGUE
@@ -1053,6 +1068,34 @@ mod tests {
         }
         for unknown in ["", "bbo", "alpha_bbo", "calcite ", "TiO2"] {
             assert_eq!(find(unknown), None, "{unknown:?}");
+        }
+    }
+    #[test]
+    fn describe_lists_the_fields_and_the_sign_the_catalogue_holds() {
+        // Calcite is negative uniaxial (n_e < n_o), a fact of the trade; the description spells
+        // the sign and carries no warning for a formula with a journal source.
+        let calcite = describe(find("calcite").expect("catalogued"));
+        let keys: Vec<&str> = calcite
+            .as_object()
+            .expect("object")
+            .keys()
+            .map(String::as_str)
+            .collect();
+        let mut want = ["key", "name", "sign", "range_nm", "citation", "verified", "warnings"];
+        want.sort_unstable();
+        let mut got = keys.clone();
+        got.sort_unstable();
+        assert_eq!(got, want);
+        assert_eq!(calcite["sign"], "negative");
+        assert_eq!(describe(find("quartz").expect("catalogued"))["sign"], "positive");
+        for m in catalogue() {
+            let d = describe(m);
+            assert_eq!(
+                d["warnings"].as_array().map(Vec::len),
+                Some(usize::from(!m.verified)),
+                "{}",
+                m.key
+            );
         }
     }
 }

@@ -51,6 +51,69 @@ pub const LINEAR_ELLIPTICITY: f64 = 1e-12;
 /// `S0²`), so that a fully polarized state typed with rounded decimals is accepted.
 pub const STOKES_PHYSICAL: f64 = 1e-9;
 
+/// `|n_e − n_o|` below which a design refuses a crystal as not birefringent: a displacer would have
+/// no walk-off and a wave plate no retardance to work with. Far below any catalogued crystal
+/// (the weakest, quartz, has about 0.009) and far above rounding of indices near 1.5.
+pub const NO_BIREFRINGENCE: f64 = 1e-12;
+
+/// Walk-off angle (radians) below which a cut is said to give none (a cut along or across the
+/// optic axis): a displacer or recombiner built on it would need a crystal longer than any that
+/// can be grown.
+pub const NO_WALKOFF_RAD: f64 = 1e-9;
+
+/// Two angles in degrees closer than this are the same direction; a stack's plate counts as
+/// crossed with the first when its axis is 90° from it within this.
+pub const SAME_ANGLE_DEG: f64 = 1e-9;
+
+/// Two design wavelengths (nm) closer than this are one wavelength: an achromat needs two.
+pub const SAME_WAVELENGTH_NM: f64 = 1e-9;
+
+/// A 2 × 2 system whose determinant is smaller than this fraction of its largest product term is
+/// singular: the two materials' dispersions are proportional and no achromatic pair exists.
+pub const SINGULAR_DETERMINANT: f64 = 1e-9;
+
+/// Halvings of a bracket in every bisection of the designs: 2⁻⁶⁰ ≈ 10⁻¹⁸ of the starting
+/// bracket, below the rounding of the bracket's ends, so more steps change nothing.
+pub const BISECTION_STEPS: usize = 60;
+
+/// Steps of a golden-section search: 0.618⁸⁰ ≈ 2·10⁻¹⁷ of the starting bracket, below rounding.
+pub const GOLDEN_SECTION_STEPS: usize = 80;
+
+/// Central-difference step for a derivative with respect to the angle of incidence (degrees):
+/// small enough that the second-order error is far below the tolerances it is multiplied by,
+/// large enough that the difference is not rounding.
+pub const DIFF_STEP_INCIDENCE_DEG: f64 = 1e-3;
+
+/// Central-difference step for a derivative with respect to the wavelength (nm).
+pub const DIFF_STEP_WAVELENGTH_NM: f64 = 1e-2;
+
+/// Central-difference step for a derivative with respect to a crystal's length, as a fraction
+/// of the length (at least [`DIFF_STEP_LENGTH_FLOOR_MM`] is taken as the length): the phase it
+/// moves stays far below π, so the phase difference needs no unwrapping.
+pub const DIFF_STEP_LENGTH_REL: f64 = 1e-6;
+
+/// The smallest length (mm) a length step is taken relative to.
+pub const DIFF_STEP_LENGTH_FLOOR_MM: f64 = 1e-3;
+
+/// Central-difference step for a derivative with respect to a crystal's axis tilt (degrees),
+/// small for the same reason as the length step.
+pub const DIFF_STEP_TILT_DEG: f64 = 1e-5;
+
+/// Asserts that `actual` is within `allowed` (absolute) of `expected` and finite, printing both
+/// values, the difference and `what` (which should name the source of the expected value). The one
+/// comparison every test of a number goes through.
+///
+/// # Panics
+/// When the values differ by more than `allowed`; this is meant for tests.
+#[track_caller]
+pub fn assert_within(actual: f64, expected: f64, allowed: f64, what: &str) {
+    let diff = (actual - expected).abs();
+    assert!(
+        diff <= allowed && actual.is_finite(),
+        "{what}: expected {expected:.15e}, got {actual:.15e} (difference {diff:.3e}, allowed {allowed:.3e})"
+    );
+}
+
 /// Asserts that `actual` is within `rel` (relative to `max(|expected|, floor)`) of `expected`,
 /// printing both values and `what` (which should name the source of the expected value).
 ///
@@ -58,11 +121,5 @@ pub const STOKES_PHYSICAL: f64 = 1e-9;
 /// When the values differ by more than the tolerance; this is meant for tests.
 #[track_caller]
 pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str) {
-    let scale = expected.abs().max(floor);
-    let diff = (actual - expected).abs();
-    assert!(
-        diff <= rel * scale && actual.is_finite(),
-        "{what}: expected {expected:.15e}, got {actual:.15e} (difference {diff:.3e}, allowed {:.3e})",
-        rel * scale
-    );
+    assert_within(actual, expected, rel * expected.abs().max(floor), what);
 }

@@ -34,8 +34,7 @@ fn to_js<T: Serialize>(value: &T) -> Result<JsValue, JsValue> {
 
 /// The one place where a core error becomes a JavaScript value: `{field, message}`.
 fn js_error(e: Error) -> JsValue {
-    to_js(&serde_json::json!({"field": e.field, "message": e.message}))
-        .unwrap_or_else(|_| JsValue::from_str(&e.to_string()))
+    to_js(&e.to_json()).unwrap_or_else(|_| JsValue::from_str(&e.to_string()))
 }
 
 /// Shows a panic's message in the page and on the console.
@@ -62,7 +61,8 @@ pub fn demo_scenario() -> String {
     DEMO.to_string()
 }
 
-/// The crystal catalogue: `[{key, name, sign, range_nm, citation, verified}]`; `verified` is
+/// The crystal catalogue as [`material::describe`] lists it:
+/// `[{key, name, sign, range_nm, citation, verified, warnings}]`; `verified` is
 /// false for a formula with no journal source, which the page marks "unverified data" wherever
 /// it names the material.
 ///
@@ -70,16 +70,7 @@ pub fn demo_scenario() -> String {
 /// Never in practice (conversion of plain data).
 #[wasm_bindgen]
 pub fn materials() -> Result<JsValue, JsValue> {
-    let list: Vec<serde_json::Value> = material::catalogue()
-        .iter()
-        .map(|m| {
-            serde_json::json!({
-                "key": m.key, "name": m.name,
-                "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
-                "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation, "verified": m.verified,
-            })
-        })
-        .collect();
+    let list: Vec<serde_json::Value> = material::catalogue().iter().map(material::describe).collect();
     to_js(&list)
 }
 

@@ -2,6 +2,7 @@
 //! `doublespar draw` output is well-formed XML, and its key geometry — the exit points and the
 //! separation dimension — equals the traced result mapped into the SVG's own pixel coordinates.
 
+use doublespar::precision::assert_within;
 use doublespar::scenario::Scenario;
 use doublespar::scene::Viewport;
 use doublespar::trace::{ElementReport, trace};
@@ -29,12 +30,12 @@ fn points(attr: &str) -> Vec<[f64; 2]> {
         .collect()
 }
 
+#[track_caller]
 fn near(a: [f64; 2], b: [f64; 2], what: &str) {
     // The SVG writes coordinates with three decimals.
-    assert!(
-        (a[0] - b[0]).abs() <= 6e-4 && (a[1] - b[1]).abs() <= 6e-4,
-        "{what}: svg {a:?}, expected {b:?}"
-    );
+    for (axis, (got, want)) in ["x", "y"].into_iter().zip(a.into_iter().zip(b)) {
+        assert_within(got, want, 6e-4, &format!("{what}, {axis} in the svg"));
+    }
 }
 
 #[test]
@@ -83,10 +84,11 @@ fn exit_points_and_separation_match_the_trace_in_svg_coordinates() {
     }
     let dim = points(tagged("dimension").attribute("points").unwrap());
     let span_px = (dim[1][1] - dim[0][1]).abs();
-    assert!(
-        (span_px - separation_mm.unwrap() * vp.sy).abs() < 1e-3,
-        "dimension {span_px} px vs {} px",
-        separation_mm.unwrap() * vp.sy
+    assert_within(
+        span_px,
+        separation_mm.unwrap() * vp.sy,
+        1e-3,
+        "dimension in px, from the traced separation",
     );
 
     // End view: spot centres at the exit points, and the separation dimension.
@@ -106,7 +108,12 @@ fn exit_points_and_separation_match_the_trace_in_svg_coordinates() {
         ];
         near(c, vp.map(spot.position_mm), &tag);
         let rx: f64 = el.attribute("rx").unwrap().parse().unwrap();
-        assert!((rx - 0.5 * sc.beam.diameter_mm * vp.sx).abs() < 1e-3, "spot radius");
+        assert_within(
+            rx,
+            0.5 * sc.beam.diameter_mm * vp.sx,
+            1e-3,
+            "spot radius in px, from the beam diameter",
+        );
     }
     let sep = doc
         .descendants()
@@ -114,8 +121,10 @@ fn exit_points_and_separation_match_the_trace_in_svg_coordinates() {
         .unwrap();
     let p = points(sep.attribute("points").unwrap());
     let span_px = (p[1][0] - p[0][0]).hypot(p[1][1] - p[0][1]);
-    assert!(
-        (span_px - separation_mm.unwrap() * vp.sx).abs() < 1e-3,
-        "end-view separation {span_px} px"
+    assert_within(
+        span_px,
+        separation_mm.unwrap() * vp.sx,
+        1e-3,
+        "end-view separation in px, from the traced separation",
     );
 }

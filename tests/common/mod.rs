@@ -24,15 +24,9 @@ pub fn crystal(r: &TraceResult, i: usize) -> (Option<f64>, Option<f64>, Option<f
     }
 }
 
-/// Asserts |a − b| ≤ tol, printing both and what is compared.
-#[track_caller]
-pub fn near(actual: f64, expected: f64, tol: f64, what: &str) {
-    assert!(
-        (actual - expected).abs() <= tol && actual.is_finite(),
-        "{what}: expected {expected:.15e}, got {actual:.15e} (diff {:.3e} > {tol:.1e})",
-        (actual - expected).abs()
-    );
-}
+/// Asserts |actual − expected| ≤ tol, printing both and what is compared (the library's one
+/// comparison, shared with its unit tests).
+pub use doublespar::precision::assert_within as near;
 
 /// A one-crystal scenario with custom indices.
 #[allow(clippy::too_many_arguments)] // mirrors the document's fields one to one

@@ -38,10 +38,7 @@ fn fail(err: &Error, table: bool) -> ExitCode {
     if table {
         output::err(&format!("error: {err}\n"));
     } else {
-        let _ = output::out(&format!(
-            "{}\n",
-            json!({"error": {"field": err.field, "message": err.message}})
-        ));
+        let _ = output::out(&format!("{}\n", json!({"error": err.to_json()})));
     }
     ExitCode::from(2)
 }
@@ -172,12 +169,7 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     }
     let mut rows = Vec::new();
     for m in material::catalogue() {
-        let mut row = json!({
-            "key": m.key, "name": m.name,
-            "sign": match m.sign { material::OpticalSign::Positive => "positive", material::OpticalSign::Negative => "negative" },
-            "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
-            "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
-        });
+        let mut row = material::describe(m);
         if let Some(w) = at {
             match m.indices(w) {
                 Ok(ev) => {
@@ -189,7 +181,7 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
                 Err(e) => {
                     row["no"] = Value::Null;
                     row["ne"] = Value::Null;
-                    row["error"] = json!({"field": e.field, "message": e.message});
+                    row["error"] = e.to_json();
                 }
             }
         }
