@@ -19,9 +19,10 @@
 //! [`crate::plate`]; a Monte Carlo run draws all four errors from normal distributions of the
 //! given standard deviations and traces each sample exactly.
 
-use crate::error::{Error, above, in_range, quoted};
+use crate::error::{Error, above, in_range};
 use crate::json_fields::{Fields, number_list};
 use crate::material::{self, Indices};
+use crate::numfmt::quote;
 use crate::plate::{plate_optics, tangential};
 use crate::precision::{DIFF_STEP_INCIDENCE_DEG, DIFF_STEP_WAVELENGTH_NM, NO_BIREFRINGENCE, NO_WALKOFF_RAD};
 use crate::scenario::Medium;
@@ -254,7 +255,7 @@ pub(crate) fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, h
     let path = f.path_of(name);
     let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;
     if v.fract() != 0.0 {
-        return Err(Error::new(path, format!("must be a whole number, got {}", quoted(v))));
+        return Err(Error::new(path, format!("must be a whole number, got {}", quote(v))));
     }
     Ok(v)
 }
@@ -282,8 +283,8 @@ pub(crate) fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f6
                     path,
                     format!(
                         "must be [shortest, longest] with shortest ≤ longest, got [{}, {}]",
-                        quoted(lo),
-                        quoted(hi)
+                        quote(lo),
+                        quote(hi)
                     ),
                 ));
             }

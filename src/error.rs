@@ -64,23 +64,6 @@ impl fmt::Display for Error {
 
 impl std::error::Error for Error {}
 
-/// A number as a message quotes it: short, whatever its size (`1e308`, not 309 digits;
-/// `2.5e-9`, not `0.0000000025`), with the minus sign a reader expects.
-///
-/// Plain decimal from 10⁻⁴ up to 10⁷ (Rust's shortest round-trip form), scientific outside it;
-/// a form longer than 12 characters is cut to six significant digits by the one formatter
-/// ([`crate::numfmt::quote`]).
-pub fn quoted(value: f64) -> String {
-    let a = value.abs();
-    let text = if value == 0.0 || !value.is_finite() || (1e-4..1e7).contains(&a) {
-        format!("{value}")
-    } else {
-        format!("{value:e}")
-    };
-    let text = if text.len() > 12 { quote(value) } else { text };
-    text.replace('-', "\u{2212}")
-}
-
 /// The unit a field's value is given in, as a message writes it after a number (` mm`, `°`;
 /// a plain space, which JSON and terminals show as it is),
 /// read from the contract's suffix of the field's last name (`band_nm[1]` counts as `band_nm`);
@@ -138,7 +121,7 @@ pub fn positive(field: &str, value: f64) -> Result<f64, Error> {
         Ok(v)
     } else {
         let u = unit_after(field);
-        Err(Error::new(field, format!("must be above 0{u}, got {}{u}", quoted(v))))
+        Err(Error::new(field, format!("must be above 0{u}, got {}{u}", quote(v))))
     }
 }
 
@@ -152,7 +135,7 @@ pub fn non_negative(field: &str, value: f64) -> Result<f64, Error> {
         Ok(v)
     } else {
         let u = unit_after(field);
-        Err(Error::new(field, format!("must be 0{u} or more, got {}{u}", quoted(v))))
+        Err(Error::new(field, format!("must be 0{u} or more, got {}{u}", quote(v))))
     }
 }
 
@@ -165,7 +148,7 @@ fn range_error(field: &str, v: f64, (lo_words, lo): (&str, f64), (hi_words, hi):
     } else {
         format!(" ({why})")
     };
-    let (lo, hi, v) = (quoted(lo), quoted(hi), quoted(v));
+    let (lo, hi, v) = (quote(lo), quote(hi), quote(v));
     Error::new(
         field,
         format!("must be {lo_words} {lo}{u} {hi_words} {hi}{u}{why}, got {v}{u}"),
@@ -293,8 +276,8 @@ mod tests {
             m(finite("gap_mm", f64::NAN)),
             "enter a number in millimetres, such as 2.5, not NaN"
         );
-        assert_eq!(quoted(2.5e-9), "2.5e\u{2212}9");
-        assert_eq!(quoted(0.5), "0.5");
+        assert_eq!(quote(2.5e-9), "2.5e\u{2212}9");
+        assert_eq!(quote(0.5), "0.5");
     }
 
     #[test]

@@ -17,9 +17,9 @@
 //! - **One unit per quantity per view** ([`LengthUnit::for_max`]): the largest length a view shows
 //!   chooses nm, µm, mm or m so that it reads between 1 and 1000; every length of that view is
 //!   then written in that unit, so "1.00 mm" never stands beside "998 µm".
-//! - **Messages** ([`quote`], [`quote_text`]): a number from the input is quoted in its shortest
-//!   round-trip form, in ASCII e-notation when that is shorter (`1e308`, never 309 digits) and cut
-//!   to 6 significant digits beyond 12 characters; a long string is cut with an ellipsis.
+//! - **Messages** ([`quote`], [`quote_text`]): a number from the input is quoted plain from 10⁻⁴
+//!   up to 10⁷ and in e-notation outside (`1e308`, never 309 digits), cut to 6 significant digits
+//!   beyond 12 characters, with the typographic minus; a long string is cut with an ellipsis.
 //! - **No power** ([`NO_POWER`]): a ray or spot carrying less than 10⁻¹² of the input power is
 //!   drawn faint and labelled "no power", not given a number.
 //! - **Circular light** ([`shows_azimuth`]): when |χ| reads as 45.00° at the page's two decimals,
@@ -292,29 +292,40 @@ pub fn tick(v: f64, step: f64) -> String {
     sig(v, n)
 }
 
-/// A number from the input, quoted compactly for a message: its shortest round-trip form when
-/// that takes at most 12 characters (`10000`, `0.25`), else in ASCII e-notation (`1e308`), with
-/// at most 6 significant digits when still longer (`1.79769e308`, `3.33333e-1`).
+/// A number from the input, quoted compactly for a message, whatever its size (`1e308`, not 309
+/// digits; `2.5e−9`, not `0.0000000025`), with the typographic minus.
+///
+/// Plain decimal from 10⁻⁴ up to 10⁷ (the shortest round-trip form), e-notation outside it; a
+/// form longer than 12 characters is cut to 6 significant digits (`0.333333`, `1.79769e308`).
 pub fn quote(v: f64) -> String {
-    let plain = format!("{v}");
-    if plain.len() <= 12 || !v.is_finite() {
-        return plain;
+    let a = v.abs();
+    let plain_range = v == 0.0 || !v.is_finite() || (1e-4..1e7).contains(&a);
+    let text = if plain_range { format!("{v}") } else { format!("{v:e}") };
+    let text = if text.len() <= 12 {
+        text
+    } else if plain_range {
+        // Six significant digits, trailing zeros dropped.
+        let decimals = (5 - a.log10().floor() as i32).max(0) as usize;
+        trim_zeros(format!("{v:.decimals$}"))
+    } else {
+        let short = format!("{v:.5e}");
+        let (mantissa, e) = short.split_at(short.find('e').unwrap_or(short.len()));
+        trim_zeros(mantissa.to_string()) + e
+    };
+    text.replace('-', "\u{2212}")
+}
+
+/// `s` without trailing zeros after its decimal point (and without a bare point).
+fn trim_zeros(mut s: String) -> String {
+    if s.contains('.') {
+        while s.ends_with('0') {
+            s.pop();
+        }
+        if s.ends_with('.') {
+            s.pop();
+        }
     }
-    let exp = format!("{v:e}");
-    if exp.len() <= 12 {
-        return exp;
-    }
-    // Six significant digits, the mantissa's trailing zeros dropped.
-    let short = format!("{v:.5e}");
-    let (mantissa, e) = short.split_at(short.find('e').unwrap_or(short.len()));
-    let mut m = mantissa.to_string();
-    while m.ends_with('0') {
-        m.pop();
-    }
-    if m.ends_with('.') {
-        m.pop();
-    }
-    m + e
+    s
 }
 
 /// A string from the input, quoted for a message: at most [`QUOTE_CHARS`] characters, cut with
@@ -441,13 +452,15 @@ mod tests {
     #[test]
     fn messages_quote_compactly() {
         assert_eq!(quote(1e308), "1e308");
-        assert_eq!(quote(-1e-300), "-1e-300");
+        assert_eq!(quote(-1e-300), "\u{2212}1e\u{2212}300");
         assert_eq!(quote(2.5), "2.5");
+        assert_eq!(quote(2.5e-9), "2.5e\u{2212}9");
         assert_eq!(quote(1.7976931348623157e308), "1.79769e308");
-        assert_eq!(quote(123456789.0), "123456789");
-        assert_eq!(quote(0.1 + 0.2), "3e-1");
-        assert_eq!(quote(1.0 / 3.0), "3.33333e-1");
-        assert_eq!(quote(1.2345678901234e-300), "1.23457e-300");
+        assert_eq!(quote(123456789.0), "1.23456789e8");
+        assert_eq!(quote(0.1 + 0.2), "0.3");
+        assert_eq!(quote(1.0 / 3.0), "0.333333");
+        assert_eq!(quote(-1234.56789012), "\u{2212}1234.57");
+        assert_eq!(quote(1.2345678901234e-300), "1.23457e\u{2212}300");
         assert_eq!(quote(f64::NAN), "NaN");
         let long = "x".repeat(10_000);
         let q = quote_text(&long);

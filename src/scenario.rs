@@ -29,11 +29,12 @@
 //! Plates that touch (`gap_mm` = 0) are separated by a vanishing film of the outside medium, so
 //! every face is a crystal–outside-medium face.
 
-use crate::error::{Error, above, in_range, quoted, strictly_between};
+use crate::error::{Error, above, in_range, strictly_between};
 use crate::interface::Losses;
 use crate::json_fields::{Fields, number_list, type_name};
 use crate::material::{self, Indices, Material};
-use crate::numfmt::quote_text;
+use crate::numfmt::{quote, quote_text};
+
 use crate::wavelength::Wavelength;
 use serde_json::{Value, json};
 
@@ -403,7 +404,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
             if s[0].is_nan() || s[0] <= 0.0 {
                 return Err(Error::new(
                     format!("{path}[0]"),
-                    format!("must be above 0 (S0 is the total power), got {}", quoted(s[0])),
+                    format!("must be above 0 (S0 is the total power), got {}", quote(s[0])),
                 ));
             }
             let pol = (s[1] * s[1] + s[2] * s[2] + s[3] * s[3]).sqrt();
@@ -412,8 +413,8 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
                     &path,
                     format!(
                         "is not physical: √(S1² + S2² + S3²) = {} exceeds S0 = {}",
-                        quoted(pol),
-                        quoted(s[0])
+                        quote(pol),
+                        quote(s[0])
                     ),
                 ));
             }
