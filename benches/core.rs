@@ -12,13 +12,12 @@
 //! - `exact_sweep`: 10⁵ walk-off values from the exact plane-wave modes (oblique incidence).
 //! - `monte_carlo`: a 100 000-sample displacer tolerance run.
 
-use doublespar::design;
-use doublespar::material::Indices;
-use doublespar::plate::{plate_optics, tangential};
-use doublespar::scenario::Scenario;
-use doublespar::trace::trace;
-use doublespar::uniaxial::walkoff;
-use doublespar::wavelength::Wavelength;
+use doublespar::Indices;
+use doublespar::Scenario;
+use doublespar::Wavelength;
+use doublespar::trace_scenario as trace;
+use doublespar::walkoff;
+use doublespar::{plate_optics, tangential};
 use std::hint::black_box;
 use std::time::Instant;
 
@@ -53,8 +52,8 @@ pub fn walkoff_sweep(ix: Indices, n: usize) -> f64 {
 
 /// The same sweep through the core's dense sweep on two threads (this machine's cores).
 pub fn walkoff_sweep_dense(ix: Indices, out: &mut [f64]) -> f64 {
-    doublespar::sweep::walkoff_sweep_parallel(ix, 0.0, std::f64::consts::FRAC_PI_2, out, 2);
-    doublespar::sweep::checksum(out)
+    doublespar::walkoff_sweep_parallel(ix, 0.0, std::f64::consts::FRAC_PI_2, out, 2);
+    doublespar::checksum(out)
 }
 
 fn main() {
@@ -73,8 +72,8 @@ fn main() {
     let mut buffer = vec![0.0; 1_000_000];
     let (t_sweep, sum) = time(21, || walkoff_sweep_dense(black_box(ix), &mut buffer));
     let (t_single, _) = time(21, || {
-        doublespar::sweep::walkoff_sweep_into(black_box(ix), 0.0, std::f64::consts::FRAC_PI_2, &mut buffer);
-        doublespar::sweep::checksum(&buffer)
+        doublespar::walkoff_sweep_into(black_box(ix), 0.0, std::f64::consts::FRAC_PI_2, &mut buffer);
+        doublespar::checksum(&buffer)
     });
     assert!(
         (sum - sum_pointwise).abs() < 1e-8,
@@ -92,7 +91,7 @@ fn main() {
 
     let request = r#"{"kind": "displacer", "material": "calcite", "separation_mm": 2, "samples": 100000, "seed": 1}"#;
     let (t_mc, _) = time(5, || {
-        design::solve_str(request).unwrap()["monte_carlo"]["std"]
+        doublespar::solve_design_str(request).unwrap()["monte_carlo"]["std"]
             .as_f64()
             .unwrap()
     });

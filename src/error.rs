@@ -125,20 +125,6 @@ pub fn positive(field: &str, value: f64) -> Result<f64, Error> {
     }
 }
 
-/// Checks that `value` is finite and not negative, naming `field` otherwise.
-///
-/// # Errors
-/// When `value` is NaN, infinite or negative.
-pub fn non_negative(field: &str, value: f64) -> Result<f64, Error> {
-    let v = finite(field, value)?;
-    if v >= 0.0 {
-        Ok(v)
-    } else {
-        let u = unit_after(field);
-        Err(Error::new(field, format!("must be 0{u} or more, got {}{u}", quote(v))))
-    }
-}
-
 /// The message of a value outside a range, `must be <lo words> lo <hi words> hi (why), got v`,
 /// each number with the field's unit, so that the words say which ends belong to the range.
 fn range_error(field: &str, v: f64, (lo_words, lo): (&str, f64), (hi_words, hi): (&str, f64), why: &str) -> Error {
@@ -183,20 +169,6 @@ pub fn above(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error> {
     }
 }
 
-/// Checks that `value` is finite, from `lo` (included) up to `hi` (excluded): an angle that may
-/// be 0 but must stay short of a right angle, say. Names `field` otherwise.
-///
-/// # Errors
-/// When `value` is NaN, infinite, below `lo`, or at or above `hi`.
-pub fn up_to_excluding(field: &str, value: f64, lo: f64, hi: f64) -> Result<f64, Error> {
-    let v = finite(field, value)?;
-    if v >= lo && v < hi {
-        Ok(v)
-    } else {
-        Err(range_error(field, v, ("from", lo), ("up to but not including", hi), ""))
-    }
-}
-
 /// Checks that `value` is finite and strictly between `lo` and `hi` (both ends excluded), naming
 /// `field` otherwise; `why` (may be empty) says why the ends are excluded.
 ///
@@ -232,8 +204,6 @@ mod tests {
         }
         assert!(positive("x", 0.0).is_err());
         assert!(positive("x", -1.0).is_err());
-        assert!(non_negative("x", -1e-300).is_err());
-        assert_eq!(non_negative("x", 0.0), Ok(0.0));
         assert!(in_range("x", 91.0, -90.0, 90.0).is_err());
         assert!(above("x_mm", 0.0, 0.0, 1.0).is_err());
         assert_eq!(above("x_mm", 1.0, 0.0, 1.0), Ok(1.0));
@@ -265,11 +235,6 @@ mod tests {
             )),
             "must be above \u{2212}90° and below 90° (grazing light never enters), got 90°"
         );
-        assert_eq!(
-            m(up_to_excluding("max_incidence_deg", 90.0, 0.0, 90.0)),
-            "must be from 0° up to but not including 90°, got 90°"
-        );
-        assert_eq!(up_to_excluding("a_deg", 0.0, 0.0, 90.0), Ok(0.0));
         let huge = m(in_range("wavelength_nm", 1e308, 1.0, 1e6));
         assert!(huge.ends_with("got 1e308 nm") && huge.chars().count() < 60, "{huge}");
         assert_eq!(

@@ -1,39 +1,62 @@
 //! Doublespar: exact double refraction and polarization in stacks of uniaxial crystal plates.
+//!
+//! One way through the code, one folder per layer; lower layers never import upper ones:
+//!
+//! | layer | folder | what it holds |
+//! |---|---|---|
+//! | foundation | `error.rs`, `numfmt.rs`, `precision.rs` | the error type, how numbers are written, every tolerance |
+//! | physics | `optics/` | media, modes, faces, Jones/Stokes, the stack and its trace (SI, radians, no JSON) |
+//! | documents | `contract/` | the scenario read field by field, resolved into a stack; the result document |
+//! | design | `design/` | solvers that size parts, their requests and Monte Carlo statistics |
+//! | views | `view/` | scenes (display lists), label placement, plots, tables, SVG |
+//! | bindings | `web/` (wasm only) | the page's and the design worker's entry points, the canvas renderer |
+//!
+//! The modules are private: what other programs (the command line, tests, benchmarks, fuzzing)
+//! may use is re-exported here, by name.
 #![warn(missing_docs)]
 
-pub mod beam_overlap;
+mod contract;
+mod design;
+mod error;
+mod numfmt;
+mod optics;
+mod precision;
+mod view;
 #[cfg(target_arch = "wasm32")]
-pub mod canvas;
-pub mod design;
-pub mod design_displacer;
-pub mod design_notes;
-pub mod design_recombiner;
-pub mod design_waveplate;
-pub mod error;
-pub mod interface;
-pub mod jones;
-pub mod json_fields;
-pub mod label_layout;
-pub mod material;
-pub mod modes;
-pub mod numfmt;
-pub mod plate;
-pub mod precision;
-pub mod scenario;
-pub mod scene;
-pub mod spots;
-pub mod statistics;
-pub mod stokes;
-pub mod svg;
-pub mod sweep;
-pub mod table;
-pub mod trace;
-pub mod uniaxial;
-pub mod view_end;
-pub mod view_plot;
-pub mod view_poincare;
-pub mod view_side;
-pub mod views;
-pub mod wavelength;
+mod web;
+
+// Foundation.
+pub use error::Error;
+pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
+pub use precision::assert_within;
+
+// Documents.
+pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
+pub use optics::trace::{ElementReport, TraceResult, trace as trace_scenario};
+
+// Physics.
+pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
+pub use optics::material::{Indices, catalogue as materials, describe as describe_material, keys as material_keys};
+pub use optics::modes::{Mode, Travel, crystal_modes};
+pub use optics::plate::{plate_optics, tangential};
+pub use optics::stokes::Handedness;
+pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
+pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
+pub use optics::wavelength::Wavelength;
+
+// Design.
+pub use design::recombiner::{MAX_PHASE_ERROR as RECOMBINER_MAX_PHASE_ERROR, MIN_OVERLAP as RECOMBINER_MIN_OVERLAP};
+pub use design::statistics::{Rng, summarize};
+pub use design::{KINDS as DESIGN_KINDS, solve as solve_design, solve_str as solve_design_str};
+
+// Views.
+pub use view::label_layout::{Layout, Placement, layout, layout_with, problems};
+pub use view::plot::histogram;
+pub use view::scene::{Aspect, Scene, Viewport};
+pub use view::svg::{Palette, to_svg};
+pub use view::table::render as render_table;
+pub use view::{VIEW_NAMES, build as build_view};
+
+// Bindings (wasm only; the page calls them through wasm-bindgen, the browser tests by name).
 #[cfg(target_arch = "wasm32")]
-pub mod web;
+pub use web::{Session, demo_scenario};

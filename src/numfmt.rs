@@ -237,6 +237,7 @@ impl LengthUnit {
     }
 
     /// The unit named by `symbol` (`nm`, `µm` or `um`, `mm`, `m`).
+    #[cfg(test)]
     pub fn from_symbol(symbol: &str) -> Option<LengthUnit> {
         Some(match symbol {
             "nm" => LengthUnit::Nm,

@@ -10,10 +10,6 @@
 /// of basis depends on it; the indices and phases never do.
 pub const DEGENERATE_DIRECTION: f64 = 1e-12;
 
-/// Largest `|Im k_z| / k0` still treated as a propagating wave. The closed-form root is real or
-/// not; this only absorbs rounding at the exact critical angle.
-pub const EVANESCENT_IM: f64 = 1e-13;
-
 /// Two output rays belong to one spot when the amplitude overlap |γ| of their Gaussian beams
 /// (`beam_overlap.rs`) is at least e^−(this), e⁻²: for rays in one direction, when their points lie at
 /// most one beam diameter apart, so that the beam circles the end view draws touch or overlap.
@@ -120,6 +116,7 @@ pub fn assert_within(actual: f64, expected: f64, allowed: f64, what: &str) {
 /// # Panics
 /// When the values differ by more than the tolerance; this is meant for tests.
 #[track_caller]
+#[cfg(test)]
 pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str) {
     assert_within(actual, expected, rel * expected.abs().max(floor), what);
 }

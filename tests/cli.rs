@@ -193,7 +193,7 @@ fn materials_list_every_key_with_a_citation() {
     assert_eq!(out.status.code(), Some(0));
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
     let list = v["materials"].as_array().unwrap();
-    assert_eq!(list.len(), doublespar::material::catalogue().len());
+    assert_eq!(list.len(), doublespar::materials().len());
     for m in list {
         assert!(m["citation"].as_str().is_some_and(|c| c.len() > 20), "{m}");
         assert!(m["no"].as_f64().is_some() && m["ne"].as_f64().is_some(), "{m}");
@@ -438,7 +438,7 @@ fn design_flags_give_byte_identical_answers_to_the_json_request() {
         }
     }
     // The cases use every flag the help lists, for every kind.
-    for kind in doublespar::design::KINDS {
+    for kind in doublespar::DESIGN_KINDS {
         let listed: std::collections::BTreeSet<String> = listed_flags(kind).into_iter().collect();
         assert!(!listed.is_empty(), "{kind}");
         assert_eq!(

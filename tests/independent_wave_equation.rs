@@ -92,9 +92,9 @@
 //! so D_o acquires a longitudinal part (D·q)/(|D||q|) ≈ 1e-16/θ, up to 2.7e-6 here. Projecting the
 //! q-component out of D_o (d − q (q·d)/(q·q)) removes it (residual then ≤ 1e-15 everywhere).
 
-use doublespar::material::Indices;
-use doublespar::modes::{Mode, Travel, crystal_modes};
-use doublespar::uniaxial::{OpticAxis, Uniaxial};
+use doublespar::Indices;
+use doublespar::{Mode, Travel, crystal_modes};
+use doublespar::{OpticAxis, Uniaxial};
 use nalgebra::{Matrix3, Matrix4, Vector3, Vector4};
 use num_complex::Complex64;
 use std::fmt;

@@ -3,10 +3,8 @@
 
 mod common;
 use common::near;
-use doublespar::jones;
-use doublespar::material;
-use doublespar::scenario::Scenario;
-use doublespar::trace::{ElementReport, TraceResult, trace};
+use doublespar::Scenario;
+use doublespar::{ElementReport, TraceResult, trace_scenario as trace};
 use proptest::prelude::*;
 
 /// An angle generator that favours the near-degenerate values: exactly 0, 90, 180, and a hair
@@ -37,7 +35,7 @@ struct Plate {
 
 fn plate() -> impl Strategy<Value = Plate> {
     let medium = prop_oneof![
-        proptest::sample::select(material::keys()).prop_map(|k| format!(r#""material": "{k}""#)),
+        proptest::sample::select(doublespar::material_keys()).prop_map(|k| format!(r#""material": "{k}""#)),
         (1.3f64..2.9, -0.3f64..0.3).prop_map(|(no, d)| format!(r#""no": {no}, "ne": {}"#, (no + d).max(1.0))),
         (1.3f64..2.9, -1e-6f64..1e-6).prop_map(|(no, d)| format!(r#""no": {no}, "ne": {}"#, no + d)),
     ];
@@ -120,11 +118,11 @@ fn check_physical(r: &TraceResult) {
             "unphysical Stokes {s:?}"
         );
         if let Some(j) = ray.jones {
-            let jv = doublespar::jones::Jones::new(
+            let jv = doublespar::Jones::new(
                 num_complex::Complex64::new(j[0][0], j[0][1]),
                 num_complex::Complex64::new(j[1][0], j[1][1]),
             );
-            let sj = jones::stokes(&jv);
+            let sj = doublespar::jones_stokes(&jv);
             for k in 0..4 {
                 near(
                     sj[k],
@@ -211,8 +209,8 @@ proptest! {
 
     #[test]
     fn lossless_retarders_are_unitary(g in -20.0f64..20.0, th in -4.0f64..4.0) {
-        let m = jones::retarder(g, th);
-        prop_assert!((m.adjoint() * m - doublespar::jones::JonesMatrix::identity()).norm() < 1e-13);
+        let m = doublespar::retarder_matrix(g, th);
+        prop_assert!((m.adjoint() * m - doublespar::JonesMatrix::identity()).norm() < 1e-13);
     }
 
     #[test]
@@ -232,7 +230,7 @@ proptest! {
         polar in prop_oneof![polar(), Just(89.999999999), Just(-89.999999999), Just(90.0)],
         n in prop_oneof![Just(1.0), 1.0f64..10.0, Just(0.5), Just(11.0)],
         n_out in prop_oneof![Just(1.0), 1.0f64..5.0],
-        key in proptest::sample::select(material::keys()),
+        key in proptest::sample::select(doublespar::material_keys()),
     ) {
         for medium in [format!(r#""material": "{key}""#), format!(r#""no": {n}, "ne": 1.5"#)] {
             let plates = [Plate { medium, thickness: l, tilt, az: 0.0, gap: 0.0 }];

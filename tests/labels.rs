@@ -5,14 +5,14 @@
 //! The boxes come from the width model of `label_layout` (measured DejaVu Sans widths with a
 //! margin), so "no overlap" here means no overlap of the estimated boxes, which hold the text.
 
-use doublespar::label_layout::{Layout, Placement, layout, layout_with, problems};
-use doublespar::numfmt::MAX_DRAWN_CHARS;
-use doublespar::scenario::Scenario;
-use doublespar::scene::Scene;
-use doublespar::statistics::{Rng, summarize};
-use doublespar::trace::trace;
-use doublespar::view_plot::histogram;
-use doublespar::views::{VIEW_NAMES, build};
+use doublespar::MAX_DRAWN_CHARS;
+use doublespar::Scenario;
+use doublespar::Scene;
+use doublespar::histogram;
+use doublespar::trace_scenario as trace;
+use doublespar::{Layout, Placement, layout, layout_with, problems};
+use doublespar::{Rng, summarize};
+use doublespar::{VIEW_NAMES, build_view as build};
 
 /// Panel sizes (CSS px): embeds stacked or side by side, page panels, a print sheet, odd shapes.
 const SIZES: [(f64, f64); 10] = [
@@ -79,7 +79,7 @@ fn presets() -> Vec<(String, String)> {
 
 /// A stack of `n` crystals with retarders and rotators between some of them.
 fn generated(n: usize, rng: &mut Rng) -> String {
-    let materials = doublespar::material::keys();
+    let materials = doublespar::material_keys();
     let mut elements = Vec::new();
     for i in 0..n {
         let m = materials[(rng.uniform() * materials.len() as f64) as usize % materials.len()];
@@ -297,7 +297,7 @@ fn the_number_check_catches_the_old_unbounded_formatter() {
         let decimals = (digits as i32 - 1 - mag).max(0) as usize;
         format!("{v:.decimals$}")
     }
-    let mut scene = Scene::new("Side view (x–z)", "", doublespar::scene::Aspect::Equal);
+    let mut scene = Scene::new("Side view (x–z)", "", doublespar::Aspect::Equal);
     scene.dimension(
         [0.0, 0.0],
         [0.0, 1.0],
@@ -307,11 +307,11 @@ fn the_number_check_catches_the_old_unbounded_formatter() {
     let found = check("planted", &scene);
     assert!(found.iter().any(|p| p.contains("too long")), "{found:?}");
     // The formatter of today writes the same value within the budget.
-    let mut scene = Scene::new("Side view (x–z)", "", doublespar::scene::Aspect::Equal);
+    let mut scene = Scene::new("Side view (x–z)", "", doublespar::Aspect::Equal);
     scene.dimension(
         [0.0, 0.0],
         [0.0, 1.0],
-        doublespar::numfmt::length_auto(1.23e-11, 3),
+        doublespar::length_auto(1.23e-11, 3),
         "dimension",
     );
     assert!(check("today", &scene).is_empty(), "{:?}", check("today", &scene));

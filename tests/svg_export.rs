@@ -2,11 +2,10 @@
 //! `doublespar draw` output is well-formed XML, and its key geometry — the exit points and the
 //! separation dimension — equals the traced result mapped into the SVG's own pixel coordinates.
 
-use doublespar::precision::assert_within;
-use doublespar::scenario::Scenario;
-use doublespar::scene::Viewport;
-use doublespar::trace::{ElementReport, trace};
-use doublespar::views;
+use doublespar::Scenario;
+use doublespar::Viewport;
+use doublespar::assert_within;
+use doublespar::{ElementReport, trace_scenario as trace};
 use std::process::Command;
 
 const W: f64 = 900.0;
@@ -45,7 +44,7 @@ fn every_view_of_every_example_is_well_formed_xml() {
         "examples/recombiner.json",
         "examples/quarter-wave.json",
     ] {
-        for view in views::VIEW_NAMES {
+        for view in doublespar::VIEW_NAMES {
             let svg = draw(view, file);
             let doc = roxmltree::Document::parse(&svg).unwrap_or_else(|e| panic!("{file} {view}: {e}"));
             assert_eq!(doc.root_element().tag_name().name(), "svg");
@@ -64,7 +63,7 @@ fn exit_points_and_separation_match_the_trace_in_svg_coordinates() {
     };
 
     // Side view: the map is the one the SVG writer uses (28 px margin).
-    let scene = views::build("side", &sc, &r).unwrap();
+    let scene = doublespar::build_view("side", &sc, &r).unwrap();
     let vp = Viewport::fit(&scene, W, H, 28.0);
     let svg = draw("side", file);
     let doc = roxmltree::Document::parse(&svg).unwrap();
@@ -92,7 +91,7 @@ fn exit_points_and_separation_match_the_trace_in_svg_coordinates() {
     );
 
     // End view: spot centres at the exit points, and the separation dimension.
-    let scene = views::build("end", &sc, &r).unwrap();
+    let scene = doublespar::build_view("end", &sc, &r).unwrap();
     let vp = Viewport::fit(&scene, W, H, 28.0);
     let svg = draw("end", file);
     let doc = roxmltree::Document::parse(&svg).unwrap();

@@ -2,8 +2,8 @@
 
 mod common;
 use common::{crystal, near, plate, run};
-use doublespar::stokes::Handedness;
-use doublespar::trace::ElementReport;
+use doublespar::ElementReport;
+use doublespar::Handedness;
 use std::f64::consts::TAU;
 
 const K0: f64 = TAU / 632.8e-6; // rad/mm at 632.8 nm

@@ -1,4 +1,4 @@
-//! The page's WebAssembly bindings (`src/web.rs`), run in headless Chromium by
+//! The page's WebAssembly bindings (`src/web/mod.rs`), run in headless Chromium by
 //! wasm-bindgen-test: the session traces, keeps its last good state on a bad scenario, reports
 //! errors as `{field, message}`, and draws on a real canvas.
 //!
@@ -6,7 +6,7 @@
 //! Natively this file compiles to nothing.
 #![cfg(target_arch = "wasm32")]
 
-use doublespar::web::{Session, demo_scenario};
+use doublespar::{Session, demo_scenario};
 use js_sys::{Array, Function, Reflect, Uint8ClampedArray};
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::{wasm_bindgen_test, wasm_bindgen_test_configure};

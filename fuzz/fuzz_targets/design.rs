@@ -12,7 +12,7 @@ fuzz_target!(|data: &[u8]| {
             obj.insert("samples".into(), serde_json::json!(200));
         }
     }
-    match doublespar::design::solve(&v) {
+    match doublespar::solve_design(&v) {
         Ok(d) => {
             let json = d.to_string();
             assert!(!json.contains("NaN"), "NaN in {json}");

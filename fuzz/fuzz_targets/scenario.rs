@@ -2,8 +2,8 @@
 //! must contain no NaN or infinity, and an error must name a field and say something.
 #![no_main]
 
-use doublespar::scenario::Scenario;
-use doublespar::trace::trace;
+use doublespar::Scenario;
+use doublespar::trace_scenario as trace;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {
@@ -16,8 +16,8 @@ fuzz_target!(|data: &[u8]| {
                 assert!(ray.power.is_finite() && ray.power >= -1e-12 && ray.power <= 1.0 + 1e-9, "power {}", ray.power);
             }
             // Every view of a valid trace builds and has finite coordinates.
-            for name in doublespar::views::VIEW_NAMES {
-                if let Ok(scene) = doublespar::views::build(name, &s, &r) {
+            for name in doublespar::VIEW_NAMES {
+                if let Ok(scene) = doublespar::build_view(name, &s, &r) {
                     assert!(scene.is_finite(), "view {name} has non-finite coordinates");
                 }
             }

@@ -1,8 +1,8 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 
-use doublespar::scenario::Scenario;
-use doublespar::trace::{ElementReport, TraceResult, trace};
+use doublespar::Scenario;
+use doublespar::{ElementReport, TraceResult, trace_scenario as trace};
 
 /// Parses and traces a scenario document, panicking with the error on failure.
 pub fn run(doc: &str) -> TraceResult {
@@ -26,7 +26,7 @@ pub fn crystal(r: &TraceResult, i: usize) -> (Option<f64>, Option<f64>, Option<f
 
 /// Asserts |actual − expected| ≤ tol, printing both and what is compared (the library's one
 /// comparison, shared with its unit tests).
-pub use doublespar::precision::assert_within as near;
+pub use doublespar::assert_within as near;
 
 /// A one-crystal scenario with custom indices.
 #[allow(clippy::too_many_arguments)] // mirrors the document's fields one to one

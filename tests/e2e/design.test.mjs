@@ -542,7 +542,7 @@ const orderSheet = (page) =>
 test('warnings, shop notes and bounds read as words in the panel and on the order sheet; alpha-BBO is marked unverified wherever it is named', { timeout: 120000 }, async () => {
   await withPage(async ({ page }) => {
     // Every material list of the page (the set-up's and the panel's selects) marks the formula
-    // without a journal source, and only it (src/material.rs: alpha-BBO is the unverified one).
+    // without a journal source, and only it (src/optics/material.rs: alpha-BBO is the unverified one).
     const options = await page.$$eval('select option', (els) => els
       .filter((o) => /material$/.test(o.parentElement.dataset.field ?? o.parentElement.dataset.designField ?? ''))
       .map((o) => [o.value, o.textContent]));

@@ -9,7 +9,7 @@
 //! too; so is any error the solver finds in a field that came from a flag.
 
 use crate::args::{Parsed, Usage, quote};
-use doublespar::error::Error;
+use doublespar::Error;
 use serde_json::{Map, Number, Value};
 
 /// How a flag's value becomes JSON.

@@ -5,7 +5,7 @@
 //! them ([`crate::design_flags`]), so the help cannot drift from what is accepted.
 
 use crate::design_flags;
-use doublespar::views::VIEW_NAMES;
+use doublespar::VIEW_NAMES;
 
 /// The commands, in the order the overview lists them.
 pub const COMMANDS: [&str; 6] = ["trace", "draw", "design", "materials", "demo", "help"];
@@ -122,7 +122,7 @@ KIND is displacer, waveplate, achromat or recombiner. A file named like a kind i
 ./NAME.
 ",
     );
-    for kind in doublespar::design::KINDS {
+    for kind in doublespar::DESIGN_KINDS {
         s.push_str(&format!("\n{kind} flags:\n"));
         for f in design_flags::flags_of(kind).unwrap_or_default() {
             let head = match f.kind {

@@ -22,11 +22,9 @@ mod output;
 mod report;
 
 use args::{Parsed, Usage, scan};
-use doublespar::error::Error;
-use doublespar::material;
-use doublespar::scenario::Scenario;
-use doublespar::wavelength::Wavelength;
-use doublespar::{design, svg, table, trace, views};
+use doublespar::Error;
+use doublespar::Scenario;
+use doublespar::Wavelength;
 use serde_json::{Value, json};
 use std::io::Read;
 use std::process::ExitCode;
@@ -45,7 +43,7 @@ fn fail(err: &Error, table: bool) -> ExitCode {
 
 fn read_input(path: &str) -> Result<String, Error> {
     let mut text = String::new();
-    let limit = doublespar::scenario::MAX_DOCUMENT_BYTES as u64 + 1;
+    let limit = doublespar::MAX_DOCUMENT_BYTES as u64 + 1;
     let res = if path == "-" {
         std::io::stdin().take(limit).read_to_string(&mut text)
     } else {
@@ -73,10 +71,10 @@ fn cmd_trace(a: &[String]) -> Result<ExitCode, Usage> {
     let is_table = p.has("--table");
     let result = read_input(&file)
         .and_then(|t| Scenario::from_json_str(&t))
-        .and_then(|s| trace::trace(&s));
+        .and_then(|s| doublespar::trace_scenario(&s));
     Ok(match result {
         Err(e) => fail(&e, is_table),
-        Ok(r) if is_table => output::out(&table::render(&r)),
+        Ok(r) if is_table => output::out(&doublespar::render_table(&r)),
         Ok(r) => {
             let text = if p.has("--pretty") {
                 serde_json::to_string_pretty(&r)
@@ -99,7 +97,7 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
         .find(|w| *w != "--table")
         .filter(|w| !w.starts_with('-') || *w == "-")
         .cloned();
-    let by_kind = kind.as_deref().filter(|k| design::KINDS.contains(k));
+    let by_kind = kind.as_deref().filter(|k| doublespar::DESIGN_KINDS.contains(k));
     let p = scan("design", a, &|f| match f {
         "--table" => Some(false),
         _ => by_kind.and_then(|k| design_flags::find(k, f)).map(|_| true),
@@ -119,7 +117,7 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
     let answer = match by_kind {
         Some(k) => match design_flags::request(k, &p)? {
             Err(e) => return Ok(fail(&e, table)),
-            Ok(request) => design::solve(&request).map_err(|e| design_flags::name_the_flag(k, &p, e)),
+            Ok(request) => doublespar::solve_design(&request).map_err(|e| design_flags::name_the_flag(k, &p, e)),
         },
         None => {
             let file = one_file(
@@ -127,7 +125,7 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
                 &p,
                 "a design kind (displacer, waveplate, achromat, recombiner) or a request file",
             )?;
-            read_input(&file).and_then(|t| design::solve_str(&t))
+            read_input(&file).and_then(|t| doublespar::solve_design_str(&t))
         }
     };
     Ok(match answer {
@@ -168,8 +166,8 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
         }
     }
     let mut rows = Vec::new();
-    for m in material::catalogue() {
-        let mut row = material::describe(m);
+    for m in doublespar::materials() {
+        let mut row = doublespar::describe_material(m);
         if let Some(w) = at {
             match m.indices(w) {
                 Ok(ev) => {
@@ -228,13 +226,13 @@ fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {
         [_, _, extra, ..] => return Err(Usage::new("draw", format!("unexpected word '{}'", args::quote(extra)))),
         _ => return Err(Usage::new("draw", "needs a view name and a scenario file (or -)")),
     };
-    if !views::VIEW_NAMES.contains(&view.as_str()) {
+    if !doublespar::VIEW_NAMES.contains(&view.as_str()) {
         return Err(Usage::new(
             "draw",
             format!(
                 "unknown view '{}'; views: {}",
                 args::quote(&view),
-                views::VIEW_NAMES.join(", ")
+                doublespar::VIEW_NAMES.join(", ")
             ),
         ));
     }
@@ -259,18 +257,18 @@ fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {
     let result = read_input(&file)
         .and_then(|t| Scenario::from_json_str(&t))
         .and_then(|s| {
-            let r = trace::trace(&s)?;
-            views::build(&view, &s, &r)
+            let r = doublespar::trace_scenario(&s)?;
+            doublespar::build_view(&view, &s, &r)
         });
     Ok(match result {
         Err(e) => fail(&e, false),
         Ok(scene) => {
             let palette = if p.has("--dark") {
-                svg::Palette::dark()
+                doublespar::Palette::dark()
             } else {
-                svg::Palette::light()
+                doublespar::Palette::light()
             };
-            output::out(&svg::to_svg(&scene, size.0, size.1, &palette))
+            output::out(&doublespar::to_svg(&scene, size.0, size.1, &palette))
         }
     })
 }

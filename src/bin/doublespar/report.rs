@@ -1,13 +1,13 @@
 //! The design answer as a report a person reads from the top: what to order, how it performs,
 //! what it tolerates, then notes and warnings. Every number carries its unit.
 //!
-//! The report reads the JSON answer of [`doublespar::design::solve`] (the contract), so it shows
+//! The report reads the JSON answer of [`doublespar::solve_design`] (the contract), so it shows
 //! exactly what the JSON holds, rounded: 4 significant digits (whole numbers as they are),
 //! scientific notation below 10⁻³ and from 10⁶ up. A figure the JSON holds but the report does not yet place is listed at the
 //! end under "Other figures" with its JSON name, so that nothing is ever hidden; curves,
 //! histograms and the scenario are left to the JSON and the page.
 
-use doublespar::design_recombiner::{MAX_PHASE_ERROR, MIN_OVERLAP};
+use doublespar::{RECOMBINER_MAX_PHASE_ERROR as MAX_PHASE_ERROR, RECOMBINER_MIN_OVERLAP as MIN_OVERLAP};
 use serde_json::Value;
 use std::collections::BTreeSet;
 
@@ -23,7 +23,7 @@ fn num(x: f64) -> String {
     if x.fract() == 0.0 && x.abs() < 1e6 {
         return format!("{x:.0}").replace('-', "\u{2212}");
     }
-    doublespar::numfmt::sig_within(x, 4, 12)
+    doublespar::sig_within(x, 4, 12)
 }
 
 struct Report<'a> {

@@ -1,0 +1,682 @@
+//! The version-1 scenario contract: one JSON document describing a whole set-up.
+//!
+//! Parsing is strict: every field is checked for type and range, an unknown field is an error, and
+//! each error names the field by its path (see [`crate::error::Error`]). Fields that are not given
+//! take the defaults below; [`Scenario::to_json`] writes the scenario back with every default
+//! filled in, and parsing that again gives the same scenario.
+//!
+//! | field | default | accepted |
+//! |---|---|---|
+//! | `version` | 1 | 1 |
+//! | `wavelength_nm` | 632.8 | 1 to 1 000 000 (and inside the material formula's domain) |
+//! | `outside_index` | 1.0 | 1 to 5 |
+//! | `interface_losses` | `"ideal"` | `"ideal"`, `"uncoated"` |
+//! | `beam.diameter_mm` | 1.0 | above 0, at most 1000 |
+//! | `beam.incidence.polar_deg` | 0 | above −90, below 90 (negative = the opposite azimuth) |
+//! | `beam.incidence.azimuth_deg` | 0 | −360 to 360 |
+//! | `beam.polarization` | linear, azimuth 45° | see [`Polarization`] |
+//! | `elements` | required | 1 to [`MAX_ELEMENTS`] elements, at most [`MAX_CRYSTALS`] crystals |
+//! | crystal `material` or `no` + `ne` | required | a catalogue key, or indices 1 to 10 |
+//! | crystal `thickness_mm` | required | above 0, at most 10 000 |
+//! | crystal `axis.tilt_deg`, `axis.azimuth_deg` | required, 0 | 0 to 180, −360 to 360 |
+//! | every element's `gap_mm` | 0 | 0 to 1 000 000: outside medium before the element |
+//! | retarder `retardance_waves`, `fast_axis_deg` | required, 0 | ±1 000 000, ±360 |
+//! | polarizer `transmission_axis_deg` | 0 | ±360 |
+//! | rotator `angle_deg` | required | ±3600 |
+//!
+//! Geometry: the incident beam's axis crosses the plane z = 0 at x = y = 0; each element is
+//! preceded by `gap_mm` of the outside medium (for the first element, measured from z = 0).
+//! Plates that touch (`gap_mm` = 0) are separated by a vanishing film of the outside medium, so
+//! every face is a crystal–outside-medium face.
+
+use crate::contract::fields::{Fields, number_list, type_name};
+use crate::error::{Error, above, in_range, strictly_between};
+use crate::numfmt::{quote, quote_text};
+use crate::optics::interface::Losses;
+use crate::optics::material::{self, Indices, Material};
+
+use crate::optics::wavelength::Wavelength;
+use serde_json::{Value, json};
+
+/// Most elements a stack may hold.
+pub const MAX_ELEMENTS: usize = 64;
+/// Most crystals a stack may hold: each doubles the number of rays (2¹² = 4096 rays).
+pub const MAX_CRYSTALS: usize = 12;
+/// Largest scenario document accepted, in bytes.
+pub const MAX_DOCUMENT_BYTES: usize = 1 << 20;
+
+/// Input polarization of the beam.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Polarization {
+    /// Linear at `azimuth_deg` from e1 (x̂ at normal incidence) toward e2.
+    Linear {
+        /// Azimuth, degrees.
+        azimuth_deg: f64,
+    },
+    /// Circular; `right` is right-handed (S3 > 0).
+    Circular {
+        /// Right-handed when true.
+        right: bool,
+    },
+    /// Elliptical with azimuth and ellipticity angle χ (degrees, −45 to 45, positive right-handed).
+    Elliptical {
+        /// Azimuth of the major axis, degrees.
+        azimuth_deg: f64,
+        /// Ellipticity angle, degrees.
+        ellipticity_deg: f64,
+    },
+    /// A Jones vector [[re, im], [re, im]] on (e1, e2); scaled to unit power.
+    Jones([[f64; 2]; 2]),
+    /// A Stokes vector [S0, S1, S2, S3], partially polarized allowed; scaled to S0 = 1.
+    Stokes([f64; 4]),
+    /// Unpolarized light.
+    Unpolarized,
+}
+
+/// The beam entering the stack.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Beam {
+    /// Beam diameter (1/e² intensity), mm; used for drawing and to decide which rays coincide.
+    pub diameter_mm: f64,
+    /// Polar angle of incidence from +z in the outside medium, degrees.
+    pub polar_deg: f64,
+    /// Azimuth of the plane of incidence from +x toward +y, degrees.
+    pub azimuth_deg: f64,
+    /// Input polarization.
+    pub polarization: Polarization,
+}
+
+/// What a crystal plate is made of.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Medium {
+    /// A catalogued material, evaluated at the scenario's wavelength.
+    Catalogue(&'static Material),
+    /// Fixed indices given in the scenario.
+    Custom(Indices),
+}
+
+/// A crystal plate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CrystalPlate {
+    /// Its material.
+    pub medium: Medium,
+    /// Thickness along z, mm.
+    pub thickness_mm: f64,
+    /// Optic axis polar angle from +z, degrees.
+    pub tilt_deg: f64,
+    /// Optic axis azimuth from +x toward +y, degrees.
+    pub azimuth_deg: f64,
+}
+
+/// One element of the stack.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ElementKind {
+    /// A uniaxial crystal plate.
+    Crystal(CrystalPlate),
+    /// An ideal linear retarder of zero thickness.
+    Retarder {
+        /// Retardance in waves (slow lags fast by 2π × this).
+        retardance_waves: f64,
+        /// Fast axis from e1 toward e2, degrees.
+        fast_axis_deg: f64,
+    },
+    /// An ideal linear polarizer.
+    Polarizer {
+        /// Transmission axis from e1 toward e2, degrees.
+        transmission_axis_deg: f64,
+    },
+    /// An ideal polarization rotator.
+    Rotator {
+        /// Rotation from e1 toward e2, degrees.
+        angle_deg: f64,
+    },
+}
+
+/// An element with the gap of outside medium before it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Element {
+    /// Outside medium before this element, mm.
+    pub gap_mm: f64,
+    /// The element.
+    pub kind: ElementKind,
+}
+
+/// A validated scenario.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Scenario {
+    /// Vacuum wavelength.
+    pub wavelength: Wavelength,
+    /// Refractive index of the isotropic medium around and between the elements.
+    pub outside_index: f64,
+    /// Treatment of the crystal faces.
+    pub losses: Losses,
+    /// The input beam.
+    pub beam: Beam,
+    /// The stack, in the order the light meets it.
+    pub elements: Vec<Element>,
+}
+
+impl Scenario {
+    /// Parses a scenario document.
+    ///
+    /// # Errors
+    /// The path of the first offending field, or `""` when the document is not JSON at all.
+    pub fn from_json_str(text: &str) -> Result<Scenario, Error> {
+        if text.len() > MAX_DOCUMENT_BYTES {
+            return Err(Error::new(
+                "",
+                format!(
+                    "the document is {} bytes; at most {MAX_DOCUMENT_BYTES} bytes are accepted",
+                    text.len()
+                ),
+            ));
+        }
+        let value: Value = crate::contract::fields::parse_text(text)?;
+        Scenario::from_json(&value)
+    }
+
+    /// Reads a scenario from a parsed JSON value.
+    ///
+    /// # Errors
+    /// The path of the first offending field.
+    pub fn from_json(value: &Value) -> Result<Scenario, Error> {
+        let mut f = Fields::new("", value)?;
+        if let Some(v) = f.get("version")
+            && v.as_u64() != Some(1)
+        {
+            return Err(Error::new(
+                "version",
+                format!("only version 1 is understood, got {}", quote_text(&v.to_string())),
+            ));
+        }
+        let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
+        let wavelength = Wavelength::from_nm(wl_nm)?;
+        let outside_index = in_range("outside_index", f.number_or("outside_index", 1.0)?, 1.0, 5.0)?;
+        let losses = match f.string("interface_losses")? {
+            None | Some("ideal") => Losses::Ideal,
+            Some("uncoated") => Losses::Uncoated,
+            Some(other) => {
+                return Err(Error::new(
+                    "interface_losses",
+                    format!(
+                        "unknown value '{}'; expected \"ideal\" or \"uncoated\"",
+                        quote_text(other)
+                    ),
+                ));
+            }
+        };
+        let beam = match f.get("beam") {
+            None => Beam {
+                diameter_mm: 1.0,
+                polar_deg: 0.0,
+                azimuth_deg: 0.0,
+                polarization: Polarization::Linear { azimuth_deg: 45.0 },
+            },
+            Some(v) => parse_beam(v)?,
+        };
+        let elements = match f.get("elements") {
+            None => return Err(Error::new("elements", "is required: a list of at least one element")),
+            Some(v) => parse_elements(v)?,
+        };
+        f.finish()?;
+        Ok(Scenario {
+            wavelength,
+            outside_index,
+            losses,
+            beam,
+            elements,
+        })
+    }
+
+    /// The scenario as a contract document with every default written out.
+    pub fn to_json(&self) -> Value {
+        let b = &self.beam;
+        json!({
+            "version": 1,
+            "wavelength_nm": self.wavelength.nm(),
+            "outside_index": self.outside_index,
+            "interface_losses": match self.losses { Losses::Ideal => "ideal", Losses::Uncoated => "uncoated" },
+            "beam": {
+                "diameter_mm": b.diameter_mm,
+                "incidence": {"polar_deg": b.polar_deg, "azimuth_deg": b.azimuth_deg},
+                "polarization": polarization_json(&b.polarization),
+            },
+            "elements": self.elements.iter().map(element_json).collect::<Vec<_>>(),
+        })
+    }
+}
+
+fn polarization_json(p: &Polarization) -> Value {
+    match *p {
+        Polarization::Linear { azimuth_deg } => json!({"kind": "linear", "azimuth_deg": azimuth_deg}),
+        Polarization::Circular { right } => {
+            json!({"kind": "circular", "handedness": if right { "right" } else { "left" }})
+        }
+        Polarization::Elliptical {
+            azimuth_deg,
+            ellipticity_deg,
+        } => {
+            json!({"kind": "elliptical", "azimuth_deg": azimuth_deg, "ellipticity_deg": ellipticity_deg})
+        }
+        Polarization::Jones(j) => json!({"kind": "jones", "jones": j}),
+        Polarization::Stokes(s) => json!({"kind": "stokes", "stokes": s}),
+        Polarization::Unpolarized => json!({"kind": "unpolarized"}),
+    }
+}
+
+fn element_json(e: &Element) -> Value {
+    let mut v = match e.kind {
+        ElementKind::Crystal(c) => {
+            let mut v = json!({
+                "kind": "crystal",
+                "thickness_mm": c.thickness_mm,
+                "axis": {"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg},
+            });
+            match c.medium {
+                Medium::Catalogue(m) => v["material"] = json!(m.key),
+                Medium::Custom(ix) => {
+                    v["no"] = json!(ix.no);
+                    v["ne"] = json!(ix.ne);
+                }
+            }
+            v
+        }
+        ElementKind::Retarder {
+            retardance_waves,
+            fast_axis_deg,
+        } => {
+            json!({"kind": "retarder", "retardance_waves": retardance_waves, "fast_axis_deg": fast_axis_deg})
+        }
+        ElementKind::Polarizer { transmission_axis_deg } => {
+            json!({"kind": "polarizer", "transmission_axis_deg": transmission_axis_deg})
+        }
+        ElementKind::Rotator { angle_deg } => json!({"kind": "rotator", "angle_deg": angle_deg}),
+    };
+    v["gap_mm"] = json!(e.gap_mm);
+    v
+}
+
+fn ranged(f: &mut Fields, name: &'static str, default: Option<f64>, lo: f64, hi: f64) -> Result<f64, Error> {
+    let path = f.path_of(name);
+    let v = match default {
+        Some(d) => f.number_or(name, d)?,
+        None => f.required_number(name)?,
+    };
+    in_range(&path, v, lo, hi)
+}
+
+fn parse_beam(v: &Value) -> Result<Beam, Error> {
+    let mut f = Fields::new("beam", v)?;
+    let diameter_mm = above("beam.diameter_mm", f.number_or("diameter_mm", 1.0)?, 0.0, 1000.0)?;
+    let (polar_deg, azimuth_deg) = match f.get("incidence") {
+        None => (0.0, 0.0),
+        Some(iv) => {
+            let mut g = Fields::new("beam.incidence", iv)?;
+            let p = strictly_between(
+                "beam.incidence.polar_deg",
+                g.number_or("polar_deg", 0.0)?,
+                -90.0,
+                90.0,
+                "grazing light never enters",
+            )?;
+            let a = ranged(&mut g, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
+            g.finish()?;
+            (p, a)
+        }
+    };
+    let polarization = match f.get("polarization") {
+        None => Polarization::Linear { azimuth_deg: 45.0 },
+        Some(pv) => parse_polarization(pv)?,
+    };
+    f.finish()?;
+    Ok(Beam {
+        diameter_mm,
+        polar_deg,
+        azimuth_deg,
+        polarization,
+    })
+}
+
+fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
+    const P: &str = "beam.polarization";
+    let mut f = Fields::new(P, v)?;
+    let kind = f.string("kind")?.ok_or_else(|| {
+        Error::new(
+            format!("{P}.kind"),
+            "is required: linear, circular, elliptical, jones, stokes or unpolarized",
+        )
+    })?;
+    let p = match kind {
+        "linear" => Polarization::Linear {
+            azimuth_deg: ranged(&mut f, "azimuth_deg", Some(0.0), -360.0, 360.0)?,
+        },
+        "circular" => match f.string("handedness")? {
+            Some("right") => Polarization::Circular { right: true },
+            Some("left") => Polarization::Circular { right: false },
+            Some(other) => {
+                return Err(Error::new(
+                    format!("{P}.handedness"),
+                    format!("unknown value '{}'; expected \"right\" or \"left\"", quote_text(other)),
+                ));
+            }
+            None => {
+                return Err(Error::new(
+                    format!("{P}.handedness"),
+                    "is required for circular light: \"right\" or \"left\"",
+                ));
+            }
+        },
+        "elliptical" => Polarization::Elliptical {
+            azimuth_deg: ranged(&mut f, "azimuth_deg", Some(0.0), -360.0, 360.0)?,
+            ellipticity_deg: ranged(&mut f, "ellipticity_deg", None, -45.0, 45.0)?,
+        },
+        "jones" => {
+            let path = format!("{P}.jones");
+            let jv = f
+                .get("jones")
+                .ok_or_else(|| Error::new(&path, "is required: [[re, im], [re, im]]"))?;
+            let Value::Array(items) = jv else {
+                return Err(Error::new(
+                    &path,
+                    format!("must be [[re, im], [re, im]], got {}", type_name(jv)),
+                ));
+            };
+            if items.len() != 2 {
+                return Err(Error::new(
+                    &path,
+                    format!("must hold two components, got {}", items.len()),
+                ));
+            }
+            let a = number_list(&format!("{path}[0]"), &items[0], 2)?;
+            let b = number_list(&format!("{path}[1]"), &items[1], 2)?;
+            let power = a[0] * a[0] + a[1] * a[1] + b[0] * b[0] + b[1] * b[1];
+            if !(power > 0.0 && power.is_finite()) {
+                return Err(Error::new(&path, "must not be zero (and must not overflow)"));
+            }
+            Polarization::Jones([[a[0], a[1]], [b[0], b[1]]])
+        }
+        "stokes" => {
+            let path = format!("{P}.stokes");
+            let sv = f
+                .get("stokes")
+                .ok_or_else(|| Error::new(&path, "is required: [S0, S1, S2, S3]"))?;
+            let s = number_list(&path, sv, 4)?;
+            if s[0].is_nan() || s[0] <= 0.0 {
+                return Err(Error::new(
+                    format!("{path}[0]"),
+                    format!("must be above 0 (S0 is the total power), got {}", quote(s[0])),
+                ));
+            }
+            let pol = (s[1] * s[1] + s[2] * s[2] + s[3] * s[3]).sqrt();
+            if !pol.is_finite() || pol > s[0] * (1.0 + crate::precision::STOKES_PHYSICAL) {
+                return Err(Error::new(
+                    &path,
+                    format!(
+                        "is not physical: √(S1² + S2² + S3²) = {} exceeds S0 = {}",
+                        quote(pol),
+                        quote(s[0])
+                    ),
+                ));
+            }
+            Polarization::Stokes([s[0], s[1], s[2], s[3]])
+        }
+        "unpolarized" => Polarization::Unpolarized,
+        other => {
+            return Err(Error::new(
+                format!("{P}.kind"),
+                format!(
+                    "unknown kind '{}'; expected linear, circular, elliptical, jones, stokes or unpolarized",
+                    quote_text(other)
+                ),
+            ));
+        }
+    };
+    f.finish()?;
+    Ok(p)
+}
+
+fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
+    let Value::Array(items) = v else {
+        return Err(Error::new("elements", format!("must be a list, got {}", type_name(v))));
+    };
+    if items.is_empty() {
+        return Err(Error::new("elements", "the stack is empty; give at least one element"));
+    }
+    if items.len() > MAX_ELEMENTS {
+        return Err(Error::new(
+            "elements",
+            format!("{} elements given; at most {MAX_ELEMENTS} are allowed", items.len()),
+        ));
+    }
+    let elements = items
+        .iter()
+        .enumerate()
+        .map(|(i, item)| parse_element(&format!("elements[{i}]"), item))
+        .collect::<Result<Vec<_>, _>>()?;
+    let crystals = elements
+        .iter()
+        .filter(|e| matches!(e.kind, ElementKind::Crystal(_)))
+        .count();
+    if crystals > MAX_CRYSTALS {
+        return Err(Error::new(
+            "elements",
+            format!(
+                "{crystals} crystals given; at most {MAX_CRYSTALS} are allowed (each doubles the rays: 2^{MAX_CRYSTALS} = {} rays)",
+                1usize << MAX_CRYSTALS
+            ),
+        ));
+    }
+    Ok(elements)
+}
+
+fn parse_element(path: &str, v: &Value) -> Result<Element, Error> {
+    let mut f = Fields::new(path, v)?;
+    let kind_path = f.path_of("kind");
+    let kind = f
+        .string("kind")?
+        .ok_or_else(|| Error::new(&kind_path, "is required: crystal, retarder, polarizer or rotator"))?;
+    let gap_mm = ranged(&mut f, "gap_mm", Some(0.0), 0.0, 1e6)?;
+    let kind = match kind {
+        "crystal" => ElementKind::Crystal(parse_crystal(&mut f)?),
+        "retarder" => ElementKind::Retarder {
+            retardance_waves: ranged(&mut f, "retardance_waves", None, -1e6, 1e6)?,
+            fast_axis_deg: ranged(&mut f, "fast_axis_deg", Some(0.0), -360.0, 360.0)?,
+        },
+        "polarizer" => ElementKind::Polarizer {
+            transmission_axis_deg: ranged(&mut f, "transmission_axis_deg", Some(0.0), -360.0, 360.0)?,
+        },
+        "rotator" => ElementKind::Rotator {
+            angle_deg: ranged(&mut f, "angle_deg", None, -3600.0, 3600.0)?,
+        },
+        other => {
+            return Err(Error::new(
+                kind_path,
+                format!(
+                    "unknown element kind '{}'; expected crystal, retarder, polarizer or rotator",
+                    quote_text(other)
+                ),
+            ));
+        }
+    };
+    f.finish()?;
+    Ok(Element { gap_mm, kind })
+}
+
+fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
+    let material_path = f.path_of("material");
+    let medium = match (f.has("material"), f.has("no") || f.has("ne")) {
+        (true, true) => {
+            return Err(Error::new(
+                material_path,
+                "give either \"material\" or \"no\" and \"ne\", not both",
+            ));
+        }
+        (true, false) => {
+            let key = f.string("material")?.unwrap_or_default();
+            let m = material::find(key).ok_or_else(|| {
+                Error::new(
+                    &material_path,
+                    format!(
+                        "unknown material '{}'; known: {}",
+                        quote_text(key),
+                        material::keys().join(", ")
+                    ),
+                )
+            })?;
+            Medium::Catalogue(m)
+        }
+        (false, true) => {
+            let no = ranged(f, "no", None, 1.0, 10.0)?;
+            let ne = ranged(f, "ne", None, 1.0, 10.0)?;
+            Medium::Custom(Indices::new(no, ne).map_err(|e| e.within(&f.path_of("")))?)
+        }
+        (false, false) => {
+            return Err(Error::new(
+                material_path,
+                format!(
+                    "is required (or give \"no\" and \"ne\"); known materials: {}",
+                    material::keys().join(", ")
+                ),
+            ));
+        }
+    };
+    // Mark the alternatives as known so that `finish` accepts whichever form was used.
+    let _ = (f.get("material"), f.get("no"), f.get("ne"));
+    let thickness_path = f.path_of("thickness_mm");
+    let thickness_mm = above(&thickness_path, f.required_number("thickness_mm")?, 0.0, 1e4)?;
+    let axis_path = f.path_of("axis");
+    let av = f
+        .get("axis")
+        .ok_or_else(|| Error::new(&axis_path, "is required: {\"tilt_deg\": …, \"azimuth_deg\": …}"))?;
+    let mut a = Fields::new(&axis_path, av)?;
+    let tilt_deg = ranged(&mut a, "tilt_deg", None, 0.0, 180.0)?;
+    let azimuth_deg = ranged(&mut a, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
+    a.finish()?;
+    Ok(CrystalPlate {
+        medium,
+        thickness_mm,
+        tilt_deg,
+        azimuth_deg,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const DEMO: &str = r#"{
+      "version": 1, "wavelength_nm": 632.8, "outside_index": 1.0, "interface_losses": "ideal",
+      "beam": {"diameter_mm": 1.0, "incidence": {"polar_deg": 0, "azimuth_deg": 0},
+               "polarization": {"kind": "linear", "azimuth_deg": 45}},
+      "elements": [
+        {"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 0}, "gap_mm": 0},
+        {"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 22.5},
+        {"kind": "polarizer", "transmission_axis_deg": 0},
+        {"kind": "rotator", "angle_deg": 45}
+      ]}"#;
+
+    #[test]
+    fn the_conventions_example_parses_and_round_trips() {
+        let s = Scenario::from_json_str(DEMO).unwrap();
+        assert_eq!(s.elements.len(), 4);
+        let again = Scenario::from_json(&s.to_json()).unwrap();
+        assert_eq!(again, s);
+    }
+
+    #[test]
+    fn defaults_fill_what_is_missing() {
+        let s = Scenario::from_json_str(
+            r#"{"elements": [{"kind": "crystal", "no": 1.6, "ne": 1.5, "thickness_mm": 1, "axis": {"tilt_deg": 45}}]}"#,
+        )
+        .unwrap();
+        assert_eq!(s.wavelength.nm(), 632.8);
+        assert_eq!(s.outside_index, 1.0);
+        assert_eq!(s.losses, Losses::Ideal);
+        assert_eq!(s.beam.polarization, Polarization::Linear { azimuth_deg: 45.0 });
+        assert_eq!(s.elements[0].gap_mm, 0.0);
+    }
+
+    #[test]
+    fn bad_values_name_their_field() {
+        let cases = [
+            (r#"{"elements": []}"#, "elements"),
+            (
+                r#"{"elements": [{"kind": "crystal", "material": "unobtainium", "thickness_mm": 1, "axis": {"tilt_deg": 45}}]}"#,
+                "elements[0].material",
+            ),
+            (
+                r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": -1, "axis": {"tilt_deg": 45}}]}"#,
+                "elements[0].thickness_mm",
+            ),
+            (
+                r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 1, "axis": {"tilt_deg": 45, "tilt": 3}}]}"#,
+                "elements[0].axis.tilt",
+            ),
+            (
+                r#"{"elements": [{"kind": "crystal", "material": "calcite", "no": 1.5, "thickness_mm": 1, "axis": {"tilt_deg": 45}}]}"#,
+                "elements[0].material",
+            ),
+            (
+                r#"{"wavelength_nm": "633", "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "wavelength_nm",
+            ),
+            (
+                r#"{"wavelength_nm": -5, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "wavelength_nm",
+            ),
+            (
+                r#"{"colour": 1, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "colour",
+            ),
+            (
+                r#"{"version": 2, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "version",
+            ),
+            (
+                r#"{"beam": {"incidence": {"polar_deg": 90}}, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "beam.incidence.polar_deg",
+            ),
+            (
+                r#"{"beam": {"polarization": {"kind": "stokes", "stokes": [1, 1, 1, 0]}}, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "beam.polarization.stokes",
+            ),
+            (
+                r#"{"beam": {"polarization": {"kind": "jones", "jones": [[0, 0], [0, 0]]}}, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "beam.polarization.jones",
+            ),
+            (
+                r#"{"beam": {"polarization": {"kind": "circular"}}, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                "beam.polarization.handedness",
+            ),
+            (r#"{"elements": [{"kind": "lens"}]}"#, "elements[0].kind"),
+            (
+                r#"{"elements": [{"kind": "retarder"}]}"#,
+                "elements[0].retardance_waves",
+            ),
+            (r#"[1, 2]"#, ""),
+            (r#"{"elements": [{"kind": "rotator", "angle_deg": 1}"#, "elements[0]"),
+        ];
+        for (doc, field) in cases {
+            let e = Scenario::from_json_str(doc).unwrap_err();
+            assert_eq!(e.field, field, "{doc}: {e}");
+            assert!(!e.message.is_empty());
+        }
+    }
+
+    #[test]
+    fn limits_are_enforced_with_clear_messages() {
+        let crystal = r#"{"kind": "crystal", "no": 1.6, "ne": 1.5, "thickness_mm": 1, "axis": {"tilt_deg": 45}}"#;
+        let many = vec![crystal; MAX_CRYSTALS + 1].join(",");
+        let e = Scenario::from_json_str(&format!(r#"{{"elements": [{many}]}}"#)).unwrap_err();
+        assert_eq!(e.field, "elements");
+        assert!(e.message.contains("at most 12"), "{}", e.message);
+        let rot = r#"{"kind": "rotator", "angle_deg": 1}"#;
+        let many = vec![rot; MAX_ELEMENTS + 1].join(",");
+        assert_eq!(
+            Scenario::from_json_str(&format!(r#"{{"elements": [{many}]}}"#))
+                .unwrap_err()
+                .field,
+            "elements"
+        );
+    }
+}

@@ -1,0 +1,459 @@
+//! Recombiner check: two equal displacers with a half-wave plate (or rotator) between them.
+//!
+//! Physics. The first displacer sends the e-ray sideways by s. A half-wave plate at 45° (or a
+//! 90° rotator) swaps the two polarizations, so the path that was ordinary becomes extraordinary
+//! in the second plate and is displaced by the same s, while the displaced path now travels as
+//! ordinary: the paths "oe" and "eo" leave from one point and add as fields. Each has crossed both
+//! plates once as o and once as e, so their propagation phases are equal and the output state is
+//! the input's (up to the swap). Unequal lengths ΔL or cuts Δθ leave a residual separation
+//! Δs ≈ tan ρ ΔL + L ∂(tan ρ)/∂θ Δθ and a phase difference Δφ ≈ k0 (n_e(θ) − n_o) ΔL + …;
+//! the phase is by far the more sensitive. Everything here is computed with the full stack trace
+//! of [`crate::optics::trace`], the linear sensitivities by central differences of it.
+//!
+//! "Breaks": the beams no longer overlap to 99 % (Δs > 0.1 w, η = exp(−Δs²/w²), Joyce & DeLoach,
+//! Appl. Opt. 23, 4187 (1984), from `beam_overlap.rs`), or the recombined phase moves by more than
+//! π/10 (a twentieth of a wave), thresholds named below. Whether the two paths form one spot at
+//! all is the trace's own rule (their beams overlap: see `trace.rs`, spots), the same rule the
+//! page and the command line show.
+
+use crate::contract::fields::Fields;
+use crate::contract::scenario::{Medium, Scenario};
+use crate::design::displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
+use crate::error::{Error, above, in_range};
+use crate::optics::beam_overlap::GaussianBeam;
+use crate::optics::trace::trace;
+use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
+use crate::optics::wavelength::Wavelength;
+use crate::precision::{
+    BISECTION_STEPS, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL, DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
+};
+use serde::Serialize;
+use serde_json::{Value, json};
+use std::f64::consts::{PI, TAU};
+
+/// Overlap below which the recombination counts as broken.
+pub const MIN_OVERLAP: f64 = 0.99;
+/// Phase change (radians) beyond which the recombination counts as broken.
+pub const MAX_PHASE_ERROR: f64 = PI / 10.0;
+
+/// What sits between the two displacers.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Middle {
+    /// An ideal half-wave plate with its fast axis at 45° to the walk-off plane.
+    HalfWave,
+    /// An ideal rotator by this angle (90° swaps the polarizations).
+    Rotator(f64),
+}
+
+/// A recombiner request.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RecombinerRequest {
+    /// Crystal of both displacers.
+    pub medium: Medium,
+    /// Wavelength.
+    pub wavelength: Wavelength,
+    /// Length of the first displacer, mm.
+    pub length_mm: f64,
+    /// Cut tilt of the first displacer (default: maximum walk-off), degrees.
+    pub cut_tilt_deg: f64,
+    /// Beam diameter, mm.
+    pub beam_diameter_mm: f64,
+    /// The middle element.
+    pub middle: Middle,
+    /// Length of the second displacer minus the first's, mm.
+    pub length_mismatch_mm: f64,
+    /// Cut tilt of the second minus the first's, degrees.
+    pub tilt_mismatch_deg: f64,
+}
+
+/// The verdict.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RecombinerCheck {
+    /// Whether "oe" and "eo" leave as one spot (their beams overlap, as the trace groups spots).
+    pub recombined: bool,
+    /// Exit point of "eo" minus that of "oe", [dx, dy] mm.
+    pub residual_vector_mm: [f64; 2],
+    /// Its length, mm.
+    pub residual_separation_mm: f64,
+    /// Power overlap of the two recombining beams, exp(−Δs²/w²) (Joyce & DeLoach).
+    pub overlap: f64,
+    /// Propagation phase of "eo" minus that of "oe", radians, reduced to (−π, π].
+    pub phase_difference_rad: f64,
+    /// Power in the recombined spot (fraction of the input).
+    pub recombined_power: f64,
+    /// Power left in every other spot.
+    pub stray_power: f64,
+    /// ∂(residual dx)/∂ΔL, mm per mm, and ∂Δφ/∂ΔL, rad per mm.
+    pub length_sensitivity: [f64; 2],
+    /// ∂(residual dx)/∂Δθ, mm per degree, and ∂Δφ/∂Δθ, rad per degree.
+    pub tilt_sensitivity: [f64; 2],
+    /// Length mismatch of the second displacer (mm, against a perfect pair) at which the
+    /// overlap breaks, and at which the phase breaks; null when it does not break within ±L.
+    pub length_mismatch_to_break_mm: [Option<f64>; 2],
+    /// Cut mismatch of the second displacer (°) at which the overlap breaks, and at which the
+    /// phase breaks; null when it does not break within ±10°.
+    pub tilt_mismatch_to_break_deg: [Option<f64>; 2],
+    /// Whether this pair, with its mismatches, is broken: not one spot, overlap below
+    /// [`MIN_OVERLAP`], or phase beyond [`MAX_PHASE_ERROR`].
+    pub broken: bool,
+    /// The verdict in words.
+    pub verdict: String,
+    /// The scenario checked, ready to load.
+    pub scenario: Value,
+}
+
+impl RecombinerRequest {
+    /// Reads a request object (`"kind": "recombiner"` checked by the caller).
+    ///
+    /// # Errors
+    /// The path of the first offending field.
+    pub fn from_json(f: &mut Fields) -> Result<RecombinerRequest, Error> {
+        let medium = parse_medium(f)?;
+        let wavelength = wavelength_field(f)?;
+        let length_mm = above("length_mm", f.required_number("length_mm")?, 0.0, 1e4)?;
+        let ix = indices_of(&medium, wavelength)?;
+        let default_tilt = max_walkoff_cut(ix).0.to_degrees();
+        let cut_tilt_deg = in_range("cut_tilt_deg", f.number_or("cut_tilt_deg", default_tilt)?, 0.0, 180.0)?;
+        let beam_diameter_mm = above("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?;
+        let middle = match f.string("middle")? {
+            None | Some("half-wave") => Middle::HalfWave,
+            Some("rotator") => Middle::Rotator(in_range(
+                "rotator_deg",
+                f.number_or("rotator_deg", 90.0)?,
+                -360.0,
+                360.0,
+            )?),
+            Some(other) => {
+                return Err(Error::new(
+                    "middle",
+                    format!("unknown middle element '{other}'; expected half-wave or rotator"),
+                ));
+            }
+        };
+        let _ = f.get("rotator_deg");
+        // The second displacer must still be a plate: refused, not clamped, when the mismatch
+        // would make its length non-positive (the range's lower end is excluded) or its tilt
+        // leave 0–180°.
+        let length_mismatch_mm = above(
+            "length_mismatch_mm",
+            f.number_or("length_mismatch_mm", 0.0)?,
+            -length_mm,
+            1e3,
+        )?;
+        let tilt_mismatch_deg = in_range(
+            "tilt_mismatch_deg",
+            f.number_or("tilt_mismatch_deg", 0.0)?,
+            -cut_tilt_deg,
+            180.0 - cut_tilt_deg,
+        )?;
+        Ok(RecombinerRequest {
+            medium,
+            wavelength,
+            length_mm,
+            cut_tilt_deg,
+            beam_diameter_mm,
+            middle,
+            length_mismatch_mm,
+            tilt_mismatch_deg,
+        })
+    }
+
+    fn scenario(&self, dl: f64, dt: f64) -> Value {
+        let plate = |l: f64, t: f64| crystal_element(&self.medium, l, t, 0.0, 1.0);
+        let middle = match self.middle {
+            Middle::HalfWave => {
+                json!({"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45.0, "gap_mm": 1.0})
+            }
+            Middle::Rotator(a) => json!({"kind": "rotator", "angle_deg": a, "gap_mm": 1.0}),
+        };
+        json!({
+            "version": 1, "wavelength_nm": self.wavelength.nm(),
+            "beam": {"diameter_mm": self.beam_diameter_mm, "polarization": {"kind": "linear", "azimuth_deg": 45.0}},
+            "elements": [plate(self.length_mm, self.cut_tilt_deg), middle,
+                         plate(self.length_mm + dl, self.cut_tilt_deg + dt)],
+        })
+    }
+}
+
+struct Outcome {
+    dx: [f64; 2],
+    phase: f64,
+    recombined: bool,
+    power: f64,
+    stray: f64,
+}
+
+fn reduce(p: f64) -> f64 {
+    let r = p - TAU * (p / TAU).round();
+    if r <= -PI { r + TAU } else { r }
+}
+
+fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> {
+    let sc = Scenario::from_json(&req.scenario(dl, dt))?;
+    let r = trace(&sc)?;
+    let find = |l: &str| {
+        r.rays
+            .iter()
+            .find(|x| x.label == l)
+            .ok_or_else(|| Error::new("material", format!("path {l} does not exist (a mode is evanescent)")))
+    };
+    let (oe, eo) = (find("oe")?, find("eo")?);
+    let dx = [
+        eo.exit_position_mm[0] - oe.exit_position_mm[0],
+        eo.exit_position_mm[1] - oe.exit_position_mm[1],
+    ];
+    let spot = r.spots.iter().find(|s| s.rays.iter().any(|x| x == "oe"));
+    let recombined = spot.is_some_and(|s| s.rays.iter().any(|x| x == "eo"));
+    let power = spot.map_or(0.0, |s| s.power);
+    Ok(Outcome {
+        dx,
+        phase: eo.phase_rad - oe.phase_rad,
+        recombined,
+        power,
+        stray: r.total_power - power,
+    })
+}
+
+/// Checks a recombiner.
+///
+/// # Errors
+/// As the trace of its scenario; `material` when a path does not exist.
+pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
+    let ix = indices_of(&req.medium, req.wavelength)?;
+    if walkoff(ix, req.cut_tilt_deg.to_radians()).abs() < NO_WALKOFF_RAD {
+        return Err(Error::new(
+            "cut_tilt_deg",
+            "this cut gives no walk-off: there is nothing to recombine",
+        ));
+    }
+    let (dl0, dt0) = (req.length_mismatch_mm, req.tilt_mismatch_deg);
+    let at = outcome(req, dl0, dt0)?;
+    let w = 0.5 * req.beam_diameter_mm;
+    // Both paths leave along the incident direction: an offset, no tilt.
+    let eta = |res: f64| GaussianBeam::new(req.beam_diameter_mm, 0.0).power_overlap(res, 0.0);
+    let res = at.dx[0].hypot(at.dx[1]);
+    // Sensitivities by central differences of the full trace (the phase unwrapped by using
+    // differences small enough that it moves far less than π).
+    let hl = DIFF_STEP_LENGTH_REL * req.length_mm.max(DIFF_STEP_LENGTH_FLOOR_MM);
+    let ht = DIFF_STEP_TILT_DEG;
+    let (lp, lm) = (outcome(req, dl0 + hl, dt0)?, outcome(req, dl0 - hl, dt0)?);
+    let (tp, tm) = (outcome(req, dl0, dt0 + ht)?, outcome(req, dl0, dt0 - ht)?);
+    let ls = [(lp.dx[0] - lm.dx[0]) / (2.0 * hl), (lp.phase - lm.phase) / (2.0 * hl)];
+    let ts = [(tp.dx[0] - tm.dx[0]) / (2.0 * ht), (tp.phase - tm.phase) / (2.0 * ht)];
+    let max_res = w * (-MIN_OVERLAP.ln()).sqrt();
+    let broken_overlap = res > max_res || !at.recombined;
+    let broken_phase = reduce(at.phase).abs() > MAX_PHASE_ERROR;
+    let verdict = match (at.recombined, broken_overlap, broken_phase) {
+        (false, _, _) => "broken: the paths leave as separate spots".to_string(),
+        (true, true, _) => format!("broken: the recombining beams overlap to only {:.4}", eta(res)),
+        (true, false, true) => format!(
+            "broken: the recombined phase is off by {:.3} rad (limit π/10)",
+            reduce(at.phase)
+        ),
+        _ => "recombines: one spot, overlap and phase within their limits".to_string(),
+    };
+    // Break points: search the exact trace outward from a perfect pair on a logarithmic grid in
+    // both directions, then bisect the first crossing; the smaller magnitude of the two sides.
+    let search = |max: f64, eval: &dyn Fn(f64) -> Option<(f64, f64)>| -> [Option<f64>; 2] {
+        let mut out = [None, None];
+        for (k, out_k) in out.iter_mut().enumerate() {
+            let bad = |d: f64| {
+                eval(d).map(|(r, p)| {
+                    if k == 0 {
+                        r > max_res
+                    } else {
+                        reduce(p).abs() > MAX_PHASE_ERROR
+                    }
+                })
+            };
+            for sign in [1.0, -1.0] {
+                let mut prev = 0.0;
+                for i in 0..=90 {
+                    let d = sign * max * 10f64.powf(-9.0 + 9.0 * i as f64 / 90.0);
+                    if bad(d) == Some(true) {
+                        let (mut lo, mut hi) = (prev, d);
+                        for _ in 0..BISECTION_STEPS {
+                            let mid = 0.5 * (lo + hi);
+                            if bad(mid) == Some(true) { hi = mid } else { lo = mid }
+                        }
+                        let m = hi.abs();
+                        *out_k = Some(out_k.map_or(m, |o: f64| o.min(m)));
+                        break;
+                    }
+                    prev = d;
+                }
+            }
+        }
+        out
+    };
+    let along_length = |d: f64| outcome(req, d, 0.0).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
+    let along_tilt = |d: f64| outcome(req, 0.0, d).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
+    Ok(RecombinerCheck {
+        recombined: at.recombined,
+        residual_vector_mm: at.dx,
+        residual_separation_mm: res,
+        overlap: eta(res),
+        phase_difference_rad: reduce(at.phase),
+        recombined_power: at.power,
+        stray_power: at.stray.max(0.0),
+        length_sensitivity: ls,
+        tilt_sensitivity: ts,
+        length_mismatch_to_break_mm: search(req.length_mm, &along_length),
+        tilt_mismatch_to_break_deg: search(10.0, &along_tilt),
+        broken: broken_overlap || broken_phase,
+        verdict,
+        scenario: req.scenario(dl0, dt0),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn run(doc: &str) -> RecombinerCheck {
+        let v: Value = serde_json::from_str(doc).unwrap();
+        let mut f = Fields::new("", &v).unwrap();
+        let r = RecombinerRequest::from_json(&mut f).unwrap();
+        f.finish().unwrap();
+        check(&r).unwrap()
+    }
+
+    #[test]
+    fn equal_displacers_recombine_with_no_residual_and_no_phase() {
+        for middle in [r#""half-wave""#, r#""rotator""#] {
+            let c = run(&format!(
+                r#"{{"material": "calcite", "length_mm": 10, "middle": {middle}}}"#
+            ));
+            assert!(c.recombined, "{middle}");
+            assert!(c.residual_separation_mm < 1e-12, "{}", c.residual_separation_mm);
+            assert!(c.phase_difference_rad.abs() < 1e-9, "{}", c.phase_difference_rad);
+            assert!((c.recombined_power - 1.0).abs() < 1e-12 && c.stray_power < 1e-12);
+        }
+    }
+
+    #[test]
+    fn mismatch_sensitivities_match_the_closed_forms() {
+        // Δs = tan ρ ΔL at normal incidence; Δφ = k0 (n(θ) − n_o) ΔL for the e-path's extra
+        // length against the o-path's (Yariv & Yeh §4.3 for n(θ)).
+        let c = run(r#"{"material": "calcite", "length_mm": 10, "wavelength_nm": 632.8}"#);
+        let ix = indices_of(
+            &Medium::Catalogue(crate::optics::material::find("calcite").unwrap()),
+            Wavelength::from_nm(632.8).unwrap(),
+        )
+        .unwrap();
+        let th = max_walkoff_cut(ix).0;
+        let rho = walkoff(ix, th);
+        let n_th = crate::optics::uniaxial::extraordinary_index(ix, th);
+        let k0 = TAU / 632.8e-6;
+        assert!(
+            (c.length_sensitivity[0].abs() - rho.tan().abs()).abs() < 1e-6,
+            "{} vs {}",
+            c.length_sensitivity[0],
+            rho.tan()
+        );
+        assert!(
+            (c.length_sensitivity[1].abs() - k0 * (n_th - ix.no).abs()).abs() < 1e-4 * k0 * (n_th - ix.no).abs(),
+            "{} vs {}",
+            c.length_sensitivity[1],
+            k0 * (n_th - ix.no)
+        );
+        // The phase breaks long before the overlap does; both break points agree with the
+        // linearization (overlap: Δs = tan ρ ΔL reaches 0.1 w; phase: Δφ reaches π/10).
+        let [lo, lp] = c.length_mismatch_to_break_mm.map(Option::unwrap);
+        assert!(lp < 1e-3 * lo, "{lp} vs {lo}");
+        let expect_lo = 0.5 * (-MIN_OVERLAP.ln()).sqrt() / rho.tan().abs();
+        assert!((lo - expect_lo).abs() < 1e-6 * expect_lo, "{lo} vs {expect_lo}");
+        let expect_lp = MAX_PHASE_ERROR / (k0 * (n_th - ix.no).abs());
+        assert!((lp - expect_lp).abs() < 1e-3 * expect_lp, "{lp} vs {expect_lp}");
+        // At the maximum-walk-off cut the residual is insensitive to a cut mismatch to first
+        // order; the phase still breaks, and first.
+        assert!(c.tilt_sensitivity[0].abs() < 1e-4, "{}", c.tilt_sensitivity[0]);
+        let [to, tp] = c.tilt_mismatch_to_break_deg;
+        assert!(tp.unwrap() < to.unwrap_or(f64::INFINITY));
+        assert!(!c.broken, "{}", c.verdict);
+    }
+
+    #[test]
+    fn a_small_length_mismatch_inside_the_limits_is_not_broken() {
+        // The pair once called "separate spots" although its overlap (0.99998) and phase
+        // (−0.0185 rad) were inside their own limits: rays added as fields only within 10⁻³ of
+        // the beam diameter. With the overlap rule they form one spot. Expected numbers: Δs =
+        // tan ρ ΔL and η = exp(−Δs²/w²) (Joyce & DeLoach, from memory); Δφ = k0 (n(θ) − n_o) ΔL.
+        let c = run(
+            r#"{"material": "yvo4", "wavelength_nm": 1064, "length_mm": 8, "beam_diameter_mm": 0.5, "length_mismatch_mm": 0.01}"#,
+        );
+        assert!(c.recombined, "{}", c.verdict);
+        assert!(!c.broken, "{}", c.verdict);
+        assert!(c.verdict.starts_with("recombines"), "{}", c.verdict);
+        assert!(c.overlap > MIN_OVERLAP && c.overlap < 1.0, "{}", c.overlap);
+        assert!((c.overlap - 0.99998).abs() < 1e-5, "{}", c.overlap);
+        assert!(
+            (c.phase_difference_rad.abs() - 0.0185).abs() < 5e-4,
+            "{}",
+            c.phase_difference_rad
+        );
+        // The recombined spot holds (almost) the whole beam: the interference of the two paths
+        // is weighted by their overlap, and the phase error costs a little.
+        assert!(
+            c.recombined_power > 0.999 && c.stray_power < 1e-9,
+            "{} {}",
+            c.recombined_power,
+            c.stray_power
+        );
+    }
+
+    #[test]
+    fn impossible_mismatches_are_refused_not_clamped() {
+        for (doc, field) in [
+            (
+                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
+                "length_mismatch_mm",
+            ),
+            (
+                r#"{"material": "calcite", "length_mm": 5, "cut_tilt_deg": 45, "tilt_mismatch_deg": 140}"#,
+                "tilt_mismatch_deg",
+            ),
+        ] {
+            let v: Value = serde_json::from_str(doc).unwrap();
+            let mut f = Fields::new("", &v).unwrap();
+            assert_eq!(RecombinerRequest::from_json(&mut f).unwrap_err().field, field, "{doc}");
+        }
+        // Ranges whose lower end is excluded say so ("above"), rather than "from 0".
+        for (doc, words) in [
+            (
+                r#"{"material": "calcite", "length_mm": 0}"#,
+                "must be above 0 mm and at most 10000 mm, got 0 mm",
+            ),
+            (
+                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
+                "must be above \u{2212}5 mm and at most 1000 mm, got \u{2212}5 mm",
+            ),
+        ] {
+            let v: Value = serde_json::from_str(doc).unwrap();
+            let mut f = Fields::new("", &v).unwrap();
+            let e = RecombinerRequest::from_json(&mut f).unwrap_err();
+            assert_eq!(e.message, words, "{doc}");
+        }
+    }
+
+    #[test]
+    fn a_length_mismatch_leaves_the_predicted_residual() {
+        let c = run(
+            r#"{"material": "yvo4", "wavelength_nm": 1064, "length_mm": 8, "cut_tilt_deg": 45, "length_mismatch_mm": 0.05}"#,
+        );
+        let ix = indices_of(
+            &Medium::Catalogue(crate::optics::material::find("yvo4").unwrap()),
+            Wavelength::from_nm(1064.0).unwrap(),
+        )
+        .unwrap();
+        let expect = 0.05 * walkoff(ix, 45f64.to_radians()).tan().abs();
+        assert!(
+            (c.residual_separation_mm - expect).abs() < 1e-12,
+            "{} vs {expect}",
+            c.residual_separation_mm
+        );
+        assert!(c.overlap < 1.0);
+        // 50 µm of length mismatch puts the phase far beyond π/10: the pair is broken.
+        assert!(c.broken, "{}", c.verdict);
+    }
+}

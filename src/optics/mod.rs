@@ -1,0 +1,16 @@
+//! The physics: exact plane-wave optics of uniaxial crystals and ideal elements, in SI units and
+//! radians (lengths in millimetres where a stack is laid out). Knows no JSON, no catalogue
+//! document and no view; every layer above builds on it.
+
+pub mod beam_overlap;
+pub mod interface;
+pub mod jones;
+pub mod material;
+pub mod modes;
+pub mod plate;
+pub mod spots;
+pub mod stokes;
+pub mod sweep;
+pub mod trace;
+pub mod uniaxial;
+pub mod wavelength;

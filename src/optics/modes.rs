@@ -1,0 +1,356 @@
+//! Plane-wave modes of a uniaxial crystal and of the isotropic outside medium, for one
+//! tangential wave vector.
+//!
+//! Physics. All faces are parallel to the x–y plane, so the tangential part q_t = (q_x, q_y) of
+//! the normalized wave vector q = k/k0 is the same in every layer (phase matching). For each medium
+//! we need the normal component q_z of each mode and its fields:
+//!
+//! - ordinary: q_z = ±√(n_o² − |q_t|²); D ∥ E ∥ q × c.
+//! - extraordinary: q·A·q = 1 with A = I/n_e² + (1/n_o² − 1/n_e²) c cᵀ is a quadratic
+//!   a q_z² + 2 b q_z + c₀ = 0 in q_z. Its ray direction is A·q, whose z-component is
+//!   a q_z + b = ±√(b² − a c₀); so the root `(−b + √disc)/a` is the one whose *energy* flows into
+//!   +z (forward), even where its wave vector points backward. D ∥ (q × c) × q, E = ε⁻¹ D.
+//! - isotropic: q_z = ±√(n² − |q_t|²), any transverse E.
+//!
+//! A negative discriminant makes the mode evanescent: q_z is complex with the imaginary part that
+//! decays along the direction of travel, and the mode carries no power along z. This is how total
+//! internal reflection is reported, never as NaN.
+//!
+//! Field units: E is dimensionless, H is scaled by the vacuum impedance (Z0·H = q × E), so that
+//! the time-averaged Poynting vector is ½ Re(E × H*) / Z0 ∝ Re(E × H*) in every medium alike.
+//! Propagating modes are normalized to unit |S_z| = |Re(E × H*)_z|, so that |amplitude|² is the
+//! power carried across a face. Evanescent modes are normalized to |E| = 1.
+//!
+//! Degenerate direction: when q is (almost) along c the two modes are degenerate and any
+//! transverse pair is a valid basis; we then take D_o ∥ q × x̂ (or q × ŷ, whichever is larger,
+//! ties going to q × x̂: at normal incidence along the axis D_o ∥ ŷ and D_e ∥ x̂).
+//!
+//! Basis of the outside medium (forward): the transverse pair e1, e2 obtained from x̂, ŷ by the
+//! smallest rotation that carries ẑ onto the beam direction u, so that at normal incidence e1 = x̂,
+//! e2 = ŷ. Jones vectors are components on (e1, e2). Backward waves use the mirror images of
+//! e1, e2 in the face. Sources: Born & Wolf §15.2–15.3; P. Yeh, *Optical Waves in Layered Media*
+//! (1988), ch. 9 (modes of anisotropic layers).
+
+use crate::optics::uniaxial::Uniaxial;
+use crate::precision::DEGENERATE_DIRECTION;
+use nalgebra::Vector3;
+use num_complex::Complex64;
+
+/// Complex 3-vector.
+pub type CVector3 = Vector3<Complex64>;
+
+/// Ordinary or extraordinary (for the isotropic medium: first or second basis vector).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ModeKind {
+    /// The ordinary wave (index n_o in every direction); in an isotropic medium, basis vector e1.
+    Ordinary,
+    /// The extraordinary wave; in an isotropic medium, basis vector e2.
+    Extraordinary,
+}
+
+/// Direction in which a mode carries energy across the faces.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Travel {
+    /// Energy (or, if evanescent, decay) toward +z.
+    Forward,
+    /// Energy (or decay) toward −z.
+    Backward,
+}
+
+impl Travel {
+    fn sign(self) -> f64 {
+        match self {
+            Travel::Forward => 1.0,
+            Travel::Backward => -1.0,
+        }
+    }
+}
+
+/// One plane-wave mode at a given tangential wave vector.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Mode {
+    /// Which mode.
+    pub kind: ModeKind,
+    /// Which way it carries energy.
+    pub travel: Travel,
+    /// Normalized wave vector k/k0 (q_z complex for an evanescent mode).
+    pub q: CVector3,
+    /// Electric field (see the module header for the normalization).
+    pub e: CVector3,
+    /// Z0·H = q × E.
+    pub h: CVector3,
+    /// Relative displacement D/ε0 = ε E.
+    pub d: CVector3,
+    /// Whether the mode propagates (real q_z) rather than being evanescent.
+    pub propagating: bool,
+    /// Unit ray direction from the closed form (q for o-waves and isotropic media, A·q for
+    /// e-waves); `None` when evanescent. Agrees with Re(E × H*) (tested) and is exact where that
+    /// product would carry rounding, e.g. it gives exactly zero walk-off for o-waves.
+    ray: Option<Vector3<f64>>,
+}
+
+impl Mode {
+    fn build(
+        kind: ModeKind,
+        travel: Travel,
+        q: CVector3,
+        e: CVector3,
+        d: CVector3,
+        propagating: bool,
+        ray: Vector3<f64>,
+    ) -> Self {
+        let h = q.cross(&e);
+        let ray_norm = ray.norm();
+        let ray = (propagating && ray_norm > 0.0).then(|| ray / ray_norm);
+        let mut mode = Mode {
+            kind,
+            travel,
+            q,
+            e,
+            h,
+            d,
+            propagating,
+            ray,
+        };
+        let scale = if propagating {
+            let sz = mode.poynting().z.abs();
+            if sz > 0.0 { 1.0 / sz.sqrt() } else { 1.0 }
+        } else {
+            let n = e.norm();
+            if n > 0.0 { 1.0 / n } else { 1.0 }
+        };
+        mode.e *= Complex64::from(scale);
+        mode.h *= Complex64::from(scale);
+        mode.d *= Complex64::from(scale);
+        mode
+    }
+
+    /// Normal component q_z of the normalized wave vector.
+    pub fn qz(&self) -> Complex64 {
+        self.q.z
+    }
+
+    /// Tangential fields (E_x, E_y, Z0 H_x, Z0 H_y), the quantities continuous across a face.
+    pub fn tangential(&self) -> [Complex64; 4] {
+        [self.e.x, self.e.y, self.h.x, self.h.y]
+    }
+
+    /// Time-averaged Poynting vector Re(E × H*) in the module's units.
+    pub fn poynting(&self) -> Vector3<f64> {
+        let hc = self.h.map(|z| z.conj());
+        self.e.cross(&hc).map(|z| z.re)
+    }
+
+    /// Real part of the wave vector (the wave vector itself for a propagating mode).
+    pub fn wave_vector(&self) -> Vector3<f64> {
+        self.q.map(|z| z.re)
+    }
+
+    /// Refractive index |k|/k0 seen by a propagating mode (|Re q| for an evanescent one).
+    pub fn index(&self) -> f64 {
+        self.wave_vector().norm()
+    }
+
+    /// Unit ray (energy) direction, or `None` for an evanescent mode.
+    pub fn ray_direction(&self) -> Option<Vector3<f64>> {
+        self.ray
+    }
+}
+
+/// Square root of `x` as the root of q_z² = x that travels along `travel`: real (signed by the
+/// travel) when x > 0, otherwise imaginary with the decaying sign. Returns (root, propagating).
+fn signed_root(x: f64, travel: Travel) -> (Complex64, bool) {
+    if x > 0.0 {
+        (Complex64::new(travel.sign() * x.sqrt(), 0.0), true)
+    } else {
+        (Complex64::new(0.0, travel.sign() * (-x).sqrt()), false)
+    }
+}
+
+fn real3(v: Vector3<f64>) -> CVector3 {
+    v.map(Complex64::from)
+}
+
+/// Both modes (ordinary, then extraordinary) of `crystal` at tangential wave vector `qt`,
+/// travelling along `travel`.
+pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+    let no = crystal.indices.no;
+    let c = crystal.axis.unit();
+    let qt_norm = qt[0].hypot(qt[1]);
+
+    // Ordinary: q_z² = n_o² − |q_t|², factored for accuracy near the critical angle.
+    let (qz_o, prop_o) = signed_root((no - qt_norm) * (no + qt_norm), travel);
+    let q_o = CVector3::new(qt[0].into(), qt[1].into(), qz_o);
+
+    // Extraordinary: a q_z² + 2 b q_z + c0 = 0 from q·A·q = 1.
+    let m = crystal.extraordinary_surface();
+    let a = m[(2, 2)];
+    let b = m[(2, 0)] * qt[0] + m[(2, 1)] * qt[1];
+    let c0 = m[(0, 0)] * qt[0] * qt[0] + 2.0 * m[(0, 1)] * qt[0] * qt[1] + m[(1, 1)] * qt[1] * qt[1] - 1.0;
+    let disc = b * b - a * c0;
+    let s = travel.sign();
+    let (qz_e, prop_e) = if disc > 0.0 {
+        let r = disc.sqrt();
+        // Root (−b + s·r)/a, computed without cancellation.
+        let root = if s * b <= 0.0 {
+            (-b + s * r) / a
+        } else {
+            c0 / (-b - s * r)
+        };
+        (Complex64::new(root, 0.0), true)
+    } else {
+        (Complex64::new(-b / a, s * (-disc).sqrt() / a), false)
+    };
+    let q_e = CVector3::new(qt[0].into(), qt[1].into(), qz_e);
+
+    let cc = real3(c);
+    let inv_eps = crystal.inverse_permittivity().map(Complex64::from);
+    let eps = crystal.permittivity().map(Complex64::from);
+
+    // Ordinary displacement ∥ q × c, with a fixed fallback along the optic axis.
+    let d_o_of = |q: &CVector3| -> CVector3 {
+        let d = q.cross(&cc);
+        if d.norm() > DEGENERATE_DIRECTION * q.norm() {
+            // Near the optic axis |q × c| is small and its rounding error is not: remove the
+            // spurious part along q, so that D stays transverse to machine precision
+            // (found by the independent 4×4 cross-check).
+            d - q * (q.dot(&d) / q.dot(q))
+        } else {
+            let dx = q.cross(&real3(Vector3::x()));
+            let dy = q.cross(&real3(Vector3::y()));
+            if dx.norm() >= dy.norm() { dx } else { dy }
+        }
+    };
+    let d_o = d_o_of(&q_o);
+    let e_o = inv_eps * d_o;
+    let d_e = d_o_of(&q_e).cross(&q_e);
+    let e_e = inv_eps * d_e;
+    let _ = eps;
+
+    [
+        Mode::build(ModeKind::Ordinary, travel, q_o, e_o, d_o, prop_o, q_o.map(|z| z.re)),
+        Mode::build(
+            ModeKind::Extraordinary,
+            travel,
+            q_e,
+            e_e,
+            d_e,
+            prop_e,
+            m * q_e.map(|z| z.re),
+        ),
+    ]
+}
+
+/// The transverse basis (e1, e2) of a forward wave along unit vector `u` in the outside medium:
+/// x̂ and ŷ carried by the smallest rotation that takes ẑ onto `u`.
+///
+/// Formula: e1 = (1 − u_x²/(1+u_z), −u_x u_y/(1+u_z), −u_x), e2 = (−u_x u_y/(1+u_z),
+/// 1 − u_y²/(1+u_z), −u_y). Defined for u_z > −1; forward beams have u_z > 0.
+pub fn beam_basis(u: Vector3<f64>) -> (Vector3<f64>, Vector3<f64>) {
+    let w = 1.0 + u.z;
+    let e1 = Vector3::new(1.0 - u.x * u.x / w, -u.x * u.y / w, -u.x);
+    let e2 = Vector3::new(-u.x * u.y / w, 1.0 - u.y * u.y / w, -u.y);
+    (e1, e2)
+}
+
+/// Both modes of an isotropic medium of index `n` at tangential wave vector `qt`: the fields
+/// along e1 (reported as [`ModeKind::Ordinary`]) and e2 ([`ModeKind::Extraordinary`]) of
+/// [`beam_basis`] for forward waves, their mirror images in the face for backward waves.
+///
+/// `qt` must be shorter than `n` for the modes to propagate; otherwise they are evanescent and the
+/// basis is taken at grazing incidence.
+pub fn isotropic_modes(n: f64, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+    let qt_norm = qt[0].hypot(qt[1]);
+    let (qz, propagating) = signed_root((n - qt_norm) * (n + qt_norm), travel);
+    let q = CVector3::new(qt[0].into(), qt[1].into(), qz);
+    let uz = if propagating { qz.re.abs() / n } else { 0.0 };
+    let u = Vector3::new(qt[0] / n, qt[1] / n, uz);
+    let (mut e1, mut e2) = beam_basis(u);
+    if travel == Travel::Backward {
+        e1.z = -e1.z;
+        e2.z = -e2.z;
+    }
+    let n2 = Complex64::from(n * n);
+    let mk = |kind, e: Vector3<f64>| {
+        let ec = real3(e);
+        Mode::build(kind, travel, q, ec, ec * n2, propagating, q.map(|z| z.re))
+    };
+    [mk(ModeKind::Ordinary, e1), mk(ModeKind::Extraordinary, e2)]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::uniaxial::{angle_between, extraordinary_index, walkoff};
+
+    fn crystal(no: f64, ne: f64, tilt: f64, az: f64) -> Uniaxial {
+        Uniaxial::from_numbers(no, ne, tilt, az).unwrap()
+    }
+
+    /// Residual of the wave equation q × (q × E) + ε E = 0, relative to |ε E|.
+    fn wave_equation_residual(cr: &Uniaxial, m: &Mode) -> f64 {
+        let eps = cr.permittivity().map(Complex64::from);
+        let r = m.q.cross(&m.q.cross(&m.e)) + eps * m.e;
+        r.norm() / (eps * m.e).norm()
+    }
+
+    #[test]
+    fn normal_incidence_matches_closed_forms() {
+        let cr = crystal(1.6557, 1.4849, 45.0, 0.0);
+        let [o, e] = crystal_modes(&cr, [0.0, 0.0], Travel::Forward);
+        assert!((o.qz().re - 1.6557).abs() < 1e-15);
+        let n45 = extraordinary_index(cr.indices, 45f64.to_radians());
+        assert!((e.qz().re - n45).abs() < 1e-14, "{} vs {}", e.qz().re, n45);
+        let rho = angle_between(&e.wave_vector(), &e.ray_direction().unwrap());
+        assert!((rho - walkoff(cr.indices, 45f64.to_radians())).abs() < 1e-13);
+        // Negative crystal: the ray leans away from the axis, which lies in +x: so toward −x.
+        assert!(e.ray_direction().unwrap().x < 0.0);
+        for m in [o, e] {
+            assert!(wave_equation_residual(&cr, &m) < 1e-14);
+            assert!((m.poynting().z - 1.0).abs() < 1e-14);
+        }
+    }
+
+    #[test]
+    fn evanescent_modes_are_reported_not_nan() {
+        // Immersion index above the crystal's: the ordinary wave cannot propagate.
+        let cr = crystal(1.38, 1.39, 30.0, 20.0);
+        let [o, e] = crystal_modes(&cr, [1.45, 0.0], Travel::Forward);
+        assert!(!o.propagating && !e.propagating);
+        assert!(o.qz().im > 0.0 && e.qz().im > 0.0, "decay toward +z");
+        for m in [o, e] {
+            assert!(m.e.iter().all(|z| z.re.is_finite() && z.im.is_finite()));
+            assert!(m.ray_direction().is_none());
+        }
+    }
+
+    #[test]
+    fn backward_roots_carry_energy_backward() {
+        let cr = crystal(1.6557, 1.4849, 37.0, 110.0);
+        for qt in [[0.0, 0.0], [0.3, -0.2], [0.9, 0.1]] {
+            let [o, e] = crystal_modes(&cr, qt, Travel::Backward);
+            assert!(o.poynting().z < 0.0 && e.poynting().z < 0.0);
+            let [fo, fe] = crystal_modes(&cr, qt, Travel::Forward);
+            assert!(fo.poynting().z > 0.0 && fe.poynting().z > 0.0);
+            for m in [o, e, fo, fe] {
+                assert!(wave_equation_residual(&cr, &m) < 1e-13);
+                // Cross-method: the closed-form ray (q or A·q) is the direction of Re(E × H*).
+                let s = m.poynting();
+                let ray = m.ray_direction().unwrap();
+                assert!((s / s.norm() - ray).norm() < 1e-14, "{ray:?} vs {s:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn beam_basis_is_orthonormal_and_continuous() {
+        for (p, a) in [(0.0f64, 0.0f64), (10.0, 30.0), (60.0, -120.0), (89.0, 200.0)] {
+            let (p, a) = (p.to_radians(), a.to_radians());
+            let u = Vector3::new(p.sin() * a.cos(), p.sin() * a.sin(), p.cos());
+            let (e1, e2) = beam_basis(u);
+            assert!((e1.norm() - 1.0).abs() < 1e-14 && (e2.norm() - 1.0).abs() < 1e-14);
+            assert!(e1.dot(&e2).abs() < 1e-14 && e1.dot(&u).abs() < 1e-14 && e2.dot(&u).abs() < 1e-14);
+            assert!((e1.cross(&e2) - u).norm() < 1e-14, "right-handed (e1, e2, u)");
+        }
+    }
+}

@@ -1,0 +1,108 @@
+//! The set of views and how to build each one from a scenario and its traced result.
+//!
+//! One name per view, shared by the page, the command line and the tests: `side` (the x–z
+//! plane), `side-yz` (the y–z plane), `side-walkoff` (the plane of z and the first crystal's
+//! e-ray walk-off direction, so a walk-off along y is seen; see [`side::SidePlane`]),
+//! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots
+//! describe the first crystal of the stack.
+
+use crate::contract::scenario::Scenario;
+use crate::error::Error;
+use crate::optics::trace::TraceResult;
+use crate::view::scene::Scene;
+pub mod end;
+pub mod label_layout;
+pub mod plot;
+pub mod poincare;
+pub mod scene;
+pub mod series;
+pub mod side;
+pub mod svg;
+pub mod table;
+
+/// Every view, by name.
+pub const VIEW_NAMES: [&str; 8] = [
+    "side",
+    "side-yz",
+    "side-walkoff",
+    "end",
+    "poincare",
+    "walkoff-tilt",
+    "separation-wavelength",
+    "retardance-wavelength",
+];
+
+/// Builds the view called `name`.
+///
+/// # Errors
+/// `view` for an unknown name; `wavelength_nm` if a plot's formula breaks down.
+pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Scene, Error> {
+    Ok(match name {
+        "side" => side::side_view(scenario, result),
+        "side-yz" => side::side_view_in(scenario, result, side::SidePlane::Yz),
+        "side-walkoff" => side::side_view_in(scenario, result, side::SidePlane::Walkoff),
+        "end" => end::end_view(result, scenario.beam.diameter_mm),
+        "poincare" => poincare::poincare_view(result),
+        "walkoff-tilt" => plot::plot(&series::walkoff_vs_tilt(scenario, 0)?),
+        "separation-wavelength" => plot::plot(&series::separation_vs_wavelength(scenario, 0)),
+        "retardance-wavelength" => plot::plot(&series::retardance_vs_wavelength(scenario, 0)),
+        other => {
+            return Err(Error::new(
+                "view",
+                format!(
+                    "unknown view '{}'; expected one of: {}",
+                    crate::numfmt::quote_text(other),
+                    VIEW_NAMES.join(", ")
+                ),
+            ));
+        }
+    })
+}
+
+/// The data behind a plot view (`walkoff-tilt`, `separation-wavelength`,
+/// `retardance-wavelength`), for export; `None` for views that are not plots.
+///
+/// # Errors
+/// `wavelength_nm` if the formula breaks down.
+#[cfg(target_arch = "wasm32")]
+pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>, Error> {
+    Ok(match name {
+        "walkoff-tilt" => Some(series::walkoff_vs_tilt(scenario, 0)?),
+        "separation-wavelength" => Some(series::separation_vs_wavelength(scenario, 0)),
+        "retardance-wavelength" => Some(series::retardance_vs_wavelength(scenario, 0)),
+        _ => None,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::trace::trace;
+
+    #[test]
+    fn every_view_of_every_example_is_drawable() {
+        for doc in [
+            include_str!("../../examples/demo.json"),
+            include_str!("../../examples/recombiner.json"),
+            include_str!("../../examples/quarter-wave.json"),
+        ] {
+            let sc = Scenario::from_json_str(doc).unwrap();
+            let r = trace(&sc).unwrap();
+            for name in VIEW_NAMES {
+                let scene = build(name, &sc, &r).unwrap();
+                assert!(scene.is_finite(), "{name}");
+                assert!(!scene.items.is_empty(), "{name}");
+            }
+        }
+        assert_eq!(
+            build(
+                "top",
+                &Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap(),
+                &trace(&Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap()).unwrap()
+            )
+            .unwrap_err()
+            .field,
+            "view"
+        );
+    }
+}

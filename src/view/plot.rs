@@ -1,0 +1,315 @@
+//! A plot of a [`Series`]: axes with ticks, units and labels, the curve, and the current point.
+//!
+//! World coordinates are the data's own units (x and y scaled independently, [`Aspect::Free`]).
+//! Ticks fall on round values ([`nice_step_at_least`]) and their labels stay at their ticks (the
+//! placement pass leaves out one that would touch its neighbour); the current operating point is
+//! a marker with its value written beside it. An empty series gives a framed panel with its note.
+//! Numbers come from [`crate::numfmt`]; an axis in mm is written in the one length unit its
+//! largest value chooses (a separation of 2 µm reads "2.00 µm", not "0.002 mm"), its geometry
+//! staying in the data's units.
+
+use crate::design::statistics::Summary;
+use crate::numfmt::{LengthUnit, sig, tick};
+use crate::view::scene::{Anchor, Aspect, Item, Priority, Rect, Role, Scene, nice_step_at_least};
+use crate::view::series::Series;
+
+/// How an axis writes its numbers: the factor from data units to shown units, and the unit shown.
+/// Lengths in mm take the unit their largest magnitude chooses; other units are shown as given.
+fn axis_unit(unit: &str, largest: f64) -> (f64, String) {
+    if unit == "mm" {
+        let u = LengthUnit::for_max(largest);
+        (u.per_mm(), u.symbol().to_string())
+    } else {
+        (1.0, unit.to_string())
+    }
+}
+
+/// Builds the plot of a series.
+pub fn plot(series: &Series) -> Scene {
+    let mut scene = Scene::new(&series.title, &series.note, Aspect::Free);
+    let mut pts: Vec<[f64; 2]> = series.points.clone();
+    if let Some(c) = series.current {
+        pts.push(c);
+    }
+    if pts.is_empty() {
+        scene.bounds = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 1.0,
+            y1: 1.0,
+        };
+        scene.text([0.5, 0.5], series.note.clone(), 12.0, Anchor::Middle, Role::Caption);
+        return scene;
+    }
+    let data = Rect::around(pts.iter().copied());
+    let (mut y0, mut y1) = (data.y0.min(0.0), data.y1.max(0.0));
+    if y1 - y0 < 1e-12 * y0.abs().max(y1.abs()).max(1e-300) || y1 == y0 {
+        let c = 0.5 * (y0 + y1);
+        let h = if c != 0.0 { 0.05 * c.abs() } else { 1.0 };
+        y0 = c - h;
+        y1 = c + h;
+    }
+    let (x0, x1) = if data.width() > 0.0 {
+        (data.x0, data.x1)
+    } else {
+        (data.x0 - 1.0, data.x1 + 1.0)
+    };
+    let (w, h) = (x1 - x0, y1 - y0);
+    let (fx, x_unit) = axis_unit(&series.x_unit, x0.abs().max(x1.abs()));
+    let (fy, y_unit) = axis_unit(&series.y_unit, y0.abs().max(y1.abs()));
+
+    // Grid, ticks and tick labels.
+    // At most about five labels per axis, so that they stay apart in a narrow panel.
+    let xs = nice_step_at_least(w / 5.0);
+    let ys = nice_step_at_least(h / 5.0);
+    let mut t = (x0 / xs).ceil() * xs;
+    while t <= x1 + 1e-9 * w {
+        scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
+        scene.fixed_label(
+            [t, y0 - 0.1 * h],
+            tick(t * fx, xs * fx),
+            10.0,
+            Anchor::Middle,
+            Role::Caption,
+        );
+        t += xs;
+    }
+    let mut t = (y0 / ys).ceil() * ys;
+    while t <= y1 + 1e-9 * h {
+        scene.line(vec![[x0, t], [x1, t]], Role::Grid, vec![1.0, 3.0], 0.5, "grid y");
+        scene.fixed_label(
+            [x0 - 0.015 * w, t - 0.02 * h],
+            tick(t * fy, ys * fy),
+            10.0,
+            Anchor::End,
+            Role::Caption,
+        );
+        t += ys;
+    }
+    // Frame and axis labels.
+    scene.items.push(Item::Polygon {
+        points: vec![[x0, y0], [x1, y0], [x1, y1], [x0, y1]],
+        role: Role::Frame,
+        tag: "frame".into(),
+    });
+    scene.label(
+        [0.5 * (x0 + x1), y0 - 0.25 * h],
+        format!("{} ({x_unit})", series.x_label),
+        11.0,
+        Anchor::Middle,
+        Role::Label,
+        Priority::Key,
+    );
+    scene.label(
+        [x0, y1 + 0.04 * h],
+        format!("{} ({y_unit})", series.y_label),
+        11.0,
+        Anchor::Start,
+        Role::Label,
+        Priority::Key,
+    );
+
+    // Curve, split where samples are missing (gaps wider than twice the usual spacing).
+    let mut run: Vec<[f64; 2]> = Vec::new();
+    let spacing = if series.points.len() > 1 {
+        w / (series.points.len() - 1) as f64
+    } else {
+        w
+    };
+    for p in &series.points {
+        if let Some(last) = run.last()
+            && p[0] - last[0] > 2.5 * spacing
+        {
+            scene.line(std::mem::take(&mut run), Role::Curve, vec![], 1.8, "curve");
+        }
+        run.push(*p);
+    }
+    if !run.is_empty() {
+        scene.line(run, Role::Curve, vec![], 1.8, "curve");
+    }
+    if let Some(c) = series.current {
+        scene.items.push(Item::Dot {
+            center: c,
+            radius_px: 5.0,
+            role: Role::Marker,
+            filled: true,
+            tag: "current".into(),
+        });
+        let right = c[0] < x0 + 0.7 * w;
+        let label = format!("{} {y_unit} at {} {x_unit}", sig(c[1] * fy, 4), sig(c[0] * fx, 4));
+        scene.text(
+            [c[0] + if right { 0.02 } else { -0.02 } * w, c[1] + 0.04 * h],
+            label,
+            11.0,
+            if right { Anchor::Start } else { Anchor::End },
+            Role::Marker,
+        );
+    }
+    scene.bounds = Rect {
+        x0: x0 - 0.1 * w,
+        y0: y0 - 0.31 * h,
+        x1: x1 + 0.03 * w,
+        y1: y1 + 0.1 * h,
+    };
+    scene
+}
+
+/// Builds a histogram of a Monte Carlo [`Summary`]: one bar per bin, with the nominal value,
+/// the mean and the 5th and 95th percentiles marked and written out.
+pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nominal: Option<f64>) -> Scene {
+    let mut scene = Scene::new(title, &format!("{} samples", summary.n), Aspect::Free);
+    let h = &summary.histogram;
+    let peak = h.counts.iter().copied().max().unwrap_or(0) as f64;
+    if h.counts.is_empty() || h.edges.len() != h.counts.len() + 1 || peak <= 0.0 {
+        scene.bounds = Rect {
+            x0: 0.0,
+            y0: 0.0,
+            x1: 1.0,
+            y1: 1.0,
+        };
+        scene.text([0.5, 0.5], "no samples", 12.0, Anchor::Middle, Role::Caption);
+        return scene;
+    }
+    let (x0, x1) = (h.edges[0], h.edges[h.edges.len() - 1]);
+    let (x0, x1) = if x1 > x0 {
+        (x0, x1)
+    } else {
+        (x0 - 0.5 * x0.abs().max(1e-12), x1 + 0.5 * x1.abs().max(1e-12))
+    };
+    let (w, top) = (x1 - x0, peak * 1.15);
+    let (f, unit) = axis_unit(unit, x0.abs().max(x1.abs()));
+    // Digits enough to tell the marks apart: down to a tenth of the spread.
+    let resolved = |v: f64| {
+        let spread = if summary.std > 0.0 { summary.std } else { w };
+        let top = (v.abs() * f).log10().floor();
+        let bottom = (0.1 * spread * f).log10().floor();
+        let n = if top.is_finite() && bottom.is_finite() {
+            (top - bottom + 1.0).clamp(2.0, 8.0) as usize
+        } else {
+            4
+        };
+        sig(v * f, n)
+    };
+    for (i, &c) in h.counts.iter().enumerate() {
+        let (a, b) = (h.edges[i], h.edges[i + 1]);
+        let (a, b) = if b > a { (a, b) } else { (x0, x1) };
+        scene.items.push(Item::Polygon {
+            points: vec![[a, 0.0], [b, 0.0], [b, c as f64], [a, c as f64]],
+            role: Role::Curve,
+            tag: format!("bin {i}"),
+        });
+    }
+    let xs = nice_step_at_least(w / 4.0);
+    let mut t = (x0 / xs).ceil() * xs;
+    while t <= x1 + 1e-9 * w {
+        scene.fixed_label(
+            [t, -0.06 * top],
+            tick(t * f, xs * f),
+            10.0,
+            Anchor::Middle,
+            Role::Caption,
+        );
+        t += xs;
+    }
+    let mut marks: Vec<(f64, String, Role)> = vec![
+        (summary.p5, format!("p5 {}", resolved(summary.p5)), Role::Grid),
+        (summary.p95, format!("p95 {}", resolved(summary.p95)), Role::Grid),
+        (summary.mean, format!("mean {}", resolved(summary.mean)), Role::Marker),
+    ];
+    if let Some(n) = nominal {
+        marks.push((n, format!("nominal {}", resolved(n)), Role::Label));
+    }
+    for (k, (x, label, role)) in marks.iter().enumerate() {
+        scene.line(
+            vec![[*x, 0.0], [*x, top]],
+            *role,
+            vec![4.0, 3.0],
+            1.2,
+            format!("mark {label}"),
+        );
+        scene.text(
+            [*x, top * (1.0 - 0.07 * k as f64)],
+            label.clone(),
+            10.0,
+            Anchor::Start,
+            *role,
+        );
+    }
+    scene.items.push(Item::Polygon {
+        points: vec![[x0, 0.0], [x1, 0.0], [x1, top], [x0, top]],
+        role: Role::Frame,
+        tag: "frame".into(),
+    });
+    scene.label(
+        [0.5 * (x0 + x1), -0.16 * top],
+        format!("{quantity} ({unit}) · σ {}", sig(summary.std * f, 3)),
+        11.0,
+        Anchor::Middle,
+        Role::Label,
+        Priority::Key,
+    );
+    scene.bounds = Rect {
+        x0: x0 - 0.05 * w,
+        y0: -0.22 * top,
+        x1: x1 + 0.05 * w,
+        y1: top * 1.05,
+    };
+    scene
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::contract::scenario::Scenario;
+    use crate::view::series::{separation_vs_wavelength, walkoff_vs_tilt};
+
+    #[test]
+    fn the_current_point_is_marked_at_its_value() {
+        let sc = Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap();
+        let s = walkoff_vs_tilt(&sc, 0).unwrap();
+        let scene = plot(&s);
+        assert!(scene.is_finite());
+        let Some(Item::Dot { center, .. }) = scene.tagged("current").next() else {
+            panic!()
+        };
+        assert_eq!(*center, s.current.unwrap());
+        assert!(scene.texts().iter().any(|t| t == &"cut tilt (°)"));
+        assert!(
+            scene.texts().iter().any(|t| t.starts_with("6.189 ° at 45")),
+            "{:?}",
+            scene.texts()
+        );
+        let scene = plot(&separation_vs_wavelength(&sc, 0));
+        assert!(scene.texts().iter().any(|t| t == &"wavelength (nm)"));
+    }
+
+    #[test]
+    fn histograms_hold_every_sample_and_mark_the_percentiles() {
+        let mut rng = crate::design::statistics::Rng::new(2);
+        let xs: Vec<f64> = (0..5000).map(|_| 2.0 + 0.01 * rng.normal()).collect();
+        let s = crate::design::statistics::summarize(&xs, 30);
+        let scene = histogram("Separation spread", "separation", "mm", &s, Some(2.0));
+        assert!(scene.is_finite());
+        let total: f64 = (0..30)
+            .map(|i| match scene.tagged(&format!("bin {i}")).next() {
+                Some(Item::Polygon { points, .. }) => points[2][1],
+                _ => panic!("bin {i}"),
+            })
+            .sum();
+        assert_eq!(total, 5000.0);
+        assert!(scene.texts().iter().any(|t| t.starts_with("p95 ")));
+        assert!(histogram("x", "y", "z", &crate::design::statistics::summarize(&[], 5), None).is_finite());
+    }
+
+    #[test]
+    fn empty_and_flat_series_still_draw() {
+        let sc = Scenario::from_json_str(r#"{"elements": [{"kind": "rotator", "angle_deg": 5}]}"#).unwrap();
+        assert!(plot(&separation_vs_wavelength(&sc, 0)).is_finite());
+        let sc = Scenario::from_json_str(
+            r#"{"elements": [{"kind": "crystal", "no": 1.5, "ne": 1.6, "thickness_mm": 1, "axis": {"tilt_deg": 0}}]}"#,
+        )
+        .unwrap();
+        let scene = plot(&separation_vs_wavelength(&sc, 0));
+        assert!(scene.is_finite(), "a flat zero curve");
+    }
+}

@@ -1,0 +1,303 @@
+//! Plot series of one crystal of a scenario: its behaviour against one parameter.
+//!
+//! Each series takes one crystal of a scenario, at the scenario's incidence and outside index,
+//! and varies one parameter while holding the rest: the e-ray walk-off against the cut tilt (the
+//! angle between optic axis and plate normal), and the o–e separation and the retardance against
+//! wavelength over the material's validity range. Every point is the exact plane-wave solution of
+//! [`crate::optics::plate`], so the plotted curve passes through the traced operating point.
+//! Points where a mode is evanescent or the dispersion formula breaks down are left out.
+
+#[cfg(any(test, target_arch = "wasm32"))]
+use crate::contract::fields::{Fields, number_list};
+use crate::contract::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
+use crate::error::Error;
+use crate::optics::material::Indices;
+use crate::optics::plate::plate_optics;
+use crate::optics::wavelength::Wavelength;
+use serde::Serialize;
+#[cfg(any(test, target_arch = "wasm32"))]
+use serde_json::Value;
+use std::f64::consts::TAU;
+
+/// Wavelength range used for crystals with fixed custom indices, nm.
+pub const CUSTOM_RANGE_NM: (f64, f64) = (400.0, 1600.0);
+/// Points per wavelength sweep.
+pub const WAVELENGTH_POINTS: usize = 121;
+
+/// A sampled curve with its axes and the current operating point.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Series {
+    /// What is plotted, e.g. "walk-off against cut tilt".
+    pub title: String,
+    /// Name of the x quantity.
+    pub x_label: String,
+    /// Unit of x.
+    pub x_unit: String,
+    /// Name of the y quantity.
+    pub y_label: String,
+    /// Unit of y.
+    pub y_unit: String,
+    /// The samples [x, y].
+    pub points: Vec<[f64; 2]>,
+    /// The scenario's own operating point, when it is defined.
+    pub current: Option<[f64; 2]>,
+    /// A remark for the reader (no dispersion, evanescent range, …).
+    pub note: String,
+}
+
+impl Series {
+    /// Reads a series written as JSON (the shape it serializes to). Read by hand rather than
+    /// derived, which keeps the page's WebAssembly module small.
+    ///
+    /// # Errors
+    /// The path of the first offending field, under `series`.
+    #[cfg(any(test, target_arch = "wasm32"))]
+    pub fn from_json(v: &Value) -> Result<Series, Error> {
+        let mut f = Fields::new("series", v)?;
+        let text = |f: &mut Fields, name: &'static str| -> Result<String, Error> {
+            Ok(f.string(name)?.unwrap_or_default().to_string())
+        };
+        let (title, x_label, x_unit, y_label, y_unit, note) = (
+            text(&mut f, "title")?,
+            text(&mut f, "x_label")?,
+            text(&mut f, "x_unit")?,
+            text(&mut f, "y_label")?,
+            text(&mut f, "y_unit")?,
+            text(&mut f, "note")?,
+        );
+        let points = match f.get("points") {
+            Some(Value::Array(items)) => items
+                .iter()
+                .enumerate()
+                .map(|(i, p)| number_list(&format!("series.points[{i}]"), p, 2).map(|xy| [xy[0], xy[1]]))
+                .collect::<Result<Vec<_>, _>>()?,
+            None => Vec::new(),
+            Some(_) => return Err(Error::new("series.points", "must be a list of [x, y] pairs")),
+        };
+        let current = match f.get("current") {
+            None => None,
+            Some(c) => {
+                let xy = number_list("series.current", c, 2)?;
+                Some([xy[0], xy[1]])
+            }
+        };
+        f.finish()?;
+        Ok(Series {
+            title,
+            x_label,
+            x_unit,
+            y_label,
+            y_unit,
+            points,
+            current,
+            note,
+        })
+    }
+}
+
+struct Setting {
+    plate: CrystalPlate,
+    qt: [f64; 2],
+}
+
+fn setting(sc: &Scenario, crystal: usize) -> Option<Setting> {
+    let plate = sc
+        .elements
+        .iter()
+        .filter_map(|e| match e.kind {
+            ElementKind::Crystal(p) => Some(p),
+            _ => None,
+        })
+        .nth(crystal)?;
+    let (p, a) = (sc.beam.polar_deg.to_radians(), sc.beam.azimuth_deg.to_radians());
+    let n = sc.outside_index;
+    Some(Setting {
+        plate,
+        qt: [n * p.sin() * a.cos(), n * p.sin() * a.sin()],
+    })
+}
+
+fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
+    match plate.medium {
+        Medium::Catalogue(m) => m.indices(wl).ok().map(|e| e.indices),
+        Medium::Custom(ix) => Some(ix),
+    }
+}
+
+/// (walk-off rad, separation mm, retardance rad) of one plate, or None if a mode is evanescent.
+fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
+    plate_optics(ix, tilt, az, l, wl, qt).map(|p| (p.walkoff_rad, p.separation_mm, p.retardance_rad))
+}
+
+fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {
+    Series {
+        title: title.into(),
+        x_label: x_label.into(),
+        x_unit: x_unit.into(),
+        y_label: y_label.into(),
+        y_unit: y_unit.into(),
+        points: vec![],
+        current: None,
+        note: "no crystal in the stack".into(),
+    }
+}
+
+/// Walk-off of crystal number `crystal` (counting crystals only, from 0) against its cut tilt,
+/// 0–90° (0–180° when the current tilt exceeds 90° or the incidence is oblique), in 1° steps.
+///
+/// # Errors
+/// `wavelength_nm` when the crystal's dispersion formula breaks down at the wavelength.
+pub fn walkoff_vs_tilt(sc: &Scenario, crystal: usize) -> Result<Series, Error> {
+    let (title, xl, xu, yl, yu) = ("Walk-off against cut tilt", "cut tilt", "°", "walk-off", "°");
+    let Some(st) = setting(sc, crystal) else {
+        return Ok(no_crystal(title, xl, xu, yl, yu));
+    };
+    let ix = match st.plate.medium {
+        Medium::Catalogue(m) => m.indices(sc.wavelength)?.indices,
+        Medium::Custom(ix) => ix,
+    };
+    let oblique = st.qt[0].hypot(st.qt[1]) > 0.0;
+    let top = if st.plate.tilt_deg > 90.0 || oblique { 180 } else { 90 };
+    let p = &st.plate;
+    let points = (0..=top)
+        .filter_map(|t| {
+            let t = t as f64;
+            plate_numbers(ix, t, p.azimuth_deg, st.qt, p.thickness_mm, sc.wavelength)
+                .map(|(w, _, _)| [t, w.to_degrees()])
+        })
+        .collect();
+    let current = plate_numbers(ix, p.tilt_deg, p.azimuth_deg, st.qt, p.thickness_mm, sc.wavelength)
+        .map(|(w, _, _)| [p.tilt_deg, w.to_degrees()]);
+    let note = format!("at {} nm, axis azimuth {}°", sc.wavelength.nm(), p.azimuth_deg);
+    Ok(Series {
+        title: title.into(),
+        x_label: xl.into(),
+        x_unit: xu.into(),
+        y_label: yl.into(),
+        y_unit: yu.into(),
+        points,
+        current,
+        note,
+    })
+}
+
+fn wavelength_sweep(
+    sc: &Scenario,
+    crystal: usize,
+    title: &str,
+    y_label: &str,
+    y_unit: &str,
+    pick: fn(f64, f64) -> f64,
+) -> Series {
+    let Some(st) = setting(sc, crystal) else {
+        return no_crystal(title, "wavelength", "nm", y_label, y_unit);
+    };
+    let p = st.plate;
+    let (range, note) = match p.medium {
+        Medium::Catalogue(m) => (m.range_nm, format!("{} over its formula's range", m.key)),
+        Medium::Custom(_) => (CUSTOM_RANGE_NM, "custom indices: no dispersion".to_string()),
+    };
+    let value = |nm: f64| -> Option<f64> {
+        let wl = Wavelength::from_nm(nm).ok()?;
+        let ix = indices_at(&p, wl)?;
+        plate_numbers(ix, p.tilt_deg, p.azimuth_deg, st.qt, p.thickness_mm, wl).map(|(_, s, r)| pick(s, r))
+    };
+    let n = WAVELENGTH_POINTS;
+    let points = (0..n)
+        .filter_map(|i| {
+            let nm = range.0 + (range.1 - range.0) * i as f64 / (n - 1) as f64;
+            value(nm).map(|v| [nm, v])
+        })
+        .collect();
+    let current = value(sc.wavelength.nm()).map(|v| [sc.wavelength.nm(), v]);
+    Series {
+        title: title.into(),
+        x_label: "wavelength".into(),
+        x_unit: "nm".into(),
+        y_label: y_label.into(),
+        y_unit: y_unit.into(),
+        points,
+        current,
+        note,
+    }
+}
+
+/// o–e separation of crystal number `crystal` against wavelength over its material's range
+/// ([`CUSTOM_RANGE_NM`] for custom indices), [`WAVELENGTH_POINTS`] samples.
+pub fn separation_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
+    wavelength_sweep(
+        sc,
+        crystal,
+        "Separation against wavelength",
+        "separation",
+        "mm",
+        |s, _| s,
+    )
+}
+
+/// Retardance (waves) of crystal number `crystal` against wavelength, as
+/// [`separation_vs_wavelength`].
+pub fn retardance_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
+    wavelength_sweep(
+        sc,
+        crystal,
+        "Retardance against wavelength",
+        "retardance",
+        "waves",
+        |_, r| r / TAU,
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::trace::{ElementReport, trace};
+
+    #[test]
+    fn sweeps_pass_through_the_traced_point() {
+        let sc = Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap();
+        let r = trace(&sc).unwrap();
+        let ElementReport::Crystal {
+            separation_mm,
+            retardance_waves,
+            e,
+            ..
+        } = &r.elements[0]
+        else {
+            panic!()
+        };
+        let w = walkoff_vs_tilt(&sc, 0).unwrap();
+        assert_eq!(w.current.unwrap(), [45.0, e.walkoff_deg.unwrap()]);
+        let on_curve = w.points.iter().find(|p| p[0] == 45.0).unwrap();
+        assert!((on_curve[1] - e.walkoff_deg.unwrap()).abs() < 1e-12);
+        let s = separation_vs_wavelength(&sc, 0);
+        assert!((s.current.unwrap()[1] - separation_mm.unwrap()).abs() < 1e-12);
+        assert_eq!(s.points.len(), WAVELENGTH_POINTS);
+        let g = retardance_vs_wavelength(&sc, 0);
+        assert!((g.current.unwrap()[1] - retardance_waves.unwrap()).abs() < 1e-9);
+        // Calcite: walk-off is largest near the 42° cut and zero at 0° and 90°.
+        let peak = w
+            .points
+            .iter()
+            .cloned()
+            .fold([0.0, 0.0], |a, p| if p[1] > a[1] { p } else { a });
+        assert!((peak[0] - 42.0).abs() <= 1.0, "{peak:?}");
+        assert!(w.points[0][1].abs() < 1e-9 && w.points[90][1].abs() < 1e-9);
+    }
+
+    #[test]
+    fn series_read_back_what_they_write() {
+        let sc = Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap();
+        let s = separation_vs_wavelength(&sc, 0);
+        assert_eq!(Series::from_json(&serde_json::to_value(&s).unwrap()).unwrap(), s);
+        let bad = serde_json::json!({"points": [[1, 2], [3]]});
+        assert_eq!(Series::from_json(&bad).unwrap_err().field, "series.points[1]");
+    }
+
+    #[test]
+    fn a_stack_without_crystals_gives_empty_series() {
+        let sc = Scenario::from_json_str(r#"{"elements": [{"kind": "rotator", "angle_deg": 5}]}"#).unwrap();
+        assert!(walkoff_vs_tilt(&sc, 0).unwrap().points.is_empty());
+        assert_eq!(separation_vs_wavelength(&sc, 0).note, "no crystal in the stack");
+    }
+}

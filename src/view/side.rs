@@ -1,0 +1,745 @@
+//! The side view: the stack in the x–z plane, to scale, with every ray through it.
+//!
+//! World coordinates are millimetres with z along world x (to the right) and the lab x along
+//! world y (up), as `../shared/CONVENTIONS.md` asks; +y of the lab points out of the screen.
+//! The same drawing can be made in another plane that holds z ([`SidePlane`]): the y–z plane
+//! (y up, lab x into the screen), or the plane of z and the first crystal's e-ray walk-off
+//! direction w (w up), so that a walk-off out of the x–z plane is seen. Such a view draws each
+//! lab point's component along the chosen direction where the x–z view draws its x.
+//! Plates are drawn to scale. When the stack is much longer than it is wide, the transverse
+//! direction is drawn stretched by a round factor ([`Scene::y_stretch`]), said in the caption and
+//! shown by a second scale bar; all coordinates in the scene stay physical.
+//!
+//! What it shows: each crystal with its optic axis (the projection on x–z as a double arrow, and
+//! ⊙ or ⊗ with the out-of-plane component when the axis leaves the plane), each ideal element as a
+//! thin bar, the incident beam, o-rays solid and e-rays dashed in every crystal (rays in the
+//! outside medium keep the style of their last crystal), a label at the end of each ray, a
+//! dimension line across the exit spots, the walk-off angle of the first crystal marked with its
+//! value, and scale bars. Every length of the view is written in one unit, chosen from the largest
+//! ([`LengthUnit::for_values`]); rays that carry no power ([`NO_POWER`]) are drawn thin and grey
+//! and their spot is labelled "no power".
+
+use crate::contract::scenario::{ElementKind, Scenario};
+use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
+use crate::optics::trace::{ElementReport, TraceResult};
+use crate::optics::uniaxial::OpticAxis;
+use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
+
+/// Dash pattern of e-rays (px).
+pub const E_DASH: [f64; 2] = [7.0, 4.0];
+
+fn mode_style(letter: Option<char>) -> (Role, Vec<f64>) {
+    match letter {
+        Some('o') => (Role::ORay, vec![]),
+        Some('e') => (Role::ERay, E_DASH.to_vec()),
+        _ => (Role::Incident, vec![]),
+    }
+}
+
+/// The z intervals of the crystals, in stack order.
+fn crystal_spans(result: &TraceResult) -> Vec<(f64, f64)> {
+    result
+        .elements
+        .iter()
+        .filter_map(|e| match e {
+            ElementReport::Crystal {
+                z_front_mm, z_back_mm, ..
+            } => Some((*z_front_mm, *z_back_mm)),
+            _ => None,
+        })
+        .collect()
+}
+
+/// Builds the side view of a traced scenario, in the x–z plane.
+pub fn side_view(scenario: &Scenario, result: &TraceResult) -> Scene {
+    side_view_in(scenario, result, SidePlane::Xz)
+}
+
+/// Builds the side view of a traced scenario in `plane`.
+pub fn side_view_in(scenario: &Scenario, result: &TraceResult, plane: SidePlane) -> Scene {
+    draw(scenario, result, &plane.frame(result))
+}
+
+fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene {
+    // The drawn transverse coordinate of a lab point, and its component out of the page.
+    let across = |p: [f64; 2]| names.turn(p)[0];
+    let across3 = |p: &[f64; 3]| across([p[0], p[1]]);
+    let mut scene = Scene::new(&names.title, "", Aspect::Equal);
+    let d = scenario.beam.diameter_mm;
+    let u = result.input.direction;
+    let spans = crystal_spans(result);
+    let z_end_stack = result.rays.first().map_or(0.0, |r| r.exit_z_mm);
+    let stack_len = z_end_stack.max(1e-9);
+    let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
+    let (z_min, z_max) = (-lead, z_end_stack + lead);
+    let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
+
+    // Transverse extent: every ray point, the beam around them, and the lead-in/out.
+    let mut xs: Vec<f64> = vec![slope * z_min];
+    for ray in &result.rays {
+        xs.extend(ray.points_mm.iter().map(across3));
+        xs.push(across(ray.exit_position_mm) + slope * lead);
+    }
+    let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
+    let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
+    let half = x_lo.abs().max(x_hi.abs());
+    let (px0, px1) = (x_lo.min(-half * 0.6), x_hi.max(half * 0.6));
+
+    // Stretch the transverse axis by a round factor when the view would be a thin strip.
+    let z_extent = z_max - z_min;
+    let x_extent = (px1 - px0).max(1e-9);
+    let wanted = z_extent / x_extent / 2.5;
+    let stretch = if wanted > 1.5 {
+        nice_step(wanted.min(1000.0)).max(1.0)
+    } else {
+        1.0
+    };
+    scene.y_stretch = stretch;
+    let s = stretch;
+    scene.caption = if s > 1.0 {
+        format!("{}; transverse scale ×{}", names.axes, sig(s, 2))
+    } else {
+        format!("{}; to scale", names.axes)
+    };
+
+    // The lengths the view writes, and the one unit they share.
+    // The dimension spans the rays' exit points, not the spots' centres: rays whose beams
+    // overlap form one spot, yet their separation is still the figure a reader looks for.
+    let exit_xs: Vec<f64> = result.rays.iter().map(|p| across(p.exit_position_mm)).collect();
+    let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+    let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
+    let bar = nice_step(z_extent / 5.0);
+    let transverse_bar = nice_step((px1 - px0) / 3.0);
+    let mut lengths: Vec<f64> = spans.iter().map(|(z0, z1)| z1 - z0).collect();
+    lengths.extend([spread, bar, if s > 1.0 { transverse_bar } else { 0.0 }]);
+    let unit = LengthUnit::for_values(&lengths);
+
+    // Plates and ideal elements.
+    let mut crystal_index = 0usize;
+    let mut z_cursor = 0.0;
+    for (i, (el, rep)) in scenario.elements.iter().zip(result.elements.iter()).enumerate() {
+        z_cursor += el.gap_mm;
+        match (&el.kind, rep) {
+            (
+                ElementKind::Crystal(plate),
+                ElementReport::Crystal {
+                    z_front_mm,
+                    z_back_mm,
+                    material,
+                    ..
+                },
+            ) => {
+                let (z0, z1) = (*z_front_mm, *z_back_mm);
+                scene.items.push(Item::Polygon {
+                    points: vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]],
+                    role: Role::Crystal,
+                    tag: format!("plate {crystal_index}"),
+                });
+                scene.text(
+                    [0.5 * (z0 + z1), px1],
+                    format!("{material} {}", length(z1 - z0, unit, 3)),
+                    11.0,
+                    Anchor::Middle,
+                    Role::Caption,
+                );
+                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg) {
+                    axis_mark(
+                        &mut scene,
+                        axis,
+                        [0.5 * (z0 + z1), 0.5 * (px0 + px1)],
+                        (z1 - z0).min((px1 - px0) * s) * 0.3,
+                        s,
+                        crystal_index,
+                    );
+                }
+                crystal_index += 1;
+                z_cursor = z1;
+            }
+            (kind, _) => {
+                let (name, tag) = match kind {
+                    ElementKind::Retarder {
+                        retardance_waves,
+                        fast_axis_deg,
+                    } => (
+                        format!("Γ {} λ @ {}°", sig(*retardance_waves, 3), sig(*fast_axis_deg, 3)),
+                        "retarder",
+                    ),
+                    ElementKind::Polarizer { transmission_axis_deg } => {
+                        (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
+                    }
+                    ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
+                    ElementKind::Crystal(_) => (String::new(), "crystal"),
+                };
+                scene.items.push(Item::Polyline {
+                    points: vec![[z_cursor, px0], [z_cursor, px1]],
+                    role: Role::Element,
+                    dash: vec![],
+                    width: 3.0,
+                    tag: format!("{tag} {i}"),
+                });
+                scene.label(
+                    [z_cursor, px0],
+                    name,
+                    11.0,
+                    Anchor::Middle,
+                    Role::Caption,
+                    Priority::Detail,
+                );
+            }
+        }
+    }
+
+    // Incident beam.
+    scene.line(
+        vec![[z_min, slope * z_min], [0.0, 0.0]],
+        Role::Incident,
+        vec![],
+        2.0,
+        "incident",
+    );
+    scene.label(
+        [z_min, slope * z_min],
+        "in",
+        12.0,
+        Anchor::Start,
+        Role::Label,
+        Priority::Detail,
+    );
+
+    // Rays, segment by segment. Each ray's items go to a bucket by kind and role (segments,
+    // exit lines, exit dots; o, e, other), appended in bucket order after the loop: the canvas
+    // strokes each run of one style as one path, which keeps thousands of rays cheap.
+    let mut buckets: [Vec<Item>; 9] = Default::default();
+    let bucket = |role: Role| match role {
+        Role::ORay => 0,
+        Role::ERay => 1,
+        _ => 2,
+    };
+    for ray in &result.rays {
+        let letters: Vec<char> = ray.label.chars().collect();
+        let mut last: Option<char> = None;
+        for w in ray.points_mm.windows(2) {
+            let (a, b) = (w[0], w[1]);
+            let mid = 0.5 * (a[2] + b[2]);
+            let inside = spans.iter().position(|(z0, z1)| mid > *z0 && mid < *z1);
+            let letter = match inside {
+                Some(k) => letters.get(k).copied(),
+                None => last,
+            };
+            if inside.is_some() {
+                last = letter;
+            }
+            // Rays that agree on their first c letters share this segment (c = crystals crossed
+            // by its end): draw it once, for the ray whose remaining letters are all "o".
+            let crossed = spans.iter().filter(|(_, z1)| *z1 <= b[2] + 1e-12).count();
+            if letters.iter().skip(crossed).any(|&l| l != 'o') {
+                continue;
+            }
+            let (role, dash) = mode_style(letter);
+            buckets[bucket(role)].push(Item::Polyline {
+                points: vec![[a[2], across3(&a)], [b[2], across3(&b)]],
+                role,
+                dash,
+                width: 2.0,
+                tag: format!("ray {} segment", ray.label),
+            });
+        }
+        let exit: Point = [ray.exit_z_mm, across(ray.exit_position_mm)];
+        let end: Point = [z_max, across(ray.exit_position_mm) + slope * (z_max - ray.exit_z_mm)];
+        let (role, dash) = mode_style(last);
+        // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
+        // is still shown, thin and grey, so that the reader sees where it would go.
+        let (role, width) = if ray.power < NO_POWER {
+            (Role::Grid, 1.0)
+        } else {
+            (role, 2.0)
+        };
+        buckets[3 + bucket(role)].push(Item::Polyline {
+            points: vec![exit, end],
+            role,
+            dash,
+            width,
+            tag: format!("ray {}", ray.label),
+        });
+        buckets[6 + bucket(role)].push(Item::Dot {
+            center: exit,
+            radius_px: 3.0,
+            role,
+            filled: true,
+            tag: format!("exit {}", ray.label),
+        });
+    }
+    for b in &mut buckets {
+        scene.items.append(b);
+    }
+    // One label per spot, at the end of its rays.
+    for spot in &result.spots {
+        let name = spot.name();
+        let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
+        let name = if spot.power < NO_POWER {
+            format!("{name} (no power)")
+        } else {
+            name
+        };
+        scene.text([z_max, x], name, 12.0, Anchor::Start, Role::Label);
+    }
+
+    // Walk-off of the first crystal with a propagating e-wave.
+    if let Some((rep_e, z0)) = result.elements.iter().find_map(|e| match e {
+        ElementReport::Crystal { e, z_front_mm, .. } if e.ray_direction.is_some() => Some((e.clone(), *z_front_mm)),
+        _ => None,
+    }) {
+        let x_entry = result
+            .rays
+            .first()
+            .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
+            .map_or(0.0, across3);
+        if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
+            walkoff_mark(
+                &mut scene,
+                [z0, x_entry],
+                names.turn3(k),
+                names.turn3(ray),
+                w,
+                0.4 * spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * z_extent),
+                s,
+            );
+        }
+    }
+
+    // Dimension across the exit points (drawn where it is long enough on screen).
+    if spread > 0.0 {
+        let zd = z_end_stack + 0.35 * lead;
+        let has_y = result
+            .rays
+            .iter()
+            .any(|p| names.turn(p.exit_position_mm)[1].abs() > 1e-9 * d);
+        let label = if has_y {
+            format!("Δ{} {}", names.up_name, length(spread, unit, 3))
+        } else {
+            length(spread, unit, 3)
+        };
+        scene.dimension([zd, lo], [zd, hi], label, "dimension");
+    }
+
+    // Scale bars.
+    let yb = px0 - 0.12 * (px1 - px0);
+    scene.line(
+        vec![[z_min, yb], [z_min + bar, yb]],
+        Role::ScaleBar,
+        vec![],
+        3.0,
+        "scale z",
+    );
+    // The scale is read before any name: placed first.
+    scene.label(
+        [z_min + 0.5 * bar, yb],
+        length(bar, unit, 3),
+        11.0,
+        Anchor::Middle,
+        Role::ScaleBar,
+        Priority::Key,
+    );
+    if s > 1.0 {
+        let tb = transverse_bar;
+        let zb = z_max - 0.02 * z_extent;
+        scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
+        scene.label(
+            [zb - 0.01 * z_extent, yb + 0.5 * tb],
+            format!("{} ({})", length(tb, unit, 3), names.up_name),
+            11.0,
+            Anchor::End,
+            Role::ScaleBar,
+            Priority::Detail,
+        );
+    }
+    scene.bounds = Rect {
+        x0: z_min,
+        y0: yb,
+        x1: z_max,
+        y1: px1,
+    }
+    .padded(0.03, 0.12);
+    scene
+}
+
+/// The plane of a side view: z to the right and one transverse lab direction up.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SidePlane {
+    /// x up, lab y out of the page (the contract's side view).
+    Xz,
+    /// y up, lab x into the page.
+    Yz,
+    /// The e-ray walk-off direction w of the first crystal with a propagating e-wave up
+    /// (its projection on x–y); the x–z plane when no crystal walks off.
+    Walkoff,
+}
+
+/// A side view's plane: its upward lab direction (cos φ, sin φ, 0) and its words.
+struct PlaneNames {
+    /// (cos φ, sin φ).
+    up: (f64, f64),
+    /// φ in degrees: crystal axes are drawn at their azimuth minus φ.
+    turn_deg: f64,
+    title: String,
+    /// The upward direction's name, for "Δx" and the transverse scale bar.
+    up_name: &'static str,
+    /// The caption's orientation phrase.
+    axes: String,
+}
+
+impl PlaneNames {
+    /// Lab (x, y) in the drawing's frame: [along the upward direction, out of the page]
+    /// (x' = x c + y s, y' = −x s + y c); x–z is left exactly as it is.
+    fn turn(&self, p: [f64; 2]) -> [f64; 2] {
+        let (c, s) = self.up;
+        if s == 0.0 && c == 1.0 {
+            p
+        } else {
+            [p[0] * c + p[1] * s, -p[0] * s + p[1] * c]
+        }
+    }
+
+    fn turn3(&self, p: [f64; 3]) -> [f64; 3] {
+        let [x, y] = self.turn([p[0], p[1]]);
+        [x, y, p[2]]
+    }
+}
+
+impl SidePlane {
+    /// The plane's upward direction and words, for this result.
+    fn frame(self, result: &TraceResult) -> PlaneNames {
+        let xz = || PlaneNames {
+            up: (1.0, 0.0),
+            turn_deg: 0.0,
+            title: "Side view (x–z)".into(),
+            up_name: "x",
+            axes: "z → right, x ↑ (lab y out of the page)".into(),
+        };
+        match self {
+            SidePlane::Xz => xz(),
+            SidePlane::Yz => PlaneNames {
+                up: (0.0, 1.0),
+                turn_deg: 90.0,
+                title: "Side view (y–z)".into(),
+                up_name: "y",
+                axes: "z → right, y ↑ (lab x into the page)".into(),
+            },
+            SidePlane::Walkoff => match walkoff_azimuth(result) {
+                None => PlaneNames {
+                    title: "Side view (x–z: no walk-off to follow)".into(),
+                    ..xz()
+                },
+                Some((c, s)) => {
+                    let turn_deg = s.atan2(c).to_degrees();
+                    // To 0.1°, without a decimal tail for whole degrees and without "-0".
+                    let deg = (turn_deg * 10.0).round() / 10.0 + 0.0;
+                    let phi = if deg.fract() == 0.0 {
+                        format!("{deg:.0}")
+                    } else {
+                        format!("{deg:.1}")
+                    };
+                    PlaneNames {
+                        up: (c, s),
+                        turn_deg,
+                        title: format!("Side view along the walk-off ({phi}° from x)"),
+                        up_name: "w",
+                        axes: format!("z → right, w ↑ (e walk-off, {phi}° from x toward y)"),
+                    }
+                }
+            },
+        }
+    }
+}
+
+/// (cos φ, sin φ) of the first crystal's e-ray walk-off direction projected on x–y.
+fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
+    result.elements.iter().find_map(|e| match e {
+        ElementReport::Crystal { e, .. } => {
+            let w = e.walkoff_direction?;
+            let n = w[0].hypot(w[1]);
+            (n > 1e-12).then(|| (w[0] / n, w[1] / n))
+        }
+        _ => None,
+    })
+}
+
+/// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
+fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f64, index: usize) {
+    let v = axis.unit();
+    // In-plane projection (z, x), drawn at its true screen angle despite the stretch.
+    let (pz, px) = (v.z, v.x);
+    let n = pz.hypot(px);
+    if n > 1e-6 {
+        let half = 0.5 * len * n;
+        let (dz, dx) = (pz / n * half, px / n * half / stretch);
+        scene.items.push(Item::Arrow {
+            from: [c[0] - dz, c[1] - dx],
+            to: [c[0] + dz, c[1] + dx],
+            role: Role::Axis,
+            head_px: 6.0,
+            tag: format!("axis {index}"),
+        });
+        scene.items.push(Item::Arrow {
+            from: [c[0] + dz, c[1] + dx],
+            to: [c[0] - dz, c[1] - dx],
+            role: Role::Axis,
+            head_px: 6.0,
+            tag: format!("axis {index} back"),
+        });
+        scene.label(
+            [c[0] + dz, c[1] + dx],
+            "c",
+            12.0,
+            Anchor::Start,
+            Role::Axis,
+            Priority::Detail,
+        );
+    }
+    // Out-of-plane part: +y of the lab points toward the viewer.
+    if v.y.abs() > 0.02 {
+        let glyph = if v.y > 0.0 { "⊙" } else { "⊗" };
+        scene.label(
+            [c[0], c[1]],
+            format!("{glyph} c_y {}", sig(v.y, 2)),
+            12.0,
+            Anchor::Middle,
+            Role::Axis,
+            Priority::Detail,
+        );
+    }
+}
+
+/// Marks the walk-off angle between wave vector `k` and ray `ray` at `at`.
+fn walkoff_mark(scene: &mut Scene, at: Point, k: [f64; 3], ray: [f64; 3], walkoff_deg: f64, radius: f64, stretch: f64) {
+    // Screen angles of the projections on the x–z plane.
+    let ak = (k[0] * stretch).atan2(k[2]);
+    let ar = (ray[0] * stretch).atan2(ray[2]);
+    let r = radius.max(1e-9);
+    let to_world = |a: f64, rr: f64| -> Point { [at[0] + rr * a.cos(), at[1] + rr * a.sin() / stretch] };
+    scene.line(
+        vec![at, to_world(ak, 1.3 * r)],
+        Role::Angle,
+        vec![2.0, 3.0],
+        1.0,
+        "wave vector",
+    );
+    let steps = 24;
+    let arc: Vec<Point> = (0..=steps)
+        .map(|i| to_world(ak + (ar - ak) * i as f64 / steps as f64, r))
+        .collect();
+    scene.line(arc, Role::Angle, vec![], 1.5, "walk-off arc");
+    let mid = to_world(0.5 * (ak + ar) + if ar >= ak { 0.15 } else { -0.15 }, 1.15 * r);
+    scene.text(
+        mid,
+        format!("ρ = {}°", sig(walkoff_deg, 3)),
+        12.0,
+        Anchor::Start,
+        Role::Angle,
+    );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::trace::trace;
+
+    fn build(doc: &str) -> (TraceResult, Scene) {
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view(&sc, &r);
+        (r, scene)
+    }
+
+    fn first_point(scene: &Scene, tag: &str) -> Point {
+        match scene.tagged(tag).next() {
+            Some(Item::Polyline { points, .. }) => points[0],
+            Some(Item::Dot { center, .. }) => *center,
+            other => panic!("no {tag}: {other:?}"),
+        }
+    }
+
+    #[test]
+    fn exit_points_in_the_view_are_the_traced_ones() {
+        let (r, scene) = build(include_str!("../../examples/demo.json"));
+        assert!(scene.is_finite());
+        for ray in &r.rays {
+            let p = first_point(&scene, &format!("ray {}", ray.label));
+            assert_eq!(p, [ray.exit_z_mm, ray.exit_position_mm[0]], "ray {}", ray.label);
+            assert_eq!(first_point(&scene, &format!("exit {}", ray.label)), p);
+        }
+        // o solid, e dashed.
+        let style = |tag: &str| match scene.tagged(tag).next() {
+            Some(Item::Polyline { role, dash, .. }) => (*role, dash.clone()),
+            _ => panic!(),
+        };
+        assert_eq!(style("ray o"), (Role::ORay, vec![]));
+        assert_eq!(style("ray e"), (Role::ERay, E_DASH.to_vec()));
+    }
+
+    #[test]
+    fn the_dimension_spans_the_separation_and_says_it() {
+        let (r, scene) = build(include_str!("../../examples/demo.json"));
+        let ElementReport::Crystal { separation_mm, .. } = r.elements[0] else {
+            panic!()
+        };
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        let span = (to[1] - from[1]).abs();
+        assert!((span - separation_mm.unwrap()).abs() < 1e-12, "{span}");
+        assert!(
+            scene.texts().iter().any(|t| t.contains("1.36 mm")),
+            "{:?}",
+            scene.texts()
+        );
+        assert!(
+            scene.texts().iter().any(|t| t.starts_with("ρ = 6.19")),
+            "{:?}",
+            scene.texts()
+        );
+    }
+
+    #[test]
+    fn the_plate_is_drawn_to_scale_and_the_axis_shown() {
+        let (_, scene) = build(include_str!("../../examples/demo.json"));
+        let Some(Item::Polygon { points, .. }) = scene.tagged("plate 0").next() else {
+            panic!()
+        };
+        assert_eq!(points[0][0], 5.0);
+        assert_eq!(points[1][0], 17.5);
+        // The demo's axis lies in the x–z plane at 45° from z.
+        let Some(Item::Arrow { from, to, .. }) = scene.tagged("axis 0").next() else {
+            panic!()
+        };
+        let screen_angle = ((to[1] - from[1]) * scene.y_stretch)
+            .atan2(to[0] - from[0])
+            .to_degrees();
+        assert!((screen_angle - 45.0).abs() < 1e-9, "{screen_angle}");
+        assert!(scene.caption.contains("transverse scale") || scene.caption.contains("to scale"));
+    }
+
+    /// A calcite plate whose optic axis leans toward +y (azimuth 90°) walks the e-ray off along
+    /// −y (away from the axis: calcite is negative): invisible in the x–z plane, the full separation in the y–z plane and along the
+    /// walk-off. Independent check: the trace's own `separation_mm` (and its vector along y).
+    #[test]
+    fn a_walkoff_along_y_shows_in_the_yz_and_walkoff_planes_only() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let ElementReport::Crystal {
+            separation_mm,
+            separation_vector_mm,
+            ..
+        } = &r.elements[0]
+        else {
+            panic!()
+        };
+        let sep = separation_mm.unwrap();
+        let v = separation_vector_mm.unwrap();
+        assert!(sep > 0.5 && v[0].abs() < 1e-12 * sep, "a walk-off along y: {v:?}");
+        let span = |scene: &Scene| {
+            let xs: Vec<f64> = r
+                .rays
+                .iter()
+                .map(|ray| first_point(scene, &format!("exit {}", ray.label))[1])
+                .collect();
+            xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) - xs.iter().cloned().fold(f64::INFINITY, f64::min)
+        };
+        let xz = side_view_in(&sc, &r, SidePlane::Xz);
+        assert_eq!(xz, side_view(&sc, &r));
+        assert!(span(&xz) < 1e-12 * sep, "x–z shows {} mm", span(&xz));
+        // (A dimension across rounding noise, if any, spans ~0 too.)
+        if let Some(Item::Dimension { from, to, .. }) = xz.tagged("dimension").next() {
+            assert!((to[1] - from[1]).abs() < 1e-12 * sep, "x–z dimension {from:?} {to:?}");
+        }
+        for (plane, title) in [
+            (SidePlane::Yz, "Side view (y–z)"),
+            (SidePlane::Walkoff, "Side view along the walk-off (-90° from x)"),
+        ] {
+            let scene = side_view_in(&sc, &r, plane);
+            assert!(scene.is_finite(), "{plane:?}");
+            assert_eq!(scene.title, title);
+            assert!(
+                (span(&scene) - sep).abs() < 1e-12 * sep,
+                "{plane:?}: {} vs {sep}",
+                span(&scene)
+            );
+            let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
+                panic!("{plane:?}: no dimension")
+            };
+            let dim = (to[1] - from[1]).abs();
+            assert!(
+                (dim - sep).abs() < 1e-12 * sep,
+                "{plane:?}: dimension {dim} vs separation {sep}"
+            );
+        }
+        // The axis leans toward +y: in the y–z view it is drawn in the plane at 45° from z.
+        let yz = side_view_in(&sc, &r, SidePlane::Yz);
+        let Some(Item::Arrow { from, to, .. }) = yz.tagged("axis 0").next() else {
+            panic!()
+        };
+        let angle = ((to[1] - from[1]) * yz.y_stretch).atan2(to[0] - from[0]).to_degrees();
+        assert!((angle - 45.0).abs() < 1e-9, "{angle}");
+    }
+
+    /// Rays whose beams overlap form one spot (0.05 mm apart in a 1 mm beam), yet the side view
+    /// still dimensions their separation: it spans the rays' exit points, not the spots'.
+    #[test]
+    fn rays_in_one_spot_still_get_their_separation_dimensioned() {
+        let doc = r#"{"beam": {"diameter_mm": 1}, "elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 0.5, "axis": {"tilt_deg": 45, "azimuth_deg": 0}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        assert_eq!(r.spots.len(), 1, "one spot");
+        let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
+            panic!()
+        };
+        let sep = separation_mm.unwrap();
+        let scene = side_view(&sc, &r);
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        assert!(
+            ((to[1] - from[1]).abs() - sep).abs() < 1e-12,
+            "{from:?} {to:?} vs {sep}"
+        );
+    }
+
+    #[test]
+    fn the_walkoff_plane_follows_any_azimuth_and_falls_back_without_walkoff() {
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45, "azimuth_deg": 30}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        let ElementReport::Crystal { separation_mm, .. } = &r.elements[0] else {
+            panic!()
+        };
+        let Some(Item::Dimension { from, to, .. }) = scene.tagged("dimension").next() else {
+            panic!("no dimension")
+        };
+        let dim = (to[1] - from[1]).abs();
+        assert!((dim - separation_mm.unwrap()).abs() < 1e-12, "{dim}");
+        // Calcite is negative: the e-ray leans away from the optic axis (azimuth 30° − 180°).
+        assert!(scene.title.contains("(-150° from x)"), "{}", scene.title);
+        // Along z the crystal does not walk off: the x–z plane, said so.
+        let doc = r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 0, "azimuth_deg": 0}}]}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace(&sc).unwrap();
+        let scene = side_view_in(&sc, &r, SidePlane::Walkoff);
+        assert!(scene.title.contains("no walk-off"), "{}", scene.title);
+        assert!(scene.is_finite());
+    }
+
+    #[test]
+    fn out_of_plane_axes_get_a_mark() {
+        let (_, scene) = build(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {"tilt_deg": 45, "azimuth_deg": 90}}]}"#,
+        );
+        assert!(scene.texts().iter().any(|t| t.starts_with("⊙")), "{:?}", scene.texts());
+        let (_, scene) = build(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {"tilt_deg": 45, "azimuth_deg": -90}}]}"#,
+        );
+        assert!(scene.texts().iter().any(|t| t.starts_with("⊗")));
+    }
+}

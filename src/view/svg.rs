@@ -1,0 +1,293 @@
+//! An SVG writer for scenes: the same display list the canvas draws, as a standalone document.
+//!
+//! The SVG uses screen coordinates (pixels, y down) from [`crate::view::scene::Viewport::fit`], so its geometry can
+//! be compared with the scene's world coordinates through the same map. Labels, the title, the
+//! caption and the dimension lines are drawn where the placement pass ([`layout`]) put them for
+//! this size, exactly as on the canvas. Colours come from a [`Palette`]; the document carries no
+//! script and references nothing external.
+
+use crate::view::label_layout::{Layout, layout};
+use crate::view::scene::{Item, Point, Role, Scene, arrow_head};
+use std::fmt::Write;
+
+/// Colours for each role, as CSS colour strings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Palette {
+    /// Background.
+    pub background: String,
+    /// Foreground text and frames.
+    pub ink: String,
+    /// Secondary text, grids.
+    pub muted: String,
+    /// o-rays.
+    pub o_ray: String,
+    /// e-rays.
+    pub e_ray: String,
+    /// The incident beam.
+    pub incident: String,
+    /// Crystal fill.
+    pub crystal_fill: String,
+    /// Crystal outline.
+    pub crystal_edge: String,
+    /// Optic axis.
+    pub axis: String,
+    /// Dimensions and angles.
+    pub dimension: String,
+    /// Curves and markers on plots.
+    pub curve: String,
+    /// The current point.
+    pub marker: String,
+    /// Warnings.
+    pub warning: String,
+}
+
+impl Palette {
+    /// The light scheme (also the page's default).
+    pub fn light() -> Palette {
+        Palette {
+            background: "#fbfaf7".into(),
+            ink: "#1d232b".into(),
+            muted: "#7a8491".into(),
+            o_ray: "#0f6e8c".into(),
+            e_ray: "#b3471d".into(),
+            incident: "#5b6470".into(),
+            crystal_fill: "rgba(120, 160, 190, 0.16)".into(),
+            crystal_edge: "#6f8ea8".into(),
+            axis: "#6a4c93".into(),
+            dimension: "#2f3a45".into(),
+            curve: "#0f6e8c".into(),
+            marker: "#b3471d".into(),
+            warning: "#a15c00".into(),
+        }
+    }
+
+    /// The dark scheme.
+    pub fn dark() -> Palette {
+        Palette {
+            background: "#15191e".into(),
+            ink: "#e6e9ed".into(),
+            muted: "#8d97a3".into(),
+            o_ray: "#5cc3e0".into(),
+            e_ray: "#f08a5d".into(),
+            incident: "#aab3bd".into(),
+            crystal_fill: "rgba(120, 170, 210, 0.14)".into(),
+            crystal_edge: "#7fa6c6".into(),
+            axis: "#b99be0".into(),
+            dimension: "#d5dbe1".into(),
+            curve: "#5cc3e0".into(),
+            marker: "#f08a5d".into(),
+            warning: "#e0a040".into(),
+        }
+    }
+
+    /// Stroke colour of a role.
+    pub fn stroke(&self, role: Role) -> &str {
+        match role {
+            Role::ORay => &self.o_ray,
+            Role::ERay => &self.e_ray,
+            Role::Incident => &self.incident,
+            Role::Crystal => &self.crystal_edge,
+            Role::Element | Role::Frame | Role::Label | Role::ScaleBar => &self.ink,
+            Role::Axis => &self.axis,
+            Role::Dimension | Role::Angle => &self.dimension,
+            Role::Grid | Role::Caption => &self.muted,
+            Role::Curve | Role::Spot | Role::Ellipse => &self.curve,
+            Role::Marker | Role::InputState => &self.marker,
+            Role::Warning => &self.warning,
+        }
+    }
+
+    /// Fill colour of a role (for polygons, filled circles, dots).
+    pub fn fill(&self, role: Role) -> &str {
+        match role {
+            Role::Crystal => &self.crystal_fill,
+            Role::Frame | Role::Grid => "none",
+            other => self.stroke(other),
+        }
+    }
+}
+
+fn esc(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// A circle or ellipse (semi-axes `r` in pixels) at `c`, outlined in the role's colour.
+fn round(out: &mut String, palette: &Palette, c: [f64; 2], r: [f64; 2], role: Role, filled: bool, tag: &str) {
+    let fill = if filled { palette.fill(role) } else { "none" };
+    let _ = write!(
+        out,
+        r#"<ellipse data-tag="{}" cx="{:.3}" cy="{:.3}" rx="{:.3}" ry="{:.3}" fill="{fill}" stroke="{}" stroke-width="1.5"/>"#,
+        esc(tag),
+        c[0],
+        c[1],
+        r[0],
+        r[1],
+        palette.stroke(role)
+    );
+}
+
+/// An arrow (shaft and filled head) from `a` to `b`, screen px.
+fn arrow(out: &mut String, a: Point, b: Point, colour: &str, head_px: f64, width: f64, tag: &str) {
+    let ([x0, y0], [x1, y1]) = (a, b);
+    let _ = write!(
+        out,
+        r#"<line data-tag="{}" x1="{x0:.3}" y1="{y0:.3}" x2="{x1:.3}" y2="{y1:.3}" stroke="{colour}" stroke-width="{width}"/>"#,
+        esc(tag)
+    );
+    let [p1, p2] = arrow_head(a, b, head_px);
+    let _ = write!(
+        out,
+        r#"<polygon points="{x1:.3},{y1:.3} {:.3},{:.3} {:.3},{:.3}" fill="{colour}"/>"#,
+        p1[0], p1[1], p2[0], p2[1]
+    );
+}
+
+/// Margin around the drawing, px (the canvas uses the same).
+pub const MARGIN_PX: f64 = 28.0;
+
+/// Writes `scene` as an SVG document of `width` × `height` pixels.
+pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> String {
+    let lay: Layout = layout(scene, width, height, MARGIN_PX);
+    let vp = lay.viewport;
+    let mut out = String::new();
+    let _ = write!(
+        out,
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" viewBox="0 0 {width} {height}" font-family="system-ui, sans-serif">"#
+    );
+    let _ = write!(
+        out,
+        r#"<title>{}</title><rect width="100%" height="100%" fill="{}"/>"#,
+        esc(&scene.title),
+        palette.background
+    );
+    for item in &scene.items {
+        match item {
+            Item::Polyline {
+                points,
+                role,
+                dash,
+                width: w,
+                tag,
+            } => {
+                let pts: Vec<String> = points
+                    .iter()
+                    .map(|p| vp.map(*p))
+                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
+                    .collect();
+                let dash = if dash.is_empty() {
+                    String::new()
+                } else {
+                    format!(
+                        r#" stroke-dasharray="{}""#,
+                        dash.iter().map(|d| d.to_string()).collect::<Vec<_>>().join(" ")
+                    )
+                };
+                let _ = write!(
+                    out,
+                    r#"<polyline data-tag="{}" points="{}" fill="none" stroke="{}" stroke-width="{w}"{dash}/>"#,
+                    esc(tag),
+                    pts.join(" "),
+                    palette.stroke(*role)
+                );
+            }
+            Item::Polygon { points, role, tag } => {
+                let pts: Vec<String> = points
+                    .iter()
+                    .map(|p| vp.map(*p))
+                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
+                    .collect();
+                let _ = write!(
+                    out,
+                    r#"<polygon data-tag="{}" points="{}" fill="{}" stroke="{}" stroke-width="1"/>"#,
+                    esc(tag),
+                    pts.join(" "),
+                    palette.fill(*role),
+                    palette.stroke(*role)
+                );
+            }
+            Item::Circle {
+                center,
+                radius,
+                role,
+                filled,
+                tag,
+            } => {
+                round(
+                    &mut out,
+                    palette,
+                    vp.map(*center),
+                    [radius * vp.sx, radius * vp.sy],
+                    *role,
+                    *filled,
+                    tag,
+                );
+            }
+            Item::Dot {
+                center,
+                radius_px,
+                role,
+                filled,
+                tag,
+            } => {
+                round(
+                    &mut out,
+                    palette,
+                    vp.map(*center),
+                    [*radius_px, *radius_px],
+                    *role,
+                    *filled,
+                    tag,
+                );
+            }
+            Item::Arrow {
+                from,
+                to,
+                role,
+                head_px,
+                tag,
+            } => arrow(
+                &mut out,
+                vp.map(*from),
+                vp.map(*to),
+                palette.stroke(*role),
+                *head_px,
+                1.5,
+                tag,
+            ),
+            Item::Text { .. } | Item::Dimension { .. } => {}
+        }
+    }
+    for d in &lay.dimensions {
+        let c = palette.stroke(Role::Dimension);
+        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+        let _ = write!(
+            out,
+            r#"<polyline data-tag="{}" points="{:.3},{:.3} {:.3},{:.3}" fill="none" stroke="{c}" stroke-width="1"/>"#,
+            esc(&d.tag),
+            d.from[0],
+            d.from[1],
+            d.to[0],
+            d.to[1]
+        );
+        for end in [d.from, d.to] {
+            arrow(&mut out, mid, end, c, 7.0, 1.0, &format!("{} end", d.tag));
+        }
+    }
+    for l in &lay.labels {
+        let weight = if l.bold { r#" font-weight="600""# } else { "" };
+        let _ = write!(
+            out,
+            r#"<text x="{:.3}" y="{:.3}" font-size="{}"{weight} fill="{}">{}</text>"#,
+            l.x,
+            l.baseline,
+            l.size_px,
+            palette.stroke(l.role),
+            esc(&l.text)
+        );
+    }
+    out.push_str("</svg>\n");
+    out
+}

@@ -1,0 +1,241 @@
+//! A readable, fixed-width text form of a traced result, for a person at a terminal.
+//!
+//! The JSON result is the contract; this table is a view of it with rounded numbers (6
+//! decimals for lengths in mm, 4 for powers) and the units in the headings. Numbers come from
+//! [`crate::numfmt`] with a table's budget of [`TABLE_CHARS`] characters: a huge or tiny value
+//! switches to m×10ⁿ instead of widening its column; a ray or spot below
+//! [`crate::numfmt::NO_POWER`] reads "no power"; circular light shows no azimuth. Elements and
+//! spots are numbered from 1, as on the page.
+
+use crate::numfmt::{fixed_within, power, shows_azimuth};
+use crate::optics::stokes::{Ellipse, Handedness};
+use crate::optics::trace::{ElementReport, TraceResult};
+use std::fmt::Write;
+
+/// The most characters a number takes in the table (sign excluded).
+pub const TABLE_CHARS: usize = 11;
+
+/// `v` with `decimals` decimals, within the table's budget.
+fn num(v: f64, decimals: usize) -> String {
+    fixed_within(v, decimals, 0.0, TABLE_CHARS)
+}
+
+/// As [`num`], with an explicit + on positive values (angles).
+fn signed(v: f64, decimals: usize) -> String {
+    let s = num(v, decimals);
+    if s.starts_with('\u{2212}') || s.chars().all(|c| c == '0' || c == '.') {
+        s
+    } else {
+        format!("+{s}")
+    }
+}
+
+fn opt(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(x) => num(x, decimals),
+        None => "—".to_string(),
+    }
+}
+
+fn ellipse_text(e: &Ellipse) -> String {
+    match e.handedness {
+        Handedness::Unpolarized => "unpolarized".to_string(),
+        Handedness::Linear => format!("linear {}°", signed(e.azimuth_deg, 3)),
+        Handedness::Right | Handedness::Left => {
+            let h = if e.handedness == Handedness::Right {
+                "right"
+            } else {
+                "left"
+            };
+            if shows_azimuth(e.ellipticity_deg) {
+                format!(
+                    "{h} ψ {}° χ {}°",
+                    signed(e.azimuth_deg, 3),
+                    signed(e.ellipticity_deg, 3)
+                )
+            } else {
+                format!("{h} circular")
+            }
+        }
+    }
+}
+
+/// A power with 4 decimals, or "no power".
+fn power_text(p: f64) -> String {
+    if power(p, 4) == "no power" {
+        "no power".to_string()
+    } else {
+        num(p, 4)
+    }
+}
+
+/// Renders `r` as a text table.
+pub fn render(r: &TraceResult) -> String {
+    let mut out = String::new();
+    let d = r.input.direction;
+    let polar = d[2].clamp(-1.0, 1.0).acos().to_degrees();
+    let az = d[1].atan2(d[0]).to_degrees();
+    let _ = writeln!(out, "Doublespar trace at {} nm", r.wavelength_nm);
+    let _ = writeln!(
+        out,
+        "Input: {}, degree of polarization {}; incidence polar {}°, azimuth {}°",
+        ellipse_text(&r.input.ellipse),
+        num(r.input.degree_of_polarization, 4),
+        num(polar, 4),
+        num(if polar == 0.0 { 0.0 } else { az }, 4)
+    );
+    let _ = writeln!(out);
+    let _ = writeln!(out, "Elements");
+    let _ = writeln!(
+        out,
+        "{:>3}  {:<9} {:<9} {:>9} {:>9} {:>10} {:>10} {:>10} {:>12} {:>9}",
+        "#", "kind", "material", "n_o", "n_e", "L/mm", "n(e-wave)", "walk-off/°", "separation/mm", "Γ/waves"
+    );
+    for (i, el) in r.elements.iter().enumerate() {
+        match el {
+            ElementReport::Crystal {
+                material,
+                no,
+                ne,
+                thickness_mm,
+                e,
+                separation_mm,
+                retardance_waves,
+                ..
+            } => {
+                let _ = writeln!(
+                    out,
+                    "{:>3}  {:<9} {:<9} {:>9} {:>9} {:>10} {:>10} {:>10} {:>13} {:>9}",
+                    i + 1,
+                    "crystal",
+                    material,
+                    num(*no, 6),
+                    num(*ne, 6),
+                    num(*thickness_mm, 4),
+                    opt(e.index, 6),
+                    opt(e.walkoff_deg, 4),
+                    opt(*separation_mm, 6),
+                    opt(*retardance_waves, 4)
+                );
+            }
+            ElementReport::Retarder { retardance_rad, .. } => {
+                let _ = writeln!(
+                    out,
+                    "{:>3}  {:<9} {:>96}",
+                    i + 1,
+                    "retarder",
+                    num(retardance_rad / std::f64::consts::TAU, 4)
+                );
+            }
+            ElementReport::Polarizer { absorbed_power, .. } => {
+                let _ = writeln!(
+                    out,
+                    "{:>3}  {:<9} absorbs {} of the input power",
+                    i + 1,
+                    "polarizer",
+                    num(*absorbed_power, 4)
+                );
+            }
+            ElementReport::Rotator { angle_deg, .. } => {
+                let _ = writeln!(out, "{:>3}  {:<9} turns by {}°", i + 1, "rotator", num(*angle_deg, 4));
+            }
+        }
+    }
+    let _ = writeln!(out);
+    let _ = writeln!(
+        out,
+        "Rays (exit points on the last face, z = {} mm)",
+        num(r.rays.first().map_or(0.0, |x| x.exit_z_mm), 4)
+    );
+    let _ = writeln!(
+        out,
+        "{:<8} {:>8} {:>12} {:>12}  {:>8} {:>8} {:>8}  ellipse",
+        "label", "power", "x/mm", "y/mm", "S1", "S2", "S3"
+    );
+    for ray in &r.rays {
+        let s0 = if ray.stokes[0] > 0.0 { ray.stokes[0] } else { 1.0 };
+        let _ = writeln!(
+            out,
+            "{:<8} {:>8} {:>12} {:>12}  {:>8} {:>8} {:>8}  {}",
+            if ray.label.is_empty() { "-" } else { &ray.label },
+            power_text(ray.power),
+            num(ray.exit_position_mm[0], 6),
+            num(ray.exit_position_mm[1], 6),
+            num(ray.stokes[1] / s0, 4),
+            num(ray.stokes[2] / s0, 4),
+            num(ray.stokes[3] / s0, 4),
+            ellipse_text(&ray.ellipse)
+        );
+    }
+    let _ = writeln!(out);
+    let _ = writeln!(
+        out,
+        "Spots (rays whose beams overlap added as fields; total power {})",
+        num(r.total_power, 6)
+    );
+    for (i, s) in r.spots.iter().enumerate() {
+        let _ = writeln!(
+            out,
+            "{:>3}  rays {:<12} power {}  at ({}, {}) mm  {}  DoP {}{}",
+            i + 1,
+            s.rays.join("+"),
+            power_text(s.power),
+            num(s.position_mm[0], 6),
+            num(s.position_mm[1], 6),
+            ellipse_text(&s.ellipse),
+            num(s.degree_of_polarization, 4),
+            if s.rays.len() > 1 {
+                format!("  overlap {}", num(s.overlap, 5))
+            } else {
+                String::new()
+            }
+        );
+    }
+    if !r.warnings.is_empty() {
+        let _ = writeln!(out);
+        let _ = writeln!(out, "Warnings");
+        for w in &r.warnings {
+            let _ = writeln!(out, "  - {w}");
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::contract::scenario::Scenario;
+    use crate::optics::trace::trace;
+
+    fn table(doc: &str) -> String {
+        render(&trace(&Scenario::from_json_str(doc).unwrap()).unwrap())
+    }
+
+    #[test]
+    fn circular_light_shows_no_azimuth() {
+        let t = table(
+            r#"{"beam": {"polarization": {"kind": "circular", "handedness": "left"}}, "elements": [{"kind": "rotator", "angle_deg": 10}]}"#,
+        );
+        assert!(t.contains("left circular") && !t.contains('ψ'), "{t}");
+    }
+
+    #[test]
+    fn elements_and_spots_are_numbered_from_one() {
+        let t = table(include_str!("../../examples/demo.json"));
+        assert!(t.contains("  1  crystal") && !t.contains("  0  crystal"), "{t}");
+        assert!(t.contains("  1  rays ") && t.contains("  2  rays "), "{t}");
+    }
+
+    #[test]
+    fn huge_values_keep_their_columns() {
+        // A 9999 mm plate and a retardance of millions of waves stay within the table's budget.
+        let t = table(
+            r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 9999, "axis": {"tilt_deg": 45}}]}"#,
+        );
+        let row = t.lines().find(|l| l.contains("crystal")).unwrap();
+        assert!(
+            row.split_whitespace().all(|w| w.chars().count() <= TABLE_CHARS + 1),
+            "{row}"
+        );
+    }
+}

@@ -1,0 +1,238 @@
+//! Draws a [`Scene`] on an HTML canvas: the last step of the page, and the only one that touches
+//! the canvas.
+//!
+//! The canvas is sized to its CSS box times the device pixel ratio, so lines and text stay crisp;
+//! the scene is fitted with the same [`Viewport`] the SVG writer uses, its labels placed by the same
+//! pass ([`layout`]), and coloured from the same [`Palette`].
+
+use crate::view::label_layout::layout;
+use crate::view::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
+use crate::view::svg::{MARGIN_PX, Palette};
+use wasm_bindgen::JsValue;
+use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
+
+/// Draws `scene` on `canvas`.
+///
+/// # Errors
+/// A JavaScript error when the canvas has no 2-D context.
+pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Result<(), JsValue> {
+    let window = web_sys::window().ok_or_else(|| JsValue::from_str("no window"))?;
+    let dpr = window.device_pixel_ratio().clamp(1.0, 4.0);
+    let (w, h) = (
+        f64::from(canvas.client_width().max(50)),
+        f64::from(canvas.client_height().max(50)),
+    );
+    let (pw, ph) = ((w * dpr).round() as u32, (h * dpr).round() as u32);
+    if canvas.width() != pw || canvas.height() != ph {
+        canvas.set_width(pw);
+        canvas.set_height(ph);
+    }
+    let ctx: CanvasRenderingContext2d = canvas
+        .get_context("2d")?
+        .ok_or_else(|| JsValue::from_str("canvas has no 2-D context"))?
+        .dyn_into_context()?;
+    ctx.set_transform(dpr, 0.0, 0.0, dpr, 0.0, 0.0)?;
+    ctx.set_fill_style_str(&palette.background);
+    ctx.fill_rect(0.0, 0.0, w, h);
+    let lay = layout(scene, w, h, MARGIN_PX);
+    let vp = lay.viewport;
+    let empty = js_sys::Array::new();
+    // Runs of polylines (or dots) of one style are drawn as one path with one stroke: a stack
+    // of 12 crystals has thousands of ray segments, and every call into the canvas costs.
+    let mut k = 0;
+    while k < scene.items.len() {
+        let item = &scene.items[k];
+        k += 1;
+        match item {
+            Item::Polyline {
+                points,
+                role,
+                dash,
+                width,
+                ..
+            } => {
+                let arr = js_sys::Array::new();
+                for d in dash {
+                    arr.push(&JsValue::from_f64(*d));
+                }
+                ctx.set_line_dash(&arr)?;
+                ctx.set_stroke_style_str(palette.stroke(*role));
+                ctx.set_line_width(*width);
+                ctx.begin_path();
+                subpath(&ctx, &vp, points);
+                while let Some(Item::Polyline {
+                    points: p,
+                    role: r,
+                    dash: d,
+                    width: w,
+                    ..
+                }) = scene.items.get(k)
+                {
+                    if r != role || d != dash || w != width {
+                        break;
+                    }
+                    subpath(&ctx, &vp, p);
+                    k += 1;
+                }
+                ctx.stroke();
+                ctx.set_line_dash(&empty)?;
+            }
+            Item::Polygon { points, role, .. } => {
+                if points.is_empty() {
+                    continue;
+                }
+                path(&ctx, &vp, points);
+                ctx.close_path();
+                let fill = palette.fill(*role);
+                if fill != "none" {
+                    ctx.set_fill_style_str(fill);
+                    ctx.fill();
+                }
+                ctx.set_stroke_style_str(palette.stroke(*role));
+                ctx.set_line_width(1.0);
+                ctx.stroke();
+            }
+            Item::Circle {
+                center,
+                radius,
+                role,
+                filled,
+                ..
+            } => {
+                let [x, y] = vp.map(*center);
+                ctx.begin_path();
+                ctx.ellipse(
+                    x,
+                    y,
+                    (radius * vp.sx).max(0.5),
+                    (radius * vp.sy).max(0.5),
+                    0.0,
+                    0.0,
+                    std::f64::consts::TAU,
+                )?;
+                fill_and_stroke(&ctx, palette, *role, *filled);
+            }
+            Item::Dot {
+                center,
+                radius_px,
+                role,
+                filled,
+                ..
+            } => {
+                ctx.begin_path();
+                dot(&ctx, &vp, *center, *radius_px)?;
+                while let Some(Item::Dot {
+                    center: c,
+                    radius_px: r,
+                    role: ro,
+                    filled: f,
+                    ..
+                }) = scene.items.get(k)
+                {
+                    if ro != role || f != filled {
+                        break;
+                    }
+                    dot(&ctx, &vp, *c, *r)?;
+                    k += 1;
+                }
+                fill_and_stroke(&ctx, palette, *role, *filled);
+            }
+            Item::Arrow {
+                from,
+                to,
+                role,
+                head_px,
+                ..
+            } => arrow(&ctx, vp.map(*from), vp.map(*to), palette.stroke(*role), *head_px, 1.5),
+            Item::Text { .. } | Item::Dimension { .. } => {}
+        }
+    }
+    let c = palette.stroke(Role::Dimension);
+    for d in &lay.dimensions {
+        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+        arrow(&ctx, mid, d.from, c, 7.0, 1.0);
+        arrow(&ctx, mid, d.to, c, 7.0, 1.0);
+    }
+    ctx.set_text_align("start");
+    for l in &lay.labels {
+        let weight = if l.bold { "600 " } else { "" };
+        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
+        ctx.set_fill_style_str(palette.stroke(l.role));
+        ctx.fill_text(&l.text, l.x, l.baseline)?;
+    }
+    Ok(())
+}
+
+/// An arrow (shaft and filled head) from `a` to `b`, screen px.
+fn arrow(ctx: &CanvasRenderingContext2d, a: Point, b: Point, colour: &str, head_px: f64, width: f64) {
+    ctx.set_stroke_style_str(colour);
+    ctx.set_fill_style_str(colour);
+    ctx.set_line_width(width);
+    ctx.begin_path();
+    ctx.move_to(a[0], a[1]);
+    ctx.line_to(b[0], b[1]);
+    ctx.stroke();
+    let [p1, p2] = arrow_head(a, b, head_px);
+    ctx.begin_path();
+    ctx.move_to(b[0], b[1]);
+    ctx.line_to(p1[0], p1[1]);
+    ctx.line_to(p2[0], p2[1]);
+    ctx.close_path();
+    ctx.fill();
+}
+
+/// Fills the current path (when `filled`) and outlines it, in the role's colours.
+fn fill_and_stroke(ctx: &CanvasRenderingContext2d, palette: &Palette, role: Role, filled: bool) {
+    if filled {
+        ctx.set_fill_style_str(palette.fill(role));
+        ctx.fill();
+    }
+    ctx.set_stroke_style_str(palette.stroke(role));
+    ctx.set_line_width(1.5);
+    ctx.stroke();
+}
+
+/// Starts a path through `points` mapped to the screen (nothing for no points).
+fn path(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[Point]) {
+    ctx.begin_path();
+    subpath(ctx, vp, points);
+}
+
+/// A circle of `radius_px` at `center`, as its own subpath of the current path.
+fn dot(
+    ctx: &CanvasRenderingContext2d,
+    vp: &Viewport,
+    center: crate::view::scene::Point,
+    radius_px: f64,
+) -> Result<(), JsValue> {
+    let [x, y] = vp.map(center);
+    ctx.move_to(x + radius_px, y);
+    ctx.arc(x, y, radius_px, 0.0, std::f64::consts::TAU)
+}
+
+/// Adds a subpath through `points` (a line needs two) to the current path.
+fn subpath(ctx: &CanvasRenderingContext2d, vp: &Viewport, points: &[crate::view::scene::Point]) {
+    if points.len() < 2 {
+        return;
+    }
+    if let Some((first, rest)) = points.split_first() {
+        let [x, y] = vp.map(*first);
+        ctx.move_to(x, y);
+        for p in rest {
+            let [x, y] = vp.map(*p);
+            ctx.line_to(x, y);
+        }
+    }
+}
+
+trait IntoContext {
+    fn dyn_into_context(self) -> Result<CanvasRenderingContext2d, JsValue>;
+}
+
+impl IntoContext for js_sys::Object {
+    fn dyn_into_context(self) -> Result<CanvasRenderingContext2d, JsValue> {
+        use wasm_bindgen::JsCast;
+        self.dyn_into::<CanvasRenderingContext2d>()
+            .map_err(|_| JsValue::from_str("not a 2-D context"))
+    }
+}

@@ -1,0 +1,422 @@
+//! The page's WebAssembly bindings: a thin layer that converts at the boundary and draws.
+//!
+//! Exported to JavaScript (and only this): a [`Session`] that holds the last good scenario and
+//! its trace, takes a new scenario as JSON text or a plain JS object (read through
+//! serde-wasm-bindgen), returns the result as a JS object, and draws any view on a canvas. A bad scenario returns
+//! `{field, message}` and leaves the last good state in place, so the page keeps its picture.
+//! A panic hook writes any bug's message into the page (element `#panic`) instead of leaving a
+//! dead canvas.
+
+#[cfg(feature = "design-worker")]
+use crate::contract::fields::Fields;
+use crate::contract::scenario::Scenario;
+use crate::design::statistics as statistics_summary;
+use crate::error::{Error, in_range};
+use crate::optics::trace::{TraceResult, trace};
+use crate::view::svg::{self, Palette};
+mod canvas;
+#[cfg(feature = "design-worker")]
+use crate::design::{self, displacer as design_displacer, statistics};
+use crate::optics::material;
+use crate::view::{self as views, plot as view_plot};
+use serde::Serialize;
+use wasm_bindgen::prelude::*;
+use web_sys::HtmlCanvasElement;
+
+const DEMO: &str = include_str!("../../examples/demo.json");
+
+/// Results cross the boundary as JSON text parsed by the browser: one serializer (serde_json,
+/// shortest round-trip numbers, so every double arrives exact) instead of a second one
+/// monomorphized for every result type, which keeps the wasm within its size budget.
+fn to_js<T: Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    let text =
+        serde_json::to_string(value).map_err(|e| JsValue::from_str(&format!("cannot convert the result: {e}")))?;
+    js_sys::JSON::parse(&text)
+}
+
+/// The one place where a core error becomes a JavaScript value: `{field, message}`.
+fn js_error(e: Error) -> JsValue {
+    to_js(&e.to_json()).unwrap_or_else(|_| JsValue::from_str(&e.to_string()))
+}
+
+/// Shows a panic's message in the page and on the console.
+#[wasm_bindgen(start)]
+pub fn start() {
+    std::panic::set_hook(Box::new(|info| {
+        let msg = format!(
+            "Doublespar hit an internal error and stopped: {info}. Reload the page; please report the scenario link."
+        );
+        web_sys::console::error_1(&JsValue::from_str(&msg));
+        if let Some(el) = web_sys::window()
+            .and_then(|w| w.document())
+            .and_then(|d| d.get_element_by_id("panic"))
+        {
+            el.set_text_content(Some(&msg));
+            let _ = el.remove_attribute("hidden");
+        }
+    }));
+}
+
+/// The demo scenario, as JSON text.
+#[wasm_bindgen(js_name = demoScenario)]
+pub fn demo_scenario() -> String {
+    DEMO.to_string()
+}
+
+/// The crystal catalogue as [`material::describe`] lists it:
+/// `[{key, name, sign, range_nm, citation, verified, warnings}]`; `verified` is
+/// false for a formula with no journal source, which the page marks "unverified data" wherever
+/// it names the material.
+///
+/// # Errors
+/// Never in practice (conversion of plain data).
+#[wasm_bindgen]
+pub fn materials() -> Result<JsValue, JsValue> {
+    let list: Vec<serde_json::Value> = material::catalogue().iter().map(material::describe).collect();
+    to_js(&list)
+}
+
+/// The names of the views that [`Session::draw`] accepts.
+///
+/// # Errors
+/// Never in practice.
+#[wasm_bindgen(js_name = viewNames)]
+pub fn view_names() -> Result<JsValue, JsValue> {
+    to_js(&views::VIEW_NAMES)
+}
+
+/// The design requests' constants the page shows or reads back, as the core holds them:
+/// `{chunk_samples, default_samples, max_samples, default_acceptance_error_waves,
+/// recombiner_min_overlap, recombiner_max_phase_rad}` (Monte Carlo chunk size, the default and
+/// largest sample counts, the waveplate's default acceptance error, and the overlap and phase
+/// limits at which a recombiner breaks).
+///
+/// # Errors
+/// Never in practice.
+#[wasm_bindgen(js_name = designLimits)]
+pub fn design_limits() -> Result<JsValue, JsValue> {
+    use crate::design::{displacer as dd, recombiner as dr};
+    to_js(&serde_json::json!({
+        "chunk_samples": dd::MC_CHUNK,
+        "default_samples": dd::DEFAULT_SAMPLES,
+        "max_samples": dd::MAX_SAMPLES,
+        "default_acceptance_error_waves": crate::design::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES,
+        "recombiner_min_overlap": dr::MIN_OVERLAP,
+        "recombiner_max_phase_rad": dr::MAX_PHASE_ERROR,
+    }))
+}
+
+/// Solves a design request (JSON text, see `doublespar design`); returns the design object.
+///
+/// # Errors
+/// `{field, message}` for a bad request.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = designJson)]
+pub fn design_json(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&design::solve_str(text).map_err(js_error)?)
+}
+
+/// One design run, held by the design worker: the request read and checked once, its nominal
+/// design solved once, then Monte Carlo chunk by chunk (each of [`design_displacer::MC_CHUNK`]
+/// samples, so that the worker reports progress between chunks) and the summary. Chunks
+/// 0, 1, … summarized give exactly the `monte_carlo` of [`design_json`] (and of
+/// `doublespar design`) for the same request.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen]
+pub struct DesignRun {
+    nominal: serde_json::Value,
+    /// The displacer request, its cut tilt (degrees) and length (mm), when it has samples to draw.
+    monte_carlo: Option<(design_displacer::DisplacerRequest, f64, f64)>,
+    /// The samples of each chunk drawn so far, by chunk index.
+    parts: Vec<Option<Vec<f64>>>,
+}
+
+#[cfg(feature = "design-worker")]
+impl DesignRun {
+    /// Reads and checks a request and solves its nominal design; a displacer with samples is
+    /// solved without them (every field but `samples` checked there, then the whole request).
+    fn new_checked(text: &str) -> Result<DesignRun, Error> {
+        let none = |nominal| DesignRun {
+            nominal,
+            monte_carlo: None,
+            parts: Vec::new(),
+        };
+        if text.len() > crate::contract::scenario::MAX_DOCUMENT_BYTES {
+            return Err(Error::new("", "the request is larger than 1 MiB"));
+        }
+        let value: serde_json::Value = crate::contract::fields::parse_text(text)?;
+        let is_displacer = value.get("kind").and_then(serde_json::Value::as_str) == Some("displacer");
+        let has_samples = value.get("samples").is_none_or(|s| s.as_f64() != Some(0.0));
+        if !(is_displacer && has_samples) {
+            return Ok(none(design::solve(&value)?));
+        }
+        let mut without = value.clone();
+        if let Some(m) = without.as_object_mut() {
+            m.insert("samples".into(), serde_json::Value::from(0));
+        }
+        let nominal = design::solve(&without)?;
+        let mut f = Fields::new("", &value)?;
+        f.string("kind")?;
+        let mut req = design_displacer::DisplacerRequest::from_json(&mut f)?;
+        f.finish()?;
+        if req.samples == 0 {
+            return Ok(none(nominal));
+        }
+        let samples = req.samples;
+        req.samples = 0;
+        let d = design_displacer::design(&req)?;
+        req.samples = samples;
+        let parts = vec![None; samples.div_ceil(design_displacer::MC_CHUNK)];
+        Ok(DesignRun {
+            nominal,
+            monte_carlo: Some((req, d.cut_tilt_deg, d.length_mm)),
+            parts,
+        })
+    }
+}
+
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen]
+impl DesignRun {
+    /// Reads a design request (JSON text, see `doublespar design`) and solves its nominal design.
+    ///
+    /// # Errors
+    /// `{field, message}` for a bad request.
+    #[wasm_bindgen(constructor)]
+    pub fn new(text: &str) -> Result<DesignRun, JsValue> {
+        DesignRun::new_checked(text).map_err(js_error)
+    }
+
+    /// The design without its Monte Carlo summary (for a request without samples: the whole
+    /// design).
+    ///
+    /// # Errors
+    /// Never in practice.
+    pub fn nominal(&self) -> Result<JsValue, JsValue> {
+        to_js(&self.nominal)
+    }
+
+    /// Samples the run draws (0: no Monte Carlo run).
+    #[wasm_bindgen(getter)]
+    pub fn samples(&self) -> usize {
+        self.monte_carlo.as_ref().map_or(0, |(r, _, _)| r.samples)
+    }
+
+    /// Chunks the run draws.
+    #[wasm_bindgen(getter)]
+    pub fn chunks(&self) -> usize {
+        self.parts.len()
+    }
+
+    /// Draws chunk `k` (once; again is a no-op) and returns how many samples the run has drawn
+    /// so far, for progress.
+    pub fn chunk(&mut self, k: usize) -> usize {
+        if let (Some((req, tilt, length)), Some(slot)) = (&self.monte_carlo, self.parts.get_mut(k))
+            && slot.is_none()
+        {
+            *slot = Some(design_displacer::monte_carlo_chunk(req, *tilt, *length, k));
+        }
+        let drawn = self.parts.iter().filter(|p| p.is_some()).count();
+        (drawn * design_displacer::MC_CHUNK).min(self.samples())
+    }
+
+    /// The Monte Carlo summary (mean, std, p5, p95, histogram) of every chunk, in chunk order
+    /// (samples the model cannot evaluate are left out), as the design's `monte_carlo`.
+    ///
+    /// # Errors
+    /// `{field: "", message}` when the run has no samples or a chunk was not drawn.
+    pub fn summary(&self) -> Result<JsValue, JsValue> {
+        let Some((req, _, _)) = &self.monte_carlo else {
+            return Err(js_error(Error::new("", "this design run has no Monte Carlo samples")));
+        };
+        let mut all = Vec::with_capacity(req.samples);
+        for (k, part) in self.parts.iter().enumerate() {
+            let part = part
+                .as_ref()
+                .ok_or_else(|| js_error(Error::new("", format!("Monte Carlo chunk {k} was not drawn"))))?;
+            all.extend_from_slice(part);
+        }
+        to_js(&statistics::summarize(&all, req.bins))
+    }
+}
+
+/// Benchmark hook: the dense 10ⁿ-point walk-off sweep of [`crate::optics::sweep::walkoff_sweep_into`]
+/// for calcite-like indices over 0–90°, returning Σ ρ as a checksum (scripts/bench.sh runs it
+/// under Node beside the native build).
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = benchWalkoffSweep)]
+pub fn bench_walkoff_sweep(n: usize) -> f64 {
+    let Ok(ix) = crate::optics::material::Indices::new(1.6556901060179166, 1.484909030214121) else {
+        return f64::NAN;
+    };
+    let mut out = vec![0.0; n];
+    crate::optics::sweep::walkoff_sweep_into(ix, 0.0, std::f64::consts::FRAC_PI_2, &mut out);
+    crate::optics::sweep::checksum(&out)
+}
+
+/// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
+/// points: [[x, y], …], current: [x, y] | null, note}`), for curves computed elsewhere (the design
+/// worker).
+///
+/// # Errors
+/// `{field: "series", message}` when the text is not such a series.
+#[wasm_bindgen(js_name = drawSeries)]
+pub fn draw_series(canvas: &HtmlCanvasElement, series_json: &str, dark: bool) -> Result<(), JsValue> {
+    let value: serde_json::Value =
+        serde_json::from_str(series_json).map_err(|e| js_error(Error::new("series", format!("not JSON: {e}"))))?;
+    let series = crate::view::series::Series::from_json(&value).map_err(js_error)?;
+    let palette = if dark { Palette::dark() } else { Palette::light() };
+    canvas::draw(&view_plot::plot(&series), canvas, &palette)
+}
+
+/// Draws the histogram of a Monte Carlo summary given as JSON text (the `monte_carlo` object of
+/// a displacer design), with the nominal value marked when given.
+///
+/// # Errors
+/// `{field: "summary", message}` when the text is not such a summary.
+#[wasm_bindgen(js_name = drawHistogram)]
+pub fn draw_histogram(
+    canvas: &HtmlCanvasElement,
+    summary_json: &str,
+    title: &str,
+    quantity: &str,
+    unit: &str,
+    nominal: Option<f64>,
+    dark: bool,
+) -> Result<(), JsValue> {
+    let value: serde_json::Value =
+        serde_json::from_str(summary_json).map_err(|e| js_error(Error::new("summary", format!("not JSON: {e}"))))?;
+    let summary = statistics_summary::Summary::from_json(&value).map_err(js_error)?;
+    let palette = if dark { Palette::dark() } else { Palette::light() };
+    canvas::draw(
+        &view_plot::histogram(title, quantity, unit, &summary, nominal),
+        canvas,
+        &palette,
+    )
+}
+
+/// A scenario and its trace, kept between edits.
+#[wasm_bindgen]
+pub struct Session {
+    scenario: Scenario,
+    result: TraceResult,
+}
+
+/// The result as an edit hands it to the page: everything but each ray's `points_mm` polyline,
+/// which only the side view reads, and it is drawn here. For 4096 rays that halves the text to
+/// write and parse; `session.result()` still gives every field.
+fn to_js_without_polylines(result: &mut TraceResult) -> Result<JsValue, JsValue> {
+    let mut polylines: Vec<Vec<[f64; 3]>> = Vec::with_capacity(result.rays.len());
+    for ray in &mut result.rays {
+        polylines.push(std::mem::take(&mut ray.points_mm));
+    }
+    let out = to_js(result);
+    for (ray, points) in result.rays.iter_mut().zip(polylines) {
+        ray.points_mm = points;
+    }
+    out
+}
+
+impl Session {
+    fn accept(&mut self, parsed: Result<Scenario, Error>) -> Result<JsValue, JsValue> {
+        let scenario = parsed.map_err(js_error)?;
+        let mut result = trace(&scenario).map_err(js_error)?;
+        let out = to_js_without_polylines(&mut result)?;
+        self.scenario = scenario;
+        self.result = result;
+        Ok(out)
+    }
+}
+
+#[wasm_bindgen]
+impl Session {
+    /// A session showing the demo scenario.
+    ///
+    /// # Errors
+    /// Only if the built-in demo were invalid (tested natively).
+    #[wasm_bindgen(constructor)]
+    pub fn new() -> Result<Session, JsValue> {
+        let scenario = Scenario::from_json_str(DEMO).map_err(js_error)?;
+        let result = trace(&scenario).map_err(js_error)?;
+        Ok(Session { scenario, result })
+    }
+
+    /// Traces a scenario given as JSON text and keeps it. Returns the result object.
+    ///
+    /// # Errors
+    /// `{field, message}` for a bad scenario; the previous scenario and result are kept.
+    #[wasm_bindgen(js_name = updateJson)]
+    pub fn update_json(&mut self, text: &str) -> Result<JsValue, JsValue> {
+        self.accept(Scenario::from_json_str(text))
+    }
+
+    /// Traces a scenario given as a plain JavaScript object and keeps it. The object goes through
+    /// `JSON.stringify` and the strict reader of [`Session::update_json`], so that both forms
+    /// read one text the same way (and the module carries one reader).
+    ///
+    /// # Errors
+    /// As [`Session::update_json`].
+    pub fn update(&mut self, scenario: JsValue) -> Result<JsValue, JsValue> {
+        let text = js_sys::JSON::stringify(&scenario)
+            .ok()
+            .and_then(|t| t.as_string())
+            .ok_or_else(|| js_error(Error::new("", "not a scenario object: JSON.stringify refused it")))?;
+        self.accept(Scenario::from_json_str(&text))
+    }
+
+    /// The current result object.
+    ///
+    /// # Errors
+    /// Never in practice.
+    pub fn result(&self) -> Result<JsValue, JsValue> {
+        to_js(&self.result)
+    }
+
+    /// The current scenario with every default written out, as JSON text.
+    #[wasm_bindgen(js_name = scenarioJson)]
+    pub fn scenario_json(&self) -> String {
+        self.scenario.to_json().to_string()
+    }
+
+    /// The display list of a view, for tests and tools.
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view.
+    pub fn scene(&self, view: &str) -> Result<JsValue, JsValue> {
+        to_js(&views::build(view, &self.scenario, &self.result).map_err(js_error)?)
+    }
+
+    /// Draws a view on a canvas, in the dark or light palette.
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view; a JavaScript error if the canvas fails.
+    pub fn draw(&self, view: &str, canvas: &HtmlCanvasElement, dark: bool) -> Result<(), JsValue> {
+        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let palette = if dark { Palette::dark() } else { Palette::light() };
+        canvas::draw(&scene, canvas, &palette)
+    }
+
+    /// The data of a plot view as `{title, x_label, x_unit, y_label, y_unit, points, current,
+    /// note}`, or `null` for a view that is not a plot (for CSV and JSON export).
+    ///
+    /// # Errors
+    /// `{field, message}` if the formula breaks down.
+    pub fn series(&self, view: &str) -> Result<JsValue, JsValue> {
+        match views::series(view, &self.scenario).map_err(js_error)? {
+            Some(s) => to_js(&s),
+            None => Ok(JsValue::NULL),
+        }
+    }
+
+    /// A view as an SVG document of the given size in pixels (50 to 10 000 each).
+    ///
+    /// # Errors
+    /// `{field: "view", message}` for an unknown view; `width` or `height` out of range.
+    pub fn svg(&self, view: &str, width: f64, height: f64, dark: bool) -> Result<String, JsValue> {
+        let width = in_range("width", width, 50.0, 10_000.0).map_err(js_error)?;
+        let height = in_range("height", height, 50.0, 10_000.0).map_err(js_error)?;
+        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let palette = if dark { Palette::dark() } else { Palette::light() };
+        Ok(svg::to_svg(&scene, width, height, &palette))
+    }
+}
