@@ -17,7 +17,7 @@ use doublespar::Scenario;
 use doublespar::Wavelength;
 use doublespar::trace_scenario as trace;
 use doublespar::walkoff;
-use doublespar::{plate_optics, tangential};
+use doublespar::{OpticAxis, plate_optics, tangential};
 use std::hint::black_box;
 use std::time::Instant;
 
@@ -81,10 +81,13 @@ fn main() {
     );
 
     let wl = Wavelength::from_nm(632.8).unwrap();
-    let qt = tangential(1.0, 10.0, 30.0);
+    let qt = tangential(1.0, 10f64.to_radians(), 30f64.to_radians());
     let (t_exact, _) = time(7, || {
         (0..100_000)
-            .filter_map(|i| plate_optics(ix, 90.0 * i as f64 / 99_999.0, 15.0, 1.0, wl, qt))
+            .filter_map(|i| {
+                let tilt = (90.0 * i as f64 / 99_999.0).to_radians();
+                plate_optics(ix, OpticAxis::from_angles(tilt, 15f64.to_radians()), 1.0, wl, qt)
+            })
             .map(|p| p.walkoff_rad)
             .sum()
     });

@@ -4,7 +4,7 @@
 //!
 //! | layer | folder | what it holds |
 //! |---|---|---|
-//! | foundation | `error.rs`, `numfmt.rs`, `precision.rs` | the error type, how numbers are written, every tolerance |
+//! | foundation | `error.rs`, `numfmt.rs`, `precision.rs`, `random.rs` | the error type, how numbers are written, every tolerance, the seeded generator |
 //! | physics | `optics/` | media, modes, faces, Jones/Stokes, the stack and its trace (SI, radians, no JSON) |
 //! | documents | `contract/` | the scenario read field by field, resolved into a stack; the result document |
 //! | design | `design/` | solvers that size parts, their requests and Monte Carlo statistics |
@@ -21,6 +21,7 @@ mod error;
 mod numfmt;
 mod optics;
 mod precision;
+mod random;
 mod view;
 #[cfg(target_arch = "wasm32")]
 mod web;
@@ -31,8 +32,9 @@ pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
 pub use precision::assert_within;
 
 // Documents.
+pub use contract::resolve::axis_from_degrees;
+pub use contract::result::{ElementReport, TraceResult, trace_scenario};
 pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
-pub use optics::trace::{ElementReport, TraceResult, trace as trace_scenario};
 
 // Physics.
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
@@ -46,8 +48,9 @@ pub use optics::wavelength::Wavelength;
 
 // Design.
 pub use design::recombiner::{MAX_PHASE_ERROR as RECOMBINER_MAX_PHASE_ERROR, MIN_OVERLAP as RECOMBINER_MIN_OVERLAP};
-pub use design::statistics::{Rng, summarize};
+pub use design::statistics::summarize;
 pub use design::{KINDS as DESIGN_KINDS, solve as solve_design, solve_str as solve_design_str};
+pub use random::Rng;
 
 // Views.
 pub use view::label_layout::{Layout, Placement, layout, layout_with, problems};

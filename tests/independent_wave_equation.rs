@@ -94,7 +94,7 @@
 
 use doublespar::Indices;
 use doublespar::{Mode, Travel, crystal_modes};
-use doublespar::{OpticAxis, Uniaxial};
+use doublespar::{Uniaxial, axis_from_degrees};
 use nalgebra::{Matrix3, Matrix4, Vector3, Vector4};
 use num_complex::Complex64;
 use std::fmt;
@@ -591,10 +591,7 @@ fn ordinary_field_near_the_optic_axis_solves_the_wave_equation() {
     // The o-wave must satisfy the wave equation (and ∇·D = 0) here like anywhere else; the two modes
     // are nearly degenerate, but any exact mode is still an exact null vector.
     let (no, ne, tilt, az) = (1.6557, 1.4849, 30.0, 40.0);
-    let crystal = Uniaxial::new(
-        Indices::new(no, ne).unwrap(),
-        OpticAxis::from_degrees(tilt, az).unwrap(),
-    );
+    let crystal = Uniaxial::new(Indices::new(no, ne).unwrap(), axis_from_degrees(tilt, az).unwrap());
     let c = axis_unit(tilt, az);
     let eps = permittivity(no, ne, &c);
     let mut report = Vec::new();
@@ -648,7 +645,7 @@ fn crate_modes_agree_with_the_general_4x4_method() {
         let qt = case.qt();
         let crystal = Uniaxial::new(
             Indices::new(case.no, case.ne).unwrap(),
-            OpticAxis::from_degrees(case.tilt, case.az).unwrap(),
+            axis_from_degrees(case.tilt, case.az).unwrap(),
         );
         let c = axis_unit(case.tilt, case.az);
         let eps = permittivity(case.no, case.ne, &c);

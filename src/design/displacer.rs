@@ -20,8 +20,9 @@
 //! given standard deviations and traces each sample exactly.
 
 use crate::contract::fields::{Fields, number_list};
+use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
-use crate::design::statistics::{Rng, Summary, summarize};
+use crate::design::statistics::{Summary, summarize};
 use crate::error::{Error, above, in_range};
 use crate::numfmt::quote;
 use crate::optics::material::{self, Indices};
@@ -29,6 +30,7 @@ use crate::optics::plate::{plate_optics, tangential};
 use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{DIFF_STEP_INCIDENCE_DEG, DIFF_STEP_WAVELENGTH_NM, NO_BIREFRINGENCE, NO_WALKOFF_RAD};
+use crate::random::Rng;
 use serde::Serialize;
 use serde_json::{Value, json};
 
@@ -378,7 +380,8 @@ pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, 
 fn separation(medium: &Medium, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
     let ix = indices_of(medium, wl).ok()?;
-    plate_optics(ix, tilt_deg, 0.0, l, wl, tangential(1.0, polar_deg, 0.0)).map(|p| p.separation_mm)
+    let axis = axis_from_degrees(tilt_deg, 0.0).ok()?;
+    plate_optics(ix, axis, l, wl, tangential(1.0, polar_deg.to_radians(), 0.0)).map(|p| p.separation_mm)
 }
 
 /// d²(tan ρ)/dθ² for the walk-off of [`walkoff`] at normal incidence.
@@ -461,7 +464,9 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     }
     let length_mm = req.separation_mm / rho.tan().abs();
     let nm = req.wavelength.nm();
-    let optics = plate_optics(ix, tilt, 0.0, length_mm, req.wavelength, [0.0, 0.0])
+    let optics = axis_from_degrees(tilt, 0.0)
+        .ok()
+        .and_then(|axis| plate_optics(ix, axis, length_mm, req.wavelength, [0.0, 0.0]))
         .ok_or_else(|| Error::new("separation_mm", "the plate model cannot be evaluated at the design"))?;
     // d|ρ|/dθ is dimensionless (rad/rad = °/°); the second derivative per degree² is the one per
     // radian² times π/180 (ρ in degrees: × 180/π; θ in degrees: × (π/180)²).
@@ -601,8 +606,8 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
-    use crate::optics::trace::{ElementReport, trace};
     use crate::precision::assert_close;
 
     fn request(doc: &str) -> DisplacerRequest {

@@ -325,7 +325,7 @@ mod tests {
         );
         let warnings = strings(&d["warnings"]);
         let sc = Scenario::from_json(&d["scenario"]).unwrap();
-        let traced = crate::optics::trace::trace(&sc).unwrap().warnings;
+        let traced = crate::contract::result::trace_scenario(&sc).unwrap().warnings;
         assert_eq!(traced.len(), 1, "{traced:?}");
         let sentence = traced[0].strip_prefix("elements[0]: ").unwrap();
         assert_eq!(warnings, [format!("wavelength_nm: {sentence}")]);
@@ -440,7 +440,7 @@ mod tests {
             assert_eq!(n, 1, "{doc}");
             // The scenario it hands on is traced with the same warning.
             let sc = Scenario::from_json(&d["scenario"]).unwrap();
-            let t = crate::optics::trace::trace(&sc).unwrap();
+            let t = crate::contract::result::trace_scenario(&sc).unwrap();
             assert!(
                 t.warnings
                     .iter()

@@ -17,11 +17,11 @@
 //! page and the command line show.
 
 use crate::contract::fields::Fields;
+use crate::contract::result::trace_scenario as trace;
 use crate::contract::scenario::{Medium, Scenario};
 use crate::design::displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
 use crate::error::{Error, above, in_range};
 use crate::optics::beam_overlap::GaussianBeam;
-use crate::optics::trace::trace;
 use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{

@@ -1,9 +1,6 @@
-//! Summary statistics of samples and a seeded normal random generator, for tolerance runs.
+//! Summary statistics of samples, for tolerance runs (the samples come from
+//! [`crate::random::Rng`]).
 //!
-//! The generator is xorshift64* (S. Vigna, "An experimental exploration of Marsaglia's xorshift
-//! generators, scrambled", ACM TOMS 42 (2016)) with the Box–Muller transform (G. E. P. Box and
-//! M. E. Muller, Ann. Math. Statist. 29, 610 (1958)) for normal deviates: small, fast,
-//! reproducible from a seed, and good enough for Monte Carlo tolerancing (not for cryptography).
 //! Percentiles use linear interpolation between order statistics (the "type 7" rule of
 //! R. J. Hyndman and Y. Fan, Am. Stat. 50, 361 (1996)), the default of common numerical tools.
 
@@ -11,44 +8,6 @@ use crate::contract::fields::{Fields, as_number, type_name};
 use crate::error::Error;
 use serde::Serialize;
 use serde_json::Value;
-
-/// A seeded pseudo-random generator of uniform and normal deviates.
-#[derive(Debug, Clone)]
-pub struct Rng {
-    state: u64,
-    spare: Option<f64>,
-}
-
-impl Rng {
-    /// A generator from a seed (any value; 0 is remapped).
-    pub fn new(seed: u64) -> Rng {
-        Rng {
-            state: seed ^ 0x9E37_79B9_7F4A_7C15 | 1,
-            spare: None,
-        }
-    }
-
-    /// A uniform deviate in (0, 1).
-    pub fn uniform(&mut self) -> f64 {
-        self.state ^= self.state >> 12;
-        self.state ^= self.state << 25;
-        self.state ^= self.state >> 27;
-        let x = self.state.wrapping_mul(0x2545_F491_4F6C_DD1D);
-        ((x >> 11) as f64 + 0.5) / (1u64 << 53) as f64
-    }
-
-    /// A standard normal deviate.
-    pub fn normal(&mut self) -> f64 {
-        if let Some(s) = self.spare.take() {
-            return s;
-        }
-        let (u, v) = (self.uniform(), self.uniform());
-        let r = (-2.0 * u.ln()).sqrt();
-        let t = std::f64::consts::TAU * v;
-        self.spare = Some(r * t.sin());
-        r * t.cos()
-    }
-}
 
 /// A histogram with equal bins.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -209,7 +168,7 @@ mod tests {
 
     #[test]
     fn normal_deviates_have_unit_spread() {
-        let mut r = Rng::new(7);
+        let mut r = crate::random::Rng::new(7);
         let xs: Vec<f64> = (0..200_000).map(|_| r.normal()).collect();
         let s = summarize(&xs, 20);
         assert!(s.mean.abs() < 0.01, "{}", s.mean);

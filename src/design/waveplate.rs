@@ -23,6 +23,7 @@
 //! memory).
 
 use crate::contract::fields::{Fields, number_list};
+use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
 use crate::design::displacer::{band, crystal_element, indices_of, medium_name, parse_medium, wavelength_field, whole};
 use crate::error::{Error, in_range};
@@ -181,7 +182,7 @@ fn stack_retardance(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2]) -> Opt
     let mut total = 0.0;
     for (medium, l, az) in plates {
         let ix = indices_of(medium, wl).ok()?;
-        let p = plate_optics(ix, 90.0, *az, *l, wl, qt)?;
+        let p = plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, *l, wl, qt)?;
         let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
         total += if crossed { -p.retardance_rad } else { p.retardance_rad };
     }
@@ -193,7 +194,14 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
     [0.0, 45.0, 90.0]
         .iter()
         .map(|&plane| {
-            let at = |deg: f64| stack_retardance(plates, nm, tangential(1.0, deg, axis_az + plane)).map(|g| g / TAU);
+            let at = |deg: f64| {
+                stack_retardance(
+                    plates,
+                    nm,
+                    tangential(1.0, deg.to_radians(), (axis_az + plane).to_radians()),
+                )
+                .map(|g| g / TAU)
+            };
             let g0 = at(0.0).unwrap_or(0.0);
             let steps = 200;
             let curve: Vec<[f64; 2]> = (0..=steps)
@@ -489,7 +497,7 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     let signed = |m: &Medium, l: f64, az: f64, nm: f64| -> Option<f64> {
         let wl = Wavelength::from_nm(nm).ok()?;
         let ix = indices_of(m, wl).ok()?;
-        let p = plate_optics(ix, 90.0, 0.0, l, wl, [0.0, 0.0])?;
+        let p = plate_optics(ix, axis_from_degrees(90.0, 0.0).ok()?, l, wl, [0.0, 0.0])?;
         Some(
             if az == 90.0 {
                 -p.retardance_rad
@@ -530,8 +538,8 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
-    use crate::optics::trace::{ElementReport, trace};
 
     fn fields(doc: &str) -> Value {
         serde_json::from_str(doc).unwrap()

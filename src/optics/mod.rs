@@ -9,6 +9,7 @@ pub mod material;
 pub mod modes;
 pub mod plate;
 pub mod spots;
+pub mod stack;
 pub mod stokes;
 pub mod sweep;
 pub mod trace;

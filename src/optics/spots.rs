@@ -517,8 +517,8 @@ fn on_grid(fields: &[([f64; 2], JonesMatrix)], c_in: &JonesMatrix, beam: &Gaussi
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::design::statistics::Rng;
     use crate::precision::assert_close;
+    use crate::random::Rng;
 
     #[test]
     fn spots_are_the_connected_groups_of_rays_at_most_one_diameter_apart() {

@@ -15,9 +15,9 @@
 //! view's one length unit, which the scale bar shares; a cross marks where the undeviated
 //! incident beam would be.
 
+use crate::contract::result::TraceResult;
 use crate::numfmt::{LengthUnit, NO_POWER, length, power, sig};
 use crate::optics::stokes::{Handedness, ellipse};
-use crate::optics::trace::TraceResult;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 
 /// Builds the end view of a traced result for a beam of `diameter_mm`.
@@ -281,8 +281,8 @@ pub fn polarization_glyph(scene: &mut Scene, c: Point, a: f64, s: &[f64; 4], tag
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::trace_scenario as trace;
     use crate::contract::scenario::Scenario;
-    use crate::optics::trace::trace;
 
     fn build(doc: &str) -> (TraceResult, Scene) {
         let sc = Scenario::from_json_str(doc).unwrap();
@@ -344,7 +344,7 @@ mod tests {
     #[test]
     fn the_hull_holds_the_farthest_pair() {
         // Cross-method: the farthest pair over the hull equals the brute-force farthest pair.
-        let mut rng = crate::design::statistics::Rng::new(11);
+        let mut rng = crate::random::Rng::new(11);
         for n in [1usize, 2, 3, 5, 40, 300] {
             let pts: Vec<Point> = (0..n).map(|_| [rng.normal(), 0.3 * rng.normal()]).collect();
             let far = |idx: &[usize]| {

@@ -682,7 +682,7 @@ mod tests {
     fn random_scenes_at_random_sizes_never_collide() {
         // Invariant over generated scenes: whatever the labels wish, the placed ones neither
         // overlap nor leave the panel.
-        let mut rng = crate::design::statistics::Rng::new(7);
+        let mut rng = crate::random::Rng::new(7);
         let words = [
             "o",
             "eeoe",

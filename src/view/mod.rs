@@ -6,9 +6,9 @@
 //! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots
 //! describe the first crystal of the stack.
 
+use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
 use crate::error::Error;
-use crate::optics::trace::TraceResult;
 use crate::view::scene::Scene;
 pub mod end;
 pub mod label_layout;
@@ -77,7 +77,7 @@ pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>,
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::optics::trace::trace;
+    use crate::contract::result::trace_scenario as trace;
 
     #[test]
     fn every_view_of_every_example_is_drawable() {

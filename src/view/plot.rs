@@ -285,7 +285,7 @@ mod tests {
 
     #[test]
     fn histograms_hold_every_sample_and_mark_the_percentiles() {
-        let mut rng = crate::design::statistics::Rng::new(2);
+        let mut rng = crate::random::Rng::new(2);
         let xs: Vec<f64> = (0..5000).map(|_| 2.0 + 0.01 * rng.normal()).collect();
         let s = crate::design::statistics::summarize(&xs, 30);
         let scene = histogram("Separation spread", "separation", "mm", &s, Some(2.0));

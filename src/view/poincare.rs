@@ -10,8 +10,8 @@
 //! ([`NO_POWER`]) has no state to plot and is listed as such. Conventions: S3 > 0 is right-handed
 //! (north pole = right circular).
 
+use crate::contract::result::TraceResult;
 use crate::numfmt::{NO_POWER, fixed};
-use crate::optics::trace::TraceResult;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene};
 use std::f64::consts::TAU;
 
@@ -173,8 +173,8 @@ pub fn poincare_view(result: &TraceResult) -> Scene {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::trace_scenario as trace;
     use crate::contract::scenario::Scenario;
-    use crate::optics::trace::trace;
 
     #[test]
     fn states_sit_where_their_stokes_vectors_project() {

@@ -9,6 +9,7 @@
 
 #[cfg(any(test, target_arch = "wasm32"))]
 use crate::contract::fields::{Fields, number_list};
+use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
 use crate::error::Error;
 use crate::optics::material::Indices;
@@ -126,7 +127,8 @@ fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
 
 /// (walk-off rad, separation mm, retardance rad) of one plate, or None if a mode is evanescent.
 fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
-    plate_optics(ix, tilt, az, l, wl, qt).map(|p| (p.walkoff_rad, p.separation_mm, p.retardance_rad))
+    plate_optics(ix, axis_from_degrees(tilt, az).ok()?, l, wl, qt)
+        .map(|p| (p.walkoff_rad, p.separation_mm, p.retardance_rad))
 }
 
 fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {
@@ -251,7 +253,7 @@ pub fn retardance_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::optics::trace::{ElementReport, trace};
+    use crate::contract::result::{ElementReport, trace_scenario as trace};
 
     #[test]
     fn sweeps_pass_through_the_traced_point() {

@@ -19,9 +19,9 @@
 //! ([`LengthUnit::for_values`]); rays that carry no power ([`NO_POWER`]) are drawn thin and grey
 //! and their spot is labelled "no power".
 
+use crate::contract::result::{ElementReport, TraceResult};
 use crate::contract::scenario::{ElementKind, Scenario};
 use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
-use crate::optics::trace::{ElementReport, TraceResult};
 use crate::optics::uniaxial::OpticAxis;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 
@@ -143,7 +143,9 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
                     Anchor::Middle,
                     Role::Caption,
                 );
-                if let Ok(axis) = OpticAxis::from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg) {
+                if let Ok(axis) =
+                    crate::contract::resolve::axis_from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg)
+                {
                     axis_mark(
                         &mut scene,
                         axis,
@@ -543,7 +545,7 @@ fn walkoff_mark(scene: &mut Scene, at: Point, k: [f64; 3], ray: [f64; 3], walkof
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::optics::trace::trace;
+    use crate::contract::result::trace_scenario as trace;
 
     fn build(doc: &str) -> (TraceResult, Scene) {
         let sc = Scenario::from_json_str(doc).unwrap();

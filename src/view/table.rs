@@ -7,9 +7,9 @@
 //! [`crate::numfmt::NO_POWER`] reads "no power"; circular light shows no azimuth. Elements and
 //! spots are numbered from 1, as on the page.
 
+use crate::contract::result::{ElementReport, TraceResult};
 use crate::numfmt::{fixed_within, power, shows_azimuth};
 use crate::optics::stokes::{Ellipse, Handedness};
-use crate::optics::trace::{ElementReport, TraceResult};
 use std::fmt::Write;
 
 /// The most characters a number takes in the table (sign excluded).
@@ -204,8 +204,8 @@ pub fn render(r: &TraceResult) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::trace_scenario as trace;
     use crate::contract::scenario::Scenario;
-    use crate::optics::trace::trace;
 
     fn table(doc: &str) -> String {
         render(&trace(&Scenario::from_json_str(doc).unwrap()).unwrap())

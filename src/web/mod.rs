@@ -9,10 +9,10 @@
 
 #[cfg(feature = "design-worker")]
 use crate::contract::fields::Fields;
+use crate::contract::result::{TraceResult, trace_scenario as trace};
 use crate::contract::scenario::Scenario;
 use crate::design::statistics as statistics_summary;
 use crate::error::{Error, in_range};
-use crate::optics::trace::{TraceResult, trace};
 use crate::view::svg::{self, Palette};
 mod canvas;
 #[cfg(feature = "design-worker")]

@@ -1,0 +1,588 @@
+//! The result document of a trace, built in one place from a [`Trace`].
+//!
+//! [`report`] turns the physics of [`crate::optics::trace`] into the contract's result
+//! (`TraceResult`: the input state, every ray, every element's report, the spots, warnings):
+//! output Stokes vectors Mueller(M)·S_in and Jones vectors M·J_in of each path, mode reports in
+//! degrees, separations and retardances of each crystal, powers lost at faces and polarizers, and
+//! the spots where beams overlap on the exit plane ([`crate::optics::spots`]: each pair weighted
+//! by the overlap of its two Gaussian beams, so that for rays that leave from one point the
+//! spot's matrix is Σ M over its paths and its Stokes vector Mueller(Σ M)·S_in). Powers are
+//! fractions of the input power; angles are in degrees, lengths in mm (CONVENTIONS.md).
+//!
+//! [`trace_scenario`] is the whole way through: resolve the document into a stack, trace it,
+//! report it.
+
+use crate::contract::resolve::Warning;
+use crate::contract::scenario::{ElementKind, Medium as Material, Scenario};
+use crate::error::Error;
+use crate::optics::beam_overlap::GaussianBeam;
+use crate::optics::interface::Losses;
+use crate::optics::jones::to_json;
+use crate::optics::modes::{Mode, ModeKind, beam_basis};
+pub use crate::optics::spots::Spot;
+use crate::optics::spots::{Exit, group_spots};
+use crate::optics::stack::{Element, Medium, Stack};
+use crate::optics::stokes::{self, Ellipse};
+use crate::optics::trace::{LayerTrace, Trace, trace};
+use crate::optics::uniaxial::{OpticAxis, angle_between, max_walkoff_cut};
+use crate::precision::POWER_ROUNDING;
+use nalgebra::Vector3;
+use serde::Serialize;
+use std::f64::consts::TAU;
+
+pub use crate::optics::jones::JonesJson;
+
+/// One output ray.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Ray {
+    /// One letter per crystal crossed, "o" or "e", in order.
+    pub label: String,
+    /// Power as a fraction of the input power.
+    pub power: f64,
+    /// Lateral exit point [x, y] on the back face of the last element, mm.
+    pub exit_position_mm: [f64; 2],
+    /// z of that face, mm.
+    pub exit_z_mm: f64,
+    /// Unit direction of the ray after the stack (the incident direction).
+    pub direction: [f64; 3],
+    /// Stokes vector [S0, S1, S2, S3] on the beam basis.
+    pub stokes: [f64; 4],
+    /// Degree of polarization.
+    pub degree_of_polarization: f64,
+    /// Polarization ellipse.
+    pub ellipse: Ellipse,
+    /// Jones vector on the beam basis, including the path's phase (fully polarized input only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub jones: Option<JonesJson>,
+    /// Accumulated propagation phase Σ k0 q_z L over layers and gaps, radians.
+    pub phase_rad: f64,
+    /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm: the polyline it
+    /// follows through the stack (the last point is the exit point). Never empty in a trace;
+    /// left out of the JSON when emptied (the page's bindings do, for speed).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub points_mm: Vec<[f64; 3]>,
+}
+
+/// Whether a mode carries power into the crystal.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ModeStatus {
+    /// The mode propagates.
+    Propagating,
+    /// The mode is evanescent (total internal reflection): no ray.
+    Evanescent,
+}
+
+/// One mode of one crystal, at the stack's tangential wave vector.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ModeReport {
+    /// Propagating or evanescent.
+    pub status: ModeStatus,
+    /// |k|/k0 (null if evanescent).
+    pub index: Option<f64>,
+    /// Angle between wave vector and ray, degrees (null if evanescent).
+    pub walkoff_deg: Option<f64>,
+    /// Unit vector, perpendicular to the wave vector, toward which the ray leans (null without
+    /// walk-off).
+    pub walkoff_direction: Option<[f64; 3]>,
+    /// Angle between the wave vector and the optic axis, degrees.
+    pub angle_to_axis_deg: Option<f64>,
+    /// Normal component of k/k0 (real part for an evanescent mode).
+    pub qz: f64,
+    /// Decay constant Im(k_z)/k0 of an evanescent mode (0 when propagating).
+    pub decay: f64,
+    /// Unit wave vector.
+    pub wave_vector: Option<[f64; 3]>,
+    /// Unit ray (Poynting) direction.
+    pub ray_direction: Option<[f64; 3]>,
+    /// Unit displacement vector D (its sign is a convention).
+    pub d_polarization: Option<[f64; 3]>,
+    /// Unit electric field E.
+    pub e_polarization: Option<[f64; 3]>,
+    /// Lateral shift [dx, dy] of this mode's ray across the plate, mm.
+    pub lateral_shift_mm: Option<[f64; 2]>,
+}
+
+/// What one element did.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "lowercase")]
+// One report per element, built once per trace: the size difference between variants costs
+// nothing worth a Box and would complicate the pattern matches that read the reports.
+#[allow(clippy::large_enum_variant)]
+pub enum ElementReport {
+    /// A crystal plate.
+    Crystal {
+        /// Catalogue key, or "custom".
+        material: String,
+        /// Ordinary index at the wavelength.
+        no: f64,
+        /// Extraordinary principal index at the wavelength.
+        ne: f64,
+        /// Thickness, mm.
+        thickness_mm: f64,
+        /// z of the front face, mm.
+        z_front_mm: f64,
+        /// z of the back face, mm.
+        z_back_mm: f64,
+        /// The ordinary mode.
+        o: ModeReport,
+        /// The extraordinary mode.
+        e: ModeReport,
+        /// Distance between the exit points of the o- and e-ray of one input ray, mm.
+        separation_mm: Option<f64>,
+        /// e-ray exit point minus o-ray exit point [dx, dy], mm.
+        separation_vector_mm: Option<[f64; 2]>,
+        /// k0 (q_z,e − q_z,o) L, radians: positive when the e-mode is slower.
+        retardance_rad: Option<f64>,
+        /// The same in waves.
+        retardance_waves: Option<f64>,
+        /// Cut angle (between optic axis and plate normal) of maximum walk-off at normal incidence
+        /// for this material at this wavelength, degrees: tan θ = n_e/n_o.
+        max_walkoff_cut_deg: f64,
+        /// That maximum walk-off, degrees: tan ρ = |n_e² − n_o²| / (2 n_o n_e).
+        max_walkoff_deg: f64,
+        /// Power entering this plate (sum over its input rays).
+        power_in: f64,
+        /// Power reflected at its two faces and lost (0 for ideal faces).
+        reflected_power: f64,
+    },
+    /// An ideal retarder.
+    Retarder {
+        /// Retardance, radians.
+        retardance_rad: f64,
+        /// Power entering.
+        power_in: f64,
+    },
+    /// An ideal polarizer.
+    Polarizer {
+        /// Power entering.
+        power_in: f64,
+        /// Power absorbed.
+        absorbed_power: f64,
+    },
+    /// An ideal rotator.
+    Rotator {
+        /// Rotation, degrees.
+        angle_deg: f64,
+        /// Power entering.
+        power_in: f64,
+    },
+}
+
+/// The input state, as the trace understood it.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct InputState {
+    /// Stokes vector, S0 = 1.
+    pub stokes: [f64; 4],
+    /// Degree of polarization.
+    pub degree_of_polarization: f64,
+    /// Ellipse.
+    pub ellipse: Ellipse,
+    /// Unit-power Jones vector, when fully polarized.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub jones: Option<JonesJson>,
+    /// Unit direction of incidence.
+    pub direction: [f64; 3],
+    /// The Jones basis vectors e1, e2 in the lab frame (x̂, ŷ at normal incidence).
+    pub jones_basis: [[f64; 3]; 2],
+}
+
+/// The traced result of a scenario.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TraceResult {
+    /// Contract version.
+    pub version: u32,
+    /// Vacuum wavelength, nm.
+    pub wavelength_nm: f64,
+    /// The input beam's state.
+    pub input: InputState,
+    /// Every output ray.
+    pub rays: Vec<Ray>,
+    /// Per element, in stack order.
+    pub elements: Vec<ElementReport>,
+    /// Output rays grouped where their beams overlap on the exit plane.
+    pub spots: Vec<Spot>,
+    /// Sum of the spots' powers.
+    pub total_power: f64,
+    /// Things the reader must know (validity ranges, evanescent modes, untraced reflections).
+    pub warnings: Vec<String>,
+}
+
+fn arr3(v: Vector3<f64>) -> [f64; 3] {
+    [v.x, v.y, v.z]
+}
+
+/// Power lost between `before` and `after`, with rounding below [`POWER_ROUNDING`] of `before`
+/// reported as exactly zero (an ideal face loses nothing; 1e-16 would only be noise).
+fn lost_power(before: f64, after: f64) -> f64 {
+    let lost = before - after;
+    if lost <= POWER_ROUNDING * before.abs().max(f64::MIN_POSITIVE) {
+        0.0
+    } else {
+        lost
+    }
+}
+
+fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
+    let unit = |v: Vector3<f64>| {
+        let n = v.norm();
+        (n > 0.0).then(|| arr3(v / n))
+    };
+    if !mode.propagating {
+        return ModeReport {
+            status: ModeStatus::Evanescent,
+            index: None,
+            walkoff_deg: None,
+            walkoff_direction: None,
+            angle_to_axis_deg: None,
+            qz: mode.qz().re,
+            decay: mode.qz().im.abs(),
+            wave_vector: None,
+            ray_direction: None,
+            d_polarization: None,
+            e_polarization: None,
+            lateral_shift_mm: None,
+        };
+    }
+    let k = mode.wave_vector();
+    let s = mode.ray_direction().unwrap_or(k / k.norm());
+    let khat = k / k.norm();
+    let lean = s - khat * s.dot(&khat);
+    // The o-wave's ray is its wave vector exactly; say so rather than report rounding.
+    let walkoff = if mode.kind == ModeKind::Ordinary {
+        0.0
+    } else {
+        angle_between(&k, &s)
+    };
+    let angle_axis = angle_between(&k, &axis.unit());
+    ModeReport {
+        status: ModeStatus::Propagating,
+        index: Some(mode.index()),
+        walkoff_deg: Some(walkoff.to_degrees()),
+        walkoff_direction: if lean.norm() > 1e-15 { unit(lean) } else { None },
+        angle_to_axis_deg: Some(angle_axis.to_degrees()),
+        qz: mode.qz().re,
+        decay: 0.0,
+        wave_vector: Some(arr3(khat)),
+        ray_direction: Some(arr3(s)),
+        d_polarization: unit(mode.d.map(|z| z.re)),
+        e_polarization: unit(mode.e.map(|z| z.re)),
+        lateral_shift_mm: Some([thickness_mm * s.x / s.z, thickness_mm * s.y / s.z]),
+    }
+}
+
+/// Resolves, traces and reports a scenario: the whole way from document to result.
+///
+/// # Errors
+/// From [`Scenario::resolve`]: `wavelength_nm` when a material's dispersion formula breaks down
+/// at the wavelength (the message names the element).
+pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
+    let (stack, warnings) = sc.resolve()?;
+    let traced = trace(&stack);
+    Ok(report(sc, &stack, &traced, warnings))
+}
+
+/// The result document of `traced`, the trace of `stack` resolved from `sc` with `warnings`.
+pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warning>) -> TraceResult {
+    let k0 = stack.wavelength.k0_per_mm();
+    let u = stack.input.direction;
+    let (e1, e2) = beam_basis(u);
+    let (j_in, s_in) = (stack.input.jones, stack.input.stokes);
+    let mut notes: Vec<String> = Vec::new();
+    let mut reports = Vec::with_capacity(traced.layers.len());
+    let parts = sc.elements.iter().zip(&stack.layers).zip(&traced.layers);
+    for (idx, ((el, layer), lt)) in parts.enumerate() {
+        notes.extend(warnings.iter().filter(|w| w.element == idx).map(|w| w.text.clone()));
+        match (el.kind, layer.element, lt) {
+            (
+                ElementKind::Crystal(plate),
+                Element::Slab(slab),
+                LayerTrace::Slab {
+                    modes,
+                    shifts_mm: shifts,
+                    z_front_mm,
+                    z_back_mm,
+                    power_in,
+                    power_out,
+                    faces_solved,
+                },
+            ) => {
+                let Medium::Uniaxial(crystal) = slab.medium;
+                let (indices, axis, l) = (crystal.indices, crystal.axis, slab.thickness_mm);
+                for (mode, name_m) in modes.iter().zip(["ordinary", "extraordinary"]) {
+                    if !mode.propagating {
+                        notes.push(format!(
+                            "elements[{idx}]: the {name_m} mode is evanescent at this incidence (total internal reflection); it carries no ray"
+                        ));
+                    }
+                }
+                if !faces_solved {
+                    notes.push(format!(
+                        "elements[{idx}]: the faces cannot be solved at this incidence; no light passes"
+                    ));
+                }
+                let both = modes[0].propagating && modes[1].propagating;
+                let sep_vec = [shifts[1][0] - shifts[0][0], shifts[1][1] - shifts[0][1]];
+                let retardance = k0 * (modes[1].qz().re - modes[0].qz().re) * l;
+                let max_cut = max_walkoff_cut(indices);
+                reports.push(ElementReport::Crystal {
+                    material: match plate.medium {
+                        Material::Catalogue(m) => m.key.to_string(),
+                        Material::Custom(_) => "custom".to_string(),
+                    },
+                    no: indices.no,
+                    ne: indices.ne,
+                    thickness_mm: l,
+                    z_front_mm: *z_front_mm,
+                    z_back_mm: *z_back_mm,
+                    o: mode_report(&modes[0], &axis, l),
+                    e: mode_report(&modes[1], &axis, l),
+                    separation_mm: both.then(|| sep_vec[0].hypot(sep_vec[1])),
+                    separation_vector_mm: both.then_some(sep_vec),
+                    retardance_rad: both.then_some(retardance),
+                    retardance_waves: both.then_some(retardance / TAU),
+                    max_walkoff_cut_deg: max_cut.0.to_degrees(),
+                    max_walkoff_deg: max_cut.1.abs().to_degrees(),
+                    power_in: *power_in,
+                    reflected_power: lost_power(*power_in, *power_out),
+                });
+            }
+            (kind, _, lt) => {
+                let (power_in, power_out) = match *lt {
+                    LayerTrace::Ideal { power_in, power_out }
+                    | LayerTrace::Slab {
+                        power_in, power_out, ..
+                    } => (power_in, power_out),
+                };
+                reports.push(match kind {
+                    ElementKind::Retarder { retardance_waves, .. } => ElementReport::Retarder {
+                        retardance_rad: retardance_waves * TAU,
+                        power_in,
+                    },
+                    ElementKind::Polarizer { .. } => ElementReport::Polarizer {
+                        power_in,
+                        absorbed_power: lost_power(power_in, power_out),
+                    },
+                    ElementKind::Rotator { angle_deg } => ElementReport::Rotator { angle_deg, power_in },
+                    // A crystal always resolves to a slab; kept total rather than unreachable.
+                    ElementKind::Crystal(_) => ElementReport::Polarizer {
+                        power_in,
+                        absorbed_power: lost_power(power_in, power_out),
+                    },
+                });
+            }
+        }
+    }
+    if stack.losses == Losses::Uncoated {
+        notes.push("interface_losses is \"uncoated\": light reflected at the crystal faces is lost from the trace; reflected ghost rays are not traced".to_string());
+    }
+
+    let direction = arr3(u);
+    let z = traced.exit_z_mm;
+    let rays: Vec<Ray> = traced
+        .paths
+        .iter()
+        .map(|p| {
+            let s = stokes::apply(&stokes::mueller(&p.matrix), &s_in);
+            Ray {
+                label: p.label.clone(),
+                power: s[0],
+                exit_position_mm: p.exit_mm,
+                exit_z_mm: z,
+                direction,
+                stokes: s,
+                degree_of_polarization: stokes::degree_of_polarization(&s),
+                ellipse: stokes::ellipse(&s),
+                jones: j_in.map(|j| to_json(&(p.matrix * j))),
+                phase_rad: p.phase_rad,
+                points_mm: p.points_mm.clone(),
+            }
+        })
+        .collect();
+
+    let beam = GaussianBeam::new(stack.input.diameter_mm, k0 * stack.outside_index);
+    let exits: Vec<Exit> = traced
+        .paths
+        .iter()
+        .map(|p| Exit {
+            label: &p.label,
+            pos: p.exit_mm,
+            m: p.matrix,
+        })
+        .collect();
+    let spots = group_spots(&exits, &s_in, j_in.as_ref(), &beam, direction);
+    let total_power = spots.iter().map(|s| s.power).sum();
+    let input = InputState {
+        stokes: s_in,
+        degree_of_polarization: stokes::degree_of_polarization(&s_in),
+        ellipse: stokes::ellipse(&s_in),
+        jones: j_in.map(|j| to_json(&j)),
+        direction,
+        jones_basis: [arr3(e1), arr3(e2)],
+    };
+    TraceResult {
+        version: 1,
+        wavelength_nm: stack.wavelength.nm(),
+        input,
+        rays,
+        elements: reports,
+        spots,
+        total_power,
+        warnings: notes,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::precision::assert_close;
+    use num_complex::Complex64;
+    use std::f64::consts::PI;
+
+    fn run(doc: &str) -> TraceResult {
+        trace_scenario(&Scenario::from_json_str(doc).unwrap()).unwrap()
+    }
+
+    /// Two calcite displacers (axis tilt 45°, walk-off in x) with a half-wave plate at 45°
+    /// between them, the second longer by `mismatch_mm`: "oe" and "eo" leave tan ρ · mismatch
+    /// apart; `after` is appended to the elements.
+    fn pair(diameter_mm: f64, mismatch_mm: f64, after: &str) -> TraceResult {
+        run(&format!(
+            r#"{{"wavelength_nm": 632.8, "beam": {{"diameter_mm": {diameter_mm}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+               "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}},
+                            {{"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45}},
+                            {{"kind": "crystal", "material": "calcite", "thickness_mm": {}, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}{after}]}}"#,
+            2.0 + mismatch_mm
+        ))
+    }
+
+    fn offset(r: &TraceResult, a: &str, b: &str) -> f64 {
+        let p = |l: &str| r.rays.iter().find(|x| x.label == l).unwrap().exit_position_mm;
+        let (p, q) = (p(a), p(b));
+        (p[0] - q[0]).hypot(p[1] - q[1])
+    }
+
+    fn spot_of<'a>(r: &'a TraceResult, label: &str) -> &'a Spot {
+        r.spots.iter().find(|s| s.rays.iter().any(|x| x == label)).unwrap()
+    }
+
+    #[test]
+    fn twenty_nanometres_in_a_ten_micrometre_beam_recombine() {
+        // The convention's own example (CONVENTIONS.md, version 2, spots). The old rule (exit
+        // points within 10⁻³ of the beam diameter, 10 nm here) split this pair into two spots.
+        let tan_rho = {
+            let r = pair(0.01, 1.0, "");
+            offset(&r, "oe", "eo")
+        };
+        let r = pair(0.01, 2e-5 / tan_rho, "");
+        let d = offset(&r, "oe", "eo");
+        assert_close(d, 2e-5, 1e-6, 0.0, "residual tan ρ ΔL");
+        let s = spot_of(&r, "oe");
+        assert!(s.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        // Joyce & DeLoach (from memory): two equal beams offset by d couple exp(−d²/w²).
+        assert_close(
+            s.overlap,
+            (-(2e-5f64 / 5e-3).powi(2)).exp(),
+            1e-12,
+            0.0,
+            "overlap exp(−d²/w²)",
+        );
+        assert!(s.overlap > 0.9999);
+        // Orthogonal polarizations: no interference in the power, which is the whole beam.
+        assert_close(s.power, 1.0, 1e-12, 0.0, "power of the recombined spot");
+    }
+
+    #[test]
+    fn two_beam_diameters_apart_are_separate_spots() {
+        // A single displacer: o and e leave s apart; a beam of diameter s/2 puts them two
+        // diameters apart (overlap e⁻⁸ in amplitude): two spots, each with its own ray.
+        let doc = |dia: f64| {
+            format!(
+                r#"{{"beam": {{"diameter_mm": {dia}, "polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
+                    "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}]}}"#
+            )
+        };
+        let s = {
+            let r = run(&doc(1.0));
+            offset(&r, "o", "e")
+        };
+        let r = run(&doc(0.5 * s));
+        assert_eq!(r.spots.len(), 2, "{:?}", r.spots);
+        for spot in &r.spots {
+            assert_eq!(spot.rays.len(), 1);
+            assert_eq!(spot.overlap, 1.0);
+            assert_close(spot.power, 0.5, 1e-12, 0.0, "half the beam in each mode");
+        }
+        // A beam of diameter 2s puts them half a diameter apart (d = w): one spot whose beams
+        // overlap to exp(−1) in power and e^(−1/2) in amplitude; orthogonal, equal beams
+        // integrate to a degree of polarization |γ| (C = ½ [[1, γ], [γ, 1]] up to the phase):
+        // the two fields overlap only partly.
+        let r = run(&doc(2.0 * s));
+        assert_eq!(r.spots.len(), 1, "{:?}", r.spots);
+        let spot = &r.spots[0];
+        assert_close(spot.overlap, (-1f64).exp(), 1e-12, 0.0, "exp(−d²/w²), d = w");
+        assert_close(spot.power, 1.0, 1e-12, 0.0, "orthogonal beams: powers add");
+        assert_close(
+            spot.degree_of_polarization,
+            (-0.5f64).exp(),
+            1e-9,
+            0.0,
+            "degree of polarization |γ| = exp(−d²/(2w²))",
+        );
+        assert_close(
+            spot.spread_mm,
+            0.5 * s,
+            1e-12,
+            0.0,
+            "centre halfway between equal beams",
+        );
+    }
+
+    #[test]
+    fn interfering_spots_match_a_direct_integral_of_the_fields() {
+        // Independent method: the power and Stokes vector of a spot whose two beams interfere
+        // (a polarizer at 45° after a mismatched pair makes their polarizations equal), against
+        // ∫ E Eᴴ of E = Σ J_i g_i(r) summed on a grid from the rays' own Jones vectors and points.
+        let r = pair(0.2, 0.4, r#", {"kind": "polarizer", "transmission_axis_deg": 45}"#);
+        let spot = spot_of(&r, "oe");
+        assert!(spot.rays.iter().any(|x| x == "eo"), "{:?}", r.spots);
+        let rays: Vec<&Ray> = spot.ray_index.iter().map(|&i| &r.rays[i]).collect();
+        let w = 0.1;
+        let n = 400;
+        let (cx, cy) = (spot.position_mm[0], spot.position_mm[1]);
+        let half = 7.0 * w;
+        let h = 2.0 * half / n as f64;
+        let mut c = [[Complex64::ZERO; 2]; 2];
+        for a in 0..n {
+            let x = cx - half + (a as f64 + 0.5) * h;
+            for b in 0..n {
+                let y = cy - half + (b as f64 + 0.5) * h;
+                let mut e = [Complex64::ZERO; 2];
+                for ray in &rays {
+                    let p = ray.exit_position_mm;
+                    let g = (2.0 / (PI * w * w)).sqrt() * (-((x - p[0]).powi(2) + (y - p[1]).powi(2)) / (w * w)).exp();
+                    let j = ray.jones.unwrap();
+                    e[0] += Complex64::new(j[0][0], j[0][1]) * g;
+                    e[1] += Complex64::new(j[1][0], j[1][1]) * g;
+                }
+                for (u, row) in c.iter_mut().enumerate() {
+                    for (v, cell) in row.iter_mut().enumerate() {
+                        *cell += e[u] * e[v].conj() * h * h;
+                    }
+                }
+            }
+        }
+        let s = [
+            c[0][0].re + c[1][1].re,
+            c[0][0].re - c[1][1].re,
+            2.0 * c[0][1].re,
+            2.0 * c[0][1].im,
+        ];
+        for (k, (&got, &want)) in spot.stokes.iter().zip(&s).enumerate() {
+            assert_close(got, want, 1e-9, 1e-3, &format!("S{k}: spot vs ∫ E Eᴴ on a grid"));
+        }
+        // The interference is really there: not the sum of the rays' powers.
+        let sum: f64 = rays.iter().map(|x| x.power).sum();
+        assert!((spot.power - sum).abs() > 1e-3, "{} vs {sum}", spot.power);
+    }
+}
