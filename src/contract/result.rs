@@ -282,6 +282,25 @@ pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     Ok(report(sc, &stack, &traced, warnings))
 }
 
+/// The spots of a traced stack: its paths grouped where their beams overlap on the exit plane,
+/// each with the overlap-weighted coherent sum of its fields ([`group_spots`]).
+pub fn spots(stack: &Stack, traced: &Trace) -> Vec<Spot> {
+    let k0 = stack.wavelength.k0_per_mm();
+    let beam = GaussianBeam::new(stack.input.diameter_mm, k0 * stack.outside_index);
+    let exits: Vec<Exit> = traced
+        .paths
+        .iter()
+        .map(|p| Exit {
+            label: &p.label,
+            pos: p.exit_mm,
+            m: p.matrix,
+        })
+        .collect();
+    let u = stack.input.direction;
+    let input = &stack.input;
+    group_spots(&exits, &input.stokes, input.jones.as_ref(), &beam, arr3(u))
+}
+
 /// The result document of `traced`, the trace of `stack` resolved from `sc` with `warnings`.
 pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warning>) -> TraceResult {
     let k0 = stack.wavelength.k0_per_mm();
@@ -400,17 +419,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
         })
         .collect();
 
-    let beam = GaussianBeam::new(stack.input.diameter_mm, k0 * stack.outside_index);
-    let exits: Vec<Exit> = traced
-        .paths
-        .iter()
-        .map(|p| Exit {
-            label: &p.label,
-            pos: p.exit_mm,
-            m: p.matrix,
-        })
-        .collect();
-    let spots = group_spots(&exits, &s_in, j_in.as_ref(), &beam, direction);
+    let spots = spots(stack, traced);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
         stokes: s_in,

@@ -246,7 +246,8 @@ impl Scenario {
     }
 }
 
-fn polarization_json(p: &Polarization) -> Value {
+/// A polarization as its document (the `beam.polarization` object).
+pub fn polarization_json(p: &Polarization) -> Value {
     match *p {
         Polarization::Linear { azimuth_deg } => json!({"kind": "linear", "azimuth_deg": azimuth_deg}),
         Polarization::Circular { right } => {
@@ -264,7 +265,8 @@ fn polarization_json(p: &Polarization) -> Value {
     }
 }
 
-fn element_json(e: &Element) -> Value {
+/// An element as its document, `gap_mm` included.
+pub fn element_json(e: &Element) -> Value {
     let mut v = match e.kind {
         ElementKind::Crystal(c) => {
             let mut v = json!({

@@ -22,6 +22,7 @@
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
+use crate::design::part::{Part, crystal};
 use crate::design::statistics::{Summary, summarize};
 use crate::error::{Error, above, in_range};
 use crate::numfmt::quote;
@@ -32,7 +33,6 @@ use crate::optics::wavelength::Wavelength;
 use crate::precision::{DIFF_STEP_INCIDENCE_DEG, DIFF_STEP_WAVELENGTH_NM, NO_BIREFRINGENCE, NO_WALKOFF_RAD};
 use crate::random::Rng;
 use serde::Serialize;
-use serde_json::{Value, json};
 
 /// Most Monte Carlo samples a request may ask for.
 pub const MAX_SAMPLES: usize = 1_000_000;
@@ -177,7 +177,7 @@ pub struct DisplacerDesign {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<Summary>,
     /// A scenario with this plate, ready to load.
-    pub scenario: Value,
+    pub scenario: Part,
 }
 
 pub(crate) fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
@@ -227,29 +227,6 @@ pub(crate) fn medium_name(medium: &Medium) -> String {
         Medium::Catalogue(m) => m.key.to_string(),
         Medium::Custom(_) => "custom".to_string(),
     }
-}
-
-pub(crate) fn medium_json(medium: &Medium) -> Value {
-    match medium {
-        Medium::Catalogue(m) => json!({"material": m.key}),
-        Medium::Custom(ix) => json!({"no": ix.no, "ne": ix.ne}),
-    }
-}
-
-/// A crystal element of a scenario: `material` (or `no`, `ne`), thickness, axis and gap.
-pub(crate) fn crystal_element(
-    medium: &Medium,
-    thickness_mm: f64,
-    tilt_deg: f64,
-    azimuth_deg: f64,
-    gap_mm: f64,
-) -> Value {
-    let mut c = json!({"kind": "crystal", "thickness_mm": thickness_mm,
-                       "axis": {"tilt_deg": tilt_deg, "azimuth_deg": azimuth_deg}, "gap_mm": gap_mm});
-    if let (Value::Object(cm), Value::Object(mm)) = (&mut c, medium_json(medium)) {
-        cm.extend(mm);
-    }
-    c
 }
 
 /// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
@@ -551,9 +528,11 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let s = optics.separation_mm;
     let phase = optics.retardance_rad;
     let reduced = phase - std::f64::consts::TAU * (phase / std::f64::consts::TAU).round();
-    let scenario = json!({"version": 1, "wavelength_nm": nm,
-        "beam": {"diameter_mm": req.beam_diameter_mm, "polarization": {"kind": "linear", "azimuth_deg": 45.0}},
-        "elements": [crystal_element(m, length_mm, tilt, 0.0, 0.0)]});
+    let scenario = Part::new(
+        req.wavelength,
+        Some(req.beam_diameter_mm),
+        vec![crystal(*m, length_mm, tilt, 0.0, 0.0)],
+    );
     Ok(DisplacerDesign {
         material: medium_name(m),
         no: ix.no,
@@ -609,6 +588,7 @@ mod tests {
     use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
     use crate::precision::assert_close;
+    use serde_json::Value;
 
     fn request(doc: &str) -> DisplacerRequest {
         let v: Value = serde_json::from_str(doc).unwrap();
@@ -625,7 +605,7 @@ mod tests {
                 r#"{{"material": "{mat}", "separation_mm": {sep}, "samples": 0}}"#
             )))
             .unwrap();
-            let sc = Scenario::from_json(&d.scenario).unwrap();
+            let sc = Scenario::from_json(&d.scenario.document()).unwrap();
             let r = trace(&sc).unwrap();
             let ElementReport::Crystal { separation_mm, .. } = r.elements[0] else {
                 panic!()

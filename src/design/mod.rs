@@ -21,11 +21,12 @@
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
 
 use crate::contract::fields::Fields;
-use crate::contract::scenario::{ElementKind, Medium, Scenario};
+use crate::contract::scenario::Medium;
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 pub mod displacer;
 pub mod notes;
+pub mod part;
 pub mod recombiner;
 pub mod statistics;
 pub mod waveplate;
@@ -157,21 +158,6 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
     Ok(warnings)
 }
 
-/// The crystals of an answer's scenario, with their thicknesses, for [`notes::notes`].
-fn plates_of(answer: &Value) -> Vec<(Medium, f64)> {
-    Scenario::from_json(&answer["scenario"])
-        .map(|sc| {
-            sc.elements
-                .iter()
-                .filter_map(|e| match e.kind {
-                    ElementKind::Crystal(p) => Some((p.medium, p.thickness_mm)),
-                    _ => None,
-                })
-                .collect()
-        })
-        .unwrap_or_default()
-}
-
 /// Solves a design request given as a parsed JSON value.
 ///
 /// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header)
@@ -185,7 +171,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         .string("kind")?
         .ok_or_else(|| Error::new("kind", format!("is required: one of {}", KINDS.join(", "))))?;
     check_applies(kind, request)?;
-    let (mut out, warnings) = match kind {
+    let (mut out, warnings, crystals) = match kind {
         "displacer" => {
             let r = displacer::DisplacerRequest::from_json(&mut f)?;
             f.finish()?;
@@ -195,7 +181,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
                 band: r.band_nm.map(|b| (b, true)),
             };
             let warnings = audit(&uses)?;
-            (to_value(kind, &displacer::design(&r)?)?, warnings)
+            {
+                let d = displacer::design(&r)?;
+                (to_value(kind, &d)?, warnings, d.scenario.crystals())
+            }
         }
         "waveplate" => {
             let r = waveplate::WaveplateRequest::from_json(&mut f)?;
@@ -206,7 +195,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
                 band: Some((r.band(), r.band_nm.is_some())),
             };
             let warnings = audit(&uses)?;
-            (to_value(kind, &waveplate::design(&r)?)?, warnings)
+            {
+                let d = waveplate::design(&r)?;
+                (to_value(kind, &d)?, warnings, d.scenario.crystals())
+            }
         }
         "achromat" => {
             let r = waveplate::AchromatRequest::from_json(&mut f)?;
@@ -218,7 +210,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
                 band: Some((r.band(), r.band_nm.is_some())),
             };
             let warnings = audit(&uses)?;
-            (to_value(kind, &waveplate::achromat(&r)?)?, warnings)
+            {
+                let d = waveplate::achromat(&r)?;
+                (to_value(kind, &d)?, warnings, d.scenario.crystals())
+            }
         }
         "recombiner" => {
             let r = recombiner::RecombinerRequest::from_json(&mut f)?;
@@ -229,7 +224,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
                 band: None,
             };
             let warnings = audit(&uses)?;
-            (to_value(kind, &recombiner::check(&r)?)?, warnings)
+            {
+                let d = recombiner::check(&r)?;
+                (to_value(kind, &d)?, warnings, d.scenario.crystals())
+            }
         }
         other => {
             return Err(Error::new(
@@ -238,7 +236,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
             ));
         }
     };
-    let notes = notes::notes(&plates_of(&out), out["clear_aperture_mm"].as_f64());
+    let notes = notes::notes(&crystals, out["clear_aperture_mm"].as_f64());
     if let Value::Object(m) = &mut out {
         m.insert("warnings".into(), json!(warnings));
         m.insert("notes".into(), json!(notes));
@@ -261,6 +259,7 @@ pub fn solve_str(text: &str) -> Result<Value, Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::scenario::Scenario;
 
     fn solved(doc: &str) -> Value {
         solve_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))

@@ -17,18 +17,19 @@
 //! page and the command line show.
 
 use crate::contract::fields::Fields;
-use crate::contract::result::trace_scenario as trace;
-use crate::contract::scenario::{Medium, Scenario};
-use crate::design::displacer::{crystal_element, indices_of, parse_medium, wavelength_field};
+use crate::contract::result::spots;
+use crate::contract::scenario::{Element, ElementKind, Medium};
+use crate::design::displacer::{indices_of, parse_medium, wavelength_field};
+use crate::design::part::{Part, crystal};
 use crate::error::{Error, above, in_range};
 use crate::optics::beam_overlap::GaussianBeam;
+use crate::optics::trace::trace;
 use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
     BISECTION_STEPS, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL, DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
 };
 use serde::Serialize;
-use serde_json::{Value, json};
 use std::f64::consts::{PI, TAU};
 
 /// Overlap below which the recombination counts as broken.
@@ -99,7 +100,7 @@ pub struct RecombinerCheck {
     /// The verdict in words.
     pub verdict: String,
     /// The scenario checked, ready to load.
-    pub scenario: Value,
+    pub scenario: Part,
 }
 
 impl RecombinerRequest {
@@ -158,20 +159,22 @@ impl RecombinerRequest {
         })
     }
 
-    fn scenario(&self, dl: f64, dt: f64) -> Value {
-        let plate = |l: f64, t: f64| crystal_element(&self.medium, l, t, 0.0, 1.0);
-        let middle = match self.middle {
-            Middle::HalfWave => {
-                json!({"kind": "retarder", "retardance_waves": 0.5, "fast_axis_deg": 45.0, "gap_mm": 1.0})
-            }
-            Middle::Rotator(a) => json!({"kind": "rotator", "angle_deg": a, "gap_mm": 1.0}),
+    /// The pair with the second crystal longer by `dl` mm and its cut tilted by `dt` degrees more.
+    fn part(&self, dl: f64, dt: f64) -> Part {
+        let plate = |l: f64, t: f64| crystal(self.medium, l, t, 0.0, 1.0);
+        let kind = match self.middle {
+            Middle::HalfWave => ElementKind::Retarder {
+                retardance_waves: 0.5,
+                fast_axis_deg: 45.0,
+            },
+            Middle::Rotator(angle_deg) => ElementKind::Rotator { angle_deg },
         };
-        json!({
-            "version": 1, "wavelength_nm": self.wavelength.nm(),
-            "beam": {"diameter_mm": self.beam_diameter_mm, "polarization": {"kind": "linear", "azimuth_deg": 45.0}},
-            "elements": [plate(self.length_mm, self.cut_tilt_deg), middle,
-                         plate(self.length_mm + dl, self.cut_tilt_deg + dt)],
-        })
+        let elements = vec![
+            plate(self.length_mm, self.cut_tilt_deg),
+            Element { gap_mm: 1.0, kind },
+            plate(self.length_mm + dl, self.cut_tilt_deg + dt),
+        ];
+        Part::new(self.wavelength, Some(self.beam_diameter_mm), elements)
     }
 }
 
@@ -188,21 +191,23 @@ fn reduce(p: f64) -> f64 {
     if r <= -PI { r + TAU } else { r }
 }
 
+/// The pair traced on its stack (resolved once, no document written or read): where "oe" and
+/// "eo" leave, their phase difference, and the spot they share.
 fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> {
-    let sc = Scenario::from_json(&req.scenario(dl, dt))?;
-    let r = trace(&sc)?;
+    let (stack, _) = req.part(dl, dt).scenario.resolve()?;
+    let traced = trace(&stack);
     let find = |l: &str| {
-        r.rays
+        traced
+            .paths
             .iter()
             .find(|x| x.label == l)
             .ok_or_else(|| Error::new("material", format!("path {l} does not exist (a mode is evanescent)")))
     };
     let (oe, eo) = (find("oe")?, find("eo")?);
-    let dx = [
-        eo.exit_position_mm[0] - oe.exit_position_mm[0],
-        eo.exit_position_mm[1] - oe.exit_position_mm[1],
-    ];
-    let spot = r.spots.iter().find(|s| s.rays.iter().any(|x| x == "oe"));
+    let dx = [eo.exit_mm[0] - oe.exit_mm[0], eo.exit_mm[1] - oe.exit_mm[1]];
+    let spots = spots(&stack, &traced);
+    let total_power: f64 = spots.iter().map(|s| s.power).sum();
+    let spot = spots.iter().find(|s| s.rays.iter().any(|x| x == "oe"));
     let recombined = spot.is_some_and(|s| s.rays.iter().any(|x| x == "eo"));
     let power = spot.map_or(0.0, |s| s.power);
     Ok(Outcome {
@@ -210,7 +215,7 @@ fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> 
         phase: eo.phase_rad - oe.phase_rad,
         recombined,
         power,
-        stray: r.total_power - power,
+        stray: total_power - power,
     })
 }
 
@@ -302,13 +307,14 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
         tilt_mismatch_to_break_deg: search(10.0, &along_tilt),
         broken: broken_overlap || broken_phase,
         verdict,
-        scenario: req.scenario(dl0, dt0),
+        scenario: req.part(dl0, dt0),
     })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use serde_json::Value;
 
     fn run(doc: &str) -> RecombinerCheck {
         let v: Value = serde_json::from_str(doc).unwrap();

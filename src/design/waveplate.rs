@@ -25,7 +25,8 @@
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
-use crate::design::displacer::{band, crystal_element, indices_of, medium_name, parse_medium, wavelength_field, whole};
+use crate::design::displacer::{band, indices_of, medium_name, parse_medium, wavelength_field, whole};
+use crate::design::part::{Part, crystal};
 use crate::error::{Error, in_range};
 use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
@@ -34,7 +35,6 @@ use crate::precision::{
     BISECTION_STEPS, GOLDEN_SECTION_STEPS, NO_BIREFRINGENCE, SAME_ANGLE_DEG, SAME_WAVELENGTH_NM, SINGULAR_DETERMINANT,
 };
 use serde::Serialize;
-use serde_json::{Value, json};
 use std::f64::consts::TAU;
 
 /// Acceptance error (waves) of a request that names none: the retardance may drift this far
@@ -153,7 +153,7 @@ pub struct WaveplateDesign {
     /// `max_incidence_deg`: the acceptance is then only known to be at least `acceptance_deg`.
     pub acceptance_bound: Bound,
     /// A scenario with these plates, ready to load.
-    pub scenario: Value,
+    pub scenario: Part,
 }
 
 fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
@@ -334,11 +334,11 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
         .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
     let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
-    let elements: Vec<Value> = plates
+    let elements = plates
         .iter()
-        .map(|(md, l, az)| crystal_element(md, *l, 90.0, *az, 0.0))
+        .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
-    let scenario = json!({"version": 1, "wavelength_nm": nm, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 45.0}}, "elements": elements});
+    let scenario = Part::new(req.wavelength, None, elements);
     Ok(WaveplateDesign {
         wavelength_nm: nm,
         max_incidence_deg: req.max_incidence_deg,
@@ -388,7 +388,7 @@ pub struct AchromatDesign {
     /// samples, so it is the maximum, not a lower bound of it).
     pub max_error_waves: f64,
     /// A scenario with the pair, ready to load.
-    pub scenario: Value,
+    pub scenario: Part,
 }
 
 impl AchromatRequest {
@@ -522,16 +522,16 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         })
         .collect();
     let max_error_waves = largest_error(&curve, |w| total(w).map(|g| (g - f).abs()), f);
-    let elements: Vec<Value> = plates
+    let elements = plates
         .iter()
-        .map(|(md, l, az)| crystal_element(md, *l, 90.0, *az, 0.0))
+        .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
     Ok(AchromatDesign {
         plates: plate_specs(&plates),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,
-        scenario: json!({"version": 1, "wavelength_nm": w1, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 45.0}}, "elements": elements}),
+        scenario: Part::new(Wavelength::from_nm(w1)?, None, elements),
     })
 }
 
@@ -540,6 +540,7 @@ mod tests {
     use super::*;
     use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
+    use serde_json::{Value, json};
 
     fn fields(doc: &str) -> Value {
         serde_json::from_str(doc).unwrap()
@@ -590,7 +591,7 @@ mod tests {
         );
         // Common practice: a zero-order quartz quarter-wave plate at 633 nm is about 17 µm thick.
         assert!((d.plates[0].thickness_mm - 0.0175).abs() < 0.001);
-        assert!((traced_retardance_waves(&d.scenario) - 0.25).abs() < 1e-9);
+        assert!((traced_retardance_waves(&d.scenario.document()) - 0.25).abs() < 1e-9);
         assert_eq!(d.fast_axis, "perpendicular to the optic axis");
     }
 
@@ -615,7 +616,7 @@ mod tests {
             ),
         ] {
             let d = wp(doc);
-            let traced = traced_retardance_waves(&d.scenario);
+            let traced = traced_retardance_waves(&d.scenario.document());
             assert!(
                 (traced - target).abs() < 1e-9 * target.abs().max(1.0),
                 "{doc}: traced {traced}"
@@ -652,7 +653,7 @@ mod tests {
         }
         // Fed back into the trace at both wavelengths.
         for w in [500.0, 900.0] {
-            let mut sc = d.scenario.clone();
+            let mut sc = d.scenario.document();
             sc["wavelength_nm"] = json!(w);
             let got = traced_retardance_waves(&sc);
             assert!((got - 0.25).abs() < 1e-9, "{w} nm traced {got}");
@@ -675,7 +676,7 @@ mod tests {
         let fine = (0..=3_200)
             .map(|i| {
                 let w = lo + (hi - lo) * f64::from(i) / 3_200.0;
-                (traced_at(&d.scenario, w) - 0.25).abs()
+                (traced_at(&d.scenario.document(), w) - 0.25).abs()
             })
             .fold(0.0, f64::max);
         assert!(
