@@ -3,8 +3,9 @@
 // the bindings module (pkg/doublespar.js, built by scripts/build-web.sh) is loaded here, and
 // every other import is one of the page's own modules beside this file: the results as text
 // (results.js), the views (views.js), the design panel (design-panel.js), the exports and print
-// sheet (export.js), and the helpers they share (dom.js, format.js, field-error.js). This module
-// starts the page (main) and wires them together, handing each what it needs as parameters.
+// sheet (export.js), and the helpers they share (dom.js, format.js, field-error.js: one field
+// and its error for both panels). This module creates the page's state (state.js, one object),
+// starts the page (main) and wires the modules together, handing each that state.
 //
 // Data flow: controls -> scenario object -> session.updateJson(text) -> result -> results text,
 // canvases, aria-labels, URL fragment. A rejected scenario shows its message beside the control

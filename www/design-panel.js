@@ -1095,7 +1095,7 @@ function onDesignMessage(msg) {
     document.getElementById('design-run').hidden = true;
     state.design.errors.show(msg.error);
     setDesignState('error');
-    designStatus(`Not solved: ${msg.error.field ? `the field ${msg.error.field} needs attention` : 'see the message above'}.`);
+    designStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
     updateDesignStale(true);
   }
 }

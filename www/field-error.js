@@ -3,13 +3,14 @@
 //
 // Contract:
 // - `new Field(spec, names)` builds a labelled control with its unit, optional slider, hint and
-//   error slot (`row` holds them all; `input`, `range`, `error`, `hintEl`). `spec`: {label,
+//   error slot (`row` holds them all; `input`, `range`, `error`, `hintEl`). `spec`: {key, label,
 //   spoken, unit, kind ('number' or 'select'), options, slider {min, max, step}, hint, step,
-//   value, placeholder, wide, unitColumn}. `key` names the field below an owner whose path changes (a stack card). `names` says which attributes carry the path: {field,
-//   error, id} (the set-up's SETUP_NAMES or the design panel's own). `setPath(path, whose)`
-//   writes the path into the control, its slider and its error slot (and, with `whose`, a fuller
-//   spoken name, "Thickness, element 2"); `value` (a number, or the text as typed so that the
-//   core names the field), `blank`, `set(v)`, `setHint(text)`, `syncRange()`.
+//   value, placeholder, wide, unitColumn}; `key` names the field below an owner whose path
+//   changes (a stack card). `names` says which attributes carry the path: {field, error, id}
+//   (the set-up's SETUP_NAMES or the design panel's own). `setPath(path, whose)` writes the path
+//   into the control, its slider and its error slot (and, with `whose`, a fuller spoken name,
+//   "Thickness, element 2"); `value` (a number, or the text as typed so that the core names the
+//   field), `blank`, `set(v)`, `setHint(text)`, `syncRange()`.
 // - `errorSlot(path, names)` an error slot of its own, for a group of fields.
 // - `new FieldErrors({root, names, labelOf, groups})` shows the core's `{field, message}` errors
 //   under `root`: `show(err)` (the slot of the path, or of the nearest path above it, down to the
