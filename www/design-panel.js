@@ -10,8 +10,8 @@
 //
 // Contract: one export, setupDesign(state, links), called once by app.js after the core has
 // loaded. It receives the page's state (state.js; the panel's own part is state.design) and what
-// it may do to the page (see there), and returns the test hooks designRequest() (the request the fields say) and designShown() (a copy
-// of the design on screen, or null), and setDesignInputs(request) and designLinkError(err) for
+// it may do to the page (see there), and returns the test hooks designRequest(state) (the request the fields say) and designShown() (a copy
+// of the design on screen, or null), and setDesignInputs(state, request) and designLinkError(err) for
 // the design part of a shared link (the fields' request travels in the link once it differs
 // from the panel's defaults: links.onDesignInputs(text)). The solved design is also the
 // print's order sheet (export.js, updateOrderSheet). section#design[data-state] is idle, solving, running, done,
@@ -36,12 +36,8 @@ const NBSP = '\u00a0';
 // The attributes of the panel's fields (DEVELOPERS.md, "Design panel").
 const NAMES = { field: 'data-design-field', error: 'data-design-error-for', id: 'd' };
 
-// The page's state (state.js), handed over once by setupDesign: the panel keeps its own part in
-// state.design and reads the core, the materials and the colour scheme from it.
-let state = null;
-
 /** A design-request field (field-error.js) at `path`, with a unit column so that the fields line up. */
-function addField(path, spec) {
+function addField(state, path, spec) {
   const f = new Field({ unitColumn: true, ...spec }, NAMES);
   f.setPath(path);
   state.design.fields[path] = f;
@@ -71,88 +67,88 @@ function setGroupHint(box, text) {
 }
 
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
-function mediumFields(prefix, fallback, whose) {
+function mediumFields(state, prefix, fallback, whose) {
   // The page's name of each material, which marks a formula without a journal source
   // ("unverified data").
   const options = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
   options.push(['custom', 'custom indices']);
   const of = whose ? ` of the ${whose}` : '';
-  const material = addField(`${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
+  const material = addField(state, `${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
   const key = state.materialList.some((m) => m.key === fallback) ? fallback : (state.materialList[0]?.key ?? 'custom');
   material.input.value = key;
-  const no = addField(`${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
-  const ne = addField(`${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
+  const no = addField(state, `${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
+  const ne = addField(state, `${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
   return { material, custom, nodes: [material.row, custom] };
 }
 
-function buildDesignFields() {
-  const kind = addField('kind', { label: 'Part', kind: 'select', options: DESIGN_KINDS });
+function buildDesignFields(state) {
+  const kind = addField(state, 'kind', { label: 'Part', kind: 'select', options: DESIGN_KINDS });
   kind.row.classList.add('design-kind');
-  const order = addField('order', {
+  const order = addField(state, 'order', {
     label: 'Order',
     kind: 'select',
     options: [['zero', 'zero order'], ['multiple', 'multiple order'], ['compound', 'compound zero order']],
   });
-  const orderNumber = addField('order_number', { label: 'Order number m', value: 1, step: 1, hint: 'm whole waves more than the target.' });
-  const base = addField('base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
+  const orderNumber = addField(state, 'order_number', { label: 'Order number m', value: 1, step: 1, hint: 'm whole waves more than the target.' });
+  const base = addField(state, 'base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
 
-  const medium = mediumFields('', 'calcite');
-  const wl = addField('wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
+  const medium = mediumFields(state, '', 'calcite');
+  const wl = addField(state, 'wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
   const band = designGroup('Band (optional)', 'band_nm', [
-    addField('band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
-    addField('band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
+    addField(state, 'band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
+    addField(state, 'band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
   ], { pair: true });
-  const separation = addField('separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
-  const beam = addField('beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
-  const cut = addField('cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
-  const aperture = addField('aperture_factor', {
+  const separation = addField(state, 'separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
+  const beam = addField(state, 'beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
+  const cut = addField(state, 'cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
+  const aperture = addField(state, 'aperture_factor', {
     label: 'Aperture factor',
     value: 2,
     step: 0.1,
     hint: 'Clear aperture = separation + factor × beam diameter.',
   });
   const tolerances = designGroup('Tolerances, one standard deviation each', 'tolerances', [
-    addField('tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
-    addField('tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
-    addField('tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
-    addField('tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
+    addField(state, 'tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
+    addField(state, 'tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
+    addField(state, 'tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
+    addField(state, 'tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
   ], { hint: 'The incidence error lies in the walk-off plane.' });
-  const samples = addField('samples', {
+  const samples = addField(state, 'samples', {
     label: 'Monte Carlo samples',
     value: state.design.limits.default_samples,
     step: 1000,
     hint: `At most ${state.design.limits.max_samples.toLocaleString('en-US').replace(/,/g, ' ')}; 0 skips the tolerance run.`,
   });
-  const seed = addField('seed', { label: 'Random seed', value: 1, step: 1 });
+  const seed = addField(state, 'seed', { label: 'Random seed', value: 1, step: 1 });
 
-  const retardance = addField('retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
-  const maxInc = addField('max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
-  const accErr = addField('acceptance_error_waves', {
+  const retardance = addField(state, 'retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
+  const maxInc = addField(state, 'max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
+  const accErr = addField(state, 'acceptance_error_waves', {
     label: 'Acceptance error',
     unit: 'waves',
     value: state.design.limits.default_acceptance_error_waves,
     hint: 'The acceptance angle is where the retardance has moved this far from its value at normal incidence.',
   });
 
-  const first = mediumFields('first.', 'quartz', 'first plate');
-  const second = mediumFields('second.', 'mgf2', 'second plate');
+  const first = mediumFields(state, 'first.', 'quartz', 'first plate');
+  const second = mediumFields(state, 'second.', 'mgf2', 'second plate');
   const firstBox = designGroup('First plate', 'first', first.nodes);
   const secondBox = designGroup('Second plate', 'second', second.nodes);
   const wavelengths = designGroup('Design wavelengths', 'wavelengths_nm', [
-    addField('wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
-    addField('wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
+    addField(state, 'wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
+    addField(state, 'wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
   ], { pair: true, hint: 'The pair has exactly the target retardance at both.' });
 
-  const length = addField('length_mm', { label: 'Length of each displacer', unit: 'mm', value: 10 });
-  const middle = addField('middle', {
+  const length = addField(state, 'length_mm', { label: 'Length of each displacer', unit: 'mm', value: 10 });
+  const middle = addField(state, 'middle', {
     label: 'Between the displacers',
     kind: 'select',
     options: [['half-wave', 'half-wave plate at 45°'], ['rotator', 'rotator']],
   });
-  const rotator = addField('rotator_deg', { label: 'Rotation', spoken: 'Rotation between the displacers', unit: '°', value: 90 });
-  const lengthMis = addField('length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
-  const tiltMis = addField('tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
+  const rotator = addField(state, 'rotator_deg', { label: 'Rotation', spoken: 'Rotation between the displacers', unit: '°', value: 90 });
+  const lengthMis = addField(state, 'length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
+  const tiltMis = addField(state, 'tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
 
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
@@ -171,7 +167,7 @@ function buildDesignFields() {
 }
 
 /** Shows the fields of the chosen kind, in its order, and the ones its selects call for. */
-function layoutDesignFields() {
+function layoutDesignFields(state) {
   const kind = state.design.fields.kind.value;
   const nodes = state.design.layout[kind] ?? state.design.layout.displacer;
   const box = document.getElementById('design-kind-fields');
@@ -205,7 +201,7 @@ function layoutDesignFields() {
 }
 
 /** The design request the panel's fields say (numbers, or text as typed where it is no number). */
-function designRequest() {
+function designRequest(state) {
   const kind = state.design.fields.kind.value;
   const req = { kind };
   const put = (path) => {
@@ -291,7 +287,7 @@ const GROUP_LABELS = {
 };
 
 /** A request field as the panel labels it ("Band to", "Material of the first plate"). */
-function labelFor(path) {
+function labelFor(state, path) {
   return state.design.errors.label(path);
 }
 
@@ -391,7 +387,7 @@ function article(name, capital = true) {
   return `${capital ? a.toUpperCase().slice(0, 1) + a.slice(1) : a} ${name}`;
 }
 
-function designMaterialName(key) {
+function designMaterialName(state, key) {
   return key === 'custom' ? 'custom-index' : materialName(state, key);
 }
 
@@ -402,16 +398,16 @@ function designMaterialName(key) {
  * warning (`band_nm[1]: `, `band_nm (default): `; DEVELOPERS.md, "Design requests") becomes the
  * label of that field ("Band to: …"). Returns {field, text}.
  */
-function adviceText(raw) {
+function adviceText(state, raw) {
   const text = String(raw);
   const m = /^([A-Za-z_][\w.[\]]*)( \(default\))?: ([\s\S]*)$/.exec(text);
   if (!m) return { field: '', text: text.charAt(0).toUpperCase() + text.slice(1) };
-  return { field: m[1], text: `${labelFor(m[1])}${m[2] ?? ''}: ${m[3]}` };
+  return { field: m[1], text: `${labelFor(state, m[1])}${m[2] ?? ''}: ${m[3]}` };
 }
 
 /** The design's warnings and shop notes in readable words: {warnings: [text], notes: [text]}. */
-function adviceOf(d) {
-  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(t)) : []);
+function adviceOf(state, d) {
+  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(state, t)) : []);
   return { warnings: words(d.warnings), notes: words(d.notes) };
 }
 
@@ -429,12 +425,12 @@ function adviceLists(advice) {
 
 // --- results by kind -------------------------------------------------------------------------
 
-function displacerResults(d, run) {
+function displacerResults(state, d, run) {
   const s = d;
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `${article(designMaterialName(s.material))} plate `,
+    `${article(designMaterialName(state, s.material))} plate `,
     dq(d, 'length_mm', formats.length, 'strong'),
     ' long, cut at ',
     dq(d, 'cut_tilt_deg', formats.deg, 'strong'),
@@ -444,7 +440,7 @@ function displacerResults(d, run) {
   );
   const cards = [
     designCard(d, 'What to order', [
-      ['material', 'material', (v) => designMaterialName(v)],
+      ['material', 'material', (v) => designMaterialName(state, v)],
       ['length', 'length_mm', formats.length],
       ['cut tilt', 'cut_tilt_deg', formats.deg],
       ['clear aperture', 'clear_aperture_mm', formats.length],
@@ -482,12 +478,12 @@ function displacerResults(d, run) {
       note: ['For σ = ', dq(d, 'tolerances.tilt_deg', formats.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', formats.sig('°', 3)),
         ' incidence, ', dq(d, 'tolerances.thickness_mm', formats.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', formats.sig('nm', 3)), ' wavelength.'],
     }),
-    monteCarloCard(d, run),
+    monteCarloCard(state, d, run),
   ];
   return [headline, ...cards];
 }
 
-function monteCarloCard(d, run) {
+function monteCarloCard(state, d, run) {
   if (d.monte_carlo) {
     return designCard(d, 'Monte Carlo: separation', [
       ['samples', 'monte_carlo.n', formats.count],
@@ -510,9 +506,9 @@ function monteCarloCard(d, run) {
   );
 }
 
-function waveplateResults(d) {
+function waveplateResults(state, d) {
   const plates = d.plates;
-  const mat = designMaterialName(plates[0].material);
+  const mat = designMaterialName(state, plates[0].material);
   const headline = h('p', { className: 'design-headline' });
   if (plates.length === 1) {
     headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' thick, optic axis in the face',
@@ -524,7 +520,7 @@ function waveplateResults(d) {
   const plateRows = [];
   plates.forEach((p, i) => {
     const n = plates.length > 1 ? ` ${i + 1}` : '';
-    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
+    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
     plateRows.push([`plate${n}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
     plateRows.push([`plate${n}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
   });
@@ -557,21 +553,21 @@ function worstPlane(d) {
   return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
 }
 
-function achromatResults(d) {
+function achromatResults(state, d) {
   const p = d.plates;
   const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `${article(designMaterialName(p[0].material))} plate `,
+    `${article(designMaterialName(state, p[0].material))} plate `,
     dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
-    ` thick, ${axis(p[0])}, and ${article(designMaterialName(p[1].material), false)} plate `,
+    ` thick, ${axis(p[0])}, and ${article(designMaterialName(state, p[1].material), false)} plate `,
     dq(d, 'plates.1.thickness_mm', formats.length, 'strong'),
     ` thick, ${axis(p[1])}; optic axes in the faces.`,
   );
   const rows = [];
   p.forEach((q, i) => {
-    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
+    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
     rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
     rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
   });
@@ -588,7 +584,7 @@ function achromatResults(d) {
   ];
 }
 
-function recombinerResults(d) {
+function recombinerResults(state, d) {
   const overlapOk = d.overlap >= state.design.limits.recombiner_min_overlap;
   const phaseOk = Math.abs(d.phase_difference_rad) <= state.design.limits.recombiner_max_phase_rad;
   const works = d.recombined && overlapOk && phaseOk;
@@ -645,7 +641,7 @@ function seriesJson(s) {
  *  other marked is laid over it wherever it differs from a drawing with neither. The two points
  *  lie on the curve and are added to it, so that all three drawings share their axes; a point
  *  outside the curve's span would change them, and then only the first is marked. */
-function drawTwoMarkers(plot, series, a, b, dark) {
+function drawTwoMarkers(state, plot, series, a, b, dark) {
   const xs = series.points.map((p) => p[0]);
   const within = (p) => xs.length > 1 && p[0] >= Math.min(...xs) && p[0] <= Math.max(...xs);
   if (!within(a) || !within(b)) {
@@ -751,7 +747,7 @@ function designPlot(name, { caption, label, draw, wide = false, small = false, p
   return plot;
 }
 
-function plotsFor(kind, d, request, run) {
+function plotsFor(state, kind, d, request, run) {
   const g = (v, n = 4) => significant(v, n);
   if (kind === 'displacer') {
     const c = d.band.curve;
@@ -839,7 +835,7 @@ function plotsFor(kind, d, request, run) {
       caption: bothInside
         ? 'Both design wavelengths are marked (the second one unlabelled where the labels would overlap); their values are in the Retardance card.'
         : 'The band does not hold both design wavelengths: only the first is marked.',
-      draw: (p, dark) => drawTwoMarkers(p, {
+      draw: (p, dark) => drawTwoMarkers(state, p, {
         title: 'Retardance of the pair against wavelength',
         x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
         points: c, note: 'design points marked',
@@ -853,7 +849,7 @@ function designWavelength(request) {
   return typeof request.wavelength_nm === 'number' ? request.wavelength_nm : 632.8;
 }
 
-function drawDesignPlot(p) {
+function drawDesignPlot(state, p) {
   try {
     p.draw(p, state.darkQuery.matches);
   } catch (e) {
@@ -863,12 +859,12 @@ function drawDesignPlot(p) {
   }
 }
 
-function redrawDesign() {
-  for (const p of state.design.plots) drawDesignPlot(p);
+function redrawDesign(state) {
+  for (const p of state.design.plots) drawDesignPlot(state, p);
 }
 
 /** Writes the shown design: its results as text, then its plots. */
-function renderDesign() {
+function renderDesign(state) {
   const s = state.design.shown;
   const results = document.getElementById('design-results');
   const cardBox = document.getElementById('design-cards');
@@ -887,26 +883,26 @@ function renderDesign() {
   document.getElementById('design-empty').hidden = true;
   const d = s.design;
   const kind = d.kind;
-  const parts = kind === 'displacer' ? displacerResults(d, s.run)
-    : kind === 'waveplate' ? waveplateResults(d)
-      : kind === 'achromat' ? achromatResults(d)
-        : recombinerResults(d);
+  const parts = kind === 'displacer' ? displacerResults(state, d, s.run)
+    : kind === 'waveplate' ? waveplateResults(state, d)
+      : kind === 'achromat' ? achromatResults(state, d)
+        : recombinerResults(state, d);
   const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
-  const advice = adviceOf(d);
+  const advice = adviceOf(state, d);
   results.replaceChildren(...[head, adviceLists(advice), parts[0]].filter(Boolean));
   cardBox.replaceChildren(...parts.slice(1));
 
   for (const p of state.design.plots) state.design.resize.unobserve(p.box);
-  state.design.plots = plotsFor(kind, d, s.request, s.run);
+  state.design.plots = plotsFor(state, kind, d, s.request, s.run);
   plotBox.replaceChildren(...state.design.plots.filter((p) => !p.small).map((p) => p.figure));
   rowBox.replaceChildren(...state.design.plots.filter((p) => p.small).map((p) => p.figure));
   for (const p of state.design.plots) {
-    drawDesignPlot(p);
+    drawDesignPlot(state, p);
     state.design.resize.observe(p.box);
   }
   document.getElementById('design-use').disabled = false;
-  updateDesignStale();
+  updateDesignStale(state);
   const kindName = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const words = (list) => list.map((a) => a.text);
   updateOrderSheet(state, { kindName, request: s.request, design: d, complete: s.complete, warnings: words(advice.warnings), notes: words(advice.notes) });
@@ -915,9 +911,9 @@ function renderDesign() {
 // --- the design part of a shared link --------------------------------------------------------
 
 /** Tells the page the request the fields say, for the link ('' while it is the default one). */
-function notifyDesignInputs() {
+function notifyDesignInputs(state) {
   if (!state.design.links.onDesignInputs) return;
-  const text = JSON.stringify(designRequest());
+  const text = JSON.stringify(designRequest(state));
   state.design.links.onDesignInputs(text === state.design.defaultRequestText ? '' : text);
 }
 
@@ -937,7 +933,7 @@ function requestLeaves(obj, prefix = '', out = []) {
  * have, or a value it cannot hold, is named beside its field (or in the panel's general slot)
  * and left out; every other field is filled.
  */
-function setDesignInputs(req) {
+function setDesignInputs(state, req) {
   state.design.errors.clear();
   if (!req || typeof req !== 'object' || Array.isArray(req)) {
     state.design.errors.show({ field: '', message: 'The design part of this link is not a JSON object; the design fields were kept.' });
@@ -960,7 +956,7 @@ function setDesignInputs(req) {
       }
       f.input.value = String(v);
       f.touched = true;
-      if (path === 'kind') layoutDesignFields();
+      if (path === 'kind') layoutDesignFields(state);
     } else if (typeof v === 'number' && Number.isFinite(v)) {
       f.input.value = String(v);
       const m = /^(.*?)(no|ne)$/.exec(path);
@@ -972,17 +968,17 @@ function setDesignInputs(req) {
       problems.push({ field: path, message: 'the link gives no number here; the field was left as it was' });
     }
   }
-  layoutDesignFields();
+  layoutDesignFields(state);
   for (const p of problems) state.design.errors.add(p);
-  notifyDesignInputs();
+  notifyDesignInputs(state);
 }
 
 // --- the worker ----------------------------------------------------------------------------
 
-function setDesignState(state) {
+function setDesignState(panelState) {
   const panel = document.getElementById('design');
-  if (panel.dataset.state !== state) panel.dataset.state = state;
-  const running = state === 'solving' || state === 'running';
+  if (panel.dataset.state !== panelState) panel.dataset.state = panelState;
+  const running = panelState === 'solving' || panelState === 'running';
   const cancel = document.getElementById('design-cancel');
   if (!running && document.activeElement === cancel) document.getElementById('design-solve').focus();
   cancel.disabled = !running;
@@ -994,40 +990,40 @@ function designStatus(text) {
   setText(document.getElementById('design-status'), text);
 }
 
-function startDesignWorker() {
+function startDesignWorker(state) {
   let w;
   try {
     w = new Worker('design-worker.js', { type: 'module' });
   } catch (e) {
-    designFailed(`The design worker could not start: ${e && e.message ? e.message : e}`);
+    designFailed(state, `The design worker could not start: ${e && e.message ? e.message : e}`);
     return;
   }
   state.design.worker = w;
   w.onmessage = (ev) => {
-    if (w === state.design.worker) onDesignMessage(ev.data);
+    if (w === state.design.worker) onDesignMessage(state, ev.data);
   };
   w.onerror = (ev) => {
     ev.preventDefault();
     if (w !== state.design.worker) return;
-    designFailed(`The design worker stopped: ${ev.message || 'its script or the design core could not be loaded'}.`);
+    designFailed(state, `The design worker stopped: ${ev.message || 'its script or the design core could not be loaded'}.`);
   };
   w.onmessageerror = () => {
-    if (w === state.design.worker) designFailed('The design worker sent a message the page could not read.');
+    if (w === state.design.worker) designFailed(state, 'The design worker sent a message the page could not read.');
   };
 }
 
-function stopDesignWorker() {
+function stopDesignWorker(state) {
   if (state.design.worker) state.design.worker.terminate();
   state.design.worker = null;
 }
 
-function designFailed(message) {
-  stopDesignWorker();
+function designFailed(state, message) {
+  stopDesignWorker(state);
   const a = state.design.active;
   state.design.active = null;
   if (a && a.nominal && state.design.shown && state.design.shown.run) {
     state.design.shown.run.cancelled = true;
-    renderDesign();
+    renderDesign(state);
   } else {
     document.getElementById('design-run').hidden = true;
   }
@@ -1043,11 +1039,11 @@ function showProgress(done, total) {
   setText(document.getElementById('design-progress-text'), `${done} of ${total} samples`);
 }
 
-function onDesignMessage(msg) {
+function onDesignMessage(state, msg) {
   if (!msg || typeof msg !== 'object') return;
   if (msg.type === 'ready') return;
   if (msg.type === 'failed') {
-    designFailed(msg.message);
+    designFailed(state, msg.message);
     return;
   }
   const a = state.design.active;
@@ -1062,7 +1058,7 @@ function onDesignMessage(msg) {
     setDesignState('running');
     designStatus('Nominal design shown; the tolerance run goes on in the background.');
     state.design.errors.clear();
-    renderDesign();
+    renderDesign(state);
   } else if (msg.type === 'progress') {
     a.done = msg.done;
     a.total = msg.total;
@@ -1080,23 +1076,23 @@ function onDesignMessage(msg) {
     setDesignState('done');
     const mc = msg.design.monte_carlo;
     designStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
-    renderDesign();
+    renderDesign(state);
   } else if (msg.type === 'error') {
     state.design.active = null;
     if (a.nominal && state.design.shown && state.design.shown.run) {
       state.design.shown.run.cancelled = true;
-      renderDesign();
+      renderDesign(state);
     }
     if (msg.internal) {
       // The core may be in a bad state after an internal error: start afresh.
-      stopDesignWorker();
-      startDesignWorker();
+      stopDesignWorker(state);
+      startDesignWorker(state);
     }
     document.getElementById('design-run').hidden = true;
     state.design.errors.show(msg.error);
     setDesignState('error');
     designStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
-    updateDesignStale(true);
+    updateDesignStale(state, true);
   }
 }
 
@@ -1111,7 +1107,7 @@ const BAND_DEFAULT_WORDS = {
  * A pair of fields (a band, two design wavelengths) with one end given and the other empty
  * explains itself: an error on the empty end saying what to do, or null.
  */
-function oneSidedPair() {
+function oneSidedPair(state) {
   const kind = state.design.fields.kind.value;
   const pairs = kind === 'achromat' ? ['wavelengths_nm', 'band_nm'] : ['band_nm'];
   for (const name of pairs) {
@@ -1128,19 +1124,19 @@ function oneSidedPair() {
   return null;
 }
 
-function solveDesign() {
-  const oneSided = oneSidedPair();
+function solveDesign(state) {
+  const oneSided = oneSidedPair(state);
   if (oneSided) {
-    if (state.design.active) cancelDesign();
+    if (state.design.active) cancelDesign(state);
     state.design.errors.show(oneSided);
     setDesignState('error');
-    designStatus(`Not solved: ${labelFor(oneSided.field)} is empty.`);
-    updateDesignStale(true);
+    designStatus(`Not solved: ${labelFor(state, oneSided.field)} is empty.`);
+    updateDesignStale(state, true);
     return;
   }
-  const request = designRequest();
-  if (state.design.active) stopDesignWorker(); // a new request replaces the one under way
-  if (!state.design.worker) startDesignWorker();
+  const request = designRequest(state);
+  if (state.design.active) stopDesignWorker(state); // a new request replaces the one under way
+  if (!state.design.worker) startDesignWorker(state);
   if (!state.design.worker) return;
   state.design.errors.clear();
   const id = state.design.nextId;
@@ -1151,18 +1147,18 @@ function solveDesign() {
   state.design.worker.postMessage({ type: 'solve', id, request });
 }
 
-function cancelDesign() {
+function cancelDesign(state) {
   const a = state.design.active;
   if (!a) return;
-  stopDesignWorker();
-  startDesignWorker();
+  stopDesignWorker(state);
+  startDesignWorker(state);
   state.design.active = null;
   if (a.nominal && state.design.shown && state.design.shown.run) {
     state.design.shown.run.cancelled = true;
     state.design.shown.run.done = a.done;
     setDesignState('cancelled');
     designStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
-    renderDesign();
+    renderDesign(state);
   } else {
     setDesignState(state.design.shown ? 'done' : 'idle');
     designStatus('Cancelled.');
@@ -1170,7 +1166,7 @@ function cancelDesign() {
   document.getElementById('design-solve').focus();
 }
 
-function useDesign() {
+function useDesign(state) {
   const s = state.design.shown;
   if (!s) return;
   try {
@@ -1188,13 +1184,13 @@ function useDesign() {
 }
 
 /** Says so when the fields no longer match the design shown (or the last request failed). */
-function updateDesignStale(failed = false) {
+function updateDesignStale(state, failed = false) {
   const note = document.getElementById('design-stale');
   const s = state.design.shown;
   let text = '';
   if (s && failed) {
     text = 'Not solved: the results below are for the last request that solved.';
-  } else if (s && !state.design.active && JSON.stringify(designRequest()) !== JSON.stringify(s.request)) {
+  } else if (s && !state.design.active && JSON.stringify(designRequest(state)) !== JSON.stringify(s.request)) {
     text = 'The fields have changed since this design was solved: press Solve to update it.';
   }
   setText(note, text);
@@ -1202,17 +1198,17 @@ function updateDesignStale(failed = false) {
 }
 
 /**
- * Builds the panel in section#design and starts its worker. `pageState` is the page's state
+ * Builds the panel in section#design and starts its worker. `state` is the page's state
  * (state.js): the panel reads its core (drawSeries, drawHistogram, designLimits), materials and
- * colour scheme, and keeps its own part in pageState.design. `links` is what the panel may do to
+ * colour scheme, and keeps its own part in state.design; every function of the panel that
+ * needs it takes it as its first parameter. `links` is what the panel may do to
  * the page: `applyScenario(obj, origin)` (loads a scenario into the set-up as a step of its
  * history; throws {field, message}), `flushFragment()` (writes the address now) and
  * `onDesignInputs(text)` (the fields' request as JSON for the link, '' while it is the default).
- * Returns the test hooks `designRequest()` and `designShown()`, and `setDesignInputs(request)`
+ * Returns the test hooks `designRequest(state)` and `designShown()`, and `setDesignInputs(state, request)`
  * and `designLinkError(err)` for the design part of a link.
  */
-export function setupDesign(pageState, links) {
-  state = pageState;
+export function setupDesign(state, links) {
   state.design.links = links;
   state.design.limits = state.core.designLimits();
   state.design.errors = new FieldErrors({
@@ -1221,25 +1217,25 @@ export function setupDesign(pageState, links) {
     labelOf: (p) => state.design.fields[p]?.spoken,
     groups: GROUP_LABELS,
   });
-  buildDesignFields();
-  layoutDesignFields();
+  buildDesignFields(state);
+  layoutDesignFields(state);
   const form = document.getElementById('design-form');
   form.addEventListener('submit', (ev) => {
     ev.preventDefault();
-    solveDesign();
+    solveDesign(state);
   });
   const onEdit = (ev) => {
     const f = ev.target instanceof HTMLElement ? ev.target.dataset.designField : undefined;
     if (f === undefined) return;
     if (state.design.fields[f]) state.design.fields[f].touched = true;
-    if (ev.target.tagName === 'SELECT') layoutDesignFields();
-    if (!state.design.errors.shown) updateDesignStale();
-    notifyDesignInputs();
+    if (ev.target.tagName === 'SELECT') layoutDesignFields(state);
+    if (!state.design.errors.shown) updateDesignStale(state);
+    notifyDesignInputs(state);
   };
   form.addEventListener('input', onEdit);
   form.addEventListener('change', onEdit);
-  document.getElementById('design-cancel').addEventListener('click', cancelDesign);
-  document.getElementById('design-use').addEventListener('click', useDesign);
+  document.getElementById('design-cancel').addEventListener('click', () => cancelDesign(state));
+  document.getElementById('design-use').addEventListener('click', () => useDesign(state));
   state.design.resize = new ResizeObserver((entries) => {
     const todo = new Set();
     for (const e of entries) {
@@ -1247,16 +1243,16 @@ export function setupDesign(pageState, links) {
       if (p) todo.add(p);
     }
     requestAnimationFrame(() => {
-      for (const p of todo) if (state.design.plots.includes(p)) drawDesignPlot(p);
+      for (const p of todo) if (state.design.plots.includes(p)) drawDesignPlot(state, p);
     });
   });
-  state.darkQuery.addEventListener('change', () => redrawDesign());
-  startDesignWorker();
-  state.design.defaultRequestText = JSON.stringify(designRequest());
+  state.darkQuery.addEventListener('change', () => redrawDesign(state));
+  startDesignWorker(state);
+  state.design.defaultRequestText = JSON.stringify(designRequest(state));
   return {
-    setDesignInputs,
+    setDesignInputs: (req) => setDesignInputs(state, req),
     designLinkError: (err) => state.design.errors.show(err),
-    designRequest,
+    designRequest: () => designRequest(state),
     designShown: () => (state.design.shown ? structuredClone({ request: state.design.shown.request, design: state.design.shown.design, complete: state.design.shown.complete }) : null),
   };
 }

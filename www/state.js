@@ -1,7 +1,9 @@
 // Doublespar page: the page's state, in one object. app.js creates it once (createState) and
 // hands it to the modules that need it (setupResults, setupViews, setupExport, setupDesign);
-// they read and write its fields instead of keeping variables of their own. Tables that never
-// change stay as constants in their modules.
+// they read and write its fields instead of keeping variables of their own, and every function
+// of theirs that needs it takes it as its first parameter. Tables that never change stay as
+// constants in their modules; dom.js's counter of element ids is the one variable left outside
+// (ids unique in the document, not state of the page).
 //
 // Contract: `createState({darkQuery})` returns the object below, every field documented where
 // it is made; `materialName(state, key)` names a material of the catalogue as every list and
