@@ -45,7 +45,7 @@ function addField(state, path, spec) {
 }
 
 /** A titled group of fields with its own error slot (for errors that name the whole group). */
-function designGroup(title, errorPath, children, { pair = false, hint } = {}) {
+function fieldGroup(title, errorPath, children, { pair = false, hint } = {}) {
   const tid = uid('dg');
   const body = pair ? h('div', { className: 'pair-grid' }, ...children) : null;
   const hintEl = h('p', { className: 'hint', hidden: !hint, text: hint ?? '' });
@@ -95,7 +95,7 @@ function buildDesignFields(state) {
 
   const medium = mediumFields(state, '', 'calcite');
   const wl = addField(state, 'wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
-  const band = designGroup('Band (optional)', 'band_nm', [
+  const band = fieldGroup('Band (optional)', 'band_nm', [
     addField(state, 'band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
     addField(state, 'band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
   ], { pair: true });
@@ -108,7 +108,7 @@ function buildDesignFields(state) {
     step: 0.1,
     hint: 'Clear aperture = separation + factor × beam diameter.',
   });
-  const tolerances = designGroup('Tolerances, one standard deviation each', 'tolerances', [
+  const tolerances = fieldGroup('Tolerances, one standard deviation each', 'tolerances', [
     addField(state, 'tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
     addField(state, 'tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
     addField(state, 'tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
@@ -133,9 +133,9 @@ function buildDesignFields(state) {
 
   const first = mediumFields(state, 'first.', 'quartz', 'first plate');
   const second = mediumFields(state, 'second.', 'mgf2', 'second plate');
-  const firstBox = designGroup('First plate', 'first', first.nodes);
-  const secondBox = designGroup('Second plate', 'second', second.nodes);
-  const wavelengths = designGroup('Design wavelengths', 'wavelengths_nm', [
+  const firstBox = fieldGroup('First plate', 'first', first.nodes);
+  const secondBox = fieldGroup('Second plate', 'second', second.nodes);
+  const wavelengths = fieldGroup('Design wavelengths', 'wavelengths_nm', [
     addField(state, 'wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
     addField(state, 'wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
   ], { pair: true, hint: 'The pair has exactly the target retardance at both.' });
@@ -330,7 +330,7 @@ const formats = {
 };
 
 /** The value at a dotted path ("band.min_mm", "plates.0.thickness_mm") of a design. */
-function designValue(d, path) {
+function valueAt(d, path) {
   let v = d;
   for (const k of path.split('.')) {
     if (v === null || v === undefined || typeof v !== 'object') return undefined;
@@ -346,7 +346,7 @@ function designValue(d, path) {
 function boundOf(d, path) {
   const i = path.lastIndexOf('.');
   const name = path.slice(i + 1).replace(/_(deg|mm|nm|waves|rad)$/, '');
-  const b = designValue(d, `${path.slice(0, i + 1)}${name}_bound`);
+  const b = valueAt(d, `${path.slice(0, i + 1)}${name}_bound`);
   return typeof b === 'string' ? b : undefined;
 }
 
@@ -355,7 +355,7 @@ function boundOf(d, path) {
  * only a lower bound reads "≥ 10°" and carries data-bound (the flag, `at_least` or `found`).
  */
 function dq(d, path, format, tag = 'span', attrs = {}) {
-  const v = designValue(d, path);
+  const v = valueAt(d, path);
   if (v === undefined) return null;
   const bound = boundOf(d, path);
   const text = v === null ? '—' : `${bound === 'at_least' ? `≥${NBSP}` : ''}${format(v)}`;
@@ -363,7 +363,7 @@ function dq(d, path, format, tag = 'span', attrs = {}) {
 }
 
 /** A card of labelled results of design `d`. rows: [label, path, format] or [label, element] or null. */
-function designCard(d, title, rows, { note, className } = {}) {
+function resultCard(d, title, rows, { note, className } = {}) {
   const dl = h('dl', { className: 'quantities' });
   for (const r of rows) {
     if (!r) continue;
@@ -439,13 +439,13 @@ function displacerResults(state, d, run) {
     '.',
   );
   const cards = [
-    designCard(d, 'What to order', [
+    resultCard(d, 'What to order', [
       ['material', 'material', (v) => designMaterialName(state, v)],
       ['length', 'length_mm', formats.length],
       ['cut tilt', 'cut_tilt_deg', formats.deg],
       ['clear aperture', 'clear_aperture_mm', formats.length],
     ], { note: dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' }), className: 'design-main' }),
-    designCard(d, 'Beams at the exit', [
+    resultCard(d, 'Beams at the exit', [
       ['o/e separation', 'separation_mm', formats.length],
       ['e-ray displaced toward (axis at 0°)', 'displacement_direction', formats.text],
       ['e walk-off', 'walkoff_deg', formats.deg],
@@ -455,20 +455,20 @@ function displacerResults(state, d, run) {
       ['o–e exit phase', 'exit_phase_rad', formats.rad],
       ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', formats.rad],
     ]),
-    designCard(d, 'Crystal', [
+    resultCard(d, 'Crystal', [
       ['wavelength', 'wavelength_nm', formats.nm],
       ['nₒ', 'no', formats.index],
       ['nₑ', 'ne', formats.index],
       ['cut of largest walk-off', 'max_walkoff_cut_deg', formats.deg],
       ['dρ/dθ at the cut', 'walkoff_slope', formats.sig('°/°', 3)],
     ]),
-    designCard(d, 'Over the band', [
+    resultCard(d, 'Over the band', [
       ['smallest separation', 'band.min_mm', formats.length],
       ['… at', 'band.min_at_nm', formats.nm],
       ['largest separation', 'band.max_mm', formats.length],
       ['… at', 'band.max_at_nm', formats.nm],
     ], { note: d.band.curve.length < 2 ? 'No band was given: the design wavelength alone.' : null }),
-    designCard(d, 'Sensitivity of the separation', [
+    resultCard(d, 'Sensitivity of the separation', [
       ['to cut tilt', 'sensitivities.tilt_mm_per_deg', formats.sig('mm/°', 4)],
       ['to incidence', 'sensitivities.incidence_mm_per_deg', formats.sig('mm/°', 4)],
       ['to length', 'sensitivities.thickness_mm_per_mm', formats.sig('mm/mm', 4)],
@@ -485,7 +485,7 @@ function displacerResults(state, d, run) {
 
 function monteCarloCard(state, d, run) {
   if (d.monte_carlo) {
-    return designCard(d, 'Monte Carlo: separation', [
+    return resultCard(d, 'Monte Carlo: separation', [
       ['samples', 'monte_carlo.n', formats.count],
       ['mean', 'monte_carlo.mean', formats.length],
       ['standard deviation', 'monte_carlo.std', formats.sig('mm', 4)],
@@ -527,20 +527,20 @@ function waveplateResults(state, d) {
   const worst = worstPlane(d);
   return [
     headline,
-    designCard(d, 'What to order', [
+    resultCard(d, 'What to order', [
       ...plateRows,
       ['net retarding thickness', 'effective_thickness_mm', formats.length],
       ['order', 'order', formats.text],
       ['order number', 'order_number', formats.count],
     ], { className: 'design-main', note: 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
-    designCard(d, 'Retardance', [
+    resultCard(d, 'Retardance', [
       ['at the design wavelength', 'retardance_waves', formats.waves],
       ['fast axis', 'fast_axis', formats.text],
       ['nₒ', 'no', formats.index],
       ['nₑ', 'ne', formats.index],
       ['nₑ − nₒ', 'birefringence', formats.sig('', 6)],
     ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
-    designCard(d, 'Angle of incidence', [
+    resultCard(d, 'Angle of incidence', [
       ['acceptance (worst plane)', 'acceptance_deg', formats.angle],
       ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, formats.angle]),
     ], {
@@ -573,8 +573,8 @@ function achromatResults(state, d) {
   });
   return [
     headline,
-    designCard(d, 'What to order', rows, { className: 'design-main' }),
-    designCard(d, 'Retardance', [
+    resultCard(d, 'What to order', rows, { className: 'design-main' }),
+    resultCard(d, 'Retardance', [
       ['first design wavelength', 'at_design_wavelengths.0.0', formats.nm],
       ['… retardance there', 'at_design_wavelengths.0.1', formats.waves],
       ['second design wavelength', 'at_design_wavelengths.1.0', formats.nm],
@@ -597,32 +597,32 @@ function recombinerResults(state, d) {
     { className: `design-headline ${works ? 'verdict-good' : 'verdict-bad'}` },
     works ? 'The pair recombines: one spot, overlap at least 0.99 and phase within π/10.' : `The pair does not recombine well: ${why.join(', ')}.`,
   );
-  const unreachable = (path) => Math.abs(designValue(d, path)) > 90;
+  const unreachable = (path) => Math.abs(valueAt(d, path)) > 90;
   const notes = [];
   if (unreachable('tilt_mismatch_to_break_deg.0') || unreachable('tilt_mismatch_to_break_deg.1')) {
     notes.push('A cut mismatch above 90° is a linear extrapolation beyond any real cut: at the cut of largest walk-off the residual grows only to second order in the mismatch, which the linear estimate does not see.');
   }
   return [
     headline,
-    designCard(d, 'Recombination', [
+    resultCard(d, 'Recombination', [
       ['one spot', 'recombined', formats.yes],
       ['overlap of the beams', 'overlap', formats.fraction],
       ['phase difference', 'phase_difference_rad', formats.rad],
       ['power in the spot', 'recombined_power', formats.power],
       ['power elsewhere', 'stray_power', formats.power],
     ], { className: 'design-main', note: 'It breaks when the overlap drops below 0.99 or the phase moves by more than π/10.' }),
-    designCard(d, 'Residual separation', [
+    resultCard(d, 'Residual separation', [
       ['length', 'residual_separation_mm', formats.length],
       ['x', 'residual_vector_mm.0', formats.length],
       ['y', 'residual_vector_mm.1', formats.length],
     ]),
-    designCard(d, 'Sensitivity to a mismatch', [
+    resultCard(d, 'Sensitivity to a mismatch', [
       ['residual per length', 'length_sensitivity.0', formats.sig('mm/mm', 4)],
       ['phase per length', 'length_sensitivity.1', formats.sig('rad/mm', 4)],
       ['residual per cut', 'tilt_sensitivity.0', formats.sig('mm/°', 4)],
       ['phase per cut', 'tilt_sensitivity.1', formats.sig('rad/°', 4)],
     ]),
-    designCard(d, 'Mismatch that breaks it', [
+    resultCard(d, 'Mismatch that breaks it', [
       ['length, for the overlap', 'length_mismatch_to_break_mm.0', formats.sig('mm', 4)],
       ['length, for the phase', 'length_mismatch_to_break_mm.1', formats.sig('mm', 4)],
       ['cut, for the overlap', 'tilt_mismatch_to_break_deg.0', formats.sig('°', 4)],
@@ -986,7 +986,7 @@ function setDesignState(panelState) {
   document.getElementById('design-output').setAttribute('aria-busy', running ? 'true' : 'false');
 }
 
-function designStatus(text) {
+function setStatus(text) {
   setText(document.getElementById('design-status'), text);
 }
 
@@ -1029,7 +1029,7 @@ function designFailed(state, message) {
   }
   state.design.errors.show({ field: '', message: `${message} Press Solve to try again.` });
   setDesignState('error');
-  designStatus('Not solved.');
+  setStatus('Not solved.');
 }
 
 function showProgress(done, total) {
@@ -1056,7 +1056,7 @@ function onDesignMessage(state, msg) {
     document.getElementById('design-run').hidden = false;
     showProgress(0, total);
     setDesignState('running');
-    designStatus('Nominal design shown; the tolerance run goes on in the background.');
+    setStatus('Nominal design shown; the tolerance run goes on in the background.');
     state.design.errors.clear();
     renderDesign(state);
   } else if (msg.type === 'progress') {
@@ -1075,7 +1075,7 @@ function onDesignMessage(state, msg) {
     state.design.errors.clear();
     setDesignState('done');
     const mc = msg.design.monte_carlo;
-    designStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
+    setStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
     renderDesign(state);
   } else if (msg.type === 'error') {
     state.design.active = null;
@@ -1091,7 +1091,7 @@ function onDesignMessage(state, msg) {
     document.getElementById('design-run').hidden = true;
     state.design.errors.show(msg.error);
     setDesignState('error');
-    designStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
+    setStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
     updateDesignStale(state, true);
   }
 }
@@ -1130,7 +1130,7 @@ function solveDesign(state) {
     if (state.design.active) cancelDesign(state);
     state.design.errors.show(oneSided);
     setDesignState('error');
-    designStatus(`Not solved: ${labelFor(state, oneSided.field)} is empty.`);
+    setStatus(`Not solved: ${labelFor(state, oneSided.field)} is empty.`);
     updateDesignStale(state, true);
     return;
   }
@@ -1143,7 +1143,7 @@ function solveDesign(state) {
   state.design.nextId += 1;
   state.design.active = { id, request, t0: performance.now(), nominal: null, done: 0, total: 0 };
   setDesignState('solving');
-  designStatus('Solving…');
+  setStatus('Solving…');
   state.design.worker.postMessage({ type: 'solve', id, request });
 }
 
@@ -1157,11 +1157,11 @@ function cancelDesign(state) {
     state.design.shown.run.cancelled = true;
     state.design.shown.run.done = a.done;
     setDesignState('cancelled');
-    designStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
+    setStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
     renderDesign(state);
   } else {
     setDesignState(state.design.shown ? 'done' : 'idle');
-    designStatus('Cancelled.');
+    setStatus('Cancelled.');
   }
   document.getElementById('design-solve').focus();
 }
@@ -1179,7 +1179,7 @@ function useDesign(state) {
     return;
   }
   state.design.links.flushFragment();
-  designStatus('The designed part is now the set-up: the views and results above show it.');
+  setStatus('The designed part is now the set-up: the views and results above show it.');
   document.getElementById('views').focus();
 }
 
