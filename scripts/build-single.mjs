@@ -6,8 +6,8 @@
 // - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
 //   superset of the page's exports, so one wasm serves the page and the design worker) with its
 //   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
-//   modules it imports, see PAGE_MODULES) concatenated by bundlePage below, with their two loads
-//   rewritten (the bindings import, and the design worker's script);
+//   modules it imports, see PAGE_MODULES), each in a function scope of its own by bundlePage
+//   below, with their two loads rewritten (the bindings import, and the design worker's script);
 // - the wasm, gzipped and base64-encoded, inflated in the browser with DecompressionStream;
 // - the design worker's source (the same glue + www/design-worker.js, its import and init
 //   rewritten), started from a Blob URL; the page posts it the wasm bytes.
@@ -61,7 +61,7 @@ function wrapGlue(glue) {
 // The page's ES modules, in www/ beside app.js. A module that app.js (or one of these) imports
 // must be listed here, and every one listed must be reached from app.js: the build fails
 // otherwise, so that adding a module is a deliberate change to the single file too.
-const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'export.js'];
+const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'state.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'export.js'];
 
 const IDENT = '[A-Za-z_$][\\w$]*';
 // A top-level declaration starts its line (the page's style): `[export ][async ]function[*] name`,
@@ -76,18 +76,24 @@ function topLevelNames(text, what) {
   return [...text.matchAll(DECLARATION)].map((m) => m[2]);
 }
 
+/** The name under which the single file holds a module's exports: `dom.js` -> `__module_dom_js`. */
+const moduleObject = (file) => `__module_${file.replace(/\W/g, '_')}`;
+
 /**
  * The page's modules as one script, in the order the browser evaluates them (each after the
- * modules it imports, in the order of its import lines, from app.js), with their import lines
- * removed and their `export ` keywords stripped. Strict, because the modules now share one scope
- * and nothing checks the result but the browser: an import must be `import { a, b } from
- * './x.js';` of a module in PAGE_MODULES (no default, namespace or renamed import; the bindings
- * are loaded with import(), which the caller rewrites), each name one that module exports; an
- * export must be `export function|class|const|let name`; a top-level name may be declared in one
- * module only; no cycle. Returns {text, order, declared: Map name -> module}.
+ * modules it imports, in the order of its import lines, from app.js). Each module keeps a scope
+ * of its own: its body runs in a function that returns its exports as an object, bound to
+ * moduleObject(file), and its imports become destructurings of the objects of the modules they
+ * name, so that two modules may declare the same name. Strict, because nothing checks the result
+ * but the browser: an import must be `import { a, b } from './x.js';` of a module in PAGE_MODULES
+ * (no default, namespace or renamed import; the bindings are loaded with import(), which the
+ * caller rewrites), each name one that module exports; an export must be `export
+ * function|class|const name` (an exported `let` could change after the copy was taken); no cycle.
+ * Returns {text, order, declared: Map name -> module} (every module's top-level names, which must
+ * not hide a name of the wrapper or the loader).
  */
 function bundlePage() {
-  const modules = new Map(); // file -> {imports: [{from, names}], body, exported: Set}
+  const modules = new Map(); // file -> {imports: [{from, names}], body, exported: [name]}
   const parse = (file) => {
     let source = read(file);
     const imports = [];
@@ -99,10 +105,11 @@ function bundlePage() {
       return '';
     });
     if (/^\s*import\b(?!\s*\()/m.test(source)) throw new Error(`build-single: ${file}: an import that does not start its line`);
-    const exported = new Set();
-    for (const m of source.matchAll(DECLARATION)) if (m[1]) exported.add(m[2]);
-    const body = source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b|let\b)/gm, '');
-    if (/^\s*export\b/m.test(body)) throw new Error(`build-single: ${file}: an export the single file cannot inline (only \`export function|class|const|let name\`)`);
+    if (/^export\s+let\b/m.test(source)) throw new Error(`build-single: ${file}: an exported let, which the single file would copy once; export a const or a function`);
+    const exported = [];
+    for (const m of source.matchAll(DECLARATION)) if (m[1]) exported.push(m[2]);
+    const body = source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b)/gm, '');
+    if (/^\s*export\b/m.test(body)) throw new Error(`build-single: ${file}: an export the single file cannot inline (only \`export function|class|const name\`)`);
     return { imports, body, exported };
   };
   const order = [];
@@ -121,20 +128,19 @@ function bundlePage() {
   const unused = PAGE_MODULES.filter((f) => !order.includes(f));
   if (unused.length) throw new Error(`build-single: PAGE_MODULES lists ${unused.join(', ')}, which app.js does not reach; update the list`);
   const declared = new Map();
+  const parts = [];
   for (const file of order) {
     const mod = modules.get(file);
     for (const imp of mod.imports) {
       for (const name of imp.names) {
-        if (!modules.get(imp.from).exported.has(name)) throw new Error(`build-single: ${file} imports ${name} from ./${imp.from}, which does not export it`);
+        if (!modules.get(imp.from).exported.includes(name)) throw new Error(`build-single: ${file} imports ${name} from ./${imp.from}, which does not export it`);
       }
     }
-    for (const name of topLevelNames(mod.body, file)) {
-      if (declared.has(name)) throw new Error(`build-single: ${name} is declared at the top level of both ${declared.get(name)} and ${file}; in the single file they share one scope`);
-      declared.set(name, file);
-    }
+    for (const name of topLevelNames(mod.body, file)) declared.set(name, file);
+    const imports = mod.imports.map((imp) => `const { ${imp.names.join(', ')} } = ${moduleObject(imp.from)};\n`).join('');
+    parts.push(`// --- www/${file}\nconst ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
   }
-  const text = order.map((file) => `// --- www/${file}\n${modules.get(file).body}`).join('\n');
-  return { text, order, declared };
+  return { text: parts.join('\n'), order, declared };
 }
 
 const glue = wrapGlue(read('pkg-design/doublespar.js'));
@@ -159,8 +165,8 @@ const workerSource = glue + worker;
 const page = bundlePage();
 let app = page.text;
 app = replaceOnce(app,
-  "core = await import('./pkg/doublespar.js');\n    await core.default();",
-  'core = __dsMakeCore();\n    await core.default({ module_or_path: await __dsWasmBytes() });',
+  "state.core = await import('./pkg/doublespar.js');\n    await state.core.default();",
+  'state.core = __dsMakeCore();\n    await state.core.default({ module_or_path: await __dsWasmBytes() });',
   `the page's modules (${page.order.join(', ')})`);
 app = replaceOnce(app, "new Worker('design-worker.js', { type: 'module' })", '__dsStartWorker()',
   `the page's modules (${page.order.join(', ')})`);
@@ -207,11 +213,11 @@ function __dsStartWorker() {
 }
 `;
 
-// The page's modules share one scope in the single file: none may declare what the loader or
-// the glue's wrapper declares.
-for (const name of [...topLevelNames(loader, 'the loader'), '__dsMakeCore']) {
+// A module's own top-level names would hide the loader's, the glue's wrapper's and the modules'
+// objects from the code inside it: none may declare one of them.
+for (const name of [...topLevelNames(loader, 'the loader'), '__dsMakeCore', ...page.order.map(moduleObject)]) {
   if (page.declared.has(name)) {
-    throw new Error(`build-single: ${page.declared.get(name)} declares ${name}, which the single file's loader declares too`);
+    throw new Error(`build-single: ${page.declared.get(name)} declares ${name}, which the single file's wrapper uses`);
   }
 }
 const script = scriptSafe(loader + glue + app);

@@ -261,6 +261,7 @@ fn the_page_sources_turn_no_data_into_markup_or_code() {
         "dom.js",
         "format.js",
         "field-error.js",
+        "state.js",
         "results.js",
         "views.js",
         "design-panel.js",

@@ -3,8 +3,9 @@
 // the bindings module (pkg/doublespar.js, built by scripts/build-web.sh) is loaded here, and
 // every other import is one of the page's own modules beside this file: the results as text
 // (results.js), the views (views.js), the design panel (design-panel.js), the exports and print
-// sheet (export.js), and the helpers they share (dom.js, format.js, field-error.js). This module
-// starts the page (main) and wires them together, handing each what it needs as parameters.
+// sheet (export.js), and the helpers they share (dom.js, format.js, field-error.js: one field
+// and its error for both panels). This module creates the page's state (state.js, one object),
+// starts the page (main) and wires the modules together, handing each that state.
 //
 // Data flow: controls -> scenario object -> session.updateJson(text) -> result -> results text,
 // canvases, aria-labels, URL fragment. A rejected scenario shows its message beside the control
@@ -16,9 +17,10 @@
 
 'use strict';
 
-import { h, numberInput, setAttr, setText, stepNumber, uid } from './dom.js';
-import { readNumber, unitWord } from './format.js';
-import { fieldLabel, labelled, nearestErrorSlot, toFieldError } from './field-error.js';
+import { h, setAttr, setText, stepNumber, uid } from './dom.js';
+import { readNumber } from './format.js';
+import { Field, FieldErrors, SETUP_NAMES, errorSlot, toFieldError } from './field-error.js';
+import { createState, materialName } from './state.js';
 import { setupDesign } from './design-panel.js';
 import { setupExport, updatePrintSheet } from './export.js';
 import { renderResults, setupResults, toggleShowAll } from './results.js';
@@ -30,33 +32,6 @@ const MAX_CRYSTALS = 12;
 const FRAGMENT_KEY = '#scenario=';
 const DESIGN_KEY = 'design=';
 
-// Starting points besides the built-in demo (the same documents as examples/*.json).
-const PRESETS = {
-  recombiner: {
-    version: 1,
-    wavelength_nm: 1064,
-    beam: { diameter_mm: 0.5, polarization: { kind: 'linear', azimuth_deg: 30 } },
-    elements: [
-      { kind: 'crystal', material: 'yvo4', thickness_mm: 8, axis: { tilt_deg: 45, azimuth_deg: 0 } },
-      { kind: 'retarder', retardance_waves: 0.5, fast_axis_deg: 45, gap_mm: 2 },
-      { kind: 'crystal', material: 'yvo4', thickness_mm: 8, axis: { tilt_deg: 45, azimuth_deg: 0 }, gap_mm: 2 },
-    ],
-  },
-  'quarter-wave': {
-    version: 1,
-    wavelength_nm: 532,
-    interface_losses: 'uncoated',
-    beam: {
-      diameter_mm: 2,
-      incidence: { polar_deg: 8, azimuth_deg: 20 },
-      polarization: { kind: 'linear', azimuth_deg: 45 },
-    },
-    elements: [
-      { kind: 'crystal', material: 'quartz', thickness_mm: 0.0166, axis: { tilt_deg: 90, azimuth_deg: 0 } },
-    ],
-  },
-};
-
 // Defaults used when a new element is added or a loaded document leaves a field out.
 const ELEMENT_DEFAULTS = {
   crystal: { material: 'calcite', thickness_mm: 10, tilt_deg: 45, azimuth_deg: 0, no: 1.6584, ne: 1.4864 },
@@ -66,11 +41,8 @@ const ELEMENT_DEFAULTS = {
 };
 const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator' };
 
-let core = null; // the bindings module
-let session = null;
-let materialList = [];
-let viewList = [];
-const darkQuery = window.matchMedia('(prefers-color-scheme: dark)');
+// The page's state, handed to the modules that need it (state.js).
+const state = createState({ darkQuery: window.matchMedia('(prefers-color-scheme: dark)') });
 
 // ---------------------------------------------------------------------------------------------
 // Never silently dead: internal errors go to #panic.
@@ -105,147 +77,35 @@ window.addEventListener('unhandledrejection', (ev) => {
 // Controls. Every control carries data-field (its contract path); every field has an error
 // element with data-error-for (the same path) beside it.
 
-/** How a loaded value is written into a text control. */
-function asInputText(v) {
-  if (v === undefined || v === null) return '';
-  if (typeof v === 'number') return String(v);
-  if (typeof v === 'string') return v;
-  try {
-    return JSON.stringify(v);
-  } catch {
-    return String(v);
-  }
-}
-
-/** Fields whose path depends on where they sit (stack cards), renamed on reorder. */
-class Field {
-  constructor(key, { label, spoken, unit, slider, hint, step, kind = 'number', options, wide = false }) {
-    this.key = key; // path relative to its owner
-    this.kind = kind;
-    // The spoken name (aria-label) where the visible label needs its group to be told apart.
-    this.spoken = spoken ?? label;
-    const id = uid('f');
-    this.input = null;
-    this.range = null;
-    this.unitEl = null;
-    this.labelEl = h('label', { for: id, text: label });
-    this.error = h('p', { className: 'field-error', id: `${id}-err`, hidden: true, 'aria-live': 'polite' });
-    const control = h('div', { className: 'control' });
-    if (kind === 'select') {
-      this.input = h('select', { id, 'aria-describedby': `${id}-err` });
-      for (const [value, text] of options) this.input.appendChild(h('option', { value, text }));
-      control.appendChild(this.input);
-      if (spoken) this.input.setAttribute('aria-label', spoken);
-    } else {
-      this.input = numberInput(id, { 'aria-describedby': `${id}-err`, 'data-step': step ?? STEPS[unit ?? ''] ?? 0.01 });
-      control.appendChild(this.input);
-      if (unit) {
-        this.unitEl = h('span', { className: 'unit', text: unit, 'aria-hidden': 'true' });
-        control.appendChild(this.unitEl);
-        this.input.setAttribute('aria-label', `${this.spoken} (${unitWord(unit)})`);
-      } else if (spoken) {
-        this.input.setAttribute('aria-label', spoken);
-      }
-    }
-    this.row = h('div', { className: `field${slider ? ' has-slider' : ''}${wide ? ' wide' : ''}` }, this.labelEl, control);
-    if (slider) {
-      const rid = `${id}-range`;
-      this.rangeLabel = h('label', { for: rid, className: 'visually-hidden', text: `${this.spoken} slider` });
-      this.range = h('input', {
-        id: rid,
-        type: 'range',
-        min: slider.min,
-        max: slider.max,
-        step: slider.step ?? 0.1,
-        'aria-describedby': `${id}-err`,
-      });
-      this.row.appendChild(h('div', { className: 'slider' }, this.rangeLabel, this.range));
-      this.input.range = this.range;
-      this.range.num = this.input;
-    }
-    if (hint) this.row.appendChild(h('p', { className: 'hint', text: hint }));
-    this.row.appendChild(this.error);
-    this.label = label;
-  }
-
-  setPath(path, labelPrefix) {
-    setAttr(this.input, 'data-field', path);
-    setAttr(this.input, 'data-label', this.label);
-    if (this.range) setAttr(this.range, 'data-field', path);
-    setAttr(this.error, 'data-error-for', path);
-    if (labelPrefix !== undefined) {
-      const full = `${this.spoken}, ${labelPrefix}`;
-      if (this.unitEl) setAttr(this.input, 'aria-label', `${full} (${unitWord(this.unitEl.textContent)})`);
-      else setAttr(this.input, 'aria-label', full);
-      if (this.range) setAttr(this.range, 'aria-label', `${full}, slider`);
-    }
-  }
-
-  get value() {
-    return this.kind === 'select' ? this.input.value : readNumber(this.input.value);
-  }
-
-  set(v) {
-    if (this.kind === 'select') {
-      const text = asInputText(v);
-      for (const o of this.input.querySelectorAll('option[data-extra]')) {
-        if (o.value !== text) o.remove();
-      }
-      if (![...this.input.options].some((o) => o.value === text)) {
-        // Keep a value the list does not know, so that the core can name it.
-        this.input.appendChild(h('option', { value: text, text: `${text} (unknown)`, 'data-extra': 'true' }));
-      }
-      if (this.input.value !== text) this.input.value = text;
-    } else {
-      const text = asInputText(v);
-      if (this.input.value !== text) {
-        this.input.value = text;
-        this.syncRange();
-      }
-    }
-  }
-
-  syncRange() {
-    if (!this.range) return;
-    const v = readNumber(this.input.value);
-    if (typeof v === 'number' && this.range.value !== String(v)) this.range.value = String(v);
-  }
-}
-
 const ANGLE = (min, max) => ({ min, max, step: 0.1 });
-// Base steps of the arrow keys in a number field, by unit (Shift ×10, Alt ×0.1; dom.js).
-const STEPS = { '°': 1, nm: 1, mm: 0.1, waves: 0.01, '': 0.01 };
-
-// Top-level controls, keyed by their contract path.
-const top = {};
 
 function addTop(container, path, field) {
   field.setPath(path);
-  top[path] = field;
+  state.controls[path] = field;
   container.appendChild(field.row);
   return field;
 }
 
 function buildTopControls() {
   const light = document.getElementById('light-fields');
-  addTop(light, 'wavelength_nm', new Field('wavelength_nm', { label: 'Wavelength', unit: 'nm' }));
-  addTop(light, 'outside_index', new Field('outside_index', { label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
-  addTop(light, 'interface_losses', new Field('interface_losses', {
+  addTop(light, 'wavelength_nm', new Field({ key: 'wavelength_nm', label: 'Wavelength', unit: 'nm' }));
+  addTop(light, 'outside_index', new Field({ key: 'outside_index', label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
+  addTop(light, 'interface_losses', new Field({ key: 'interface_losses',
     label: 'Crystal faces',
     kind: 'select',
     options: [['ideal', 'ideal, no losses'], ['uncoated', 'uncoated, Fresnel']],
   }));
-  addTop(light, 'beam.diameter_mm', new Field('beam.diameter_mm', { label: 'Beam diameter', unit: 'mm' }));
+  addTop(light, 'beam.diameter_mm', new Field({ key: 'beam.diameter_mm', label: 'Beam diameter', unit: 'mm' }));
 
   const inc = document.getElementById('incidence-fields');
-  inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam', hidden: true }));
-  inc.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.incidence', hidden: true }));
-  addTop(inc, 'beam.incidence.polar_deg', new Field('polar_deg', { label: 'Polar angle', unit: '°', slider: ANGLE(-89.9, 89.9) }));
-  addTop(inc, 'beam.incidence.azimuth_deg', new Field('azimuth_deg', { label: 'Azimuth', spoken: 'Incidence azimuth', unit: '°', slider: ANGLE(-180, 180) }));
+  inc.appendChild(errorSlot('beam'));
+  inc.appendChild(errorSlot('beam.incidence'));
+  addTop(inc, 'beam.incidence.polar_deg', new Field({ key: 'polar_deg', label: 'Polar angle', unit: '°', slider: ANGLE(-89.9, 89.9) }));
+  addTop(inc, 'beam.incidence.azimuth_deg', new Field({ key: 'azimuth_deg', label: 'Azimuth', spoken: 'Incidence azimuth', unit: '°', slider: ANGLE(-180, 180) }));
 
   const pol = document.getElementById('polarization-fields');
-  pol.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization', hidden: true }));
-  addTop(pol, 'beam.polarization.kind', new Field('kind', {
+  pol.appendChild(errorSlot('beam.polarization'));
+  addTop(pol, 'beam.polarization.kind', new Field({ key: 'kind',
     label: 'Kind',
     spoken: 'Kind of input polarization',
     kind: 'select',
@@ -258,13 +118,13 @@ function buildTopControls() {
       ['unpolarized', 'unpolarized'],
     ],
   }));
-  const azimuth = addTop(pol, 'beam.polarization.azimuth_deg', new Field('azimuth_deg', {
+  const azimuth = addTop(pol, 'beam.polarization.azimuth_deg', new Field({ key: 'azimuth_deg',
     label: 'Azimuth', spoken: 'Polarization azimuth', unit: '°', slider: ANGLE(-180, 180),
   }));
-  const ellipticity = addTop(pol, 'beam.polarization.ellipticity_deg', new Field('ellipticity_deg', {
+  const ellipticity = addTop(pol, 'beam.polarization.ellipticity_deg', new Field({ key: 'ellipticity_deg',
     label: 'Ellipticity angle', unit: '°', slider: ANGLE(-45, 45), hint: 'χ with tan χ = ±b/a; positive is right-handed (S3 > 0).',
   }));
-  const handed = addTop(pol, 'beam.polarization.handedness', new Field('handedness', {
+  const handed = addTop(pol, 'beam.polarization.handedness', new Field({ key: 'handedness',
     label: 'Handedness',
     kind: 'select',
     options: [['right', 'right-handed (S3 > 0)'], ['left', 'left-handed (S3 < 0)']],
@@ -276,11 +136,11 @@ function buildTopControls() {
   jones.appendChild(jgrid);
   const jLabels = [['Re E1', 0, 0], ['Im E1', 0, 1], ['Re E2', 1, 0], ['Im E2', 1, 1]];
   for (const [label, a, b] of jLabels) {
-    addTop(jgrid, `beam.polarization.jones[${a}][${b}]`, new Field('', { label, step: 0.1 }));
+    addTop(jgrid, `beam.polarization.jones[${a}][${b}]`, new Field({ key: '', label, step: 0.1 }));
   }
-  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[0]', hidden: true }));
-  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones[1]', hidden: true }));
-  jones.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.jones', hidden: true }));
+  jones.appendChild(errorSlot('beam.polarization.jones[0]'));
+  jones.appendChild(errorSlot('beam.polarization.jones[1]'));
+  jones.appendChild(errorSlot('beam.polarization.jones'));
   jones.appendChild(h('p', { className: 'hint', text: 'Scaled to unit power; e1 and e2 are x̂ and ŷ at normal incidence.' }));
   pol.appendChild(jones);
 
@@ -289,16 +149,16 @@ function buildTopControls() {
   const sgrid = h('div', { className: 'pair-grid' });
   stokes.appendChild(sgrid);
   for (let i = 0; i < 4; i += 1) {
-    addTop(sgrid, `beam.polarization.stokes[${i}]`, new Field('', { label: `S${i}`, step: 0.1 }));
+    addTop(sgrid, `beam.polarization.stokes[${i}]`, new Field({ key: '', label: `S${i}`, step: 0.1 }));
   }
-  stokes.appendChild(h('p', { className: 'field-error', 'data-error-for': 'beam.polarization.stokes', hidden: true }));
+  stokes.appendChild(errorSlot('beam.polarization.stokes'));
   stokes.appendChild(h('p', { className: 'hint', text: 'Partially polarized light is allowed: √(S1² + S2² + S3²) ≤ S0. Scaled to S0 = 1.' }));
   pol.appendChild(stokes);
 
   const unpolarizedNote = h('p', { className: 'hint', text: 'Unpolarized light: no further settings.' });
   pol.appendChild(unpolarizedNote);
 
-  polarizationParts = {
+  state.polarizationParts = {
     linear: [azimuth.row],
     circular: [handed.row],
     elliptical: [azimuth.row, ellipticity.row],
@@ -306,29 +166,26 @@ function buildTopControls() {
     stokes: [stokes],
     unpolarized: [unpolarizedNote],
   };
-  polarizationAll = [azimuth.row, ellipticity.row, handed.row, jones, stokes, unpolarizedNote];
+  state.polarizationAll = [azimuth.row, ellipticity.row, handed.row, jones, stokes, unpolarizedNote];
 
   // Values for the kinds not shown, so that switching kind starts from something sensible.
   azimuth.set(45);
   ellipticity.set(20);
   handed.set('right');
-  top['beam.polarization.jones[0][0]'].set(1);
-  top['beam.polarization.jones[0][1]'].set(0);
-  top['beam.polarization.jones[1][0]'].set(0);
-  top['beam.polarization.jones[1][1]'].set(1);
-  top['beam.polarization.stokes[0]'].set(1);
-  top['beam.polarization.stokes[1]'].set(0.5);
-  top['beam.polarization.stokes[2]'].set(0);
-  top['beam.polarization.stokes[3]'].set(0);
+  state.controls['beam.polarization.jones[0][0]'].set(1);
+  state.controls['beam.polarization.jones[0][1]'].set(0);
+  state.controls['beam.polarization.jones[1][0]'].set(0);
+  state.controls['beam.polarization.jones[1][1]'].set(1);
+  state.controls['beam.polarization.stokes[0]'].set(1);
+  state.controls['beam.polarization.stokes[1]'].set(0.5);
+  state.controls['beam.polarization.stokes[2]'].set(0);
+  state.controls['beam.polarization.stokes[3]'].set(0);
 }
 
-let polarizationParts = {};
-let polarizationAll = [];
-
 function showPolarizationKind() {
-  const kind = top['beam.polarization.kind'].value;
-  const shown = new Set(polarizationParts[kind] ?? []);
-  for (const el of polarizationAll) {
+  const kind = state.controls['beam.polarization.kind'].value;
+  const shown = new Set(state.polarizationParts[kind] ?? []);
+  for (const el of state.polarizationAll) {
     if (el.hidden !== !shown.has(el)) el.hidden = !shown.has(el);
   }
 }
@@ -336,7 +193,6 @@ function showPolarizationKind() {
 // ---------------------------------------------------------------------------------------------
 // The stack: one card per element.
 
-const cards = [];
 const stackList = () => document.getElementById('stack-list');
 
 class Card {
@@ -348,7 +204,7 @@ class Card {
     this.legend = h('legend', { className: 'card-number' });
     fs.appendChild(this.legend);
 
-    this.kindField = new Field('kind', {
+    this.kindField = new Field({ key: 'kind',
       label: 'Kind',
       kind: 'select',
       options: Object.entries(KIND_NAMES).map(([k, v]) => [k, v]),
@@ -359,40 +215,40 @@ class Card {
     this.remove = h('button', { type: 'button', className: 'icon danger', 'data-action': 'remove', text: '✕' });
     const head = h('div', { className: 'card-head' }, this.kindField.row, h('div', { className: 'card-tools' }, this.up, this.down, this.remove));
     fs.appendChild(head);
-    this.cardError = h('p', { className: 'field-error', hidden: true });
+    this.cardError = errorSlot(null);
     fs.appendChild(this.cardError);
 
     this.f = {};
     const f = this.f;
-    f.gap = new Field('gap_mm', { label: 'Gap before', unit: 'mm' });
+    f.gap = new Field({ key: 'gap_mm', label: 'Gap before', unit: 'mm' });
 
     // Crystal.
-    const matOptions = materialList.map((m) => [m.key, materialName(m.key)]);
+    const matOptions = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
     matOptions.push(['custom', 'custom indices']);
-    f.material = new Field('material', { label: 'Material', kind: 'select', options: matOptions });
+    f.material = new Field({ key: 'material', label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
     f.material.row.insertBefore(this.materialNote, f.material.error);
-    f.no = new Field('no', { label: 'nₒ, ordinary index', unit: '', step: 0.001 });
-    f.ne = new Field('ne', { label: 'nₑ, extraordinary index', unit: '', step: 0.001 });
+    f.no = new Field({ key: 'no', label: 'nₒ, ordinary index', unit: '', step: 0.001 });
+    f.ne = new Field({ key: 'ne', label: 'nₑ, extraordinary index', unit: '', step: 0.001 });
     this.customBox = h('div', { className: 'subgroup custom-indices' }, f.no.row, f.ne.row);
-    f.thickness = new Field('thickness_mm', { label: 'Thickness', unit: 'mm' });
-    f.tilt = new Field('axis.tilt_deg', { label: 'Axis tilt', unit: '°', slider: ANGLE(0, 180), hint: 'Cut angle: optic axis from the plate normal +z.' });
-    f.azimuth = new Field('axis.azimuth_deg', { label: 'Axis azimuth', unit: '°', slider: ANGLE(-180, 180) });
-    this.axisError = h('p', { className: 'field-error', hidden: true });
+    f.thickness = new Field({ key: 'thickness_mm', label: 'Thickness', unit: 'mm' });
+    f.tilt = new Field({ key: 'axis.tilt_deg', label: 'Axis tilt', unit: '°', slider: ANGLE(0, 180), hint: 'Cut angle: optic axis from the plate normal +z.' });
+    f.azimuth = new Field({ key: 'axis.azimuth_deg', label: 'Axis azimuth', unit: '°', slider: ANGLE(-180, 180) });
+    this.axisError = errorSlot(null);
     const axisBox = h('div', { className: 'subgroup axis' }, h('p', { className: 'subgroup-title', text: 'Optic axis' }), f.tilt.row, f.azimuth.row, this.axisError);
     this.groups = {
       crystal: h('div', { className: 'kind-fields' }, f.material.row, this.customBox, f.thickness.row, axisBox),
     };
 
     // Retarder.
-    f.retardance = new Field('retardance_waves', { label: 'Retardance', unit: 'waves' });
-    f.fast = new Field('fast_axis_deg', { label: 'Fast axis', unit: '°', slider: ANGLE(-180, 180) });
+    f.retardance = new Field({ key: 'retardance_waves', label: 'Retardance', unit: 'waves' });
+    f.fast = new Field({ key: 'fast_axis_deg', label: 'Fast axis', unit: '°', slider: ANGLE(-180, 180) });
     this.groups.retarder = h('div', { className: 'kind-fields' }, f.retardance.row, f.fast.row);
     // Polarizer.
-    f.transmission = new Field('transmission_axis_deg', { label: 'Transmission axis', unit: '°', slider: ANGLE(-180, 180) });
+    f.transmission = new Field({ key: 'transmission_axis_deg', label: 'Transmission axis', unit: '°', slider: ANGLE(-180, 180) });
     this.groups.polarizer = h('div', { className: 'kind-fields' }, f.transmission.row);
     // Rotator.
-    f.angle = new Field('angle_deg', { label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
+    f.angle = new Field({ key: 'angle_deg', label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
     this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
 
     fs.appendChild(f.gap.row);
@@ -401,7 +257,7 @@ class Card {
 
     const d = ELEMENT_DEFAULTS;
     f.gap.set(0);
-    f.material.set(materialList.some((m) => m.key === d.crystal.material) ? d.crystal.material : (materialList[0]?.key ?? 'custom'));
+    f.material.set(state.materialList.some((m) => m.key === d.crystal.material) ? d.crystal.material : (state.materialList[0]?.key ?? 'custom'));
     f.no.set(d.crystal.no);
     f.ne.set(d.crystal.ne);
     f.thickness.set(d.crystal.thickness_mm);
@@ -429,7 +285,7 @@ class Card {
   showMaterial() {
     const key = this.f.material.value;
     if (this.customBox.hidden !== (key !== 'custom')) this.customBox.hidden = key !== 'custom';
-    const m = materialList.find((x) => x.key === key);
+    const m = state.materialList.find((x) => x.key === key);
     if (m) {
       const unverified = m.verified === false ? ' · unverified data: no journal source' : '';
       setText(this.materialNote, `${m.sign} uniaxial · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`);
@@ -521,9 +377,9 @@ class Card {
 }
 
 function renumberCards() {
-  const n = cards.length;
-  cards.forEach((c, i) => c.setIndex(i, n));
-  const crystals = cards.filter((c) => c.kind === 'crystal').length;
+  const n = state.cards.length;
+  state.cards.forEach((c, i) => c.setIndex(i, n));
+  const crystals = state.cards.filter((c) => c.kind === 'crystal').length;
   for (const b of document.querySelectorAll('[data-add]')) {
     b.disabled = n >= MAX_ELEMENTS || (b.dataset.add === 'crystal' && crystals >= MAX_CRYSTALS);
   }
@@ -532,7 +388,7 @@ function renumberCards() {
 function addCard(kind, obj) {
   const card = new Card(kind);
   if (obj) card.load(obj);
-  cards.push(card);
+  state.cards.push(card);
   stackList().appendChild(card.el);
   return card;
 }
@@ -540,9 +396,9 @@ function addCard(kind, obj) {
 /** Makes the cards match a list of element objects, reusing the cards already there. */
 function loadCards(list) {
   const items = list.slice(0, MAX_ELEMENTS + 1);
-  while (cards.length > items.length) cards.pop().el.remove();
+  while (state.cards.length > items.length) state.cards.pop().el.remove();
   items.forEach((o, i) => {
-    if (i < cards.length) cards[i].load(o);
+    if (i < state.cards.length) state.cards[i].load(o);
     else addCard('crystal', o);
   });
   renumberCards();
@@ -558,34 +414,34 @@ function onStackClick(ev) {
   if (!btn) return;
   const card = btn.closest('li.card')?.card;
   if (!card) return;
-  const i = cards.indexOf(card);
+  const i = state.cards.indexOf(card);
   const action = btn.dataset.action;
   if (action === 'up' && i > 0) {
-    cards.splice(i, 1);
-    cards.splice(i - 1, 0, card);
-    stackList().insertBefore(card.el, cards[i].el);
+    state.cards.splice(i, 1);
+    state.cards.splice(i - 1, 0, card);
+    stackList().insertBefore(card.el, state.cards[i].el);
     renumberCards();
     (card.up.disabled ? card.down : card.up).focus();
     announce(`Element ${i + 1} moved up to position ${i}.`);
-  } else if (action === 'down' && i < cards.length - 1) {
-    cards.splice(i, 1);
-    cards.splice(i + 1, 0, card);
-    stackList().insertBefore(card.el, cards[i + 2]?.el ?? null);
+  } else if (action === 'down' && i < state.cards.length - 1) {
+    state.cards.splice(i, 1);
+    state.cards.splice(i + 1, 0, card);
+    stackList().insertBefore(card.el, state.cards[i + 2]?.el ?? null);
     renumberCards();
     (card.down.disabled ? card.up : card.down).focus();
     announce(`Element ${i + 1} moved down to position ${i + 2}.`);
   } else if (action === 'remove') {
-    cards.splice(i, 1);
+    state.cards.splice(i, 1);
     card.el.remove();
     renumberCards();
-    const next = cards[i] ?? cards[i - 1];
+    const next = state.cards[i] ?? state.cards[i - 1];
     if (next) next.remove.focus();
     else document.querySelector('[data-add="crystal"]').focus();
     announce(`Element ${i + 1} removed.`);
   } else {
     return;
   }
-  pendingEdit = {};
+  state.pendingEdit = {};
   schedule();
 }
 
@@ -597,8 +453,8 @@ function onAddClick(ev) {
   const first = card.el.querySelector('.kind-fields:not([hidden]) input, .kind-fields:not([hidden]) select') ?? card.kindField.input;
   first.focus();
   card.el.scrollIntoView({ block: 'nearest' });
-  announce(`Element ${cards.length} added: ${KIND_NAMES[btn.dataset.add]}.`);
-  pendingEdit = {};
+  announce(`Element ${state.cards.length} added: ${KIND_NAMES[btn.dataset.add]}.`);
+  state.pendingEdit = {};
   schedule();
 }
 
@@ -606,7 +462,7 @@ function onAddClick(ev) {
 // Scenario <-> controls.
 
 function buildScenario() {
-  const v = (p) => top[p].value;
+  const v = (p) => state.controls[p].value;
   const kind = v('beam.polarization.kind');
   let polarization;
   switch (kind) {
@@ -644,7 +500,7 @@ function buildScenario() {
       incidence: { polar_deg: v('beam.incidence.polar_deg'), azimuth_deg: v('beam.incidence.azimuth_deg') },
       polarization,
     },
-    elements: cards.map((c) => c.build()),
+    elements: state.cards.map((c) => c.build()),
   };
 }
 
@@ -654,7 +510,7 @@ function member(o, k) {
 
 /** Writes a scenario object into the controls; missing fields take the contract's defaults. */
 function loadControls(s) {
-  const set = (p, v) => top[p].set(v);
+  const set = (p, v) => state.controls[p].set(v);
   set('wavelength_nm', member(s, 'wavelength_nm') ?? 632.8);
   set('outside_index', member(s, 'outside_index') ?? 1);
   set('interface_losses', member(s, 'interface_losses') ?? 'ideal');
@@ -690,13 +546,6 @@ function loadControls(s) {
 // ---------------------------------------------------------------------------------------------
 // Errors beside their controls.
 
-let errorShown = false;
-
-/** Where a message about `path` is shown; #scenario-error is the fallback, not a slot. */
-function visibleErrorTarget(path) {
-  return nearestErrorSlot(document, 'data-error-for', path, (el) => el.id === 'scenario-error');
-}
-
 // Names of fields that have no control of their own (an error about a whole group).
 const GROUP_LABELS = {
   '': 'Set-up',
@@ -712,45 +561,30 @@ const GROUP_LABELS = {
   'elements[].axis': 'Optic axis',
 };
 
-/** The field at `path` as the page labels it: "Element 2 · Thickness", "Wavelength". */
-function labelFor(path) {
-  const own = (p) => [...document.querySelectorAll('[data-field][data-label]')].find((el) => el.dataset.field === p)?.dataset.label;
-  return fieldLabel(path, own, GROUP_LABELS);
+/** The set-up's error display (field-error.js): the controls' slots under form#controls. */
+function setupErrors() {
+  const root = document.getElementById('controls');
+  const own = (p) => [...root.querySelectorAll('[data-field][data-label]')].find((el) => el.dataset.field === p)?.dataset.label;
+  state.errors = new FieldErrors({ root, names: SETUP_NAMES, labelOf: own, groups: GROUP_LABELS });
 }
 
+/** The field at `path` as the page labels it: "Element 2 · Thickness", "Wavelength". */
+function labelFor(path) {
+  return state.errors.label(path);
+}
+
+/** Shows the core's error beside its control, and says above the views that they are not updated. */
 function showFieldError(err) {
-  clearErrors();
-  errorShown = true;
-  const field = err.field;
-  const target = visibleErrorTarget(field);
-  const general = document.getElementById('scenario-error');
-  const label = field ? labelFor(field) : '';
-  const shown = target ?? general;
-  shown.textContent = labelled(field, err.message, label);
-  shown.setAttribute('data-error-field', field);
-  shown.hidden = false;
+  state.errors.show(err);
   const stale = document.getElementById('stale-note');
-  stale.textContent = `Not updated: ${field ? `${label} needs attention` : 'the set-up needs attention'}. The views and results show the last set-up that traced.`;
+  stale.textContent = `Not updated: ${state.errors.summary(err, 'the set-up')}. The views and results show the last set-up that traced.`;
   stale.hidden = false;
-  let marked = [...document.querySelectorAll(`[data-field="${CSS.escape(field)}"]`)];
-  if (marked.length === 0 && /(jones|stokes)(\[\d\])?$/.test(field)) {
-    marked = [...document.querySelectorAll('[data-field]')].filter((el) => el.dataset.field.startsWith(`${field}[`));
-  }
-  for (const el of marked) el.setAttribute('aria-invalid', 'true');
   document.body.classList.add('has-error');
 }
 
 function clearErrors() {
-  if (!errorShown) return;
-  errorShown = false;
-  for (const el of document.querySelectorAll('[data-error-for]')) {
-    if (!el.hidden) {
-      el.hidden = true;
-      el.textContent = '';
-    }
-  }
-  for (const el of document.querySelectorAll('[aria-invalid="true"]')) el.removeAttribute('aria-invalid');
-  for (const el of document.querySelectorAll('[data-error-field]')) el.removeAttribute('data-error-field');
+  if (!state.errors.shown) return;
+  state.errors.clear();
   const stale = document.getElementById('stale-note');
   stale.hidden = true;
   stale.textContent = '';
@@ -758,44 +592,27 @@ function clearErrors() {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Materials by name (results, view descriptions and the design panel).
-
-// A formula with no journal source (`verified` false) is named with "(unverified data)", so that
-// every list and description of the page that names it says so.
-function materialName(key) {
-  const m = materialList.find((x) => x.key === key);
-  if (!m) return key;
-  return m.verified === false ? `${m.name} (unverified data)` : m.name;
-}
-
-// ---------------------------------------------------------------------------------------------
 // Tracing.
 
-let lastResult = null;
-let lastScenario = null;
-let framePending = false;
-let lastAttempt = null;
-let lastGoodText = null;
-
 function schedule() {
-  if (framePending) return;
-  framePending = true;
+  if (state.framePending) return;
+  state.framePending = true;
   requestAnimationFrame(() => {
-    framePending = false;
+    state.framePending = false;
     commit();
   });
 }
 
 function accept(result, text, scenarioObj, drawn = false) {
-  lastResult = result;
-  lastScenario = scenarioObj;
-  lastGoodText = text;
-  if (!drawn) drawViews();
+  state.result = result;
+  state.scenario = scenarioObj;
+  state.lastGoodText = text;
+  if (!drawn) drawViews(state);
   clearErrors();
   clearFileError();
-  renderResults(result);
-  describeViews();
-  updatePrintSheet(JSON.parse(session.scenarioJson()), KIND_NAMES);
+  renderResults(state, result);
+  describeViews(state);
+  updatePrintSheet(JSON.parse(state.session.scenarioJson()), KIND_NAMES);
 }
 
 /**
@@ -805,7 +622,7 @@ function accept(result, text, scenarioObj, drawn = false) {
  */
 function traceText(text) {
   try {
-    return { result: session.updateJson(text) };
+    return { result: state.session.updateJson(text) };
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
@@ -815,12 +632,12 @@ function traceText(text) {
 
 /** Traces what the controls say; on an error, shows it and keeps the last good state. */
 function commit() {
-  const edit = pendingEdit;
-  pendingEdit = null;
+  const edit = state.pendingEdit;
+  state.pendingEdit = null;
   const scenario = buildScenario();
   const text = JSON.stringify(scenario);
-  if (text === lastAttempt) return;
-  lastAttempt = text;
+  if (text === state.lastAttempt) return;
+  state.lastAttempt = text;
   const { result, error } = traceText(text);
   if (error) {
     showFieldError(error);
@@ -854,20 +671,20 @@ function loadScenario(obj, origin) {
   const { result, error } = traceText(text);
   if (error) {
     loadControls(obj);
-    lastAttempt = JSON.stringify(buildScenario());
+    state.lastAttempt = JSON.stringify(buildScenario());
     showFieldError(error);
     throw error;
   }
-  const normal = JSON.parse(session.scenarioJson());
+  const normal = JSON.parse(state.session.scenarioJson());
   // Draw first, while the layout is still clean (the canvases read their size), then write the
   // controls and the results.
-  lastResult = result;
-  lastScenario = normal;
-  drawViews();
+  state.result = result;
+  state.scenario = normal;
+  drawViews(state);
   loadControls(normal);
   const scenario = buildScenario();
   const built = JSON.stringify(scenario);
-  lastAttempt = built;
+  state.lastAttempt = built;
   accept(result, built, scenario, true);
   if (origin) recordLoad(origin);
   return result;
@@ -875,12 +692,6 @@ function loadScenario(obj, origin) {
 
 // ---------------------------------------------------------------------------------------------
 // The history of the set-up (history.js): Undo, Redo, Back, Forward, where it came from.
-
-let setupHistory = null;
-let designPanel = null; // the design panel's hooks (setupDesign)
-let designText = ''; // the design panel's inputs as they travel in the link ('' when at their defaults)
-let editGroup = null; // the control whose run of edits is one step (a drag, typing), until its change event
-let pendingEdit = null; // what the next commit records: a control's path or a structural action
 
 /** Where a set-up came from, in words: "the preset “…”", "the file x.json", … plus ", edited". */
 function originText(origin, edited = false) {
@@ -898,7 +709,7 @@ function originText(origin, edited = false) {
 }
 
 function currentEntry() {
-  return setupHistory && setupHistory.current;
+  return state.history && state.history.current;
 }
 
 /** The fragment of an entry: `#scenario=<text>`, and `&design=<request>` when the panel was changed. */
@@ -919,8 +730,8 @@ function showOrigin() {
 function historyChanged() {
   const undo = document.getElementById('undo');
   const redo = document.getElementById('redo');
-  if (undo) undo.disabled = !setupHistory.canUndo;
-  if (redo) redo.disabled = !setupHistory.canRedo;
+  if (undo) undo.disabled = !state.history.canUndo;
+  if (redo) redo.disabled = !state.history.canRedo;
   showOrigin();
 }
 
@@ -944,13 +755,13 @@ function clearFragmentError() {
 function recordEdit(key) {
   const cur = currentEntry();
   clearFragmentError();
-  if (!cur || cur.text === lastGoodText) return;
-  const entry = { text: lastGoodText, origin: cur.origin, edited: true, design: designText };
-  if (key && typeof key === 'string' && key === editGroup) {
-    setupHistory.replace(entry);
+  if (!cur || cur.text === state.lastGoodText) return;
+  const entry = { text: state.lastGoodText, origin: cur.origin, edited: true, design: state.designText };
+  if (key && typeof key === 'string' && key === state.editGroup) {
+    state.history.replace(entry);
   } else {
-    setupHistory.push(entry);
-    editGroup = typeof key === 'string' ? key : null;
+    state.history.push(entry);
+    state.editGroup = typeof key === 'string' ? key : null;
     historyStatus('');
   }
 }
@@ -958,23 +769,23 @@ function recordEdit(key) {
 /** After a load (preset, file, link, designed part): a step of its own, and what it replaced. */
 function recordLoad(origin) {
   const cur = currentEntry();
-  editGroup = null;
-  pendingEdit = null;
+  state.editGroup = null;
+  state.pendingEdit = null;
   clearFragmentError();
-  const entry = { text: lastGoodText, origin, edited: false, design: designText };
+  const entry = { text: state.lastGoodText, origin, edited: false, design: state.designText };
   if (!cur) {
-    setupHistory.start(entry);
+    state.history.start(entry);
     return;
   }
-  setupHistory.push(entry);
+  state.history.push(entry);
   historyStatus(`Loaded ${originText(origin)}; it replaced ${originText(cur.origin, cur.edited)}. Undo brings that back.`);
 }
 
 /** Shows an entry of the history (Back, Forward, Undo, Redo) without recording anything. */
 function restoreEntry(entry) {
-  editGroup = null;
-  pendingEdit = null;
-  if (entry.text !== lastGoodText) {
+  state.editGroup = null;
+  state.pendingEdit = null;
+  if (entry.text !== state.lastGoodText) {
     let obj;
     try {
       obj = JSON.parse(entry.text);
@@ -987,22 +798,22 @@ function restoreEntry(entry) {
     }
   }
   historyStatus(`Showing ${originText(entry.origin, entry.edited)}, step ${entry.index + 1}.`);
-  if ((entry.design ?? '') !== designText) setupHistory.replace({ ...entry, design: designText }, { now: true });
+  if ((entry.design ?? '') !== state.designText) state.history.replace({ ...entry, design: state.designText }, { now: true });
 }
 
 function undo() {
   flushPendingEdit();
-  if (!setupHistory.undo()) historyStatus('Nothing to undo.');
+  if (!state.history.undo()) historyStatus('Nothing to undo.');
 }
 
 function redo() {
   flushPendingEdit();
-  if (!setupHistory.redo()) historyStatus('Nothing to redo.');
+  if (!state.history.redo()) historyStatus('Nothing to redo.');
 }
 
 /** An edit still waiting for its animation frame is committed first, so that Undo takes it back. */
 function flushPendingEdit() {
-  if (framePending) commit();
+  if (state.framePending) commit();
 }
 
 /**
@@ -1032,16 +843,16 @@ function onStepKey(ev) {
 
 /** The design panel's inputs changed: the link carries them (no new step: they are not the set-up). */
 function onDesignInputs(text) {
-  designText = text;
+  state.designText = text;
   const cur = currentEntry();
-  if (cur && (cur.design ?? '') !== text) setupHistory.replace({ ...cur, design: text });
+  if (cur && (cur.design ?? '') !== text) state.history.replace({ ...cur, design: text });
 }
 
 // ---------------------------------------------------------------------------------------------
 // The URL fragment and the link.
 
 function flushFragment() {
-  setupHistory.flush();
+  state.history.flush();
 }
 
 /**
@@ -1070,19 +881,19 @@ function readFragment() {
 
 /** The design part of a link into the design panel: a bad field is named there, the rest is kept. */
 function loadDesignPart(design) {
-  if (!design || !designPanel) return;
+  if (!design || !state.design.hooks) return;
   if (design.error) {
-    designPanel.designLinkError({ field: '', message: `The design part of this link could not be read: ${design.error}.` });
+    state.design.hooks.designLinkError({ field: '', message: `The design part of this link could not be read: ${design.error}.` });
     return;
   }
   let obj;
   try {
     obj = JSON.parse(design.text);
   } catch (e) {
-    designPanel.designLinkError({ field: '', message: `The design part of this link is not valid JSON (${e.message}); the design fields were kept.` });
+    state.design.hooks.designLinkError({ field: '', message: `The design part of this link is not valid JSON (${e.message}); the design fields were kept.` });
     return;
   }
-  designPanel.setDesignInputs(obj);
+  state.design.hooks.setDesignInputs(obj);
 }
 
 /** `Label (path): message`, the label as the page shows it; `document` when the core names no field. */
@@ -1100,7 +911,13 @@ function showFragmentError(text, kept = false) {
 }
 
 function loadDemo(origin = null) {
-  loadScenario(JSON.parse(core.demoScenario()), origin);
+  loadScenario(JSON.parse(state.core.demoScenario()), origin);
+}
+
+/** The preset chooser lists the core's presets (the documents of examples/), the demo first. */
+function fillPresets() {
+  const select = document.getElementById('preset');
+  select.replaceChildren(...state.presets.map((p) => h('option', { value: p.key, text: p.name })));
 }
 
 /**
@@ -1116,7 +933,7 @@ function tryScenarioText(text) {
   } catch (e) {
     // Not expected (the core's JSON is the stricter), but the session must not stay ahead of
     // the page.
-    if (lastGoodText !== null) session.updateJson(lastGoodText);
+    if (state.lastGoodText !== null) state.session.updateJson(state.lastGoodText);
     return { error: { field: '', message: `not valid JSON (${e.message})` } };
   }
 }
@@ -1130,15 +947,15 @@ function tryScenarioText(text) {
  */
 function loadFromLocation(previousHash) {
   const first = previousHash === undefined;
-  const kept = !first && lastGoodText !== null;
+  const kept = !first && state.lastGoodText !== null;
   const frag = readFragment();
   if (frag === null) {
     if (first) {
       loadDemo();
-      setupHistory.start({ text: lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: designText });
+      state.history.start({ text: state.lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: state.designText });
     } else {
       // The fragment was removed by hand: the set-up stays, and the address says it again.
-      setupHistory.adopt({ ...currentEntry() });
+      state.history.adopt({ ...currentEntry() });
     }
     return;
   }
@@ -1150,11 +967,11 @@ function loadFromLocation(previousHash) {
       const replaced = currentEntry();
       loadScenario(tried.obj, null);
       loadDesignPart(frag.design);
-      const entry = { text: lastGoodText, origin: { kind: 'link', name: '' }, edited: false, design: designText };
+      const entry = { text: state.lastGoodText, origin: { kind: 'link', name: '' }, edited: false, design: state.designText };
       if (first) {
-        setupHistory.start(entry);
+        state.history.start(entry);
       } else {
-        setupHistory.adopt(entry);
+        state.history.adopt(entry);
         historyStatus(`Loaded ${originText(entry.origin)}; it replaced ${originText(replaced.origin, replaced.edited)}. Undo brings that back.`);
       }
       return;
@@ -1165,18 +982,17 @@ function loadFromLocation(previousHash) {
     showFragmentError(problem);
     loadDemo();
     loadDesignPart(frag.design);
-    setupHistory.start({ text: lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: designText });
+    state.history.start({ text: state.lastGoodText, origin: { kind: 'demo', name: '' }, edited: false, design: state.designText });
     return;
   }
   showFragmentError(problem, true);
-  setupHistory.adopt({ ...currentEntry() });
+  state.history.adopt({ ...currentEntry() });
 }
 
 // ---------------------------------------------------------------------------------------------
 // Opening a scenario file: checked by the core before anything on the page changes.
 
 const MAX_FILE_BYTES = 2 * 1024 * 1024;
-let fileToken = 0;
 
 function showFileError(name, text) {
   const el = document.getElementById('file-error');
@@ -1193,8 +1009,8 @@ function clearFileError() {
 }
 
 async function openScenarioFile(file) {
-  fileToken += 1;
-  const token = fileToken;
+  state.fileToken += 1;
+  const token = state.fileToken;
   if (file.size > MAX_FILE_BYTES) {
     const mib = (file.size / (1024 * 1024)).toFixed(1);
     showFileError(file.name, `document: the file holds ${mib} MiB; a scenario file may be at most ${MAX_FILE_BYTES / (1024 * 1024)} MiB`);
@@ -1204,11 +1020,11 @@ async function openScenarioFile(file) {
   try {
     text = await file.text();
   } catch (e) {
-    if (token === fileToken) showFileError(file.name, `document: the file could not be read (${e && e.message ? e.message : e})`);
+    if (token === state.fileToken) showFileError(file.name, `document: the file could not be read (${e && e.message ? e.message : e})`);
     return;
   }
   // A later choice wins over a slow read of an earlier one.
-  if (token !== fileToken) return;
+  if (token !== state.fileToken) return;
   const tried = tryScenarioText(text);
   if (tried.error) {
     showFileError(file.name, fieldText(tried.error));
@@ -1232,13 +1048,13 @@ function setupFileOpen() {
 
 async function copyLink() {
   flushFragment();
-  if (lastGoodText === null) return;
+  if (state.lastGoodText === null) return;
   const url = `${location.origin}${location.pathname}${location.search}${entryHref(currentEntry())}`;
   if (location.href !== url) history.replaceState(history.state, '', url);
   const status = document.getElementById('copy-status');
   const field = document.getElementById('link-text');
   field.value = url;
-  const note = errorShown ? ' (the last set-up that traced; the current input has an error)' : '';
+  const note = state.errors.shown ? ' (the last set-up that traced; the current input has an error)' : '';
   let copied = false;
   if (navigator.clipboard && window.isSecureContext) {
     try {
@@ -1274,8 +1090,8 @@ function onControlEvent(ev) {
   if (!(t instanceof HTMLElement) || !t.dataset.field) return;
   // A run of input events on one control is one step of the history; its change event (a
   // slider let go, a field left, a choice made) ends the run.
-  pendingEdit = pendingEdit === null || pendingEdit === t.dataset.field ? t.dataset.field : {};
-  if (ev.type === 'change' && editGroup === t.dataset.field) editGroup = null;
+  state.pendingEdit = state.pendingEdit === null || state.pendingEdit === t.dataset.field ? t.dataset.field : {};
+  if (ev.type === 'change' && state.editGroup === t.dataset.field) state.editGroup = null;
   if (t.type === 'range' && t.num) {
     t.num.value = t.value;
   } else if (t.classList.contains('num') && t.range) {
@@ -1299,8 +1115,8 @@ function onControlEvent(ev) {
 async function main() {
   const loading = document.getElementById('loading');
   try {
-    core = await import('./pkg/doublespar.js');
-    await core.default();
+    state.core = await import('./pkg/doublespar.js');
+    await state.core.default();
   } catch (e) {
     const msg = `The optics core could not be loaded (${e && e.message ? e.message : e}). `
       + 'The page needs www/pkg/doublespar.js and doublespar_bg.wasm, built by scripts/build-web.sh, '
@@ -1311,10 +1127,13 @@ async function main() {
     for (const b of document.querySelectorAll('button, select')) b.disabled = true;
     return;
   }
-  session = new core.Session();
-  materialList = core.materials();
-  viewList = core.viewNames();
-  setupResults({ materialName });
+  state.session = new state.core.Session();
+  state.materialList = state.core.materials();
+  state.viewList = state.core.viewNames();
+  state.presets = state.core.presets();
+  setupResults(state);
+  fillPresets();
+  setupErrors();
 
   buildTopControls();
   const status = h('p', { id: 'stack-status', className: 'visually-hidden', role: 'status', 'aria-live': 'polite' });
@@ -1329,24 +1148,24 @@ async function main() {
   document.getElementById('copy-link').addEventListener('click', () => { copyLink(); });
   document.getElementById('load-preset').addEventListener('click', () => {
     const select = document.getElementById('preset');
-    const key = select.value;
-    const doc = key === 'demo' ? JSON.parse(core.demoScenario()) : structuredClone(PRESETS[key]);
-    const name = select.selectedOptions[0]?.textContent ?? key;
-    applyScenario(doc, key === 'demo' ? { kind: 'demo', name: '' } : { kind: 'preset', name });
+    const preset = state.presets.find((p) => p.key === select.value);
+    if (!preset) return;
+    const doc = JSON.parse(preset.scenario);
+    applyScenario(doc, preset.key === 'demo' ? { kind: 'demo', name: '' } : { kind: 'preset', name: preset.name });
     flushFragment();
   });
   window.addEventListener('hashchange', (ev) => {
     // Back and Forward through the page's own steps are handled by the history (popstate).
     if (SetupHistory.owns(history.state)) return;
     const frag = readFragment();
-    if (frag && frag.text === lastGoodText) {
-      if (frag.design && frag.design.text !== designText) loadDesignPart(frag.design);
-      setupHistory.adopt({ ...currentEntry(), design: designText });
+    if (frag && frag.text === state.lastGoodText) {
+      if (frag.design && frag.design.text !== state.designText) loadDesignPart(frag.design);
+      state.history.adopt({ ...currentEntry(), design: state.designText });
       return;
     }
     loadFromLocation(new URL(ev.oldURL).hash);
   });
-  setupHistory = new SetupHistory({ href: entryHref, restore: restoreEntry, changed: historyChanged });
+  state.history = new SetupHistory({ href: entryHref, restore: restoreEntry, changed: historyChanged });
   document.getElementById('undo').addEventListener('click', undo);
   document.getElementById('redo').addEventListener('click', redo);
   document.addEventListener('keydown', onHistoryKey);
@@ -1355,27 +1174,25 @@ async function main() {
 
   document.getElementById('results').addEventListener('click', (ev) => {
     const btn = ev.target.closest('button[data-show-all]');
-    if (!btn || !lastResult) return;
+    if (!btn || !state.result) return;
     const which = btn.dataset.showAll;
-    toggleShowAll(which);
-    renderResults(lastResult);
+    toggleShowAll(state, which);
+    renderResults(state, state.result);
     document.querySelector(`button[data-show-all="${which}"]`)?.focus();
   });
 
-  const views = setupViews({
-    session, darkQuery, viewList, materialName, current: () => ({ result: lastResult, scenario: lastScenario }),
-  });
-  setupExport({ session, views });
-  designPanel = setupDesign({ core, materialList, materialName, darkQuery, applyScenario, flushFragment, onDesignInputs });
+  setupViews(state);
+  setupExport(state);
+  state.design.hooks = setupDesign(state, { applyScenario, flushFragment, onDesignInputs });
   loadFromLocation();
   loading.remove();
   document.body.classList.add('ready');
   window.doublespar = {
-    session,
-    redraw,
+    session: state.session,
+    redraw: () => redraw(state),
     applyScenario,
-    designRequest: designPanel.designRequest,
-    designShown: designPanel.designShown,
+    designRequest: state.design.hooks.designRequest,
+    designShown: state.design.hooks.designShown,
   };
 }
 

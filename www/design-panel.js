@@ -8,19 +8,20 @@
 // lists in the panel's words (.design-advice, role=status); the curves are drawn with the core's
 // drawSeries / drawHistogram.
 //
-// Contract: one export, setupDesign(pageLinks), called once by app.js after the core has
-// loaded. It receives everything it uses of the page as explicit parameters (see there) and
-// returns the test hooks designRequest() (the request the fields say) and designShown() (a copy
-// of the design on screen, or null), and setDesignInputs(request) and designLinkError(err) for
+// Contract: one export, setupDesign(state, links), called once by app.js after the core has
+// loaded. It receives the page's state (state.js; the panel's own part is state.design) and what
+// it may do to the page (see there), and returns the test hooks designRequest(state) (the request the fields say) and designShown() (a copy
+// of the design on screen, or null), and setDesignInputs(state, request) and designLinkError(err) for
 // the design part of a shared link (the fields' request travels in the link once it differs
-// from the panel's defaults: pageLinks.onDesignInputs(text)). The solved design is also the
+// from the panel's defaults: links.onDesignInputs(text)). The solved design is also the
 // print's order sheet (export.js, updateOrderSheet). section#design[data-state] is idle, solving, running, done,
-// error or cancelled; #design-use loads the shown part into the set-up (page.applyScenario).
+// error or cancelled; #design-use loads the shown part into the set-up (state.design.links.applyScenario).
 
-import { h, numberInput, setText, uid } from './dom.js';
-import { fixed, fmt, minus, readNumber, significant, unitWord } from './format.js';
-import { fieldLabel, labelled, nearestErrorSlot, toFieldError } from './field-error.js';
+import { h, setText, uid } from './dom.js';
+import { fixed, fmt, minus, significant } from './format.js';
+import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
+import { materialName } from './state.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -32,84 +33,19 @@ const DESIGN_KINDS = [
 const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite' };
 const NBSP = '\u00a0';
 
-let page = null; // what the page gives the panel (setupDesign's pageLinks)
-// The core's design constants (core.designLimits()): sample defaults and limits, the waveplate's
-// default acceptance error, the overlap and phase at which a recombiner breaks.
-let limits = null;
-const dfields = {}; // request path -> DesignField
-const dlayout = {}; // kind -> [row or group element, …] in the order shown
-const dhints = {}; // kind -> {path: hint text}
-const design = {
-  worker: null,
-  nextId: 1,
-  active: null, // {id, request, t0, nominal, done, total}
-  shown: null, // {request, design, complete, run: {done, total, cancelled} | null}
-  plots: [], // {name, canvas, box, draw(dark)}
-  resize: null,
-};
+// The attributes of the panel's fields (DEVELOPERS.md, "Design panel").
+const NAMES = { field: 'data-design-field', error: 'data-design-error-for', id: 'd' };
 
-/** A design-request control: an input or select with its label, unit, hint and error slot. */
-class DesignField {
-  constructor(path, { label, spoken, unit, kind = 'number', options, value, placeholder, hint, step }) {
-    this.path = path;
-    this.kind = kind;
-    this.label = label;
-    const id = uid('d');
-    this.labelEl = h('label', { for: id, text: label });
-    this.error = h('p', {
-      className: 'field-error',
-      id: `${id}-err`,
-      'data-design-error-for': path,
-      hidden: true,
-      'aria-live': 'polite',
-    });
-    this.hintEl = h('p', { className: 'hint', id: `${id}-hint`, hidden: !hint, text: hint ?? '' });
-    const describedBy = `${id}-err ${id}-hint`;
-    const control = h('div', { className: 'control' });
-    if (kind === 'select') {
-      this.input = h('select', { id, 'data-design-field': path, 'aria-describedby': describedBy });
-      for (const [v, t] of options) this.input.appendChild(h('option', { value: v, text: t }));
-      control.appendChild(this.input);
-      if (spoken) this.input.setAttribute('aria-label', spoken);
-    } else {
-      const unitStep = { '°': 1, nm: 1, mm: 0.1, waves: 0.01 }[unit ?? ''] ?? 0.1;
-      this.input = numberInput(id, { placeholder, 'data-design-field': path, 'aria-describedby': describedBy, 'data-step': step ?? unitStep });
-      control.appendChild(this.input);
-      // Every number field has a unit column, so that the fields line up.
-      control.appendChild(h('span', { className: 'unit', text: unit ?? '', 'aria-hidden': 'true' }));
-      // The spoken name: the label (or a fuller one where the group gives the context), with its unit.
-      const name = spoken ?? label;
-      if (unit) this.input.setAttribute('aria-label', `${name} (${unitWord(unit)})`);
-      else if (spoken) this.input.setAttribute('aria-label', spoken);
-    }
-    if (value !== undefined) this.input.value = String(value);
-    this.spoken = spoken ?? label;
-    this.row = h('div', { className: 'field' }, this.labelEl, control, this.hintEl, this.error);
-  }
-
-  get blank() {
-    return this.kind !== 'select' && this.input.value.trim() === '';
-  }
-
-  /** A number, or the text as typed (so that the solver names the field in its message). */
-  get value() {
-    return this.kind === 'select' ? this.input.value : readNumber(this.input.value);
-  }
-
-  setHint(text) {
-    setText(this.hintEl, text ?? '');
-    if (this.hintEl.hidden !== !text) this.hintEl.hidden = !text;
-  }
-}
-
-function dfield(path, spec) {
-  const f = new DesignField(path, spec);
-  dfields[path] = f;
+/** A design-request field (field-error.js) at `path`, with a unit column so that the fields line up. */
+function addField(state, path, spec) {
+  const f = new Field({ unitColumn: true, ...spec }, NAMES);
+  f.setPath(path);
+  state.design.fields[path] = f;
   return f;
 }
 
 /** A titled group of fields with its own error slot (for errors that name the whole group). */
-function designGroup(title, errorPath, children, { pair = false, hint } = {}) {
+function fieldGroup(title, errorPath, children, { pair = false, hint } = {}) {
   const tid = uid('dg');
   const body = pair ? h('div', { className: 'pair-grid' }, ...children) : null;
   const hintEl = h('p', { className: 'hint', hidden: !hint, text: hint ?? '' });
@@ -119,7 +55,7 @@ function designGroup(title, errorPath, children, { pair = false, hint } = {}) {
     h('p', { className: 'subgroup-title', id: tid, text: title }),
     ...(pair ? [body] : children),
     hintEl,
-    h('p', { className: 'field-error', 'data-design-error-for': errorPath, hidden: true, 'aria-live': 'polite' }),
+    errorSlot(errorPath, NAMES),
   );
   box.hintEl = hintEl;
   return box;
@@ -131,109 +67,109 @@ function setGroupHint(box, text) {
 }
 
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
-function mediumFields(prefix, fallback, whose) {
+function mediumFields(state, prefix, fallback, whose) {
   // The page's name of each material, which marks a formula without a journal source
   // ("unverified data").
-  const options = page.materialList.map((m) => [m.key, page.materialName(m.key)]);
+  const options = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
   options.push(['custom', 'custom indices']);
   const of = whose ? ` of the ${whose}` : '';
-  const material = dfield(`${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
-  const key = page.materialList.some((m) => m.key === fallback) ? fallback : (page.materialList[0]?.key ?? 'custom');
+  const material = addField(state, `${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
+  const key = state.materialList.some((m) => m.key === fallback) ? fallback : (state.materialList[0]?.key ?? 'custom');
   material.input.value = key;
-  const no = dfield(`${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
-  const ne = dfield(`${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
+  const no = addField(state, `${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
+  const ne = addField(state, `${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
   return { material, custom, nodes: [material.row, custom] };
 }
 
-function buildDesignFields() {
-  const kind = dfield('kind', { label: 'Part', kind: 'select', options: DESIGN_KINDS });
+function buildDesignFields(state) {
+  const kind = addField(state, 'kind', { label: 'Part', kind: 'select', options: DESIGN_KINDS });
   kind.row.classList.add('design-kind');
-  const order = dfield('order', {
+  const order = addField(state, 'order', {
     label: 'Order',
     kind: 'select',
     options: [['zero', 'zero order'], ['multiple', 'multiple order'], ['compound', 'compound zero order']],
   });
-  const orderNumber = dfield('order_number', { label: 'Order number m', value: 1, step: 1, hint: 'm whole waves more than the target.' });
-  const base = dfield('base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
+  const orderNumber = addField(state, 'order_number', { label: 'Order number m', value: 1, step: 1, hint: 'm whole waves more than the target.' });
+  const base = addField(state, 'base_mm', { label: 'Thinner plate', unit: 'mm', value: 1, hint: 'Two plates with crossed axes; their difference is the zero-order plate.' });
 
-  const medium = mediumFields('', 'calcite');
-  const wl = dfield('wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
-  const band = designGroup('Band (optional)', 'band_nm', [
-    dfield('band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
-    dfield('band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
+  const medium = mediumFields(state, '', 'calcite');
+  const wl = addField(state, 'wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength of the part', unit: 'nm', value: 632.8 });
+  const band = fieldGroup('Band (optional)', 'band_nm', [
+    addField(state, 'band_nm[0]', { label: 'From', spoken: 'Band from', unit: 'nm', placeholder: 'default' }).row,
+    addField(state, 'band_nm[1]', { label: 'to', spoken: 'Band to', unit: 'nm', placeholder: 'default' }).row,
   ], { pair: true });
-  const separation = dfield('separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
-  const beam = dfield('beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
-  const cut = dfield('cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
-  const aperture = dfield('aperture_factor', {
+  const separation = addField(state, 'separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
+  const beam = addField(state, 'beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
+  const cut = addField(state, 'cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
+  const aperture = addField(state, 'aperture_factor', {
     label: 'Aperture factor',
     value: 2,
     step: 0.1,
     hint: 'Clear aperture = separation + factor × beam diameter.',
   });
-  const tolerances = designGroup('Tolerances, one standard deviation each', 'tolerances', [
-    dfield('tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
-    dfield('tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
-    dfield('tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
-    dfield('tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
+  const tolerances = fieldGroup('Tolerances, one standard deviation each', 'tolerances', [
+    addField(state, 'tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
+    addField(state, 'tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
+    addField(state, 'tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
+    addField(state, 'tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
   ], { hint: 'The incidence error lies in the walk-off plane.' });
-  const samples = dfield('samples', {
+  const samples = addField(state, 'samples', {
     label: 'Monte Carlo samples',
-    value: limits.default_samples,
+    value: state.design.limits.default_samples,
     step: 1000,
-    hint: `At most ${limits.max_samples.toLocaleString('en-US').replace(/,/g, ' ')}; 0 skips the tolerance run.`,
+    hint: `At most ${state.design.limits.max_samples.toLocaleString('en-US').replace(/,/g, ' ')}; 0 skips the tolerance run.`,
   });
-  const seed = dfield('seed', { label: 'Random seed', value: 1, step: 1 });
+  const seed = addField(state, 'seed', { label: 'Random seed', value: 1, step: 1 });
 
-  const retardance = dfield('retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
-  const maxInc = dfield('max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
-  const accErr = dfield('acceptance_error_waves', {
+  const retardance = addField(state, 'retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
+  const maxInc = addField(state, 'max_incidence_deg', { label: 'Largest incidence', unit: '°', value: 10 });
+  const accErr = addField(state, 'acceptance_error_waves', {
     label: 'Acceptance error',
     unit: 'waves',
-    value: limits.default_acceptance_error_waves,
+    value: state.design.limits.default_acceptance_error_waves,
     hint: 'The acceptance angle is where the retardance has moved this far from its value at normal incidence.',
   });
 
-  const first = mediumFields('first.', 'quartz', 'first plate');
-  const second = mediumFields('second.', 'mgf2', 'second plate');
-  const firstBox = designGroup('First plate', 'first', first.nodes);
-  const secondBox = designGroup('Second plate', 'second', second.nodes);
-  const wavelengths = designGroup('Design wavelengths', 'wavelengths_nm', [
-    dfield('wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
-    dfield('wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
+  const first = mediumFields(state, 'first.', 'quartz', 'first plate');
+  const second = mediumFields(state, 'second.', 'mgf2', 'second plate');
+  const firstBox = fieldGroup('First plate', 'first', first.nodes);
+  const secondBox = fieldGroup('Second plate', 'second', second.nodes);
+  const wavelengths = fieldGroup('Design wavelengths', 'wavelengths_nm', [
+    addField(state, 'wavelengths_nm[0]', { label: 'λ₁', spoken: 'First design wavelength', unit: 'nm', value: 500 }).row,
+    addField(state, 'wavelengths_nm[1]', { label: 'λ₂', spoken: 'Second design wavelength', unit: 'nm', value: 900 }).row,
   ], { pair: true, hint: 'The pair has exactly the target retardance at both.' });
 
-  const length = dfield('length_mm', { label: 'Length of each displacer', unit: 'mm', value: 10 });
-  const middle = dfield('middle', {
+  const length = addField(state, 'length_mm', { label: 'Length of each displacer', unit: 'mm', value: 10 });
+  const middle = addField(state, 'middle', {
     label: 'Between the displacers',
     kind: 'select',
     options: [['half-wave', 'half-wave plate at 45°'], ['rotator', 'rotator']],
   });
-  const rotator = dfield('rotator_deg', { label: 'Rotation', spoken: 'Rotation between the displacers', unit: '°', value: 90 });
-  const lengthMis = dfield('length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
-  const tiltMis = dfield('tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
+  const rotator = addField(state, 'rotator_deg', { label: 'Rotation', spoken: 'Rotation between the displacers', unit: '°', value: 90 });
+  const lengthMis = addField(state, 'length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
+  const tiltMis = addField(state, 'tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
 
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
-  dlayout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
-  dlayout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, wl.row, retardance.row, band, maxInc.row, accErr.row];
-  dlayout.achromat = [firstBox, secondBox, retardance.row, wavelengths, band];
-  dlayout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
+  state.design.layout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
+  state.design.layout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, wl.row, retardance.row, band, maxInc.row, accErr.row];
+  state.design.layout.achromat = [firstBox, secondBox, retardance.row, wavelengths, band];
+  state.design.layout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
-  dhints.displacer = { band: 'Empty: the design wavelength alone.', cut_tilt_deg: cutHint };
-  dhints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
-  dhints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
-  dhints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
-  design.bandBox = band;
-  design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
+  state.design.hints.displacer = { band: 'Empty: the design wavelength alone.', cut_tilt_deg: cutHint };
+  state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
+  state.design.hints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
+  state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
+  state.design.bandBox = band;
+  state.design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
 }
 
 /** Shows the fields of the chosen kind, in its order, and the ones its selects call for. */
-function layoutDesignFields() {
-  const kind = dfields.kind.value;
-  const nodes = dlayout[kind] ?? dlayout.displacer;
+function layoutDesignFields(state) {
+  const kind = state.design.fields.kind.value;
+  const nodes = state.design.layout[kind] ?? state.design.layout.displacer;
   const box = document.getElementById('design-kind-fields');
   const current = [...box.children];
   if (current.length !== nodes.length || current.some((n, i) => n !== nodes[i])) {
@@ -241,43 +177,43 @@ function layoutDesignFields() {
     box.replaceChildren(...nodes);
     if (focused && focused !== document.activeElement && box.contains(focused)) focused.focus();
   }
-  const material = dfields.material;
+  const material = state.design.fields.material;
   const start = DESIGN_MATERIALS[kind];
-  if (!material.touched && start && material.input.value !== start && page.materialList.some((m) => m.key === start)) {
+  if (!material.touched && start && material.input.value !== start && state.materialList.some((m) => m.key === start)) {
     material.input.value = start;
   }
-  const hints = dhints[kind] ?? {};
-  setGroupHint(design.bandBox, hints.band);
-  dfields.cut_tilt_deg.setHint(hints.cut_tilt_deg);
-  for (const [prefix, custom] of design.mediumBoxes) {
-    const key = dfields[`${prefix}material`].value;
+  const hints = state.design.hints[kind] ?? {};
+  setGroupHint(state.design.bandBox, hints.band);
+  state.design.fields.cut_tilt_deg.setHint(hints.cut_tilt_deg);
+  for (const [prefix, custom] of state.design.mediumBoxes) {
+    const key = state.design.fields[`${prefix}material`].value;
     const hide = key !== 'custom';
     if (custom.hidden !== hide) custom.hidden = hide;
     // A formula without a journal source says so beside its select, where a narrow select
     // would cut the "(unverified data)" of its option text.
-    const unverified = page.materialList.some((m) => m.key === key && m.verified === false);
-    dfields[`${prefix}material`].setHint(unverified ? 'Unverified data: its dispersion formula has no journal source.' : null);
+    const unverified = state.materialList.some((m) => m.key === key && m.verified === false);
+    state.design.fields[`${prefix}material`].setHint(unverified ? 'Unverified data: its dispersion formula has no journal source.' : null);
   }
-  const order = dfields.order.value;
-  dfields.order_number.row.hidden = order !== 'multiple';
-  dfields.base_mm.row.hidden = order !== 'compound';
-  dfields.rotator_deg.row.hidden = dfields.middle.value !== 'rotator';
+  const order = state.design.fields.order.value;
+  state.design.fields.order_number.row.hidden = order !== 'multiple';
+  state.design.fields.base_mm.row.hidden = order !== 'compound';
+  state.design.fields.rotator_deg.row.hidden = state.design.fields.middle.value !== 'rotator';
 }
 
 /** The design request the panel's fields say (numbers, or text as typed where it is no number). */
-function designRequest() {
-  const kind = dfields.kind.value;
+function designRequest(state) {
+  const kind = state.design.fields.kind.value;
   const req = { kind };
   const put = (path) => {
-    const f = dfields[path];
+    const f = state.design.fields[path];
     if (!f.blank) req[path] = f.value;
   };
   const medium = (prefix) => {
     const out = {};
-    const m = dfields[`${prefix}material`].value;
+    const m = state.design.fields[`${prefix}material`].value;
     if (m === 'custom') {
       for (const k of ['no', 'ne']) {
-        const f = dfields[`${prefix}${k}`];
+        const f = state.design.fields[`${prefix}${k}`];
         if (!f.blank) out[k] = f.value;
       }
     } else {
@@ -286,8 +222,8 @@ function designRequest() {
     return out;
   };
   const pair = (name) => {
-    const a = dfields[`${name}[0]`];
-    const b = dfields[`${name}[1]`];
+    const a = state.design.fields[`${name}[0]`];
+    const b = state.design.fields[`${name}[1]`];
     if (a.blank && b.blank) return;
     req[name] = [a.blank ? a.input.value : a.value, b.blank ? b.input.value : b.value];
   };
@@ -301,7 +237,7 @@ function designRequest() {
     put('aperture_factor');
     const tol = {};
     for (const k of ['tilt_deg', 'incidence_deg', 'thickness_mm', 'wavelength_nm']) {
-      const f = dfields[`tolerances.${k}`];
+      const f = state.design.fields[`tolerances.${k}`];
       if (!f.blank) tol[k] = f.value;
     }
     if (Object.keys(tol).length) req.tolerances = tol;
@@ -311,7 +247,7 @@ function designRequest() {
     Object.assign(req, medium(''));
     put('wavelength_nm');
     put('retardance_waves');
-    req.order = dfields.order.value;
+    req.order = state.design.fields.order.value;
     if (req.order === 'multiple') put('order_number');
     if (req.order === 'compound') put('base_mm');
     pair('band_nm');
@@ -329,7 +265,7 @@ function designRequest() {
     put('length_mm');
     put('cut_tilt_deg');
     put('beam_diameter_mm');
-    req.middle = dfields.middle.value;
+    req.middle = state.design.fields.middle.value;
     if (req.middle === 'rotator') put('rotator_deg');
     put('length_mismatch_mm');
     put('tilt_mismatch_deg');
@@ -339,14 +275,8 @@ function designRequest() {
 
 // --- errors beside the design fields (the same walk-up rule as the set-up's) -----------------
 
-let designErrorShown = false;
-
-function designErrorTarget(path) {
-  return nearestErrorSlot(document.getElementById('design'), 'data-design-error-for', path);
-}
-
 // Names of request fields that have no control of their own (an error about a whole group).
-const DESIGN_GROUPS = {
+const GROUP_LABELS = {
   '': 'Design request',
   band_nm: 'Band',
   tolerances: 'Tolerances',
@@ -357,45 +287,8 @@ const DESIGN_GROUPS = {
 };
 
 /** A request field as the panel labels it ("Band to", "Material of the first plate"). */
-function designLabel(path) {
-  return fieldLabel(path, (p) => dfields[p]?.spoken, DESIGN_GROUPS);
-}
-
-function showDesignError(err) {
-  clearDesignErrors();
-  addDesignError(err);
-}
-
-/** Shows one more message beside its field (several may show at once: a link's bad fields). */
-function addDesignError(err) {
-  designErrorShown = true;
-  const target = designErrorTarget(err.field);
-  if (target) {
-    const text = labelled(err.field, err.message, designLabel(err.field));
-    target.textContent = target.hidden || !target.textContent ? text : `${target.textContent} ${text}`;
-    target.setAttribute('data-error-field', err.field);
-    target.hidden = false;
-  }
-  const panel = document.getElementById('design');
-  for (const el of panel.querySelectorAll('[data-design-field]')) {
-    const p = el.dataset.designField;
-    if (err.field && (p === err.field || p.startsWith(`${err.field}[`) || p.startsWith(`${err.field}.`))) {
-      el.setAttribute('aria-invalid', 'true');
-    }
-  }
-}
-
-function clearDesignErrors() {
-  if (!designErrorShown) return;
-  designErrorShown = false;
-  const panel = document.getElementById('design');
-  for (const el of panel.querySelectorAll('[data-design-error-for]')) {
-    if (!el.hidden) {
-      el.hidden = true;
-      el.textContent = '';
-    }
-  }
-  for (const el of panel.querySelectorAll('[aria-invalid="true"]')) el.removeAttribute('aria-invalid');
+function labelFor(state, path) {
+  return state.design.errors.label(path);
 }
 
 // --- number formats for the design's results ------------------------------------------------
@@ -408,7 +301,7 @@ function trimmed(v, digits) {
   return minus(s);
 }
 
-const dfmt = {
+const formats = {
   text: (v) => String(v),
   yes: (v) => (v ? 'yes' : 'no'),
   index: (v) => fixed(v, 6),
@@ -437,7 +330,7 @@ const dfmt = {
 };
 
 /** The value at a dotted path ("band.min_mm", "plates.0.thickness_mm") of a design. */
-function designValue(d, path) {
+function valueAt(d, path) {
   let v = d;
   for (const k of path.split('.')) {
     if (v === null || v === undefined || typeof v !== 'object') return undefined;
@@ -453,7 +346,7 @@ function designValue(d, path) {
 function boundOf(d, path) {
   const i = path.lastIndexOf('.');
   const name = path.slice(i + 1).replace(/_(deg|mm|nm|waves|rad)$/, '');
-  const b = designValue(d, `${path.slice(0, i + 1)}${name}_bound`);
+  const b = valueAt(d, `${path.slice(0, i + 1)}${name}_bound`);
   return typeof b === 'string' ? b : undefined;
 }
 
@@ -462,7 +355,7 @@ function boundOf(d, path) {
  * only a lower bound reads "≥ 10°" and carries data-bound (the flag, `at_least` or `found`).
  */
 function dq(d, path, format, tag = 'span', attrs = {}) {
-  const v = designValue(d, path);
+  const v = valueAt(d, path);
   if (v === undefined) return null;
   const bound = boundOf(d, path);
   const text = v === null ? '—' : `${bound === 'at_least' ? `≥${NBSP}` : ''}${format(v)}`;
@@ -470,7 +363,7 @@ function dq(d, path, format, tag = 'span', attrs = {}) {
 }
 
 /** A card of labelled results of design `d`. rows: [label, path, format] or [label, element] or null. */
-function designCard(d, title, rows, { note, className } = {}) {
+function resultCard(d, title, rows, { note, className } = {}) {
   const dl = h('dl', { className: 'quantities' });
   for (const r of rows) {
     if (!r) continue;
@@ -494,8 +387,8 @@ function article(name, capital = true) {
   return `${capital ? a.toUpperCase().slice(0, 1) + a.slice(1) : a} ${name}`;
 }
 
-function designMaterialName(key) {
-  return key === 'custom' ? 'custom-index' : page.materialName(key);
+function designMaterialName(state, key) {
+  return key === 'custom' ? 'custom-index' : materialName(state, key);
 }
 
 // --- warnings and shop notes ----------------------------------------------------------------
@@ -505,16 +398,16 @@ function designMaterialName(key) {
  * warning (`band_nm[1]: `, `band_nm (default): `; DEVELOPERS.md, "Design requests") becomes the
  * label of that field ("Band to: …"). Returns {field, text}.
  */
-function adviceText(raw) {
+function adviceText(state, raw) {
   const text = String(raw);
   const m = /^([A-Za-z_][\w.[\]]*)( \(default\))?: ([\s\S]*)$/.exec(text);
   if (!m) return { field: '', text: text.charAt(0).toUpperCase() + text.slice(1) };
-  return { field: m[1], text: `${designLabel(m[1])}${m[2] ?? ''}: ${m[3]}` };
+  return { field: m[1], text: `${labelFor(state, m[1])}${m[2] ?? ''}: ${m[3]}` };
 }
 
 /** The design's warnings and shop notes in readable words: {warnings: [text], notes: [text]}. */
-function adviceOf(d) {
-  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(t)) : []);
+function adviceOf(state, d) {
+  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(state, t)) : []);
   return { warnings: words(d.warnings), notes: words(d.notes) };
 }
 
@@ -532,74 +425,74 @@ function adviceLists(advice) {
 
 // --- results by kind -------------------------------------------------------------------------
 
-function displacerResults(d, run) {
+function displacerResults(state, d, run) {
   const s = d;
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `${article(designMaterialName(s.material))} plate `,
-    dq(d, 'length_mm', dfmt.length, 'strong'),
+    `${article(designMaterialName(state, s.material))} plate `,
+    dq(d, 'length_mm', formats.length, 'strong'),
     ' long, cut at ',
-    dq(d, 'cut_tilt_deg', dfmt.deg, 'strong'),
+    dq(d, 'cut_tilt_deg', formats.deg, 'strong'),
     ' (optic axis from the face normal), with a clear aperture of at least ',
-    dq(d, 'clear_aperture_mm', dfmt.length, 'strong'),
+    dq(d, 'clear_aperture_mm', formats.length, 'strong'),
     '.',
   );
   const cards = [
-    designCard(d, 'What to order', [
-      ['material', 'material', (v) => designMaterialName(v)],
-      ['length', 'length_mm', dfmt.length],
-      ['cut tilt', 'cut_tilt_deg', dfmt.deg],
-      ['clear aperture', 'clear_aperture_mm', dfmt.length],
-    ], { note: dq(d, 'cut_note', dfmt.text, 'span', { className: 'cut-note' }), className: 'design-main' }),
-    designCard(d, 'Beams at the exit', [
-      ['o/e separation', 'separation_mm', dfmt.length],
-      ['e-ray displaced toward (axis at 0°)', 'displacement_direction', dfmt.text],
-      ['e walk-off', 'walkoff_deg', dfmt.deg],
-      ['crosstalk (overlap)', 'crosstalk', dfmt.sig('', 3)],
-      ['separation / beam diameter', 'clearance_ratio', dfmt.sig('', 4)],
-      ['clipped per beam', 'clipping_per_beam', dfmt.sig('', 3)],
-      ['o–e exit phase', 'exit_phase_rad', dfmt.rad],
-      ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', dfmt.rad],
+    resultCard(d, 'What to order', [
+      ['material', 'material', (v) => designMaterialName(state, v)],
+      ['length', 'length_mm', formats.length],
+      ['cut tilt', 'cut_tilt_deg', formats.deg],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+    ], { note: dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' }), className: 'design-main' }),
+    resultCard(d, 'Beams at the exit', [
+      ['o/e separation', 'separation_mm', formats.length],
+      ['e-ray displaced toward (axis at 0°)', 'displacement_direction', formats.text],
+      ['e walk-off', 'walkoff_deg', formats.deg],
+      ['crosstalk (overlap)', 'crosstalk', formats.sig('', 3)],
+      ['separation / beam diameter', 'clearance_ratio', formats.sig('', 4)],
+      ['clipped per beam', 'clipping_per_beam', formats.sig('', 3)],
+      ['o–e exit phase', 'exit_phase_rad', formats.rad],
+      ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', formats.rad],
     ]),
-    designCard(d, 'Crystal', [
-      ['wavelength', 'wavelength_nm', dfmt.nm],
-      ['nₒ', 'no', dfmt.index],
-      ['nₑ', 'ne', dfmt.index],
-      ['cut of largest walk-off', 'max_walkoff_cut_deg', dfmt.deg],
-      ['dρ/dθ at the cut', 'walkoff_slope', dfmt.sig('°/°', 3)],
+    resultCard(d, 'Crystal', [
+      ['wavelength', 'wavelength_nm', formats.nm],
+      ['nₒ', 'no', formats.index],
+      ['nₑ', 'ne', formats.index],
+      ['cut of largest walk-off', 'max_walkoff_cut_deg', formats.deg],
+      ['dρ/dθ at the cut', 'walkoff_slope', formats.sig('°/°', 3)],
     ]),
-    designCard(d, 'Over the band', [
-      ['smallest separation', 'band.min_mm', dfmt.length],
-      ['… at', 'band.min_at_nm', dfmt.nm],
-      ['largest separation', 'band.max_mm', dfmt.length],
-      ['… at', 'band.max_at_nm', dfmt.nm],
+    resultCard(d, 'Over the band', [
+      ['smallest separation', 'band.min_mm', formats.length],
+      ['… at', 'band.min_at_nm', formats.nm],
+      ['largest separation', 'band.max_mm', formats.length],
+      ['… at', 'band.max_at_nm', formats.nm],
     ], { note: d.band.curve.length < 2 ? 'No band was given: the design wavelength alone.' : null }),
-    designCard(d, 'Sensitivity of the separation', [
-      ['to cut tilt', 'sensitivities.tilt_mm_per_deg', dfmt.sig('mm/°', 4)],
-      ['to incidence', 'sensitivities.incidence_mm_per_deg', dfmt.sig('mm/°', 4)],
-      ['to length', 'sensitivities.thickness_mm_per_mm', dfmt.sig('mm/mm', 4)],
-      ['to wavelength', 'sensitivities.wavelength_mm_per_nm', dfmt.sig('mm/nm', 4)],
-      ['linearized spread (1σ)', 'sensitivities.linear_std_mm', dfmt.sig('mm', 4)],
+    resultCard(d, 'Sensitivity of the separation', [
+      ['to cut tilt', 'sensitivities.tilt_mm_per_deg', formats.sig('mm/°', 4)],
+      ['to incidence', 'sensitivities.incidence_mm_per_deg', formats.sig('mm/°', 4)],
+      ['to length', 'sensitivities.thickness_mm_per_mm', formats.sig('mm/mm', 4)],
+      ['to wavelength', 'sensitivities.wavelength_mm_per_nm', formats.sig('mm/nm', 4)],
+      ['linearized spread (1σ)', 'sensitivities.linear_std_mm', formats.sig('mm', 4)],
     ], {
-      note: ['For σ = ', dq(d, 'tolerances.tilt_deg', dfmt.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', dfmt.sig('°', 3)),
-        ' incidence, ', dq(d, 'tolerances.thickness_mm', dfmt.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', dfmt.sig('nm', 3)), ' wavelength.'],
+      note: ['For σ = ', dq(d, 'tolerances.tilt_deg', formats.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', formats.sig('°', 3)),
+        ' incidence, ', dq(d, 'tolerances.thickness_mm', formats.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', formats.sig('nm', 3)), ' wavelength.'],
     }),
-    monteCarloCard(d, run),
+    monteCarloCard(state, d, run),
   ];
   return [headline, ...cards];
 }
 
-function monteCarloCard(d, run) {
+function monteCarloCard(state, d, run) {
   if (d.monte_carlo) {
-    return designCard(d, 'Monte Carlo: separation', [
-      ['samples', 'monte_carlo.n', dfmt.count],
-      ['mean', 'monte_carlo.mean', dfmt.length],
-      ['standard deviation', 'monte_carlo.std', dfmt.sig('mm', 4)],
-      ['5th percentile', 'monte_carlo.p5', dfmt.length],
-      ['95th percentile', 'monte_carlo.p95', dfmt.length],
-      ['smallest', 'monte_carlo.min', dfmt.length],
-      ['largest', 'monte_carlo.max', dfmt.length],
+    return resultCard(d, 'Monte Carlo: separation', [
+      ['samples', 'monte_carlo.n', formats.count],
+      ['mean', 'monte_carlo.mean', formats.length],
+      ['standard deviation', 'monte_carlo.std', formats.sig('mm', 4)],
+      ['5th percentile', 'monte_carlo.p5', formats.length],
+      ['95th percentile', 'monte_carlo.p95', formats.length],
+      ['smallest', 'monte_carlo.min', formats.length],
+      ['largest', 'monte_carlo.max', formats.length],
     ], { className: 'design-mc' });
   }
   let text = 'Not run (0 samples).';
@@ -613,43 +506,43 @@ function monteCarloCard(d, run) {
   );
 }
 
-function waveplateResults(d) {
+function waveplateResults(state, d) {
   const plates = d.plates;
-  const mat = designMaterialName(plates[0].material);
+  const mat = designMaterialName(state, plates[0].material);
   const headline = h('p', { className: 'design-headline' });
   if (plates.length === 1) {
-    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'), ' thick, optic axis in the face',
+    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' thick, optic axis in the face',
       d.order === 'multiple' ? `, order ${d.order_number}` : ', zero order', '.');
   } else {
-    headline.append(`Two ${mat} plates, `, dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'), ' and ',
-      dq(d, 'plates.1.thickness_mm', dfmt.length, 'strong'), ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
+    headline.append(`Two ${mat} plates, `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' and ',
+      dq(d, 'plates.1.thickness_mm', formats.length, 'strong'), ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
   }
   const plateRows = [];
   plates.forEach((p, i) => {
     const n = plates.length > 1 ? ` ${i + 1}` : '';
-    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
-    plateRows.push([`plate${n}: thickness`, `plates.${i}.thickness_mm`, dfmt.length]);
-    plateRows.push([`plate${n}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, dfmt.deg]);
+    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
+    plateRows.push([`plate${n}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    plateRows.push([`plate${n}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
   });
   const worst = worstPlane(d);
   return [
     headline,
-    designCard(d, 'What to order', [
+    resultCard(d, 'What to order', [
       ...plateRows,
-      ['net retarding thickness', 'effective_thickness_mm', dfmt.length],
-      ['order', 'order', dfmt.text],
-      ['order number', 'order_number', dfmt.count],
+      ['net retarding thickness', 'effective_thickness_mm', formats.length],
+      ['order', 'order', formats.text],
+      ['order number', 'order_number', formats.count],
     ], { className: 'design-main', note: 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
-    designCard(d, 'Retardance', [
-      ['at the design wavelength', 'retardance_waves', dfmt.waves],
-      ['fast axis', 'fast_axis', dfmt.text],
-      ['nₒ', 'no', dfmt.index],
-      ['nₑ', 'ne', dfmt.index],
-      ['nₑ − nₒ', 'birefringence', dfmt.sig('', 6)],
+    resultCard(d, 'Retardance', [
+      ['at the design wavelength', 'retardance_waves', formats.waves],
+      ['fast axis', 'fast_axis', formats.text],
+      ['nₒ', 'no', formats.index],
+      ['nₑ', 'ne', formats.index],
+      ['nₑ − nₒ', 'birefringence', formats.sig('', 6)],
     ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
-    designCard(d, 'Angle of incidence', [
-      ['acceptance (worst plane)', 'acceptance_deg', dfmt.angle],
-      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, dfmt.angle]),
+    resultCard(d, 'Angle of incidence', [
+      ['acceptance (worst plane)', 'acceptance_deg', formats.angle],
+      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, formats.angle]),
     ], {
       note: `Largest incidence up to which the retardance stays within the acceptance error of its value at normal incidence; the worst plane is at ${trimmed(worst.plane_azimuth_deg, 2)}° to the optic axis. “≥” marks a bound: the retardance had not left by the largest incidence computed.`,
     }),
@@ -660,40 +553,40 @@ function worstPlane(d) {
   return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
 }
 
-function achromatResults(d) {
+function achromatResults(state, d) {
   const p = d.plates;
   const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `${article(designMaterialName(p[0].material))} plate `,
-    dq(d, 'plates.0.thickness_mm', dfmt.length, 'strong'),
-    ` thick, ${axis(p[0])}, and ${article(designMaterialName(p[1].material), false)} plate `,
-    dq(d, 'plates.1.thickness_mm', dfmt.length, 'strong'),
+    `${article(designMaterialName(state, p[0].material))} plate `,
+    dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
+    ` thick, ${axis(p[0])}, and ${article(designMaterialName(state, p[1].material), false)} plate `,
+    dq(d, 'plates.1.thickness_mm', formats.length, 'strong'),
     ` thick, ${axis(p[1])}; optic axes in the faces.`,
   );
   const rows = [];
   p.forEach((q, i) => {
-    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(v)]);
-    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, dfmt.length]);
-    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, dfmt.deg]);
+    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
+    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
   });
   return [
     headline,
-    designCard(d, 'What to order', rows, { className: 'design-main' }),
-    designCard(d, 'Retardance', [
-      ['first design wavelength', 'at_design_wavelengths.0.0', dfmt.nm],
-      ['… retardance there', 'at_design_wavelengths.0.1', dfmt.waves],
-      ['second design wavelength', 'at_design_wavelengths.1.0', dfmt.nm],
-      ['… retardance there', 'at_design_wavelengths.1.1', dfmt.waves],
-      ['largest error over the band', 'max_error_waves', dfmt.waves],
+    resultCard(d, 'What to order', rows, { className: 'design-main' }),
+    resultCard(d, 'Retardance', [
+      ['first design wavelength', 'at_design_wavelengths.0.0', formats.nm],
+      ['… retardance there', 'at_design_wavelengths.0.1', formats.waves],
+      ['second design wavelength', 'at_design_wavelengths.1.0', formats.nm],
+      ['… retardance there', 'at_design_wavelengths.1.1', formats.waves],
+      ['largest error over the band', 'max_error_waves', formats.waves],
     ]),
   ];
 }
 
-function recombinerResults(d) {
-  const overlapOk = d.overlap >= limits.recombiner_min_overlap;
-  const phaseOk = Math.abs(d.phase_difference_rad) <= limits.recombiner_max_phase_rad;
+function recombinerResults(state, d) {
+  const overlapOk = d.overlap >= state.design.limits.recombiner_min_overlap;
+  const phaseOk = Math.abs(d.phase_difference_rad) <= state.design.limits.recombiner_max_phase_rad;
   const works = d.recombined && overlapOk && phaseOk;
   const why = [];
   if (!d.recombined) why.push('the two paths leave as separate spots');
@@ -704,36 +597,36 @@ function recombinerResults(d) {
     { className: `design-headline ${works ? 'verdict-good' : 'verdict-bad'}` },
     works ? 'The pair recombines: one spot, overlap at least 0.99 and phase within π/10.' : `The pair does not recombine well: ${why.join(', ')}.`,
   );
-  const unreachable = (path) => Math.abs(designValue(d, path)) > 90;
+  const unreachable = (path) => Math.abs(valueAt(d, path)) > 90;
   const notes = [];
   if (unreachable('tilt_mismatch_to_break_deg.0') || unreachable('tilt_mismatch_to_break_deg.1')) {
     notes.push('A cut mismatch above 90° is a linear extrapolation beyond any real cut: at the cut of largest walk-off the residual grows only to second order in the mismatch, which the linear estimate does not see.');
   }
   return [
     headline,
-    designCard(d, 'Recombination', [
-      ['one spot', 'recombined', dfmt.yes],
-      ['overlap of the beams', 'overlap', dfmt.fraction],
-      ['phase difference', 'phase_difference_rad', dfmt.rad],
-      ['power in the spot', 'recombined_power', dfmt.power],
-      ['power elsewhere', 'stray_power', dfmt.power],
+    resultCard(d, 'Recombination', [
+      ['one spot', 'recombined', formats.yes],
+      ['overlap of the beams', 'overlap', formats.fraction],
+      ['phase difference', 'phase_difference_rad', formats.rad],
+      ['power in the spot', 'recombined_power', formats.power],
+      ['power elsewhere', 'stray_power', formats.power],
     ], { className: 'design-main', note: 'It breaks when the overlap drops below 0.99 or the phase moves by more than π/10.' }),
-    designCard(d, 'Residual separation', [
-      ['length', 'residual_separation_mm', dfmt.length],
-      ['x', 'residual_vector_mm.0', dfmt.length],
-      ['y', 'residual_vector_mm.1', dfmt.length],
+    resultCard(d, 'Residual separation', [
+      ['length', 'residual_separation_mm', formats.length],
+      ['x', 'residual_vector_mm.0', formats.length],
+      ['y', 'residual_vector_mm.1', formats.length],
     ]),
-    designCard(d, 'Sensitivity to a mismatch', [
-      ['residual per length', 'length_sensitivity.0', dfmt.sig('mm/mm', 4)],
-      ['phase per length', 'length_sensitivity.1', dfmt.sig('rad/mm', 4)],
-      ['residual per cut', 'tilt_sensitivity.0', dfmt.sig('mm/°', 4)],
-      ['phase per cut', 'tilt_sensitivity.1', dfmt.sig('rad/°', 4)],
+    resultCard(d, 'Sensitivity to a mismatch', [
+      ['residual per length', 'length_sensitivity.0', formats.sig('mm/mm', 4)],
+      ['phase per length', 'length_sensitivity.1', formats.sig('rad/mm', 4)],
+      ['residual per cut', 'tilt_sensitivity.0', formats.sig('mm/°', 4)],
+      ['phase per cut', 'tilt_sensitivity.1', formats.sig('rad/°', 4)],
     ]),
-    designCard(d, 'Mismatch that breaks it', [
-      ['length, for the overlap', 'length_mismatch_to_break_mm.0', dfmt.sig('mm', 4)],
-      ['length, for the phase', 'length_mismatch_to_break_mm.1', dfmt.sig('mm', 4)],
-      ['cut, for the overlap', 'tilt_mismatch_to_break_deg.0', dfmt.sig('°', 4)],
-      ['cut, for the phase', 'tilt_mismatch_to_break_deg.1', dfmt.sig('°', 4)],
+    resultCard(d, 'Mismatch that breaks it', [
+      ['length, for the overlap', 'length_mismatch_to_break_mm.0', formats.sig('mm', 4)],
+      ['length, for the phase', 'length_mismatch_to_break_mm.1', formats.sig('mm', 4)],
+      ['cut, for the overlap', 'tilt_mismatch_to_break_deg.0', formats.sig('°', 4)],
+      ['cut, for the phase', 'tilt_mismatch_to_break_deg.1', formats.sig('°', 4)],
     ], { note: notes.length ? notes : 'Linear estimates from the sensitivities.' }),
   ];
 }
@@ -748,19 +641,19 @@ function seriesJson(s) {
  *  other marked is laid over it wherever it differs from a drawing with neither. The two points
  *  lie on the curve and are added to it, so that all three drawings share their axes; a point
  *  outside the curve's span would change them, and then only the first is marked. */
-function drawTwoMarkers(plot, series, a, b, dark) {
+function drawTwoMarkers(state, plot, series, a, b, dark) {
   const xs = series.points.map((p) => p[0]);
   const within = (p) => xs.length > 1 && p[0] >= Math.min(...xs) && p[0] <= Math.max(...xs);
   if (!within(a) || !within(b)) {
-    page.core.drawSeries(plot.canvas, seriesJson({ ...series, current: a }), dark);
+    state.core.drawSeries(plot.canvas, seriesJson({ ...series, current: a }), dark);
     return;
   }
   const points = [...series.points, a, b].sort((p, q) => p[0] - q[0]);
   const s = { ...series, points };
-  page.core.drawSeries(plot.canvas, seriesJson({ ...s, current: a }), dark);
+  state.core.drawSeries(plot.canvas, seriesJson({ ...s, current: a }), dark);
   const [pb, pc] = plot.probes;
-  page.core.drawSeries(pb, seriesJson({ ...s, current: b }), dark);
-  page.core.drawSeries(pc, seriesJson({ ...s, current: null }), dark);
+  state.core.drawSeries(pb, seriesJson({ ...s, current: b }), dark);
+  state.core.drawSeries(pc, seriesJson({ ...s, current: null }), dark);
   const { width, height } = plot.canvas;
   if (pb.width !== width || pb.height !== height || pc.width !== width || pc.height !== height) return;
   const ctx = plot.canvas.getContext('2d');
@@ -854,7 +747,7 @@ function designPlot(name, { caption, label, draw, wide = false, small = false, p
   return plot;
 }
 
-function plotsFor(kind, d, request, run) {
+function plotsFor(state, kind, d, request, run) {
   const g = (v, n = 4) => significant(v, n);
   if (kind === 'displacer') {
     const c = d.band.curve;
@@ -865,7 +758,7 @@ function plotsFor(kind, d, request, run) {
         ? `Separation against wavelength: ${g(d.separation_mm)} mm at the design wavelength ${trimmed(d.wavelength_nm, 3)} nm; no band was given.`
         : `Separation against wavelength, ${trimmed(c[0][0], 3)} to ${trimmed(c[c.length - 1][0], 3)} nm: from ${g(d.band.min_mm)} mm at ${trimmed(d.band.min_at_nm, 3)} nm to ${g(d.band.max_mm)} mm at ${trimmed(d.band.max_at_nm, 3)} nm; ${g(d.separation_mm)} mm at ${trimmed(d.wavelength_nm, 3)} nm.`,
       caption: one ? 'Give a band to see the separation over it.' : 'The designed plate over the band.',
-      draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
         title: 'Separation against wavelength',
         x_label: 'wavelength', x_unit: 'nm', y_label: 'separation', y_unit: 'mm',
         points: c, current: [d.wavelength_nm, d.separation_mm],
@@ -882,7 +775,7 @@ function plotsFor(kind, d, request, run) {
           ? `Histogram of the separation over ${mc.n} Monte Carlo samples: mean ${g(mc.mean, 6)} mm, standard deviation ${g(mc.std, 3)} mm, 5th to 95th percentile ${g(mc.p5, 6)} to ${g(mc.p95, 6)} mm; the nominal design gives ${g(d.separation_mm, 6)} mm.`
           : `${title}: no samples yet.`,
         caption: 'Every sample traces the plate with all four errors drawn at once; the nominal separation is marked.',
-        draw: (p, dark) => page.core.drawHistogram(p.canvas, JSON.stringify(mc ?? { n: 0 }), title, 'separation', 'mm', d.separation_mm, dark),
+        draw: (p, dark) => state.core.drawHistogram(p.canvas, JSON.stringify(mc ?? { n: 0 }), title, 'separation', 'mm', d.separation_mm, dark),
       }));
     }
     return plots;
@@ -890,14 +783,14 @@ function plotsFor(kind, d, request, run) {
   if (kind === 'waveplate') {
     const c = d.wavelength_curve;
     const worst = worstPlane(d);
-    const err = typeof request.acceptance_error_waves === 'number' ? request.acceptance_error_waves : limits.default_acceptance_error_waves;
+    const err = typeof request.acceptance_error_waves === 'number' ? request.acceptance_error_waves : state.design.limits.default_acceptance_error_waves;
     const plots = [designPlot('retardance-wavelength', {
       wide: true,
       label: c.length
         ? `Retardance against wavelength, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm: from ${g(c[0][1])} to ${g(c[c.length - 1][1])} waves; ${g(d.retardance_waves)} waves at ${trimmed(request.wavelength_nm ?? 632.8, 3)} nm.`
         : 'Retardance against wavelength: no point of the band could be evaluated.',
       caption: 'At normal incidence; crossed plates count negative.',
-      draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
         title: 'Retardance against wavelength',
         x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
         points: c, current: [designWavelength(request), d.retardance_waves],
@@ -922,7 +815,7 @@ function plotsFor(kind, d, request, run) {
         small: true,
         label: `Retardance against angle of incidence in the plane at ${az}° to the optic axis${isWorst ? ', the worst plane' : ''}: ${g(g0)} waves at normal incidence, ${pts.length ? g(pts[pts.length - 1][1]) : '—'} waves at ${trimmed(end, 2)}°; ${leaves ? `it moves by ${err} waves at ${g(a.acceptance_deg)}°` : `it stays within ${err} waves up to ${trimmed(end, 2)}°`}.`,
         caption: leaves ? `Acceptance ${g(a.acceptance_deg)}° (±${err} waves).` : `Within ±${err} waves up to ${trimmed(end, 2)}°.`,
-        draw: (p, dark) => page.core.drawSeries(p.canvas, seriesJson({
+        draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
           title, x_label: 'incidence', x_unit: '°', y_label: 'retardance', y_unit: 'waves',
           points: pts, current, note: `acceptance ${g(a.acceptance_deg)}°`,
         }), dark),
@@ -942,7 +835,7 @@ function plotsFor(kind, d, request, run) {
       caption: bothInside
         ? 'Both design wavelengths are marked (the second one unlabelled where the labels would overlap); their values are in the Retardance card.'
         : 'The band does not hold both design wavelengths: only the first is marked.',
-      draw: (p, dark) => drawTwoMarkers(p, {
+      draw: (p, dark) => drawTwoMarkers(state, p, {
         title: 'Retardance of the pair against wavelength',
         x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
         points: c, note: 'design points marked',
@@ -956,23 +849,23 @@ function designWavelength(request) {
   return typeof request.wavelength_nm === 'number' ? request.wavelength_nm : 632.8;
 }
 
-function drawDesignPlot(p) {
+function drawDesignPlot(state, p) {
   try {
-    p.draw(p, page.darkQuery.matches);
+    p.draw(p, state.darkQuery.matches);
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
-    showDesignError({ field: '', message: `Could not draw the plot ${p.name}: ${fe.message}` });
+    state.design.errors.show({ field: '', message: `Could not draw the plot ${p.name}: ${fe.message}` });
   }
 }
 
-function redrawDesign() {
-  for (const p of design.plots) drawDesignPlot(p);
+function redrawDesign(state) {
+  for (const p of state.design.plots) drawDesignPlot(state, p);
 }
 
 /** Writes the shown design: its results as text, then its plots. */
-function renderDesign() {
-  const s = design.shown;
+function renderDesign(state) {
+  const s = state.design.shown;
   const results = document.getElementById('design-results');
   const cardBox = document.getElementById('design-cards');
   const plotBox = document.getElementById('design-plots');
@@ -982,51 +875,46 @@ function renderDesign() {
     cardBox.replaceChildren();
     plotBox.replaceChildren();
     rowBox.replaceChildren();
-    design.plots = [];
+    state.design.plots = [];
     document.getElementById('design-empty').hidden = false;
-    updateOrderSheet(null);
+    updateOrderSheet(state, null);
     return;
   }
   document.getElementById('design-empty').hidden = true;
   const d = s.design;
   const kind = d.kind;
-  const parts = kind === 'displacer' ? displacerResults(d, s.run)
-    : kind === 'waveplate' ? waveplateResults(d)
-      : kind === 'achromat' ? achromatResults(d)
-        : recombinerResults(d);
+  const parts = kind === 'displacer' ? displacerResults(state, d, s.run)
+    : kind === 'waveplate' ? waveplateResults(state, d)
+      : kind === 'achromat' ? achromatResults(state, d)
+        : recombinerResults(state, d);
   const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
-  const advice = adviceOf(d);
+  const advice = adviceOf(state, d);
   results.replaceChildren(...[head, adviceLists(advice), parts[0]].filter(Boolean));
   cardBox.replaceChildren(...parts.slice(1));
 
-  for (const p of design.plots) design.resize.unobserve(p.box);
-  design.plots = plotsFor(kind, d, s.request, s.run);
-  plotBox.replaceChildren(...design.plots.filter((p) => !p.small).map((p) => p.figure));
-  rowBox.replaceChildren(...design.plots.filter((p) => p.small).map((p) => p.figure));
-  for (const p of design.plots) {
-    drawDesignPlot(p);
-    design.resize.observe(p.box);
+  for (const p of state.design.plots) state.design.resize.unobserve(p.box);
+  state.design.plots = plotsFor(state, kind, d, s.request, s.run);
+  plotBox.replaceChildren(...state.design.plots.filter((p) => !p.small).map((p) => p.figure));
+  rowBox.replaceChildren(...state.design.plots.filter((p) => p.small).map((p) => p.figure));
+  for (const p of state.design.plots) {
+    drawDesignPlot(state, p);
+    state.design.resize.observe(p.box);
   }
   document.getElementById('design-use').disabled = false;
-  updateDesignStale();
+  updateDesignStale(state);
   const kindName = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const words = (list) => list.map((a) => a.text);
-  updateOrderSheet(
-    { kindName, request: s.request, design: d, complete: s.complete, warnings: words(advice.warnings), notes: words(advice.notes) },
-    { materialList: page.materialList, materialName: designMaterialName },
-  );
+  updateOrderSheet(state, { kindName, request: s.request, design: d, complete: s.complete, warnings: words(advice.warnings), notes: words(advice.notes) });
 }
 
 // --- the design part of a shared link --------------------------------------------------------
 
-let defaultRequestText = ''; // the request of the fields as the panel starts
-
 /** Tells the page the request the fields say, for the link ('' while it is the default one). */
-function notifyDesignInputs() {
-  if (!page.onDesignInputs) return;
-  const text = JSON.stringify(designRequest());
-  page.onDesignInputs(text === defaultRequestText ? '' : text);
+function notifyDesignInputs(state) {
+  if (!state.design.links.onDesignInputs) return;
+  const text = JSON.stringify(designRequest(state));
+  state.design.links.onDesignInputs(text === state.design.defaultRequestText ? '' : text);
 }
 
 /** A request's fields by path (`tolerances.tilt_deg`, `band_nm[1]`), leaves only. */
@@ -1045,10 +933,10 @@ function requestLeaves(obj, prefix = '', out = []) {
  * have, or a value it cannot hold, is named beside its field (or in the panel's general slot)
  * and left out; every other field is filled.
  */
-function setDesignInputs(req) {
-  clearDesignErrors();
+function setDesignInputs(state, req) {
+  state.design.errors.clear();
   if (!req || typeof req !== 'object' || Array.isArray(req)) {
-    showDesignError({ field: '', message: 'The design part of this link is not a JSON object; the design fields were kept.' });
+    state.design.errors.show({ field: '', message: 'The design part of this link is not a JSON object; the design fields were kept.' });
     return;
   }
   const leaves = requestLeaves(req);
@@ -1056,7 +944,7 @@ function setDesignInputs(req) {
   // The kind first: it decides which fields show; custom indices choose the custom material.
   leaves.sort(([a], [b]) => (b === 'kind') - (a === 'kind'));
   for (const [path, v] of leaves) {
-    const f = dfields[path];
+    const f = state.design.fields[path];
     if (!f) {
       problems.push({ field: path, message: 'the design panel has no such field; it was left out of the link\'s request' });
       continue;
@@ -1068,29 +956,29 @@ function setDesignInputs(req) {
       }
       f.input.value = String(v);
       f.touched = true;
-      if (path === 'kind') layoutDesignFields();
+      if (path === 'kind') layoutDesignFields(state);
     } else if (typeof v === 'number' && Number.isFinite(v)) {
       f.input.value = String(v);
       const m = /^(.*?)(no|ne)$/.exec(path);
-      if (m && dfields[`${m[1]}material`] && !leaves.some(([p]) => p === `${m[1]}material`)) {
-        dfields[`${m[1]}material`].input.value = 'custom';
-        dfields[`${m[1]}material`].touched = true;
+      if (m && state.design.fields[`${m[1]}material`] && !leaves.some(([p]) => p === `${m[1]}material`)) {
+        state.design.fields[`${m[1]}material`].input.value = 'custom';
+        state.design.fields[`${m[1]}material`].touched = true;
       }
     } else {
       problems.push({ field: path, message: 'the link gives no number here; the field was left as it was' });
     }
   }
-  layoutDesignFields();
-  for (const p of problems) addDesignError(p);
-  notifyDesignInputs();
+  layoutDesignFields(state);
+  for (const p of problems) state.design.errors.add(p);
+  notifyDesignInputs(state);
 }
 
 // --- the worker ----------------------------------------------------------------------------
 
-function setDesignState(state) {
+function setDesignState(panelState) {
   const panel = document.getElementById('design');
-  if (panel.dataset.state !== state) panel.dataset.state = state;
-  const running = state === 'solving' || state === 'running';
+  if (panel.dataset.state !== panelState) panel.dataset.state = panelState;
+  const running = panelState === 'solving' || panelState === 'running';
   const cancel = document.getElementById('design-cancel');
   if (!running && document.activeElement === cancel) document.getElementById('design-solve').focus();
   cancel.disabled = !running;
@@ -1098,50 +986,50 @@ function setDesignState(state) {
   document.getElementById('design-output').setAttribute('aria-busy', running ? 'true' : 'false');
 }
 
-function designStatus(text) {
+function setStatus(text) {
   setText(document.getElementById('design-status'), text);
 }
 
-function startDesignWorker() {
+function startDesignWorker(state) {
   let w;
   try {
     w = new Worker('design-worker.js', { type: 'module' });
   } catch (e) {
-    designFailed(`The design worker could not start: ${e && e.message ? e.message : e}`);
+    designFailed(state, `The design worker could not start: ${e && e.message ? e.message : e}`);
     return;
   }
-  design.worker = w;
+  state.design.worker = w;
   w.onmessage = (ev) => {
-    if (w === design.worker) onDesignMessage(ev.data);
+    if (w === state.design.worker) onDesignMessage(state, ev.data);
   };
   w.onerror = (ev) => {
     ev.preventDefault();
-    if (w !== design.worker) return;
-    designFailed(`The design worker stopped: ${ev.message || 'its script or the design core could not be loaded'}.`);
+    if (w !== state.design.worker) return;
+    designFailed(state, `The design worker stopped: ${ev.message || 'its script or the design core could not be loaded'}.`);
   };
   w.onmessageerror = () => {
-    if (w === design.worker) designFailed('The design worker sent a message the page could not read.');
+    if (w === state.design.worker) designFailed(state, 'The design worker sent a message the page could not read.');
   };
 }
 
-function stopDesignWorker() {
-  if (design.worker) design.worker.terminate();
-  design.worker = null;
+function stopDesignWorker(state) {
+  if (state.design.worker) state.design.worker.terminate();
+  state.design.worker = null;
 }
 
-function designFailed(message) {
-  stopDesignWorker();
-  const a = design.active;
-  design.active = null;
-  if (a && a.nominal && design.shown && design.shown.run) {
-    design.shown.run.cancelled = true;
-    renderDesign();
+function designFailed(state, message) {
+  stopDesignWorker(state);
+  const a = state.design.active;
+  state.design.active = null;
+  if (a && a.nominal && state.design.shown && state.design.shown.run) {
+    state.design.shown.run.cancelled = true;
+    renderDesign(state);
   } else {
     document.getElementById('design-run').hidden = true;
   }
-  showDesignError({ field: '', message: `${message} Press Solve to try again.` });
+  state.design.errors.show({ field: '', message: `${message} Press Solve to try again.` });
   setDesignState('error');
-  designStatus('Not solved.');
+  setStatus('Not solved.');
 }
 
 function showProgress(done, total) {
@@ -1151,64 +1039,64 @@ function showProgress(done, total) {
   setText(document.getElementById('design-progress-text'), `${done} of ${total} samples`);
 }
 
-function onDesignMessage(msg) {
+function onDesignMessage(state, msg) {
   if (!msg || typeof msg !== 'object') return;
   if (msg.type === 'ready') return;
   if (msg.type === 'failed') {
-    designFailed(msg.message);
+    designFailed(state, msg.message);
     return;
   }
-  const a = design.active;
+  const a = state.design.active;
   if (!a || msg.id !== a.id) return;
   if (msg.type === 'nominal') {
     a.nominal = msg.design;
     const total = msg.total;
     a.total = total;
-    design.shown = { request: a.request, design: msg.design, complete: false, run: { done: 0, total, cancelled: false } };
+    state.design.shown = { request: a.request, design: msg.design, complete: false, run: { done: 0, total, cancelled: false } };
     document.getElementById('design-run').hidden = false;
     showProgress(0, total);
     setDesignState('running');
-    designStatus('Nominal design shown; the tolerance run goes on in the background.');
-    clearDesignErrors();
-    renderDesign();
+    setStatus('Nominal design shown; the tolerance run goes on in the background.');
+    state.design.errors.clear();
+    renderDesign(state);
   } else if (msg.type === 'progress') {
     a.done = msg.done;
     a.total = msg.total;
-    if (design.shown && design.shown.run) design.shown.run.done = msg.done;
+    if (state.design.shown && state.design.shown.run) state.design.shown.run.done = msg.done;
     showProgress(msg.done, msg.total);
     const st = document.getElementById('design-mc-state');
     if (st) setText(st, `Running: ${msg.done} of ${msg.total} samples.`);
   } else if (msg.type === 'done') {
     const ms = performance.now() - a.t0;
-    design.active = null;
-    design.lastMs = ms;
-    design.shown = { request: a.request, design: msg.design, complete: true, run: null };
+    state.design.active = null;
+    state.design.lastMs = ms;
+    state.design.shown = { request: a.request, design: msg.design, complete: true, run: null };
     if (!a.nominal) document.getElementById('design-run').hidden = true;
-    clearDesignErrors();
+    state.design.errors.clear();
     setDesignState('done');
     const mc = msg.design.monte_carlo;
-    designStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
-    renderDesign();
+    setStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
+    renderDesign(state);
   } else if (msg.type === 'error') {
-    design.active = null;
-    if (a.nominal && design.shown && design.shown.run) {
-      design.shown.run.cancelled = true;
-      renderDesign();
+    state.design.active = null;
+    if (a.nominal && state.design.shown && state.design.shown.run) {
+      state.design.shown.run.cancelled = true;
+      renderDesign(state);
     }
     if (msg.internal) {
       // The core may be in a bad state after an internal error: start afresh.
-      stopDesignWorker();
-      startDesignWorker();
+      stopDesignWorker(state);
+      startDesignWorker(state);
     }
     document.getElementById('design-run').hidden = true;
-    showDesignError(msg.error);
+    state.design.errors.show(msg.error);
     setDesignState('error');
-    designStatus(`Not solved: ${msg.error.field ? `the field ${msg.error.field} needs attention` : 'see the message above'}.`);
-    updateDesignStale(true);
+    setStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
+    updateDesignStale(state, true);
   }
 }
 
-// What an empty band or pair of wavelengths means, by kind (see dhints), for a one-sided one.
+// What an empty band or pair of wavelengths means, by kind (see state.design.hints), for a one-sided one.
 const BAND_DEFAULT_WORDS = {
   displacer: 'the design wavelength alone',
   waveplate: '±20 % around the design wavelength',
@@ -1219,12 +1107,12 @@ const BAND_DEFAULT_WORDS = {
  * A pair of fields (a band, two design wavelengths) with one end given and the other empty
  * explains itself: an error on the empty end saying what to do, or null.
  */
-function oneSidedPair() {
-  const kind = dfields.kind.value;
+function oneSidedPair(state) {
+  const kind = state.design.fields.kind.value;
   const pairs = kind === 'achromat' ? ['wavelengths_nm', 'band_nm'] : ['band_nm'];
   for (const name of pairs) {
-    if (!(dlayout[kind] ?? []).some((n) => n.contains(dfields[`${name}[0]`].row))) continue;
-    const blank = [0, 1].map((i) => dfields[`${name}[${i}]`].blank);
+    if (!(state.design.layout[kind] ?? []).some((n) => n.contains(state.design.fields[`${name}[0]`].row))) continue;
+    const blank = [0, 1].map((i) => state.design.fields[`${name}[${i}]`].blank);
     if (blank[0] === blank[1]) continue;
     const empty = blank[0] ? 0 : 1;
     const end = empty === 0 ? 'lower' : 'upper';
@@ -1236,73 +1124,73 @@ function oneSidedPair() {
   return null;
 }
 
-function solveDesign() {
-  const oneSided = oneSidedPair();
+function solveDesign(state) {
+  const oneSided = oneSidedPair(state);
   if (oneSided) {
-    if (design.active) cancelDesign();
-    showDesignError(oneSided);
+    if (state.design.active) cancelDesign(state);
+    state.design.errors.show(oneSided);
     setDesignState('error');
-    designStatus(`Not solved: ${designLabel(oneSided.field)} is empty.`);
-    updateDesignStale(true);
+    setStatus(`Not solved: ${labelFor(state, oneSided.field)} is empty.`);
+    updateDesignStale(state, true);
     return;
   }
-  const request = designRequest();
-  if (design.active) stopDesignWorker(); // a new request replaces the one under way
-  if (!design.worker) startDesignWorker();
-  if (!design.worker) return;
-  clearDesignErrors();
-  const id = design.nextId;
-  design.nextId += 1;
-  design.active = { id, request, t0: performance.now(), nominal: null, done: 0, total: 0 };
+  const request = designRequest(state);
+  if (state.design.active) stopDesignWorker(state); // a new request replaces the one under way
+  if (!state.design.worker) startDesignWorker(state);
+  if (!state.design.worker) return;
+  state.design.errors.clear();
+  const id = state.design.nextId;
+  state.design.nextId += 1;
+  state.design.active = { id, request, t0: performance.now(), nominal: null, done: 0, total: 0 };
   setDesignState('solving');
-  designStatus('Solving…');
-  design.worker.postMessage({ type: 'solve', id, request });
+  setStatus('Solving…');
+  state.design.worker.postMessage({ type: 'solve', id, request });
 }
 
-function cancelDesign() {
-  const a = design.active;
+function cancelDesign(state) {
+  const a = state.design.active;
   if (!a) return;
-  stopDesignWorker();
-  startDesignWorker();
-  design.active = null;
-  if (a.nominal && design.shown && design.shown.run) {
-    design.shown.run.cancelled = true;
-    design.shown.run.done = a.done;
+  stopDesignWorker(state);
+  startDesignWorker(state);
+  state.design.active = null;
+  if (a.nominal && state.design.shown && state.design.shown.run) {
+    state.design.shown.run.cancelled = true;
+    state.design.shown.run.done = a.done;
     setDesignState('cancelled');
-    designStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
-    renderDesign();
+    setStatus(`Cancelled after ${a.done} of ${a.total} samples; the nominal design stays.`);
+    renderDesign(state);
   } else {
-    setDesignState(design.shown ? 'done' : 'idle');
-    designStatus('Cancelled.');
+    setDesignState(state.design.shown ? 'done' : 'idle');
+    setStatus('Cancelled.');
   }
   document.getElementById('design-solve').focus();
 }
 
-function useDesign() {
-  const s = design.shown;
+function useDesign(state) {
+  const s = state.design.shown;
   if (!s) return;
   try {
     const kindName = DESIGN_KINDS.find(([k]) => k === s.design.kind)?.[1] ?? s.design.kind;
-    page.applyScenario(structuredClone(s.design.scenario), { kind: 'design', name: kindName });
+    state.design.links.applyScenario(structuredClone(s.design.scenario), { kind: 'design', name: kindName });
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
-    showDesignError({ field: '', message: `The part could not be loaded into the set-up: ${fe.field ? `${fe.field}: ` : ''}${fe.message}` });
+    state.design.errors.show({ field: '', message: `The part could not be loaded into the set-up: ${fe.field ? `${fe.field}: ` : ''}${fe.message}` });
     return;
   }
-  page.flushFragment();
-  designStatus('The designed part is now the set-up: the views and results above show it.');
+  state.design.links.flushFragment();
+  setStatus('The designed part is now the set-up: the views and results above show it.');
   document.getElementById('views').focus();
 }
 
 /** Says so when the fields no longer match the design shown (or the last request failed). */
-function updateDesignStale(failed = false) {
+function updateDesignStale(state, failed = false) {
   const note = document.getElementById('design-stale');
-  const s = design.shown;
+  const s = state.design.shown;
   let text = '';
   if (s && failed) {
     text = 'Not solved: the results below are for the last request that solved.';
-  } else if (s && !design.active && JSON.stringify(designRequest()) !== JSON.stringify(s.request)) {
+  } else if (s && !state.design.active && JSON.stringify(designRequest(state)) !== JSON.stringify(s.request)) {
     text = 'The fields have changed since this design was solved: press Solve to update it.';
   }
   setText(note, text);
@@ -1310,54 +1198,61 @@ function updateDesignStale(failed = false) {
 }
 
 /**
- * Builds the panel in section#design and starts its worker. `pageLinks` is what the panel uses
- * of the page: `core` (the bindings: drawSeries, drawHistogram, designLimits), `materialList`
- * (core.materials()), `materialName(key)`, `darkQuery` (the prefers-color-scheme: dark query),
- * `applyScenario(obj, origin)` (loads a scenario into the set-up as a step of its history;
- * throws {field, message}), `flushFragment()` (writes the address now) and
+ * Builds the panel in section#design and starts its worker. `state` is the page's state
+ * (state.js): the panel reads its core (drawSeries, drawHistogram, designLimits), materials and
+ * colour scheme, and keeps its own part in state.design; every function of the panel that
+ * needs it takes it as its first parameter. `links` is what the panel may do to
+ * the page: `applyScenario(obj, origin)` (loads a scenario into the set-up as a step of its
+ * history; throws {field, message}), `flushFragment()` (writes the address now) and
  * `onDesignInputs(text)` (the fields' request as JSON for the link, '' while it is the default).
- * Returns the test hooks `designRequest()` and `designShown()`, and `setDesignInputs(request)`
+ * Returns the test hooks `designRequest(state)` and `designShown()`, and `setDesignInputs(state, request)`
  * and `designLinkError(err)` for the design part of a link.
  */
-export function setupDesign(pageLinks) {
-  page = pageLinks;
-  limits = page.core.designLimits();
-  buildDesignFields();
-  layoutDesignFields();
+export function setupDesign(state, links) {
+  state.design.links = links;
+  state.design.limits = state.core.designLimits();
+  state.design.errors = new FieldErrors({
+    root: document.getElementById('design'),
+    names: NAMES,
+    labelOf: (p) => state.design.fields[p]?.spoken,
+    groups: GROUP_LABELS,
+  });
+  buildDesignFields(state);
+  layoutDesignFields(state);
   const form = document.getElementById('design-form');
   form.addEventListener('submit', (ev) => {
     ev.preventDefault();
-    solveDesign();
+    solveDesign(state);
   });
   const onEdit = (ev) => {
     const f = ev.target instanceof HTMLElement ? ev.target.dataset.designField : undefined;
     if (f === undefined) return;
-    if (dfields[f]) dfields[f].touched = true;
-    if (ev.target.tagName === 'SELECT') layoutDesignFields();
-    if (!designErrorShown) updateDesignStale();
-    notifyDesignInputs();
+    if (state.design.fields[f]) state.design.fields[f].touched = true;
+    if (ev.target.tagName === 'SELECT') layoutDesignFields(state);
+    if (!state.design.errors.shown) updateDesignStale(state);
+    notifyDesignInputs(state);
   };
   form.addEventListener('input', onEdit);
   form.addEventListener('change', onEdit);
-  document.getElementById('design-cancel').addEventListener('click', cancelDesign);
-  document.getElementById('design-use').addEventListener('click', useDesign);
-  design.resize = new ResizeObserver((entries) => {
+  document.getElementById('design-cancel').addEventListener('click', () => cancelDesign(state));
+  document.getElementById('design-use').addEventListener('click', () => useDesign(state));
+  state.design.resize = new ResizeObserver((entries) => {
     const todo = new Set();
     for (const e of entries) {
-      const p = design.plots.find((x) => x.box === e.target);
+      const p = state.design.plots.find((x) => x.box === e.target);
       if (p) todo.add(p);
     }
     requestAnimationFrame(() => {
-      for (const p of todo) if (design.plots.includes(p)) drawDesignPlot(p);
+      for (const p of todo) if (state.design.plots.includes(p)) drawDesignPlot(state, p);
     });
   });
-  page.darkQuery.addEventListener('change', () => redrawDesign());
-  startDesignWorker();
-  defaultRequestText = JSON.stringify(designRequest());
+  state.darkQuery.addEventListener('change', () => redrawDesign(state));
+  startDesignWorker(state);
+  state.design.defaultRequestText = JSON.stringify(designRequest(state));
   return {
-    setDesignInputs,
-    designLinkError: showDesignError,
-    designRequest,
-    designShown: () => (design.shown ? structuredClone({ request: design.shown.request, design: design.shown.design, complete: design.shown.complete }) : null),
+    setDesignInputs: (req) => setDesignInputs(state, req),
+    designLinkError: (err) => state.design.errors.show(err),
+    designRequest: () => designRequest(state),
+    designShown: () => (state.design.shown ? structuredClone({ request: state.design.shown.request, design: state.design.shown.design, complete: state.design.shown.complete }) : null),
   };
 }

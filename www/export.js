@@ -3,7 +3,8 @@
 // Blob URL and a temporary <a download>: nothing is sent anywhere. The print sheet (#print-setup)
 // is a compact read-only summary of the set-up, shown only when printing.
 //
-// Contract: setupExport({session, views}), called once by app.js after the views are found,
+// Contract: setupExport(state), called once by app.js after the views are found (`state` is the
+// page's state, state.js: state.session makes the files of state.views.list),
 // adds after each view's box a row of buttons with data-export="<view>:<svg|png|csv|json>" (data
 // formats for the plots only) and answers them and the results' [data-export] buttons
 // (results:json, results:csv, scenario:json) with files named doublespar-<what>.<format>; the
@@ -24,7 +25,6 @@ const VIEW_TITLES = {
   'retardance-wavelength': 'retardance against wavelength plot',
 };
 const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
-let exportSource = null; // {session, views}: what the page shows (setupExport)
 
 function exportStatus(text, failed = false) {
   const el = document.getElementById('export-status');
@@ -89,22 +89,22 @@ function jsonBlob(value) {
   return new Blob([JSON.stringify(value, null, 2) + '\n'], { type: 'application/json' });
 }
 
-function exportView(view, format) {
-  const v = exportSource.views.find((x) => x.name === view);
+function exportView(state, view, format) {
+  const v = state.views.list.find((x) => x.name === view);
   if (!v) return;
   const drawn = v.canvas.dataset.view; // the side view's plane may have changed it
   const name = `doublespar-${drawn}.${format}`;
   if (format === 'svg') {
     const w = Math.max(1, Math.round(v.canvas.clientWidth));
     const hgt = Math.max(1, Math.round(v.canvas.clientHeight));
-    download(name, new Blob([exportSource.session.svg(drawn, w, hgt, false)], { type: 'image/svg+xml' }));
+    download(name, new Blob([state.session.svg(drawn, w, hgt, false)], { type: 'image/svg+xml' }));
   } else if (format === 'png') {
     v.canvas.toBlob((blob) => {
       if (blob) download(name, blob);
       else exportStatus(`Could not make ${name}: the view has no picture yet.`, true);
     }, 'image/png');
   } else {
-    const s = exportSource.session.series(view);
+    const s = state.session.series(view);
     if (!s) {
       exportStatus(`The ${VIEW_TITLES[view] ?? view} has no data series.`, true);
       return;
@@ -114,26 +114,26 @@ function exportView(view, format) {
   }
 }
 
-function exportResults(what, format) {
+function exportResults(state, what, format) {
   if (what === 'scenario') {
-    download('doublespar-scenario.json', jsonBlob(JSON.parse(exportSource.session.scenarioJson())));
+    download('doublespar-scenario.json', jsonBlob(JSON.parse(state.session.scenarioJson())));
   } else if (format === 'json') {
     download('doublespar-results.json', jsonBlob({
-      scenario: JSON.parse(exportSource.session.scenarioJson()),
-      result: exportSource.session.result(),
+      scenario: JSON.parse(state.session.scenarioJson()),
+      result: state.session.result(),
     }));
   } else {
-    download('doublespar-results.csv', new Blob([resultsCsv(exportSource.session.result())], { type: 'text/csv' }));
+    download('doublespar-results.csv', new Blob([resultsCsv(state.session.result())], { type: 'text/csv' }));
   }
 }
 
-function onExportClick(ev) {
+function onExportClick(state, ev) {
   const btn = ev.target.closest('button[data-export]');
-  if (!btn || !exportSource) return;
+  if (!btn) return;
   const [what, format] = btn.dataset.export.split(':');
   try {
-    if (what === 'results' || what === 'scenario') exportResults(what, format);
-    else exportView(what, format);
+    if (what === 'results' || what === 'scenario') exportResults(state, what, format);
+    else exportView(state, what, format);
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
@@ -143,11 +143,10 @@ function onExportClick(ev) {
 
 /**
  * Puts the export buttons after every view's box and answers their clicks (and those of the
- * results' buttons). `session` is the page's Session, `views` its list of {name, canvas, box}.
+ * results' buttons), from the page's state: state.session and state.views.list.
  */
-export function setupExport({ session, views }) {
-  exportSource = { session, views };
-  for (const v of views) {
+export function setupExport(state) {
+  for (const v of state.views.list) {
     const title = VIEW_TITLES[v.name] ?? v.name;
     const formats = PLOT_VIEWS.includes(v.name) ? ['svg', 'png', 'csv', 'json'] : ['svg', 'png'];
     const row = h('div', { className: 'export-row', role: 'group', 'aria-label': `Export the ${title}` },
@@ -163,8 +162,8 @@ export function setupExport({ session, views }) {
     }
     v.box.after(row);
   }
-  document.getElementById('views').addEventListener('click', onExportClick);
-  document.getElementById('results').addEventListener('click', onExportClick);
+  document.getElementById('views').addEventListener('click', (ev) => onExportClick(state, ev));
+  document.getElementById('results').addEventListener('click', (ev) => onExportClick(state, ev));
 }
 
 // The print sheet: a compact read-only summary of the set-up, shown only when printing.
@@ -231,22 +230,22 @@ function bandText(curve, wavelength) {
  * What the sheet says of a material: its name and the source of its data; a formula with no
  * journal source (`verified` false in the catalogue) says "unverified data" beside its name.
  */
-function materialRows(key, label, links) {
-  const m = links.materialList.find((x) => x.key === key);
-  if (!m) return [[label, `${links.materialName(key)}`], ['Data source', 'custom indices given in the request (no dispersion, no source)']];
+function materialRows(key, label, materialList) {
+  const m = materialList.find((x) => x.key === key);
+  if (!m) return [[label, key === 'custom' ? 'custom-index' : String(key)], ['Data source', 'custom indices given in the request (no dispersion, no source)']];
   const name = m.name.toLowerCase().includes(m.key) ? m.name : `${m.name} (${m.key})`;
   const unverified = m.verified === false ? '; unverified data: its formula has no journal source' : '';
   return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`], ['Data source', m.citation]];
 }
 
 /** The sheet's rows [term, text] for a solved design of each kind. */
-function orderRows(shown, links) {
+function orderRows(shown, materialList) {
   const { design: d, request: r, kindName } = shown;
   const part = `${kindName.charAt(0).toUpperCase()}${kindName.slice(1)}${shown.complete ? '' : ' (nominal design; the tolerance run did not finish)'}`;
   const rows = [['Part', part]];
   if (d.kind === 'displacer') {
     const t = d.tolerances ?? {};
-    rows.push(...materialRows(d.material, 'Material', links));
+    rows.push(...materialRows(d.material, 'Material', materialList));
     rows.push(['Dimensions', `length ${mm(d.length_mm)} ± ${mm(t.thickness_mm, 3)} along the beam (the tolerance as one standard deviation)`]);
     rows.push(['Cut', `optic axis at ${deg(d.cut_tilt_deg)} ± ${deg(t.tilt_deg, 3)} to the face normal, in the plane that holds the displacement (e-ray toward ${d.displacement_direction})`]);
     rows.push(['Clear aperture', `at least ${mm(d.clear_aperture_mm)} (round), both faces`]);
@@ -255,9 +254,9 @@ function orderRows(shown, links) {
   } else if (d.kind === 'waveplate' || d.kind === 'achromat') {
     const plates = d.plates ?? [];
     if (d.kind === 'achromat') {
-      plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, links)));
+      plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));
     } else {
-      rows.push(...materialRows(plates[0]?.material, 'Material', links));
+      rows.push(...materialRows(plates[0]?.material, 'Material', materialList));
     }
     const wl = d.wavelength_nm ?? r.wavelength_nm;
     // The thickness change that moves the retardance by the acceptance error: δL = δΓ·λ/|nₑ − nₒ|.
@@ -280,7 +279,7 @@ function orderRows(shown, links) {
       rows.push(['Performance', `largest departure from the target over the band ${sheetNumber(d.max_error_waves, 3)} waves`]);
     }
   } else if (d.kind === 'recombiner') {
-    rows.push(...materialRows(r.material ?? 'custom', 'Material', links));
+    rows.push(...materialRows(r.material ?? 'custom', 'Material', materialList));
     const els = d.scenario?.elements ?? [];
     const first = els.find((e) => e.kind === 'crystal');
     const lenTol = Math.min(...(d.length_mismatch_to_break_mm ?? []).map(Math.abs).filter(Number.isFinite));
@@ -300,9 +299,9 @@ function orderRows(shown, links) {
 /**
  * Writes #order-sheet from the design shown in the design panel ({kindName, request, design,
  * complete, warnings, notes}; the last two lists of text in the panel's words), or empties it
- * (null). `links` gives {materialList, materialName}.
+ * (null). The materials' catalogue comes from the page's state (state.materialList).
  */
-export function updateOrderSheet(shown, links) {
+export function updateOrderSheet(state, shown) {
   const box = document.getElementById('order-sheet');
   if (!box) return;
   if (!shown) {
@@ -311,7 +310,7 @@ export function updateOrderSheet(shown, links) {
     return;
   }
   const list = h('dl', { className: 'order-list' });
-  for (const [term, text] of orderRows(shown, links)) {
+  for (const [term, text] of orderRows(shown, state.materialList)) {
     const dd = Array.isArray(text) ? h('dd', {}, h('ul', {}, ...text.map((t) => h('li', { text: t })))) : h('dd', { text });
     list.appendChild(h('div', { 'data-order': term }, h('dt', { text: term }), dd));
   }

@@ -3,11 +3,12 @@
 // into the result (DEVELOPERS.md, "Page contract") and data-value = String(value); the text is
 // rounded, with its unit.
 //
-// Contract: setupResults({materialName}) once, then renderResults(r) after every trace. The rows
+// Contract: setupResults(state) once, then renderResults(state, r) after every trace; `state` is
+// the page's state (state.js), whose part `state.results` this module keeps. The rows
 // are built again only when the result's shape changes (element kinds, ray labels, spot count,
 // what is shown of the long tables); otherwise a cell's text and data-value are written only
 // when its value changed. The ray and spot tables show ROW_LIMIT rows and a "show all" button
-// (data-show-all="rays" or "spots"), whose click the page answers with toggleShowAll(which) and
+// (data-show-all="rays" or "spots"), whose click the page answers with toggleShowAll(state, which) and
 // a new render.
 //
 // Numbers follow format.js (the core's rules): each table writes its positions in one length
@@ -16,16 +17,10 @@
 
 import { h } from './dom.js';
 import { fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
+import { materialName } from './state.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
 
-let nameOfMaterial = null; // the page's materialName (setupResults)
-let resultShape = null;
-let cells = [];
-const showAll = { rays: false, spots: false };
-
-// The length unit of each table's positions, chosen at every render from its largest value.
-const units = { rays: lengthUnitForValues([]), spots: lengthUnitForValues([]) };
 
 function positionsUnit(items, key) {
   const values = [];
@@ -34,7 +29,7 @@ function positionsUnit(items, key) {
 }
 
 /** A position in the table's unit; below 1 pm (rounding of a zero) it is 0. */
-function positionIn(table) {
+function positionIn(units, table) {
   return (v) => (v === null || v === undefined ? '—' : lengthIn(Math.abs(v) < 1e-9 ? 0 : v, units[table], 5));
 }
 
@@ -44,16 +39,19 @@ function circular(pick) {
 }
 
 /**
- * A result cell: `get(r)` its value (data-value), `format(v, r)` its text. `keyOf(r)`, when
- * given, names what else the text depends on (a table's unit, whether the light is circular).
+ * The maker of result cells into `cells`: `cell(tag, path, get, format, attrs, keyOf)`, with
+ * `get(r)` its value (data-value), `format(v, r)` its text. `keyOf(r)`, when given, names what
+ * else the text depends on (a table's unit, whether the light is circular).
  */
-function cell(tag, path, get, format, attrs, keyOf) {
-  const el = h(tag, { 'data-quantity': path, ...(attrs ?? {}) });
-  cells.push({ el, get, format, keyOf, last: undefined });
-  return el;
+function cellMaker(cells) {
+  return (tag, path, get, format, attrs, keyOf) => {
+    const el = h(tag, { 'data-quantity': path, ...(attrs ?? {}) });
+    cells.push({ el, get, format, keyOf, last: undefined });
+    return el;
+  };
 }
 
-function shapeOf(r) {
+function shapeOf(r, showAll) {
   const parts = [
     r.elements.map((e) => e.kind).join(','),
     r.rays.map((x) => x.label).join(','),
@@ -65,7 +63,7 @@ function shapeOf(r) {
 }
 
 /** A last table row saying how many rows are hidden, with a button to show them all. */
-function moreRow(which, shown, total, colspan) {
+function moreRow(which, shown, total, colspan, showAll) {
   const noun = which === 'rays' ? 'rays' : 'spots';
   const btn = h('button', {
     type: 'button',
@@ -80,7 +78,7 @@ function moreRow(which, shown, total, colspan) {
 
 /** The polarization columns shared by the ray and spot tables: ellipse azimuth, ellipticity,
  * handedness and degree of polarization of the item that `pick(result)` selects. */
-function appendPolarizationCells(tr, p, pick) {
+function appendPolarizationCells(cell, tr, p, pick) {
   const isCircular = circular(pick);
   const azimuth = (v, r) => (isCircular(r) ? '—' : fmt.ellipseDeg(v));
   tr.appendChild(cell('td', `${p}.ellipse.azimuth_deg`, (x) => pick(x).ellipse.azimuth_deg, azimuth, {}, (r) => String(isCircular(r))));
@@ -92,8 +90,10 @@ function appendPolarizationCells(tr, p, pick) {
 /** A spot's rays as labels; past four, the first two and a count (a spot may hold 4096 rays). */
 const spotRays = (v) => fmt.labels(Array.isArray(v) && v.length > 4 ? [v[0], v[1], `… ${v.length} rays`] : v);
 
-function buildResults(r) {
-  cells = [];
+function buildResults(state, r) {
+  const { showAll, units } = state.results;
+  state.results.cells = [];
+  const cell = cellMaker(state.results.cells);
   const elBox = document.getElementById('element-results');
   const frag = document.createDocumentFragment();
   r.elements.forEach((e, i) => {
@@ -105,7 +105,7 @@ function buildResults(r) {
       rows.appendChild(h('div', { className: 'q' }, h('dt', { text: label }), cell('dd', path, get, format)));
     };
     if (e.kind === 'crystal') {
-      title.appendChild(cell('span', `${p}.material`, (x) => x.elements[i].material, (v) => (v === 'custom' ? 'crystal, custom indices' : `${nameOfMaterial(v)} crystal`)));
+      title.appendChild(cell('span', `${p}.material`, (x) => x.elements[i].material, (v) => (v === 'custom' ? 'crystal, custom indices' : `${materialName(state, v)} crystal`)));
       row('nₒ', `${p}.no`, (x) => x.elements[i].no, fmt.index);
       row('nₑ', `${p}.ne`, (x) => x.elements[i].ne, fmt.index);
       row('o-wave index', `${p}.o.index`, (x) => x.elements[i].o.index, fmt.index);
@@ -146,15 +146,15 @@ function buildResults(r) {
     const tr = h('tr', {}, h('th', { scope: 'row', className: `ray-label${rayClass(ray.label)}`, text: ray.label || '(no crystal)' }));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.rays[k].power, fmt.power));
     const rayUnit = () => units.rays.symbol;
-    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], positionIn('rays'), {}, rayUnit));
-    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], positionIn('rays'), {}, rayUnit));
-    appendPolarizationCells(tr, p, (x) => x.rays[k]);
+    tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], positionIn(units, 'rays'), {}, rayUnit));
+    tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], positionIn(units, 'rays'), {}, rayUnit));
+    appendPolarizationCells(cell, tr, p, (x) => x.rays[k]);
     rayRows.appendChild(tr);
   });
   if (r.rays.length === 0) {
     rayRows.appendChild(h('tr', {}, h('td', { colspan: 8, className: 'empty', text: 'No ray leaves the stack.' })));
   } else if (r.rays.length > ROW_LIMIT) {
-    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, 8));
+    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, 8, showAll));
   }
   document.getElementById('ray-rows').replaceChildren(rayRows);
 
@@ -165,17 +165,17 @@ function buildResults(r) {
     const tr = h('tr', {}, h('th', { scope: 'row', text: `${k + 1}` }));
     tr.appendChild(cell('td', `${p}.rays`, (x) => x.spots[k].rays, spotRays, { className: 'word' }));
     const spotUnit = () => units.spots.symbol;
-    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], positionIn('spots'), {}, spotUnit));
-    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], positionIn('spots'), {}, spotUnit));
+    tr.appendChild(cell('td', `${p}.position_mm.0`, (x) => x.spots[k].position_mm[0], positionIn(units, 'spots'), {}, spotUnit));
+    tr.appendChild(cell('td', `${p}.position_mm.1`, (x) => x.spots[k].position_mm[1], positionIn(units, 'spots'), {}, spotUnit));
     tr.appendChild(cell('td', `${p}.power`, (x) => x.spots[k].power, fmt.power));
     tr.appendChild(cell('td', `${p}.overlap`, (x) => x.spots[k].overlap, fmt.dop));
-    appendPolarizationCells(tr, p, (x) => x.spots[k]);
+    appendPolarizationCells(cell, tr, p, (x) => x.spots[k]);
     spotRows.appendChild(tr);
   });
   if (r.spots.length === 0) {
     spotRows.appendChild(h('tr', {}, h('td', { colspan: 10, className: 'empty', text: 'No spot: no light leaves the stack.' })));
   } else if (r.spots.length > ROW_LIMIT) {
-    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 10));
+    spotRows.appendChild(moreRow('spots', ROW_LIMIT, r.spots.length, 10, showAll));
   }
   document.getElementById('spot-rows').replaceChildren(spotRows);
 
@@ -192,18 +192,17 @@ function rayClass(label) {
   return last === 'o' ? ' ray-o' : last === 'e' ? ' ray-e' : '';
 }
 
-let lastWarnings = null;
-
 /** Rewrites the results from result `r`; see the contract above. */
-export function renderResults(r) {
-  const shape = shapeOf(r);
-  if (shape !== resultShape) {
-    buildResults(r);
-    resultShape = shape;
+export function renderResults(state, r) {
+  const own = state.results;
+  const shape = shapeOf(r, own.showAll);
+  if (shape !== own.shape) {
+    buildResults(state, r);
+    own.shape = shape;
   }
-  units.rays = positionsUnit(r.rays, 'exit_position_mm');
-  units.spots = positionsUnit(r.spots, 'position_mm');
-  for (const c of cells) {
+  own.units.rays = positionsUnit(r.rays, 'exit_position_mm');
+  own.units.spots = positionsUnit(r.spots, 'position_mm');
+  for (const c of own.cells) {
     const v = c.get(r);
     const s = String(v);
     const key = c.keyOf ? `${s} ${c.keyOf(r)}` : s;
@@ -217,8 +216,8 @@ export function renderResults(r) {
     }
   }
   const w = r.warnings.join('\n');
-  if (w !== lastWarnings) {
-    lastWarnings = w;
+  if (w !== own.warnings) {
+    own.warnings = w;
     const list = document.getElementById('warning-list');
     list.replaceChildren(...r.warnings.map((t) => h('li', { text: t })));
     document.getElementById('no-warnings').hidden = r.warnings.length > 0;
@@ -227,11 +226,12 @@ export function renderResults(r) {
 }
 
 /** Flips the ray or spot table (`which`: 'rays' or 'spots') between its first rows and all. */
-export function toggleShowAll(which) {
+export function toggleShowAll(state, which) {
+  const { showAll } = state.results;
   showAll[which] = !showAll[which];
 }
 
-/** Once, before the first render: `materialName(key)` names a material of the catalogue. */
-export function setupResults({ materialName }) {
-  nameOfMaterial = materialName;
+/** Once, before the first render: the tables' length units start from nothing shown. */
+export function setupResults(state) {
+  state.results.units = { rays: lengthUnitForValues([]), spots: lengthUnitForValues([]) };
 }

@@ -8,16 +8,16 @@
 // core's rules): one length unit per description, chosen from its largest length; no azimuth
 // for circular light; "no power" below NO_POWER.
 //
-// Contract: setupViews({session, darkQuery, viewList, materialName, current}) once, after the
-// core has loaded; it returns the list of views ({name, canvas, box}). Then drawViews() draws
-// them all, describeViews() writes their descriptions from current(), and redraw() does both.
+// Contract: setupViews(state) once, after the core has loaded (`state` is the page's state,
+// state.js: this module keeps its part in state.views, draws with state.session and describes
+// state.result); it returns the list of views ({name, canvas, box}). Then drawViews(state) draws
+// them all, describeViews(state) writes their descriptions, and redraw(state) does both.
 
 import { h, setAttr, setText } from './dom.js';
 import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth } from './format.js';
 import { toFieldError } from './field-error.js';
+import { materialName } from './state.js';
 
-const views = []; // {name, canvas, box, failed}; the side view's canvas data-view is the plane's view
-let viewLinks = null; // what the page gives (setupViews)
 
 // The side view's planes: view name, the chooser's words, the plane in the text alternative and
 // the figure's caption.
@@ -31,55 +31,55 @@ function drawnName(v) {
   return v.name === 'side' ? v.canvas.dataset.view : v.name;
 }
 
-function drawView(v) {
+function drawView(state, v) {
+  const { errors } = state.views;
   try {
-    viewLinks.session.draw(drawnName(v), v.canvas, viewLinks.darkQuery.matches && !printDark);
+    state.session.draw(drawnName(v), v.canvas, state.darkQuery.matches && !state.views.printDark);
     if (v.failed) {
       v.failed = false;
-      viewErrors.delete(v.name);
-      showViewErrors();
+      errors.delete(v.name);
+      showViewErrors(errors);
     }
   } catch (e) {
     const fe = toFieldError(e);
     if (!fe) throw e;
     v.failed = true;
-    viewErrors.set(v.name, fe.message);
-    showViewErrors();
+    errors.set(v.name, fe.message);
+    showViewErrors(errors);
   }
 }
 
-const viewErrors = new Map();
-function showViewErrors() {
+function showViewErrors(errors) {
   const el = document.getElementById('view-error');
-  const text = [...viewErrors].map(([k, m]) => `${k}: ${m}`).join(' · ');
+  const text = [...errors].map(([k, m]) => `${k}: ${m}`).join(' · ');
   el.textContent = text ? `Could not draw ${text}` : '';
   el.hidden = !text;
 }
 
 /** Draws every view synchronously (their descriptions are left as they are). */
-export function drawViews() {
-  for (const v of views) drawView(v);
+export function drawViews(state) {
+  for (const v of state.views.list) drawView(state, v);
 }
 
 /** Redraws every view synchronously, and describes them again. */
-export function redraw() {
-  for (const v of views) drawView(v);
-  describeViews();
+export function redraw(state) {
+  drawViews(state);
+  describeViews(state);
 }
 
-let dirtyViews = new Set();
-let resizeFrame = 0;
-function onResize(entries) {
+/** Redraws, at the next frame, the views whose boxes were resized. */
+function onResize(state, entries) {
+  const own = state.views;
   for (const e of entries) {
-    const v = views.find((x) => x.box === e.target);
-    if (v) dirtyViews.add(v);
+    const v = own.list.find((x) => x.box === e.target);
+    if (v) own.dirty.add(v);
   }
-  if (!resizeFrame) {
-    resizeFrame = requestAnimationFrame(() => {
-      resizeFrame = 0;
-      const todo = dirtyViews;
-      dirtyViews = new Set();
-      for (const v of todo) drawView(v);
+  if (!own.resizeFrame) {
+    own.resizeFrame = requestAnimationFrame(() => {
+      own.resizeFrame = 0;
+      const todo = own.dirty;
+      own.dirty = new Set();
+      for (const v of todo) drawView(state, v);
     });
   }
 }
@@ -128,9 +128,11 @@ function listed(items, limit, describe) {
 }
 
 /** Writes each view's aria-label and the plots' captions from the page's current result. */
-export function describeViews() {
-  const { result: r, scenario: shownScenario } = viewLinks.current();
+export function describeViews(state) {
+  const { result: r, scenario: shownScenario } = state;
   if (!r) return;
+  const views = state.views.list;
+  const describeMaterial = (key) => (key === 'custom' ? 'custom indices' : materialName(state, key));
   const crystals = [];
   r.elements.forEach((e, i) => { if (e.kind === 'crystal') crystals.push(i); });
   const texts = {};
@@ -149,8 +151,8 @@ export function describeViews() {
   } else if (crystals.length === 1) {
     const c = r.elements[crystals[0]];
     texts.side = c.separation_mm === null
-      ? `${sideHead}: one ${viewLinks.materialName(c.material)} plate; one of its modes is evanescent, so the beam is not split.`
-      : `${sideHead}: e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${viewLinks.materialName(c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
+      ? `${sideHead}: one ${materialName(state, c.material)} plate; one of its modes is evanescent, so the beam is not split.`
+      : `${sideHead}: e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${materialName(state, c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
   } else {
     texts.side = `${sideHead}: ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
   }
@@ -191,28 +193,23 @@ export function describeViews() {
   for (const el of document.querySelectorAll('.plot-caption')) setText(el, plotNote);
 }
 
-function describeMaterial(key) {
-  return key === 'custom' ? 'custom indices' : viewLinks.materialName(key);
-}
-
 // Printing: the sheet (export.js) goes on paper, so the views are drawn in the light palette.
 
-let printDark = false;
-function beforePrint() {
+function beforePrint(state) {
   // The sheet is printed on paper: draw the views with the light palette.
-  printDark = viewLinks.darkQuery.matches;
-  if (printDark) redraw();
+  state.views.printDark = state.darkQuery.matches;
+  if (state.views.printDark) redraw(state);
 }
-function afterPrint() {
-  if (printDark) {
-    printDark = false;
-    redraw();
+function afterPrint(state) {
+  if (state.views.printDark) {
+    state.views.printDark = false;
+    redraw(state);
   }
 }
 
 /** Puts the side view's plane chooser above its canvas (planes the core knows only). */
-function addPlaneChooser(v, viewList) {
-  const planes = SIDE_PLANES.filter((p) => viewList.includes(p[0]));
+function addPlaneChooser(state, v) {
+  const planes = SIDE_PLANES.filter((p) => state.viewList.includes(p[0]));
   if (planes.length < 2) return;
   const select = h('select', { 'data-side-plane': '', 'aria-label': 'Side view plane' },
     ...planes.map(([value, words]) => h('option', { value, text: words })));
@@ -223,30 +220,29 @@ function addPlaneChooser(v, viewList) {
     setAttr(v.canvas, 'data-view', plane[0]);
     const caption = v.box.parentElement.querySelector('figcaption');
     if (caption) setText(caption, plane[3]);
-    drawView(v);
-    describeViews();
+    drawView(state, v);
+    describeViews(state);
   });
 }
 
 /**
- * Finds the views (canvas[data-view] naming one of `viewList`), redraws each when its box is
- * resized, all of them when the colour scheme changes (`darkQuery`) and around printing, and
- * returns their list. `session` draws them; `materialName(key)` names a material;
- * `current()` gives the page's {result, scenario} (the last that traced; null before the first).
+ * Finds the views (canvas[data-view] naming one of state.viewList) into state.views.list,
+ * redraws each when its box is resized, all of them when the colour scheme changes
+ * (state.darkQuery) and around printing, and returns their list. state.session draws them;
+ * their descriptions tell state.result and state.scenario (the last that traced).
  */
-export function setupViews({ session, darkQuery, viewList, materialName, current }) {
-  viewLinks = { session, darkQuery, materialName, current };
-  const ro = new ResizeObserver(onResize);
+export function setupViews(state) {
+  const ro = new ResizeObserver((entries) => onResize(state, entries));
   for (const canvas of document.querySelectorAll('canvas[data-view]')) {
     const name = canvas.dataset.view;
-    if (!viewList.includes(name)) continue;
+    if (!state.viewList.includes(name)) continue;
     const v = { name, canvas, box: canvas.parentElement, failed: false };
-    views.push(v);
+    state.views.list.push(v);
     ro.observe(v.box);
-    if (name === 'side') addPlaneChooser(v, viewList);
+    if (name === 'side') addPlaneChooser(state, v);
   }
-  darkQuery.addEventListener('change', () => redraw());
-  window.addEventListener('beforeprint', beforePrint);
-  window.addEventListener('afterprint', afterPrint);
-  return views;
+  state.darkQuery.addEventListener('change', () => redraw(state));
+  window.addEventListener('beforeprint', () => beforePrint(state));
+  window.addEventListener('afterprint', () => afterPrint(state));
+  return state.views.list;
 }

@@ -420,3 +420,31 @@ impl Session {
         Ok(svg::to_svg(&scene, width, height, &palette))
     }
 }
+
+/// The starting points the page offers, `[{key, name, scenario}]`: every document of
+/// `examples/` (the demo first), with the name the page's chooser shows and the file's text as
+/// `scenario`, so that the page and the command line read the same files.
+///
+/// # Errors
+/// Never in practice (conversion of plain data).
+#[wasm_bindgen]
+pub fn presets() -> Result<JsValue, JsValue> {
+    let files = [
+        ("demo", "demo: calcite displacer", DEMO),
+        (
+            "recombiner",
+            "YVO₄ pair, half-wave plate",
+            include_str!("../examples/recombiner.json"),
+        ),
+        (
+            "quarter-wave",
+            "quartz quarter-wave, oblique",
+            include_str!("../examples/quarter-wave.json"),
+        ),
+    ];
+    let list: Vec<serde_json::Value> = files
+        .iter()
+        .map(|(key, name, text)| serde_json::json!({"key": key, "name": name, "scenario": text}))
+        .collect();
+    to_js(&list)
+}

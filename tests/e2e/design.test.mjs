@@ -12,7 +12,7 @@ import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
 import { spawnSync } from 'node:child_process';
-import { ROOT, ARTIFACTS, CLI, WWW, useBrowser, withPage as openAt, canvasStats, drawn, resolvePath, close } from './support.mjs';
+import { ROOT, ARTIFACTS, CLI, WWW, useBrowser, withPage as openAt, canvasStats, drawn, resolvePath, close, enterValue, waitError, shownError, waitScenario } from './support.mjs';
 
 const DESIGN_WASM = path.join(WWW, 'pkg-design', 'doublespar_bg.wasm');
 
@@ -349,6 +349,28 @@ test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plo
     await page.setViewportSize({ width: 700, height: 900 });
     await page.waitForFunction((w) => document.querySelector('canvas[data-design-plot="retardance-wavelength"]').width !== w, w0, { timeout: 5000 });
     await expectPlots(page, plots, 'waveplate, after a resize');
+  });
+});
+
+test('each panel clears only its own errors: a set-up that traces again leaves the design panel\'s marks', { timeout: 90000 }, async () => {
+  await withPage(async ({ page }) => {
+    const THICK = 'input.num[data-field="elements[0].thickness_mm"]';
+    await enterValue(page, THICK, 'abc');
+    await waitError(page, 'elements[0].thickness_mm');
+    await choose(page, 'kind', 'waveplate');
+    await enter(page, 'retardance_waves', 'abc');
+    await solve(page, ['error']);
+    await expectError(page, 'retardance_waves', 'retardance "abc"');
+
+    // The set-up traces again: its message and marks go, the panel's stay.
+    await enterValue(page, THICK, '2');
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 2, 'the thickness traces');
+    assert.equal(await shownError(page, 'elements[0].thickness_mm'), '', 'the set-up\'s message is gone');
+    assert.equal(await page.getAttribute(THICK, 'aria-invalid'), null, 'the set-up\'s mark is gone');
+    assert.equal(await page.getAttribute(field('retardance_waves'), 'aria-invalid'), 'true', 'the design field is still marked');
+    assert.match(await errorText(page, 'retardance_waves'), /Retardance/, 'the design field still shows its message');
+    const slotField = await page.$eval('[data-design-error-for="retardance_waves"]', (el) => el.getAttribute('data-error-field'));
+    assert.equal(slotField, 'retardance_waves', 'the design slot keeps its path');
   });
 });
 
