@@ -434,12 +434,12 @@ pub fn presets() -> Result<JsValue, JsValue> {
         (
             "recombiner",
             "YVO₄ pair, half-wave plate",
-            include_str!("../examples/recombiner.json"),
+            include_str!("../../examples/recombiner.json"),
         ),
         (
             "quarter-wave",
             "quartz quarter-wave, oblique",
-            include_str!("../examples/quarter-wave.json"),
+            include_str!("../../examples/quarter-wave.json"),
         ),
     ];
     let list: Vec<serde_json::Value> = files
