@@ -637,107 +637,10 @@ function seriesJson(s) {
   return JSON.stringify(s);
 }
 
-/** Draws a series with two marked points: drawSeries marks one, so a second drawing with the
- *  other marked is laid over it wherever it differs from a drawing with neither. The two points
- *  lie on the curve and are added to it, so that all three drawings share their axes; a point
- *  outside the curve's span would change them, and then only the first is marked. */
-function drawTwoMarkers(state, plot, series, a, b, dark) {
-  const xs = series.points.map((p) => p[0]);
-  const within = (p) => xs.length > 1 && p[0] >= Math.min(...xs) && p[0] <= Math.max(...xs);
-  if (!within(a) || !within(b)) {
-    state.core.drawSeries(plot.canvas, seriesJson({ ...series, current: a }), dark);
-    return;
-  }
-  const points = [...series.points, a, b].sort((p, q) => p[0] - q[0]);
-  const s = { ...series, points };
-  state.core.drawSeries(plot.canvas, seriesJson({ ...s, current: a }), dark);
-  const [pb, pc] = plot.probes;
-  state.core.drawSeries(pb, seriesJson({ ...s, current: b }), dark);
-  state.core.drawSeries(pc, seriesJson({ ...s, current: null }), dark);
-  const { width, height } = plot.canvas;
-  if (pb.width !== width || pb.height !== height || pc.width !== width || pc.height !== height) return;
-  const ctx = plot.canvas.getContext('2d');
-  const img = ctx.getImageData(0, 0, width, height);
-  const db = pb.getContext('2d').getImageData(0, 0, width, height).data;
-  const dc = pc.getContext('2d').getImageData(0, 0, width, height).data;
-  const out = img.data;
-  const n = width * height;
-  const differs = (x, y, k) => x[k] !== y[k] || x[k + 1] !== y[k + 1] || x[k + 2] !== y[k + 2] || x[k + 3] !== y[k + 3];
-  // What the second marker adds (its dot and its label), and the bounding boxes of both marks.
-  const mb = new Uint8Array(n);
-  const boxA = [width, height, -1, -1];
-  const boxB = [width, height, -1, -1];
-  const grow = (bx, x, y) => {
-    bx[0] = Math.min(bx[0], x); bx[1] = Math.min(bx[1], y); bx[2] = Math.max(bx[2], x); bx[3] = Math.max(bx[3], y);
-  };
-  for (let i = 0; i < n; i += 1) {
-    const x = i % width;
-    const y = (i - x) / width;
-    if (differs(db, dc, 4 * i)) {
-      mb[i] = 1;
-      grow(boxB, x, y);
-    }
-    if (differs(out, dc, 4 * i)) grow(boxA, x, y);
-  }
-  const dpr = width / Math.max(1, plot.canvas.clientWidth);
-  const gap = 4 * dpr;
-  const apart = boxA[2] < 0 || boxB[2] < 0 || boxB[0] > boxA[2] + gap || boxA[0] > boxB[2] + gap
-    || boxB[1] > boxA[3] + gap || boxA[1] > boxB[3] + gap;
-  let keep = () => true;
-  if (!apart) {
-    // The labels would overwrite each other: lay over only the second marker's dot, the one
-    // place where the added pixels hold a solid square (a dot of 5 px radius holds 7 × 7 px).
-    const side = Math.max(3, Math.floor(7 * dpr));
-    let sx = 0;
-    let sy = 0;
-    let count = 0;
-    for (let y = 0; y + side <= height; y += 1) {
-      for (let x = 0; x + side <= width; x += 1) {
-        let full = true;
-        for (let v = 0; v < side && full; v += 1) {
-          const row = (y + v) * width + x;
-          for (let u = 0; u < side; u += 1) {
-            if (!mb[row + u]) {
-              full = false;
-              break;
-            }
-          }
-        }
-        if (full) {
-          sx += x + side / 2;
-          sy += y + side / 2;
-          count += 1;
-        }
-      }
-    }
-    if (count === 0) return;
-    const cx = sx / count;
-    const cy = sy / count;
-    const r2 = (7.5 * dpr) ** 2;
-    keep = (x, y) => (x - cx) ** 2 + (y - cy) ** 2 <= r2;
-  }
-  for (let i = 0; i < n; i += 1) {
-    if (!mb[i]) continue;
-    const x = i % width;
-    if (!keep(x, (i - x) / width)) continue;
-    const k = 4 * i;
-    out[k] = db[k];
-    out[k + 1] = db[k + 1];
-    out[k + 2] = db[k + 2];
-    out[k + 3] = db[k + 3];
-  }
-  ctx.putImageData(img, 0, 0);
-}
-
-function designPlot(name, { caption, label, draw, wide = false, small = false, probes = 0 }) {
+function designPlot(name, { caption, label, draw, wide = false, small = false }) {
   const canvas = h('canvas', { 'data-design-plot': name, role: 'img', 'aria-label': label });
   const box = h('div', { className: 'canvas-box' }, canvas);
-  const plot = { name, canvas, box, draw, small, probes: [] };
-  for (let i = 0; i < probes; i += 1) {
-    const p = h('canvas', { className: 'probe', 'aria-hidden': 'true' });
-    plot.probes.push(p);
-    box.appendChild(p);
-  }
+  const plot = { name, canvas, box, draw, small };
   plot.figure = h(
     'figure',
     { className: `view design-plot${wide ? ' wide' : ''}${small ? ' small' : ''}` },
@@ -826,20 +729,15 @@ function plotsFor(state, kind, d, request, run) {
   if (kind === 'achromat') {
     const c = d.wavelength_curve;
     const [a, b] = d.at_design_wavelengths;
-    const inBand = (p) => c.length > 1 && p[0] >= c[0][0] && p[0] <= c[c.length - 1][0];
-    const bothInside = inBand(a) && inBand(b);
     return [designPlot('retardance-wavelength', {
       wide: true,
-      probes: 2,
-      label: `Retardance of the pair against wavelength${c.length ? `, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm` : ''}: ${g(a[1])} waves at ${trimmed(a[0], 3)} nm and ${g(b[1])} waves at ${trimmed(b[0], 3)} nm, the two design points (${bothInside ? 'both marked' : 'only the first is marked: the band does not hold both'}); largest departure from the target over the band ${g(d.max_error_waves, 3)} waves.`,
-      caption: bothInside
-        ? 'Both design wavelengths are marked (the second one unlabelled where the labels would overlap); their values are in the Retardance card.'
-        : 'The band does not hold both design wavelengths: only the first is marked.',
-      draw: (p, dark) => drawTwoMarkers(state, p, {
+      label: `Retardance of the pair against wavelength${c.length ? `, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm` : ''}: ${g(a[1])} waves at ${trimmed(a[0], 3)} nm and ${g(b[1])} waves at ${trimmed(b[0], 3)} nm, the two design points (both marked); largest departure from the target over the band ${g(d.max_error_waves, 3)} waves.`,
+      caption: 'Both design wavelengths are marked (a label is left out where two would overlap); their values are in the Retardance card.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
         title: 'Retardance of the pair against wavelength',
         x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
-        points: c, note: 'design points marked',
-      }, a, b, dark),
+        points: c, current: null, markers: [a, b], note: 'design points marked',
+      }), dark),
     })];
   }
   return [];

@@ -28,9 +28,7 @@ fn axis_unit(unit: &str, largest: f64) -> (f64, String) {
 pub fn plot(series: &Series) -> Scene {
     let mut scene = Scene::new(&series.title, &series.note, Aspect::Free);
     let mut pts: Vec<[f64; 2]> = series.points.clone();
-    if let Some(c) = series.current {
-        pts.push(c);
-    }
+    pts.extend(series.current.iter().chain(&series.markers));
     if pts.is_empty() {
         scene.bounds = Rect {
             x0: 0.0,
@@ -127,13 +125,18 @@ pub fn plot(series: &Series) -> Scene {
     if !run.is_empty() {
         scene.line(run, Role::Curve, vec![], 1.8, "curve");
     }
-    if let Some(c) = series.current {
+    let marked = series
+        .current
+        .iter()
+        .map(|c| (c, "current"))
+        .chain(series.markers.iter().map(|c| (c, "marker")));
+    for (&c, tag) in marked {
         scene.items.push(Item::Dot {
             center: c,
             radius_px: 5.0,
             role: Role::Marker,
             filled: true,
-            tag: "current".into(),
+            tag: tag.into(),
         });
         let right = c[0] < x0 + 0.7 * w;
         let label = format!("{} {y_unit} at {} {x_unit}", sig(c[1] * fy, 4), sig(c[0] * fx, 4));
@@ -281,6 +284,33 @@ mod tests {
         );
         let scene = plot(&separation_vs_wavelength(&sc, 0));
         assert!(scene.texts().iter().any(|t| t == &"wavelength (nm)"));
+    }
+
+    /// A series marks every one of its points, each labelled with its value; placed for a small
+    /// panel, two labels that would collide keep one, never both on top of each other.
+    #[test]
+    fn every_marked_point_of_a_series_is_drawn() {
+        let sc = Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap();
+        let mut s = separation_vs_wavelength(&sc, 0);
+        let (a, b) = (s.points[10], s.points[100]);
+        s.current = None;
+        s.markers = vec![a, b];
+        let scene = plot(&s);
+        let dots: Vec<[f64; 2]> = scene
+            .tagged("marker")
+            .filter_map(|i| match i {
+                Item::Dot { center, .. } => Some(*center),
+                _ => None,
+            })
+            .collect();
+        assert_eq!(dots, vec![a, b]);
+        let label = |p: [f64; 2]| format!("{} mm at {} nm", sig(p[1], 4), sig(p[0], 4));
+        assert!(scene.texts().iter().any(|t| *t == label(a)), "{:?}", scene.texts());
+        assert!(scene.texts().iter().any(|t| *t == label(b)), "{:?}", scene.texts());
+        // Two neighbouring points: their labels would overlap; the placement keeps them apart.
+        s.markers = vec![s.points[50], s.points[51]];
+        let placed = crate::view::label_layout::layout(&plot(&s), 320.0, 200.0, 8.0);
+        assert!(crate::view::label_layout::problems(&placed).is_empty());
     }
 
     #[test]

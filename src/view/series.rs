@@ -42,6 +42,10 @@ pub struct Series {
     pub points: Vec<[f64; 2]>,
     /// The scenario's own operating point, when it is defined.
     pub current: Option<[f64; 2]>,
+    /// Further points to mark and label as the current one (a design's second wavelength, say);
+    /// where two labels would collide the placement pass leaves one out, never a dot.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub markers: Vec<[f64; 2]>,
     /// A remark for the reader (no dispersion, evanescent range, …).
     pub note: String,
 }
@@ -82,6 +86,15 @@ impl Series {
                 Some([xy[0], xy[1]])
             }
         };
+        let markers = match f.get("markers") {
+            None | Some(Value::Null) => Vec::new(),
+            Some(Value::Array(items)) => items
+                .iter()
+                .enumerate()
+                .map(|(i, p)| number_list(&format!("series.markers[{i}]"), p, 2).map(|xy| [xy[0], xy[1]]))
+                .collect::<Result<Vec<_>, _>>()?,
+            Some(_) => return Err(Error::new("series.markers", "must be a list of [x, y] pairs")),
+        };
         f.finish()?;
         Ok(Series {
             title,
@@ -91,6 +104,7 @@ impl Series {
             y_unit,
             points,
             current,
+            markers,
             note,
         })
     }
@@ -140,6 +154,7 @@ fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &
         y_unit: y_unit.into(),
         points: vec![],
         current: None,
+        markers: Vec::new(),
         note: "no crystal in the stack".into(),
     }
 }
@@ -179,6 +194,7 @@ pub fn walkoff_vs_tilt(sc: &Scenario, crystal: usize) -> Result<Series, Error> {
         y_unit: yu.into(),
         points,
         current,
+        markers: Vec::new(),
         note,
     })
 }
@@ -220,6 +236,7 @@ fn wavelength_sweep(
         y_unit: y_unit.into(),
         points,
         current,
+        markers: Vec::new(),
         note,
     }
 }
@@ -292,6 +309,11 @@ mod tests {
         let sc = Scenario::from_json_str(include_str!("../../examples/demo.json")).unwrap();
         let s = separation_vs_wavelength(&sc, 0);
         assert_eq!(Series::from_json(&serde_json::to_value(&s).unwrap()).unwrap(), s);
+        let mut two = s.clone();
+        two.markers = vec![[500.0, 1.0], [600.0, 1.1]];
+        assert_eq!(Series::from_json(&serde_json::to_value(&two).unwrap()).unwrap(), two);
+        let bad = serde_json::json!({"markers": [[1, 2], [3, "x"]]});
+        assert_eq!(Series::from_json(&bad).unwrap_err().field, "series.markers[1][1]");
         let bad = serde_json::json!({"points": [[1, 2], [3]]});
         assert_eq!(Series::from_json(&bad).unwrap_err().field, "series.points[1]");
     }

@@ -255,8 +255,8 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
 }
 
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
-/// points: [[x, y], …], current: [x, y] | null, note}`), for curves computed elsewhere (the design
-/// worker).
+/// points: [[x, y], …], current: [x, y] | null, markers: [[x, y], …] (optional), note}`), for
+/// curves computed elsewhere (the design worker).
 ///
 /// # Errors
 /// `{field: "series", message}` when the text is not such a series.
