@@ -54,9 +54,10 @@ pub use random::Rng;
 
 // Views.
 pub use view::label_layout::{Layout, Placement, layout, layout_with, problems};
+pub use view::palette::Palette;
 pub use view::plot::histogram;
 pub use view::scene::{Aspect, Scene, Viewport};
-pub use view::svg::{Palette, to_svg};
+pub use view::svg::to_svg;
 pub use view::table::render as render_table;
 pub use view::{VIEW_NAMES, build as build_view};
 

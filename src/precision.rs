@@ -95,6 +95,24 @@ pub const DIFF_STEP_LENGTH_FLOOR_MM: f64 = 1e-3;
 /// small for the same reason as the length step.
 pub const DIFF_STEP_TILT_DEG: f64 = 1e-5;
 
+/// Intervals of a waveplate's retardance-against-incidence curve, from 0 to the request's
+/// largest incidence; the acceptance angle is bisected between two of its samples.
+pub const ANGULAR_CURVE_INTERVALS: usize = 200;
+
+/// Intervals of a waveplate's retardance-against-wavelength curve over its band.
+pub const BAND_CURVE_INTERVALS: usize = 120;
+
+/// Intervals of an achromatic pair's curve over its band; its largest error is refined between
+/// two samples, so the grid only has to hold the error's peaks apart.
+pub const ACHROMAT_CURVE_INTERVALS: usize = 160;
+
+/// Decades below the largest mismatch scanned for a recombiner's breaking mismatch (down to
+/// 10⁻⁹ of it), and the scan's samples over them (ten per decade); the break is bisected between
+/// the last good and the first bad sample.
+pub const BREAK_SCAN_DECADES: f64 = 9.0;
+/// See [`BREAK_SCAN_DECADES`].
+pub const BREAK_SCAN_SAMPLES: usize = 90;
+
 /// Asserts that `actual` is within `allowed` (absolute) of `expected` and finite, printing both
 /// values, the difference and `what` (which should name the source of the expected value). The one
 /// comparison every test of a number goes through.

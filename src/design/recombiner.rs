@@ -27,7 +27,8 @@ use crate::optics::trace::trace;
 use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
-    BISECTION_STEPS, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL, DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
+    BISECTION_STEPS, BREAK_SCAN_DECADES, BREAK_SCAN_SAMPLES, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL,
+    DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
 };
 use serde::Serialize;
 use std::f64::consts::{PI, TAU};
@@ -273,8 +274,9 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
             };
             for sign in [1.0, -1.0] {
                 let mut prev = 0.0;
-                for i in 0..=90 {
-                    let d = sign * max * 10f64.powf(-9.0 + 9.0 * i as f64 / 90.0);
+                for i in 0..=BREAK_SCAN_SAMPLES {
+                    let (n, i) = (BREAK_SCAN_SAMPLES as f64, i as f64);
+                    let d = sign * max * 10f64.powf(-BREAK_SCAN_DECADES + BREAK_SCAN_DECADES * i / n);
                     if bad(d) == Some(true) {
                         let (mut lo, mut hi) = (prev, d);
                         for _ in 0..BISECTION_STEPS {

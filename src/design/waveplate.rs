@@ -32,7 +32,8 @@ use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
-    BISECTION_STEPS, GOLDEN_SECTION_STEPS, NO_BIREFRINGENCE, SAME_ANGLE_DEG, SAME_WAVELENGTH_NM, SINGULAR_DETERMINANT,
+    ACHROMAT_CURVE_INTERVALS, ANGULAR_CURVE_INTERVALS, BAND_CURVE_INTERVALS, BISECTION_STEPS, GOLDEN_SECTION_STEPS,
+    NO_BIREFRINGENCE, SAME_ANGLE_DEG, SAME_WAVELENGTH_NM, SINGULAR_DETERMINANT,
 };
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -203,7 +204,7 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
                 .map(|g| g / TAU)
             };
             let g0 = at(0.0).unwrap_or(0.0);
-            let steps = 200;
+            let steps = ANGULAR_CURVE_INTERVALS;
             let curve: Vec<[f64; 2]> = (0..=steps)
                 .filter_map(|i| {
                     let d = max_deg * i as f64 / steps as f64;
@@ -320,9 +321,10 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .ok_or_else(|| Error::new("retardance_waves", "the plate model cannot be evaluated"))?
         / TAU;
     let (lo, hi) = req.band();
-    let wavelength_curve = (0..=120)
+    let n = BAND_CURVE_INTERVALS;
+    let wavelength_curve = (0..=n)
         .filter_map(|i| {
-            let w = lo + (hi - lo) * i as f64 / 120.0;
+            let w = lo + (hi - lo) * i as f64 / n as f64;
             stack_retardance(&plates, w, [0.0, 0.0]).map(|r| [w, r / TAU])
         })
         .collect();
@@ -515,9 +517,10 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     let g1 = total(w1).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let g2 = total(w2).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let (lo, hi) = req.band();
-    let curve: Vec<[f64; 2]> = (0..=160)
+    let n = ACHROMAT_CURVE_INTERVALS;
+    let curve: Vec<[f64; 2]> = (0..=n)
         .filter_map(|i| {
-            let w = lo + (hi - lo) * i as f64 / 160.0;
+            let w = lo + (hi - lo) * i as f64 / n as f64;
             total(w).map(|g| [w, g])
         })
         .collect();

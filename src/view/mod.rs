@@ -12,6 +12,7 @@ use crate::error::Error;
 use crate::view::scene::Scene;
 pub mod end;
 pub mod label_layout;
+pub mod palette;
 pub mod plot;
 pub mod poincare;
 pub mod scene;

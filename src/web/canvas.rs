@@ -6,8 +6,9 @@
 //! pass ([`layout`]), and coloured from the same [`Palette`].
 
 use crate::view::label_layout::layout;
+use crate::view::palette::Palette;
 use crate::view::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
-use crate::view::svg::{MARGIN_PX, Palette};
+use crate::view::svg::MARGIN_PX;
 use wasm_bindgen::JsValue;
 use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
 

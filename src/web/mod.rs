@@ -13,7 +13,8 @@ use crate::contract::result::{TraceResult, trace_scenario as trace};
 use crate::contract::scenario::Scenario;
 use crate::design::statistics as statistics_summary;
 use crate::error::{Error, in_range};
-use crate::view::svg::{self, Palette};
+use crate::view::palette::Palette;
+use crate::view::svg;
 mod canvas;
 #[cfg(feature = "design-worker")]
 use crate::design::{self, displacer as design_displacer, statistics};
@@ -265,7 +266,7 @@ pub fn draw_series(canvas: &HtmlCanvasElement, series_json: &str, dark: bool) ->
     let value: serde_json::Value =
         serde_json::from_str(series_json).map_err(|e| js_error(Error::new("series", format!("not JSON: {e}"))))?;
     let series = crate::view::series::Series::from_json(&value).map_err(js_error)?;
-    let palette = if dark { Palette::dark() } else { Palette::light() };
+    let palette = Palette::for_scheme(dark);
     canvas::draw(&view_plot::plot(&series), canvas, &palette)
 }
 
@@ -287,7 +288,7 @@ pub fn draw_histogram(
     let value: serde_json::Value =
         serde_json::from_str(summary_json).map_err(|e| js_error(Error::new("summary", format!("not JSON: {e}"))))?;
     let summary = statistics_summary::Summary::from_json(&value).map_err(js_error)?;
-    let palette = if dark { Palette::dark() } else { Palette::light() };
+    let palette = Palette::for_scheme(dark);
     canvas::draw(
         &view_plot::histogram(title, quantity, unit, &summary, nominal),
         canvas,
@@ -392,7 +393,7 @@ impl Session {
     /// `{field: "view", message}` for an unknown view; a JavaScript error if the canvas fails.
     pub fn draw(&self, view: &str, canvas: &HtmlCanvasElement, dark: bool) -> Result<(), JsValue> {
         let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
-        let palette = if dark { Palette::dark() } else { Palette::light() };
+        let palette = Palette::for_scheme(dark);
         canvas::draw(&scene, canvas, &palette)
     }
 
@@ -416,7 +417,7 @@ impl Session {
         let width = in_range("width", width, 50.0, 10_000.0).map_err(js_error)?;
         let height = in_range("height", height, 50.0, 10_000.0).map_err(js_error)?;
         let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
-        let palette = if dark { Palette::dark() } else { Palette::light() };
+        let palette = Palette::for_scheme(dark);
         Ok(svg::to_svg(&scene, width, height, &palette))
     }
 }

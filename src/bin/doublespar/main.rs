@@ -263,11 +263,7 @@ fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {
     Ok(match result {
         Err(e) => fail(&e, false),
         Ok(scene) => {
-            let palette = if p.has("--dark") {
-                doublespar::Palette::dark()
-            } else {
-                doublespar::Palette::light()
-            };
+            let palette = doublespar::Palette::for_scheme(p.has("--dark"));
             output::out(&doublespar::to_svg(&scene, size.0, size.1, &palette))
         }
     })
