@@ -12,10 +12,10 @@
 
 use crate::contract::scenario::{ElementKind, Medium as Material, Polarization, Scenario};
 use crate::error::{Error, in_range};
+use crate::optics::geometry::direction;
 use crate::optics::jones::{self, Jones};
 use crate::optics::stack::{Element, InputBeam, Layer, Medium, Slab, Stack};
 use crate::optics::uniaxial::{OpticAxis, Uniaxial};
-use nalgebra::Vector3;
 use num_complex::Complex64;
 use std::f64::consts::TAU;
 
@@ -59,6 +59,7 @@ impl Scenario {
                     Element::Slab(Slab {
                         medium: Medium::Uniaxial(Uniaxial::new(indices, axis)),
                         thickness_mm: plate.thickness_mm,
+                        faces: None,
                     })
                 }
                 ElementKind::Retarder {
@@ -82,12 +83,13 @@ impl Scenario {
             outside_index: self.outside_index,
             losses: self.losses,
             input: InputBeam {
-                direction: Vector3::new(p.sin() * a.cos(), p.sin() * a.sin(), p.cos()),
+                direction: direction(p, a),
                 diameter_mm: self.beam.diameter_mm,
                 jones,
                 stokes,
             },
             layers,
+            screen_mm: 0.0,
         };
         Ok((stack, warnings))
     }
@@ -131,6 +133,7 @@ fn input_state(p: &Polarization) -> (Option<Jones>, [f64; 4]) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use nalgebra::Vector3;
 
     #[test]
     fn axis_validation_names_the_field() {

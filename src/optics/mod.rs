@@ -3,15 +3,19 @@
 //! document and no view; every layer above builds on it.
 
 pub mod beam_overlap;
+pub mod geometry;
 pub mod interface;
 pub mod jones;
 pub mod material;
 pub mod modes;
+pub mod parallel;
+pub mod planar;
 pub mod plate;
 pub mod spots;
 pub mod stack;
 pub mod stokes;
 pub mod sweep;
 pub mod trace;
+pub mod traced;
 pub mod uniaxial;
 pub mod wavelength;

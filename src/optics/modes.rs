@@ -33,7 +33,7 @@
 
 use crate::optics::uniaxial::Uniaxial;
 use crate::precision::DEGENERATE_DIRECTION;
-use nalgebra::Vector3;
+use nalgebra::{Matrix3, Vector3};
 use num_complex::Complex64;
 
 /// Complex 3-vector.
@@ -154,6 +154,21 @@ impl Mode {
     /// Unit ray (energy) direction, or `None` for an evanescent mode.
     pub fn ray_direction(&self) -> Option<Vector3<f64>> {
         self.ray
+    }
+
+    /// The same mode seen in a frame rotated by `r` (every vector v becomes r·v). A mode solved
+    /// in a face's own frame is brought back to the lab frame this way; its normalization (unit
+    /// power flux across that face) is kept.
+    pub fn rotated(&self, r: &Matrix3<f64>) -> Mode {
+        let rc = r.map(Complex64::from);
+        Mode {
+            q: rc * self.q,
+            e: rc * self.e,
+            h: rc * self.h,
+            d: rc * self.d,
+            ray: self.ray.map(|v| r * v),
+            ..*self
+        }
     }
 }
 

@@ -61,7 +61,8 @@ mod tests {
     use super::*;
     use crate::optics::interface::Losses;
     use crate::optics::stack::{Element, InputBeam, Layer, Medium, Slab, Stack};
-    use crate::optics::trace::{LayerTrace, trace};
+    use crate::optics::trace::trace;
+    use crate::optics::traced::LayerTrace;
     use nalgebra::Vector3;
 
     /// Independent path through the code: the stack trace of a one-slab stack at oblique
@@ -87,8 +88,10 @@ mod tests {
                 element: Element::Slab(Slab {
                     medium: Medium::Uniaxial(Uniaxial::new(indices, axis)),
                     thickness_mm: 7.0,
+                    faces: None,
                 }),
             }],
+            screen_mm: 0.0,
         };
         let traced = trace(&stack);
         let LayerTrace::Slab { modes, shifts_mm, .. } = &traced.layers[0] else {

@@ -20,6 +20,7 @@
 //! - *stratified layers* (a liquid-crystal cell): [`Element`] gains a variant holding a list of
 //!   thin uniform sublayers, traced as one element with its own transfer matrix.
 
+use crate::optics::geometry::Plane;
 use crate::optics::interface::Losses;
 use crate::optics::jones::{Jones, JonesMatrix};
 use crate::optics::uniaxial::Uniaxial;
@@ -33,13 +34,61 @@ pub enum Medium {
     Uniaxial(Uniaxial),
 }
 
-/// A plate of an anisotropic medium between two faces parallel to the plane z = 0.
+/// How a slab's front face meets what comes before it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Contact {
+    /// The outside medium: a gap, or a vanishing film of it.
+    Outside,
+    /// A vanishing isotropic film of this index (a cement layer).
+    Film(f64),
+    /// The previous crystal touches this one directly.
+    Direct,
+}
+
+/// A circular clear aperture, as seen along the element's (mounted) z axis.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Aperture {
+    /// The element's axis point, mm.
+    pub centre: Vector3<f64>,
+    /// The element's z axis after mounting (unit).
+    pub axis: Vector3<f64>,
+    /// Radius, mm.
+    pub radius_mm: f64,
+}
+
+impl Aperture {
+    /// Whether `point` lies inside the aperture (its distance from the axis line at most the
+    /// radius, with rounding of 1e-12 of it allowed).
+    pub fn holds(&self, point: Vector3<f64>) -> bool {
+        let d = point - self.centre;
+        let off_axis = d - self.axis * d.dot(&self.axis);
+        off_axis.norm() <= self.radius_mm * (1.0 + 1e-12)
+    }
+}
+
+/// A slab's faces placed in the lab frame, mount included.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Faces {
+    /// The front face.
+    pub front: Plane,
+    /// The back face.
+    pub back: Plane,
+    /// The clear aperture, if limited.
+    pub aperture: Option<Aperture>,
+    /// How the front face meets what is before it.
+    pub contact: Contact,
+}
+
+/// A plate of an anisotropic medium.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Slab {
     /// What the plate is made of.
     pub medium: Medium,
-    /// Thickness along z, mm.
+    /// Thickness along the element's z axis through its axis point, mm.
     pub thickness_mm: f64,
+    /// Its faces when placed at any angle; `None` for the plate of version 1: both faces
+    /// perpendicular to z at the stack's running z, no mount, no aperture, outside medium around.
+    pub faces: Option<Faces>,
 }
 
 /// One element of the stack.
@@ -87,12 +136,24 @@ pub struct Stack {
     pub input: InputBeam,
     /// The elements in the order the light meets them.
     pub layers: Vec<Layer>,
+    /// Distance from the last element's back axis point to the observation plane, mm.
+    pub screen_mm: f64,
 }
 
 impl Stack {
-    /// The tangential wave vector q_t = n (u_x, u_y) shared by every wave in the stack.
+    /// The tangential wave vector q_t = n (u_x, u_y) shared by every wave in a stack of
+    /// plane-parallel plates.
     pub fn tangential(&self) -> [f64; 2] {
         let u = self.input.direction;
         [self.outside_index * u.x, self.outside_index * u.y]
+    }
+
+    /// Whether every face is perpendicular to z (no slab has placed faces): the version-1
+    /// geometry, traced with one shared tangential wave vector.
+    pub fn is_plane_parallel(&self) -> bool {
+        self.layers.iter().all(|l| match l.element {
+            Element::Slab(s) => s.faces.is_none(),
+            Element::Ideal(_) => true,
+        })
     }
 }

@@ -64,6 +64,11 @@ impl OpticAxis {
     pub fn unit(&self) -> Vector3<f64> {
         self.c
     }
+
+    /// The axis seen in a frame rotated by the rotation matrix `r` (c becomes r·c).
+    pub fn rotated(&self, r: &Matrix3<f64>) -> OpticAxis {
+        OpticAxis { c: r * self.c }
+    }
 }
 
 /// A uniaxial medium: its principal indices at one wavelength and its optic axis.

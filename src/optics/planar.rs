@@ -1,0 +1,962 @@
+//! The general trace: faces at any angle, wedges, tilted and mounted plates, cemented and
+//! directly contacted pairs, total internal reflection and apertures.
+//!
+//! Physics (CONVENTIONS.md, version 2). Each ray is a plane wave of one mode with a real wave
+//! vector q = k/k0 and a ray (Poynting) direction S. At a face of unit normal n:
+//! - the face is solved in its own frame (z along n, see [`crate::optics::geometry`]): the
+//!   tangential part of q is conserved, both modes of the medium beyond are found at it (the
+//!   uniaxial closed form of [`crate::optics::modes`], with the optic axis rotated into the
+//!   frame), the root whose energy flows away from the face is taken, and the 4×4 boundary
+//!   problem of [`crate::optics::interface`] gives power-normalized transmission and reflection;
+//! - ideal faces take the lossless part of the transmission, uncoated faces the bare one;
+//! - a mode beyond the face that is evanescent reflects what would have gone into it: when that
+//!   happens (total internal reflection of one or both modes) the reflected light is reported as
+//!   rejected rays, one per reflected mode, with the reflected direction, point and power; without
+//!   it, light reflected at an uncoated face is counted in the element's reflected power, as in
+//!   version 1;
+//! - a ray follows S to the next face; one that meets a face outside the element's aperture is
+//!   rejected there.
+//!
+//! Amplitudes are power amplitudes: a ray's power is |a|² (or tr(M C Mᴴ) for partly polarized
+//! input), unchanged between faces. In an isotropic medium a ray carries a 2×2 matrix M from the
+//! input Jones vector to its field on its own basis (e1, e2) of [`crate::optics::modes::beam_basis`];
+//! in a crystal, one row: its mode's amplitude. The phase is the eikonal Σ k0 q·Δr along the ray;
+//! at the screen it is referred to the screen's axis point (0, 0, z_screen) by subtracting
+//! k0 n u_t·r_t, the plane-wave phase across the screen, so that for plane-parallel plates it is
+//! exactly version 1's Σ k0 q_z L (tested against [`crate::optics::trace`]).
+//!
+//! Vanishing films (the default "air" contact and cement) are crossed as two faces at one point:
+//! into the film and out of it, with no phase in between and no multiple reflection, so that total
+//! internal reflection at an air gap or a cement layer rejects a mode as in a prism polarizer.
+
+use crate::optics::geometry::{Plane, face_frame};
+use crate::optics::interface::{CMatrix2, Losses, bare_face, lossless_part};
+use crate::optics::jones::JonesMatrix;
+use crate::optics::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
+use crate::optics::spots::{coherency, power_of};
+use crate::optics::stack::{Contact, Element, Faces, Medium, Slab, Stack};
+use crate::optics::traced::{LayerTrace, Path, RejectReason, Rejected, Side, Trace};
+use crate::optics::uniaxial::Uniaxial;
+use crate::precision::DEGENERATE_DIRECTION;
+use nalgebra::{Matrix3, RowVector2, Vector3};
+use num_complex::Complex64;
+
+/// What light meets at a face: an isotropic body of some index, or a crystal.
+#[derive(Debug, Clone, Copy)]
+enum Body {
+    Isotropic(f64),
+    Crystal(Uniaxial),
+}
+
+impl Body {
+    /// Both modes (face frame) at tangential wave vector `qt`, the face frame being `frame`.
+    fn modes(&self, frame: &Matrix3<f64>, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+        match *self {
+            Body::Isotropic(n) => isotropic_modes(n, qt, travel),
+            Body::Crystal(c) => {
+                let local = Uniaxial::new(c.indices, c.axis.rotated(&frame.transpose()));
+                crystal_modes(&local, qt, travel)
+            }
+        }
+    }
+}
+
+/// Where a ray's light is.
+#[derive(Debug, Clone)]
+enum Carrier {
+    /// In an isotropic body of index `n`, along `u`: field on the basis of `u` is M·J_in.
+    Free { n: f64, u: Vector3<f64>, m: JonesMatrix },
+    /// In a crystal, in one mode (lab frame): its amplitude is `amp`·J_in.
+    Bound { mode: Mode, amp: RowVector2<Complex64> },
+}
+
+impl Carrier {
+    /// Normalized wave vector (real: rays are propagating waves).
+    fn q(&self) -> Vector3<f64> {
+        match self {
+            Carrier::Free { n, u, .. } => u * *n,
+            Carrier::Bound { mode, .. } => mode.wave_vector(),
+        }
+    }
+
+    /// Direction of travel (of energy).
+    fn direction(&self) -> Vector3<f64> {
+        match self {
+            Carrier::Free { u, .. } => *u,
+            Carrier::Bound { mode, .. } => mode.ray_direction().unwrap_or_else(|| mode.wave_vector().normalize()),
+        }
+    }
+
+    /// Power for an input of Stokes vector `s_in`.
+    fn power(&self, s_in: &[f64; 4]) -> f64 {
+        match self {
+            Carrier::Free { m, .. } => power_of(m, s_in),
+            Carrier::Bound { amp, .. } => (amp * coherency(s_in) * amp.adjoint())[(0, 0)].re,
+        }
+    }
+
+    /// Multiplies the amplitude by e^{iφ}.
+    fn advance_phase(&mut self, phi: f64) {
+        let f = Complex64::from_polar(1.0, phi);
+        match self {
+            Carrier::Free { m, .. } => *m *= f,
+            Carrier::Bound { amp, .. } => *amp *= f,
+        }
+    }
+}
+
+/// One ray in flight.
+#[derive(Debug, Clone)]
+struct Flight {
+    label: String,
+    at: Vector3<f64>,
+    phase: f64,
+    points: Vec<[f64; 3]>,
+    carrier: Carrier,
+    /// Set while the ray waits at a slab's back face for its exit to be decided (by the next
+    /// element's contact): the slab's index and body.
+    pending: Option<(usize, Body)>,
+    /// Where it left the last face it crossed.
+    exit: Vector3<f64>,
+}
+
+fn arr(v: Vector3<f64>) -> [f64; 3] {
+    [v.x, v.y, v.z]
+}
+
+/// Unit real part of a (propagating) field vector.
+fn unit_field(mode: &Mode) -> Vector3<Complex64> {
+    let n = mode.e.norm();
+    if n > 0.0 { mode.e / Complex64::from(n) } else { mode.e }
+}
+
+/// The result of one face crossing.
+struct Crossed {
+    /// Rays beyond the face, with the letter of their mode ('o'/'e') when beyond is a crystal.
+    onward: Vec<(Carrier, Option<char>)>,
+    /// Rays reflected back by total internal reflection: (direction, power share weight).
+    reflected: Vec<(Vector3<f64>, f64)>,
+    /// Whether a mode beyond the face is evanescent (total internal reflection).
+    tir: bool,
+}
+
+/// The general tracer's state: the stack and the input's coherency, shared by every crossing.
+struct Tracer<'a> {
+    stack: &'a Stack,
+    k0: f64,
+    s_in: [f64; 4],
+}
+
+impl Tracer<'_> {
+    /// Crosses a face of unit normal `normal` from `from` (the carrier's body) into `into`.
+    fn cross(&self, carrier: &Carrier, from: Body, into: Body, normal: Vector3<f64>) -> Crossed {
+        let frame = face_frame(normal);
+        let q_face = frame.transpose() * carrier.q();
+        let qt = [q_face.x, q_face.y];
+        let a_fwd = from.modes(&frame, qt, Travel::Forward);
+        let a_back = from.modes(&frame, qt, Travel::Backward);
+        let b_fwd = into.modes(&frame, qt, Travel::Forward);
+        let lab = |m: &Mode| m.rotated(&frame);
+        let (a_fwd_lab, b_lab) = (a_fwd.map(|m| lab(&m)), b_fwd.map(|m| lab(&m)));
+        // The carrier as amplitudes of the incident modes (rows), each a functional of J_in.
+        let mut a_in = CMatrix2::zeros();
+        for (j, mode) in a_fwd_lab.iter().enumerate() {
+            if !mode.propagating {
+                continue;
+            }
+            let ej = unit_field(mode);
+            match carrier {
+                Carrier::Free { u, m, .. } => {
+                    let (e1, e2) = beam_basis(*u);
+                    let p = [e1, e2].map(|e| ej.dot(&e.map(Complex64::from)).conj());
+                    for c in 0..2 {
+                        a_in[(j, c)] = p[0] * m[(0, c)] + p[1] * m[(1, c)];
+                    }
+                }
+                Carrier::Bound { mode: own, amp } => {
+                    // The ray is one plane wave: it is the incident mode of its own kind, or, where
+                    // the two modes share their wave vector (along an optic axis), its projection
+                    // on both. Modes of different wave vectors are not orthogonal in E.
+                    let shared = (a_fwd_lab[0].q - a_fwd_lab[1].q).norm() <= DEGENERATE_DIRECTION;
+                    let p = ej.dotc(&unit_field(own));
+                    let p = if shared {
+                        p
+                    } else if mode.kind == own.kind && p.norm() > 0.0 {
+                        p / Complex64::from(p.norm())
+                    } else {
+                        Complex64::ZERO
+                    };
+                    for c in 0..2 {
+                        a_in[(j, c)] = p * amp[c];
+                    }
+                }
+            }
+        }
+        let Some(coupling) = bare_face(&a_fwd, &a_back, &b_fwd) else {
+            return Crossed {
+                onward: Vec::new(),
+                reflected: Vec::new(),
+                tir: false,
+            };
+        };
+        let t_prop = coupling.propagating_t();
+        let t = match self.stack.losses {
+            Losses::Ideal => lossless_part(&t_prop),
+            Losses::Uncoated => t_prop,
+        };
+        let out = t * a_in;
+        let tir = b_fwd.iter().any(|m| !m.propagating);
+        let mut onward = Vec::new();
+        match into {
+            Body::Isotropic(n) => {
+                if let Some(u) = b_lab[0].ray_direction() {
+                    let (e1, e2) = beam_basis(u);
+                    let mut m = JonesMatrix::zeros();
+                    for (k, mode) in b_lab.iter().enumerate() {
+                        let ek = unit_field(mode);
+                        let d = [e1, e2].map(|e| e.map(Complex64::from).dot(&ek));
+                        for i in 0..2 {
+                            for c in 0..2 {
+                                m[(i, c)] += d[i] * out[(k, c)];
+                            }
+                        }
+                    }
+                    onward.push((Carrier::Free { n, u, m }, None));
+                }
+            }
+            Body::Crystal(_) => {
+                for (k, mode) in b_lab.iter().enumerate() {
+                    if mode.propagating {
+                        let letter = if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' };
+                        let amp = RowVector2::new(out[(k, 0)], out[(k, 1)]);
+                        onward.push((Carrier::Bound { mode: *mode, amp }, Some(letter)));
+                    }
+                }
+            }
+        }
+        let reflected = if tir {
+            let r_out = coupling.r * a_in;
+            let c = coherency(&self.s_in);
+            a_back
+                .iter()
+                .enumerate()
+                .filter(|(_, m)| m.propagating)
+                .filter_map(|(k, m)| {
+                    let row = RowVector2::new(r_out[(k, 0)], r_out[(k, 1)]);
+                    let w = (row * c * row.adjoint())[(0, 0)].re;
+                    lab(m).ray_direction().map(|d| (d, w))
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        Crossed { onward, reflected, tir }
+    }
+
+    /// Moves a ray along its direction to `plane`, adding the eikonal phase; false when it
+    /// cannot get there (it runs parallel to the plane or away from it).
+    fn travel(&self, f: &mut Flight, plane: &Plane) -> bool {
+        let dir = f.carrier.direction();
+        let Some(s) = plane.meet(f.at, dir) else {
+            return false;
+        };
+        let step = dir * s;
+        let phi = self.k0 * f.carrier.q().dot(&step);
+        f.carrier.advance_phase(phi);
+        f.phase += phi;
+        f.at += step;
+        f.points.push(arr(f.at));
+        true
+    }
+}
+
+/// Bookkeeping of one element while rays pass.
+#[derive(Debug, Clone, Copy, Default)]
+struct Tally {
+    power_in: f64,
+    power_out: f64,
+    reflected: f64,
+}
+
+/// Traces a stack whose faces may lie at any angle (every stack can be traced so; plane-parallel
+/// stacks take [`crate::optics::trace::trace`], which agrees with this to rounding).
+pub fn trace_planar(stack: &Stack) -> Trace {
+    let n_out = stack.outside_index;
+    let tracer = Tracer {
+        stack,
+        k0: stack.wavelength.k0_per_mm(),
+        s_in: stack.input.stokes,
+    };
+    let outside = Body::Isotropic(n_out);
+    let mut flights = vec![Flight {
+        label: String::new(),
+        at: Vector3::zeros(),
+        phase: 0.0,
+        points: vec![[0.0, 0.0, 0.0]],
+        carrier: Carrier::Free {
+            n: n_out,
+            u: stack.input.direction,
+            m: JonesMatrix::identity(),
+        },
+        pending: None,
+        exit: Vector3::zeros(),
+    }];
+    let mut rejected: Vec<Rejected> = Vec::new();
+    let mut tallies = vec![Tally::default(); stack.layers.len()];
+    let mut layers_out = Vec::with_capacity(stack.layers.len());
+    let mut z = 0.0;
+    for (idx, layer) in stack.layers.iter().enumerate() {
+        z += layer.gap_mm;
+        let contact = match layer.element {
+            Element::Slab(Slab { faces: Some(f), .. }) => f.contact,
+            _ => Contact::Outside,
+        };
+        // Rays waiting at the previous slab's back face leave it now, into whatever this
+        // element's contact puts there.
+        let into_next = match (contact, layer.element) {
+            (Contact::Direct, Element::Slab(s)) => Some(body_of(&s)),
+            (Contact::Film(n), _) => Some(Body::Isotropic(n)),
+            _ => None,
+        };
+        if into_next.is_none() {
+            flights = leave_pending(&tracer, flights, outside, &mut rejected, &mut tallies);
+        }
+        let s_in = &tracer.s_in;
+        tallies[idx].power_in = flights.iter().map(|f| f.carrier.power(s_in)).sum();
+        match layer.element {
+            Element::Ideal(jm) => {
+                let plane = Plane::across_z(z);
+                let mut next = Vec::with_capacity(flights.len());
+                for mut f in flights {
+                    if !tracer.travel(&mut f, &plane) {
+                        reject_here(&mut rejected, &f, idx, Side::Front, RejectReason::OutsideAperture, s_in);
+                        continue;
+                    }
+                    if let Carrier::Free { m, .. } = &mut f.carrier {
+                        *m = jm * *m;
+                    }
+                    next.push(f);
+                }
+                flights = next;
+                tallies[idx].power_out = flights.iter().map(|f| f.carrier.power(s_in)).sum();
+                layers_out.push(LayerTrace::Ideal {
+                    power_in: tallies[idx].power_in,
+                    power_out: tallies[idx].power_out,
+                });
+            }
+            Element::Slab(slab) => {
+                let faces = slab.faces.unwrap_or_else(|| plain_faces(z, slab.thickness_mm));
+                let body = body_of(&slab);
+                let mut next = Vec::with_capacity(flights.len() * 2);
+                for f in flights {
+                    enter(
+                        &tracer,
+                        f,
+                        (idx, body, &faces, into_next),
+                        &mut next,
+                        &mut rejected,
+                        &mut tallies,
+                    );
+                }
+                // Through the slab to its back face; the exit waits for the next element.
+                flights = Vec::with_capacity(next.len());
+                for mut f in next {
+                    if !tracer.travel(&mut f, &faces.back) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
+                        reject_here(&mut rejected, &f, idx, Side::Back, RejectReason::OutsideAperture, s_in);
+                        continue;
+                    }
+                    f.pending = Some((idx, body));
+                    flights.push(f);
+                }
+                let modes = front_modes(&tracer, &faces, body);
+                layers_out.push(LayerTrace::Slab {
+                    modes,
+                    shifts_mm: [[0.0; 2]; 2],
+                    z_front_mm: z,
+                    z_back_mm: z + slab.thickness_mm,
+                    power_in: tallies[idx].power_in,
+                    power_out: 0.0,
+                    faces_solved: true,
+                });
+                z += slab.thickness_mm;
+            }
+        }
+    }
+    flights = leave_pending(&tracer, flights, outside, &mut rejected, &mut tallies);
+    // Per slab, what went on past it: its input less what its faces reflected and what it
+    // rejected.
+    for (idx, lt) in layers_out.iter_mut().enumerate() {
+        if let LayerTrace::Slab { power_out, .. } = lt {
+            let lost: f64 = rejected.iter().filter(|r| r.element == idx).map(|r| r.power).sum();
+            *power_out = tallies[idx].power_in - tallies[idx].reflected - lost;
+        }
+    }
+    let screen = Plane::across_z(z + stack.screen_mm);
+    let mut paths = Vec::with_capacity(flights.len());
+    for mut f in flights {
+        let exit = f.exit;
+        if !tracer.travel(&mut f, &screen) {
+            let last = stack.layers.len().saturating_sub(1);
+            reject_here(
+                &mut rejected,
+                &f,
+                last,
+                Side::Back,
+                RejectReason::OutsideAperture,
+                &tracer.s_in,
+            );
+            continue;
+        }
+        let Carrier::Free { n, u, m } = f.carrier else { continue };
+        // Refer the phase to the screen's axis point (module header).
+        let across = tracer.k0 * n * (u.x * f.at.x + u.y * f.at.y);
+        paths.push(Path {
+            label: f.label,
+            matrix: m * Complex64::from_polar(1.0, -across),
+            exit_mm: [exit.x, exit.y],
+            phase_rad: f.phase - across,
+            points_mm: f.points,
+            direction: u,
+            exit_point_mm: arr(exit),
+            screen_mm: [f.at.x, f.at.y],
+        });
+    }
+    Trace {
+        paths,
+        layers: layers_out,
+        exit_z_mm: z,
+        rejected,
+        reflected: tallies.iter().map(|t| t.reflected).collect(),
+    }
+}
+
+/// The faces of a version-1 plate whose front face lies at z.
+fn plain_faces(z: f64, thickness_mm: f64) -> Faces {
+    Faces {
+        front: Plane::across_z(z),
+        back: Plane::across_z(z + thickness_mm),
+        aperture: None,
+        contact: Contact::Outside,
+    }
+}
+
+fn body_of(slab: &Slab) -> Body {
+    let Medium::Uniaxial(c) = slab.medium;
+    Body::Crystal(c)
+}
+
+/// The slab's two modes just inside its front face for the incident beam (lab frame): what the
+/// element reports for its modes.
+fn front_modes(tracer: &Tracer, faces: &Faces, body: Body) -> [Mode; 2] {
+    let frame = face_frame(faces.front.normal);
+    let q = frame.transpose() * (tracer.stack.input.direction * tracer.stack.outside_index);
+    body.modes(&frame, [q.x, q.y], Travel::Forward)
+        .map(|m| m.rotated(&frame))
+}
+
+/// Records `f` as rejected at element `idx` with its whole power.
+fn reject_here(out: &mut Vec<Rejected>, f: &Flight, idx: usize, side: Side, reason: RejectReason, s_in: &[f64; 4]) {
+    out.push(Rejected {
+        label: f.label.clone(),
+        element: idx,
+        face: side,
+        reason,
+        power: f.carrier.power(s_in),
+        point_mm: arr(f.at),
+        direction: arr(f.carrier.direction()),
+    });
+}
+
+/// Crosses one face for one ray: the onward rays, with total internal reflection and face losses
+/// booked on element `idx` at `side`.
+fn cross_booked(
+    tracer: &Tracer,
+    f: Flight,
+    (from, into, normal): (Body, Body, Vector3<f64>),
+    (idx, side): (usize, Side),
+    rejected: &mut Vec<Rejected>,
+    tallies: &mut [Tally],
+) -> Vec<Flight> {
+    let s_in = &tracer.s_in;
+    let p_in = f.carrier.power(s_in);
+    let crossed = tracer.cross(&f.carrier, from, into, normal);
+    let mut onward = Vec::with_capacity(crossed.onward.len());
+    let mut p_out = 0.0;
+    for (carrier, letter) in crossed.onward {
+        p_out += carrier.power(s_in);
+        let mut label = f.label.clone();
+        label.extend(letter);
+        onward.push(Flight {
+            label,
+            carrier,
+            pending: None,
+            exit: f.at,
+            points: f.points.clone(),
+            ..f.clone()
+        });
+    }
+    let lost = (p_in - p_out).max(0.0);
+    let weights: f64 = crossed.reflected.iter().map(|r| r.1).sum();
+    if crossed.tir && !crossed.reflected.is_empty() {
+        for (dir, w) in &crossed.reflected {
+            let share = if weights > 0.0 {
+                w / weights
+            } else {
+                1.0 / crossed.reflected.len() as f64
+            };
+            rejected.push(Rejected {
+                label: f.label.clone(),
+                element: idx,
+                face: side,
+                reason: RejectReason::TotalInternalReflection,
+                power: lost * share,
+                point_mm: arr(f.at),
+                direction: arr(*dir),
+            });
+        }
+    } else {
+        tallies[idx].reflected += lost;
+    }
+    onward
+}
+
+/// Takes a ray into slab `idx`: from the outside medium (travelling to the front face) or, for
+/// a ray waiting at the previous slab's back face, through the contact `into_next` (a film or
+/// this slab directly).
+fn enter(
+    tracer: &Tracer,
+    mut f: Flight,
+    (idx, body, faces, into_next): (usize, Body, &Faces, Option<Body>),
+    next: &mut Vec<Flight>,
+    rejected: &mut Vec<Rejected>,
+    tallies: &mut [Tally],
+) {
+    let s_in = &tracer.s_in;
+    let normal = faces.front.normal;
+    let outside = Body::Isotropic(tracer.stack.outside_index);
+    // Where the light comes from: the previous slab through a contact (whose interface belongs
+    // to this slab's front face), or the outside medium, crossed up to the front face.
+    let (mut from, film) = match f.pending.take() {
+        Some((_, prev_body)) => (prev_body, into_next.filter(|b| matches!(b, Body::Isotropic(_)))),
+        None => {
+            if !tracer.travel(&mut f, &faces.front) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
+                reject_here(rejected, &f, idx, Side::Front, RejectReason::OutsideAperture, s_in);
+                return;
+            }
+            (outside, None)
+        }
+    };
+    let mut arrived = vec![f];
+    for into in film.into_iter().chain([body]) {
+        arrived = arrived
+            .into_iter()
+            .flat_map(|g| cross_booked(tracer, g, (from, into, normal), (idx, Side::Front), rejected, tallies))
+            .collect();
+        from = into;
+    }
+    next.extend(arrived);
+}
+
+/// Rays waiting at a slab's back face leave it into `into` (the outside medium).
+fn leave_pending(
+    tracer: &Tracer,
+    flights: Vec<Flight>,
+    into: Body,
+    rejected: &mut Vec<Rejected>,
+    tallies: &mut [Tally],
+) -> Vec<Flight> {
+    let mut out = Vec::with_capacity(flights.len());
+    for mut f in flights {
+        let Some((idx, body)) = f.pending.take() else {
+            out.push(f);
+            continue;
+        };
+        let normal = match tracer.stack.layers[idx].element {
+            Element::Slab(Slab { faces: Some(faces), .. }) => faces.back.normal,
+            _ => Vector3::z(),
+        };
+        out.extend(cross_booked(
+            tracer,
+            f,
+            (body, into, normal),
+            (idx, Side::Back),
+            rejected,
+            tallies,
+        ));
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::geometry::direction;
+    use crate::optics::jones;
+    use crate::optics::material::Indices;
+    use crate::optics::parallel::trace_parallel;
+    use crate::optics::stack::{Aperture, InputBeam, Layer};
+    use crate::optics::uniaxial::OpticAxis;
+    use crate::optics::wavelength::Wavelength;
+    use crate::precision::assert_close;
+    use std::f64::consts::FRAC_PI_4;
+
+    fn crystal(no: f64, ne: f64, tilt_deg: f64, az_deg: f64) -> Medium {
+        Medium::Uniaxial(Uniaxial::new(
+            Indices::new(no, ne).unwrap(),
+            OpticAxis::from_angles(tilt_deg.to_radians(), az_deg.to_radians()),
+        ))
+    }
+
+    fn stack(polar_deg: f64, azimuth_deg: f64, losses: Losses, layers: Vec<Layer>) -> Stack {
+        let j = jones::linear(0.3);
+        Stack {
+            wavelength: Wavelength::from_nm(633.0).unwrap(),
+            outside_index: 1.0,
+            losses,
+            input: InputBeam {
+                direction: direction(polar_deg.to_radians(), azimuth_deg.to_radians()),
+                diameter_mm: 1.0,
+                jones: Some(j),
+                stokes: jones::stokes(&j),
+            },
+            layers,
+            screen_mm: 0.0,
+        }
+    }
+
+    fn slab(medium: Medium, thickness_mm: f64, gap_mm: f64, faces: Option<Faces>) -> Layer {
+        Layer {
+            gap_mm,
+            element: Element::Slab(Slab {
+                medium,
+                thickness_mm,
+                faces,
+            }),
+        }
+    }
+
+    /// The same stack with every slab's faces written out as planes: traced face by face.
+    fn placed(st: &Stack) -> Stack {
+        let mut out = st.clone();
+        let mut z = 0.0;
+        for layer in &mut out.layers {
+            z += layer.gap_mm;
+            if let Element::Slab(s) = &mut layer.element {
+                s.faces = Some(plain_faces(z, s.thickness_mm));
+                z += s.thickness_mm;
+            }
+        }
+        out
+    }
+
+    fn total_power(t: &Trace, s_in: &[f64; 4]) -> f64 {
+        let rays: f64 = t.paths.iter().map(|p| power_of(&p.matrix, s_in)).sum();
+        let rejected: f64 = t.rejected.iter().map(|r| r.power).sum();
+        rays + rejected + t.reflected.iter().sum::<f64>()
+    }
+
+    /// Independent path through the code: version 1's shared-tangential trace and the face-by-face
+    /// trace agree on every ray of plane-parallel stacks (oblique, uncoated, with gaps and ideal
+    /// elements), to rounding.
+    #[test]
+    fn plane_parallel_stacks_trace_alike_both_ways() {
+        let calcite = crystal(1.6557, 1.4849, 45.0, 0.0);
+        let quartz = crystal(1.5426, 1.5517, 90.0, 30.0);
+        for losses in [Losses::Ideal, Losses::Uncoated] {
+            for (polar, az) in [(0.0, 0.0), (12.0, 35.0), (40.0, -100.0)] {
+                let st = stack(
+                    polar,
+                    az,
+                    losses,
+                    vec![
+                        slab(calcite, 2.0, 0.5, None),
+                        Layer {
+                            gap_mm: 1.0,
+                            element: Element::Ideal(jones::retarder(1.1, 0.4)),
+                        },
+                        slab(quartz, 0.7, 0.0, None),
+                        slab(calcite, 1.3, 2.0, None),
+                    ],
+                );
+                let a = trace_parallel(&st);
+                let b = trace_planar(&placed(&st));
+                assert_eq!(a.paths.len(), b.paths.len());
+                for (p, q) in a.paths.iter().zip(&b.paths) {
+                    assert_eq!(p.label, q.label);
+                    for k in 0..2 {
+                        assert_close(q.exit_mm[k], p.exit_mm[k], 1e-12, 1.0, "exit point");
+                    }
+                    assert!(
+                        (p.matrix - q.matrix).norm() < 1e-11,
+                        "{polar} {az} {losses:?} {}: {} vs {}, phase {} vs {}",
+                        p.label,
+                        p.matrix,
+                        q.matrix,
+                        p.phase_rad,
+                        q.phase_rad
+                    );
+                    assert!((p.direction - q.direction).norm() < 1e-14);
+                }
+                assert_close(total_power(&b, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
+            }
+        }
+    }
+
+    /// Snell's law and the textbook lateral shift of a tilted plate (no = ne: an isotropic plate):
+    /// d = L sin θ (1 − cos θ / √(n² − sin² θ)) for a plate of normal thickness L at incidence θ
+    /// (Hecht, Optics, §5.2, from memory); the ray leaves parallel to itself.
+    #[test]
+    fn a_tilted_isotropic_plate_shifts_the_beam_by_the_textbook_amount() {
+        let n = 1.5;
+        let theta = 25f64.to_radians();
+        let normal = direction(theta, 0.0);
+        let l = 3.0;
+        // Faces through the axis points z = 1 and z = 1 + L/cos θ: normal thickness L.
+        let faces = Faces {
+            front: Plane {
+                normal,
+                point: Vector3::new(0.0, 0.0, 1.0),
+            },
+            back: Plane {
+                normal,
+                point: Vector3::new(0.0, 0.0, 1.0 + l / theta.cos()),
+            },
+            aperture: None,
+            contact: Contact::Outside,
+        };
+        let st = stack(
+            0.0,
+            0.0,
+            Losses::Ideal,
+            vec![slab(crystal(n, n, 0.0, 0.0), l / theta.cos(), 1.0, Some(faces))],
+        );
+        let t = trace_planar(&st);
+        assert_eq!(t.paths.len(), 2, "two degenerate modes, two rays");
+        let expected = l * theta.sin() * (1.0 - theta.cos() / (n * n - theta.sin().powi(2)).sqrt());
+        for p in &t.paths {
+            assert!((p.direction - Vector3::z()).norm() < 1e-14, "{}", p.direction);
+            // The beam travels along z; the ray bends toward the face normal, which leans to +x.
+            assert_close(p.exit_mm[0], expected, 1e-12, 0.0, "lateral shift of a tilted plate");
+        }
+        assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
+    }
+
+    /// A wedge of apex angle A at normal incidence deviates a beam by asin(n sin A) − A (exact
+    /// prism formula, Hecht §5.5, from memory).
+    #[test]
+    fn an_isotropic_wedge_deviates_by_the_prism_formula() {
+        let n = 1.6;
+        let apex = 10f64.to_radians();
+        let faces = Faces {
+            front: Plane::across_z(0.0),
+            back: Plane {
+                normal: direction(apex, 0.0),
+                point: Vector3::new(0.0, 0.0, 2.0),
+            },
+            aperture: Some(Aperture {
+                centre: Vector3::zeros(),
+                axis: Vector3::z(),
+                radius_mm: 5.0,
+            }),
+            contact: Contact::Outside,
+        };
+        let st = stack(
+            0.0,
+            0.0,
+            Losses::Ideal,
+            vec![slab(crystal(n, n, 0.0, 0.0), 2.0, 0.0, Some(faces))],
+        );
+        let t = trace_planar(&st);
+        let expected = (n * apex.sin()).asin() - apex;
+        for p in &t.paths {
+            let dev = p.direction.z.acos();
+            assert_close(dev, expected, 1e-12, 0.0, "prism deviation");
+            // Toward the thick end (−x, the wedge leans its back face toward +x).
+            assert!(p.direction.x < 0.0);
+        }
+    }
+
+    /// An air-spaced pair of calcite prisms with the optic axis perpendicular to the plane of
+    /// incidence: the ordinary index 1.6557 makes the o-ray meet the air gap beyond its critical
+    /// angle asin(1/n_o) = 37.14°, while the e-ray (n = 1.4849, critical 42.33°) passes, at a gap
+    /// tilted 40° (common practice for prism polarizers). Power is accounted to 1e-12 and the
+    /// rejected o-ray leaves along the mirror image of its direction.
+    #[test]
+    fn an_air_gap_rejects_the_ordinary_ray_by_total_internal_reflection() {
+        let cal = crystal(1.6557, 1.4849, 90.0, 90.0);
+        let gap_normal = direction(40f64.to_radians(), 0.0);
+        let ap = |z: f64| {
+            Some(Aperture {
+                centre: Vector3::new(0.0, 0.0, z),
+                axis: Vector3::z(),
+                radius_mm: 3.0,
+            })
+        };
+        let first = Faces {
+            front: Plane::across_z(0.0),
+            back: Plane {
+                normal: gap_normal,
+                point: Vector3::new(0.0, 0.0, 5.0),
+            },
+            aperture: ap(0.0),
+            contact: Contact::Outside,
+        };
+        let second = Faces {
+            front: Plane {
+                normal: gap_normal,
+                point: Vector3::new(0.0, 0.0, 5.0),
+            },
+            back: Plane::across_z(10.0),
+            aperture: ap(5.0),
+            contact: Contact::Outside,
+        };
+        for losses in [Losses::Ideal, Losses::Uncoated] {
+            let st = stack(
+                0.0,
+                0.0,
+                losses,
+                vec![slab(cal, 5.0, 0.0, Some(first)), slab(cal, 5.0, 0.0, Some(second))],
+            );
+            let t = trace_planar(&st);
+            // The e-ray leaves the gap polarized along the axis (y): the second prism takes it
+            // into its e-mode alone ("eo" carries nothing).
+            let carrying: Vec<&str> = t
+                .paths
+                .iter()
+                .filter(|p| power_of(&p.matrix, &st.input.stokes) > 1e-24)
+                .map(|p| p.label.as_str())
+                .collect();
+            assert_eq!(carrying, ["ee"], "only the e-ray passes");
+            let tir: Vec<&Rejected> = t
+                .rejected
+                .iter()
+                .filter(|r| r.reason == RejectReason::TotalInternalReflection)
+                .collect();
+            assert!(
+                !tir.is_empty()
+                    && tir
+                        .iter()
+                        .all(|r| r.label == "o" && r.element == 0 && r.face == Side::Back)
+            );
+            // Mirror image of +z in a face of normal n: z − 2 (z·n) n.
+            let mirror = Vector3::z() - gap_normal * (2.0 * gap_normal.z);
+            let o_back = tir
+                .iter()
+                .find(|r| (Vector3::from(r.direction) - mirror).norm() < 1e-12);
+            assert!(
+                o_back.is_some(),
+                "{:?}",
+                tir.iter().map(|r| r.direction).collect::<Vec<_>>()
+            );
+            assert_close(
+                total_power(&t, &st.input.stokes),
+                1.0,
+                1e-12,
+                0.0,
+                "rays + rejected + reflected",
+            );
+            if losses == Losses::Ideal {
+                // Ideal faces: the o-ray's whole share is rejected, the e-ray's passes.
+                let e_share: f64 = t.paths.iter().map(|p| power_of(&p.matrix, &st.input.stokes)).sum();
+                let o_share: f64 = tir.iter().map(|r| r.power).sum();
+                assert_close(e_share + o_share, 1.0, 1e-12, 0.0, "ideal faces lose nothing");
+                // Input linear at 0.3 rad from x: the o-mode (D along x) takes cos², the e-mode
+                // (D along the axis, y) sin² (Malus's law).
+                assert_close(o_share, 0.3f64.cos().powi(2), 1e-12, 0.0, "o share, Malus");
+            }
+        }
+    }
+
+    /// A two-wedge splitter whose first wedge has its axis along z (both modes index n_o at
+    /// normal incidence) and whose second has it along y, perpendicular to the plane of
+    /// incidence: the o-ray goes straight through, the e-ray (D along the axis, index n_e in every
+    /// direction of that plane) refracts at the internal face n_o sin α = n_e sin β (β > α: it bends away from the normal,
+    /// leaning at α − β from z) and at the exit face sin δ = n_e sin(α − β). An exact two-step Snell calculation, independent of the
+    /// mode solver; the wedges are optically contacted.
+    #[test]
+    fn a_straight_through_splitter_deviates_only_the_e_ray_by_snell_twice() {
+        let (no, ne) = (1.6557, 1.4849);
+        let alpha = 20f64.to_radians();
+        let internal = direction(alpha, 0.0);
+        let ap = Some(Aperture {
+            centre: Vector3::zeros(),
+            axis: Vector3::z(),
+            radius_mm: 4.0,
+        });
+        let first = Faces {
+            front: Plane::across_z(0.0),
+            back: Plane {
+                normal: internal,
+                point: Vector3::new(0.0, 0.0, 5.0),
+            },
+            aperture: ap,
+            contact: Contact::Outside,
+        };
+        let second = Faces {
+            front: first.back,
+            back: Plane::across_z(10.0),
+            aperture: ap,
+            contact: Contact::Direct,
+        };
+        let st = stack(
+            0.0,
+            0.0,
+            Losses::Ideal,
+            vec![
+                slab(crystal(no, ne, 0.0, 0.0), 5.0, 0.0, Some(first)),
+                slab(crystal(no, ne, 90.0, 90.0), 5.0, 0.0, Some(second)),
+            ],
+        );
+        let t = trace_planar(&st);
+        let beta = (no * alpha.sin() / ne).asin();
+        let delta = (ne * (alpha - beta).sin()).asin();
+        let carrying: Vec<&Path> = t
+            .paths
+            .iter()
+            .filter(|p| power_of(&p.matrix, &st.input.stokes) > 1e-20)
+            .collect();
+        assert_eq!(
+            carrying.len(),
+            2,
+            "{:?}",
+            t.paths.iter().map(|p| &p.label).collect::<Vec<_>>()
+        );
+        for p in carrying {
+            let angle = p.direction.x.atan2(p.direction.z);
+            if p.label.ends_with('o') {
+                assert!(angle.abs() < 1e-14, "{}: {angle}", p.label);
+            } else {
+                assert_close(angle, delta, 1e-12, 0.0, "e-ray deviation by Snell twice");
+            }
+        }
+        assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
+    }
+
+    #[test]
+    fn rays_outside_an_aperture_are_rejected_with_their_power() {
+        let cal = crystal(1.6557, 1.4849, 45.0, 0.0);
+        let faces = Faces {
+            front: Plane::across_z(0.0),
+            back: Plane::across_z(10.0),
+            aperture: Some(Aperture {
+                centre: Vector3::zeros(),
+                axis: Vector3::z(),
+                radius_mm: 0.5,
+            }),
+            contact: Contact::Outside,
+        };
+        // Walk-off of about 1 mm over 10 mm: the e-ray leaves the 0.5 mm radius.
+        let st = stack(0.0, 0.0, Losses::Ideal, vec![slab(cal, 10.0, 0.0, Some(faces))]);
+        let t = trace_planar(&st);
+        assert_eq!(t.paths.len(), 1);
+        assert_eq!(t.paths[0].label, "o");
+        assert_eq!(t.rejected.len(), 1);
+        let r = &t.rejected[0];
+        assert_eq!(
+            (r.label.as_str(), r.reason, r.face),
+            ("e", RejectReason::OutsideAperture, Side::Back)
+        );
+        assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
+        let _ = FRAC_PI_4;
+    }
+}
