@@ -8,6 +8,8 @@
 //! | `recombiner` | [`crate::design::recombiner`] | `material`, `length_mm` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
+//! The requests are documents, read field by field in `src/contract/request/`; here each is
+//! handed to its solver.
 //!
 //! Checks every kind shares, made here once:
 //! - *Strictness.* A field that does not apply to the chosen order or middle element
