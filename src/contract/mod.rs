@@ -1,7 +1,9 @@
 //! The documents: the scenario contract read field by field (every error named by its JSON
-//! path), resolved into a stack for the physics, and the result document written from a trace.
+//! path), resolved into a stack for the physics, the result document written from a trace, and
+//! the design request documents.
 
 pub mod fields;
+pub mod request;
 pub mod resolve;
 pub mod result;
 pub mod scenario;

@@ -10,7 +10,7 @@
 //! for polar angle p and azimuth a; polarization angles are measured on the beam basis (e1, e2)
 //! from e1 toward e2; a right-handed circular state has S3 > 0.
 
-use crate::contract::scenario::{ElementKind, Medium as Material, Polarization, Scenario};
+use crate::contract::scenario::{ElementKind, Polarization, Scenario};
 use crate::error::{Error, in_range};
 use crate::optics::geometry::direction;
 use crate::optics::jones::{self, Jones};
@@ -41,19 +41,15 @@ impl Scenario {
         for (idx, el) in self.elements.iter().enumerate() {
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
-                    let indices = match plate.medium {
-                        Material::Catalogue(m) => {
-                            let ev = m
-                                .indices(self.wavelength)
-                                .map_err(|e| Error::new(e.field, format!("{} (elements[{idx}])", e.message)))?;
-                            warnings.extend(ev.warnings.into_iter().map(|w| Warning {
-                                element: idx,
-                                text: format!("elements[{idx}]: {w}"),
-                            }));
-                            ev.indices
-                        }
-                        Material::Custom(ix) => ix,
-                    };
+                    let ev = plate
+                        .medium
+                        .evaluate(self.wavelength)
+                        .map_err(|e| Error::new(e.field, format!("{} (elements[{idx}])", e.message)))?;
+                    warnings.extend(ev.warnings.into_iter().map(|w| Warning {
+                        element: idx,
+                        text: format!("elements[{idx}]: {w}"),
+                    }));
+                    let indices = ev.indices;
                     let axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg)
                         .map_err(|e| e.within(&format!("elements[{idx}].axis")))?;
                     Element::Slab(Slab {

@@ -13,7 +13,7 @@
 //! report it.
 
 use crate::contract::resolve::Warning;
-use crate::contract::scenario::{ElementKind, Medium as Material, Scenario};
+use crate::contract::scenario::{ElementKind, Scenario};
 use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::interface::Losses;
@@ -346,10 +346,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                 let retardance = k0 * (modes[1].qz().re - modes[0].qz().re) * l;
                 let max_cut = max_walkoff_cut(indices);
                 reports.push(ElementReport::Crystal {
-                    material: match plate.medium {
-                        Material::Catalogue(m) => m.key.to_string(),
-                        Material::Custom(_) => "custom".to_string(),
-                    },
+                    material: plate.medium.key().to_string(),
                     no: indices.no,
                     ne: indices.ne,
                     thickness_mm: l,

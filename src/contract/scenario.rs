@@ -33,7 +33,7 @@ use crate::contract::fields::{Fields, number_list, type_name};
 use crate::error::{Error, above, in_range, strictly_between};
 use crate::numfmt::{quote, quote_text};
 use crate::optics::interface::Losses;
-use crate::optics::material::{self, Indices, Material};
+use crate::optics::material::{self, Evaluated, Indices, Material};
 
 use crate::optics::wavelength::Wavelength;
 use serde_json::{Value, json};
@@ -93,6 +93,39 @@ pub enum Medium {
     Catalogue(&'static Material),
     /// Fixed indices given in the scenario.
     Custom(Indices),
+}
+
+impl Medium {
+    /// The principal indices at `wavelength` with the catalogue's warnings (none for fixed
+    /// indices).
+    ///
+    /// # Errors
+    /// As [`Material::indices`]: where the dispersion formula breaks down.
+    pub fn evaluate(&self, wavelength: Wavelength) -> Result<Evaluated, Error> {
+        match self {
+            Medium::Catalogue(m) => m.indices(wavelength),
+            Medium::Custom(ix) => Ok(Evaluated {
+                indices: *ix,
+                warnings: Vec::new(),
+            }),
+        }
+    }
+
+    /// The principal indices at `wavelength`.
+    ///
+    /// # Errors
+    /// As [`Medium::evaluate`].
+    pub fn indices(&self, wavelength: Wavelength) -> Result<Indices, Error> {
+        Ok(self.evaluate(wavelength)?.indices)
+    }
+
+    /// The catalogue key, or `"custom"` for fixed indices.
+    pub fn key(&self) -> &'static str {
+        match self {
+            Medium::Catalogue(m) => m.key,
+            Medium::Custom(_) => "custom",
+        }
+    }
 }
 
 /// A crystal plate.

@@ -8,6 +8,8 @@
 //! | `recombiner` | [`crate::design::recombiner`] | `material`, `length_mm` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
+//! The requests are documents, read field by field in `src/contract/request/`; here each is
+//! handed to its solver.
 //!
 //! Checks every kind shares, made here once:
 //! - *Strictness.* A field that does not apply to the chosen order or middle element
@@ -21,6 +23,7 @@
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
 
 use crate::contract::fields::Fields;
+use crate::contract::request::{AchromatRequest, DisplacerRequest, RecombinerRequest, WaveplateRequest};
 use crate::contract::scenario::Medium;
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
@@ -173,7 +176,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
     check_applies(kind, request)?;
     let (mut out, warnings, crystals) = match kind {
         "displacer" => {
-            let r = displacer::DisplacerRequest::from_json(&mut f)?;
+            let r = DisplacerRequest::from_json(&mut f)?;
             f.finish()?;
             let uses = Uses {
                 media: vec![("material", r.medium)],
@@ -187,7 +190,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
             }
         }
         "waveplate" => {
-            let r = waveplate::WaveplateRequest::from_json(&mut f)?;
+            let r = WaveplateRequest::from_json(&mut f)?;
             f.finish()?;
             let uses = Uses {
                 media: vec![("material", r.medium)],
@@ -201,7 +204,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
             }
         }
         "achromat" => {
-            let r = waveplate::AchromatRequest::from_json(&mut f)?;
+            let r = AchromatRequest::from_json(&mut f)?;
             f.finish()?;
             let (w1, w2) = r.wavelengths_nm;
             let uses = Uses {
@@ -216,7 +219,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
             }
         }
         "recombiner" => {
-            let r = recombiner::RecombinerRequest::from_json(&mut f)?;
+            let r = RecombinerRequest::from_json(&mut f)?;
             f.finish()?;
             let uses = Uses {
                 media: vec![("material", r.medium)],

@@ -45,10 +45,6 @@ fn mm(x: f64) -> String {
 /// one. Plates are numbered from 1. Empty when nothing would be questioned.
 pub fn notes(plates: &[(Medium, f64)], clear_aperture_mm: Option<f64>) -> Vec<String> {
     let mut out = Vec::new();
-    let name = |m: &Medium| match m {
-        Medium::Catalogue(c) => c.key.to_string(),
-        Medium::Custom(_) => "custom".to_string(),
-    };
     let numbered = |i: usize| {
         if plates.len() > 1 {
             format!("plate {} ", i + 1)
@@ -64,7 +60,7 @@ pub fn notes(plates: &[(Medium, f64)], clear_aperture_mm: Option<f64>) -> Vec<St
                  cemented or optically contacted to a substrate, or made as a compound zero-order \
                  pair (guidance, common practice)",
                 numbered(i),
-                name(m),
+                m.key(),
                 mm(*t)
             ));
         }
@@ -74,7 +70,7 @@ pub fn notes(plates: &[(Medium, f64)], clear_aperture_mm: Option<f64>) -> Vec<St
                  are rarely grown and polished in one piece; a material with more birefringence, \
                  or several shorter pieces, may be easier to obtain (guidance, common practice)",
                 numbered(i),
-                name(m),
+                m.key(),
                 mm(*t)
             ));
         }

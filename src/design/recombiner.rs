@@ -16,16 +16,14 @@
 //! all is the trace's own rule (their beams overlap: see `trace.rs`, spots), the same rule the
 //! page and the command line show.
 
-use crate::contract::fields::Fields;
+use crate::contract::request::{Middle, RecombinerRequest};
 use crate::contract::result::spots;
-use crate::contract::scenario::{Element, ElementKind, Medium};
-use crate::design::displacer::{indices_of, parse_medium, wavelength_field};
+use crate::contract::scenario::{Element, ElementKind};
 use crate::design::part::{Part, crystal};
-use crate::error::{Error, above, in_range};
+use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::trace::trace;
-use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
-use crate::optics::wavelength::Wavelength;
+use crate::optics::uniaxial::walkoff;
 use crate::precision::{
     BISECTION_STEPS, BREAK_SCAN_DECADES, BREAK_SCAN_SAMPLES, DIFF_STEP_LENGTH_FLOOR_MM, DIFF_STEP_LENGTH_REL,
     DIFF_STEP_TILT_DEG, NO_WALKOFF_RAD,
@@ -37,36 +35,6 @@ use std::f64::consts::{PI, TAU};
 pub const MIN_OVERLAP: f64 = 0.99;
 /// Phase change (radians) beyond which the recombination counts as broken.
 pub const MAX_PHASE_ERROR: f64 = PI / 10.0;
-
-/// What sits between the two displacers.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Middle {
-    /// An ideal half-wave plate with its fast axis at 45° to the walk-off plane.
-    HalfWave,
-    /// An ideal rotator by this angle (90° swaps the polarizations).
-    Rotator(f64),
-}
-
-/// A recombiner request.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RecombinerRequest {
-    /// Crystal of both displacers.
-    pub medium: Medium,
-    /// Wavelength.
-    pub wavelength: Wavelength,
-    /// Length of the first displacer, mm.
-    pub length_mm: f64,
-    /// Cut tilt of the first displacer (default: maximum walk-off), degrees.
-    pub cut_tilt_deg: f64,
-    /// Beam diameter, mm.
-    pub beam_diameter_mm: f64,
-    /// The middle element.
-    pub middle: Middle,
-    /// Length of the second displacer minus the first's, mm.
-    pub length_mismatch_mm: f64,
-    /// Cut tilt of the second minus the first's, degrees.
-    pub tilt_mismatch_deg: f64,
-}
 
 /// The verdict.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -105,61 +73,6 @@ pub struct RecombinerCheck {
 }
 
 impl RecombinerRequest {
-    /// Reads a request object (`"kind": "recombiner"` checked by the caller).
-    ///
-    /// # Errors
-    /// The path of the first offending field.
-    pub fn from_json(f: &mut Fields) -> Result<RecombinerRequest, Error> {
-        let medium = parse_medium(f)?;
-        let wavelength = wavelength_field(f)?;
-        let length_mm = above("length_mm", f.required_number("length_mm")?, 0.0, 1e4)?;
-        let ix = indices_of(&medium, wavelength)?;
-        let default_tilt = max_walkoff_cut(ix).0.to_degrees();
-        let cut_tilt_deg = in_range("cut_tilt_deg", f.number_or("cut_tilt_deg", default_tilt)?, 0.0, 180.0)?;
-        let beam_diameter_mm = above("beam_diameter_mm", f.number_or("beam_diameter_mm", 1.0)?, 0.0, 1e3)?;
-        let middle = match f.string("middle")? {
-            None | Some("half-wave") => Middle::HalfWave,
-            Some("rotator") => Middle::Rotator(in_range(
-                "rotator_deg",
-                f.number_or("rotator_deg", 90.0)?,
-                -360.0,
-                360.0,
-            )?),
-            Some(other) => {
-                return Err(Error::new(
-                    "middle",
-                    format!("unknown middle element '{other}'; expected half-wave or rotator"),
-                ));
-            }
-        };
-        let _ = f.get("rotator_deg");
-        // The second displacer must still be a plate: refused, not clamped, when the mismatch
-        // would make its length non-positive (the range's lower end is excluded) or its tilt
-        // leave 0–180°.
-        let length_mismatch_mm = above(
-            "length_mismatch_mm",
-            f.number_or("length_mismatch_mm", 0.0)?,
-            -length_mm,
-            1e3,
-        )?;
-        let tilt_mismatch_deg = in_range(
-            "tilt_mismatch_deg",
-            f.number_or("tilt_mismatch_deg", 0.0)?,
-            -cut_tilt_deg,
-            180.0 - cut_tilt_deg,
-        )?;
-        Ok(RecombinerRequest {
-            medium,
-            wavelength,
-            length_mm,
-            cut_tilt_deg,
-            beam_diameter_mm,
-            middle,
-            length_mismatch_mm,
-            tilt_mismatch_deg,
-        })
-    }
-
     /// The pair with the second crystal longer by `dl` mm and its cut tilted by `dt` degrees more.
     fn part(&self, dl: f64, dt: f64) -> Part {
         let plate = |l: f64, t: f64| crystal(self.medium, l, t, 0.0, 1.0);
@@ -225,7 +138,7 @@ fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> 
 /// # Errors
 /// As the trace of its scenario; `material` when a path does not exist.
 pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
-    let ix = indices_of(&req.medium, req.wavelength)?;
+    let ix = req.medium.indices(req.wavelength)?;
     if walkoff(ix, req.cut_tilt_deg.to_radians()).abs() < NO_WALKOFF_RAD {
         return Err(Error::new(
             "cut_tilt_deg",
@@ -316,6 +229,10 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::fields::Fields;
+    use crate::contract::scenario::Medium;
+    use crate::optics::uniaxial::max_walkoff_cut;
+    use crate::optics::wavelength::Wavelength;
     use serde_json::Value;
 
     fn run(doc: &str) -> RecombinerCheck {
@@ -344,11 +261,9 @@ mod tests {
         // Δs = tan ρ ΔL at normal incidence; Δφ = k0 (n(θ) − n_o) ΔL for the e-path's extra
         // length against the o-path's (Yariv & Yeh §4.3 for n(θ)).
         let c = run(r#"{"material": "calcite", "length_mm": 10, "wavelength_nm": 632.8}"#);
-        let ix = indices_of(
-            &Medium::Catalogue(crate::optics::material::find("calcite").unwrap()),
-            Wavelength::from_nm(632.8).unwrap(),
-        )
-        .unwrap();
+        let ix = Medium::Catalogue(crate::optics::material::find("calcite").unwrap())
+            .indices(Wavelength::from_nm(632.8).unwrap())
+            .unwrap();
         let th = max_walkoff_cut(ix).0;
         let rho = walkoff(ix, th);
         let n_th = crate::optics::uniaxial::extraordinary_index(ix, th);
@@ -411,49 +326,13 @@ mod tests {
     }
 
     #[test]
-    fn impossible_mismatches_are_refused_not_clamped() {
-        for (doc, field) in [
-            (
-                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
-                "length_mismatch_mm",
-            ),
-            (
-                r#"{"material": "calcite", "length_mm": 5, "cut_tilt_deg": 45, "tilt_mismatch_deg": 140}"#,
-                "tilt_mismatch_deg",
-            ),
-        ] {
-            let v: Value = serde_json::from_str(doc).unwrap();
-            let mut f = Fields::new("", &v).unwrap();
-            assert_eq!(RecombinerRequest::from_json(&mut f).unwrap_err().field, field, "{doc}");
-        }
-        // Ranges whose lower end is excluded say so ("above"), rather than "from 0".
-        for (doc, words) in [
-            (
-                r#"{"material": "calcite", "length_mm": 0}"#,
-                "must be above 0 mm and at most 10000 mm, got 0 mm",
-            ),
-            (
-                r#"{"material": "calcite", "length_mm": 5, "length_mismatch_mm": -5}"#,
-                "must be above \u{2212}5 mm and at most 1000 mm, got \u{2212}5 mm",
-            ),
-        ] {
-            let v: Value = serde_json::from_str(doc).unwrap();
-            let mut f = Fields::new("", &v).unwrap();
-            let e = RecombinerRequest::from_json(&mut f).unwrap_err();
-            assert_eq!(e.message, words, "{doc}");
-        }
-    }
-
-    #[test]
     fn a_length_mismatch_leaves_the_predicted_residual() {
         let c = run(
             r#"{"material": "yvo4", "wavelength_nm": 1064, "length_mm": 8, "cut_tilt_deg": 45, "length_mismatch_mm": 0.05}"#,
         );
-        let ix = indices_of(
-            &Medium::Catalogue(crate::optics::material::find("yvo4").unwrap()),
-            Wavelength::from_nm(1064.0).unwrap(),
-        )
-        .unwrap();
+        let ix = Medium::Catalogue(crate::optics::material::find("yvo4").unwrap())
+            .indices(Wavelength::from_nm(1064.0).unwrap())
+            .unwrap();
         let expect = 0.05 * walkoff(ix, 45f64.to_radians()).tan().abs();
         assert!(
             (c.residual_separation_mm - expect).abs() < 1e-12,

@@ -133,10 +133,7 @@ fn setting(sc: &Scenario, crystal: usize) -> Option<Setting> {
 }
 
 fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
-    match plate.medium {
-        Medium::Catalogue(m) => m.indices(wl).ok().map(|e| e.indices),
-        Medium::Custom(ix) => Some(ix),
-    }
+    plate.medium.indices(wl).ok()
 }
 
 /// (walk-off rad, separation mm, retardance rad) of one plate, or None if a mode is evanescent.
@@ -169,10 +166,7 @@ pub fn walkoff_vs_tilt(sc: &Scenario, crystal: usize) -> Result<Series, Error> {
     let Some(st) = setting(sc, crystal) else {
         return Ok(no_crystal(title, xl, xu, yl, yu));
     };
-    let ix = match st.plate.medium {
-        Medium::Catalogue(m) => m.indices(sc.wavelength)?.indices,
-        Medium::Custom(ix) => ix,
-    };
+    let ix = st.plate.medium.indices(sc.wavelength)?;
     let oblique = st.qt[0].hypot(st.qt[1]) > 0.0;
     let top = if st.plate.tilt_deg > 90.0 || oblique { 180 } else { 90 };
     let p = &st.plate;

@@ -9,6 +9,8 @@
 
 #[cfg(feature = "design-worker")]
 use crate::contract::fields::Fields;
+#[cfg(feature = "design-worker")]
+use crate::contract::request::DisplacerRequest;
 use crate::contract::result::{TraceResult, trace_scenario as trace};
 use crate::contract::scenario::Scenario;
 use crate::design::statistics as statistics_summary;
@@ -96,12 +98,13 @@ pub fn view_names() -> Result<JsValue, JsValue> {
 /// Never in practice.
 #[wasm_bindgen(js_name = designLimits)]
 pub fn design_limits() -> Result<JsValue, JsValue> {
+    use crate::contract::request;
     use crate::design::{displacer as dd, recombiner as dr};
     to_js(&serde_json::json!({
         "chunk_samples": dd::MC_CHUNK,
-        "default_samples": dd::DEFAULT_SAMPLES,
-        "max_samples": dd::MAX_SAMPLES,
-        "default_acceptance_error_waves": crate::design::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES,
+        "default_samples": request::displacer::DEFAULT_SAMPLES,
+        "max_samples": request::displacer::MAX_SAMPLES,
+        "default_acceptance_error_waves": request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES,
         "recombiner_min_overlap": dr::MIN_OVERLAP,
         "recombiner_max_phase_rad": dr::MAX_PHASE_ERROR,
     }))
@@ -127,7 +130,7 @@ pub fn design_json(text: &str) -> Result<JsValue, JsValue> {
 pub struct DesignRun {
     nominal: serde_json::Value,
     /// The displacer request, its cut tilt (degrees) and length (mm), when it has samples to draw.
-    monte_carlo: Option<(design_displacer::DisplacerRequest, f64, f64)>,
+    monte_carlo: Option<(DisplacerRequest, f64, f64)>,
     /// The samples of each chunk drawn so far, by chunk index.
     parts: Vec<Option<Vec<f64>>>,
 }
@@ -158,7 +161,7 @@ impl DesignRun {
         let nominal = design::solve(&without)?;
         let mut f = Fields::new("", &value)?;
         f.string("kind")?;
-        let mut req = design_displacer::DisplacerRequest::from_json(&mut f)?;
+        let mut req = DisplacerRequest::from_json(&mut f)?;
         f.finish()?;
         if req.samples == 0 {
             return Ok(none(nominal));

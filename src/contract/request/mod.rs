@@ -1,0 +1,169 @@
+//! The design request documents, each read field by field with its field's path in every error,
+//! and the readers they share.
+//!
+//! One request asks a solver for a part, by `kind`: [`DisplacerRequest`], [`WaveplateRequest`],
+//! [`AchromatRequest`] and [`RecombinerRequest`], one file each. Each is read from a [`Fields`]
+//! whose `kind` the caller has checked, with the defaults of DEVELOPERS.md ("Design requests")
+//! filled in; the caller finishes the [`Fields`], so that an unknown field is an error naming it.
+//! A reader refuses a value outside its range rather than clamping it, and a count or a seed with
+//! a fraction rather than truncating it. What a request asks is checked here; whether a solver
+//! can meet it (a crystal without birefringence, a cut without walk-off) is the solver's error.
+
+pub mod achromat;
+pub mod displacer;
+pub mod recombiner;
+pub mod waveplate;
+
+pub use achromat::AchromatRequest;
+pub use displacer::{DisplacerRequest, Tolerances};
+pub use recombiner::{Middle, RecombinerRequest};
+pub use waveplate::{Order, WaveplateRequest};
+
+use crate::contract::fields::{Fields, number_list};
+use crate::contract::scenario::Medium;
+use crate::error::{Error, in_range};
+use crate::numfmt::quote;
+use crate::optics::material::{self, Indices};
+use crate::optics::wavelength::Wavelength;
+
+/// The crystal of a request: `material` (a catalogue key) or `no` and `ne` (indices 1 to 10).
+///
+/// # Errors
+/// `material` when both forms or neither is given, or for an unknown key; `no` or `ne` out of
+/// range.
+fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
+    let path = f.path_of("material");
+    match (f.has("material"), f.has("no") || f.has("ne")) {
+        (true, true) => Err(Error::new(
+            path,
+            "give either \"material\" or \"no\" and \"ne\", not both",
+        )),
+        (true, false) => {
+            let key = f.string("material")?.unwrap_or_default();
+            let m = material::find(key).ok_or_else(|| {
+                Error::new(
+                    &path,
+                    format!("unknown material '{key}'; known: {}", material::keys().join(", ")),
+                )
+            })?;
+            let _ = (f.get("no"), f.get("ne"));
+            Ok(Medium::Catalogue(m))
+        }
+        (false, true) => {
+            let (pn, pe) = (f.path_of("no"), f.path_of("ne"));
+            let no = in_range(&pn, f.required_number("no")?, 1.0, 10.0)?;
+            let ne = in_range(&pe, f.required_number("ne")?, 1.0, 10.0)?;
+            let _ = f.get("material");
+            Ok(Medium::Custom(Indices::new(no, ne)?))
+        }
+        (false, false) => Err(Error::new(
+            path,
+            format!(
+                "is required (or give \"no\" and \"ne\"); known materials: {}",
+                material::keys().join(", ")
+            ),
+        )),
+    }
+}
+
+/// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
+fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, hi: f64) -> Result<f64, Error> {
+    let path = f.path_of(name);
+    let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;
+    if v.fract() != 0.0 {
+        return Err(Error::new(path, format!("must be a whole number, got {}", quote(v))));
+    }
+    Ok(v)
+}
+
+/// The request's `wavelength_nm` (default 632.8).
+fn wavelength_field(f: &mut Fields) -> Result<Wavelength, Error> {
+    Wavelength::from_nm(in_range(
+        "wavelength_nm",
+        f.number_or("wavelength_nm", 632.8)?,
+        1.0,
+        1e6,
+    )?)
+}
+
+/// An optional band `[shortest, longest]` in nm, each from 1 to 10⁶.
+///
+/// # Errors
+/// `name[0]` or `name[1]` out of range; `name` when it is not a list of two numbers or its ends
+/// are the wrong way round.
+fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f64)>, Error> {
+    let path = f.path_of(name);
+    match f.get(name) {
+        None => Ok(None),
+        Some(v) => {
+            let b = number_list(&path, v, 2)?;
+            let lo = in_range(&format!("{path}[0]"), b[0], 1.0, 1e6)?;
+            let hi = in_range(&format!("{path}[1]"), b[1], 1.0, 1e6)?;
+            if hi < lo {
+                return Err(Error::new(
+                    path,
+                    format!(
+                        "must be [shortest, longest] with shortest ≤ longest, got [{}, {}]",
+                        quote(lo),
+                        quote(hi)
+                    ),
+                ));
+            }
+            Ok(Some((lo, hi)))
+        }
+    }
+}
+
+/// The first error a request document gives its reader, for the tests of each kind.
+#[cfg(test)]
+fn first_error<T>(doc: &str, read: fn(&mut Fields) -> Result<T, Error>) -> Error {
+    let v: serde_json::Value = serde_json::from_str(doc).unwrap();
+    let mut f = Fields::new("", &v).unwrap();
+    match read(&mut f) {
+        Ok(_) => f.finish().expect_err(doc),
+        Err(e) => e,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn shared_readers_name_their_field() {
+        // Each shared reader, through the simplest request that uses it.
+        for (doc, field, words) in [
+            (
+                r#"{"material": "calcite", "no": 1.6, "separation_mm": 1}"#,
+                "material",
+                "not both",
+            ),
+            (r#"{"separation_mm": 1}"#, "material", "is required"),
+            (r#"{"no": 0.5, "ne": 1.5, "separation_mm": 1}"#, "no", "from 1 to 10"),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "seed": 1.5}"#,
+                "seed",
+                "must be a whole number, got 1.5",
+            ),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "wavelength_nm": 0}"#,
+                "wavelength_nm",
+                "must be from 1",
+            ),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "band_nm": [500, 2e6]}"#,
+                "band_nm[1]",
+                "must be from 1",
+            ),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "band_nm": [500]}"#,
+                "band_nm",
+                "",
+            ),
+        ] {
+            let e = first_error(doc, DisplacerRequest::from_json);
+            assert_eq!(e.field, field, "{doc}: {e}");
+            assert!(e.message.contains(words), "{doc}: {e}");
+        }
+    }
+}
