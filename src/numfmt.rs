@@ -126,7 +126,7 @@ pub fn sig(v: f64, n: usize) -> String {
     sig_within(v, n, MAX_DRAWN_CHARS)
 }
 
-/// As [`sig`], with a budget of `max_chars` characters (sign excluded) instead of
+/// As `sig`, with a budget of `max_chars` characters (sign excluded) instead of
 /// [`MAX_DRAWN_CHARS`]: for text tables, whose columns hold more digits than a drawing.
 pub fn sig_within(v: f64, n: usize, max_chars: usize) -> String {
     if v.is_nan() {

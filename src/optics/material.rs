@@ -303,7 +303,7 @@ impl Material {
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
 /// `{key, name, sign, range_nm, citation, verified, warnings}`, `sign` spelled `positive` or
-/// `negative`, `warnings` holding [`Material::data_warning`] if any.
+/// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
     let sign = match m.sign {
         OpticalSign::Positive => "positive",

@@ -11,12 +11,12 @@ use crate::optics::material::Indices;
 /// x = ½(n_e² + n_o²) + ½(n_e² − n_o²) cos φ = n_e² cos²θ + n_o² sin²θ > 0 (Born & Wolf,
 /// *Principles of Optics*, §15.3, in double-angle form).
 ///
-/// Method: the samples go in blocks of [`SWEEP_BLOCK`]. Each block starts from an exact anchor
+/// Method: the samples go in blocks of `SWEEP_BLOCK`. Each block starts from an exact anchor
 /// φ₀ (one `sin_cos` and one `atan2`); the block's k-th sample has sin and cos of φ₀ + kΔφ by
 /// angle addition from a table of sin kΔφ, cos kΔφ computed once per sweep, and its ρ from the
 /// atan2 difference identity ρ_k = ρ₀ + atan(u), u = (y_k x₀ − x_k y₀)/(x_k x₀ + y_k y₀) (exact
 /// while both points lie in the half-plane x > 0, as they always do here). When |u| ≤
-/// [`SWEEP_SERIES_LIMIT`], atan u = u − u³/3 + u⁵/5 to within |u|⁷/7 < 2·10⁻²¹, below the rounding
+/// `SWEEP_SERIES_LIMIT`, atan u = u − u³/3 + u⁵/5 to within |u|⁷/7 < 2·10⁻²¹, below the rounding
 /// of ρ₀; a block with a larger |u| (a coarse sweep) is computed sample by sample with `atan2`.
 /// No sample depends on the one before it, so the loop has no carried chain and vectorizes. The
 /// values agree with the direct formula to ~1e-15 (tested).

@@ -157,7 +157,7 @@ pub fn plot(series: &Series) -> Scene {
     scene
 }
 
-/// Builds a histogram of a Monte Carlo [`Summary`]: one bar per bin, with the nominal value,
+/// Builds a histogram of a Monte Carlo `Summary`: one bar per bin, with the nominal value,
 /// the mean and the 5th and 95th percentiles marked and written out.
 pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nominal: Option<f64>) -> Scene {
     let mut scene = Scene::new(title, &format!("{} samples", summary.n), Aspect::Free);

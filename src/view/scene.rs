@@ -310,7 +310,7 @@ impl Scene {
         }
     }
 
-    /// Adds a label of [`Priority::Normal`] that the placement pass may move.
+    /// Adds a label of `Priority::Normal` that the placement pass may move.
     pub fn text(&mut self, at: Point, text: impl Into<String>, size_px: f64, anchor: Anchor, role: Role) {
         self.push_text(at, text.into(), size_px, anchor, role, Priority::Normal, false);
     }
