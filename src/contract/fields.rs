@@ -5,7 +5,7 @@
 //! a line and column, so the contract is read here by hand: each object is wrapped in a [`Fields`]
 //! that hands out its members by name and, when done, names any member nobody asked for.
 
-use crate::error::{Error, join_path, number_wanted};
+use crate::error::{Error, in_range, join_path, number_wanted};
 use serde_json::{Map, Value};
 
 /// A JSON object being read, with its path.
@@ -159,6 +159,19 @@ pub fn number_list(path: &str, v: &Value, n: usize) -> Result<Vec<f64>, Error> {
         .enumerate()
         .map(|(i, x)| as_number(&format!("{path}[{i}]"), x))
         .collect()
+}
+
+/// A number field in [lo, hi], `default` when absent (required when `None`).
+///
+/// # Errors
+/// The field's path when absent and required, not a number, or out of range.
+pub fn ranged(f: &mut Fields, name: &'static str, default: Option<f64>, lo: f64, hi: f64) -> Result<f64, Error> {
+    let path = f.path_of(name);
+    let v = match default {
+        Some(d) => f.number_or(name, d)?,
+        None => f.required_number(name)?,
+    };
+    in_range(&path, v, lo, hi)
 }
 
 #[cfg(test)]

@@ -3,6 +3,7 @@
 //! the design request documents.
 
 pub mod fields;
+pub mod geometry;
 pub mod request;
 pub mod resolve;
 pub mod result;

@@ -10,6 +10,7 @@
 //! for polar angle p and azimuth a; polarization angles are measured on the beam basis (e1, e2)
 //! from e1 toward e2; a right-handed circular state has S3 > 0.
 
+use crate::contract::geometry::Contact;
 use crate::contract::scenario::{ElementKind, Polarization, Scenario};
 use crate::error::{Error, in_range};
 use crate::optics::geometry::direction;
@@ -38,7 +39,9 @@ impl Scenario {
     pub fn resolve(&self) -> Result<(Stack, Vec<Warning>), Error> {
         let mut warnings = Vec::new();
         let mut layers = Vec::with_capacity(self.elements.len());
+        let mut z = 0.0;
         for (idx, el) in self.elements.iter().enumerate() {
+            z += el.gap_mm;
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
                     let ev = plate
@@ -50,12 +53,22 @@ impl Scenario {
                         text: format!("elements[{idx}]: {w}"),
                     }));
                     let indices = ev.indices;
-                    let axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg)
+                    let mut axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg)
                         .map_err(|e| e.within(&format!("elements[{idx}].axis")))?;
+                    // Version 1's plate keeps the shared-tangential trace; any placement or contact
+                    // places its faces in the lab frame, the mount turning the optic axis too.
+                    let faces = if plate.placement.is_default() && el.contact == Contact::Air {
+                        None
+                    } else {
+                        let (faces, mount) = plate.placement.place(z, plate.thickness_mm, el.contact);
+                        axis = axis.rotated(&mount);
+                        Some(faces)
+                    };
+                    z += plate.thickness_mm;
                     Element::Slab(Slab {
                         medium: Medium::Uniaxial(Uniaxial::new(indices, axis)),
                         thickness_mm: plate.thickness_mm,
-                        faces: None,
+                        faces,
                     })
                 }
                 ElementKind::Retarder {
@@ -85,7 +98,7 @@ impl Scenario {
                 stokes,
             },
             layers,
-            screen_mm: 0.0,
+            screen_mm: self.screen_mm,
         };
         Ok((stack, warnings))
     }

@@ -19,13 +19,15 @@ use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::interface::Losses;
 use crate::optics::jones::to_json;
 use crate::optics::modes::{Mode, ModeKind, beam_basis};
+use crate::optics::planar::alone;
 pub use crate::optics::spots::Spot;
 use crate::optics::spots::{Exit, group_spots};
 use crate::optics::stack::{Element, Medium, Stack};
 use crate::optics::stokes::{self, Ellipse};
 use crate::optics::trace::trace;
-use crate::optics::traced::{LayerTrace, Trace};
+use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::{OpticAxis, angle_between, max_walkoff_cut};
+use crate::precision::DEGENERATE_DIRECTION;
 use crate::precision::POWER_ROUNDING;
 use nalgebra::Vector3;
 use serde::Serialize;
@@ -44,8 +46,14 @@ pub struct Ray {
     pub exit_position_mm: [f64; 2],
     /// z of that face, mm.
     pub exit_z_mm: f64,
-    /// Unit direction of the ray after the stack (the incident direction).
+    /// Unit direction of the ray after the stack.
     pub direction: [f64; 3],
+    /// Where it leaves the last face it crosses, [x, y, z] in mm.
+    pub exit_point_mm: [f64; 3],
+    /// Where its straight continuation meets the screen plane, [x, y] in mm.
+    pub screen_position_mm: [f64; 2],
+    /// Angle between its direction and the incident beam's, degrees.
+    pub deviation_deg: f64,
     /// Stokes vector [S0, S1, S2, S3] on the beam basis.
     pub stokes: [f64; 4],
     /// Degree of polarization.
@@ -137,6 +145,9 @@ pub enum ElementReport {
         retardance_rad: Option<f64>,
         /// The same in waves.
         retardance_waves: Option<f64>,
+        /// Angle between the o- and e-ray directions after the crystal alone in the outside
+        /// medium, lit by the incident beam, degrees (0 for plane-parallel faces).
+        split_angle_deg: f64,
         /// Cut angle (between optic axis and plate normal) of maximum walk-off at normal incidence
         /// for this material at this wavelength, degrees: tan θ = n_e/n_o.
         max_walkoff_cut_deg: f64,
@@ -201,12 +212,78 @@ pub struct TraceResult {
     pub rays: Vec<Ray>,
     /// Per element, in stack order.
     pub elements: Vec<ElementReport>,
-    /// Output rays grouped where their beams overlap on the exit plane.
+    /// Rays that did not leave forward: total internal reflection, outside an aperture.
+    pub rejected: Vec<RejectedRay>,
+    /// Output rays grouped where their beams overlap on the screen.
     pub spots: Vec<Spot>,
     /// Sum of the spots' powers.
     pub total_power: f64,
     /// Things the reader must know (validity ranges, evanescent modes, untraced reflections).
     pub warnings: Vec<String>,
+}
+
+/// A ray that did not leave the stack forward (CONVENTIONS.md, version 2, `rejected`).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RejectedRay {
+    /// Its path label up to where it stopped.
+    pub label: String,
+    /// Index of the element.
+    pub element: usize,
+    /// "front" or "back".
+    pub face: &'static str,
+    /// "total internal reflection" or "outside aperture".
+    pub reason: &'static str,
+    /// Its power, a fraction of the input power.
+    pub power: f64,
+    /// Where, [x, y, z] in mm.
+    pub point_mm: [f64; 3],
+    /// Its direction there (for total internal reflection, the reflected direction).
+    pub direction: [f64; 3],
+}
+
+fn rejected_ray(r: &Rejected) -> RejectedRay {
+    RejectedRay {
+        label: r.label.clone(),
+        element: r.element,
+        face: match r.face {
+            Side::Front => "front",
+            Side::Back => "back",
+        },
+        reason: match r.reason {
+            RejectReason::TotalInternalReflection => "total internal reflection",
+            RejectReason::OutsideAperture => "outside aperture",
+        },
+        power: r.power,
+        point_mm: r.point_mm,
+        direction: r.direction,
+    }
+}
+
+/// One warning per element, face and reason that rejected rays, with their count and power.
+fn rejection_notes(rejected: &[RejectedRay]) -> Vec<String> {
+    let mut groups: Vec<(usize, &str, &str, usize, f64)> = Vec::new();
+    for r in rejected {
+        match groups
+            .iter_mut()
+            .find(|g| (g.0, g.1, g.2) == (r.element, r.face, r.reason))
+        {
+            Some(g) => {
+                g.3 += 1;
+                g.4 += r.power;
+            }
+            None => groups.push((r.element, r.face, r.reason, 1, r.power)),
+        }
+    }
+    groups
+        .into_iter()
+        .map(|(element, face, reason, n, power)| {
+            let rays = if n == 1 { "1 ray".to_string() } else { format!("{n} rays") };
+            format!(
+                "elements[{element}]: {rays} rejected at the {face} face ({reason}), carrying {} of the input power; see rejected",
+                crate::numfmt::power(power, 4)
+            )
+        })
+        .collect()
 }
 
 fn arr3(v: Vector3<f64>) -> [f64; 3] {
@@ -293,7 +370,7 @@ pub fn spots(stack: &Stack, traced: &Trace) -> Vec<Spot> {
         .iter()
         .map(|p| Exit {
             label: &p.label,
-            pos: p.exit_mm,
+            pos: p.screen_mm,
             m: p.matrix,
         })
         .collect();
@@ -342,8 +419,29 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     ));
                 }
                 let both = modes[0].propagating && modes[1].propagating;
-                let sep_vec = [shifts[1][0] - shifts[0][0], shifts[1][1] - shifts[0][1]];
-                let retardance = k0 * (modes[1].qz().re - modes[0].qz().re) * l;
+                let (sep_vec, split_angle_deg, retardance) = match slab.faces {
+                    None => (
+                        [shifts[1][0] - shifts[0][0], shifts[1][1] - shifts[0][1]],
+                        0.0,
+                        Some(k0 * (modes[1].qz().re - modes[0].qz().re) * l),
+                    ),
+                    Some(faces) => {
+                        let [o, e] = alone(stack, &slab, *z_front_mm);
+                        let (sep, split) = match (o, e) {
+                            (Some((po, uo)), Some((pe, ue))) => {
+                                ([pe.x - po.x, pe.y - po.y], angle_between(&uo, &ue).to_degrees())
+                            }
+                            _ => ([0.0; 2], 0.0),
+                        };
+                        // Parallel faces: Γ = k0 (ξ_e − ξ_o) L_n with ξ the normal components and
+                        // L_n the thickness along the normal; a wedge has no one retardance.
+                        let n = faces.front.normal;
+                        let parallel = (n - faces.back.normal).norm() <= DEGENERATE_DIRECTION;
+                        let l_n = n.dot(&(faces.back.point - faces.front.point));
+                        let xi = |m: &Mode| m.wave_vector().dot(&n);
+                        (sep, split, parallel.then(|| k0 * (xi(&modes[1]) - xi(&modes[0])) * l_n))
+                    }
+                };
                 let max_cut = max_walkoff_cut(indices);
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
@@ -356,12 +454,17 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     e: mode_report(&modes[1], &axis, l),
                     separation_mm: both.then(|| sep_vec[0].hypot(sep_vec[1])),
                     separation_vector_mm: both.then_some(sep_vec),
-                    retardance_rad: both.then_some(retardance),
-                    retardance_waves: both.then_some(retardance / TAU),
+                    retardance_rad: retardance.filter(|_| both),
+                    retardance_waves: retardance.filter(|_| both).map(|g| g / TAU),
+                    split_angle_deg,
                     max_walkoff_cut_deg: max_cut.0.to_degrees(),
                     max_walkoff_deg: max_cut.1.abs().to_degrees(),
                     power_in: *power_in,
-                    reflected_power: lost_power(*power_in, *power_out),
+                    // Face by face, the tracer books reflections apart from rejected rays.
+                    reflected_power: match traced.reflected.get(idx) {
+                        Some(r) => lost_power(*power_in, *power_in - r),
+                        None => lost_power(*power_in, *power_out),
+                    },
                 });
             }
             (kind, _, lt) => {
@@ -406,7 +509,10 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                 power: s[0],
                 exit_position_mm: p.exit_mm,
                 exit_z_mm: z,
-                direction,
+                direction: arr3(p.direction),
+                exit_point_mm: p.exit_point_mm,
+                screen_position_mm: p.screen_mm,
+                deviation_deg: angle_between(&p.direction, &u).to_degrees(),
                 stokes: s,
                 degree_of_polarization: stokes::degree_of_polarization(&s),
                 ellipse: stokes::ellipse(&s),
@@ -417,6 +523,8 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
         })
         .collect();
 
+    let rejected: Vec<RejectedRay> = traced.rejected.iter().map(rejected_ray).collect();
+    notes.extend(rejection_notes(&rejected));
     let spots = spots(stack, traced);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
@@ -428,11 +536,12 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
         jones_basis: [arr3(e1), arr3(e2)],
     };
     TraceResult {
-        version: 1,
+        version: 2,
         wavelength_nm: stack.wavelength.nm(),
         input,
         rays,
         elements: reports,
+        rejected,
         spots,
         total_power,
         warnings: notes,

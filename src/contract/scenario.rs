@@ -29,7 +29,8 @@
 //! Plates that touch (`gap_mm` = 0) are separated by a vanishing film of the outside medium, so
 //! every face is a crystal–outside-medium face.
 
-use crate::contract::fields::{Fields, number_list, type_name};
+use crate::contract::fields::{Fields, number_list, ranged, type_name};
+use crate::contract::geometry::{self, Contact, Piece, Placement};
 use crate::error::{Error, above, in_range, strictly_between};
 use crate::numfmt::{quote, quote_text};
 use crate::optics::interface::Losses;
@@ -139,6 +140,8 @@ pub struct CrystalPlate {
     pub tilt_deg: f64,
     /// Optic axis azimuth from +x toward +y, degrees.
     pub azimuth_deg: f64,
+    /// Faces, aperture and mount (version 2; the default is version 1's plate).
+    pub placement: Placement,
 }
 
 /// One element of the stack.
@@ -172,6 +175,8 @@ pub struct Element {
     pub gap_mm: f64,
     /// The element.
     pub kind: ElementKind,
+    /// How it meets the element before it.
+    pub contact: Contact,
 }
 
 /// A validated scenario.
@@ -187,6 +192,8 @@ pub struct Scenario {
     pub beam: Beam,
     /// The stack, in the order the light meets it.
     pub elements: Vec<Element>,
+    /// Distance from the last element's back axis point to the observation plane, mm.
+    pub screen_mm: f64,
 }
 
 impl Scenario {
@@ -215,11 +222,11 @@ impl Scenario {
     pub fn from_json(value: &Value) -> Result<Scenario, Error> {
         let mut f = Fields::new("", value)?;
         if let Some(v) = f.get("version")
-            && v.as_u64() != Some(1)
+            && !matches!(v.as_u64(), Some(1 | 2))
         {
             return Err(Error::new(
                 "version",
-                format!("only version 1 is understood, got {}", quote_text(&v.to_string())),
+                format!("versions 1 and 2 are understood, got {}", quote_text(&v.to_string())),
             ));
         }
         let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
@@ -251,6 +258,7 @@ impl Scenario {
             None => return Err(Error::new("elements", "is required: a list of at least one element")),
             Some(v) => parse_elements(v)?,
         };
+        let screen_mm = ranged(&mut f, "screen_mm", Some(0.0), 0.0, 1e6)?;
         f.finish()?;
         Ok(Scenario {
             wavelength,
@@ -258,14 +266,15 @@ impl Scenario {
             losses,
             beam,
             elements,
+            screen_mm,
         })
     }
 
     /// The scenario as a contract document with every default written out.
     pub fn to_json(&self) -> Value {
         let b = &self.beam;
-        json!({
-            "version": 1,
+        let mut doc = json!({
+            "version": 2,
             "wavelength_nm": self.wavelength.nm(),
             "outside_index": self.outside_index,
             "interface_losses": match self.losses { Losses::Ideal => "ideal", Losses::Uncoated => "uncoated" },
@@ -275,7 +284,11 @@ impl Scenario {
                 "polarization": polarization_json(&b.polarization),
             },
             "elements": self.elements.iter().map(element_json).collect::<Vec<_>>(),
-        })
+        });
+        if self.screen_mm > 0.0 {
+            doc["screen_mm"] = json!(self.screen_mm);
+        }
+        doc
     }
 }
 
@@ -314,6 +327,7 @@ pub fn element_json(e: &Element) -> Value {
                     v["ne"] = json!(ix.ne);
                 }
             }
+            c.placement.write(&mut v);
             v
         }
         ElementKind::Retarder {
@@ -328,16 +342,8 @@ pub fn element_json(e: &Element) -> Value {
         ElementKind::Rotator { angle_deg } => json!({"kind": "rotator", "angle_deg": angle_deg}),
     };
     v["gap_mm"] = json!(e.gap_mm);
+    e.contact.write(&mut v);
     v
-}
-
-fn ranged(f: &mut Fields, name: &'static str, default: Option<f64>, lo: f64, hi: f64) -> Result<f64, Error> {
-    let path = f.path_of(name);
-    let v = match default {
-        Some(d) => f.number_or(name, d)?,
-        None => f.required_number(name)?,
-    };
-    in_range(&path, v, lo, hi)
 }
 
 fn parse_beam(v: &Value) -> Result<Beam, Error> {
@@ -486,7 +492,7 @@ fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
     let elements = items
         .iter()
         .enumerate()
-        .map(|(i, item)| parse_element(&format!("elements[{i}]"), item))
+        .map(|(i, item)| parse_element(i, item))
         .collect::<Result<Vec<_>, _>>()?;
     let crystals = elements
         .iter()
@@ -501,16 +507,33 @@ fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
             ),
         ));
     }
+    let pieces: Vec<Piece> = elements
+        .iter()
+        .map(|e| Piece {
+            gap_mm: e.gap_mm,
+            contact: e.contact,
+            crystal: match e.kind {
+                ElementKind::Crystal(c) => Some((c.thickness_mm, c.placement)),
+                _ => None,
+            },
+        })
+        .collect();
+    geometry::check(&pieces)?;
     Ok(elements)
 }
 
-fn parse_element(path: &str, v: &Value) -> Result<Element, Error> {
+fn parse_element(index: usize, v: &Value) -> Result<Element, Error> {
+    let path = &format!("elements[{index}]");
     let mut f = Fields::new(path, v)?;
     let kind_path = f.path_of("kind");
     let kind = f
         .string("kind")?
         .ok_or_else(|| Error::new(&kind_path, "is required: crystal, retarder, polarizer or rotator"))?;
     let gap_mm = ranged(&mut f, "gap_mm", Some(0.0), 0.0, 1e6)?;
+    let contact = Contact::read(&mut f, index, gap_mm)?;
+    if kind != "crystal" {
+        geometry::refuse_on_ideal(&f)?;
+    }
     let kind = match kind {
         "crystal" => ElementKind::Crystal(parse_crystal(&mut f)?),
         "retarder" => ElementKind::Retarder {
@@ -534,7 +557,7 @@ fn parse_element(path: &str, v: &Value) -> Result<Element, Error> {
         }
     };
     f.finish()?;
-    Ok(Element { gap_mm, kind })
+    Ok(Element { gap_mm, kind, contact })
 }
 
 fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
@@ -587,11 +610,13 @@ fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
     let tilt_deg = ranged(&mut a, "tilt_deg", None, 0.0, 180.0)?;
     let azimuth_deg = ranged(&mut a, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
     a.finish()?;
+    let placement = Placement::read(f)?;
     Ok(CrystalPlate {
         medium,
         thickness_mm,
         tilt_deg,
         azimuth_deg,
+        placement,
     })
 }
 
@@ -664,7 +689,7 @@ mod tests {
                 "colour",
             ),
             (
-                r#"{"version": 2, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+                r#"{"version": 3, "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
                 "version",
             ),
             (

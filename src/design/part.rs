@@ -7,6 +7,7 @@
 //! its diameter when the request gave a beam), and every element with its gap; everything else
 //! is left to the contract's defaults (outside index 1, ideal faces, normal incidence).
 
+use crate::contract::geometry::{Contact, Placement};
 use crate::contract::scenario::{
     Beam, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json, polarization_json,
 };
@@ -43,6 +44,7 @@ impl Part {
                     polarization: Polarization::Linear { azimuth_deg: 45.0 },
                 },
                 elements,
+                screen_mm: 0.0,
             },
             states_beam: beam_diameter_mm.is_some(),
         }
@@ -92,6 +94,8 @@ pub fn crystal(medium: Medium, thickness_mm: f64, tilt_deg: f64, azimuth_deg: f6
             thickness_mm,
             tilt_deg,
             azimuth_deg,
+            placement: Placement::default(),
         }),
+        contact: Contact::Air,
     }
 }

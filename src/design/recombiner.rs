@@ -16,6 +16,7 @@
 //! all is the trace's own rule (their beams overlap: see `trace.rs`, spots), the same rule the
 //! page and the command line show.
 
+use crate::contract::geometry::Contact;
 use crate::contract::request::{Middle, RecombinerRequest};
 use crate::contract::result::spots;
 use crate::contract::scenario::{Element, ElementKind};
@@ -85,7 +86,11 @@ impl RecombinerRequest {
         };
         let elements = vec![
             plate(self.length_mm, self.cut_tilt_deg),
-            Element { gap_mm: 1.0, kind },
+            Element {
+                gap_mm: 1.0,
+                kind,
+                contact: Contact::Air,
+            },
             plate(self.length_mm + dl, self.cut_tilt_deg + dt),
         ];
         Part::new(self.wavelength, Some(self.beam_diameter_mm), elements)

@@ -430,6 +430,35 @@ pub fn trace_planar(stack: &Stack) -> Trace {
     }
 }
 
+/// A slab on its own at its place, lit by the stack's incident beam from the outside medium: for
+/// its o- and e-ray (when each gets through), where it leaves the back face and along which
+/// direction. What a crystal reports as its separation and split angle.
+pub fn alone(stack: &Stack, slab: &Slab, z_front: f64) -> [Option<(Vector3<f64>, Vector3<f64>)>; 2] {
+    let faces = slab.faces.unwrap_or_else(|| plain_faces(z_front, slab.thickness_mm));
+    let single = Stack {
+        layers: vec![crate::optics::stack::Layer {
+            gap_mm: z_front,
+            element: Element::Slab(Slab {
+                faces: Some(Faces {
+                    contact: Contact::Outside,
+                    ..faces
+                }),
+                ..*slab
+            }),
+        }],
+        screen_mm: 0.0,
+        ..stack.clone()
+    };
+    let traced = trace_planar(&single);
+    ["o", "e"].map(|label| {
+        traced
+            .paths
+            .iter()
+            .find(|p| p.label == label)
+            .map(|p| (Vector3::from(p.exit_point_mm), p.direction))
+    })
+}
+
 /// The faces of a version-1 plate whose front face lies at z.
 fn plain_faces(z: f64, thickness_mm: f64) -> Faces {
     Faces {
