@@ -124,30 +124,20 @@ fn write_item(out: &mut String, item: &Item, vp: &Viewport, palette: &Palette) {
             role,
             filled,
             tag,
-        } => round(
-            out,
-            palette,
-            vp.map(*center),
-            [radius * vp.sx, radius * vp.sy],
-            *role,
-            *filled,
-            tag,
-        ),
+        } => {
+            let r = [radius * vp.sx, radius * vp.sy];
+            round(out, palette, vp.map(*center), r, *role, *filled, tag)
+        }
         Item::Dot {
             center,
             radius_px,
             role,
             filled,
             tag,
-        } => round(
-            out,
-            palette,
-            vp.map(*center),
-            [*radius_px, *radius_px],
-            *role,
-            *filled,
-            tag,
-        ),
+        } => {
+            let r = [*radius_px, *radius_px];
+            round(out, palette, vp.map(*center), r, *role, *filled, tag)
+        }
         Item::Arrow {
             from,
             to,
