@@ -204,15 +204,50 @@ pub fn group_spots(
     // Plain loops over index arrays throughout: each iterator chain that collects into a new
     // type costs the page's WebAssembly a copy of generic code.
     let w = beam.radius_mm;
-    let n = exits.len();
+    let (site_of, site_pos) = sites(exits, SITE_FRACTION_OF_RADIUS * w);
+    // With one direction for all rays, |γ| ≥ e⁻² ⇔ d ≤ D·√(2/2) = D.
+    let reach = 2.0 * w * (SPOT_LINK_EXPONENT / 2.0).sqrt();
+    let mut parent = link_sites(&site_pos, reach);
+    let members = Members::new(&mut parent, &site_of);
+    // Each site's matrix, its rays summed in ray order.
+    let mut site_m: Vec<JonesMatrix> = Vec::with_capacity(site_pos.len());
+    for _ in 0..site_pos.len() {
+        site_m.push(JonesMatrix::zeros());
+    }
+    for (i, e) in exits.iter().enumerate() {
+        site_m[site_of[i]] += e.m;
+    }
 
-    // 1. Sites: rays at one point (sorted by position, merged with the site's lead ray).
+    let sum = SpotSum {
+        exits,
+        s_in,
+        c_in: coherency(s_in),
+        j_in,
+        beam,
+        direction,
+    };
+    let mut out = Vec::with_capacity(members.spots);
+    let mut fields: Vec<([f64; 2], JonesMatrix)> = Vec::new();
+    for s in 0..members.spots {
+        let rays = &members.ray_list[members.ray_start[s]..members.ray_start[s + 1]];
+        fields.clear();
+        for &k in &members.site_list[members.site_start[s]..members.site_start[s + 1]] {
+            fields.push((site_pos[k], site_m[k]));
+        }
+        out.push(sum.spot(rays, &fields));
+    }
+    out
+}
+
+/// Step 1, sites: rays at one point (within `eps`), found by sorting by position and merging
+/// each ray with the current site's lead ray. Returns each ray's site and each site's point.
+fn sites(exits: &[Exit], eps: f64) -> (Vec<usize>, Vec<[f64; 2]>) {
+    let n = exits.len();
     let mut order: Vec<(f64, f64, usize)> = Vec::with_capacity(n);
     for (i, e) in exits.iter().enumerate() {
         order.push((e.pos[0], e.pos[1], i));
     }
     sort_keyed(&mut order);
-    let eps = SITE_FRACTION_OF_RADIUS * w;
     let mut site_of = vec![0; n];
     let mut site_pos: Vec<[f64; 2]> = Vec::new();
     for &(x, y, i) in &order {
@@ -224,24 +259,22 @@ pub fn group_spots(
         }
         site_of[i] = site_pos.len() - 1;
     }
-    let sites = site_pos.len();
+    (site_of, site_pos)
+}
 
-    // 2. Links. With one direction for all rays, |γ| ≥ e⁻² ⇔ d ≤ D·√(2/2) = D.
-    let reach = 2.0 * w * (SPOT_LINK_EXPONENT / 2.0).sqrt();
-    let linked = |a: usize, b: usize| {
-        let (p, q) = (site_pos[a], site_pos[b]);
-        (p[0] - q[0]).hypot(p[1] - q[1]) <= reach
-    };
-    // Cells reach/√2 wide: any two sites in one cell are linked; linked sites lie at most two
-    // cells apart. A sorted list of (cell x, cell y, site) rather than a hash map: as fast here,
-    // and far less WebAssembly.
+/// Step 2, links: joins every two sites at most `reach` apart; returns the union-find parents.
+///
+/// Cells reach/√2 wide: any two sites in one cell are linked; linked sites lie at most two
+/// cells apart. A sorted list of (cell x, cell y, site) rather than a hash map: as fast here,
+/// and far less WebAssembly.
+fn link_sites(site_pos: &[[f64; 2]], reach: f64) -> Vec<usize> {
+    let sites = site_pos.len();
     let size = reach / 2f64.sqrt();
     let mut grid: Vec<(f64, f64, usize)> = Vec::with_capacity(sites);
     for (k, p) in site_pos.iter().enumerate() {
         grid.push(((p[0] / size).floor(), (p[1] / size).floor(), k));
     }
     sort_keyed(&mut grid);
-    let same_cell = |a: &(f64, f64, usize), x: f64, y: f64| a.0 == x && a.1 == y;
     let mut cells: Vec<(usize, usize)> = Vec::new(); // [start, end) in `grid`
     for (m, e) in grid.iter().enumerate() {
         match cells.last_mut() {
@@ -255,6 +288,10 @@ pub fn group_spots(
             join(&mut parent, grid[s].2, grid[m].2);
         }
     }
+    let linked = |a: usize, b: usize| {
+        let (p, q) = (site_pos[a], site_pos[b]);
+        (p[0] - q[0]).hypot(p[1] - q[1]) <= reach
+    };
     for &(s, e) in &cells {
         let (cx, cy) = (grid[s].0, grid[s].1);
         for dx in -2..=2 {
@@ -283,71 +320,138 @@ pub fn group_spots(
             }
         }
     }
+    parent
+}
 
-    // 3. Spots: the connected groups, numbered in the order of their first ray; each spot's
-    // rays and sites as ranges of two lists (rays in ray order).
-    let mut spot_of_root = vec![usize::MAX; sites];
-    let mut spot_of_ray = vec![0; n];
-    let mut spots = 0;
-    for (i, s) in spot_of_ray.iter_mut().enumerate() {
-        let r = root(&mut parent, site_of[i]);
-        if spot_of_root[r] == usize::MAX {
-            spot_of_root[r] = spots;
-            spots += 1;
-        }
-        *s = spot_of_root[r];
-    }
-    let ranges = |of: &[usize]| -> (Vec<usize>, Vec<usize>) {
-        let mut start = vec![0; spots + 1];
-        for &s in of {
-            start[s + 1] += 1;
-        }
-        for s in 0..spots {
-            start[s + 1] += start[s];
-        }
-        let mut list = vec![0; of.len()];
-        for (i, &s) in of.iter().enumerate() {
-            list[start[s]] = i;
-            start[s] += 1;
-        }
-        // Each start has moved to the next spot's: shift back.
-        for s in (0..spots).rev() {
-            start[s + 1] = start[s];
-        }
-        start[0] = 0;
-        (start, list)
-    };
-    let (ray_start, ray_list) = ranges(&spot_of_ray);
-    let mut spot_of_site = vec![0; sites];
-    for (k, s) in spot_of_site.iter_mut().enumerate() {
-        *s = spot_of_root[root(&mut parent, k)];
-    }
-    let (site_start, site_list) = ranges(&spot_of_site);
-    // Each site's matrix, its rays summed in ray order.
-    let mut site_m: Vec<JonesMatrix> = Vec::with_capacity(sites);
-    for _ in 0..sites {
-        site_m.push(JonesMatrix::zeros());
-    }
-    for (i, e) in exits.iter().enumerate() {
-        site_m[site_of[i]] += e.m;
-    }
+/// Whether a (cell x, cell y, site) entry lies in cell (x, y).
+fn same_cell(a: &(f64, f64, usize), x: f64, y: f64) -> bool {
+    a.0 == x && a.1 == y
+}
 
-    let c_in = coherency(s_in);
-    let mut out = Vec::with_capacity(spots);
-    let mut fields: Vec<([f64; 2], JonesMatrix)> = Vec::new();
+/// Step 3, spots: the connected groups, numbered in the order of their first ray; each spot's
+/// rays and sites as ranges of two lists (rays in ray order).
+struct Members {
+    /// How many spots.
+    spots: usize,
+    /// Spot s's rays are `ray_list[ray_start[s]..ray_start[s + 1]]`.
+    ray_start: Vec<usize>,
+    ray_list: Vec<usize>,
+    /// Spot s's sites are `site_list[site_start[s]..site_start[s + 1]]`.
+    site_start: Vec<usize>,
+    site_list: Vec<usize>,
+}
+
+impl Members {
+    /// Numbers the groups of `parent` by their first ray (`site_of` each ray's site).
+    fn new(parent: &mut [usize], site_of: &[usize]) -> Members {
+        let sites = parent.len();
+        let mut spot_of_root = vec![usize::MAX; sites];
+        let mut spot_of_ray = vec![0; site_of.len()];
+        let mut spots = 0;
+        for (i, s) in spot_of_ray.iter_mut().enumerate() {
+            let r = root(parent, site_of[i]);
+            if spot_of_root[r] == usize::MAX {
+                spot_of_root[r] = spots;
+                spots += 1;
+            }
+            *s = spot_of_root[r];
+        }
+        let (ray_start, ray_list) = ranges(&spot_of_ray, spots);
+        let mut spot_of_site = vec![0; sites];
+        for (k, s) in spot_of_site.iter_mut().enumerate() {
+            *s = spot_of_root[root(parent, k)];
+        }
+        let (site_start, site_list) = ranges(&spot_of_site, spots);
+        Members {
+            spots,
+            ray_start,
+            ray_list,
+            site_start,
+            site_list,
+        }
+    }
+}
+
+/// The members of each of `spots` groups, `of` giving each member's group: (start of each
+/// group's range, plus the end; the members in group order, each group in member order).
+fn ranges(of: &[usize], spots: usize) -> (Vec<usize>, Vec<usize>) {
+    let mut start = vec![0; spots + 1];
+    for &s in of {
+        start[s + 1] += 1;
+    }
     for s in 0..spots {
-        let rays = &ray_list[ray_start[s]..ray_start[s + 1]];
-        fields.clear();
-        for &k in &site_list[site_start[s]..site_start[s + 1]] {
-            fields.push((site_pos[k], site_m[k]));
+        start[s + 1] += start[s];
+    }
+    let mut list = vec![0; of.len()];
+    for (i, &s) in of.iter().enumerate() {
+        list[start[s]] = i;
+        start[s] += 1;
+    }
+    // Each start has moved to the next spot's: shift back.
+    for s in (0..spots).rev() {
+        start[s + 1] = start[s];
+    }
+    start[0] = 0;
+    (start, list)
+}
+
+/// Step 4, the sums: what every spot's figures are made from.
+struct SpotSum<'a, 'b> {
+    exits: &'b [Exit<'a>],
+    s_in: &'b [f64; 4],
+    /// The input's coherency matrix.
+    c_in: JonesMatrix,
+    j_in: Option<&'b Jones>,
+    beam: &'b GaussianBeam,
+    direction: [f64; 3],
+}
+
+impl SpotSum<'_, '_> {
+    /// One spot of the rays `rays`, whose sites are `fields` (point, summed matrix).
+    fn spot(&self, rays: &[usize], fields: &[([f64; 2], JonesMatrix)]) -> Spot {
+        let (centre, spread, overlap) = self.centre(rays);
+        let (s_in, beam) = (self.s_in, self.beam);
+        let st = if fields.len() == 1 {
+            // Rays at one point: the plain coherent sum.
+            stokes::apply(&stokes::mueller(&fields[0].1), s_in)
+        } else {
+            stokes_of(&spot_coherency(fields, &self.c_in, beam))
+        };
+        let jones = self.j_in.map(|j| {
+            let mut field = Jones::zeros();
+            for (p, f) in fields {
+                field += f * j * Complex64::from(same_direction_overlap(beam, *p, centre));
+            }
+            to_json(&field)
+        });
+        let mut labels = Vec::with_capacity(rays.len());
+        for &i in rays {
+            labels.push(self.exits[i].label.to_string());
         }
-        let pos = |i: usize| exits[i].pos;
-        // Centre and overlap figure from the rays' own powers (plain weights if all are dark).
+        Spot {
+            rays: labels,
+            ray_index: rays.to_vec(),
+            position_mm: centre,
+            spread_mm: spread,
+            overlap,
+            direction: self.direction,
+            power: st[0],
+            stokes: st,
+            degree_of_polarization: stokes::degree_of_polarization(&st),
+            ellipse: stokes::ellipse(&st),
+            jones,
+        }
+    }
+
+    /// The centre, spread and overlap figure of the rays `rays`, from their own powers (plain
+    /// weights if all are dark).
+    fn centre(&self, rays: &[usize]) -> ([f64; 2], f64, f64) {
+        let pos = |i: usize| self.exits[i].pos;
         let first = pos(rays[0]);
         let mut weights = Vec::with_capacity(rays.len());
         let mut total = 0.0;
         for &i in rays {
-            let p = power_of(&exits[i].m, s_in).max(0.0);
+            let p = power_of(&self.exits[i].m, self.s_in).max(0.0);
             weights.push(p);
             total += p;
         }
@@ -370,40 +474,9 @@ pub fn group_spots(
             variance += weight(k) * d * d;
             spread = spread.max(d);
         }
-        let overlap = (-2.0 * beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
-
-        let st = if fields.len() == 1 {
-            // Rays at one point: the plain coherent sum.
-            stokes::apply(&stokes::mueller(&fields[0].1), s_in)
-        } else {
-            stokes_of(&spot_coherency(&fields, &c_in, beam))
-        };
-        let jones = j_in.map(|j| {
-            let mut field = Jones::zeros();
-            for (p, f) in &fields {
-                field += f * j * Complex64::from(same_direction_overlap(beam, *p, centre));
-            }
-            to_json(&field)
-        });
-        let mut labels = Vec::with_capacity(rays.len());
-        for &i in rays {
-            labels.push(exits[i].label.to_string());
-        }
-        out.push(Spot {
-            rays: labels,
-            ray_index: rays.to_vec(),
-            position_mm: centre,
-            spread_mm: spread,
-            overlap,
-            direction,
-            power: st[0],
-            stokes: st,
-            degree_of_polarization: stokes::degree_of_polarization(&st),
-            ellipse: stokes::ellipse(&st),
-            jones,
-        });
+        let overlap = (-2.0 * self.beam.overlap_exponent([2.0 * variance.sqrt(), 0.0], [0.0, 0.0])).exp();
+        (centre, spread, overlap)
     }
-    out
 }
 
 /// C = Σ_ab γ_ab F_a C_in F_bᴴ over sites (point, summed matrix) of one direction, by the pair

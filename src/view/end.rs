@@ -17,6 +17,7 @@
 
 use crate::contract::result::TraceResult;
 use crate::numfmt::{LengthUnit, NO_POWER, length, power, sig};
+use crate::optics::spots::Spot;
 use crate::optics::stokes::{Handedness, ellipse};
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 
@@ -44,108 +45,15 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     }
     let bounds = Rect::around(pts).at_least(4.0 * r, 3.0 * r);
 
-    // Undeviated beam position.
-    let k = 0.25 * r;
-    scene.line(
-        vec![[undeviated[0] - k, undeviated[1]], [undeviated[0] + k, undeviated[1]]],
-        Role::Grid,
-        vec![],
-        1.0,
-        "undeviated",
-    );
-    scene.line(
-        vec![[undeviated[0], undeviated[1] - k], [undeviated[0], undeviated[1] + k]],
-        Role::Grid,
-        vec![],
-        1.0,
-        "undeviated",
-    );
-
+    undeviated_cross(&mut scene, undeviated, 0.25 * r);
     for spot in &result.spots {
-        let c = spot.position_mm;
-        let name = spot.name();
-        let dim = spot.power < NO_POWER;
-        let role = if dim { Role::Grid } else { Role::Spot };
-        let tag = format!("spot {name}");
-        scene.items.push(Item::Circle {
-            center: c,
-            radius: r,
-            role,
-            filled: false,
-            tag: tag.clone(),
-        });
-        // Rays that leave from visibly different points: the spot's footprint, a faint ring
-        // around the farthest of their beams.
-        if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r {
-            scene.items.push(Item::Circle {
-                center: c,
-                radius: r + spot.spread_mm,
-                role: Role::Grid,
-                filled: false,
-                tag: format!("footprint {name}"),
-            });
-        }
-        for &i in &spot.ray_index {
-            if let Some(ray) = result.rays.get(i) {
-                scene.items.push(Item::Dot {
-                    center: ray.exit_position_mm,
-                    radius_px: 2.0,
-                    role: Role::Label,
-                    filled: true,
-                    tag: format!("exit {}", ray.label),
-                });
-            }
-        }
-        if !dim {
-            polarization_glyph(&mut scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
-        }
-        let mut text = if dim {
-            format!("{name}: no power")
-        } else {
-            format!("{name}: P {}", power(spot.power, 4))
-        };
-        if spot.spread_mm > 0.0 && !dim {
-            text.push_str(&format!(" · overlap {}", sig(spot.overlap, 5)));
-        }
-        scene.text(
-            [c[0], c[1] - 1.25 * r - spot.spread_mm],
-            text,
-            12.0,
-            Anchor::Middle,
-            Role::Label,
-        );
+        draw_spot(&mut scene, result, spot, r);
     }
-
-    // Dimension between the two spots farthest apart (they lie on the convex hull).
-    let hull = convex_hull(&result.spots.iter().map(|s| s.position_mm).collect::<Vec<_>>());
-    let mut best = (0.0, 0, 0);
-    for (x, &i) in hull.iter().enumerate() {
-        for &j in &hull[x + 1..] {
-            let (a, b) = (result.spots[i].position_mm, result.spots[j].position_mm);
-            let d = (a[0] - b[0]).hypot(a[1] - b[1]);
-            if d > best.0 {
-                best = (d, i.min(j), i.max(j));
-            }
-        }
-    }
+    let best = farthest_spots(result);
     let bar = nice_step(bounds.width() / 4.0);
     let unit = LengthUnit::for_values(&[best.0, bar]);
     if best.0 > 0.0 {
-        let (a, b) = (result.spots[best.1].position_mm, result.spots[best.2].position_mm);
-        // Offset the dimension line above the spots, perpendicular to the line joining them.
-        let (dx, dy) = ((b[0] - a[0]) / best.0, (b[1] - a[1]) / best.0);
-        let (mut nx, mut ny) = (-dy, dx);
-        if ny < 0.0 || (ny == 0.0 && nx < 0.0) {
-            nx = -nx;
-            ny = -ny;
-        }
-        let off = 1.5 * r;
-        scene.dimension(
-            [a[0] + nx * off, a[1] + ny * off],
-            [b[0] + nx * off, b[1] + ny * off],
-            length(best.0, unit, 3),
-            "separation",
-        );
+        separation(&mut scene, result, best, 1.5 * r, unit);
     }
 
     // Scale bar under the spots.
@@ -174,6 +82,116 @@ pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
     }
     .padded(0.08, 0.08);
     scene
+}
+
+/// Draws a cross of half-width `k` where the undeviated beam would be.
+fn undeviated_cross(scene: &mut Scene, undeviated: Point, k: f64) {
+    scene.line(
+        vec![[undeviated[0] - k, undeviated[1]], [undeviated[0] + k, undeviated[1]]],
+        Role::Grid,
+        vec![],
+        1.0,
+        "undeviated",
+    );
+    scene.line(
+        vec![[undeviated[0], undeviated[1] - k], [undeviated[0], undeviated[1] + k]],
+        Role::Grid,
+        vec![],
+        1.0,
+        "undeviated",
+    );
+}
+
+/// Draws one spot for beams of radius `r`: its circle, its footprint ring, its rays' exit dots,
+/// its polarization and its power.
+fn draw_spot(scene: &mut Scene, result: &TraceResult, spot: &Spot, r: f64) {
+    let c = spot.position_mm;
+    let name = spot.name();
+    let dim = spot.power < NO_POWER;
+    let role = if dim { Role::Grid } else { Role::Spot };
+    let tag = format!("spot {name}");
+    scene.items.push(Item::Circle {
+        center: c,
+        radius: r,
+        role,
+        filled: false,
+        tag: tag.clone(),
+    });
+    // Rays that leave from visibly different points: the spot's footprint, a faint ring
+    // around the farthest of their beams.
+    if spot.spread_mm > VISIBLE_FRACTION_OF_RADIUS * r {
+        scene.items.push(Item::Circle {
+            center: c,
+            radius: r + spot.spread_mm,
+            role: Role::Grid,
+            filled: false,
+            tag: format!("footprint {name}"),
+        });
+    }
+    for &i in &spot.ray_index {
+        if let Some(ray) = result.rays.get(i) {
+            scene.items.push(Item::Dot {
+                center: ray.exit_position_mm,
+                radius_px: 2.0,
+                role: Role::Label,
+                filled: true,
+                tag: format!("exit {}", ray.label),
+            });
+        }
+    }
+    if !dim {
+        polarization_glyph(scene, c, 0.8 * r, &spot.stokes, &format!("ellipse {name}"));
+    }
+    let mut text = if dim {
+        format!("{name}: no power")
+    } else {
+        format!("{name}: P {}", power(spot.power, 4))
+    };
+    if spot.spread_mm > 0.0 && !dim {
+        text.push_str(&format!(" · overlap {}", sig(spot.overlap, 5)));
+    }
+    scene.text(
+        [c[0], c[1] - 1.25 * r - spot.spread_mm],
+        text,
+        12.0,
+        Anchor::Middle,
+        Role::Label,
+    );
+}
+
+/// The two spots farthest apart (they lie on the convex hull): (distance, lower index, higher
+/// index); distance 0 for fewer than two spots.
+fn farthest_spots(result: &TraceResult) -> (f64, usize, usize) {
+    let hull = convex_hull(&result.spots.iter().map(|s| s.position_mm).collect::<Vec<_>>());
+    let mut best = (0.0, 0, 0);
+    for (x, &i) in hull.iter().enumerate() {
+        for &j in &hull[x + 1..] {
+            let (a, b) = (result.spots[i].position_mm, result.spots[j].position_mm);
+            let d = (a[0] - b[0]).hypot(a[1] - b[1]);
+            if d > best.0 {
+                best = (d, i.min(j), i.max(j));
+            }
+        }
+    }
+    best
+}
+
+/// Dimensions the distance between the spots `best` (from [`farthest_spots`]), its line `off`
+/// above them, perpendicular to the line joining them.
+fn separation(scene: &mut Scene, result: &TraceResult, best: (f64, usize, usize), off: f64, unit: LengthUnit) {
+    let (a, b) = (result.spots[best.1].position_mm, result.spots[best.2].position_mm);
+    let (dx, dy) = ((b[0] - a[0]) / best.0, (b[1] - a[1]) / best.0);
+    let (mut nx, mut ny) = (-dy, dx);
+    if ny < 0.0 || (ny == 0.0 && nx < 0.0) {
+        nx = -nx;
+        ny = -ny;
+    }
+    scene.dimension(
+        [a[0] + nx * off, a[1] + ny * off],
+        [b[0] + nx * off, b[1] + ny * off],
+        length(best.0, unit, 3),
+        "separation",
+    );
 }
 
 /// Offsets below this fraction of the beam radius are not visible in the end view: a spot whose

@@ -402,10 +402,43 @@ impl Request {
 /// As [`layout`], with the placement rule chosen.
 pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placement: Placement) -> Layout {
     let vp = Viewport::fit(scene, width, height, margin);
-    let small = width < SMALL_PANEL_WIDTH_PX || height < SMALL_PANEL_HEIGHT_PX;
-    let mut requests: Vec<Request> = Vec::new();
+    let mut requests = title_and_caption(scene, width, height);
+    let dimensions = item_requests(scene, &vp, &mut requests);
+    let mut placer = Placer {
+        width,
+        height,
+        small: width < SMALL_PANEL_WIDTH_PX || height < SMALL_PANEL_HEIGHT_PX,
+        marks: marks(scene, &vp, width, height),
+        labels: BoxSet::new(width, height),
+    };
+    let left_out = placer.place_all(&mut requests, placement);
+    let mut labels = Vec::new();
+    for r in requests {
+        if let Some(b) = r.placed {
+            labels.push(PlacedLabel {
+                baseline: b.y1 - 1.0 - DESCENT_EM * r.size_px,
+                x: b.x0 + 1.0,
+                text: r.text,
+                size_px: r.size_px,
+                role: r.role,
+                bold: r.bold,
+                bbox: b,
+            });
+        }
+    }
+    Layout {
+        viewport: vp,
+        width,
+        height,
+        labels,
+        dimensions,
+        left_out,
+    }
+}
 
-    // Title and caption, fitted to the width.
+/// The title and the caption's lines, fitted to the width, as fixed key labels.
+fn title_and_caption(scene: &Scene, width: f64, height: f64) -> Vec<Request> {
+    let mut requests: Vec<Request> = Vec::new();
     let room = (width - 16.0).max(10.0);
     let title = truncate_to(&scene.title, TITLE_PX, room / BOLD_FACTOR);
     requests.push(Request::new(
@@ -438,7 +471,12 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
             baseline,
         ));
     }
+    requests
+}
 
+/// Adds a request for each text item and each dimension's label to `requests`, in the scene's
+/// order; returns the dimensions long enough on screen to be drawn.
+fn item_requests(scene: &Scene, vp: &Viewport, requests: &mut Vec<Request>) -> Vec<DrawnDimension> {
     let mut dimensions = Vec::new();
     for item in &scene.items {
         match item {
@@ -480,126 +518,153 @@ pub fn layout_with(scene: &Scene, width: f64, height: f64, margin: f64, placemen
                     to: b,
                     tag: tag.clone(),
                 });
-                let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
-                let size = 12.0;
-                // Beside a steep line, above a flat one.
-                let (left, baseline) = if (b[1] - a[1]).abs() > (b[0] - a[0]).abs() {
-                    (mid[0] + 4.0, mid[1] + 0.35 * size)
-                } else {
-                    (mid[0] - 0.5 * text_width_px(label, size), mid[1] - 4.0)
-                };
-                requests.push(Request::new(
-                    label.clone(),
-                    size,
-                    Role::Dimension,
-                    false,
-                    Priority::Key,
-                    false,
-                    left,
-                    baseline,
-                ));
+                requests.push(dimension_request(a, b, label));
             }
             _ => {}
         }
     }
+    dimensions
+}
 
-    // The marks labels should not cover: dots (exit points, states, markers) and small circles
-    // (spots), as boxes on screen.
-    let mut marks = Grid::new(width, height);
-    let mut mark_boxes: Vec<BoxPx> = Vec::new();
+/// The label of a dimension from `a` to `b` (px): beside a steep line, above a flat one.
+fn dimension_request(a: [f64; 2], b: [f64; 2], label: &str) -> Request {
+    let mid = [0.5 * (a[0] + b[0]), 0.5 * (a[1] + b[1])];
+    let size = 12.0;
+    let (left, baseline) = if (b[1] - a[1]).abs() > (b[0] - a[0]).abs() {
+        (mid[0] + 4.0, mid[1] + 0.35 * size)
+    } else {
+        (mid[0] - 0.5 * text_width_px(label, size), mid[1] - 4.0)
+    };
+    Request::new(
+        label.to_string(),
+        size,
+        Role::Dimension,
+        false,
+        Priority::Key,
+        false,
+        left,
+        baseline,
+    )
+}
+
+/// The marks labels should not cover: dots (exit points, states, markers) and small circles
+/// (spots), as boxes on screen.
+fn marks(scene: &Scene, vp: &Viewport, width: f64, height: f64) -> BoxSet {
+    let mut marks = BoxSet::new(width, height);
     for item in &scene.items {
         let (c, rx, ry) = match item {
             Item::Dot { center, radius_px, .. } => (vp.map(*center), *radius_px, *radius_px),
             Item::Circle { center, radius, .. } => (vp.map(*center), radius * vp.sx, radius * vp.sy),
             _ => continue,
         };
-        if rx < width / 3.0 && ry < height / 3.0 && mark_boxes.len() < MAX_MARKS {
-            let b = BoxPx {
+        if rx < width / 3.0 && ry < height / 3.0 && marks.boxes.len() < MAX_MARKS {
+            marks.push(BoxPx {
                 x0: c[0] - rx,
                 y0: c[1] - ry,
                 x1: c[0] + rx,
                 y1: c[1] + ry,
-            };
-            marks.insert(&b, mark_boxes.len());
-            mark_boxes.push(b);
+            });
+        }
+    }
+    marks
+}
+
+/// Boxes on the panel, with a grid to find those near a new one.
+struct BoxSet {
+    grid: Grid,
+    boxes: Vec<BoxPx>,
+}
+
+impl BoxSet {
+    /// No boxes yet, on a panel `width` × `height` px.
+    fn new(width: f64, height: f64) -> BoxSet {
+        BoxSet {
+            grid: Grid::new(width, height),
+            boxes: Vec::new(),
         }
     }
 
-    // Most important first, each priority in the scene's order.
-    let mut grid = Grid::new(width, height);
-    let mut boxes: Vec<BoxPx> = Vec::new();
-    let mut left_out = Vec::new();
-    for priority in [Priority::Key, Priority::Normal, Priority::Detail] {
-        let mut failures = 0;
-        for r in requests.iter_mut() {
-            if r.priority != priority {
-                continue;
-            }
-            if placement == Placement::AsAnchored {
-                r.placed = Some(r.bbox);
-                continue;
-            }
-            let mut found = None;
-            if (small && priority == Priority::Detail) || failures >= GIVE_UP_AFTER {
-                // Left out of small panels, or of a panel already full.
-            } else if r.fixed {
-                if r.bbox.inside(width, height) && grid.free(&r.bbox, &boxes) {
-                    found = Some(r.bbox);
+    /// Whether `b` overlaps none of the boxes.
+    fn free(&self, b: &BoxPx) -> bool {
+        self.grid.free(b, &self.boxes)
+    }
+
+    /// Adds `b`.
+    fn push(&mut self, b: BoxPx) {
+        self.grid.insert(&b, self.boxes.len());
+        self.boxes.push(b);
+    }
+}
+
+/// The placement pass: the panel, its marks and the labels placed so far.
+struct Placer {
+    width: f64,
+    height: f64,
+    /// A small panel, which leaves detail labels out.
+    small: bool,
+    marks: BoxSet,
+    labels: BoxSet,
+}
+
+impl Placer {
+    /// Places the requests, most important first, each priority in the scene's order; returns
+    /// the texts left out.
+    fn place_all(&mut self, requests: &mut [Request], placement: Placement) -> Vec<String> {
+        let mut left_out = Vec::new();
+        for priority in [Priority::Key, Priority::Normal, Priority::Detail] {
+            let mut failures = 0;
+            for r in requests.iter_mut() {
+                if r.priority != priority {
+                    continue;
                 }
-            } else {
-                // Clear of labels and marks; a key label that finds no such place may cover marks.
-                'search: for avoid_marks in [true, false] {
-                    if !avoid_marks && priority != Priority::Key {
-                        break;
+                if placement == Placement::AsAnchored {
+                    r.placed = Some(r.bbox);
+                    continue;
+                }
+                let found = if (self.small && priority == Priority::Detail) || failures >= GIVE_UP_AFTER {
+                    // Left out of small panels, or of a panel already full.
+                    None
+                } else if r.fixed {
+                    let fits = r.bbox.inside(self.width, self.height) && self.labels.free(&r.bbox);
+                    fits.then_some(r.bbox)
+                } else {
+                    self.movable(r)
+                };
+                match found {
+                    Some(b) => {
+                        self.labels.push(b);
+                        r.placed = Some(b);
                     }
-                    for (dx, dy) in offsets(r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0) {
-                        if let Some(b) = clamp_into(r.bbox.shifted(dx, dy), width, height)
-                            && grid.free(&b, &boxes)
-                            && (!avoid_marks || marks.free(&b, &mark_boxes))
-                        {
-                            found = Some(b);
-                            break 'search;
+                    None => {
+                        left_out.push(r.text.clone());
+                        // Tick labels fail one by one as they thin out; only names count.
+                        if priority != Priority::Key && !r.fixed {
+                            failures += 1;
                         }
                     }
                 }
             }
-            match found {
-                Some(b) => {
-                    grid.insert(&b, boxes.len());
-                    boxes.push(b);
-                    r.placed = Some(b);
-                }
-                None => {
-                    left_out.push(r.text.clone());
-                    // Tick labels fail one by one as they thin out; only names count.
-                    if priority != Priority::Key && !r.fixed {
-                        failures += 1;
-                    }
+        }
+        left_out
+    }
+
+    /// The nearest place for a movable label clear of labels and marks; a key label that finds
+    /// no such place may cover marks.
+    fn movable(&self, r: &Request) -> Option<BoxPx> {
+        for avoid_marks in [true, false] {
+            if !avoid_marks && r.priority != Priority::Key {
+                break;
+            }
+            for (dx, dy) in offsets(r.bbox.x1 - r.bbox.x0, r.bbox.y1 - r.bbox.y0) {
+                if let Some(b) = clamp_into(r.bbox.shifted(dx, dy), self.width, self.height)
+                    && self.labels.free(&b)
+                    && (!avoid_marks || self.marks.free(&b))
+                {
+                    return Some(b);
                 }
             }
         }
-    }
-    let mut labels = Vec::new();
-    for r in requests {
-        if let Some(b) = r.placed {
-            labels.push(PlacedLabel {
-                baseline: b.y1 - 1.0 - DESCENT_EM * r.size_px,
-                x: b.x0 + 1.0,
-                text: r.text,
-                size_px: r.size_px,
-                role: r.role,
-                bold: r.bold,
-                bbox: b,
-            });
-        }
-    }
-    Layout {
-        viewport: vp,
-        width,
-        height,
-        labels,
-        dimensions,
-        left_out,
+        None
     }
 }
 

@@ -30,131 +30,189 @@ pub fn plot(series: &Series) -> Scene {
     let mut pts: Vec<[f64; 2]> = series.points.clone();
     pts.extend(series.current.iter().chain(&series.markers));
     if pts.is_empty() {
-        scene.bounds = Rect {
-            x0: 0.0,
-            y0: 0.0,
-            x1: 1.0,
-            y1: 1.0,
-        };
-        scene.text([0.5, 0.5], series.note.clone(), 12.0, Anchor::Middle, Role::Caption);
+        empty_panel(&mut scene, series.note.clone());
         return scene;
     }
-    let data = Rect::around(pts.iter().copied());
-    let (mut y0, mut y1) = (data.y0.min(0.0), data.y1.max(0.0));
-    if y1 - y0 < 1e-12 * y0.abs().max(y1.abs()).max(1e-300) || y1 == y0 {
-        let c = 0.5 * (y0 + y1);
-        let h = if c != 0.0 { 0.05 * c.abs() } else { 1.0 };
-        y0 = c - h;
-        y1 = c + h;
-    }
-    let (x0, x1) = if data.width() > 0.0 {
-        (data.x0, data.x1)
-    } else {
-        (data.x0 - 1.0, data.x1 + 1.0)
-    };
-    let (w, h) = (x1 - x0, y1 - y0);
-    let (fx, x_unit) = axis_unit(&series.x_unit, x0.abs().max(x1.abs()));
-    let (fy, y_unit) = axis_unit(&series.y_unit, y0.abs().max(y1.abs()));
-
-    // Grid, ticks and tick labels.
-    // At most about five labels per axis, so that they stay apart in a narrow panel.
-    let xs = nice_step_at_least(w / 5.0);
-    let ys = nice_step_at_least(h / 5.0);
-    let mut t = (x0 / xs).ceil() * xs;
-    while t <= x1 + 1e-9 * w {
-        scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
-        scene.fixed_label(
-            [t, y0 - 0.1 * h],
-            tick(t * fx, xs * fx),
-            10.0,
-            Anchor::Middle,
-            Role::Caption,
-        );
-        t += xs;
-    }
-    let mut t = (y0 / ys).ceil() * ys;
-    while t <= y1 + 1e-9 * h {
-        scene.line(vec![[x0, t], [x1, t]], Role::Grid, vec![1.0, 3.0], 0.5, "grid y");
-        scene.fixed_label(
-            [x0 - 0.015 * w, t - 0.02 * h],
-            tick(t * fy, ys * fy),
-            10.0,
-            Anchor::End,
-            Role::Caption,
-        );
-        t += ys;
-    }
-    // Frame and axis labels.
-    scene.items.push(Item::Polygon {
-        points: vec![[x0, y0], [x1, y0], [x1, y1], [x0, y1]],
-        role: Role::Frame,
-        tag: "frame".into(),
-    });
-    scene.label(
-        [0.5 * (x0 + x1), y0 - 0.25 * h],
-        format!("{} ({x_unit})", series.x_label),
-        11.0,
-        Anchor::Middle,
-        Role::Label,
-        Priority::Key,
-    );
-    scene.label(
-        [x0, y1 + 0.04 * h],
-        format!("{} ({y_unit})", series.y_label),
-        11.0,
-        Anchor::Start,
-        Role::Label,
-        Priority::Key,
-    );
-
-    // Curve, split where samples are missing (gaps wider than twice the usual spacing).
-    let mut run: Vec<[f64; 2]> = Vec::new();
-    let spacing = if series.points.len() > 1 {
-        w / (series.points.len() - 1) as f64
-    } else {
-        w
-    };
-    for p in &series.points {
-        if let Some(last) = run.last()
-            && p[0] - last[0] > 2.5 * spacing
-        {
-            scene.line(std::mem::take(&mut run), Role::Curve, vec![], 1.8, "curve");
-        }
-        run.push(*p);
-    }
-    if !run.is_empty() {
-        scene.line(run, Role::Curve, vec![], 1.8, "curve");
-    }
-    let marked = series
-        .current
-        .iter()
-        .map(|c| (c, "current"))
-        .chain(series.markers.iter().map(|c| (c, "marker")));
-    for (&c, tag) in marked {
-        scene.items.push(Item::Dot {
-            center: c,
-            radius_px: 5.0,
-            role: Role::Marker,
-            filled: true,
-            tag: tag.into(),
-        });
-        let right = c[0] < x0 + 0.7 * w;
-        let label = format!("{} {y_unit} at {} {x_unit}", sig(c[1] * fy, 4), sig(c[0] * fx, 4));
-        scene.text(
-            [c[0] + if right { 0.02 } else { -0.02 } * w, c[1] + 0.04 * h],
-            label,
-            11.0,
-            if right { Anchor::Start } else { Anchor::End },
-            Role::Marker,
-        );
-    }
+    let a = PlotAxes::around(series, Rect::around(pts.iter().copied()));
+    a.grid_and_ticks(&mut scene);
+    a.frame_and_names(&mut scene, series);
+    a.curve(&mut scene, series);
+    a.marked_points(&mut scene, series);
     scene.bounds = Rect {
-        x0: x0 - 0.1 * w,
-        y0: y0 - 0.31 * h,
-        x1: x1 + 0.03 * w,
-        y1: y1 + 0.1 * h,
+        x0: a.x0 - 0.1 * a.w,
+        y0: a.y0 - 0.31 * a.h,
+        x1: a.x1 + 0.03 * a.w,
+        y1: a.y1 + 0.1 * a.h,
     };
     scene
+}
+
+/// A framed unit panel that says `note` in its middle (a plot with nothing to draw).
+fn empty_panel(scene: &mut Scene, note: String) {
+    scene.bounds = Rect {
+        x0: 0.0,
+        y0: 0.0,
+        x1: 1.0,
+        y1: 1.0,
+    };
+    scene.text([0.5, 0.5], note, 12.0, Anchor::Middle, Role::Caption);
+}
+
+/// A plot's axes: the ranges drawn (data units), their widths, and the factor and unit each
+/// axis writes its numbers in.
+struct PlotAxes {
+    x0: f64,
+    x1: f64,
+    y0: f64,
+    y1: f64,
+    w: f64,
+    h: f64,
+    fx: f64,
+    x_unit: String,
+    fy: f64,
+    y_unit: String,
+}
+
+impl PlotAxes {
+    /// Axes around the `data` of `series`: y always includes 0, and an empty range is widened.
+    fn around(series: &Series, data: Rect) -> PlotAxes {
+        let (mut y0, mut y1) = (data.y0.min(0.0), data.y1.max(0.0));
+        if y1 - y0 < 1e-12 * y0.abs().max(y1.abs()).max(1e-300) || y1 == y0 {
+            let c = 0.5 * (y0 + y1);
+            let h = if c != 0.0 { 0.05 * c.abs() } else { 1.0 };
+            y0 = c - h;
+            y1 = c + h;
+        }
+        let (x0, x1) = if data.width() > 0.0 {
+            (data.x0, data.x1)
+        } else {
+            (data.x0 - 1.0, data.x1 + 1.0)
+        };
+        let (w, h) = (x1 - x0, y1 - y0);
+        let (fx, x_unit) = axis_unit(&series.x_unit, x0.abs().max(x1.abs()));
+        let (fy, y_unit) = axis_unit(&series.y_unit, y0.abs().max(y1.abs()));
+        PlotAxes {
+            x0,
+            x1,
+            y0,
+            y1,
+            w,
+            h,
+            fx,
+            x_unit,
+            fy,
+            y_unit,
+        }
+    }
+
+    /// Draws the grid lines, ticks and tick labels: at most about five labels per axis, so that
+    /// they stay apart in a narrow panel.
+    fn grid_and_ticks(&self, scene: &mut Scene) {
+        let (x0, x1, y0, y1, w, h) = (self.x0, self.x1, self.y0, self.y1, self.w, self.h);
+        let xs = nice_step_at_least(w / 5.0);
+        let ys = nice_step_at_least(h / 5.0);
+        let mut t = (x0 / xs).ceil() * xs;
+        while t <= x1 + 1e-9 * w {
+            scene.line(vec![[t, y0], [t, y1]], Role::Grid, vec![1.0, 3.0], 0.5, "grid x");
+            scene.fixed_label(
+                [t, y0 - 0.1 * h],
+                tick(t * self.fx, xs * self.fx),
+                10.0,
+                Anchor::Middle,
+                Role::Caption,
+            );
+            t += xs;
+        }
+        let mut t = (y0 / ys).ceil() * ys;
+        while t <= y1 + 1e-9 * h {
+            scene.line(vec![[x0, t], [x1, t]], Role::Grid, vec![1.0, 3.0], 0.5, "grid y");
+            scene.fixed_label(
+                [x0 - 0.015 * w, t - 0.02 * h],
+                tick(t * self.fy, ys * self.fy),
+                10.0,
+                Anchor::End,
+                Role::Caption,
+            );
+            t += ys;
+        }
+    }
+
+    /// Draws the frame and the axes' names with their units.
+    fn frame_and_names(&self, scene: &mut Scene, series: &Series) {
+        let (x0, x1, y0, y1, h) = (self.x0, self.x1, self.y0, self.y1, self.h);
+        scene.items.push(Item::Polygon {
+            points: vec![[x0, y0], [x1, y0], [x1, y1], [x0, y1]],
+            role: Role::Frame,
+            tag: "frame".into(),
+        });
+        scene.label(
+            [0.5 * (x0 + x1), y0 - 0.25 * h],
+            format!("{} ({})", series.x_label, self.x_unit),
+            11.0,
+            Anchor::Middle,
+            Role::Label,
+            Priority::Key,
+        );
+        scene.label(
+            [x0, y1 + 0.04 * h],
+            format!("{} ({})", series.y_label, self.y_unit),
+            11.0,
+            Anchor::Start,
+            Role::Label,
+            Priority::Key,
+        );
+    }
+
+    /// Draws the curve, split where samples are missing (gaps wider than twice the usual
+    /// spacing).
+    fn curve(&self, scene: &mut Scene, series: &Series) {
+        let mut run: Vec<[f64; 2]> = Vec::new();
+        let spacing = if series.points.len() > 1 {
+            self.w / (series.points.len() - 1) as f64
+        } else {
+            self.w
+        };
+        for p in &series.points {
+            if let Some(last) = run.last()
+                && p[0] - last[0] > 2.5 * spacing
+            {
+                scene.line(std::mem::take(&mut run), Role::Curve, vec![], 1.8, "curve");
+            }
+            run.push(*p);
+        }
+        if !run.is_empty() {
+            scene.line(run, Role::Curve, vec![], 1.8, "curve");
+        }
+    }
+
+    /// Draws the current point and the series' markers, each with its value beside it.
+    fn marked_points(&self, scene: &mut Scene, series: &Series) {
+        let (w, h, fx, fy) = (self.w, self.h, self.fx, self.fy);
+        let (x_unit, y_unit) = (&self.x_unit, &self.y_unit);
+        let marked = series
+            .current
+            .iter()
+            .map(|c| (c, "current"))
+            .chain(series.markers.iter().map(|c| (c, "marker")));
+        for (&c, tag) in marked {
+            scene.items.push(Item::Dot {
+                center: c,
+                radius_px: 5.0,
+                role: Role::Marker,
+                filled: true,
+                tag: tag.into(),
+            });
+            let right = c[0] < self.x0 + 0.7 * w;
+            let label = format!("{} {y_unit} at {} {x_unit}", sig(c[1] * fy, 4), sig(c[0] * fx, 4));
+            scene.text(
+                [c[0] + if right { 0.02 } else { -0.02 } * w, c[1] + 0.04 * h],
+                label,
+                11.0,
+                if right { Anchor::Start } else { Anchor::End },
+                Role::Marker,
+            );
+        }
+    }
 }
 
 /// Builds a histogram of a Monte Carlo `Summary`: one bar per bin, with the nominal value,
@@ -164,13 +222,7 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
     let h = &summary.histogram;
     let peak = h.counts.iter().copied().max().unwrap_or(0) as f64;
     if h.counts.is_empty() || h.edges.len() != h.counts.len() + 1 || peak <= 0.0 {
-        scene.bounds = Rect {
-            x0: 0.0,
-            y0: 0.0,
-            x1: 1.0,
-            y1: 1.0,
-        };
-        scene.text([0.5, 0.5], "no samples", 12.0, Anchor::Middle, Role::Caption);
+        empty_panel(&mut scene, "no samples".into());
         return scene;
     }
     let (x0, x1) = (h.edges[0], h.edges[h.edges.len() - 1]);
@@ -181,18 +233,6 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
     };
     let (w, top) = (x1 - x0, peak * 1.15);
     let (f, unit) = axis_unit(unit, x0.abs().max(x1.abs()));
-    // Digits enough to tell the marks apart: down to a tenth of the spread.
-    let resolved = |v: f64| {
-        let spread = if summary.std > 0.0 { summary.std } else { w };
-        let top = (v.abs() * f).log10().floor();
-        let bottom = (0.1 * spread * f).log10().floor();
-        let n = if top.is_finite() && bottom.is_finite() {
-            (top - bottom + 1.0).clamp(2.0, 8.0) as usize
-        } else {
-            4
-        };
-        sig(v * f, n)
-    };
     for (i, &c) in h.counts.iter().enumerate() {
         let (a, b) = (h.edges[i], h.edges[i + 1]);
         let (a, b) = if b > a { (a, b) } else { (x0, x1) };
@@ -214,6 +254,52 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
         );
         t += xs;
     }
+    histogram_marks(&mut scene, summary, nominal, top, |v| resolved(v, f, summary.std, w));
+    scene.items.push(Item::Polygon {
+        points: vec![[x0, 0.0], [x1, 0.0], [x1, top], [x0, top]],
+        role: Role::Frame,
+        tag: "frame".into(),
+    });
+    scene.label(
+        [0.5 * (x0 + x1), -0.16 * top],
+        format!("{quantity} ({unit}) · σ {}", sig(summary.std * f, 3)),
+        11.0,
+        Anchor::Middle,
+        Role::Label,
+        Priority::Key,
+    );
+    scene.bounds = Rect {
+        x0: x0 - 0.05 * w,
+        y0: -0.22 * top,
+        x1: x1 + 0.05 * w,
+        y1: top * 1.05,
+    };
+    scene
+}
+
+/// `v` (data units) times `f`, with digits enough to tell a histogram's marks apart: down to a
+/// tenth of the spread (`std`, or the range `w` when all samples agree).
+fn resolved(v: f64, f: f64, std: f64, w: f64) -> String {
+    let spread = if std > 0.0 { std } else { w };
+    let top = (v.abs() * f).log10().floor();
+    let bottom = (0.1 * spread * f).log10().floor();
+    let n = if top.is_finite() && bottom.is_finite() {
+        (top - bottom + 1.0).clamp(2.0, 8.0) as usize
+    } else {
+        4
+    };
+    sig(v * f, n)
+}
+
+/// Marks the 5th and 95th percentiles, the mean and the nominal value on a histogram `top` high,
+/// each a dashed line with its value written by `resolved`.
+fn histogram_marks(
+    scene: &mut Scene,
+    summary: &Summary,
+    nominal: Option<f64>,
+    top: f64,
+    resolved: impl Fn(f64) -> String,
+) {
     let mut marks: Vec<(f64, String, Role)> = vec![
         (summary.p5, format!("p5 {}", resolved(summary.p5)), Role::Grid),
         (summary.p95, format!("p95 {}", resolved(summary.p95)), Role::Grid),
@@ -238,26 +324,6 @@ pub fn histogram(title: &str, quantity: &str, unit: &str, summary: &Summary, nom
             *role,
         );
     }
-    scene.items.push(Item::Polygon {
-        points: vec![[x0, 0.0], [x1, 0.0], [x1, top], [x0, top]],
-        role: Role::Frame,
-        tag: "frame".into(),
-    });
-    scene.label(
-        [0.5 * (x0 + x1), -0.16 * top],
-        format!("{quantity} ({unit}) · σ {}", sig(summary.std * f, 3)),
-        11.0,
-        Anchor::Middle,
-        Role::Label,
-        Priority::Key,
-    );
-    scene.bounds = Rect {
-        x0: x0 - 0.05 * w,
-        y0: -0.22 * top,
-        x1: x1 + 0.05 * w,
-        y1: top * 1.05,
-    };
-    scene
 }
 
 #[cfg(test)]

@@ -19,8 +19,8 @@
 //! ([`LengthUnit::for_values`]); rays that carry no power ([`NO_POWER`]) are drawn thin and grey
 //! and their spot is labelled "no power".
 
-use crate::contract::result::{ElementReport, TraceResult};
-use crate::contract::scenario::{ElementKind, Scenario};
+use crate::contract::result::{ElementReport, Ray, TraceResult};
+use crate::contract::scenario::{CrystalPlate, ElementKind, Scenario};
 use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
 use crate::optics::uniaxial::OpticAxis;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
@@ -61,170 +61,257 @@ pub fn side_view_in(scenario: &Scenario, result: &TraceResult, plane: SidePlane)
 }
 
 fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene {
-    // The drawn transverse coordinate of a lab point, and its component out of the page.
-    let across = |p: [f64; 2]| names.turn(p)[0];
-    let across3 = |p: &[f64; 3]| across([p[0], p[1]]);
+    let f = Frame::new(scenario, result, names);
     let mut scene = Scene::new(&names.title, "", Aspect::Equal);
-    let d = scenario.beam.diameter_mm;
-    let u = result.input.direction;
-    let spans = crystal_spans(result);
-    let z_end_stack = result.rays.first().map_or(0.0, |r| r.exit_z_mm);
-    let stack_len = z_end_stack.max(1e-9);
-    let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
-    let (z_min, z_max) = (-lead, z_end_stack + lead);
-    let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
-
-    // Transverse extent: every ray point, the beam around them, and the lead-in/out.
-    let mut xs: Vec<f64> = vec![slope * z_min];
-    for ray in &result.rays {
-        xs.extend(ray.points_mm.iter().map(across3));
-        xs.push(across(ray.exit_position_mm) + slope * lead);
-    }
-    let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
-    let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
-    let half = x_lo.abs().max(x_hi.abs());
-    let (px0, px1) = (x_lo.min(-half * 0.6), x_hi.max(half * 0.6));
-
-    // Stretch the transverse axis by a round factor when the view would be a thin strip.
-    let z_extent = z_max - z_min;
-    let x_extent = (px1 - px0).max(1e-9);
-    let wanted = z_extent / x_extent / 2.5;
-    let stretch = if wanted > 1.5 {
-        nice_step(wanted.min(1000.0)).max(1.0)
-    } else {
-        1.0
-    };
-    scene.y_stretch = stretch;
-    let s = stretch;
-    scene.caption = if s > 1.0 {
-        format!("{}; transverse scale ×{}", names.axes, sig(s, 2))
+    scene.y_stretch = f.s;
+    scene.caption = if f.s > 1.0 {
+        format!("{}; transverse scale ×{}", names.axes, sig(f.s, 2))
     } else {
         format!("{}; to scale", names.axes)
     };
+    f.elements(&mut scene, scenario, result);
+    f.incident(&mut scene);
+    f.rays(&mut scene, result);
+    f.spot_labels(&mut scene, result);
+    f.walkoff(&mut scene, result);
+    f.dimension(&mut scene, result);
+    let yb = f.scale_bars(&mut scene);
+    scene.bounds = Rect {
+        x0: f.z_min,
+        y0: yb,
+        x1: f.z_max,
+        y1: f.px1,
+    }
+    .padded(0.03, 0.12);
+    scene
+}
 
-    // The lengths the view writes, and the one unit they share.
-    // The dimension spans the rays' exit points, not the spots' centres: rays whose beams
-    // overlap form one spot, yet their separation is still the figure a reader looks for.
-    let exit_xs: Vec<f64> = result.rays.iter().map(|p| across(p.exit_position_mm)).collect();
-    let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
-    let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
-    let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
-    let bar = nice_step(z_extent / 5.0);
-    let transverse_bar = nice_step((px1 - px0) / 3.0);
-    let mut lengths: Vec<f64> = spans.iter().map(|(z0, z1)| z1 - z0).collect();
-    lengths.extend([spread, bar, if s > 1.0 { transverse_bar } else { 0.0 }]);
-    let unit = LengthUnit::for_values(&lengths);
+/// Where a side view puts things: its z range, transverse range and stretch, the beam's slope
+/// outside the stack, the exit points' spread and the one length unit of the view.
+struct Frame<'a> {
+    names: &'a PlaneNames,
+    /// The beam diameter (mm).
+    d: f64,
+    /// The crystals' z intervals.
+    spans: Vec<(f64, f64)>,
+    /// The z of the last face.
+    z_end_stack: f64,
+    /// The length of outside medium drawn before and after the stack.
+    lead: f64,
+    z_min: f64,
+    z_max: f64,
+    z_extent: f64,
+    /// Drawn transverse offset per unit of z of every ray outside the stack.
+    slope: f64,
+    /// The plates' transverse extent.
+    px0: f64,
+    px1: f64,
+    /// The transverse stretch ([`Scene::y_stretch`]).
+    s: f64,
+    /// The z scale bar's length and the transverse one's.
+    bar: f64,
+    transverse_bar: f64,
+    /// The lowest and highest exit point, and the distance between them (0 for one ray).
+    lo: f64,
+    hi: f64,
+    spread: f64,
+    unit: LengthUnit,
+}
 
-    // Plates and ideal elements.
-    let mut crystal_index = 0usize;
-    let mut z_cursor = 0.0;
-    for (i, (el, rep)) in scenario.elements.iter().zip(result.elements.iter()).enumerate() {
-        z_cursor += el.gap_mm;
-        match (&el.kind, rep) {
-            (
-                ElementKind::Crystal(plate),
-                ElementReport::Crystal {
-                    z_front_mm,
-                    z_back_mm,
-                    material,
-                    ..
-                },
-            ) => {
-                let (z0, z1) = (*z_front_mm, *z_back_mm);
-                scene.items.push(Item::Polygon {
-                    points: vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]],
-                    role: Role::Crystal,
-                    tag: format!("plate {crystal_index}"),
-                });
-                scene.text(
-                    [0.5 * (z0 + z1), px1],
-                    format!("{material} {}", length(z1 - z0, unit, 3)),
-                    11.0,
-                    Anchor::Middle,
-                    Role::Caption,
-                );
-                if let Ok(axis) =
-                    crate::contract::resolve::axis_from_degrees(plate.tilt_deg, plate.azimuth_deg - names.turn_deg)
-                {
-                    axis_mark(
-                        &mut scene,
-                        axis,
-                        [0.5 * (z0 + z1), 0.5 * (px0 + px1)],
-                        (z1 - z0).min((px1 - px0) * s) * 0.3,
-                        s,
-                        crystal_index,
-                    );
+impl<'a> Frame<'a> {
+    /// Measures the stack, the rays and the lengths the view will write.
+    fn new(scenario: &Scenario, result: &TraceResult, names: &'a PlaneNames) -> Frame<'a> {
+        let d = scenario.beam.diameter_mm;
+        let u = result.input.direction;
+        let spans = crystal_spans(result);
+        let z_end_stack = result.rays.first().map_or(0.0, |r| r.exit_z_mm);
+        let stack_len = z_end_stack.max(1e-9);
+        let lead = (0.3 * stack_len).max(2.0 * d).max(1.0);
+        let (z_min, z_max) = (-lead, z_end_stack + lead);
+        let across3 = |p: &[f64; 3]| names.turn([p[0], p[1]])[0];
+        let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
+        let (px0, px1) = transverse_extent(result, names, slope, z_min, lead, d);
+        let z_extent = z_max - z_min;
+        let s = stretch_for(z_extent, px1 - px0);
+
+        // The lengths the view writes, and the one unit they share.
+        // The dimension spans the rays' exit points, not the spots' centres: rays whose beams
+        // overlap form one spot, yet their separation is still the figure a reader looks for.
+        let exit_xs: Vec<f64> = result.rays.iter().map(|p| names.turn(p.exit_position_mm)[0]).collect();
+        let lo = exit_xs.iter().cloned().fold(f64::INFINITY, f64::min);
+        let hi = exit_xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+        let spread = if exit_xs.len() >= 2 { hi - lo } else { 0.0 };
+        let bar = nice_step(z_extent / 5.0);
+        let transverse_bar = nice_step((px1 - px0) / 3.0);
+        let mut lengths: Vec<f64> = spans.iter().map(|(z0, z1)| z1 - z0).collect();
+        lengths.extend([spread, bar, if s > 1.0 { transverse_bar } else { 0.0 }]);
+        let unit = LengthUnit::for_values(&lengths);
+        Frame {
+            names,
+            d,
+            spans,
+            z_end_stack,
+            lead,
+            z_min,
+            z_max,
+            z_extent,
+            slope,
+            px0,
+            px1,
+            s,
+            bar,
+            transverse_bar,
+            lo,
+            hi,
+            spread,
+            unit,
+        }
+    }
+
+    /// The drawn transverse coordinate of a lab point (x, y).
+    fn across(&self, p: [f64; 2]) -> f64 {
+        self.names.turn(p)[0]
+    }
+
+    /// The drawn transverse coordinate of a lab point (x, y, z).
+    fn across3(&self, p: &[f64; 3]) -> f64 {
+        self.across([p[0], p[1]])
+    }
+
+    /// Draws each crystal as a plate with its name, thickness and optic axis, and each ideal
+    /// element as a bar with its setting.
+    fn elements(&self, scene: &mut Scene, scenario: &Scenario, result: &TraceResult) {
+        let mut crystal_index = 0usize;
+        let mut z_cursor = 0.0;
+        for (i, (el, rep)) in scenario.elements.iter().zip(result.elements.iter()).enumerate() {
+            z_cursor += el.gap_mm;
+            match (&el.kind, rep) {
+                (
+                    ElementKind::Crystal(plate),
+                    ElementReport::Crystal {
+                        z_front_mm,
+                        z_back_mm,
+                        material,
+                        ..
+                    },
+                ) => {
+                    let (z0, z1) = (*z_front_mm, *z_back_mm);
+                    self.plate(scene, plate, (z0, z1), material, crystal_index);
+                    crystal_index += 1;
+                    z_cursor = z1;
                 }
-                crystal_index += 1;
-                z_cursor = z1;
-            }
-            (kind, _) => {
-                let (name, tag) = match kind {
-                    ElementKind::Retarder {
-                        retardance_waves,
-                        fast_axis_deg,
-                    } => (
-                        format!("Γ {} λ @ {}°", sig(*retardance_waves, 3), sig(*fast_axis_deg, 3)),
-                        "retarder",
-                    ),
-                    ElementKind::Polarizer { transmission_axis_deg } => {
-                        (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
-                    }
-                    ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
-                    ElementKind::Crystal(_) => (String::new(), "crystal"),
-                };
-                scene.items.push(Item::Polyline {
-                    points: vec![[z_cursor, px0], [z_cursor, px1]],
-                    role: Role::Element,
-                    dash: vec![],
-                    width: 3.0,
-                    tag: format!("{tag} {i}"),
-                });
-                scene.label(
-                    [z_cursor, px0],
-                    name,
-                    11.0,
-                    Anchor::Middle,
-                    Role::Caption,
-                    Priority::Detail,
-                );
+                (kind, _) => self.ideal_element(scene, kind, z_cursor, i),
             }
         }
     }
 
-    // Incident beam.
-    scene.line(
-        vec![[z_min, slope * z_min], [0.0, 0.0]],
-        Role::Incident,
-        vec![],
-        2.0,
-        "incident",
-    );
-    scene.label(
-        [z_min, slope * z_min],
-        "in",
-        12.0,
-        Anchor::Start,
-        Role::Label,
-        Priority::Detail,
-    );
+    /// Draws one crystal between `z0` and `z1`: the plate, its name and thickness, its axis.
+    fn plate(&self, scene: &mut Scene, plate: &CrystalPlate, (z0, z1): (f64, f64), material: &str, index: usize) {
+        let (px0, px1) = (self.px0, self.px1);
+        scene.items.push(Item::Polygon {
+            points: vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]],
+            role: Role::Crystal,
+            tag: format!("plate {index}"),
+        });
+        scene.text(
+            [0.5 * (z0 + z1), px1],
+            format!("{material} {}", length(z1 - z0, self.unit, 3)),
+            11.0,
+            Anchor::Middle,
+            Role::Caption,
+        );
+        if let Ok(axis) =
+            crate::contract::resolve::axis_from_degrees(plate.tilt_deg, plate.azimuth_deg - self.names.turn_deg)
+        {
+            axis_mark(
+                scene,
+                axis,
+                [0.5 * (z0 + z1), 0.5 * (px0 + px1)],
+                (z1 - z0).min((px1 - px0) * self.s) * 0.3,
+                self.s,
+                index,
+            );
+        }
+    }
 
-    // Rays, segment by segment. Each ray's items go to a bucket by kind and role (segments,
-    // exit lines, exit dots; o, e, other), appended in bucket order after the loop: the canvas
-    // strokes each run of one style as one path, which keeps thousands of rays cheap.
-    let mut buckets: [Vec<Item>; 9] = Default::default();
-    let bucket = |role: Role| match role {
-        Role::ORay => 0,
-        Role::ERay => 1,
-        _ => 2,
-    };
-    for ray in &result.rays {
+    /// Draws an ideal element (element `i`) as a bar at `z` with its setting below.
+    fn ideal_element(&self, scene: &mut Scene, kind: &ElementKind, z: f64, i: usize) {
+        let (name, tag) = match kind {
+            ElementKind::Retarder {
+                retardance_waves,
+                fast_axis_deg,
+            } => (
+                format!("Γ {} λ @ {}°", sig(*retardance_waves, 3), sig(*fast_axis_deg, 3)),
+                "retarder",
+            ),
+            ElementKind::Polarizer { transmission_axis_deg } => {
+                (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
+            }
+            ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
+            ElementKind::Crystal(_) => (String::new(), "crystal"),
+        };
+        scene.items.push(Item::Polyline {
+            points: vec![[z, self.px0], [z, self.px1]],
+            role: Role::Element,
+            dash: vec![],
+            width: 3.0,
+            tag: format!("{tag} {i}"),
+        });
+        scene.label(
+            [z, self.px0],
+            name,
+            11.0,
+            Anchor::Middle,
+            Role::Caption,
+            Priority::Detail,
+        );
+    }
+
+    /// Draws the incident beam up to the first face, with its label.
+    fn incident(&self, scene: &mut Scene) {
+        let (z_min, slope) = (self.z_min, self.slope);
+        scene.line(
+            vec![[z_min, slope * z_min], [0.0, 0.0]],
+            Role::Incident,
+            vec![],
+            2.0,
+            "incident",
+        );
+        scene.label(
+            [z_min, slope * z_min],
+            "in",
+            12.0,
+            Anchor::Start,
+            Role::Label,
+            Priority::Detail,
+        );
+    }
+
+    /// Draws every ray, segment by segment, with its line after the stack and its exit dot.
+    ///
+    /// Each ray's items go to a bucket by kind and role (segments, exit lines, exit dots; o, e,
+    /// other), appended in bucket order after the loop: the canvas strokes each run of one style
+    /// as one path, which keeps thousands of rays cheap.
+    fn rays(&self, scene: &mut Scene, result: &TraceResult) {
+        let mut buckets: [Vec<Item>; 9] = Default::default();
+        for ray in &result.rays {
+            let last = self.segments(&mut buckets, ray);
+            self.exit(&mut buckets, ray, last);
+        }
+        for b in &mut buckets {
+            scene.items.append(b);
+        }
+    }
+
+    /// Puts a ray's segments through the stack in `buckets`; returns the letter of its last
+    /// crystal.
+    fn segments(&self, buckets: &mut [Vec<Item>; 9], ray: &Ray) -> Option<char> {
         let letters: Vec<char> = ray.label.chars().collect();
         let mut last: Option<char> = None;
         for w in ray.points_mm.windows(2) {
             let (a, b) = (w[0], w[1]);
             let mid = 0.5 * (a[2] + b[2]);
-            let inside = spans.iter().position(|(z0, z1)| mid > *z0 && mid < *z1);
+            let inside = self.spans.iter().position(|(z0, z1)| mid > *z0 && mid < *z1);
             let letter = match inside {
                 Some(k) => letters.get(k).copied(),
                 None => last,
@@ -234,21 +321,30 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             }
             // Rays that agree on their first c letters share this segment (c = crystals crossed
             // by its end): draw it once, for the ray whose remaining letters are all "o".
-            let crossed = spans.iter().filter(|(_, z1)| *z1 <= b[2] + 1e-12).count();
+            let crossed = self.spans.iter().filter(|(_, z1)| *z1 <= b[2] + 1e-12).count();
             if letters.iter().skip(crossed).any(|&l| l != 'o') {
                 continue;
             }
             let (role, dash) = mode_style(letter);
             buckets[bucket(role)].push(Item::Polyline {
-                points: vec![[a[2], across3(&a)], [b[2], across3(&b)]],
+                points: vec![[a[2], self.across3(&a)], [b[2], self.across3(&b)]],
                 role,
                 dash,
                 width: 2.0,
                 tag: format!("ray {} segment", ray.label),
             });
         }
-        let exit: Point = [ray.exit_z_mm, across(ray.exit_position_mm)];
-        let end: Point = [z_max, across(ray.exit_position_mm) + slope * (z_max - ray.exit_z_mm)];
+        last
+    }
+
+    /// Puts a ray's line from its exit point to the view's edge and its exit dot in `buckets`,
+    /// in the style of its last crystal's mode `last`.
+    fn exit(&self, buckets: &mut [Vec<Item>; 9], ray: &Ray, last: Option<char>) {
+        let exit: Point = [ray.exit_z_mm, self.across(ray.exit_position_mm)];
+        let end: Point = [
+            self.z_max,
+            self.across(ray.exit_position_mm) + self.slope * (self.z_max - ray.exit_z_mm),
+        ];
         let (role, dash) = mode_style(last);
         // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
         // is still shown, thin and grey, so that the reader sees where it would go.
@@ -272,98 +368,143 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
             tag: format!("exit {}", ray.label),
         });
     }
-    for b in &mut buckets {
-        scene.items.append(b);
-    }
-    // One label per spot, at the end of its rays.
-    for spot in &result.spots {
-        let name = spot.name();
-        let x = across(spot.position_mm) + slope * (z_max - z_end_stack);
-        let name = if spot.power < NO_POWER {
-            format!("{name} (no power)")
-        } else {
-            name
-        };
-        scene.text([z_max, x], name, 12.0, Anchor::Start, Role::Label);
+
+    /// Writes one label per spot, at the end of its rays.
+    fn spot_labels(&self, scene: &mut Scene, result: &TraceResult) {
+        for spot in &result.spots {
+            let name = spot.name();
+            let x = self.across(spot.position_mm) + self.slope * (self.z_max - self.z_end_stack);
+            let name = if spot.power < NO_POWER {
+                format!("{name} (no power)")
+            } else {
+                name
+            };
+            scene.text([self.z_max, x], name, 12.0, Anchor::Start, Role::Label);
+        }
     }
 
-    // Walk-off of the first crystal with a propagating e-wave.
-    if let Some((rep_e, z0)) = result.elements.iter().find_map(|e| match e {
-        ElementReport::Crystal { e, z_front_mm, .. } if e.ray_direction.is_some() => Some((e.clone(), *z_front_mm)),
-        _ => None,
-    }) {
+    /// Marks the walk-off of the first crystal with a propagating e-wave.
+    fn walkoff(&self, scene: &mut Scene, result: &TraceResult) {
+        let Some((rep_e, z0)) = result.elements.iter().find_map(|e| match e {
+            ElementReport::Crystal { e, z_front_mm, .. } if e.ray_direction.is_some() => Some((e.clone(), *z_front_mm)),
+            _ => None,
+        }) else {
+            return;
+        };
         let x_entry = result
             .rays
             .first()
             .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
-            .map_or(0.0, across3);
+            .map_or(0.0, |p| self.across3(p));
         if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
             walkoff_mark(
-                &mut scene,
+                scene,
                 [z0, x_entry],
-                names.turn3(k),
-                names.turn3(ray),
+                self.names.turn3(k),
+                self.names.turn3(ray),
                 w,
-                0.4 * spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * z_extent),
-                s,
+                0.4 * self.spans.first().map_or(1.0, |s| s.1 - s.0).min(0.25 * self.z_extent),
+                self.s,
             );
         }
     }
 
-    // Dimension across the exit points (drawn where it is long enough on screen).
-    if spread > 0.0 {
-        let zd = z_end_stack + 0.35 * lead;
+    /// Draws the dimension across the exit points (where it is long enough on screen).
+    fn dimension(&self, scene: &mut Scene, result: &TraceResult) {
+        if self.spread <= 0.0 {
+            return;
+        }
+        let zd = self.z_end_stack + 0.35 * self.lead;
         let has_y = result
             .rays
             .iter()
-            .any(|p| names.turn(p.exit_position_mm)[1].abs() > 1e-9 * d);
+            .any(|p| self.names.turn(p.exit_position_mm)[1].abs() > 1e-9 * self.d);
         let label = if has_y {
-            format!("Δ{} {}", names.up_name, length(spread, unit, 3))
+            format!("Δ{} {}", self.names.up_name, length(self.spread, self.unit, 3))
         } else {
-            length(spread, unit, 3)
+            length(self.spread, self.unit, 3)
         };
-        scene.dimension([zd, lo], [zd, hi], label, "dimension");
+        scene.dimension([zd, self.lo], [zd, self.hi], label, "dimension");
     }
 
-    // Scale bars.
-    let yb = px0 - 0.12 * (px1 - px0);
-    scene.line(
-        vec![[z_min, yb], [z_min + bar, yb]],
-        Role::ScaleBar,
-        vec![],
-        3.0,
-        "scale z",
-    );
-    // The scale is read before any name: placed first.
-    scene.label(
-        [z_min + 0.5 * bar, yb],
-        length(bar, unit, 3),
-        11.0,
-        Anchor::Middle,
-        Role::ScaleBar,
-        Priority::Key,
-    );
-    if s > 1.0 {
-        let tb = transverse_bar;
-        let zb = z_max - 0.02 * z_extent;
-        scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
-        scene.label(
-            [zb - 0.01 * z_extent, yb + 0.5 * tb],
-            format!("{} ({})", length(tb, unit, 3), names.up_name),
-            11.0,
-            Anchor::End,
+    /// Draws the z scale bar and, when the view is stretched, the transverse one; returns the
+    /// bars' height.
+    fn scale_bars(&self, scene: &mut Scene) -> f64 {
+        let (z_min, z_max, z_extent, bar, unit) = (self.z_min, self.z_max, self.z_extent, self.bar, self.unit);
+        let yb = self.px0 - 0.12 * (self.px1 - self.px0);
+        scene.line(
+            vec![[z_min, yb], [z_min + bar, yb]],
             Role::ScaleBar,
-            Priority::Detail,
+            vec![],
+            3.0,
+            "scale z",
         );
+        // The scale is read before any name: placed first.
+        scene.label(
+            [z_min + 0.5 * bar, yb],
+            length(bar, unit, 3),
+            11.0,
+            Anchor::Middle,
+            Role::ScaleBar,
+            Priority::Key,
+        );
+        if self.s > 1.0 {
+            let tb = self.transverse_bar;
+            let zb = z_max - 0.02 * z_extent;
+            scene.line(vec![[zb, yb], [zb, yb + tb]], Role::ScaleBar, vec![], 3.0, "scale x");
+            scene.label(
+                [zb - 0.01 * z_extent, yb + 0.5 * tb],
+                format!("{} ({})", length(tb, unit, 3), self.names.up_name),
+                11.0,
+                Anchor::End,
+                Role::ScaleBar,
+                Priority::Detail,
+            );
+        }
+        yb
     }
-    scene.bounds = Rect {
-        x0: z_min,
-        y0: yb,
-        x1: z_max,
-        y1: px1,
+}
+
+/// The bucket of a ray item's role within its kind: o, e, other.
+fn bucket(role: Role) -> usize {
+    match role {
+        Role::ORay => 0,
+        Role::ERay => 1,
+        _ => 2,
     }
-    .padded(0.03, 0.12);
-    scene
+}
+
+/// The plates' transverse extent: every ray point, the beam around them, and the lead-in/out.
+fn transverse_extent(
+    result: &TraceResult,
+    names: &PlaneNames,
+    slope: f64,
+    z_min: f64,
+    lead: f64,
+    d: f64,
+) -> (f64, f64) {
+    let across = |p: [f64; 2]| names.turn(p)[0];
+    let across3 = |p: &[f64; 3]| across([p[0], p[1]]);
+    let mut xs: Vec<f64> = vec![slope * z_min];
+    for ray in &result.rays {
+        xs.extend(ray.points_mm.iter().map(across3));
+        xs.push(across(ray.exit_position_mm) + slope * lead);
+    }
+    let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
+    let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
+    let half = x_lo.abs().max(x_hi.abs());
+    (x_lo.min(-half * 0.6), x_hi.max(half * 0.6))
+}
+
+/// The transverse stretch: a round factor when the view would be a thin strip, else 1.
+fn stretch_for(z_extent: f64, transverse: f64) -> f64 {
+    let x_extent = transverse.max(1e-9);
+    let wanted = z_extent / x_extent / 2.5;
+    if wanted > 1.5 {
+        nice_step(wanted.min(1000.0)).max(1.0)
+    } else {
+        1.0
+    }
 }
 
 /// The plane of a side view: z to the right and one transverse lab direction up.

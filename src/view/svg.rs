@@ -6,9 +6,9 @@
 //! this size, exactly as on the canvas. Colours come from a [`Palette`]; the document carries no
 //! script and references nothing external.
 
-use crate::view::label_layout::{Layout, layout};
+use crate::view::label_layout::{DrawnDimension, Layout, layout};
 use crate::view::palette::Palette;
-use crate::view::scene::{Item, Point, Role, Scene, arrow_head};
+use crate::view::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
 use std::fmt::Write;
 
 fn esc(s: &str) -> String {
@@ -55,7 +55,6 @@ pub const MARGIN_PX: f64 = 28.0;
 /// Writes `scene` as an SVG document of `width` × `height` pixels.
 pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> String {
     let lay: Layout = layout(scene, width, height, MARGIN_PX);
-    let vp = lay.viewport;
     let mut out = String::new();
     let _ = write!(
         out,
@@ -68,117 +67,10 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
         palette.background
     );
     for item in &scene.items {
-        match item {
-            Item::Polyline {
-                points,
-                role,
-                dash,
-                width: w,
-                tag,
-            } => {
-                let pts: Vec<String> = points
-                    .iter()
-                    .map(|p| vp.map(*p))
-                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
-                    .collect();
-                let dash = if dash.is_empty() {
-                    String::new()
-                } else {
-                    format!(
-                        r#" stroke-dasharray="{}""#,
-                        dash.iter().map(|d| d.to_string()).collect::<Vec<_>>().join(" ")
-                    )
-                };
-                let _ = write!(
-                    out,
-                    r#"<polyline data-tag="{}" points="{}" fill="none" stroke="{}" stroke-width="{w}"{dash}/>"#,
-                    esc(tag),
-                    pts.join(" "),
-                    palette.stroke(*role)
-                );
-            }
-            Item::Polygon { points, role, tag } => {
-                let pts: Vec<String> = points
-                    .iter()
-                    .map(|p| vp.map(*p))
-                    .map(|[x, y]| format!("{x:.3},{y:.3}"))
-                    .collect();
-                let _ = write!(
-                    out,
-                    r#"<polygon data-tag="{}" points="{}" fill="{}" stroke="{}" stroke-width="1"/>"#,
-                    esc(tag),
-                    pts.join(" "),
-                    palette.fill(*role),
-                    palette.stroke(*role)
-                );
-            }
-            Item::Circle {
-                center,
-                radius,
-                role,
-                filled,
-                tag,
-            } => {
-                round(
-                    &mut out,
-                    palette,
-                    vp.map(*center),
-                    [radius * vp.sx, radius * vp.sy],
-                    *role,
-                    *filled,
-                    tag,
-                );
-            }
-            Item::Dot {
-                center,
-                radius_px,
-                role,
-                filled,
-                tag,
-            } => {
-                round(
-                    &mut out,
-                    palette,
-                    vp.map(*center),
-                    [*radius_px, *radius_px],
-                    *role,
-                    *filled,
-                    tag,
-                );
-            }
-            Item::Arrow {
-                from,
-                to,
-                role,
-                head_px,
-                tag,
-            } => arrow(
-                &mut out,
-                vp.map(*from),
-                vp.map(*to),
-                palette.stroke(*role),
-                *head_px,
-                1.5,
-                tag,
-            ),
-            Item::Text { .. } | Item::Dimension { .. } => {}
-        }
+        write_item(&mut out, item, &lay.viewport, palette);
     }
     for d in &lay.dimensions {
-        let c = palette.stroke(Role::Dimension);
-        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
-        let _ = write!(
-            out,
-            r#"<polyline data-tag="{}" points="{:.3},{:.3} {:.3},{:.3}" fill="none" stroke="{c}" stroke-width="1"/>"#,
-            esc(&d.tag),
-            d.from[0],
-            d.from[1],
-            d.to[0],
-            d.to[1]
-        );
-        for end in [d.from, d.to] {
-            arrow(&mut out, mid, end, c, 7.0, 1.0, &format!("{} end", d.tag));
-        }
+        dimension(&mut out, d, palette);
     }
     for l in &lay.labels {
         let weight = if l.bold { r#" font-weight="600""# } else { "" };
@@ -194,4 +86,114 @@ pub fn to_svg(scene: &Scene, width: f64, height: f64, palette: &Palette) -> Stri
     }
     out.push_str("</svg>\n");
     out
+}
+
+/// Writes one drawn item (texts and dimensions are written from the layout instead). A flat
+/// match over the item kinds, each arm one element.
+fn write_item(out: &mut String, item: &Item, vp: &Viewport, palette: &Palette) {
+    match item {
+        Item::Polyline {
+            points,
+            role,
+            dash,
+            width: w,
+            tag,
+        } => {
+            let dash = dash_attr(dash);
+            let _ = write!(
+                out,
+                r#"<polyline data-tag="{}" points="{}" fill="none" stroke="{}" stroke-width="{w}"{dash}/>"#,
+                esc(tag),
+                screen_points(points, vp),
+                palette.stroke(*role)
+            );
+        }
+        Item::Polygon { points, role, tag } => {
+            let _ = write!(
+                out,
+                r#"<polygon data-tag="{}" points="{}" fill="{}" stroke="{}" stroke-width="1"/>"#,
+                esc(tag),
+                screen_points(points, vp),
+                palette.fill(*role),
+                palette.stroke(*role)
+            );
+        }
+        Item::Circle {
+            center,
+            radius,
+            role,
+            filled,
+            tag,
+        } => {
+            let r = [radius * vp.sx, radius * vp.sy];
+            round(out, palette, vp.map(*center), r, *role, *filled, tag)
+        }
+        Item::Dot {
+            center,
+            radius_px,
+            role,
+            filled,
+            tag,
+        } => {
+            let r = [*radius_px, *radius_px];
+            round(out, palette, vp.map(*center), r, *role, *filled, tag)
+        }
+        Item::Arrow {
+            from,
+            to,
+            role,
+            head_px,
+            tag,
+        } => arrow(
+            out,
+            vp.map(*from),
+            vp.map(*to),
+            palette.stroke(*role),
+            *head_px,
+            1.5,
+            tag,
+        ),
+        Item::Text { .. } | Item::Dimension { .. } => {}
+    }
+}
+
+/// A dash pattern (px) as a `stroke-dasharray` attribute with its leading space; empty for a
+/// solid line.
+fn dash_attr(dash: &[f64]) -> String {
+    if dash.is_empty() {
+        String::new()
+    } else {
+        format!(
+            r#" stroke-dasharray="{}""#,
+            dash.iter().map(|d| d.to_string()).collect::<Vec<_>>().join(" ")
+        )
+    }
+}
+
+/// World points as an SVG `points` list on screen ("x,y x,y …", px to 0.001).
+fn screen_points(points: &[Point], vp: &Viewport) -> String {
+    let pts: Vec<String> = points
+        .iter()
+        .map(|p| vp.map(*p))
+        .map(|[x, y]| format!("{x:.3},{y:.3}"))
+        .collect();
+    pts.join(" ")
+}
+
+/// Writes a placed dimension: its line and an arrow from its middle to each end.
+fn dimension(out: &mut String, d: &DrawnDimension, palette: &Palette) {
+    let c = palette.stroke(Role::Dimension);
+    let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+    let _ = write!(
+        out,
+        r#"<polyline data-tag="{}" points="{:.3},{:.3} {:.3},{:.3}" fill="none" stroke="{c}" stroke-width="1"/>"#,
+        esc(&d.tag),
+        d.from[0],
+        d.from[1],
+        d.to[0],
+        d.to[1]
+    );
+    for end in [d.from, d.to] {
+        arrow(out, mid, end, c, 7.0, 1.0, &format!("{} end", d.tag));
+    }
 }

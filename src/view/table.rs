@@ -72,6 +72,22 @@ fn power_text(p: f64) -> String {
 /// Renders `r` as a text table.
 pub fn render(r: &TraceResult) -> String {
     let mut out = String::new();
+    input(&mut out, r);
+    elements(&mut out, r);
+    rays(&mut out, r);
+    spots(&mut out, r);
+    if !r.warnings.is_empty() {
+        let _ = writeln!(out);
+        let _ = writeln!(out, "Warnings");
+        for w in &r.warnings {
+            let _ = writeln!(out, "  - {w}");
+        }
+    }
+    out
+}
+
+/// The heading: the wavelength, and the input's polarization and incidence.
+fn input(out: &mut String, r: &TraceResult) {
     let d = r.input.direction;
     let polar = d[2].clamp(-1.0, 1.0).acos().to_degrees();
     let az = d[1].atan2(d[0]).to_degrees();
@@ -84,6 +100,10 @@ pub fn render(r: &TraceResult) -> String {
         num(polar, 4),
         num(if polar == 0.0 { 0.0 } else { az }, 4)
     );
+}
+
+/// The elements, one row each, numbered from one.
+fn elements(out: &mut String, r: &TraceResult) {
     let _ = writeln!(out);
     let _ = writeln!(out, "Elements");
     let _ = writeln!(
@@ -92,55 +112,64 @@ pub fn render(r: &TraceResult) -> String {
         "#", "kind", "material", "n_o", "n_e", "L/mm", "n(e-wave)", "walk-off/°", "separation/mm", "Γ/waves"
     );
     for (i, el) in r.elements.iter().enumerate() {
-        match el {
-            ElementReport::Crystal {
+        element_row(out, i + 1, el);
+    }
+}
+
+/// One element's row, numbered `n`: a flat match over the element kinds, each arm one row.
+fn element_row(out: &mut String, n: usize, el: &ElementReport) {
+    match el {
+        ElementReport::Crystal {
+            material,
+            no,
+            ne,
+            thickness_mm,
+            e,
+            separation_mm,
+            retardance_waves,
+            ..
+        } => {
+            let _ = writeln!(
+                out,
+                "{:>3}  {:<9} {:<9} {:>9} {:>9} {:>10} {:>10} {:>10} {:>13} {:>9}",
+                n,
+                "crystal",
                 material,
-                no,
-                ne,
-                thickness_mm,
-                e,
-                separation_mm,
-                retardance_waves,
-                ..
-            } => {
-                let _ = writeln!(
-                    out,
-                    "{:>3}  {:<9} {:<9} {:>9} {:>9} {:>10} {:>10} {:>10} {:>13} {:>9}",
-                    i + 1,
-                    "crystal",
-                    material,
-                    num(*no, 6),
-                    num(*ne, 6),
-                    num(*thickness_mm, 4),
-                    opt(e.index, 6),
-                    opt(e.walkoff_deg, 4),
-                    opt(*separation_mm, 6),
-                    opt(*retardance_waves, 4)
-                );
-            }
-            ElementReport::Retarder { retardance_rad, .. } => {
-                let _ = writeln!(
-                    out,
-                    "{:>3}  {:<9} {:>96}",
-                    i + 1,
-                    "retarder",
-                    num(retardance_rad / std::f64::consts::TAU, 4)
-                );
-            }
-            ElementReport::Polarizer { absorbed_power, .. } => {
-                let _ = writeln!(
-                    out,
-                    "{:>3}  {:<9} absorbs {} of the input power",
-                    i + 1,
-                    "polarizer",
-                    num(*absorbed_power, 4)
-                );
-            }
-            ElementReport::Rotator { angle_deg, .. } => {
-                let _ = writeln!(out, "{:>3}  {:<9} turns by {}°", i + 1, "rotator", num(*angle_deg, 4));
-            }
+                num(*no, 6),
+                num(*ne, 6),
+                num(*thickness_mm, 4),
+                opt(e.index, 6),
+                opt(e.walkoff_deg, 4),
+                opt(*separation_mm, 6),
+                opt(*retardance_waves, 4)
+            );
+        }
+        ElementReport::Retarder { retardance_rad, .. } => {
+            let _ = writeln!(
+                out,
+                "{:>3}  {:<9} {:>96}",
+                n,
+                "retarder",
+                num(retardance_rad / std::f64::consts::TAU, 4)
+            );
+        }
+        ElementReport::Polarizer { absorbed_power, .. } => {
+            let _ = writeln!(
+                out,
+                "{:>3}  {:<9} absorbs {} of the input power",
+                n,
+                "polarizer",
+                num(*absorbed_power, 4)
+            );
+        }
+        ElementReport::Rotator { angle_deg, .. } => {
+            let _ = writeln!(out, "{:>3}  {:<9} turns by {}°", n, "rotator", num(*angle_deg, 4));
         }
     }
+}
+
+/// The rays: exit point, power and normalized Stokes vector of each.
+fn rays(out: &mut String, r: &TraceResult) {
     let _ = writeln!(out);
     let _ = writeln!(
         out,
@@ -167,6 +196,10 @@ pub fn render(r: &TraceResult) -> String {
             ellipse_text(&ray.ellipse)
         );
     }
+}
+
+/// The spots, numbered from one, with their overlap where they hold more than one ray.
+fn spots(out: &mut String, r: &TraceResult) {
     let _ = writeln!(out);
     let _ = writeln!(
         out,
@@ -191,14 +224,6 @@ pub fn render(r: &TraceResult) -> String {
             }
         );
     }
-    if !r.warnings.is_empty() {
-        let _ = writeln!(out);
-        let _ = writeln!(out, "Warnings");
-        for w in &r.warnings {
-            let _ = writeln!(out, "  - {w}");
-        }
-    }
-    out
 }
 
 #[cfg(test)]

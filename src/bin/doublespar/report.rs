@@ -241,6 +241,7 @@ fn range_of(curve: Option<&Value>) -> Option<(f64, f64, f64, f64)> {
     Some((first, last, lo, hi))
 }
 
+/// A beam displacer's report: what to order, then its performance and tolerances.
 fn displacer(r: &mut Report) {
     let material = r
         .s("material")
@@ -265,7 +266,13 @@ fn displacer(r: &mut Report) {
         );
     }
     r.quantity("clear aperture", "clear_aperture_mm", "mm diameter");
+    displacer_performance(r);
+    displacer_tolerances(r);
+    r.notes(&["cut_note"]);
+}
 
+/// A displacer's performance: indices, separation and walk-off, and how clean the two beams are.
+fn displacer_performance(r: &mut Report) {
     r.section("Performance");
     r.quantity("wavelength", "wavelength_nm", "nm");
     r.quantity("index n_o", "no", "");
@@ -296,7 +303,11 @@ fn displacer(r: &mut Report) {
     r.quantity("clipping per beam", "clipping_per_beam", "(power outside the aperture)");
     r.quantity("o–e phase at the exit", "exit_phase_rad", "rad");
     r.quantity("  the same, modulo 2π", "exit_phase_mod_2pi_rad", "rad");
+}
 
+/// A displacer's tolerances: the separation's sensitivities, the errors assumed and the spread
+/// they give, linear and by Monte Carlo.
+fn displacer_tolerances(r: &mut Report) {
     r.section("Tolerances");
     r.quantity("separation per cut error", "sensitivities.tilt_mm_per_deg", "mm/°");
     r.quantity(
@@ -341,7 +352,6 @@ fn displacer(r: &mut Report) {
             r.line("  smallest to largest", format!("{} mm to {} mm", num(a), num(b)));
         }
     }
-    r.notes(&["cut_note"]);
 }
 
 /// Plate `i`'s catalogue key, or "custom crystal" for one given by its indices.
@@ -372,6 +382,7 @@ fn plates(r: &mut Report) {
     }
 }
 
+/// A waveplate's report: what to order, its performance, and its tolerances.
 fn waveplate(r: &mut Report) {
     let material = plate_material(r, 0);
     let order = r.s("order").unwrap_or_default();
@@ -404,7 +415,13 @@ fn waveplate(r: &mut Report) {
             format!("{} to {} waves, {} nm to {} nm", num(lo), num(hi), num(a), num(b)),
         );
     }
+    waveplate_tolerances(r);
+    r.notes(&[]);
+}
 
+/// A waveplate's tolerances: its acceptance angle, in each plane of incidence, and its
+/// retardance per thickness.
+fn waveplate_tolerances(r: &mut Report) {
     r.section("Tolerances");
     let err = r.f("acceptance_error_waves").map_or_else(String::new, num);
     let max = r.f("max_incidence_deg");
@@ -455,7 +472,6 @@ fn waveplate(r: &mut Report) {
             format!("{} waves/µm (Δn/λ, for each plate)", num(dn.abs() / (wl * 1e-3))),
         );
     }
-    r.notes(&[]);
 }
 
 fn achromat(r: &mut Report) {
@@ -500,6 +516,8 @@ fn achromat(r: &mut Report) {
     r.notes(&[]);
 }
 
+/// A recombiner check's report: the parts, whether the beams recombine, and the mismatches it
+/// tolerates.
 fn recombiner(r: &mut Report) {
     let els =
         r.v.pointer("/scenario/elements")
@@ -526,6 +544,20 @@ fn recombiner(r: &mut Report) {
     r.title(&format!("Recombiner check · {material} · {wl} nm"));
     r.section("What to order");
     r.line("part", "two beam displacers with a polarization swap between them");
+    recombiner_displacers(r, &crystals);
+    if let Some(m) = middle {
+        r.line("between them", middle_words(m));
+    }
+    if let Some(d) = r.v.pointer("/scenario/beam/diameter_mm").and_then(Value::as_f64) {
+        r.line("beam", format!("{} mm diameter", num(d)));
+    }
+    recombiner_performance(r);
+    recombiner_tolerances(r);
+    r.notes(&[]);
+}
+
+/// One line per displacer of a recombiner: medium, length (a mismatch said apart) and axis.
+fn recombiner_displacers(r: &mut Report, crystals: &[&Value]) {
     let first_length = crystals
         .first()
         .and_then(|c| c.get("thickness_mm"))
@@ -547,27 +579,29 @@ fn recombiner(r: &mut Report) {
             format!("{}, {t} mm long{diff}, {}", medium_words(c), axis_words(c)),
         );
     }
-    if let Some(m) = middle {
-        let words = match m.get("kind").and_then(Value::as_str) {
-            Some("retarder") => format!(
-                "half-wave plate, fast axis at {} ° from x",
-                m.get("fast_axis_deg")
-                    .and_then(Value::as_f64)
-                    .map_or_else(String::new, num)
-            ),
-            Some("rotator") => format!(
-                "polarization rotator by {} °",
-                m.get("angle_deg").and_then(Value::as_f64).map_or_else(String::new, num)
-            ),
-            Some(other) => other.to_string(),
-            None => String::new(),
-        };
-        r.line("between them", words);
-    }
-    if let Some(d) = r.v.pointer("/scenario/beam/diameter_mm").and_then(Value::as_f64) {
-        r.line("beam", format!("{} mm diameter", num(d)));
-    }
+}
 
+/// The words for the element between a recombiner's displacers.
+fn middle_words(m: &Value) -> String {
+    match m.get("kind").and_then(Value::as_str) {
+        Some("retarder") => format!(
+            "half-wave plate, fast axis at {} ° from x",
+            m.get("fast_axis_deg")
+                .and_then(Value::as_f64)
+                .map_or_else(String::new, num)
+        ),
+        Some("rotator") => format!(
+            "polarization rotator by {} °",
+            m.get("angle_deg").and_then(Value::as_f64).map_or_else(String::new, num)
+        ),
+        Some(other) => other.to_string(),
+        None => String::new(),
+    }
+}
+
+/// A recombiner's performance: the verdict, the overlap and phase of the two beams, the power
+/// where it should be and elsewhere.
+fn recombiner_performance(r: &mut Report) {
     r.section("Performance");
     r.text_line("verdict", "verdict");
     if let Some(b) = r.at("recombined").and_then(Value::as_bool) {
@@ -582,7 +616,11 @@ fn recombiner(r: &mut Report) {
         r.line("  as (x, y)", format!("({}, {}) mm", num(x), num(y)));
     }
     r.used.insert("broken".into());
+}
 
+/// A recombiner's tolerances: the second displacer's length and cut mismatches, per unit and
+/// where they break the recombination.
+fn recombiner_tolerances(r: &mut Report) {
     r.section("Tolerances (second displacer against the first)");
     let pair = |r: &mut Report, label: &str, path: &str, units: [&str; 2]| {
         if let (Some(a), Some(b)) = (r.f(&format!("{path}.0")), r.f(&format!("{path}.1"))) {
@@ -623,7 +661,6 @@ fn recombiner(r: &mut Report) {
             num(MAX_PHASE_ERROR)
         ),
     );
-    r.notes(&[]);
 }
 
 /// The report of a design answer (any kind).
