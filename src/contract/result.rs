@@ -22,13 +22,14 @@ use crate::optics::modes::{Mode, ModeKind, beam_basis};
 use crate::optics::planar::alone;
 pub use crate::optics::spots::Spot;
 use crate::optics::spots::{Exit, group_spots};
+use crate::optics::spots_tilted::{ScreenRay, group_tilted};
 use crate::optics::stack::{Element, Medium, Stack};
 use crate::optics::stokes::{self, Ellipse};
 use crate::optics::trace::trace;
 use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::{OpticAxis, angle_between, max_walkoff_cut};
-use crate::precision::DEGENERATE_DIRECTION;
 use crate::precision::POWER_ROUNDING;
+use crate::precision::{DEGENERATE_DIRECTION, SITE_FRACTION_OF_RADIUS};
 use nalgebra::Vector3;
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -374,9 +375,25 @@ pub fn spots(stack: &Stack, traced: &Trace) -> Vec<Spot> {
             m: p.matrix,
         })
         .collect();
-    let u = stack.input.direction;
     let input = &stack.input;
-    group_spots(&exits, &input.stokes, input.jones.as_ref(), &beam, arr3(u))
+    // One direction for all (plane-parallel plates, tilted plates): the cell-based grouping;
+    // rays that fan out (wedges): the pairwise grouping with the tilted overlap.
+    let u = traced.paths.first().map_or(input.direction, |p| p.direction);
+    let tilt_negligible = 1e-3 * SITE_FRACTION_OF_RADIUS / (beam.k_per_mm * beam.radius_mm).max(f64::MIN_POSITIVE);
+    if traced.paths.iter().all(|p| (p.direction - u).norm() <= tilt_negligible) {
+        return group_spots(&exits, &input.stokes, input.jones.as_ref(), &beam, arr3(u));
+    }
+    let rays: Vec<ScreenRay> = traced
+        .paths
+        .iter()
+        .map(|p| ScreenRay {
+            label: &p.label,
+            pos: p.screen_mm,
+            dir: p.direction,
+            m: p.matrix,
+        })
+        .collect();
+    group_tilted(&rays, &input.stokes, input.jones.as_ref(), &beam)
 }
 
 /// The result document of `traced`, the trace of `stack` resolved from `sc` with `warnings`.

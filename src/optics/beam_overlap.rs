@@ -67,10 +67,6 @@ impl GaussianBeam {
     ///
     /// # Formula
     /// γ = exp(−d²/(2w²) − k²w²|Δt|²/8) · exp(i k Δt·(r_i + r_j)/2).
-    #[allow(
-        dead_code,
-        reason = "the general case (rays at different directions); spots on one exit plane use the same-direction form, and the tests check this one against a quadrature"
-    )]
     pub fn overlap(&self, ri: [f64; 2], ti: [f64; 2], rj: [f64; 2], tj: [f64; 2]) -> Complex64 {
         let d = [ri[0] - rj[0], ri[1] - rj[1]];
         let dt = [ti[0] - tj[0], ti[1] - tj[1]];

@@ -12,6 +12,7 @@ pub mod parallel;
 pub mod planar;
 pub mod plate;
 pub mod spots;
+pub mod spots_tilted;
 pub mod stack;
 pub mod stokes;
 pub mod sweep;

@@ -126,7 +126,7 @@ pub fn power_of(m: &JonesMatrix, s_in: &[f64; 4]) -> f64 {
 }
 
 /// The Stokes vector of a coherency matrix.
-fn stokes_of(c: &JonesMatrix) -> [f64; 4] {
+pub fn stokes_of(c: &JonesMatrix) -> [f64; 4] {
     [
         c[(0, 0)].re + c[(1, 1)].re,
         c[(0, 0)].re - c[(1, 1)].re,
