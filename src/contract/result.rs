@@ -240,6 +240,8 @@ pub struct RejectedRay {
     pub point_mm: [f64; 3],
     /// Its direction there (for total internal reflection, the reflected direction).
     pub direction: [f64; 3],
+    /// The path it followed up to there, [x, y, z] in mm (the point last).
+    pub points_mm: Vec<[f64; 3]>,
 }
 
 fn rejected_ray(r: &Rejected) -> RejectedRay {
@@ -257,6 +259,7 @@ fn rejected_ray(r: &Rejected) -> RejectedRay {
         power: r.power,
         point_mm: r.point_mm,
         direction: r.direction,
+        points_mm: r.points_mm.clone(),
     }
 }
 

@@ -37,7 +37,7 @@ use crate::optics::spots::{coherency, power_of};
 use crate::optics::stack::{Contact, Element, Faces, Medium, Slab, Stack};
 use crate::optics::traced::{LayerTrace, Path, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::Uniaxial;
-use crate::precision::DEGENERATE_DIRECTION;
+use crate::precision::{DEGENERATE_DIRECTION, POWER_ROUNDING};
 use nalgebra::{Matrix3, RowVector2, Vector3};
 use num_complex::Complex64;
 
@@ -493,6 +493,7 @@ fn reject_here(out: &mut Vec<Rejected>, f: &Flight, idx: usize, side: Side, reas
         power: f.carrier.power(s_in),
         point_mm: arr(f.at),
         direction: arr(f.carrier.direction()),
+        points_mm: f.points.clone(),
     });
 }
 
@@ -533,6 +534,10 @@ fn cross_booked(
             } else {
                 1.0 / crossed.reflected.len() as f64
             };
+            // A reflected mode the light does not couple into is no ray.
+            if share <= POWER_ROUNDING {
+                continue;
+            }
             rejected.push(Rejected {
                 label: f.label.clone(),
                 element: idx,
@@ -541,6 +546,7 @@ fn cross_booked(
                 power: lost * share,
                 point_mm: arr(f.at),
                 direction: arr(*dir),
+                points_mm: f.points.clone(),
             });
         }
     } else {

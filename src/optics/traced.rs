@@ -67,6 +67,8 @@ pub struct Rejected {
     pub point_mm: [f64; 3],
     /// Its direction there (for total internal reflection, the reflected direction).
     pub direction: [f64; 3],
+    /// The path it followed up to there, [x, y, z] in mm (the point last).
+    pub points_mm: Vec<[f64; 3]>,
 }
 
 /// What one layer did.

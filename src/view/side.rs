@@ -18,12 +18,20 @@
 //! value, and scale bars. Every length of the view is written in one unit, chosen from the largest
 //! ([`LengthUnit::for_values`]); rays that carry no power ([`NO_POWER`]) are drawn thin and grey
 //! and their spot is labelled "no power".
+//!
+//! Faces at any angle (contract version 2): a crystal is drawn as the section of its slab by the
+//! view's plane, its faces at their true angles (mount included) between the edges of its
+//! aperture; each ray leaves along its own direction; a rejected ray (total internal reflection
+//! or outside an aperture) is a short marked stub along its direction with its power written.
 
+use crate::contract::geometry::Contact;
 use crate::contract::result::{ElementReport, Ray, TraceResult};
 use crate::contract::scenario::{CrystalPlate, ElementKind, Scenario};
 use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
+use crate::optics::geometry::Plane;
 use crate::optics::uniaxial::OpticAxis;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
+use nalgebra::Vector3;
 
 /// Dash pattern of e-rays (px).
 pub const E_DASH: [f64; 2] = [7.0, 4.0];
@@ -72,6 +80,7 @@ fn draw(scenario: &Scenario, result: &TraceResult, names: &PlaneNames) -> Scene 
     f.elements(&mut scene, scenario, result);
     f.incident(&mut scene);
     f.rays(&mut scene, result);
+    f.rejected(&mut scene, result);
     f.spot_labels(&mut scene, result);
     f.walkoff(&mut scene, result);
     f.dimension(&mut scene, result);
@@ -96,6 +105,8 @@ struct Frame<'a> {
     spans: Vec<(f64, f64)>,
     /// The z of the last face.
     z_end_stack: f64,
+    /// The z of the screen, where the spots lie.
+    z_screen: f64,
     /// The length of outside medium drawn before and after the stack.
     lead: f64,
     z_min: f64,
@@ -130,7 +141,16 @@ impl<'a> Frame<'a> {
         let (z_min, z_max) = (-lead, z_end_stack + lead);
         let across3 = |p: &[f64; 3]| names.turn([p[0], p[1]])[0];
         let slope = if u[2] > 0.0 { across3(&u) / u[2] } else { 0.0 };
-        let (px0, px1) = transverse_extent(result, names, slope, z_min, lead, d);
+        let (mut px0, mut px1) = transverse_extent(result, names, slope, z_min, lead, d);
+        // Apertures are drawn whole.
+        for el in &scenario.elements {
+            if let ElementKind::Crystal(c) = el.kind
+                && let Some(a) = c.placement.aperture_mm
+            {
+                px0 = px0.min(-0.55 * a);
+                px1 = px1.max(0.55 * a);
+            }
+        }
         let z_extent = z_max - z_min;
         let s = stretch_for(z_extent, px1 - px0);
 
@@ -151,6 +171,7 @@ impl<'a> Frame<'a> {
             d,
             spans,
             z_end_stack,
+            z_screen: z_end_stack + scenario.screen_mm,
             lead,
             z_min,
             z_max,
@@ -196,7 +217,7 @@ impl<'a> Frame<'a> {
                     },
                 ) => {
                     let (z0, z1) = (*z_front_mm, *z_back_mm);
-                    self.plate(scene, plate, (z0, z1), material, crystal_index);
+                    self.plate(scene, plate, el.contact, (z0, z1), material, crystal_index);
                     crystal_index += 1;
                     z_cursor = z1;
                 }
@@ -205,11 +226,51 @@ impl<'a> Frame<'a> {
         }
     }
 
+    /// The section of a placed crystal (front axis point at `z0`) by the view's plane: its four
+    /// corners [z, across], faces at their true angles between its aperture's edges (the view's
+    /// transverse extent when unlimited).
+    fn outline(&self, plate: &CrystalPlate, contact: Contact, z0: f64) -> Vec<Point> {
+        let (faces, mount) = plate.placement.place(z0, plate.thickness_mm, contact);
+        let (c, s) = self.names.up;
+        let up = mount * Vector3::new(c, s, 0.0);
+        let along = mount * Vector3::z();
+        let at = Vector3::new(0.0, 0.0, z0);
+        let (a0, a1) = match faces.aperture {
+            Some(a) => (-a.radius_mm, a.radius_mm),
+            None => (self.px0, self.px1),
+        };
+        let corner = |a: f64, plane: &Plane| {
+            let base = at + up * a;
+            let s = plane.normal.dot(&(plane.point - base)) / plane.normal.dot(&along);
+            let p = base + along * s;
+            [p.z, self.across3(&[p.x, p.y, p.z])]
+        };
+        vec![
+            corner(a0, &faces.front),
+            corner(a0, &faces.back),
+            corner(a1, &faces.back),
+            corner(a1, &faces.front),
+        ]
+    }
+
     /// Draws one crystal between `z0` and `z1`: the plate, its name and thickness, its axis.
-    fn plate(&self, scene: &mut Scene, plate: &CrystalPlate, (z0, z1): (f64, f64), material: &str, index: usize) {
+    fn plate(
+        &self,
+        scene: &mut Scene,
+        plate: &CrystalPlate,
+        contact: Contact,
+        (z0, z1): (f64, f64),
+        material: &str,
+        index: usize,
+    ) {
         let (px0, px1) = (self.px0, self.px1);
+        let points = if plate.placement.is_default() {
+            vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]]
+        } else {
+            self.outline(plate, contact, z0)
+        };
         scene.items.push(Item::Polygon {
-            points: vec![[z0, px0], [z1, px0], [z1, px1], [z0, px1]],
+            points,
             role: Role::Crystal,
             tag: format!("plate {index}"),
         });
@@ -340,11 +401,13 @@ impl<'a> Frame<'a> {
     /// Puts a ray's line from its exit point to the view's edge and its exit dot in `buckets`,
     /// in the style of its last crystal's mode `last`.
     fn exit(&self, buckets: &mut [Vec<Item>; 9], ray: &Ray, last: Option<char>) {
-        let exit: Point = [ray.exit_z_mm, self.across(ray.exit_position_mm)];
-        let end: Point = [
-            self.z_max,
-            self.across(ray.exit_position_mm) + self.slope * (self.z_max - ray.exit_z_mm),
-        ];
+        let exit: Point = [ray.exit_point_mm[2], self.across(ray.exit_position_mm)];
+        let slope = if ray.direction[2] > 0.0 {
+            self.across3(&ray.direction) / ray.direction[2]
+        } else {
+            self.slope
+        };
+        let end: Point = [self.z_max, exit[1] + slope * (self.z_max - exit[0])];
         let (role, dash) = mode_style(last);
         // A ray that carries no power (blocked by a polarizer, or emptied by a half-wave plate)
         // is still shown, thin and grey, so that the reader sees where it would go.
@@ -369,11 +432,70 @@ impl<'a> Frame<'a> {
         });
     }
 
+    /// Draws each rejected ray as a short stub from where it stopped along its direction (the
+    /// reflected one for total internal reflection), marked and labelled with its power.
+    fn rejected(&self, scene: &mut Scene, result: &TraceResult) {
+        let len = 0.08 * self.z_extent;
+        for (k, r) in result.rejected.iter().enumerate() {
+            // Its path up to where it stopped, in the style of its last mode.
+            let (role, dash) = mode_style(r.label.chars().last());
+            let path: Vec<Point> = r.points_mm.iter().map(|p| [p[2], self.across3(p)]).collect();
+            if path.len() >= 2 {
+                scene.items.push(Item::Polyline {
+                    points: path,
+                    role,
+                    dash,
+                    width: 2.0,
+                    tag: format!("rejected {k} path"),
+                });
+            }
+            let from: Point = [r.point_mm[2], self.across3(&r.point_mm)];
+            let d = r.direction;
+            let dz = d[2];
+            let dx = self.across3(&d);
+            let norm = dz.hypot(dx).max(f64::MIN_POSITIVE);
+            let to: Point = [from[0] + len * dz / norm, from[1] + len * dx / norm / self.s];
+            scene.items.push(Item::Polyline {
+                points: vec![from, to],
+                role: Role::Warning,
+                dash: vec![2.0, 2.0],
+                width: 1.5,
+                tag: format!("rejected {k} {}", r.label),
+            });
+            scene.items.push(Item::Dot {
+                center: from,
+                radius_px: 3.5,
+                role: Role::Warning,
+                filled: false,
+                tag: format!("rejected {k} at"),
+            });
+            let why = if r.reason == "outside aperture" {
+                "clipped"
+            } else {
+                "reflected"
+            };
+            scene.text(
+                to,
+                format!("{} {why} {}", r.label, crate::numfmt::power(r.power, 3)),
+                10.0,
+                Anchor::Start,
+                Role::Warning,
+            );
+        }
+    }
+
     /// Writes one label per spot, at the end of its rays.
     fn spot_labels(&self, scene: &mut Scene, result: &TraceResult) {
         for spot in &result.spots {
             let name = spot.name();
-            let x = self.across(spot.position_mm) + self.slope * (self.z_max - self.z_end_stack);
+            // The spot lies on the screen; its label goes where its beam crosses the view's edge.
+            let d = spot.direction;
+            let slope = if d[2] > 0.0 {
+                self.across3(&d) / d[2]
+            } else {
+                self.slope
+            };
+            let x = self.across(spot.position_mm) + slope * (self.z_max - self.z_screen);
             let name = if spot.power < NO_POWER {
                 format!("{name} (no power)")
             } else {
@@ -396,7 +518,9 @@ impl<'a> Frame<'a> {
             .first()
             .and_then(|r| r.points_mm.iter().find(|p| (p[2] - z0).abs() < 1e-12))
             .map_or(0.0, |p| self.across3(p));
-        if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, rep_e.walkoff_deg) {
+        // A walk-off at the level of rounding (an axis across the beam) is no walk-off to mark.
+        let w = rep_e.walkoff_deg.filter(|w| w.abs() > 1e-9);
+        if let (Some(k), Some(ray), Some(w)) = (rep_e.wave_vector, rep_e.ray_direction, w) {
             walkoff_mark(
                 scene,
                 [z0, x_entry],
@@ -488,8 +612,14 @@ fn transverse_extent(
     let mut xs: Vec<f64> = vec![slope * z_min];
     for ray in &result.rays {
         xs.extend(ray.points_mm.iter().map(across3));
-        xs.push(across(ray.exit_position_mm) + slope * lead);
+        let own = if ray.direction[2] > 0.0 {
+            across3(&ray.direction) / ray.direction[2]
+        } else {
+            slope
+        };
+        xs.push(across(ray.exit_position_mm) + own * lead);
     }
+    xs.extend(result.rejected.iter().map(|r| across3(&r.point_mm)));
     let x_lo = xs.iter().cloned().fold(f64::INFINITY, f64::min) - d;
     let x_hi = xs.iter().cloned().fold(f64::NEG_INFINITY, f64::max) + d;
     let half = x_lo.abs().max(x_hi.abs());
@@ -693,6 +823,41 @@ mod tests {
         let r = trace(&sc).unwrap();
         let scene = side_view(&sc, &r);
         (r, scene)
+    }
+
+    /// An air-spaced calcite pair with its gap tilted 40°: the gap is drawn at its true angle
+    /// (tan 40° = Δz/Δx across the aperture), and the o-ray, totally reflected there, is a
+    /// marked stub labelled with its power.
+    #[test]
+    fn tilted_faces_are_drawn_at_their_angle_and_rejected_rays_as_stubs() {
+        let prism = |faces: &str| {
+            format!(
+                r#"{{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {{"tilt_deg": 90, "azimuth_deg": 90}}, "aperture_mm": 6, "faces": {faces}}}"#
+            )
+        };
+        let doc = format!(
+            r#"{{"version": 2, "elements": [{}, {}]}}"#,
+            prism(r#"{"back": {"tilt_deg": 40}}"#),
+            prism(r#"{"front": {"tilt_deg": 40}}"#)
+        );
+        let (r, scene) = build(&doc);
+        let Some(Item::Polygon { points, .. }) = scene.tagged("plate 0").next() else {
+            panic!("plate 0")
+        };
+        // Corners: front at x = ∓3, back at x = ±3 (in order); the back face's two corners.
+        let (b0, b1) = (points[1], points[2]);
+        assert!((b1[1] - b0[1] - 6.0).abs() < 1e-12, "{points:?}");
+        assert!(
+            ((b0[0] - b1[0]) / (b1[1] - b0[1]) - 40f64.to_radians().tan()).abs() < 1e-12,
+            "{points:?}"
+        );
+        assert_eq!(r.rejected.len(), 1);
+        assert!(scene.tagged("rejected 0 o").next().is_some());
+        assert!(
+            scene.texts().iter().any(|t| t.starts_with("o reflected 0.5")),
+            "{:?}",
+            scene.texts()
+        );
     }
 
     fn first_point(scene: &Scene, tag: &str) -> Point {
