@@ -40,6 +40,14 @@ impl Plane {
         let scale = 1.0 + (self.point - from).norm();
         (s >= -1e-12 * scale).then_some(s.max(0.0))
     }
+
+    /// Where the whole line through `from` along `dir` meets the plane, ahead or behind: the
+    /// signed distance s along `dir`, or `None` when the line runs parallel to the plane. A
+    /// screen is met so: the straight continuation of a ray, whichever side it lies on.
+    pub fn meet_line(&self, from: Vector3<f64>, dir: Vector3<f64>) -> Option<f64> {
+        let along = self.normal.dot(&dir);
+        (along.abs() >= 1e-15).then(|| self.normal.dot(&(self.point - from)) / along)
+    }
 }
 
 /// The rotation whose columns are the face frame's x, y and z (= `normal`) axes in the lab: the

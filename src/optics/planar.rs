@@ -257,10 +257,14 @@ impl Tracer<'_> {
     /// cannot get there (it runs parallel to the plane or away from it).
     fn travel(&self, f: &mut Flight, plane: &Plane) -> bool {
         let dir = f.carrier.direction();
-        let Some(s) = plane.meet(f.at, dir) else {
-            return false;
-        };
-        let step = dir * s;
+        match plane.meet(f.at, dir) {
+            Some(s) => self.advance(f, dir * s),
+            None => false,
+        }
+    }
+
+    /// Moves a ray by `step` (mm) along a straight line, with the eikonal phase k0 q·step.
+    fn advance(&self, f: &mut Flight, step: Vector3<f64>) -> bool {
         let phi = self.k0 * f.carrier.q().dot(&step);
         f.carrier.advance_phase(phi);
         f.phase += phi;
@@ -395,7 +399,13 @@ pub fn trace_planar(stack: &Stack) -> Trace {
     let mut paths = Vec::with_capacity(flights.len());
     for mut f in flights {
         let exit = f.exit;
-        if !tracer.travel(&mut f, &screen) {
+        // The screen may lie behind a ray that left a mounted crystal beyond the stack's last
+        // axis point: its straight continuation meets it all the same.
+        let dir = f.carrier.direction();
+        let met = screen
+            .meet_line(f.at, dir)
+            .is_some_and(|s| tracer.advance(&mut f, dir * s));
+        if !met {
             let last = stack.layers.len().saturating_sub(1);
             reject_here(
                 &mut rejected,

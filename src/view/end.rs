@@ -16,21 +16,27 @@
 //! incident beam would be.
 
 use crate::contract::result::TraceResult;
-use crate::numfmt::{LengthUnit, NO_POWER, length, power, sig};
+use crate::numfmt::{LengthUnit, NO_POWER, length, length_auto, power, sig};
 use crate::optics::spots::Spot;
 use crate::optics::stokes::{Handedness, ellipse};
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 
-/// Builds the end view of a traced result for a beam of `diameter_mm`.
-pub fn end_view(result: &TraceResult, diameter_mm: f64) -> Scene {
+/// Builds the end view of a traced result for a beam of `diameter_mm`, on the screen
+/// `screen_mm` after the last element's back face (0: that face).
+pub fn end_view(result: &TraceResult, diameter_mm: f64, screen_mm: f64) -> Scene {
+    let where_ = if screen_mm > 0.0 {
+        format!(" · on the screen {} after the stack", length_auto(screen_mm, 3))
+    } else {
+        String::new()
+    };
     let mut scene = Scene::new(
         "End view (output)",
-        "looking toward the source · x → right, y ↑",
+        &format!("looking toward the source · x → right, y ↑{where_}"),
         Aspect::Equal,
     );
     let r = 0.5 * diameter_mm;
     let u = result.input.direction;
-    let z = result.rays.first().map_or(0.0, |x| x.exit_z_mm);
+    let z = result.rays.first().map_or(0.0, |x| x.exit_z_mm) + screen_mm;
     let undeviated: Point = if u[2] > 0.0 {
         [u[0] / u[2] * z, u[1] / u[2] * z]
     } else {
@@ -131,7 +137,7 @@ fn draw_spot(scene: &mut Scene, result: &TraceResult, spot: &Spot, r: f64) {
     for &i in &spot.ray_index {
         if let Some(ray) = result.rays.get(i) {
             scene.items.push(Item::Dot {
-                center: ray.exit_position_mm,
+                center: ray.screen_position_mm,
                 radius_px: 2.0,
                 role: Role::Label,
                 filled: true,
@@ -305,7 +311,7 @@ mod tests {
     fn build(doc: &str) -> (TraceResult, Scene) {
         let sc = Scenario::from_json_str(doc).unwrap();
         let r = trace(&sc).unwrap();
-        let scene = end_view(&r, sc.beam.diameter_mm);
+        let scene = end_view(&r, sc.beam.diameter_mm, sc.screen_mm);
         (r, scene)
     }
 

@@ -3,8 +3,9 @@
 //! One name per view, shared by the page, the command line and the tests: `side` (the x–z
 //! plane), `side-yz` (the y–z plane), `side-walkoff` (the plane of z and the first crystal's
 //! e-ray walk-off direction, so a walk-off along y is seen; see [`side::SidePlane`]),
-//! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength`. Plots
-//! describe the first crystal of the stack.
+//! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength` (plots of
+//! the first crystal of the stack), `split-wavelength`, `split-incidence` (plots of the whole
+//! set-up's split angle, [`split_series`]).
 
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
@@ -18,11 +19,12 @@ pub mod poincare;
 pub mod scene;
 pub mod series;
 pub mod side;
+pub mod split_series;
 pub mod svg;
 pub mod table;
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 8] = [
+pub const VIEW_NAMES: [&str; 10] = [
     "side",
     "side-yz",
     "side-walkoff",
@@ -31,6 +33,8 @@ pub const VIEW_NAMES: [&str; 8] = [
     "walkoff-tilt",
     "separation-wavelength",
     "retardance-wavelength",
+    "split-wavelength",
+    "split-incidence",
 ];
 
 /// Builds the view called `name`.
@@ -42,11 +46,13 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "side" => side::side_view(scenario, result),
         "side-yz" => side::side_view_in(scenario, result, side::SidePlane::Yz),
         "side-walkoff" => side::side_view_in(scenario, result, side::SidePlane::Walkoff),
-        "end" => end::end_view(result, scenario.beam.diameter_mm),
+        "end" => end::end_view(result, scenario.beam.diameter_mm, scenario.screen_mm),
         "poincare" => poincare::poincare_view(result),
         "walkoff-tilt" => plot::plot(&series::walkoff_vs_tilt(scenario, 0)?),
         "separation-wavelength" => plot::plot(&series::separation_vs_wavelength(scenario, 0)),
         "retardance-wavelength" => plot::plot(&series::retardance_vs_wavelength(scenario, 0)),
+        "split-wavelength" => plot::plot(&split_series::split_vs_wavelength(scenario)),
+        "split-incidence" => plot::plot(&split_series::split_vs_incidence(scenario)),
         other => {
             return Err(Error::new(
                 "view",
@@ -71,6 +77,8 @@ pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>,
         "walkoff-tilt" => Some(series::walkoff_vs_tilt(scenario, 0)?),
         "separation-wavelength" => Some(series::separation_vs_wavelength(scenario, 0)),
         "retardance-wavelength" => Some(series::retardance_vs_wavelength(scenario, 0)),
+        "split-wavelength" => Some(split_series::split_vs_wavelength(scenario)),
+        "split-incidence" => Some(split_series::split_vs_incidence(scenario)),
         _ => None,
     })
 }
