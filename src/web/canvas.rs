@@ -17,6 +17,34 @@ use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
 /// # Errors
 /// A JavaScript error when the canvas has no 2-D context.
 pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Result<(), JsValue> {
+    let (ctx, w, h) = prepare(canvas, palette)?;
+    let lay = layout(scene, w, h, MARGIN_PX);
+    let p = Painter {
+        ctx: &ctx,
+        vp: &lay.viewport,
+        palette,
+        empty: js_sys::Array::new(),
+    };
+    p.items(&scene.items)?;
+    let c = palette.stroke(Role::Dimension);
+    for d in &lay.dimensions {
+        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
+        arrow(&ctx, mid, d.from, c, 7.0, 1.0);
+        arrow(&ctx, mid, d.to, c, 7.0, 1.0);
+    }
+    ctx.set_text_align("start");
+    for l in &lay.labels {
+        let weight = if l.bold { "600 " } else { "" };
+        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
+        ctx.set_fill_style_str(palette.stroke(l.role));
+        ctx.fill_text(&l.text, l.x, l.baseline)?;
+    }
+    Ok(())
+}
+
+/// Sizes `canvas` to its CSS box times the device pixel ratio and clears it to the background;
+/// returns its context, scaled to CSS pixels, and its width and height in them.
+fn prepare(canvas: &HtmlCanvasElement, palette: &Palette) -> Result<(CanvasRenderingContext2d, f64, f64), JsValue> {
     let window = web_sys::window().ok_or_else(|| JsValue::from_str("no window"))?;
     let dpr = window.device_pixel_ratio().clamp(1.0, 4.0);
     let (w, h) = (
@@ -35,64 +63,42 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
     ctx.set_transform(dpr, 0.0, 0.0, dpr, 0.0, 0.0)?;
     ctx.set_fill_style_str(&palette.background);
     ctx.fill_rect(0.0, 0.0, w, h);
-    let lay = layout(scene, w, h, MARGIN_PX);
-    let vp = lay.viewport;
-    let empty = js_sys::Array::new();
-    // Runs of polylines (or dots) of one style are drawn as one path with one stroke: a stack
-    // of 12 crystals has thousands of ray segments, and every call into the canvas costs.
-    let mut k = 0;
-    while k < scene.items.len() {
-        let item = &scene.items[k];
-        k += 1;
+    Ok((ctx, w, h))
+}
+
+/// What drawing the items needs: the context, the scene's fit on screen, the colours, and an
+/// empty dash pattern to reset to.
+struct Painter<'a> {
+    ctx: &'a CanvasRenderingContext2d,
+    vp: &'a Viewport,
+    palette: &'a Palette,
+    empty: js_sys::Array,
+}
+
+impl Painter<'_> {
+    /// Draws every item but texts and dimensions (those come from the layout). Runs of
+    /// polylines (or dots) of one style are drawn as one path with one stroke: a stack of 12
+    /// crystals has thousands of ray segments, and every call into the canvas costs.
+    fn items(&self, items: &[Item]) -> Result<(), JsValue> {
+        let mut k = 0;
+        while k < items.len() {
+            k = match &items[k] {
+                Item::Polyline { .. } => self.polylines(items, k)?,
+                Item::Dot { .. } => self.dots(items, k)?,
+                item => {
+                    self.single(item)?;
+                    k + 1
+                }
+            };
+        }
+        Ok(())
+    }
+
+    /// Draws one polygon, circle or arrow (nothing for other kinds).
+    fn single(&self, item: &Item) -> Result<(), JsValue> {
+        let (ctx, vp, palette) = (self.ctx, self.vp, self.palette);
         match item {
-            Item::Polyline {
-                points,
-                role,
-                dash,
-                width,
-                ..
-            } => {
-                let arr = js_sys::Array::new();
-                for d in dash {
-                    arr.push(&JsValue::from_f64(*d));
-                }
-                ctx.set_line_dash(&arr)?;
-                ctx.set_stroke_style_str(palette.stroke(*role));
-                ctx.set_line_width(*width);
-                ctx.begin_path();
-                subpath(&ctx, &vp, points);
-                while let Some(Item::Polyline {
-                    points: p,
-                    role: r,
-                    dash: d,
-                    width: w,
-                    ..
-                }) = scene.items.get(k)
-                {
-                    if r != role || d != dash || w != width {
-                        break;
-                    }
-                    subpath(&ctx, &vp, p);
-                    k += 1;
-                }
-                ctx.stroke();
-                ctx.set_line_dash(&empty)?;
-            }
-            Item::Polygon { points, role, .. } => {
-                if points.is_empty() {
-                    continue;
-                }
-                path(&ctx, &vp, points);
-                ctx.close_path();
-                let fill = palette.fill(*role);
-                if fill != "none" {
-                    ctx.set_fill_style_str(fill);
-                    ctx.fill();
-                }
-                ctx.set_stroke_style_str(palette.stroke(*role));
-                ctx.set_line_width(1.0);
-                ctx.stroke();
-            }
+            Item::Polygon { points, role, .. } => self.polygon(points, *role),
             Item::Circle {
                 center,
                 radius,
@@ -111,32 +117,7 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                     0.0,
                     std::f64::consts::TAU,
                 )?;
-                fill_and_stroke(&ctx, palette, *role, *filled);
-            }
-            Item::Dot {
-                center,
-                radius_px,
-                role,
-                filled,
-                ..
-            } => {
-                ctx.begin_path();
-                dot(&ctx, &vp, *center, *radius_px)?;
-                while let Some(Item::Dot {
-                    center: c,
-                    radius_px: r,
-                    role: ro,
-                    filled: f,
-                    ..
-                }) = scene.items.get(k)
-                {
-                    if ro != role || f != filled {
-                        break;
-                    }
-                    dot(&ctx, &vp, *c, *r)?;
-                    k += 1;
-                }
-                fill_and_stroke(&ctx, palette, *role, *filled);
+                fill_and_stroke(ctx, palette, *role, *filled);
             }
             Item::Arrow {
                 from,
@@ -144,24 +125,107 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
                 role,
                 head_px,
                 ..
-            } => arrow(&ctx, vp.map(*from), vp.map(*to), palette.stroke(*role), *head_px, 1.5),
-            Item::Text { .. } | Item::Dimension { .. } => {}
+            } => arrow(ctx, vp.map(*from), vp.map(*to), palette.stroke(*role), *head_px, 1.5),
+            Item::Polyline { .. } | Item::Dot { .. } | Item::Text { .. } | Item::Dimension { .. } => {}
         }
+        Ok(())
     }
-    let c = palette.stroke(Role::Dimension);
-    for d in &lay.dimensions {
-        let mid = [0.5 * (d.from[0] + d.to[0]), 0.5 * (d.from[1] + d.to[1])];
-        arrow(&ctx, mid, d.from, c, 7.0, 1.0);
-        arrow(&ctx, mid, d.to, c, 7.0, 1.0);
+
+    /// Strokes the polyline `items[k]` and those after it of the same style as one path;
+    /// returns the index of the first item not drawn.
+    fn polylines(&self, items: &[Item], mut k: usize) -> Result<usize, JsValue> {
+        let Some(Item::Polyline {
+            points,
+            role,
+            dash,
+            width,
+            ..
+        }) = items.get(k)
+        else {
+            return Ok(k + 1);
+        };
+        k += 1;
+        let (ctx, vp) = (self.ctx, self.vp);
+        let arr = js_sys::Array::new();
+        for d in dash {
+            arr.push(&JsValue::from_f64(*d));
+        }
+        ctx.set_line_dash(&arr)?;
+        ctx.set_stroke_style_str(self.palette.stroke(*role));
+        ctx.set_line_width(*width);
+        ctx.begin_path();
+        subpath(ctx, vp, points);
+        while let Some(Item::Polyline {
+            points: p,
+            role: r,
+            dash: d,
+            width: w,
+            ..
+        }) = items.get(k)
+        {
+            if r != role || d != dash || w != width {
+                break;
+            }
+            subpath(ctx, vp, p);
+            k += 1;
+        }
+        ctx.stroke();
+        ctx.set_line_dash(&self.empty)?;
+        Ok(k)
     }
-    ctx.set_text_align("start");
-    for l in &lay.labels {
-        let weight = if l.bold { "600 " } else { "" };
-        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
-        ctx.set_fill_style_str(palette.stroke(l.role));
-        ctx.fill_text(&l.text, l.x, l.baseline)?;
+
+    /// Fills and outlines a polygon (nothing for no points).
+    fn polygon(&self, points: &[Point], role: Role) {
+        if points.is_empty() {
+            return;
+        }
+        let ctx = self.ctx;
+        path(ctx, self.vp, points);
+        ctx.close_path();
+        let fill = self.palette.fill(role);
+        if fill != "none" {
+            ctx.set_fill_style_str(fill);
+            ctx.fill();
+        }
+        ctx.set_stroke_style_str(self.palette.stroke(role));
+        ctx.set_line_width(1.0);
+        ctx.stroke();
     }
-    Ok(())
+
+    /// Draws the dot `items[k]` and those after it of the same style as one path; returns the
+    /// index of the first item not drawn.
+    fn dots(&self, items: &[Item], mut k: usize) -> Result<usize, JsValue> {
+        let Some(Item::Dot {
+            center,
+            radius_px,
+            role,
+            filled,
+            ..
+        }) = items.get(k)
+        else {
+            return Ok(k + 1);
+        };
+        k += 1;
+        let (ctx, vp) = (self.ctx, self.vp);
+        ctx.begin_path();
+        dot(ctx, vp, *center, *radius_px)?;
+        while let Some(Item::Dot {
+            center: c,
+            radius_px: r,
+            role: ro,
+            filled: f,
+            ..
+        }) = items.get(k)
+        {
+            if ro != role || f != filled {
+                break;
+            }
+            dot(ctx, vp, *c, *r)?;
+            k += 1;
+        }
+        fill_and_stroke(ctx, self.palette, *role, *filled);
+        Ok(k)
+    }
 }
 
 /// An arrow (shaft and filled head) from `a` to `b`, screen px.
