@@ -445,6 +445,31 @@ pub fn presets() -> Result<JsValue, JsValue> {
             "quartz quarter-wave, oblique",
             include_str!("../../examples/quarter-wave.json"),
         ),
+        (
+            "crossed-calcite-splitter",
+            "calcite wedges, crossed axes: angular splitter",
+            include_str!("../../examples/crossed-calcite-splitter.json"),
+        ),
+        (
+            "straight-through-prism",
+            "calcite prism, ordinary beam straight through",
+            include_str!("../../examples/straight-through-prism.json"),
+        ),
+        (
+            "air-gap-calcite-polarizer",
+            "calcite polarizer, air gap",
+            include_str!("../../examples/air-gap-calcite-polarizer.json"),
+        ),
+        (
+            "quartz-wedge-splitter",
+            "quartz wedges, crossed axes: small split",
+            include_str!("../../examples/quartz-wedge-splitter.json"),
+        ),
+        (
+            "tilt-tuned-quartz-plate",
+            "quartz quarter-wave, tilt-tuned in its mount",
+            include_str!("../../examples/tilt-tuned-quartz-plate.json"),
+        ),
     ];
     let list: Vec<serde_json::Value> = files
         .iter()
