@@ -97,11 +97,7 @@ function buildTopControls() {
     options: [['ideal', 'ideal, no losses'], ['uncoated', 'uncoated, Fresnel']],
   }));
   addTop(light, 'beam.diameter_mm', new Field({ key: 'beam.diameter_mm', label: 'Beam diameter', unit: 'mm' }));
-  addTop(document.getElementById('screen-fields'), 'screen_mm', new Field({ key: 'screen_mm',
-    label: 'Screen distance',
-    unit: 'mm',
-    hint: 'From the last element’s back face (on its axis) to the plane where the spots and the end view are taken.',
-  }));
+  addTop(document.getElementById('screen-fields'), 'screen_mm', new Field({ key: 'screen_mm', label: 'Screen distance', unit: 'mm' }));
 
   const inc = document.getElementById('incidence-fields');
   inc.appendChild(errorSlot('beam'));
@@ -257,8 +253,7 @@ class Card {
     f.angle = new Field({ key: 'angle_deg', label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
     this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
 
-    // Version 2's geometry (geometry.js): the contact after the gap, the faces, aperture and
-    // mount in a collapsed group after the kind's own fields.
+    // Version 2's geometry (geometry.js).
     this.geometry = new CardGeometry();
 
     fs.appendChild(f.gap.row);

@@ -214,11 +214,10 @@ export class FieldErrors {
   }
 }
 
-/** Opens every collapsed group (`details`) around `el`, so that a message in it is seen. */
+/** Opens the collapsed group (`details`) around `el`, so that a message in it is seen. */
 function openAround(el) {
-  for (let d = el.closest('details'); d; d = d.parentElement && d.parentElement.closest('details')) {
-    if (!d.open) d.open = true;
-  }
+  const d = el.closest('details');
+  if (d && !d.open) d.open = true;
 }
 
 /** The path one step up; '' above a top-level name, null above ''. */

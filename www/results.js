@@ -3,10 +3,8 @@
 // into the result (DEVELOPERS.md, "Page contract") and data-value = String(value); the text is
 // rounded, with its unit.
 //
-// Version 2's numbers: per ray its deviation from the incident beam and where it meets the
-// screen (its own length unit); per crystal its split angle; and the rejected rays, with the
-// element (counted from 1), the face, the reason and the power, as a table (#rejected-rows) and
-// a sentence summing them up (#rejected-note).
+// Per ray also its deviation and screen position; per crystal its split angle; the rejected
+// rays in #rejected-rows and, summed up, #rejected-note.
 //
 // Contract: setupResults(state) once, then renderResults(state, r) after every trace; `state` is
 // the page's state (state.js), whose part `state.results` this module keeps. The rows
@@ -25,7 +23,7 @@ import { fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
 import { materialName } from './state.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
-const RAY_COLUMNS = 11; // the ray table's columns (index.html)
+const RAY_COLUMNS = 11;
 
 
 function positionsUnit(items, key) {
@@ -200,10 +198,7 @@ function buildResults(state, r) {
   );
 }
 
-/**
- * The rays that do not leave forward (contract version 2's `rejected`), one row each and one
- * sentence in words: "Ray o, element 1, back face: total internal reflection, power 0.5000".
- */
+/** The rays that do not leave forward (`rejected`): a row each, and a sentence. */
 function buildRejected(r, cell) {
   const list = r.rejected ?? [];
   const rows = document.createDocumentFragment();
@@ -220,10 +215,16 @@ function buildRejected(r, cell) {
     rows.appendChild(h('tr', {}, h('td', { colspan: 5, className: 'empty', text: 'None: every ray leaves forward.' })));
   }
   document.getElementById('rejected-rows').replaceChildren(rows);
+}
+
+/** Rejected power changes without a new shape. */
+function rejectedNote(r) {
+  const list = r.rejected ?? [];
   const lost = list.reduce((a, x) => a + x.power, 0);
-  const note = document.getElementById('rejected-note');
-  note.textContent = list.length === 0 ? ''
+  const text = list.length === 0 ? ''
     : `${list.length} ${list.length === 1 ? 'ray does' : 'rays do'} not leave forward, carrying ${fmt.power(lost)} of the input power in all.`;
+  const note = document.getElementById('rejected-note');
+  if (note.textContent !== text) note.textContent = text;
 }
 
 function rayClass(label) {
@@ -255,6 +256,7 @@ export function renderResults(state, r) {
       else if (c.el.title) c.el.title = '';
     }
   }
+  rejectedNote(r);
   const w = r.warnings.join('\n');
   if (w !== own.warnings) {
     own.warnings = w;

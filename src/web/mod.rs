@@ -447,12 +447,12 @@ pub fn presets() -> Result<JsValue, JsValue> {
         ),
         (
             "crossed-calcite-splitter",
-            "calcite wedges, crossed axes: angular splitter",
+            "calcite wedge splitter",
             include_str!("../../examples/crossed-calcite-splitter.json"),
         ),
         (
             "straight-through-prism",
-            "calcite prism, ordinary beam straight through",
+            "straight-through prism",
             include_str!("../../examples/straight-through-prism.json"),
         ),
         (
@@ -462,12 +462,12 @@ pub fn presets() -> Result<JsValue, JsValue> {
         ),
         (
             "quartz-wedge-splitter",
-            "quartz wedges, crossed axes: small split",
+            "quartz wedge splitter",
             include_str!("../../examples/quartz-wedge-splitter.json"),
         ),
         (
             "tilt-tuned-quartz-plate",
-            "quartz quarter-wave, tilt-tuned in its mount",
+            "tilt-tuned quartz plate",
             include_str!("../../examples/tilt-tuned-quartz-plate.json"),
         ),
     ];
