@@ -371,11 +371,6 @@ class Card {
     return o;
   }
 
-  /** Whether the element writes a field of contract version 2. */
-  get isVersion2() {
-    return this.geometry.isVersion2();
-  }
-
   /** Loads an element object, tolerating anything (a bad value stays visible for its error). */
   load(o) {
     const obj = o && typeof o === 'object' && !Array.isArray(o) ? o : {};
@@ -522,13 +517,11 @@ function buildScenario() {
     default:
       polarization = { kind };
   }
-  const elements = state.cards.map((c) => c.build());
-  // Version 1 while every version-2 field is at its default, so that such a set-up's document
-  // and link read as they always have; version 2 as soon as one is set.
+  // Version 2, as the core writes every document back; a set-up whose geometry is at its
+  // defaults holds the same fields as in version 1.
   const screen = v('screen_mm');
-  const v2 = screen !== 0 || state.cards.some((c) => c.isVersion2);
   const doc = {
-    version: v2 ? 2 : 1,
+    version: 2,
     wavelength_nm: v('wavelength_nm'),
     outside_index: v('outside_index'),
     interface_losses: v('interface_losses'),
@@ -537,7 +530,7 @@ function buildScenario() {
       incidence: { polar_deg: v('beam.incidence.polar_deg'), azimuth_deg: v('beam.incidence.azimuth_deg') },
       polarization,
     },
-    elements,
+    elements: state.cards.map((c) => c.build()),
   };
   if (screen !== 0) doc.screen_mm = screen;
   return doc;

@@ -96,10 +96,6 @@ export class CardGeometry {
     if (!this.cement.blank) o.cement_index = this.cement.value;
   }
 
-  isVersion2() {
-    return this.hasPlacement() || this.contact.value !== 'air' || !this.cement.blank;
-  }
-
   /** Which rows show for a card of `kind` at `index`; the summary line. */
   sync(kind, index) {
     const show = (el, on) => {
