@@ -21,6 +21,7 @@ import { h, setAttr, setText, stepNumber, uid } from './dom.js';
 import { readNumber } from './format.js';
 import { Field, FieldErrors, SETUP_NAMES, errorSlot, toFieldError } from './field-error.js';
 import { createState, materialName } from './state.js';
+import { CardGeometry, GEOMETRY_GROUPS } from './geometry.js';
 import { setupDesign } from './design-panel.js';
 import { setupExport, updatePrintSheet } from './export.js';
 import { renderResults, setupResults, toggleShowAll } from './results.js';
@@ -96,6 +97,7 @@ function buildTopControls() {
     options: [['ideal', 'ideal, no losses'], ['uncoated', 'uncoated, Fresnel']],
   }));
   addTop(light, 'beam.diameter_mm', new Field({ key: 'beam.diameter_mm', label: 'Beam diameter', unit: 'mm' }));
+  addTop(document.getElementById('screen-fields'), 'screen_mm', new Field({ key: 'screen_mm', label: 'Screen distance', unit: 'mm' }));
 
   const inc = document.getElementById('incidence-fields');
   inc.appendChild(errorSlot('beam'));
@@ -251,8 +253,13 @@ class Card {
     f.angle = new Field({ key: 'angle_deg', label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
     this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
 
+    // Version 2's geometry (geometry.js).
+    this.geometry = new CardGeometry();
+
     fs.appendChild(f.gap.row);
+    fs.appendChild(this.geometry.contactBox);
     for (const g of Object.values(this.groups)) fs.appendChild(g);
+    fs.appendChild(this.geometry.details);
     this.el.appendChild(fs);
 
     const d = ELEMENT_DEFAULTS;
@@ -276,10 +283,23 @@ class Card {
 
   setKind(kind) {
     this.kindField.set(kind);
+    this.shownKind = this.kind;
     for (const [k, g] of Object.entries(this.groups)) {
       if (g.hidden !== (k !== this.kind)) g.hidden = k !== this.kind;
     }
     this.showMaterial();
+    this.syncGeometry();
+  }
+
+  /** The user chose another kind: a crystal's geometry is kept aside (geometry.js). */
+  changeKind(kind) {
+    this.geometry.kindChanged(this.shownKind, kind);
+    this.setKind(kind);
+  }
+
+  /** Which geometry rows show, and the geometry group's summary line. */
+  syncGeometry() {
+    this.geometry.sync(this.kind, this.index ?? 0);
   }
 
   showMaterial() {
@@ -307,6 +327,8 @@ class Card {
     setText(this.legend, `Element ${n}`);
     this.kindField.setPath(`${p}.kind`, `element ${n}`);
     for (const field of Object.values(this.f)) field.setPath(`${p}.${field.key}`, `element ${n}`);
+    this.geometry.setIndex(p, `element ${n}`);
+    this.syncGeometry();
     setAttr(this.cardError, 'data-error-for', p);
     setAttr(this.axisError, 'data-error-for', `${p}.axis`);
     setAttr(this.up, 'aria-label', `Move element ${n} up`);
@@ -333,6 +355,7 @@ class Card {
       }
       o.thickness_mm = f.thickness.value;
       o.axis = { tilt_deg: f.tilt.value, azimuth_deg: f.azimuth.value };
+      this.geometry.write(o);
     } else if (kind === 'retarder') {
       o.retardance_waves = f.retardance.value;
       o.fast_axis_deg = f.fast.value;
@@ -341,7 +364,10 @@ class Card {
     } else if (kind === 'rotator') {
       o.angle_deg = f.angle.value;
     }
+    // An ideal element takes no placement: one it holds (loaded, for the core to name) is sent.
+    if (kind !== 'crystal') this.geometry.write(o);
     o.gap_mm = f.gap.value;
+    this.geometry.writeContact(o);
     return o;
   }
 
@@ -372,6 +398,7 @@ class Card {
     } else if (kind === 'rotator') {
       f.angle.set(obj.angle_deg);
     }
+    this.geometry.load(obj);
     this.setKind(kind);
   }
 }
@@ -490,8 +517,11 @@ function buildScenario() {
     default:
       polarization = { kind };
   }
-  return {
-    version: 1,
+  // Version 2, as the core writes every document back; a set-up whose geometry is at its
+  // defaults holds the same fields as in version 1.
+  const screen = v('screen_mm');
+  const doc = {
+    version: 2,
     wavelength_nm: v('wavelength_nm'),
     outside_index: v('outside_index'),
     interface_losses: v('interface_losses'),
@@ -502,6 +532,8 @@ function buildScenario() {
     },
     elements: state.cards.map((c) => c.build()),
   };
+  if (screen !== 0) doc.screen_mm = screen;
+  return doc;
 }
 
 function member(o, k) {
@@ -539,6 +571,7 @@ function loadControls(s) {
     for (let i = 0; i < 4; i += 1) set(`beam.polarization.stokes[${i}]`, Array.isArray(st) ? st[i] : undefined);
   }
   showPolarizationKind();
+  set('screen_mm', member(s, 'screen_mm') ?? 0);
   const els = member(s, 'elements');
   loadCards(Array.isArray(els) ? els : []);
 }
@@ -559,6 +592,7 @@ const GROUP_LABELS = {
   'beam.polarization.jones[1]': 'Jones vector, E2',
   'beam.polarization.stokes': 'Stokes vector',
   'elements[].axis': 'Optic axis',
+  ...GEOMETRY_GROUPS,
 };
 
 /** The set-up's error display (field-error.js): the controls' slots under form#controls. */
@@ -1103,11 +1137,14 @@ function onControlEvent(ev) {
   const card = t.closest('li.card')?.card;
   if (card) {
     if (field.endsWith('.kind')) {
-      card.setKind(t.value);
+      card.changeKind(t.value);
       renumberCards();
     } else if (field.endsWith('.material')) {
       card.showMaterial();
+    } else if (field.endsWith('.contact')) {
+      card.geometry.contactChanged();
     }
+    card.syncGeometry();
   }
   schedule();
 }

@@ -187,13 +187,17 @@ export class FieldErrors {
       slot.textContent = slot.hidden || !slot.textContent ? text : `${slot.textContent} ${text}`;
       slot.setAttribute('data-error-field', field);
       slot.hidden = false;
+      openAround(slot);
     }
     if (!field) return;
     const controls = [...this.root.querySelectorAll(`[${this.names.field}]`)];
     const path = (el) => el.getAttribute(this.names.field);
     let marked = controls.filter((el) => path(el) === field);
     if (marked.length === 0) marked = controls.filter((el) => path(el).startsWith(`${field}[`) || path(el).startsWith(`${field}.`));
-    for (const el of marked) el.setAttribute('aria-invalid', 'true');
+    for (const el of marked) {
+      el.setAttribute('aria-invalid', 'true');
+      openAround(el);
+    }
   }
 
   clear() {
@@ -208,6 +212,12 @@ export class FieldErrors {
     }
     for (const el of this.root.querySelectorAll(`[${this.names.field}][aria-invalid="true"]`)) el.removeAttribute('aria-invalid');
   }
+}
+
+/** Opens the collapsed group (`details`) around `el`, so that a message in it is seen. */
+function openAround(el) {
+  const d = el.closest('details');
+  if (d && !d.open) d.open = true;
 }
 
 /** The path one step up; '' above a top-level name, null above ''. */

@@ -3,6 +3,9 @@
 // into the result (DEVELOPERS.md, "Page contract") and data-value = String(value); the text is
 // rounded, with its unit.
 //
+// Per ray also its deviation and screen position; per crystal its split angle; the rejected
+// rays in #rejected-rows and, summed up, #rejected-note.
+//
 // Contract: setupResults(state) once, then renderResults(state, r) after every trace; `state` is
 // the page's state (state.js), whose part `state.results` this module keeps. The rows
 // are built again only when the result's shape changes (element kinds, ray labels, spot count,
@@ -20,6 +23,7 @@ import { fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
 import { materialName } from './state.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
+const RAY_COLUMNS = 11;
 
 
 function positionsUnit(items, key) {
@@ -56,6 +60,7 @@ function shapeOf(r, showAll) {
     r.elements.map((e) => e.kind).join(','),
     r.rays.map((x) => x.label).join(','),
     r.spots.length,
+    (r.rejected ?? []).map((x) => `${x.label}@${x.element}`).join(','),
     showAll.rays,
     showAll.spots,
   ];
@@ -113,6 +118,7 @@ function buildResults(state, r) {
       row('o walk-off', `${p}.o.walkoff_deg`, (x) => x.elements[i].o.walkoff_deg, fmt.deg);
       row('e walk-off', `${p}.e.walkoff_deg`, (x) => x.elements[i].e.walkoff_deg, fmt.deg);
       row('o/e separation', `${p}.separation_mm`, (x) => x.elements[i].separation_mm, fmt.mm);
+      row('split angle', `${p}.split_angle_deg`, (x) => x.elements[i].split_angle_deg, fmt.deg);
       row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
       row('retardance', `${p}.retardance_waves`, (x) => x.elements[i].retardance_waves, fmt.waves);
       row('reflected power', `${p}.reflected_power`, (x) => x.elements[i].reflected_power, fmt.power);
@@ -148,15 +154,20 @@ function buildResults(state, r) {
     const rayUnit = () => units.rays.symbol;
     tr.appendChild(cell('td', `${p}.exit_position_mm.0`, (x) => x.rays[k].exit_position_mm[0], positionIn(units, 'rays'), {}, rayUnit));
     tr.appendChild(cell('td', `${p}.exit_position_mm.1`, (x) => x.rays[k].exit_position_mm[1], positionIn(units, 'rays'), {}, rayUnit));
+    tr.appendChild(cell('td', `${p}.deviation_deg`, (x) => x.rays[k].deviation_deg, fmt.deg));
+    const screenUnit = () => units.screen.symbol;
+    tr.appendChild(cell('td', `${p}.screen_position_mm.0`, (x) => x.rays[k].screen_position_mm[0], positionIn(units, 'screen'), {}, screenUnit));
+    tr.appendChild(cell('td', `${p}.screen_position_mm.1`, (x) => x.rays[k].screen_position_mm[1], positionIn(units, 'screen'), {}, screenUnit));
     appendPolarizationCells(cell, tr, p, (x) => x.rays[k]);
     rayRows.appendChild(tr);
   });
   if (r.rays.length === 0) {
-    rayRows.appendChild(h('tr', {}, h('td', { colspan: 8, className: 'empty', text: 'No ray leaves the stack.' })));
+    rayRows.appendChild(h('tr', {}, h('td', { colspan: RAY_COLUMNS, className: 'empty', text: 'No ray leaves the stack.' })));
   } else if (r.rays.length > ROW_LIMIT) {
-    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, 8, showAll));
+    rayRows.appendChild(moreRow('rays', ROW_LIMIT, r.rays.length, RAY_COLUMNS, showAll));
   }
   document.getElementById('ray-rows').replaceChildren(rayRows);
+  buildRejected(r, cell);
 
   const spotRows = document.createDocumentFragment();
   const spotCount = showAll.spots ? r.spots.length : Math.min(r.spots.length, ROW_LIMIT);
@@ -187,6 +198,35 @@ function buildResults(state, r) {
   );
 }
 
+/** The rays that do not leave forward (`rejected`): a row each, and a sentence. */
+function buildRejected(r, cell) {
+  const list = r.rejected ?? [];
+  const rows = document.createDocumentFragment();
+  list.forEach((x, k) => {
+    const p = `rejected[${k}]`;
+    const tr = h('tr', {}, h('th', { scope: 'row', className: `ray-label${rayClass(x.label)}`, text: x.label || '(no crystal)' }));
+    tr.appendChild(cell('td', `${p}.element`, (y) => y.rejected[k].element, (v) => `Element ${v + 1}`, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.face`, (y) => y.rejected[k].face, (v) => `${v} face`, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.reason`, (y) => y.rejected[k].reason, fmt.text, { className: 'word' }));
+    tr.appendChild(cell('td', `${p}.power`, (y) => y.rejected[k].power, fmt.power));
+    rows.appendChild(tr);
+  });
+  if (list.length === 0) {
+    rows.appendChild(h('tr', {}, h('td', { colspan: 5, className: 'empty', text: 'None: every ray leaves forward.' })));
+  }
+  document.getElementById('rejected-rows').replaceChildren(rows);
+}
+
+/** Rejected power changes without a new shape. */
+function rejectedNote(r) {
+  const list = r.rejected ?? [];
+  const lost = list.reduce((a, x) => a + x.power, 0);
+  const text = list.length === 0 ? ''
+    : `${list.length} ${list.length === 1 ? 'ray does' : 'rays do'} not leave forward, carrying ${fmt.power(lost)} of the input power in all.`;
+  const note = document.getElementById('rejected-note');
+  if (note.textContent !== text) note.textContent = text;
+}
+
 function rayClass(label) {
   const last = label.charAt(label.length - 1);
   return last === 'o' ? ' ray-o' : last === 'e' ? ' ray-e' : '';
@@ -202,6 +242,7 @@ export function renderResults(state, r) {
   }
   own.units.rays = positionsUnit(r.rays, 'exit_position_mm');
   own.units.spots = positionsUnit(r.spots, 'position_mm');
+  own.units.screen = positionsUnit(r.rays, 'screen_position_mm');
   for (const c of own.cells) {
     const v = c.get(r);
     const s = String(v);
@@ -215,6 +256,7 @@ export function renderResults(state, r) {
       else if (c.el.title) c.el.title = '';
     }
   }
+  rejectedNote(r);
   const w = r.warnings.join('\n');
   if (w !== own.warnings) {
     own.warnings = w;
@@ -233,5 +275,5 @@ export function toggleShowAll(state, which) {
 
 /** Once, before the first render: the tables' length units start from nothing shown. */
 export function setupResults(state) {
-  state.results.units = { rays: lengthUnitForValues([]), spots: lengthUnitForValues([]) };
+  state.results.units = { rays: lengthUnitForValues([]), spots: lengthUnitForValues([]), screen: lengthUnitForValues([]) };
 }

@@ -46,7 +46,7 @@ export function createState({ darkQuery }) {
       cells: [], // {el, get, format, keyOf, last}: every shown number
       warnings: null, // the warnings shown, as one text
       showAll: { rays: false, spots: false }, // whether the long tables show every row
-      units: { rays: null, spots: null }, // the length unit of each table, chosen at each render
+      units: { rays: null, spots: null, screen: null }, // the length unit of each table (screen: the rays' screen positions), chosen at each render
     },
 
     // --- the views (views.js) ----------------------------------------------------------------

@@ -445,6 +445,31 @@ pub fn presets() -> Result<JsValue, JsValue> {
             "quartz quarter-wave, oblique",
             include_str!("../../examples/quarter-wave.json"),
         ),
+        (
+            "crossed-calcite-splitter",
+            "calcite wedge splitter",
+            include_str!("../../examples/crossed-calcite-splitter.json"),
+        ),
+        (
+            "straight-through-prism",
+            "straight-through prism",
+            include_str!("../../examples/straight-through-prism.json"),
+        ),
+        (
+            "air-gap-calcite-polarizer",
+            "calcite polarizer, air gap",
+            include_str!("../../examples/air-gap-calcite-polarizer.json"),
+        ),
+        (
+            "quartz-wedge-splitter",
+            "quartz wedge splitter",
+            include_str!("../../examples/quartz-wedge-splitter.json"),
+        ),
+        (
+            "tilt-tuned-quartz-plate",
+            "tilt-tuned quartz plate",
+            include_str!("../../examples/tilt-tuned-quartz-plate.json"),
+        ),
     ];
     let list: Vec<serde_json::Value> = files
         .iter()
