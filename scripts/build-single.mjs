@@ -92,6 +92,36 @@ const moduleObject = (file) => `__module_${file.replace(/\W/g, '_')}`;
  * Returns {text, order, declared: Map name -> module} (every module's top-level names, which must
  * not hide a name of the wrapper or the loader).
  */
+/**
+ * `source` without its comment lines: lines that hold only a `//` comment, and block comments that
+ * start their line with `/*` (doc comments) and end a line with `*\/`. Lines inside a template
+ * literal are kept (a line's backticks, escaped ones aside, toggle that state). The page's modules
+ * are read by people in www/; the single file only has to run, and its budget is tight.
+ */
+function withoutCommentLines(source) {
+  const out = [];
+  let inTemplate = false;
+  let inBlock = false;
+  for (const line of source.split('\n')) {
+    const trimmed = line.trim();
+    if (!inTemplate) {
+      if (inBlock) {
+        if (trimmed.endsWith('*/')) inBlock = false;
+        continue;
+      }
+      if (trimmed.startsWith('//')) continue;
+      if (trimmed.startsWith('/*')) {
+        if (!trimmed.endsWith('*/') || trimmed === '/*') inBlock = true;
+        continue;
+      }
+    }
+    out.push(line);
+    const ticks = (line.replace(/\\`/g, '').match(/`/g) || []).length;
+    if (ticks % 2 === 1) inTemplate = !inTemplate;
+  }
+  return out.join('\n');
+}
+
 function bundlePage() {
   const modules = new Map(); // file -> {imports: [{from, names}], body, exported: [name]}
   const parse = (file) => {
@@ -108,7 +138,7 @@ function bundlePage() {
     if (/^export\s+let\b/m.test(source)) throw new Error(`build-single: ${file}: an exported let, which the single file would copy once; export a const or a function`);
     const exported = [];
     for (const m of source.matchAll(DECLARATION)) if (m[1]) exported.push(m[2]);
-    const body = source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b)/gm, '');
+    const body = withoutCommentLines(source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b)/gm, ''));
     if (/^\s*export\b/m.test(body)) throw new Error(`build-single: ${file}: an export the single file cannot inline (only \`export function|class|const name\`)`);
     return { imports, body, exported };
   };
