@@ -634,4 +634,53 @@ mod tests {
             "colour"
         );
     }
+
+    #[test]
+    fn prism_designs_are_audited_and_strict_like_every_kind() {
+        // Calcite's formula covers 204-2172 nm (Ghosh 1999): a splitter at 2000 nm warns on its
+        // default band (±10 %), a tilt-tuned plate made for 2300 nm on made_for_nm.
+        let d = solved(
+            r#"{"kind": "angular-splitter", "material": "calcite", "wavelength_nm": 2000, "split_angle_deg": 5, "samples": 0}"#,
+        );
+        let w = strings(&d["warnings"]);
+        assert!(
+            w.len() == 1 && w[0].starts_with("band_nm (default): 2200 nm is outside"),
+            "{w:?}"
+        );
+        let d = solved(
+            r#"{"kind": "tilt-tuning", "material": "calcite", "wavelength_nm": 2100, "order_number": 0, "made_for_nm": 2300, "retardance_waves": 0.25, "max_tilt_deg": 60}"#,
+        );
+        let w = strings(&d["warnings"]);
+        assert!(
+            w.iter().any(|x| x.starts_with("made_for_nm: 2300 nm is outside")),
+            "{w:?}"
+        );
+        // Unknown fields name themselves, in every new kind.
+        for (doc, field) in [
+            (
+                r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 5, "wedge_deg": 3}"#,
+                "wedge_deg",
+            ),
+            (
+                r#"{"kind": "prism-polarizer", "material": "calcite", "gap_mm": 0.01}"#,
+                "gap_mm",
+            ),
+            (
+                r#"{"kind": "tilt-tuning", "material": "quartz", "thickness_mm": 1, "retardance_waves": 0.25, "tilt_deg": 3}"#,
+                "tilt_deg",
+            ),
+        ] {
+            assert_eq!(field_of(doc), field, "{doc}");
+        }
+        // Each answer echoes its kind and carries a version-2 scenario that loads.
+        for doc in [
+            r#"{"kind": "angular-splitter", "material": "quartz", "split_angle_deg": 1, "samples": 0}"#,
+            r#"{"kind": "prism-polarizer", "material": "calcite"}"#,
+            r#"{"kind": "tilt-tuning", "material": "quartz", "thickness_mm": 0.5, "retardance_waves": 0.25, "tilt_azimuth_deg": 90}"#,
+        ] {
+            let d = solved(doc);
+            assert_eq!(d["scenario"]["version"], 2, "{doc}");
+            Scenario::from_json(&d["scenario"]).unwrap_or_else(|e| panic!("{doc}: {e}"));
+        }
+    }
 }
