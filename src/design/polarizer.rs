@@ -257,6 +257,16 @@ pub fn design(req: &PolarizerRequest) -> Result<PolarizerDesign, Error> {
     let upper_closed = (n_r * (theta - th_r).sin() / n0).asin().to_degrees();
     let lower_closed = (n_p * (theta - th_p).sin() / n0).asin().to_degrees();
     let theta_deg = theta.to_degrees();
+    let max_tilt = crate::contract::geometry::MAX_FACE_TILT_DEG;
+    if theta_deg > max_tilt {
+        return Err(Error::new(
+            "cement_index",
+            format!(
+                "puts the gap at {}° from the entrance face, beyond the {max_tilt}° a face may tilt: choose a cement of lower index",
+                crate::numfmt::sig(theta_deg, 4)
+            ),
+        ));
+    }
     let t = min_edge_mm(req.aperture_mm) + 0.5 * req.aperture_mm * theta.tan();
     let part = req.part(theta_deg, t);
     let open = unlimited(&part);
@@ -410,8 +420,14 @@ mod tests {
         // Quartz is positive: its extraordinary mode is reflected.
         let q = design(&request(r#"{"material": "quartz"}"#)).unwrap();
         assert_eq!(q.reflected_mode, "e");
-        // A cement as dense as the crystal's lower index reflects nothing.
-        let e = design(&request(r#"{"material": "calcite", "cement_index": 1.55}"#)).unwrap_err();
-        assert_eq!(e.field, "cement_index");
+        // A cement as dense as the crystal's lower index reflects nothing; one just below it
+        // would need a gap tilted beyond any face the contract allows.
+        for doc in [
+            r#"{"material": "calcite", "cement_index": 1.55}"#,
+            r#"{"no": 1.6, "ne": 1.5999, "cement_index": 1.5998}"#,
+        ] {
+            let e = design(&request(doc)).unwrap_err();
+            assert_eq!(e.field, "cement_index", "{doc}: {e}");
+        }
     }
 }
