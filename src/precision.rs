@@ -138,3 +138,21 @@ pub fn assert_within(actual: f64, expected: f64, allowed: f64, what: &str) {
 pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str) {
     assert_within(actual, expected, rel * expected.abs().max(floor), what);
 }
+
+/// Intervals of the scans and curves of the prism designs (splitter, polarizer, tilt tuning):
+/// a wedge angle, an incidence or a tilt is scanned on this grid before it is bisected, and the
+/// curves of the answers use it (81 points, among the band checks' 481).
+pub const DESIGN_SCAN_INTERVALS: usize = 80;
+
+/// Margin (degrees) kept below a critical angle or the contract's largest face tilt when a
+/// prism design scans its angle: exactly at the critical angle a mode grazes the face.
+pub const CRITICAL_MARGIN_DEG: f64 = 1e-6;
+
+/// Step (degrees) inside and outside each edge of a polarizer's field of view at which its
+/// transmission and extinction are reported: far beyond the bisection's precision, small against
+/// any field of view.
+pub const EDGE_STEP_DEG: f64 = 0.1;
+
+/// A retardance (waves) within this of the target modulo whole waves is the target: a tilt
+/// tuning that already meets it at normal incidence needs no tilt.
+pub const SAME_RETARDANCE_WAVES: f64 = 1e-12;

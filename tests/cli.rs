@@ -317,7 +317,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 10] = [
+const FLAG_CASES: [FlagCase; 16] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -370,6 +370,33 @@ const FLAG_CASES: [FlagCase; 10] = [
     FlagCase {
         flags: "recombiner --no 1.6 --ne 1.5 --length-mm 5 --middle half-wave",
         json: r#"{"kind": "recombiner", "no": 1.6, "ne": 1.5, "length_mm": 5, "middle": "half-wave"}"#,
+    },
+    FlagCase {
+        flags: "angular-splitter --material calcite --wavelength-nm 633 --band-nm 500,800 --split-angle-deg 8 --aperture-mm 12 --cement-index 1.5 --tol-wedge-deg 0.1 --tol-axis-deg 1 --tol-incidence-deg 0.2 --samples 50 --seed 4",
+        json: r#"{"kind": "angular-splitter", "material": "calcite", "wavelength_nm": 633, "band_nm": [500, 800],
+                 "split_angle_deg": 8, "aperture_mm": 12, "cement_index": 1.5,
+                 "tolerances": {"wedge_deg": 0.1, "axis_deg": 1, "incidence_deg": 0.2}, "samples": 50, "seed": 4}"#,
+    },
+    FlagCase {
+        flags: "angular-splitter --no 1.6 --ne 1.5 --split-angle-deg 3 --samples 0",
+        json: r#"{"kind": "angular-splitter", "no": 1.6, "ne": 1.5, "split_angle_deg": 3, "samples": 0}"#,
+    },
+    FlagCase {
+        flags: "prism-polarizer --material calcite --wavelength-nm 1064 --cement-index 1.45 --aperture-mm 12",
+        json: r#"{"kind": "prism-polarizer", "material": "calcite", "wavelength_nm": 1064, "cement_index": 1.45, "aperture_mm": 12}"#,
+    },
+    FlagCase {
+        flags: "prism-polarizer --no 1.7 --ne 1.5",
+        json: r#"{"kind": "prism-polarizer", "no": 1.7, "ne": 1.5}"#,
+    },
+    FlagCase {
+        flags: "tilt-tuning --material quartz --wavelength-nm 633 --retardance-waves 0.25 --order-number 3 --made-for-nm 650 --axis-azimuth-deg 0 --tilt-azimuth-deg 0 --max-tilt-deg 45",
+        json: r#"{"kind": "tilt-tuning", "material": "quartz", "wavelength_nm": 633, "retardance_waves": 0.25, "order_number": 3,
+                 "made_for_nm": 650, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 0, "max_tilt_deg": 45}"#,
+    },
+    FlagCase {
+        flags: "tilt-tuning --no 1.54 --ne 1.55 --thickness-mm 0.5 --retardance-waves 0.25 --tilt-azimuth-deg 90",
+        json: r#"{"kind": "tilt-tuning", "no": 1.54, "ne": 1.55, "thickness_mm": 0.5, "retardance_waves": 0.25, "tilt_azimuth_deg": 90}"#,
     },
 ];
 
@@ -555,6 +582,12 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "waveplate-quartz-zero",
         "achromat-quartz-mgf2",
         "recombiner-calcite-mismatch",
+        "angular-splitter-calcite",
+        "angular-splitter-quartz-cemented",
+        "prism-polarizer-calcite-air",
+        "prism-polarizer-yvo4-cement",
+        "tilt-tuning-quartz-quarter",
+        "tilt-tuning-mgf2-order",
     ] {
         let out = bin()
             .arg("design")

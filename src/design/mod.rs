@@ -6,6 +6,9 @@
 //! | `waveplate` | [`crate::design::waveplate::design`] | `material`, `retardance_waves` |
 //! | `achromat` | [`crate::design::waveplate::achromat`] | `first`, `second`, `retardance_waves`, `wavelengths_nm` |
 //! | `recombiner` | [`crate::design::recombiner`] | `material`, `length_mm` |
+//! | `angular-splitter` | [`crate::design::splitter`] | `material`, `split_angle_deg` |
+//! | `prism-polarizer` | [`crate::design::polarizer`] | `material` |
+//! | `tilt-tuning` | [`crate::design::tilt`] | `material`, `retardance_waves`, `thickness_mm` or `order_number` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
 //! The requests are documents, read field by field in `src/contract/request/`; here each is
@@ -23,22 +26,36 @@
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
 
 use crate::contract::fields::Fields;
-use crate::contract::request::{AchromatRequest, DisplacerRequest, RecombinerRequest, WaveplateRequest};
+use crate::contract::request::{
+    AchromatRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, SplitterRequest, TiltRequest,
+    WaveplateRequest,
+};
 use crate::contract::scenario::Medium;
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 pub mod displacer;
 pub mod notes;
 pub mod part;
+pub mod polarizer;
 pub mod recombiner;
+pub mod splitter;
 pub mod statistics;
+pub mod tilt;
 pub mod waveplate;
 
 use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 4] = ["displacer", "waveplate", "achromat", "recombiner"];
+pub const KINDS: [&str; 7] = [
+    "displacer",
+    "waveplate",
+    "achromat",
+    "recombiner",
+    "angular-splitter",
+    "prism-polarizer",
+    "tilt-tuning",
+];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
     let mut out = serde_json::to_value(v).map_err(|e| Error::new("", format!("cannot write the design: {e}")))?;
@@ -161,6 +178,104 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
     Ok(warnings)
 }
 
+/// An answer as a value, its warnings, and its crystals with their thicknesses.
+type Answered = (Value, Vec<String>, Vec<(Medium, f64)>);
+
+/// The solver's answer as a value, with the warnings of [`audit`] and the part's crystals for
+/// the notes: the request read from `f` by `read` (every field taken, then checked for unknown
+/// ones), its uses audited, then solved.
+fn answer<R, D: Serialize + Designed>(
+    kind: &str,
+    mut f: Fields,
+    read: fn(&mut Fields) -> Result<R, Error>,
+    uses: fn(&R) -> Uses,
+    solve: fn(&R) -> Result<D, Error>,
+) -> Result<Answered, Error> {
+    let r = read(&mut f)?;
+    f.finish()?;
+    let warnings = audit(&uses(&r))?;
+    let d = solve(&r)?;
+    Ok((to_value(kind, &d)?, warnings, d.part().crystals()))
+}
+
+/// A design answer: it carries the part it designed.
+trait Designed {
+    fn part(&self) -> &part::Part;
+}
+
+macro_rules! designed {
+    ($($t:ty),*) => {$(
+        impl Designed for $t {
+            fn part(&self) -> &part::Part {
+                &self.scenario
+            }
+        }
+    )*};
+}
+
+designed!(
+    displacer::DisplacerDesign,
+    waveplate::WaveplateDesign,
+    waveplate::AchromatDesign,
+    recombiner::RecombinerCheck,
+    splitter::SplitterDesign,
+    polarizer::PolarizerDesign,
+    tilt::TiltDesign
+);
+
+/// A request that uses one crystal at its `wavelength_nm`.
+fn single(medium: Medium, nm: f64) -> Uses {
+    Uses {
+        media: vec![("material", medium)],
+        wavelengths: vec![("wavelength_nm", nm)],
+        band: None,
+    }
+}
+
+fn displacer_uses(r: &DisplacerRequest) -> Uses {
+    Uses {
+        band: r.band_nm.map(|b| (b, true)),
+        ..single(r.medium, r.wavelength.nm())
+    }
+}
+
+fn waveplate_uses(r: &WaveplateRequest) -> Uses {
+    Uses {
+        band: Some((r.band(), r.band_nm.is_some())),
+        ..single(r.medium, r.wavelength.nm())
+    }
+}
+
+fn achromat_uses(r: &AchromatRequest) -> Uses {
+    let (w1, w2) = r.wavelengths_nm;
+    Uses {
+        media: vec![("first.material", r.a), ("second.material", r.b)],
+        wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
+        band: Some((r.band(), r.band_nm.is_some())),
+    }
+}
+
+fn recombiner_uses(r: &RecombinerRequest) -> Uses {
+    single(r.medium, r.wavelength.nm())
+}
+
+fn splitter_uses(r: &SplitterRequest) -> Uses {
+    Uses {
+        band: Some((r.band(), r.band_nm.is_some())),
+        ..single(r.medium, r.wavelength.nm())
+    }
+}
+
+fn polarizer_uses(r: &PolarizerRequest) -> Uses {
+    single(r.medium, r.wavelength.nm())
+}
+
+fn tilt_uses(r: &TiltRequest) -> Uses {
+    let mut u = single(r.medium, r.wavelength.nm());
+    u.wavelengths.extend(r.made_for_nm().map(|nm| ("made_for_nm", nm)));
+    u
+}
+
 /// Solves a design request given as a parsed JSON value.
 ///
 /// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header)
@@ -175,63 +290,19 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         .ok_or_else(|| Error::new("kind", format!("is required: one of {}", KINDS.join(", "))))?;
     check_applies(kind, request)?;
     let (mut out, warnings, crystals) = match kind {
-        "displacer" => {
-            let r = DisplacerRequest::from_json(&mut f)?;
-            f.finish()?;
-            let uses = Uses {
-                media: vec![("material", r.medium)],
-                wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
-                band: r.band_nm.map(|b| (b, true)),
-            };
-            let warnings = audit(&uses)?;
-            {
-                let d = displacer::design(&r)?;
-                (to_value(kind, &d)?, warnings, d.scenario.crystals())
-            }
-        }
-        "waveplate" => {
-            let r = WaveplateRequest::from_json(&mut f)?;
-            f.finish()?;
-            let uses = Uses {
-                media: vec![("material", r.medium)],
-                wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
-                band: Some((r.band(), r.band_nm.is_some())),
-            };
-            let warnings = audit(&uses)?;
-            {
-                let d = waveplate::design(&r)?;
-                (to_value(kind, &d)?, warnings, d.scenario.crystals())
-            }
-        }
-        "achromat" => {
-            let r = AchromatRequest::from_json(&mut f)?;
-            f.finish()?;
-            let (w1, w2) = r.wavelengths_nm;
-            let uses = Uses {
-                media: vec![("first.material", r.a), ("second.material", r.b)],
-                wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
-                band: Some((r.band(), r.band_nm.is_some())),
-            };
-            let warnings = audit(&uses)?;
-            {
-                let d = waveplate::achromat(&r)?;
-                (to_value(kind, &d)?, warnings, d.scenario.crystals())
-            }
-        }
-        "recombiner" => {
-            let r = RecombinerRequest::from_json(&mut f)?;
-            f.finish()?;
-            let uses = Uses {
-                media: vec![("material", r.medium)],
-                wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
-                band: None,
-            };
-            let warnings = audit(&uses)?;
-            {
-                let d = recombiner::check(&r)?;
-                (to_value(kind, &d)?, warnings, d.scenario.crystals())
-            }
-        }
+        "displacer" => answer(kind, f, DisplacerRequest::from_json, displacer_uses, displacer::design)?,
+        "waveplate" => answer(kind, f, WaveplateRequest::from_json, waveplate_uses, waveplate::design)?,
+        "achromat" => answer(kind, f, AchromatRequest::from_json, achromat_uses, waveplate::achromat)?,
+        "recombiner" => answer(
+            kind,
+            f,
+            RecombinerRequest::from_json,
+            recombiner_uses,
+            recombiner::check,
+        )?,
+        "angular-splitter" => answer(kind, f, SplitterRequest::from_json, splitter_uses, splitter::design)?,
+        "prism-polarizer" => answer(kind, f, PolarizerRequest::from_json, polarizer_uses, polarizer::design)?,
+        "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
         other => {
             return Err(Error::new(
                 "kind",
@@ -562,5 +633,54 @@ mod tests {
                 .field,
             "colour"
         );
+    }
+
+    #[test]
+    fn prism_designs_are_audited_and_strict_like_every_kind() {
+        // Calcite's formula covers 204-2172 nm (Ghosh 1999): a splitter at 2000 nm warns on its
+        // default band (±10 %), a tilt-tuned plate made for 2300 nm on made_for_nm.
+        let d = solved(
+            r#"{"kind": "angular-splitter", "material": "calcite", "wavelength_nm": 2000, "split_angle_deg": 5, "samples": 0}"#,
+        );
+        let w = strings(&d["warnings"]);
+        assert!(
+            w.len() == 1 && w[0].starts_with("band_nm (default): 2200 nm is outside"),
+            "{w:?}"
+        );
+        let d = solved(
+            r#"{"kind": "tilt-tuning", "material": "calcite", "wavelength_nm": 2100, "order_number": 0, "made_for_nm": 2300, "retardance_waves": 0.25, "max_tilt_deg": 60}"#,
+        );
+        let w = strings(&d["warnings"]);
+        assert!(
+            w.iter().any(|x| x.starts_with("made_for_nm: 2300 nm is outside")),
+            "{w:?}"
+        );
+        // Unknown fields name themselves, in every new kind.
+        for (doc, field) in [
+            (
+                r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 5, "wedge_deg": 3}"#,
+                "wedge_deg",
+            ),
+            (
+                r#"{"kind": "prism-polarizer", "material": "calcite", "gap_mm": 0.01}"#,
+                "gap_mm",
+            ),
+            (
+                r#"{"kind": "tilt-tuning", "material": "quartz", "thickness_mm": 1, "retardance_waves": 0.25, "tilt_deg": 3}"#,
+                "tilt_deg",
+            ),
+        ] {
+            assert_eq!(field_of(doc), field, "{doc}");
+        }
+        // Each answer echoes its kind and carries a version-2 scenario that loads.
+        for doc in [
+            r#"{"kind": "angular-splitter", "material": "quartz", "split_angle_deg": 1, "samples": 0}"#,
+            r#"{"kind": "prism-polarizer", "material": "calcite"}"#,
+            r#"{"kind": "tilt-tuning", "material": "quartz", "thickness_mm": 0.5, "retardance_waves": 0.25, "tilt_azimuth_deg": 90}"#,
+        ] {
+            let d = solved(doc);
+            assert_eq!(d["scenario"]["version"], 2, "{doc}");
+            Scenario::from_json(&d["scenario"]).unwrap_or_else(|e| panic!("{doc}: {e}"));
+        }
     }
 }

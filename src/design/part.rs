@@ -5,14 +5,23 @@
 //! without writing or reading JSON. The answer's `scenario` document is written from it once, in
 //! the short form a reader loads into the page: version, wavelength, the beam's polarization (and
 //! its diameter when the request gave a beam), and every element with its gap; everything else
-//! is left to the contract's defaults (outside index 1, ideal faces, normal incidence).
+//! is left to the contract's defaults (outside index 1, ideal faces, normal incidence, and the
+//! screen at the last face unless the part sets it). A part
+//! with faces at an angle, an aperture, a mount or a contact is written as version 2 with those
+//! fields; plane-parallel plates in air stay version 1.
 
 use crate::contract::geometry::{Contact, Placement};
 use crate::contract::scenario::{
     Beam, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json, polarization_json,
 };
+use crate::error::Error;
 use crate::optics::interface::Losses;
+use crate::optics::spots::power_of;
+use crate::optics::stack::Stack;
+use crate::optics::trace::{Trace, trace};
+use crate::optics::traced::Path;
 use crate::optics::wavelength::Wavelength;
+use nalgebra::Vector3;
 use serde::{Serialize, Serializer};
 use serde_json::{Value, json};
 
@@ -69,12 +78,21 @@ impl Part {
         if self.states_beam {
             beam["diameter_mm"] = json!(sc.beam.diameter_mm);
         }
-        json!({
-            "version": 1,
+        // Version 1 while the part is plane-parallel plates in air, so that those answers read as
+        // before; version 2 as soon as an element needs its geometry.
+        let plain = sc.elements.iter().all(|e| {
+            e.contact == Contact::Air && !matches!(e.kind, ElementKind::Crystal(c) if !c.placement.is_default())
+        });
+        let mut doc = json!({
+            "version": if plain { 1 } else { 2 },
             "wavelength_nm": sc.wavelength.nm(),
             "beam": beam,
             "elements": sc.elements.iter().map(element_json).collect::<Vec<_>>(),
-        })
+        });
+        if sc.screen_mm != 0.0 {
+            doc["screen_mm"] = json!(sc.screen_mm);
+        }
+        doc
     }
 }
 
@@ -82,6 +100,54 @@ impl Serialize for Part {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         self.document().serialize(s)
     }
+}
+
+impl Part {
+    /// The part resolved into a stack and traced by the general tracer.
+    ///
+    /// # Errors
+    /// As [`Scenario::resolve`].
+    pub fn traced(&self) -> Result<(Stack, Trace), Error> {
+        let (stack, _) = self.scenario.resolve()?;
+        let t = trace(&stack);
+        Ok((stack, t))
+    }
+}
+
+/// The power a path carries for the stack's input beam.
+pub fn path_power(stack: &Stack, path: &Path) -> f64 {
+    power_of(&path.matrix, &stack.input.stokes)
+}
+
+/// The angle between two directions, degrees (0 to 180; robust near 0 and 180).
+pub fn angle_between_deg(a: &Vector3<f64>, b: &Vector3<f64>) -> f64 {
+    a.cross(b).norm().atan2(a.dot(b)).to_degrees()
+}
+
+/// Thickness (mm) left at the thin edge of a wedge or prism of clear aperture `aperture_mm`: a
+/// tenth of the aperture, at least 1 mm (common practice, approximate: thinner edges chip when
+/// the part is polished and mounted).
+pub fn min_edge_mm(aperture_mm: f64) -> f64 {
+    (0.1 * aperture_mm).max(1.0)
+}
+
+/// A crystal with faces, aperture or mount (`placement`), meeting the element before by
+/// `contact`; otherwise as [`crystal`].
+pub fn placed_crystal(
+    medium: Medium,
+    thickness_mm: f64,
+    tilt_deg: f64,
+    azimuth_deg: f64,
+    gap_mm: f64,
+    placement: Placement,
+    contact: Contact,
+) -> Element {
+    let mut e = crystal(medium, thickness_mm, tilt_deg, azimuth_deg, gap_mm);
+    if let ElementKind::Crystal(c) = &mut e.kind {
+        c.placement = placement;
+    }
+    e.contact = contact;
+    e
 }
 
 /// A crystal plate of `medium`, `thickness_mm` thick, its axis at `tilt_deg` from z and

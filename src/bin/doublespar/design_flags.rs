@@ -54,11 +54,22 @@ const MEDIUM_HELP: [Flag; 3] = [
     flag("ne", "ne", N, "extraordinary index, instead of --material (with --no)"),
 ];
 
+const DESIGN_WAVELENGTH: Flag = flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]");
+
+const TOL_INCIDENCE: Flag = flag(
+    "tol-incidence-deg",
+    "tolerances.incidence_deg",
+    N,
+    "incidence error, standard deviation, ° [0.1]",
+);
+
+const SEED: Flag = flag("seed", "seed", N, "Monte Carlo seed, a whole number [1]");
+
 const DISPLACER: [Flag; 16] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
-    flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]"),
+    DESIGN_WAVELENGTH,
     flag(
         "band-nm",
         "band_nm",
@@ -90,12 +101,7 @@ const DISPLACER: [Flag; 16] = [
         N,
         "cut-angle error, standard deviation, ° [0.1]",
     ),
-    flag(
-        "tol-incidence-deg",
-        "tolerances.incidence_deg",
-        N,
-        "incidence error, standard deviation, ° [0.1]",
-    ),
+    TOL_INCIDENCE,
     flag(
         "tol-thickness-mm",
         "tolerances.thickness_mm",
@@ -109,7 +115,7 @@ const DISPLACER: [Flag; 16] = [
         "wavelength error, standard deviation, nm [0.5]",
     ),
     flag("samples", "samples", N, "Monte Carlo samples, 0 to 1000000 [100000]"),
-    flag("seed", "seed", N, "Monte Carlo seed, a whole number [1]"),
+    SEED,
     flag("bins", "bins", N, "histogram bins [40]"),
 ];
 
@@ -117,7 +123,7 @@ const WAVEPLATE: [Flag; 11] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
-    flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]"),
+    DESIGN_WAVELENGTH,
     flag(
         "retardance-waves",
         "retardance_waves",
@@ -228,6 +234,100 @@ const RECOMBINER: [Flag; 11] = [
     ),
 ];
 
+const SPLITTER: [Flag; 13] = [
+    MEDIUM_HELP[0],
+    MEDIUM_HELP[1],
+    MEDIUM_HELP[2],
+    DESIGN_WAVELENGTH,
+    flag(
+        "band-nm",
+        "band_nm",
+        P,
+        "band of the split curve, SHORTEST,LONGEST in nm [±10 %]",
+    ),
+    flag(
+        "split-angle-deg",
+        "split_angle_deg",
+        N,
+        "angle between the two beams, ° (required)",
+    ),
+    flag("aperture-mm", "aperture_mm", N, "clear aperture, mm [10]"),
+    flag(
+        "cement-index",
+        "cement_index",
+        N,
+        "cement between the wedges [optical contact]",
+    ),
+    flag(
+        "tol-wedge-deg",
+        "tolerances.wedge_deg",
+        N,
+        "wedge-angle error, standard deviation, ° [0.05]",
+    ),
+    flag(
+        "tol-axis-deg",
+        "tolerances.axis_deg",
+        N,
+        "axis-orientation error per wedge, standard deviation, ° [0.5]",
+    ),
+    TOL_INCIDENCE,
+    flag("samples", "samples", N, "Monte Carlo samples, 0 to 200000 [2000]"),
+    SEED,
+];
+
+const POLARIZER: [Flag; 6] = [
+    MEDIUM_HELP[0],
+    MEDIUM_HELP[1],
+    MEDIUM_HELP[2],
+    DESIGN_WAVELENGTH,
+    flag("cement-index", "cement_index", N, "cement in the gap [air]"),
+    flag("aperture-mm", "aperture_mm", N, "clear aperture, mm [10]"),
+];
+
+const TILT: [Flag; 11] = [
+    MEDIUM_HELP[0],
+    MEDIUM_HELP[1],
+    MEDIUM_HELP[2],
+    flag("wavelength-nm", "wavelength_nm", N, "wavelength wanted, nm [632.8]"),
+    flag(
+        "retardance-waves",
+        "retardance_waves",
+        N,
+        "target, waves modulo whole waves, 0 to 1 (required)",
+    ),
+    flag(
+        "thickness-mm",
+        "thickness_mm",
+        N,
+        "plate thickness, mm (or --order-number)",
+    ),
+    flag(
+        "order-number",
+        "order_number",
+        N,
+        "whole waves of a plate made for --made-for-nm",
+    ),
+    flag(
+        "made-for-nm",
+        "made_for_nm",
+        N,
+        "wavelength the plate was made for, nm [the wavelength]",
+    ),
+    flag(
+        "axis-azimuth-deg",
+        "axis_azimuth_deg",
+        N,
+        "optic axis in the plate, ° from x [0]",
+    ),
+    flag(
+        "tilt-azimuth-deg",
+        "tilt_azimuth_deg",
+        N,
+        "plane of the mount tilt, ° from x [0]",
+    ),
+    flag("max-tilt-deg", "max_tilt_deg", N, "largest tilt searched, ° [30]"),
+];
+
 /// The flags of a design kind, or `None` for an unknown kind.
 pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
     match kind {
@@ -235,6 +335,9 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "waveplate" => Some(&WAVEPLATE),
         "achromat" => Some(&ACHROMAT),
         "recombiner" => Some(&RECOMBINER),
+        "angular-splitter" => Some(&SPLITTER),
+        "prism-polarizer" => Some(&POLARIZER),
+        "tilt-tuning" => Some(&TILT),
         _ => None,
     }
 }

@@ -17,7 +17,8 @@ usage: doublespar COMMAND [ARGUMENTS]
 commands:
   trace FILE|-       trace a scenario; JSON result, or a table with --table
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
-  design KIND ...    design a part (displacer, waveplate, achromat, recombiner)
+  design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
+                     angular-splitter, prism-polarizer, tilt-tuning)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -118,8 +119,8 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
   --table    a report to read top-down (what to order, performance, tolerances, notes)
              instead of JSON
 
-KIND is displacer, waveplate, achromat or recombiner. A file named like a kind is read as
-./NAME.
+KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer or
+tilt-tuning. A file named like a kind is read as ./NAME.
 ",
     );
     for kind in doublespar::DESIGN_KINDS {
@@ -141,6 +142,10 @@ Examples:
   doublespar design achromat --first-material quartz --second-material mgf2 \\
       --retardance-waves 0.25 --wavelengths-nm 500,900
   doublespar design recombiner --material yvo4 --wavelength-nm 1064 --length-mm 8
+  doublespar design angular-splitter --material calcite --split-angle-deg 10 --table
+  doublespar design prism-polarizer --material calcite --aperture-mm 10
+  doublespar design tilt-tuning --material quartz --thickness-mm 0.5 --retardance-waves 0.25 \\
+      --tilt-azimuth-deg 90
   doublespar design request.json --table
 ",
     );

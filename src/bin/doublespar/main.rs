@@ -108,8 +108,9 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
         _ => Usage::new(
             "design",
             format!(
-                "{}; request flags follow a design kind (displacer, waveplate, achromat, recombiner)",
-                u.message
+                "{}; request flags follow a design kind ({})",
+                u.message,
+                doublespar::DESIGN_KINDS.join(", ")
             ),
         ),
     })?;
@@ -120,11 +121,11 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
             Ok(request) => doublespar::solve_design(&request).map_err(|e| design_flags::name_the_flag(k, &p, e)),
         },
         None => {
-            let file = one_file(
-                "design",
-                &p,
-                "a design kind (displacer, waveplate, achromat, recombiner) or a request file",
-            )?;
+            let wanted = format!(
+                "a design kind ({}) or a request file",
+                doublespar::DESIGN_KINDS.join(", ")
+            );
+            let file = one_file("design", &p, &wanted)?;
             read_input(&file).and_then(|t| doublespar::solve_design_str(&t))
         }
     };

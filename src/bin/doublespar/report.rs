@@ -11,6 +11,9 @@ use doublespar::{RECOMBINER_MAX_PHASE_ERROR as MAX_PHASE_ERROR, RECOMBINER_MIN_O
 use serde_json::Value;
 use std::collections::BTreeSet;
 
+#[path = "report_prisms.rs"]
+mod prisms;
+
 const LABEL_WIDTH: usize = 30;
 
 /// A number with 4 significant digits by the one formatter (`numfmt`: plain for everyday
@@ -671,6 +674,9 @@ pub fn render(answer: &Value) -> String {
         Some("waveplate") => waveplate(&mut r),
         Some("achromat") => achromat(&mut r),
         Some("recombiner") => recombiner(&mut r),
+        Some("angular-splitter") => prisms::splitter(&mut r),
+        Some("prism-polarizer") => prisms::polarizer(&mut r),
+        Some("tilt-tuning") => prisms::tilt(&mut r),
         _ => r.title("Design"),
     }
     r.others();

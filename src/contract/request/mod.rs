@@ -2,7 +2,8 @@
 //! and the readers they share.
 //!
 //! One request asks a solver for a part, by `kind`: [`DisplacerRequest`], [`WaveplateRequest`],
-//! [`AchromatRequest`] and [`RecombinerRequest`], one file each. Each is read from a [`Fields`]
+//! [`AchromatRequest`], [`RecombinerRequest`], [`SplitterRequest`], [`PolarizerRequest`] and
+//! [`TiltRequest`], one file each. Each is read from a [`Fields`]
 //! whose `kind` the caller has checked, with the defaults of DEVELOPERS.md ("Design requests")
 //! filled in; the caller finishes the [`Fields`], so that an unknown field is an error naming it.
 //! A reader refuses a value outside its range rather than clamping it, and a count or a seed with
@@ -11,12 +12,18 @@
 
 pub mod achromat;
 pub mod displacer;
+pub mod polarizer;
 pub mod recombiner;
+pub mod splitter;
+pub mod tilt;
 pub mod waveplate;
 
 pub use achromat::AchromatRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
+pub use polarizer::PolarizerRequest;
 pub use recombiner::{Middle, RecombinerRequest};
+pub use splitter::{SplitterRequest, SplitterTolerances};
+pub use tilt::{PlateSize, TiltRequest};
 pub use waveplate::{Order, WaveplateRequest};
 
 use crate::contract::fields::{Fields, number_list};
@@ -112,6 +119,19 @@ fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f64)>, Error>
             Ok(Some((lo, hi)))
         }
     }
+}
+
+/// A request document read by `read` and finished, for the tests of the solvers.
+///
+/// # Panics
+/// On any error: meant for tests with valid documents.
+#[cfg(test)]
+pub fn read_ok<T>(doc: &str, read: fn(&mut Fields) -> Result<T, Error>) -> T {
+    let v: serde_json::Value = serde_json::from_str(doc).unwrap();
+    let mut f = Fields::new("", &v).unwrap();
+    let r = read(&mut f).unwrap_or_else(|e| panic!("{doc}: {e}"));
+    f.finish().unwrap_or_else(|e| panic!("{doc}: {e}"));
+    r
 }
 
 /// The first error a request document gives its reader, for the tests of each kind.
