@@ -8,7 +8,9 @@
 # which installs them as root when they are missing (and says what to install otherwise).
 set -euo pipefail
 cd "$(dirname "$0")/.."
-WASM_BUDGET=300000
+# Raised from 300,000 when the page gained the face-by-face tracer (faces at any angle, +51 KB);
+# see README, "Wasm size".
+WASM_BUDGET=360000
 echo "== tools"
 scripts/install-test-tools.sh
 echo "== format"

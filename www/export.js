@@ -15,7 +15,7 @@ import { h } from './dom.js';
 import { minus } from './format.js';
 import { toFieldError } from './field-error.js';
 
-const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
+const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence'];
 const VIEW_TITLES = {
   side: 'side view',
   end: 'end view',
@@ -23,6 +23,8 @@ const VIEW_TITLES = {
   'walkoff-tilt': 'walk-off against cut tilt plot',
   'separation-wavelength': 'separation against wavelength plot',
   'retardance-wavelength': 'retardance against wavelength plot',
+  'split-wavelength': 'split angle against wavelength plot',
+  'split-incidence': 'split angle against incidence plot',
 };
 const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
 

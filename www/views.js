@@ -1,5 +1,5 @@
-// Doublespar page: the views, the six canvas[data-view] drawn by the core (side, end, Poincaré
-// sphere and three plots), with a text alternative in each aria-label and the plots' captions
+// Doublespar page: the views, the eight canvas[data-view] drawn by the core (side, end, Poincaré
+// sphere, three plots of the first crystal and two of the whole set-up's split angle), with a text alternative in each aria-label and the plots' captions
 // (.plot-caption) saying which crystal they show. A view that cannot be drawn says so in
 // #view-error and keeps its last picture. For printing (the sheet goes on paper) the views are
 // drawn in the light palette. The side view has a plane chooser (select[data-side-plane]):
@@ -184,6 +184,18 @@ export function describeViews(state) {
     texts['separation-wavelength'] = `Separation against wavelength for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(r.wavelength_nm, 1)} nm.`;
     texts['retardance-wavelength'] = `Retardance against wavelength for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(r.wavelength_nm, 1)} nm.`;
   }
+  // The whole set-up's split: the largest angle between output rays that carry power.
+  const dirs = r.rays.filter((ray) => ray.power >= 1e-12).map((ray) => ray.direction);
+  let split = 0;
+  for (let a = 0; a < dirs.length; a += 1) {
+    for (let b = a + 1; b < dirs.length; b += 1) {
+      const dot = dirs[a][0] * dirs[b][0] + dirs[a][1] * dirs[b][1] + dirs[a][2] * dirs[b][2];
+      split = Math.max(split, Math.acos(Math.min(1, Math.max(-1, dot))) * 180 / Math.PI);
+    }
+  }
+  const splitWords = `${num(split, 4)}° between the output beams at ${num(r.wavelength_nm, 1)} nm`;
+  texts['split-wavelength'] = `Split angle of the whole set-up against wavelength: ${splitWords}.`;
+  texts['split-incidence'] = `Split angle of the whole set-up against the angle of incidence: ${splitWords}.`;
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
   }

@@ -7,7 +7,9 @@
 //! exact trace of the scenario with one parameter changed (the wavelength, with every crystal's
 //! dispersion; or the polar angle of incidence in the plane of the scenario's incidence azimuth,
 //! from −[`INCIDENCE_SPAN_DEG`] to +[`INCIDENCE_SPAN_DEG`]), so the curve passes through the
-//! traced set-up; points whose trace fails (a formula breaking down) are left out.
+//! traced set-up; points whose trace fails (a formula breaking down) are left out. A stack of
+//! plane-parallel plates splits nothing at any wavelength or incidence: its curve is drawn flat
+//! without tracing.
 
 use crate::contract::result::{TraceResult, trace_scenario};
 use crate::contract::scenario::{ElementKind, Medium, Scenario};
@@ -19,6 +21,8 @@ use nalgebra::Vector3;
 
 /// Half-width of the incidence sweep, degrees.
 pub const INCIDENCE_SPAN_DEG: f64 = 15.0;
+/// Samples of a sweep of a stack with more than four crystals.
+pub const SPLIT_POINTS_MANY_CRYSTALS: usize = 31;
 
 /// The largest angle between two output rays that carry power, degrees.
 pub fn split_angle_deg(result: &TraceResult) -> f64 {
@@ -39,6 +43,41 @@ pub fn split_angle_deg(result: &TraceResult) -> f64 {
 
 fn split_of(sc: &Scenario) -> Option<f64> {
     trace_scenario(sc).ok().map(|r| split_angle_deg(&r))
+}
+
+/// Whether every crystal is version 1's plate: all rays then leave along the incident beam at
+/// any wavelength and incidence, and the split is 0 without a trace.
+fn plane_parallel(sc: &Scenario) -> bool {
+    sc.elements.iter().all(|e| match e.kind {
+        ElementKind::Crystal(c) => c.placement.is_default(),
+        _ => true,
+    })
+}
+
+/// Samples of a sweep: fewer for stacks of many crystals, whose every trace costs more.
+fn samples(sc: &Scenario) -> usize {
+    let crystals = sc
+        .elements
+        .iter()
+        .filter(|e| matches!(e.kind, ElementKind::Crystal(_)))
+        .count();
+    if crystals > 4 {
+        SPLIT_POINTS_MANY_CRYSTALS
+    } else {
+        WAVELENGTH_POINTS
+    }
+}
+
+/// The flat series of a plane-parallel stack.
+fn no_split(title: &str, x_label: &str, x_unit: &str, (lo, hi): (f64, f64), now: f64) -> Series {
+    series(
+        title,
+        x_label,
+        x_unit,
+        vec![[lo, 0.0], [hi, 0.0]],
+        Some([now, 0.0]),
+        "plane-parallel faces: every ray leaves along the beam".into(),
+    )
 }
 
 /// The wavelengths every crystal's formula covers (the custom range when none is catalogued).
@@ -82,12 +121,21 @@ fn series(
 /// The split angle against wavelength over the range every crystal's formula covers.
 pub fn split_vs_wavelength(sc: &Scenario) -> Series {
     let (lo, hi) = common_range(sc);
+    if plane_parallel(sc) {
+        return no_split(
+            "Split angle against wavelength",
+            "wavelength",
+            "nm",
+            (lo, hi),
+            sc.wavelength.nm(),
+        );
+    }
     let at = |nm: f64| -> Option<f64> {
         let mut s = sc.clone();
         s.wavelength = Wavelength::from_nm(nm).ok()?;
         split_of(&s)
     };
-    let n = WAVELENGTH_POINTS;
+    let n = samples(sc);
     let points = (0..n)
         .filter_map(|i| {
             let nm = lo + (hi - lo) * i as f64 / (n - 1) as f64;
@@ -107,12 +155,22 @@ pub fn split_vs_wavelength(sc: &Scenario) -> Series {
 
 /// The split angle against the polar angle of incidence, in the plane of the incidence azimuth.
 pub fn split_vs_incidence(sc: &Scenario) -> Series {
+    if plane_parallel(sc) {
+        let span = (-INCIDENCE_SPAN_DEG, INCIDENCE_SPAN_DEG);
+        return no_split(
+            "Split angle against incidence",
+            "incidence",
+            "°",
+            span,
+            sc.beam.polar_deg,
+        );
+    }
     let at = |polar: f64| -> Option<f64> {
         let mut s = sc.clone();
         s.beam.polar_deg = polar;
         split_of(&s)
     };
-    let n = WAVELENGTH_POINTS;
+    let n = samples(sc);
     let points = (0..n)
         .filter_map(|i| {
             let p = -INCIDENCE_SPAN_DEG + 2.0 * INCIDENCE_SPAN_DEG * i as f64 / (n - 1) as f64;
