@@ -31,12 +31,19 @@ const SIZES: [(f64, f64); 10] = [
 const MARGIN: f64 = 28.0;
 
 fn presets() -> Vec<(String, String)> {
-    let mut out: Vec<(String, String)> = ["demo", "recombiner", "quarter-wave"]
+    // Every document of examples/, the page's presets.
+    let mut files: Vec<std::path::PathBuf> = std::fs::read_dir("examples")
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "json"))
+        .collect();
+    files.sort();
+    let mut out: Vec<(String, String)> = files
         .iter()
-        .map(|n| {
+        .map(|p| {
             (
-                n.to_string(),
-                std::fs::read_to_string(format!("examples/{n}.json")).unwrap(),
+                p.file_stem().unwrap().to_string_lossy().into_owned(),
+                std::fs::read_to_string(p).unwrap(),
             )
         })
         .collect();

@@ -75,6 +75,8 @@ pub fn render(r: &TraceResult) -> String {
     input(&mut out, r);
     elements(&mut out, r);
     rays(&mut out, r);
+    directions(&mut out, r);
+    rejected(&mut out, r);
     spots(&mut out, r);
     if !r.warnings.is_empty() {
         let _ = writeln!(out);
@@ -194,6 +196,64 @@ fn rays(out: &mut String, r: &TraceResult) {
             num(ray.stokes[2] / s0, 4),
             num(ray.stokes[3] / s0, 4),
             ellipse_text(&ray.ellipse)
+        );
+    }
+}
+
+/// Where rays leave at angles or meet a screen away from the last face: each ray's deviation,
+/// exit point and screen position (left out for plane-parallel plates with the screen on the
+/// last face, where the exit points say it all).
+fn directions(out: &mut String, r: &TraceResult) {
+    let apart = |a: [f64; 2], b: [f64; 2]| a != b;
+    if r.rays
+        .iter()
+        .all(|x| x.deviation_deg <= 1e-9 && !apart(x.screen_position_mm, x.exit_position_mm))
+    {
+        return;
+    }
+    let _ = writeln!(out);
+    let _ = writeln!(
+        out,
+        "Directions (deviation from the incident beam; where each ray meets the screen)"
+    );
+    let _ = writeln!(
+        out,
+        "{:<8} {:>12} {:>12} {:>12} {:>12} {:>12}",
+        "label", "deviation/°", "exit z/mm", "screen x/mm", "screen y/mm", "power"
+    );
+    for ray in &r.rays {
+        let _ = writeln!(
+            out,
+            "{:<8} {:>12} {:>12} {:>12} {:>12} {:>12}",
+            if ray.label.is_empty() { "-" } else { &ray.label },
+            num(ray.deviation_deg, 6),
+            num(ray.exit_point_mm[2], 6),
+            num(ray.screen_position_mm[0], 6),
+            num(ray.screen_position_mm[1], 6),
+            power_text(ray.power)
+        );
+    }
+}
+
+/// Rays that did not leave forward, with where, why and their power.
+fn rejected(out: &mut String, r: &TraceResult) {
+    if r.rejected.is_empty() {
+        return;
+    }
+    let _ = writeln!(out);
+    let _ = writeln!(out, "Rejected rays (elements numbered from 1)");
+    for x in &r.rejected {
+        let _ = writeln!(
+            out,
+            "  {:<8} element {} {} face  {}  power {}  at ({}, {}, {}) mm",
+            x.label,
+            x.element + 1,
+            x.face,
+            x.reason,
+            power_text(x.power),
+            num(x.point_mm[0], 6),
+            num(x.point_mm[1], 6),
+            num(x.point_mm[2], 6)
         );
     }
 }

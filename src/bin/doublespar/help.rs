@@ -94,6 +94,8 @@ VIEW is one of:
   poincare        input and output polarization states on the Poincaré sphere
   walkoff-tilt, separation-wavelength, retardance-wavelength
                   plots for the first crystal of the stack
+  split-wavelength, split-incidence
+                  the whole set-up's split angle (largest angle between output beams)
 
   --size WxH   picture size in pixels, 50 to 10000 each [900x420]
   --dark       the dark palette
