@@ -142,6 +142,62 @@ proptest! {
         // 400 cases by default; CI runs them at scale with PROPTEST_CASES (scripts/test.sh).
         cases: std::env::var("PROPTEST_CASES").ok().and_then(|v| v.parse().ok()).unwrap_or(400), ..ProptestConfig::default() })]
 
+    /// Faces at any angle (contract version 2): for generated wedge pairs, tilted and mounted
+    /// plates, air, cement and optical contacts, incidences up to grazing, the power of the rays
+    /// that leave, the rejected rays and the reflected light add to 1 (nothing absorbs); every
+    /// number is finite; a document the contract refuses names its field.
+    #[test]
+    fn placed_faces_account_for_every_watt(
+        (t1, t2, a1, a2) in (0.0f64..60.0, 0.0f64..60.0, -180.0f64..180.0, -180.0f64..180.0),
+        (front, back, mount) in (0.0f64..45.0, 0.0f64..45.0, 0.0f64..30.0),
+        (contact, uncoated) in (0usize..3, any::<bool>()),
+        polar in prop_oneof![3 => -40.0f64..40.0, 1 => Just(0.0), 1 => 80.0f64..89.9],
+        paz in -180.0f64..180.0,
+        pol in polarization(),
+        medium in proptest::sample::select(vec!["calcite", "quartz", "yvo4", "rutile"]),
+    ) {
+        let contact = ["", r#", "contact": "cement", "cement_index": 1.5"#, r#", "contact": "optical""#][contact];
+        let doc = format!(
+            r#"{{"version": 2, "wavelength_nm": 700, "interface_losses": "{}", "screen_mm": 20,
+                "beam": {{"incidence": {{"polar_deg": {polar}, "azimuth_deg": {paz}}}, "polarization": {pol}}},
+                "elements": [
+                  {{"kind": "crystal", "material": "{medium}", "thickness_mm": 6, "axis": {{"tilt_deg": {t1}, "azimuth_deg": {a1}}},
+                    "aperture_mm": 6, "faces": {{"front": {{"tilt_deg": {front}}}, "back": {{"tilt_deg": {back}, "azimuth_deg": 30}}}}}},
+                  {{"kind": "crystal", "material": "{medium}", "thickness_mm": 6, "axis": {{"tilt_deg": {t2}, "azimuth_deg": {a2}}},
+                    "aperture_mm": 6, "faces": {{"front": {{"tilt_deg": {back}, "azimuth_deg": 30}}}}{contact}}},
+                  {{"kind": "crystal", "material": "{medium}", "thickness_mm": 1, "axis": {{"tilt_deg": 90}}, "gap_mm": 5,
+                    "mount": {{"tilt_deg": {mount}, "azimuth_deg": 60}}}}]}}"#,
+            if uncoated { "uncoated" } else { "ideal" }
+        );
+        let s = match Scenario::from_json_str(&doc) {
+            Ok(s) => s,
+            Err(e) => {
+                prop_assert!(e.field.starts_with("elements["), "{}: {}", e.field, e.message);
+                return Ok(());
+            }
+        };
+        let Ok(r) = trace(&s) else { return Ok(()) };
+        let rays: f64 = r.rays.iter().map(|x| x.power).sum();
+        let rejected: f64 = r.rejected.iter().map(|x| x.power).sum();
+        let reflected: f64 = r
+            .elements
+            .iter()
+            .map(|e| match e {
+                ElementReport::Crystal { reflected_power, .. } => *reflected_power,
+                _ => 0.0,
+            })
+            .sum();
+        prop_assert!((rays + rejected + reflected - 1.0).abs() < 1e-9, "{rays} + {rejected} + {reflected}");
+        for ray in &r.rays {
+            prop_assert!(ray.power.is_finite() && ray.deviation_deg.is_finite());
+            prop_assert!(ray.screen_position_mm.iter().chain(&ray.exit_point_mm).chain(&ray.direction).all(|x| x.is_finite()));
+        }
+        for x in &r.rejected {
+            prop_assert!(x.power.is_finite() && x.power >= 0.0);
+            prop_assert!(x.point_mm.iter().chain(&x.direction).all(|v| v.is_finite()));
+        }
+    }
+
     #[test]
     fn ideal_stacks_conserve_power(
         plates in prop::collection::vec(plate(), 1..4),
