@@ -95,6 +95,12 @@ pub const DIFF_STEP_LENGTH_FLOOR_MM: f64 = 1e-3;
 /// small for the same reason as the length step.
 pub const DIFF_STEP_TILT_DEG: f64 = 1e-5;
 
+/// Rays whose directions differ by at most this over k·w (k the wave number, w the beam radius)
+/// count as leaving in one direction when spots are grouped: the tilt term k²w²|Δt|²/8 of their
+/// overlap is then below 10⁻²⁴, far under rounding, so the cell-based grouping of one direction
+/// gives the same spots as the tilted one.
+pub const SAME_DIRECTION_TILT: f64 = 1e-12;
+
 /// Intervals of a waveplate's retardance-against-incidence curve, from 0 to the request's
 /// largest incidence; the acceptance angle is bisected between two of its samples.
 pub const ANGULAR_CURVE_INTERVALS: usize = 200;

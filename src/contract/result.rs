@@ -29,7 +29,7 @@ use crate::optics::trace::trace;
 use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::{OpticAxis, angle_between, max_walkoff_cut};
 use crate::precision::POWER_ROUNDING;
-use crate::precision::{DEGENERATE_DIRECTION, SITE_FRACTION_OF_RADIUS};
+use crate::precision::{DEGENERATE_DIRECTION, SAME_DIRECTION_TILT};
 use nalgebra::Vector3;
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -364,26 +364,26 @@ pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     Ok(report(sc, &stack, &traced, warnings))
 }
 
-/// The spots of a traced stack: its paths grouped where their beams overlap on the exit plane,
-/// each with the overlap-weighted coherent sum of its fields ([`group_spots`]).
+/// The spots of a traced stack: its paths grouped where their beams overlap on the screen, each
+/// with the overlap-weighted coherent sum of its fields ([`group_spots`], [`group_tilted`]).
 pub fn spots(stack: &Stack, traced: &Trace) -> Vec<Spot> {
     let k0 = stack.wavelength.k0_per_mm();
     let beam = GaussianBeam::new(stack.input.diameter_mm, k0 * stack.outside_index);
-    let exits: Vec<Exit> = traced
-        .paths
-        .iter()
-        .map(|p| Exit {
-            label: &p.label,
-            pos: p.screen_mm,
-            m: p.matrix,
-        })
-        .collect();
     let input = &stack.input;
     // One direction for all (plane-parallel plates, tilted plates): the cell-based grouping;
     // rays that fan out (wedges): the pairwise grouping with the tilted overlap.
     let u = traced.paths.first().map_or(input.direction, |p| p.direction);
-    let tilt_negligible = 1e-3 * SITE_FRACTION_OF_RADIUS / (beam.k_per_mm * beam.radius_mm).max(f64::MIN_POSITIVE);
+    let tilt_negligible = SAME_DIRECTION_TILT / (beam.k_per_mm * beam.radius_mm).max(f64::MIN_POSITIVE);
     if traced.paths.iter().all(|p| (p.direction - u).norm() <= tilt_negligible) {
+        let exits: Vec<Exit> = traced
+            .paths
+            .iter()
+            .map(|p| Exit {
+                label: &p.label,
+                pos: p.screen_mm,
+                m: p.matrix,
+            })
+            .collect();
         return group_spots(&exits, &input.stokes, input.jones.as_ref(), &beam, arr3(u));
     }
     let rays: Vec<ScreenRay> = traced
@@ -527,7 +527,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
             Ray {
                 label: p.label.clone(),
                 power: s[0],
-                exit_position_mm: p.exit_mm,
+                exit_position_mm: p.exit_xy(),
                 exit_z_mm: z,
                 direction: arr3(p.direction),
                 exit_point_mm: p.exit_point_mm,

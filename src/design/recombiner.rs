@@ -123,7 +123,8 @@ fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> 
             .ok_or_else(|| Error::new("material", format!("path {l} does not exist (a mode is evanescent)")))
     };
     let (oe, eo) = (find("oe")?, find("eo")?);
-    let dx = [eo.exit_mm[0] - oe.exit_mm[0], eo.exit_mm[1] - oe.exit_mm[1]];
+    let (e, o) = (eo.exit_xy(), oe.exit_xy());
+    let dx = [e[0] - o[0], e[1] - o[1]];
     let spots = spots(&stack, &traced);
     let total_power: f64 = spots.iter().map(|s| s.power).sum();
     let spot = spots.iter().find(|s| s.rays.iter().any(|x| x == "oe"));

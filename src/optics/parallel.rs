@@ -44,7 +44,6 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
     let mut paths = vec![Path {
         label: String::new(),
         matrix: JonesMatrix::identity(),
-        exit_mm: [0.0, 0.0],
         phase_rad: 0.0,
         points_mm: vec![[0.0, 0.0, 0.0]],
         direction: u,
@@ -60,11 +59,12 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
             let ph = k0 * qz_out * g;
             let f = Complex64::from_polar(1.0, ph);
             for path in &mut paths {
-                path.exit_mm[0] += g * u.x / u.z;
-                path.exit_mm[1] += g * u.y / u.z;
+                path.exit_point_mm[0] += g * u.x / u.z;
+                path.exit_point_mm[1] += g * u.y / u.z;
                 path.phase_rad += ph;
                 path.matrix *= f;
-                path.points_mm.push([path.exit_mm[0], path.exit_mm[1], z + g]);
+                path.points_mm
+                    .push([path.exit_point_mm[0], path.exit_point_mm[1], z + g]);
             }
             z += g;
         }
@@ -124,8 +124,8 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
         }
     }
     for path in &mut paths {
-        path.exit_point_mm = [path.exit_mm[0], path.exit_mm[1], z];
-        path.screen_mm = path.exit_mm;
+        path.exit_point_mm[2] = z;
+        path.screen_mm = path.exit_xy();
     }
     if stack.screen_mm > 0.0 {
         // The screen as one more gap of the outside medium.
@@ -133,7 +133,8 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
         let ph = k0 * qz_out * g;
         let f = Complex64::from_polar(1.0, ph);
         for path in &mut paths {
-            path.screen_mm = [path.exit_mm[0] + g * u.x / u.z, path.exit_mm[1] + g * u.y / u.z];
+            let [x, y] = path.exit_xy();
+            path.screen_mm = [x + g * u.x / u.z, y + g * u.y / u.z];
             path.phase_rad += ph;
             path.matrix *= f;
             path.points_mm.push([path.screen_mm[0], path.screen_mm[1], z + g]);
@@ -170,13 +171,16 @@ fn split(
             let step: JonesMatrix = col * row * Complex64::from_polar(1.0, ph);
             let mut label = path.label.clone();
             label.push(if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' });
-            let exit_mm = [path.exit_mm[0] + shifts[m][0], path.exit_mm[1] + shifts[m][1]];
+            let exit_mm = [
+                path.exit_point_mm[0] + shifts[m][0],
+                path.exit_point_mm[1] + shifts[m][1],
+            ];
             let mut points_mm = path.points_mm.clone();
             points_mm.push([exit_mm[0], exit_mm[1], z_back]);
             next.push(Path {
                 label,
                 matrix: step * path.matrix,
-                exit_mm,
+                exit_point_mm: [exit_mm[0], exit_mm[1], z_back],
                 phase_rad: path.phase_rad + ph,
                 points_mm,
                 ..*path

@@ -423,7 +423,6 @@ pub fn trace_planar(stack: &Stack) -> Trace {
         paths.push(Path {
             label: f.label,
             matrix: m * Complex64::from_polar(1.0, -across),
-            exit_mm: [exit.x, exit.y],
             phase_rad: f.phase - across,
             points_mm: f.points,
             direction: u,
@@ -729,7 +728,7 @@ mod tests {
                 for (p, q) in a.paths.iter().zip(&b.paths) {
                     assert_eq!(p.label, q.label);
                     for k in 0..2 {
-                        assert_close(q.exit_mm[k], p.exit_mm[k], 1e-12, 1.0, "exit point");
+                        assert_close(q.exit_xy()[k], p.exit_xy()[k], 1e-12, 1.0, "exit point");
                     }
                     assert!(
                         (p.matrix - q.matrix).norm() < 1e-11,
@@ -781,7 +780,7 @@ mod tests {
         for p in &t.paths {
             assert!((p.direction - Vector3::z()).norm() < 1e-14, "{}", p.direction);
             // The beam travels along z; the ray bends toward the face normal, which leans to +x.
-            assert_close(p.exit_mm[0], expected, 1e-12, 0.0, "lateral shift of a tilted plate");
+            assert_close(p.exit_xy()[0], expected, 1e-12, 0.0, "lateral shift of a tilted plate");
         }
         assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
     }

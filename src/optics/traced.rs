@@ -18,8 +18,6 @@ pub struct Path {
     pub label: String,
     /// The path's Jones matrix on the beam basis, faces and phases included.
     pub matrix: JonesMatrix,
-    /// Lateral exit point [x, y] on the back face of the last element, mm.
-    pub exit_mm: [f64; 2],
     /// Accumulated propagation phase Σ k0 q_z L over layers and gaps, radians.
     pub phase_rad: f64,
     /// Where the ray crosses z = 0 and every face after it, [x, y, z] in mm, the screen last.
@@ -30,6 +28,13 @@ pub struct Path {
     pub exit_point_mm: [f64; 3],
     /// Where its straight continuation meets the screen plane, [x, y] in mm.
     pub screen_mm: [f64; 2],
+}
+
+impl Path {
+    /// The lateral exit point [x, y], mm (of `exit_point_mm`).
+    pub fn exit_xy(&self) -> [f64; 2] {
+        [self.exit_point_mm[0], self.exit_point_mm[1]]
+    }
 }
 
 /// Which face of an element.

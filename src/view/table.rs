@@ -173,6 +173,10 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
 /// The rays: exit point, power and normalized Stokes vector of each.
 fn rays(out: &mut String, r: &TraceResult) {
     let _ = writeln!(out);
+    if r.rays.is_empty() {
+        let _ = writeln!(out, "Rays: none leaves the stack forward");
+        return;
+    }
     let _ = writeln!(
         out,
         "Rays (exit points on the last face, z = {} mm)",
