@@ -28,7 +28,7 @@ use serde_json::{Value, json};
 
 /// Largest tilt of a face normal or a mount from z, degrees.
 pub const MAX_FACE_TILT_DEG: f64 = 89.0;
-/// Default index of a cement layer.
+/// Default index of a cement layer (the contract's default, CONVENTIONS.md version 2).
 pub const DEFAULT_CEMENT_INDEX: f64 = 1.55;
 /// Two planes closer than this (mm, and in their normals) count as one.
 const SAME_PLANE: f64 = 1e-9;
