@@ -23,7 +23,9 @@
 //!
 //! Tolerances by Monte Carlo: each sample moves the common face's tilt (both wedges together, as
 //! a contacted pair must), turns each wedge's optic axis about z by its own error and tilts the
-//! incident beam in the plane of the split, and traces the whole pair.
+//! incident beam in the plane of the split, and follows both beams through the pair by their
+//! wave-vector chains ([`crate::optics::chain`]): the directions a whole trace gives, exactly,
+//! without the fields (a tenth of the work; see the README's benchmark).
 
 use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::SplitterRequest;
@@ -32,8 +34,8 @@ use crate::design::part::{Part, angle_between_deg, min_edge_mm, path_power, plac
 use crate::design::statistics::{Summary, summarize};
 use crate::error::Error;
 use crate::numfmt::sig;
+use crate::optics::chain::chain;
 use crate::optics::stack::{Element as Layered, Medium, Stack};
-use crate::optics::trace::trace;
 use crate::optics::uniaxial::{OpticAxis, Uniaxial};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{BISECTION_STEPS, CRITICAL_MARGIN_DEG, DESIGN_SCAN_INTERVALS};
@@ -189,12 +191,12 @@ fn perturbed(base: &Stack, alpha_deg: f64, err: Errors) -> Stack {
     s
 }
 
-/// The angle between the traced beams "oe" and "eo" of a stack, degrees; `None` when either does
-/// not leave.
+/// The angle between the beams "oe" and "eo" of a stack, degrees; `None` when either does not
+/// leave. Their wave-vector chains ([`chain`]) give exactly the directions a whole trace reports
+/// (tested there), without the fields a split does not depend on.
 fn split_of(stack: &Stack) -> Option<f64> {
-    let traced = trace(stack);
-    let find = |l: &str| traced.paths.iter().find(|p| p.label == l);
-    Some(angle_between_deg(&find("oe")?.direction, &find("eo")?.direction))
+    let (oe, eo) = (chain(stack, "oe")?, chain(stack, "eo")?);
+    Some(angle_between_deg(&oe.direction, &eo.direction))
 }
 
 /// The traced beams "oe" and "eo" of a part: (deviation toward +x in degrees, power) each, and

@@ -3,6 +3,7 @@
 //! document and no view; every layer above builds on it.
 
 pub mod beam_overlap;
+pub mod chain;
 pub mod geometry;
 pub mod interface;
 pub mod jones;

@@ -186,25 +186,22 @@ fn real3(v: Vector3<f64>) -> CVector3 {
     v.map(Complex64::from)
 }
 
-/// Both modes (ordinary, then extraordinary) of `crystal` at tangential wave vector `qt`,
-/// travelling along `travel`.
-pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+/// The normal components q_z of both wave vectors (ordinary, then extraordinary) of `crystal` at
+/// tangential wave vector `qt`, travelling along `travel`, each with whether it propagates; `m`
+/// is the crystal's extraordinary surface A ([`Uniaxial::extraordinary_surface`]). What fixes a
+/// ray's direction beyond a face, without its fields.
+fn crystal_normals(crystal: &Uniaxial, m: &Matrix3<f64>, qt: [f64; 2], travel: Travel) -> [(Complex64, bool); 2] {
     let no = crystal.indices.no;
-    let c = crystal.axis.unit();
     let qt_norm = qt[0].hypot(qt[1]);
-
     // Ordinary: q_z² = n_o² − |q_t|², factored for accuracy near the critical angle.
-    let (qz_o, prop_o) = signed_root((no - qt_norm) * (no + qt_norm), travel);
-    let q_o = CVector3::new(qt[0].into(), qt[1].into(), qz_o);
-
+    let ordinary = signed_root((no - qt_norm) * (no + qt_norm), travel);
     // Extraordinary: a q_z² + 2 b q_z + c0 = 0 from q·A·q = 1.
-    let m = crystal.extraordinary_surface();
     let a = m[(2, 2)];
     let b = m[(2, 0)] * qt[0] + m[(2, 1)] * qt[1];
     let c0 = m[(0, 0)] * qt[0] * qt[0] + 2.0 * m[(0, 1)] * qt[0] * qt[1] + m[(1, 1)] * qt[1] * qt[1] - 1.0;
     let disc = b * b - a * c0;
     let s = travel.sign();
-    let (qz_e, prop_e) = if disc > 0.0 {
+    let extraordinary = if disc > 0.0 {
         let r = disc.sqrt();
         // Root (−b + s·r)/a, computed without cancellation.
         let root = if s * b <= 0.0 {
@@ -216,11 +213,40 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
     } else {
         (Complex64::new(-b / a, s * (-disc).sqrt() / a), false)
     };
+    [ordinary, extraordinary]
+}
+
+/// The wave vector q of one mode of `crystal` at tangential wave vector `qt` (the crystal and
+/// `qt` in a face's own frame, forward travel), or `None` when that mode is evanescent there:
+/// the same root [`crystal_modes`] takes, without the fields.
+pub fn crystal_wave_vector(crystal: &Uniaxial, qt: [f64; 2], kind: ModeKind) -> Option<Vector3<f64>> {
+    let m = crystal.extraordinary_surface();
+    let (qz, propagating) = crystal_normals(crystal, &m, qt, Travel::Forward)[match kind {
+        ModeKind::Ordinary => 0,
+        ModeKind::Extraordinary => 1,
+    }];
+    propagating.then(|| Vector3::new(qt[0], qt[1], qz.re))
+}
+
+/// The wave vector q of a forward wave in an isotropic medium of index `n` at tangential wave
+/// vector `qt`, or `None` when it is evanescent there: the root [`isotropic_modes`] takes.
+pub fn isotropic_wave_vector(n: f64, qt: [f64; 2]) -> Option<Vector3<f64>> {
+    let qt_norm = qt[0].hypot(qt[1]);
+    let (qz, propagating) = signed_root((n - qt_norm) * (n + qt_norm), Travel::Forward);
+    propagating.then(|| Vector3::new(qt[0], qt[1], qz.re))
+}
+
+/// Both modes (ordinary, then extraordinary) of `crystal` at tangential wave vector `qt`,
+/// travelling along `travel`.
+pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+    let c = crystal.axis.unit();
+    let m = crystal.extraordinary_surface();
+    let [(qz_o, prop_o), (qz_e, prop_e)] = crystal_normals(crystal, &m, qt, travel);
+    let q_o = CVector3::new(qt[0].into(), qt[1].into(), qz_o);
     let q_e = CVector3::new(qt[0].into(), qt[1].into(), qz_e);
 
     let cc = real3(c);
     let inv_eps = crystal.inverse_permittivity().map(Complex64::from);
-    let eps = crystal.permittivity().map(Complex64::from);
 
     // Ordinary displacement ∥ q × c, with a fixed fallback along the optic axis.
     let d_o_of = |q: &CVector3| -> CVector3 {
@@ -240,7 +266,6 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
     let e_o = inv_eps * d_o;
     let d_e = d_o_of(&q_e).cross(&q_e);
     let e_e = inv_eps * d_e;
-    let _ = eps;
 
     [
         Mode::build(ModeKind::Ordinary, travel, q_o, e_o, d_o, prop_o, q_o.map(|z| z.re)),
