@@ -160,12 +160,11 @@ impl Mode {
     /// in a face's own frame is brought back to the lab frame this way; its normalization (unit
     /// power flux across that face) is kept.
     pub fn rotated(&self, r: &Matrix3<f64>) -> Mode {
-        let rc = r.map(Complex64::from);
         Mode {
-            q: rc * self.q,
-            e: rc * self.e,
-            h: rc * self.h,
-            d: rc * self.d,
+            q: real_times(r, &self.q),
+            e: real_times(r, &self.e),
+            h: real_times(r, &self.h),
+            d: real_times(r, &self.d),
             ray: self.ray.map(|v| r * v),
             ..*self
         }
@@ -180,6 +179,18 @@ fn signed_root(x: f64, travel: Travel) -> (Complex64, bool) {
     } else {
         (Complex64::new(0.0, travel.sign() * (-x).sqrt()), false)
     }
+}
+
+/// A real matrix times a complex vector, as (m·Re v) + i (m·Im v): the same numbers as the
+/// complex product with a zero imaginary part, at a quarter of the multiplications.
+fn real_times(m: &Matrix3<f64>, v: &CVector3) -> CVector3 {
+    let re = m * v.map(|z| z.re);
+    let im = m * v.map(|z| z.im);
+    CVector3::new(
+        Complex64::new(re.x, im.x),
+        Complex64::new(re.y, im.y),
+        Complex64::new(re.z, im.z),
+    )
 }
 
 fn real3(v: Vector3<f64>) -> CVector3 {
@@ -246,7 +257,7 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
     let q_e = CVector3::new(qt[0].into(), qt[1].into(), qz_e);
 
     let cc = real3(c);
-    let inv_eps = crystal.inverse_permittivity().map(Complex64::from);
+    let inv_eps = crystal.inverse_permittivity();
 
     // Ordinary displacement ∥ q × c, with a fixed fallback along the optic axis.
     let d_o_of = |q: &CVector3| -> CVector3 {
@@ -263,9 +274,9 @@ pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode;
         }
     };
     let d_o = d_o_of(&q_o);
-    let e_o = inv_eps * d_o;
+    let e_o = real_times(&inv_eps, &d_o);
     let d_e = d_o_of(&q_e).cross(&q_e);
-    let e_e = inv_eps * d_e;
+    let e_e = real_times(&inv_eps, &d_e);
 
     [
         Mode::build(ModeKind::Ordinary, travel, q_o, e_o, d_o, prop_o, q_o.map(|z| z.re)),

@@ -40,6 +40,7 @@ use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, POWER_ROUNDING};
 use nalgebra::{Matrix3, RowVector2, Vector3};
 use num_complex::Complex64;
+use std::cell::RefCell;
 
 /// What light meets at a face: an isotropic body of some index, or a crystal.
 #[derive(Debug, Clone, Copy)]
@@ -105,13 +106,62 @@ impl Carrier {
     }
 }
 
+/// Where rays have been, kept once for all of them: each ray holds the index of its last point
+/// and of the last letter of its label, and rays that split share what came before, so that a
+/// crossing copies no list.
+#[derive(Debug, Default)]
+struct Trails {
+    /// (the point before, point in mm).
+    points: Vec<(u32, [f64; 3])>,
+    /// (the letter before, letter).
+    letters: Vec<(u32, char)>,
+}
+
+/// The index before the first point or letter.
+const START: u32 = u32::MAX;
+
+impl Trails {
+    fn point(&mut self, before: u32, p: [f64; 3]) -> u32 {
+        self.points.push((before, p));
+        (self.points.len() - 1) as u32
+    }
+
+    fn letter(&mut self, before: u32, c: char) -> u32 {
+        self.letters.push((before, c));
+        (self.letters.len() - 1) as u32
+    }
+
+    /// The points up to and including `last`, first to last.
+    fn points_to(&self, mut last: u32) -> Vec<[f64; 3]> {
+        let mut out = Vec::new();
+        while let Some(&(before, p)) = self.points.get(last as usize) {
+            out.push(p);
+            last = before;
+        }
+        out.reverse();
+        out
+    }
+
+    /// The label ending in letter `last`.
+    fn label_to(&self, mut last: u32) -> String {
+        let mut out = Vec::new();
+        while let Some(&(before, c)) = self.letters.get(last as usize) {
+            out.push(c);
+            last = before;
+        }
+        out.iter().rev().collect()
+    }
+}
+
 /// One ray in flight.
 #[derive(Debug, Clone)]
 struct Flight {
-    label: String,
+    /// Its label's last letter in [`Trails`].
+    label: u32,
     at: Vector3<f64>,
     phase: f64,
-    points: Vec<[f64; 3]>,
+    /// Its last point in [`Trails`].
+    points: u32,
     carrier: Carrier,
     /// Set while the ray waits at a slab's back face for its exit to be decided (by the next
     /// element's contact): the slab's index and body.
@@ -145,6 +195,7 @@ struct Tracer<'a> {
     stack: &'a Stack,
     k0: f64,
     s_in: [f64; 4],
+    trails: RefCell<Trails>,
 }
 
 impl Tracer<'_> {
@@ -269,7 +320,7 @@ impl Tracer<'_> {
         f.carrier.advance_phase(phi);
         f.phase += phi;
         f.at += step;
-        f.points.push(arr(f.at));
+        f.points = self.trails.borrow_mut().point(f.points, arr(f.at));
         true
     }
 }
@@ -286,17 +337,20 @@ struct Tally {
 /// stacks take [`crate::optics::trace::trace`], which agrees with this to rounding).
 pub fn trace_planar(stack: &Stack) -> Trace {
     let n_out = stack.outside_index;
+    let mut trails = Trails::default();
+    let first_point = trails.point(START, [0.0; 3]);
     let tracer = Tracer {
         stack,
         k0: stack.wavelength.k0_per_mm(),
         s_in: stack.input.stokes,
+        trails: RefCell::new(trails),
     };
     let outside = Body::Isotropic(n_out);
     let mut flights = vec![Flight {
-        label: String::new(),
+        label: START,
         at: Vector3::zeros(),
         phase: 0.0,
-        points: vec![[0.0, 0.0, 0.0]],
+        points: first_point,
         carrier: Carrier::Free {
             n: n_out,
             u: stack.input.direction,
@@ -333,7 +387,14 @@ pub fn trace_planar(stack: &Stack) -> Trace {
                 let mut next = Vec::with_capacity(flights.len());
                 for mut f in flights {
                     if !tracer.travel(&mut f, &plane) {
-                        reject_here(&mut rejected, &f, idx, Side::Front, RejectReason::OutsideAperture, s_in);
+                        reject_here(
+                            &mut rejected,
+                            &f,
+                            idx,
+                            Side::Front,
+                            RejectReason::OutsideAperture,
+                            &tracer,
+                        );
                         continue;
                     }
                     if let Carrier::Free { m, .. } = &mut f.carrier {
@@ -366,7 +427,14 @@ pub fn trace_planar(stack: &Stack) -> Trace {
                 flights = Vec::with_capacity(next.len());
                 for mut f in next {
                     if !tracer.travel(&mut f, &faces.back) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
-                        reject_here(&mut rejected, &f, idx, Side::Back, RejectReason::OutsideAperture, s_in);
+                        reject_here(
+                            &mut rejected,
+                            &f,
+                            idx,
+                            Side::Back,
+                            RejectReason::OutsideAperture,
+                            &tracer,
+                        );
                         continue;
                     }
                     f.pending = Some((idx, body));
@@ -413,18 +481,19 @@ pub fn trace_planar(stack: &Stack) -> Trace {
                 last,
                 Side::Back,
                 RejectReason::OutsideAperture,
-                &tracer.s_in,
+                &tracer,
             );
             continue;
         }
         let Carrier::Free { n, u, m } = f.carrier else { continue };
         // Refer the phase to the screen's axis point (module header).
         let across = tracer.k0 * n * (u.x * f.at.x + u.y * f.at.y);
+        let trails = tracer.trails.borrow();
         paths.push(Path {
-            label: f.label,
+            label: trails.label_to(f.label),
             matrix: m * Complex64::from_polar(1.0, -across),
             phase_rad: f.phase - across,
-            points_mm: f.points,
+            points_mm: trails.points_to(f.points),
             direction: u,
             exit_point_mm: arr(exit),
             screen_mm: [f.at.x, f.at.y],
@@ -493,16 +562,17 @@ fn front_modes(tracer: &Tracer, faces: &Faces, body: Body) -> [Mode; 2] {
 }
 
 /// Records `f` as rejected at element `idx` with its whole power.
-fn reject_here(out: &mut Vec<Rejected>, f: &Flight, idx: usize, side: Side, reason: RejectReason, s_in: &[f64; 4]) {
+fn reject_here(out: &mut Vec<Rejected>, f: &Flight, idx: usize, side: Side, reason: RejectReason, tracer: &Tracer) {
+    let trails = tracer.trails.borrow();
     out.push(Rejected {
-        label: f.label.clone(),
+        label: trails.label_to(f.label),
         element: idx,
         face: side,
         reason,
-        power: f.carrier.power(s_in),
+        power: f.carrier.power(&tracer.s_in),
         point_mm: arr(f.at),
         direction: arr(f.carrier.direction()),
-        points_mm: f.points.clone(),
+        points_mm: trails.points_to(f.points),
     });
 }
 
@@ -523,15 +593,16 @@ fn cross_booked(
     let mut p_out = 0.0;
     for (carrier, letter) in crossed.onward {
         p_out += carrier.power(s_in);
-        let mut label = f.label.clone();
-        label.extend(letter);
+        let label = match letter {
+            Some(c) => tracer.trails.borrow_mut().letter(f.label, c),
+            None => f.label,
+        };
         onward.push(Flight {
             label,
             carrier,
             pending: None,
             exit: f.at,
-            points: f.points.clone(),
-            ..f.clone()
+            ..f
         });
     }
     let lost = (p_in - p_out).max(0.0);
@@ -547,15 +618,16 @@ fn cross_booked(
             if share <= POWER_ROUNDING {
                 continue;
             }
+            let trails = tracer.trails.borrow();
             rejected.push(Rejected {
-                label: f.label.clone(),
+                label: trails.label_to(f.label),
                 element: idx,
                 face: side,
                 reason: RejectReason::TotalInternalReflection,
                 power: lost * share,
                 point_mm: arr(f.at),
                 direction: arr(*dir),
-                points_mm: f.points.clone(),
+                points_mm: trails.points_to(f.points),
             });
         }
     } else {
@@ -575,7 +647,6 @@ fn enter(
     rejected: &mut Vec<Rejected>,
     tallies: &mut [Tally],
 ) {
-    let s_in = &tracer.s_in;
     let normal = faces.front.normal;
     let outside = Body::Isotropic(tracer.stack.outside_index);
     // Where the light comes from: the previous slab through a contact (whose interface belongs
@@ -584,7 +655,7 @@ fn enter(
         Some((_, prev_body)) => (prev_body, into_next.filter(|b| matches!(b, Body::Isotropic(_)))),
         None => {
             if !tracer.travel(&mut f, &faces.front) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
-                reject_here(rejected, &f, idx, Side::Front, RejectReason::OutsideAperture, s_in);
+                reject_here(rejected, &f, idx, Side::Front, RejectReason::OutsideAperture, tracer);
                 return;
             }
             (outside, None)
