@@ -11,9 +11,10 @@
 //! plane-parallel plates splits nothing at any wavelength or incidence: its curve is drawn flat
 //! without tracing.
 
-use crate::contract::result::{TraceResult, trace_scenario};
 use crate::contract::scenario::{ElementKind, Medium, Scenario};
 use crate::numfmt::NO_POWER;
+use crate::optics::spots::power_of;
+use crate::optics::trace::trace;
 use crate::optics::uniaxial::angle_between;
 use crate::optics::wavelength::Wavelength;
 use crate::view::series::{CUSTOM_RANGE_NM, Series, WAVELENGTH_POINTS};
@@ -24,14 +25,22 @@ pub const INCIDENCE_SPAN_DEG: f64 = 15.0;
 /// Samples of a sweep of a stack with more than four crystals.
 pub const SPLIT_POINTS_MANY_CRYSTALS: usize = 31;
 
-/// The largest angle between two output rays that carry power, degrees.
-pub fn split_angle_deg(result: &TraceResult) -> f64 {
-    let dirs: Vec<Vector3<f64>> = result
-        .rays
+/// The split of a scenario from its trace alone (no result document: the curves need only each
+/// ray's power and direction): the largest angle between two rays that carry power.
+fn split_of(sc: &Scenario) -> Option<f64> {
+    let (stack, _) = sc.resolve().ok()?;
+    let traced = trace(&stack);
+    let dirs: Vec<Vector3<f64>> = traced
+        .paths
         .iter()
-        .filter(|r| r.power >= NO_POWER)
-        .map(|r| Vector3::from(r.direction))
+        .filter(|p| power_of(&p.matrix, &stack.input.stokes) >= NO_POWER)
+        .map(|p| p.direction)
         .collect();
+    Some(widest_deg(&dirs))
+}
+
+/// The largest angle between two of `dirs`, degrees (0 for fewer than two).
+fn widest_deg(dirs: &[Vector3<f64>]) -> f64 {
     let mut best = 0.0f64;
     for (i, a) in dirs.iter().enumerate() {
         for b in &dirs[i + 1..] {
@@ -39,10 +48,6 @@ pub fn split_angle_deg(result: &TraceResult) -> f64 {
         }
     }
     best.to_degrees()
-}
-
-fn split_of(sc: &Scenario) -> Option<f64> {
-    trace_scenario(sc).ok().map(|r| split_angle_deg(&r))
 }
 
 /// Whether every crystal is version 1's plate: all rays then leave along the incident beam at
@@ -191,6 +196,18 @@ pub fn split_vs_incidence(sc: &Scenario) -> Series {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::contract::result::{TraceResult, trace_scenario};
+
+    /// The largest angle between two rays of a result document that carry power, degrees.
+    fn split_angle_deg(result: &TraceResult) -> f64 {
+        let dirs: Vec<Vector3<f64>> = result
+            .rays
+            .iter()
+            .filter(|r| r.power >= NO_POWER)
+            .map(|r| Vector3::from(r.direction))
+            .collect();
+        widest_deg(&dirs)
+    }
 
     /// A two-wedge splitter: the split is near the small-angle rule 2·arcsin((n_e − n_o)·tan α)
     /// (common textbook result, from memory) at normal incidence, the curve passes through the
