@@ -11,10 +11,16 @@
 //!   point through `uniaxial::walkoff` for comparison.
 //! - `exact_sweep`: 10⁵ walk-off values from the exact plane-wave modes (oblique incidence).
 //! - `monte_carlo`: a 100 000-sample displacer tolerance run.
+//! - `splitter_trace`: whole exact traces of the two-wedge splitter
+//!   (`scripts/bench/two-wedge-splitter.json`) over 10⁵ incidences, the workload of
+//!   [`doublespar::run_workload`], which the numpy baseline (`scripts/bench/splitter_numpy.py`)
+//!   computes too; `splitter_split`: the same samples' split angles by wave-vector chains.
+//! - `splitter_monte_carlo`: a 100 000-sample angular-splitter tolerance run.
 
 use doublespar::Indices;
 use doublespar::Scenario;
 use doublespar::Wavelength;
+use doublespar::Workload;
 use doublespar::trace_scenario as trace;
 use doublespar::walkoff;
 use doublespar::{OpticAxis, plate_optics, tangential};
@@ -99,6 +105,34 @@ fn main() {
             .unwrap()
     });
 
+    let (splitter, _) = Scenario::from_json_str(include_str!("../scripts/bench/two-wedge-splitter.json"))
+        .unwrap()
+        .resolve()
+        .unwrap();
+    let n = 100_000;
+    let (t_wedges, wedges_sum) = time(5, || doublespar::run_workload(black_box(&splitter), n, Workload::Trace));
+    let (t_split, split_sum) = time(7, || doublespar::run_workload(black_box(&splitter), n, Workload::Split));
+    let splitter_request =
+        r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 10, "samples": 100000, "seed": 1}"#;
+    let (t_splitter_mc, _) = time(7, || {
+        doublespar::solve_design_str(splitter_request).unwrap()["split_angle_spread"]["std"]
+            .as_f64()
+            .unwrap()
+    });
+
+    println!(
+        "two-wedge splitter, 10^5 whole traces (4 rays each): {:.1} ms, {:.0} traces/s (checksum {wedges_sum:.12e})",
+        t_wedges * 1e3,
+        n as f64 / t_wedges
+    );
+    println!(
+        "two-wedge splitter, 10^5 split angles by wave-vector chains: {:.2} ms (checksum {split_sum:.12e})",
+        t_split * 1e3
+    );
+    println!(
+        "Monte Carlo angular splitter, 10^5 samples: {:.1} ms",
+        t_splitter_mc * 1e3
+    );
     println!(
         "trace (3 crystals, 8 rays): {traces_per_s:.0} traces/s ({:.1} µs each)",
         1e6 / traces_per_s
@@ -112,11 +146,14 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
         t_exact * 1e3,
-        t_mc * 1e3
+        t_mc * 1e3,
+        t_wedges * 1e3,
+        t_split * 1e3,
+        t_splitter_mc * 1e3
     );
 }

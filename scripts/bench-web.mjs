@@ -7,7 +7,10 @@
 // samples to the design worker (design-worker.js, in the page) until its final summary arrives,
 // median of --mc-runs runs on a warm worker; also the first run on a fresh worker, the worker's
 // start-up, the same run through the panel (click on Solve until the results and plots are
-// shown), and the size of the worker's wasm (www/pkg-design).
+// shown), and the size of the worker's wasm (www/pkg-design). The angular splitter's tolerance run
+// (10^5 samples, post to done; budget median ≤ 300 ms, reported only), and the recompute and
+// redraw of two prism presets (examples/crossed-calcite-splitter.json and
+// air-gap-calcite-polarizer.json), timed as the three-crystal stack is (budget median ≤ 4 ms).
 //
 // Large stack: 64 elements with 12 crystals (4096 rays), applied once, then per edit (a change of
 // the wavelength field, as a user types it) the time from the page's call of session.updateJson
@@ -17,7 +20,7 @@
 // text, the descriptions. Budget: median ≤ 300 ms per edit (reported only).
 //
 // Usage: node scripts/bench-web.mjs [--iterations N] [--warmup N] [--mc-runs N] [--large-edits N]
-//   [--only large] (only the large-stack part)
+//   [--only large|prisms] (only the large-stack part, or only the prism presets' loops)
 // (scripts/bench-web.sh builds the page first). Needs www/pkg and www/pkg-design
 // (scripts/build-web.sh) and playwright-core in tests/e2e (npm ci there).
 //
@@ -60,6 +63,12 @@ const MC_REQUEST = {
   samples: 100000,
   seed: 5,
 };
+
+// The angular splitter's tolerance run (issue: 10^5 samples ≤ 300 ms in the page's worker).
+const SPLITTER_MC_REQUEST = { kind: 'angular-splitter', material: 'calcite', wavelength_nm: 632.8, split_angle_deg: 10, samples: 100000, seed: 1 };
+const BUDGET_SPLITTER_MC_MS = 300;
+// Prism presets timed like the three-crystal stack (budget: median ≤ 4 ms, reported only).
+const PRISMS = ['crossed-calcite-splitter', 'air-gap-calcite-polarizer'];
 
 // Three crystals, each splitting every ray in two: 8 output rays. Oblique incidence out of the
 // plane of the first axis, elliptical input, so that no mode is empty.
@@ -176,6 +185,131 @@ const blankViews = (page) =>
   );
 
 /**
+ * `runs` + 1 runs of a design request on one fresh design worker of `page` (the first is reported
+ * apart): the time from posting it to the final `done` message, and to its `nominal` message.
+ */
+async function workerRuns(page, request, runs) {
+  return page.evaluate(
+    async ({ request, runs }) => {
+      const t0 = performance.now();
+      const w = new Worker('design-worker.js', { type: 'module' });
+      const next = (want) =>
+        new Promise((resolve, reject) => {
+          const on = (ev) => {
+            const m = ev.data;
+            if (m.type === 'error' || m.type === 'failed') {
+              w.removeEventListener('message', on);
+              reject(new Error(JSON.stringify(m)));
+            } else if (m.type === want) {
+              w.removeEventListener('message', on);
+              resolve(m);
+            }
+          };
+          w.addEventListener('message', on);
+        });
+      await next('ready');
+      const startMs = performance.now() - t0;
+      const total = [];
+      const nominal = [];
+      const progress = [];
+      let n = 0;
+      for (let i = 0; i <= runs; i++) {
+        let chunks = 0;
+        let nominalAt = NaN;
+        const count = (ev) => {
+          if (ev.data.type === 'progress') chunks += 1;
+          if (ev.data.type === 'nominal') nominalAt = performance.now();
+        };
+        w.addEventListener('message', count);
+        const done = next('done');
+        const a = performance.now();
+        w.postMessage({ type: 'solve', id: i + 1, request });
+        const m = await done;
+        const b = performance.now();
+        w.removeEventListener('message', count);
+        total.push(b - a);
+        nominal.push(nominalAt - a);
+        progress.push(chunks);
+        n = m.design.monte_carlo ? m.design.monte_carlo.n : 0;
+      }
+      w.terminate();
+      return { startMs, firstMs: total[0], total: total.slice(1), nominal: nominal.slice(1), progress, n, cores: navigator.hardwareConcurrency };
+    },
+    { request, runs },
+  );
+}
+
+/**
+ * Recompute and redraw on a fresh page: the scenario `json` applied, then N timed iterations of
+ * session.updateJson(json) + redraw() after WARMUP untimed ones, without and with a raster flush.
+ */
+async function updateLoop(browser, origin, json) {
+  const { context, page, log } = await openPage(browser, origin, { viewport: { width: 1280, height: 900 } });
+  await page.goto(`${origin}/`, { waitUntil: 'load' });
+  await waitReady(page);
+  const loop = await page.evaluate(
+    async ({ json, n, warmup }) => {
+      const ds = window.doublespar;
+      const applied = ds.applyScenario(JSON.parse(json));
+      if (applied && typeof applied.then === 'function') await applied;
+      const rays = ds.session.result().rays.length;
+      const views = [...document.querySelectorAll('canvas[data-view]')];
+      const once = async (flush) => {
+        const a = performance.now();
+        ds.session.updateJson(json);
+        const b = performance.now();
+        const p = ds.redraw();
+        if (p && typeof p.then === 'function') await p;
+        const c = performance.now();
+        // Canvas drawing is recorded and rasterized later; reading one pixel of every view
+        // forces the rasterization into the timed span.
+        if (flush) for (const v of views) v.getContext('2d').getImageData(0, 0, 1, 1);
+        const d = performance.now();
+        return [c - a, b - a, c - b, d - a];
+      };
+      const total = [];
+      const update = [];
+      const redraw = [];
+      const flushed = [];
+      for (let i = 0; i < warmup + n; i++) {
+        const [t, u, r] = await once(false);
+        if (i >= warmup) total.push(t), update.push(u), redraw.push(r);
+      }
+      for (let i = 0; i < warmup + n; i++) {
+        const [, , , f] = await once(true);
+        if (i >= warmup) flushed.push(f);
+      }
+      // Each view's drawing alone (median of 21), to show where a redraw's time goes.
+      const dark = window.matchMedia('(prefers-color-scheme: dark)').matches;
+      const parts = {};
+      for (const v of views) {
+        const ts = [];
+        for (let i = 0; i < 21; i++) {
+          const t = performance.now();
+          ds.session.draw(v.dataset.view, v, dark);
+          ts.push(performance.now() - t);
+        }
+        parts[v.dataset.view] = ts.sort((x, y) => x - y)[10];
+      }
+      return {
+        rays,
+        parts,
+        views: views.map((v) => `${v.dataset.view} ${v.width}x${v.height}`),
+        total,
+        update,
+        redraw,
+        flushed,
+        dpr: window.devicePixelRatio,
+      };
+    },
+    { json, n: N, warmup: WARMUP },
+  );
+  const blank = await blankViews(page);
+  await context.close();
+  return { ...loop, blank, log };
+}
+
+/**
  * The large stack on a fresh page: applied once, then `edits` edits of the wavelength field (typed
  * values alternating, so that every edit traces), each timed from the page's call of
  * session.updateJson to the end of its frame; then one edit's parts, each called alone.
@@ -280,6 +414,22 @@ async function main() {
     }
     return;
   }
+  if (ONLY === 'prisms') {
+    const server = await startServer();
+    const browser = await launchBrowser();
+    try {
+      for (const name of PRISMS) {
+        const text = fs.readFileSync(path.join(ROOT, 'examples', `${name}.json`), 'utf8');
+        const l = await updateLoop(browser, server.origin, JSON.stringify(JSON.parse(text)));
+        const parts = Object.entries(l.parts).map(([k, v]) => `${k} ${round(v, 2)} ms`).join(', ');
+        console.log(`${name}: updateJson + redraw median ${round(stats(l.total).median)} ms; each view alone: ${parts}`);
+      }
+    } finally {
+      await browser.close();
+      await server.close();
+    }
+    return;
+  }
   if (!fs.existsSync(WASM)) {
     console.error(`no ${path.relative(ROOT, WASM)}: run scripts/build-web.sh (or scripts/bench-web.sh)`);
     process.exit(2);
@@ -320,112 +470,27 @@ async function main() {
     problems.push(...collect(first.log, 'first-render page'));
     await first.context.close();
 
-    // 2. The loop, on a fresh page without instrumentation.
-    const { context, page, log } = await openPage(browser, server.origin, { viewport: { width: 1280, height: 900 } });
-    await page.goto(`${server.origin}/`, { waitUntil: 'load' });
-    await waitReady(page);
-    const loop = await page.evaluate(
-      async ({ json, n, warmup }) => {
-        const ds = window.doublespar;
-        const applied = ds.applyScenario(JSON.parse(json));
-        if (applied && typeof applied.then === 'function') await applied;
-        const rays = ds.session.result().rays.length;
-        const views = [...document.querySelectorAll('canvas[data-view]')];
-        const once = async (flush) => {
-          const a = performance.now();
-          ds.session.updateJson(json);
-          const b = performance.now();
-          const p = ds.redraw();
-          if (p && typeof p.then === 'function') await p;
-          const c = performance.now();
-          // Canvas drawing is recorded and rasterized later; reading one pixel of every view
-          // forces the rasterization into the timed span.
-          if (flush) for (const v of views) v.getContext('2d').getImageData(0, 0, 1, 1);
-          const d = performance.now();
-          return [c - a, b - a, c - b, d - a];
-        };
-        const total = [];
-        const update = [];
-        const redraw = [];
-        const flushed = [];
-        for (let i = 0; i < warmup + n; i++) {
-          const [t, u, r] = await once(false);
-          if (i >= warmup) total.push(t), update.push(u), redraw.push(r);
-        }
-        for (let i = 0; i < warmup + n; i++) {
-          const [, , , f] = await once(true);
-          if (i >= warmup) flushed.push(f);
-        }
-        return {
-          rays,
-          views: views.map((v) => `${v.dataset.view} ${v.width}x${v.height}`),
-          total,
-          update,
-          redraw,
-          flushed,
-          dpr: window.devicePixelRatio,
-        };
-      },
-      { json: JSON_TEXT, n: N, warmup: WARMUP },
-    );
+    // 2. The loop, on a fresh page without instrumentation; then the same for the prism presets.
+    const loop = await updateLoop(browser, server.origin, JSON_TEXT);
+    if (loop.blank.length) problems.push(`blank views after the loop: ${loop.blank.join(', ')}`);
+    problems.push(...collect(loop.log, 'loop page'));
+    const prisms = {};
+    for (const name of PRISMS) {
+      const text = fs.readFileSync(path.join(ROOT, 'examples', `${name}.json`), 'utf8');
+      const l = await updateLoop(browser, server.origin, JSON.stringify(JSON.parse(text)));
+      if (l.blank.length) problems.push(`${name}: blank views after the loop: ${l.blank.join(', ')}`);
+      problems.push(...collect(l.log, `${name} loop page`));
+      prisms[name] = { rays: l.rays, draw_ms: Object.fromEntries(Object.entries(l.parts).map(([k, v]) => [k, round(v, 2)])), update_redraw_ms: roundStats(stats(l.total)), update_ms: roundStats(stats(l.update)), redraw_ms: roundStats(stats(l.redraw)) };
+    }
     if (loop.rays !== 8) problems.push(`the bench scenario gave ${loop.rays} rays in the page, expected 8`);
-    const blankAfter = await blankViews(page);
-    if (blankAfter.length) problems.push(`blank views after the loop: ${blankAfter.join(', ')}`);
-    problems.push(...collect(log, 'loop page'));
-    await context.close();
 
     // 3. The design worker's Monte Carlo run, on a fresh page.
     const mcPage = await openPage(browser, server.origin, { viewport: { width: 1280, height: 900 } });
     await mcPage.page.goto(`${server.origin}/`, { waitUntil: 'load' });
     await waitReady(mcPage.page);
-    const mc = await mcPage.page.evaluate(
-      async ({ request, runs }) => {
-        const t0 = performance.now();
-        const w = new Worker('design-worker.js', { type: 'module' });
-        const next = (want) =>
-          new Promise((resolve, reject) => {
-            const on = (ev) => {
-              const m = ev.data;
-              if (m.type === 'error' || m.type === 'failed') {
-                w.removeEventListener('message', on);
-                reject(new Error(JSON.stringify(m)));
-              } else if (m.type === want) {
-                w.removeEventListener('message', on);
-                resolve(m);
-              }
-            };
-            w.addEventListener('message', on);
-          });
-        await next('ready');
-        const startMs = performance.now() - t0;
-        const total = [];
-        const nominal = [];
-        const progress = [];
-        let n = 0;
-        for (let i = 0; i <= runs; i++) {
-          let chunks = 0;
-          let nominalAt = NaN;
-          const count = (ev) => {
-            if (ev.data.type === 'progress') chunks += 1;
-            if (ev.data.type === 'nominal') nominalAt = performance.now();
-          };
-          w.addEventListener('message', count);
-          const done = next('done');
-          const a = performance.now();
-          w.postMessage({ type: 'solve', id: i + 1, request });
-          const m = await done;
-          const b = performance.now();
-          w.removeEventListener('message', count);
-          total.push(b - a);
-          nominal.push(nominalAt - a);
-          progress.push(chunks);
-          n = m.design.monte_carlo ? m.design.monte_carlo.n : 0;
-        }
-        w.terminate();
-        return { startMs, firstMs: total[0], total: total.slice(1), nominal: nominal.slice(1), progress, n, cores: navigator.hardwareConcurrency };
-      },
-      { request: MC_REQUEST, runs: MC_RUNS },
-    );
+    const mc = await workerRuns(mcPage.page, MC_REQUEST, MC_RUNS);
+    const splitterMc = await workerRuns(mcPage.page, SPLITTER_MC_REQUEST, MC_RUNS);
+    if (splitterMc.n !== 0) problems.push('the splitter run should carry no displacer summary');
     if (mc.n !== MC_REQUEST.samples) problems.push(`the Monte Carlo summary holds ${mc.n} samples, expected ${MC_REQUEST.samples}`);
     if (mc.progress.some((k) => k !== 10)) problems.push(`progress messages per run: ${mc.progress.join(', ')} (expected 10)`);
     // The same run through the panel: click on Solve until the results and plots are shown.
@@ -498,6 +563,14 @@ async function main() {
         worker_start_ms: round(mc.startMs),
         panel_click_to_shown_ms: roundStats(stats(panel)),
       },
+      splitter_monte_carlo: {
+        request: SPLITTER_MC_REQUEST,
+        runs: MC_RUNS,
+        post_to_done_ms: roundStats(stats(splitterMc.total)),
+        first_run_fresh_worker_ms: round(splitterMc.firstMs),
+        budget_median_ms: BUDGET_SPLITTER_MC_MS,
+      },
+      prisms,
       large_stack: large.large_stack,
       design_wasm_bytes: designWasmBytes,
       design_wasm_gzip_bytes: designWasmGzip,
@@ -538,6 +611,18 @@ async function main() {
     `    nominal design after ${m.post_to_nominal_ms.median} ms (median); first run on a fresh worker ${m.first_run_fresh_worker_ms} ms; worker start-up (module and wasm) ${m.worker_start_ms} ms; through the panel, click to results shown: median ${m.panel_click_to_shown_ms.median} ms`,
   );
   console.log(`  design worker wasm (www/pkg-design): ${kb(designWasmBytes)} (${designWasmBytes} bytes), gzip -9 ${kb(designWasmGzip)} (${designWasmGzip} bytes)`);
+  const sm = out.splitter_monte_carlo;
+  console.log(
+    `  Monte Carlo, angular splitter with ${SPLITTER_MC_REQUEST.samples} samples, post to done (design worker), ${MC_RUNS} runs on a warm worker: median ${sm.post_to_done_ms.median} ms, p90 ${sm.post_to_done_ms.p90} ms` +
+      `  [budget median ≤ ${BUDGET_SPLITTER_MC_MS} ms: ${sm.post_to_done_ms.median <= BUDGET_SPLITTER_MC_MS ? 'within' : 'OVER (reported only)'}]`,
+  );
+  for (const [name, pr] of Object.entries(out.prisms)) {
+    console.log(
+      `  prism preset ${name} (${pr.rays} rays), updateJson + redraw: median ${pr.update_redraw_ms.median} ms, p90 ${pr.update_redraw_ms.p90} ms (updateJson ${pr.update_ms.median} ms, redraw ${pr.redraw_ms.median} ms)` +
+        `  [budget median ≤ ${BUDGET_MEDIAN_MS} ms: ${pr.update_redraw_ms.median <= BUDGET_MEDIAN_MS ? 'within' : 'OVER (reported only)'}]`,
+    );
+    console.log(`    each view drawn alone: ${Object.entries(pr.draw_ms).map(([k, v]) => `${k} ${v} ms`).join(', ')}`);
+  }
   printLarge(out);
   for (const p of problems) console.log(`  problem: ${p}`);
   console.log(JSON.stringify(out));

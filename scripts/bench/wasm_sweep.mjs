@@ -1,5 +1,7 @@
-// The dense 10^6-point walk-off sweep in WebAssembly under Node (the design module's build),
-// for scripts/bench.sh to set beside the native one-thread figure. Prints one JSON line.
+// The core's benchmarks in WebAssembly under Node (the design module's build), for
+// scripts/bench.sh to set beside the native figures: the dense 10^6-point walk-off sweep, and
+// the two-wedge splitter's 10^5 whole traces and 10^5 split angles (scripts/bench/
+// two-wedge-splitter.json, the workload of src/optics/workload.rs). Prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
@@ -16,4 +18,29 @@ for (let i = 0; i < 9; i++) {
   runs.push(performance.now() - t);
 }
 runs.sort((a, b) => a - b);
-console.log(JSON.stringify({ bench: 'doublespar-wasm', node: process.version, walkoff_sweep_1e6_ms: runs[4], walkoff_sweep_checksum: sum }));
+
+/** Median time of `times` runs of `f`, in ms, and its last value. */
+function median(times, f) {
+  const ts = [];
+  let value;
+  for (let i = 0; i < times; i++) {
+    const t = performance.now();
+    value = f();
+    ts.push(performance.now() - t);
+  }
+  ts.sort((a, b) => a - b);
+  return [ts[Math.floor(times / 2)], value];
+}
+const splitter = readFileSync(join(root, 'scripts', 'bench', 'two-wedge-splitter.json'), 'utf8');
+const [traceMs, traceSum] = median(5, () => glue.benchSplitter(splitter, 100_000, true));
+const [splitMs, splitSum] = median(7, () => glue.benchSplitter(splitter, 100_000, false));
+console.log(JSON.stringify({
+  bench: 'doublespar-wasm',
+  node: process.version,
+  walkoff_sweep_1e6_ms: runs[4],
+  walkoff_sweep_checksum: sum,
+  splitter_trace_1e5_ms: traceMs,
+  splitter_trace_checksum: traceSum,
+  splitter_split_1e5_ms: splitMs,
+  splitter_split_checksum: splitSum,
+}));

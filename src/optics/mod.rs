@@ -21,3 +21,4 @@ pub mod trace;
 pub mod traced;
 pub mod uniaxial;
 pub mod wavelength;
+pub mod workload;

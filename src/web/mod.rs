@@ -258,6 +258,23 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
     crate::optics::sweep::checksum(&out)
 }
 
+/// Benchmark hook: the two-wedge workload of [`crate::optics::workload`] on the scenario `doc`
+/// (JSON text; scripts/bench/two-wedge-splitter.json), `n` samples of whole traces
+/// (`whole`) or of split angles, returning its checksum (scripts/bench.sh runs it under Node
+/// beside the native build and the numpy baseline).
+///
+/// # Errors
+/// The scenario's first error, naming its field.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = benchSplitter)]
+pub fn bench_splitter(doc: &str, n: usize, whole: bool) -> Result<f64, JsValue> {
+    use crate::optics::workload::{Workload, run};
+    let (stack, _) = Scenario::from_json_str(doc)
+        .and_then(|s| s.resolve())
+        .map_err(js_error)?;
+    Ok(run(&stack, n, if whole { Workload::Trace } else { Workload::Split }))
+}
+
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
 /// points: [[x, y], …], current: [x, y] | null, markers: [[x, y], …] (optional), note}`), for
 /// curves computed elsewhere (the design worker).
