@@ -271,3 +271,50 @@ test('a link carries the prism kinds\' fields: a plate given by its order, a spl
     });
   }
 });
+
+test('a splitter whose worker sends its Monte Carlo run in chunks is shown as the displacer\'s is', { timeout: 120000 }, async () => {
+  const { request, design } = golden('angular-splitter-calcite');
+  const { split_angle_spread: spread, ...nominal } = design;
+  await withPage(async (page) => {
+    // The panel's next worker is one the test drives message by message: a long displacer run is
+    // started and cancelled, which replaces the worker.
+    await page.evaluate(() => {
+      window.Worker = class {
+        constructor() {
+          window.__worker = this;
+        }
+        postMessage(msg) {
+          if (msg.type === 'solve') window.__solveId = msg.id;
+        }
+        terminate() {}
+      };
+    });
+    await page.selectOption(field('kind'), 'displacer');
+    await enterValue(page, field('separation_mm'), 2);
+    await enterValue(page, field('samples'), 1000000);
+    await page.click('#design-solve');
+    await page.waitForFunction(() => document.getElementById('design').dataset.state === 'running', null, { timeout: 20000 });
+    await page.click('#design-cancel');
+
+    await fill(page, 'angular-splitter', [['band_nm[0]', 450], ['band_nm[1]', 900], ['samples', 400], ['seed', 3]]);
+    await page.click('#design-solve');
+    await page.waitForFunction(() => window.__solveId !== undefined, null, { timeout: 5000 });
+    const send = (data) => page.evaluate((d) => window.__worker.onmessage({ data: { ...d, id: window.__solveId } }), data);
+    await send({ type: 'nominal', design: nominal, total: 400 });
+    assert.equal(await page.evaluate(() => document.getElementById('design').dataset.state), 'running');
+    assert.equal(await page.textContent('#design-mc-state'), 'Running…');
+    await send({ type: 'progress', done: 200, total: 400, chunk: 1, chunks: 2 });
+    assert.equal(await page.textContent('#design-progress-text'), '200 of 400 samples');
+    assert.equal(await page.textContent('#design-mc-state'), 'Running: 200 of 400 samples.');
+    await expectDesign(page, design, ['wedge_angle_deg', 'split_angle_deg'], 'the nominal splitter during the run');
+    await expectPlots(page, ['split-wavelength', 'tolerance-histogram'], 'splitter during the run');
+    // A summary under the displacer's name is read as well as the splitter's own.
+    await send({ type: 'done', design: { ...nominal, monte_carlo: spread } });
+    assert.equal(await page.evaluate(() => document.getElementById('design').dataset.state), 'done');
+    assert.match(await page.textContent('#design-status'), /Solved, with 400 Monte Carlo samples/);
+    for (const k of ['n', 'mean', 'std', 'p5', 'p95']) {
+      assert.equal(Number(await page.getAttribute(`[data-quantity="design.monte_carlo.${k}"]`, 'data-value')), spread[k], `monte_carlo.${k}`);
+    }
+    assert.deepEqual(await page.evaluate(() => window.doublespar.designShown().request), { ...request, tolerances: { wedge_deg: 0.05, axis_deg: 0.5, incidence_deg: 0.1 } });
+  });
+});
