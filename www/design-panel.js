@@ -2,7 +2,9 @@
 // each with data-design-field = the path of a design-request field (DEVELOPERS.md, "Design
 // requests") and an error element [data-design-error-for] beside it. Solve posts the request to a
 // module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
-// arrives in chunks with progress, and Cancel terminates the worker (a new one starts). Results
+// arrives in chunks with progress (any kind's would be shown alike), and Cancel terminates the
+// worker (a new one starts). The kinds: displacer, waveplate, achromat, recombiner and the prism
+// kinds angular-splitter, prism-polarizer, tilt-tuning (DEVELOPERS.md, "Design requests"). Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
 // String(value) (a bound, "≥ 10°", also data-bound); the design's warnings and shop notes are
 // lists in the panel's words (.design-advice, role=status); the curves are drawn with the core's
@@ -28,9 +30,14 @@ const DESIGN_KINDS = [
   ['waveplate', 'waveplate'],
   ['achromat', 'achromatic waveplate pair'],
   ['recombiner', 'recombiner check'],
+  ['angular-splitter', 'angular splitter'],
+  ['prism-polarizer', 'polarizing prism'],
+  ['tilt-tuning', 'tilt-tuned waveplate'],
 ];
 // The material a kind starts from, until the user picks one (common choices for each part).
-const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite' };
+const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz' };
+// The tolerances each kind's request has (the rows of the one tolerances group it shows).
+const TOLERANCES = { displacer: ['tilt_deg', 'incidence_deg', 'thickness_mm', 'wavelength_nm'], 'angular-splitter': ['wedge_deg', 'axis_deg', 'incidence_deg'] };
 const NBSP = '\u00a0';
 
 // The attributes of the panel's fields (DEVELOPERS.md, "Design panel").
@@ -109,17 +116,14 @@ function buildDesignFields(state) {
     hint: 'Clear aperture = separation + factor × beam diameter.',
   });
   const tolerances = fieldGroup('Tolerances, one standard deviation each', 'tolerances', [
+    addField(state, 'tolerances.wedge_deg', { label: 'Wedge angle', spoken: 'Wedge angle error, standard deviation', unit: '°', value: 0.05 }).row,
+    addField(state, 'tolerances.axis_deg', { label: 'Optic axis about the beam', spoken: 'Optic axis error, standard deviation', unit: '°', value: 0.5 }).row,
     addField(state, 'tolerances.tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt error, standard deviation', unit: '°', value: 0.1 }).row,
     addField(state, 'tolerances.incidence_deg', { label: 'Incidence', spoken: 'Incidence error, standard deviation', unit: '°', value: 0.1 }).row,
     addField(state, 'tolerances.thickness_mm', { label: 'Length', spoken: 'Length error, standard deviation', unit: 'mm', value: 0.05 }).row,
     addField(state, 'tolerances.wavelength_nm', { label: 'Wavelength', spoken: 'Wavelength error, standard deviation', unit: 'nm', value: 0.5 }).row,
-  ], { hint: 'The incidence error lies in the walk-off plane.' });
-  const samples = addField(state, 'samples', {
-    label: 'Monte Carlo samples',
-    value: state.design.limits.default_samples,
-    step: 1000,
-    hint: `At most ${state.design.limits.max_samples.toLocaleString('en-US').replace(/,/g, ' ')}; 0 skips the tolerance run.`,
-  });
+  ]);
+  const samples = addField(state, 'samples', { label: 'Monte Carlo samples', value: state.design.limits.default_samples, step: 1000 });
   const seed = addField(state, 'seed', { label: 'Random seed', value: 1, step: 1 });
 
   const retardance = addField(state, 'retardance_waves', { label: 'Retardance', spoken: 'Retardance of the part', unit: 'waves', value: 0.25, hint: '0.25 for a quarter-wave plate, 0.5 for a half-wave plate.' });
@@ -150,19 +154,50 @@ function buildDesignFields(state) {
   const lengthMis = addField(state, 'length_mismatch_mm', { label: 'Length mismatch', unit: 'mm', value: 0, hint: 'Second displacer minus the first.' });
   const tiltMis = addField(state, 'tilt_mismatch_deg', { label: 'Cut mismatch', unit: '°', value: 0, hint: 'Second displacer minus the first.' });
 
+  // The prism kinds (starting values: the core's defaults, src/contract/request/, and a start
+  // where the core has none).
+  const split = addField(state, 'split_angle_deg', { label: 'Split angle between the beams', unit: '°', value: 10 });
+  const clear = addField(state, 'aperture_mm', { label: 'Clear aperture', spoken: 'Clear aperture of the part', unit: 'mm', value: 10 });
+  const cement = addField(state, 'cement_index', { label: 'Cement index', spoken: 'Cement index of the part', placeholder: 'none', step: 0.01 });
+  const size = addField(state, 'size', { label: 'Plate given by', kind: 'select', options: [['thickness', 'its thickness'], ['order', 'its order at a wavelength']] });
+  const thickness = addField(state, 'thickness_mm', { label: 'Plate thickness', spoken: 'Thickness of the plate to tilt', unit: 'mm', value: 0.5 });
+  const madeFor = addField(state, 'made_for_nm', { label: 'Made for', spoken: 'Wavelength the plate was made for', unit: 'nm', placeholder: 'the wavelength' });
+  const axisAz = addField(state, 'axis_azimuth_deg', { label: 'Optic axis azimuth', unit: '°', value: 0, hint: 'In the faces, from x toward y.' });
+  // Across the axis (90° from it) the retardance grows with the tilt; along it, it falls.
+  const tiltAz = addField(state, 'tilt_azimuth_deg', {
+    label: 'Plane of the tilt', spoken: 'Azimuth of the tilt plane', unit: '°', value: 90,
+    hint: 'Azimuth of the plane in which the mount tilts, from x toward y: across the optic axis the retardance grows with the tilt, along it the retardance falls.',
+  });
+  const maxTilt = addField(state, 'max_tilt_deg', { label: 'Largest mount tilt', unit: '°', value: 30 });
+
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
   state.design.layout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
   state.design.layout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, wl.row, retardance.row, band, maxInc.row, accErr.row];
   state.design.layout.achromat = [firstBox, secondBox, retardance.row, wavelengths, band];
   state.design.layout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
+  state.design.layout['angular-splitter'] = [...medium.nodes, wl.row, split.row, clear.row, cement.row, band, tolerances, samples.row, seed.row];
+  state.design.layout['prism-polarizer'] = [...medium.nodes, wl.row, cement.row, clear.row];
+  state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
-  state.design.hints.displacer = { band: 'Empty: the design wavelength alone.', cut_tilt_deg: cutHint };
+  const lim = state.design.limits;
+  const most = (n) => n.toLocaleString('en-US').replace(/,/g, ' ');
+  state.design.hints.displacer = {
+    band: 'Empty: the design wavelength alone.', cut_tilt_deg: cutHint, tolerances: 'The incidence error lies in the walk-off plane.',
+    samples: `At most ${most(lim.max_samples)}; 0 skips the tolerance run.`, start: { samples: lim.default_samples },
+  };
+  state.design.hints['angular-splitter'] = {
+    band: 'Empty: ±10 % around the design wavelength.', cement_index: 'Empty: the wedges are optically contacted.',
+    tolerances: 'Each wedge\'s axis errs on its own; the incidence error lies in the plane of the split.',
+    samples: `At most ${most(lim.splitter_max_samples)}; 0 skips the tolerance run. Each sample traces the whole splitter.`, start: { samples: lim.splitter_default_samples },
+  };
+  state.design.hints['prism-polarizer'] = { cement_index: 'Empty: an air gap.' };
   state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
   state.design.hints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
   state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
   state.design.bandBox = band;
+  state.design.tolBox = tolerances;
   state.design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
 }
 
@@ -183,8 +218,18 @@ function layoutDesignFields(state) {
     material.input.value = start;
   }
   const hints = state.design.hints[kind] ?? {};
+  // A kind's starting values, for the fields the user has not touched (and nothing else set).
+  for (const [p, v] of Object.entries(hints.start ?? {})) {
+    if (!state.design.fields[p].touched) state.design.fields[p].input.value = String(v);
+  }
   setGroupHint(state.design.bandBox, hints.band);
-  state.design.fields.cut_tilt_deg.setHint(hints.cut_tilt_deg);
+  setGroupHint(state.design.tolBox, hints.tolerances);
+  for (const p of ['cut_tilt_deg', 'samples', 'cement_index']) state.design.fields[p].setHint(hints[p]);
+  const tols = TOLERANCES[kind] ?? [];
+  for (const k of new Set(Object.values(TOLERANCES).flat())) {
+    const row = state.design.fields[`tolerances.${k}`].row;
+    if (row.hidden !== !tols.includes(k)) row.hidden = !tols.includes(k);
+  }
   for (const [prefix, custom] of state.design.mediumBoxes) {
     const key = state.design.fields[`${prefix}material`].value;
     const hide = key !== 'custom';
@@ -195,7 +240,10 @@ function layoutDesignFields(state) {
     state.design.fields[`${prefix}material`].setHint(unverified ? 'Unverified data: its dispersion formula has no journal source.' : null);
   }
   const order = state.design.fields.order.value;
-  state.design.fields.order_number.row.hidden = order !== 'multiple';
+  const byOrder = state.design.fields.size.value === 'order';
+  state.design.fields.order_number.row.hidden = kind === 'tilt-tuning' ? !byOrder : order !== 'multiple';
+  state.design.fields.made_for_nm.row.hidden = !byOrder;
+  state.design.fields.thickness_mm.row.hidden = byOrder;
   state.design.fields.base_mm.row.hidden = order !== 'compound';
   state.design.fields.rotator_deg.row.hidden = state.design.fields.middle.value !== 'rotator';
 }
@@ -227,6 +275,17 @@ function designRequest(state) {
     if (a.blank && b.blank) return;
     req[name] = [a.blank ? a.input.value : a.value, b.blank ? b.input.value : b.value];
   };
+  // The kind's tolerances, then its Monte Carlo run.
+  const tolerances = () => {
+    const tol = {};
+    for (const k of TOLERANCES[kind]) {
+      const f = state.design.fields[`tolerances.${k}`];
+      if (!f.blank) tol[k] = f.value;
+    }
+    if (Object.keys(tol).length) req.tolerances = tol;
+    put('samples');
+    put('seed');
+  };
   if (kind === 'displacer') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -235,14 +294,33 @@ function designRequest(state) {
     put('beam_diameter_mm');
     put('cut_tilt_deg');
     put('aperture_factor');
-    const tol = {};
-    for (const k of ['tilt_deg', 'incidence_deg', 'thickness_mm', 'wavelength_nm']) {
-      const f = state.design.fields[`tolerances.${k}`];
-      if (!f.blank) tol[k] = f.value;
+    tolerances();
+  } else if (kind === 'angular-splitter') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    put('split_angle_deg');
+    put('aperture_mm');
+    put('cement_index');
+    pair('band_nm');
+    tolerances();
+  } else if (kind === 'prism-polarizer') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    put('cement_index');
+    put('aperture_mm');
+  } else if (kind === 'tilt-tuning') {
+    Object.assign(req, medium(''));
+    put('wavelength_nm');
+    put('retardance_waves');
+    if (state.design.fields.size.value === 'order') {
+      put('order_number');
+      put('made_for_nm');
+    } else {
+      put('thickness_mm');
     }
-    if (Object.keys(tol).length) req.tolerances = tol;
-    put('samples');
-    put('seed');
+    put('axis_azimuth_deg');
+    put('tilt_azimuth_deg');
+    put('max_tilt_deg');
   } else if (kind === 'waveplate') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -478,32 +556,39 @@ function displacerResults(state, d, run) {
       note: ['For σ = ', dq(d, 'tolerances.tilt_deg', formats.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', formats.sig('°', 3)),
         ' incidence, ', dq(d, 'tolerances.thickness_mm', formats.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', formats.sig('nm', 3)), ' wavelength.'],
     }),
-    monteCarloCard(state, d, run),
+    monteCarloCard(d, run, 'separation', formats.length, 'mm'),
   ];
   return [headline, ...cards];
 }
 
-function monteCarloCard(state, d, run) {
-  if (d.monte_carlo) {
-    return resultCard(d, 'Monte Carlo: separation', [
-      ['samples', 'monte_carlo.n', formats.count],
-      ['mean', 'monte_carlo.mean', formats.length],
-      ['standard deviation', 'monte_carlo.std', formats.sig('mm', 4)],
-      ['5th percentile', 'monte_carlo.p5', formats.length],
-      ['95th percentile', 'monte_carlo.p95', formats.length],
-      ['smallest', 'monte_carlo.min', formats.length],
-      ['largest', 'monte_carlo.max', formats.length],
+/**
+ * The Monte Carlo summary of `what` (the displacer's `monte_carlo`; the splitter's
+ * `split_angle_spread`, or `monte_carlo` where a run in chunks gives it that name), or the state
+ * of the run while there is none.
+ */
+function monteCarloCard(d, run, what, format, unit) {
+  const key = mcKey(d);
+  const title = `Monte Carlo: ${what}`;
+  if (d[key]) {
+    return resultCard(d, title, [
+      ['samples', `${key}.n`, formats.count],
+      ['mean', `${key}.mean`, format],
+      ['standard deviation', `${key}.std`, formats.sig(unit, 4)],
+      ['5th percentile', `${key}.p5`, format],
+      ['95th percentile', `${key}.p95`, format],
+      ['smallest', `${key}.min`, format],
+      ['largest', `${key}.max`, format],
     ], { className: 'design-mc' });
   }
   let text = 'Not run (0 samples).';
   if (run && run.cancelled) text = `Cancelled after ${run.done} of ${run.total} samples.`;
   else if (run) text = 'Running…';
-  return h(
-    'article',
-    { className: 'result-card design-mc' },
-    h('h4', { text: 'Monte Carlo: separation' }),
-    h('p', { className: 'muted', id: 'design-mc-state', text }),
-  );
+  return h('article', { className: 'result-card design-mc' }, h('h4', { text: title }), h('p', { className: 'muted', id: 'design-mc-state', text }));
+}
+
+/** Where a design holds its Monte Carlo summary. */
+function mcKey(d) {
+  return d.kind === 'angular-splitter' && !d.monte_carlo ? 'split_angle_spread' : 'monte_carlo';
 }
 
 function waveplateResults(state, d) {
@@ -631,6 +716,116 @@ function recombinerResults(state, d) {
   ];
 }
 
+/** Index of the smallest (sign -1: largest) entry of a list. */
+function extremeAt(list, sign = 1) {
+  return list.reduce((best, v, i) => (sign * v < sign * list[best] ? i : best), 0);
+}
+
+/** The part's material as the design names it (its scenario's first element). */
+function partMaterial(state, d) {
+  return designMaterialName(state, d.scenario?.elements?.[0]?.material ?? 'custom');
+}
+
+function splitterResults(state, d, run) {
+  const b = d.band;
+  const [lo, hi] = [extremeAt(b.split_angle_deg), extremeAt(b.split_angle_deg, -1)];
+  const last = b.wavelength_nm.length - 1;
+  const t = d.tolerances;
+  return [
+    h('p', { className: 'design-headline' },
+      `Two ${partMaterial(state, d)} wedges with crossed optic axes, ${d.contact === 'cement' ? 'cemented' : 'optically contacted'}, each with a wedge angle of `,
+      dq(d, 'wedge_angle_deg', formats.deg, 'strong'), ': the two beams leave ', dq(d, 'split_angle_deg', formats.deg, 'strong'), ' apart.'),
+    resultCard(d, 'What to order', [
+      ['wedge angle', 'wedge_angle_deg', formats.deg],
+      ['wedge 1, on its axis', 'thickness_mm.0', formats.length],
+      ['wedge 2, on its axis', 'thickness_mm.1', formats.length],
+      ['thin edge', 'edge_thickness_mm', formats.length],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+      ['joined by', 'contact', (v) => (v === 'cement' ? 'cement' : 'optical contact')],
+    ], { className: 'design-main', note: 'Optic axes in the faces, along x in the first wedge and along y in the second.' }),
+    resultCard(d, 'Beams', [
+      ['split angle', 'split_angle_deg', formats.deg],
+      ['wedge by the small-angle rule', 'small_angle_wedge_deg', formats.deg],
+      ...d.beams.flatMap((beam, i) => [
+        [`beam ${beam.label} (along ${beam.polarization}): deviation`, `beams.${i}.deviation_deg`, formats.deg],
+        [`beam ${beam.label}: power`, `beams.${i}.power`, formats.power],
+      ]),
+    ], { note: 'Deviations toward +x; the small-angle rule is 2·arcsin((nₑ − nₒ)·tan α).' }),
+    resultCard(d, 'Over the band', [
+      ['from', 'band.wavelength_nm.0', formats.nm],
+      ['to', `band.wavelength_nm.${last}`, formats.nm],
+      ['smallest split', `band.split_angle_deg.${lo}`, formats.deg],
+      ['… at', `band.wavelength_nm.${lo}`, formats.nm],
+      ['largest split', `band.split_angle_deg.${hi}`, formats.deg],
+      ['… at', `band.wavelength_nm.${hi}`, formats.nm],
+    ]),
+    resultCard(d, 'Tolerances (one standard deviation)', [
+      ['wedge angle', 'tolerances.wedge_deg', formats.sig('°', 3)],
+      ['optic axis about the beam', 'tolerances.axis_deg', formats.sig('°', 3)],
+      ['incidence', 'tolerances.incidence_deg', formats.sig('°', 3)],
+    ], { note: t.axis_deg > 0 ? 'The axis error is drawn for each wedge on its own.' : null }),
+    monteCarloCard(d, run, 'split angle', formats.deg, '°'),
+  ];
+}
+
+function polarizerResults(state, d, run, request) {
+  const gap = typeof request.cement_index === 'number' ? 'a thin cement layer' : 'a thin air gap';
+  const edge = (side) => [
+    [`${side} edge, traced`, `${side}_edge.incidence_deg`, formats.deg],
+    ['… from the critical angle', `${side}_edge.closed_form_deg`, formats.deg],
+    ['… just inside: passed', `${side}_edge.inside.passed`, formats.power],
+    ['… just inside: leaked', `${side}_edge.inside.leaked`, formats.power],
+    ['… just inside: extinction', `${side}_edge.inside.extinction`, formats.sig('', 3)],
+    ['… just outside: extinction', `${side}_edge.outside.extinction`, formats.sig('', 3)],
+  ];
+  return [
+    h('p', { className: 'design-headline' },
+      `Two ${partMaterial(state, d)} prisms across ${gap}, prism angle `, dq(d, 'prism_angle_deg', formats.deg, 'strong'),
+      `: the ${d.passed_mode}-ray passes from `, dq(d, 'half_field_deg.0', formats.deg, 'strong'), ' below to ',
+      dq(d, 'half_field_deg.1', formats.deg, 'strong'), ` above the normal; the ${d.reflected_mode}-ray is reflected at the gap.`),
+    resultCard(d, 'What to order', [
+      ['prism angle', 'prism_angle_deg', formats.deg],
+      ['prism 1, on its axis', 'thickness_mm.0', formats.length],
+      ['prism 2, on its axis', 'thickness_mm.1', formats.length],
+      ['thin edge', 'edge_thickness_mm', formats.length],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+      ['index of the gap', 'gap_index', formats.sig('', 6)],
+    ], { className: 'design-main', note: 'The gap is tilted by the prism angle from the entrance face; optic axes in the faces along y.' }),
+    resultCard(d, 'Field of view', [
+      ['half-angle below the normal', 'half_field_deg.0', formats.deg],
+      ['half-angle above the normal', 'half_field_deg.1', formats.deg],
+      [`critical angle at the gap, ${d.reflected_mode}-ray`, 'critical_angles_deg.0', formats.deg],
+      [`critical angle at the gap, ${d.passed_mode}-ray`, 'critical_angles_deg.1', formats.deg],
+      ['at normal incidence: passed', 'normal.passed', formats.power],
+      ['at normal incidence: extinction', 'normal.extinction', formats.sig('', 3)],
+    ], { note: 'Incidence in the plane of the gap tilt.' }),
+    resultCard(d, 'Transmission at the edges', [...edge('lower'), ...edge('upper')], {
+      note: 'Uncoated faces, light polarized along each mode; extinction = leaked ÷ passed, “—” where nothing passes.',
+    }),
+  ];
+}
+
+function tiltResults(state, d) {
+  return [
+    h('p', { className: 'design-headline' },
+      `Tilt the ${partMaterial(state, d)} plate, `, dq(d, 'thickness_mm', formats.length, 'strong'), ' thick, by ',
+      dq(d, 'tilt_deg', formats.deg, 'strong'), ' in its mount: its retardance goes from ',
+      dq(d, 'normal_retardance_waves', formats.waves, 'strong'), ' untilted to ', dq(d, 'retardance_waves', formats.waves, 'strong'), '.'),
+    resultCard(d, 'What to order and set', [
+      ['plate thickness', 'thickness_mm', formats.length],
+      ['optic axis azimuth (in the faces)', 'scenario.elements.0.axis.azimuth_deg', formats.deg],
+      ['mount tilt', 'tilt_deg', formats.deg],
+      ['plane of the tilt', 'scenario.elements.0.mount.azimuth_deg', formats.deg],
+    ], { className: 'design-main', note: 'Azimuths from x toward y.' }),
+    resultCard(d, 'Retardance', [
+      ['at the tilt', 'retardance_waves', formats.waves],
+      ['whole waves beyond the target', 'order', formats.count],
+      ['untilted', 'normal_retardance_waves', formats.waves],
+      ['per degree of tilt', 'sensitivity_waves_per_deg', formats.sig('waves/°', 4)],
+    ]),
+  ];
+}
+
 // --- plots -------------------------------------------------------------------------------------
 
 function seriesJson(s) {
@@ -669,18 +864,7 @@ function plotsFor(state, kind, d, request, run) {
       }), dark),
     });
     const plots = [band];
-    if (d.monte_carlo || run) {
-      const mc = d.monte_carlo;
-      const title = mc ? 'Separation over the tolerances' : run && run.cancelled ? 'Monte Carlo run cancelled' : 'Monte Carlo run in progress';
-      plots.push(designPlot('tolerance-histogram', {
-        wide: true,
-        label: mc
-          ? `Histogram of the separation over ${mc.n} Monte Carlo samples: mean ${g(mc.mean, 6)} mm, standard deviation ${g(mc.std, 3)} mm, 5th to 95th percentile ${g(mc.p5, 6)} to ${g(mc.p95, 6)} mm; the nominal design gives ${g(d.separation_mm, 6)} mm.`
-          : `${title}: no samples yet.`,
-        caption: 'Every sample traces the plate with all four errors drawn at once; the nominal separation is marked.',
-        draw: (p, dark) => state.core.drawHistogram(p.canvas, JSON.stringify(mc ?? { n: 0 }), title, 'separation', 'mm', d.separation_mm, dark),
-      }));
-    }
+    if (d.monte_carlo || run) plots.push(histogramPlot(state, d.monte_carlo, run, 'separation', 'mm', d.separation_mm, 'the plate with all four errors'));
     return plots;
   }
   if (kind === 'waveplate') {
@@ -740,7 +924,72 @@ function plotsFor(state, kind, d, request, run) {
       }), dark),
     })];
   }
+  if (kind === 'angular-splitter') {
+    const b = d.band;
+    const pts = b.wavelength_nm.map((x, i) => [x, b.split_angle_deg[i]]);
+    const wl = d.scenario.wavelength_nm;
+    const plots = [designPlot('split-wavelength', {
+      wide: true,
+      label: `Split angle against wavelength, ${trimmed(pts[0][0], 2)} to ${trimmed(pts[pts.length - 1][0], 2)} nm: from ${g(pts[0][1])}° to ${g(pts[pts.length - 1][1])}°; ${g(d.split_angle_deg)}° at ${trimmed(wl, 3)} nm.`,
+      caption: 'The designed splitter over the band; the design wavelength is marked.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Split angle against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'split angle', y_unit: '°',
+        points: pts, current: [wl, d.split_angle_deg], note: `${pts.length} wavelengths`,
+      }), dark),
+    })];
+    const mc = d[mcKey(d)];
+    if (mc || run) plots.push(histogramPlot(state, mc, run, 'split angle', '°', d.split_angle_deg, 'the splitter with its wedge, axis and incidence errors'));
+    return plots;
+  }
+  if (kind === 'prism-polarizer') {
+    const c = d.curve;
+    const edges = [d.lower_edge, d.upper_edge];
+    return ['passed', 'leaked'].map((what) => {
+      const pts = c.incidence_deg.map((x, i) => [x, c[what][i]]);
+      const top = Math.max(...pts.map((q) => q[1]));
+      return designPlot(`${what}-incidence`, {
+        wide: true,
+        label: `Power ${what} against incidence, ${g(pts[0][0])}° to ${g(pts[pts.length - 1][0])}°: at most ${g(top)}; the field's edges at ${g(edges[0].incidence_deg)}° and ${g(edges[1].incidence_deg)}° are marked.`,
+        caption: what === 'passed' ? 'Light polarized along the passed mode; the edges of the field are marked.' : 'Light polarized along the reflected mode: zero inside the field.',
+        draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+          title: `Power ${what} against incidence`,
+          x_label: 'incidence', x_unit: '°', y_label: `power ${what}`, y_unit: 'fraction',
+          points: pts, current: null, markers: edges.map((e) => [e.incidence_deg, e.inside[what]]), note: 'edges marked',
+        }), dark),
+      });
+    });
+  }
+  if (kind === 'tilt-tuning') {
+    const c = d.curve;
+    const pts = c.tilt_deg.map((x, i) => [x, c.retardance_waves[i]]);
+    return [designPlot('retardance-tilt', {
+      wide: true,
+      label: `Retardance against mount tilt, 0 to ${trimmed(pts[pts.length - 1][0], 2)}°: ${g(d.normal_retardance_waves)} waves untilted, ${g(pts[pts.length - 1][1])} waves at ${trimmed(pts[pts.length - 1][0], 2)}°; ${g(d.retardance_waves)} waves at the tilt ${g(d.tilt_deg)}° (marked).`,
+      caption: 'The plate in its mount; the tilt that reaches the target is marked.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Retardance against mount tilt',
+        x_label: 'mount tilt', x_unit: '°', y_label: 'retardance', y_unit: 'waves',
+        points: pts, current: [d.tilt_deg, d.retardance_waves], note: `order ${d.order}`,
+      }), dark),
+    })];
+  }
   return [];
+}
+
+/** The histogram of a Monte Carlo summary `mc` (or the state of its run), the nominal value marked. */
+function histogramPlot(state, mc, run, what, unit, nominal, traced) {
+  const g = (v, n) => significant(v, n);
+  const title = mc ? `${what.charAt(0).toUpperCase()}${what.slice(1)} over the tolerances` : run && run.cancelled ? 'Monte Carlo run cancelled' : 'Monte Carlo run in progress';
+  const u = unit === '°' ? '°' : ` ${unit}`;
+  return designPlot('tolerance-histogram', {
+    wide: true,
+    label: mc
+      ? `Histogram of the ${what} over ${mc.n} Monte Carlo samples: mean ${g(mc.mean, 6)}${u}, standard deviation ${g(mc.std, 3)}${u}, 5th to 95th percentile ${g(mc.p5, 6)} to ${g(mc.p95, 6)}${u}; the nominal design gives ${g(nominal, 6)}${u}.`
+      : `${title}: no samples yet.`,
+    caption: `Every sample traces ${traced} drawn at once; the nominal ${what} is marked.`,
+    draw: (p, dark) => state.core.drawHistogram(p.canvas, JSON.stringify(mc ?? { n: 0 }), title, what, unit, nominal, dark),
+  });
 }
 
 function designWavelength(request) {
@@ -760,6 +1009,12 @@ function drawDesignPlot(state, p) {
 function redrawDesign(state) {
   for (const p of state.design.plots) drawDesignPlot(state, p);
 }
+
+// The results of each kind: (state, design, run, request) -> [headline, ...cards].
+const RESULTS = {
+  displacer: displacerResults, waveplate: waveplateResults, achromat: achromatResults, recombiner: recombinerResults,
+  'angular-splitter': splitterResults, 'prism-polarizer': polarizerResults, 'tilt-tuning': tiltResults,
+};
 
 /** Writes the shown design: its results as text, then its plots. */
 function renderDesign(state) {
@@ -781,10 +1036,7 @@ function renderDesign(state) {
   document.getElementById('design-empty').hidden = true;
   const d = s.design;
   const kind = d.kind;
-  const parts = kind === 'displacer' ? displacerResults(state, d, s.run)
-    : kind === 'waveplate' ? waveplateResults(state, d)
-      : kind === 'achromat' ? achromatResults(state, d)
-        : recombinerResults(state, d);
+  const parts = (RESULTS[kind] ?? recombinerResults)(state, d, s.run, s.request);
   const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
   const advice = adviceOf(state, d);
@@ -857,6 +1109,7 @@ function setDesignInputs(state, req) {
       if (path === 'kind') layoutDesignFields(state);
     } else if (typeof v === 'number' && Number.isFinite(v)) {
       f.input.value = String(v);
+      f.touched = true;
       const m = /^(.*?)(no|ne)$/.exec(path);
       if (m && state.design.fields[`${m[1]}material`] && !leaves.some(([p]) => p === `${m[1]}material`)) {
         state.design.fields[`${m[1]}material`].input.value = 'custom';
@@ -866,6 +1119,8 @@ function setDesignInputs(state, req) {
       problems.push({ field: path, message: 'the link gives no number here; the field was left as it was' });
     }
   }
+  // A tilt-tuned plate given by its order says so in the select that shows its fields.
+  if (req.kind === 'tilt-tuning') state.design.fields.size.input.value = 'order_number' in req ? 'order' : 'thickness';
   layoutDesignFields(state);
   for (const p of problems) state.design.errors.add(p);
   notifyDesignInputs(state);
@@ -972,7 +1227,7 @@ function onDesignMessage(state, msg) {
     if (!a.nominal) document.getElementById('design-run').hidden = true;
     state.design.errors.clear();
     setDesignState('done');
-    const mc = msg.design.monte_carlo;
+    const mc = msg.design[mcKey(msg.design)];
     setStatus(mc ? `Solved, with ${mc.n} Monte Carlo samples, in ${Math.round(ms)} ms.` : `Solved in ${Math.round(ms)} ms.`);
     renderDesign(state);
   } else if (msg.type === 'error') {
@@ -998,6 +1253,7 @@ function onDesignMessage(state, msg) {
 const BAND_DEFAULT_WORDS = {
   displacer: 'the design wavelength alone',
   waveplate: '±20 % around the design wavelength',
+  'angular-splitter': '±10 % around the design wavelength',
   achromat: '0.8 × λ₁ to 1.2 × λ₂',
 };
 

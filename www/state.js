@@ -62,11 +62,12 @@ export function createState({ darkQuery }) {
     design: {
       hooks: null, // what setupDesign returns: setDesignInputs, designLinkError, designRequest, designShown
       links: null, // what the panel may do to the page: applyScenario, flushFragment, onDesignInputs
-      limits: null, // core.designLimits(): sample defaults and limits, the recombiner's limits
-      fields: {}, // request path -> Field
+      limits: null, // core.designLimits(): sample defaults and limits (displacer, splitter), the recombiner's limits
+      fields: {}, // request path -> Field (also `size`: how a tilt-tuned plate is given, no request field)
       layout: {}, // kind -> the rows and groups shown for it, in order
-      hints: {}, // kind -> {path: hint text}
+      hints: {}, // kind -> {path or group: hint text, start: {path: starting value of an untouched field}}
       bandBox: null, // the band's group (its hint depends on the kind)
+      tolBox: null, // the tolerances' group (its rows and hint depend on the kind)
       mediumBoxes: [], // [prefix, custom-indices box] of each material choice
       errors: null, // FieldErrors of the panel
       defaultRequestText: '', // the request of the fields as the panel starts

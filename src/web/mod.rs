@@ -90,9 +90,10 @@ pub fn view_names() -> Result<JsValue, JsValue> {
 
 /// The design requests' constants the page shows or reads back, as the core holds them:
 /// `{chunk_samples, default_samples, max_samples, default_acceptance_error_waves,
-/// recombiner_min_overlap, recombiner_max_phase_rad}` (Monte Carlo chunk size, the default and
-/// largest sample counts, the waveplate's default acceptance error, and the overlap and phase
-/// limits at which a recombiner breaks).
+/// recombiner_min_overlap, recombiner_max_phase_rad, splitter_default_samples,
+/// splitter_max_samples}` (Monte Carlo chunk size, the displacer's default and largest sample
+/// counts, the waveplate's default acceptance error, the overlap and phase limits at which a
+/// recombiner breaks, and the angular splitter's default and largest sample counts).
 ///
 /// # Errors
 /// Never in practice.
@@ -107,6 +108,8 @@ pub fn design_limits() -> Result<JsValue, JsValue> {
         "default_acceptance_error_waves": request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES,
         "recombiner_min_overlap": dr::MIN_OVERLAP,
         "recombiner_max_phase_rad": dr::MAX_PHASE_ERROR,
+        "splitter_default_samples": request::splitter::DEFAULT_SPLITTER_SAMPLES,
+        "splitter_max_samples": request::splitter::MAX_SPLITTER_SAMPLES,
     }))
 }
 

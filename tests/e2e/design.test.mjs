@@ -508,7 +508,7 @@ test('the panel is labelled, reachable by keyboard and fits 1280 px and 400 px (
   for (const [width, name, scheme] of [[1280, 'design.png', 'light'], [400, 'design-narrow.png', 'dark']]) {
     await withPage(
       async ({ page }) => {
-        for (const kind of ['displacer', 'waveplate', 'achromat', 'recombiner']) {
+        for (const kind of ['displacer', 'waveplate', 'achromat', 'recombiner', 'angular-splitter', 'prism-polarizer', 'tilt-tuning']) {
           await choose(page, 'kind', kind);
           const unlabelled = await page.$$eval('#design [data-design-field]', (els) =>
             els

@@ -102,7 +102,7 @@ test('no two controls share an accessible name', { timeout: 90000 }, async () =>
     const states = [];
     for (const pol of ['linear', 'elliptical', 'circular', 'jones', 'stokes']) {
       await page.selectOption('[data-field="beam.polarization.kind"]', pol);
-      for (const part of ['displacer', 'waveplate', 'achromat', 'recombiner']) {
+      for (const part of ['displacer', 'waveplate', 'achromat', 'recombiner', 'angular-splitter', 'prism-polarizer', 'tilt-tuning']) {
         await page.selectOption('[data-design-field="kind"]', part);
         const names = await controlNames(page);
         assert.ok(names.length > 40, `${pol}, ${part}: the tree holds the controls (${names.length})`);
