@@ -3,16 +3,20 @@
 //!
 //! The split angle of a traced set-up is the largest angle between the directions of two output
 //! rays that carry power (at least [`NO_POWER`] of the input); 0 when fewer than two do, and 0 for
-//! plane-parallel plates, whose rays all leave along the incident beam. Every point is a full
-//! exact trace of the scenario with one parameter changed (the wavelength, with every crystal's
+//! plane-parallel plates, whose rays all leave along the incident beam. The curves follow the
+//! beams of the set-up as traced: the rays that carry power in its exact trace, each followed
+//! through the set-up with one parameter changed (the wavelength, with every crystal's
 //! dispersion; or the polar angle of incidence in the plane of the scenario's incidence azimuth,
-//! from −[`INCIDENCE_SPAN_DEG`] to +[`INCIDENCE_SPAN_DEG`]), so the curve passes through the
-//! traced set-up; points whose trace fails (a formula breaking down) are left out. A stack of
-//! plane-parallel plates splits nothing at any wavelength or incidence: its curve is drawn flat
-//! without tracing.
+//! from −[`INCIDENCE_SPAN_DEG`] to +[`INCIDENCE_SPAN_DEG`]) by its wave-vector chain
+//! ([`crate::optics::chain`]), which gives exactly the direction a whole trace would. So the
+//! curve passes through the traced set-up; where fewer than two of its beams get through (one is
+//! totally reflected) or the set-up cannot be resolved (a formula breaking down) the curve has a
+//! gap. A stack of plane-parallel plates splits nothing at any wavelength or incidence: its curve
+//! is drawn flat without tracing.
 
 use crate::contract::scenario::{ElementKind, Medium, Scenario};
 use crate::numfmt::NO_POWER;
+use crate::optics::chain::chain;
 use crate::optics::spots::power_of;
 use crate::optics::trace::trace;
 use crate::optics::uniaxial::angle_between;
@@ -25,18 +29,37 @@ pub const INCIDENCE_SPAN_DEG: f64 = 15.0;
 /// Samples of a sweep of a stack with more than four crystals.
 pub const SPLIT_POINTS_MANY_CRYSTALS: usize = 31;
 
-/// The split of a scenario from its trace alone (no result document: the curves need only each
-/// ray's power and direction): the largest angle between two rays that carry power.
-fn split_of(sc: &Scenario) -> Option<f64> {
-    let (stack, _) = sc.resolve().ok()?;
-    let traced = trace(&stack);
-    let dirs: Vec<Vector3<f64>> = traced
+/// The beams of a scenario: the labels of the rays that carry power in its exact trace.
+fn beams(sc: &Scenario) -> Vec<String> {
+    let Ok((stack, _)) = sc.resolve() else {
+        return Vec::new();
+    };
+    trace(&stack)
         .paths
-        .iter()
+        .into_iter()
         .filter(|p| power_of(&p.matrix, &stack.input.stokes) >= NO_POWER)
-        .map(|p| p.direction)
+        .map(|p| p.label)
+        .collect()
+}
+
+/// The split of `beams` through a scenario, each followed by its wave-vector chain; `None` when
+/// fewer than two get through or the scenario cannot be resolved.
+fn split_of(sc: &Scenario, beams: &[String]) -> Option<f64> {
+    let (stack, _) = sc.resolve().ok()?;
+    let dirs: Vec<Vector3<f64>> = beams
+        .iter()
+        .filter_map(|l| chain(&stack, l))
+        .map(|e| e.direction)
         .collect();
-    Some(widest_deg(&dirs))
+    (dirs.len() >= 2 || beams.len() < 2).then(|| widest_deg(&dirs))
+}
+
+/// The curve's note: which beams it follows.
+fn followed(beams: &[String]) -> String {
+    match beams.len() {
+        0 | 1 => "fewer than two beams carry power".into(),
+        _ => format!("beams {} followed exactly", beams.join(", ")),
+    }
 }
 
 /// The largest angle between two of `dirs`, degrees (0 for fewer than two).
@@ -135,10 +158,11 @@ pub fn split_vs_wavelength(sc: &Scenario) -> Series {
             sc.wavelength.nm(),
         );
     }
+    let beams = beams(sc);
     let at = |nm: f64| -> Option<f64> {
         let mut s = sc.clone();
         s.wavelength = Wavelength::from_nm(nm).ok()?;
-        split_of(&s)
+        split_of(&s, &beams)
     };
     let n = samples(sc);
     let points = (0..n)
@@ -153,8 +177,8 @@ pub fn split_vs_wavelength(sc: &Scenario) -> Series {
         "wavelength",
         "nm",
         points,
-        split_of(sc).map(|v| [now, v]),
-        "every point a full trace".into(),
+        split_of(sc, &beams).map(|v| [now, v]),
+        followed(&beams),
     )
 }
 
@@ -170,10 +194,11 @@ pub fn split_vs_incidence(sc: &Scenario) -> Series {
             sc.beam.polar_deg,
         );
     }
+    let beams = beams(sc);
     let at = |polar: f64| -> Option<f64> {
         let mut s = sc.clone();
         s.beam.polar_deg = polar;
-        split_of(&s)
+        split_of(&s, &beams)
     };
     let n = samples(sc);
     let points = (0..n)
@@ -188,8 +213,8 @@ pub fn split_vs_incidence(sc: &Scenario) -> Series {
         "incidence",
         "°",
         points,
-        split_of(sc).map(|v| [now, v]),
-        format!("in the plane at azimuth {}°", sc.beam.azimuth_deg),
+        split_of(sc, &beams).map(|v| [now, v]),
+        format!("{}, in the plane at azimuth {}°", followed(&beams), sc.beam.azimuth_deg),
     )
 }
 
@@ -243,5 +268,42 @@ mod tests {
         )
         .unwrap();
         assert!(split_vs_incidence(&plate).points.iter().all(|p| p[1] < 1e-12));
+    }
+
+    /// Independent path through the code: on the splitter presets, every point of both curves
+    /// equals the split of the whole trace (result document) of the changed scenario, to 1e-10°.
+    #[test]
+    fn the_curves_equal_whole_traces_point_by_point() {
+        for doc in [
+            include_str!("../../examples/crossed-calcite-splitter.json"),
+            include_str!("../../examples/straight-through-prism.json"),
+            include_str!("../../examples/quartz-wedge-splitter.json"),
+        ] {
+            let sc = Scenario::from_json_str(doc).unwrap();
+            let by_wavelength = split_vs_wavelength(&sc);
+            let by_incidence = split_vs_incidence(&sc);
+            assert!(by_wavelength.points.len() > 100 && by_incidence.points.len() > 100);
+            for (series, set) in [
+                (
+                    &by_wavelength,
+                    (|s: &mut Scenario, x: f64| s.wavelength = Wavelength::from_nm(x).unwrap())
+                        as fn(&mut Scenario, f64),
+                ),
+                (&by_incidence, |s: &mut Scenario, x: f64| s.beam.polar_deg = x),
+            ] {
+                for p in series.points.iter().step_by(7) {
+                    let mut changed = sc.clone();
+                    set(&mut changed, p[0]);
+                    let whole = split_angle_deg(&trace_scenario(&changed).unwrap());
+                    assert!(
+                        (whole - p[1]).abs() < 1e-10,
+                        "{}: at {}: {whole} vs {}",
+                        series.title,
+                        p[0],
+                        p[1]
+                    );
+                }
+            }
+        }
     }
 }
