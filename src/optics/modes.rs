@@ -113,7 +113,8 @@ impl Mode {
             ray,
         };
         let scale = if propagating {
-            let sz = mode.poynting().z.abs();
+            // The normal Poynting flux Re(E × H*)_z, without the other two components.
+            let sz = (e.x * h.y.conj() - e.y * h.x.conj()).re.abs();
             if sz > 0.0 { 1.0 / sz.sqrt() } else { 1.0 }
         } else {
             let n = e.norm();

@@ -182,10 +182,12 @@ fn unit_field(mode: &Mode) -> Vector3<Complex64> {
 
 /// The result of one face crossing.
 struct Crossed {
-    /// Rays beyond the face, with the letter of their mode ('o'/'e') when beyond is a crystal.
-    onward: Vec<(Carrier, Option<char>)>,
-    /// Rays reflected back by total internal reflection: (direction, power share weight).
-    reflected: Vec<(Vector3<f64>, f64)>,
+    /// Rays beyond the face (at most one per mode), with the letter of their mode ('o'/'e') when
+    /// beyond is a crystal.
+    onward: [Option<(Carrier, Option<char>)>; 2],
+    /// Rays reflected back by total internal reflection (at most one per mode): (direction,
+    /// power share weight).
+    reflected: [Option<(Vector3<f64>, f64)>; 2],
     /// Whether a mode beyond the face is evanescent (total internal reflection).
     tir: bool,
 }
@@ -245,8 +247,8 @@ impl Tracer<'_> {
         }
         let Some(coupling) = bare_face(&a_fwd, &a_back, &b_fwd) else {
             return Crossed {
-                onward: Vec::new(),
-                reflected: Vec::new(),
+                onward: [None, None],
+                reflected: [None, None],
                 tir: false,
             };
         };
@@ -257,7 +259,7 @@ impl Tracer<'_> {
         };
         let out = t * a_in;
         let tir = b_fwd.iter().any(|m| !m.propagating);
-        let mut onward = Vec::new();
+        let mut onward = [None, None];
         match into {
             Body::Isotropic(n) => {
                 if let Some(u) = b_lab[0].ray_direction() {
@@ -272,7 +274,7 @@ impl Tracer<'_> {
                             }
                         }
                     }
-                    onward.push((Carrier::Free { n, u, m }, None));
+                    onward[0] = Some((Carrier::Free { n, u, m }, None));
                 }
             }
             Body::Crystal(_) => {
@@ -280,7 +282,7 @@ impl Tracer<'_> {
                     if mode.propagating {
                         let letter = if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' };
                         let amp = RowVector2::new(out[(k, 0)], out[(k, 1)]);
-                        onward.push((Carrier::Bound { mode: *mode, amp }, Some(letter)));
+                        onward[k] = Some((Carrier::Bound { mode: *mode, amp }, Some(letter)));
                     }
                 }
             }
@@ -288,18 +290,15 @@ impl Tracer<'_> {
         let reflected = if tir {
             let r_out = coupling.r * a_in;
             let c = coherency(&self.s_in);
-            a_back
-                .iter()
-                .enumerate()
-                .filter(|(_, m)| m.propagating)
-                .filter_map(|(k, m)| {
-                    let row = RowVector2::new(r_out[(k, 0)], r_out[(k, 1)]);
-                    let w = (row * c * row.adjoint())[(0, 0)].re;
-                    lab(m).ray_direction().map(|d| (d, w))
-                })
-                .collect()
+            let mut out = [None, None];
+            for (k, m) in a_back.iter().enumerate().filter(|(_, m)| m.propagating) {
+                let row = RowVector2::new(r_out[(k, 0)], r_out[(k, 1)]);
+                let w = (row * c * row.adjoint())[(0, 0)].re;
+                out[k] = lab(m).ray_direction().map(|d| (d, w));
+            }
+            out
         } else {
-            Vec::new()
+            [None, None]
         };
         Crossed { onward, reflected, tir }
     }
@@ -585,13 +584,13 @@ fn cross_booked(
     (idx, side): (usize, Side),
     rejected: &mut Vec<Rejected>,
     tallies: &mut [Tally],
-) -> Vec<Flight> {
+    onward: &mut Vec<Flight>,
+) {
     let s_in = &tracer.s_in;
     let p_in = f.carrier.power(s_in);
     let crossed = tracer.cross(&f.carrier, from, into, normal);
-    let mut onward = Vec::with_capacity(crossed.onward.len());
     let mut p_out = 0.0;
-    for (carrier, letter) in crossed.onward {
+    for (carrier, letter) in crossed.onward.into_iter().flatten() {
         p_out += carrier.power(s_in);
         let label = match letter {
             Some(c) => tracer.trails.borrow_mut().letter(f.label, c),
@@ -605,14 +604,15 @@ fn cross_booked(
             ..f
         });
     }
+    let reflected: Vec<&(Vector3<f64>, f64)> = crossed.reflected.iter().flatten().collect();
     let lost = (p_in - p_out).max(0.0);
-    let weights: f64 = crossed.reflected.iter().map(|r| r.1).sum();
-    if crossed.tir && !crossed.reflected.is_empty() {
-        for (dir, w) in &crossed.reflected {
+    let weights: f64 = reflected.iter().map(|r| r.1).sum();
+    if crossed.tir && !reflected.is_empty() {
+        for (dir, w) in &reflected {
             let share = if weights > 0.0 {
                 w / weights
             } else {
-                1.0 / crossed.reflected.len() as f64
+                1.0 / reflected.len() as f64
             };
             // A reflected mode the light does not couple into is no ray.
             if share <= POWER_ROUNDING {
@@ -633,7 +633,6 @@ fn cross_booked(
     } else {
         tallies[idx].reflected += lost;
     }
-    onward
 }
 
 /// Takes a ray into slab `idx`: from the outside medium (travelling to the front face) or, for
@@ -651,7 +650,7 @@ fn enter(
     let outside = Body::Isotropic(tracer.stack.outside_index);
     // Where the light comes from: the previous slab through a contact (whose interface belongs
     // to this slab's front face), or the outside medium, crossed up to the front face.
-    let (mut from, film) = match f.pending.take() {
+    let (from, film) = match f.pending.take() {
         Some((_, prev_body)) => (prev_body, into_next.filter(|b| matches!(b, Body::Isotropic(_)))),
         None => {
             if !tracer.travel(&mut f, &faces.front) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
@@ -661,15 +660,18 @@ fn enter(
             (outside, None)
         }
     };
-    let mut arrived = vec![f];
-    for into in film.into_iter().chain([body]) {
-        arrived = arrived
-            .into_iter()
-            .flat_map(|g| cross_booked(tracer, g, (from, into, normal), (idx, Side::Front), rejected, tallies))
-            .collect();
-        from = into;
+    let faces = (idx, Side::Front);
+    match film {
+        // Into the film and out of it at one point (module header).
+        Some(film) => {
+            let mut in_film = Vec::with_capacity(1);
+            cross_booked(tracer, f, (from, film, normal), faces, rejected, tallies, &mut in_film);
+            for g in in_film {
+                cross_booked(tracer, g, (film, body, normal), faces, rejected, tallies, next);
+            }
+        }
+        None => cross_booked(tracer, f, (from, body, normal), faces, rejected, tallies, next),
     }
-    next.extend(arrived);
 }
 
 /// Rays waiting at a slab's back face leave it into `into` (the outside medium).
@@ -690,14 +692,15 @@ fn leave_pending(
             Element::Slab(Slab { faces: Some(faces), .. }) => faces.back.normal,
             _ => Vector3::z(),
         };
-        out.extend(cross_booked(
+        cross_booked(
             tracer,
             f,
             (body, into, normal),
             (idx, Side::Back),
             rejected,
             tallies,
-        ));
+            &mut out,
+        );
     }
     out
 }
