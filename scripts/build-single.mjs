@@ -9,8 +9,13 @@
 //   modules it imports, see PAGE_MODULES), each in a function scope of its own by bundlePage
 //   below, with their two loads rewritten (the bindings import, and the design worker's script);
 // - the wasm, gzipped and base64-encoded, inflated in the browser with DecompressionStream;
-// - the design worker's source (the same glue + www/design-worker.js, its import and init
-//   rewritten), started from a Blob URL; the page posts it the wasm bytes.
+// - the design worker's own code (www/design-worker.js, its import and init rewritten), started
+//   from a Blob URL of the glue's function as the page's script holds it (its source text,
+//   `${__dsMakeCore}`) followed by that code, so the glue is stored once; the page posts the
+//   worker the wasm bytes.
+//
+// The glue, the modules and the worker's code are compacted (compactLines: no comment or blank
+// lines, no indentation outside template literals) and must then parse (checkSyntax).
 //
 // Every rewrite must match exactly once, or the build fails (so a change to the page's modules or
 // the glue cannot silently leave a file:// load behind).
@@ -24,6 +29,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import crypto from 'node:crypto';
+import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -54,6 +60,7 @@ function wrapGlue(glue) {
   if (/^\s*(import|export)\b/m.test(body) || body.includes('import.meta')) {
     throw new Error('build-single: the glue has an import or export left');
   }
+  body = compactLines(body, 'the glue');
   const exportsList = ['default: __wbg_init', 'initSync', ...names].join(', ');
   return `function __dsMakeCore() {\n${body}\nreturn { ${exportsList} };\n}\n`;
 }
@@ -93,31 +100,46 @@ const moduleObject = (file) => `__module_${file.replace(/\W/g, '_')}`;
  * not hide a name of the wrapper or the loader).
  */
 /**
- * `source` without its comment lines: lines that hold only a `//` comment, and block comments that
- * start their line with `/*` (doc comments) and end a line with `*\/`. Lines inside a template
- * literal are kept (a line's backticks, escaped ones aside, toggle that state). The page's modules
- * are read by people in www/; the single file only has to run, and its budget is tight.
+ * `source` (the text of `what`) as compact as its meaning allows, line by line: lines that hold
+ * only a `//` comment, block comments that start their line with `/*` (doc comments) and end a
+ * line with `*\/`, and blank lines are left out, and every other line loses its leading
+ * whitespace (outside a string or template literal, whitespace at the start of a line means
+ * nothing in JavaScript; a line keeps its newline, so automatic semicolons stay where they were).
+ * Lines inside a template literal are kept as they are (a line's backticks, escaped ones aside,
+ * toggle that state), and so is a line after one that ends with `\` (a string continued on the
+ * next line). With `keepIndent`, only the comment and blank lines go (topLevelNames reads a
+ * declaration's level from its indentation). The build fails if a file ends inside a template
+ * literal or a block comment (the count went wrong, and stripping could have changed a string),
+ * or if code follows a block comment that starts its line. The page's modules and the glue are
+ * read by people in www/; the single file only has to run, and its budget is tight.
  */
-function withoutCommentLines(source) {
+function compactLines(source, what, keepIndent = false) {
   const out = [];
   let inTemplate = false;
   let inBlock = false;
+  let continued = false;
   for (const line of source.split('\n')) {
     const trimmed = line.trim();
-    if (!inTemplate) {
+    if (!inTemplate && !continued) {
       if (inBlock) {
         if (trimmed.endsWith('*/')) inBlock = false;
         continue;
       }
-      if (trimmed.startsWith('//')) continue;
+      if (trimmed === '' || trimmed.startsWith('//')) continue;
       if (trimmed.startsWith('/*')) {
-        if (!trimmed.endsWith('*/') || trimmed === '/*') inBlock = true;
+        const end = trimmed.indexOf('*/', 2);
+        if (end !== -1 && end !== trimmed.length - 2) throw new Error(`build-single: ${what}: code after a block comment on its line: ${trimmed}`);
+        if (end === -1) inBlock = true;
         continue;
       }
     }
-    out.push(line);
+    out.push(inTemplate || continued || keepIndent ? line : line.trimStart());
     const ticks = (line.replace(/\\`/g, '').match(/`/g) || []).length;
     if (ticks % 2 === 1) inTemplate = !inTemplate;
+    continued = !inTemplate && line.endsWith('\\');
+  }
+  if (inTemplate || inBlock) {
+    throw new Error(`build-single: ${what} ends inside a ${inTemplate ? 'template literal' : 'block comment'} as compactLines counts; it cannot be compacted safely`);
   }
   return out.join('\n');
 }
@@ -138,9 +160,11 @@ function bundlePage() {
     if (/^export\s+let\b/m.test(source)) throw new Error(`build-single: ${file}: an exported let, which the single file would copy once; export a const or a function`);
     const exported = [];
     for (const m of source.matchAll(DECLARATION)) if (m[1]) exported.push(m[2]);
-    const body = withoutCommentLines(source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b)/gm, ''));
+    const unexported = source.replace(/^export (?=(?:async\s+)?function\b|class\b|const\b)/gm, '');
+    const body = compactLines(unexported, file);
+    const topLevel = topLevelNames(compactLines(unexported, file, true), file);
     if (/^\s*export\b/m.test(body)) throw new Error(`build-single: ${file}: an export the single file cannot inline (only \`export function|class|const name\`)`);
-    return { imports, body, exported };
+    return { imports, body, exported, topLevel };
   };
   const order = [];
   const visiting = new Set();
@@ -166,7 +190,7 @@ function bundlePage() {
         if (!modules.get(imp.from).exported.includes(name)) throw new Error(`build-single: ${file} imports ${name} from ./${imp.from}, which does not export it`);
       }
     }
-    for (const name of topLevelNames(mod.body, file)) declared.set(name, file);
+    for (const name of mod.topLevel) declared.set(name, file);
     const imports = mod.imports.map((imp) => `const { ${imp.names.join(', ')} } = ${moduleObject(imp.from)};\n`).join('');
     parts.push(`// --- www/${file}\nconst ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
   }
@@ -188,15 +212,18 @@ worker = replaceOnce(worker,
   ].join('\n'),
   'design-worker.js');
 worker = replaceOnce(worker, 'init()\n  .then(', '__dsBytes\n  .then((bytes) => init({ module_or_path: bytes }))\n  .then(', 'design-worker.js');
-const workerSource = glue + worker;
+// The worker's source is the glue + `worker`; the glue is not stored a second time for it: the
+// page takes its text from the page's own copy, `${__dsMakeCore}` (Function.prototype.toString
+// gives a function's source text exactly), when it starts the worker.
+const workerTail = compactLines(worker, 'design-worker.js');
 
 // The page's script: its modules as one, then the two loads rewritten, each exactly once in the
 // whole (whichever module holds it).
 const page = bundlePage();
 let app = page.text;
 app = replaceOnce(app,
-  "state.core = await import('./pkg/doublespar.js');\n    await state.core.default();",
-  'state.core = __dsMakeCore();\n    await state.core.default({ module_or_path: await __dsWasmBytes() });',
+  "state.core = await import('./pkg/doublespar.js');\nawait state.core.default();",
+  'state.core = __dsMakeCore();\nawait state.core.default({ module_or_path: await __dsWasmBytes() });',
   `the page's modules (${page.order.join(', ')})`);
 app = replaceOnce(app, "new Worker('design-worker.js', { type: 'module' })", '__dsStartWorker()',
   `the page's modules (${page.order.join(', ')})`);
@@ -214,7 +241,7 @@ const jsonSafe = (value) => JSON.stringify(value).replace(/</g, '\\u003c');
 
 const loader = `// Doublespar, single-file edition: everything is inline; nothing is fetched.
 const __DS_WASM_GZ_B64 = ${jsonSafe(wasmB64)};
-const __DS_WORKER_SOURCE = ${jsonSafe(workerSource)};
+const __DS_WORKER_TAIL = ${jsonSafe(workerTail)};
 let __dsWasmPromise = null;
 /** The wasm bytes (an ArrayBuffer), inflated once from the inline gzip. */
 function __dsWasmBytes() {
@@ -230,10 +257,13 @@ function __dsWasmBytes() {
   return __dsWasmPromise;
 }
 let __dsWorkerUrl = null;
-/** The design worker, from a Blob URL of its inline source; it gets a copy of the wasm bytes. */
+/**
+ * The design worker, from a Blob URL of its source: the glue's function, as this script holds it,
+ * then the worker's own code. It gets a copy of the wasm bytes.
+ */
 function __dsStartWorker() {
   if (!__dsWorkerUrl) {
-    __dsWorkerUrl = URL.createObjectURL(new Blob([__DS_WORKER_SOURCE], { type: 'text/javascript' }));
+    __dsWorkerUrl = URL.createObjectURL(new Blob([\`\${__dsMakeCore}\\n\`, __DS_WORKER_TAIL], { type: 'text/javascript' }));
   }
   // A classic worker (its source has no import or export left): in Chromium, a module worker
   // from a blob: URL failed to start in a page opened from file://.
@@ -251,6 +281,22 @@ for (const name of [...topLevelNames(loader, 'the loader'), '__dsMakeCore', ...p
   }
 }
 const script = scriptSafe(loader + glue + app);
+
+/**
+ * Node's parser reads `text` as the browser will (a module, or a classic script for the worker),
+ * without running it: the compacting above must leave both parseable.
+ */
+function checkSyntax(text, ext, what) {
+  fs.mkdirSync(OUT_DIR, { recursive: true });
+  const file = path.join(OUT_DIR, `check-${process.pid}.${ext}`);
+  fs.writeFileSync(file, text);
+  const r = spawnSync(process.execPath, ['--check', file], { encoding: 'utf8' });
+  fs.rmSync(file, { force: true });
+  if (r.status !== 0) throw new Error(`build-single: ${what} does not parse: ${r.stderr}`);
+}
+checkSyntax(script, 'mjs', "the single file's script");
+// What the worker's Blob holds: the glue's function as the page's script holds it, then its code.
+checkSyntax(`${scriptSafe(glue).trimEnd()}\n${workerTail}`, 'cjs', "the design worker's source");
 
 /** A CSP source for exactly this inline text (what the browser hashes: the element's content). */
 const hashSource = (text) => `'sha256-${crypto.createHash('sha256').update(text, 'utf8').digest('base64')}'`;

@@ -240,6 +240,85 @@ function materialRows(key, label, materialList) {
   return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`], ['Data source', m.citation]];
 }
 
+// The prism kinds share one frame (CONVENTIONS.md, version 2; src/design/splitter.rs,
+// polarizer.rs): the pair's tilted face leans toward +x, so the first part is thin at +x, and an
+// optic axis in the faces is named by its azimuth from x.
+
+/**
+ * An optic axis in words: in the faces (tilt 90°) or at its tilt, then along x (across the edge
+ * of the tilted face), along y (parallel to it) or at its azimuth, with the azimuth as a number.
+ */
+function axisWords(axis) {
+  const az = axis?.azimuth_deg;
+  if (typeof az !== 'number') return 'axis not given';
+  const inFace = axis.tilt_deg === 90 ? 'in the faces' : `at ${deg(axis.tilt_deg)} to the face normal`;
+  const turn = ((az % 180) + 180) % 180;
+  const where = turn === 0 ? 'along x, across the edge of the tilted face' : turn === 90 ? 'along y, parallel to the edge of the tilted face' : `at ${deg(az)} from x`;
+  return `${inFace}, ${where} (azimuth ${deg(az)})`;
+}
+
+/** How two crystals meet: a cement of its index, optical contact, or a gap (air or of its index). */
+function contactWords(contact, index) {
+  if (contact === 'cement') return `cemented, cement of index ${sheetNumber(index)}`;
+  if (contact === 'optical') return 'optical contact, no cement';
+  return index === 1 || index === undefined ? 'air gap (index 1)' : `gap of index ${sheetNumber(index)}`;
+}
+
+/** The angular splitter: two wedges with crossed axes (src/design/splitter.rs). */
+function splitterRows(d, r, materialList) {
+  const [first, second] = d.scenario?.elements ?? [];
+  const t = d.tolerances ?? {};
+  const wl = d.scenario?.wavelength_nm ?? r.wavelength_nm;
+  const rows = materialRows(first?.material ?? r.material, 'Material', materialList);
+  rows.push(['Wedge angle', `${deg(d.wedge_angle_deg)} ± ${deg(t.wedge_deg, 3)} between the entrance face and the common face, the same in both wedges (the tolerance as one standard deviation)`]);
+  rows.push(['Dimensions', `two wedges: ${(d.thickness_mm ?? []).map((v, i) => `wedge ${i + 1} ${mm(v)} thick at the axis`).join(', ')}; ${mm(d.edge_thickness_mm)} at the thin edge (+x for wedge 1)`]);
+  rows.push(['Cut', `optic axes crossed, each ± ${deg(t.axis_deg, 3)} about the beam: wedge 1 ${axisWords(first?.axis)}; wedge 2 ${axisWords(second?.axis)}`]);
+  rows.push(['Contact', contactWords(d.contact, second?.cement_index ?? r.cement_index)]);
+  rows.push(['Clear aperture', `at least ${mm(d.clear_aperture_mm)} (round), all faces`]);
+  const band = d.band?.split_angle_deg ?? [];
+  const bandSplit = band.length > 1 ? `; split from ${deg(Math.min(...band))} to ${deg(Math.max(...band))} over the band` : '';
+  rows.push(['Wavelength band', `${bandText(d.band?.wavelength_nm?.map((w) => [w]), wl)}${bandSplit}`]);
+  const beams = (d.beams ?? []).map((b) => `beam ${b.label} (polarized along ${b.polarization}) deviated ${deg(b.deviation_deg)}`);
+  rows.push(['Performance', `split ${deg(d.split_angle_deg)} at ${nm(wl)} and normal incidence: ${beams.join(', ')} (positive toward +x)`]);
+  const mc = d.split_angle_spread ?? d.monte_carlo;
+  const errors = `wedge angle ± ${deg(t.wedge_deg, 3)}, each axis ± ${deg(t.axis_deg, 3)}, incidence ± ${deg(t.incidence_deg, 3)} (standard deviations)`;
+  rows.push(['Tolerances', mc && mc.n > 0
+    ? `${errors}: over ${mc.n} samples the split is ${deg(mc.mean, 5)} ± ${deg(mc.std, 2)}, 5th to 95th percentile ${deg(mc.p5, 5)} to ${deg(mc.p95, 5)}`
+    : `${errors}; the split over them was not computed (no Monte Carlo samples)`]);
+  return rows;
+}
+
+/** The polarizing prism: one mode totally reflected at a gap (src/design/polarizer.rs). */
+function polarizerRows(d, r, materialList) {
+  const [first, second] = d.scenario?.elements ?? [];
+  const [lower, upper] = d.half_field_deg ?? [];
+  const [critReflected, critPassed] = d.critical_angles_deg ?? [];
+  const rows = materialRows(first?.material ?? r.material, 'Material', materialList);
+  rows.push(['Prism angle', `${deg(d.prism_angle_deg)} between the entrance face and the gap, the same in both prisms`]);
+  rows.push(['Dimensions', `two prisms: ${(d.thickness_mm ?? []).map((v, i) => `prism ${i + 1} ${mm(v)} thick at the axis`).join(', ')}; ${mm(d.edge_thickness_mm)} at the thin edge (+x for prism 1)`]);
+  rows.push(['Cut', `optic axis of both prisms ${axisWords(first?.axis)}`]);
+  rows.push(['Gap', contactWords(second?.contact === 'cement' ? 'cement' : null, d.gap_index)]);
+  rows.push(['Clear aperture', `at least ${mm(d.clear_aperture_mm)} (round), all faces`]);
+  rows.push(['Wavelength', nm(d.scenario?.wavelength_nm ?? r.wavelength_nm)]);
+  rows.push(['Field of view', `${deg(lower)} below and ${deg(upper)} above the normal, in the x–z plane (critical angles at the gap: ${deg(critReflected)} for the ${d.reflected_mode}-mode, ${deg(critPassed)} for the ${d.passed_mode}-mode)`]);
+  rows.push(['Performance', `passes the ${d.passed_mode}-mode (${sheetNumber(d.normal?.passed, 3)} of its power at normal incidence, faces uncoated) and reflects the ${d.reflected_mode}-mode totally inside the field; just beyond the upper edge the extinction (leaked ÷ passed) is ${sheetNumber(d.upper_edge?.outside?.extinction, 3)}`]);
+  return rows;
+}
+
+/** The tilt-tuned waveplate: a plate in a tilted mount (src/design/tilt.rs). */
+function tiltRows(d, r, materialList) {
+  const plate = d.scenario?.elements?.[0] ?? {};
+  const rows = materialRows(plate.material ?? r.material, 'Material', materialList);
+  const made = typeof r.order_number === 'number' ? ` (order ${r.order_number}${typeof r.made_for_nm === 'number' ? ` at ${nm(r.made_for_nm)}` : ''})` : '';
+  rows.push(['Dimensions', `plate ${mm(d.thickness_mm)} thick${made}`]);
+  rows.push(['Cut', `optic axis in the face, at ${deg(plate.axis?.azimuth_deg)} from x`]);
+  rows.push(['Mount', `tilted by ${deg(d.tilt_deg)} in the plane at azimuth ${deg(plate.mount?.azimuth_deg)} from x; there the retardance changes by ${sheetNumber(d.sensitivity_waves_per_deg, 3)} waves per degree of tilt`]);
+  rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
+  rows.push(['Wavelength', nm(d.scenario?.wavelength_nm ?? r.wavelength_nm)]);
+  rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at the tilt (the target ${sheetNumber(r.retardance_waves, 5)} plus ${d.order} whole waves), ${sheetNumber(d.normal_retardance_waves, 5)} waves untilted`]);
+  return rows;
+}
+
 /** The sheet's rows [term, text] for a solved design of each kind. */
 function orderRows(shown, materialList) {
   const { design: d, request: r, kindName } = shown;
@@ -291,6 +370,12 @@ function orderRows(shown, materialList) {
     rows.push(['Clear aperture', 'to suit the beam and the displacement (the request sets none)']);
     rows.push(['Wavelength band', bandText(null, d.scenario?.wavelength_nm ?? r.wavelength_nm ?? 632.8)]);
     rows.push(['Performance', d.verdict ?? '']);
+  } else if (d.kind === 'angular-splitter') {
+    rows.push(...splitterRows(d, r, materialList));
+  } else if (d.kind === 'prism-polarizer') {
+    rows.push(...polarizerRows(d, r, materialList));
+  } else if (d.kind === 'tilt-tuning') {
+    rows.push(...tiltRows(d, r, materialList));
   }
   // The design's warnings and the shop's notes, in the panel's words (lists of text).
   if (shown.warnings?.length) rows.push(['Warnings', shown.warnings]);

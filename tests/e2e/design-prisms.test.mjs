@@ -79,6 +79,20 @@ async function useDesign(page, design, what) {
     && s.elements.every((e, i) => close(e.thickness_mm, design.scenario.elements[i].thickness_mm)), `${what}: the set-up holds the designed part`);
 }
 
+/** The order sheet's rows (#order-sheet, written for printing) as {term: text}. */
+const orderSheet = (page) =>
+  page.evaluate(() => Object.fromEntries([...document.querySelectorAll('#order-sheet [data-order]')]
+    .map((r) => [r.dataset.order, r.querySelector('dd').textContent])));
+
+/** A golden number as the sheet writes it: `n` significant digits, no trailing zeros, "−". */
+const fig = (v, n = 4) => String(Number(v.toPrecision(n))).replace('-', '−');
+
+/** Each of `parts` is in the sheet's row `term`. */
+function expectRow(sheet, term, parts, what) {
+  assert.equal(typeof sheet[term], 'string', `${what}: the order sheet has a row "${term}" (rows: ${Object.keys(sheet).join(', ')})`);
+  for (const p of parts) assert.ok(sheet[term].includes(p), `${what}: the order sheet's "${term}" says ${JSON.stringify(p)}: ${sheet[term]}`);
+}
+
 /** The page's own traced value at a result path (data-quantity), as a number. */
 const traced = async (page, p) => Number(await page.getAttribute(`[data-quantity="${p}"]`, 'data-value'));
 
@@ -105,6 +119,23 @@ test('an angular splitter agrees with the command line, Monte Carlo included, an
     assert.match(await page.textContent('#design-status'), /Solved, with 400 Monte Carlo samples/);
     await expectPlots(page, ['split-wavelength', 'tolerance-histogram'], 'splitter');
 
+    // The order sheet: what an optician makes and checks, with the command line's numbers.
+    const sheet = await orderSheet(page);
+    const [oe, eo] = design.beams;
+    const mc = design.split_angle_spread;
+    assert.ok(sheet.Material?.toLowerCase().includes('calcite'), `splitter: the order sheet names the material: ${sheet.Material}`);
+    expectRow(sheet, 'Wedge angle', [`${fig(design.wedge_angle_deg)}° ± 0.05°`], 'splitter');
+    expectRow(sheet, 'Dimensions', [`wedge 1 ${fig(design.thickness_mm[0])} mm thick at the axis`, `wedge 2 ${fig(design.thickness_mm[1])} mm`, `${fig(design.edge_thickness_mm)} mm at the thin edge`], 'splitter');
+    expectRow(sheet, 'Cut', ['± 0.5°', 'wedge 1 in the faces, along x', '(azimuth 0°)', 'wedge 2 in the faces, along y', '(azimuth 90°)'], 'splitter');
+    expectRow(sheet, 'Contact', ['optical contact, no cement'], 'splitter');
+    expectRow(sheet, 'Clear aperture', [`${fig(design.clear_aperture_mm)} mm`], 'splitter');
+    expectRow(sheet, 'Wavelength band', ['450 nm to 900 nm', `split from ${fig(b[lo])}° to ${fig(b[hi])}°`], 'splitter');
+    expectRow(sheet, 'Performance', [`split ${fig(design.split_angle_deg)}° at 632.8 nm`,
+      `beam ${oe.label} (polarized along ${oe.polarization}) deviated ${fig(oe.deviation_deg)}°`,
+      `beam ${eo.label} (polarized along ${eo.polarization}) deviated ${fig(eo.deviation_deg)}°`], 'splitter');
+    expectRow(sheet, 'Tolerances', ['wedge angle ± 0.05°, each axis ± 0.5°, incidence ± 0.1°',
+      `over 400 samples the split is ${fig(mc.mean, 5)}° ± ${fig(mc.std, 2)}°`, `${fig(mc.p5, 5)}° to ${fig(mc.p95, 5)}°`], 'splitter');
+
     // In the set-up, the page's exact trace of the two wedges deviates each beam as designed (the
     // trace gives the angle to the incident beam, the design its signed value toward +x).
     const sc = await useDesign(page, design, 'splitter');
@@ -128,6 +159,11 @@ test('a cemented quartz splitter, and a splitter without a tolerance run', { tim
     assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), { ...request, seed: 1 }, 'the request the fields say');
     await expectDesign(page, design, ['wedge_angle_deg', 'split_angle_deg', 'contact', 'split_angle_spread.mean', 'split_angle_spread.std'], 'cemented quartz splitter');
     assert.match(await page.textContent('[data-quantity="design.contact"]'), /^cement$/);
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Material?.toLowerCase().includes('quartz'), `cemented splitter: the order sheet names the material: ${sheet.Material}`);
+    expectRow(sheet, 'Contact', ['cemented, cement of index 1.48'], 'cemented splitter');
+    expectRow(sheet, 'Wedge angle', [`${fig(design.wedge_angle_deg)}° ± 0.02°`], 'cemented splitter');
+    expectRow(sheet, 'Tolerances', ['wedge angle ± 0.02°, each axis ± 1°, incidence ± 0.5°', 'over 200 samples'], 'cemented splitter');
 
     await enterValue(page, field('samples'), 0);
     await solveDesign(page);
@@ -153,6 +189,18 @@ test('a polarizing prism, air-spaced and cemented, agrees with the command line 
         'upper_edge.inside.passed', 'thickness_mm.0', 'normal.passed',
       ], name);
       await expectPlots(page, ['passed-incidence', 'leaked-incidence'], name);
+      const sheet = await orderSheet(page);
+      assert.ok(sheet.Material?.toLowerCase().includes(request.material), `${name}: the order sheet names the material: ${sheet.Material}`);
+      expectRow(sheet, 'Prism angle', [`${fig(design.prism_angle_deg)}° between the entrance face and the gap`], name);
+      expectRow(sheet, 'Dimensions', [`prism 1 ${fig(design.thickness_mm[0])} mm thick at the axis`, `${fig(design.edge_thickness_mm)} mm at the thin edge`], name);
+      expectRow(sheet, 'Cut', ['in the faces, along y', '(azimuth 90°)'], name);
+      expectRow(sheet, 'Gap', [request.cement_index ? `cemented, cement of index ${request.cement_index}` : 'air gap (index 1)'], name);
+      expectRow(sheet, 'Clear aperture', [`${request.aperture_mm} mm`], name);
+      expectRow(sheet, 'Wavelength', [`${request.wavelength_nm} nm`], name);
+      expectRow(sheet, 'Field of view', [`${fig(design.half_field_deg[0])}° below and ${fig(design.half_field_deg[1])}° above the normal`,
+        `${fig(design.critical_angles_deg[0])}° for the ${design.reflected_mode}-mode`, `${fig(design.critical_angles_deg[1])}° for the ${design.passed_mode}-mode`], name);
+      expectRow(sheet, 'Performance', [`passes the ${design.passed_mode}-mode (${fig(design.normal.passed, 3)} of its power`,
+        `reflects the ${design.reflected_mode}-mode totally`, `extinction (leaked ÷ passed) is ${fig(design.upper_edge.outside.extinction, 3)}`], name);
     }
     // The air-spaced calcite prism (the first golden) in the set-up.
     const { design } = golden('prism-polarizer-calcite-air');
@@ -184,6 +232,14 @@ test('a tilt-tuned waveplate, given by its thickness or by its order, agrees wit
     const required = ['tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'thickness_mm', 'sensitivity_waves_per_deg'];
     await expectDesign(page, quarter.design, required, 'quartz tilt tuning');
     await expectPlots(page, ['retardance-tilt'], 'tilt tuning');
+    let sheet = await orderSheet(page);
+    assert.ok(sheet.Material?.toLowerCase().includes('quartz'), `quartz tilt tuning: the order sheet names the material: ${sheet.Material}`);
+    expectRow(sheet, 'Dimensions', ['plate 0.5 mm thick'], 'quartz tilt tuning');
+    expectRow(sheet, 'Cut', ['optic axis in the face, at 0° from x'], 'quartz tilt tuning');
+    expectRow(sheet, 'Mount', [`tilted by ${fig(quarter.design.tilt_deg)}° in the plane at azimuth 90° from x`, `${fig(quarter.design.sensitivity_waves_per_deg, 3)} waves per degree`], 'quartz tilt tuning');
+    expectRow(sheet, 'Wavelength', ['632.8 nm'], 'quartz tilt tuning');
+    expectRow(sheet, 'Performance', [`retardance ${fig(quarter.design.retardance_waves, 5)} waves at the tilt (the target 0.25 plus ${quarter.design.order} whole waves)`,
+      `${fig(quarter.design.normal_retardance_waves, 5)} waves untilted`], 'quartz tilt tuning');
 
     const order = golden('tilt-tuning-mgf2-order');
     await fill(page, 'tilt-tuning', [
@@ -194,6 +250,11 @@ test('a tilt-tuned waveplate, given by its thickness or by its order, agrees wit
     await solveDesign(page);
     assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), order.request, 'MgF2: the request the fields say');
     await expectDesign(page, order.design, required, 'MgF2 tilt tuning');
+    sheet = await orderSheet(page);
+    assert.ok(sheet.Material?.toLowerCase().includes('mgf2'), `MgF2 tilt tuning: the order sheet names the material: ${sheet.Material}`);
+    expectRow(sheet, 'Dimensions', [`plate ${fig(order.design.thickness_mm)} mm thick (order 4 at 680 nm)`], 'MgF2 tilt tuning');
+    expectRow(sheet, 'Mount', [`tilted by ${fig(order.design.tilt_deg)}° in the plane at azimuth 45° from x`, `${fig(order.design.sensitivity_waves_per_deg, 3)} waves per degree`], 'MgF2 tilt tuning');
+    expectRow(sheet, 'Performance', [`retardance ${fig(order.design.retardance_waves, 5)} waves`, `plus ${order.design.order} whole waves`], 'MgF2 tilt tuning');
 
     const sc = await useDesign(page, order.design, 'tilt tuning');
     const { mount } = sc.elements[0];

@@ -287,5 +287,15 @@ test('printing a solved design adds a one-page order sheet with everything a sho
     assert.equal(rows.Part, 'Waveplate');
     assert.equal(rows.Dimensions, `plate 1: ${Number(wp.plates[0].thickness_mm.toPrecision(4))} mm thick; ± ${Number(tol.toPrecision(2))} mm (moves the retardance by 0.01 waves)`);
     assert.match(rows.Cut, /^optic axis in the face \(90° to the face normal\)/);
+
+    // The prism kinds' sheets have the most rows (design-prisms.test.mjs checks their values):
+    // each still fits its page.
+    for (const kind of ['angular-splitter', 'prism-polarizer', 'tilt-tuning']) {
+      await page.selectOption('[data-design-field="kind"]', kind);
+      await solveDesign(page);
+      for (const format of ['A4', 'Letter']) {
+        assert.equal(pdfPages(await page.pdf({ format, printBackground: true })), 2, `${kind}: the design sheet and the order sheet, one ${format} page each`);
+      }
+    }
   });
 });

@@ -68,6 +68,10 @@ test('the single file works from file:// with no network under its own strict CS
   const size = fs.statSync(SINGLE).size;
   assert.ok(size <= 600 * 1024, `the single file is ${size} bytes, within 600 KiB`);
   const html = fs.readFileSync(SINGLE, 'utf8');
+  // The wasm-bindgen glue is stored once: the design worker's source takes it from the page's
+  // script (scripts/build-single.mjs) rather than from a second copy in a string.
+  assert.equal(html.split('function __dsMakeCore()').length - 1, 1, 'the glue is in the file once');
+  assert.equal(html.split('function __wbg_init(').length - 1, 1, 'the glue\'s init is in the file once');
   const policies = [...html.matchAll(/<meta http-equiv="Content-Security-Policy" content="([^"]*)">/g)].map((m) => m[1]);
   assert.equal(policies.length, 1, 'one CSP <meta>');
   assert.match(policies[0], /^default-src 'none'; script-src 'sha256-[A-Za-z0-9+/=]+' 'wasm-unsafe-eval'; style-src 'sha256-[A-Za-z0-9+/=]+';/);
