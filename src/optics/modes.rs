@@ -194,6 +194,12 @@ fn real_times(m: &Matrix3<f64>, v: &CVector3) -> CVector3 {
     )
 }
 
+/// |q_t|: a plain square root (the components are indices, never near overflow or underflow,
+/// so `hypot`'s care costs without gaining a digit).
+fn tangential_norm(qt: [f64; 2]) -> f64 {
+    (qt[0] * qt[0] + qt[1] * qt[1]).sqrt()
+}
+
 fn real3(v: Vector3<f64>) -> CVector3 {
     v.map(Complex64::from)
 }
@@ -204,7 +210,7 @@ fn real3(v: Vector3<f64>) -> CVector3 {
 /// ray's direction beyond a face, without its fields.
 fn crystal_normals(crystal: &Uniaxial, m: &Matrix3<f64>, qt: [f64; 2], travel: Travel) -> [(Complex64, bool); 2] {
     let no = crystal.indices.no;
-    let qt_norm = qt[0].hypot(qt[1]);
+    let qt_norm = tangential_norm(qt);
     // Ordinary: q_z² = n_o² − |q_t|², factored for accuracy near the critical angle.
     let ordinary = signed_root((no - qt_norm) * (no + qt_norm), travel);
     // Extraordinary: a q_z² + 2 b q_z + c0 = 0 from q·A·q = 1.
@@ -243,7 +249,7 @@ pub fn crystal_wave_vector(crystal: &Uniaxial, qt: [f64; 2], kind: ModeKind) -> 
 /// The wave vector q of a forward wave in an isotropic medium of index `n` at tangential wave
 /// vector `qt`, or `None` when it is evanescent there: the root [`isotropic_modes`] takes.
 pub fn isotropic_wave_vector(n: f64, qt: [f64; 2]) -> Option<Vector3<f64>> {
-    let qt_norm = qt[0].hypot(qt[1]);
+    let qt_norm = tangential_norm(qt);
     let (qz, propagating) = signed_root((n - qt_norm) * (n + qt_norm), Travel::Forward);
     propagating.then(|| Vector3::new(qt[0], qt[1], qz.re))
 }
@@ -312,7 +318,7 @@ pub fn beam_basis(u: Vector3<f64>) -> (Vector3<f64>, Vector3<f64>) {
 /// `qt` must be shorter than `n` for the modes to propagate; otherwise they are evanescent and the
 /// basis is taken at grazing incidence.
 pub fn isotropic_modes(n: f64, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
-    let qt_norm = qt[0].hypot(qt[1]);
+    let qt_norm = tangential_norm(qt);
     let (qz, propagating) = signed_root((n - qt_norm) * (n + qt_norm), travel);
     let q = CVector3::new(qt[0].into(), qt[1].into(), qz);
     let uz = if propagating { qz.re.abs() / n } else { 0.0 };
