@@ -132,6 +132,7 @@ def root(x, s):
 
 
 def e_surface(no, ne, c):
+    """The e-wave's normal-surface matrix A (q.A.q = 1, ray along A.q) for the optic axis c."""
     return np.eye(3) / ne**2 + np.outer(c, c) * (1 / no**2 - 1 / ne**2)
 
 
@@ -213,7 +214,8 @@ def refract(q_lab, normal, src, dst):
 
 
 def meet(r, d, plane):
-    """Where rays from r along d (both (3, ...)) meet the plane (n, z0) through (0, 0, z0)."""
+    """Where rays from r along d (both (3, ...)) meet the plane (n, z0) through (0, 0, z0).
+    Every ray here meets each plane ahead of it, so a plane behind a ray is not tested for."""
     n, z0 = plane
     s = (z0 * n[2] - (n[0] * r[0] + n[1] * r[1] + n[2] * r[2])) / (n[0] * d[0] + n[1] * d[1] + n[2] * d[2])
     return r + s * d
@@ -236,7 +238,7 @@ def trace(setup, theta, phi):
     e_in = [apply(R1, md.e.real) / np.sqrt(dot(md.e.real, md.e.real)) for md in inc]
     P = np.array([[dot(e, b) for b in basis(u0)] for e in e_in])  # (j, c, m)
     a_in = P[:, 0] * J[0] + P[:, 1] * J[1]  # (j, m)
-    p1 = np.abs(U1[:, :, 0] * a_in[0][:, None] + U1[:, :, 1] * a_in[1][:, None]).T ** 2  # (k, m)
+    p1 = np.abs(U1[:, :, 0] * a_in[0][:, None] + U1[:, :, 1] * a_in[1][:, None]).T ** 2  # (j, m)
     r1 = meet(np.zeros((3, 1)), u0, c1["front"])
     S1 = np.stack([apply(R1, md.ray) for md in out1], 1)  # (3, j, m)
     ok1 = inside(r1, c1["radius"]) & np.array([md.prop for md in out1])
