@@ -2,9 +2,10 @@
 //! its fields.
 //!
 //! Physics. A ray's direction beyond a face depends only on its wave vector before it and on the
-//! medium beyond: the tangential part of q is conserved in the face's own frame and the normal
-//! part is the root of the chosen mode that carries energy away from the face (the same roots as
-//! [`crate::optics::modes`], by the same functions). Amplitudes, powers and phases do not enter.
+//! medium beyond: the tangential part of q is conserved and the normal part is the root of the
+//! chosen mode that carries energy away from the face (the same roots as
+//! [`crate::optics::modes`] takes in the face's own frame, by the same root function, written in
+//! the lab frame: [`crate::optics::modes::wave_vector_across`]). Amplitudes, powers and phases do not enter.
 //! So the chain of wave vectors face by face gives a ray's exit direction exactly, and following
 //! its ray direction (q for isotropic media and ordinary waves, A·q for extraordinary ones) from
 //! plane to plane gives where it meets each face and whether it stays within the apertures.
@@ -17,8 +18,8 @@
 //! needs only the directions of two rays (the split of an angular splitter) uses it instead of a
 //! whole trace: the same physics at a fraction of the work (see the benchmark in the README).
 
-use crate::optics::geometry::{Plane, face_frame};
-use crate::optics::modes::{ModeKind, crystal_wave_vector, isotropic_wave_vector};
+use crate::optics::geometry::Plane;
+use crate::optics::modes::{ModeKind, wave_vector_across};
 use crate::optics::stack::{Contact, Element, Faces, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
 use nalgebra::Vector3;
@@ -66,16 +67,13 @@ impl Ray {
     /// Crosses a face of unit normal `normal` into `into`; `None` when that mode is evanescent
     /// beyond it (total internal reflection).
     fn cross(mut self, normal: Vector3<f64>, into: In) -> Option<Ray> {
-        let frame = face_frame(normal);
-        let q = frame.transpose() * self.q;
-        let qt = [q.x, q.y];
-        let local = match into {
-            In::Isotropic(n) => isotropic_wave_vector(n, qt)?,
-            In::Crystal(c, kind) => {
-                crystal_wave_vector(&Uniaxial::new(c.indices, c.axis.rotated(&frame.transpose())), qt, kind)?
+        self.q = match into {
+            In::Isotropic(n) => wave_vector_across(self.q, normal, n, None)?,
+            In::Crystal(c, ModeKind::Ordinary) => wave_vector_across(self.q, normal, c.indices.no, None)?,
+            In::Crystal(c, ModeKind::Extraordinary) => {
+                wave_vector_across(self.q, normal, c.indices.no, Some(&c.extraordinary_surface()))?
             }
         };
-        self.q = frame * local;
         self.medium = into;
         Some(self)
     }

@@ -217,9 +217,18 @@ fn crystal_normals(crystal: &Uniaxial, m: &Matrix3<f64>, qt: [f64; 2], travel: T
     let a = m[(2, 2)];
     let b = m[(2, 0)] * qt[0] + m[(2, 1)] * qt[1];
     let c0 = m[(0, 0)] * qt[0] * qt[0] + 2.0 * m[(0, 1)] * qt[0] * qt[1] + m[(1, 1)] * qt[1] * qt[1] - 1.0;
+    let extraordinary = extraordinary_root(a, b, c0, travel);
+    [ordinary, extraordinary]
+}
+
+/// The root q_z of a q_z² + 2 b q_z + c0 = 0 (q·A·q = 1 along a face's normal, A the
+/// extraordinary surface) that travels along `travel`, and whether it propagates: real, the one
+/// whose energy flows along `travel`, when the discriminant is positive; otherwise complex,
+/// decaying along `travel`.
+fn extraordinary_root(a: f64, b: f64, c0: f64, travel: Travel) -> (Complex64, bool) {
     let disc = b * b - a * c0;
     let s = travel.sign();
-    let extraordinary = if disc > 0.0 {
+    if disc > 0.0 {
         let r = disc.sqrt();
         // Root (−b + s·r)/a, computed without cancellation.
         let root = if s * b <= 0.0 {
@@ -230,28 +239,35 @@ fn crystal_normals(crystal: &Uniaxial, m: &Matrix3<f64>, qt: [f64; 2], travel: T
         (Complex64::new(root, 0.0), true)
     } else {
         (Complex64::new(-b / a, s * (-disc).sqrt() / a), false)
+    }
+}
+
+/// The wave vector beyond a face of unit normal `normal` (lab frame) of a forward wave in the
+/// medium of ordinary index `no` and extraordinary surface `a` (`None`: an isotropic medium of
+/// index `no`, or the ordinary mode), for an incident wave vector `q`: the tangential part
+/// q − (q·n)n is kept and the normal component is the root [`crystal_modes`] and
+/// [`isotropic_modes`] take, written in the lab frame instead of the face's own (the same
+/// quadratic, its coefficients n·A·n, n·A·q_t and q_t·A·q_t − 1). `None` when that wave is
+/// evanescent. What a ray's direction beyond a face depends on, without its fields.
+pub fn wave_vector_across(
+    q: Vector3<f64>,
+    normal: Vector3<f64>,
+    no: f64,
+    a: Option<&Matrix3<f64>>,
+) -> Option<Vector3<f64>> {
+    let qt = q - normal * q.dot(&normal);
+    let (qn, propagating) = match a {
+        None => {
+            let qt_norm = qt.norm();
+            signed_root((no - qt_norm) * (no + qt_norm), Travel::Forward)
+        }
+        Some(a) => {
+            let an = a * normal;
+            let c0 = qt.dot(&(a * qt)) - 1.0;
+            extraordinary_root(normal.dot(&an), an.dot(&qt), c0, Travel::Forward)
+        }
     };
-    [ordinary, extraordinary]
-}
-
-/// The wave vector q of one mode of `crystal` at tangential wave vector `qt` (the crystal and
-/// `qt` in a face's own frame, forward travel), or `None` when that mode is evanescent there:
-/// the same root [`crystal_modes`] takes, without the fields.
-pub fn crystal_wave_vector(crystal: &Uniaxial, qt: [f64; 2], kind: ModeKind) -> Option<Vector3<f64>> {
-    let m = crystal.extraordinary_surface();
-    let (qz, propagating) = crystal_normals(crystal, &m, qt, Travel::Forward)[match kind {
-        ModeKind::Ordinary => 0,
-        ModeKind::Extraordinary => 1,
-    }];
-    propagating.then(|| Vector3::new(qt[0], qt[1], qz.re))
-}
-
-/// The wave vector q of a forward wave in an isotropic medium of index `n` at tangential wave
-/// vector `qt`, or `None` when it is evanescent there: the root [`isotropic_modes`] takes.
-pub fn isotropic_wave_vector(n: f64, qt: [f64; 2]) -> Option<Vector3<f64>> {
-    let qt_norm = tangential_norm(qt);
-    let (qz, propagating) = signed_root((n - qt_norm) * (n + qt_norm), Travel::Forward);
-    propagating.then(|| Vector3::new(qt[0], qt[1], qz.re))
+    propagating.then(|| qt + normal * qn.re)
 }
 
 /// Both modes (ordinary, then extraordinary) of `crystal` at tangential wave vector `qt`,
