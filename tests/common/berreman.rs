@@ -56,7 +56,16 @@ pub fn berreman(qx: f64, qy: f64, eps: &Matrix3<f64>) -> Matrix4<f64> {
 /// negative discriminant, and returns NaN imaginary parts when the Schur iteration leaves a block
 /// with a (tiny) positive one, which it does for the near-degenerate real pairs tested here.
 pub fn eigenvalues(d: &Matrix4<f64>) -> [C; 4] {
-    let (_, t) = d.schur().unpack();
+    try_eigenvalues(d).unwrap_or_else(|| panic!("the Schur iteration does not converge on {d}"))
+}
+
+/// Sweeps of the Schur and SVD iterations before they are given up (nalgebra's plain `schur`
+/// and `svd` iterate without bound, and a few matrices met near critical angles never settle).
+pub const MAX_SWEEPS: usize = 10_000;
+
+/// [`eigenvalues`], or `None` when the Schur iteration does not converge.
+pub fn try_eigenvalues(d: &Matrix4<f64>) -> Option<[C; 4]> {
+    let (_, t) = d.try_schur(f64::EPSILON, MAX_SWEEPS)?.unpack();
     let mut out = [C::new(0.0, 0.0); 4];
     let mut m = 0;
     while m < 4 {
@@ -78,11 +87,7 @@ pub fn eigenvalues(d: &Matrix4<f64>) -> [C; 4] {
             m += 2;
         }
     }
-    assert!(
-        out.iter().all(|z| z.re.is_finite() && z.im.is_finite()),
-        "Schur eigenvalues of {d}: {out:?}"
-    );
-    out
+    out.iter().all(|z| z.re.is_finite() && z.im.is_finite()).then_some(out)
 }
 
 /// Unit null vector of Δ − λ I (right singular vector of the smallest singular value).
@@ -96,20 +101,20 @@ pub fn null_vector(d: &Matrix4<f64>, lambda: C) -> Vector4<C> {
             .unwrap();
         return Vector4::new(vt[(k, 0)], vt[(k, 1)], vt[(k, 2)], vt[(k, 3)]).map(C::from);
     }
-    null_space(d, lambda, 1).remove(0)
+    null_space(d, lambda, 1).expect("the SVD converges").remove(0)
 }
 
 /// An orthonormal basis (in the ordinary Hermitian sense) of the `dim`-dimensional near-null
 /// space of Δ − λ I: the right singular vectors of its `dim` smallest singular values. A
 /// semisimple double eigenvalue (both polarizations of an isotropic medium) has a null space of
 /// dimension two.
-pub fn null_space(d: &Matrix4<f64>, lambda: C, dim: usize) -> Vec<Vector4<C>> {
+pub fn null_space(d: &Matrix4<f64>, lambda: C, dim: usize) -> Option<Vec<Vector4<C>>> {
     let m = d.map(C::from) - Matrix4::<C>::identity() * lambda;
-    let svd = m.svd(false, true);
+    let svd = m.try_svd(false, true, f64::EPSILON, MAX_SWEEPS)?;
     let vt = svd.v_t.expect("v_t requested");
     let mut order: Vec<usize> = (0..4).collect();
     order.sort_by(|&i, &j| svd.singular_values[i].total_cmp(&svd.singular_values[j]));
-    order[..dim]
+    let out = order[..dim]
         .iter()
         .map(|&k| {
             Vector4::new(
@@ -119,7 +124,8 @@ pub fn null_space(d: &Matrix4<f64>, lambda: C, dim: usize) -> Vec<Vector4<C>> {
                 vt[(k, 3)].conj(),
             )
         })
-        .collect()
+        .collect();
+    Some(out)
 }
 
 /// xorshift64* (Vigna), deterministic and dependency-free.
