@@ -65,17 +65,20 @@
 //!   evanescent waves of an isotropic medium (`isotropic_modes` in the library's modes): their
 //!   fields are the grazing beam basis, real vectors transverse to the real grazing direction,
 //!   whereas an evanescent wave of complex q must have q·E = 0; the p-like wave has the wrong
-//!   tangential fields, so the boundary problem's reflection is wrong. The main test therefore
-//!   compares totally reflected light summed over the reflected waves, and their directions as a
-//!   set, until that is fixed;
+//!   tangential fields, so the boundary problem's reflection is wrong, and depends on how the
+//!   face's frame is turned about its normal (which `tests/invariants.rs` sees as a break of
+//!   rotation covariance). Building the p-like evanescent field as q × E_s, with E_s = ẑ × q̂_t,
+//!   makes the first case agree. The main test compares totally reflected light summed over the
+//!   reflected waves, and their directions as a set, until that is fixed;
 //! - a ray that leaves a face within ~1e-6 rad of grazing into a vanishing air film (air contact,
 //!   coinciding faces) is rejected "outside aperture" or passes, by rounding: the library meets
 //!   the next face by the distance along the ray, which divides a rounding-sized offset by the
 //!   tiny normal component. The main test puts its near-critical air contacts across a gap.
 //!
-//! Cases whose crystal modes are near-degenerate (wave vector within ~1e-6 of an optic axis, where
-//! the o/e labels are a convention) are skipped and counted; so are documents the contract refuses
-//! (faces crossing inside the aperture), counted too. Both counts are asserted small.
+//! Cases whose crystal modes are near-degenerate (wave vector within ~1e-5 of an optic axis, where
+//! the o/e labels are a convention) are skipped and counted, with the rare matrices on which
+//! nalgebra's Schur or SVD iteration does not settle; so are documents the contract refuses (faces
+//! crossing inside the aperture). Both counts are asserted small.
 
 mod common;
 use common::berreman::{C, Rng, berreman, ez_row, null_space, permittivity, try_eigenvalues};
@@ -100,7 +103,7 @@ const DEGENERATE_GAP: f64 = 1e-5;
 /// `TOL` + P · `NEAR_CRITICAL` / |δ| (1e-7 P at δ = 1e-8, 1e-9 P at δ = 1e-6); directions and
 /// points keep `TOL`, since q_n's absolute error is only ~1e-16/q_n.
 const NEAR_CRITICAL: f64 = 1e-15;
-/// Generated set-ups (each traced by the library and by the reference); about 10 s in debug.
+/// Generated set-ups (each traced by the library and by the reference); about 14 s in debug.
 const CASES: usize = 1500;
 
 // ---------------------------------------------------------------------------------------------
