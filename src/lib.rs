@@ -33,6 +33,8 @@ pub use precision::assert_within;
 
 // Documents.
 pub use contract::resolve::axis_from_degrees;
+/// A ray that did not leave forward, as the result reports it (the property tests match them).
+pub use contract::result::RejectedRay;
 pub use contract::result::{ElementReport, TraceResult, trace_scenario};
 pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 

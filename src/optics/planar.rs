@@ -252,7 +252,16 @@ impl Tracer<'_> {
                 tir: false,
             };
         };
-        let t_prop = coupling.propagating_t();
+        let mut t_prop = coupling.propagating_t();
+        // An evanescent incident wave brings no power: its column (normalized to unit field, not
+        // unit flux) has no place in the lossless part, which maps incident powers to
+        // transmitted ones. Left in, it took a share of the normalization of a rank-one T.
+        for (j, mode) in a_fwd.iter().enumerate() {
+            if !mode.propagating {
+                t_prop[(0, j)] = Complex64::ZERO;
+                t_prop[(1, j)] = Complex64::ZERO;
+            }
+        }
         let t = match self.stack.losses {
             Losses::Ideal => lossless_part(&t_prop),
             Losses::Uncoated => t_prop,
@@ -767,6 +776,32 @@ mod tests {
         out
     }
 
+    /// Two optically contacted wedges 5 mm thick on axis: the first has its back face tilted by
+    /// `alpha` toward +x, the second its back face across z, both within an aperture of `radius`.
+    fn contacted_wedges(alpha: f64, radius: f64) -> (Faces, Faces) {
+        let ap = Some(Aperture {
+            centre: Vector3::zeros(),
+            axis: Vector3::z(),
+            radius_mm: radius,
+        });
+        let first = Faces {
+            front: Plane::across_z(0.0),
+            back: Plane {
+                normal: direction(alpha, 0.0),
+                point: Vector3::new(0.0, 0.0, 5.0),
+            },
+            aperture: ap,
+            contact: Contact::Outside,
+        };
+        let second = Faces {
+            front: first.back,
+            back: Plane::across_z(10.0),
+            aperture: ap,
+            contact: Contact::Direct,
+        };
+        (first, second)
+    }
+
     fn total_power(t: &Trace, s_in: &[f64; 4]) -> f64 {
         let rays: f64 = t.paths.iter().map(|p| power_of(&p.matrix, s_in)).sum();
         let rejected: f64 = t.rejected.iter().map(|r| r.power).sum();
@@ -995,27 +1030,7 @@ mod tests {
     fn a_straight_through_splitter_deviates_only_the_e_ray_by_snell_twice() {
         let (no, ne) = (1.6557, 1.4849);
         let alpha = 20f64.to_radians();
-        let internal = direction(alpha, 0.0);
-        let ap = Some(Aperture {
-            centre: Vector3::zeros(),
-            axis: Vector3::z(),
-            radius_mm: 4.0,
-        });
-        let first = Faces {
-            front: Plane::across_z(0.0),
-            back: Plane {
-                normal: internal,
-                point: Vector3::new(0.0, 0.0, 5.0),
-            },
-            aperture: ap,
-            contact: Contact::Outside,
-        };
-        let second = Faces {
-            front: first.back,
-            back: Plane::across_z(10.0),
-            aperture: ap,
-            contact: Contact::Direct,
-        };
+        let (first, second) = contacted_wedges(alpha, 4.0);
         let st = stack(
             0.0,
             0.0,
@@ -1076,5 +1091,40 @@ mod tests {
         );
         assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
         let _ = FRAC_PI_4;
+    }
+
+    /// An ideal face is lossless (DEVELOPERS.md: the lossless part of the Fresnel coupling), also
+    /// where the medium the ray comes from has its other wave evanescent: a ray of a strongly
+    /// birefringent crystal (n_o = 2.0, n_e = 1.5) meets a 60° contacted face with q_t = 1.73,
+    /// beyond its own e-wave's reach, and enters a crystal of which one wave can take it (the
+    /// other, n_o = 1.6, is evanescent there): all of it goes on, nothing is reflected.
+    /// The evanescent wave's column (normalized to unit field, not to unit power) once took part in
+    /// the polar factor and turned 42% of the power back as totally reflected (found by the
+    /// independent face solver, tests/independent_faces.rs).
+    #[test]
+    fn an_ideal_face_loses_nothing_when_the_other_incident_wave_is_evanescent() {
+        let (first, second) = contacted_wedges(60f64.to_radians(), 1.0);
+        // Input along x: the first crystal's o-wave (its axis lies along y).
+        let mut st = stack(
+            0.0,
+            0.0,
+            Losses::Ideal,
+            vec![
+                slab(crystal(2.0, 1.5, 90.0, 90.0), 5.0, 0.0, Some(first)),
+                slab(crystal(1.6, 1.95, 70.0, 60.0), 5.0, 0.0, Some(second)),
+            ],
+        );
+        let j = jones::linear(0.0);
+        st.input.jones = Some(j);
+        st.input.stokes = jones::stokes(&j);
+        let t = trace_planar(&st);
+        let rays: f64 = t.paths.iter().map(|p| power_of(&p.matrix, &st.input.stokes)).sum();
+        assert!(
+            t.reflected.iter().all(|r| r.abs() < 1e-12),
+            "reflected {:?}",
+            t.reflected
+        );
+        assert_close(rays, 1.0, 1e-12, 0.0, "all of it leaves");
+        assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
     }
 }

@@ -1,6 +1,8 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 
+pub mod berreman;
+
 use doublespar::Scenario;
 use doublespar::{ElementReport, TraceResult, trace_scenario as trace};
 
@@ -26,6 +28,7 @@ pub fn crystal(r: &TraceResult, i: usize) -> (Option<f64>, Option<f64>, Option<f
 
 /// Asserts |actual − expected| ≤ tol, printing both and what is compared (the library's one
 /// comparison, shared with its unit tests).
+#[allow(unused_imports)] // not every test file compares numbers this way
 pub use doublespar::assert_within as near;
 
 /// A one-crystal scenario with custom indices.
