@@ -261,7 +261,8 @@ mod tests {
         let rule = (2.0 * ((ix.ne - ix.no).abs() * alpha.to_radians().tan()).asin()).to_degrees();
         assert!((split - rule).abs() < 0.02 * rule, "{split} against {rule}");
         let s = split_vs_wavelength(&sc);
-        assert_eq!(s.current.unwrap()[1], split);
+        // The curve's point follows the beams by their wave-vector chains: the same to rounding.
+        assert!((s.current.unwrap()[1] - split).abs() < 1e-12);
         assert!(s.points.len() > 100);
         let plate = Scenario::from_json_str(
             r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {"tilt_deg": 45}}]}"#,
