@@ -345,11 +345,23 @@ pub fn isotropic_modes(n: f64, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
         e2.z = -e2.z;
     }
     let n2 = Complex64::from(n * n);
-    let mk = |kind, e: Vector3<f64>| {
-        let ec = real3(e);
-        Mode::build(kind, travel, q, ec, ec * n2, propagating, q.map(|z| z.re))
-    };
-    [mk(ModeKind::Ordinary, e1), mk(ModeKind::Extraordinary, e2)]
+    let mk = |kind, e: CVector3| Mode::build(kind, travel, q, e, e * n2, propagating, q.map(|z| z.re));
+    if !propagating && qt_norm > 0.0 {
+        // An evanescent wave (complex q, q·q = n²) must have q·E = 0: the s-like field
+        // E_s = ẑ × q̂_t is real and transverse; the p-like one is q × E_s / n (complex). A real
+        // grazing basis would not solve the wave equation and would misplace the light that the
+        // face reflects between the reflected waves.
+        let s_like = Vector3::new(-qt[1], qt[0], 0.0) / qt_norm;
+        let p_like = q.cross(&real3(s_like)) / Complex64::from(n);
+        return [
+            mk(ModeKind::Ordinary, p_like),
+            mk(ModeKind::Extraordinary, real3(s_like)),
+        ];
+    }
+    [
+        mk(ModeKind::Ordinary, real3(e1)),
+        mk(ModeKind::Extraordinary, real3(e2)),
+    ]
 }
 
 #[cfg(test)]
@@ -395,6 +407,30 @@ mod tests {
         for m in [o, e] {
             assert!(m.e.iter().all(|z| z.re.is_finite() && z.im.is_finite()));
             assert!(m.ray_direction().is_none());
+        }
+    }
+
+    /// An evanescent wave of an isotropic medium solves the wave equation: q·E = 0 with
+    /// q·q = n² (complex q, bilinear products), both travels, any azimuth, and its two fields are
+    /// independent (Born & Wolf §1.5.4 for the evanescent field beyond a totally reflecting face).
+    #[test]
+    fn evanescent_isotropic_waves_are_transverse() {
+        for (qt, travel) in [
+            ([1.2, 0.3], Travel::Forward),
+            ([-0.4, 1.1], Travel::Backward),
+            ([0.0, 1.6], Travel::Forward),
+        ] {
+            let modes = isotropic_modes(1.0, qt, travel);
+            for m in &modes {
+                assert!(!m.propagating);
+                assert!(m.q.dot(&m.e).norm() < 1e-15, "q·E = {}", m.q.dot(&m.e));
+                assert!((m.q.dot(&m.q) - Complex64::from(1.0)).norm() < 1e-15);
+                assert!(
+                    (m.q.z.im > 0.0) == (travel == Travel::Forward),
+                    "decays along its travel"
+                );
+            }
+            assert!(modes[0].e.cross(&modes[1].e).norm() > 0.5, "independent fields");
         }
     }
 

@@ -305,6 +305,11 @@ impl Tracer<'_> {
                 let w = (row * c * row.adjoint())[(0, 0)].re;
                 out[k] = lab(m).ray_direction().map(|d| (d, w));
             }
+            // Back into an isotropic medium both reflected waves leave along one direction: they
+            // are one ray, whatever basis splits them.
+            if let (Body::Isotropic(_), [Some((d, w0)), Some((_, w1))]) = (from, out) {
+                out = [Some((d, w0 + w1)), None];
+            }
             out
         } else {
             [None, None]
