@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Every benchmark in one run, side by side on this machine, with the ratios: the native core
-# (cargo bench --bench core), the numpy baseline of the same sweep, the same sweep in WebAssembly
-# under Node, and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
+# (cargo bench --bench core), the numpy baselines of the same sweep and of the two-wedge
+# splitter's traces (scripts/bench/splitter_numpy.py), the same work in WebAssembly under Node,
+# and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
 # first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
 # Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
 # whose excess makes the exit status 1 as it does in scripts/test.sh.
@@ -21,6 +22,8 @@ native=$(printf '%s\n' "$native_out" | tail -1)
 # OPENBLAS_* slow numpy down on some processors here; unset for this command only.
 baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/walkoff_numpy.py)
 echo "$baseline"
+splitter_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/splitter_numpy.py)
+echo "$splitter_baseline"
 wasm=$(node scripts/bench/wasm_sweep.mjs)
 echo "$wasm"
 web='{}'
@@ -35,9 +38,12 @@ if [ "$page" = 1 ]; then
   case "$web" in \{*) ;; *) web='{}' ;; esac
 fi
 echo
-python3 - "$native" "$baseline" "$wasm" "$web" <<'PY'
+python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" <<'PY'
 import json, sys
-n, b, w, p = (json.loads(a) for a in sys.argv[1:5])
+n, b, w, p, sb = (json.loads(a) for a in sys.argv[1:6])
+for key in ("splitter_trace_checksum", "splitter_split_checksum"):
+    assert abs(n[key] - sb[key]) < 1e-9 * abs(sb[key]), f"native and numpy disagree on {key}: {n[key]} vs {sb[key]}"
+    assert abs(n[key] - w[key]) < 1e-9 * abs(w[key]), f"native and wasm disagree on {key}"
 assert abs(n["walkoff_sweep_checksum"] - b["walkoff_sweep_checksum"]) < 1e-6 * abs(b["walkoff_sweep_checksum"]), "the two sweeps disagree"
 assert abs(n["walkoff_sweep_checksum"] - w["walkoff_sweep_checksum"]) < 1e-9 * abs(w["walkoff_sweep_checksum"]), "native and wasm sweeps disagree"
 one, two, base = n["walkoff_sweep_one_thread_1e6_ms"], n["walkoff_sweep_1e6_ms"], b["walkoff_sweep_1e6_ms"]
@@ -48,10 +54,17 @@ for label, ms in (("2 threads", two), ("one thread", one)):
 wm = w["walkoff_sweep_1e6_ms"]
 print(f"  walk-off sweep, 10^6 points, one thread: WebAssembly under Node {wm:.2f} ms, native {one:.2f} ms: wasm takes {wm / one:.2f}x the native time (target within 2x)")
 print(f"  Monte Carlo, displacer, 10^5 samples, native: {n['monte_carlo_1e5_ms']:.1f} ms")
+for label, key in (("whole traces (4 rays, fields and powers)", "splitter_trace_1e5_ms"), ("split angles by wave-vector chains", "splitter_split_1e5_ms")):
+    nn, ww, bb = n[key], w[key], sb[key]
+    print(f"  two-wedge splitter, 10^5 {label}: native {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nn:.1f}x, wasm {bb / ww:.1f}x numpy (target 20x)")
+print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")
 if p:
     print(f"  page, recompute + redraw of every view: median {p['update_redraw_ms']['median']} ms")
     print(f"  page, first complete render: {p['first_render_ms']} ms (budget 1500 ms, {'within' if p['first_render_within_budget'] else 'OVER'})")
     print(f"  page wasm: {p['wasm_bytes']} bytes (budget 360000, {'within' if p['wasm_within_budget'] else 'OVER'})")
     print(f"  Monte Carlo, displacer, 10^5 samples, in the page's worker: median {p['monte_carlo']['post_to_summary_ms']['median']} ms")
+    print(f"  Monte Carlo, angular splitter, 10^5 samples, in the page's worker: median {p['splitter_monte_carlo']['post_to_done_ms']['median']} ms (target 300 ms)")
+    for name, pr in p["prisms"].items():
+        print(f"  page, prism preset {name}, recompute + redraw of every view: median {pr['update_redraw_ms']['median']} ms (target 4 ms)")
 PY
 exit "$status"
