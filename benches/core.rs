@@ -62,7 +62,34 @@ pub fn walkoff_sweep_dense(ix: Indices, out: &mut [f64]) -> f64 {
     doublespar::checksum(out)
 }
 
+/// What `cargo test` runs of this file (it passes no `--bench`): every part once at a small
+/// size, so that the benchmark is known to run without the test suite paying for its timings.
+fn smoke() {
+    let sc = Scenario::from_json_str(STACK).unwrap();
+    assert!(trace(&sc).unwrap().total_power > 0.0);
+    let ix = Indices::new(1.6556901060179166, 1.484909030214121).unwrap();
+    let mut buffer = vec![0.0; 1000];
+    assert!((walkoff_sweep_dense(ix, &mut buffer) - walkoff_sweep(ix, 1000)).abs() < 1e-9);
+    let (splitter, _) = Scenario::from_json_str(include_str!("../scripts/bench/two-wedge-splitter.json"))
+        .unwrap()
+        .resolve()
+        .unwrap();
+    assert!(doublespar::run_workload(&splitter, 100, Workload::Trace).is_finite());
+    assert!(doublespar::run_workload(&splitter, 100, Workload::Split) > 0.0);
+    for request in [
+        r#"{"kind": "displacer", "material": "calcite", "separation_mm": 2, "samples": 100, "seed": 1}"#,
+        r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 10, "samples": 100, "seed": 1}"#,
+    ] {
+        doublespar::solve_design_str(request).unwrap();
+    }
+    println!("benchmark smoke run: every part runs (time it with cargo bench --bench core)");
+}
+
 fn main() {
+    if !std::env::args().any(|a| a == "--bench") {
+        smoke();
+        return;
+    }
     let sc = Scenario::from_json_str(STACK).unwrap();
     let (t_trace, _) = time(7, || {
         let mut s = 0.0;
