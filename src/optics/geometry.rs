@@ -30,14 +30,22 @@ impl Plane {
 
     /// Where the line from `from` along `dir` meets the plane: the distance s along `dir`
     /// (r = from + s·dir), or `None` when the line runs parallel to the plane or meets it behind
-    /// `from` (by more than rounding, 1e-12 of the distance scale).
+    /// `from` (by more than rounding, 1e-12 of the distance scale); 0 when `from` lies on the
+    /// plane to that rounding.
     pub fn meet(&self, from: Vector3<f64>, dir: Vector3<f64>) -> Option<f64> {
+        let gap = self.normal.dot(&(self.point - from));
+        let scale = 1.0 + (self.point - from).norm();
+        // A point already on the plane (to rounding) meets it where it is, however the ray
+        // runs: a ray leaving a face into a vanishing gap toward a coinciding face, near grazing,
+        // would otherwise divide a rounding-sized gap by a tiny normal component.
+        if gap.abs() <= 1e-12 * scale {
+            return Some(0.0);
+        }
         let along = self.normal.dot(&dir);
         if along.abs() < 1e-15 {
             return None;
         }
-        let s = self.normal.dot(&(self.point - from)) / along;
-        let scale = 1.0 + (self.point - from).norm();
+        let s = gap / along;
         (s >= -1e-12 * scale).then_some(s.max(0.0))
     }
 
