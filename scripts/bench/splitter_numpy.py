@@ -40,7 +40,9 @@ sum_i |U3[i, k]|^2. Apertures (clear diameter, seen along z) are applied as the 
 Run with `env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE` (as scripts/bench.sh does): OpenBLAS
 tuning variables that a machine may export force kernels that slow numpy down on some processors,
 and the baseline is numpy as installed. `--check` first compares 20 samples ray by ray with `doublespar trace` (binary from
-$DOUBLESPAR_BIN or ./target/release/doublespar) to 1e-9; the check is never timed. Prints one
+$DOUBLESPAR_BIN or ./target/release/doublespar) to 1e-9; the check is never timed.
+`--check-only` runs the check alone (tests/reference/run.sh does, so the test suite holds the
+face-by-face trace of a two-wedge splitter to this independent implementation). Prints one
 JSON line (median of 7 runs of each workload) for scripts/bench.sh.
 """
 import json
@@ -327,9 +329,11 @@ def median_ms(fn):
 def main():
     setup = load(SCENARIO)
     np.seterr(all="ignore")  # evanescent and rejected rays are masked, never summed
-    if "--check" in sys.argv[1:]:
+    if "--check" in sys.argv[1:] or "--check-only" in sys.argv[1:]:
         count, worst = check(setup)
         print(f"check: {count} samples agree with doublespar trace, largest difference {worst:.1e}", file=sys.stderr)
+        if "--check-only" in sys.argv[1:]:
+            return 0
     block = int(sys.argv[sys.argv.index("--block") + 1]) if "--block" in sys.argv else BLOCK
 
     def run(checksum):

@@ -17,4 +17,7 @@ fi
 cargo build --release --quiet --bin doublespar
 bin="${CARGO_TARGET_DIR:-target}/release/doublespar"
 
+# The two-wedge splitter, face by face, against the benchmark's numpy implementation of the same
+# exact trace (20 incidences, every ray's direction, exit point and power to 1e-9).
+DOUBLESPAR_BIN="$bin" env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/splitter_numpy.py --check-only
 exec "$venv/bin/python" tests/reference/trace_reference.py --bin "$bin" "$@"
