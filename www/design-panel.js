@@ -190,7 +190,7 @@ function buildDesignFields(state) {
   state.design.hints['angular-splitter'] = {
     band: 'Empty: ±10 % around the design wavelength.', cement_index: 'Empty: the wedges are optically contacted.',
     tolerances: 'Each wedge\'s axis errs on its own; the incidence error lies in the plane of the split.',
-    samples: `At most ${most(lim.splitter_max_samples)}; 0 skips the tolerance run. Each sample traces the whole splitter.`, start: { samples: lim.splitter_default_samples },
+    samples: `At most ${most(lim.splitter_max_samples)}; 0 skips the tolerance run. Each sample follows both beams through the splitter exactly.`, start: { samples: lim.splitter_default_samples },
   };
   state.design.hints['prism-polarizer'] = { cement_index: 'Empty: an air gap.' };
   state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
