@@ -349,32 +349,32 @@ struct Tally {
 /// Traces a stack whose faces may lie at any angle (every stack can be traced so; plane-parallel
 /// stacks take [`crate::optics::trace::trace`], which agrees with this to rounding).
 pub fn trace_planar(stack: &Stack) -> Trace {
-    let n_out = stack.outside_index;
     let mut trails = Trails::default();
     let first_point = trails.point(START, [0.0; 3]);
-    let tracer = Tracer {
-        stack,
-        k0: stack.wavelength.k0_per_mm(),
-        s_in: stack.input.stokes,
-        trails: RefCell::new(trails),
+    let mut run = Run {
+        tracer: Tracer {
+            stack,
+            k0: stack.wavelength.k0_per_mm(),
+            s_in: stack.input.stokes,
+            trails: RefCell::new(trails),
+        },
+        rejected: Vec::new(),
+        tallies: vec![Tally::default(); stack.layers.len()],
+        layers: Vec::with_capacity(stack.layers.len()),
     };
-    let outside = Body::Isotropic(n_out);
     let mut flights = vec![Flight {
         label: START,
         at: Vector3::zeros(),
         phase: 0.0,
         points: first_point,
         carrier: Carrier::Free {
-            n: n_out,
+            n: stack.outside_index,
             u: stack.input.direction,
             m: JonesMatrix::identity(),
         },
         pending: None,
         exit: Vector3::zeros(),
     }];
-    let mut rejected: Vec<Rejected> = Vec::new();
-    let mut tallies = vec![Tally::default(); stack.layers.len()];
-    let mut layers_out = Vec::with_capacity(stack.layers.len());
     let mut z = 0.0;
     for (idx, layer) in stack.layers.iter().enumerate() {
         z += layer.gap_mm;
@@ -390,134 +390,182 @@ pub fn trace_planar(stack: &Stack) -> Trace {
             _ => None,
         };
         if into_next.is_none() {
-            flights = leave_pending(&tracer, flights, outside, &mut rejected, &mut tallies);
+            flights = run.leave_pending(flights);
         }
-        let s_in = &tracer.s_in;
-        tallies[idx].power_in = flights.iter().map(|f| f.carrier.power(s_in)).sum();
-        match layer.element {
-            Element::Ideal(jm) => {
-                let plane = Plane::across_z(z);
-                let mut next = Vec::with_capacity(flights.len());
-                for mut f in flights {
-                    if !tracer.travel(&mut f, &plane) {
-                        reject_here(
-                            &mut rejected,
-                            &f,
-                            idx,
-                            Side::Front,
-                            RejectReason::OutsideAperture,
-                            &tracer,
-                        );
-                        continue;
-                    }
-                    if let Carrier::Free { m, .. } = &mut f.carrier {
-                        *m = jm * *m;
-                    }
-                    next.push(f);
-                }
-                flights = next;
-                tallies[idx].power_out = flights.iter().map(|f| f.carrier.power(s_in)).sum();
-                layers_out.push(LayerTrace::Ideal {
-                    power_in: tallies[idx].power_in,
-                    power_out: tallies[idx].power_out,
-                });
-            }
+        run.tallies[idx].power_in = run.power(&flights);
+        flights = match layer.element {
+            Element::Ideal(jm) => run.through_ideal(idx, z, jm, flights),
             Element::Slab(slab) => {
-                let faces = slab.faces.unwrap_or_else(|| plain_faces(z, slab.thickness_mm));
-                let body = body_of(&slab);
-                let mut next = Vec::with_capacity(flights.len() * 2);
-                for f in flights {
-                    enter(
-                        &tracer,
-                        f,
-                        (idx, body, &faces, into_next),
-                        &mut next,
-                        &mut rejected,
-                        &mut tallies,
-                    );
-                }
-                // Through the slab to its back face; the exit waits for the next element.
-                flights = Vec::with_capacity(next.len());
-                for mut f in next {
-                    if !tracer.travel(&mut f, &faces.back) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
-                        reject_here(
-                            &mut rejected,
-                            &f,
-                            idx,
-                            Side::Back,
-                            RejectReason::OutsideAperture,
-                            &tracer,
-                        );
-                        continue;
-                    }
-                    f.pending = Some((idx, body));
-                    flights.push(f);
-                }
-                let modes = front_modes(&tracer, &faces, body);
-                layers_out.push(LayerTrace::Slab {
-                    modes,
-                    shifts_mm: [[0.0; 2]; 2],
-                    z_front_mm: z,
-                    z_back_mm: z + slab.thickness_mm,
-                    power_in: tallies[idx].power_in,
-                    power_out: 0.0,
-                    faces_solved: true,
-                });
+                let through = run.through_slab(idx, z, &slab, into_next, flights);
                 z += slab.thickness_mm;
+                through
             }
-        }
+        };
     }
-    flights = leave_pending(&tracer, flights, outside, &mut rejected, &mut tallies);
-    // Per slab, what went on past it: its input less what its faces reflected and what it
-    // rejected.
-    for (idx, lt) in layers_out.iter_mut().enumerate() {
-        if let LayerTrace::Slab { power_out, .. } = lt {
-            let lost: f64 = rejected.iter().filter(|r| r.element == idx).map(|r| r.power).sum();
-            *power_out = tallies[idx].power_in - tallies[idx].reflected - lost;
-        }
-    }
-    let screen = Plane::across_z(z + stack.screen_mm);
-    let mut paths = Vec::with_capacity(flights.len());
-    for mut f in flights {
-        let exit = f.exit;
-        // The screen may lie behind a ray that left a mounted crystal beyond the stack's last
-        // axis point: its straight continuation meets it all the same.
-        let dir = f.carrier.direction();
-        let met = screen
-            .meet_line(f.at, dir)
-            .is_some_and(|s| tracer.advance(&mut f, dir * s));
-        if !met {
-            let last = stack.layers.len().saturating_sub(1);
-            reject_here(
-                &mut rejected,
-                &f,
-                last,
-                Side::Back,
-                RejectReason::OutsideAperture,
-                &tracer,
-            );
-            continue;
-        }
-        let Carrier::Free { n, u, m } = f.carrier else { continue };
-        // Refer the phase to the screen's axis point (module header).
-        let across = tracer.k0 * n * (u.x * f.at.x + u.y * f.at.y);
-        let trails = tracer.trails.borrow();
-        paths.push(Path {
-            label: trails.label_to(f.label),
-            matrix: m * Complex64::from_polar(1.0, -across),
-            phase_rad: f.phase - across,
-            points_mm: trails.points_to(f.points),
-            direction: u,
-            exit_point_mm: arr(exit),
-            screen_mm: [f.at.x, f.at.y],
-        });
-    }
+    flights = run.leave_pending(flights);
+    run.close_slabs();
+    let paths = run.onto_screen(flights, z + stack.screen_mm);
     Trace {
         paths,
-        layers: layers_out,
+        layers: run.layers,
         exit_z_mm: z,
-        rejected,
-        reflected: tallies.iter().map(|t| t.reflected).collect(),
+        rejected: run.rejected,
+        reflected: run.tallies.iter().map(|t| t.reflected).collect(),
+    }
+}
+
+/// One trace in progress: the tracer and what it has booked so far.
+struct Run<'a> {
+    tracer: Tracer<'a>,
+    rejected: Vec<Rejected>,
+    tallies: Vec<Tally>,
+    layers: Vec<LayerTrace>,
+}
+
+impl Run<'_> {
+    /// The power the rays carry.
+    fn power(&self, flights: &[Flight]) -> f64 {
+        flights.iter().map(|f| f.carrier.power(&self.tracer.s_in)).sum()
+    }
+
+    /// Rays waiting at a slab's back face leave it into the outside medium.
+    fn leave_pending(&mut self, flights: Vec<Flight>) -> Vec<Flight> {
+        let outside = Body::Isotropic(self.tracer.stack.outside_index);
+        leave_pending(&self.tracer, flights, outside, &mut self.rejected, &mut self.tallies)
+    }
+
+    /// Ideal element `idx` at z: each ray travels to the plane z, where its Jones matrix takes
+    /// `jm`.
+    fn through_ideal(&mut self, idx: usize, z: f64, jm: JonesMatrix, flights: Vec<Flight>) -> Vec<Flight> {
+        let plane = Plane::across_z(z);
+        let mut next = Vec::with_capacity(flights.len());
+        for mut f in flights {
+            if !self.tracer.travel(&mut f, &plane) {
+                reject_here(
+                    &mut self.rejected,
+                    &f,
+                    idx,
+                    Side::Front,
+                    RejectReason::OutsideAperture,
+                    &self.tracer,
+                );
+                continue;
+            }
+            if let Carrier::Free { m, .. } = &mut f.carrier {
+                *m = jm * *m;
+            }
+            next.push(f);
+        }
+        self.tallies[idx].power_out = self.power(&next);
+        self.layers.push(LayerTrace::Ideal {
+            power_in: self.tallies[idx].power_in,
+            power_out: self.tallies[idx].power_out,
+        });
+        next
+    }
+
+    /// Slab `idx` whose axis point is at z: the rays enter it (from outside, or through the
+    /// contact `into_next` from the slab before) and cross it to its back face, where they wait
+    /// for the next element to decide their exit.
+    fn through_slab(
+        &mut self,
+        idx: usize,
+        z: f64,
+        slab: &Slab,
+        into_next: Option<Body>,
+        flights: Vec<Flight>,
+    ) -> Vec<Flight> {
+        let faces = slab.faces.unwrap_or_else(|| plain_faces(z, slab.thickness_mm));
+        let body = body_of(slab);
+        let mut inside = Vec::with_capacity(flights.len() * 2);
+        for f in flights {
+            enter(
+                &self.tracer,
+                f,
+                (idx, body, &faces, into_next),
+                &mut inside,
+                &mut self.rejected,
+                &mut self.tallies,
+            );
+        }
+        let mut waiting = Vec::with_capacity(inside.len());
+        for mut f in inside {
+            if !self.tracer.travel(&mut f, &faces.back) || faces.aperture.is_some_and(|a| !a.holds(f.at)) {
+                reject_here(
+                    &mut self.rejected,
+                    &f,
+                    idx,
+                    Side::Back,
+                    RejectReason::OutsideAperture,
+                    &self.tracer,
+                );
+                continue;
+            }
+            f.pending = Some((idx, body));
+            waiting.push(f);
+        }
+        self.layers.push(LayerTrace::Slab {
+            modes: front_modes(&self.tracer, &faces, body),
+            shifts_mm: [[0.0; 2]; 2],
+            z_front_mm: z,
+            z_back_mm: z + slab.thickness_mm,
+            power_in: self.tallies[idx].power_in,
+            power_out: 0.0,
+            faces_solved: true,
+        });
+        waiting
+    }
+
+    /// Per slab, what went on past it: its input less what its faces reflected and what it
+    /// rejected.
+    fn close_slabs(&mut self) {
+        for (idx, lt) in self.layers.iter_mut().enumerate() {
+            if let LayerTrace::Slab { power_out, .. } = lt {
+                let lost: f64 = self.rejected.iter().filter(|r| r.element == idx).map(|r| r.power).sum();
+                *power_out = self.tallies[idx].power_in - self.tallies[idx].reflected - lost;
+            }
+        }
+    }
+
+    /// The rays that left the stack, carried to the screen plane z = `screen_z` (module header:
+    /// the phase referred to the screen's axis point).
+    fn onto_screen(&mut self, flights: Vec<Flight>, screen_z: f64) -> Vec<Path> {
+        let screen = Plane::across_z(screen_z);
+        let mut paths = Vec::with_capacity(flights.len());
+        for mut f in flights {
+            let exit = f.exit;
+            // The screen may lie behind a ray that left a mounted crystal beyond the stack's last
+            // axis point: its straight continuation meets it all the same.
+            let dir = f.carrier.direction();
+            let met = screen
+                .meet_line(f.at, dir)
+                .is_some_and(|s| self.tracer.advance(&mut f, dir * s));
+            if !met {
+                let last = self.tracer.stack.layers.len().saturating_sub(1);
+                reject_here(
+                    &mut self.rejected,
+                    &f,
+                    last,
+                    Side::Back,
+                    RejectReason::OutsideAperture,
+                    &self.tracer,
+                );
+                continue;
+            }
+            let Carrier::Free { n, u, m } = f.carrier else { continue };
+            let across = self.tracer.k0 * n * (u.x * f.at.x + u.y * f.at.y);
+            let trails = self.tracer.trails.borrow();
+            paths.push(Path {
+                label: trails.label_to(f.label),
+                matrix: m * Complex64::from_polar(1.0, -across),
+                phase_rad: f.phase - across,
+                points_mm: trails.points_to(f.points),
+                direction: u,
+                exit_point_mm: arr(exit),
+                screen_mm: [f.at.x, f.at.y],
+            });
+        }
+        paths
     }
 }
 
