@@ -5,6 +5,14 @@
 //! questions (is this wave evanescent, do these two rays coincide) and are deliberately far from
 //! rounding noise. Tests use [`assert_close`] so that a failure prints both numbers.
 
+/// How far a point may lie off a plane, or behind it along a ray, and still count as on it: this
+/// fraction of the distance scale (1 mm plus the distance to the plane's point). Far above the
+/// rounding of a face point computed in a stack of tens of millimetres (~10⁻¹⁵ mm), far below any
+/// length that matters. A point on a face meets it where it is, however the ray runs: a grazing
+/// ray leaving a face into a vanishing gap toward a coinciding face is not decided by rounding
+/// (found by the independent face check, `tests/independent_faces.rs`).
+pub const ON_PLANE: f64 = 1e-12;
+
 /// Relative tolerance below which two refractive indices are treated as equal when a direction
 /// must be chosen for a degenerate mode pair (wave vector along the optic axis). Only the choice
 /// of basis depends on it; the indices and phases never do.

@@ -20,7 +20,7 @@
 
 use crate::optics::geometry::Plane;
 use crate::optics::modes::{ModeKind, wave_vector_across};
-use crate::optics::stack::{Contact, Element, Faces, Medium, Stack};
+use crate::optics::stack::{Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
 use nalgebra::Vector3;
 
@@ -119,12 +119,7 @@ pub fn chain(stack: &Stack, label: &str) -> Option<ChainEnd> {
             ray = ray.travel(&Plane::across_z(z))?;
             continue;
         };
-        let faces = slab.faces.unwrap_or(Faces {
-            front: Plane::across_z(z),
-            back: Plane::across_z(z + slab.thickness_mm),
-            aperture: None,
-            contact: Contact::Outside,
-        });
+        let faces = slab.placed_faces(z);
         let held = |r: &Ray| faces.aperture.is_none_or(|a| a.holds(r.at));
         let mode = next_mode(slab.medium, &mut letters)?;
         if pending.take().is_some() {
@@ -160,7 +155,7 @@ mod tests {
     use crate::optics::jones;
     use crate::optics::material::Indices;
     use crate::optics::planar::trace_planar;
-    use crate::optics::stack::{Aperture, InputBeam, Layer, Slab};
+    use crate::optics::stack::{Aperture, Faces, InputBeam, Layer, Slab};
     use crate::optics::uniaxial::OpticAxis;
     use crate::optics::wavelength::Wavelength;
     use crate::random::Rng;

@@ -8,6 +8,7 @@
 //! direction, about the element's axis point (CONVENTIONS.md, version 2).
 
 use crate::optics::modes::beam_basis;
+use crate::precision::ON_PLANE;
 use nalgebra::{Matrix3, Vector3};
 
 /// A plane in the lab frame, lengths in mm.
@@ -30,15 +31,15 @@ impl Plane {
 
     /// Where the line from `from` along `dir` meets the plane: the distance s along `dir`
     /// (r = from + s·dir), or `None` when the line runs parallel to the plane or meets it behind
-    /// `from` (by more than rounding, 1e-12 of the distance scale); 0 when `from` lies on the
-    /// plane to that rounding.
+    /// `from` (by more than rounding, [`ON_PLANE`] of the distance scale); 0 when `from` lies on
+    /// the plane to that rounding.
     pub fn meet(&self, from: Vector3<f64>, dir: Vector3<f64>) -> Option<f64> {
         let gap = self.normal.dot(&(self.point - from));
         let scale = 1.0 + (self.point - from).norm();
         // A point already on the plane (to rounding) meets it where it is, however the ray
         // runs: a ray leaving a face into a vanishing gap toward a coinciding face, near grazing,
         // would otherwise divide a rounding-sized gap by a tiny normal component.
-        if gap.abs() <= 1e-12 * scale {
+        if gap.abs() <= ON_PLANE * scale {
             return Some(0.0);
         }
         let along = self.normal.dot(&dir);
@@ -46,7 +47,7 @@ impl Plane {
             return None;
         }
         let s = gap / along;
-        (s >= -1e-12 * scale).then_some(s.max(0.0))
+        (s >= -ON_PLANE * scale).then_some(s.max(0.0))
     }
 
     /// Where the whole line through `from` along `dir` meets the plane, ahead or behind: the

@@ -475,7 +475,7 @@ impl Run<'_> {
         into_next: Option<Body>,
         flights: Vec<Flight>,
     ) -> Vec<Flight> {
-        let faces = slab.faces.unwrap_or_else(|| plain_faces(z, slab.thickness_mm));
+        let faces = slab.placed_faces(z);
         let body = body_of(slab);
         let mut inside = Vec::with_capacity(flights.len() * 2);
         for f in flights {
@@ -573,7 +573,7 @@ impl Run<'_> {
 /// its o- and e-ray (when each gets through), where it leaves the back face and along which
 /// direction. What a crystal reports as its separation and split angle.
 pub fn alone(stack: &Stack, slab: &Slab, z_front: f64) -> [Option<(Vector3<f64>, Vector3<f64>)>; 2] {
-    let faces = slab.faces.unwrap_or_else(|| plain_faces(z_front, slab.thickness_mm));
+    let faces = slab.placed_faces(z_front);
     let single = Stack {
         layers: vec![crate::optics::stack::Layer {
             gap_mm: z_front,
@@ -596,16 +596,6 @@ pub fn alone(stack: &Stack, slab: &Slab, z_front: f64) -> [Option<(Vector3<f64>,
             .find(|p| p.label == label)
             .map(|p| (Vector3::from(p.exit_point_mm), p.direction))
     })
-}
-
-/// The faces of a version-1 plate whose front face lies at z.
-fn plain_faces(z: f64, thickness_mm: f64) -> Faces {
-    Faces {
-        front: Plane::across_z(z),
-        back: Plane::across_z(z + thickness_mm),
-        aperture: None,
-        contact: Contact::Outside,
-    }
 }
 
 fn body_of(slab: &Slab) -> Body {
@@ -822,7 +812,7 @@ mod tests {
         for layer in &mut out.layers {
             z += layer.gap_mm;
             if let Element::Slab(s) = &mut layer.element {
-                s.faces = Some(plain_faces(z, s.thickness_mm));
+                s.faces = Some(s.placed_faces(z));
                 z += s.thickness_mm;
             }
         }

@@ -91,6 +91,19 @@ pub struct Slab {
     pub faces: Option<Faces>,
 }
 
+impl Slab {
+    /// Its faces as placed: its own when it has them, otherwise version 1's plate whose front
+    /// face is the plane z = `z_front` (both faces across z, no aperture, outside medium around).
+    pub fn placed_faces(&self, z_front: f64) -> Faces {
+        self.faces.unwrap_or(Faces {
+            front: Plane::across_z(z_front),
+            back: Plane::across_z(z_front + self.thickness_mm),
+            aperture: None,
+            contact: Contact::Outside,
+        })
+    }
+}
+
 /// One element of the stack.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Element {

@@ -16,6 +16,7 @@ use crate::optics::geometry::direction;
 use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
 use crate::optics::trace::trace;
+use crate::optics::uniaxial::angle_between;
 
 /// What each sample computes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -46,7 +47,7 @@ pub fn run(stack: &Stack, n: usize, work: Workload) -> f64 {
                 })
                 .sum(),
             Workload::Split => match (chain(&lit, "oe"), chain(&lit, "eo")) {
-                (Some(a), Some(b)) => a.direction.angle(&b.direction).to_degrees(),
+                (Some(a), Some(b)) => angle_between(&a.direction, &b.direction).to_degrees(),
                 _ => 0.0,
             },
         };
