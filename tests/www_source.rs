@@ -265,6 +265,7 @@ fn the_page_sources_turn_no_data_into_markup_or_code() {
         "results.js",
         "views.js",
         "design-panel.js",
+        "design-results.js",
         "export.js",
         "index.html",
         "embed.js",

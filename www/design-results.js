@@ -1,0 +1,470 @@
+// Doublespar design results: what the design panel shows of a solved design, kind by kind: the
+// number formats with their units, the result cards (label, request path, format), the headline
+// sentence of each kind, its Monte Carlo summary and its warnings and shop notes. Pure functions
+// of the design object and the page state; design-panel.js builds the fields, runs the worker and
+// places what these return.
+
+import { h } from './dom.js';
+import { fixed, fmt, minus, significant } from './format.js';
+import { Field } from './field-error.js';
+import { materialName } from './state.js';
+
+/** A non-breaking space, between a number and its unit. */
+const NBSP = '\u00a0';
+
+// --- number formats for the design's results ------------------------------------------------
+
+/** A plain number with at most `digits` decimals and no trailing zeros. */
+export function trimmed(v, digits) {
+  let s = v.toFixed(digits);
+  if (s.includes('.')) s = s.replace(/0+$/, '').replace(/\.$/, '');
+  if (/^-0$/.test(s)) s = '0';
+  return minus(s);
+}
+
+const formats = {
+  text: (v) => String(v),
+  yes: (v) => (v ? 'yes' : 'no'),
+  index: (v) => fixed(v, 6),
+  deg: (v) => `${fixed(v, 4, 5e-13)}°`,
+  /** An angle to at most 4 decimals without trailing zeros ("≥ 10°" for a bound, not "10.0000°"). */
+  angle: (v) => `${trimmed(v, 4)}°`,
+  nm: (v) => `${trimmed(v, 3)}${NBSP}nm`,
+  length: (v) => {
+    const a = Math.abs(v);
+    if (a >= 1) return `${fixed(v, 4)}${NBSP}mm`;
+    if (a < 1e-12) return `0${NBSP}mm`;
+    const mm = `${significant(v, 5)}${NBSP}mm`;
+    return a < 0.1 ? `${mm} (${significant(v * 1000, 5)}${NBSP}µm)` : mm;
+  },
+  waves: (v) => `${fixed(v, 5, 5e-13)}${NBSP}waves`,
+  rad: (v) => `${fixed(v, 4, 5e-13)}${NBSP}rad`,
+  count: (v) => String(v),
+  power: (v) => fmt.power(v),
+  fraction: (v) => fixed(v, 8),
+  /** Significant digits with a unit; "no limit" for the solver's "never" (f64::MAX). */
+  sig: (unit, n = 4) => (v) => {
+    if (Math.abs(v) >= 1e300) return 'no limit (zero sensitivity)';
+    const sep = unit === '°' || unit === '' ? '' : NBSP;
+    return `${significant(v, n)}${sep}${unit}`;
+  },
+};
+
+/** The value at a dotted path ("band.min_mm", "plates.0.thickness_mm") of a design. */
+function valueAt(d, path) {
+  let v = d;
+  for (const k of path.split('.')) {
+    if (v === null || v === undefined || typeof v !== 'object') return undefined;
+    v = Array.isArray(v) ? v[Number(k)] : v[k];
+  }
+  return v;
+}
+
+/**
+ * The bound flag of the result at `path`: its sibling `<name>_bound` (the name without its unit
+ * suffix, so `acceptance_deg` -> `acceptance_bound`; DEVELOPERS.md, "Bounds"), or undefined.
+ */
+function boundOf(d, path) {
+  const i = path.lastIndexOf('.');
+  const name = path.slice(i + 1).replace(/_(deg|mm|nm|waves|rad)$/, '');
+  const b = valueAt(d, `${path.slice(0, i + 1)}${name}_bound`);
+  return typeof b === 'string' ? b : undefined;
+}
+
+/**
+ * A result as text: data-quantity = design.<path>, data-value = String(value). A value that is
+ * only a lower bound reads "≥ 10°" and carries data-bound (the flag, `at_least` or `found`).
+ */
+function dq(d, path, format, tag = 'span', attrs = {}) {
+  const v = valueAt(d, path);
+  if (v === undefined) return null;
+  const bound = boundOf(d, path);
+  const text = v === null ? '—' : `${bound === 'at_least' ? `≥${NBSP}` : ''}${format(v)}`;
+  return h(tag, { ...attrs, 'data-quantity': `design.${path}`, 'data-value': String(v), 'data-bound': bound, text });
+}
+
+/** A card of labelled results of design `d`. rows: [label, path, format] or [label, element] or null. */
+function resultCard(d, title, rows, { note, className } = {}) {
+  const dl = h('dl', { className: 'quantities' });
+  for (const r of rows) {
+    if (!r) continue;
+    const [label, a, format] = r;
+    const dd = typeof a === 'string' ? dq(d, a, format, 'dd') : h('dd', {}, a);
+    if (!dd) continue;
+    dl.appendChild(h('div', { className: 'q' }, h('dt', { text: label }), dd));
+  }
+  return h(
+    'article',
+    { className: `result-card${className ? ` ${className}` : ''}` },
+    h('h4', { text: title }),
+    dl,
+    note ? h('p', { className: 'hint card-note' }, ...[].concat(note)) : null,
+  );
+}
+
+/** "A calcite", "An alpha barium borate": a name with its indefinite article (by its first letter). */
+function article(name, capital = true) {
+  const a = /^[aeiou]/i.test(name) ? 'an' : 'a';
+  return `${capital ? a.toUpperCase().slice(0, 1) + a.slice(1) : a} ${name}`;
+}
+
+function designMaterialName(state, key) {
+  return key === 'custom' ? 'custom-index' : materialName(state, key);
+}
+
+// --- warnings and shop notes ----------------------------------------------------------------
+
+/**
+ * A warning or shop note of the design in the panel's words: the request field that begins a
+ * warning (`band_nm[1]: `, `band_nm (default): `; DEVELOPERS.md, "Design requests") becomes the
+ * label of that field ("Band to: …"). Returns {field, text}.
+ */
+function adviceText(state, raw) {
+  const text = String(raw);
+  const m = /^([A-Za-z_][\w.[\]]*)( \(default\))?: ([\s\S]*)$/.exec(text);
+  if (!m) return { field: '', text: text.charAt(0).toUpperCase() + text.slice(1) };
+  return { field: m[1], text: `${state.design.errors.label(m[1])}${m[2] ?? ''}: ${m[3]}` };
+}
+
+/** The design's warnings and shop notes in readable words: {warnings: [text], notes: [text]}. */
+export function adviceOf(state, d) {
+  const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(state, t)) : []);
+  return { warnings: words(d.warnings), notes: words(d.notes) };
+}
+
+/** The warnings and shop notes as visible lists (role=status), or null when there are none. */
+export function adviceLists(advice) {
+  const box = (key, title, items, className) => (items.length
+    ? h('div', { className, 'data-design-advice': key },
+      h('h4', { text: title }),
+      h('ul', {}, ...items.map((a) => h('li', { 'data-field': a.field, text: a.text }))))
+    : null);
+  const warnings = box('warnings', 'Warnings', advice.warnings, 'warnings has-warnings design-warnings');
+  const notes = box('notes', 'Shop notes (guidance)', advice.notes, 'warnings design-notes');
+  return warnings || notes ? h('div', { className: 'design-advice', role: 'status' }, warnings, notes) : null;
+}
+
+// --- results by kind -------------------------------------------------------------------------
+
+export function displacerResults(state, d, run) {
+  const s = d;
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `${article(designMaterialName(state, s.material))} plate `,
+    dq(d, 'length_mm', formats.length, 'strong'),
+    ' long, cut at ',
+    dq(d, 'cut_tilt_deg', formats.deg, 'strong'),
+    ' (optic axis from the face normal), with a clear aperture of at least ',
+    dq(d, 'clear_aperture_mm', formats.length, 'strong'),
+    '.',
+  );
+  const cards = [
+    resultCard(d, 'What to order', [
+      ['material', 'material', (v) => designMaterialName(state, v)],
+      ['length', 'length_mm', formats.length],
+      ['cut tilt', 'cut_tilt_deg', formats.deg],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+    ], { note: dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' }), className: 'design-main' }),
+    resultCard(d, 'Beams at the exit', [
+      ['o/e separation', 'separation_mm', formats.length],
+      ['e-ray displaced toward (axis at 0°)', 'displacement_direction', formats.text],
+      ['e walk-off', 'walkoff_deg', formats.deg],
+      ['crosstalk (overlap)', 'crosstalk', formats.sig('', 3)],
+      ['separation / beam diameter', 'clearance_ratio', formats.sig('', 4)],
+      ['clipped per beam', 'clipping_per_beam', formats.sig('', 3)],
+      ['o–e exit phase', 'exit_phase_rad', formats.rad],
+      ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', formats.rad],
+    ]),
+    resultCard(d, 'Crystal', [
+      ['wavelength', 'wavelength_nm', formats.nm],
+      ['nₒ', 'no', formats.index],
+      ['nₑ', 'ne', formats.index],
+      ['cut of largest walk-off', 'max_walkoff_cut_deg', formats.deg],
+      ['dρ/dθ at the cut', 'walkoff_slope', formats.sig('°/°', 3)],
+    ]),
+    resultCard(d, 'Over the band', [
+      ['smallest separation', 'band.min_mm', formats.length],
+      ['… at', 'band.min_at_nm', formats.nm],
+      ['largest separation', 'band.max_mm', formats.length],
+      ['… at', 'band.max_at_nm', formats.nm],
+    ], { note: d.band.curve.length < 2 ? 'No band was given: the design wavelength alone.' : null }),
+    resultCard(d, 'Sensitivity of the separation', [
+      ['to cut tilt', 'sensitivities.tilt_mm_per_deg', formats.sig('mm/°', 4)],
+      ['to incidence', 'sensitivities.incidence_mm_per_deg', formats.sig('mm/°', 4)],
+      ['to length', 'sensitivities.thickness_mm_per_mm', formats.sig('mm/mm', 4)],
+      ['to wavelength', 'sensitivities.wavelength_mm_per_nm', formats.sig('mm/nm', 4)],
+      ['linearized spread (1σ)', 'sensitivities.linear_std_mm', formats.sig('mm', 4)],
+    ], {
+      note: ['For σ = ', dq(d, 'tolerances.tilt_deg', formats.sig('°', 3)), ' cut, ', dq(d, 'tolerances.incidence_deg', formats.sig('°', 3)),
+        ' incidence, ', dq(d, 'tolerances.thickness_mm', formats.sig('mm', 3)), ' length, ', dq(d, 'tolerances.wavelength_nm', formats.sig('nm', 3)), ' wavelength.'],
+    }),
+    monteCarloCard(d, run, 'separation', formats.length, 'mm'),
+  ];
+  return [headline, ...cards];
+}
+
+/**
+ * The Monte Carlo summary of `what` (the displacer's `monte_carlo`; the splitter's
+ * `split_angle_spread`, or `monte_carlo` where a run in chunks gives it that name), or the state
+ * of the run while there is none.
+ */
+function monteCarloCard(d, run, what, format, unit) {
+  const key = mcKey(d);
+  const title = `Monte Carlo: ${what}`;
+  if (d[key]) {
+    return resultCard(d, title, [
+      ['samples', `${key}.n`, formats.count],
+      ['mean', `${key}.mean`, format],
+      ['standard deviation', `${key}.std`, formats.sig(unit, 4)],
+      ['5th percentile', `${key}.p5`, format],
+      ['95th percentile', `${key}.p95`, format],
+      ['smallest', `${key}.min`, format],
+      ['largest', `${key}.max`, format],
+    ], { className: 'design-mc' });
+  }
+  let text = 'Not run (0 samples).';
+  if (run && run.cancelled) text = `Cancelled after ${run.done} of ${run.total} samples.`;
+  else if (run) text = 'Running…';
+  return h('article', { className: 'result-card design-mc' }, h('h4', { text: title }), h('p', { className: 'muted', id: 'design-mc-state', text }));
+}
+
+/** Where a design holds its Monte Carlo summary. */
+export function mcKey(d) {
+  return d.kind === 'angular-splitter' && !d.monte_carlo ? 'split_angle_spread' : 'monte_carlo';
+}
+
+export function waveplateResults(state, d) {
+  const plates = d.plates;
+  const mat = designMaterialName(state, plates[0].material);
+  const headline = h('p', { className: 'design-headline' });
+  if (plates.length === 1) {
+    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' thick, optic axis in the face',
+      d.order === 'multiple' ? `, order ${d.order_number}` : ', zero order', '.');
+  } else {
+    headline.append(`Two ${mat} plates, `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' and ',
+      dq(d, 'plates.1.thickness_mm', formats.length, 'strong'), ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
+  }
+  const plateRows = [];
+  plates.forEach((p, i) => {
+    const n = plates.length > 1 ? ` ${i + 1}` : '';
+    plateRows.push([`plate${n}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
+    plateRows.push([`plate${n}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    plateRows.push([`plate${n}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
+  });
+  const worst = worstPlane(d);
+  return [
+    headline,
+    resultCard(d, 'What to order', [
+      ...plateRows,
+      ['net retarding thickness', 'effective_thickness_mm', formats.length],
+      ['order', 'order', formats.text],
+      ['order number', 'order_number', formats.count],
+    ], { className: 'design-main', note: 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
+    resultCard(d, 'Retardance', [
+      ['at the design wavelength', 'retardance_waves', formats.waves],
+      ['fast axis', 'fast_axis', formats.text],
+      ['nₒ', 'no', formats.index],
+      ['nₑ', 'ne', formats.index],
+      ['nₑ − nₒ', 'birefringence', formats.sig('', 6)],
+    ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
+    resultCard(d, 'Angle of incidence', [
+      ['acceptance (worst plane)', 'acceptance_deg', formats.angle],
+      ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, formats.angle]),
+    ], {
+      note: `Largest incidence up to which the retardance stays within the acceptance error of its value at normal incidence; the worst plane is at ${trimmed(worst.plane_azimuth_deg, 2)}° to the optic axis. “≥” marks a bound: the retardance had not left by the largest incidence computed.`,
+    }),
+  ];
+}
+
+export function worstPlane(d) {
+  return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
+}
+
+export function achromatResults(state, d) {
+  const p = d.plates;
+  const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `${article(designMaterialName(state, p[0].material))} plate `,
+    dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
+    ` thick, ${axis(p[0])}, and ${article(designMaterialName(state, p[1].material), false)} plate `,
+    dq(d, 'plates.1.thickness_mm', formats.length, 'strong'),
+    ` thick, ${axis(p[1])}; optic axes in the faces.`,
+  );
+  const rows = [];
+  p.forEach((q, i) => {
+    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
+    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
+  });
+  return [
+    headline,
+    resultCard(d, 'What to order', rows, { className: 'design-main' }),
+    resultCard(d, 'Retardance', [
+      ['first design wavelength', 'at_design_wavelengths.0.0', formats.nm],
+      ['… retardance there', 'at_design_wavelengths.0.1', formats.waves],
+      ['second design wavelength', 'at_design_wavelengths.1.0', formats.nm],
+      ['… retardance there', 'at_design_wavelengths.1.1', formats.waves],
+      ['largest error over the band', 'max_error_waves', formats.waves],
+    ]),
+  ];
+}
+
+export function recombinerResults(state, d) {
+  const overlapOk = d.overlap >= state.design.limits.recombiner_min_overlap;
+  const phaseOk = Math.abs(d.phase_difference_rad) <= state.design.limits.recombiner_max_phase_rad;
+  const works = d.recombined && overlapOk && phaseOk;
+  const why = [];
+  if (!d.recombined) why.push('the two paths leave as separate spots');
+  if (!overlapOk) why.push('the beams overlap by less than 0.99');
+  if (!phaseOk) why.push('their phase differs by more than π/10');
+  const headline = h(
+    'p',
+    { className: `design-headline ${works ? 'verdict-good' : 'verdict-bad'}` },
+    works ? 'The pair recombines: one spot, overlap at least 0.99 and phase within π/10.' : `The pair does not recombine well: ${why.join(', ')}.`,
+  );
+  const unreachable = (path) => Math.abs(valueAt(d, path)) > 90;
+  const notes = [];
+  if (unreachable('tilt_mismatch_to_break_deg.0') || unreachable('tilt_mismatch_to_break_deg.1')) {
+    notes.push('A cut mismatch above 90° is a linear extrapolation beyond any real cut: at the cut of largest walk-off the residual grows only to second order in the mismatch, which the linear estimate does not see.');
+  }
+  return [
+    headline,
+    resultCard(d, 'Recombination', [
+      ['one spot', 'recombined', formats.yes],
+      ['overlap of the beams', 'overlap', formats.fraction],
+      ['phase difference', 'phase_difference_rad', formats.rad],
+      ['power in the spot', 'recombined_power', formats.power],
+      ['power elsewhere', 'stray_power', formats.power],
+    ], { className: 'design-main', note: 'It breaks when the overlap drops below 0.99 or the phase moves by more than π/10.' }),
+    resultCard(d, 'Residual separation', [
+      ['length', 'residual_separation_mm', formats.length],
+      ['x', 'residual_vector_mm.0', formats.length],
+      ['y', 'residual_vector_mm.1', formats.length],
+    ]),
+    resultCard(d, 'Sensitivity to a mismatch', [
+      ['residual per length', 'length_sensitivity.0', formats.sig('mm/mm', 4)],
+      ['phase per length', 'length_sensitivity.1', formats.sig('rad/mm', 4)],
+      ['residual per cut', 'tilt_sensitivity.0', formats.sig('mm/°', 4)],
+      ['phase per cut', 'tilt_sensitivity.1', formats.sig('rad/°', 4)],
+    ]),
+    resultCard(d, 'Mismatch that breaks it', [
+      ['length, for the overlap', 'length_mismatch_to_break_mm.0', formats.sig('mm', 4)],
+      ['length, for the phase', 'length_mismatch_to_break_mm.1', formats.sig('mm', 4)],
+      ['cut, for the overlap', 'tilt_mismatch_to_break_deg.0', formats.sig('°', 4)],
+      ['cut, for the phase', 'tilt_mismatch_to_break_deg.1', formats.sig('°', 4)],
+    ], { note: notes.length ? notes : 'Linear estimates from the sensitivities.' }),
+  ];
+}
+
+/** Index of the smallest (sign -1: largest) entry of a list. */
+function extremeAt(list, sign = 1) {
+  return list.reduce((best, v, i) => (sign * v < sign * list[best] ? i : best), 0);
+}
+
+/** The part's material as the design names it (its scenario's first element). */
+function partMaterial(state, d) {
+  return designMaterialName(state, d.scenario?.elements?.[0]?.material ?? 'custom');
+}
+
+export function splitterResults(state, d, run) {
+  const b = d.band;
+  const [lo, hi] = [extremeAt(b.split_angle_deg), extremeAt(b.split_angle_deg, -1)];
+  const last = b.wavelength_nm.length - 1;
+  const t = d.tolerances;
+  return [
+    h('p', { className: 'design-headline' },
+      `Two ${partMaterial(state, d)} wedges with crossed optic axes, ${d.contact === 'cement' ? 'cemented' : 'optically contacted'}, each with a wedge angle of `,
+      dq(d, 'wedge_angle_deg', formats.deg, 'strong'), ': the two beams leave ', dq(d, 'split_angle_deg', formats.deg, 'strong'), ' apart.'),
+    resultCard(d, 'What to order', [
+      ['wedge angle', 'wedge_angle_deg', formats.deg],
+      ['wedge 1, on its axis', 'thickness_mm.0', formats.length],
+      ['wedge 2, on its axis', 'thickness_mm.1', formats.length],
+      ['thin edge', 'edge_thickness_mm', formats.length],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+      ['joined by', 'contact', (v) => (v === 'cement' ? 'cement' : 'optical contact')],
+    ], { className: 'design-main', note: 'Optic axes in the faces, along x in the first wedge and along y in the second.' }),
+    resultCard(d, 'Beams', [
+      ['split angle', 'split_angle_deg', formats.deg],
+      ['wedge by the small-angle rule', 'small_angle_wedge_deg', formats.deg],
+      ...d.beams.flatMap((beam, i) => [
+        [`beam ${beam.label} (along ${beam.polarization}): deviation`, `beams.${i}.deviation_deg`, formats.deg],
+        [`beam ${beam.label}: power`, `beams.${i}.power`, formats.power],
+      ]),
+    ], { note: 'Deviations toward +x; the small-angle rule is 2·arcsin((nₑ − nₒ)·tan α).' }),
+    resultCard(d, 'Over the band', [
+      ['from', 'band.wavelength_nm.0', formats.nm],
+      ['to', `band.wavelength_nm.${last}`, formats.nm],
+      ['smallest split', `band.split_angle_deg.${lo}`, formats.deg],
+      ['… at', `band.wavelength_nm.${lo}`, formats.nm],
+      ['largest split', `band.split_angle_deg.${hi}`, formats.deg],
+      ['… at', `band.wavelength_nm.${hi}`, formats.nm],
+    ]),
+    resultCard(d, 'Tolerances (one standard deviation)', [
+      ['wedge angle', 'tolerances.wedge_deg', formats.sig('°', 3)],
+      ['optic axis about the beam', 'tolerances.axis_deg', formats.sig('°', 3)],
+      ['incidence', 'tolerances.incidence_deg', formats.sig('°', 3)],
+    ], { note: t.axis_deg > 0 ? 'The axis error is drawn for each wedge on its own.' : null }),
+    monteCarloCard(d, run, 'split angle', formats.deg, '°'),
+  ];
+}
+
+export function polarizerResults(state, d, run, request) {
+  const gap = typeof request.cement_index === 'number' ? 'a thin cement layer' : 'a thin air gap';
+  const edge = (side) => [
+    [`${side} edge, traced`, `${side}_edge.incidence_deg`, formats.deg],
+    ['… from the critical angle', `${side}_edge.closed_form_deg`, formats.deg],
+    ['… just inside: passed', `${side}_edge.inside.passed`, formats.power],
+    ['… just inside: leaked', `${side}_edge.inside.leaked`, formats.power],
+    ['… just inside: extinction', `${side}_edge.inside.extinction`, formats.sig('', 3)],
+    ['… just outside: extinction', `${side}_edge.outside.extinction`, formats.sig('', 3)],
+  ];
+  return [
+    h('p', { className: 'design-headline' },
+      `Two ${partMaterial(state, d)} prisms across ${gap}, prism angle `, dq(d, 'prism_angle_deg', formats.deg, 'strong'),
+      `: the ${d.passed_mode}-ray passes from `, dq(d, 'half_field_deg.0', formats.deg, 'strong'), ' below to ',
+      dq(d, 'half_field_deg.1', formats.deg, 'strong'), ` above the normal; the ${d.reflected_mode}-ray is reflected at the gap.`),
+    resultCard(d, 'What to order', [
+      ['prism angle', 'prism_angle_deg', formats.deg],
+      ['prism 1, on its axis', 'thickness_mm.0', formats.length],
+      ['prism 2, on its axis', 'thickness_mm.1', formats.length],
+      ['thin edge', 'edge_thickness_mm', formats.length],
+      ['clear aperture', 'clear_aperture_mm', formats.length],
+      ['index of the gap', 'gap_index', formats.sig('', 6)],
+    ], { className: 'design-main', note: 'The gap is tilted by the prism angle from the entrance face; optic axes in the faces along y.' }),
+    resultCard(d, 'Field of view', [
+      ['half-angle below the normal', 'half_field_deg.0', formats.deg],
+      ['half-angle above the normal', 'half_field_deg.1', formats.deg],
+      [`critical angle at the gap, ${d.reflected_mode}-ray`, 'critical_angles_deg.0', formats.deg],
+      [`critical angle at the gap, ${d.passed_mode}-ray`, 'critical_angles_deg.1', formats.deg],
+      ['at normal incidence: passed', 'normal.passed', formats.power],
+      ['at normal incidence: extinction', 'normal.extinction', formats.sig('', 3)],
+    ], { note: 'Incidence in the plane of the gap tilt.' }),
+    resultCard(d, 'Transmission at the edges', [...edge('lower'), ...edge('upper')], {
+      note: 'Uncoated faces, light polarized along each mode; extinction = leaked ÷ passed, “—” where nothing passes.',
+    }),
+  ];
+}
+
+export function tiltResults(state, d) {
+  return [
+    h('p', { className: 'design-headline' },
+      `Tilt the ${partMaterial(state, d)} plate, `, dq(d, 'thickness_mm', formats.length, 'strong'), ' thick, by ',
+      dq(d, 'tilt_deg', formats.deg, 'strong'), ' in its mount: its retardance goes from ',
+      dq(d, 'normal_retardance_waves', formats.waves, 'strong'), ' untilted to ', dq(d, 'retardance_waves', formats.waves, 'strong'), '.'),
+    resultCard(d, 'What to order and set', [
+      ['plate thickness', 'thickness_mm', formats.length],
+      ['optic axis azimuth (in the faces)', 'scenario.elements.0.axis.azimuth_deg', formats.deg],
+      ['mount tilt', 'tilt_deg', formats.deg],
+      ['plane of the tilt', 'scenario.elements.0.mount.azimuth_deg', formats.deg],
+    ], { className: 'design-main', note: 'Azimuths from x toward y.' }),
+    resultCard(d, 'Retardance', [
+      ['at the tilt', 'retardance_waves', formats.waves],
+      ['whole waves beyond the target', 'order', formats.count],
+      ['untilted', 'normal_retardance_waves', formats.waves],
+      ['per degree of tilt', 'sensitivity_waves_per_deg', formats.sig('waves/°', 4)],
+    ]),
+  ];
+}
