@@ -2,6 +2,7 @@
 //! radians (lengths in millimetres where a stack is laid out). Knows no JSON, no catalogue
 //! document and no view; every layer above builds on it.
 
+pub mod anisotropic;
 pub mod beam_overlap;
 pub mod chain;
 pub mod geometry;
