@@ -4,6 +4,7 @@
 
 pub mod fields;
 pub mod geometry;
+pub mod group;
 pub mod request;
 pub mod resolve;
 pub mod result;

@@ -12,6 +12,7 @@
 //! [`trace_scenario`] is the whole way through: resolve the document into a stack, trace it,
 //! report it.
 
+use crate::contract::group::{Group, groups};
 use crate::contract::resolve::Warning;
 use crate::contract::scenario::{ElementKind, Scenario};
 use crate::error::Error;
@@ -111,6 +112,9 @@ pub struct ModeReport {
     pub e_polarization: Option<[f64; 3]>,
     /// Lateral shift [dx, dy] of this mode's ray across the plate, mm.
     pub lateral_shift_mm: Option<[f64; 2]>,
+    /// Group index along the face normal, g = ξ − λ dξ/dλ at fixed tangential wave vector
+    /// (n − λ dn/dλ at normal incidence; [`crate::contract::group`]); null if evanescent.
+    pub group_index: Option<f64>,
 }
 
 /// What one element did.
@@ -144,6 +148,9 @@ pub enum ElementReport {
         separation_vector_mm: Option<[f64; 2]>,
         /// k0 (q_z,e − q_z,o) L, radians: positive when the e-mode is slower.
         retardance_rad: Option<f64>,
+        /// Group delay of the second mode's pulse after the first's across the plate (e after o),
+        /// picoseconds; null for a wedge or when a mode is evanescent.
+        group_delay_ps: Option<f64>,
         /// The same in waves.
         retardance_waves: Option<f64>,
         /// Angle between the o- and e-ray directions after the crystal alone in the outside
@@ -324,6 +331,7 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
             d_polarization: None,
             e_polarization: None,
             lateral_shift_mm: None,
+            group_index: None,
         };
     }
     let k = mode.wave_vector();
@@ -350,6 +358,7 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
         d_polarization: unit(mode.d.map(|z| z.re)),
         e_polarization: unit(mode.e.map(|z| z.re)),
         lateral_shift_mm: Some([thickness_mm * s.x / s.z, thickness_mm * s.y / s.z]),
+        group_index: None,
     }
 }
 
@@ -407,6 +416,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
     let (j_in, s_in) = (stack.input.jones, stack.input.stokes);
     let mut notes: Vec<String> = Vec::new();
     let mut reports = Vec::with_capacity(traced.layers.len());
+    let groups = groups(sc, stack);
     let parts = sc.elements.iter().zip(&stack.layers).zip(&traced.layers);
     for (idx, ((el, layer), lt)) in parts.enumerate() {
         notes.extend(warnings.iter().filter(|w| w.element == idx).map(|w| w.text.clone()));
@@ -463,6 +473,14 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     }
                 };
                 let max_cut = max_walkoff_cut(indices);
+                let group = groups[idx].unwrap_or(Group {
+                    indices: [None, None],
+                    delay_ps: None,
+                });
+                let with_group = |mut r: ModeReport, g: Option<f64>| {
+                    r.group_index = g.filter(|_| r.status == ModeStatus::Propagating);
+                    r
+                };
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
                     no: indices.no,
@@ -470,12 +488,13 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     thickness_mm: l,
                     z_front_mm: *z_front_mm,
                     z_back_mm: *z_back_mm,
-                    o: mode_report(&modes[0], &axis, l),
-                    e: mode_report(&modes[1], &axis, l),
+                    o: with_group(mode_report(&modes[0], &axis, l), group.indices[0]),
+                    e: with_group(mode_report(&modes[1], &axis, l), group.indices[1]),
                     separation_mm: both.then(|| sep_vec[0].hypot(sep_vec[1])),
                     separation_vector_mm: both.then_some(sep_vec),
                     retardance_rad: retardance.filter(|_| both),
                     retardance_waves: retardance.filter(|_| both).map(|g| g / TAU),
+                    group_delay_ps: group.delay_ps.filter(|_| both),
                     split_angle_deg,
                     max_walkoff_cut_deg: max_cut.0.to_degrees(),
                     max_walkoff_deg: max_cut.1.abs().to_degrees(),
