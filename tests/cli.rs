@@ -193,11 +193,30 @@ fn materials_list_every_key_with_a_citation() {
     assert_eq!(out.status.code(), Some(0));
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
     let list = v["materials"].as_array().unwrap();
-    assert_eq!(list.len(), doublespar::materials().len());
+    assert_eq!(
+        list.len(),
+        doublespar::materials().len() + doublespar::biaxial_materials().len()
+    );
     for m in list {
         assert!(m["citation"].as_str().is_some_and(|c| c.len() > 20), "{m}");
-        assert!(m["no"].as_f64().is_some() && m["ne"].as_f64().is_some(), "{m}");
+        let indices: &[&str] = if m["kind"] == "biaxial" {
+            &["nx", "ny", "nz"]
+        } else {
+            &["no", "ne"]
+        };
+        assert!(indices.iter().all(|k| m[k].as_f64().is_some()), "{m}");
     }
+    // Biaxial crystals are listed with their kind and n_x < n_y < n_z (CONVENTIONS.md, "More
+    // media").
+    let ktp = list.iter().find(|m| m["key"] == "ktp").expect("ktp listed");
+    assert_eq!(ktp["kind"], "biaxial");
+    let (x, y, z) = (
+        ktp["nx"].as_f64().unwrap(),
+        ktp["ny"].as_f64().unwrap(),
+        ktp["nz"].as_f64().unwrap(),
+    );
+    assert!(x < y && y < z, "{ktp}");
+    assert!(list.iter().filter(|m| m["kind"] == "uniaxial").count() == doublespar::materials().len());
     assert_eq!(
         bin().args(["materials", "--at", "-3"]).output().unwrap().status.code(),
         Some(2)

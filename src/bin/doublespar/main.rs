@@ -186,21 +186,43 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
         }
         rows.push(row);
     }
+    for m in doublespar::biaxial_materials() {
+        let mut row = doublespar::describe_biaxial(m);
+        if let Some(w) = at {
+            match m.principal(w) {
+                Ok(p) => {
+                    for (name, n) in ["nx", "ny", "nz"].into_iter().zip(p.principal) {
+                        row[name] = json!(n);
+                    }
+                    row["warnings"] = json!(p.warnings);
+                }
+                Err(e) => {
+                    for name in ["nx", "ny", "nz"] {
+                        row[name] = Value::Null;
+                    }
+                    row["error"] = e.to_json();
+                }
+            }
+        }
+        rows.push(row);
+    }
     if as_json {
         return Ok(output::out(&format!("{}\n", json!({ "materials": rows }))));
     }
     let mut text = String::new();
     for r in &rows {
-        let idx = match (r.get("no").and_then(Value::as_f64), r.get("ne").and_then(Value::as_f64)) {
+        let n = |k: &str| r.get(k).and_then(Value::as_f64);
+        let idx = match (n("no"), n("ne"), n("nx"), n("ny"), n("nz")) {
             _ if r.get("error").is_some() => "  n/a: formula breaks down".to_string(),
-            (Some(no), Some(ne)) => format!("  n_o {no:.6}  n_e {ne:.6}"),
+            (Some(no), Some(ne), ..) => format!("  n_o {no:.6}  n_e {ne:.6}"),
+            (_, _, Some(x), Some(y), Some(z)) => format!("  n_x {x:.6}  n_y {y:.6}  n_z {z:.6}"),
             _ => String::new(),
         };
         text.push_str(&format!(
-            "{:<10} {:<38} {} {}–{} nm{}\n           {}\n",
+            "{:<10} {:<38} {:<8} {}–{} nm{}\n           {}\n",
             r["key"].as_str().unwrap_or(""),
             r["name"].as_str().unwrap_or(""),
-            r["sign"].as_str().unwrap_or(""),
+            r["sign"].as_str().or(r["kind"].as_str()).unwrap_or(""),
             r["range_nm"][0],
             r["range_nm"][1],
             idx,
