@@ -1,21 +1,23 @@
-//! The crystal catalogue: published dispersion formulas for uniaxial and biaxial crystals and
-//! their group indices.
+//! The crystal catalogue: published dispersion formulas for uniaxial and biaxial crystals, their
+//! group indices, and the optical activity of crystalline quartz.
 //!
 //! One concept per file: [`dispersion`] holds the formula forms, their analytic derivative and the
 //! group index; [`uniaxial`] the uniaxial catalogue (n_o, n_e); [`biaxial`] the biaxial catalogue
-//! (n_x < n_y < n_z on the formula's dielectric axes). This file holds what they share:
-//! evaluating a crystal's principal formulas at a wavelength with its range warning and breakdown
-//! error, and the list of every key.
+//! (n_x < n_y < n_z on the formula's dielectric axes); [`activity`] quartz's rotatory power and
+//! gyration. This file holds what they share: evaluating a crystal's principal formulas at a
+//! wavelength with its range warning and breakdown error, and the list of every key.
 //!
 //! Conventions: a [`Wavelength`] is the vacuum wavelength, handed to each formula in micrometres
 //! (see [`uniaxial`] on air and vacuum). Outside its published range a formula is evaluated with a
 //! warning naming the material, the wavelength and the range; where it breaks down the wavelength
 //! is refused (field `wavelength_nm`) with the reason.
 
+pub mod activity;
 pub mod biaxial;
 pub mod dispersion;
 pub mod uniaxial;
 
+pub use activity::{Activity, OpticalActivity, optical_activity};
 pub use biaxial::{BiaxialMaterial, Principal, biaxial_catalogue, biaxial_keys, describe_biaxial, find_biaxial};
 pub use dispersion::{Dispersion, Quantity};
 pub use uniaxial::{Evaluated, Indices, Material, OpticalSign, catalogue, describe, find, keys};
