@@ -205,6 +205,14 @@ fn materials_list_every_key_with_a_citation() {
             &["no", "ne"]
         };
         assert!(indices.iter().all(|k| m[k].as_f64().is_some()), "{m}");
+        // Group indices n - λ dn/dλ in the same order; at 1064 nm every catalogue crystal is in
+        // normal dispersion (dn/dλ < 0, a fact of the trade for transparent crystals), so each
+        // exceeds its index.
+        let group = m["group_indices"].as_array().expect("group indices listed");
+        assert_eq!(group.len(), indices.len(), "{m}");
+        for (k, g) in indices.iter().zip(group) {
+            assert!(g.as_f64().unwrap() > m[k].as_f64().unwrap(), "{k}: {m}");
+        }
     }
     // Biaxial crystals are listed with their kind and n_x < n_y < n_z (CONVENTIONS.md, "More
     // media").

@@ -58,7 +58,8 @@ written in any case in scenarios, design requests and flags (\"YVO4\" is yvo4); 
 the lower-case key.
 
   --at NM    also the principal indices at NM nanometres: n_o and n_e (uniaxial), or
-             n_x < n_y < n_z on the formula's dielectric axes (biaxial)
+             n_x < n_y < n_z on the formula's dielectric axes (biaxial), and the group
+             indices n - λ dn/dλ of the same principal axes, in the same order
   --json     the list as JSON
 
 Example:

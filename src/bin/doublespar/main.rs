@@ -170,39 +170,19 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     for m in doublespar::materials() {
         let mut row = doublespar::describe_material(m);
         if let Some(w) = at {
-            match m.indices(w) {
-                Ok(ev) => {
-                    row["no"] = json!(ev.indices.no);
-                    row["ne"] = json!(ev.indices.ne);
-                    row["warnings"] = json!(ev.warnings);
-                }
-                // No index is listed where the formula breaks down: null, and the reason.
-                Err(e) => {
-                    row["no"] = Value::Null;
-                    row["ne"] = Value::Null;
-                    row["error"] = e.to_json();
-                }
-            }
+            let pair = |i: doublespar::Indices| vec![i.no, i.ne];
+            let indices = m.indices(w).map(|e| (pair(e.indices), e.warnings));
+            let group = m.group_indices(w).map(|e| pair(e.indices));
+            list_indices(&mut row, &["no", "ne"], indices, group);
         }
         rows.push(row);
     }
     for m in doublespar::biaxial_materials() {
         let mut row = doublespar::describe_biaxial(m);
         if let Some(w) = at {
-            match m.principal(w) {
-                Ok(p) => {
-                    for (name, n) in ["nx", "ny", "nz"].into_iter().zip(p.principal) {
-                        row[name] = json!(n);
-                    }
-                    row["warnings"] = json!(p.warnings);
-                }
-                Err(e) => {
-                    for name in ["nx", "ny", "nz"] {
-                        row[name] = Value::Null;
-                    }
-                    row["error"] = e.to_json();
-                }
-            }
+            let indices = m.principal(w).map(|p| (p.principal.to_vec(), p.warnings));
+            let group = m.group_principal(w).map(|p| p.principal.to_vec());
+            list_indices(&mut row, &["nx", "ny", "nz"], indices, group);
         }
         rows.push(row);
     }
@@ -228,6 +208,10 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             idx,
             r["citation"].as_str().unwrap_or("")
         ));
+        if let Some(g) = r["group_indices"].as_array() {
+            let g: Vec<String> = g.iter().filter_map(Value::as_f64).map(|n| format!("{n:.6}")).collect();
+            text.push_str(&format!("           group indices {}\n", g.join("  ")));
+        }
         if let Some(m) = r["error"]["message"].as_str() {
             text.push_str(&format!("           n/a: {m}\n"));
         }
@@ -236,6 +220,34 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
         }
     }
     Ok(output::out(&text))
+}
+
+/// Adds a material's principal indices at the listing's wavelength to its row, one field per
+/// name, with `group_indices` in the same order and the evaluation's warnings. Where a formula
+/// breaks down no index is listed: null, and the reason under `error`; where only the group index
+/// has none (at wavelengths so extreme that λ² overflows), `group_indices` is null.
+fn list_indices(
+    row: &mut Value,
+    names: &[&str],
+    indices: Result<(Vec<f64>, Vec<String>), Error>,
+    group: Result<Vec<f64>, Error>,
+) {
+    match indices {
+        Ok((values, warnings)) => {
+            for (name, n) in names.iter().zip(values) {
+                row[*name] = json!(n);
+            }
+            row["group_indices"] = group.map_or(Value::Null, |g| json!(g));
+            row["warnings"] = json!(warnings);
+        }
+        Err(e) => {
+            for name in names {
+                row[*name] = Value::Null;
+            }
+            row["group_indices"] = Value::Null;
+            row["error"] = e.to_json();
+        }
+    }
 }
 
 fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {
