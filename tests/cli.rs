@@ -225,6 +225,15 @@ fn materials_list_every_key_with_a_citation() {
     );
     assert!(x < y && y < z, "{ktp}");
     assert!(list.iter().filter(|m| m["kind"] == "uniaxial").count() == doublespar::materials().len());
+    // Quartz is optically active, and only quartz: Biot's law, the rotation falls roughly as
+    // 1/λ² (common practice), so at 1064 nm it is well below the 21.7 °/mm of the sodium line.
+    for m in list {
+        let rho = m["rotatory_power_deg_per_mm"].as_f64();
+        assert_eq!(rho.is_some(), m["key"] == "quartz", "{m}");
+        if let Some(rho) = rho {
+            assert!((5.0..8.0).contains(&rho), "{m}");
+        }
+    }
     assert_eq!(
         bin().args(["materials", "--at", "-3"]).output().unwrap().status.code(),
         Some(2)

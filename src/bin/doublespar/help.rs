@@ -59,7 +59,8 @@ the lower-case key.
 
   --at NM    also the principal indices at NM nanometres: n_o and n_e (uniaxial), or
              n_x < n_y < n_z on the formula's dielectric axes (biaxial), and the group
-             indices n - λ dn/dλ of the same principal axes, in the same order
+             indices n - λ dn/dλ of the same principal axes, in the same order; for
+             quartz also its rotatory power along the optic axis (°/mm, right-handed)
   --json     the list as JSON
 
 Example:

@@ -174,6 +174,14 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             let indices = m.indices(w).map(|e| (pair(e.indices), e.warnings));
             let group = m.group_indices(w).map(|e| pair(e.indices));
             list_indices(&mut row, &["no", "ne"], indices, group);
+            // Optically active crystals (quartz): the rotation along the optic axis of a
+            // right-handed crystal, °/mm.
+            if let Some(a) = doublespar::optical_activity(m.key) {
+                row["rotatory_power_deg_per_mm"] = match a.at(w) {
+                    Ok(act) => json!(act.rotatory_power_rad_per_mm.to_degrees()),
+                    Err(_) => Value::Null,
+                };
+            }
         }
         rows.push(row);
     }
@@ -211,6 +219,11 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
         if let Some(g) = r["group_indices"].as_array() {
             let g: Vec<String> = g.iter().filter_map(Value::as_f64).map(|n| format!("{n:.6}")).collect();
             text.push_str(&format!("           group indices {}\n", g.join("  ")));
+        }
+        if let Some(rho) = r["rotatory_power_deg_per_mm"].as_f64() {
+            text.push_str(&format!(
+                "           rotatory power {rho:.3} °/mm along the optic axis (right-handed crystal)\n"
+            ));
         }
         if let Some(m) = r["error"]["message"].as_str() {
             text.push_str(&format!("           n/a: {m}\n"));

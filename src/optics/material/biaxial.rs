@@ -280,6 +280,28 @@ mod tests {
     }
 
     #[test]
+    fn group_indices_agree_with_an_independent_evaluation() {
+        // (key, nm, [n_g,x, n_g,y, n_g,z]) from the ndispers library 0.20.0's symbolic derivative
+        // of the same formulas, printed to 6 decimals: tolerance half a unit.
+        let table = [
+            ("ktp", 800.0, [1.793928, 1.805463, 1.911272]),
+            ("ktp", 1064.0, [1.767156, 1.776844, 1.871811]),
+            ("lbo", 532.0, [1.608324, 1.640365, 1.656033]),
+            ("bibo", 800.0, [1.802385, 1.836450, 1.984262]),
+        ];
+        for (key, nm, want) in table {
+            let m = find_biaxial(key).expect("catalogued");
+            let g = m
+                .group_principal(Wavelength::from_nm(nm).expect("positive"))
+                .expect("in range");
+            assert!(g.warnings.is_empty(), "{:?}", g.warnings);
+            for ((got, want), axis) in g.principal.into_iter().zip(want).zip(AXES) {
+                assert_index(got, want, 0.5e-6, &format!("{key} group {axis} at {nm} nm, {LIBRARY}"));
+            }
+        }
+    }
+
+    #[test]
     fn indices_keep_their_order_over_the_whole_range() {
         for m in biaxial_catalogue() {
             let (lo, hi) = m.range_nm;
