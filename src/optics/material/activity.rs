@@ -33,6 +33,7 @@
 //! plane of polarization turns clockwise as seen by an observer looking toward the source; a
 //! left-handed crystal has −ρ and −g. The wavelength is the vacuum wavelength.
 
+use super::dispersion::POLE_GUARD;
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 
@@ -86,7 +87,7 @@ impl OpticalActivity {
         let x = u0 / u;
         let deg = self.k_deg_um2_per_mm / (u * (1.0 - x) * (1.0 - x));
         let (lo, hi) = self.range_nm;
-        if (1.0 - x).abs() <= 1e-6 || !deg.is_finite() {
+        if (1.0 - x).abs() <= POLE_GUARD || !deg.is_finite() {
             return Err(Error::new(
                 "wavelength_nm",
                 format!(

@@ -26,7 +26,7 @@
 /// [`Dispersion::index`] gives no index. Within one part in a million of a resonance a single term
 /// of size about b·10⁶ dominates n², which is no refractive index of anything; it is reported as a
 /// breakdown of the formula instead.
-const POLE_GUARD: f64 = 1e-6;
+pub(super) const POLE_GUARD: f64 = 1e-6;
 
 /// A dispersion formula for n(λ), λ the vacuum wavelength in micrometres.
 #[derive(Debug, Clone, Copy, PartialEq)]
