@@ -193,10 +193,46 @@ fn materials_list_every_key_with_a_citation() {
     assert_eq!(out.status.code(), Some(0));
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
     let list = v["materials"].as_array().unwrap();
-    assert_eq!(list.len(), doublespar::materials().len());
+    assert_eq!(
+        list.len(),
+        doublespar::materials().len() + doublespar::biaxial_materials().len()
+    );
     for m in list {
         assert!(m["citation"].as_str().is_some_and(|c| c.len() > 20), "{m}");
-        assert!(m["no"].as_f64().is_some() && m["ne"].as_f64().is_some(), "{m}");
+        let indices: &[&str] = if m["kind"] == "biaxial" {
+            &["nx", "ny", "nz"]
+        } else {
+            &["no", "ne"]
+        };
+        assert!(indices.iter().all(|k| m[k].as_f64().is_some()), "{m}");
+        // Group indices n - λ dn/dλ in the same order; at 1064 nm every catalogue crystal is in
+        // normal dispersion (dn/dλ < 0, a fact of the trade for transparent crystals), so each
+        // exceeds its index.
+        let group = m["group_indices"].as_array().expect("group indices listed");
+        assert_eq!(group.len(), indices.len(), "{m}");
+        for (k, g) in indices.iter().zip(group) {
+            assert!(g.as_f64().unwrap() > m[k].as_f64().unwrap(), "{k}: {m}");
+        }
+    }
+    // Biaxial crystals are listed with their kind and n_x < n_y < n_z (CONVENTIONS.md, "More
+    // media").
+    let ktp = list.iter().find(|m| m["key"] == "ktp").expect("ktp listed");
+    assert_eq!(ktp["kind"], "biaxial");
+    let (x, y, z) = (
+        ktp["nx"].as_f64().unwrap(),
+        ktp["ny"].as_f64().unwrap(),
+        ktp["nz"].as_f64().unwrap(),
+    );
+    assert!(x < y && y < z, "{ktp}");
+    assert!(list.iter().filter(|m| m["kind"] == "uniaxial").count() == doublespar::materials().len());
+    // Quartz is optically active, and only quartz: Biot's law, the rotation falls roughly as
+    // 1/λ² (common practice), so at 1064 nm it is well below the 21.7 °/mm of the sodium line.
+    for m in list {
+        let rho = m["rotatory_power_deg_per_mm"].as_f64();
+        assert_eq!(rho.is_some(), m["key"] == "quartz", "{m}");
+        if let Some(rho) = rho {
+            assert!((5.0..8.0).contains(&rho), "{m}");
+        }
     }
     assert_eq!(
         bin().args(["materials", "--at", "-3"]).output().unwrap().status.code(),

@@ -1,7 +1,10 @@
 #!/usr/bin/env bash
 # Independent numerical reference check of `doublespar trace` (see tests/reference/README.md).
-# Creates a Python venv at target/refenv with numpy (once), builds the release binary and runs
-# tests/reference/trace_reference.py. Extra arguments go to the script (e.g. --seed 7 --count 1000).
+# Creates a Python venv at target/refenv with numpy and ndispers (once), builds the release binary
+# and runs tests/reference/material_reference.py (the catalogue's indices and group indices against
+# an independent implementation of the same published formulas), then
+# tests/reference/trace_reference.py. Extra arguments go to the trace script (e.g. --seed 7
+# --count 1000).
 # Exit status: the script's (0 when every scenario agrees).
 set -euo pipefail
 cd "$(dirname "$0")/../.."
@@ -13,6 +16,11 @@ fi
 if ! "$venv/bin/python" -c "import numpy" >/dev/null 2>&1; then
     "$venv/bin/python" -m pip install --quiet --disable-pip-version-check numpy
 fi
+# The dispersion library the catalogue is compared with, pinned: its formulas and coefficients
+# were checked by hand against the catalogue's (tests/reference/README.md).
+if ! "$venv/bin/python" -c "import ndispers, sympy, sys; sys.exit(ndispers.__version__ != '0.20.0')" >/dev/null 2>&1; then
+    "$venv/bin/python" -m pip install --quiet --disable-pip-version-check "ndispers[sym]==0.20.0"
+fi
 
 cargo build --release --quiet --bin doublespar
 bin="${CARGO_TARGET_DIR:-target}/release/doublespar"
@@ -20,4 +28,7 @@ bin="${CARGO_TARGET_DIR:-target}/release/doublespar"
 # The two-wedge splitter, face by face, against the benchmark's numpy implementation of the same
 # exact trace (20 incidences, every ray's direction, exit point and power to 1e-9).
 DOUBLESPAR_BIN="$bin" env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/splitter_numpy.py --check-only
+# The catalogue: every index and group index of the crystals whose formula the library also
+# holds, at up to 11 wavelengths, to 1e-9.
+"$venv/bin/python" tests/reference/material_reference.py --bin "$bin"
 exec "$venv/bin/python" tests/reference/trace_reference.py --bin "$bin" "$@"

@@ -5,7 +5,7 @@ Generates a deterministic set of scenarios (seeded numpy RNG), runs the command 
 recomputes, by a different method, what it reports:
 
 * n_o, n_e from the catalogue's dispersion formulas (forms and coefficients as documented in
-  src/optics/material.rs, the one shared input);
+  src/optics/material/uniaxial.rs, the one shared input);
 * the modes of each crystal from the general 4x4 first-order (Berreman) form of Maxwell's
   equations, d/dz (Ex, Ey, Hx, Hy) = i k0 Delta (Ex, Ey, Hx, Hy), solved with numpy.linalg.eig,
   not from the uniaxial closed forms; o and e are told apart by E being perpendicular to the
@@ -53,7 +53,7 @@ DEGENERATE_DIRECTION = 1e-12
 SPOT_LINK_DIAMETERS = 1.0
 
 # ---------------------------------------------------------------------------------------------
-# Catalogue: dispersion forms and coefficients as documented in src/optics/material.rs.
+# Catalogue: dispersion forms and coefficients as documented in src/optics/material/uniaxial.rs.
 #   ("sellmeier", a, [(b, c), ...]):  n^2 = a + sum b l^2 / (l^2 - c),  l in micrometres
 #   ("pole", a, b, c, d):             n^2 = a + b / (l^2 - c) - d l^2
 # ---------------------------------------------------------------------------------------------

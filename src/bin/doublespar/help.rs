@@ -52,11 +52,15 @@ Example:
 
 const MATERIALS: &str = "usage: doublespar materials [--at NM] [--json]
 
-Lists the crystal catalogue: key, name, optical sign, the wavelength range of its dispersion
-formula and the publication it comes from. Keys may be written in any case in scenarios,
-design requests and flags (\"YVO4\" is yvo4); results echo the lower-case key.
+Lists the crystal catalogue: key, name, optical sign (uniaxial crystals) or the word biaxial,
+the wavelength range of its dispersion formula and the publication it comes from. Keys may be
+written in any case in scenarios, design requests and flags (\"YVO4\" is yvo4); results echo
+the lower-case key.
 
-  --at NM    also the ordinary and extraordinary indices at NM nanometres
+  --at NM    also the principal indices at NM nanometres: n_o and n_e (uniaxial), or
+             n_x < n_y < n_z on the formula's dielectric axes (biaxial), and the group
+             indices n - λ dn/dλ of the same principal axes, in the same order; for
+             quartz also its rotatory power along the optic axis (°/mm, right-handed)
   --json     the list as JSON
 
 Example:

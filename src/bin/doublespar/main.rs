@@ -170,19 +170,27 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     for m in doublespar::materials() {
         let mut row = doublespar::describe_material(m);
         if let Some(w) = at {
-            match m.indices(w) {
-                Ok(ev) => {
-                    row["no"] = json!(ev.indices.no);
-                    row["ne"] = json!(ev.indices.ne);
-                    row["warnings"] = json!(ev.warnings);
-                }
-                // No index is listed where the formula breaks down: null, and the reason.
-                Err(e) => {
-                    row["no"] = Value::Null;
-                    row["ne"] = Value::Null;
-                    row["error"] = e.to_json();
-                }
+            let pair = |i: doublespar::Indices| vec![i.no, i.ne];
+            let indices = m.indices(w).map(|e| (pair(e.indices), e.warnings));
+            let group = m.group_indices(w).map(|e| pair(e.indices));
+            list_indices(&mut row, &["no", "ne"], indices, group);
+            // Optically active crystals (quartz): the rotation along the optic axis of a
+            // right-handed crystal, °/mm.
+            if let Some(a) = doublespar::optical_activity(m.key) {
+                row["rotatory_power_deg_per_mm"] = match a.at(w) {
+                    Ok(act) => json!(act.rotatory_power_rad_per_mm.to_degrees()),
+                    Err(_) => Value::Null,
+                };
             }
+        }
+        rows.push(row);
+    }
+    for m in doublespar::biaxial_materials() {
+        let mut row = doublespar::describe_biaxial(m);
+        if let Some(w) = at {
+            let indices = m.principal(w).map(|p| (p.principal.to_vec(), p.warnings));
+            let group = m.group_principal(w).map(|p| p.principal.to_vec());
+            list_indices(&mut row, &["nx", "ny", "nz"], indices, group);
         }
         rows.push(row);
     }
@@ -191,21 +199,32 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     }
     let mut text = String::new();
     for r in &rows {
-        let idx = match (r.get("no").and_then(Value::as_f64), r.get("ne").and_then(Value::as_f64)) {
+        let n = |k: &str| r.get(k).and_then(Value::as_f64);
+        let idx = match (n("no"), n("ne"), n("nx"), n("ny"), n("nz")) {
             _ if r.get("error").is_some() => "  n/a: formula breaks down".to_string(),
-            (Some(no), Some(ne)) => format!("  n_o {no:.6}  n_e {ne:.6}"),
+            (Some(no), Some(ne), ..) => format!("  n_o {no:.6}  n_e {ne:.6}"),
+            (_, _, Some(x), Some(y), Some(z)) => format!("  n_x {x:.6}  n_y {y:.6}  n_z {z:.6}"),
             _ => String::new(),
         };
         text.push_str(&format!(
-            "{:<10} {:<38} {} {}–{} nm{}\n           {}\n",
+            "{:<10} {:<38} {:<8} {}–{} nm{}\n           {}\n",
             r["key"].as_str().unwrap_or(""),
             r["name"].as_str().unwrap_or(""),
-            r["sign"].as_str().unwrap_or(""),
+            r["sign"].as_str().or(r["kind"].as_str()).unwrap_or(""),
             r["range_nm"][0],
             r["range_nm"][1],
             idx,
             r["citation"].as_str().unwrap_or("")
         ));
+        if let Some(g) = r["group_indices"].as_array() {
+            let g: Vec<String> = g.iter().filter_map(Value::as_f64).map(|n| format!("{n:.6}")).collect();
+            text.push_str(&format!("           group indices {}\n", g.join("  ")));
+        }
+        if let Some(rho) = r["rotatory_power_deg_per_mm"].as_f64() {
+            text.push_str(&format!(
+                "           rotatory power {rho:.3} °/mm along the optic axis (right-handed crystal)\n"
+            ));
+        }
         if let Some(m) = r["error"]["message"].as_str() {
             text.push_str(&format!("           n/a: {m}\n"));
         }
@@ -214,6 +233,34 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
         }
     }
     Ok(output::out(&text))
+}
+
+/// Adds a material's principal indices at the listing's wavelength to its row, one field per
+/// name, with `group_indices` in the same order and the evaluation's warnings. Where a formula
+/// breaks down no index is listed: null, and the reason under `error`; where only the group index
+/// has none (at wavelengths so extreme that λ² overflows), `group_indices` is null.
+fn list_indices(
+    row: &mut Value,
+    names: &[&str],
+    indices: Result<(Vec<f64>, Vec<String>), Error>,
+    group: Result<Vec<f64>, Error>,
+) {
+    match indices {
+        Ok((values, warnings)) => {
+            for (name, n) in names.iter().zip(values) {
+                row[*name] = json!(n);
+            }
+            row["group_indices"] = group.map_or(Value::Null, |g| json!(g));
+            row["warnings"] = json!(warnings);
+        }
+        Err(e) => {
+            for name in names {
+                row[*name] = Value::Null;
+            }
+            row["group_indices"] = Value::Null;
+            row["error"] = e.to_json();
+        }
+    }
 }
 
 fn cmd_draw(a: &[String]) -> Result<ExitCode, Usage> {

@@ -1,4 +1,5 @@
-//! The catalogued uniaxial crystals and their principal refractive indices n_o(λ), n_e(λ).
+//! The catalogued uniaxial crystals and their principal refractive indices n_o(λ), n_e(λ), with
+//! their group indices.
 //!
 //! A uniaxial crystal has two principal indices: the ordinary index n_o, seen by light polarized
 //! perpendicular to the optic axis, and the extraordinary index n_e, seen by light polarized along
@@ -25,14 +26,10 @@
 //! [`Material::data_warning`]. The tests at the bottom compare the formulas with tabulated values
 //! and name the source of each value.
 
+use super::dispersion::{Dispersion, Quantity};
+use super::principal_values;
 use crate::error::{Error, positive};
 use crate::optics::wavelength::Wavelength;
-
-/// Relative closeness, in λ², to a resonance λ² = c of a dispersion formula below which
-/// [`Dispersion::index`] gives no index. Within one part in a million of a resonance a single term
-/// of size about b·10⁶ dominates n², which is no refractive index of anything; it is reported as a
-/// breakdown of the formula instead.
-const POLE_GUARD: f64 = 1e-6;
 
 /// Positive (n_e > n_o) or negative (n_e < n_o) uniaxial crystal.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -41,123 +38,6 @@ pub enum OpticalSign {
     Positive,
     /// n_e < n_o, e.g. calcite, sapphire, alpha-BBO, lithium niobate.
     Negative,
-}
-
-/// A dispersion formula for n(λ), λ the vacuum wavelength in micrometres.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Dispersion {
-    /// Sellmeier form, one term per resonance.
-    ///
-    /// # Formula
-    /// n² = a + Σ b_i λ² / (λ² − c_i), with each term given as `(b_i, c_i)` and c_i in µm².
-    /// Papers that quote resonance *wavelengths* λ_i are entered with c_i = λ_i².
-    Sellmeier {
-        /// Constant term (1 for the classical form n² − 1 = Σ …).
-        a: f64,
-        /// The `(b_i, c_i)` pairs, c_i in µm².
-        terms: &'static [(f64, f64)],
-    },
-    /// One ultraviolet pole and a linear infrared correction, the form used for many borate and
-    /// vanadate crystals.
-    ///
-    /// # Formula
-    /// n² = a + b / (λ² − c) − d λ², with c in µm², b in µm² and d in µm⁻².
-    PoleAndIr {
-        /// Constant term.
-        a: f64,
-        /// Strength of the ultraviolet pole, µm².
-        b: f64,
-        /// Position of the ultraviolet pole in λ², µm².
-        c: f64,
-        /// Infrared correction, µm⁻².
-        d: f64,
-    },
-}
-
-/// Why a dispersion formula gives no usable index at a wavelength.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Breakdown {
-    /// The wavelength itself is not finite or not positive.
-    Wavelength,
-    /// λ² lies at, or within a relative 10⁻⁶ of, a resonance of the formula.
-    Resonance,
-    /// The formula gives n² ≤ 0 or a non-finite n² (the value, which may be NaN or infinite).
-    NotReal(f64),
-    /// The formula gives a real index below 1 (the value).
-    BelowOne(f64),
-}
-
-impl Breakdown {
-    /// The reason in words, for messages: "it is at a resonance of the formula", "it gives
-    /// n² = -7.8, not a positive number", "it gives n = 0.83, below 1".
-    pub fn reason(&self) -> String {
-        match self {
-            Breakdown::Wavelength => "the wavelength is not a positive number".into(),
-            Breakdown::Resonance => "the wavelength is at a resonance (pole) of the formula".into(),
-            Breakdown::NotReal(n2) if n2.is_finite() => {
-                format!("it gives n² = {}, not a positive number", crate::numfmt::sig(*n2, 3))
-            }
-            Breakdown::NotReal(_) => "it gives no finite n²".into(),
-            Breakdown::BelowOne(n) => format!("it gives n = {}, below 1", crate::numfmt::sig(*n, 4)),
-        }
-    }
-}
-
-impl Dispersion {
-    /// n at `um` micrometres, or `None` where the formula breaks down (see [`Dispersion::evaluate`]).
-    pub fn index(&self, um: f64) -> Option<f64> {
-        self.evaluate(um).ok()
-    }
-
-    /// n at `um` micrometres, or why the formula breaks down there.
-    ///
-    /// # Errors
-    /// [`Breakdown::Wavelength`] when `um` is not finite or not positive;
-    /// [`Breakdown::Resonance`] when λ² lies within a relative 10⁻⁶ of one of the formula's
-    /// resonances; [`Breakdown::NotReal`] when the formula gives n² ≤ 0 or a non-finite n² (which
-    /// also covers coefficients that are themselves NaN or infinite); [`Breakdown::BelowOne`] when
-    /// it gives a real index below 1. It never panics.
-    pub fn evaluate(&self, um: f64) -> Result<f64, Breakdown> {
-        if !(um.is_finite() && um > 0.0) {
-            return Err(Breakdown::Wavelength);
-        }
-        let l2 = um * um; // may overflow to +inf or underflow to 0 at the extremes; see below
-        let n2 = match *self {
-            Dispersion::Sellmeier { a, terms } => {
-                let mut n2 = a;
-                for &(b, c) in terms {
-                    if near_pole(l2, c) {
-                        return Err(Breakdown::Resonance);
-                    }
-                    // b λ²/(λ² − c) written as b/(1 − c/λ²): exact limits b at λ² = ∞ and 0 at
-                    // λ² = 0, where the textbook form would give ∞/∞ or 0/0.
-                    n2 += b / (1.0 - c / l2);
-                }
-                n2
-            }
-            Dispersion::PoleAndIr { a, b, c, d } => {
-                if near_pole(l2, c) {
-                    return Err(Breakdown::Resonance);
-                }
-                // A zero infrared term stays zero even at λ² = ∞ (0 · ∞ would be NaN).
-                let ir = if d == 0.0 { 0.0 } else { d * l2 };
-                a + b / (l2 - c) - ir
-            }
-        };
-        if !(n2.is_finite() && n2 > 0.0) {
-            return Err(Breakdown::NotReal(n2));
-        }
-        let n = n2.sqrt();
-        if n < 1.0 {
-            return Err(Breakdown::BelowOne(n));
-        }
-        Ok(n)
-    }
-}
-
-/// Whether λ² is at, or within [`POLE_GUARD`] of, the resonance λ² = c.
-fn near_pole(l2: f64, c: f64) -> bool {
-    (l2 - c).abs() <= POLE_GUARD * c.abs()
 }
 
 /// Ordinary and extraordinary principal indices.
@@ -242,25 +122,8 @@ impl Material {
     /// Field `wavelength_nm` where either formula breaks down (n² ≤ 0, or at or next to one of its
     /// resonances), with a message naming the material, the ray and the wavelength.
     pub fn indices(&self, wavelength: Wavelength) -> Result<Evaluated, Error> {
-        let (um, nm) = (wavelength.um(), wavelength.nm());
-        let no = self
-            .ordinary
-            .evaluate(um)
-            .map_err(|b| self.breakdown("ordinary", nm, b))?;
-        let ne = self
-            .extraordinary
-            .evaluate(um)
-            .map_err(|b| self.breakdown("extraordinary", nm, b))?;
-        let indices = Indices { no, ne };
-        let (lo, hi) = self.range_nm;
-        let mut warnings = Vec::new();
-        if !(lo..=hi).contains(&nm) {
-            warnings.push(format!(
-                "{nm} nm is outside the {lo}-{hi} nm range of the {} dispersion formula; \
-                 its indices are extrapolated",
-                self.name
-            ));
-        }
+        let (indices, mut warnings) = self.pair(Quantity::Phase, wavelength)?;
+        let nm = wavelength.nm();
         if indices.sign() != Some(self.sign) {
             warnings.push(format!(
                 "at {nm} nm the extrapolated {} formula gives n_e - n_o = {:.3e}, against the \
@@ -287,22 +150,34 @@ impl Material {
         })
     }
 
-    fn breakdown(&self, ray: &str, nm: f64, why: Breakdown) -> Error {
-        let (lo, hi) = self.range_nm;
-        Error::new(
-            "wavelength_nm",
-            format!(
-                "the {} dispersion formula gives no usable {ray} index at {nm} nm: {}; its \
-                 published range is {lo}-{hi} nm",
-                self.name,
-                why.reason()
-            ),
-        )
+    /// The principal group indices n_g = n − λ dn/dλ at `wavelength`, from the analytic
+    /// derivative of each formula ([`Dispersion::group_index`]): `no` holds the ordinary and `ne`
+    /// the extraordinary group index. A pulse polarized as the ordinary wave travels at c / n_g,o;
+    /// one polarized along the optic axis, crossing it at right angles, at c / n_g,e.
+    ///
+    /// The warnings are those of [`Material::indices`] except the sign check (the group
+    /// birefringence may have either sign).
+    ///
+    /// # Errors
+    /// As [`Material::indices`]; also where the derivative is not finite (only at wavelengths so
+    /// extreme that λ² overflows).
+    pub fn group_indices(&self, wavelength: Wavelength) -> Result<Evaluated, Error> {
+        let (indices, mut warnings) = self.pair(Quantity::Group, wavelength)?;
+        warnings.extend(self.data_warning());
+        Ok(Evaluated { indices, warnings })
+    }
+
+    /// Both formulas' `q` at `wavelength`, with the range warning.
+    fn pair(&self, q: Quantity, wavelength: Wavelength) -> Result<(Indices, Vec<String>), Error> {
+        let formulas = [("ordinary", &self.ordinary), ("extraordinary", &self.extraordinary)];
+        let ([no, ne], warnings) = principal_values(self.name, self.range_nm, formulas, q, wavelength)?;
+        Ok((Indices { no, ne }, warnings))
     }
 }
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
-/// `{key, name, sign, range_nm, citation, verified, warnings}`, `sign` spelled `positive` or
+/// `{key, name, kind, sign, range_nm, citation, verified, warnings}`, `kind` always `uniaxial`
+/// (biaxial crystals are described by [`super::describe_biaxial`]), `sign` spelled `positive` or
 /// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
     let sign = match m.sign {
@@ -310,7 +185,7 @@ pub fn describe(m: &Material) -> serde_json::Value {
         OpticalSign::Negative => "negative",
     };
     serde_json::json!({
-        "key": m.key, "name": m.name, "sign": sign,
+        "key": m.key, "name": m.name, "kind": "uniaxial", "sign": sign,
         "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
         "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
     })
@@ -327,7 +202,8 @@ pub fn find(key: &str) -> Option<&'static Material> {
     CATALOGUE.iter().find(|m| m.key.eq_ignore_ascii_case(key))
 }
 
-/// The contract keys in catalogue order, for error messages such as
+/// The uniaxial catalogue's contract keys in catalogue order (what the design requests accept),
+/// for error messages such as
 /// `unknown material 'x'; known: calcite, quartz, ...`.
 pub fn keys() -> Vec<&'static str> {
     CATALOGUE.iter().map(|m| m.key).collect()
@@ -545,6 +421,7 @@ static CATALOGUE: [Material; 8] = [
 
 #[cfg(test)]
 mod tests {
+    use super::super::dispersion::Breakdown;
     use super::*;
 
     /// Checks `actual` against a published `expected` index to an absolute `tol`, printing both
@@ -683,6 +560,15 @@ mod tests {
             let n2 = match *d {
                 Dispersion::Sellmeier { a, terms } => a + terms.iter().map(|&(b, c)| b * l2 / (l2 - c)).sum::<f64>(),
                 Dispersion::PoleAndIr { a, b, c, d } => a + b / (l2 - c) - d * l2,
+                Dispersion::Poles { a, poles, powers } => {
+                    let poles: f64 = poles.iter().map(|&(b, c)| b / (l2 - c)).sum();
+                    a + poles
+                        + powers
+                            .iter()
+                            .enumerate()
+                            .map(|(k, p)| p * l2.powi(k as i32 + 1))
+                            .sum::<f64>()
+                }
             };
             n2.sqrt()
         }
@@ -696,6 +582,39 @@ mod tests {
                     let what = format!("{} at {um} µm, textbook form", m.key);
                     assert_index(got, want, 1e-13 * want, &what);
                 }
+            }
+        }
+    }
+
+    #[test]
+    fn group_indices_agree_with_a_central_difference_of_the_indices() {
+        // Independent method: n_g = n − λ dn/dλ with dn/dλ from the five-point central
+        // difference of Material::indices (step 0.1 nm; truncation h⁴|n⁽⁵⁾|/30, below 1e-9 even
+        // at calcite's ultraviolet end, rounding about 1e-16 · λ/h < 1e-10). Tolerance 1e-7.
+        let h = 0.1;
+        for m in catalogue() {
+            let (lo, hi) = m.range_nm;
+            for i in 0..40 {
+                let nm = lo + 2.0 * h + (hi - lo - 4.0 * h) * f64::from(i) / 39.0;
+                let at_nm = |x: f64| {
+                    m.indices(Wavelength::from_nm(x).expect("positive"))
+                        .expect("in range")
+                        .indices
+                };
+                let n = at_nm(nm);
+                let slope = |f: fn(&Indices) -> f64| {
+                    let p = |k: f64| f(&at_nm(nm + k * h));
+                    (p(-2.0) - 8.0 * p(-1.0) + 8.0 * p(1.0) - p(2.0)) / (12.0 * h)
+                };
+                let g = m
+                    .group_indices(Wavelength::from_nm(nm).expect("positive"))
+                    .expect("in range");
+                assert!(beyond_data(&g).is_empty(), "{} at {nm} nm: {:?}", m.key, g.warnings);
+                let want_o = n.no - nm * slope(|i| i.no);
+                let want_e = n.ne - nm * slope(|i| i.ne);
+                let what = format!("{} at {nm} nm, central difference", m.key);
+                assert_index(g.indices.no, want_o, 1e-7, &format!("n_g,o, {what}"));
+                assert_index(g.indices.ne, want_e, 1e-7, &format!("n_g,e, {what}"));
             }
         }
     }
@@ -1081,12 +1000,15 @@ mod tests {
             .keys()
             .map(String::as_str)
             .collect();
-        let mut want = ["key", "name", "sign", "range_nm", "citation", "verified", "warnings"];
+        let mut want = [
+            "key", "name", "kind", "sign", "range_nm", "citation", "verified", "warnings",
+        ];
         want.sort_unstable();
         let mut got = keys.clone();
         got.sort_unstable();
         assert_eq!(got, want);
         assert_eq!(calcite["sign"], "negative");
+        assert_eq!(calcite["kind"], "uniaxial");
         assert_eq!(describe(find("quartz").expect("catalogued"))["sign"], "positive");
         for m in catalogue() {
             let d = describe(m);
