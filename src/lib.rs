@@ -40,6 +40,7 @@ pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
+pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
 pub use optics::material::{Indices, catalogue as materials, describe as describe_material, keys as material_keys};
 pub use optics::modes::{Mode, Travel, crystal_modes};
