@@ -35,7 +35,7 @@ pub use precision::assert_within;
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).
 pub use contract::result::RejectedRay;
-pub use contract::result::{ElementReport, TraceResult, trace_scenario};
+pub use contract::result::{ElementReport, TraceResult, report as report_trace, trace_scenario};
 pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 
 // Physics.
@@ -45,8 +45,10 @@ pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes 
 pub use optics::material::{Indices, catalogue as materials, describe as describe_material, keys as material_keys};
 pub use optics::modes::{Mode, Travel, crystal_modes};
 pub use optics::plate::{plate_optics, tangential};
+pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};
 pub use optics::stokes::Handedness;
 pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
+pub use optics::trace::trace as trace_stack;
 pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
 pub use optics::wavelength::Wavelength;
 pub use optics::workload::{Workload, run as run_workload};
