@@ -35,11 +35,12 @@ pub use precision::assert_within;
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).
 pub use contract::result::RejectedRay;
-pub use contract::result::{ElementReport, TraceResult, trace_scenario};
+pub use contract::result::{ElementReport, TraceResult, report as report_trace, trace_scenario};
 pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
+pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
 pub use optics::material::{
     Activity, AirConversion, BiaxialMaterial, Indices, OpticalActivity, Principal, STANDARD_AIR_RANGE_NM,
@@ -49,8 +50,10 @@ pub use optics::material::{
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
 pub use optics::plate::{plate_optics, tangential};
+pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};
 pub use optics::stokes::Handedness;
 pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
+pub use optics::trace::trace as trace_stack;
 pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
 pub use optics::wavelength::Wavelength;
 pub use optics::workload::{Workload, run as run_workload};

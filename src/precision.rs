@@ -18,6 +18,22 @@ pub const ON_PLANE: f64 = 1e-12;
 /// of basis depends on it; the indices and phases never do.
 pub const DEGENERATE_DIRECTION: f64 = 1e-12;
 
+/// A root q_z of a general crystal's 4×4 system whose imaginary part exceeds this fraction of
+/// 1 + |q_z| is evanescent (`general_modes.rs`); below it the root is real and rounding. The
+/// Schur form's rounding of a real root is ~10⁻¹⁶ of it, and ~10⁻⁸ only within 10⁻¹⁶ of a critical
+/// angle, where the wave grazes the face either way.
+pub const EVANESCENT_ROOT: f64 = 1e-10;
+
+/// Two waves of a general crystal whose q_z differ by at most this fraction of 1 + |q_z| are one
+/// degenerate pair (along an optic axis), given the documented basis instead of the split that
+/// rounding would choose: a few times the rounding of the 4×4 eigenvalues (~10⁻¹⁶ of ‖Δ‖ ≈ n²).
+/// Within it the phase the two waves gather apart over a 10 mm crystal is below 10⁻⁹ rad.
+pub const DEGENERATE_MODES: f64 = 1e-14;
+
+/// Sweeps of the Schur and SVD iterations of the general mode solver before they are given up
+/// (a 4×4 needs a few dozen); a fallback then keeps the answer finite.
+pub const EIGEN_SWEEPS: usize = 10_000;
+
 /// Two output rays belong to one spot when the amplitude overlap |γ| of their Gaussian beams
 /// (`beam_overlap.rs`) is at least e^−(this), e⁻²: for rays in one direction, when their points lie at
 /// most one beam diameter apart, so that the beam circles the end view draws touch or overlap.

@@ -26,7 +26,13 @@
 //!   modes only (the project's documented rule, DEVELOPERS.md; K. Fan and A. J. Hoffman, Proc.
 //!   AMS 6, 111 (1955) for the closest unitary map);
 //! - a crystal mode is ordinary when its E is perpendicular to the optic axis (the smaller
-//!   |E·c|/|E| of the pair).
+//!   |E·c|/|E| of the pair); in a biaxial crystal the fast mode `f` is the wave on the inner sheet
+//!   of the index surface (its index below the mean of the two indices along its own wave normal,
+//!   the contract's convention), the other `s`.
+//!
+//! A share of the one-crystal and pair set-ups is traced a second time with biaxial crystals
+//! (random principal indices 1.4–2.2 on randomly oriented axes) in place of the uniaxial ones:
+//! the library's general 4×4 mode solver against this one, to the same tolerances.
 //!
 //! Rays follow the Poynting direction from face to face; the rest (apertures as circles about
 //! the element's z axis, rejected rays, the screen) is the contract's geometry (CONVENTIONS.md,
@@ -84,7 +90,10 @@
 
 mod common;
 use common::berreman::{C, Rng, berreman, ez_row, null_space, permittivity, try_eigenvalues};
-use doublespar::{ElementReport, Scenario, TraceResult, trace_scenario};
+use doublespar::{
+    Anisotropic, ElementReport, Scenario, StackElement, StackMedium, TraceResult, orientation, report_trace,
+    trace_scenario, trace_stack,
+};
 use nalgebra::{DMatrix, Matrix3, Matrix4, Vector2, Vector3, Vector4};
 
 /// Agreement required of every compared number (see the module header).
@@ -116,7 +125,15 @@ const CASES: usize = 1500;
 #[derive(Debug, Clone, Copy, PartialEq)]
 enum Body {
     Isotropic(f64),
-    Crystal { no: f64, ne: f64, c: Vector3<f64> },
+    Crystal {
+        no: f64,
+        ne: f64,
+        c: Vector3<f64>,
+    },
+    /// A biaxial crystal by its permittivity (lab frame).
+    Biaxial {
+        eps: Matrix3<f64>,
+    },
 }
 
 impl Body {
@@ -124,6 +141,7 @@ impl Body {
         match *self {
             Body::Isotropic(n) => Matrix3::identity() * (n * n),
             Body::Crystal { no, ne, c } => permittivity(no, ne, &c),
+            Body::Biaxial { eps } => eps,
         }
     }
 }
@@ -354,7 +372,7 @@ fn cross(carrier: &Carrier, from: Body, into: Body, n: Vector3<f64>, ideal: bool
     let a = solve_medium(&eps_a, qx)?;
     let b = solve_medium(&eps_b, qx)?;
     for (body, m) in [(from, &a), (into, &b)] {
-        if matches!(body, Body::Crystal { .. }) && m.gap < DEGENERATE_GAP {
+        if !matches!(body, Body::Isotropic(_)) && m.gap < DEGENERATE_GAP {
             return Err("degenerate".into());
         }
     }
@@ -452,6 +470,39 @@ fn cross(carrier: &Carrier, from: Body, into: Body, n: Vector3<f64>, ideal: bool
                 }
             }
         }
+        Body::Biaxial { .. } => {
+            // `f` is the wave on the inner sheet of the index surface: its index below the mean
+            // of the two indices along its own wave normal (the documented convention,
+            // CONVENTIONS.md "More media"), from the eigenvalues 1/n² of the transverse part of
+            // ε⁻¹ (Born & Wolf §15.2).
+            let inv = eps_b.try_inverse().ok_or("singular permittivity")?;
+            let inner = |w: &Wave| {
+                let q = w.q.map(|z| z.re);
+                let s = q / q.norm();
+                let t1 = s.cross(&Vector3::new(0.3, -0.8, 0.52)).normalize();
+                let t2 = s.cross(&t1);
+                let (a, b, c) = (t1.dot(&(inv * t1)), t1.dot(&(inv * t2)), t2.dot(&(inv * t2)));
+                let (mean, half) = (0.5 * (a + c), (0.25 * (a - c) * (a - c) + b * b).sqrt());
+                let mid = 0.5 * (1.0 / (mean + half).sqrt() + 1.0 / (mean - half).sqrt());
+                q.norm() < mid
+            };
+            let fast = match (rows[0], rows[1]) {
+                (true, true) if inner(&b.fwd[0]) == inner(&b.fwd[1]) => return Err("degenerate".into()),
+                (true, _) => usize::from(!inner(&b.fwd[0])),
+                (false, true) => usize::from(inner(&b.fwd[1])),
+                _ => 0,
+            };
+            for i in 0..2 {
+                if rows[i] {
+                    let carrier = Carrier::Bound {
+                        q: lab_q(&b.fwd[i]),
+                        ray: frame * b.fwd[i].ray(),
+                        power: out[i].norm_sqr(),
+                    };
+                    onward.push((carrier, Some(if i == fast { 'f' } else { 's' })));
+                }
+            }
+        }
     }
     let tir = !(rows[0] && rows[1]);
     let mut reflected = Vec::new();
@@ -487,9 +538,45 @@ enum Contact {
     Optical,
 }
 
+/// A biaxial crystal put in place of an element's uniaxial one after the document is resolved:
+/// principal indices on the axes R = Rz(azimuth)·Ry(tilt)·Rz(roll) (CONVENTIONS.md, "More
+/// media"; angles in degrees).
+#[derive(Debug, Clone, Copy)]
+struct Biaxial {
+    principal: [f64; 3],
+    angles: (f64, f64, f64),
+}
+
+impl Biaxial {
+    fn rotation(&self) -> Matrix3<f64> {
+        let rz = |deg: f64| {
+            let (s, c) = deg.to_radians().sin_cos();
+            Matrix3::new(c, -s, 0.0, s, c, 0.0, 0.0, 0.0, 1.0)
+        };
+        let (s, c) = self.angles.0.to_radians().sin_cos();
+        let ry = Matrix3::new(c, 0.0, s, 0.0, 1.0, 0.0, -s, 0.0, c);
+        rz(self.angles.1) * ry * rz(self.angles.2)
+    }
+
+    fn permittivity(&self) -> Matrix3<f64> {
+        let r = self.rotation();
+        let [a, b, c] = self.principal;
+        r * Matrix3::from_diagonal(&Vector3::new(a * a, b * b, c * c)) * r.transpose()
+    }
+
+    /// The library's crystal.
+    fn medium(&self) -> StackMedium {
+        let (t, a, r) = self.angles;
+        let axes = orientation(t.to_radians(), a.to_radians(), r.to_radians());
+        StackMedium::Anisotropic(Anisotropic::new(self.principal, axes, [0.0; 3]).expect("valid crystal"))
+    }
+}
+
 /// One crystal element as the document gives it.
 #[derive(Debug, Clone)]
 struct Elem {
+    /// When set, the element's crystal is this biaxial one instead (see [`Biaxial`]).
+    biaxial: Option<Biaxial>,
     no: f64,
     ne: f64,
     axis: (f64, f64),
@@ -738,10 +825,13 @@ impl RefTracer<'_> {
         let mut prev: Option<(usize, Body, Vector3<f64>)> = None;
         for (i, e) in s.elems.iter().enumerate() {
             z += e.gap;
-            let body = Body::Crystal {
-                no: e.no,
-                ne: e.ne,
-                c: unit(e.axis.0, e.axis.1),
+            let body = match e.biaxial {
+                Some(b) => Body::Biaxial { eps: b.permittivity() },
+                None => Body::Crystal {
+                    no: e.no,
+                    ne: e.ne,
+                    c: unit(e.axis.0, e.axis.1),
+                },
             };
             let front = Face {
                 n: unit(e.front.0, e.front.1),
@@ -850,6 +940,8 @@ struct Tally {
     refused: usize,
     degenerate: usize,
     critical_paths: usize,
+    /// Biaxial copies of generated set-ups compared.
+    biaxial: usize,
     worst_power: f64,
     worst_direction: f64,
     worst_point: f64,
@@ -1059,6 +1151,7 @@ fn thickness(r: &mut Rng, rad: f64, t1: f64, t2: f64) -> f64 {
 fn element(r: &mut Rng, front: (f64, f64), back: (f64, f64), aperture: f64) -> Elem {
     let (no, ne) = indices(r);
     Elem {
+        biaxial: None,
         no,
         ne,
         axis: (r.range(0.0, 180.0), r.range(-180.0, 180.0)),
@@ -1255,7 +1348,22 @@ fn compare(setup: &Setup, split_tir: bool, tally: &mut Tally) -> Result<(), Stri
             return Ok(());
         }
     };
-    let got = trace_scenario(&scenario).unwrap_or_else(|e| panic!("{e}\n{doc}"));
+    let got = if setup.elems.iter().any(|e| e.biaxial.is_some()) {
+        // The document holds uniaxial stand-ins; the resolved stack takes the biaxial crystals.
+        let (mut stack, warnings) = scenario.resolve().unwrap_or_else(|e| panic!("{e}\n{doc}"));
+        let slabs = stack.layers.iter_mut().filter_map(|l| match &mut l.element {
+            StackElement::Slab(s) => Some(s),
+            StackElement::Ideal(_) => None,
+        });
+        for (slab, e) in slabs.zip(&setup.elems) {
+            if let Some(b) = e.biaxial {
+                slab.medium = b.medium();
+            }
+        }
+        report_trace(&scenario, &stack, &trace_stack(&stack), warnings)
+    } else {
+        trace_scenario(&scenario).unwrap_or_else(|e| panic!("{e}\n{doc}"))
+    };
     let fail = |msg: String| Err(format!("[{}] {msg}\n{doc}", setup.family));
     tally.cases += 1;
     match (RefTracer {
@@ -1298,6 +1406,7 @@ fn compare(setup: &Setup, split_tir: bool, tally: &mut Tally) -> Result<(), Stri
 fn faces_at_any_angle_agree_with_an_independent_face_solver() {
     let mut r = Rng(0x5DEE_CE66_D1CE_4E5B);
     let mut tally = Tally::default();
+    let mut biaxial = Tally::default();
     let mut failures = Vec::new();
     let only: Option<usize> = std::env::var("FACE_CASE").ok().and_then(|v| v.parse().ok());
     for i in 0..CASES {
@@ -1311,9 +1420,36 @@ fn faces_at_any_angle_agree_with_an_independent_face_solver() {
         if let Err(msg) = compare(&setup, true, &mut tally) {
             failures.push(format!("case {i} {msg}"));
         }
+        // A share of the one-crystal and pair set-ups again with biaxial crystals in place of the
+        // uniaxial ones (from a stream of their own, so the cases above stay as they were).
+        let mut rb = Rng(0x9E37_79B9_7F4A_7C15 ^ (i as u64 + 1));
+        if i % 6 < 4 && rb.chance(0.4) {
+            let mut b = setup.clone();
+            for e in &mut b.elems {
+                e.biaxial = Some(Biaxial {
+                    principal: [rb.range(1.4, 2.2), rb.range(1.4, 2.2), rb.range(1.4, 2.2)],
+                    angles: (rb.range(0.0, 180.0), rb.range(-180.0, 180.0), rb.range(-180.0, 180.0)),
+                });
+            }
+            b.family = "biaxial";
+            if let Err(msg) = compare(&b, true, &mut biaxial) {
+                failures.push(format!("case {i} (biaxial) {msg}"));
+            }
+        }
     }
     println!(
-        "{} cases compared ({} rays, {} rejected groups, {} with total internal reflection, {} exactly critical paths checked for accounting only); {} refused by the contract, {} near-degenerate or unsolved skipped; worst differences: power/Stokes {:.1e}, direction {:.1e}, points {:.1e}",
+        "biaxial: {} cases compared ({} rays, {} with total internal reflection), {} near-degenerate skipped; worst differences: power/Stokes {:.1e}, direction {:.1e}, points {:.1e}",
+        biaxial.cases,
+        biaxial.compared_rays,
+        biaxial.tir_cases,
+        biaxial.degenerate,
+        biaxial.worst_power,
+        biaxial.worst_direction,
+        biaxial.worst_point
+    );
+    tally.biaxial = biaxial.cases;
+    println!(
+        "{} uniaxial cases compared ({} rays, {} rejected groups, {} with total internal reflection, {} exactly critical paths checked for accounting only); {} refused by the contract, {} near-degenerate or unsolved skipped; worst differences: power/Stokes {:.1e}, direction {:.1e}, points {:.1e}",
         tally.cases,
         tally.compared_rays,
         tally.compared_rejected,
@@ -1334,6 +1470,7 @@ fn faces_at_any_angle_agree_with_an_independent_face_solver() {
     );
     if only.is_none() {
         assert!(tally.refused + tally.degenerate < CASES / 20, "too few cases compared");
+        assert!(tally.biaxial > CASES / 5, "too few biaxial cases ({})", tally.biaxial);
         assert!(
             tally.tir_cases > CASES / 20,
             "too few cases with total internal reflection"
@@ -1355,6 +1492,7 @@ fn total_reflection_splits_between_the_reflected_waves_as_the_reference_does() {
         jones: [C::from(1.0), C::from(0.0)],
         screen: 0.0,
         elems: vec![Elem {
+            biaxial: None,
             no: 1.6557,
             ne: 1.4849,
             axis: (45.0, 30.0),

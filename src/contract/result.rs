@@ -24,7 +24,7 @@ use crate::optics::planar::alone;
 pub use crate::optics::spots::Spot;
 use crate::optics::spots::{Exit, group_spots};
 use crate::optics::spots_tilted::{ScreenRay, group_tilted};
-use crate::optics::stack::{Element, Medium, Stack};
+use crate::optics::stack::{Element, Stack};
 use crate::optics::stokes::{self, Ellipse};
 use crate::optics::trace::trace;
 use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
@@ -434,7 +434,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     faces_solved,
                 },
             ) => {
-                let Medium::Uniaxial(crystal) = slab.medium;
+                let crystal = slab.medium.nominal_uniaxial();
                 let (indices, axis, l) = (crystal.indices, crystal.axis, slab.thickness_mm);
                 for (mode, name_m) in modes.iter().zip(["ordinary", "extraordinary"]) {
                     if !mode.propagating {

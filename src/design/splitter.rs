@@ -174,7 +174,9 @@ fn perturbed(base: &Stack, alpha_deg: f64, err: Errors) -> Stack {
     let normal = Vector3::new(a.sin(), 0.0, a.cos());
     for (i, layer) in s.layers.iter_mut().enumerate() {
         if let Layered::Slab(slab) = &mut layer.element {
-            let Medium::Uniaxial(u) = &mut slab.medium;
+            let Medium::Uniaxial(u) = &mut slab.medium else {
+                continue;
+            };
             let azimuth = (90.0 * i as f64 + err.axis_deg[i.min(1)]).to_radians();
             *u = Uniaxial::new(u.indices, OpticAxis::from_angles(FRAC_PI_2, azimuth));
             if let Some(f) = &mut slab.faces {

@@ -201,22 +201,11 @@ impl Anisotropic {
         Some([a * s + c * co, -a * s + c * co])
     }
 
-    /// The angle 2V between the two optic axes of a biaxial crystal, radians.
-    pub fn optic_axis_angle(&self) -> Option<f64> {
-        let [u, v] = self.optic_axes()?;
-        Some(u.dot(&v).clamp(-1.0, 1.0).acos())
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    /// Mode indices along a wave normal s, from the eigenvalues of the transverse part of ε⁻¹
-    /// (1/n² are the eigenvalues of P ε⁻¹ P on the plane ⊥ s: Born & Wolf §15.2, independent of
-    /// the closed form above).
-    fn indices_along(m: &Anisotropic, s: Vector3<f64>) -> (f64, f64) {
-        let inv = m.permittivity().try_inverse().unwrap();
+    /// The two indices (lower first) of the crystal without its optical activity along the unit
+    /// wave normal `s`: 1/n² are the eigenvalues of the transverse part of ε⁻¹ on the plane ⊥ s
+    /// (Born & Wolf §15.2), independent of the binormal formula of [`Anisotropic::optic_axes`].
+    pub fn indices_along(&self, s: Vector3<f64>) -> (f64, f64) {
+        let inv = self.permittivity().try_inverse().unwrap_or_else(Matrix3::identity);
         let t1 = s
             .cross(&Vector3::x())
             .try_normalize(1e-6)
@@ -227,6 +216,17 @@ mod tests {
         let half = (0.25 * (a - c) * (a - c) + b * b).sqrt();
         (1.0 / (mean + half).sqrt(), 1.0 / (mean - half).sqrt())
     }
+
+    /// The angle 2V between the two optic axes of a biaxial crystal, radians.
+    pub fn optic_axis_angle(&self) -> Option<f64> {
+        let [u, v] = self.optic_axes()?;
+        Some(u.dot(&v).clamp(-1.0, 1.0).acos())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
 
     fn crystal(principal: [f64; 3], tilt: f64, az: f64, roll: f64) -> Anisotropic {
         Anisotropic::new(principal, orientation(tilt, az, roll), [0.0; 3]).unwrap()
@@ -247,12 +247,12 @@ mod tests {
         let m = crystal([1.83, 1.74, 1.75], 0.4, 1.1, -0.6);
         let axes = m.optic_axes().unwrap();
         for u in axes {
-            let (n1, n2) = indices_along(&m, u);
+            let (n1, n2) = m.indices_along(u);
             assert!((n1 - n2).abs() < 1e-12, "{n1} {n2}");
         }
         // And nowhere else nearby: a small step off the axis splits them.
         let off = (axes[0] + Vector3::new(0.0, 0.01, 0.0)).normalize();
-        let (n1, n2) = indices_along(&m, off);
+        let (n1, n2) = m.indices_along(off);
         assert!((n1 - n2).abs() > 1e-6);
     }
 

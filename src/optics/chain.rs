@@ -10,16 +10,22 @@
 //! its ray direction (q for isotropic media and ordinary waves, A·q for extraordinary ones) from
 //! plane to plane gives where it meets each face and whether it stays within the apertures.
 //!
+//! In a general crystal (biaxial or optically active) the root is the 4×4 solver's
+//! ([`crate::optics::general_modes`]) in the face's frame, the mode of the label's letter, and the
+//! ray direction is that mode's.
+//!
 //! [`chain`] follows one labelled ray ("oe": ordinary in the first crystal, extraordinary in the
-//! second) through a stack exactly as [`crate::optics::planar::trace_planar`] does: gaps, ideal
+//! second; `f`/`s` in a biaxial one) through a stack exactly as [`crate::optics::planar::trace_planar`] does: gaps, ideal
 //! elements, vanishing films, direct contact, apertures, total internal reflection, the screen.
 //! It returns what that trace reports for the same label (tested: directions and exit points
 //! agree to rounding, and the ray is missing from both or from neither). A tolerance run that
 //! needs only the directions of two rays (the split of an angular splitter) uses it instead of a
 //! whole trace: the same physics at a fraction of the work (see the benchmark in the README).
 
-use crate::optics::geometry::Plane;
-use crate::optics::modes::{ModeKind, wave_vector_across};
+use crate::optics::anisotropic::Anisotropic;
+use crate::optics::general_modes::general_modes;
+use crate::optics::geometry::{Plane, face_frame};
+use crate::optics::modes::{ModeKind, Travel, wave_vector_across};
 use crate::optics::stack::{Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
 use nalgebra::Vector3;
@@ -38,6 +44,9 @@ pub struct ChainEnd {
 enum In {
     Isotropic(f64),
     Crystal(Uniaxial, ModeKind),
+    /// A general crystal in the mode of a slot (its wave vector and ray direction found by the
+    /// 4×4 solver in each face's frame, as the whole trace finds them).
+    General(Anisotropic, ModeKind),
 }
 
 /// A ray in flight: where it is, its wave vector (lab frame) and the medium it is in.
@@ -46,6 +55,8 @@ struct Ray {
     at: Vector3<f64>,
     q: Vector3<f64>,
     medium: In,
+    /// The unit ray direction in a general crystal (found with the wave vector).
+    energy: Option<Vector3<f64>>,
 }
 
 impl Ray {
@@ -53,6 +64,7 @@ impl Ray {
     fn direction(&self) -> Vector3<f64> {
         match self.medium {
             In::Crystal(c, ModeKind::Extraordinary) => (c.extraordinary_surface() * self.q).normalize(),
+            In::General(..) => self.energy.unwrap_or_else(|| self.q.normalize()),
             _ => self.q.normalize(),
         }
     }
@@ -73,6 +85,19 @@ impl Ray {
             In::Crystal(c, ModeKind::Extraordinary) => {
                 wave_vector_across(self.q, normal, c.indices.no, Some(&c.extraordinary_surface()))?
             }
+            In::General(a, kind) => {
+                // The slot's forward mode in the face's frame, brought back to the lab frame.
+                let frame = face_frame(normal);
+                let qf = frame.transpose() * self.q;
+                let local = a.rotated(&frame.transpose());
+                let modes = general_modes(&local, [qf.x, qf.y], Travel::Forward);
+                let mode = modes[usize::from(kind == ModeKind::Extraordinary)].rotated(&frame);
+                if !mode.propagating {
+                    return None;
+                }
+                self.energy = mode.ray_direction();
+                mode.wave_vector()
+            }
         };
         self.medium = into;
         Some(self)
@@ -82,13 +107,13 @@ impl Ray {
 /// The crystal of a slab's medium in the mode the label's next letter names (`None` when the
 /// label has no letter left or an unknown one).
 fn next_mode(medium: Medium, letters: &mut std::str::Chars) -> Option<In> {
-    let Medium::Uniaxial(c) = medium;
-    let kind = match letters.next()? {
-        'o' => ModeKind::Ordinary,
-        'e' => ModeKind::Extraordinary,
-        _ => return None,
-    };
-    Some(In::Crystal(c, kind))
+    let letter = letters.next()?;
+    let slot = medium.letters().iter().position(|&c| c == letter)?;
+    let kind = [ModeKind::Ordinary, ModeKind::Extraordinary][slot];
+    Some(match medium {
+        Medium::Uniaxial(c) => In::Crystal(c, kind),
+        Medium::Anisotropic(a) => In::General(a, kind),
+    })
 }
 
 /// Follows the ray labelled `label` (one letter, `o` or `e`, per crystal) through `stack`: its
@@ -101,6 +126,7 @@ pub fn chain(stack: &Stack, label: &str) -> Option<ChainEnd> {
         at: Vector3::zeros(),
         q: stack.input.direction * stack.outside_index,
         medium: outside,
+        energy: None,
     };
     // The back face normal of a slab the ray waits at, its exit decided by the next element.
     let mut pending: Option<Vector3<f64>> = None;

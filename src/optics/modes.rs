@@ -58,7 +58,8 @@ pub enum Travel {
 }
 
 impl Travel {
-    fn sign(self) -> f64 {
+    /// +1 forward, −1 backward.
+    pub fn sign(self) -> f64 {
         match self {
             Travel::Forward => 1.0,
             Travel::Backward => -1.0,
@@ -124,6 +125,32 @@ impl Mode {
         mode.h *= Complex64::from(scale);
         mode.d *= Complex64::from(scale);
         mode
+    }
+
+    /// A mode whose fields another solver has found and normalized as this module's header says
+    /// (the general crystal's, [`crate::optics::general_modes`]); `ray` is its unit energy
+    /// direction, `None` when evanescent.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn assembled(
+        kind: ModeKind,
+        travel: Travel,
+        q: CVector3,
+        e: CVector3,
+        h: CVector3,
+        d: CVector3,
+        propagating: bool,
+        ray: Option<Vector3<f64>>,
+    ) -> Self {
+        Mode {
+            kind,
+            travel,
+            q,
+            e,
+            h,
+            d,
+            propagating,
+            ray,
+        }
     }
 
     /// Normal component q_z of the normalized wave vector.

@@ -22,9 +22,9 @@
 
 use crate::optics::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::optics::jones::JonesMatrix;
-use crate::optics::modes::{Mode, ModeKind, Travel, crystal_modes, isotropic_modes};
+use crate::optics::modes::{Mode, Travel, isotropic_modes};
 use crate::optics::spots::power_of;
-use crate::optics::stack::{Element, Medium, Stack};
+use crate::optics::stack::{Element, Stack};
 use crate::optics::traced::{LayerTrace, Path, Trace};
 use num_complex::Complex64;
 
@@ -71,9 +71,8 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
         let power_in = power(&paths);
         match layer.element {
             Element::Slab(slab) => {
-                let Medium::Uniaxial(crystal) = slab.medium;
-                let fwd = crystal_modes(&crystal, qt, Travel::Forward);
-                let back = crystal_modes(&crystal, qt, Travel::Backward);
+                let fwd = slab.medium.modes(qt, Travel::Forward);
+                let back = slab.medium.modes(qt, Travel::Backward);
                 let l = slab.thickness_mm;
                 let mut shifts = [[0.0; 2]; 2];
                 for (m, mode) in fwd.iter().enumerate() {
@@ -98,7 +97,7 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
                         pair
                     });
                 paths = match couplings {
-                    Some(t) => split(&paths, &fwd, &shifts, t, (k0, l), z + l),
+                    Some(t) => split(&paths, (&fwd, slab.medium.letters()), &shifts, t, (k0, l), z + l),
                     None => Vec::new(),
                 };
                 layers.push(LayerTrace::Slab {
@@ -153,7 +152,7 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
 /// coupling column; positions moved by each mode's shift to `z_back`.
 fn split(
     paths: &[Path],
-    fwd: &[Mode; 2],
+    (fwd, letters): (&[Mode; 2], [char; 2]),
     shifts: &[[f64; 2]; 2],
     (t_in, t_out): (CMatrix2, CMatrix2),
     (k0, l): (f64, f64),
@@ -170,7 +169,7 @@ fn split(
             let row = t_in.row(m).into_owned();
             let step: JonesMatrix = col * row * Complex64::from_polar(1.0, ph);
             let mut label = path.label.clone();
-            label.push(if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' });
+            label.push(letters[m]);
             let exit_mm = [
                 path.exit_point_mm[0] + shifts[m][0],
                 path.exit_point_mm[1] + shifts[m][1],

@@ -6,7 +6,7 @@
 //! - the face is solved in its own frame (z along n, see [`crate::optics::geometry`]): the
 //!   tangential part of q is conserved, both modes of the medium beyond are found at it (the
 //!   uniaxial closed form of [`crate::optics::modes`], with the optic axis rotated into the
-//!   frame), the root whose energy flows away from the face is taken, and the 4×4 boundary
+//!   frame, or the general crystal's 4×4 solver of [`crate::optics::general_modes`]), the root whose energy flows away from the face is taken, and the 4×4 boundary
 //!   problem of [`crate::optics::interface`] gives power-normalized transmission and reflection;
 //! - ideal faces take the lossless part of the transmission, uncoated faces the bare one;
 //! - a mode beyond the face that is evanescent reflects what would have gone into it: when that
@@ -32,11 +32,10 @@
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::optics::jones::JonesMatrix;
-use crate::optics::modes::{Mode, ModeKind, Travel, beam_basis, crystal_modes, isotropic_modes};
+use crate::optics::modes::{Mode, Travel, beam_basis, isotropic_modes};
 use crate::optics::spots::{coherency, power_of};
 use crate::optics::stack::{Contact, Element, Faces, Medium, Slab, Stack};
 use crate::optics::traced::{LayerTrace, Path, RejectReason, Rejected, Side, Trace};
-use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, POWER_ROUNDING};
 use nalgebra::{Matrix3, RowVector2, Vector3};
 use num_complex::Complex64;
@@ -46,7 +45,7 @@ use std::cell::RefCell;
 #[derive(Debug, Clone, Copy)]
 enum Body {
     Isotropic(f64),
-    Crystal(Uniaxial),
+    Crystal(Medium),
 }
 
 impl Body {
@@ -54,10 +53,7 @@ impl Body {
     fn modes(&self, frame: &Matrix3<f64>, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
         match *self {
             Body::Isotropic(n) => isotropic_modes(n, qt, travel),
-            Body::Crystal(c) => {
-                let local = Uniaxial::new(c.indices, c.axis.rotated(&frame.transpose()));
-                crystal_modes(&local, qt, travel)
-            }
+            Body::Crystal(c) => c.rotated(&frame.transpose()).modes(qt, travel),
         }
     }
 }
@@ -180,6 +176,25 @@ fn unit_field(mode: &Mode) -> Vector3<Complex64> {
     if n > 0.0 { mode.e / Complex64::from(n) } else { mode.e }
 }
 
+/// The share of the unit-power wave `own` in the mode `onto` of a flux-orthonormal pair across
+/// the face of unit normal `normal` (both lab frame): F(own, onto)/√F(own, own), with
+/// F(a, b) = ½ (a.E × b.h* + b.E* × a.h)·n the cross flux, so that the two shares' squares add
+/// to 1.
+fn flux_share(own: &Mode, onto: &Mode, normal: Vector3<f64>) -> Complex64 {
+    let n = normal.map(Complex64::from);
+    let f = |a: &Mode, b: &Mode| {
+        let hb = b.h.map(|z| z.conj());
+        let eb = b.e.map(|z| z.conj());
+        (a.e.cross(&hb) + eb.cross(&a.h)).dot(&n) * 0.5
+    };
+    let own_flux = f(own, own).re.abs().sqrt();
+    if own_flux > 0.0 {
+        f(own, onto) / own_flux
+    } else {
+        Complex64::ZERO
+    }
+}
+
 /// The result of one face crossing.
 struct Crossed {
     /// Rays beyond the face (at most one per mode), with the letter of their mode ('o'/'e') when
@@ -232,7 +247,12 @@ impl Tracer<'_> {
                     // on both. Modes of different wave vectors are not orthogonal in E.
                     let shared = (a_fwd_lab[0].q - a_fwd_lab[1].q).norm() <= DEGENERATE_DIRECTION;
                     let p = ej.dotc(&unit_field(own));
-                    let p = if shared {
+                    let p = if shared && matches!(from, Body::Crystal(Medium::Anisotropic(_))) {
+                        // A general crystal's degenerate pair is flux-orthonormal across this face
+                        // but its fields need not be orthogonal: the share of each is the flux
+                        // product with the ray's wave, itself brought to unit flux here.
+                        flux_share(own, mode, normal)
+                    } else if shared {
                         p
                     } else if mode.kind == own.kind && p.norm() > 0.0 {
                         p / Complex64::from(p.norm())
@@ -286,10 +306,11 @@ impl Tracer<'_> {
                     onward[0] = Some((Carrier::Free { n, u, m }, None));
                 }
             }
-            Body::Crystal(_) => {
+            Body::Crystal(medium) => {
+                let letters = medium.letters();
                 for (k, mode) in b_lab.iter().enumerate() {
                     if mode.propagating {
-                        let letter = if mode.kind == ModeKind::Ordinary { 'o' } else { 'e' };
+                        let letter = letters[k];
                         let amp = RowVector2::new(out[(k, 0)], out[(k, 1)]);
                         onward[k] = Some((Carrier::Bound { mode: *mode, amp }, Some(letter)));
                     }
@@ -589,18 +610,17 @@ pub fn alone(stack: &Stack, slab: &Slab, z_front: f64) -> [Option<(Vector3<f64>,
         ..stack.clone()
     };
     let traced = trace_planar(&single);
-    ["o", "e"].map(|label| {
+    slab.medium.letters().map(|letter| {
         traced
             .paths
             .iter()
-            .find(|p| p.label == label)
+            .find(|p| p.label.len() == 1 && p.label.starts_with(letter))
             .map(|p| (Vector3::from(p.exit_point_mm), p.direction))
     })
 }
 
 fn body_of(slab: &Slab) -> Body {
-    let Medium::Uniaxial(c) = slab.medium;
-    Body::Crystal(c)
+    Body::Crystal(slab.medium)
 }
 
 /// The slab's two modes just inside its front face for the incident beam (lab frame): what the
@@ -765,7 +785,7 @@ mod tests {
     use crate::optics::material::Indices;
     use crate::optics::parallel::trace_parallel;
     use crate::optics::stack::{Aperture, InputBeam, Layer};
-    use crate::optics::uniaxial::OpticAxis;
+    use crate::optics::uniaxial::{OpticAxis, Uniaxial};
     use crate::optics::wavelength::Wavelength;
     use crate::precision::assert_close;
     use std::f64::consts::FRAC_PI_4;

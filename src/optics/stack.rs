@@ -15,23 +15,85 @@
 //! - *faces at any angle*: a [`Slab`] gains its two faces (normal, contact), defaulting to the
 //!   plane z = const that every slab has today; the trace already solves each face in the frame
 //!   of its tangential wave vector;
-//! - *biaxial and chiral media*: [`Medium`] gains variants (a dielectric tensor, plus a gyration
-//!   vector), each with its own mode solver behind the same two-mode interface;
+//! - *biaxial and chiral media*: [`Medium::Anisotropic`] holds a general crystal, whose modes the
+//!   4×4 solver ([`crate::optics::general_modes`]) finds behind the same two-mode interface
+//!   ([`Medium::modes`]); its rays are labelled with its own letters ([`Medium::letters`]);
 //! - *stratified layers* (a liquid-crystal cell): [`Element`] gains a variant holding a list of
 //!   thin uniform sublayers, traced as one element with its own transfer matrix.
 
+use crate::optics::anisotropic::Anisotropic;
+use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::Plane;
 use crate::optics::interface::Losses;
 use crate::optics::jones::{Jones, JonesMatrix};
-use crate::optics::uniaxial::Uniaxial;
+use crate::optics::material::Indices;
+use crate::optics::modes::{Mode, Travel, crystal_modes};
+use crate::optics::uniaxial::{OpticAxis, Uniaxial};
 use crate::optics::wavelength::Wavelength;
-use nalgebra::Vector3;
+use nalgebra::{Matrix3, Vector3};
 
 /// The medium of a slab.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Medium {
     /// A uniaxial crystal: its two indices at the stack's wavelength and its optic axis.
     Uniaxial(Uniaxial),
+    /// A general crystal (biaxial and/or optically active) at the stack's wavelength, traced by
+    /// the 4×4 mode solver.
+    Anisotropic(Anisotropic),
+}
+
+impl Medium {
+    /// The letters of its two modes, first mode ([`crate::optics::modes::ModeKind::Ordinary`]
+    /// slot) first: `o`/`e` for a uniaxial crystal, the general crystal's own
+    /// ([`Anisotropic::letters`]: `o`/`e` or `f`/`s`).
+    pub fn letters(&self) -> [char; 2] {
+        match self {
+            Medium::Uniaxial(_) => ['o', 'e'],
+            Medium::Anisotropic(a) => a.letters().letters(),
+        }
+    }
+
+    /// The same medium seen in a frame rotated by `r` (every vector v becomes r·v).
+    pub fn rotated(&self, r: &Matrix3<f64>) -> Medium {
+        match self {
+            Medium::Uniaxial(c) => Medium::Uniaxial(Uniaxial::new(c.indices, c.axis.rotated(r))),
+            Medium::Anisotropic(a) => Medium::Anisotropic(a.rotated(r)),
+        }
+    }
+
+    /// Both modes at tangential wave vector `qt` across a face ⊥ z of this frame: the uniaxial
+    /// closed form ([`crystal_modes`]) or the general solver ([`general_modes`]).
+    pub fn modes(&self, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+        match self {
+            Medium::Uniaxial(c) => crystal_modes(c, qt, travel),
+            Medium::Anisotropic(a) => general_modes(a, qt, travel),
+        }
+    }
+
+    /// A uniaxial stand-in for reports written for uniaxial crystals: the crystal itself, or for
+    /// a general crystal its ordinary and extraordinary indices and optic axis when it has two
+    /// equal principal indices, otherwise its lowest and highest principal indices with the
+    /// highest one's axis. Its optical activity is left out.
+    pub fn nominal_uniaxial(&self) -> Uniaxial {
+        match self {
+            Medium::Uniaxial(c) => *c,
+            Medium::Anisotropic(a) => {
+                let p = a.principal;
+                let (axis, no) = match a.uniaxial_axis() {
+                    Some(k) => (k, p[(k + 1) % 3]),
+                    None => {
+                        let hi = (0..3).max_by(|&i, &j| p[i].total_cmp(&p[j])).unwrap_or(2);
+                        (hi, p.iter().cloned().fold(f64::INFINITY, f64::min))
+                    }
+                };
+                let ne = p[axis];
+                let indices = Indices::new(no, ne).unwrap_or_else(|_| Indices::new(1.5, 1.5).expect("valid indices"));
+                let unit: Vector3<f64> = a.axes.column(axis).into();
+                let axis = OpticAxis::from_vector(unit).unwrap_or_else(|_| OpticAxis::from_angles(0.0, 0.0));
+                Uniaxial::new(indices, axis)
+            }
+        }
+    }
 }
 
 /// How a slab's front face meets what comes before it.
@@ -105,6 +167,9 @@ impl Slab {
 }
 
 /// One element of the stack.
+// A slab is larger than an ideal element's Jones matrix (a general crystal's axes make it ~300
+// bytes); a stack holds a handful of elements, so boxing would only cost an allocation per copy.
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Element {
     /// A crystal plate, traced mode by mode with exact face couplings.
@@ -159,6 +224,19 @@ impl Stack {
     pub fn tangential(&self) -> [f64; 2] {
         let u = self.input.direction;
         [self.outside_index * u.x, self.outside_index * u.y]
+    }
+
+    /// Whether any slab is a general crystal ([`Medium::Anisotropic`]).
+    pub fn holds_general_crystal(&self) -> bool {
+        self.layers.iter().any(|l| {
+            matches!(
+                l.element,
+                Element::Slab(Slab {
+                    medium: Medium::Anisotropic(_),
+                    ..
+                })
+            )
+        })
     }
 
     /// Whether every face is perpendicular to z (no slab has placed faces): the version-1
