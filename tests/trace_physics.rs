@@ -114,7 +114,7 @@ fn a_quarter_wave_quartz_plate_turns_linear_light_circular() {
     let ElementReport::Crystal { no, ne, .. } = probe.elements[0] else {
         panic!()
     };
-    let l = 632.8e-6 / (4.0 * (ne - no));
+    let l = 632.8e-6 / (4.0 * (ne.unwrap() - no.unwrap()));
     let doc = format!(
         r#"{{"wavelength_nm": 632.8, "beam": {{"polarization": {{"kind": "linear", "azimuth_deg": 45}}}},
             "elements": [{{"kind": "crystal", "material": "quartz", "thickness_mm": {l}, "axis": {{"tilt_deg": 90}}}}]}}"#
@@ -190,11 +190,12 @@ fn evanescent_modes_are_reported_in_immersion() {
         "elements": [{"kind": "crystal", "no": 1.45, "ne": 1.3, "thickness_mm": 1, "axis": {"tilt_deg": 90, "azimuth_deg": 90}}]}"#;
     let r = run(doc);
     let ElementReport::Crystal {
-        o, e, separation_mm, ..
+        modes, separation_mm, ..
     } = &r.elements[0]
     else {
         panic!()
     };
+    let (o, e) = (&modes.first, &modes.second);
     assert_eq!(format!("{:?}", o.status), "Propagating");
     assert_eq!(format!("{:?}", e.status), "Evanescent");
     assert!(e.decay > 0.0 && separation_mm.is_none());

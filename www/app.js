@@ -35,11 +35,13 @@ const DESIGN_KEY = 'design=';
 
 // Defaults used when a new element is added or a loaded document leaves a field out.
 const ELEMENT_DEFAULTS = {
-  crystal: { material: 'calcite', thickness_mm: 10, tilt_deg: 45, azimuth_deg: 0, no: 1.6584, ne: 1.4864 },
+  crystal: { material: 'calcite', thickness_mm: 10, tilt_deg: 45, azimuth_deg: 0, roll_deg: 0, no: 1.6584, ne: 1.4864, nx: 1.74, ny: 1.75, nz: 1.83 },
   retarder: { retardance_waves: 0.25, fast_axis_deg: 0 },
   polarizer: { transmission_axis_deg: 0 },
   rotator: { angle_deg: 45 },
 };
+// The material choice of a crystal given by its three principal indices.
+const CUSTOM_PRINCIPAL = 'custom-principal';
 const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator' };
 
 // The page's state, handed to the modules that need it (state.js).
@@ -226,20 +228,31 @@ class Card {
 
     // Crystal.
     const matOptions = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
-    matOptions.push(['custom', 'custom indices']);
+    matOptions.push(['custom', 'custom indices nₒ, nₑ']);
+    matOptions.push([CUSTOM_PRINCIPAL, 'custom indices nx, ny, nz']);
     f.material = new Field({ key: 'material', label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
     f.material.row.insertBefore(this.materialNote, f.material.error);
     f.no = new Field({ key: 'no', label: 'nₒ, ordinary index', unit: '', step: 0.001 });
     f.ne = new Field({ key: 'ne', label: 'nₑ, extraordinary index', unit: '', step: 0.001 });
     this.customBox = h('div', { className: 'subgroup custom-indices' }, f.no.row, f.ne.row);
+    f.nx = new Field({ key: 'nx', label: 'nx, index along x', unit: '', step: 0.001 });
+    f.ny = new Field({ key: 'ny', label: 'ny, index along y', unit: '', step: 0.001 });
+    f.nz = new Field({ key: 'nz', label: 'nz, index along z', unit: '', step: 0.001 });
+    this.principalBox = h('div', { className: 'subgroup custom-indices' }, f.nx.row, f.ny.row, f.nz.row);
+    // Optical activity: shown for chiral crystals (quartz) only.
+    f.handedness = new Field({ key: 'handedness', label: 'Handedness', kind: 'select', options: [['right', 'right-handed'], ['left', 'left-handed']] });
+    f.activity = new Field({ key: 'optical_activity', label: 'Optical activity', kind: 'select', options: [['true', 'on'], ['false', 'off']], hint: 'Rotation along the optic axis, elliptical modes near it.' });
+    this.chiralBox = h('div', { className: 'subgroup chirality' }, f.handedness.row, f.activity.row);
     f.thickness = new Field({ key: 'thickness_mm', label: 'Thickness', unit: 'mm' });
     f.tilt = new Field({ key: 'axis.tilt_deg', label: 'Axis tilt', unit: '°', slider: ANGLE(0, 180), hint: 'Cut angle: optic axis from the plate normal +z.' });
     f.azimuth = new Field({ key: 'axis.azimuth_deg', label: 'Axis azimuth', unit: '°', slider: ANGLE(-180, 180) });
+    f.roll = new Field({ key: 'axes.roll_deg', label: 'Roll about z', unit: '°', slider: ANGLE(-180, 180), hint: 'Turns the x and y principal axes about the z axis.' });
     this.axisError = errorSlot(null);
-    const axisBox = h('div', { className: 'subgroup axis' }, h('p', { className: 'subgroup-title', text: 'Optic axis' }), f.tilt.row, f.azimuth.row, this.axisError);
+    this.axisTitle = h('p', { className: 'subgroup-title', text: 'Optic axis' });
+    const axisBox = h('div', { className: 'subgroup axis' }, this.axisTitle, f.tilt.row, f.azimuth.row, f.roll.row, this.axisError);
     this.groups = {
-      crystal: h('div', { className: 'kind-fields' }, f.material.row, this.customBox, f.thickness.row, axisBox),
+      crystal: h('div', { className: 'kind-fields' }, f.material.row, this.customBox, this.principalBox, this.chiralBox, f.thickness.row, axisBox),
     };
 
     // Retarder.
@@ -267,6 +280,12 @@ class Card {
     f.material.set(state.materialList.some((m) => m.key === d.crystal.material) ? d.crystal.material : (state.materialList[0]?.key ?? 'custom'));
     f.no.set(d.crystal.no);
     f.ne.set(d.crystal.ne);
+    f.nx.set(d.crystal.nx);
+    f.ny.set(d.crystal.ny);
+    f.nz.set(d.crystal.nz);
+    f.roll.set(d.crystal.roll_deg);
+    f.handedness.set('right');
+    f.activity.set('true');
     f.thickness.set(d.crystal.thickness_mm);
     f.tilt.set(d.crystal.tilt_deg);
     f.azimuth.set(d.crystal.azimuth_deg);
@@ -304,14 +323,21 @@ class Card {
 
   showMaterial() {
     const key = this.f.material.value;
-    if (this.customBox.hidden !== (key !== 'custom')) this.customBox.hidden = key !== 'custom';
+    const show = (el, on) => {
+      if (el.hidden !== !on) el.hidden = !on;
+    };
+    show(this.customBox, key === 'custom');
+    show(this.principalBox, key === CUSTOM_PRINCIPAL);
     const m = state.materialList.find((x) => x.key === key);
+    show(this.chiralBox, m?.optically_active === true);
+    this.syncAxisForm();
     if (m) {
       const unverified = m.verified === false ? ' · unverified data: no journal source' : '';
-      setText(this.materialNote, `${m.sign} uniaxial · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`);
+      const kind = m.kind === 'biaxial' ? 'biaxial, nx < ny < nz' : `${m.sign} uniaxial${m.optically_active ? ', optically active' : ''}`;
+      setText(this.materialNote, `${kind} · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`);
       setAttr(this.materialNote, 'title', m.citation);
       this.materialNote.hidden = false;
-    } else if (key === 'custom') {
+    } else if (key === 'custom' || key === CUSTOM_PRINCIPAL) {
       setText(this.materialNote, 'Fixed indices, no dispersion.');
       this.materialNote.removeAttribute('title');
       this.materialNote.hidden = false;
@@ -330,7 +356,7 @@ class Card {
     this.geometry.setIndex(p, `element ${n}`);
     this.syncGeometry();
     setAttr(this.cardError, 'data-error-for', p);
-    setAttr(this.axisError, 'data-error-for', `${p}.axis`);
+    setAttr(this.axisError, 'data-error-for', `${p}.${this.axisForm()}`);
     setAttr(this.up, 'aria-label', `Move element ${n} up`);
     setAttr(this.down, 'aria-label', `Move element ${n} down`);
     setAttr(this.remove, 'aria-label', `Remove element ${n}`);
@@ -339,6 +365,33 @@ class Card {
     setAttr(this.remove, 'title', `Remove element ${n}`);
     this.up.disabled = i === 0;
     this.down.disabled = i === count - 1;
+  }
+
+  /** Whether the crystal is given by its three principal axes (biaxial, or rolled). */
+  isBiaxial() {
+    const key = this.f.material.value;
+    return key === CUSTOM_PRINCIPAL || state.materialList.find((x) => x.key === key)?.kind === 'biaxial';
+  }
+
+  /** `axes` (with roll) for a biaxial crystal or a rolled one, else `axis`. */
+  axisForm() {
+    const roll = this.f.roll.value;
+    return this.isBiaxial() || (typeof roll === 'number' ? roll !== 0 : !this.f.roll.blank) ? 'axes' : 'axis';
+  }
+
+  /** The orientation fields follow the form: their paths, the roll row and the group's title. */
+  syncAxisForm() {
+    const form = this.axisForm();
+    const f = this.f;
+    if (this.shownAxisForm === form) return;
+    this.shownAxisForm = form;
+    f.tilt.key = `${form}.tilt_deg`;
+    f.azimuth.key = `${form}.azimuth_deg`;
+    if (f.roll.row.hidden !== (form !== 'axes')) f.roll.row.hidden = form !== 'axes';
+    setText(this.axisTitle, this.isBiaxial() ? 'Principal axes (z axis, then the roll about it)' : 'Optic axis');
+    setText(f.tilt.labelEl, this.isBiaxial() ? 'z-axis tilt' : 'Axis tilt');
+    setText(f.azimuth.labelEl, this.isBiaxial() ? 'z-axis azimuth' : 'Axis azimuth');
+    if (this.index !== undefined) this.setIndex(this.index, state.cards.length);
   }
 
   /** The element as a contract object, in the order the contract writes it. */
@@ -350,11 +403,23 @@ class Card {
       if (f.material.value === 'custom') {
         o.no = f.no.value;
         o.ne = f.ne.value;
+      } else if (f.material.value === CUSTOM_PRINCIPAL) {
+        o.nx = f.nx.value;
+        o.ny = f.ny.value;
+        o.nz = f.nz.value;
       } else {
         o.material = f.material.value;
       }
+      if (!this.chiralBox.hidden) {
+        o.handedness = f.handedness.value;
+        o.optical_activity = f.activity.value === 'true' ? true : f.activity.value === 'false' ? false : f.activity.value;
+      }
       o.thickness_mm = f.thickness.value;
-      o.axis = { tilt_deg: f.tilt.value, azimuth_deg: f.azimuth.value };
+      if (this.axisForm() === 'axes') {
+        o.axes = { tilt_deg: f.tilt.value, azimuth_deg: f.azimuth.value, roll_deg: f.roll.value };
+      } else {
+        o.axis = { tilt_deg: f.tilt.value, azimuth_deg: f.azimuth.value };
+      }
       this.geometry.write(o);
     } else if (kind === 'retarder') {
       o.retardance_waves = f.retardance.value;
@@ -385,11 +450,20 @@ class Card {
         f.material.set('custom');
         f.no.set(obj.no);
         f.ne.set(obj.ne);
+      } else if (obj.nx !== undefined || obj.ny !== undefined || obj.nz !== undefined) {
+        f.material.set(CUSTOM_PRINCIPAL);
+        f.nx.set(obj.nx);
+        f.ny.set(obj.ny);
+        f.nz.set(obj.nz);
       }
+      f.handedness.set(obj.handedness ?? 'right');
+      f.activity.set(obj.optical_activity === undefined ? 'true' : String(obj.optical_activity));
       f.thickness.set(obj.thickness_mm);
-      const axis = obj.axis && typeof obj.axis === 'object' ? obj.axis : {};
+      const given = obj.axes ?? obj.axis;
+      const axis = given && typeof given === 'object' ? given : {};
       f.tilt.set(axis.tilt_deg);
       f.azimuth.set(axis.azimuth_deg ?? 0);
+      f.roll.set(axis.roll_deg ?? 0);
     } else if (kind === 'retarder') {
       f.retardance.set(obj.retardance_waves ?? d.retarder.retardance_waves);
       f.fast.set(obj.fast_axis_deg ?? 0);
@@ -592,6 +666,7 @@ const GROUP_LABELS = {
   'beam.polarization.jones[1]': 'Jones vector, E2',
   'beam.polarization.stokes': 'Stokes vector',
   'elements[].axis': 'Optic axis',
+  'elements[].axes': 'Principal axes',
   ...GEOMETRY_GROUPS,
 };
 

@@ -40,6 +40,7 @@ const formats = {
   waves: (v) => `${fixed(v, 5, 5e-13)}${NBSP}waves`,
   rad: (v) => `${fixed(v, 4, 5e-13)}${NBSP}rad`,
   count: (v) => String(v),
+  delay: (v) => fmt.delay(v),
   power: (v) => fmt.power(v),
   fraction: (v) => fixed(v, 8),
   /** Significant digits with a unit; "no limit" for the solver's "never" (f64::MAX). */
@@ -175,6 +176,7 @@ export function displacerResults(state, d, run) {
       ['clipped per beam', 'clipping_per_beam', formats.sig('', 3)],
       ['o–e exit phase', 'exit_phase_rad', formats.rad],
       ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', formats.rad],
+      ['group delay, e pulse after o pulse', 'group_delay_ps', formats.delay],
     ]),
     resultCard(d, 'Crystal', [
       ['wavelength', 'wavelength_nm', formats.nm],
@@ -267,7 +269,8 @@ export function waveplateResults(state, d) {
       ['nₒ', 'no', formats.index],
       ['nₑ', 'ne', formats.index],
       ['nₑ − nₒ', 'birefringence', formats.sig('', 6)],
-    ], { note: 'Signed: positive when the optic axis is the slow axis.' }),
+      ['group delay, axis pulse after across', 'group_delay_ps', formats.delay],
+    ], { note: 'Signed: positive when the optic axis is the slow axis; the group delay likewise, for the pulse polarized along it.' }),
     resultCard(d, 'Angle of incidence', [
       ['acceptance (worst plane)', 'acceptance_deg', formats.angle],
       ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, formats.angle]),

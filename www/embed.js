@@ -271,7 +271,11 @@ class SparFigure extends HTMLElement {
         const c = sc.elements[i];
         const maxT = Math.max(20, Math.ceil(c.thickness_mm * 2));
         this._bar.append(this._slider('Thickness', `elements[${i}].thickness_mm`, c.thickness_mm, 0.1, maxT, 0.1, ' mm'));
-        this._bar.append(this._slider('Axis tilt', `elements[${i}].axis.tilt_deg`, c.axis.tilt_deg, 0, 90, 0.5, '°'));
+        // `axes` (a biaxial or rolled crystal) or `axis`: the slider writes back the form it read.
+        const form = c.axes ? 'axes' : 'axis';
+        if (c[form] && typeof c[form].tilt_deg === 'number') {
+          this._bar.append(this._slider('Axis tilt', `elements[${i}].${form}.tilt_deg`, c[form].tilt_deg, 0, 90, 0.5, '°'));
+        }
       }
     }
     if (this._readout) this._bar.append(this._readout);

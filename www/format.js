@@ -181,10 +181,15 @@ export const fmt = {
   rad: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} rad`),
   waves: (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4, 5e-13)} waves`),
   dop: (v) => fixed(v, 4, 5e-13),
+  // A group delay given in ps: in fs below 1 ps, 4 significant digits.
+  delay: (v) => {
+    if (v === null || v === undefined) return '—';
+    return Math.abs(v) < 1 ? `${sig(v * 1000, 4)} fs` : `${sig(v, 4)} ps`;
+  },
   text: (v) => (v === null || v === undefined ? '—' : String(v)),
   labels: (v) => (Array.isArray(v) ? v.map((x) => x || '(no crystal)').join(' + ') : String(v)),
 };
 
 export function unitWord(unit) {
-  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves' }[unit] ?? unit;
+  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves', ps: 'picoseconds', fs: 'femtoseconds' }[unit] ?? unit;
 }

@@ -19,7 +19,7 @@
 // NO_POWER reads "no power"; circular light shows no azimuth ("—", the title says why).
 
 import { h } from './dom.js';
-import { fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
+import { fixed, fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
 import { materialName } from './state.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
@@ -57,7 +57,8 @@ function cellMaker(cells) {
 
 function shapeOf(r, showAll) {
   const parts = [
-    r.elements.map((e) => e.kind).join(','),
+    // A crystal's rows depend on its letters and on whether it is optically active.
+    r.elements.map((e) => `${e.kind}${e.f !== undefined ? ':fs' : ''}${e.rotatory_power_deg_per_mm !== undefined ? ':active' : ''}`).join(','),
     r.rays.map((x) => x.label).join(','),
     r.spots.length,
     (r.rejected ?? []).map((x) => `${x.label}@${x.element}`).join(','),
@@ -92,6 +93,11 @@ function appendPolarizationCells(cell, tr, p, pick) {
   tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
 }
 
+/** A crystal report's two mode letters: ['f', 's'] for a biaxial crystal, ['o', 'e'] otherwise. */
+export function modeLetters(e) {
+  return e && e.f !== undefined ? ['f', 's'] : ['o', 'e'];
+}
+
 /** A spot's rays as labels; past four, the first two and a count (a spot may hold 4096 rays). */
 const spotRays = (v) => fmt.labels(Array.isArray(v) && v.length > 4 ? [v[0], v[1], `… ${v.length} rays`] : v);
 
@@ -111,21 +117,38 @@ function buildResults(state, r) {
     };
     if (e.kind === 'crystal') {
       title.appendChild(cell('span', `${p}.material`, (x) => x.elements[i].material, (v) => (v === 'custom' ? 'crystal, custom indices' : `${materialName(state, v)} crystal`)));
-      row('nₒ', `${p}.no`, (x) => x.elements[i].no, fmt.index);
-      row('nₑ', `${p}.ne`, (x) => x.elements[i].ne, fmt.index);
-      row('o-wave index', `${p}.o.index`, (x) => x.elements[i].o.index, fmt.index);
-      row('e-wave index', `${p}.e.index`, (x) => x.elements[i].e.index, fmt.index);
-      row('o walk-off', `${p}.o.walkoff_deg`, (x) => x.elements[i].o.walkoff_deg, fmt.deg);
-      row('e walk-off', `${p}.e.walkoff_deg`, (x) => x.elements[i].e.walkoff_deg, fmt.deg);
-      row('o/e separation', `${p}.separation_mm`, (x) => x.elements[i].separation_mm, fmt.mm);
+      // A biaxial crystal's modes are f (fast) and s (slow), a uniaxial one's o and e.
+      const [a, b] = modeLetters(e);
+      if (a === 'f') {
+        row('nx', `${p}.nx`, (x) => x.elements[i].nx, fmt.index);
+        row('ny', `${p}.ny`, (x) => x.elements[i].ny, fmt.index);
+        row('nz', `${p}.nz`, (x) => x.elements[i].nz, fmt.index);
+        row('angle between the optic axes (2V)', `${p}.optic_axis_angle_deg`, (x) => x.elements[i].optic_axis_angle_deg, fmt.deg);
+      } else {
+        row('nₒ', `${p}.no`, (x) => x.elements[i].no, fmt.index);
+        row('nₑ', `${p}.ne`, (x) => x.elements[i].ne, fmt.index);
+      }
+      if (e.rotatory_power_deg_per_mm !== undefined) {
+        row('rotatory power along the axis', `${p}.rotatory_power_deg_per_mm`, (x) => x.elements[i].rotatory_power_deg_per_mm, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4)}°/mm`));
+      }
+      row(`${a}-wave index`, `${p}.${a}.index`, (x) => x.elements[i][a]?.index, fmt.index);
+      row(`${b}-wave index`, `${p}.${b}.index`, (x) => x.elements[i][b]?.index, fmt.index);
+      row(`${a} walk-off`, `${p}.${a}.walkoff_deg`, (x) => x.elements[i][a]?.walkoff_deg, fmt.deg);
+      row(`${b} walk-off`, `${p}.${b}.walkoff_deg`, (x) => x.elements[i][b]?.walkoff_deg, fmt.deg);
+      row(`${a}/${b} separation`, `${p}.separation_mm`, (x) => x.elements[i].separation_mm, fmt.mm);
       row('split angle', `${p}.split_angle_deg`, (x) => x.elements[i].split_angle_deg, fmt.deg);
       row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);
       row('retardance', `${p}.retardance_waves`, (x) => x.elements[i].retardance_waves, fmt.waves);
+      row(`${a} group index`, `${p}.${a}.group_index`, (x) => x.elements[i][a]?.group_index, fmt.index);
+      row(`${b} group index`, `${p}.${b}.group_index`, (x) => x.elements[i][b]?.group_index, fmt.index);
+      row(`group delay, ${b} after ${a}`, `${p}.group_delay_ps`, (x) => x.elements[i].group_delay_ps, fmt.delay);
       row('reflected power', `${p}.reflected_power`, (x) => x.elements[i].reflected_power, fmt.power);
-      row('largest walk-off', `${p}.max_walkoff_deg`, (x) => x.elements[i].max_walkoff_deg, fmt.deg);
-      row('… at a cut of', `${p}.max_walkoff_cut_deg`, (x) => x.elements[i].max_walkoff_cut_deg, fmt.deg);
-      row('o mode', `${p}.o.status`, (x) => x.elements[i].o.status, fmt.text);
-      row('e mode', `${p}.e.status`, (x) => x.elements[i].e.status, fmt.text);
+      if (a === 'o') {
+        row('largest walk-off', `${p}.max_walkoff_deg`, (x) => x.elements[i].max_walkoff_deg, fmt.deg);
+        row('… at a cut of', `${p}.max_walkoff_cut_deg`, (x) => x.elements[i].max_walkoff_cut_deg, fmt.deg);
+      }
+      row(`${a} mode`, `${p}.${a}.status`, (x) => x.elements[i][a]?.status, fmt.text);
+      row(`${b} mode`, `${p}.${b}.status`, (x) => x.elements[i][b]?.status, fmt.text);
     } else if (e.kind === 'retarder') {
       title.appendChild(document.createTextNode('retarder'));
       row('retardance', `${p}.retardance_rad`, (x) => x.elements[i].retardance_rad, fmt.rad);

@@ -17,6 +17,7 @@ import { h, setAttr, setText } from './dom.js';
 import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth } from './format.js';
 import { toFieldError } from './field-error.js';
 import { materialName } from './state.js';
+import { modeLetters } from './results.js';
 
 
 // The side view's planes: view name, the chooser's words, the plane in the text alternative and
@@ -150,9 +151,10 @@ export function describeViews(state) {
     texts.side = `${sideHead}: ${r.elements.length} ideal element${r.elements.length === 1 ? '' : 's'} and no crystal; the beam passes undivided.`;
   } else if (crystals.length === 1) {
     const c = r.elements[crystals[0]];
+    const [a, b] = modeLetters(c);
     texts.side = c.separation_mm === null
       ? `${sideHead}: one ${materialName(state, c.material)} plate; one of its modes is evanescent, so the beam is not split.`
-      : `${sideHead}: e-ray displaced ${lengthText(c.separation_mm)} from the o-ray by the ${materialName(state, c.material)} plate (element ${crystals[0] + 1}), e walk-off ${num(c.e.walkoff_deg, 3)}°.`;
+      : `${sideHead}: ${b}-ray displaced ${lengthText(c.separation_mm)} from the ${a}-ray by the ${materialName(state, c.material)} plate (element ${crystals[0] + 1}), ${b} walk-off ${num(c[b].walkoff_deg, 3)}°.`;
   } else {
     texts.side = `${sideHead}: ${r.rays.length} rays through ${crystals.length} crystals leave in ${spots.length} spot${spots.length === 1 ? '' : 's'}${spots.length > 1 ? `, at most ${lengthText(maxSpotDistance(spots))} apart` : ''}.`;
   }
@@ -178,9 +180,12 @@ export function describeViews(state) {
     const c = r.elements[i];
     const which = `element ${i + 1} (${describeMaterial(c.material)})`;
     const sc = shownScenario?.elements?.[i];
-    const tilt = sc?.axis?.tilt_deg;
-    const walk = c.e.walkoff_deg === null ? 'the e-mode is evanescent' : `e walk-off ${num(c.e.walkoff_deg, 3)}°`;
-    texts['walkoff-tilt'] = `Walk-off against cut tilt for ${which}: ${walk} at the present tilt${typeof tilt === 'number' ? ` of ${num(tilt, 2)}°` : ''}; at normal incidence the largest walk-off, ${num(c.max_walkoff_deg, 3)}°, comes at a cut of ${num(c.max_walkoff_cut_deg, 2)}°.`;
+    const tilt = (sc?.axes ?? sc?.axis)?.tilt_deg;
+    const [, b] = modeLetters(c);
+    const walk = c[b].walkoff_deg === null ? `the ${b}-mode is evanescent` : `${b} walk-off ${num(c[b].walkoff_deg, 3)}°`;
+    texts['walkoff-tilt'] = c.max_walkoff_deg === undefined
+      ? `Walk-off against cut tilt for ${which}: ${walk}; the plot covers uniaxial crystals.`
+      : `Walk-off against cut tilt for ${which}: ${walk} at the present tilt${typeof tilt === 'number' ? ` of ${num(tilt, 2)}°` : ''}; at normal incidence the largest walk-off, ${num(c.max_walkoff_deg, 3)}°, comes at a cut of ${num(c.max_walkoff_cut_deg, 2)}°.`;
     texts['separation-wavelength'] = `Separation against wavelength for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(r.wavelength_nm, 1)} nm.`;
     texts['retardance-wavelength'] = `Retardance against wavelength for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(r.wavelength_nm, 1)} nm.`;
   }

@@ -99,6 +99,22 @@ impl<'a> Fields<'a> {
         }
     }
 
+    /// The member `name` as `true` or `false`, if present.
+    ///
+    /// # Errors
+    /// The member's path when it is present but not a boolean.
+    pub fn boolean(&mut self, name: &'static str) -> Result<Option<bool>, Error> {
+        let path = self.path_of(name);
+        match self.get(name) {
+            None => Ok(None),
+            Some(Value::Bool(b)) => Ok(Some(*b)),
+            Some(other) => Err(Error::new(
+                path,
+                format!("must be true or false, got {}", type_name(other)),
+            )),
+        }
+    }
+
     /// Fails on the first member that was never asked for, naming it.
     ///
     /// # Errors

@@ -11,12 +11,16 @@
 //! from e1 toward e2; a right-handed circular state has S3 > 0.
 
 use crate::contract::geometry::Contact;
-use crate::contract::scenario::{ElementKind, Polarization, Scenario};
+use crate::contract::scenario::{CrystalPlate, ElementKind, Polarization, PrincipalIndices, Scenario};
 use crate::error::{Error, in_range};
+use crate::optics::anisotropic::{Anisotropic, orientation};
 use crate::optics::geometry::direction;
 use crate::optics::jones::{self, Jones};
+use crate::optics::material::{self, Indices};
 use crate::optics::stack::{Element, InputBeam, Layer, Medium, Slab, Stack};
 use crate::optics::uniaxial::{OpticAxis, Uniaxial};
+use crate::optics::wavelength::Wavelength;
+use nalgebra::Vector3;
 use num_complex::Complex64;
 use std::f64::consts::TAU;
 
@@ -44,29 +48,27 @@ impl Scenario {
             z += el.gap_mm;
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
-                    let ev = plate
-                        .medium
-                        .evaluate(self.wavelength)
-                        .map_err(|e| Error::new(e.field, format!("{} (elements[{idx}])", e.message)))?;
-                    warnings.extend(ev.warnings.into_iter().map(|w| Warning {
+                    let (mut medium, found) =
+                        crystal_medium(&plate, self.wavelength).map_err(|e| match e.field.as_str() {
+                            "wavelength_nm" => Error::new(e.field, format!("{} (elements[{idx}])", e.message)),
+                            _ => e.within(&format!("elements[{idx}]")),
+                        })?;
+                    warnings.extend(found.into_iter().map(|w| Warning {
                         element: idx,
                         text: format!("elements[{idx}]: {w}"),
                     }));
-                    let indices = ev.indices;
-                    let mut axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg)
-                        .map_err(|e| e.within(&format!("elements[{idx}].axis")))?;
                     // Version 1's plate keeps the shared-tangential trace; any placement or contact
                     // places its faces in the lab frame, the mount turning the optic axis too.
                     let faces = if plate.placement.is_default() && el.contact == Contact::Air {
                         None
                     } else {
                         let (faces, mount) = plate.placement.place(z, plate.thickness_mm, el.contact);
-                        axis = axis.rotated(&mount);
+                        medium = medium.rotated(&mount);
                         Some(faces)
                     };
                     z += plate.thickness_mm;
                     Element::Slab(Slab {
-                        medium: Medium::Uniaxial(Uniaxial::new(indices, axis)),
+                        medium,
                         thickness_mm: plate.thickness_mm,
                         faces,
                     })
@@ -102,6 +104,55 @@ impl Scenario {
         };
         Ok((stack, warnings))
     }
+}
+
+/// A crystal's medium at `wavelength` in its element frame, with the catalogue's warnings: the
+/// uniaxial closed form for a uniaxial crystal without optical activity (catalogued, `no` + `ne`,
+/// or `nx`/`ny`/`nz` with two equal), the general crystal otherwise (biaxial, or quartz with its
+/// optical activity). Orientation R = Rz(azimuth)·Ry(tilt)·Rz(roll) (CONVENTIONS.md, "More
+/// media"); a chiral crystal's gyration [g11, g11, g33] is negated for a left-handed one and
+/// becomes its chirality by [`Anisotropic::chirality_from_gyration`].
+///
+/// # Errors
+/// `wavelength_nm` where a dispersion or rotatory formula breaks down; `axis.tilt_deg`,
+/// `axis.azimuth_deg` for a hand-built plate out of range.
+fn crystal_medium(plate: &CrystalPlate, wavelength: Wavelength) -> Result<(Medium, Vec<String>), Error> {
+    let (principal, mut warnings) = plate.medium.principal(wavelength)?;
+    let axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg).map_err(|e| e.within("axis"))?;
+    let rotation = orientation(
+        plate.tilt_deg.to_radians(),
+        plate.azimuth_deg.to_radians(),
+        plate.roll_deg.to_radians(),
+    );
+    let medium = match principal {
+        PrincipalIndices::Uniaxial(ix) => match plate.chirality.filter(|c| c.active) {
+            None => Medium::Uniaxial(Uniaxial::new(ix, axis)),
+            Some(chirality) => {
+                let activity = material::optical_activity(plate.medium.key())
+                    .ok_or_else(|| Error::new("optical_activity", "this crystal has no optical activity data"))?
+                    .at(wavelength)?;
+                warnings.extend(activity.warnings);
+                let sign = if chirality.right_handed { 1.0 } else { -1.0 };
+                let kappa = Anisotropic::chirality_from_gyration(activity.gyration.map(|g| sign * g));
+                Medium::Anisotropic(Anisotropic::new([ix.no, ix.no, ix.ne], rotation, kappa)?)
+            }
+        },
+        PrincipalIndices::Triple(p) => {
+            let general = Anisotropic::new(p, rotation, [0.0; 3])?;
+            match general.uniaxial_axis() {
+                // Two equal indices: uniaxial, its optic axis along the third principal axis.
+                Some(k) => {
+                    let c: Vector3<f64> = rotation.column(k).into();
+                    Medium::Uniaxial(Uniaxial::new(
+                        Indices::new(p[(k + 1) % 3], p[k])?,
+                        OpticAxis::from_vector(c)?,
+                    ))
+                }
+                None => Medium::Anisotropic(general),
+            }
+        }
+    };
+    Ok((medium, warnings))
 }
 
 /// The optic axis from its tilt from +z (`tilt_deg`, 0–180°) and the azimuth of its projection

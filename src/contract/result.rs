@@ -19,16 +19,17 @@ use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::interface::Losses;
 use crate::optics::jones::to_json;
+use crate::optics::material::Indices;
 use crate::optics::modes::{Mode, ModeKind, beam_basis};
 use crate::optics::planar::alone;
 pub use crate::optics::spots::Spot;
 use crate::optics::spots::{Exit, group_spots};
 use crate::optics::spots_tilted::{ScreenRay, group_tilted};
-use crate::optics::stack::{Element, Stack};
+use crate::optics::stack::{Element, Medium, Stack};
 use crate::optics::stokes::{self, Ellipse};
 use crate::optics::trace::trace;
 use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
-use crate::optics::uniaxial::{OpticAxis, angle_between, max_walkoff_cut};
+use crate::optics::uniaxial::{angle_between, max_walkoff_cut};
 use crate::precision::POWER_ROUNDING;
 use crate::precision::{DEGENERATE_DIRECTION, SAME_DIRECTION_TILT};
 use nalgebra::Vector3;
@@ -112,9 +113,36 @@ pub struct ModeReport {
     pub e_polarization: Option<[f64; 3]>,
     /// Lateral shift [dx, dy] of this mode's ray across the plate, mm.
     pub lateral_shift_mm: Option<[f64; 2]>,
+    /// Ellipticity angle of the mode's electric field, degrees, on the basis of its wave vector
+    /// (positive right-handed): reported for the modes of a general crystal, which are elliptical
+    /// near an optically active crystal's axis (left out for the uniaxial closed form's linear
+    /// modes).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ellipticity_deg: Option<f64>,
     /// Group index along the face normal, g = ξ − λ dξ/dλ at fixed tangential wave vector
     /// (n − λ dn/dλ at normal incidence; [`crate::contract::group`]); null if evanescent.
     pub group_index: Option<f64>,
+}
+
+/// A crystal's two modes: the first (o, or f: fast) and the second (e, or s: slow).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModePair {
+    /// Their letters, first mode first.
+    pub letters: [char; 2],
+    /// The first mode (o or f).
+    pub first: ModeReport,
+    /// The second mode (e or s).
+    pub second: ModeReport,
+}
+
+impl Serialize for ModePair {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        let mut map = s.serialize_map(Some(2))?;
+        map.serialize_entry(&self.letters[0].to_string(), &self.first)?;
+        map.serialize_entry(&self.letters[1].to_string(), &self.second)?;
+        map.end()
+    }
 }
 
 /// What one element did.
@@ -128,20 +156,45 @@ pub enum ElementReport {
     Crystal {
         /// Catalogue key, or "custom".
         material: String,
-        /// Ordinary index at the wavelength.
-        no: f64,
-        /// Extraordinary principal index at the wavelength.
-        ne: f64,
+        /// Ordinary index at the wavelength (uniaxial crystals).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        no: Option<f64>,
+        /// Extraordinary principal index at the wavelength (uniaxial crystals).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        ne: Option<f64>,
+        /// Principal indices n_x, n_y, n_z at the wavelength (biaxial crystals).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        nx: Option<f64>,
+        /// See `nx`.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        ny: Option<f64>,
+        /// See `nx`.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        nz: Option<f64>,
+        /// The two optic axes (binormals) of a biaxial crystal, unit vectors in the lab frame,
+        /// the first with a positive component along its x principal axis.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        optic_axes: Option<[[f64; 3]; 2]>,
+        /// The angle 2V between them, degrees.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        optic_axis_angle_deg: Option<f64>,
+        /// `right` or `left` for an optically active crystal whose activity is traced.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        handedness: Option<&'static str>,
+        /// Its rotatory power along the optic axis, degrees per mm, positive when the plane of
+        /// polarization turns clockwise as seen looking toward the source (right-handed).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        rotatory_power_deg_per_mm: Option<f64>,
         /// Thickness, mm.
         thickness_mm: f64,
         /// z of the front face, mm.
         z_front_mm: f64,
         /// z of the back face, mm.
         z_back_mm: f64,
-        /// The ordinary mode.
-        o: ModeReport,
-        /// The extraordinary mode.
-        e: ModeReport,
+        /// Its two modes, written under their letters: `o` and `e` (uniaxial) or `f` and `s`
+        /// (biaxial).
+        #[serde(flatten)]
+        modes: ModePair,
         /// Distance between the exit points of the o- and e-ray of one input ray, mm.
         separation_mm: Option<f64>,
         /// e-ray exit point minus o-ray exit point [dx, dy], mm.
@@ -157,10 +210,12 @@ pub enum ElementReport {
         /// medium, lit by the incident beam, degrees (0 for plane-parallel faces).
         split_angle_deg: f64,
         /// Cut angle (between optic axis and plate normal) of maximum walk-off at normal incidence
-        /// for this material at this wavelength, degrees: tan θ = n_e/n_o.
-        max_walkoff_cut_deg: f64,
+        /// for this material at this wavelength, degrees: tan θ = n_e/n_o (uniaxial crystals).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        max_walkoff_cut_deg: Option<f64>,
         /// That maximum walk-off, degrees: tan ρ = |n_e² − n_o²| / (2 n_o n_e).
-        max_walkoff_deg: f64,
+        #[serde(skip_serializing_if = "Option::is_none")]
+        max_walkoff_deg: Option<f64>,
         /// Power entering this plate (sum over its input rays).
         power_in: f64,
         /// Power reflected at its two faces and lost (0 for ideal faces).
@@ -312,7 +367,73 @@ fn lost_power(before: f64, after: f64) -> f64 {
     }
 }
 
-fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
+/// The optic axis a report measures angles from: a uniaxial crystal's (general or not); none for a
+/// biaxial one.
+fn report_axis(medium: &Medium) -> Option<Vector3<f64>> {
+    match medium {
+        Medium::Uniaxial(c) => Some(c.axis.unit()),
+        Medium::Anisotropic(a) => a.uniaxial_axis().map(|k| a.axes.column(k).into()),
+    }
+}
+
+/// Ellipticity angle (degrees, positive right-handed) of a complex field E seen along `khat`, on
+/// the beam basis of `khat` (CONVENTIONS.md: S3 = 2 Im(E1 E2*), sin 2χ = S3/S0).
+fn ellipticity_deg(e: &crate::optics::modes::CVector3, khat: &Vector3<f64>) -> f64 {
+    let (b1, b2) = beam_basis(*khat);
+    let dot = |b: &Vector3<f64>| e[0] * b.x + e[1] * b.y + e[2] * b.z;
+    let (e1, e2) = (dot(&b1), dot(&b2));
+    let s0 = e1.norm_sqr() + e2.norm_sqr();
+    let s3 = 2.0 * (e1 * e2.conj()).im;
+    if s0 > 0.0 {
+        0.5 * (s3 / s0).clamp(-1.0, 1.0).asin().to_degrees()
+    } else {
+        0.0
+    }
+}
+
+/// What a crystal report says of its medium's principal indices and axes.
+struct CrystalIndices {
+    /// n_o, n_e of a uniaxial crystal.
+    uniaxial: Option<Indices>,
+    /// n_x, n_y, n_z of a biaxial one, along its principal axes.
+    biaxial: Option<[f64; 3]>,
+    /// Its two optic axes (lab frame).
+    optic_axes: Option<[Vector3<f64>; 2]>,
+    /// Rotatory power along the optic axis divided by k0 ((κ₁ + κ₂)/2 of the chiral form), signed.
+    rotatory_kappa: Option<f64>,
+}
+
+impl CrystalIndices {
+    fn of(medium: &Medium) -> CrystalIndices {
+        match medium {
+            Medium::Uniaxial(c) => CrystalIndices {
+                uniaxial: Some(c.indices),
+                biaxial: None,
+                optic_axes: None,
+                rotatory_kappa: None,
+            },
+            Medium::Anisotropic(a) => match a.uniaxial_axis() {
+                Some(k) => CrystalIndices {
+                    uniaxial: Indices::new(a.principal[(k + 1) % 3], a.principal[k]).ok(),
+                    biaxial: None,
+                    optic_axes: None,
+                    // Along the axis a₃ the rotation is k0 (κ₁ + κ₂)/2 (anisotropic.rs).
+                    rotatory_kappa: a
+                        .is_chiral()
+                        .then(|| 0.5 * (a.chirality[(k + 1) % 3] + a.chirality[(k + 2) % 3])),
+                },
+                None => CrystalIndices {
+                    uniaxial: None,
+                    biaxial: Some(a.principal),
+                    optic_axes: a.optic_axes(),
+                    rotatory_kappa: None,
+                },
+            },
+        }
+    }
+}
+
+fn mode_report(mode: &Mode, medium: &Medium, thickness_mm: f64) -> ModeReport {
     let unit = |v: Vector3<f64>| {
         let n = v.norm();
         (n > 0.0).then(|| arr3(v / n))
@@ -331,6 +452,7 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
             d_polarization: None,
             e_polarization: None,
             lateral_shift_mm: None,
+            ellipticity_deg: None,
             group_index: None,
         };
     }
@@ -338,19 +460,23 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
     let s = mode.ray_direction().unwrap_or(k / k.norm());
     let khat = k / k.norm();
     let lean = s - khat * s.dot(&khat);
-    // The o-wave's ray is its wave vector exactly; say so rather than report rounding.
-    let walkoff = if mode.kind == ModeKind::Ordinary {
+    let general = matches!(medium, Medium::Anisotropic(_));
+    // The uniaxial o-wave's ray is its wave vector exactly; say so rather than report rounding.
+    let walkoff = if mode.kind == ModeKind::Ordinary && !general {
         0.0
     } else {
         angle_between(&k, &s)
     };
-    let angle_axis = angle_between(&k, &axis.unit());
     ModeReport {
         status: ModeStatus::Propagating,
         index: Some(mode.index()),
         walkoff_deg: Some(walkoff.to_degrees()),
-        walkoff_direction: if lean.norm() > 1e-15 { unit(lean) } else { None },
-        angle_to_axis_deg: Some(angle_axis.to_degrees()),
+        walkoff_direction: if lean.norm() > 1e-15 && walkoff > 0.0 {
+            unit(lean)
+        } else {
+            None
+        },
+        angle_to_axis_deg: report_axis(medium).map(|c| angle_between(&k, &c).to_degrees()),
         qz: mode.qz().re,
         decay: 0.0,
         wave_vector: Some(arr3(khat)),
@@ -358,6 +484,7 @@ fn mode_report(mode: &Mode, axis: &OpticAxis, thickness_mm: f64) -> ModeReport {
         d_polarization: unit(mode.d.map(|z| z.re)),
         e_polarization: unit(mode.e.map(|z| z.re)),
         lateral_shift_mm: Some([thickness_mm * s.x / s.z, thickness_mm * s.y / s.z]),
+        ellipticity_deg: general.then(|| ellipticity_deg(&mode.e, &khat)),
         group_index: None,
     }
 }
@@ -434,9 +561,12 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     faces_solved,
                 },
             ) => {
-                let crystal = slab.medium.nominal_uniaxial();
-                let (indices, axis, l) = (crystal.indices, crystal.axis, slab.thickness_mm);
-                for (mode, name_m) in modes.iter().zip(["ordinary", "extraordinary"]) {
+                let (medium, l) = (slab.medium, slab.thickness_mm);
+                let names = match medium.letters() {
+                    ['f', _] => ["fast", "slow"],
+                    _ => ["ordinary", "extraordinary"],
+                };
+                for (mode, name_m) in modes.iter().zip(names) {
                     if !mode.propagating {
                         notes.push(format!(
                             "elements[{idx}]: the {name_m} mode is evanescent at this incidence (total internal reflection); it carries no ray"
@@ -449,21 +579,22 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     ));
                 }
                 let both = modes[0].propagating && modes[1].propagating;
-                let (sep_vec, split_angle_deg, retardance) = match slab.faces {
-                    None => (
+                let (sep_vec, split_angle_deg, retardance) = match (slab.faces, medium) {
+                    (None, Medium::Uniaxial(_)) => (
                         [shifts[1][0] - shifts[0][0], shifts[1][1] - shifts[0][1]],
                         0.0,
                         Some(k0 * (modes[1].qz().re - modes[0].qz().re) * l),
                     ),
-                    Some(faces) => {
-                        let [o, e] = alone(stack, &slab, *z_front_mm);
-                        let (sep, split) = match (o, e) {
-                            (Some((po, uo)), Some((pe, ue))) => {
-                                ([pe.x - po.x, pe.y - po.y], angle_between(&uo, &ue).to_degrees())
+                    _ => {
+                        let faces = slab.placed_faces(*z_front_mm);
+                        let [first, second] = alone(stack, &slab, *z_front_mm);
+                        let (sep, split) = match (first, second) {
+                            (Some((p1, u1)), Some((p2, u2))) => {
+                                ([p2.x - p1.x, p2.y - p1.y], angle_between(&u1, &u2).to_degrees())
                             }
                             _ => ([0.0; 2], 0.0),
                         };
-                        // Parallel faces: Γ = k0 (ξ_e − ξ_o) L_n with ξ the normal components and
+                        // Parallel faces: Γ = k0 (ξ₂ − ξ₁) L_n with ξ the normal components and
                         // L_n the thickness along the normal; a wedge has no one retardance.
                         let n = faces.front.normal;
                         let parallel = (n - faces.back.normal).norm() <= DEGENERATE_DIRECTION;
@@ -472,7 +603,6 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                         (sep, split, parallel.then(|| k0 * (xi(&modes[1]) - xi(&modes[0])) * l_n))
                     }
                 };
-                let max_cut = max_walkoff_cut(indices);
                 let group = groups[idx].unwrap_or(Group {
                     indices: [None, None],
                     delay_ps: None,
@@ -481,23 +611,36 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     r.group_index = g.filter(|_| r.status == ModeStatus::Propagating);
                     r
                 };
+                let principal = CrystalIndices::of(&medium);
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
-                    no: indices.no,
-                    ne: indices.ne,
+                    no: principal.uniaxial.map(|ix| ix.no),
+                    ne: principal.uniaxial.map(|ix| ix.ne),
+                    nx: principal.biaxial.map(|p| p[0]),
+                    ny: principal.biaxial.map(|p| p[1]),
+                    nz: principal.biaxial.map(|p| p[2]),
+                    optic_axes: principal.optic_axes.map(|[u, v]| [arr3(u), arr3(v)]),
+                    optic_axis_angle_deg: principal.optic_axes.map(|[u, v]| angle_between(&u, &v).to_degrees()),
+                    handedness: principal
+                        .rotatory_kappa
+                        .map(|r| if r >= 0.0 { "right" } else { "left" }),
+                    rotatory_power_deg_per_mm: principal.rotatory_kappa.map(|r| (r * k0).to_degrees()),
                     thickness_mm: l,
                     z_front_mm: *z_front_mm,
                     z_back_mm: *z_back_mm,
-                    o: with_group(mode_report(&modes[0], &axis, l), group.indices[0]),
-                    e: with_group(mode_report(&modes[1], &axis, l), group.indices[1]),
+                    modes: ModePair {
+                        letters: medium.letters(),
+                        first: with_group(mode_report(&modes[0], &medium, l), group.indices[0]),
+                        second: with_group(mode_report(&modes[1], &medium, l), group.indices[1]),
+                    },
                     separation_mm: both.then(|| sep_vec[0].hypot(sep_vec[1])),
                     separation_vector_mm: both.then_some(sep_vec),
                     retardance_rad: retardance.filter(|_| both),
                     retardance_waves: retardance.filter(|_| both).map(|g| g / TAU),
                     group_delay_ps: group.delay_ps.filter(|_| both),
                     split_angle_deg,
-                    max_walkoff_cut_deg: max_cut.0.to_degrees(),
-                    max_walkoff_deg: max_cut.1.abs().to_degrees(),
+                    max_walkoff_cut_deg: principal.uniaxial.map(|ix| max_walkoff_cut(ix).0.to_degrees()),
+                    max_walkoff_deg: principal.uniaxial.map(|ix| max_walkoff_cut(ix).1.abs().to_degrees()),
                     power_in: *power_in,
                     // Face by face, the tracer books reflections apart from rejected rays.
                     reflected_power: match traced.reflected.get(idx) {

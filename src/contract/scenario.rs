@@ -1,4 +1,4 @@
-//! The version-1 scenario contract: one JSON document describing a whole set-up.
+//! The scenario contract (versions 1 and 2): one JSON document describing a whole set-up.
 //!
 //! Parsing is strict: every field is checked for type and range, an unknown field is an error, and
 //! each error names the field by its path (see [`crate::error::Error`]). Fields that are not given
@@ -7,7 +7,7 @@
 //!
 //! | field | default | accepted |
 //! |---|---|---|
-//! | `version` | 1 | 1 |
+//! | `version` | 1 | 1, 2 |
 //! | `wavelength_nm` | 632.8 | 1 to 1 000 000 (and inside the material formula's domain) |
 //! | `outside_index` | 1.0 | 1 to 5 |
 //! | `interface_losses` | `"ideal"` | `"ideal"`, `"uncoated"` |
@@ -16,9 +16,12 @@
 //! | `beam.incidence.azimuth_deg` | 0 | −360 to 360 |
 //! | `beam.polarization` | linear, azimuth 45° | see [`Polarization`] |
 //! | `elements` | required | 1 to [`MAX_ELEMENTS`] elements, at most [`MAX_CRYSTALS`] crystals |
-//! | crystal `material` or `no` + `ne` | required | a catalogue key, or indices 1 to 10 |
+//! | crystal `material`, or `no` + `ne`, or `nx` + `ny` + `nz` | required | a catalogue key (uniaxial or biaxial), or indices 1 to 10 |
 //! | crystal `thickness_mm` | required | above 0, at most 10 000 |
 //! | crystal `axis.tilt_deg`, `axis.azimuth_deg` | required, 0 | 0 to 180, −360 to 360 |
+//! | crystal `axes` {`tilt_deg`, `azimuth_deg`, `roll_deg`} instead of `axis` | –, 0, 0 | as `axis`; roll −360 to 360 |
+//! | quartz `handedness` | `"right"` | `"right"`, `"left"` (optically active crystals only) |
+//! | quartz `optical_activity` | true in version 2, false in version 1 | true, false |
 //! | every element's `gap_mm` | 0 | 0 to 1 000 000: outside medium before the element |
 //! | retarder `retardance_waves`, `fast_axis_deg` | required, 0 | ±1 000 000, ±360 |
 //! | polarizer `transmission_axis_deg` | 0 | ±360 |
@@ -34,7 +37,7 @@ use crate::contract::geometry::{self, Contact, Piece, Placement};
 use crate::error::{Error, above, in_range, strictly_between};
 use crate::numfmt::{quote, quote_text};
 use crate::optics::interface::Losses;
-use crate::optics::material::{self, Evaluated, Indices, Material};
+use crate::optics::material::{self, BiaxialMaterial, Evaluated, Indices, Material};
 
 use crate::optics::wavelength::Wavelength;
 use serde_json::{Value, json};
@@ -94,6 +97,20 @@ pub enum Medium {
     Catalogue(&'static Material),
     /// Fixed indices given in the scenario.
     Custom(Indices),
+    /// Fixed principal indices n_x, n_y, n_z on the principal axes (`nx`, `ny`, `nz`): biaxial, or
+    /// uniaxial when two are equal (the optic axis then lies along the third).
+    Principal([f64; 3]),
+    /// A catalogued biaxial crystal, evaluated at the scenario's wavelength.
+    Biaxial(&'static BiaxialMaterial),
+}
+
+/// A crystal's principal indices at one wavelength.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum PrincipalIndices {
+    /// n_o and n_e; the optic axis is the third principal axis.
+    Uniaxial(Indices),
+    /// n_x, n_y, n_z on the three principal axes.
+    Triple([f64; 3]),
 }
 
 impl Medium {
@@ -109,7 +126,35 @@ impl Medium {
                 indices: *ix,
                 warnings: Vec::new(),
             }),
+            Medium::Principal(_) | Medium::Biaxial(_) => Err(Error::new(
+                "material",
+                "a biaxial crystal has no single pair n_o, n_e; this needs a uniaxial crystal",
+            )),
         }
+    }
+
+    /// The principal indices at `wavelength` with the catalogue's warnings: every form of
+    /// crystal, the one the trace reads.
+    ///
+    /// # Errors
+    /// As [`Material::indices`]: where the dispersion formula breaks down.
+    pub fn principal(&self, wavelength: Wavelength) -> Result<(PrincipalIndices, Vec<String>), Error> {
+        match self {
+            Medium::Principal(p) => Ok((PrincipalIndices::Triple(*p), Vec::new())),
+            Medium::Biaxial(m) => {
+                let p = m.principal(wavelength)?;
+                Ok((PrincipalIndices::Triple(p.principal), p.warnings))
+            }
+            _ => {
+                let ev = self.evaluate(wavelength)?;
+                Ok((PrincipalIndices::Uniaxial(ev.indices), ev.warnings))
+            }
+        }
+    }
+
+    /// Whether the crystal is optically active (chiral): crystalline quartz.
+    pub fn is_chiral(&self) -> bool {
+        matches!(self, Medium::Catalogue(m) if material::optical_activity(m.key).is_some())
     }
 
     /// The principal indices at `wavelength`.
@@ -124,7 +169,8 @@ impl Medium {
     pub fn key(&self) -> &'static str {
         match self {
             Medium::Catalogue(m) => m.key,
-            Medium::Custom(_) => "custom",
+            Medium::Biaxial(m) => m.key,
+            Medium::Custom(_) | Medium::Principal(_) => "custom",
         }
     }
 }
@@ -140,8 +186,24 @@ pub struct CrystalPlate {
     pub tilt_deg: f64,
     /// Optic axis azimuth from +x toward +y, degrees.
     pub azimuth_deg: f64,
+    /// Roll of the principal axes about the optic axis (R·ẑ), degrees (`axes.roll_deg`; 0 when
+    /// the document gives `axis`).
+    pub roll_deg: f64,
+    /// Handedness and optical activity of a chiral crystal (`None` for the others).
+    pub chirality: Option<Chirality>,
     /// Faces, aperture and mount (version 2; the default is version 1's plate).
     pub placement: Placement,
+}
+
+/// The optical activity of a chiral crystal as the document sets it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Chirality {
+    /// `handedness`: right-handed (dextrorotatory: the plane of polarization turns clockwise as
+    /// seen by an observer looking toward the source, for light along the optic axis).
+    pub right_handed: bool,
+    /// `optical_activity`: whether the trace includes it (default: on in version-2 documents, off
+    /// in version-1 documents, which had none, so that they give the same numbers).
+    pub active: bool,
 }
 
 /// One element of the stack.
@@ -221,14 +283,18 @@ impl Scenario {
     /// The path of the first offending field.
     pub fn from_json(value: &Value) -> Result<Scenario, Error> {
         let mut f = Fields::new("", value)?;
-        if let Some(v) = f.get("version")
-            && !matches!(v.as_u64(), Some(1 | 2))
-        {
-            return Err(Error::new(
-                "version",
-                format!("versions 1 and 2 are understood, got {}", quote_text(&v.to_string())),
-            ));
-        }
+        let version = match f.get("version") {
+            None => 1,
+            Some(v) => match v.as_u64() {
+                Some(n @ (1 | 2)) => n,
+                _ => {
+                    return Err(Error::new(
+                        "version",
+                        format!("versions 1 and 2 are understood, got {}", quote_text(&v.to_string())),
+                    ));
+                }
+            },
+        };
         let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
         let wavelength = Wavelength::from_nm(wl_nm)?;
         let outside_index = in_range("outside_index", f.number_or("outside_index", 1.0)?, 1.0, 5.0)?;
@@ -256,7 +322,7 @@ impl Scenario {
         };
         let elements = match f.get("elements") {
             None => return Err(Error::new("elements", "is required: a list of at least one element")),
-            Some(v) => parse_elements(v)?,
+            Some(v) => parse_elements(v, version)?,
         };
         let screen_mm = ranged(&mut f, "screen_mm", Some(0.0), 0.0, 1e6)?;
         f.finish()?;
@@ -318,14 +384,28 @@ pub fn element_json(e: &Element) -> Value {
             let mut v = json!({
                 "kind": "crystal",
                 "thickness_mm": c.thickness_mm,
-                "axis": {"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg},
             });
+            if c.roll_deg == 0.0 {
+                v["axis"] = json!({"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg});
+            } else {
+                v["axes"] = json!({"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg, "roll_deg": c.roll_deg});
+            }
             match c.medium {
                 Medium::Catalogue(m) => v["material"] = json!(m.key),
+                Medium::Biaxial(m) => v["material"] = json!(m.key),
                 Medium::Custom(ix) => {
                     v["no"] = json!(ix.no);
                     v["ne"] = json!(ix.ne);
                 }
+                Medium::Principal([x, y, z]) => {
+                    v["nx"] = json!(x);
+                    v["ny"] = json!(y);
+                    v["nz"] = json!(z);
+                }
+            }
+            if let Some(ch) = c.chirality {
+                v["handedness"] = json!(if ch.right_handed { "right" } else { "left" });
+                v["optical_activity"] = json!(ch.active);
             }
             c.placement.write(&mut v);
             v
@@ -476,7 +556,7 @@ fn parse_polarization(v: &Value) -> Result<Polarization, Error> {
     Ok(p)
 }
 
-fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
+fn parse_elements(v: &Value, version: u64) -> Result<Vec<Element>, Error> {
     let Value::Array(items) = v else {
         return Err(Error::new("elements", format!("must be a list, got {}", type_name(v))));
     };
@@ -492,7 +572,7 @@ fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
     let elements = items
         .iter()
         .enumerate()
-        .map(|(i, item)| parse_element(i, item))
+        .map(|(i, item)| parse_element(i, item, version))
         .collect::<Result<Vec<_>, _>>()?;
     let crystals = elements
         .iter()
@@ -522,7 +602,7 @@ fn parse_elements(v: &Value) -> Result<Vec<Element>, Error> {
     Ok(elements)
 }
 
-fn parse_element(index: usize, v: &Value) -> Result<Element, Error> {
+fn parse_element(index: usize, v: &Value, version: u64) -> Result<Element, Error> {
     let path = &format!("elements[{index}]");
     let mut f = Fields::new(path, v)?;
     let kind_path = f.path_of("kind");
@@ -535,7 +615,7 @@ fn parse_element(index: usize, v: &Value) -> Result<Element, Error> {
         geometry::refuse_on_ideal(&f)?;
     }
     let kind = match kind {
-        "crystal" => ElementKind::Crystal(parse_crystal(&mut f)?),
+        "crystal" => ElementKind::Crystal(parse_crystal(&mut f, version)?),
         "retarder" => ElementKind::Retarder {
             retardance_waves: ranged(&mut f, "retardance_waves", None, -1e6, 1e6)?,
             fast_axis_deg: ranged(&mut f, "fast_axis_deg", Some(0.0), -360.0, 360.0)?,
@@ -560,64 +640,150 @@ fn parse_element(index: usize, v: &Value) -> Result<Element, Error> {
     Ok(Element { gap_mm, kind, contact })
 }
 
-fn parse_crystal(f: &mut Fields) -> Result<CrystalPlate, Error> {
-    let material_path = f.path_of("material");
-    let medium = match (f.has("material"), f.has("no") || f.has("ne")) {
-        (true, true) => {
-            return Err(Error::new(
-                material_path,
-                "give either \"material\" or \"no\" and \"ne\", not both",
-            ));
-        }
-        (true, false) => {
-            let key = f.string("material")?.unwrap_or_default();
-            let m = material::find(key).ok_or_else(|| {
-                Error::new(
-                    &material_path,
-                    format!(
-                        "unknown material '{}'; known: {}",
-                        quote_text(key),
-                        material::keys().join(", ")
-                    ),
-                )
-            })?;
-            Medium::Catalogue(m)
-        }
-        (false, true) => {
-            let no = ranged(f, "no", None, 1.0, 10.0)?;
-            let ne = ranged(f, "ne", None, 1.0, 10.0)?;
-            Medium::Custom(Indices::new(no, ne).map_err(|e| e.within(&f.path_of("")))?)
-        }
-        (false, false) => {
-            return Err(Error::new(
-                material_path,
-                format!(
-                    "is required (or give \"no\" and \"ne\"); known materials: {}",
-                    material::keys().join(", ")
-                ),
-            ));
-        }
-    };
-    // Mark the alternatives as known so that `finish` accepts whichever form was used.
-    let _ = (f.get("material"), f.get("no"), f.get("ne"));
+fn parse_crystal(f: &mut Fields, version: u64) -> Result<CrystalPlate, Error> {
+    let medium = parse_medium(f)?;
     let thickness_path = f.path_of("thickness_mm");
     let thickness_mm = above(&thickness_path, f.required_number("thickness_mm")?, 0.0, 1e4)?;
-    let axis_path = f.path_of("axis");
-    let av = f
-        .get("axis")
-        .ok_or_else(|| Error::new(&axis_path, "is required: {\"tilt_deg\": …, \"azimuth_deg\": …}"))?;
-    let mut a = Fields::new(&axis_path, av)?;
-    let tilt_deg = ranged(&mut a, "tilt_deg", None, 0.0, 180.0)?;
-    let azimuth_deg = ranged(&mut a, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
-    a.finish()?;
+    let (tilt_deg, azimuth_deg, roll_deg) = parse_orientation(f)?;
+    let chirality = parse_chirality(f, &medium, version)?;
     let placement = Placement::read(f)?;
     Ok(CrystalPlate {
         medium,
         thickness_mm,
         tilt_deg,
         azimuth_deg,
+        roll_deg,
+        chirality,
         placement,
     })
+}
+
+/// The crystal's material: a catalogue key, `no` + `ne`, or `nx` + `ny` + `nz`.
+fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
+    let material_path = f.path_of("material");
+    let forms = [
+        f.has("material"),
+        f.has("no") || f.has("ne"),
+        f.has("nx") || f.has("ny") || f.has("nz"),
+    ];
+    // Mark every alternative as known so that `finish` accepts whichever form was used.
+    for name in ["material", "no", "ne", "nx", "ny", "nz"] {
+        let _ = f.get(name);
+    }
+    let medium = match forms {
+        [true, false, false] => {
+            let key = f.string("material")?.unwrap_or_default();
+            match (material::find(key), material::find_biaxial(key)) {
+                (Some(m), _) => Medium::Catalogue(m),
+                (None, Some(m)) => Medium::Biaxial(m),
+                (None, None) => {
+                    return Err(Error::new(
+                        &material_path,
+                        format!(
+                            "unknown material '{}'; known: {}",
+                            quote_text(key),
+                            material::all_keys().join(", ")
+                        ),
+                    ));
+                }
+            }
+        }
+        [false, true, false] => {
+            let no = ranged(f, "no", None, 1.0, 10.0)?;
+            let ne = ranged(f, "ne", None, 1.0, 10.0)?;
+            Medium::Custom(Indices::new(no, ne).map_err(|e| e.within(&f.path_of("")))?)
+        }
+        [false, false, true] => Medium::Principal([
+            ranged(f, "nx", None, 1.0, 10.0)?,
+            ranged(f, "ny", None, 1.0, 10.0)?,
+            ranged(f, "nz", None, 1.0, 10.0)?,
+        ]),
+        [false, false, false] => {
+            return Err(Error::new(
+                material_path,
+                format!(
+                    "is required (or give \"no\" and \"ne\", or \"nx\", \"ny\" and \"nz\"); known materials: {}",
+                    material::all_keys().join(", ")
+                ),
+            ));
+        }
+        _ => {
+            return Err(Error::new(
+                material_path,
+                "give one of \"material\", \"no\" and \"ne\", or \"nx\", \"ny\" and \"nz\", not several",
+            ));
+        }
+    };
+    Ok(medium)
+}
+
+/// Orientation from `axis` {tilt, azimuth} or `axes` {tilt, azimuth, roll}: (tilt, azimuth, roll)
+/// in degrees, with R = Rz(azimuth)·Ry(tilt)·Rz(roll) (CONVENTIONS.md, "More media").
+fn parse_orientation(f: &mut Fields) -> Result<(f64, f64, f64), Error> {
+    let axis_path = f.path_of("axis");
+    let (name, with_roll) = match (f.has("axis"), f.has("axes")) {
+        (true, true) => {
+            return Err(Error::new(axis_path, "give either \"axis\" or \"axes\", not both"));
+        }
+        (false, true) => ("axes", true),
+        _ => ("axis", false),
+    };
+    let path = f.path_of(name);
+    let _ = f.get(if with_roll { "axis" } else { "axes" });
+    let av = f.get(name).ok_or_else(|| {
+        Error::new(
+            &axis_path,
+            "is required: {\"tilt_deg\": …, \"azimuth_deg\": …} (or \"axes\" with \"roll_deg\" too)",
+        )
+    })?;
+    let mut a = Fields::new(&path, av)?;
+    let tilt_deg = ranged(&mut a, "tilt_deg", None, 0.0, 180.0)?;
+    let azimuth_deg = ranged(&mut a, "azimuth_deg", Some(0.0), -360.0, 360.0)?;
+    let roll_deg = if with_roll {
+        ranged(&mut a, "roll_deg", Some(0.0), -360.0, 360.0)?
+    } else {
+        0.0
+    };
+    a.finish()?;
+    Ok((tilt_deg, azimuth_deg, roll_deg))
+}
+
+/// `handedness` and `optical_activity` of a chiral crystal; an error on either for any other.
+fn parse_chirality(f: &mut Fields, medium: &Medium, version: u64) -> Result<Option<Chirality>, Error> {
+    let handedness_path = f.path_of("handedness");
+    let handedness = f.string("handedness")?;
+    let activity_path = f.path_of("optical_activity");
+    let active = f.boolean("optical_activity")?;
+    if !medium.is_chiral() {
+        let path = if handedness.is_some() {
+            handedness_path
+        } else if active.is_some() {
+            activity_path
+        } else {
+            return Ok(None);
+        };
+        return Err(Error::new(
+            path,
+            format!(
+                "applies to optically active crystals (quartz) only; '{}' is not one",
+                quote_text(medium.key())
+            ),
+        ));
+    }
+    let right_handed = match handedness {
+        None | Some("right") => true,
+        Some("left") => false,
+        Some(other) => {
+            return Err(Error::new(
+                handedness_path,
+                format!("unknown value '{}'; expected \"right\" or \"left\"", quote_text(other)),
+            ));
+        }
+    };
+    Ok(Some(Chirality {
+        right_handed,
+        active: active.unwrap_or(version >= 2),
+    }))
 }
 
 #[cfg(test)]
@@ -738,5 +904,129 @@ mod tests {
                 .field,
             "elements"
         );
+    }
+
+    fn crystal(fields: &str, version: u32) -> Result<CrystalPlate, Error> {
+        let doc =
+            format!(r#"{{"version": {version}, "elements": [{{"kind": "crystal", "thickness_mm": 1, {fields}}}]}}"#);
+        let s = Scenario::from_json_str(&doc)?;
+        let ElementKind::Crystal(c) = s.elements[0].kind else {
+            unreachable!()
+        };
+        assert_eq!(Scenario::from_json(&s.to_json())?, s, "round trip of {doc}");
+        Ok(c)
+    }
+
+    #[test]
+    fn principal_axes_and_indices_parse_and_round_trip() {
+        let c = crystal(
+            r#""nx": 1.74, "ny": 1.75, "nz": 1.83, "axes": {"tilt_deg": 90, "azimuth_deg": 10, "roll_deg": -30}"#,
+            2,
+        )
+        .unwrap();
+        assert_eq!(c.medium, Medium::Principal([1.74, 1.75, 1.83]));
+        assert_eq!((c.tilt_deg, c.azimuth_deg, c.roll_deg), (90.0, 10.0, -30.0));
+        assert_eq!(c.chirality, None);
+        // `axis` is `axes` with roll 0, for any crystal.
+        let c = crystal(r#""nx": 1.74, "ny": 1.75, "nz": 1.83, "axis": {"tilt_deg": 90}"#, 2).unwrap();
+        assert_eq!(c.roll_deg, 0.0);
+        let c = crystal(r#""material": "calcite", "axes": {"tilt_deg": 45}"#, 1).unwrap();
+        assert_eq!((c.tilt_deg, c.roll_deg), (45.0, 0.0));
+    }
+
+    #[test]
+    fn quartz_is_active_by_default_in_version_2_only() {
+        let v1 = crystal(r#""material": "quartz", "axis": {"tilt_deg": 0}"#, 1).unwrap();
+        assert_eq!(
+            v1.chirality,
+            Some(Chirality {
+                right_handed: true,
+                active: false
+            })
+        );
+        let v2 = crystal(r#""material": "quartz", "axis": {"tilt_deg": 0}"#, 2).unwrap();
+        assert_eq!(
+            v2.chirality,
+            Some(Chirality {
+                right_handed: true,
+                active: true
+            })
+        );
+        let left = crystal(
+            r#""material": "quartz", "axis": {"tilt_deg": 0}, "handedness": "left", "optical_activity": true"#,
+            1,
+        )
+        .unwrap();
+        assert_eq!(
+            left.chirality,
+            Some(Chirality {
+                right_handed: false,
+                active: true
+            })
+        );
+        let off = crystal(
+            r#""material": "quartz", "axis": {"tilt_deg": 0}, "optical_activity": false"#,
+            2,
+        )
+        .unwrap();
+        assert_eq!(
+            off.chirality,
+            Some(Chirality {
+                right_handed: true,
+                active: false
+            })
+        );
+    }
+
+    #[test]
+    fn new_crystal_fields_name_their_errors() {
+        let cases = [
+            (
+                r#""material": "calcite", "nx": 1.5, "ny": 1.6, "nz": 1.7, "axis": {"tilt_deg": 0}"#,
+                "elements[0].material",
+            ),
+            (
+                r#""no": 1.5, "ne": 1.6, "nz": 1.7, "axis": {"tilt_deg": 0}"#,
+                "elements[0].material",
+            ),
+            (r#""nx": 1.5, "ny": 1.6, "axis": {"tilt_deg": 0}"#, "elements[0].nz"),
+            (
+                r#""nx": 0.5, "ny": 1.6, "nz": 1.7, "axis": {"tilt_deg": 0}"#,
+                "elements[0].nx",
+            ),
+            (
+                r#""material": "calcite", "axis": {"tilt_deg": 0}, "axes": {"tilt_deg": 0}"#,
+                "elements[0].axis",
+            ),
+            (
+                r#""material": "calcite", "axes": {"tilt_deg": 0, "roll_deg": 400}"#,
+                "elements[0].axes.roll_deg",
+            ),
+            (
+                r#""material": "calcite", "axis": {"tilt_deg": 0, "roll_deg": 10}"#,
+                "elements[0].axis.roll_deg",
+            ),
+            (r#""material": "calcite""#, "elements[0].axis"),
+            (
+                r#""material": "calcite", "axis": {"tilt_deg": 0}, "handedness": "right""#,
+                "elements[0].handedness",
+            ),
+            (
+                r#""nx": 1.5, "ny": 1.6, "nz": 1.7, "axis": {"tilt_deg": 0}, "optical_activity": true"#,
+                "elements[0].optical_activity",
+            ),
+            (
+                r#""material": "quartz", "axis": {"tilt_deg": 0}, "handedness": "dextro""#,
+                "elements[0].handedness",
+            ),
+            (
+                r#""material": "quartz", "axis": {"tilt_deg": 0}, "optical_activity": "yes""#,
+                "elements[0].optical_activity",
+            ),
+        ];
+        for (fields, path) in cases {
+            let e = crystal(fields, 2).unwrap_err();
+            assert_eq!(e.field, path, "{fields}: {}", e.message);
+        }
     }
 }

@@ -111,6 +111,9 @@ pub struct DisplacerDesign {
     pub exit_phase_rad: f64,
     /// The same reduced to (−π, π].
     pub exit_phase_mod_2pi_rad: f64,
+    /// Group delay of the e-beam's pulse after the o-beam's across the plate, picoseconds
+    /// (negative when the e-pulse leads; [`Part::group_delay_ps`]).
+    pub group_delay_ps: Option<f64>,
     /// Linearized sensitivities.
     pub sensitivities: Sensitivities,
     /// The error standard deviations used.
@@ -329,6 +332,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         Some(req.beam_diameter_mm),
         vec![crystal(*m, length_mm, tilt, 0.0, 0.0)],
     );
+    let group_delay_ps = scenario.group_delay_ps();
     Ok(DisplacerDesign {
         material: m.key().to_string(),
         no: ix.no,
@@ -364,6 +368,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         } else {
             reduced
         },
+        group_delay_ps,
         sensitivities: Sensitivities {
             tilt_mm_per_deg: s_tilt,
             tilt_second_order_mm_per_deg2: s_tilt_2,

@@ -11,8 +11,10 @@
 //! fields; plane-parallel plates in air stay version 1.
 
 use crate::contract::geometry::{Contact, Placement};
+use crate::contract::group::groups;
 use crate::contract::scenario::{
-    Beam, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json, polarization_json,
+    Beam, Chirality, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json,
+    polarization_json,
 };
 use crate::error::Error;
 use crate::optics::interface::Losses;
@@ -114,6 +116,34 @@ impl Part {
     }
 }
 
+impl Part {
+    /// Group delay between the part's two polarizations, picoseconds: the delay of the
+    /// e-polarization of its first crystal after the o-polarization, summed over crystals whose
+    /// axes lie along or across the first's (a crossed plate's e is the first's o), each from
+    /// [`crate::contract::group`]. `None` when a crystal has no single delay (a wedge, an
+    /// evanescent mode) or its axis is neither along nor across the first's.
+    pub fn group_delay_ps(&self) -> Option<f64> {
+        let (stack, _) = self.scenario.resolve().ok()?;
+        let delays = groups(&self.scenario, &stack);
+        let mut first_azimuth = None;
+        let mut total = 0.0;
+        for (el, group) in self.scenario.elements.iter().zip(delays) {
+            let ElementKind::Crystal(c) = el.kind else { continue };
+            let delay = group?.delay_ps?;
+            let first = *first_azimuth.get_or_insert(c.azimuth_deg);
+            let turn = (c.azimuth_deg - first).rem_euclid(180.0);
+            total += if turn.abs() < 1e-9 || (180.0 - turn).abs() < 1e-9 {
+                delay
+            } else if (turn - 90.0).abs() < 1e-9 {
+                -delay
+            } else {
+                return None;
+            };
+        }
+        first_azimuth.map(|_| total)
+    }
+}
+
 /// The power a path carries for the stack's input beam.
 pub fn path_power(stack: &Stack, path: &Path) -> f64 {
     power_of(&path.matrix, &stack.input.stokes)
@@ -160,6 +190,12 @@ pub fn crystal(medium: Medium, thickness_mm: f64, tilt_deg: f64, azimuth_deg: f6
             thickness_mm,
             tilt_deg,
             azimuth_deg,
+            roll_deg: 0.0,
+            // The design solvers use the crystal without optical activity; the part says so.
+            chirality: medium.is_chiral().then_some(Chirality {
+                right_handed: true,
+                active: false,
+            }),
             placement: Placement::default(),
         }),
         contact: Contact::Air,

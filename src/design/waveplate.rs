@@ -105,6 +105,10 @@ pub struct WaveplateDesign {
     /// Which in-face direction is fast: "optic axis" (negative crystals) or "perpendicular to the
     /// optic axis" (positive crystals).
     pub fast_axis: String,
+    /// Group delay of the polarization along the first plate's optic axis after the one across
+    /// it, at the design wavelength and normal incidence, picoseconds (signed like
+    /// `retardance_waves`; [`Part::group_delay_ps`]).
+    pub group_delay_ps: Option<f64>,
     /// Retardance against wavelength [nm, waves].
     pub wavelength_curve: Vec<[f64; 2]>,
     /// Retardance against angle of incidence, per plane.
@@ -246,6 +250,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
     let scenario = Part::new(req.wavelength, None, elements);
+    let group_delay_ps = scenario.group_delay_ps();
     Ok(WaveplateDesign {
         wavelength_nm: nm,
         max_incidence_deg: req.max_incidence_deg,
@@ -259,6 +264,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
         retardance_waves: g,
         fast_axis: sign_word(ix).into(),
+        group_delay_ps,
         wavelength_curve,
         angular,
         acceptance_deg,

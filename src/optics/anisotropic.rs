@@ -152,7 +152,7 @@ impl Anisotropic {
         }
     }
 
-    /// For a uniaxial crystal (two principal indices equal to [`EQUAL_PRINCIPAL`]), the position
+    /// For a uniaxial crystal (two principal indices equal to `EQUAL_PRINCIPAL`), the position
     /// (0, 1 or 2) of the distinct one, whose axis is the optic axis; `None` when biaxial. A crystal
     /// with three equal indices is reported as uniaxial along its third axis.
     pub fn uniaxial_axis(&self) -> Option<usize> {

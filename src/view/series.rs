@@ -207,7 +207,8 @@ fn wavelength_sweep(
     let p = st.plate;
     let (range, note) = match p.medium {
         Medium::Catalogue(m) => (m.range_nm, format!("{} over its formula's range", m.key)),
-        Medium::Custom(_) => (CUSTOM_RANGE_NM, "custom indices: no dispersion".to_string()),
+        Medium::Biaxial(m) => (m.range_nm, format!("{} over its formula's range", m.key)),
+        Medium::Custom(_) | Medium::Principal(_) => (CUSTOM_RANGE_NM, "custom indices: no dispersion".to_string()),
     };
     let value = |nm: f64| -> Option<f64> {
         let wl = Wavelength::from_nm(nm).ok()?;
@@ -273,16 +274,16 @@ mod tests {
         let ElementReport::Crystal {
             separation_mm,
             retardance_waves,
-            e,
+            modes,
             ..
         } = &r.elements[0]
         else {
             panic!()
         };
         let w = walkoff_vs_tilt(&sc, 0).unwrap();
-        assert_eq!(w.current.unwrap(), [45.0, e.walkoff_deg.unwrap()]);
+        assert_eq!(w.current.unwrap(), [45.0, modes.second.walkoff_deg.unwrap()]);
         let on_curve = w.points.iter().find(|p| p[0] == 45.0).unwrap();
-        assert!((on_curve[1] - e.walkoff_deg.unwrap()).abs() < 1e-12);
+        assert!((on_curve[1] - modes.second.walkoff_deg.unwrap()).abs() < 1e-12);
         let s = separation_vs_wavelength(&sc, 0);
         assert!((s.current.unwrap()[1] - separation_mm.unwrap()).abs() < 1e-12);
         assert_eq!(s.points.len(), WAVELENGTH_POINTS);

@@ -508,7 +508,9 @@ impl<'a> Frame<'a> {
     /// Marks the walk-off of the first crystal with a propagating e-wave.
     fn walkoff(&self, scene: &mut Scene, result: &TraceResult) {
         let Some((rep_e, z0)) = result.elements.iter().find_map(|e| match e {
-            ElementReport::Crystal { e, z_front_mm, .. } if e.ray_direction.is_some() => Some((e.clone(), *z_front_mm)),
+            ElementReport::Crystal { modes, z_front_mm, .. } if modes.second.ray_direction.is_some() => {
+                Some((modes.second.clone(), *z_front_mm))
+            }
             _ => None,
         }) else {
             return;
@@ -729,8 +731,8 @@ impl SidePlane {
 /// (cos φ, sin φ) of the first crystal's e-ray walk-off direction projected on x–y.
 fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
     result.elements.iter().find_map(|e| match e {
-        ElementReport::Crystal { e, .. } => {
-            let w = e.walkoff_direction?;
+        ElementReport::Crystal { modes, .. } => {
+            let w = modes.second.walkoff_direction?;
             let n = w[0].hypot(w[1]);
             (n > 1e-12).then(|| (w[0] / n, w[1] / n))
         }

@@ -126,7 +126,7 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
             no,
             ne,
             thickness_mm,
-            e,
+            modes,
             separation_mm,
             retardance_waves,
             ..
@@ -137,11 +137,11 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
                 n,
                 "crystal",
                 material,
-                num(*no, 6),
-                num(*ne, 6),
+                opt(*no, 6),
+                opt(*ne, 6),
                 num(*thickness_mm, 4),
-                opt(e.index, 6),
-                opt(e.walkoff_deg, 4),
+                opt(modes.second.index, 6),
+                opt(modes.second.walkoff_deg, 4),
                 opt(*separation_mm, 6),
                 opt(*retardance_waves, 4)
             );

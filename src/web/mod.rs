@@ -75,7 +75,8 @@ pub fn demo_scenario() -> String {
 /// Never in practice (conversion of plain data).
 #[wasm_bindgen]
 pub fn materials() -> Result<JsValue, JsValue> {
-    let list: Vec<serde_json::Value> = material::catalogue().iter().map(material::describe).collect();
+    let mut list: Vec<serde_json::Value> = material::catalogue().iter().map(material::describe).collect();
+    list.extend(material::biaxial_catalogue().iter().map(material::describe_biaxial));
     to_js(&list)
 }
 

@@ -18,10 +18,14 @@ pub fn crystal(r: &TraceResult, i: usize) -> (Option<f64>, Option<f64>, Option<f
         ElementReport::Crystal {
             separation_mm,
             retardance_rad,
-            o,
-            e,
+            modes,
             ..
-        } => (*separation_mm, *retardance_rad, o.walkoff_deg, e.walkoff_deg),
+        } => (
+            *separation_mm,
+            *retardance_rad,
+            modes.first.walkoff_deg,
+            modes.second.walkoff_deg,
+        ),
         other => panic!("element {i} is not a crystal: {other:?}"),
     }
 }

@@ -306,6 +306,7 @@ fn displacer_performance(r: &mut Report) {
     r.quantity("clipping per beam", "clipping_per_beam", "(power outside the aperture)");
     r.quantity("o–e phase at the exit", "exit_phase_rad", "rad");
     r.quantity("  the same, modulo 2π", "exit_phase_mod_2pi_rad", "rad");
+    r.quantity("group delay, e after o", "group_delay_ps", "ps");
 }
 
 /// A displacer's tolerances: the separation's sensitivities, the errors assumed and the spread
@@ -412,6 +413,7 @@ fn waveplate(r: &mut Report) {
     r.quantity("birefringence n_e − n_o", "birefringence", "");
     r.quantity("net retarding thickness", "effective_thickness_mm", "mm");
     r.text_line("fast axis", "fast_axis");
+    r.quantity("group delay, e after o", "group_delay_ps", "ps");
     if let Some((a, b, lo, hi)) = range_of(r.v.get("wavelength_curve")) {
         r.line(
             "retardance over the band",

@@ -48,10 +48,12 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
         (true, false) => {
             let key = f.string("material")?.unwrap_or_default();
             let m = material::find(key).ok_or_else(|| {
-                Error::new(
-                    &path,
-                    format!("unknown material '{key}'; known: {}", material::keys().join(", ")),
-                )
+                let why = if material::find_biaxial(key).is_some() {
+                    format!("'{key}' is a biaxial crystal; this design takes a uniaxial one")
+                } else {
+                    format!("unknown material '{key}'")
+                };
+                Error::new(&path, format!("{why}; known: {}", material::keys().join(", ")))
             })?;
             let _ = (f.get("no"), f.get("ne"));
             Ok(Medium::Catalogue(m))

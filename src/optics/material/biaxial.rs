@@ -29,7 +29,7 @@ use crate::optics::wavelength::Wavelength;
 /// A catalogued biaxial crystal.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct BiaxialMaterial {
-    /// Contract key, e.g. `ktp` (see [`biaxial_keys`]).
+    /// Contract key, e.g. `ktp` (see `biaxial_keys`).
     pub key: &'static str,
     /// Human-readable name with formula, e.g. `potassium titanyl phosphate (KTiOPO4)`.
     pub name: &'static str,
@@ -82,7 +82,7 @@ impl BiaxialMaterial {
     }
 
     /// The principal group indices n_g = n − λ dn/dλ for light polarized along x, y and z, from
-    /// the analytic derivative of each formula ([`Dispersion::group_index`]).
+    /// the analytic derivative of each formula (`Dispersion::group_index`).
     ///
     /// The warnings are those of [`BiaxialMaterial::principal`] except the order check (group
     /// indices need not keep the order of the indices).

@@ -176,7 +176,7 @@ impl Material {
 }
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
-/// `{key, name, kind, sign, range_nm, citation, verified, warnings}`, `kind` always `uniaxial`
+/// `{key, name, kind, sign, range_nm, citation, verified, warnings, optically_active}`, `kind` always `uniaxial`
 /// (biaxial crystals are described by [`super::describe_biaxial`]), `sign` spelled `positive` or
 /// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
@@ -188,6 +188,7 @@ pub fn describe(m: &Material) -> serde_json::Value {
         "key": m.key, "name": m.name, "kind": "uniaxial", "sign": sign,
         "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
         "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
+        "optically_active": super::optical_activity(m.key).is_some(),
     })
 }
 
@@ -1001,7 +1002,15 @@ mod tests {
             .map(String::as_str)
             .collect();
         let mut want = [
-            "key", "name", "kind", "sign", "range_nm", "citation", "verified", "warnings",
+            "key",
+            "name",
+            "kind",
+            "sign",
+            "range_nm",
+            "citation",
+            "verified",
+            "warnings",
+            "optically_active",
         ];
         want.sort_unstable();
         let mut got = keys.clone();
@@ -1010,6 +1019,9 @@ mod tests {
         assert_eq!(calcite["sign"], "negative");
         assert_eq!(calcite["kind"], "uniaxial");
         assert_eq!(describe(find("quartz").expect("catalogued"))["sign"], "positive");
+        // Crystalline quartz is optically active; calcite is not (common practice).
+        assert_eq!(describe(find("quartz").expect("catalogued"))["optically_active"], true);
+        assert_eq!(calcite["optically_active"], false);
         for m in catalogue() {
             let d = describe(m);
             assert_eq!(
