@@ -4,13 +4,17 @@
 //! and varies one parameter while holding the rest: the e-ray walk-off against the cut tilt (the
 //! angle between optic axis and plate normal), and the o–e separation and the retardance against
 //! wavelength over the material's validity range. Every point is the exact plane-wave solution of
-//! [`crate::optics::plate`], so the plotted curve passes through the traced operating point.
+//! [`crate::optics::plate`] for a uniaxial crystal, or the whole trace of the plate alone for a
+//! biaxial or optically active one (its second mode's walk-off: e or s), so the plotted curve
+//! passes through the traced operating point.
 //! Points where a mode is evanescent or the dispersion formula breaks down are left out.
 
 #[cfg(any(test, target_arch = "wasm32"))]
 use crate::contract::fields::{Fields, number_list};
+use crate::contract::geometry::{Contact, Placement};
 use crate::contract::resolve::axis_from_degrees;
-use crate::contract::scenario::{CrystalPlate, ElementKind, Medium, Scenario};
+use crate::contract::result::{ElementReport, trace_scenario};
+use crate::contract::scenario::{CrystalPlate, Element, ElementKind, Medium, Scenario};
 use crate::error::Error;
 use crate::optics::material::Indices;
 use crate::optics::plate::plate_optics;
@@ -136,6 +140,57 @@ fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
     plate.medium.indices(wl).ok()
 }
 
+/// Whether the plate needs the whole trace: a biaxial or optically active crystal, which the
+/// uniaxial closed form of [`plate_optics`] does not describe.
+fn needs_trace(p: &CrystalPlate) -> bool {
+    matches!(p.medium, Medium::Biaxial(_) | Medium::Principal(_)) || p.chirality.is_some_and(|c| c.active)
+}
+
+/// (walk-off of the second mode, rad; separation, mm; retardance, rad) of the plate alone at the
+/// scenario's incidence, at `wl` and with its tilt set to `tilt_deg`, from the whole trace: the
+/// same plate as [`plate_numbers`] describes (placement left out), for any crystal.
+fn traced_numbers(sc: &Scenario, p: &CrystalPlate, tilt_deg: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
+    let plate = CrystalPlate {
+        tilt_deg,
+        placement: Placement::default(),
+        ..*p
+    };
+    let alone = Scenario {
+        wavelength: wl,
+        elements: vec![Element {
+            gap_mm: 0.0,
+            kind: ElementKind::Crystal(plate),
+            contact: Contact::Air,
+        }],
+        screen_mm: 0.0,
+        ..sc.clone()
+    };
+    match trace_scenario(&alone).ok()?.elements.first()? {
+        ElementReport::Crystal {
+            modes,
+            separation_mm,
+            retardance_rad,
+            ..
+        } => Some((
+            modes.second.walkoff_deg?.to_radians(),
+            (*separation_mm)?,
+            (*retardance_rad)?,
+        )),
+        _ => None,
+    }
+}
+
+/// [`plate_numbers`] of the plate at `wl` and tilt `tilt_deg`, by the closed form where it holds
+/// and by the whole trace otherwise.
+fn numbers_at(sc: &Scenario, st: &Setting, tilt_deg: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
+    let p = &st.plate;
+    if needs_trace(p) {
+        traced_numbers(sc, p, tilt_deg, wl)
+    } else {
+        plate_numbers(indices_at(p, wl)?, tilt_deg, p.azimuth_deg, st.qt, p.thickness_mm, wl)
+    }
+}
+
 /// (walk-off rad, separation mm, retardance rad) of one plate, or None if a mode is evanescent.
 fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
     plate_optics(ix, axis_from_degrees(tilt, az).ok()?, l, wl, qt)
@@ -166,19 +221,20 @@ pub fn walkoff_vs_tilt(sc: &Scenario, crystal: usize) -> Result<Series, Error> {
     let Some(st) = setting(sc, crystal) else {
         return Ok(no_crystal(title, xl, xu, yl, yu));
     };
-    let ix = st.plate.medium.indices(sc.wavelength)?;
+    if !needs_trace(&st.plate) {
+        // The formula's breakdown is an error here, as the trace reports it.
+        st.plate.medium.indices(sc.wavelength)?;
+    }
     let oblique = st.qt[0].hypot(st.qt[1]) > 0.0;
     let top = if st.plate.tilt_deg > 90.0 || oblique { 180 } else { 90 };
     let p = &st.plate;
     let points = (0..=top)
         .filter_map(|t| {
             let t = t as f64;
-            plate_numbers(ix, t, p.azimuth_deg, st.qt, p.thickness_mm, sc.wavelength)
-                .map(|(w, _, _)| [t, w.to_degrees()])
+            numbers_at(sc, &st, t, sc.wavelength).map(|(w, _, _)| [t, w.to_degrees()])
         })
         .collect();
-    let current = plate_numbers(ix, p.tilt_deg, p.azimuth_deg, st.qt, p.thickness_mm, sc.wavelength)
-        .map(|(w, _, _)| [p.tilt_deg, w.to_degrees()]);
+    let current = numbers_at(sc, &st, p.tilt_deg, sc.wavelength).map(|(w, _, _)| [p.tilt_deg, w.to_degrees()]);
     let note = format!("at {} nm, axis azimuth {}°", sc.wavelength.nm(), p.azimuth_deg);
     Ok(Series {
         title: title.into(),
@@ -212,8 +268,7 @@ fn wavelength_sweep(
     };
     let value = |nm: f64| -> Option<f64> {
         let wl = Wavelength::from_nm(nm).ok()?;
-        let ix = indices_at(&p, wl)?;
-        plate_numbers(ix, p.tilt_deg, p.azimuth_deg, st.qt, p.thickness_mm, wl).map(|(_, s, r)| pick(s, r))
+        numbers_at(sc, &st, p.tilt_deg, wl).map(|(_, s, r)| pick(s, r))
     };
     let n = WAVELENGTH_POINTS;
     let points = (0..n)
@@ -266,6 +321,34 @@ pub fn retardance_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
 mod tests {
     use super::*;
     use crate::contract::result::{ElementReport, trace_scenario as trace};
+
+    #[test]
+    fn sweeps_of_biaxial_and_active_crystals_pass_through_the_traced_point() {
+        for doc in [
+            include_str!("../../examples/ktp-plate.json"),
+            include_str!("../../examples/quartz-rotator.json"),
+        ] {
+            let sc = Scenario::from_json_str(doc).unwrap();
+            let r = trace(&sc).unwrap();
+            let ElementReport::Crystal {
+                separation_mm,
+                retardance_waves,
+                modes,
+                ..
+            } = &r.elements[0]
+            else {
+                panic!()
+            };
+            let w = walkoff_vs_tilt(&sc, 0).unwrap();
+            assert!((w.current.unwrap()[1] - modes.second.walkoff_deg.unwrap()).abs() < 1e-9);
+            assert!(w.points.len() > 90);
+            let s = separation_vs_wavelength(&sc, 0);
+            assert!((s.current.unwrap()[1] - separation_mm.unwrap()).abs() < 1e-12);
+            assert!(s.points.len() > 100);
+            let g = retardance_vs_wavelength(&sc, 0);
+            assert!((g.current.unwrap()[1] - retardance_waves.unwrap()).abs() < 1e-9);
+        }
+    }
 
     #[test]
     fn sweeps_pass_through_the_traced_point() {

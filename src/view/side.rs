@@ -29,7 +29,6 @@ use crate::contract::result::{ElementReport, Ray, TraceResult};
 use crate::contract::scenario::{CrystalPlate, ElementKind, Scenario};
 use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
 use crate::optics::geometry::Plane;
-use crate::optics::uniaxial::OpticAxis;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 use nalgebra::Vector3;
 
@@ -213,11 +212,20 @@ impl<'a> Frame<'a> {
                         z_front_mm,
                         z_back_mm,
                         material,
+                        optic_axes,
                         ..
                     },
                 ) => {
                     let (z0, z1) = (*z_front_mm, *z_back_mm);
-                    self.plate(scene, plate, el.contact, (z0, z1), material, crystal_index);
+                    self.plate(
+                        scene,
+                        plate,
+                        el.contact,
+                        (z0, z1),
+                        material,
+                        crystal_index,
+                        optic_axes.as_ref(),
+                    );
                     crystal_index += 1;
                     z_cursor = z1;
                 }
@@ -253,7 +261,9 @@ impl<'a> Frame<'a> {
         ]
     }
 
-    /// Draws one crystal between `z0` and `z1`: the plate, its name and thickness, its axis.
+    /// Draws one crystal between `z0` and `z1`: the plate, its name and thickness, its optic axis
+    /// (or a biaxial crystal's two, `optic_axes` from its report).
+    #[allow(clippy::too_many_arguments)] // one crystal's drawing inputs, each used once
     fn plate(
         &self,
         scene: &mut Scene,
@@ -262,6 +272,7 @@ impl<'a> Frame<'a> {
         (z0, z1): (f64, f64),
         material: &str,
         index: usize,
+        optic_axes: Option<&[[f64; 3]; 2]>,
     ) {
         let (px0, px1) = (self.px0, self.px1);
         let points = if plate.placement.is_default() {
@@ -281,17 +292,25 @@ impl<'a> Frame<'a> {
             Anchor::Middle,
             Role::Caption,
         );
-        if let Ok(axis) =
-            crate::contract::resolve::axis_from_degrees(plate.tilt_deg, plate.azimuth_deg - self.names.turn_deg)
-        {
-            axis_mark(
-                scene,
-                axis,
-                [0.5 * (z0 + z1), 0.5 * (px0 + px1)],
-                (z1 - z0).min((px1 - px0) * self.s) * 0.3,
-                self.s,
-                index,
-            );
+        let centre = [0.5 * (z0 + z1), 0.5 * (px0 + px1)];
+        let len = (z1 - z0).min((px1 - px0) * self.s) * 0.3;
+        match optic_axes {
+            // A biaxial crystal: its two optic axes (lab frame), turned into the drawn plane.
+            Some(axes) => {
+                let (s, c) = (-self.names.turn_deg).to_radians().sin_cos();
+                for (k, a) in axes.iter().enumerate() {
+                    let v = Vector3::new(c * a[0] - s * a[1], s * a[0] + c * a[1], a[2]);
+                    let name = if k == 0 { "c₁" } else { "c₂" };
+                    axis_mark(scene, v, name, centre, len, self.s, &format!("{index}.{}", k + 1));
+                }
+            }
+            None => {
+                if let Ok(axis) =
+                    crate::contract::resolve::axis_from_degrees(plate.tilt_deg, plate.azimuth_deg - self.names.turn_deg)
+                {
+                    axis_mark(scene, axis.unit(), "c", centre, len, self.s, &index.to_string());
+                }
+            }
         }
     }
 
@@ -741,8 +760,7 @@ fn walkoff_azimuth(result: &TraceResult) -> Option<(f64, f64)> {
 }
 
 /// Draws the optic-axis mark of a crystal centred at `c` (world), `len` long on screen.
-fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f64, index: usize) {
-    let v = axis.unit();
+fn axis_mark(scene: &mut Scene, v: Vector3<f64>, name: &str, c: Point, len: f64, stretch: f64, index: &str) {
     // In-plane projection (z, x), drawn at its true screen angle despite the stretch.
     let (pz, px) = (v.z, v.x);
     let n = pz.hypot(px);
@@ -765,7 +783,7 @@ fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f6
         });
         scene.label(
             [c[0] + dz, c[1] + dx],
-            "c",
+            name,
             12.0,
             Anchor::Start,
             Role::Axis,
@@ -777,7 +795,7 @@ fn axis_mark(scene: &mut Scene, axis: OpticAxis, c: Point, len: f64, stretch: f6
         let glyph = if v.y > 0.0 { "⊙" } else { "⊗" };
         scene.label(
             [c[0], c[1]],
-            format!("{glyph} c_y {}", sig(v.y, 2)),
+            format!("{glyph} {name}_y {}", sig(v.y, 2)),
             12.0,
             Anchor::Middle,
             Role::Axis,

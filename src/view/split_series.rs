@@ -112,10 +112,15 @@ fn no_split(title: &str, x_label: &str, x_unit: &str, (lo, hi): (f64, f64), now:
 fn common_range(sc: &Scenario) -> (f64, f64) {
     let mut range: Option<(f64, f64)> = None;
     for el in &sc.elements {
-        if let ElementKind::Crystal(c) = el.kind
-            && let Medium::Catalogue(m) = c.medium
-        {
-            let (lo, hi) = m.range_nm;
+        let catalogued = match el.kind {
+            ElementKind::Crystal(c) => match c.medium {
+                Medium::Catalogue(m) => Some(m.range_nm),
+                Medium::Biaxial(m) => Some(m.range_nm),
+                Medium::Custom(_) | Medium::Principal(_) => None,
+            },
+            _ => None,
+        };
+        if let Some((lo, hi)) = catalogued {
             range = Some(range.map_or((lo, hi), |(a, b)| (a.max(lo), b.min(hi))));
         }
     }

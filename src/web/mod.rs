@@ -491,6 +491,16 @@ pub fn presets() -> Result<JsValue, JsValue> {
             "tilt-tuned quartz plate",
             include_str!("../../examples/tilt-tuned-quartz-plate.json"),
         ),
+        (
+            "ktp-plate",
+            "KTP plate, biaxial walk-off",
+            include_str!("../../examples/ktp-plate.json"),
+        ),
+        (
+            "quartz-rotator",
+            "quartz rotator, 45°",
+            include_str!("../../examples/quartz-rotator.json"),
+        ),
     ];
     let list: Vec<serde_json::Value> = files
         .iter()
