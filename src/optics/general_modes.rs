@@ -217,24 +217,62 @@ fn polynomial_roots(delta: &M4) -> [C; 4] {
     })
 }
 
-/// Right singular vectors of `m`, smallest singular value first (the standard basis if the SVD
-/// does not settle, which keeps every answer finite).
-fn null_vectors(m: M4) -> [V4; 4] {
-    let fallback = [0, 1, 2, 3].map(|k| V4::from_fn(|i, _| C::from(if i == k { 1.0 } else { 0.0 })));
-    let Some(svd) = m.try_svd(false, true, f64::EPSILON, EIGEN_SWEEPS) else {
-        return fallback;
-    };
-    let Some(vt) = svd.v_t else { return fallback };
-    let mut order = [0usize, 1, 2, 3];
-    order.sort_by(|&i, &j| svd.singular_values[i].total_cmp(&svd.singular_values[j]));
-    order.map(|k| {
-        V4::new(
-            vt[(k, 0)].conj(),
-            vt[(k, 1)].conj(),
-            vt[(k, 2)].conj(),
-            vt[(k, 3)].conj(),
-        )
-    })
+/// An orthonormal basis of the `dim`-dimensional (1 or 2) null space of `m`, a matrix of rank
+/// 4 − `dim` to rounding: Gaussian elimination with complete pivoting (rank-revealing for such a
+/// matrix, whose other singular values are far from zero), back substitution with each free
+/// unknown set to 1 in turn, then Gram–Schmidt. Small code where a singular value decomposition
+/// would weigh on the page's module; never NaN (a pivot that is exactly zero ends the
+/// elimination early).
+fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
+    let mut col = [0usize, 1, 2, 3];
+    let mut rank = 0;
+    for k in 0..4 - dim {
+        let (mut pi, mut pj, mut best) = (k, k, 0.0);
+        for i in k..4 {
+            for j in k..4 {
+                let x = a[(i, j)].norm();
+                if x > best {
+                    (pi, pj, best) = (i, j, x);
+                }
+            }
+        }
+        if best == 0.0 {
+            break;
+        }
+        a.swap_rows(k, pi);
+        a.swap_columns(k, pj);
+        col.swap(k, pj);
+        for i in k + 1..4 {
+            let f = a[(i, k)] / a[(k, k)];
+            for j in k..4 {
+                let akj = a[(k, j)];
+                a[(i, j)] -= f * akj;
+            }
+        }
+        rank = k + 1;
+    }
+    let mut out = [V4::zeros(); 2];
+    for (t, v) in out.iter_mut().enumerate().take(dim) {
+        let mut x = V4::zeros();
+        x[(4 - dim + t).max(rank)] = C::ONE;
+        for k in (0..rank).rev() {
+            let sum: C = (k + 1..4).map(|j| a[(k, j)] * x[j]).sum();
+            x[k] = -sum / a[(k, k)];
+        }
+        for (j, &c) in col.iter().enumerate() {
+            v[c] = x[j];
+        }
+    }
+    // Gram–Schmidt (Hermitian).
+    for t in 0..dim {
+        let mut v = out[t];
+        for u in &out[..t] {
+            v -= u * u.dotc(&v);
+        }
+        let n = v.norm();
+        out[t] = if n > 0.0 { v / C::from(n) } else { V4::zeros() };
+    }
+    out
 }
 
 /// One wave: its q_z, tangential fields and whether it propagates.
@@ -259,7 +297,7 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
                 (l, false, l.im)
             } else {
                 let l = C::from(l.re);
-                let v = null_vectors(sys.delta - M4::identity() * l)[0];
+                let v = null_basis(sys.delta - M4::identity() * l, 1)[0];
                 (l, true, flux(&v, &v).re)
             }
         })
@@ -279,7 +317,7 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
     }
     if close {
         // Two degenerate evanescent waves.
-        let [u0, u1, ..] = null_vectors(pair_product(sys, l0, l1));
+        let [u0, u1] = null_basis(pair_product(sys, l0, l1), 2);
         let c = first_of_pair(sys, &[u0, u1]);
         let first = u0 * c[0] + u1 * c[1];
         let second = u0 * c[1].conj() - u1 * c[0].conj();
@@ -291,7 +329,7 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
         return ([wave(first), wave(second)], true);
     }
     let single = |l: C, p: bool| {
-        let psi = null_vectors(sys.delta - M4::identity() * l)[0];
+        let psi = null_basis(sys.delta - M4::identity() * l, 1)[0];
         let qz = if p { C::from(sys.refined(&psi)) } else { l };
         Wave {
             qz,
@@ -325,7 +363,7 @@ fn first_of_pair(sys: &System, u: &[V4; 2]) -> Vector2<C> {
 /// The two propagating waves of roots λ₀, λ₁ (travelling the way of sign `s`): flux-orthonormal
 /// eigenvectors of the 2×2 Hermitian problem on their invariant subspace.
 fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
-    let [u0, u1, ..] = null_vectors(pair_product(sys, l0, l1));
+    let [u0, u1] = null_basis(pair_product(sys, l0, l1), 2);
     let u = [u0, u1];
     // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U (Hermitian).
     let du = u.map(|v| sys.delta * v);
