@@ -86,8 +86,12 @@ fn mul(a: &M4, b: &M4) -> M4 {
     out
 }
 
+fn dot(row: &V4, v: &V4) -> C {
+    row[0] * v[0] + row[1] * v[1] + row[2] * v[2] + row[3] * v[3]
+}
+
 fn apply(a: &M4, v: &V4) -> V4 {
-    a.map(|row| row.iter().zip(v).map(|(x, y)| x * y).sum())
+    [dot(&a[0], v), dot(&a[1], v), dot(&a[2], v), dot(&a[3], v)]
 }
 
 /// a − λ I.
@@ -101,7 +105,12 @@ fn shifted(a: &M4, l: C) -> M4 {
 
 /// x a + y b.
 fn combine(a: &V4, x: C, b: &V4, y: C) -> V4 {
-    [0, 1, 2, 3].map(|i| a[i] * x + b[i] * y)
+    [
+        a[0] * x + b[0] * y,
+        a[1] * x + b[1] * y,
+        a[2] * x + b[2] * y,
+        a[3] * x + b[3] * y,
+    ]
 }
 
 fn norm(v: &V4) -> f64 {
@@ -147,14 +156,18 @@ impl System {
         // determinant is ε_zz − κ_zz² > 0 for any admitted crystal (|κ| < 1% of the indices).
         let (z00, z01, z10, z11) = (c6(2, 2), c6(2, 5), c6(5, 2), c6(5, 5));
         let det = z00 * z11 - z01 * z10;
-        let lift = [
-            T.map(|k| -(z11 * c6(2, k) - z01 * c6(5, k)) / det),
-            T.map(|k| -(-z10 * c6(2, k) + z00 * c6(5, k)) / det),
-        ];
-        let reduced = T.map(|r| [0, 1, 2, 3].map(|k| c6(r, T[k]) + c6(r, 2) * lift[0][k] + c6(r, 5) * lift[1][k]));
+        let mut lift = [[C::ZERO; 4]; 2];
+        for (k, &t) in T.iter().enumerate() {
+            lift[0][k] = -(z11 * c6(2, t) - z01 * c6(5, t)) / det;
+            lift[1][k] = -(z00 * c6(5, t) - z10 * c6(2, t)) / det;
+        }
         // R_z on ψ is the signed permutation P (its own inverse): rows (h_y, −h_x, −E_y, E_x).
-        let neg = |row: V4| row.map(|z| -z);
-        let delta = [reduced[3], neg(reduced[2]), neg(reduced[1]), reduced[0]];
+        let mut delta = [[C::ZERO; 4]; 4];
+        for (row, (r, sign)) in delta.iter_mut().zip([(4, 1.0), (3, -1.0), (1, -1.0), (0, 1.0)]) {
+            for (k, &t) in T.iter().enumerate() {
+                row[k] = (c6(r, t) + c6(r, 2) * lift[0][k] + c6(r, 5) * lift[1][k]) * sign;
+            }
+        }
         System {
             delta,
             lift,
@@ -166,9 +179,8 @@ impl System {
 
     /// The full (E, h, D) of tangential fields ψ.
     fn fields(&self, psi: &V4) -> (CVector3, CVector3, CVector3) {
-        let z = self.lift.map(|row| row.iter().zip(psi).map(|(x, y)| x * y).sum::<C>());
-        let e = CVector3::new(psi[0], psi[1], z[0]);
-        let h = CVector3::new(psi[2], psi[3], z[1]);
+        let e = CVector3::new(psi[0], psi[1], dot(&self.lift[0], psi));
+        let h = CVector3::new(psi[2], psi[3], dot(&self.lift[1], psi));
         let d = CVector3::from_fn(|r, _| {
             (0..3)
                 .map(|k| e[k] * self.eps[(r, k)] + h[k] * C::new(0.0, self.kappa[(r, k)]))
@@ -346,7 +358,11 @@ fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
             v = combine(&v, C::ONE, u, -p);
         }
         let n = norm(&v);
-        out[t] = if n > 0.0 { v.map(|z| z / n) } else { [C::ZERO; 4] };
+        out[t] = if n > 0.0 {
+            combine(&v, C::from(1.0 / n), &v, C::ZERO)
+        } else {
+            [C::ZERO; 4]
+        };
     }
     out
 }
@@ -365,16 +381,16 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
     let s = travel.sign();
     // Each root with whether it propagates and how far it goes along +z: its decay rate, or its
     // normal flux.
-    let scored = eigenvalues(&sys.delta).map(|l| {
-        let tol = EVANESCENT_ROOT * (1.0 + l.norm());
-        if l.im.abs() > tol {
+    let mut scored = [(C::ZERO, false, 0.0); 4];
+    for (out, l) in scored.iter_mut().zip(eigenvalues(&sys.delta)) {
+        *out = if l.im.abs() > EVANESCENT_ROOT * (1.0 + l.norm()) {
             (l, false, l.im)
         } else {
             let l = C::from(l.re);
             let v = null_basis(shifted(&sys.delta, l), 1)[0];
             (l, true, flux(&v, &v).re)
-        }
-    });
+        };
+    }
     // The two that go along the travel (the two most so, if rounding at grazing blurs it).
     let along = |i: usize| scored[i].2 * s;
     let first = (1..4).fold(0, |m, i| if along(i) > along(m) { i } else { m });
@@ -420,7 +436,7 @@ fn pair_product(sys: &System, l0: C, l1: C) -> M4 {
 /// (along ŷ when |q_x| > |q_y|): the documented first wave of a degenerate pair.
 fn first_of_pair(sys: &System, u: &[V4; 2]) -> [C; 2] {
     let along = usize::from(sys.qt[0].abs() > sys.qt[1].abs());
-    let a = u.map(|v| sys.fields(&v).2[along]);
+    let a = [sys.fields(&u[0]).2[along], sys.fields(&u[1]).2[along]];
     let n = a[0].norm().hypot(a[1].norm());
     if n > 0.0 {
         [a[1] / n, -a[0] / n]
@@ -433,7 +449,7 @@ fn first_of_pair(sys: &System, u: &[V4; 2]) -> [C; 2] {
 /// eigenvectors of the 2×2 Hermitian problem on their invariant subspace.
 fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
     let u = null_basis(pair_product(sys, l0, l1), 2);
-    let du = u.map(|v| apply(&sys.delta, &v));
+    let du = [apply(&sys.delta, &u[0]), apply(&sys.delta, &u[1])];
     // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U, both Hermitian (their Hermitian parts taken,
     // which rounding aside they are already).
     let herm = |f: &dyn Fn(usize, usize) -> C| {
@@ -548,7 +564,10 @@ pub fn general_modes(medium: &Anisotropic, qt: [f64; 2], travel: Travel) -> [Mod
         w.swap(0, 1);
     }
     let kinds = [ModeKind::Ordinary, ModeKind::Extraordinary];
-    [0, 1].map(|k| assemble(&sys, kinds[k], travel, &w[k]))
+    [
+        assemble(&sys, kinds[0], travel, &w[0]),
+        assemble(&sys, kinds[1], travel, &w[1]),
+    ]
 }
 
 /// The normalized mode of one wave.
