@@ -556,7 +556,7 @@ fn swapped(medium: &Anisotropic, qt: [f64; 2], w: &[Wave; 2]) -> bool {
 
 /// Both modes of a general crystal `medium` (given in the face frame, face ⊥ z) at tangential
 /// wave vector `qt`, travelling along `travel`: the medium's first letter in the
-/// [`ModeKind::Ordinary`] slot, its second in the other (module header). Never NaN.
+/// `ModeKind::Ordinary` slot, its second in the other (module header). Never NaN.
 pub fn general_modes(medium: &Anisotropic, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
     let sys = System::new(medium, qt);
     let (mut w, degenerate) = waves(&sys, travel);

@@ -43,7 +43,7 @@ pub enum Medium {
 }
 
 impl Medium {
-    /// The letters of its two modes, first mode ([`crate::optics::modes::ModeKind::Ordinary`]
+    /// The letters of its two modes, first mode (`ModeKind::Ordinary`
     /// slot) first: `o`/`e` for a uniaxial crystal, the general crystal's own
     /// ([`Anisotropic::letters`]: `o`/`e` or `f`/`s`).
     pub fn letters(&self) -> [char; 2] {
