@@ -778,7 +778,8 @@ mod tests {
     /// Every mode solves the wave equation of the medium: q × E = h − iκE and
     /// q × h = −(εE + iκh) = −D, to 1e-12; propagating modes carry unit flux the right way and the
     /// two of a pair carry no cross flux (power-orthogonal), also exactly on a binormal, near one
-    /// (10⁻⁹ off) and along a chiral crystal's axis.
+    /// (10⁻⁹ off) and along a chiral crystal's axis, and for an isotropic crystal (chiral or
+    /// not) beyond its critical angle; exactly at it (grazing) the answer is finite.
     #[test]
     fn modes_solve_maxwell_and_are_power_orthogonal_everywhere() {
         let r = orientation(0.4, 1.1, -0.6);
@@ -795,6 +796,14 @@ mod tests {
                 let d = (dir + Vector3::new(off, -0.5 * off, 0.0)).normalize();
                 cases.push((m, [n * d.x, n * d.y]));
             }
+        }
+        // An isotropic crystal beyond its critical angle (a degenerate evanescent pair), exactly
+        // at it (grazing), and an isotropic chiral one beyond it.
+        let isotropic = medium([1.6; 3], r, [0.0; 3]);
+        let chiral_isotropic = medium([1.6; 3], r, [2e-3; 3]);
+        for qt in [[2.0, 0.3], [0.0, 1.7], [1.6, 0.0], [1.6 * 0.6, 1.6 * 0.8]] {
+            cases.push((isotropic, qt));
+            cases.push((chiral_isotropic, qt));
         }
         for _ in 0..300 {
             let m = medium(
@@ -824,7 +833,17 @@ mod tests {
                     let r3 = md.d - (eps * md.e + kap * md.h);
                     let scale = md.e.norm().max(md.h.norm());
                     let res = (r1.norm() + r2.norm() + r3.norm()) / scale;
-                    assert!(res < 1e-12, "{qt:?} {travel:?}: residual {res}");
+                    // Exactly grazing, the forward and backward roots meet at q_z = 0 (a
+                    // defective double root), which any method resolves only to √ε ≈ 1e-8: there
+                    // the fields must be finite and nearly solve the equations.
+                    let grazing = (qt[0].hypot(qt[1]) - 1.6).abs() < 1e-12;
+                    assert!(
+                        res < if grazing { 1e-6 } else { 1e-12 },
+                        "{qt:?} {travel:?}: residual {res}"
+                    );
+                    if grazing {
+                        continue;
+                    }
                     if md.propagating {
                         let sz = cross_flux(md, md).re;
                         assert_within(sz, travel.sign(), 1e-12, "unit flux along the travel");
@@ -832,7 +851,7 @@ mod tests {
                         assert!(md.qz().im * travel.sign() > 0.0, "decays along its travel");
                     }
                 }
-                if modes[0].propagating && modes[1].propagating {
+                if modes[0].propagating && modes[1].propagating && (qt[0].hypot(qt[1]) - 1.6).abs() >= 1e-12 {
                     let x = cross_flux(&modes[0], &modes[1]).norm();
                     worst = worst.max(x);
                     assert!(x < 1e-12, "{qt:?}: cross flux {x}");
