@@ -16,6 +16,9 @@
 //!   [`doublespar::run_workload`], which the numpy baseline (`scripts/bench/splitter_numpy.py`)
 //!   computes too; `splitter_split`: the same samples' split angles by wave-vector chains.
 //! - `splitter_monte_carlo`: a 100 000-sample angular-splitter tolerance run.
+//! - `mode_solve`: one solve of both forward modes at a face, per call over 10⁵ tangential wave
+//!   vectors: the uniaxial closed form (`crystal_modes`), the general 4×4 solver
+//!   (`general_modes`) on the same uniaxial crystal, and on a biaxial, optically active one.
 
 use doublespar::Indices;
 use doublespar::Scenario;
@@ -23,6 +26,7 @@ use doublespar::Wavelength;
 use doublespar::Workload;
 use doublespar::trace_scenario as trace;
 use doublespar::walkoff;
+use doublespar::{Anisotropic, Travel, Uniaxial, crystal_modes, general_modes, orientation};
 use doublespar::{OpticAxis, plate_optics, tangential};
 use std::hint::black_box;
 use std::time::Instant;
@@ -62,6 +66,33 @@ pub fn walkoff_sweep_dense(ix: Indices, out: &mut [f64]) -> f64 {
     doublespar::checksum(out)
 }
 
+/// The n tangential wave vectors of the mode-solve benchmark: |q_t| up to 1.3, any azimuth.
+fn tangentials(n: usize) -> Vec<[f64; 2]> {
+    (0..n)
+        .map(|i| {
+            let (r, a) = (1.3 * (i as f64 / n as f64).sqrt(), 2.399963 * i as f64);
+            [r * a.cos(), r * a.sin()]
+        })
+        .collect()
+}
+
+/// Σ Re q_z of both forward modes over `qts` by `solve`: the checksum of a mode-solve run.
+fn mode_solves(qts: &[[f64; 2]], solve: impl Fn([f64; 2]) -> [doublespar::Mode; 2]) -> f64 {
+    qts.iter()
+        .map(|&qt| solve(black_box(qt)).iter().map(|m| m.qz().re).sum::<f64>())
+        .sum()
+}
+
+/// The crystals of the mode-solve benchmark: a calcite-like uniaxial one by both solvers, and a
+/// biaxial, optically active one (KTP-like indices, quartz-like chirality).
+fn mode_crystals() -> (Uniaxial, Anisotropic, Anisotropic) {
+    let (no, ne, tilt, az) = (1.6557, 1.4849, 0.7, 0.3);
+    let closed = Uniaxial::new(Indices::new(no, ne).unwrap(), OpticAxis::from_angles(tilt, az));
+    let same = Anisotropic::new([no, no, ne], orientation(tilt, az, 0.0), [0.0; 3]).unwrap();
+    let general = Anisotropic::new([1.74, 1.75, 1.83], orientation(0.4, 1.1, -0.6), [3.5e-5, 3.5e-5, -2e-5]).unwrap();
+    (closed, same, general)
+}
+
 /// What `cargo test` runs of this file (it passes no `--bench`): every part once at a small
 /// size, so that the benchmark is known to run without the test suite paying for its timings.
 fn smoke() {
@@ -82,6 +113,11 @@ fn smoke() {
     ] {
         doublespar::solve_design_str(request).unwrap();
     }
+    let (closed, same, _) = mode_crystals();
+    let qts = tangentials(100);
+    let a = mode_solves(&qts, |qt| crystal_modes(&closed, qt, Travel::Forward));
+    let b = mode_solves(&qts, |qt| general_modes(&same, qt, Travel::Forward));
+    assert!((a - b).abs() < 1e-9, "closed form {a} vs general {b}");
     println!("benchmark smoke run: every part runs (time it with cargo bench --bench core)");
 }
 
@@ -147,6 +183,26 @@ fn main() {
             .unwrap()
     });
 
+    let (closed, same, general) = mode_crystals();
+    let qts = tangentials(100_000);
+    let (t_closed, sum_closed) = time(7, || {
+        mode_solves(&qts, |qt| crystal_modes(&closed, qt, Travel::Forward))
+    });
+    let (t_same, sum_same) = time(7, || mode_solves(&qts, |qt| general_modes(&same, qt, Travel::Forward)));
+    let (t_general, _) = time(7, || {
+        mode_solves(&qts, |qt| general_modes(&general, qt, Travel::Forward))
+    });
+    assert!(
+        (sum_closed - sum_same).abs() < 1e-6,
+        "closed form {sum_closed} vs general {sum_same}"
+    );
+    let per_call_ns = |t: f64| t / qts.len() as f64 * 1e9;
+    println!(
+        "mode solve (both forward modes at a face), per call: {:.0} ns uniaxial closed form, {:.0} ns general 4x4 solver on the same crystal, {:.0} ns biaxial chiral",
+        per_call_ns(t_closed),
+        per_call_ns(t_same),
+        per_call_ns(t_general)
+    );
     println!(
         "two-wedge splitter, 10^5 whole traces (4 rays each): {:.1} ms, {:.0} traces/s (checksum {wedges_sum:.12e})",
         t_wedges * 1e3,
@@ -173,7 +229,7 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
@@ -181,6 +237,9 @@ fn main() {
         t_mc * 1e3,
         t_wedges * 1e3,
         t_split * 1e3,
-        t_splitter_mc * 1e3
+        t_splitter_mc * 1e3,
+        per_call_ns(t_closed),
+        per_call_ns(t_same),
+        per_call_ns(t_general)
     );
 }

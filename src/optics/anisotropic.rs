@@ -205,7 +205,9 @@ impl Anisotropic {
     /// wave normal `s`: 1/n² are the eigenvalues of the transverse part of ε⁻¹ on the plane ⊥ s
     /// (Born & Wolf §15.2), independent of the binormal formula of [`Anisotropic::optic_axes`].
     pub fn indices_along(&self, s: Vector3<f64>) -> (f64, f64) {
-        let inv = self.permittivity().try_inverse().unwrap_or_else(Matrix3::identity);
+        let [a, b, c] = self.principal;
+        let d = Vector3::new(1.0 / (a * a), 1.0 / (b * b), 1.0 / (c * c));
+        let inv = self.axes * Matrix3::from_diagonal(&d) * self.axes.transpose();
         let t1 = s
             .cross(&Vector3::x())
             .try_normalize(1e-6)

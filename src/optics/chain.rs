@@ -176,6 +176,7 @@ pub fn chain(stack: &Stack, label: &str) -> Option<ChainEnd> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::optics::anisotropic::orientation;
     use crate::optics::geometry::direction;
     use crate::optics::interface::Losses;
     use crate::optics::jones;
@@ -190,7 +191,15 @@ mod tests {
         lo + (hi - lo) * rng.uniform()
     }
 
-    fn random_crystal(rng: &mut Rng) -> Medium {
+    fn random_crystal(rng: &mut Rng, general: bool) -> Medium {
+        if general {
+            // Biaxial, half of them optically active (κ up to 10⁻³, beyond any crystal's).
+            let principal = [0; 3].map(|_| between(rng, 1.4, 2.2));
+            let axes = orientation(between(rng, 0.0, 3.2), between(rng, -3.2, 3.2), between(rng, -3.2, 3.2));
+            let chiral = rng.uniform() < 0.5;
+            let chirality = [0; 3].map(|_| if chiral { between(rng, -1e-3, 1e-3) } else { 0.0 });
+            return Medium::Anisotropic(Anisotropic::new(principal, axes, chirality).unwrap());
+        }
         let (no, ne) = (between(rng, 1.4, 2.2), between(rng, 1.4, 2.2));
         let axis = OpticAxis::from_angles(between(rng, 0.0, 3.2), between(rng, -3.2, 3.2));
         Medium::Uniaxial(Uniaxial::new(Indices::new(no, ne).unwrap(), axis))
@@ -203,7 +212,7 @@ mod tests {
 
     /// Two wedges (each face tilted up to 34°, apertures of 6 mm), touching in one of the three
     /// ways or apart, sometimes after two ideal elements, lit at up to 60°.
-    fn random_stack(rng: &mut Rng) -> Stack {
+    fn random_stack(rng: &mut Rng, general: bool) -> Stack {
         let radius = 3.0;
         let slope = |n: &Vector3<f64>| (1.0 - n.z * n.z).sqrt() / n.z;
         let mut layers = Vec::new();
@@ -244,7 +253,7 @@ mod tests {
             layers.push(Layer {
                 gap_mm,
                 element: Element::Slab(Slab {
-                    medium: random_crystal(rng),
+                    medium: random_crystal(rng, general),
                     thickness_mm,
                     faces: Some(Faces {
                         front,
@@ -285,38 +294,76 @@ mod tests {
         }
     }
 
+    /// Checks that the chain and the whole trace `traced` of `stack` agree on the ray `label`:
+    /// both have it, with the same direction and exit point to rounding, or neither has; counts it
+    /// in `counts` as [got through, missing].
+    fn same_end(
+        stack: &Stack,
+        traced: &crate::optics::traced::Trace,
+        label: &str,
+        case: usize,
+        counts: &mut [usize; 2],
+    ) {
+        let path = traced.paths.iter().find(|p| p.label == label);
+        match (chain(stack, label), path) {
+            (Some(end), Some(p)) => {
+                let dd = (end.direction - p.direction).norm();
+                let dp = (end.exit_point_mm - Vector3::from(p.exit_point_mm)).norm();
+                assert!(
+                    dd < 1e-13 && dp < 1e-11,
+                    "case {case} {label}: direction {dd:e}, exit {dp:e} mm"
+                );
+                counts[0] += 1;
+            }
+            (None, None) => counts[1] += 1,
+            (ours, theirs) => panic!(
+                "case {case} {label}: chain {ours:?}, trace {:?}",
+                theirs.map(|p| &p.label)
+            ),
+        }
+    }
+
     /// Independent path through the code: the whole trace (fields, boundary problems, rejected
     /// rays) and the chain agree on every ray of generated wedge pairs: the same rays get
     /// through, with the same directions and exit points, to rounding.
     #[test]
     fn the_chain_ends_where_the_whole_trace_does() {
         let mut rng = Rng::new(17);
-        let (mut through, mut missing) = (0, 0);
+        let mut counts = [0usize; 2];
         for case in 0..3000 {
-            let stack = random_stack(&mut rng);
+            let stack = random_stack(&mut rng, false);
             let traced = trace_planar(&stack);
             for label in ["oo", "oe", "eo", "ee"] {
-                let path = traced.paths.iter().find(|p| p.label == label);
-                match (chain(&stack, label), path) {
-                    (Some(end), Some(p)) => {
-                        through += 1;
-                        let dd = (end.direction - p.direction).norm();
-                        let dp = (end.exit_point_mm - Vector3::from(p.exit_point_mm)).norm();
-                        assert!(
-                            dd < 1e-13 && dp < 1e-11,
-                            "case {case} {label}: direction {dd:e}, exit {dp:e} mm"
-                        );
-                    }
-                    (None, None) => missing += 1,
-                    (ours, theirs) => panic!(
-                        "case {case} {label}: chain {ours:?}, trace {:?}",
-                        theirs.map(|p| &p.label)
-                    ),
-                }
+                same_end(&stack, &traced, label, case, &mut counts);
             }
             assert!(chain(&stack, "o").is_none() && chain(&stack, "oeo").is_none() && chain(&stack, "ox").is_none());
         }
         // Both outcomes are met often (12,000 rays in all; 5,589 get through with this seed).
-        assert!(through > 4000 && missing > 4000, "through {through}, missing {missing}");
+        assert!(counts[0] > 4000 && counts[1] > 4000, "through, missing: {counts:?}");
+    }
+
+    /// The same for biaxial and optically active crystals (the 4×4 solver in each face's frame):
+    /// the chain's rays, labelled with the crystals' own letters, are the whole trace's.
+    #[test]
+    fn the_chain_ends_where_the_whole_trace_does_in_general_crystals() {
+        let mut rng = Rng::new(29);
+        let mut counts = [0usize; 2];
+        for case in 0..600 {
+            let stack = random_stack(&mut rng, true);
+            let traced = trace_planar(&stack);
+            let letters: Vec<[char; 2]> = stack
+                .layers
+                .iter()
+                .filter_map(|l| match l.element {
+                    Element::Slab(s) => Some(s.medium.letters()),
+                    Element::Ideal(_) => None,
+                })
+                .collect();
+            for (a, b) in [(0, 0), (0, 1), (1, 0), (1, 1)] {
+                let label: String = [letters[0][a], letters[1][b]].iter().collect();
+                same_end(&stack, &traced, &label, case, &mut counts);
+            }
+        }
+        assert!(counts[0] > 600 && counts[1] > 300, "through, missing: {counts:?}");
     }
 }

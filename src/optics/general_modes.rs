@@ -12,7 +12,8 @@
 //! The z rows hold no q_z: they give (E_z, h_z) in terms of the tangential fields
 //! ψ = (E_x, E_y, h_x, h_y), and the other four rows become q_z ψ = Δ ψ (D. W. Berreman, J. Opt.
 //! Soc. Am. 62, 502 (1972); P. Yeh, *Optical Waves in Layered Media*, ch. 9). Its four eigenvalues
-//! (nalgebra's complex Schur form) are the normal components of the four waves. The normal energy
+//! (the complex Schur form's diagonal, by a short shifted QR iteration checked against nalgebra's
+//! Schur decomposition) are the normal components of the four waves. The normal energy
 //! flux is S_z = Re(E × h*)_z = ψᴴ J ψ; for a lossless medium (ε real symmetric, κ real
 //! symmetric: the constitutive matrix is Hermitian) J Δ is Hermitian, so waves of different q_z
 //! carry no cross flux, and each pair of propagating waves is found as the two flux-orthonormal
@@ -61,27 +62,75 @@
 use crate::optics::anisotropic::{Anisotropic, ModeLetters};
 use crate::optics::modes::{CVector3, Mode, ModeKind, Travel};
 use crate::precision::{DEGENERATE_MODES, EIGEN_SWEEPS, EVANESCENT_ROOT};
-use nalgebra::{Matrix2, Matrix2x4, Matrix3, Matrix4, Vector2, Vector3, Vector4};
+use nalgebra::{Matrix3, Vector3};
 use num_complex::Complex64;
 
+// The 4×4 algebra is written on plain arrays with a handful of loops (and the eigenvalues by a
+// short shifted QR iteration): the page's WebAssembly module carries every routine the trace can
+// reach, and generic matrix code for one more element type weighs several times as much.
 type C = Complex64;
-type M4 = Matrix4<C>;
-type V4 = Vector4<C>;
+/// Tangential fields ψ = (E_x, E_y, h_x, h_y).
+type V4 = [C; 4];
+/// A 4×4 matrix, rows first.
+type M4 = [[C; 4]; 4];
+
+fn mul(a: &M4, b: &M4) -> M4 {
+    let mut out = [[C::ZERO; 4]; 4];
+    for (row, a_row) in out.iter_mut().zip(a) {
+        for (aik, b_row) in a_row.iter().zip(b) {
+            for (o, bkj) in row.iter_mut().zip(b_row) {
+                *o += aik * bkj;
+            }
+        }
+    }
+    out
+}
+
+fn dot(row: &V4, v: &V4) -> C {
+    row[0] * v[0] + row[1] * v[1] + row[2] * v[2] + row[3] * v[3]
+}
+
+fn apply(a: &M4, v: &V4) -> V4 {
+    [dot(&a[0], v), dot(&a[1], v), dot(&a[2], v), dot(&a[3], v)]
+}
+
+/// a − λ I.
+fn shifted(a: &M4, l: C) -> M4 {
+    let mut m = *a;
+    for (i, row) in m.iter_mut().enumerate() {
+        row[i] -= l;
+    }
+    m
+}
+
+/// x a + y b.
+fn combine(a: &V4, x: C, b: &V4, y: C) -> V4 {
+    [
+        a[0] * x + b[0] * y,
+        a[1] * x + b[1] * y,
+        a[2] * x + b[2] * y,
+        a[3] * x + b[3] * y,
+    ]
+}
+
+fn norm(v: &V4) -> f64 {
+    v.iter().map(|z| z.norm_sqr()).sum::<f64>().sqrt()
+}
+
+/// The flux form F(a, b) = aᴴ J b, with S_z = F(ψ, ψ) = Re(E_x h_y* − E_y h_x*).
+fn flux(a: &V4, b: &V4) -> C {
+    0.5 * (a[0].conj() * b[3] + a[3].conj() * b[0] - a[1].conj() * b[2] - a[2].conj() * b[1])
+}
 
 /// The medium's first-order system at one tangential wave vector (face frame).
 struct System {
     /// q_z ψ = Δ ψ.
     delta: M4,
     /// (E_z, h_z) = lift · ψ.
-    lift: Matrix2x4<C>,
+    lift: [V4; 2],
     eps: Matrix3<f64>,
     kappa: Matrix3<f64>,
     qt: [f64; 2],
-}
-
-/// The flux form F(a, b) = aᴴ J b, with S_z = F(ψ, ψ) = Re(E_x h_y* − E_y h_x*).
-fn flux(a: &V4, b: &V4) -> C {
-    0.5 * (a[0].conj() * b[3] + a[3].conj() * b[0] - a[1].conj() * b[2] - a[2].conj() * b[1])
 }
 
 impl System {
@@ -94,8 +143,8 @@ impl System {
         // The 6×6 system (M − R_t) (E, h) = q_z R_z (E, h): M = [[ε, iκ], [−iκ, I]],
         // R_t (E, h) = (−q_t × h, q_t × E).
         let c6 = |r: usize, k: usize| -> C {
-            let (rb, kb, ri, ki) = (r / 3, k / 3, r % 3, k % 3);
-            match (rb, kb) {
+            let (ri, ki) = (r % 3, k % 3);
+            match (r / 3, k / 3) {
                 (0, 0) => C::from(eps[(ri, ki)]),
                 (0, _) => i * kappa[(ri, ki)] + cross[(ri, ki)],
                 (_, 0) => -i * kappa[(ri, ki)] - cross[(ri, ki)],
@@ -103,20 +152,22 @@ impl System {
             }
         };
         const T: [usize; 4] = [0, 1, 3, 4];
-        let czz = Matrix2::new(c6(2, 2), c6(2, 5), c6(5, 2), c6(5, 5));
-        // det = ε_zz − κ_zz² > 0 for any admitted crystal (|κ| < 1% of the indices).
-        let det = czz[(0, 0)] * czz[(1, 1)] - czz[(0, 1)] * czz[(1, 0)];
-        let inv = Matrix2::new(czz[(1, 1)], -czz[(0, 1)], -czz[(1, 0)], czz[(0, 0)]) / det;
-        let czt = Matrix2x4::from_fn(|r, k| c6([2, 5][r], T[k]));
-        let lift = -(inv * czt);
-        let reduced = Matrix4::from_fn(|r, k| c6(T[r], T[k]) + c6(T[r], 2) * lift[(0, k)] + c6(T[r], 5) * lift[(1, k)]);
+        // (E_z, h_z) from the z rows: [[c22, c25], [c52, c55]] (E_z, h_z) = −(z rows)·ψ; the
+        // determinant is ε_zz − κ_zz² > 0 for any admitted crystal (|κ| < 1% of the indices).
+        let (z00, z01, z10, z11) = (c6(2, 2), c6(2, 5), c6(5, 2), c6(5, 5));
+        let det = z00 * z11 - z01 * z10;
+        let mut lift = [[C::ZERO; 4]; 2];
+        for (k, &t) in T.iter().enumerate() {
+            lift[0][k] = -(z11 * c6(2, t) - z01 * c6(5, t)) / det;
+            lift[1][k] = -(z00 * c6(5, t) - z10 * c6(2, t)) / det;
+        }
         // R_z on ψ is the signed permutation P (its own inverse): rows (h_y, −h_x, −E_y, E_x).
-        let delta = Matrix4::from_fn(|r, k| match r {
-            0 => reduced[(3, k)],
-            1 => -reduced[(2, k)],
-            2 => -reduced[(1, k)],
-            _ => reduced[(0, k)],
-        });
+        let mut delta = [[C::ZERO; 4]; 4];
+        for (row, (r, sign)) in delta.iter_mut().zip([(4, 1.0), (3, -1.0), (1, -1.0), (0, 1.0)]) {
+            for (k, &t) in T.iter().enumerate() {
+                row[k] = (c6(r, t) + c6(r, 2) * lift[0][k] + c6(r, 5) * lift[1][k]) * sign;
+            }
+        }
         System {
             delta,
             lift,
@@ -128,10 +179,13 @@ impl System {
 
     /// The full (E, h, D) of tangential fields ψ.
     fn fields(&self, psi: &V4) -> (CVector3, CVector3, CVector3) {
-        let z = self.lift * psi;
-        let e = CVector3::new(psi[0], psi[1], z[0]);
-        let h = CVector3::new(psi[2], psi[3], z[1]);
-        let d = self.eps.map(C::from) * e + self.kappa.map(|k| C::new(0.0, k)) * h;
+        let e = CVector3::new(psi[0], psi[1], dot(&self.lift[0], psi));
+        let h = CVector3::new(psi[2], psi[3], dot(&self.lift[1], psi));
+        let d = CVector3::from_fn(|r, _| {
+            (0..3)
+                .map(|k| e[k] * self.eps[(r, k)] + h[k] * C::new(0.0, self.kappa[(r, k)]))
+                .sum()
+        });
         (e, h, d)
     }
 
@@ -139,102 +193,178 @@ impl System {
     fn refined(&self, psi: &V4) -> f64 {
         let f = flux(psi, psi).re;
         if f != 0.0 {
-            flux(psi, &(self.delta * psi)).re / f
+            flux(psi, &apply(&self.delta, psi)).re / f
         } else {
             0.0
         }
     }
 }
 
-/// The four eigenvalues of Δ from its complex Schur form (the characteristic polynomial's roots
-/// by Durand–Kerner iteration in the unlikely case the Schur iteration does not settle).
-fn eigenvalues(delta: &M4) -> [C; 4] {
-    if let Some(schur) = delta.try_schur(f64::EPSILON, EIGEN_SWEEPS) {
-        let (_, t) = schur.unpack();
-        let mut out = [C::ZERO; 4];
-        let mut k = 0;
-        while k < 4 {
-            if k == 3 || t[(k + 1, k)] == C::ZERO {
-                out[k] = t[(k, k)];
-                k += 1;
-            } else {
-                // A 2×2 block left by the iteration: its two eigenvalues.
-                let (a, b, c, d) = (t[(k, k)], t[(k, k + 1)], t[(k + 1, k)], t[(k + 1, k + 1)]);
-                let mean = 0.5 * (a + d);
-                let s = (0.25 * (a - d) * (a - d) + b * c).sqrt();
-                out[k] = mean + s;
-                out[k + 1] = mean - s;
-                k += 2;
-            }
-        }
-        if out.iter().all(|z| z.re.is_finite() && z.im.is_finite()) {
-            return out;
-        }
+/// A plane rotation (c real, s) with [[c, s], [−s*, c]]·(a, b) = (·, 0).
+fn givens(a: C, b: C) -> (f64, C) {
+    let (na, nb) = (a.norm(), b.norm());
+    let r = na.hypot(nb);
+    if r == 0.0 {
+        (1.0, C::ZERO)
+    } else if na == 0.0 {
+        (0.0, C::ONE)
+    } else {
+        (na / r, a / na * b.conj() / r)
     }
-    polynomial_roots(delta)
 }
 
-/// The eigenvalues of Δ as the roots of its characteristic polynomial (Faddeev–LeVerrier
-/// coefficients, Durand–Kerner iteration): a fallback that is always finite.
-fn polynomial_roots(delta: &M4) -> [C; 4] {
-    // p(λ) = λ⁴ + c₁λ³ + c₂λ² + c₃λ + c₄.
-    let mut m = M4::identity();
-    let mut c = [C::ONE; 5];
-    for (k, ck) in c.iter_mut().enumerate().skip(1) {
-        let am = delta * m;
-        *ck = -am.trace() / k as f64;
-        m = am + M4::identity() * *ck;
+/// Rows p, p + 1 of h ← G (those rows), within the columns `cols`.
+fn rotate_rows(h: &mut M4, p: usize, (c, s): (f64, C), cols: std::ops::RangeInclusive<usize>) {
+    let (top, rest) = h.split_at_mut(p + 1);
+    for (x, y) in top[p][cols.clone()].iter_mut().zip(&mut rest[0][cols]) {
+        let (a, b) = (*x, *y);
+        *x = a * c + s * b;
+        *y = -s.conj() * a + b * c;
     }
-    let p = |x: C| (((x + c[1]) * x + c[2]) * x + c[3]) * x + c[4];
-    let scale = 1.0 + c.iter().map(|z| z.norm()).fold(0.0, f64::max);
-    let mut r = [0, 1, 2, 3].map(|k| C::from_polar(scale, 0.4 + 1.3 * k as f64));
-    for _ in 0..EIGEN_SWEEPS {
-        let mut moved = 0.0f64;
-        for k in 0..4 {
-            let mut den = C::ONE;
-            for j in (0..4).filter(|&j| j != k) {
-                den *= r[k] - r[j];
-            }
-            if den == C::ZERO {
-                den = C::from(f64::EPSILON);
-            }
-            let step = p(r[k]) / den;
-            if step.re.is_finite() && step.im.is_finite() {
-                r[k] -= step;
-                moved = moved.max(step.norm());
-            }
+}
+
+/// h ← G h G ᴴ with G the rotation `g` of rows and columns p, p + 1, within the leading
+/// (n + 1) × (n + 1) block.
+fn rotate(h: &mut M4, p: usize, (c, s): (f64, C), n: usize) {
+    rotate_rows(h, p, (c, s), 0..=n);
+    for row in h.iter_mut().take(n + 1) {
+        let (x, y) = (row[p], row[p + 1]);
+        row[p] = x * c + y * s.conj();
+        row[p + 1] = -x * s + y * c;
+    }
+}
+
+/// The four eigenvalues of Δ: Hessenberg form by plane rotations, then the shifted QR iteration
+/// (Wilkinson shifts, an exceptional shift every eleventh sweep, deflation from the bottom) — the
+/// complex Schur form's diagonal (Golub & Van Loan, *Matrix Computations*, §7.5). Backward stable:
+/// a semisimple double root (a degenerate pair) stays real to rounding. Should the iteration not
+/// settle (never met), the diagonal reached is taken: finite, if not converged.
+fn eigenvalues(delta: &M4) -> [C; 4] {
+    let mut h = *delta;
+    for j in 0..2 {
+        for i in (j + 2..4).rev() {
+            let g = givens(h[i - 1][j], h[i][j]);
+            rotate(&mut h, i - 1, g, 3);
+            h[i][j] = C::ZERO;
         }
-        if moved <= f64::EPSILON * scale {
+    }
+    let scale = h.iter().flatten().map(|z| z.norm()).fold(0.0, f64::max);
+    let mut out = [C::ZERO; 4];
+    let (mut n, mut sweeps) = (3usize, 0usize);
+    while n > 0 {
+        let (a, b, c, d) = (h[n - 1][n - 1], h[n - 1][n], h[n][n - 1], h[n][n]);
+        if c.norm() <= f64::EPSILON * (a.norm() + d.norm()).max(f64::EPSILON * scale) {
+            out[n] = d;
+            n -= 1;
+            sweeps = 0;
+            continue;
+        }
+        sweeps += 1;
+        if sweeps > EIGEN_SWEEPS {
             break;
         }
-    }
-    r.map(|z| {
-        if z.re.is_finite() && z.im.is_finite() {
-            z
+        let mu = if sweeps % 11 == 0 {
+            d + c.norm()
         } else {
-            C::ZERO
+            let (mean, root) = (0.5 * (a + d), csqrt(0.25 * (a - d) * (a - d) + b * c));
+            let (l1, l2) = (mean + root, mean - root);
+            if (l1 - d).norm() <= (l2 - d).norm() { l1 } else { l2 }
+        };
+        for (i, row) in h.iter_mut().enumerate().take(n + 1) {
+            row[i] -= mu;
         }
-    })
+        let mut gs = [(1.0, C::ZERO); 3];
+        for k in 0..n {
+            let g = givens(h[k][k], h[k + 1][k]);
+            rotate_rows(&mut h, k, g, k..=n);
+            gs[k] = g;
+        }
+        for (k, &(c, s)) in gs.iter().enumerate().take(n) {
+            for row in h.iter_mut().take(n + 1) {
+                let (x, y) = (row[k], row[k + 1]);
+                row[k] = x * c + y * s.conj();
+                row[k + 1] = -x * s + y * c;
+            }
+        }
+        for (i, row) in h.iter_mut().enumerate().take(n + 1) {
+            row[i] += mu;
+        }
+    }
+    for (k, slot) in out.iter_mut().enumerate().take(n + 1) {
+        *slot = h[k][k];
+    }
+    out
 }
 
-/// Right singular vectors of `m`, smallest singular value first (the standard basis if the SVD
-/// does not settle, which keeps every answer finite).
-fn null_vectors(m: M4) -> [V4; 4] {
-    let fallback = [0, 1, 2, 3].map(|k| V4::from_fn(|i, _| C::from(if i == k { 1.0 } else { 0.0 })));
-    let Some(svd) = m.try_svd(false, true, f64::EPSILON, EIGEN_SWEEPS) else {
-        return fallback;
-    };
-    let Some(vt) = svd.v_t else { return fallback };
-    let mut order = [0usize, 1, 2, 3];
-    order.sort_by(|&i, &j| svd.singular_values[i].total_cmp(&svd.singular_values[j]));
-    order.map(|k| {
-        V4::new(
-            vt[(k, 0)].conj(),
-            vt[(k, 1)].conj(),
-            vt[(k, 2)].conj(),
-            vt[(k, 3)].conj(),
-        )
-    })
+/// The principal square root √z (Re ≥ 0), from |z| alone: (√((|z| + x)/2), ±√((|z| − x)/2)).
+fn csqrt(z: C) -> C {
+    let r = z.norm();
+    let re = (0.5 * (r + z.re)).max(0.0).sqrt();
+    let im = (0.5 * (r - z.re)).max(0.0).sqrt();
+    C::new(re, if z.im < 0.0 { -im } else { im })
+}
+
+/// An orthonormal basis of the `dim`-dimensional (1 or 2) null space of `m`, a matrix of rank
+/// 4 − `dim` to rounding: Gaussian elimination with complete pivoting (rank-revealing for such a
+/// matrix, whose other singular values are far from zero), back substitution with each free
+/// unknown set to 1 in turn, then Gram–Schmidt. Never NaN (a pivot that is exactly zero ends the
+/// elimination early).
+fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
+    let mut col = [0usize, 1, 2, 3];
+    let mut rank = 0;
+    for k in 0..4 - dim {
+        let (mut pi, mut pj, mut best) = (k, k, 0.0);
+        for (i, row) in a.iter().enumerate().skip(k) {
+            for (j, x) in row.iter().enumerate().skip(k) {
+                if x.norm() > best {
+                    (pi, pj, best) = (i, j, x.norm());
+                }
+            }
+        }
+        if best == 0.0 {
+            break;
+        }
+        a.swap(k, pi);
+        for row in a.iter_mut() {
+            row.swap(k, pj);
+        }
+        col.swap(k, pj);
+        let (top, rest) = a.split_at_mut(k + 1);
+        for row in rest.iter_mut() {
+            let f = row[k] / top[k][k];
+            for (x, p) in row[k..].iter_mut().zip(&top[k][k..]) {
+                *x -= f * p;
+            }
+        }
+        rank = k + 1;
+    }
+    let mut out = [[C::ZERO; 4]; 2];
+    for (t, v) in out.iter_mut().enumerate().take(dim) {
+        let mut x = [C::ZERO; 4];
+        x[(4 - dim + t).max(rank)] = C::ONE;
+        for k in (0..rank).rev() {
+            let sum: C = (k + 1..4).map(|j| a[k][j] * x[j]).sum();
+            x[k] = -sum / a[k][k];
+        }
+        for (j, &c) in col.iter().enumerate() {
+            v[c] = x[j];
+        }
+    }
+    // Gram–Schmidt (Hermitian).
+    for t in 0..dim {
+        let mut v = out[t];
+        for u in &out[..t] {
+            let p: C = u.iter().zip(&v).map(|(x, y)| x.conj() * y).sum();
+            v = combine(&v, C::ONE, u, -p);
+        }
+        let n = norm(&v);
+        out[t] = if n > 0.0 {
+            combine(&v, C::from(1.0 / n), &v, C::ZERO)
+        } else {
+            [C::ZERO; 4]
+        };
+    }
+    out
 }
 
 /// One wave: its q_z, tangential fields and whether it propagates.
@@ -249,49 +379,44 @@ struct Wave {
 /// taken as one degenerate pair in the documented basis, first slot first).
 fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
     let s = travel.sign();
-    let roots = eigenvalues(&sys.delta);
-    // Each root with how far it goes along +z: its decay rate, or its normal flux.
-    let scored: Vec<(C, bool, f64)> = roots
-        .iter()
-        .map(|&l| {
-            let tol = EVANESCENT_ROOT * (1.0 + l.norm());
-            if l.im.abs() > tol {
-                (l, false, l.im)
-            } else {
-                let l = C::from(l.re);
-                let v = null_vectors(sys.delta - M4::identity() * l)[0];
-                (l, true, flux(&v, &v).re)
-            }
-        })
-        .collect();
-    let mut ours: Vec<&(C, bool, f64)> = scored.iter().filter(|r| r.2 * s > 0.0).collect();
-    if ours.len() != 2 {
-        ours = scored.iter().collect();
-        ours.sort_by(|a, b| (b.2 * s).total_cmp(&(a.2 * s)));
-        ours.truncate(2);
+    // Each root with whether it propagates and how far it goes along +z: its decay rate, or its
+    // normal flux.
+    let mut scored = [(C::ZERO, false, 0.0); 4];
+    for (out, l) in scored.iter_mut().zip(eigenvalues(&sys.delta)) {
+        *out = if l.im.abs() > EVANESCENT_ROOT * (1.0 + l.norm()) {
+            (l, false, l.im)
+        } else {
+            let l = C::from(l.re);
+            let v = null_basis(shifted(&sys.delta, l), 1)[0];
+            (l, true, flux(&v, &v).re)
+        };
     }
-    let (l0, p0) = (ours[0].0, ours[0].1);
-    let (l1, p1) = (ours[1].0, ours[1].1);
+    // The two that go along the travel (the two most so, if rounding at grazing blurs it).
+    let along = |i: usize| scored[i].2 * s;
+    let first = (1..4).fold(0, |m, i| if along(i) > along(m) { i } else { m });
+    let second = (0..4)
+        .filter(|&i| i != first)
+        .fold(usize::from(first == 0), |m, i| if along(i) > along(m) { i } else { m });
+    let [(l0, p0, _), (l1, p1, _)] = [scored[first], scored[second]];
     let scale = 1.0 + l0.norm().max(l1.norm());
-    let close = (l0 - l1).norm() <= DEGENERATE_MODES * scale;
     if p0 && p1 {
         return propagating_pair(sys, l0, l1, s);
     }
-    if close {
+    if (l0 - l1).norm() <= DEGENERATE_MODES * scale {
         // Two degenerate evanescent waves.
-        let [u0, u1, ..] = null_vectors(pair_product(sys, l0, l1));
-        let c = first_of_pair(sys, &[u0, u1]);
-        let first = u0 * c[0] + u1 * c[1];
-        let second = u0 * c[1].conj() - u1 * c[0].conj();
+        let u = null_basis(pair_product(sys, l0, l1), 2);
+        let c = first_of_pair(sys, &u);
         let wave = |psi| Wave {
             qz: 0.5 * (l0 + l1),
             psi,
             propagating: false,
         };
+        let first = combine(&u[0], c[0], &u[1], c[1]);
+        let second = combine(&u[0], c[1].conj(), &u[1], -c[0].conj());
         return ([wave(first), wave(second)], true);
     }
     let single = |l: C, p: bool| {
-        let psi = null_vectors(sys.delta - M4::identity() * l)[0];
+        let psi = null_basis(shifted(&sys.delta, l), 1)[0];
         let qz = if p { C::from(sys.refined(&psi)) } else { l };
         Wave {
             qz,
@@ -304,69 +429,73 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
 
 /// (Δ − λ₀)(Δ − λ₁): its null space is the pair's invariant subspace, also when λ₀ = λ₁.
 fn pair_product(sys: &System, l0: C, l1: C) -> M4 {
-    let id = M4::identity();
-    (sys.delta - id * l0) * (sys.delta - id * l1)
+    mul(&shifted(&sys.delta, l0), &shifted(&sys.delta, l1))
 }
 
 /// The coefficients (on the basis `u`) of the wave of the pair whose D has no component along x̂
 /// (along ŷ when |q_x| > |q_y|): the documented first wave of a degenerate pair.
-fn first_of_pair(sys: &System, u: &[V4; 2]) -> Vector2<C> {
-    let (qx, qy) = (sys.qt[0], sys.qt[1]);
-    let along = if qx.abs() <= qy.abs() { 0 } else { 1 };
-    let a = u.map(|v| sys.fields(&v).2[along]);
-    let c = Vector2::new(a[1], -a[0]);
-    if c.norm() > 0.0 {
-        c / C::from(c.norm())
+fn first_of_pair(sys: &System, u: &[V4; 2]) -> [C; 2] {
+    let along = usize::from(sys.qt[0].abs() > sys.qt[1].abs());
+    let a = [sys.fields(&u[0]).2[along], sys.fields(&u[1]).2[along]];
+    let n = a[0].norm().hypot(a[1].norm());
+    if n > 0.0 {
+        [a[1] / n, -a[0] / n]
     } else {
-        Vector2::new(C::ONE, C::ZERO)
+        [C::ONE, C::ZERO]
     }
 }
 
 /// The two propagating waves of roots λ₀, λ₁ (travelling the way of sign `s`): flux-orthonormal
 /// eigenvectors of the 2×2 Hermitian problem on their invariant subspace.
 fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
-    let [u0, u1, ..] = null_vectors(pair_product(sys, l0, l1));
-    let u = [u0, u1];
-    // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U (Hermitian).
-    let du = u.map(|v| sys.delta * v);
-    let g = Matrix2::from_fn(|r, k| flux(&u[r], &u[k]) * s);
-    let a = Matrix2::from_fn(|r, k| flux(&u[r], &du[k]) * s);
-    // Hermitian parts (rounding aside they are Hermitian already).
-    let herm = |m: Matrix2<C>| (m + m.adjoint()) * C::from(0.5);
-    let (g, a) = (herm(g), herm(a));
-    // Cholesky G = L Lᴴ.
-    let l11 = g[(0, 0)].re.max(f64::MIN_POSITIVE).sqrt();
-    let l21 = g[(1, 0)] / l11;
-    let l22 = (g[(1, 1)].re - l21.norm_sqr()).max(f64::MIN_POSITIVE).sqrt();
-    let linv = Matrix2::new(C::from(1.0 / l11), C::ZERO, -l21 / (l11 * l22), C::from(1.0 / l22));
-    let c = linv * a * linv.adjoint();
-    let (c11, c22, c12) = (c[(0, 0)].re, c[(1, 1)].re, c[(0, 1)]);
+    let u = null_basis(pair_product(sys, l0, l1), 2);
+    let du = [apply(&sys.delta, &u[0]), apply(&sys.delta, &u[1])];
+    // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U, both Hermitian (their Hermitian parts taken,
+    // which rounding aside they are already).
+    let herm = |f: &dyn Fn(usize, usize) -> C| {
+        let (d0, d1, off) = (f(0, 0).re * s, f(1, 1).re * s, 0.5 * (f(1, 0) + f(0, 1).conj()) * s);
+        (d0, d1, off)
+    };
+    let (g00, g11, g10) = herm(&|r, k| flux(&u[r], &u[k]));
+    let (a00, a11, a10) = herm(&|r, k| flux(&u[r], &du[k]));
+    // Cholesky G = L Lᴴ, L = [[l11, 0], [l21, l22]], and C = L⁻¹ A L⁻ᴴ.
+    let l11 = g00.max(f64::MIN_POSITIVE).sqrt();
+    let l21 = g10 / l11;
+    let l22 = (g11 - l21.norm_sqr()).max(f64::MIN_POSITIVE).sqrt();
+    let c11 = a00 / (l11 * l11);
+    let c21 = (a10 - l21 * c11 * l11) / (l11 * l22);
+    let c22 = (a11 - 2.0 * (l21.conj() * c21).re * l22 - l21.norm_sqr() * c11) / (l22 * l22);
+    let c12 = c21.conj();
     let mean = 0.5 * (c11 + c22);
-    let half = (0.25 * (c11 - c22) * (c11 - c22) + c12.norm_sqr()).sqrt();
-    let coeffs_of = |w: Vector2<C>| linv.adjoint() * w;
-    let wave = |qz: f64, coeffs: Vector2<C>| Wave {
+    let d = 0.5 * (c11 - c22);
+    let half = (d * d + c12.norm_sqr()).sqrt();
+    // The basis coefficients of a unit vector w of C's: L⁻ᴴ w.
+    let coeffs_of = |w: [C; 2]| {
+        let x1 = w[1] / l22;
+        [(w[0] - l21.conj() * x1) / l11, x1]
+    };
+    let wave = |qz: f64, c: [C; 2]| Wave {
         qz: C::from(qz),
-        psi: u[0] * coeffs[0] + u[1] * coeffs[1],
+        psi: combine(&u[0], c[0], &u[1], c[1]),
         propagating: true,
     };
     if half <= DEGENERATE_MODES * (1.0 + mean.abs()) {
-        // One q_z: the documented basis, the second flux-orthogonal to the first.
-        let first = first_of_pair(sys, &u);
-        let gf = g * first;
-        let second = Vector2::new(gf[1].conj(), -gf[0].conj());
-        return ([wave(mean, first), wave(mean, second)], true);
+        // One q_z: the documented basis, the second flux-orthogonal to the first (G f)ᴴ x = 0.
+        let f = first_of_pair(sys, &u);
+        let gf = [g00 * f[0] + g10.conj() * f[1], g10 * f[0] + g11 * f[1]];
+        return ([wave(mean, f), wave(mean, [gf[1].conj(), -gf[0].conj()])], true);
     }
-    // The eigenvector of the Hermitian 2×2 C for mean + half, from the form without cancellation
-    // (d = (c₁₁ − c₂₂)/2: (c₁₂, half − d) when d < 0, (half + d, c₁₂*) otherwise), and the other
-    // exactly orthogonal to it, so that the two waves carry no cross flux however close they are.
-    let d = 0.5 * (c11 - c22);
+    // The eigenvector of C for mean + half, from the form without cancellation ((c₁₂, half − d)
+    // when d < 0, (half + d, c₁₂*) otherwise), and the other exactly orthogonal to it, so that
+    // the two waves carry no cross flux however close they are.
     let v = if d < 0.0 {
-        Vector2::new(c12, C::from(half - d))
+        [c12, C::from(half - d)]
     } else {
-        Vector2::new(C::from(half + d), c12.conj())
+        [C::from(half + d), c12.conj()]
     };
-    let upper = v / C::from(v.norm());
-    let lower = Vector2::new(-upper[1].conj(), upper[0].conj());
+    let n = v[0].norm().hypot(v[1].norm());
+    let upper = [v[0] / n, v[1] / n];
+    let lower = [-upper[1].conj(), upper[0].conj()];
     (
         [wave(mean + half, coeffs_of(upper)), wave(mean - half, coeffs_of(lower))],
         false,
@@ -435,7 +564,10 @@ pub fn general_modes(medium: &Anisotropic, qt: [f64; 2], travel: Travel) -> [Mod
         w.swap(0, 1);
     }
     let kinds = [ModeKind::Ordinary, ModeKind::Extraordinary];
-    [0, 1].map(|k| assemble(&sys, kinds[k], travel, &w[k]))
+    [
+        assemble(&sys, kinds[0], travel, &w[0]),
+        assemble(&sys, kinds[1], travel, &w[1]),
+    ]
 }
 
 /// The normalized mode of one wave.
@@ -484,7 +616,7 @@ mod tests {
 
     /// The cross flux F(a, b) across the face of two modes (0 for power-orthogonal ones).
     fn cross_flux(a: &Mode, b: &Mode) -> C {
-        let psi = |m: &Mode| V4::new(m.e.x, m.e.y, m.h.x, m.h.y);
+        let psi = |m: &Mode| [m.e.x, m.e.y, m.h.x, m.h.y];
         flux(&psi(a), &psi(b))
     }
 
@@ -601,34 +733,53 @@ mod tests {
         let sys = System::new(&m, [0.3, -0.8]);
         for i in 0..4 {
             for k in 0..4 {
-                let ei = V4::from_fn(|r, _| C::from(if r == i { 1.0 } else { 0.0 }));
-                let ek = V4::from_fn(|r, _| C::from(if r == k { 1.0 } else { 0.0 }));
-                let a = flux(&ei, &(sys.delta * ek));
-                let b = flux(&ek, &(sys.delta * ei)).conj();
+                let ei = [0, 1, 2, 3].map(|r| C::from(if r == i { 1.0 } else { 0.0 }));
+                let ek = [0, 1, 2, 3].map(|r| C::from(if r == k { 1.0 } else { 0.0 }));
+                let a = flux(&ei, &apply(&sys.delta, &ek));
+                let b = flux(&ek, &apply(&sys.delta, &ei)).conj();
                 assert!((a - b).norm() < 1e-15, "{i} {k}: {a} vs {b}");
             }
         }
     }
 
-    /// The fallback root finder agrees with the Schur form.
+    /// The shifted QR iteration agrees with nalgebra's complex Schur form (an independent
+    /// implementation of the same decomposition) on generated systems, chiral, evanescent and
+    /// degenerate ones included, to 1e-13.
     #[test]
-    fn the_polynomial_fallback_finds_the_same_roots() {
-        let m = medium([1.5, 1.7, 1.9], orientation(0.4, 1.1, -0.3), [2e-3, -1e-3, 3e-3]);
-        let sys = System::new(&m, [0.9, 1.3]);
-        let mut a = eigenvalues(&sys.delta);
-        let mut b = polynomial_roots(&sys.delta);
-        let key = |z: &C| (z.re, z.im);
-        a.sort_by(|x, y| key(x).partial_cmp(&key(y)).unwrap());
-        b.sort_by(|x, y| key(x).partial_cmp(&key(y)).unwrap());
-        for (x, y) in a.iter().zip(&b) {
-            assert!((x - y).norm() < 1e-12, "{x} vs {y}");
+    fn the_qr_iteration_agrees_with_a_library_schur_form() {
+        let mut rng = Rng::new(3);
+        for case in 0..500 {
+            let principal = if case % 5 == 0 {
+                [1.6; 3]
+            } else {
+                [0; 3].map(|_| 1.4 + 0.8 * rng.uniform())
+            };
+            let m = medium(
+                principal,
+                orientation(3.0 * rng.uniform(), 6.0 * rng.uniform(), 6.0 * rng.uniform()),
+                [0; 3].map(|_| if case % 2 == 0 { 1e-3 * rng.normal() } else { 0.0 }),
+            );
+            let qt = [2.4 * rng.uniform() - 1.2, 2.4 * rng.uniform() - 1.2];
+            let sys = System::new(&m, qt);
+            let ours = eigenvalues(&sys.delta);
+            let d = nalgebra::Matrix4::from_fn(|r, k| sys.delta[r][k]);
+            let (_, t) = d.try_schur(f64::EPSILON, 1000).unwrap().unpack();
+            let theirs = [0, 1, 2, 3].map(|k| t[(k, k)]);
+            // Each of ours has one of theirs within 1e-13, and the other way round.
+            for (a, b) in [(&ours, &theirs), (&theirs, &ours)] {
+                for x in a {
+                    let gap = b.iter().map(|y| (x - y).norm()).fold(f64::INFINITY, f64::min);
+                    assert!(gap < 1e-13, "case {case}: {x} in {a:?} vs {b:?}");
+                }
+            }
         }
     }
 
     /// Every mode solves the wave equation of the medium: q × E = h − iκE and
     /// q × h = −(εE + iκh) = −D, to 1e-12; propagating modes carry unit flux the right way and the
     /// two of a pair carry no cross flux (power-orthogonal), also exactly on a binormal, near one
-    /// (10⁻⁹ off) and along a chiral crystal's axis.
+    /// (10⁻⁹ off) and along a chiral crystal's axis, and for an isotropic crystal (chiral or
+    /// not) beyond its critical angle; exactly at it (grazing) the answer is finite.
     #[test]
     fn modes_solve_maxwell_and_are_power_orthogonal_everywhere() {
         let r = orientation(0.4, 1.1, -0.6);
@@ -645,6 +796,14 @@ mod tests {
                 let d = (dir + Vector3::new(off, -0.5 * off, 0.0)).normalize();
                 cases.push((m, [n * d.x, n * d.y]));
             }
+        }
+        // An isotropic crystal beyond its critical angle (a degenerate evanescent pair), exactly
+        // at it (grazing), and an isotropic chiral one beyond it.
+        let isotropic = medium([1.6; 3], r, [0.0; 3]);
+        let chiral_isotropic = medium([1.6; 3], r, [2e-3; 3]);
+        for qt in [[2.0, 0.3], [0.0, 1.7], [1.6, 0.0], [1.6 * 0.6, 1.6 * 0.8]] {
+            cases.push((isotropic, qt));
+            cases.push((chiral_isotropic, qt));
         }
         for _ in 0..300 {
             let m = medium(
@@ -674,7 +833,17 @@ mod tests {
                     let r3 = md.d - (eps * md.e + kap * md.h);
                     let scale = md.e.norm().max(md.h.norm());
                     let res = (r1.norm() + r2.norm() + r3.norm()) / scale;
-                    assert!(res < 1e-12, "{qt:?} {travel:?}: residual {res}");
+                    // Exactly grazing, the forward and backward roots meet at q_z = 0 (a
+                    // defective double root), which any method resolves only to √ε ≈ 1e-8: there
+                    // the fields must be finite and nearly solve the equations.
+                    let grazing = (qt[0].hypot(qt[1]) - 1.6).abs() < 1e-12;
+                    assert!(
+                        res < if grazing { 1e-6 } else { 1e-12 },
+                        "{qt:?} {travel:?}: residual {res}"
+                    );
+                    if grazing {
+                        continue;
+                    }
                     if md.propagating {
                         let sz = cross_flux(md, md).re;
                         assert_within(sz, travel.sign(), 1e-12, "unit flux along the travel");
@@ -682,7 +851,7 @@ mod tests {
                         assert!(md.qz().im * travel.sign() > 0.0, "decays along its travel");
                     }
                 }
-                if modes[0].propagating && modes[1].propagating {
+                if modes[0].propagating && modes[1].propagating && (qt[0].hypot(qt[1]) - 1.6).abs() >= 1e-12 {
                     let x = cross_flux(&modes[0], &modes[1]).norm();
                     worst = worst.max(x);
                     assert!(x < 1e-12, "{qt:?}: cross flux {x}");

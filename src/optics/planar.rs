@@ -876,8 +876,28 @@ mod tests {
     /// elements), to rounding.
     #[test]
     fn plane_parallel_stacks_trace_alike_both_ways() {
-        let calcite = crystal(1.6557, 1.4849, 45.0, 0.0);
-        let quartz = crystal(1.5426, 1.5517, 90.0, 30.0);
+        traced_alike_both_ways(crystal(1.6557, 1.4849, 45.0, 0.0), crystal(1.5426, 1.5517, 90.0, 30.0));
+    }
+
+    /// The same for general crystals: a biaxial one (KTP-like indices) and an optically active
+    /// uniaxial one (quartz-like, its chirality magnified a hundredfold), through version 1's
+    /// trace with the general solver against the face-by-face one.
+    #[test]
+    fn plane_parallel_general_crystals_trace_alike_both_ways() {
+        use crate::optics::anisotropic::{Anisotropic, orientation};
+        let biaxial = Anisotropic::new([1.74, 1.75, 1.83], orientation(0.4, 1.1, -0.6), [0.0; 3]).unwrap();
+        let chiral = Anisotropic::new(
+            [1.5443, 1.5443, 1.5534],
+            orientation(0.2, 0.5, 0.0),
+            [3.5e-3, 3.5e-3, -2e-3],
+        );
+        traced_alike_both_ways(Medium::Anisotropic(biaxial), Medium::Anisotropic(chiral.unwrap()));
+    }
+
+    /// Traces a stack of `calcite`, an ideal retarder, `quartz` and `calcite` again both ways
+    /// (version 1's shared-tangential trace and the face-by-face one) at several incidences, with
+    /// ideal and uncoated faces: every ray alike to rounding, every watt accounted.
+    fn traced_alike_both_ways(calcite: Medium, quartz: Medium) {
         for losses in [Losses::Ideal, Losses::Uncoated] {
             for (polar, az) in [(0.0, 0.0), (12.0, 35.0), (40.0, -100.0)] {
                 let st = stack(

@@ -86,10 +86,10 @@ impl Medium {
                         (hi, p.iter().cloned().fold(f64::INFINITY, f64::min))
                     }
                 };
-                let ne = p[axis];
-                let indices = Indices::new(no, ne).unwrap_or_else(|_| Indices::new(1.5, 1.5).expect("valid indices"));
+                // Indices of an admitted crystal (finite, at least 1) need no check again.
+                let indices = Indices { no, ne: p[axis] };
                 let unit: Vector3<f64> = a.axes.column(axis).into();
-                let axis = OpticAxis::from_vector(unit).unwrap_or_else(|_| OpticAxis::from_angles(0.0, 0.0));
+                let axis = OpticAxis::from_angles(unit.x.hypot(unit.y).atan2(unit.z), unit.y.atan2(unit.x));
                 Uniaxial::new(indices, axis)
             }
         }
