@@ -129,6 +129,12 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
             modes,
             separation_mm,
             retardance_waves,
+            nx,
+            ny,
+            nz,
+            optic_axis_angle_deg,
+            rotatory_power_deg_per_mm,
+            group_delay_ps,
             ..
         } => {
             let _ = writeln!(
@@ -145,6 +151,24 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
                 opt(*separation_mm, 6),
                 opt(*retardance_waves, 4)
             );
+            // What the columns cannot hold: a biaxial crystal's principal indices (its columns
+            // name the slow mode), an active crystal's rotation, the group delay.
+            if let (Some(x), Some(y), Some(z)) = (nx, ny, nz) {
+                let _ = writeln!(
+                    out,
+                    "     biaxial: n_x {}, n_y {}, n_z {}; optic axes 2V = {}°; columns give the s-wave",
+                    num(*x, 6),
+                    num(*y, 6),
+                    num(*z, 6),
+                    opt(*optic_axis_angle_deg, 4)
+                );
+            }
+            if let Some(r) = rotatory_power_deg_per_mm {
+                let _ = writeln!(out, "     optically active: {} °/mm along the axis", num(*r, 5));
+            }
+            if let Some(t) = group_delay_ps {
+                let _ = writeln!(out, "     group delay, second mode after first: {} ps", num(*t, 4));
+            }
         }
         ElementReport::Retarder { retardance_rad, .. } => {
             let _ = writeln!(
