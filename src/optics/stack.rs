@@ -26,9 +26,8 @@ use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::Plane;
 use crate::optics::interface::Losses;
 use crate::optics::jones::{Jones, JonesMatrix};
-use crate::optics::material::Indices;
 use crate::optics::modes::{Mode, Travel, crystal_modes};
-use crate::optics::uniaxial::{OpticAxis, Uniaxial};
+use crate::optics::uniaxial::Uniaxial;
 use crate::optics::wavelength::Wavelength;
 use nalgebra::{Matrix3, Vector3};
 
@@ -67,31 +66,6 @@ impl Medium {
         match self {
             Medium::Uniaxial(c) => crystal_modes(c, qt, travel),
             Medium::Anisotropic(a) => general_modes(a, qt, travel),
-        }
-    }
-
-    /// A uniaxial stand-in for reports written for uniaxial crystals: the crystal itself, or for
-    /// a general crystal its ordinary and extraordinary indices and optic axis when it has two
-    /// equal principal indices, otherwise its lowest and highest principal indices with the
-    /// highest one's axis. Its optical activity is left out.
-    pub fn nominal_uniaxial(&self) -> Uniaxial {
-        match self {
-            Medium::Uniaxial(c) => *c,
-            Medium::Anisotropic(a) => {
-                let p = a.principal;
-                let (axis, no) = match a.uniaxial_axis() {
-                    Some(k) => (k, p[(k + 1) % 3]),
-                    None => {
-                        let hi = (0..3).max_by(|&i, &j| p[i].total_cmp(&p[j])).unwrap_or(2);
-                        (hi, p.iter().cloned().fold(f64::INFINITY, f64::min))
-                    }
-                };
-                // Indices of an admitted crystal (finite, at least 1) need no check again.
-                let indices = Indices { no, ne: p[axis] };
-                let unit: Vector3<f64> = a.axes.column(axis).into();
-                let axis = OpticAxis::from_angles(unit.x.hypot(unit.y).atan2(unit.z), unit.y.atan2(unit.x));
-                Uniaxial::new(indices, axis)
-            }
         }
     }
 }
