@@ -58,6 +58,11 @@
 //! toward +y, looking along +z, the direction of travel) changes by −k0 κ per unit length: a
 //! positive κ turns the plane of polarization clockwise as seen by an observer looking toward the
 //! source, which is a right-handed (dextrorotatory) crystal in CONVENTIONS.md's sense (tested).
+//!
+//! Moduli are taken as √(|z|²), never by `hypot` (which `Complex64::norm` uses): the square root
+//! is correctly rounded on every platform while `hypot` is not, and a thick plate multiplies a
+//! last-digit difference in q_z by k0·L ~ 10⁵, so this keeps the page's module and the command
+//! line to the same digits.
 
 use crate::optics::anisotropic::{Anisotropic, ModeLetters};
 use crate::optics::modes::{CVector3, Mode, ModeKind, Travel};
@@ -202,8 +207,8 @@ impl System {
 
 /// A plane rotation (c real, s) with [[c, s], [−s*, c]]·(a, b) = (·, 0).
 fn givens(a: C, b: C) -> (f64, C) {
-    let (na, nb) = (a.norm(), b.norm());
-    let r = na.hypot(nb);
+    let na = a.norm_sqr().sqrt();
+    let r = (a.norm_sqr() + b.norm_sqr()).sqrt();
     if r == 0.0 {
         (1.0, C::ZERO)
     } else if na == 0.0 {
@@ -248,12 +253,12 @@ fn eigenvalues(delta: &M4) -> [C; 4] {
             h[i][j] = C::ZERO;
         }
     }
-    let scale = h.iter().flatten().map(|z| z.norm()).fold(0.0, f64::max);
+    let scale = h.iter().flatten().map(|z| z.norm_sqr().sqrt()).fold(0.0, f64::max);
     let mut out = [C::ZERO; 4];
     let (mut n, mut sweeps) = (3usize, 0usize);
     while n > 0 {
         let (a, b, c, d) = (h[n - 1][n - 1], h[n - 1][n], h[n][n - 1], h[n][n]);
-        if c.norm() <= f64::EPSILON * (a.norm() + d.norm()).max(f64::EPSILON * scale) {
+        if c.norm_sqr().sqrt() <= f64::EPSILON * (a.norm_sqr().sqrt() + d.norm_sqr().sqrt()).max(f64::EPSILON * scale) {
             out[n] = d;
             n -= 1;
             sweeps = 0;
@@ -264,11 +269,15 @@ fn eigenvalues(delta: &M4) -> [C; 4] {
             break;
         }
         let mu = if sweeps % 11 == 0 {
-            d + c.norm()
+            d + c.norm_sqr().sqrt()
         } else {
             let (mean, root) = (0.5 * (a + d), csqrt(0.25 * (a - d) * (a - d) + b * c));
             let (l1, l2) = (mean + root, mean - root);
-            if (l1 - d).norm() <= (l2 - d).norm() { l1 } else { l2 }
+            if (l1 - d).norm_sqr().sqrt() <= (l2 - d).norm_sqr().sqrt() {
+                l1
+            } else {
+                l2
+            }
         };
         for (i, row) in h.iter_mut().enumerate().take(n + 1) {
             row[i] -= mu;
@@ -298,7 +307,7 @@ fn eigenvalues(delta: &M4) -> [C; 4] {
 
 /// The principal square root √z (Re ≥ 0), from |z| alone: (√((|z| + x)/2), ±√((|z| − x)/2)).
 fn csqrt(z: C) -> C {
-    let r = z.norm();
+    let r = z.norm_sqr().sqrt();
     let re = (0.5 * (r + z.re)).max(0.0).sqrt();
     let im = (0.5 * (r - z.re)).max(0.0).sqrt();
     C::new(re, if z.im < 0.0 { -im } else { im })
@@ -316,8 +325,8 @@ fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
         let (mut pi, mut pj, mut best) = (k, k, 0.0);
         for (i, row) in a.iter().enumerate().skip(k) {
             for (j, x) in row.iter().enumerate().skip(k) {
-                if x.norm() > best {
-                    (pi, pj, best) = (i, j, x.norm());
+                if x.norm_sqr().sqrt() > best {
+                    (pi, pj, best) = (i, j, x.norm_sqr().sqrt());
                 }
             }
         }
@@ -383,7 +392,7 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
     // normal flux.
     let mut scored = [(C::ZERO, false, 0.0); 4];
     for (out, l) in scored.iter_mut().zip(eigenvalues(&sys.delta)) {
-        *out = if l.im.abs() > EVANESCENT_ROOT * (1.0 + l.norm()) {
+        *out = if l.im.abs() > EVANESCENT_ROOT * (1.0 + l.norm_sqr().sqrt()) {
             (l, false, l.im)
         } else {
             let l = C::from(l.re);
@@ -398,11 +407,11 @@ fn waves(sys: &System, travel: Travel) -> ([Wave; 2], bool) {
         .filter(|&i| i != first)
         .fold(usize::from(first == 0), |m, i| if along(i) > along(m) { i } else { m });
     let [(l0, p0, _), (l1, p1, _)] = [scored[first], scored[second]];
-    let scale = 1.0 + l0.norm().max(l1.norm());
+    let scale = 1.0 + l0.norm_sqr().sqrt().max(l1.norm_sqr().sqrt());
     if p0 && p1 {
         return propagating_pair(sys, l0, l1, s);
     }
-    if (l0 - l1).norm() <= DEGENERATE_MODES * scale {
+    if (l0 - l1).norm_sqr().sqrt() <= DEGENERATE_MODES * scale {
         // Two degenerate evanescent waves.
         let u = null_basis(pair_product(sys, l0, l1), 2);
         let c = first_of_pair(sys, &u);
@@ -437,7 +446,7 @@ fn pair_product(sys: &System, l0: C, l1: C) -> M4 {
 fn first_of_pair(sys: &System, u: &[V4; 2]) -> [C; 2] {
     let along = usize::from(sys.qt[0].abs() > sys.qt[1].abs());
     let a = [sys.fields(&u[0]).2[along], sys.fields(&u[1]).2[along]];
-    let n = a[0].norm().hypot(a[1].norm());
+    let n = (a[0].norm_sqr() + a[1].norm_sqr()).sqrt();
     if n > 0.0 {
         [a[1] / n, -a[0] / n]
     } else {
@@ -493,7 +502,7 @@ fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
     } else {
         [C::from(half + d), c12.conj()]
     };
-    let n = v[0].norm().hypot(v[1].norm());
+    let n = (v[0].norm_sqr() + v[1].norm_sqr()).sqrt();
     let upper = [v[0] / n, v[1] / n];
     let lower = [-upper[1].conj(), upper[0].conj()];
     (
@@ -547,7 +556,7 @@ fn swapped(medium: &Anisotropic, qt: [f64; 2], w: &[Wave; 2]) -> bool {
         (false, false) => match no {
             Some(no) => {
                 let ordinary = C::from(no * no - qt[0] * qt[0] - qt[1] * qt[1]);
-                (w[1].qz * w[1].qz - ordinary).norm() < (w[0].qz * w[0].qz - ordinary).norm()
+                (w[1].qz * w[1].qz - ordinary).norm_sqr().sqrt() < (w[0].qz * w[0].qz - ordinary).norm_sqr().sqrt()
             }
             None => w[1].qz.im.abs() > w[0].qz.im.abs(),
         },
@@ -580,9 +589,15 @@ fn assemble(sys: &System, kind: ModeKind, travel: Travel, w: &Wave) -> Mode {
         e.norm()
     };
     // Phase: E's largest component real and positive.
-    let big = e.iter().fold(C::ZERO, |m, z| if z.norm() > m.norm() { *z } else { m });
-    let phase = if big.norm() > 0.0 {
-        big.conj() / C::from(big.norm())
+    let big = e.iter().fold(C::ZERO, |m, z| {
+        if z.norm_sqr().sqrt() > m.norm_sqr().sqrt() {
+            *z
+        } else {
+            m
+        }
+    });
+    let phase = if big.norm_sqr().sqrt() > 0.0 {
+        big.conj() / C::from(big.norm_sqr().sqrt())
     } else {
         C::ONE
     };

@@ -364,7 +364,8 @@ const isBlank = (v) => v === null || v.trim() === '';
 /**
  * Compares what the page shows with the command line's result: every path in `required` must be
  * on the page, and every [data-quantity] on the page must agree with the result at that path.
- * Numbers: 1e-12 relative, with an absolute floor of 1e-15 for the `required` paths and 1e-12
+ * Numbers: 1e-12 relative (1e-9 for the group indices and delays, which are central differences),
+ * with an absolute floor of 1e-15 for the `required` paths and 1e-12
  * for the others (angles and positions that are zero up to rounding come out as ~1e-15 in the
  * wasm build and exactly 0 natively, e.g. an ellipticity in degrees). A null in the result may
  * show as no value; strings, booleans and lists compare as String(value), as the page writes
@@ -385,7 +386,10 @@ export function mismatches(shown, cli, required = []) {
       }
     } else if (typeof expected === 'number') {
       const got = isBlank(value) ? NaN : Number(value);
-      if (!close(got, expected, 1e-12, strict.has(p) ? 1e-15 : 1e-12)) {
+      // Group indices and delays are central differences (contract/group.rs), good to about
+      // 1e-11: the wasm and native builds round them differently there.
+      const rel = /\.group_(index|delay_ps)$/.test(p) ? 1e-9 : 1e-12;
+      if (!close(got, expected, rel, strict.has(p) ? 1e-15 : 1e-12)) {
         out.push(`${p}: page ${value}, command line ${expected}`);
       }
     } else if (
