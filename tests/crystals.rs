@@ -177,3 +177,34 @@ fn an_active_quartz_plate_far_from_its_axis_is_nearly_the_plain_waveplate() {
     let chi = json["elements"][0]["o"]["ellipticity_deg"].as_f64().unwrap();
     assert!(chi.abs() < 1e-3, "{chi}");
 }
+
+#[test]
+fn a_wavelength_given_in_air_is_traced_at_its_vacuum_equivalent() {
+    // The helium-neon line is 632.816 nm in standard air and 632.991 nm in vacuum (spectroscopic
+    // tables; common practice, from memory). A document may give either.
+    let air = run(r#"{"version": 2, "wavelength_nm": 632.816, "wavelength_in": "air",
+        "elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {"tilt_deg": 45}}]}"#);
+    assert!((air.wavelength_nm - 632.991).abs() < 2e-3, "{}", air.wavelength_nm);
+    let json = serde_json::to_value(&air).unwrap();
+    assert_eq!(json["air_wavelength_nm"], 632.816);
+    let vacuum = run(&format!(
+        r#"{{"version": 2, "wavelength_nm": {}, "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 10, "axis": {{"tilt_deg": 45}}}}]}}"#,
+        air.wavelength_nm
+    ));
+    for (a, v) in air.rays.iter().zip(&vacuum.rays) {
+        assert_eq!(a.exit_point_mm, v.exit_point_mm);
+        assert_eq!(a.phase_rad, v.phase_rad);
+    }
+    // Written back as given, and a bad value named.
+    let sc = Scenario::from_json_str(
+        r#"{"wavelength_nm": 1064, "wavelength_in": "air", "elements": [{"kind": "rotator", "angle_deg": 1}]}"#,
+    )
+    .unwrap();
+    assert_eq!(sc.to_json()["wavelength_nm"], 1064.0);
+    assert_eq!(sc.to_json()["wavelength_in"], "air");
+    assert_eq!(Scenario::from_json(&sc.to_json()).unwrap(), sc);
+    let bad =
+        Scenario::from_json_str(r#"{"wavelength_in": "water", "elements": [{"kind": "rotator", "angle_deg": 1}]}"#)
+            .unwrap_err();
+    assert_eq!(bad.field, "wavelength_in");
+}

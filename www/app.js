@@ -92,6 +92,12 @@ function addTop(container, path, field) {
 function buildTopControls() {
   const light = document.getElementById('light-fields');
   addTop(light, 'wavelength_nm', new Field({ key: 'wavelength_nm', label: 'Wavelength', unit: 'nm' }));
+  addTop(light, 'wavelength_in', new Field({ key: 'wavelength_in',
+    label: 'Wavelength measured in',
+    kind: 'select',
+    options: [['vacuum', 'vacuum'], ['air', 'standard air']],
+    hint: 'Air wavelengths are converted to vacuum by the standard-air index (Ciddor 1996).',
+  }));
   addTop(light, 'outside_index', new Field({ key: 'outside_index', label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
   addTop(light, 'interface_losses', new Field({ key: 'interface_losses',
     label: 'Crystal faces',
@@ -607,6 +613,7 @@ function buildScenario() {
     elements: state.cards.map((c) => c.build()),
   };
   if (screen !== 0) doc.screen_mm = screen;
+  if (v('wavelength_in') !== 'vacuum') doc.wavelength_in = v('wavelength_in');
   return doc;
 }
 
@@ -618,6 +625,7 @@ function member(o, k) {
 function loadControls(s) {
   const set = (p, v) => state.controls[p].set(v);
   set('wavelength_nm', member(s, 'wavelength_nm') ?? 632.8);
+  set('wavelength_in', member(s, 'wavelength_in') ?? 'vacuum');
   set('outside_index', member(s, 'outside_index') ?? 1);
   set('interface_losses', member(s, 'interface_losses') ?? 'ideal');
   const beam = member(s, 'beam');

@@ -64,6 +64,7 @@ function shapeOf(r, showAll) {
     (r.rejected ?? []).map((x) => `${x.label}@${x.element}`).join(','),
     showAll.rays,
     showAll.spots,
+    r.air_wavelength_nm !== undefined,
   ];
   return parts.join('|');
 }
@@ -219,6 +220,11 @@ function buildResults(state, r) {
     h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Output rays' }), h('span', { className: 'summary-value', text: String(r.rays.length) })),
     h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Spots' }), h('span', { className: 'summary-value', text: String(r.spots.length) })),
   );
+  // A wavelength given in air: the vacuum wavelength the trace used.
+  if (r.air_wavelength_nm !== undefined) {
+    summary.appendChild(h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Vacuum wavelength' }),
+      cell('span', 'wavelength_nm', (x) => x.wavelength_nm, (v) => `${fixed(v, 4)} nm`, { className: 'summary-value' })));
+  }
 }
 
 /** The rays that do not leave forward (`rejected`): a row each, and a sentence. */

@@ -269,6 +269,13 @@ pub struct TraceResult {
     pub version: u32,
     /// Vacuum wavelength, nm.
     pub wavelength_nm: f64,
+    /// The wavelength in standard air as the scenario gave it (`"wavelength_in": "air"`), nm;
+    /// `wavelength_nm` is then its vacuum equivalent.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub air_wavelength_nm: Option<f64>,
+    /// The index of standard air used for that conversion (Ciddor 1996).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub air_index: Option<f64>,
     /// The input beam's state.
     pub input: InputState,
     /// Every output ray.
@@ -707,6 +714,12 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
 
     let rejected: Vec<RejectedRay> = traced.rejected.iter().map(rejected_ray).collect();
     notes.extend(rejection_notes(&rejected));
+    let air = sc
+        .air_wavelength_nm
+        .and_then(|nm| crate::optics::material::vacuum_from_air(nm).ok());
+    if let Some(a) = &air {
+        notes.extend(a.warnings.iter().cloned());
+    }
     let spots = spots(stack, traced);
     let total_power = spots.iter().map(|s| s.power).sum();
     let input = InputState {
@@ -720,6 +733,8 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
     TraceResult {
         version: 2,
         wavelength_nm: stack.wavelength.nm(),
+        air_wavelength_nm: sc.air_wavelength_nm,
+        air_index: air.map(|a| a.air_index),
         input,
         rays,
         elements: reports,

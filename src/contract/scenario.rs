@@ -9,6 +9,7 @@
 //! |---|---|---|
 //! | `version` | 1 | 1, 2 |
 //! | `wavelength_nm` | 632.8 | 1 to 1 000 000 (and inside the material formula's domain) |
+//! | `wavelength_in` | `"vacuum"` | `"vacuum"`, `"air"` (standard air, converted to vacuum by Ciddor 1996) |
 //! | `outside_index` | 1.0 | 1 to 5 |
 //! | `interface_losses` | `"ideal"` | `"ideal"`, `"uncoated"` |
 //! | `beam.diameter_mm` | 1.0 | above 0, at most 1000 |
@@ -246,6 +247,9 @@ pub struct Element {
 pub struct Scenario {
     /// Vacuum wavelength.
     pub wavelength: Wavelength,
+    /// The wavelength as the document gave it in standard air (`"wavelength_in": "air"`), nm;
+    /// `wavelength` is then its vacuum equivalent (Ciddor 1996, [`material::vacuum_from_air`]).
+    pub air_wavelength_nm: Option<f64>,
     /// Refractive index of the isotropic medium around and between the elements.
     pub outside_index: f64,
     /// Treatment of the crystal faces.
@@ -296,7 +300,16 @@ impl Scenario {
             },
         };
         let wl_nm = in_range("wavelength_nm", f.number_or("wavelength_nm", 632.8)?, 1.0, 1e6)?;
-        let wavelength = Wavelength::from_nm(wl_nm)?;
+        let (wavelength, air_wavelength_nm) = match f.string("wavelength_in")? {
+            None | Some("vacuum") => (Wavelength::from_nm(wl_nm)?, None),
+            Some("air") => (material::vacuum_from_air(wl_nm)?.vacuum, Some(wl_nm)),
+            Some(other) => {
+                return Err(Error::new(
+                    "wavelength_in",
+                    format!("unknown value '{}'; expected \"vacuum\" or \"air\"", quote_text(other)),
+                ));
+            }
+        };
         let outside_index = in_range("outside_index", f.number_or("outside_index", 1.0)?, 1.0, 5.0)?;
         let losses = match f.string("interface_losses")? {
             None | Some("ideal") => Losses::Ideal,
@@ -328,6 +341,7 @@ impl Scenario {
         f.finish()?;
         Ok(Scenario {
             wavelength,
+            air_wavelength_nm,
             outside_index,
             losses,
             beam,
@@ -341,7 +355,7 @@ impl Scenario {
         let b = &self.beam;
         let mut doc = json!({
             "version": 2,
-            "wavelength_nm": self.wavelength.nm(),
+            "wavelength_nm": self.air_wavelength_nm.unwrap_or(self.wavelength.nm()),
             "outside_index": self.outside_index,
             "interface_losses": match self.losses { Losses::Ideal => "ideal", Losses::Uncoated => "uncoated" },
             "beam": {
@@ -353,6 +367,9 @@ impl Scenario {
         });
         if self.screen_mm > 0.0 {
             doc["screen_mm"] = json!(self.screen_mm);
+        }
+        if self.air_wavelength_nm.is_some() {
+            doc["wavelength_in"] = json!("air");
         }
         doc
     }

@@ -46,6 +46,7 @@ impl Part {
         Part {
             scenario: Scenario {
                 wavelength,
+                air_wavelength_nm: None,
                 outside_index: 1.0,
                 losses: Losses::Ideal,
                 beam: Beam {

@@ -94,3 +94,14 @@ test('optical activity: the quartz rotator turns the light by its rotatory power
     assert.equal(await shown(page, 'elements[0].handedness'), false);
   });
 });
+
+test('a wavelength measured in air: the page sends it as given and shows the vacuum wavelength the trace used', { timeout: 90000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.selectOption('select[data-field="wavelength_in"]', 'air');
+    const sc = await waitScenario(page, (s) => s.wavelength_in === 'air', 'wavelength in air');
+    assert.equal(sc.wavelength_nm, 632.8, 'the wavelength stays as entered');
+    const cli = cliTrace(sc);
+    assert.ok(cli.wavelength_nm > 632.9 && cli.wavelength_nm < 633.0, `vacuum ${cli.wavelength_nm}`);
+    await expectAgreement(page, cli, ['wavelength_nm', 'elements[0].separation_mm'], 'air wavelength');
+  });
+});
