@@ -683,7 +683,7 @@ mod tests {
             "{w:?}"
         );
         // Its own notes come before the shop's, and say what it cannot give.
-        assert!(strings(&d["notes"])[0].starts_with("temperature: dθ/dT is not given"));
+        assert!(strings(&d["notes"])[0].starts_with("the temperature sensitivity dθ/dT is not given"));
         assert_eq!(
             field_of(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "thickness_mm": 3}"#),
             "thickness_mm"

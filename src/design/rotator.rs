@@ -25,7 +25,8 @@
 //! symmetric about its axis (uniaxial, gyration diag(g11, g11, g33)), so one plane of incidence
 //! with every input azimuth covers every plane. The acceptance is the smallest t at which either
 //! exceeds its tolerance, found on a scan and bisected; `acceptance_bound` is `at_least` when
-//! nothing is exceeded up to `max_incidence_deg`.
+//! nothing is exceeded up to `max_incidence_deg`. The answer's curve of the worst departures runs
+//! to three times the acceptance, where the tolerances are left behind.
 
 use crate::contract::request::RotatorRequest;
 use crate::contract::scenario::{Chirality, ElementKind, Medium, Polarization};
@@ -39,6 +40,10 @@ use crate::precision::{
     BAND_CURVE_INTERVALS, BISECTION_STEPS, DESIGN_SCAN_INTERVALS, DIFF_STEP_WAVELENGTH_NM, ROTATOR_INPUT_AZIMUTHS,
 };
 use serde::Serialize;
+
+/// The acceptance curve runs from normal incidence to this many times the acceptance (or to the
+/// largest incidence searched, if less), so that it shows where the output leaves the tolerances.
+const ACCEPTANCE_CURVE_SPAN: f64 = 3.0;
 
 /// The rotation over the band.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -248,42 +253,40 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         / (2.0 * h);
 
     // Acceptance on the exact trace.
-    let over = |t: f64| -> Result<(f64, f64, f64), Error> {
+    let over = |t: f64| -> Result<(f64, f64), Error> {
         let m = plate_matrix(&scenario, t).ok_or_else(fail)?;
-        let (chi, err) = worst(&m, rotation_deg);
-        Ok((
-            chi,
-            err,
-            (chi / req.ellipticity_tolerance_deg).max(err / req.rotation_tolerance_deg) - 1.0,
-        ))
+        Ok(worst(&m, rotation_deg))
     };
-    let mut curve = AcceptanceCurve {
-        incidence_deg: vec![],
-        ellipticity_deg: vec![],
-        rotation_error_deg: vec![],
-    };
-    let mut crossing = None;
-    let n = DESIGN_SCAN_INTERVALS;
-    for k in 0..=n {
-        let t = req.max_incidence_deg * k as f64 / n as f64;
-        let (chi, err, g) = over(t)?;
-        curve.incidence_deg.push(t);
-        curve.ellipticity_deg.push(chi);
-        curve.rotation_error_deg.push(err);
-        if crossing.is_none() && g > 0.0 {
-            crossing = Some(k);
+    let exceeds = |(chi, err): (f64, f64)| chi > req.ellipticity_tolerance_deg || err > req.rotation_tolerance_deg;
+    let scan = |span: f64| -> Result<AcceptanceCurve, Error> {
+        let mut curve = AcceptanceCurve {
+            incidence_deg: vec![],
+            ellipticity_deg: vec![],
+            rotation_error_deg: vec![],
+        };
+        let n = DESIGN_SCAN_INTERVALS;
+        for k in 0..=n {
+            let t = span * k as f64 / n as f64;
+            let (chi, err) = over(t)?;
+            curve.incidence_deg.push(t);
+            curve.ellipticity_deg.push(chi);
+            curve.rotation_error_deg.push(err);
         }
-    }
+        Ok(curve)
+    };
+    let coarse = scan(req.max_incidence_deg)?;
+    let crossing =
+        (0..coarse.incidence_deg.len()).find(|&k| exceeds((coarse.ellipticity_deg[k], coarse.rotation_error_deg[k])));
     let (acceptance_deg, acceptance_bound, acceptance_limited_by) = match crossing {
         None => (req.max_incidence_deg, "at_least", None),
         Some(0) => (0.0, "found", Some("rotation")),
         Some(k) => {
-            let (mut a, mut b) = (curve.incidence_deg[k - 1], curve.incidence_deg[k]);
+            let (mut a, mut b) = (coarse.incidence_deg[k - 1], coarse.incidence_deg[k]);
             for _ in 0..BISECTION_STEPS {
                 let mid = 0.5 * (a + b);
-                if over(mid)?.2 > 0.0 { b = mid } else { a = mid }
+                if exceeds(over(mid)?) { b = mid } else { a = mid }
             }
-            let (chi, _, _) = over(b)?;
+            let (chi, _) = over(b)?;
             let by = if chi > req.ellipticity_tolerance_deg {
                 "ellipticity"
             } else {
@@ -292,8 +295,15 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
             (0.5 * (a + b), "found", Some(by))
         }
     };
+    // The curve shows where the output leaves the tolerances: up to three times the acceptance.
+    let window = ACCEPTANCE_CURVE_SPAN * acceptance_deg;
+    let acceptance_curve = if crossing.is_some() && window > 0.0 && window < req.max_incidence_deg {
+        scan(window)?
+    } else {
+        coarse
+    };
     notes.push(
-        "temperature: dθ/dT is not given: the catalogue's rotatory power of quartz is at room temperature (about 20 °C) and has no temperature data yet".to_string(),
+        "the temperature sensitivity dθ/dT is not given: the catalogue's rotatory power of quartz is at room temperature (about 20 °C) and has no temperature data yet".to_string(),
     );
     Ok(RotatorDesign {
         handedness: if right_handed { "right" } else { "left" },
@@ -314,7 +324,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         acceptance_deg,
         acceptance_bound,
         acceptance_limited_by,
-        acceptance_curve: curve,
+        acceptance_curve,
         notes,
         scenario,
     })
