@@ -188,3 +188,21 @@ test('the rotator solves from its starting values and fits 400 px', { timeout: 1
     assert.deepEqual(bare.filter((l) => !/half turns/.test(l)), [], 'numbers without a unit');
   }, { viewport: { width: 400, height: 900 } });
 });
+
+test('a link carries the rotator\'s fields, a forced hand included', { timeout: 120000 }, async () => {
+  const { request } = golden('quartz-rotator-forced-right');
+  let link = '';
+  await withPage(async (page) => {
+    await fill(page, [
+      ['rotation_deg', 45], ['wavelength_nm', 1064], ['handedness', 'right'], ['min_thickness_mm', 10],
+      ['rotation_tolerance_deg', 0.2], ['ellipticity_tolerance_deg', 1],
+    ]);
+    // The address follows the fields (the history writes it after a pause).
+    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+    link = await page.evaluate(() => location.hash);
+  });
+  await openAt(env, `/${link}`, async ({ page }) => {
+    assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), { ...request, max_incidence_deg: 10 }, 'the link gives the same request');
+    assert.equal(await page.inputValue(field('handedness')), 'right', 'and shows the forced hand');
+  });
+});
