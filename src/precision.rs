@@ -174,6 +174,11 @@ pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str
 /// curves of the answers use it (81 points, among the band checks' 481).
 pub const DESIGN_SCAN_INTERVALS: usize = 80;
 
+/// Linear input azimuths, spread evenly over 180°, over which a quartz rotator's acceptance takes
+/// its worst ellipticity and rotation error (every 5°: the departures vary as sin 2ψ and
+/// cos 2ψ, so the worst sampled is within 1 − cos 5° ≈ 0.4 % of the worst).
+pub const ROTATOR_INPUT_AZIMUTHS: usize = 36;
+
 /// Margin (degrees) kept below a critical angle or the contract's largest face tilt when a
 /// prism design scans its angle: exactly at the critical angle a mode grazes the face.
 pub const CRITICAL_MARGIN_DEG: f64 = 1e-6;

@@ -4,7 +4,8 @@
 // module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
 // arrives in chunks with progress (any kind's would be shown alike), and Cancel terminates the
 // worker (a new one starts). The kinds: displacer, waveplate, achromat, recombiner and the prism
-// kinds angular-splitter, prism-polarizer, tilt-tuning (DEVELOPERS.md, "Design requests"). Results
+// kinds angular-splitter, prism-polarizer, tilt-tuning, and the quartz-rotator (DEVELOPERS.md,
+// "Design requests"). Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
 // String(value) (a bound, "≥ 10°", also data-bound); the design's warnings and shop notes are
 // lists in the panel's words (.design-advice, role=status); the curves are drawn with the core's
@@ -24,7 +25,7 @@ import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { materialName } from './state.js';
-import { achromatResults, adviceLists, adviceOf, displacerResults, mcKey, polarizerResults, recombinerResults, splitterResults, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { achromatResults, adviceLists, adviceOf, displacerResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -34,6 +35,7 @@ const DESIGN_KINDS = [
   ['angular-splitter', 'angular splitter'],
   ['prism-polarizer', 'polarizing prism'],
   ['tilt-tuning', 'tilt-tuned waveplate'],
+  ['quartz-rotator', 'quartz rotator'],
 ];
 // The material a kind starts from, until the user picks one (common choices for each part).
 const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz' };
@@ -170,6 +172,23 @@ function buildDesignFields(state) {
   });
   const maxTilt = addField(state, 'max_tilt_deg', { label: 'Largest mount tilt', unit: '°', value: 30 });
 
+  // The quartz rotator (starting values: the core's defaults, src/contract/request/rotator.rs).
+  const rotation = addField(state, 'rotation_deg', {
+    label: 'Rotation', spoken: 'Rotation of the part', unit: '°', value: 90,
+    hint: 'From x toward y: positive is a left-handed plate, negative a right-handed one.',
+  });
+  const hand = addField(state, 'handedness', {
+    label: 'Hand of the quartz', kind: 'select',
+    options: [['', 'the rotation\'s own'], ['right', 'right-handed'], ['left', 'left-handed']],
+    hint: 'A forced hand reaches the rotation modulo 180°, the same for every polarization.',
+  });
+  const minThick = addField(state, 'min_thickness_mm', { label: 'Thinnest plate', unit: 'mm', placeholder: 'none', hint: 'Half turns of 180° are added to reach it.' });
+  const rotTol = addField(state, 'rotation_tolerance_deg', { label: 'Rotation tolerance', unit: '°', value: state.design.limits.rotator_rotation_tolerance_deg });
+  const ellTol = addField(state, 'ellipticity_tolerance_deg', {
+    label: 'Ellipticity tolerance', unit: '°', value: state.design.limits.rotator_ellipticity_tolerance_deg,
+    hint: 'The acceptance is the incidence at which a linear input leaves beyond either tolerance.',
+  });
+
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
   state.design.layout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
@@ -178,6 +197,7 @@ function buildDesignFields(state) {
   state.design.layout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
   state.design.layout['angular-splitter'] = [...medium.nodes, wl.row, split.row, clear.row, cement.row, band, tolerances, samples.row, seed.row];
   state.design.layout['prism-polarizer'] = [...medium.nodes, wl.row, cement.row, clear.row];
+  state.design.layout['quartz-rotator'] = [rotation.row, wl.row, band, hand.row, minThick.row, rotTol.row, ellTol.row, maxInc.row];
   state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
@@ -194,6 +214,7 @@ function buildDesignFields(state) {
   };
   state.design.hints['prism-polarizer'] = { cement_index: 'Empty: an air gap.' };
   state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
+  state.design.hints['quartz-rotator'] = { band: 'Empty: ±10 % around the design wavelength.' };
   state.design.hints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
   state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
   state.design.bandBox = band;
@@ -321,6 +342,15 @@ function designRequest(state) {
     put('axis_azimuth_deg');
     put('tilt_azimuth_deg');
     put('max_tilt_deg');
+  } else if (kind === 'quartz-rotator') {
+    put('rotation_deg');
+    put('wavelength_nm');
+    pair('band_nm');
+    if (state.design.fields.handedness.value) put('handedness');
+    put('min_thickness_mm');
+    put('rotation_tolerance_deg');
+    put('ellipticity_tolerance_deg');
+    put('max_incidence_deg');
   } else if (kind === 'waveplate') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -503,6 +533,7 @@ function plotsFor(state, kind, d, request, run) {
       });
     });
   }
+  if (kind === 'quartz-rotator') return rotatorPlots(state, d);
   if (kind === 'tilt-tuning') {
     const c = d.curve;
     const pts = c.tilt_deg.map((x, i) => [x, c.retardance_waves[i]]);
@@ -518,6 +549,49 @@ function plotsFor(state, kind, d, request, run) {
     })];
   }
   return [];
+}
+
+/**
+ * The quartz rotator's plots: its rotation over the band (the design wavelength marked), and the
+ * worst ellipticity and rotation error of a linear input against incidence, the acceptance
+ * marked where a tolerance is reached (src/design/rotator.rs).
+ */
+function rotatorPlots(state, d) {
+  const g = (v, n = 4) => significant(v, n);
+  const b = d.band;
+  const pts = b.wavelength_nm.map((x, i) => [x, b.rotation_deg[i]]);
+  const last = pts.length - 1;
+  const plots = [designPlot('rotation-wavelength', {
+    wide: true,
+    label: `Rotation against wavelength, ${trimmed(pts[0][0], 2)} to ${trimmed(pts[last][0], 2)} nm: from ${g(pts[0][1])}° to ${g(pts[last][1])}°; ${g(d.rotation_deg)}° at ${trimmed(d.wavelength_nm, 3)} nm (marked).`,
+    caption: 'The designed plate over the band, at normal incidence; positive from x toward y.',
+    draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+      title: 'Rotation against wavelength',
+      x_label: 'wavelength', x_unit: 'nm', y_label: 'rotation', y_unit: '°',
+      points: pts, current: [d.wavelength_nm, d.rotation_deg], note: `${d.handedness}-handed, ${g(d.thickness_mm)} mm`,
+    }), dark),
+  })];
+  const c = d.acceptance_curve;
+  const found = d.acceptance_bound === 'found';
+  const end = c.incidence_deg[c.incidence_deg.length - 1];
+  for (const [name, key, tol, what] of [
+    ['ellipticity-incidence', 'ellipticity_deg', d.ellipticity_tolerance_deg, 'ellipticity'],
+    ['rotation-error-incidence', 'rotation_error_deg', d.rotation_tolerance_deg, 'rotation error'],
+  ]) {
+    const q = c.incidence_deg.map((x, i) => [x, c[key][i]]);
+    const limits = found && d.acceptance_limited_by === (key === 'ellipticity_deg' ? 'ellipticity' : 'rotation');
+    plots.push(designPlot(name, {
+      small: true,
+      label: `Worst ${what} of a linear input against angle of incidence, 0 to ${trimmed(end, 3)}°: ${g(q[q.length - 1][1])}° at ${trimmed(end, 3)}°; tolerance ${g(tol)}°${found ? `; acceptance ${g(d.acceptance_deg)}°${limits ? `, where the ${what} reaches its tolerance (marked)` : ''}` : `; within the tolerances up to ${trimmed(end, 3)}°`}.`,
+      caption: limits ? `Acceptance ${g(d.acceptance_deg)}° (±${g(tol)}°).` : `Tolerance ±${g(tol)}°.`,
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: `${what.charAt(0).toUpperCase()}${what.slice(1)}, worst input`,
+        x_label: 'incidence', x_unit: '°', y_label: what, y_unit: '°',
+        points: q, current: limits ? [d.acceptance_deg, tol] : null, note: `tolerance ${g(tol)}°`,
+      }), dark),
+    }));
+  }
+  return plots;
 }
 
 /** The histogram of a Monte Carlo summary `mc` (or the state of its run), the nominal value marked. */
@@ -557,6 +631,7 @@ function redrawDesign(state) {
 const RESULTS = {
   displacer: displacerResults, waveplate: waveplateResults, achromat: achromatResults, recombiner: recombinerResults,
   'angular-splitter': splitterResults, 'prism-polarizer': polarizerResults, 'tilt-tuning': tiltResults,
+  'quartz-rotator': rotatorResults,
 };
 
 /** Writes the shown design: its results as text, then its plots. */
@@ -797,6 +872,7 @@ const BAND_DEFAULT_WORDS = {
   displacer: 'the design wavelength alone',
   waveplate: '±20 % around the design wavelength',
   'angular-splitter': '±10 % around the design wavelength',
+  'quartz-rotator': '±10 % around the design wavelength',
   achromat: '0.8 × λ₁ to 1.2 × λ₂',
 };
 

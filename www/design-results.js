@@ -471,3 +471,44 @@ export function tiltResults(state, d) {
     ]),
   ];
 }
+
+/** The quartz rotator: a c-cut quartz plate of one hand (src/design/rotator.rs). */
+export function rotatorResults(state, d) {
+  const b = d.band;
+  const [lo, hi] = [extremeAt(b.rotation_deg), extremeAt(b.rotation_deg, -1)];
+  const last = b.wavelength_nm.length - 1;
+  const turns = d.half_turns_added !== 0;
+  return [
+    h('p', { className: 'design-headline' },
+      `A ${d.handedness}-handed c-cut quartz plate `, dq(d, 'thickness_mm', formats.length, 'strong'), ' thick turns linear light by ',
+      dq(d, 'rotation_deg', formats.deg, 'strong'), ' at ', dq(d, 'wavelength_nm', formats.nm, 'strong'), '; it stays within the tolerances up to ',
+      dq(d, 'acceptance_deg', formats.angle, 'strong'), ' of incidence.'),
+    resultCard(d, 'What to order', [
+      ['crystal', 'handedness', (v) => `${v}-handed quartz`],
+      ['thickness', 'thickness_mm', formats.length],
+      ['thickness tolerance (±)', 'thickness_tolerance_mm', formats.sig('mm', 3)],
+    ], { className: 'design-main', note: 'c-cut: the optic axis along the face normal.' }),
+    resultCard(d, 'Rotation', [
+      ['requested', 'requested_rotation_deg', formats.deg],
+      ['of the plate', 'rotation_deg', formats.deg],
+      turns ? ['half turns added', 'half_turns_added', formats.count] : null,
+      ['by the exact trace', 'traced_rotation_deg', formats.deg],
+      ['rotatory power', 'rotatory_power_deg_per_mm', formats.sig('°/mm', 5)],
+      ['dθ/dλ', 'dispersion_deg_per_nm', formats.sig('°/nm', 4)],
+    ], { note: 'From x toward y. The rotatory power is from the catalogue\'s cited formula (g11 = 0, stated); dθ/dT is not available.' }),
+    resultCard(d, 'Over the band', [
+      ['from', 'band.wavelength_nm.0', formats.nm],
+      ['to', `band.wavelength_nm.${last}`, formats.nm],
+      ['smallest rotation', `band.rotation_deg.${lo}`, formats.deg],
+      ['… at', `band.wavelength_nm.${lo}`, formats.nm],
+      ['largest rotation', `band.rotation_deg.${hi}`, formats.deg],
+      ['… at', `band.wavelength_nm.${hi}`, formats.nm],
+    ]),
+    resultCard(d, 'Acceptance', [
+      ['angle of incidence', 'acceptance_deg', formats.angle],
+      ['set by', 'acceptance_limited_by', (v) => (v === 'ellipticity' ? 'the ellipticity' : 'the rotation error')],
+      ['rotation tolerance', 'rotation_tolerance_deg', formats.sig('°', 3)],
+      ['ellipticity tolerance', 'ellipticity_tolerance_deg', formats.sig('°', 3)],
+    ], { note: 'Every linear input, any plane of incidence, by the exact trace: off the axis the plate turns birefringent within a degree or so.' }),
+  ];
+}

@@ -319,6 +319,25 @@ function tiltRows(d, r, materialList) {
   return rows;
 }
 
+/** The quartz rotator: a c-cut plate of one hand (src/design/rotator.rs). */
+function rotatorRows(d, materialList) {
+  const rows = materialRows('quartz', 'Material', materialList);
+  rows.push(['Optical activity', `${d.handedness}-handed crystal; rotatory power ${sheetNumber(d.rotatory_power_deg_per_mm, 5)}°/mm at ${nm(d.wavelength_nm)} (${d.rotatory_power_source})`]);
+  rows.push(['Dimensions', `plate ${mm(d.thickness_mm, 5)} ± ${mm(d.thickness_tolerance_mm, 2)} thick (the tolerance moves the rotation by ${deg(d.rotation_tolerance_deg, 3)})`]);
+  rows.push(['Cut', 'c-cut: optic axis along the face normal (0° to it)']);
+  rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
+  const band = d.band?.rotation_deg ?? [];
+  const bandRot = band.length > 1 ? `; rotation from ${deg(Math.min(...band))} to ${deg(Math.max(...band))} over the band` : '';
+  rows.push(['Wavelength band', `${bandText(d.band?.wavelength_nm?.map((w) => [w]), d.wavelength_nm)}${bandRot}`]);
+  const k = d.half_turns_added;
+  const turns = k ? ` (the request ${deg(d.requested_rotation_deg)} ${k > 0 ? 'plus' : 'minus'} ${Math.abs(k)} × 180°)` : '';
+  const acceptance = d.acceptance_bound === 'at_least'
+    ? `≥ ${deg(d.acceptance_deg, 3)} of incidence (no tolerance reached within the angles computed)`
+    : `${deg(d.acceptance_deg, 3)} of incidence (set by the ${d.acceptance_limited_by === 'ellipticity' ? 'ellipticity' : 'rotation error'})`;
+  rows.push(['Performance', `rotation ${deg(d.rotation_deg, 6)} from x toward y at ${nm(d.wavelength_nm)}${turns}, dθ/dλ ${sheetNumber(d.dispersion_deg_per_nm, 3)}°/nm; acceptance ${acceptance} for rotation within ${deg(d.rotation_tolerance_deg, 3)} and ellipticity within ${deg(d.ellipticity_tolerance_deg, 3)}`]);
+  return rows;
+}
+
 /** The sheet's rows [term, text] for a solved design of each kind. */
 function orderRows(shown, materialList) {
   const { design: d, request: r, kindName } = shown;
@@ -376,6 +395,8 @@ function orderRows(shown, materialList) {
     rows.push(...polarizerRows(d, r, materialList));
   } else if (d.kind === 'tilt-tuning') {
     rows.push(...tiltRows(d, r, materialList));
+  } else if (d.kind === 'quartz-rotator') {
+    rows.push(...rotatorRows(d, materialList));
   }
   // The design's warnings and the shop's notes, in the panel's words (lists of text).
   if (shown.warnings?.length) rows.push(['Warnings', shown.warnings]);

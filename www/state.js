@@ -62,7 +62,7 @@ export function createState({ darkQuery }) {
     design: {
       hooks: null, // what setupDesign returns: setDesignInputs, designLinkError, designRequest, designShown
       links: null, // what the panel may do to the page: applyScenario, flushFragment, onDesignInputs
-      limits: null, // core.designLimits(): sample defaults and limits (displacer, splitter), the recombiner's limits
+      limits: null, // core.designLimits(): sample defaults and limits (displacer, splitter), the recombiner's limits, the rotator's tolerances
       fields: {}, // request path -> Field (also `size`: how a tilt-tuned plate is given, no request field)
       layout: {}, // kind -> the rows and groups shown for it, in order
       hints: {}, // kind -> {path or group: hint text, start: {path: starting value of an untouched field}}

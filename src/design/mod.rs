@@ -9,6 +9,7 @@
 //! | `angular-splitter` | [`crate::design::splitter`] | `material`, `split_angle_deg` |
 //! | `prism-polarizer` | [`crate::design::polarizer`] | `material` |
 //! | `tilt-tuning` | [`crate::design::tilt`] | `material`, `retardance_waves`, `thickness_mm` or `order_number` |
+//! | `quartz-rotator` | [`crate::design::rotator`] | `rotation_deg` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
 //! The requests are documents, read field by field in `src/contract/request/`; here each is
@@ -27,17 +28,19 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, SplitterRequest, TiltRequest,
-    WaveplateRequest,
+    AchromatRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, RotatorRequest, SplitterRequest,
+    TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
+use crate::optics::material;
 use crate::optics::wavelength::Wavelength;
 pub mod displacer;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
 pub mod recombiner;
+pub mod rotator;
 pub mod splitter;
 pub mod statistics;
 pub mod tilt;
@@ -47,7 +50,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 7] = [
+pub const KINDS: [&str; 8] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -55,6 +58,7 @@ pub const KINDS: [&str; 7] = [
     "angular-splitter",
     "prism-polarizer",
     "tilt-tuning",
+    "quartz-rotator",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -104,6 +108,9 @@ struct Uses {
     /// The band of the answer's curves, nm, and whether the request gave it (`band_nm`) or it is
     /// the solver's default.
     band: Option<((f64, f64), bool)>,
+    /// Whether the answer uses the crystals' optical activity, whose rotatory-dispersion formula
+    /// is audited beside the indices.
+    activity: bool,
 }
 
 /// Points at which a band is checked for a breakdown of a formula: 481, so that the curves'
@@ -136,10 +143,18 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
                 push(format!("{field}: {w}"));
             }
         };
-        let at = |nm: f64| Wavelength::from_nm(nm).and_then(|w| m.indices(w));
+        let activity = material::optical_activity(m.key).filter(|_| uses.activity);
+        let at = |nm: f64| {
+            let w = Wavelength::from_nm(nm)?;
+            let mut ws = m.indices(w)?.warnings;
+            if let Some(a) = activity {
+                ws.extend(a.at(w)?.warnings);
+            }
+            Ok::<_, Error>(ws)
+        };
         for (field, nm) in &uses.wavelengths {
-            let ev = at(*nm).map_err(|e| Error::new(*field, e.message))?;
-            note(field, ev.warnings);
+            let ws = at(*nm).map_err(|e| Error::new(*field, e.message))?;
+            note(field, ws);
         }
         let Some(((lo, hi), given)) = uses.band else { continue };
         let edge_field = |i: usize| {
@@ -150,8 +165,8 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
             }
         };
         for (i, nm) in [lo, hi].into_iter().enumerate() {
-            if let Ok(ev) = at(nm) {
-                note(&edge_field(i), ev.warnings);
+            if let Ok(ws) = at(nm) {
+                note(&edge_field(i), ws);
             }
         }
         let n = BAND_CHECK_INTERVALS;
@@ -220,7 +235,8 @@ designed!(
     recombiner::RecombinerCheck,
     splitter::SplitterDesign,
     polarizer::PolarizerDesign,
-    tilt::TiltDesign
+    tilt::TiltDesign,
+    rotator::RotatorDesign
 );
 
 /// A request that uses one crystal at its `wavelength_nm`.
@@ -229,6 +245,7 @@ fn single(medium: Medium, nm: f64) -> Uses {
         media: vec![("material", medium)],
         wavelengths: vec![("wavelength_nm", nm)],
         band: None,
+        activity: false,
     }
 }
 
@@ -252,6 +269,7 @@ fn achromat_uses(r: &AchromatRequest) -> Uses {
         media: vec![("first.material", r.a), ("second.material", r.b)],
         wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
         band: Some((r.band(), r.band_nm.is_some())),
+        activity: false,
     }
 }
 
@@ -268,6 +286,16 @@ fn splitter_uses(r: &SplitterRequest) -> Uses {
 
 fn polarizer_uses(r: &PolarizerRequest) -> Uses {
     single(r.medium, r.wavelength.nm())
+}
+
+fn rotator_uses(r: &RotatorRequest) -> Uses {
+    let quartz = material::find("quartz").map(Medium::Catalogue);
+    Uses {
+        media: quartz.into_iter().map(|m| ("kind", m)).collect(),
+        wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
+        band: Some((r.band(), r.band_nm.is_some())),
+        activity: true,
+    }
 }
 
 fn tilt_uses(r: &TiltRequest) -> Uses {
@@ -303,6 +331,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "angular-splitter" => answer(kind, f, SplitterRequest::from_json, splitter_uses, splitter::design)?,
         "prism-polarizer" => answer(kind, f, PolarizerRequest::from_json, polarizer_uses, polarizer::design)?,
         "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
+        "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
         other => {
             return Err(Error::new(
                 "kind",
@@ -313,7 +342,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
     let notes = notes::notes(&crystals, out["clear_aperture_mm"].as_f64());
     if let Value::Object(m) = &mut out {
         m.insert("warnings".into(), json!(warnings));
-        m.insert("notes".into(), json!(notes));
+        // A solver's own notes (what it assumed or changed) come before the shop's.
+        let mut all: Vec<Value> = m.get("notes").and_then(Value::as_array).cloned().unwrap_or_default();
+        all.extend(notes.into_iter().map(Value::String));
+        m.insert("notes".into(), Value::Array(all));
     }
     Ok(out)
 }
@@ -633,6 +665,36 @@ mod tests {
                 .field,
             "colour"
         );
+    }
+
+    #[test]
+    fn a_rotator_is_audited_on_its_rotatory_dispersion_and_strict() {
+        // The rotatory-dispersion formula of quartz covers 230-1500 nm (activity.rs), its
+        // indices further: at 1600 nm only the rotatory power warns, on the field.
+        let d =
+            solved(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "wavelength_nm": 1600, "band_nm": [1400, 1600]}"#);
+        let w = strings(&d["warnings"]);
+        assert!(
+            w.len() == 2
+                && w[0].starts_with(
+                    "wavelength_nm: 1600 nm is outside the 230-1500 nm range of the rotatory-dispersion formula"
+                )
+                && w[1].starts_with("band_nm[1]: 1600 nm"),
+            "{w:?}"
+        );
+        // Its own notes come before the shop's, and say what it cannot give.
+        assert!(strings(&d["notes"])[0].starts_with("the temperature sensitivity dθ/dT is not given"));
+        assert_eq!(
+            field_of(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "thickness_mm": 3}"#),
+            "thickness_mm"
+        );
+        // At the formula's resonance (92.6 nm) the request's wavelength is the error.
+        assert_eq!(
+            field_of(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "wavelength_nm": 92.6}"#),
+            "wavelength_nm"
+        );
+        assert_eq!(d["scenario"]["version"], 2);
+        Scenario::from_json(&d["scenario"]).unwrap();
     }
 
     #[test]

@@ -83,8 +83,11 @@ impl Part {
         }
         // Version 1 while the part is plane-parallel plates in air, so that those answers read as
         // before; version 2 as soon as an element needs its geometry.
+        // An optically active crystal is version 2 too: version 1 had no optical activity.
         let plain = sc.elements.iter().all(|e| {
-            e.contact == Contact::Air && !matches!(e.kind, ElementKind::Crystal(c) if !c.placement.is_default())
+            e.contact == Contact::Air
+                && !matches!(e.kind, ElementKind::Crystal(c)
+                    if !c.placement.is_default() || c.chirality.is_some_and(|ch| ch.active))
         });
         let mut doc = json!({
             "version": if plain { 1 } else { 2 },

@@ -92,9 +92,11 @@ pub fn view_names() -> Result<JsValue, JsValue> {
 /// The design requests' constants the page shows or reads back, as the core holds them:
 /// `{chunk_samples, default_samples, max_samples, default_acceptance_error_waves,
 /// recombiner_min_overlap, recombiner_max_phase_rad, splitter_default_samples,
-/// splitter_max_samples}` (Monte Carlo chunk size, the displacer's default and largest sample
-/// counts, the waveplate's default acceptance error, the overlap and phase limits at which a
-/// recombiner breaks, and the angular splitter's default and largest sample counts).
+/// splitter_max_samples, rotator_rotation_tolerance_deg, rotator_ellipticity_tolerance_deg}`
+/// (Monte Carlo chunk size, the displacer's default and largest sample counts, the waveplate's
+/// default acceptance error, the overlap and phase limits at which a recombiner breaks, the
+/// angular splitter's default and largest sample counts, and the quartz rotator's default
+/// tolerances).
 ///
 /// # Errors
 /// Never in practice.
@@ -111,6 +113,8 @@ pub fn design_limits() -> Result<JsValue, JsValue> {
         "recombiner_max_phase_rad": dr::MAX_PHASE_ERROR,
         "splitter_default_samples": request::splitter::DEFAULT_SPLITTER_SAMPLES,
         "splitter_max_samples": request::splitter::MAX_SPLITTER_SAMPLES,
+        "rotator_rotation_tolerance_deg": request::rotator::DEFAULT_ROTATION_TOLERANCE_DEG,
+        "rotator_ellipticity_tolerance_deg": request::rotator::DEFAULT_ELLIPTICITY_TOLERANCE_DEG,
     }))
 }
 

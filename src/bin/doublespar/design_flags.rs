@@ -328,6 +328,52 @@ const TILT: [Flag; 11] = [
     flag("max-tilt-deg", "max_tilt_deg", N, "largest tilt searched, ° [30]"),
 ];
 
+const ROTATOR: [Flag; 8] = [
+    flag(
+        "rotation-deg",
+        "rotation_deg",
+        N,
+        "rotation, ° from x toward y (positive: a left-handed plate), up to ±3600 (required)",
+    ),
+    DESIGN_WAVELENGTH,
+    flag(
+        "band-nm",
+        "band_nm",
+        P,
+        "band of the rotation curve, SHORTEST,LONGEST in nm [±10 %]",
+    ),
+    flag(
+        "handedness",
+        "handedness",
+        T,
+        "right or left: force one hand, reaching the rotation modulo 180° [the rotation's own]",
+    ),
+    flag(
+        "min-thickness-mm",
+        "min_thickness_mm",
+        N,
+        "thinnest plate accepted, mm [0]",
+    ),
+    flag(
+        "rotation-tolerance-deg",
+        "rotation_tolerance_deg",
+        N,
+        "rotation tolerance, ° (thickness tolerance, acceptance) [0.5]",
+    ),
+    flag(
+        "ellipticity-tolerance-deg",
+        "ellipticity_tolerance_deg",
+        N,
+        "ellipticity tolerance of the output, ° (acceptance) [0.5]",
+    ),
+    flag(
+        "max-incidence-deg",
+        "max_incidence_deg",
+        N,
+        "largest incidence searched, ° [10]",
+    ),
+];
+
 /// The flags of a design kind, or `None` for an unknown kind.
 pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
     match kind {
@@ -338,6 +384,7 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "angular-splitter" => Some(&SPLITTER),
         "prism-polarizer" => Some(&POLARIZER),
         "tilt-tuning" => Some(&TILT),
+        "quartz-rotator" => Some(&ROTATOR),
         _ => None,
     }
 }

@@ -18,7 +18,7 @@ commands:
   trace FILE|-       trace a scenario; JSON result, or a table with --table
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
   design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
-                     angular-splitter, prism-polarizer, tilt-tuning)
+                     angular-splitter, prism-polarizer, tilt-tuning, quartz-rotator)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -125,8 +125,8 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
   --table    a report to read top-down (what to order, performance, tolerances, notes)
              instead of JSON
 
-KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer or
-tilt-tuning. A file named like a kind is read as ./NAME.
+KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
+tilt-tuning or quartz-rotator. A file named like a kind is read as ./NAME.
 ",
     );
     for kind in doublespar::DESIGN_KINDS {
@@ -152,6 +152,7 @@ Examples:
   doublespar design prism-polarizer --material calcite --aperture-mm 10
   doublespar design tilt-tuning --material quartz --thickness-mm 0.5 --retardance-waves 0.25 \\
       --tilt-azimuth-deg 90
+  doublespar design quartz-rotator --rotation-deg 90 --wavelength-nm 632.8 --table
   doublespar design request.json --table
 ",
     );

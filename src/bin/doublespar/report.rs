@@ -13,6 +13,8 @@ use std::collections::BTreeSet;
 
 #[path = "report_prisms.rs"]
 mod prisms;
+#[path = "report_rotator.rs"]
+mod rotator;
 
 const LABEL_WIDTH: usize = 30;
 
@@ -230,6 +232,14 @@ fn axis_words(el: &Value) -> String {
             num(az)
         )
     }
+}
+
+/// "n1 to n2 unit" for the smallest and largest of a list of numbers at `path`.
+fn span(r: &mut Report, path: &str, unit: &str) -> Option<String> {
+    let xs: Vec<f64> = r.at(path)?.as_array()?.iter().filter_map(Value::as_f64).collect();
+    let lo = xs.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = xs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    xs.first().map(|_| format!("{} to {} {unit}", num(lo), num(hi)))
 }
 
 fn range_of(curve: Option<&Value>) -> Option<(f64, f64, f64, f64)> {
@@ -679,6 +689,7 @@ pub fn render(answer: &Value) -> String {
         Some("angular-splitter") => prisms::splitter(&mut r),
         Some("prism-polarizer") => prisms::polarizer(&mut r),
         Some("tilt-tuning") => prisms::tilt(&mut r),
+        Some("quartz-rotator") => rotator::rotator(&mut r),
         _ => r.title("Design"),
     }
     r.others();

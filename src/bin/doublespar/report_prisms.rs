@@ -2,7 +2,7 @@
 //! tilt-tuned waveplate, in the order of every design report (what to order, performance,
 //! tolerances, notes and warnings). Curves are summarized by their range; the JSON holds them.
 
-use super::{Report, medium_words, num};
+use super::{Report, medium_words, num, span};
 use serde_json::Value;
 
 /// The scenario's crystals, and its wavelength in words.
@@ -17,14 +17,6 @@ fn crystals_and_wavelength(r: &Report) -> (Vec<Value>, String) {
             .and_then(Value::as_f64)
             .map_or_else(String::new, num);
     (els, wl)
-}
-
-/// "n1 to n2 unit" for the smallest and largest of a list of numbers at `path`.
-fn span(r: &mut Report, path: &str, unit: &str) -> Option<String> {
-    let xs: Vec<f64> = r.at(path)?.as_array()?.iter().filter_map(Value::as_f64).collect();
-    let lo = xs.iter().copied().fold(f64::INFINITY, f64::min);
-    let hi = xs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    xs.first().map(|_| format!("{} to {} {unit}", num(lo), num(hi)))
 }
 
 /// How the second element meets the first, in words.

@@ -3,7 +3,7 @@
 //!
 //! One request asks a solver for a part, by `kind`: [`DisplacerRequest`], [`WaveplateRequest`],
 //! [`AchromatRequest`], [`RecombinerRequest`], [`SplitterRequest`], [`PolarizerRequest`] and
-//! [`TiltRequest`], one file each. Each is read from a [`Fields`]
+//! [`TiltRequest`] and [`RotatorRequest`], one file each. Each is read from a [`Fields`]
 //! whose `kind` the caller has checked, with the defaults of DEVELOPERS.md ("Design requests")
 //! filled in; the caller finishes the [`Fields`], so that an unknown field is an error naming it.
 //! A reader refuses a value outside its range rather than clamping it, and a count or a seed with
@@ -14,6 +14,7 @@ pub mod achromat;
 pub mod displacer;
 pub mod polarizer;
 pub mod recombiner;
+pub mod rotator;
 pub mod splitter;
 pub mod tilt;
 pub mod waveplate;
@@ -22,6 +23,7 @@ pub use achromat::AchromatRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
 pub use polarizer::PolarizerRequest;
 pub use recombiner::{Middle, RecombinerRequest};
+pub use rotator::RotatorRequest;
 pub use splitter::{SplitterRequest, SplitterTolerances};
 pub use tilt::{PlateSize, TiltRequest};
 pub use waveplate::{Order, WaveplateRequest};
@@ -121,6 +123,12 @@ fn band(f: &mut Fields, name: &'static str) -> Result<Option<(f64, f64)>, Error>
             Ok(Some((lo, hi)))
         }
     }
+}
+
+/// The band of a request's curves, nm: `band_nm` when given, or ±10 % around the wavelength.
+fn band_or_tenth(wavelength: Wavelength, band_nm: Option<(f64, f64)>) -> (f64, f64) {
+    let nm = wavelength.nm();
+    band_nm.unwrap_or((0.9 * nm, 1.1 * nm))
 }
 
 /// A request document read by `read` and finished, for the tests of the solvers.

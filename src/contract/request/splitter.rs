@@ -113,8 +113,7 @@ impl SplitterRequest {
 
     /// The band of the curve: the request's, or ±10 % about the wavelength.
     pub fn band(&self) -> (f64, f64) {
-        let nm = self.wavelength.nm();
-        self.band_nm.unwrap_or((0.9 * nm, 1.1 * nm))
+        super::band_or_tenth(self.wavelength, self.band_nm)
     }
 }
 
