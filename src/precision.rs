@@ -196,3 +196,8 @@ pub const SAME_RETARDANCE_WAVES: f64 = 1e-12;
 /// (`contract::group`): rounding then costs about 10⁻¹¹ in a group index, and the truncation
 /// error, of order h²·λ³·d³ξ/dλ³, is below that.
 pub const GROUP_STEP_REL: f64 = 2e-5;
+
+/// Angles (degrees) of a traced output below which a design reports 0: a thick plate's phases,
+/// k0·n·L ≈ 10⁵ rad, carry rounding of about 10⁻¹¹ rad, so ellipticities and azimuth errors
+/// below this are rounding, which differs from one build to another.
+pub const TRACED_ANGLE_ROUNDING_DEG: f64 = 1e-8;

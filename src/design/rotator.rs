@@ -38,6 +38,7 @@ use crate::optics::stokes::ellipse;
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
     BAND_CURVE_INTERVALS, BISECTION_STEPS, DESIGN_SCAN_INTERVALS, DIFF_STEP_WAVELENGTH_NM, ROTATOR_INPUT_AZIMUTHS,
+    TRACED_ANGLE_ROUNDING_DEG,
 };
 use serde::Serialize;
 
@@ -123,7 +124,8 @@ fn half_turn_residue(x: f64) -> f64 {
     x - 180.0 * (x / 180.0).round()
 }
 
-/// The worst ellipticity (degrees) and rotation error (degrees) of linear inputs through `m`.
+/// The worst ellipticity (degrees) and rotation error (degrees) of linear inputs through `m`, each
+/// 0 below [`TRACED_ANGLE_ROUNDING_DEG`] (rounding).
 fn worst(m: &JonesMatrix, rotation_deg: f64) -> (f64, f64) {
     let (mut chi, mut err) = (0.0_f64, 0.0_f64);
     for k in 0..ROTATOR_INPUT_AZIMUTHS {
@@ -132,7 +134,8 @@ fn worst(m: &JonesMatrix, rotation_deg: f64) -> (f64, f64) {
         chi = chi.max(e.ellipticity_deg.abs());
         err = err.max(half_turn_residue(e.azimuth_deg - psi - rotation_deg).abs());
     }
-    (chi, err)
+    let clean = |x: f64| if x < TRACED_ANGLE_ROUNDING_DEG { 0.0 } else { x };
+    (clean(chi), clean(err))
 }
 
 /// The plate's plane-wave Jones matrix at polar incidence `polar_deg` in the x–z plane: the sum
@@ -312,7 +315,11 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         rotation_deg,
         half_turns_added,
         traced_rotation_deg,
-        traced_ellipticity_deg: out.ellipticity_deg,
+        traced_ellipticity_deg: if out.ellipticity_deg.abs() < TRACED_ANGLE_ROUNDING_DEG {
+            0.0
+        } else {
+            out.ellipticity_deg
+        },
         rotatory_power_deg_per_mm: rho,
         rotatory_power_source: activity.citation,
         wavelength_nm: nm,
