@@ -1013,6 +1013,7 @@ mod tests {
             "verified",
             "warnings",
             "optically_active",
+            "temperature",
         ];
         want.sort_unstable();
         let mut got = keys.clone();
