@@ -554,25 +554,23 @@ mod tests {
     #[test]
     fn published_constants_are_reproduced_as_slopes() {
         // Tropf et al. (Handbook of Optics II, ch. 33, Table 20, as quoted by ndispers 0.20.0):
-        // quartz dn_o/dT = −6.2e-6, dn_e/dT = −7.0e-6 /K at 546 nm; Petrov et al. 2010, Table 3:
+        // quartz dn_o/dT = −6.2e-6, dn_e/dT = −7.0e-6 /K at 546 nm; MgF2 below; Petrov et al. 2010, Table 3:
         // BiBO +3.5e-6, −5.6e-6, −6.8e-6 /K at 1064 nm. The slope over ±10 K reproduces them.
-        let q = find("quartz").unwrap();
-        let (lo, hi) = (
-            q.indices_at(wl(546.1), 10.0).unwrap(),
-            q.indices_at(wl(546.1), 30.0).unwrap(),
-        );
-        assert_within(
-            (hi.indices.no - lo.indices.no) / 20.0,
-            -6.2e-6,
-            1e-15,
-            "quartz dn_o/dT, Tropf",
-        );
-        assert_within(
-            (hi.indices.ne - lo.indices.ne) / 20.0,
-            -7.0e-6,
-            1e-15,
-            "quartz dn_e/dT, Tropf",
-        );
+        // (key, nm, ordinary?, published dn/dT, source): the slope over 10-30 °C.
+        let rows = [
+            ("quartz", 546.1, true, -6.2e-6, "quartz dn_o/dT, Tropf"),
+            ("quartz", 546.1, false, -7.0e-6, "quartz dn_e/dT, Tropf"),
+            // Tropf et al., Table 20, from A. Feldman et al. (1978), as quoted by ndispers.
+            ("mgf2", 632.8, true, 1.12e-6, "MgF2 dn_o/dT at 633 nm, Tropf/Feldman"),
+        ];
+        for (key, nm, ordinary, want, source) in rows {
+            let m = find(key).unwrap();
+            let n = |t: f64| {
+                let ix = m.indices_at(wl(nm), t).unwrap().indices;
+                if ordinary { ix.no } else { ix.ne }
+            };
+            assert_within((n(30.0) - n(10.0)) / 20.0, want, 1e-15, source);
+        }
         let b = find_biaxial("bibo").unwrap();
         let (lo, hi) = (
             b.principal_at(wl(1064.0), 10.0).unwrap(),
