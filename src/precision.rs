@@ -169,6 +169,11 @@ pub fn assert_close(actual: f64, expected: f64, rel: f64, floor: f64, what: &str
     assert_within(actual, expected, rel * expected.abs().max(floor), what);
 }
 
+/// Half-step of the central difference that gives a design's retardance per kelvin, K: exact for
+/// the constant and linear thermo-optic forms, and within a relative 1e-6 for the catalogue's
+/// curved ones over ±1 K.
+pub const TEMPERATURE_STEP_K: f64 = 1.0;
+
 /// Intervals of the scans and curves of the prism designs (splitter, polarizer, tilt tuning):
 /// a wedge angle, an incidence or a tilt is scanned on this grid before it is bisected, and the
 /// curves of the answers use it (81 points, among the band checks' 481).

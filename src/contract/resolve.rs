@@ -48,9 +48,11 @@ impl Scenario {
             z += el.gap_mm;
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
-                    let (mut medium, found) =
-                        crystal_medium(&plate, self.wavelength).map_err(|e| match e.field.as_str() {
-                            "wavelength_nm" => Error::new(e.field, format!("{} (elements[{idx}])", e.message)),
+                    let (mut medium, thickness_mm, found) = crystal_medium(&plate, self.wavelength, self.temperature_c)
+                        .map_err(|e| match e.field.as_str() {
+                            "wavelength_nm" | "temperature_c" => {
+                                Error::new(e.field, format!("{} (elements[{idx}])", e.message))
+                            }
                             _ => e.within(&format!("elements[{idx}]")),
                         })?;
                     warnings.extend(found.into_iter().map(|w| Warning {
@@ -62,14 +64,14 @@ impl Scenario {
                     let faces = if plate.placement.is_default() && el.contact == Contact::Air {
                         None
                     } else {
-                        let (faces, mount) = plate.placement.place(z, plate.thickness_mm, el.contact);
+                        let (faces, mount) = plate.placement.place(z, thickness_mm, el.contact);
                         medium = medium.rotated(&mount);
                         Some(faces)
                     };
-                    z += plate.thickness_mm;
+                    z += thickness_mm;
                     Element::Slab(Slab {
                         medium,
-                        thickness_mm: plate.thickness_mm,
+                        thickness_mm,
                         faces,
                     })
                 }
@@ -106,7 +108,11 @@ impl Scenario {
     }
 }
 
-/// A crystal's medium at `wavelength` in its element frame, with the catalogue's warnings: the
+/// A crystal's medium at `wavelength` and `temperature_c` in its element frame, its thickness at
+/// that temperature and the catalogue's warnings. The thickness is the document's (at 20 °C)
+/// times 1 + α_z (T − 20 °C), α_z the expansion coefficient along the element's z axis from the
+/// principal axes (CONVENTIONS.md, "Temperature"; exactly the document's at 20 °C). The
+/// medium is: the
 /// uniaxial closed form for a uniaxial crystal without optical activity (catalogued, `no` + `ne`,
 /// or `nx`/`ny`/`nz` with two equal), the general crystal otherwise (biaxial, or quartz with its
 /// optical activity). Orientation R = Rz(azimuth)·Ry(tilt)·Rz(roll) (CONVENTIONS.md, "More
@@ -114,16 +120,23 @@ impl Scenario {
 /// becomes its chirality by [`Anisotropic::chirality_from_gyration`].
 ///
 /// # Errors
-/// `wavelength_nm` where a dispersion or rotatory formula breaks down; `axis.tilt_deg`,
-/// `axis.azimuth_deg` for a hand-built plate out of range.
-fn crystal_medium(plate: &CrystalPlate, wavelength: Wavelength) -> Result<(Medium, Vec<String>), Error> {
-    let (principal, mut warnings) = plate.medium.principal(wavelength)?;
+/// `wavelength_nm` where a dispersion or rotatory formula breaks down, `temperature_c` where a
+/// temperature formula does; `axis.tilt_deg`, `axis.azimuth_deg` for a hand-built plate out of
+/// range.
+fn crystal_medium(
+    plate: &CrystalPlate,
+    wavelength: Wavelength,
+    temperature_c: f64,
+) -> Result<(Medium, f64, Vec<String>), Error> {
+    let (principal, mut warnings) = plate.medium.principal_at(wavelength, temperature_c)?;
     let axis = axis_from_degrees(plate.tilt_deg, plate.azimuth_deg).map_err(|e| e.within("axis"))?;
     let rotation = orientation(
         plate.tilt_deg.to_radians(),
         plate.azimuth_deg.to_radians(),
         plate.roll_deg.to_radians(),
     );
+    let alpha = plate.medium.expansion_along_z(&rotation);
+    let thickness_mm = plate.thickness_mm * (1.0 + alpha * (temperature_c - material::REFERENCE_C));
     let medium = match principal {
         PrincipalIndices::Uniaxial(ix) => match plate.chirality.filter(|c| c.active) {
             None => Medium::Uniaxial(Uniaxial::new(ix, axis)),
@@ -152,7 +165,7 @@ fn crystal_medium(plate: &CrystalPlate, wavelength: Wavelength) -> Result<(Mediu
             }
         }
     };
-    Ok((medium, warnings))
+    Ok((medium, thickness_mm, warnings))
 }
 
 /// The optic axis from its tilt from +z (`tilt_deg`, 0–180°) and the azimuth of its projection

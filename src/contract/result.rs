@@ -185,8 +185,13 @@ pub enum ElementReport {
         /// polarization turns clockwise as seen looking toward the source (right-handed).
         #[serde(skip_serializing_if = "Option::is_none")]
         rotatory_power_deg_per_mm: Option<f64>,
-        /// Thickness, mm.
+        /// Thickness, mm, at 20 °C (as the document gives it).
         thickness_mm: f64,
+        /// The scenario's temperature, °C.
+        temperature_c: f64,
+        /// Thickness at that temperature, mm: `thickness_mm` times 1 + α_z (T − 20 °C), α_z the
+        /// crystal's expansion coefficient along the element's z axis.
+        thickness_at_temperature_mm: f64,
         /// z of the front face, mm.
         z_front_mm: f64,
         /// z of the back face, mm.
@@ -632,7 +637,9 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                         .rotatory_kappa
                         .map(|r| if r >= 0.0 { "right" } else { "left" }),
                     rotatory_power_deg_per_mm: principal.rotatory_kappa.map(|r| (r * k0).to_degrees()),
-                    thickness_mm: l,
+                    thickness_mm: plate.thickness_mm,
+                    temperature_c: sc.temperature_c,
+                    thickness_at_temperature_mm: l,
                     z_front_mm: *z_front_mm,
                     z_back_mm: *z_back_mm,
                     modes: ModePair {

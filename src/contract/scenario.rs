@@ -11,6 +11,7 @@
 //! | `wavelength_nm` | 632.8 | 1 to 1 000 000 (and inside the material formula's domain) |
 //! | `wavelength_in` | `"vacuum"` | `"vacuum"`, `"air"` (standard air, converted to vacuum by Ciddor 1996) |
 //! | `outside_index` | 1.0 | 1 to 5 |
+//! | `temperature_c` | 20 | −200 to 500: crystal indices and thicknesses at it (thicknesses are given at 20 °C) |
 //! | `interface_losses` | `"ideal"` | `"ideal"`, `"uncoated"` |
 //! | `beam.diameter_mm` | 1.0 | above 0, at most 1000 |
 //! | `beam.incidence.polar_deg` | 0 | above −90, below 90 (negative = the opposite azimuth) |
@@ -153,6 +154,43 @@ impl Medium {
         }
     }
 
+    /// The principal indices at `wavelength` and `temperature_c` (°C): the catalogue's
+    /// thermo-optic data applied ([`Material::indices_at`], [`BiaxialMaterial::principal_at`]);
+    /// fixed indices are taken to hold at every temperature. At 20 °C identical to
+    /// [`Medium::principal`].
+    ///
+    /// # Errors
+    /// As [`Medium::principal`]; `temperature_c` where a temperature formula breaks down.
+    pub fn principal_at(
+        &self,
+        wavelength: Wavelength,
+        temperature_c: f64,
+    ) -> Result<(PrincipalIndices, Vec<String>), Error> {
+        match self {
+            Medium::Catalogue(m) => {
+                let ev = m.indices_at(wavelength, temperature_c)?;
+                Ok((PrincipalIndices::Uniaxial(ev.indices), ev.warnings))
+            }
+            Medium::Biaxial(m) => {
+                let p = m.principal_at(wavelength, temperature_c)?;
+                Ok((PrincipalIndices::Triple(p.principal), p.warnings))
+            }
+            _ => self.principal(wavelength),
+        }
+    }
+
+    /// The linear thermal expansion coefficient (1/K) along the element's z axis for principal
+    /// axes `axes` (columns, element frame; for a uniaxial crystal the optic axis is the third):
+    /// α_z = Σ α_i (a_i·ẑ)² from the catalogue's data; 0 for fixed indices, which carry none.
+    pub fn expansion_along_z(&self, axes: &nalgebra::Matrix3<f64>) -> f64 {
+        let key = match self {
+            Medium::Catalogue(m) => m.key,
+            Medium::Biaxial(m) => m.key,
+            Medium::Custom(_) | Medium::Principal(_) => return 0.0,
+        };
+        material::thermal(key).map_or(0.0, |t| t.expansion_along(axes, &nalgebra::Vector3::z()))
+    }
+
     /// Whether the crystal is optically active (chiral): crystalline quartz.
     pub fn is_chiral(&self) -> bool {
         matches!(self, Medium::Catalogue(m) if material::optical_activity(m.key).is_some())
@@ -260,6 +298,8 @@ pub struct Scenario {
     pub elements: Vec<Element>,
     /// Distance from the last element's back axis point to the observation plane, mm.
     pub screen_mm: f64,
+    /// Temperature of every crystal, °C (thicknesses are given at 20 °C).
+    pub temperature_c: f64,
 }
 
 impl Scenario {
@@ -338,6 +378,7 @@ impl Scenario {
             Some(v) => parse_elements(v, version)?,
         };
         let screen_mm = ranged(&mut f, "screen_mm", Some(0.0), 0.0, 1e6)?;
+        let temperature_c = ranged(&mut f, "temperature_c", Some(material::REFERENCE_C), -200.0, 500.0)?;
         f.finish()?;
         Ok(Scenario {
             wavelength,
@@ -347,6 +388,7 @@ impl Scenario {
             beam,
             elements,
             screen_mm,
+            temperature_c,
         })
     }
 
@@ -370,6 +412,11 @@ impl Scenario {
         }
         if self.air_wavelength_nm.is_some() {
             doc["wavelength_in"] = json!("air");
+        }
+        // Written when it differs from its default, as `screen_mm`, so that documents echoed
+        // before temperatures existed read the same.
+        if self.temperature_c != material::REFERENCE_C {
+            doc["temperature_c"] = json!(self.temperature_c);
         }
         doc
     }

@@ -16,6 +16,14 @@
 //! of the planes containing, diagonal to and across the optic axis, up to which the retardance
 //! stays within a given error of its normal-incidence value.
 //!
+//! Temperature: each plate's indices and thickness at T as the scenario contract takes them
+//! (`temperature_c`: the catalogue's thermo-optic data, thickness grown by α⊥ for an axis in the
+//! faces), so Γ(T) = 2π Σ ±Δn(T) L (1 + α⊥ (T − 20 °C)) / λ. The design is made at 20 °C; its
+//! sensitivity dΓ/dT is a central difference of Γ(T) about 20 °C, and the temperature band is
+//! where |Γ(T) − Γ(20 °C)| stays within the acceptance error, each edge bisected on Γ(T) between
+//! 20 °C and the contract's limit (−200 or 500 °C; Γ is taken monotonic in between, as it is for
+//! the catalogue's data).
+//!
 //! Achromatic pair: plates of two materials A and B with parallel (or crossed, a negative
 //! thickness) axes retard by Γ(λ) = 2π [L_A Δn_A(λ) + L_B Δn_B(λ)] / λ; requiring the target at
 //! two wavelengths is a 2×2 linear system for L_A and L_B. The two-material method is described
@@ -24,15 +32,16 @@
 
 use crate::contract::request::{AchromatRequest, Order, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
-use crate::contract::scenario::Medium;
+use crate::contract::scenario::{Medium, PrincipalIndices};
 use crate::design::part::{Part, crystal};
 use crate::error::Error;
-use crate::optics::material::{Indices, OpticalSign};
+use crate::optics::anisotropic::orientation;
+use crate::optics::material::{Indices, OpticalSign, REFERENCE_C};
 use crate::optics::plate::{plate_optics, tangential};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
     ACHROMAT_CURVE_INTERVALS, ANGULAR_CURVE_INTERVALS, BAND_CURVE_INTERVALS, BISECTION_STEPS, GOLDEN_SECTION_STEPS,
-    NO_BIREFRINGENCE, SAME_ANGLE_DEG, SINGULAR_DETERMINANT,
+    NO_BIREFRINGENCE, SAME_ANGLE_DEG, SINGULAR_DETERMINANT, TEMPERATURE_STEP_K,
 };
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -118,8 +127,27 @@ pub struct WaveplateDesign {
     /// `found`, or `at_least` when no plane reached the error limit within
     /// `max_incidence_deg`: the acceptance is then only known to be at least `acceptance_deg`.
     pub acceptance_bound: Bound,
+    /// How the retardance changes with temperature about 20 °C, the design temperature.
+    pub temperature: TemperatureSensitivity,
     /// A scenario with these plates, ready to load.
     pub scenario: Part,
+}
+
+/// A waveplate's retardance against temperature (see the module header).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TemperatureSensitivity {
+    /// The design temperature, °C (the contract's reference, at which thicknesses are given).
+    pub design_temperature_c: f64,
+    /// dΓ/dT at the design temperature, waves per kelvin.
+    pub retardance_per_kelvin_waves: f64,
+    /// (1/Γ) dΓ/dT, per kelvin.
+    pub relative_per_kelvin: f64,
+    /// Lowest and highest temperature, °C, between which the retardance stays within
+    /// `acceptance_error_waves` of its value at the design temperature.
+    pub band_c: [f64; 2],
+    /// For each edge, `found`, or `at_least` when the retardance stays within the error up to
+    /// the contract's limit (−200 or 500 °C), which is then the edge.
+    pub band_bound: [Bound; 2],
 }
 
 fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
@@ -144,11 +172,21 @@ fn sign_word(ix: Indices) -> &'static str {
 /// exact retardance, counted negative for plates whose axis is crossed (azimuth 90°) with the
 /// first's.
 fn stack_retardance(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2]) -> Option<f64> {
+    stack_retardance_at(plates, nm, qt, REFERENCE_C)
+}
+
+/// [`stack_retardance`] at `t_c` °C: each plate's indices at that temperature and its thickness
+/// grown by its expansion along z (the same numbers at 20 °C).
+fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
     let mut total = 0.0;
     for (medium, l, az) in plates {
-        let ix = medium.indices(wl).ok()?;
-        let p = plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, *l, wl, qt)?;
+        let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
+            return None;
+        };
+        let axes = orientation(90f64.to_radians(), az.to_radians(), 0.0);
+        let l = l * (1.0 + medium.expansion_along_z(&axes) * (t_c - REFERENCE_C));
+        let p = plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, l, wl, qt)?;
         let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
         total += if crossed { -p.retardance_rad } else { p.retardance_rad };
     }
@@ -202,6 +240,39 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
         .collect()
 }
 
+/// The retardance's temperature sensitivity and band of `plates` at `nm` for an error of
+/// `err_waves` (see the module header); `None` where the plates cannot be evaluated.
+fn temperature_sensitivity(plates: &[(Medium, f64, f64)], nm: f64, err_waves: f64) -> Option<TemperatureSensitivity> {
+    let at = |t: f64| stack_retardance_at(plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
+    let g0 = at(REFERENCE_C)?;
+    let h = TEMPERATURE_STEP_K;
+    let slope = (at(REFERENCE_C + h)? - at(REFERENCE_C - h)?) / (2.0 * h);
+    let inside = |t: f64| at(t).is_some_and(|g| (g - g0).abs() <= err_waves);
+    let edge = |limit: f64| {
+        if inside(limit) {
+            return (limit, Bound::AtLeast);
+        }
+        let (mut good, mut bad) = (REFERENCE_C, limit);
+        for _ in 0..BISECTION_STEPS {
+            let mid = 0.5 * (good + bad);
+            if inside(mid) {
+                good = mid;
+            } else {
+                bad = mid;
+            }
+        }
+        (good, Bound::Found)
+    };
+    let ((lo, lo_bound), (hi, hi_bound)) = (edge(-200.0), edge(500.0));
+    Some(TemperatureSensitivity {
+        design_temperature_c: REFERENCE_C,
+        retardance_per_kelvin_waves: slope,
+        relative_per_kelvin: slope / g0,
+        band_c: [lo, hi],
+        band_bound: [lo_bound, hi_bound],
+    })
+}
+
 /// Solves a waveplate request.
 ///
 /// # Errors
@@ -245,6 +316,8 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
         .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
     let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
+    let temperature = temperature_sensitivity(&plates, nm, req.acceptance_error_waves)
+        .ok_or_else(|| Error::new("material", "the crystal's temperature data cannot be evaluated"))?;
     let elements = plates
         .iter()
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
@@ -269,6 +342,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         angular,
         acceptance_deg,
         acceptance_bound,
+        temperature,
         scenario,
     })
 }
@@ -438,6 +512,43 @@ mod tests {
         let mut sc = scenario.clone();
         sc["wavelength_nm"] = json!(nm);
         traced_retardance_waves(&sc)
+    }
+
+    #[test]
+    fn temperature_sensitivity_follows_the_plate_and_bounds_the_band() {
+        // A 40th-order quartz quarter-wave plate: dΓ/dT = Γ γ, and the band edges are where the
+        // retardance, traced by the whole scenario at that temperature, has moved by the
+        // acceptance error. γ against S. M. Etzel, A. H. Rose and C. M. Wang, Appl. Opt. 39,
+        // 5796 (2000), −1.23e-4 /K measured, with the disagreement of the per-index handbook
+        // constants recorded in tests/temperature.rs (ours about −0.75e-4 /K).
+        let d = wp(
+            r#"{"material": "quartz", "wavelength_nm": 632.8, "retardance_waves": 0.25, "order": "multiple", "order_number": 40}"#,
+        );
+        let t = &d.temperature;
+        let want = d.retardance_waves * t.relative_per_kelvin;
+        assert!((t.retardance_per_kelvin_waves - want).abs() <= 1e-15, "{t:?}");
+        assert!((t.relative_per_kelvin + 1.23e-4).abs() <= 0.55e-4, "{t:?}");
+        // Linear estimate of the half-width: error / |dΓ/dT| (about 3.3 K here).
+        let half = d.acceptance_error_waves / t.retardance_per_kelvin_waves.abs();
+        for (edge, bound) in t.band_c.iter().zip(t.band_bound) {
+            assert_eq!(bound, Bound::Found);
+            assert!(
+                ((edge - REFERENCE_C).abs() - half).abs() <= 0.01 * half,
+                "{edge} against ±{half}"
+            );
+            let mut doc = d.scenario.document();
+            doc["temperature_c"] = json!(edge);
+            doc["version"] = json!(2);
+            let moved = traced_retardance_waves(&doc) - d.retardance_waves;
+            assert!(
+                (moved.abs() - d.acceptance_error_waves).abs() <= 1e-9,
+                "at {edge} °C moved {moved}"
+            );
+        }
+        // A zero-order plate moves 40 times less: its band covers the contract's whole range.
+        let z = wp(r#"{"material": "quartz", "wavelength_nm": 632.8, "retardance_waves": 0.25}"#);
+        assert_eq!(z.temperature.band_bound, [Bound::AtLeast; 2]);
+        assert_eq!(z.temperature.band_c, [-200.0, 500.0]);
     }
 
     #[test]

@@ -24,7 +24,16 @@ Principal axes from the library's principal-plane classes: in the xy plane the o
 polarized along z (n_z), and the e-wave has n_y at phi = 0 and n_x at phi = pi/2. For a uniaxial
 crystal n_o is the o-wave and n_e the e-wave at theta = pi/2. The group index is the library's
 `ng` at the same angle and polarization. Temperature 20 degC, where the library's thermo-optic
-terms for KTP and LBO vanish.
+terms for KTP and LBO vanish, for every crystal above.
+
+Temperatures (`doublespar materials --temperature C`): at TEMPERATURES_C the crystals whose
+temperature formula the library also holds are compared again, index and group index:
+  ktp      KTP_xy          Kato & Takaoka's thermo-optic dispersion (their own source's)
+  lbo      LBO_KK1994_xy   Kato's 1994 thermo-optic formula (its own source's)
+  linbo3   CLN_Zelmon1997 at 20 degC plus the change of CLN_Edwards1984 (Edwards & Lawrence,
+           Opt. Quantum Electron. 16, 373 (1984)) from 20 degC to T, the catalogue's construction
+The other crystals use constant handbook dn/dT, which the library does not hold (checked in the
+Rust tests against the published constants).
 
 Usage: material_reference.py [--bin PATH] [--verbose]
 Exit status 0 when every value agrees to TOL, 1 otherwise. The last line is "N passed, M failed"
@@ -43,6 +52,8 @@ import ndispers
 TOL = 1e-9  # absolute, on indices and group indices (both formulas are the same; rounding ~1e-15)
 WAVELENGTHS_NM = [350.0, 450.0, 532.0, 632.8, 800.0, 1064.0, 1300.0, 1550.0, 2000.0, 2500.0, 3000.0]
 T_DEGC = 20.0
+TEMPERATURES_C = [-10.0, 60.0, 150.0]
+THERMAL = ["ktp", "lbo", "linbo3"]
 
 C = ndispers.media.crystals
 BIAXIAL = {"ktp": C.KTP_xy, "lbo": C.LBO_KK1994_xy, "bibo": C.BiBO_Miyata2009_xy}
@@ -55,8 +66,9 @@ UNIAXIAL = {
 }
 
 
-def library_values(key, um):
-    """(names, indices, group indices) of the library for catalogue key `key` at `um` µm."""
+def library_values(key, um, t_c=T_DEGC):
+    """(names, indices, group indices) of the library for catalogue key `key` at `um` µm and
+    `t_c` degC."""
     if key in BIAXIAL:
         c = BIAXIAL[key]()
         args = [(math.pi / 2, "e"), (0.0, "e"), (0.0, "o")]  # n_x, n_y, n_z in the xy plane
@@ -65,14 +77,20 @@ def library_values(key, um):
         c = UNIAXIAL[key]()
         args = [(math.pi / 2, "o"), (math.pi / 2, "e")]  # n_o, n_e (theta = 90 deg)
         names = ["no", "ne"]
-    n = [float(c.n(um, a, T_DEGC, pol=p)) for a, p in args]
-    ng = [float(c.ng(um, a, T_DEGC, pol=p)) for a, p in args]
+    n = [float(c.n(um, a, t_c, pol=p)) for a, p in args]
+    ng = [float(c.ng(um, a, t_c, pol=p)) for a, p in args]
+    if key == "linbo3" and t_c != T_DEGC:
+        el = C.CLN_Edwards1984()
+        for i, (a, p) in enumerate(args):
+            n[i] += float(el.n(um, a, t_c, pol=p)) - float(el.n(um, a, T_DEGC, pol=p))
+            ng[i] += float(el.ng(um, a, t_c, pol=p)) - float(el.ng(um, a, T_DEGC, pol=p))
     return names, n, ng
 
 
-def listing(binary, nm):
+def listing(binary, nm, t_c=T_DEGC):
     out = subprocess.run(
-        [binary, "materials", "--json", "--at", repr(nm)], capture_output=True, text=True, check=True
+        [binary, "materials", "--json", "--at", repr(nm), "--temperature", repr(t_c)],
+        capture_output=True, text=True, check=True
     )
     return {row["key"]: row for row in json.loads(out.stdout)["materials"]}
 
@@ -86,17 +104,19 @@ def main():
 
     passed = failed = 0
     worst = {}  # key -> (largest |difference| of an index, of a group index)
-    for nm in WAVELENGTHS_NM:
-        rows = listing(opts.bin, nm)
-        for key in list(BIAXIAL) + list(UNIAXIAL):
+    cases = [(nm, T_DEGC, list(BIAXIAL) + list(UNIAXIAL)) for nm in WAVELENGTHS_NM]
+    cases += [(nm, t, THERMAL) for t in TEMPERATURES_C for nm in WAVELENGTHS_NM]
+    for nm, t_c, keys in cases:
+        rows = listing(opts.bin, nm, t_c)
+        for key in keys:
             row = rows[key]
             lo, hi = row["range_nm"]
             if not lo <= nm <= hi:
                 continue
-            names, n, ng = library_values(key, nm * 1e-3)
+            names, n, ng = library_values(key, nm * 1e-3, t_c)
             ours_n = [row[name] for name in names]
             ours_ng = row["group_indices"]
-            w = worst.setdefault(key, [0.0, 0.0, 0])
+            w = worst.setdefault(key if t_c == T_DEGC else f"{key} {t_c:g}C", [0.0, 0.0, 0])
             w[2] += 1
             for what, ours, theirs, slot in [("index", ours_n, n, 0), ("group index", ours_ng, ng, 1)]:
                 for name, a, b in zip(names, ours, theirs):
@@ -106,15 +126,15 @@ def main():
                         passed += 1
                     else:
                         failed += 1
-                        print(f"MISMATCH {key} {name} {what} at {nm} nm: doublespar {a!r}, ndispers {b!r}, "
+                        print(f"MISMATCH {key} {name} {what} at {nm} nm, {t_c} degC: doublespar {a!r}, ndispers {b!r}, "
                               f"difference {d:.3e}")
                     if opts.verbose:
-                        print(f"{key:9} {nm:7.1f} nm {name} {what:11}: {a:.12f} {b:.12f} {d:.1e}")
+                        print(f"{key:9} {nm:7.1f} nm {t_c:6.1f} C {name} {what:11}: {a:.12f} {b:.12f} {d:.1e}")
 
     print(f"ndispers {getattr(ndispers, '__version__', '?')}; largest difference per crystal "
           f"(tolerance {TOL:g}):")
     for key, (dn, dng, count) in worst.items():
-        print(f"  {key:9} {count:2} wavelengths  index {dn:.1e}  group index {dng:.1e}")
+        print(f"  {key:12} {count:2} wavelengths  index {dn:.1e}  group index {dng:.1e}")
     print(f"{passed} passed, {failed} failed")
     return 0 if failed == 0 and passed > 0 else 1
 

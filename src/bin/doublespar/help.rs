@@ -50,7 +50,7 @@ Example:
   doublespar demo | doublespar trace - --table
 ";
 
-const MATERIALS: &str = "usage: doublespar materials [--at NM] [--json]
+const MATERIALS: &str = "usage: doublespar materials [--at NM] [--temperature C] [--json]
 
 Lists the crystal catalogue: key, name, optical sign (uniaxial crystals) or the word biaxial,
 the wavelength range of its dispersion formula and the publication it comes from. Keys may be
@@ -61,6 +61,9 @@ the lower-case key.
              n_x < n_y < n_z on the formula's dielectric axes (biaxial), and the group
              indices n - λ dn/dλ of the same principal axes, in the same order; for
              quartz also its rotatory power along the optic axis (°/mm, right-handed)
+  --temperature C
+             those indices at C °C (default 20; -200 to 500), from each crystal's
+             temperature data (its range, source and thermal expansion are listed)
   --json     the list as JSON
 
 Example:

@@ -5,7 +5,7 @@
 //! doublespar trace FILE|- [--table] [--pretty]
 //! doublespar draw VIEW FILE|- [--size WxH] [--dark]
 //! doublespar design KIND [FLAGS] [--table]  |  doublespar design FILE|- [--table]
-//! doublespar materials [--at NM] [--json]
+//! doublespar materials [--at NM] [--temperature C] [--json]
 //! doublespar demo
 //! doublespar help [COMMAND]      (and --help / -h on every command)
 //! ```
@@ -139,7 +139,7 @@ fn cmd_design(a: &[String]) -> Result<ExitCode, Usage> {
 fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     let p = scan("materials", a, &|f| match f {
         "--json" => Some(false),
-        "--at" => Some(true),
+        "--at" | "--temperature" => Some(true),
         _ => None,
     })?;
     if let Some(extra) = p.positionals.first() {
@@ -166,13 +166,27 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             Err(e) => return Ok(fail(&e, !as_json)),
         }
     }
+    let mut t_c = doublespar::REFERENCE_C;
+    if let Some(v) = p.value("--temperature") {
+        let parsed = v.trim().parse::<f64>().ok().filter(|t| (-200.0..=500.0).contains(t));
+        match parsed {
+            Some(t) => t_c = t,
+            None => {
+                let why = format!(
+                    "'{}' is not a temperature from -200 to 500 °C (flag --temperature)",
+                    args::quote(v)
+                );
+                return Ok(fail(&Error::new("temperature_c", why), !as_json));
+            }
+        }
+    }
     let mut rows = Vec::new();
     for m in doublespar::materials() {
         let mut row = doublespar::describe_material(m);
         if let Some(w) = at {
             let pair = |i: doublespar::Indices| vec![i.no, i.ne];
-            let indices = m.indices(w).map(|e| (pair(e.indices), e.warnings));
-            let group = m.group_indices(w).map(|e| pair(e.indices));
+            let indices = m.indices_at(w, t_c).map(|e| (pair(e.indices), e.warnings));
+            let group = m.group_indices_at(w, t_c).map(|e| pair(e.indices));
             list_indices(&mut row, &["no", "ne"], indices, group);
             // Optically active crystals (quartz): the rotation along the optic axis of a
             // right-handed crystal, °/mm.
@@ -188,8 +202,8 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
     for m in doublespar::biaxial_materials() {
         let mut row = doublespar::describe_biaxial(m);
         if let Some(w) = at {
-            let indices = m.principal(w).map(|p| (p.principal.to_vec(), p.warnings));
-            let group = m.group_principal(w).map(|p| p.principal.to_vec());
+            let indices = m.principal_at(w, t_c).map(|p| (p.principal.to_vec(), p.warnings));
+            let group = m.group_principal_at(w, t_c).map(|p| p.principal.to_vec());
             list_indices(&mut row, &["nx", "ny", "nz"], indices, group);
         }
         rows.push(row);
@@ -216,6 +230,14 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             idx,
             r["citation"].as_str().unwrap_or("")
         ));
+        if let Some(t) = r["temperature"].as_object() {
+            text.push_str(&format!(
+                "           temperature data {}–{} °C: {}\n",
+                t["range_c"][0],
+                t["range_c"][1],
+                t["thermo_optic_source"].as_str().unwrap_or("")
+            ));
+        }
         if let Some(g) = r["group_indices"].as_array() {
             let g: Vec<String> = g.iter().filter_map(Value::as_f64).map(|n| format!("{n:.6}")).collect();
             text.push_str(&format!("           group indices {}\n", g.join("  ")));

@@ -487,6 +487,40 @@ fn waveplate_tolerances(r: &mut Report) {
             format!("{} waves/µm (Δn/λ, for each plate)", num(dn.abs() / (wl * 1e-3))),
         );
     }
+    waveplate_temperature(r, &err);
+}
+
+/// A waveplate's retardance per kelvin and the temperature band that keeps it within the
+/// acceptance error (an edge at the contract's limit is marked as reaching at least that far).
+fn waveplate_temperature(r: &mut Report, err: &str) {
+    let t0 = r.f("temperature.design_temperature_c").map_or_else(String::new, num);
+    if let (Some(k), Some(rel)) = (
+        r.f("temperature.retardance_per_kelvin_waves"),
+        r.f("temperature.relative_per_kelvin"),
+    ) {
+        r.line(
+            "retardance per kelvin",
+            format!("{} waves/K ((1/Γ) dΓ/dT = {} /K, at {t0} °C)", num(k), num(rel)),
+        );
+    }
+    let (Some(band), Some(bounds)) = (r.at("temperature.band_c"), r.at("temperature.band_bound")) else {
+        return;
+    };
+    let edge = |i: usize, open_mark: &str| {
+        let t = band.get(i)?.as_f64()?;
+        let mark = if bounds.get(i)?.as_str() == Some("at_least") {
+            open_mark
+        } else {
+            ""
+        };
+        Some(format!("{mark}{} °C", num(t)))
+    };
+    if let (Some(lo), Some(hi)) = (edge(0, "≤ "), edge(1, "≥ ")) {
+        r.line(
+            "temperature band",
+            format!("{lo} to {hi}: retardance within ±{err} waves of its value at {t0} °C"),
+        );
+    }
 }
 
 fn achromat(r: &mut Report) {

@@ -103,7 +103,8 @@ impl BiaxialMaterial {
 }
 
 /// A biaxial crystal as the command line's `materials` listing shows it: `{key, name, kind,
-/// range_nm, temperature_c, citation, verified, warnings}`, `kind` always `biaxial`,
+/// range_nm, temperature_c, citation, verified, warnings, temperature}`, `kind` always `biaxial`,
+/// `temperature` the temperature data as [`super::Thermal::describe`] gives them,
 /// `temperature_c` null where the source says only "room temperature", `verified` true (every
 /// entry has a journal source) and `warnings` empty.
 pub fn describe_biaxial(m: &BiaxialMaterial) -> serde_json::Value {
@@ -111,6 +112,7 @@ pub fn describe_biaxial(m: &BiaxialMaterial) -> serde_json::Value {
         "key": m.key, "name": m.name, "kind": "biaxial",
         "range_nm": [m.range_nm.0, m.range_nm.1], "temperature_c": m.temperature_c,
         "citation": m.citation, "verified": true, "warnings": Vec::<String>::new(),
+        "temperature": super::thermal(m.key).map(super::Thermal::describe),
     })
 }
 

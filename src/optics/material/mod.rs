@@ -5,7 +5,7 @@
 //! group index; [`uniaxial`] the uniaxial catalogue (n_o, n_e); [`biaxial`] the biaxial catalogue
 //! (n_x < n_y < n_z on the formula's dielectric axes); [`activity`] quartz's rotatory power and
 //! gyration; [`air`] the index of standard air and the conversion of an air wavelength to
-//! vacuum. This file holds what they share: evaluating a crystal's principal formulas at a
+//! vacuum; [`thermal`] the indices at a temperature and the thermal expansion. This file holds what they share: evaluating a crystal's principal formulas at a
 //! wavelength with its range warning and breakdown error, and the list of every key.
 //!
 //! Conventions: a [`Wavelength`] is the vacuum wavelength, handed to each formula in micrometres
@@ -17,12 +17,14 @@ pub mod activity;
 pub mod air;
 pub mod biaxial;
 pub mod dispersion;
+pub mod thermal;
 pub mod uniaxial;
 
 pub use activity::{Activity, OpticalActivity, optical_activity};
 pub use air::{AirConversion, STANDARD_AIR_RANGE_NM, air_from_vacuum, standard_air_index, vacuum_from_air};
 pub use biaxial::{BiaxialMaterial, Principal, biaxial_catalogue, biaxial_keys, describe_biaxial, find_biaxial};
 pub use dispersion::{Dispersion, Quantity};
+pub use thermal::{REFERENCE_C, Thermal, thermal};
 pub use uniaxial::{Evaluated, Indices, Material, OpticalSign, catalogue, describe, find, keys};
 
 use crate::error::Error;

@@ -176,7 +176,8 @@ impl Material {
 }
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
-/// `{key, name, kind, sign, range_nm, citation, verified, warnings, optically_active}`, `kind` always `uniaxial`
+/// `{key, name, kind, sign, range_nm, citation, verified, warnings, optically_active,
+/// temperature}` (`temperature` as [`super::Thermal::describe`]), `kind` always `uniaxial`
 /// (biaxial crystals are described by [`super::describe_biaxial`]), `sign` spelled `positive` or
 /// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
@@ -189,6 +190,7 @@ pub fn describe(m: &Material) -> serde_json::Value {
         "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
         "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
         "optically_active": super::optical_activity(m.key).is_some(),
+        "temperature": super::thermal(m.key).map(super::Thermal::describe),
     })
 }
 
@@ -1011,6 +1013,7 @@ mod tests {
             "verified",
             "warnings",
             "optically_active",
+            "temperature",
         ];
         want.sort_unstable();
         let mut got = keys.clone();

@@ -1,0 +1,637 @@
+//! Temperature: every catalogue crystal's principal indices at a temperature (thermo-optic data)
+//! and its linear thermal expansion along its principal axes.
+//!
+//! Physics. A principal index at temperature T is the catalogue formula's index plus a shift,
+//!
+//! ```text
+//! n(λ, T) = n(λ) + Δn(λ, T),   Δn(λ, 20 °C) = 0,
+//! ```
+//!
+//! with Δn from the source's own temperature data where the catalogue's source has them (KTP, LBO)
+//! and otherwise from a cited dn/dT: a constant (a linearisation about room temperature) or the
+//! published wavelength form (LiNbO3: the difference of the Edwards–Lawrence temperature formula
+//! between T and 20 °C, added to the catalogue's 21 °C formula). The group index shifts by
+//! Δn_g = Δn − λ ∂Δn/∂λ, computed analytically for each form. A length along a unit direction d
+//! of the crystal's frame grows by the factor 1 + α_d (T − 20 °C) with α_d = Σ α_i (a_i·d)² over
+//! the principal axes a_i (a second-rank tensor diagonal on them); for a uniaxial crystal whose
+//! optic axis makes θ with d this is α∥ cos²θ + α⊥ sin²θ.
+//!
+//! Conventions. Temperatures in °C. The document's reference temperature is 20 °C: every
+//! catalogue formula is taken to hold there, so 20 °C gives the catalogue's indices bit for bit
+//! (Δn is exactly 0 there). The catalogue formulas were fitted at 20 °C (YVO4, sapphire, KTP, LBO),
+//! at 19 °C (MgF2), at 21 °C (LiNbO3) or at an unstated room temperature (calcite, quartz, rutile,
+//! alpha-BBO, BiBO); the 1 K offsets change an index by about 1e-6, below each formula's accuracy,
+//! and are not corrected. Principal values are listed along x, y, z: for a uniaxial crystal x = y
+//! is the ordinary and z the extraordinary direction (the optic axis), so `[dn_o, dn_o, dn_e]`
+//! and `[α⊥, α⊥, α∥]`; for a biaxial crystal x, y, z are the catalogue's dielectric axes
+//! (n_x < n_y < n_z). Outside a formula's temperature range it is still used, with a warning.
+//!
+//! Sources: each entry cites its data beside the coefficients; "from memory" marks values
+//! recalled rather than read from the cited source. The KTP, LBO and LiNbO3 forms and
+//! coefficients are those transcribed in the open-source dispersion library ndispers 0.20.0,
+//! against which tests/reference/ checks them; the quartz, MgF2 and BiBO constants are the
+//! handbook values that library's documentation quotes.
+
+use super::dispersion::{Breakdown, Dispersion, Quantity};
+use super::{BiaxialMaterial, Evaluated, Indices, Material, Principal};
+use crate::error::Error;
+use crate::optics::wavelength::Wavelength;
+use nalgebra::{Matrix3, Vector3};
+
+/// The document's reference temperature, °C: thicknesses are given at it, and every catalogue
+/// formula is taken to hold at it.
+pub const REFERENCE_C: f64 = 20.0;
+
+/// How a principal index changes with temperature.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ThermoOptic {
+    /// A constant dn/dT, 1/K.
+    ///
+    /// # Formula
+    /// Δn = c (T − 20), Δn_g = Δn.
+    Constant(f64),
+    /// The thermo-optic dispersion of K. Kato and E. Takaoka (KTP), λ in µm.
+    ///
+    /// # Formula
+    /// dn/dT = (a/λ³ + b/λ² + c/λ + d)·10⁻⁵ /K, Δn = dn/dT (T − 20),
+    /// Δn_g = (4a/λ³ + 3b/λ² + 2c/λ + d)·10⁻⁵ (T − 20).
+    InverseCubic([f64; 4]),
+    /// The thermo-optic formula of K. Kato (LBO, 1994), λ in µm.
+    ///
+    /// # Formula
+    /// dn/dT = (g λ + h)(1 + i (T − 20)), Δn = dn/dT (T − 20), Δn_g = h (1 + i (T − 20)) (T − 20).
+    LinearWavelength {
+        /// Coefficient of λ, 1/(K µm).
+        g: f64,
+        /// Constant, 1/K.
+        h: f64,
+        /// Temperature curvature, 1/K.
+        i: f64,
+    },
+    /// The temperature-dependent formula of G. J. Edwards and M. Lawrence (congruent LiNbO3):
+    /// n² = A1 + (A2 + B1 F)/(λ² − (A3 + B2 F)²) + B3 F − A4 λ², F = (T − 24.5)(T + 570.5).
+    ///
+    /// # Formula
+    /// Δn = n_EL(λ, T) − n_EL(λ, 20 °C), and likewise for the group index.
+    EdwardsLawrence {
+        /// A1, A2, A3 (µm), A4 (µm⁻²).
+        a: [f64; 4],
+        /// B1, B2, B3 (per K²).
+        b: [f64; 3],
+    },
+}
+
+impl ThermoOptic {
+    /// The shift of the index (`Quantity::Phase`) or of the group index between 20 °C and `t_c`
+    /// at `um` micrometres; exactly 0 at 20 °C.
+    ///
+    /// # Errors
+    /// Where the Edwards–Lawrence formula breaks down (as [`Dispersion::quantity`]).
+    pub fn shift(&self, q: Quantity, um: f64, t_c: f64) -> Result<f64, Breakdown> {
+        let dt = t_c - REFERENCE_C;
+        Ok(match (*self, q) {
+            (ThermoOptic::Constant(c), _) => c * dt,
+            (ThermoOptic::InverseCubic([a, b, c, d]), q) => {
+                let (l1, l2, l3) = (1.0 / um, 1.0 / (um * um), 1.0 / (um * um * um));
+                let k = match q {
+                    Quantity::Phase => [1.0, 1.0, 1.0],
+                    Quantity::Group => [4.0, 3.0, 2.0],
+                };
+                (k[0] * a * l3 + k[1] * b * l2 + k[2] * c * l1 + d) * 1e-5 * dt
+            }
+            (ThermoOptic::LinearWavelength { g, h, i }, q) => {
+                let slope = match q {
+                    Quantity::Phase => g * um + h,
+                    Quantity::Group => h,
+                };
+                slope * (1.0 + i * dt) * dt
+            }
+            (ThermoOptic::EdwardsLawrence { a, b }, q) => {
+                let at = |t: f64| {
+                    let f = (t - 24.5) * (t + 24.5 + 546.0);
+                    let pole = a[2] + b[1] * f;
+                    Dispersion::PoleAndIr {
+                        a: a[0] + b[2] * f,
+                        b: a[1] + b[0] * f,
+                        c: pole * pole,
+                        d: a[3],
+                    }
+                    .quantity(q, um)
+                };
+                at(t_c)? - at(REFERENCE_C)?
+            }
+        })
+    }
+}
+
+/// A catalogue crystal's temperature data.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Thermal {
+    /// The catalogue key it belongs to.
+    pub key: &'static str,
+    /// The temperature range of the thermo-optic data, °C, `(low, high)`.
+    pub range_c: (f64, f64),
+    /// How n_x, n_y, n_z change (uniaxial: n_o, n_o, n_e).
+    pub thermo_optic: [ThermoOptic; 3],
+    /// Source of the thermo-optic data, with its wavelength and temperature range.
+    pub thermo_optic_source: &'static str,
+    /// Linear expansion coefficients α_x, α_y, α_z along the principal axes, 1/K (uniaxial: α⊥,
+    /// α⊥, α∥).
+    pub expansion: [f64; 3],
+    /// Source of the expansion coefficients.
+    pub expansion_source: &'static str,
+}
+
+impl Thermal {
+    /// The expansion coefficient along the unit vector `d`, given the principal axes as the
+    /// columns of `axes` (in the frame of `d`).
+    ///
+    /// # Formula
+    /// α_d = Σ α_i (a_i·d)².
+    pub fn expansion_along(&self, axes: &Matrix3<f64>, d: &Vector3<f64>) -> f64 {
+        (0..3).map(|i| self.expansion[i] * axes.column(i).dot(d).powi(2)).sum()
+    }
+
+    /// The warning for a temperature outside [`Thermal::range_c`], naming the material.
+    pub fn range_warning(&self, name: &str, t_c: f64) -> Option<String> {
+        let (lo, hi) = self.range_c;
+        (!(lo..=hi).contains(&t_c)).then(|| {
+            format!(
+                "{t_c} °C is outside the {lo}-{hi} °C range of the {name} temperature data; its \
+                 indices are extrapolated"
+            )
+        })
+    }
+
+    /// `values` (principal values at 20 °C along x, y, z) shifted to `t_c` at `wavelength`.
+    fn shifted(&self, values: [f64; 3], q: Quantity, wavelength: Wavelength, t_c: f64) -> Result<[f64; 3], Error> {
+        let mut out = values;
+        for (v, law) in out.iter_mut().zip(&self.thermo_optic) {
+            *v += law.shift(q, wavelength.um(), t_c).map_err(|why| {
+                Error::new(
+                    "temperature_c",
+                    format!(
+                        "the {} temperature formula gives no usable {} at {} nm and {t_c} °C: {}",
+                        self.key,
+                        q.noun(),
+                        wavelength.nm(),
+                        why.reason()
+                    ),
+                )
+            })?;
+        }
+        Ok(out)
+    }
+
+    /// As [`Thermal`] a JSON object for the materials listing: `{range_c, reference_c,
+    /// thermo_optic_source, expansion_per_k, expansion_source}`.
+    pub fn describe(&self) -> serde_json::Value {
+        serde_json::json!({
+            "range_c": [self.range_c.0, self.range_c.1], "reference_c": REFERENCE_C,
+            "thermo_optic_source": self.thermo_optic_source,
+            "expansion_per_k": self.expansion, "expansion_source": self.expansion_source,
+        })
+    }
+}
+
+/// The temperature data of the catalogue crystal `key` (any case), if catalogued.
+pub fn thermal(key: &str) -> Option<&'static Thermal> {
+    THERMAL.iter().find(|t| t.key.eq_ignore_ascii_case(key))
+}
+
+/// `values` (the 20 °C principal values along x, y, z of the catalogue crystal `key`, called
+/// `name` in messages) moved to `t_c`, the range warning added to `warnings`. A catalogue key
+/// without an entry is an error naming the field (a bug the tests catch, never a panic).
+fn at_temperature(
+    (key, name): (&str, &str),
+    values: [f64; 3],
+    warnings: &mut Vec<String>,
+    (q, wavelength, t_c): (Quantity, Wavelength, f64),
+) -> Result<[f64; 3], Error> {
+    let th = thermal(key).ok_or_else(|| Error::new("temperature_c", format!("no temperature data for {key}")))?;
+    warnings.extend(th.range_warning(name, t_c));
+    th.shifted(values, q, wavelength, t_c)
+}
+
+impl Material {
+    /// The principal indices at `wavelength` and `temperature_c` (°C): [`Material::indices`]
+    /// shifted by the crystal's thermo-optic data, identical to it at 20 °C. Warnings: those of
+    /// [`Material::indices`], and one when the temperature is outside the data's range.
+    ///
+    /// # Errors
+    /// As [`Material::indices`]; field `temperature_c` where a temperature formula breaks down.
+    pub fn indices_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<Evaluated, Error> {
+        self.at(self.indices(wavelength)?, Quantity::Phase, wavelength, temperature_c)
+    }
+
+    /// The principal group indices at `wavelength` and `temperature_c`, as
+    /// [`Material::group_indices`] shifted by Δn − λ ∂Δn/∂λ.
+    ///
+    /// # Errors
+    /// As [`Material::indices_at`].
+    pub fn group_indices_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<Evaluated, Error> {
+        self.at(
+            self.group_indices(wavelength)?,
+            Quantity::Group,
+            wavelength,
+            temperature_c,
+        )
+    }
+
+    fn at(&self, mut ev: Evaluated, q: Quantity, wavelength: Wavelength, t_c: f64) -> Result<Evaluated, Error> {
+        let Indices { no, ne } = ev.indices;
+        let [no, _, ne] = at_temperature(
+            (self.key, self.name),
+            [no, no, ne],
+            &mut ev.warnings,
+            (q, wavelength, t_c),
+        )?;
+        ev.indices = Indices { no, ne };
+        Ok(ev)
+    }
+}
+
+impl BiaxialMaterial {
+    /// n_x, n_y, n_z at `wavelength` and `temperature_c` (°C): [`BiaxialMaterial::principal`]
+    /// shifted by the crystal's thermo-optic data, identical to it at 20 °C, with a warning
+    /// outside the data's temperature range.
+    ///
+    /// # Errors
+    /// As [`BiaxialMaterial::principal`]; field `temperature_c` where a temperature formula
+    /// breaks down.
+    pub fn principal_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<Principal, Error> {
+        self.at(self.principal(wavelength)?, Quantity::Phase, wavelength, temperature_c)
+    }
+
+    /// The principal group indices at `wavelength` and `temperature_c`.
+    ///
+    /// # Errors
+    /// As [`BiaxialMaterial::principal_at`].
+    pub fn group_principal_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<Principal, Error> {
+        self.at(
+            self.group_principal(wavelength)?,
+            Quantity::Group,
+            wavelength,
+            temperature_c,
+        )
+    }
+
+    fn at(&self, mut p: Principal, q: Quantity, wavelength: Wavelength, t_c: f64) -> Result<Principal, Error> {
+        p.principal = at_temperature(
+            (self.key, self.name),
+            p.principal,
+            &mut p.warnings,
+            (q, wavelength, t_c),
+        )?;
+        Ok(p)
+    }
+}
+
+/// Handbook thermo-optic constants, 1/K: W. J. Tropf, M. E. Thomas and T. J. Harris, "Properties
+/// of crystals and glasses", Handbook of Optics Vol. II, ch. 33 (McGraw-Hill, 1995), Table 20, as
+/// quoted in the ndispers 0.20.0 documentation.
+const TROPF: &str = "W. J. Tropf, M. E. Thomas, T. J. Harris, \"Properties of crystals and glasses\", \
+                     Handbook of Optics Vol. II ch. 33 (1995), Table 20";
+
+static THERMAL: [Thermal; 11] = [
+    Thermal {
+        key: "calcite",
+        // dn_o/dT = +3e-6, dn_e/dT = +13e-6 /K at 500 nm: a crystal supplier's calcite data
+        // sheet (found by search); consistent with the handbook values +2.1e-6 and +11.9e-6
+        // (G. Ghosh, Handbook of Thermo-Optic Coefficients of Optical Materials, Academic Press
+        // 1998, from memory). The supplier's "∥ c" column is taken as the ordinary index, the
+        // reading under which calcite's birefringence falls on heating, as it is known to (from
+        // memory). Range: room temperature; 0-100 °C assumed for the linearisation.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(3e-6),
+            ThermoOptic::Constant(3e-6),
+            ThermoOptic::Constant(13e-6),
+        ],
+        thermo_optic_source: "a crystal supplier's calcite data sheet, 500 nm (dn_o/dT 3e-6, dn_e/dT \
+                              13e-6 /K); constants, 0-100 °C",
+        // α∥ = 25e-6, α⊥ = −5.8e-6 /K (the same data sheet; handbook values 26e-6 and −5.4e-6,
+        // from memory): calcite contracts across its axis on heating.
+        expansion: [-5.8e-6, -5.8e-6, 25e-6],
+        expansion_source: "a crystal supplier's calcite data sheet: 25e-6 /K along c, -5.8e-6 /K across",
+    },
+    Thermal {
+        key: "quartz",
+        // Tropf et al., Table 20, at 546 nm: dn_o/dT = −6.2e-6, dn_e/dT = −7.0e-6 /K (as quoted
+        // by ndispers 0.20.0). Room temperature; 0-100 °C assumed.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(-6.2e-6),
+            ThermoOptic::Constant(-6.2e-6),
+            ThermoOptic::Constant(-7.0e-6),
+        ],
+        thermo_optic_source: TROPF,
+        // α∥ = 7.1e-6, α⊥ = 13.2e-6 /K near 20 °C (common handbook values, from memory).
+        expansion: [13.2e-6, 13.2e-6, 7.1e-6],
+        expansion_source: "handbook values near 20 °C, from memory: 7.1e-6 /K along c, 13.2e-6 /K across",
+    },
+    Thermal {
+        key: "yvo4",
+        // Shi, Zhang and Shen (the catalogue's source) also measured thermo-optic coefficients;
+        // their paper was not seen. Used instead: dn_o/dT = 8.5e-6, dn_e/dT = 3.0e-6 /K, the
+        // values crystal suppliers quote (from memory). 0-100 °C assumed.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(8.5e-6),
+            ThermoOptic::Constant(8.5e-6),
+            ThermoOptic::Constant(3.0e-6),
+        ],
+        thermo_optic_source: "crystal suppliers' data sheets, from memory (dn_o/dT 8.5e-6, dn_e/dT 3.0e-6 /K); \
+                              constants, 0-100 °C",
+        // α_a = 4.43e-6, α_c = 11.37e-6 /K (suppliers' values reprinted by an online
+        // encyclopedia's article on the crystal, found by search).
+        expansion: [4.43e-6, 4.43e-6, 11.37e-6],
+        expansion_source: "crystal suppliers' data: 11.37e-6 /K along c, 4.43e-6 /K across",
+    },
+    Thermal {
+        key: "alpha-bbo",
+        // No published thermo-optic data found for alpha-BBO; beta-BBO's dn_o/dT = −16.6e-6,
+        // dn_e/dT = −9.3e-6 /K (suppliers' values, from memory) are used as the nearest
+        // estimate, which the catalogue entry's unverified-data warning already covers.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(-16.6e-6),
+            ThermoOptic::Constant(-16.6e-6),
+            ThermoOptic::Constant(-9.3e-6),
+        ],
+        thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K from suppliers' \
+                              data, from memory; constants, 0-100 °C",
+        // α∥ = 36e-6, α⊥ = 4e-6 /K: suppliers' alpha-BBO data sheets, from memory.
+        expansion: [4e-6, 4e-6, 36e-6],
+        expansion_source: "crystal suppliers' alpha-BBO data, from memory: 36e-6 /K along c, 4e-6 /K across",
+    },
+    Thermal {
+        key: "sapphire",
+        // dn_o/dT = 13.1e-6, dn_e/dT = 13.6e-6 /K near 633 nm, room temperature (handbook
+        // values, from memory). 0-100 °C assumed.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(13.1e-6),
+            ThermoOptic::Constant(13.1e-6),
+            ThermoOptic::Constant(13.6e-6),
+        ],
+        thermo_optic_source: "handbook values near 633 nm, from memory (dn_o/dT 13.1e-6, dn_e/dT 13.6e-6 /K); \
+                              constants, 0-100 °C",
+        // α∥ = 6.66e-6, α⊥ = 5.0e-6 /K near room temperature (handbook values, from memory).
+        expansion: [5.0e-6, 5.0e-6, 6.66e-6],
+        expansion_source: "handbook values near 20 °C, from memory: 6.66e-6 /K along c, 5.0e-6 /K across",
+    },
+    Thermal {
+        key: "mgf2",
+        // Tropf et al., Table 20, from A. Feldman et al. (NBS, 1978): dn_o/dT = +1.12e-6 /K at
+        // 633 nm (as quoted by ndispers 0.20.0); dn_e/dT = +0.58e-6 /K at 633 nm from the same
+        // measurements, from memory. 0-100 °C assumed.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(1.12e-6),
+            ThermoOptic::Constant(1.12e-6),
+            ThermoOptic::Constant(0.58e-6),
+        ],
+        thermo_optic_source: "W. J. Tropf et al., Handbook of Optics Vol. II ch. 33 (1995), Table 20, from A. \
+                              Feldman et al. (1978), 633 nm: dn_o/dT 1.12e-6 /K; dn_e/dT 0.58e-6 /K from \
+                              memory; constants, 0-100 °C",
+        // α∥ = 13.7e-6, α⊥ = 8.9e-6 /K (handbook values, from memory).
+        expansion: [8.9e-6, 8.9e-6, 13.7e-6],
+        expansion_source: "handbook values near 20 °C, from memory: 13.7e-6 /K along c, 8.9e-6 /K across",
+    },
+    Thermal {
+        key: "linbo3",
+        // G. J. Edwards and M. Lawrence, Opt. Quantum Electron. 16, 373-375 (1984), Table I
+        // (coefficients as transcribed by ndispers 0.20.0, CLN_Edwards1984): 0-500 °C, 0.4-3.4 µm.
+        range_c: (0.0, 500.0),
+        thermo_optic: [EL_O, EL_O, EL_E],
+        thermo_optic_source: "G. J. Edwards and M. Lawrence, \"A temperature-dependent dispersion equation for \
+                              congruently grown lithium niobate\", Optical and Quantum Electronics 16, 373-375 \
+                              (1984): its change from 20 °C added to the catalogue formula; 0-500 °C, 0.4-3.4 µm",
+        // α_a = 15.4e-6, α_c = 7.5e-6 /K (common handbook values, from memory).
+        expansion: [15.4e-6, 15.4e-6, 7.5e-6],
+        expansion_source: "handbook values near 20 °C, from memory: 7.5e-6 /K along c, 15.4e-6 /K across",
+    },
+    Thermal {
+        key: "rutile",
+        // Uncertain, from memory: dn_o/dT = −7.2e-5 and dn_e/dT = −10.0e-5 /K, values some crystal
+        // suppliers print; no journal measurement was at hand to confirm even their sign.
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(-7.2e-5),
+            ThermoOptic::Constant(-7.2e-5),
+            ThermoOptic::Constant(-10.0e-5),
+        ],
+        thermo_optic_source: "unverified: crystal suppliers' values, from memory (dn_o/dT -7.2e-5, dn_e/dT \
+                              -10.0e-5 /K); constants, 0-100 °C",
+        // α∥ = 9.19e-6, α⊥ = 7.14e-6 /K near room temperature: R. K. Kirby, J. Res. Natl. Bur.
+        // Stand. 71A, 363-369 (1967), "Thermal expansion of rutile from 100 to 700 K" (values
+        // from memory).
+        expansion: [7.14e-6, 7.14e-6, 9.19e-6],
+        expansion_source: "R. K. Kirby, J. Res. NBS 71A (1967), near 20 °C, from memory: 9.19e-6 /K along c, \
+                           7.14e-6 /K across",
+    },
+    Thermal {
+        key: "ktp",
+        // K. Kato and E. Takaoka, Appl. Opt. 41, 5040-5044 (2002): the catalogue's own source,
+        // whose thermo-optic formula is used (coefficients as transcribed by ndispers 0.20.0);
+        // 0.43-1.58 µm; temperature range 20-200 °C, from memory.
+        range_c: (20.0, 200.0),
+        thermo_optic: [
+            ThermoOptic::InverseCubic([0.1717, -0.5353, 0.8416, 0.1627]),
+            ThermoOptic::InverseCubic([0.1997, -0.4063, 0.5154, 0.5425]),
+            ThermoOptic::InverseCubic([0.9221, -2.9220, 3.6677, -0.1897]),
+        ],
+        thermo_optic_source: "K. Kato and E. Takaoka, Applied Optics 41, 5040-5044 (2002), thermo-optic \
+                              dispersion formula; 0.43-1.58 µm; 20-200 °C (from memory)",
+        // α_x = 11e-6, α_y = 9e-6, α_z = 0.6e-6 /K (suppliers' values, from memory; an X-ray
+        // study, Sheleg et al., Crystallogr. Rep. 45, 215-218 (2000), finds α_b > α_a, so x and y
+        // may be swapped here; α_c near zero agrees).
+        expansion: [11e-6, 9e-6, 0.6e-6],
+        expansion_source: "crystal suppliers' data, from memory: 11e-6, 9e-6, 0.6e-6 /K along x, y, z",
+    },
+    Thermal {
+        key: "lbo",
+        // K. Kato, IEEE J. Quantum Electron. 30, 2950-2952 (1994): the catalogue's own source,
+        // whose thermo-optic formula is used (coefficients as transcribed by ndispers 0.20.0);
+        // fitted to 90° phase matching from 20 to about 200 °C (from memory).
+        range_c: (20.0, 200.0),
+        thermo_optic: [
+            ThermoOptic::LinearWavelength {
+                g: -3.76e-6,
+                h: 2.30e-6,
+                i: 58.26e-3,
+            },
+            ThermoOptic::LinearWavelength {
+                g: 6.01e-6,
+                h: -19.40e-6,
+                i: 65.78e-4,
+            },
+            ThermoOptic::LinearWavelength {
+                g: 1.50e-6,
+                h: -9.70e-6,
+                i: 148.98e-4,
+            },
+        ],
+        thermo_optic_source: "K. Kato, IEEE Journal of Quantum Electronics 30, 2950-2952 (1994), thermo-optic \
+                              formula; 20-200 °C (from memory)",
+        // α_x = 10.8e-5, α_y = −8.8e-5, α_z = 3.4e-5 /K (suppliers' values, from memory).
+        expansion: [10.8e-5, -8.8e-5, 3.4e-5],
+        expansion_source: "crystal suppliers' data, from memory: 10.8e-5, -8.8e-5, 3.4e-5 /K along x, y, z",
+    },
+    Thermal {
+        key: "bibo",
+        // V. Petrov et al., Laser Photonics Rev. 4, 53-98 (2010), Table 3, at 1064 nm: +3.5e-6,
+        // −5.6e-6, −6.8e-6 /K for n_x, n_y, n_z in index order (as quoted by ndispers 0.20.0).
+        range_c: (0.0, 100.0),
+        thermo_optic: [
+            ThermoOptic::Constant(3.5e-6),
+            ThermoOptic::Constant(-5.6e-6),
+            ThermoOptic::Constant(-6.8e-6),
+        ],
+        thermo_optic_source: "V. Petrov et al., Laser & Photonics Reviews 4, 53-98 (2010), Table 3, 1064 nm; \
+                              constants, 0-100 °C",
+        // Uncertain, from memory: 4.8e-6, 4.4e-6 and −26.7e-6 /K.
+        expansion: [4.8e-6, 4.4e-6, -26.7e-6],
+        expansion_source: "from memory, uncertain: 4.8e-6, 4.4e-6, -26.7e-6 /K along x, y, z",
+    },
+];
+
+/// Edwards–Lawrence ordinary index (A1..A4, B1..B3 of their Table I, via ndispers 0.20.0).
+const EL_O: ThermoOptic = ThermoOptic::EdwardsLawrence {
+    a: [4.9048, 0.11775, 0.21802, 0.027153],
+    b: [2.2314e-8, -2.9671e-8, 2.1429e-8],
+};
+/// Edwards–Lawrence extraordinary index.
+const EL_E: ThermoOptic = ThermoOptic::EdwardsLawrence {
+    a: [4.5820, 0.09921, 0.21090, 0.021940],
+    b: [5.2716e-8, -4.9143e-8, 2.2971e-7],
+};
+
+#[cfg(test)]
+mod tests {
+    use super::super::{biaxial_catalogue, catalogue, find, find_biaxial};
+    use super::*;
+    use crate::precision::assert_within;
+
+    fn wl(nm: f64) -> Wavelength {
+        Wavelength::from_nm(nm).expect("positive")
+    }
+
+    #[test]
+    fn every_catalogue_crystal_has_temperature_data_and_20_c_is_the_catalogue_bit_for_bit() {
+        // The contract's promise: a document without temperature_c gives today's numbers.
+        for m in catalogue() {
+            assert!(thermal(m.key).is_some(), "{} has temperature data", m.key);
+            for nm in [450.0, 632.8, 1064.0] {
+                assert_eq!(
+                    m.indices_at(wl(nm), 20.0).unwrap(),
+                    m.indices(wl(nm)).unwrap(),
+                    "{}",
+                    m.key
+                );
+                assert_eq!(
+                    m.group_indices_at(wl(nm), 20.0).unwrap(),
+                    m.group_indices(wl(nm)).unwrap(),
+                    "{}",
+                    m.key
+                );
+            }
+        }
+        for m in biaxial_catalogue() {
+            assert!(thermal(m.key).is_some(), "{} has temperature data", m.key);
+            for nm in [532.0, 1064.0] {
+                assert_eq!(m.principal_at(wl(nm), 20.0).unwrap(), m.principal(wl(nm)).unwrap());
+                assert_eq!(
+                    m.group_principal_at(wl(nm), 20.0).unwrap(),
+                    m.group_principal(wl(nm)).unwrap()
+                );
+            }
+        }
+        assert_eq!(THERMAL.len(), catalogue().len() + biaxial_catalogue().len());
+    }
+
+    #[test]
+    fn published_constants_are_reproduced_as_slopes() {
+        // Tropf et al. (Handbook of Optics II, ch. 33, Table 20, as quoted by ndispers 0.20.0):
+        // quartz dn_o/dT = −6.2e-6, dn_e/dT = −7.0e-6 /K at 546 nm; MgF2 below; Petrov et al. 2010, Table 3:
+        // BiBO +3.5e-6, −5.6e-6, −6.8e-6 /K at 1064 nm. The slope over ±10 K reproduces them.
+        // (key, nm, ordinary?, published dn/dT, source): the slope over 10-30 °C.
+        let rows = [
+            ("quartz", 546.1, true, -6.2e-6, "quartz dn_o/dT, Tropf"),
+            ("quartz", 546.1, false, -7.0e-6, "quartz dn_e/dT, Tropf"),
+            // Tropf et al., Table 20, from A. Feldman et al. (1978), as quoted by ndispers.
+            ("mgf2", 632.8, true, 1.12e-6, "MgF2 dn_o/dT at 633 nm, Tropf/Feldman"),
+        ];
+        for (key, nm, ordinary, want, source) in rows {
+            let m = find(key).unwrap();
+            let n = |t: f64| {
+                let ix = m.indices_at(wl(nm), t).unwrap().indices;
+                if ordinary { ix.no } else { ix.ne }
+            };
+            assert_within((n(30.0) - n(10.0)) / 20.0, want, 1e-15, source);
+        }
+        let b = find_biaxial("bibo").unwrap();
+        let (lo, hi) = (
+            b.principal_at(wl(1064.0), 10.0).unwrap(),
+            b.principal_at(wl(1064.0), 30.0).unwrap(),
+        );
+        for (k, want) in [3.5e-6, -5.6e-6, -6.8e-6].into_iter().enumerate() {
+            let got = (hi.principal[k] - lo.principal[k]) / 20.0;
+            assert_within(got, want, 1e-15, "BiBO dn/dT, Petrov et al. 2010 Table 3");
+        }
+    }
+
+    #[test]
+    fn group_shifts_agree_with_a_central_difference() {
+        // Independent method: Δn_g = Δn − λ ∂Δn/∂λ with the derivative from a central difference
+        // of the phase shift (step 1e-4 µm), for every wavelength-dependent form.
+        for key in ["ktp", "lbo", "linbo3"] {
+            let th = thermal(key).unwrap();
+            for law in th.thermo_optic {
+                for (um, t) in [(0.6, 80.0), (1.064, 150.0), (1.5, -20.0)] {
+                    let h = 1e-4;
+                    let s = |x: f64| law.shift(Quantity::Phase, x, t).unwrap();
+                    let want = s(um) - um * (s(um + h) - s(um - h)) / (2.0 * h);
+                    let got = law.shift(Quantity::Group, um, t).unwrap();
+                    // Truncation error about h² Δn‴ λ/6, a relative 1e-7 here; allowed 1e-6.
+                    let what = format!("{key} group shift at {um} µm, {t} °C");
+                    crate::precision::assert_close(got, want, 1e-6, 1e-6, &what);
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn outside_the_range_a_warning_names_the_temperature() {
+        let ev = find("calcite").unwrap().indices_at(wl(632.8), 300.0).unwrap();
+        assert!(
+            ev.warnings
+                .iter()
+                .any(|w| w.contains("300 °C") && w.contains("calcite")),
+            "{:?}",
+            ev.warnings
+        );
+        assert!(
+            find("calcite")
+                .unwrap()
+                .indices_at(wl(632.8), 60.0)
+                .unwrap()
+                .warnings
+                .is_empty()
+        );
+    }
+
+    #[test]
+    fn expansion_along_a_direction_is_the_tensor_projection() {
+        // A uniaxial crystal with its optic axis at θ to d: α∥ cos²θ + α⊥ sin²θ (the contract's
+        // formula, CONVENTIONS.md "Temperature").
+        let th = thermal("calcite").unwrap();
+        for deg in [0.0_f64, 30.0, 45.0, 90.0, 137.0] {
+            let r = crate::optics::anisotropic::orientation(deg.to_radians(), 0.7, 0.3);
+            let (c, s) = (deg.to_radians().cos(), deg.to_radians().sin());
+            let want = 25e-6 * c * c - 5.8e-6 * s * s;
+            assert_within(th.expansion_along(&r, &Vector3::z()), want, 1e-20, "calcite α at θ");
+        }
+    }
+}
