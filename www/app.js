@@ -98,6 +98,7 @@ function buildTopControls() {
     options: [['vacuum', 'vacuum'], ['air', 'standard air']],
     hint: 'Air wavelengths are converted to vacuum by the standard-air index (Ciddor 1996).',
   }));
+  addTop(light, 'temperature_c', new Field({ key: 'temperature_c', label: 'Temperature', unit: '°C', hint: 'Crystal indices and thicknesses at this temperature; thicknesses are entered at 20 °C.' }));
   addTop(light, 'outside_index', new Field({ key: 'outside_index', label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
   addTop(light, 'interface_losses', new Field({ key: 'interface_losses',
     label: 'Crystal faces',
@@ -614,6 +615,8 @@ function buildScenario() {
   };
   if (screen !== 0) doc.screen_mm = screen;
   if (v('wavelength_in') !== 'vacuum') doc.wavelength_in = v('wavelength_in');
+  // Written when not the default 20 °C, as the core writes it back.
+  if (v('temperature_c') !== 20) doc.temperature_c = v('temperature_c');
   return doc;
 }
 
@@ -626,6 +629,7 @@ function loadControls(s) {
   const set = (p, v) => state.controls[p].set(v);
   set('wavelength_nm', member(s, 'wavelength_nm') ?? 632.8);
   set('wavelength_in', member(s, 'wavelength_in') ?? 'vacuum');
+  set('temperature_c', member(s, 'temperature_c') ?? 20);
   set('outside_index', member(s, 'outside_index') ?? 1);
   set('interface_losses', member(s, 'interface_losses') ?? 'ideal');
   const beam = member(s, 'beam');

@@ -15,7 +15,7 @@ import { h } from './dom.js';
 import { minus } from './format.js';
 import { toFieldError } from './field-error.js';
 
-const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence'];
+const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature'];
 const VIEW_TITLES = {
   side: 'side view',
   end: 'end view',
@@ -25,6 +25,8 @@ const VIEW_TITLES = {
   'retardance-wavelength': 'retardance against wavelength plot',
   'split-wavelength': 'split angle against wavelength plot',
   'split-incidence': 'split angle against incidence plot',
+  'retardance-temperature': 'retardance against temperature plot',
+  'separation-temperature': 'separation against temperature plot',
 };
 const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
 

@@ -191,5 +191,5 @@ export const fmt = {
 };
 
 export function unitWord(unit) {
-  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves', ps: 'picoseconds', fs: 'femtoseconds' }[unit] ?? unit;
+  return { '°': 'degrees', nm: 'nanometres', mm: 'millimetres', waves: 'waves', ps: 'picoseconds', fs: 'femtoseconds', '°C': 'degrees Celsius' }[unit] ?? unit;
 }

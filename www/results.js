@@ -132,6 +132,7 @@ function buildResults(state, r) {
       if (e.rotatory_power_deg_per_mm !== undefined) {
         row('rotatory power along the axis', `${p}.rotatory_power_deg_per_mm`, (x) => x.elements[i].rotatory_power_deg_per_mm, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4)}°/mm`));
       }
+      row('thickness at temperature', `${p}.thickness_at_temperature_mm`, (x) => x.elements[i].thickness_at_temperature_mm, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 6)} mm`));
       row(`${a}-wave index`, `${p}.${a}.index`, (x) => x.elements[i][a]?.index, fmt.index);
       row(`${b}-wave index`, `${p}.${b}.index`, (x) => x.elements[i][b]?.index, fmt.index);
       row(`${a} walk-off`, `${p}.${a}.walkoff_deg`, (x) => x.elements[i][a]?.walkoff_deg, fmt.deg);

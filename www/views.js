@@ -201,6 +201,16 @@ export function describeViews(state) {
   const splitWords = `${num(split, 4)}° between the output beams at ${num(r.wavelength_nm, 1)} nm`;
   texts['split-wavelength'] = `Split angle of the whole set-up against wavelength: ${splitWords}.`;
   texts['split-incidence'] = `Split angle of the whole set-up against the angle of incidence: ${splitWords}.`;
+  const temperature = shownScenario?.temperature_c ?? 20;
+  if (crystals.length === 0) {
+    texts['retardance-temperature'] = 'Retardance against temperature: no crystal in the stack, nothing to plot.';
+    texts['separation-temperature'] = 'Separation against temperature: no crystal in the stack, nothing to plot.';
+  } else {
+    const c = r.elements[crystals[0]];
+    const which = `element ${crystals[0] + 1} (${describeMaterial(c.material)})`;
+    texts['retardance-temperature'] = `Retardance against temperature for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(temperature, 1)} °C.`;
+    texts['separation-temperature'] = `Separation against temperature for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(temperature, 1)} °C.`;
+  }
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
   }

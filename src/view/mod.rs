@@ -22,9 +22,10 @@ pub mod side;
 pub mod split_series;
 pub mod svg;
 pub mod table;
+pub mod temperature_series;
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 10] = [
+pub const VIEW_NAMES: [&str; 12] = [
     "side",
     "side-yz",
     "side-walkoff",
@@ -35,6 +36,8 @@ pub const VIEW_NAMES: [&str; 10] = [
     "retardance-wavelength",
     "split-wavelength",
     "split-incidence",
+    "retardance-temperature",
+    "separation-temperature",
 ];
 
 /// Builds the view called `name`.
@@ -53,6 +56,8 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "retardance-wavelength" => plot::plot(&series::retardance_vs_wavelength(scenario, 0)),
         "split-wavelength" => plot::plot(&split_series::split_vs_wavelength(scenario)),
         "split-incidence" => plot::plot(&split_series::split_vs_incidence(scenario)),
+        "retardance-temperature" => plot::plot(&temperature_series::retardance_vs_temperature(scenario, 0)),
+        "separation-temperature" => plot::plot(&temperature_series::separation_vs_temperature(scenario, 0)),
         other => {
             return Err(Error::new(
                 "view",
@@ -79,6 +84,8 @@ pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>,
         "retardance-wavelength" => Some(series::retardance_vs_wavelength(scenario, 0)),
         "split-wavelength" => Some(split_series::split_vs_wavelength(scenario)),
         "split-incidence" => Some(split_series::split_vs_incidence(scenario)),
+        "retardance-temperature" => Some(temperature_series::retardance_vs_temperature(scenario, 0)),
+        "separation-temperature" => Some(temperature_series::separation_vs_temperature(scenario, 0)),
         _ => None,
     })
 }

@@ -13,11 +13,14 @@
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::geometry::{Contact, Placement};
 use crate::contract::resolve::axis_from_degrees;
-use crate::contract::result::{ElementReport, trace_scenario};
 use crate::contract::scenario::{CrystalPlate, Element, ElementKind, Medium, Scenario};
 use crate::error::Error;
 use crate::optics::material::Indices;
 use crate::optics::plate::plate_optics;
+use crate::optics::stack::Element as StackElement;
+use crate::optics::trace::trace;
+use crate::optics::traced::LayerTrace;
+use crate::optics::uniaxial::angle_between;
 use crate::optics::wavelength::Wavelength;
 use serde::Serialize;
 #[cfg(any(test, target_arch = "wasm32"))]
@@ -114,12 +117,16 @@ impl Series {
     }
 }
 
-struct Setting {
-    plate: CrystalPlate,
-    qt: [f64; 2],
+/// The crystal a plot follows and the beam's tangential wave vector.
+pub(crate) struct Setting {
+    /// The plate.
+    pub(crate) plate: CrystalPlate,
+    /// q_t of the incident beam.
+    pub(crate) qt: [f64; 2],
 }
 
-fn setting(sc: &Scenario, crystal: usize) -> Option<Setting> {
+/// Crystal number `crystal` of the scenario with the beam's tangential wave vector.
+pub(crate) fn setting(sc: &Scenario, crystal: usize) -> Option<Setting> {
     let plate = sc
         .elements
         .iter()
@@ -146,38 +153,62 @@ fn needs_trace(p: &CrystalPlate) -> bool {
     matches!(p.medium, Medium::Biaxial(_) | Medium::Principal(_)) || p.chirality.is_some_and(|c| c.active)
 }
 
-/// (walk-off of the second mode, rad; separation, mm; retardance, rad) of the plate alone at the
-/// scenario's incidence, at `wl` and with its tilt set to `tilt_deg`, from the whole trace: the
-/// same plate as [`plate_numbers`] describes (placement left out), for any crystal.
-fn traced_numbers(sc: &Scenario, p: &CrystalPlate, tilt_deg: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
-    let plate = CrystalPlate {
-        tilt_deg,
-        placement: Placement::default(),
-        ..*p
-    };
-    let alone = Scenario {
-        wavelength: wl,
+/// The scenario's incident beam on `plate` alone (version 1's plate: its placement left out) at
+/// the scenario's wavelength and temperature, as a scenario of its own.
+pub(crate) fn plate_alone(sc: &Scenario, plate: &CrystalPlate) -> Scenario {
+    Scenario {
         elements: vec![Element {
             gap_mm: 0.0,
-            kind: ElementKind::Crystal(plate),
+            kind: ElementKind::Crystal(CrystalPlate {
+                placement: Placement::default(),
+                ..*plate
+            }),
             contact: Contact::Air,
         }],
         screen_mm: 0.0,
         ..sc.clone()
-    };
-    match trace_scenario(&alone).ok()?.elements.first()? {
-        ElementReport::Crystal {
-            modes,
-            separation_mm,
-            retardance_rad,
-            ..
-        } => Some((
-            modes.second.walkoff_deg?.to_radians(),
-            (*separation_mm)?,
-            (*retardance_rad)?,
-        )),
-        _ => None,
     }
+}
+
+/// (walk-off of the second mode, rad; separation, mm; retardance, rad) of a one-plate scenario
+/// (see [`plate_alone`]), from its exact trace: the numbers its crystal report gives (the modes'
+/// normal components over the thickness at temperature, the exit points of its two rays), without
+/// building the report. `None` when a mode is evanescent or the document does not resolve.
+pub(crate) fn traced_plate(alone: &Scenario) -> Option<(f64, f64, f64)> {
+    let (stack, _) = alone.resolve().ok()?;
+    let StackElement::Slab(slab) = stack.layers.first()?.element else {
+        return None;
+    };
+    let traced = trace(&stack);
+    let LayerTrace::Slab { modes, .. } = traced.layers.first()? else {
+        return None;
+    };
+    if !(modes[0].propagating && modes[1].propagating) {
+        return None;
+    }
+    let exit = |c: char| {
+        traced
+            .paths
+            .iter()
+            .find(|p| p.label.len() == 1 && p.label.starts_with(c))
+            .map(|p| p.exit_point_mm)
+    };
+    let [first, second] = slab.medium.letters();
+    let (a, b) = (exit(first)?, exit(second)?);
+    let separation = (b[0] - a[0]).hypot(b[1] - a[1]);
+    let k = modes[1].wave_vector();
+    let walkoff = angle_between(&k, &modes[1].ray_direction()?);
+    let retardance = stack.wavelength.k0_per_mm() * (k.z - modes[0].wave_vector().z) * slab.thickness_mm;
+    Some((walkoff, separation, retardance))
+}
+
+/// [`traced_plate`] of the plate with its tilt set to `tilt_deg`, at `wl`.
+fn traced_numbers(sc: &Scenario, p: &CrystalPlate, tilt_deg: f64, wl: Wavelength) -> Option<(f64, f64, f64)> {
+    let at = Scenario {
+        wavelength: wl,
+        ..sc.clone()
+    };
+    traced_plate(&plate_alone(&at, &CrystalPlate { tilt_deg, ..*p }))
 }
 
 /// [`plate_numbers`] of the plate at `wl` and tilt `tilt_deg`, by the closed form where it holds
@@ -197,7 +228,7 @@ fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wave
         .map(|p| (p.walkoff_rad, p.separation_mm, p.retardance_rad))
 }
 
-fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {
+pub(crate) fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {
     Series {
         title: title.into(),
         x_label: x_label.into(),

@@ -103,6 +103,8 @@ VIEW is one of:
                   plots for the first crystal of the stack
   split-wavelength, split-incidence
                   the whole set-up's split angle (largest angle between output beams)
+  retardance-temperature, separation-temperature
+                  plots for the first crystal of the stack alone, −40 to 100 °C or wider
 
   --size WxH   picture size in pixels, 50 to 10000 each [900x420]
   --dark       the dark palette

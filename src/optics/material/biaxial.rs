@@ -104,7 +104,7 @@ impl BiaxialMaterial {
 
 /// A biaxial crystal as the command line's `materials` listing shows it: `{key, name, kind,
 /// range_nm, temperature_c, citation, verified, warnings, temperature}`, `kind` always `biaxial`,
-/// `temperature` the temperature data as [`super::Thermal::describe`] gives them,
+/// `temperature` the temperature data as `Thermal::describe` gives them,
 /// `temperature_c` null where the source says only "room temperature", `verified` true (every
 /// entry has a journal source) and `warnings` empty.
 pub fn describe_biaxial(m: &BiaxialMaterial) -> serde_json::Value {

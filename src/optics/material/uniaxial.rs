@@ -177,7 +177,7 @@ impl Material {
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
 /// `{key, name, kind, sign, range_nm, citation, verified, warnings, optically_active,
-/// temperature}` (`temperature` as [`super::Thermal::describe`]), `kind` always `uniaxial`
+/// temperature}` (`temperature` as `Thermal::describe`), `kind` always `uniaxial`
 /// (biaxial crystals are described by [`super::describe_biaxial`]), `sign` spelled `positive` or
 /// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
