@@ -105,3 +105,17 @@ test('a wavelength measured in air: the page sends it as given and shows the vac
     await expectAgreement(page, cli, ['wavelength_nm', 'elements[0].separation_mm'], 'air wavelength');
   });
 });
+
+test('temperature: the control sends temperature_c, and the crystal\'s thickness and retardance follow the command line', { timeout: 90000 }, async () => {
+  await withPage('/', async (page) => {
+    await enterValue(page, 'input.num[data-field="temperature_c"]', '60');
+    const sc = await waitScenario(page, (s) => s.temperature_c === 60, 'temperature 60 °C');
+    const cli = cliTrace(sc);
+    assert.equal(cli.elements[0].temperature_c, 60);
+    assert.ok(cli.elements[0].thickness_at_temperature_mm !== cli.elements[0].thickness_mm, 'the plate grows');
+    await expectAgreement(page, cli, ['elements[0].thickness_at_temperature_mm', 'elements[0].separation_mm', 'elements[0].retardance_rad'], 'at 60 °C');
+    await enterValue(page, 'input.num[data-field="temperature_c"]', '900');
+    const msg = await waitError(page, 'temperature_c');
+    assert.match(msg, /500/, msg);
+  });
+});
