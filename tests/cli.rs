@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 17] = [
+const FLAG_CASES: [FlagCase; 19] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -374,6 +374,16 @@ const FLAG_CASES: [FlagCase; 17] = [
     FlagCase {
         flags: "waveplate --no 1.5 --ne 1.51 --retardance-waves 0.5 --order compound --base-mm 0.5",
         json: r#"{"kind": "waveplate", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "order": "compound", "base_mm": 0.5}"#,
+    },
+    FlagCase {
+        flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001",
+        json: r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"},
+                 "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001}"#,
+    },
+    FlagCase {
+        flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",
+        json: r#"{"kind": "athermal-waveplate", "first": {"no": 1.6, "ne": 1.5}, "second": {"no": 1.4, "ne": 1.41},
+                 "retardance_waves": 0.25}"#,
     },
     FlagCase {
         flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100",
@@ -631,6 +641,7 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "tilt-tuning-mgf2-order",
         "quartz-rotator-90",
         "quartz-rotator-forced-right",
+        "athermal-quartz-mgf2",
     ] {
         let out = bin()
             .arg("design")

@@ -10,6 +10,7 @@
 //! | `prism-polarizer` | [`crate::design::polarizer`] | `material` |
 //! | `tilt-tuning` | [`crate::design::tilt`] | `material`, `retardance_waves`, `thickness_mm` or `order_number` |
 //! | `quartz-rotator` | [`crate::design::rotator`] | `rotation_deg` |
+//! | `athermal-waveplate` | [`crate::design::athermal`] | `first`, `second`, `retardance_waves` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
 //! The requests are documents, read field by field in `src/contract/request/`; here each is
@@ -28,13 +29,14 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, RotatorRequest, SplitterRequest,
-    TiltRequest, WaveplateRequest,
+    AchromatRequest, AthermalRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, RotatorRequest,
+    SplitterRequest, TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
 use crate::optics::material;
 use crate::optics::wavelength::Wavelength;
+pub mod athermal;
 pub mod displacer;
 pub mod notes;
 pub mod part;
@@ -50,7 +52,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 8] = [
+pub const KINDS: [&str; 9] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -59,6 +61,7 @@ pub const KINDS: [&str; 8] = [
     "prism-polarizer",
     "tilt-tuning",
     "quartz-rotator",
+    "athermal-waveplate",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -236,7 +239,8 @@ designed!(
     splitter::SplitterDesign,
     polarizer::PolarizerDesign,
     tilt::TiltDesign,
-    rotator::RotatorDesign
+    rotator::RotatorDesign,
+    athermal::AthermalDesign
 );
 
 /// A request that uses one crystal at its `wavelength_nm`.
@@ -269,6 +273,15 @@ fn achromat_uses(r: &AchromatRequest) -> Uses {
         media: vec![("first.material", r.a), ("second.material", r.b)],
         wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
         band: Some((r.band(), r.band_nm.is_some())),
+        activity: false,
+    }
+}
+
+fn athermal_uses(r: &AthermalRequest) -> Uses {
+    Uses {
+        media: vec![("first.material", r.a), ("second.material", r.b)],
+        wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
+        band: None,
         activity: false,
     }
 }
@@ -332,6 +345,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "prism-polarizer" => answer(kind, f, PolarizerRequest::from_json, polarizer_uses, polarizer::design)?,
         "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
         "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
+        "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
         other => {
             return Err(Error::new(
                 "kind",

@@ -150,7 +150,7 @@ pub struct TemperatureSensitivity {
     pub band_bound: [Bound; 2],
 }
 
-fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
+pub(super) fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
     plates
         .iter()
         .map(|(md, l, az)| PlateSpec {
@@ -177,7 +177,7 @@ fn stack_retardance(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2]) -> Opt
 
 /// [`stack_retardance`] at `t_c` °C: each plate's indices at that temperature and its thickness
 /// grown by its expansion along z (the same numbers at 20 °C).
-fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
+pub(super) fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
     let mut total = 0.0;
     for (medium, l, az) in plates {
@@ -242,7 +242,11 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
 
 /// The retardance's temperature sensitivity and band of `plates` at `nm` for an error of
 /// `err_waves` (see the module header); `None` where the plates cannot be evaluated.
-fn temperature_sensitivity(plates: &[(Medium, f64, f64)], nm: f64, err_waves: f64) -> Option<TemperatureSensitivity> {
+pub(super) fn temperature_sensitivity(
+    plates: &[(Medium, f64, f64)],
+    nm: f64,
+    err_waves: f64,
+) -> Option<TemperatureSensitivity> {
     let at = |t: f64| stack_retardance_at(plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
     let g0 = at(REFERENCE_C)?;
     let h = TEMPERATURE_STEP_K;

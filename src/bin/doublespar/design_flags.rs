@@ -200,6 +200,23 @@ const ACHROMAT: [Flag; 9] = [
     flag("band-nm", "band_nm", P, "band to plot, SHORTEST,LONGEST in nm"),
 ];
 
+const ATHERMAL: [Flag; 9] = [
+    ACHROMAT[0],
+    ACHROMAT[1],
+    ACHROMAT[2],
+    ACHROMAT[3],
+    ACHROMAT[4],
+    ACHROMAT[5],
+    ACHROMAT[6],
+    flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]"),
+    flag(
+        "acceptance-error-waves",
+        "acceptance_error_waves",
+        N,
+        "retardance error that bounds the temperature band, waves [0.01]",
+    ),
+];
+
 const RECOMBINER: [Flag; 11] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
@@ -385,6 +402,7 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "prism-polarizer" => Some(&POLARIZER),
         "tilt-tuning" => Some(&TILT),
         "quartz-rotator" => Some(&ROTATOR),
+        "athermal-waveplate" => Some(&ATHERMAL),
         _ => None,
     }
 }

@@ -46,6 +46,7 @@ impl<'a> Report<'a> {
             "scenario",
             "band.curve",
             "wavelength_curve",
+            "temperature_curve",
             "angular",
             "monte_carlo.histogram",
         ] {
@@ -493,17 +494,25 @@ fn waveplate_tolerances(r: &mut Report) {
 /// A waveplate's retardance per kelvin and the temperature band that keeps it within the
 /// acceptance error (an edge at the contract's limit is marked as reaching at least that far).
 fn waveplate_temperature(r: &mut Report, err: &str) {
-    let t0 = r.f("temperature.design_temperature_c").map_or_else(String::new, num);
+    temperature_lines(r, err, "temperature", "");
+}
+
+/// The lines of one temperature sensitivity at `path` (`temperature`, `single_plate.temperature`),
+/// their labels prefixed by `who`.
+fn temperature_lines(r: &mut Report, err: &str, path: &str, who: &str) {
+    let t0 = r
+        .f(&format!("{path}.design_temperature_c"))
+        .map_or_else(String::new, num);
     if let (Some(k), Some(rel)) = (
-        r.f("temperature.retardance_per_kelvin_waves"),
-        r.f("temperature.relative_per_kelvin"),
+        r.f(&format!("{path}.retardance_per_kelvin_waves")),
+        r.f(&format!("{path}.relative_per_kelvin")),
     ) {
         r.line(
-            "retardance per kelvin",
+            &format!("{who}retardance per kelvin"),
             format!("{} waves/K ((1/Γ) dΓ/dT = {} /K, at {t0} °C)", num(k), num(rel)),
         );
     }
-    let (Some(band), Some(bounds)) = (r.at("temperature.band_c"), r.at("temperature.band_bound")) else {
+    let (Some(band), Some(bounds)) = (r.at(&format!("{path}.band_c")), r.at(&format!("{path}.band_bound"))) else {
         return;
     };
     let edge = |i: usize, open_mark: &str| {
@@ -517,10 +526,49 @@ fn waveplate_temperature(r: &mut Report, err: &str) {
     };
     if let (Some(lo), Some(hi)) = (edge(0, "≤ "), edge(1, "≥ ")) {
         r.line(
-            "temperature band",
+            &format!("{who}temperature band"),
             format!("{lo} to {hi}: retardance within ±{err} waves of its value at {t0} °C"),
         );
     }
+}
+
+/// An athermal pair's report: the plates, the retardance and its temperature behaviour, against
+/// a zero-order plate of the first crystal alone.
+fn athermal(r: &mut Report) {
+    let (a, b) = (plate_material(r, 0), plate_material(r, 1));
+    r.title(&format!("Athermal waveplate · {a} and {b}"));
+    r.section("What to order");
+    r.line(
+        "part",
+        "athermal waveplate: two plates of different crystals, in contact",
+    );
+    plates(r);
+    r.line("aperture", "as the beam needs (not set by this design)");
+    r.section("Performance");
+    r.quantity("wavelength", "wavelength_nm", "nm");
+    r.quantity(
+        "retardance at 20 °C",
+        "retardance_waves",
+        "waves (positive: the first plate's axis is slow)",
+    );
+    r.quantity("curvature d²Γ/dT²", "curvature_waves_per_k2", "waves/K²");
+    if let Some((lo_t, hi_t, lo, hi)) = range_of(r.v.get("temperature_curve")) {
+        r.line(
+            "retardance over temperature",
+            format!("{} to {} waves, {} °C to {} °C", num(lo), num(hi), num(lo_t), num(hi_t)),
+        );
+    }
+    r.section("Tolerances");
+    let err = r.f("acceptance_error_waves").map_or_else(String::new, num);
+    temperature_lines(r, &err, "temperature", "");
+    let single = r.f("single_plate.thickness_mm").map_or_else(String::new, num);
+    let alone = r.s("single_plate.material").unwrap_or(a.clone());
+    r.line(
+        "compared with",
+        format!("a zero-order plate of {alone} alone, {single} mm"),
+    );
+    temperature_lines(r, &err, "single_plate.temperature", "  alone: ");
+    r.notes(&[]);
 }
 
 fn achromat(r: &mut Report) {
@@ -724,6 +772,7 @@ pub fn render(answer: &Value) -> String {
         Some("prism-polarizer") => prisms::polarizer(&mut r),
         Some("tilt-tuning") => prisms::tilt(&mut r),
         Some("quartz-rotator") => rotator::rotator(&mut r),
+        Some("athermal-waveplate") => athermal(&mut r),
         _ => r.title("Design"),
     }
     r.others();

@@ -1,7 +1,7 @@
 //! The achromat request: two crystals (`first`, `second`) whose plates together hold a target
 //! retardance at two wavelengths.
 
-use super::{band, parse_medium};
+use super::{band, two_media};
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -29,18 +29,7 @@ impl AchromatRequest {
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<AchromatRequest, Error> {
-        let mut medium = |name: &'static str| -> Result<Medium, Error> {
-            let path = f.path_of(name);
-            let v = f
-                .get(name)
-                .ok_or_else(|| Error::new(&path, "is required: {\"material\": …}"))?;
-            let mut g = Fields::new(&path, v)?;
-            let m = parse_medium(&mut g)?;
-            g.finish()?;
-            Ok(m)
-        };
-        let a = medium("first")?;
-        let b = medium("second")?;
+        let (a, b) = two_media(f)?;
         let path = f.path_of("wavelengths_nm");
         let w = f
             .get("wavelengths_nm")

@@ -11,6 +11,7 @@
 //! can meet it (a crystal without birefringence, a cut without walk-off) is the solver's error.
 
 pub mod achromat;
+pub mod athermal;
 pub mod displacer;
 pub mod polarizer;
 pub mod recombiner;
@@ -20,6 +21,7 @@ pub mod tilt;
 pub mod waveplate;
 
 pub use achromat::AchromatRequest;
+pub use athermal::AthermalRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
 pub use polarizer::PolarizerRequest;
 pub use recombiner::{Middle, RecombinerRequest};
@@ -78,6 +80,25 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
 }
 
 /// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
+/// The crystals `first` and `second` of a two-plate request, each an object holding a
+/// `material` (or `no`/`ne`).
+///
+/// # Errors
+/// `first` or `second` when missing; the path of the first offending field inside them.
+fn two_media(f: &mut Fields) -> Result<(Medium, Medium), Error> {
+    let mut medium = |name: &'static str| -> Result<Medium, Error> {
+        let path = f.path_of(name);
+        let v = f
+            .get(name)
+            .ok_or_else(|| Error::new(&path, "is required: {\"material\": …}"))?;
+        let mut g = Fields::new(&path, v)?;
+        let m = parse_medium(&mut g)?;
+        g.finish()?;
+        Ok(m)
+    };
+    Ok((medium("first")?, medium("second")?))
+}
+
 fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, hi: f64) -> Result<f64, Error> {
     let path = f.path_of(name);
     let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;

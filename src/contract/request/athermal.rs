@@ -1,0 +1,75 @@
+//! The athermal waveplate request: two crystals (`first`, `second`) whose plates together give a
+//! target retardance at one wavelength with no first-order change with temperature.
+
+use super::{two_media, wavelength_field};
+use crate::contract::fields::Fields;
+use crate::contract::request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES;
+use crate::contract::scenario::Medium;
+use crate::error::{Error, in_range};
+use crate::optics::wavelength::Wavelength;
+
+/// An athermal waveplate request.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AthermalRequest {
+    /// First crystal.
+    pub a: Medium,
+    /// Second crystal.
+    pub b: Medium,
+    /// Target retardance, waves.
+    pub retardance_waves: f64,
+    /// Design wavelength.
+    pub wavelength: Wavelength,
+    /// Retardance error that bounds the temperature band, waves.
+    pub acceptance_error_waves: f64,
+}
+
+impl AthermalRequest {
+    /// Reads a request object (`"kind": "athermal-waveplate"` checked by the caller): `first` and
+    /// `second` hold a `material` (or `no`/`ne`) each.
+    ///
+    /// # Errors
+    /// The path of the first offending field.
+    pub fn from_json(f: &mut Fields) -> Result<AthermalRequest, Error> {
+        let (a, b) = two_media(f)?;
+        Ok(AthermalRequest {
+            a,
+            b,
+            retardance_waves: in_range("retardance_waves", f.required_number("retardance_waves")?, 1e-6, 1e4)?,
+            wavelength: wavelength_field(f)?,
+            acceptance_error_waves: in_range(
+                "acceptance_error_waves",
+                f.number_or("acceptance_error_waves", DEFAULT_ACCEPTANCE_ERROR_WAVES)?,
+                1e-9,
+                0.5,
+            )?,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::first_error;
+    use super::*;
+
+    #[test]
+    fn bad_requests_name_their_field() {
+        for (doc, field) in [
+            (r#"{"second": {"material": "mgf2"}, "retardance_waves": 0.25}"#, "first"),
+            (
+                r#"{"first": {"material": "quartz"}, "second": {"material": "ktp"}, "retardance_waves": 0.25}"#,
+                "second.material",
+            ),
+            (
+                r#"{"first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0}"#,
+                "retardance_waves",
+            ),
+            (
+                r#"{"first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0.25, "acceptance_error_waves": 1}"#,
+                "acceptance_error_waves",
+            ),
+        ] {
+            let e = first_error(doc, AthermalRequest::from_json);
+            assert_eq!(e.field, field, "{doc}: {e}");
+        }
+    }
+}
