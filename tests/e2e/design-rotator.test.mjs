@@ -13,63 +13,15 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
-import { ROOT, useBrowser, withPage as openAt, canvasStats, drawn, close, enterValue, mismatches, quantities, solveDesign, waitError, waitScenario } from './support.mjs';
+import { useBrowser, withPage as openAt, close, enterValue, solveDesign, waitError, waitScenario } from './support.mjs';
+import { GOLDEN, golden, field, fill, expectDesign, expectPlots, orderSheet, fig, expectRow } from './design-support.mjs';
 
 const env = useBrowser({ cli: false });
 const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), options);
 
-const GOLDEN = path.join(ROOT, 'tests', 'cli', 'design');
-/** A golden request (tests/cli/design/NAME.json) and the command line's answer to it. */
-function golden(name) {
-  const request = JSON.parse(fs.readFileSync(path.join(GOLDEN, `${name}.json`), 'utf8'));
-  const answer = JSON.parse(fs.readFileSync(path.join(GOLDEN, 'golden', `${name}.json`), 'utf8'));
-  assert.equal(answer.status, 0, `${name}: the command line solved it`);
-  return { request, design: answer.stdout };
-}
-
-const field = (p) => `[data-design-field="${p}"]`;
 // The core's default tolerances and search limit (src/contract/request/rotator.rs), which the
 // fields start from and the request then states.
 const DEFAULTS = { rotation_tolerance_deg: 0.5, ellipticity_tolerance_deg: 0.5, max_incidence_deg: 10 };
-
-/** Fills the panel: the kind first, then each [path, value] (a select is chosen, a number typed). */
-async function fill(page, entries) {
-  await page.selectOption(field('kind'), 'quartz-rotator');
-  for (const [p, v] of entries) {
-    const el = page.locator(field(p));
-    assert.ok(await el.isVisible(), `${p} is shown`);
-    if ((await el.evaluate((e) => e.tagName)) === 'SELECT') await el.selectOption(String(v));
-    else await enterValue(page, field(p), v);
-  }
-}
-
-/** Every `required` path shown, every shown design number equal to the command line's (1e-12). */
-async function expectDesign(page, design, required, what) {
-  const shown = (await quantities(page)).filter(([p]) => p.startsWith('design.'));
-  assert.deepEqual(mismatches(shown, { design }, required.map((p) => `design.${p}`)), [], `${what}: the page and the command line disagree`);
-}
-
-async function expectPlots(page, names, what) {
-  const stats = await page.evaluate(canvasStats, { selector: 'canvas[data-design-plot]' });
-  assert.deepEqual(stats.map((s) => s.plot).sort(), [...names].sort(), `${what}: the plots shown`);
-  for (const s of stats) {
-    assert.ok(drawn(s), `${what}: ${s.plot} is drawn (${s.differing} of ${s.total} pixels off the background)`);
-    assert.ok(s.label && s.label.length > 20, `${what}: ${s.plot} has a text alternative`);
-  }
-}
-
-/** The order sheet's rows (#order-sheet, written for printing) as {term: text}. */
-const orderSheet = (page) =>
-  page.evaluate(() => Object.fromEntries([...document.querySelectorAll('#order-sheet [data-order]')]
-    .map((r) => [r.dataset.order, r.querySelector('dd').textContent])));
-
-/** A golden number as the sheet writes it: `n` significant digits, no trailing zeros, "−". */
-const fig = (v, n = 4) => String(Number(v.toPrecision(n))).replace('-', '−');
-
-function expectRow(sheet, term, parts, what) {
-  assert.equal(typeof sheet[term], 'string', `${what}: the order sheet has a row "${term}" (rows: ${Object.keys(sheet).join(', ')})`);
-  for (const p of parts) assert.ok(sheet[term].includes(p), `${what}: the order sheet's "${term}" says ${JSON.stringify(p)}: ${sheet[term]}`);
-}
 
 /** `x` brought into (−90°, 90°] by whole half turns: a linear state's azimuth modulo 180°. */
 const halfTurn = (x) => x - 180 * Math.round(x / 180);
@@ -83,7 +35,7 @@ const REQUIRED = [
 test('a 90° quartz rotator agrees with the command line, draws its curves, fills the order sheet and, loaded, turns the light by 90°', { timeout: 120000 }, async () => {
   const { request, design } = golden('quartz-rotator-90');
   await withPage(async (page) => {
-    await fill(page, [['rotation_deg', 90], ['wavelength_nm', 632.8], ['band_nm[0]', 600], ['band_nm[1]', 680]]);
+    await fill(page, 'quartz-rotator', [['rotation_deg', 90], ['wavelength_nm', 632.8], ['band_nm[0]', 600], ['band_nm[1]', 680]]);
     assert.equal(await page.locator(field('material')).isVisible(), false, 'the crystal is quartz: no material to choose');
     await solveDesign(page);
     assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), { ...request, ...DEFAULTS }, 'the request the fields say');
@@ -127,7 +79,7 @@ test('a 90° quartz rotator agrees with the command line, draws its curves, fill
 test('a forced hand with a thickness floor reaches the rotation modulo 180° and says so', { timeout: 120000 }, async () => {
   const { request, design } = golden('quartz-rotator-forced-right');
   await withPage(async (page) => {
-    await fill(page, [
+    await fill(page, 'quartz-rotator', [
       ['rotation_deg', 45], ['wavelength_nm', 1064], ['handedness', 'right'], ['min_thickness_mm', 10],
       ['rotation_tolerance_deg', 0.2], ['ellipticity_tolerance_deg', 1],
     ]);
@@ -145,7 +97,7 @@ test('a forced hand with a thickness floor reaches the rotation modulo 180° and
 
 test('bad rotator values show the core\'s message beside their field and keep every entry', { timeout: 120000 }, async () => {
   await withPage(async (page) => {
-    await fill(page, [['rotation_deg', 45], ['band_nm[0]', 600], ['band_nm[1]', 700]]);
+    await fill(page, 'quartz-rotator', [['rotation_deg', 45], ['band_nm[0]', 600], ['band_nm[1]', 700]]);
     const expectFieldError = async ([p, bad], errorField, what) => {
       const before = await page.$$eval('[data-design-field]', (els) => els.map((e) => [e.dataset.designField, e.value]));
       await enterValue(page, field(p), bad);
@@ -193,7 +145,7 @@ test('a link carries the rotator\'s fields, a forced hand included', { timeout: 
   const { request } = golden('quartz-rotator-forced-right');
   let link = '';
   await withPage(async (page) => {
-    await fill(page, [
+    await fill(page, 'quartz-rotator', [
       ['rotation_deg', 45], ['wavelength_nm', 1064], ['handedness', 'right'], ['min_thickness_mm', 10],
       ['rotation_tolerance_deg', 0.2], ['ellipticity_tolerance_deg', 1],
     ]);

@@ -108,12 +108,9 @@ impl BiaxialMaterial {
 /// `temperature_c` null where the source says only "room temperature", `verified` true (every
 /// entry has a journal source) and `warnings` empty.
 pub fn describe_biaxial(m: &BiaxialMaterial) -> serde_json::Value {
-    serde_json::json!({
-        "key": m.key, "name": m.name, "kind": "biaxial",
-        "range_nm": [m.range_nm.0, m.range_nm.1], "temperature_c": m.temperature_c,
-        "citation": m.citation, "verified": true, "warnings": Vec::<String>::new(),
-        "temperature": super::thermal(m.key).map(super::Thermal::describe),
-    })
+    let mut d = super::described(m.key, m.name, "biaxial", m.range_nm, m.citation, true);
+    d["temperature_c"] = m.temperature_c.into();
+    d
 }
 
 /// Every catalogued biaxial crystal, in a fixed order.

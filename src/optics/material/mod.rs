@@ -30,6 +30,24 @@ pub use uniaxial::{Evaluated, Indices, Material, OpticalSign, catalogue, describ
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 
+/// What every catalogue crystal's description holds (`uniaxial::describe`,
+/// `biaxial::describe_biaxial` add their own): key, name, kind, range, citation, whether the
+/// source is a journal's, no warnings, and the temperature data.
+fn described(
+    key: &str,
+    name: &str,
+    kind: &str,
+    range_nm: (f64, f64),
+    citation: &str,
+    verified: bool,
+) -> serde_json::Value {
+    serde_json::json!({
+        "key": key, "name": name, "kind": kind, "range_nm": [range_nm.0, range_nm.1],
+        "citation": citation, "verified": verified, "warnings": Vec::<String>::new(),
+        "temperature": thermal(key).map(Thermal::describe),
+    })
+}
+
 /// Every catalogue key, uniaxial first then biaxial, each part in catalogue order: for messages
 /// that list what a crystal element may name once biaxial crystals are accepted there.
 pub fn all_keys() -> Vec<&'static str> {

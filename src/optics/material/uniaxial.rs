@@ -185,13 +185,11 @@ pub fn describe(m: &Material) -> serde_json::Value {
         OpticalSign::Positive => "positive",
         OpticalSign::Negative => "negative",
     };
-    serde_json::json!({
-        "key": m.key, "name": m.name, "kind": "uniaxial", "sign": sign,
-        "range_nm": [m.range_nm.0, m.range_nm.1], "citation": m.citation,
-        "verified": m.verified, "warnings": m.data_warning().into_iter().collect::<Vec<_>>(),
-        "optically_active": super::optical_activity(m.key).is_some(),
-        "temperature": super::thermal(m.key).map(super::Thermal::describe),
-    })
+    let mut d = super::described(m.key, m.name, "uniaxial", m.range_nm, m.citation, m.verified);
+    d["sign"] = sign.into();
+    d["warnings"] = m.data_warning().into_iter().collect::<Vec<_>>().into();
+    d["optically_active"] = super::optical_activity(m.key).is_some().into();
+    d
 }
 
 /// Every catalogued material, in a fixed order.
