@@ -45,8 +45,8 @@ pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes 
 pub use optics::material::{
     Activity, AirConversion, BiaxialMaterial, Indices, OpticalActivity, Principal, REFERENCE_C, STANDARD_AIR_RANGE_NM,
     air_from_vacuum, all_keys as all_material_keys, biaxial_catalogue as biaxial_materials, catalogue as materials,
-    describe as describe_material, describe_biaxial, find_biaxial, keys as material_keys, optical_activity,
-    standard_air_index, vacuum_from_air,
+    describe as describe_material, describe_biaxial, find_biaxial, find_biaxial_source, find_uniaxial_source,
+    keys as material_keys, optical_activity, spread as source_spread, standard_air_index, vacuum_from_air,
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
 pub use optics::plate::{plate_optics, tangential};

@@ -206,6 +206,16 @@ function showPolarizationKind() {
 
 const stackList = () => document.getElementById('stack-list');
 
+
+/** A dispersion source as the select names it: first author and year, "default" for the
+ * catalogue's, "unverified" for a formula without a journal source. */
+function sourceLabel(s) {
+  const [who, year] = s.key === 'data-sheet' ? ['data-sheet formula', ''] : [s.key.replace(/-(\d{4})$/, ''), s.key.match(/\d{4}$/)?.[0] ?? ''];
+  const name = `${who.charAt(0).toUpperCase()}${who.slice(1)}${year ? ` ${year}` : ''}`;
+  const notes = [s.default ? 'default' : '', s.verified === false ? 'unverified' : ''].filter(Boolean).join(', ');
+  return notes ? `${name} (${notes})` : name;
+}
+
 class Card {
   constructor(kind) {
     this.uid = uid('card');
@@ -240,6 +250,11 @@ class Card {
     f.material = new Field({ key: 'material', label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
     f.material.row.insertBefore(this.materialNote, f.material.error);
+    // The dispersion source: shown for a catalogue crystal with more than one published formula;
+    // each material keeps the source last chosen for it.
+    f.source = new Field({ key: 'source', label: 'Dispersion source', kind: 'select', options: [['', 'default']], hint: 'Published formula for the indices; the results say how far the sources disagree.' });
+    this.sourceFor = {};
+    this.sourceOptionsFor = undefined;
     f.no = new Field({ key: 'no', label: 'nₒ, ordinary index', unit: '', step: 0.001 });
     f.ne = new Field({ key: 'ne', label: 'nₑ, extraordinary index', unit: '', step: 0.001 });
     this.customBox = h('div', { className: 'subgroup custom-indices' }, f.no.row, f.ne.row);
@@ -259,7 +274,7 @@ class Card {
     this.axisTitle = h('p', { className: 'subgroup-title', text: 'Optic axis' });
     const axisBox = h('div', { className: 'subgroup axis' }, this.axisTitle, f.tilt.row, f.azimuth.row, f.roll.row, this.axisError);
     this.groups = {
-      crystal: h('div', { className: 'kind-fields' }, f.material.row, this.customBox, this.principalBox, this.chiralBox, f.thickness.row, axisBox),
+      crystal: h('div', { className: 'kind-fields' }, f.material.row, f.source.row, this.customBox, this.principalBox, this.chiralBox, f.thickness.row, axisBox),
     };
 
     // Retarder.
@@ -337,6 +352,7 @@ class Card {
     show(this.principalBox, key === CUSTOM_PRINCIPAL);
     const m = state.materialList.find((x) => x.key === key);
     show(this.chiralBox, m?.optically_active === true);
+    this.syncSources(key, m);
     this.syncAxisForm();
     if (m) {
       const unverified = m.verified === false ? ' · unverified data: no journal source' : '';
@@ -351,6 +367,22 @@ class Card {
     } else {
       this.materialNote.hidden = true;
     }
+  }
+
+  /** The source select for material `key` (catalogue entry `m`): its sources as options, the
+   * one last chosen for it kept; hidden with fewer than two sources. */
+  syncSources(key, m) {
+    const f = this.f;
+    const sources = m?.sources ?? [];
+    if (this.sourceOptionsFor !== key) {
+      if (this.sourceOptionsFor !== undefined) this.sourceFor[this.sourceOptionsFor] = f.source.value;
+      const keep = this.sourceFor[key] ?? '';
+      f.source.input.replaceChildren(...sources.map((s) => h('option', { value: s.default ? '' : s.key, text: sourceLabel(s) })));
+      f.source.set(keep);
+      this.sourceOptionsFor = key;
+    }
+    const on = sources.length > 1 || (f.source.value !== '' && m !== undefined);
+    if (f.source.row.hidden !== !on) f.source.row.hidden = !on;
   }
 
   setIndex(i, count) {
@@ -416,6 +448,7 @@ class Card {
         o.nz = f.nz.value;
       } else {
         o.material = f.material.value;
+        if (!f.source.row.hidden && f.source.value !== '') o.source = f.source.value;
       }
       if (!this.chiralBox.hidden) {
         o.handedness = f.handedness.value;
@@ -453,6 +486,8 @@ class Card {
     if (kind === 'crystal') {
       if (obj.material !== undefined) {
         f.material.set(obj.material);
+        this.sourceFor[String(obj.material)] = obj.source === undefined ? '' : obj.source;
+        this.sourceOptionsFor = undefined;
       } else if (obj.no !== undefined || obj.ne !== undefined) {
         f.material.set('custom');
         f.no.set(obj.no);

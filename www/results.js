@@ -58,7 +58,9 @@ function cellMaker(cells) {
 function shapeOf(r, showAll) {
   const parts = [
     // A crystal's rows depend on its letters and on whether it is optically active.
-    r.elements.map((e) => `${e.kind}${e.f !== undefined ? ':fs' : ''}${e.rotatory_power_deg_per_mm !== undefined ? ':active' : ''}`).join(','),
+    // So do its dispersion-source rows (none for fixed indices; the spread only where two
+    // sources hold the wavelength).
+    r.elements.map((e) => `${e.kind}${e.f !== undefined ? ':fs' : ''}${e.rotatory_power_deg_per_mm !== undefined ? ':active' : ''}${e.source !== undefined ? ':source' : ''}${e.source_spread !== undefined ? ':spread' : ''}`).join(','),
     r.rays.map((x) => x.label).join(','),
     r.spots.length,
     (r.rejected ?? []).map((x) => `${x.label}@${x.element}`).join(','),
@@ -92,6 +94,15 @@ function appendPolarizationCells(cell, tr, p, pick) {
   tr.appendChild(cell('td', `${p}.ellipse.ellipticity_deg`, (x) => pick(x).ellipse.ellipticity_deg, fmt.ellipseDeg));
   tr.appendChild(cell('td', `${p}.ellipse.handedness`, (x) => pick(x).ellipse.handedness, fmt.text, { className: 'word' }));
   tr.appendChild(cell('td', `${p}.degree_of_polarization`, (x) => pick(x).degree_of_polarization, fmt.dop));
+}
+
+/** How far a crystal's published sources disagree at the wavelength: the largest index spread
+ * and the birefringence spread, with the sources compared; a dash with one source. */
+function sourceSpread(v) {
+  if (!v || !Array.isArray(v.indices)) return '—';
+  const largest = Math.max(...v.indices);
+  const which = v.indices.length === 3 ? 'nz − nx' : 'nₑ − nₒ';
+  return `${largest.toExponential(1)} in n, ${v.birefringence.toExponential(1)} in ${which} (${v.sources.join(', ')})`;
 }
 
 /** A crystal report's two mode letters: ['f', 's'] for a biaxial crystal, ['o', 'e'] otherwise. */
@@ -131,6 +142,10 @@ function buildResults(state, r) {
       }
       if (e.rotatory_power_deg_per_mm !== undefined) {
         row('rotatory power along the axis', `${p}.rotatory_power_deg_per_mm`, (x) => x.elements[i].rotatory_power_deg_per_mm, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4)}°/mm`));
+      }
+      if (e.source !== undefined) row('dispersion source', `${p}.source`, (x) => x.elements[i].source, fmt.text);
+      if (e.source_spread !== undefined) {
+        row('sources disagree by', `${p}.source_spread.birefringence`, (x) => x.elements[i].source_spread?.birefringence, (v, x) => sourceSpread(x.elements[i].source_spread));
       }
       row('thickness at temperature', `${p}.thickness_at_temperature_mm`, (x) => x.elements[i].thickness_at_temperature_mm, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 6)} mm`));
       row(`${a}-wave index`, `${p}.${a}.index`, (x) => x.elements[i][a]?.index, fmt.index);

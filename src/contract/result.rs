@@ -14,7 +14,7 @@
 
 use crate::contract::group::{Group, groups};
 use crate::contract::resolve::Warning;
-use crate::contract::scenario::{ElementKind, Scenario};
+use crate::contract::scenario::{ElementKind, Medium as ScenarioMedium, Scenario};
 use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::interface::Losses;
@@ -30,6 +30,7 @@ use crate::optics::stokes::{self, Ellipse};
 use crate::optics::trace::trace;
 use crate::optics::traced::{LayerTrace, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::{angle_between, max_walkoff_cut};
+use crate::optics::wavelength::Wavelength;
 use crate::precision::POWER_ROUNDING;
 use crate::precision::{DEGENERATE_DIRECTION, SAME_DIRECTION_TILT};
 use nalgebra::Vector3;
@@ -124,6 +125,32 @@ pub struct ModeReport {
     pub group_index: Option<f64>,
 }
 
+/// The disagreement of a crystal's published dispersion sources at the traced wavelength (see
+/// `material::source`): largest minus smallest value over the sources whose range holds it.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SourceSpread {
+    /// The sources compared, the default first when among them.
+    pub sources: Vec<&'static str>,
+    /// Spread of each principal index, in the order n_o, n_e or n_x, n_y, n_z.
+    pub indices: Vec<f64>,
+    /// Spread of the birefringence n_e − n_o (uniaxial) or n_z − n_x (biaxial).
+    pub birefringence: f64,
+}
+
+impl SourceSpread {
+    /// The spread of `medium`'s sources at `wavelength`; `None` for fixed indices or a crystal
+    /// with fewer than two sources there.
+    pub fn of(medium: &ScenarioMedium, wavelength: Wavelength) -> Option<SourceSpread> {
+        medium.source()?;
+        let s = crate::optics::material::spread(medium.key(), wavelength)?;
+        Some(SourceSpread {
+            sources: s.sources,
+            indices: s.principal,
+            birefringence: s.birefringence,
+        })
+    }
+}
+
 /// A crystal's two modes: the first (o, or f: fast) and the second (e, or s: slow).
 #[derive(Debug, Clone, PartialEq)]
 pub struct ModePair {
@@ -156,6 +183,14 @@ pub enum ElementReport {
     Crystal {
         /// Catalogue key, or "custom".
         material: String,
+        /// The dispersion source of a catalogue crystal, e.g. `ghosh-1999` (`materials` lists
+        /// each source with its citation, range and the wavelength it was fitted in).
+        #[serde(skip_serializing_if = "Option::is_none")]
+        source: Option<&'static str>,
+        /// How far the crystal's published sources disagree at this wavelength; present when two
+        /// or more of them hold it.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        source_spread: Option<SourceSpread>,
         /// Ordinary index at the wavelength (uniaxial crystals).
         #[serde(skip_serializing_if = "Option::is_none")]
         no: Option<f64>,
@@ -626,6 +661,8 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                 let principal = CrystalIndices::of(&medium);
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
+                    source: plate.medium.source(),
+                    source_spread: SourceSpread::of(&plate.medium, stack.wavelength),
                     no: principal.uniaxial.map(|ix| ix.no),
                     ne: principal.uniaxial.map(|ix| ix.ne),
                     nx: principal.biaxial.map(|p| p[0]),

@@ -212,6 +212,22 @@ impl Medium {
             Medium::Custom(_) | Medium::Principal(_) => "custom",
         }
     }
+
+    /// The dispersion source of a catalogue crystal (e.g. `ghosh-1999`); `None` for fixed
+    /// indices.
+    pub fn source(&self) -> Option<&'static str> {
+        match self {
+            Medium::Catalogue(m) => Some(m.source),
+            Medium::Biaxial(m) => Some(m.source),
+            Medium::Custom(_) | Medium::Principal(_) => None,
+        }
+    }
+
+    /// The source when it is not the crystal's default (what a document must say to choose it).
+    pub fn chosen_source(&self) -> Option<&'static str> {
+        let default = material::source_keys(self.key()).first().copied();
+        self.source().filter(|s| Some(*s) != default)
+    }
 }
 
 /// A crystal plate.
@@ -455,8 +471,12 @@ pub fn element_json(e: &Element) -> Value {
                 v["axes"] = json!({"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg, "roll_deg": c.roll_deg});
             }
             match c.medium {
-                Medium::Catalogue(m) => v["material"] = json!(m.key),
-                Medium::Biaxial(m) => v["material"] = json!(m.key),
+                Medium::Catalogue(_) | Medium::Biaxial(_) => {
+                    v["material"] = json!(c.medium.key());
+                    if let Some(source) = c.medium.chosen_source() {
+                        v["source"] = json!(source);
+                    }
+                }
                 Medium::Custom(ix) => {
                     v["no"] = json!(ix.no);
                     v["ne"] = json!(ix.ne);
@@ -736,8 +756,8 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
     }
     let medium = match forms {
         [true, false, false] => {
-            let key = f.string("material")?.unwrap_or_default();
-            match (material::find(key), material::find_biaxial(key)) {
+            let key = f.string("material")?.unwrap_or_default().to_string();
+            match (material::find(&key), material::find_biaxial(&key)) {
                 (Some(m), _) => Medium::Catalogue(m),
                 (None, Some(m)) => Medium::Biaxial(m),
                 (None, None) => {
@@ -745,7 +765,7 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
                         &material_path,
                         format!(
                             "unknown material '{}'; known: {}",
-                            quote_text(key),
+                            quote_text(&key),
                             material::all_keys().join(", ")
                         ),
                     ));
@@ -778,7 +798,40 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
             ));
         }
     };
-    Ok(medium)
+    parse_source(f, medium)
+}
+
+/// `source`: which published dispersion formula of a catalogue crystal to use (default: the
+/// catalogue's); an error on `source` for an unknown one or for a crystal not from the catalogue.
+fn parse_source(f: &mut Fields, medium: Medium) -> Result<Medium, Error> {
+    let path = f.path_of("source");
+    let Some(name) = f.string("source")? else {
+        return Ok(medium);
+    };
+    let key = match medium {
+        Medium::Catalogue(m) => m.key,
+        Medium::Biaxial(m) => m.key,
+        Medium::Custom(_) | Medium::Principal(_) => {
+            return Err(Error::new(
+                path,
+                "a dispersion source is chosen only for a catalogue \"material\"",
+            ));
+        }
+    };
+    let found = match medium {
+        Medium::Biaxial(_) => material::find_biaxial_source(key, name).map(Medium::Biaxial),
+        _ => material::find_uniaxial_source(key, name).map(Medium::Catalogue),
+    };
+    found.ok_or_else(|| {
+        Error::new(
+            path,
+            format!(
+                "unknown source '{}' for {key}; known: {} (the first is the default)",
+                quote_text(name),
+                material::source_keys(key).join(", ")
+            ),
+        )
+    })
 }
 
 /// Orientation from `axis` {tilt, azimuth} or `axes` {tilt, azimuth, roll}: (tilt, azimuth, roll)

@@ -17,7 +17,12 @@ Crystals compared (catalogue key: ndispers class, formula):
   linbo3   CLN_Zelmon1997          Zelmon, Small & Jundt, JOSA B 14, 3319 (1997)
   yvo4     YVO4                    Shi, Zhang & Shen, J. Synth. Cryst. 30, 85 (2001)
   alpha-bbo AlphaBBO               the supplier formula (no journal source, in both)
-Calcite, quartz and rutile are not compared here: the library holds other formulas for calcite
+Other published sources (`doublespar materials` lists each crystal's under `sources`, with its
+indices at --at; compared at 20 degC, index only):
+  calcite  tropf-1995    Calcite                 Tropf, Thomas & Harris, Handbook of Optics II ch. 33, Table 22
+  linbo3   edwards-1984  CLN_Edwards1984         Edwards & Lawrence (1984) at 20 degC
+  lbo      ghosh-1995    LBO_Ghosh1995_xy        Ghosh, J. Appl. Phys. 78, 6752 (1995), room-temperature part
+The default calcite, quartz and rutile formulas are not compared here: the library holds other formulas for calcite
 and quartz (and its quartz n_e has a mistyped coefficient), and none for rutile.
 
 Principal axes from the library's principal-plane classes: in the xy plane the o-wave is
@@ -64,6 +69,19 @@ UNIAXIAL = {
     "yvo4": C.YVO4,
     "alpha-bbo": C.AlphaBBO,
 }
+
+SOURCES = {
+    ("calcite", "tropf-1995"): (C.Calcite, False),
+    ("linbo3", "edwards-1984"): (C.CLN_Edwards1984, False),
+    ("lbo", "ghosh-1995"): (C.LBO_Ghosh1995_xy, True),
+}
+
+
+def source_values(cls, biaxial, um):
+    """The library's principal indices of one source at `um` µm and 20 degC."""
+    c = cls()
+    args = [(math.pi / 2, "e"), (0.0, "e"), (0.0, "o")] if biaxial else [(math.pi / 2, "o"), (math.pi / 2, "e")]
+    return [float(c.n(um, a, T_DEGC, pol=p)) for a, p in args]
 
 
 def library_values(key, um, t_c=T_DEGC):
@@ -130,6 +148,28 @@ def main():
                               f"difference {d:.3e}")
                     if opts.verbose:
                         print(f"{key:9} {nm:7.1f} nm {t_c:6.1f} C {name} {what:11}: {a:.12f} {b:.12f} {d:.1e}")
+
+    for nm in WAVELENGTHS_NM:
+        rows = listing(opts.bin, nm)
+        for (key, source), (cls, biaxial) in SOURCES.items():
+            entry = next((s for s in rows[key]["sources"] if s["key"] == source), None)
+            if entry is None:
+                failed += 1
+                print(f"MISSING source {source} of {key}")
+                continue
+            lo, hi = entry["range_nm"]
+            if not lo <= nm <= hi:
+                continue
+            w = worst.setdefault(f"{key} {source}", [0.0, 0.0, 0])
+            w[2] += 1
+            for a, b in zip(entry["indices"], source_values(cls, biaxial, nm * 1e-3)):
+                d = abs(a - b)
+                w[0] = max(w[0], d)
+                if d <= TOL:
+                    passed += 1
+                else:
+                    failed += 1
+                    print(f"MISMATCH {key} {source} index at {nm} nm: doublespar {a!r}, ndispers {b!r}, difference {d:.3e}")
 
     print(f"ndispers {getattr(ndispers, '__version__', '?')}; largest difference per crystal "
           f"(tolerance {TOL:g}):")

@@ -188,6 +188,11 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             let indices = m.indices_at(w, t_c).map(|e| (pair(e.indices), e.warnings));
             let group = m.group_indices_at(w, t_c).map(|e| pair(e.indices));
             list_indices(&mut row, &["no", "ne"], indices, group);
+            list_sources(&mut row, m.key, w, |s| {
+                let m = doublespar::find_uniaxial_source(m.key, s)?;
+                let e = m.indices_at(w, t_c).ok()?;
+                Some(vec![e.indices.no, e.indices.ne])
+            });
             // Optically active crystals (quartz): the rotation along the optic axis of a
             // right-handed crystal, °/mm.
             if let Some(a) = doublespar::optical_activity(m.key) {
@@ -205,6 +210,10 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
             let indices = m.principal_at(w, t_c).map(|p| (p.principal.to_vec(), p.warnings));
             let group = m.group_principal_at(w, t_c).map(|p| p.principal.to_vec());
             list_indices(&mut row, &["nx", "ny", "nz"], indices, group);
+            list_sources(&mut row, m.key, w, |s| {
+                let p = doublespar::find_biaxial_source(m.key, s)?.principal_at(w, t_c).ok()?;
+                Some(p.principal.to_vec())
+            });
         }
         rows.push(row);
     }
@@ -238,6 +247,38 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
                 t["thermo_optic_source"].as_str().unwrap_or("")
             ));
         }
+        let sources = r["sources"].as_array().map_or(&[][..], Vec::as_slice);
+        let listed: Vec<String> = sources
+            .iter()
+            .map(|s| {
+                let default = if s["default"] == json!(true) { ", default" } else { "" };
+                format!(
+                    "{} ({}–{} nm, wavelengths fitted in: {}{default})",
+                    s["key"].as_str().unwrap_or(""),
+                    s["range_nm"][0],
+                    s["range_nm"][1],
+                    s["fitted_in"].as_str().unwrap_or("")
+                )
+            })
+            .collect();
+        if !listed.is_empty() {
+            let noun = if listed.len() > 1 { "sources" } else { "source" };
+            text.push_str(&format!("           {noun}: {}\n", listed.join("; ")));
+        }
+        if let Some(sp) = r["source_spread"].as_object() {
+            let d: Vec<String> = sp["indices"]
+                .as_array()
+                .into_iter()
+                .flatten()
+                .filter_map(Value::as_f64)
+                .map(|d| format!("{d:.1e}"))
+                .collect();
+            text.push_str(&format!(
+                "           sources disagree by {} (indices), {:.1e} (birefringence)\n",
+                d.join("  "),
+                sp["birefringence"].as_f64().unwrap_or(0.0)
+            ));
+        }
         if let Some(g) = r["group_indices"].as_array() {
             let g: Vec<String> = g.iter().filter_map(Value::as_f64).map(|n| format!("{n:.6}")).collect();
             text.push_str(&format!("           group indices {}\n", g.join("  ")));
@@ -261,6 +302,23 @@ fn cmd_materials(a: &[String]) -> Result<ExitCode, Usage> {
 /// name, with `group_indices` in the same order and the evaluation's warnings. Where a formula
 /// breaks down no index is listed: null, and the reason under `error`; where only the group index
 /// has none (at wavelengths so extreme that λ² overflows), `group_indices` is null.
+/// Adds each dispersion source's principal indices at the listing's wavelength (`indices` in
+/// its entry of `sources`, null where its formula breaks down) and the sources' disagreement
+/// there (`source_spread`: `{sources, indices, birefringence}`, null with fewer than two sources
+/// whose range holds the wavelength).
+fn list_sources(row: &mut Value, key: &str, w: Wavelength, indices_of: impl Fn(&str) -> Option<Vec<f64>>) {
+    if let Some(sources) = row["sources"].as_array_mut() {
+        for s in sources {
+            let values = s["key"].as_str().and_then(&indices_of);
+            s["indices"] = values.map_or(Value::Null, |v| json!(v));
+        }
+    }
+    row["source_spread"] = match doublespar::source_spread(key, w) {
+        Some(sp) => json!({"sources": sp.sources, "indices": sp.principal, "birefringence": sp.birefringence}),
+        None => Value::Null,
+    };
+}
+
 fn list_indices(
     row: &mut Value,
     names: &[&str],

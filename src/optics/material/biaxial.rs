@@ -23,6 +23,7 @@
 
 use super::dispersion::{Dispersion, Quantity};
 use super::principal_values;
+use super::source::FittedIn;
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 
@@ -42,6 +43,11 @@ pub struct BiaxialMaterial {
     pub temperature_c: Option<f64>,
     /// Authors, title, journal, volume, pages and year of the formula; the axes and temperature.
     pub citation: &'static str,
+    /// The source's key, first author and year (e.g. `kato-2002`); one crystal may have several
+    /// sources (see `biaxial_sources`), the catalogue entry being its default.
+    pub source: &'static str,
+    /// The wavelength the formula was fitted in, as far as its source says.
+    pub fitted_in: FittedIn,
 }
 
 /// The three principal values of a biaxial crystal at one wavelength, and warnings a person should
@@ -129,6 +135,52 @@ pub fn biaxial_keys() -> Vec<&'static str> {
     BIAXIAL.iter().map(|m| m.key).collect()
 }
 
+/// Every published source of the crystal `key` (compared without regard to ASCII case), its
+/// catalogue entry (the default) first; empty when `key` is not a biaxial catalogue crystal.
+pub fn biaxial_sources(key: &str) -> Vec<&'static BiaxialMaterial> {
+    let Some(default) = find_biaxial(key) else {
+        return Vec::new();
+    };
+    let mut all = vec![default];
+    all.extend(BIAXIAL_ALTERNATIVES.iter().filter(|m| m.key == default.key));
+    all
+}
+
+/// Sources other than the catalogue's default: same key, name and axes as their crystal's entry.
+static BIAXIAL_ALTERNATIVES: [BiaxialMaterial; 1] = [
+    // G. Ghosh, J. Appl. Phys. 78, 6752-6760 (1995), LBO at 20 °C (room-temperature part of his
+    // temperature-dependent formula; its thermo-optic part is not used, the crystal's temperature
+    // data being Kato's). n² = A + B/(1 − C/λ²) + D/(1 − E/λ²) = A + B λ²/(λ² − C) + D λ²/(λ² − E),
+    // C, E in µm²; coefficients as transcribed by ndispers 0.20.0. Same axes as Kato's (x ∥ a,
+    // y ∥ c, z ∥ b): the two agree to 1.6e-4 from 0.2 to 1.1 µm (computed here). No fit range
+    // published; LBO's transparency range used.
+    BiaxialMaterial {
+        key: "lbo",
+        name: "lithium triborate (LiB3O5)",
+        range_nm: (160.0, 2600.0),
+        formulas: [
+            Dispersion::Sellmeier {
+                a: 1.4426279,
+                terms: &[(1.0109932, 1.1210197e-2), (1.2363218, 91.0)],
+            },
+            Dispersion::Sellmeier {
+                a: 1.5014015,
+                terms: &[(1.0388217, 1.2157100e-2), (1.7567133, 91.0)],
+            },
+            Dispersion::Sellmeier {
+                a: 1.4489240,
+                terms: &[(1.1365228, 1.1676746e-2), (1.5830069, 91.0)],
+            },
+        ],
+        temperature_c: Some(20.0),
+        citation: "G. Ghosh, \"Temperature dispersion of refractive indices in beta-BaB2O4 and \
+                   LiB3O5 crystals for nonlinear optical devices\", Journal of Applied Physics 78, \
+                   6752-6760 (1995); x, y, z along a, c, b; 20 °C",
+        source: "ghosh-1995",
+        fitted_in: FittedIn::NotStated,
+    },
+];
+
 static BIAXIAL: [BiaxialMaterial; 3] = [
     // K. Kato, E. Takaoka, Appl. Opt. 41, 5040-5044 (2002), flux-grown KTP, 20 °C (their
     // thermo-optic correction vanishes at 20 °C). n² = A + B/(λ² − C) + D/(λ² − E), B..E in µm².
@@ -158,6 +210,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
         temperature_c: Some(20.0),
         citation: "K. Kato and E. Takaoka, \"Sellmeier and thermo-optic dispersion formulas for \
                    KTP\", Applied Optics 41, 5040-5044 (2002); x, y, z along a, b, c; 20 °C",
+        source: "kato-2002",
+        fitted_in: FittedIn::NotStated,
     },
     // K. Kato, IEEE J. Quantum Electron. 30, 2950-2952 (1994), 20 °C.
     // n² = A + B/(λ² − C) − D λ² + E λ⁴ − F λ⁶ (E = F = 0 for x). Dielectric axes x ∥ a, y ∥ c,
@@ -188,6 +242,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
         citation: "K. Kato, \"Temperature-tuned 90° phase-matching properties of LiB3O5\", IEEE \
                    Journal of Quantum Electronics 30, 2950-2952 (1994); x, y, z along a, c, b; \
                    20 °C; no fit range published, transparency range used",
+        source: "kato-1994",
+        fitted_in: FittedIn::NotStated,
     },
     // K. Miyata, N. Umemura, K. Kato, Opt. Lett. 34, 500-502 (2009), as tabulated in V. Petrov
     // et al., Laser Photonics Rev. 4, 53-98 (2010), Table 2; room temperature.
@@ -222,6 +278,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
                    generation in noncentrosymmetric BiB3O6\", Optics Letters 34, 500-502 (2009), \
                    as tabulated by V. Petrov et al., Laser & Photonics Reviews 4, 53-98 (2010); \
                    y along the two-fold axis b; room temperature",
+        source: "miyata-2009",
+        fitted_in: FittedIn::NotStated,
     },
 ];
 

@@ -5,7 +5,8 @@
 //! group index; [`uniaxial`] the uniaxial catalogue (n_o, n_e); [`biaxial`] the biaxial catalogue
 //! (n_x < n_y < n_z on the formula's dielectric axes); [`activity`] quartz's rotatory power and
 //! gyration; [`air`] the index of standard air and the conversion of an air wavelength to
-//! vacuum; [`thermal`] the indices at a temperature and the thermal expansion. This file holds what they share: evaluating a crystal's principal formulas at a
+//! vacuum; [`thermal`] the indices at a temperature and the thermal expansion; [`source`] the
+//! several published sources of one crystal and their disagreement. This file holds what they share: evaluating a crystal's principal formulas at a
 //! wavelength with its range warning and breakdown error, and the list of every key.
 //!
 //! Conventions: a [`Wavelength`] is the vacuum wavelength, handed to each formula in micrometres
@@ -17,22 +18,27 @@ pub mod activity;
 pub mod air;
 pub mod biaxial;
 pub mod dispersion;
+pub mod source;
 pub mod thermal;
 pub mod uniaxial;
 
 pub use activity::{Activity, OpticalActivity, optical_activity};
 pub use air::{AirConversion, STANDARD_AIR_RANGE_NM, air_from_vacuum, standard_air_index, vacuum_from_air};
-pub use biaxial::{BiaxialMaterial, Principal, biaxial_catalogue, biaxial_keys, describe_biaxial, find_biaxial};
+pub use biaxial::{
+    BiaxialMaterial, Principal, biaxial_catalogue, biaxial_keys, biaxial_sources, describe_biaxial, find_biaxial,
+};
 pub use dispersion::{Dispersion, Quantity};
+pub use source::{describe_sources, find_biaxial_source, find_uniaxial_source, source_keys, spread};
 pub use thermal::{REFERENCE_C, Thermal, thermal};
-pub use uniaxial::{Evaluated, Indices, Material, OpticalSign, catalogue, describe, find, keys};
+pub use uniaxial::{Evaluated, Indices, Material, OpticalSign, catalogue, describe, find, keys, uniaxial_sources};
 
 use crate::error::Error;
 use crate::optics::wavelength::Wavelength;
 
 /// What every catalogue crystal's description holds (`uniaxial::describe`,
 /// `biaxial::describe_biaxial` add their own): key, name, kind, range, citation, whether the
-/// source is a journal's, no warnings, and the temperature data.
+/// source is a journal's, no warnings, the temperature data, the default `source` and every
+/// source as `source::describe_sources` lists it (`sources`).
 fn described(
     key: &str,
     name: &str,
@@ -45,6 +51,7 @@ fn described(
         "key": key, "name": name, "kind": kind, "range_nm": [range_nm.0, range_nm.1],
         "citation": citation, "verified": verified, "warnings": Vec::<String>::new(),
         "temperature": thermal(key).map(Thermal::describe),
+        "source": source_keys(key).first(), "sources": describe_sources(key),
     })
 }
 

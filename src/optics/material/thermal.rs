@@ -107,18 +107,7 @@ impl ThermoOptic {
                 slope * (1.0 + i * dt) * dt
             }
             (ThermoOptic::EdwardsLawrence { a, b }, q) => {
-                let at = |t: f64| {
-                    let f = (t - 24.5) * (t + 24.5 + 546.0);
-                    let pole = a[2] + b[1] * f;
-                    Dispersion::PoleAndIr {
-                        a: a[0] + b[2] * f,
-                        b: a[1] + b[0] * f,
-                        c: pole * pole,
-                        d: a[3],
-                    }
-                    .quantity(q, um)
-                };
-                at(t_c)? - at(REFERENCE_C)?
+                edwards_lawrence(a, b, t_c).quantity(q, um)? - edwards_lawrence(a, b, REFERENCE_C).quantity(q, um)?
             }
         })
     }
@@ -497,16 +486,34 @@ static THERMAL: [Thermal; 11] = [
     },
 ];
 
-/// Edwards–Lawrence ordinary index (A1..A4, B1..B3 of their Table I, via ndispers 0.20.0).
+/// Edwards–Lawrence ordinary index: A1..A4 and B1..B3 of their Table I (via ndispers 0.20.0).
+pub(super) const EL_O_COEFFICIENTS: ([f64; 4], [f64; 3]) =
+    ([4.9048, 0.11775, 0.21802, 0.027153], [2.2314e-8, -2.9671e-8, 2.1429e-8]);
+/// Edwards–Lawrence extraordinary index, as [`EL_O_COEFFICIENTS`].
+pub(super) const EL_E_COEFFICIENTS: ([f64; 4], [f64; 3]) =
+    ([4.5820, 0.09921, 0.21090, 0.021940], [5.2716e-8, -4.9143e-8, 2.2971e-7]);
 const EL_O: ThermoOptic = ThermoOptic::EdwardsLawrence {
-    a: [4.9048, 0.11775, 0.21802, 0.027153],
-    b: [2.2314e-8, -2.9671e-8, 2.1429e-8],
+    a: EL_O_COEFFICIENTS.0,
+    b: EL_O_COEFFICIENTS.1,
 };
-/// Edwards–Lawrence extraordinary index.
 const EL_E: ThermoOptic = ThermoOptic::EdwardsLawrence {
-    a: [4.5820, 0.09921, 0.21090, 0.021940],
-    b: [5.2716e-8, -4.9143e-8, 2.2971e-7],
+    a: EL_E_COEFFICIENTS.0,
+    b: EL_E_COEFFICIENTS.1,
 };
+
+/// The Edwards–Lawrence formula (see [`ThermoOptic::EdwardsLawrence`]) at `t_c` °C, written in
+/// the catalogue's form n² = a + b/(λ² − c) − d λ²: the LiNbO3 source `edwards-1984` at 20 °C and
+/// its temperature shift both evaluate it.
+pub(super) const fn edwards_lawrence(a: [f64; 4], b: [f64; 3], t_c: f64) -> Dispersion {
+    let f = (t_c - 24.5) * (t_c + 24.5 + 546.0);
+    let pole = a[2] + b[1] * f;
+    Dispersion::PoleAndIr {
+        a: a[0] + b[2] * f,
+        b: a[1] + b[0] * f,
+        c: pole * pole,
+        d: a[3],
+    }
+}
 
 #[cfg(test)]
 mod tests {

@@ -13,6 +13,9 @@
 //! measurements are indices relative to air at room temperature; no air-to-vacuum correction is
 //! applied, because that correction (about 3·10⁻⁴ in n, and a relative 3·10⁻⁴ in n_e − n_o) is of
 //! the same order as the disagreement between independent sources for several crystals here.
+//! Each entry records the wavelength its formula was fitted in ([`Material::fitted_in`]); where a
+//! crystal has more than one published formula, the catalogue entry is the default source and the
+//! others are listed apart (`uniaxial_sources`; their disagreement in `super::source`).
 //! Outside its published range a formula is still evaluated (with a warning) as long as it gives a
 //! finite index n ≥ 1 away from its resonances; where it does not (a resonance, n² ≤ 0, a
 //! non-finite n², or an index below 1, which no transparent crystal has at optical wavelengths),
@@ -28,6 +31,8 @@
 
 use super::dispersion::{Dispersion, Quantity};
 use super::principal_values;
+use super::source::FittedIn;
+use super::thermal::{EL_E_COEFFICIENTS, EL_O_COEFFICIENTS, REFERENCE_C, edwards_lawrence};
 use crate::error::{Error, positive};
 use crate::optics::wavelength::Wavelength;
 
@@ -99,6 +104,11 @@ pub struct Material {
     /// Whether the formula has a journal source. An unverified formula's indices carry the
     /// warning of [`Material::data_warning`] wherever they are used.
     pub verified: bool,
+    /// The source's key, first author and year (e.g. `ghosh-1999`); one crystal may have
+    /// several sources (see `uniaxial_sources`), the catalogue entry being its default.
+    pub source: &'static str,
+    /// The wavelength the formula was fitted in, as far as its source says.
+    pub fitted_in: FittedIn,
 }
 
 /// The result of evaluating a material: the indices, and warnings a person should see (wavelength
@@ -177,7 +187,8 @@ impl Material {
 
 /// A material as the command line's `materials` listing and the page's catalogue show it:
 /// `{key, name, kind, sign, range_nm, citation, verified, warnings, optically_active,
-/// temperature}` (`temperature` as `Thermal::describe`), `kind` always `uniaxial`
+/// temperature, source, sources}` (`temperature` as `Thermal::describe`, `source` the default
+/// source's key, `sources` every source as `source::describe_sources` lists them), `kind` always `uniaxial`
 /// (biaxial crystals are described by [`super::describe_biaxial`]), `sign` spelled `positive` or
 /// `negative`, `warnings` holding `Material::data_warning` if any.
 pub fn describe(m: &Material) -> serde_json::Value {
@@ -210,6 +221,100 @@ pub fn keys() -> Vec<&'static str> {
     CATALOGUE.iter().map(|m| m.key).collect()
 }
 
+/// Every published source of the crystal `key` (compared without regard to ASCII case), its
+/// catalogue entry (the default) first; empty when `key` is not a uniaxial catalogue crystal.
+pub fn uniaxial_sources(key: &str) -> Vec<&'static Material> {
+    let Some(default) = find(key) else {
+        return Vec::new();
+    };
+    let mut all = vec![default];
+    all.extend(ALTERNATIVES.iter().filter(|m| m.key == default.key));
+    all
+}
+
+/// Sources other than the catalogue's default: same key, name and sign as their crystal's entry.
+static ALTERNATIVES: [Material; 3] = [
+    // W. J. Tropf, M. E. Thomas, T. J. Harris, "Properties of crystals and glasses", Handbook of
+    // Optics Vol. II, ch. 33 (McGraw-Hill, 1995), Table 22, calcite; as transcribed by ndispers
+    // 0.20.0 (not compared with the handbook's page). n² − 1 = Σ B λ²/(λ² − λ_i²), λ_i in µm;
+    // valid 0.2-2.2 µm (o) and 0.2-3.3 µm (e): the common range is used. Against the default
+    // (Ghosh 1999) it differs by about 3e-4 in the visible and 1.3e-3 in n_e at 2.1 µm.
+    Material {
+        key: "calcite",
+        name: "calcite (CaCO3)",
+        sign: OpticalSign::Negative,
+        range_nm: (200.0, 2200.0),
+        ordinary: Dispersion::Sellmeier {
+            a: 1.0,
+            terms: &[
+                (0.8559, 0.0588 * 0.0588),
+                (0.8391, 0.141 * 0.141),
+                (0.0009, 0.197 * 0.197),
+                (0.6845, 7.005 * 7.005),
+            ],
+        },
+        extraordinary: Dispersion::Sellmeier {
+            a: 1.0,
+            terms: &[
+                (1.0856, 0.07897 * 0.07897),
+                (0.0988, 0.142 * 0.142),
+                (0.317, 11.468 * 11.468),
+            ],
+        },
+        citation: "W. J. Tropf, M. E. Thomas and T. J. Harris, \"Properties of crystals and \
+                   glasses\", Handbook of Optics Vol. II, ch. 33 (McGraw-Hill, 1995), Table 22; \
+                   room temperature",
+        verified: true,
+        source: "tropf-1995",
+        fitted_in: FittedIn::NotStated,
+    },
+    // G. J. Edwards and M. Lawrence, Opt. Quantum Electron. 16, 373-375 (1984), congruent LiNbO3:
+    // their temperature-dependent formula (coefficients in `thermal`, which uses the same formula
+    // for every LiNbO3 source's temperature shift) evaluated at 20 °C; fitted to 0.4-3.1 µm data
+    // at 24.5 °C and used to 3.4 µm (range as ndispers 0.20.0 states it).
+    Material {
+        key: "linbo3",
+        name: "congruent lithium niobate (LiNbO3)",
+        sign: OpticalSign::Negative,
+        range_nm: (400.0, 3400.0),
+        ordinary: edwards_lawrence(EL_O_COEFFICIENTS.0, EL_O_COEFFICIENTS.1, REFERENCE_C),
+        extraordinary: edwards_lawrence(EL_E_COEFFICIENTS.0, EL_E_COEFFICIENTS.1, REFERENCE_C),
+        citation: "G. J. Edwards and M. Lawrence, \"A temperature-dependent dispersion equation \
+                   for congruently grown lithium niobate\", Optical and Quantum Electronics 16, \
+                   373-375 (1984); evaluated at 20 °C",
+        verified: true,
+        source: "edwards-1984",
+        fitted_in: FittedIn::NotStated,
+    },
+    // The formula crystal suppliers' YVO4 data sheets print (coefficients as recalled, from
+    // memory), n² = A + B/(λ² − C) − D λ². NO JOURNAL SOURCE FOUND: marked unverified. Offered
+    // because it is the one most designers meet; it differs from Shi et al. by up to 1.7e-3.
+    // Range: Shi et al.'s, the only one with a published fit.
+    Material {
+        key: "yvo4",
+        name: "yttrium orthovanadate (YVO4)",
+        sign: OpticalSign::Positive,
+        range_nm: (480.0, 1340.0),
+        ordinary: Dispersion::PoleAndIr {
+            a: 3.77834,
+            b: 0.069736,
+            c: 0.04724,
+            d: 0.0108133,
+        },
+        extraordinary: Dispersion::PoleAndIr {
+            a: 4.59905,
+            b: 0.110534,
+            c: 0.04813,
+            d: 0.012267612,
+        },
+        citation: "unverified: the formula crystal suppliers' data sheets print, no journal source \
+                   found (coefficients as recalled); temperature not stated",
+        verified: false,
+        source: "data-sheet",
+        fitted_in: FittedIn::NotStated,
+    },
+];
+
 static CATALOGUE: [Material; 8] = [
     // G. Ghosh, Opt. Commun. 163, 95-102 (1999), room temperature.
     // n² = A + B λ²/(λ² − C) + D λ²/(λ² − E), C and E in µm²; valid 0.204-2.172 µm.
@@ -231,6 +336,8 @@ static CATALOGUE: [Material; 8] = [
         citation: "G. Ghosh, \"Dispersion-equation coefficients for the refractive index and \
                    birefringence of calcite and quartz crystals\", Optics Communications 163, \
                    95-102 (1999); room temperature",
+        source: "ghosh-1999",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // G. Ghosh, Opt. Commun. 163, 95-102 (1999), room temperature; same form as calcite;
@@ -252,14 +359,15 @@ static CATALOGUE: [Material; 8] = [
         citation: "G. Ghosh, \"Dispersion-equation coefficients for the refractive index and \
                    birefringence of calcite and quartz crystals\", Optics Communications 163, \
                    95-102 (1999); room temperature",
+        source: "ghosh-1999",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // H. S. Shi, G. Zhang, H. Y. Shen, J. Synthetic Crystals 30, 85-88 (2001), 20 °C set.
     // n² = A + B/(λ² − C) − D λ²; valid 0.48-1.34 µm. Coefficients checked against the
     // transcription in the public-domain database of optical constants, not the paper (which
-    // is in Chinese). Chosen over the widely reprinted supplier formula (n_o: 3.77834, 0.069736, 0.04724, 0.0108133; n_e: 4.59905,
-    // 0.110534, 0.04813, 0.012267612) because no primary source for that one could be found;
-    // the two differ by up to 1.7e-3.
+    // is in Chinese). Chosen as the default over the widely reprinted supplier formula (the `data-sheet` source
+    // below) because no primary source for that one could be found; the two differ by up to 1.7e-3.
     Material {
         key: "yvo4",
         name: "yttrium orthovanadate (YVO4)",
@@ -280,6 +388,8 @@ static CATALOGUE: [Material; 8] = [
         citation: "H. S. Shi, G. Zhang, H. Y. Shen, \"Measurement of principal refractive indices \
                    and the thermal refractive index coefficients of yttrium vanadate\", Journal of \
                    Synthetic Crystals 30, 85-88 (2001); 20 °C coefficients",
+        source: "shi-2001",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // A formula from crystal suppliers' data sheets, n² = A + B/(λ² − C) − D λ².
@@ -310,6 +420,8 @@ static CATALOGUE: [Material; 8] = [
         citation: "unverified: a formula from crystal suppliers' data sheets, no journal source \
                    found (coefficients as recalled, consistent with one supplier's data-sheet \
                    values at 266, 532 and 1064 nm to 6e-5); temperature not stated",
+        source: "data-sheet",
+        fitted_in: FittedIn::NotStated,
         verified: false,
     },
     // I. H. Malitson, M. J. Dodge, J. Opt. Soc. Am. 62, 1405 (1972) (a meeting abstract); the
@@ -342,6 +454,8 @@ static CATALOGUE: [Material; 8] = [
                    synthetic sapphire\", J. Opt. Soc. Am. 62, 1405 (1972) (abstract); formula as \
                    printed by M. J. Dodge, \"Refractive index\", in Handbook of Laser Science and \
                    Technology, Vol. IV, Optical Materials Part 2 (1986), p. 30; 20 °C",
+        source: "malitson-1972",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // M. J. Dodge, Appl. Opt. 23, 1980-1985 (1984), 19 °C.
@@ -370,6 +484,8 @@ static CATALOGUE: [Material; 8] = [
         },
         citation: "M. J. Dodge, \"Refractive properties of magnesium fluoride\", Applied Optics \
                    23, 1980-1985 (1984); 19 °C",
+        source: "dodge-1984",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // D. E. Zelmon, D. L. Small, D. Jundt, J. Opt. Soc. Am. B 14, 3319-3322 (1997),
@@ -392,6 +508,8 @@ static CATALOGUE: [Material; 8] = [
                    coefficients for congruently grown lithium niobate and 5 mol.% magnesium \
                    oxide-doped lithium niobate\", J. Opt. Soc. Am. B 14, 3319-3322 (1997); \
                    congruent crystal, 21 °C",
+        source: "zelmon-1997",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
     // J. R. DeVore, J. Opt. Soc. Am. 41, 416-419 (1951), room temperature.
@@ -416,6 +534,8 @@ static CATALOGUE: [Material; 8] = [
         },
         citation: "J. R. DeVore, \"Refractive indices of rutile and sphalerite\", J. Opt. Soc. \
                    Am. 41, 416-419 (1951); room temperature",
+        source: "devore-1951",
+        fitted_in: FittedIn::NotStated,
         verified: true,
     },
 ];
@@ -1012,6 +1132,8 @@ mod tests {
             "warnings",
             "optically_active",
             "temperature",
+            "source",
+            "sources",
         ];
         want.sort_unstable();
         let mut got = keys.clone();
