@@ -364,20 +364,26 @@ static THERMAL: [Thermal; 11] = [
     },
     Thermal {
         key: "alpha-bbo",
-        // No published thermo-optic data found for alpha-BBO; beta-BBO's dn_o/dT = −16.6e-6,
-        // dn_e/dT = −9.3e-6 /K (suppliers' values, from memory) are used as the nearest
-        // estimate, which the catalogue entry's unverified-data warning already covers.
+        // No journal thermo-optic data found for alpha-BBO. Used as the nearest estimate, which
+        // the catalogue entry's unverified-data warning already covers: beta-BBO's dn_o/dT =
+        // −16.6e-6 and dn_e/dT = −9.3e-6 /K, D. Eimerl et al., J. Appl. Phys. 62, 1968-1983
+        // (1987), as transcribed by ndispers 0.20.0 (betaBBO_Eimerl1987). An alpha-BBO supplier's
+        // data sheet (archived 2008, found by search) prints the same two numbers the other way
+        // round (−9.3e-6 ordinary, −16.6e-6 extraordinary): which index carries which is itself
+        // unsettled for alpha-BBO. Constants; 0-100 °C assumed.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(-16.6e-6),
             ThermoOptic::Constant(-16.6e-6),
             ThermoOptic::Constant(-9.3e-6),
         ],
-        thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K from suppliers' \
-                              data, from memory; constants, 0-100 °C",
-        // α∥ = 36e-6, α⊥ = 4e-6 /K: suppliers' alpha-BBO data sheets, from memory.
+        thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K (Eimerl et al., \
+                              J. Appl. Phys. 62, 1968 (1987)); an alpha-BBO data sheet swaps them; constants, \
+                              0-100 °C",
+        // α∥ = 36e-6, α⊥ = 4e-6 /K over 25-900 °C: the same alpha-BBO supplier's data sheet
+        // (archived 2008, found by search); no journal value found.
         expansion: [4e-6, 4e-6, 36e-6],
-        expansion_source: "crystal suppliers' alpha-BBO data, from memory: 36e-6 /K along c, 4e-6 /K across",
+        expansion_source: "an alpha-BBO supplier's data sheet: 36e-6 /K along c, 4e-6 /K across, 25-900 °C",
     },
     Thermal {
         key: "sapphire",
