@@ -307,7 +307,14 @@ static THERMAL: [Thermal; 11] = [
     Thermal {
         key: "quartz",
         // Tropf et al., Table 20, at 546 nm: dn_o/dT = −6.2e-6, dn_e/dT = −7.0e-6 /K (as quoted
-        // by ndispers 0.20.0). Room temperature; 0-100 °C assumed.
+        // by ndispers 0.20.0). Room temperature; 0-100 °C assumed. A second published set,
+        // T. Toyoda and M. Yabe, J. Phys. D 16, L97 (1983), as quoted by the supplier whose
+        // calcite data sheet serves above (its handbook, 5th edition, 2023, carried by the
+        // refractiveindex.info database): −5.5e-6 /K in its "∥ c" column (the ordinary index, read
+        // as for calcite) and −6.5e-6 /K across (the extraordinary), at 633 nm. The two sets differ
+        // by 0.7e-6 in dn_o/dT, about the size of the birefringence's own slope (−0.8e-6 and
+        // −1.0e-6 /K from them), so neither fixes that slope well: tests/temperature.rs compares
+        // the plate they give with a direct retardance measurement and records the gap.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(-6.2e-6),
@@ -315,9 +322,16 @@ static THERMAL: [Thermal; 11] = [
             ThermoOptic::Constant(-7.0e-6),
         ],
         thermo_optic_source: TROPF,
-        // α∥ = 7.1e-6, α⊥ = 13.2e-6 /K near 20 °C (common handbook values, from memory).
+        // α∥ = 7.1e-6, α⊥ = 13.2e-6 /K at 323 K: the same supplier's handbook (5th edition,
+        // 2023, carried by the refractiveindex.info database). A critical review of the
+        // measurements, J. A. Kosinski, J. G. Gualtieri and A. Ballato, "Thermoelasticity in
+        // quartz", ESA SP-340, 397 (1992), recommends first-order coefficients 7.50e-6 along c and
+        // 13.65e-6 /K across (its abstract): 3-6 % higher, a change of 0.5e-6 /K in an a-cut
+        // plate's retardance coefficient, about 1 % of the gap tests/temperature.rs records.
+        // 0-100 °C assumed.
         expansion: [13.2e-6, 13.2e-6, 7.1e-6],
-        expansion_source: "handbook values near 20 °C, from memory: 7.1e-6 /K along c, 13.2e-6 /K across",
+        expansion_source: "a crystal supplier's handbook (5th edition, 2023), at 323 K: 7.1e-6 /K along c, \
+                           13.2e-6 /K across; 0-100 °C",
     },
     Thermal {
         key: "yvo4",
@@ -339,20 +353,26 @@ static THERMAL: [Thermal; 11] = [
     },
     Thermal {
         key: "alpha-bbo",
-        // No published thermo-optic data found for alpha-BBO; beta-BBO's dn_o/dT = −16.6e-6,
-        // dn_e/dT = −9.3e-6 /K (suppliers' values, from memory) are used as the nearest
-        // estimate, which the catalogue entry's unverified-data warning already covers.
+        // No journal thermo-optic data found for alpha-BBO. Used as the nearest estimate, which
+        // the catalogue entry's unverified-data warning already covers: beta-BBO's dn_o/dT =
+        // −16.6e-6 and dn_e/dT = −9.3e-6 /K, D. Eimerl et al., J. Appl. Phys. 62, 1968-1983
+        // (1987), as transcribed by ndispers 0.20.0 (betaBBO_Eimerl1987). An alpha-BBO supplier's
+        // data sheet (archived 2008, found by search) prints the same two numbers the other way
+        // round (−9.3e-6 ordinary, −16.6e-6 extraordinary): which index carries which is itself
+        // unsettled for alpha-BBO. Constants; 0-100 °C assumed.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(-16.6e-6),
             ThermoOptic::Constant(-16.6e-6),
             ThermoOptic::Constant(-9.3e-6),
         ],
-        thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K from suppliers' \
-                              data, from memory; constants, 0-100 °C",
-        // α∥ = 36e-6, α⊥ = 4e-6 /K: suppliers' alpha-BBO data sheets, from memory.
+        thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K (Eimerl et al., \
+                              J. Appl. Phys. 62, 1968 (1987)); an alpha-BBO data sheet swaps them; constants, \
+                              0-100 °C",
+        // α∥ = 36e-6, α⊥ = 4e-6 /K over 25-900 °C: the same alpha-BBO supplier's data sheet
+        // (archived 2008, found by search); no journal value found.
         expansion: [4e-6, 4e-6, 36e-6],
-        expansion_source: "crystal suppliers' alpha-BBO data, from memory: 36e-6 /K along c, 4e-6 /K across",
+        expansion_source: "an alpha-BBO supplier's data sheet: 36e-6 /K along c, 4e-6 /K across, 25-900 °C",
     },
     Thermal {
         key: "sapphire",
@@ -374,7 +394,14 @@ static THERMAL: [Thermal; 11] = [
         key: "mgf2",
         // Tropf et al., Table 20, from A. Feldman et al. (NBS, 1978): dn_o/dT = +1.12e-6 /K at
         // 633 nm (as quoted by ndispers 0.20.0); dn_e/dT = +0.58e-6 /K at 633 nm from the same
-        // measurements, from memory. 0-100 °C assumed.
+        // measurements, from memory. 0-100 °C assumed. The same table gives dn_o/dT = +0.88e-6 at
+        // 1.15 µm and +1.19e-6 /K at 3.39 µm (as quoted by ndispers): no steady trend with
+        // wavelength, so the 633 nm constant serves at all. Not used: the temperature-dependent
+        // Sellmeier sets of Q. Zheng, X. Wang and D. Thompson, Opt. Mater. Express 13, 2380-2391
+        // (2023), 21-368 °C (as carried by the refractiveindex.info database); their 21.1 and
+        // 186.4 °C sets give dn_o/dT ≈ −7.8e-6 and dn_e/dT ≈ −5.7e-6 /K at 633 nm, opposite in
+        // sign to Feldman's, and a birefringence slope of +2.1e-6 /K where the direct retardance
+        // measurement (tests/temperature.rs) implies about −0.74e-6 /K.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(1.12e-6),
