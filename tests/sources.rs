@@ -113,3 +113,37 @@ fn a_chosen_source_survives_the_round_trip_and_the_default_is_not_written() {
         "the default is implied"
     );
 }
+
+#[test]
+fn a_design_request_takes_a_source_and_its_answer_states_the_source_used() {
+    use doublespar::solve_design;
+    let req = |extra: &str| {
+        let text = format!(
+            r#"{{"kind": "displacer", "material": "calcite", "separation_mm": 1, "wavelength_nm": 632.8{extra}}}"#
+        );
+        solve_design(&serde_json::from_str(&text).unwrap())
+    };
+    let default = req("").unwrap();
+    assert_eq!(default["sources"][0]["source"], "ghosh-1999");
+    assert!(default["sources"][0]["citation"].as_str().unwrap().contains("Ghosh"));
+    let other = req(r#", "source": "tropf-1995""#).unwrap();
+    assert_eq!(
+        other["sources"],
+        serde_json::json!([{"material": "calcite", "source": "tropf-1995",
+        "citation": find_uniaxial_source("calcite", "tropf-1995").unwrap().citation}])
+    );
+    // The part it hands on uses the same formula: its trace gives the designed separation.
+    let part = &other["scenario"];
+    assert_eq!(part["elements"][0]["source"], "tropf-1995");
+    let t = traced(&part.to_string());
+    let sep = t["elements"][0]["separation_mm"].as_f64().unwrap();
+    assert!((sep - 1.0).abs() < 1e-9, "traced separation {sep}");
+    // The two formulas ask for different lengths (by about the index difference's share).
+    let (a, b) = (
+        default["length_mm"].as_f64().unwrap(),
+        other["length_mm"].as_f64().unwrap(),
+    );
+    assert!(a != b && (a - b).abs() / a < 1e-2, "{a} vs {b}");
+    let e = req(r#", "source": "nobody-2000""#).unwrap_err();
+    assert_eq!(e.field, "source");
+}

@@ -223,6 +223,15 @@ impl Medium {
         }
     }
 
+    /// The citation of a catalogue crystal's dispersion source; `None` for fixed indices.
+    pub fn citation(&self) -> Option<&'static str> {
+        match self {
+            Medium::Catalogue(m) => Some(m.citation),
+            Medium::Biaxial(m) => Some(m.citation),
+            Medium::Custom(_) | Medium::Principal(_) => None,
+        }
+    }
+
     /// The source when it is not the crystal's default (what a document must say to choose it).
     pub fn chosen_source(&self) -> Option<&'static str> {
         let default = material::source_keys(self.key()).first().copied();
@@ -803,7 +812,7 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
 
 /// `source`: which published dispersion formula of a catalogue crystal to use (default: the
 /// catalogue's); an error on `source` for an unknown one or for a crystal not from the catalogue.
-fn parse_source(f: &mut Fields, medium: Medium) -> Result<Medium, Error> {
+pub(crate) fn parse_source(f: &mut Fields, medium: Medium) -> Result<Medium, Error> {
     let path = f.path_of("source");
     let Some(name) = f.string("source")? else {
         return Ok(medium);

@@ -317,10 +317,29 @@ fn tilt_uses(r: &TiltRequest) -> Uses {
     u
 }
 
+/// The dispersion source of each catalogue crystal the part uses, once per crystal and source:
+/// `[{material, source, citation}]` (empty for fixed indices only).
+fn sources_used(crystals: &[(Medium, f64)]) -> Value {
+    let mut seen: Vec<(&str, &str)> = Vec::new();
+    let mut out = Vec::new();
+    for (m, _) in crystals {
+        let (Some(source), citation) = (m.source(), m.citation()) else {
+            continue;
+        };
+        if seen.contains(&(m.key(), source)) {
+            continue;
+        }
+        seen.push((m.key(), source));
+        out.push(json!({"material": m.key(), "source": source, "citation": citation}));
+    }
+    Value::Array(out)
+}
+
 /// Solves a design request given as a parsed JSON value.
 ///
-/// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header)
-/// and `notes` (shop guidance) added.
+/// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header),
+/// `notes` (shop guidance) and `sources` (the dispersion source of each catalogue crystal used)
+/// added.
 ///
 /// # Errors
 /// The path of the first offending field of the request, or a solver's error.
@@ -356,6 +375,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
     let notes = notes::notes(&crystals, out["clear_aperture_mm"].as_f64());
     if let Value::Object(m) = &mut out {
         m.insert("warnings".into(), json!(warnings));
+        m.insert("sources".into(), sources_used(&crystals));
         // A solver's own notes (what it assumed or changed) come before the shop's.
         let mut all: Vec<Value> = m.get("notes").and_then(Value::as_array).cloned().unwrap_or_default();
         all.extend(notes.into_iter().map(Value::String));

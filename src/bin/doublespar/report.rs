@@ -118,9 +118,19 @@ impl<'a> Report<'a> {
         }
     }
 
-    /// Notes and warnings: the listed text fields and any `warnings` / `notes` list.
+    /// Notes and warnings: the dispersion source of each crystal (`sources`), the listed text
+    /// fields and any `warnings` / `notes` list.
     fn notes(&mut self, texts: &[&str]) {
         let mut items: Vec<String> = Vec::new();
+        for s in self.at("sources").and_then(Value::as_array).into_iter().flatten() {
+            let text = |k: &str| s.get(k).and_then(Value::as_str).unwrap_or_default();
+            items.push(format!(
+                "indices of {} from its {} formula: {}",
+                text("material"),
+                text("source"),
+                text("citation")
+            ));
+        }
         for key in ["warnings", "notes"] {
             if let Some(list) = self.at(key).and_then(Value::as_array) {
                 for w in list {

@@ -37,11 +37,12 @@ use crate::numfmt::quote;
 use crate::optics::material::{self, Indices};
 use crate::optics::wavelength::Wavelength;
 
-/// The crystal of a request: `material` (a catalogue key) or `no` and `ne` (indices 1 to 10).
+/// The crystal of a request: `material` (a catalogue key, with an optional dispersion `source`)
+/// or `no` and `ne` (indices 1 to 10).
 ///
 /// # Errors
-/// `material` when both forms or neither is given, or for an unknown key; `no` or `ne` out of
-/// range.
+/// `material` when both forms or neither is given, or for an unknown key; `source` for a source
+/// the crystal does not have, or with fixed indices; `no` or `ne` out of range.
 fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
     let path = f.path_of("material");
     match (f.has("material"), f.has("no") || f.has("ne")) {
@@ -60,7 +61,7 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
                 Error::new(&path, format!("{why}; known: {}", material::keys().join(", ")))
             })?;
             let _ = (f.get("no"), f.get("ne"));
-            Ok(Medium::Catalogue(m))
+            crate::contract::scenario::parse_source(f, Medium::Catalogue(m))
         }
         (false, true) => {
             let (pn, pe) = (f.path_of("no"), f.path_of("ne"));
