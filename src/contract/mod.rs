@@ -1,6 +1,6 @@
 //! The documents: the scenario contract read field by field (every error named by its JSON
 //! path), resolved into a stack for the physics, the result document written from a trace, and
-//! the design request documents.
+//! the design request documents; a scenario's spectrum (`spectrum`) is traced point by point.
 
 pub mod fields;
 pub mod geometry;
@@ -9,3 +9,4 @@ pub mod request;
 pub mod resolve;
 pub mod result;
 pub mod scenario;
+pub mod spectrum;

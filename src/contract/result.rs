@@ -15,6 +15,7 @@
 use crate::contract::group::{Group, groups};
 use crate::contract::resolve::Warning;
 use crate::contract::scenario::{ElementKind, Medium as ScenarioMedium, Scenario};
+use crate::contract::spectrum::{Spectrum, spectrum};
 use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::interface::Losses;
@@ -330,6 +331,9 @@ pub struct TraceResult {
     pub total_power: f64,
     /// Things the reader must know (validity ranges, evanescent modes, untraced reflections).
     pub warnings: Vec<String>,
+    /// The forward transmission against wavelength, when the scenario asks for a `spectrum`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub spectrum: Option<Spectrum>,
 }
 
 /// A ray that did not leave the stack forward (CONVENTIONS.md, version 2, `rejected`).
@@ -536,7 +540,8 @@ fn mode_report(mode: &Mode, medium: &Medium, thickness_mm: f64) -> ModeReport {
     }
 }
 
-/// Resolves, traces and reports a scenario: the whole way from document to result.
+/// Resolves, traces and reports a scenario: the whole way from document to result, with the
+/// scenario's `spectrum` traced point by point when it asks for one.
 ///
 /// # Errors
 /// From [`Scenario::resolve`]: `wavelength_nm` when a material's dispersion formula breaks down
@@ -544,7 +549,13 @@ fn mode_report(mode: &Mode, medium: &Medium, thickness_mm: f64) -> ModeReport {
 pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     let (stack, warnings) = sc.resolve()?;
     let traced = trace(&stack);
-    Ok(report(sc, &stack, &traced, warnings))
+    let mut result = report(sc, &stack, &traced, warnings);
+    if let Some(range) = &sc.spectrum {
+        let (s, warning) = spectrum(range, |nm| transmission_at(sc, nm));
+        result.warnings.extend(warning);
+        result.spectrum = Some(s);
+    }
+    Ok(result)
 }
 
 /// The spots of a traced stack: its paths grouped where their beams overlap on the screen, each
@@ -786,7 +797,26 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
         spots,
         total_power,
         warnings: notes,
+        spectrum: None,
     }
+}
+
+/// The total forward power of `sc` traced at `nm`, in its wavelength basis (vacuum, or standard
+/// air converted to vacuum as the scenario's own wavelength is).
+fn transmission_at(sc: &Scenario, nm: f64) -> Result<f64, Error> {
+    let (wavelength, air_wavelength_nm) = match sc.air_wavelength_nm {
+        Some(_) => (crate::optics::material::vacuum_from_air(nm)?.vacuum, Some(nm)),
+        None => (Wavelength::from_nm(nm)?, None),
+    };
+    let at = Scenario {
+        wavelength,
+        air_wavelength_nm,
+        spectrum: None,
+        ..sc.clone()
+    };
+    let (stack, _) = at.resolve()?;
+    let traced = trace(&stack);
+    Ok(spots(&stack, &traced).iter().map(|s| s.power).sum())
 }
 
 #[cfg(test)]

@@ -36,6 +36,7 @@
 
 use crate::contract::fields::{Fields, number_list, ranged, type_name};
 use crate::contract::geometry::{self, Contact, Piece, Placement};
+use crate::contract::spectrum::SpectrumRange;
 use crate::error::{Error, above, in_range, strictly_between};
 use crate::numfmt::{quote, quote_text};
 use crate::optics::interface::Losses;
@@ -325,6 +326,8 @@ pub struct Scenario {
     pub screen_mm: f64,
     /// Temperature of every crystal, °C (thicknesses are given at 20 °C).
     pub temperature_c: f64,
+    /// The wavelength range of a spectrum to trace as well (`spectrum`), if asked for.
+    pub spectrum: Option<SpectrumRange>,
 }
 
 impl Scenario {
@@ -404,6 +407,10 @@ impl Scenario {
         };
         let screen_mm = ranged(&mut f, "screen_mm", Some(0.0), 0.0, 1e6)?;
         let temperature_c = ranged(&mut f, "temperature_c", Some(material::REFERENCE_C), -200.0, 500.0)?;
+        let spectrum = match f.get("spectrum") {
+            None => None,
+            Some(v) => Some(SpectrumRange::from_json("spectrum", v)?),
+        };
         f.finish()?;
         Ok(Scenario {
             wavelength,
@@ -414,6 +421,7 @@ impl Scenario {
             elements,
             screen_mm,
             temperature_c,
+            spectrum,
         })
     }
 
@@ -442,6 +450,9 @@ impl Scenario {
         // before temperatures existed read the same.
         if self.temperature_c != material::REFERENCE_C {
             doc["temperature_c"] = json!(self.temperature_c);
+        }
+        if let Some(r) = &self.spectrum {
+            doc["spectrum"] = r.to_json();
         }
         doc
     }

@@ -58,6 +58,7 @@ impl Part {
                 elements,
                 screen_mm: 0.0,
                 temperature_c: crate::optics::material::REFERENCE_C,
+                spectrum: None,
             },
             states_beam: beam_diameter_mm.is_some(),
         }

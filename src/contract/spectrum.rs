@@ -1,0 +1,130 @@
+//! Spectra: the forward transmission of a scenario against wavelength, every point traced in full.
+//!
+//! Physics. At each wavelength of the range the whole scenario is resolved again (every crystal's
+//! indices from its dispersion formula at that wavelength and the scenario's temperature) and
+//! traced; the transmission is the power that leaves forward as the result's `total_power`
+//! gives it, the sum over the spots, where rays whose beams overlap add as fields weighted by
+//! their overlap. So a plate between parallel polarizers gives cos²(πΔn·d/λ) from the coherent
+//! sum of its o- and e-rays, not the ½ that adding their powers would give.
+//!
+//! Conventions. `spectrum` {`from_nm`, `to_nm`, `points`} (`../shared/CONVENTIONS.md`, "Spectra"):
+//! `points` wavelengths evenly spaced from `from_nm` to `to_nm` inclusive, in the scenario's own
+//! wavelength basis (vacuum, or standard air with `"wavelength_in": "air"`, each then converted
+//! to vacuum as the scenario's wavelength is). The scenario's `wavelength_nm` is not part of the
+//! range. A wavelength where a formula breaks down gives `null` and one warning naming the first
+//! such wavelength and the reason; out-of-range formulas are extrapolated as in a single trace,
+//! their warnings left to the trace at the scenario's own wavelength.
+//!
+//! Sources: none beyond the trace's; the checks compare with the textbook transmission of a
+//! plate between polarizers and of a stage-doubling filter (product formula) in tests/spectrum.rs.
+
+use crate::contract::fields::{Fields, ranged};
+use crate::error::Error;
+use serde::Serialize;
+use serde_json::{Value, json};
+
+/// Most points a spectrum may ask for.
+pub const MAX_POINTS: usize = 20_000;
+
+/// The range a scenario's `spectrum` asks for.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SpectrumRange {
+    /// First wavelength, nm (in the scenario's wavelength basis).
+    pub from_nm: f64,
+    /// Last wavelength, nm.
+    pub to_nm: f64,
+    /// Number of wavelengths, 2 to [`MAX_POINTS`].
+    pub points: usize,
+}
+
+impl SpectrumRange {
+    /// Reads `spectrum` {`from_nm`, `to_nm`, `points`} from the object `v` at `path`.
+    ///
+    /// # Errors
+    /// `spectrum.from_nm` or `spectrum.to_nm` outside 1 nm to 1 mm, or equal to each other;
+    /// `spectrum.points` not a whole number from 2 to 20 000; an unknown field inside.
+    pub fn from_json(path: &str, v: &Value) -> Result<SpectrumRange, Error> {
+        let mut f = Fields::new(path, v)?;
+        let from_nm = ranged(&mut f, "from_nm", None, 1.0, 1e6)?;
+        let to_nm = ranged(&mut f, "to_nm", None, 1.0, 1e6)?;
+        let points_path = f.path_of("points");
+        let points = ranged(&mut f, "points", None, 2.0, MAX_POINTS as f64)?;
+        if points.fract() != 0.0 {
+            return Err(Error::new(points_path, format!("must be a whole number, got {points}")));
+        }
+        if from_nm == to_nm {
+            return Err(Error::new(
+                f.path_of("to_nm"),
+                format!("must differ from from_nm ({from_nm} nm): a spectrum spans a range"),
+            ));
+        }
+        f.finish()?;
+        Ok(SpectrumRange {
+            from_nm,
+            to_nm,
+            points: points as usize,
+        })
+    }
+
+    /// The range as its document.
+    pub fn to_json(self) -> Value {
+        json!({"from_nm": self.from_nm, "to_nm": self.to_nm, "points": self.points})
+    }
+
+    /// The wavelengths of the range, nm, evenly spaced, both ends included exactly.
+    pub fn wavelengths_nm(&self) -> Vec<f64> {
+        let last = (self.points - 1) as f64;
+        (0..self.points)
+            .map(|i| match i {
+                0 => self.from_nm,
+                i if i + 1 == self.points => self.to_nm,
+                i => self.from_nm + (self.to_nm - self.from_nm) * (i as f64 / last),
+            })
+            .collect()
+    }
+}
+
+/// A scenario's spectrum: wavelengths and the forward transmission at each.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Spectrum {
+    /// The wavelengths, nm, in the scenario's wavelength basis.
+    pub wavelength_nm: Vec<f64>,
+    /// Forward transmission (total power of the spots) at each; `null` where a formula breaks down.
+    pub transmission: Vec<Option<f64>>,
+}
+
+/// The spectrum over `range` of a scenario whose total forward power at a wavelength (nm, in its
+/// wavelength basis) `transmission_at` gives, with a warning when some wavelengths cannot be
+/// traced.
+pub fn spectrum(
+    range: &SpectrumRange,
+    transmission_at: impl Fn(f64) -> Result<f64, Error>,
+) -> (Spectrum, Option<String>) {
+    let wavelength_nm = range.wavelengths_nm();
+    let mut first_failure: Option<(f64, Error)> = None;
+    let mut failures = 0usize;
+    let transmission = wavelength_nm
+        .iter()
+        .map(|&nm| match transmission_at(nm) {
+            Ok(t) => Some(t),
+            Err(e) => {
+                failures += 1;
+                first_failure.get_or_insert((nm, e));
+                None
+            }
+        })
+        .collect();
+    let warning = first_failure.map(|(nm, e)| {
+        format!(
+            "spectrum: {failures} of {} wavelengths could not be traced (null), the first at {nm} nm: {}",
+            range.points, e.message
+        )
+    });
+    (
+        Spectrum {
+            wavelength_nm,
+            transmission,
+        },
+        warning,
+    )
+}

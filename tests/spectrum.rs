@@ -1,0 +1,157 @@
+//! Spectra through the whole contract: `spectrum` {from_nm, to_nm, points} read, checked and
+//! written back, and the result's transmission against wavelength compared with textbook
+//! closed forms evaluated here from the catalogue's cited dispersion formula (quartz: G. Ghosh,
+//! Opt. Commun. 163, 95 (1999)).
+
+use doublespar::{Scenario, Wavelength, find_uniaxial_source, trace_scenario};
+use serde_json::Value;
+use std::f64::consts::PI;
+
+/// Quartz's birefringence n_e − n_o at `nm` from the catalogue formula, independently of the trace.
+fn quartz_dn(nm: f64) -> f64 {
+    let ix = find_uniaxial_source("quartz", "ghosh-1999")
+        .unwrap()
+        .indices(Wavelength::from_nm(nm).unwrap())
+        .unwrap()
+        .indices;
+    ix.ne - ix.no
+}
+
+/// A stack of a-cut quartz plates (axis in the faces at 45°) of `thicknesses_mm`, each behind a
+/// polarizer at 0°, with a last polarizer at `last_deg`; light linear at 0°, normal incidence.
+fn filter(thicknesses_mm: &[f64], last_deg: f64, spectrum: &str) -> String {
+    let mut elements = Vec::new();
+    for t in thicknesses_mm {
+        elements.push(r#"{"kind": "polarizer", "transmission_axis_deg": 0}"#.to_string());
+        elements.push(format!(
+            r#"{{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": {t}, "axis": {{"tilt_deg": 90, "azimuth_deg": 45}}}}"#
+        ));
+    }
+    elements.push(format!(
+        r#"{{"kind": "polarizer", "transmission_axis_deg": {last_deg}}}"#
+    ));
+    format!(
+        r#"{{"version": 2, "wavelength_nm": 600, "beam": {{"polarization": {{"kind": "linear", "azimuth_deg": 0}}}},
+        "elements": [{}], "spectrum": {spectrum}}}"#,
+        elements.join(", ")
+    )
+}
+
+fn spectrum_of(doc: &str) -> (Vec<f64>, Vec<Option<f64>>, Vec<String>) {
+    let r = serde_json::to_value(trace_scenario(&Scenario::from_json_str(doc).unwrap()).unwrap()).unwrap();
+    let s = &r["spectrum"];
+    let nums = |v: &Value| v.as_array().unwrap().iter().map(Value::as_f64).collect::<Vec<_>>();
+    let warnings = r["warnings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|w| w.as_str().unwrap().to_string())
+        .collect();
+    (
+        nums(&s["wavelength_nm"]).into_iter().map(Option::unwrap).collect(),
+        nums(&s["transmission"]),
+        warnings,
+    )
+}
+
+#[test]
+fn one_stage_between_parallel_and_crossed_polarizers_is_cos_and_sin_squared() {
+    // Textbook (e.g. Born & Wolf §15.4.4, from memory): a plate of retardance Γ at 45° between
+    // parallel polarizers transmits cos²(Γ/2), between crossed ones sin²(Γ/2), Γ = 2πΔn·d/λ.
+    let d_mm = 2.0;
+    for (last, f) in [(0.0, f64::cos as fn(f64) -> f64), (90.0, f64::sin)] {
+        let doc = filter(&[d_mm], last, r#"{"from_nm": 500, "to_nm": 700, "points": 401}"#);
+        let (nm, t, warnings) = spectrum_of(&doc);
+        assert_eq!(nm.len(), 401);
+        assert_eq!((nm[0], nm[400]), (500.0, 700.0));
+        assert!(warnings.is_empty(), "{warnings:?}");
+        let mut worst = 0.0f64;
+        for (l, t) in nm.iter().zip(&t) {
+            let g = 2.0 * PI * quartz_dn(*l) * d_mm * 1e6 / l;
+            worst = worst.max((t.unwrap() - f(g / 2.0).powi(2)).abs());
+        }
+        // The exact trace and the closed form agree to rounding (retardance ≈ 200 rad).
+        assert!(worst < 1e-9, "largest difference {worst:.2e}");
+    }
+}
+
+#[test]
+fn a_stage_doubling_filter_is_the_product_of_its_stages() {
+    // Stages of thickness d, 2d, 4d between parallel polarizers: T = Π cos²(πΔn·d_k/λ) (the
+    // product formula of the stage-doubling filter, textbook; Yariv & Yeh, Optical Waves in
+    // Crystals §5.2, from memory).
+    let d = 1.5;
+    let doc = filter(
+        &[d, 2.0 * d, 4.0 * d],
+        0.0,
+        r#"{"from_nm": 600, "to_nm": 620, "points": 2000}"#,
+    );
+    let (nm, t, _) = spectrum_of(&doc);
+    let mut worst = 0.0f64;
+    for (l, t) in nm.iter().zip(&t) {
+        let want: f64 = [d, 2.0 * d, 4.0 * d]
+            .iter()
+            .map(|dk| (PI * quartz_dn(*l) * dk * 1e6 / l).cos().powi(2))
+            .product();
+        worst = worst.max((t.unwrap() - want).abs());
+    }
+    assert!(worst < 1e-9, "largest difference {worst:.2e}");
+}
+
+#[test]
+fn each_point_is_the_trace_at_that_wavelength_in_the_scenarios_basis() {
+    for basis in ["vacuum", "air"] {
+        let doc = filter(&[0.7], 30.0, r#"{"from_nm": 450, "to_nm": 650, "points": 5}"#).replacen(
+            "\"version\": 2,",
+            &format!("\"version\": 2, \"wavelength_in\": \"{basis}\","),
+            1,
+        );
+        let (nm, t, _) = spectrum_of(&doc);
+        for (l, t) in nm.iter().zip(&t) {
+            let mut single: Value = serde_json::from_str(&doc).unwrap();
+            single.as_object_mut().unwrap().remove("spectrum");
+            single["wavelength_nm"] = (*l).into();
+            let r = trace_scenario(&Scenario::from_json(&single).unwrap()).unwrap();
+            assert_eq!(t.unwrap(), r.total_power, "{basis} at {l} nm");
+        }
+    }
+}
+
+#[test]
+fn bad_ranges_are_named_and_the_range_survives_the_round_trip() {
+    let cases = [
+        (r#"{"from_nm": 500, "to_nm": 600, "points": 1}"#, "spectrum.points"),
+        (r#"{"from_nm": 500, "to_nm": 600, "points": 2.5}"#, "spectrum.points"),
+        (r#"{"from_nm": 500, "to_nm": 600, "points": 20001}"#, "spectrum.points"),
+        (r#"{"from_nm": 500, "to_nm": 600}"#, "spectrum.points"),
+        (r#"{"from_nm": 500, "to_nm": 500, "points": 3}"#, "spectrum.to_nm"),
+        (r#"{"from_nm": 0, "to_nm": 500, "points": 3}"#, "spectrum.from_nm"),
+        (
+            r#"{"from_nm": 400, "to_nm": 500, "points": 3, "step": 1}"#,
+            "spectrum.step",
+        ),
+        (r#"[400, 500]"#, "spectrum"),
+    ];
+    for (range, field) in cases {
+        let e = Scenario::from_json_str(&filter(&[1.0], 0.0, range)).expect_err(range);
+        assert_eq!(e.field, field, "{range}: {}", e.message);
+    }
+    // A falling range is allowed: wavelengths are listed as asked.
+    let sc = Scenario::from_json_str(&filter(&[1.0], 0.0, r#"{"from_nm": 700, "to_nm": 500, "points": 3}"#)).unwrap();
+    assert_eq!(Scenario::from_json(&sc.to_json()).unwrap(), sc);
+    assert_eq!(sc.to_json()["spectrum"]["points"], 3);
+    let (nm, _, _) = spectrum_of(&sc.to_json().to_string());
+    assert_eq!(nm, [700.0, 600.0, 500.0]);
+}
+
+#[test]
+fn wavelengths_a_formula_cannot_give_are_null_with_one_warning() {
+    // Quartz's ultraviolet resonance (Ghosh: λ² = 0.0100586 µm², about 100.3 nm) lies inside
+    // 60-200 nm: there n² ≤ 0 or the pole is hit, and those points cannot be traced.
+    let (nm, t, warnings) = spectrum_of(&filter(&[0.1], 0.0, r#"{"from_nm": 60, "to_nm": 200, "points": 15}"#));
+    let missing = t.iter().filter(|x| x.is_none()).count();
+    assert!(missing > 0 && missing < nm.len(), "{t:?}");
+    let w: Vec<&String> = warnings.iter().filter(|w| w.starts_with("spectrum:")).collect();
+    assert_eq!(w.len(), 1, "{warnings:?}");
+    assert!(w[0].contains(&format!("{missing} of 15")), "{}", w[0]);
+}
