@@ -154,8 +154,11 @@ impl Serialize for ModePair {
 pub enum ElementReport {
     /// A crystal plate.
     Crystal {
-        /// Catalogue key, or "custom".
+        /// Catalogue key, "custom" (fixed indices) or "custom dispersion" (the document's formulas).
         material: String,
+        /// For "custom dispersion": `{range_nm, fitted_in, citation}` of the formulas.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        dispersion: Option<serde_json::Value>,
         /// Ordinary index at the wavelength (uniaxial crystals).
         #[serde(skip_serializing_if = "Option::is_none")]
         no: Option<f64>,
@@ -626,6 +629,10 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                 let principal = CrystalIndices::of(&medium);
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
+                    dispersion: match plate.medium {
+                        crate::contract::scenario::Medium::Formula(d) => Some(d.describe()),
+                        _ => None,
+                    },
                     no: principal.uniaxial.map(|ix| ix.no),
                     ne: principal.uniaxial.map(|ix| ix.ne),
                     nx: principal.biaxial.map(|p| p[0]),
