@@ -24,28 +24,17 @@
 
 use crate::contract::fields::{Fields, number_list, type_name};
 use crate::error::Error;
-use crate::numfmt::{quote, quote_text};
-use crate::optics::material::dispersion::{Formula, MAX_TERMS};
+use crate::numfmt::quote_text;
+use crate::optics::material::dispersion::Formula;
 use crate::optics::material::{self, Quantity};
 use crate::optics::wavelength::Wavelength;
-use serde_json::{Value, json};
+use serde_json::{Map, Value};
 
-/// Longest `citation` accepted, in bytes (held inline so that a crystal stays plain data).
-pub const MAX_CITATION_BYTES: usize = 300;
+/// Longest `citation` accepted, in characters (held inline so that a crystal stays plain data).
+pub const MAX_CITATION_CHARS: usize = 240;
 
 /// The name the catalogue's messages give a custom formula, and the element report's `material`.
 pub const CUSTOM_DISPERSION: &str = "custom dispersion";
-
-/// The principal formulas of a custom crystal.
-// Held inline, not boxed, so that a crystal stays plain `Copy` data (see `Medium`).
-#[allow(clippy::large_enum_variant)]
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub enum Axes {
-    /// `o` and `e` of a uniaxial crystal (the optic axis is the third principal axis).
-    Uniaxial([Formula; 2]),
-    /// `x`, `y`, `z` on the three principal axes.
-    Biaxial([Formula; 3]),
-}
 
 /// A crystal's own dispersion: its formulas, their validity range, what they were fitted in and
 /// where they come from.
@@ -53,11 +42,15 @@ pub enum Axes {
 pub struct CustomDispersion {
     /// Validity range of the formulas, nm, `(low, high)` with 0 < low < high.
     pub range_nm: (f64, f64),
-    /// The formulas.
-    pub axes: Axes,
+    /// The principal formulas: `[o, o, e]` when given as `o` and `e` (the optic axis is the
+    /// third principal axis), else `[x, y, z]`.
+    formulas: [Formula; 3],
+    /// Whether they were given as `o` and `e`.
+    uniaxial_form: bool,
     /// Whether the source fitted the formulas to wavelengths in air (`fitted_in`: "air").
     pub fitted_in_air: bool,
-    citation: [u8; MAX_CITATION_BYTES],
+    // Characters rather than UTF-8 bytes: writing them back needs no validation.
+    citation: [char; MAX_CITATION_CHARS],
     citation_len: usize,
 }
 
@@ -80,20 +73,10 @@ impl CustomDispersion {
         })?;
         let r = number_list(&range_path, range, 2)?; // finite numbers
         if r[0] <= 0.0 {
-            return Err(Error::new(
-                format!("{range_path}[0]"),
-                format!("must be above 0 nm, got {}", quote(r[0])),
-            ));
+            return Err(Error::new(format!("{range_path}[0]"), "must be above 0 nm"));
         }
         if r[1] <= r[0] {
-            return Err(Error::new(
-                &range_path,
-                format!(
-                    "must be [low, high] with low < high, got [{}, {}]",
-                    quote(r[0]),
-                    quote(r[1])
-                ),
-            ));
+            return Err(Error::new(&range_path, "must be [low, high] with low < high"));
         }
         let uniaxial = f.has("o") || f.has("e");
         let biaxial = f.has("x") || f.has("y") || f.has("z");
@@ -106,18 +89,16 @@ impl CustomDispersion {
         }
         let mut formula = |name: &'static str| -> Result<Formula, Error> {
             let p = f.path_of(name);
-            let v = f.get(name).ok_or_else(|| {
-                Error::new(
-                    &p,
-                    "is required: {\"a\": …, \"sellmeier\": [[B, C], …], \"poles\": [[B, C], …], \"ir\": …}",
-                )
-            })?;
+            let v = f
+                .get(name)
+                .ok_or_else(|| Error::new(&p, "is required: {\"a\": …, \"sellmeier\": [[B, C], …], …}"))?;
             read_formula(&p, v)
         };
-        let axes = if biaxial {
-            Axes::Biaxial([formula("x")?, formula("y")?, formula("z")?])
+        let formulas = if biaxial {
+            [formula("x")?, formula("y")?, formula("z")?]
         } else {
-            Axes::Uniaxial([formula("o")?, formula("e")?])
+            let o = formula("o")?;
+            [o, o, formula("e")?]
         };
         for name in ["o", "e", "x", "y", "z"] {
             let _ = f.get(name);
@@ -132,32 +113,34 @@ impl CustomDispersion {
                 ));
             }
         };
-        let citation_text = f.string("citation")?.unwrap_or_default();
-        if citation_text.len() > MAX_CITATION_BYTES {
-            return Err(Error::new(
-                f.path_of("citation"),
-                format!(
-                    "is {} bytes long; at most {MAX_CITATION_BYTES} are accepted",
-                    citation_text.len()
-                ),
-            ));
+        let citation_path = f.path_of("citation");
+        let mut citation = ['\0'; MAX_CITATION_CHARS];
+        let mut citation_len = 0;
+        for ch in f.string("citation")?.unwrap_or_default().chars() {
+            let slot = citation.get_mut(citation_len).ok_or_else(|| {
+                Error::new(
+                    &citation_path,
+                    format!("is longer than {MAX_CITATION_CHARS} characters"),
+                )
+            })?;
+            *slot = ch;
+            citation_len += 1;
         }
-        let mut citation = [0u8; MAX_CITATION_BYTES];
-        citation[..citation_text.len()].copy_from_slice(citation_text.as_bytes());
         f.finish()?;
         Ok(CustomDispersion {
             range_nm: (r[0], r[1]),
-            axes,
+            formulas,
+            uniaxial_form: !biaxial,
             fitted_in_air,
             citation,
-            citation_len: citation_text.len(),
+            citation_len,
         })
     }
 
     /// The `citation` as given, if any.
-    pub fn citation(&self) -> Option<&str> {
-        let bytes = self.citation.get(..self.citation_len).unwrap_or_default();
-        std::str::from_utf8(bytes).ok().filter(|s| !s.is_empty())
+    pub fn citation(&self) -> Option<String> {
+        let chars = self.citation.get(..self.citation_len).unwrap_or_default();
+        (!chars.is_empty()).then(|| chars.iter().collect())
     }
 
     /// `fitted_in` as the document spells it.
@@ -168,36 +151,32 @@ impl CustomDispersion {
     /// The `dispersion` object this was read from, with `fitted_in` written out: reading it again
     /// gives the same crystal.
     pub fn document(&self) -> Value {
-        let mut v = json!({"range_nm": [self.range_nm.0, self.range_nm.1], "fitted_in": self.fitted_in()});
+        let mut v = Map::new();
+        v.insert("range_nm".into(), Value::from(vec![self.range_nm.0, self.range_nm.1]));
+        v.insert("fitted_in".into(), self.fitted_in().into());
         for (name, f) in self.named() {
-            v[name] = formula_json(f);
+            v.insert(name.into(), formula_json(f));
         }
         if let Some(c) = self.citation() {
-            v["citation"] = json!(c);
+            v.insert("citation".into(), c.into());
         }
-        v
-    }
-
-    /// What a crystal's report says of its formulas: `{range_nm, fitted_in, citation}`.
-    pub fn describe(&self) -> Value {
-        json!({
-            "range_nm": [self.range_nm.0, self.range_nm.1],
-            "fitted_in": self.fitted_in(),
-            "citation": self.citation(),
-        })
+        Value::Object(v)
     }
 
     /// Whether the formulas are given as `o` and `e`.
     pub fn is_uniaxial_form(&self) -> bool {
-        matches!(self.axes, Axes::Uniaxial(_))
+        self.uniaxial_form
     }
 
     /// Each formula with its field name, in document order.
-    fn named(&self) -> Vec<(&'static str, &Formula)> {
-        match &self.axes {
-            Axes::Uniaxial([o, e]) => vec![("o", o), ("e", e)],
-            Axes::Biaxial([x, y, z]) => vec![("x", x), ("y", y), ("z", z)],
-        }
+    fn named(&self) -> impl Iterator<Item = (&'static str, &Formula)> {
+        let [a, b, c] = &self.formulas;
+        let all = if self.uniaxial_form {
+            [("o", a), ("e", c), ("", c)]
+        } else {
+            [("x", a), ("y", b), ("z", c)]
+        };
+        all.into_iter().filter(|(name, _)| !name.is_empty())
     }
 
     /// The principal values of `q` at `wavelength`, `[n_o, n_o, n_e]` for the `o`/`e` form and
@@ -209,21 +188,27 @@ impl CustomDispersion {
     pub fn principal(&self, q: Quantity, wavelength: Wavelength) -> Result<([f64; 3], Vec<String>), Error> {
         // Messages read "the custom dispersion formula …", as the catalogue's name theirs.
         let name = "custom";
-        let values = match &self.axes {
-            Axes::Uniaxial([o, e]) => {
-                material::principal_values(name, self.range_nm, [("o", o), ("e", e)], q, wavelength)
-                    .map(|([o, e], w)| ([o, o, e], w))
-            }
-            Axes::Biaxial([x, y, z]) => {
-                material::principal_values(name, self.range_nm, [("x", x), ("y", y), ("z", z)], q, wavelength)
-            }
+        let names = if self.uniaxial_form {
+            ["o", "o", "e"]
+        } else {
+            ["x", "y", "z"]
         };
+        let [a, b, c] = &self.formulas;
+        let values = material::principal_values(
+            name,
+            self.range_nm,
+            [(names[0], a), (names[1], b), (names[2], c)],
+            q,
+            wavelength,
+        );
         values.map_err(|e| {
-            let failing = self
-                .named()
-                .into_iter()
-                .find(|(_, f)| f.quantity(q, wavelength.um()).is_err())
-                .map_or("", |(n, _)| n);
+            // The first formula that fails is the one the message is about.
+            let mut failing = names[2];
+            for (n, f) in names.iter().zip(&self.formulas).rev() {
+                if f.quantity(q, wavelength.um()).is_err() {
+                    failing = n;
+                }
+            }
             Error::new(format!("dispersion.{failing}"), e.message)
         })
     }
@@ -232,8 +217,8 @@ impl CustomDispersion {
     pub fn temperature_warning(&self, temperature_c: f64) -> Option<String> {
         (temperature_c != material::REFERENCE_C).then(|| {
             format!(
-                "the custom dispersion formula has no thermo-optic data: at {temperature_c} °C its \
-                 indices are those of the formula as given, and the thickness that of the document"
+                "the custom dispersion formula has no thermo-optic data: its indices at \
+                 {temperature_c} °C are those at 20 °C"
             )
         })
     }
@@ -242,18 +227,18 @@ impl CustomDispersion {
 /// A formula as its document: `a`, and `sellmeier`, `poles` and `ir` where they are not empty or
 /// zero.
 fn formula_json(f: &Formula) -> Value {
-    let pairs = |t: &[(f64, f64)]| t.iter().map(|&(b, c)| json!([b, c])).collect::<Vec<_>>();
-    let mut v = json!({"a": f.a()});
-    if !f.sellmeier().is_empty() {
-        v["sellmeier"] = json!(pairs(f.sellmeier()));
-    }
-    if !f.poles().is_empty() {
-        v["poles"] = json!(pairs(f.poles()));
+    let mut v = Map::new();
+    v.insert("a".into(), f.a().into());
+    for (name, terms) in [("sellmeier", f.sellmeier()), ("poles", f.poles())] {
+        if !terms.is_empty() {
+            let pairs: Vec<Value> = terms.iter().map(|&(b, c)| Value::from(vec![b, c])).collect();
+            v.insert(name.into(), pairs.into());
+        }
     }
     if f.ir() != 0.0 {
-        v["ir"] = json!(f.ir());
+        v.insert("ir".into(), f.ir().into());
     }
-    v
+    Value::Object(v)
 }
 
 /// One formula object at `path`.
@@ -271,17 +256,12 @@ fn read_formula(path: &str, v: &Value) -> Result<Formula, Error> {
                 format!("must be a list of [B, C] pairs, got {}", type_name(list)),
             ));
         };
-        if items.len() > MAX_TERMS {
-            return Err(Error::new(
-                &p,
-                format!("holds {} terms; at most {MAX_TERMS} are accepted", items.len()),
-            ));
+        let mut pairs = Vec::with_capacity(items.len());
+        for (i, item) in items.iter().enumerate() {
+            let bc = number_list(&format!("{p}[{i}]"), item, 2)?;
+            pairs.push((bc[0], bc[1]));
         }
-        items
-            .iter()
-            .enumerate()
-            .map(|(i, item)| number_list(&format!("{p}[{i}]"), item, 2).map(|bc| (bc[0], bc[1])))
-            .collect()
+        Ok(pairs)
     };
     let sellmeier = terms("sellmeier")?;
     let poles = terms("poles")?;

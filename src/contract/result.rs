@@ -156,7 +156,8 @@ pub enum ElementReport {
     Crystal {
         /// Catalogue key, "custom" (fixed indices) or "custom dispersion" (the document's formulas).
         material: String,
-        /// For "custom dispersion": `{range_nm, fitted_in, citation}` of the formulas.
+        /// For "custom dispersion": the formulas as the document gives them, with their range,
+        /// `fitted_in` and `citation`.
         #[serde(skip_serializing_if = "Option::is_none")]
         dispersion: Option<serde_json::Value>,
         /// Ordinary index at the wavelength (uniaxial crystals).
@@ -630,7 +631,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                 reports.push(ElementReport::Crystal {
                     material: plate.medium.key().to_string(),
                     dispersion: match plate.medium {
-                        crate::contract::scenario::Medium::Formula(d) => Some(d.describe()),
+                        crate::contract::scenario::Medium::Formula(d) => Some(d.document()),
                         _ => None,
                     },
                     no: principal.uniaxial.map(|ix| ix.no),

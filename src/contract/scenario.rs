@@ -194,12 +194,13 @@ impl Medium {
                 let p = m.principal_at(wavelength, temperature_c)?;
                 Ok((PrincipalIndices::Triple(p.principal), p.warnings))
             }
-            Medium::Formula(d) => {
+            _ => {
                 let (p, mut warnings) = self.principal(wavelength)?;
-                warnings.extend(d.temperature_warning(temperature_c));
+                if let Medium::Formula(d) = self {
+                    warnings.extend(d.temperature_warning(temperature_c));
+                }
                 Ok((p, warnings))
             }
-            _ => self.principal(wavelength),
         }
     }
 

@@ -243,25 +243,20 @@ impl Formula {
         let ir = finite("ir", ir)?;
         let list = |name: &str, terms: &[(f64, f64)]| -> Result<[(f64, f64); MAX_TERMS], Error> {
             if terms.len() > MAX_TERMS {
-                return Err(Error::new(
-                    name,
-                    format!("holds {} terms; at most {MAX_TERMS} are accepted", terms.len()),
-                ));
+                return Err(Error::new(name, format!("holds more than {MAX_TERMS} terms")));
             }
             let mut out = [(0.0, 0.0); MAX_TERMS];
             for (i, (slot, &(b, c))) in out.iter_mut().zip(terms).enumerate() {
-                finite(&format!("{name}[{i}][0]"), b)?;
-                let c_path = format!("{name}[{i}][1]");
-                if finite(&c_path, c)? < 0.0 {
-                    return Err(Error::new(
-                        c_path,
-                        format!(
-                            "must be 0 or more (it is a resonance wavelength squared, µm²), got {}",
-                            crate::numfmt::quote(c)
-                        ),
-                    ));
-                }
-                *slot = (b, c);
+                // c is a resonance wavelength squared, µm².
+                let (j, why) = match (b.is_finite(), c.is_finite() && c >= 0.0) {
+                    (false, _) => (0, "must be a finite number"),
+                    (_, false) => (1, "must be a finite number, 0 or more (a wavelength squared, µm²)"),
+                    _ => {
+                        *slot = (b, c);
+                        continue;
+                    }
+                };
+                return Err(Error::new(format!("{name}[{i}][{j}]"), why));
             }
             Ok(out)
         };
