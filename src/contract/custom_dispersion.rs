@@ -60,7 +60,7 @@ impl CustomDispersion {
     /// # Errors
     /// The exact field: `range_nm` (not two numbers, not positive, reversed), `o`/`e`/`x`/`y`/`z`
     /// (missing, mixed forms) and within a formula `a`, `ir`, `sellmeier[i][j]`, `poles[i][j]`
-    /// (not finite, C < 0, more than [`MAX_TERMS`] terms), `fitted_in`, `citation`, or an unknown
+    /// (not finite, C < 0, more than six terms), `fitted_in`, `citation`, or an unknown
     /// member.
     pub fn read(path: &str, v: &Value) -> Result<CustomDispersion, Error> {
         let mut f = Fields::new(path, v)?;
