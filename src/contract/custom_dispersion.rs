@@ -269,3 +269,58 @@ fn read_formula(path: &str, v: &Value) -> Result<Formula, Error> {
     f.finish()?;
     Formula::new(a, &sellmeier, &poles, ir).map_err(|e| e.within(path))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::material::{Dispersion, find, find_biaxial};
+    use serde_json::json;
+
+    /// A catalogue formula as the document's formula object (the forms a custom formula holds).
+    fn document_of(d: &Dispersion) -> Value {
+        let pairs = |t: &[(f64, f64)]| t.iter().map(|&(b, c)| json!([b, c])).collect::<Vec<_>>();
+        match *d {
+            Dispersion::Sellmeier { a, terms } => json!({"a": a, "sellmeier": pairs(terms)}),
+            Dispersion::PoleAndIr { a, b, c, d } => json!({"a": a, "poles": [[b, c]], "ir": d}),
+            Dispersion::Poles { a, poles, .. } => json!({"a": a, "poles": pairs(poles)}),
+        }
+    }
+
+    #[test]
+    fn phase_and_group_indices_are_the_catalogues_for_its_own_coefficients() {
+        // Independent of the custom path: the catalogue's evaluation of the same published
+        // formulas (calcite, G. Ghosh 1999; YVO4's pole-and-IR form; KTP, K. Kato and
+        // E. Takaoka 2002, whose formulas are two poles each). The group index is analytic in
+        // both, so equality is exact.
+        let calcite = find("calcite").expect("catalogued");
+        let yvo4 = find("yvo4").expect("catalogued");
+        let ktp = find_biaxial("ktp").expect("catalogued");
+        for nm in [450.0, 632.8, 1064.0, 1550.0] {
+            let wl = Wavelength::from_nm(nm).expect("valid");
+            for m in [calcite, yvo4] {
+                let doc = json!({"range_nm": [m.range_nm.0, m.range_nm.1],
+                                 "o": document_of(&m.ordinary), "e": document_of(&m.extraordinary)});
+                let d = CustomDispersion::read("dispersion", &doc).expect("valid");
+                let (phase, _) = d.principal(Quantity::Phase, wl).expect("defined");
+                let (group, _) = d.principal(Quantity::Group, wl).expect("defined");
+                let (ix, gx) = (
+                    m.indices(wl).expect("defined").indices,
+                    m.group_indices(wl).expect("defined").indices,
+                );
+                assert_eq!(phase, [ix.no, ix.no, ix.ne], "{} at {nm} nm", m.key);
+                assert_eq!(group, [gx.no, gx.no, gx.ne], "{} group at {nm} nm", m.key);
+            }
+            let [x, y, z] = ktp.formulas.map(|f| document_of(&f));
+            let doc = json!({"range_nm": [ktp.range_nm.0, ktp.range_nm.1], "x": x, "y": y, "z": z});
+            let d = CustomDispersion::read("dispersion", &doc).expect("valid");
+            assert_eq!(
+                d.principal(Quantity::Phase, wl).expect("defined").0,
+                ktp.principal(wl).expect("defined").principal
+            );
+            assert_eq!(
+                d.principal(Quantity::Group, wl).expect("defined").0,
+                ktp.group_principal(wl).expect("defined").principal
+            );
+        }
+    }
+}

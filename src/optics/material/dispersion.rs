@@ -545,4 +545,27 @@ mod formula_tests {
             (2.0, &[(0.5, 0.02)][..], &[(0.01, 0.03)][..], 0.001)
         );
     }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(2000))]
+        /// Random coefficients (wide magnitudes, negative strengths, poles anywhere) at random
+        /// wavelengths: never a panic, and every index given is a finite number (phase ≥ 1).
+        #[test]
+        fn random_coefficients_give_a_finite_index_or_a_reason(
+            a in -1e6f64..1e6,
+            s in proptest::collection::vec((-1e6f64..1e6, 0.0f64..1e6), 0..=MAX_TERMS),
+            p in proptest::collection::vec((-1e6f64..1e6, 0.0f64..1e6), 0..=MAX_TERMS),
+            ir in -1e3f64..1e3,
+            um in proptest::prelude::prop_oneof![1e-6f64..1e3, proptest::num::f64::ANY],
+        ) {
+            let f = Formula::new(a, &s, &p, ir).expect("finite coefficients");
+            match f.quantity(Quantity::Phase, um) {
+                Ok(n) => proptest::prop_assert!(n.is_finite() && n >= 1.0, "n = {n}"),
+                Err(why) => proptest::prop_assert!(!why.reason().is_empty()),
+            }
+            if let Ok(ng) = f.quantity(Quantity::Group, um) {
+                proptest::prop_assert!(ng.is_finite(), "n_g = {ng}");
+            }
+        }
+    }
 }
