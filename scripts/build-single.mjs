@@ -68,7 +68,7 @@ function wrapGlue(glue) {
 // The page's ES modules, in www/ beside app.js. A module that app.js (or one of these) imports
 // must be listed here, and every one listed must be reached from app.js: the build fails
 // otherwise, so that adding a module is a deliberate change to the single file too.
-const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'geometry.js', 'state.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'design-results.js', 'export.js'];
+const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'geometry.js', 'formula.js', 'state.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'design-results.js', 'export.js'];
 
 const IDENT = '[A-Za-z_$][\\w$]*';
 // A top-level declaration starts its line (the page's style): `[export ][async ]function[*] name`,

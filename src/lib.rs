@@ -42,6 +42,8 @@ pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
+pub use optics::material::Dispersion;
+pub use optics::material::dispersion::Breakdown;
 pub use optics::material::{
     Activity, AirConversion, BiaxialMaterial, Indices, OpticalActivity, Principal, REFERENCE_C, STANDARD_AIR_RANGE_NM,
     air_from_vacuum, all_keys as all_material_keys, biaxial_catalogue as biaxial_materials, catalogue as materials,

@@ -22,6 +22,7 @@ import { readNumber } from './format.js';
 import { Field, FieldErrors, SETUP_NAMES, errorSlot, toFieldError } from './field-error.js';
 import { createState, materialName } from './state.js';
 import { CardGeometry, GEOMETRY_GROUPS } from './geometry.js';
+import { CardFormula, FORMULA_GROUPS } from './formula.js';
 import { setupDesign } from './design-panel.js';
 import { setupExport, updatePrintSheet } from './export.js';
 import { renderResults, setupResults, toggleShowAll } from './results.js';
@@ -42,6 +43,8 @@ const ELEMENT_DEFAULTS = {
 };
 // The material choice of a crystal given by its three principal indices.
 const CUSTOM_PRINCIPAL = 'custom-principal';
+// The material choice of a crystal given by its own dispersion formula (formula.js).
+const CUSTOM_FORMULA = 'custom-formula';
 const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator' };
 
 // The page's state, handed to the modules that need it (state.js).
@@ -247,6 +250,7 @@ class Card {
     const matOptions = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
     matOptions.push(['custom', 'custom indices nₒ, nₑ']);
     matOptions.push([CUSTOM_PRINCIPAL, 'custom indices nx, ny, nz']);
+    matOptions.push([CUSTOM_FORMULA, 'custom formula (Sellmeier)']);
     f.material = new Field({ key: 'material', label: 'Material', kind: 'select', options: matOptions });
     this.materialNote = h('p', { className: 'hint material-note' });
     f.material.row.insertBefore(this.materialNote, f.material.error);
@@ -262,6 +266,7 @@ class Card {
     f.ny = new Field({ key: 'ny', label: 'ny, index along y', unit: '', step: 0.001 });
     f.nz = new Field({ key: 'nz', label: 'nz, index along z', unit: '', step: 0.001 });
     this.principalBox = h('div', { className: 'subgroup custom-indices' }, f.nx.row, f.ny.row, f.nz.row);
+    this.formula = new CardFormula();
     // Optical activity: shown for chiral crystals (quartz) only.
     f.handedness = new Field({ key: 'handedness', label: 'Handedness', kind: 'select', options: [['right', 'right-handed'], ['left', 'left-handed']] });
     f.activity = new Field({ key: 'optical_activity', label: 'Optical activity', kind: 'select', options: [['true', 'on'], ['false', 'off']], hint: 'Rotation along the optic axis, elliptical modes near it.' });
@@ -274,7 +279,7 @@ class Card {
     this.axisTitle = h('p', { className: 'subgroup-title', text: 'Optic axis' });
     const axisBox = h('div', { className: 'subgroup axis' }, this.axisTitle, f.tilt.row, f.azimuth.row, f.roll.row, this.axisError);
     this.groups = {
-      crystal: h('div', { className: 'kind-fields' }, f.material.row, f.source.row, this.customBox, this.principalBox, this.chiralBox, f.thickness.row, axisBox),
+      crystal: h('div', { className: 'kind-fields' }, f.material.row, f.source.row, this.customBox, this.principalBox, this.formula.box, this.chiralBox, f.thickness.row, axisBox),
     };
 
     // Retarder.
@@ -350,6 +355,7 @@ class Card {
     };
     show(this.customBox, key === 'custom');
     show(this.principalBox, key === CUSTOM_PRINCIPAL);
+    show(this.formula.box, key === CUSTOM_FORMULA);
     const m = state.materialList.find((x) => x.key === key);
     show(this.chiralBox, m?.optically_active === true);
     this.syncSources(key, m);
@@ -359,6 +365,11 @@ class Card {
       const kind = m.kind === 'biaxial' ? 'biaxial, nx < ny < nz' : `${m.sign} uniaxial${m.optically_active ? ', optically active' : ''}`;
       setText(this.materialNote, `${kind} · formula valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`);
       setAttr(this.materialNote, 'title', m.citation);
+      this.materialNote.hidden = false;
+    } else if (key === CUSTOM_FORMULA) {
+      const [lo, hi] = this.formula.range();
+      setText(this.materialNote, `Your own dispersion formula · valid ${lo}–${hi} nm`);
+      this.materialNote.removeAttribute('title');
       this.materialNote.hidden = false;
     } else if (key === 'custom' || key === CUSTOM_PRINCIPAL) {
       setText(this.materialNote, 'Fixed indices, no dispersion.');
@@ -393,6 +404,7 @@ class Card {
     this.kindField.setPath(`${p}.kind`, `element ${n}`);
     for (const field of Object.values(this.f)) field.setPath(`${p}.${field.key}`, `element ${n}`);
     this.geometry.setIndex(p, `element ${n}`);
+    this.formula.setIndex(p, `element ${n}`);
     this.syncGeometry();
     setAttr(this.cardError, 'data-error-for', p);
     setAttr(this.axisError, 'data-error-for', `${p}.${this.axisForm()}`);
@@ -409,7 +421,8 @@ class Card {
   /** Whether the crystal is given by its three principal axes (biaxial, or rolled). */
   isBiaxial() {
     const key = this.f.material.value;
-    return key === CUSTOM_PRINCIPAL || state.materialList.find((x) => x.key === key)?.kind === 'biaxial';
+    return key === CUSTOM_PRINCIPAL || (key === CUSTOM_FORMULA && this.formula.isBiaxial())
+      || state.materialList.find((x) => x.key === key)?.kind === 'biaxial';
   }
 
   /** `axes` (with roll) for a biaxial crystal or a rolled one, else `axis`. */
@@ -446,6 +459,8 @@ class Card {
         o.nx = f.nx.value;
         o.ny = f.ny.value;
         o.nz = f.nz.value;
+      } else if (f.material.value === CUSTOM_FORMULA) {
+        o.dispersion = this.formula.write();
       } else {
         o.material = f.material.value;
         if (!f.source.row.hidden && f.source.value !== '') o.source = f.source.value;
@@ -497,6 +512,9 @@ class Card {
         f.nx.set(obj.nx);
         f.ny.set(obj.ny);
         f.nz.set(obj.nz);
+      } else if (obj.dispersion !== undefined) {
+        f.material.set(CUSTOM_FORMULA);
+        this.formula.load(obj.dispersion);
       }
       f.handedness.set(obj.handedness ?? 'right');
       f.activity.set(obj.optical_activity === undefined ? 'true' : String(obj.optical_activity));
@@ -715,6 +733,7 @@ const GROUP_LABELS = {
   'elements[].axis': 'Optic axis',
   'elements[].axes': 'Principal axes',
   ...GEOMETRY_GROUPS,
+  ...FORMULA_GROUPS,
 };
 
 /** The set-up's error display (field-error.js): the controls' slots under form#controls. */
@@ -1261,7 +1280,7 @@ function onControlEvent(ev) {
     if (field.endsWith('.kind')) {
       card.changeKind(t.value);
       renumberCards();
-    } else if (field.endsWith('.material')) {
+    } else if (field.endsWith('.material') || field.includes('.dispersion.range_nm')) {
       card.showMaterial();
     } else if (field.endsWith('.contact')) {
       card.geometry.contactChanged();

@@ -182,7 +182,7 @@ impl Serialize for ModePair {
 pub enum ElementReport {
     /// A crystal plate.
     Crystal {
-        /// Catalogue key, or "custom".
+        /// Catalogue key, "custom" (fixed indices) or "custom dispersion" (the document's formulas).
         material: String,
         /// The dispersion source of a catalogue crystal, e.g. `ghosh-1999` (`materials` lists
         /// each source with its citation, range and the wavelength it was fitted in).
@@ -192,6 +192,10 @@ pub enum ElementReport {
         /// or more of them hold it.
         #[serde(skip_serializing_if = "Option::is_none")]
         source_spread: Option<SourceSpread>,
+        /// For "custom dispersion": the formulas as the document gives them, with their range,
+        /// `fitted_in` and `citation`.
+        #[serde(skip_serializing_if = "Option::is_none")]
+        dispersion: Option<serde_json::Value>,
         /// Ordinary index at the wavelength (uniaxial crystals).
         #[serde(skip_serializing_if = "Option::is_none")]
         no: Option<f64>,
@@ -674,6 +678,10 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     material: plate.medium.key().to_string(),
                     source: plate.medium.source(),
                     source_spread: SourceSpread::of(&plate.medium, stack.wavelength),
+                    dispersion: match plate.medium {
+                        crate::contract::scenario::Medium::Formula(d) => Some(d.document()),
+                        _ => None,
+                    },
                     no: principal.uniaxial.map(|ix| ix.no),
                     ne: principal.uniaxial.map(|ix| ix.ne),
                     nx: principal.biaxial.map(|p| p[0]),

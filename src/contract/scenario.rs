@@ -18,7 +18,7 @@
 //! | `beam.incidence.azimuth_deg` | 0 | −360 to 360 |
 //! | `beam.polarization` | linear, azimuth 45° | see [`Polarization`] |
 //! | `elements` | required | 1 to [`MAX_ELEMENTS`] elements, at most [`MAX_CRYSTALS`] crystals |
-//! | crystal `material`, or `no` + `ne`, or `nx` + `ny` + `nz` | required | a catalogue key (uniaxial or biaxial), or indices 1 to 10 |
+//! | crystal `material`, or `no` + `ne`, or `nx` + `ny` + `nz`, or `dispersion` | required | a catalogue key (uniaxial or biaxial), indices 1 to 10, or formulas (see [`CustomDispersion`]) |
 //! | crystal `thickness_mm` | required | above 0, at most 10 000 |
 //! | crystal `axis.tilt_deg`, `axis.azimuth_deg` | required, 0 | 0 to 180, −360 to 360 |
 //! | crystal `axes` {`tilt_deg`, `azimuth_deg`, `roll_deg`} instead of `axis` | –, 0, 0 | as `axis`; roll −360 to 360 |
@@ -34,6 +34,7 @@
 //! Plates that touch (`gap_mm` = 0) are separated by a vanishing film of the outside medium, so
 //! every face is a crystal–outside-medium face.
 
+use crate::contract::custom_dispersion::{CUSTOM_DISPERSION, CustomDispersion};
 use crate::contract::fields::{Fields, number_list, ranged, type_name};
 use crate::contract::geometry::{self, Contact, Piece, Placement};
 use crate::contract::spectrum::SpectrumRange;
@@ -94,6 +95,9 @@ pub struct Beam {
 }
 
 /// What a crystal plate is made of.
+// A custom formula is held inline (about a kilobyte) so that a medium stays plain `Copy` data,
+// as every other part of a scenario; scenarios hold at most a few dozen of them.
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Medium {
     /// A catalogued material, evaluated at the scenario's wavelength.
@@ -105,6 +109,9 @@ pub enum Medium {
     Principal([f64; 3]),
     /// A catalogued biaxial crystal, evaluated at the scenario's wavelength.
     Biaxial(&'static BiaxialMaterial),
+    /// The document's own dispersion formulas (`dispersion`), evaluated at the scenario's
+    /// wavelength.
+    Formula(CustomDispersion),
 }
 
 /// A crystal's principal indices at one wavelength.
@@ -129,7 +136,14 @@ impl Medium {
                 indices: *ix,
                 warnings: Vec::new(),
             }),
-            Medium::Principal(_) | Medium::Biaxial(_) => Err(Error::new(
+            Medium::Formula(d) if d.is_uniaxial_form() => {
+                let ([no, _, ne], warnings) = d.principal(material::Quantity::Phase, wavelength)?;
+                Ok(Evaluated {
+                    indices: Indices::new(no, ne)?,
+                    warnings,
+                })
+            }
+            Medium::Principal(_) | Medium::Biaxial(_) | Medium::Formula(_) => Err(Error::new(
                 "material",
                 "a biaxial crystal has no single pair n_o, n_e; this needs a uniaxial crystal",
             )),
@@ -148,6 +162,10 @@ impl Medium {
                 let p = m.principal(wavelength)?;
                 Ok((PrincipalIndices::Triple(p.principal), p.warnings))
             }
+            Medium::Formula(d) if !d.is_uniaxial_form() => {
+                let (p, warnings) = d.principal(material::Quantity::Phase, wavelength)?;
+                Ok((PrincipalIndices::Triple(p), warnings))
+            }
             _ => {
                 let ev = self.evaluate(wavelength)?;
                 Ok((PrincipalIndices::Uniaxial(ev.indices), ev.warnings))
@@ -157,7 +175,8 @@ impl Medium {
 
     /// The principal indices at `wavelength` and `temperature_c` (°C): the catalogue's
     /// thermo-optic data applied ([`Material::indices_at`], [`BiaxialMaterial::principal_at`]);
-    /// fixed indices are taken to hold at every temperature. At 20 °C identical to
+    /// fixed indices and custom formulas are taken to hold at every temperature (a custom formula
+    /// with a warning, as it has no thermo-optic data). At 20 °C identical to
     /// [`Medium::principal`].
     ///
     /// # Errors
@@ -176,7 +195,13 @@ impl Medium {
                 let p = m.principal_at(wavelength, temperature_c)?;
                 Ok((PrincipalIndices::Triple(p.principal), p.warnings))
             }
-            _ => self.principal(wavelength),
+            _ => {
+                let (p, mut warnings) = self.principal(wavelength)?;
+                if let Medium::Formula(d) = self {
+                    warnings.extend(d.temperature_warning(temperature_c));
+                }
+                Ok((p, warnings))
+            }
         }
     }
 
@@ -187,7 +212,7 @@ impl Medium {
         let key = match self {
             Medium::Catalogue(m) => m.key,
             Medium::Biaxial(m) => m.key,
-            Medium::Custom(_) | Medium::Principal(_) => return 0.0,
+            Medium::Custom(_) | Medium::Principal(_) | Medium::Formula(_) => return 0.0,
         };
         material::thermal(key).map_or(0.0, |t| t.expansion_along(axes, &nalgebra::Vector3::z()))
     }
@@ -205,12 +230,13 @@ impl Medium {
         Ok(self.evaluate(wavelength)?.indices)
     }
 
-    /// The catalogue key, or `"custom"` for fixed indices.
+    /// The catalogue key, `"custom"` for fixed indices or `"custom dispersion"` for formulas.
     pub fn key(&self) -> &'static str {
         match self {
             Medium::Catalogue(m) => m.key,
             Medium::Biaxial(m) => m.key,
             Medium::Custom(_) | Medium::Principal(_) => "custom",
+            Medium::Formula(_) => CUSTOM_DISPERSION,
         }
     }
 
@@ -220,7 +246,7 @@ impl Medium {
         match self {
             Medium::Catalogue(m) => Some(m.source),
             Medium::Biaxial(m) => Some(m.source),
-            Medium::Custom(_) | Medium::Principal(_) => None,
+            Medium::Custom(_) | Medium::Principal(_) | Medium::Formula(_) => None,
         }
     }
 
@@ -229,7 +255,7 @@ impl Medium {
         match self {
             Medium::Catalogue(m) => Some(m.citation),
             Medium::Biaxial(m) => Some(m.citation),
-            Medium::Custom(_) | Medium::Principal(_) => None,
+            Medium::Custom(_) | Medium::Principal(_) | Medium::Formula(_) => None,
         }
     }
 
@@ -272,6 +298,8 @@ pub struct Chirality {
 }
 
 /// One element of the stack.
+// A crystal's custom formulas are held inline (see `Medium`).
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum ElementKind {
     /// A uniaxial crystal plate.
@@ -506,6 +534,7 @@ pub fn element_json(e: &Element) -> Value {
                     v["ny"] = json!(y);
                     v["nz"] = json!(z);
                 }
+                Medium::Formula(d) => v["dispersion"] = d.document(),
             }
             if let Some(ch) = c.chirality {
                 v["handedness"] = json!(if ch.right_handed { "right" } else { "left" });
@@ -762,7 +791,7 @@ fn parse_crystal(f: &mut Fields, version: u64) -> Result<CrystalPlate, Error> {
     })
 }
 
-/// The crystal's material: a catalogue key, `no` + `ne`, or `nx` + `ny` + `nz`.
+/// The crystal's material: a catalogue key, `no` + `ne`, `nx` + `ny` + `nz`, or `dispersion`.
 fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
     let material_path = f.path_of("material");
     let forms = [
@@ -770,6 +799,16 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
         f.has("no") || f.has("ne"),
         f.has("nx") || f.has("ny") || f.has("nz"),
     ];
+    let dispersion_path = f.path_of("dispersion");
+    if let Some(d) = f.get("dispersion") {
+        if forms.contains(&true) {
+            return Err(Error::new(
+                dispersion_path,
+                "give either \"dispersion\" or one of \"material\", \"no\" and \"ne\", or \"nx\", \"ny\" and \"nz\", not several",
+            ));
+        }
+        return Ok(Medium::Formula(CustomDispersion::read(&dispersion_path, d)?));
+    }
     // Mark every alternative as known so that `finish` accepts whichever form was used.
     for name in ["material", "no", "ne", "nx", "ny", "nz"] {
         let _ = f.get(name);
@@ -806,7 +845,7 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
             return Err(Error::new(
                 material_path,
                 format!(
-                    "is required (or give \"no\" and \"ne\", or \"nx\", \"ny\" and \"nz\"); known materials: {}",
+                    "is required (or give \"no\" and \"ne\", \"nx\", \"ny\" and \"nz\", or \"dispersion\"); known materials: {}",
                     material::all_keys().join(", ")
                 ),
             ));
@@ -831,7 +870,7 @@ pub(crate) fn parse_source(f: &mut Fields, medium: Medium) -> Result<Medium, Err
     let key = match medium {
         Medium::Catalogue(m) => m.key,
         Medium::Biaxial(m) => m.key,
-        Medium::Custom(_) | Medium::Principal(_) => {
+        Medium::Custom(_) | Medium::Principal(_) | Medium::Formula(_) => {
             return Err(Error::new(
                 path,
                 "a dispersion source is chosen only for a catalogue \"material\"",

@@ -150,7 +150,11 @@ fn indices_at(plate: &CrystalPlate, wl: Wavelength) -> Option<Indices> {
 /// Whether the plate needs the whole trace: a biaxial or optically active crystal, which the
 /// uniaxial closed form of [`plate_optics`] does not describe.
 fn needs_trace(p: &CrystalPlate) -> bool {
-    matches!(p.medium, Medium::Biaxial(_) | Medium::Principal(_)) || p.chirality.is_some_and(|c| c.active)
+    match p.medium {
+        Medium::Biaxial(_) | Medium::Principal(_) => true,
+        Medium::Formula(d) => !d.is_uniaxial_form(),
+        Medium::Catalogue(_) | Medium::Custom(_) => p.chirality.is_some_and(|c| c.active),
+    }
 }
 
 /// The scenario's incident beam on `plate` alone (version 1's plate: its placement left out) at
@@ -295,6 +299,7 @@ fn wavelength_sweep(
     let (range, note) = match p.medium {
         Medium::Catalogue(m) => (m.range_nm, format!("{} over its formula's range", m.key)),
         Medium::Biaxial(m) => (m.range_nm, format!("{} over its formula's range", m.key)),
+        Medium::Formula(d) => (d.range_nm, "custom dispersion over its formula's range".to_string()),
         Medium::Custom(_) | Medium::Principal(_) => (CUSTOM_RANGE_NM, "custom indices: no dispersion".to_string()),
     };
     let value = |nm: f64| -> Option<f64> {

@@ -108,7 +108,7 @@ fn no_split(title: &str, x_label: &str, x_unit: &str, (lo, hi): (f64, f64), now:
     )
 }
 
-/// The wavelengths every crystal's formula covers (the custom range when none is catalogued).
+/// The wavelengths every crystal's formula covers (the custom range when none has a formula).
 fn common_range(sc: &Scenario) -> (f64, f64) {
     let mut range: Option<(f64, f64)> = None;
     for el in &sc.elements {
@@ -116,6 +116,7 @@ fn common_range(sc: &Scenario) -> (f64, f64) {
             ElementKind::Crystal(c) => match c.medium {
                 Medium::Catalogue(m) => Some(m.range_nm),
                 Medium::Biaxial(m) => Some(m.range_nm),
+                Medium::Formula(d) => Some(d.range_nm),
                 Medium::Custom(_) | Medium::Principal(_) => None,
             },
             _ => None,

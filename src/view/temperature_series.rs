@@ -32,6 +32,9 @@ fn temperature_sweep(sc: &Scenario, crystal: usize, words: [&str; 3], pick: fn(f
         Medium::Custom(_) | Medium::Principal(_) => {
             "custom indices: no thermal data, the plate is the same at every temperature".to_string()
         }
+        Medium::Formula(_) => {
+            "custom dispersion: no thermal data, the plate is the same at every temperature".to_string()
+        }
         _ => format!(
             "{} at {} nm, thickness given at 20 °C",
             st.plate.medium.key(),

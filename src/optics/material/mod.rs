@@ -69,10 +69,10 @@ pub fn all_keys() -> Vec<&'static str> {
 /// # Errors
 /// Field `wavelength_nm` where a formula breaks down, naming the material, the ray or axis, the
 /// quantity, the wavelength, the reason and the published range.
-fn principal_values<const N: usize>(
+pub fn principal_values<F: dispersion::Evaluate, const N: usize>(
     name: &str,
     range_nm: (f64, f64),
-    formulas: [(&str, &Dispersion); N],
+    formulas: [(&str, &F); N],
     q: Quantity,
     wavelength: Wavelength,
 ) -> Result<([f64; N], Vec<String>), Error> {

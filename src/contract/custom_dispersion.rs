@@ -1,0 +1,326 @@
+//! A crystal given by its own dispersion coefficients (`dispersion` of a crystal element) instead
+//! of a catalogue key or fixed indices: its document form, checks, echo and evaluation.
+//!
+//! Physics. Each principal index follows one formula of the published general form
+//!
+//! ```text
+//! n² = A + Σ B λ²/(λ² − C) + Σ B/(λ² − C) − D λ²      (λ in µm, C in µm², D in µm⁻²)
+//! ```
+//!
+//! (`{"a": A, "sellmeier": [[B, C], …], "poles": [[B, C], …], "ir": D}`), which holds the
+//! catalogue's Sellmeier and pole-and-IR forms; it is evaluated by the catalogue's own code
+//! ([`Formula`]), phase and group index alike. A uniaxial crystal gives `o` and `e`, a biaxial one
+//! `x`, `y`, `z` (two equal formulas make it uniaxial, as for custom `nx`/`ny`/`nz`).
+//!
+//! Conventions. Like the catalogue's formulas, a custom formula is handed the vacuum wavelength:
+//! `fitted_in` ("vacuum" by default, or "air") records what the source's λ was and is echoed, but
+//! no air-to-vacuum correction is applied (see the catalogue's uniaxial module on why). Outside
+//! `range_nm` the formula is extrapolated with the catalogue's warning; where it breaks down
+//! (n² ≤ 0, a pole, n < 1) the error names the axis's field, e.g. `dispersion.e`. A custom formula
+//! carries no thermo-optic data: at any temperature it gives the same indices, with a warning.
+//!
+//! Sources: the form is that of the catalogue's entries (src/optics/material/dispersion.rs);
+//! the coefficients and their citation are the document's.
+
+use crate::contract::fields::{Fields, number_list, type_name};
+use crate::error::Error;
+use crate::numfmt::quote_text;
+use crate::optics::material::dispersion::Formula;
+use crate::optics::material::{self, Quantity};
+use crate::optics::wavelength::Wavelength;
+use serde_json::{Map, Value};
+
+/// Longest `citation` accepted, in characters (held inline so that a crystal stays plain data).
+pub const MAX_CITATION_CHARS: usize = 240;
+
+/// The name the catalogue's messages give a custom formula, and the element report's `material`.
+pub const CUSTOM_DISPERSION: &str = "custom dispersion";
+
+/// A crystal's own dispersion: its formulas, their validity range, what they were fitted in and
+/// where they come from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CustomDispersion {
+    /// Validity range of the formulas, nm, `(low, high)` with 0 < low < high.
+    pub range_nm: (f64, f64),
+    /// The principal formulas: `[o, o, e]` when given as `o` and `e` (the optic axis is the
+    /// third principal axis), else `[x, y, z]`.
+    formulas: [Formula; 3],
+    /// Whether they were given as `o` and `e`.
+    uniaxial_form: bool,
+    /// Whether the source fitted the formulas to wavelengths in air (`fitted_in`: "air").
+    pub fitted_in_air: bool,
+    // Characters rather than UTF-8 bytes: writing them back needs no validation.
+    citation: [char; MAX_CITATION_CHARS],
+    citation_len: usize,
+}
+
+impl CustomDispersion {
+    /// Reads the `dispersion` object found at `path` (e.g. `elements[2].dispersion`).
+    ///
+    /// # Errors
+    /// The exact field: `range_nm` (not two numbers, not positive, reversed), `o`/`e`/`x`/`y`/`z`
+    /// (missing, mixed forms) and within a formula `a`, `ir`, `sellmeier[i][j]`, `poles[i][j]`
+    /// (not finite, C < 0, more than six terms), `fitted_in`, `citation`, or an unknown
+    /// member.
+    pub fn read(path: &str, v: &Value) -> Result<CustomDispersion, Error> {
+        let mut f = Fields::new(path, v)?;
+        let range_path = f.path_of("range_nm");
+        let range = f.get("range_nm").ok_or_else(|| {
+            Error::new(
+                &range_path,
+                "is required: [low, high], the formulas' validity range in nm",
+            )
+        })?;
+        let r = number_list(&range_path, range, 2)?; // finite numbers
+        if r[0] <= 0.0 {
+            return Err(Error::new(format!("{range_path}[0]"), "must be above 0 nm"));
+        }
+        if r[1] <= r[0] {
+            return Err(Error::new(&range_path, "must be [low, high] with low < high"));
+        }
+        let uniaxial = f.has("o") || f.has("e");
+        let biaxial = f.has("x") || f.has("y") || f.has("z");
+        if uniaxial && biaxial {
+            let name = ["x", "y", "z"].into_iter().find(|n| f.has(n)).unwrap_or("x");
+            return Err(Error::new(
+                f.path_of(name),
+                "give \"o\" and \"e\" (uniaxial) or \"x\", \"y\" and \"z\" (biaxial), not both",
+            ));
+        }
+        let mut formula = |name: &'static str| -> Result<Formula, Error> {
+            let p = f.path_of(name);
+            let v = f
+                .get(name)
+                .ok_or_else(|| Error::new(&p, "is required: {\"a\": …, \"sellmeier\": [[B, C], …], …}"))?;
+            read_formula(&p, v)
+        };
+        let formulas = if biaxial {
+            [formula("x")?, formula("y")?, formula("z")?]
+        } else {
+            let o = formula("o")?;
+            [o, o, formula("e")?]
+        };
+        for name in ["o", "e", "x", "y", "z"] {
+            let _ = f.get(name);
+        }
+        let fitted_in_air = match f.string("fitted_in")? {
+            None | Some("vacuum") => false,
+            Some("air") => true,
+            Some(other) => {
+                return Err(Error::new(
+                    f.path_of("fitted_in"),
+                    format!("unknown value '{}'; expected \"vacuum\" or \"air\"", quote_text(other)),
+                ));
+            }
+        };
+        let citation_path = f.path_of("citation");
+        let mut citation = ['\0'; MAX_CITATION_CHARS];
+        let mut citation_len = 0;
+        for ch in f.string("citation")?.unwrap_or_default().chars() {
+            let slot = citation.get_mut(citation_len).ok_or_else(|| {
+                Error::new(
+                    &citation_path,
+                    format!("is longer than {MAX_CITATION_CHARS} characters"),
+                )
+            })?;
+            *slot = ch;
+            citation_len += 1;
+        }
+        f.finish()?;
+        Ok(CustomDispersion {
+            range_nm: (r[0], r[1]),
+            formulas,
+            uniaxial_form: !biaxial,
+            fitted_in_air,
+            citation,
+            citation_len,
+        })
+    }
+
+    /// The `citation` as given, if any.
+    pub fn citation(&self) -> Option<String> {
+        let chars = self.citation.get(..self.citation_len).unwrap_or_default();
+        (!chars.is_empty()).then(|| chars.iter().collect())
+    }
+
+    /// `fitted_in` as the document spells it.
+    pub fn fitted_in(&self) -> &'static str {
+        if self.fitted_in_air { "air" } else { "vacuum" }
+    }
+
+    /// The `dispersion` object this was read from, with `fitted_in` written out: reading it again
+    /// gives the same crystal.
+    pub fn document(&self) -> Value {
+        let mut v = Map::new();
+        v.insert("range_nm".into(), Value::from(vec![self.range_nm.0, self.range_nm.1]));
+        v.insert("fitted_in".into(), self.fitted_in().into());
+        for (name, f) in self.named() {
+            v.insert(name.into(), formula_json(f));
+        }
+        if let Some(c) = self.citation() {
+            v.insert("citation".into(), c.into());
+        }
+        Value::Object(v)
+    }
+
+    /// Whether the formulas are given as `o` and `e`.
+    pub fn is_uniaxial_form(&self) -> bool {
+        self.uniaxial_form
+    }
+
+    /// Each formula with its field name, in document order.
+    fn named(&self) -> impl Iterator<Item = (&'static str, &Formula)> {
+        let [a, b, c] = &self.formulas;
+        let all = if self.uniaxial_form {
+            [("o", a), ("e", c), ("", c)]
+        } else {
+            [("x", a), ("y", b), ("z", c)]
+        };
+        all.into_iter().filter(|(name, _)| !name.is_empty())
+    }
+
+    /// The principal values of `q` at `wavelength`, `[n_o, n_o, n_e]` for the `o`/`e` form and
+    /// `[n_x, n_y, n_z]` for the other, with the catalogue's out-of-range warning.
+    ///
+    /// # Errors
+    /// `dispersion.o` (or `e`, `x`, …) where that formula breaks down, naming the wavelength and
+    /// the reason.
+    pub fn principal(&self, q: Quantity, wavelength: Wavelength) -> Result<([f64; 3], Vec<String>), Error> {
+        // Messages read "the custom dispersion formula …", as the catalogue's name theirs.
+        let name = "custom";
+        let names = if self.uniaxial_form {
+            ["o", "o", "e"]
+        } else {
+            ["x", "y", "z"]
+        };
+        let [a, b, c] = &self.formulas;
+        let values = material::principal_values(
+            name,
+            self.range_nm,
+            [(names[0], a), (names[1], b), (names[2], c)],
+            q,
+            wavelength,
+        );
+        values.map_err(|e| {
+            // The first formula that fails is the one the message is about.
+            let mut failing = names[2];
+            for (n, f) in names.iter().zip(&self.formulas).rev() {
+                if f.quantity(q, wavelength.um()).is_err() {
+                    failing = n;
+                }
+            }
+            Error::new(format!("dispersion.{failing}"), e.message)
+        })
+    }
+
+    /// The warning a temperature other than 20 °C brings: the formulas have no thermo-optic data.
+    pub fn temperature_warning(&self, temperature_c: f64) -> Option<String> {
+        (temperature_c != material::REFERENCE_C).then(|| {
+            format!(
+                "the custom dispersion formula has no thermo-optic data: its indices at \
+                 {temperature_c} °C are those at 20 °C"
+            )
+        })
+    }
+}
+
+/// A formula as its document: `a`, and `sellmeier`, `poles` and `ir` where they are not empty or
+/// zero.
+fn formula_json(f: &Formula) -> Value {
+    let mut v = Map::new();
+    v.insert("a".into(), f.a().into());
+    for (name, terms) in [("sellmeier", f.sellmeier()), ("poles", f.poles())] {
+        if !terms.is_empty() {
+            let pairs: Vec<Value> = terms.iter().map(|&(b, c)| Value::from(vec![b, c])).collect();
+            v.insert(name.into(), pairs.into());
+        }
+    }
+    if f.ir() != 0.0 {
+        v.insert("ir".into(), f.ir().into());
+    }
+    Value::Object(v)
+}
+
+/// One formula object at `path`.
+fn read_formula(path: &str, v: &Value) -> Result<Formula, Error> {
+    let mut f = Fields::new(path, v)?;
+    let a = f.required_number("a")?;
+    let mut terms = |name: &'static str| -> Result<Vec<(f64, f64)>, Error> {
+        let p = f.path_of(name);
+        let Some(list) = f.get(name) else {
+            return Ok(Vec::new());
+        };
+        let Value::Array(items) = list else {
+            return Err(Error::new(
+                &p,
+                format!("must be a list of [B, C] pairs, got {}", type_name(list)),
+            ));
+        };
+        let mut pairs = Vec::with_capacity(items.len());
+        for (i, item) in items.iter().enumerate() {
+            let bc = number_list(&format!("{p}[{i}]"), item, 2)?;
+            pairs.push((bc[0], bc[1]));
+        }
+        Ok(pairs)
+    };
+    let sellmeier = terms("sellmeier")?;
+    let poles = terms("poles")?;
+    let ir = f.number_or("ir", 0.0)?;
+    f.finish()?;
+    Formula::new(a, &sellmeier, &poles, ir).map_err(|e| e.within(path))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::material::{Dispersion, find, find_biaxial};
+    use serde_json::json;
+
+    /// A catalogue formula as the document's formula object (the forms a custom formula holds).
+    fn document_of(d: &Dispersion) -> Value {
+        let pairs = |t: &[(f64, f64)]| t.iter().map(|&(b, c)| json!([b, c])).collect::<Vec<_>>();
+        match *d {
+            Dispersion::Sellmeier { a, terms } => json!({"a": a, "sellmeier": pairs(terms)}),
+            Dispersion::PoleAndIr { a, b, c, d } => json!({"a": a, "poles": [[b, c]], "ir": d}),
+            Dispersion::Poles { a, poles, .. } => json!({"a": a, "poles": pairs(poles)}),
+        }
+    }
+
+    #[test]
+    fn phase_and_group_indices_are_the_catalogues_for_its_own_coefficients() {
+        // Independent of the custom path: the catalogue's evaluation of the same published
+        // formulas (calcite, G. Ghosh 1999; YVO4's pole-and-IR form; KTP, K. Kato and
+        // E. Takaoka 2002, whose formulas are two poles each). The group index is analytic in
+        // both, so equality is exact.
+        let calcite = find("calcite").expect("catalogued");
+        let yvo4 = find("yvo4").expect("catalogued");
+        let ktp = find_biaxial("ktp").expect("catalogued");
+        for nm in [450.0, 632.8, 1064.0, 1550.0] {
+            let wl = Wavelength::from_nm(nm).expect("valid");
+            for m in [calcite, yvo4] {
+                let doc = json!({"range_nm": [m.range_nm.0, m.range_nm.1],
+                                 "o": document_of(&m.ordinary), "e": document_of(&m.extraordinary)});
+                let d = CustomDispersion::read("dispersion", &doc).expect("valid");
+                let (phase, _) = d.principal(Quantity::Phase, wl).expect("defined");
+                let (group, _) = d.principal(Quantity::Group, wl).expect("defined");
+                let (ix, gx) = (
+                    m.indices(wl).expect("defined").indices,
+                    m.group_indices(wl).expect("defined").indices,
+                );
+                assert_eq!(phase, [ix.no, ix.no, ix.ne], "{} at {nm} nm", m.key);
+                assert_eq!(group, [gx.no, gx.no, gx.ne], "{} group at {nm} nm", m.key);
+            }
+            let [x, y, z] = ktp.formulas.map(|f| document_of(&f));
+            let doc = json!({"range_nm": [ktp.range_nm.0, ktp.range_nm.1], "x": x, "y": y, "z": z});
+            let d = CustomDispersion::read("dispersion", &doc).expect("valid");
+            assert_eq!(
+                d.principal(Quantity::Phase, wl).expect("defined").0,
+                ktp.principal(wl).expect("defined").principal
+            );
+            assert_eq!(
+                d.principal(Quantity::Group, wl).expect("defined").0,
+                ktp.group_principal(wl).expect("defined").principal
+            );
+        }
+    }
+}
