@@ -118,8 +118,55 @@ impl<'a> Report<'a> {
         }
     }
 
-    /// Notes and warnings: the listed text fields and any `warnings` / `notes` list.
+    /// The design temperature, the lengths at it and each figure's change per kelvin
+    /// (`temperature.per_kelvin`), the unit read from the figure's name; a figure a kind's own
+    /// lines have shown is not repeated.
+    fn temperature(&mut self) {
+        let Some(t0) = self.f("temperature.design_temperature_c") else {
+            return;
+        };
+        self.used.insert("temperature.step_k".into());
+        self.section("Temperature");
+        self.line("designed for", format!("{} °C (lengths made at 20 °C)", num(t0)));
+        let grown: Vec<String> = self
+            .v
+            .as_object()
+            .map(|m| {
+                m.keys()
+                    .filter(|k| k.ends_with("_at_temperature_mm"))
+                    .cloned()
+                    .collect()
+            })
+            .unwrap_or_default();
+        for k in grown {
+            // At 20 °C the length at temperature is the length made, shown above.
+            if t0 == doublespar::REFERENCE_C {
+                self.used.insert(k);
+                continue;
+            }
+            let label = k.trim_end_matches("_at_temperature_mm").replace('_', " ");
+            self.quantity(&format!("{label} at {} °C", num(t0)), &k, "mm");
+        }
+        let figures: Vec<String> = self
+            .v
+            .pointer("/temperature/per_kelvin")
+            .and_then(Value::as_object)
+            .map(|m| m.keys().cloned().collect())
+            .unwrap_or_default();
+        for k in figures {
+            let path = format!("temperature.per_kelvin.{k}");
+            if self.used.contains(&path) {
+                continue;
+            }
+            let (name, unit) = per_kelvin_words(&k);
+            self.quantity(&format!("{name} per kelvin"), &path, &format!("{unit}/K"));
+        }
+    }
+
+    /// Notes and warnings: the listed text fields and any `warnings` / `notes` list, after the
+    /// temperature section.
     fn notes(&mut self, texts: &[&str]) {
+        self.temperature();
         let mut items: Vec<String> = Vec::new();
         for key in ["warnings", "notes"] {
             if let Some(list) = self.at(key).and_then(Value::as_array) {
@@ -164,6 +211,24 @@ impl<'a> Report<'a> {
             self.line(&k, v);
         }
     }
+}
+
+/// The words and unit of a `per_kelvin` figure from its JSON name (`separation_um` → separation,
+/// µm).
+fn per_kelvin_words(key: &str) -> (String, &'static str) {
+    for (suffix, unit) in [
+        ("_um", "µm"),
+        ("_mm", "mm"),
+        ("_deg", "°"),
+        ("_waves", "waves"),
+        ("_rad", "rad"),
+        ("_nm", "nm"),
+    ] {
+        if let Some(name) = key.strip_suffix(suffix) {
+            return (name.replace('_', " "), unit);
+        }
+    }
+    (key.replace('_', " "), "")
 }
 
 fn collect(v: &Value, prefix: &str, used: &BTreeSet<String>, out: &mut Vec<(String, String)>) {
@@ -500,6 +565,9 @@ fn waveplate_temperature(r: &mut Report, err: &str) {
 /// The lines of one temperature sensitivity at `path` (`temperature`, `single_plate.temperature`),
 /// their labels prefixed by `who`.
 fn temperature_lines(r: &mut Report, err: &str, path: &str, who: &str) {
+    // The common per-kelvin form repeats the line below.
+    r.used.insert(format!("{path}.per_kelvin.retardance_waves"));
+    r.used.insert(format!("{path}.step_k"));
     let t0 = r
         .f(&format!("{path}.design_temperature_c"))
         .map_or_else(String::new, num);
