@@ -328,3 +328,24 @@ fn a_polarizer_field_edges_move_per_kelvin_as_the_traced_edges_do() {
     );
     assert_stated(&d, "upper_edge_deg", upper, 1e-5);
 }
+
+#[test]
+fn every_plate_states_its_thickness_made_and_at_temperature_as_the_trace_grows_it() {
+    for doc in [
+        r#"{"kind": "waveplate", "material": "calcite", "retardance_waves": 0.25, "order": "compound", "base_mm": 0.5, "temperature_c": 150}"#,
+        r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0.25, "wavelengths_nm": [600, 1000], "temperature_c": 70}"#,
+        r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0.25, "temperature_c": -60}"#,
+    ] {
+        let d = design(doc);
+        let at_t = traced(&d, None);
+        for (i, p) in d["plates"].as_array().unwrap().iter().enumerate() {
+            assert_eq!(p["thickness_mm"], d["scenario"]["elements"][i]["thickness_mm"], "{doc}");
+            let grown = num(&at_t, &format!("/elements/{i}/thickness_at_temperature_mm"));
+            assert_rel(num(p, "/thickness_at_temperature_mm"), grown, 1e-15, doc);
+            assert!(
+                num(p, "/thickness_at_temperature_mm") != num(p, "/thickness_mm"),
+                "{doc}"
+            );
+        }
+    }
+}

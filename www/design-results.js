@@ -382,6 +382,7 @@ export function temperatureCard(d) {
     for (const k of Object.keys(d).filter((x) => x.endsWith('_at_temperature_mm'))) {
       rows.push([`${k.slice(0, -'_at_temperature_mm'.length).replace(/_/g, ' ')} there`, k, formats.length]);
     }
+    (d.plates ?? []).forEach((_, i) => rows.push([`plate ${i + 1} thickness there`, `plates.${i}.thickness_at_temperature_mm`, formats.length]));
   }
   for (const k of Object.keys(t.per_kelvin ?? {})) {
     const [name, unit] = perKelvinWords(k);

@@ -164,7 +164,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     Ok(AthermalDesign {
         wavelength_nm: nm,
         acceptance_error_waves: req.acceptance_error_waves,
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t0),
         retardance_waves: g0,
         temperature,
         curvature_waves_per_k2: curvature,

@@ -81,8 +81,10 @@ pub struct AngularCurve {
 pub struct PlateSpec {
     /// Catalogue key or "custom".
     pub material: String,
-    /// Thickness, mm.
+    /// Thickness as made at 20 °C, mm.
     pub thickness_mm: f64,
+    /// That thickness at the design temperature, mm (grown by α⊥, the axis in the faces).
+    pub thickness_at_temperature_mm: f64,
     /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°).
     pub axis_azimuth_deg: f64,
 }
@@ -158,12 +160,15 @@ pub struct TemperatureSensitivity {
     pub band_bound: [Bound; 2],
 }
 
-pub(super) fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
+/// The plates (medium, thickness made at 20 °C, axis azimuth) as the answer states them, working
+/// at `t_c` °C.
+pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], t_c: f64) -> Vec<PlateSpec> {
     plates
         .iter()
         .map(|(md, l, az)| PlateSpec {
             material: md.key().to_string(),
             thickness_mm: *l,
+            thickness_at_temperature_mm: l * growth(md, 90.0, *az, t_c),
             axis_azimuth_deg: *az,
         })
         .collect()
@@ -348,7 +353,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         birefringence: dn,
         order: order.into(),
         order_number,
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t_c),
         effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
         retardance_waves: g,
         fast_axis: sign_word(ix).into(),
@@ -492,7 +497,7 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
     Ok(AchromatDesign {
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t_c),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,

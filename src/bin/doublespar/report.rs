@@ -128,23 +128,29 @@ impl<'a> Report<'a> {
         self.used.insert("temperature.step_k".into());
         self.section("Temperature");
         self.line("designed for", format!("{} °C (lengths made at 20 °C)", num(t0)));
-        let grown: Vec<String> = self
+        let mut grown: Vec<(String, String)> = self
             .v
             .as_object()
             .map(|m| {
                 m.keys()
                     .filter(|k| k.ends_with("_at_temperature_mm"))
-                    .cloned()
+                    .map(|k| (k.trim_end_matches("_at_temperature_mm").replace('_', " "), k.clone()))
                     .collect()
             })
             .unwrap_or_default();
-        for k in grown {
+        let plates = self.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len);
+        grown.extend((0..plates).map(|i| {
+            (
+                format!("plate {} thickness", i + 1),
+                format!("plates.{i}.thickness_at_temperature_mm"),
+            )
+        }));
+        for (label, k) in grown {
             // At 20 °C the length at temperature is the length made, shown above.
             if t0 == doublespar::REFERENCE_C {
                 self.used.insert(k);
                 continue;
             }
-            let label = k.trim_end_matches("_at_temperature_mm").replace('_', " ");
             self.quantity(&format!("{label} at {} °C", num(t0)), &k, "mm");
         }
         let figures: Vec<String> = self
@@ -614,8 +620,11 @@ fn athermal(r: &mut Report) {
     r.line("aperture", "as the beam needs (not set by this design)");
     r.section("Performance");
     r.quantity("wavelength", "wavelength_nm", "nm");
+    let t0 = r
+        .f("temperature.design_temperature_c")
+        .unwrap_or(doublespar::REFERENCE_C);
     r.quantity(
-        "retardance at 20 °C",
+        &format!("retardance at {} °C", num(t0)),
         "retardance_waves",
         "waves (positive: the first plate's axis is slow)",
     );
