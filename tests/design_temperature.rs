@@ -298,35 +298,43 @@ fn a_splitter_designed_cold_splits_as_asked_at_its_temperature() {
 #[test]
 fn a_polarizer_field_edges_move_per_kelvin_as_the_traced_edges_do() {
     let d = design(r#"{"kind": "prism-polarizer", "material": "calcite", "temperature_c": 90}"#);
-    let reflected = d["reflected_mode"].as_str().unwrap().to_string();
-    // The upper edge by the whole trace: the incidence above which the reflected mode is no
-    // longer totally reflected at the gap, bisected on the traced `rejected` list (the ray through
-    // the axis point stays well inside the 10 mm aperture at these angles).
-    let reflects =
-        |t: f64, x: f64| {
-            let mut a = d.clone();
-            a["scenario"]["beam"]["incidence"] =
-                json!({"polar_deg": x.abs(), "azimuth_deg": if x < 0.0 { 180.0 } else { 0.0 }});
-            traced(&a, Some(t))["rejected"].as_array().unwrap().iter().any(|r| {
-                r["reason"] == "total internal reflection" && r["label"].as_str().unwrap().starts_with(&reflected)
-            })
-        };
-    let upper = |t: f64| {
-        let (mut lo, mut hi) = (0.0, 2.0 * num(&d, "/upper_edge/incidence_deg"));
-        assert!(reflects(t, lo) && !reflects(t, hi));
+    let letter = |mode: &str| d[mode].as_str().unwrap().to_string();
+    let (reflected, passed) = (letter("reflected_mode"), letter("passed_mode"));
+    // Whether the mode `m` is totally reflected at the gap when the part at `t` °C is lit at `x`°
+    // in the plane of the gap's tilt (the ray through the axis point stays well inside the 10 mm
+    // aperture at these angles).
+    let reflects = |m: &str, t: f64, x: f64| {
+        let mut a = d.clone();
+        a["scenario"]["beam"]["incidence"] =
+            json!({"polar_deg": x.abs(), "azimuth_deg": if x < 0.0 { 180.0 } else { 0.0 }});
+        let r = traced(&a, Some(t));
+        let rejected = r["rejected"].as_array().unwrap();
+        rejected
+            .iter()
+            .any(|r| r["reason"] == "total internal reflection" && r["label"].as_str().unwrap().starts_with(m))
+    };
+    // Each edge by the whole trace, bisected from normal incidence (inside) to twice the edge
+    // (outside): above the upper edge the reflected mode passes, below the lower one the passed
+    // mode is reflected too.
+    let edge = |name: &str, holds: &dyn Fn(f64, f64) -> bool, t: f64| {
+        let (mut lo, mut hi) = (0.0, 2.0 * num(&d, &format!("/{name}/incidence_deg")));
+        assert!(holds(t, lo) && !holds(t, hi), "{name}");
         for _ in 0..60 {
             let mid = 0.5 * (lo + hi);
-            if reflects(t, mid) { lo = mid } else { hi = mid }
+            if holds(t, mid) { lo = mid } else { hi = mid }
         }
         0.5 * (lo + hi)
     };
-    assert_rel(
-        upper(90.0),
-        num(&d, "/upper_edge/incidence_deg"),
-        1e-9,
-        "upper edge at 90 °C",
-    );
-    assert_stated(&d, "upper_edge_deg", upper, 1e-5);
+    let blocks = |t: f64, x: f64| reflects(&reflected, t, x);
+    let passes = |t: f64, x: f64| !reflects(&passed, t, x);
+    for (name, figure, holds) in [
+        ("upper_edge", "upper_edge_deg", &blocks as &dyn Fn(f64, f64) -> bool),
+        ("lower_edge", "lower_edge_deg", &passes),
+    ] {
+        let at = |t: f64| edge(name, holds, t);
+        assert_rel(at(90.0), num(&d, &format!("/{name}/incidence_deg")), 1e-9, name);
+        assert_stated(&d, figure, at, 1e-5);
+    }
 }
 
 #[test]
