@@ -357,3 +357,35 @@ fn every_plate_states_its_thickness_made_and_at_temperature_as_the_trace_grows_i
         }
     }
 }
+
+#[test]
+fn a_temperature_outside_the_data_warns_on_temperature_c_and_out_of_range_is_an_error() {
+    // Calcite's thermo-optic data are cited for 0-100 °C (src/optics/material/thermal.rs).
+    let d = design(
+        r#"{"kind": "displacer", "material": "calcite", "separation_mm": 1, "temperature_c": 400, "samples": 0}"#,
+    );
+    let w: Vec<&str> = d["warnings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_str().unwrap())
+        .collect();
+    assert!(
+        w.len() == 1 && w[0].starts_with("temperature_c: 400 °C is outside"),
+        "{w:?}"
+    );
+    for (kind, rest) in [
+        ("displacer", r#""material": "calcite", "separation_mm": 1"#),
+        ("quartz-rotator", r#""rotation_deg": 45"#),
+        (
+            "athermal-waveplate",
+            r#""first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0.25"#,
+        ),
+    ] {
+        for bad in ["-201", "500.5", "\"warm\""] {
+            let doc = format!(r#"{{"kind": "{kind}", {rest}, "temperature_c": {bad}}}"#);
+            let e = solve_design_str(&doc).expect_err(&doc);
+            assert_eq!(e.field, "temperature_c", "{doc}: {e}");
+        }
+    }
+}

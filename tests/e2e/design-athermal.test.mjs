@@ -98,6 +98,13 @@ test('a temperature in the panel changes a displacer exactly as --temperature-c 
     const required = ['length_mm', 'length_at_temperature_mm', 'separation_mm', 'no', 'ne', 'temperature.design_temperature_c'];
     await expectHot(page, hot, required);
     await expectDigits(page, 'length_mm', hot.length_mm, 'displacer at 60 °C');
+    // Loaded into the set-up, the part works at its temperature: the page's own trace separates
+    // the beams by the 2 mm asked.
+    const sc = await useDesign(page, hot, 'displacer at 60 °C');
+    assert.equal(sc.temperature_c, 60, 'the set-up takes the design temperature');
+    await page.waitForSelector('[data-quantity="elements[0].separation_mm"]');
+    const sep = Number(await page.getAttribute('[data-quantity="elements[0].separation_mm"]', 'data-value'));
+    assert.ok(close(sep, 2, 1e-9), `the set-up separates by ${sep} mm`);
     // Back at 20 °C the panel's answer is the command line's without the flag.
     await fill(page, 'displacer', [['temperature_c', 20]]);
     await solveDesign(page);
