@@ -30,7 +30,7 @@ use crate::optics::material::{Indices, REFERENCE_C};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::TEMPERATURE_STEP_K;
 use serde::Serialize;
-use std::collections::BTreeMap;
+use serde::ser::{SerializeMap, Serializer};
 
 /// A figure of a designed part as a function of the temperature it works at, °C.
 pub type Figure<'a> = Box<dyn Fn(f64) -> Option<f64> + 'a>;
@@ -44,7 +44,22 @@ pub struct Temperature {
     pub step_k: f64,
     /// Each figure's change per kelvin, named by the figure and its unit (`separation_um`: µm
     /// per K); a figure that cannot be evaluated at T ± h is left out.
-    pub per_kelvin: BTreeMap<&'static str, f64>,
+    pub per_kelvin: PerKelvin,
+}
+
+/// Figures' changes per kelvin, by name, written as one JSON object (a list rather than a map:
+/// a design has one to three, and the answer's object orders its keys itself).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct PerKelvin(pub Vec<(&'static str, f64)>);
+
+impl Serialize for PerKelvin {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_map(Some(self.0.len()))?;
+        for (k, v) in &self.0 {
+            m.serialize_entry(k, v)?;
+        }
+        m.end()
+    }
 }
 
 impl Temperature {
@@ -53,10 +68,12 @@ impl Temperature {
         Temperature {
             design_temperature_c: t_c,
             step_k: TEMPERATURE_STEP_K,
-            per_kelvin: figures
-                .into_iter()
-                .filter_map(|(name, f)| per_kelvin(f, t_c).map(|d| (name, d)))
-                .collect(),
+            per_kelvin: PerKelvin(
+                figures
+                    .into_iter()
+                    .filter_map(|(name, f)| per_kelvin(f, t_c).map(|d| (name, d)))
+                    .collect(),
+            ),
         }
     }
 }
@@ -68,7 +85,7 @@ impl Temperature {
         Temperature {
             design_temperature_c: t_c,
             step_k: TEMPERATURE_STEP_K,
-            per_kelvin: figures.into_iter().filter_map(|(k, v)| v.map(|v| (k, v))).collect(),
+            per_kelvin: PerKelvin(figures.into_iter().filter_map(|(k, v)| v.map(|v| (k, v))).collect()),
         }
     }
 }

@@ -35,7 +35,7 @@ use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, Wave
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
 use crate::design::part::{Part, crystal};
-use crate::design::thermal::{Temperature, growth, indices_at, per_kelvin};
+use crate::design::thermal::{PerKelvin, Temperature, growth, indices_at, per_kelvin};
 use crate::error::Error;
 use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
@@ -45,7 +45,6 @@ use crate::precision::{
     NO_BIREFRINGENCE, SAME_ANGLE_DEG, SINGULAR_DETERMINANT, TEMPERATURE_STEP_K,
 };
 use serde::Serialize;
-use std::collections::BTreeMap;
 use std::f64::consts::TAU;
 
 /// Whether an acceptance angle was found or is only a lower bound.
@@ -147,7 +146,7 @@ pub struct TemperatureSensitivity {
     pub step_k: f64,
     /// The common form of every design's sensitivities: `retardance_waves`, dΓ/dT in waves per
     /// kelvin ([`crate::design::thermal::Temperature`]).
-    pub per_kelvin: BTreeMap<&'static str, f64>,
+    pub per_kelvin: PerKelvin,
     /// dΓ/dT at the design temperature, waves per kelvin.
     pub retardance_per_kelvin_waves: f64,
     /// (1/Γ) dΓ/dT, per kelvin.
@@ -283,7 +282,7 @@ pub(super) fn temperature_sensitivity(
     Some(TemperatureSensitivity {
         design_temperature_c: t_c,
         step_k: TEMPERATURE_STEP_K,
-        per_kelvin: BTreeMap::from([("retardance_waves", slope)]),
+        per_kelvin: PerKelvin(vec![("retardance_waves", slope)]),
         retardance_per_kelvin_waves: slope,
         relative_per_kelvin: slope / g0,
         band_c: [lo, hi],
