@@ -115,3 +115,27 @@ test('a temperature in the panel changes a displacer exactly as --temperature-c 
     assert.ok(message.includes('500'), `the message gives the range: ${message}`);
   });
 });
+
+test('the athermal pair solves from its starting values, fits 400 px and every number has its unit; a link carries it with its temperature', { timeout: 120000 }, async () => {
+  let link = '';
+  await withPage(async (page) => {
+    await page.selectOption(field('kind'), 'athermal-waveplate');
+    await fill(page, 'athermal-waveplate', [['temperature_c', 35]]);
+    await solveDesign(page);
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+    assert.ok(overflow <= 1, `at 400 px the page is ${overflow} px wider than the window`);
+    const rows = await page.$$eval('#design-cards .q, #design-results strong', (els) => els.map((e) => [e.querySelector('dt')?.textContent ?? '', (e.querySelector('dd') ?? e).textContent]));
+    const bare = rows.filter(([, t]) => /^[−-]?\d/.test(t) && !/(°|nm|mm|waves|K)/.test(t)).map(([label]) => label);
+    assert.ok(rows.length > 10, 'numbers shown');
+    assert.deepEqual(bare, [], 'numbers without a unit');
+    const request = await page.evaluate(() => window.doublespar.designRequest());
+    assert.equal(request.temperature_c, 35, 'the request states the temperature');
+    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+    link = await page.evaluate(() => location.hash);
+  }, { viewport: { width: 400, height: 900 } });
+  await openAt(env, `/${link}`, async ({ page }) => {
+    const request = await page.evaluate(() => window.doublespar.designRequest());
+    assert.equal(request.kind, 'athermal-waveplate', 'the link chooses the kind');
+    assert.equal(request.temperature_c, 35, 'and fills the temperature');
+  });
+});
