@@ -389,3 +389,22 @@ fn a_temperature_outside_the_data_warns_on_temperature_c_and_out_of_range_is_an_
         }
     }
 }
+
+#[test]
+fn wedges_and_prisms_state_their_thicknesses_at_temperature_as_the_trace_grows_them() {
+    for doc in [
+        r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 5, "temperature_c": 70, "samples": 0}"#,
+        r#"{"kind": "prism-polarizer", "material": "yvo4", "cement_index": 1.45, "temperature_c": -20}"#,
+    ] {
+        let d = design(doc);
+        let at_t = traced(&d, None);
+        for i in 0..2 {
+            assert_eq!(
+                d["thickness_mm"][i], d["scenario"]["elements"][i]["thickness_mm"],
+                "{doc}"
+            );
+            let grown = num(&at_t, &format!("/elements/{i}/thickness_at_temperature_mm"));
+            assert_rel(num(&d, &format!("/thickness_at_temperature_mm/{i}")), grown, 1e-15, doc);
+        }
+    }
+}

@@ -380,7 +380,10 @@ export function temperatureCard(d) {
   const rows = [['designed for', 'temperature.design_temperature_c', formats.celsius]];
   if (t.design_temperature_c !== 20) {
     for (const k of Object.keys(d).filter((x) => x.endsWith('_at_temperature_mm'))) {
-      rows.push([`${k.slice(0, -'_at_temperature_mm'.length).replace(/_/g, ' ')} there`, k, formats.length]);
+      const name = k.slice(0, -'_at_temperature_mm'.length).replace(/_/g, ' ');
+      // A pair of prisms or wedges: one row each.
+      if (Array.isArray(d[k])) d[k].forEach((_, i) => rows.push([`${name} ${i + 1} there`, `${k}.${i}`, formats.length]));
+      else rows.push([`${name} there`, k, formats.length]);
     }
     (d.plates ?? []).forEach((_, i) => rows.push([`plate ${i + 1} thickness there`, `plates.${i}.thickness_at_temperature_mm`, formats.length]));
   }

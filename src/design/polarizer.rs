@@ -48,7 +48,7 @@ use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::PolarizerRequest;
 use crate::contract::scenario::{ElementKind, Polarization};
 use crate::design::part::{Part, min_edge_mm, path_power, placed_crystal};
-use crate::design::thermal::{Temperature, indices_at};
+use crate::design::thermal::{Temperature, growth, indices_at};
 use crate::error::Error;
 use crate::optics::interface::Losses;
 use crate::optics::traced::RejectReason;
@@ -120,6 +120,8 @@ pub struct PolarizerDesign {
     pub curve: TransmissionCurve,
     /// Each prism's thickness at its axis point, mm.
     pub thickness_mm: [f64; 2],
+    /// Those thicknesses at the design temperature, mm (grown by α⊥: the axes lie in the faces).
+    pub thickness_at_temperature_mm: [f64; 2],
     /// The field's edges' change per kelvin about the design temperature (`lower_edge_deg`,
     /// `upper_edge_deg`).
     pub temperature: Temperature,
@@ -337,6 +339,7 @@ pub fn design(req: &PolarizerRequest) -> Result<PolarizerDesign, Error> {
         normal: bare(0.0)?,
         curve,
         thickness_mm: [t, t],
+        thickness_at_temperature_mm: [t * growth(&req.medium, 90.0, 90.0, req.temperature_c); 2],
         temperature,
         edge_thickness_mm: min_edge_mm(req.aperture_mm),
         clear_aperture_mm: req.aperture_mm,

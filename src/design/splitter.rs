@@ -36,7 +36,7 @@ use crate::contract::request::SplitterRequest;
 use crate::contract::scenario::Element;
 use crate::design::part::{Part, angle_between_deg, min_edge_mm, path_power, placed_crystal};
 use crate::design::statistics::{Summary, summarize};
-use crate::design::thermal::{Temperature, indices_at};
+use crate::design::thermal::{Temperature, growth, indices_at};
 use crate::error::Error;
 use crate::numfmt::sig;
 use crate::optics::chain::chain;
@@ -89,6 +89,9 @@ pub struct SplitterDesign {
     pub split_angle_deg: f64,
     /// Each wedge's thickness at its axis point, mm (first, second).
     pub thickness_mm: [f64; 2],
+    /// Those thicknesses at the design temperature, mm (each grown by α⊥: the axes lie in the
+    /// faces).
+    pub thickness_at_temperature_mm: [f64; 2],
     /// Thickness left at each wedge's thin edge, mm.
     pub edge_thickness_mm: f64,
     /// Clear aperture, mm.
@@ -350,6 +353,8 @@ pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
         small_angle_wedge_deg: small,
         split_angle_deg: split,
         thickness_mm: t,
+        thickness_at_temperature_mm: [0, 1]
+            .map(|i| t[i] * growth(&req.medium, 90.0, 90.0 * i as f64, req.temperature_c)),
         edge_thickness_mm: min_edge_mm(req.aperture_mm),
         clear_aperture_mm: req.aperture_mm,
         contact: if req.cement_index.is_some() {

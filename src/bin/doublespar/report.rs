@@ -151,7 +151,14 @@ impl<'a> Report<'a> {
                 self.used.insert(k);
                 continue;
             }
-            self.quantity(&format!("{label} at {} °C", num(t0)), &k, "mm");
+            match self.at(&k).and_then(Value::as_array) {
+                // A pair of prisms or wedges: both thicknesses on one line.
+                Some(list) => {
+                    let text: Vec<String> = list.iter().filter_map(Value::as_f64).map(num).collect();
+                    self.line(&format!("{label} at {} °C", num(t0)), format!("{} mm", text.join(", ")));
+                }
+                None => self.quantity(&format!("{label} at {} °C", num(t0)), &k, "mm"),
+            }
         }
         let figures: Vec<String> = self
             .v
