@@ -355,30 +355,30 @@ struct FlagCase {
 
 const FLAG_CASES: [FlagCase; 19] = [
     FlagCase {
-        flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20",
+        flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
                  "separation_mm": 1.5, "beam_diameter_mm": 0.5, "cut_tilt_deg": 40, "aperture_factor": 3,
                  "tolerances": {"tilt_deg": 0.2, "incidence_deg": 0.05, "thickness_mm": 0.02, "wavelength_nm": 1},
-                 "samples": 3000, "seed": 7, "bins": 20}"#,
+                 "samples": 3000, "seed": 7, "bins": 20, "temperature_c": 35}"#,
     },
     FlagCase {
         flags: "displacer --no=1.6 --ne=1.5 --separation-mm=1 --samples=0",
         json: r#"{"kind": "displacer", "no": 1.6, "ne": 1.5, "separation_mm": 1, "samples": 0}"#,
     },
     FlagCase {
-        flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02",
+        flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02 --temperature-c -10",
         json: r#"{"kind": "waveplate", "material": "QUARTZ", "wavelength_nm": 1064, "retardance_waves": 0.25,
                  "order": "multiple", "order_number": 3, "band_nm": [1000, 1100], "max_incidence_deg": 5,
-                 "acceptance_error_waves": 0.02}"#,
+                 "acceptance_error_waves": 0.02, "temperature_c": -10}"#,
     },
     FlagCase {
         flags: "waveplate --no 1.5 --ne 1.51 --retardance-waves 0.5 --order compound --base-mm 0.5",
         json: r#"{"kind": "waveplate", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "order": "compound", "base_mm": 0.5}"#,
     },
     FlagCase {
-        flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001",
+        flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40",
         json: r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"},
-                 "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001}"#,
+                 "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001, "temperature_c": 40}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",
@@ -386,9 +386,9 @@ const FLAG_CASES: [FlagCase; 19] = [
                  "retardance_waves": 0.25}"#,
     },
     FlagCase {
-        flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100",
+        flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100 --temperature-c 45",
         json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "MgF2"},
-                 "retardance_waves": 0.5, "wavelengths_nm": [600, 1000], "band_nm": [500, 1100]}"#,
+                 "retardance_waves": 0.5, "wavelengths_nm": [600, 1000], "band_nm": [500, 1100], "temperature_c": 45}"#,
     },
     FlagCase {
         flags: "achromat --first-no 1.6 --first-ne 1.5 --second-material mgf2 --retardance-waves 0.25 --wavelengths-nm 500,900",
@@ -408,46 +408,46 @@ const FLAG_CASES: [FlagCase; 19] = [
                  "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
     },
     FlagCase {
-        flags: "recombiner --material YVO4 --wavelength-nm 1064 --length-mm 8 --cut-tilt-deg 45 --beam-diameter-mm 0.5 --middle rotator --rotator-deg 90 --length-mismatch-mm 0.01 --tilt-mismatch-deg 0.001",
+        flags: "recombiner --material YVO4 --wavelength-nm 1064 --length-mm 8 --cut-tilt-deg 45 --beam-diameter-mm 0.5 --middle rotator --rotator-deg 90 --length-mismatch-mm 0.01 --tilt-mismatch-deg 0.001 --temperature-c 60",
         json: r#"{"kind": "recombiner", "material": "YVO4", "wavelength_nm": 1064, "length_mm": 8, "cut_tilt_deg": 45,
                  "beam_diameter_mm": 0.5, "middle": "rotator", "rotator_deg": 90, "length_mismatch_mm": 0.01,
-                 "tilt_mismatch_deg": 0.001}"#,
+                 "tilt_mismatch_deg": 0.001, "temperature_c": 60}"#,
     },
     FlagCase {
         flags: "recombiner --no 1.6 --ne 1.5 --length-mm 5 --middle half-wave",
         json: r#"{"kind": "recombiner", "no": 1.6, "ne": 1.5, "length_mm": 5, "middle": "half-wave"}"#,
     },
     FlagCase {
-        flags: "angular-splitter --material calcite --wavelength-nm 633 --band-nm 500,800 --split-angle-deg 8 --aperture-mm 12 --cement-index 1.5 --tol-wedge-deg 0.1 --tol-axis-deg 1 --tol-incidence-deg 0.2 --samples 50 --seed 4",
+        flags: "angular-splitter --material calcite --wavelength-nm 633 --band-nm 500,800 --split-angle-deg 8 --aperture-mm 12 --cement-index 1.5 --tol-wedge-deg 0.1 --tol-axis-deg 1 --tol-incidence-deg 0.2 --samples 50 --seed 4 --temperature-c 0",
         json: r#"{"kind": "angular-splitter", "material": "calcite", "wavelength_nm": 633, "band_nm": [500, 800],
                  "split_angle_deg": 8, "aperture_mm": 12, "cement_index": 1.5,
-                 "tolerances": {"wedge_deg": 0.1, "axis_deg": 1, "incidence_deg": 0.2}, "samples": 50, "seed": 4}"#,
+                 "tolerances": {"wedge_deg": 0.1, "axis_deg": 1, "incidence_deg": 0.2}, "samples": 50, "seed": 4, "temperature_c": 0}"#,
     },
     FlagCase {
         flags: "angular-splitter --no 1.6 --ne 1.5 --split-angle-deg 3 --samples 0",
         json: r#"{"kind": "angular-splitter", "no": 1.6, "ne": 1.5, "split_angle_deg": 3, "samples": 0}"#,
     },
     FlagCase {
-        flags: "prism-polarizer --material calcite --wavelength-nm 1064 --cement-index 1.45 --aperture-mm 12",
-        json: r#"{"kind": "prism-polarizer", "material": "calcite", "wavelength_nm": 1064, "cement_index": 1.45, "aperture_mm": 12}"#,
+        flags: "prism-polarizer --material calcite --wavelength-nm 1064 --cement-index 1.45 --aperture-mm 12 --temperature-c 80",
+        json: r#"{"kind": "prism-polarizer", "material": "calcite", "wavelength_nm": 1064, "cement_index": 1.45, "aperture_mm": 12, "temperature_c": 80}"#,
     },
     FlagCase {
         flags: "prism-polarizer --no 1.7 --ne 1.5",
         json: r#"{"kind": "prism-polarizer", "no": 1.7, "ne": 1.5}"#,
     },
     FlagCase {
-        flags: "tilt-tuning --material quartz --wavelength-nm 633 --retardance-waves 0.25 --order-number 3 --made-for-nm 650 --axis-azimuth-deg 0 --tilt-azimuth-deg 0 --max-tilt-deg 45",
+        flags: "tilt-tuning --material quartz --wavelength-nm 633 --retardance-waves 0.25 --order-number 3 --made-for-nm 650 --axis-azimuth-deg 0 --tilt-azimuth-deg 0 --max-tilt-deg 45 --temperature-c 30",
         json: r#"{"kind": "tilt-tuning", "material": "quartz", "wavelength_nm": 633, "retardance_waves": 0.25, "order_number": 3,
-                 "made_for_nm": 650, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 0, "max_tilt_deg": 45}"#,
+                 "made_for_nm": 650, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 0, "max_tilt_deg": 45, "temperature_c": 30}"#,
     },
     FlagCase {
         flags: "tilt-tuning --no 1.54 --ne 1.55 --thickness-mm 0.5 --retardance-waves 0.25 --tilt-azimuth-deg 90",
         json: r#"{"kind": "tilt-tuning", "no": 1.54, "ne": 1.55, "thickness_mm": 0.5, "retardance_waves": 0.25, "tilt_azimuth_deg": 90}"#,
     },
     FlagCase {
-        flags: "quartz-rotator --rotation-deg -45 --wavelength-nm 1064 --band-nm 1000,1100 --handedness left --min-thickness-mm 2 --rotation-tolerance-deg 0.2 --ellipticity-tolerance-deg 1 --max-incidence-deg 5",
+        flags: "quartz-rotator --rotation-deg -45 --wavelength-nm 1064 --band-nm 1000,1100 --handedness left --min-thickness-mm 2 --rotation-tolerance-deg 0.2 --ellipticity-tolerance-deg 1 --max-incidence-deg 5 --temperature-c 50",
         json: r#"{"kind": "quartz-rotator", "rotation_deg": -45, "wavelength_nm": 1064, "band_nm": [1000, 1100], "handedness": "left",
-                 "min_thickness_mm": 2, "rotation_tolerance_deg": 0.2, "ellipticity_tolerance_deg": 1, "max_incidence_deg": 5}"#,
+                 "min_thickness_mm": 2, "rotation_tolerance_deg": 0.2, "ellipticity_tolerance_deg": 1, "max_incidence_deg": 5, "temperature_c": 50}"#,
     },
 ];
 

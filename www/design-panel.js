@@ -4,8 +4,10 @@
 // module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
 // arrives in chunks with progress (any kind's would be shown alike), and Cancel terminates the
 // worker (a new one starts). The kinds: displacer, waveplate, achromat, recombiner and the prism
-// kinds angular-splitter, prism-polarizer, tilt-tuning, and the quartz-rotator (DEVELOPERS.md,
-// "Design requests"). Results
+// kinds angular-splitter, prism-polarizer, tilt-tuning, the quartz-rotator and the
+// athermal-waveplate (DEVELOPERS.md, "Design requests"); every kind has a temperature field
+// (`temperature_c`, sent when it is not 20 °C) and a Temperature card of the design's changes per
+// kelvin. Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
 // String(value) (a bound, "≥ 10°", also data-bound); the design's warnings and shop notes are
 // lists in the panel's words (.design-advice, role=status); the curves are drawn with the core's
@@ -25,7 +27,7 @@ import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { materialName } from './state.js';
-import { achromatResults, adviceLists, adviceOf, displacerResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { achromatResults, adviceLists, adviceOf, athermalResults, displacerResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -36,6 +38,7 @@ const DESIGN_KINDS = [
   ['prism-polarizer', 'polarizing prism'],
   ['tilt-tuning', 'tilt-tuned waveplate'],
   ['quartz-rotator', 'quartz rotator'],
+  ['athermal-waveplate', 'athermal waveplate pair'],
 ];
 // The material a kind starts from, until the user picks one (common choices for each part).
 const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz' };
@@ -189,6 +192,12 @@ function buildDesignFields(state) {
     hint: 'The acceptance is the incidence at which a linear input leaves beyond either tolerance.',
   });
 
+  // Every kind: the temperature the part works at (the core's default 20 °C, range −200 to 500).
+  const temperature = addField(state, 'temperature_c', {
+    label: 'Temperature', spoken: 'Temperature the part works at', unit: '°C', value: 20,
+    hint: 'The part is designed to work at this temperature; its thicknesses are given as made at 20 °C.',
+  });
+
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
   state.design.layout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
@@ -199,6 +208,12 @@ function buildDesignFields(state) {
   state.design.layout['prism-polarizer'] = [...medium.nodes, wl.row, cement.row, clear.row];
   state.design.layout['quartz-rotator'] = [rotation.row, wl.row, band, hand.row, minThick.row, rotTol.row, ellTol.row, maxInc.row];
   state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
+  state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
+  // The temperature beside the wavelength, as in the set-up (after the design wavelengths of a pair).
+  for (const nodes of Object.values(state.design.layout)) {
+    const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
+    nodes.splice(at < 0 ? nodes.length : at + 1, 0, temperature.row);
+  }
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
   const lim = state.design.limits;
@@ -213,7 +228,11 @@ function buildDesignFields(state) {
     samples: `At most ${most(lim.splitter_max_samples)}; 0 skips the tolerance run. Each sample follows both beams through the splitter exactly.`, start: { samples: lim.splitter_default_samples },
   };
   state.design.hints['prism-polarizer'] = { cement_index: 'Empty: an air gap.' };
-  state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.' };
+  const accHint = 'The acceptance angle is where the retardance has moved this far from its value at normal incidence.';
+  state.design.hints.waveplate = { band: 'Empty: ±20 % around the design wavelength.', acceptance_error_waves: accHint };
+  state.design.hints['athermal-waveplate'] = {
+    acceptance_error_waves: 'The temperature band is where the retardance stays within this error of its value at the design temperature.',
+  };
   state.design.hints['quartz-rotator'] = { band: 'Empty: ±10 % around the design wavelength.' };
   state.design.hints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
   state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
@@ -245,7 +264,7 @@ function layoutDesignFields(state) {
   }
   setGroupHint(state.design.bandBox, hints.band);
   setGroupHint(state.design.tolBox, hints.tolerances);
-  for (const p of ['cut_tilt_deg', 'samples', 'cement_index']) state.design.fields[p].setHint(hints[p]);
+  for (const p of ['cut_tilt_deg', 'samples', 'cement_index', 'acceptance_error_waves']) state.design.fields[p].setHint(hints[p]);
   const tols = TOLERANCES[kind] ?? [];
   for (const k of new Set(Object.values(TOLERANCES).flat())) {
     const row = state.design.fields[`tolerances.${k}`].row;
@@ -361,12 +380,18 @@ function designRequest(state) {
     pair('band_nm');
     put('max_incidence_deg');
     put('acceptance_error_waves');
-  } else if (kind === 'achromat') {
+  } else if (kind === 'athermal-waveplate' || kind === 'achromat') {
+    // Two plates: the retardance at two wavelengths, or held against temperature at one.
     req.first = medium('first.');
     req.second = medium('second.');
     put('retardance_waves');
-    pair('wavelengths_nm');
-    pair('band_nm');
+    if (kind === 'achromat') {
+      pair('wavelengths_nm');
+      pair('band_nm');
+    } else {
+      put('wavelength_nm');
+      put('acceptance_error_waves');
+    }
   } else if (kind === 'recombiner') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -378,6 +403,9 @@ function designRequest(state) {
     put('length_mismatch_mm');
     put('tilt_mismatch_deg');
   }
+  // The core's default is 20 °C: a request states another temperature (or text that is none).
+  const t = state.design.fields.temperature_c;
+  if (!t.blank && t.value !== 20) req.temperature_c = t.value;
   return req;
 }
 
@@ -534,6 +562,21 @@ function plotsFor(state, kind, d, request, run) {
     });
   }
   if (kind === 'quartz-rotator') return rotatorPlots(state, d);
+  if (kind === 'athermal-waveplate') {
+    const c = d.temperature_curve;
+    const t0 = d.temperature.design_temperature_c;
+    const [lo, hi] = d.temperature.band_c;
+    return [designPlot('retardance-temperature', {
+      wide: true,
+      label: `Retardance of the pair against temperature, ${trimmed(c[0][0], 1)} to ${trimmed(c[c.length - 1][0], 1)} °C: ${g(d.retardance_waves)} waves at ${trimmed(t0, 2)} °C, where it does not change to first order; within ±${d.acceptance_error_waves} waves from ${g(lo)} to ${g(hi)} °C.`,
+      caption: 'At the design wavelength and normal incidence; the design temperature is marked.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Retardance against temperature',
+        x_label: 'temperature', x_unit: '°C', y_label: 'retardance', y_unit: 'waves',
+        points: c, current: [t0, d.retardance_waves], note: 'athermal pair',
+      }), dark),
+    })];
+  }
   if (kind === 'tilt-tuning') {
     const c = d.curve;
     const pts = c.tilt_deg.map((x, i) => [x, c.retardance_waves[i]]);
@@ -631,7 +674,7 @@ function redrawDesign(state) {
 const RESULTS = {
   displacer: displacerResults, waveplate: waveplateResults, achromat: achromatResults, recombiner: recombinerResults,
   'angular-splitter': splitterResults, 'prism-polarizer': polarizerResults, 'tilt-tuning': tiltResults,
-  'quartz-rotator': rotatorResults,
+  'quartz-rotator': rotatorResults, 'athermal-waveplate': athermalResults,
 };
 
 /** Writes the shown design: its results as text, then its plots. */
@@ -659,7 +702,7 @@ function renderDesign(state) {
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
   const advice = adviceOf(state, d);
   results.replaceChildren(...[head, adviceLists(advice), parts[0]].filter(Boolean));
-  cardBox.replaceChildren(...parts.slice(1));
+  cardBox.replaceChildren(...parts.slice(1), temperatureCard(d));
 
   for (const p of state.design.plots) state.design.resize.unobserve(p.box);
   state.design.plots = plotsFor(state, kind, d, s.request, s.run);

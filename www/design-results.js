@@ -38,6 +38,7 @@ const formats = {
     return a < 0.1 ? `${mm} (${significant(v * 1000, 5)}${NBSP}µm)` : mm;
   },
   waves: (v) => `${fixed(v, 5, 5e-13)}${NBSP}waves`,
+  celsius: (v) => `${trimmed(v, 2)}${NBSP}°C`,
   rad: (v) => `${fixed(v, 4, 5e-13)}${NBSP}rad`,
   count: (v) => String(v),
   delay: (v) => fmt.delay(v),
@@ -66,6 +67,12 @@ function valueAt(d, path) {
  * suffix, so `acceptance_deg` -> `acceptance_bound`; DEVELOPERS.md, "Bounds"), or undefined.
  */
 function boundOf(d, path) {
+  // A temperature band's edges: `band_c.i` with its flag in `band_bound[i]`.
+  const edge = /^(.*)\.band_c\.([01])$/.exec(path);
+  if (edge) {
+    const b = valueAt(d, `${edge[1]}.band_bound.${edge[2]}`);
+    return typeof b === 'string' ? b : undefined;
+  }
   const i = path.lastIndexOf('.');
   const name = path.slice(i + 1).replace(/_(deg|mm|nm|waves|rad)$/, '');
   const b = valueAt(d, `${path.slice(0, i + 1)}${name}_bound`);
@@ -80,7 +87,9 @@ function dq(d, path, format, tag = 'span', attrs = {}) {
   const v = valueAt(d, path);
   if (v === undefined) return null;
   const bound = boundOf(d, path);
-  const text = v === null ? '—' : `${bound === 'at_least' ? `≥${NBSP}` : ''}${format(v)}`;
+  // A lower edge that is only a bound reaches at least as low: "≤".
+  const mark = /\.band_c\.0$/.test(path) ? '≤' : '≥';
+  const text = v === null ? '—' : `${bound === 'at_least' ? `${mark}${NBSP}` : ''}${format(v)}`;
   return h(tag, { ...attrs, 'data-quantity': `design.${path}`, 'data-value': String(v), 'data-bound': bound, text });
 }
 
@@ -127,13 +136,16 @@ function adviceText(state, raw) {
   return { field: m[1], text: `${state.design.errors.label(m[1])}${m[2] ?? ''}: ${m[3]}` };
 }
 
-/** The design's warnings and shop notes in readable words: {warnings: [text], notes: [text]}. */
+/** The design's warnings, shop notes and dispersion sources in readable words: {warnings, notes, sources}, each [{field, text}]. */
 export function adviceOf(state, d) {
   const words = (list) => (Array.isArray(list) ? list.map((t) => adviceText(state, t)) : []);
-  return { warnings: words(d.warnings), notes: words(d.notes) };
+  // The dispersion source of each catalogue crystal the part uses (`sources`), with its citation.
+  const sources = (Array.isArray(d.sources) ? d.sources : [])
+    .map((s) => ({ field: '', text: `${materialName(state, s.material)}: ${s.source} formula, ${s.citation}` }));
+  return { warnings: words(d.warnings), notes: words(d.notes), sources };
 }
 
-/** The warnings and shop notes as visible lists (role=status), or null when there are none. */
+/** The warnings, shop notes and sources as visible lists (role=status), or null when there are none. */
 export function adviceLists(advice) {
   const box = (key, title, items, className) => (items.length
     ? h('div', { className, 'data-design-advice': key },
@@ -142,7 +154,8 @@ export function adviceLists(advice) {
     : null);
   const warnings = box('warnings', 'Warnings', advice.warnings, 'warnings has-warnings design-warnings');
   const notes = box('notes', 'Shop notes (guidance)', advice.notes, 'warnings design-notes');
-  return warnings || notes ? h('div', { className: 'design-advice', role: 'status' }, warnings, notes) : null;
+  const sources = box('sources', 'Indices from', advice.sources ?? [], 'design-sources');
+  return warnings || notes || sources ? h('div', { className: 'design-advice', role: 'status' }, warnings, notes, sources) : null;
 }
 
 // --- results by kind -------------------------------------------------------------------------
@@ -284,7 +297,11 @@ export function worstPlane(d) {
   return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
 }
 
-export function achromatResults(state, d) {
+/**
+ * A pair of plates of two crystals (achromat, athermal pair): the headline naming both with their
+ * thicknesses and axes (`tail` ends it), and the order card's rows (`thickness` labels each).
+ */
+function platePair(state, d, tail, thickness) {
   const p = d.plates;
   const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
   const headline = h(
@@ -294,14 +311,19 @@ export function achromatResults(state, d) {
     dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
     ` thick, ${axis(p[0])}, and ${article(designMaterialName(state, p[1].material), false)} plate `,
     dq(d, 'plates.1.thickness_mm', formats.length, 'strong'),
-    ` thick, ${axis(p[1])}; optic axes in the faces.`,
+    ` thick, ${axis(p[1])}; ${tail}`,
   );
   const rows = [];
   p.forEach((q, i) => {
     rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
-    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    rows.push([`plate ${i + 1}: ${thickness}`, `plates.${i}.thickness_mm`, formats.length]);
     rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
   });
+  return { headline, rows };
+}
+
+export function achromatResults(state, d) {
+  const { headline, rows } = platePair(state, d, 'optic axes in the faces.', 'thickness');
   return [
     headline,
     resultCard(d, 'What to order', rows, { className: 'design-main' }),
@@ -313,6 +335,69 @@ export function achromatResults(state, d) {
       ['largest error over the band', 'max_error_waves', formats.waves],
     ]),
   ];
+}
+
+/**
+ * The athermal waveplate pair (src/design/athermal.rs): its two plates (thicknesses as made at
+ * 20 °C, a crossed second plate at 90°), the retardance at the design temperature, the curvature
+ * left and the temperature band, against a zero-order plate of the first crystal alone.
+ */
+export function athermalResults(state, d) {
+  const { headline, rows } = platePair(state, d, `optic axes in the faces, thicknesses as made at 20${NBSP}°C.`, 'thickness at 20 °C');
+  return [
+    headline,
+    resultCard(d, 'What to order', rows, { className: 'design-main' }),
+    resultCard(d, 'Against temperature', [
+      ['retardance at the design temperature', 'retardance_waves', formats.waves],
+      ['change per kelvin', 'temperature.retardance_per_kelvin_waves', formats.sig('waves/K', 3)],
+      ['curvature left, d²Γ/dT²', 'curvature_waves_per_k2', formats.sig('waves/K²')],
+      ['band from', 'temperature.band_c.0', formats.celsius],
+      ['band to', 'temperature.band_c.1', formats.celsius],
+    ], { note: `The band keeps the retardance within ±${d.acceptance_error_waves} waves of its value at the design temperature; “≤”/“≥” mark the contract's limits, −200 and 500 °C, where the band may reach further.` }),
+    resultCard(d, 'A zero-order plate alone', [
+      ['material', 'single_plate.material', (v) => designMaterialName(state, v)],
+      ['thickness', 'single_plate.thickness_mm', formats.length],
+      ['change per kelvin', 'single_plate.temperature.retardance_per_kelvin_waves', formats.sig('waves/K', 3)],
+      ['band from', 'single_plate.temperature.band_c.0', formats.celsius],
+      ['band to', 'single_plate.temperature.band_c.1', formats.celsius],
+    ], { note: 'For comparison: the first crystal alone, giving the same retardance.' }),
+  ];
+}
+
+/** The words and unit of a change per kelvin from its name (`separation_um`: separation, µm). */
+function perKelvinWords(key) {
+  const units = [['_um', 'µm'], ['_mm', 'mm'], ['_deg', '°'], ['_waves', 'waves'], ['_rad', 'rad'], ['_nm', 'nm']];
+  for (const [suffix, unit] of units) {
+    if (key.endsWith(suffix)) return [key.slice(0, -suffix.length).replace(/_/g, ' '), unit];
+  }
+  return [key.replace(/_/g, ' '), ''];
+}
+
+/**
+ * The design's Temperature card, for every kind: the temperature it is designed to work at, the
+ * lengths there (`*_at_temperature_mm`) and each figure's change per kelvin
+ * (`temperature.per_kelvin`; DEVELOPERS.md, "Design requests"), or null when the design has none.
+ */
+export function temperatureCard(d) {
+  const t = d.temperature;
+  if (!t || typeof t.design_temperature_c !== 'number') return null;
+  const rows = [['designed for', 'temperature.design_temperature_c', formats.celsius]];
+  if (t.design_temperature_c !== 20) {
+    for (const k of Object.keys(d).filter((x) => x.endsWith('_at_temperature_mm'))) {
+      const name = k.slice(0, -'_at_temperature_mm'.length).replace(/_/g, ' ');
+      // A pair of prisms or wedges: one row each.
+      if (Array.isArray(d[k])) d[k].forEach((_, i) => rows.push([`${name} ${i + 1} there`, `${k}.${i}`, formats.length]));
+      else rows.push([`${name} there`, k, formats.length]);
+    }
+    (d.plates ?? []).forEach((_, i) => rows.push([`plate ${i + 1} thickness there`, `plates.${i}.thickness_at_temperature_mm`, formats.length]));
+  }
+  for (const k of Object.keys(t.per_kelvin ?? {})) {
+    const [name, unit] = perKelvinWords(k);
+    rows.push([`${name} per kelvin`, `temperature.per_kelvin.${k}`, formats.sig(`${unit}/K`)]);
+  }
+  return resultCard(d, 'Temperature', rows, {
+    note: 'Lengths are given as made at 20 °C; the changes are central differences of the exact model over ±1 K.',
+  });
 }
 
 export function recombinerResults(state, d) {

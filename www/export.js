@@ -399,7 +399,17 @@ function orderRows(shown, materialList) {
     rows.push(...tiltRows(d, r, materialList));
   } else if (d.kind === 'quartz-rotator') {
     rows.push(...rotatorRows(d, materialList));
+  } else if (d.kind === 'athermal-waveplate') {
+    const plates = d.plates ?? [];
+    plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));
+    rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)} thick`).join('; ')} (as made at 20 °C)`]);
+    rows.push(['Cut', `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}`]);
+    const [lo, hi] = d.temperature?.band_c ?? [];
+    rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at ${nm(d.wavelength_nm)}; within ±${sheetNumber(d.acceptance_error_waves, 2)} waves from ${sheetNumber(lo, 4)} to ${sheetNumber(hi, 4)} °C`]);
   }
+  // A part designed for another temperature than the one it is made at says so.
+  const t0 = d.temperature?.design_temperature_c;
+  if (typeof t0 === 'number' && t0 !== 20) rows.push(['Temperature', `designed to work at ${sheetNumber(t0, 4)} °C; dimensions as made at 20 °C`]);
   // The design's warnings and the shop's notes, in the panel's words (lists of text).
   if (shown.warnings?.length) rows.push(['Warnings', shown.warnings]);
   if (shown.notes?.length) rows.push(['Shop notes', shown.notes]);

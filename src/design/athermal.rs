@@ -6,10 +6,11 @@
 //! millimetre (its indices at T from the catalogue's thermo-optic data, its thickness grown by
 //! its expansion across the axis: [`crate::design::waveplate`]'s Γ(T)). Two plates in contact,
 //! the second's axis along or across the first's (signed thickness), retard by
-//! Γ(T) = L₁ g₁(T) + L₂ g₂(T). The pair is athermal at 20 °C when
+//! Γ(T) = L₁ g₁(T) + L₂ g₂(T). The pair is athermal at the request's `temperature_c` T₀
+//! (default 20 °C) when
 //!
 //! ```text
-//! L₁ g₁ + L₂ g₂ = Γ,      L₁ g₁′ + L₂ g₂′ = 0,      g′ = dg/dT at 20 °C,
+//! L₁ g₁ + L₂ g₂ = Γ,      L₁ g₁′ + L₂ g₂′ = 0,      g = g(T₀), g′ = dg/dT at T₀,
 //! ```
 //!
 //! a 2×2 linear system like the achromat's, with temperature in place of wavelength (the usual
@@ -19,21 +20,22 @@
 //! temperatures that keeps Γ within the acceptance error (bisected on the exact Γ(T)), and, for
 //! comparison, the band of a zero-order plate of the first crystal alone.
 
-use crate::contract::request::AthermalRequest;
+use crate::contract::request::{AthermalRequest, TEMPERATURE_RANGE_C};
 use crate::contract::scenario::Medium;
 use crate::design::part::{Part, crystal};
 use crate::design::waveplate::{
     PlateSpec, TemperatureSensitivity, plate_specs, stack_retardance_at, temperature_sensitivity,
 };
 use crate::error::Error;
-use crate::optics::material::REFERENCE_C;
 use crate::precision::{SINGULAR_DETERMINANT, TEMPERATURE_STEP_K};
 use serde::Serialize;
 use std::f64::consts::TAU;
 
 /// Temperatures of the answer's retardance curve, °C (a common sign-off range for instruments;
-/// common practice).
+/// common practice), widened to reach [`CURVE_REACH_K`] either side of the design temperature.
 const CURVE_C: (f64, f64) = (-40.0, 100.0);
+/// How far the curve reaches either side of the design temperature at least, K.
+const CURVE_REACH_K: f64 = 60.0;
 /// Points of that curve.
 const CURVE_POINTS: usize = 57;
 /// Step for the second derivative, K: wide enough that rounding (10⁻¹⁵ of Γ over h²) stays far
@@ -60,13 +62,13 @@ pub struct AthermalDesign {
     pub acceptance_error_waves: f64,
     /// The two plates (axis azimuth 90° = crossed).
     pub plates: Vec<PlateSpec>,
-    /// Retardance at the design wavelength and 20 °C, waves (signed: positive when the first
+    /// Retardance at the design wavelength and temperature, waves (signed: positive when the first
     /// plate's optic axis is the slow axis).
     pub retardance_waves: f64,
     /// Its temperature behaviour: dΓ/dT (zero to rounding) and the band within the acceptance
     /// error.
     pub temperature: TemperatureSensitivity,
-    /// d²Γ/dT² at 20 °C, waves per K², what limits the band.
+    /// d²Γ/dT² at the design temperature, waves per K², what limits the band.
     pub curvature_waves_per_k2: f64,
     /// Retardance against temperature [°C, waves].
     pub temperature_curve: Vec<[f64; 2]>,
@@ -81,8 +83,8 @@ fn per_mm(m: &Medium, nm: f64, t: f64) -> Option<f64> {
     stack_retardance_at(&[(*m, 1.0, 0.0)], nm, [0.0, 0.0], t).map(|g| g / TAU)
 }
 
-/// (g, g′) of `m` at 20 °C, or an error on `field`.
-fn rate(m: &Medium, nm: f64, field: &'static str) -> Result<(f64, f64), Error> {
+/// (g, g′) of `m` at `t0` °C, or an error on `field`.
+fn rate(m: &Medium, (nm, t0): (f64, f64), field: &'static str) -> Result<(f64, f64), Error> {
     let h = TEMPERATURE_STEP_K;
     let at = |t: f64| {
         per_mm(m, nm, t).ok_or_else(|| {
@@ -92,10 +94,7 @@ fn rate(m: &Medium, nm: f64, field: &'static str) -> Result<(f64, f64), Error> {
             )
         })
     };
-    Ok((
-        at(REFERENCE_C)?,
-        (at(REFERENCE_C + h)? - at(REFERENCE_C - h)?) / (2.0 * h),
-    ))
+    Ok((at(t0)?, (at(t0 + h)? - at(t0 - h)?) / (2.0 * h)))
 }
 
 /// Solves an athermal waveplate request.
@@ -113,9 +112,9 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
             ));
         }
     }
-    let nm = req.wavelength.nm();
-    let (g1, s1) = rate(&req.a, nm, "first.material")?;
-    let (g2, s2) = rate(&req.b, nm, "second.material")?;
+    let (nm, t0) = (req.wavelength.nm(), req.temperature_c);
+    let (g1, s1) = rate(&req.a, (nm, t0), "first.material")?;
+    let (g2, s2) = rate(&req.b, (nm, t0), "second.material")?;
     let det = g1 * s2 - g2 * s1;
     if det.abs() < SINGULAR_DETERMINANT * (g1 * s2).abs().max((g2 * s1).abs()).max(1e-300) {
         return Err(Error::new(
@@ -138,14 +137,17 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
             "the pair cannot be evaluated at the temperatures needed",
         )
     };
-    let g0 = at(REFERENCE_C).ok_or_else(no_value)?;
+    let g0 = at(t0).ok_or_else(no_value)?;
     let k = CURVATURE_STEP_K;
-    let curvature =
-        (at(REFERENCE_C + k).ok_or_else(no_value)? + at(REFERENCE_C - k).ok_or_else(no_value)? - 2.0 * g0) / (k * k);
-    let temperature = temperature_sensitivity(&plates, nm, req.acceptance_error_waves).ok_or_else(no_value)?;
+    let curvature = (at(t0 + k).ok_or_else(no_value)? + at(t0 - k).ok_or_else(no_value)? - 2.0 * g0) / (k * k);
+    let temperature = temperature_sensitivity(&plates, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?;
+    let (c0, c1) = (
+        CURVE_C.0.min(t0 - CURVE_REACH_K).max(TEMPERATURE_RANGE_C.0),
+        CURVE_C.1.max(t0 + CURVE_REACH_K).min(TEMPERATURE_RANGE_C.1),
+    );
     let temperature_curve = (0..CURVE_POINTS)
         .filter_map(|i| {
-            let t = CURVE_C.0 + (CURVE_C.1 - CURVE_C.0) * i as f64 / (CURVE_POINTS - 1) as f64;
+            let t = c0 + (c1 - c0) * i as f64 / (CURVE_POINTS - 1) as f64;
             at(t).map(|g| [t, g])
         })
         .collect();
@@ -153,7 +155,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     let single_plate = SinglePlate {
         material: req.a.key().to_string(),
         thickness_mm: (f / g1).abs(),
-        temperature: temperature_sensitivity(&alone, nm, req.acceptance_error_waves).ok_or_else(no_value)?,
+        temperature: temperature_sensitivity(&alone, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?,
     };
     let elements = plates
         .iter()
@@ -162,13 +164,13 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     Ok(AthermalDesign {
         wavelength_nm: nm,
         acceptance_error_waves: req.acceptance_error_waves,
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t0),
         retardance_waves: g0,
         temperature,
         curvature_waves_per_k2: curvature,
         temperature_curve,
         single_plate,
-        scenario: Part::new(req.wavelength, None, elements),
+        scenario: Part::new(req.wavelength, None, elements).at_temperature(t0),
     })
 }
 

@@ -24,6 +24,7 @@ use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
 use crate::design::part::{Part, crystal};
 use crate::design::statistics::{Summary, summarize};
+use crate::design::thermal::{Temperature, growth, indices_at};
 use crate::error::Error;
 use crate::optics::material::Indices;
 use crate::optics::plate::{plate_optics, tangential};
@@ -91,8 +92,10 @@ pub struct DisplacerDesign {
     pub walkoff_second_order_per_deg2: f64,
     /// Why the cut is what it is.
     pub cut_note: String,
-    /// Plate length, mm.
+    /// Plate length made at 20 °C, mm (the contract's thickness).
     pub length_mm: f64,
+    /// Plate length at the design temperature, mm: the length that gives the separation there.
+    pub length_at_temperature_mm: f64,
     /// The separation the exact trace gives for that length, mm.
     pub separation_mm: f64,
     /// Direction of the e-ray's displacement for an optic axis at azimuth 0: "+x" or "-x".
@@ -118,6 +121,8 @@ pub struct DisplacerDesign {
     pub sensitivities: Sensitivities,
     /// The error standard deviations used.
     pub tolerances: Tolerances,
+    /// The separation's change per kelvin about the design temperature (`separation_um`).
+    pub temperature: Temperature,
     /// Monte Carlo summary of the separation (absent when samples = 0).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub monte_carlo: Option<Summary>,
@@ -131,7 +136,8 @@ pub struct DisplacerDesign {
 pub const MC_CHUNK: usize = 10_000;
 
 /// The separations (mm) of Monte Carlo chunk `chunk` of a request, for a plate of cut `tilt_deg`
-/// and length `length_mm` (the design's); the last chunk holds the remainder of `samples`.
+/// and length `length_mm` at 20 °C (the design's), working at the request's temperature; the last
+/// chunk holds the remainder of `samples`.
 /// Samples whose model cannot be evaluated (an evanescent mode) are left out.
 pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, chunk: usize) -> Vec<f64> {
     let start = chunk.saturating_mul(MC_CHUNK);
@@ -143,6 +149,7 @@ pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, 
             let (a, b, c, d) = (rng.normal(), rng.normal(), rng.normal(), rng.normal());
             separation(
                 &req.medium,
+                req.temperature_c,
                 tilt_deg + t.tilt_deg * a,
                 t.incidence_deg * b,
                 length_mm + t.thickness_mm * c,
@@ -152,11 +159,14 @@ pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, 
         .collect()
 }
 
-/// Separation of a plate at normal-incidence-plus-errors, the model the tolerances perturb.
-fn separation(medium: &Medium, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -> Option<f64> {
+/// Separation (mm) of a plate made `l` mm long at 20 °C, working at `t_c` °C (its indices there,
+/// its length grown along z), at normal-incidence-plus-errors: the model the tolerances and the
+/// temperature sensitivity perturb.
+fn separation(medium: &Medium, t_c: f64, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
-    let ix = medium.indices(wl).ok()?;
+    let ix = indices_at(medium, wl, t_c).ok()?;
     let axis = axis_from_degrees(tilt_deg, 0.0).ok()?;
+    let l = l * growth(medium, tilt_deg, 0.0, t_c);
     plate_optics(ix, axis, l, wl, tangential(1.0, polar_deg.to_radians(), 0.0)).map(|p| p.separation_mm)
 }
 
@@ -219,7 +229,8 @@ fn central(f: impl Fn(f64) -> Option<f64>, x: f64, h: f64) -> Option<f64> {
 /// `wavelength_nm` if the dispersion formula breaks down; `cut_tilt_deg` when the fixed cut gives
 /// no walk-off; `separation_mm` when the model cannot be evaluated around the design.
 pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let t_c = req.temperature_c;
+    let ix = indices_at(&req.medium, req.wavelength, t_c)?;
     if (ix.no - ix.ne).abs() < NO_BIREFRINGENCE {
         return Err(Error::new(
             "material",
@@ -238,11 +249,14 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             ),
         ));
     }
-    let length_mm = req.separation_mm / rho.tan().abs();
+    // The length the separation needs at the working temperature, and the length to make at 20 °C.
+    let length_at_temperature_mm = req.separation_mm / rho.tan().abs();
+    let grown = growth(&req.medium, tilt, 0.0, t_c);
+    let length_mm = length_at_temperature_mm / grown;
     let nm = req.wavelength.nm();
     let optics = axis_from_degrees(tilt, 0.0)
         .ok()
-        .and_then(|axis| plate_optics(ix, axis, length_mm, req.wavelength, [0.0, 0.0]))
+        .and_then(|axis| plate_optics(ix, axis, length_at_temperature_mm, req.wavelength, [0.0, 0.0]))
         .ok_or_else(|| Error::new("separation_mm", "the plate model cannot be evaluated at the design"))?;
     // d|ρ|/dθ is dimensionless (rad/rad = °/°); the second derivative per degree² is the one per
     // radian² times π/180 (ρ in degrees: × 180/π; θ in degrees: × (π/180)²).
@@ -271,7 +285,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             } else {
                 lo
             };
-            separation(&req.medium, tilt, 0.0, length_mm, w).map(|s| [w, s])
+            separation(&req.medium, t_c, tilt, 0.0, length_mm, w).map(|s| [w, s])
         })
         .collect();
     let (mut min, mut max) = ([nm, optics.separation_mm], [nm, optics.separation_mm]);
@@ -303,11 +317,30 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     // rounding). Incidence and wavelength: central differences of the exact model.
     // With s = L tan|ρ|: ds/dθ = L (1 + tan²ρ) |ρ|' and d²s/dθ² = L (1 + tan²ρ)(|ρ|'' + 2 tan|ρ| |ρ|'²).
     let sec2 = 1.0 + rho.tan().powi(2);
-    let s_tilt = length_mm * sec2 * slope * deg;
-    let s_tilt_2 = 0.5 * length_mm * sec2 * (curvature_rad + 2.0 * rho.tan().abs() * slope * slope) * deg * deg;
-    let s_inc = central(|p| separation(m, tilt, p, length_mm, nm), 0.0, DIFF_STEP_INCIDENCE_DEG).ok_or_else(bad)?;
-    let s_len = rho.tan().abs();
-    let s_wl = central(|w| separation(m, tilt, 0.0, length_mm, w), nm, DIFF_STEP_WAVELENGTH_NM).ok_or_else(bad)?;
+    let s_tilt = length_at_temperature_mm * sec2 * slope * deg;
+    let s_tilt_2 =
+        0.5 * length_at_temperature_mm * sec2 * (curvature_rad + 2.0 * rho.tan().abs() * slope * slope) * deg * deg;
+    let s_inc = central(
+        |p| separation(m, t_c, tilt, p, length_mm, nm),
+        0.0,
+        DIFF_STEP_INCIDENCE_DEG,
+    )
+    .ok_or_else(bad)?;
+    // Per millimetre made at 20 °C, which grows to `grown` mm at the working temperature.
+    let s_len = rho.tan().abs() * grown;
+    let s_wl = central(
+        |w| separation(m, t_c, tilt, 0.0, length_mm, w),
+        nm,
+        DIFF_STEP_WAVELENGTH_NM,
+    )
+    .ok_or_else(bad)?;
+    let temperature = Temperature::of(
+        t_c,
+        vec![(
+            "separation_um",
+            Box::new(|t| separation(m, t, tilt, 0.0, length_mm, nm).map(|s| s * 1e3)),
+        )],
+    );
     let t = req.tolerances;
     let linear_std_mm = ((s_tilt * t.tilt_deg).powi(2)
         + (s_inc * t.incidence_deg).powi(2)
@@ -331,7 +364,8 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         req.wavelength,
         Some(req.beam_diameter_mm),
         vec![crystal(*m, length_mm, tilt, 0.0, 0.0)],
-    );
+    )
+    .at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
     Ok(DisplacerDesign {
         material: m.key().to_string(),
@@ -345,6 +379,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         walkoff_second_order_per_deg2: slope_2,
         cut_note,
         length_mm,
+        length_at_temperature_mm,
         separation_mm: s,
         displacement_direction: if optics.separation_vector_mm[0] >= 0.0 {
             "+x".into()
@@ -378,6 +413,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             linear_std_mm,
         },
         tolerances: t,
+        temperature,
         monte_carlo,
         scenario,
     })
@@ -389,6 +425,7 @@ mod tests {
     use crate::contract::fields::Fields;
     use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
+    use crate::optics::material::REFERENCE_C;
     use crate::precision::assert_close;
     use serde_json::Value;
 
@@ -454,7 +491,7 @@ mod tests {
         );
         // The separation's second-order coefficient against a second difference of the exact
         // plate model (an independent route: ray tracing, not the closed form).
-        let sep = |t: f64| separation(&Medium::Custom(ix), t, 0.0, d.length_mm, d.wavelength_nm).unwrap();
+        let sep = |t: f64| separation(&Medium::Custom(ix), REFERENCE_C, t, 0.0, d.length_mm, d.wavelength_nm).unwrap();
         let fd = (sep(t0 + h) - 2.0 * sep(t0) + sep(t0 - h)) / (h * h);
         assert_close(
             d.sensitivities.tilt_second_order_mm_per_deg2,

@@ -45,6 +45,7 @@ pub mod recombiner;
 pub mod rotator;
 pub mod splitter;
 pub mod statistics;
+pub mod thermal;
 pub mod tilt;
 pub mod waveplate;
 
@@ -114,6 +115,8 @@ struct Uses {
     /// Whether the answer uses the crystals' optical activity, whose rotatory-dispersion formula
     /// is audited beside the indices.
     activity: bool,
+    /// The design temperature, °C: outside a crystal's temperature data, `temperature_c` warns.
+    temperature_c: f64,
 }
 
 /// Points at which a band is checked for a breakdown of a formula: 481, so that the curves'
@@ -140,6 +143,9 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
         let data = m.data_warning();
         if let Some(w) = &data {
             push(format!("{material_path}: {w}"));
+        }
+        if let Some(w) = material::thermal(m.key).and_then(|th| th.range_warning(m.name, uses.temperature_c)) {
+            push(format!("temperature_c: {w}"));
         }
         let mut note = |field: &str, ws: Vec<String>| {
             for w in ws.into_iter().filter(|w| Some(w) != data.as_ref()) {
@@ -244,26 +250,27 @@ designed!(
 );
 
 /// A request that uses one crystal at its `wavelength_nm`.
-fn single(medium: Medium, nm: f64) -> Uses {
+fn single(medium: Medium, nm: f64, temperature_c: f64) -> Uses {
     Uses {
         media: vec![("material", medium)],
         wavelengths: vec![("wavelength_nm", nm)],
         band: None,
         activity: false,
+        temperature_c,
     }
 }
 
 fn displacer_uses(r: &DisplacerRequest) -> Uses {
     Uses {
         band: r.band_nm.map(|b| (b, true)),
-        ..single(r.medium, r.wavelength.nm())
+        ..single(r.medium, r.wavelength.nm(), r.temperature_c)
     }
 }
 
 fn waveplate_uses(r: &WaveplateRequest) -> Uses {
     Uses {
         band: Some((r.band(), r.band_nm.is_some())),
-        ..single(r.medium, r.wavelength.nm())
+        ..single(r.medium, r.wavelength.nm(), r.temperature_c)
     }
 }
 
@@ -274,6 +281,7 @@ fn achromat_uses(r: &AchromatRequest) -> Uses {
         wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
         band: Some((r.band(), r.band_nm.is_some())),
         activity: false,
+        temperature_c: r.temperature_c,
     }
 }
 
@@ -283,22 +291,23 @@ fn athermal_uses(r: &AthermalRequest) -> Uses {
         wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
         band: None,
         activity: false,
+        temperature_c: r.temperature_c,
     }
 }
 
 fn recombiner_uses(r: &RecombinerRequest) -> Uses {
-    single(r.medium, r.wavelength.nm())
+    single(r.medium, r.wavelength.nm(), r.temperature_c)
 }
 
 fn splitter_uses(r: &SplitterRequest) -> Uses {
     Uses {
         band: Some((r.band(), r.band_nm.is_some())),
-        ..single(r.medium, r.wavelength.nm())
+        ..single(r.medium, r.wavelength.nm(), r.temperature_c)
     }
 }
 
 fn polarizer_uses(r: &PolarizerRequest) -> Uses {
-    single(r.medium, r.wavelength.nm())
+    single(r.medium, r.wavelength.nm(), r.temperature_c)
 }
 
 fn rotator_uses(r: &RotatorRequest) -> Uses {
@@ -308,11 +317,12 @@ fn rotator_uses(r: &RotatorRequest) -> Uses {
         wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
         band: Some((r.band(), r.band_nm.is_some())),
         activity: true,
+        temperature_c: r.temperature_c,
     }
 }
 
 fn tilt_uses(r: &TiltRequest) -> Uses {
-    let mut u = single(r.medium, r.wavelength.nm());
+    let mut u = single(r.medium, r.wavelength.nm(), r.temperature_c);
     u.wavelengths.extend(r.made_for_nm().map(|nm| ("made_for_nm", nm)));
     u
 }
@@ -717,7 +727,9 @@ mod tests {
             "{w:?}"
         );
         // Its own notes come before the shop's, and say what it cannot give.
-        assert!(strings(&d["notes"])[0].starts_with("the temperature sensitivity dθ/dT is not given"));
+        assert!(
+            strings(&d["notes"])[0].starts_with("the temperature sensitivity dθ/dT is the plate's expansion alone")
+        );
         assert_eq!(
             field_of(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "thickness_mm": 3}"#),
             "thickness_mm"

@@ -8,7 +8,8 @@
 //! is left to the contract's defaults (outside index 1, ideal faces, normal incidence, and the
 //! screen at the last face unless the part sets it). A part
 //! with faces at an angle, an aperture, a mount or a contact is written as version 2 with those
-//! fields; plane-parallel plates in air stay version 1.
+//! fields, as is a part designed for a temperature other than 20 °C (with its `temperature_c`);
+//! plane-parallel plates in air at 20 °C stay version 1.
 
 use crate::contract::geometry::{Contact, Placement};
 use crate::contract::group::groups;
@@ -64,6 +65,13 @@ impl Part {
         }
     }
 
+    /// The part working at `temperature_c` °C (its thicknesses stay those at 20 °C; a trace grows
+    /// them). The document then carries `temperature_c` unless it is 20.
+    pub fn at_temperature(mut self, temperature_c: f64) -> Part {
+        self.scenario.temperature_c = temperature_c;
+        self
+    }
+
     /// The crystals of the part with their thicknesses, in stack order.
     pub fn crystals(&self) -> Vec<(Medium, f64)> {
         self.scenario
@@ -86,11 +94,14 @@ impl Part {
         // Version 1 while the part is plane-parallel plates in air, so that those answers read as
         // before; version 2 as soon as an element needs its geometry.
         // An optically active crystal is version 2 too: version 1 had no optical activity.
-        let plain = sc.elements.iter().all(|e| {
-            e.contact == Contact::Air
-                && !matches!(e.kind, ElementKind::Crystal(c)
+        // So is a part designed for a temperature other than 20 °C, which carries it.
+        let at_reference = sc.temperature_c == crate::optics::material::REFERENCE_C;
+        let plain = at_reference
+            && sc.elements.iter().all(|e| {
+                e.contact == Contact::Air
+                    && !matches!(e.kind, ElementKind::Crystal(c)
                     if !c.placement.is_default() || c.chirality.is_some_and(|ch| ch.active))
-        });
+            });
         let mut doc = json!({
             "version": if plain { 1 } else { 2 },
             "wavelength_nm": sc.wavelength.nm(),
@@ -99,6 +110,9 @@ impl Part {
         });
         if sc.screen_mm != 0.0 {
             doc["screen_mm"] = json!(sc.screen_mm);
+        }
+        if !at_reference {
+            doc["temperature_c"] = json!(sc.temperature_c);
         }
         doc
     }

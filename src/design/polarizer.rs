@@ -36,11 +36,19 @@
 //! outside each edge and over a curve; inside the field the reflected mode's transmission is
 //! exactly zero (the reflection is total), so the extinction ratio (leaked ÷ passed) is zero
 //! there and is reported where it is not: beyond the upper edge.
+//!
+//! Temperature: the pair works at the request's `temperature_c` T, where its indices and every
+//! trace are taken ([`crate::design::thermal`]); the prism angle is as made (angles do not change
+//! with a uniform expansion along z of a plate of parallel faces; the gap's tilt is taken as
+//! made) and the cement's index is taken to hold at every temperature. The edges' change per
+//! kelvin is a central difference about T of the closed form above at the indices of T ± h
+//! (`lower_edge_deg`, `upper_edge_deg`), which the trace's edges follow (tested).
 
 use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::PolarizerRequest;
 use crate::contract::scenario::{ElementKind, Polarization};
 use crate::design::part::{Part, min_edge_mm, path_power, placed_crystal};
+use crate::design::thermal::{Temperature, growth, indices_at};
 use crate::error::Error;
 use crate::optics::interface::Losses;
 use crate::optics::traced::RejectReason;
@@ -112,6 +120,11 @@ pub struct PolarizerDesign {
     pub curve: TransmissionCurve,
     /// Each prism's thickness at its axis point, mm.
     pub thickness_mm: [f64; 2],
+    /// Those thicknesses at the design temperature, mm (grown by α⊥: the axes lie in the faces).
+    pub thickness_at_temperature_mm: [f64; 2],
+    /// The field's edges' change per kelvin about the design temperature (`lower_edge_deg`,
+    /// `upper_edge_deg`).
+    pub temperature: Temperature,
     /// Thickness left at each prism's thin edge, mm.
     pub edge_thickness_mm: f64,
     /// Clear aperture, mm.
@@ -146,6 +159,7 @@ impl PolarizerRequest {
                 placed_crystal(self.medium, t, 90.0, 90.0, 0.0, second, contact),
             ],
         )
+        .at_temperature(self.temperature_c)
     }
 }
 
@@ -225,7 +239,7 @@ fn edge(sign: f64, holds: &dyn Fn(f64) -> bool) -> Option<f64> {
 /// `material` for a crystal without birefringence; `cement_index` at or above the lower index
 /// (nothing would be reflected while the other mode passes).
 pub fn design(req: &PolarizerRequest) -> Result<PolarizerDesign, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let ix = indices_at(&req.medium, req.wavelength, req.temperature_c)?;
     if (ix.ne - ix.no).abs() < crate::precision::NO_BIREFRINGENCE {
         return Err(Error::new(
             "material",
@@ -267,6 +281,20 @@ pub fn design(req: &PolarizerRequest) -> Result<PolarizerDesign, Error> {
             ),
         ));
     }
+    // The closed-form edges (lower, upper) of the pair as made, at the indices of `tc` °C.
+    let closed_edges = |tc: f64| -> Option<[f64; 2]> {
+        let ix = indices_at(&req.medium, req.wavelength, tc).ok()?;
+        let (n_r, n_p) = if negative { (ix.no, ix.ne) } else { (ix.ne, ix.no) };
+        let side = |n: f64| (n * (theta - (ng / n).asin()).sin() / n0).asin().to_degrees();
+        Some([side(n_p), side(n_r)])
+    };
+    let temperature = Temperature::of(
+        req.temperature_c,
+        vec![
+            ("lower_edge_deg", Box::new(|tc| closed_edges(tc).map(|e| e[0]))),
+            ("upper_edge_deg", Box::new(|tc| closed_edges(tc).map(|e| e[1]))),
+        ],
+    );
     let t = min_edge_mm(req.aperture_mm) + 0.5 * req.aperture_mm * theta.tan();
     let part = req.part(theta_deg, t);
     let open = unlimited(&part);
@@ -311,6 +339,8 @@ pub fn design(req: &PolarizerRequest) -> Result<PolarizerDesign, Error> {
         normal: bare(0.0)?,
         curve,
         thickness_mm: [t, t],
+        thickness_at_temperature_mm: [t * growth(&req.medium, 90.0, 90.0, req.temperature_c); 2],
+        temperature,
         edge_thickness_mm: min_edge_mm(req.aperture_mm),
         clear_aperture_mm: req.aperture_mm,
         scenario: part,

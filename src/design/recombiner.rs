@@ -15,12 +15,18 @@
 //! π/10 (a twentieth of a wave), thresholds named below. Whether the two paths form one spot at
 //! all is the trace's own rule (their beams overlap: see `trace.rs`, spots), the same rule the
 //! page and the command line show.
+//!
+//! Temperature: the pair (lengths made at 20 °C) works at the request's `temperature_c` T, where
+//! every trace is made ([`crate::design::thermal`]); the residual's change per kelvin is a central
+//! difference of the full trace about T (`residual_x_mm`: the residual offset along the walk-off,
+//! `phase_difference_rad`: the recombined phase).
 
 use crate::contract::geometry::Contact;
 use crate::contract::request::{Middle, RecombinerRequest};
 use crate::contract::result::spots;
 use crate::contract::scenario::{Element, ElementKind};
 use crate::design::part::{Part, crystal};
+use crate::design::thermal::{Temperature, indices_at};
 use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
 use crate::optics::trace::trace;
@@ -64,6 +70,9 @@ pub struct RecombinerCheck {
     /// Cut mismatch of the second displacer (°) at which the overlap breaks, and at which the
     /// phase breaks; null when it does not break within ±10°.
     pub tilt_mismatch_to_break_deg: [Option<f64>; 2],
+    /// The residual's change per kelvin about the design temperature (`residual_x_mm`,
+    /// `phase_difference_rad`).
+    pub temperature: Temperature,
     /// Whether this pair, with its mismatches, is broken: not one spot, overlap below
     /// [`MIN_OVERLAP`], or phase beyond [`MAX_PHASE_ERROR`].
     pub broken: bool,
@@ -76,6 +85,11 @@ pub struct RecombinerCheck {
 impl RecombinerRequest {
     /// The pair with the second crystal longer by `dl` mm and its cut tilted by `dt` degrees more.
     fn part(&self, dl: f64, dt: f64) -> Part {
+        self.part_at(dl, dt, self.temperature_c)
+    }
+
+    /// [`RecombinerRequest::part`] working at `t_c` °C.
+    fn part_at(&self, dl: f64, dt: f64, t_c: f64) -> Part {
         let plate = |l: f64, t: f64| crystal(self.medium, l, t, 0.0, 1.0);
         let kind = match self.middle {
             Middle::HalfWave => ElementKind::Retarder {
@@ -93,7 +107,7 @@ impl RecombinerRequest {
             },
             plate(self.length_mm + dl, self.cut_tilt_deg + dt),
         ];
-        Part::new(self.wavelength, Some(self.beam_diameter_mm), elements)
+        Part::new(self.wavelength, Some(self.beam_diameter_mm), elements).at_temperature(t_c)
     }
 }
 
@@ -113,7 +127,12 @@ fn reduce(p: f64) -> f64 {
 /// The pair traced on its stack (resolved once, no document written or read): where "oe" and
 /// "eo" leave, their phase difference, and the spot they share.
 fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> {
-    let (stack, _) = req.part(dl, dt).scenario.resolve()?;
+    outcome_at(req, (dl, dt), req.temperature_c)
+}
+
+/// [`outcome`] at `t_c` °C.
+fn outcome_at(req: &RecombinerRequest, (dl, dt): (f64, f64), t_c: f64) -> Result<Outcome, Error> {
+    let (stack, _) = req.part_at(dl, dt, t_c).scenario.resolve()?;
     let traced = trace(&stack);
     let find = |l: &str| {
         traced
@@ -144,7 +163,7 @@ fn outcome(req: &RecombinerRequest, dl: f64, dt: f64) -> Result<Outcome, Error> 
 /// # Errors
 /// As the trace of its scenario; `material` when a path does not exist.
 pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let ix = indices_at(&req.medium, req.wavelength, req.temperature_c)?;
     if walkoff(ix, req.cut_tilt_deg.to_radians()).abs() < NO_WALKOFF_RAD {
         return Err(Error::new(
             "cut_tilt_deg",
@@ -212,6 +231,14 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
         }
         out
     };
+    let at_t = |t: f64| outcome_at(req, (dl0, dt0), t).ok();
+    let temperature = Temperature::of(
+        req.temperature_c,
+        vec![
+            ("residual_x_mm", Box::new(|t| at_t(t).map(|o| o.dx[0]))),
+            ("phase_difference_rad", Box::new(|t| at_t(t).map(|o| o.phase))),
+        ],
+    );
     let along_length = |d: f64| outcome(req, d, 0.0).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
     let along_tilt = |d: f64| outcome(req, 0.0, d).ok().map(|o| (o.dx[0].hypot(o.dx[1]), o.phase));
     Ok(RecombinerCheck {
@@ -226,6 +253,7 @@ pub fn check(req: &RecombinerRequest) -> Result<RecombinerCheck, Error> {
         tilt_sensitivity: ts,
         length_mismatch_to_break_mm: search(req.length_mm, &along_length),
         tilt_mismatch_to_break_deg: search(10.0, &along_tilt),
+        temperature,
         broken: broken_overlap || broken_phase,
         verdict,
         scenario: req.part(dl0, dt0),

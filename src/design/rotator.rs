@@ -12,8 +12,12 @@
 //! modulo 180° with the smallest such plate, and a floor on the thickness adds half turns.
 //!
 //! Dispersion: θ(λ) = ±ρ(λ)L over the band, from the same formula; dθ/dλ is its central
-//! difference. No temperature data exist for the catalogue's rotatory power, so dθ/dT is not
-//! given (the answer says so).
+//! difference.
+//!
+//! Temperature: the plate works at the request's `temperature_c` T, where its length along the
+//! axis is L₂₀(1 + α∥(T − 20 °C)) ([`crate::design::thermal`]); the thickness quoted is L₂₀. No
+//! temperature data exist for the catalogue's rotatory power, so dθ/dT = ±ρ L₂₀ α∥ is the
+//! expansion's alone (the answer says so).
 //!
 //! Acceptance. Off the axis the plate is birefringent as well as active: its modes become
 //! elliptical and then nearly linear within a few degrees, so a linear input leaves elliptical
@@ -31,6 +35,7 @@
 use crate::contract::request::RotatorRequest;
 use crate::contract::scenario::{Chirality, ElementKind, Medium, Polarization};
 use crate::design::part::{Part, crystal};
+use crate::design::thermal::{Temperature, growth};
 use crate::error::Error;
 use crate::optics::jones::{self, JonesMatrix};
 use crate::optics::material::{self, OpticalActivity};
@@ -75,8 +80,10 @@ pub struct AcceptanceCurve {
 pub struct RotatorDesign {
     /// "right" or "left".
     pub handedness: &'static str,
-    /// Thickness along the optic axis (the plate normal), mm.
+    /// Thickness along the optic axis (the plate normal), mm, made at 20 °C.
     pub thickness_mm: f64,
+    /// That thickness at the design temperature, mm.
+    pub thickness_at_temperature_mm: f64,
     /// The rotation asked, degrees.
     pub requested_rotation_deg: f64,
     /// The plate's rotation at the design wavelength, ±ρL, degrees (the request plus
@@ -113,6 +120,8 @@ pub struct RotatorDesign {
     pub acceptance_limited_by: Option<&'static str>,
     /// The worst departures against incidence.
     pub acceptance_curve: AcceptanceCurve,
+    /// dθ/dT about the design temperature (`rotation_deg`, degrees per kelvin).
+    pub temperature: Temperature,
     /// What the design assumed or changed, in words.
     pub notes: Vec<String>,
     /// The plate, lit by linear light along x at normal incidence, ready to load.
@@ -149,7 +158,7 @@ pub fn plate_matrix(part: &Part, polar_deg: f64) -> Option<JonesMatrix> {
 }
 
 /// The rotator part: a c-cut quartz plate of the hand, active, lit by linear light along x.
-fn part(wavelength: Wavelength, right_handed: bool, thickness_mm: f64) -> Result<Part, Error> {
+fn part(wavelength: Wavelength, right_handed: bool, thickness_mm: f64, t_c: f64) -> Result<Part, Error> {
     let quartz = material::find("quartz").ok_or_else(|| Error::new("", "the catalogue has no quartz"))?;
     let mut el = crystal(Medium::Catalogue(quartz), thickness_mm, 0.0, 0.0, 0.0);
     if let ElementKind::Crystal(c) = &mut el.kind {
@@ -158,7 +167,7 @@ fn part(wavelength: Wavelength, right_handed: bool, thickness_mm: f64) -> Result
             active: true,
         });
     }
-    let mut p = Part::new(wavelength, None, vec![el]);
+    let mut p = Part::new(wavelength, None, vec![el]).at_temperature(t_c);
     p.scenario.beam.polarization = Polarization::Linear { azimuth_deg: 0.0 };
     Ok(p)
 }
@@ -182,6 +191,13 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         material::optical_activity("quartz").ok_or_else(|| Error::new("", "the catalogue has no optical activity"))?;
     let nm = req.wavelength.nm();
     let rho = power_deg(activity, nm, "wavelength_nm")?;
+    // Degrees per millimetre made at 20 °C, working at the design temperature (a c-cut plate
+    // grows by α∥ along its axis).
+    let t_c = req.temperature_c;
+    let quartz =
+        Medium::Catalogue(material::find("quartz").ok_or_else(|| Error::new("", "the catalogue has no quartz"))?);
+    let grown = growth(&quartz, 0.0, 0.0, t_c);
+    let rho_made = rho * grown;
     let natural_right = req.rotation_deg < 0.0;
     let right_handed = req.right_handed.unwrap_or(natural_right);
     // The plate's sense: +1 raises the azimuth (left-handed), −1 lowers it (right-handed).
@@ -197,16 +213,16 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         ));
         if a == 0.0 { 180.0 } else { a }
     };
-    let half_turn_mm = 180.0 / rho;
-    if turn_deg / rho < req.min_thickness_mm {
-        let k = ((req.min_thickness_mm - turn_deg / rho) / half_turn_mm).ceil();
+    let half_turn_mm = 180.0 / rho_made;
+    if turn_deg / rho_made < req.min_thickness_mm {
+        let k = ((req.min_thickness_mm - turn_deg / rho_made) / half_turn_mm).ceil();
         turn_deg += 180.0 * k;
         notes.push(format!(
             "min_thickness_mm: {} half turns of 180° are added to reach the thinnest plate accepted; the rotation is the same for every polarization state, the dispersion and the acceptance are the thicker plate's",
             k as i64
         ));
     }
-    let thickness_mm = turn_deg / rho;
+    let thickness_mm = turn_deg / rho_made;
     if thickness_mm > 1e3 {
         return Err(Error::new(
             "rotation_deg",
@@ -219,7 +235,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
     let rotation_deg = sense * turn_deg;
     let half_turns_added = ((rotation_deg - req.rotation_deg) / 180.0).round() as i64;
 
-    let scenario = part(req.wavelength, right_handed, thickness_mm)?;
+    let scenario = part(req.wavelength, right_handed, thickness_mm, t_c)?;
     let fail = || Error::new("wavelength_nm", "no light crosses the plate");
     let normal = plate_matrix(&scenario, 0.0).ok_or_else(fail)?;
     let out = ellipse(&jones::stokes(&(normal * jones::linear(0.0))));
@@ -243,7 +259,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         let Ok(r) = power_deg(activity, w, "band_nm") else {
             continue;
         };
-        let th = sense * r * thickness_mm;
+        let th = sense * r * thickness_mm * grown;
         band.min_deg = band.min_deg.min(th);
         band.max_deg = band.max_deg.max(th);
         band.wavelength_nm.push(w);
@@ -252,6 +268,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
     let h = DIFF_STEP_WAVELENGTH_NM;
     let dispersion_deg_per_nm = sense
         * thickness_mm
+        * grown
         * (power_deg(activity, nm + h, "wavelength_nm")? - power_deg(activity, nm - h, "wavelength_nm")?)
         / (2.0 * h);
 
@@ -306,11 +323,19 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         coarse
     };
     notes.push(
-        "the temperature sensitivity dθ/dT is not given: the catalogue's rotatory power of quartz is at room temperature (about 20 °C) and has no temperature data yet".to_string(),
+        "the temperature sensitivity dθ/dT is the plate's expansion alone: the catalogue's rotatory power of quartz is at room temperature (about 20 °C) and has no temperature data yet".to_string(),
+    );
+    let temperature = Temperature::of(
+        t_c,
+        vec![(
+            "rotation_deg",
+            Box::new(|t| Some(sense * rho * thickness_mm * growth(&quartz, 0.0, 0.0, t))),
+        )],
     );
     Ok(RotatorDesign {
         handedness: if right_handed { "right" } else { "left" },
         thickness_mm,
+        thickness_at_temperature_mm: thickness_mm * grown,
         requested_rotation_deg: req.rotation_deg,
         rotation_deg,
         half_turns_added,
@@ -326,12 +351,13 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         band,
         dispersion_deg_per_nm,
         rotation_tolerance_deg: req.rotation_tolerance_deg,
-        thickness_tolerance_mm: req.rotation_tolerance_deg / rho,
+        thickness_tolerance_mm: req.rotation_tolerance_deg / rho_made,
         ellipticity_tolerance_deg: req.ellipticity_tolerance_deg,
         acceptance_deg,
         acceptance_bound,
         acceptance_limited_by,
         acceptance_curve,
+        temperature,
         notes,
         scenario,
     })

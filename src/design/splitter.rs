@@ -26,12 +26,17 @@
 //! incident beam in the plane of the split, and follows both beams through the pair by their
 //! wave-vector chains ([`crate::optics::chain`]): the directions a whole trace gives, exactly,
 //! without the fields (a tenth of the work; see the README's benchmark).
+//!
+//! Temperature: the pair works at the request's `temperature_c` T, where every trace is made
+//! ([`crate::design::thermal`]); the split's change per kelvin is a central difference of the
+//! exact trace of the designed pair about T (`split_angle_deg`).
 
 use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::SplitterRequest;
 use crate::contract::scenario::Element;
 use crate::design::part::{Part, angle_between_deg, min_edge_mm, path_power, placed_crystal};
 use crate::design::statistics::{Summary, summarize};
+use crate::design::thermal::{Temperature, growth, indices_at};
 use crate::error::Error;
 use crate::numfmt::sig;
 use crate::optics::chain::chain;
@@ -84,6 +89,9 @@ pub struct SplitterDesign {
     pub split_angle_deg: f64,
     /// Each wedge's thickness at its axis point, mm (first, second).
     pub thickness_mm: [f64; 2],
+    /// Those thicknesses at the design temperature, mm (each grown by α⊥: the axes lie in the
+    /// faces).
+    pub thickness_at_temperature_mm: [f64; 2],
     /// Thickness left at each wedge's thin edge, mm.
     pub edge_thickness_mm: f64,
     /// Clear aperture, mm.
@@ -96,6 +104,8 @@ pub struct SplitterDesign {
     pub band: SplitCurve,
     /// Error standard deviations of the Monte Carlo run.
     pub tolerances: crate::contract::request::SplitterTolerances,
+    /// The split's change per kelvin about the design temperature (`split_angle_deg`).
+    pub temperature: Temperature,
     /// Monte Carlo samples run.
     pub samples: usize,
     /// Seed of the run.
@@ -154,7 +164,7 @@ impl SplitterRequest {
                 self.contact(),
             ),
         ];
-        let mut part = Part::new(wavelength, None, elements);
+        let mut part = Part::new(wavelength, None, elements).at_temperature(self.temperature_c);
         part.scenario.beam.polar_deg = err.incidence_deg;
         part
     }
@@ -224,7 +234,7 @@ fn beams(part: &Part) -> Option<([(f64, f64); 2], f64)> {
 /// `material` for a crystal without birefringence; `split_angle_deg` beyond what the crystal can
 /// give before one beam is totally reflected at the common face or at the exit.
 pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let ix = indices_at(&req.medium, req.wavelength, req.temperature_c)?;
     let dn = (ix.ne - ix.no).abs();
     if dn < crate::precision::NO_BIREFRINGENCE {
         return Err(Error::new(
@@ -307,7 +317,7 @@ pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
     for k in 0..=steps {
         let nm = b0 + (b1 - b0) * k as f64 / steps as f64;
         let Ok(w) = Wavelength::from_nm(nm) else { continue };
-        if req.medium.indices(w).is_err() {
+        if indices_at(&req.medium, w, req.temperature_c).is_err() {
             continue;
         }
         if let Some((p, s)) = beams(&req.part(alpha, t, Errors::default(), w)) {
@@ -317,6 +327,13 @@ pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
             band.deviation_eo_deg.push(p[1].0);
         }
     }
+    let temperature = Temperature::of(
+        req.temperature_c,
+        vec![(
+            "split_angle_deg",
+            Box::new(|t| beams(&part.clone().at_temperature(t)).map(|(_, s)| s)),
+        )],
+    );
     let tol = req.tolerances;
     let mut rng = Rng::new(req.seed);
     let (base, _) = part.scenario.resolve()?;
@@ -336,6 +353,8 @@ pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
         small_angle_wedge_deg: small,
         split_angle_deg: split,
         thickness_mm: t,
+        thickness_at_temperature_mm: [0, 1]
+            .map(|i| t[i] * growth(&req.medium, 90.0, 90.0 * i as f64, req.temperature_c)),
         edge_thickness_mm: min_edge_mm(req.aperture_mm),
         clear_aperture_mm: req.aperture_mm,
         contact: if req.cement_index.is_some() {
@@ -347,6 +366,7 @@ pub fn design(req: &SplitterRequest) -> Result<SplitterDesign, Error> {
         beams: beams_out,
         band,
         tolerances: tol,
+        temperature,
         samples: req.samples,
         seed: req.seed,
         split_angle_spread: (req.samples > 0).then(|| summarize(&runs, BINS)),

@@ -19,10 +19,16 @@
 //! some whole number of waves, found on a scan of the trace and bisected. A mounted plate lit
 //! along z is the unmounted plate lit at polar angle t from the azimuth opposite the tilt (the
 //! tests check the two against each other).
+//!
+//! Temperature: the plate (its thickness made at 20 °C) works at the request's `temperature_c` T
+//! ([`crate::design::thermal`]): every trace is at T. The tilt's change per kelvin follows from
+//! the tuned condition |Γ(t, T)| = target + m by implicit differentiation,
+//! dt/dT = −(∂Γ/∂T)/(∂Γ/∂t), each partial a central difference of the exact trace.
 
 use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::{PlateSize, TiltRequest};
 use crate::design::part::{Part, placed_crystal};
+use crate::design::thermal::{Temperature, growth, indices_at, per_kelvin};
 use crate::error::Error;
 use crate::numfmt::sig;
 use crate::optics::wavelength::Wavelength;
@@ -57,6 +63,11 @@ pub struct TiltDesign {
     pub order: i64,
     /// dΓ/dt at the tilt, waves per degree.
     pub sensitivity_waves_per_deg: f64,
+    /// The plate's thickness at the design temperature, mm.
+    pub thickness_at_temperature_mm: f64,
+    /// About the design temperature: the tuned tilt's change (`tilt_deg`, degrees per kelvin) and
+    /// the retardance's at the fixed tilt (`retardance_waves`, waves per kelvin).
+    pub temperature: Temperature,
     /// Retardance against tilt from 0 to the largest tilt searched.
     pub curve: TiltCurve,
     /// The mounted plate, ready to load.
@@ -96,6 +107,7 @@ impl TiltRequest {
                 Contact::Air,
             )],
         );
+        part = part.at_temperature(self.temperature_c);
         // The screen beyond the tilted plate's back face: at the default (the back face's axis
         // point before mounting) part of a tilted face lies past the screen, and a ray leaving
         // there would not reach it.
@@ -116,7 +128,7 @@ pub fn traced_retardance_waves(part: &Part) -> Option<f64> {
 /// # Errors
 /// `material` without birefringence; `max_tilt_deg` when no tilt up to it reaches the target.
 pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let ix = indices_at(&req.medium, req.wavelength, req.temperature_c)?;
     if (ix.ne - ix.no).abs() < crate::precision::NO_BIREFRINGENCE {
         return Err(Error::new(
             "material",
@@ -189,9 +201,21 @@ pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
     } else {
         (up - at(tilt).ok_or_else(fail)?) / h
     };
+    let t_c = req.temperature_c;
+    let tuned = req.part(l, tilt);
+    let gamma_per_k = per_kelvin(|t| traced_retardance_waves(&tuned.clone().at_temperature(t)), t_c);
+    let temperature = Temperature::given(
+        t_c,
+        vec![
+            ("retardance_waves", gamma_per_k),
+            ("tilt_deg", gamma_per_k.filter(|_| slope != 0.0).map(|d| -d / slope)),
+        ],
+    );
     Ok(TiltDesign {
         tilt_deg: tilt,
         thickness_mm: l,
+        thickness_at_temperature_mm: l * growth(&req.medium, 90.0, req.axis_azimuth_deg, t_c),
+        temperature,
         normal_retardance_waves: curve.retardance_waves[0],
         retardance_waves: at(tilt).ok_or_else(fail)?,
         order: m as i64,

@@ -18,11 +18,12 @@
 //!
 //! Temperature: each plate's indices and thickness at T as the scenario contract takes them
 //! (`temperature_c`: the catalogue's thermo-optic data, thickness grown by α⊥ for an axis in the
-//! faces), so Γ(T) = 2π Σ ±Δn(T) L (1 + α⊥ (T − 20 °C)) / λ. The design is made at 20 °C; its
-//! sensitivity dΓ/dT is a central difference of Γ(T) about 20 °C, and the temperature band is
-//! where |Γ(T) − Γ(20 °C)| stays within the acceptance error, each edge bisected on Γ(T) between
-//! 20 °C and the contract's limit (−200 or 500 °C; Γ is taken monotonic in between, as it is for
-//! the catalogue's data).
+//! faces), so Γ(T) = 2π Σ ±Δn(T) L (1 + α⊥ (T − 20 °C)) / λ. The design is made for the
+//! request's `temperature_c` T₀ ([`crate::design::thermal`]): the thickness gives the target at
+//! T₀ and is quoted at 20 °C. Its sensitivity dΓ/dT is a central difference of Γ(T) about T₀, and
+//! the temperature band is where |Γ(T) − Γ(T₀)| stays within the acceptance error, each edge
+//! bisected on Γ(T) between T₀ and the contract's limit (−200 or 500 °C; Γ is taken monotonic in
+//! between, as it is for the catalogue's data). The achromatic pair below is solved at T₀ too.
 //!
 //! Achromatic pair: plates of two materials A and B with parallel (or crossed, a negative
 //! thickness) axes retard by Γ(λ) = 2π [L_A Δn_A(λ) + L_B Δn_B(λ)] / λ; requiring the target at
@@ -30,13 +31,13 @@
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
 //! memory).
 
-use crate::contract::request::{AchromatRequest, Order, WaveplateRequest};
+use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
 use crate::design::part::{Part, crystal};
+use crate::design::thermal::{PerKelvin, Temperature, growth, indices_at, per_kelvin};
 use crate::error::Error;
-use crate::optics::anisotropic::orientation;
-use crate::optics::material::{Indices, OpticalSign, REFERENCE_C};
+use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
@@ -79,8 +80,10 @@ pub struct AngularCurve {
 pub struct PlateSpec {
     /// Catalogue key or "custom".
     pub material: String,
-    /// Thickness, mm.
+    /// Thickness as made at 20 °C, mm.
     pub thickness_mm: f64,
+    /// That thickness at the design temperature, mm (grown by α⊥, the axis in the faces).
+    pub thickness_at_temperature_mm: f64,
     /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°).
     pub axis_azimuth_deg: f64,
 }
@@ -127,7 +130,7 @@ pub struct WaveplateDesign {
     /// `found`, or `at_least` when no plane reached the error limit within
     /// `max_incidence_deg`: the acceptance is then only known to be at least `acceptance_deg`.
     pub acceptance_bound: Bound,
-    /// How the retardance changes with temperature about 20 °C, the design temperature.
+    /// How the retardance changes with temperature about the design temperature.
     pub temperature: TemperatureSensitivity,
     /// A scenario with these plates, ready to load.
     pub scenario: Part,
@@ -136,8 +139,14 @@ pub struct WaveplateDesign {
 /// A waveplate's retardance against temperature (see the module header).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct TemperatureSensitivity {
-    /// The design temperature, °C (the contract's reference, at which thicknesses are given).
+    /// The design temperature, °C (the request's `temperature_c`; thicknesses are given at
+    /// 20 °C).
     pub design_temperature_c: f64,
+    /// The half step of the central difference, K.
+    pub step_k: f64,
+    /// The common form of every design's sensitivities: `retardance_waves`, dΓ/dT in waves per
+    /// kelvin ([`crate::design::thermal::Temperature`]).
+    pub per_kelvin: PerKelvin,
     /// dΓ/dT at the design temperature, waves per kelvin.
     pub retardance_per_kelvin_waves: f64,
     /// (1/Γ) dΓ/dT, per kelvin.
@@ -150,12 +159,15 @@ pub struct TemperatureSensitivity {
     pub band_bound: [Bound; 2],
 }
 
-pub(super) fn plate_specs(plates: &[(Medium, f64, f64)]) -> Vec<PlateSpec> {
+/// The plates (medium, thickness made at 20 °C, axis azimuth) as the answer states them, working
+/// at `t_c` °C.
+pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], t_c: f64) -> Vec<PlateSpec> {
     plates
         .iter()
         .map(|(md, l, az)| PlateSpec {
             material: md.key().to_string(),
             thickness_mm: *l,
+            thickness_at_temperature_mm: l * growth(md, 90.0, *az, t_c),
             axis_azimuth_deg: *az,
         })
         .collect()
@@ -168,15 +180,10 @@ fn sign_word(ix: Indices) -> &'static str {
     }
 }
 
-/// Retardance (radians) of the plates at one wavelength and tangential wave vector: each plate's
-/// exact retardance, counted negative for plates whose axis is crossed (azimuth 90°) with the
-/// first's.
-fn stack_retardance(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2]) -> Option<f64> {
-    stack_retardance_at(plates, nm, qt, REFERENCE_C)
-}
-
-/// [`stack_retardance`] at `t_c` °C: each plate's indices at that temperature and its thickness
-/// grown by its expansion along z (the same numbers at 20 °C).
+/// Retardance (radians) of the plates (thicknesses made at 20 °C) at one wavelength and
+/// tangential wave vector, working at `t_c` °C: each plate's exact retardance with its indices at
+/// that temperature and its thickness grown by its expansion along z, counted negative for plates
+/// whose axis is crossed (azimuth 90°) with the first's.
 pub(super) fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
     let mut total = 0.0;
@@ -184,8 +191,7 @@ pub(super) fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f
         let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
             return None;
         };
-        let axes = orientation(90f64.to_radians(), az.to_radians(), 0.0);
-        let l = l * (1.0 + medium.expansion_along_z(&axes) * (t_c - REFERENCE_C));
+        let l = l * growth(medium, 90.0, *az, t_c);
         let p = plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, l, wl, qt)?;
         let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
         total += if crossed { -p.retardance_rad } else { p.retardance_rad };
@@ -193,16 +199,22 @@ pub(super) fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f
     Some(total)
 }
 
-fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_waves: f64) -> Vec<AngularCurve> {
+fn angular_curves(
+    plates: &[(Medium, f64, f64)],
+    (nm, t_c): (f64, f64),
+    max_deg: f64,
+    err_waves: f64,
+) -> Vec<AngularCurve> {
     let axis_az = plates.first().map_or(0.0, |p| p.2);
     [0.0, 45.0, 90.0]
         .iter()
         .map(|&plane| {
             let at = |deg: f64| {
-                stack_retardance(
+                stack_retardance_at(
                     plates,
                     nm,
                     tangential(1.0, deg.to_radians(), (axis_az + plane).to_radians()),
+                    t_c,
                 )
                 .map(|g| g / TAU)
             };
@@ -240,23 +252,22 @@ fn angular_curves(plates: &[(Medium, f64, f64)], nm: f64, max_deg: f64, err_wave
         .collect()
 }
 
-/// The retardance's temperature sensitivity and band of `plates` at `nm` for an error of
-/// `err_waves` (see the module header); `None` where the plates cannot be evaluated.
+/// The retardance's temperature sensitivity and band of `plates` at `nm` about `t_c` °C for an
+/// error of `err_waves` (see the module header); `None` where the plates cannot be evaluated.
 pub(super) fn temperature_sensitivity(
     plates: &[(Medium, f64, f64)],
-    nm: f64,
+    (nm, t_c): (f64, f64),
     err_waves: f64,
 ) -> Option<TemperatureSensitivity> {
     let at = |t: f64| stack_retardance_at(plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
-    let g0 = at(REFERENCE_C)?;
-    let h = TEMPERATURE_STEP_K;
-    let slope = (at(REFERENCE_C + h)? - at(REFERENCE_C - h)?) / (2.0 * h);
+    let g0 = at(t_c)?;
+    let slope = per_kelvin(at, t_c)?;
     let inside = |t: f64| at(t).is_some_and(|g| (g - g0).abs() <= err_waves);
     let edge = |limit: f64| {
         if inside(limit) {
             return (limit, Bound::AtLeast);
         }
-        let (mut good, mut bad) = (REFERENCE_C, limit);
+        let (mut good, mut bad) = (t_c, limit);
         for _ in 0..BISECTION_STEPS {
             let mid = 0.5 * (good + bad);
             if inside(mid) {
@@ -267,9 +278,11 @@ pub(super) fn temperature_sensitivity(
         }
         (good, Bound::Found)
     };
-    let ((lo, lo_bound), (hi, hi_bound)) = (edge(-200.0), edge(500.0));
+    let ((lo, lo_bound), (hi, hi_bound)) = (edge(TEMPERATURE_RANGE_C.0), edge(TEMPERATURE_RANGE_C.1));
     Some(TemperatureSensitivity {
-        design_temperature_c: REFERENCE_C,
+        design_temperature_c: t_c,
+        step_k: TEMPERATURE_STEP_K,
+        per_kelvin: PerKelvin(vec![("retardance_waves", slope)]),
         retardance_per_kelvin_waves: slope,
         relative_per_kelvin: slope / g0,
         band_c: [lo, hi],
@@ -283,12 +296,14 @@ pub(super) fn temperature_sensitivity(
 /// `wavelength_nm` if the dispersion formula breaks down; `material` for a crystal without
 /// birefringence.
 pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
-    let ix = req.medium.indices(req.wavelength)?;
+    let t_c = req.temperature_c;
+    let ix = indices_at(&req.medium, req.wavelength, t_c)?;
     let dn = ix.ne - ix.no;
     if dn.abs() < NO_BIREFRINGENCE {
         return Err(Error::new("material", "n_o equals n_e: this crystal cannot retard"));
     }
-    let lam_mm = req.wavelength.mm();
+    // Thicknesses made at 20 °C that reach the target at the working temperature.
+    let lam_mm = req.wavelength.mm() / growth(&req.medium, 90.0, 0.0, t_c);
     let zero = req.retardance_waves * lam_mm / dn.abs();
     let m = &req.medium;
     let (order, order_number, plates): (&str, u32, Vec<(Medium, f64, f64)>) = match req.order {
@@ -301,7 +316,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         Order::Compound { base_mm } => ("compound", 0, vec![(*m, base_mm + zero, 0.0), (*m, base_mm, 90.0)]),
     };
     let nm = req.wavelength.nm();
-    let g = stack_retardance(&plates, nm, [0.0, 0.0])
+    let g = stack_retardance_at(&plates, nm, [0.0, 0.0], t_c)
         .ok_or_else(|| Error::new("retardance_waves", "the plate model cannot be evaluated"))?
         / TAU;
     let (lo, hi) = req.band();
@@ -309,10 +324,10 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let wavelength_curve = (0..=n)
         .filter_map(|i| {
             let w = lo + (hi - lo) * i as f64 / n as f64;
-            stack_retardance(&plates, w, [0.0, 0.0]).map(|r| [w, r / TAU])
+            stack_retardance_at(&plates, w, [0.0, 0.0], t_c).map(|r| [w, r / TAU])
         })
         .collect();
-    let angular = angular_curves(&plates, nm, req.max_incidence_deg, req.acceptance_error_waves);
+    let angular = angular_curves(&plates, (nm, t_c), req.max_incidence_deg, req.acceptance_error_waves);
     // The worst plane decides; its bound is the answer's (a plane that never left the limit has
     // the curve's end as its acceptance, never below a plane that did leave it).
     let worst = angular
@@ -320,13 +335,13 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
         .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
     let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
-    let temperature = temperature_sensitivity(&plates, nm, req.acceptance_error_waves)
+    let temperature = temperature_sensitivity(&plates, (nm, t_c), req.acceptance_error_waves)
         .ok_or_else(|| Error::new("material", "the crystal's temperature data cannot be evaluated"))?;
     let elements = plates
         .iter()
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
-    let scenario = Part::new(req.wavelength, None, elements);
+    let scenario = Part::new(req.wavelength, None, elements).at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
     Ok(WaveplateDesign {
         wavelength_nm: nm,
@@ -337,7 +352,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         birefringence: dn,
         order: order.into(),
         order_number,
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t_c),
         effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
         retardance_waves: g,
         fast_axis: sign_word(ix).into(),
@@ -363,6 +378,9 @@ pub struct AchromatDesign {
     /// The largest departure from the target over the band, waves (refined between the curve's
     /// samples, so it is the maximum, not a lower bound of it).
     pub max_error_waves: f64,
+    /// dΓ/dT at each design wavelength about the design temperature, waves per kelvin
+    /// (`retardance_first_wavelength_waves`, `retardance_second_wavelength_waves`).
+    pub temperature: Temperature,
     /// A scenario with the pair, ready to load.
     pub scenario: Part,
 }
@@ -402,11 +420,14 @@ fn largest_error(curve: &[[f64; 2]], err: impl Fn(f64) -> Option<f64>, target: f
 /// are proportional (the system is singular: no achromatic pair exists).
 pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     let (w1, w2) = req.wavelengths_nm;
+    let t_c = req.temperature_c;
+    // Δn(λ, T) per millimetre made at 20 °C.
     let dn = |m: &Medium, nm: f64| -> Result<f64, Error> {
-        let ix = m
-            .indices(Wavelength::from_nm(nm)?)
-            .map_err(|e| Error::new("wavelengths_nm", e.message))?;
-        Ok(ix.ne - ix.no)
+        let ix = indices_at(m, Wavelength::from_nm(nm)?, t_c).map_err(|e| match e.field.as_str() {
+            "temperature_c" => e,
+            _ => Error::new("wavelengths_nm", e.message),
+        })?;
+        Ok((ix.ne - ix.no) * growth(m, 90.0, 0.0, t_c))
     };
     // Rows: Δn(λ)/λ for each material, in waves per mm.
     let (l1, l2) = (w1 * 1e-6, w2 * 1e-6);
@@ -431,9 +452,11 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         (req.a, la.abs(), if la < 0.0 { 90.0 } else { 0.0 }),
         (req.b, lb.abs(), if lb < 0.0 { 90.0 } else { 0.0 }),
     ];
-    let signed = |m: &Medium, l: f64, az: f64, nm: f64| -> Option<f64> {
+    // Each plate's retardance at `t` °C, negative for a crossed plate (axis at 90°).
+    let signed = |m: &Medium, l: f64, az: f64, nm: f64, t: f64| -> Option<f64> {
         let wl = Wavelength::from_nm(nm).ok()?;
-        let ix = m.indices(wl).ok()?;
+        let ix = indices_at(m, wl, t).ok()?;
+        let l = l * growth(m, 90.0, 0.0, t);
         let p = plate_optics(ix, axis_from_degrees(90.0, 0.0).ok()?, l, wl, [0.0, 0.0])?;
         Some(
             if az == 90.0 {
@@ -443,12 +466,13 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
             } / TAU,
         )
     };
-    let total = |nm: f64| -> Option<f64> {
+    let total_at = |nm: f64, t: f64| -> Option<f64> {
         plates
             .iter()
-            .map(|(m, l, az)| signed(m, *l, *az, nm))
+            .map(|(m, l, az)| signed(m, *l, *az, nm, t))
             .sum::<Option<f64>>()
     };
+    let total = |nm: f64| total_at(nm, t_c);
     let g1 = total(w1).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let g2 = total(w2).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let (lo, hi) = req.band();
@@ -460,16 +484,24 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         })
         .collect();
     let max_error_waves = largest_error(&curve, |w| total(w).map(|g| (g - f).abs()), f);
+    let temperature = Temperature::of(
+        t_c,
+        vec![
+            ("retardance_first_wavelength_waves", Box::new(|t| total_at(w1, t))),
+            ("retardance_second_wavelength_waves", Box::new(|t| total_at(w2, t))),
+        ],
+    );
     let elements = plates
         .iter()
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
     Ok(AchromatDesign {
-        plates: plate_specs(&plates),
+        plates: plate_specs(&plates, t_c),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,
-        scenario: Part::new(Wavelength::from_nm(w1)?, None, elements),
+        temperature,
+        scenario: Part::new(Wavelength::from_nm(w1)?, None, elements).at_temperature(t_c),
     })
 }
 
@@ -479,6 +511,7 @@ mod tests {
     use crate::contract::fields::Fields;
     use crate::contract::result::{ElementReport, trace_scenario as trace};
     use crate::contract::scenario::Scenario;
+    use crate::optics::material::REFERENCE_C;
     use serde_json::{Value, json};
 
     fn fields(doc: &str) -> Value {

@@ -70,3 +70,15 @@ test('a file naming an unknown source is refused with the field and the known so
     await waitScenario(page, (s) => s.elements[0].source === 'tropf-1995', 'the set-up is kept');
   });
 });
+
+test('a design in the panel says which formula its indices came from', { timeout: 120000 }, async () => {
+  const { fill } = await import('./design-support.mjs');
+  const { solveDesign } = await import('./support.mjs');
+  await withPage('/', async (page) => {
+    await fill(page, 'displacer', [['material', 'calcite'], ['separation_mm', 1], ['wavelength_nm', 632.8]]);
+    await solveDesign(page);
+    const items = await page.$$eval('#design-results [data-design-advice="sources"] li', (els) => els.map((e) => e.textContent));
+    assert.equal(items.length, 1, JSON.stringify(items));
+    assert.match(items[0], /ghosh-1999 formula, G\. Ghosh/, items[0]);
+  });
+});

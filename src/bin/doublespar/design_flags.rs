@@ -56,6 +56,13 @@ const MEDIUM_HELP: [Flag; 3] = [
 
 const DESIGN_WAVELENGTH: Flag = flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]");
 
+const DESIGN_TEMPERATURE: Flag = flag(
+    "temperature-c",
+    "temperature_c",
+    N,
+    "temperature the part works at, °C, −200 to 500 (thicknesses quoted at 20) [20]",
+);
+
 const TOL_INCIDENCE: Flag = flag(
     "tol-incidence-deg",
     "tolerances.incidence_deg",
@@ -65,7 +72,7 @@ const TOL_INCIDENCE: Flag = flag(
 
 const SEED: Flag = flag("seed", "seed", N, "Monte Carlo seed, a whole number [1]");
 
-const DISPLACER: [Flag; 16] = [
+const DISPLACER: [Flag; 17] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -117,9 +124,10 @@ const DISPLACER: [Flag; 16] = [
     flag("samples", "samples", N, "Monte Carlo samples, 0 to 1000000 [100000]"),
     SEED,
     flag("bins", "bins", N, "histogram bins [40]"),
+    DESIGN_TEMPERATURE,
 ];
 
-const WAVEPLATE: [Flag; 11] = [
+const WAVEPLATE: [Flag; 12] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -156,9 +164,10 @@ const WAVEPLATE: [Flag; 11] = [
         N,
         "retardance error that ends the acceptance, waves [0.01]",
     ),
+    DESIGN_TEMPERATURE,
 ];
 
-const ACHROMAT: [Flag; 9] = [
+const ACHROMAT: [Flag; 10] = [
     flag("first-material", "first.material", T, "first plate's catalogue key"),
     flag(
         "first-no",
@@ -198,9 +207,10 @@ const ACHROMAT: [Flag; 9] = [
         "the two wavelengths made exact, A,B in nm (required)",
     ),
     flag("band-nm", "band_nm", P, "band to plot, SHORTEST,LONGEST in nm"),
+    DESIGN_TEMPERATURE,
 ];
 
-const ATHERMAL: [Flag; 9] = [
+const ATHERMAL: [Flag; 10] = [
     ACHROMAT[0],
     ACHROMAT[1],
     ACHROMAT[2],
@@ -215,9 +225,10 @@ const ATHERMAL: [Flag; 9] = [
         N,
         "retardance error that bounds the temperature band, waves [0.01]",
     ),
+    DESIGN_TEMPERATURE,
 ];
 
-const RECOMBINER: [Flag; 11] = [
+const RECOMBINER: [Flag; 12] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -249,9 +260,10 @@ const RECOMBINER: [Flag; 11] = [
         N,
         "second displacer's cut off by, ° [0]",
     ),
+    DESIGN_TEMPERATURE,
 ];
 
-const SPLITTER: [Flag; 13] = [
+const SPLITTER: [Flag; 14] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -290,18 +302,20 @@ const SPLITTER: [Flag; 13] = [
     TOL_INCIDENCE,
     flag("samples", "samples", N, "Monte Carlo samples, 0 to 200000 [2000]"),
     SEED,
+    DESIGN_TEMPERATURE,
 ];
 
-const POLARIZER: [Flag; 6] = [
+const POLARIZER: [Flag; 7] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
     DESIGN_WAVELENGTH,
     flag("cement-index", "cement_index", N, "cement in the gap [air]"),
     flag("aperture-mm", "aperture_mm", N, "clear aperture, mm [10]"),
+    DESIGN_TEMPERATURE,
 ];
 
-const TILT: [Flag; 11] = [
+const TILT: [Flag; 12] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -343,9 +357,10 @@ const TILT: [Flag; 11] = [
         "plane of the mount tilt, ° from x [0]",
     ),
     flag("max-tilt-deg", "max_tilt_deg", N, "largest tilt searched, ° [30]"),
+    DESIGN_TEMPERATURE,
 ];
 
-const ROTATOR: [Flag; 8] = [
+const ROTATOR: [Flag; 9] = [
     flag(
         "rotation-deg",
         "rotation_deg",
@@ -389,6 +404,7 @@ const ROTATOR: [Flag; 8] = [
         N,
         "largest incidence searched, ° [10]",
     ),
+    DESIGN_TEMPERATURE,
 ];
 
 /// The flags of a design kind, or `None` for an unknown kind.

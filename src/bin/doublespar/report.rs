@@ -118,9 +118,68 @@ impl<'a> Report<'a> {
         }
     }
 
-    /// Notes and warnings: the dispersion source of each crystal (`sources`), the listed text
-    /// fields and any `warnings` / `notes` list.
+    /// The design temperature, the lengths at it and each figure's change per kelvin
+    /// (`temperature.per_kelvin`), the unit read from the figure's name; a figure a kind's own
+    /// lines have shown is not repeated.
+    fn temperature(&mut self) {
+        let Some(t0) = self.f("temperature.design_temperature_c") else {
+            return;
+        };
+        self.used.insert("temperature.step_k".into());
+        self.section("Temperature");
+        self.line("designed for", format!("{} °C (lengths made at 20 °C)", num(t0)));
+        let mut grown: Vec<(String, String)> = self
+            .v
+            .as_object()
+            .map(|m| {
+                m.keys()
+                    .filter(|k| k.ends_with("_at_temperature_mm"))
+                    .map(|k| (k.trim_end_matches("_at_temperature_mm").replace('_', " "), k.clone()))
+                    .collect()
+            })
+            .unwrap_or_default();
+        let plates = self.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len);
+        grown.extend((0..plates).map(|i| {
+            (
+                format!("plate {} thickness", i + 1),
+                format!("plates.{i}.thickness_at_temperature_mm"),
+            )
+        }));
+        for (label, k) in grown {
+            // At 20 °C the length at temperature is the length made, shown above.
+            if t0 == doublespar::REFERENCE_C {
+                self.used.insert(k);
+                continue;
+            }
+            match self.at(&k).and_then(Value::as_array) {
+                // A pair of prisms or wedges: both thicknesses on one line.
+                Some(list) => {
+                    let text: Vec<String> = list.iter().filter_map(Value::as_f64).map(num).collect();
+                    self.line(&format!("{label} at {} °C", num(t0)), format!("{} mm", text.join(", ")));
+                }
+                None => self.quantity(&format!("{label} at {} °C", num(t0)), &k, "mm"),
+            }
+        }
+        let figures: Vec<String> = self
+            .v
+            .pointer("/temperature/per_kelvin")
+            .and_then(Value::as_object)
+            .map(|m| m.keys().cloned().collect())
+            .unwrap_or_default();
+        for k in figures {
+            let path = format!("temperature.per_kelvin.{k}");
+            if self.used.contains(&path) {
+                continue;
+            }
+            let (name, unit) = per_kelvin_words(&k);
+            self.quantity(&format!("{name} per kelvin"), &path, &format!("{unit}/K"));
+        }
+    }
+
+    /// Notes and warnings, after the temperature section: the dispersion source of each crystal
+    /// (`sources`), the listed text fields and any `warnings` / `notes` list.
     fn notes(&mut self, texts: &[&str]) {
+        self.temperature();
         let mut items: Vec<String> = Vec::new();
         for s in self.at("sources").and_then(Value::as_array).into_iter().flatten() {
             let text = |k: &str| s.get(k).and_then(Value::as_str).unwrap_or_default();
@@ -174,6 +233,24 @@ impl<'a> Report<'a> {
             self.line(&k, v);
         }
     }
+}
+
+/// The words and unit of a `per_kelvin` figure from its JSON name (`separation_um` → separation,
+/// µm).
+fn per_kelvin_words(key: &str) -> (String, &'static str) {
+    for (suffix, unit) in [
+        ("_um", "µm"),
+        ("_mm", "mm"),
+        ("_deg", "°"),
+        ("_waves", "waves"),
+        ("_rad", "rad"),
+        ("_nm", "nm"),
+    ] {
+        if let Some(name) = key.strip_suffix(suffix) {
+            return (name.replace('_', " "), unit);
+        }
+    }
+    (key.replace('_', " "), "")
 }
 
 fn collect(v: &Value, prefix: &str, used: &BTreeSet<String>, out: &mut Vec<(String, String)>) {
@@ -510,6 +587,9 @@ fn waveplate_temperature(r: &mut Report, err: &str) {
 /// The lines of one temperature sensitivity at `path` (`temperature`, `single_plate.temperature`),
 /// their labels prefixed by `who`.
 fn temperature_lines(r: &mut Report, err: &str, path: &str, who: &str) {
+    // The common per-kelvin form repeats the line below.
+    r.used.insert(format!("{path}.per_kelvin.retardance_waves"));
+    r.used.insert(format!("{path}.step_k"));
     let t0 = r
         .f(&format!("{path}.design_temperature_c"))
         .map_or_else(String::new, num);
@@ -556,8 +636,11 @@ fn athermal(r: &mut Report) {
     r.line("aperture", "as the beam needs (not set by this design)");
     r.section("Performance");
     r.quantity("wavelength", "wavelength_nm", "nm");
+    let t0 = r
+        .f("temperature.design_temperature_c")
+        .unwrap_or(doublespar::REFERENCE_C);
     r.quantity(
-        "retardance at 20 °C",
+        &format!("retardance at {} °C", num(t0)),
         "retardance_waves",
         "waves (positive: the first plate's axis is slow)",
     );

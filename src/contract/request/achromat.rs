@@ -1,7 +1,7 @@
 //! The achromat request: two crystals (`first`, `second`) whose plates together hold a target
 //! retardance at two wavelengths.
 
-use super::{band, two_media};
+use super::{band, temperature_field, two_media};
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -20,6 +20,9 @@ pub struct AchromatRequest {
     pub wavelengths_nm: (f64, f64),
     /// Band for the curve, nm.
     pub band_nm: Option<(f64, f64)>,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl AchromatRequest {
@@ -48,6 +51,7 @@ impl AchromatRequest {
             retardance_waves: in_range("retardance_waves", f.required_number("retardance_waves")?, 1e-6, 1e4)?,
             wavelengths_nm: (w1, w2),
             band_nm: band(f, "band_nm")?,
+            temperature_c: temperature_field(f)?,
         })
     }
 

@@ -1,7 +1,7 @@
 //! The athermal waveplate request: two crystals (`first`, `second`) whose plates together give a
 //! target retardance at one wavelength with no first-order change with temperature.
 
-use super::{two_media, wavelength_field};
+use super::{temperature_field, two_media, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::contract::request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES;
 use crate::contract::scenario::Medium;
@@ -21,6 +21,9 @@ pub struct AthermalRequest {
     pub wavelength: Wavelength,
     /// Retardance error that bounds the temperature band, waves.
     pub acceptance_error_waves: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl AthermalRequest {
@@ -42,6 +45,7 @@ impl AthermalRequest {
                 1e-9,
                 0.5,
             )?,
+            temperature_c: temperature_field(f)?,
         })
     }
 }

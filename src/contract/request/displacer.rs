@@ -1,7 +1,7 @@
 //! The displacer request: a crystal, a required o–e separation, the beam, and the error standard
 //! deviations of its tolerance analysis with the Monte Carlo run's size.
 
-use super::{band, parse_medium, wavelength_field, whole};
+use super::{band, parse_medium, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -63,6 +63,9 @@ pub struct DisplacerRequest {
     pub seed: u64,
     /// Histogram bins.
     pub bins: usize,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl DisplacerRequest {
@@ -115,6 +118,7 @@ impl DisplacerRequest {
             samples,
             seed,
             bins,
+            temperature_c: temperature_field(f)?,
         })
     }
 }

@@ -119,6 +119,24 @@ fn wavelength_field(f: &mut Fields) -> Result<Wavelength, Error> {
     )?)
 }
 
+/// The request's `temperature_c` (default 20, from −200 to 500 °C, the contract's range): the
+/// temperature the part is designed to work at.
+///
+/// # Errors
+/// `temperature_c` when it is not a number or out of range.
+fn temperature_field(f: &mut Fields) -> Result<f64, Error> {
+    let path = f.path_of("temperature_c");
+    in_range(
+        &path,
+        f.number_or("temperature_c", material::REFERENCE_C)?,
+        TEMPERATURE_RANGE_C.0,
+        TEMPERATURE_RANGE_C.1,
+    )
+}
+
+/// The range of a request's `temperature_c`, °C (the scenario contract's).
+pub const TEMPERATURE_RANGE_C: (f64, f64) = (-200.0, 500.0);
+
 /// An optional band `[shortest, longest]` in nm, each from 1 to 10⁶.
 ///
 /// # Errors
@@ -210,6 +228,16 @@ mod tests {
             (
                 r#"{"material": "calcite", "separation_mm": 1, "band_nm": [500]}"#,
                 "band_nm",
+                "",
+            ),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "temperature_c": 501}"#,
+                "temperature_c",
+                "must be from \u{2212}200",
+            ),
+            (
+                r#"{"material": "calcite", "separation_mm": 1, "temperature_c": "hot"}"#,
+                "temperature_c",
                 "",
             ),
         ] {

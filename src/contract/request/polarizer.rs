@@ -1,7 +1,7 @@
 //! The polarizer request: two prisms of one uniaxial crystal across a thin gap of air or cement,
 //! one mode totally reflected at the gap and the other passed.
 
-use super::{parse_medium, wavelength_field};
+use super::{parse_medium, temperature_field, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -18,6 +18,9 @@ pub struct PolarizerRequest {
     pub cement_index: Option<f64>,
     /// Clear aperture, mm.
     pub aperture_mm: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl PolarizerRequest {
@@ -38,6 +41,7 @@ impl PolarizerRequest {
             wavelength,
             cement_index,
             aperture_mm,
+            temperature_c: temperature_field(f)?,
         })
     }
 

@@ -1,7 +1,7 @@
 //! The recombiner request: two displacers of one crystal with a half-wave plate or a rotator
 //! between them, and the second displacer's mismatch against the first.
 
-use super::{parse_medium, wavelength_field};
+use super::{parse_medium, temperature_field, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -36,6 +36,9 @@ pub struct RecombinerRequest {
     pub length_mismatch_mm: f64,
     /// Cut tilt of the second minus the first's, degrees.
     pub tilt_mismatch_deg: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl RecombinerRequest {
@@ -91,6 +94,7 @@ impl RecombinerRequest {
             middle,
             length_mismatch_mm,
             tilt_mismatch_deg,
+            temperature_c: temperature_field(f)?,
         })
     }
 }

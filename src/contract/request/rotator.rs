@@ -6,7 +6,7 @@
 //! a right-handed crystal (clockwise as seen looking toward the source). `handedness` forces one
 //! hand, which then reaches the requested rotation modulo 180°.
 
-use super::{band, wavelength_field};
+use super::{band, temperature_field, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::error::{Error, above, in_range};
 use crate::numfmt::quote_text;
@@ -39,6 +39,9 @@ pub struct RotatorRequest {
     pub ellipticity_tolerance_deg: f64,
     /// Largest incidence searched for the acceptance, degrees.
     pub max_incidence_deg: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl RotatorRequest {
@@ -96,6 +99,7 @@ impl RotatorRequest {
             rotation_tolerance_deg,
             ellipticity_tolerance_deg,
             max_incidence_deg,
+            temperature_c: temperature_field(f)?,
         })
     }
 

@@ -1,7 +1,7 @@
 //! The splitter request: two wedges of one uniaxial crystal with crossed optic axes, contacted
 //! (or cemented) along their tilted common face, split symmetrically by a required angle.
 
-use super::{band, parse_medium, wavelength_field, whole};
+use super::{band, parse_medium, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -56,6 +56,9 @@ pub struct SplitterRequest {
     pub samples: usize,
     /// Random seed.
     pub seed: u64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl SplitterRequest {
@@ -108,6 +111,7 @@ impl SplitterRequest {
             tolerances,
             samples,
             seed,
+            temperature_c: temperature_field(f)?,
         })
     }
 

@@ -2,7 +2,7 @@
 //! thickness (or of a given order at another wavelength), tilted in its mount until it reaches a
 //! target retardance.
 
-use super::{parse_medium, wavelength_field, whole};
+use super::{parse_medium, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -40,6 +40,9 @@ pub struct TiltRequest {
     pub tilt_azimuth_deg: f64,
     /// Largest mount tilt searched, degrees.
     pub max_tilt_deg: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl TiltRequest {
@@ -81,6 +84,7 @@ impl TiltRequest {
             axis_azimuth_deg,
             tilt_azimuth_deg,
             max_tilt_deg,
+            temperature_c: temperature_field(f)?,
         })
     }
 

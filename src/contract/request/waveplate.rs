@@ -1,7 +1,7 @@
 //! The waveplate request: a crystal, a target retardance and the order that reaches it, with the
 //! band and the cone of incidence over which the plate is reported.
 
-use super::{band, parse_medium, wavelength_field, whole};
+use super::{band, parse_medium, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -43,6 +43,9 @@ pub struct WaveplateRequest {
     pub max_incidence_deg: f64,
     /// Retardance error that defines the acceptance angle, waves.
     pub acceptance_error_waves: f64,
+    /// The temperature the part is designed to work at, °C (`temperature_c`, default 20):
+    /// its indices are taken there and its thickness grown to it; thicknesses are quoted at 20 °C.
+    pub temperature_c: f64,
 }
 
 impl WaveplateRequest {
@@ -80,6 +83,7 @@ impl WaveplateRequest {
                 1e-9,
                 1.0,
             )?,
+            temperature_c: temperature_field(f)?,
         })
     }
 
