@@ -109,7 +109,15 @@ function buildTopControls() {
     options: [['ideal', 'ideal, no losses'], ['uncoated', 'uncoated, Fresnel']],
   }));
   addTop(light, 'beam.diameter_mm', new Field({ key: 'beam.diameter_mm', label: 'Beam diameter', unit: 'mm' }));
-  addTop(document.getElementById('screen-fields'), 'screen_mm', new Field({ key: 'screen_mm', label: 'Screen distance', unit: 'mm' }));
+  const after = document.getElementById('screen-fields');
+  addTop(after, 'screen_mm', new Field({ key: 'screen_mm', label: 'Screen distance', unit: 'mm' }));
+  // The spectrum: off by default; its range is kept while it is off.
+  addTop(after, 'spectrum', new Field({ key: 'spectrum', label: 'Spectrum', kind: 'select',
+    options: [['off', 'off'], ['on', 'traced over a range']],
+    hint: 'Transmission of the whole set-up against wavelength, each point a full trace.' }));
+  addTop(after, 'spectrum.from_nm', new Field({ key: 'from_nm', label: 'Spectrum from', unit: 'nm' })).set(400);
+  addTop(after, 'spectrum.to_nm', new Field({ key: 'to_nm', label: 'Spectrum to', unit: 'nm' })).set(800);
+  addTop(after, 'spectrum.points', new Field({ key: 'points', label: 'Spectrum points', unit: '', step: 1, hint: '2 to 20 000 wavelengths, both ends included.' })).set(401);
 
   const inc = document.getElementById('incidence-fields');
   inc.appendChild(errorSlot('beam'));
@@ -194,6 +202,15 @@ function buildTopControls() {
   state.controls['beam.polarization.stokes[1]'].set(0.5);
   state.controls['beam.polarization.stokes[2]'].set(0);
   state.controls['beam.polarization.stokes[3]'].set(0);
+}
+
+/** Shows the spectrum's range while the spectrum is on. */
+function showSpectrum() {
+  const on = state.controls.spectrum.value === 'on';
+  for (const p of ['spectrum.from_nm', 'spectrum.to_nm', 'spectrum.points']) {
+    const row = state.controls[p].row;
+    if (row.hidden !== !on) row.hidden = !on;
+  }
 }
 
 function showPolarizationKind() {
@@ -670,6 +687,7 @@ function buildScenario() {
   if (v('wavelength_in') !== 'vacuum') doc.wavelength_in = v('wavelength_in');
   // Written when not the default 20 °C, as the core writes it back.
   if (v('temperature_c') !== 20) doc.temperature_c = v('temperature_c');
+  if (v('spectrum') === 'on') doc.spectrum = { from_nm: v('spectrum.from_nm'), to_nm: v('spectrum.to_nm'), points: v('spectrum.points') };
   return doc;
 }
 
@@ -683,6 +701,15 @@ function loadControls(s) {
   set('wavelength_nm', member(s, 'wavelength_nm') ?? 632.8);
   set('wavelength_in', member(s, 'wavelength_in') ?? 'vacuum');
   set('temperature_c', member(s, 'temperature_c') ?? 20);
+  // A document without a spectrum turns it off and leaves the range as it was.
+  const spectrum = member(s, 'spectrum');
+  set('spectrum', spectrum === undefined ? 'off' : 'on');
+  if (spectrum !== undefined) {
+    set('spectrum.from_nm', member(spectrum, 'from_nm'));
+    set('spectrum.to_nm', member(spectrum, 'to_nm'));
+    set('spectrum.points', member(spectrum, 'points'));
+  }
+  showSpectrum();
   set('outside_index', member(s, 'outside_index') ?? 1);
   set('interface_losses', member(s, 'interface_losses') ?? 'ideal');
   const beam = member(s, 'beam');
@@ -1275,6 +1302,7 @@ function onControlEvent(ev) {
   }
   const field = t.dataset.field;
   if (field === 'beam.polarization.kind') showPolarizationKind();
+  if (field === 'spectrum') showSpectrum();
   const card = t.closest('li.card')?.card;
   if (card) {
     if (field.endsWith('.kind')) {

@@ -15,7 +15,7 @@ import { h } from './dom.js';
 import { minus } from './format.js';
 import { toFieldError } from './field-error.js';
 
-const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature'];
+const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength'];
 const VIEW_TITLES = {
   side: 'side view',
   end: 'end view',
@@ -27,6 +27,7 @@ const VIEW_TITLES = {
   'split-incidence': 'split angle against incidence plot',
   'retardance-temperature': 'retardance against temperature plot',
   'separation-temperature': 'separation against temperature plot',
+  'transmission-wavelength': 'transmission against wavelength plot',
 };
 const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
 

@@ -89,6 +89,11 @@ function num(v, digits) {
   return fixed(v, digits, 5e-13);
 }
 
+/** A wavelength as entered: up to three decimals, no trailing zeros (400, 632.8). */
+function nm(v) {
+  return num(v, 3).replace(/\.?0+$/, '');
+}
+
 /** A length alone in its sentence, in its own unit. */
 function lengthText(v) {
   return v === null || v === undefined ? '—' : lengthIn(v, lengthUnitFor(v), 3);
@@ -210,6 +215,18 @@ export function describeViews(state) {
     const which = `element ${crystals[0] + 1} (${describeMaterial(c.material)})`;
     texts['retardance-temperature'] = `Retardance against temperature for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(temperature, 1)} °C.`;
     texts['separation-temperature'] = `Separation against temperature for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(temperature, 1)} °C.`;
+  }
+  const spectrum = r.spectrum;
+  if (!spectrum) {
+    texts['transmission-wavelength'] = 'Transmission against wavelength: no spectrum asked for; turn on Spectrum below the stack.';
+  } else {
+    const traced = spectrum.transmission.filter((t) => t !== null);
+    const low = Math.min(...traced);
+    const high = Math.max(...traced);
+    const n = spectrum.wavelength_nm.length;
+    texts['transmission-wavelength'] = traced.length === 0
+      ? `Transmission against wavelength: none of the ${n} wavelengths could be traced.`
+      : `Transmission of the whole set-up from ${nm(spectrum.wavelength_nm[0])} to ${nm(spectrum.wavelength_nm[n - 1])} nm, ${n} points: between ${num(low, 3)} and ${num(high, 3)}.`;
   }
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);

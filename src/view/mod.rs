@@ -5,7 +5,9 @@
 //! e-ray walk-off direction, so a walk-off along y is seen; see [`side::SidePlane`]),
 //! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength` (plots of
 //! the first crystal of the stack), `split-wavelength`, `split-incidence` (plots of the whole
-//! set-up's split angle, [`split_series`]).
+//! set-up's split angle, [`split_series`]), `retardance-temperature`, `separation-temperature`
+//! ([`temperature_series`]) and `transmission-wavelength` (the result's spectrum,
+//! [`spectrum_plot`]).
 
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
@@ -19,13 +21,14 @@ pub mod poincare;
 pub mod scene;
 pub mod series;
 pub mod side;
+pub mod spectrum_plot;
 pub mod split_series;
 pub mod svg;
 pub mod table;
 pub mod temperature_series;
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 12] = [
+pub const VIEW_NAMES: [&str; 13] = [
     "side",
     "side-yz",
     "side-walkoff",
@@ -38,6 +41,7 @@ pub const VIEW_NAMES: [&str; 12] = [
     "split-incidence",
     "retardance-temperature",
     "separation-temperature",
+    "transmission-wavelength",
 ];
 
 /// Builds the view called `name`.
@@ -58,6 +62,7 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "split-incidence" => plot::plot(&split_series::split_vs_incidence(scenario)),
         "retardance-temperature" => plot::plot(&temperature_series::retardance_vs_temperature(scenario, 0)),
         "separation-temperature" => plot::plot(&temperature_series::separation_vs_temperature(scenario, 0)),
+        "transmission-wavelength" => plot::plot(&spectrum_plot::transmission_vs_wavelength(scenario, result)),
         other => {
             return Err(Error::new(
                 "view",
@@ -86,6 +91,9 @@ pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>,
         "split-incidence" => Some(split_series::split_vs_incidence(scenario)),
         "retardance-temperature" => Some(temperature_series::retardance_vs_temperature(scenario, 0)),
         "separation-temperature" => Some(temperature_series::separation_vs_temperature(scenario, 0)),
+        "transmission-wavelength" => crate::contract::result::trace_scenario(scenario)
+            .ok()
+            .map(|r| spectrum_plot::transmission_vs_wavelength(scenario, &r)),
         _ => None,
     })
 }

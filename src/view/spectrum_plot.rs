@@ -1,0 +1,84 @@
+//! The transmission spectrum of the whole set-up as a plot: the result's `spectrum` (every point
+//! a full trace of the scenario at that wavelength, `contract::spectrum`) against wavelength.
+//!
+//! Nothing is computed here: the points are the result's, so the plot and the numbers a reader
+//! exports are the same. The scenario's own wavelength is marked with its traced total power
+//! when it lies within the range. Without a `spectrum` in the scenario the plot is empty and its
+//! note says how to ask for one; points where a formula breaks down (null) are left out.
+
+use super::series::Series;
+use crate::contract::result::TraceResult;
+use crate::contract::scenario::Scenario;
+
+/// The transmission of the whole set-up against wavelength, from `result.spectrum`.
+pub fn transmission_vs_wavelength(sc: &Scenario, result: &TraceResult) -> Series {
+    let unit = if sc.air_wavelength_nm.is_some() {
+        "nm (air)"
+    } else {
+        "nm"
+    };
+    let mut s = Series {
+        title: "Transmission against wavelength".into(),
+        x_label: "wavelength".into(),
+        x_unit: unit.into(),
+        y_label: "transmission".into(),
+        y_unit: "of the input power".into(),
+        points: Vec::new(),
+        current: None,
+        markers: Vec::new(),
+        note: "no spectrum asked for: give the set-up a wavelength range (spectrum) to trace".into(),
+    };
+    let (Some(spectrum), Some(range)) = (&result.spectrum, &sc.spectrum) else {
+        return s;
+    };
+    s.points = spectrum
+        .wavelength_nm
+        .iter()
+        .zip(&spectrum.transmission)
+        .filter_map(|(&nm, t)| t.map(|t| [nm, t]))
+        .collect();
+    let own = sc.air_wavelength_nm.unwrap_or(sc.wavelength.nm());
+    let (lo, hi) = (range.from_nm.min(range.to_nm), range.from_nm.max(range.to_nm));
+    s.current = (lo..=hi).contains(&own).then_some([own, result.total_power]);
+    let missing = spectrum.transmission.iter().filter(|t| t.is_none()).count();
+    s.note = format!(
+        "the whole set-up, {} wavelengths each traced in full{}",
+        range.points,
+        if missing > 0 {
+            format!("; {missing} could not be traced")
+        } else {
+            String::new()
+        }
+    );
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::contract::result::trace_scenario;
+
+    #[test]
+    fn the_plot_holds_the_results_points_and_marks_the_own_wavelength() {
+        let doc = r#"{"version": 2, "wavelength_nm": 600, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
+            "elements": [{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 1, "axis": {"tilt_deg": 90, "azimuth_deg": 45}},
+                         {"kind": "polarizer", "transmission_axis_deg": 0}],
+            "spectrum": {"from_nm": 550, "to_nm": 650, "points": 11}}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace_scenario(&sc).unwrap();
+        let s = transmission_vs_wavelength(&sc, &r);
+        assert_eq!(s.points.len(), 11);
+        let spectrum = r.spectrum.as_ref().unwrap();
+        assert_eq!(
+            s.points[3],
+            [spectrum.wavelength_nm[3], spectrum.transmission[3].unwrap()]
+        );
+        // 600 nm is the sixth point: the marker sits on the curve.
+        assert_eq!(s.current, Some([600.0, r.total_power]));
+        assert_eq!(s.points[5][1], r.total_power);
+        // Without a spectrum: no points, and the note says how to ask for one.
+        let plain = Scenario { spectrum: None, ..sc };
+        let s = transmission_vs_wavelength(&plain, &trace_scenario(&plain).unwrap());
+        assert!(s.points.is_empty() && s.note.contains("spectrum"));
+    }
+}

@@ -1,0 +1,59 @@
+// End-to-end tests of the spectrum on the page: the Spectrum control below the stack adds a
+// wavelength range to the set-up, the transmission plot is drawn from the result's spectrum,
+// every point equals the command line's trace of the same document, the range is kept while the
+// spectrum is off, and a bad point count is named beside its field with the entries kept.
+//
+// Run: `cd tests/e2e && node --test spectrum.test.mjs` (after scripts/build-web.sh and
+// `cargo build --release --bin doublespar`).
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { useBrowser, withPage as openAt, waitScenario, enterValue, cliTrace, waitError, canvasStats, drawn } from './support.mjs';
+
+const env = useBrowser({ cli: true });
+const withPage = (address, body) => openAt(env, address, ({ page }) => body(page));
+
+const SPECTRUM = 'select[data-field="spectrum"]';
+const POINTS = 'input.num[data-field="spectrum.points"]';
+
+test('a spectrum turned on is traced as the command line traces it and drawn', { timeout: 120000 }, async () => {
+  await withPage('/', async (page) => {
+    assert.equal(await page.isVisible(POINTS), false, 'the range is hidden while the spectrum is off');
+    await page.selectOption(SPECTRUM, 'on');
+    await enterValue(page, POINTS, '81');
+    const sc = await waitScenario(page, (s) => s.spectrum?.points === 81, 'a spectrum of 81 points');
+    assert.deepEqual(sc.spectrum, { from_nm: 400, to_nm: 800, points: 81 });
+    const cli = cliTrace(sc);
+    const shown = await page.evaluate(() => window.doublespar.session.result().spectrum);
+    assert.equal(shown.wavelength_nm.length, 81);
+    assert.deepEqual(shown.wavelength_nm, cli.spectrum.wavelength_nm);
+    shown.transmission.forEach((t, i) => {
+      const c = cli.spectrum.transmission[i];
+      assert.ok(Math.abs(t - c) <= 1e-12 * Math.max(1, Math.abs(c)), `point ${i}: page ${t}, command line ${c}`);
+    });
+    await page.waitForFunction(() => /Transmission of the whole set-up from 400 to 800 nm, 81 points/
+      .test(document.querySelector('canvas[data-view="transmission-wavelength"]').getAttribute('aria-label')));
+    const stats = (await page.evaluate(canvasStats)).find((s) => s.view === 'transmission-wavelength');
+    assert.ok(drawn(stats), `the plot is drawn: ${JSON.stringify(stats)}`);
+    // Off: the document has no spectrum; on again: the range entered is still there.
+    await page.selectOption(SPECTRUM, 'off');
+    await waitScenario(page, (s) => s.spectrum === undefined, 'spectrum off');
+    await page.selectOption(SPECTRUM, 'on');
+    await waitScenario(page, (s) => s.spectrum?.points === 81, 'the range is kept');
+    await page.click('#undo');
+    await waitScenario(page, (s) => s.spectrum === undefined, 'Undo turns it off again');
+  });
+});
+
+test('a bad point count is named beside its field and nothing entered is lost', { timeout: 90000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.selectOption(SPECTRUM, 'on');
+    await enterValue(page, 'input.num[data-field="spectrum.from_nm"]', '500');
+    await waitScenario(page, (s) => s.spectrum?.from_nm === 500, 'from 500 nm');
+    await enterValue(page, POINTS, '1');
+    const msg = await waitError(page, 'spectrum.points');
+    assert.match(msg, /2/, msg);
+    assert.equal(await page.inputValue(POINTS), '1', 'the bad count stays for correction');
+    assert.equal(await page.inputValue('input.num[data-field="spectrum.from_nm"]'), '500', 'the start is kept');
+  });
+});
