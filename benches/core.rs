@@ -118,6 +118,8 @@ fn smoke() {
     let a = mode_solves(&qts, |qt| crystal_modes(&closed, qt, Travel::Forward));
     let b = mode_solves(&qts, |qt| general_modes(&same, qt, Travel::Forward));
     assert!((a - b).abs() < 1e-9, "closed form {a} vs general {b}");
+    let filter = Scenario::from_json_str(include_str!("../scripts/bench/five-stage-filter.json")).unwrap();
+    assert_eq!(trace(&filter).unwrap().spectrum.unwrap().transmission.len(), 2000);
     println!("benchmark smoke run: every part runs (time it with cargo bench --bench core)");
 }
 
@@ -183,6 +185,14 @@ fn main() {
             .unwrap()
     });
 
+    // A 2 000-point spectrum of a five-stage filter (scripts/bench/five-stage-filter.json; its
+    // numpy baseline is scripts/bench/spectrum_numpy.py): every point a whole trace.
+    let filter = Scenario::from_json_str(include_str!("../scripts/bench/five-stage-filter.json")).unwrap();
+    let (t_spectrum, spectrum_sum) = time(7, || {
+        let r = trace(black_box(&filter)).unwrap();
+        r.spectrum.unwrap().transmission.iter().flatten().sum::<f64>()
+    });
+
     let (closed, same, general) = mode_crystals();
     let qts = tangentials(100_000);
     let (t_closed, sum_closed) = time(7, || {
@@ -229,7 +239,7 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
@@ -240,6 +250,7 @@ fn main() {
         t_splitter_mc * 1e3,
         per_call_ns(t_closed),
         per_call_ns(t_same),
-        per_call_ns(t_general)
+        per_call_ns(t_general),
+        t_spectrum * 1e3
     );
 }

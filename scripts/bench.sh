@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Every benchmark in one run, side by side on this machine, with the ratios: the native core
-# (cargo bench --bench core), the numpy baselines of the same sweep and of the two-wedge
-# splitter's traces (scripts/bench/splitter_numpy.py), the same work in WebAssembly under Node,
+# (cargo bench --bench core), the numpy baselines of the same sweep, of the two-wedge
+# splitter's traces (scripts/bench/splitter_numpy.py) and of a five-stage filter's spectrum
+# (scripts/bench/spectrum_numpy.py), the same work in WebAssembly under Node,
 # and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
 # first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
 # Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
@@ -24,6 +25,8 @@ baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scrip
 echo "$baseline"
 splitter_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/splitter_numpy.py)
 echo "$splitter_baseline"
+spectrum_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/spectrum_numpy.py)
+echo "$spectrum_baseline"
 wasm=$(node scripts/bench/wasm_sweep.mjs)
 echo "$wasm"
 web='{}'
@@ -38,9 +41,10 @@ if [ "$page" = 1 ]; then
   case "$web" in \{*) ;; *) web='{}' ;; esac
 fi
 echo
-python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" <<'PY'
+python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" "$spectrum_baseline" <<'PY'
 import json, sys
-n, b, w, p, sb = (json.loads(a) for a in sys.argv[1:6])
+n, b, w, p, sb, spb = (json.loads(a) for a in sys.argv[1:7])
+assert abs(n["spectrum_checksum"] - spb["spectrum_checksum"]) < 1e-9 * abs(spb["spectrum_checksum"]), "native and numpy spectra disagree"
 for key in ("splitter_trace_checksum", "splitter_split_checksum"):
     assert abs(n[key] - sb[key]) < 1e-9 * abs(sb[key]), f"native and numpy disagree on {key}: {n[key]} vs {sb[key]}"
     assert abs(n[key] - w[key]) < 1e-9 * abs(w[key]), f"native and wasm disagree on {key}"
@@ -58,6 +62,8 @@ for label, key in (("whole traces (4 rays, fields and powers)", "splitter_trace_
     nn, ww, bb = n[key], w[key], sb[key]
     print(f"  two-wedge splitter, 10^5 {label}: native {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nn:.1f}x, wasm {bb / ww:.1f}x numpy (target 20x)")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")
+sn, sp = n["spectrum_2000_ms"], spb["spectrum_2000_ms"]
+print(f"  spectrum of a five-stage filter, 2 000 points, every point a whole trace: native {sn:.1f} ms (target 20 ms), numpy (the Jones product alone) {sp:.2f} ms: native takes {sn / sp:.0f}x numpy's time")
 if p:
     print(f"  page, recompute + redraw of every view: median {p['update_redraw_ms']['median']} ms")
     print(f"  page, first complete render: {p['first_render_ms']} ms (budget 1500 ms, {'within' if p['first_render_within_budget'] else 'OVER'})")
