@@ -4,7 +4,8 @@
 //! Nothing is computed here: the points are the result's, so the plot and the numbers a reader
 //! exports are the same. The scenario's own wavelength is marked with its traced total power
 //! when it lies within the range. Without a `spectrum` in the scenario the plot is empty and its
-//! note says how to ask for one; points where a formula breaks down (null) are left out.
+//! note says none was asked for; points where a formula breaks down (null) are left out and
+//! counted in the note.
 
 use super::series::Series;
 use crate::contract::result::TraceResult;
@@ -26,7 +27,7 @@ pub fn transmission_vs_wavelength(sc: &Scenario, result: &TraceResult) -> Series
         points: Vec::new(),
         current: None,
         markers: Vec::new(),
-        note: "no spectrum asked for: give the set-up a wavelength range (spectrum) to trace".into(),
+        note: "no spectrum asked for".into(),
     };
     let (Some(spectrum), Some(range)) = (&result.spectrum, &sc.spectrum) else {
         return s;
@@ -79,6 +80,6 @@ mod tests {
         // Without a spectrum: no points, and the note says how to ask for one.
         let plain = Scenario { spectrum: None, ..sc };
         let s = transmission_vs_wavelength(&plain, &trace_scenario(&plain).unwrap());
-        assert!(s.points.is_empty() && s.note.contains("spectrum"));
+        assert!(s.points.is_empty() && s.note == "no spectrum asked for");
     }
 }
