@@ -63,7 +63,7 @@ for label, key in (("whole traces (4 rays, fields and powers)", "splitter_trace_
     print(f"  two-wedge splitter, 10^5 {label}: native {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nn:.1f}x, wasm {bb / ww:.1f}x numpy (target 20x)")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")
 sn, sp = n["spectrum_2000_ms"], spb["spectrum_2000_ms"]
-print(f"  spectrum of a five-stage filter, 2 000 points, every point a whole trace: native {sn:.1f} ms (target 20 ms), numpy (the Jones product alone) {sp:.2f} ms: native takes {sn / sp:.0f}x numpy's time")
+print(f"  spectrum of a five-stage filter, 2 000 points, every point a whole trace: native on the machine's threads {sn:.1f} ms (target 20 ms), numpy (the Jones product alone) {sp:.2f} ms: native takes {sn / sp:.0f}x numpy's time")
 if p:
     print(f"  page, recompute + redraw of every view: median {p['update_redraw_ms']['median']} ms")
     print(f"  page, first complete render: {p['first_render_ms']} ms (budget 1500 ms, {'within' if p['first_render_within_budget'] else 'OVER'})")

@@ -155,3 +155,18 @@ fn wavelengths_a_formula_cannot_give_are_null_with_one_warning() {
     assert_eq!(w.len(), 1, "{warnings:?}");
     assert!(w[0].contains(&format!("{missing} of 15")), "{}", w[0]);
 }
+
+#[test]
+fn a_long_range_split_over_threads_gives_each_points_own_trace() {
+    // 300 points: traced on several threads natively; every point must still be its own trace.
+    let doc = filter(&[0.9, 1.8], 0.0, r#"{"from_nm": 480, "to_nm": 720, "points": 300}"#);
+    let (nm, t, warnings) = spectrum_of(&doc);
+    assert!(warnings.is_empty(), "{warnings:?}");
+    for i in [0, 1, 149, 150, 151, 298, 299] {
+        let mut single: Value = serde_json::from_str(&doc).unwrap();
+        single.as_object_mut().unwrap().remove("spectrum");
+        single["wavelength_nm"] = nm[i].into();
+        let r = trace_scenario(&Scenario::from_json(&single).unwrap()).unwrap();
+        assert_eq!(t[i].unwrap(), r.total_power, "point {i} at {} nm", nm[i]);
+    }
+}

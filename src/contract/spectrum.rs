@@ -13,7 +13,9 @@
 //! to vacuum as the scenario's wavelength is). The scenario's `wavelength_nm` is not part of the
 //! range. A wavelength where a formula breaks down gives `null` and one warning naming the first
 //! such wavelength and the reason; out-of-range formulas are extrapolated as in a single trace,
-//! their warnings left to the trace at the scenario's own wavelength.
+//! their warnings left to the trace at the scenario's own wavelength. Natively, a long range is
+//! traced on the machine's threads, in contiguous parts: each point is independent, so the
+//! values do not depend on the split.
 //!
 //! Sources: none beyond the trace's; the checks compare with the textbook transmission of a
 //! plate between polarizers and of a stage-doubling filter (product formula) in tests/spectrum.rs.
@@ -98,14 +100,16 @@ pub struct Spectrum {
 /// traced.
 pub fn spectrum(
     range: &SpectrumRange,
-    transmission_at: impl Fn(f64) -> Result<f64, Error>,
+    transmission_at: impl Fn(f64) -> Result<f64, Error> + Sync,
 ) -> (Spectrum, Option<String>) {
     let wavelength_nm = range.wavelengths_nm();
+    let traced = traced_in_parallel(&wavelength_nm, &transmission_at);
     let mut first_failure: Option<(f64, Error)> = None;
     let mut failures = 0usize;
     let transmission = wavelength_nm
         .iter()
-        .map(|&nm| match transmission_at(nm) {
+        .zip(traced)
+        .map(|(&nm, t)| match t {
             Ok(t) => Some(t),
             Err(e) => {
                 failures += 1;
@@ -127,4 +131,40 @@ pub fn spectrum(
         },
         warning,
     )
+}
+
+/// Spectra of at least this many points are split over the machine's threads (natively; one
+/// thread on WebAssembly). Every point is independent, so the values are the same either way.
+pub const PARALLEL_MIN_POINTS: usize = 64;
+
+/// `transmission_at` at every wavelength, in order: on contiguous parts of the list, one per
+/// available thread (at most 8), natively; on the calling thread on WebAssembly or for short
+/// lists.
+fn traced_in_parallel(
+    wavelength_nm: &[f64],
+    transmission_at: &(impl Fn(f64) -> Result<f64, Error> + Sync),
+) -> Vec<Result<f64, Error>> {
+    let threads = if cfg!(target_arch = "wasm32") {
+        1
+    } else {
+        std::thread::available_parallelism().map_or(1, |n| n.get()).min(8)
+    };
+    if threads == 1 || wavelength_nm.len() < PARALLEL_MIN_POINTS {
+        return wavelength_nm.iter().map(|&nm| transmission_at(nm)).collect();
+    }
+    let per = wavelength_nm.len().div_ceil(threads);
+    std::thread::scope(|scope| {
+        let parts: Vec<_> = wavelength_nm
+            .chunks(per)
+            .map(|part| scope.spawn(move || part.iter().map(|&nm| transmission_at(nm)).collect::<Vec<_>>()))
+            .collect();
+        parts
+            .into_iter()
+            .flat_map(|h| {
+                h.join()
+                    .unwrap_or_else(|_| vec![Err(Error::new("spectrum", "a wavelength could not be traced")); per])
+            })
+            .take(wavelength_nm.len())
+            .collect()
+    })
 }
