@@ -78,6 +78,7 @@ pub fn render(r: &TraceResult) -> String {
     directions(&mut out, r);
     rejected(&mut out, r);
     spots(&mut out, r);
+    spectrum(&mut out, r);
     if !r.warnings.is_empty() {
         let _ = writeln!(out);
         let _ = writeln!(out, "Warnings");
@@ -314,6 +315,51 @@ fn spots(out: &mut String, r: &TraceResult) {
     }
 }
 
+/// The spectrum in a few lines: its range, and where the transmission is lowest and highest (the
+/// JSON holds every point).
+fn spectrum(out: &mut String, r: &TraceResult) {
+    let Some(sp) = &r.spectrum else { return };
+    let points: Vec<(f64, f64)> = sp
+        .wavelength_nm
+        .iter()
+        .zip(&sp.transmission)
+        .filter_map(|(&nm, t)| t.map(|t| (nm, t)))
+        .collect();
+    let (first, last) = (sp.wavelength_nm.first(), sp.wavelength_nm.last());
+    let _ = writeln!(out);
+    let _ = writeln!(
+        out,
+        "Spectrum ({} wavelengths from {} to {} nm, each a whole trace; every point in the JSON)",
+        sp.wavelength_nm.len(),
+        first.map_or(String::new(), |v| crate::numfmt::sig(*v, 6)),
+        last.map_or(String::new(), |v| crate::numfmt::sig(*v, 6)),
+    );
+    let pick = |better: fn(f64, f64) -> bool| {
+        points
+            .iter()
+            .copied()
+            .reduce(|a, b| if better(b.1, a.1) { b } else { a })
+    };
+    if let (Some(lo), Some(hi)) = (pick(|a, b| a < b), pick(|a, b| a > b)) {
+        let _ = writeln!(
+            out,
+            "  lowest transmission   {} at {} nm",
+            num(lo.1, 6),
+            crate::numfmt::sig(lo.0, 6)
+        );
+        let _ = writeln!(
+            out,
+            "  highest transmission  {} at {} nm",
+            num(hi.1, 6),
+            crate::numfmt::sig(hi.0, 6)
+        );
+    }
+    let missing = sp.transmission.len() - points.len();
+    if missing > 0 {
+        let _ = writeln!(out, "  {missing} wavelengths could not be traced (see the warnings)");
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -322,6 +368,27 @@ mod tests {
 
     fn table(doc: &str) -> String {
         render(&trace(&Scenario::from_json_str(doc).unwrap()).unwrap())
+    }
+
+    #[test]
+    fn a_spectrum_is_summarized_by_its_range_and_extremes() {
+        // A half-wave-ish quartz plate at 45° before a polarizer at 0°: the transmission runs
+        // between 0 and 1 over the range; the table names both ends of the range.
+        let t = table(
+            r#"{"version": 2, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
+            "elements": [{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 2, "axis": {"tilt_deg": 90, "azimuth_deg": 45}},
+                         {"kind": "polarizer", "transmission_axis_deg": 0}],
+            "spectrum": {"from_nm": 500, "to_nm": 700, "points": 201}}"#,
+        );
+        assert!(
+            t.contains("Spectrum (201 wavelengths from 500.000 to 700.000 nm"),
+            "{t}"
+        );
+        assert!(
+            t.contains("lowest transmission   0.0000") && t.contains("highest transmission  0.9999"),
+            "{t}"
+        );
+        assert!(!table(include_str!("../../examples/demo.json")).contains("Spectrum"));
     }
 
     #[test]
