@@ -369,3 +369,36 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn a_design_request_takes_the_crystals_own_formulas() {
+    // A displacer of calcite given by its catalogue coefficients (G. Ghosh, Opt. Commun. 163, 95
+    // (1999), re-entered) is the catalogue calcite's displacer: the same arithmetic path.
+    let formulas = catalogue_dispersion("calcite");
+    let by_formula = doublespar::solve_design(
+        &json!({"kind": "displacer", "dispersion": formulas, "separation_mm": 1.5, "samples": 1000}),
+    )
+    .unwrap();
+    let by_key = doublespar::solve_design(
+        &json!({"kind": "displacer", "material": "calcite", "separation_mm": 1.5, "samples": 1000}),
+    )
+    .unwrap();
+    for key in ["length_mm", "cut_tilt_deg", "walkoff_deg", "separation_mm"] {
+        assert_eq!(by_formula[key], by_key[key], "{key}");
+    }
+    // The part it hands on carries the formulas, and no catalogue source is claimed.
+    assert!(by_formula["scenario"]["elements"][0]["dispersion"].is_object());
+    assert_eq!(by_formula["sources"], json!([]));
+    // x, y, z formulas are a biaxial crystal, which this design does not take; both forms at once
+    // are refused; each error names the field.
+    let xyz = json!({"range_nm": [400, 1000], "x": {"a": 2.2}, "y": {"a": 2.3}, "z": {"a": 2.4}});
+    let e = doublespar::solve_design(&json!({"kind": "displacer", "dispersion": xyz, "separation_mm": 1})).unwrap_err();
+    assert_eq!(e.field, "dispersion");
+    let e = doublespar::solve_design(
+        &json!({"kind": "displacer", "dispersion": formulas, "material": "calcite", "separation_mm": 1}),
+    )
+    .unwrap_err();
+    assert_eq!(e.field, "dispersion");
+    let e = doublespar::solve_design(&json!({"kind": "waveplate", "retardance_waves": 0.25, "dispersion": {"range_nm": [400, 1000], "o": {"a": -1}, "e": {"a": 2.2}}})).unwrap_err();
+    assert!(e.field.starts_with("dispersion.o"), "{}: {}", e.field, e.message);
+}

@@ -30,6 +30,7 @@ pub use splitter::{SplitterRequest, SplitterTolerances};
 pub use tilt::{PlateSize, TiltRequest};
 pub use waveplate::{Order, WaveplateRequest};
 
+use crate::contract::custom_dispersion::CustomDispersion;
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -37,14 +38,32 @@ use crate::numfmt::quote;
 use crate::optics::material::{self, Indices};
 use crate::optics::wavelength::Wavelength;
 
-/// The crystal of a request: `material` (a catalogue key, with an optional dispersion `source`)
-/// or `no` and `ne` (indices 1 to 10).
+/// The crystal of a request: `material` (a catalogue key, with an optional dispersion `source`),
+/// `no` and `ne` (indices 1 to 10), or `dispersion` (the crystal's own formulas, `o` and `e`, as
+/// in a scenario).
 ///
 /// # Errors
 /// `material` when both forms or neither is given, or for an unknown key; `source` for a source
 /// the crystal does not have, or with fixed indices; `no` or `ne` out of range.
 fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
     let path = f.path_of("material");
+    let dispersion_path = f.path_of("dispersion");
+    if let Some(d) = f.get("dispersion") {
+        if f.has("material") || f.has("no") || f.has("ne") {
+            return Err(Error::new(
+                dispersion_path,
+                "give either \"dispersion\" or \"material\" or \"no\" and \"ne\", not several",
+            ));
+        }
+        let formula = CustomDispersion::read(&dispersion_path, d)?;
+        if !formula.is_uniaxial_form() {
+            return Err(Error::new(
+                dispersion_path,
+                "this design takes a uniaxial crystal: give its formulas as \"o\" and \"e\"",
+            ));
+        }
+        return Ok(Medium::Formula(formula));
+    }
     match (f.has("material"), f.has("no") || f.has("ne")) {
         (true, true) => Err(Error::new(
             path,
