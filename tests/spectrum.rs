@@ -170,3 +170,20 @@ fn a_long_range_split_over_threads_gives_each_points_own_trace() {
         assert_eq!(t[i].unwrap(), r.total_power, "point {i} at {} nm", nm[i]);
     }
 }
+
+#[test]
+fn a_spectrum_that_would_trace_too_many_rays_is_refused_on_its_points() {
+    // Ten splitting plates follow 1024 rays at each wavelength: 2 000 points would trace 2 048 000
+    // rays, past the million a spectrum may trace; the message says how many points fit.
+    let thick: Vec<f64> = (0..10).map(|k| 0.5 + 0.1 * f64::from(k)).collect();
+    let doc = filter(&thick, 0.0, r#"{"from_nm": 500, "to_nm": 700, "points": 2000}"#);
+    let e = trace_scenario(&Scenario::from_json_str(&doc).unwrap()).unwrap_err();
+    assert_eq!(e.field, "spectrum.points");
+    assert!(
+        e.message.contains("1024 rays") && e.message.contains("at most 976 points"),
+        "{}",
+        e.message
+    );
+    let fits = doc.replace("\"points\": 2000", "\"points\": 976");
+    assert!(trace_scenario(&Scenario::from_json_str(&fits).unwrap()).is_ok());
+}

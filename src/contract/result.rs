@@ -549,12 +549,14 @@ fn mode_report(mode: &Mode, medium: &Medium, thickness_mm: f64) -> ModeReport {
 ///
 /// # Errors
 /// From [`Scenario::resolve`]: `wavelength_nm` when a material's dispersion formula breaks down
-/// at the wavelength (the message names the element).
+/// at the wavelength (the message names the element); `spectrum.points` when the spectrum would
+/// trace more rays than [`crate::contract::spectrum::MAX_RAY_TRACES`].
 pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     let (stack, warnings) = sc.resolve()?;
     let traced = trace(&stack);
     let mut result = report(sc, &stack, &traced, warnings);
     if let Some(range) = &sc.spectrum {
+        crate::contract::spectrum::check_work(range, traced.paths.len() + result.rejected.len())?;
         let (s, warning) = spectrum(range, |nm| transmission_at(sc, nm));
         result.warnings.extend(warning);
         result.spectrum = Some(s);

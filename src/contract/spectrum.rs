@@ -28,6 +28,31 @@ use serde_json::{Value, json};
 /// Most points a spectrum may ask for.
 pub const MAX_POINTS: usize = 20_000;
 
+/// Most rays a spectrum may trace in all (points times the rays of one trace): about a second or
+/// two natively, a few in the page, so that no set-up's spectrum stalls the page for minutes.
+pub const MAX_RAY_TRACES: usize = 1_000_000;
+
+/// Refuses a spectrum of `range` for a set-up whose trace follows `rays_per_trace` rays when the
+/// whole spectrum would trace more than [`MAX_RAY_TRACES`] rays.
+///
+/// # Errors
+/// `spectrum.points`, naming the rays per trace and the most points the set-up allows.
+pub fn check_work(range: &SpectrumRange, rays_per_trace: usize) -> Result<(), Error> {
+    let rays = rays_per_trace.max(1);
+    if range.points.saturating_mul(rays) <= MAX_RAY_TRACES {
+        return Ok(());
+    }
+    Err(Error::new(
+        "spectrum.points",
+        format!(
+            "this set-up follows {rays} rays at each wavelength, so {} points would trace {} rays;              at most {MAX_RAY_TRACES} are traced for a spectrum: choose at most {} points",
+            range.points,
+            range.points.saturating_mul(rays),
+            (MAX_RAY_TRACES / rays).max(1)
+        ),
+    ))
+}
+
 /// The range a scenario's `spectrum` asks for.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SpectrumRange {
