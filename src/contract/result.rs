@@ -550,7 +550,7 @@ fn mode_report(mode: &Mode, medium: &Medium, thickness_mm: f64) -> ModeReport {
 /// # Errors
 /// From [`Scenario::resolve`]: `wavelength_nm` when a material's dispersion formula breaks down
 /// at the wavelength (the message names the element); `spectrum.points` when the spectrum would
-/// trace more rays than [`crate::contract::spectrum::MAX_RAY_TRACES`].
+/// trace more than a million rays (`contract::spectrum::MAX_RAY_TRACES`).
 pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     let (stack, warnings) = sc.resolve()?;
     let traced = trace(&stack);
