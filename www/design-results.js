@@ -457,10 +457,23 @@ function partMaterial(state, d) {
   return designMaterialName(state, d.scenario?.elements?.[0]?.material ?? 'custom');
 }
 
-export function splitterResults(state, d, run) {
+/** The card of a curve over the band (`d.band.wavelength_nm` against `d.band[key]`, in
+ * degrees): its ends and where `what` is smallest and largest. */
+function bandCard(d, what, key) {
   const b = d.band;
-  const [lo, hi] = [extremeAt(b.split_angle_deg), extremeAt(b.split_angle_deg, -1)];
+  const [lo, hi] = [extremeAt(b[key]), extremeAt(b[key], -1)];
   const last = b.wavelength_nm.length - 1;
+  return resultCard(d, 'Over the band', [
+    ['from', 'band.wavelength_nm.0', formats.nm],
+    ['to', `band.wavelength_nm.${last}`, formats.nm],
+    [`smallest ${what}`, `band.${key}.${lo}`, formats.deg],
+    ['… at', `band.wavelength_nm.${lo}`, formats.nm],
+    [`largest ${what}`, `band.${key}.${hi}`, formats.deg],
+    ['… at', `band.wavelength_nm.${hi}`, formats.nm],
+  ]);
+}
+
+export function splitterResults(state, d, run) {
   const t = d.tolerances;
   return [
     h('p', { className: 'design-headline' },
@@ -482,14 +495,7 @@ export function splitterResults(state, d, run) {
         [`beam ${beam.label}: power`, `beams.${i}.power`, formats.power],
       ]),
     ], { note: 'Deviations toward +x; the small-angle rule is 2·arcsin((nₑ − nₒ)·tan α).' }),
-    resultCard(d, 'Over the band', [
-      ['from', 'band.wavelength_nm.0', formats.nm],
-      ['to', `band.wavelength_nm.${last}`, formats.nm],
-      ['smallest split', `band.split_angle_deg.${lo}`, formats.deg],
-      ['… at', `band.wavelength_nm.${lo}`, formats.nm],
-      ['largest split', `band.split_angle_deg.${hi}`, formats.deg],
-      ['… at', `band.wavelength_nm.${hi}`, formats.nm],
-    ]),
+    bandCard(d, 'split', 'split_angle_deg'),
     resultCard(d, 'Tolerances (one standard deviation)', [
       ['wedge angle', 'tolerances.wedge_deg', formats.sig('°', 3)],
       ['optic axis about the beam', 'tolerances.axis_deg', formats.sig('°', 3)],
@@ -559,9 +565,6 @@ export function tiltResults(state, d) {
 
 /** The quartz rotator: a c-cut quartz plate of one hand (src/design/rotator.rs). */
 export function rotatorResults(state, d) {
-  const b = d.band;
-  const [lo, hi] = [extremeAt(b.rotation_deg), extremeAt(b.rotation_deg, -1)];
-  const last = b.wavelength_nm.length - 1;
   const turns = d.half_turns_added !== 0;
   return [
     h('p', { className: 'design-headline' },
@@ -580,15 +583,8 @@ export function rotatorResults(state, d) {
       ['by the exact trace', 'traced_rotation_deg', formats.deg],
       ['rotatory power', 'rotatory_power_deg_per_mm', formats.sig('°/mm', 5)],
       ['dθ/dλ', 'dispersion_deg_per_nm', formats.sig('°/nm', 4)],
-    ], { note: 'From x toward y. The rotatory power is from the catalogue\'s cited formula (g11 = 0, stated); dθ/dT is not available.' }),
-    resultCard(d, 'Over the band', [
-      ['from', 'band.wavelength_nm.0', formats.nm],
-      ['to', `band.wavelength_nm.${last}`, formats.nm],
-      ['smallest rotation', `band.rotation_deg.${lo}`, formats.deg],
-      ['… at', `band.wavelength_nm.${lo}`, formats.nm],
-      ['largest rotation', `band.rotation_deg.${hi}`, formats.deg],
-      ['… at', `band.wavelength_nm.${hi}`, formats.nm],
-    ]),
+    ], { note: 'From x toward y. The rotatory power is from the catalogue\'s cited formula (g11 = 0, stated); its temperature change is not known, so dθ/dT (Temperature card) is the expansion alone.' }),
+    bandCard(d, 'rotation', 'rotation_deg'),
     resultCard(d, 'Acceptance', [
       ['angle of incidence', 'acceptance_deg', formats.angle],
       ['set by', 'acceptance_limited_by', (v) => (v === 'ellipticity' ? 'the ellipticity' : 'the rotation error')],

@@ -19,7 +19,7 @@
 // NO_POWER reads "no power"; circular light shows no azimuth ("—", the title says why).
 
 import { h } from './dom.js';
-import { fixed, fmt, lengthIn, lengthUnitForValues, showsAzimuth } from './format.js';
+import { fixed, fmt, lengthIn, lengthUnitForValues, showsAzimuth, significant } from './format.js';
 import { materialName } from './state.js';
 
 const ROW_LIMIT = 64; // rows of the ray and spot tables shown before "show all" (6 crystals)
@@ -102,7 +102,7 @@ function sourceSpread(v) {
   if (!v || !Array.isArray(v.indices)) return '—';
   const largest = Math.max(...v.indices);
   const which = v.indices.length === 3 ? 'nz − nx' : 'nₑ − nₒ';
-  return `${largest.toExponential(1)} in n, ${v.birefringence.toExponential(1)} in ${which} (${v.sources.join(', ')})`;
+  return `${significant(largest, 2)} in n, ${significant(v.birefringence, 2)} in ${which} (${v.sources.join(', ')})`;
 }
 
 /** A crystal report's two mode letters: ['f', 's'] for a biaxial crystal, ['o', 'e'] otherwise. */

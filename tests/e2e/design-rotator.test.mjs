@@ -13,8 +13,8 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
-import { useBrowser, withPage as openAt, close, enterValue, solveDesign, waitError, waitScenario } from './support.mjs';
-import { GOLDEN, golden, field, fill, expectDesign, expectPlots, orderSheet, fig, expectRow } from './design-support.mjs';
+import { useBrowser, withPage as openAt, close, enterValue, solveDesign, waitScenario } from './support.mjs';
+import { GOLDEN, golden, field, fill, expectDesign, expectPlots, expectFieldError, orderSheet, fig, expectRow } from './design-support.mjs';
 
 const env = useBrowser({ cli: false });
 const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), options);
@@ -98,30 +98,18 @@ test('a forced hand with a thickness floor reaches the rotation modulo 180° and
 test('bad rotator values show the core\'s message beside their field and keep every entry', { timeout: 120000 }, async () => {
   await withPage(async (page) => {
     await fill(page, 'quartz-rotator', [['rotation_deg', 45], ['band_nm[0]', 600], ['band_nm[1]', 700]]);
-    const expectFieldError = async ([p, bad], errorField, what) => {
-      const before = await page.$$eval('[data-design-field]', (els) => els.map((e) => [e.dataset.designField, e.value]));
-      await enterValue(page, field(p), bad);
-      await page.click('#design-solve');
-      const message = await waitError(page, errorField, 'data-design-error-for', 10000);
-      assert.ok(message.length > 10, `${what}: a readable message (${message})`);
-      assert.equal(await page.getAttribute(field(errorField), 'aria-invalid'), 'true', `${what}: the field is marked`);
-      const after = await page.$$eval('[data-design-field]', (els) => els.map((e) => [e.dataset.designField, e.value]));
-      assert.deepEqual(after, before.map(([q, v]) => [q, q === p ? String(bad) : v]), `${what}: every entry is kept`);
-      assert.equal(await page.evaluate(() => document.getElementById('design').dataset.state), 'error');
-      return message;
-    };
     const zero = JSON.parse(fs.readFileSync(path.join(GOLDEN, 'golden', 'error-rotator-zero-rotation.json'), 'utf8')).stdout.error;
-    const message = await expectFieldError(['rotation_deg', 0], 'rotation_deg', 'no rotation');
+    const message = await expectFieldError(page, ['rotation_deg', 0], 'rotation_deg', 'no rotation');
     assert.ok(message.includes(zero.message) && message.startsWith('Rotation of the part'), `the core's message, with the field's name (${message})`);
-    await expectFieldError(['rotation_deg', 'abc'], 'rotation_deg', 'rotation "abc"');
-    await expectFieldError(['rotation_deg', 4000], 'rotation_deg', 'beyond ten turns');
+    await expectFieldError(page, ['rotation_deg', 'abc'], 'rotation_deg', 'rotation "abc"');
+    await expectFieldError(page, ['rotation_deg', 4000], 'rotation_deg', 'beyond ten turns');
     await enterValue(page, field('rotation_deg'), 45);
-    await expectFieldError(['ellipticity_tolerance_deg', 50], 'ellipticity_tolerance_deg', 'ellipticity tolerance beyond 45°');
+    await expectFieldError(page, ['ellipticity_tolerance_deg', 50], 'ellipticity_tolerance_deg', 'ellipticity tolerance beyond 45°');
     await enterValue(page, field('ellipticity_tolerance_deg'), 0.5);
-    await expectFieldError(['min_thickness_mm', -1], 'min_thickness_mm', 'negative floor');
+    await expectFieldError(page, ['min_thickness_mm', -1], 'min_thickness_mm', 'negative floor');
     await enterValue(page, field('min_thickness_mm'), '');
     // At the resonance of the rotatory-dispersion formula (92.6 nm) there is no rotatory power.
-    await expectFieldError(['wavelength_nm', 92.6], 'wavelength_nm', 'at the resonance');
+    await expectFieldError(page, ['wavelength_nm', 92.6], 'wavelength_nm', 'at the resonance');
     await enterValue(page, field('wavelength_nm'), 632.8);
     await solveDesign(page);
     assert.equal(await page.evaluate(() => document.getElementById('design').dataset.state), 'done');

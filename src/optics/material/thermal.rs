@@ -26,7 +26,8 @@
 //! and `[α⊥, α⊥, α∥]`; for a biaxial crystal x, y, z are the catalogue's dielectric axes
 //! (n_x < n_y < n_z). Outside a formula's temperature range it is still used, with a warning.
 //!
-//! Sources: each entry cites its data beside the coefficients; "from memory" marks values
+//! Sources: each entry cites its data beside the coefficients (the "public-domain database of
+//! optical constants" named there is M. N. Polyanskiy, Scientific Data 11, 94 (2024)); "from memory" marks values
 //! recalled rather than read from the cited source. The KTP, LBO and LiNbO3 forms and
 //! coefficients are those transcribed in the open-source dispersion library ndispers 0.20.0,
 //! against which tests/reference/ checks them; the quartz, MgF2 and BiBO constants are the
@@ -310,8 +311,8 @@ static THERMAL: [Thermal; 11] = [
         // by ndispers 0.20.0). Room temperature; 0-100 °C assumed. A second published set,
         // T. Toyoda and M. Yabe, J. Phys. D 16, L97 (1983), as quoted by the supplier whose
         // calcite data sheet serves above (its handbook, 5th edition, 2023, carried by the
-        // refractiveindex.info database): −5.5e-6 /K in its "∥ c" column (the ordinary index, read
-        // as for calcite) and −6.5e-6 /K across (the extraordinary), at 633 nm. The two sets differ
+        // public-domain database of optical constants): −5.5e-6 /K in its "∥ c" column (the
+        // ordinary index, read as for calcite) and −6.5e-6 /K across (the extraordinary), at 633 nm. The two sets differ
         // by 0.7e-6 in dn_o/dT, about the size of the birefringence's own slope (−0.8e-6 and
         // −1.0e-6 /K from them), so neither fixes that slope well: tests/temperature.rs compares
         // the plate they give with a direct retardance measurement and records the gap.
@@ -323,8 +324,8 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: TROPF,
         // α∥ = 7.1e-6, α⊥ = 13.2e-6 /K at 323 K: the same supplier's handbook (5th edition,
-        // 2023, carried by the refractiveindex.info database). A critical review of the
-        // measurements, J. A. Kosinski, J. G. Gualtieri and A. Ballato, "Thermoelasticity in
+        // 2023, carried by the public-domain database of optical constants). A critical review
+        // of the measurements, J. A. Kosinski, J. G. Gualtieri and A. Ballato, "Thermoelasticity in
         // quartz", ESA SP-340, 397 (1992), recommends first-order coefficients 7.50e-6 along c and
         // 13.65e-6 /K across (its abstract): 3-6 % higher, a change of 0.5e-6 /K in an a-cut
         // plate's retardance coefficient, about 1 % of the gap tests/temperature.rs records.
@@ -398,7 +399,7 @@ static THERMAL: [Thermal; 11] = [
         // 1.15 µm and +1.19e-6 /K at 3.39 µm (as quoted by ndispers): no steady trend with
         // wavelength, so the 633 nm constant serves at all. Not used: the temperature-dependent
         // Sellmeier sets of Q. Zheng, X. Wang and D. Thompson, Opt. Mater. Express 13, 2380-2391
-        // (2023), 21-368 °C (as carried by the refractiveindex.info database); their 21.1 and
+        // (2023), 21-368 °C (as carried by the public-domain database of optical constants); their 21.1 and
         // 186.4 °C sets give dn_o/dT ≈ −7.8e-6 and dn_e/dT ≈ −5.7e-6 /K at 633 nm, opposite in
         // sign to Feldman's, and a birefringence slope of +2.1e-6 /K where the direct retardance
         // measurement (tests/temperature.rs) implies about −0.74e-6 /K.
