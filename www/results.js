@@ -67,8 +67,15 @@ function shapeOf(r, showAll) {
     showAll.rays,
     showAll.spots,
     r.air_wavelength_nm !== undefined,
+    Boolean(r.spectrum?.white_light),
   ];
   return parts.join('|');
+}
+
+/** The white-light colour in words: sRGB, chromaticity and luminous transmittance. */
+function whiteLightWords(w) {
+  const where = w.chromaticity ? `x ${fixed(w.chromaticity[0], 4)}, y ${fixed(w.chromaticity[1], 4)}` : 'black';
+  return `${w.srgb}${w.outside_srgb ? ' (outside sRGB)' : ''}, ${where}, luminous transmittance ${fixed(w.xyz[1], 4)}`;
 }
 
 /** A last table row saying how many rows are hidden, with a button to show them all. */
@@ -236,6 +243,12 @@ function buildResults(state, r) {
     h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Output rays' }), h('span', { className: 'summary-value', text: String(r.rays.length) })),
     h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Spots' }), h('span', { className: 'summary-value', text: String(r.spots.length) })),
   );
+  // With a spectrum: the colour the set-up shows in white light, a swatch and its numbers.
+  if (r.spectrum?.white_light) {
+    summary.appendChild(h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'In white light (D65)' }),
+      h('span', { className: 'swatch', id: 'white-light-swatch', 'aria-hidden': 'true' }),
+      cell('span', 'spectrum.white_light.srgb', (x) => x.spectrum.white_light.srgb, (v, x) => whiteLightWords(x.spectrum.white_light), { className: 'summary-value' })));
+  }
   // A wavelength given in air: the vacuum wavelength the trace used.
   if (r.air_wavelength_nm !== undefined) {
     summary.appendChild(h('p', { className: 'summary-item' }, h('span', { className: 'summary-label', text: 'Vacuum wavelength' }),
@@ -302,6 +315,8 @@ export function renderResults(state, r) {
     }
   }
   rejectedNote(r);
+  const swatch = document.getElementById('white-light-swatch');
+  if (swatch && r.spectrum?.white_light) swatch.style.background = r.spectrum.white_light.srgb;
   const w = r.warnings.join('\n');
   if (w !== own.warnings) {
     own.warnings = w;

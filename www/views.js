@@ -227,6 +227,8 @@ export function describeViews(state) {
     texts['transmission-wavelength'] = traced.length === 0
       ? `Transmission against wavelength: none of the ${n} wavelengths could be traced.`
       : `Transmission of the whole set-up from ${nm(spectrum.wavelength_nm[0])} to ${nm(spectrum.wavelength_nm[n - 1])} nm, ${n} points: between ${num(low, 3)} and ${num(high, 3)}.`;
+    const w = spectrum.white_light;
+    if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);

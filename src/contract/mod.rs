@@ -11,3 +11,4 @@ pub mod resolve;
 pub mod result;
 pub mod scenario;
 pub mod spectrum;
+pub mod white_light;

@@ -15,9 +15,12 @@
 use crate::contract::group::{Group, groups};
 use crate::contract::resolve::Warning;
 use crate::contract::scenario::{ElementKind, Medium as ScenarioMedium, Scenario};
+use crate::contract::spectrum::MAX_RAY_TRACES;
 use crate::contract::spectrum::{Spectrum, spectrum};
+use crate::contract::white_light::white_light;
 use crate::error::Error;
 use crate::optics::beam_overlap::GaussianBeam;
+use crate::optics::colorimetry;
 use crate::optics::interface::Losses;
 use crate::optics::jones::to_json;
 use crate::optics::material::Indices;
@@ -556,9 +559,22 @@ pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     let traced = trace(&stack);
     let mut result = report(sc, &stack, &traced, warnings);
     if let Some(range) = &sc.spectrum {
-        crate::contract::spectrum::check_work(range, traced.paths.len() + result.rejected.len())?;
-        let (s, warning) = spectrum(range, |nm| transmission_at(sc, nm));
+        let rays = traced.paths.len() + result.rejected.len();
+        crate::contract::spectrum::check_work(range, rays)?;
+        let (mut s, warning) = spectrum(range, |nm| transmission_at(sc, nm));
         result.warnings.extend(warning);
+        if rays.saturating_mul(colorimetry::POINTS) > MAX_RAY_TRACES {
+            result.warnings.push(format!(
+                "spectrum: no colour in white light: this set-up follows {rays} rays at each wavelength, \
+                 too many to trace at the {} wavelengths of the colour tables",
+                colorimetry::POINTS
+            ));
+        } else {
+            match white_light(|air_nm| transmission_at_air(sc, air_nm)) {
+                Ok(w) => s.white_light = Some(w),
+                Err(warning) => result.warnings.push(warning),
+            }
+        }
         result.spectrum = Some(s);
     }
     Ok(result)
@@ -818,6 +834,24 @@ fn transmission_at(sc: &Scenario, nm: f64) -> Result<f64, Error> {
         Some(_) => (crate::optics::material::vacuum_from_air(nm)?.vacuum, Some(nm)),
         None => (Wavelength::from_nm(nm)?, None),
     };
+    transmission_at_wavelength(sc, wavelength, air_wavelength_nm)
+}
+
+/// The forward transmission of `sc` at `air_nm` nanometres in standard air, whatever the
+/// scenario's own wavelength basis (the CIE colour tables' wavelengths are in air).
+fn transmission_at_air(sc: &Scenario, air_nm: f64) -> Result<f64, Error> {
+    let wavelength = crate::optics::material::vacuum_from_air(air_nm)?.vacuum;
+    let air_wavelength_nm = sc.air_wavelength_nm.map(|_| air_nm);
+    transmission_at_wavelength(sc, wavelength, air_wavelength_nm)
+}
+
+/// The forward transmission of `sc` traced again at `wavelength` (with `air_wavelength_nm`, the
+/// same wavelength in air, for a scenario given in air).
+fn transmission_at_wavelength(
+    sc: &Scenario,
+    wavelength: Wavelength,
+    air_wavelength_nm: Option<f64>,
+) -> Result<f64, Error> {
     let at = Scenario {
         wavelength,
         air_wavelength_nm,

@@ -21,6 +21,7 @@
 //! plate between polarizers and of a stage-doubling filter (product formula) in tests/spectrum.rs.
 
 use crate::contract::fields::{Fields, ranged};
+use crate::contract::white_light::WhiteLight;
 use crate::error::Error;
 use serde::Serialize;
 use serde_json::{Value, json};
@@ -118,6 +119,9 @@ pub struct Spectrum {
     pub wavelength_nm: Vec<f64>,
     /// Forward transmission (total power of the spots) at each; `null` where a formula breaks down.
     pub transmission: Vec<Option<f64>>,
+    /// The colour the set-up shows in white light (`contract::white_light`); `null` when a
+    /// wavelength of the colour tables cannot be traced.
+    pub white_light: Option<WhiteLight>,
 }
 
 /// The spectrum over `range` of a scenario whose total forward power at a wavelength (nm, in its
@@ -153,6 +157,7 @@ pub fn spectrum(
         Spectrum {
             wavelength_nm,
             transmission,
+            white_light: None,
         },
         warning,
     )

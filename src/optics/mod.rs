@@ -5,6 +5,7 @@
 pub mod anisotropic;
 pub mod beam_overlap;
 pub mod chain;
+pub mod colorimetry;
 pub mod general_modes;
 pub mod geometry;
 pub mod interface;

@@ -62,7 +62,7 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "split-incidence" => plot::plot(&split_series::split_vs_incidence(scenario)),
         "retardance-temperature" => plot::plot(&temperature_series::retardance_vs_temperature(scenario, 0)),
         "separation-temperature" => plot::plot(&temperature_series::separation_vs_temperature(scenario, 0)),
-        "transmission-wavelength" => plot::plot(&spectrum_plot::transmission_vs_wavelength(scenario, result)),
+        "transmission-wavelength" => spectrum_plot::transmission_plot(scenario, result),
         other => {
             return Err(Error::new(
                 "view",

@@ -47,6 +47,23 @@ pub fn plot(series: &Series) -> Scene {
     scene
 }
 
+/// The data frame [`plot`] draws for `series` (x over the data, y from 0 or below to the top),
+/// in data units, so that a caller can place things relative to it; `None` for an empty series.
+pub fn frame(series: &Series) -> Option<Rect> {
+    let mut pts: Vec<[f64; 2]> = series.points.clone();
+    pts.extend(series.current.iter().chain(&series.markers));
+    if pts.is_empty() {
+        return None;
+    }
+    let a = PlotAxes::around(series, Rect::around(pts));
+    Some(Rect {
+        x0: a.x0,
+        y0: a.y0,
+        x1: a.x1,
+        y1: a.y1,
+    })
+}
+
 /// A framed unit panel that says `note` in its middle (a plot with nothing to draw).
 fn empty_panel(scene: &mut Scene, note: String) {
     scene.bounds = Rect {

@@ -155,6 +155,18 @@ pub enum Item {
         /// What it shows.
         tag: String,
     },
+    /// A rectangle filled with a given colour (a colour sample, such as the white-light colour
+    /// of a spectrum), outlined as a frame. The one item whose colour is data, not a role.
+    Swatch {
+        /// One corner.
+        from: Point,
+        /// The opposite corner.
+        to: Point,
+        /// The fill, "#rrggbb".
+        colour: String,
+        /// What it shows.
+        tag: String,
+    },
     /// Text at a world point.
     Text {
         /// Anchor point.
@@ -386,6 +398,7 @@ impl Scene {
             | Item::Circle { tag: t, .. }
             | Item::Dot { tag: t, .. }
             | Item::Arrow { tag: t, .. }
+            | Item::Swatch { tag: t, .. }
             | Item::Dimension { tag: t, .. } => t == tag,
             Item::Text { .. } => false,
         })
@@ -413,7 +426,9 @@ impl Scene {
                 Item::Polyline { points, .. } | Item::Polygon { points, .. } => points.iter().all(ok),
                 Item::Circle { center, radius, .. } => ok(center) && radius.is_finite(),
                 Item::Dot { center, .. } => ok(center),
-                Item::Arrow { from, to, .. } | Item::Dimension { from, to, .. } => ok(from) && ok(to),
+                Item::Arrow { from, to, .. } | Item::Dimension { from, to, .. } | Item::Swatch { from, to, .. } => {
+                    ok(from) && ok(to)
+                }
                 Item::Text { at, .. } => ok(at),
             })
     }

@@ -5,11 +5,41 @@
 //! exports are the same. The scenario's own wavelength is marked with its traced total power
 //! when it lies within the range. Without a `spectrum` in the scenario the plot is empty and its
 //! note says none was asked for; points where a formula breaks down (null) are left out and
-//! counted in the note.
+//! counted in the note. When the result holds the set-up's colour in white light
+//! (`spectrum.white_light`), the plot shows it as a swatch below its left corner.
 
+use super::plot::{frame, plot};
+use super::scene::{Anchor, Item, Priority, Role, Scene};
 use super::series::Series;
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
+
+/// The transmission plot of the whole set-up, with its white-light colour as a swatch under the
+/// plot's left corner when the result has one.
+pub fn transmission_plot(sc: &Scenario, result: &TraceResult) -> Scene {
+    let series = transmission_vs_wavelength(sc, result);
+    let mut scene = plot(&series);
+    let white = result.spectrum.as_ref().and_then(|s| s.white_light.as_ref());
+    if let (Some(w), Some(f)) = (white, frame(&series)) {
+        // Under the frame's left corner, on the line of the x-axis name (which is centred).
+        let (width, height) = (f.width(), f.height());
+        scene.items.push(Item::Swatch {
+            from: [f.x0, f.y0 - 0.29 * height],
+            to: [f.x0 + 0.07 * width, f.y0 - 0.2 * height],
+            colour: w.srgb.clone(),
+            tag: "white-light colour".into(),
+        });
+        scene.label(
+            [f.x0 + 0.09 * width, f.y0 - 0.28 * height],
+            String::from("white light"),
+            10.0,
+            Anchor::Start,
+            Role::Caption,
+            Priority::Detail,
+        );
+    }
+    scene
+}
 
 /// The transmission of the whole set-up against wavelength, from `result.spectrum`.
 pub fn transmission_vs_wavelength(sc: &Scenario, result: &TraceResult) -> Series {
@@ -81,5 +111,32 @@ mod tests {
         let plain = Scenario { spectrum: None, ..sc };
         let s = transmission_vs_wavelength(&plain, &trace_scenario(&plain).unwrap());
         assert!(s.points.is_empty() && s.note == "no spectrum asked for");
+    }
+
+    #[test]
+    fn the_plot_shows_the_white_light_colour_of_the_result() {
+        let doc = r#"{"version": 2, "wavelength_nm": 550, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
+            "elements": [{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 0.06, "axis": {"tilt_deg": 90, "azimuth_deg": 45}},
+                         {"kind": "polarizer", "transmission_axis_deg": 90}],
+            "spectrum": {"from_nm": 400, "to_nm": 700, "points": 31}}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace_scenario(&sc).unwrap();
+        let scene = transmission_plot(&sc, &r);
+        let Some(Item::Swatch { colour, .. }) = scene.tagged("white-light colour").next() else {
+            panic!("no swatch");
+        };
+        assert_eq!(
+            Some(colour),
+            r.spectrum
+                .as_ref()
+                .and_then(|s| s.white_light.as_ref())
+                .map(|w| &w.srgb)
+        );
+        assert!(scene.is_finite());
+        let svg = crate::view::svg::to_svg(&scene, 480.0, 300.0, &crate::view::palette::Palette::light());
+        assert!(svg.contains(&format!(r#"fill="{colour}""#)), "{svg}");
+        let plain = Scenario { spectrum: None, ..sc };
+        let scene = transmission_plot(&plain, &trace_scenario(&plain).unwrap());
+        assert!(scene.tagged("white-light colour").next().is_none());
     }
 }

@@ -153,6 +153,17 @@ fn write_item(out: &mut String, item: &Item, vp: &Viewport, palette: &Palette) {
             1.5,
             tag,
         ),
+        Item::Swatch { from, to, colour, tag } => {
+            let corners = [*from, [to[0], from[1]], *to, [from[0], to[1]]];
+            let _ = write!(
+                out,
+                r#"<polygon data-tag="{}" points="{}" fill="{}" stroke="{}" stroke-width="1"/>"#,
+                esc(tag),
+                screen_points(&corners, vp),
+                esc(colour),
+                palette.stroke(Role::Frame)
+            );
+        }
         Item::Text { .. } | Item::Dimension { .. } => {}
     }
 }

@@ -358,6 +358,32 @@ fn spectrum(out: &mut String, r: &TraceResult) {
     if missing > 0 {
         let _ = writeln!(out, "  {missing} wavelengths could not be traced (see the warnings)");
     }
+    if let Some(w) = &sp.white_light {
+        let _ = writeln!(
+            out,
+            "  in white light ({}, {} observer)  {}",
+            w.illuminant,
+            w.observer,
+            colour_words(w)
+        );
+    }
+}
+
+/// A white-light colour in words: its sRGB value, chromaticity and luminous transmittance.
+fn colour_words(w: &crate::contract::white_light::WhiteLight) -> String {
+    let chroma = w
+        .chromaticity
+        .map_or("black".to_string(), |[x, y]| format!("x {} y {}", num(x, 4), num(y, 4)));
+    format!(
+        "{}  {chroma}  luminous transmittance {}{}",
+        w.srgb,
+        num(w.xyz[1], 4),
+        if w.outside_srgb {
+            "  (outside sRGB, clipped)"
+        } else {
+            ""
+        }
+    )
 }
 
 #[cfg(test)]

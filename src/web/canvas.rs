@@ -126,6 +126,16 @@ impl Painter<'_> {
                 head_px,
                 ..
             } => arrow(ctx, vp.map(*from), vp.map(*to), palette.stroke(*role), *head_px, 1.5),
+            Item::Swatch { from, to, colour, .. } => {
+                let corners = [*from, [to[0], from[1]], *to, [from[0], to[1]]];
+                path(ctx, vp, &corners);
+                ctx.close_path();
+                ctx.set_fill_style_str(colour);
+                ctx.fill();
+                ctx.set_stroke_style_str(palette.stroke(Role::Frame));
+                ctx.set_line_width(1.0);
+                ctx.stroke();
+            }
             Item::Polyline { .. } | Item::Dot { .. } | Item::Text { .. } | Item::Dimension { .. } => {}
         }
         Ok(())

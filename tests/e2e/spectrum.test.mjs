@@ -1,6 +1,7 @@
 // End-to-end tests of the spectrum on the page: the Spectrum control below the stack adds a
 // wavelength range to the set-up, the transmission plot is drawn from the result's spectrum,
-// every point equals the command line's trace of the same document, the range is kept while the
+// every point and the colour in white light equal the command line's trace of the same document,
+// the colour shows as a swatch in the summary, the range is kept while the
 // spectrum is off, and a bad point count is named beside its field with the entries kept.
 //
 // Run: `cd tests/e2e && node --test spectrum.test.mjs` (after scripts/build-web.sh and
@@ -31,6 +32,14 @@ test('a spectrum turned on is traced as the command line traces it and drawn', {
       const c = cli.spectrum.transmission[i];
       assert.ok(Math.abs(t - c) <= 1e-12 * Math.max(1, Math.abs(c)), `point ${i}: page ${t}, command line ${c}`);
     });
+    // The colour in white light: the command line's, in the summary with its swatch.
+    const white = cli.spectrum.white_light;
+    assert.equal(shown.white_light.srgb, white.srgb);
+    shown.white_light.xyz.forEach((v, i) => assert.ok(Math.abs(v - white.xyz[i]) <= 1e-12, `xyz[${i}]: page ${v}, command line ${white.xyz[i]}`));
+    await page.waitForFunction((c) => document.querySelector('[data-quantity="spectrum.white_light.srgb"]')?.textContent.startsWith(c), white.srgb);
+    const swatch = await page.evaluate(() => getComputedStyle(document.getElementById('white-light-swatch')).backgroundColor);
+    const [r, g, b] = [1, 3, 5].map((i) => parseInt(white.srgb.slice(i, i + 2), 16));
+    assert.equal(swatch, `rgb(${r}, ${g}, ${b})`);
     await page.waitForFunction(() => /Transmission of the whole set-up from 400 to 800 nm, 81 points/
       .test(document.querySelector('canvas[data-view="transmission-wavelength"]').getAttribute('aria-label')));
     const stats = (await page.evaluate(canvasStats)).find((s) => s.view === 'transmission-wavelength');

@@ -1,9 +1,10 @@
 #!/usr/bin/env bash
 # Independent numerical reference check of `doublespar trace` (see tests/reference/README.md).
-# Creates a Python venv at target/refenv with numpy and ndispers (once), builds the release binary
-# and runs tests/reference/material_reference.py (the catalogue's indices and group indices against
-# an independent implementation of the same published formulas), then
-# tests/reference/trace_reference.py. Extra arguments go to the trace script (e.g. --seed 7
+# Creates a Python venv at target/refenv with numpy, ndispers and colour-science (once), builds the
+# release binary and runs tests/reference/material_reference.py (the catalogue's indices and group
+# indices against an independent implementation of the same published formulas),
+# tests/reference/colour_reference.py (the white-light colour against an independent colorimetry
+# library), then tests/reference/trace_reference.py. Extra arguments go to the trace script (e.g. --seed 7
 # --count 1000).
 # Exit status: the script's (0 when every scenario agrees).
 set -euo pipefail
@@ -22,6 +23,11 @@ if ! "$venv/bin/python" -c "import ndispers, sympy, sys; sys.exit(ndispers.__ver
     "$venv/bin/python" -m pip install --quiet --disable-pip-version-check "ndispers[sym]==0.20.0"
 fi
 
+# The colorimetry library the white-light colour is compared with, pinned.
+if ! "$venv/bin/python" -c "import colour, sys; sys.exit(colour.__version__ != '0.4.7')" >/dev/null 2>&1; then
+    "$venv/bin/python" -m pip install --quiet --disable-pip-version-check "colour-science==0.4.7"
+fi
+
 cargo build --release --quiet --bin doublespar
 bin="${CARGO_TARGET_DIR:-target}/release/doublespar"
 
@@ -31,4 +37,7 @@ DOUBLESPAR_BIN="$bin" env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/py
 # The catalogue: every index and group index of the crystals whose formula the library also
 # holds, at up to 11 wavelengths, to 1e-9.
 "$venv/bin/python" tests/reference/material_reference.py --bin "$bin"
+# The colour in white light of plates between polarizers, recomputed from the traced spectrum
+# by colour-science (CIE 1931 observer, D65, sRGB): XYZ and xy to 1e-9, sRGB to one step.
+"$venv/bin/python" tests/reference/colour_reference.py --bin "$bin"
 exec "$venv/bin/python" tests/reference/trace_reference.py --bin "$bin" "$@"
