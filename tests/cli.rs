@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 19] = [
+const FLAG_CASES: [FlagCase; 21] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -379,6 +379,15 @@ const FLAG_CASES: [FlagCase; 19] = [
         flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40",
         json: r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"},
                  "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001, "temperature_c": 40}"#,
+    },
+    FlagCase {
+        flags: "birefringent-filter --material quartz --layout stage-doubling --stages 3 --wavelength-nm 656.3 --bandwidth-nm 1 --band-nm 640,670 --temperature-c 30",
+        json: r#"{"kind": "birefringent-filter", "material": "quartz", "layout": "stage-doubling", "stages": 3,
+                 "wavelength_nm": 656.3, "bandwidth_nm": 1, "band_nm": [640, 670], "temperature_c": 30}"#,
+    },
+    FlagCase {
+        flags: "birefringent-filter --no 1.5 --ne 1.51 --layout folded --stages 4 --bandwidth-nm 5",
+        json: r#"{"kind": "birefringent-filter", "no": 1.5, "ne": 1.51, "layout": "folded", "stages": 4, "bandwidth_nm": 5}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",
@@ -642,6 +651,8 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "quartz-rotator-90",
         "quartz-rotator-forced-right",
         "athermal-quartz-mgf2",
+        "filter-mgf2-stage-doubling",
+        "filter-calcite-folded",
     ] {
         let out = bin()
             .arg("design")

@@ -11,6 +11,7 @@
 //! | `tilt-tuning` | [`crate::design::tilt`] | `material`, `retardance_waves`, `thickness_mm` or `order_number` |
 //! | `quartz-rotator` | [`crate::design::rotator`] | `rotation_deg` |
 //! | `athermal-waveplate` | [`crate::design::athermal`] | `first`, `second`, `retardance_waves` |
+//! | `birefringent-filter` | [`crate::design::filter`] | `material`, `bandwidth_nm` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
 //! The requests are documents, read field by field in `src/contract/request/`; here each is
@@ -29,8 +30,8 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, AthermalRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, RotatorRequest,
-    SplitterRequest, TiltRequest, WaveplateRequest,
+    AchromatRequest, AthermalRequest, DisplacerRequest, FilterRequest, PolarizerRequest, RecombinerRequest,
+    RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
@@ -38,6 +39,7 @@ use crate::optics::material;
 use crate::optics::wavelength::Wavelength;
 pub mod athermal;
 pub mod displacer;
+pub mod filter;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
@@ -53,7 +55,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 9] = [
+pub const KINDS: [&str; 10] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -63,6 +65,7 @@ pub const KINDS: [&str; 9] = [
     "tilt-tuning",
     "quartz-rotator",
     "athermal-waveplate",
+    "birefringent-filter",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -246,7 +249,8 @@ designed!(
     polarizer::PolarizerDesign,
     tilt::TiltDesign,
     rotator::RotatorDesign,
-    athermal::AthermalDesign
+    athermal::AthermalDesign,
+    filter::FilterDesign
 );
 
 /// A request that uses one crystal at its `wavelength_nm`.
@@ -321,6 +325,13 @@ fn rotator_uses(r: &RotatorRequest) -> Uses {
     }
 }
 
+fn filter_uses(r: &FilterRequest) -> Uses {
+    Uses {
+        band: r.band_nm.map(|b| (b, true)),
+        ..single(r.medium, r.wavelength.nm(), r.temperature_c)
+    }
+}
+
 fn tilt_uses(r: &TiltRequest) -> Uses {
     let mut u = single(r.medium, r.wavelength.nm(), r.temperature_c);
     u.wavelengths.extend(r.made_for_nm().map(|nm| ("made_for_nm", nm)));
@@ -375,6 +386,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
         "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
         "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
+        "birefringent-filter" => answer(kind, f, FilterRequest::from_json, filter_uses, filter::design)?,
         other => {
             return Err(Error::new(
                 "kind",

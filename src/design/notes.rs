@@ -45,35 +45,48 @@ fn mm(x: f64) -> String {
 /// one. Plates are numbered from 1. Empty when nothing would be questioned.
 pub fn notes(plates: &[(Medium, f64)], clear_aperture_mm: Option<f64>) -> Vec<String> {
     let mut out = Vec::new();
-    let numbered = |i: usize| {
-        if plates.len() > 1 {
-            format!("plate {} ", i + 1)
-        } else {
-            "the plate ".to_string()
+    // Plates of one material and one size share a note ("plates 1, 2 and 3 (calcite) are …").
+    let grouped = |too: &dyn Fn(f64) -> bool| -> Vec<(String, &str, String)> {
+        let mut groups: Vec<(Vec<usize>, &str, String)> = Vec::new();
+        for (i, (m, t)) in plates.iter().enumerate().filter(|(_, (_, t))| too(*t)) {
+            let size = mm(*t);
+            match groups.iter_mut().find(|g| g.1 == m.key() && g.2 == size) {
+                Some(g) => g.0.push(i),
+                None => groups.push((vec![i], m.key(), size)),
+            }
         }
+        groups
+            .into_iter()
+            .map(|(idx, key, size)| {
+                let who = match (plates.len(), idx.as_slice()) {
+                    (1, _) => "the plate is".to_string(),
+                    (_, [i]) => format!("plate {} is", i + 1),
+                    (_, [init @ .., last]) => {
+                        let init: Vec<String> = init.iter().map(|i| (i + 1).to_string()).collect();
+                        format!("plates {} and {} are", init.join(", "), last + 1)
+                    }
+                    (_, []) => String::new(),
+                };
+                (who, key, size)
+            })
+            .collect()
     };
-    for (i, (m, t)) in plates.iter().enumerate() {
-        if *t < THIN_PLATE_MM {
-            out.push(format!(
-                "{}({}) is {} mm thick, thinner than about {THIN_PLATE_MM} mm: a free-standing \
-                 plate this thin is fragile and hard to polish flat; such plates are usually \
-                 cemented or optically contacted to a substrate, or made as a compound zero-order \
-                 pair (guidance, common practice)",
-                numbered(i),
-                m.key(),
-                mm(*t)
-            ));
-        }
-        if *t > LONG_CRYSTAL_MM {
-            out.push(format!(
-                "{}({}) is {} mm long, longer than about {LONG_CRYSTAL_MM} mm: crystals this long \
-                 are rarely grown and polished in one piece; a material with more birefringence, \
-                 or several shorter pieces, may be easier to obtain (guidance, common practice)",
-                numbered(i),
-                m.key(),
-                mm(*t)
-            ));
-        }
+    for (who, key, size) in grouped(&|t| t < THIN_PLATE_MM) {
+        let (subject, verb) = who.rsplit_once(' ').unwrap_or((&who, "is"));
+        out.push(format!(
+            "{subject} ({key}) {verb} {size} mm thick, thinner than about {THIN_PLATE_MM} mm: a free-standing \
+             plate this thin is fragile and hard to polish flat; such plates are usually \
+             cemented or optically contacted to a substrate, or made as a compound zero-order \
+             pair (guidance, common practice)"
+        ));
+    }
+    for (who, key, size) in grouped(&|t| t > LONG_CRYSTAL_MM) {
+        let (subject, verb) = who.rsplit_once(' ').unwrap_or((&who, "is"));
+        out.push(format!(
+            "{subject} ({key}) {verb} {size} mm long, longer than about {LONG_CRYSTAL_MM} mm: crystals this long \
+             are rarely grown and polished in one piece; a material with more birefringence, \
+             or several shorter pieces, may be easier to obtain (guidance, common practice)"
+        ));
     }
     if let Some(a) = clear_aperture_mm {
         let mut seen: Vec<&str> = Vec::new();

@@ -407,6 +407,38 @@ const ROTATOR: [Flag; 9] = [
     DESIGN_TEMPERATURE,
 ];
 
+const FILTER: [Flag; 9] = [
+    MEDIUM_HELP[0],
+    MEDIUM_HELP[1],
+    MEDIUM_HELP[2],
+    flag(
+        "layout",
+        "layout",
+        T,
+        "stage-doubling (plates d, 2d, 4d… between parallel polarizers) or folded (equal plates at ±45°/N between crossed ones) [stage-doubling]",
+    ),
+    flag(
+        "stages",
+        "stages",
+        N,
+        "number of plates: 1 to 8 stage-doubling, 2 to 10 folded [4 or 6]",
+    ),
+    flag("wavelength-nm", "wavelength_nm", N, "centre wavelength, nm [632.8]"),
+    flag(
+        "bandwidth-nm",
+        "bandwidth_nm",
+        N,
+        "width of the pass band (full width at half maximum), nm (required)",
+    ),
+    flag(
+        "band-nm",
+        "band_nm",
+        P,
+        "band of the transmission curve, SHORTEST,LONGEST in nm [out to the neighbouring peaks]",
+    ),
+    DESIGN_TEMPERATURE,
+];
+
 /// The flags of a design kind, or `None` for an unknown kind.
 pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
     match kind {
@@ -419,6 +451,7 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "tilt-tuning" => Some(&TILT),
         "quartz-rotator" => Some(&ROTATOR),
         "athermal-waveplate" => Some(&ATHERMAL),
+        "birefringent-filter" => Some(&FILTER),
         _ => None,
     }
 }

@@ -19,7 +19,7 @@ commands:
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
   design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
                      angular-splitter, prism-polarizer, tilt-tuning, quartz-rotator,
-                     athermal-waveplate)
+                     athermal-waveplate, birefringent-filter)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -132,7 +132,8 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
              instead of JSON
 
 KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
-tilt-tuning, quartz-rotator or athermal-waveplate. A file named like a kind is read as ./NAME.
+tilt-tuning, quartz-rotator, athermal-waveplate or birefringent-filter. A file named like a
+kind is read as ./NAME.
 ",
     );
     for kind in doublespar::DESIGN_KINDS {
@@ -161,6 +162,8 @@ Examples:
   doublespar design quartz-rotator --rotation-deg 90 --wavelength-nm 632.8 --table
   doublespar design athermal-waveplate --first-material quartz --second-material mgf2 \\
       --retardance-waves 0.5 --acceptance-error-waves 0.001 --table
+  doublespar design birefringent-filter --material quartz --wavelength-nm 656.3 \\
+      --bandwidth-nm 0.5 --stages 5 --table
   doublespar design request.json --table
 ",
     );

@@ -11,6 +11,8 @@ use doublespar::{RECOMBINER_MAX_PHASE_ERROR as MAX_PHASE_ERROR, RECOMBINER_MIN_O
 use serde_json::Value;
 use std::collections::BTreeSet;
 
+#[path = "report_filter.rs"]
+mod filter;
 #[path = "report_prisms.rs"]
 mod prisms;
 #[path = "report_rotator.rs"]
@@ -866,6 +868,7 @@ pub fn render(answer: &Value) -> String {
         Some("tilt-tuning") => prisms::tilt(&mut r),
         Some("quartz-rotator") => rotator::rotator(&mut r),
         Some("athermal-waveplate") => athermal(&mut r),
+        Some("birefringent-filter") => filter::filter(&mut r),
         _ => r.title("Design"),
     }
     r.others();

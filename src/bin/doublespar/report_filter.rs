@@ -1,0 +1,95 @@
+//! Report section of the birefringent filter: the plates and polarizers to order, the pass band
+//! met against the one asked, the neighbouring peaks and the centre's drift with temperature, in
+//! the order of every design report. The curve is summarized by its range; the JSON holds it.
+
+use super::{Report, num, range_of};
+
+/// A birefringent filter.
+pub(super) fn filter(r: &mut Report) {
+    let layout = r.s("layout").unwrap_or_default();
+    let wl = r.f("wavelength_nm").map_or_else(String::new, num);
+    let material = r
+        .s("scenario.elements.1.material")
+        .unwrap_or_else(|| "custom crystal".into());
+    r.title(&format!("Birefringent filter · {layout} · {material} · {wl} nm"));
+    r.section("What to order");
+    let n =
+        r.v.get("plates")
+            .and_then(serde_json::Value::as_array)
+            .map_or(0, Vec::len);
+    r.line(
+        "part",
+        if layout == "folded" {
+            format!(
+                "{n} equal plates of {material} between crossed polarizers, axes alternately at ± the folding angle"
+            )
+        } else {
+            format!("{n} plates of {material}, thicknesses doubling, each behind a polarizer parallel to the first")
+        },
+    );
+    for i in 0..n {
+        let t = r.f(&format!("plates.{i}.thickness_mm")).map_or_else(String::new, num);
+        let a = r.f(&format!("plates.{i}.azimuth_deg")).map_or_else(String::new, num);
+        let w = r
+            .f(&format!("plates.{i}.retardance_waves"))
+            .map_or_else(String::new, num);
+        r.line(
+            &format!("plate {}", i + 1),
+            format!("{t} mm, optic axis in the faces at {a} ° from x, {w} waves"),
+        );
+    }
+    let pols: Vec<String> =
+        r.v.get("polarizers_deg")
+            .and_then(serde_json::Value::as_array)
+            .into_iter()
+            .flatten()
+            .filter_map(serde_json::Value::as_f64)
+            .map(num)
+            .collect();
+    r.used.insert("polarizers_deg".into());
+    r.line(
+        "polarizers",
+        format!("{} at {} ° from x, in order", pols.len(), pols.join(", ")),
+    );
+    r.quantity("crystal in all", "total_thickness_mm", "mm");
+
+    r.section("Performance");
+    r.quantity("centre wavelength", "wavelength_nm", "nm");
+    r.quantity("pass band (FWHM) met", "fwhm_nm", "nm");
+    r.quantity("pass band asked", "bandwidth_nm", "nm");
+    r.quantity(
+        "thinnest plate's order",
+        "order",
+        if layout == "folded" {
+            "(and a half) waves"
+        } else {
+            "waves"
+        },
+    );
+    r.quantity(
+        "peak transmission",
+        "peak_transmission",
+        "of light along the first polarizer (whole trace)",
+    );
+    let peaks: Vec<String> = (0..2)
+        .map(|i| {
+            r.f(&format!("neighbour_peaks_nm.{i}"))
+                .map_or("none".into(), |v| format!("{} nm", num(v)))
+        })
+        .collect();
+    r.line("neighbouring peaks", format!("{} and {}", peaks[0], peaks[1]));
+    if let Some((lo_nm, hi_nm, lo, hi)) = range_of(r.v.get("curve")) {
+        r.line(
+            "transmission over the curve",
+            format!("{} to {}, {} nm to {} nm", num(lo), num(hi), num(lo_nm), num(hi_nm)),
+        );
+    }
+    r.used.insert("curve".into());
+
+    r.section("Tolerances");
+    match r.f("centre_shift_nm_per_k") {
+        Some(_) => r.quantity("centre drift with temperature", "centre_shift_nm_per_k", "nm/K"),
+        None => r.line("centre drift with temperature", "no thermal data for this crystal"),
+    }
+    r.notes(&[]);
+}
