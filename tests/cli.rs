@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 21] = [
+const FLAG_CASES: [FlagCase; 23] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -388,6 +388,15 @@ const FLAG_CASES: [FlagCase; 21] = [
     FlagCase {
         flags: "birefringent-filter --no 1.5 --ne 1.51 --layout folded --stages 4 --bandwidth-nm 5",
         json: r#"{"kind": "birefringent-filter", "no": 1.5, "ne": 1.51, "layout": "folded", "stages": 4, "bandwidth_nm": 5}"#,
+    },
+    FlagCase {
+        flags: "broadband-retarder --material mgf2 --plates 2 --retardance-waves 0.25 --fast-axis-deg 10 --band-nm 500,700 --max-thickness-mm 0.1 --generations 40 --seed 3 --temperature-c 25",
+        json: r#"{"kind": "broadband-retarder", "material": "mgf2", "plates": 2, "retardance_waves": 0.25, "fast_axis_deg": 10,
+                 "band_nm": [500, 700], "max_thickness_mm": 0.1, "generations": 40, "seed": 3, "temperature_c": 25}"#,
+    },
+    FlagCase {
+        flags: "broadband-retarder --no 1.5 --ne 1.51 --retardance-waves 0.5 --band-nm 500,700 --generations 20",
+        json: r#"{"kind": "broadband-retarder", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "band_nm": [500, 700], "generations": 20}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",
@@ -653,6 +662,7 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "athermal-quartz-mgf2",
         "filter-mgf2-stage-doubling",
         "filter-calcite-folded",
+        "broadband-quartz-half",
     ] {
         let out = bin()
             .arg("design")

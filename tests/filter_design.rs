@@ -112,7 +112,7 @@ fn a_folded_filter_follows_the_closed_form() {
     let d = num(&a, "/plates/0/thickness_mm");
     let rho = PI / 4.0 / 6.0;
     for k in 0..6 {
-        let az = num(&a, &format!("/plates/{k}/azimuth_deg"));
+        let az = num(&a, &format!("/plates/{k}/axis_azimuth_deg"));
         assert!((az - if k % 2 == 0 { 7.5 } else { -7.5 }).abs() < 1e-12);
     }
     let dn = |nm: f64| birefringence("calcite", "ghosh-1999", nm);

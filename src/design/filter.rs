@@ -54,7 +54,7 @@ pub struct FilterPlate {
     /// Thickness at 20 °C, mm.
     pub thickness_mm: f64,
     /// Optic-axis azimuth (the axis lies in the faces), degrees.
-    pub azimuth_deg: f64,
+    pub axis_azimuth_deg: f64,
     /// Retardance at the centre wavelength, waves.
     pub retardance_waves: f64,
 }
@@ -377,7 +377,7 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
             .iter()
             .map(|&(t, az)| FilterPlate {
                 thickness_mm: t,
-                azimuth_deg: az,
+                axis_azimuth_deg: az,
                 retardance_waves: w0 * t,
             })
             .collect(),

@@ -12,6 +12,7 @@
 //! | `quartz-rotator` | [`crate::design::rotator`] | `rotation_deg` |
 //! | `athermal-waveplate` | [`crate::design::athermal`] | `first`, `second`, `retardance_waves` |
 //! | `birefringent-filter` | [`crate::design::filter`] | `material`, `bandwidth_nm` |
+//! | `broadband-retarder` | [`crate::design::broadband`] | `material` or `materials`, `retardance_waves`, `band_nm` |
 //!
 //! Every answer carries a `scenario` that loads the designed part into the trace and the page.
 //! The requests are documents, read field by field in `src/contract/request/`; here each is
@@ -30,15 +31,17 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, AthermalRequest, DisplacerRequest, FilterRequest, PolarizerRequest, RecombinerRequest,
-    RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
+    AchromatRequest, AthermalRequest, BroadbandRequest, DisplacerRequest, FilterRequest, PolarizerRequest,
+    RecombinerRequest, RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
 use crate::optics::material;
 use crate::optics::wavelength::Wavelength;
 pub mod athermal;
+pub mod broadband;
 pub mod displacer;
+pub mod evolution;
 pub mod filter;
 pub mod notes;
 pub mod part;
@@ -55,7 +58,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 10] = [
+pub const KINDS: [&str; 11] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -66,6 +69,7 @@ pub const KINDS: [&str; 10] = [
     "quartz-rotator",
     "athermal-waveplate",
     "birefringent-filter",
+    "broadband-retarder",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -250,7 +254,8 @@ designed!(
     tilt::TiltDesign,
     rotator::RotatorDesign,
     athermal::AthermalDesign,
-    filter::FilterDesign
+    filter::FilterDesign,
+    broadband::BroadbandDesign
 );
 
 /// A request that uses one crystal at its `wavelength_nm`.
@@ -332,6 +337,30 @@ fn filter_uses(r: &FilterRequest) -> Uses {
     }
 }
 
+fn broadband_uses(r: &BroadbandRequest) -> Uses {
+    let one = r.media.iter().all(|m| *m == r.media[0]);
+    let names = [
+        "materials[0]",
+        "materials[1]",
+        "materials[2]",
+        "materials[3]",
+        "materials[4]",
+        "materials[5]",
+        "materials[6]",
+    ];
+    Uses {
+        media: if one {
+            vec![("material", r.media[0])]
+        } else {
+            names.iter().copied().zip(r.media.iter().copied()).collect()
+        },
+        wavelengths: vec![],
+        band: Some((r.band_nm, true)),
+        activity: false,
+        temperature_c: r.temperature_c,
+    }
+}
+
 fn tilt_uses(r: &TiltRequest) -> Uses {
     let mut u = single(r.medium, r.wavelength.nm(), r.temperature_c);
     u.wavelengths.extend(r.made_for_nm().map(|nm| ("made_for_nm", nm)));
@@ -387,6 +416,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
         "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
         "birefringent-filter" => answer(kind, f, FilterRequest::from_json, filter_uses, filter::design)?,
+        "broadband-retarder" => answer(kind, f, BroadbandRequest::from_json, broadband_uses, broadband::design)?,
         other => {
             return Err(Error::new(
                 "kind",

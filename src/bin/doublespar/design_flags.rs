@@ -439,6 +439,40 @@ const FILTER: [Flag; 9] = [
     DESIGN_TEMPERATURE,
 ];
 
+const BROADBAND: [Flag; 11] = [
+    MEDIUM_HELP[0],
+    MEDIUM_HELP[1],
+    MEDIUM_HELP[2],
+    flag("plates", "plates", N, "number of plates of --material, 2 to 7 [3]"),
+    flag(
+        "retardance-waves",
+        "retardance_waves",
+        N,
+        "target retardance, waves, above 0 and at most 0.5 (required)",
+    ),
+    flag("fast-axis-deg", "fast_axis_deg", N, "target fast axis, ° from x [0]"),
+    flag(
+        "band-nm",
+        "band_nm",
+        P,
+        "band to hold the retardance over, SHORTEST,LONGEST in nm (required)",
+    ),
+    flag(
+        "max-thickness-mm",
+        "max_thickness_mm",
+        N,
+        "thickest plate searched, mm [two full waves of its crystal at the band's centre]",
+    ),
+    flag(
+        "generations",
+        "generations",
+        N,
+        "generations of the search, 10 to 5000 [1000]",
+    ),
+    SEED,
+    DESIGN_TEMPERATURE,
+];
+
 /// The flags of a design kind, or `None` for an unknown kind.
 pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
     match kind {
@@ -452,6 +486,7 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "quartz-rotator" => Some(&ROTATOR),
         "athermal-waveplate" => Some(&ATHERMAL),
         "birefringent-filter" => Some(&FILTER),
+        "broadband-retarder" => Some(&BROADBAND),
         _ => None,
     }
 }

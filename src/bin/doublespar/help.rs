@@ -19,7 +19,7 @@ commands:
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
   design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
                      angular-splitter, prism-polarizer, tilt-tuning, quartz-rotator,
-                     athermal-waveplate, birefringent-filter)
+                     athermal-waveplate, birefringent-filter, broadband-retarder)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -132,8 +132,9 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
              instead of JSON
 
 KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
-tilt-tuning, quartz-rotator, athermal-waveplate or birefringent-filter. A file named like a
-kind is read as ./NAME.
+tilt-tuning, quartz-rotator, athermal-waveplate, birefringent-filter or broadband-retarder.
+A file named like a kind is read as ./NAME. A broadband retarder of plates of different crystals
+is asked in a JSON file (\"materials\": [\"quartz\", \"mgf2\", \"quartz\"]).
 ",
     );
     for kind in doublespar::DESIGN_KINDS {
@@ -164,6 +165,8 @@ Examples:
       --retardance-waves 0.5 --acceptance-error-waves 0.001 --table
   doublespar design birefringent-filter --material quartz --wavelength-nm 656.3 \\
       --bandwidth-nm 0.5 --stages 5 --table
+  doublespar design broadband-retarder --material quartz --plates 3 --retardance-waves 0.5 \\
+      --band-nm 450,800 --table
   doublespar design request.json --table
 ",
     );

@@ -11,6 +11,8 @@ use doublespar::{RECOMBINER_MAX_PHASE_ERROR as MAX_PHASE_ERROR, RECOMBINER_MIN_O
 use serde_json::Value;
 use std::collections::BTreeSet;
 
+#[path = "report_broadband.rs"]
+mod broadband;
 #[path = "report_filter.rs"]
 mod filter;
 #[path = "report_prisms.rs"]
@@ -458,6 +460,30 @@ fn displacer_tolerances(r: &mut Report) {
     }
 }
 
+/// One line per plate of `plates`: its crystal (when `material`), thickness, optic-axis azimuth
+/// and its retardance in waves `where_` (at the centre wavelength, say).
+fn plate_lines(r: &mut Report, material: bool, where_: &str) {
+    let n = r.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len);
+    for i in 0..n {
+        let m = if material {
+            format!("{}, ", plate_material(r, i))
+        } else {
+            String::new()
+        };
+        let t = r.f(&format!("plates.{i}.thickness_mm")).map_or_else(String::new, num);
+        let a = r
+            .f(&format!("plates.{i}.axis_azimuth_deg"))
+            .map_or_else(String::new, num);
+        let w = r
+            .f(&format!("plates.{i}.retardance_waves"))
+            .map_or_else(String::new, num);
+        r.line(
+            &format!("plate {}", i + 1),
+            format!("{m}{t} mm, optic axis in the faces at {a} ° from x, {w} waves {where_}"),
+        );
+    }
+}
+
 /// Plate `i`'s catalogue key, or "custom crystal" for one given by its indices.
 fn plate_material(r: &mut Report, i: usize) -> String {
     match r.s(&format!("plates.{i}.material")) {
@@ -869,6 +895,7 @@ pub fn render(answer: &Value) -> String {
         Some("quartz-rotator") => rotator::rotator(&mut r),
         Some("athermal-waveplate") => athermal(&mut r),
         Some("birefringent-filter") => filter::filter(&mut r),
+        Some("broadband-retarder") => broadband::broadband(&mut r),
         _ => r.title("Design"),
     }
     r.others();

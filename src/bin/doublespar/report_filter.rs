@@ -2,7 +2,7 @@
 //! met against the one asked, the neighbouring peaks and the centre's drift with temperature, in
 //! the order of every design report. The curve is summarized by its range; the JSON holds it.
 
-use super::{Report, num, range_of};
+use super::{Report, num, plate_lines, range_of};
 
 /// A birefringent filter.
 pub(super) fn filter(r: &mut Report) {
@@ -27,17 +27,7 @@ pub(super) fn filter(r: &mut Report) {
             format!("{n} plates of {material}, thicknesses doubling, each behind a polarizer parallel to the first")
         },
     );
-    for i in 0..n {
-        let t = r.f(&format!("plates.{i}.thickness_mm")).map_or_else(String::new, num);
-        let a = r.f(&format!("plates.{i}.azimuth_deg")).map_or_else(String::new, num);
-        let w = r
-            .f(&format!("plates.{i}.retardance_waves"))
-            .map_or_else(String::new, num);
-        r.line(
-            &format!("plate {}", i + 1),
-            format!("{t} mm, optic axis in the faces at {a} ° from x, {w} waves"),
-        );
-    }
+    plate_lines(r, false, "at the centre");
     let pols: Vec<String> =
         r.v.get("polarizers_deg")
             .and_then(serde_json::Value::as_array)

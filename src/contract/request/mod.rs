@@ -12,6 +12,7 @@
 
 pub mod achromat;
 pub mod athermal;
+pub mod broadband;
 pub mod displacer;
 pub mod filter;
 pub mod polarizer;
@@ -23,6 +24,7 @@ pub mod waveplate;
 
 pub use achromat::AchromatRequest;
 pub use athermal::AthermalRequest;
+pub use broadband::BroadbandRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
 pub use filter::{FilterRequest, Layout};
 pub use polarizer::PolarizerRequest;

@@ -1,0 +1,494 @@
+//! Broadband retarders: N plates whose stack holds a target retardance, with a steady fast axis
+//! and no rotation, over a band, found by a global search.
+//!
+//! Physics. At normal incidence with ideal faces each plate is a linear retarder of retardance
+//! Γ(λ) = 2π·w(λ)·d (w the crystal's birefringence in waves per millimetre at λ and the design
+//! temperature, thermal growth included) about its optic axis, which lies in the faces at the
+//! plate's azimuth; the stack's Jones matrix U(λ) is the product of the plates'. Any lossless
+//! Jones matrix, its global phase removed, is a linear retarder between two equal rotations,
+//! U = e^{iα}·Rot(ω/2)·L(δ, θ)·Rot(ω/2) (the equivalence theorem of H. Hurwitz and R. C. Jones,
+//! JOSA 31, 493 (1941), from memory; the symmetric split is chosen here so that the axis θ is
+//! well defined at a half wave, where the rotation ω is not). The answer reports δ (0 to ½
+//! wave), θ and ω across the band. A palindromic stack has ω = 0.
+//!
+//! Method. The search minimizes the mean over 41 wavelengths of the band of 1 − |tr(T†U)|/2,
+//! the distance (to a global phase) of the stack from the target retarder T of the requested
+//! retardance and fast axis; it is 0 only for the exact target. Unknowns: each plate's thickness
+//! (0 to twice a full-wave plate of its crystal at the band's centre, or `max_thickness_mm`) and
+//! azimuth (0 to 180°). The minimizer is differential evolution ([`crate::design::evolution`]),
+//! deterministic for the seed, started from a single zero-order plate of the first crystal (the
+//! other plates of no thickness), so the answer is never worse than that plate. For a half-wave target with three plates of one crystal, the
+//! classic design of S. Pancharatnam (Proc. Indian Acad. Sci. A 41, 137 (1955), from memory: three
+//! equal half-wave plates, the outer two parallel, the middle one at 60° to them) is placed in
+//! the first population and reported beside the result as the reference it must match or beat.
+//!
+//! Conventions: azimuths from x toward y, degrees; the fast axis of the equivalent retarder is
+//! the one whose light leads by δ.
+
+use super::evolution::{Minimum, minimize};
+use super::part::{Part, crystal};
+use super::waveplate::stack_retardance_at;
+use crate::contract::request::BroadbandRequest;
+use crate::contract::scenario::Medium;
+use crate::error::Error;
+use num_complex::Complex64;
+use serde::Serialize;
+use std::f64::consts::TAU;
+
+/// Wavelengths at which the search weighs the stack.
+const SEARCH_POINTS: usize = 41;
+/// Points of the reported curves.
+const CURVE_POINTS: usize = 81;
+/// Gap between plates in the answer's scenario, mm (plates in air, as a stack is mounted).
+const GAP_MM: f64 = 0.0;
+
+type M2 = [[Complex64; 2]; 2];
+
+fn mul(a: &M2, b: &M2) -> M2 {
+    let mut c = [[Complex64::new(0.0, 0.0); 2]; 2];
+    for (i, row) in c.iter_mut().enumerate() {
+        for (j, v) in row.iter_mut().enumerate() {
+            *v = a[i][0] * b[0][j] + a[i][1] * b[1][j];
+        }
+    }
+    c
+}
+
+/// The linear retarder whose axis at `axis_rad` gets the phase `gamma` relative to the other.
+fn plate(gamma: f64, axis_rad: f64) -> M2 {
+    let (s, c) = axis_rad.sin_cos();
+    let e = Complex64::from_polar(1.0, gamma) - 1.0;
+    let one = Complex64::new(1.0, 0.0);
+    // R diag(e^{iΓ}, 1) Rᵀ = I + (e^{iΓ} − 1)·a aᵀ, a = (cos, sin).
+    [[one + e * c * c, e * c * s], [e * c * s, one + e * s * s]]
+}
+
+/// The equivalent retarder of a lossless Jones matrix: (δ in rad, 0 to π; fast axis θ in rad;
+/// rotation ω in rad), with U = e^{iα} Rot(ω/2) L(δ, θ) Rot(ω/2), L's fast axis at θ.
+pub fn equivalent(u: &M2) -> (f64, f64, f64) {
+    let det = u[0][0] * u[1][1] - u[0][1] * u[1][0];
+    let k = det.sqrt();
+    let (mut a, mut b) = (u[0][0] / k, u[0][1] / k);
+    if a.re < 0.0 {
+        a = -a;
+        b = -b;
+    }
+    // a = cos ω cos δ/2 − i sin δ/2 cos(2θ), b = −sin ω cos δ/2 − i sin δ/2 sin(2θ), with θ the
+    // symmetric split's axis (the rotation's half on either side).
+    let cos_half = a.re.hypot(b.re);
+    let sin_half = a.im.hypot(b.im);
+    let delta = 2.0 * sin_half.atan2(cos_half);
+    let omega = (-b.re).atan2(a.re);
+    let axis = 0.5 * (-b.im).atan2(-a.im);
+    (delta, axis, omega)
+}
+
+/// One point of the reported curves.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct BandPoint {
+    /// Wavelength, nm.
+    pub wavelength_nm: f64,
+    /// Retardance of the equivalent retarder, waves (0 to ½).
+    pub retardance_waves: f64,
+    /// Its fast axis, degrees from x (within 90° of the target's).
+    pub fast_axis_deg: f64,
+    /// Its rotation, degrees; `null` for a half-wave target, where a rotation and a turn of the
+    /// axis are the same thing and only the axis is reported.
+    pub rotation_deg: Option<f64>,
+}
+
+/// The worst departures from the target over the band.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Departures {
+    /// Largest |δ − δ₀|, waves.
+    pub retardance_waves: f64,
+    /// Largest |θ − θ₀|, degrees.
+    pub fast_axis_deg: f64,
+    /// Largest |ω|, degrees; `null` for a half-wave target (see [`BandPoint::rotation_deg`]).
+    pub rotation_deg: Option<f64>,
+    /// The search's objective: mean of 1 − |tr(T†U)|/2 over the band.
+    pub distance: f64,
+}
+
+/// One plate of the answer.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BroadbandPlate {
+    /// Catalogue key ("custom" for a crystal given by indices).
+    pub material: String,
+    /// Thickness at 20 °C, mm.
+    pub thickness_mm: f64,
+    /// Optic-axis azimuth, degrees from x (the axis lies in the faces).
+    pub axis_azimuth_deg: f64,
+    /// Retardance at the band's centre, waves.
+    pub retardance_waves: f64,
+}
+
+/// A stack compared with the result (the published classic, a single plate).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Reference {
+    /// What it is.
+    pub name: String,
+    /// Its plates.
+    pub plates: Vec<BroadbandPlate>,
+    /// Its departures over the band.
+    pub departures: Departures,
+}
+
+/// How the search ran.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Search {
+    /// The method.
+    pub method: &'static str,
+    /// Population size.
+    pub population: usize,
+    /// Generations run.
+    pub generations: usize,
+    /// The seed.
+    pub seed: u64,
+}
+
+/// A solved broadband retarder.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BroadbandDesign {
+    /// Target retardance, waves.
+    pub target_retardance_waves: f64,
+    /// Target fast axis, degrees.
+    pub target_fast_axis_deg: f64,
+    /// The band, nm.
+    pub band_nm: [f64; 2],
+    /// The plates in order.
+    pub plates: Vec<BroadbandPlate>,
+    /// The worst departures over the band.
+    pub departures: Departures,
+    /// Retardance, fast axis and rotation across the band.
+    pub curve: Vec<BandPoint>,
+    /// The published classic design (three-plate half-wave of one crystal), when it applies.
+    pub classic: Option<Reference>,
+    /// A single zero-order plate of the first crystal, for comparison.
+    pub single_plate: Reference,
+    /// How the search ran.
+    pub search: Search,
+    /// The stack, ready to load.
+    pub scenario: Part,
+}
+
+/// The model of one request: each plate's birefringence across the band.
+struct Model<'a> {
+    req: &'a BroadbandRequest,
+    /// Waves per millimetre of each plate's crystal at each search wavelength.
+    search_w: Vec<Vec<f64>>,
+    /// Waves per millimetre of each plate's crystal at the band's centre.
+    centre_w: Vec<f64>,
+}
+
+/// Waves per millimetre (signed: positive when the optic axis is slow) of `m` at `nm`, `t_c`.
+fn waves_per_mm(m: &Medium, nm: f64, t_c: f64) -> Option<f64> {
+    stack_retardance_at(&[(*m, 1.0, 0.0)], nm, [0.0, 0.0], t_c).map(|g| g / TAU)
+}
+
+fn grid(lo: f64, hi: f64, n: usize) -> Vec<f64> {
+    (0..n).map(|i| lo + (hi - lo) * i as f64 / (n - 1) as f64).collect()
+}
+
+impl Model<'_> {
+    fn stack(&self, w: &[f64], plates: &[(f64, f64)]) -> M2 {
+        let mut u = plate(0.0, 0.0);
+        for ((t, az), w) in plates.iter().zip(w) {
+            u = mul(&plate(TAU * w * t, az.to_radians()), &u);
+        }
+        u
+    }
+
+    fn target(&self) -> M2 {
+        // The fast axis leads: the slow axis (fast + 90°) takes the phase δ.
+        plate(
+            TAU * self.req.retardance_waves,
+            (self.req.fast_axis_deg + 90.0).to_radians(),
+        )
+    }
+
+    /// Mean distance of the stack from the target over `ws` (waves per mm per wavelength).
+    fn distance(&self, ws: &[Vec<f64>], plates: &[(f64, f64)]) -> f64 {
+        let t = self.target();
+        let sum: f64 = ws
+            .iter()
+            .map(|w| {
+                let u = self.stack(w, plates);
+                let tr = t[0][0].conj() * u[0][0]
+                    + t[1][0].conj() * u[1][0]
+                    + t[0][1].conj() * u[0][1]
+                    + t[1][1].conj() * u[1][1];
+                1.0 - 0.5 * tr.norm()
+            })
+            .sum();
+        sum / ws.len() as f64
+    }
+
+    /// The equivalent retarder's point at `nm`.
+    fn point(&self, nm: f64, plates: &[(f64, f64)]) -> Option<BandPoint> {
+        let w: Vec<f64> = self
+            .req
+            .media
+            .iter()
+            .map(|m| waves_per_mm(m, nm, self.req.temperature_c))
+            .collect::<Option<_>>()?;
+        let (delta, axis, omega) = equivalent(&self.stack(&w, plates));
+        // Within 90° of the target's axis (a retarder's axis is a line).
+        let target = self.req.fast_axis_deg;
+        let mut deg = axis.to_degrees();
+        while deg - target > 90.0 {
+            deg -= 180.0;
+        }
+        while target - deg > 90.0 {
+            deg += 180.0;
+        }
+        Some(BandPoint {
+            wavelength_nm: nm,
+            retardance_waves: delta / TAU,
+            fast_axis_deg: deg,
+            rotation_deg: ((self.req.retardance_waves - 0.5).abs() >= 1e-12).then(|| omega.to_degrees()),
+        })
+    }
+
+    /// The worst departures of `plates` over the band and their curve.
+    fn judge(&self, plates: &[(f64, f64)]) -> Result<(Departures, Vec<BandPoint>), Error> {
+        let (lo, hi) = self.req.band_nm;
+        let curve: Vec<BandPoint> = grid(lo, hi, CURVE_POINTS)
+            .into_iter()
+            .map(|nm| {
+                self.point(nm, plates)
+                    .ok_or_else(|| Error::new("band_nm", format!("a crystal's formula fails at {nm} nm")))
+            })
+            .collect::<Result<_, _>>()?;
+        // Half-wave: the axis and the rotation trade off (a rotator and a half-wave plate are a
+        // half-wave plate), so only the axis is judged there.
+        let half = (self.req.retardance_waves - 0.5).abs() < 1e-12;
+        let fold = |d: f64| {
+            if half {
+                ((d + 45.0).rem_euclid(90.0) - 45.0).abs()
+            } else {
+                d.abs()
+            }
+        };
+        let dep = Departures {
+            retardance_waves: curve
+                .iter()
+                .map(|p| (p.retardance_waves - self.req.retardance_waves).abs())
+                .fold(0.0, f64::max),
+            fast_axis_deg: curve
+                .iter()
+                .map(|p| fold(p.fast_axis_deg - self.req.fast_axis_deg))
+                .fold(0.0, f64::max),
+            rotation_deg: (!half).then(|| {
+                curve
+                    .iter()
+                    .filter_map(|p| p.rotation_deg)
+                    .map(f64::abs)
+                    .fold(0.0, f64::max)
+            }),
+            distance: self.distance(&self.search_w, plates),
+        };
+        Ok((dep, curve))
+    }
+
+    fn plates_out(&self, plates: &[(f64, f64)]) -> Vec<BroadbandPlate> {
+        plates
+            .iter()
+            .zip(&self.req.media)
+            .zip(&self.centre_w)
+            .map(|((&(t, az), m), w)| BroadbandPlate {
+                material: m.key().to_string(),
+                thickness_mm: t,
+                axis_azimuth_deg: az,
+                retardance_waves: w * t,
+            })
+            .collect()
+    }
+}
+
+/// Solves a broadband-retarder request.
+///
+/// # Errors
+/// `band_nm` where a crystal's formula fails inside the band; `material` (or `materials[i]`) for
+/// a crystal without birefringence at the band's centre.
+pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
+    let (lo, hi) = req.band_nm;
+    let centre = 0.5 * (lo + hi);
+    let t_c = req.temperature_c;
+    let field = |i: usize| {
+        if req.media.iter().all(|m| *m == req.media[0]) {
+            "material".to_string()
+        } else {
+            format!("materials[{i}]")
+        }
+    };
+    let centre_w: Vec<f64> = req
+        .media
+        .iter()
+        .enumerate()
+        .map(|(i, m)| {
+            waves_per_mm(m, centre, t_c)
+                .filter(|w| w.abs() > 0.0)
+                .ok_or_else(|| Error::new(field(i), "this crystal has no birefringence at the band's centre"))
+        })
+        .collect::<Result<_, _>>()?;
+    let search_w: Vec<Vec<f64>> = grid(lo, hi, SEARCH_POINTS)
+        .iter()
+        .map(|&nm| {
+            req.media
+                .iter()
+                .map(|m| waves_per_mm(m, nm, t_c))
+                .collect::<Option<Vec<f64>>>()
+                .ok_or_else(|| Error::new("band_nm", format!("a crystal's formula fails at {nm} nm")))
+        })
+        .collect::<Result<_, _>>()?;
+    let model = Model {
+        req,
+        search_w,
+        centre_w,
+    };
+    let bounds: Vec<(f64, f64)> = model
+        .centre_w
+        .iter()
+        .flat_map(|w| [(0.0, req.max_thickness_mm.unwrap_or(2.0 / w.abs())), (0.0, 180.0)])
+        .collect();
+    let as_plates = |x: &[f64]| -> Vec<(f64, f64)> { x.chunks(2).map(|c| (c[0], c[1])).collect() };
+    // The classic three-plate half-wave (one crystal): half-wave plates at φ + 60°, φ + 120°,
+    // φ + 60°, whose product is a half-wave plate at φ (mod 90°) at the centre.
+    let classic_plates: Option<Vec<(f64, f64)>> = ((req.retardance_waves - 0.5).abs() < 1e-12
+        && req.media.len() == 3
+        && req.media.iter().all(|m| *m == req.media[0]))
+    .then(|| {
+        let t = 0.5 / model.centre_w[0].abs();
+        let f = req.fast_axis_deg;
+        vec![
+            (t, (f + 60.0).rem_euclid(180.0)),
+            (t, (f + 120.0).rem_euclid(180.0)),
+            (t, (f + 60.0).rem_euclid(180.0)),
+        ]
+    });
+    // Also the single zero-order plate of the first crystal (the others of no thickness), so
+    // that the answer is never worse than the one plate it is compared with.
+    let w0 = model.centre_w[0];
+    let single = vec![(
+        req.retardance_waves / w0.abs(),
+        if w0 > 0.0 {
+            req.fast_axis_deg + 90.0
+        } else {
+            req.fast_axis_deg
+        }
+        .rem_euclid(180.0),
+    )];
+    let single_padded: Vec<(f64, f64)> = single
+        .iter()
+        .copied()
+        .chain(std::iter::repeat_n((0.0, 0.0), req.media.len() - 1))
+        .collect();
+    let starts: Vec<Vec<f64>> = classic_plates
+        .iter()
+        .chain(std::iter::once(&single_padded))
+        .map(|p| p.iter().flat_map(|&(t, az)| [t, az]).collect())
+        .collect();
+    let Minimum {
+        x,
+        generations,
+        population,
+        ..
+    } = minimize(
+        |x| model.distance(&model.search_w, &as_plates(x)),
+        &bounds,
+        &starts,
+        req.generations,
+        req.seed,
+    );
+    let plates = as_plates(&x);
+    let (departures, curve) = model.judge(&plates)?;
+    let classic = classic_plates
+        .map(|p| {
+            Ok::<_, Error>(Reference {
+                name: "three equal half-wave plates, the middle at 60° to the outer two (Pancharatnam 1955)".into(),
+                departures: model.judge(&p)?.0,
+                plates: model.plates_out(&p),
+            })
+        })
+        .transpose()?;
+    let single_model = Model {
+        req: &BroadbandRequest {
+            media: vec![req.media[0]],
+            ..req.clone()
+        },
+        search_w: model.search_w.iter().map(|w| vec![w[0]]).collect(),
+        centre_w: vec![w0],
+    };
+    let single_plate = Reference {
+        name: "a single zero-order plate of the first crystal".into(),
+        departures: single_model.judge(&single)?.0,
+        plates: single_model.plates_out(&single),
+    };
+    let elements = plates
+        .iter()
+        .zip(&req.media)
+        .map(|(&(t, az), m)| crystal(*m, t, 90.0, az, GAP_MM))
+        .collect();
+    let mut scenario =
+        Part::new(crate::optics::wavelength::Wavelength::from_nm(centre)?, None, elements).at_temperature(t_c);
+    scenario.scenario.beam.polarization = crate::contract::scenario::Polarization::Linear { azimuth_deg: 45.0 };
+    Ok(BroadbandDesign {
+        target_retardance_waves: req.retardance_waves,
+        target_fast_axis_deg: req.fast_axis_deg,
+        band_nm: [lo, hi],
+        plates: model.plates_out(&plates),
+        departures,
+        curve,
+        classic,
+        single_plate,
+        search: Search {
+            method: "differential evolution (DE/rand/1/bin, Storn & Price 1997)",
+            population,
+            generations,
+            seed: req.seed,
+        },
+        scenario,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::f64::consts::PI;
+
+    #[test]
+    fn the_equivalent_retarder_recovers_a_retarder_between_rotations() {
+        let rot = |w: f64| {
+            let (s, c) = w.sin_cos();
+            let z = |v: f64| Complex64::new(v, 0.0);
+            [[z(c), z(-s)], [z(s), z(c)]]
+        };
+        for (delta, axis, omega) in [(0.3, 0.2, 0.1), (1.5, -0.7, -0.4), (3.0, 1.2, 0.0), (PI, 0.4, 0.0)] {
+            // Fast axis at `axis`: the slow one, axis + 90°, takes the phase δ.
+            let l = plate(delta, axis + PI / 2.0);
+            let u = mul(&rot(omega / 2.0), &mul(&l, &rot(omega / 2.0)));
+            let u = u.map(|r| r.map(|v| v * Complex64::from_polar(1.0, 0.77)));
+            let (d, a, o) = equivalent(&u);
+            assert!((d - delta).abs() < 1e-12, "{d} {delta}");
+            let da = (a - axis).rem_euclid(PI);
+            assert!(da < 1e-12 || PI - da < 1e-12, "{a} {axis}");
+            assert!((o - omega).abs() < 1e-12, "{o} {omega}");
+        }
+    }
+
+    #[test]
+    fn three_half_wave_plates_at_60_degrees_make_a_half_wave_plate() {
+        // Pancharatnam's composite at its design wavelength: H(60°)H(120°)H(60°) = H(0°) up to
+        // phase (half-wave plates act as reflections of the polarization about their axes: two
+        // make a rotation by twice the angle between them, H(120°)H(60°) = Rot(120°), and a
+        // reflection about 60° after it is the reflection about 0°).
+        let h = |deg: f64| plate(PI, f64::to_radians(deg));
+        let u = mul(&h(60.0), &mul(&h(120.0), &h(60.0)));
+        let (d, a, o) = equivalent(&u);
+        assert!((d - PI).abs() < 1e-12);
+        let a = a.to_degrees().rem_euclid(90.0);
+        assert!(a < 1e-9 || 90.0 - a < 1e-9, "{a}");
+        assert!(o.abs() < 1e-9);
+    }
+}
