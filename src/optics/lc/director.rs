@@ -377,17 +377,9 @@ mod tests {
     use crate::precision::{LC_SUBLAYERS, assert_close, assert_within};
     use std::f64::consts::{FRAC_PI_2, PI};
 
-    /// 5CB's constants as the catalogue holds them (K in pN, ε at 1 kHz; see `catalogue.rs`).
+    /// 5CB from the catalogue at 633 nm.
     fn lc() -> Nematic {
-        Nematic {
-            no: 1.5325,
-            ne: 1.7158,
-            k11_pn: 6.4,
-            k22_pn: 3.0,
-            k33_pn: 10.0,
-            eps_parallel: 19.7,
-            eps_perpendicular: 6.7,
-        }
+        crate::optics::lc::catalogue::find("5cb").unwrap().at(0.633)
     }
 
     fn cell(twist_deg: f64, pretilt_deg: f64) -> CellLayout {

@@ -7,5 +7,7 @@
 //! ([`stratified`]), and the catalogue of published nematics ([`catalogue`]).
 
 pub mod banded;
+pub mod catalogue;
 pub mod director;
 pub mod nematic;
+pub mod stratified;
