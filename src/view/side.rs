@@ -328,6 +328,7 @@ impl<'a> Frame<'a> {
                 (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
             }
             ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
+            ElementKind::Cell(c) => (format!("LC {} V", sig(c.voltage_v, 3)), "lc_cell"),
             ElementKind::Crystal(_) => (String::new(), "crystal"),
         };
         scene.items.push(Item::Polyline {
