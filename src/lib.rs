@@ -43,6 +43,7 @@ pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
 pub use optics::lc::catalogue::{NEMATICS, NematicEntry, find as find_nematic, keys as nematic_keys};
+pub use optics::lc::curve::{retardance_curve, voltage_grid};
 pub use optics::lc::director::{CellLayout, Profile as DirectorProfile, solve as solve_director};
 pub use optics::lc::nematic::Nematic;
 pub use optics::lc::stratified::cell_jones;

@@ -251,7 +251,16 @@ pub fn solve(lc: &Nematic, cell: &CellLayout, voltage: f64, sublayers: usize, st
     let n = sublayers.max(2);
     let voltage = if voltage.is_finite() { voltage } else { 0.0 };
     let mut profile = match start {
-        Some(p) if p.sublayers() == n => p.clone(),
+        Some(p) if p.sublayers() == n => {
+            // An untilted start sits on the saddle that the field destabilizes above threshold,
+            // where the gradient vanishes: a bulge of 10⁻⁶ rad lets Newton leave it (and below
+            // threshold Newton takes it back out in a step or two).
+            let mut p = p.clone();
+            for (j, t) in p.tilt.iter_mut().enumerate() {
+                *t += 1e-6 * (std::f64::consts::PI * j as f64 / n as f64).sin();
+            }
+            p
+        }
         _ => first_guess(lc, cell, voltage, n),
     };
     // Anchoring: the faces as the substrates impose them.

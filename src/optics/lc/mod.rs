@@ -8,6 +8,7 @@
 
 pub mod banded;
 pub mod catalogue;
+pub mod curve;
 pub mod director;
 pub mod nematic;
 pub mod stratified;
