@@ -125,3 +125,40 @@ fn works_with_crystals() {
     assert_eq!(labels, ["co", "ce"]);
     assert!((r["total_power"].as_f64().unwrap() - 1.0).abs() < 1e-12);
 }
+
+/// Bad cells: each error names its field (the page's bad-input table leaves cells out, since the
+/// page's module does not hold them).
+#[test]
+fn bad_cells_name_their_fields() {
+    let custom = |k11: f64, eps_par: f64| {
+        format!(
+            r#"{{"ne": 1.7, "no": 1.5, "k11_pn": {k11}, "k22_pn": 3, "k33_pn": 10, "eps_parallel": {eps_par}, "eps_perpendicular": 7}}"#
+        )
+    };
+    for (extra, field) in [
+        (r#""lc": "mbba9""#.to_string(), "elements[0].lc"),
+        (format!(r#""lc": {}"#, custom(-1.0, 19.0)), "elements[0].lc.k11_pn"),
+        (format!(r#""lc": {}"#, custom(6.0, 5.0)), "elements[0].lc.eps_parallel"),
+        (r#""lc": 5"#.to_string(), "elements[0].lc"),
+        (r#""lc": "5cb", "voltage_v": -1"#.to_string(), "elements[0].voltage_v"),
+        (
+            r#""lc": "5cb", "pretilt_deg": 90"#.to_string(),
+            "elements[0].pretilt_deg",
+        ),
+        (
+            r#""lc": "5cb", "twist_deg": "ninety""#.to_string(),
+            "elements[0].twist_deg",
+        ),
+        (
+            r#""lc": "5cb", "axis": {"tilt_deg": 3}"#.to_string(),
+            "elements[0].axis",
+        ),
+    ] {
+        let doc = format!(r#"{{"version": 2, "elements": [{{"kind": "lc_cell", "thickness_um": 5, {extra}}}]}}"#);
+        let e = Scenario::from_json_str(&doc).unwrap_err();
+        assert_eq!(e.field, field, "{doc}: {}", e.message);
+    }
+    let e =
+        Scenario::from_json_str(r#"{"elements": [{"kind": "lc_cell", "lc": "5cb", "thickness_um": 0}]}"#).unwrap_err();
+    assert_eq!(e.field, "elements[0].thickness_um");
+}

@@ -16,6 +16,10 @@
 //! Its director profile is solved on [`LC_SUBLAYERS`] sublayers and its Jones matrix found at the
 //! input beam's tangential wave vector, which every ray of a plane-parallel stack shares
 //! (`optics::lc::stratified`).
+//!
+//! The page's WebAssembly modules leave cells out: the director solver and the 4×4 transfer
+//! would take them past their size budgets, so there an `lc_cell` is an error on its `kind` that
+//! points to the command line, and the solver is not compiled in (see [`LcCell::solve_at`]).
 
 use crate::contract::fields::{Fields, ranged};
 use crate::error::Error;
@@ -76,6 +80,12 @@ pub struct SolvedCell {
 /// `lc.k11_pn` and the other constants, `rubbing_azimuth_deg`, `twist_deg`, `pretilt_deg`,
 /// `voltage_v`.
 pub fn parse(f: &mut Fields) -> Result<LcCell, Error> {
+    if cfg!(target_arch = "wasm32") {
+        return Err(Error::new(
+            f.path_of("kind"),
+            "liquid-crystal cells are traced by the command line (doublespar trace); the page leaves them out to stay within its size budget",
+        ));
+    }
     let thickness_um = ranged_above(f, "thickness_um", 1000.0)?;
     let lc_path = f.path_of("lc");
     let lc = match f.get("lc") {
@@ -211,13 +221,29 @@ impl LcCell {
     pub fn solve_at(&self, wavelength: Wavelength, voltage_v: f64, start: Option<&Profile>) -> SolvedCell {
         let (nematic, _) = self.nematic(wavelength);
         let layout = self.layout();
-        let profile = solve(&nematic, &layout, voltage_v, LC_SUBLAYERS, start);
+        // The page's documents cannot hold a cell (see `parse`): there the branch is never taken
+        // and the solver stays out of the module.
+        let profile = if cfg!(target_arch = "wasm32") {
+            Profile::relaxed(&layout, LC_SUBLAYERS)
+        } else {
+            solve(&nematic, &layout, voltage_v, LC_SUBLAYERS, start)
+        };
         SolvedCell {
             retardance_waves: profile.retardance_waves(&nematic, self.thickness_um, wavelength.um()),
             threshold_voltage_v: nematic.threshold_v(layout.twist_rad),
             nematic,
             profile,
         }
+    }
+
+    /// Its retardance (waves) at each of `voltages` at `wavelength`, solved by continuation
+    /// (`optics::lc::curve`); empty on the page (see `parse`).
+    pub fn retardance_curve(&self, wavelength: Wavelength, voltages: &[f64]) -> Vec<f64> {
+        if cfg!(target_arch = "wasm32") {
+            return Vec::new();
+        }
+        let (nematic, _) = self.nematic(wavelength);
+        crate::optics::lc::curve::retardance_curve(&nematic, &self.layout(), wavelength.um(), voltages, LC_SUBLAYERS)
     }
 
     /// The cell's Jones matrix at tangential wave vector `qt` in an outside medium of index
@@ -230,6 +256,9 @@ impl LcCell {
         qt: [f64; 2],
         losses: Losses,
     ) -> JonesMatrix {
+        if cfg!(target_arch = "wasm32") {
+            return JonesMatrix::identity();
+        }
         cell_jones(
             &solved.nematic,
             &solved.profile,

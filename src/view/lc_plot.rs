@@ -10,8 +10,7 @@
 use super::series::Series;
 use crate::contract::scenario::{ElementKind, Scenario};
 use crate::numfmt::sig;
-use crate::optics::lc::curve::{retardance_curve, voltage_grid};
-use crate::precision::LC_SUBLAYERS;
+use crate::optics::lc::curve::voltage_grid;
 
 /// Voltages per sweep.
 pub const VOLTAGE_POINTS: usize = 200;
@@ -41,7 +40,7 @@ pub fn retardance_vs_voltage(sc: &Scenario) -> Series {
     let top = (8.0 * threshold).max(1.25 * cell.voltage_v);
     let top = if top.is_finite() && top > 0.0 { top } else { 10.0 };
     let voltages = voltage_grid(top, VOLTAGE_POINTS);
-    let curve = retardance_curve(&nematic, &layout, sc.wavelength.um(), &voltages, LC_SUBLAYERS);
+    let curve = cell.retardance_curve(sc.wavelength, &voltages);
     s.points = voltages.iter().zip(&curve).map(|(&v, &r)| [v, r]).collect();
     s.current = Some([cell.voltage_v, cell.solve(sc.wavelength).retardance_waves]);
     s.note = format!(
