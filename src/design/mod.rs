@@ -29,8 +29,8 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, AthermalRequest, DisplacerRequest, PolarizerRequest, RecombinerRequest, RotatorRequest,
-    SplitterRequest, TiltRequest, WaveplateRequest,
+    AchromatRequest, AthermalRequest, DisplacerRequest, LcVoltageRequest, PolarizerRequest, RecombinerRequest,
+    RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
@@ -38,6 +38,7 @@ use crate::optics::material;
 use crate::optics::wavelength::Wavelength;
 pub mod athermal;
 pub mod displacer;
+pub mod lc;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
@@ -53,7 +54,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 9] = [
+pub const KINDS: [&str; 10] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -63,6 +64,7 @@ pub const KINDS: [&str; 9] = [
     "tilt-tuning",
     "quartz-rotator",
     "athermal-waveplate",
+    "lc-voltage",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -246,8 +248,20 @@ designed!(
     polarizer::PolarizerDesign,
     tilt::TiltDesign,
     rotator::RotatorDesign,
-    athermal::AthermalDesign
+    athermal::AthermalDesign,
+    lc::LcVoltageDesign
 );
+
+/// A cell design uses no crystal: only its wavelength is checked.
+fn lc_uses(r: &LcVoltageRequest) -> Uses {
+    Uses {
+        media: Vec::new(),
+        wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
+        band: None,
+        activity: false,
+        temperature_c: crate::optics::material::REFERENCE_C,
+    }
+}
 
 /// A request that uses one crystal at its `wavelength_nm`.
 fn single(medium: Medium, nm: f64, temperature_c: f64) -> Uses {
@@ -375,6 +389,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
         "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
         "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
+        "lc-voltage" => answer(kind, f, LcVoltageRequest::from_json, lc_uses, lc::design)?,
         other => {
             return Err(Error::new(
                 "kind",

@@ -19,7 +19,7 @@ commands:
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
   design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
                      angular-splitter, prism-polarizer, tilt-tuning, quartz-rotator,
-                     athermal-waveplate)
+                     athermal-waveplate, lc-voltage)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -132,7 +132,7 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
              instead of JSON
 
 KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
-tilt-tuning, quartz-rotator or athermal-waveplate. A file named like a kind is read as ./NAME.
+tilt-tuning, quartz-rotator, athermal-waveplate or lc-voltage. A file named like a kind is read as ./NAME.
 ",
     );
     for kind in doublespar::DESIGN_KINDS {

@@ -13,6 +13,7 @@
 pub mod achromat;
 pub mod athermal;
 pub mod displacer;
+pub mod lc;
 pub mod polarizer;
 pub mod recombiner;
 pub mod rotator;
@@ -23,6 +24,7 @@ pub mod waveplate;
 pub use achromat::AchromatRequest;
 pub use athermal::AthermalRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
+pub use lc::LcVoltageRequest;
 pub use polarizer::PolarizerRequest;
 pub use recombiner::{Middle, RecombinerRequest};
 pub use rotator::RotatorRequest;
