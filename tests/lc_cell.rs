@@ -158,6 +158,18 @@ fn bad_cells_name_their_fields() {
         let e = Scenario::from_json_str(&doc).unwrap_err();
         assert_eq!(e.field, field, "{doc}: {}", e.message);
     }
+    // A cell is solved between isotropic media: cemented or contacted to a crystal it is refused.
+    for contact in [r#""contact": "optical""#, r#""contact": "cement", "cement_index": 1.5"#] {
+        let doc = format!(
+            r#"{{"version": 2, "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 1, "axis": {{"tilt_deg": 45}}}},
+            {{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", {contact}}}]}}"#
+        );
+        assert_eq!(
+            Scenario::from_json_str(&doc).unwrap_err().field,
+            "elements[1].contact",
+            "{doc}"
+        );
+    }
     let e =
         Scenario::from_json_str(r#"{"elements": [{"kind": "lc_cell", "lc": "5cb", "thickness_um": 0}]}"#).unwrap_err();
     assert_eq!(e.field, "elements[0].thickness_um");

@@ -767,7 +767,15 @@ fn parse_element(index: usize, v: &Value, version: u64) -> Result<Element, Error
         "rotator" => ElementKind::Rotator {
             angle_deg: ranged(&mut f, "angle_deg", None, -3600.0, 3600.0)?,
         },
-        "lc_cell" => ElementKind::Cell(lc_cell::parse(&mut f)?),
+        "lc_cell" => {
+            if contact != Contact::Air {
+                return Err(Error::new(
+                    f.path_of("contact"),
+                    "a liquid-crystal cell sits in the outside medium (its light is solved between isotropic media); leave contact out or give \"air\"",
+                ));
+            }
+            ElementKind::Cell(lc_cell::parse(&mut f)?)
+        }
         other => {
             return Err(Error::new(
                 kind_path,
