@@ -19,7 +19,8 @@
 //!
 //! The page's WebAssembly modules leave cells out: the director solver and the 4×4 transfer
 //! would take them past their size budgets, so there an `lc_cell` is an error on its `kind` that
-//! points to the command line, and the solver is not compiled in (see [`LcCell::solve_at`]).
+//! points to the command line. There a cell cannot even exist ([`Presence`] has no value), so the
+//! compiler drops every cell's code, reading, report and views included, from those modules.
 
 use crate::contract::fields::{Fields, ranged};
 use crate::error::Error;
@@ -43,6 +44,22 @@ pub enum LcMaterial {
     Custom(Nematic),
 }
 
+/// Whether cells exist in this build: natively `()`; in the WebAssembly modules a type with no
+/// value, so that no cell can be made there and every branch that handles one is unreachable.
+#[cfg(not(target_arch = "wasm32"))]
+pub type Presence = ();
+/// Whether cells exist in this build (see the native definition).
+#[cfg(target_arch = "wasm32")]
+pub type Presence = std::convert::Infallible;
+
+/// The [`Presence`] value of this build, if it has one.
+fn presence() -> Option<Presence> {
+    #[cfg(not(target_arch = "wasm32"))]
+    return Some(());
+    #[cfg(target_arch = "wasm32")]
+    return None;
+}
+
 /// A liquid-crystal cell as the document gives it.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct LcCell {
@@ -58,6 +75,8 @@ pub struct LcCell {
     pub pretilt_deg: f64,
     /// RMS voltage across the cell, volts.
     pub voltage_v: f64,
+    /// That this build holds cells (private: made only by [`parse`]).
+    present: Presence,
 }
 
 /// A cell's numbers at the scenario's wavelength: what the trace uses and the result reports.
@@ -80,12 +99,12 @@ pub struct SolvedCell {
 /// `lc.k11_pn` and the other constants, `rubbing_azimuth_deg`, `twist_deg`, `pretilt_deg`,
 /// `voltage_v`.
 pub fn parse(f: &mut Fields) -> Result<LcCell, Error> {
-    if cfg!(target_arch = "wasm32") {
+    let Some(present) = presence() else {
         return Err(Error::new(
             f.path_of("kind"),
             "liquid-crystal cells are traced by the command line (doublespar trace); the page leaves them out to stay within its size budget",
         ));
-    }
+    };
     let thickness_um = ranged_above(f, "thickness_um", 1000.0)?;
     let lc_path = f.path_of("lc");
     let lc = match f.get("lc") {
@@ -123,6 +142,7 @@ pub fn parse(f: &mut Fields) -> Result<LcCell, Error> {
         twist_deg: ranged(f, "twist_deg", Some(0.0), -360.0, 360.0)?,
         pretilt_deg: ranged(f, "pretilt_deg", Some(2.0), 0.0, 89.0)?,
         voltage_v: ranged(f, "voltage_v", Some(0.0), 0.0, 1000.0)?,
+        present,
     })
 }
 
@@ -162,6 +182,11 @@ fn parse_custom(path: &str, v: &Value) -> Result<Nematic, Error> {
 }
 
 impl LcCell {
+    /// The same cell at another voltage.
+    pub fn with_voltage(self, voltage_v: f64) -> LcCell {
+        LcCell { voltage_v, ..self }
+    }
+
     /// The element's document, defaults written out (without `gap_mm`).
     pub fn document(&self) -> Value {
         let lc = match self.lc {
@@ -221,13 +246,7 @@ impl LcCell {
     pub fn solve_at(&self, wavelength: Wavelength, voltage_v: f64, start: Option<&Profile>) -> SolvedCell {
         let (nematic, _) = self.nematic(wavelength);
         let layout = self.layout();
-        // The page's documents cannot hold a cell (see `parse`): there the branch is never taken
-        // and the solver stays out of the module.
-        let profile = if cfg!(target_arch = "wasm32") {
-            Profile::relaxed(&layout, LC_SUBLAYERS)
-        } else {
-            solve(&nematic, &layout, voltage_v, LC_SUBLAYERS, start)
-        };
+        let profile = solve(&nematic, &layout, voltage_v, LC_SUBLAYERS, start);
         SolvedCell {
             retardance_waves: profile.retardance_waves(&nematic, self.thickness_um, wavelength.um()),
             threshold_voltage_v: nematic.threshold_v(layout.twist_rad),
@@ -239,9 +258,6 @@ impl LcCell {
     /// Its retardance (waves) at each of `voltages` at `wavelength`, solved by continuation
     /// (`optics::lc::curve`); empty on the page (see `parse`).
     pub fn retardance_curve(&self, wavelength: Wavelength, voltages: &[f64]) -> Vec<f64> {
-        if cfg!(target_arch = "wasm32") {
-            return Vec::new();
-        }
         let (nematic, _) = self.nematic(wavelength);
         crate::optics::lc::curve::retardance_curve(&nematic, &self.layout(), wavelength.um(), voltages, LC_SUBLAYERS)
     }
@@ -256,9 +272,6 @@ impl LcCell {
         qt: [f64; 2],
         losses: Losses,
     ) -> JonesMatrix {
-        if cfg!(target_arch = "wasm32") {
-            return JonesMatrix::identity();
-        }
         cell_jones(
             &solved.nematic,
             &solved.profile,

@@ -12,7 +12,6 @@
 //! d · Γ(V_max)/d₀ ≤ low.
 
 use crate::contract::geometry::Contact;
-use crate::contract::lc_cell::LcCell;
 use crate::contract::request::LcVoltageRequest;
 use crate::contract::scenario::{Element, ElementKind};
 use crate::design::part::Part;
@@ -110,7 +109,7 @@ pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
             spans_range: bottom * scale <= low,
         }
     });
-    let cell = LcCell { voltage_v, ..r.cell };
+    let cell = r.cell.with_voltage(voltage_v);
     let part = Part::new(
         r.wavelength,
         None,

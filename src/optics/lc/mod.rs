@@ -4,7 +4,8 @@
 //! One file per concept: the material's constants ([`nematic`]), the banded solve the director
 //! solver needs ([`banded`]), the director profile from the Oseen–Frank and electric energy
 //! ([`director`]), the light through the stratified layer by Berreman's 4×4 method
-//! ([`stratified`]), and the catalogue of published nematics ([`catalogue`]).
+//! ([`stratified`]), the retardance against voltage by continuation ([`curve`]), and the
+//! catalogue of published nematics ([`catalogue`]).
 
 pub mod banded;
 pub mod catalogue;
