@@ -19,6 +19,8 @@
 //! - `mode_solve`: one solve of both forward modes at a face, per call over 10⁵ tangential wave
 //!   vectors: the uniaxial closed form (`crystal_modes`), the general 4×4 solver
 //!   (`general_modes`) on the same uniaxial crystal, and on a biaxial, optically active one.
+//! - `lc_curve`: a 5CB cell's retardance at 200 voltages from 0 to 10 V, 100 sublayers, every
+//!   voltage a director solve warm-started from the one before (`optics::lc::curve`).
 
 use doublespar::Indices;
 use doublespar::Scenario;
@@ -27,6 +29,7 @@ use doublespar::Workload;
 use doublespar::trace_scenario as trace;
 use doublespar::walkoff;
 use doublespar::{Anisotropic, Travel, Uniaxial, crystal_modes, general_modes, orientation};
+use doublespar::{CellLayout, LC_SUBLAYERS, find_nematic, retardance_curve, voltage_grid};
 use doublespar::{OpticAxis, plate_optics, tangential};
 use std::hint::black_box;
 use std::time::Instant;
@@ -120,7 +123,20 @@ fn smoke() {
     assert!((a - b).abs() < 1e-9, "closed form {a} vs general {b}");
     let filter = Scenario::from_json_str(include_str!("../scripts/bench/five-stage-filter.json")).unwrap();
     assert_eq!(trace(&filter).unwrap().spectrum.unwrap().transmission.len(), 2000);
+    assert_eq!(lc_curve(10).len(), 10);
     println!("benchmark smoke run: every part runs (time it with cargo bench --bench core)");
+}
+
+/// A twisted 5CB cell's retardance at `n` voltages from 0 to 10 V (see the header).
+fn lc_curve(n: usize) -> Vec<f64> {
+    let lc = find_nematic("5cb").unwrap().at(0.633);
+    let cell = CellLayout {
+        thickness_um: 5.0,
+        rubbing_rad: 0.0,
+        twist_rad: 0.0,
+        pretilt_rad: 2f64.to_radians(),
+    };
+    retardance_curve(&lc, &cell, 0.633, &voltage_grid(10.0, n), LC_SUBLAYERS)
 }
 
 fn main() {
@@ -193,6 +209,12 @@ fn main() {
         r.spectrum.unwrap().transmission.iter().flatten().sum::<f64>()
     });
 
+    let (t_lc, lc_sum) = time(7, || lc_curve(black_box(200)).iter().sum::<f64>());
+    println!(
+        "liquid-crystal cell, retardance at 200 voltages (100 sublayers): {:.2} ms (checksum {lc_sum:.12e})",
+        t_lc * 1e3
+    );
+
     let (closed, same, general) = mode_crystals();
     let qts = tangentials(100_000);
     let (t_closed, sum_closed) = time(7, || {
@@ -239,7 +261,7 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e},\"lc_curve_200_ms\":{:.4},\"lc_curve_checksum\":{lc_sum:e}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
@@ -251,6 +273,7 @@ fn main() {
         per_call_ns(t_closed),
         per_call_ns(t_same),
         per_call_ns(t_general),
-        t_spectrum * 1e3
+        t_spectrum * 1e3,
+        t_lc * 1e3
     );
 }

@@ -29,7 +29,7 @@ mod web;
 // Foundation.
 pub use error::Error;
 pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
-pub use precision::assert_within;
+pub use precision::{LC_SUBLAYERS, assert_within};
 
 // Documents.
 pub use contract::resolve::axis_from_degrees;
@@ -42,6 +42,11 @@ pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
+pub use optics::lc::catalogue::{NEMATICS, NematicEntry, find as find_nematic, keys as nematic_keys};
+pub use optics::lc::curve::{retardance_curve, voltage_grid};
+pub use optics::lc::director::{CellLayout, Profile as DirectorProfile, solve as solve_director};
+pub use optics::lc::nematic::Nematic;
+pub use optics::lc::stratified::cell_jones;
 pub use optics::material::Dispersion;
 pub use optics::material::dispersion::Breakdown;
 pub use optics::material::{

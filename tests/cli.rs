@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 23] = [
+const FLAG_CASES: [FlagCase; 24] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -397,6 +397,11 @@ const FLAG_CASES: [FlagCase; 23] = [
     FlagCase {
         flags: "broadband-retarder --no 1.5 --ne 1.51 --retardance-waves 0.5 --band-nm 500,700 --generations 20",
         json: r#"{"kind": "broadband-retarder", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "band_nm": [500, 700], "generations": 20}"#,
+    },
+    FlagCase {
+        flags: "lc-voltage --thickness-um 5 --lc 5CB --rubbing-azimuth-deg 45 --twist-deg 0 --pretilt-deg 3 --wavelength-nm 633 --retardance-waves 0.3 --retardance-range-waves 0.05,1 --max-voltage-v 15",
+        json: r#"{"kind": "lc-voltage", "thickness_um": 5, "lc": "5CB", "rubbing_azimuth_deg": 45, "twist_deg": 0, "pretilt_deg": 3,
+                 "wavelength_nm": 633, "retardance_waves": 0.3, "retardance_range_waves": [0.05, 1], "max_voltage_v": 15}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",

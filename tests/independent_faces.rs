@@ -1353,7 +1353,7 @@ fn compare(setup: &Setup, split_tir: bool, tally: &mut Tally) -> Result<(), Stri
         let (mut stack, warnings) = scenario.resolve().unwrap_or_else(|e| panic!("{e}\n{doc}"));
         let slabs = stack.layers.iter_mut().filter_map(|l| match &mut l.element {
             StackElement::Slab(s) => Some(s),
-            StackElement::Ideal(_) => None,
+            StackElement::Ideal(_) | StackElement::Cell(_) => None,
         });
         for (slab, e) in slabs.zip(&setup.elems) {
             if let Some(b) = e.biaxial {

@@ -277,7 +277,7 @@ fn traced(doc: &str, media: &[Anisotropic]) -> Option<TraceResult> {
     let (mut stack, warnings) = sc.resolve().unwrap();
     let slabs = stack.layers.iter_mut().filter_map(|l| match &mut l.element {
         StackElement::Slab(s) => Some(s),
-        StackElement::Ideal(_) => None,
+        StackElement::Ideal(_) | StackElement::Cell(_) => None,
     });
     for (slab, m) in slabs.zip(media) {
         slab.medium = StackMedium::Anisotropic(*m);

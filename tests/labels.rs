@@ -67,6 +67,10 @@ fn presets() -> Vec<(String, String)> {
             r#"{"beam": {"polarization": {"kind": "circular", "handedness": "right"}}, "elements": [{"kind": "rotator", "angle_deg": 0}]}"#,
         ),
         (
+            "liquid-crystal cell before a crystal",
+            r#"{"version": 2, "elements": [{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "twist_deg": 90, "voltage_v": 2.5}, {"kind": "crystal", "material": "calcite", "thickness_mm": 2, "axis": {"tilt_deg": 45}}, {"kind": "polarizer"}]}"#,
+        ),
+        (
             "axis almost along the beam",
             r#"{"elements": [{"kind": "crystal", "material": "quartz", "thickness_mm": 3, "axis": {"tilt_deg": 1e-9}}]}"#,
         ),

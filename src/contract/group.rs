@@ -105,7 +105,7 @@ pub fn groups(sc: &Scenario, stack: &Stack) -> Vec<Option<Group>> {
         let xi_at = |s: &Option<Stack>| match s {
             Some(s) => match s.layers[i].element {
                 Element::Slab(other) => normal_components(s, &other, z, &n),
-                Element::Ideal(_) => [None, None],
+                Element::Ideal(_) | Element::Cell(_) => [None, None],
             },
             None => [None, None],
         };

@@ -6,6 +6,7 @@ pub mod custom_dispersion;
 pub mod fields;
 pub mod geometry;
 pub mod group;
+pub mod lc_cell;
 pub mod request;
 pub mod resolve;
 pub mod result;

@@ -44,6 +44,9 @@ impl Scenario {
         let mut warnings = Vec::new();
         let mut layers = Vec::with_capacity(self.elements.len());
         let mut z = 0.0;
+        let (p, a) = (self.beam.polar_deg.to_radians(), self.beam.azimuth_deg.to_radians());
+        let u = direction(p, a);
+        let qt = [self.outside_index * u.x, self.outside_index * u.y];
         for (idx, el) in self.elements.iter().enumerate() {
             z += el.gap_mm;
             let element = match el.kind {
@@ -83,20 +86,29 @@ impl Scenario {
                     Element::Ideal(jones::polarizer(transmission_axis_deg.to_radians()))
                 }
                 ElementKind::Rotator { angle_deg } => Element::Ideal(jones::rotator(angle_deg.to_radians())),
+                ElementKind::Cell(cell) => {
+                    if let (_, Some(w)) = cell.nematic(self.wavelength) {
+                        warnings.push(Warning {
+                            element: idx,
+                            text: format!("elements[{idx}].lc: {w}"),
+                        });
+                    }
+                    let solved = cell.solve(self.wavelength);
+                    Element::Cell(cell.jones(&solved, self.wavelength, self.outside_index, qt, self.losses))
+                }
             };
             layers.push(Layer {
                 gap_mm: el.gap_mm,
                 element,
             });
         }
-        let (p, a) = (self.beam.polar_deg.to_radians(), self.beam.azimuth_deg.to_radians());
         let (jones, stokes) = input_state(&self.beam.polarization);
         let stack = Stack {
             wavelength: self.wavelength,
             outside_index: self.outside_index,
             losses: self.losses,
             input: InputBeam {
-                direction: direction(p, a),
+                direction: u,
                 diameter_mm: self.beam.diameter_mm,
                 jones,
                 stokes,

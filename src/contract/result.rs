@@ -290,6 +290,35 @@ pub enum ElementReport {
         /// Power entering.
         power_in: f64,
     },
+    /// A liquid-crystal cell.
+    #[serde(rename = "lc_cell")]
+    Cell {
+        /// Retardance at normal incidence, waves: (1/λ) ∫ (n_eff(z) − n_o) dz.
+        retardance_waves: f64,
+        /// Freedericksz threshold π √((K11 + (K33 − 2 K22)(φ/π)²)/(ε0 Δε)), RMS volts.
+        threshold_voltage_v: f64,
+        /// The nematic's indices at the wavelength.
+        no: f64,
+        /// Extraordinary index at the wavelength.
+        ne: f64,
+        /// The director across the cell.
+        director_profile: DirectorReport,
+        /// Power entering.
+        power_in: f64,
+        /// Power leaving forward.
+        power_out: f64,
+    },
+}
+
+/// A cell's director profile at its nodes, entrance to exit.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct DirectorReport {
+    /// Depth from the entrance face, µm.
+    pub z_um: Vec<f64>,
+    /// Tilt of the director from the faces, degrees.
+    pub tilt_deg: Vec<f64>,
+    /// Azimuth gained since the entrance face, degrees.
+    pub twist_deg: Vec<f64>,
 }
 
 /// The input state, as the trace understood it.
@@ -754,6 +783,24 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                         absorbed_power: lost_power(power_in, power_out),
                     },
                     ElementKind::Rotator { angle_deg } => ElementReport::Rotator { angle_deg, power_in },
+                    ElementKind::Cell(cell) => {
+                        let solved = cell.solve(sc.wavelength);
+                        let p = &solved.profile;
+                        let n = p.sublayers();
+                        ElementReport::Cell {
+                            retardance_waves: solved.retardance_waves,
+                            threshold_voltage_v: solved.threshold_voltage_v,
+                            no: solved.nematic.no,
+                            ne: solved.nematic.ne,
+                            director_profile: DirectorReport {
+                                z_um: (0..=n).map(|j| cell.thickness_um * j as f64 / n as f64).collect(),
+                                tilt_deg: p.tilt.iter().map(|t| t.to_degrees()).collect(),
+                                twist_deg: p.azimuth.iter().map(|a| (a - p.azimuth[0]).to_degrees()).collect(),
+                            },
+                            power_in,
+                            power_out,
+                        }
+                    }
                     // A crystal always resolves to a slab; kept total rather than unreachable.
                     ElementKind::Crystal(_) => ElementReport::Polarizer {
                         power_in,

@@ -28,6 +28,7 @@
 //! | retarder `retardance_waves`, `fast_axis_deg` | required, 0 | ±1 000 000, ±360 |
 //! | polarizer `transmission_axis_deg` | 0 | ±360 |
 //! | rotator `angle_deg` | required | ±3600 |
+//! | liquid-crystal cell (`lc_cell`) | see [`crate::contract::lc_cell`] | |
 //!
 //! Geometry: the incident beam's axis crosses the plane z = 0 at x = y = 0; each element is
 //! preceded by `gap_mm` of the outside medium (for the first element, measured from z = 0).
@@ -37,6 +38,7 @@
 use crate::contract::custom_dispersion::{CUSTOM_DISPERSION, CustomDispersion};
 use crate::contract::fields::{Fields, number_list, ranged, type_name};
 use crate::contract::geometry::{self, Contact, Piece, Placement};
+use crate::contract::lc_cell::{self, LcCell};
 use crate::contract::spectrum::SpectrumRange;
 use crate::error::{Error, above, in_range, strictly_between};
 use crate::numfmt::{quote, quote_text};
@@ -321,6 +323,8 @@ pub enum ElementKind {
         /// Rotation from e1 toward e2, degrees.
         angle_deg: f64,
     },
+    /// A liquid-crystal cell.
+    Cell(LcCell),
 }
 
 /// An element with the gap of outside medium before it.
@@ -553,6 +557,7 @@ pub fn element_json(e: &Element) -> Value {
             json!({"kind": "polarizer", "transmission_axis_deg": transmission_axis_deg})
         }
         ElementKind::Rotator { angle_deg } => json!({"kind": "rotator", "angle_deg": angle_deg}),
+        ElementKind::Cell(c) => c.document(),
     };
     v["gap_mm"] = json!(e.gap_mm);
     e.contact.write(&mut v);
@@ -739,9 +744,12 @@ fn parse_element(index: usize, v: &Value, version: u64) -> Result<Element, Error
     let path = &format!("elements[{index}]");
     let mut f = Fields::new(path, v)?;
     let kind_path = f.path_of("kind");
-    let kind = f
-        .string("kind")?
-        .ok_or_else(|| Error::new(&kind_path, "is required: crystal, retarder, polarizer or rotator"))?;
+    let kind = f.string("kind")?.ok_or_else(|| {
+        Error::new(
+            &kind_path,
+            "is required: crystal, retarder, polarizer, rotator or lc_cell",
+        )
+    })?;
     let gap_mm = ranged(&mut f, "gap_mm", Some(0.0), 0.0, 1e6)?;
     let contact = Contact::read(&mut f, index, gap_mm)?;
     if kind != "crystal" {
@@ -759,11 +767,20 @@ fn parse_element(index: usize, v: &Value, version: u64) -> Result<Element, Error
         "rotator" => ElementKind::Rotator {
             angle_deg: ranged(&mut f, "angle_deg", None, -3600.0, 3600.0)?,
         },
+        "lc_cell" => {
+            if contact != Contact::Air {
+                return Err(Error::new(
+                    f.path_of("contact"),
+                    "a liquid-crystal cell sits in the outside medium (its light is solved between isotropic media); leave contact out or give \"air\"",
+                ));
+            }
+            ElementKind::Cell(lc_cell::parse(&mut f)?)
+        }
         other => {
             return Err(Error::new(
                 kind_path,
                 format!(
-                    "unknown element kind '{}'; expected crystal, retarder, polarizer or rotator",
+                    "unknown element kind '{}'; expected crystal, retarder, polarizer, rotator or lc_cell",
                     quote_text(other)
                 ),
             ));

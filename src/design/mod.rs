@@ -31,8 +31,8 @@
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
-    AchromatRequest, AthermalRequest, BroadbandRequest, DisplacerRequest, FilterRequest, PolarizerRequest,
-    RecombinerRequest, RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
+    AchromatRequest, AthermalRequest, BroadbandRequest, DisplacerRequest, FilterRequest, LcVoltageRequest,
+    PolarizerRequest, RecombinerRequest, RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
@@ -43,6 +43,7 @@ pub mod broadband;
 pub mod displacer;
 pub mod evolution;
 pub mod filter;
+pub mod lc;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
@@ -58,7 +59,7 @@ use serde::Serialize;
 use serde_json::{Value, json};
 
 /// The design kinds.
-pub const KINDS: [&str; 11] = [
+pub const KINDS: [&str; 12] = [
     "displacer",
     "waveplate",
     "achromat",
@@ -70,6 +71,7 @@ pub const KINDS: [&str; 11] = [
     "athermal-waveplate",
     "birefringent-filter",
     "broadband-retarder",
+    "lc-voltage",
 ];
 
 fn to_value<T: Serialize>(kind: &str, v: &T) -> Result<Value, Error> {
@@ -255,8 +257,20 @@ designed!(
     rotator::RotatorDesign,
     athermal::AthermalDesign,
     filter::FilterDesign,
-    broadband::BroadbandDesign
+    broadband::BroadbandDesign,
+    lc::LcVoltageDesign
 );
+
+/// A cell design uses no crystal: only its wavelength is checked.
+fn lc_uses(r: &LcVoltageRequest) -> Uses {
+    Uses {
+        media: Vec::new(),
+        wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
+        band: None,
+        activity: false,
+        temperature_c: crate::optics::material::REFERENCE_C,
+    }
+}
 
 /// A request that uses one crystal at its `wavelength_nm`.
 fn single(medium: Medium, nm: f64, temperature_c: f64) -> Uses {
@@ -417,6 +431,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
         "birefringent-filter" => answer(kind, f, FilterRequest::from_json, filter_uses, filter::design)?,
         "broadband-retarder" => answer(kind, f, BroadbandRequest::from_json, broadband_uses, broadband::design)?,
+        "lc-voltage" => answer(kind, f, LcVoltageRequest::from_json, lc_uses, lc::design)?,
         other => {
             return Err(Error::new(
                 "kind",

@@ -94,11 +94,13 @@ impl Part {
         // Version 1 while the part is plane-parallel plates in air, so that those answers read as
         // before; version 2 as soon as an element needs its geometry.
         // An optically active crystal is version 2 too: version 1 had no optical activity.
-        // So is a part designed for a temperature other than 20 °C, which carries it.
+        // So is a part designed for a temperature other than 20 °C, which carries it, and one
+        // holding a liquid-crystal cell, an element of version 2.
         let at_reference = sc.temperature_c == crate::optics::material::REFERENCE_C;
         let plain = at_reference
             && sc.elements.iter().all(|e| {
                 e.contact == Contact::Air
+                    && !matches!(e.kind, ElementKind::Cell(_))
                     && !matches!(e.kind, ElementKind::Crystal(c)
                     if !c.placement.is_default() || c.chirality.is_some_and(|ch| ch.active))
             });

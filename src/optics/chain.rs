@@ -135,7 +135,7 @@ pub fn chain(stack: &Stack, label: &str) -> Option<ChainEnd> {
         z += layer.gap_mm;
         let (contact, slab) = match layer.element {
             Element::Slab(s) => (s.faces.map_or(Contact::Outside, |f| f.contact), Some(s)),
-            Element::Ideal(_) => (Contact::Outside, None),
+            Element::Ideal(_) | Element::Cell(_) => (Contact::Outside, None),
         };
         if let (Some(back), Contact::Outside) = (pending, contact) {
             ray = ray.cross(back, outside)?;
@@ -356,7 +356,7 @@ mod tests {
                 .iter()
                 .filter_map(|l| match l.element {
                     Element::Slab(s) => Some(s.medium.letters()),
-                    Element::Ideal(_) => None,
+                    Element::Ideal(_) | Element::Cell(_) => None,
                 })
                 .collect();
             for (a, b) in [(0, 0), (0, 1), (1, 0), (1, 1)] {

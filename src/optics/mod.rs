@@ -10,6 +10,7 @@ pub mod general_modes;
 pub mod geometry;
 pub mod interface;
 pub mod jones;
+pub mod lc;
 pub mod material;
 pub mod modes;
 pub mod parallel;

@@ -111,9 +111,15 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
                 });
                 z += l;
             }
-            Element::Ideal(jm) => {
+            Element::Ideal(_) | Element::Cell(_) => {
+                let Some((jm, letter)) = layer.element.thin() else {
+                    continue;
+                };
                 for path in &mut paths {
                     path.matrix = jm * path.matrix;
+                    if let Some(c) = letter {
+                        path.label.push(c);
+                    }
                 }
                 layers.push(LayerTrace::Ideal {
                     power_in,

@@ -415,7 +415,8 @@ pub fn trace_planar(stack: &Stack) -> Trace {
         }
         run.tallies[idx].power_in = run.power(&flights);
         flights = match layer.element {
-            Element::Ideal(jm) => run.through_ideal(idx, z, jm, flights),
+            Element::Ideal(jm) => run.through_ideal(idx, z, (jm, None), flights),
+            Element::Cell(jm) => run.through_ideal(idx, z, (jm, Some('c')), flights),
             Element::Slab(slab) => {
                 let through = run.through_slab(idx, z, &slab, into_next, flights);
                 z += slab.thickness_mm;
@@ -456,8 +457,14 @@ impl Run<'_> {
     }
 
     /// Ideal element `idx` at z: each ray travels to the plane z, where its Jones matrix takes
-    /// `jm`.
-    fn through_ideal(&mut self, idx: usize, z: f64, jm: JonesMatrix, flights: Vec<Flight>) -> Vec<Flight> {
+    /// `jm` and its label the element's letter, if it has one (a cell's `c`).
+    fn through_ideal(
+        &mut self,
+        idx: usize,
+        z: f64,
+        (jm, letter): (JonesMatrix, Option<char>),
+        flights: Vec<Flight>,
+    ) -> Vec<Flight> {
         let plane = Plane::across_z(z);
         let mut next = Vec::with_capacity(flights.len());
         for mut f in flights {
@@ -474,6 +481,9 @@ impl Run<'_> {
             }
             if let Carrier::Free { m, .. } = &mut f.carrier {
                 *m = jm * *m;
+            }
+            if let Some(c) = letter {
+                f.label = self.tracer.trails.borrow_mut().letter(f.label, c);
             }
             next.push(f);
         }

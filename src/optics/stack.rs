@@ -151,6 +151,22 @@ pub enum Element {
     /// An ideal element of zero thickness (retarder, polarizer, rotator): its Jones matrix on
     /// the beam basis.
     Ideal(JonesMatrix),
+    /// A liquid-crystal cell: zero thickness in the stack's geometry, its Jones matrix on the
+    /// beam basis found at the input beam's tangential wave vector (`optics::lc::stratified`);
+    /// traced as an ideal element, its rays gaining the label letter `c`.
+    Cell(JonesMatrix),
+}
+
+impl Element {
+    /// The Jones matrix of a zero-thickness element and the letter it adds to ray labels
+    /// (none for an ideal element, `c` for a cell); `None` for a slab.
+    pub fn thin(&self) -> Option<(JonesMatrix, Option<char>)> {
+        match *self {
+            Element::Slab(_) => None,
+            Element::Ideal(jm) => Some((jm, None)),
+            Element::Cell(jm) => Some((jm, Some('c'))),
+        }
+    }
 }
 
 /// An element with the gap of outside medium before it.
@@ -218,7 +234,7 @@ impl Stack {
     pub fn is_plane_parallel(&self) -> bool {
         self.layers.iter().all(|l| match l.element {
             Element::Slab(s) => s.faces.is_none(),
-            Element::Ideal(_) => true,
+            Element::Ideal(_) | Element::Cell(_) => true,
         })
     }
 }

@@ -6,8 +6,8 @@
 //! `end`, `poincare`, `walkoff-tilt`, `separation-wavelength`, `retardance-wavelength` (plots of
 //! the first crystal of the stack), `split-wavelength`, `split-incidence` (plots of the whole
 //! set-up's split angle, [`split_series`]), `retardance-temperature`, `separation-temperature`
-//! ([`temperature_series`]) and `transmission-wavelength` (the result's spectrum,
-//! [`spectrum_plot`]).
+//! ([`temperature_series`]), `transmission-wavelength` (the result's spectrum,
+//! [`spectrum_plot`]) and `retardance-voltage` (the first liquid-crystal cell, [`lc_plot`]).
 
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
@@ -15,6 +15,7 @@ use crate::error::Error;
 use crate::view::scene::Scene;
 pub mod end;
 pub mod label_layout;
+pub mod lc_plot;
 pub mod palette;
 pub mod plot;
 pub mod poincare;
@@ -28,7 +29,7 @@ pub mod table;
 pub mod temperature_series;
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 13] = [
+pub const VIEW_NAMES: [&str; 14] = [
     "side",
     "side-yz",
     "side-walkoff",
@@ -42,6 +43,7 @@ pub const VIEW_NAMES: [&str; 13] = [
     "retardance-temperature",
     "separation-temperature",
     "transmission-wavelength",
+    "retardance-voltage",
 ];
 
 /// Builds the view called `name`.
@@ -63,6 +65,7 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "retardance-temperature" => plot::plot(&temperature_series::retardance_vs_temperature(scenario, 0)),
         "separation-temperature" => plot::plot(&temperature_series::separation_vs_temperature(scenario, 0)),
         "transmission-wavelength" => spectrum_plot::transmission_plot(scenario, result),
+        "retardance-voltage" => plot::plot(&lc_plot::retardance_vs_voltage(scenario)),
         other => {
             return Err(Error::new(
                 "view",
@@ -94,6 +97,7 @@ pub fn series(name: &str, scenario: &Scenario) -> Result<Option<series::Series>,
         "transmission-wavelength" => crate::contract::result::trace_scenario(scenario)
             .ok()
             .map(|r| spectrum_plot::transmission_vs_wavelength(scenario, &r)),
+        "retardance-voltage" => Some(lc_plot::retardance_vs_voltage(scenario)),
         _ => None,
     })
 }

@@ -25,7 +25,7 @@
 //! or outside an aperture) is a short marked stub along its direction with its power written.
 
 use crate::contract::geometry::Contact;
-use crate::contract::result::{ElementReport, Ray, TraceResult};
+use crate::contract::result::{DirectorReport, ElementReport, Ray, TraceResult};
 use crate::contract::scenario::{CrystalPlate, ElementKind, Scenario};
 use crate::numfmt::{LengthUnit, NO_POWER, length, sig};
 use crate::optics::geometry::Plane;
@@ -34,6 +34,8 @@ use nalgebra::Vector3;
 
 /// Dash pattern of e-rays (px).
 pub const E_DASH: [f64; 2] = [7.0, 4.0];
+/// Depths at which a liquid-crystal cell's director is drawn, entrance to exit.
+pub const DIRECTOR_DASHES: usize = 9;
 
 fn mode_style(letter: Option<char>) -> (Role, Vec<f64>) {
     match letter {
@@ -229,6 +231,10 @@ impl<'a> Frame<'a> {
                     crystal_index += 1;
                     z_cursor = z1;
                 }
+                (ElementKind::Cell(cell), ElementReport::Cell { director_profile, .. }) => {
+                    self.director(scene, cell.rubbing_azimuth_deg, director_profile, z_cursor, i);
+                    self.ideal_element(scene, &el.kind, z_cursor, i);
+                }
                 (kind, _) => self.ideal_element(scene, kind, z_cursor, i),
             }
         }
@@ -314,6 +320,38 @@ impl<'a> Frame<'a> {
         }
     }
 
+    /// Draws a liquid-crystal cell's director (element `i`, at `z`) as short dashes in a slot
+    /// around its bar: [`DIRECTOR_DASHES`] depths from entrance to exit across the slot, in three
+    /// rows, each dash the director's projection on the drawn plane at that depth (a director
+    /// along the plane's normal shows as a dot), drawn at its true screen angle.
+    fn director(&self, scene: &mut Scene, rubbing_deg: f64, profile: &DirectorReport, z: f64, i: usize) {
+        let nodes = profile.tilt_deg.len();
+        if nodes < 2 {
+            return;
+        }
+        let half_slot = 0.02 * self.z_extent;
+        let step = 2.0 * half_slot / (DIRECTOR_DASHES - 1) as f64;
+        let half = 0.4 * step;
+        for k in 0..DIRECTOR_DASHES {
+            let j = ((k * (nodes - 1)) as f64 / (DIRECTOR_DASHES - 1) as f64).round() as usize;
+            let tilt = profile.tilt_deg[j].to_radians();
+            let azimuth = (rubbing_deg + profile.twist_deg[j] - self.names.turn_deg).to_radians();
+            let (pz, px) = (tilt.sin(), tilt.cos() * azimuth.cos());
+            let (dz, dx) = (pz * half, px * half / self.s);
+            let zk = z - half_slot + step * k as f64;
+            for row in [0.25, 0.5, 0.75] {
+                let x = self.px0 + (self.px1 - self.px0) * row;
+                scene.line(
+                    vec![[zk - dz, x - dx], [zk + dz, x + dx]],
+                    Role::Axis,
+                    vec![],
+                    1.5,
+                    format!("director {i}"),
+                );
+            }
+        }
+    }
+
     /// Draws an ideal element (element `i`) as a bar at `z` with its setting below.
     fn ideal_element(&self, scene: &mut Scene, kind: &ElementKind, z: f64, i: usize) {
         let (name, tag) = match kind {
@@ -328,6 +366,7 @@ impl<'a> Frame<'a> {
                 (format!("pol. {}°", sig(*transmission_axis_deg, 3)), "polarizer")
             }
             ElementKind::Rotator { angle_deg } => (format!("rot. {}°", sig(*angle_deg, 3)), "rotator"),
+            ElementKind::Cell(c) => (format!("LC {} V", sig(c.voltage_v, 3)), "lc_cell"),
             ElementKind::Crystal(_) => (String::new(), "crystal"),
         };
         scene.items.push(Item::Polyline {
@@ -1069,5 +1108,28 @@ mod tests {
             r#"{"elements": [{"kind": "crystal", "material": "calcite", "thickness_mm": 5, "axis": {"tilt_deg": 45, "azimuth_deg": -90}}]}"#,
         );
         assert!(scene.texts().iter().any(|t| t.starts_with("⊗")));
+    }
+
+    /// A cell's director is drawn in its slot: flat dashes (along z's normal, the faces) below
+    /// threshold, standing dashes (along z) far above it.
+    #[test]
+    fn the_cells_director_stands_up_with_voltage() {
+        let slope = |v: f64| {
+            let doc = format!(
+                r#"{{"version": 2, "elements": [{{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "pretilt_deg": 0, "voltage_v": {v}}}]}}"#
+            );
+            let (_, scene) = build(&doc);
+            let dashes: Vec<&Item> = scene.tagged("director 0").collect();
+            assert_eq!(dashes.len(), 3 * DIRECTOR_DASHES);
+            // The middle dash of the middle row: its extent along z against across.
+            let Item::Polyline { points, .. } = dashes[3 * (DIRECTOR_DASHES / 2) + 1] else {
+                panic!("a line")
+            };
+            ((points[1][0] - points[0][0]).abs(), (points[1][1] - points[0][1]).abs())
+        };
+        let (dz0, dx0) = slope(0.0);
+        assert!(dz0 < 1e-12 && dx0 > 0.0, "flat at 0 V: {dz0} {dx0}");
+        let (dz, dx) = slope(20.0);
+        assert!(dz > 0.0 && dx < 0.1 * dx0, "standing at 20 V: {dz} {dx}");
     }
 }

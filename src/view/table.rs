@@ -192,6 +192,20 @@ fn element_row(out: &mut String, n: usize, el: &ElementReport) {
         ElementReport::Rotator { angle_deg, .. } => {
             let _ = writeln!(out, "{:>3}  {:<9} turns by {}°", n, "rotator", num(*angle_deg, 4));
         }
+        ElementReport::Cell {
+            retardance_waves,
+            threshold_voltage_v,
+            ..
+        } => {
+            let _ = writeln!(
+                out,
+                "{:>3}  {:<9} retardance {} waves; threshold {} V",
+                n,
+                "LC cell",
+                num(*retardance_waves, 5),
+                num(*threshold_voltage_v, 4)
+            );
+        }
     }
 }
 

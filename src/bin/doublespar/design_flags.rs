@@ -228,6 +228,33 @@ const ATHERMAL: [Flag; 10] = [
     DESIGN_TEMPERATURE,
 ];
 
+const LC_VOLTAGE: [Flag; 9] = [
+    flag("thickness-um", "thickness_um", N, "cell gap, µm (required)"),
+    flag("lc", "lc", T, "nematic, a catalogue key: 5cb (required)"),
+    flag(
+        "rubbing-azimuth-deg",
+        "rubbing_azimuth_deg",
+        N,
+        "director azimuth at the entrance, ° [0]",
+    ),
+    flag("twist-deg", "twist_deg", N, "twist from entrance to exit, ° [0]"),
+    flag("pretilt-deg", "pretilt_deg", N, "pretilt at both faces, ° [2]"),
+    DESIGN_WAVELENGTH,
+    flag(
+        "retardance-waves",
+        "retardance_waves",
+        N,
+        "retardance wanted, waves (required)",
+    ),
+    flag(
+        "retardance-range-waves",
+        "retardance_range_waves",
+        P,
+        "range LOW,HIGH in waves the thinnest cell must span [none]",
+    ),
+    flag("max-voltage-v", "max_voltage_v", N, "highest RMS drive voltage, V [20]"),
+];
+
 const RECOMBINER: [Flag; 12] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
@@ -487,6 +514,7 @@ pub fn flags_of(kind: &str) -> Option<&'static [Flag]> {
         "athermal-waveplate" => Some(&ATHERMAL),
         "birefringent-filter" => Some(&FILTER),
         "broadband-retarder" => Some(&BROADBAND),
+        "lc-voltage" => Some(&LC_VOLTAGE),
         _ => None,
     }
 }

@@ -19,7 +19,8 @@ commands:
   draw VIEW FILE|-   draw one view of a scenario as an SVG document
   design KIND ...    design a part (displacer, waveplate, achromat, recombiner,
                      angular-splitter, prism-polarizer, tilt-tuning, quartz-rotator,
-                     athermal-waveplate, birefringent-filter, broadband-retarder)
+                     athermal-waveplate, birefringent-filter, broadband-retarder,
+                     lc-voltage)
                      from flags or from a JSON request file
   materials          the crystal catalogue with citations, optionally indices at --at NM
   demo               print the demo scenario (a starting point for your own)
@@ -132,9 +133,9 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
              instead of JSON
 
 KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
-tilt-tuning, quartz-rotator, athermal-waveplate, birefringent-filter or broadband-retarder.
-A file named like a kind is read as ./NAME. A broadband retarder of plates of different crystals
-is asked in a JSON file (\"materials\": [\"quartz\", \"mgf2\", \"quartz\"]).
+tilt-tuning, quartz-rotator, athermal-waveplate, birefringent-filter, broadband-retarder or
+lc-voltage. A file named like a kind is read as ./NAME. A broadband retarder of plates of
+different crystals is asked in a JSON file (\"materials\": [\"quartz\", \"mgf2\", \"quartz\"]).
 ",
     );
     for kind in doublespar::DESIGN_KINDS {

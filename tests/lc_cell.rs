@@ -1,0 +1,176 @@
+//! Liquid-crystal cells through the whole contract: the `lc_cell` element read, written back with
+//! its defaults and reported (`retardance_waves`, `threshold_voltage_v`, the director profile),
+//! and traced in stacks with polarizers and crystals against closed forms evaluated here.
+
+use doublespar::{Scenario, find_nematic, trace_scenario};
+use serde_json::Value;
+use std::f64::consts::PI;
+
+fn trace(doc: &str) -> Value {
+    let sc = Scenario::from_json_str(doc).unwrap_or_else(|e| panic!("{}: {}", e.field, e.message));
+    serde_json::to_value(trace_scenario(&sc).unwrap()).unwrap()
+}
+
+fn cell_between(cell: &str, first_deg: f64, last_deg: f64, nm: f64) -> String {
+    format!(
+        r#"{{"version": 2, "wavelength_nm": {nm}, "beam": {{"polarization": {{"kind": "linear", "azimuth_deg": {first_deg}}}}},
+        "elements": [{cell}, {{"kind": "polarizer", "transmission_axis_deg": {last_deg}}}]}}"#
+    )
+}
+
+/// Defaults are written out and the document reads back to the same scenario.
+#[test]
+fn written_back_with_defaults() {
+    let doc = r#"{"version": 2, "elements": [{"kind": "lc_cell", "thickness_um": 4.5, "lc": "5CB"}]}"#;
+    let sc = Scenario::from_json_str(doc).unwrap();
+    let v = sc.to_json();
+    let el = &v["elements"][0];
+    assert_eq!(el["kind"], "lc_cell");
+    assert_eq!(el["lc"], "5cb");
+    assert_eq!(el["pretilt_deg"], 2.0);
+    assert_eq!(el["twist_deg"], 0.0);
+    assert_eq!(el["voltage_v"], 0.0);
+    assert_eq!(el["rubbing_azimuth_deg"], 0.0);
+    assert_eq!(Scenario::from_json(&v).unwrap(), sc);
+    let custom = r#"{"version": 2, "elements": [{"kind": "lc_cell", "thickness_um": 3, "voltage_v": 1.5, "twist_deg": 90,
+        "lc": {"ne": 1.7, "no": 1.5, "k11_pn": 11, "k22_pn": 6, "k33_pn": 17, "eps_parallel": 14, "eps_perpendicular": 4}}]}"#;
+    let sc = Scenario::from_json_str(custom).unwrap();
+    assert_eq!(Scenario::from_json(&sc.to_json()).unwrap(), sc);
+    // A misspelt constant is an unknown field, named.
+    let bad = custom.replace("k33_pn", "k3_pn");
+    let e = Scenario::from_json_str(&bad).unwrap_err();
+    assert!(e.field.starts_with("elements[0].lc."), "{}", e.field);
+}
+
+/// An untwisted cell with its rubbing at 45° between crossed polarizers is a variable retarder:
+/// T = sin²(πΓ) with Γ the reported retardance (common practice). The reported Γ falls with
+/// voltage, from (n_e(pretilt) − n_o) d/λ toward 0; the exact 4×4 trace meets sin²(πΓ) to 10⁻³
+/// (its faces and the index gradient reflect a little, which Γ leaves out).
+#[test]
+fn variable_retarder_between_crossed_polarizers() {
+    let mut last = f64::INFINITY;
+    for v in [0.0, 0.5, 1.0, 1.5, 2.0, 3.0, 5.0, 10.0] {
+        let cell = format!(
+            r#"{{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "rubbing_azimuth_deg": 45, "voltage_v": {v}}}"#
+        );
+        let r = trace(&cell_between(&cell, 0.0, 90.0, 633.0));
+        let el = &r["elements"][0];
+        let gamma = el["retardance_waves"].as_f64().unwrap();
+        let t = r["total_power"].as_f64().unwrap();
+        assert!((t - (PI * gamma).sin().powi(2)).abs() < 1e-3, "{v} V: T {t}, Γ {gamma}");
+        assert!(gamma < last, "{v} V: {gamma} after {last}");
+        last = gamma;
+        assert_eq!(r["rays"][0]["label"], "c");
+        assert!((el["power_out"].as_f64().unwrap() - 1.0).abs() < 1e-12);
+        let threshold = el["threshold_voltage_v"].as_f64().unwrap();
+        let lc = find_nematic("5cb").unwrap();
+        let expected = PI * (lc.k_pn[0] * 1e-12 / (8.8541878128e-12 * (lc.eps[0] - lc.eps[1]))).sqrt();
+        assert!((threshold - expected).abs() < 1e-12 * expected);
+        let profile = &el["director_profile"];
+        assert_eq!(profile["z_um"].as_array().unwrap().len(), 101);
+        assert_eq!(profile["tilt_deg"][0], 2.0);
+    }
+    // At zero volts: (n_eff(2°) − n_o) d/λ with 5CB's catalogue indices.
+    let lc = find_nematic("5cb").unwrap().at(0.633);
+    let p = 2f64.to_radians();
+    let neff = 1.0 / (p.sin().powi(2) / lc.no.powi(2) + p.cos().powi(2) / lc.ne.powi(2)).sqrt();
+    let cell = r#"{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "rubbing_azimuth_deg": 45}"#;
+    let r = trace(&cell_between(cell, 0.0, 90.0, 633.0));
+    let gamma = r["elements"][0]["retardance_waves"].as_f64().unwrap();
+    assert!((gamma - (neff - lc.no) * 5.0 / 0.633).abs() < 1e-12, "{gamma}");
+}
+
+/// A 90° twisted cell between parallel polarizers: Gooch & Tarry's (1975)
+/// T = sin²(½π√(1+u²))/(1+u²), u = 2dΔn/λ, through the whole contract; the first minimum
+/// u = √3 passes under 10⁻⁵ of the light.
+#[test]
+fn twisted_cell_first_minimum() {
+    let nm = 550.0;
+    let lc = find_nematic("5cb").unwrap().at(nm / 1000.0);
+    let dn = lc.ne - lc.no;
+    for u in [1.0, 3f64.sqrt(), 3.0] {
+        let d = u * nm / 1000.0 / (2.0 * dn);
+        let cell =
+            format!(r#"{{"kind": "lc_cell", "thickness_um": {d}, "lc": "5cb", "twist_deg": 90, "pretilt_deg": 0}}"#);
+        let r = trace(&cell_between(&cell, 0.0, 0.0, nm));
+        let t = r["total_power"].as_f64().unwrap();
+        let expected = (0.5 * PI * (1.0 + u * u).sqrt()).sin().powi(2) / (1.0 + u * u);
+        assert!((t - expected).abs() < 5e-4, "u = {u}: T {t}, Gooch–Tarry {expected}");
+        if u == 3f64.sqrt() {
+            assert!(t < 1e-5, "first minimum: {t}");
+        }
+        let twist = &r["elements"][0]["director_profile"]["twist_deg"];
+        assert!((twist[100].as_f64().unwrap() - 90.0).abs() < 1e-12);
+        assert!((twist[50].as_f64().unwrap() - 45.0).abs() < 1e-9);
+    }
+}
+
+/// A cell in a stack with a crystal and an ideal element: the crystal splits the cell's one ray
+/// into its two modes, labelled after the cell's `c`, and with ideal faces no power is lost.
+#[test]
+fn works_with_crystals() {
+    let doc = r#"{"version": 2, "wavelength_nm": 633, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
+      "elements": [
+        {"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "voltage_v": 3},
+        {"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 0.5, "axis": {"tilt_deg": 90, "azimuth_deg": 30}},
+        {"kind": "rotator", "angle_deg": 10}
+      ]}"#;
+    let r = trace(doc);
+    let labels: Vec<&str> = r["rays"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x["label"].as_str().unwrap())
+        .collect();
+    assert_eq!(labels, ["co", "ce"]);
+    assert!((r["total_power"].as_f64().unwrap() - 1.0).abs() < 1e-12);
+}
+
+/// Bad cells: each error names its field (the page's bad-input table leaves cells out, since the
+/// page's module does not hold them).
+#[test]
+fn bad_cells_name_their_fields() {
+    let custom = |k11: f64, eps_par: f64| {
+        format!(
+            r#"{{"ne": 1.7, "no": 1.5, "k11_pn": {k11}, "k22_pn": 3, "k33_pn": 10, "eps_parallel": {eps_par}, "eps_perpendicular": 7}}"#
+        )
+    };
+    for (extra, field) in [
+        (r#""lc": "mbba9""#.to_string(), "elements[0].lc"),
+        (format!(r#""lc": {}"#, custom(-1.0, 19.0)), "elements[0].lc.k11_pn"),
+        (format!(r#""lc": {}"#, custom(6.0, 5.0)), "elements[0].lc.eps_parallel"),
+        (r#""lc": 5"#.to_string(), "elements[0].lc"),
+        (r#""lc": "5cb", "voltage_v": -1"#.to_string(), "elements[0].voltage_v"),
+        (
+            r#""lc": "5cb", "pretilt_deg": 90"#.to_string(),
+            "elements[0].pretilt_deg",
+        ),
+        (
+            r#""lc": "5cb", "twist_deg": "ninety""#.to_string(),
+            "elements[0].twist_deg",
+        ),
+        (
+            r#""lc": "5cb", "axis": {"tilt_deg": 3}"#.to_string(),
+            "elements[0].axis",
+        ),
+    ] {
+        let doc = format!(r#"{{"version": 2, "elements": [{{"kind": "lc_cell", "thickness_um": 5, {extra}}}]}}"#);
+        let e = Scenario::from_json_str(&doc).unwrap_err();
+        assert_eq!(e.field, field, "{doc}: {}", e.message);
+    }
+    // A cell is solved between isotropic media: cemented or contacted to a crystal it is refused.
+    for contact in [r#""contact": "optical""#, r#""contact": "cement", "cement_index": 1.5"#] {
+        let doc = format!(
+            r#"{{"version": 2, "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 1, "axis": {{"tilt_deg": 45}}}},
+            {{"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", {contact}}}]}}"#
+        );
+        assert_eq!(
+            Scenario::from_json_str(&doc).unwrap_err().field,
+            "elements[1].contact",
+            "{doc}"
+        );
+    }
+    let e =
+        Scenario::from_json_str(r#"{"elements": [{"kind": "lc_cell", "lc": "5cb", "thickness_um": 0}]}"#).unwrap_err();
+    assert_eq!(e.field, "elements[0].thickness_um");
+}
