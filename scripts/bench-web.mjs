@@ -34,7 +34,7 @@ import path from 'node:path';
 import { startServer, launchBrowser, openPage, waitReady, WASM, WWW, ROOT } from '../tests/e2e/support.mjs';
 
 const BUDGET_MEDIAN_MS = 4;
-const BUDGET_WASM_BYTES = 450_000; // see README, "Wasm size"
+const BUDGET_WASM_BYTES = 500_000; // see README, "Wasm size"
 const BUDGET_MC_MS = 200;
 // Page load to first complete render: enforced (exit 1 when over). Measured ≈ 380 ms here; the
 // budget leaves room for a busy CI machine while still catching a page that stalls.

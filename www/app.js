@@ -40,12 +40,17 @@ const ELEMENT_DEFAULTS = {
   retarder: { retardance_waves: 0.25, fast_axis_deg: 0 },
   polarizer: { transmission_axis_deg: 0 },
   rotator: { angle_deg: 45 },
+  lc_cell: { thickness_um: 5, lc: '5cb', rubbing_azimuth_deg: 45, twist_deg: 0, pretilt_deg: 2, voltage_v: 0 },
 };
+// The catalogue of nematics (src/optics/lc/catalogue.rs) and the choice that keeps constants a
+// loaded document gave.
+const NEMATICS = [['5cb', '5CB (4-cyano-4′-pentylbiphenyl)']];
+const CUSTOM_LC = 'custom';
 // The material choice of a crystal given by its three principal indices.
 const CUSTOM_PRINCIPAL = 'custom-principal';
 // The material choice of a crystal given by its own dispersion formula (formula.js).
 const CUSTOM_FORMULA = 'custom-formula';
-const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator' };
+const KIND_NAMES = { crystal: 'crystal plate', retarder: 'retarder', polarizer: 'polarizer', rotator: 'rotator', lc_cell: 'liquid-crystal cell' };
 
 // The page's state, handed to the modules that need it (state.js).
 const state = createState({ darkQuery: window.matchMedia('(prefers-color-scheme: dark)') });
@@ -309,6 +314,15 @@ class Card {
     // Rotator.
     f.angle = new Field({ key: 'angle_deg', label: 'Rotation', unit: '°', slider: ANGLE(-180, 180), hint: 'From e1 toward e2.' });
     this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
+    // Liquid-crystal cell (src/contract/lc_cell.rs).
+    f.cellThickness = new Field({ key: 'thickness_um', label: 'Cell gap', unit: 'µm' });
+    f.lc = new Field({ key: 'lc', label: 'Liquid crystal', kind: 'select', options: [...NEMATICS, [CUSTOM_LC, 'custom constants (as loaded)']] });
+    f.rubbing = new Field({ key: 'rubbing_azimuth_deg', label: 'Rubbing azimuth', unit: '°', slider: ANGLE(-180, 180), hint: 'Director azimuth at the entrance face.' });
+    f.twist = new Field({ key: 'twist_deg', label: 'Twist', unit: '°', slider: ANGLE(-180, 180) });
+    f.pretilt = new Field({ key: 'pretilt_deg', label: 'Pretilt', unit: '°', slider: ANGLE(0, 89) });
+    f.voltage = new Field({ key: 'voltage_v', label: 'Voltage', unit: 'V', slider: { min: 0, max: 10, step: 0.01 }, hint: 'RMS across the cell.' });
+    this.lcCustom = undefined;
+    this.groups.lc_cell = h('div', { className: 'kind-fields' }, f.lc.row, f.cellThickness.row, f.rubbing.row, f.twist.row, f.pretilt.row, f.voltage.row);
 
     // Version 2's geometry (geometry.js).
     this.geometry = new CardGeometry();
@@ -337,6 +351,12 @@ class Card {
     f.fast.set(d.retarder.fast_axis_deg);
     f.transmission.set(d.polarizer.transmission_axis_deg);
     f.angle.set(d.rotator.angle_deg);
+    f.cellThickness.set(d.lc_cell.thickness_um);
+    f.lc.set(d.lc_cell.lc);
+    f.rubbing.set(d.lc_cell.rubbing_azimuth_deg);
+    f.twist.set(d.lc_cell.twist_deg);
+    f.pretilt.set(d.lc_cell.pretilt_deg);
+    f.voltage.set(d.lc_cell.voltage_v);
     this.setKind(kind);
   }
 
@@ -500,6 +520,13 @@ class Card {
       o.transmission_axis_deg = f.transmission.value;
     } else if (kind === 'rotator') {
       o.angle_deg = f.angle.value;
+    } else if (kind === 'lc_cell') {
+      o.thickness_um = f.cellThickness.value;
+      o.lc = f.lc.value === CUSTOM_LC ? (this.lcCustom ?? {}) : f.lc.value;
+      o.rubbing_azimuth_deg = f.rubbing.value;
+      o.twist_deg = f.twist.value;
+      o.pretilt_deg = f.pretilt.value;
+      o.voltage_v = f.voltage.value;
     }
     // An ideal element takes no placement: one it holds (loaded, for the core to name) is sent.
     if (kind !== 'crystal') this.geometry.write(o);
@@ -548,6 +575,16 @@ class Card {
       f.transmission.set(obj.transmission_axis_deg ?? 0);
     } else if (kind === 'rotator') {
       f.angle.set(obj.angle_deg);
+    } else if (kind === 'lc_cell') {
+      const c = d.lc_cell;
+      // Constants given in the document are kept as they are and sent back unchanged.
+      this.lcCustom = obj.lc && typeof obj.lc === 'object' ? obj.lc : undefined;
+      f.lc.set(this.lcCustom !== undefined ? CUSTOM_LC : (obj.lc ?? c.lc));
+      f.cellThickness.set(obj.thickness_um);
+      f.rubbing.set(obj.rubbing_azimuth_deg ?? 0);
+      f.twist.set(obj.twist_deg ?? 0);
+      f.pretilt.set(obj.pretilt_deg ?? c.pretilt_deg);
+      f.voltage.set(obj.voltage_v ?? 0);
     }
     this.geometry.load(obj);
     this.setKind(kind);

@@ -15,7 +15,7 @@ import { h } from './dom.js';
 import { minus } from './format.js';
 import { toFieldError } from './field-error.js';
 
-const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength'];
+const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'retardance-voltage'];
 const VIEW_TITLES = {
   side: 'side view',
   end: 'end view',
@@ -28,6 +28,7 @@ const VIEW_TITLES = {
   'retardance-temperature': 'retardance against temperature plot',
   'separation-temperature': 'separation against temperature plot',
   'transmission-wavelength': 'transmission against wavelength plot',
+  'retardance-voltage': 'retardance against voltage plot',
 };
 const EXPORT_FORMATS = { svg: 'SVG', png: 'PNG', csv: 'CSV', json: 'JSON' };
 

@@ -185,6 +185,12 @@ function buildResults(state, r) {
       title.appendChild(document.createTextNode('rotator'));
       row('rotation', `${p}.angle_deg`, (x) => x.elements[i].angle_deg, fmt.deg);
       row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
+    } else if (e.kind === 'lc_cell') {
+      title.appendChild(document.createTextNode('liquid-crystal cell'));
+      row('retardance', `${p}.retardance_waves`, (x) => x.elements[i].retardance_waves, fmt.waves);
+      row('threshold voltage', `${p}.threshold_voltage_v`, (x) => x.elements[i].threshold_voltage_v, (v) => (v === null || v === undefined ? '—' : `${fixed(v, 4)} V`));
+      row('mid-plane tilt', `${p}.director_profile.tilt_deg`, (x) => { const t = x.elements[i].director_profile.tilt_deg; return t[Math.floor(t.length / 2)]; }, fmt.deg);
+      row('power in', `${p}.power_in`, (x) => x.elements[i].power_in, fmt.power);
     }
     card.insertBefore(title, null);
     card.appendChild(rows);

@@ -216,6 +216,10 @@ export function describeViews(state) {
     texts['retardance-temperature'] = `Retardance against temperature for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(temperature, 1)} °C.`;
     texts['separation-temperature'] = `Separation against temperature for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(temperature, 1)} °C.`;
   }
+  const cell = r.elements.find((e) => e.kind === 'lc_cell');
+  texts['retardance-voltage'] = cell
+    ? `Retardance of the first liquid-crystal cell against voltage: ${num(cell.retardance_waves, 4)} waves at the set voltage; threshold ${num(cell.threshold_voltage_v, 3)} V.`
+    : 'Retardance against voltage: no liquid-crystal cell in the stack; add one with + LC cell.';
   const spectrum = r.spectrum;
   if (!spectrum) {
     texts['transmission-wavelength'] = 'Transmission against wavelength: no spectrum asked for; turn on Spectrum below the stack.';

@@ -17,10 +17,8 @@
 //! input beam's tangential wave vector, which every ray of a plane-parallel stack shares
 //! (`optics::lc::stratified`).
 //!
-//! The page's WebAssembly modules leave cells out: the director solver and the 4×4 transfer
-//! would take them past their size budgets, so there an `lc_cell` is an error on its `kind` that
-//! points to the command line. There a cell cannot even exist ([`Presence`] has no value), so the
-//! compiler drops every cell's code, reading, report and views included, from those modules.
+//! Cells work alike on the command line and in the page (whose WebAssembly module carries the
+//! director solver and the 4×4 transfer: about 29 KB).
 
 use crate::contract::fields::{Fields, ranged};
 use crate::error::Error;
@@ -44,22 +42,6 @@ pub enum LcMaterial {
     Custom(Nematic),
 }
 
-/// Whether cells exist in this build: natively `()`; in the WebAssembly modules a type with no
-/// value, so that no cell can be made there and every branch that handles one is unreachable.
-#[cfg(not(target_arch = "wasm32"))]
-pub type Presence = ();
-/// Whether cells exist in this build (see the native definition).
-#[cfg(target_arch = "wasm32")]
-pub type Presence = std::convert::Infallible;
-
-/// The [`Presence`] value of this build, if it has one.
-fn presence() -> Option<Presence> {
-    #[cfg(not(target_arch = "wasm32"))]
-    return Some(());
-    #[cfg(target_arch = "wasm32")]
-    return None;
-}
-
 /// A liquid-crystal cell as the document gives it.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct LcCell {
@@ -75,8 +57,6 @@ pub struct LcCell {
     pub pretilt_deg: f64,
     /// RMS voltage across the cell, volts.
     pub voltage_v: f64,
-    /// That this build holds cells (private: made only by [`parse`]).
-    present: Presence,
 }
 
 /// A cell's numbers at the scenario's wavelength: what the trace uses and the result reports.
@@ -99,12 +79,6 @@ pub struct SolvedCell {
 /// `lc.k11_pn` and the other constants, `rubbing_azimuth_deg`, `twist_deg`, `pretilt_deg`,
 /// `voltage_v`.
 pub fn parse(f: &mut Fields) -> Result<LcCell, Error> {
-    let Some(present) = presence() else {
-        return Err(Error::new(
-            f.path_of("kind"),
-            "liquid-crystal cells are traced by the command line (doublespar trace); the page leaves them out to stay within its size budget",
-        ));
-    };
     let thickness_um = ranged_above(f, "thickness_um", 1000.0)?;
     let lc_path = f.path_of("lc");
     let lc = match f.get("lc") {
@@ -142,7 +116,6 @@ pub fn parse(f: &mut Fields) -> Result<LcCell, Error> {
         twist_deg: ranged(f, "twist_deg", Some(0.0), -360.0, 360.0)?,
         pretilt_deg: ranged(f, "pretilt_deg", Some(2.0), 0.0, 89.0)?,
         voltage_v: ranged(f, "voltage_v", Some(0.0), 0.0, 1000.0)?,
-        present,
     })
 }
 

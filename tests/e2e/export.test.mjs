@@ -198,7 +198,7 @@ test('the print sheet hides the controls, shows the set-up, results and views, a
         sheet: shown(document.getElementById('print-sheet')),
         sheetText: document.getElementById('print-sheet').textContent,
         safety: shown(document.getElementById('safety')),
-        canvases: [...document.querySelectorAll('figure:not(.view-split):not(.view-temperature):not(.view-spectrum) canvas[data-view]')].map((c) => {
+        canvases: [...document.querySelectorAll('figure:not(.view-split):not(.view-temperature):not(.view-spectrum):not(.view-lc) canvas[data-view]')].map((c) => {
           const r = c.getBoundingClientRect();
           return shown(c) && r.width > 20 && r.height > 20;
         }),
@@ -214,7 +214,7 @@ test('the print sheet hides the controls, shows the set-up, results and views, a
     assert.match(seen.sheetText, /632\.8/, 'the summary gives the wavelength');
     assert.match(seen.sheetText, /calcite/, 'the summary lists the crystal');
     assert.ok(seen.safety, 'the laser-safety caution is shown');
-    assert.deepEqual(seen.canvases, VIEWS.map(() => true), 'every view but the split, temperature and spectrum plots (on screen only) is shown');
+    assert.deepEqual(seen.canvases, VIEWS.map(() => true), 'every view but the split, temperature, spectrum and voltage plots (on screen only) is shown');
 
     // Back to no emulation (an emulated 'screen' would make page.pdf print the screen styles).
     await page.emulateMedia({ media: null });
