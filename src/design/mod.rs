@@ -41,6 +41,7 @@ pub mod displacer;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
+pub mod principal;
 pub mod recombiner;
 pub mod rotator;
 pub mod splitter;

@@ -6,6 +6,7 @@ pub mod anisotropic;
 pub mod beam_overlap;
 pub mod chain;
 pub mod general_modes;
+pub mod general_plate;
 pub mod geometry;
 pub mod interface;
 pub mod jones;
