@@ -375,9 +375,13 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let (slope, curvature_rad) = walkoff_derivatives(ix, tilt.to_radians());
     let deg = std::f64::consts::PI / 180.0;
     let slope_2 = 0.5 * curvature_rad * deg;
+    let ratio = match plane {
+        Some(p) => format!("n_{}/n_{}", AXIS_LETTERS[p.second], AXIS_LETTERS[p.first]),
+        None => "n_e/n_o".to_string(),
+    };
     let cut_note = if slope == 0.0 {
         format!(
-            "cut of maximum walk-off, tan θ = n_e/n_o: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
+            "cut of maximum walk-off, tan θ = {ratio}: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
             crate::numfmt::sig(slope_2, 3)
         )
     } else {
@@ -385,6 +389,14 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             "cut fixed by the request; the maximum-walk-off cut would be {max_cut_deg:.4}° (dρ/dθ = 0 there, here {} °/°)",
             crate::numfmt::sig(slope, 3)
         )
+    };
+    let cut_note = match (plane, req.plane) {
+        (Some(p), None) => format!(
+            "{cut_note}; the {} plane is the principal plane of largest walk-off (\"plane\" chooses another)",
+            p.name()
+        ),
+        (Some(p), Some(_)) => format!("{cut_note}; the {} plane as requested", p.name()),
+        (None, _) => cut_note,
     };
 
     // Band.

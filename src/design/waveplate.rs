@@ -99,7 +99,7 @@ pub struct PlateSpec {
     /// That thickness at the design temperature, mm (grown by α⊥, the axis in the faces).
     pub thickness_at_temperature_mm: f64,
     /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°); for a
-    /// biaxial plate, its element's `axes.azimuth_deg`.
+    /// biaxial plate, the azimuth of its slow in-face principal axis.
     pub axis_azimuth_deg: f64,
 }
 
@@ -218,7 +218,7 @@ pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], cut: PlateCut, t_c: f64
             material: md.key().to_string(),
             thickness_mm: *l,
             thickness_at_temperature_mm: l * growth_along_z(md, &cut.at(*az).axes(), t_c),
-            axis_azimuth_deg: cut.at(*az).azimuth_deg,
+            axis_azimuth_deg: *az,
         })
         .collect()
 }
