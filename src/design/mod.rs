@@ -2,8 +2,8 @@
 //!
 //! | kind | solver | required fields |
 //! |---|---|---|
-//! | `displacer` | [`crate::design::displacer`] | `material` (or `no`, `ne`), `separation_mm` |
-//! | `waveplate` | [`crate::design::waveplate::design`] | `material`, `retardance_waves` |
+//! | `displacer` | [`crate::design::displacer`] | `material` (or `no`, `ne`, or `nx`, `ny`, `nz`), `separation_mm` |
+//! | `waveplate` | [`crate::design::waveplate::design`] | `material` (or `no`, `ne`, or `nx`, `ny`, `nz`), `retardance_waves` |
 //! | `achromat` | [`crate::design::waveplate::achromat`] | `first`, `second`, `retardance_waves`, `wavelengths_nm` |
 //! | `recombiner` | [`crate::design::recombiner`] | `material`, `length_mm` |
 //! | `angular-splitter` | [`crate::design::splitter`] | `material`, `split_angle_deg` |

@@ -91,7 +91,13 @@ fn principal_indices(f: &mut Fields) -> Result<Medium, Error> {
 fn parse_crystal(f: &mut Fields, biaxial: bool) -> Result<Medium, Error> {
     let path = f.path_of("material");
     let dispersion_path = f.path_of("dispersion");
-    if biaxial && (f.has("nx") || f.has("ny") || f.has("nz")) && !f.has("dispersion") {
+    if (f.has("nx") || f.has("ny") || f.has("nz")) && !f.has("dispersion") {
+        if !biaxial {
+            return Err(Error::new(
+                path,
+                "this design takes a uniaxial crystal: give \"material\" or \"no\" and \"ne\", not \"nx\", \"ny\", \"nz\"",
+            ));
+        }
         return principal_indices(f);
     }
     if let Some(d) = f.get("dispersion") {
