@@ -124,14 +124,25 @@ impl Part {
 /// An element's document, a biaxial crystal's orientation always as `axes` (its roll included
 /// when 0, as CONVENTIONS.md "More media" orients principal axes).
 fn part_element_json(e: &Element) -> Value {
-    let mut v = element_json(e);
-    if let ElementKind::Crystal(c) = e.kind
-        && is_principal(&c.medium)
-        && let Some(axis) = v.as_object_mut().and_then(|o| o.remove("axis"))
-    {
-        v["axes"] = json!({"tilt_deg": axis["tilt_deg"], "azimuth_deg": axis["azimuth_deg"], "roll_deg": 0.0});
+    let v = element_json(e);
+    match (e.kind, &v) {
+        (ElementKind::Crystal(c), Value::Object(o)) if is_principal(&c.medium) && c.roll_deg == 0.0 => {
+            // Rebuilt by insertion rather than edited in place: the page's module then carries no
+            // map removal.
+            let mut out = serde_json::Map::new();
+            for (k, x) in o {
+                if k != "axis" {
+                    out.insert(k.clone(), x.clone());
+                }
+            }
+            out.insert(
+                "axes".into(),
+                json!({"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg, "roll_deg": 0.0}),
+            );
+            Value::Object(out)
+        }
+        _ => v,
     }
-    v
 }
 
 impl Serialize for Part {
