@@ -12,7 +12,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { useBrowser, withPage as openAt, close, solveDesign, enterValue } from './support.mjs';
-import { golden, field, fill, expectDesign, expectFieldError, useDesign } from './design-support.mjs';
+import { golden, field, fill, expectDesign, expectFieldError, useDesign, orderSheet } from './design-support.mjs';
 
 const env = useBrowser({ cli: false });
 const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), options);
@@ -45,6 +45,8 @@ test('a KTP waveplate agrees with the command line and, loaded, retards as desig
     await expectDesign(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps'], 'KTP waveplate');
     const headline = await page.textContent('.design-headline');
     assert.ok(headline.includes('y-cut'), headline);
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('y-cut: principal y along the face normal; plate 1 slow axis at 0°'), `the order sheet's cut: ${sheet.Cut}`);
     const sc = await useDesign(page, design, 'KTP waveplate');
     assert.equal(sc.elements[0].material, 'ktp');
     assert.ok(sc.elements[0].axes, `oriented by axes: ${JSON.stringify(sc.elements[0])}`);
@@ -64,6 +66,8 @@ test('an LBO displacer agrees with the command line and, loaded, separates the b
     await solveDesign(page, 90000);
     await expectRequest(page, request, 'LBO displacer');
     await expectDesign(page, design, ['length_mm', 'cut_tilt_deg', 'separation_mm', 'walkoff_deg', 'no', 'ne', 'straight_index', 'group_delay_ps'], 'LBO displacer');
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('principal z at ') && sheet.Cut.includes('in the xz principal plane'), `the order sheet's cut: ${sheet.Cut}`);
     const sc = await useDesign(page, design, 'LBO displacer');
     // The set-up writes a roll of 0 as `axis` (CONVENTIONS.md "More media": the same orientation).
     const axes = sc.elements[0].axes ?? sc.elements[0].axis;
