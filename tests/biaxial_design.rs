@@ -347,6 +347,33 @@ fn every_biaxial_displacer_traced_whole_gives_its_separation() {
 }
 
 #[test]
+fn a_biaxial_formula_beyond_its_range_is_a_warning_on_the_field() {
+    // As for uniaxial crystals (DEVELOPERS.md, "Design requests"): KTP's formula is fitted from
+    // 430 nm (the catalogue's range for Kato and Takaoka 2002).
+    let d = design(r#"{"kind": "waveplate", "material": "ktp", "wavelength_nm": 400, "retardance_waves": 0.25}"#);
+    let warnings: Vec<&str> = d["warnings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(Value::as_str)
+        .collect();
+    assert!(
+        warnings
+            .iter()
+            .any(|w| w.starts_with("wavelength_nm: 400 nm is outside the 430-3540 nm range")),
+        "{warnings:?}"
+    );
+    let d = design(
+        r#"{"kind": "displacer", "material": "lbo", "wavelength_nm": 1064, "band_nm": [1000, 2700], "separation_mm": 1, "samples": 0}"#,
+    );
+    assert!(
+        d["warnings"].to_string().contains("band_nm[1]: 2700 nm is outside"),
+        "{}",
+        d["warnings"]
+    );
+}
+
+#[test]
 fn bad_biaxial_requests_name_their_field() {
     for (doc, field, words) in [
         (
