@@ -105,3 +105,25 @@ test('the kinds that stay uniaxial do not offer the biaxial crystals', { timeout
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok(!(await shown()).includes(k), `the polarizer hides ${k}`);
   });
 });
+
+test('a link carries a biaxial design\'s crystal and its cut or plane', { timeout: 120000 }, async () => {
+  for (const [kind, entries, select] of [
+    ['waveplate', [['material', 'principal'], ['nx', 1.5], ['ny', 1.52], ['nz', 1.6], ['cut', 'z'], ['retardance_waves', 0.25]], 'cut'],
+    ['displacer', [['material', 'bibo'], ['plane', 'yz'], ['separation_mm', 2], ['samples', 0]], 'plane'],
+  ]) {
+    let link = '';
+    let said = null;
+    await withPage(async (page) => {
+      await fill(page, kind, entries);
+      // The address follows the fields (the history writes it after a pause).
+      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+      link = await page.evaluate(() => location.hash);
+      said = await page.evaluate(() => window.doublespar.designRequest());
+    });
+    await openAt(env, `/${link}`, async ({ page }) => {
+      assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), said, `${kind}: the link gives the same request`);
+      assert.ok(await page.locator(field(select)).isVisible(), `${kind}: the ${select} is shown`);
+      await solveDesign(page);
+    });
+  }
+});
