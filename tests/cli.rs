@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 24] = [
+const FLAG_CASES: [FlagCase; 26] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -366,6 +366,10 @@ const FLAG_CASES: [FlagCase; 24] = [
         json: r#"{"kind": "displacer", "no": 1.6, "ne": 1.5, "separation_mm": 1, "samples": 0}"#,
     },
     FlagCase {
+        flags: "displacer --nx 1.6 --ny 1.65 --nz 1.8 --plane yz --separation-mm 1 --samples 0",
+        json: r#"{"kind": "displacer", "nx": 1.6, "ny": 1.65, "nz": 1.8, "plane": "yz", "separation_mm": 1, "samples": 0}"#,
+    },
+    FlagCase {
         flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02 --temperature-c -10",
         json: r#"{"kind": "waveplate", "material": "QUARTZ", "wavelength_nm": 1064, "retardance_waves": 0.25,
                  "order": "multiple", "order_number": 3, "band_nm": [1000, 1100], "max_incidence_deg": 5,
@@ -374,6 +378,10 @@ const FLAG_CASES: [FlagCase; 24] = [
     FlagCase {
         flags: "waveplate --no 1.5 --ne 1.51 --retardance-waves 0.5 --order compound --base-mm 0.5",
         json: r#"{"kind": "waveplate", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "order": "compound", "base_mm": 0.5}"#,
+    },
+    FlagCase {
+        flags: "waveplate --nx 1.5 --ny 1.52 --nz 1.6 --cut z --retardance-waves 0.25",
+        json: r#"{"kind": "waveplate", "nx": 1.5, "ny": 1.52, "nz": 1.6, "cut": "z", "retardance_waves": 0.25}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40",
@@ -668,6 +676,8 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "filter-mgf2-stage-doubling",
         "filter-calcite-folded",
         "broadband-quartz-half",
+        "waveplate-ktp-half",
+        "displacer-lbo-xz",
     ] {
         let out = bin()
             .arg("design")

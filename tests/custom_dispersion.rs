@@ -389,11 +389,15 @@ fn a_design_request_takes_the_crystals_own_formulas() {
     // The part it hands on carries the formulas, and no catalogue source is claimed.
     assert!(by_formula["scenario"]["elements"][0]["dispersion"].is_object());
     assert_eq!(by_formula["sources"], json!([]));
-    // x, y, z formulas are a biaxial crystal, which this design does not take; both forms at once
-    // are refused; each error names the field.
+    // x, y, z formulas are a biaxial crystal, which a polarizing prism does not take (a displacer
+    // does, cut in a principal plane: tests/biaxial_design.rs); both forms at once are refused;
+    // each error names the field.
     let xyz = json!({"range_nm": [400, 1000], "x": {"a": 2.2}, "y": {"a": 2.3}, "z": {"a": 2.4}});
-    let e = doublespar::solve_design(&json!({"kind": "displacer", "dispersion": xyz, "separation_mm": 1})).unwrap_err();
+    let e = doublespar::solve_design(&json!({"kind": "prism-polarizer", "dispersion": xyz})).unwrap_err();
     assert_eq!(e.field, "dispersion");
+    let biaxial =
+        doublespar::solve_design(&json!({"kind": "displacer", "dispersion": xyz, "separation_mm": 1, "samples": 0}));
+    assert_eq!(biaxial.map(|d| d["plane"].clone()).ok(), Some(json!("xz")));
     let e = doublespar::solve_design(
         &json!({"kind": "displacer", "dispersion": formulas, "material": "calcite", "separation_mm": 1}),
     )

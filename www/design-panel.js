@@ -78,12 +78,19 @@ function setGroupHint(box, text) {
   if (box.hintEl.hidden !== !text) box.hintEl.hidden = !text;
 }
 
+// The kinds whose solver takes a biaxial crystal (src/contract/request/principal.rs): a
+// waveplate cut along a principal axis, a displacer cut in a principal plane. The other kinds'
+// lists hide the biaxial crystals (a chosen one stays, and the core names the field).
+const BIAXIAL_KINDS = new Set(['waveplate', 'displacer']);
+const isBiaxial = (state, key) => key === 'principal' || state.materialList.some((m) => m.key === key && m.kind === 'biaxial');
+
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
 function mediumFields(state, prefix, fallback, whose) {
   // The page's name of each material, which marks a formula without a journal source
   // ("unverified data").
   const options = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
   options.push(['custom', 'custom indices']);
+  if (!prefix) options.push(['principal', 'custom principal indices (biaxial)']);
   const of = whose ? ` of the ${whose}` : '';
   const material = addField(state, `${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
   const key = state.materialList.some((m) => m.key === fallback) ? fallback : (state.materialList[0]?.key ?? 'custom');
@@ -91,7 +98,12 @@ function mediumFields(state, prefix, fallback, whose) {
   const no = addField(state, `${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
   const ne = addField(state, `${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
-  return { material, custom, nodes: [material.row, custom] };
+  if (prefix) return { material, custom, nodes: [material.row, custom] };
+  // A biaxial crystal by its three principal indices (n_x < n_y < n_z by convention, not required).
+  const start = { nx: 1.74, ny: 1.75, nz: 1.83 };
+  const principal = h('div', { className: 'subgroup custom-indices' }, ...['nx', 'ny', 'nz'].map((k) =>
+    addField(state, k, { label: `n${k[1]}, principal index`, spoken: `Principal index n ${k[1]} of the part`, value: start[k], step: 0.001 }).row));
+  return { material, custom, principal, nodes: [material.row, custom, principal] };
 }
 
 function buildDesignFields(state) {
@@ -113,6 +125,16 @@ function buildDesignFields(state) {
   ], { pair: true });
   const separation = addField(state, 'separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
   const beam = addField(state, 'beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
+  const principalCut = addField(state, 'cut', {
+    label: 'Principal axis along the beam', spoken: 'Cut of the biaxial plate', kind: 'select',
+    options: [['', 'largest birefringence'], ['x', 'x'], ['y', 'y'], ['z', 'z']],
+    hint: 'The plate\'s faces are normal to this principal axis; its slower in-face axis lies at azimuth 0.',
+  });
+  const plane = addField(state, 'plane', {
+    label: 'Principal plane', spoken: 'Principal plane of the displacer', kind: 'select',
+    options: [['', 'largest walk-off'], ['xy', 'x y'], ['xz', 'x z'], ['yz', 'y z']],
+    hint: 'The plane that holds the face normal; the cut tilt is measured from its second axis.',
+  });
   const cut = addField(state, 'cut_tilt_deg', { label: 'Cut tilt', spoken: 'Cut tilt of the part', unit: '°', placeholder: 'auto' });
   const aperture = addField(state, 'aperture_factor', {
     label: 'Aperture factor',
@@ -200,8 +222,8 @@ function buildDesignFields(state) {
 
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
-  state.design.layout.displacer = [...medium.nodes, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
-  state.design.layout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, wl.row, retardance.row, band, maxInc.row, accErr.row];
+  state.design.layout.displacer = [...medium.nodes, plane.row, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
+  state.design.layout.waveplate = [order.row, orderNumber.row, base.row, ...medium.nodes, principalCut.row, wl.row, retardance.row, band, maxInc.row, accErr.row];
   state.design.layout.achromat = [firstBox, secondBox, retardance.row, wavelengths, band];
   state.design.layout.recombiner = [...medium.nodes, wl.row, length.row, cut.row, beam.row, middle.row, rotator.row, lengthMis.row, tiltMis.row];
   state.design.layout['angular-splitter'] = [...medium.nodes, wl.row, split.row, clear.row, cement.row, band, tolerances, samples.row, seed.row];
@@ -239,6 +261,7 @@ function buildDesignFields(state) {
   state.design.bandBox = band;
   state.design.tolBox = tolerances;
   state.design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
+  state.design.principalBox = medium.principal;
 }
 
 /** Shows the fields of the chosen kind, in its order, and the ones its selects call for. */
@@ -279,6 +302,20 @@ function layoutDesignFields(state) {
     const unverified = state.materialList.some((m) => m.key === key && m.verified === false);
     state.design.fields[`${prefix}material`].setHint(unverified ? 'Unverified data: its dispersion formula has no journal source.' : null);
   }
+  // Biaxial crystals where the kind takes them, with the cut or plane that orients them.
+  const mainKey = state.design.fields.material.value;
+  for (const [prefix] of state.design.mediumBoxes) {
+    const select = state.design.fields[`${prefix}material`].input;
+    const takes = !prefix && BIAXIAL_KINDS.has(kind);
+    for (const o of select.options) {
+      const hide = !takes && isBiaxial(state, o.value) && o.value !== select.value;
+      if (o.hidden !== hide) o.hidden = hide;
+    }
+  }
+  const biaxial = isBiaxial(state, mainKey);
+  if (state.design.principalBox.hidden !== (mainKey !== 'principal')) state.design.principalBox.hidden = mainKey !== 'principal';
+  state.design.fields.cut.row.hidden = !(biaxial && kind === 'waveplate');
+  state.design.fields.plane.row.hidden = !(biaxial && kind === 'displacer');
   const order = state.design.fields.order.value;
   const byOrder = state.design.fields.size.value === 'order';
   state.design.fields.order_number.row.hidden = kind === 'tilt-tuning' ? !byOrder : order !== 'multiple';
@@ -299,8 +336,8 @@ function designRequest(state) {
   const medium = (prefix) => {
     const out = {};
     const m = state.design.fields[`${prefix}material`].value;
-    if (m === 'custom') {
-      for (const k of ['no', 'ne']) {
+    if (m === 'custom' || m === 'principal') {
+      for (const k of m === 'custom' ? ['no', 'ne'] : ['nx', 'ny', 'nz']) {
         const f = state.design.fields[`${prefix}${k}`];
         if (!f.blank) out[k] = f.value;
       }
@@ -334,6 +371,7 @@ function designRequest(state) {
     put('beam_diameter_mm');
     put('cut_tilt_deg');
     put('aperture_factor');
+    if (!state.design.fields.plane.row.hidden && state.design.fields.plane.value) put('plane');
     tolerances();
   } else if (kind === 'angular-splitter') {
     Object.assign(req, medium(''));
@@ -372,6 +410,7 @@ function designRequest(state) {
     put('max_incidence_deg');
   } else if (kind === 'waveplate') {
     Object.assign(req, medium(''));
+    if (!state.design.fields.cut.row.hidden && state.design.fields.cut.value) put('cut');
     put('wavelength_nm');
     put('retardance_waves');
     req.order = state.design.fields.order.value;
@@ -771,9 +810,9 @@ function setDesignInputs(state, req) {
     } else if (typeof v === 'number' && Number.isFinite(v)) {
       f.input.value = String(v);
       f.touched = true;
-      const m = /^(.*?)(no|ne)$/.exec(path);
+      const m = /^(.*?)(no|ne|nx|ny|nz)$/.exec(path);
       if (m && state.design.fields[`${m[1]}material`] && !leaves.some(([p]) => p === `${m[1]}material`)) {
-        state.design.fields[`${m[1]}material`].input.value = 'custom';
+        state.design.fields[`${m[1]}material`].input.value = ['no', 'ne'].includes(m[2]) ? 'custom' : 'principal';
         state.design.fields[`${m[1]}material`].touched = true;
       }
     } else {

@@ -169,10 +169,18 @@ export function displacerResults(state, d, run) {
     dq(d, 'length_mm', formats.length, 'strong'),
     ' long, cut at ',
     dq(d, 'cut_tilt_deg', formats.deg, 'strong'),
-    ' (optic axis from the face normal), with a clear aperture of at least ',
+    // A biaxial plate is cut in a principal plane, from the plane's second axis.
+    d.plane ? ` (principal ${d.plane[1]} from the face normal, in the ${d.plane} plane), with a clear aperture of at least ` : ' (optic axis from the face normal), with a clear aperture of at least ',
     dq(d, 'clear_aperture_mm', formats.length, 'strong'),
     '.',
   );
+  // A biaxial plate's in-plane index ellipse stands where a uniaxial one's nₒ and nₑ do.
+  const biaxialRows = d.plane ? [
+    ['principal plane', 'plane', formats.text],
+    [`n${d.plane[0]} (in the plane)`, 'no', formats.index],
+    [`n${d.plane[1]} (in the plane)`, 'ne', formats.index],
+    ['index of the straight mode', 'straight_index', formats.index],
+  ] : [['nₒ', 'no', formats.index], ['nₑ', 'ne', formats.index]];
   const cards = [
     resultCard(d, 'What to order', [
       ['material', 'material', (v) => designMaterialName(state, v)],
@@ -193,8 +201,7 @@ export function displacerResults(state, d, run) {
     ]),
     resultCard(d, 'Crystal', [
       ['wavelength', 'wavelength_nm', formats.nm],
-      ['nₒ', 'no', formats.index],
-      ['nₑ', 'ne', formats.index],
+      ...biaxialRows,
       ['cut of largest walk-off', 'max_walkoff_cut_deg', formats.deg],
       ['dρ/dθ at the cut', 'walkoff_slope', formats.sig('°/°', 3)],
     ]),
@@ -253,13 +260,21 @@ export function waveplateResults(state, d) {
   const plates = d.plates;
   const mat = designMaterialName(state, plates[0].material);
   const headline = h('p', { className: 'design-headline' });
+  // A biaxial plate is cut along a principal axis, its slow in-face axis at the plate's azimuth.
+  const cut = d.cut ? `${d.cut}-cut (light along principal ${d.cut})` : null;
   if (plates.length === 1) {
-    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' thick, optic axis in the face',
+    headline.append(`One ${mat} plate `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), cut ? ` thick, ${cut}` : ' thick, optic axis in the face',
       d.order === 'multiple' ? `, order ${d.order_number}` : ', zero order', '.');
   } else {
     headline.append(`Two ${mat} plates, `, dq(d, 'plates.0.thickness_mm', formats.length, 'strong'), ' and ',
-      dq(d, 'plates.1.thickness_mm', formats.length, 'strong'), ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
+      dq(d, 'plates.1.thickness_mm', formats.length, 'strong'), cut ? ` thick, ${cut}, slow axes crossed: a compound zero-order plate.` : ' thick, optic axes in the faces and crossed: a compound zero-order plate.');
   }
+  const indexRows = d.cut ? [
+    ['cut', 'cut', formats.text],
+    ['n of the fast axis', 'no', formats.index],
+    ['n of the slow axis', 'ne', formats.index],
+    ['n slow − n fast', 'birefringence', formats.sig('', 6)],
+  ] : [['nₒ', 'no', formats.index], ['nₑ', 'ne', formats.index], ['nₑ − nₒ', 'birefringence', formats.sig('', 6)]];
   const plateRows = [];
   plates.forEach((p, i) => {
     const n = plates.length > 1 ? ` ${i + 1}` : '';
@@ -275,15 +290,13 @@ export function waveplateResults(state, d) {
       ['net retarding thickness', 'effective_thickness_mm', formats.length],
       ['order', 'order', formats.text],
       ['order number', 'order_number', formats.count],
-    ], { className: 'design-main', note: 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
+    ], { className: 'design-main', note: d.cut ? dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' }) : 'Optic axis in the face (tilt 90°); azimuths from e1 toward e2.' }),
     resultCard(d, 'Retardance', [
       ['at the design wavelength', 'retardance_waves', formats.waves],
       ['fast axis', 'fast_axis', formats.text],
-      ['nₒ', 'no', formats.index],
-      ['nₑ', 'ne', formats.index],
-      ['nₑ − nₒ', 'birefringence', formats.sig('', 6)],
-      ['group delay, axis pulse after across', 'group_delay_ps', formats.delay],
-    ], { note: 'Signed: positive when the optic axis is the slow axis; the group delay likewise, for the pulse polarized along it.' }),
+      ...indexRows,
+      [d.cut ? 'group delay, slow pulse after fast' : 'group delay, axis pulse after across', 'group_delay_ps', formats.delay],
+    ], { note: d.cut ? 'The slow axis lies at the plate\'s azimuth; the group delay is of the pulse polarized along it.' : 'Signed: positive when the optic axis is the slow axis; the group delay likewise, for the pulse polarized along it.' }),
     resultCard(d, 'Angle of incidence', [
       ['acceptance (worst plane)', 'acceptance_deg', formats.angle],
       ...d.angular.map((a, i) => [`plane at ${trimmed(a.plane_azimuth_deg, 2)}° to the axis`, `angular.${i}.acceptance_deg`, formats.angle]),

@@ -351,7 +351,10 @@ function orderRows(shown, materialList) {
     const t = d.tolerances ?? {};
     rows.push(...materialRows(d.material, 'Material', materialList));
     rows.push(['Dimensions', `length ${mm(d.length_mm)} ± ${mm(t.thickness_mm, 3)} along the beam (the tolerance as one standard deviation)`]);
-    rows.push(['Cut', `optic axis at ${deg(d.cut_tilt_deg)} ± ${deg(t.tilt_deg, 3)} to the face normal, in the plane that holds the displacement (e-ray toward ${d.displacement_direction})`]);
+    rows.push(['Cut', d.plane
+      // A biaxial plate: the plane's second principal axis stands where a uniaxial optic axis does.
+      ? `principal ${d.plane[1]} at ${deg(d.cut_tilt_deg)} ± ${deg(t.tilt_deg, 3)} to the face normal, in the ${d.plane} principal plane, which holds the displacement (in-plane ray toward ${d.displacement_direction})`
+      : `optic axis at ${deg(d.cut_tilt_deg)} ± ${deg(t.tilt_deg, 3)} to the face normal, in the plane that holds the displacement (e-ray toward ${d.displacement_direction})`]);
     rows.push(['Clear aperture', `at least ${mm(d.clear_aperture_mm)} (round), both faces`]);
     rows.push(['Wavelength band', bandText(d.band?.curve, d.wavelength_nm)]);
     rows.push(['Performance', `o/e separation ${mm(d.separation_mm)} at ${nm(d.wavelength_nm)}, e walk-off ${deg(d.walkoff_deg)}`]);
@@ -370,7 +373,9 @@ function orderRows(shown, materialList) {
     const tolText = tol === null ? 'tolerance not computed for this part: check the retardance curve'
       : `± ${mm(tol, 2)}${plates.length > 1 ? ' on the difference of the two' : ''} (moves the retardance by ${sheetNumber(err, 2)} waves)`;
     rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)} thick`).join('; ')}; ${tolText}`]);
-    rows.push(['Cut', `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`]);
+    rows.push(['Cut', d.cut
+      ? `${d.cut}-cut: principal ${d.cut} along the face normal; ${plates.map((p, i) => `plate ${i + 1} slow axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`
+      : `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`]);
     rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
     rows.push(['Wavelength band', bandText(d.wavelength_curve, wl)]);
     if (d.kind === 'waveplate') {

@@ -24,7 +24,7 @@ use crate::contract::request::{AthermalRequest, TEMPERATURE_RANGE_C};
 use crate::contract::scenario::Medium;
 use crate::design::part::{Part, crystal};
 use crate::design::waveplate::{
-    PlateSpec, TemperatureSensitivity, plate_specs, stack_retardance_at, temperature_sensitivity,
+    PlateCut, PlateSpec, TemperatureSensitivity, plate_specs, stack_retardance_at, temperature_sensitivity,
 };
 use crate::error::Error;
 use crate::precision::{SINGULAR_DETERMINANT, TEMPERATURE_STEP_K};
@@ -80,7 +80,7 @@ pub struct AthermalDesign {
 
 /// Waves per millimetre at `t` °C of a plate of `m` with its axis along x.
 fn per_mm(m: &Medium, nm: f64, t: f64) -> Option<f64> {
-    stack_retardance_at(&[(*m, 1.0, 0.0)], nm, [0.0, 0.0], t).map(|g| g / TAU)
+    stack_retardance_at(&[(*m, 1.0, 0.0)], PlateCut::Axis, nm, [0.0, 0.0], t).map(|g| g / TAU)
 }
 
 /// (g, g′) of `m` at `t0` °C, or an error on `field`.
@@ -130,7 +130,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
         (l1, l2) = (-l1, -l2);
     }
     let plates: Vec<(Medium, f64, f64)> = vec![(req.a, l1, 0.0), (req.b, l2.abs(), if l2 < 0.0 { 90.0 } else { 0.0 })];
-    let at = |t: f64| stack_retardance_at(&plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
+    let at = |t: f64| stack_retardance_at(&plates, PlateCut::Axis, nm, [0.0, 0.0], t).map(|g| g / TAU);
     let no_value = || {
         Error::new(
             "second.material",
@@ -140,7 +140,8 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     let g0 = at(t0).ok_or_else(no_value)?;
     let k = CURVATURE_STEP_K;
     let curvature = (at(t0 + k).ok_or_else(no_value)? + at(t0 - k).ok_or_else(no_value)? - 2.0 * g0) / (k * k);
-    let temperature = temperature_sensitivity(&plates, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?;
+    let temperature =
+        temperature_sensitivity(&plates, PlateCut::Axis, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?;
     let (c0, c1) = (
         CURVE_C.0.min(t0 - CURVE_REACH_K).max(TEMPERATURE_RANGE_C.0),
         CURVE_C.1.max(t0 + CURVE_REACH_K).min(TEMPERATURE_RANGE_C.1),
@@ -155,7 +156,8 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     let single_plate = SinglePlate {
         material: req.a.key().to_string(),
         thickness_mm: (f / g1).abs(),
-        temperature: temperature_sensitivity(&alone, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?,
+        temperature: temperature_sensitivity(&alone, PlateCut::Axis, (nm, t0), req.acceptance_error_waves)
+            .ok_or_else(no_value)?,
     };
     let elements = plates
         .iter()
@@ -164,7 +166,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     Ok(AthermalDesign {
         wavelength_nm: nm,
         acceptance_error_waves: req.acceptance_error_waves,
-        plates: plate_specs(&plates, t0),
+        plates: plate_specs(&plates, PlateCut::Axis, t0),
         retardance_waves: g0,
         temperature,
         curvature_waves_per_k2: curvature,

@@ -14,20 +14,31 @@
 //! aperture is s + f·D for an aperture factor f (default 2, common practice: a circular stop of
 //! radius f·D/2 around each beam clips exp(−2f²) of its power, 3.4·10⁻⁴ at f = 2).
 //!
+//! Biaxial crystals: a plate cut in a principal plane (`plane`, [`crate::design::principal`])
+//! has its mode polarized normal to the plane going straight (index n_c whatever the cut) and its
+//! in-plane mode walking off exactly as the e-wave above with n_o = n_a, n_e = n_b (the plane's
+//! first and second principal indices) and θ measured from b; so the cut, the walk-off and their
+//! derivatives are the formulas above with those two indices, and the exact plate model is the
+//! general mode solver's ([`crate::optics::general_plate`]), the crystal oriented by `axes`. The
+//! answer's `no` and `ne` are then n_a and n_b, and `straight_index` is n_c.
+//!
 //! Tolerances: the separation's sensitivity to cut tilt, to incidence angle (in the walk-off
 //! plane), to length and to wavelength is the central difference of the exact plate model of
 //! [`crate::optics::plate`]; a Monte Carlo run draws all four errors from normal distributions of the
 //! given standard deviations and traces each sample exactly.
 
-use crate::contract::request::{DisplacerRequest, Tolerances};
+use crate::contract::request::principal::{AXIS_LETTERS, is_principal};
+use crate::contract::request::{DisplacerRequest, PrincipalPlane, Tolerances};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
-use crate::design::part::{Part, crystal};
+use crate::design::part::{Part, crystal, oriented_crystal};
+use crate::design::principal::{plane_indices, plane_orientation, widest_plane};
 use crate::design::statistics::{Summary, summarize};
-use crate::design::thermal::{Temperature, growth, indices_at};
+use crate::design::thermal::{Temperature, growth, growth_along_z, indices_at, principal_at};
 use crate::error::Error;
+use crate::optics::general_plate::general_plate_optics;
 use crate::optics::material::Indices;
-use crate::optics::plate::{plate_optics, tangential};
+use crate::optics::plate::{PlateOptics, plate_optics, tangential};
 use crate::optics::uniaxial::{max_walkoff_cut, walkoff};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{DIFF_STEP_INCIDENCE_DEG, DIFF_STEP_WAVELENGTH_NM, NO_BIREFRINGENCE, NO_WALKOFF_RAD};
@@ -72,6 +83,18 @@ pub struct Sensitivities {
 pub struct DisplacerDesign {
     /// Catalogue key or "custom".
     pub material: String,
+    /// For a biaxial crystal, the principal plane that holds the plate normal (`xy`, `xz` or
+    /// `yz`); `no` and `ne` are then its first and second axis's principal indices, the in-plane
+    /// mode's index ellipse, and the cut is measured from the second axis.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub plane: Option<String>,
+    /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub principal_indices: Option<[f64; 3]>,
+    /// For a biaxial crystal, the index of the mode polarized normal to the plane, which goes
+    /// straight.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub straight_index: Option<f64>,
     /// Indices at the design wavelength.
     pub no: f64,
     /// Extraordinary principal index.
@@ -98,7 +121,8 @@ pub struct DisplacerDesign {
     pub length_at_temperature_mm: f64,
     /// The separation the exact trace gives for that length, mm.
     pub separation_mm: f64,
-    /// Direction of the e-ray's displacement for an optic axis at azimuth 0: "+x" or "-x".
+    /// Direction of the e-ray's displacement for an optic axis at azimuth 0: "+x" or "-x" (for a
+    /// biaxial plate, the in-plane mode's, the plane's second axis tilted toward +x).
     pub displacement_direction: String,
     /// Separation over the band (the design wavelength alone if no band is given).
     pub band: BandSeparation,
@@ -110,7 +134,8 @@ pub struct DisplacerDesign {
     pub clearance_ratio: f64,
     /// Power overlap of the two output beams, exp(−s²/w²).
     pub crosstalk: f64,
-    /// o–e phase at the exit, k0 (q_z,e − q_z,o) L, radians.
+    /// o–e phase at the exit, k0 (q_z,e − q_z,o) L, radians (for a biaxial plate s–f,
+    /// k0 (q_z,s − q_z,f) L).
     pub exit_phase_rad: f64,
     /// The same reduced to (−π, π].
     pub exit_phase_mod_2pi_rad: f64,
@@ -144,11 +169,13 @@ pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, 
     let n = req.samples.saturating_sub(start).min(MC_CHUNK);
     let mut rng = Rng::new(req.seed.wrapping_mul(0x0100_0000_01B3).wrapping_add(chunk as u64));
     let (t, nm) = (req.tolerances, req.wavelength.nm());
+    let plane = plane_of(req).ok().flatten();
     (0..n)
         .filter_map(|_| {
             let (a, b, c, d) = (rng.normal(), rng.normal(), rng.normal(), rng.normal());
             separation(
                 &req.medium,
+                plane,
                 req.temperature_c,
                 tilt_deg + t.tilt_deg * a,
                 t.incidence_deg * b,
@@ -162,12 +189,61 @@ pub fn monte_carlo_chunk(req: &DisplacerRequest, tilt_deg: f64, length_mm: f64, 
 /// Separation (mm) of a plate made `l` mm long at 20 °C, working at `t_c` °C (its indices there,
 /// its length grown along z), at normal-incidence-plus-errors: the model the tolerances and the
 /// temperature sensitivity perturb.
-fn separation(medium: &Medium, t_c: f64, tilt_deg: f64, polar_deg: f64, l: f64, nm: f64) -> Option<f64> {
+fn separation(
+    medium: &Medium,
+    plane: Option<PrincipalPlane>,
+    t_c: f64,
+    tilt_deg: f64,
+    polar_deg: f64,
+    l: f64,
+    nm: f64,
+) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
-    let ix = indices_at(medium, wl, t_c).ok()?;
-    let axis = axis_from_degrees(tilt_deg, 0.0).ok()?;
-    let l = l * growth(medium, tilt_deg, 0.0, t_c);
-    plate_optics(ix, axis, l, wl, tangential(1.0, polar_deg.to_radians(), 0.0)).map(|p| p.separation_mm)
+    let qt = tangential(1.0, polar_deg.to_radians(), 0.0);
+    match plane {
+        None => {
+            let ix = indices_at(medium, wl, t_c).ok()?;
+            let axis = axis_from_degrees(tilt_deg, 0.0).ok()?;
+            let l = l * growth(medium, tilt_deg, 0.0, t_c);
+            plate_optics(ix, axis, l, wl, qt).map(|p| p.separation_mm)
+        }
+        Some(p) => principal_plate(medium, p, t_c, tilt_deg, l, wl, qt).map(|p| p.separation_mm),
+    }
+}
+
+/// The exact optics of a plate made `l` mm long at 20 °C in principal plane `plane`, cut at
+/// `tilt_deg`, working at `t_c` °C.
+fn principal_plate(
+    medium: &Medium,
+    plane: PrincipalPlane,
+    t_c: f64,
+    tilt_deg: f64,
+    l: f64,
+    wl: Wavelength,
+    qt: [f64; 2],
+) -> Option<PlateOptics> {
+    let o = plane_orientation(plane, tilt_deg);
+    let crystal = o.crystal(principal_at(medium, wl, t_c).ok()?).ok()?;
+    general_plate_optics(&crystal, l * growth_along_z(medium, &o.axes(), t_c), wl, qt)
+}
+
+/// A request's principal plane: the one it names, or the plane of largest walk-off at the design
+/// wavelength and temperature; `None` for a uniaxial crystal.
+///
+/// # Errors
+/// As [`principal_at`].
+pub fn plane_of(req: &DisplacerRequest) -> Result<Option<PrincipalPlane>, Error> {
+    if !is_principal(&req.medium) {
+        return Ok(None);
+    }
+    if req.plane.is_some() {
+        return Ok(req.plane);
+    }
+    Ok(Some(widest_plane(principal_at(
+        &req.medium,
+        req.wavelength,
+        req.temperature_c,
+    )?)))
 }
 
 /// d²(tan ρ)/dθ² for the walk-off of [`walkoff`] at normal incidence.
@@ -230,12 +306,31 @@ fn central(f: impl Fn(f64) -> Option<f64>, x: f64, h: f64) -> Option<f64> {
 /// no walk-off; `separation_mm` when the model cannot be evaluated around the design.
 pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let t_c = req.temperature_c;
-    let ix = indices_at(&req.medium, req.wavelength, t_c)?;
+    let plane = plane_of(req)?;
+    let principal = match plane {
+        Some(_) => Some(principal_at(&req.medium, req.wavelength, t_c)?),
+        None => None,
+    };
+    let ix = match (plane, principal) {
+        (Some(p), Some(n)) => plane_indices(p, n)?,
+        _ => indices_at(&req.medium, req.wavelength, t_c)?,
+    };
     if (ix.no - ix.ne).abs() < NO_BIREFRINGENCE {
-        return Err(Error::new(
-            "material",
-            "n_o equals n_e: this crystal has no walk-off to displace a beam with",
-        ));
+        return Err(match plane {
+            Some(p) => Error::new(
+                "plane",
+                format!(
+                    "n_{} equals n_{}: the {} plane has no walk-off; choose another plane",
+                    AXIS_LETTERS[p.first],
+                    AXIS_LETTERS[p.second],
+                    p.name()
+                ),
+            ),
+            None => Error::new(
+                "material",
+                "n_o equals n_e: this crystal has no walk-off to displace a beam with",
+            ),
+        });
     }
     let (theta_m, _) = max_walkoff_cut(ix);
     let max_cut_deg = theta_m.to_degrees();
@@ -251,21 +346,42 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     }
     // The length the separation needs at the working temperature, and the length to make at 20 °C.
     let length_at_temperature_mm = req.separation_mm / rho.tan().abs();
-    let grown = growth(&req.medium, tilt, 0.0, t_c);
+    let grown = match plane {
+        Some(p) => growth_along_z(&req.medium, &plane_orientation(p, tilt).axes(), t_c),
+        None => growth(&req.medium, tilt, 0.0, t_c),
+    };
     let length_mm = length_at_temperature_mm / grown;
     let nm = req.wavelength.nm();
-    let optics = axis_from_degrees(tilt, 0.0)
-        .ok()
-        .and_then(|axis| plate_optics(ix, axis, length_at_temperature_mm, req.wavelength, [0.0, 0.0]))
-        .ok_or_else(|| Error::new("separation_mm", "the plate model cannot be evaluated at the design"))?;
+    let optics = match plane {
+        Some(p) => principal_plate(&req.medium, p, t_c, tilt, length_mm, req.wavelength, [0.0, 0.0]),
+        None => axis_from_degrees(tilt, 0.0)
+            .ok()
+            .and_then(|axis| plate_optics(ix, axis, length_at_temperature_mm, req.wavelength, [0.0, 0.0])),
+    }
+    .ok_or_else(|| Error::new("separation_mm", "the plate model cannot be evaluated at the design"))?;
+    // The walking mode's displacement: e minus o, or for a biaxial plate the in-plane mode's,
+    // which is the first (fast) one when its index is below the straight mode's.
+    let (walking_sign, straight_index) = match (plane, principal) {
+        (Some(p), Some(n)) => {
+            let (s, c) = tilt.to_radians().sin_cos();
+            let in_plane = 1.0 / (c * c / (ix.no * ix.no) + s * s / (ix.ne * ix.ne)).sqrt();
+            let straight = n[p.normal()];
+            (if in_plane < straight { -1.0 } else { 1.0 }, Some(straight))
+        }
+        _ => (1.0, None),
+    };
     // d|ρ|/dθ is dimensionless (rad/rad = °/°); the second derivative per degree² is the one per
     // radian² times π/180 (ρ in degrees: × 180/π; θ in degrees: × (π/180)²).
     let (slope, curvature_rad) = walkoff_derivatives(ix, tilt.to_radians());
     let deg = std::f64::consts::PI / 180.0;
     let slope_2 = 0.5 * curvature_rad * deg;
+    let ratio = match plane {
+        Some(p) => format!("n_{}/n_{}", AXIS_LETTERS[p.second], AXIS_LETTERS[p.first]),
+        None => "n_e/n_o".to_string(),
+    };
     let cut_note = if slope == 0.0 {
         format!(
-            "cut of maximum walk-off, tan θ = n_e/n_o: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
+            "cut of maximum walk-off, tan θ = {ratio}: there dρ/dθ = 0, so a cut-angle error Δθ changes the walk-off only to second order, by {} °/°² × Δθ²",
             crate::numfmt::sig(slope_2, 3)
         )
     } else {
@@ -273,6 +389,14 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             "cut fixed by the request; the maximum-walk-off cut would be {max_cut_deg:.4}° (dρ/dθ = 0 there, here {} °/°)",
             crate::numfmt::sig(slope, 3)
         )
+    };
+    let cut_note = match (plane, req.plane) {
+        (Some(p), None) => format!(
+            "{cut_note}; the {} plane is the principal plane of largest walk-off (\"plane\" chooses another)",
+            p.name()
+        ),
+        (Some(p), Some(_)) => format!("{cut_note}; the {} plane as requested", p.name()),
+        (None, _) => cut_note,
     };
 
     // Band.
@@ -285,7 +409,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             } else {
                 lo
             };
-            separation(&req.medium, t_c, tilt, 0.0, length_mm, w).map(|s| [w, s])
+            separation(&req.medium, plane, t_c, tilt, 0.0, length_mm, w).map(|s| [w, s])
         })
         .collect();
     let (mut min, mut max) = ([nm, optics.separation_mm], [nm, optics.separation_mm]);
@@ -321,7 +445,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let s_tilt_2 =
         0.5 * length_at_temperature_mm * sec2 * (curvature_rad + 2.0 * rho.tan().abs() * slope * slope) * deg * deg;
     let s_inc = central(
-        |p| separation(m, t_c, tilt, p, length_mm, nm),
+        |p| separation(m, plane, t_c, tilt, p, length_mm, nm),
         0.0,
         DIFF_STEP_INCIDENCE_DEG,
     )
@@ -329,7 +453,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     // Per millimetre made at 20 °C, which grows to `grown` mm at the working temperature.
     let s_len = rho.tan().abs() * grown;
     let s_wl = central(
-        |w| separation(m, t_c, tilt, 0.0, length_mm, w),
+        |w| separation(m, plane, t_c, tilt, 0.0, length_mm, w),
         nm,
         DIFF_STEP_WAVELENGTH_NM,
     )
@@ -338,7 +462,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         t_c,
         vec![(
             "separation_um",
-            Box::new(|t| separation(m, t, tilt, 0.0, length_mm, nm).map(|s| s * 1e3)),
+            Box::new(|t| separation(m, plane, t, tilt, 0.0, length_mm, nm).map(|s| s * 1e3)),
         )],
     );
     let t = req.tolerances;
@@ -363,7 +487,10 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     let scenario = Part::new(
         req.wavelength,
         Some(req.beam_diameter_mm),
-        vec![crystal(*m, length_mm, tilt, 0.0, 0.0)],
+        vec![match plane {
+            Some(p) => oriented_crystal(*m, length_mm, plane_orientation(p, tilt), 0.0),
+            None => crystal(*m, length_mm, tilt, 0.0, 0.0),
+        }],
     )
     .at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
@@ -381,7 +508,10 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
         length_mm,
         length_at_temperature_mm,
         separation_mm: s,
-        displacement_direction: if optics.separation_vector_mm[0] >= 0.0 {
+        plane: plane.map(PrincipalPlane::name),
+        principal_indices: principal,
+        straight_index,
+        displacement_direction: if walking_sign * optics.separation_vector_mm[0] >= 0.0 {
             "+x".into()
         } else {
             "-x".into()
@@ -491,7 +621,18 @@ mod tests {
         );
         // The separation's second-order coefficient against a second difference of the exact
         // plate model (an independent route: ray tracing, not the closed form).
-        let sep = |t: f64| separation(&Medium::Custom(ix), REFERENCE_C, t, 0.0, d.length_mm, d.wavelength_nm).unwrap();
+        let sep = |t: f64| {
+            separation(
+                &Medium::Custom(ix),
+                None,
+                REFERENCE_C,
+                t,
+                0.0,
+                d.length_mm,
+                d.wavelength_nm,
+            )
+            .unwrap()
+        };
         let fd = (sep(t0 + h) - 2.0 * sep(t0) + sep(t0 - h)) / (h * h);
         assert_close(
             d.sensitivities.tilt_second_order_mm_per_deg2,

@@ -2,8 +2,8 @@
 //!
 //! | kind | solver | required fields |
 //! |---|---|---|
-//! | `displacer` | [`crate::design::displacer`] | `material` (or `no`, `ne`), `separation_mm` |
-//! | `waveplate` | [`crate::design::waveplate::design`] | `material`, `retardance_waves` |
+//! | `displacer` | [`crate::design::displacer`] | `material` (or `no`, `ne`, or `nx`, `ny`, `nz`), `separation_mm` |
+//! | `waveplate` | [`crate::design::waveplate::design`] | `material` (or `no`, `ne`, or `nx`, `ny`, `nz`), `retardance_waves` |
 //! | `achromat` | [`crate::design::waveplate::achromat`] | `first`, `second`, `retardance_waves`, `wavelengths_nm` |
 //! | `recombiner` | [`crate::design::recombiner`] | `material`, `length_mm` |
 //! | `angular-splitter` | [`crate::design::splitter`] | `material`, `split_angle_deg` |
@@ -47,6 +47,7 @@ pub mod lc;
 pub mod notes;
 pub mod part;
 pub mod polarizer;
+pub mod principal;
 pub mod recombiner;
 pub mod rotator;
 pub mod splitter;
@@ -147,13 +148,18 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
         }
     };
     for (material_path, medium) in &uses.media {
-        let Medium::Catalogue(m) = medium else { continue };
+        // Catalogue crystals, uniaxial or biaxial (their indices and warnings by
+        // [`Medium::principal`], as the trace takes them).
+        let (key, name, data) = match medium {
+            Medium::Catalogue(m) => (m.key, m.name, m.data_warning()),
+            Medium::Biaxial(m) => (m.key, m.name, None),
+            _ => continue,
+        };
         // Provenance first, once per material, on the field that names it.
-        let data = m.data_warning();
         if let Some(w) = &data {
             push(format!("{material_path}: {w}"));
         }
-        if let Some(w) = material::thermal(m.key).and_then(|th| th.range_warning(m.name, uses.temperature_c)) {
+        if let Some(w) = material::thermal(key).and_then(|th| th.range_warning(name, uses.temperature_c)) {
             push(format!("temperature_c: {w}"));
         }
         let mut note = |field: &str, ws: Vec<String>| {
@@ -161,10 +167,10 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
                 push(format!("{field}: {w}"));
             }
         };
-        let activity = material::optical_activity(m.key).filter(|_| uses.activity);
+        let activity = material::optical_activity(key).filter(|_| uses.activity);
         let at = |nm: f64| {
             let w = Wavelength::from_nm(nm)?;
-            let mut ws = m.indices(w)?.warnings;
+            let mut ws = medium.principal(w)?.1;
             if let Some(a) = activity {
                 ws.extend(a.at(w)?.warnings);
             }

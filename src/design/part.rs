@@ -13,10 +13,12 @@
 
 use crate::contract::geometry::{Contact, Placement};
 use crate::contract::group::groups;
+use crate::contract::request::principal::is_principal;
 use crate::contract::scenario::{
     Beam, Chirality, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json,
     polarization_json,
 };
+use crate::design::principal::Oriented;
 use crate::error::Error;
 use crate::optics::interface::Losses;
 use crate::optics::spots::power_of;
@@ -94,21 +96,21 @@ impl Part {
         // Version 1 while the part is plane-parallel plates in air, so that those answers read as
         // before; version 2 as soon as an element needs its geometry.
         // An optically active crystal is version 2 too: version 1 had no optical activity.
-        // So is a part designed for a temperature other than 20 °C, which carries it, and one
-        // holding a liquid-crystal cell, an element of version 2.
+        // So is a part designed for a temperature other than 20 °C, which carries it, one holding
+        // a biaxial crystal (the contract's "More media") and one holding a liquid-crystal cell.
         let at_reference = sc.temperature_c == crate::optics::material::REFERENCE_C;
         let plain = at_reference
             && sc.elements.iter().all(|e| {
                 e.contact == Contact::Air
                     && !matches!(e.kind, ElementKind::Cell(_))
                     && !matches!(e.kind, ElementKind::Crystal(c)
-                    if !c.placement.is_default() || c.chirality.is_some_and(|ch| ch.active))
+                    if !c.placement.is_default() || c.chirality.is_some_and(|ch| ch.active) || is_principal(&c.medium))
             });
         let mut doc = json!({
             "version": if plain { 1 } else { 2 },
             "wavelength_nm": sc.wavelength.nm(),
             "beam": beam,
-            "elements": sc.elements.iter().map(element_json).collect::<Vec<_>>(),
+            "elements": sc.elements.iter().map(part_element_json).collect::<Vec<_>>(),
         });
         if sc.screen_mm != 0.0 {
             doc["screen_mm"] = json!(sc.screen_mm);
@@ -117,6 +119,30 @@ impl Part {
             doc["temperature_c"] = json!(sc.temperature_c);
         }
         doc
+    }
+}
+
+/// An element's document, a biaxial crystal's orientation always as `axes` (its roll included
+/// when 0, as CONVENTIONS.md "More media" orients principal axes).
+fn part_element_json(e: &Element) -> Value {
+    let v = element_json(e);
+    match (e.kind, &v) {
+        (ElementKind::Crystal(c), Value::Object(o)) if is_principal(&c.medium) && c.roll_deg == 0.0 => {
+            // Rebuilt by insertion rather than edited in place: the page's module then carries no
+            // map removal.
+            let mut out = serde_json::Map::new();
+            for (k, x) in o {
+                if k != "axis" {
+                    out.insert(k.clone(), x.clone());
+                }
+            }
+            out.insert(
+                "axes".into(),
+                json!({"tilt_deg": c.tilt_deg, "azimuth_deg": c.azimuth_deg, "roll_deg": 0.0}),
+            );
+            Value::Object(out)
+        }
+        _ => v,
     }
 }
 
@@ -199,6 +225,16 @@ pub fn placed_crystal(
         c.placement = placement;
     }
     e.contact = contact;
+    e
+}
+
+/// A crystal plate whose principal axes are `axes` (a biaxial part), after `gap_mm` of the
+/// outside medium; written with `axes` in the part's document.
+pub fn oriented_crystal(medium: Medium, thickness_mm: f64, axes: Oriented, gap_mm: f64) -> Element {
+    let mut e = crystal(medium, thickness_mm, axes.tilt_deg, axes.azimuth_deg, gap_mm);
+    if let ElementKind::Crystal(c) = &mut e.kind {
+        c.roll_deg = axes.roll_deg;
+    }
     e
 }
 

@@ -113,8 +113,29 @@ pub fn indices_at(medium: &Medium, wavelength: Wavelength, t_c: f64) -> Result<I
 /// plate of `medium` whose optic axis is at `tilt_deg` from z and `azimuth_deg` from x (1 for
 /// fixed indices). The trace applies the same factor.
 pub fn growth(medium: &Medium, tilt_deg: f64, azimuth_deg: f64, t_c: f64) -> f64 {
-    let axes = orientation(tilt_deg.to_radians(), azimuth_deg.to_radians(), 0.0);
-    1.0 + medium.expansion_along_z(&axes) * (t_c - REFERENCE_C)
+    growth_along_z(
+        medium,
+        &orientation(tilt_deg.to_radians(), azimuth_deg.to_radians(), 0.0),
+        t_c,
+    )
+}
+
+/// The same factor for principal axes `axes` (columns, element frame): a biaxial crystal expands
+/// by the coefficient of the direction through its faces, α_z = Σ α_i (a_i·ẑ)².
+pub fn growth_along_z(medium: &Medium, axes: &nalgebra::Matrix3<f64>, t_c: f64) -> f64 {
+    1.0 + medium.expansion_along_z(axes) * (t_c - REFERENCE_C)
+}
+
+/// The principal indices n₁, n₂, n₃ of any crystal at `wavelength` and `t_c` °C (a uniaxial one
+/// as n_o, n_o, n_e).
+///
+/// # Errors
+/// As [`Medium::principal_at`].
+pub fn principal_at(medium: &Medium, wavelength: Wavelength, t_c: f64) -> Result<[f64; 3], Error> {
+    Ok(match medium.principal_at(wavelength, t_c)?.0 {
+        PrincipalIndices::Uniaxial(ix) => [ix.no, ix.no, ix.ne],
+        PrincipalIndices::Triple(n) => n,
+    })
 }
 
 #[cfg(test)]

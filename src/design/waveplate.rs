@@ -25,18 +25,32 @@
 //! bisected on Γ(T) between T₀ and the contract's limit (−200 or 500 °C; Γ is taken monotonic in
 //! between, as it is for the catalogue's data). The achromatic pair below is solved at T₀ too.
 //!
+//! Biaxial crystals: a plate cut along a principal axis (`cut`, [`crate::design::principal`]) has
+//! its slower in-face principal axis at azimuth 0 and retards by Γ = 2π (n_slow − n_fast) L / λ
+//! at normal incidence, so the thicknesses above hold with |n_e − n_o| replaced by
+//! n_slow − n_fast; away from normal incidence (the angular curves) its exact retardance
+//! k0 (q_z,s − q_z,f) L comes from the general mode solver
+//! ([`crate::optics::general_plate`]), and its thickness grows by the expansion along the cut's
+//! axis. The achromatic pair stays uniaxial: its two-wavelength system assumes each plate's
+//! birefringence has one sign over the band, which the catalogue's biaxial crystals do keep, but
+//! its crossed-plate reading of a negative thickness would need a cut per plate, which its
+//! request has no field for.
+//!
 //! Achromatic pair: plates of two materials A and B with parallel (or crossed, a negative
 //! thickness) axes retard by Γ(λ) = 2π [L_A Δn_A(λ) + L_B Δn_B(λ)] / λ; requiring the target at
 //! two wavelengths is a 2×2 linear system for L_A and L_B. The two-material method is described
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
 //! memory).
 
+use crate::contract::request::principal::{AXIS_LETTERS, is_principal};
 use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
-use crate::design::part::{Part, crystal};
-use crate::design::thermal::{PerKelvin, Temperature, growth, indices_at, per_kelvin};
+use crate::design::part::{Part, crystal, oriented_crystal};
+use crate::design::principal::{Oriented, cut_orientation, slow_fast, widest_cut};
+use crate::design::thermal::{PerKelvin, Temperature, growth, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::error::Error;
+use crate::optics::general_plate::general_plate_optics;
 use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
 use crate::optics::wavelength::Wavelength;
@@ -84,8 +98,33 @@ pub struct PlateSpec {
     pub thickness_mm: f64,
     /// That thickness at the design temperature, mm (grown by α⊥, the axis in the faces).
     pub thickness_at_temperature_mm: f64,
-    /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°).
+    /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°); for a
+    /// biaxial plate, the azimuth of its slow in-face principal axis.
     pub axis_azimuth_deg: f64,
+}
+
+/// How the plates of a design are oriented.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum PlateCut {
+    /// A uniaxial plate with its optic axis in its faces at the plate's azimuth.
+    Axis,
+    /// A biaxial plate cut along a principal axis, so oriented at azimuth 0 (its slow axis along
+    /// the plate's azimuth); a plate's own azimuth turns it about the normal.
+    Principal(Oriented),
+}
+
+impl PlateCut {
+    /// The principal axes of a plate of this cut at `azimuth_deg`.
+    fn at(self, azimuth_deg: f64) -> Oriented {
+        match self {
+            PlateCut::Axis => Oriented {
+                tilt_deg: 90.0,
+                azimuth_deg,
+                roll_deg: 0.0,
+            },
+            PlateCut::Principal(o) => o.turned(azimuth_deg),
+        }
+    }
 }
 
 /// A solved waveplate.
@@ -115,8 +154,19 @@ pub struct WaveplateDesign {
     /// the optic axis is the slow axis).
     pub retardance_waves: f64,
     /// Which in-face direction is fast: "optic axis" (negative crystals) or "perpendicular to the
-    /// optic axis" (positive crystals).
+    /// optic axis" (positive crystals); for a biaxial plate, the fast principal axis (the slow
+    /// one lies at the plate's azimuth).
     pub fast_axis: String,
+    /// For a biaxial crystal, the principal axis along the plate normal (`x`, `y` or `z`); its
+    /// `no` and `ne` are then the fast and slow in-face principal indices.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cut: Option<String>,
+    /// For a biaxial crystal, why this cut.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cut_note: Option<String>,
+    /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub principal_indices: Option<[f64; 3]>,
     /// Group delay of the polarization along the first plate's optic axis after the one across
     /// it, at the design wavelength and normal incidence, picoseconds (signed like
     /// `retardance_waves`; [`Part::group_delay_ps`]).
@@ -161,13 +211,13 @@ pub struct TemperatureSensitivity {
 
 /// The plates (medium, thickness made at 20 °C, axis azimuth) as the answer states them, working
 /// at `t_c` °C.
-pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], t_c: f64) -> Vec<PlateSpec> {
+pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], cut: PlateCut, t_c: f64) -> Vec<PlateSpec> {
     plates
         .iter()
         .map(|(md, l, az)| PlateSpec {
             material: md.key().to_string(),
             thickness_mm: *l,
-            thickness_at_temperature_mm: l * growth(md, 90.0, *az, t_c),
+            thickness_at_temperature_mm: l * growth_along_z(md, &cut.at(*az).axes(), t_c),
             axis_azimuth_deg: *az,
         })
         .collect()
@@ -184,23 +234,41 @@ fn sign_word(ix: Indices) -> &'static str {
 /// tangential wave vector, working at `t_c` °C: each plate's exact retardance with its indices at
 /// that temperature and its thickness grown by its expansion along z, counted negative for plates
 /// whose axis is crossed (azimuth 90°) with the first's.
-pub(super) fn stack_retardance_at(plates: &[(Medium, f64, f64)], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
+pub(super) fn stack_retardance_at(
+    plates: &[(Medium, f64, f64)],
+    cut: PlateCut,
+    nm: f64,
+    qt: [f64; 2],
+    t_c: f64,
+) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
     let mut total = 0.0;
     for (medium, l, az) in plates {
-        let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
-            return None;
+        let retardance = match cut {
+            PlateCut::Axis => {
+                let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
+                    return None;
+                };
+                let l = l * growth(medium, 90.0, *az, t_c);
+                plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, l, wl, qt)?.retardance_rad
+            }
+            PlateCut::Principal(_) => {
+                // The slow axis at the plate's azimuth: |Γ|, whichever letter the slower wave has.
+                let o = cut.at(*az);
+                let crystal = o.crystal(principal_at(medium, wl, t_c).ok()?).ok()?;
+                let l = l * growth_along_z(medium, &o.axes(), t_c);
+                general_plate_optics(&crystal, l, wl, qt)?.retardance_rad.abs()
+            }
         };
-        let l = l * growth(medium, 90.0, *az, t_c);
-        let p = plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, l, wl, qt)?;
         let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
-        total += if crossed { -p.retardance_rad } else { p.retardance_rad };
+        total += if crossed { -retardance } else { retardance };
     }
     Some(total)
 }
 
 fn angular_curves(
     plates: &[(Medium, f64, f64)],
+    cut: PlateCut,
     (nm, t_c): (f64, f64),
     max_deg: f64,
     err_waves: f64,
@@ -212,6 +280,7 @@ fn angular_curves(
             let at = |deg: f64| {
                 stack_retardance_at(
                     plates,
+                    cut,
                     nm,
                     tangential(1.0, deg.to_radians(), (axis_az + plane).to_radians()),
                     t_c,
@@ -256,10 +325,11 @@ fn angular_curves(
 /// error of `err_waves` (see the module header); `None` where the plates cannot be evaluated.
 pub(super) fn temperature_sensitivity(
     plates: &[(Medium, f64, f64)],
+    cut: PlateCut,
     (nm, t_c): (f64, f64),
     err_waves: f64,
 ) -> Option<TemperatureSensitivity> {
-    let at = |t: f64| stack_retardance_at(plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
+    let at = |t: f64| stack_retardance_at(plates, cut, nm, [0.0, 0.0], t).map(|g| g / TAU);
     let g0 = at(t_c)?;
     let slope = per_kelvin(at, t_c)?;
     let inside = |t: f64| at(t).is_some_and(|g| (g - g0).abs() <= err_waves);
@@ -290,6 +360,74 @@ pub(super) fn temperature_sensitivity(
     })
 }
 
+/// A biaxial waveplate's cut as the design takes it.
+struct BiaxialCut {
+    /// The fast and slow in-face indices, as a uniaxial plate's n_o and n_e (n_e the slower).
+    indices: Indices,
+    /// The plate's principal axes at azimuth 0.
+    oriented: Oriented,
+    /// The principal indices n_x, n_y, n_z at the design wavelength and temperature.
+    principal: [f64; 3],
+    /// The cut's name.
+    cut: String,
+    /// Why this cut.
+    note: String,
+    /// Which in-face axis is fast.
+    fast_axis: String,
+}
+
+/// The cut of a biaxial request's plate (`None` for a uniaxial crystal).
+///
+/// # Errors
+/// As [`principal_at`]; `cut` when the two in-face indices are equal.
+fn biaxial_cut(req: &WaveplateRequest) -> Result<Option<BiaxialCut>, Error> {
+    if !is_principal(&req.medium) {
+        return Ok(None);
+    }
+    let n = principal_at(&req.medium, req.wavelength, req.temperature_c)?;
+    let chosen = req.cut.unwrap_or_else(|| widest_cut(n));
+    let (slow, fast) = slow_fast(chosen, n);
+    let letter = |k: usize| AXIS_LETTERS[k];
+    if n[slow] - n[fast] < NO_BIREFRINGENCE {
+        return Err(Error::new(
+            "cut",
+            format!(
+                "n_{} equals n_{}: light along {} sees no birefringence; choose another cut",
+                letter(slow),
+                letter(fast),
+                chosen.name()
+            ),
+        ));
+    }
+    let note = match req.cut {
+        Some(_) => format!(
+            "{}-cut as requested: light along principal {}, Γ = 2π (n_{} − n_{}) L / λ",
+            chosen.name(),
+            chosen.name(),
+            letter(slow),
+            letter(fast)
+        ),
+        None => format!(
+            "{}-cut, the cut of largest birefringence (n_{} − n_{}); \"cut\" chooses another",
+            chosen.name(),
+            letter(slow),
+            letter(fast)
+        ),
+    };
+    Ok(Some(BiaxialCut {
+        indices: Indices::new(n[fast], n[slow])?,
+        oriented: cut_orientation(chosen, n),
+        principal: n,
+        cut: chosen.name(),
+        note,
+        fast_axis: format!(
+            "principal {} (across the plate's azimuth; slow: principal {})",
+            letter(fast),
+            letter(slow)
+        ),
+    }))
+}
+
 /// Solves a waveplate request.
 ///
 /// # Errors
@@ -297,13 +435,17 @@ pub(super) fn temperature_sensitivity(
 /// birefringence.
 pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let t_c = req.temperature_c;
-    let ix = indices_at(&req.medium, req.wavelength, t_c)?;
+    let biaxial = biaxial_cut(req)?;
+    let (ix, cut) = match &biaxial {
+        Some(b) => (b.indices, PlateCut::Principal(b.oriented)),
+        None => (indices_at(&req.medium, req.wavelength, t_c)?, PlateCut::Axis),
+    };
     let dn = ix.ne - ix.no;
     if dn.abs() < NO_BIREFRINGENCE {
         return Err(Error::new("material", "n_o equals n_e: this crystal cannot retard"));
     }
     // Thicknesses made at 20 °C that reach the target at the working temperature.
-    let lam_mm = req.wavelength.mm() / growth(&req.medium, 90.0, 0.0, t_c);
+    let lam_mm = req.wavelength.mm() / growth_along_z(&req.medium, &cut.at(0.0).axes(), t_c);
     let zero = req.retardance_waves * lam_mm / dn.abs();
     let m = &req.medium;
     let (order, order_number, plates): (&str, u32, Vec<(Medium, f64, f64)>) = match req.order {
@@ -316,7 +458,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         Order::Compound { base_mm } => ("compound", 0, vec![(*m, base_mm + zero, 0.0), (*m, base_mm, 90.0)]),
     };
     let nm = req.wavelength.nm();
-    let g = stack_retardance_at(&plates, nm, [0.0, 0.0], t_c)
+    let g = stack_retardance_at(&plates, cut, nm, [0.0, 0.0], t_c)
         .ok_or_else(|| Error::new("retardance_waves", "the plate model cannot be evaluated"))?
         / TAU;
     let (lo, hi) = req.band();
@@ -324,10 +466,16 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let wavelength_curve = (0..=n)
         .filter_map(|i| {
             let w = lo + (hi - lo) * i as f64 / n as f64;
-            stack_retardance_at(&plates, w, [0.0, 0.0], t_c).map(|r| [w, r / TAU])
+            stack_retardance_at(&plates, cut, w, [0.0, 0.0], t_c).map(|r| [w, r / TAU])
         })
         .collect();
-    let angular = angular_curves(&plates, (nm, t_c), req.max_incidence_deg, req.acceptance_error_waves);
+    let angular = angular_curves(
+        &plates,
+        cut,
+        (nm, t_c),
+        req.max_incidence_deg,
+        req.acceptance_error_waves,
+    );
     // The worst plane decides; its bound is the answer's (a plane that never left the limit has
     // the curve's end as its acceptance, never below a plane that did leave it).
     let worst = angular
@@ -335,11 +483,14 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
         .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
     let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
-    let temperature = temperature_sensitivity(&plates, (nm, t_c), req.acceptance_error_waves)
+    let temperature = temperature_sensitivity(&plates, cut, (nm, t_c), req.acceptance_error_waves)
         .ok_or_else(|| Error::new("material", "the crystal's temperature data cannot be evaluated"))?;
     let elements = plates
         .iter()
-        .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
+        .map(|(md, l, az)| match cut {
+            PlateCut::Axis => crystal(*md, *l, 90.0, *az, 0.0),
+            PlateCut::Principal(_) => oriented_crystal(*md, *l, cut.at(*az), 0.0),
+        })
         .collect();
     let scenario = Part::new(req.wavelength, None, elements).at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
@@ -352,10 +503,15 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         birefringence: dn,
         order: order.into(),
         order_number,
-        plates: plate_specs(&plates, t_c),
+        plates: plate_specs(&plates, cut, t_c),
         effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
         retardance_waves: g,
-        fast_axis: sign_word(ix).into(),
+        fast_axis: biaxial
+            .as_ref()
+            .map_or_else(|| sign_word(ix).into(), |b| b.fast_axis.clone()),
+        cut: biaxial.as_ref().map(|b| b.cut.clone()),
+        cut_note: biaxial.as_ref().map(|b| b.note.clone()),
+        principal_indices: biaxial.as_ref().map(|b| b.principal),
         group_delay_ps,
         wavelength_curve,
         angular,
@@ -496,7 +652,7 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
         .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
         .collect();
     Ok(AchromatDesign {
-        plates: plate_specs(&plates, t_c),
+        plates: plate_specs(&plates, PlateCut::Axis, t_c),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,

@@ -7,6 +7,7 @@ pub mod beam_overlap;
 pub mod chain;
 pub mod colorimetry;
 pub mod general_modes;
+pub mod general_plate;
 pub mod geometry;
 pub mod interface;
 pub mod jones;

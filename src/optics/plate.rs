@@ -12,7 +12,7 @@
 //! allocation, so that sweeps and Monte Carlo tolerance runs can afford hundreds of thousands.
 
 use crate::optics::material::Indices;
-use crate::optics::modes::{Travel, crystal_modes};
+use crate::optics::modes::{Mode, Travel, crystal_modes};
 use crate::optics::uniaxial::{OpticAxis, Uniaxial, angle_between};
 use crate::optics::wavelength::Wavelength;
 
@@ -44,6 +44,13 @@ pub fn plate_optics(
     qt: [f64; 2],
 ) -> Option<PlateOptics> {
     let [o, e] = crystal_modes(&Uniaxial::new(indices, axis), qt, Travel::Forward);
+    plate_of_modes(&o, &e, thickness_mm, wavelength)
+}
+
+/// The optics of a plate whose two forward modes are `o` and `e` (for any crystal: the second
+/// mode plays the e-wave's part), or `None` when a mode is evanescent; the walk-off is the second
+/// mode's.
+pub fn plate_of_modes(o: &Mode, e: &Mode, thickness_mm: f64, wavelength: Wavelength) -> Option<PlateOptics> {
     let (so, se) = (o.ray_direction()?, e.ray_direction()?);
     // Each ray's shift first, then the difference: the same arithmetic as the stack trace.
     let dx = thickness_mm * se.x / se.z - thickness_mm * so.x / so.z;

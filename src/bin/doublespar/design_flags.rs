@@ -54,6 +54,29 @@ const MEDIUM_HELP: [Flag; 3] = [
     flag("ne", "ne", N, "extraordinary index, instead of --material (with --no)"),
 ];
 
+/// A biaxial crystal's principal indices, instead of `--material` (design requests that take
+/// biaxial crystals).
+const PRINCIPAL_HELP: [Flag; 3] = [
+    flag(
+        "nx",
+        "nx",
+        N,
+        "principal index n_x, instead of --material (with --ny, --nz)",
+    ),
+    flag(
+        "ny",
+        "ny",
+        N,
+        "principal index n_y, instead of --material (with --nx, --nz)",
+    ),
+    flag(
+        "nz",
+        "nz",
+        N,
+        "principal index n_z, instead of --material (with --nx, --ny)",
+    ),
+];
+
 const DESIGN_WAVELENGTH: Flag = flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]");
 
 const DESIGN_TEMPERATURE: Flag = flag(
@@ -72,10 +95,19 @@ const TOL_INCIDENCE: Flag = flag(
 
 const SEED: Flag = flag("seed", "seed", N, "Monte Carlo seed, a whole number [1]");
 
-const DISPLACER: [Flag; 17] = [
+const DISPLACER: [Flag; 21] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
+    PRINCIPAL_HELP[0],
+    PRINCIPAL_HELP[1],
+    PRINCIPAL_HELP[2],
+    flag(
+        "plane",
+        "plane",
+        T,
+        "biaxial crystal: principal plane holding the normal, xy, xz or yz [largest walk-off]",
+    ),
     DESIGN_WAVELENGTH,
     flag(
         "band-nm",
@@ -127,10 +159,19 @@ const DISPLACER: [Flag; 17] = [
     DESIGN_TEMPERATURE,
 ];
 
-const WAVEPLATE: [Flag; 12] = [
+const WAVEPLATE: [Flag; 16] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
+    PRINCIPAL_HELP[0],
+    PRINCIPAL_HELP[1],
+    PRINCIPAL_HELP[2],
+    flag(
+        "cut",
+        "cut",
+        T,
+        "biaxial crystal: principal axis along the normal, x, y or z [largest birefringence]",
+    ),
     DESIGN_WAVELENGTH,
     flag(
         "retardance-waves",

@@ -308,6 +308,15 @@ fn medium_words(el: &Value) -> String {
             no.as_f64().map_or_else(String::new, num),
             ne.as_f64().map_or_else(String::new, num)
         ),
+        _ if el.get("nz").is_some() => {
+            let n = |k: &str| el.get(k).and_then(Value::as_f64).map_or_else(String::new, num);
+            format!(
+                "custom biaxial crystal, n_x {}, n_y {}, n_z {}",
+                n("nx"),
+                n("ny"),
+                n("nz")
+            )
+        }
         _ => "—".into(),
     }
 }
@@ -359,7 +368,21 @@ fn displacer(r: &mut Report) {
     let el = r.v.pointer("/scenario/elements/0").cloned().unwrap_or(Value::Null);
     r.line("material", medium_words(&el));
     r.quantity("length along the beam", "length_mm", "mm");
-    if let Some(t) = r.f("cut_tilt_deg") {
+    if let (Some(t), Some(plane)) = (r.f("cut_tilt_deg"), r.s("plane")) {
+        let letters: Vec<char> = plane.chars().collect();
+        let normal = ['x', 'y', 'z']
+            .into_iter()
+            .find(|c| !letters.contains(c))
+            .unwrap_or('?');
+        r.line(
+            "cut",
+            format!(
+                "in the {plane} principal plane: principal {} {} ° from the face normal, toward x; principal {normal} along y",
+                letters.get(1).copied().unwrap_or('?'),
+                num(t)
+            ),
+        );
+    } else if let Some(t) = r.f("cut_tilt_deg") {
         let az = el.pointer("/axis/azimuth_deg").and_then(Value::as_f64).unwrap_or(0.0);
         r.line(
             "cut",
@@ -380,12 +403,21 @@ fn displacer(r: &mut Report) {
 fn displacer_performance(r: &mut Report) {
     r.section("Performance");
     r.quantity("wavelength", "wavelength_nm", "nm");
-    r.quantity("index n_o", "no", "");
-    r.quantity("index n_e", "ne", "");
+    let plane: Option<Vec<char>> = r.s("plane").map(|p| p.chars().collect());
+    if let Some(p) = &plane {
+        principal_indices(r);
+        r.quantity(&format!("in-plane index n_{}", p[0]), "no", "");
+        r.quantity(&format!("in-plane index n_{}", p[1]), "ne", "");
+        r.quantity("index of the straight mode", "straight_index", "");
+    } else {
+        r.quantity("index n_o", "no", "");
+        r.quantity("index n_e", "ne", "");
+    }
     if let Some(s) = r.f("separation_mm") {
+        let walker = if plane.is_some() { "in-plane ray" } else { "e-ray" };
         let dir = r
             .s("displacement_direction")
-            .map(|d| format!(", e-ray toward {d}"))
+            .map(|d| format!(", {walker} toward {d}"))
             .unwrap_or_default();
         r.line("separation", format!("{} mm{dir}", num(s)));
     }
@@ -406,9 +438,23 @@ fn displacer_performance(r: &mut Report) {
     r.quantity("separation / beam", "clearance_ratio", "(ratio)");
     r.quantity("crosstalk", "crosstalk", "(power overlap of the beams)");
     r.quantity("clipping per beam", "clipping_per_beam", "(power outside the aperture)");
-    r.quantity("o–e phase at the exit", "exit_phase_rad", "rad");
+    let (phase, delay) = match plane {
+        Some(_) => ("f–s phase at the exit", "group delay, s after f"),
+        None => ("o–e phase at the exit", "group delay, e after o"),
+    };
+    r.quantity(phase, "exit_phase_rad", "rad");
     r.quantity("  the same, modulo 2π", "exit_phase_mod_2pi_rad", "rad");
-    r.quantity("group delay, e after o", "group_delay_ps", "ps");
+    r.quantity(delay, "group_delay_ps", "ps");
+}
+
+/// A biaxial design's principal indices at the design wavelength, on one line.
+fn principal_indices(r: &mut Report) {
+    let n: Vec<String> = (0..3)
+        .filter_map(|k| r.f(&format!("principal_indices.{k}")).map(num))
+        .collect();
+    if let [x, y, z] = n.as_slice() {
+        r.line("principal indices", format!("n_x {x}, n_y {y}, n_z {z}"));
+    }
 }
 
 /// A displacer's tolerances: the separation's sensitivities, the errors assumed and the spread
@@ -505,10 +551,11 @@ fn plates(r: &mut Report) {
         let a = r
             .f(&format!("plates.{i}.axis_azimuth_deg"))
             .map_or_else(String::new, num);
-        r.line(
-            &label,
-            format!("{m}, {t} mm thick, optic axis in the faces at {a} ° from x"),
-        );
+        let axis = match r.s("cut") {
+            Some(c) => format!("{c}-cut (light along principal {c}), slow axis at {a} ° from x"),
+            None => format!("optic axis in the faces at {a} ° from x"),
+        };
+        r.line(&label, format!("{m}, {t} mm thick, {axis}"));
     }
 }
 
@@ -534,12 +581,24 @@ fn waveplate(r: &mut Report) {
     r.section("Performance");
     r.quantity("wavelength", "wavelength_nm", "nm");
     r.quantity("retardance", "retardance_waves", "waves");
-    r.quantity("index n_o", "no", "");
-    r.quantity("index n_e", "ne", "");
-    r.quantity("birefringence n_e − n_o", "birefringence", "");
+    if r.s("cut").is_some() {
+        principal_indices(r);
+        r.quantity("index of the fast axis", "no", "");
+        r.quantity("index of the slow axis", "ne", "");
+        r.quantity("birefringence n_slow − n_fast", "birefringence", "");
+    } else {
+        r.quantity("index n_o", "no", "");
+        r.quantity("index n_e", "ne", "");
+        r.quantity("birefringence n_e − n_o", "birefringence", "");
+    }
     r.quantity("net retarding thickness", "effective_thickness_mm", "mm");
     r.text_line("fast axis", "fast_axis");
-    r.quantity("group delay, e after o", "group_delay_ps", "ps");
+    let delay = if r.s("cut").is_some() {
+        "group delay, s after f"
+    } else {
+        "group delay, e after o"
+    };
+    r.quantity(delay, "group_delay_ps", "ps");
     if let Some((a, b, lo, hi)) = range_of(r.v.get("wavelength_curve")) {
         r.line(
             "retardance over the band",
@@ -547,7 +606,7 @@ fn waveplate(r: &mut Report) {
         );
     }
     waveplate_tolerances(r);
-    r.notes(&[]);
+    r.notes(&["cut_note"]);
 }
 
 /// A waveplate's tolerances: its acceptance angle, in each plane of incidence, and its
@@ -589,9 +648,14 @@ fn waveplate_tolerances(r: &mut Report) {
         };
         r.line(&format!("  in the plane at {plane} °"), format!("{bound}{acc} °"));
     }
+    let from = if r.s("cut").is_some() {
+        "slow axis"
+    } else {
+        "optic axis"
+    };
     r.line(
         "acceptance means",
-        format!("retardance within ±{err} waves of its value at normal incidence; planes measured from the optic axis"),
+        format!("retardance within ±{err} waves of its value at normal incidence; planes measured from the {from}"),
     );
     if let Some(m) = max {
         r.line("incidence checked", format!("up to {} °", num(m)));

@@ -1,7 +1,8 @@
 //! The displacer request: a crystal, a required o–e separation, the beam, and the error standard
 //! deviations of its tolerance analysis with the Monte Carlo run's size.
 
-use super::{band, parse_medium, temperature_field, wavelength_field, whole};
+use super::principal::{PrincipalPlane, read_plane};
+use super::{band, parse_any_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -41,8 +42,11 @@ impl Tolerances {
 /// What the designer asks for.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DisplacerRequest {
-    /// Crystal.
+    /// Crystal (uniaxial, or biaxial cut in a principal plane).
     pub medium: Medium,
+    /// For a biaxial crystal, the principal plane that holds the plate normal (`plane`); `None`
+    /// for a uniaxial crystal, or to take the plane of largest walk-off.
+    pub plane: Option<PrincipalPlane>,
     /// Design wavelength.
     pub wavelength: Wavelength,
     /// Band over which the separation is reported, nm.
@@ -74,7 +78,8 @@ impl DisplacerRequest {
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<DisplacerRequest, Error> {
-        let medium = parse_medium(f)?;
+        let medium = parse_any_crystal(f)?;
+        let plane = read_plane(f, &medium)?;
         let wavelength = wavelength_field(f)?;
         let band_nm = band(f, "band_nm")?;
         // Lengths that must not be zero: the range excludes 0, and the message says so.
@@ -108,6 +113,7 @@ impl DisplacerRequest {
         let bins = whole(f, "bins", 40.0, 1.0, 1000.0)? as usize;
         Ok(DisplacerRequest {
             medium,
+            plane,
             wavelength,
             band_nm,
             separation_mm,

@@ -17,6 +17,7 @@ pub mod displacer;
 pub mod filter;
 pub mod lc;
 pub mod polarizer;
+pub mod principal;
 pub mod recombiner;
 pub mod rotator;
 pub mod splitter;
@@ -30,6 +31,7 @@ pub use displacer::{DisplacerRequest, Tolerances};
 pub use filter::{FilterRequest, Layout};
 pub use lc::LcVoltageRequest;
 pub use polarizer::PolarizerRequest;
+pub use principal::{PrincipalCut, PrincipalPlane};
 pub use recombiner::{Middle, RecombinerRequest};
 pub use rotator::RotatorRequest;
 pub use splitter::{SplitterRequest, SplitterTolerances};
@@ -52,8 +54,58 @@ use crate::optics::wavelength::Wavelength;
 /// `material` when both forms or neither is given, or for an unknown key; `source` for a source
 /// the crystal does not have, or with fixed indices; `no` or `ne` out of range.
 fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
+    parse_crystal(f, false)
+}
+
+/// The crystal of a request whose solver takes biaxial crystals too: as [`parse_medium`], and
+/// also a biaxial catalogue key, custom principal indices `nx`, `ny`, `nz` (1 to 10, not all
+/// equal) or biaxial formulas (`x`, `y`, `z`).
+///
+/// # Errors
+/// As [`parse_medium`]; `nx`, `ny` or `nz` out of range or missing; `nz` when the three are equal
+/// (an isotropic medium); `material` when principal indices are mixed with other forms.
+fn parse_any_crystal(f: &mut Fields) -> Result<Medium, Error> {
+    parse_crystal(f, true)
+}
+
+/// The custom principal indices `nx`, `ny`, `nz` (see [`parse_any_crystal`]).
+fn principal_indices(f: &mut Fields) -> Result<Medium, Error> {
+    let path = f.path_of("material");
+    if f.has("material") || f.has("no") || f.has("ne") {
+        return Err(Error::new(
+            path,
+            "give either \"material\" or \"no\" and \"ne\" or \"nx\", \"ny\" and \"nz\", not several",
+        ));
+    }
+    let mut n = [0.0; 3];
+    for (k, name) in ["nx", "ny", "nz"].into_iter().enumerate() {
+        let p = f.path_of(name);
+        n[k] = in_range(&p, f.required_number(name)?, 1.0, 10.0)?;
+    }
+    if n[0] == n[1] && n[1] == n[2] {
+        return Err(Error::new(
+            f.path_of("nz"),
+            format!(
+                "nx, ny and nz are all {}: an isotropic medium has no birefringence to design with",
+                quote(n[0])
+            ),
+        ));
+    }
+    Ok(Medium::Principal(n))
+}
+
+fn parse_crystal(f: &mut Fields, biaxial: bool) -> Result<Medium, Error> {
     let path = f.path_of("material");
     let dispersion_path = f.path_of("dispersion");
+    if (f.has("nx") || f.has("ny") || f.has("nz")) && !f.has("dispersion") {
+        if !biaxial {
+            return Err(Error::new(
+                path,
+                "this design takes a uniaxial crystal: give \"material\" or \"no\" and \"ne\", not \"nx\", \"ny\", \"nz\"",
+            ));
+        }
+        return principal_indices(f);
+    }
     if let Some(d) = f.get("dispersion") {
         if f.has("material") || f.has("no") || f.has("ne") {
             return Err(Error::new(
@@ -62,7 +114,7 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
             ));
         }
         let formula = CustomDispersion::read(&dispersion_path, d)?;
-        if !formula.is_uniaxial_form() {
+        if !biaxial && !formula.is_uniaxial_form() {
             return Err(Error::new(
                 dispersion_path,
                 "this design takes a uniaxial crystal: give its formulas as \"o\" and \"e\"",
@@ -77,13 +129,21 @@ fn parse_medium(f: &mut Fields) -> Result<Medium, Error> {
         )),
         (true, false) => {
             let key = f.string("material")?.unwrap_or_default();
+            if let Some(b) = material::find_biaxial(key).filter(|_| biaxial) {
+                let _ = (f.get("no"), f.get("ne"));
+                return crate::contract::scenario::parse_source(f, Medium::Biaxial(b));
+            }
             let m = material::find(key).ok_or_else(|| {
                 let why = if material::find_biaxial(key).is_some() {
                     format!("'{key}' is a biaxial crystal; this design takes a uniaxial one")
                 } else {
                     format!("unknown material '{key}'")
                 };
-                Error::new(&path, format!("{why}; known: {}", material::keys().join(", ")))
+                let mut known = material::keys();
+                if biaxial {
+                    known.extend(material::biaxial_keys());
+                }
+                Error::new(&path, format!("{why}; known: {}", known.join(", ")))
             })?;
             let _ = (f.get("no"), f.get("ne"));
             crate::contract::scenario::parse_source(f, Medium::Catalogue(m))

@@ -1,7 +1,8 @@
 //! The waveplate request: a crystal, a target retardance and the order that reaches it, with the
 //! band and the cone of incidence over which the plate is reported.
 
-use super::{band, parse_medium, temperature_field, wavelength_field, whole};
+use super::principal::{PrincipalCut, read_cut};
+use super::{band, parse_any_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -29,8 +30,11 @@ pub enum Order {
 /// A waveplate request.
 #[derive(Debug, Clone, PartialEq)]
 pub struct WaveplateRequest {
-    /// Crystal.
+    /// Crystal (uniaxial, or biaxial cut along a principal axis).
     pub medium: Medium,
+    /// For a biaxial crystal, the principal axis along the plate normal (`cut`); `None` for a
+    /// uniaxial crystal, or to take the cut of largest birefringence.
+    pub cut: Option<PrincipalCut>,
     /// Design wavelength.
     pub wavelength: Wavelength,
     /// Target retardance, waves (0.25 for a quarter wave).
@@ -54,7 +58,8 @@ impl WaveplateRequest {
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<WaveplateRequest, Error> {
-        let medium = parse_medium(f)?;
+        let medium = parse_any_crystal(f)?;
+        let cut = read_cut(f, &medium)?;
         let wavelength = wavelength_field(f)?;
         let retardance_waves = in_range("retardance_waves", f.required_number("retardance_waves")?, 1e-6, 1e4)?;
         let order = match f.string("order")? {
@@ -72,6 +77,7 @@ impl WaveplateRequest {
         };
         Ok(WaveplateRequest {
             medium,
+            cut,
             wavelength,
             retardance_waves,
             order,

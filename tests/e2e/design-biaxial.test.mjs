@@ -1,0 +1,129 @@
+// End-to-end tests of the design panel with biaxial crystals (www/design-panel.js): a KTP
+// waveplate cut along a principal axis and an LBO displacer cut in a principal plane, filled in
+// through the panel's controls and solved in its worker. The numbers shown are checked against
+// the command line's answer to the same request, as kept in the golden files
+// tests/cli/design/golden/*.json (written by `doublespar design`, native build). "Use this part"
+// loads the part into the set-up, where the page's own trace gives the design's retardance or
+// separation; bad values put the core's message beside their field and keep every entry; the
+// kinds whose solver stays uniaxial do not offer the biaxial crystals.
+//
+// Run: `cd tests/e2e && node --test design-biaxial.test.mjs` (after scripts/build-web.sh).
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { useBrowser, withPage as openAt, close, solveDesign, enterValue } from './support.mjs';
+import { golden, field, fill, expectDesign, expectFieldError, useDesign, orderSheet } from './design-support.mjs';
+
+const env = useBrowser({ cli: false });
+const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), options);
+
+/** Every field of the golden request is in the request the panel's fields say, with its value. */
+async function expectRequest(page, request, what) {
+  const said = await page.evaluate(() => window.doublespar.designRequest());
+  for (const [k, v] of Object.entries(request)) assert.deepEqual(said[k], v, `${what}: the request's ${k} (${JSON.stringify(said)})`);
+}
+
+/** The traced figure `name` of crystal `i` in the set-up's results. */
+async function traced(page, i, name) {
+  const sel = `[data-quantity="elements[${i}].${name}"]`;
+  await page.waitForSelector(sel);
+  return Number(await page.getAttribute(sel, 'data-value'));
+}
+
+test('a KTP waveplate agrees with the command line and, loaded, retards as designed', { timeout: 120000 }, async () => {
+  const { request, design } = golden('waveplate-ktp-half');
+  await withPage(async (page) => {
+    await fill(page, 'waveplate', [
+      ['material', 'ktp'], ['order', 'multiple'], ['order_number', 4], ['wavelength_nm', 1064],
+      ['retardance_waves', 0.5], ['temperature_c', 40],
+    ]);
+    assert.ok(await page.locator(field('cut')).isVisible(), 'a biaxial crystal shows its cut');
+    assert.equal(await page.locator(field('plane')).isVisible(), false, 'a waveplate has no principal plane');
+    await solveDesign(page);
+    await expectRequest(page, request, 'KTP waveplate');
+    assert.equal(design.cut, 'y', 'the cut of largest birefringence');
+    await expectDesign(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps'], 'KTP waveplate');
+    const headline = await page.textContent('.design-headline');
+    assert.ok(headline.includes('y-cut'), headline);
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('y-cut: principal y along the face normal; plate 1 slow axis at 0°'), `the order sheet's cut: ${sheet.Cut}`);
+    const sc = await useDesign(page, design, 'KTP waveplate');
+    assert.equal(sc.elements[0].material, 'ktp');
+    assert.ok(sc.elements[0].axes, `oriented by axes: ${JSON.stringify(sc.elements[0])}`);
+    const g = await traced(page, 0, 'retardance_waves');
+    assert.ok(Math.abs(g - 4.5) < 1e-9, `traced retardance ${g} waves, designed 4.5`);
+  });
+});
+
+test('an LBO displacer agrees with the command line and, loaded, separates the beams as designed', { timeout: 180000 }, async () => {
+  const { request, design } = golden('displacer-lbo-xz');
+  await withPage(async (page) => {
+    await fill(page, 'displacer', [
+      ['material', 'lbo'], ['plane', 'xz'], ['wavelength_nm', 1064], ['separation_mm', 0.5],
+      ['band_nm[0]', 1000], ['band_nm[1]', 1100], ['samples', 20000],
+    ]);
+    assert.equal(await page.locator(field('cut')).isVisible(), false, 'a displacer has no waveplate cut');
+    await solveDesign(page, 90000);
+    await expectRequest(page, request, 'LBO displacer');
+    await expectDesign(page, design, ['length_mm', 'cut_tilt_deg', 'separation_mm', 'walkoff_deg', 'no', 'ne', 'straight_index', 'group_delay_ps'], 'LBO displacer');
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('principal z at ') && sheet.Cut.includes('in the xz principal plane'), `the order sheet's cut: ${sheet.Cut}`);
+    const sc = await useDesign(page, design, 'LBO displacer');
+    // The set-up writes a roll of 0 as `axis` (CONVENTIONS.md "More media": the same orientation).
+    const axes = sc.elements[0].axes ?? sc.elements[0].axis;
+    assert.ok(close(axes.tilt_deg, design.cut_tilt_deg) && (axes.roll_deg ?? 0) === 0, JSON.stringify(sc.elements[0]));
+    const s = await traced(page, 0, 'separation_mm');
+    assert.ok(Math.abs(s - 0.5) < 1e-9, `traced separation ${s} mm, designed 0.5`);
+  });
+});
+
+test('bad biaxial values show the core\'s message beside their field and keep every entry', { timeout: 120000 }, async () => {
+  await withPage(async (page) => {
+    await fill(page, 'waveplate', [['material', 'principal'], ['nx', 1.6], ['ny', 1.6]]);
+    const iso = await expectFieldError(page, ['nz', 1.6], 'nz', 'three equal indices');
+    assert.ok(iso.includes('isotropic'), iso);
+    await enterValue(page, field('nz'), 1.7);
+    await page.selectOption(field('cut'), 'z');
+    const none = await expectFieldError(page, ['retardance_waves', 0.25], 'cut', 'a cut without birefringence');
+    assert.ok(none.includes('no birefringence'), none);
+    await page.selectOption(field('kind'), 'displacer');
+    await page.selectOption(field('plane'), 'xy');
+    const flat = await expectFieldError(page, ['separation_mm', 1], 'plane', 'a plane without walk-off');
+    assert.ok(flat.includes('no walk-off'), flat);
+    await page.selectOption(field('plane'), 'xz');
+    await page.fill(field('samples'), '0');
+    await solveDesign(page);
+  });
+});
+
+test('the kinds that stay uniaxial do not offer the biaxial crystals', { timeout: 60000 }, async () => {
+  await withPage(async (page) => {
+    const shown = async () => page.$$eval(`${field('material')} option`, (os) => os.filter((o) => !o.hidden).map((o) => o.value));
+    await page.selectOption(field('kind'), 'waveplate');
+    for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `waveplate offers ${k}`);
+    await page.selectOption(field('kind'), 'prism-polarizer');
+    for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok(!(await shown()).includes(k), `the polarizer hides ${k}`);
+  });
+});
+
+test('a link carries a biaxial design\'s crystal and its cut or plane', { timeout: 120000 }, async () => {
+  for (const [kind, entries, select] of [
+    ['waveplate', [['material', 'principal'], ['nx', 1.5], ['ny', 1.52], ['nz', 1.6], ['cut', 'z'], ['retardance_waves', 0.25]], 'cut'],
+    ['displacer', [['material', 'bibo'], ['plane', 'yz'], ['separation_mm', 2], ['samples', 0]], 'plane'],
+  ]) {
+    let link = '';
+    let said = null;
+    await withPage(async (page) => {
+      await fill(page, kind, entries);
+      // The address follows the fields (the history writes it after a pause).
+      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+      link = await page.evaluate(() => location.hash);
+      said = await page.evaluate(() => window.doublespar.designRequest());
+    });
+    await openAt(env, `/${link}`, async ({ page }) => {
+      assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), said, `${kind}: the link gives the same request`);
+      assert.ok(await page.locator(field(select)).isVisible(), `${kind}: the ${select} is shown`);
+      await solveDesign(page);
+    });
+  }
+});
