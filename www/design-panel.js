@@ -4,8 +4,9 @@
 // module worker (design-worker.js, which loads pkg-design/); a displacer's Monte Carlo run
 // arrives in chunks with progress (any kind's would be shown alike), and Cancel terminates the
 // worker (a new one starts). The kinds: displacer, waveplate, achromat, recombiner and the prism
-// kinds angular-splitter, prism-polarizer, tilt-tuning, the quartz-rotator and the
-// athermal-waveplate (DEVELOPERS.md, "Design requests"); every kind has a temperature field
+// kinds angular-splitter, prism-polarizer, tilt-tuning, the quartz-rotator, the
+// athermal-waveplate, the birefringent-filter and the broadband-retarder (DEVELOPERS.md, "Design
+// requests"); every kind has a temperature field
 // (`temperature_c`, sent when it is not 20 °C) and a Temperature card of the design's changes per
 // kelvin. Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
@@ -27,7 +28,7 @@ import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { materialName } from './state.js';
-import { achromatResults, adviceLists, adviceOf, athermalResults, displacerResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -39,9 +40,11 @@ const DESIGN_KINDS = [
   ['tilt-tuning', 'tilt-tuned waveplate'],
   ['quartz-rotator', 'quartz rotator'],
   ['athermal-waveplate', 'athermal waveplate pair'],
+  ['birefringent-filter', 'birefringent filter'],
+  ['broadband-retarder', 'broadband retarder'],
 ];
 // The material a kind starts from, until the user picks one (common choices for each part).
-const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz' };
+const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz', 'birefringent-filter': 'quartz', 'broadband-retarder': 'quartz' };
 // The tolerances each kind's request has (the rows of the one tolerances group it shows).
 const TOLERANCES = { displacer: ['tilt_deg', 'incidence_deg', 'thickness_mm', 'wavelength_nm'], 'angular-splitter': ['wedge_deg', 'axis_deg', 'incidence_deg'] };
 
@@ -214,6 +217,20 @@ function buildDesignFields(state) {
     hint: 'The acceptance is the incidence at which a linear input leaves beyond either tolerance.',
   });
 
+  // The birefringent filter and the broadband retarder (starting values: the core's defaults,
+  // src/contract/request/filter.rs and broadband.rs, and a start where the core has none).
+  const layout = addField(state, 'layout', {
+    label: 'Layout', spoken: 'Layout of the filter', kind: 'select',
+    options: [['stage-doubling', 'stage-doubling: plates d, 2d, 4d …'], ['folded', 'folded: equal plates at ±45°/N']],
+    hint: 'Stage-doubling: every plate behind a polarizer parallel to the first. Folded: between crossed polarizers.',
+  });
+  const stages = addField(state, 'stages', { label: 'Plates', spoken: 'Number of plates of the filter', value: 4, step: 1, hint: '1 to 8 stage-doubling, 2 to 10 folded.' });
+  const bandwidth = addField(state, 'bandwidth_nm', { label: 'Pass band (FWHM)', spoken: 'Width of the pass band', unit: 'nm', value: 1 });
+  const plateCount = addField(state, 'plates', { label: 'Plates', spoken: 'Number of plates of the retarder', value: 3, step: 1, hint: '2 to 7 plates of this crystal; plates of different crystals are asked in a JSON request ("materials").' });
+  const fastAxis = addField(state, 'fast_axis_deg', { label: 'Fast axis', spoken: 'Fast axis of the retarder', unit: '°', value: 0 });
+  const maxThick = addField(state, 'max_thickness_mm', { label: 'Thickest plate', spoken: 'Thickest plate searched', unit: 'mm', placeholder: 'two full waves' });
+  const generations = addField(state, 'generations', { label: 'Search generations', value: 1000, step: 100, hint: '10 to 5000; the search is deterministic for its seed.' });
+
   // Every kind: the temperature the part works at (the core's default 20 °C, range −200 to 500).
   const temperature = addField(state, 'temperature_c', {
     label: 'Temperature', spoken: 'Temperature the part works at', unit: '°C', value: 20,
@@ -231,6 +248,8 @@ function buildDesignFields(state) {
   state.design.layout['quartz-rotator'] = [rotation.row, wl.row, band, hand.row, minThick.row, rotTol.row, ellTol.row, maxInc.row];
   state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
   state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
+  state.design.layout['birefringent-filter'] = [...medium.nodes, layout.row, stages.row, wl.row, bandwidth.row, band];
+  state.design.layout['broadband-retarder'] = [...medium.nodes, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
   // The temperature beside the wavelength, as in the set-up (after the design wavelengths of a pair).
   for (const nodes of Object.values(state.design.layout)) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
@@ -256,6 +275,8 @@ function buildDesignFields(state) {
     acceptance_error_waves: 'The temperature band is where the retardance stays within this error of its value at the design temperature.',
   };
   state.design.hints['quartz-rotator'] = { band: 'Empty: ±10 % around the design wavelength.' };
+  state.design.hints['birefringent-filter'] = { band: 'Of the transmission curve; empty: out to the neighbouring peaks.' };
+  state.design.hints['broadband-retarder'] = { band: 'Required: the band over which the retardance must hold.' };
   state.design.hints.achromat = { band: 'Empty: from 0.8 × λ₁ to 1.2 × λ₂.' };
   state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
   state.design.bandBox = band;
@@ -431,6 +452,22 @@ function designRequest(state) {
       put('wavelength_nm');
       put('acceptance_error_waves');
     }
+  } else if (kind === 'birefringent-filter') {
+    Object.assign(req, medium(''));
+    req.layout = state.design.fields.layout.value;
+    put('stages');
+    put('wavelength_nm');
+    put('bandwidth_nm');
+    pair('band_nm');
+  } else if (kind === 'broadband-retarder') {
+    Object.assign(req, medium(''));
+    put('plates');
+    put('retardance_waves');
+    put('fast_axis_deg');
+    pair('band_nm');
+    put('max_thickness_mm');
+    put('generations');
+    put('seed');
   } else if (kind === 'recombiner') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -616,6 +653,45 @@ function plotsFor(state, kind, d, request, run) {
       }), dark),
     })];
   }
+  if (kind === 'birefringent-filter') {
+    const c = d.curve;
+    const [short, long] = d.neighbour_peaks_nm;
+    return [designPlot('transmission-wavelength', {
+      wide: true,
+      label: `Transmission of the filter against wavelength, ${trimmed(c[0][0], 2)} to ${trimmed(c[c.length - 1][0], 2)} nm: ${g(d.peak_transmission)} at the centre ${trimmed(d.wavelength_nm, 3)} nm (marked), pass band ${g(d.fwhm_nm)} nm wide${short ? `; neighbouring peaks at ${g(short, 5)}` : ''}${long ? ` and ${g(long, 5)} nm` : ''}.`,
+      caption: 'Light polarized along the first polarizer, every point a whole trace of the filter.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Transmission against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'transmission', y_unit: 'fraction',
+        points: c, current: [d.wavelength_nm, d.peak_transmission], note: `${d.layout}, ${d.plates.length} plates`,
+      }), dark),
+    })];
+  }
+  if (kind === 'broadband-retarder') {
+    const c = d.curve;
+    const ret = c.map((q) => [q.wavelength_nm, q.retardance_waves]);
+    const axis = c.map((q) => [q.wavelength_nm, q.fast_axis_deg]);
+    const [lo, hi] = d.band_nm;
+    return [designPlot('retardance-wavelength', {
+      wide: true,
+      label: `Retardance of the stack against wavelength, ${trimmed(lo, 2)} to ${trimmed(hi, 2)} nm: within ±${g(d.departures.retardance_waves, 3)} waves of the target ${d.target_retardance_waves}; a single zero-order plate departs by ${g(d.single_plate.departures.retardance_waves, 3)} waves.`,
+      caption: 'The equivalent retarder of the stack at normal incidence.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Retardance against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'retardance', y_unit: 'waves',
+        points: ret, current: null, note: `${d.plates.length} plates`,
+      }), dark),
+    }), designPlot('fast-axis-wavelength', {
+      small: true,
+      label: `Fast axis of the stack against wavelength: within ±${g(d.departures.fast_axis_deg, 3)}° of the target ${d.target_fast_axis_deg}°.`,
+      caption: `Drift within ±${g(d.departures.fast_axis_deg, 3)}°.`,
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Fast axis against wavelength',
+        x_label: 'wavelength', x_unit: 'nm', y_label: 'fast axis', y_unit: '°',
+        points: axis, current: null, note: 'equivalent retarder',
+      }), dark),
+    })];
+  }
   if (kind === 'tilt-tuning') {
     const c = d.curve;
     const pts = c.tilt_deg.map((x, i) => [x, c.retardance_waves[i]]);
@@ -714,6 +790,7 @@ const RESULTS = {
   displacer: displacerResults, waveplate: waveplateResults, achromat: achromatResults, recombiner: recombinerResults,
   'angular-splitter': splitterResults, 'prism-polarizer': polarizerResults, 'tilt-tuning': tiltResults,
   'quartz-rotator': rotatorResults, 'athermal-waveplate': athermalResults,
+  'birefringent-filter': filterResults, 'broadband-retarder': broadbandResults,
 };
 
 /** Writes the shown design: its results as text, then its plots. */

@@ -606,3 +606,76 @@ export function rotatorResults(state, d) {
     ], { note: 'Every linear input, any plane of incidence, by the exact trace: off the axis the plate turns birefringent within a degree or so.' }),
   ];
 }
+
+/**
+ * The birefringent filter (src/design/filter.rs): its plates and polarizers, the pass band met
+ * against the one asked, the neighbouring peaks and the centre's drift with temperature.
+ */
+export function filterResults(state, d) {
+  const p = d.plates;
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `${p.length} ${designMaterialName(state, d.scenario.elements[1]?.material ?? 'custom')} plates, the thinnest `,
+    dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
+    d.layout === 'folded' ? ' each, between crossed polarizers; pass band ' : ' and each next one twice as thick, each behind a polarizer parallel to the first; pass band ',
+    dq(d, 'fwhm_nm', formats.nm, 'strong'),
+    ' wide.',
+  );
+  const rows = p.map((_, i) => [`plate ${i + 1}`, `plates.${i}.thickness_mm`, formats.length]);
+  p.forEach((_, i) => rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]));
+  return [
+    headline,
+    resultCard(d, 'What to order', [...rows, ['crystal in all', 'total_thickness_mm', formats.length]], { className: 'design-main', note: 'Optic axes in the faces; the polarizers are in the order sheet.' }),
+    resultCard(d, 'Pass band', [
+      ['centre', 'wavelength_nm', formats.nm],
+      ['width met (FWHM)', 'fwhm_nm', formats.nm],
+      ['width asked', 'bandwidth_nm', formats.nm],
+      ['thinnest plate\'s order', 'order', formats.count],
+      ['peak transmission', 'peak_transmission', formats.fraction],
+      ['next peak, shorter', 'neighbour_peaks_nm.0', formats.nm],
+      ['next peak, longer', 'neighbour_peaks_nm.1', formats.nm],
+      ['centre drift', 'centre_shift_nm_per_k', formats.sig('nm/K', 3)],
+    ], { note: 'Orders are whole, so the width met is the nearest the filter can give; peak transmission of light along the first polarizer.' }),
+  ];
+}
+
+/**
+ * The broadband retarder (src/design/broadband.rs): its plates, the worst departures over the
+ * band beside the classic design and a single plate, and how the search ran.
+ */
+export function broadbandResults(state, d) {
+  const p = d.plates;
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    `${p.length} plates whose stack holds ${trimmed(d.target_retardance_waves, 4)} waves within `,
+    dq(d, 'departures.retardance_waves', formats.sig('waves', 3), 'strong'),
+    ` from ${trimmed(d.band_nm[0], 2)} to ${trimmed(d.band_nm[1], 2)}${NBSP}nm.`,
+  );
+  const rows = [];
+  p.forEach((q, i) => {
+    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
+    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
+    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
+  });
+  const departures = (path) => [
+    ['retardance within ±', `${path}.retardance_waves`, formats.sig('waves', 3)],
+    ['fast axis within ±', `${path}.fast_axis_deg`, formats.sig('°', 3)],
+    ['rotation up to', `${path}.rotation_deg`, formats.sig('°', 3)],
+  ];
+  const cards = [
+    headline,
+    resultCard(d, 'What to order', rows, { className: 'design-main', note: 'Plates stacked in this order, optic axes in the faces.' }),
+    resultCard(d, 'Over the band', departures('departures'), { note: 'The stack as one equivalent retarder; a half-wave target reports no rotation (a rotation and a turn of the axis are then the same).' }),
+  ];
+  if (d.classic) cards.push(resultCard(d, 'The classic design', departures('classic.departures'), { note: d.classic.name }));
+  cards.push(resultCard(d, 'A single zero-order plate', departures('single_plate.departures')));
+  cards.push(resultCard(d, 'Search', [
+    ['method', 'search.method', formats.text],
+    ['candidates', 'search.population', formats.count],
+    ['generations', 'search.generations', formats.count],
+    ['seed', 'search.seed', formats.count],
+  ]));
+  return cards;
+}

@@ -406,6 +406,19 @@ function orderRows(shown, materialList) {
     rows.push(...tiltRows(d, r, materialList));
   } else if (d.kind === 'quartz-rotator') {
     rows.push(...rotatorRows(d, materialList));
+  } else if (d.kind === 'birefringent-filter') {
+    const plates = d.plates ?? [];
+    rows.push(...materialRows(d.scenario?.elements?.[1]?.material ?? 'custom', 'Material', materialList));
+    rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)}`).join('; ')} (as made at 20 °C)`]);
+    rows.push(['Cut', `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}; polarizers at ${(d.polarizers_deg ?? []).map((v) => deg(v)).join(', ')}, in order (${d.layout})`]);
+    rows.push(['Performance', `pass band ${sheetNumber(d.fwhm_nm, 4)} nm wide (FWHM) at ${nm(d.wavelength_nm)}; neighbouring peaks at ${(d.neighbour_peaks_nm ?? []).map((v) => (typeof v === 'number' ? nm(v) : 'none')).join(' and ')}`]);
+  } else if (d.kind === 'broadband-retarder') {
+    const plates = d.plates ?? [];
+    plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));
+    rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)}`).join('; ')} (as made at 20 °C), stacked in this order`]);
+    rows.push(['Cut', `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}`]);
+    const dep = d.departures ?? {};
+    rows.push(['Performance', `retardance ${sheetNumber(d.target_retardance_waves, 4)} waves within ±${sheetNumber(dep.retardance_waves, 3)} waves and fast axis within ±${sheetNumber(dep.fast_axis_deg, 3)}° from ${nm(d.band_nm?.[0])} to ${nm(d.band_nm?.[1])}`]);
   } else if (d.kind === 'athermal-waveplate') {
     const plates = d.plates ?? [];
     plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));

@@ -1,0 +1,70 @@
+// End-to-end tests of the design panel's birefringent filter and broadband retarder
+// (www/design-panel.js): the request filled in through the panel's controls and solved in its
+// worker gives the command line's answer (tests/cli/design/golden), its plots are drawn, the
+// order sheet names the plates, "Use this part" loads them, and a bad value is named beside its
+// field with every entry kept.
+//
+// Run: `cd tests/e2e && node --test design-filters.test.mjs` (after scripts/build-web.sh and
+// `cargo build --release --bin doublespar`).
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { useBrowser, withPage as openAt, solveDesign, close, quantities, waitScenario } from './support.mjs';
+import { golden, fill, expectDesign, expectPlots, expectFieldError, orderSheet, expectRow } from './design-support.mjs';
+
+const env = useBrowser({ cli: true });
+const withPage = (body) => openAt(env, '/', ({ page }) => body(page));
+
+test('a stage-doubling filter from the panel is the command line\'s, drawn and loaded', { timeout: 120000 }, async () => {
+  const { request, design } = golden('filter-mgf2-stage-doubling');
+  await withPage(async (page) => {
+    await fill(page, 'birefringent-filter', [['material', request.material], ['layout', request.layout], ['stages', request.stages],
+      ['wavelength_nm', request.wavelength_nm], ['bandwidth_nm', request.bandwidth_nm]]);
+    await solveDesign(page);
+    assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), request, 'the request the fields say');
+    await expectDesign(page, design, ['plates.0.thickness_mm', 'plates.3.thickness_mm', 'order', 'total_thickness_mm', 'wavelength_nm'], 'filter');
+    const shown = (await page.evaluate(() => window.doublespar.designShown())).design;
+    assert.ok(close(shown.fwhm_nm, design.fwhm_nm, 1e-9), `pass band: page ${shown.fwhm_nm}, command line ${design.fwhm_nm}`);
+    await expectPlots(page, ['transmission-wavelength'], 'filter');
+    expectRow(await orderSheet(page), 'Performance', ['pass band', 'FWHM'], 'filter');
+    await page.click('#design-use');
+    const kinds = design.scenario.elements.map((e) => e.kind).join();
+    const sc = await waitScenario(page, (x) => x.elements.map((e) => e.kind).join() === kinds, 'the set-up holds the plates and polarizers');
+    sc.elements.forEach((e, i) => {
+      if (e.kind === 'crystal') assert.ok(close(e.thickness_mm, design.scenario.elements[i].thickness_mm), `element ${i}`);
+    });
+    await fill(page, 'birefringent-filter', [['layout', 'folded']]);
+    await expectFieldError(page, ['stages', 11], 'stages', 'eleven folded plates');
+  });
+});
+
+test('a broadband retarder from the panel is the command line\'s to the search\'s precision, with its plots', { timeout: 120000 }, async () => {
+  const { request, design } = golden('broadband-quartz-half');
+  await withPage(async (page) => {
+    await fill(page, 'broadband-retarder', [['material', request.material], ['plates', request.plates], ['retardance_waves', request.retardance_waves],
+      ['band_nm[0]', request.band_nm[0]], ['band_nm[1]', request.band_nm[1]]]);
+    await solveDesign(page);
+    const req = await page.evaluate(() => window.doublespar.designRequest());
+    assert.deepEqual({ ...req, fast_axis_deg: undefined, generations: undefined, seed: undefined },
+      { ...request, fast_axis_deg: undefined, generations: undefined, seed: undefined }, 'the request the fields say');
+    const shown = (await page.evaluate(() => window.doublespar.designShown())).design;
+    // The search is deterministic, but the page's and the command line's maths libraries may
+    // round a comparison between two nearly equal candidates differently: compared to 1e-6.
+    for (const k of ['retardance_waves', 'fast_axis_deg', 'distance']) {
+      assert.ok(close(shown.departures[k], design.departures[k], 1e-6, 1e-9), `${k}: page ${shown.departures[k]}, command line ${design.departures[k]}`);
+    }
+    assert.ok(shown.departures.retardance_waves < shown.classic.departures.retardance_waves, 'better than the classic design');
+    // Every number shown, to the same precision.
+    const at = (p) => p.split('.').reduce((v, k) => v?.[k], design);
+    const shownNumbers = (await quantities(page)).filter(([p]) => p.startsWith('design.'));
+    assert.ok(shownNumbers.length > 15, 'the cards show the plates and departures');
+    for (const [p, v] of shownNumbers) {
+      const want = at(p.slice('design.'.length));
+      if (typeof want === 'number') assert.ok(close(Number(v), want, 1e-6, 1e-9), `${p}: page ${v}, command line ${want}`);
+      else assert.equal(v, String(want), p);
+    }
+    await expectPlots(page, ['retardance-wavelength', 'fast-axis-wavelength'], 'broadband retarder');
+    expectRow(await orderSheet(page), 'Performance', ['within ±'], 'broadband retarder');
+    await expectFieldError(page, ['plates', 9], 'plates', 'nine plates');
+  });
+});
