@@ -99,3 +99,79 @@ fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::geometry::Plane;
+    use crate::optics::interface::Losses;
+    use crate::optics::jones;
+    use crate::optics::material::Indices;
+    use crate::optics::stack::{Contact, Element, Faces, InputBeam, Layer, Medium, Slab};
+    use crate::optics::uniaxial::{OpticAxis, Uniaxial};
+    use crate::optics::wavelength::Wavelength;
+
+    /// Two calcite-like wedges with crossed axes, contacted on a face tilted by 27°: the
+    /// benchmark's kind of splitter.
+    fn splitter() -> Stack {
+        let calcite = |az: f64| {
+            Medium::Uniaxial(Uniaxial::new(
+                Indices::new(1.6557, 1.4849).unwrap(),
+                OpticAxis::from_angles(90f64.to_radians(), az.to_radians()),
+            ))
+        };
+        let inner = Plane {
+            normal: direction(27f64.to_radians(), 0.0),
+            point: Vector3::new(0.0, 0.0, 4.5),
+        };
+        let faces = |front, back, contact| Faces {
+            front,
+            back,
+            aperture: None,
+            contact,
+        };
+        let slab = |medium, gap_mm, faces| Layer {
+            gap_mm,
+            element: Element::Slab(Slab {
+                medium,
+                thickness_mm: 3.5,
+                faces: Some(faces),
+            }),
+        };
+        let j = jones::linear(45f64.to_radians());
+        Stack {
+            wavelength: Wavelength::from_nm(632.8).unwrap(),
+            outside_index: 1.0,
+            losses: Losses::Ideal,
+            input: InputBeam {
+                direction: Vector3::z(),
+                diameter_mm: 1.0,
+                jones: Some(j),
+                stokes: jones::stokes(&j),
+            },
+            layers: vec![
+                slab(calcite(0.0), 1.0, faces(Plane::across_z(1.0), inner, Contact::Outside)),
+                slab(calcite(90.0), 0.0, faces(inner, Plane::across_z(8.0), Contact::Direct)),
+            ],
+            screen_mm: 0.0,
+        }
+    }
+
+    /// The samples split over threads (two, three, seven) give the one-thread checksums of both
+    /// workloads but for the order of the additions.
+    #[test]
+    fn threads_sum_what_one_thread_sums() {
+        let st = splitter();
+        for work in [Workload::Trace, Workload::Split] {
+            let one = run(&st, 300, work);
+            assert!(one.is_finite() && one > 0.0, "{work:?}: {one}");
+            for threads in [2, 3, 7] {
+                let many = run_on(&st, 300, work, threads);
+                assert!(
+                    (one - many).abs() <= 1e-12 * one.abs(),
+                    "{work:?} on {threads}: {one} vs {many}"
+                );
+            }
+        }
+    }
+}
