@@ -63,7 +63,7 @@ pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
 pub use optics::trace::trace as trace_stack;
 pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
 pub use optics::wavelength::Wavelength;
-pub use optics::workload::{Workload, run as run_workload};
+pub use optics::workload::{Workload, run as run_workload, run_on as run_workload_on};
 
 // Design.
 pub use design::recombiner::{MAX_PHASE_ERROR as RECOMBINER_MAX_PHASE_ERROR, MIN_OVERLAP as RECOMBINER_MIN_OVERLAP};

@@ -26,9 +26,9 @@ use crate::optics::anisotropic::Anisotropic;
 use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::modes::{ModeKind, Travel, wave_vector_across};
-use crate::optics::stack::{Contact, Element, Medium, Stack};
+use crate::optics::stack::{Aperture, Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
-use nalgebra::Vector3;
+use nalgebra::{Matrix3, Vector3};
 
 /// Where a labelled ray ends: what the full trace reports for it.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -43,10 +43,24 @@ pub struct ChainEnd {
 #[derive(Debug, Clone, Copy)]
 enum In {
     Isotropic(f64),
-    Crystal(Uniaxial, ModeKind),
+    /// A uniaxial crystal's ordinary wave: an isotropic medium of index n_o for the wave vector.
+    Ordinary(f64),
+    /// A uniaxial crystal's extraordinary wave: n_o and the extraordinary surface A
+    /// ([`Uniaxial::extraordinary_surface`]), found once per crystal.
+    Extraordinary(f64, Matrix3<f64>),
     /// A general crystal in the mode of a slot (its wave vector and ray direction found by the
     /// 4×4 solver in each face's frame, as the whole trace finds them).
     General(Anisotropic, ModeKind),
+}
+
+impl In {
+    /// The uniaxial crystal `c` in mode `kind`.
+    fn crystal(c: &Uniaxial, kind: ModeKind) -> In {
+        match kind {
+            ModeKind::Ordinary => In::Ordinary(c.indices.no),
+            ModeKind::Extraordinary => In::Extraordinary(c.indices.no, c.extraordinary_surface()),
+        }
+    }
 }
 
 /// A ray in flight: where it is, its wave vector (lab frame) and the medium it is in.
@@ -62,8 +76,8 @@ struct Ray {
 impl Ray {
     /// Unit direction of travel (of energy).
     fn direction(&self) -> Vector3<f64> {
-        match self.medium {
-            In::Crystal(c, ModeKind::Extraordinary) => (c.extraordinary_surface() * self.q).normalize(),
+        match &self.medium {
+            In::Extraordinary(_, a) => (a * self.q).normalize(),
             In::General(..) => self.energy.unwrap_or_else(|| self.q.normalize()),
             _ => self.q.normalize(),
         }
@@ -78,20 +92,17 @@ impl Ray {
 
     /// Crosses a face of unit normal `normal` into `into`; `None` when that mode is evanescent
     /// beyond it (total internal reflection).
-    fn cross(mut self, normal: Vector3<f64>, into: In) -> Option<Ray> {
+    fn cross(mut self, normal: Vector3<f64>, into: &In) -> Option<Ray> {
         self.q = match into {
-            In::Isotropic(n) => wave_vector_across(self.q, normal, n, None)?,
-            In::Crystal(c, ModeKind::Ordinary) => wave_vector_across(self.q, normal, c.indices.no, None)?,
-            In::Crystal(c, ModeKind::Extraordinary) => {
-                wave_vector_across(self.q, normal, c.indices.no, Some(&c.extraordinary_surface()))?
-            }
+            In::Isotropic(n) | In::Ordinary(n) => wave_vector_across(self.q, normal, *n, None)?,
+            In::Extraordinary(no, a) => wave_vector_across(self.q, normal, *no, Some(a))?,
             In::General(a, kind) => {
                 // The slot's forward mode in the face's frame, brought back to the lab frame.
                 let frame = face_frame(normal);
                 let qf = frame.transpose() * self.q;
                 let local = a.rotated(&frame.transpose());
                 let modes = general_modes(&local, [qf.x, qf.y], Travel::Forward);
-                let mode = modes[usize::from(kind == ModeKind::Extraordinary)].rotated(&frame);
+                let mode = modes[usize::from(*kind == ModeKind::Extraordinary)].rotated(&frame);
                 if !mode.propagating {
                     return None;
                 }
@@ -99,7 +110,7 @@ impl Ray {
                 mode.wave_vector()
             }
         };
-        self.medium = into;
+        self.medium = *into;
         Some(self)
     }
 }
@@ -111,66 +122,115 @@ fn next_mode(medium: Medium, letters: &mut std::str::Chars) -> Option<In> {
     let slot = medium.letters().iter().position(|&c| c == letter)?;
     let kind = [ModeKind::Ordinary, ModeKind::Extraordinary][slot];
     Some(match medium {
-        Medium::Uniaxial(c) => In::Crystal(c, kind),
+        Medium::Uniaxial(c) => In::crystal(&c, kind),
         Medium::Anisotropic(a) => In::General(a, kind),
     })
+}
+
+/// One step of a chain.
+#[derive(Debug, Clone, Copy)]
+enum Step {
+    /// Across a face of this unit normal into a medium.
+    Cross(Vector3<f64>, In),
+    /// Along the ray to a plane, staying within an aperture (when there is one) there.
+    Travel(Plane, Option<Aperture>),
+}
+
+/// The chain of one labelled ray through one stack, its steps found once (faces placed, modes
+/// chosen, extraordinary surfaces formed), to be followed for any incident direction: what a
+/// sweep or a benchmark over incidences needs, without the set-up per incidence.
+#[derive(Debug, Clone)]
+pub struct ChainPlan {
+    outside_index: f64,
+    steps: Vec<Step>,
+    /// The screen plane z.
+    screen_z: f64,
+}
+
+impl ChainPlan {
+    /// The plan of the ray labelled `label` through `stack`; `None` when the label does not fit
+    /// the stack (a letter no crystal's mode has, or one letter too few or too many).
+    pub fn new(stack: &Stack, label: &str) -> Option<ChainPlan> {
+        let outside = In::Isotropic(stack.outside_index);
+        let mut letters = label.chars();
+        let mut steps = Vec::with_capacity(4 * stack.layers.len() + 1);
+        // The back face normal of a slab the ray waits at, its exit decided by the next element.
+        let mut pending: Option<Vector3<f64>> = None;
+        let mut z = 0.0;
+        for layer in &stack.layers {
+            z += layer.gap_mm;
+            let (contact, slab) = match layer.element {
+                Element::Slab(s) => (s.faces.map_or(Contact::Outside, |f| f.contact), Some(s)),
+                Element::Ideal(_) | Element::Cell(_) => (Contact::Outside, None),
+            };
+            if let (Some(back), Contact::Outside) = (pending, contact) {
+                steps.push(Step::Cross(back, outside));
+                pending = None;
+            }
+            let Some(slab) = slab else {
+                steps.push(Step::Travel(Plane::across_z(z), None));
+                continue;
+            };
+            let faces = slab.placed_faces(z);
+            let mode = next_mode(slab.medium, &mut letters)?;
+            if pending.take().is_some() {
+                if let Contact::Film(n) = contact {
+                    steps.push(Step::Cross(faces.front.normal, In::Isotropic(n)));
+                }
+            } else {
+                steps.push(Step::Travel(faces.front, faces.aperture));
+            }
+            steps.push(Step::Cross(faces.front.normal, mode));
+            steps.push(Step::Travel(faces.back, faces.aperture));
+            pending = Some(faces.back.normal);
+            z += slab.thickness_mm;
+        }
+        if let Some(back) = pending {
+            steps.push(Step::Cross(back, outside));
+        }
+        if letters.next().is_some() {
+            return None;
+        }
+        Some(ChainPlan {
+            outside_index: stack.outside_index,
+            steps,
+            screen_z: z + stack.screen_mm,
+        })
+    }
+
+    /// Where the ray ends when the stack is lit along the unit vector `incident`; `None` when it
+    /// does not leave (total internal reflection, outside an aperture, or it never meets the
+    /// screen plane).
+    pub fn follow(&self, incident: Vector3<f64>) -> Option<ChainEnd> {
+        let mut ray = Ray {
+            at: Vector3::zeros(),
+            q: incident * self.outside_index,
+            medium: In::Isotropic(self.outside_index),
+            energy: None,
+        };
+        for step in &self.steps {
+            ray = match step {
+                Step::Cross(normal, into) => ray.cross(*normal, into)?,
+                Step::Travel(plane, aperture) => {
+                    ray.travel(plane).filter(|r| aperture.is_none_or(|a| a.holds(r.at)))?
+                }
+            };
+        }
+        let direction = ray.direction();
+        Plane::across_z(self.screen_z).meet_line(ray.at, direction)?;
+        Some(ChainEnd {
+            direction,
+            exit_point_mm: ray.at,
+        })
+    }
 }
 
 /// Follows the ray labelled `label` (one letter, `o` or `e`, per crystal) through `stack`: its
 /// direction and exit point, or `None` when the trace has no such ray (a mode evanescent at a
 /// face, a face or aperture missed, the screen parallel to it, a label of the wrong length).
+/// The same as [`ChainPlan::new`] then [`ChainPlan::follow`] along the stack's incidence.
 pub fn chain(stack: &Stack, label: &str) -> Option<ChainEnd> {
-    let outside = In::Isotropic(stack.outside_index);
-    let mut letters = label.chars();
-    let mut ray = Ray {
-        at: Vector3::zeros(),
-        q: stack.input.direction * stack.outside_index,
-        medium: outside,
-        energy: None,
-    };
-    // The back face normal of a slab the ray waits at, its exit decided by the next element.
-    let mut pending: Option<Vector3<f64>> = None;
-    let mut z = 0.0;
-    for layer in &stack.layers {
-        z += layer.gap_mm;
-        let (contact, slab) = match layer.element {
-            Element::Slab(s) => (s.faces.map_or(Contact::Outside, |f| f.contact), Some(s)),
-            Element::Ideal(_) | Element::Cell(_) => (Contact::Outside, None),
-        };
-        if let (Some(back), Contact::Outside) = (pending, contact) {
-            ray = ray.cross(back, outside)?;
-            pending = None;
-        }
-        let Some(slab) = slab else {
-            ray = ray.travel(&Plane::across_z(z))?;
-            continue;
-        };
-        let faces = slab.placed_faces(z);
-        let held = |r: &Ray| faces.aperture.is_none_or(|a| a.holds(r.at));
-        let mode = next_mode(slab.medium, &mut letters)?;
-        if pending.take().is_some() {
-            if let Contact::Film(n) = contact {
-                ray = ray.cross(faces.front.normal, In::Isotropic(n))?;
-            }
-        } else {
-            ray = ray.travel(&faces.front).filter(held)?;
-        }
-        ray = ray.cross(faces.front.normal, mode)?.travel(&faces.back).filter(held)?;
-        pending = Some(faces.back.normal);
-        z += slab.thickness_mm;
-    }
-    if let Some(back) = pending {
-        ray = ray.cross(back, outside)?;
-    }
-    if letters.next().is_some() {
-        return None;
-    }
-    let direction = ray.direction();
-    Plane::across_z(z + stack.screen_mm).meet_line(ray.at, direction)?;
-    Some(ChainEnd {
-        direction,
-        exit_point_mm: ray.at,
-    })
+    ChainPlan::new(stack, label)?.follow(stack.input.direction)
 }
 
 #[cfg(test)]
@@ -342,6 +402,39 @@ mod tests {
         assert!(counts[0] > 4000 && counts[1] > 4000, "through, missing: {counts:?}");
     }
 
+    /// The letters of each crystal's two modes, in order.
+    fn letters_of(stack: &Stack) -> Vec<[char; 2]> {
+        stack
+            .layers
+            .iter()
+            .filter_map(|l| match l.element {
+                Element::Slab(s) => Some(s.medium.letters()),
+                Element::Ideal(_) | Element::Cell(_) => None,
+            })
+            .collect()
+    }
+
+    /// A plan made once and followed at many incidences gives, number for number, what the chain
+    /// of the stack lit at each of them gives (which the tests above hold to the whole trace).
+    #[test]
+    fn a_plan_followed_at_many_incidences_is_the_chain_at_each() {
+        let mut rng = Rng::new(41);
+        for case in 0..300 {
+            let mut stack = random_stack(&mut rng, case % 3 == 0);
+            let letters = letters_of(&stack);
+            let label: String = [letters[0][case % 2], letters[1][(case / 2) % 2]].iter().collect();
+            let plan = ChainPlan::new(&stack, &label).unwrap();
+            for k in 0..5 {
+                stack.input.direction = direction(0.05 * k as f64, 1.3 * k as f64);
+                assert_eq!(
+                    plan.follow(stack.input.direction),
+                    chain(&stack, &label),
+                    "case {case} {label} {k}"
+                );
+            }
+        }
+    }
+
     /// The same for biaxial and optically active crystals (the 4×4 solver in each face's frame):
     /// the chain's rays, labelled with the crystals' own letters, are the whole trace's.
     #[test]
@@ -351,14 +444,7 @@ mod tests {
         for case in 0..600 {
             let stack = random_stack(&mut rng, true);
             let traced = trace_planar(&stack);
-            let letters: Vec<[char; 2]> = stack
-                .layers
-                .iter()
-                .filter_map(|l| match l.element {
-                    Element::Slab(s) => Some(s.medium.letters()),
-                    Element::Ideal(_) | Element::Cell(_) => None,
-                })
-                .collect();
+            let letters = letters_of(&stack);
             for (a, b) in [(0, 0), (0, 1), (1, 0), (1, 1)] {
                 let label: String = [letters[0][a], letters[1][b]].iter().collect();
                 same_end(&stack, &traced, &label, case, &mut counts);

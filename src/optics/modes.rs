@@ -300,14 +300,43 @@ pub fn wave_vector_across(
 /// Both modes (ordinary, then extraordinary) of `crystal` at tangential wave vector `qt`,
 /// travelling along `travel`.
 pub fn crystal_modes(crystal: &Uniaxial, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+    let surfaces = CrystalSurfaces::of(crystal);
+    crystal_modes_with(crystal, &surfaces, qt, travel)
+}
+
+/// A uniaxial crystal's two matrices that its modes use at every tangential wave vector: the
+/// extraordinary surface A ([`Uniaxial::extraordinary_surface`]) and ε⁻¹
+/// ([`Uniaxial::inverse_permittivity`]), formed once for a crystal whose modes are solved many
+/// times in one frame (the faces of a stack traced over many incidences).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CrystalSurfaces {
+    /// The extraordinary surface A.
+    pub surface: Matrix3<f64>,
+    /// The inverse relative permittivity ε⁻¹.
+    pub inverse_permittivity: Matrix3<f64>,
+}
+
+impl CrystalSurfaces {
+    /// The matrices of `crystal`.
+    pub fn of(crystal: &Uniaxial) -> CrystalSurfaces {
+        CrystalSurfaces {
+            surface: crystal.extraordinary_surface(),
+            inverse_permittivity: crystal.inverse_permittivity(),
+        }
+    }
+}
+
+/// [`crystal_modes`] with the crystal's matrices already formed (`surfaces`, those of `crystal`):
+/// the same numbers.
+pub fn crystal_modes_with(crystal: &Uniaxial, surfaces: &CrystalSurfaces, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
     let c = crystal.axis.unit();
-    let m = crystal.extraordinary_surface();
+    let m = surfaces.surface;
     let [(qz_o, prop_o), (qz_e, prop_e)] = crystal_normals(crystal, &m, qt, travel);
     let q_o = CVector3::new(qt[0].into(), qt[1].into(), qz_o);
     let q_e = CVector3::new(qt[0].into(), qt[1].into(), qz_e);
 
     let cc = real3(c);
-    let inv_eps = crystal.inverse_permittivity();
+    let inv_eps = surfaces.inverse_permittivity;
 
     // Ordinary displacement ∥ q × c, with a fixed fallback along the optic axis.
     let d_o_of = |q: &CVector3| -> CVector3 {

@@ -29,33 +29,89 @@
 //! into the film and out of it, with no phase in between and no multiple reflection, so that total
 //! internal reflection at an air gap or a cement layer rejects a mode as in a prism polarizer.
 
+use crate::optics::anisotropic::Anisotropic;
+use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::optics::jones::JonesMatrix;
-use crate::optics::modes::{Mode, Travel, beam_basis, isotropic_modes};
+use crate::optics::modes::{CrystalSurfaces, Mode, Travel, beam_basis, crystal_modes_with, isotropic_modes};
 use crate::optics::spots::{coherency, power_of};
 use crate::optics::stack::{Contact, Element, Faces, Medium, Slab, Stack};
 use crate::optics::traced::{LayerTrace, Path, RejectReason, Rejected, Side, Trace};
+use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, POWER_ROUNDING};
 use nalgebra::{Matrix3, RowVector2, Vector3};
 use num_complex::Complex64;
 use std::cell::RefCell;
 
 /// What light meets at a face: an isotropic body of some index, or a crystal.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 enum Body {
     Isotropic(f64),
     Crystal(Medium),
 }
 
-impl Body {
-    /// Both modes (face frame) at tangential wave vector `qt`, the face frame being `frame`.
-    fn modes(&self, frame: &Matrix3<f64>, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
-        match *self {
-            Body::Isotropic(n) => isotropic_modes(n, qt, travel),
-            Body::Crystal(c) => c.rotated(&frame.transpose()).modes(qt, travel),
+/// A body seen in a face's own frame, with what its modes need formed once.
+#[derive(Debug, Clone, Copy)]
+enum Local {
+    Isotropic(f64),
+    Uniaxial(Uniaxial, CrystalSurfaces),
+    General(Anisotropic),
+}
+
+impl Local {
+    /// `body` in the frame that `to_face` (the transposed face frame) rotates the lab into.
+    fn of(body: Body, to_face: &Matrix3<f64>) -> Local {
+        match body {
+            Body::Isotropic(n) => Local::Isotropic(n),
+            Body::Crystal(c) => match c.rotated(to_face) {
+                Medium::Uniaxial(u) => Local::Uniaxial(u, CrystalSurfaces::of(&u)),
+                Medium::Anisotropic(a) => Local::General(a),
+            },
         }
     }
+
+    /// Both modes (face frame) at tangential wave vector `qt`.
+    fn modes(&self, qt: [f64; 2], travel: Travel) -> [Mode; 2] {
+        match self {
+            Local::Isotropic(n) => isotropic_modes(*n, qt, travel),
+            Local::Uniaxial(u, surfaces) => crystal_modes_with(u, surfaces, qt, travel),
+            Local::General(a) => general_modes(a, qt, travel),
+        }
+    }
+}
+
+/// A body at a face: the face's frame (columns: its axes in the lab), its transpose and the
+/// body seen in it. Found once per face and body and kept while a stack is traced (and, by a
+/// [`PlanarTracer`], from one trace to the next).
+#[derive(Debug, Clone, Copy)]
+struct Seen {
+    normal: Vector3<f64>,
+    body: Body,
+    frame: Matrix3<f64>,
+    to_face: Matrix3<f64>,
+    local: Local,
+}
+
+/// At most this many bodies at faces are kept from one trace to the next: a stack has a handful;
+/// a tracer that has met more (stacks that change from trace to trace) starts the next afresh.
+const SEEN_KEPT: usize = 32;
+
+/// The index in `seen` of `body` at the face of unit normal `normal`, added when new.
+fn seen_at(seen: &mut Vec<Seen>, normal: Vector3<f64>, body: Body) -> usize {
+    if let Some(i) = seen.iter().position(|s| s.normal == normal && s.body == body) {
+        return i;
+    }
+    let frame = face_frame(normal);
+    let to_face = frame.transpose();
+    seen.push(Seen {
+        normal,
+        body,
+        frame,
+        to_face,
+        local: Local::of(body, &to_face),
+    });
+    seen.len() - 1
 }
 
 /// Where a ray's light is.
@@ -213,17 +269,25 @@ struct Tracer<'a> {
     k0: f64,
     s_in: [f64; 4],
     trails: RefCell<Trails>,
+    seen: RefCell<Vec<Seen>>,
 }
 
 impl Tracer<'_> {
     /// Crosses a face of unit normal `normal` from `from` (the carrier's body) into `into`.
     fn cross(&self, carrier: &Carrier, from: Body, into: Body, normal: Vector3<f64>) -> Crossed {
-        let frame = face_frame(normal);
-        let q_face = frame.transpose() * carrier.q();
-        let qt = [q_face.x, q_face.y];
-        let a_fwd = from.modes(&frame, qt, Travel::Forward);
-        let a_back = from.modes(&frame, qt, Travel::Backward);
-        let b_fwd = into.modes(&frame, qt, Travel::Forward);
+        let (a_fwd, a_back, b_fwd, frame) = {
+            let mut seen = self.seen.borrow_mut();
+            let (i, j) = (seen_at(&mut seen, normal, from), seen_at(&mut seen, normal, into));
+            let (a, b) = (&seen[i], &seen[j]);
+            let q_face = a.to_face * carrier.q();
+            let qt = [q_face.x, q_face.y];
+            (
+                a.local.modes(qt, Travel::Forward),
+                a.local.modes(qt, Travel::Backward),
+                b.local.modes(qt, Travel::Forward),
+                a.frame,
+            )
+        };
         let lab = |m: &Mode| m.rotated(&frame);
         let (a_fwd_lab, b_lab) = (a_fwd.map(|m| lab(&m)), b_fwd.map(|m| lab(&m)));
         // The carrier as amplitudes of the incident modes (rows), each a functional of J_in.
@@ -370,7 +434,40 @@ struct Tally {
 /// Traces a stack whose faces may lie at any angle (every stack can be traced so; plane-parallel
 /// stacks take [`crate::optics::trace::trace`], which agrees with this to rounding).
 pub fn trace_planar(stack: &Stack) -> Trace {
-    let mut trails = Trails::default();
+    PlanarTracer::default().trace(stack)
+}
+
+/// The face-by-face tracer kept from one trace to the next: each face's frame and the media seen
+/// in it (rotated crystals with their matrices) are found once, and the trails' lists keep their
+/// room, so that tracing one stack at many incidences (a sweep, a tolerance run, a spectrum's
+/// points at one wavelength's media) sets none of it up again. The traces are those of
+/// [`trace_planar`], number for number.
+#[derive(Debug, Default)]
+pub struct PlanarTracer {
+    trails: Trails,
+    seen: Vec<Seen>,
+}
+
+impl PlanarTracer {
+    /// Traces `stack` as [`trace_planar`] does.
+    pub fn trace(&mut self, stack: &Stack) -> Trace {
+        let mut trails = std::mem::take(&mut self.trails);
+        trails.points.clear();
+        trails.letters.clear();
+        let mut seen = std::mem::take(&mut self.seen);
+        if seen.len() > SEEN_KEPT {
+            seen.clear();
+        }
+        let (traced, tracer) = trace_with(stack, trails, seen);
+        self.trails = tracer.trails.into_inner();
+        self.seen = tracer.seen.into_inner();
+        traced
+    }
+}
+
+/// The trace of `stack` with `trails` (empty, their room kept) and the bodies `seen` at faces so
+/// far; returns the trace and the tracer, whose lists the next trace takes over.
+fn trace_with(stack: &Stack, mut trails: Trails, seen: Vec<Seen>) -> (Trace, Tracer<'_>) {
     let first_point = trails.point(START, [0.0; 3]);
     let mut run = Run {
         tracer: Tracer {
@@ -378,6 +475,7 @@ pub fn trace_planar(stack: &Stack) -> Trace {
             k0: stack.wavelength.k0_per_mm(),
             s_in: stack.input.stokes,
             trails: RefCell::new(trails),
+            seen: RefCell::new(seen),
         },
         rejected: Vec::new(),
         tallies: vec![Tally::default(); stack.layers.len()],
@@ -427,13 +525,14 @@ pub fn trace_planar(stack: &Stack) -> Trace {
     flights = run.leave_pending(flights);
     run.close_slabs();
     let paths = run.onto_screen(flights, z + stack.screen_mm);
-    Trace {
+    let traced = Trace {
         paths,
         layers: run.layers,
         exit_z_mm: z,
         rejected: run.rejected,
         reflected: run.tallies.iter().map(|t| t.reflected).collect(),
-    }
+    };
+    (traced, run.tracer)
 }
 
 /// One trace in progress: the tracer and what it has booked so far.
@@ -636,10 +735,13 @@ fn body_of(slab: &Slab) -> Body {
 /// The slab's two modes just inside its front face for the incident beam (lab frame): what the
 /// element reports for its modes.
 fn front_modes(tracer: &Tracer, faces: &Faces, body: Body) -> [Mode; 2] {
-    let frame = face_frame(faces.front.normal);
-    let q = frame.transpose() * (tracer.stack.input.direction * tracer.stack.outside_index);
-    body.modes(&frame, [q.x, q.y], Travel::Forward)
-        .map(|m| m.rotated(&frame))
+    let mut seen = tracer.seen.borrow_mut();
+    let i = seen_at(&mut seen, faces.front.normal, body);
+    let at = &seen[i];
+    let q = at.to_face * (tracer.stack.input.direction * tracer.stack.outside_index);
+    at.local
+        .modes([q.x, q.y], Travel::Forward)
+        .map(|m| m.rotated(&at.frame))
 }
 
 /// Records `f` as rejected at element `idx` with its whole power.
@@ -1156,6 +1258,36 @@ mod tests {
             }
         }
         assert_close(total_power(&t, &st.input.stokes), 1.0, 1e-12, 0.0, "power accounted");
+    }
+
+    /// A tracer kept from trace to trace (faces' frames and media found once) traces every stack
+    /// exactly as a fresh one, bit for bit, also when the stacks change between traces (wedge
+    /// angles, axes, incidences, losses) and its list of faces starts afresh.
+    #[test]
+    fn a_kept_tracer_traces_as_a_fresh_one() {
+        let mut kept = PlanarTracer::default();
+        for k in 0..40 {
+            let (first, second) = contacted_wedges((5.0 + k as f64).to_radians(), 4.0);
+            let losses = if k % 2 == 0 { Losses::Ideal } else { Losses::Uncoated };
+            let st = stack(
+                0.5 * (k % 7) as f64,
+                30.0 * k as f64,
+                losses,
+                vec![
+                    slab(crystal(1.6557, 1.4849, 90.0, 0.0), 5.0, 0.0, Some(first)),
+                    slab(
+                        crystal(1.6557, 1.4849, 90.0, 90.0 - (k % 3) as f64),
+                        5.0,
+                        0.0,
+                        Some(second),
+                    ),
+                ],
+            );
+            for _ in 0..2 {
+                let (a, b) = (kept.trace(&st), trace_planar(&st));
+                assert_eq!(format!("{a:?}"), format!("{b:?}"), "stack {k}");
+            }
+        }
     }
 
     #[test]

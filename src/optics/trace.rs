@@ -5,15 +5,21 @@
 //! neither can fail: the stack was checked when it was resolved.
 
 use crate::optics::parallel::trace_parallel;
-use crate::optics::planar::trace_planar;
+use crate::optics::planar::PlanarTracer;
 use crate::optics::stack::Stack;
 pub use crate::optics::traced::Trace;
 
 /// Traces a resolved stack.
 pub fn trace(stack: &Stack) -> Trace {
+    trace_reusing(&mut PlanarTracer::default(), stack)
+}
+
+/// Traces a resolved stack as [`trace`] does, face by face with `planar`, which keeps what it
+/// found of the faces for the next trace (many incidences or samples of one stack).
+pub fn trace_reusing(planar: &mut PlanarTracer, stack: &Stack) -> Trace {
     if stack.is_plane_parallel() && !stack.holds_general_crystal() {
         trace_parallel(stack)
     } else {
-        trace_planar(stack)
+        planar.trace(stack)
     }
 }

@@ -11,12 +11,15 @@
 //!   ([`crate::optics::chain`]), what a tolerance run of a splitter needs; checksum Σᵢ of the angle
 //!   between them in degrees (samples where either is missing add nothing).
 
-use crate::optics::chain::chain;
+use crate::optics::chain::ChainPlan;
 use crate::optics::geometry::direction;
+use crate::optics::planar::PlanarTracer;
 use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
-use crate::optics::trace::trace;
+use crate::optics::trace::trace_reusing;
 use crate::optics::uniaxial::angle_between;
+use nalgebra::Vector3;
+use std::ops::Range;
 
 /// What each sample computes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -28,29 +31,147 @@ pub enum Workload {
 }
 
 /// Runs `n` samples of `work` on `stack` (its incident direction replaced sample by sample) and
-/// returns the checksum of the module header.
+/// returns the checksum of the module header, on the calling thread.
 pub fn run(stack: &Stack, n: usize, work: Workload) -> f64 {
-    let mut lit = stack.clone();
-    let mut sum = 0.0;
-    for i in 0..n {
-        let polar = (5.0 * (i as f64 + 0.5) / n as f64).to_radians();
-        let azimuth = (137.507_764_05 * i as f64).rem_euclid(360.0).to_radians();
-        lit.input.direction = direction(polar, azimuth);
-        sum += match work {
-            Workload::Trace => trace(&lit)
-                .paths
-                .iter()
-                .map(|p| {
-                    let d = p.direction;
-                    let [x, y, _] = p.exit_point_mm;
-                    power_of(&p.matrix, &lit.input.stokes) + d.x + 2.0 * d.y + 3.0 * d.z + 0.001 * (x + y)
-                })
-                .sum(),
-            Workload::Split => match (chain(&lit, "oe"), chain(&lit, "eo")) {
-                (Some(a), Some(b)) => angle_between(&a.direction, &b.direction).to_degrees(),
-                _ => 0.0,
-            },
-        };
+    run_on(stack, n, work, 1)
+}
+
+/// [`run`] on `threads` threads natively (at least one; WebAssembly always runs on the calling
+/// thread), the samples split into contiguous parts whose sums are added in order. Every sample
+/// is independent: only the order of the checksum's additions differs from one thread's.
+pub fn run_on(stack: &Stack, n: usize, work: Workload, threads: usize) -> f64 {
+    let threads = if cfg!(target_arch = "wasm32") {
+        1
+    } else {
+        threads.clamp(1, n.max(1))
+    };
+    if threads == 1 {
+        return run_part(stack, n, 0..n, work);
     }
-    sum
+    let per = n.div_ceil(threads);
+    std::thread::scope(|scope| {
+        let parts: Vec<_> = (0..threads)
+            .map(|t| scope.spawn(move || run_part(stack, n, t * per..((t + 1) * per).min(n), work)))
+            .collect();
+        // A part that panicked adds NaN: the checksum cannot pass for a right one.
+        parts.into_iter().map(|h| h.join().unwrap_or(f64::NAN)).sum()
+    })
+}
+
+/// The incident direction of sample `i` of `n` (module header).
+fn incidence(i: usize, n: usize) -> Vector3<f64> {
+    let polar = (5.0 * (i as f64 + 0.5) / n as f64).to_radians();
+    let azimuth = (137.507_764_05 * i as f64).rem_euclid(360.0).to_radians();
+    direction(polar, azimuth)
+}
+
+/// The checksum of samples `part` of `n`.
+fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 {
+    match work {
+        Workload::Trace => {
+            let mut lit = stack.clone();
+            let mut planar = PlanarTracer::default();
+            part.map(|i| {
+                lit.input.direction = incidence(i, n);
+                trace_reusing(&mut planar, &lit)
+                    .paths
+                    .iter()
+                    .map(|p| {
+                        let d = p.direction;
+                        let [x, y, _] = p.exit_point_mm;
+                        power_of(&p.matrix, &lit.input.stokes) + d.x + 2.0 * d.y + 3.0 * d.z + 0.001 * (x + y)
+                    })
+                    .sum::<f64>()
+            })
+            .sum()
+        }
+        Workload::Split => {
+            let plans = (ChainPlan::new(stack, "oe"), ChainPlan::new(stack, "eo"));
+            let (Some(oe), Some(eo)) = plans else { return 0.0 };
+            part.map(|i| {
+                let u = incidence(i, n);
+                match (oe.follow(u), eo.follow(u)) {
+                    (Some(a), Some(b)) => angle_between(&a.direction, &b.direction).to_degrees(),
+                    _ => 0.0,
+                }
+            })
+            .sum()
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::geometry::Plane;
+    use crate::optics::interface::Losses;
+    use crate::optics::jones;
+    use crate::optics::material::Indices;
+    use crate::optics::stack::{Contact, Element, Faces, InputBeam, Layer, Medium, Slab};
+    use crate::optics::uniaxial::{OpticAxis, Uniaxial};
+    use crate::optics::wavelength::Wavelength;
+
+    /// Two calcite-like wedges with crossed axes, contacted on a face tilted by 27°: the
+    /// benchmark's kind of splitter.
+    fn splitter() -> Stack {
+        let calcite = |az: f64| {
+            Medium::Uniaxial(Uniaxial::new(
+                Indices::new(1.6557, 1.4849).unwrap(),
+                OpticAxis::from_angles(90f64.to_radians(), az.to_radians()),
+            ))
+        };
+        let inner = Plane {
+            normal: direction(27f64.to_radians(), 0.0),
+            point: Vector3::new(0.0, 0.0, 4.5),
+        };
+        let faces = |front, back, contact| Faces {
+            front,
+            back,
+            aperture: None,
+            contact,
+        };
+        let slab = |medium, gap_mm, faces| Layer {
+            gap_mm,
+            element: Element::Slab(Slab {
+                medium,
+                thickness_mm: 3.5,
+                faces: Some(faces),
+            }),
+        };
+        let j = jones::linear(45f64.to_radians());
+        Stack {
+            wavelength: Wavelength::from_nm(632.8).unwrap(),
+            outside_index: 1.0,
+            losses: Losses::Ideal,
+            input: InputBeam {
+                direction: Vector3::z(),
+                diameter_mm: 1.0,
+                jones: Some(j),
+                stokes: jones::stokes(&j),
+            },
+            layers: vec![
+                slab(calcite(0.0), 1.0, faces(Plane::across_z(1.0), inner, Contact::Outside)),
+                slab(calcite(90.0), 0.0, faces(inner, Plane::across_z(8.0), Contact::Direct)),
+            ],
+            screen_mm: 0.0,
+        }
+    }
+
+    /// The samples split over threads (two, three, seven) give the one-thread checksums of both
+    /// workloads but for the order of the additions.
+    #[test]
+    fn threads_sum_what_one_thread_sums() {
+        let st = splitter();
+        for work in [Workload::Trace, Workload::Split] {
+            let one = run(&st, 300, work);
+            assert!(one.is_finite() && one > 0.0, "{work:?}: {one}");
+            for threads in [2, 3, 7] {
+                let many = run_on(&st, 300, work, threads);
+                assert!(
+                    (one - many).abs() <= 1e-12 * one.abs(),
+                    "{work:?} on {threads}: {one} vs {many}"
+                );
+            }
+        }
+    }
 }
