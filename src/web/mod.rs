@@ -505,6 +505,11 @@ pub fn presets() -> Result<JsValue, JsValue> {
             "quartz rotator, 45°",
             include_str!("../../examples/quartz-rotator.json"),
         ),
+        (
+            "twisted-nematic-cell",
+            "twisted nematic cell, crossed",
+            include_str!("../../examples/twisted-nematic-cell.json"),
+        ),
     ];
     let list: Vec<serde_json::Value> = files
         .iter()
