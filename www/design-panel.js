@@ -5,8 +5,8 @@
 // arrives in chunks with progress (any kind's would be shown alike), and Cancel terminates the
 // worker (a new one starts). The kinds: displacer, waveplate, achromat, recombiner and the prism
 // kinds angular-splitter, prism-polarizer, tilt-tuning, the quartz-rotator, the
-// athermal-waveplate, the birefringent-filter and the broadband-retarder (DEVELOPERS.md, "Design
-// requests"); every kind has a temperature field
+// athermal-waveplate, the birefringent-filter, the broadband-retarder and the liquid-crystal
+// cell's lc-voltage (DEVELOPERS.md, "Design requests"); every kind has a temperature field
 // (`temperature_c`, sent when it is not 20 °C) and a Temperature card of the design's changes per
 // kelvin. Results
 // are text with data-quantity="design.<path into the design JSON>" and data-value =
@@ -28,7 +28,7 @@ import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { materialName } from './state.js';
-import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, lcResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -42,6 +42,7 @@ const DESIGN_KINDS = [
   ['athermal-waveplate', 'athermal waveplate pair'],
   ['birefringent-filter', 'birefringent filter'],
   ['broadband-retarder', 'broadband retarder'],
+  ['lc-voltage', 'liquid-crystal cell voltage'],
 ];
 // The material a kind starts from, until the user picks one (common choices for each part).
 const DESIGN_MATERIALS = { displacer: 'calcite', waveplate: 'quartz', recombiner: 'calcite', 'angular-splitter': 'calcite', 'prism-polarizer': 'calcite', 'tilt-tuning': 'quartz', 'birefringent-filter': 'quartz', 'broadband-retarder': 'quartz' };
@@ -255,6 +256,19 @@ function buildDesignFields(state) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
     nodes.splice(at < 0 ? nodes.length : at + 1, 0, temperature.row);
   }
+  // The cell's voltage (src/contract/request/lc.rs): no temperature, the nematic's data are at
+  // 25 °C only. Custom constants are asked in a JSON request.
+  const cellThickness = addField(state, 'thickness_um', { label: 'Cell gap', spoken: 'Thickness of the nematic layer', unit: 'µm', value: 5 });
+  const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: [['5cb', '5CB']], hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
+  const rubbing = addField(state, 'rubbing_azimuth_deg', { label: 'Rubbing azimuth', spoken: 'Director azimuth at the entrance', unit: '°', value: 45 });
+  const twist = addField(state, 'twist_deg', { label: 'Twist', spoken: 'Twist of the cell', unit: '°', value: 0 });
+  const pretilt = addField(state, 'pretilt_deg', { label: 'Pretilt', spoken: 'Pretilt of the cell', unit: '°', value: 2 });
+  const maxVolt = addField(state, 'max_voltage_v', { label: 'Highest voltage', spoken: 'Highest voltage searched', unit: 'V', value: 20 });
+  const range = fieldGroup('Retardance range (optional)', 'retardance_range_waves', [
+    addField(state, 'retardance_range_waves[0]', { label: 'From', spoken: 'Retardance range from', unit: 'waves', placeholder: 'none' }).row,
+    addField(state, 'retardance_range_waves[1]', { label: 'to', spoken: 'Retardance range to', unit: 'waves', placeholder: 'none' }).row,
+  ], { pair: true, hint: 'The thinnest cell of this construction that spans it.' });
+  state.design.layout['lc-voltage'] = [cellThickness.row, nematic.row, rubbing.row, twist.row, pretilt.row, wl.row, retardance.row, maxVolt.row, range];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
   const lim = state.design.limits;
@@ -468,6 +482,17 @@ function designRequest(state) {
     put('max_thickness_mm');
     put('generations');
     put('seed');
+  } else if (kind === 'lc-voltage') {
+    put('thickness_um');
+    req.lc = state.design.fields.lc.value;
+    put('rubbing_azimuth_deg');
+    put('twist_deg');
+    put('pretilt_deg');
+    put('wavelength_nm');
+    put('retardance_waves');
+    put('max_voltage_v');
+    pair('retardance_range_waves');
+    return req;
   } else if (kind === 'recombiner') {
     Object.assign(req, medium(''));
     put('wavelength_nm');
@@ -495,6 +520,7 @@ const GROUP_LABELS = {
   first: 'First plate',
   second: 'Second plate',
   wavelengths_nm: 'Design wavelengths',
+  retardance_range_waves: 'Retardance range',
   kind: 'Part',
 };
 
@@ -692,6 +718,19 @@ function plotsFor(state, kind, d, request, run) {
       }), dark),
     })];
   }
+  if (kind === 'lc-voltage') {
+    const c = d.curve;
+    return [designPlot('retardance-voltage', {
+      wide: true,
+      label: `Retardance of the cell against voltage, 0 to ${trimmed(c[c.length - 1][0], 2)} V: ${g(d.retardance_span_waves[0])} waves at 0 V, ${g(d.retardance_span_waves[1])} waves at ${trimmed(c[c.length - 1][0], 2)} V; ${g(d.requested_retardance_waves)} waves at ${g(d.voltage_v)} V (marked), threshold ${g(d.threshold_voltage_v)} V.`,
+      caption: 'At normal incidence; the voltage that gives the target is marked.',
+      draw: (p, dark) => state.core.drawSeries(p.canvas, seriesJson({
+        title: 'Retardance against voltage',
+        x_label: 'voltage', x_unit: 'V', y_label: 'retardance', y_unit: 'waves',
+        points: c, current: [d.voltage_v, d.retardance_waves], note: `threshold ${g(d.threshold_voltage_v)} V`,
+      }), dark),
+    })];
+  }
   if (kind === 'tilt-tuning') {
     const c = d.curve;
     const pts = c.tilt_deg.map((x, i) => [x, c.retardance_waves[i]]);
@@ -790,7 +829,7 @@ const RESULTS = {
   displacer: displacerResults, waveplate: waveplateResults, achromat: achromatResults, recombiner: recombinerResults,
   'angular-splitter': splitterResults, 'prism-polarizer': polarizerResults, 'tilt-tuning': tiltResults,
   'quartz-rotator': rotatorResults, 'athermal-waveplate': athermalResults,
-  'birefringent-filter': filterResults, 'broadband-retarder': broadbandResults,
+  'birefringent-filter': filterResults, 'broadband-retarder': broadbandResults, 'lc-voltage': lcResults,
 };
 
 /** Writes the shown design: its results as text, then its plots. */

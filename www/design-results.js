@@ -679,3 +679,38 @@ export function broadbandResults(state, d) {
   ]));
   return cards;
 }
+
+/**
+ * The liquid-crystal cell's voltage (src/design/lc.rs): the RMS voltage that gives the target
+ * retardance, the slope there, the threshold and the span from 0 V to the highest voltage, and
+ * the thinnest cell spanning a retardance range when one was asked.
+ */
+export function lcResults(state, d) {
+  const headline = h(
+    'p',
+    { className: 'design-headline' },
+    'Drive the cell at ',
+    dq(d, 'voltage_v', formats.sig('V RMS', 5), 'strong'),
+    ` for ${trimmed(d.requested_retardance_waves, 4)} waves at ${trimmed(d.wavelength_nm, 2)}${NBSP}nm.`,
+  );
+  const cards = [
+    headline,
+    resultCard(d, 'At the voltage', [
+      ['voltage (RMS)', 'voltage_v', formats.sig('V', 6)],
+      ['retardance there', 'retardance_waves', formats.waves],
+      ['slope', 'slope_waves_per_v', formats.sig('waves/V', 4)],
+      ['threshold', 'threshold_voltage_v', formats.sig('V', 4)],
+      ['at 0 V', 'retardance_span_waves.0', formats.waves],
+      ['at the highest voltage', 'retardance_span_waves.1', formats.waves],
+    ], { className: 'design-main', note: 'Retardance at normal incidence, (1/λ)∫(n_eff − n_o)dz over the solved director.' }),
+  ];
+  if (d.range) {
+    cards.push(resultCard(d, 'A cell for the range', [
+      ['range from', 'range.range_waves.0', formats.waves],
+      ['range to', 'range.range_waves.1', formats.waves],
+      ['thinnest cell gap', 'range.thickness_um', formats.sig('µm', 5)],
+      ['it spans', 'range.spans_range', formats.yes],
+    ], { note: 'Same nematic, rubbing, twist and pretilt; at a fixed voltage the retardance scales with the gap.' }));
+  }
+  return cards;
+}

@@ -419,6 +419,11 @@ function orderRows(shown, materialList) {
     rows.push(['Cut', `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}`]);
     const dep = d.departures ?? {};
     rows.push(['Performance', `retardance ${sheetNumber(d.target_retardance_waves, 4)} waves within ±${sheetNumber(dep.retardance_waves, 3)} waves and fast axis within ±${sheetNumber(dep.fast_axis_deg, 3)}° from ${nm(d.band_nm?.[0])} to ${nm(d.band_nm?.[1])}`]);
+  } else if (d.kind === 'lc-voltage') {
+    const cell = d.scenario?.elements?.[0] ?? {};
+    rows.push(['Cell', `${cell.lc ?? ''} nematic, ${sheetNumber(cell.thickness_um, 4)} µm gap, rubbing at ${deg(cell.rubbing_azimuth_deg)}, twist ${deg(cell.twist_deg)}, pretilt ${deg(cell.pretilt_deg)}`]);
+    rows.push(['Performance', `${sheetNumber(d.retardance_waves, 5)} waves at ${nm(d.wavelength_nm)} at ${sheetNumber(d.voltage_v, 5)} V RMS (threshold ${sheetNumber(d.threshold_voltage_v, 4)} V)`]);
+    if (d.range) rows.push(['Range', `a ${sheetNumber(d.range.thickness_um, 4)} µm cell spans ${sheetNumber(d.range.range_waves[0], 4)} to ${sheetNumber(d.range.range_waves[1], 4)} waves`]);
   } else if (d.kind === 'athermal-waveplate') {
     const plates = d.plates ?? [];
     plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));

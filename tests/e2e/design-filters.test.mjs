@@ -1,4 +1,5 @@
-// End-to-end tests of the design panel's birefringent filter and broadband retarder
+// End-to-end tests of the design panel's birefringent filter, broadband retarder and
+// liquid-crystal cell voltage
 // (www/design-panel.js): the request filled in through the panel's controls and solved in its
 // worker gives the command line's answer (tests/cli/design/golden), its plots are drawn, the
 // order sheet names the plates, "Use this part" loads them, and a bad value is named beside its
@@ -66,5 +67,36 @@ test('a broadband retarder from the panel is the command line\'s to the search\'
     await expectPlots(page, ['retardance-wavelength', 'fast-axis-wavelength'], 'broadband retarder');
     expectRow(await orderSheet(page), 'Performance', ['within ±'], 'broadband retarder');
     await expectFieldError(page, ['plates', 9], 'plates', 'nine plates');
+  });
+});
+
+test('a cell\'s voltage from the panel is the command line\'s, drawn, and loads the switched cell', { timeout: 120000 }, async () => {
+  const { request, design } = golden('lc-voltage');
+  await withPage(async (page) => {
+    await fill(page, 'lc-voltage', [['thickness_um', request.thickness_um], ['lc', request.lc], ['rubbing_azimuth_deg', request.rubbing_azimuth_deg],
+      ['wavelength_nm', request.wavelength_nm], ['retardance_waves', request.retardance_waves],
+      ['retardance_range_waves[0]', request.retardance_range_waves[0]], ['retardance_range_waves[1]', request.retardance_range_waves[1]]]);
+    assert.equal(await page.locator('[data-design-field="temperature_c"]').isVisible(), false, 'no temperature: the nematic data are at 25 °C only');
+    await solveDesign(page);
+    const req = await page.evaluate(() => window.doublespar.designRequest());
+    assert.deepEqual({ ...req, twist_deg: undefined, pretilt_deg: undefined, max_voltage_v: undefined },
+      { ...request, twist_deg: undefined, pretilt_deg: undefined, max_voltage_v: undefined }, 'the request the fields say');
+    // The director solves converge in the worker's build as in the native one to rounding: 1e-9.
+    const at = (p) => p.split('.').reduce((v, k) => v?.[k], design);
+    const shownNumbers = (await quantities(page)).filter(([p]) => p.startsWith('design.'));
+    assert.ok(shownNumbers.some(([p]) => p === 'design.voltage_v') && shownNumbers.some(([p]) => p === 'design.range.thickness_um'), 'voltage and range shown');
+    for (const [p, v] of shownNumbers) {
+      const want = at(p.slice('design.'.length));
+      if (typeof want === 'number') assert.ok(close(Number(v), want, 1e-9, 1e-12), `${p}: page ${v}, command line ${want}`);
+      else assert.equal(v, String(want), p);
+    }
+    await expectPlots(page, ['retardance-voltage'], 'cell voltage');
+    expectRow(await orderSheet(page), 'Performance', ['V RMS'], 'cell voltage');
+    await page.click('#design-use');
+    const sc = await waitScenario(page, (x) => x.elements[0]?.kind === 'lc_cell', 'the set-up holds the cell');
+    assert.ok(close(sc.elements[0].voltage_v, design.voltage_v, 1e-9), 'at the designed voltage');
+    const traced = await page.evaluate(() => window.doublespar.session.result().elements[0].retardance_waves);
+    assert.ok(close(traced, request.retardance_waves, 1e-6), `the page's trace of the cell gives ${traced} waves`);
+    await expectFieldError(page, ['retardance_waves', 5], 'retardance_waves', 'a retardance the cell cannot reach');
   });
 });
