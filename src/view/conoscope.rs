@@ -17,12 +17,14 @@ use crate::contract::conoscope::{ConoscopeMap, conoscope_of};
 use crate::contract::scenario::{ElementKind, Polarization, Scenario};
 use crate::numfmt::sig;
 use crate::optics::conoscope::Quantity;
-use std::f64::consts::FRAC_1_SQRT_2;
 
 /// Largest polar angle of the drawn cone in the outside medium, degrees.
 pub const CONE_DEG: f64 = 30.0;
 /// Pixels per side of the drawn map.
 pub const PIXELS: usize = 128;
+/// Where ring labels sit, as a unit direction: 65° from +x, off the usual polarizer directions
+/// (0°, 45°, 90°) whose lines would hide them.
+const LABEL_DIR: [f64; 2] = [0.422_618_261_740_699_4, 0.906_307_787_036_649_9];
 /// Shades of grey in the drawing.
 const SHADES: f64 = 63.0;
 
@@ -117,7 +119,7 @@ fn rings(scene: &mut Scene, outside_index: f64) {
             filled: false,
             tag: format!("ring {deg}°"),
         });
-        let at = [r * FRAC_1_SQRT_2, r * FRAC_1_SQRT_2];
+        let at = [r * LABEL_DIR[0], r * LABEL_DIR[1]];
         scene.label(
             at,
             format!("{deg}°"),
