@@ -237,6 +237,9 @@ export function describeViews(state) {
     if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }
   texts.conoscope = 'Conoscopic figure: the whole set-up\'s transmission over a 30° cone of incidence directions, each an exact plane-wave solution, black 0 and white 1; dark crosses (isogyres) and rings (isochromes) show where light is extinguished. Also as the draw command\'s view conoscope.';
+  texts.acceptance = crystals.length === 0
+    ? 'Acceptance of the first crystal: no crystal in the stack, nothing to draw.'
+    : `Acceptance of element ${crystals[0] + 1} (${describeMaterial(r.elements[crystals[0]].material)}): its retardance minus its retardance at normal incidence, in waves, over a 30° cone of incidence directions, darkest where it is least. Also as the draw command's view acceptance.`;
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
   }

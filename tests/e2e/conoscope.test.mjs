@@ -1,5 +1,6 @@
 // End-to-end tests of the conoscopic figure on the page: folded away until opened (it solves
-// 16,384 directions), drawn when its disclosure is opened and described for a screen reader,
+// 16,384 directions), drawn with the first crystal's acceptance map when its disclosure is
+// opened and described for a screen reader,
 // and its map shade for shade the command line's `doublespar draw conoscope` of the same
 // document (whose SVG embeds the map as a PNG, decoded here with node's zlib).
 //
@@ -55,6 +56,9 @@ test('the conoscopic figure is drawn when opened, described, and equals the comm
     const shown = await stats();
     assert.ok(drawn(shown), `the figure is drawn: ${JSON.stringify(shown)}`);
     assert.match(shown.label, /^Conoscopic figure: .*30° cone/);
+    const acceptance = (await page.evaluate(canvasStats)).find((s) => s.view === 'acceptance');
+    assert.ok(drawn(acceptance), `the acceptance map is drawn: ${JSON.stringify(acceptance)}`);
+    assert.match(acceptance.label, /^Acceptance of element 1 .*retardance/);
 
     const scene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
     const map = scene.items.find((i) => i.type === 'raster');

@@ -156,7 +156,7 @@ test('the demo loads without a fragment and every number agrees with the command
     assert.equal(await page.locator('#copy-link').count(), 1, '#copy-link exists');
     const names = await page.evaluate(() => [...document.querySelectorAll('canvas[data-view]')].map((c) => c.dataset.view));
     // DEVELOPERS.md, viewNames().
-    const known = ['side', 'side-yz', 'side-walkoff', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'conoscope'];
+    const known = ['side', 'side-yz', 'side-walkoff', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'conoscope', 'acceptance'];
     for (const n of names) assert.ok(known.includes(n), `canvas[data-view="${n}"] is a known view (${known})`);
   });
 });
