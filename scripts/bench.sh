@@ -2,7 +2,8 @@
 # Every benchmark in one run, side by side on this machine, with the ratios: the native core
 # (cargo bench --bench core), the numpy baselines of the same sweep, of the two-wedge
 # splitter's traces (scripts/bench/splitter_numpy.py) and of a five-stage filter's spectrum
-# (scripts/bench/spectrum_numpy.py), the same work in WebAssembly under Node,
+# (scripts/bench/spectrum_numpy.py), the same work in WebAssembly under Node, a 256 × 256
+# conoscopic figure natively and under Node (benches/conoscope.rs, scripts/bench/wasm_conoscope.mjs),
 # and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
 # first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
 # Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
@@ -29,6 +30,10 @@ spectrum_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/pyth
 echo "$spectrum_baseline"
 wasm=$(node scripts/bench/wasm_sweep.mjs)
 echo "$wasm"
+# Convergent light: a 256 × 256 conoscopic figure natively and in WebAssembly under Node
+# (reported beside the rest; checksums printed by each).
+cargo bench --quiet --bench conoscope 2>/dev/null
+node scripts/bench/wasm_conoscope.mjs
 web='{}'
 status=0
 if [ "$page" = 1 ]; then

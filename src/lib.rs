@@ -32,6 +32,7 @@ pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
 pub use precision::{LC_SUBLAYERS, assert_within};
 
 // Documents.
+pub use contract::conoscope::{ConoscopeMap, conoscope_at, conoscope_of};
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).
 pub use contract::result::RejectedRay;
@@ -40,6 +41,7 @@ pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
+pub use optics::conoscope::Quantity as ConoscopeQuantity;
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};
 pub use optics::lc::catalogue::{NEMATICS, NematicEntry, find as find_nematic, keys as nematic_keys};

@@ -32,8 +32,14 @@ function drawnName(v) {
   return v.name === 'side' ? v.canvas.dataset.view : v.name;
 }
 
+/** Whether a view sits in a closed disclosure (the conoscopic figure): it is drawn when opened. */
+function folded(v) {
+  return v.canvas.closest('details:not([open])') !== null;
+}
+
 function drawView(state, v) {
   const { errors } = state.views;
+  if (folded(v)) return;
   try {
     state.session.draw(drawnName(v), v.canvas, state.darkQuery.matches && !state.views.printDark);
     if (v.failed) {
@@ -234,6 +240,10 @@ export function describeViews(state) {
     const w = spectrum.white_light;
     if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }
+  texts.conoscope = 'Conoscopic figure: the whole set-up\'s transmission over a 30° cone of incidence directions, each an exact plane-wave solution, black 0 and white 1; dark crosses (isogyres) and rings (isochromes) show where light is extinguished. Also as the draw command\'s view conoscope.';
+  texts.acceptance = crystals.length === 0
+    ? 'Acceptance of the first crystal: no crystal in the stack, nothing to draw.'
+    : `Acceptance of element ${crystals[0] + 1} (${describeMaterial(r.elements[crystals[0]].material)}): its retardance minus its retardance at normal incidence, in waves, over a 30° cone of incidence directions, darkest where it is least. Also as the draw command's view acceptance.`;
   for (const v of views) {
     if (texts[v.name]) setAttr(v.canvas, 'aria-label', texts[v.name]);
   }
@@ -290,6 +300,7 @@ export function setupViews(state) {
     state.views.list.push(v);
     ro.observe(v.box);
     if (name === 'side') addPlaneChooser(state, v);
+    canvas.closest('details')?.addEventListener('toggle', () => drawView(state, v));
   }
   state.darkQuery.addEventListener('change', () => redraw(state));
   window.addEventListener('beforeprint', () => beforePrint(state));

@@ -2,6 +2,7 @@
 //! path), resolved into a stack for the physics, the result document written from a trace, and
 //! the design request documents; a scenario's spectrum (`spectrum`) is traced point by point.
 
+pub mod conoscope;
 pub mod custom_dispersion;
 pub mod fields;
 pub mod geometry;

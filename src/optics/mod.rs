@@ -6,6 +6,7 @@ pub mod anisotropic;
 pub mod beam_overlap;
 pub mod chain;
 pub mod colorimetry;
+pub mod conoscope;
 pub mod general_modes;
 pub mod general_plate;
 pub mod geometry;

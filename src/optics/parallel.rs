@@ -80,22 +80,7 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
                         shifts[m] = [l * s.x / s.z, l * s.y / s.z];
                     }
                 }
-                let couplings = bare_face(&outside_fwd, &outside_back, &fwd)
-                    .zip(bare_face(&fwd, &back, &outside_fwd))
-                    .map(|(entry, exit)| {
-                        let mut t_exit = exit.t;
-                        for (m, mode) in fwd.iter().enumerate() {
-                            if !mode.propagating {
-                                t_exit[(0, m)] = Complex64::ZERO;
-                                t_exit[(1, m)] = Complex64::ZERO;
-                            }
-                        }
-                        let pair: (CMatrix2, CMatrix2) = match stack.losses {
-                            Losses::Ideal => (lossless_part(&entry.propagating_t()), lossless_part(&t_exit)),
-                            Losses::Uncoated => (entry.propagating_t(), t_exit),
-                        };
-                        pair
-                    });
+                let couplings = slab_couplings((&outside_fwd, &outside_back), (&fwd, &back), stack.losses);
                 paths = match couplings {
                     Some(t) => split(&paths, (&fwd, slab.medium.letters()), &shifts, t, (k0, l), z + l),
                     None => Vec::new(),
@@ -152,6 +137,32 @@ pub fn trace_parallel(stack: &Stack) -> Trace {
         rejected: Vec::new(),
         reflected: Vec::new(),
     }
+}
+
+/// The entry and exit couplings of a slab between two half-spaces of the outside medium, as
+/// the trace uses them: the entry face's transmission into the propagating modes and the exit
+/// face's transmission out of them (an evanescent mode carries nothing out), each reduced to its
+/// lossless part for ideal faces; `None` when a face's boundary conditions are singular.
+pub fn slab_couplings(
+    (outside_fwd, outside_back): (&[Mode; 2], &[Mode; 2]),
+    (fwd, back): (&[Mode; 2], &[Mode; 2]),
+    losses: Losses,
+) -> Option<(CMatrix2, CMatrix2)> {
+    bare_face(outside_fwd, outside_back, fwd)
+        .zip(bare_face(fwd, back, outside_fwd))
+        .map(|(entry, exit)| {
+            let mut t_exit = exit.t;
+            for (m, mode) in fwd.iter().enumerate() {
+                if !mode.propagating {
+                    t_exit[(0, m)] = Complex64::ZERO;
+                    t_exit[(1, m)] = Complex64::ZERO;
+                }
+            }
+            match losses {
+                Losses::Ideal => (lossless_part(&entry.propagating_t()), lossless_part(&t_exit)),
+                Losses::Uncoated => (entry.propagating_t(), t_exit),
+            }
+        })
 }
 
 /// Each path split into the slab's propagating modes: entry coupling row, phase k0 q_z L, exit

@@ -7,17 +7,20 @@
 //! the first crystal of the stack), `split-wavelength`, `split-incidence` (plots of the whole
 //! set-up's split angle, [`split_series`]), `retardance-temperature`, `separation-temperature`
 //! ([`temperature_series`]), `transmission-wavelength` (the result's spectrum,
-//! [`spectrum_plot`]) and `retardance-voltage` (the first liquid-crystal cell, [`lc_plot`]).
+//! [`spectrum_plot`]), `retardance-voltage` (the first liquid-crystal cell, [`lc_plot`]), and
+//! `conoscope` and `acceptance` (the set-up in convergent light, [`conoscope`]).
 
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
 use crate::error::Error;
 use crate::view::scene::Scene;
+pub mod conoscope;
 pub mod end;
 pub mod label_layout;
 pub mod lc_plot;
 pub mod palette;
 pub mod plot;
+pub mod png;
 pub mod poincare;
 pub mod scene;
 pub mod series;
@@ -29,7 +32,7 @@ pub mod table;
 pub mod temperature_series;
 
 /// Every view, by name.
-pub const VIEW_NAMES: [&str; 14] = [
+pub const VIEW_NAMES: [&str; 16] = [
     "side",
     "side-yz",
     "side-walkoff",
@@ -44,6 +47,8 @@ pub const VIEW_NAMES: [&str; 14] = [
     "separation-temperature",
     "transmission-wavelength",
     "retardance-voltage",
+    "conoscope",
+    "acceptance",
 ];
 
 /// Builds the view called `name`.
@@ -66,6 +71,8 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
         "separation-temperature" => plot::plot(&temperature_series::separation_vs_temperature(scenario, 0)),
         "transmission-wavelength" => spectrum_plot::transmission_plot(scenario, result),
         "retardance-voltage" => plot::plot(&lc_plot::retardance_vs_voltage(scenario)),
+        "conoscope" => conoscope::conoscope_view(scenario),
+        "acceptance" => conoscope::acceptance_view(scenario),
         other => {
             return Err(Error::new(
                 "view",

@@ -167,6 +167,9 @@ pub enum Item {
         /// What it shows.
         tag: String,
     },
+    /// A grey image ([`Raster`]). Like [`Item::Swatch`], its shades are data, the same in every
+    /// palette.
+    Raster(Raster),
     /// Text at a world point.
     Text {
         /// Anchor point.
@@ -199,6 +202,31 @@ pub enum Item {
         /// What it measures (e.g. "separation").
         tag: String,
     },
+}
+
+/// A grey image filling the world rectangle from `from` (bottom left) to `to` (top right):
+/// `columns` × `rows` cells, row 0 at the top, each 0 (black) to 255 (white) or none (not drawn).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Raster {
+    /// Bottom-left corner.
+    pub from: Point,
+    /// Top-right corner.
+    pub to: Point,
+    /// Cells per row.
+    pub columns: usize,
+    /// Rows.
+    pub rows: usize,
+    /// Shades row-major, row 0 at the top.
+    pub grey: Vec<Option<u8>>,
+    /// What it shows.
+    pub tag: String,
+}
+
+impl Raster {
+    /// Its top-left and bottom-right corners on screen.
+    pub fn screen_corners(&self, vp: &Viewport) -> (Point, Point) {
+        (vp.map([self.from[0], self.to[1]]), vp.map([self.to[0], self.from[1]]))
+    }
 }
 
 /// How world units map to the screen.
@@ -399,6 +427,7 @@ impl Scene {
             | Item::Dot { tag: t, .. }
             | Item::Arrow { tag: t, .. }
             | Item::Swatch { tag: t, .. }
+            | Item::Raster(Raster { tag: t, .. })
             | Item::Dimension { tag: t, .. } => t == tag,
             Item::Text { .. } => false,
         })
@@ -426,9 +455,10 @@ impl Scene {
                 Item::Polyline { points, .. } | Item::Polygon { points, .. } => points.iter().all(ok),
                 Item::Circle { center, radius, .. } => ok(center) && radius.is_finite(),
                 Item::Dot { center, .. } => ok(center),
-                Item::Arrow { from, to, .. } | Item::Dimension { from, to, .. } | Item::Swatch { from, to, .. } => {
-                    ok(from) && ok(to)
-                }
+                Item::Arrow { from, to, .. }
+                | Item::Dimension { from, to, .. }
+                | Item::Swatch { from, to, .. }
+                | Item::Raster(Raster { from, to, .. }) => ok(from) && ok(to),
                 Item::Text { at, .. } => ok(at),
             })
     }

@@ -8,6 +8,7 @@
 
 use crate::view::label_layout::{DrawnDimension, Layout, layout};
 use crate::view::palette::Palette;
+use crate::view::png::{base64, grey_png};
 use crate::view::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
 use std::fmt::Write;
 
@@ -162,6 +163,17 @@ fn write_item(out: &mut String, item: &Item, vp: &Viewport, palette: &Palette) {
                 screen_points(&corners, vp),
                 esc(colour),
                 palette.stroke(Role::Frame)
+            );
+        }
+        Item::Raster(r) => {
+            let ([x0, y0], [x1, y1]) = r.screen_corners(vp);
+            let _ = write!(
+                out,
+                r#"<image data-tag="{}" x="{x0:.3}" y="{y0:.3}" width="{:.3}" height="{:.3}" preserveAspectRatio="none" style="image-rendering:pixelated" href="data:image/png;base64,{}"/>"#,
+                esc(&r.tag),
+                x1 - x0,
+                y1 - y0,
+                base64(&grey_png(r.columns, r.rows, &r.grey))
             );
         }
         Item::Text { .. } | Item::Dimension { .. } => {}

@@ -136,6 +136,23 @@ impl Painter<'_> {
                 ctx.set_line_width(1.0);
                 ctx.stroke();
             }
+            Item::Raster(r) => {
+                // One rectangle per run of equal shade, a hair wider than its cells so that no
+                // seam of background shows between runs.
+                let ([x0, y0], [x1, y1]) = r.screen_corners(vp);
+                let (cw, ch) = ((x1 - x0) / r.columns as f64, (y1 - y0) / r.rows as f64);
+                for row in 0..r.rows {
+                    for (c, len, g) in raster_runs(&r.grey, r.columns, row) {
+                        ctx.set_fill_style_str(&format!("rgb({g},{g},{g})"));
+                        ctx.fill_rect(
+                            x0 + c as f64 * cw,
+                            y0 + row as f64 * ch,
+                            len as f64 * cw + 0.5,
+                            ch + 0.5,
+                        );
+                    }
+                }
+            }
             Item::Polyline { .. } | Item::Dot { .. } | Item::Text { .. } | Item::Dimension { .. } => {}
         }
         Ok(())
@@ -310,4 +327,19 @@ impl IntoContext for js_sys::Object {
         self.dyn_into::<CanvasRenderingContext2d>()
             .map_err(|_| JsValue::from_str("not a 2-D context"))
     }
+}
+
+/// The runs of equal shade in row `row` of a raster of `columns` cells: (first column, length,
+/// shade), cells with no shade left out. Renderers draw each run as one rectangle.
+fn raster_runs(grey: &[Option<u8>], columns: usize, row: usize) -> Vec<(usize, usize, u8)> {
+    let mut runs: Vec<(usize, usize, u8)> = Vec::new();
+    let cells = grey.iter().skip(row * columns).take(columns);
+    for (c, g) in cells.enumerate() {
+        let Some(g) = *g else { continue };
+        match runs.last_mut() {
+            Some((start, len, shade)) if *shade == g && *start + *len == c => *len += 1,
+            _ => runs.push((c, 1, g)),
+        }
+    }
+    runs
 }

@@ -283,6 +283,24 @@ pub fn bench_splitter(doc: &str, n: usize, whole: bool) -> Result<f64, JsValue> 
     Ok(run(&stack, n, if whole { Workload::Trace } else { Workload::Split }))
 }
 
+/// Benchmark hook: the conoscopic figure of the scenario `doc` (JSON text;
+/// scripts/bench/conoscope.json) at `pixels` per side over a 30° cone
+/// ([`crate::contract::conoscope::conoscope_of`]), returning the sum of its values as a checksum
+/// (scripts/bench.sh runs it under Node beside the native build).
+///
+/// # Errors
+/// The scenario's first error, naming its field.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = benchConoscope)]
+pub fn bench_conoscope(doc: &str, pixels: usize) -> Result<f64, JsValue> {
+    use crate::contract::conoscope::conoscope_of;
+    use crate::optics::conoscope::Quantity;
+    let map = Scenario::from_json_str(doc)
+        .and_then(|s| conoscope_of(&s, Quantity::Transmission, 30.0, pixels))
+        .map_err(js_error)?;
+    Ok(map.values.iter().flatten().sum())
+}
+
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
 /// points: [[x, y], …], current: [x, y] | null, markers: [[x, y], …] (optional), note}`), for
 /// curves computed elsewhere (the design worker).

@@ -198,7 +198,7 @@ test('the print sheet hides the controls, shows the set-up, results and views, a
         sheet: shown(document.getElementById('print-sheet')),
         sheetText: document.getElementById('print-sheet').textContent,
         safety: shown(document.getElementById('safety')),
-        canvases: [...document.querySelectorAll('figure:not(.view-split):not(.view-temperature):not(.view-spectrum):not(.view-lc) canvas[data-view]')].map((c) => {
+        canvases: [...document.querySelectorAll('figure:not(.view-split):not(.view-temperature):not(.view-spectrum):not(.view-lc):not(.view-conoscope) canvas[data-view]')].map((c) => {
           const r = c.getBoundingClientRect();
           return shown(c) && r.width > 20 && r.height > 20;
         }),

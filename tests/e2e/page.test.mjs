@@ -67,8 +67,12 @@ async function enter(page, selector, value) {
   await field.press('Tab');
 }
 
-/** Per canvas[data-view]: size, pixels that differ from the commonest colour, and a hash. */
-const canvasStats = (page) => page.evaluate(statsInPage);
+/**
+ * Per canvas[data-view]: size, pixels that differ from the commonest colour, and a hash. The
+ * views folded away in a closed disclosure (the conoscopic figure, drawn when opened; see
+ * conoscope.test.mjs) are left out.
+ */
+const canvasStats = (page) => page.evaluate(statsInPage, { selector: 'canvas[data-view]:not(details:not([open]) canvas)' });
 
 async function expectCanvasesDrawn(page, what) {
   let stats;
@@ -91,7 +95,7 @@ async function expectCanvasesDrawn(page, what) {
 /**
  * Every view shows the session's current state: each canvas[data-view] is pixel for pixel what
  * session.draw(view, …) paints now on a fresh canvas of the same CSS size (in either palette).
- * Catches a view left stale after an edit.
+ * Catches a view left stale after an edit. Views folded away (closed disclosures) are left out.
  */
 async function expectViewsCurrent(page, what) {
   const stale = await page.evaluate(() => {
@@ -102,7 +106,7 @@ async function expectViewsCurrent(page, what) {
       return `${c.width}x${c.height}:${h}`;
     };
     const out = [];
-    for (const c of document.querySelectorAll('canvas[data-view]')) {
+    for (const c of document.querySelectorAll('canvas[data-view]:not(details:not([open]) canvas)')) {
       const view = c.getAttribute('data-view');
       const probe = document.createElement('canvas');
       probe.style.cssText = `position:absolute;left:-10000px;top:0;width:${c.clientWidth}px;height:${c.clientHeight}px`;
@@ -152,7 +156,7 @@ test('the demo loads without a fragment and every number agrees with the command
     assert.equal(await page.locator('#copy-link').count(), 1, '#copy-link exists');
     const names = await page.evaluate(() => [...document.querySelectorAll('canvas[data-view]')].map((c) => c.dataset.view));
     // DEVELOPERS.md, viewNames().
-    const known = ['side', 'side-yz', 'side-walkoff', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'retardance-voltage'];
+    const known = ['side', 'side-yz', 'side-walkoff', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'retardance-voltage', 'conoscope', 'acceptance'];
     for (const n of names) assert.ok(known.includes(n), `canvas[data-view="${n}"] is a known view (${known})`);
   });
 });

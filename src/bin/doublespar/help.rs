@@ -107,6 +107,9 @@ VIEW is one of:
                   the whole set-up's split angle (largest angle between output beams)
   retardance-temperature, separation-temperature
                   plots for the first crystal of the stack alone, −40 to 100 °C or wider
+  conoscope       the set-up in convergent light: its transmission over a 30° cone
+                  (isogyres and isochromes), each direction an exact plane-wave solution
+  acceptance      the first crystal's retardance error against direction over that cone
 
   --size WxH   picture size in pixels, 50 to 10000 each [900x420]
   --dark       the dark palette

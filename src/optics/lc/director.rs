@@ -246,7 +246,7 @@ impl Problem<'_> {
 /// `start` (a neighbouring voltage's profile of the same cell and size) when given.
 ///
 /// Never fails: a non-finite voltage is taken as zero, and if Newton has not settled after
-/// [`DIRECTOR_ITERATIONS`] steps the lowest-energy profile found is returned.
+/// `DIRECTOR_ITERATIONS` steps the lowest-energy profile found is returned.
 pub fn solve(lc: &Nematic, cell: &CellLayout, voltage: f64, sublayers: usize, start: Option<&Profile>) -> Profile {
     let n = sublayers.max(2);
     let voltage = if voltage.is_finite() { voltage } else { 0.0 };

@@ -1,0 +1,44 @@
+// The conoscopic figure in WebAssembly under Node, for scripts/bench.sh to set beside the native
+// figure (cargo bench --bench conoscope): a 256 × 256 map of scripts/bench/conoscope.json over a
+// 30° cone, in the design worker's build (opt-level 3, where a figure would be computed off the
+// page's thread) and, for the page's own build (size-tuned), the 128 × 128 figure the page's
+// `conoscope` view draws (session.scene). Medians of 9 runs; prints one JSON line.
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { dirname, join } from 'node:path';
+import { performance } from 'node:perf_hooks';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+const doc = readFileSync(join(root, 'scripts', 'bench', 'conoscope.json'), 'utf8');
+
+/** Median time of 9 runs of `f`, in ms, and its last value. */
+function median(f) {
+  const ts = [];
+  let value;
+  for (let i = 0; i < 9; i++) {
+    const t = performance.now();
+    value = f();
+    ts.push(performance.now() - t);
+  }
+  ts.sort((a, b) => a - b);
+  return [ts[4], value];
+}
+
+const load = async (dir) => {
+  const glue = await import(join(root, 'www', dir, 'doublespar.js'));
+  glue.initSync({ module: readFileSync(join(root, 'www', dir, 'doublespar_bg.wasm')) });
+  return glue;
+};
+const worker = await load('pkg-design');
+const [ms256, sum] = median(() => worker.benchConoscope(doc, 256));
+const page = await load('pkg');
+const session = new page.Session();
+session.updateJson(doc);
+const [ms128] = median(() => session.scene('conoscope'));
+console.log(JSON.stringify({
+  bench: 'doublespar-wasm-conoscope',
+  node: process.version,
+  conoscope_256_worker_build_ms: ms256,
+  conoscope_checksum: sum,
+  conoscope_view_128_page_build_ms: ms128,
+}));

@@ -1,0 +1,234 @@
+//! Convergent light: the transmission of a stack of plane-parallel plates for every direction of a
+//! cone (a conoscopic figure, with its isogyres and isochromes), and a plate's retardance against
+//! direction (the acceptance map of a retarder).
+//!
+//! Physics. Each direction of the cone is a plane wave of its own: in a conoscope the set-up is
+//! lit by a cone of plane waves and each one is brought to its own point of the image plane (the
+//! back focal plane of the viewing lens), so the o and e waves of one direction add *coherently*
+//! with no lateral shift between them: the beam's walk-off, which separates a narrow beam's rays,
+//! moves an infinite plane wave onto itself. So the whole set-up acts on a direction as the one
+//! 2×2 matrix on the beam basis (e1, e2) of [`crate::optics::modes::beam_basis`]
+//!
+//! ```text
+//! M(q_t) = Π_layers  [ T_exit · diag(e^{i k0 q_z,m L}) · T_entry ]  or the thin element's matrix,
+//! ```
+//!
+//! the coherent sum of every path of [`crate::optics::parallel`] (the product of the sums over
+//! each slab's two modes is the sum over all mode sequences of the products), with the same face
+//! couplings ([`crate::optics::parallel::slab_couplings`]) and the same phases; the common phase
+//! of the gaps of outside medium is left out (it does not change a power). The transmitted power
+//! for an input Stokes vector S is tr(M C(S) M†) ([`crate::optics::spots::power_of`]).
+//!
+//! Conventions. Directions are given in the outside medium of index n: polar angle θ from +z,
+//! azimuth φ from +x toward +y, q_t = n sin θ (cos φ, sin φ). The input polarization and every
+//! ideal element act on the beam basis of each direction (x̂ and ŷ carried by the smallest
+//! rotation taking ẑ onto the direction): crossed polarizers stay crossed at every direction, and
+//! in the planes φ = 0° and 90° their axes are exactly p and s. The image plane maps a direction
+//! to the point (x, y) = (sin θ cos φ, sin θ sin φ) / sin θ_max (the sine condition of an aplanatic
+//! viewing lens, r ∝ sin θ), so the figure is the unit disc, +x to the right and +y up; pixel
+//! centres outside the disc have no value. Retardance of a plate: Γ = k0 (q_z,2 − q_z,1) L, exact
+//! at every direction ([`crate::optics::plate`]); its error is Γ(θ, φ) − Γ(0), in waves.
+//!
+//! Speed. Nothing is allocated per direction: each direction costs each slab's two mode solves
+//! and two 4×4 face solves. A stack that holds a general crystal, a liquid-crystal cell (its
+//! matrix is solved for the beam's own direction only) or faces at an angle is not a
+//! plane-parallel stack of this kind: [`conoscope_stack_ok`] says so.
+//!
+//! Sources: Born & Wolf, *Principles of Optics*, §15.4.4 (interference figures of crystal plates
+//! in convergent light); the sine condition, Born & Wolf §4.5.
+
+use crate::optics::interface::CMatrix2;
+use crate::optics::jones::JonesMatrix;
+use crate::optics::modes::{Travel, isotropic_modes};
+use crate::optics::parallel::slab_couplings;
+use crate::optics::spots::power_of;
+use crate::optics::stack::{Element, Stack};
+use num_complex::Complex64;
+use std::f64::consts::TAU;
+
+/// What a conoscopic map shows at each direction.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Quantity {
+    /// The power transmitted by the whole set-up, for the beam's input polarization.
+    Transmission,
+    /// The retardance of the first crystal minus its retardance at normal incidence, waves.
+    RetardanceError,
+}
+
+/// The square grid of a conoscopic map: `pixels` × `pixels` pixel centres over the unit disc of
+/// the image plane, row 0 at the top, out to the polar angle `cone_rad` in the outside medium.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Grid {
+    /// Largest polar angle, radians, in the outside medium (0 to below π/2).
+    pub cone_rad: f64,
+    /// Pixels per side.
+    pub pixels: usize,
+}
+
+impl Grid {
+    /// The direction (polar, azimuth) seen at pixel (`column`, `row`), or `None` outside the disc.
+    pub fn direction(&self, column: usize, row: usize) -> Option<(f64, f64)> {
+        let n = self.pixels as f64;
+        let x = 2.0 * (column as f64 + 0.5) / n - 1.0;
+        let y = 1.0 - 2.0 * (row as f64 + 0.5) / n;
+        let r = x.hypot(y);
+        if r > 1.0 {
+            return None;
+        }
+        Some(((r * self.cone_rad.sin()).asin(), y.atan2(x)))
+    }
+}
+
+/// Whether `stack` is a stack of plane-parallel plates whose every direction this module can
+/// solve: `Err(index)` names the first element that is not (a slab with faces at an angle or of a
+/// general crystal, or a liquid-crystal cell).
+pub fn conoscope_stack_ok(stack: &Stack) -> Result<(), usize> {
+    for (i, layer) in stack.layers.iter().enumerate() {
+        let ok = match layer.element {
+            Element::Slab(s) => s.faces.is_none() && matches!(s.medium, crate::optics::stack::Medium::Uniaxial(_)),
+            Element::Ideal(_) => true,
+            Element::Cell(_) => false,
+        };
+        if !ok {
+            return Err(i);
+        }
+    }
+    Ok(())
+}
+
+/// The tangential wave vector of the direction (`polar`, `azimuth`) in the outside medium.
+pub fn tangential_of(stack: &Stack, polar: f64, azimuth: f64) -> [f64; 2] {
+    crate::optics::plate::tangential(stack.outside_index, polar, azimuth)
+}
+
+/// The whole set-up's matrix at tangential wave vector `qt` (see the header), the gaps' common
+/// phase left out; the zero matrix when a face's boundary conditions are singular.
+pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
+    let n_out = stack.outside_index;
+    let k0 = stack.wavelength.k0_per_mm();
+    let outside = (
+        isotropic_modes(n_out, qt, Travel::Forward),
+        isotropic_modes(n_out, qt, Travel::Backward),
+    );
+    let mut m = JonesMatrix::identity();
+    for layer in &stack.layers {
+        match layer.element {
+            Element::Slab(slab) => {
+                let fwd = slab.medium.modes(qt, Travel::Forward);
+                let back = slab.medium.modes(qt, Travel::Backward);
+                let Some((t_in, t_out)) = slab_couplings((&outside.0, &outside.1), (&fwd, &back), stack.losses) else {
+                    return JonesMatrix::zeros();
+                };
+                let mut phase = CMatrix2::zeros();
+                for (k, mode) in fwd.iter().enumerate() {
+                    if mode.propagating {
+                        phase[(k, k)] = Complex64::from_polar(1.0, k0 * mode.qz().re * slab.thickness_mm);
+                    }
+                }
+                m = t_out * phase * t_in * m;
+            }
+            Element::Ideal(jm) | Element::Cell(jm) => m = jm * m,
+        }
+    }
+    m
+}
+
+/// The power the whole set-up transmits at direction (`polar`, `azimuth`) for the input beam's
+/// polarization (input power 1).
+pub fn transmission_at(stack: &Stack, polar: f64, azimuth: f64) -> f64 {
+    power_of(
+        &set_up_matrix(stack, tangential_of(stack, polar, azimuth)),
+        &stack.input.stokes,
+    )
+}
+
+/// The retardance of the first slab at direction (`polar`, `azimuth`), radians:
+/// k0 (q_z,2 − q_z,1) L; `None` without a slab or when a mode is evanescent.
+pub fn first_retardance_at(stack: &Stack, polar: f64, azimuth: f64) -> Option<f64> {
+    let slab = stack.layers.iter().find_map(|l| match l.element {
+        Element::Slab(s) => Some(s),
+        Element::Ideal(_) | Element::Cell(_) => None,
+    })?;
+    let [a, b] = slab.medium.modes(tangential_of(stack, polar, azimuth), Travel::Forward);
+    (a.propagating && b.propagating).then(|| stack.wavelength.k0_per_mm() * (b.qz().re - a.qz().re) * slab.thickness_mm)
+}
+
+/// The map of `quantity` over `grid`, row-major (row 0 at the top), `None` outside the disc and
+/// where the quantity is undefined (no slab, an evanescent mode).
+pub fn conoscope_map(stack: &Stack, grid: Grid, quantity: Quantity) -> Vec<Option<f64>> {
+    let normal = first_retardance_at(stack, 0.0, 0.0);
+    let mut out = Vec::with_capacity(grid.pixels * grid.pixels);
+    for row in 0..grid.pixels {
+        for column in 0..grid.pixels {
+            out.push(grid.direction(column, row).and_then(|(p, a)| match quantity {
+                Quantity::Transmission => Some(transmission_at(stack, p, a)),
+                Quantity::RetardanceError => Some((first_retardance_at(stack, p, a)? - normal?) / TAU),
+            }));
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    use crate::optics::interface::Losses;
+    use crate::optics::material::Indices;
+    use crate::optics::stack::{InputBeam, Layer, Medium, Slab};
+    use crate::optics::trace::trace;
+    use crate::optics::uniaxial::{OpticAxis, Uniaxial};
+    use crate::optics::wavelength::Wavelength;
+    use nalgebra::Vector3;
+
+    /// The product of the slabs' two-mode sums equals the trace's sum over every path, matrix
+    /// element by matrix element, up to the gaps' common phase (none here).
+    #[test]
+    fn the_product_is_the_coherent_sum_of_the_traced_paths() {
+        let slab = |no, ne, tilt: f64, az: f64, l| Layer {
+            gap_mm: 0.0,
+            element: Element::Slab(Slab {
+                medium: Medium::Uniaxial(Uniaxial::new(
+                    Indices::new(no, ne).unwrap(),
+                    OpticAxis::from_angles(tilt.to_radians(), az.to_radians()),
+                )),
+                thickness_mm: l,
+                faces: None,
+            }),
+        };
+        for (p, a) in [(0.0f64, 0.0f64), (17.0, 40.0), (33.0, -120.0)] {
+            let (p, a) = (p.to_radians(), a.to_radians());
+            let stack = Stack {
+                wavelength: Wavelength::from_nm(700.0).unwrap(),
+                outside_index: 1.0,
+                losses: Losses::Uncoated,
+                input: InputBeam {
+                    direction: Vector3::new(p.sin() * a.cos(), p.sin() * a.sin(), p.cos()),
+                    diameter_mm: 1.0,
+                    jones: None,
+                    stokes: [1.0, 0.0, 0.0, 0.0],
+                },
+                layers: vec![slab(1.658, 1.486, 30.0, 10.0, 0.7), slab(1.544, 1.553, 90.0, 70.0, 2.0)],
+                screen_mm: 0.0,
+            };
+            let sum: JonesMatrix = trace(&stack).paths.iter().map(|path| path.matrix).sum();
+            let product = set_up_matrix(&stack, stack.tangential());
+            assert!((sum - product).norm() < 1e-13, "{sum} {product}");
+        }
+    }
+
+    #[test]
+    fn the_grid_maps_the_disc_by_the_sine_of_the_angle() {
+        let g = Grid {
+            cone_rad: 30f64.to_radians(),
+            pixels: 4,
+        };
+        assert!(g.direction(0, 0).is_none(), "a corner lies outside the disc");
+        let (p, a) = g.direction(2, 1).unwrap();
+        // Centre (0.25, 0.25): r = √2/4, sin θ = r sin 30°.
+        assert!((p.sin() - 0.5 * 2f64.sqrt() / 4.0).abs() < 1e-15);
+        assert!((a - 45f64.to_radians()).abs() < 1e-15);
+        let (_, a) = g.direction(1, 2).unwrap();
+        assert!((a + 135f64.to_radians()).abs() < 1e-15);
+    }
+}
