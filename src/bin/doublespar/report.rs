@@ -509,7 +509,7 @@ fn displacer_tolerances(r: &mut Report) {
 /// One line per plate of `plates`: its crystal (when `material`), thickness, optic-axis azimuth
 /// and its retardance in waves `where_` (at the centre wavelength, say).
 fn plate_lines(r: &mut Report, material: bool, where_: &str) {
-    let n = r.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len);
+    let n = plate_count(r);
     for i in 0..n {
         let m = if material {
             format!("{}, ", plate_material(r, i))
@@ -528,6 +528,11 @@ fn plate_lines(r: &mut Report, material: bool, where_: &str) {
             format!("{m}{t} mm, optic axis in the faces at {a} ° from x, {w} waves {where_}"),
         );
     }
+}
+
+/// How many plates the answer's `plates` lists.
+fn plate_count(r: &Report) -> usize {
+    r.v.get("plates").and_then(Value::as_array).map_or(0, Vec::len)
 }
 
 /// Plate `i`'s catalogue key, or "custom crystal" for one given by its indices.

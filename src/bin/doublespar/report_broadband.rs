@@ -3,7 +3,7 @@
 //! in the order of every design report. The curves are summarized by their worst values; the
 //! JSON holds them.
 
-use super::{Report, num, plate_lines};
+use super::{Report, num, plate_count, plate_lines};
 
 /// The departures at `path` in one line.
 fn departures(r: &mut Report, path: &str) -> String {
@@ -24,10 +24,7 @@ pub(super) fn broadband(r: &mut Report) {
     let hi = r.f("band_nm.1").map_or_else(String::new, num);
     r.title(&format!("Broadband retarder · {target} waves · {lo} to {hi} nm"));
     r.section("What to order");
-    let n =
-        r.v.get("plates")
-            .and_then(serde_json::Value::as_array)
-            .map_or(0, Vec::len);
+    let n = plate_count(r);
     r.line(
         "part",
         format!("{n} plates stacked in this order, optic axes in the faces"),

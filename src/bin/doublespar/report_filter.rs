@@ -2,7 +2,7 @@
 //! met against the one asked, the neighbouring peaks and the centre's drift with temperature, in
 //! the order of every design report. The curve is summarized by its range; the JSON holds it.
 
-use super::{Report, num, plate_lines, range_of};
+use super::{Report, num, plate_count, plate_lines, range_of};
 
 /// A birefringent filter.
 pub(super) fn filter(r: &mut Report) {
@@ -13,10 +13,7 @@ pub(super) fn filter(r: &mut Report) {
         .unwrap_or_else(|| "custom crystal".into());
     r.title(&format!("Birefringent filter · {layout} · {material} · {wl} nm"));
     r.section("What to order");
-    let n =
-        r.v.get("plates")
-            .and_then(serde_json::Value::as_array)
-            .map_or(0, Vec::len);
+    let n = plate_count(r);
     r.line(
         "part",
         if layout == "folded" {
