@@ -160,7 +160,8 @@ function firstRenderProbe() {
   }
   window.__firstRender = null;
   const poll = () => {
-    const cs = [...document.querySelectorAll('canvas[data-view]')];
+    // Views folded away in a closed disclosure (the conoscopic figure) are drawn when opened.
+    const cs = [...document.querySelectorAll('canvas[data-view]:not(details:not([open]) canvas)')];
     // A canvas counts once it had more drawing calls than one background fill: look for a
     // stamp, and let the task that drew finish (this runs in a later task).
     if (cs.length > 0 && cs.every((c) => last.has(c))) {
@@ -174,7 +175,7 @@ function firstRenderProbe() {
 
 /** Counts pixels off the commonest colour on every view (to confirm the render was not blank). */
 const blankViews = (page) =>
-  page.$$eval('canvas[data-view]', (cs) =>
+  page.$$eval('canvas[data-view]:not(details:not([open]) canvas)', (cs) =>
     cs
       .filter((c) => {
         if (!c.width || !c.height) return true;
