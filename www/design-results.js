@@ -326,13 +326,16 @@ function platePair(state, d, tail, thickness) {
     dq(d, 'plates.1.thickness_mm', formats.length, 'strong'),
     ` thick, ${axis(p[1])}; ${tail}`,
   );
-  const rows = [];
-  p.forEach((q, i) => {
-    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
-    rows.push([`plate ${i + 1}: ${thickness}`, `plates.${i}.thickness_mm`, formats.length]);
-    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
-  });
-  return { headline, rows };
+  return { headline, rows: plateRows(state, d, thickness) };
+}
+
+/** The order card's rows of every plate of `d.plates`: material, thickness (`thickness` labels it), axis. */
+function plateRows(state, d, thickness) {
+  return d.plates.flatMap((_, i) => [
+    [`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)],
+    [`plate ${i + 1}: ${thickness}`, `plates.${i}.thickness_mm`, formats.length],
+    [`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg],
+  ]);
 }
 
 export function achromatResults(state, d) {
@@ -653,12 +656,7 @@ export function broadbandResults(state, d) {
     dq(d, 'departures.retardance_waves', formats.sig('waves', 3), 'strong'),
     ` from ${trimmed(d.band_nm[0], 2)} to ${trimmed(d.band_nm[1], 2)}${NBSP}nm.`,
   );
-  const rows = [];
-  p.forEach((q, i) => {
-    rows.push([`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)]);
-    rows.push([`plate ${i + 1}: thickness`, `plates.${i}.thickness_mm`, formats.length]);
-    rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]);
-  });
+  const rows = plateRows(state, d, 'thickness');
   const departures = (path) => [
     ['retardance within ±', `${path}.retardance_waves`, formats.sig('waves', 3)],
     ['fast axis within ±', `${path}.fast_axis_deg`, formats.sig('°', 3)],
