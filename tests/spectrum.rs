@@ -180,7 +180,7 @@ fn a_spectrum_that_would_trace_too_many_rays_is_refused_on_its_points() {
     let e = trace_scenario(&Scenario::from_json_str(&doc).unwrap()).unwrap_err();
     assert_eq!(e.field, "spectrum.points");
     assert!(
-        e.message.contains("1024 rays") && e.message.contains("at most 976 points"),
+        e.message.contains("1024 rays") && e.message.contains("at most 976 points") && !e.message.contains("  "),
         "{}",
         e.message
     );

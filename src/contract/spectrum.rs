@@ -46,7 +46,8 @@ pub fn check_work(range: &SpectrumRange, rays_per_trace: usize) -> Result<(), Er
     Err(Error::new(
         "spectrum.points",
         format!(
-            "this set-up follows {rays} rays at each wavelength, so {} points would trace {} rays;              at most {MAX_RAY_TRACES} are traced for a spectrum: choose at most {} points",
+            "this set-up follows {rays} rays at each wavelength, so {} points would trace {} rays; \
+             at most {MAX_RAY_TRACES} are traced for a spectrum: choose at most {} points",
             range.points,
             range.points.saturating_mul(rays),
             (MAX_RAY_TRACES / rays).max(1)
