@@ -407,9 +407,9 @@ const FLAG_CASES: [FlagCase; 26] = [
         json: r#"{"kind": "broadband-retarder", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "band_nm": [500, 700], "generations": 20}"#,
     },
     FlagCase {
-        flags: "lc-voltage --thickness-um 5 --lc 5CB --rubbing-azimuth-deg 45 --twist-deg 0 --pretilt-deg 3 --wavelength-nm 633 --retardance-waves 0.3 --retardance-range-waves 0.05,1 --max-voltage-v 15",
+        flags: "lc-voltage --thickness-um 5 --lc 5CB --rubbing-azimuth-deg 45 --twist-deg 0 --pretilt-deg 3 --wavelength-nm 633 --retardance-waves 0.3 --retardance-range-waves 0.05,1 --max-voltage-v 15 --temperature-c 27",
         json: r#"{"kind": "lc-voltage", "thickness_um": 5, "lc": "5CB", "rubbing_azimuth_deg": 45, "twist_deg": 0, "pretilt_deg": 3,
-                 "wavelength_nm": 633, "retardance_waves": 0.3, "retardance_range_waves": [0.05, 1], "max_voltage_v": 15}"#,
+                 "wavelength_nm": 633, "retardance_waves": 0.3, "retardance_range_waves": [0.05, 1], "max_voltage_v": 15, "temperature_c": 27}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",

@@ -174,3 +174,53 @@ fn bad_cells_name_their_fields() {
         Scenario::from_json_str(r#"{"elements": [{"kind": "lc_cell", "lc": "5cb", "thickness_um": 0}]}"#).unwrap_err();
     assert_eq!(e.field, "elements[0].thickness_um");
 }
+
+/// A catalogued nematic's constants are its values at one temperature. 5CB clears to an
+/// isotropic liquid at about 35 °C (common practice, from memory): a cell of it at or above
+/// that is refused on `temperature_c`, naming the element; between 30 °C and the clearing point,
+/// and below 20 °C, the trace warns that the constants are used unchanged; at 20 to 30 °C it is
+/// quiet and gives the same numbers as at 25 °C. Custom constants are taken as given.
+#[test]
+fn a_cell_s_temperature_is_refused_above_clearing_and_warned_away_from_its_data() {
+    let doc = |t: f64, lc: &str| {
+        format!(
+            r#"{{"version": 2, "temperature_c": {t}, "elements": [{{"kind": "polarizer", "transmission_axis_deg": 0}},
+            {{"kind": "lc_cell", "thickness_um": 5, "lc": {lc}}}]}}"#
+        )
+    };
+    let warnings = |t: f64, lc: &str| -> Vec<String> {
+        let r = trace(&doc(t, lc));
+        r["warnings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|w| w.as_str().unwrap().to_string())
+            .collect()
+    };
+    for t in [35.0, 60.0] {
+        let e = trace_scenario(&Scenario::from_json_str(&doc(t, r#""5cb""#)).unwrap()).unwrap_err();
+        assert_eq!(e.field, "temperature_c");
+        assert!(
+            e.message.contains("elements[1]") && e.message.contains("clearing point"),
+            "{}",
+            e.message
+        );
+    }
+    for t in [20.0, 25.0, 30.0] {
+        assert!(warnings(t, r#""5cb""#).is_empty(), "{t} °C");
+    }
+    assert_eq!(
+        trace(&doc(20.0, r#""5cb""#))["total_power"],
+        trace(&doc(30.0, r#""5cb""#))["total_power"]
+    );
+    for t in [34.0, 10.0] {
+        let w = warnings(t, r#""5cb""#);
+        assert!(
+            w.len() == 1 && w[0].starts_with("elements[1].lc: 5cb's constants"),
+            "{t} °C: {w:?}"
+        );
+    }
+    let custom =
+        r#"{"ne": 1.7, "no": 1.5, "k11_pn": 6, "k22_pn": 3, "k33_pn": 10, "eps_parallel": 19, "eps_perpendicular": 7}"#;
+    assert!(warnings(60.0, custom).is_empty());
+}

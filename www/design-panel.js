@@ -256,8 +256,9 @@ function buildDesignFields(state) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
     nodes.splice(at < 0 ? nodes.length : at + 1, 0, temperature.row);
   }
-  // The cell's voltage (src/contract/request/lc.rs): no temperature, the nematic's data are at
-  // 25 °C only. Custom constants are asked in a JSON request.
+  // The cell's voltage (src/contract/request/lc.rs). The nematic's constants are its values near
+  // 25 °C: the temperature is checked (refused at the clearing point, warned away from the
+  // data) but does not change them. Custom constants are asked in a JSON request.
   const cellThickness = addField(state, 'thickness_um', { label: 'Cell gap', spoken: 'Thickness of the nematic layer', unit: 'µm', value: 5 });
   const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: [['5cb', '5CB']], hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
   const rubbing = addField(state, 'rubbing_azimuth_deg', { label: 'Rubbing azimuth', spoken: 'Director azimuth at the entrance', unit: '°', value: 45 });
@@ -268,7 +269,7 @@ function buildDesignFields(state) {
     addField(state, 'retardance_range_waves[0]', { label: 'From', spoken: 'Retardance range from', unit: 'waves', placeholder: 'none' }).row,
     addField(state, 'retardance_range_waves[1]', { label: 'to', spoken: 'Retardance range to', unit: 'waves', placeholder: 'none' }).row,
   ], { pair: true, hint: 'The thinnest cell of this construction that spans it.' });
-  state.design.layout['lc-voltage'] = [cellThickness.row, nematic.row, rubbing.row, twist.row, pretilt.row, wl.row, retardance.row, maxVolt.row, range];
+  state.design.layout['lc-voltage'] = [cellThickness.row, nematic.row, rubbing.row, twist.row, pretilt.row, wl.row, temperature.row, retardance.row, maxVolt.row, range];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
   const lim = state.design.limits;
@@ -492,7 +493,6 @@ function designRequest(state) {
     put('retardance_waves');
     put('max_voltage_v');
     pair('retardance_range_waves');
-    return req;
   } else if (kind === 'recombiner') {
     Object.assign(req, medium(''));
     put('wavelength_nm');

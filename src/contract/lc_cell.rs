@@ -200,6 +200,38 @@ impl LcCell {
         }
     }
 
+    /// The warning or error for a cell at `temperature_c`: a catalogued nematic's constants are
+    /// its values at one temperature (`optics::lc::catalogue`); outside the band where they are
+    /// used without remark the answer says so, and at or above the clearing point the nematic is
+    /// an isotropic liquid, which the catalogue does not describe. Custom constants are taken
+    /// as given, at whatever temperature they were measured.
+    ///
+    /// # Errors
+    /// `temperature_c` at or above a catalogued nematic's clearing point.
+    pub fn temperature_check(&self, temperature_c: f64) -> Result<Option<String>, Error> {
+        let LcMaterial::Catalogue(e) = self.lc else {
+            return Ok(None);
+        };
+        if temperature_c >= e.clearing_c {
+            return Err(Error::new(
+                "temperature_c",
+                format!(
+                    "{temperature_c} °C is at or above {}'s clearing point, about {} °C: it is an isotropic \
+                     liquid there, not a nematic, and no cell of it can be traced",
+                    e.key, e.clearing_c
+                ),
+            ));
+        }
+        let (lo, hi) = e.quiet_c;
+        Ok((!(lo..=hi).contains(&temperature_c)).then(|| {
+            format!(
+                "{}'s constants are its values near 25 °C, used unchanged at {temperature_c} °C; they hold \
+                 from {lo} to {hi} °C (its birefringence falls as the clearing point, about {} °C, nears)",
+                e.key, e.clearing_c
+            )
+        }))
+    }
+
     /// The substrates' layout in radians.
     pub fn layout(&self) -> CellLayout {
         CellLayout {

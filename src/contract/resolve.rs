@@ -87,12 +87,14 @@ impl Scenario {
                 }
                 ElementKind::Rotator { angle_deg } => Element::Ideal(jones::rotator(angle_deg.to_radians())),
                 ElementKind::Cell(cell) => {
-                    if let (_, Some(w)) = cell.nematic(self.wavelength) {
-                        warnings.push(Warning {
-                            element: idx,
-                            text: format!("elements[{idx}].lc: {w}"),
-                        });
-                    }
+                    let hot = cell.temperature_check(self.temperature_c).map_err(|e| {
+                        Error::new("temperature_c", format!("elements[{idx}] (lc_cell): {}", e.message))
+                    })?;
+                    let (_, fit) = cell.nematic(self.wavelength);
+                    warnings.extend(hot.into_iter().chain(fit).map(|w| Warning {
+                        element: idx,
+                        text: format!("elements[{idx}].lc: {w}"),
+                    }));
                     let solved = cell.solve(self.wavelength);
                     Element::Cell(cell.jones(&solved, self.wavelength, self.outside_index, qt, self.losses))
                 }

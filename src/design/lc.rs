@@ -54,6 +54,12 @@ pub struct LcVoltageDesign {
     pub slope_waves_per_v: f64,
     /// The design wavelength, nm.
     pub wavelength_nm: f64,
+    /// The temperature the cell works at, °C (a catalogued nematic's constants do not change with
+    /// it; see `warnings`).
+    pub temperature_c: f64,
+    /// The solver's own warnings (the cell's at its temperature); the answer lists them first.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
     /// Retardance against voltage from 0 to the highest voltage, [V, waves].
     pub curve: Vec<[f64; 2]>,
     /// The thinnest cell for the range, when a range was asked.
@@ -118,7 +124,8 @@ pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
             kind: ElementKind::Cell(cell),
             contact: Contact::Air,
         }],
-    );
+    )
+    .at_temperature(r.temperature_c);
     Ok(LcVoltageDesign {
         voltage_v,
         retardance_waves: solved.retardance_waves,
@@ -127,6 +134,8 @@ pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
         retardance_span_waves: [top, bottom],
         slope_waves_per_v: slope,
         wavelength_nm: r.wavelength.nm(),
+        temperature_c: r.temperature_c,
+        warnings: r.temperature_warning.iter().cloned().collect(),
         curve: volts.iter().zip(&curve).map(|(&v, &g)| [v, g]).collect(),
         range,
         scenario: part,
@@ -178,5 +187,25 @@ mod tests {
         let e =
             solve_str(r#"{"kind": "lc-voltage", "thickness_um": 2, "lc": "5cb", "retardance_waves": 3}"#).unwrap_err();
         assert_eq!(e.field, "retardance_waves");
+    }
+
+    /// The design works at its `temperature_c`: quiet at 20–30 °C, warned at 32 °C with the same
+    /// voltage (the constants do not change), refused at 5CB's clearing point (about 35 °C,
+    /// common practice, from memory); the part carries the temperature.
+    #[test]
+    fn the_cell_s_temperature_is_checked_and_carried() {
+        let at = |t: f64| {
+            solve_str(&format!(
+                r#"{{"kind": "lc-voltage", "thickness_um": 5, "lc": "5cb", "retardance_waves": 0.25, "temperature_c": {t}}}"#
+            ))
+        };
+        let (quiet, warm) = (at(25.0).unwrap(), at(32.0).unwrap());
+        assert_eq!(quiet["warnings"], serde_json::json!([]));
+        assert_eq!(quiet["voltage_v"], warm["voltage_v"]);
+        let w = warm["warnings"][0].as_str().unwrap();
+        assert!(w.starts_with("temperature_c: 5cb's constants"), "{w}");
+        assert_eq!(warm["temperature_c"], 32.0);
+        assert_eq!(warm["scenario"]["temperature_c"], 32.0);
+        assert_eq!(at(35.0).unwrap_err().field, "temperature_c");
     }
 }

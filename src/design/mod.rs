@@ -447,7 +447,10 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
     };
     let notes = notes::notes(&crystals, out["clear_aperture_mm"].as_f64());
     if let Value::Object(m) = &mut out {
-        m.insert("warnings".into(), json!(warnings));
+        // A solver's own warnings (what the audit cannot see) come before the audit's.
+        let mut all: Vec<Value> = m.get("warnings").and_then(Value::as_array).cloned().unwrap_or_default();
+        all.extend(warnings.into_iter().map(Value::String));
+        m.insert("warnings".into(), Value::Array(all));
         m.insert("sources".into(), sources_used(&crystals));
         // A solver's own notes (what it assumed or changed) come before the shop's.
         let mut all: Vec<Value> = m.get("notes").and_then(Value::as_array).cloned().unwrap_or_default();

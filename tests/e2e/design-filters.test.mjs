@@ -76,7 +76,7 @@ test('a cell\'s voltage from the panel is the command line\'s, drawn, and loads 
     await fill(page, 'lc-voltage', [['thickness_um', request.thickness_um], ['lc', request.lc], ['rubbing_azimuth_deg', request.rubbing_azimuth_deg],
       ['wavelength_nm', request.wavelength_nm], ['retardance_waves', request.retardance_waves],
       ['retardance_range_waves[0]', request.retardance_range_waves[0]], ['retardance_range_waves[1]', request.retardance_range_waves[1]]]);
-    assert.equal(await page.locator('[data-design-field="temperature_c"]').isVisible(), false, 'no temperature: the nematic data are at 25 °C only');
+    assert.equal(await page.locator('[data-design-field="temperature_c"]').isVisible(), true, 'the temperature is checked against the nematic\'s range');
     await solveDesign(page);
     const req = await page.evaluate(() => window.doublespar.designRequest());
     assert.deepEqual({ ...req, twist_deg: undefined, pretilt_deg: undefined, max_voltage_v: undefined },
@@ -98,5 +98,8 @@ test('a cell\'s voltage from the panel is the command line\'s, drawn, and loads 
     const traced = await page.evaluate(() => window.doublespar.session.result().elements[0].retardance_waves);
     assert.ok(close(traced, request.retardance_waves, 1e-6), `the page's trace of the cell gives ${traced} waves`);
     await expectFieldError(page, ['retardance_waves', 5], 'retardance_waves', 'a retardance the cell cannot reach');
+    // 5CB clears to an isotropic liquid at about 35 °C (common practice): refused on the field.
+    const hot = await expectFieldError(page, ['temperature_c', 40], 'temperature_c', 'a cell above its clearing point');
+    assert.match(hot, /clearing point/, hot);
   });
 });

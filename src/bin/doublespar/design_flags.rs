@@ -269,7 +269,7 @@ const ATHERMAL: [Flag; 10] = [
     DESIGN_TEMPERATURE,
 ];
 
-const LC_VOLTAGE: [Flag; 9] = [
+const LC_VOLTAGE: [Flag; 10] = [
     flag("thickness-um", "thickness_um", N, "cell gap, µm (required)"),
     flag("lc", "lc", T, "nematic, a catalogue key: 5cb (required)"),
     flag(
@@ -294,6 +294,7 @@ const LC_VOLTAGE: [Flag; 9] = [
         "range LOW,HIGH in waves the thinnest cell must span [none]",
     ),
     flag("max-voltage-v", "max_voltage_v", N, "highest RMS drive voltage, V [20]"),
+    DESIGN_TEMPERATURE,
 ];
 
 const RECOMBINER: [Flag; 12] = [

@@ -12,8 +12,12 @@
 //! | `retardance_waves` | required | above 0, at most 100 |
 //! | `retardance_range_waves` | none | [low, high], 0 ≤ low < high ≤ 100 |
 //! | `max_voltage_v` | 20 | above 0, at most 1000 |
+//! | `temperature_c` | 20 | as every design request; at or above a catalogued nematic's clearing point an error |
+//!
+//! A catalogued nematic's constants are its values at one temperature: outside the band where
+//! they are used without remark the answer warns (`contract::lc_cell`).
 
-use super::wavelength_field;
+use super::{temperature_field, wavelength_field};
 use crate::contract::fields::{Fields, number_list};
 use crate::contract::lc_cell::{self, LcCell};
 use crate::error::{Error, above};
@@ -32,6 +36,10 @@ pub struct LcVoltageRequest {
     pub range_waves: Option<(f64, f64)>,
     /// The highest voltage the drive gives, RMS volts.
     pub max_voltage_v: f64,
+    /// The temperature the cell works at, °C.
+    pub temperature_c: f64,
+    /// The cell's warning at that temperature, if any (`temperature_c: …`).
+    pub temperature_warning: Option<String>,
 }
 
 impl LcVoltageRequest {
@@ -40,7 +48,8 @@ impl LcVoltageRequest {
     /// # Errors
     /// The path of the first offending field: the cell's (`thickness_um`, `lc`, `lc.k11_pn`, …),
     /// `voltage_v` (given: the design finds it), `retardance_waves`, `retardance_range_waves`,
-    /// `max_voltage_v`, `wavelength_nm`.
+    /// `max_voltage_v`, `wavelength_nm`, `temperature_c` (out of range, or at or above a
+    /// catalogued nematic's clearing point).
     pub fn from_json(f: &mut Fields) -> Result<LcVoltageRequest, Error> {
         if f.has("voltage_v") {
             return Err(Error::new(
@@ -67,12 +76,18 @@ impl LcVoltageRequest {
             }
         };
         let max_voltage_v = above("max_voltage_v", f.number_or("max_voltage_v", 20.0)?, 0.0, 1000.0)?;
+        let temperature_c = temperature_field(f)?;
+        let temperature_warning = cell
+            .temperature_check(temperature_c)?
+            .map(|w| format!("temperature_c: {w}"));
         Ok(LcVoltageRequest {
             cell,
             wavelength,
             retardance_waves,
             range_waves,
             max_voltage_v,
+            temperature_c,
+            temperature_warning,
         })
     }
 }
@@ -108,6 +123,10 @@ mod tests {
             (
                 r#"{"thickness_um": 5, "lc": {"ne": 1.7}, "retardance_waves": 0.5}"#.to_string(),
                 "lc.no",
+            ),
+            (
+                format!(r#"{{{cell}, "retardance_waves": 0.5, "temperature_c": 35}}"#),
+                "temperature_c",
             ),
         ] {
             assert_eq!(first_error(&doc, LcVoltageRequest::from_json).field, field, "{doc}");

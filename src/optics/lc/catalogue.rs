@@ -5,7 +5,10 @@
 //! visible and near infrared at about 25 °C; elastic and dielectric constants are single values
 //! at about the same temperature (the permittivities at 1 kHz, the usual drive frequency). The
 //! catalogue holds these at one temperature only: a scenario's `temperature_c` does not change
-//! them. Values marked "from memory" were recalled, not copied from the paper at hand.
+//! them. Each entry also records the band about that temperature in which they are used without
+//! remark and the nematic's clearing point, above which it is an isotropic liquid and the entry
+//! does not describe it at all (the contract refuses such a temperature). Values marked "from
+//! memory" were recalled, not copied from the paper at hand.
 
 use crate::optics::lc::nematic::Nematic;
 
@@ -26,6 +29,10 @@ pub struct NematicEntry {
     pub k_pn: [f64; 3],
     /// ε∥ and ε⊥ (static, 1 kHz).
     pub eps: [f64; 2],
+    /// Temperatures at which the constants are used without remark, °C: about their measurement.
+    pub quiet_c: (f64, f64),
+    /// Nematic–isotropic transition (clearing point), °C.
+    pub clearing_c: f64,
     /// Where the numbers come from.
     pub source: &'static str,
 }
@@ -46,6 +53,12 @@ pub const NEMATICS: [NematicEntry; 1] = [NematicEntry {
     k_pn: [6.4, 3.0, 10.0],
     // Bradshaw et al. (1985), from memory: ε∥ = 19.7, ε⊥ = 6.7 at 1 kHz (Δε = 13.0).
     eps: [19.7, 6.7],
+    // Measured at about 25 °C; used without remark from 20 to 30 °C. 5CB is nematic from about
+    // 24 °C (it supercools in thin cells, so room temperature is usual) and clears at about
+    // 35 °C (common practice, from memory: 35.0–35.3 °C is quoted). Its birefringence falls
+    // steeply as the clearing point nears, which these fixed constants do not follow.
+    quiet_c: (20.0, 30.0),
+    clearing_c: 35.0,
     source: "indices: Li & Wu, J. Appl. Phys. 95, 896 (2004); elastic and dielectric constants: Bradshaw et al., J. Physique 46, 1513 (1985)",
 }];
 
