@@ -676,6 +676,7 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "filter-mgf2-stage-doubling",
         "filter-calcite-folded",
         "broadband-quartz-half",
+        "broadband-quartz-mgf2-half",
         "waveplate-ktp-half",
         "displacer-lbo-xz",
     ] {

@@ -227,7 +227,14 @@ function buildDesignFields(state) {
   });
   const stages = addField(state, 'stages', { label: 'Plates', spoken: 'Number of plates of the filter', value: 4, step: 1, hint: '1 to 8 stage-doubling, 2 to 10 folded.' });
   const bandwidth = addField(state, 'bandwidth_nm', { label: 'Pass band (FWHM)', spoken: 'Width of the pass band', unit: 'nm', value: 1 });
-  const plateCount = addField(state, 'plates', { label: 'Plates', spoken: 'Number of plates of the retarder', value: 3, step: 1, hint: '2 to 7 plates of this crystal; plates of different crystals are asked in a JSON request ("materials").' });
+  const plateCount = addField(state, 'plates', { label: 'Plates', spoken: 'Number of plates of the retarder', value: 3, step: 1, hint: '2 to 7 plates.' });
+  // Two crystals: the plates alternate, the first crystal first (the request's `materials`, one
+  // catalogue key per plate; other orders are asked in a JSON request).
+  const alternate = addField(state, 'materials', {
+    label: 'Alternate with', spoken: 'Second crystal of the retarder, alternating plate by plate', kind: 'select',
+    options: [['', 'no second crystal'], ...state.materialList.filter((m) => m.kind !== 'biaxial').map((m) => [m.key, materialName(state, m.key)])],
+    hint: 'Plates 1, 3, 5 … of the first crystal, 2, 4 … of this one; catalogue crystals only.',
+  });
   const fastAxis = addField(state, 'fast_axis_deg', { label: 'Fast axis', spoken: 'Fast axis of the retarder', unit: '°', value: 0 });
   const maxThick = addField(state, 'max_thickness_mm', { label: 'Thickest plate', spoken: 'Thickest plate searched', unit: 'mm', placeholder: 'two full waves' });
   const generations = addField(state, 'generations', { label: 'Search generations', value: 1000, step: 100, hint: '10 to 5000; the search is deterministic for its seed.' });
@@ -250,7 +257,7 @@ function buildDesignFields(state) {
   state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
   state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
   state.design.layout['birefringent-filter'] = [...medium.nodes, layout.row, stages.row, wl.row, bandwidth.row, band];
-  state.design.layout['broadband-retarder'] = [...medium.nodes, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
+  state.design.layout['broadband-retarder'] = [...medium.nodes, alternate.row, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
   // The temperature beside the wavelength, as in the set-up (after the design wavelengths of a pair).
   for (const nodes of Object.values(state.design.layout)) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
@@ -475,8 +482,17 @@ function designRequest(state) {
     put('bandwidth_nm');
     pair('band_nm');
   } else if (kind === 'broadband-retarder') {
-    Object.assign(req, medium(''));
-    put('plates');
+    // Two crystals alternate when a second is chosen and the plate count is one the core takes;
+    // otherwise the request names the plates, so that the core's error lands on that field.
+    const second = state.design.fields.materials.value;
+    const n = state.design.fields.plates;
+    if (second && !n.blank && Number.isInteger(n.value) && n.value >= 2 && n.value <= 7) {
+      const first = state.design.fields.material.value;
+      req.materials = Array.from({ length: n.value }, (_, i) => (i % 2 ? second : first));
+    } else {
+      Object.assign(req, medium(''));
+      put('plates');
+    }
     put('retardance_waves');
     put('fast_axis_deg');
     pair('band_nm');

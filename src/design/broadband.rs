@@ -162,7 +162,9 @@ pub struct BroadbandDesign {
     pub departures: Departures,
     /// Retardance, fast axis and rotation across the band.
     pub curve: Vec<BandPoint>,
-    /// The published classic design (three-plate half-wave of one crystal), when it applies.
+    /// The published classic design (three-plate half-wave of one crystal), when it applies
+    /// (left out otherwise).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub classic: Option<Reference>,
     /// A single zero-order plate of the first crystal, for comparison.
     pub single_plate: Reference,

@@ -34,7 +34,7 @@ pub(super) fn broadband(r: &mut Report) {
     r.quantity("target fast axis", "target_fast_axis_deg", "° from x");
     let this = departures(r, "departures");
     r.line("over the band", this);
-    if r.v.get("classic").is_some_and(|c| !c.is_null()) {
+    if r.v.get("classic").is_some() {
         let name = r.s("classic.name").unwrap_or_default();
         let classic = departures(r, "classic.departures");
         r.line("the classic design", format!("{name}: {classic}"));
