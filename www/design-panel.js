@@ -237,7 +237,7 @@ function buildDesignFields(state) {
   });
   const fastAxis = addField(state, 'fast_axis_deg', { label: 'Fast axis', spoken: 'Fast axis of the retarder', unit: '°', value: 0 });
   const maxThick = addField(state, 'max_thickness_mm', { label: 'Thickest plate', spoken: 'Thickest plate searched', unit: 'mm', placeholder: 'two full waves' });
-  const generations = addField(state, 'generations', { label: 'Search generations', value: 1000, step: 100, hint: '10 to 5000; the search is deterministic for its seed.' });
+  const generations = addField(state, 'generations', { label: 'Search generations', value: 1000, step: 100, hint: '10 to 5000; the search is deterministic for its seed. Five plates or more usually need several thousand.' });
 
   // Every kind: the temperature the part works at (the core's default 20 °C, range −200 to 500).
   const temperature = addField(state, 'temperature_c', {

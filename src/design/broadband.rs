@@ -17,10 +17,15 @@
 //! (0 to twice a full-wave plate of its crystal at the band's centre, or `max_thickness_mm`) and
 //! azimuth (0 to 180°). The minimizer is differential evolution ([`crate::design::evolution`]),
 //! deterministic for the seed, started from a single zero-order plate of the first crystal (the
-//! other plates of no thickness), so the answer is never worse than that plate. For a half-wave target with three plates of one crystal, the
-//! classic design of S. Pancharatnam (Proc. Indian Acad. Sci. A 41, 137 (1955), from memory: three
-//! equal half-wave plates, the outer two parallel, the middle one at 60° to them) is placed in
-//! the first population and reported beside the result as the reference it must match or beat.
+//! other plates of no thickness), so the answer is never worse than that plate. For a half-wave
+//! target with three plates of one crystal, the classic design of S. Pancharatnam (Proc. Indian
+//! Acad. Sci. A 41, 137 (1955), from memory: three equal half-wave plates, the outer two
+//! parallel, the middle one at 60° to them) is placed in the first population and reported
+//! beside the result as the reference it must match or beat. With more plates, or two crystals,
+//! the classic is placed on the first three plates of one crystal (the others of no thickness,
+//! the same Jones product), so that more plates never answer worse than the classic they contain;
+//! a search of more than three plates needs more generations to leave that start (five quartz
+//! plates, 450–800 nm: ±0.083 waves at 1000 generations, ±0.011 at 5000).
 //!
 //! Conventions: azimuths from x toward y, degrees; the fast axis of the equivalent retarder is
 //! the one whose light leads by δ.
@@ -386,8 +391,28 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         .copied()
         .chain(std::iter::repeat_n((0.0, 0.0), req.media.len() - 1))
         .collect();
+    // For a half wave of more plates, or of two crystals, the classic on the first three plates
+    // of one crystal with the others of no thickness: so that more plates, or a second crystal,
+    // never give a worse answer than the classic they contain.
+    let padded_classic: Option<Vec<(f64, f64)>> = ((req.retardance_waves - 0.5).abs() < 1e-12
+        && classic_plates.is_none())
+    .then(|| {
+        let group: Vec<usize> = req.media.iter().enumerate().find_map(|(i, m)| {
+            let same: Vec<usize> = (i..req.media.len()).filter(|&j| req.media[j] == *m).take(3).collect();
+            (same.len() == 3).then_some(same)
+        })?;
+        let t = 0.5 / model.centre_w[group[0]].abs();
+        let f = req.fast_axis_deg;
+        let mut plates = vec![(0.0, 0.0); req.media.len()];
+        for (k, &i) in group.iter().enumerate() {
+            plates[i] = (t, (f + if k == 1 { 120.0 } else { 60.0 }).rem_euclid(180.0));
+        }
+        Some(plates)
+    })
+    .flatten();
     let starts: Vec<Vec<f64>> = classic_plates
         .iter()
+        .chain(padded_classic.iter())
         .chain(std::iter::once(&single_padded))
         .map(|p| p.iter().flat_map(|&(t, az)| [t, az]).collect())
         .collect();
