@@ -470,7 +470,7 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         classic,
         single_plate,
         search: Search {
-            method: "differential evolution (DE/rand/1/bin, Storn & Price 1997)",
+            method: "differential evolution (DE/rand/1/bin, Storn & Price 1997, with self-adapting F and CR, Brest et al. 2006)",
             population,
             generations,
             seed: req.seed,
