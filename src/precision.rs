@@ -219,3 +219,9 @@ pub const DIRECTOR_STEP_RAD: f64 = 1e-11;
 /// Newton iterations of the director solver before it keeps what it has; a cold start at 20 V
 /// needs about 20, a warm start from the neighbouring voltage of a curve 3 to 6.
 pub const DIRECTOR_ITERATIONS: usize = 200;
+
+/// Tangential wave vectors closer than this (each component) meet a liquid-crystal cell in the
+/// same direction as the input beam and take the Jones matrix found there: rounding in the
+/// rays' directions (about 1e-16) stays far below it, and a ray turned by a wedge or a tilted
+/// plate (1e-6 and more) far above.
+pub const CELL_SAME_DIRECTION: f64 = 1e-13;

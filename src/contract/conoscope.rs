@@ -44,7 +44,8 @@ pub struct ConoscopeMap {
 /// # Errors
 /// `conoscope.cone_deg` outside (0, 80]; `conoscope.pixels` outside 1 to 512; from
 /// [`Scenario::resolve`]; `elements[i]` for an element with faces at an angle, a general crystal
-/// or a liquid-crystal cell; `elements` for a retardance error without a crystal.
+/// (liquid-crystal cells are solved at every direction); `elements` for a retardance error
+/// without a crystal.
 pub fn conoscope_of(sc: &Scenario, quantity: Quantity, cone_deg: f64, pixels: usize) -> Result<ConoscopeMap, Error> {
     if !(cone_deg > 0.0 && cone_deg <= MAX_CONE_DEG) {
         return Err(Error::new(

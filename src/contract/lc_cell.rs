@@ -14,8 +14,9 @@
 //! permittivities 1 to 1000 with `eps_parallel` above `eps_perpendicular` (a nematic the field
 //! turns toward z). The cell has zero thickness in the stack's geometry and no placement fields.
 //! Its director profile is solved on [`LC_SUBLAYERS`] sublayers and its Jones matrix found at the
-//! input beam's tangential wave vector, which every ray of a plane-parallel stack shares
-//! (`optics::lc::stratified`).
+//! input beam's tangential wave vector, which every ray of a plane-parallel stack shares; rays
+//! that a tilted face has turned, and the directions of a conoscopic figure, get it solved at
+//! their own (`optics::lc::stratified`).
 //!
 //! Cells work alike on the command line and in the page (whose WebAssembly module carries the
 //! director solver and the 4×4 transfer: about 29 KB).
@@ -29,6 +30,7 @@ use crate::optics::lc::catalogue::{self, NematicEntry};
 use crate::optics::lc::director::{CellLayout, Profile, solve};
 use crate::optics::lc::nematic::Nematic;
 use crate::optics::lc::stratified::cell_jones;
+use crate::optics::stack::LayeredCell;
 use crate::optics::wavelength::Wavelength;
 use crate::precision::LC_SUBLAYERS;
 use serde_json::{Value, json};
@@ -265,6 +267,17 @@ impl LcCell {
     pub fn retardance_curve(&self, wavelength: Wavelength, voltages: &[f64]) -> Vec<f64> {
         let (nematic, _) = self.nematic(wavelength);
         crate::optics::lc::curve::retardance_curve(&nematic, &self.layout(), wavelength.um(), voltages, LC_SUBLAYERS)
+    }
+
+    /// This solve's layered optics, which give the cell's Jones matrix at any direction.
+    pub fn layered(&self, solved: SolvedCell, wavelength: Wavelength, losses: Losses) -> LayeredCell {
+        LayeredCell {
+            nematic: solved.nematic,
+            profile: solved.profile,
+            thickness_um: self.thickness_um,
+            k0_per_um: std::f64::consts::TAU / wavelength.um(),
+            losses,
+        }
     }
 
     /// The cell's Jones matrix at tangential wave vector `qt` in an outside medium of index

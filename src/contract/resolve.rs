@@ -16,8 +16,9 @@ use crate::error::{Error, in_range};
 use crate::optics::anisotropic::{Anisotropic, orientation};
 use crate::optics::geometry::direction;
 use crate::optics::jones::{self, Jones};
+use crate::optics::lc::stratified::layered_jones;
 use crate::optics::material::{self, Indices};
-use crate::optics::stack::{Element, InputBeam, Layer, Medium, Slab, Stack};
+use crate::optics::stack::{CellLayer, Element, InputBeam, Layer, Medium, Slab, Stack};
 use crate::optics::uniaxial::{OpticAxis, Uniaxial};
 use crate::optics::wavelength::Wavelength;
 use nalgebra::Vector3;
@@ -43,6 +44,7 @@ impl Scenario {
     pub fn resolve(&self) -> Result<(Stack, Vec<Warning>), Error> {
         let mut warnings = Vec::new();
         let mut layers = Vec::with_capacity(self.elements.len());
+        let mut cells = Vec::new();
         let mut z = 0.0;
         let (p, a) = (self.beam.polar_deg.to_radians(), self.beam.azimuth_deg.to_radians());
         let u = direction(p, a);
@@ -96,7 +98,13 @@ impl Scenario {
                         text: format!("elements[{idx}].lc: {w}"),
                     }));
                     let solved = cell.solve(self.wavelength);
-                    Element::Cell(cell.jones(&solved, self.wavelength, self.outside_index, qt, self.losses))
+                    let optics = cell.layered(solved, self.wavelength, self.losses);
+                    let at_input = layered_jones(&optics, self.outside_index, qt);
+                    cells.push(optics);
+                    Element::Cell(CellLayer {
+                        at_input,
+                        optics: cells.len() - 1,
+                    })
                 }
             };
             layers.push(Layer {
@@ -117,6 +125,7 @@ impl Scenario {
             },
             layers,
             screen_mm: self.screen_mm,
+            cells,
         };
         Ok((stack, warnings))
     }

@@ -351,6 +351,7 @@ mod tests {
             },
             layers,
             screen_mm: between(rng, 0.0, 50.0),
+            cells: Vec::new(),
         }
     }
 

@@ -39,6 +39,7 @@
 
 use crate::optics::interface::CMatrix2;
 use crate::optics::jones::JonesMatrix;
+use crate::optics::lc::stratified::cell_jones_at;
 use crate::optics::modes::{Travel, isotropic_modes};
 use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
@@ -81,13 +82,12 @@ impl Grid {
 
 /// Whether `stack` is a stack of plane-parallel plates whose every direction this module can
 /// solve: `Err(index)` names the first element that is not (a slab with faces at an angle or of a
-/// general crystal, or a liquid-crystal cell).
+/// general crystal). Liquid-crystal cells are solved at every direction (their layered optics).
 pub fn conoscope_stack_ok(stack: &Stack) -> Result<(), usize> {
     for (i, layer) in stack.layers.iter().enumerate() {
         let ok = match layer.element {
             Element::Slab(s) => s.faces.is_none() && matches!(s.medium, crate::optics::stack::Medium::Uniaxial(_)),
-            Element::Ideal(_) => true,
-            Element::Cell(_) => false,
+            Element::Ideal(_) | Element::Cell(_) => true,
         };
         if !ok {
             return Err(i);
@@ -127,7 +127,8 @@ pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
                 }
                 m = t_out * phase * t_in * m;
             }
-            Element::Ideal(jm) | Element::Cell(jm) => m = jm * m,
+            Element::Ideal(jm) => m = jm * m,
+            Element::Cell(c) => m = cell_jones_at(stack, &c, qt) * m,
         }
     }
     m
@@ -210,6 +211,7 @@ mod tests {
                 },
                 layers: vec![slab(1.658, 1.486, 30.0, 10.0, 0.7), slab(1.544, 1.553, 90.0, 70.0, 2.0)],
                 screen_mm: 0.0,
+                cells: Vec::new(),
             };
             let sum: JonesMatrix = trace(&stack).paths.iter().map(|path| path.matrix).sum();
             let product = set_up_matrix(&stack, stack.tangential());

@@ -34,9 +34,10 @@ use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::{CMatrix2, Losses, bare_face, lossless_part};
 use crate::optics::jones::JonesMatrix;
+use crate::optics::lc::stratified::cell_jones_at;
 use crate::optics::modes::{CrystalSurfaces, Mode, Travel, beam_basis, crystal_modes_with, isotropic_modes};
 use crate::optics::spots::{coherency, power_of};
-use crate::optics::stack::{Contact, Element, Faces, Medium, Slab, Stack};
+use crate::optics::stack::{CellLayer, Contact, Element, Faces, Medium, Slab, Stack};
 use crate::optics::traced::{LayerTrace, Path, RejectReason, Rejected, Side, Trace};
 use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, POWER_ROUNDING};
@@ -513,8 +514,8 @@ fn trace_with(stack: &Stack, mut trails: Trails, seen: Vec<Seen>) -> (Trace, Tra
         }
         run.tallies[idx].power_in = run.power(&flights);
         flights = match layer.element {
-            Element::Ideal(jm) => run.through_ideal(idx, z, (jm, None), flights),
-            Element::Cell(jm) => run.through_ideal(idx, z, (jm, Some('c')), flights),
+            Element::Ideal(jm) => run.through_ideal(idx, z, Thin::Ideal(jm), flights),
+            Element::Cell(c) => run.through_ideal(idx, z, Thin::Cell(c), flights),
             Element::Slab(slab) => {
                 let through = run.through_slab(idx, z, &slab, into_next, flights);
                 z += slab.thickness_mm;
@@ -536,6 +537,15 @@ fn trace_with(stack: &Stack, mut trails: Trails, seen: Vec<Seen>) -> (Trace, Tra
 }
 
 /// One trace in progress: the tracer and what it has booked so far.
+/// A zero-thickness element as the face-by-face trace meets it.
+#[derive(Clone, Copy)]
+enum Thin {
+    /// An ideal element: one Jones matrix for every ray.
+    Ideal(JonesMatrix),
+    /// A liquid-crystal cell: its matrix at each ray's direction.
+    Cell(CellLayer),
+}
+
 struct Run<'a> {
     tracer: Tracer<'a>,
     rejected: Vec<Rejected>,
@@ -555,15 +565,10 @@ impl Run<'_> {
         leave_pending(&self.tracer, flights, outside, &mut self.rejected, &mut self.tallies)
     }
 
-    /// Ideal element `idx` at z: each ray travels to the plane z, where its Jones matrix takes
-    /// `jm` and its label the element's letter, if it has one (a cell's `c`).
-    fn through_ideal(
-        &mut self,
-        idx: usize,
-        z: f64,
-        (jm, letter): (JonesMatrix, Option<char>),
-        flights: Vec<Flight>,
-    ) -> Vec<Flight> {
+    /// Ideal element or cell `idx` at z: each ray travels to the plane z, where its Jones matrix
+    /// takes the element's (a cell's at the ray's own direction, [`cell_jones_at`]) and
+    /// a cell's ray its label letter `c`.
+    fn through_ideal(&mut self, idx: usize, z: f64, thin: Thin, flights: Vec<Flight>) -> Vec<Flight> {
         let plane = Plane::across_z(z);
         let mut next = Vec::with_capacity(flights.len());
         for mut f in flights {
@@ -578,11 +583,15 @@ impl Run<'_> {
                 );
                 continue;
             }
-            if let Carrier::Free { m, .. } = &mut f.carrier {
+            if let Carrier::Free { n, u, m } = &mut f.carrier {
+                let jm = match thin {
+                    Thin::Ideal(jm) => jm,
+                    Thin::Cell(c) => cell_jones_at(self.tracer.stack, &c, [*n * u.x, *n * u.y]),
+                };
                 *m = jm * *m;
             }
-            if let Some(c) = letter {
-                f.label = self.tracer.trails.borrow_mut().letter(f.label, c);
+            if let Thin::Cell(_) = thin {
+                f.label = self.tracer.trails.borrow_mut().letter(f.label, 'c');
             }
             next.push(f);
         }
@@ -923,6 +932,7 @@ mod tests {
             },
             layers,
             screen_mm: 0.0,
+            cells: Vec::new(),
         }
     }
 

@@ -99,6 +99,7 @@ mod tests {
                 }),
             }],
             screen_mm: 0.0,
+            cells: Vec::new(),
         };
         let traced = trace(&stack);
         let LayerTrace::Slab { modes, shifts_mm, .. } = &traced.layers[0] else {

@@ -26,6 +26,8 @@ use crate::optics::general_modes::general_modes;
 use crate::optics::geometry::Plane;
 use crate::optics::interface::Losses;
 use crate::optics::jones::{Jones, JonesMatrix};
+use crate::optics::lc::director::Profile;
+use crate::optics::lc::nematic::Nematic;
 use crate::optics::modes::{Mode, Travel, crystal_modes};
 use crate::optics::uniaxial::Uniaxial;
 use crate::optics::wavelength::Wavelength;
@@ -151,10 +153,37 @@ pub enum Element {
     /// An ideal element of zero thickness (retarder, polarizer, rotator): its Jones matrix on
     /// the beam basis.
     Ideal(JonesMatrix),
-    /// A liquid-crystal cell: zero thickness in the stack's geometry, its Jones matrix on the
-    /// beam basis found at the input beam's tangential wave vector (`optics::lc::stratified`);
-    /// traced as an ideal element, its rays gaining the label letter `c`.
-    Cell(JonesMatrix),
+    /// A liquid-crystal cell: zero thickness in the stack's geometry, traced as an ideal element
+    /// whose Jones matrix depends on the ray's direction, its rays gaining the label letter `c`.
+    Cell(CellLayer),
+}
+
+/// A solved liquid-crystal cell as the stack keeps it: what gives its Jones matrix at any
+/// tangential wave vector (`optics::lc::stratified`), for rays that meet it in directions other
+/// than the input beam's (behind a wedge or a tilted plate, or over a cone of directions).
+#[derive(Debug, Clone, PartialEq)]
+pub struct LayeredCell {
+    /// The nematic's constants at the wavelength.
+    pub nematic: Nematic,
+    /// The director profile at the cell's voltage (it does not depend on the light's direction).
+    pub profile: Profile,
+    /// Thickness of the nematic layer, µm.
+    pub thickness_um: f64,
+    /// Vacuum wave number, 1/µm.
+    pub k0_per_um: f64,
+    /// Treatment of the cell's faces.
+    pub losses: Losses,
+}
+
+/// A liquid-crystal cell in a stack: its Jones matrix on the beam basis at the input beam's
+/// tangential wave vector (every ray of a plane-parallel stack meets it there), and which of the
+/// stack's `cells` gives it at any other (`optics::lc::stratified`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CellLayer {
+    /// Its Jones matrix at the input beam's tangential wave vector.
+    pub at_input: JonesMatrix,
+    /// Index of its layered optics in the stack's `cells`.
+    pub optics: usize,
 }
 
 impl Element {
@@ -164,7 +193,7 @@ impl Element {
         match *self {
             Element::Slab(_) => None,
             Element::Ideal(jm) => Some((jm, None)),
-            Element::Cell(jm) => Some((jm, Some('c'))),
+            Element::Cell(c) => Some((c.at_input, Some('c'))),
         }
     }
 }
@@ -206,6 +235,9 @@ pub struct Stack {
     pub layers: Vec<Layer>,
     /// Distance from the last element's back axis point to the observation plane, mm.
     pub screen_mm: f64,
+    /// The layered optics of its liquid-crystal cells, in the order of the layers that name them
+    /// (`CellLayer::optics`).
+    pub cells: Vec<LayeredCell>,
 }
 
 impl Stack {

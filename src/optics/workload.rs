@@ -154,6 +154,7 @@ mod tests {
                 slab(calcite(90.0), 0.0, faces(inner, Plane::across_z(8.0), Contact::Direct)),
             ],
             screen_mm: 0.0,
+            cells: Vec::new(),
         }
     }
 

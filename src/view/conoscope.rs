@@ -9,8 +9,7 @@
 //! and white the largest value for a retardance error, each in 64 shades; outside the cone
 //! nothing is drawn. Rings mark 10°, 20°, … of polar angle in the outside medium; lines mark the
 //! input polarization (P, when linear) and the last polarizer's axis (A). A stack this view cannot
-//! solve (faces at an angle, a general crystal, a liquid-crystal cell) gets an empty disc with a
-//! note that says why.
+//! solve (faces at an angle, a general crystal) gets an empty disc with a note that says why.
 
 use super::scene::{Anchor, Aspect, Item, Priority, Raster, Rect, Role, Scene};
 use crate::contract::conoscope::{ConoscopeMap, conoscope_of};
