@@ -146,6 +146,10 @@ pub struct Thermal {
     pub thermo_optic: [ThermoOptic; 3],
     /// Source of the thermo-optic data, with its wavelength and temperature range.
     pub thermo_optic_source: &'static str,
+    /// Whether the thermo-optic data rest on a journal or handbook measurement of this crystal;
+    /// false for suppliers' values recalled without a journal behind them (rutile) or another
+    /// crystal's data standing in (alpha-BBO), whose source then starts "unverified:".
+    pub verified: bool,
     /// Linear expansion coefficients α_x, α_y, α_z along the principal axes, 1/K (uniaxial: α⊥,
     /// α⊥, α∥).
     pub expansion: [f64; 3],
@@ -196,6 +200,20 @@ impl Thermal {
             })?;
         }
         Ok(out)
+    }
+
+    /// The warning a design answer carries when its temperature figures (changes per kelvin,
+    /// temperature bands, athermal pairs) rest on unverified thermo-optic data, naming the
+    /// crystal by its key and by `name`; `None` for verified data.
+    pub fn data_warning(&self, name: &str) -> Option<String> {
+        (!self.verified).then(|| {
+            format!(
+                "unverified temperature data for {}: the {name} thermo-optic coefficients have no \
+                 journal measurement of this crystal behind them ({}), so this answer's changes per \
+                 kelvin and temperature bands are estimates",
+                self.key, self.thermo_optic_source
+            )
+        })
     }
 
     /// As [`Thermal`] a JSON object for the materials listing: `{range_c, reference_c,
@@ -319,6 +337,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "a crystal supplier's calcite data sheet, 500 nm (dn_o/dT 3e-6, dn_e/dT \
                               13e-6 /K); constants, 0-100 °C",
+        verified: true,
         // α∥ = 25e-6, α⊥ = −5.8e-6 /K (the same data sheet; handbook values 26e-6 and −5.4e-6,
         // from memory): calcite contracts across its axis on heating.
         expansion: [-5.8e-6, -5.8e-6, 25e-6],
@@ -355,6 +374,7 @@ static THERMAL: [Thermal; 11] = [
                               (1995), Table 20; dn_e/dT = dn_o/dT + (gamma - alpha_perp)(n_e - n_o) with the \
                               retardance coefficient gamma = -1.23e-4 /K measured by S. M. Etzel, A. H. Rose and \
                               C. M. Wang, Applied Optics 39, 5796 (2000), 633-1539 nm, 24-80 °C; 0-100 °C assumed",
+        verified: true,
         // α∥ = 7.1e-6, α⊥ = 13.2e-6 /K at 323 K: the same supplier's handbook (5th edition,
         // 2023, carried by the public-domain database of optical constants). A critical review
         // of the measurements, J. A. Kosinski, J. G. Gualtieri and A. Ballato, "Thermoelasticity in
@@ -379,6 +399,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "crystal suppliers' data sheets, from memory (dn_o/dT 8.5e-6, dn_e/dT 3.0e-6 /K); \
                               constants, 0-100 °C",
+        verified: true,
         // α_a = 4.43e-6, α_c = 11.37e-6 /K (suppliers' values reprinted by an online
         // encyclopedia's article on the crystal, found by search).
         expansion: [4.43e-6, 4.43e-6, 11.37e-6],
@@ -402,6 +423,7 @@ static THERMAL: [Thermal; 11] = [
         thermo_optic_source: "unverified: beta-BBO's dn_o/dT -16.6e-6 and dn_e/dT -9.3e-6 /K (Eimerl et al., \
                               J. Appl. Phys. 62, 1968 (1987)); an alpha-BBO data sheet swaps them; constants, \
                               0-100 °C",
+        verified: false,
         // α∥ = 36e-6, α⊥ = 4e-6 /K over 25-900 °C: the same alpha-BBO supplier's data sheet
         // (archived 2008, found by search); no journal value found.
         expansion: [4e-6, 4e-6, 36e-6],
@@ -419,6 +441,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "handbook values near 633 nm, from memory (dn_o/dT 13.1e-6, dn_e/dT 13.6e-6 /K); \
                               constants, 0-100 °C",
+        verified: true,
         // α∥ = 6.66e-6, α⊥ = 5.0e-6 /K near room temperature (handbook values, from memory).
         expansion: [5.0e-6, 5.0e-6, 6.66e-6],
         expansion_source: "handbook values near 20 °C, from memory: 6.66e-6 /K along c, 5.0e-6 /K across",
@@ -455,6 +478,7 @@ static THERMAL: [Thermal; 11] = [
                               alpha_perp)(n_e - n_o) with the retardance coefficient gamma = -5.37e-5 /K measured by \
                               S. M. Etzel, A. H. Rose and C. M. Wang, Applied Optics 39, 5796 (2000), 633-1539 nm, \
                               24-80 °C; 0-100 °C assumed",
+        verified: true,
         // α∥ = 13.7e-6, α⊥ = 8.9e-6 /K (handbook values, from memory).
         expansion: [8.9e-6, 8.9e-6, 13.7e-6],
         expansion_source: "handbook values near 20 °C, from memory: 13.7e-6 /K along c, 8.9e-6 /K across",
@@ -468,6 +492,7 @@ static THERMAL: [Thermal; 11] = [
         thermo_optic_source: "G. J. Edwards and M. Lawrence, \"A temperature-dependent dispersion equation for \
                               congruently grown lithium niobate\", Optical and Quantum Electronics 16, 373-375 \
                               (1984): its change from 20 °C added to the catalogue formula; 0-500 °C, 0.4-3.4 µm",
+        verified: true,
         // α_a = 15.4e-6, α_c = 7.5e-6 /K (common handbook values, from memory).
         expansion: [15.4e-6, 15.4e-6, 7.5e-6],
         expansion_source: "handbook values near 20 °C, from memory: 7.5e-6 /K along c, 15.4e-6 /K across",
@@ -484,6 +509,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "unverified: crystal suppliers' values, from memory (dn_o/dT -7.2e-5, dn_e/dT \
                               -10.0e-5 /K); constants, 0-100 °C",
+        verified: false,
         // α∥ = 9.19e-6, α⊥ = 7.14e-6 /K near room temperature: R. K. Kirby, J. Res. Natl. Bur.
         // Stand. 71A, 363-369 (1967), "Thermal expansion of rutile from 100 to 700 K" (values
         // from memory).
@@ -504,6 +530,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "K. Kato and E. Takaoka, Applied Optics 41, 5040-5044 (2002), thermo-optic \
                               dispersion formula; 0.43-1.58 µm; 20-200 °C (from memory)",
+        verified: true,
         // α_x = 11e-6, α_y = 9e-6, α_z = 0.6e-6 /K (suppliers' values, from memory; an X-ray
         // study, Sheleg et al., Crystallogr. Rep. 45, 215-218 (2000), finds α_b > α_a, so x and y
         // may be swapped here; α_c near zero agrees).
@@ -535,6 +562,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "K. Kato, IEEE Journal of Quantum Electronics 30, 2950-2952 (1994), thermo-optic \
                               formula; 20-200 °C (from memory)",
+        verified: true,
         // α_x = 10.8e-5, α_y = −8.8e-5, α_z = 3.4e-5 /K (suppliers' values, from memory).
         expansion: [10.8e-5, -8.8e-5, 3.4e-5],
         expansion_source: "crystal suppliers' data, from memory: 10.8e-5, -8.8e-5, 3.4e-5 /K along x, y, z",
@@ -551,6 +579,7 @@ static THERMAL: [Thermal; 11] = [
         ],
         thermo_optic_source: "V. Petrov et al., Laser & Photonics Reviews 4, 53-98 (2010), Table 3, 1064 nm; \
                               constants, 0-100 °C",
+        verified: true,
         // Uncertain, from memory: 4.8e-6, 4.4e-6 and −26.7e-6 /K.
         expansion: [4.8e-6, 4.4e-6, -26.7e-6],
         expansion_source: "from memory, uncertain: 4.8e-6, 4.4e-6, -26.7e-6 /K along x, y, z",
@@ -713,6 +742,29 @@ mod tests {
                 assert_within(got, want, 1e-11, &format!("{key} n_g,e at {nm} nm, {t} °C"));
             }
         }
+    }
+
+    #[test]
+    fn exactly_the_data_marked_unverified_warn() {
+        // The flag and the source's own words agree, and the warning names crystal and source.
+        for th in &THERMAL {
+            assert_eq!(
+                th.verified,
+                !th.thermo_optic_source.starts_with("unverified"),
+                "{}",
+                th.key
+            );
+            match th.data_warning(th.key) {
+                Some(w) => assert!(
+                    w.starts_with(&format!("unverified temperature data for {}", th.key))
+                        && w.contains(th.thermo_optic_source),
+                    "{w}"
+                ),
+                None => assert!(th.verified, "{}", th.key),
+            }
+        }
+        let flagged: Vec<_> = THERMAL.iter().filter(|t| !t.verified).map(|t| t.key).collect();
+        assert_eq!(flagged, ["alpha-bbo", "rutile"]);
     }
 
     #[test]
