@@ -395,19 +395,23 @@ fn tilt_uses(r: &TiltRequest) -> Uses {
 }
 
 /// The dispersion source of each catalogue crystal the part uses, once per crystal and source:
-/// `[{material, source, citation}]` (empty for fixed indices only).
+/// `[{material, source, citation, fitted_in}]` (empty for fixed indices only), `fitted_in` the
+/// wavelength the source's formula was fitted in as its paper states it (`air`, `vacuum` or
+/// `not stated`), as the materials listing gives it.
 fn sources_used(crystals: &[(Medium, f64)]) -> Value {
     let mut seen: Vec<(&str, &str)> = Vec::new();
     let mut out = Vec::new();
     for (m, _) in crystals {
-        let (Some(source), citation) = (m.source(), m.citation()) else {
-            continue;
+        let (source, citation, fitted_in) = match m {
+            Medium::Catalogue(c) => (c.source, c.citation, c.fitted_in),
+            Medium::Biaxial(b) => (b.source, b.citation, b.fitted_in),
+            _ => continue,
         };
         if seen.contains(&(m.key(), source)) {
             continue;
         }
         seen.push((m.key(), source));
-        out.push(json!({"material": m.key(), "source": source, "citation": citation}));
+        out.push(json!({"material": m.key(), "source": source, "citation": citation, "fitted_in": fitted_in.as_str()}));
     }
     Value::Array(out)
 }
