@@ -130,7 +130,7 @@ fn a_design_request_takes_a_source_and_its_answer_states_the_source_used() {
     assert_eq!(
         other["sources"],
         serde_json::json!([{"material": "calcite", "source": "tropf-1995",
-        "citation": find_uniaxial_source("calcite", "tropf-1995").unwrap().citation}])
+        "citation": find_uniaxial_source("calcite", "tropf-1995").unwrap().citation, "fitted_in": "not stated"}])
     );
     // The part it hands on uses the same formula: its trace gives the designed separation.
     let part = &other["scenario"];

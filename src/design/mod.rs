@@ -26,7 +26,8 @@
 //!   the answer's `warnings` carry the trace's own sentence, prefixed by the request field that
 //!   holds the wavelength (`wavelength_nm: 1500 nm is outside …`); where a formula breaks down
 //!   (a resonance, n² ≤ 0, an index below 1) that field is an error. An unverified formula's
-//!   warning is prefixed by the field that names the material.
+//!   warning is prefixed by the field that names the material, and so is the warning of
+//!   unverified thermo-optic data, since every answer states figures per kelvin.
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
 
 use crate::contract::fields::Fields;
@@ -159,8 +160,14 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
         if let Some(w) = &data {
             push(format!("{material_path}: {w}"));
         }
-        if let Some(w) = material::thermal(key).and_then(|th| th.range_warning(name, uses.temperature_c)) {
-            push(format!("temperature_c: {w}"));
+        if let Some(th) = material::thermal(key) {
+            // Every answer states temperature figures: unverified thermo-optic data say so.
+            if let Some(w) = th.data_warning(name) {
+                push(format!("{material_path}: {w}"));
+            }
+            if let Some(w) = th.range_warning(name, uses.temperature_c) {
+                push(format!("temperature_c: {w}"));
+            }
         }
         let mut note = |field: &str, ws: Vec<String>| {
             for w in ws.into_iter().filter(|w| Some(w) != data.as_ref()) {
@@ -388,19 +395,23 @@ fn tilt_uses(r: &TiltRequest) -> Uses {
 }
 
 /// The dispersion source of each catalogue crystal the part uses, once per crystal and source:
-/// `[{material, source, citation}]` (empty for fixed indices only).
+/// `[{material, source, citation, fitted_in}]` (empty for fixed indices only), `fitted_in` the
+/// wavelength the source's formula was fitted in as its paper states it (`air`, `vacuum` or
+/// `not stated`), as the materials listing gives it.
 fn sources_used(crystals: &[(Medium, f64)]) -> Value {
     let mut seen: Vec<(&str, &str)> = Vec::new();
     let mut out = Vec::new();
     for (m, _) in crystals {
-        let (Some(source), citation) = (m.source(), m.citation()) else {
-            continue;
+        let (source, citation, fitted_in) = match m {
+            Medium::Catalogue(c) => (c.source, c.citation, c.fitted_in),
+            Medium::Biaxial(b) => (b.source, b.citation, b.fitted_in),
+            _ => continue,
         };
         if seen.contains(&(m.key(), source)) {
             continue;
         }
         seen.push((m.key(), source));
-        out.push(json!({"material": m.key(), "source": source, "citation": citation}));
+        out.push(json!({"material": m.key(), "source": source, "citation": citation, "fitted_in": fitted_in.as_str()}));
     }
     Value::Array(out)
 }
@@ -650,7 +661,7 @@ mod tests {
             // Once, however many wavelengths the answer uses.
             let n = strings(&d["warnings"])
                 .iter()
-                .filter(|w| w.contains("unverified"))
+                .filter(|w| w.contains("unverified data"))
                 .count();
             assert_eq!(n, 1, "{doc}");
             // The scenario it hands on is traced with the same warning.

@@ -177,6 +177,7 @@ static BIAXIAL_ALTERNATIVES: [BiaxialMaterial; 1] = [
                    LiB3O5 crystals for nonlinear optical devices\", Journal of Applied Physics 78, \
                    6752-6760 (1995); x, y, z along a, c, b; 20 °C",
         source: "ghosh-1995",
+        // Not stated: the paper was not seen.
         fitted_in: FittedIn::NotStated,
     },
 ];
@@ -211,6 +212,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
         citation: "K. Kato and E. Takaoka, \"Sellmeier and thermo-optic dispersion formulas for \
                    KTP\", Applied Optics 41, 5040-5044 (2002); x, y, z along a, b, c; 20 °C",
         source: "kato-2002",
+        // Not stated: only the title and abstract were seen (a fit to phase-matching data), which
+        // do not say.
         fitted_in: FittedIn::NotStated,
     },
     // K. Kato, IEEE J. Quantum Electron. 30, 2950-2952 (1994), 20 °C.
@@ -243,6 +246,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
                    Journal of Quantum Electronics 30, 2950-2952 (1994); x, y, z along a, c, b; \
                    20 °C; no fit range published, transparency range used",
         source: "kato-1994",
+        // Not stated: only the title and abstract were seen (a fit to phase-matching data), which
+        // do not say.
         fitted_in: FittedIn::NotStated,
     },
     // K. Miyata, N. Umemura, K. Kato, Opt. Lett. 34, 500-502 (2009), as tabulated in V. Petrov
@@ -279,6 +284,8 @@ static BIAXIAL: [BiaxialMaterial; 3] = [
                    as tabulated by V. Petrov et al., Laser & Photonics Reviews 4, 53-98 (2010); \
                    y along the two-fold axis b; room temperature",
         source: "miyata-2009",
+        // Not stated: only the title and abstract were seen (a fit to phase-matching data), which
+        // do not say.
         fitted_in: FittedIn::NotStated,
     },
 ];

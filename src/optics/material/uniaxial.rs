@@ -266,6 +266,7 @@ static ALTERNATIVES: [Material; 3] = [
                    room temperature",
         verified: true,
         source: "tropf-1995",
+        // Not stated: a handbook table giving λ in µm; the part seen does not say air or vacuum.
         fitted_in: FittedIn::NotStated,
     },
     // G. J. Edwards and M. Lawrence, Opt. Quantum Electron. 16, 373-375 (1984), congruent LiNbO3:
@@ -284,6 +285,7 @@ static ALTERNATIVES: [Material; 3] = [
                    373-375 (1984); evaluated at 20 °C",
         verified: true,
         source: "edwards-1984",
+        // Not stated: only the paper's abstract was seen, which does not say.
         fitted_in: FittedIn::NotStated,
     },
     // The formula crystal suppliers' YVO4 data sheets print (coefficients as recalled, from
@@ -311,6 +313,7 @@ static ALTERNATIVES: [Material; 3] = [
                    found (coefficients as recalled); temperature not stated",
         verified: false,
         source: "data-sheet",
+        // Not stated: suppliers' data sheets do not say.
         fitted_in: FittedIn::NotStated,
     },
 ];
@@ -337,6 +340,8 @@ static CATALOGUE: [Material; 8] = [
                    birefringence of calcite and quartz crystals\", Optics Communications 163, \
                    95-102 (1999); room temperature",
         source: "ghosh-1999",
+        // Not stated: only the paper's abstract was seen (a fit to earlier measurements), which
+        // does not say.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -360,6 +365,8 @@ static CATALOGUE: [Material; 8] = [
                    birefringence of calcite and quartz crystals\", Optics Communications 163, \
                    95-102 (1999); room temperature",
         source: "ghosh-1999",
+        // Not stated: only the paper's abstract was seen (a fit to earlier measurements), which
+        // does not say.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -389,6 +396,7 @@ static CATALOGUE: [Material; 8] = [
                    and the thermal refractive index coefficients of yttrium vanadate\", Journal of \
                    Synthetic Crystals 30, 85-88 (2001); 20 °C coefficients",
         source: "shi-2001",
+        // Not stated: the paper was not seen.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -421,6 +429,7 @@ static CATALOGUE: [Material; 8] = [
                    found (coefficients as recalled, consistent with one supplier's data-sheet \
                    values at 266, 532 and 1064 nm to 6e-5); temperature not stated",
         source: "data-sheet",
+        // Not stated: suppliers' data sheets do not say.
         fitted_in: FittedIn::NotStated,
         verified: false,
     },
@@ -455,6 +464,8 @@ static CATALOGUE: [Material; 8] = [
                    printed by M. J. Dodge, \"Refractive index\", in Handbook of Laser Science and \
                    Technology, Vol. IV, Optical Materials Part 2 (1986), p. 30; 20 °C",
         source: "malitson-1972",
+        // Not stated: the 1972 reference is a talk abstract and the formula is printed in M. J.
+        // Dodge's CRC handbook chapter (1986), neither seen.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -485,6 +496,7 @@ static CATALOGUE: [Material; 8] = [
         citation: "M. J. Dodge, \"Refractive properties of magnesium fluoride\", Applied Optics \
                    23, 1980-1985 (1984); 19 °C",
         source: "dodge-1984",
+        // Not stated: the paper was not seen (prism measurements, from memory).
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -509,6 +521,7 @@ static CATALOGUE: [Material; 8] = [
                    oxide-doped lithium niobate\", J. Opt. Soc. Am. B 14, 3319-3322 (1997); \
                    congruent crystal, 21 °C",
         source: "zelmon-1997",
+        // Not stated: the part of the paper seen (minimum-deviation prisms) does not say.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
@@ -535,6 +548,7 @@ static CATALOGUE: [Material; 8] = [
         citation: "J. R. DeVore, \"Refractive indices of rutile and sphalerite\", J. Opt. Soc. \
                    Am. 41, 416-419 (1951); room temperature",
         source: "devore-1951",
+        // Not stated: the paper was not seen.
         fitted_in: FittedIn::NotStated,
         verified: true,
     },
