@@ -17,6 +17,7 @@ pub mod material;
 pub mod modes;
 pub mod parallel;
 pub mod planar;
+pub mod planned_trace;
 pub mod plate;
 pub mod spots;
 pub mod spots_tilted;
