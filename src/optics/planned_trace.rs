@@ -103,7 +103,7 @@ struct Wave {
 }
 
 /// `Mode::build` of [`crate::optics::modes`] for a propagating wave, in real numbers.
-#[inline]
+#[inline(always)]
 fn wave(q: V3, e: V3, ray: V3) -> Wave {
     let h = q.cross(&e);
     let sz = (e.x * h.y - e.y * h.x).abs();
@@ -118,7 +118,7 @@ fn wave(q: V3, e: V3, ray: V3) -> Wave {
 
 /// √x, or `None` when the wave whose q_z² is x is evanescent or within the critical margin of it
 /// (`scale` is n², the size of x's terms).
-#[inline]
+#[inline(always)]
 fn propagating_root(x: f64, scale: f64) -> Option<f64> {
     (x > PLANNED_CRITICAL_MARGIN * scale).then(|| x.sqrt())
 }
@@ -128,7 +128,7 @@ fn propagating_root(x: f64, scale: f64) -> Option<f64> {
 /// shared by the two travels taken once); `None` when one is not safely propagating or a wave
 /// runs along an optic axis. `backward` false leaves the backward pair out (a copy of the forward
 /// one).
-#[inline]
+#[inline(always)]
 fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
     let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
     match body {
@@ -166,29 +166,43 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
                 }
             };
             let c = crystal.axis.unit();
-            let inv_eps = &surfaces.inverse_permittivity;
-            // Ordinary D ∥ q × c made transverse (as the closed form does; the complex quotient
-            // q·d / q·q of zero imaginary parts is (q·d)(q·q) / (q·q)²).
-            let d_o_of = |q: &V3| -> Option<V3> {
-                let d = q.cross(&c);
-                let qq = q.dot(q);
-                if d.dot(&d) <= DEGENERATE_DIRECTION * DEGENERATE_DIRECTION * qq {
-                    return None;
-                }
-                let qd = q.dot(&d);
-                Some(d - q * ((qd * qq) / (qq * qq)))
-            };
-            let pair = |s: f64| -> Option<[Wave; 2]> {
-                let q_o = V3::new(qt[0], qt[1], s * qz_o);
-                let q_e = V3::new(qt[0], qt[1], e_root(s));
-                let d_o = d_o_of(&q_o)?;
-                let d_e = d_o_of(&q_e)?.cross(&q_e);
-                Some([wave(q_o, inv_eps * d_o, q_o), wave(q_e, inv_eps * d_e, m * q_e)])
+            let pair = |s: f64| {
+                crystal_pair(
+                    &c,
+                    surfaces,
+                    V3::new(qt[0], qt[1], s * qz_o),
+                    V3::new(qt[0], qt[1], e_root(s)),
+                )
             };
             let forward = pair(1.0)?;
             Some([forward, if backward { pair(-1.0)? } else { forward }])
         }
     }
+}
+
+/// The ordinary and extraordinary waves of wave vectors `q_o`, `q_e` in the crystal of optic axis
+/// `c` and matrices `surfaces` (face frame), as `crystal_modes_with` forms them; `None` when a
+/// wave runs along the optic axis.
+#[inline(always)]
+fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3) -> Option<[Wave; 2]> {
+    // Ordinary D ∥ q × c made transverse (as the closed form does; the complex quotient q·d / q·q
+    // of zero imaginary parts is (q·d)(q·q) / (q·q)²).
+    let d_o_of = |q: &V3| -> Option<V3> {
+        let d = q.cross(c);
+        let qq = q.dot(q);
+        if d.dot(&d) <= DEGENERATE_DIRECTION * DEGENERATE_DIRECTION * qq {
+            return None;
+        }
+        let qd = q.dot(&d);
+        Some(d - q * ((qd * qq) / (qq * qq)))
+    };
+    let inv_eps = &surfaces.inverse_permittivity;
+    let d_o = d_o_of(&q_o)?;
+    let d_e = d_o_of(&q_e)?.cross(&q_e);
+    Some([
+        wave(q_o, inv_eps * d_o, q_o),
+        wave(q_e, inv_eps * d_e, surfaces.surface * q_e),
+    ])
 }
 
 /// Solves m·x = b for two right-hand sides by the elimination of `interface::solve4` (the
