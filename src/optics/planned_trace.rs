@@ -102,9 +102,10 @@ struct Wave {
     ray: V3,
 }
 
-/// `Mode::build` of [`crate::optics::modes`] for a propagating wave, in real numbers.
+/// `Mode::build` of [`crate::optics::modes`] for a propagating wave, in real numbers; its ray is
+/// made a unit vector only when `rays` asks (the waves beyond a face: the others' rays are not read).
 #[inline(always)]
-fn wave(q: V3, e: V3, ray: V3) -> Wave {
+fn wave(q: V3, e: V3, ray: V3, rays: bool) -> Wave {
     let h = q.cross(&e);
     let sz = (e.x * h.y - e.y * h.x).abs();
     let scale = if sz > 0.0 { 1.0 / sz.sqrt() } else { 1.0 };
@@ -112,7 +113,7 @@ fn wave(q: V3, e: V3, ray: V3) -> Wave {
         q,
         e: e * scale,
         h: h * scale,
-        ray: ray / ray.norm(),
+        ray: if rays { ray / ray.norm() } else { ray },
     }
 }
 
@@ -129,7 +130,7 @@ fn propagating_root(x: f64, scale: f64) -> Option<f64> {
 /// runs along an optic axis. `backward` false leaves the backward pair out (a copy of the forward
 /// one).
 #[inline(always)]
-fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
+fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wave; 2]; 2]> {
     let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
     match body {
         Local::Isotropic(n) => {
@@ -137,13 +138,16 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
             let qz = propagating_root((n - qt_norm) * (n + qt_norm), n * n)?;
             let q = V3::new(qt[0], qt[1], qz);
             let (e1, e2) = beam_basis(V3::new(qt[0] / n, qt[1] / n, qz / n));
-            let forward = [wave(q, e1, q), wave(q, e2, q)];
+            let forward = [wave(q, e1, q, rays), wave(q, e2, q, rays)];
             if !backward {
                 return Some([forward, forward]);
             }
             let mirror = |e: V3| V3::new(e.x, e.y, -e.z);
             let qb = V3::new(qt[0], qt[1], -qz);
-            Some([forward, [wave(qb, mirror(e1), qb), wave(qb, mirror(e2), qb)]])
+            Some([
+                forward,
+                [wave(qb, mirror(e1), qb, rays), wave(qb, mirror(e2), qb, rays)],
+            ])
         }
         Local::Uniaxial(crystal, surfaces) => {
             let no = crystal.indices.no;
@@ -172,6 +176,7 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
                     surfaces,
                     V3::new(qt[0], qt[1], s * qz_o),
                     V3::new(qt[0], qt[1], e_root(s)),
+                    rays,
                 )
             };
             let forward = pair(1.0)?;
@@ -184,7 +189,7 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool) -> Option<[[Wave; 2]; 2]> {
 /// `c` and matrices `surfaces` (face frame), as `crystal_modes_with` forms them; `None` when a
 /// wave runs along the optic axis.
 #[inline(always)]
-fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3) -> Option<[Wave; 2]> {
+fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3, rays: bool) -> Option<[Wave; 2]> {
     // Ordinary D ∥ q × c made transverse (as the closed form does; the complex quotient q·d / q·q
     // of zero imaginary parts is (q·d)(q·q) / (q·q)²).
     let d_o_of = |q: &V3| -> Option<V3> {
@@ -200,8 +205,13 @@ fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3) -> Option<
     let d_o = d_o_of(&q_o)?;
     let d_e = d_o_of(&q_e)?.cross(&q_e);
     Some([
-        wave(q_o, inv_eps * d_o, q_o),
-        wave(q_e, inv_eps * d_e, surfaces.surface * q_e),
+        wave(q_o, inv_eps * d_o, q_o, rays),
+        wave(
+            q_e,
+            inv_eps * d_e,
+            if rays { surfaces.surface * q_e } else { q_e },
+            rays,
+        ),
     ])
 }
 
@@ -604,8 +614,8 @@ fn cross(carrier: &Carrier, crossing: &Crossing, ideal: bool) -> Option<[Option<
     let Frame { frame, to_face } = &crossing.frame;
     let q_face = to_face * carrier.q();
     let qt = [q_face.x, q_face.y];
-    let [a_fwd, a_back] = modes(&crossing.from, qt, true)?;
-    let [b_fwd, _] = modes(&crossing.into, qt, false)?;
+    let [a_fwd, a_back] = modes(&crossing.from, qt, true, false)?;
+    let [b_fwd, _] = modes(&crossing.into, qt, false, true)?;
     // The carrier as amplitudes of the incident modes (rows), each a functional of J_in.
     let mut a_in = Matrix2::zeros();
     match carrier {
@@ -620,7 +630,8 @@ fn cross(carrier: &Carrier, crossing: &Crossing, ideal: bool) -> Option<[Option<
             }
         }
         Carrier::Bound { e, kind, amp, .. } => {
-            if ((frame * a_fwd[0].q) - (frame * a_fwd[1].q)).norm() <= DEGENERATE_DIRECTION {
+            // (Their distance in the face's frame: the same as in the lab's, a rotation apart.)
+            if (a_fwd[0].q - a_fwd[1].q).norm() <= DEGENERATE_DIRECTION {
                 return None;
             }
             // The ray is the incident mode of its own kind, up to the sign of the projection of

@@ -7,9 +7,10 @@
 //! - *Whole traces* ([`Workload::Trace`]): every ray of [`crate::optics::trace::trace`], fields and
 //!   boundary problems included; checksum Σᵢ Σ_rays [P + d_x + 2 d_y + 3 d_z + 0.001 (x + y)],
 //!   with P the ray's power, d its direction and (x, y) its exit point in mm. Computed by the
-//!   planned whole trace ([`crate::optics::planned_trace`]: the same rays to rounding), each
-//!   incidence it declines by the general tracer; [`Workload::GeneralTrace`] is the same sum by
-//!   the general tracer alone, the reference it is measured against.
+//!   planned whole trace (`optics::planned_trace`: the same rays to rounding), each incidence it
+//!   declines by the general tracer (natively; WebAssembly builds hold no plan and trace every
+//!   sample by the general tracer); [`Workload::GeneralTrace`] is the same sum by the general
+//!   tracer alone, the reference it is measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
 //!   ([`crate::optics::chain`]), what a tolerance run of a splitter needs; checksum Σᵢ of the angle
 //!   between them in degrees (samples where either is missing add nothing).
@@ -17,6 +18,7 @@
 use crate::optics::chain::ChainPlan;
 use crate::optics::geometry::direction;
 use crate::optics::planar::PlanarTracer;
+#[cfg(not(target_arch = "wasm32"))]
 use crate::optics::planned_trace::PlannedTrace;
 use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
@@ -75,10 +77,7 @@ fn incidence(i: usize, n: usize) -> Vector3<f64> {
 fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 {
     match work {
         Workload::Trace => planned_part(stack, n, part).0,
-        Workload::GeneralTrace => {
-            let mut general = GeneralSamples::new(stack);
-            part.map(|i| general.checksum(incidence(i, n))).sum()
-        }
+        Workload::GeneralTrace => general_part(stack, n, part).0,
         Workload::Split => {
             let plans = (ChainPlan::new(stack, "oe"), ChainPlan::new(stack, "eo"));
             let (Some(oe), Some(eo)) = plans else { return 0.0 };
@@ -130,12 +129,12 @@ fn ray_term(power: f64, d: &Vector3<f64>, x: f64, y: f64) -> f64 {
 
 /// The whole-trace checksum of samples `part` of `n` by the planned trace, and how many samples
 /// it declined (traced by the general tracer instead).
+#[cfg(not(target_arch = "wasm32"))]
 fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
-    let mut general = GeneralSamples::new(stack);
     let Some(mut plan) = PlannedTrace::new(stack) else {
-        let count = part.len();
-        return (part.map(|i| general.checksum(incidence(i, n))).sum(), count);
+        return general_part(stack, n, part);
     };
+    let mut general = GeneralSamples::new(stack);
     let mut declined = 0;
     let sum = part
         .map(|i| {
@@ -153,6 +152,20 @@ fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
         })
         .sum();
     (sum, declined)
+}
+
+/// WebAssembly builds hold no plan (`optics/mod.rs`): every sample by the general tracer.
+#[cfg(target_arch = "wasm32")]
+fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
+    general_part(stack, n, part)
+}
+
+/// The whole-trace checksum of samples `part` of `n` by the general tracer, every sample counted
+/// as declined by the plan.
+fn general_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
+    let mut general = GeneralSamples::new(stack);
+    let count = part.len();
+    (part.map(|i| general.checksum(incidence(i, n))).sum(), count)
 }
 
 /// How many of the `n` whole-trace samples of `stack` the planned trace declines (each then traced
