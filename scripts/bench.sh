@@ -66,6 +66,8 @@ print(f"  Monte Carlo, displacer, 10^5 samples, native: {n['monte_carlo_1e5_ms']
 for label, key, threads_key in (("whole traces (4 rays, fields and powers)", "splitter_trace_1e5_ms", "splitter_trace_threads_1e5_ms"), ("split angles by wave-vector chains", "splitter_split_1e5_ms", "splitter_split_threads_1e5_ms")):
     nn, nt, ww, bb = n[key], n[threads_key], w[key], sb[key]
     print(f"  two-wedge splitter, 10^5 {label}: native on {n['splitter_threads']} threads {nt:.1f} ms ({1e5 / nt * 1e3:.0f}/s), on one {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm (one thread) {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nt:.1f}x on {n['splitter_threads']} threads, {bb / nn:.1f}x on one, wasm {bb / ww:.1f}x numpy (target 20x)")
+g = n["splitter_general_trace_1e5_ms"]
+print(f"  two-wedge splitter, whole traces by the planned trace ({n['splitter_trace_declined']} of 10^5 samples declined to the general tracer); by the general tracer alone {g:.1f} ms on one thread, native {sb['splitter_trace_1e5_ms'] / g:.1f}x numpy that way")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")
 sn, sp = n["spectrum_2000_ms"], spb["spectrum_2000_ms"]
 print(f"  spectrum of a five-stage filter, 2 000 points, every point a whole trace: native on the machine's threads {sn:.1f} ms (target 20 ms), numpy (the Jones product alone) {sp:.2f} ms: native takes {sn / sp:.0f}x numpy's time")

@@ -29,7 +29,7 @@ mod web;
 // Foundation.
 pub use error::Error;
 pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
-pub use precision::{LC_SUBLAYERS, assert_within};
+pub use precision::{LC_SUBLAYERS, PLANNED_TRACE_AGREEMENT, assert_within};
 
 // Documents.
 pub use contract::conoscope::{ConoscopeMap, conoscope_at, conoscope_of};
@@ -58,6 +58,8 @@ pub use optics::material::{
     keys as material_keys, optical_activity, spread as source_spread, standard_air_index, vacuum_from_air,
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
+#[cfg(not(target_arch = "wasm32"))]
+pub use optics::planned_trace::{PlannedRay, PlannedTrace};
 pub use optics::plate::{plate_optics, tangential};
 pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};
 pub use optics::stokes::Handedness;
@@ -65,7 +67,7 @@ pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
 pub use optics::trace::trace as trace_stack;
 pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
 pub use optics::wavelength::Wavelength;
-pub use optics::workload::{Workload, run as run_workload, run_on as run_workload_on};
+pub use optics::workload::{Workload, declined_samples, run as run_workload, run_on as run_workload_on};
 
 // Design.
 pub use design::recombiner::{MAX_PHASE_ERROR as RECOMBINER_MAX_PHASE_ERROR, MIN_OVERLAP as RECOMBINER_MIN_OVERLAP};

@@ -59,6 +59,22 @@ pub const OVERLAP_NEGLIGIBLE_EXPONENT: f64 = 40.0;
 /// degrees per degree, far below what any cut can be polished to.
 pub const STATIONARY_CUT_RAD: f64 = 1e-12;
 
+/// The planned whole trace (`optics/planned_trace.rs`) declines an incidence where, at some face,
+/// a mode's q_z² (or the extraordinary quadratic's discriminant) is at most this fraction of the
+/// size of its terms: evanescent, or so near the critical angle that the general tracer, whose
+/// operations it repeats in another order here and there, must decide. Such an incidence is traced
+/// by the general tracer. 10⁻⁹ of n² lies within ~10⁻⁵ rad of a critical angle, far above the
+/// ~10⁻¹⁶ rounding of the terms. (Native builds only, as the planned trace is.)
+#[cfg(not(target_arch = "wasm32"))]
+pub const PLANNED_CRITICAL_MARGIN: f64 = 1e-9;
+
+/// How closely the planned whole trace agrees with the general tracer on each ray that leaves
+/// forward: power and direction components absolutely (both are at most 1), exit points relative
+/// to 1 mm plus their distance from the origin. It repeats the general tracer's operations on
+/// real numbers; what differs is the rounding of the phase factors the general tracer multiplies
+/// into each ray (|e^{iφ}| = 1 to ~10⁻¹⁶ per step) and the order of a power's sum, ~10⁻¹⁵ in all.
+pub const PLANNED_TRACE_AGREEMENT: f64 = 1e-12;
+
 /// A power lost at an element that is smaller than this fraction of the power entering it is
 /// rounding, and is reported as zero.
 pub const POWER_ROUNDING: f64 = 1e-13;

@@ -6,7 +6,11 @@
 //! φᵢ = (137.50776405°·i) mod 360° (the golden angle: the samples spread evenly around the cone).
 //! - *Whole traces* ([`Workload::Trace`]): every ray of [`crate::optics::trace::trace`], fields and
 //!   boundary problems included; checksum Σᵢ Σ_rays [P + d_x + 2 d_y + 3 d_z + 0.001 (x + y)],
-//!   with P the ray's power, d its direction and (x, y) its exit point in mm.
+//!   with P the ray's power, d its direction and (x, y) its exit point in mm. Computed by the
+//!   planned whole trace (`optics::planned_trace`: the same rays to rounding), each incidence it
+//!   declines by the general tracer (natively; WebAssembly builds hold no plan and trace every
+//!   sample by the general tracer); [`Workload::GeneralTrace`] is the same sum by the general
+//!   tracer alone, the reference it is measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
 //!   ([`crate::optics::chain`]), what a tolerance run of a splitter needs; checksum Σᵢ of the angle
 //!   between them in degrees (samples where either is missing add nothing).
@@ -14,6 +18,8 @@
 use crate::optics::chain::ChainPlan;
 use crate::optics::geometry::direction;
 use crate::optics::planar::PlanarTracer;
+#[cfg(not(target_arch = "wasm32"))]
+use crate::optics::planned_trace::PlannedTrace;
 use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
 use crate::optics::trace::trace_reusing;
@@ -24,8 +30,10 @@ use std::ops::Range;
 /// What each sample computes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Workload {
-    /// The whole trace: every ray with its fields, powers and points.
+    /// The whole trace: every ray with its fields, powers and points, by the planned trace.
     Trace,
+    /// The same whole trace by the general tracer at every sample.
+    GeneralTrace,
     /// The angle between rays "oe" and "eo" only.
     Split,
 }
@@ -68,23 +76,8 @@ fn incidence(i: usize, n: usize) -> Vector3<f64> {
 /// The checksum of samples `part` of `n`.
 fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 {
     match work {
-        Workload::Trace => {
-            let mut lit = stack.clone();
-            let mut planar = PlanarTracer::default();
-            part.map(|i| {
-                lit.input.direction = incidence(i, n);
-                trace_reusing(&mut planar, &lit)
-                    .paths
-                    .iter()
-                    .map(|p| {
-                        let d = p.direction;
-                        let [x, y, _] = p.exit_point_mm;
-                        power_of(&p.matrix, &lit.input.stokes) + d.x + 2.0 * d.y + 3.0 * d.z + 0.001 * (x + y)
-                    })
-                    .sum::<f64>()
-            })
-            .sum()
-        }
+        Workload::Trace => planned_part(stack, n, part).0,
+        Workload::GeneralTrace => general_part(stack, n, part).0,
         Workload::Split => {
             let plans = (ChainPlan::new(stack, "oe"), ChainPlan::new(stack, "eo"));
             let (Some(oe), Some(eo)) = plans else { return 0.0 };
@@ -98,6 +91,87 @@ fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 
             .sum()
         }
     }
+}
+
+/// The general tracer kept over samples of one stack.
+struct GeneralSamples {
+    lit: Stack,
+    planar: PlanarTracer,
+}
+
+impl GeneralSamples {
+    fn new(stack: &Stack) -> GeneralSamples {
+        GeneralSamples {
+            lit: stack.clone(),
+            planar: PlanarTracer::default(),
+        }
+    }
+
+    /// The checksum's terms of one sample lit along `u` (module header).
+    fn checksum(&mut self, u: Vector3<f64>) -> f64 {
+        self.lit.input.direction = u;
+        let stokes = self.lit.input.stokes;
+        trace_reusing(&mut self.planar, &self.lit)
+            .paths
+            .iter()
+            .map(|p| {
+                let [x, y, _] = p.exit_point_mm;
+                ray_term(power_of(&p.matrix, &stokes), &p.direction, x, y)
+            })
+            .sum()
+    }
+}
+
+/// One ray's term of the whole-trace checksum (module header).
+fn ray_term(power: f64, d: &Vector3<f64>, x: f64, y: f64) -> f64 {
+    power + d.x + 2.0 * d.y + 3.0 * d.z + 0.001 * (x + y)
+}
+
+/// The whole-trace checksum of samples `part` of `n` by the planned trace, and how many samples
+/// it declined (traced by the general tracer instead).
+#[cfg(not(target_arch = "wasm32"))]
+fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
+    let Some(mut plan) = PlannedTrace::new(stack) else {
+        return general_part(stack, n, part);
+    };
+    let mut general = GeneralSamples::new(stack);
+    let mut declined = 0;
+    let sum = part
+        .map(|i| {
+            let u = incidence(i, n);
+            match plan.trace(u) {
+                Some(rays) => rays
+                    .iter()
+                    .map(|r| ray_term(r.power, &r.direction, r.exit_point_mm.x, r.exit_point_mm.y))
+                    .sum(),
+                None => {
+                    declined += 1;
+                    general.checksum(u)
+                }
+            }
+        })
+        .sum();
+    (sum, declined)
+}
+
+/// WebAssembly builds hold no plan (`optics/mod.rs`): every sample by the general tracer.
+#[cfg(target_arch = "wasm32")]
+fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
+    general_part(stack, n, part)
+}
+
+/// The whole-trace checksum of samples `part` of `n` by the general tracer, every sample counted
+/// as declined by the plan.
+fn general_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
+    let mut general = GeneralSamples::new(stack);
+    let count = part.len();
+    (part.map(|i| general.checksum(incidence(i, n))).sum(), count)
+}
+
+/// How many of the `n` whole-trace samples of `stack` the planned trace declines (each then traced
+/// by the general tracer): all of them when the stack gets no plan.
+pub fn declined_samples(stack: &Stack, n: usize) -> usize {
+    planned_part(stack, n, 0..n).1
 }
 
 #[cfg(test)]
@@ -163,7 +237,7 @@ mod tests {
     #[test]
     fn threads_sum_what_one_thread_sums() {
         let st = splitter();
-        for work in [Workload::Trace, Workload::Split] {
+        for work in [Workload::Trace, Workload::GeneralTrace, Workload::Split] {
             let one = run(&st, 300, work);
             assert!(one.is_finite() && one > 0.0, "{work:?}: {one}");
             for threads in [2, 3, 7] {

@@ -1,0 +1,284 @@
+//! The planned whole trace (`PlannedTrace`) against the general face-by-face tracer
+//! (`trace_stack`), which `tests/independent_faces.rs` holds to an independent per-face Berreman
+//! solver: generated stacks of two and three uniaxial crystals (wedge angles, faces and axes at
+//! random, air gaps, cement films and optical contact, apertures, ideal and uncoated faces, two
+//! outside indices), each lit at many random incidences and polarizations (half within 15°, half out to 70°), so that
+//! faces near and past their critical angles are met. For every incidence the plan traces, each
+//! ray that leaves forward must be there in both, with power, direction and exit point equal to
+//! `PLANNED_TRACE_AGREEMENT`; an incidence the plan declines is traced by the general tracer
+//! (counted: there must be some, and far fewer than those traced).
+
+use doublespar::{Jones, PLANNED_TRACE_AGREEMENT, PlannedTrace, Rng, Scenario, Stack, Workload, trace_stack};
+use nalgebra::Vector3;
+
+/// One crystal of a generated stack, as the scenario document gives it.
+struct Crystal {
+    no: f64,
+    ne: f64,
+    axis: (f64, f64),
+    thickness: f64,
+    gap: f64,
+    front: (f64, f64),
+    back: (f64, f64),
+    aperture: f64,
+    /// "" (air), or the contact fields of a cemented or optically contacted crystal.
+    contact: String,
+}
+
+fn range(r: &mut Rng, lo: f64, hi: f64) -> f64 {
+    lo + (hi - lo) * r.uniform()
+}
+
+/// A stack of `count` crystals: wedges whose shared faces tilt up to 35°, contacted by air, cement
+/// or optically, within apertures of 4–12 mm.
+fn generated(r: &mut Rng, count: usize) -> String {
+    let mut crystals: Vec<Crystal> = Vec::new();
+    let mut face = (range(r, 0.0, 10.0), range(r, -180.0, 180.0));
+    for i in 0..count {
+        let back = (range(r, 0.0, 35.0), range(r, -180.0, 180.0));
+        let no = range(r, 1.45, 1.8);
+        let aperture = range(r, 4.0, 12.0);
+        // Thick enough that the faces do not meet within the aperture.
+        let half = aperture / 2.0;
+        let thickness = half * (face.0.to_radians().tan() + back.0.to_radians().tan()) + range(r, 0.5, 4.0);
+        let (contact, gap) = match (i, r.uniform()) {
+            (0, _) => (String::new(), range(r, 0.0, 2.0)),
+            (_, x) if x < 0.35 => (r#", "contact": "optical""#.to_string(), 0.0),
+            (_, x) if x < 0.6 => (
+                format!(r#", "contact": "cement", "cement_index": {:?}"#, range(r, 1.35, 1.7)),
+                0.0,
+            ),
+            _ => (
+                String::new(),
+                half * (face.0.to_radians().tan() * 2.0) + range(r, 0.2, 2.0),
+            ),
+        };
+        let front = if contact.is_empty() && i > 0 {
+            (range(r, 0.0, 35.0), range(r, -180.0, 180.0))
+        } else {
+            face
+        };
+        let gap = if contact.is_empty() && i > 0 {
+            gap + half * front.0.to_radians().tan()
+        } else {
+            gap
+        };
+        crystals.push(Crystal {
+            no,
+            ne: no + range(r, -0.2, 0.2),
+            axis: (range(r, 0.0, 180.0), range(r, -180.0, 180.0)),
+            thickness,
+            gap,
+            front,
+            back,
+            aperture,
+            contact,
+        });
+        face = back;
+    }
+    let elements: Vec<String> = crystals
+        .iter()
+        .map(|c| {
+            format!(
+                r#"{{"kind": "crystal", "no": {:?}, "ne": {:?}, "thickness_mm": {:?}, "gap_mm": {:?},
+                    "axis": {{"tilt_deg": {:?}, "azimuth_deg": {:?}}}, "aperture_mm": {:?},
+                    "faces": {{"front": {{"tilt_deg": {:?}, "azimuth_deg": {:?}}},
+                               "back": {{"tilt_deg": {:?}, "azimuth_deg": {:?}}}}}{}}}"#,
+                c.no,
+                c.ne,
+                c.thickness,
+                c.gap,
+                c.axis.0,
+                c.axis.1,
+                c.aperture,
+                c.front.0,
+                c.front.1,
+                c.back.0,
+                c.back.1,
+                c.contact
+            )
+        })
+        .collect();
+    let losses = if r.uniform() < 0.5 { "ideal" } else { "uncoated" };
+    let outside = if r.uniform() < 0.7 { 1.0 } else { 1.33 };
+    format!(
+        r#"{{"version": 2, "wavelength_nm": 633, "outside_index": {outside:?}, "interface_losses": "{losses}",
+            "screen_mm": {:?}, "beam": {{"incidence": {{"polar_deg": 0, "azimuth_deg": 0}},
+            "polarization": {{"kind": "linear", "azimuth_deg": 0}}}}, "elements": [{}]}}"#,
+        range(r, 0.0, 20.0),
+        elements.join(", ")
+    )
+}
+
+/// tr(M C Mᴴ) for the input of Stokes vector `s`: a traced path's power.
+fn power(m: &doublespar::JonesMatrix, s: &[f64; 4]) -> f64 {
+    let j = [
+        num_complex::Complex64::new(0.5 * (s[0] + s[1]), 0.0),
+        num_complex::Complex64::new(0.5 * s[2], 0.5 * s[3]),
+        num_complex::Complex64::new(0.5 * s[2], -0.5 * s[3]),
+        num_complex::Complex64::new(0.5 * (s[0] - s[1]), 0.0),
+    ];
+    let c = doublespar::JonesMatrix::new(j[0], j[1], j[2], j[3]);
+    (m * c * m.adjoint()).trace().re
+}
+
+/// Sets a random incidence (polar angle up to `max_deg`) and polarization on `stack`.
+fn light(r: &mut Rng, stack: &mut Stack, max_deg: f64) {
+    let (t, a) = (
+        range(r, 0.0, max_deg).to_radians(),
+        range(r, -180.0, 180.0).to_radians(),
+    );
+    stack.input.direction = Vector3::new(t.sin() * a.cos(), t.sin() * a.sin(), t.cos());
+    let (x, y) = (range(r, -1.0, 1.0), range(r, -1.0, 1.0));
+    let j: Jones = Jones::new(
+        num_complex::Complex64::new(x, y),
+        num_complex::Complex64::new(range(r, -1.0, 1.0), range(r, -1.0, 1.0)),
+    );
+    let j = j / num_complex::Complex64::from(j.norm());
+    stack.input.jones = Some(j);
+    stack.input.stokes = doublespar::jones_stokes(&j);
+}
+
+#[derive(Default, Debug)]
+struct Tally {
+    stacks: usize,
+    refused: usize,
+    traced: usize,
+    declined: usize,
+    rays: usize,
+    worst: f64,
+}
+
+/// Compares the plan of `stack` with the general tracer at `samples` incidences.
+fn compare(r: &mut Rng, doc: &str, stack: &mut Stack, samples: usize, tally: &mut Tally) {
+    for i in 0..samples {
+        light(r, stack, if i % 2 == 0 { 70.0 } else { 15.0 });
+        compare_here(doc, stack, tally);
+    }
+}
+
+/// Compares the plan of `stack` with the general tracer at the stack's own incidence.
+fn compare_here(doc: &str, stack: &Stack, tally: &mut Tally) {
+    // The plan reads the input's polarization when it is made: one plan per polarization.
+    let Some(mut plan) = PlannedTrace::new(stack) else {
+        panic!("no plan for a stack of crystals with faces\n{doc}")
+    };
+    let u = stack.input.direction;
+    let general = trace_stack(stack);
+    let Some(rays) = plan.trace(u).map(<[_]>::to_vec) else {
+        tally.declined += 1;
+        return;
+    };
+    tally.traced += 1;
+    let mut labels: Vec<String> = rays.iter().map(|ray| plan.label(ray.label)).collect();
+    let mut expected: Vec<String> = general.paths.iter().map(|p| p.label.clone()).collect();
+    labels.sort();
+    expected.sort();
+    assert_eq!(labels, expected, "rays at {u:?}\n{doc}");
+    for ray in rays {
+        let label = plan.label(ray.label);
+        let Some(p) = general.paths.iter().find(|p| p.label == label) else {
+            panic!("no ray {label}")
+        };
+        let exit = Vector3::from(p.exit_point_mm);
+        let diffs = [
+            (ray.power - power(&p.matrix, &stack.input.stokes)).abs(),
+            (ray.direction - p.direction).amax(),
+            (ray.exit_point_mm - exit).amax() / (1.0 + exit.norm()),
+        ];
+        for (what, d) in ["power", "direction", "exit point"].iter().zip(diffs) {
+            assert!(
+                d <= PLANNED_TRACE_AGREEMENT,
+                "{what} of {label} at {u:?} differs by {d:e}\n{doc}"
+            );
+            tally.worst = tally.worst.max(d);
+        }
+        tally.rays += 1;
+    }
+}
+
+/// Generated stacks of two and three crystals, 60 incidences each: every ray the plan traces
+/// agrees with the general tracer; some incidences (beyond critical angles) are declined.
+#[test]
+fn planned_traces_agree_with_the_general_tracer() {
+    let mut r = Rng::new(20_261_203);
+    let mut tally = Tally::default();
+    for case in 0..240 {
+        let doc = generated(&mut r, 2 + case % 2);
+        let Ok(scenario) = Scenario::from_json_str(&doc) else {
+            tally.refused += 1;
+            continue;
+        };
+        let Ok((mut stack, _)) = scenario.resolve() else {
+            tally.refused += 1;
+            continue;
+        };
+        tally.stacks += 1;
+        compare(&mut r, &doc, &mut stack, 60, &mut tally);
+    }
+    eprintln!("{tally:?}");
+    assert!(tally.stacks >= 150, "{tally:?}");
+    assert!(tally.rays >= 30_000, "{tally:?}");
+    assert!(tally.declined > 0 && tally.declined * 4 < tally.traced, "{tally:?}");
+}
+
+/// Near critical angles: on generated stacks, the incidence (along a random azimuth) where the plan
+/// starts to decline is found by bisection, the edge of its critical margin at some face; the
+/// incidences 10⁻⁹..10⁻² rad inside that edge, where a mode beyond a face nearly grazes it, are
+/// traced by the plan and agree with the general tracer as everywhere else.
+#[test]
+fn near_critical_incidences_agree_or_are_declined() {
+    let mut r = Rng::new(7_654_321);
+    let mut tally = Tally::default();
+    let mut edges = 0;
+    for case in 0..240 {
+        let doc = generated(&mut r, 2 + case % 2);
+        let Ok((mut stack, _)) = Scenario::from_json_str(&doc).and_then(|s| s.resolve()) else {
+            continue;
+        };
+        let Some(mut plan) = PlannedTrace::new(&stack) else {
+            continue;
+        };
+        let azimuth = range(&mut r, -180.0, 180.0).to_radians();
+        let along = |t: f64| Vector3::new(t.sin() * azimuth.cos(), t.sin() * azimuth.sin(), t.cos());
+        // The first decline along the azimuth, in steps of 0.5°, then bisected.
+        let Some(step) = (1..170).find(|&i| plan.trace(along(f64::from(i) * 0.5f64.to_radians())).is_none()) else {
+            continue;
+        };
+        let (mut lo, mut hi) = (f64::from(step - 1), f64::from(step));
+        (lo, hi) = (lo * 0.5f64.to_radians(), hi * 0.5f64.to_radians());
+        if plan.trace(along(lo)).is_none() {
+            continue;
+        }
+        for _ in 0..60 {
+            let mid = 0.5 * (lo + hi);
+            if plan.trace(along(mid)).is_some() {
+                lo = mid
+            } else {
+                hi = mid
+            }
+        }
+        edges += 1;
+        for k in 0..8 {
+            stack.input.direction = along(lo - 10f64.powi(-9 + k));
+            compare_here(&doc, &stack, &mut tally);
+        }
+    }
+    eprintln!("{edges} edges, {tally:?}");
+    assert!(edges >= 30 && tally.rays >= 200, "{edges} edges, {tally:?}");
+}
+
+/// The benchmark's splitter: no incidence of the workload is declined, and the whole-trace
+/// checksum by the plan equals the general tracer's (2,000 samples) to the agreement's order.
+#[test]
+fn the_splitter_workload_is_planned_throughout() {
+    let doc = include_str!("../scripts/bench/two-wedge-splitter.json");
+    let (stack, _) = Scenario::from_json_str(doc).and_then(|s| s.resolve()).unwrap();
+    assert_eq!(doublespar::declined_samples(&stack, 2_000), 0);
+    let planned = doublespar::run_workload(&stack, 2_000, Workload::Trace);
+    let general = doublespar::run_workload(&stack, 2_000, Workload::GeneralTrace);
+    assert!(
+        (planned - general).abs() <= PLANNED_TRACE_AGREEMENT * general.abs(),
+        "{planned} vs {general}"
+    );
+}
