@@ -13,7 +13,7 @@
 //
 // Contract: DEVELOPERS.md, "The page" (data-field, data-error-for, data-quantity, data-view, the
 // fragment, the file chooser) and the test hook window.doublespar = {session, redraw(),
-// applyScenario(obj), designRequest(), designShown()}, set once the page is ready.
+// applyScenario(obj), designRequest(), designShown(), convergent()}, set once the page is ready.
 
 'use strict';
 
@@ -27,6 +27,7 @@ import { setupDesign } from './design-panel.js';
 import { setupExport, updatePrintSheet } from './export.js';
 import { renderResults, setupResults, toggleShowAll } from './results.js';
 import { describeViews, drawViews, redraw, setupViews } from './views.js';
+import { convergentState } from './convergent.js';
 import { SetupHistory } from './history.js';
 
 const MAX_ELEMENTS = 64;
@@ -1436,6 +1437,7 @@ async function main() {
     applyScenario,
     designRequest: state.design.hooks.designRequest,
     designShown: state.design.hooks.designShown,
+    convergent: () => convergentState(state),
   };
 }
 

@@ -1,8 +1,10 @@
-// End-to-end tests of the conoscopic figure on the page: folded away until opened (it solves
-// 16,384 directions), drawn with the first crystal's acceptance map when its disclosure is
-// opened and described for a screen reader,
-// and its map shade for shade the command line's `doublespar draw conoscope` of the same
-// document (whose SVG embeds the map as a PNG, decoded here with node's zlib).
+// End-to-end tests of the conoscopic figure on the page: folded away until opened, then computed
+// at 256 × 256 directions in the page's worker (design-worker.js) and drawn with the first
+// crystal's acceptance map, described for a screen reader; the worker's map drawn by the page
+// equals, shade for shade, the command line's `doublespar draw conoscope` of the same document
+// at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
+// edit wins over an answer under way, the figure says it is computing, and a set-up the figure
+// cannot be solved for names its element.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -47,26 +49,95 @@ function cliShades(scenario) {
   return { width, height, shades };
 }
 
-test('the conoscopic figure is drawn when opened, described, and equals the command line\'s', { timeout: 120000 }, async () => {
+/** Waits until the page's convergent-light maps are computed and drawn. */
+async function settled(page, timeout = 60000) {
+  await page.waitForFunction(() => {
+    const c = window.doublespar.convergent();
+    const fig = document.getElementById('conoscope-open').closest('figure');
+    return !c.busy && fig.dataset.state === 'ready' && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined;
+  }, null, { timeout });
+}
+
+/**
+ * Asks a worker of the test's own (the page's script, design-worker.js) for the map of `view` of
+ * the session's scenario at `pixels`, hands it to the session and returns the scene's raster.
+ */
+async function ownMap(page, view, pixels) {
+  return page.evaluate(async ([view, pixels]) => {
+    const w = new Worker('design-worker.js', { type: 'module' });
+    const text = window.doublespar.session.scenarioJson();
+    const answer = await new Promise((resolve) => {
+      w.onmessage = (ev) => { if (ev.data.type === 'convergent') resolve(ev.data); };
+      w.postMessage({ type: 'convergent', id: 1, scenario: text, pixels, views: [view] });
+    });
+    w.terminate();
+    if (answer.error) return { error: answer.error };
+    const m = answer.map;
+    window.doublespar.session.setConvergent(view, m.pixels, m.values, m.min, m.max, '', '');
+    return window.doublespar.session.scene(view).items.find((i) => i.type === 'raster');
+  }, [view, pixels]);
+}
+
+test('the conoscopic figure is computed in the worker when opened, described, and equals the command line\'s', { timeout: 180000 }, async () => {
   await withPage('/', async (page) => {
     const stats = async () => (await page.evaluate(canvasStats)).find((s) => s.view === 'conoscope');
     assert.equal(drawn(await stats()), false, 'folded away, it is not drawn');
+    assert.deepEqual((await page.evaluate(() => window.doublespar.convergent())).ms, {}, 'nor computed');
     await page.click('#conoscope-open > summary');
     await page.waitForFunction(() => document.getElementById('conoscope-open').open);
+    await settled(page);
     const shown = await stats();
     assert.ok(drawn(shown), `the figure is drawn: ${JSON.stringify(shown)}`);
-    assert.match(shown.label, /^Conoscopic figure: .*30° cone/);
+    assert.match(shown.label, /^Conoscopic figure: .*30° cone of incidence directions, 256 × 256/);
     const acceptance = (await page.evaluate(canvasStats)).find((s) => s.view === 'acceptance');
     assert.ok(drawn(acceptance), `the acceptance map is drawn: ${JSON.stringify(acceptance)}`);
     assert.match(acceptance.label, /^Acceptance of element 1 .*retardance/);
+    assert.match(await page.textContent('#convergent-status'), /256 × 256 directions computed in \d+ ms/);
 
     const scene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
     const map = scene.items.find((i) => i.type === 'raster');
     assert.ok(map, 'the scene holds the map');
-    const cli = cliShades(await pageScenario(page));
-    assert.equal(cli.width, map.columns);
-    assert.equal(cli.height, map.rows);
-    assert.deepEqual(map.grey, cli.shades, 'every shade as the command line draws it');
+    assert.deepEqual([map.columns, map.rows], [256, 256]);
     assert.ok(map.grey.some((g) => g === null) && map.grey.some((g) => g !== null));
+    // Shade for shade the command line's figure, computed by the worker at its size.
+    const cli = cliShades(await pageScenario(page));
+    const own = await ownMap(page, 'conoscope', cli.width);
+    assert.equal(cli.height, own.rows);
+    assert.deepEqual(own.grey, cli.shades, 'every shade as the command line draws it');
+    // The SVG export holds the map.
+    const svg = await page.evaluate(() => window.doublespar.session.svg('conoscope', 400, 420, false));
+    assert.match(svg, /<image data-tag="map"/);
+  });
+});
+
+test('a newer edit wins over an answer under way, the figure says it is computing, and errors name their element', { timeout: 180000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('#conoscope-open > summary');
+    await settled(page);
+    const base = await pageScenario(page);
+    const plate = (mm) => ({ ...base, elements: base.elements.map((e, i) => (i === 0 ? { ...e, thickness_mm: mm } : e)) });
+    // Two edits in a row: the first is under way when the second comes.
+    const during = await page.evaluate(([a, b]) => {
+      window.doublespar.applyScenario(a);
+      const fig = document.getElementById('conoscope-open').closest('figure');
+      const state = { busy: fig.getAttribute('aria-busy'), status: document.getElementById('convergent-status').textContent };
+      window.doublespar.applyScenario(b);
+      return state;
+    }, [plate(0.5), plate(3)]);
+    assert.equal(during.busy, 'true');
+    assert.match(during.status, /^Computing 256 × 256 directions/);
+    await settled(page);
+    assert.equal((await pageScenario(page)).elements[0].thickness_mm, 3);
+    const drawnMap = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.find((i) => i.type === 'raster');
+    const fresh = await ownMap(page, 'conoscope', 256);
+    assert.deepEqual(drawnMap.grey, fresh.grey, 'the map drawn is the last edit\'s');
+
+    // A crystal convergent light is not solved for: the figure names it.
+    await page.evaluate(() => window.doublespar.applyScenario({
+      version: 2, elements: [{ kind: 'crystal', material: 'ktp', thickness_mm: 1, axis: { tilt_deg: 0, azimuth_deg: 0 } }],
+    }));
+    await settled(page);
+    const texts = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.filter((i) => i.type === 'text').map((i) => i.text);
+    assert.ok(texts.some((t) => t.includes('not drawn') && t.includes('elements[0]')), JSON.stringify(texts));
   });
 });
