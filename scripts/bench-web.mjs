@@ -471,39 +471,26 @@ function printLarge(large) {
   console.log(`    one edit's parts alone: ${Object.entries(l.parts).map(([k, v]) => `${k.replace(/_ms$/, '')} ${v} ms`).join(', ')}`);
 }
 
+/** One part alone (`--only`): `run(browser, origin)` gives {problems, …}, `print` writes it. */
+async function onlyPart(title, run, print) {
+  const server = await startServer();
+  const browser = await launchBrowser();
+  try {
+    const out = await run(browser, server.origin);
+    console.log(`Doublespar web benchmark, ${title} only — Chromium ${browser.version()}`);
+    print(out);
+    for (const p of out.problems) console.log(`  problem: ${p}`);
+    console.log(JSON.stringify(out));
+    if (out.problems.length) process.exitCode = 3;
+  } finally {
+    await browser.close();
+    await server.close();
+  }
+}
+
 async function main() {
-  if (ONLY === 'large') {
-    const server = await startServer();
-    const browser = await launchBrowser();
-    try {
-      const large = await largeStack(browser, server.origin);
-      console.log(`Doublespar web benchmark, large stack only — Chromium ${browser.version()}`);
-      printLarge(large);
-      for (const p of large.problems) console.log(`  problem: ${p}`);
-      console.log(JSON.stringify(large));
-      if (large.problems.length) process.exitCode = 3;
-    } finally {
-      await browser.close();
-      await server.close();
-    }
-    return;
-  }
-  if (ONLY === 'convergent') {
-    const server = await startServer();
-    const browser = await launchBrowser();
-    try {
-      const conv = await convergentRuns(browser, server.origin);
-      console.log(`Doublespar web benchmark, convergent light only — Chromium ${browser.version()}`);
-      printConvergent(conv);
-      for (const p of conv.problems) console.log(`  problem: ${p}`);
-      console.log(JSON.stringify(conv));
-      if (conv.problems.length) process.exitCode = 3;
-    } finally {
-      await browser.close();
-      await server.close();
-    }
-    return;
-  }
+  if (ONLY === 'large') return onlyPart('large stack', largeStack, printLarge);
+  if (ONLY === 'convergent') return onlyPart('convergent light', convergentRuns, printConvergent);
   if (ONLY === 'prisms') {
     const server = await startServer();
     const browser = await launchBrowser();
