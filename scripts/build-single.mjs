@@ -2,8 +2,8 @@
 // when opened from disk (file://), with no server and no network. Called by build-single.sh.
 //
 // What it holds, all inline:
-// - www/style.css in a <style> (compacted: no comment, blank line or indentation), the favicon
-//   as a data: URL;
+// - www/index.html and www/style.css (in a <style>), both without blank lines or indentation
+//   (and the style sheet without comments), the favicon as a data: URL;
 // - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
 //   superset of the page's exports, so one wasm serves the page and the design worker) with its
 //   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
@@ -363,7 +363,11 @@ function singlePolicy(scriptText, styleText) {
 
 const PAGE_POLICY = `<meta http-equiv="Content-Security-Policy" content="default-src 'self'; script-src 'self' 'wasm-unsafe-eval'">`;
 
-let html = read('index.html');
+// The page's markup without indentation or blank lines: it has no <pre> or <textarea>, so the
+// whitespace at a line's ends only ever separates tags or words, and a line break still does.
+const rawHtml = read('index.html');
+if (/<(pre|textarea)\b/i.test(rawHtml)) throw new Error('build-single: index.html has a <pre> or <textarea>, whose whitespace the compaction would change');
+let html = rawHtml.split('\n').map((line) => line.trim()).filter((line) => line !== '').join('\n');
 const favicon = 'data:image/svg+xml;base64,' + Buffer.from(read('favicon.svg')).toString('base64');
 html = replaceOnce(html, '<link rel="icon" href="favicon.svg" type="image/svg+xml">',
   `<link rel="icon" href="${favicon}" type="image/svg+xml">`, 'index.html');

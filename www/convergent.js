@@ -36,7 +36,6 @@ export function lacksConvergent(state, name) {
 function setBusy(busy, text) {
   const figure = document.getElementById('conoscope-open').closest('figure');
   setAttr(figure, 'aria-busy', String(busy));
-  setAttr(figure, 'data-state', busy ? 'computing' : 'ready');
   setText(document.getElementById('convergent-status'), text);
 }
 

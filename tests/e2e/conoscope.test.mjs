@@ -54,7 +54,7 @@ async function settled(page, timeout = 60000) {
   await page.waitForFunction(() => {
     const c = window.doublespar.convergent();
     const fig = document.getElementById('conoscope-open').closest('figure');
-    return !c.busy && fig.dataset.state === 'ready' && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined;
+    return !c.busy && fig.getAttribute('aria-busy') === 'false' && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined;
   }, null, { timeout });
 }
 
