@@ -3,7 +3,8 @@
 //
 // What it holds, all inline:
 // - www/index.html and www/style.css (in a <style>), both without blank lines or indentation
-//   (and the style sheet without comments), the favicon as a data: URL;
+//   (and the style sheet without comments, and without line breaks after a declaration, a brace
+//   or a comma), the favicon as a data: URL;
 // - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
 //   superset of the page's exports, so one wasm serves the page and the design worker) with its
 //   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
@@ -183,7 +184,8 @@ function compactCss(source) {
     if (trimmed !== '') out.push(trimmed);
   }
   if (inBlock) throw new Error('build-single: style.css ends inside a comment');
-  return out.join('\n');
+  // A line break after a declaration, a brace or a selector's comma separates nothing: dropped.
+  return out.reduce((text, line) => text + (text === '' || /[;{},]$/.test(text) ? '' : '\n') + line, '');
 }
 
 function bundlePage() {
@@ -234,7 +236,7 @@ function bundlePage() {
     }
     for (const name of mod.topLevel) declared.set(name, file);
     const imports = mod.imports.map((imp) => `const { ${imp.names.join(', ')} } = ${moduleObject(imp.from)};\n`).join('');
-    parts.push(`// --- www/${file}\nconst ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
+    parts.push(`const ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
   }
   return { text: parts.join('\n'), order, declared };
 }

@@ -15,9 +15,9 @@
 // edit always wins. While a map is computed the view keeps its last picture (or, the first time,
 // its rings and a note), the figure is aria-busy and a status line says so.
 //
-// Contract: setupConvergent(state, drawByName) once, after the views are set up (drawByName(name)
-// redraws one view); needConvergent(state) from views.js; convergentState(state) for the test
-// hook: {busy, ms: {view: ms}} (for each view, ms from posting the last request to the view drawn).
+// Contract: views.js sets state.convergent.drawByName(name) (redraws one view) and calls
+// lacksConvergent and needConvergent; the test hook reads state.convergent's busy and ms (for
+// each view, ms from posting the last request to the view drawn).
 
 import { setAttr, setText } from './dom.js';
 import { startCoreWorker } from './core-worker.js';
@@ -39,23 +39,22 @@ function setBusy(busy, text) {
   setText(document.getElementById('convergent-status'), text);
 }
 
-function failed(c, message) {
+/** Ends the worker (a new one starts with the next request) and says why. */
+function failed(c, why) {
   c.worker?.terminate();
-  c.worker = null;
-  c.busy = null;
-  setBusy(false, `Convergent light could not be computed: ${message}`);
+  c.worker = c.busy = null;
+  setBusy(false, `Convergent light could not be computed: ${why}`);
 }
 
 function startWorker(state) {
   const c = state.convergent;
   const w = startCoreWorker();
-  c.worker = w;
-  w.onmessage = (ev) => { if (w === c.worker) onAnswer(state, ev.data); };
+  w.onmessage = (ev) => w === c.worker && onAnswer(state, ev.data);
   w.onerror = (ev) => {
     ev.preventDefault();
-    if (w === c.worker) failed(c, `the worker stopped (${ev.message || 'its script or the core could not be loaded'}).`);
+    if (w === c.worker) failed(c, ev.message || 'the worker stopped');
   };
-  return w;
+  return (c.worker = w);
 }
 
 /**
@@ -70,11 +69,11 @@ export function needConvergent(state) {
     c.again ||= c.busy.text !== text;
     return;
   }
-  let w = c.worker;
+  let w;
   try {
-    w ??= startWorker(state);
+    w = c.worker ?? startWorker(state);
   } catch (e) {
-    failed(c, `the worker could not start (${e && e.message ? e.message : e}).`);
+    failed(c, e?.message ?? e);
     return;
   }
   c.have.clear();
@@ -103,14 +102,4 @@ function onAnswer(state, msg) {
     if (c.again || !current) needConvergent(state);
     if (!c.busy) setBusy(false, current ? `${PIXELS} × ${PIXELS} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
   }
-}
-
-/** What the test hook reports: whether a request is in flight, and each view's last time. */
-export function convergentState(state) {
-  return { busy: state.convergent.busy !== null, ms: { ...state.convergent.ms } };
-}
-
-/** Sets up the convergent-light views' computation; `drawByName(name)` redraws one view. */
-export function setupConvergent(state, drawByName) {
-  state.convergent.drawByName = drawByName;
 }

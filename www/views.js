@@ -18,7 +18,7 @@ import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth 
 import { toFieldError } from './field-error.js';
 import { materialName } from './state.js';
 import { modeLetters } from './results.js';
-import { lacksConvergent, needConvergent, setupConvergent } from './convergent.js';
+import { lacksConvergent, needConvergent } from './convergent.js';
 
 
 // The side view's planes: view name, the chooser's words, the plane in the text alternative and
@@ -309,9 +309,9 @@ export function setupViews(state) {
     if (name === 'side') addPlaneChooser(state, v);
     canvas.closest('details')?.addEventListener('toggle', () => drawView(state, v));
   }
-  setupConvergent(state, (name) => {
+  state.convergent.drawByName = (name) => {
     for (const v of state.views.list) if (v.name === name) drawView(state, v);
-  });
+  };
   state.darkQuery.addEventListener('change', () => redraw(state));
   window.addEventListener('beforeprint', () => beforePrint(state));
   window.addEventListener('afterprint', () => afterPrint(state));
