@@ -4,7 +4,7 @@
 // equals, shade for shade, the command line's `doublespar draw conoscope` of the same document
 // at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
 // edit wins over an answer under way, the figure says it is computing, and a set-up the figure
-// cannot be solved for names its element.
+// cannot be solved for names its element; an embedded <spar-figure> computes its own in a worker.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -13,7 +13,9 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawnSync } from 'node:child_process';
 import zlib from 'node:zlib';
-import { useBrowser, withPage as openAt, canvasStats, drawn, pageScenario, CLI } from './support.mjs';
+import fs from 'node:fs';
+import path from 'node:path';
+import { useBrowser, withPage as openAt, canvasStats, drawn, pageScenario, CLI, ROOT } from './support.mjs';
 
 const env = useBrowser({ cli: true });
 const withPage = (address, body) => openAt(env, address, ({ page }) => body(page));
@@ -140,4 +142,38 @@ test('a newer edit wins over an answer under way, the figure says it is computin
     const texts = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.filter((i) => i.type === 'text').map((i) => i.text);
     assert.ok(texts.some((t) => t.includes('not drawn') && t.includes('elements[0]')), JSON.stringify(texts));
   });
+});
+
+test('an embedded figure (<spar-figure>) computes its conoscopic view in a worker of its own', { timeout: 180000 }, async () => {
+  const doc = JSON.parse(fs.readFileSync(path.join(ROOT, 'scripts', 'bench', 'conoscope.json'), 'utf8'));
+  await openAt(env, '/embed-example.html', async ({ page }) => {
+    await page.evaluate(async (doc) => {
+      const el = document.createElement('spar-figure');
+      el.id = 'fig-conoscope';
+      el.setAttribute('views', 'conoscope');
+      el.setAttribute('scenario', JSON.stringify(doc));
+      el.style.cssText = 'display: block; width: 400px; height: 420px';
+      document.body.append(el);
+      await el.ready;
+    }, doc);
+    await page.waitForFunction(() => document.getElementById('fig-conoscope').session.scene('conoscope').items.some((i) => i.type === 'raster'), null, { timeout: 60000, polling: 250 });
+    const embedded = await page.evaluate(() => document.getElementById('fig-conoscope').session.scene('conoscope').items.find((i) => i.type === 'raster'));
+    assert.deepEqual([embedded.columns, embedded.rows], [256, 256]);
+    // The worker's values for the same text, shaded as the view's note says (black 0, white 1,
+    // 64 shades): the embedded picture is that map.
+    const values = await page.evaluate(async () => {
+      const w = new Worker('design-worker.js', { type: 'module' });
+      const text = document.getElementById('fig-conoscope').session.scenarioJson();
+      const answer = await new Promise((resolve) => {
+        w.onmessage = (ev) => { if (ev.data.type === 'convergent') resolve(ev.data); };
+        w.postMessage({ type: 'convergent', id: 1, scenario: text, pixels: 256, views: ['conoscope'] });
+      });
+      w.terminate();
+      return Array.from(answer.map.values);
+    });
+    const shades = values.map((v) => (Number.isNaN(v) ? null : Math.round(Math.round(Math.min(1, Math.max(0, v)) * 63) * 255 / 63)));
+    assert.deepEqual(embedded.grey, shades, 'the embedded figure is the worker\'s map');
+    const stats = (await page.evaluate(canvasStats, { host: '#fig-conoscope' })).find((s) => s.view === 'conoscope');
+    assert.ok(drawn(stats), `the embedded figure is drawn: ${JSON.stringify(stats)}`);
+  }, { ready: false });
 });
