@@ -91,7 +91,12 @@ function onAnswer(state, msg) {
   const current = state.session.scenarioJson() === busy.text;
   if (current) {
     const { map = {}, error = {} } = msg;
-    state.session.setConvergent(msg.view, map.pixels ?? 0, map.values ?? [], map.min, map.max, error.field ?? '', error.message ?? '');
+    try {
+      state.session.setConvergent(msg.view, map.pixels ?? 0, map.values ?? [], map.min, map.max, error.field ?? '', error.message ?? '');
+    } catch (e) {
+      failed(c, e?.message ?? e);
+      return;
+    }
     c.have.add(`${msg.view} ${busy.text}`);
     c.drawByName(msg.view);
     c.ms[msg.view] = performance.now() - busy.posted;
