@@ -21,8 +21,13 @@
 // JavaScript, the result alone handed again (session.result()), each view drawn, the results
 // text, the descriptions. Budget: median ≤ 300 ms per edit (reported only).
 //
+// Convergent light: the 256 × 256 conoscopic figure of scripts/bench/conoscope.json computed in
+// the page's worker, from the page posting the scenario to the view drawn, median of
+// CONVERGENT_EDITS edits (target ≤ 100 ms, reported only), and the acceptance map after it.
+//
 // Usage: node scripts/bench-web.mjs [--iterations N] [--warmup N] [--mc-runs N] [--large-edits N]
-//   [--only large|prisms] (only the large-stack part, or only the prism presets' loops)
+//   [--only large|prisms|convergent] (only the large-stack part, only the prism presets' loops,
+//   or only the convergent-light views)
 // (scripts/bench-web.sh builds the page first). Needs www/pkg and www/pkg-design
 // (scripts/build-web.sh) and playwright-core in tests/e2e (npm ci there).
 //
@@ -75,6 +80,10 @@ const PRISMS = ['crossed-calcite-splitter', 'air-gap-calcite-polarizer'];
 // plot (200 voltages, 100 sublayers; issue target ≤ 100 ms in the page, reported only).
 const CELL = 'twisted-nematic-cell';
 const BUDGET_CELL_CURVE_MS = 100;
+// The convergent-light views: scripts/bench/conoscope.json's figure, 256 × 256, computed in the
+// page's worker (target ≤ 100 ms from posting to drawn, reported only); edits timed.
+const CONVERGENT_EDITS = 9;
+const BUDGET_CONVERGENT_MS = 100;
 
 // Three crystals, each splitting every ray in two: 8 output rays. Oblique incidence out of the
 // plane of the first axis, elliptical input, so that no mode is empty.
@@ -321,6 +330,64 @@ async function updateLoop(browser, origin, json) {
  * values alternating, so that every edit traces), each timed from the page's call of
  * session.updateJson to the end of its frame; then one edit's parts, each called alone.
  */
+/**
+ * The convergent-light views on a fresh page: scripts/bench/conoscope.json applied, the
+ * disclosure opened (its first maps include the worker's start-up), then CONVERGENT_EDITS edits
+ * of the plate's thickness, each waited for: the time from the page posting the scenario to its
+ * worker until each view is drawn (the page's own measure, window.doublespar.convergent()).
+ */
+async function convergentRuns(browser, origin) {
+  const { context, page, log } = await openPage(browser, origin, { viewport: { width: 1280, height: 900 } });
+  await page.goto(`${origin}/`, { waitUntil: 'load' });
+  await waitReady(page);
+  const doc = JSON.parse(fs.readFileSync(path.join(ROOT, 'scripts', 'bench', 'conoscope.json'), 'utf8'));
+  const runs = await page.evaluate(async ({ doc, edits }) => {
+    const ds = window.doublespar;
+    const settled = () => new Promise((resolve) => {
+      const poll = () => {
+        const c = ds.convergent();
+        if (!c.busy && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined) resolve(c.ms);
+        else setTimeout(poll, 2);
+      };
+      poll();
+    });
+    ds.applyScenario(doc);
+    const details = document.getElementById('conoscope-open');
+    details.open = true;
+    const first = await settled();
+    const out = [];
+    for (let i = 0; i < edits; i += 1) {
+      const plate = { ...doc.elements[0], thickness_mm: 10 + 0.25 * ((i % 2) + 1) };
+      ds.applyScenario({ ...doc, elements: [plate, ...doc.elements.slice(1)] });
+      out.push(await settled());
+    }
+    const map = ds.session.scene('conoscope').items.find((it) => it.type === 'raster');
+    return { first, out, columns: map ? map.columns : 0 };
+  }, { doc, edits: CONVERGENT_EDITS });
+  const problems = collect(log, 'convergent-light page');
+  if (runs.columns !== 256) problems.push(`the conoscopic map has ${runs.columns} columns, expected 256`);
+  await context.close();
+  return {
+    convergent: {
+      scenario: 'scripts/bench/conoscope.json (10 mm c-cut quartz between crossed polarizers), 256 × 256 over a 30° cone',
+      edits: CONVERGENT_EDITS,
+      conoscope_post_to_drawn_ms: roundStats(stats(runs.out.map((m) => m.conoscope))),
+      acceptance_post_to_drawn_ms: roundStats(stats(runs.out.map((m) => m.acceptance))),
+      first_open_conoscope_ms: round(runs.first.conoscope),
+      budget_median_ms: BUDGET_CONVERGENT_MS,
+    },
+    problems,
+  };
+}
+
+function printConvergent(out) {
+  const c = out.convergent;
+  console.log(
+    `  conoscopic figure 256 × 256 in the page's worker, post to drawn, ${c.edits} edits: median ${c.conoscope_post_to_drawn_ms.median} ms, p90 ${c.conoscope_post_to_drawn_ms.p90} ms (min ${c.conoscope_post_to_drawn_ms.min}); with the acceptance map after it: median ${c.acceptance_post_to_drawn_ms.median} ms; on first opening (worker start-up included) ${c.first_open_conoscope_ms} ms` +
+      `  [target median ≤ ${BUDGET_CONVERGENT_MS} ms: ${c.conoscope_post_to_drawn_ms.median <= BUDGET_CONVERGENT_MS ? 'within' : 'OVER (reported only)'}]`,
+  );
+}
+
 async function largeStack(browser, origin) {
   const { context, page, log } = await openPage(browser, origin, { viewport: { width: 1280, height: 900 } });
   await page.goto(`${origin}/`, { waitUntil: 'load' });
@@ -404,23 +471,26 @@ function printLarge(large) {
   console.log(`    one edit's parts alone: ${Object.entries(l.parts).map(([k, v]) => `${k.replace(/_ms$/, '')} ${v} ms`).join(', ')}`);
 }
 
-async function main() {
-  if (ONLY === 'large') {
-    const server = await startServer();
-    const browser = await launchBrowser();
-    try {
-      const large = await largeStack(browser, server.origin);
-      console.log(`Doublespar web benchmark, large stack only — Chromium ${browser.version()}`);
-      printLarge(large);
-      for (const p of large.problems) console.log(`  problem: ${p}`);
-      console.log(JSON.stringify(large));
-      if (large.problems.length) process.exitCode = 3;
-    } finally {
-      await browser.close();
-      await server.close();
-    }
-    return;
+/** One part alone (`--only`): `run(browser, origin)` gives {problems, …}, `print` writes it. */
+async function onlyPart(title, run, print) {
+  const server = await startServer();
+  const browser = await launchBrowser();
+  try {
+    const out = await run(browser, server.origin);
+    console.log(`Doublespar web benchmark, ${title} only — Chromium ${browser.version()}`);
+    print(out);
+    for (const p of out.problems) console.log(`  problem: ${p}`);
+    console.log(JSON.stringify(out));
+    if (out.problems.length) process.exitCode = 3;
+  } finally {
+    await browser.close();
+    await server.close();
   }
+}
+
+async function main() {
+  if (ONLY === 'large') return onlyPart('large stack', largeStack, printLarge);
+  if (ONLY === 'convergent') return onlyPart('convergent light', convergentRuns, printConvergent);
   if (ONLY === 'prisms') {
     const server = await startServer();
     const browser = await launchBrowser();
@@ -544,6 +614,10 @@ async function main() {
     const large = await largeStack(browser, server.origin);
     problems.push(...large.problems);
 
+    // 5. The convergent-light views, on a fresh page.
+    const conv = await convergentRuns(browser, server.origin);
+    problems.push(...conv.problems);
+
     const chromium = browser.version();
     const total = stats(loop.total);
     out = {
@@ -586,6 +660,7 @@ async function main() {
       },
       prisms,
       large_stack: large.large_stack,
+      convergent: conv.convergent,
       design_wasm_bytes: designWasmBytes,
       design_wasm_gzip_bytes: designWasmGzip,
       budget: { median_ms: BUDGET_MEDIAN_MS, wasm_bytes: BUDGET_WASM_BYTES, monte_carlo_median_ms: BUDGET_MC_MS, first_render_ms: BUDGET_FIRST_RENDER_MS },
@@ -642,6 +717,7 @@ async function main() {
     }
   }
   printLarge(out);
+  printConvergent(out);
   for (const p of problems) console.log(`  problem: ${p}`);
   console.log(JSON.stringify(out));
   if (!out.wasm_within_budget || !out.first_render_within_budget) process.exitCode = 1;

@@ -1,9 +1,11 @@
 #!/usr/bin/env bash
 # Every benchmark in one run, side by side on this machine, with the ratios: the native core
 # (cargo bench --bench core), the numpy baselines of the same sweep, of the two-wedge
-# splitter's traces (scripts/bench/splitter_numpy.py) and of a five-stage filter's spectrum
-# (scripts/bench/spectrum_numpy.py), the same work in WebAssembly under Node, a 256 × 256
-# conoscopic figure natively and under Node (benches/conoscope.rs, scripts/bench/wasm_conoscope.mjs),
+# splitter's traces (scripts/bench/splitter_numpy.py), of a five-stage filter's spectrum
+# (scripts/bench/spectrum_numpy.py) and of a liquid-crystal cell's 200-voltage retardance curve
+# (scripts/bench/lc_numpy.py), the same work in WebAssembly under Node, a 256 × 256
+# conoscopic figure natively, under Node and in numpy (benches/conoscope.rs,
+# scripts/bench/wasm_conoscope.mjs, scripts/bench/conoscope_numpy.py; their checksums must agree),
 # and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
 # first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
 # Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
@@ -28,12 +30,19 @@ splitter_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/pyth
 echo "$splitter_baseline"
 spectrum_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/spectrum_numpy.py)
 echo "$spectrum_baseline"
+lc_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/lc_numpy.py)
+echo "$lc_baseline"
 wasm=$(node scripts/bench/wasm_sweep.mjs)
 echo "$wasm"
 # Convergent light: a 256 × 256 conoscopic figure natively and in WebAssembly under Node
 # (reported beside the rest; checksums printed by each).
-cargo bench --quiet --bench conoscope 2>/dev/null
-node scripts/bench/wasm_conoscope.mjs
+conoscope_out=$(cargo bench --quiet --bench conoscope 2>/dev/null)
+echo "$conoscope_out"
+conoscope_native=$(printf '%s\n' "$conoscope_out" | tail -1)
+conoscope_wasm=$(node scripts/bench/wasm_conoscope.mjs)
+echo "$conoscope_wasm"
+conoscope_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/conoscope_numpy.py)
+echo "$conoscope_baseline"
 web='{}'
 status=0
 if [ "$page" = 1 ]; then
@@ -46,10 +55,13 @@ if [ "$page" = 1 ]; then
   case "$web" in \{*) ;; *) web='{}' ;; esac
 fi
 echo
-python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" "$spectrum_baseline" <<'PY'
+python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" "$spectrum_baseline" "$lc_baseline" "$conoscope_native" "$conoscope_wasm" "$conoscope_baseline" <<'PY'
 import json, sys
-n, b, w, p, sb, spb = (json.loads(a) for a in sys.argv[1:7])
+n, b, w, p, sb, spb, lcb, cn, cw, cb = (json.loads(a) for a in sys.argv[1:11])
 assert abs(n["spectrum_checksum"] - spb["spectrum_checksum"]) < 1e-9 * abs(spb["spectrum_checksum"]), "native and numpy spectra disagree"
+assert abs(n["lc_curve_checksum"] - lcb["lc_curve_checksum"]) < 1e-9 * abs(lcb["lc_curve_checksum"]), f"native and numpy retardance curves disagree: {n['lc_curve_checksum']} vs {lcb['lc_curve_checksum']}"
+for other, what in ((cw, "wasm"), (cb, "numpy")):
+    assert abs(cn["conoscope_checksum"] - other["conoscope_checksum"]) < 1e-9 * abs(other["conoscope_checksum"]), f"native and {what} conoscopic figures disagree"
 for key in ("splitter_trace_checksum", "splitter_split_checksum"):
     assert abs(n[key] - sb[key]) < 1e-9 * abs(sb[key]), f"native and numpy disagree on {key}: {n[key]} vs {sb[key]}"
     assert abs(n[key] - w[key]) < 1e-9 * abs(w[key]), f"native and wasm disagree on {key}"
@@ -71,12 +83,18 @@ print(f"  two-wedge splitter, whole traces by the planned trace ({n['splitter_tr
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")
 sn, sp = n["spectrum_2000_ms"], spb["spectrum_2000_ms"]
 print(f"  spectrum of a five-stage filter, 2 000 points, every point a whole trace: native on the machine's threads {sn:.1f} ms (target 20 ms), numpy (the Jones product alone) {sp:.2f} ms: native takes {sn / sp:.0f}x numpy's time")
+ln, lp = n["lc_curve_200_ms"], lcb["lc_curve_200_ms"]
+print(f"  liquid-crystal cell, retardance at 200 voltages (100 sublayers, warm-started director solves): native {ln:.1f} ms, numpy {lp:.1f} ms: native is {lp / ln:.0f}x as fast")
+c_n, c_w, c_b = cn["conoscope_256_ms"], cw["conoscope_256_worker_build_ms"], cb["conoscope_256_ms"]
+print(f"  conoscopic figure 256 x 256: native {c_n:.1f} ms, WebAssembly under Node (the page worker's build) {c_w:.1f} ms, numpy {c_b:.1f} ms: native {c_b / c_n:.1f}x, wasm {c_b / c_w:.1f}x numpy (target 100 ms in the page's worker)")
 if p:
     print(f"  page, recompute + redraw of every view: median {p['update_redraw_ms']['median']} ms")
     print(f"  page, first complete render: {p['first_render_ms']} ms (budget 1500 ms, {'within' if p['first_render_within_budget'] else 'OVER'})")
     print(f"  page wasm: {p['wasm_bytes']} bytes (budget 500000, {'within' if p['wasm_within_budget'] else 'OVER'})")
     print(f"  Monte Carlo, displacer, 10^5 samples, in the page's worker: median {p['monte_carlo']['post_to_summary_ms']['median']} ms")
     print(f"  Monte Carlo, angular splitter, 10^5 samples, in the page's worker: median {p['splitter_monte_carlo']['post_to_done_ms']['median']} ms (target 300 ms)")
+    cv = p["convergent"]["conoscope_post_to_drawn_ms"]
+    print(f"  page, conoscopic figure 256 x 256 in the page's worker, post to drawn: median {cv['median']} ms (target 100 ms)")
     for name, pr in p["prisms"].items():
         print(f"  page, prism preset {name}, recompute + redraw of every view: median {pr['update_redraw_ms']['median']} ms (target 4 ms)")
 PY

@@ -2,7 +2,9 @@
 // when opened from disk (file://), with no server and no network. Called by build-single.sh.
 //
 // What it holds, all inline:
-// - www/style.css in a <style>, the favicon as a data: URL;
+// - www/index.html and www/style.css (in a <style>), both without blank lines or indentation
+//   (and the style sheet without comments, and without line breaks after a declaration, a brace
+//   or a comma), the favicon as a data: URL;
 // - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
 //   superset of the page's exports, so one wasm serves the page and the design worker) with its
 //   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
@@ -46,9 +48,20 @@ function replaceOnce(text, from, to, what) {
   return text.replace(from, () => to);
 }
 
+/** The glue's exports that the single file leaves out (see wrapGlue). */
+const UNUSED_EXPORTS = ['benchSplitter', 'benchWalkoffSweep', 'designJson'];
+
 /** The wasm-bindgen glue as a function `__dsMakeCore()` that returns its exports. */
 function wrapGlue(glue) {
   const names = [];
+  // Exports neither the page nor the worker calls (the benchmark hooks, which scripts/bench
+  // calls under Node, and the one-shot designJson) are left out, each found exactly once.
+  for (const name of UNUSED_EXPORTS) {
+    const at = new RegExp(`^export function ${name}\\([^\\n]*\\n(?:(?!\\}\\n)[^\\n]*\\n)*?\\}\\n`, 'm');
+    const found = glue.match(new RegExp(at.source, 'gm')) || [];
+    if (found.length !== 1) throw new Error(`build-single: expected exactly one export function ${name} in the glue, found ${found.length}`);
+    glue = glue.replace(at, '');
+  }
   let body = glue.replace(/^export (class|function|const|let) ([A-Za-z_$][\w$]*)/gm, (_, kw, name) => {
     names.push(name);
     return `${kw} ${name}`;
@@ -68,7 +81,7 @@ function wrapGlue(glue) {
 // The page's ES modules, in www/ beside app.js. A module that app.js (or one of these) imports
 // must be listed here, and every one listed must be reached from app.js: the build fails
 // otherwise, so that adding a module is a deliberate change to the single file too.
-const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'geometry.js', 'formula.js', 'state.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'design-results.js', 'export.js'];
+const PAGE_MODULES = ['app.js', 'dom.js', 'format.js', 'field-error.js', 'geometry.js', 'formula.js', 'state.js', 'history.js', 'results.js', 'views.js', 'design-panel.js', 'design-results.js', 'export.js', 'core-worker.js', 'convergent.js'];
 
 const IDENT = '[A-Za-z_$][\\w$]*';
 // A top-level declaration starts its line (the page's style): `[export ][async ]function[*] name`,
@@ -144,6 +157,37 @@ function compactLines(source, what, keepIndent = false) {
   return out.join('\n');
 }
 
+/**
+ * The style sheet without its comments, blank lines and indentation. A comment must start its
+ * line (the page's style); a `/*` anywhere else (inside a string, or code before a comment) fails
+ * the build rather than be guessed at.
+ */
+function compactCss(source) {
+  const out = [];
+  let inBlock = false;
+  for (const line of source.split('\n')) {
+    const trimmed = line.trim();
+    if (inBlock) {
+      if (trimmed.includes('*/')) {
+        if (!trimmed.endsWith('*/')) throw new Error(`build-single: style.css: code after a comment on its line: ${trimmed}`);
+        inBlock = false;
+      }
+      continue;
+    }
+    if (trimmed.startsWith('/*')) {
+      const end = trimmed.indexOf('*/', 2);
+      if (end !== -1 && end !== trimmed.length - 2) throw new Error(`build-single: style.css: code after a comment on its line: ${trimmed}`);
+      inBlock = end === -1;
+      continue;
+    }
+    if (trimmed.includes('/*')) throw new Error(`build-single: style.css: a comment that does not start its line: ${trimmed}`);
+    if (trimmed !== '') out.push(trimmed);
+  }
+  if (inBlock) throw new Error('build-single: style.css ends inside a comment');
+  // A line break after a declaration, a brace or a selector's comma separates nothing: dropped.
+  return out.reduce((text, line) => text + (text === '' || /[;{},]$/.test(text) ? '' : '\n') + line, '');
+}
+
 function bundlePage() {
   const modules = new Map(); // file -> {imports: [{from, names}], body, exported: [name]}
   const parse = (file) => {
@@ -192,7 +236,7 @@ function bundlePage() {
     }
     for (const name of mod.topLevel) declared.set(name, file);
     const imports = mod.imports.map((imp) => `const { ${imp.names.join(', ')} } = ${moduleObject(imp.from)};\n`).join('');
-    parts.push(`// --- www/${file}\nconst ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
+    parts.push(`const ${moduleObject(file)} = (() => {\n${imports}${mod.body}\nreturn { ${mod.exported.join(', ')} };\n})();\n`);
   }
   return { text: parts.join('\n'), order, declared };
 }
@@ -203,9 +247,9 @@ const glue = wrapGlue(read('pkg-design/doublespar.js'));
 // bytes from the page's first message.
 let worker = read('design-worker.js');
 worker = replaceOnce(worker,
-  "import init, { DesignRun } from './pkg-design/doublespar.js';",
+  "import init, { DesignRun, convergentMap } from './pkg-design/doublespar.js';",
   [
-    'const { default: init, DesignRun } = __dsMakeCore();',
+    'const { default: init, DesignRun, convergentMap } = __dsMakeCore();',
     'let __dsGotBytes;',
     'const __dsBytes = new Promise((resolve) => { __dsGotBytes = resolve; });',
     "self.addEventListener('message', (ev) => { if (ev.data && ev.data.type === 'doublespar-wasm') __dsGotBytes(ev.data.bytes); });",
@@ -321,11 +365,15 @@ function singlePolicy(scriptText, styleText) {
 
 const PAGE_POLICY = `<meta http-equiv="Content-Security-Policy" content="default-src 'self'; script-src 'self' 'wasm-unsafe-eval'">`;
 
-let html = read('index.html');
+// The page's markup without indentation or blank lines: it has no <pre> or <textarea>, so the
+// whitespace at a line's ends only ever separates tags or words, and a line break still does.
+const rawHtml = read('index.html');
+if (/<(pre|textarea)\b/i.test(rawHtml)) throw new Error('build-single: index.html has a <pre> or <textarea>, whose whitespace the compaction would change');
+let html = rawHtml.split('\n').map((line) => line.trim()).filter((line) => line !== '').join('\n');
 const favicon = 'data:image/svg+xml;base64,' + Buffer.from(read('favicon.svg')).toString('base64');
 html = replaceOnce(html, '<link rel="icon" href="favicon.svg" type="image/svg+xml">',
   `<link rel="icon" href="${favicon}" type="image/svg+xml">`, 'index.html');
-const styleText = `\n${read('style.css').replace(/<\/(style)/gi, '<\\/$1')}\n`;
+const styleText = `\n${compactCss(read('style.css')).replace(/<\/(style)/gi, '<\\/$1')}\n`;
 const scriptText = `\n${script}\n`;
 html = replaceOnce(html, PAGE_POLICY,
   `<meta http-equiv="Content-Security-Policy" content="${singlePolicy(scriptText, styleText)}">`, 'index.html');

@@ -13,7 +13,7 @@
 //
 // Contract: DEVELOPERS.md, "The page" (data-field, data-error-for, data-quantity, data-view, the
 // fragment, the file chooser) and the test hook window.doublespar = {session, redraw(),
-// applyScenario(obj), designRequest(), designShown()}, set once the page is ready.
+// applyScenario(obj), designRequest(), designShown(), convergent()}, set once the page is ready.
 
 'use strict';
 
@@ -46,6 +46,9 @@ const ELEMENT_DEFAULTS = {
 // loaded document gave.
 const NEMATICS = [['5cb', '5CB (4-cyano-4′-pentylbiphenyl)']];
 const CUSTOM_LC = 'custom';
+// A nematic's own constants (src/contract/lc_cell.rs): key, label, unit and the value they start
+// from, 5CB's (the catalogue's, its indices near 589 nm).
+const LC_CONSTANTS = [['ne', 'nₑ, along the director', '', 1.716], ['no', 'nₒ, across the director', '', 1.533], ['k11_pn', 'K11, splay', 'pN', 6.4], ['k22_pn', 'K22, twist', 'pN', 3], ['k33_pn', 'K33, bend', 'pN', 10], ['eps_parallel', 'ε∥, static, along', '', 19.7], ['eps_perpendicular', 'ε⊥, static, across', '', 6.7]];
 // The material choice of a crystal given by its three principal indices.
 const CUSTOM_PRINCIPAL = 'custom-principal';
 // The material choice of a crystal given by its own dispersion formula (formula.js).
@@ -316,13 +319,18 @@ class Card {
     this.groups.rotator = h('div', { className: 'kind-fields' }, f.angle.row);
     // Liquid-crystal cell (src/contract/lc_cell.rs).
     f.cellThickness = new Field({ key: 'thickness_um', label: 'Cell gap', unit: 'µm' });
-    f.lc = new Field({ key: 'lc', label: 'Liquid crystal', kind: 'select', options: [...NEMATICS, [CUSTOM_LC, 'custom constants (as loaded)']] });
+    f.lc = new Field({ key: 'lc', label: 'Liquid crystal', kind: 'select', options: [...NEMATICS, [CUSTOM_LC, 'custom constants']] });
+    for (const [k, label, unit, v] of LC_CONSTANTS) {
+      f[`lc_${k}`] = new Field({ key: `lc.${k}`, label, unit, step: 0.01 });
+      f[`lc_${k}`].set(v);
+    }
+    this.lcBox = h('div', { className: 'subgroup custom-indices' }, ...LC_CONSTANTS.map(([k]) => f[`lc_${k}`].row));
     f.rubbing = new Field({ key: 'rubbing_azimuth_deg', label: 'Rubbing azimuth', unit: '°', slider: ANGLE(-180, 180), hint: 'Director azimuth at the entrance face.' });
     f.twist = new Field({ key: 'twist_deg', label: 'Twist', unit: '°', slider: ANGLE(-180, 180) });
     f.pretilt = new Field({ key: 'pretilt_deg', label: 'Pretilt', unit: '°', slider: ANGLE(0, 89) });
     f.voltage = new Field({ key: 'voltage_v', label: 'Voltage', unit: 'V', slider: { min: 0, max: 10, step: 0.01 }, hint: 'RMS across the cell.' });
     this.lcCustom = undefined;
-    this.groups.lc_cell = h('div', { className: 'kind-fields' }, f.lc.row, f.cellThickness.row, f.rubbing.row, f.twist.row, f.pretilt.row, f.voltage.row);
+    this.groups.lc_cell = h('div', { className: 'kind-fields' }, f.lc.row, this.lcBox, f.cellThickness.row, f.rubbing.row, f.twist.row, f.pretilt.row, f.voltage.row);
 
     // Version 2's geometry (geometry.js).
     this.geometry = new CardGeometry();
@@ -391,6 +399,7 @@ class Card {
       if (el.hidden !== !on) el.hidden = !on;
     };
     show(this.customBox, key === 'custom');
+    show(this.lcBox, this.f.lc.value === CUSTOM_LC);
     show(this.principalBox, key === CUSTOM_PRINCIPAL);
     show(this.formula.box, key === CUSTOM_FORMULA);
     const m = state.materialList.find((x) => x.key === key);
@@ -522,7 +531,9 @@ class Card {
       o.angle_deg = f.angle.value;
     } else if (kind === 'lc_cell') {
       o.thickness_um = f.cellThickness.value;
-      o.lc = f.lc.value === CUSTOM_LC ? (this.lcCustom ?? {}) : f.lc.value;
+      // Constants as the fields hold them, over any other key a loaded document gave (sent back
+      // for the core to name).
+      o.lc = f.lc.value === CUSTOM_LC ? { ...this.lcCustom, ...Object.fromEntries(LC_CONSTANTS.map(([k]) => [k, f[`lc_${k}`].value])) } : f.lc.value;
       o.rubbing_azimuth_deg = f.rubbing.value;
       o.twist_deg = f.twist.value;
       o.pretilt_deg = f.pretilt.value;
@@ -577,9 +588,11 @@ class Card {
       f.angle.set(obj.angle_deg);
     } else if (kind === 'lc_cell') {
       const c = d.lc_cell;
-      // Constants given in the document are kept as they are and sent back unchanged.
+      // Constants given in the document fill the custom fields (a missing one stays empty for
+      // the core to name); any other key is kept and sent back.
       this.lcCustom = obj.lc && typeof obj.lc === 'object' ? obj.lc : undefined;
       f.lc.set(this.lcCustom !== undefined ? CUSTOM_LC : (obj.lc ?? c.lc));
+      if (this.lcCustom !== undefined) for (const [k] of LC_CONSTANTS) f[`lc_${k}`].set(this.lcCustom[k]);
       f.cellThickness.set(obj.thickness_um);
       f.rubbing.set(obj.rubbing_azimuth_deg ?? 0);
       f.twist.set(obj.twist_deg ?? 0);
@@ -1345,7 +1358,7 @@ function onControlEvent(ev) {
     if (field.endsWith('.kind')) {
       card.changeKind(t.value);
       renumberCards();
-    } else if (field.endsWith('.material') || field.includes('.dispersion.range_nm')) {
+    } else if (field.endsWith('.material') || field.endsWith('.lc') || field.includes('.dispersion.range_nm')) {
       card.showMaterial();
     } else if (field.endsWith('.contact')) {
       card.geometry.contactChanged();
@@ -1436,6 +1449,7 @@ async function main() {
     applyScenario,
     designRequest: state.design.hooks.designRequest,
     designShown: state.design.hooks.designShown,
+    convergent: () => ({ busy: state.convergent.busy !== null, ms: { ...state.convergent.ms } }),
   };
 }
 

@@ -29,6 +29,7 @@ import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { materialName } from './state.js';
 import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, lcResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { startCoreWorker } from './core-worker.js';
 
 const DESIGN_KINDS = [
   ['displacer', 'beam displacer'],
@@ -978,7 +979,7 @@ function setStatus(text) {
 function startDesignWorker(state) {
   let w;
   try {
-    w = new Worker('design-worker.js', { type: 'module' });
+    w = startCoreWorker();
   } catch (e) {
     designFailed(state, `The design worker could not start: ${e && e.message ? e.message : e}`);
     return;

@@ -14,14 +14,25 @@
 //                                                          run: with monte_carlo filled in)
 //                   {type: 'error', id, error: {field, message}, internal}
 //                   {type: 'failed', message}              the core could not be loaded
+//   page -> worker  {type: 'convergent', id, scenario, pixels, views}   scenario: JSON text;
+//                   views: some of 'conoscope', 'acceptance'
+//   worker -> page  {type: 'convergent', id, view, last, map: {pixels, min, max, values}}
+//                   or {type: 'convergent', id, view, last, error: {field, message}, internal}
+//                   one per view, in the order asked, `last` on the last; values a Float64Array
+//                   (transferred) row-major from the top row, NaN outside the cone
 //
 // A run is one DesignRun of the core: it reads and checks the request and solves the nominal
 // design once, then draws the Monte Carlo chunks exactly as the core does in one go (each chunk
 // from its own seeded generator; chunk size, defaults and limits are the core's), so its summary
 // is the `monte_carlo` that designJson (and `doublespar design`) gives for the same request.
 // Cancelling is the page's business: it terminates this worker.
+//
+// A convergent-light request computes the maps of the page's conoscope and acceptance views with
+// the core's convergentMap (every direction of the cone an exact plane-wave solution), for the
+// page to draw; the page keeps one request in flight and drops answers for a scenario it no longer
+// shows.
 
-import init, { DesignRun } from './pkg-design/doublespar.js';
+import init, { DesignRun, convergentMap } from './pkg-design/doublespar.js';
 
 const queue = [];
 let ready = false;
@@ -56,7 +67,30 @@ function solve(id, request) {
   }
 }
 
+function convergent(msg) {
+  const views = Array.isArray(msg.views) ? msg.views : [];
+  views.forEach((view, k) => {
+    const answer = { type: 'convergent', id: msg.id, view, last: k === views.length - 1 };
+    try {
+      const values = convergentMap(String(msg.scenario), String(view), msg.pixels >>> 0);
+      let min = Infinity;
+      let max = -Infinity;
+      for (const v of values) {
+        if (v < min) min = v;
+        if (v > max) max = v;
+      }
+      self.postMessage({ ...answer, map: { pixels: msg.pixels, min, max, values } }, [values.buffer]);
+    } catch (e) {
+      self.postMessage({ ...answer, ...asFieldError(e) });
+    }
+  });
+}
+
 function handle(msg) {
+  if (msg && msg.type === 'convergent') {
+    convergent(msg);
+    return;
+  }
   if (!msg || msg.type !== 'solve') return;
   try {
     solve(msg.id, msg.request);

@@ -30,10 +30,20 @@
 // Narrow figures (below STACK_BELOW_PX, e.g. a 240 px column) stack their views vertically, each
 // at least 9rem high (the attribute data-stacked on the element says so); the core's label
 // placement leaves out secondary labels in such small panels.
+//
+// The convergent-light views (conoscope, acceptance) are computed off the page's thread, by a
+// worker of the element's own on design-worker.js (beside this file, with pkg-design/): one
+// request at a time, the newest scenario asked for when it ends, an answer used only while the
+// element still shows the scenario it was computed for; until then the view says it is computing.
 
 import { lengthIn, lengthUnitFor } from './format.js';
 
 const CORE_URL = new URL('./pkg/doublespar.js', import.meta.url).href;
+// The convergent-light views are computed by a worker on the design build (design-worker.js and
+// pkg-design/, beside this file), started when an element first shows one.
+const WORKER_URL = new URL('./design-worker.js', import.meta.url).href;
+const CONVERGENT = ['conoscope', 'acceptance'];
+const CONVERGENT_PIXELS = 256;
 const TAG = 'spar-figure';
 const DEFAULT_VIEWS = ['side', 'end'];
 const STACK_BELOW_PX = 480; // narrower figures stack their views
@@ -182,6 +192,46 @@ class SparFigure extends HTMLElement {
   disconnectedCallback() {
     darkQuery.removeEventListener('change', this._onScheme);
     this._ro.disconnect();
+    if (this._worker) this._worker.terminate();
+    this._worker = null;
+    this._mapsText = null;
+    this._mapsBusy = false;
+  }
+
+  /** Asks the worker for the convergent-light maps of the session's scenario (see the header). */
+  _needMaps() {
+    const text = this._session.scenarioJson();
+    if (this._mapsText === text) return;
+    if (this._mapsBusy) {
+      this._mapsAgain = true;
+      return;
+    }
+    if (!this._worker) {
+      this._worker = new Worker(WORKER_URL, { type: 'module' });
+      this._worker.onmessage = (ev) => this._onMap(ev.data);
+      this._worker.onerror = (ev) => {
+        ev.preventDefault();
+        this._showError(`The convergent-light views could not be computed: ${ev.message || 'the worker stopped'}.`);
+      };
+    }
+    this._mapsText = text;
+    this._mapsBusy = true;
+    this._mapsAgain = false;
+    const views = this._views.map((v) => v.name).filter((n) => CONVERGENT.includes(n));
+    this._worker.postMessage({ type: 'convergent', id: 0, scenario: text, pixels: CONVERGENT_PIXELS, views });
+  }
+
+  _onMap(msg) {
+    if (msg?.type !== 'convergent' || !this._session) return;
+    if (this._session.scenarioJson() === this._mapsText) {
+      const { map = {}, error = {} } = msg;
+      this._session.setConvergent(msg.view, map.pixels ?? 0, map.values ?? [], map.min, map.max, error.field ?? '', error.message ?? '');
+      for (const v of this._views) if (v.name === msg.view) this._drawOne(v);
+    }
+    if (msg.last) {
+      this._mapsBusy = false;
+      if (this._mapsAgain) this._needMaps();
+    }
   }
 
   attributeChangedCallback(name, oldValue, newValue) {
@@ -230,6 +280,7 @@ class SparFigure extends HTMLElement {
     const text = this._scenarioText();
     try {
       this._result = text === null ? this._session.result() : this._session.updateJson(text);
+      this._mapsText = null; // tracing clears the session's maps
       this._showError(this._viewError);
       this.setAttribute('data-state', this._viewError ? 'error' : 'ready');
     } catch (e) {
@@ -331,6 +382,7 @@ class SparFigure extends HTMLElement {
     if (!this._session || !this._result) return;
     if (v.canvas.clientWidth === 0 || v.canvas.clientHeight === 0) return;
     try {
+      if (CONVERGENT.includes(v.name)) this._needMaps();
       this._session.draw(v.name, v.canvas, darkQuery.matches);
       v.canvas.setAttribute('aria-label', `${v.name} view of the stack`);
     } catch (e) {

@@ -58,6 +58,17 @@ export function createState({ darkQuery }) {
       printDark: false, // drawn in the light palette for printing, to go back to dark after
     },
 
+    // --- the convergent-light views (convergent.js) -------------------------------------------
+    convergent: {
+      worker: null, // the worker that computes their maps (design-worker.js), started when first opened
+      nextId: 0, // the id of the last request posted to it
+      busy: null, // the request in flight: {id, text (the scenario's JSON text), posted (ms)}
+      again: false, // the scenario changed while it was in flight: ask again when it ends
+      have: new Set(), // 'view scenario-text' of each map the session holds
+      ms: {}, // view -> ms from posting the last request to the view drawn
+      drawByName: null, // redraws one view (views.js)
+    },
+
     // --- the design panel (design-panel.js) ------------------------------------------------
     design: {
       hooks: null, // what setupDesign returns: setDesignInputs, designLinkError, designRequest, designShown

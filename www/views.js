@@ -18,6 +18,7 @@ import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth 
 import { toFieldError } from './field-error.js';
 import { materialName } from './state.js';
 import { modeLetters } from './results.js';
+import { lacksConvergent, needConvergent } from './convergent.js';
 
 
 // The side view's planes: view name, the chooser's words, the plane in the text alternative and
@@ -40,6 +41,12 @@ function folded(v) {
 function drawView(state, v) {
   const { errors } = state.views;
   if (folded(v)) return;
+  if (lacksConvergent(state, v.name)) {
+    // Its map is computed in the background; until it arrives the last picture stays.
+    needConvergent(state);
+    if (v.drawnOnce) return;
+  }
+  v.drawnOnce = true;
   try {
     state.session.draw(drawnName(v), v.canvas, state.darkQuery.matches && !state.views.printDark);
     if (v.failed) {
@@ -240,7 +247,7 @@ export function describeViews(state) {
     const w = spectrum.white_light;
     if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }
-  texts.conoscope = 'Conoscopic figure: the whole set-up\'s transmission over a 30° cone of incidence directions, each an exact plane-wave solution, black 0 and white 1; dark crosses (isogyres) and rings (isochromes) show where light is extinguished. Also as the draw command\'s view conoscope.';
+  texts.conoscope = 'Conoscopic figure: the whole set-up\'s transmission over a 30° cone of incidence directions, 256 × 256, each an exact plane-wave solution computed in the background, black 0 and white 1; dark crosses (isogyres) and rings (isochromes) show where light is extinguished. Also as the draw command\'s view conoscope.';
   texts.acceptance = crystals.length === 0
     ? 'Acceptance of the first crystal: no crystal in the stack, nothing to draw.'
     : `Acceptance of element ${crystals[0] + 1} (${describeMaterial(r.elements[crystals[0]].material)}): its retardance minus its retardance at normal incidence, in waves, over a 30° cone of incidence directions, darkest where it is least. Also as the draw command's view acceptance.`;
@@ -302,6 +309,9 @@ export function setupViews(state) {
     if (name === 'side') addPlaneChooser(state, v);
     canvas.closest('details')?.addEventListener('toggle', () => drawView(state, v));
   }
+  state.convergent.drawByName = (name) => {
+    for (const v of state.views.list) if (v.name === name) drawView(state, v);
+  };
   state.darkQuery.addEventListener('change', () => redraw(state));
   window.addEventListener('beforeprint', () => beforePrint(state));
   window.addEventListener('afterprint', () => afterPrint(state));

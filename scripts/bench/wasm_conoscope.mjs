@@ -1,8 +1,10 @@
 // The conoscopic figure in WebAssembly under Node, for scripts/bench.sh to set beside the native
 // figure (cargo bench --bench conoscope): a 256 × 256 map of scripts/bench/conoscope.json over a
-// 30° cone, in the design worker's build (opt-level 3, where a figure would be computed off the
-// page's thread) and, for the page's own build (size-tuned), the 128 × 128 figure the page's
-// `conoscope` view draws (session.scene). Medians of 9 runs; prints one JSON line.
+// 30° cone, in the design worker's build (opt-level 3), by the function the page's worker calls
+// (convergentMap; its checksum is the sum of the values inside the cone), and, for the page's own
+// build (size-tuned), the time to build the `conoscope` view's scene from such a map handed to
+// the session (session.setConvergent + session.scene), the page's share of the work. Medians
+// of 9 runs; prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
@@ -30,15 +32,27 @@ const load = async (dir) => {
   return glue;
 };
 const worker = await load('pkg-design');
-const [ms256, sum] = median(() => worker.benchConoscope(doc, 256));
+const [ms256, values] = median(() => worker.convergentMap(doc, 'conoscope', 256));
+let sum = 0;
+let min = Infinity;
+let max = -Infinity;
+for (const v of values) {
+  if (Number.isNaN(v)) continue;
+  sum += v;
+  min = Math.min(min, v);
+  max = Math.max(max, v);
+}
 const page = await load('pkg');
 const session = new page.Session();
 session.updateJson(doc);
-const [ms128] = median(() => session.scene('conoscope'));
+const [msScene] = median(() => {
+  session.setConvergent('conoscope', 256, values, min, max, '', '');
+  return session.scene('conoscope');
+});
 console.log(JSON.stringify({
   bench: 'doublespar-wasm-conoscope',
   node: process.version,
   conoscope_256_worker_build_ms: ms256,
   conoscope_checksum: sum,
-  conoscope_view_128_page_build_ms: ms128,
+  conoscope_scene_256_page_build_ms: msScene,
 }));

@@ -10,16 +10,24 @@
 //! nothing is drawn. Rings mark 10°, 20°, … of polar angle in the outside medium; lines mark the
 //! input polarization (P, when linear) and the last polarizer's axis (A). A stack this view cannot
 //! solve (faces at an angle, a general crystal) gets an empty disc with a note that says why.
+//!
+//! The picture is drawn from a map computed elsewhere as well ([`map_view`]): the page computes
+//! its maps (256 per side) in a background worker and draws them in its own module; built for
+//! WebAssembly, [`conoscope_view`] computes nothing and draws the figure without a map, with a
+//! note that it is being computed.
 
 use super::scene::{Anchor, Aspect, Item, Priority, Raster, Rect, Role, Scene};
-use crate::contract::conoscope::{ConoscopeMap, conoscope_of};
+use crate::contract::conoscope::ConoscopeMap;
 use crate::contract::scenario::{ElementKind, Polarization, Scenario};
+use crate::error::Error;
 use crate::numfmt::sig;
 use crate::optics::conoscope::Quantity;
 
 /// Largest polar angle of the drawn cone in the outside medium, degrees.
 pub const CONE_DEG: f64 = 30.0;
-/// Pixels per side of the drawn map.
+/// Pixels per side of the map computed here (the command line's; the page's worker computes its
+/// own at the size the page asks for).
+#[cfg_attr(target_arch = "wasm32", expect(dead_code))]
 pub const PIXELS: usize = 128;
 /// Where ring labels sit, as a unit direction: 65° from +x, off the usual polarizer directions
 /// (0°, 45°, 90°) whose lines would hide them.
@@ -29,15 +37,32 @@ const SHADES: f64 = 63.0;
 
 /// The conoscopic figure of `sc`: its transmission over the cone.
 pub fn conoscope_view(sc: &Scenario) -> Scene {
-    view(sc, Quantity::Transmission)
+    let quantity = Quantity::Transmission;
+    map_view(sc, quantity, computed(sc, quantity).as_ref())
 }
 
 /// The acceptance map of `sc`'s first crystal: its retardance error against direction.
 pub fn acceptance_view(sc: &Scenario) -> Scene {
-    view(sc, Quantity::RetardanceError)
+    let quantity = Quantity::RetardanceError;
+    map_view(sc, quantity, computed(sc, quantity).as_ref())
 }
 
-fn view(sc: &Scenario, quantity: Quantity) -> Scene {
+/// The map of `quantity` at [`PIXELS`] per side, computed here.
+#[cfg(not(target_arch = "wasm32"))]
+fn computed(sc: &Scenario, quantity: Quantity) -> Option<Result<ConoscopeMap, Error>> {
+    Some(crate::contract::conoscope::conoscope_of(sc, quantity, CONE_DEG, PIXELS))
+}
+
+/// The page leaves the computation to its worker ([`map_view`] draws what it computed).
+#[cfg(target_arch = "wasm32")]
+fn computed(_: &Scenario, _: Quantity) -> Option<Result<ConoscopeMap, Error>> {
+    None
+}
+
+/// The view of `quantity` for `sc` drawn from `map` (computed over [`CONE_DEG`] by
+/// [`crate::contract::conoscope::conoscope_of`]): its error as a note, and `None` (not computed
+/// yet) as a note that it is being computed.
+pub fn map_view(sc: &Scenario, quantity: Quantity, map: Option<&Result<ConoscopeMap, Error>>) -> Scene {
     let (title, what) = match quantity {
         Quantity::Transmission => ("Conoscopic figure", "transmission"),
         Quantity::RetardanceError => ("Acceptance of the first crystal", "retardance error"),
@@ -53,13 +78,13 @@ fn view(sc: &Scenario, quantity: Quantity) -> Scene {
         x1: 1.25,
         y1: 1.15,
     };
-    let note = match conoscope_of(sc, quantity, CONE_DEG, PIXELS) {
-        Ok(map) => {
-            let note = shade_note(&map);
-            scene.items.push(raster(&map));
-            note
+    let note = match map {
+        Some(Ok(map)) => {
+            scene.items.push(raster(map));
+            shade_note(map)
         }
-        Err(e) => format!("not drawn: {} ({})", e.message, e.field),
+        Some(Err(e)) => format!("not drawn: {} ({})", e.message, e.field),
+        None => "computing every direction in the background…".to_string(),
     };
     rings(&mut scene, sc.outside_index);
     polarizer_lines(&mut scene, sc);
@@ -200,6 +225,22 @@ mod tests {
         assert!(svg.contains(r#"<image data-tag="map""#), "{svg}");
         let accept = acceptance_view(&sc);
         assert!(accept.texts().iter().any(|t| t.contains("waves")));
+    }
+
+    #[test]
+    fn a_map_not_computed_yet_is_announced() {
+        let sc = Scenario::from_json_str(
+            r#"{"version": 2, "elements": [{"kind": "polarizer", "transmission_axis_deg": 90}]}"#,
+        )
+        .unwrap();
+        let scene = map_view(&sc, Quantity::Transmission, None);
+        assert!(scene.tagged("map").next().is_none());
+        assert!(
+            scene.texts().iter().any(|t| t.starts_with("computing")),
+            "{:?}",
+            scene.texts()
+        );
+        assert!(scene.tagged("ring 30°").next().is_some());
     }
 
     #[test]

@@ -7,10 +7,10 @@
 
 use crate::view::label_layout::layout;
 use crate::view::palette::Palette;
-use crate::view::scene::{Item, Point, Role, Scene, Viewport, arrow_head};
+use crate::view::scene::{Item, Point, Raster, Role, Scene, Viewport, arrow_head};
 use crate::view::svg::MARGIN_PX;
-use wasm_bindgen::JsValue;
-use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement};
+use wasm_bindgen::{Clamped, JsValue};
+use web_sys::{CanvasRenderingContext2d, HtmlCanvasElement, ImageData};
 
 /// Draws `scene` on `canvas`.
 ///
@@ -136,26 +136,48 @@ impl Painter<'_> {
                 ctx.set_line_width(1.0);
                 ctx.stroke();
             }
-            Item::Raster(r) => {
-                // One rectangle per run of equal shade, a hair wider than its cells so that no
-                // seam of background shows between runs.
-                let ([x0, y0], [x1, y1]) = r.screen_corners(vp);
-                let (cw, ch) = ((x1 - x0) / r.columns as f64, (y1 - y0) / r.rows as f64);
-                for row in 0..r.rows {
-                    for (c, len, g) in raster_runs(&r.grey, r.columns, row) {
-                        ctx.set_fill_style_str(&format!("rgb({g},{g},{g})"));
-                        ctx.fill_rect(
-                            x0 + c as f64 * cw,
-                            y0 + row as f64 * ch,
-                            len as f64 * cw + 0.5,
-                            ch + 0.5,
-                        );
-                    }
-                }
-            }
+            Item::Raster(r) => self.raster(r)?,
             Item::Polyline { .. } | Item::Dot { .. } | Item::Text { .. } | Item::Dimension { .. } => {}
         }
         Ok(())
+    }
+
+    /// Draws a grey raster: its cells as the pixels of an image (transparent where a cell has no
+    /// shade) drawn over its rectangle without smoothing, so each cell is a square of one grey.
+    /// One image instead of a rectangle per run of equal shade: a 256 × 256 map with rings has
+    /// tens of thousands of runs.
+    fn raster(&self, r: &Raster) -> Result<(), JsValue> {
+        use wasm_bindgen::JsCast;
+        let ([x0, y0], [x1, y1]) = r.screen_corners(self.vp);
+        let mut rgba = vec![0u8; r.columns * r.rows * 4];
+        for (px, g) in rgba.chunks_exact_mut(4).zip(&r.grey) {
+            if let Some(g) = *g {
+                px.copy_from_slice(&[g, g, g, 255]);
+            }
+        }
+        let (w, h) = (
+            u32::try_from(r.columns).unwrap_or(0),
+            u32::try_from(r.rows).unwrap_or(0),
+        );
+        let image = ImageData::new_with_u8_clamped_array_and_sh(Clamped(&rgba), w, h)?;
+        let tile: HtmlCanvasElement = web_sys::window()
+            .and_then(|win| win.document())
+            .ok_or_else(|| JsValue::from_str("no document"))?
+            .create_element("canvas")?
+            .dyn_into()
+            .map_err(|_| JsValue::from_str("not a canvas"))?;
+        tile.set_width(w);
+        tile.set_height(h);
+        tile.get_context("2d")?
+            .ok_or_else(|| JsValue::from_str("canvas has no 2-D context"))?
+            .dyn_into_context()?
+            .put_image_data(&image, 0.0, 0.0)?;
+        self.ctx.set_image_smoothing_enabled(false);
+        let drawn = self
+            .ctx
+            .draw_image_with_html_canvas_element_and_dw_and_dh(&tile, x0, y0, x1 - x0, y1 - y0);
+        self.ctx.set_image_smoothing_enabled(true);
+        drawn
     }
 
     /// Strokes the polyline `items[k]` and those after it of the same style as one path;
@@ -327,19 +349,4 @@ impl IntoContext for js_sys::Object {
         self.dyn_into::<CanvasRenderingContext2d>()
             .map_err(|_| JsValue::from_str("not a 2-D context"))
     }
-}
-
-/// The runs of equal shade in row `row` of a raster of `columns` cells: (first column, length,
-/// shade), cells with no shade left out. Renderers draw each run as one rectangle.
-fn raster_runs(grey: &[Option<u8>], columns: usize, row: usize) -> Vec<(usize, usize, u8)> {
-    let mut runs: Vec<(usize, usize, u8)> = Vec::new();
-    let cells = grey.iter().skip(row * columns).take(columns);
-    for (c, g) in cells.enumerate() {
-        let Some(g) = *g else { continue };
-        match runs.last_mut() {
-            Some((start, len, shade)) if *shade == g && *start + *len == c => *len += 1,
-            _ => runs.push((c, 1, g)),
-        }
-    }
-    runs
 }

@@ -4,9 +4,12 @@
 //! its trace, takes a new scenario as JSON text or a plain JS object (read through
 //! serde-wasm-bindgen), returns the result as a JS object, and draws any view on a canvas. A bad scenario returns
 //! `{field, message}` and leaves the last good state in place, so the page keeps its picture.
+//! The convergent-light views are computed by the page's worker ([`convergent_map`], in the
+//! worker's build) and handed to the session ([`Session::set_convergent`]), which draws them.
 //! A panic hook writes any bug's message into the page (element `#panic`) instead of leaving a
 //! dead canvas.
 
+use crate::contract::conoscope::{ConoscopeMap, MAX_PIXELS};
 #[cfg(feature = "design-worker")]
 use crate::contract::fields::Fields;
 #[cfg(feature = "design-worker")]
@@ -15,7 +18,10 @@ use crate::contract::result::{TraceResult, trace_scenario as trace};
 use crate::contract::scenario::Scenario;
 use crate::design::statistics as statistics_summary;
 use crate::error::{Error, in_range};
+use crate::optics::conoscope::Quantity;
+use crate::view::conoscope::{CONE_DEG, map_view};
 use crate::view::palette::Palette;
+use crate::view::scene::Scene;
 use crate::view::svg;
 mod canvas;
 #[cfg(feature = "design-worker")]
@@ -283,22 +289,32 @@ pub fn bench_splitter(doc: &str, n: usize, whole: bool) -> Result<f64, JsValue> 
     Ok(run(&stack, n, if whole { Workload::Trace } else { Workload::Split }))
 }
 
-/// Benchmark hook: the conoscopic figure of the scenario `doc` (JSON text;
-/// scripts/bench/conoscope.json) at `pixels` per side over a 30° cone
-/// ([`crate::contract::conoscope::conoscope_of`]), returning the sum of its values as a checksum
-/// (scripts/bench.sh runs it under Node beside the native build).
+/// The quantity of a convergent-light view, and its slot in a [`Session`].
+fn convergent_view(view: &str) -> Option<(Quantity, usize)> {
+    match view {
+        "conoscope" => Some((Quantity::Transmission, 0)),
+        "acceptance" => Some((Quantity::RetardanceError, 1)),
+        _ => None,
+    }
+}
+
+/// The map of the convergent-light view `view` (`conoscope` or `acceptance`) for the scenario
+/// `doc` (JSON text) over the views' 30° cone at `pixels` per side, for the page's worker: a
+/// Float64Array row-major from the top row, NaN outside the cone (the page hands it, with its
+/// smallest and largest value, to [`Session::set_convergent`]).
 ///
 /// # Errors
-/// The scenario's first error, naming its field.
+/// `{field, message}`: `view` for another view, `conoscope.pixels` outside 1 to 512, the
+/// scenario's first error, or the element convergent light is not solved for.
 #[cfg(feature = "design-worker")]
-#[wasm_bindgen(js_name = benchConoscope)]
-pub fn bench_conoscope(doc: &str, pixels: usize) -> Result<f64, JsValue> {
+#[wasm_bindgen(js_name = convergentMap)]
+pub fn convergent_map(doc: &str, view: &str, pixels: usize) -> Result<Vec<f64>, JsValue> {
     use crate::contract::conoscope::conoscope_of;
-    use crate::optics::conoscope::Quantity;
+    let (quantity, _) = Session::convergent_slot(view)?;
     let map = Scenario::from_json_str(doc)
-        .and_then(|s| conoscope_of(&s, Quantity::Transmission, 30.0, pixels))
+        .and_then(|s| conoscope_of(&s, quantity, CONE_DEG, pixels))
         .map_err(js_error)?;
-    Ok(map.values.iter().flatten().sum())
+    Ok(map.values.iter().map(|v| v.unwrap_or(f64::NAN)).collect())
 }
 
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
@@ -342,11 +358,13 @@ pub fn draw_histogram(
     )
 }
 
-/// A scenario and its trace, kept between edits.
+/// A scenario and its trace, kept between edits, with the maps of its convergent-light views
+/// (`conoscope`, `acceptance`) once the page's worker has computed them.
 #[wasm_bindgen]
 pub struct Session {
     scenario: Scenario,
     result: TraceResult,
+    convergent: [Option<Result<ConoscopeMap, Error>>; 2],
 }
 
 /// The result as an edit hands it to the page: everything but each ray's `points_mm` polyline,
@@ -371,7 +389,24 @@ impl Session {
         let out = to_js_without_polylines(&mut result)?;
         self.scenario = scenario;
         self.result = result;
+        self.convergent = [None, None];
         Ok(out)
+    }
+
+    /// The scene of a view: a convergent-light view from the map given to it (or a note that
+    /// it is being computed), any other as [`views::build`] makes it. Not inlined: its three
+    /// callers share it (the module's size).
+    #[inline(never)]
+    fn view_scene(&self, view: &str) -> Result<Scene, Error> {
+        match convergent_view(view) {
+            Some((quantity, slot)) => Ok(map_view(&self.scenario, quantity, self.convergent[slot].as_ref())),
+            None => views::build(view, &self.scenario, &self.result),
+        }
+    }
+
+    /// The slot of a convergent-light view.
+    fn convergent_slot(view: &str) -> Result<(Quantity, usize), JsValue> {
+        convergent_view(view).ok_or_else(|| js_error(Error::new("view", "expected conoscope or acceptance")))
     }
 }
 
@@ -385,7 +420,11 @@ impl Session {
     pub fn new() -> Result<Session, JsValue> {
         let scenario = Scenario::from_json_str(DEMO).map_err(js_error)?;
         let result = trace(&scenario).map_err(js_error)?;
-        Ok(Session { scenario, result })
+        Ok(Session {
+            scenario,
+            result,
+            convergent: [None, None],
+        })
     }
 
     /// Traces a scenario given as JSON text and keeps it. Returns the result object.
@@ -430,7 +469,7 @@ impl Session {
     /// # Errors
     /// `{field: "view", message}` for an unknown view.
     pub fn scene(&self, view: &str) -> Result<JsValue, JsValue> {
-        to_js(&views::build(view, &self.scenario, &self.result).map_err(js_error)?)
+        to_js(&self.view_scene(view).map_err(js_error)?)
     }
 
     /// Draws a view on a canvas, in the dark or light palette.
@@ -438,9 +477,52 @@ impl Session {
     /// # Errors
     /// `{field: "view", message}` for an unknown view; a JavaScript error if the canvas fails.
     pub fn draw(&self, view: &str, canvas: &HtmlCanvasElement, dark: bool) -> Result<(), JsValue> {
-        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let scene = self.view_scene(view).map_err(js_error)?;
         let palette = Palette::for_scheme(dark);
         canvas::draw(&scene, canvas, &palette)
+    }
+
+    /// Gives the convergent-light view `view` (`conoscope` or `acceptance`) what the page's worker
+    /// found for the session's scenario: its map as [`convergent_map`] returns it (`pixels` per
+    /// side, `values` row-major from the top row with NaN outside the cone, their `min` and
+    /// `max`), or, when `message` is not empty, the error `{field, message}` it met. Drawing the
+    /// view then shows it, until the next scenario is traced.
+    ///
+    /// # Errors
+    /// `{field, message}`: `view` for another view; `conoscope.pixels` when `values` is not
+    /// `pixels` × `pixels` long or `pixels` is outside 1 to 512.
+    #[wasm_bindgen(js_name = setConvergent)]
+    #[expect(clippy::too_many_arguments)]
+    pub fn set_convergent(
+        &mut self,
+        view: &str,
+        pixels: usize,
+        values: &[f64],
+        min: f64,
+        max: f64,
+        field: &str,
+        message: &str,
+    ) -> Result<(), JsValue> {
+        let (quantity, slot) = Session::convergent_slot(view)?;
+        if !message.is_empty() {
+            self.convergent[slot] = Some(Err(Error::new(field, message)));
+            return Ok(());
+        }
+        if !(1..=MAX_PIXELS).contains(&pixels) || pixels.checked_mul(pixels) != Some(values.len()) {
+            return Err(js_error(Error::new(
+                "conoscope.pixels",
+                format!("expected 1 to {MAX_PIXELS} pixels per side and that many squared values"),
+            )));
+        }
+        self.convergent[slot] = Some(Ok(ConoscopeMap {
+            quantity,
+            cone_deg: CONE_DEG,
+            pixels,
+            values: values.iter().map(|v| v.is_finite().then_some(*v)).collect(),
+            min,
+            max,
+        }));
+        Ok(())
     }
 
     /// The data of a plot view as `{title, x_label, x_unit, y_label, y_unit, points, current,
@@ -462,7 +544,7 @@ impl Session {
     pub fn svg(&self, view: &str, width: f64, height: f64, dark: bool) -> Result<String, JsValue> {
         let width = in_range("width", width, 50.0, 10_000.0).map_err(js_error)?;
         let height = in_range("height", height, 50.0, 10_000.0).map_err(js_error)?;
-        let scene = views::build(view, &self.scenario, &self.result).map_err(js_error)?;
+        let scene = self.view_scene(view).map_err(js_error)?;
         let palette = Palette::for_scheme(dark);
         Ok(svg::to_svg(&scene, width, height, &palette))
     }

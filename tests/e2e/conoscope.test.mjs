@@ -1,8 +1,10 @@
-// End-to-end tests of the conoscopic figure on the page: folded away until opened (it solves
-// 16,384 directions), drawn with the first crystal's acceptance map when its disclosure is
-// opened and described for a screen reader,
-// and its map shade for shade the command line's `doublespar draw conoscope` of the same
-// document (whose SVG embeds the map as a PNG, decoded here with node's zlib).
+// End-to-end tests of the conoscopic figure on the page: folded away until opened, then computed
+// at 256 × 256 directions in the page's worker (design-worker.js) and drawn with the first
+// crystal's acceptance map, described for a screen reader; the worker's map drawn by the page
+// equals, shade for shade, the command line's `doublespar draw conoscope` of the same document
+// at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
+// edit wins over an answer under way, the figure says it is computing, and a set-up the figure
+// cannot be solved for names its element; an embedded <spar-figure> computes its own in a worker.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -11,7 +13,9 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawnSync } from 'node:child_process';
 import zlib from 'node:zlib';
-import { useBrowser, withPage as openAt, canvasStats, drawn, pageScenario, CLI } from './support.mjs';
+import fs from 'node:fs';
+import path from 'node:path';
+import { useBrowser, withPage as openAt, canvasStats, drawn, pageScenario, CLI, ROOT } from './support.mjs';
 
 const env = useBrowser({ cli: true });
 const withPage = (address, body) => openAt(env, address, ({ page }) => body(page));
@@ -47,26 +51,129 @@ function cliShades(scenario) {
   return { width, height, shades };
 }
 
-test('the conoscopic figure is drawn when opened, described, and equals the command line\'s', { timeout: 120000 }, async () => {
+/** Waits until the page's convergent-light maps are computed and drawn. */
+async function settled(page, timeout = 60000) {
+  await page.waitForFunction(() => {
+    const c = window.doublespar.convergent();
+    const fig = document.getElementById('conoscope-open').closest('figure');
+    return !c.busy && fig.getAttribute('aria-busy') === 'false' && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined;
+  }, null, { timeout });
+}
+
+/**
+ * Asks a worker of the test's own (the page's script, design-worker.js) for the map of `view` of
+ * the session's scenario at `pixels`, hands it to the session and returns the scene's raster.
+ */
+async function ownMap(page, view, pixels) {
+  return page.evaluate(async ([view, pixels]) => {
+    const w = new Worker('design-worker.js', { type: 'module' });
+    const text = window.doublespar.session.scenarioJson();
+    const answer = await new Promise((resolve) => {
+      w.onmessage = (ev) => { if (ev.data.type === 'convergent') resolve(ev.data); };
+      w.postMessage({ type: 'convergent', id: 1, scenario: text, pixels, views: [view] });
+    });
+    w.terminate();
+    if (answer.error) return { error: answer.error };
+    const m = answer.map;
+    window.doublespar.session.setConvergent(view, m.pixels, m.values, m.min, m.max, '', '');
+    return window.doublespar.session.scene(view).items.find((i) => i.type === 'raster');
+  }, [view, pixels]);
+}
+
+test('the conoscopic figure is computed in the worker when opened, described, and equals the command line\'s', { timeout: 180000 }, async () => {
   await withPage('/', async (page) => {
     const stats = async () => (await page.evaluate(canvasStats)).find((s) => s.view === 'conoscope');
     assert.equal(drawn(await stats()), false, 'folded away, it is not drawn');
+    assert.deepEqual((await page.evaluate(() => window.doublespar.convergent())).ms, {}, 'nor computed');
     await page.click('#conoscope-open > summary');
     await page.waitForFunction(() => document.getElementById('conoscope-open').open);
+    await settled(page);
     const shown = await stats();
     assert.ok(drawn(shown), `the figure is drawn: ${JSON.stringify(shown)}`);
-    assert.match(shown.label, /^Conoscopic figure: .*30° cone/);
+    assert.match(shown.label, /^Conoscopic figure: .*30° cone of incidence directions, 256 × 256/);
     const acceptance = (await page.evaluate(canvasStats)).find((s) => s.view === 'acceptance');
     assert.ok(drawn(acceptance), `the acceptance map is drawn: ${JSON.stringify(acceptance)}`);
     assert.match(acceptance.label, /^Acceptance of element 1 .*retardance/);
+    assert.match(await page.textContent('#convergent-status'), /256 × 256 directions computed in \d+ ms/);
 
     const scene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
     const map = scene.items.find((i) => i.type === 'raster');
     assert.ok(map, 'the scene holds the map');
-    const cli = cliShades(await pageScenario(page));
-    assert.equal(cli.width, map.columns);
-    assert.equal(cli.height, map.rows);
-    assert.deepEqual(map.grey, cli.shades, 'every shade as the command line draws it');
+    assert.deepEqual([map.columns, map.rows], [256, 256]);
     assert.ok(map.grey.some((g) => g === null) && map.grey.some((g) => g !== null));
+    // Shade for shade the command line's figure, computed by the worker at its size.
+    const cli = cliShades(await pageScenario(page));
+    const own = await ownMap(page, 'conoscope', cli.width);
+    assert.equal(cli.height, own.rows);
+    assert.deepEqual(own.grey, cli.shades, 'every shade as the command line draws it');
+    // The SVG export holds the map.
+    const svg = await page.evaluate(() => window.doublespar.session.svg('conoscope', 400, 420, false));
+    assert.match(svg, /<image data-tag="map"/);
   });
+});
+
+test('a newer edit wins over an answer under way, the figure says it is computing, and errors name their element', { timeout: 180000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('#conoscope-open > summary');
+    await settled(page);
+    const base = await pageScenario(page);
+    const plate = (mm) => ({ ...base, elements: base.elements.map((e, i) => (i === 0 ? { ...e, thickness_mm: mm } : e)) });
+    // Two edits in a row: the first is under way when the second comes.
+    const during = await page.evaluate(([a, b]) => {
+      window.doublespar.applyScenario(a);
+      const fig = document.getElementById('conoscope-open').closest('figure');
+      const state = { busy: fig.getAttribute('aria-busy'), status: document.getElementById('convergent-status').textContent };
+      window.doublespar.applyScenario(b);
+      return state;
+    }, [plate(0.5), plate(3)]);
+    assert.equal(during.busy, 'true');
+    assert.match(during.status, /^Computing 256 × 256 directions/);
+    await settled(page);
+    assert.equal((await pageScenario(page)).elements[0].thickness_mm, 3);
+    const drawnMap = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.find((i) => i.type === 'raster');
+    const fresh = await ownMap(page, 'conoscope', 256);
+    assert.deepEqual(drawnMap.grey, fresh.grey, 'the map drawn is the last edit\'s');
+
+    // A crystal convergent light is not solved for: the figure names it.
+    await page.evaluate(() => window.doublespar.applyScenario({
+      version: 2, elements: [{ kind: 'crystal', material: 'ktp', thickness_mm: 1, axis: { tilt_deg: 0, azimuth_deg: 0 } }],
+    }));
+    await settled(page);
+    const texts = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.filter((i) => i.type === 'text').map((i) => i.text);
+    assert.ok(texts.some((t) => t.includes('not drawn') && t.includes('elements[0]')), JSON.stringify(texts));
+  });
+});
+
+test('an embedded figure (<spar-figure>) computes its conoscopic view in a worker of its own', { timeout: 180000 }, async () => {
+  const doc = JSON.parse(fs.readFileSync(path.join(ROOT, 'scripts', 'bench', 'conoscope.json'), 'utf8'));
+  await openAt(env, '/embed-example.html', async ({ page }) => {
+    await page.evaluate(async (doc) => {
+      const el = document.createElement('spar-figure');
+      el.id = 'fig-conoscope';
+      el.setAttribute('views', 'conoscope');
+      el.setAttribute('scenario', JSON.stringify(doc));
+      el.style.cssText = 'display: block; width: 400px; height: 420px';
+      document.body.append(el);
+      await el.ready;
+    }, doc);
+    await page.waitForFunction(() => document.getElementById('fig-conoscope').session.scene('conoscope').items.some((i) => i.type === 'raster'), null, { timeout: 60000, polling: 250 });
+    const embedded = await page.evaluate(() => document.getElementById('fig-conoscope').session.scene('conoscope').items.find((i) => i.type === 'raster'));
+    assert.deepEqual([embedded.columns, embedded.rows], [256, 256]);
+    // The worker's values for the same text, shaded as the view's note says (black 0, white 1,
+    // 64 shades): the embedded picture is that map.
+    const values = await page.evaluate(async () => {
+      const w = new Worker('design-worker.js', { type: 'module' });
+      const text = document.getElementById('fig-conoscope').session.scenarioJson();
+      const answer = await new Promise((resolve) => {
+        w.onmessage = (ev) => { if (ev.data.type === 'convergent') resolve(ev.data); };
+        w.postMessage({ type: 'convergent', id: 1, scenario: text, pixels: 256, views: ['conoscope'] });
+      });
+      w.terminate();
+      return Array.from(answer.map.values);
+    });
+    const shades = values.map((v) => (Number.isNaN(v) ? null : Math.round(Math.round(Math.min(1, Math.max(0, v)) * 63) * 255 / 63)));
+    assert.deepEqual(embedded.grey, shades, 'the embedded figure is the worker\'s map');
+    const stats = (await page.evaluate(canvasStats, { host: '#fig-conoscope' })).find((s) => s.view === 'conoscope');
+    assert.ok(drawn(stats), `the embedded figure is drawn: ${JSON.stringify(stats)}`);
+  }, { ready: false });
 });

@@ -2,7 +2,8 @@
 // moving its voltage changes the reported retardance exactly as the command line's trace of the
 // same document gives it, the retardance-against-voltage plot and the side view's director are
 // drawn, Undo takes the voltage back, and a bad voltage is named beside its field with the entry
-// kept.
+// kept; custom nematic constants are edited in their own fields, checked against the
+// Freedericksz threshold formula, with a bad constant named beside its field.
 //
 // Run: `cd tests/e2e && node --test lc-cell.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -62,5 +63,39 @@ test('a bad voltage is named beside its field and nothing entered is lost', { ti
     assert.ok(msg.length > 0, msg);
     assert.equal(await page.inputValue(`input.num[data-field="elements[${i}].voltage_v"]`), '-3', 'the bad voltage stays for correction');
     assert.equal(await page.inputValue(`input.num[data-field="elements[${i}].thickness_um"]`), '7', 'the thickness is kept');
+  });
+});
+
+test('custom nematic constants are edited on the page: the threshold follows K11 as the Freedericksz formula says, and a bad constant is named beside its field', { timeout: 120000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('button[data-add="lc_cell"]');
+    const i = cellIndex(await waitScenario(page, (s) => cellIndex(s) >= 0, 'a cell in the stack'));
+    const field = (k) => `input.num[data-field="elements[${i}].lc.${k}"]`;
+    assert.equal(await page.isVisible(field('k11_pn')), false, 'the constants are folded away for a catalogue nematic');
+    await page.selectOption(`[data-field="elements[${i}].lc"]`, 'custom');
+    const custom = await waitScenario(page, (s) => typeof s.elements[i]?.lc === 'object', 'custom constants in the scenario');
+    assert.deepEqual(Object.keys(custom.elements[i].lc).sort(), ['eps_parallel', 'eps_perpendicular', 'k11_pn', 'k22_pn', 'k33_pn', 'ne', 'no']);
+    assert.equal(await page.isVisible(field('k11_pn')), true, 'the constants are shown');
+
+    await enterValue(page, field('k11_pn'), '12.5');
+    const sc = await waitScenario(page, (s) => s.elements[i]?.lc?.k11_pn === 12.5, 'K11 at 12.5 pN');
+    const shown = await page.evaluate((k) => window.doublespar.session.result().elements[k], i);
+    const cli = cliTrace(sc).elements[i];
+    assert.ok(Math.abs(shown.retardance_waves - cli.retardance_waves) <= 1e-12 * Math.abs(cli.retardance_waves),
+      `page ${shown.retardance_waves}, command line ${cli.retardance_waves}`);
+    // Freedericksz threshold of an untwisted cell, V_th = π √(K11/(ε0 Δε)) (V. Freedericksz and
+    // V. Zolina, Trans. Faraday Soc. 29, 919 (1933); de Gennes & Prost, The Physics of Liquid
+    // Crystals, §3.2), ε0 = 8.8541878128e-12 F/m (CODATA 2018).
+    const lc = sc.elements[i].lc;
+    assert.equal(sc.elements[i].twist_deg, 0);
+    const vth = Math.PI * Math.sqrt(12.5e-12 / (8.8541878128e-12 * (lc.eps_parallel - lc.eps_perpendicular)));
+    assert.ok(Math.abs(shown.threshold_voltage_v - vth) <= 1e-12 * vth, `threshold ${shown.threshold_voltage_v} V, formula ${vth} V`);
+
+    // ε⊥ above ε∥: the core names the constant, beside its field; the entry stays.
+    await enterValue(page, field('eps_perpendicular'), '25');
+    const msg = await waitError(page, `elements[${i}].lc.eps_parallel`);
+    assert.match(msg, /eps_perpendicular/);
+    assert.equal(await page.inputValue(field('eps_perpendicular')), '25', 'the entry stays for correction');
+    assert.equal(await page.inputValue(field('k11_pn')), '12.5', 'the other constants are kept');
   });
 });

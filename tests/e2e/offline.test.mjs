@@ -107,6 +107,18 @@ test('the single file works from file:// with no network under its own strict CS
       .catch(async () => assert.fail(`the design panel is ${await page.evaluate(() => document.getElementById('design').dataset.state)}: ${await page.textContent('#design-status')}`));
     const n = await page.getAttribute('[data-quantity="design.monte_carlo.n"]', 'data-value');
     assert.ok(Number(n) > 0, `the Monte Carlo summary is shown (n = ${n})`);
+
+    // The convergent-light views: computed in a worker of their own (from the same inline code)
+    // when their disclosure opens, and drawn.
+    await page.click('#conoscope-open > summary');
+    await page.waitForFunction(() => {
+      const c = window.doublespar.convergent();
+      return !c.busy && c.ms.conoscope !== undefined && c.ms.acceptance !== undefined;
+    }, null, { timeout: 60000 });
+    const map = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.find((i) => i.type === 'raster');
+    assert.deepEqual([map?.columns, map?.rows], [256, 256], 'the 256 × 256 map is drawn');
+    const figure = (await page.evaluate(canvasStats)).find((s) => s.view === 'conoscope');
+    assert.ok(drawn(figure), `the conoscopic figure is drawn (${figure.differing} of ${figure.total} pixels)`);
   });
 });
 

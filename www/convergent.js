@@ -1,0 +1,110 @@
+// Doublespar page: the convergent-light views, `conoscope` (the set-up's transmission over a 30°
+// cone) and `acceptance` (the first crystal's retardance error over it). Each is a map of
+// 256 × 256 directions, every one an exact plane-wave solution, too
+// much for the page's main thread: the page's module does not carry that computation. A worker on
+// the design build of the core (core-worker.js, design-worker.js: its `convergent` message)
+// computes the maps; the page hands each to its session (session.setConvergent, with
+// the map or the error and the field it names), which draws the view as any other (and
+// exports it as SVG).
+//
+// When: only while the views' disclosure is open (views.js asks through needConvergent when it
+// draws an open view whose map the session lacks; tracing a new scenario clears the session's
+// maps). One request is in flight at a time; edits meanwhile mark it stale, and when its last
+// answer arrives the newest scenario is asked for. An answer is used only if the session still
+// shows the scenario it was computed for (compared as the session's own JSON text), so a newer
+// edit always wins. While a map is computed the view keeps its last picture (or, the first time,
+// its rings and a note), the figure is aria-busy and a status line says so.
+//
+// Contract: views.js sets state.convergent.drawByName(name) (redraws one view) and calls
+// lacksConvergent and needConvergent; the test hook reads state.convergent's busy and ms (for
+// each view, ms from posting the last request to the view drawn).
+
+import { setAttr, setText } from './dom.js';
+import { startCoreWorker } from './core-worker.js';
+
+const PIXELS = 256;
+const VIEWS = ['conoscope', 'acceptance'];
+
+/**
+ * Whether `name` is a view the worker computes whose map the session lacks (tracing a scenario
+ * clears the session's maps: a map is the session's while it shows the text it was computed for).
+ */
+export function lacksConvergent(state, name) {
+  return VIEWS.includes(name) && !state.convergent.have.has(`${name} ${state.session.scenarioJson()}`);
+}
+
+function setBusy(busy, text) {
+  const figure = document.getElementById('conoscope-open').closest('figure');
+  setAttr(figure, 'aria-busy', String(busy));
+  setText(document.getElementById('convergent-status'), text);
+}
+
+/** Ends the worker (a new one starts with the next request) and says why. */
+function failed(c, why) {
+  c.worker?.terminate();
+  c.worker = c.busy = null;
+  setBusy(false, `Convergent light could not be computed: ${why}`);
+}
+
+function startWorker(state) {
+  const c = state.convergent;
+  const w = startCoreWorker();
+  w.onmessage = (ev) => w === c.worker && onAnswer(state, ev.data);
+  w.onerror = (ev) => {
+    ev.preventDefault();
+    if (w === c.worker) failed(c, ev.message || 'the worker stopped');
+  };
+  return (c.worker = w);
+}
+
+/**
+ * Asks the worker for the maps of the session's scenario, unless a request is in flight (then it
+ * is asked for when that one ends, if the scenario changed) or the disclosure is closed.
+ */
+export function needConvergent(state) {
+  const c = state.convergent;
+  if (!document.getElementById('conoscope-open').open) return;
+  const text = state.session.scenarioJson();
+  if (c.busy) {
+    c.again ||= c.busy.text !== text;
+    return;
+  }
+  let w;
+  try {
+    w = c.worker ?? startWorker(state);
+  } catch (e) {
+    failed(c, e?.message ?? e);
+    return;
+  }
+  c.have.clear();
+  c.nextId += 1;
+  c.busy = { id: c.nextId, text, posted: performance.now() };
+  c.again = false;
+  setBusy(true, `Computing ${PIXELS} × ${PIXELS} directions in the background…`);
+  w.postMessage({ type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, views: VIEWS });
+}
+
+function onAnswer(state, msg) {
+  const c = state.convergent;
+  const { busy } = c;
+  if (msg?.type !== 'convergent' || msg.id !== busy?.id) return;
+  const current = state.session.scenarioJson() === busy.text;
+  if (current) {
+    const { map = {}, error = {} } = msg;
+    try {
+      state.session.setConvergent(msg.view, map.pixels ?? 0, map.values ?? [], map.min, map.max, error.field ?? '', error.message ?? '');
+    } catch (e) {
+      failed(c, e?.message ?? e);
+      return;
+    }
+    c.have.add(`${msg.view} ${busy.text}`);
+    c.drawByName(msg.view);
+    c.ms[msg.view] = performance.now() - busy.posted;
+  }
+  if (msg.internal) failed(c, msg.error.message);
+  else if (msg.last) {
+    c.busy = null;
+    if (c.again || !current) needConvergent(state);
+    if (!c.busy) setBusy(false, current ? `${PIXELS} × ${PIXELS} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
+  }
+}
