@@ -80,7 +80,10 @@ export function needConvergent(state) {
   c.nextId += 1;
   c.busy = { id: c.nextId, text, posted: performance.now() };
   c.again = false;
-  setBusy(true, `Computing ${PIXELS} × ${PIXELS} directions in the background…`);
+  // A set-up with a liquid-crystal cell is computed at fewer directions (the core's cap): the
+  // status names what was computed once the maps arrive.
+  c.pixels = 0;
+  setBusy(true, `Computing up to ${PIXELS} × ${PIXELS} directions in the background…`);
   w.postMessage({ type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, views: VIEWS });
 }
 
@@ -97,6 +100,7 @@ function onAnswer(state, msg) {
       failed(c, e?.message ?? e);
       return;
     }
+    c.pixels = Math.max(c.pixels, map.pixels ?? 0);
     c.have.add(`${msg.view} ${busy.text}`);
     c.drawByName(msg.view);
     c.ms[msg.view] = performance.now() - busy.posted;
@@ -105,6 +109,7 @@ function onAnswer(state, msg) {
   else if (msg.last) {
     c.busy = null;
     if (c.again || !current) needConvergent(state);
-    if (!c.busy) setBusy(false, current ? `${PIXELS} × ${PIXELS} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
+    const n = c.pixels || PIXELS;
+    if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
   }
 }

@@ -79,7 +79,10 @@ function convergent(msg) {
         if (v < min) min = v;
         if (v > max) max = v;
       }
-      self.postMessage({ ...answer, map: { pixels: msg.pixels, min, max, values } }, [values.buffer]);
+      // The core may compute fewer directions than asked (a set-up with a liquid-crystal cell):
+      // the map's side is that of its values.
+      const pixels = Math.round(Math.sqrt(values.length));
+      self.postMessage({ ...answer, map: { pixels, min, max, values } }, [values.buffer]);
     } catch (e) {
       self.postMessage({ ...answer, ...asFieldError(e) });
     }

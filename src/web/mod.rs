@@ -299,9 +299,10 @@ fn convergent_view(view: &str) -> Option<(Quantity, usize)> {
 }
 
 /// The map of the convergent-light view `view` (`conoscope` or `acceptance`) for the scenario
-/// `doc` (JSON text) over the views' 30° cone at `pixels` per side, for the page's worker: a
-/// Float64Array row-major from the top row, NaN outside the cone (the page hands it, with its
-/// smallest and largest value, to [`Session::set_convergent`]).
+/// `doc` (JSON text) over the views' 30° cone at `pixels` per side (fewer for a set-up with a
+/// liquid-crystal cell: the core's cap, so the map's side is the square root of its length), for
+/// the page's worker: a Float64Array row-major from the top row, NaN outside the cone (the page
+/// hands it, with its smallest and largest value, to [`Session::set_convergent`]).
 ///
 /// # Errors
 /// `{field, message}`: `view` for another view, `conoscope.pixels` outside 1 to 512, the
