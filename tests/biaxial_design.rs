@@ -7,11 +7,20 @@
 //! between D and E = ε⁻¹D of the in-plane wave, and the Poynting vector of the general 4×4 mode
 //! solver) to 1e-12; the crystals' indices against the cited dispersion formulas evaluated here by
 //! hand; a KTP half-wave plate's thickness against the textbook L = λ / (2 Δn).
+//!
+//! A tilt-tuned biaxial plate (`tilt-tuning` with `cut`): its retardance at the found tilt and
+//! along its curve against the independent 4×4 (Berreman) solver of tests/common/berreman.rs on
+//! the unmounted plate lit at the equivalent oblique incidence, to 1e-9 waves; a plate sized by
+//! its order against the hand-evaluated formula; two equal principal indices against the
+//! uniaxial answer.
 
 use doublespar::{
     Anisotropic, ElementReport, Scenario, Travel, general_modes, orientation, solve_design_str, trace_scenario,
 };
 use nalgebra::{Matrix3, Vector3};
+
+mod common;
+use common::berreman::{berreman, eigenvalues};
 use serde_json::{Value, json};
 
 fn design(doc: &str) -> Value {
@@ -431,9 +440,24 @@ fn bad_biaxial_requests_name_their_field() {
             "material",
             "not several",
         ),
+        (
+            r#"{"kind": "tilt-tuning", "material": "ktp", "thickness_mm": 0.5, "retardance_waves": 0.25, "cut": "w"}"#,
+            "cut",
+            "expected x, y or z",
+        ),
+        (
+            r#"{"kind": "tilt-tuning", "material": "quartz", "thickness_mm": 0.5, "retardance_waves": 0.25, "cut": "y"}"#,
+            "cut",
+            "biaxial",
+        ),
+        (
+            r#"{"kind": "tilt-tuning", "nx": 1.5, "ny": 1.6, "nz": 1.6, "cut": "x", "thickness_mm": 0.5, "retardance_waves": 0.25}"#,
+            "cut",
+            "no birefringence",
+        ),
         // Solvers that stay uniaxial say so on the crystal's field.
         (
-            r#"{"kind": "tilt-tuning", "material": "ktp", "thickness_mm": 0.5, "retardance_waves": 0.25}"#,
+            r#"{"kind": "recombiner", "material": "ktp", "length_mm": 8}"#,
             "material",
             "uniaxial",
         ),
@@ -441,5 +465,107 @@ fn bad_biaxial_requests_name_their_field() {
         let e = solve_design_str(doc).expect_err(doc);
         assert_eq!(e.field, field, "{doc}: {e}");
         assert!(e.message.contains(words), "{doc}: {e}");
+    }
+}
+
+/// The retardance (waves) of the unmounted plate of an answer lit at polar `t_deg` from azimuth
+/// `az_deg`: the two forward eigenvalues q_z of the 4×4 system with ε = R diag(n²) Rᵀ, Γ =
+/// (L/λ)(q_z,slow − q_z,fast) (Berreman, J. Opt. Soc. Am. 62, 502 (1972)).
+fn berreman_retardance_waves(answer: &Value, t_deg: f64, az_deg: f64) -> f64 {
+    let axes = &answer["scenario"]["elements"][0]["axes"];
+    let r: Matrix3<f64> = orientation(
+        num(axes, "/tilt_deg").to_radians(),
+        num(axes, "/azimuth_deg").to_radians(),
+        num(axes, "/roll_deg").to_radians(),
+    );
+    let n: Vec<f64> = (0..3)
+        .map(|k| num(answer, &format!("/principal_indices/{k}")))
+        .collect();
+    let eps = r * Matrix3::from_diagonal(&Vector3::new(n[0] * n[0], n[1] * n[1], n[2] * n[2])) * r.transpose();
+    let (t, a) = (t_deg.to_radians(), az_deg.to_radians());
+    let q = eigenvalues(&berreman(t.sin() * a.cos(), t.sin() * a.sin(), &eps));
+    let mut forward: Vec<f64> = q.iter().filter(|z| z.re > 0.0).map(|z| z.re).collect();
+    assert_eq!(forward.len(), 2, "{q:?}");
+    forward.sort_by(f64::total_cmp);
+    let l_over_lambda = num(answer, "/thickness_at_temperature_mm") / (num(answer, "/scenario/wavelength_nm") * 1e-6);
+    l_over_lambda * (forward[1] - forward[0])
+}
+
+#[test]
+fn a_tilt_tuned_biaxial_plate_retards_as_the_oblique_plate_of_the_wave_equation() {
+    for doc in [
+        r#""material": "ktp", "wavelength_nm": 1064, "retardance_waves": 0.25, "thickness_mm": 0.05, "cut": "z", "tilt_azimuth_deg": 90"#,
+        r#""material": "ktp", "wavelength_nm": 1064, "retardance_waves": 0.5, "thickness_mm": 0.3, "axis_azimuth_deg": 20, "tilt_azimuth_deg": 50, "max_tilt_deg": 40"#,
+        r#""material": "lbo", "wavelength_nm": 532, "retardance_waves": 0.25, "order_number": 3, "made_for_nm": 540, "cut": "x", "tilt_azimuth_deg": 0"#,
+        r#""material": "bibo", "wavelength_nm": 800, "retardance_waves": 0.75, "thickness_mm": 0.2, "cut": "y", "axis_azimuth_deg": -30, "tilt_azimuth_deg": 60, "temperature_c": 45"#,
+        r#""nx": 1.52, "ny": 1.56, "nz": 1.61, "wavelength_nm": 633, "retardance_waves": 0.3, "thickness_mm": 0.1, "cut": "y", "tilt_azimuth_deg": 90"#,
+    ] {
+        let d = design(&format!(r#"{{"kind": "tilt-tuning", {doc}}}"#));
+        let target = num(&d, "/retardance_waves");
+        let tilt = num(&d, "/tilt_deg");
+        let plane = num(&d, "/scenario/elements/0/mount/azimuth_deg");
+        let want: f64 = serde_json::from_str::<Value>(&format!("{{{doc}}}")).unwrap()["retardance_waves"]
+            .as_f64()
+            .unwrap();
+        close(target.abs().fract(), want, 1e-9, doc);
+        // A mounted plate lit along z is the unmounted plate lit at polar t from the azimuth
+        // opposite the tilt (src/design/tilt.rs).
+        close(target, berreman_retardance_waves(&d, tilt, plane + 180.0), 1e-9, doc);
+        let tilts = d["curve"]["tilt_deg"].as_array().unwrap();
+        let curve = d["curve"]["retardance_waves"].as_array().unwrap();
+        for (t, g) in tilts.iter().zip(curve).step_by(7) {
+            let t = t.as_f64().unwrap();
+            close(
+                g.as_f64().unwrap(),
+                berreman_retardance_waves(&d, t, plane + 180.0),
+                1e-9,
+                &format!("{doc} at {t}°"),
+            );
+        }
+        Scenario::from_json(&d["scenario"]).unwrap();
+    }
+}
+
+#[test]
+fn a_biaxial_plate_given_by_its_order_takes_the_cuts_birefringence() {
+    // L = (m + f) λ₀ / (n_slow − n_fast) at the wavelength it was made for (E. Hecht, *Optics*,
+    // §8.7): KTP's x-cut takes n_z − n_y, its default y-cut n_z − n_x.
+    let n = ktp(1.1);
+    for (cut, spread) in [(Some("x"), n[2] - n[1]), (None, n[2] - n[0])] {
+        let field = cut.map_or(String::new(), |c| format!(r#", "cut": "{c}""#));
+        let d = design(&format!(
+            r#"{{"kind": "tilt-tuning", "material": "ktp", "wavelength_nm": 1064, "retardance_waves": 0.25, "order_number": 2, "made_for_nm": 1100, "tilt_azimuth_deg": 0, "max_tilt_deg": 60{field}}}"#
+        ));
+        close(
+            num(&d, "/thickness_mm"),
+            2.25 * 1100e-6 / spread,
+            1e-15,
+            &format!("cut {cut:?}"),
+        );
+        assert_eq!(d["cut"], cut.unwrap_or("y"), "{d}");
+    }
+}
+
+#[test]
+fn a_tilt_tuned_crystal_with_two_equal_principal_indices_is_the_uniaxial_answer() {
+    // n_x = n_y = n_o, n_z = n_e (a positive crystal): the x-cut puts z, the optic axis, at the
+    // plate's azimuth, as the uniaxial request places it.
+    for rest in [
+        r#""thickness_mm": 0.5, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 90"#,
+        r#""order_number": 4, "made_for_nm": 650, "axis_azimuth_deg": 45, "tilt_azimuth_deg": 10, "max_tilt_deg": 40"#,
+    ] {
+        let common = format!(r#""kind": "tilt-tuning", "wavelength_nm": 633, "retardance_waves": 0.25, {rest}"#);
+        let uni = design(&format!(r#"{{{common}, "no": 1.5426, "ne": 1.5517}}"#));
+        let tri = design(&format!(r#"{{{common}, "nx": 1.5426, "ny": 1.5426, "nz": 1.5517}}"#));
+        assert_eq!(tri["cut"], "x", "{tri}");
+        for path in [
+            "/tilt_deg",
+            "/thickness_mm",
+            "/retardance_waves",
+            "/normal_retardance_waves",
+            "/sensitivity_waves_per_deg",
+        ] {
+            close(num(&tri, path), num(&uni, path), 1e-9, &format!("{rest} {path}"));
+        }
     }
 }

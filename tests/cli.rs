@@ -353,7 +353,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 26] = [
+const FLAG_CASES: [FlagCase; 27] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -474,6 +474,11 @@ const FLAG_CASES: [FlagCase; 26] = [
     FlagCase {
         flags: "tilt-tuning --no 1.54 --ne 1.55 --thickness-mm 0.5 --retardance-waves 0.25 --tilt-azimuth-deg 90",
         json: r#"{"kind": "tilt-tuning", "no": 1.54, "ne": 1.55, "thickness_mm": 0.5, "retardance_waves": 0.25, "tilt_azimuth_deg": 90}"#,
+    },
+    FlagCase {
+        flags: "tilt-tuning --nx 1.52 --ny 1.56 --nz 1.61 --cut y --thickness-mm 0.1 --retardance-waves 0.3 --tilt-azimuth-deg 90",
+        json: r#"{"kind": "tilt-tuning", "nx": 1.52, "ny": 1.56, "nz": 1.61, "cut": "y", "thickness_mm": 0.1, "retardance_waves": 0.3,
+                 "tilt_azimuth_deg": 90}"#,
     },
     FlagCase {
         flags: "quartz-rotator --rotation-deg -45 --wavelength-nm 1064 --band-nm 1000,1100 --handedness left --min-thickness-mm 2 --rotation-tolerance-deg 0.2 --ellipticity-tolerance-deg 1 --max-incidence-deg 5 --temperature-c 50",
@@ -670,6 +675,7 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "prism-polarizer-yvo4-cement",
         "tilt-tuning-quartz-quarter",
         "tilt-tuning-mgf2-order",
+        "tilt-tuning-ktp-order",
         "quartz-rotator-90",
         "quartz-rotator-forced-right",
         "athermal-quartz-mgf2",

@@ -84,9 +84,12 @@ function setGroupHint(box, text) {
 }
 
 // The kinds whose solver takes a biaxial crystal (src/contract/request/principal.rs): a
-// waveplate cut along a principal axis, a displacer cut in a principal plane. The other kinds'
-// lists hide the biaxial crystals (a chosen one stays, and the core names the field).
-const BIAXIAL_KINDS = new Set(['waveplate', 'displacer']);
+// waveplate or a tilt-tuned plate cut along a principal axis, a displacer cut in a principal
+// plane. The other kinds' lists hide the biaxial crystals (a chosen one stays, and the core names
+// the field).
+const BIAXIAL_KINDS = new Set(['waveplate', 'tilt-tuning', 'displacer']);
+// The kinds whose plate is cut along a principal axis (the select `cut`).
+const CUT_KINDS = new Set(['waveplate', 'tilt-tuning']);
 const isBiaxial = (state, key) => key === 'principal' || state.materialList.some((m) => m.key === key && m.kind === 'biaxial');
 
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
@@ -194,7 +197,7 @@ function buildDesignFields(state) {
   const size = addField(state, 'size', { label: 'Plate given by', kind: 'select', options: [['thickness', 'its thickness'], ['order', 'its order at a wavelength']] });
   const thickness = addField(state, 'thickness_mm', { label: 'Plate thickness', spoken: 'Thickness of the plate to tilt', unit: 'mm', value: 0.5 });
   const madeFor = addField(state, 'made_for_nm', { label: 'Made for', spoken: 'Wavelength the plate was made for', unit: 'nm', placeholder: 'the wavelength' });
-  const axisAz = addField(state, 'axis_azimuth_deg', { label: 'Optic axis azimuth', unit: '°', value: 0, hint: 'In the faces, from x toward y.' });
+  const axisAz = addField(state, 'axis_azimuth_deg', { label: 'Optic axis azimuth', unit: '°', value: 0, hint: 'In the faces, from x toward y; a biaxial plate\'s slower in-face axis.' });
   // Across the axis (90° from it) the retardance grows with the tilt; along it, it falls.
   const tiltAz = addField(state, 'tilt_azimuth_deg', {
     label: 'Plane of the tilt', spoken: 'Azimuth of the tilt plane', unit: '°', value: 90,
@@ -255,7 +258,7 @@ function buildDesignFields(state) {
   state.design.layout['angular-splitter'] = [...medium.nodes, wl.row, split.row, clear.row, cement.row, band, tolerances, samples.row, seed.row];
   state.design.layout['prism-polarizer'] = [...medium.nodes, wl.row, cement.row, clear.row];
   state.design.layout['quartz-rotator'] = [rotation.row, wl.row, band, hand.row, minThick.row, rotTol.row, ellTol.row, maxInc.row];
-  state.design.layout['tilt-tuning'] = [...medium.nodes, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
+  state.design.layout['tilt-tuning'] = [...medium.nodes, principalCut.row, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
   state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
   state.design.layout['birefringent-filter'] = [...medium.nodes, layout.row, stages.row, wl.row, bandwidth.row, band];
   state.design.layout['broadband-retarder'] = [...medium.nodes, alternate.row, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
@@ -358,7 +361,7 @@ function layoutDesignFields(state) {
   }
   const biaxial = isBiaxial(state, mainKey);
   if (state.design.principalBox.hidden !== (mainKey !== 'principal')) state.design.principalBox.hidden = mainKey !== 'principal';
-  state.design.fields.cut.row.hidden = !(biaxial && kind === 'waveplate');
+  state.design.fields.cut.row.hidden = !(biaxial && CUT_KINDS.has(kind));
   state.design.fields.plane.row.hidden = !(biaxial && kind === 'displacer');
   const order = state.design.fields.order.value;
   const byOrder = state.design.fields.size.value === 'order';
@@ -432,6 +435,7 @@ function designRequest(state) {
     put('aperture_mm');
   } else if (kind === 'tilt-tuning') {
     Object.assign(req, medium(''));
+    if (!state.design.fields.cut.row.hidden && state.design.fields.cut.value) put('cut');
     put('wavelength_nm');
     put('retardance_waves');
     if (state.design.fields.size.value === 'order') {

@@ -559,17 +559,23 @@ export function polarizerResults(state, d, run, request) {
 }
 
 export function tiltResults(state, d) {
+  // A biaxial plate is cut along a principal axis, its slow in-face axis at `axis_azimuth_deg`.
+  const axisRows = d.cut ? [
+    ['cut', 'cut', formats.text],
+    ['slow axis azimuth (in the faces)', 'axis_azimuth_deg', formats.deg],
+  ] : [['optic axis azimuth (in the faces)', 'scenario.elements.0.axis.azimuth_deg', formats.deg]];
   return [
     h('p', { className: 'design-headline' },
-      `Tilt the ${partMaterial(state, d)} plate, `, dq(d, 'thickness_mm', formats.length, 'strong'), ' thick, by ',
+      `Tilt the ${partMaterial(state, d)} plate, `, dq(d, 'thickness_mm', formats.length, 'strong'),
+      d.cut ? ` thick, ${d.cut}-cut (light along principal ${d.cut}), by ` : ' thick, by ',
       dq(d, 'tilt_deg', formats.deg, 'strong'), ' in its mount: its retardance goes from ',
       dq(d, 'normal_retardance_waves', formats.waves, 'strong'), ' untilted to ', dq(d, 'retardance_waves', formats.waves, 'strong'), '.'),
     resultCard(d, 'What to order and set', [
       ['plate thickness', 'thickness_mm', formats.length],
-      ['optic axis azimuth (in the faces)', 'scenario.elements.0.axis.azimuth_deg', formats.deg],
+      ...axisRows,
       ['mount tilt', 'tilt_deg', formats.deg],
       ['plane of the tilt', 'scenario.elements.0.mount.azimuth_deg', formats.deg],
-    ], { className: 'design-main', note: 'Azimuths from x toward y.' }),
+    ], { className: 'design-main', note: d.cut ? ['Azimuths from x toward y. ', dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' })] : 'Azimuths from x toward y.' }),
     resultCard(d, 'Retardance', [
       ['at the tilt', 'retardance_waves', formats.waves],
       ['whole waves beyond the target', 'order', formats.count],

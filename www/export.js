@@ -315,7 +315,9 @@ function tiltRows(d, r, materialList) {
   const rows = materialRows(plate.material ?? r.material, 'Material', materialList);
   const made = typeof r.order_number === 'number' ? ` (order ${r.order_number}${typeof r.made_for_nm === 'number' ? ` at ${nm(r.made_for_nm)}` : ''})` : '';
   rows.push(['Dimensions', `plate ${mm(d.thickness_mm)} thick${made}`]);
-  rows.push(['Cut', `optic axis in the face, at ${deg(plate.axis?.azimuth_deg)} from x`]);
+  rows.push(['Cut', d.cut
+    ? `${d.cut}-cut: principal ${d.cut} along the face normal; slow axis at ${deg(d.axis_azimuth_deg)} from x`
+    : `optic axis in the face, at ${deg(plate.axis?.azimuth_deg)} from x`]);
   rows.push(['Mount', `tilted by ${deg(d.tilt_deg)} in the plane at azimuth ${deg(plate.mount?.azimuth_deg)} from x; there the retardance changes by ${sheetNumber(d.sensitivity_waves_per_deg, 3)} waves per degree of tilt`]);
   rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
   rows.push(['Wavelength', nm(d.scenario?.wavelength_nm ?? r.wavelength_nm)]);

@@ -220,7 +220,15 @@ pub fn placed_crystal(
     placement: Placement,
     contact: Contact,
 ) -> Element {
-    let mut e = crystal(medium, thickness_mm, tilt_deg, azimuth_deg, gap_mm);
+    placed(
+        crystal(medium, thickness_mm, tilt_deg, azimuth_deg, gap_mm),
+        placement,
+        contact,
+    )
+}
+
+/// A crystal element `e` given its `placement` and `contact` with the element before it.
+pub fn placed(mut e: Element, placement: Placement, contact: Contact) -> Element {
     if let ElementKind::Crystal(c) = &mut e.kind {
         c.placement = placement;
     }

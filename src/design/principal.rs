@@ -20,10 +20,15 @@
 //!   are the uniaxial closed forms with those two indices. The default plane is the one of
 //!   largest maximum walk-off, |n_b² − n_a²| / (2 n_a n_b).
 
+use crate::contract::request::principal::{AXIS_LETTERS, is_principal};
 use crate::contract::request::{PrincipalCut, PrincipalPlane};
+use crate::contract::scenario::Medium;
+use crate::design::thermal::principal_at;
 use crate::error::Error;
 use crate::optics::anisotropic::{Anisotropic, orientation};
 use crate::optics::material::Indices;
+use crate::optics::wavelength::Wavelength;
+use crate::precision::NO_BIREFRINGENCE;
 use nalgebra::Matrix3;
 
 /// A principal-axis orientation as the scenario writes it, degrees.
@@ -137,6 +142,83 @@ pub fn plane_orientation(plane: PrincipalPlane, theta_deg: f64) -> Oriented {
         azimuth_deg,
         roll_deg,
     }
+}
+
+/// A biaxial plate's cut as a design takes it (a waveplate's, a tilt-tuned plate's).
+pub struct BiaxialCut {
+    /// The fast and slow in-face indices, as a uniaxial plate's n_o and n_e (n_e the slower).
+    pub indices: Indices,
+    /// The plate's principal axes at azimuth 0.
+    pub oriented: Oriented,
+    /// The principal indices n_x, n_y, n_z at the design wavelength and temperature.
+    pub principal: [f64; 3],
+    /// The slow and the fast in-face principal axes (0, 1, 2 for x, y, z).
+    pub slow_fast: (usize, usize),
+    /// The cut's name.
+    pub cut: String,
+    /// Why this cut.
+    pub note: String,
+    /// Which in-face axis is fast.
+    pub fast_axis: String,
+}
+
+/// The cut of a request's plate of `medium` at `wavelength` and `t_c` °C, `cut` as the request
+/// gives it (`None`: the cut of largest birefringence); `None` for a uniaxial crystal.
+///
+/// # Errors
+/// As [`principal_at`]; `cut` when the two in-face indices are equal.
+pub fn biaxial_cut(
+    medium: &Medium,
+    cut: Option<PrincipalCut>,
+    wavelength: Wavelength,
+    t_c: f64,
+) -> Result<Option<BiaxialCut>, Error> {
+    if !is_principal(medium) {
+        return Ok(None);
+    }
+    let n = principal_at(medium, wavelength, t_c)?;
+    let chosen = cut.unwrap_or_else(|| widest_cut(n));
+    let (slow, fast) = slow_fast(chosen, n);
+    let letter = |k: usize| AXIS_LETTERS[k];
+    if n[slow] - n[fast] < NO_BIREFRINGENCE {
+        return Err(Error::new(
+            "cut",
+            format!(
+                "n_{} equals n_{}: light along {} sees no birefringence; choose another cut",
+                letter(slow),
+                letter(fast),
+                chosen.name()
+            ),
+        ));
+    }
+    let note = match cut {
+        Some(_) => format!(
+            "{}-cut as requested: light along principal {}, Γ = 2π (n_{} − n_{}) L / λ",
+            chosen.name(),
+            chosen.name(),
+            letter(slow),
+            letter(fast)
+        ),
+        None => format!(
+            "{}-cut, the cut of largest birefringence (n_{} − n_{}); \"cut\" chooses another",
+            chosen.name(),
+            letter(slow),
+            letter(fast)
+        ),
+    };
+    Ok(Some(BiaxialCut {
+        indices: Indices::new(n[fast], n[slow])?,
+        oriented: cut_orientation(chosen, n),
+        principal: n,
+        slow_fast: (slow, fast),
+        cut: chosen.name(),
+        note,
+        fast_axis: format!(
+            "principal {} (across the plate's azimuth; slow: principal {})",
+            letter(fast),
+            letter(slow)
+        ),
+    }))
 }
 
 #[cfg(test)]

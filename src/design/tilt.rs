@@ -24,13 +24,24 @@
 //! ([`crate::design::thermal`]): every trace is at T. The tilt's change per kelvin follows from
 //! the tuned condition |Γ(t, T)| = target + m by implicit differentiation,
 //! dt/dT = −(∂Γ/∂T)/(∂Γ/∂t), each partial a central difference of the exact trace.
+//!
+//! Biaxial crystals: the plate is cut along a principal axis (`cut`, as a waveplate's,
+//! [`crate::design::principal`]: the cut of largest birefringence unless the request names one),
+//! its slower in-face principal axis at `axis_azimuth_deg`, so that untilted it retards by
+//! 2π (n_slow − n_fast) L / λ; a plate given by its order is sized with that birefringence at
+//! `made_for_nm`. The tilted plate is traced whole as a uniaxial one is (the general mode solver
+//! in each face), the retardance being the phase of the s-path less that of the f-path; its
+//! thickness grows by the expansion along the cut's axis.
 
 use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::{PlateSize, TiltRequest};
-use crate::design::part::{Part, placed_crystal};
-use crate::design::thermal::{Temperature, growth, indices_at, per_kelvin};
+use crate::design::part::{Part, oriented_crystal, placed};
+use crate::design::principal::{BiaxialCut, biaxial_cut};
+use crate::design::thermal::{Temperature, growth_along_z, indices_at, per_kelvin, principal_at};
+use crate::design::waveplate::PlateCut;
 use crate::error::Error;
 use crate::numfmt::sig;
+use crate::optics::material::{Indices, REFERENCE_C};
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{BISECTION_STEPS, DESIGN_SCAN_INTERVALS, DIFF_STEP_INCIDENCE_DEG};
 use serde::Serialize;
@@ -44,7 +55,8 @@ const SCREEN_MM: f64 = 10.0;
 pub struct TiltCurve {
     /// Mount tilts, degrees.
     pub tilt_deg: Vec<f64>,
-    /// Retardance at each, waves (signed: positive when the e-mode is slower).
+    /// Retardance at each, waves (signed: positive when the e-mode is slower; a biaxial plate's
+    /// s-mode is the slower by its name).
     pub retardance_waves: Vec<f64>,
 }
 
@@ -70,23 +82,77 @@ pub struct TiltDesign {
     pub temperature: Temperature,
     /// Retardance against tilt from 0 to the largest tilt searched.
     pub curve: TiltCurve,
+    /// For a biaxial crystal, the principal axis along the plate normal (`x`, `y` or `z`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cut: Option<String>,
+    /// For a biaxial crystal, why this cut.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cut_note: Option<String>,
+    /// For a biaxial crystal, the azimuth of the plate's slower in-face principal axis, degrees
+    /// (the part's `axes` write the whole orientation).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub axis_azimuth_deg: Option<f64>,
+    /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub principal_indices: Option<[f64; 3]>,
     /// The mounted plate, ready to load.
     pub scenario: Part,
 }
 
+/// How the request's plate is cut: its orientation and its fast and slow indices at the design
+/// wavelength and temperature.
+struct Cut {
+    /// The plate's orientation.
+    plate: PlateCut,
+    /// A uniaxial plate's n_o, n_e; a biaxial plate's fast and slow in-face indices.
+    indices: Indices,
+    /// A biaxial plate's cut.
+    biaxial: Option<BiaxialCut>,
+}
+
 impl TiltRequest {
-    /// The plate's thickness, mm.
-    fn thickness(&self) -> Result<f64, Error> {
+    /// The plate's cut (a uniaxial plate's optic axis in its faces).
+    ///
+    /// # Errors
+    /// As [`biaxial_cut`] and [`indices_at`].
+    fn cut(&self) -> Result<Cut, Error> {
+        let (t_c, wl) = (self.temperature_c, self.wavelength);
+        Ok(match biaxial_cut(&self.medium, self.cut, wl, t_c)? {
+            Some(b) => Cut {
+                plate: PlateCut::Principal(b.oriented),
+                indices: b.indices,
+                biaxial: Some(b),
+            },
+            None => Cut {
+                plate: PlateCut::Axis,
+                indices: indices_at(&self.medium, wl, t_c)?,
+                biaxial: None,
+            },
+        })
+    }
+
+    /// The plate's thickness, mm, for a plate of `cut`.
+    fn thickness(&self, cut: &Cut) -> Result<f64, Error> {
         match self.size {
             PlateSize::Thickness(t) => Ok(t),
             PlateSize::Order { order, made_for_nm } => {
-                let ix = self.medium.indices(Wavelength::from_nm(made_for_nm)?)?;
-                Ok((order as f64 + self.retardance_waves) * made_for_nm * 1e-6 / (ix.ne - ix.no).abs())
+                let wl = Wavelength::from_nm(made_for_nm)?;
+                let dn = match &cut.biaxial {
+                    None => {
+                        let ix = self.medium.indices(wl)?;
+                        ix.ne - ix.no
+                    }
+                    Some(b) => {
+                        let n = principal_at(&self.medium, wl, REFERENCE_C)?;
+                        n[b.slow_fast.0] - n[b.slow_fast.1]
+                    }
+                };
+                Ok((order as f64 + self.retardance_waves) * made_for_nm * 1e-6 / dn.abs())
             }
         }
     }
 
-    fn part(&self, thickness_mm: f64, tilt_deg: f64) -> Part {
+    fn part(&self, cut: PlateCut, thickness_mm: f64, tilt_deg: f64) -> Part {
         let placement = Placement {
             mount: Angles {
                 tilt_deg,
@@ -97,12 +163,8 @@ impl TiltRequest {
         let mut part = Part::new(
             self.wavelength,
             None,
-            vec![placed_crystal(
-                self.medium,
-                thickness_mm,
-                90.0,
-                self.axis_azimuth_deg,
-                1.0,
+            vec![placed(
+                oriented_crystal(self.medium, thickness_mm, cut.at(self.axis_azimuth_deg), 1.0),
                 placement,
                 Contact::Air,
             )],
@@ -116,27 +178,32 @@ impl TiltRequest {
     }
 }
 
-/// Retardance (waves) of a part with one crystal: phase of "e" less that of "o".
+/// Retardance (waves) of a part with one crystal: phase of "e" less that of "o" (uniaxial), of
+/// "s" less that of "f" (biaxial).
 pub fn traced_retardance_waves(part: &Part) -> Option<f64> {
     let (_, t) = part.traced().ok()?;
     let find = |l: &str| t.paths.iter().find(|p| p.label == l).map(|p| p.phase_rad);
-    Some((find("e")? - find("o")?) / TAU)
+    let (slow, fast) = find("e").zip(find("o")).or_else(|| find("s").zip(find("f")))?;
+    Some((slow - fast) / TAU)
 }
 
 /// Tunes a plate.
 ///
 /// # Errors
-/// `material` without birefringence; `max_tilt_deg` when no tilt up to it reaches the target.
+/// `material` without birefringence; `cut` for a biaxial cut without it; `max_tilt_deg` when no
+/// tilt up to it reaches the target.
 pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
-    let ix = indices_at(&req.medium, req.wavelength, req.temperature_c)?;
+    let cut = req.cut()?;
+    let ix = cut.indices;
     if (ix.ne - ix.no).abs() < crate::precision::NO_BIREFRINGENCE {
         return Err(Error::new(
             "material",
             "this crystal is not birefringent: no tilt gives retardance",
         ));
     }
-    let l = req.thickness()?;
-    let at = |t: f64| traced_retardance_waves(&req.part(l, t));
+    let l = req.thickness(&cut)?;
+    let plate = cut.plate;
+    let at = |t: f64| traced_retardance_waves(&req.part(plate, l, t));
     let fail = || Error::new("material", "a mode does not cross the plate");
     // g(t) = |Γ(t)| − target; the tilt is where g is a whole number.
     let g = |t: f64| at(t).map(|r| r.abs() - req.retardance_waves);
@@ -202,7 +269,7 @@ pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
         (up - at(tilt).ok_or_else(fail)?) / h
     };
     let t_c = req.temperature_c;
-    let tuned = req.part(l, tilt);
+    let tuned = req.part(plate, l, tilt);
     let gamma_per_k = per_kelvin(|t| traced_retardance_waves(&tuned.clone().at_temperature(t)), t_c);
     let temperature = Temperature::given(
         t_c,
@@ -214,14 +281,18 @@ pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
     Ok(TiltDesign {
         tilt_deg: tilt,
         thickness_mm: l,
-        thickness_at_temperature_mm: l * growth(&req.medium, 90.0, req.axis_azimuth_deg, t_c),
+        thickness_at_temperature_mm: l * growth_along_z(&req.medium, &plate.at(req.axis_azimuth_deg).axes(), t_c),
         temperature,
         normal_retardance_waves: curve.retardance_waves[0],
         retardance_waves: at(tilt).ok_or_else(fail)?,
         order: m as i64,
         sensitivity_waves_per_deg: slope,
         curve,
-        scenario: req.part(l, tilt),
+        cut: cut.biaxial.as_ref().map(|b| b.cut.clone()),
+        cut_note: cut.biaxial.as_ref().map(|b| b.note.clone()),
+        axis_azimuth_deg: cut.biaxial.as_ref().map(|_| req.axis_azimuth_deg),
+        principal_indices: cut.biaxial.as_ref().map(|b| b.principal),
+        scenario: tuned,
     })
 }
 
@@ -276,7 +347,7 @@ mod tests {
             // The same plate unmounted (v1 geometry, the plane-parallel tracer), lit at polar t
             // from the azimuth opposite the tilt.
             for (t, g) in d.curve.tilt_deg.iter().zip(&d.curve.retardance_waves).step_by(8) {
-                let mut p = r.part(d.thickness_mm, 0.0);
+                let mut p = r.part(PlateCut::Axis, d.thickness_mm, 0.0);
                 p.scenario.beam.polar_deg = *t;
                 p.scenario.beam.azimuth_deg = r.tilt_azimuth_deg + 180.0;
                 let oblique = traced_retardance_waves(&p).unwrap();

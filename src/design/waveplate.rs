@@ -42,12 +42,11 @@
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
 //! memory).
 
-use crate::contract::request::principal::{AXIS_LETTERS, is_principal};
 use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
 use crate::design::part::{Part, crystal, oriented_crystal};
-use crate::design::principal::{Oriented, cut_orientation, slow_fast, widest_cut};
+use crate::design::principal::{Oriented, biaxial_cut};
 use crate::design::thermal::{PerKelvin, Temperature, growth, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::error::Error;
 use crate::optics::general_plate::general_plate_optics;
@@ -115,7 +114,7 @@ pub enum PlateCut {
 
 impl PlateCut {
     /// The principal axes of a plate of this cut at `azimuth_deg`.
-    fn at(self, azimuth_deg: f64) -> Oriented {
+    pub fn at(self, azimuth_deg: f64) -> Oriented {
         match self {
             PlateCut::Axis => Oriented {
                 tilt_deg: 90.0,
@@ -360,74 +359,6 @@ pub(super) fn temperature_sensitivity(
     })
 }
 
-/// A biaxial waveplate's cut as the design takes it.
-struct BiaxialCut {
-    /// The fast and slow in-face indices, as a uniaxial plate's n_o and n_e (n_e the slower).
-    indices: Indices,
-    /// The plate's principal axes at azimuth 0.
-    oriented: Oriented,
-    /// The principal indices n_x, n_y, n_z at the design wavelength and temperature.
-    principal: [f64; 3],
-    /// The cut's name.
-    cut: String,
-    /// Why this cut.
-    note: String,
-    /// Which in-face axis is fast.
-    fast_axis: String,
-}
-
-/// The cut of a biaxial request's plate (`None` for a uniaxial crystal).
-///
-/// # Errors
-/// As [`principal_at`]; `cut` when the two in-face indices are equal.
-fn biaxial_cut(req: &WaveplateRequest) -> Result<Option<BiaxialCut>, Error> {
-    if !is_principal(&req.medium) {
-        return Ok(None);
-    }
-    let n = principal_at(&req.medium, req.wavelength, req.temperature_c)?;
-    let chosen = req.cut.unwrap_or_else(|| widest_cut(n));
-    let (slow, fast) = slow_fast(chosen, n);
-    let letter = |k: usize| AXIS_LETTERS[k];
-    if n[slow] - n[fast] < NO_BIREFRINGENCE {
-        return Err(Error::new(
-            "cut",
-            format!(
-                "n_{} equals n_{}: light along {} sees no birefringence; choose another cut",
-                letter(slow),
-                letter(fast),
-                chosen.name()
-            ),
-        ));
-    }
-    let note = match req.cut {
-        Some(_) => format!(
-            "{}-cut as requested: light along principal {}, Γ = 2π (n_{} − n_{}) L / λ",
-            chosen.name(),
-            chosen.name(),
-            letter(slow),
-            letter(fast)
-        ),
-        None => format!(
-            "{}-cut, the cut of largest birefringence (n_{} − n_{}); \"cut\" chooses another",
-            chosen.name(),
-            letter(slow),
-            letter(fast)
-        ),
-    };
-    Ok(Some(BiaxialCut {
-        indices: Indices::new(n[fast], n[slow])?,
-        oriented: cut_orientation(chosen, n),
-        principal: n,
-        cut: chosen.name(),
-        note,
-        fast_axis: format!(
-            "principal {} (across the plate's azimuth; slow: principal {})",
-            letter(fast),
-            letter(slow)
-        ),
-    }))
-}
-
 /// Solves a waveplate request.
 ///
 /// # Errors
@@ -435,7 +366,7 @@ fn biaxial_cut(req: &WaveplateRequest) -> Result<Option<BiaxialCut>, Error> {
 /// birefringence.
 pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let t_c = req.temperature_c;
-    let biaxial = biaxial_cut(req)?;
+    let biaxial = biaxial_cut(&req.medium, req.cut, req.wavelength, t_c)?;
     let (ix, cut) = match &biaxial {
         Some(b) => (b.indices, PlateCut::Principal(b.oriented)),
         None => (indices_at(&req.medium, req.wavelength, t_c)?, PlateCut::Axis),

@@ -1,5 +1,6 @@
 // End-to-end tests of the design panel with biaxial crystals (www/design-panel.js): a KTP
-// waveplate cut along a principal axis and an LBO displacer cut in a principal plane, filled in
+// waveplate and a tilt-tuned KTP plate cut along a principal axis and an LBO displacer cut in a
+// principal plane, filled in
 // through the panel's controls and solved in its worker. The numbers shown are checked against
 // the command line's answer to the same request, as kept in the golden files
 // tests/cli/design/golden/*.json (written by `doublespar design`, native build). "Use this part"
@@ -55,6 +56,31 @@ test('a KTP waveplate agrees with the command line and, loaded, retards as desig
   });
 });
 
+test('a tilt-tuned KTP plate agrees with the command line and, loaded in its mount, retards as designed', { timeout: 120000 }, async () => {
+  const { request, design } = golden('tilt-tuning-ktp-order');
+  await withPage(async (page) => {
+    await fill(page, 'tilt-tuning', [
+      ['material', 'ktp'], ['wavelength_nm', 1064], ['retardance_waves', 0.25], ['size', 'order'], ['order_number', 9],
+      ['made_for_nm', 1050], ['tilt_azimuth_deg', 90], ['temperature_c', 35],
+    ]);
+    assert.ok(await page.locator(field('cut')).isVisible(), 'a biaxial crystal shows its cut');
+    assert.equal(await page.inputValue(field('cut')), '', 'the cut of largest birefringence unless one is chosen');
+    await solveDesign(page);
+    await expectRequest(page, request, 'tilt-tuned KTP');
+    assert.equal(design.cut, 'y', 'the cut of largest birefringence');
+    await expectDesign(page, design, ['thickness_mm', 'tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'sensitivity_waves_per_deg', 'axis_azimuth_deg'], 'tilt-tuned KTP');
+    const headline = await page.textContent('.design-headline');
+    assert.ok(headline.includes('y-cut'), headline);
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('y-cut: principal y along the face normal; slow axis at 0°'), `the order sheet's cut: ${sheet.Cut}`);
+    const sc = await useDesign(page, design, 'tilt-tuned KTP');
+    assert.ok(sc.elements[0].axes && close(sc.elements[0].mount.tilt_deg, design.tilt_deg), JSON.stringify(sc.elements[0]));
+    // The page's trace of the mounted plate reaches the retardance the tilt solver found.
+    const g = await traced(page, 0, 'retardance_waves');
+    assert.ok(Math.abs(g - design.retardance_waves) < 1e-9, `traced retardance ${g} waves, designed ${design.retardance_waves}`);
+  });
+});
+
 test('an LBO displacer agrees with the command line and, loaded, separates the beams as designed', { timeout: 180000 }, async () => {
   const { request, design } = golden('displacer-lbo-xz');
   await withPage(async (page) => {
@@ -101,6 +127,8 @@ test('the kinds that stay uniaxial do not offer the biaxial crystals', { timeout
     const shown = async () => page.$$eval(`${field('material')} option`, (os) => os.filter((o) => !o.hidden).map((o) => o.value));
     await page.selectOption(field('kind'), 'waveplate');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `waveplate offers ${k}`);
+    await page.selectOption(field('kind'), 'tilt-tuning');
+    for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `the tilt tuning offers ${k}`);
     await page.selectOption(field('kind'), 'prism-polarizer');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok(!(await shown()).includes(k), `the polarizer hides ${k}`);
   });
@@ -110,6 +138,7 @@ test('a link carries a biaxial design\'s crystal and its cut or plane', { timeou
   for (const [kind, entries, select] of [
     ['waveplate', [['material', 'principal'], ['nx', 1.5], ['ny', 1.52], ['nz', 1.6], ['cut', 'z'], ['retardance_waves', 0.25]], 'cut'],
     ['displacer', [['material', 'bibo'], ['plane', 'yz'], ['separation_mm', 2], ['samples', 0]], 'plane'],
+    ['tilt-tuning', [['material', 'lbo'], ['cut', 'x'], ['wavelength_nm', 532], ['retardance_waves', 0.25], ['size', 'order'], ['order_number', 3], ['made_for_nm', 540], ['tilt_azimuth_deg', 0]], 'cut'],
   ]) {
     let link = '';
     let said = null;

@@ -159,6 +159,14 @@ const DISPLACER: [Flag; 21] = [
     DESIGN_TEMPERATURE,
 ];
 
+/// A biaxial plate's principal axis along its normal (waveplate, tilt-tuning).
+const CUT: Flag = flag(
+    "cut",
+    "cut",
+    T,
+    "biaxial crystal: principal axis along the normal, x, y or z [largest birefringence]",
+);
+
 const WAVEPLATE: [Flag; 16] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
@@ -166,12 +174,7 @@ const WAVEPLATE: [Flag; 16] = [
     PRINCIPAL_HELP[0],
     PRINCIPAL_HELP[1],
     PRINCIPAL_HELP[2],
-    flag(
-        "cut",
-        "cut",
-        T,
-        "biaxial crystal: principal axis along the normal, x, y or z [largest birefringence]",
-    ),
+    CUT,
     DESIGN_WAVELENGTH,
     flag(
         "retardance-waves",
@@ -384,10 +387,14 @@ const POLARIZER: [Flag; 7] = [
     DESIGN_TEMPERATURE,
 ];
 
-const TILT: [Flag; 12] = [
+const TILT: [Flag; 16] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
+    PRINCIPAL_HELP[0],
+    PRINCIPAL_HELP[1],
+    PRINCIPAL_HELP[2],
+    CUT,
     flag("wavelength-nm", "wavelength_nm", N, "wavelength wanted, nm [632.8]"),
     flag(
         "retardance-waves",
@@ -417,7 +424,7 @@ const TILT: [Flag; 12] = [
         "axis-azimuth-deg",
         "axis_azimuth_deg",
         N,
-        "optic axis in the plate, ° from x [0]",
+        "optic axis (biaxial: slow axis) in the plate, ° from x [0]",
     ),
     flag(
         "tilt-azimuth-deg",

@@ -2,7 +2,7 @@
 //! tilt-tuned waveplate, in the order of every design report (what to order, performance,
 //! tolerances, notes and warnings). Curves are summarized by their range; the JSON holds them.
 
-use super::{Report, medium_words, num, span};
+use super::{Report, medium_words, num, principal_indices, span};
 use serde_json::Value;
 
 /// The scenario's crystals, and its wavelength in words.
@@ -211,11 +211,17 @@ pub(super) fn tilt(r: &mut Report) {
     r.title(&format!("Tilt-tuned waveplate · {material} · {wl} nm"));
     r.section("What to order");
     r.quantity("plate thickness", "thickness_mm", "mm");
-    let axis = plate
-        .pointer("/axis/azimuth_deg")
-        .and_then(Value::as_f64)
-        .map_or_else(String::new, num);
-    r.line("cut", format!("{material}, optic axis in the faces at {axis} ° from x"));
+    let cut = r.s("cut");
+    let axis = match cut {
+        Some(_) => r.f("axis_azimuth_deg"),
+        None => plate.pointer("/axis/azimuth_deg").and_then(Value::as_f64),
+    }
+    .map_or_else(String::new, num);
+    let words = match cut {
+        Some(c) => format!("{c}-cut (light along principal {c}), slow axis at {axis} ° from x"),
+        None => format!("optic axis in the faces at {axis} ° from x"),
+    };
+    r.line("cut", format!("{material}, {words}"));
     let plane = plate
         .pointer("/mount/azimuth_deg")
         .and_then(Value::as_f64)
@@ -223,6 +229,7 @@ pub(super) fn tilt(r: &mut Report) {
     r.quantity("mount tilt", "tilt_deg", &format!("° in the plane at {plane} ° from x"));
 
     r.section("Performance");
+    principal_indices(r);
     r.quantity("retardance at the tilt", "retardance_waves", "waves");
     r.quantity("whole waves beyond the target", "order", "");
     r.quantity("retardance untilted", "normal_retardance_waves", "waves");
@@ -236,5 +243,5 @@ pub(super) fn tilt(r: &mut Report) {
 
     r.section("Tolerances");
     r.quantity("retardance per degree of tilt", "sensitivity_waves_per_deg", "waves/°");
-    r.notes(&[]);
+    r.notes(&["cut_note"]);
 }

@@ -1,8 +1,10 @@
 //! The tilt-tuning request: a waveplate cut with its optic axis in the faces, of a given
 //! thickness (or of a given order at another wavelength), tilted in its mount until it reaches a
-//! target retardance.
+//! target retardance. A biaxial crystal's plate is cut along a principal axis (`cut`, as a
+//! waveplate's: [`super::principal`]), its slower in-face principal axis at `axis_azimuth_deg`.
 
-use super::{parse_medium, temperature_field, wavelength_field, whole};
+use super::principal::{PrincipalCut, read_cut};
+use super::{parse_any_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -26,15 +28,19 @@ pub enum PlateSize {
 /// A tilt-tuning request.
 #[derive(Debug, Clone, PartialEq)]
 pub struct TiltRequest {
-    /// Crystal.
+    /// Crystal (uniaxial, or biaxial cut along a principal axis).
     pub medium: Medium,
+    /// For a biaxial crystal, the principal axis along the plate normal (`cut`); `None` for a
+    /// uniaxial crystal, or to take the cut of largest birefringence.
+    pub cut: Option<PrincipalCut>,
     /// Wavelength at which the target is wanted.
     pub wavelength: Wavelength,
     /// The plate's thickness.
     pub size: PlateSize,
     /// Target retardance, waves, modulo whole waves (0.25 for a quarter wave).
     pub retardance_waves: f64,
-    /// Azimuth of the optic axis in the plate, from x toward y, degrees.
+    /// Azimuth of the optic axis in the plate (a biaxial plate's slower in-face principal axis),
+    /// from x toward y, degrees.
     pub axis_azimuth_deg: f64,
     /// Azimuth of the plane in which the mount tilts, degrees.
     pub tilt_azimuth_deg: f64,
@@ -49,10 +55,11 @@ impl TiltRequest {
     /// Reads a request object (`"kind": "tilt-tuning"` checked by the caller).
     ///
     /// # Errors
-    /// The path of the first offending field; `thickness_mm` when both or neither of it and
+    /// `cut` when it is not `"x"`, `"y"` or `"z"` or is given for a uniaxial crystal; the path of the first offending field; `thickness_mm` when both or neither of it and
     /// `order_number` are given; `made_for_nm` without `order_number`.
     pub fn from_json(f: &mut Fields) -> Result<TiltRequest, Error> {
-        let medium = parse_medium(f)?;
+        let medium = parse_any_crystal(f)?;
+        let cut = read_cut(f, &medium)?;
         let wavelength = wavelength_field(f)?;
         let retardance_waves = in_range("retardance_waves", f.required_number("retardance_waves")?, 0.0, 1.0)?;
         let size = match (f.has("thickness_mm"), f.has("order_number")) {
@@ -78,6 +85,7 @@ impl TiltRequest {
         let max_tilt_deg = above("max_tilt_deg", f.number_or("max_tilt_deg", 30.0)?, 0.0, 80.0)?;
         Ok(TiltRequest {
             medium,
+            cut,
             wavelength,
             size,
             retardance_waves,
@@ -121,6 +129,14 @@ mod tests {
             (
                 r#"{"material": "quartz", "retardance_waves": 0.25, "thickness_mm": 1, "max_tilt_deg": 85}"#,
                 "max_tilt_deg",
+            ),
+            (
+                r#"{"material": "ktp", "retardance_waves": 0.25, "thickness_mm": 1, "cut": "q"}"#,
+                "cut",
+            ),
+            (
+                r#"{"material": "quartz", "retardance_waves": 0.25, "thickness_mm": 1, "cut": "x"}"#,
+                "cut",
             ),
         ] {
             assert_eq!(first_error(doc, TiltRequest::from_json).field, field, "{doc}");
