@@ -46,7 +46,7 @@ pub struct ConoscopeMap {
 }
 
 /// The map of `quantity` for `sc` over a cone of `cone_deg` at `pixels` per side (at most
-/// [`MAX_PIXELS_WITH_CELL`] when the set-up holds a liquid-crystal cell; the map says how many).
+/// `MAX_PIXELS_WITH_CELL` when the set-up holds a liquid-crystal cell; the map says how many).
 ///
 /// # Errors
 /// `conoscope.cone_deg` outside (0, 80]; `conoscope.pixels` outside 1 to 512; from
