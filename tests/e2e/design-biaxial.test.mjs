@@ -31,6 +31,20 @@ async function traced(page, i, name) {
   return Number(await page.getAttribute(sel, 'data-value'));
 }
 
+/**
+ * A KTP design answered with its y-cut (the cut of largest birefringence): the panel shows the
+ * command line's `paths`, the headline names the cut and the order sheet's cut line starts with
+ * `sheetCut`.
+ */
+async function expectYCut(page, design, paths, sheetCut, what) {
+  assert.equal(design.cut, 'y', `${what}: the cut of largest birefringence`);
+  await expectDesign(page, design, paths, what);
+  const headline = await page.textContent('.design-headline');
+  assert.ok(headline.includes('y-cut'), headline);
+  const sheet = await orderSheet(page);
+  assert.ok(sheet.Cut?.startsWith(sheetCut), `${what}: the order sheet's cut: ${sheet.Cut}`);
+}
+
 test('a KTP waveplate agrees with the command line and, loaded, retards as designed', { timeout: 120000 }, async () => {
   const { request, design } = golden('waveplate-ktp-half');
   await withPage(async (page) => {
@@ -42,12 +56,8 @@ test('a KTP waveplate agrees with the command line and, loaded, retards as desig
     assert.equal(await page.locator(field('plane')).isVisible(), false, 'a waveplate has no principal plane');
     await solveDesign(page);
     await expectRequest(page, request, 'KTP waveplate');
-    assert.equal(design.cut, 'y', 'the cut of largest birefringence');
-    await expectDesign(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps'], 'KTP waveplate');
-    const headline = await page.textContent('.design-headline');
-    assert.ok(headline.includes('y-cut'), headline);
-    const sheet = await orderSheet(page);
-    assert.ok(sheet.Cut?.startsWith('y-cut: principal y along the face normal; plate 1 slow axis at 0°'), `the order sheet's cut: ${sheet.Cut}`);
+    await expectYCut(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps'],
+      'y-cut: principal y along the face normal; plate 1 slow axis at 0°', 'KTP waveplate');
     const sc = await useDesign(page, design, 'KTP waveplate');
     assert.equal(sc.elements[0].material, 'ktp');
     assert.ok(sc.elements[0].axes, `oriented by axes: ${JSON.stringify(sc.elements[0])}`);
@@ -67,12 +77,8 @@ test('a tilt-tuned KTP plate agrees with the command line and, loaded in its mou
     assert.equal(await page.inputValue(field('cut')), '', 'the cut of largest birefringence unless one is chosen');
     await solveDesign(page);
     await expectRequest(page, request, 'tilt-tuned KTP');
-    assert.equal(design.cut, 'y', 'the cut of largest birefringence');
-    await expectDesign(page, design, ['thickness_mm', 'tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'sensitivity_waves_per_deg', 'axis_azimuth_deg'], 'tilt-tuned KTP');
-    const headline = await page.textContent('.design-headline');
-    assert.ok(headline.includes('y-cut'), headline);
-    const sheet = await orderSheet(page);
-    assert.ok(sheet.Cut?.startsWith('y-cut: principal y along the face normal; slow axis at 0°'), `the order sheet's cut: ${sheet.Cut}`);
+    await expectYCut(page, design, ['thickness_mm', 'tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'sensitivity_waves_per_deg', 'axis_azimuth_deg'],
+      'y-cut: principal y along the face normal; slow axis at 0°', 'tilt-tuned KTP');
     const sc = await useDesign(page, design, 'tilt-tuned KTP');
     assert.ok(sc.elements[0].axes && close(sc.elements[0].mount.tilt_deg, design.tilt_deg), JSON.stringify(sc.elements[0]));
     // The page's trace of the mounted plate reaches the retardance the tilt solver found.
