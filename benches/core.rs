@@ -134,7 +134,7 @@ fn smoke() {
 
 /// A twisted 5CB cell's retardance at `n` voltages from 0 to 10 V (see the header).
 fn lc_curve(n: usize) -> Vec<f64> {
-    let lc = find_nematic("5cb").unwrap().at(0.633);
+    let lc = find_nematic("5cb").unwrap().at(0.633, 25.0);
     let cell = CellLayout {
         thickness_um: 5.0,
         rubbing_rad: 0.0,

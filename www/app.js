@@ -109,7 +109,7 @@ function buildTopControls() {
     options: [['vacuum', 'vacuum'], ['air', 'standard air']],
     hint: 'Air wavelengths are converted to vacuum by the standard-air index (Ciddor 1996).',
   }));
-  addTop(light, 'temperature_c', new Field({ key: 'temperature_c', label: 'Temperature', unit: '°C', hint: 'Crystal indices and thicknesses at this temperature; thicknesses are entered at 20 °C.' }));
+  addTop(light, 'temperature_c', new Field({ key: 'temperature_c', label: 'Temperature', unit: '°C', hint: 'Crystal and liquid-crystal indices, and crystal thicknesses, at this temperature; thicknesses are entered at 20 °C.' }));
   addTop(light, 'outside_index', new Field({ key: 'outside_index', label: 'Outside index', unit: '', step: 0.01, hint: 'Refractive index of the medium around and between the elements (1 to 5).' }));
   addTop(light, 'interface_losses', new Field({ key: 'interface_losses',
     label: 'Crystal faces',

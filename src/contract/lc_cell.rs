@@ -182,9 +182,10 @@ impl LcCell {
         })
     }
 
-    /// Its nematic's constants at `wavelength`, and a warning when the catalogue's index fit
-    /// does not cover it.
-    pub fn nematic(&self, wavelength: Wavelength) -> (Nematic, Option<String>) {
+    /// Its nematic's constants at `wavelength` and `temperature_c` (°C; a catalogued nematic's
+    /// move with its order parameter, custom constants are taken as given), and a warning when
+    /// the catalogue's index fit does not cover the wavelength.
+    pub fn nematic(&self, wavelength: Wavelength, temperature_c: f64) -> (Nematic, Option<String>) {
         match self.lc {
             LcMaterial::Catalogue(e) => {
                 let warning = (!e.covers(wavelength.nm())).then(|| {
@@ -196,17 +197,17 @@ impl LcCell {
                         wavelength.nm()
                     )
                 });
-                (e.at(wavelength.um()), warning)
+                (e.at(wavelength.um(), temperature_c), warning)
             }
             LcMaterial::Custom(n) => (n, None),
         }
     }
 
-    /// The warning or error for a cell at `temperature_c`: a catalogued nematic's constants are
-    /// its values at one temperature (`optics::lc::catalogue`); outside the band where they are
-    /// used without remark the answer says so, and at or above the clearing point the nematic is
-    /// an isotropic liquid, which the catalogue does not describe. Custom constants are taken
-    /// as given, at whatever temperature they were measured.
+    /// The warning or error for a cell at `temperature_c`: a catalogued nematic's constants
+    /// follow a temperature model fitted to a measurement over a band (`optics::lc::catalogue`);
+    /// outside that band the answer says the model is extrapolated, and at or above the clearing
+    /// point the nematic is an isotropic liquid, which the catalogue does not describe. Custom
+    /// constants are taken as given, at whatever temperature they were measured.
     ///
     /// # Errors
     /// `temperature_c` at or above a catalogued nematic's clearing point.
@@ -227,9 +228,9 @@ impl LcCell {
         let (lo, hi) = e.quiet_c;
         Ok((!(lo..=hi).contains(&temperature_c)).then(|| {
             format!(
-                "{}'s constants are its values near 25 °C, used unchanged at {temperature_c} °C; they hold \
-                 from {lo} to {hi} °C (its birefringence falls as the clearing point, about {} °C, nears)",
-                e.key, e.clearing_c
+                "{}'s temperature model (its order parameter, which moves Δn, Δε and the elastic \
+                 constants) is fitted from {lo} to {hi} °C and extrapolated to {temperature_c} °C",
+                e.key
             )
         }))
     }
@@ -244,14 +245,21 @@ impl LcCell {
         }
     }
 
-    /// The director profile at this cell's voltage, retardance and threshold at `wavelength`.
-    pub fn solve(&self, wavelength: Wavelength) -> SolvedCell {
-        self.solve_at(wavelength, self.voltage_v, None)
+    /// The director profile at this cell's voltage, retardance and threshold at `wavelength`
+    /// and `temperature_c` (°C).
+    pub fn solve(&self, wavelength: Wavelength, temperature_c: f64) -> SolvedCell {
+        self.solve_at(wavelength, temperature_c, self.voltage_v, None)
     }
 
     /// As [`LcCell::solve`] at another voltage, starting from a neighbouring profile when given.
-    pub fn solve_at(&self, wavelength: Wavelength, voltage_v: f64, start: Option<&Profile>) -> SolvedCell {
-        let (nematic, _) = self.nematic(wavelength);
+    pub fn solve_at(
+        &self,
+        wavelength: Wavelength,
+        temperature_c: f64,
+        voltage_v: f64,
+        start: Option<&Profile>,
+    ) -> SolvedCell {
+        let (nematic, _) = self.nematic(wavelength, temperature_c);
         let layout = self.layout();
         let profile = solve(&nematic, &layout, voltage_v, LC_SUBLAYERS, start);
         SolvedCell {
@@ -262,10 +270,10 @@ impl LcCell {
         }
     }
 
-    /// Its retardance (waves) at each of `voltages` at `wavelength`, solved by continuation
-    /// (`optics::lc::curve`); empty on the page (see `parse`).
-    pub fn retardance_curve(&self, wavelength: Wavelength, voltages: &[f64]) -> Vec<f64> {
-        let (nematic, _) = self.nematic(wavelength);
+    /// Its retardance (waves) at each of `voltages` at `wavelength` and `temperature_c` (°C),
+    /// solved by continuation (`optics::lc::curve`).
+    pub fn retardance_curve(&self, wavelength: Wavelength, temperature_c: f64, voltages: &[f64]) -> Vec<f64> {
+        let (nematic, _) = self.nematic(wavelength, temperature_c);
         crate::optics::lc::curve::retardance_curve(&nematic, &self.layout(), wavelength.um(), voltages, LC_SUBLAYERS)
     }
 

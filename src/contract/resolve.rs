@@ -92,12 +92,12 @@ impl Scenario {
                     let hot = cell.temperature_check(self.temperature_c).map_err(|e| {
                         Error::new("temperature_c", format!("elements[{idx}] (lc_cell): {}", e.message))
                     })?;
-                    let (_, fit) = cell.nematic(self.wavelength);
+                    let (_, fit) = cell.nematic(self.wavelength, self.temperature_c);
                     warnings.extend(hot.into_iter().chain(fit).map(|w| Warning {
                         element: idx,
                         text: format!("elements[{idx}].lc: {w}"),
                     }));
-                    let solved = cell.solve(self.wavelength);
+                    let solved = cell.solve(self.wavelength, self.temperature_c);
                     let optics = cell.layered(solved, self.wavelength, self.losses);
                     let at_input = layered_jones(&optics, self.outside_index, qt);
                     cells.push(optics);

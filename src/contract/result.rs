@@ -784,7 +784,7 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
                     },
                     ElementKind::Rotator { angle_deg } => ElementReport::Rotator { angle_deg, power_in },
                     ElementKind::Cell(cell) => {
-                        let solved = cell.solve(sc.wavelength);
+                        let solved = cell.solve(sc.wavelength, sc.temperature_c);
                         let p = &solved.profile;
                         let n = p.sublayers();
                         ElementReport::Cell {

@@ -75,7 +75,7 @@ pub struct LcVoltageDesign {
 /// `retardance_waves` when the target lies outside what the cell gives between 0 V and
 /// `max_voltage_v` (the message gives that span).
 pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
-    let at = |v: f64| r.cell.solve_at(r.wavelength, v, None).retardance_waves;
+    let at = |v: f64| r.cell.solve_at(r.wavelength, r.temperature_c, v, None).retardance_waves;
     let (top, bottom) = (at(0.0), at(r.max_voltage_v));
     let target = r.retardance_waves;
     if !(bottom..=top).contains(&target) {
@@ -100,11 +100,11 @@ pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
         }
     }
     let voltage_v = 0.5 * (lo + hi);
-    let solved = r.cell.solve_at(r.wavelength, voltage_v, None);
+    let solved = r.cell.solve_at(r.wavelength, r.temperature_c, voltage_v, None);
     let h = 1e-4 * r.max_voltage_v;
     let slope = (at(voltage_v + h) - at((voltage_v - h).max(0.0))) / (voltage_v + h - (voltage_v - h).max(0.0));
     let volts = voltage_grid(r.max_voltage_v, CURVE_POINTS);
-    let curve = r.cell.retardance_curve(r.wavelength, &volts);
+    let curve = r.cell.retardance_curve(r.wavelength, r.temperature_c, &volts);
     let range = r.range_waves.map(|(low, high)| {
         let scale = high / top;
         let thickness_um = r.cell.thickness_um * scale;
@@ -189,9 +189,11 @@ mod tests {
         assert_eq!(e.field, "retardance_waves");
     }
 
-    /// The design works at its `temperature_c`: quiet at 20–30 °C, warned at 32 °C with the same
-    /// voltage (the constants do not change), refused at 5CB's clearing point (about 35 °C,
-    /// common practice, from memory); the part carries the temperature.
+    /// The design works at its `temperature_c`: quiet from 20 to 34.8 °C, where 5CB's order
+    /// parameter model is fitted; warmer, Δn is lower and a quarter wave of a thick cell needs
+    /// less voltage, and the part, traced at its own temperature, gives the quarter wave; warned
+    /// at 15 °C (extrapolated); refused at 5CB's clearing point (about 35 °C, common practice,
+    /// from memory); the part carries the temperature.
     #[test]
     fn the_cell_s_temperature_is_checked_and_carried() {
         let at = |t: f64| {
@@ -199,13 +201,21 @@ mod tests {
                 r#"{{"kind": "lc-voltage", "thickness_um": 5, "lc": "5cb", "retardance_waves": 0.25, "temperature_c": {t}}}"#
             ))
         };
-        let (quiet, warm) = (at(25.0).unwrap(), at(32.0).unwrap());
+        let (quiet, warm, cold) = (at(25.0).unwrap(), at(32.0).unwrap(), at(15.0).unwrap());
         assert_eq!(quiet["warnings"], serde_json::json!([]));
-        assert_eq!(quiet["voltage_v"], warm["voltage_v"]);
-        let w = warm["warnings"][0].as_str().unwrap();
-        assert!(w.starts_with("temperature_c: 5cb's constants"), "{w}");
+        assert_eq!(warm["warnings"], serde_json::json!([]));
+        assert!(warm["voltage_v"].as_f64().unwrap() < quiet["voltage_v"].as_f64().unwrap());
+        let w = cold["warnings"][0].as_str().unwrap();
+        assert!(
+            w.starts_with("temperature_c: 5cb's temperature model") && w.contains("extrapolated"),
+            "{w}"
+        );
         assert_eq!(warm["temperature_c"], 32.0);
         assert_eq!(warm["scenario"]["temperature_c"], 32.0);
+        let part = crate::contract::scenario::Scenario::from_json_str(&warm["scenario"].to_string()).unwrap();
+        let traced = serde_json::to_value(crate::contract::result::trace_scenario(&part).unwrap()).unwrap();
+        let gamma = traced["elements"][0]["retardance_waves"].as_f64().unwrap();
+        assert!((gamma - 0.25).abs() < 1e-6, "{gamma}");
         assert_eq!(at(35.0).unwrap_err().field, "temperature_c");
     }
 }

@@ -34,15 +34,18 @@ pub fn retardance_vs_voltage(sc: &Scenario) -> Series {
     }) else {
         return s;
     };
-    let (nematic, _) = cell.nematic(sc.wavelength);
+    let (nematic, _) = cell.nematic(sc.wavelength, sc.temperature_c);
     let layout = cell.layout();
     let threshold = nematic.threshold_v(layout.twist_rad);
     let top = (8.0 * threshold).max(1.25 * cell.voltage_v);
     let top = if top.is_finite() && top > 0.0 { top } else { 10.0 };
     let voltages = voltage_grid(top, VOLTAGE_POINTS);
-    let curve = cell.retardance_curve(sc.wavelength, &voltages);
+    let curve = cell.retardance_curve(sc.wavelength, sc.temperature_c, &voltages);
     s.points = voltages.iter().zip(&curve).map(|(&v, &r)| [v, r]).collect();
-    s.current = Some([cell.voltage_v, cell.solve(sc.wavelength).retardance_waves]);
+    s.current = Some([
+        cell.voltage_v,
+        cell.solve(sc.wavelength, sc.temperature_c).retardance_waves,
+    ]);
     s.note = format!(
         "element {}, normal incidence; threshold {} V",
         idx + 1,

@@ -3,7 +3,9 @@
 // same document gives it, the retardance-against-voltage plot and the side view's director are
 // drawn, Undo takes the voltage back, and a bad voltage is named beside its field with the entry
 // kept; custom nematic constants are edited in their own fields, checked against the
-// Freedericksz threshold formula, with a bad constant named beside its field.
+// Freedericksz threshold formula, with a bad constant named beside its field; warming the page's
+// temperature lowers the cell's retardance as the command line gives it, and the clearing point
+// is named on the temperature field with the entry kept.
 //
 // Run: `cd tests/e2e && node --test lc-cell.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -97,5 +99,23 @@ test('custom nematic constants are edited on the page: the threshold follows K11
     assert.match(msg, /eps_perpendicular/);
     assert.equal(await page.inputValue(field('eps_perpendicular')), '25', 'the entry stays for correction');
     assert.equal(await page.inputValue(field('k11_pn')), '12.5', 'the other constants are kept');
+  });
+});
+
+test('a warmer cell has the command line\'s lower retardance, and at the clearing point the temperature is named', { timeout: 120000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('button[data-add="lc_cell"]');
+    const i = cellIndex(await waitScenario(page, (s) => cellIndex(s) >= 0, 'a cell in the stack'));
+    const cold = await page.evaluate((k) => window.doublespar.session.result().elements[k].retardance_waves, i);
+    await enterValue(page, 'input.num[data-field="temperature_c"]', '33');
+    const sc = await waitScenario(page, (s) => s.temperature_c === 33, 'the set-up at 33 °C');
+    const warm = await page.evaluate((k) => window.doublespar.session.result().elements[k].retardance_waves, i);
+    const cli = cliTrace(sc).elements[i];
+    assert.ok(warm < 0.85 * cold, `warming lowers the retardance: ${cold} → ${warm}`);
+    assert.ok(Math.abs(warm - cli.retardance_waves) <= 1e-12 * cli.retardance_waves, `page ${warm}, command line ${cli.retardance_waves}`);
+    await enterValue(page, 'input.num[data-field="temperature_c"]', '36');
+    const msg = await waitError(page, 'temperature_c');
+    assert.match(msg, /clearing point/);
+    assert.equal(await page.inputValue('input.num[data-field="temperature_c"]'), '36', 'the entry stays for correction');
   });
 });

@@ -3,12 +3,30 @@
 //!
 //! Indices follow the three-term Cauchy form n(λ) = A + B/λ² + C/λ⁴ (λ in µm) fitted to the
 //! visible and near infrared at about 25 °C; elastic and dielectric constants are single values
-//! at about the same temperature (the permittivities at 1 kHz, the usual drive frequency). The
-//! catalogue holds these at one temperature only: a scenario's `temperature_c` does not change
-//! them. Each entry also records the band about that temperature in which they are used without
-//! remark and the nematic's clearing point, above which it is an isotropic liquid and the entry
-//! does not describe it at all (the contract refuses such a temperature). Values marked "from
-//! memory" were recalled, not copied from the paper at hand.
+//! at about the same temperature (the permittivities at 1 kHz, the usual drive frequency).
+//!
+//! Temperature. A nematic's anisotropies follow its orientational order parameter S(T), which
+//! falls as the clearing point nears. The catalogue takes S in Haller's form,
+//! S ∝ (1 − T/T_c)^β (I. Haller, Prog. Solid State Chem. 10, 103 (1975)), so that relative to the
+//! reference temperature T₀ the order scales by r(T) = ((T_c − T)/(T_c − T₀))^β, and moves the
+//! constants with it:
+//! - birefringence Δn(λ, T) = r·Δn(λ, T₀) at every wavelength, the mean index
+//!   ⟨n⟩ = (n_e + 2n_o)/3 held (the four-parameter model of J. Li, S. Gauza and S.-T. Wu,
+//!   J. Appl. Phys. 96, 19 (2004), without its slow linear fall of ⟨n⟩, about −5·10⁻⁴ /K from
+//!   memory, which moves n_e and n_o together and the retardance not at all);
+//! - elastic constants K_ii ∝ S² and dielectric anisotropy Δε ∝ S with the mean permittivity
+//!   held (mean-field scaling: P. G. de Gennes and J. Prost, *The Physics of Liquid Crystals*,
+//!   2nd ed. (1993), §3.1; Maier–Meier, without the 1/T of its dipolar term, 5 % over 20–35 °C),
+//!   so the Freedericksz threshold scales as √r.
+//!
+//! β of each entry is a published exponent and T_c is fitted to a published measurement of Δn at
+//! several temperatures (both named beside them); T_c so fitted lies a little above the clearing
+//! point, where the
+//! nematic–isotropic transition (weakly first order) cuts the curve off. Each entry records the
+//! band of that measurement, outside which the answer says the model is extrapolated, and the
+//! clearing point, at and above which the nematic is an isotropic liquid and the entry does not
+//! describe it at all (the contract refuses such a temperature). Values marked "from memory"
+//! were recalled, not copied from the paper at hand.
 
 use crate::optics::lc::nematic::Nematic;
 
@@ -29,7 +47,13 @@ pub struct NematicEntry {
     pub k_pn: [f64; 3],
     /// ε∥ and ε⊥ (static, 1 kHz).
     pub eps: [f64; 2],
-    /// Temperatures at which the constants are used without remark, °C: about their measurement.
+    /// Temperature at which the indices, elastic and dielectric constants above hold, °C.
+    pub reference_c: f64,
+    /// Haller's T_c of the order parameter's temperature model, °C (above the clearing point).
+    pub haller_tc_c: f64,
+    /// Haller's exponent β.
+    pub haller_beta: f64,
+    /// Temperatures of the measurement the model is fitted to, °C: inside, it is used without remark.
     pub quiet_c: (f64, f64),
     /// Nematic–isotropic transition (clearing point), °C.
     pub clearing_c: f64,
@@ -53,13 +77,27 @@ pub const NEMATICS: [NematicEntry; 1] = [NematicEntry {
     k_pn: [6.4, 3.0, 10.0],
     // Bradshaw et al. (1985), from memory: ε∥ = 19.7, ε⊥ = 6.7 at 1 kHz (Δε = 13.0).
     eps: [19.7, 6.7],
-    // Measured at about 25 °C; used without remark from 20 to 30 °C. 5CB is nematic from about
-    // 24 °C (it supercools in thin cells, so room temperature is usual) and clears at about
-    // 35 °C (common practice, from memory: 35.0–35.3 °C is quoted). Its birefringence falls
-    // steeply as the clearing point nears, which these fixed constants do not follow.
-    quiet_c: (20.0, 30.0),
+    reference_c: 25.0,
+    // β: the mean critical exponent of the nCB homologues (n = 5–8), 0.241 ± 0.012, measured
+    // from their refractive indices by M. Chirtoc et al., "Determination of the order parameter
+    // and its critical exponent for nCB (n=5–8) liquid crystals from refractive index data",
+    // Liq. Cryst. 31, 229 (2004) (as its abstract gives it). T_c: fitted here (least squares on
+    // Δn, with β so fixed) to 5CB's indices of S.-T. Wu, C.-S. Wu, M. Warenghem and
+    // M. Ismaili, "Refractive index dispersions of liquid crystals", Opt. Eng. 32, 1775 (1993),
+    // at 589 nm and 25.1, 32.6 and 34.8 °C, as the refractiveindex.info database holds them;
+    // residuals 0.0034 at most in Δn. Its n_e formula at 27.2 °C and at 29.9 °C is one and the
+    // same, so that n_e's temperature is unknown and it is left out. The other wavelengths and
+    // n_o at every temperature are checked in tests/reference/lc_temperature_reference.py.
+    haller_tc_c: 36.81,
+    haller_beta: 0.241,
+    // The measurement spans 25.1 to 34.8 °C. Down to 20 °C the model is a short extrapolation of
+    // a smooth curve (Δn 9 % above its 25 °C value at 20 °C), used without remark because room
+    // temperature is where such cells work: 5CB is nematic from about 24 °C and supercools in
+    // thin cells. Below 20 °C the answer says the model is extrapolated. It clears at about
+    // 35 °C (common practice, from memory: 35.0–35.3 °C is quoted).
+    quiet_c: (20.0, 34.8),
     clearing_c: 35.0,
-    source: "indices: Li & Wu, J. Appl. Phys. 95, 896 (2004); elastic and dielectric constants: Bradshaw et al., J. Physique 46, 1513 (1985)",
+    source: "indices: Li & Wu, J. Appl. Phys. 95, 896 (2004); elastic and dielectric constants: Bradshaw et al., J. Physique 46, 1513 (1985); temperature: Haller's order parameter fitted to Wu et al., Opt. Eng. 32, 1775 (1993)",
 }];
 
 /// The catalogued nematic with this key (any case).
@@ -78,17 +116,37 @@ fn cauchy([a, b, c]: [f64; 3], um: f64) -> f64 {
 }
 
 impl NematicEntry {
+    /// The order parameter at `temperature_c` relative to the reference temperature's,
+    /// r = ((T_c − T)/(T_c − T₀))^β; meant for temperatures below the clearing point (the
+    /// contract refuses others), 0 at and above Haller's T_c.
+    pub fn order_ratio(&self, temperature_c: f64) -> f64 {
+        let span = self.haller_tc_c - self.reference_c;
+        ((self.haller_tc_c - temperature_c).max(0.0) / span).powf(self.haller_beta)
+    }
+
     /// Its constants at vacuum wavelength `wavelength_um` (the Cauchy fits are in air and the
-    /// difference, 3·10⁻⁴ of λ, is far below their accuracy).
-    pub fn at(&self, wavelength_um: f64) -> Nematic {
+    /// difference, 3·10⁻⁴ of λ, is far below their accuracy) and `temperature_c`, moved from the
+    /// reference temperature with the order parameter (see the module's header).
+    pub fn at(&self, wavelength_um: f64, temperature_c: f64) -> Nematic {
+        let r = self.order_ratio(temperature_c);
+        let (no, ne) = (
+            cauchy(self.no_cauchy, wavelength_um),
+            cauchy(self.ne_cauchy, wavelength_um),
+        );
+        let mean_n = (ne + 2.0 * no) / 3.0;
+        let dn = r * (ne - no);
+        let [eps_par, eps_perp] = self.eps;
+        let mean_eps = (eps_par + 2.0 * eps_perp) / 3.0;
+        let de = r * (eps_par - eps_perp);
+        let [k11, k22, k33] = self.k_pn.map(|k| k * r * r);
         Nematic {
-            no: cauchy(self.no_cauchy, wavelength_um),
-            ne: cauchy(self.ne_cauchy, wavelength_um),
-            k11_pn: self.k_pn[0],
-            k22_pn: self.k_pn[1],
-            k33_pn: self.k_pn[2],
-            eps_parallel: self.eps[0],
-            eps_perpendicular: self.eps[1],
+            no: mean_n - dn / 3.0,
+            ne: mean_n + 2.0 * dn / 3.0,
+            k11_pn: k11,
+            k22_pn: k22,
+            k33_pn: k33,
+            eps_parallel: mean_eps + 2.0 * de / 3.0,
+            eps_perpendicular: mean_eps - de / 3.0,
         }
     }
 
@@ -107,11 +165,40 @@ mod tests {
     /// Freedericksz threshold near 0.7 V (common practice for 5CB planar cells).
     #[test]
     fn five_cb_reference_values() {
-        let lc = find("5CB").unwrap().at(0.589);
+        let lc = find("5CB").unwrap().at(0.589, 25.0);
         assert_within(lc.ne, 1.716, 2e-3, "n_e of 5CB at 589 nm");
         assert_within(lc.no, 1.533, 2e-3, "n_o of 5CB at 589 nm");
         assert!((lc.threshold_v(0.0) - 0.74).abs() < 0.05, "{}", lc.threshold_v(0.0));
         assert_eq!(keys(), vec!["5cb"]);
         assert!(find("8cb").is_none());
+    }
+
+    /// At the reference temperature the constants are the catalogue's; warmer, Δn, Δε and K
+    /// fall together with the mean index and mean permittivity held, and the threshold falls as
+    /// √r (the scalings of the module's header).
+    #[test]
+    fn five_cb_moves_with_its_order_parameter() {
+        let e = find("5cb").unwrap();
+        let (cold, warm) = (e.at(0.633, 25.0), e.at(0.633, 33.0));
+        assert_within(cold.ne, cauchy(e.ne_cauchy, 0.633), 1e-15, "n_e at the reference");
+        assert_within(cold.k11_pn, 6.4, 1e-15, "K11 at the reference");
+        let r = e.order_ratio(33.0);
+        assert!(r > 0.7 && r < 0.9, "{r}");
+        assert_within(warm.ne - warm.no, r * (cold.ne - cold.no), 1e-15, "Δn scales with r");
+        assert_within(
+            warm.ne + 2.0 * warm.no,
+            cold.ne + 2.0 * cold.no,
+            1e-14,
+            "mean index held",
+        );
+        assert_within(warm.delta_eps(), r * cold.delta_eps(), 1e-13, "Δε scales with r");
+        assert_within(warm.k33_pn, r * r * cold.k33_pn, 1e-13, "K33 scales with r²");
+        assert_within(
+            warm.threshold_v(0.0),
+            r.sqrt() * cold.threshold_v(0.0),
+            1e-12,
+            "threshold ∝ √r",
+        );
+        assert!(e.order_ratio(20.0) > 1.0 && e.order_ratio(e.haller_tc_c + 1.0) == 0.0);
     }
 }

@@ -47,7 +47,7 @@ mod tests {
     /// from (n_eff(pretilt) − n_o) d/λ, and is flat (pretilt 0) below the Freedericksz threshold.
     #[test]
     fn sweep_matches_cold_solves() {
-        let lc = find("5cb").unwrap().at(0.633);
+        let lc = find("5cb").unwrap().at(0.633, 25.0);
         let cell = CellLayout {
             thickness_um: 5.0,
             rubbing_rad: 0.0,

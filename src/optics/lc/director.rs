@@ -388,7 +388,7 @@ mod tests {
 
     /// 5CB from the catalogue at 633 nm.
     fn lc() -> Nematic {
-        crate::optics::lc::catalogue::find("5cb").unwrap().at(0.633)
+        crate::optics::lc::catalogue::find("5cb").unwrap().at(0.633, 25.0)
     }
 
     fn cell(twist_deg: f64, pretilt_deg: f64) -> CellLayout {

@@ -239,7 +239,7 @@ mod tests {
 
     /// 5CB from the catalogue at 633 nm.
     fn lc() -> Nematic {
-        crate::optics::lc::catalogue::find("5cb").unwrap().at(0.633)
+        crate::optics::lc::catalogue::find("5cb").unwrap().at(0.633, 25.0)
     }
 
     fn assert_matrix(a: &JonesMatrix, b: &JonesMatrix, tol: f64, what: &str) {
