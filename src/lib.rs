@@ -41,6 +41,7 @@ pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
+pub use optics::coincident::coincident_power;
 pub use optics::conoscope::Quantity as ConoscopeQuantity;
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};

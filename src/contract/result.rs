@@ -906,6 +906,10 @@ fn transmission_at_wavelength(
         ..sc.clone()
     };
     let (stack, _) = at.resolve()?;
+    // Where every ray leaves from one point, their one spot's power is the set-up's matrix's.
+    if let Some(power) = crate::optics::coincident::coincident_power(&stack) {
+        return Ok(power);
+    }
     let traced = trace(&stack);
     Ok(spots(&stack, &traced).iter().map(|s| s.power).sum())
 }

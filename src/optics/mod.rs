@@ -5,6 +5,7 @@
 pub mod anisotropic;
 pub mod beam_overlap;
 pub mod chain;
+pub mod coincident;
 pub mod colorimetry;
 pub mod conoscope;
 pub mod general_modes;

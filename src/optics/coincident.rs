@@ -1,0 +1,45 @@
+//! The forward power of a stack whose rays all leave from one point: the set-up's Jones matrix.
+//!
+//! Physics. In a stack of plane-parallel plates every ray shares the incident tangential wave
+//! vector and leaves along the incident direction (`optics::parallel`). Where, in addition, each
+//! plate moves its two modes' rays by the same lateral shift (no walk-off between them: a plate
+//! at normal incidence with its optic axis in the faces, or along the normal), every path leaves
+//! from one point. The spots then hold one site, whose field is the sum of the paths' Jones
+//! matrices (`optics::spots`: rays within [`SITE_FRACTION_OF_RADIUS`] of the beam radius add with
+//! overlap 1 to the last bit), and that sum is the product of each element's matrix,
+//! t_out·diag(e^{i k0 q_z L})·t_in for a plate (`optics::conoscope::set_up_matrix`): one 2×2
+//! product per element instead of 2^N paths and their grouping. The forward power is
+//! tr(M C_in Mᴴ) for the input's coherency matrix C_in. The two agree to rounding (the sum is
+//! taken in another order); `tests/spectrum.rs` compares them on filters and on stacks where the
+//! rays part, which this module declines.
+//!
+//! Conventions: as `optics::parallel`. Used by spectra, where every wavelength needs only the
+//! forward power.
+
+use crate::optics::conoscope::{conoscope_stack_ok, set_up_matrix};
+use crate::optics::modes::Travel;
+use crate::optics::spots::power_of;
+use crate::optics::stack::{Element, Stack};
+use crate::precision::SITE_FRACTION_OF_RADIUS;
+
+/// The total forward power of `stack` when all its rays leave from one point (see the module's
+/// header), by the set-up's matrix; `None` when the stack has faces at an angle or a crystal this
+/// product cannot solve, or when some plate parts its two rays by more than the site tolerance
+/// (summed over the plates).
+pub fn coincident_power(stack: &Stack) -> Option<f64> {
+    conoscope_stack_ok(stack).ok()?;
+    let qt = stack.tangential();
+    let tolerance = SITE_FRACTION_OF_RADIUS * 0.5 * stack.input.diameter_mm;
+    let mut spread = 0.0;
+    for layer in &stack.layers {
+        let Element::Slab(slab) = layer.element else {
+            continue;
+        };
+        let [a, b] = slab.medium.modes(qt, Travel::Forward);
+        if let (Some(s), Some(t)) = (a.ray_direction(), b.ray_direction()) {
+            let l = slab.thickness_mm;
+            spread += l * (s.x / s.z - t.x / t.z).hypot(s.y / s.z - t.y / t.z);
+        }
+    }
+    (spread <= tolerance).then(|| power_of(&set_up_matrix(stack, qt), &stack.input.stokes))
+}
