@@ -498,9 +498,9 @@ static THERMAL: [Thermal; 11] = [
         // 39, 5796 (2000), abstract): γ = −5.37e-5 /K (combined standard uncertainty 0.17e-5) at
         // 633-1539 nm over 24-80 °C, with a small wavelength dependence; with α⊥ = 8.9e-6 /K
         // (below), (1/Δn) dΔn/dT = γ − α⊥ = −6.26e-5 /K, so dn_e/dT = 1.12e-6 − 6.26e-5 Δn(λ) /K:
-        // +0.38e-6 /K at 633 nm. Feldman's dn_e/dT, +0.58e-6 /K at 633 nm from memory, gives a
-        // birefringence slope of −0.54e-6 /K against the −0.74e-6 /K measured (tests/temperature.rs
-        // compares the two). Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
+        // +0.38e-6 /K at 633 nm. Feldman's dn_e/dT, +0.565e-6 /K at 633 nm by G. Ghosh's fit of
+        // those data (tests/temperature.rs), gives a birefringence slope of −0.55e-6 /K against the
+        // −0.74e-6 /K measured; no second independent measurement of the slope was found. Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
         // X. Wang and D. Thompson, Opt. Mater. Express 13, 2380-2391 (2023), 21-368 °C (as carried
         // by the public-domain database of optical constants); their 21.1 and 186.4 °C sets give
         // dn_o/dT ≈ −7.8e-6 and dn_e/dT ≈ −5.7e-6 /K at 633 nm, opposite in sign to Feldman's, and
