@@ -1358,7 +1358,7 @@ function onControlEvent(ev) {
     if (field.endsWith('.kind')) {
       card.changeKind(t.value);
       renumberCards();
-    } else if (field.endsWith('.material') || field.endsWith('.lc') || field.includes('.dispersion.range_nm')) {
+    } else if (field.endsWith('.material') || field.endsWith('.lc') || field.endsWith('.dispersion') || field.includes('.dispersion.range_nm')) {
       card.showMaterial();
     } else if (field.endsWith('.contact')) {
       card.geometry.contactChanged();

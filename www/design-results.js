@@ -559,15 +559,21 @@ export function polarizerResults(state, d, run, request) {
 }
 
 export function tiltResults(state, d) {
-  // A biaxial plate is cut along a principal axis, its slow in-face axis at `axis_azimuth_deg`.
+  // A biaxial plate is cut along a principal axis and has no optic axis in its faces: its fast
+  // in-face principal axis (the f-wave's polarization) at `fast_axis_azimuth_deg`, its slow one
+  // at `axis_azimuth_deg`.
   const axisRows = d.cut ? [
     ['cut', 'cut', formats.text],
-    ['slow axis azimuth (in the faces)', 'axis_azimuth_deg', formats.deg],
+    [`fast axis, principal ${d.fast_principal_axis} (azimuth in the faces)`, 'fast_axis_azimuth_deg', formats.deg],
+    [`slow axis, principal ${d.slow_principal_axis} (azimuth in the faces)`, 'axis_azimuth_deg', formats.deg],
   ] : [['optic axis azimuth (in the faces)', 'scenario.elements.0.axis.azimuth_deg', formats.deg]];
+  const sign = d.cut
+    ? { note: `Positive when the s-wave, polarized along principal ${d.slow_principal_axis}, lags the f-wave along principal ${d.fast_principal_axis} (as untilted).` }
+    : {};
   return [
     h('p', { className: 'design-headline' },
       `Tilt the ${partMaterial(state, d)} plate, `, dq(d, 'thickness_mm', formats.length, 'strong'),
-      d.cut ? ` thick, ${d.cut}-cut (light along principal ${d.cut}), by ` : ' thick, by ',
+      d.cut ? ` thick, ${d.cut}-cut (light along principal ${d.cut}; fast axis principal ${d.fast_principal_axis}), by ` : ' thick, by ',
       dq(d, 'tilt_deg', formats.deg, 'strong'), ' in its mount: its retardance goes from ',
       dq(d, 'normal_retardance_waves', formats.waves, 'strong'), ' untilted to ', dq(d, 'retardance_waves', formats.waves, 'strong'), '.'),
     resultCard(d, 'What to order and set', [
@@ -581,7 +587,7 @@ export function tiltResults(state, d) {
       ['whole waves beyond the target', 'order', formats.count],
       ['untilted', 'normal_retardance_waves', formats.waves],
       ['per degree of tilt', 'sensitivity_waves_per_deg', formats.sig('waves/°', 4)],
-    ]),
+    ], sign),
   ];
 }
 

@@ -241,7 +241,8 @@ function materialRows(key, label, materialList) {
   if (!m) return [[label, key === 'custom' ? 'custom-index' : String(key)], ['Data source', 'custom indices given in the request (no dispersion, no source)']];
   const name = m.name.toLowerCase().includes(m.key) ? m.name : `${m.name} (${m.key})`;
   const unverified = m.verified === false ? '; unverified data: its formula has no journal source' : '';
-  return [[label, `${name}, ${m.sign} uniaxial; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`], ['Data source', m.citation]];
+  const kind = m.kind === 'biaxial' ? 'biaxial (n_x < n_y < n_z)' : `${m.sign} uniaxial`;
+  return [[label, `${name}, ${kind}; data valid ${m.range_nm[0]}–${m.range_nm[1]} nm${unverified}`], ['Data source', m.citation]];
 }
 
 // The prism kinds share one frame (CONVENTIONS.md, version 2; src/design/splitter.rs,
@@ -312,11 +313,16 @@ function polarizerRows(d, r, materialList) {
 /** The tilt-tuned waveplate: a plate in a tilted mount (src/design/tilt.rs). */
 function tiltRows(d, r, materialList) {
   const plate = d.scenario?.elements?.[0] ?? {};
-  const rows = materialRows(plate.material ?? r.material, 'Material', materialList);
+  // A plate of custom principal indices names them; a catalogue crystal its data.
+  const rows = plate.nz !== undefined
+    ? [['Material', `custom biaxial crystal, n_x ${sheetNumber(plate.nx)}, n_y ${sheetNumber(plate.ny)}, n_z ${sheetNumber(plate.nz)}`], ['Data source', 'custom indices given in the request (no dispersion, no source)']]
+    : materialRows(plate.material ?? r.material, 'Material', materialList);
   const made = typeof r.order_number === 'number' ? ` (order ${r.order_number}${typeof r.made_for_nm === 'number' ? ` at ${nm(r.made_for_nm)}` : ''})` : '';
   rows.push(['Dimensions', `plate ${mm(d.thickness_mm)} thick${made}`]);
+  // A biaxial plate has no optic axis in its faces: its two in-face principal axes, the fast one
+  // first; at normal incidence the f- and s-waves are polarized along them.
   rows.push(['Cut', d.cut
-    ? `${d.cut}-cut: principal ${d.cut} along the face normal; slow axis at ${deg(d.axis_azimuth_deg)} from x`
+    ? `${d.cut}-cut: principal ${d.cut} along the face normal; fast axis principal ${d.fast_principal_axis} at ${deg(d.fast_axis_azimuth_deg)} from x, slow axis principal ${d.slow_principal_axis} at ${deg(d.axis_azimuth_deg)} (the f- and s-waves at normal incidence are polarized along them)`
     : `optic axis in the face, at ${deg(plate.axis?.azimuth_deg)} from x`]);
   rows.push(['Mount', `tilted by ${deg(d.tilt_deg)} in the plane at azimuth ${deg(plate.mount?.azimuth_deg)} from x; there the retardance changes by ${sheetNumber(d.sensitivity_waves_per_deg, 3)} waves per degree of tilt`]);
   rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);

@@ -1,15 +1,25 @@
 // Doublespar page: a stack card's custom dispersion formula (the crystal's `dispersion`), entered
-// compactly: the validity range, and for the o and e axes the constant A, up to three Sellmeier
-// terms (B, C) and the infrared term D of n² = A + Σ B λ²/(λ² − C) − D λ² (λ in µm, C in µm²).
-// The values stay in the card while another material is chosen, so nothing entered is lost. A
-// loaded formula the compact entry cannot show (x, y, z; poles; more terms) is kept and sent as
-// loaded; members it does not show (fitted_in, citation) are carried along.
+// compactly: the validity range, the form (uniaxial: o and e; biaxial: principal axes x, y, z)
+// and for each axis of the form the constant A, up to three Sellmeier terms (B, C) and the
+// infrared term D of n² = A + Σ B λ²/(λ² − C) − D λ² (λ in µm, C in µm²). The values stay in the
+// card while another material or the other form is chosen, so nothing entered is lost; a form
+// chosen for the first time starts from the other's formulas (x and y from o, z from e; back, o
+// from x and e from z), so that it traces at once. A loaded formula the compact entry cannot show
+// (both forms at once; poles; more terms) is kept and sent as loaded; members it does not show
+// (fitted_in, citation) are carried along.
 // Contract: the class's methods below (DEVELOPERS.md, "Custom dispersion on the page").
 
 import { h, setAttr } from './dom.js';
 import { Field, errorSlot } from './field-error.js';
 
-const AXES = [['o', 'ordinary (o)'], ['e', 'extraordinary (e)']];
+const FORMS = {
+  uniaxial: [['o', 'ordinary (o)'], ['e', 'extraordinary (e)']],
+  biaxial: [['x', 'principal axis x'], ['y', 'principal axis y'], ['z', 'principal axis z']],
+};
+const AXES = [...FORMS.uniaxial, ...FORMS.biaxial];
+const NAMES = AXES.map(([axis]) => axis);
+// Where a form chosen with all its fields blank takes its formulas from: axis -> other form's axis.
+const START_FROM = { x: 'o', y: 'o', z: 'e', o: 'x', e: 'z' };
 const TERMS = 3;
 // A starting formula that traces at once: calcite's published coefficients (G. Ghosh, Opt.
 // Commun. 163, 95 (1999)), as the catalogue holds them.
@@ -23,19 +33,23 @@ const START = {
 export const FORMULA_GROUPS = {
   'elements[].dispersion': 'Dispersion formula',
   'elements[].dispersion.range_nm': 'Formula range',
-  'elements[].dispersion.o': 'Formula for o',
-  'elements[].dispersion.e': 'Formula for e',
-  'elements[].dispersion.o.sellmeier': 'Sellmeier terms for o',
-  'elements[].dispersion.e.sellmeier': 'Sellmeier terms for e',
+  ...Object.fromEntries(NAMES.flatMap((axis) => [
+    [`elements[].dispersion.${axis}`, `Formula for ${axis}`],
+    [`elements[].dispersion.${axis}.sellmeier`, `Sellmeier terms for ${axis}`],
+  ])),
 };
 
 const isObject = (v) => v !== null && typeof v === 'object' && !Array.isArray(v);
 const only = (o, keys) => Object.keys(o).every((k) => keys.includes(k));
 
+/** The form a loaded `dispersion` gives: "biaxial" with any of x, y, z, else "uniaxial". */
+const formOf = (d) => (['x', 'y', 'z'].some((k) => k in d) ? 'biaxial' : 'uniaxial');
+
 /** Whether the compact entry shows all of a loaded `dispersion` (its other members aside). */
 function fits(d) {
-  if (!isObject(d) || 'x' in d || 'y' in d || 'z' in d) return false;
-  return AXES.every(([axis]) => {
+  if (!isObject(d)) return false;
+  if (['o', 'e'].some((k) => k in d) && formOf(d) === 'biaxial') return false;
+  return NAMES.every((axis) => {
     const f = d[axis];
     if (f === undefined) return true;
     if (!isObject(f) || !only(f, ['a', 'sellmeier', 'ir'])) return false;
@@ -49,9 +63,18 @@ export class CardFormula {
     const num = (key, label, spoken, unit = '') => new Field({ key, label, spoken, unit, step: 0.001 });
     this.lo = num('dispersion.range_nm[0]', 'From', 'Formula valid from', 'nm');
     this.hi = num('dispersion.range_nm[1]', 'to', 'Formula valid to', 'nm');
+    // The form is a choice of which members the `dispersion` object holds, so its control
+    // carries the object's own path (its error slot takes the object's messages).
+    this.form = new Field({ key: 'dispersion',
+      label: 'Dispersion formula',
+      kind: 'select',
+      options: [['uniaxial', 'uniaxial: o and e'], ['biaxial', 'biaxial: x, y and z']],
+      hint: 'Biaxial: one formula per principal axis; the orientation then takes a roll.' });
+    for (const type of ['input', 'change']) this.form.input.addEventListener(type, () => this.showForm(true));
     this.axes = {};
+    this.groups = {};
     this.slots = { dispersion: errorSlot(null), 'dispersion.range_nm': errorSlot(null) };
-    const groups = AXES.map(([axis, title]) => {
+    for (const [axis, title] of AXES) {
       const p = `dispersion.${axis}`;
       const a = num(`${p}.a`, 'A', `${axis}: A`);
       const terms = [];
@@ -59,26 +82,49 @@ export class CardFormula {
         terms.push([num(`${p}.sellmeier[${i}][0]`, `B${i + 1}`, `${axis}: B${i + 1}`), num(`${p}.sellmeier[${i}][1]`, `C${i + 1}`, `${axis}: C${i + 1}`, 'µm²')]);
       }
       const ir = num(`${p}.ir`, 'D', `${axis}: D, infrared term`, 'µm⁻²');
-      this.axes[axis] = { a, terms, ir };
+      this.axes[axis] = { a, terms, ir, fields: [a, ir, ...terms.flat()] };
       this.slots[p] = errorSlot(null);
       this.slots[`${p}.sellmeier`] = errorSlot(null);
-      return h('div', { className: 'subgroup formula-axis' },
+      this.groups[axis] = h('div', { className: 'subgroup formula-axis' },
         h('p', { className: 'subgroup-title', text: title }),
         h('div', { className: 'pair-grid' }, a.row, ir.row, ...terms.flat().map((f) => f.row)),
         this.slots[`${p}.sellmeier`], this.slots[p]);
-    });
-    this.fields = [this.lo, this.hi, ...Object.values(this.axes).flatMap((x) => [x.a, x.ir, ...x.terms.flat()])];
+    }
+    this.fields = [this.lo, this.hi, this.form, ...Object.values(this.axes).flatMap((x) => x.fields)];
     this.entry = h('div', {},
       h('p', { className: 'hint', text: 'n² = A + Σ B λ²/(λ² − C) − D λ², λ in µm; blank terms are left out.' }),
-      h('div', { className: 'pair-grid' }, this.lo.row, this.hi.row), this.slots['dispersion.range_nm'], ...groups);
-    this.keptNote = h('p', { className: 'hint', text: 'The formula as loaded (principal axes x, y, z, poles or more terms than shown here) is kept and sent as it is.' });
+      h('div', { className: 'pair-grid' }, this.lo.row, this.hi.row), this.slots['dispersion.range_nm'], this.form.row,
+      ...Object.values(this.groups));
+    this.keptNote = h('p', { className: 'hint', text: 'The formula as loaded (both o, e and x, y, z, poles or more terms than shown here) is kept and sent as it is.' });
     this.box = h('div', { className: 'subgroup custom-formula' }, this.entry, this.keptNote, this.slots.dispersion);
     this.load(START);
   }
 
-  /** Whether the formula kept as loaded gives principal axes x, y, z. */
+  /** Whether the formula gives principal axes x, y, z (as entered, or as kept when loaded). */
   isBiaxial() {
-    return isObject(this.asLoaded) && ('x' in this.asLoaded || 'y' in this.asLoaded || 'z' in this.asLoaded);
+    if (this.asLoaded === null) return this.form.value === 'biaxial';
+    return isObject(this.asLoaded) && formOf(this.asLoaded) === 'biaxial';
+  }
+
+  /** The axes of the chosen form, e.g. ['o', 'e']. */
+  shownAxes() {
+    return (FORMS[this.form.value] ?? FORMS.uniaxial).map(([axis]) => axis);
+  }
+
+  /** Shows the chosen form's axes; chosen by the user (`start`) with all its fields blank, the
+   * form starts from the other's formulas. */
+  showForm(start = false) {
+    const shown = this.shownAxes();
+    if (start && shown.every((axis) => this.axes[axis].fields.every((f) => f.blank))) {
+      for (const axis of shown) {
+        const from = this.axes[START_FROM[axis]];
+        this.axes[axis].fields.forEach((f, i) => f.set(from.fields[i].input.value));
+      }
+    }
+    for (const [axis, g] of Object.entries(this.groups)) {
+      const hide = !shown.includes(axis);
+      if (g.hidden !== hide) g.hidden = hide;
+    }
   }
 
   /** The range as entered, for the material note. */
@@ -93,7 +139,8 @@ export class CardFormula {
     for (const [rel, slot] of Object.entries(this.slots)) setAttr(slot, 'data-error-for', `${p}.${rel}`);
   }
 
-  /** Loads a `dispersion` member, tolerating anything (a bad value stays, to be named). */
+  /** Loads a `dispersion` member, tolerating anything (a bad value stays, to be named). The
+   * fields of the form it does not give keep what they hold. */
   load(d) {
     this.asLoaded = fits(d) ? null : d;
     this.extra = {};
@@ -101,12 +148,13 @@ export class CardFormula {
     this.keptNote.hidden = this.asLoaded === null;
     if (this.asLoaded !== null) return;
     for (const [k, v] of Object.entries(d)) {
-      if (!['range_nm', 'o', 'e'].includes(k)) this.extra[k] = v;
+      if (k !== 'range_nm' && !NAMES.includes(k)) this.extra[k] = v;
     }
     const range = Array.isArray(d.range_nm) ? d.range_nm : [d.range_nm, ''];
     this.lo.set(range[0] ?? '');
     this.hi.set(range[1] ?? '');
-    for (const [axis] of AXES) {
+    this.form.set(formOf(d));
+    for (const axis of this.shownAxes()) {
       const f = d[axis] ?? {};
       const x = this.axes[axis];
       x.a.set(f.a ?? '');
@@ -117,14 +165,15 @@ export class CardFormula {
         c.set(pair[1]);
       });
     }
+    this.showForm();
   }
 
-  /** The `dispersion` member: blank trailing terms and a blank D left out, a blank A sent for
-   * the core to name. */
+  /** The `dispersion` member in the chosen form: blank trailing terms and a blank D left out, a
+   * blank A sent for the core to name. */
   write() {
     if (this.asLoaded !== null) return this.asLoaded;
     const d = { range_nm: [this.lo.value, this.hi.value] };
-    for (const [axis] of AXES) {
+    for (const axis of this.shownAxes()) {
       const x = this.axes[axis];
       const f = { a: x.a.value };
       const used = x.terms.map(([b, c]) => !b.blank || !c.blank).lastIndexOf(true) + 1;

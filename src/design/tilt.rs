@@ -31,9 +31,15 @@
 //! 2π (n_slow − n_fast) L / λ; a plate given by its order is sized with that birefringence at
 //! `made_for_nm`. The tilted plate is traced whole as a uniaxial one is (the general mode solver
 //! in each face), the retardance being the phase of the s-path less that of the f-path; its
-//! thickness grows by the expansion along the cut's axis.
+//! thickness grows by the expansion along the cut's axis. The answer names the plate's two
+//! in-face principal axes by their letters, the slow one (`slow_principal_axis`, at
+//! `axis_azimuth_deg`) and the fast one (`fast_principal_axis`, across it at
+//! `fast_axis_azimuth_deg`, folded into (−90°, 90°]), as they stand in the untilted plate: the
+//! f- and s-waves at normal incidence are polarized along them (there is no optic axis in the
+//! faces to name).
 
 use crate::contract::geometry::{Angles, Contact, Placement};
+use crate::contract::request::principal::AXIS_LETTERS;
 use crate::contract::request::{PlateSize, TiltRequest};
 use crate::design::part::{Part, oriented_crystal, placed};
 use crate::design::principal::{BiaxialCut, biaxial_cut};
@@ -92,6 +98,18 @@ pub struct TiltDesign {
     /// (the part's `axes` write the whole orientation).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub axis_azimuth_deg: Option<f64>,
+    /// For a biaxial crystal, the slower in-face principal axis (`x`, `y` or `z`), along which the
+    /// s-wave is polarized at normal incidence.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub slow_principal_axis: Option<String>,
+    /// For a biaxial crystal, the faster in-face principal axis, along which the f-wave is
+    /// polarized at normal incidence: the plate's fast axis.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fast_principal_axis: Option<String>,
+    /// For a biaxial crystal, the azimuth of the fast axis in the faces, degrees: the slow axis's
+    /// plus 90°, folded into (−90°, 90°].
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fast_axis_azimuth_deg: Option<f64>,
     /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub principal_indices: Option<[f64; 3]>,
@@ -176,6 +194,13 @@ impl TiltRequest {
         part.scenario.screen_mm = SCREEN_MM;
         part
     }
+}
+
+/// The azimuth across `azimuth_deg` in a plate's faces: 90° more, folded into (−90°, 90°]
+/// (an axis's azimuth is defined modulo 180°).
+fn across(azimuth_deg: f64) -> f64 {
+    let a = (azimuth_deg + 90.0).rem_euclid(180.0);
+    if a > 90.0 { a - 180.0 } else { a }
 }
 
 /// Retardance (waves) of a part with one crystal: phase of "e" less that of "o" (uniaxial), of
@@ -291,6 +316,9 @@ pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
         cut: cut.biaxial.as_ref().map(|b| b.cut.clone()),
         cut_note: cut.biaxial.as_ref().map(|b| b.note.clone()),
         axis_azimuth_deg: cut.biaxial.as_ref().map(|_| req.axis_azimuth_deg),
+        slow_principal_axis: cut.biaxial.as_ref().map(|b| AXIS_LETTERS[b.slow_fast.0].to_string()),
+        fast_principal_axis: cut.biaxial.as_ref().map(|b| AXIS_LETTERS[b.slow_fast.1].to_string()),
+        fast_axis_azimuth_deg: cut.biaxial.as_ref().map(|_| across(req.axis_azimuth_deg)),
         principal_indices: cut.biaxial.as_ref().map(|b| b.principal),
         scenario: tuned,
     })
@@ -354,6 +382,59 @@ mod tests {
                 assert_within(*g, oblique, 1e-9, "a mounted plate against oblique incidence");
             }
         }
+    }
+
+    #[test]
+    fn a_biaxial_plate_names_its_fast_axis_as_the_traced_f_wave_is_polarized() {
+        // Independent method: the exact trace of the untilted plate (the general mode solver)
+        // gives the f-wave's D polarization; the answer's fast axis is the in-face principal
+        // axis along it, at the answer's azimuth, and the s-wave lies along the slow one. KTP
+        // y-cut (n_z > n_x: slow z, fast x) and an LBO x-cut (n_z > n_y: slow z, fast y), at
+        // azimuths that fold.
+        for (doc, slow, fast, fast_az) in [
+            (
+                r#"{"material": "ktp", "wavelength_nm": 1064, "retardance_waves": 0.25, "order_number": 9, "made_for_nm": 1050, "tilt_azimuth_deg": 90}"#,
+                "z",
+                "x",
+                90.0,
+            ),
+            (
+                r#"{"material": "lbo", "cut": "x", "wavelength_nm": 532, "retardance_waves": 0.25, "thickness_mm": 1, "axis_azimuth_deg": 30, "tilt_azimuth_deg": 0, "max_tilt_deg": 45}"#,
+                "z",
+                "y",
+                -60.0,
+            ),
+            (
+                r#"{"material": "ktp", "cut": "z", "wavelength_nm": 1064, "retardance_waves": 0.5, "thickness_mm": 0.5, "axis_azimuth_deg": -100, "max_tilt_deg": 60}"#,
+                "y",
+                "x",
+                -10.0,
+            ),
+        ] {
+            let d = design(&request(doc)).unwrap();
+            assert_eq!(d.slow_principal_axis.as_deref(), Some(slow), "{doc}");
+            assert_eq!(d.fast_principal_axis.as_deref(), Some(fast), "{doc}");
+            let az = d.fast_axis_azimuth_deg.unwrap();
+            assert_within(az, fast_az, 1e-12, doc);
+            let r = request(doc);
+            let untilted = r.part(r.cut().unwrap().plate, d.thickness_mm, 0.0);
+            let traced = crate::contract::result::trace_scenario(&untilted.scenario).unwrap();
+            let el = serde_json::to_value(&traced).unwrap()["elements"][0].clone();
+            let along = |mode: &str, deg: f64| {
+                let p = &el[mode]["d_polarization"];
+                let (x, y) = (p[0].as_f64().unwrap(), p[1].as_f64().unwrap());
+                (x * deg.to_radians().sin() - y * deg.to_radians().cos()).abs()
+            };
+            assert!(along("f", az) < 1e-9, "{doc}: f along the fast axis: {}", el["f"]);
+            assert!(along("s", az + 90.0) < 1e-9, "{doc}: s across it: {}", el["s"]);
+            assert!(el["s"]["index"].as_f64() > el["f"]["index"].as_f64(), "{doc}");
+        }
+        // A uniaxial plate names none: its optic axis says it.
+        let u = design(&request(
+            r#"{"material": "quartz", "retardance_waves": 0.25, "thickness_mm": 0.5, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 90}"#,
+        ))
+        .unwrap();
+        assert_eq!((u.fast_principal_axis, u.fast_axis_azimuth_deg), (None, None));
     }
 
     #[test]

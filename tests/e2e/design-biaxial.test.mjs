@@ -77,8 +77,21 @@ test('a tilt-tuned KTP plate agrees with the command line and, loaded in its mou
     assert.equal(await page.inputValue(field('cut')), '', 'the cut of largest birefringence unless one is chosen');
     await solveDesign(page);
     await expectRequest(page, request, 'tilt-tuned KTP');
-    await expectYCut(page, design, ['thickness_mm', 'tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'sensitivity_waves_per_deg', 'axis_azimuth_deg'],
-      'y-cut: principal y along the face normal; slow axis at 0°', 'tilt-tuned KTP');
+    await expectYCut(page, design, ['thickness_mm', 'tilt_deg', 'retardance_waves', 'normal_retardance_waves', 'order', 'sensitivity_waves_per_deg', 'axis_azimuth_deg', 'fast_axis_azimuth_deg'],
+      'y-cut: principal y along the face normal; fast axis principal x at 90° from x, slow axis principal z at 0°', 'tilt-tuned KTP');
+    // The fast axis is named as a biaxial plate has it, in the panel and on the sheet: the
+    // in-face principal axis the f-wave is polarized along (x: n_x < n_z), at its azimuth, and
+    // never as a uniaxial plate's optic axis or o/e wave.
+    assert.deepEqual([design.fast_principal_axis, design.slow_principal_axis, design.fast_axis_azimuth_deg], ['x', 'z', 90]);
+    const panel = await page.textContent('#design');
+    assert.ok(panel.includes('fast axis, principal x') && panel.includes('slow axis, principal z'), panel);
+    assert.ok(panel.includes('s-wave, polarized along principal z, lags the f-wave along principal x'), panel);
+    assert.ok((await page.textContent('.design-headline')).includes('fast axis principal x'));
+    const sheet = await orderSheet(page);
+    for (const words of [/optic axis/, /\bo-|\be-|ordinary/, /uniaxial/]) {
+      assert.doesNotMatch(`${sheet.Cut} ${sheet.Material}`, words, `the sheet's cut and material: ${sheet.Cut} / ${sheet.Material}`);
+    }
+    assert.ok(sheet.Material.includes('biaxial'), sheet.Material);
     const sc = await useDesign(page, design, 'tilt-tuned KTP');
     assert.ok(sc.elements[0].axes && close(sc.elements[0].mount.tilt_deg, design.tilt_deg), JSON.stringify(sc.elements[0]));
     // The page's trace of the mounted plate reaches the retardance the tilt solver found.

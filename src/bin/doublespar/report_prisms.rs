@@ -211,15 +211,30 @@ pub(super) fn tilt(r: &mut Report) {
     r.title(&format!("Tilt-tuned waveplate · {material} · {wl} nm"));
     r.section("What to order");
     r.quantity("plate thickness", "thickness_mm", "mm");
-    let cut = r.s("cut");
-    let axis = match cut {
-        Some(_) => r.f("axis_azimuth_deg"),
-        None => plate.pointer("/axis/azimuth_deg").and_then(Value::as_f64),
-    }
-    .map_or_else(String::new, num);
-    let words = match cut {
-        Some(c) => format!("{c}-cut (light along principal {c}), slow axis at {axis} ° from x"),
-        None => format!("optic axis in the faces at {axis} ° from x"),
+    // A biaxial plate has no optic axis in its faces: its two in-face principal axes are named,
+    // the fast one first (the f-wave's polarization), each at its azimuth.
+    let words = match r.s("cut") {
+        Some(c) => {
+            let az = |r: &mut Report, k: &str| r.f(k).map_or_else(String::new, num);
+            let (slow, slow_az) = (
+                r.s("slow_principal_axis").unwrap_or_default(),
+                az(r, "axis_azimuth_deg"),
+            );
+            let (fast, fast_az) = (
+                r.s("fast_principal_axis").unwrap_or_default(),
+                az(r, "fast_axis_azimuth_deg"),
+            );
+            format!(
+                "{c}-cut (light along principal {c}); fast axis principal {fast} at {fast_az} ° from x, slow axis principal {slow} at {slow_az} °"
+            )
+        }
+        None => {
+            let az = plate.pointer("/axis/azimuth_deg").and_then(Value::as_f64);
+            format!(
+                "optic axis in the faces at {} ° from x",
+                az.map_or_else(String::new, num)
+            )
+        }
     };
     r.line("cut", format!("{material}, {words}"));
     let plane = plate

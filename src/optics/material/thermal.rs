@@ -7,8 +7,9 @@
 //! n(λ, T) = n(λ) + Δn(λ, T),   Δn(λ, 20 °C) = 0,
 //! ```
 //!
-//! with Δn from the source's own temperature data where the catalogue's source has them (KTP, LBO)
-//! and otherwise from a cited dn/dT: a constant (a linearisation about room temperature), the
+//! with Δn from the source's own temperature data where the catalogue's source has them (KTP, LBO;
+//! YVO4, whose source fitted its formula afresh at several temperatures: the change between two of
+//! those fits, linear in temperature) and otherwise from a cited dn/dT: a constant (a linearisation about room temperature), the
 //! published wavelength form (LiNbO3: the difference of the Edwards–Lawrence temperature formula
 //! between T and 20 °C, added to the catalogue's 21 °C formula), or, where a plate's temperature
 //! coefficient of retardance has been measured directly (quartz, MgF2), the ordinary index's
@@ -87,6 +88,20 @@ pub enum ThermoOptic {
         /// (1/Δn) dΔn/dT, 1/K.
         relative: f64,
     },
+    /// The change between two formulas a source fitted to its own measurements at 20 °C and at
+    /// `hot_c`, taken as linear in temperature (YVO4: H. S. Shi et al.'s fits at 20, 50, 80, 110 and
+    /// 140 °C, whose indices step evenly).
+    ///
+    /// # Formula
+    /// Δn = (n_hot(λ) − n_20(λ)) (T − 20)/(hot_c − 20), and likewise for the group index.
+    FittedPair {
+        /// The source's formula at 20 °C.
+        at_20: Dispersion,
+        /// Its formula at `hot_c`.
+        hot: Dispersion,
+        /// The temperature of `hot`, °C.
+        hot_c: f64,
+    },
     /// The temperature-dependent formula of G. J. Edwards and M. Lawrence (congruent LiNbO3):
     /// n² = A1 + (A2 + B1 F)/(λ² − (A3 + B2 F)²) + B3 F − A4 λ², F = (T − 24.5)(T + 570.5).
     ///
@@ -107,7 +122,8 @@ impl ThermoOptic {
     /// [`ThermoOptic::OrdinaryPlusBirefringence`] scales (the other forms ignore it).
     ///
     /// # Errors
-    /// Where the Edwards–Lawrence formula breaks down (as [`Dispersion::quantity`]).
+    /// Where the Edwards–Lawrence formula or a fitted pair's formula breaks down (as
+    /// [`Dispersion::quantity`]).
     pub fn shift(&self, q: Quantity, um: f64, t_c: f64, above_x: f64) -> Result<f64, Breakdown> {
         let dt = t_c - REFERENCE_C;
         Ok(match (*self, q) {
@@ -127,6 +143,9 @@ impl ThermoOptic {
                     Quantity::Group => h,
                 };
                 slope * (1.0 + i * dt) * dt
+            }
+            (ThermoOptic::FittedPair { at_20, hot, hot_c }, q) => {
+                (hot.quantity(q, um)? - at_20.quantity(q, um)?) * dt / (hot_c - REFERENCE_C)
             }
             (ThermoOptic::EdwardsLawrence { a, b }, q) => {
                 edwards_lawrence(a, b, t_c).quantity(q, um)? - edwards_lawrence(a, b, REFERENCE_C).quantity(q, um)?
@@ -388,22 +407,36 @@ static THERMAL: [Thermal; 11] = [
     },
     Thermal {
         key: "yvo4",
-        // Shi, Zhang and Shen (the catalogue's source) also measured thermo-optic coefficients;
-        // their paper was not seen. Used instead: dn_o/dT = 8.5e-6, dn_e/dT = 3.0e-6 /K, the
-        // values crystal suppliers quote (from memory). 0-100 °C assumed.
-        range_c: (0.0, 100.0),
-        thermo_optic: [
-            ThermoOptic::Constant(8.5e-6),
-            ThermoOptic::Constant(8.5e-6),
-            ThermoOptic::Constant(3.0e-6),
-        ],
-        thermo_optic_source: "crystal suppliers' data sheets, from memory (dn_o/dT 8.5e-6, dn_e/dT 3.0e-6 /K); \
-                              constants, 0-100 °C",
+        // H. S. Shi, G. Zhang and H. Y. Shen, J. Synthetic Crystals 30, 85-88 (2001), the
+        // catalogue's own source, fitted n² = A + B/(λ² − C) − D λ² afresh at 20, 50, 80, 110 and
+        // 140 °C over 0.48-1.34 µm (coefficients as transcribed by the public-domain database of
+        // optical constants; the paper, in Chinese, was not seen). Their indices step evenly with
+        // temperature (n_o at 633 nm by 5.9-6.0e-4 per 30 K), so the change between the 20 and
+        // 110 °C fits is taken as linear: dn_o/dT = 19.8e-6 and dn_e/dT = 12.8e-6 /K at 633 nm,
+        // 16.7e-6 and 10.5e-6 /K at 1064 nm. The 140 °C extraordinary fit is not used: its B as
+        // transcribed, 0.017202, breaks the run of the other fits' 0.1081 to 0.1075 (a misprint of
+        // 0.107202, it seems). A second, independent measurement, Y. Sato and T. Taira, Opt.
+        // Mater. Express 4, 876 (2014) (interferometric, at 1.06 µm and room temperature; values
+        // from its abstract), gives 15.5e-6 (o) and 8.41e-6 /K (e): the per-index values here are
+        // 8 % and 25 % higher, the birefringence's slope (−6.2e-6 against −7.1e-6 /K) 13 % smaller
+        // in size (tests/temperature.rs). These replace the suppliers' values recalled earlier
+        // (8.5e-6 and 3.0e-6 /K), which neither measurement supports. Range: the fits' 20-140 °C.
+        range_c: (20.0, 140.0),
+        thermo_optic: [SHI_O, SHI_O, SHI_E],
+        thermo_optic_source: "H. S. Shi, G. Zhang and H. Y. Shen, Journal of Synthetic Crystals 30, 85-88 (2001): \
+                              the change between its 20 and 110 °C dispersion fits, linear in temperature \
+                              (dn_o/dT 19.8e-6, dn_e/dT 12.8e-6 /K at 633 nm); 0.48-1.34 µm, 20-140 °C",
         verified: true,
-        // α_a = 4.43e-6, α_c = 11.37e-6 /K (suppliers' values reprinted by an online
-        // encyclopedia's article on the crystal, found by search).
-        expansion: [4.43e-6, 4.43e-6, 11.37e-6],
-        expansion_source: "crystal suppliers' data: 11.37e-6 /K along c, 4.43e-6 /K across",
+        // α_a = 1.76e-6, α_c = 8.24e-6 /K at room temperature, measured interferometrically along
+        // [100] and [001] by Sato and Taira (2014, abstract). Consistent with the dilatometry of
+        // "Linear thermal expansion and thermo-optic coefficients of YVO4 crystals in the 80-320 K
+        // temperature range", Opt. Mater. Express 2, 1624 (2012) (abstract: its 80 K values, 0.11e-6
+        // and 2.43e-6 /K, are 5.3 % and 28 % of those at room temperature, so about 2.1e-6 and
+        // 8.7e-6 /K). These replace the suppliers' 4.43e-6 and 11.37e-6 /K used before, which both
+        // measurements contradict.
+        expansion: [1.76e-6, 1.76e-6, 8.24e-6],
+        expansion_source: "Y. Sato and T. Taira, Optical Materials Express 4, 876 (2014), room temperature: \
+                           8.24e-6 /K along c, 1.76e-6 /K across",
     },
     Thermal {
         key: "alpha-bbo",
@@ -431,20 +464,29 @@ static THERMAL: [Thermal; 11] = [
     },
     Thermal {
         key: "sapphire",
-        // dn_o/dT = 13.1e-6, dn_e/dT = 13.6e-6 /K near 633 nm, room temperature (handbook
-        // values, from memory). 0-100 °C assumed.
+        // Unverified: dn_o/dT = 13.1e-6 and dn_e/dT = 13.6e-6 /K near 633 nm are handbook values
+        // recalled from memory, and a search for a published per-index measurement in the visible
+        // found none to confirm them: a crystal supplier's page prints one dn/dT, 13.4e-6 /K at
+        // 546 nm, for no stated index, and the 1998 paper "Frequency and temperature dependence of
+        // the refractive index of sapphire" (M. E. Thomas et al.; its abstract) measured the
+        // ordinary index near 4 µm only. Size and sign agree with the supplier's figure; the split
+        // between the two indices, which sets a plate's retardance change, is not confirmed, so
+        // design answers resting on it say so. Constants; 0-100 °C assumed.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(13.1e-6),
             ThermoOptic::Constant(13.1e-6),
             ThermoOptic::Constant(13.6e-6),
         ],
-        thermo_optic_source: "handbook values near 633 nm, from memory (dn_o/dT 13.1e-6, dn_e/dT 13.6e-6 /K); \
+        thermo_optic_source: "unverified: handbook values near 633 nm recalled from memory (dn_o/dT 13.1e-6, \
+                              dn_e/dT 13.6e-6 /K), no published per-index measurement found to confirm them; \
                               constants, 0-100 °C",
-        verified: true,
-        // α∥ = 6.66e-6, α⊥ = 5.0e-6 /K near room temperature (handbook values, from memory).
+        verified: false,
+        // α∥ = 6.66e-6, α⊥ = 5.0e-6 /K near room temperature (handbook values, from memory; the
+        // supplier's page above prints 5.6e-6 along c and 5.0e-6 /K across: α∥ is uncertain).
         expansion: [5.0e-6, 5.0e-6, 6.66e-6],
-        expansion_source: "handbook values near 20 °C, from memory: 6.66e-6 /K along c, 5.0e-6 /K across",
+        expansion_source: "handbook values near 20 °C, from memory: 6.66e-6 /K along c (a supplier prints 5.6e-6), \
+                           5.0e-6 /K across",
     },
     Thermal {
         key: "mgf2",
@@ -456,9 +498,9 @@ static THERMAL: [Thermal; 11] = [
         // 39, 5796 (2000), abstract): γ = −5.37e-5 /K (combined standard uncertainty 0.17e-5) at
         // 633-1539 nm over 24-80 °C, with a small wavelength dependence; with α⊥ = 8.9e-6 /K
         // (below), (1/Δn) dΔn/dT = γ − α⊥ = −6.26e-5 /K, so dn_e/dT = 1.12e-6 − 6.26e-5 Δn(λ) /K:
-        // +0.38e-6 /K at 633 nm. Feldman's dn_e/dT, +0.58e-6 /K at 633 nm from memory, gives a
-        // birefringence slope of −0.54e-6 /K against the −0.74e-6 /K measured (tests/temperature.rs
-        // compares the two). Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
+        // +0.38e-6 /K at 633 nm. Feldman's dn_e/dT, +0.565e-6 /K at 633 nm by G. Ghosh's fit of
+        // those data (tests/temperature.rs), gives a birefringence slope of −0.55e-6 /K against the
+        // −0.74e-6 /K measured; no second independent measurement of the slope was found. Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
         // X. Wang and D. Thompson, Opt. Mater. Express 13, 2380-2391 (2023), 21-368 °C (as carried
         // by the public-domain database of optical constants); their 21.1 and 186.4 °C sets give
         // dn_o/dT ≈ −7.8e-6 and dn_e/dT ≈ −5.7e-6 /K at 633 nm, opposite in sign to Feldman's, and
@@ -586,6 +628,51 @@ static THERMAL: [Thermal; 11] = [
     },
 ];
 
+/// Shi, Zhang and Shen's (2001) YVO4 fits n² = A + B/(λ² − C) − D λ² for the ordinary index at 20
+/// and 110 °C (as transcribed by the public-domain database of optical constants); the 20 °C fit
+/// is the catalogue's `shi-2001` formula.
+const SHI_O_FITS: (Dispersion, Dispersion) = (
+    Dispersion::PoleAndIr {
+        a: 3.778790,
+        b: 0.070479,
+        c: 0.045731,
+        d: 0.009701,
+    },
+    Dispersion::PoleAndIr {
+        a: 3.784201,
+        b: 0.070662,
+        c: 0.047693,
+        d: 0.009539,
+    },
+);
+/// The extraordinary index's fits, as [`SHI_O_FITS`].
+const SHI_E_FITS: (Dispersion, Dispersion) = (
+    Dispersion::PoleAndIr {
+        a: 4.607200,
+        b: 0.108087,
+        c: 0.052495,
+        d: 0.014305,
+    },
+    Dispersion::PoleAndIr {
+        a: 4.611804,
+        b: 0.107499,
+        c: 0.055024,
+        d: 0.014498,
+    },
+);
+/// The temperature of the second of Shi et al.'s fits used, °C.
+const SHI_HOT_C: f64 = 110.0;
+const SHI_O: ThermoOptic = ThermoOptic::FittedPair {
+    at_20: SHI_O_FITS.0,
+    hot: SHI_O_FITS.1,
+    hot_c: SHI_HOT_C,
+};
+const SHI_E: ThermoOptic = ThermoOptic::FittedPair {
+    at_20: SHI_E_FITS.0,
+    hot: SHI_E_FITS.1,
+    hot_c: SHI_HOT_C,
+};
+
 /// Edwards–Lawrence ordinary index: A1..A4 and B1..B3 of their Table I (via ndispers 0.20.0).
 pub(super) const EL_O_COEFFICIENTS: ([f64; 4], [f64; 3]) =
     ([4.9048, 0.11775, 0.21802, 0.027153], [2.2314e-8, -2.9671e-8, 2.1429e-8]);
@@ -704,7 +791,7 @@ mod tests {
     fn group_shifts_agree_with_a_central_difference() {
         // Independent method: Δn_g = Δn − λ ∂Δn/∂λ with the derivative from a central difference
         // of the phase shift (step 1e-4 µm), for every wavelength-dependent form.
-        for key in ["ktp", "lbo", "linbo3"] {
+        for key in ["ktp", "lbo", "linbo3", "yvo4"] {
             let th = thermal(key).unwrap();
             for law in th.thermo_optic {
                 for (um, t) in [(0.6, 80.0), (1.064, 150.0), (1.5, -20.0)] {
@@ -745,6 +832,41 @@ mod tests {
     }
 
     #[test]
+    fn yvo4_follows_its_source_s_own_fits_between_20_and_140_c() {
+        // Shi, Zhang and Shen (2001), as transcribed by the public-domain database of optical
+        // constants: the fits at 50 and 80 °C (both indices) and 140 °C (ordinary; the
+        // extraordinary 140 °C fit's B is misprinted there), which the linear change between the
+        // 20 and 110 °C fits must reproduce. Their own steps are even to about 1e-5 (n_o at 633 nm:
+        // 6.01, 5.90, 5.90, 5.90e-4 per 30 K), so 2e-5 is allowed.
+        let m = find("yvo4").unwrap();
+        assert_eq!(
+            (m.ordinary, m.extraordinary),
+            (SHI_O_FITS.0, SHI_E_FITS.0),
+            "the catalogue's fit"
+        );
+        let pole = |a, b, c, d| Dispersion::PoleAndIr { a, b, c, d };
+        let fits = [
+            (50.0, true, pole(3.780527, 0.070594, 0.046270, 0.009625)),
+            (80.0, true, pole(3.782355, 0.070636, 0.046955, 0.009580)),
+            (140.0, true, pole(3.785769, 0.070820, 0.048179, 0.009382)),
+            (50.0, false, pole(4.608590, 0.107970, 0.053254, 0.014313)),
+            (80.0, false, pole(4.610330, 0.107681, 0.054187, 0.014464)),
+        ];
+        for (t, ordinary, fit) in fits {
+            for nm in [500.0, 632.8, 1064.0, 1300.0] {
+                let ix = m.indices_at(wl(nm), t).unwrap().indices;
+                let got = if ordinary { ix.no } else { ix.ne };
+                let want = fit.quantity(Quantity::Phase, nm / 1e3).unwrap();
+                let what = format!(
+                    "YVO4 n_{} at {nm} nm, {t} °C: Shi et al.'s fit",
+                    if ordinary { "o" } else { "e" }
+                );
+                assert_within(got, want, 2e-5, &what);
+            }
+        }
+    }
+
+    #[test]
     fn exactly_the_data_marked_unverified_warn() {
         // The flag and the source's own words agree, and the warning names crystal and source.
         for th in &THERMAL {
@@ -764,7 +886,7 @@ mod tests {
             }
         }
         let flagged: Vec<_> = THERMAL.iter().filter(|t| !t.verified).map(|t| t.key).collect();
-        assert_eq!(flagged, ["alpha-bbo", "rutile"]);
+        assert_eq!(flagged, ["alpha-bbo", "sapphire", "rutile"]);
     }
 
     #[test]
