@@ -168,6 +168,75 @@ fn more_plates_or_two_crystals_never_do_worse_than_the_classic_they_contain() {
     }
 }
 
+/// Four plates at the default budget hold the half wave over 450–800 nm closer than three can:
+/// the search first sets equal half-wave plates' azimuths (half the unknowns), starts the full
+/// search from them, and finishes with a simplex. Before, four quartz plates ended at ±0.032
+/// waves in 1000 generations, worse than three plates' ±0.025, in the valley of the classic
+/// they contain. The answer is re-traced here from its own plates by a Jones product of the
+/// cited quartz indices' birefringence (independent of the search's model) at 36 wavelengths.
+#[test]
+fn four_plates_beat_three_within_the_default_budget() {
+    let q = |n: usize| {
+        design(&format!(
+            r#"{{"kind": "broadband-retarder", "material": "quartz", "plates": {n}, "retardance_waves": 0.5, "band_nm": [450, 800]}}"#
+        ))
+    };
+    let (three, four) = (q(3), q(4));
+    let dep = |v: &Value| num(v, "/departures/retardance_waves");
+    assert!(dep(&four) < 0.015, "four plates: ±{}", dep(&four));
+    assert!(
+        dep(&four) < 0.7 * dep(&three),
+        "four ±{} against three ±{}",
+        dep(&four),
+        dep(&three)
+    );
+    assert!(num(&four, "/departures/distance") < 0.2 * num(&three, "/departures/distance"));
+    // Re-traced: the equivalent retardance of the four plates' product stays within the
+    // reported departure (the curve's 81 points bound the worst case between them).
+    let quartz_dn = |nm: f64| {
+        let ix = find_uniaxial_source("quartz", "ghosh-1999")
+            .unwrap()
+            .indices(Wavelength::from_nm(nm).unwrap())
+            .unwrap()
+            .indices;
+        ix.ne - ix.no
+    };
+    for k in 0..36 {
+        let nm = 450.0 + 10.0 * k as f64;
+        // Product of plates: I + (e^{iΓ} − 1) a aᵀ each, a along the optic axis.
+        let mut u = [
+            [C::new(1.0, 0.0), C::new(0.0, 0.0)],
+            [C::new(0.0, 0.0), C::new(1.0, 0.0)],
+        ];
+        for p in four["plates"].as_array().unwrap() {
+            let (d, az) = (num(p, "/thickness_mm"), num(p, "/axis_azimuth_deg").to_radians());
+            let e = C::from_polar(1.0, 2.0 * PI * quartz_dn(nm) * d * 1e6 / nm) - 1.0;
+            let (s, c) = az.sin_cos();
+            let m = [[1.0 + e * c * c, e * c * s], [e * c * s, 1.0 + e * s * s]];
+            u = [
+                [
+                    m[0][0] * u[0][0] + m[0][1] * u[1][0],
+                    m[0][0] * u[0][1] + m[0][1] * u[1][1],
+                ],
+                [
+                    m[1][0] * u[0][0] + m[1][1] * u[1][0],
+                    m[1][0] * u[0][1] + m[1][1] * u[1][1],
+                ],
+            ];
+        }
+        // A lossless U over √det U is [[a, b], [−b*, a*]] with, for U = Rot(ω/2)·L(δ, θ)·Rot(ω/2)
+        // (Hurwitz & Jones 1941), Re a = cos ω cos(δ/2) and Re b = −sin ω cos(δ/2).
+        let k = (u[0][0] * u[1][1] - u[0][1] * u[1][0]).sqrt();
+        let cos_half = (u[0][0] / k).re.hypot((u[0][1] / k).re).min(1.0);
+        let delta_waves = 2.0 * cos_half.acos() / (2.0 * PI);
+        assert!(
+            (delta_waves - 0.5).abs() <= dep(&four) + 1e-3,
+            "{nm} nm: {delta_waves} waves against ±{}",
+            dep(&four)
+        );
+    }
+}
+
 #[test]
 fn plates_of_two_crystals_and_bad_requests() {
     let a = design(

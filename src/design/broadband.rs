@@ -23,15 +23,22 @@
 //! parallel, the middle one at 60° to them) is placed in the first population and reported
 //! beside the result as the reference it must match or beat. With more plates, or two crystals,
 //! the classic is placed on the first three plates of one crystal (the others of no thickness,
-//! the same Jones product), so that more plates never answer worse than the classic they contain;
-//! a search of more than three plates needs more generations to leave that start (five quartz
-//! plates, 450–800 nm: ±0.083 waves at 1000 generations, ±0.011 at 5000).
+//! the same Jones product), so that more plates never answer worse than the classic they contain.
+//! For a half wave of two or more plates a first search sets only the azimuths of equal
+//! half-wave plates (each a half wave of its own crystal at the centre; the family the classic
+//! belongs to, with half the unknowns, so it settles within the budget), and its best is a start
+//! of the full search. The full search's best is finished by the Nelder–Mead simplex
+//! ([`crate::design::simplex`]), which takes it to the floor of its valley. Measured here (quartz,
+//! half wave, 450–800 nm, 1000 generations): four plates ±0.011 waves, six ±0.006, against
+//! three's ±0.025; without the first search and the simplex, four plates stayed at ±0.032 and
+//! five at ±0.044, in the valley of the classic they contain.
 //!
 //! Conventions: azimuths from x toward y, degrees; the fast axis of the equivalent retarder is
 //! the one whose light leads by δ.
 
 use super::evolution::{Minimum, minimize};
 use super::part::{Part, crystal};
+use super::simplex::polish;
 use super::waveplate::{PlateCut, stack_retardance_at};
 use crate::contract::request::BroadbandRequest;
 use crate::contract::scenario::Medium;
@@ -44,6 +51,8 @@ use std::f64::consts::TAU;
 const SEARCH_POINTS: usize = 41;
 /// Points of the reported curves.
 const CURVE_POINTS: usize = 81;
+/// Evaluations the simplex may spend finishing the global search's best stack.
+const POLISH_EVALUATIONS: usize = 20_000;
 /// Gap between plates in the answer's scenario, mm (plates in air, as a stack is mounted).
 const GAP_MM: f64 = 0.0;
 
@@ -410,24 +419,38 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         Some(plates)
     })
     .flatten();
+    // For a half wave, first the family of equal half-wave plates (each a half wave of its own
+    // crystal at the centre) with only their azimuths free: half the unknowns, so the search
+    // settles within the budget, and its best is a start of the full search.
+    let equal_halves: Option<Vec<(f64, f64)>> = ((req.retardance_waves - 0.5).abs() < 1e-12 && req.media.len() > 1)
+        .then(|| {
+            let halves: Vec<f64> = model.centre_w.iter().map(|w| 0.5 / w.abs()).collect();
+            let with = |az: &[f64]| -> Vec<(f64, f64)> { halves.iter().zip(az).map(|(&t, &a)| (t, a)).collect() };
+            let found = minimize(
+                |az| model.distance(&model.search_w, &with(az)),
+                &vec![(0.0, 180.0); req.media.len()],
+                &[],
+                req.generations,
+                req.seed,
+            );
+            with(&found.x)
+        });
     let starts: Vec<Vec<f64>> = classic_plates
         .iter()
         .chain(padded_classic.iter())
+        .chain(equal_halves.iter())
         .chain(std::iter::once(&single_padded))
         .map(|p| p.iter().flat_map(|&(t, az)| [t, az]).collect())
         .collect();
+    let objective = |x: &[f64]| model.distance(&model.search_w, &as_plates(x));
     let Minimum {
         x,
         generations,
         population,
         ..
-    } = minimize(
-        |x| model.distance(&model.search_w, &as_plates(x)),
-        &bounds,
-        &starts,
-        req.generations,
-        req.seed,
-    );
+    } = minimize(objective, &bounds, &starts, req.generations, req.seed);
+    // The global search finds the valley; the simplex goes down to its floor.
+    let (x, _) = polish(objective, &bounds, &x, POLISH_EVALUATIONS);
     let plates = as_plates(&x);
     let (departures, curve) = model.judge(&plates)?;
     let classic = classic_plates

@@ -51,6 +51,7 @@ pub mod polarizer;
 pub mod principal;
 pub mod recombiner;
 pub mod rotator;
+pub mod simplex;
 pub mod splitter;
 pub mod statistics;
 pub mod thermal;
