@@ -4,7 +4,7 @@
 //! half-wave design (S. Pancharatnam 1955) as the reference the search must match or beat; and a
 //! single plate as the baseline it must beat.
 
-use doublespar::{Scenario, Wavelength, find_uniaxial_source, solve_design_str, trace_scenario};
+use doublespar::{Scenario, solve_design_str, trace_scenario};
 use num_complex::Complex64 as C;
 use serde_json::{Value, json};
 use std::f64::consts::PI;
@@ -19,14 +19,11 @@ fn num(v: &Value, path: &str) -> f64 {
         .unwrap_or_else(|| panic!("{path} in {v}"))
 }
 
+mod common;
+
 /// (n_e − n_o) of MgF2 at `nm`, 20 °C.
 fn mgf2_dn(nm: f64) -> f64 {
-    let ix = find_uniaxial_source("mgf2", "dodge-1984")
-        .unwrap()
-        .indices(Wavelength::from_nm(nm).unwrap())
-        .unwrap()
-        .indices;
-    ix.ne - ix.no
+    common::birefringence("mgf2", "dodge-1984", nm)
 }
 
 /// The Jones vector after the answer's plates at `nm`: each plate multiplies the field component
@@ -193,14 +190,7 @@ fn four_plates_beat_three_within_the_default_budget() {
     assert!(num(&four, "/departures/distance") < 0.2 * num(&three, "/departures/distance"));
     // Re-traced: the equivalent retardance of the four plates' product stays within the
     // reported departure (the curve's 81 points bound the worst case between them).
-    let quartz_dn = |nm: f64| {
-        let ix = find_uniaxial_source("quartz", "ghosh-1999")
-            .unwrap()
-            .indices(Wavelength::from_nm(nm).unwrap())
-            .unwrap()
-            .indices;
-        ix.ne - ix.no
-    };
+    let quartz_dn = |nm: f64| common::birefringence("quartz", "ghosh-1999", nm);
     for k in 0..36 {
         let nm = 450.0 + 10.0 * k as f64;
         // Product of plates: I + (e^{iΓ} − 1) a aᵀ each, a along the optic axis.

@@ -3,18 +3,15 @@
 //! closed forms evaluated here from the catalogue's cited dispersion formula (quartz: G. Ghosh,
 //! Opt. Commun. 163, 95 (1999)).
 
-use doublespar::{Scenario, Wavelength, coincident_power, find_uniaxial_source, trace_scenario};
+use doublespar::{Scenario, coincident_power, trace_scenario};
 use serde_json::Value;
 use std::f64::consts::PI;
 
+mod common;
+
 /// Quartz's birefringence n_e − n_o at `nm` from the catalogue formula, independently of the trace.
 fn quartz_dn(nm: f64) -> f64 {
-    let ix = find_uniaxial_source("quartz", "ghosh-1999")
-        .unwrap()
-        .indices(Wavelength::from_nm(nm).unwrap())
-        .unwrap()
-        .indices;
-    ix.ne - ix.no
+    common::birefringence("quartz", "ghosh-1999", nm)
 }
 
 /// A stack of a-cut quartz plates (axis in the faces at 45°) of `thicknesses_mm`, each behind a

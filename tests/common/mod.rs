@@ -46,3 +46,14 @@ pub fn plate(no: f64, ne: f64, l: f64, tilt: f64, az: f64, polar: f64, paz: f64,
                            "axis": {{"tilt_deg": {tilt}, "azimuth_deg": {az}}}}}]}}"#
     )
 }
+
+/// n_e − n_o of the catalogue crystal `material` by its published formula `source` at `nm`
+/// (vacuum), 20 °C: evaluated from the formula alone, independently of any trace.
+pub fn birefringence(material: &str, source: &str, nm: f64) -> f64 {
+    let ix = doublespar::find_uniaxial_source(material, source)
+        .unwrap_or_else(|| panic!("{material} {source}"))
+        .indices(doublespar::Wavelength::from_nm(nm).unwrap())
+        .unwrap()
+        .indices;
+    ix.ne - ix.no
+}
