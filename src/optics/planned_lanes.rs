@@ -2,13 +2,19 @@
 //! number of the scalar planned trace ([`crate::optics::planned_trace`]) held as one f64 per
 //! incidence, so that the compiler turns every operation into one vector instruction.
 //!
-//! Physics and rounding: the planned trace's (its header), operation for operation. Every branch
-//! of the scalar trace that depends on the numbers becomes a per-lane choice: the root of the
-//! extraordinary quadratic taken without cancellation, a mode's scale, the sign that matches a
-//! ray to its incident mode, the pivots of the real 4×4 elimination (the largest, the last of
-//! equals, rows exchanged as the scalar elimination exchanges them), the polar factor's rank-one
-//! case. What the structure of the plan fixes (which bodies meet at a face, which mode a ray is
-//! in, how many rays there are) is the same in every lane and stays a branch.
+//! Physics: the planned trace's (its header). Rounding: the wave vectors, hence every direction
+//! and every decision to decline, operation for operation as the scalar trace rounds them; the
+//! fields and amplitudes (which only powers read) with fewer divisions and square roots, the
+//! slowest vector instructions: products by one reciprocal where the scalar trace divides each
+//! component, the back substitution by the pivots' reciprocals, the ordinary field q × c without
+//! its rounding-sized part along q. They agree with the scalar trace to rounding (10⁻¹⁵; tests
+//! hold them to [`crate::precision::PLANNED_TRACE_AGREEMENT`]), and rays come out in its order.
+//! Every branch of the scalar trace that depends on the numbers becomes a per-lane choice: the
+//! root of the extraordinary quadratic taken without cancellation, a mode's scale, the sign that
+//! matches a ray to its incident mode, the pivots of the real 4×4 elimination (the largest, the
+//! last of equals, rows exchanged as the scalar elimination exchanges them), the polar factor's
+//! rank-one case. What the structure of the plan fixes (which bodies meet at a face, which mode
+//! a ray is in, how many rays there are) is the same in every lane and stays a branch.
 //!
 //! What is left to the scalar trace. A lane is marked and traced again by
 //! [`PlannedTrace::trace`] (which may in turn decline it to the general tracer) when anything
@@ -16,11 +22,13 @@
 //! [`PLANNED_CRITICAL_MARGIN`] of it, a wave along an optic axis, a singular boundary problem,
 //! and also a ray that misses a plane or an aperture (the scalar trace drops that ray and keeps
 //! the others; the lanes keep only incidences where every ray goes through). So the lanes give
-//! exactly the rays of the scalar trace for the incidences they keep, in the same order.
+//! the rays of the scalar trace for the incidences they keep, in the same order, to rounding.
 //!
 //! Rust does not fuse a product and a sum unless asked (no `mul_add` here), and IEEE division and
-//! square root are exact to the last bit on every instruction set: the kernel compiled for AVX2
-//! or AVX-512 ([`trace_lanes`] picks one at run time) and the portable build give the same bits.
+//! square root are correctly rounded on every instruction set: the kernel compiled for AVX2 or
+//! AVX-512 ([`trace_lanes`] picks one at run time) and the portable build give the same bits.
+//! Eight lanes rather than four: one AVX-512 register per number took about a tenth less time
+//! than one AVX2 register on this kind of processor, and sixteen (two registers) no less.
 
 use crate::optics::geometry::Plane;
 use crate::optics::planned_trace::{Crossing, Entry, Local, PlannedRay, PlannedTrace};
@@ -39,20 +47,31 @@ pub(crate) struct F(pub [f64; LANES]);
 /// A yes or no per lane.
 type Mask = [bool; LANES];
 
+/// `[f(0), f(1), …]` by a plain loop, which is inlined into the vector builds (the standard
+/// arrays' `map` and `from_fn` stayed calls, compiled without the vector instructions).
+#[inline(always)]
+fn lanes<T: Copy + Default>(f: impl Fn(usize) -> T) -> [T; LANES] {
+    let mut out = [T::default(); LANES];
+    for (i, o) in out.iter_mut().enumerate() {
+        *o = f(i);
+    }
+    out
+}
+
 macro_rules! lanewise {
     ($trait:ident, $method:ident, $op:tt) => {
         impl $trait for F {
             type Output = F;
             #[inline(always)]
             fn $method(self, o: F) -> F {
-                F(std::array::from_fn(|i| self.0[i] $op o.0[i]))
+                F(lanes(|i| self.0[i] $op o.0[i]))
             }
         }
         impl $trait<f64> for F {
             type Output = F;
             #[inline(always)]
             fn $method(self, o: f64) -> F {
-                F(std::array::from_fn(|i| self.0[i] $op o))
+                F(lanes(|i| self.0[i] $op o))
             }
         }
     };
@@ -66,7 +85,7 @@ impl Neg for F {
     type Output = F;
     #[inline(always)]
     fn neg(self) -> F {
-        F(self.0.map(|x| -x))
+        F(lanes(|i| -self.0[i]))
     }
 }
 
@@ -77,7 +96,7 @@ impl F {
     }
     #[inline(always)]
     fn map(self, f: impl Fn(f64) -> f64) -> F {
-        F(self.0.map(f))
+        F(lanes(|i| f(self.0[i])))
     }
     #[inline(always)]
     fn sqrt(self) -> F {
@@ -89,18 +108,18 @@ impl F {
     }
     #[inline(always)]
     fn test(self, o: F, f: impl Fn(f64, f64) -> bool) -> Mask {
-        std::array::from_fn(|i| f(self.0[i], o.0[i]))
+        lanes(|i| f(self.0[i], o.0[i]))
     }
     /// `a` where `m` holds, else `b`.
     #[inline(always)]
     fn pick(m: Mask, a: F, b: F) -> F {
-        F(std::array::from_fn(|i| if m[i] { a.0[i] } else { b.0[i] }))
+        F(lanes(|i| if m[i] { a.0[i] } else { b.0[i] }))
     }
 }
 
 #[inline(always)]
 fn and(a: Mask, b: Mask) -> Mask {
-    std::array::from_fn(|i| a[i] & b[i])
+    lanes(|i| a[i] & b[i])
 }
 
 /// A vector per lane.
@@ -187,17 +206,19 @@ impl V {
 /// [`crate::optics::modes::beam_basis`] per lane.
 #[inline(always)]
 fn beam_basis(u: &V) -> (V, V) {
-    let w = u.z + 1.0;
+    // Fields only (module header): products by one reciprocal.
+    let r = F::splat(1.0) / (u.z + 1.0);
     let one = F::splat(1.0);
+    let xy = -u.x * u.y * r;
     (
         V {
-            x: one - u.x * u.x / w,
-            y: -u.x * u.y / w,
+            x: one - u.x * u.x * r,
+            y: xy,
             z: -u.x,
         },
         V {
-            x: -u.x * u.y / w,
-            y: one - u.y * u.y / w,
+            x: xy,
+            y: one - u.y * u.y * r,
             z: -u.y,
         },
     )
@@ -222,7 +243,11 @@ fn wave(q: V, e: V, ray: V, rays: bool) -> Wave {
         q,
         e: e.scale(scale),
         h: h.scale(scale),
-        ray: if rays { ray.over(ray.norm()) } else { ray },
+        ray: if rays {
+            ray.scale(F::splat(1.0) / ray.norm())
+        } else {
+            ray
+        },
     }
 }
 
@@ -247,12 +272,10 @@ fn modes(body: &Local, qt: [F; 2], backward: bool, rays: bool, ok: &mut Mask) ->
                 y: qt[1],
                 z: qz,
             };
-            let (e1, e2) = beam_basis(&V {
-                x: qt[0] / n,
-                y: qt[1] / n,
-                z: qz / n,
-            });
-            let forward = [wave(q, e1, q, rays), wave(q, e2, q, rays)];
+            let (e1, e2) = beam_basis(&q.scale(F::splat(1.0 / n)));
+            // Both waves run along q: its unit vector made once.
+            let ray = if rays { q.over(q.norm()) } else { q };
+            let forward = [wave(q, e1, ray, false), wave(q, e2, ray, false)];
             if !backward {
                 return [forward, forward];
             }
@@ -300,8 +323,8 @@ fn e_root(a: f64, b: F, c0: F, r: F, s: f64) -> F {
     num / den
 }
 
-/// The ordinary D ∥ q × c made transverse, as the scalar trace's `crystal_pair` forms it; `ok`
-/// loses the lanes where q runs along c.
+/// The ordinary D ∥ q × c; `ok` loses the lanes where q runs along c. (The scalar trace also
+/// removes its component along q, which is rounding: a field, module header.)
 #[inline(always)]
 fn transverse_ordinary(q: &V, c: &V, ok: &mut Mask) -> V {
     let d = q.cross(c);
@@ -311,8 +334,7 @@ fn transverse_ordinary(q: &V, c: &V, ok: &mut Mask) -> V {
         d.dot(&d)
             .test(qq * (DEGENERATE_DIRECTION * DEGENERATE_DIRECTION), |a, b| a > b),
     );
-    let qd = q.dot(&d);
-    d.sub(&q.scale((qd * qq) / (qq * qq)))
+    d
 }
 
 /// The scalar trace's `crystal_pair` per lane.
@@ -339,13 +361,18 @@ fn crystal_pair(
     ]
 }
 
-/// The scalar trace's `solve4` per lane: the same pivots and exchanges; `ok` loses the lanes
-/// where a pivot is zero or a result is not finite.
+/// The scalar trace's `solve4` per lane, for the unknowns 2 and 3 alone (the transmitted
+/// amplitudes; entries 0 and 1 of the result are left as the elimination leaves them): the same
+/// pivots and exchanges. `ok` loses the lanes where a pivot is zero, its square is zero or not
+/// finite, or a result is not finite. (The scalar trace also declines where a reflected
+/// amplitude is not finite: with such pivots that takes a sum beyond 10³⁰⁰ of fields scaled to
+/// unit power flux at modes kept 10⁻⁹ from grazing, which do not reach 10⁵.)
 #[inline(always)]
 #[allow(clippy::needless_range_loop)]
 fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
     let mut x = b;
     let zero = F::splat(0.0);
+    let mut inverse = [zero; 4];
     for col in 0..4 {
         // The pivot row of each lane, as the scalar search finds it.
         let mut best = m[col][col].abs();
@@ -362,7 +389,7 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
         }
         // Rows `col` and `pivot` exchanged lane by lane.
         for row in col + 1..4 {
-            let swap: Mask = std::array::from_fn(|i| pivot[i] == row);
+            let swap: Mask = lanes(|i| pivot[i] == row);
             for k in col..4 {
                 let (a, b) = (m[col][k], m[row][k]);
                 m[col][k] = F::pick(swap, b, a);
@@ -375,8 +402,10 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
             }
         }
         let p = m[col][col];
-        *ok = and(*ok, p.test(zero, |a, b| a != b));
-        let inv = p / (p * p);
+        let pp = p * p;
+        *ok = and(*ok, pp.test(zero, |a, b| a != b && a.is_finite()));
+        let inv = p / pp;
+        inverse[col] = inv;
         for row in col + 1..4 {
             let f = m[row][col] * inv;
             let keep = f.test(zero, |a, b| a == b);
@@ -390,19 +419,20 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
             }
         }
     }
+    // Back substitution for the unknowns 3 and 2 alone (the transmitted amplitudes): rows 1 and 0
+    // only give the reflected ones, which no one reads.
     for v in &mut x {
-        for row in (0..4).rev() {
+        for row in [3, 2] {
             let mut acc = v[row];
             for k in row + 1..4 {
                 acc = acc - m[row][k] * v[k];
             }
-            let d = m[row][row];
-            v[row] = (acc * d) / (d * d);
+            v[row] = acc * inverse[row];
         }
     }
     for v in &x {
-        for z in v {
-            *ok = and(*ok, z.0.map(f64::is_finite));
+        for z in &v[2..] {
+            *ok = and(*ok, lanes(|i| z.0[i].is_finite()));
         }
     }
     x
@@ -422,12 +452,12 @@ fn norm2(t: &M2) -> F {
 fn lossless_part(t: &M2) -> M2 {
     let norm = norm2(t);
     let zero = F::splat(0.0);
-    let usable: Mask = std::array::from_fn(|i| {
+    let usable: Mask = lanes(|i| {
         let n = norm.0[i];
         !(n.is_nan() || n <= 0.0 || n.is_infinite())
     });
-    let nn = norm * norm;
-    let t = t.map(|r| r.map(|z| (z * norm) / nn));
+    let r = norm / (norm * norm);
+    let t = [[t[0][0] * r, t[0][1] * r], [t[1][0] * r, t[1][1] * r]];
     let det = t[0][0] * t[1][1] - t[0][1] * t[1][0];
     let rank_one = det.abs().test(F::splat(1e-14), |a, b| a <= b);
     let k = (det.abs() * det) / (det * det);
@@ -444,9 +474,9 @@ fn lossless_part(t: &M2) -> M2 {
 #[inline(always)]
 fn unit_field(e: &V) -> V {
     let n = e.norm();
-    let nn = n * n;
+    let r = n / (n * n);
     let has = n.test(F::splat(0.0), |a, b| a > b);
-    let f = |z: F| F::pick(has, (z * n) / nn, z);
+    let f = |z: F| F::pick(has, z * r, z);
     V {
         x: f(e.x),
         y: f(e.y),
@@ -529,7 +559,7 @@ fn cross_with(carrier: &Carrier, crossing: &Crossing, ideal: bool, ok: &mut Mask
             let apart = a_fwd[0].q.sub(&a_fwd[1].q).norm();
             *ok = and(*ok, apart.test(F::splat(DEGENERATE_DIRECTION), |a, b| a > b));
             let p = a_fwd[*kind].e.rotated(frame).dot(e);
-            let s = p.map(|p| if p != 0.0 { p.signum() } else { 0.0 });
+            let s = F(lanes(|i| if p.0[i] != 0.0 { p.0[i].signum() } else { 0.0 }));
             for c in 0..2 {
                 a_in[*kind][c] = F::pick(p.test(zero, |a, b| a != b), s * amp[c], zero);
             }
@@ -563,15 +593,22 @@ fn cross_with(carrier: &Carrier, crossing: &Crossing, ideal: bool, ok: &mut Mask
             }
             [Some(Carrier::Free { n, u, m }), None]
         }
-        Local::Uniaxial(..) => [0, 1].map(|k| {
-            Some(Carrier::Bound {
-                q: b_fwd[k].q.rotated(frame),
-                ray: b_fwd[k].ray.rotated(frame),
-                e: b_fwd[k].e.rotated(frame),
-                kind: k,
-                amp: out[k],
-            })
-        }),
+        Local::Uniaxial(..) => [
+            Some(bound(&b_fwd[0], frame, 0, out[0])),
+            Some(bound(&b_fwd[1], frame, 1, out[1])),
+        ],
+    }
+}
+
+/// A ray in mode `kind` of the wave `w` (face frame `frame`), of amplitudes `amp`.
+#[inline(always)]
+fn bound(w: &Wave, frame: &Matrix3<f64>, kind: usize, amp: [F; 2]) -> Carrier {
+    Carrier::Bound {
+        q: w.q.rotated(frame),
+        ray: w.ray.rotated(frame),
+        e: w.e.rotated(frame),
+        kind,
+        amp,
     }
 }
 
@@ -592,7 +629,7 @@ fn travel(f: &mut Flight, plane: &Plane, ok: &mut Mask) {
     let on = gap.abs().test(scale * ON_PLANE, |a, b| a <= b);
     let along = n.dot(&dir);
     let s = gap / along;
-    let ahead: Mask = std::array::from_fn(|i| on[i] || (along.0[i].abs() >= 1e-15 && s.0[i] >= -ON_PLANE * scale.0[i]));
+    let ahead: Mask = lanes(|i| on[i] || (along.0[i].abs() >= 1e-15 && s.0[i] >= -ON_PLANE * scale.0[i]));
     *ok = and(*ok, ahead);
     let s = F::pick(on, F::splat(0.0), s.map(|s| s.max(0.0)));
     f.at = f.at.add(&dir.scale(s));
@@ -667,9 +704,9 @@ fn trace_block<const ISA: u8>(plan: &PlannedTrace, buffers: &mut LaneBuffers, di
         carrier: Carrier::Free {
             n: plan.outside(),
             u: V {
-                x: F(dirs.map(|d| d.x)),
-                y: F(dirs.map(|d| d.y)),
-                z: F(dirs.map(|d| d.z)),
+                x: F(lanes(|i| dirs[i].x)),
+                y: F(lanes(|i| dirs[i].y)),
+                z: F(lanes(|i| dirs[i].z)),
             },
             m: identity,
         },
