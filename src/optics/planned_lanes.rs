@@ -403,7 +403,7 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
         }
         let p = m[col][col];
         let pp = p * p;
-        *ok = and(*ok, pp.test(zero, |a, b| a != b && a.is_finite()));
+        *ok = and(*ok, pp.test(zero, |a, b| (a != b) & a.is_finite()));
         let inv = p / pp;
         inverse[col] = inv;
         for row in col + 1..4 {
@@ -454,7 +454,7 @@ fn lossless_part(t: &M2) -> M2 {
     let zero = F::splat(0.0);
     let usable: Mask = lanes(|i| {
         let n = norm.0[i];
-        !(n.is_nan() || n <= 0.0 || n.is_infinite())
+        !(n.is_nan() | (n <= 0.0) | n.is_infinite())
     });
     let r = norm / (norm * norm);
     let t = [[t[0][0] * r, t[0][1] * r], [t[1][0] * r, t[1][1] * r]];
@@ -559,9 +559,10 @@ fn cross_with(carrier: &Carrier, crossing: &Crossing, ideal: bool, ok: &mut Mask
             let apart = a_fwd[0].q.sub(&a_fwd[1].q).norm();
             *ok = and(*ok, apart.test(F::splat(DEGENERATE_DIRECTION), |a, b| a > b));
             let p = a_fwd[*kind].e.rotated(frame).dot(e);
-            let s = F(lanes(|i| if p.0[i] != 0.0 { p.0[i].signum() } else { 0.0 }));
+            // ±amp by the sign of p, nothing where p = 0 (a choice per lane, not a branch).
+            let (plus, minus) = (p.test(zero, |a, b| a > b), p.test(zero, |a, b| a < b));
             for c in 0..2 {
-                a_in[*kind][c] = F::pick(p.test(zero, |a, b| a != b), s * amp[c], zero);
+                a_in[*kind][c] = F::pick(plus, amp[c], F::pick(minus, -amp[c], zero));
             }
         }
     }
@@ -629,7 +630,8 @@ fn travel(f: &mut Flight, plane: &Plane, ok: &mut Mask) {
     let on = gap.abs().test(scale * ON_PLANE, |a, b| a <= b);
     let along = n.dot(&dir);
     let s = gap / along;
-    let ahead: Mask = lanes(|i| on[i] || (along.0[i].abs() >= 1e-15 && s.0[i] >= -ON_PLANE * scale.0[i]));
+    // (`|` and `&`, not `||` and `&&`: no branch per lane.)
+    let ahead: Mask = lanes(|i| on[i] | ((along.0[i].abs() >= 1e-15) & (s.0[i] >= -ON_PLANE * scale.0[i])));
     *ok = and(*ok, ahead);
     let s = F::pick(on, F::splat(0.0), s.map(|s| s.max(0.0)));
     f.at = f.at.add(&dir.scale(s));
