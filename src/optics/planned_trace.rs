@@ -26,6 +26,10 @@
 //! seven face crossings for two wedges (one, two, four rays), each three mode pairs and one real
 //! 4×4 solve, no allocation.
 //!
+//! Many incidences at once: [`PlannedTrace::trace_each`] traces them in blocks side by side, the
+//! same operations on a vector of incidences (`optics/planned_lanes.rs`), and hands back to
+//! [`PlannedTrace::trace`] the ones a block cannot finish.
+//!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
 //! optically active) crystals, a plane-parallel stack (traced by [`crate::optics::parallel`]), or
 //! more than [`MAX_SLABS`] crystals gets no plan. At an incidence where a mode at some face is
