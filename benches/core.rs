@@ -16,7 +16,9 @@
 //!   [`doublespar::run_workload`], which the numpy baseline (`scripts/bench/splitter_numpy.py`)
 //!   computes too, by the planned whole trace (`optics::planned_trace`; the incidences it
 //!   declines, none here, by the general tracer; `splitter_trace_declined`), and by the general
-//!   tracer alone for comparison (`splitter_general_trace`, one thread); `splitter_split`: the
+//!   tracer alone for comparison (`splitter_general_trace`, one thread), and by the planned trace
+//!   in lanes, blocks of incidences side by side (`splitter_lane_trace`; the lanes sent back to
+//!   the one-by-one trace: `splitter_lane_trace_alone`); `splitter_split`: the
 //!   same samples' split angles by wave-vector chains. Each on one thread and on the machine's
 //!   threads (at most 8; `_threads` in the JSON line).
 //! - `splitter_monte_carlo`: a 100 000-sample angular-splitter tolerance run.
@@ -113,6 +115,7 @@ fn smoke() {
         .resolve()
         .unwrap();
     assert!(doublespar::run_workload(&splitter, 100, Workload::Trace).is_finite());
+    assert!(doublespar::run_workload(&splitter, 101, Workload::LaneTrace).is_finite());
     assert!(doublespar::run_workload(&splitter, 100, Workload::GeneralTrace).is_finite());
     assert!(doublespar::run_workload(&splitter, 100, Workload::Split) > 0.0);
     for request in [
@@ -197,25 +200,38 @@ fn main() {
         .unwrap();
     let n = 100_000;
     let (t_wedges, wedges_sum) = time(5, || doublespar::run_workload(black_box(&splitter), n, Workload::Trace));
+    let (t_lanes, lanes_sum) = time(9, || {
+        doublespar::run_workload(black_box(&splitter), n, Workload::LaneTrace)
+    });
     let (t_split, split_sum) = time(7, || doublespar::run_workload(black_box(&splitter), n, Workload::Split));
     let (t_wedges_general, general_sum) = time(3, || {
         doublespar::run_workload(black_box(&splitter), n, Workload::GeneralTrace)
     });
-    assert!(
-        (wedges_sum - general_sum).abs() < 1e-12 * general_sum.abs(),
-        "planned {wedges_sum} vs general {general_sum}"
-    );
+    for (what, sum) in [("planned", wedges_sum), ("lanes", lanes_sum)] {
+        assert!(
+            (sum - general_sum).abs() < 1e-12 * general_sum.abs(),
+            "{what} {sum} vs general {general_sum}"
+        );
+    }
     let declined = doublespar::declined_samples(&splitter, n);
+    let alone = doublespar::samples_traced_alone(&splitter, n);
     // The same samples split over the machine's threads: the same sums but for the order of the
     // additions.
     let threads = std::thread::available_parallelism().map_or(1, |t| t.get()).min(8);
     let (t_wedges_threads, wedges_sum_threads) = time(5, || {
         doublespar::run_workload_on(black_box(&splitter), n, Workload::Trace, threads)
     });
+    let (t_lanes_threads, lanes_sum_threads) = time(9, || {
+        doublespar::run_workload_on(black_box(&splitter), n, Workload::LaneTrace, threads)
+    });
     let (t_split_threads, split_sum_threads) = time(7, || {
         doublespar::run_workload_on(black_box(&splitter), n, Workload::Split, threads)
     });
-    for (one, many) in [(wedges_sum, wedges_sum_threads), (split_sum, split_sum_threads)] {
+    for (one, many) in [
+        (wedges_sum, wedges_sum_threads),
+        (lanes_sum, lanes_sum_threads),
+        (split_sum, split_sum_threads),
+    ] {
         assert!(
             (one - many).abs() < 1e-9 * one.abs(),
             "one thread {one} vs {threads} threads {many}"
@@ -271,6 +287,12 @@ fn main() {
         t_wedges_general * 1e3
     );
     println!(
+        "two-wedge splitter, 10^5 whole traces in lanes ({} side by side): {:.1} ms on one thread, {:.1} ms on {threads} (checksum {lanes_sum:.12e}; {alone} samples traced one by one)",
+        doublespar::PLANNED_LANES,
+        t_lanes * 1e3,
+        t_lanes_threads * 1e3
+    );
+    println!(
         "two-wedge splitter, 10^5 split angles by wave-vector chains: {:.2} ms on one thread, {:.2} ms on {threads} (checksum {split_sum:.12e})",
         t_split * 1e3,
         t_split_threads * 1e3
@@ -292,7 +314,7 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_trace_declined\":{declined},\"splitter_general_trace_1e5_ms\":{:.4},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_threads\":{threads},\"splitter_trace_threads_1e5_ms\":{:.4},\"splitter_split_threads_1e5_ms\":{:.4},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e},\"lc_curve_200_ms\":{:.4},\"lc_curve_checksum\":{lc_sum:e}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_trace_declined\":{declined},\"splitter_general_trace_1e5_ms\":{:.4},\"splitter_lane_trace_1e5_ms\":{:.4},\"splitter_lane_trace_threads_1e5_ms\":{:.4},\"splitter_lane_trace_checksum\":{lanes_sum:e},\"splitter_lane_trace_alone\":{alone},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_threads\":{threads},\"splitter_trace_threads_1e5_ms\":{:.4},\"splitter_split_threads_1e5_ms\":{:.4},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e},\"lc_curve_200_ms\":{:.4},\"lc_curve_checksum\":{lc_sum:e}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
@@ -300,6 +322,8 @@ fn main() {
         t_mc * 1e3,
         t_wedges * 1e3,
         t_wedges_general * 1e3,
+        t_lanes * 1e3,
+        t_lanes_threads * 1e3,
         t_split * 1e3,
         t_wedges_threads * 1e3,
         t_split_threads * 1e3,

@@ -62,6 +62,7 @@ assert abs(n["spectrum_checksum"] - spb["spectrum_checksum"]) < 1e-9 * abs(spb["
 assert abs(n["lc_curve_checksum"] - lcb["lc_curve_checksum"]) < 1e-9 * abs(lcb["lc_curve_checksum"]), f"native and numpy retardance curves disagree: {n['lc_curve_checksum']} vs {lcb['lc_curve_checksum']}"
 for other, what in ((cw, "wasm"), (cb, "numpy")):
     assert abs(cn["conoscope_checksum"] - other["conoscope_checksum"]) < 1e-9 * abs(other["conoscope_checksum"]), f"native and {what} conoscopic figures disagree"
+assert abs(n["splitter_lane_trace_checksum"] - sb["splitter_trace_checksum"]) < 1e-9 * abs(sb["splitter_trace_checksum"]), "native lanes and numpy disagree on the whole traces"
 for key in ("splitter_trace_checksum", "splitter_split_checksum"):
     assert abs(n[key] - sb[key]) < 1e-9 * abs(sb[key]), f"native and numpy disagree on {key}: {n[key]} vs {sb[key]}"
     assert abs(n[key] - w[key]) < 1e-9 * abs(w[key]), f"native and wasm disagree on {key}"
@@ -78,6 +79,8 @@ print(f"  Monte Carlo, displacer, 10^5 samples, native: {n['monte_carlo_1e5_ms']
 for label, key, threads_key in (("whole traces (4 rays, fields and powers)", "splitter_trace_1e5_ms", "splitter_trace_threads_1e5_ms"), ("split angles by wave-vector chains", "splitter_split_1e5_ms", "splitter_split_threads_1e5_ms")):
     nn, nt, ww, bb = n[key], n[threads_key], w[key], sb[key]
     print(f"  two-wedge splitter, 10^5 {label}: native on {n['splitter_threads']} threads {nt:.1f} ms ({1e5 / nt * 1e3:.0f}/s), on one {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm (one thread) {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nt:.1f}x on {n['splitter_threads']} threads, {bb / nn:.1f}x on one, wasm {bb / ww:.1f}x numpy (target 20x)")
+ln1, lnt, bb = n["splitter_lane_trace_1e5_ms"], n["splitter_lane_trace_threads_1e5_ms"], sb["splitter_trace_1e5_ms"]
+print(f"  two-wedge splitter, 10^5 whole traces in lanes (blocks of incidences side by side; {n['splitter_lane_trace_alone']} samples traced one by one): native on {n['splitter_threads']} threads {lnt:.1f} ms ({1e5 / lnt * 1e3:.0f}/s), on one {ln1:.1f} ms ({1e5 / ln1 * 1e3:.0f}/s), numpy {bb:.1f} ms: native {bb / lnt:.1f}x on {n['splitter_threads']} threads, {bb / ln1:.1f}x on one (target 20x)")
 g = n["splitter_general_trace_1e5_ms"]
 print(f"  two-wedge splitter, whole traces by the planned trace ({n['splitter_trace_declined']} of 10^5 samples declined to the general tracer); by the general tracer alone {g:.1f} ms on one thread, native {sb['splitter_trace_1e5_ms'] / g:.1f}x numpy that way")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")

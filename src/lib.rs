@@ -60,7 +60,7 @@ pub use optics::material::{
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
 #[cfg(not(target_arch = "wasm32"))]
-pub use optics::planned_trace::{PlannedRay, PlannedTrace};
+pub use optics::planned_trace::{LANES as PLANNED_LANES, LaneBuild, PlannedRay, PlannedTrace};
 pub use optics::plate::{plate_optics, tangential};
 pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};
 pub use optics::stokes::Handedness;
@@ -68,7 +68,9 @@ pub use optics::sweep::{checksum, walkoff_sweep_into, walkoff_sweep_parallel};
 pub use optics::trace::trace as trace_stack;
 pub use optics::uniaxial::{OpticAxis, Uniaxial, walkoff};
 pub use optics::wavelength::Wavelength;
-pub use optics::workload::{Workload, declined_samples, run as run_workload, run_on as run_workload_on};
+pub use optics::workload::{
+    Workload, declined_samples, run as run_workload, run_on as run_workload_on, samples_traced_alone,
+};
 
 // Design.
 pub use design::recombiner::{MAX_PHASE_ERROR as RECOMBINER_MAX_PHASE_ERROR, MIN_OVERLAP as RECOMBINER_MIN_OVERLAP};

@@ -7,8 +7,17 @@
 //! ray that leaves forward must be there in both, with power, direction and exit point equal to
 //! `PLANNED_TRACE_AGREEMENT`; an incidence the plan declines is traced by the general tracer
 //! (counted: there must be some, and far fewer than those traced).
+//!
+//! The planned trace in lanes (`PlannedTrace::trace_each`, blocks of `PLANNED_LANES` incidences
+//! side by side) is held to the same general tracer on the same stacks, in runs whose length is
+//! not a multiple of the lane count and whose blocks mix lanes traced side by side with lanes
+//! sent back to the one-by-one trace; its vector build and its portable build must give the same
+//! bits.
 
-use doublespar::{Jones, PLANNED_TRACE_AGREEMENT, PlannedTrace, Rng, Scenario, Stack, Workload, trace_stack};
+use doublespar::{
+    Jones, LaneBuild, PLANNED_LANES, PLANNED_TRACE_AGREEMENT, PlannedRay, PlannedTrace, Rng, Scenario, Stack, Workload,
+    trace_stack,
+};
 use nalgebra::Vector3;
 
 /// One crystal of a generated stack, as the scenario document gives it.
@@ -139,6 +148,78 @@ fn light(r: &mut Rng, stack: &mut Stack, max_deg: f64) {
     stack.input.stokes = doublespar::jones_stokes(&j);
 }
 
+/// What a run of the lanes met.
+#[derive(Default, Debug)]
+struct LaneTally {
+    /// Incidences traced side by side to the end, and sent back to the one-by-one trace.
+    in_lanes: usize,
+    alone: usize,
+    /// Blocks holding both kinds.
+    mixed_blocks: usize,
+    /// Rays compared bit for bit between the vector and the portable build.
+    same_bits: usize,
+}
+
+/// Traces `dirs` on `stack` (its own polarization) in lanes, by the widest, the AVX2 and the
+/// portable build: all hand on the same rays, bit for bit, as `trace` does one by one (to the agreement,
+/// in the same order), and every incidence traced is held to the general tracer.
+fn compare_lanes(doc: &str, stack: &mut Stack, dirs: &[Vector3<f64>], tally: &mut Tally, lanes: &mut LaneTally) {
+    let Some(mut plan) = PlannedTrace::new(stack) else {
+        panic!("no plan for a stack of crystals with faces\n{doc}")
+    };
+    let mut runs: [Vec<(Option<Vec<PlannedRay>>, bool)>; 3] = Default::default();
+    for (build, run) in [LaneBuild::Widest, LaneBuild::Avx2, LaneBuild::Portable]
+        .into_iter()
+        .zip(&mut runs)
+    {
+        plan.use_lane_build(build);
+        let alone = plan.trace_each(dirs, |i, rays, alone| {
+            assert_eq!(i, run.len(), "incidences out of order\n{doc}");
+            run.push((rays.map(<[_]>::to_vec), alone));
+        });
+        assert_eq!(run.len(), dirs.len());
+        assert_eq!(alone, run.iter().filter(|r| r.1).count());
+    }
+    let [vector, avx2, portable] = runs;
+    assert_eq!(vector, avx2, "the widest and the AVX2 builds\n{doc}");
+    for (k, block) in vector.chunks(PLANNED_LANES).enumerate() {
+        let alone = block.iter().filter(|r| r.1).count();
+        lanes.alone += alone;
+        lanes.in_lanes += block.len() - alone;
+        lanes.mixed_blocks += usize::from(alone > 0 && alone < block.len());
+        for (j, (rays, _)) in block.iter().enumerate() {
+            let i = k * PLANNED_LANES + j;
+            let u = dirs[i];
+            assert_eq!(rays, &portable[i].0, "vector and portable builds at {u:?}\n{doc}");
+            let one = plan.trace(u).map(<[_]>::to_vec);
+            let (Some(rays), Some(one)) = (rays, one) else {
+                assert!(
+                    rays.is_none() && plan.trace(u).is_none(),
+                    "declined by one trace only at {u:?}\n{doc}"
+                );
+                tally.declined += 1;
+                continue;
+            };
+            lanes.same_bits += rays.len();
+            assert_eq!(rays.len(), one.len(), "rays at {u:?}\n{doc}");
+            for (a, b) in rays.iter().zip(&one) {
+                assert_eq!(a.label, b.label, "ray order at {u:?}\n{doc}");
+                let d = (a.power - b.power)
+                    .abs()
+                    .max((a.direction - b.direction).amax())
+                    .max((a.exit_point_mm - b.exit_point_mm).amax() / (1.0 + b.exit_point_mm.norm()));
+                assert!(
+                    d <= PLANNED_TRACE_AGREEMENT,
+                    "lanes and one by one differ by {d:e} at {u:?}\n{doc}"
+                );
+            }
+            stack.input.direction = u;
+            tally.traced += 1;
+            agree_with_general(doc, stack, &plan, rays, tally);
+        }
+    }
+}
+
 #[derive(Default, Debug)]
 struct Tally {
     stacks: usize,
@@ -163,13 +244,18 @@ fn compare_here(doc: &str, stack: &Stack, tally: &mut Tally) {
     let Some(mut plan) = PlannedTrace::new(stack) else {
         panic!("no plan for a stack of crystals with faces\n{doc}")
     };
-    let u = stack.input.direction;
-    let general = trace_stack(stack);
-    let Some(rays) = plan.trace(u).map(<[_]>::to_vec) else {
+    let Some(rays) = plan.trace(stack.input.direction).map(<[_]>::to_vec) else {
         tally.declined += 1;
         return;
     };
     tally.traced += 1;
+    agree_with_general(doc, stack, &plan, &rays, tally);
+}
+
+/// Holds the rays `rays` of `plan` at the stack's own incidence to the general tracer's `general`.
+fn agree_with_general(doc: &str, stack: &Stack, plan: &PlannedTrace, rays: &[PlannedRay], tally: &mut Tally) {
+    let u = stack.input.direction;
+    let general = trace_stack(stack);
     let mut labels: Vec<String> = rays.iter().map(|ray| plan.label(ray.label)).collect();
     let mut expected: Vec<String> = general.paths.iter().map(|p| p.label.clone()).collect();
     labels.sort();
@@ -202,7 +288,10 @@ fn compare_here(doc: &str, stack: &Stack, tally: &mut Tally) {
 #[test]
 fn planned_traces_agree_with_the_general_tracer() {
     let mut r = Rng::new(20_261_203);
+    // The lanes' incidences from a source of their own: the stacks stay those of the plan alone.
+    let mut lane_rng = Rng::new(3_141_593);
     let mut tally = Tally::default();
+    let (mut lane_tally, mut lanes) = (Tally::default(), LaneTally::default());
     for case in 0..240 {
         let doc = generated(&mut r, 2 + case % 2);
         let Ok(scenario) = Scenario::from_json_str(&doc) else {
@@ -215,8 +304,28 @@ fn planned_traces_agree_with_the_general_tracer() {
         };
         tally.stacks += 1;
         compare(&mut r, &doc, &mut stack, 60, &mut tally);
+        // A run of 61 incidences (not a multiple of the lane count), half out to 70°.
+        light(&mut lane_rng, &mut stack, 0.0);
+        let dirs: Vec<Vector3<f64>> = (0..61)
+            .map(|i| {
+                let mut lit = stack.clone();
+                light(&mut lane_rng, &mut lit, if i % 2 == 0 { 70.0 } else { 15.0 });
+                lit.input.direction
+            })
+            .collect();
+        lane_tally.stacks += 1;
+        compare_lanes(&doc, &mut stack, &dirs, &mut lane_tally, &mut lanes);
     }
-    eprintln!("{tally:?}");
+    eprintln!("{tally:?}\nlanes: {lane_tally:?} {lanes:?}");
+    assert!(
+        lane_tally.stacks == tally.stacks && lane_tally.rays >= 30_000,
+        "{lane_tally:?}"
+    );
+    assert!(
+        lanes.in_lanes * 2 > lanes.alone && lanes.mixed_blocks >= 100,
+        "{lanes:?}"
+    );
+    assert!(lane_tally.declined > 0, "{lane_tally:?}");
     assert!(tally.stacks >= 150, "{tally:?}");
     assert!(tally.rays >= 30_000, "{tally:?}");
     assert!(tally.declined > 0 && tally.declined * 4 < tally.traced, "{tally:?}");
@@ -230,6 +339,7 @@ fn planned_traces_agree_with_the_general_tracer() {
 fn near_critical_incidences_agree_or_are_declined() {
     let mut r = Rng::new(7_654_321);
     let mut tally = Tally::default();
+    let (mut lane_tally, mut lanes) = (Tally::default(), LaneTally::default());
     let mut edges = 0;
     for case in 0..240 {
         let doc = generated(&mut r, 2 + case % 2);
@@ -263,22 +373,36 @@ fn near_critical_incidences_agree_or_are_declined() {
             stack.input.direction = along(lo - 10f64.powi(-9 + k));
             compare_here(&doc, &stack, &mut tally);
         }
+        // The same incidences and the edge's far side, side by side in lanes.
+        let dirs: Vec<Vector3<f64>> = (0..8)
+            .map(|k| along(lo - 10f64.powi(-9 + k)))
+            .chain([along(hi), along(hi + 1e-3)])
+            .collect();
+        compare_lanes(&doc, &mut stack, &dirs, &mut lane_tally, &mut lanes);
     }
-    eprintln!("{edges} edges, {tally:?}");
+    eprintln!("{edges} edges, {tally:?}\nlanes: {lane_tally:?} {lanes:?}");
+    assert!(
+        lane_tally.rays >= 200 && lanes.in_lanes >= 100,
+        "{lane_tally:?} {lanes:?}"
+    );
     assert!(edges >= 30 && tally.rays >= 200, "{edges} edges, {tally:?}");
 }
 
-/// The benchmark's splitter: no incidence of the workload is declined, and the whole-trace
-/// checksum by the plan equals the general tracer's (2,000 samples) to the agreement's order.
+/// The benchmark's splitter: no incidence of the workload is declined nor sent back from the
+/// lanes, and the whole-trace checksum by the plan, one by one and in lanes, equals the general
+/// tracer's (2,001 samples, not a multiple of the lane count) to the agreement's order.
 #[test]
 fn the_splitter_workload_is_planned_throughout() {
     let doc = include_str!("../scripts/bench/two-wedge-splitter.json");
     let (stack, _) = Scenario::from_json_str(doc).and_then(|s| s.resolve()).unwrap();
     assert_eq!(doublespar::declined_samples(&stack, 2_000), 0);
-    let planned = doublespar::run_workload(&stack, 2_000, Workload::Trace);
-    let general = doublespar::run_workload(&stack, 2_000, Workload::GeneralTrace);
-    assert!(
-        (planned - general).abs() <= PLANNED_TRACE_AGREEMENT * general.abs(),
-        "{planned} vs {general}"
-    );
+    assert_eq!(doublespar::samples_traced_alone(&stack, 2_001), 0);
+    let general = doublespar::run_workload(&stack, 2_001, Workload::GeneralTrace);
+    for work in [Workload::Trace, Workload::LaneTrace] {
+        let planned = doublespar::run_workload(&stack, 2_001, work);
+        assert!(
+            (planned - general).abs() <= PLANNED_TRACE_AGREEMENT * general.abs(),
+            "{work:?}: {planned} vs {general}"
+        );
+    }
 }

@@ -26,6 +26,10 @@
 //! seven face crossings for two wedges (one, two, four rays), each three mode pairs and one real
 //! 4×4 solve, no allocation.
 //!
+//! Many incidences at once: [`PlannedTrace::trace_each`] traces them in blocks side by side, the
+//! same operations on a vector of incidences (`optics/planned_lanes.rs`), and hands back to
+//! [`PlannedTrace::trace`] the ones a block cannot finish.
+//!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
 //! optically active) crystals, a plane-parallel stack (traced by [`crate::optics::parallel`]), or
 //! more than [`MAX_SLABS`] crystals gets no plan. At an incidence where a mode at some face is
@@ -48,6 +52,8 @@
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::Losses;
 use crate::optics::modes::{CrystalSurfaces, beam_basis};
+pub use crate::optics::planned_lanes::{LANES, LaneBuild};
+use crate::optics::planned_lanes::{LaneBuffers, lane_rays, trace_lanes};
 use crate::optics::stack::{Aperture, Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, PLANNED_CRITICAL_MARGIN};
@@ -63,7 +69,7 @@ type V3 = Vector3<f64>;
 
 /// A body at a face, seen in the face's own frame.
 #[derive(Debug, Clone, Copy)]
-enum Local {
+pub(crate) enum Local {
     Isotropic(f64),
     Uniaxial(Uniaxial, CrystalSurfaces),
 }
@@ -80,9 +86,9 @@ impl Local {
 
 /// A face's frame (columns: its axes in the lab) and its transpose.
 #[derive(Debug, Clone, Copy)]
-struct Frame {
-    frame: Matrix3<f64>,
-    to_face: Matrix3<f64>,
+pub(crate) struct Frame {
+    pub(crate) frame: Matrix3<f64>,
+    pub(crate) to_face: Matrix3<f64>,
 }
 
 impl Frame {
@@ -328,10 +334,10 @@ impl Carrier {
 
 /// One crossing's bodies: where the light comes from and where it goes, in the face's frame.
 #[derive(Debug, Clone, Copy)]
-struct Crossing {
-    frame: Frame,
-    from: Local,
-    into: Local,
+pub(crate) struct Crossing {
+    pub(crate) frame: Frame,
+    pub(crate) from: Local,
+    pub(crate) into: Local,
 }
 
 /// How rays reach a slab's front face.
@@ -339,7 +345,7 @@ struct Crossing {
 // follow at every crossing.
 #[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone, Copy)]
-enum Entry {
+pub(crate) enum Entry {
     /// From the outside medium: travel to the front face (aperture), then cross.
     Outside(Crossing),
     /// Straight from the previous crystal at the front face: one crossing (direct contact) or
@@ -349,14 +355,14 @@ enum Entry {
 
 /// One crystal of the plan.
 #[derive(Debug, Clone, Copy)]
-struct PlannedSlab {
-    front: Plane,
-    back: Plane,
-    aperture: Option<Aperture>,
-    entry: Entry,
+pub(crate) struct PlannedSlab {
+    pub(crate) front: Plane,
+    pub(crate) back: Plane,
+    pub(crate) aperture: Option<Aperture>,
+    pub(crate) entry: Entry,
     /// Out of the back face into the outside medium, when the next element's contact (or the
     /// stack's end) puts it there.
-    exit: Option<Crossing>,
+    pub(crate) exit: Option<Crossing>,
 }
 
 /// A ray in flight.
@@ -396,6 +402,8 @@ pub struct PlannedTrace {
     flights: Vec<Flight>,
     next: Vec<Flight>,
     rays: Vec<PlannedRay>,
+    lanes: LaneBuffers,
+    build: LaneBuild,
 }
 
 impl PlannedTrace {
@@ -485,7 +493,62 @@ impl PlannedTrace {
             flights: Vec::with_capacity(1 << MAX_SLABS),
             next: Vec::with_capacity(1 << MAX_SLABS),
             rays: Vec::with_capacity(1 << MAX_SLABS),
+            lanes: LaneBuffers::default(),
+            build: LaneBuild::Widest,
         })
+    }
+
+    /// Which build of the lane kernel [`PlannedTrace::trace_each`] uses ([`LaneBuild::Widest`]
+    /// unless set): all give the same bits (`planned_lanes` header); tests compare them.
+    pub fn use_lane_build(&mut self, build: LaneBuild) {
+        self.build = build;
+    }
+
+    /// Traces every incidence of `dirs` (unit directions, u_z > 0) and hands each one's rays to
+    /// `each` in order, with its index: what [`PlannedTrace::trace`] gives for it, `None` where
+    /// the plan declines it (the caller then traces it with the general tracer). Incidences go
+    /// through in blocks of [`LANES`] side by side (`planned_lanes`); a lane the block cannot
+    /// take to its end is traced again by [`PlannedTrace::trace`] alone (`each`'s third
+    /// argument true). Returns how many were traced so, declined ones included.
+    pub fn trace_each(&mut self, dirs: &[V3], mut each: impl FnMut(usize, Option<&[PlannedRay]>, bool)) -> usize {
+        let mut buffers = std::mem::take(&mut self.lanes);
+        let mut alone = 0;
+        for (b, chunk) in dirs.chunks(LANES).enumerate() {
+            // A short last block repeats its last incidence; the repeats are not handed on.
+            let block: [V3; LANES] = std::array::from_fn(|i| chunk[i.min(chunk.len() - 1)]);
+            trace_lanes(self, &mut buffers, &block, self.build);
+            for (i, &u) in chunk.iter().enumerate() {
+                if buffers.rays.ok[i] {
+                    lane_rays(&buffers.rays, i, &mut self.rays);
+                    each(b * LANES + i, Some(&self.rays), false);
+                } else {
+                    alone += 1;
+                    each(b * LANES + i, self.trace(u), true);
+                }
+            }
+        }
+        self.lanes = buffers;
+        alone
+    }
+
+    pub(crate) fn ideal(&self) -> bool {
+        self.losses == Losses::Ideal
+    }
+
+    pub(crate) fn outside(&self) -> f64 {
+        self.outside
+    }
+
+    pub(crate) fn slabs(&self) -> &[PlannedSlab] {
+        &self.slabs
+    }
+
+    pub(crate) fn coherency(&self) -> [f64; 3] {
+        self.coherency
+    }
+
+    pub(crate) fn screen(&self) -> &Plane {
+        &self.screen
     }
 
     /// The label of a ray (its modes' letters, crystal by crystal), as the general tracer

@@ -9,8 +9,11 @@
 //!   with P the ray's power, d its direction and (x, y) its exit point in mm. Computed by the
 //!   planned whole trace (`optics::planned_trace`: the same rays to rounding), each incidence it
 //!   declines by the general tracer (natively; WebAssembly builds hold no plan and trace every
-//!   sample by the general tracer); [`Workload::GeneralTrace`] is the same sum by the general
-//!   tracer alone, the reference it is measured against.
+//!   sample by the general tracer); [`Workload::LaneTrace`] the same sum with the planned trace
+//!   run on blocks of incidences side by side ([`PlannedTrace::trace_each`]: the same rays, the
+//!   same checksum to rounding; natively only, WebAssembly builds trace it as `Trace`);
+//!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
+//!   are measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
 //!   ([`crate::optics::chain`]), what a tolerance run of a splitter needs; checksum Σᵢ of the angle
 //!   between them in degrees (samples where either is missing add nothing).
@@ -32,6 +35,8 @@ use std::ops::Range;
 pub enum Workload {
     /// The whole trace: every ray with its fields, powers and points, by the planned trace.
     Trace,
+    /// The same whole trace by the planned trace in blocks of incidences side by side.
+    LaneTrace,
     /// The same whole trace by the general tracer at every sample.
     GeneralTrace,
     /// The angle between rays "oe" and "eo" only.
@@ -77,6 +82,7 @@ fn incidence(i: usize, n: usize) -> Vector3<f64> {
 fn run_part(stack: &Stack, n: usize, part: Range<usize>, work: Workload) -> f64 {
     match work {
         Workload::Trace => planned_part(stack, n, part).0,
+        Workload::LaneTrace => lane_part(stack, n, part).0,
         Workload::GeneralTrace => general_part(stack, n, part).0,
         Workload::Split => {
             let plans = (ChainPlan::new(stack, "oe"), ChainPlan::new(stack, "eo"));
@@ -154,6 +160,51 @@ fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
     (sum, declined)
 }
 
+/// Incidences per call of [`PlannedTrace::trace_each`]: a few thousand bytes of directions.
+#[cfg(not(target_arch = "wasm32"))]
+const LANE_CALL: usize = 256;
+
+/// The whole-trace checksum of samples `part` of `n` by the planned trace in lanes, how many
+/// samples it declined (traced by the general tracer instead) and how many it traced one by one
+/// (declined ones included).
+#[cfg(not(target_arch = "wasm32"))]
+fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
+    let Some(mut plan) = PlannedTrace::new(stack) else {
+        let (sum, declined) = general_part(stack, n, part);
+        return (sum, declined, declined);
+    };
+    let mut general = GeneralSamples::new(stack);
+    let (mut sum, mut declined, mut alone) = (0.0, 0, 0);
+    let mut dirs = Vec::with_capacity(LANE_CALL);
+    let mut start = part.start;
+    while start < part.end {
+        let end = (start + LANE_CALL).min(part.end);
+        dirs.clear();
+        dirs.extend((start..end).map(|i| incidence(i, n)));
+        alone += plan.trace_each(&dirs, |k, rays, _| match rays {
+            Some(rays) => {
+                sum += rays
+                    .iter()
+                    .map(|r| ray_term(r.power, &r.direction, r.exit_point_mm.x, r.exit_point_mm.y))
+                    .sum::<f64>()
+            }
+            None => {
+                declined += 1;
+                sum += general.checksum(dirs[k]);
+            }
+        });
+        start = end;
+    }
+    (sum, declined, alone)
+}
+
+/// WebAssembly builds hold no plan: the lanes' workload is the planned one's.
+#[cfg(target_arch = "wasm32")]
+fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
+    let (sum, declined) = planned_part(stack, n, part);
+    (sum, declined, declined)
+}
+
 /// WebAssembly builds hold no plan (`optics/mod.rs`): every sample by the general tracer.
 #[cfg(target_arch = "wasm32")]
 fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
@@ -172,6 +223,13 @@ fn general_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
 /// by the general tracer): all of them when the stack gets no plan.
 pub fn declined_samples(stack: &Stack, n: usize) -> usize {
     planned_part(stack, n, 0..n).1
+}
+
+/// How many of the `n` whole-trace samples of `stack` the planned trace in lanes traces one by one
+/// ([`PlannedTrace::trace_each`]: lanes it could not take to their end, declined samples
+/// included): all of them when the stack gets no plan.
+pub fn samples_traced_alone(stack: &Stack, n: usize) -> usize {
+    lane_part(stack, n, 0..n).2
 }
 
 #[cfg(test)]
@@ -237,7 +295,12 @@ mod tests {
     #[test]
     fn threads_sum_what_one_thread_sums() {
         let st = splitter();
-        for work in [Workload::Trace, Workload::GeneralTrace, Workload::Split] {
+        for work in [
+            Workload::Trace,
+            Workload::LaneTrace,
+            Workload::GeneralTrace,
+            Workload::Split,
+        ] {
             let one = run(&st, 300, work);
             assert!(one.is_finite() && one > 0.0, "{work:?}: {one}");
             for threads in [2, 3, 7] {
