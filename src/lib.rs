@@ -32,7 +32,7 @@ pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
 pub use precision::{LC_SUBLAYERS, PLANNED_TRACE_AGREEMENT, assert_within};
 
 // Documents.
-pub use contract::conoscope::{ConoscopeMap, conoscope_at, conoscope_of};
+pub use contract::conoscope::{ConoscopeMap, MAX_PIXELS_WITH_CELL, conoscope_at, conoscope_of};
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).
 pub use contract::result::RejectedRay;

@@ -110,6 +110,8 @@ function onAnswer(state, msg) {
     c.busy = null;
     if (c.again || !current) needConvergent(state);
     const n = c.pixels || PIXELS;
-    if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
+    // Fewer directions than asked: the core's cap for a set-up with a liquid-crystal cell.
+    const why = n < PIXELS ? ' (a liquid-crystal cell is solved again at each)' : '';
+    if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms${why}.` : '');
   }
 }
