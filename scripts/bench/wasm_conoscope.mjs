@@ -45,6 +45,7 @@ for (const v of values) {
 const cell = readFileSync(join(root, 'examples', 'twisted-nematic-cell.json'), 'utf8');
 const [msCell48] = median(() => worker.convergentMap(cell, 'conoscope', 48));
 const [msCell128, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 128), 3);
+const [msWhite128] = median(() => worker.convergentWhite(doc, 128), 3);
 const page = await load('pkg');
 const session = new page.Session();
 session.updateJson(doc);
@@ -61,4 +62,5 @@ console.log(JSON.stringify({
   cell_conoscope_48_worker_build_ms: msCell48,
   cell_conoscope_128_worker_build_ms: msCell128,
   cell_conoscope_128_values: cellValues.length,
+  white_conoscope_128_worker_build_ms: msWhite128,
 }));
