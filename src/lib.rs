@@ -32,12 +32,16 @@ pub use numfmt::{MAX_DRAWN_CHARS, length_auto, sig_within};
 pub use precision::{LC_SUBLAYERS, PLANNED_TRACE_AGREEMENT, assert_within};
 
 // Documents.
-pub use contract::conoscope::{ConoscopeMap, conoscope_at, conoscope_of};
+pub use contract::conoscope::{
+    ColourMap, ConoscopeMap, MAX_PIXELS_WHITE, MAX_PIXELS_WHITE_WITH_CELL, MAX_PIXELS_WITH_CELL, conoscope_at,
+    conoscope_of, white_light_at, white_light_note, white_light_of,
+};
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).
 pub use contract::result::RejectedRay;
 pub use contract::result::{ElementReport, TraceResult, report as report_trace, trace_scenario};
 pub use contract::scenario::{MAX_DOCUMENT_BYTES, Scenario};
+pub use optics::colorimetry::Colour;
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};

@@ -241,3 +241,15 @@ pub const DIRECTOR_ITERATIONS: usize = 200;
 /// rays' directions (about 1e-16) stays far below it, and a ray turned by a wedge or a tilted
 /// plate (1e-6 and more) far above.
 pub const CELL_SAME_DIRECTION: f64 = 1e-13;
+
+/// Smallest distance (in q_z, units of k0) between a liquid-crystal slice's forward and backward
+/// waves (o₋ − o₊, e₋ − e₊, e₋ − o₊) for which its exponential is taken in closed form
+/// (`optics::lc::slice`): its divided differences divide by these, losing about
+/// ε·θ|Δ|²/distance, below 10⁻¹⁴ of the matrix down to here. Closer (light grazing inside the
+/// slice) the Taylor series is used.
+pub const SLICE_ROOTS_APART: f64 = 0.05;
+
+/// Largest θ·max|q_z| (θ = k0 h) of a liquid-crystal slice's closed-form exponential expanded in
+/// powers of Δ (`optics::lc::slice`): the terms then stay within a few times the result, so
+/// rounding stays near 10⁻¹⁶; thicker slices are halved and their matrix squared.
+pub const SLICE_STEP_PHASE: f64 = 1.5;

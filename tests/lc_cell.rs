@@ -343,7 +343,10 @@ fn a_cell_s_conoscopic_figure_is_the_equal_plate_s_and_the_trace_s() {
     );
     // A finer map of a cell is computed at the cap, and says so; a plate's is not capped.
     let fine = conoscope_of(&cell, ConoscopeQuantity::Transmission, 40.0, 256).unwrap();
-    assert_eq!((fine.pixels, fine.values.len()), (48, 48 * 48));
+    assert_eq!(
+        (fine.pixels, fine.values.len()),
+        (doublespar::MAX_PIXELS_WITH_CELL, 128 * 128)
+    );
     assert_eq!(
         conoscope_of(&plate, ConoscopeQuantity::Transmission, 40.0, 64)
             .unwrap()

@@ -15,6 +15,11 @@
 // edit always wins. While a map is computed the view keeps its last picture (or, the first time,
 // its rings and a note), the figure is aria-busy and a status line says so.
 //
+// White light: with the switch #conoscope-white on, each request also asks for the conoscopic
+// figure in white light (the request's white_pixels, WHITE_PIXELS per side: every direction at
+// the colour tables' 81 wavelengths), which the worker sends last; it is drawn as one ImageData on
+// its own canvas, with the core's note of the sampling below it.
+//
 // Contract: views.js sets state.convergent.drawByName(name) (redraws one view) and calls
 // lacksConvergent and needConvergent; the test hook reads state.convergent's busy and ms (for
 // each view, ms from posting the last request to the view drawn).
@@ -23,7 +28,33 @@ import { setAttr, setText } from './dom.js';
 import { startCoreWorker } from './core-worker.js';
 
 const PIXELS = 256;
+const WHITE_PIXELS = 128;
 const VIEWS = ['conoscope', 'acceptance'];
+
+const whiteOn = () => document.getElementById('conoscope-white')?.checked === true;
+
+/** Wires the white-light switch, once: on, it shows the figure, asking for it if lacking. */
+function wireWhite(state) {
+  const c = state.convergent;
+  const box = document.getElementById('conoscope-white');
+  if (c.whiteWired || !box) return;
+  c.whiteWired = true;
+  box.addEventListener('change', () => {
+    document.getElementById('conoscope-white-box').hidden = !box.checked;
+    if (!box.checked || c.have.has(`white ${state.session.scenarioJson()}`)) return;
+    if (c.busy) c.again = true;
+    else needConvergent(state);
+  });
+}
+
+/** Draws the worker's white-light figure (RGBA bytes) and its note. */
+function drawWhite(colour) {
+  const canvas = document.getElementById('conoscope-white-canvas');
+  canvas.width = canvas.height = colour.pixels;
+  const rgba = new Uint8ClampedArray(colour.rgba.buffer, colour.rgba.byteOffset, colour.rgba.length);
+  canvas.getContext('2d').putImageData(new ImageData(rgba, colour.pixels, colour.pixels), 0, 0);
+  setText(document.getElementById('conoscope-white-note'), `White light: ${colour.note}.`);
+}
 
 /**
  * Whether `name` is a view the worker computes whose map the session lacks (tracing a scenario
@@ -64,6 +95,7 @@ function startWorker(state) {
 export function needConvergent(state) {
   const c = state.convergent;
   if (!document.getElementById('conoscope-open').open) return;
+  wireWhite(state);
   const text = state.session.scenarioJson();
   if (c.busy) {
     c.again ||= c.busy.text !== text;
@@ -84,7 +116,8 @@ export function needConvergent(state) {
   // status names what was computed once the maps arrive.
   c.pixels = 0;
   setBusy(true, `Computing up to ${PIXELS} × ${PIXELS} directions in the background…`);
-  w.postMessage({ type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, views: VIEWS });
+  const white = whiteOn() ? WHITE_PIXELS : 0;
+  w.postMessage({ type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, views: VIEWS, white_pixels: white });
 }
 
 function onAnswer(state, msg) {
@@ -92,7 +125,12 @@ function onAnswer(state, msg) {
   const { busy } = c;
   if (msg?.type !== 'convergent' || msg.id !== busy?.id) return;
   const current = state.session.scenarioJson() === busy.text;
-  if (current) {
+  if (current && msg.view === 'white') {
+    if (msg.colour) drawWhite(msg.colour);
+    else setText(document.getElementById('conoscope-white-note'), `White light not drawn: ${msg.error?.message} (${msg.error?.field}).`);
+    c.have.add(`white ${busy.text}`);
+    c.ms.white = performance.now() - busy.posted;
+  } else if (current) {
     const { map = {}, error = {} } = msg;
     try {
       state.session.setConvergent(msg.view, map.pixels ?? 0, map.values ?? [], map.min, map.max, error.field ?? '', error.message ?? '');
@@ -110,6 +148,8 @@ function onAnswer(state, msg) {
     c.busy = null;
     if (c.again || !current) needConvergent(state);
     const n = c.pixels || PIXELS;
-    if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms.` : '');
+    // Fewer directions than asked: the core's cap for a set-up with a liquid-crystal cell.
+    const why = n < PIXELS ? ' (a liquid-crystal cell is solved again at each)' : '';
+    if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms${why}.` : '');
   }
 }

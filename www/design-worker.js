@@ -14,12 +14,20 @@
 //                                                          run: with monte_carlo filled in)
 //                   {type: 'error', id, error: {field, message}, internal}
 //                   {type: 'failed', message}              the core could not be loaded
-//   page -> worker  {type: 'convergent', id, scenario, pixels, views}   scenario: JSON text;
-//                   views: some of 'conoscope', 'acceptance'
+//   page -> worker  {type: 'convergent', id, scenario, pixels, views, white_pixels}
+//                   scenario: JSON text; views: some of 'conoscope', 'acceptance';
+//                   white_pixels (optional, 0 or absent for none): also the conoscopic figure in
+//                   white light at that many pixels per side (1 to 256), after the views
 //   worker -> page  {type: 'convergent', id, view, last, map: {pixels, min, max, values}}
 //                   or {type: 'convergent', id, view, last, error: {field, message}, internal}
 //                   one per view, in the order asked, `last` on the last; values a Float64Array
 //                   (transferred) row-major from the top row, NaN outside the cone
+//   worker -> page  {type: 'convergent', id, view: 'white', last: true, colour: {pixels, rgba, note}}
+//                   or {…, error: {field, message}}: the white-light figure, when white_pixels
+//                   asked for it (the last answer then); rgba a Uint8Array (transferred) of
+//                   pixels × pixels × 4 bytes for an ImageData, transparent outside the cone
+//                   (fewer pixels than asked for a set-up with a liquid-crystal cell: the core's
+//                   cap); note: the illuminant, observer and wavelengths sampled
 //
 // A run is one DesignRun of the core: it reads and checks the request and solves the nominal
 // design once, then draws the Monte Carlo chunks exactly as the core does in one go (each chunk
@@ -32,7 +40,7 @@
 // page to draw; the page keeps one request in flight and drops answers for a scenario it no longer
 // shows.
 
-import init, { DesignRun, convergentMap } from './pkg-design/doublespar.js';
+import init, { DesignRun, convergentMap, convergentWhite, convergentWhiteNote } from './pkg-design/doublespar.js';
 
 const queue = [];
 let ready = false;
@@ -69,8 +77,9 @@ function solve(id, request) {
 
 function convergent(msg) {
   const views = Array.isArray(msg.views) ? msg.views : [];
+  const white = msg.white_pixels >>> 0;
   views.forEach((view, k) => {
-    const answer = { type: 'convergent', id: msg.id, view, last: k === views.length - 1 };
+    const answer = { type: 'convergent', id: msg.id, view, last: k === views.length - 1 && !white };
     try {
       const values = convergentMap(String(msg.scenario), String(view), msg.pixels >>> 0);
       let min = Infinity;
@@ -87,6 +96,15 @@ function convergent(msg) {
       self.postMessage({ ...answer, ...asFieldError(e) });
     }
   });
+  if (!white) return;
+  const answer = { type: 'convergent', id: msg.id, view: 'white', last: true };
+  try {
+    const rgba = convergentWhite(String(msg.scenario), white);
+    const pixels = Math.round(Math.sqrt(rgba.length / 4));
+    self.postMessage({ ...answer, colour: { pixels, rgba, note: convergentWhiteNote(pixels) } }, [rgba.buffer]);
+  } catch (e) {
+    self.postMessage({ ...answer, ...asFieldError(e) });
+  }
 }
 
 function handle(msg) {

@@ -13,17 +13,17 @@ import { performance } from 'node:perf_hooks';
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const doc = readFileSync(join(root, 'scripts', 'bench', 'conoscope.json'), 'utf8');
 
-/** Median time of 9 runs of `f`, in ms, and its last value. */
-function median(f) {
+/** Median time of `runs` runs of `f` (9 unless given), in ms, and its last value. */
+function median(f, runs = 9) {
   const ts = [];
   let value;
-  for (let i = 0; i < 9; i++) {
+  for (let i = 0; i < runs; i++) {
     const t = performance.now();
     value = f();
     ts.push(performance.now() - t);
   }
   ts.sort((a, b) => a - b);
-  return [ts[4], value];
+  return [ts[runs >> 1], value];
 }
 
 const load = async (dir) => {
@@ -42,6 +42,10 @@ for (const v of values) {
   min = Math.min(min, v);
   max = Math.max(max, v);
 }
+const cell = readFileSync(join(root, 'examples', 'twisted-nematic-cell.json'), 'utf8');
+const [msCell48] = median(() => worker.convergentMap(cell, 'conoscope', 48));
+const [msCell128, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 128), 3);
+const [msWhite128] = median(() => worker.convergentWhite(doc, 128), 3);
 const page = await load('pkg');
 const session = new page.Session();
 session.updateJson(doc);
@@ -55,4 +59,8 @@ console.log(JSON.stringify({
   conoscope_256_worker_build_ms: ms256,
   conoscope_checksum: sum,
   conoscope_scene_256_page_build_ms: msScene,
+  cell_conoscope_48_worker_build_ms: msCell48,
+  cell_conoscope_128_worker_build_ms: msCell128,
+  cell_conoscope_128_values: cellValues.length,
+  white_conoscope_128_worker_build_ms: msWhite128,
 }));

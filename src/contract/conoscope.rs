@@ -8,9 +8,20 @@
 //! The scenario's beam incidence is not used: every direction of the cone is lit; its
 //! polarization is. Cone and pixels are checked here, with errors naming `conoscope.cone_deg`
 //! and `conoscope.pixels`.
+//!
+//! White light ([`white_light_of`]): the conoscopic figure's colours, the interference colours
+//! of the isochromes. Each direction's transmission is taken at each of the colour tables'
+//! wavelengths (81, 380 to 780 nm at 5 nm in standard air, each traced at its vacuum wavelength,
+//! as a scenario's `spectrum.white_light` is: `contract::white_light`) and weighed by the CIE 1931
+//! observer under illuminant D65 into its colour ([`crate::optics::colorimetry::colour_of`]). So
+//! a pixel's colour is the white-light colour of the whole trace with the beam at that direction
+//! (tested). A retardance above about 20 waves varies faster across the band than 5 nm resolve
+//! (its period λ²/Γ falls below two steps), where the figure shows higher-order white only on
+//! average; its note states the sampling.
 
 use crate::contract::scenario::Scenario;
 use crate::error::Error;
+use crate::optics::colorimetry::{self, Colour, POINTS};
 use crate::optics::conoscope::{
     Grid, Quantity, conoscope_map, conoscope_stack_ok, first_retardance_at, transmission_at,
 };
@@ -22,11 +33,19 @@ pub const MAX_CONE_DEG: f64 = 80.0;
 /// The largest number of pixels per side.
 pub const MAX_PIXELS: usize = 512;
 /// The largest number of pixels per side of a set-up holding a liquid-crystal cell: every
-/// direction solves the cell's slices again (about 0.15 ms natively, against microseconds for a
-/// crystal plate), so a cell's map is computed at most 48 × 48 (about 0.3 s natively, under a
-/// second in the page's worker; its note states the directions). A thin cell's figure varies
-/// slowly across the cone, so little is lost.
-pub const MAX_PIXELS_WITH_CELL: usize = 48;
+/// direction solves the cell's 100 slices again (each by its closed-form exponential,
+/// `optics::lc::slice`: about 25 µs a direction natively for a 90° twisted cell, against about
+/// 2 µs for a crystal plate), so a cell's map is computed at most 128 × 128 (measured on a busy
+/// machine: 0.35 s natively, 0.5–0.7 s in the page's worker's build; its note states the
+/// directions). A thin cell's figure varies slowly across the cone, so little is lost.
+pub const MAX_PIXELS_WITH_CELL: usize = 128;
+
+/// The largest number of pixels per side of a white-light figure: each direction is solved at
+/// the 81 wavelengths of the colour tables, 81 times a monochromatic figure's work.
+pub const MAX_PIXELS_WHITE: usize = 256;
+/// The largest number of pixels per side of a white-light figure of a set-up holding a
+/// liquid-crystal cell (81 cell solves a direction).
+pub const MAX_PIXELS_WHITE_WITH_CELL: usize = 24;
 
 /// A computed conoscopic map.
 #[derive(Debug, Clone, PartialEq)]
@@ -54,28 +73,14 @@ pub struct ConoscopeMap {
 /// (liquid-crystal cells are solved at every direction); `elements` for a retardance error
 /// without a crystal.
 pub fn conoscope_of(sc: &Scenario, quantity: Quantity, cone_deg: f64, pixels: usize) -> Result<ConoscopeMap, Error> {
-    if !(cone_deg > 0.0 && cone_deg <= MAX_CONE_DEG) {
-        return Err(Error::new(
-            "conoscope.cone_deg",
-            format!("the cone must be above 0 and at most {MAX_CONE_DEG}°"),
-        ));
-    }
-    if !(1..=MAX_PIXELS).contains(&pixels) {
-        return Err(Error::new(
-            "conoscope.pixels",
-            format!("the map must have 1 to {MAX_PIXELS} pixels per side"),
-        ));
-    }
+    check_grid(cone_deg, pixels, MAX_PIXELS)?;
     let stack = resolved(sc)?;
-    let pixels = if stack.cells.is_empty() {
-        pixels
-    } else {
-        pixels.min(MAX_PIXELS_WITH_CELL)
-    };
-    let grid = Grid {
-        cone_rad: cone_deg.to_radians(),
+    let grid = grid_of(
+        cone_deg,
         pixels,
-    };
+        (!stack.cells.is_empty()).then_some(MAX_PIXELS_WITH_CELL),
+    );
+    let pixels = grid.pixels;
     let values = conoscope_map(&stack, grid, quantity);
     let (min, max) = values
         .iter()
@@ -116,6 +121,32 @@ pub fn conoscope_at(sc: &Scenario, quantity: Quantity, polar_deg: f64, azimuth_d
     })
 }
 
+/// The grid of a map over `cone_deg` at `pixels` per side, at most `cap` when given (a set-up
+/// holding a liquid-crystal cell).
+fn grid_of(cone_deg: f64, pixels: usize, cap: Option<usize>) -> Grid {
+    Grid {
+        cone_rad: cone_deg.to_radians(),
+        pixels: cap.map_or(pixels, |cap| pixels.min(cap)),
+    }
+}
+
+/// Checks a map's cone and its pixels per side (1 to `max_pixels`).
+fn check_grid(cone_deg: f64, pixels: usize, max_pixels: usize) -> Result<(), Error> {
+    if !(cone_deg > 0.0 && cone_deg <= MAX_CONE_DEG) {
+        return Err(Error::new(
+            "conoscope.cone_deg",
+            format!("the cone must be above 0 and at most {MAX_CONE_DEG}°"),
+        ));
+    }
+    if !(1..=max_pixels).contains(&pixels) {
+        return Err(Error::new(
+            "conoscope.pixels",
+            format!("the map must have 1 to {max_pixels} pixels per side"),
+        ));
+    }
+    Ok(())
+}
+
 /// The resolved stack of `sc`, checked to be one that convergent light is solved for.
 fn resolved(sc: &Scenario) -> Result<Stack, Error> {
     let (stack, _) = sc.resolve()?;
@@ -126,4 +157,103 @@ fn resolved(sc: &Scenario) -> Result<Stack, Error> {
         )
     })?;
     Ok(stack)
+}
+
+/// A conoscopic figure in white light: each direction's colour.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ColourMap {
+    /// Largest polar angle in the outside medium, degrees.
+    pub cone_deg: f64,
+    /// Pixels per side.
+    pub pixels: usize,
+    /// Colours row-major, row 0 at the top (+y up, +x right); `None` outside the cone.
+    pub colours: Vec<Option<Colour>>,
+}
+
+impl ColourMap {
+    /// The pixels as RGBA bytes, row-major from the top row, transparent outside the cone.
+    pub fn rgba(&self) -> Vec<u8> {
+        self.colours
+            .iter()
+            .flat_map(|c| match c {
+                Some(c) => [c.srgb[0], c.srgb[1], c.srgb[2], 255],
+                None => [0; 4],
+            })
+            .collect()
+    }
+}
+
+/// What a white-light figure of `pixels` per side shows and how it was sampled: the note the
+/// page prints under it.
+pub fn white_light_note(pixels: usize) -> String {
+    format!(
+        "colour in D65 white light (CIE 1931 2° observer): {POINTS} wavelengths, {}–{} nm in air at {} nm; {pixels} × {pixels} directions",
+        colorimetry::FIRST_NM,
+        colorimetry::FIRST_NM + colorimetry::STEP_NM * (POINTS - 1) as f64,
+        colorimetry::STEP_NM
+    )
+}
+
+/// `sc` resolved at each wavelength of the colour tables (see the header), checked for
+/// convergent light.
+fn white_light_stacks(sc: &Scenario) -> Result<Vec<Stack>, Error> {
+    colorimetry::wavelengths_nm()
+        .map(|air_nm| {
+            let at = Scenario {
+                wavelength: crate::optics::material::vacuum_from_air(air_nm)?.vacuum,
+                air_wavelength_nm: sc.air_wavelength_nm.map(|_| air_nm),
+                spectrum: None,
+                ..sc.clone()
+            };
+            resolved(&at)
+                .map_err(|e| Error::new(e.field, format!("in white light at {air_nm} nm in air: {}", e.message)))
+        })
+        .collect()
+}
+
+/// The colour of direction (`polar`, `azimuth`) (radians) through the stacks of
+/// [`white_light_stacks`].
+fn colour_at(stacks: &[Stack], polar: f64, azimuth: f64) -> Colour {
+    let mut t = [0.0; POINTS];
+    for (slot, stack) in t.iter_mut().zip(stacks) {
+        *slot = transmission_at(stack, polar, azimuth);
+    }
+    colorimetry::colour_of(&t)
+}
+
+/// The conoscopic figure of `sc` in white light over a cone of `cone_deg` at `pixels` per side
+/// (at most [`MAX_PIXELS_WHITE_WITH_CELL`] when the set-up holds a liquid-crystal cell; the map
+/// says how many).
+///
+/// # Errors
+/// `conoscope.cone_deg` outside (0, 80]; `conoscope.pixels` outside 1 to [`MAX_PIXELS_WHITE`];
+/// from [`Scenario::resolve`] at any of the tables' wavelengths (the message names it);
+/// `elements[i]` for an element convergent light is not solved for.
+pub fn white_light_of(sc: &Scenario, cone_deg: f64, pixels: usize) -> Result<ColourMap, Error> {
+    check_grid(cone_deg, pixels, MAX_PIXELS_WHITE)?;
+    let stacks = white_light_stacks(sc)?;
+    let cell = stacks.iter().any(|s| !s.cells.is_empty());
+    let grid = grid_of(cone_deg, pixels, cell.then_some(MAX_PIXELS_WHITE_WITH_CELL));
+    let pixels = grid.pixels;
+    let mut colours = Vec::with_capacity(pixels * pixels);
+    for row in 0..pixels {
+        for column in 0..pixels {
+            colours.push(grid.direction(column, row).map(|(p, a)| colour_at(&stacks, p, a)));
+        }
+    }
+    Ok(ColourMap {
+        cone_deg,
+        pixels,
+        colours,
+    })
+}
+
+/// The white-light colour of `sc` at one direction (`polar_deg`, `azimuth_deg`) in the outside
+/// medium, as [`white_light_of`] computes it for each pixel.
+///
+/// # Errors
+/// As [`white_light_of`], less the grid's.
+pub fn white_light_at(sc: &Scenario, polar_deg: f64, azimuth_deg: f64) -> Result<Colour, Error> {
+    let stacks = white_light_stacks(sc)?;
+    Ok(colour_at(&stacks, polar_deg.to_radians(), azimuth_deg.to_radians()))
 }

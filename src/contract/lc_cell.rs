@@ -29,6 +29,7 @@ use crate::optics::jones::JonesMatrix;
 use crate::optics::lc::catalogue::{self, NematicEntry};
 use crate::optics::lc::director::{CellLayout, Profile, solve};
 use crate::optics::lc::nematic::Nematic;
+use crate::optics::lc::slice::Slices;
 use crate::optics::lc::stratified::cell_jones;
 use crate::optics::stack::LayeredCell;
 use crate::optics::wavelength::Wavelength;
@@ -280,6 +281,7 @@ impl LcCell {
     /// This solve's layered optics, which give the cell's Jones matrix at any direction.
     pub fn layered(&self, solved: SolvedCell, wavelength: Wavelength, losses: Losses) -> LayeredCell {
         LayeredCell {
+            slices: Slices::new(&solved.nematic, &solved.profile, self.thickness_um),
             nematic: solved.nematic,
             profile: solved.profile,
             thickness_um: self.thickness_um,

@@ -28,6 +28,7 @@ use crate::optics::interface::Losses;
 use crate::optics::jones::{Jones, JonesMatrix};
 use crate::optics::lc::director::Profile;
 use crate::optics::lc::nematic::Nematic;
+use crate::optics::lc::slice::Slices;
 use crate::optics::modes::{Mode, Travel, crystal_modes};
 use crate::optics::uniaxial::Uniaxial;
 use crate::optics::wavelength::Wavelength;
@@ -169,6 +170,8 @@ pub struct LayeredCell {
     pub profile: Profile,
     /// Thickness of the nematic layer, µm.
     pub thickness_um: f64,
+    /// Its slices' permittivities, made once from the profile (`optics::lc::slice`).
+    pub slices: Slices,
     /// Vacuum wave number, 1/µm.
     pub k0_per_um: f64,
     /// Treatment of the cell's faces.

@@ -318,6 +318,33 @@ pub fn convergent_map(doc: &str, view: &str, pixels: usize) -> Result<Vec<f64>, 
     Ok(map.values.iter().map(|v| v.unwrap_or(f64::NAN)).collect())
 }
 
+/// The conoscopic figure in white light of the scenario `doc` (JSON text) over the views' 30° cone
+/// at `pixels` per side (fewer for a set-up with a liquid-crystal cell: the core's cap), for the
+/// page's worker: RGBA bytes row-major from the top row, transparent outside the cone, ready for
+/// an ImageData (its side is the square root of a quarter of its length); what it shows and its
+/// sampling are [`convergent_white_note`]'s.
+///
+/// # Errors
+/// `{field, message}`: `conoscope.pixels` outside 1 to 256, the scenario's first error at any
+/// wavelength of the colour tables, or the element convergent light is not solved for.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = convergentWhite)]
+pub fn convergent_white(doc: &str, pixels: usize) -> Result<Vec<u8>, JsValue> {
+    use crate::contract::conoscope::white_light_of;
+    let map = Scenario::from_json_str(doc)
+        .and_then(|s| white_light_of(&s, CONE_DEG, pixels))
+        .map_err(js_error)?;
+    Ok(map.rgba())
+}
+
+/// The note under a white-light conoscopic figure of `pixels` per side: the illuminant, observer
+/// and wavelengths sampled.
+#[cfg(feature = "design-worker")]
+#[wasm_bindgen(js_name = convergentWhiteNote)]
+pub fn convergent_white_note(pixels: usize) -> String {
+    crate::contract::conoscope::white_light_note(pixels)
+}
+
 /// Draws a plot of a data series given as JSON text (`{title, x_label, x_unit, y_label, y_unit,
 /// points: [[x, y], …], current: [x, y] | null, markers: [[x, y], …] (optional), note}`), for
 /// curves computed elsewhere (the design worker).

@@ -5,7 +5,9 @@
 // at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
 // edit wins over an answer under way, the figure says it is computing, a set-up the figure
 // cannot be solved for names its element, and a liquid-crystal cell's figure comes at the core's
-// 48 × 48; an embedded <spar-figure> computes its own in a worker.
+// 128 × 128; an embedded <spar-figure> computes its own in a worker; the white-light switch
+// draws a c-cut plate's interference colours (black centre between crossed polarizers, coloured
+// isochromes), computed in the worker at 128 × 128, with the sampling noted.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -143,20 +145,65 @@ test('a newer edit wins over an answer under way, the figure says it is computin
     const texts = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.filter((i) => i.type === 'text').map((i) => i.text);
     assert.ok(texts.some((t) => t.includes('not drawn') && t.includes('elements[0]')), JSON.stringify(texts));
 
-    // A liquid-crystal cell is solved at every direction, at the core's cap of 48 × 48, and the
+    // A liquid-crystal cell is solved at every direction, at the core's cap of 128 × 128, and the
     // status and the figure's note say so.
     await page.evaluate(() => window.doublespar.applyScenario({
       version: 2, wavelength_nm: 550, beam: { polarization: { kind: 'linear', azimuth_deg: 0 } },
       elements: [{ kind: 'lc_cell', thickness_um: 2.52, lc: '5cb', twist_deg: 90, pretilt_deg: 2 },
         { kind: 'polarizer', gap_mm: 1, transmission_axis_deg: 90 }],
     }));
-    await page.waitForFunction(() => window.doublespar.session.scene('conoscope').items.some((i) => i.type === 'raster' && i.columns === 48), null, { timeout: 60000, polling: 200 });
+    await page.waitForFunction(() => window.doublespar.session.scene('conoscope').items.some((i) => i.type === 'raster' && i.columns === 128), null, { timeout: 60000, polling: 200 });
     await settled(page);
     const cellScene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
     const cellMap = cellScene.items.find((i) => i.type === 'raster');
-    assert.deepEqual([cellMap?.columns, cellMap?.rows], [48, 48], 'the cell\'s map at the cap');
-    assert.ok(cellScene.items.some((i) => i.type === 'text' && i.text.includes('48 × 48 directions')), 'the note says how many');
-    assert.match(await page.textContent('#convergent-status'), /^48 × 48 directions computed in \d+ ms/);
+    assert.deepEqual([cellMap?.columns, cellMap?.rows], [128, 128], 'the cell\'s map at the cap');
+    assert.ok(cellScene.items.some((i) => i.type === 'text' && i.text.includes('128 × 128 directions')), 'the note says how many');
+    assert.match(await page.textContent('#convergent-status'), /^128 × 128 directions computed in \d+ ms \(a liquid-crystal cell is solved again at each\)/);
+  });
+});
+
+test('white light: the switch draws the interference colours computed in the worker, with the sampling noted', { timeout: 240000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('#conoscope-open > summary');
+    await settled(page);
+    await page.evaluate(() => window.doublespar.applyScenario({
+      version: 2, wavelength_nm: 589.3, beam: { polarization: { kind: 'linear', azimuth_deg: 0 } },
+      elements: [{ kind: 'crystal', material: 'quartz', optical_activity: false, thickness_mm: 2, axis: { tilt_deg: 0, azimuth_deg: 0 } },
+        { kind: 'polarizer', transmission_axis_deg: 90 }],
+    }));
+    await settled(page);
+    assert.equal(await page.evaluate(() => document.getElementById('conoscope-white-box').hidden), true, 'off at first');
+    await page.click('#conoscope-white');
+    await page.waitForFunction(() => {
+      const c = window.doublespar.convergent();
+      return c.ms.white !== undefined && !c.busy;
+    }, null, { timeout: 180000, polling: 250 });
+    const shown = await page.evaluate(() => {
+      const c = document.getElementById('conoscope-white-canvas');
+      const d = c.getContext('2d').getImageData(0, 0, c.width, c.height).data;
+      const at = (x, y) => Array.from(d.slice(4 * (y * c.width + x), 4 * (y * c.width + x) + 4));
+      let chroma = 0;
+      for (let i = 0; i < d.length; i += 4) {
+        if (d[i + 3] === 255) chroma = Math.max(chroma, Math.max(d[i], d[i + 1], d[i + 2]) - Math.min(d[i], d[i + 1], d[i + 2]));
+      }
+      return {
+        side: [c.width, c.height],
+        hidden: document.getElementById('conoscope-white-box').hidden,
+        centre: at(c.width / 2, c.height / 2),
+        corner: at(0, 0),
+        chroma,
+        note: document.getElementById('conoscope-white-note').textContent,
+        ms: window.doublespar.convergent().ms.white,
+      };
+    });
+    console.log(`white-light figure, 128 × 128, in the worker (with the two 256 × 256 maps): ${Math.round(shown.ms)} ms`);
+    assert.deepEqual(shown.side, [128, 128]);
+    assert.equal(shown.hidden, false);
+    assert.deepEqual(shown.corner, [0, 0, 0, 0], 'transparent outside the cone');
+    // Along the axis there is no retardance: black between crossed polarizers (common practice).
+    assert.ok(shown.centre[3] === 255 && shown.centre.slice(0, 3).every((v) => v <= 3), `centre ${shown.centre}`);
+    assert.ok(shown.chroma > 100, `the isochromes are coloured: ${shown.chroma}`);
+    assert.match(shown.note, /D65 white light \(CIE 1931 2° observer\): 81 wavelengths, 380–780 nm in air at 5 nm; 128 × 128 directions/);
   });
 });
 

@@ -3,8 +3,8 @@
 //!
 //! One file per concept: the material's constants ([`nematic`]), the banded solve the director
 //! solver needs ([`banded`]), the director profile from the Oseen–Frank and electric energy
-//! ([`director`]), the light through the stratified layer by Berreman's 4×4 method
-//! ([`stratified`]), the retardance against voltage by continuation ([`curve`]), and the
+//! ([`director`]), one uniform slice crossed exactly in closed form ([`slice`]), the light through
+//! the stratified layer by Berreman's 4×4 method ([`stratified`]), the retardance against voltage by continuation ([`curve`]), and the
 //! catalogue of published nematics ([`catalogue`]).
 
 pub mod banded;
@@ -12,4 +12,5 @@ pub mod catalogue;
 pub mod curve;
 pub mod director;
 pub mod nematic;
+pub mod slice;
 pub mod stratified;
