@@ -64,7 +64,9 @@ pub use optics::material::{
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
 #[cfg(not(target_arch = "wasm32"))]
-pub use optics::planned_trace::{LANES as PLANNED_LANES, LaneBuild, PlannedRay, PlannedTrace};
+pub use optics::planned_lanes::{BlockedTrace, LANES as PLANNED_LANES, LaneBuild};
+#[cfg(not(target_arch = "wasm32"))]
+pub use optics::planned_trace::{PlannedRay, PlannedTrace};
 pub use optics::plate::{plate_optics, tangential};
 pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};
 pub use optics::stokes::Handedness;

@@ -8,15 +8,15 @@
 //! `PLANNED_TRACE_AGREEMENT`; an incidence the plan declines is traced by the general tracer
 //! (counted: there must be some, and far fewer than those traced).
 //!
-//! The planned trace in lanes (`PlannedTrace::trace_each`, blocks of `PLANNED_LANES` incidences
+//! The planned trace in lanes (`BlockedTrace::trace_each`, blocks of `PLANNED_LANES` incidences
 //! side by side) is held to the same general tracer on the same stacks, in runs whose length is
 //! not a multiple of the lane count and whose blocks mix lanes traced side by side with lanes
 //! sent back to the one-by-one trace; its vector build and its portable build must give the same
 //! bits.
 
 use doublespar::{
-    Jones, LaneBuild, PLANNED_LANES, PLANNED_TRACE_AGREEMENT, PlannedRay, PlannedTrace, Rng, Scenario, Stack, Workload,
-    trace_stack,
+    BlockedTrace, Jones, LaneBuild, PLANNED_LANES, PLANNED_TRACE_AGREEMENT, PlannedRay, PlannedTrace, Rng, Scenario,
+    Stack, Workload, trace_stack,
 };
 use nalgebra::Vector3;
 
@@ -164,9 +164,10 @@ struct LaneTally {
 /// portable build: all hand on the same rays, bit for bit, as `trace` does one by one (to the agreement,
 /// in the same order), and every incidence traced is held to the general tracer.
 fn compare_lanes(doc: &str, stack: &mut Stack, dirs: &[Vector3<f64>], tally: &mut Tally, lanes: &mut LaneTally) {
-    let Some(mut plan) = PlannedTrace::new(stack) else {
+    let Some(plan) = PlannedTrace::new(stack) else {
         panic!("no plan for a stack of crystals with faces\n{doc}")
     };
+    let mut plan = BlockedTrace::new(plan);
     let mut runs: [Vec<(Option<Vec<PlannedRay>>, bool)>; 3] = Default::default();
     for (build, run) in [LaneBuild::Widest, LaneBuild::Avx2, LaneBuild::Portable]
         .into_iter()
@@ -191,10 +192,10 @@ fn compare_lanes(doc: &str, stack: &mut Stack, dirs: &[Vector3<f64>], tally: &mu
             let i = k * PLANNED_LANES + j;
             let u = dirs[i];
             assert_eq!(rays, &portable[i].0, "vector and portable builds at {u:?}\n{doc}");
-            let one = plan.trace(u).map(<[_]>::to_vec);
+            let one = plan.plan().trace(u).map(<[_]>::to_vec);
             let (Some(rays), Some(one)) = (rays, one) else {
                 assert!(
-                    rays.is_none() && plan.trace(u).is_none(),
+                    rays.is_none() && plan.plan().trace(u).is_none(),
                     "declined by one trace only at {u:?}\n{doc}"
                 );
                 tally.declined += 1;
@@ -215,7 +216,7 @@ fn compare_lanes(doc: &str, stack: &mut Stack, dirs: &[Vector3<f64>], tally: &mu
             }
             stack.input.direction = u;
             tally.traced += 1;
-            agree_with_general(doc, stack, &plan, rays, tally);
+            agree_with_general(doc, stack, plan.plan(), rays, tally);
         }
     }
 }

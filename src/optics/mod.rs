@@ -21,7 +21,7 @@ pub mod planar;
 // Native only: WebAssembly builds (the page, the design worker and the single offline file, which
 // has no room for it) trace every sample with the general tracer.
 #[cfg(not(target_arch = "wasm32"))]
-mod planned_lanes;
+pub mod planned_lanes;
 #[cfg(not(target_arch = "wasm32"))]
 pub mod planned_trace;
 pub mod plate;

@@ -861,6 +861,67 @@ pub enum LaneBuild {
     Portable,
 }
 
+/// A planned trace with the buffers its blocks reuse: traces many incidences, [`LANES`] side by
+/// side, and hands a lane the block cannot finish to [`PlannedTrace::trace`].
+pub struct BlockedTrace {
+    plan: PlannedTrace,
+    lanes: LaneBuffers,
+    build: LaneBuild,
+    rays: Vec<PlannedRay>,
+}
+
+impl BlockedTrace {
+    /// Blocks of `plan`'s trace, by the widest build this processor has.
+    pub fn new(plan: PlannedTrace) -> BlockedTrace {
+        BlockedTrace {
+            plan,
+            lanes: LaneBuffers::default(),
+            build: LaneBuild::Widest,
+            rays: Vec::new(),
+        }
+    }
+
+    /// The plan, to trace one incidence alone.
+    pub fn plan(&mut self) -> &mut PlannedTrace {
+        &mut self.plan
+    }
+
+    /// Which build of the lane kernel [`BlockedTrace::trace_each`] uses ([`LaneBuild::Widest`]
+    /// unless set): all give the same bits (module header); tests compare them.
+    pub fn use_lane_build(&mut self, build: LaneBuild) {
+        self.build = build;
+    }
+
+    /// Traces every incidence of `dirs` (unit directions, u_z > 0) and hands each one's rays to
+    /// `each` in order, with its index: what [`PlannedTrace::trace`] gives for it, `None` where
+    /// the plan declines it (the caller then traces it with the general tracer). Incidences go
+    /// through in blocks of [`LANES`] side by side; a lane the block cannot take to its end is
+    /// traced again by [`PlannedTrace::trace`] alone (`each`'s third argument true). Returns how
+    /// many were traced so, declined ones included.
+    pub fn trace_each(
+        &mut self,
+        dirs: &[Vector3<f64>],
+        mut each: impl FnMut(usize, Option<&[PlannedRay]>, bool),
+    ) -> usize {
+        let mut alone = 0;
+        for (b, chunk) in dirs.chunks(LANES).enumerate() {
+            // A short last block repeats its last incidence; the repeats are not handed on.
+            let block: [Vector3<f64>; LANES] = std::array::from_fn(|i| chunk[i.min(chunk.len() - 1)]);
+            trace_lanes(&self.plan, &mut self.lanes, &block, self.build);
+            for (i, &u) in chunk.iter().enumerate() {
+                if self.lanes.rays.ok[i] {
+                    lane_rays(&self.lanes.rays, i, &mut self.rays);
+                    each(b * LANES + i, Some(&self.rays), false);
+                } else {
+                    alone += 1;
+                    each(b * LANES + i, self.plan.trace(u), true);
+                }
+            }
+        }
+        alone
+    }
+}
+
 /// Traces one block of [`LANES`] incidences by `build`; `buffers.rays.ok` marks the lanes taken
 /// to their end.
 pub(crate) fn trace_lanes(

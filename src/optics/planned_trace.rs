@@ -26,8 +26,8 @@
 //! seven face crossings for two wedges (one, two, four rays), each three mode pairs and one real
 //! 4×4 solve, no allocation.
 //!
-//! Many incidences at once: [`PlannedTrace::trace_each`] traces them in blocks side by side, the
-//! same operations on a vector of incidences (`optics/planned_lanes.rs`), and hands back to
+//! Many incidences at once: `optics::planned_lanes::BlockedTrace` traces them in blocks side by
+//! side, the same operations on a vector of incidences, and hands back to
 //! [`PlannedTrace::trace`] the ones a block cannot finish.
 //!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
@@ -52,8 +52,6 @@
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::Losses;
 use crate::optics::modes::{CrystalSurfaces, beam_basis};
-pub use crate::optics::planned_lanes::{LANES, LaneBuild};
-use crate::optics::planned_lanes::{LaneBuffers, lane_rays, trace_lanes};
 use crate::optics::stack::{Aperture, Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
 use crate::precision::{DEGENERATE_DIRECTION, PLANNED_CRITICAL_MARGIN};
@@ -402,8 +400,6 @@ pub struct PlannedTrace {
     flights: Vec<Flight>,
     next: Vec<Flight>,
     rays: Vec<PlannedRay>,
-    lanes: LaneBuffers,
-    build: LaneBuild,
 }
 
 impl PlannedTrace {
@@ -493,42 +489,7 @@ impl PlannedTrace {
             flights: Vec::with_capacity(1 << MAX_SLABS),
             next: Vec::with_capacity(1 << MAX_SLABS),
             rays: Vec::with_capacity(1 << MAX_SLABS),
-            lanes: LaneBuffers::default(),
-            build: LaneBuild::Widest,
         })
-    }
-
-    /// Which build of the lane kernel [`PlannedTrace::trace_each`] uses ([`LaneBuild::Widest`]
-    /// unless set): all give the same bits (`planned_lanes` header); tests compare them.
-    pub fn use_lane_build(&mut self, build: LaneBuild) {
-        self.build = build;
-    }
-
-    /// Traces every incidence of `dirs` (unit directions, u_z > 0) and hands each one's rays to
-    /// `each` in order, with its index: what [`PlannedTrace::trace`] gives for it, `None` where
-    /// the plan declines it (the caller then traces it with the general tracer). Incidences go
-    /// through in blocks of [`LANES`] side by side (`planned_lanes`); a lane the block cannot
-    /// take to its end is traced again by [`PlannedTrace::trace`] alone (`each`'s third
-    /// argument true). Returns how many were traced so, declined ones included.
-    pub fn trace_each(&mut self, dirs: &[V3], mut each: impl FnMut(usize, Option<&[PlannedRay]>, bool)) -> usize {
-        let mut buffers = std::mem::take(&mut self.lanes);
-        let mut alone = 0;
-        for (b, chunk) in dirs.chunks(LANES).enumerate() {
-            // A short last block repeats its last incidence; the repeats are not handed on.
-            let block: [V3; LANES] = std::array::from_fn(|i| chunk[i.min(chunk.len() - 1)]);
-            trace_lanes(self, &mut buffers, &block, self.build);
-            for (i, &u) in chunk.iter().enumerate() {
-                if buffers.rays.ok[i] {
-                    lane_rays(&buffers.rays, i, &mut self.rays);
-                    each(b * LANES + i, Some(&self.rays), false);
-                } else {
-                    alone += 1;
-                    each(b * LANES + i, self.trace(u), true);
-                }
-            }
-        }
-        self.lanes = buffers;
-        alone
     }
 
     pub(crate) fn ideal(&self) -> bool {

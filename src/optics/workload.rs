@@ -10,7 +10,7 @@
 //!   planned whole trace (`optics::planned_trace`: the same rays to rounding), each incidence it
 //!   declines by the general tracer (natively; WebAssembly builds hold no plan and trace every
 //!   sample by the general tracer); [`Workload::LaneTrace`] the same sum with the planned trace
-//!   run on blocks of incidences side by side ([`PlannedTrace::trace_each`]: the same rays, the
+//!   run on blocks of incidences side by side ([`BlockedTrace::trace_each`]: the same rays, the
 //!   same checksum to rounding; natively only, WebAssembly builds trace it as `Trace`);
 //!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
 //!   are measured against.
@@ -21,6 +21,8 @@
 use crate::optics::chain::ChainPlan;
 use crate::optics::geometry::direction;
 use crate::optics::planar::PlanarTracer;
+#[cfg(not(target_arch = "wasm32"))]
+use crate::optics::planned_lanes::BlockedTrace;
 #[cfg(not(target_arch = "wasm32"))]
 use crate::optics::planned_trace::PlannedTrace;
 use crate::optics::spots::power_of;
@@ -160,7 +162,7 @@ fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
     (sum, declined)
 }
 
-/// Incidences per call of [`PlannedTrace::trace_each`]: a few thousand bytes of directions.
+/// Incidences per call of [`BlockedTrace::trace_each`]: a few thousand bytes of directions.
 #[cfg(not(target_arch = "wasm32"))]
 const LANE_CALL: usize = 256;
 
@@ -169,10 +171,11 @@ const LANE_CALL: usize = 256;
 /// (declined ones included).
 #[cfg(not(target_arch = "wasm32"))]
 fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
-    let Some(mut plan) = PlannedTrace::new(stack) else {
+    let Some(plan) = PlannedTrace::new(stack) else {
         let (sum, declined) = general_part(stack, n, part);
         return (sum, declined, declined);
     };
+    let mut plan = BlockedTrace::new(plan);
     let mut general = GeneralSamples::new(stack);
     let (mut sum, mut declined, mut alone) = (0.0, 0, 0);
     let mut dirs = Vec::with_capacity(LANE_CALL);
@@ -226,7 +229,7 @@ pub fn declined_samples(stack: &Stack, n: usize) -> usize {
 }
 
 /// How many of the `n` whole-trace samples of `stack` the planned trace in lanes traces one by one
-/// ([`PlannedTrace::trace_each`]: lanes it could not take to their end, declined samples
+/// ([`BlockedTrace::trace_each`]: lanes it could not take to their end, declined samples
 /// included): all of them when the stack gets no plan.
 pub fn samples_traced_alone(stack: &Stack, n: usize) -> usize {
     lane_part(stack, n, 0..n).2
