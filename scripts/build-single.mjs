@@ -247,15 +247,18 @@ const glue = wrapGlue(read('pkg-design/doublespar.js'));
 // The design worker: the glue, then design-worker.js getting its bindings from it and its wasm
 // bytes from the page's first message.
 let worker = read('design-worker.js');
-worker = replaceOnce(worker,
-  "import init, { DesignRun, convergentMap } from './pkg-design/doublespar.js';",
-  [
-    'const { default: init, DesignRun, convergentMap } = __dsMakeCore();',
-    'let __dsGotBytes;',
-    'const __dsBytes = new Promise((resolve) => { __dsGotBytes = resolve; });',
-    "self.addEventListener('message', (ev) => { if (ev.data && ev.data.type === 'doublespar-wasm') __dsGotBytes(ev.data.bytes); });",
-  ].join('\n'),
-  'design-worker.js');
+// Its one import of the glue, whatever bindings it names, becomes a destructuring of the glue.
+const workerImport = /^import init, \{ ([^}]+) \} from '\.\/pkg-design\/doublespar\.js';$/m;
+const imported = worker.match(workerImport);
+if (!imported || worker.match(new RegExp(workerImport.source, 'gm')).length !== 1) {
+  throw new Error('build-single: expected exactly one "import init, { … } from \'./pkg-design/doublespar.js\';" in design-worker.js');
+}
+worker = worker.replace(workerImport, () => [
+  `const { default: init, ${imported[1]} } = __dsMakeCore();`,
+  'let __dsGotBytes;',
+  'const __dsBytes = new Promise((resolve) => { __dsGotBytes = resolve; });',
+  "self.addEventListener('message', (ev) => { if (ev.data && ev.data.type === 'doublespar-wasm') __dsGotBytes(ev.data.bytes); });",
+].join('\n'));
 worker = replaceOnce(worker, 'init()\n  .then(', '__dsBytes\n  .then((bytes) => init({ module_or_path: bytes }))\n  .then(', 'design-worker.js');
 // The worker's source is the glue + `worker`; the glue is not stored a second time for it: the
 // page takes its text from the page's own copy, `${__dsMakeCore}` (Function.prototype.toString
