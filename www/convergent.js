@@ -149,7 +149,7 @@ function onAnswer(state, msg) {
     if (c.again || !current) needConvergent(state);
     const n = c.pixels || PIXELS;
     // Fewer directions than asked: the core's cap for a set-up with a liquid-crystal cell.
-    const why = n < PIXELS ? ' (a liquid-crystal cell is solved again at each)' : '';
+    const why = n < PIXELS ? ' (fewer for a liquid-crystal cell, which is solved again at every direction)' : '';
     if (!c.busy) setBusy(false, current ? `${n} × ${n} directions computed in ${Math.round(performance.now() - busy.posted)} ms${why}.` : '');
   }
 }

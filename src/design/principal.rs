@@ -144,6 +144,18 @@ pub fn plane_orientation(plane: PrincipalPlane, theta_deg: f64) -> Oriented {
     }
 }
 
+/// A biaxial plate's cut as design answers report it, flattened into the answer (left out for a
+/// uniaxial crystal): the waveplate's and the tilt-tuned plate's.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct CutReport {
+    /// The principal axis along the plate normal (`x`, `y` or `z`).
+    pub cut: String,
+    /// Why this cut.
+    pub cut_note: String,
+    /// n_x, n_y, n_z at the design wavelength and temperature.
+    pub principal_indices: [f64; 3],
+}
+
 /// A biaxial plate's cut as a design takes it (a waveplate's, a tilt-tuned plate's).
 pub struct BiaxialCut {
     /// The fast and slow in-face indices, as a uniaxial plate's n_o and n_e (n_e the slower).
@@ -160,6 +172,17 @@ pub struct BiaxialCut {
     pub note: String,
     /// Which in-face axis is fast.
     pub fast_axis: String,
+}
+
+impl BiaxialCut {
+    /// What a design answer reports of this cut.
+    pub fn report(&self) -> CutReport {
+        CutReport {
+            cut: self.cut.clone(),
+            cut_note: self.note.clone(),
+            principal_indices: self.principal,
+        }
+    }
 }
 
 /// The cut of a request's plate of `medium` at `wavelength` and `t_c` °C, `cut` as the request

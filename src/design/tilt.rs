@@ -42,7 +42,7 @@ use crate::contract::geometry::{Angles, Contact, Placement};
 use crate::contract::request::principal::AXIS_LETTERS;
 use crate::contract::request::{PlateSize, TiltRequest};
 use crate::design::part::{Part, oriented_crystal, placed};
-use crate::design::principal::{BiaxialCut, biaxial_cut};
+use crate::design::principal::{BiaxialCut, CutReport, biaxial_cut};
 use crate::design::thermal::{Temperature, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::design::waveplate::PlateCut;
 use crate::error::Error;
@@ -88,33 +88,31 @@ pub struct TiltDesign {
     pub temperature: Temperature,
     /// Retardance against tilt from 0 to the largest tilt searched.
     pub curve: TiltCurve,
-    /// For a biaxial crystal, the principal axis along the plate normal (`x`, `y` or `z`).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub cut: Option<String>,
-    /// For a biaxial crystal, why this cut.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub cut_note: Option<String>,
-    /// For a biaxial crystal, the azimuth of the plate's slower in-face principal axis, degrees
-    /// (the part's `axes` write the whole orientation).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub axis_azimuth_deg: Option<f64>,
-    /// For a biaxial crystal, the slower in-face principal axis (`x`, `y` or `z`), along which the
-    /// s-wave is polarized at normal incidence.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub slow_principal_axis: Option<String>,
-    /// For a biaxial crystal, the faster in-face principal axis, along which the f-wave is
-    /// polarized at normal incidence: the plate's fast axis.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub fast_principal_axis: Option<String>,
-    /// For a biaxial crystal, the azimuth of the fast axis in the faces, degrees: the slow axis's
-    /// plus 90°, folded into (−90°, 90°].
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub fast_axis_azimuth_deg: Option<f64>,
-    /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub principal_indices: Option<[f64; 3]>,
+    /// For a biaxial crystal, its cut and in-face principal axes.
+    #[serde(flatten)]
+    pub biaxial: Option<BiaxialTilt>,
     /// The mounted plate, ready to load.
     pub scenario: Part,
+}
+
+/// A tilt-tuned biaxial plate's cut and in-face principal axes, flattened into the answer.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BiaxialTilt {
+    /// The cut (`cut`, `cut_note`, `principal_indices`).
+    #[serde(flatten)]
+    pub cut: CutReport,
+    /// The azimuth of the plate's slower in-face principal axis, degrees (the part's `axes`
+    /// write the whole orientation).
+    pub axis_azimuth_deg: f64,
+    /// The slower in-face principal axis (`x`, `y` or `z`), along which the s-wave is polarized
+    /// at normal incidence.
+    pub slow_principal_axis: String,
+    /// The faster in-face principal axis, along which the f-wave is polarized at normal
+    /// incidence: the plate's fast axis.
+    pub fast_principal_axis: String,
+    /// The azimuth of the fast axis in the faces, degrees: the slow axis's plus 90°, folded into
+    /// (−90°, 90°].
+    pub fast_axis_azimuth_deg: f64,
 }
 
 /// How the request's plate is cut: its orientation and its fast and slow indices at the design
@@ -313,13 +311,13 @@ pub fn design(req: &TiltRequest) -> Result<TiltDesign, Error> {
         order: m as i64,
         sensitivity_waves_per_deg: slope,
         curve,
-        cut: cut.biaxial.as_ref().map(|b| b.cut.clone()),
-        cut_note: cut.biaxial.as_ref().map(|b| b.note.clone()),
-        axis_azimuth_deg: cut.biaxial.as_ref().map(|_| req.axis_azimuth_deg),
-        slow_principal_axis: cut.biaxial.as_ref().map(|b| AXIS_LETTERS[b.slow_fast.0].to_string()),
-        fast_principal_axis: cut.biaxial.as_ref().map(|b| AXIS_LETTERS[b.slow_fast.1].to_string()),
-        fast_axis_azimuth_deg: cut.biaxial.as_ref().map(|_| across(req.axis_azimuth_deg)),
-        principal_indices: cut.biaxial.as_ref().map(|b| b.principal),
+        biaxial: cut.biaxial.as_ref().map(|b| BiaxialTilt {
+            cut: b.report(),
+            axis_azimuth_deg: req.axis_azimuth_deg,
+            slow_principal_axis: AXIS_LETTERS[b.slow_fast.0].to_string(),
+            fast_principal_axis: AXIS_LETTERS[b.slow_fast.1].to_string(),
+            fast_axis_azimuth_deg: across(req.axis_azimuth_deg),
+        }),
         scenario: tuned,
     })
 }
@@ -412,9 +410,13 @@ mod tests {
             ),
         ] {
             let d = design(&request(doc)).unwrap();
-            assert_eq!(d.slow_principal_axis.as_deref(), Some(slow), "{doc}");
-            assert_eq!(d.fast_principal_axis.as_deref(), Some(fast), "{doc}");
-            let az = d.fast_axis_azimuth_deg.unwrap();
+            let b = d.biaxial.as_ref().unwrap();
+            assert_eq!(
+                (b.slow_principal_axis.as_str(), b.fast_principal_axis.as_str()),
+                (slow, fast),
+                "{doc}"
+            );
+            let az = b.fast_axis_azimuth_deg;
             assert_within(az, fast_az, 1e-12, doc);
             let r = request(doc);
             let untilted = r.part(r.cut().unwrap().plate, d.thickness_mm, 0.0);
@@ -434,7 +436,7 @@ mod tests {
             r#"{"material": "quartz", "retardance_waves": 0.25, "thickness_mm": 0.5, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 90}"#,
         ))
         .unwrap();
-        assert_eq!((u.fast_principal_axis, u.fast_axis_azimuth_deg), (None, None));
+        assert_eq!(u.biaxial, None);
     }
 
     #[test]

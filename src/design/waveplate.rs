@@ -46,7 +46,7 @@ use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, Wave
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
 use crate::design::part::{Part, crystal, oriented_crystal};
-use crate::design::principal::{Oriented, biaxial_cut};
+use crate::design::principal::{BiaxialCut, CutReport, Oriented, biaxial_cut};
 use crate::design::thermal::{PerKelvin, Temperature, growth, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::error::Error;
 use crate::optics::general_plate::general_plate_optics;
@@ -156,16 +156,10 @@ pub struct WaveplateDesign {
     /// optic axis" (positive crystals); for a biaxial plate, the fast principal axis (the slow
     /// one lies at the plate's azimuth).
     pub fast_axis: String,
-    /// For a biaxial crystal, the principal axis along the plate normal (`x`, `y` or `z`); its
-    /// `no` and `ne` are then the fast and slow in-face principal indices.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub cut: Option<String>,
-    /// For a biaxial crystal, why this cut.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub cut_note: Option<String>,
-    /// For a biaxial crystal, n_x, n_y, n_z at the design wavelength and temperature.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pub principal_indices: Option<[f64; 3]>,
+    /// For a biaxial crystal, its cut (`cut`, `cut_note`, `principal_indices`); its `no` and `ne`
+    /// are then the fast and slow in-face principal indices.
+    #[serde(flatten)]
+    pub biaxial: Option<CutReport>,
     /// Group delay of the polarization along the first plate's optic axis after the one across
     /// it, at the design wavelength and normal incidence, picoseconds (signed like
     /// `retardance_waves`; [`Part::group_delay_ps`]).
@@ -440,9 +434,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         fast_axis: biaxial
             .as_ref()
             .map_or_else(|| sign_word(ix).into(), |b| b.fast_axis.clone()),
-        cut: biaxial.as_ref().map(|b| b.cut.clone()),
-        cut_note: biaxial.as_ref().map(|b| b.note.clone()),
-        principal_indices: biaxial.as_ref().map(|b| b.principal),
+        biaxial: biaxial.as_ref().map(BiaxialCut::report),
         group_delay_ps,
         wavelength_curve,
         angular,

@@ -158,7 +158,7 @@ test('a newer edit wins over an answer under way, the figure says it is computin
     const cellMap = cellScene.items.find((i) => i.type === 'raster');
     assert.deepEqual([cellMap?.columns, cellMap?.rows], [128, 128], 'the cell\'s map at the cap');
     assert.ok(cellScene.items.some((i) => i.type === 'text' && i.text.includes('128 × 128 directions')), 'the note says how many');
-    assert.match(await page.textContent('#convergent-status'), /^128 × 128 directions computed in \d+ ms \(a liquid-crystal cell is solved again at each\)/);
+    assert.match(await page.textContent('#convergent-status'), /^128 × 128 directions computed in \d+ ms \(fewer for a liquid-crystal cell, which is solved again at every direction\)/);
   });
 });
 

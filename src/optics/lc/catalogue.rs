@@ -7,16 +7,17 @@
 //!
 //! Temperature. A nematic's anisotropies follow its orientational order parameter S(T), which
 //! falls as the clearing point nears. The catalogue takes S in Haller's form,
-//! S ∝ (1 − T/T_c)^β (I. Haller, Prog. Solid State Chem. 10, 103 (1975)), so that relative to the
+//! S ∝ (1 − T/T_c)^β (I. Haller, Prog. Solid State Chem. 10, 103 (1975), from memory), so that relative to the
 //! reference temperature T₀ the order scales by r(T) = ((T_c − T)/(T_c − T₀))^β, and moves the
 //! constants with it:
 //! - birefringence Δn(λ, T) = r·Δn(λ, T₀) at every wavelength, the mean index
-//!   ⟨n⟩ = (n_e + 2n_o)/3 held (the four-parameter model of J. Li, S. Gauza and S.-T. Wu,
-//!   J. Appl. Phys. 96, 19 (2004), without its slow linear fall of ⟨n⟩, about −5·10⁻⁴ /K from
-//!   memory, which moves n_e and n_o together and the retardance not at all);
+//!   ⟨n⟩ = (n_e + 2n_o)/3 held (as in the four-parameter model of J. Li, S. Gauza and S.-T. Wu,
+//!   J. Appl. Phys. 96, 19 (2004), from memory), without its slow linear fall of ⟨n⟩ (about
+//!   −5·10⁻⁴ /K, also from memory), which moves n_e and n_o together and the retardance not at
+//!   all;
 //! - elastic constants K_ii ∝ S² and dielectric anisotropy Δε ∝ S with the mean permittivity
 //!   held (mean-field scaling: P. G. de Gennes and J. Prost, *The Physics of Liquid Crystals*,
-//!   2nd ed. (1993), §3.1; Maier–Meier, without the 1/T of its dipolar term, 5 % over 20–35 °C),
+//!   2nd ed. (1993), §3.1, from memory; Maier–Meier, without the 1/T of its dipolar term, 5 % over 20–35 °C),
 //!   so the Freedericksz threshold scales as √r.
 //!
 //! β of each entry is a published exponent and T_c is fitted to a published measurement of Δn at
@@ -79,9 +80,10 @@ pub const NEMATICS: [NematicEntry; 1] = [NematicEntry {
     eps: [19.7, 6.7],
     reference_c: 25.0,
     // β: the mean critical exponent of the nCB homologues (n = 5–8), 0.241 ± 0.012, measured
-    // from their refractive indices by M. Chirtoc et al., "Determination of the order parameter
-    // and its critical exponent for nCB (n=5–8) liquid crystals from refractive index data",
-    // Liq. Cryst. 31, 229 (2004) (as its abstract gives it). T_c: fitted here (least squares on
+    // from their refractive indices in "Determination of the order parameter and its critical
+    // exponent for nCB (n=5–8) liquid crystals from refractive index data", Liquid Crystals,
+    // pages 229–240 (received 2003, published 2004; the exponent and these details as its
+    // abstract page gives them; the first author, M. Chirtoc, and the volume, 31, from memory). T_c: fitted here (least squares on
     // Δn, with β so fixed) to 5CB's indices of S.-T. Wu, C.-S. Wu, M. Warenghem and
     // M. Ismaili, "Refractive index dispersions of liquid crystals", Opt. Eng. 32, 1775 (1993),
     // at 589 nm and 25.1, 32.6 and 34.8 °C, as the refractiveindex.info database holds them;
