@@ -5,13 +5,14 @@
 // - www/index.html and www/style.css (in a <style>), both without blank lines or indentation
 //   (and the style sheet without comments, and without line breaks after a declaration, a brace
 //   or a comma), the favicon as a data: URL;
-// - one <script type="module">: the wasm-bindgen glue of the design build (www/pkg-design, a
-//   superset of the page's exports, so one wasm serves the page and the design worker) with its
-//   `export`s removed and wrapped in a function, then the page's modules (www/app.js and the
-//   modules it imports, see PAGE_MODULES), each in a function scope of its own by bundlePage
-//   below, with their two loads rewritten (the bindings import, and the design worker's script);
-// - the wasm, gzipped and written in base 85 (see BASE85 below), inflated in the browser with
-//   DecompressionStream;
+// - the page's script: the wasm-bindgen glue of the design build (www/pkg-design, a superset of
+//   the page's exports, so one wasm serves the page and the design worker) with its `export`s
+//   removed and wrapped in a function, then the page's modules (www/app.js and the modules it
+//   imports, see PAGE_MODULES), each in a function scope of its own by bundlePage below, with
+//   their two loads rewritten (the bindings import, and the design worker's script);
+// - that script and the wasm, each gzipped and written in base 85 (see BASE85 below), in one
+//   <script type="module"> (the bootstrap) that inflates both with DecompressionStream and runs
+//   the page's script as an inline module script (allowed by its hash, see singlePolicy);
 // - the design worker's own code (www/design-worker.js, its import and init rewritten), started
 //   from a Blob URL of the glue's function as the page's script holds it (its source text,
 //   `${__dsMakeCore}`) followed by that code, so the glue is stored once; the page posts the
@@ -24,8 +25,8 @@
 // the glue cannot silently leave a file:// load behind).
 //
 // The page's content security policy allows 'self', which a file:// page does not have; the
-// single file gets its own, stricter policy instead (see singlePolicy below): nothing but the one
-// inline script and the one inline style, known by their hashes, the worker from a blob: URL,
+// single file gets its own, stricter policy instead (see singlePolicy below): nothing but the two
+// inline scripts and the one inline style, known by their hashes, the worker from a blob: URL,
 // and the favicon as a data: URL.
 
 import fs from 'node:fs';
@@ -331,23 +332,14 @@ if (!Buffer.from(__dsFromBase85(wasmText, wasmGz.length, BASE85)).equals(wasmGz)
 const scriptSafe = (js) => js.replace(/<\/(script)/gi, '<\\/$1').replace(/<!--/g, '<\\!--');
 const jsonSafe = (value) => JSON.stringify(value).replace(/</g, '\\u003c');
 
-const loader = `// Doublespar, single-file edition: everything is inline; nothing is fetched.
-const __DS_WASM_GZ_85 = ${jsonSafe(wasmText)};
-const __DS_WASM_GZ_LENGTH = ${wasmGz.length};
-const __DS_BASE85 = ${jsonSafe(BASE85)};
-${__dsFromBase85}
-const __DS_WORKER_TAIL = ${jsonSafe(workerTail)};
-let __dsWasmPromise = null;
-/** The wasm bytes (an ArrayBuffer), inflated once from the inline gzip. */
+// The module that the browser runs: the loader (the wasm's bytes and the design worker), the
+// glue's function and the page's modules. It is stored gzipped in base 85 as the wasm is, and the
+// inline bootstrap below inflates it and runs it as an inline module script whose hash the
+// policy names: text in a script compresses about four to one, and it was about half the file.
+const loader = `const __DS_WORKER_TAIL = ${jsonSafe(workerTail)};
+/** The wasm bytes (an ArrayBuffer), inflated once by the bootstrap from the inline gzip. */
 function __dsWasmBytes() {
-  if (!__dsWasmPromise) {
-    __dsWasmPromise = (async () => {
-      const gz = __dsFromBase85(__DS_WASM_GZ_85, __DS_WASM_GZ_LENGTH, __DS_BASE85);
-      const stream = new Blob([gz]).stream().pipeThrough(new DecompressionStream('gzip'));
-      return new Response(stream).arrayBuffer();
-    })();
-  }
-  return __dsWasmPromise;
+  return globalThis.__dsWasm;
 }
 let __dsWorkerUrl = null;
 /**
@@ -374,6 +366,30 @@ for (const name of [...topLevelNames(loader, 'the loader'), '__dsMakeCore', ...p
   }
 }
 const script = scriptSafe(loader + glue + app);
+const scriptGz = zlib.gzipSync(Buffer.from(script, 'utf8'), { level: 9 });
+const scriptText85 = base85(scriptGz);
+if (!Buffer.from(__dsFromBase85(scriptText85, scriptGz.length, BASE85)).equals(scriptGz)) {
+  throw new Error("build-single: the base-85 text does not decode to the gzipped script");
+}
+
+// The one script in the markup: it inflates the wasm (kept as a promise that the loader hands
+// out) and the page's script, and runs that as an inline module script. The browser checks the
+// inflated text against its hash in the policy, as it would the markup's own script.
+const bootstrap = `// Doublespar, single-file edition: everything is inline; nothing is fetched. The wasm and
+// the page's script are stored gzipped in base 85; this inflates both and runs the script.
+const __DS_BASE85 = ${jsonSafe(BASE85)};
+${__dsFromBase85}
+/** The bytes (an ArrayBuffer) of \`length\` gzipped bytes written in base 85 as \`text\`. */
+function __dsInflate(text, length) {
+  const gz = __dsFromBase85(text, length, __DS_BASE85);
+  return new Response(new Blob([gz]).stream().pipeThrough(new DecompressionStream('gzip'))).arrayBuffer();
+}
+globalThis.__dsWasm = __dsInflate(${jsonSafe(wasmText)}, ${wasmGz.length});
+const __dsScript = document.createElement('script');
+__dsScript.type = 'module';
+__dsScript.textContent = new TextDecoder().decode(await __dsInflate(${jsonSafe(scriptText85)}, ${scriptGz.length}));
+document.body.append(__dsScript);
+`;
 
 /**
  * Node's parser reads `text` as the browser will (a module, or a classic script for the worker),
@@ -388,6 +404,7 @@ function checkSyntax(text, ext, what) {
   if (r.status !== 0) throw new Error(`build-single: ${what} does not parse: ${r.stderr}`);
 }
 checkSyntax(script, 'mjs', "the single file's script");
+checkSyntax(bootstrap, 'mjs', "the single file's bootstrap");
 // What the worker's Blob holds: the glue's function as the page's script holds it, then its code.
 checkSyntax(`${scriptSafe(glue).trimEnd()}\n${workerTail}`, 'cjs', "the design worker's source");
 
@@ -395,15 +412,16 @@ checkSyntax(`${scriptSafe(glue).trimEnd()}\n${workerTail}`, 'cjs', "the design w
 const hashSource = (text) => `'sha256-${crypto.createHash('sha256').update(text, 'utf8').digest('base64')}'`;
 
 /**
- * The single file's policy. The module script and the style are allowed by hash only; the wasm is
+ * The single file's policy. The two module scripts (the bootstrap in the markup and the page's
+ * script it inflates and inserts) and the style are allowed by hash only; the wasm is
  * compiled from bytes ('wasm-unsafe-eval'). The design worker is a classic worker from a blob:
  * URL: worker-src governs that load, and the worker inherits this policy (so its own wasm needs
  * 'wasm-unsafe-eval' too, and it can fetch nothing). Nothing is fetched: no connect-src.
  */
-function singlePolicy(scriptText, styleText) {
+function singlePolicy(scriptTexts, styleText) {
   return [
     "default-src 'none'",
-    `script-src ${hashSource(scriptText)} 'wasm-unsafe-eval'`,
+    `script-src ${scriptTexts.map(hashSource).join(' ')} 'wasm-unsafe-eval'`,
     `style-src ${hashSource(styleText)}`,
     'worker-src blob:',
     'img-src data:',
@@ -423,12 +441,12 @@ const favicon = 'data:image/svg+xml;base64,' + Buffer.from(read('favicon.svg')).
 html = replaceOnce(html, '<link rel="icon" href="favicon.svg" type="image/svg+xml">',
   `<link rel="icon" href="${favicon}" type="image/svg+xml">`, 'index.html');
 const styleText = `\n${compactCss(read('style.css')).replace(/<\/(style)/gi, '<\\/$1')}\n`;
-const scriptText = `\n${script}\n`;
+const bootstrapText = `\n${scriptSafe(bootstrap)}\n`;
 html = replaceOnce(html, PAGE_POLICY,
-  `<meta http-equiv="Content-Security-Policy" content="${singlePolicy(scriptText, styleText)}">`, 'index.html');
+  `<meta http-equiv="Content-Security-Policy" content="${singlePolicy([bootstrapText, script], styleText)}">`, 'index.html');
 html = replaceOnce(html, '<link rel="stylesheet" href="style.css">', `<style>${styleText}</style>`, 'index.html');
 html = replaceOnce(html, '<script type="module" src="app.js"></script>',
-  `<script type="module">${scriptText}</script>`, 'index.html');
+  `<script type="module">${bootstrapText}</script>`, 'index.html');
 if (/\b(src|href)="(?!#|data:)[^"]*"/.test(html.replace(/<script type="module">[\s\S]*<\/script>/, ''))) {
   const m = /\b(src|href)="(?!#|data:)[^"]*"/.exec(html.replace(/<script type="module">[\s\S]*<\/script>/, ''));
   console.warn(`build-single: note: the page still links ${m[0]}`);

@@ -68,16 +68,19 @@ test('the single file works from file:// with no network under its own strict CS
   const size = fs.statSync(SINGLE).size;
   assert.ok(size <= 800 * 1024, `the single file is ${size} bytes, within 800 KiB`);
   const html = fs.readFileSync(SINGLE, 'utf8');
-  // The wasm-bindgen glue is stored once: the design worker's source takes it from the page's
-  // script (scripts/build-single.mjs) rather than from a second copy in a string.
-  assert.equal(html.split('function __dsMakeCore()').length - 1, 1, 'the glue is in the file once');
-  assert.equal(html.split('function __wbg_init(').length - 1, 1, 'the glue\'s init is in the file once');
   const policies = [...html.matchAll(/<meta http-equiv="Content-Security-Policy" content="([^"]*)">/g)].map((m) => m[1]);
   assert.equal(policies.length, 1, 'one CSP <meta>');
-  assert.match(policies[0], /^default-src 'none'; script-src 'sha256-[A-Za-z0-9+/=]+' 'wasm-unsafe-eval'; style-src 'sha256-[A-Za-z0-9+/=]+';/);
+  // Two scripts, each by its hash: the bootstrap in the markup and the page's script it inflates.
+  assert.match(policies[0], /^default-src 'none'; script-src 'sha256-[A-Za-z0-9+/=]+' 'sha256-[A-Za-z0-9+/=]+' 'wasm-unsafe-eval'; style-src 'sha256-[A-Za-z0-9+/=]+';/);
   assert.doesNotMatch(policies[0], /unsafe-inline|'self'|\*/, 'nothing inline but by hash, no origin, no wildcard');
+  assert.equal(html.split('function __dsMakeCore()').length - 1, 0, 'the page\'s script is stored compressed, not as text');
 
   await withSingle('', async (page) => {
+    // The wasm-bindgen glue is stored once: the design worker's source takes it from the page's
+    // script (scripts/build-single.mjs) rather than from a second copy in a string.
+    const scripts = (await page.evaluate(() => [...document.scripts].map((s) => s.textContent))).join('\n');
+    assert.equal(scripts.split('function __dsMakeCore()').length - 1, 1, 'the glue is in the page\'s scripts once');
+    assert.equal(scripts.split('function __wbg_init(').length - 1, 1, 'the glue\'s init is in the page\'s scripts once');
     // Renders: every view canvas has ink (views folded away in a closed disclosure, the
     // conoscopic figure, are drawn only when opened).
     const stats = await page.evaluate(canvasStats, { selector: 'canvas[data-view]:not(details:not([open]) canvas)' });
@@ -120,6 +123,29 @@ test('the single file works from file:// with no network under its own strict CS
     const figure = (await page.evaluate(canvasStats)).find((s) => s.view === 'conoscope');
     assert.ok(drawn(figure), `the conoscopic figure is drawn (${figure.differing} of ${figure.total} pixels)`);
   });
+});
+
+test('the single file\'s policy gates the script it inflates: with that script\'s hash altered, nothing runs and the violation is reported', { timeout: 60000 }, async () => {
+  ensureSingle();
+  const html = fs.readFileSync(SINGLE, 'utf8');
+  // The policy's second hash is the inflated script's; change one of its characters.
+  const altered = html.replace(/(script-src 'sha256-[^']+' 'sha256-)(.)/, (_, head, c) => head + (c === 'A' ? 'B' : 'A'));
+  assert.notEqual(altered, html, 'the second hash was found and altered');
+  const dir = fs.mkdtempSync(path.join(ROOT, 'target', 'single', 'altered-'));
+  const file = path.join(dir, 'doublespar.html');
+  fs.writeFileSync(file, altered);
+  const { context, page, log } = await openPage(env.browser, null);
+  try {
+    await page.goto(pathToFileURL(file).href);
+    await page.waitForFunction(() => document.scripts.length === 2, null, { timeout: 30000 });
+    await page.waitForTimeout(500);
+    assert.equal(await page.evaluate(() => Boolean(window.doublespar)), false, 'the page\'s script did not run');
+    assert.ok(log.csp.some((v) => /script-src/.test(v)) || log.consoleErrors.some((v) => /Content Security Policy/.test(v)),
+      `a script-src violation is reported (csp: ${JSON.stringify(log.csp)}, console: ${JSON.stringify(log.consoleErrors)})`);
+  } finally {
+    await context.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
 });
 
 test('the single file from file:// with a #scenario= fragment: the recombiner shows four rays that agree with the command line', { timeout: 60000 }, async () => {
