@@ -84,13 +84,7 @@ pub fn groups(sc: &Scenario, stack: &Stack) -> Vec<Option<Group>> {
     let nm = stack.wavelength.nm();
     let side = |sign: f64| {
         let wl = Wavelength::from_nm(nm * (1.0 + sign * GROUP_STEP_REL)).ok()?;
-        Scenario {
-            wavelength: wl,
-            ..sc.clone()
-        }
-        .resolve()
-        .ok()
-        .map(|(s, _)| s)
+        sc.resolve_at(wl, sc.temperature_c).ok().map(|(s, _)| s)
     };
     let (below, above) = (side(-1.0), side(1.0));
     let mut z = 0.0;

@@ -42,6 +42,17 @@ impl Scenario {
     /// message names the element); `elements[i].axis` for an axis a hand-built scenario got
     /// out of range (parsed documents are checked already).
     pub fn resolve(&self) -> Result<(Stack, Vec<Warning>), Error> {
+        self.resolve_at(self.wavelength, self.temperature_c)
+    }
+
+    /// The stack this scenario describes at another vacuum `wavelength` and `temperature_c`,
+    /// and the warnings met on the way: what [`Scenario::resolve`] gives for a copy of the
+    /// scenario with those two changed, without the copy (spectra and curves resolve a
+    /// scenario at many wavelengths or temperatures).
+    ///
+    /// # Errors
+    /// As [`Scenario::resolve`].
+    pub fn resolve_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<(Stack, Vec<Warning>), Error> {
         let mut warnings = Vec::new();
         let mut layers = Vec::with_capacity(self.elements.len());
         let mut cells = Vec::new();
@@ -53,8 +64,8 @@ impl Scenario {
             z += el.gap_mm;
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
-                    let (mut medium, thickness_mm, found) = crystal_medium(&plate, self.wavelength, self.temperature_c)
-                        .map_err(|e| match e.field.as_str() {
+                    let (mut medium, thickness_mm, found) =
+                        crystal_medium(&plate, wavelength, temperature_c).map_err(|e| match e.field.as_str() {
                             "wavelength_nm" | "temperature_c" => {
                                 Error::new(e.field, format!("{} (elements[{idx}])", e.message))
                             }
@@ -89,16 +100,16 @@ impl Scenario {
                 }
                 ElementKind::Rotator { angle_deg } => Element::Ideal(jones::rotator(angle_deg.to_radians())),
                 ElementKind::Cell(cell) => {
-                    let hot = cell.temperature_check(self.temperature_c).map_err(|e| {
+                    let hot = cell.temperature_check(temperature_c).map_err(|e| {
                         Error::new("temperature_c", format!("elements[{idx}] (lc_cell): {}", e.message))
                     })?;
-                    let (_, fit) = cell.nematic(self.wavelength, self.temperature_c);
+                    let (_, fit) = cell.nematic(wavelength, temperature_c);
                     warnings.extend(hot.into_iter().chain(fit).map(|w| Warning {
                         element: idx,
                         text: format!("elements[{idx}].lc: {w}"),
                     }));
-                    let solved = cell.solve(self.wavelength, self.temperature_c);
-                    let optics = cell.layered(solved, self.wavelength, self.losses);
+                    let solved = cell.solve(wavelength, temperature_c);
+                    let optics = cell.layered(solved, wavelength, self.losses);
                     let at_input = layered_jones(&optics, self.outside_index, qt);
                     cells.push(optics);
                     Element::Cell(CellLayer {
@@ -114,7 +125,7 @@ impl Scenario {
         }
         let (jones, stokes) = input_state(&self.beam.polarization);
         let stack = Stack {
-            wavelength: self.wavelength,
+            wavelength,
             outside_index: self.outside_index,
             losses: self.losses,
             input: InputBeam {
@@ -238,5 +249,29 @@ mod tests {
         assert_eq!(axis_from_degrees(10.0, 1e9).unwrap_err().field, "azimuth_deg");
         let c = axis_from_degrees(90.0, 90.0).unwrap().unit();
         assert!((c - Vector3::y()).norm() < 1e-15);
+    }
+
+    #[test]
+    fn resolving_at_another_wavelength_and_temperature_is_resolving_a_changed_copy() {
+        // A crystal (thermal expansion, dispersion), a quartz plate with optical activity, a cell
+        // (solved at the wavelength and temperature) and an ideal element.
+        let sc = Scenario::from_json_str(
+            r#"{"wavelength_nm": 633, "temperature_c": 20, "elements": [
+                {"kind": "crystal", "material": "calcite", "thickness_mm": 1, "axis": {"tilt_deg": 45, "azimuth_deg": 10}},
+                {"kind": "crystal", "material": "quartz", "thickness_mm": 0.5, "axis": {"tilt_deg": 3, "azimuth_deg": 0}},
+                {"kind": "lc_cell", "thickness_um": 5, "lc": "5cb", "rubbing_azimuth_deg": 45, "voltage_v": 2},
+                {"kind": "polarizer", "transmission_axis_deg": 30}]}"#,
+        )
+        .unwrap();
+        let wavelength = Wavelength::from_nm(701.5).unwrap();
+        let copy = Scenario {
+            wavelength,
+            temperature_c: 31.0,
+            ..sc.clone()
+        };
+        let (a, wa) = sc.resolve_at(wavelength, 31.0).unwrap();
+        let (b, wb) = copy.resolve().unwrap();
+        assert_eq!(a, b);
+        assert_eq!(wa, wb);
     }
 }

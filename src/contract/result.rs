@@ -877,35 +877,23 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
 /// The total forward power of `sc` traced at `nm`, in its wavelength basis (vacuum, or standard
 /// air converted to vacuum as the scenario's own wavelength is).
 fn transmission_at(sc: &Scenario, nm: f64) -> Result<f64, Error> {
-    let (wavelength, air_wavelength_nm) = match sc.air_wavelength_nm {
-        Some(_) => (crate::optics::material::vacuum_from_air(nm)?.vacuum, Some(nm)),
-        None => (Wavelength::from_nm(nm)?, None),
+    let wavelength = match sc.air_wavelength_nm {
+        Some(_) => crate::optics::material::vacuum_from_air(nm)?.vacuum,
+        None => Wavelength::from_nm(nm)?,
     };
-    transmission_at_wavelength(sc, wavelength, air_wavelength_nm)
+    transmission_at_wavelength(sc, wavelength)
 }
 
 /// The forward transmission of `sc` at `air_nm` nanometres in standard air, whatever the
 /// scenario's own wavelength basis (the CIE colour tables' wavelengths are in air).
 fn transmission_at_air(sc: &Scenario, air_nm: f64) -> Result<f64, Error> {
-    let wavelength = crate::optics::material::vacuum_from_air(air_nm)?.vacuum;
-    let air_wavelength_nm = sc.air_wavelength_nm.map(|_| air_nm);
-    transmission_at_wavelength(sc, wavelength, air_wavelength_nm)
+    transmission_at_wavelength(sc, crate::optics::material::vacuum_from_air(air_nm)?.vacuum)
 }
 
-/// The forward transmission of `sc` traced again at `wavelength` (with `air_wavelength_nm`, the
-/// same wavelength in air, for a scenario given in air).
-fn transmission_at_wavelength(
-    sc: &Scenario,
-    wavelength: Wavelength,
-    air_wavelength_nm: Option<f64>,
-) -> Result<f64, Error> {
-    let at = Scenario {
-        wavelength,
-        air_wavelength_nm,
-        spectrum: None,
-        ..sc.clone()
-    };
-    let (stack, _) = at.resolve()?;
+/// The forward transmission of `sc` traced again at the vacuum `wavelength` (the stack depends
+/// on the vacuum wavelength alone, whatever basis the document gave its own in).
+fn transmission_at_wavelength(sc: &Scenario, wavelength: Wavelength) -> Result<f64, Error> {
+    let (stack, _) = sc.resolve_at(wavelength, sc.temperature_c)?;
     // Where every ray leaves from one point, their one spot's power is the set-up's matrix's.
     if let Some(power) = crate::optics::coincident::coincident_power(&stack) {
         return Ok(power);
