@@ -240,6 +240,50 @@ fn a_cell_s_temperature_is_refused_above_clearing_and_warned_away_from_its_data(
     assert!(warnings(60.0, custom).is_empty());
 }
 
+/// 5PCH (src/optics/lc/catalogue.rs): nematic up to its clearing point, about 54.5 °C, where 5CB
+/// is long isotropic; quiet over its measurement's 25.0-53.4 °C (Wu et al. 1993) but for the
+/// warning that its elastic and dielectric constants are recalled; its retardance ratio follows
+/// its order parameter and its threshold lies near π√(K11/(ε0 Δε)) = 0.98 V.
+#[test]
+fn a_5pch_cell_traces_to_its_clearing_point_and_says_its_constants_are_recalled() {
+    let doc = |t: f64| {
+        format!(
+            r#"{{"version": 2, "wavelength_nm": 589, "temperature_c": {t}, "elements": [{{"kind": "lc_cell",
+            "thickness_um": 5, "lc": "5pch"}}]}}"#
+        )
+    };
+    let e = trace_scenario(&Scenario::from_json_str(&doc(54.5)).unwrap()).unwrap_err();
+    assert_eq!(e.field, "temperature_c");
+    assert!(
+        e.message.contains("5pch") && e.message.contains("clearing point"),
+        "{}",
+        e.message
+    );
+    let e5 = find_nematic("5pch").unwrap();
+    let r25 = trace(&doc(25.0));
+    for t in [40.0, 50.0] {
+        let r = trace(&doc(t));
+        let w = r["warnings"].as_array().unwrap();
+        let first = w[0].as_str().unwrap_or("");
+        assert!(
+            w.len() == 1 && first.starts_with("elements[0].lc: 5pch's elastic and dielectric constants are recalled"),
+            "{t} °C: {w:?}"
+        );
+        let ratio = r["elements"][0]["retardance_waves"].as_f64().unwrap()
+            / r25["elements"][0]["retardance_waves"].as_f64().unwrap();
+        assert!(
+            (ratio - e5.order_ratio(t)).abs() < 1e-3,
+            "{t} °C: {ratio} against {}",
+            e5.order_ratio(t)
+        );
+    }
+    let w = trace(&doc(20.0))["warnings"].to_string();
+    assert!(w.contains("extrapolated"), "{w}");
+    let v = r25["elements"][0]["threshold_voltage_v"].as_f64().unwrap();
+    let want = PI * (8.5e-12_f64 / (8.854_187_812_8e-12 * 10.0)).sqrt();
+    assert!((v - want).abs() < 1e-9, "{v} against {want}");
+}
+
 /// A custom nematic (Δn = 0.2) with no pretilt at 0 V is a uniform layer, its director in the
 /// faces at the rubbing azimuth: the same as a crystal plate of those indices, its optic axis in
 /// the faces. Behind a calcite wedge, whose two rays leave about 10° and 14° off the axis, the

@@ -44,7 +44,10 @@ const ELEMENT_DEFAULTS = {
 };
 // The catalogue of nematics (src/optics/lc/catalogue.rs) and the choice that keeps constants a
 // loaded document gave.
-const NEMATICS = [['5cb', '5CB (4-cyano-4′-pentylbiphenyl)']];
+const NEMATICS = [
+  ['5cb', '5CB (4-cyano-4′-pentylbiphenyl)'],
+  ['5pch', '5PCH (trans-4-(4-pentylcyclohexyl)benzonitrile)'],
+];
 const CUSTOM_LC = 'custom';
 // A nematic's own constants (src/contract/lc_cell.rs): key, label, unit and the value they start
 // from, 5CB's (the catalogue's, its indices near 589 nm).

@@ -267,11 +267,11 @@ function buildDesignFields(state) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
     nodes.splice(at < 0 ? nodes.length : at + 1, 0, temperature.row);
   }
-  // The cell's voltage (src/contract/request/lc.rs). The nematic's constants are its values near
-  // 25 °C: the temperature is checked (refused at the clearing point, warned away from the
-  // data) but does not change them. Custom constants are asked in a JSON request.
+  // The cell's voltage (src/contract/request/lc.rs). A catalogued nematic's constants move with
+  // the temperature through its order parameter (refused at the clearing point, warned away from
+  // the data). Custom constants are asked in a JSON request.
   const cellThickness = addField(state, 'thickness_um', { label: 'Cell gap', spoken: 'Thickness of the nematic layer', unit: 'µm', value: 5 });
-  const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: [['5cb', '5CB']], hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
+  const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: [['5cb', '5CB'], ['5pch', '5PCH']], hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
   const rubbing = addField(state, 'rubbing_azimuth_deg', { label: 'Rubbing azimuth', spoken: 'Director azimuth at the entrance', unit: '°', value: 45 });
   const twist = addField(state, 'twist_deg', { label: 'Twist', spoken: 'Twist of the cell', unit: '°', value: 0 });
   const pretilt = addField(state, 'pretilt_deg', { label: 'Pretilt', spoken: 'Pretilt of the cell', unit: '°', value: 2 });

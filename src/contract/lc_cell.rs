@@ -236,6 +236,15 @@ impl LcCell {
         }))
     }
 
+    /// The warning a cell of a catalogued nematic whose elastic and dielectric constants are
+    /// recalled rather than cited carries (its entry's `constants_note`); `None` otherwise.
+    pub fn data_warning(&self) -> Option<String> {
+        match self.lc {
+            LcMaterial::Catalogue(e) => e.constants_note.map(str::to_string),
+            LcMaterial::Custom(_) => None,
+        }
+    }
+
     /// The substrates' layout in radians.
     pub fn layout(&self) -> CellLayout {
         CellLayout {

@@ -104,7 +104,7 @@ impl Scenario {
                         Error::new("temperature_c", format!("elements[{idx}] (lc_cell): {}", e.message))
                     })?;
                     let (_, fit) = cell.nematic(wavelength, temperature_c);
-                    warnings.extend(hot.into_iter().chain(fit).map(|w| Warning {
+                    warnings.extend(hot.into_iter().chain(fit).chain(cell.data_warning()).map(|w| Warning {
                         element: idx,
                         text: format!("elements[{idx}].lc: {w}"),
                     }));

@@ -135,7 +135,12 @@ pub fn design(r: &LcVoltageRequest) -> Result<LcVoltageDesign, Error> {
         slope_waves_per_v: slope,
         wavelength_nm: r.wavelength.nm(),
         temperature_c: r.temperature_c,
-        warnings: r.temperature_warning.iter().cloned().collect(),
+        warnings: r
+            .temperature_warning
+            .iter()
+            .cloned()
+            .chain(r.cell.data_warning())
+            .collect(),
         curve: volts.iter().zip(&curve).map(|(&v, &g)| [v, g]).collect(),
         range,
         scenario: part,

@@ -5,7 +5,8 @@
 // kept; custom nematic constants are edited in their own fields, checked against the
 // Freedericksz threshold formula, with a bad constant named beside its field; warming the page's
 // temperature lowers the cell's retardance as the command line gives it, and the clearing point
-// is named on the temperature field with the entry kept.
+// is named on the temperature field with the entry kept; 5PCH chosen from the nematic list traces
+// as the command line traces it, with the command line's warnings.
 //
 // Run: `cd tests/e2e && node --test lc-cell.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -117,5 +118,24 @@ test('a warmer cell has the command line\'s lower retardance, and at the clearin
     const msg = await waitError(page, 'temperature_c');
     assert.match(msg, /clearing point/);
     assert.equal(await page.inputValue('input.num[data-field="temperature_c"]'), '36', 'the entry stays for correction');
+  });
+});
+
+test('5PCH chosen from the nematic list traces as the command line does, with its warnings', { timeout: 90000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.click('button[data-add="lc_cell"]');
+    const added = await waitScenario(page, (s) => cellIndex(s) >= 0, 'a cell in the stack');
+    const i = cellIndex(added);
+    await page.selectOption(`select[data-field="elements[${i}].lc"]`, '5pch');
+    const sc = await waitScenario(page, (s) => s.elements[i]?.lc === '5pch', 'the cell of 5PCH');
+    const shown = await page.evaluate(() => window.doublespar.session.result());
+    const cli = cliTrace(sc);
+    const [a, b] = [shown.elements[i], cli.elements[i]];
+    assert.ok(Math.abs(a.retardance_waves - b.retardance_waves) <= 1e-12 * Math.abs(b.retardance_waves),
+      `page ${a.retardance_waves}, command line ${b.retardance_waves}`);
+    assert.equal(a.ne, b.ne);
+    assert.deepEqual(shown.warnings, cli.warnings);
+    assert.ok(cli.warnings.some((w) => w.includes("5pch's elastic and dielectric constants are recalled")),
+      `the recalled-constants warning: ${cli.warnings}`);
   });
 });

