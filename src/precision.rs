@@ -64,8 +64,8 @@ pub const STATIONARY_CUT_RAD: f64 = 1e-12;
 /// size of its terms: evanescent, or so near the critical angle that the general tracer, whose
 /// operations it repeats in another order here and there, must decide. Such an incidence is traced
 /// by the general tracer. 10⁻⁹ of n² lies within ~10⁻⁵ rad of a critical angle, far above the
-/// ~10⁻¹⁶ rounding of the terms. (Native builds only, as the planned trace is.)
-#[cfg(not(target_arch = "wasm32"))]
+/// ~10⁻¹⁶ rounding of the terms. (Native builds and the design worker's, as the planned trace.)
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub const PLANNED_CRITICAL_MARGIN: f64 = 1e-9;
 
 /// How closely the planned whole trace agrees with the general tracer on each ray that leaves

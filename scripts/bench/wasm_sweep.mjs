@@ -1,6 +1,7 @@
 // The core's benchmarks in WebAssembly under Node (the design module's build), for
 // scripts/bench.sh to set beside the native figures: the dense 10^6-point walk-off sweep, and
-// the two-wedge splitter's 10^5 whole traces and 10^5 split angles (scripts/bench/
+// the two-wedge splitter's 10^5 whole traces (by the planned trace, and by the general tracer for
+// comparison) and 10^5 split angles (scripts/bench/
 // two-wedge-splitter.json, the workload of src/optics/workload.rs). Prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -32,8 +33,9 @@ function median(times, f) {
   return [ts[Math.floor(times / 2)], value];
 }
 const splitter = readFileSync(join(root, 'scripts', 'bench', 'two-wedge-splitter.json'), 'utf8');
-const [traceMs, traceSum] = median(5, () => glue.benchSplitter(splitter, 100_000, true));
-const [splitMs, splitSum] = median(7, () => glue.benchSplitter(splitter, 100_000, false));
+const [traceMs, traceSum] = median(5, () => glue.benchSplitter(splitter, 100_000, 'trace'));
+const [generalMs, generalSum] = median(3, () => glue.benchSplitter(splitter, 100_000, 'general'));
+const [splitMs, splitSum] = median(7, () => glue.benchSplitter(splitter, 100_000, 'split'));
 console.log(JSON.stringify({
   bench: 'doublespar-wasm',
   node: process.version,
@@ -41,6 +43,8 @@ console.log(JSON.stringify({
   walkoff_sweep_checksum: sum,
   splitter_trace_1e5_ms: traceMs,
   splitter_trace_checksum: traceSum,
+  splitter_general_trace_1e5_ms: generalMs,
+  splitter_general_trace_checksum: generalSum,
   splitter_split_1e5_ms: splitMs,
   splitter_split_checksum: splitSum,
 }));

@@ -117,6 +117,16 @@ impl F {
     }
 }
 
+/// `x.is_finite()` as a floating-point test, x − x = 0 (NaN for ±∞ and NaN), which stays a
+/// vector subtraction and comparison: `is_finite`, an integer test of the bits, was compiled
+/// lane by lane in scalar registers.
+// The same operand on purpose: x − x is 0 exactly when x is finite.
+#[allow(clippy::eq_op)]
+#[inline(always)]
+fn finite(x: f64) -> bool {
+    x - x == 0.0
+}
+
 #[inline(always)]
 fn and(a: Mask, b: Mask) -> Mask {
     lanes(|i| a[i] & b[i])
@@ -403,7 +413,7 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
         }
         let p = m[col][col];
         let pp = p * p;
-        *ok = and(*ok, pp.test(zero, |a, b| (a != b) & a.is_finite()));
+        *ok = and(*ok, pp.test(zero, |a, b| (a != b) & finite(a)));
         let inv = p / pp;
         inverse[col] = inv;
         for row in col + 1..4 {
@@ -432,7 +442,7 @@ fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
     }
     for v in &x {
         for z in &v[2..] {
-            *ok = and(*ok, lanes(|i| z.0[i].is_finite()));
+            *ok = and(*ok, lanes(|i| finite(z.0[i])));
         }
     }
     x
@@ -454,7 +464,8 @@ fn lossless_part(t: &M2) -> M2 {
     let zero = F::splat(0.0);
     let usable: Mask = lanes(|i| {
         let n = norm.0[i];
-        !(n.is_nan() | (n <= 0.0) | n.is_infinite())
+        // Neither NaN, nor ≤ 0, nor infinite.
+        (n > 0.0) & finite(n)
     });
     let r = norm / (norm * norm);
     let t = [[t[0][0] * r, t[0][1] * r], [t[1][0] * r, t[1][1] * r]];

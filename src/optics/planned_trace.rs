@@ -28,7 +28,8 @@
 //!
 //! Many incidences at once: `optics::planned_lanes::BlockedTrace` traces them in blocks side by
 //! side, the same operations on a vector of incidences, and hands back to
-//! [`PlannedTrace::trace`] the ones a block cannot finish.
+//! [`PlannedTrace::trace`] the ones a block cannot finish (natively; the design worker's
+//! WebAssembly has the planned trace without the lanes, the page's module neither).
 //!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
 //! optically active) crystals, a plane-parallel stack (traced by [`crate::optics::parallel`]), or
@@ -388,6 +389,8 @@ pub struct PlannedRay {
 }
 
 /// A stack planned once and traced at many incidences (module header).
+// The design worker's WebAssembly reads no labels' letters (its workload sums numbers only).
+#[cfg_attr(target_arch = "wasm32", allow(dead_code))]
 #[derive(Debug, Clone)]
 pub struct PlannedTrace {
     outside: f64,
@@ -492,28 +495,35 @@ impl PlannedTrace {
         })
     }
 
+    // What the lanes (native only) read of the plan.
+    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn ideal(&self) -> bool {
         self.losses == Losses::Ideal
     }
 
+    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn outside(&self) -> f64 {
         self.outside
     }
 
+    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn slabs(&self) -> &[PlannedSlab] {
         &self.slabs
     }
 
+    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn coherency(&self) -> [f64; 3] {
         self.coherency
     }
 
+    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn screen(&self) -> &Plane {
         &self.screen
     }
 
     /// The label of a ray (its modes' letters, crystal by crystal), as the general tracer
     /// writes it.
+    #[cfg_attr(target_arch = "wasm32", allow(dead_code))]
     pub fn label(&self, bits: u32) -> String {
         let n = self.letters.len();
         (0..n)

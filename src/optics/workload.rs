@@ -8,10 +8,11 @@
 //!   boundary problems included; checksum Σᵢ Σ_rays [P + d_x + 2 d_y + 3 d_z + 0.001 (x + y)],
 //!   with P the ray's power, d its direction and (x, y) its exit point in mm. Computed by the
 //!   planned whole trace (`optics::planned_trace`: the same rays to rounding), each incidence it
-//!   declines by the general tracer (natively; WebAssembly builds hold no plan and trace every
-//!   sample by the general tracer); [`Workload::LaneTrace`] the same sum with the planned trace
-//!   run on blocks of incidences side by side ([`BlockedTrace::trace_each`]: the same rays, the
-//!   same checksum to rounding; natively only, WebAssembly builds trace it as `Trace`);
+//!   declines by the general tracer (natively and in the design worker's WebAssembly; the page's
+//!   module holds no plan and traces every sample by the general tracer); [`Workload::LaneTrace`]
+//!   the same sum with the planned trace run on blocks of incidences side by side
+//!   ([`BlockedTrace::trace_each`]: the same rays, the same checksum to rounding; in WebAssembly
+//!   by the portable build of the lanes, in the page's module as `Trace`);
 //!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
 //!   are measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
@@ -23,7 +24,7 @@ use crate::optics::geometry::direction;
 use crate::optics::planar::PlanarTracer;
 #[cfg(not(target_arch = "wasm32"))]
 use crate::optics::planned_lanes::BlockedTrace;
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 use crate::optics::planned_trace::PlannedTrace;
 use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
@@ -137,7 +138,7 @@ fn ray_term(power: f64, d: &Vector3<f64>, x: f64, y: f64) -> f64 {
 
 /// The whole-trace checksum of samples `part` of `n` by the planned trace, and how many samples
 /// it declined (traced by the general tracer instead).
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
     let Some(mut plan) = PlannedTrace::new(stack) else {
         return general_part(stack, n, part);
@@ -201,15 +202,15 @@ fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize)
     (sum, declined, alone)
 }
 
-/// WebAssembly builds hold no plan: the lanes' workload is the planned one's.
+/// WebAssembly holds no lanes: the lanes' workload is the planned one's.
 #[cfg(target_arch = "wasm32")]
 fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
     let (sum, declined) = planned_part(stack, n, part);
     (sum, declined, declined)
 }
 
-/// WebAssembly builds hold no plan (`optics/mod.rs`): every sample by the general tracer.
-#[cfg(target_arch = "wasm32")]
+/// The page's WebAssembly holds no plan (`optics/mod.rs`): every sample by the general tracer.
+#[cfg(all(target_arch = "wasm32", not(feature = "design-worker")))]
 fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
     general_part(stack, n, part)
 }

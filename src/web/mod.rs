@@ -273,20 +273,27 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
 }
 
 /// Benchmark hook: the two-wedge workload of [`crate::optics::workload`] on the scenario `doc`
-/// (JSON text; scripts/bench/two-wedge-splitter.json), `n` samples of whole traces
-/// (`whole`) or of split angles, returning its checksum (scripts/bench.sh runs it under Node
-/// beside the native build and the numpy baseline).
+/// (JSON text; scripts/bench/two-wedge-splitter.json), `n` samples of `work`: `"trace"` (whole
+/// traces by the planned trace), `"general"` (the same by the general tracer) or `"split"` (split
+/// angles), returning its checksum (scripts/bench.sh runs it under Node beside the native build
+/// and the numpy baseline).
 ///
 /// # Errors
-/// The scenario's first error, naming its field.
+/// The scenario's first error, naming its field; an unknown `work`.
 #[cfg(feature = "design-worker")]
 #[wasm_bindgen(js_name = benchSplitter)]
-pub fn bench_splitter(doc: &str, n: usize, whole: bool) -> Result<f64, JsValue> {
+pub fn bench_splitter(doc: &str, n: usize, work: &str) -> Result<f64, JsValue> {
     use crate::optics::workload::{Workload, run};
+    let work = match work {
+        "trace" => Workload::Trace,
+        "general" => Workload::GeneralTrace,
+        "split" => Workload::Split,
+        _ => return Err(JsValue::from_str("work: one of trace, general, split")),
+    };
     let (stack, _) = Scenario::from_json_str(doc)
         .and_then(|s| s.resolve())
         .map_err(js_error)?;
-    Ok(run(&stack, n, if whole { Workload::Trace } else { Workload::Split }))
+    Ok(run(&stack, n, work))
 }
 
 /// The quantity of a convergent-light view, and its slot in a [`Session`].
