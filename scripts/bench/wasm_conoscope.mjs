@@ -3,8 +3,9 @@
 // 30° cone, in the design worker's build (opt-level 3), by the function the page's worker calls
 // (convergentMap; its checksum is the sum of the values inside the cone), and, for the page's own
 // build (size-tuned), the time to build the `conoscope` view's scene from such a map handed to
-// the session (session.setConvergent + session.scene), the page's share of the work. Medians
-// of 9 runs; prints one JSON line.
+// the session (session.setConvergent + session.scene), the page's share of the work; and the
+// white-light figure (convergentWhite) at 128 and 256 per side. Medians of 9 runs (3 in white
+// light); prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
@@ -46,6 +47,7 @@ const cell = readFileSync(join(root, 'examples', 'twisted-nematic-cell.json'), '
 const [msCell48] = median(() => worker.convergentMap(cell, 'conoscope', 48));
 const [msCell128, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 128), 3);
 const [msWhite128] = median(() => worker.convergentWhite(doc, 128), 3);
+const [msWhite256] = median(() => worker.convergentWhite(doc, 256), 3);
 const page = await load('pkg');
 const session = new page.Session();
 session.updateJson(doc);
@@ -63,4 +65,5 @@ console.log(JSON.stringify({
   cell_conoscope_128_worker_build_ms: msCell128,
   cell_conoscope_128_values: cellValues.length,
   white_conoscope_128_worker_build_ms: msWhite128,
+  white_conoscope_256_worker_build_ms: msWhite256,
 }));

@@ -23,8 +23,10 @@ use crate::contract::scenario::Scenario;
 use crate::error::Error;
 use crate::optics::colorimetry::{self, Colour, POINTS};
 use crate::optics::conoscope::{
-    Grid, Quantity, conoscope_map, conoscope_stack_ok, first_retardance_at, transmission_at,
+    Grid, Quantity, conoscope_map, conoscope_stack_ok, first_retardance_at, outside_modes, set_up_matrix_with,
+    tangential_of, transmission_at,
 };
+use crate::optics::spots::power_of;
 use crate::optics::stack::Stack;
 use std::f64::consts::TAU;
 
@@ -213,10 +215,21 @@ fn white_light_stacks(sc: &Scenario) -> Result<Vec<Stack>, Error> {
 
 /// The colour of direction (`polar`, `azimuth`) (radians) through the stacks of
 /// [`white_light_stacks`].
+///
+/// The stacks share the scenario's outside medium, so the direction's tangential wave vector and
+/// the outside medium's modes are solved once for the whole spectrum.
 fn colour_at(stacks: &[Stack], polar: f64, azimuth: f64) -> Colour {
     let mut t = [0.0; POINTS];
-    for (slot, stack) in t.iter_mut().zip(stacks) {
-        *slot = transmission_at(stack, polar, azimuth);
+    if let Some(first) = stacks.first() {
+        let qt = tangential_of(first, polar, azimuth);
+        let outside = outside_modes(first.outside_index, qt);
+        for (slot, stack) in t.iter_mut().zip(stacks) {
+            *slot = if stack.outside_index == first.outside_index {
+                power_of(&set_up_matrix_with(stack, qt, &outside), &stack.input.stokes)
+            } else {
+                transmission_at(stack, polar, azimuth)
+            };
+        }
     }
     colorimetry::colour_of(&t)
 }

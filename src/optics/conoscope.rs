@@ -40,7 +40,7 @@
 use crate::optics::interface::CMatrix2;
 use crate::optics::jones::JonesMatrix;
 use crate::optics::lc::stratified::cell_jones_at;
-use crate::optics::modes::{Travel, isotropic_modes};
+use crate::optics::modes::{Mode, Travel, isotropic_modes};
 use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
 use crate::optics::stack::{Element, Stack};
@@ -104,12 +104,22 @@ pub fn tangential_of(stack: &Stack, polar: f64, azimuth: f64) -> [f64; 2] {
 /// The whole set-up's matrix at tangential wave vector `qt` (see the header), the gaps' common
 /// phase left out; the zero matrix when a face's boundary conditions are singular.
 pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
-    let n_out = stack.outside_index;
-    let k0 = stack.wavelength.k0_per_mm();
-    let outside = (
+    set_up_matrix_with(stack, qt, &outside_modes(stack.outside_index, qt))
+}
+
+/// The outside medium's forward and backward modes at `qt` (index `n_out`): they depend on
+/// neither the wavelength nor the stack, so a direction's spectrum solves them once.
+pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> ([Mode; 2], [Mode; 2]) {
+    (
         isotropic_modes(n_out, qt, Travel::Forward),
         isotropic_modes(n_out, qt, Travel::Backward),
-    );
+    )
+}
+
+/// As [`set_up_matrix`], with the outside medium's modes at `qt` given ([`outside_modes`] of the
+/// stack's outside index).
+pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &([Mode; 2], [Mode; 2])) -> JonesMatrix {
+    let k0 = stack.wavelength.k0_per_mm();
     let mut m = JonesMatrix::identity();
     for layer in &stack.layers {
         match layer.element {
