@@ -888,7 +888,19 @@ function traceText(text) {
 /** Traces what the controls say; on an error, shows it and keeps the last good state. */
 function commit() {
   const edit = state.pendingEdit;
+  const ends = state.pendingEnd;
   state.pendingEdit = null;
+  state.pendingEnd = false;
+  try {
+    commitEdit(edit);
+  } finally {
+    // A run whose change event came first ends with this commit, whatever it recorded.
+    if (ends && state.editGroup === edit) state.editGroup = null;
+  }
+}
+
+/** The body of commit(): traces, shows and records `edit` (see commit). */
+function commitEdit(edit) {
   const scenario = buildScenario();
   const text = JSON.stringify(scenario);
   if (text === state.lastAttempt) return;
@@ -1026,6 +1038,7 @@ function recordLoad(origin) {
   const cur = currentEntry();
   state.editGroup = null;
   state.pendingEdit = null;
+  state.pendingEnd = false;
   clearFragmentError();
   const entry = { text: state.lastGoodText, origin, edited: false, design: state.designText };
   if (!cur) {
@@ -1040,6 +1053,7 @@ function recordLoad(origin) {
 function restoreEntry(entry) {
   state.editGroup = null;
   state.pendingEdit = null;
+  state.pendingEnd = false;
   if (entry.text !== state.lastGoodText) {
     let obj;
     try {
@@ -1346,7 +1360,12 @@ function onControlEvent(ev) {
   // A run of input events on one control is one step of the history; its change event (a
   // slider let go, a field left, a choice made) ends the run.
   state.pendingEdit = state.pendingEdit === null || state.pendingEdit === t.dataset.field ? t.dataset.field : {};
-  if (ev.type === 'change' && state.editGroup === t.dataset.field) state.editGroup = null;
+  // The change event may come before the commit that records the run's last input (a field
+  // typed into and left at once): the commit then ends the run itself.
+  if (ev.type === 'change') {
+    if (state.editGroup === t.dataset.field) state.editGroup = null;
+    if (state.pendingEdit === t.dataset.field) state.pendingEnd = true;
+  }
   if (t.type === 'range' && t.num) {
     t.num.value = t.value;
   } else if (t.classList.contains('num') && t.range) {

@@ -37,6 +37,7 @@ export function createState({ darkQuery }) {
     history: null, // the SetupHistory
     editGroup: null, // the control whose run of edits is one step (a drag, typing), until its change event
     pendingEdit: null, // what the next commit records: a control's path or a structural action
+    pendingEnd: false, // a change event (the run's end) came before the commit that records the run
     designText: '', // the design panel's inputs as they travel in the link ('' at their defaults)
     fileToken: 0, // counts the files chosen, so that a slow read of an earlier one loses
 

@@ -126,6 +126,29 @@ test('Back and Forward walk through the committed set-ups without adding steps',
   });
 });
 
+test('a number typed and left before the page traces it is still a step of its own', { timeout: 60000 }, async () => {
+  await withPage('/', async (page) => {
+    const fire = (value, types) => page.evaluate(([sel, v, ts]) => {
+      const field = document.querySelector(sel);
+      if (v !== null) field.value = v;
+      for (const t of ts) field.dispatchEvent(new Event(t, { bubbles: true }));
+    }, [THICK, value, types]);
+    // 4: the field's input and change events in one task, so its change (the run's end) comes
+    // before the commit that records the run, as when a busy machine traces after the field
+    // was typed into and left.
+    await fire('4', ['input', 'change']);
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 4, 'thickness 4');
+    // 6: typed, traced, then left; a step of its own, not a continuation of the 4's run.
+    await fire('6', ['input']);
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 6, 'thickness 6');
+    await fire(null, ['change']);
+    await page.click('#undo');
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 4, 'Undo shows thickness 4, not the set-up before both edits');
+    await page.click('#undo');
+    await waitScenario(page, (s) => s.elements[0].thickness_mm === 12.5, 'Undo again shows the demo');
+  });
+});
+
 test('a preset, a file and a designed part load as one step each, say what they replaced, and show where the set-up came from', { timeout: 120000 }, async () => {
   await withPage('/', async (page) => {
     const demo = await pageScenario(page);
