@@ -11,8 +11,8 @@
 //!   declines by the general tracer (natively and in the design worker's WebAssembly; the page's
 //!   module holds no plan and traces every sample by the general tracer); [`Workload::LaneTrace`]
 //!   the same sum with the planned trace run on blocks of incidences side by side
-//!   ([`BlockedTrace::trace_each`]: the same rays, the same checksum to rounding; in WebAssembly
-//!   by the portable build of the lanes, in the page's module as `Trace`);
+//!   ([`BlockedTrace::trace_each`]: the same rays, the same checksum to rounding; natively only:
+//!   WebAssembly holds no lanes and runs it as `Trace`);
 //!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
 //!   are measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
