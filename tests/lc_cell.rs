@@ -266,7 +266,7 @@ fn a_5pch_cell_traces_to_its_clearing_point_and_says_its_constants_are_recalled(
         let w = r["warnings"].as_array().unwrap();
         let first = w[0].as_str().unwrap_or("");
         assert!(
-            w.len() == 1 && first.starts_with("elements[0].lc: 5pch's elastic and dielectric constants are recalled"),
+            w.len() == 1 && first.starts_with("elements[0].lc: 5PCH's elastic and dielectric constants are recalled"),
             "{t} °C: {w:?}"
         );
         let ratio = r["elements"][0]["retardance_waves"].as_f64().unwrap()

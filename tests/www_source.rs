@@ -327,10 +327,11 @@ fn the_scan_finds_code_and_leaves_comments_and_strings_alone() {
 
 #[test]
 fn the_page_offers_every_catalogued_nematic() {
-    // The stack editor's list (www/app.js, `NEMATICS`) and the design panel's (www/design-panel.js)
-    // are written out by hand; each must name every key of the catalogue (src/optics/lc/catalogue.rs).
+    // The page's one list of nematics (www/state.js, `NEMATICS`, used by the stack editor and the
+    // design panel) is written out by hand; it must name every key of the catalogue
+    // (src/optics/lc/catalogue.rs).
     let www = Path::new(env!("CARGO_MANIFEST_DIR")).join("www");
-    for file in ["app.js", "design-panel.js"] {
+    for file in ["state.js"] {
         let text = fs::read_to_string(www.join(file)).unwrap_or_else(|e| panic!("cannot read {file}: {e}"));
         for key in doublespar::nematic_keys() {
             assert!(

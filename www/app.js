@@ -20,7 +20,7 @@
 import { h, setAttr, setText, stepNumber, uid } from './dom.js';
 import { readNumber } from './format.js';
 import { Field, FieldErrors, SETUP_NAMES, errorSlot, toFieldError } from './field-error.js';
-import { createState, materialName } from './state.js';
+import { NEMATICS, createState, materialName } from './state.js';
 import { CardGeometry, GEOMETRY_GROUPS } from './geometry.js';
 import { CardFormula, FORMULA_GROUPS } from './formula.js';
 import { setupDesign } from './design-panel.js';
@@ -42,12 +42,8 @@ const ELEMENT_DEFAULTS = {
   rotator: { angle_deg: 45 },
   lc_cell: { thickness_um: 5, lc: '5cb', rubbing_azimuth_deg: 45, twist_deg: 0, pretilt_deg: 2, voltage_v: 0 },
 };
-// The catalogue of nematics (src/optics/lc/catalogue.rs) and the choice that keeps constants a
-// loaded document gave.
-const NEMATICS = [
-  ['5cb', '5CB (4-cyano-4′-pentylbiphenyl)'],
-  ['5pch', '5PCH (trans-4-(4-pentylcyclohexyl)benzonitrile)'],
-];
+// The choice beside the catalogue's nematics (state.js, NEMATICS) that keeps constants a loaded
+// document gave.
 const CUSTOM_LC = 'custom';
 // A nematic's own constants (src/contract/lc_cell.rs): key, label, unit and the value they start
 // from, 5CB's (the catalogue's, its indices near 589 nm).

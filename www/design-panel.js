@@ -27,7 +27,7 @@ import { h, setText, uid } from './dom.js';
 import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
-import { materialName } from './state.js';
+import { NEMATICS, materialName } from './state.js';
 import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, lcResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 import { startCoreWorker } from './core-worker.js';
 
@@ -271,7 +271,7 @@ function buildDesignFields(state) {
   // the temperature through its order parameter (refused at the clearing point, warned away from
   // the data). Custom constants are asked in a JSON request.
   const cellThickness = addField(state, 'thickness_um', { label: 'Cell gap', spoken: 'Thickness of the nematic layer', unit: 'µm', value: 5 });
-  const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: [['5cb', '5CB'], ['5pch', '5PCH']], hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
+  const nematic = addField(state, 'lc', { label: 'Nematic', spoken: 'Nematic of the cell', kind: 'select', options: NEMATICS, hint: 'Custom constants are asked in a JSON request ("lc": {…}).' });
   const rubbing = addField(state, 'rubbing_azimuth_deg', { label: 'Rubbing azimuth', spoken: 'Director azimuth at the entrance', unit: '°', value: 45 });
   const twist = addField(state, 'twist_deg', { label: 'Twist', spoken: 'Twist of the cell', unit: '°', value: 0 });
   const pretilt = addField(state, 'pretilt_deg', { label: 'Pretilt', spoken: 'Pretilt of the cell', unit: '°', value: 2 });

@@ -95,6 +95,15 @@ export function createState({ darkQuery }) {
 }
 
 /**
+ * The catalogue of nematics (src/optics/lc/catalogue.rs, `NEMATICS`): key and name, for the stack
+ * editor's and the design panel's lists (tests/www_source.rs checks that it offers every key).
+ */
+export const NEMATICS = [
+  ['5cb', '5CB (4-cyano-4′-pentylbiphenyl)'],
+  ['5pch', '5PCH (trans-4-(4-pentylcyclohexyl)benzonitrile)'],
+];
+
+/**
  * A material's name as the page writes it. A formula with no journal source (`verified` false)
  * is named with "(unverified data)", so that every list and description that names it says so.
  */

@@ -135,7 +135,7 @@ test('5PCH chosen from the nematic list traces as the command line does, with it
       `page ${a.retardance_waves}, command line ${b.retardance_waves}`);
     assert.equal(a.ne, b.ne);
     assert.deepEqual(shown.warnings, cli.warnings);
-    assert.ok(cli.warnings.some((w) => w.includes("5pch's elastic and dielectric constants are recalled")),
+    assert.ok(cli.warnings.some((w) => w.includes("5PCH's elastic and dielectric constants are recalled")),
       `the recalled-constants warning: ${cli.warnings}`);
   });
 });

@@ -72,7 +72,7 @@ pub struct NematicEntry {
 pub const NEMATICS: [NematicEntry; 2] = [
     NematicEntry {
         key: "5cb",
-        name: "4-cyano-4'-pentylbiphenyl (5CB), 25 °C",
+        name: "4-cyano-4'-pentylbiphenyl (5CB)",
         // J. Li and S.-T. Wu, "Extended Cauchy equations for the refractive indices of liquid
         // crystals", J. Appl. Phys. 95, 896 (2004), 5CB at 25.1 °C (from memory): n_e ≈ 1.716 and
         // n_o ≈ 1.533 at 589 nm.
@@ -113,7 +113,7 @@ pub const NEMATICS: [NematicEntry; 2] = [
     },
     NematicEntry {
         key: "5pch",
-        name: "trans-4-(4-pentylcyclohexyl)benzonitrile (5PCH), 25 °C",
+        name: "trans-4-(4-pentylcyclohexyl)benzonitrile (5PCH)",
         // J. Li, C.-H. Wen, S. Gauza, R. Lu and S.-T. Wu, "Refractive indices of liquid crystals
         // for display applications", J. Display Technol. 1, 51-61 (2005): three-term Cauchy fits
         // at 25 °C over 450-656 nm, as the refractiveindex.info database holds them (other/5PCH,
@@ -151,7 +151,7 @@ pub const NEMATICS: [NematicEntry; 2] = [
         // slope runs from −3.2e-4 at 450 nm to −3.1e-4 /K at 700 nm.
         mean_index_per_k: -3.10e-4,
         constants_note: Some(
-            "5pch's elastic and dielectric constants are recalled (about 20 % uncertain), not read from a \
+            "5PCH's elastic and dielectric constants are recalled (about 20 % uncertain), not read from a \
              measurement at hand, so its threshold and voltage response are estimates",
         ),
         source: "indices: Li et al., J. Display Technol. 1, 51 (2005); temperature: Haller's order parameter and a linear mean index fitted to Wu et al., Opt. Eng. 32, 1775 (1993); elastic and dielectric constants recalled, unverified",
