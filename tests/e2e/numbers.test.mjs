@@ -59,6 +59,10 @@ test('a narrow embedded figure stacks its views and shows each whole', { timeout
   await withPage(env, '/embed-example.html', async ({ page }) => {
     await page.setViewportSize({ width: 300, height: 900 });
     await page.waitForFunction(() => document.querySelector('spar-figure')?.hasAttribute('data-stacked'), null, { timeout: 5000 });
+    // The first trace done and its views made (on a loaded machine this comes after the resize),
+    // then two frames for the stacked layout to settle before it is measured.
+    await page.evaluate(() => document.querySelector('spar-figure').ready);
+    await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
     const boxes = await page.evaluate(() => {
       const fig = document.querySelector('spar-figure');
       const host = fig.getBoundingClientRect();

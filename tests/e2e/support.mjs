@@ -447,7 +447,15 @@ export async function waitScenario(page, pred, what, timeout = 5000) {
   const end = Date.now() + timeout;
   for (;;) {
     const sc = await pageScenario(page);
-    if (pred(sc)) return sc;
+    // A predicate that reads a part the page has not written yet (the edit still on its way) waits
+    // on; it fails, with the scenario shown, only when the time is up.
+    let met = false;
+    try {
+      met = pred(sc);
+    } catch {
+      met = false;
+    }
+    if (met) return sc;
     if (Date.now() > end) assert.fail(`${what}; the page's scenario is ${JSON.stringify(sc).slice(0, 400)}`);
     await page.waitForTimeout(40);
   }
