@@ -384,11 +384,26 @@ function __dsInflate(text, length) {
   const gz = __dsFromBase85(text, length, __DS_BASE85);
   return new Response(new Blob([gz]).stream().pipeThrough(new DecompressionStream('gzip'))).arrayBuffer();
 }
-globalThis.__dsWasm = __dsInflate(${jsonSafe(wasmText)}, ${wasmGz.length});
-const __dsScript = document.createElement('script');
-__dsScript.type = 'module';
-__dsScript.textContent = new TextDecoder().decode(await __dsInflate(${jsonSafe(scriptText85)}, ${scriptGz.length}));
-document.body.append(__dsScript);
+/** Says in the page's alarm banner why nothing can run (the page's own script never started). */
+function __dsCannotRun(why) {
+  const banner = document.getElementById('panic');
+  if (!banner) return;
+  banner.textContent = why;
+  banner.hidden = false;
+}
+if (typeof DecompressionStream !== 'function') {
+  __dsCannotRun('This single-file Doublespar cannot start here: the browser cannot unpack its gzipped parts (it has no DecompressionStream). Open it in a current Chromium, Firefox or Safari, or use the served page.');
+} else {
+  try {
+    globalThis.__dsWasm = __dsInflate(${jsonSafe(wasmText)}, ${wasmGz.length});
+    const __dsScript = document.createElement('script');
+    __dsScript.type = 'module';
+    __dsScript.textContent = new TextDecoder().decode(await __dsInflate(${jsonSafe(scriptText85)}, ${scriptGz.length}));
+    document.body.append(__dsScript);
+  } catch (e) {
+    __dsCannotRun(\`This single-file Doublespar cannot start: its page script could not be unpacked (\${e && e.message ? e.message : e}). The file may be damaged; download it again.\`);
+  }
+}
 `;
 
 /**

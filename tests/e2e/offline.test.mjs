@@ -148,6 +148,26 @@ test('the single file\'s policy gates the script it inflates: with that script\'
   }
 });
 
+test('the single file in a browser that cannot unpack gzip says so in its banner instead of showing a dead page', { timeout: 60000 }, async () => {
+  ensureSingle();
+  const { context, page, log } = await openPage(env.browser, null);
+  try {
+    // A browser without DecompressionStream (before 2023 in some engines).
+    await page.addInitScript(() => {
+      delete globalThis.DecompressionStream;
+    });
+    await page.goto(pathToFileURL(SINGLE).href);
+    await page.waitForFunction(() => !document.getElementById('panic').hidden, null, { timeout: 30000 });
+    const said = await page.textContent('#panic');
+    assert.match(said, /cannot start/, said);
+    assert.match(said, /DecompressionStream/, said);
+    assert.equal(await page.evaluate(() => Boolean(window.doublespar)), false, 'the page\'s script did not run');
+    assert.deepEqual(log.pageErrors, [], 'no uncaught error besides the message');
+  } finally {
+    await context.close();
+  }
+});
+
 test('the single file from file:// with a #scenario= fragment: the recombiner shows four rays that agree with the command line', { timeout: 60000 }, async () => {
   const doc = JSON.parse(example('recombiner.json'));
   await withSingle(`#scenario=${encodeURIComponent(JSON.stringify(doc))}`, async (page) => {
