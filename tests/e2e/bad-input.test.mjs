@@ -162,7 +162,7 @@ test('every bad scenario in a changed fragment shows #fragment-error and keeps t
     // An edit that traces clears the message.
     await page.fill('input:not([type=range])[data-field="elements[0].thickness_mm"]', '7');
     await page.press('input:not([type=range])[data-field="elements[0].thickness_mm"]', 'Tab');
-    await page.waitForFunction(() => document.getElementById('fragment-error').hidden, null, { timeout: 5000 })
+    await page.waitForFunction(() => document.getElementById('fragment-error').hidden, null, { timeout: 15000 })
       .catch(async () => assert.fail(`#fragment-error stays after a good edit: ${await shownText(page, 'fragment-error')}`));
   });
 });

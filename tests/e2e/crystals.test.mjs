@@ -80,7 +80,7 @@ test('optical activity: the quartz rotator turns the light by its rotatory power
     assert.ok(r.total_power < 1e-6, `crossed: ${r.total_power}`);
     // What little passes has no meaningful ellipse: the total alone is compared.
     await page.waitForFunction((want) => Math.abs(Number(document.querySelector('[data-quantity="total_power"]')?.getAttribute('data-value')) - want) < 1e-12,
-      r.total_power, { timeout: 5000 });
+      r.total_power, { timeout: 15000 });
     // Switched off: no rotation, half the light passes.
     await page.selectOption('select[data-field="elements[0].optical_activity"]', 'false');
     const off = await waitScenario(page, (s) => s.elements[0].optical_activity === false, 'activity off');

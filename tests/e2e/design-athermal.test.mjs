@@ -130,7 +130,7 @@ test('the athermal pair solves from its starting values, fits 400 px and every n
     assert.deepEqual(bare, [], 'numbers without a unit');
     const request = await page.evaluate(() => window.doublespar.designRequest());
     assert.equal(request.temperature_c, 35, 'the request states the temperature');
-    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 15000 });
     link = await page.evaluate(() => location.hash);
   }, { viewport: { width: 400, height: 900 } });
   await openAt(env, `/${link}`, async ({ page }) => {

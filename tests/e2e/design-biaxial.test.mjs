@@ -164,7 +164,7 @@ test('a link carries a biaxial design\'s crystal and its cut or plane', { timeou
     await withPage(async (page) => {
       await fill(page, kind, entries);
       // The address follows the fields (the history writes it after a pause).
-      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 15000 });
       link = await page.evaluate(() => location.hash);
       said = await page.evaluate(() => window.doublespar.designRequest());
     });

@@ -247,7 +247,7 @@ test('a link carries the prism kinds\' fields: a plate given by its order, a spl
     ]) {
       await fill(page, kind, entries);
       // The address follows the fields (the history writes it after a pause).
-      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+      await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 15000 });
       links.push(await page.evaluate(() => location.hash));
     }
   });
@@ -285,7 +285,7 @@ test('a splitter whose worker sends its Monte Carlo run in chunks is shown as th
 
     await fill(page, 'angular-splitter', [['band_nm[0]', 450], ['band_nm[1]', 900], ['samples', 400], ['seed', 3]]);
     await page.click('#design-solve');
-    await page.waitForFunction(() => window.__solveId !== undefined, null, { timeout: 5000 });
+    await page.waitForFunction(() => window.__solveId !== undefined, null, { timeout: 15000 });
     const send = (data) => page.evaluate((d) => window.__worker.onmessage({ data: { ...d, id: window.__solveId } }), data);
     await send({ type: 'nominal', design: nominal, total: 400 });
     assert.equal(await page.evaluate(() => document.getElementById('design').dataset.state), 'running');

@@ -138,7 +138,7 @@ test('a link carries the rotator\'s fields, a forced hand included', { timeout: 
       ['rotation_tolerance_deg', 0.2], ['ellipticity_tolerance_deg', 1],
     ]);
     // The address follows the fields (the history writes it after a pause).
-    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 5000 });
+    await page.waitForFunction(() => decodeURIComponent(location.hash.split('&design=')[1] ?? '') === JSON.stringify(window.doublespar.designRequest()), null, { timeout: 15000 });
     link = await page.evaluate(() => location.hash);
   });
   await openAt(env, `/${link}`, async ({ page }) => {

@@ -244,7 +244,7 @@ test('a displacer solved through the controls agrees with the command line, Mont
     // "Use this part": the main views show the designed plate.
     await page.click('#design-use');
     await page
-      .waitForFunction(() => Math.abs(Number(document.querySelector('[data-quantity="elements[0].separation_mm"]')?.getAttribute('data-value')) - 2) <= 2e-9, null, { timeout: 5000 })
+      .waitForFunction(() => Math.abs(Number(document.querySelector('[data-quantity="elements[0].separation_mm"]')?.getAttribute('data-value')) - 2) <= 2e-9, null, { timeout: 15000 })
       .catch(async () => assert.fail(`elements[0].separation_mm is ${await page.getAttribute('[data-quantity="elements[0].separation_mm"]', 'data-value')}`));
     const sep = Number(await page.getAttribute('[data-quantity="elements[0].separation_mm"]', 'data-value'));
     assert.ok(close(sep, 2, 1e-9), `the traced separation is 2 mm (${sep})`);
@@ -347,7 +347,7 @@ test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plo
     // A resize redraws the plots at their new size.
     const w0 = dark[0].w;
     await page.setViewportSize({ width: 700, height: 900 });
-    await page.waitForFunction((w) => document.querySelector('canvas[data-design-plot="retardance-wavelength"]').width !== w, w0, { timeout: 5000 });
+    await page.waitForFunction((w) => document.querySelector('canvas[data-design-plot="retardance-wavelength"]').width !== w, w0, { timeout: 15000 });
     await expectPlots(page, plots, 'waveplate, after a resize');
   });
 });
@@ -451,7 +451,7 @@ test('an achromatic pair and a recombiner agree with the command line', { timeou
     assert.equal(cli.recombined, true);
     await expectPlots(page, [], 'recombiner');
     await page.click('#design-use');
-    await page.waitForFunction(() => document.querySelectorAll('[data-quantity^="rays."][data-quantity$=".power"]').length === 4, null, { timeout: 5000 });
+    await page.waitForFunction(() => document.querySelectorAll('[data-quantity^="rays."][data-quantity$=".power"]').length === 4, null, { timeout: 15000 });
   });
 });
 

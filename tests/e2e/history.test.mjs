@@ -203,10 +203,10 @@ test('the design panel\'s inputs travel in the link; a bad design part names its
     await page.selectOption('[data-design-field="material"]', 'yvo4');
     await enterValue(page, '[data-design-field="wavelength_nm"]', '1064');
     await enterValue(page, '[data-design-field="separation_mm"]', '0.8');
-    await page.waitForFunction(() => location.hash.includes('&design='), null, { timeout: 5000 });
+    await page.waitForFunction(() => location.hash.includes('&design='), null, { timeout: 15000 });
     await enterValue(page, THICK, '7');
     await waitScenario(page, (s) => s.elements[0].thickness_mm === 7, 'an edit of the set-up');
-    await page.waitForFunction(() => /&design=/.test(location.hash) && /thickness_mm%22%3A7/.test(location.hash), null, { timeout: 5000 });
+    await page.waitForFunction(() => /&design=/.test(location.hash) && /thickness_mm%22%3A7/.test(location.hash), null, { timeout: 15000 });
     link = await page.evaluate(() => location.hash);
   });
   const design = JSON.parse(decodeURIComponent(link.split('&design=')[1]));

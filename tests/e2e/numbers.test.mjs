@@ -19,7 +19,7 @@ test('a huge or long input is quoted compactly and its message stays inside the 
     await field.fill('1e308');
     await field.dispatchEvent('change');
     const slot = page.locator('[data-error-for="elements[0].thickness_mm"]');
-    await slot.waitFor({ state: 'visible', timeout: 5000 });
+    await slot.waitFor({ state: 'visible', timeout: 15000 });
     const text = await slot.textContent();
     assert.match(text, /1e308/, `the message quotes 1e308: ${text}`);
     assert.ok(text.length < 200, `the message is short: ${text.length} characters`);
@@ -58,7 +58,7 @@ test('positions in a table share one unit', { timeout: 120000 }, async () => {
 test('a narrow embedded figure stacks its views and shows each whole', { timeout: 120000 }, async () => {
   await withPage(env, '/embed-example.html', async ({ page }) => {
     await page.setViewportSize({ width: 300, height: 900 });
-    await page.waitForFunction(() => document.querySelector('spar-figure')?.hasAttribute('data-stacked'), null, { timeout: 5000 });
+    await page.waitForFunction(() => document.querySelector('spar-figure')?.hasAttribute('data-stacked'), null, { timeout: 15000 });
     // The first trace done and its views made (on a loaded machine this comes after the resize),
     // then two frames for the stacked layout to settle before it is measured.
     await page.evaluate(() => document.querySelector('spar-figure').ready);

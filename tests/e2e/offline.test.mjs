@@ -262,6 +262,6 @@ test('the example documentation page: two independent figures and an iframe', { 
     await page.waitForFunction(() => {
       const c = document.getElementById('fig-pair').shadowRoot.querySelector('canvas');
       return c.height > 0 && Math.abs(c.height - c.clientHeight * devicePixelRatio) < 2;
-    }, null, { timeout: 5000 });
+    }, null, { timeout: 15000 });
   }, { ready: false });
 });

@@ -62,7 +62,7 @@ test('a file naming an unknown source is refused with the field and the known so
       elements: [{ kind: 'crystal', material: 'calcite', source: 'nobody-1900', thickness_mm: 3, axis: { tilt_deg: 45, azimuth_deg: 0 } }],
     };
     await page.setInputFiles('#scenario-file', { name: 'unknown-source.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(doc)) });
-    await page.waitForFunction(() => !document.getElementById('file-error').hidden, null, { timeout: 5000 });
+    await page.waitForFunction(() => !document.getElementById('file-error').hidden, null, { timeout: 15000 });
     const msg = await page.textContent('#file-error');
     assert.match(msg, /elements\[0\]\.source/, msg);
     assert.match(msg, /ghosh-1999, tropf-1995/, msg);

@@ -419,7 +419,7 @@ export function requiredPaths(cli, crystalsToo = true) {
 }
 
 /** Polls until the page agrees with `cli` (the page may update on the next frame). */
-export async function expectAgreement(page, cli, required, what, timeout = 5000) {
+export async function expectAgreement(page, cli, required, what, timeout = 15000) {
   const end = Date.now() + timeout;
   let bad;
   for (;;) {
@@ -443,7 +443,7 @@ export function close(a, b, rel = 1e-12, floor = 1e-15) {
 export const pageScenario = async (page) => JSON.parse(await page.evaluate(() => window.doublespar.session.scenarioJson()));
 
 /** Waits until the page's scenario satisfies `pred`; returns it (fails saying `what`). */
-export async function waitScenario(page, pred, what, timeout = 5000) {
+export async function waitScenario(page, pred, what, timeout = 15000) {
   const end = Date.now() + timeout;
   for (;;) {
     const sc = await pageScenario(page);
@@ -486,7 +486,7 @@ export function shownError(page, path, attr = 'data-error-for') {
 }
 
 /** Waits until the error slot of `path` shows a message; returns it. */
-export async function waitError(page, path, attr = 'data-error-for', timeout = 5000) {
+export async function waitError(page, path, attr = 'data-error-for', timeout = 15000) {
   const end = Date.now() + timeout;
   for (;;) {
     const text = await shownError(page, path, attr);

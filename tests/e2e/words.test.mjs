@@ -28,7 +28,7 @@ test('a message names the field as the page labels it, elements counted from 1',
 
     // A range that leaves out an end says so.
     await enterValue(page, `input.num[data-field="${f}"]`, '0');
-    await page.waitForFunction((p) => /above 0/.test(document.querySelector(`[data-error-for="${p}"]`).textContent), f, { timeout: 5000 });
+    await page.waitForFunction((p) => /above 0/.test(document.querySelector(`[data-error-for="${p}"]`).textContent), f, { timeout: 15000 });
     assert.equal(await waitError(page, f), 'Element 2 · Thickness: must be above 0 mm and at most 10000 mm, got 0 mm');
     await enterValue(page, 'input.num[data-field="beam.incidence.polar_deg"]', '90');
     assert.equal(await waitError(page, 'beam.incidence.polar_deg'),
