@@ -44,7 +44,11 @@ build_module() {
   wasm-bindgen --target web --no-typescript --out-dir "$work/pkg" "$work/doublespar.wasm"
   if command -v wasm-opt >/dev/null 2>&1; then
     # shellcheck disable=SC2086
-    wasm-opt -Oz $FEATURES -o "www/$out/doublespar_bg.wasm" "$work/pkg/doublespar_bg.wasm"
+    # Two facts of these modules let the optimizer fold more (about 3.5 KB off the page's):
+    # memory starts zeroed (the module defines its own memory, none is imported), and nothing
+    # lives in its lowest 1 KiB (Rust places the 1 MiB stack first, growing down to address 0,
+    # with the data above it; only a stack already overflowed would reach that KiB).
+    wasm-opt -Oz --low-memory-unused --zero-filled-memory $FEATURES -o "www/$out/doublespar_bg.wasm" "$work/pkg/doublespar_bg.wasm"
   else
     echo "warning: wasm-opt not found; the wasm is not size-optimized" >&2
     cp "$work/pkg/doublespar_bg.wasm" "www/$out/doublespar_bg.wasm"
