@@ -139,17 +139,7 @@ fn series(
     current: Option<[f64; 2]>,
     note: String,
 ) -> Series {
-    Series {
-        title: title.into(),
-        x_label: x_label.into(),
-        x_unit: x_unit.into(),
-        y_label: "split angle".into(),
-        y_unit: "°".into(),
-        points,
-        current,
-        markers: Vec::new(),
-        note,
-    }
+    Series::new([title, x_label, x_unit, "split angle", "°"], points, current, note)
 }
 
 /// The split angle against wavelength over the range every crystal's formula covers.
