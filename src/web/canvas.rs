@@ -33,10 +33,22 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
         arrow(&ctx, mid, d.to, c, 7.0, 1.0);
     }
     ctx.set_text_align("start");
+    // Labels come in runs of one font and colour: each is set when it changes only, since
+    // setting a canvas font parses it anew even when it is the same.
+    let mut font = String::new();
+    let mut colour = "";
     for l in &lay.labels {
         let weight = if l.bold { "600 " } else { "" };
-        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
-        ctx.set_fill_style_str(palette.stroke(l.role));
+        let want = format!("{weight}{}px system-ui, sans-serif", l.size_px);
+        if want != font {
+            ctx.set_font(&want);
+            font = want;
+        }
+        let c = palette.stroke(l.role);
+        if c != colour {
+            ctx.set_fill_style_str(c);
+            colour = c;
+        }
         ctx.fill_text(&l.text, l.x, l.baseline)?;
     }
     Ok(())
