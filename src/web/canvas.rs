@@ -35,14 +35,13 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
     ctx.set_text_align("start");
     // Labels come in runs of one font and colour: each is set when it changes only, since
     // setting a canvas font parses it anew even when it is the same.
-    let mut font = String::new();
+    let mut font = None;
     let mut colour = "";
     for l in &lay.labels {
-        let weight = if l.bold { "600 " } else { "" };
-        let want = format!("{weight}{}px system-ui, sans-serif", l.size_px);
-        if want != font {
-            ctx.set_font(&want);
-            font = want;
+        if font != Some((l.bold, l.size_px)) {
+            let weight = if l.bold { "600 " } else { "" };
+            ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
+            font = Some((l.bold, l.size_px));
         }
         let c = palette.stroke(l.role);
         if c != colour {

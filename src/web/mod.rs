@@ -469,7 +469,7 @@ impl Session {
         let scenario = Scenario::from_json_str(DEMO).map_err(js_error)?;
         let result = trace(&scenario).map_err(js_error)?;
         Ok(Session {
-            scenes: scenes::Scenes::new(&scenario),
+            scenes: scenes::Scenes::default(),
             scenario,
             result,
             convergent: [None, None],

@@ -17,21 +17,14 @@ use crate::view::scene::Scene;
 use std::cell::RefCell;
 use std::rc::Rc;
 
-/// The scenes built for one scenario, by view name.
+/// The scenes built for one scenario, by view name (none at first, for no scenario).
+#[derive(Default)]
 pub struct Scenes {
     scenario: String,
     built: RefCell<Vec<(String, Rc<Scene>)>>,
 }
 
 impl Scenes {
-    /// No scene yet, for `scenario`.
-    pub fn new(scenario: &Scenario) -> Scenes {
-        Scenes {
-            scenario: scenario.to_json().to_string(),
-            built: RefCell::new(Vec::new()),
-        }
-    }
-
     /// Follows the session to `scenario`: the scenes kept stay only if it is the same document.
     pub fn follow(&mut self, scenario: &Scenario) {
         let text = scenario.to_json().to_string();
