@@ -452,9 +452,17 @@ async function largeStack(browser, origin) {
       };
       const parts = { result_to_js_ms: timed(() => session.result()) };
       const dark = window.matchMedia('(prefers-color-scheme: dark)').matches;
+      // Each view built and drawn after an edit (the session keeps a scene until its scenario
+      // changes): the wavelength moved by 0.5 nm and back, untimed, before each.
+      const base = JSON.parse(session.scenarioJson());
+      let k = 0;
       for (const c of document.querySelectorAll('canvas[data-view]')) {
+        k += 1;
+        session.updateJson(JSON.stringify({ ...base, wavelength_nm: base.wavelength_nm + (k % 2 ? 0.5 : 0) }));
         parts[`draw_${c.dataset.view}_ms`] = timed(() => session.draw(c.dataset.view, c, dark));
       }
+      // The whole redraw after an edit: every view built again, and the descriptions.
+      session.updateJson(JSON.stringify({ ...base, wavelength_nm: base.wavelength_nm + 0.25 }));
       parts.redraw_and_describe_ms = timed(() => ds.redraw());
       return { loadMs, edit, update, parts, rays: result.rays.length, spots: result.spots.length };
     },
