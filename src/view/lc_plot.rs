@@ -17,17 +17,18 @@ pub const VOLTAGE_POINTS: usize = 200;
 
 /// The first cell's retardance (waves) against RMS voltage.
 pub fn retardance_vs_voltage(sc: &Scenario) -> Series {
-    let mut s = Series {
-        title: "Retardance against voltage".into(),
-        x_label: "voltage".into(),
-        x_unit: "V (RMS)".into(),
-        y_label: "retardance".into(),
-        y_unit: "waves".into(),
-        points: Vec::new(),
-        current: None,
-        markers: Vec::new(),
-        note: "no liquid-crystal cell in the stack".into(),
-    };
+    let mut s = Series::new(
+        [
+            "Retardance against voltage",
+            "voltage",
+            "V (RMS)",
+            "retardance",
+            "waves",
+        ],
+        Vec::new(),
+        None,
+        "no liquid-crystal cell in the stack".into(),
+    );
     let Some((idx, cell)) = sc.elements.iter().enumerate().find_map(|(i, e)| match e.kind {
         ElementKind::Cell(c) => Some((i, c)),
         _ => None,

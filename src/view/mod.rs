@@ -86,6 +86,40 @@ pub fn build(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<Sc
     })
 }
 
+/// A view's scene with, where another view was built alongside it, that view's name and scene.
+#[cfg(any(test, target_arch = "wasm32"))]
+pub type WithPartner = (Scene, Option<(&'static str, Scene)>);
+
+/// Builds the view called `name` as [`build`] does and, where another view shares its work,
+/// that view too, with its name: the first crystal's two plots against wavelength read one
+/// sweep of the plate ([`series::wavelength_sweeps`]), its two against temperature another
+/// ([`temperature_series::temperature_sweeps`]). The page draws both of a pair, so it builds
+/// them together.
+///
+/// # Errors
+/// As [`build`].
+#[cfg(any(test, target_arch = "wasm32"))]
+pub fn build_with_partner(name: &str, scenario: &Scenario, result: &TraceResult) -> Result<WithPartner, Error> {
+    let (pair, names) = match name {
+        "separation-wavelength" | "retardance-wavelength" => (
+            series::wavelength_sweeps(scenario, 0),
+            ["separation-wavelength", "retardance-wavelength"],
+        ),
+        "retardance-temperature" | "separation-temperature" => (
+            temperature_series::temperature_sweeps(scenario, 0),
+            ["retardance-temperature", "separation-temperature"],
+        ),
+        _ => return Ok((build(name, scenario, result)?, None)),
+    };
+    let [a, b] = &pair;
+    let (a, b) = (plot::plot(a), plot::plot(b));
+    Ok(if name == names[0] {
+        (a, Some((names[1], b)))
+    } else {
+        (b, Some((names[0], a)))
+    })
+}
+
 /// The data behind a plot view (`walkoff-tilt`, `separation-wavelength`,
 /// `retardance-wavelength`), for export; `None` for views that are not plots.
 ///
@@ -127,6 +161,17 @@ mod tests {
                 let scene = build(name, &sc, &r).unwrap();
                 assert!(scene.is_finite(), "{name}");
                 assert!(!scene.items.is_empty(), "{name}");
+            }
+        }
+        // A view built with its partner is the view built alone, and so is the partner.
+        let sc = Scenario::from_json_str(include_str!("../../examples/crossed-calcite-splitter.json")).unwrap();
+        let r = trace(&sc).unwrap();
+        for name in VIEW_NAMES {
+            let (scene, partner) = build_with_partner(name, &sc, &r).unwrap();
+            assert_eq!(scene, build(name, &sc, &r).unwrap(), "{name}");
+            if let Some((other, scene)) = partner {
+                assert_ne!(other, name);
+                assert_eq!(scene, build(other, &sc, &r).unwrap(), "{other}, partner of {name}");
             }
         }
         assert_eq!(

@@ -58,6 +58,25 @@ pub struct Series {
 }
 
 impl Series {
+    /// A series from its words `[title, x label, x unit, y label, y unit]`, its points, its
+    /// operating point and its note, with no further markers. One constructor for every plot,
+    /// not inlined: the page's WebAssembly then holds one copy.
+    #[inline(never)]
+    pub fn new(words: [&str; 5], points: Vec<[f64; 2]>, current: Option<[f64; 2]>, note: String) -> Series {
+        let [title, x_label, x_unit, y_label, y_unit] = words;
+        Series {
+            title: title.into(),
+            x_label: x_label.into(),
+            x_unit: x_unit.into(),
+            y_label: y_label.into(),
+            y_unit: y_unit.into(),
+            points,
+            current,
+            markers: Vec::new(),
+            note,
+        }
+    }
+
     /// Reads a series written as JSON (the shape it serializes to). Read by hand rather than
     /// derived, which keeps the page's WebAssembly module small.
     ///
@@ -233,17 +252,12 @@ fn plate_numbers(ix: Indices, tilt: f64, az: f64, qt: [f64; 2], l: f64, wl: Wave
 }
 
 pub(crate) fn no_crystal(title: &str, x_label: &str, x_unit: &str, y_label: &str, y_unit: &str) -> Series {
-    Series {
-        title: title.into(),
-        x_label: x_label.into(),
-        x_unit: x_unit.into(),
-        y_label: y_label.into(),
-        y_unit: y_unit.into(),
-        points: vec![],
-        current: None,
-        markers: Vec::new(),
-        note: "no crystal in the stack".into(),
-    }
+    Series::new(
+        [title, x_label, x_unit, y_label, y_unit],
+        vec![],
+        None,
+        "no crystal in the stack".into(),
+    )
 }
 
 /// Walk-off of crystal number `crystal` (counting crystals only, from 0) against its cut tilt,
@@ -271,29 +285,21 @@ pub fn walkoff_vs_tilt(sc: &Scenario, crystal: usize) -> Result<Series, Error> {
         .collect();
     let current = numbers_at(sc, &st, p.tilt_deg, sc.wavelength).map(|(w, _, _)| [p.tilt_deg, w.to_degrees()]);
     let note = format!("at {} nm, axis azimuth {}°", sc.wavelength.nm(), p.azimuth_deg);
-    Ok(Series {
-        title: title.into(),
-        x_label: xl.into(),
-        x_unit: xu.into(),
-        y_label: yl.into(),
-        y_unit: yu.into(),
-        points,
-        current,
-        markers: Vec::new(),
-        note,
-    })
+    Ok(Series::new([title, xl, xu, yl, yu], points, current, note))
 }
 
-fn wavelength_sweep(
-    sc: &Scenario,
-    crystal: usize,
-    title: &str,
-    y_label: &str,
-    y_unit: &str,
-    pick: fn(f64, f64) -> f64,
-) -> Series {
+/// The separation (mm) and retardance (waves) series of crystal number `crystal` against
+/// wavelength over its material's range ([`CUSTOM_RANGE_NM`] for custom indices),
+/// [`WAVELENGTH_POINTS`] samples, from one sweep: both read the same plate at each wavelength.
+#[inline(never)] // one copy in the page's WebAssembly, not one per caller
+pub fn wavelength_sweeps(sc: &Scenario, crystal: usize) -> [Series; 2] {
+    let words = [
+        ["Separation against wavelength", "separation", "mm"],
+        ["Retardance against wavelength", "retardance", "waves"],
+    ];
     let Some(st) = setting(sc, crystal) else {
-        return no_crystal(title, "wavelength", "nm", y_label, y_unit);
+        let none = |[title, y_label, y_unit]: [&str; 3]| no_crystal(title, "wavelength", "nm", y_label, y_unit);
+        return [none(words[0]), none(words[1])];
     };
     let p = st.plate;
     let (range, note) = match p.medium {
@@ -302,55 +308,59 @@ fn wavelength_sweep(
         Medium::Formula(d) => (d.range_nm, "custom dispersion over its formula's range".to_string()),
         Medium::Custom(_) | Medium::Principal(_) => (CUSTOM_RANGE_NM, "custom indices: no dispersion".to_string()),
     };
-    let value = |nm: f64| -> Option<f64> {
+    // (separation, retardance in waves) of the plate at `nm`.
+    let value = |nm: f64| -> Option<[f64; 2]> {
         let wl = Wavelength::from_nm(nm).ok()?;
-        numbers_at(sc, &st, p.tilt_deg, wl).map(|(_, s, r)| pick(s, r))
+        numbers_at(sc, &st, p.tilt_deg, wl).map(|(_, s, r)| [s, r / TAU])
     };
-    let n = WAVELENGTH_POINTS;
-    let points = (0..n)
-        .filter_map(|i| {
-            let nm = range.0 + (range.1 - range.0) * i as f64 / (n - 1) as f64;
-            value(nm).map(|v| [nm, v])
-        })
-        .collect();
-    let current = value(sc.wavelength.nm()).map(|v| [sc.wavelength.nm(), v]);
-    Series {
-        title: title.into(),
-        x_label: "wavelength".into(),
-        x_unit: "nm".into(),
-        y_label: y_label.into(),
-        y_unit: y_unit.into(),
-        points,
-        current,
-        markers: Vec::new(),
-        note,
+    let x = ["wavelength", "nm"];
+    sweep_pair(x, words, range, WAVELENGTH_POINTS, sc.wavelength.nm(), &value, note)
+}
+
+/// Two curves from one sweep of x over `lo..=hi` in `n` samples: `value(x)` gives both y values
+/// (a sample where it gives none is left out of both), `now` is the scenario's own x, and
+/// `x` and `words` name x (`[label, unit]`) and each curve (`[title, y label, y unit]`).
+pub(crate) fn sweep_pair(
+    x: [&str; 2],
+    words: [[&str; 3]; 2],
+    (lo, hi): (f64, f64),
+    n: usize,
+    now: f64,
+    value: &dyn Fn(f64) -> Option<[f64; 2]>,
+    note: String,
+) -> [Series; 2] {
+    let mut points = [Vec::with_capacity(n), Vec::with_capacity(n)];
+    for i in 0..n {
+        let at = lo + (hi - lo) * i as f64 / (n - 1) as f64;
+        if let Some(v) = value(at) {
+            points[0].push([at, v[0]]);
+            points[1].push([at, v[1]]);
+        }
     }
+    let current = value(now);
+    let [first, second] = points;
+    let curve = |k: usize, points| {
+        let [title, y_label, y_unit] = words[k];
+        Series::new(
+            [title, x[0], x[1], y_label, y_unit],
+            points,
+            current.map(|v| [now, v[k]]),
+            note.clone(),
+        )
+    };
+    [curve(0, first), curve(1, second)]
 }
 
-/// o–e separation of crystal number `crystal` against wavelength over its material's range
-/// ([`CUSTOM_RANGE_NM`] for custom indices), [`WAVELENGTH_POINTS`] samples.
+/// o–e separation of crystal number `crystal` against wavelength ([`wavelength_sweeps`]).
 pub fn separation_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
-    wavelength_sweep(
-        sc,
-        crystal,
-        "Separation against wavelength",
-        "separation",
-        "mm",
-        |s, _| s,
-    )
+    let [separation, _] = wavelength_sweeps(sc, crystal);
+    separation
 }
 
-/// Retardance (waves) of crystal number `crystal` against wavelength, as
-/// [`separation_vs_wavelength`].
+/// Retardance (waves) of crystal number `crystal` against wavelength ([`wavelength_sweeps`]).
 pub fn retardance_vs_wavelength(sc: &Scenario, crystal: usize) -> Series {
-    wavelength_sweep(
-        sc,
-        crystal,
-        "Retardance against wavelength",
-        "retardance",
-        "waves",
-        |_, r| r / TAU,
-    )
+    let [_, retardance] = wavelength_sweeps(sc, crystal);
+    retardance
 }
 
 #[cfg(test)]

@@ -48,17 +48,18 @@ pub fn transmission_vs_wavelength(sc: &Scenario, result: &TraceResult) -> Series
     } else {
         "nm"
     };
-    let mut s = Series {
-        title: "Transmission against wavelength".into(),
-        x_label: "wavelength".into(),
-        x_unit: unit.into(),
-        y_label: "transmission".into(),
-        y_unit: "of the input power".into(),
-        points: Vec::new(),
-        current: None,
-        markers: Vec::new(),
-        note: "no spectrum asked for".into(),
-    };
+    let mut s = Series::new(
+        [
+            "Transmission against wavelength",
+            "wavelength",
+            unit,
+            "transmission",
+            "of the input power",
+        ],
+        Vec::new(),
+        None,
+        "no spectrum asked for".into(),
+    );
     let (Some(spectrum), Some(range)) = (&result.spectrum, &sc.spectrum) else {
         return s;
     };

@@ -16,7 +16,8 @@
 
 use crate::contract::scenario::{ElementKind, Medium, Scenario};
 use crate::numfmt::NO_POWER;
-use crate::optics::chain::chain;
+use crate::optics::chain::ChainPlan;
+use crate::optics::geometry::direction;
 use crate::optics::spots::power_of;
 use crate::optics::trace::trace;
 use crate::optics::uniaxial::angle_between;
@@ -45,13 +46,26 @@ fn beams(sc: &Scenario) -> Vec<String> {
 /// The split of `beams` through a scenario, each followed by its wave-vector chain; `None` when
 /// fewer than two get through or the scenario cannot be resolved.
 fn split_of(sc: &Scenario, beams: &[String]) -> Option<f64> {
-    let (stack, _) = sc.resolve().ok()?;
-    let dirs: Vec<Vector3<f64>> = beams
+    split_at(sc, sc.wavelength, beams)
+}
+
+/// [`split_of`] with the scenario at another `wavelength` (resolved without a copy).
+fn split_at(sc: &Scenario, wavelength: Wavelength, beams: &[String]) -> Option<f64> {
+    let (stack, _) = sc.resolve_at(wavelength, sc.temperature_c).ok()?;
+    let plans: Vec<ChainPlan> = beams.iter().filter_map(|l| ChainPlan::new(&stack, l)).collect();
+    split_along(&plans, stack.input.direction, beams.len())
+}
+
+/// The split of the beams planned in `plans` (of `beams` asked for) when the stack is lit along
+/// `incident`: a plan is the chain of its beam at any incidence
+/// ([`ChainPlan::follow`]), so one resolved stack serves a whole incidence sweep.
+fn split_along(plans: &[ChainPlan], incident: Vector3<f64>, beams: usize) -> Option<f64> {
+    let dirs: Vec<Vector3<f64>> = plans
         .iter()
-        .filter_map(|l| chain(&stack, l))
+        .filter_map(|p| p.follow(incident))
         .map(|e| e.direction)
         .collect();
-    (dirs.len() >= 2 || beams.len() < 2).then(|| widest_deg(&dirs))
+    (dirs.len() >= 2 || beams < 2).then(|| widest_deg(&dirs))
 }
 
 /// The curve's note: which beams it follows.
@@ -139,17 +153,7 @@ fn series(
     current: Option<[f64; 2]>,
     note: String,
 ) -> Series {
-    Series {
-        title: title.into(),
-        x_label: x_label.into(),
-        x_unit: x_unit.into(),
-        y_label: "split angle".into(),
-        y_unit: "°".into(),
-        points,
-        current,
-        markers: Vec::new(),
-        note,
-    }
+    Series::new([title, x_label, x_unit, "split angle", "°"], points, current, note)
 }
 
 /// The split angle against wavelength over the range every crystal's formula covers.
@@ -165,11 +169,7 @@ pub fn split_vs_wavelength(sc: &Scenario) -> Series {
         );
     }
     let beams = beams(sc);
-    let at = |nm: f64| -> Option<f64> {
-        let mut s = sc.clone();
-        s.wavelength = Wavelength::from_nm(nm).ok()?;
-        split_of(&s, &beams)
-    };
+    let at = |nm: f64| -> Option<f64> { split_at(sc, Wavelength::from_nm(nm).ok()?, &beams) };
     let n = samples(sc);
     let points = (0..n)
         .filter_map(|i| {
@@ -201,10 +201,15 @@ pub fn split_vs_incidence(sc: &Scenario) -> Series {
         );
     }
     let beams = beams(sc);
+    // Only the incident direction changes along the sweep: one stack, one plan per beam.
+    let resolved = sc.resolve().ok();
+    let plans: Vec<ChainPlan> = resolved.as_ref().map_or_else(Vec::new, |(stack, _)| {
+        beams.iter().filter_map(|l| ChainPlan::new(stack, l)).collect()
+    });
+    let azimuth = sc.beam.azimuth_deg.to_radians();
     let at = |polar: f64| -> Option<f64> {
-        let mut s = sc.clone();
-        s.beam.polar_deg = polar;
-        split_of(&s, &beams)
+        resolved.as_ref()?;
+        split_along(&plans, direction(polar.to_radians(), azimuth), beams.len())
     };
     let n = samples(sc);
     let points = (0..n)
@@ -277,15 +282,40 @@ mod tests {
         assert!(split_vs_incidence(&plate).points.iter().all(|p| p[1] < 1e-12));
     }
 
+    /// The prism presets the curves are checked on.
+    const PRISMS: [&str; 4] = [
+        include_str!("../../examples/crossed-calcite-splitter.json"),
+        include_str!("../../examples/straight-through-prism.json"),
+        include_str!("../../examples/quartz-wedge-splitter.json"),
+        include_str!("../../examples/air-gap-calcite-polarizer.json"),
+    ];
+
+    /// One resolved stack and one plan per beam give, number for number, what resolving a copy
+    /// of the scenario at each incidence gives.
+    #[test]
+    fn the_incidence_curve_is_the_scenario_resolved_at_each_incidence() {
+        for doc in PRISMS {
+            let sc = Scenario::from_json_str(doc).unwrap();
+            let beams = beams(&sc);
+            let curve = split_vs_incidence(&sc);
+            let n = samples(&sc);
+            let expected: Vec<[f64; 2]> = (0..n)
+                .filter_map(|i| {
+                    let p = -INCIDENCE_SPAN_DEG + 2.0 * INCIDENCE_SPAN_DEG * i as f64 / (n - 1) as f64;
+                    let mut at = sc.clone();
+                    at.beam.polar_deg = p;
+                    split_of(&at, &beams).map(|v| [p, v])
+                })
+                .collect();
+            assert_eq!(curve.points, expected);
+        }
+    }
+
     /// Independent path through the code: on the splitter presets, every point of both curves
     /// equals the split of the whole trace (result document) of the changed scenario, to 1e-10°.
     #[test]
     fn the_curves_equal_whole_traces_point_by_point() {
-        for doc in [
-            include_str!("../../examples/crossed-calcite-splitter.json"),
-            include_str!("../../examples/straight-through-prism.json"),
-            include_str!("../../examples/quartz-wedge-splitter.json"),
-        ] {
+        for doc in PRISMS {
             let sc = Scenario::from_json_str(doc).unwrap();
             let by_wavelength = split_vs_wavelength(&sc);
             let by_incidence = split_vs_incidence(&sc);

@@ -10,7 +10,7 @@
 //! evanescent or a formula breaks down are left out; crystals given by fixed indices have no
 //! thermal data, which the note says.
 
-use super::series::{Series, no_crystal, plate_alone, setting, traced_plate};
+use super::series::{Series, no_crystal, plate_alone, setting, sweep_pair, traced_plate};
 use crate::contract::scenario::{Medium, Scenario};
 use std::f64::consts::TAU;
 
@@ -22,11 +22,17 @@ fn band(t: f64) -> (f64, f64) {
     ((t - 20.0).clamp(-200.0, -40.0), (t + 20.0).clamp(100.0, 500.0))
 }
 
-/// The sweep of `pick(separation, retardance)` with its `[title, y label, y unit]`.
-fn temperature_sweep(sc: &Scenario, crystal: usize, words: [&str; 3], pick: fn(f64, f64) -> f64) -> Series {
-    let [title, y_label, y_unit] = words;
+/// The retardance (waves) and separation (mm) series of crystal number `crystal` against
+/// temperature, from one sweep: both read the same traced plate at each temperature.
+#[inline(never)] // one copy in the page's WebAssembly, not one per caller
+pub fn temperature_sweeps(sc: &Scenario, crystal: usize) -> [Series; 2] {
+    let words = [
+        ["Retardance against temperature", "retardance", "waves"],
+        ["Separation against temperature", "separation", "mm"],
+    ];
     let Some(st) = setting(sc, crystal) else {
-        return no_crystal(title, "temperature", "°C", y_label, y_unit);
+        let none = |[title, y_label, y_unit]: [&str; 3]| no_crystal(title, "temperature", "°C", y_label, y_unit);
+        return [none(words[0]), none(words[1])];
     };
     let note = match st.plate.medium {
         Medium::Custom(_) | Medium::Principal(_) => {
@@ -41,52 +47,28 @@ fn temperature_sweep(sc: &Scenario, crystal: usize, words: [&str; 3], pick: fn(f
             sc.wavelength.nm()
         ),
     };
-    let value = |t: f64| -> Option<f64> {
+    // (retardance in waves, separation) of the plate alone at `t`.
+    let value = |t: f64| -> Option<[f64; 2]> {
         let at = Scenario {
             temperature_c: t,
             ..sc.clone()
         };
-        traced_plate(&plate_alone(&at, &st.plate)).map(|(_, s, r)| pick(s, r))
+        traced_plate(&plate_alone(&at, &st.plate)).map(|(_, s, r)| [r / TAU, s])
     };
-    let (lo, hi) = band(sc.temperature_c);
-    let n = TEMPERATURE_POINTS;
-    let points = (0..n)
-        .filter_map(|i| {
-            let t = lo + (hi - lo) * i as f64 / (n - 1) as f64;
-            value(t).map(|v| [t, v])
-        })
-        .collect();
-    Series {
-        title: title.into(),
-        x_label: "temperature".into(),
-        x_unit: "°C".into(),
-        y_label: y_label.into(),
-        y_unit: y_unit.into(),
-        points,
-        current: value(sc.temperature_c).map(|v| [sc.temperature_c, v]),
-        markers: Vec::new(),
-        note,
-    }
+    let (now, x) = (sc.temperature_c, ["temperature", "°C"]);
+    sweep_pair(x, words, band(now), TEMPERATURE_POINTS, now, &value, note)
 }
 
 /// Retardance (waves) of crystal number `crystal` against temperature.
 pub fn retardance_vs_temperature(sc: &Scenario, crystal: usize) -> Series {
-    temperature_sweep(
-        sc,
-        crystal,
-        ["Retardance against temperature", "retardance", "waves"],
-        |_, r| r / TAU,
-    )
+    let [retardance, _] = temperature_sweeps(sc, crystal);
+    retardance
 }
 
 /// Separation (mm) of crystal number `crystal`'s two rays against temperature.
 pub fn separation_vs_temperature(sc: &Scenario, crystal: usize) -> Series {
-    temperature_sweep(
-        sc,
-        crystal,
-        ["Separation against temperature", "separation", "mm"],
-        |s, _| s,
-    )
+    let [_, separation] = temperature_sweeps(sc, crystal);
+    separation
 }
 
 #[cfg(test)]

@@ -33,10 +33,21 @@ pub fn draw(scene: &Scene, canvas: &HtmlCanvasElement, palette: &Palette) -> Res
         arrow(&ctx, mid, d.to, c, 7.0, 1.0);
     }
     ctx.set_text_align("start");
+    // Labels come in runs of one font and colour: each is set when it changes only, since
+    // setting a canvas font parses it anew even when it is the same.
+    let mut font = None;
+    let mut colour = "";
     for l in &lay.labels {
-        let weight = if l.bold { "600 " } else { "" };
-        ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
-        ctx.set_fill_style_str(palette.stroke(l.role));
+        if font != Some((l.bold, l.size_px)) {
+            let weight = if l.bold { "600 " } else { "" };
+            ctx.set_font(&format!("{weight}{}px system-ui, sans-serif", l.size_px));
+            font = Some((l.bold, l.size_px));
+        }
+        let c = palette.stroke(l.role);
+        if c != colour {
+            ctx.set_fill_style_str(c);
+            colour = c;
+        }
         ctx.fill_text(&l.text, l.x, l.baseline)?;
     }
     Ok(())

@@ -24,11 +24,13 @@ use crate::view::palette::Palette;
 use crate::view::scene::Scene;
 use crate::view::svg;
 mod canvas;
+mod scenes;
 #[cfg(feature = "design-worker")]
 use crate::design::{self, displacer as design_displacer, statistics};
 use crate::optics::material;
 use crate::view::{self as views, plot as view_plot};
 use serde::Serialize;
+use std::rc::Rc;
 use wasm_bindgen::prelude::*;
 use web_sys::HtmlCanvasElement;
 
@@ -400,6 +402,7 @@ pub struct Session {
     scenario: Scenario,
     result: TraceResult,
     convergent: [Option<Result<ConoscopeMap, Error>>; 2],
+    scenes: scenes::Scenes,
 }
 
 /// The result as an edit hands it to the page: everything but each ray's `points_mm` polyline,
@@ -422,6 +425,7 @@ impl Session {
         let scenario = parsed.map_err(js_error)?;
         let mut result = trace(&scenario).map_err(js_error)?;
         let out = to_js_without_polylines(&mut result)?;
+        self.scenes.follow(&scenario);
         self.scenario = scenario;
         self.result = result;
         self.convergent = [None, None];
@@ -429,13 +433,22 @@ impl Session {
     }
 
     /// The scene of a view: a convergent-light view from the map given to it (or a note that
-    /// it is being computed), any other as [`views::build`] makes it. Not inlined: its three
-    /// callers share it (the module's size).
+    /// it is being computed), any other as [`views::build`] makes it, once per scenario
+    /// ([`scenes::Scenes`]). Not inlined: its three callers share it (the module's size).
     #[inline(never)]
-    fn view_scene(&self, view: &str) -> Result<Scene, Error> {
+    fn view_scene(&self, view: &str) -> Result<Rc<Scene>, Error> {
         match convergent_view(view) {
-            Some((quantity, slot)) => Ok(map_view(&self.scenario, quantity, self.convergent[slot].as_ref())),
-            None => views::build(view, &self.scenario, &self.result),
+            Some((quantity, slot)) => Ok(Rc::new(map_view(
+                &self.scenario,
+                quantity,
+                self.convergent[slot].as_ref(),
+            ))),
+            None => match self.scenes.find(view) {
+                Some(scene) => Ok(scene),
+                None => Ok(self
+                    .scenes
+                    .keep(view, views::build_with_partner(view, &self.scenario, &self.result)?)),
+            },
         }
     }
 
@@ -456,6 +469,7 @@ impl Session {
         let scenario = Scenario::from_json_str(DEMO).map_err(js_error)?;
         let result = trace(&scenario).map_err(js_error)?;
         Ok(Session {
+            scenes: scenes::Scenes::default(),
             scenario,
             result,
             convergent: [None, None],
@@ -469,20 +483,6 @@ impl Session {
     #[wasm_bindgen(js_name = updateJson)]
     pub fn update_json(&mut self, text: &str) -> Result<JsValue, JsValue> {
         self.accept(Scenario::from_json_str(text))
-    }
-
-    /// Traces a scenario given as a plain JavaScript object and keeps it. The object goes through
-    /// `JSON.stringify` and the strict reader of [`Session::update_json`], so that both forms
-    /// read one text the same way (and the module carries one reader).
-    ///
-    /// # Errors
-    /// As [`Session::update_json`].
-    pub fn update(&mut self, scenario: JsValue) -> Result<JsValue, JsValue> {
-        let text = js_sys::JSON::stringify(&scenario)
-            .ok()
-            .and_then(|t| t.as_string())
-            .ok_or_else(|| js_error(Error::new("", "not a scenario object: JSON.stringify refused it")))?;
-        self.accept(Scenario::from_json_str(&text))
     }
 
     /// The current result object.
@@ -504,7 +504,7 @@ impl Session {
     /// # Errors
     /// `{field: "view", message}` for an unknown view.
     pub fn scene(&self, view: &str) -> Result<JsValue, JsValue> {
-        to_js(&self.view_scene(view).map_err(js_error)?)
+        to_js(&*self.view_scene(view).map_err(js_error)?)
     }
 
     /// Draws a view on a canvas, in the dark or light palette.
