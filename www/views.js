@@ -207,15 +207,22 @@ export function describeViews(state) {
     texts['separation-wavelength'] = `Separation against wavelength for ${which}: ${c.separation_mm === null ? 'no separation (a mode is evanescent)' : lengthText(c.separation_mm)} at ${num(r.wavelength_nm, 1)} nm.`;
     texts['retardance-wavelength'] = `Retardance against wavelength for ${which}: ${c.retardance_waves === null ? 'undefined (a mode is evanescent)' : `${num(c.retardance_waves, 3)} waves`} at ${num(r.wavelength_nm, 1)} nm.`;
   }
-  // The whole set-up's split: the largest angle between output rays that carry power.
-  const dirs = r.rays.filter((ray) => ray.power >= 1e-12).map((ray) => ray.direction);
-  let split = 0;
+  // The whole set-up's split: the largest angle between output rays that carry power. Rays that
+  // share a direction exactly count once (a stack of plane-parallel plates sends thousands of rays
+  // along a handful of directions), and the largest angle is the arccosine of the smallest dot
+  // product, since the arccosine falls as its argument rises: one arccosine, not one a pair.
+  const distinct = new Map();
+  for (const ray of r.rays) {
+    if (ray.power >= 1e-12) distinct.set(ray.direction.join(','), ray.direction);
+  }
+  const dirs = [...distinct.values()];
+  let leastDot = 1;
   for (let a = 0; a < dirs.length; a += 1) {
     for (let b = a + 1; b < dirs.length; b += 1) {
-      const dot = dirs[a][0] * dirs[b][0] + dirs[a][1] * dirs[b][1] + dirs[a][2] * dirs[b][2];
-      split = Math.max(split, Math.acos(Math.min(1, Math.max(-1, dot))) * 180 / Math.PI);
+      leastDot = Math.min(leastDot, dirs[a][0] * dirs[b][0] + dirs[a][1] * dirs[b][1] + dirs[a][2] * dirs[b][2]);
     }
   }
+  const split = Math.acos(Math.max(-1, leastDot)) * 180 / Math.PI;
   const splitWords = `${num(split, 4)}° between the output beams at ${num(r.wavelength_nm, 1)} nm`;
   texts['split-wavelength'] = `Split angle of the whole set-up against wavelength: ${splitWords}.`;
   texts['split-incidence'] = `Split angle of the whole set-up against the angle of incidence: ${splitWords}.`;
