@@ -112,23 +112,36 @@ pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
     set_up_matrix_with(stack, qt, &outside_modes(stack.outside_index, qt))
 }
 
+/// The outside medium's forward and backward modes at one tangential wave vector ([`outside_modes`]),
+/// and where the planned trace is built, the same waves in real numbers for the plates it solves.
+#[derive(Debug, Clone, Copy)]
+pub struct Outside {
+    modes: ([Mode; 2], [Mode; 2]),
+    #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+    waves: Option<crate::optics::planned_trace::OutsideWaves>,
+}
+
 /// The outside medium's forward and backward modes at `qt` (index `n_out`): they depend on
 /// neither the wavelength nor the stack, so a direction's spectrum solves them once.
-pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> ([Mode; 2], [Mode; 2]) {
-    (
-        isotropic_modes(n_out, qt, Travel::Forward),
-        isotropic_modes(n_out, qt, Travel::Backward),
-    )
+pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> Outside {
+    Outside {
+        modes: (
+            isotropic_modes(n_out, qt, Travel::Forward),
+            isotropic_modes(n_out, qt, Travel::Backward),
+        ),
+        #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+        waves: crate::optics::planned_trace::outside_waves(n_out, qt),
+    }
 }
 
 /// As [`set_up_matrix`], with the outside medium's modes at `qt` given ([`outside_modes`] of the
 /// stack's outside index).
-pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &([Mode; 2], [Mode; 2])) -> JonesMatrix {
+pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &Outside) -> JonesMatrix {
     let mut m = JonesMatrix::identity();
     for layer in &stack.layers {
         match layer.element {
             Element::Slab(slab) => {
-                let plate = real_plate(stack, &slab, qt).or_else(|| complex_plate(stack, &slab, qt, outside));
+                let plate = real_plate(stack, &slab, qt, outside).or_else(|| complex_plate(stack, &slab, qt, outside));
                 let Some(plate) = plate else {
                     return JonesMatrix::zeros();
                 };
@@ -143,11 +156,11 @@ pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &([Mode; 2], [Mo
 
 /// A slab's matrix T_exit · diag(e^{i k0 q_z L}) · T_entry in complex numbers, at any direction
 /// (evanescent modes carry nothing); `None` when a face's boundary conditions are singular.
-fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &([Mode; 2], [Mode; 2])) -> Option<JonesMatrix> {
+fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) -> Option<JonesMatrix> {
     let k0 = stack.wavelength.k0_per_mm();
     let fwd = slab.medium.modes(qt, Travel::Forward);
     let back = slab.medium.modes(qt, Travel::Backward);
-    let (t_in, t_out) = slab_couplings((&outside.0, &outside.1), (&fwd, &back), stack.losses)?;
+    let (t_in, t_out) = slab_couplings((&outside.modes.0, &outside.modes.1), (&fwd, &back), stack.losses)?;
     let mut phase = CMatrix2::zeros();
     for (k, mode) in fwd.iter().enumerate() {
         if mode.propagating {
@@ -163,7 +176,7 @@ fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &([Mode; 2],
 /// none runs along the optic axis; `None` elsewhere, where [`set_up_matrix_with`] solves it in
 /// complex numbers. The two agree to rounding (tested).
 #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
-fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2]) -> Option<JonesMatrix> {
+fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) -> Option<JonesMatrix> {
     use crate::optics::interface::Losses;
     use crate::optics::modes::CrystalSurfaces;
     use crate::optics::planned_trace::parallel_plate;
@@ -173,7 +186,7 @@ fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2]) -> Option<JonesMatrix> {
     };
     let surfaces = CrystalSurfaces::of(&crystal);
     let ideal = stack.losses == Losses::Ideal;
-    let (t_in, t_out, qz) = parallel_plate(&crystal, &surfaces, stack.outside_index, qt, ideal)?;
+    let (t_in, t_out, qz) = parallel_plate(&crystal, &surfaces, outside.waves.as_ref()?, qt, ideal)?;
     let k0 = stack.wavelength.k0_per_mm();
     let mut m = JonesMatrix::zeros();
     for (k, qz) in qz.iter().enumerate() {
@@ -190,7 +203,7 @@ fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2]) -> Option<JonesMatrix> {
 /// Where the planned trace is not built (the page's own WebAssembly), every slab is solved in
 /// complex numbers.
 #[cfg(all(target_arch = "wasm32", not(feature = "design-worker")))]
-fn real_plate(_: &Stack, _: &Slab, _: [f64; 2]) -> Option<JonesMatrix> {
+fn real_plate(_: &Stack, _: &Slab, _: [f64; 2], _: &Outside) -> Option<JonesMatrix> {
     None
 }
 
@@ -326,7 +339,7 @@ mod tests {
             let qt = tangential_of(&stack, rng.uniform() * 60f64.to_radians(), rng.uniform() * TAU);
             let outside = outside_modes(stack.outside_index, qt);
             let complex = complex_plate(&stack, &slab, qt, &outside).unwrap();
-            if let Some(real) = real_plate(&stack, &slab, qt) {
+            if let Some(real) = real_plate(&stack, &slab, qt, &outside) {
                 assert!((real - complex).norm() < 1e-13, "{real} {complex}");
                 compared += 1;
             }
@@ -342,7 +355,7 @@ mod tests {
             faces: None,
         };
         let stack = bare_stack(600.0, 1.0, Losses::Ideal);
-        assert!(real_plate(&stack, &slab, [0.0, 0.0]).is_none());
+        assert!(real_plate(&stack, &slab, [0.0, 0.0], &outside_modes(1.0, [0.0, 0.0])).is_none());
     }
 
     #[test]

@@ -685,24 +685,35 @@ fn safe_inverse(m: &Matrix2<f64>) -> Option<Matrix2<f64>> {
     (det.abs() > 1e-9 * scale).then(|| Matrix2::new(m[(1, 1)], -m[(0, 1)], -m[(1, 0)], m[(0, 0)]) / det)
 }
 
+/// The outside medium's waves at one tangential wave vector, forward then backward, as
+/// [`parallel_plate`] takes them: found once for every plate and wavelength of a direction.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct OutsideWaves([[Wave; 2]; 2]);
+
+/// The waves of the outside medium of index `outside` at tangential wave vector `qt`, as
+/// `isotropic_modes` gives them; `None` when they are not safely propagating.
+pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> {
+    modes(&Local::Isotropic(outside), qt, true, false).map(OutsideWaves)
+}
+
 /// A plane-parallel plate of `crystal` (lab frame, both faces across z) between half-spaces of
-/// the outside medium of index `outside`, at tangential wave vector `qt`, in real numbers: its
-/// entry coupling (outside beam basis to the crystal's modes, o then e), its exit coupling (the
-/// modes to the outside beam basis) and its forward modes' q_z, as
+/// the outside medium whose waves at tangential wave vector `qt` are `outside`, in real numbers:
+/// its entry coupling (outside beam basis to the crystal's modes, o then e), its exit coupling
+/// (the modes to the outside beam basis) and its forward modes' q_z, as
 /// `parallel::slab_couplings` and `crystal_modes` give them for propagating modes, to rounding
 /// (`optics::conoscope` tests the agreement). `None` where this module declines an incidence: a
 /// wave not safely propagating, a wave along the optic axis, a singular face.
 pub(crate) fn parallel_plate(
     crystal: &Uniaxial,
     surfaces: &CrystalSurfaces,
-    outside: f64,
+    outside: &OutsideWaves,
     qt: [f64; 2],
     ideal: bool,
 ) -> Option<(Matrix2<f64>, Matrix2<f64>, [f64; 2])> {
-    let [out_fwd, out_back] = modes(&Local::Isotropic(outside), qt, true, false)?;
+    let [out_fwd, out_back] = &outside.0;
     let [fwd, back] = modes(&Local::Uniaxial(*crystal, *surfaces), qt, true, false)?;
-    let t_in = block_transmission(&out_fwd, &out_back, &fwd, ideal)?;
-    let t_out = block_transmission(&fwd, &back, &out_fwd, ideal)?;
+    let t_in = block_transmission(out_fwd, out_back, &fwd, ideal)?;
+    let t_out = block_transmission(&fwd, &back, out_fwd, ideal)?;
     Some((t_in, t_out, [fwd[0].q.z, fwd[1].q.z]))
 }
 
