@@ -28,7 +28,7 @@ import { setAttr, setText } from './dom.js';
 import { startCoreWorker } from './core-worker.js';
 
 const PIXELS = 256;
-const WHITE_PIXELS = 128;
+const WHITE_PIXELS = 256;
 const VIEWS = ['conoscope', 'acceptance'];
 
 const whiteOn = () => document.getElementById('conoscope-white')?.checked === true;

@@ -38,8 +38,9 @@ pub const MAX_PIXELS: usize = 512;
 /// direction solves the cell's 100 slices again (each by its closed-form exponential,
 /// `optics::lc::slice`: about 25 µs a direction natively for a 90° twisted cell, against about
 /// 2 µs for a crystal plate), so a cell's map is computed at most 128 × 128 (measured on a busy
-/// machine: 0.35 s natively, 0.5–0.7 s in the page's worker's build; its note states the
-/// directions). A thin cell's figure varies slowly across the cone, so little is lost.
+/// machine: 0.35 s natively, 0.5–0.7 s in the page's worker's build, and 1.29 s natively at
+/// 256 × 256; its note states the directions). A thin cell's figure varies slowly across the
+/// cone, so little is lost.
 pub const MAX_PIXELS_WITH_CELL: usize = 128;
 
 /// The largest number of pixels per side of a white-light figure: each direction is solved at

@@ -30,7 +30,12 @@
 //! at every direction ([`crate::optics::plate`]); its error is Γ(θ, φ) − Γ(0), in waves.
 //!
 //! Speed. Nothing is allocated per direction: each direction costs each slab's two mode solves
-//! and two 4×4 face solves. A stack that holds a general crystal, a liquid-crystal cell (its
+//! and two face solves. Where every wave propagates and none runs along the optic axis (all but
+//! the directions next to an axis or past a critical angle), a slab is solved in real numbers
+//! (`planned_trace::parallel_plate`: the modes' fields are then real, so are the faces'
+//! couplings; each face by eliminating the reflected waves), the same matrix to 1e-13 (tested
+//! against the complex solution) in a third of the instructions; elsewhere in complex numbers
+//! with 4×4 face solves. A stack that holds a general crystal, a liquid-crystal cell (its
 //! matrix is solved for the beam's own direction only) or faces at an angle is not a
 //! plane-parallel stack of this kind: [`conoscope_stack_ok`] says so.
 //!
@@ -43,7 +48,7 @@ use crate::optics::lc::stratified::cell_jones_at;
 use crate::optics::modes::{Mode, Travel, isotropic_modes};
 use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
-use crate::optics::stack::{Element, Stack};
+use crate::optics::stack::{Element, Slab, Stack};
 use num_complex::Complex64;
 use std::f64::consts::TAU;
 
@@ -107,41 +112,99 @@ pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
     set_up_matrix_with(stack, qt, &outside_modes(stack.outside_index, qt))
 }
 
+/// The outside medium's forward and backward modes at one tangential wave vector ([`outside_modes`]),
+/// and where the planned trace is built, the same waves in real numbers for the plates it solves.
+#[derive(Debug, Clone, Copy)]
+pub struct Outside {
+    modes: ([Mode; 2], [Mode; 2]),
+    #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+    waves: Option<crate::optics::planned_trace::OutsideWaves>,
+}
+
 /// The outside medium's forward and backward modes at `qt` (index `n_out`): they depend on
 /// neither the wavelength nor the stack, so a direction's spectrum solves them once.
-pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> ([Mode; 2], [Mode; 2]) {
-    (
-        isotropic_modes(n_out, qt, Travel::Forward),
-        isotropic_modes(n_out, qt, Travel::Backward),
-    )
+pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> Outside {
+    Outside {
+        modes: (
+            isotropic_modes(n_out, qt, Travel::Forward),
+            isotropic_modes(n_out, qt, Travel::Backward),
+        ),
+        #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+        waves: crate::optics::planned_trace::outside_waves(n_out, qt),
+    }
 }
 
 /// As [`set_up_matrix`], with the outside medium's modes at `qt` given ([`outside_modes`] of the
 /// stack's outside index).
-pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &([Mode; 2], [Mode; 2])) -> JonesMatrix {
-    let k0 = stack.wavelength.k0_per_mm();
+pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &Outside) -> JonesMatrix {
     let mut m = JonesMatrix::identity();
     for layer in &stack.layers {
         match layer.element {
             Element::Slab(slab) => {
-                let fwd = slab.medium.modes(qt, Travel::Forward);
-                let back = slab.medium.modes(qt, Travel::Backward);
-                let Some((t_in, t_out)) = slab_couplings((&outside.0, &outside.1), (&fwd, &back), stack.losses) else {
+                let plate = real_plate(stack, &slab, qt, outside).or_else(|| complex_plate(stack, &slab, qt, outside));
+                let Some(plate) = plate else {
                     return JonesMatrix::zeros();
                 };
-                let mut phase = CMatrix2::zeros();
-                for (k, mode) in fwd.iter().enumerate() {
-                    if mode.propagating {
-                        phase[(k, k)] = Complex64::from_polar(1.0, k0 * mode.qz().re * slab.thickness_mm);
-                    }
-                }
-                m = t_out * phase * t_in * m;
+                m = plate * m;
             }
             Element::Ideal(jm) => m = jm * m,
             Element::Cell(c) => m = cell_jones_at(stack, &c, qt) * m,
         }
     }
     m
+}
+
+/// A slab's matrix T_exit · diag(e^{i k0 q_z L}) · T_entry in complex numbers, at any direction
+/// (evanescent modes carry nothing); `None` when a face's boundary conditions are singular.
+fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) -> Option<JonesMatrix> {
+    let k0 = stack.wavelength.k0_per_mm();
+    let fwd = slab.medium.modes(qt, Travel::Forward);
+    let back = slab.medium.modes(qt, Travel::Backward);
+    let (t_in, t_out) = slab_couplings((&outside.modes.0, &outside.modes.1), (&fwd, &back), stack.losses)?;
+    let mut phase = CMatrix2::zeros();
+    for (k, mode) in fwd.iter().enumerate() {
+        if mode.propagating {
+            phase[(k, k)] = Complex64::from_polar(1.0, k0 * mode.qz().re * slab.thickness_mm);
+        }
+    }
+    Some(t_out * phase * t_in)
+}
+
+/// A slab's matrix T_exit · diag(e^{i k0 q_z L}) · T_entry from the planned trace's real
+/// numbers (`planned_trace::parallel_plate`: the same modes, boundary problems and polar factors,
+/// without complex arithmetic on fields that are real), where every wave propagates safely and
+/// none runs along the optic axis; `None` elsewhere, where [`set_up_matrix_with`] solves it in
+/// complex numbers. The two agree to rounding (tested).
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) -> Option<JonesMatrix> {
+    use crate::optics::interface::Losses;
+    use crate::optics::modes::CrystalSurfaces;
+    use crate::optics::planned_trace::parallel_plate;
+    use crate::optics::stack::Medium;
+    let Medium::Uniaxial(crystal) = slab.medium else {
+        return None;
+    };
+    let surfaces = CrystalSurfaces::of(&crystal);
+    let ideal = stack.losses == Losses::Ideal;
+    let (t_in, t_out, qz) = parallel_plate(&crystal, &surfaces, outside.waves.as_ref()?, qt, ideal)?;
+    let k0 = stack.wavelength.k0_per_mm();
+    let mut m = JonesMatrix::zeros();
+    for (k, qz) in qz.iter().enumerate() {
+        let phase = Complex64::from_polar(1.0, k0 * qz * slab.thickness_mm);
+        for i in 0..2 {
+            for j in 0..2 {
+                m[(i, j)] += phase * (t_out[(i, k)] * t_in[(k, j)]);
+            }
+        }
+    }
+    Some(m)
+}
+
+/// Where the planned trace is not built (the page's own WebAssembly), every slab is solved in
+/// complex numbers.
+#[cfg(all(target_arch = "wasm32", not(feature = "design-worker")))]
+fn real_plate(_: &Stack, _: &Slab, _: [f64; 2], _: &Outside) -> Option<JonesMatrix> {
+    None
 }
 
 /// The power the whole set-up transmits at direction (`polar`, `azimuth`) for the input beam's
@@ -227,6 +290,72 @@ mod tests {
             let product = set_up_matrix(&stack, stack.tangential());
             assert!((sum - product).norm() < 1e-13, "{sum} {product}");
         }
+    }
+
+    /// A stack of no elements at `nm`, in an outside medium of index `outside`: what a slab's
+    /// matrix reads of a stack.
+    fn bare_stack(nm: f64, outside: f64, losses: Losses) -> Stack {
+        Stack {
+            wavelength: Wavelength::from_nm(nm).unwrap(),
+            outside_index: outside,
+            losses,
+            input: InputBeam {
+                direction: Vector3::z(),
+                diameter_mm: 1.0,
+                jones: None,
+                stokes: [1.0, 0.0, 0.0, 0.0],
+            },
+            layers: Vec::new(),
+            screen_mm: 0.0,
+            cells: Vec::new(),
+        }
+    }
+
+    /// Independent method: the real-number plate of the planned trace against the complex
+    /// modes and 4×4 face solves of the trace, over random crystals, directions up to 60° in
+    /// air and both face treatments; and the complex one taking over where a wave runs along
+    /// the optic axis.
+    #[test]
+    fn the_real_plate_agrees_with_the_complex_solution() {
+        let mut rng = crate::random::Rng::new(14);
+        let mut compared = 0;
+        for case in 0..4000 {
+            let no = 1.4 + rng.uniform() * 1.2;
+            let ne = no + (rng.uniform() - 0.5) * 0.6;
+            let crystal = Uniaxial::new(
+                Indices::new(no, ne).unwrap(),
+                OpticAxis::from_angles(rng.uniform() * std::f64::consts::PI, rng.uniform() * TAU),
+            );
+            let slab = Slab {
+                medium: Medium::Uniaxial(crystal),
+                thickness_mm: 0.01 + rng.uniform() * 5.0,
+                faces: None,
+            };
+            let stack = bare_stack(
+                400.0 + rng.uniform() * 400.0,
+                if case % 3 == 0 { 1.33 } else { 1.0 },
+                if case % 2 == 0 { Losses::Ideal } else { Losses::Uncoated },
+            );
+            let qt = tangential_of(&stack, rng.uniform() * 60f64.to_radians(), rng.uniform() * TAU);
+            let outside = outside_modes(stack.outside_index, qt);
+            let complex = complex_plate(&stack, &slab, qt, &outside).unwrap();
+            if let Some(real) = real_plate(&stack, &slab, qt, &outside) {
+                assert!((real - complex).norm() < 1e-13, "{real} {complex}");
+                compared += 1;
+            }
+        }
+        assert!(compared > 3900, "{compared} of 4000 solved in real numbers");
+        // Along the optic axis of a c-cut plate the complex solution alone answers.
+        let slab = Slab {
+            medium: Medium::Uniaxial(Uniaxial::new(
+                Indices::new(1.54, 1.55).unwrap(),
+                OpticAxis::from_angles(0.0, 0.0),
+            )),
+            thickness_mm: 1.0,
+            faces: None,
+        };
+        let stack = bare_stack(600.0, 1.0, Losses::Ideal);
+        assert!(real_plate(&stack, &slab, [0.0, 0.0], &outside_modes(1.0, [0.0, 0.0])).is_none());
     }
 
     #[test]

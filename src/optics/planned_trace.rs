@@ -31,6 +31,11 @@
 //! [`PlannedTrace::trace`] the ones a block cannot finish (natively; the design worker's
 //! WebAssembly has the planned trace without the lanes, the page's module neither).
 //!
+//! One plate alone: [`parallel_plate`] gives a plane-parallel plate's two face couplings in
+//! real numbers from the same modes (the faces solved by eliminating the reflected waves, a 2×2
+//! inverse, rather than by the 4×4 elimination), for convergent light
+//! ([`crate::optics::conoscope`]), which asks for them at every direction and wavelength.
+//!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
 //! optically active) crystals, a plane-parallel stack (traced by [`crate::optics::parallel`]), or
 //! more than [`MAX_SLABS`] crystals gets no plan. At an incidence where a mode at some face is
@@ -641,6 +646,75 @@ fn travel(f: &mut Flight, plane: &Plane) -> bool {
         }
         None => false,
     }
+}
+
+/// The transmission of a face in real numbers (entry (i, j) the amplitude of transmitted wave i
+/// for unit incident wave j; its unitary polar factor when `ideal`, as `parallel::slab_couplings`
+/// takes it), by eliminating the reflected waves instead of the 4×4 elimination of [`cross`]:
+/// with the tangential fields of each pair of waves as 2×2 matrices (columns the waves, E = (E_x,
+/// E_y), H = (Z0 H_x, Z0 H_y)), continuity E_I + E_R r = E_T t and H_I + H_R r = H_T t give, with
+/// the reflected waves' admittance Y = H_R E_R⁻¹,
+///
+/// ```text
+/// t = (H_T − Y E_T)⁻¹ (H_I − Y E_I),
+/// ```
+///
+/// the same t to rounding (`optics::conoscope` tests it against the complex 4×4 solve), at a
+/// fraction of the work. `None` when E_R or H_T − Y E_T is singular or nearly so (a determinant
+/// under 10⁻⁹ of its columns' norms' product), where the pivoted elimination is the safer one.
+#[inline(always)]
+fn block_transmission(
+    incident: &[Wave; 2],
+    reflected: &[Wave; 2],
+    transmitted: &[Wave; 2],
+    ideal: bool,
+) -> Option<Matrix2<f64>> {
+    let e = |w: &[Wave; 2]| Matrix2::new(w[0].e.x, w[1].e.x, w[0].e.y, w[1].e.y);
+    let h = |w: &[Wave; 2]| Matrix2::new(w[0].h.x, w[1].h.x, w[0].h.y, w[1].h.y);
+    let y = h(reflected) * safe_inverse(&e(reflected))?;
+    let t = safe_inverse(&(h(transmitted) - y * e(transmitted)))? * (h(incident) - y * e(incident));
+    Some(if ideal { lossless_part(&t) } else { t })
+}
+
+/// The inverse of a 2×2 matrix by its adjugate, `None` when its determinant is under 10⁻⁹ of the
+/// product of its columns' norms (nearly parallel columns).
+#[inline(always)]
+fn safe_inverse(m: &Matrix2<f64>) -> Option<Matrix2<f64>> {
+    let det = m[(0, 0)] * m[(1, 1)] - m[(0, 1)] * m[(1, 0)];
+    let scale = m.column(0).norm() * m.column(1).norm();
+    (det.abs() > 1e-9 * scale).then(|| Matrix2::new(m[(1, 1)], -m[(0, 1)], -m[(1, 0)], m[(0, 0)]) / det)
+}
+
+/// The outside medium's waves at one tangential wave vector, forward then backward, as
+/// [`parallel_plate`] takes them: found once for every plate and wavelength of a direction.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct OutsideWaves([[Wave; 2]; 2]);
+
+/// The waves of the outside medium of index `outside` at tangential wave vector `qt`, as
+/// `isotropic_modes` gives them; `None` when they are not safely propagating.
+pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> {
+    modes(&Local::Isotropic(outside), qt, true, false).map(OutsideWaves)
+}
+
+/// A plane-parallel plate of `crystal` (lab frame, both faces across z) between half-spaces of
+/// the outside medium whose waves at tangential wave vector `qt` are `outside`, in real numbers:
+/// its entry coupling (outside beam basis to the crystal's modes, o then e), its exit coupling
+/// (the modes to the outside beam basis) and its forward modes' q_z, as
+/// `parallel::slab_couplings` and `crystal_modes` give them for propagating modes, to rounding
+/// (`optics::conoscope` tests the agreement). `None` where this module declines an incidence: a
+/// wave not safely propagating, a wave along the optic axis, a singular face.
+pub(crate) fn parallel_plate(
+    crystal: &Uniaxial,
+    surfaces: &CrystalSurfaces,
+    outside: &OutsideWaves,
+    qt: [f64; 2],
+    ideal: bool,
+) -> Option<(Matrix2<f64>, Matrix2<f64>, [f64; 2])> {
+    let [out_fwd, out_back] = &outside.0;
+    let [fwd, back] = modes(&Local::Uniaxial(*crystal, *surfaces), qt, true, false)?;
+    let t_in = block_transmission(out_fwd, out_back, &fwd, ideal)?;
+    let t_out = block_transmission(&fwd, &back, out_fwd, ideal)?;
+    Some((t_in, t_out, [fwd[0].q.z, fwd[1].q.z]))
 }
 
 /// Crosses one face for one ray (the general tracer's `Tracer::cross` for propagating modes):

@@ -7,7 +7,7 @@
 // cannot be solved for names its element, and a liquid-crystal cell's figure comes at the core's
 // 128 × 128; an embedded <spar-figure> computes its own in a worker; the white-light switch
 // draws a c-cut plate's interference colours (black centre between crossed polarizers, coloured
-// isochromes), computed in the worker at 128 × 128, with the sampling noted.
+// isochromes), computed in the worker at 256 × 256, with the sampling noted.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -196,14 +196,14 @@ test('white light: the switch draws the interference colours computed in the wor
         ms: window.doublespar.convergent().ms.white,
       };
     });
-    console.log(`white-light figure, 128 × 128, in the worker (with the two 256 × 256 maps): ${Math.round(shown.ms)} ms`);
-    assert.deepEqual(shown.side, [128, 128]);
+    console.log(`white-light figure, 256 × 256, in the worker (with the two 256 × 256 maps): ${Math.round(shown.ms)} ms`);
+    assert.deepEqual(shown.side, [256, 256]);
     assert.equal(shown.hidden, false);
     assert.deepEqual(shown.corner, [0, 0, 0, 0], 'transparent outside the cone');
     // Along the axis there is no retardance: black between crossed polarizers (common practice).
     assert.ok(shown.centre[3] === 255 && shown.centre.slice(0, 3).every((v) => v <= 3), `centre ${shown.centre}`);
     assert.ok(shown.chroma > 100, `the isochromes are coloured: ${shown.chroma}`);
-    assert.match(shown.note, /D65 white light \(CIE 1931 2° observer\): 81 wavelengths, 380–780 nm in air at 5 nm; 128 × 128 directions/);
+    assert.match(shown.note, /D65 white light \(CIE 1931 2° observer\): 81 wavelengths, 380–780 nm in air at 5 nm; 256 × 256 directions/);
   });
 });
 
