@@ -2,19 +2,28 @@
 //! number of the scalar planned trace ([`crate::optics::planned_trace`]) held as one f64 per
 //! incidence, so that the compiler turns every operation into one vector instruction.
 //!
-//! Physics: the planned trace's (its header). Rounding: the wave vectors, hence every direction
-//! and every decision to decline, operation for operation as the scalar trace rounds them; the
-//! fields and amplitudes (which only powers read) with fewer divisions and square roots, the
-//! slowest vector instructions: products by one reciprocal where the scalar trace divides each
-//! component, the back substitution by the pivots' reciprocals, the ordinary field q × c without
-//! its rounding-sized part along q. They agree with the scalar trace to rounding (10⁻¹⁵; tests
-//! hold them to [`crate::precision::PLANNED_TRACE_AGREEMENT`]), and rays come out in its order.
+//! Physics: the planned trace's (its header), but for one step: a face's transmission comes from
+//! the forward waves on its two sides alone, by their power orthogonality ([`transmission`]: a
+//! 2×2 inverse), where the scalar trace also makes the two reflected waves and eliminates a 4×4
+//! system. The same T in exact arithmetic; the reflected waves, their fields and the 4×4
+//! elimination took two fifths of the lanes' time (10⁵ traces of the two-wedge splitter on one
+//! thread, fastest of 15 in three interleaved pairs at load 2.8–4.4: 46–50 ms with them, 27–29 ms
+//! without, the same checksum).
+//!
+//! Rounding: the wave vectors, hence every direction and every decision to decline, operation
+//! for operation as the scalar trace rounds them; the fields, transmissions and amplitudes
+//! (which only powers read) with fewer divisions and square roots, the slowest vector
+//! instructions: products by one reciprocal where the scalar trace divides each component, the
+//! 2×2 inverse for the 4×4 elimination, the ordinary field q × c without its rounding-sized part
+//! along q. They agree with the scalar trace to rounding (10⁻¹⁵; tests hold them to
+//! [`crate::precision::PLANNED_TRACE_AGREEMENT`]), and rays come out in its order. The lanes
+//! decline every incidence the scalar trace declines (the reflected waves' wave vectors are still
+//! tested as it tests them) and, in principle, a nearly singular face that it would solve.
 //! Every branch of the scalar trace that depends on the numbers becomes a per-lane choice: the
 //! root of the extraordinary quadratic taken without cancellation, a mode's scale, the sign that
-//! matches a ray to its incident mode, the pivots of the real 4×4 elimination (the largest, the
-//! last of equals, rows exchanged as the scalar elimination exchanges them), the polar factor's
-//! rank-one case. What the structure of the plan fixes (which bodies meet at a face, which mode
-//! a ray is in, how many rays there are) is the same in every lane and stays a branch.
+//! matches a ray to its incident mode, the polar factor's rank-one case. What the structure of
+//! the plan fixes (which bodies meet at a face, which mode a ray is in, how many rays there are)
+//! is the same in every lane and stays a branch.
 //!
 //! What is left to the scalar trace. A lane is marked and traced again by
 //! [`PlannedTrace::trace`] (which may in turn decline it to the general tracer) when anything
@@ -268,9 +277,11 @@ fn propagating_root(x: F, scale: f64, ok: &mut Mask) -> F {
     x.sqrt()
 }
 
-/// The scalar trace's `modes` per lane.
+/// The forward waves of the scalar trace's `modes` per lane. The backward ones are not made (the
+/// boundary problem is solved without them, [`transmission`]); `backward` keeps the scalar
+/// trace's tests of their wave vectors, so that the lanes decline what it declines.
 #[inline(always)]
-fn modes(body: &Local, qt: [F; 2], backward: bool, rays: bool, ok: &mut Mask) -> [[Wave; 2]; 2] {
+fn modes(body: &Local, qt: [F; 2], backward: bool, rays: bool, ok: &mut Mask) -> [Wave; 2] {
     let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
     match body {
         Local::Isotropic(n) => {
@@ -285,16 +296,9 @@ fn modes(body: &Local, qt: [F; 2], backward: bool, rays: bool, ok: &mut Mask) ->
             let (e1, e2) = beam_basis(&q.scale(F::splat(1.0 / n)));
             // Both waves run along q: its unit vector made once.
             let ray = if rays { q.over(q.norm()) } else { q };
-            let forward = [wave(q, e1, ray, false), wave(q, e2, ray, false)];
-            if !backward {
-                return [forward, forward];
-            }
-            let mirror = |e: V| V { z: -e.z, ..e };
-            let qb = V { z: -qz, ..q };
-            [
-                forward,
-                [wave(qb, mirror(e1), qb, rays), wave(qb, mirror(e2), qb, rays)],
-            ]
+            // (The backward waves of an isotropic body meet no test of their own.)
+            let _ = backward;
+            [wave(q, e1, ray, false), wave(q, e2, ray, false)]
         }
         Local::Uniaxial(crystal, surfaces) => {
             let no = crystal.indices.no;
@@ -313,12 +317,11 @@ fn modes(body: &Local, qt: [F; 2], backward: bool, rays: bool, ok: &mut Mask) ->
             let r = disc.sqrt();
             let c = V::splat(&crystal.axis.unit());
             let along = |z: F| V { x: qt[0], y: qt[1], z };
-            let forward = crystal_pair(&c, surfaces, along(qz_o), along(e_root(a, b, c0, r, 1.0)), rays, ok);
-            if !backward {
-                return [forward, forward];
+            if backward {
+                transverse_ordinary(&along(-qz_o), &c, ok);
+                transverse_ordinary(&along(e_root(a, b, c0, r, -1.0)), &c, ok);
             }
-            let back = crystal_pair(&c, surfaces, along(-qz_o), along(e_root(a, b, c0, r, -1.0)), rays, ok);
-            [forward, back]
+            crystal_pair(&c, surfaces, along(qz_o), along(e_root(a, b, c0, r, 1.0)), rays, ok)
         }
     }
 }
@@ -371,81 +374,38 @@ fn crystal_pair(
     ]
 }
 
-/// The scalar trace's `solve4` per lane, for the unknowns 2 and 3 alone (the transmitted
-/// amplitudes; entries 0 and 1 of the result are left as the elimination leaves them): the same
-/// pivots and exchanges. `ok` loses the lanes where a pivot is zero, its square is zero or not
-/// finite, or a result is not finite. (The scalar trace also declines where a reflected
-/// amplitude is not finite: with such pivots that takes a sum beyond 10³⁰⁰ of fields scaled to
-/// unit power flux at modes kept 10⁻⁹ from grazing, which do not reach 10⁵.)
+/// The transmission T of a face (`T[j][k]`: the amplitude of the transmitted wave `j` for unit
+/// amplitude of the incident wave `k`) from the forward waves on its two sides, `from` and `into`,
+/// by the flux form instead of the scalar trace's 4×4 elimination.
+///
+/// Formula. With ⟨a, b⟩ = ẑ·(E_a × H_b + E_b × H_a) (tangential fields, face frame), waves of one
+/// lossless medium at one tangential wave vector with different q_z are orthogonal, ⟨a, b⟩ = 0 (the
+/// boundary problem's 4×4 system matrix for a real symmetric permittivity is self-adjoint under
+/// this form: Berreman, J. Opt. Soc. Am. 62, 502 (1972); P. Yeh, *Optical Waves in Layered
+/// Media*, 1988, ch. 9, for the power orthogonality of modes), and ⟨a, a⟩ = 2 for a forward wave
+/// of unit power flux. Applied to the boundary condition a_k + Σ r_jk a′_j = Σ t_jk b_j (a′: the
+/// reflected waves), ⟨a_i, ·⟩ leaves G t = 2 I with G_ij = ⟨a_i, b_j⟩, so T = 2 G⁻¹: two forward
+/// waves per side and a 2×2 inverse, where the scalar trace makes the two reflected waves too and
+/// eliminates a 4×4 system (in exact arithmetic the same T; here to rounding, 10⁻¹⁵).
+///
+/// `ok` loses the lanes where det G is not finite or within 10⁻¹² of zero relative to |G|²: the
+/// system is then singular or nearly so, as where the scalar elimination meets a zero pivot. A
+/// passive face keeps |t| ≤ 1 in these units, so |G⁻¹| ≤ ½ and a propagating face never comes near.
 #[inline(always)]
-#[allow(clippy::needless_range_loop)]
-fn solve4(mut m: [[F; 4]; 4], b: [[F; 4]; 2], ok: &mut Mask) -> [[F; 4]; 2] {
-    let mut x = b;
-    let zero = F::splat(0.0);
-    let mut inverse = [zero; 4];
-    for col in 0..4 {
-        // The pivot row of each lane, as the scalar search finds it.
-        let mut best = m[col][col].abs();
-        let mut pivot = [col; LANES];
-        for row in col + 1..4 {
-            let a = m[row][col].abs();
-            let take = a.test(best, |a, b| a >= b);
-            best = F::pick(take, a, best);
-            for i in 0..LANES {
-                if take[i] {
-                    pivot[i] = row;
-                }
-            }
-        }
-        // Rows `col` and `pivot` exchanged lane by lane.
-        for row in col + 1..4 {
-            let swap: Mask = lanes(|i| pivot[i] == row);
-            for k in col..4 {
-                let (a, b) = (m[col][k], m[row][k]);
-                m[col][k] = F::pick(swap, b, a);
-                m[row][k] = F::pick(swap, a, b);
-            }
-            for v in &mut x {
-                let (a, b) = (v[col], v[row]);
-                v[col] = F::pick(swap, b, a);
-                v[row] = F::pick(swap, a, b);
-            }
-        }
-        let p = m[col][col];
-        let pp = p * p;
-        *ok = and(*ok, pp.test(zero, |a, b| (a != b) & finite(a)));
-        let inv = p / pp;
-        inverse[col] = inv;
-        for row in col + 1..4 {
-            let f = m[row][col] * inv;
-            let keep = f.test(zero, |a, b| a == b);
-            for k in col + 1..4 {
-                let a = m[col][k];
-                m[row][k] = F::pick(keep, m[row][k], m[row][k] - f * a);
-            }
-            for v in &mut x {
-                let a = v[col];
-                v[row] = F::pick(keep, v[row], v[row] - f * a);
-            }
-        }
-    }
-    // Back substitution for the unknowns 3 and 2 alone (the transmitted amplitudes): rows 1 and 0
-    // only give the reflected ones, which no one reads.
-    for v in &mut x {
-        for row in [3, 2] {
-            let mut acc = v[row];
-            for k in row + 1..4 {
-                acc = acc - m[row][k] * v[k];
-            }
-            v[row] = acc * inverse[row];
-        }
-    }
-    for v in &x {
-        for z in &v[2..] {
-            *ok = and(*ok, lanes(|i| finite(z.0[i])));
-        }
-    }
-    x
+fn transmission(from: &[Wave; 2], into: &[Wave; 2], ok: &mut Mask) -> M2 {
+    let form = |a: &Wave, b: &Wave| a.e.x * b.h.y - a.e.y * b.h.x + (b.e.x * a.h.y - b.e.y * a.h.x);
+    let g = [
+        [form(&from[0], &into[0]), form(&from[0], &into[1])],
+        [form(&from[1], &into[0]), form(&from[1], &into[1])],
+    ];
+    let det = g[0][0] * g[1][1] - g[0][1] * g[1][0];
+    let size = norm2(&g);
+    *ok = and(
+        *ok,
+        lanes(|i| finite(det.0[i]) & (det.0[i].abs() > 1e-12 * size.0[i] * size.0[i])),
+    );
+    let s = F::splat(2.0) / det;
+    [[g[1][1] * s, -g[0][1] * s], [-g[1][0] * s, g[0][0] * s]]
 }
 
 /// A real 2×2 matrix per lane, rows first.
@@ -551,8 +511,8 @@ fn cross_with(carrier: &Carrier, crossing: &Crossing, ideal: bool, ok: &mut Mask
     let frame = &crossing.frame.frame;
     let q_face = carrier.q().rotated(&crossing.frame.to_face);
     let qt = [q_face.x, q_face.y];
-    let [a_fwd, a_back] = modes(&crossing.from, qt, true, false, ok);
-    let [b_fwd, _] = modes(&crossing.into, qt, false, true, ok);
+    let a_fwd = modes(&crossing.from, qt, true, false, ok);
+    let b_fwd = modes(&crossing.into, qt, false, true, ok);
     let zero = F::splat(0.0);
     let mut a_in = [[zero; 2]; 2];
     match carrier {
@@ -577,15 +537,7 @@ fn cross_with(carrier: &Carrier, crossing: &Crossing, ideal: bool, ok: &mut Mask
             }
         }
     }
-    let mut m = [[zero; 4]; 4];
-    for (col, w) in [(0, &a_back[0]), (1, &a_back[1]), (2, &b_fwd[0]), (3, &b_fwd[1])] {
-        let f = tangential(w);
-        for row in 0..4 {
-            m[row][col] = if col < 2 { -f[row] } else { f[row] };
-        }
-    }
-    let x = solve4(m, [tangential(&a_fwd[0]), tangential(&a_fwd[1])], ok);
-    let t = [[x[0][2], x[1][2]], [x[0][3], x[1][3]]];
+    let t = transmission(&a_fwd, &b_fwd, ok);
     let t = if ideal { lossless_part(&t) } else { t };
     let entry = |k: usize, c: usize| t[k][0] * a_in[0][c] + t[k][1] * a_in[1][c];
     let out: M2 = [[entry(0, 0), entry(0, 1)], [entry(1, 0), entry(1, 1)]];
@@ -622,12 +574,6 @@ fn bound(w: &Wave, frame: &Matrix3<f64>, kind: usize, amp: [F; 2]) -> Carrier {
         kind,
         amp,
     }
-}
-
-/// The quantities continuous across a face, (E_x, E_y, Z0 H_x, Z0 H_y).
-#[inline(always)]
-fn tangential(w: &Wave) -> [F; 4] {
-    [w.e.x, w.e.y, w.h.x, w.h.y]
 }
 
 /// [`Plane::meet`] per lane, the ray moved there; `ok` loses the lanes where it cannot get there.
