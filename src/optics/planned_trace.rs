@@ -9,7 +9,9 @@
 //! Optics*, 7th ed., §15.2–15.3), each scaled to unit power flux across the face; the 4×4
 //! boundary problem (E_x, E_y, Z0 H_x, Z0 H_y continuous; P. Yeh, *Optical Waves in Layered
 //! Media*, 1988, ch. 9; D. W. Berreman, J. Opt. Soc. Am. 62, 502 (1972)) gives the transmission T,
-//! of which ideal faces take the unitary polar factor (K. Fan and A. J. Hoffman, Proc. AMS 6, 111
+//! here by the power orthogonality of the waves on each side ([`transmission`]: the two forward
+//! waves of each side and a 2×2 inverse, without the reflected waves and the 4×4 elimination of
+//! the general tracer, which took two fifths of the time), of which ideal faces take the unitary polar factor (K. Fan and A. J. Hoffman, Proc. AMS 6, 111
 //! (1955); [`crate::optics::interface::lossless_part`]) and uncoated faces T itself. Rays follow
 //! their Poynting direction from face to face; apertures, contacts (outside medium, cement
 //! film, direct) and the screen are met as the general tracer meets them.
@@ -23,8 +25,8 @@
 //! medium: its field on its own beam basis), and its power for an input of coherency C is
 //! tr(M C Mᵀ). Every face and medium is found once per stack (the plan: frames, rotated crystals
 //! and their matrices, which bodies meet at which face); per incidence only the work is left:
-//! seven face crossings for two wedges (one, two, four rays), each three mode pairs and one real
-//! 4×4 solve, no allocation.
+//! seven face crossings for two wedges (one, two, four rays), each two forward mode pairs and one
+//! real 2×2 inverse, no allocation.
 //!
 //! Many incidences at once: `optics::planned_lanes::BlockedTrace` traces them in blocks side by
 //! side, the same operations on a vector of incidences, and hands back to
@@ -40,11 +42,12 @@
 //! incidence ([`PlannedTrace::trace`] returns `None`) and the caller traces it with the general
 //! tracer.
 //!
-//! Rounding. The modes, their rotation into the lab, the 4×4 elimination (same pivots) and the
-//! polar factor are written to repeat the general tracer's operations on real numbers, so that
-//! directions and exit points come out equal and powers differ only by the rounding of the
-//! phase factors the general tracer multiplies in (|e^{iφ}| = 1 to about 10⁻¹⁶ per step) and of
-//! the order of a power's sum: [`PLANNED_TRACE_AGREEMENT`] bounds the difference
+//! Rounding. The modes, their rotation into the lab and the polar factor are written to repeat
+//! the general tracer's operations on real numbers, so that directions and exit points come out
+//! equal and powers differ only by the rounding of the transmission (the 2×2 inverse for the
+//! general tracer's 4×4 elimination, about 10⁻¹⁵), of the phase factors the general tracer
+//! multiplies in (|e^{iφ}| = 1 to about 10⁻¹⁶ per step) and of the order of a power's sum:
+//! [`PLANNED_TRACE_AGREEMENT`] bounds the difference
 //! (`tests/planned_trace.rs` holds it over generated stacks and incidences). The quotients are
 //! kept as the complex ones round on purpose: written as products by reciprocals, they parted the
 //! directions by 2·10⁻¹² at incidences just inside the critical margin, where
@@ -132,13 +135,13 @@ fn propagating_root(x: f64, scale: f64) -> Option<f64> {
     (x > PLANNED_CRITICAL_MARGIN * scale).then(|| x.sqrt())
 }
 
-/// Both modes of `body` at tangential wave vector `qt`, travelling forward (`[0]`) and backward
-/// (`[1]`), in the face frame, as `isotropic_modes` and `crystal_modes_with` find them (the roots
-/// shared by the two travels taken once); `None` when one is not safely propagating or a wave
-/// runs along an optic axis. `backward` false leaves the backward pair out (a copy of the forward
-/// one).
+/// Both forward modes of `body` at tangential wave vector `qt`, in the face frame, as
+/// `isotropic_modes` and `crystal_modes_with` find them; `None` when one is not safely
+/// propagating or a wave runs along an optic axis. The backward modes are not made (the boundary
+/// problem is solved without them, [`transmission`]); `backward` keeps the general tracer's tests
+/// of their wave vectors (along an optic axis: `None`), so that the plan declines what it declines.
 #[inline(always)]
-fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wave; 2]; 2]> {
+fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[Wave; 2]> {
     let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
     match body {
         Local::Isotropic(n) => {
@@ -146,16 +149,9 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wav
             let qz = propagating_root((n - qt_norm) * (n + qt_norm), n * n)?;
             let q = V3::new(qt[0], qt[1], qz);
             let (e1, e2) = beam_basis(V3::new(qt[0] / n, qt[1] / n, qz / n));
-            let forward = [wave(q, e1, q, rays), wave(q, e2, q, rays)];
-            if !backward {
-                return Some([forward, forward]);
-            }
-            let mirror = |e: V3| V3::new(e.x, e.y, -e.z);
-            let qb = V3::new(qt[0], qt[1], -qz);
-            Some([
-                forward,
-                [wave(qb, mirror(e1), qb, rays), wave(qb, mirror(e2), qb, rays)],
-            ])
+            // (The backward waves of an isotropic body meet no test of their own.)
+            let _ = backward;
+            Some([wave(q, e1, q, rays), wave(q, e2, q, rays)])
         }
         Local::Uniaxial(crystal, surfaces) => {
             let no = crystal.indices.no;
@@ -178,17 +174,14 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wav
                 }
             };
             let c = crystal.axis.unit();
-            let pair = |s: f64| {
-                crystal_pair(
-                    &c,
-                    surfaces,
-                    V3::new(qt[0], qt[1], s * qz_o),
-                    V3::new(qt[0], qt[1], e_root(s)),
-                    rays,
-                )
-            };
-            let forward = pair(1.0)?;
-            Some([forward, if backward { pair(-1.0)? } else { forward }])
+            let along = |s: f64| (V3::new(qt[0], qt[1], s * qz_o), V3::new(qt[0], qt[1], e_root(s)));
+            if backward {
+                let (q_o, q_e) = along(-1.0);
+                ordinary_field(&c, &q_o)?;
+                ordinary_field(&c, &q_e)?;
+            }
+            let (q_o, q_e) = along(1.0);
+            crystal_pair(&c, surfaces, q_o, q_e, rays)
         }
     }
 }
@@ -198,20 +191,9 @@ fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wav
 /// wave runs along the optic axis.
 #[inline(always)]
 fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3, rays: bool) -> Option<[Wave; 2]> {
-    // Ordinary D ∥ q × c made transverse (as the closed form does; the complex quotient q·d / q·q
-    // of zero imaginary parts is (q·d)(q·q) / (q·q)²).
-    let d_o_of = |q: &V3| -> Option<V3> {
-        let d = q.cross(c);
-        let qq = q.dot(q);
-        if d.dot(&d) <= DEGENERATE_DIRECTION * DEGENERATE_DIRECTION * qq {
-            return None;
-        }
-        let qd = q.dot(&d);
-        Some(d - q * ((qd * qq) / (qq * qq)))
-    };
     let inv_eps = &surfaces.inverse_permittivity;
-    let d_o = d_o_of(&q_o)?;
-    let d_e = d_o_of(&q_e)?.cross(&q_e);
+    let d_o = ordinary_field(c, &q_o)?;
+    let d_e = ordinary_field(c, &q_e)?.cross(&q_e);
     Some([
         wave(q_o, inv_eps * d_o, q_o, rays),
         wave(
@@ -223,57 +205,50 @@ fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3, rays: bool
     ])
 }
 
-/// Solves m·x = b for two right-hand sides by the elimination of `interface::solve4` (the
-/// largest pivot, the last of equals; the quotients of complex numbers with zero imaginary
-/// parts written as they round); `None` when a pivot is zero or a result is not finite.
-// Written with indices as the elimination it repeats is, row and column alike.
-#[allow(clippy::needless_range_loop)]
-fn solve4(mut m: [[f64; 4]; 4], b: [[f64; 4]; 2]) -> Option<[[f64; 4]; 2]> {
-    let mut x = b;
-    for col in 0..4 {
-        let mut pivot = col;
-        for row in col + 1..4 {
-            if m[row][col].abs() >= m[pivot][col].abs() {
-                pivot = row;
-            }
-        }
-        if m[pivot][col] == 0.0 {
-            return None;
-        }
-        if pivot != col {
-            m.swap(pivot, col);
-            for v in &mut x {
-                v.swap(pivot, col);
-            }
-        }
-        let p = m[col][col];
-        let inv = p / (p * p);
-        for row in col + 1..4 {
-            let f = m[row][col] * inv;
-            if f == 0.0 {
-                continue;
-            }
-            for k in col + 1..4 {
-                let a = m[col][k];
-                m[row][k] -= f * a;
-            }
-            for v in &mut x {
-                let a = v[col];
-                v[row] -= f * a;
-            }
-        }
+/// The ordinary D ∥ q × c of wave vector `q` in a crystal of optic axis `c`, made transverse (as
+/// the closed form does; the complex quotient q·d / q·q of zero imaginary parts is
+/// (q·d)(q·q) / (q·q)²); `None` when q runs along c.
+#[inline(always)]
+fn ordinary_field(c: &V3, q: &V3) -> Option<V3> {
+    let d = q.cross(c);
+    let qq = q.dot(q);
+    if d.dot(&d) <= DEGENERATE_DIRECTION * DEGENERATE_DIRECTION * qq {
+        return None;
     }
-    for v in &mut x {
-        for row in (0..4).rev() {
-            let mut acc = v[row];
-            for k in row + 1..4 {
-                acc -= m[row][k] * v[k];
-            }
-            let d = m[row][row];
-            v[row] = (acc * d) / (d * d);
-        }
+    let qd = q.dot(&d);
+    Some(d - q * ((qd * qq) / (qq * qq)))
+}
+
+/// The transmission T of a face (`T[(j, k)]`: the amplitude of the transmitted wave `j` for unit
+/// amplitude of the incident wave `k`) from the forward waves on its two sides, `from` and `into`;
+/// `None` when the boundary problem is singular or nearly so.
+///
+/// Formula. With ⟨a, b⟩ = ẑ·(E_a × H_b + E_b × H_a) (tangential fields, face frame), waves of one
+/// lossless medium at one tangential wave vector with different q_z are orthogonal, ⟨a, b⟩ = 0,
+/// and ⟨a, a⟩ = 2 for a forward wave of unit power flux (the power orthogonality of modes: for a
+/// real symmetric permittivity the 4×4 system matrix of D. W. Berreman, J. Opt. Soc. Am. 62, 502
+/// (1972), is self-adjoint under this form; P. Yeh, *Optical Waves in Layered Media*, 1988,
+/// ch. 9). Applied to the boundary condition a_k + Σ r_jk a′_j = Σ t_jk b_j (a′: the reflected
+/// waves), ⟨a_i, ·⟩ leaves G t = 2 I with G_ij = ⟨a_i, b_j⟩: T = 2 G⁻¹, the general tracer's
+/// transmission (its 4×4 elimination, [`crate::optics::interface`]) in exact arithmetic, without
+/// the reflected waves. Declined where det G is not finite or within 10⁻¹² of zero relative to
+/// |G|², as where that elimination meets a zero pivot; a passive face keeps |t| ≤ 1 in these
+/// units, so |G⁻¹| ≤ ½ and a propagating face never comes near.
+#[inline(always)]
+fn transmission(from: &[Wave; 2], into: &[Wave; 2]) -> Option<Matrix2<f64>> {
+    let form = |a: &Wave, b: &Wave| a.e.x * b.h.y - a.e.y * b.h.x + (b.e.x * a.h.y - b.e.y * a.h.x);
+    let g = [
+        [form(&from[0], &into[0]), form(&from[0], &into[1])],
+        [form(&from[1], &into[0]), form(&from[1], &into[1])],
+    ];
+    let det = g[0][0] * g[1][1] - g[0][1] * g[1][0];
+    // |G| summed in the column order of the lanes' `norm2`.
+    let size = (g[0][0] * g[0][0] + g[1][0] * g[1][0] + g[0][1] * g[0][1] + g[1][1] * g[1][1]).sqrt();
+    if !(det.is_finite() && det.abs() > 1e-12 * size * size) {
+        return None;
     }
-    x.iter().flatten().all(|z| z.is_finite()).then_some(x)
+    let s = 2.0 / det;
+    Some(Matrix2::new(g[1][1] * s, -g[0][1] * s, -g[1][0] * s, g[0][0] * s))
 }
 
 /// [`crate::optics::interface::lossless_part`] of a real T, in real numbers.
@@ -651,8 +626,8 @@ fn cross(carrier: &Carrier, crossing: &Crossing, ideal: bool) -> Option<[Option<
     let Frame { frame, to_face } = &crossing.frame;
     let q_face = to_face * carrier.q();
     let qt = [q_face.x, q_face.y];
-    let [a_fwd, a_back] = modes(&crossing.from, qt, true, false)?;
-    let [b_fwd, _] = modes(&crossing.into, qt, false, true)?;
+    let a_fwd = modes(&crossing.from, qt, true, false)?;
+    let b_fwd = modes(&crossing.into, qt, false, true)?;
     // The carrier as amplitudes of the incident modes (rows), each a functional of J_in.
     let mut a_in = Matrix2::zeros();
     match carrier {
@@ -682,17 +657,7 @@ fn cross(carrier: &Carrier, crossing: &Crossing, ideal: bool) -> Option<[Option<
             }
         }
     }
-    let tangential = |w: &Wave| [w.e.x, w.e.y, w.h.x, w.h.y];
-    let mut m = [[0.0; 4]; 4];
-    for (col, w) in [(0, &a_back[0]), (1, &a_back[1]), (2, &b_fwd[0]), (3, &b_fwd[1])] {
-        let f = tangential(w);
-        let sign = if col < 2 { -1.0 } else { 1.0 };
-        for row in 0..4 {
-            m[row][col] = sign * f[row];
-        }
-    }
-    let x = solve4(m, [tangential(&a_fwd[0]), tangential(&a_fwd[1])])?;
-    let t = Matrix2::new(x[0][2], x[1][2], x[0][3], x[1][3]);
+    let t = transmission(&a_fwd, &b_fwd)?;
     let t = if ideal { lossless_part(&t) } else { t };
     let out = t * a_in;
     let lab = |w: &Wave| (frame * w.q, frame * w.ray, frame * w.e);
