@@ -39,10 +39,10 @@
 //! misses is dropped and the others kept; in blocks, its lane is left to the one-by-one trace).
 //! What the structure of the plan fixes (which bodies meet at a face, which mode a ray is in, how
 //! many rays there are) is the same in every lane and stays a branch. At one lane the kernel
-//! took less time than the scalar trace it replaced (10⁵ splitter traces one by one, fastest of 9
-//! in three interleaved pairs, load 3.3–3.7: 125–129 ms on-CPU against 132–136 ms), and at eight
-//! no more than the lanes it replaced within the machine's noise (fastest of 21 in six pairs:
-//! 27.3–36.0 ms against 26.6–33.8 ms).
+//! takes less time than the scalar trace it replaced, at eight about as much as the lanes it
+//! replaced (10⁵ splitter traces, fastest runs in interleaved pairs at load 2.8: one by one
+//! 106–111 ms against 117–121 ms; in lanes 26.7–27.4 ms against 25.7–27.0 ms, medians 27.6–28.5
+//! against 27.1–28.6 ms).
 //!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
 //! optically active) crystals, a plane-parallel stack (traced by [`crate::optics::parallel`]), or
@@ -974,41 +974,22 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
     });
     for slab in plan.slabs() {
         next.clear();
-        // A ray's way to a face of this slab: where it misses, dropped or its lane lost; false
-        // when it is dropped in every lane.
-        let to_face = |f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>| {
-            let mut hit = f.alive;
-            travel(f, plane, &mut hit);
-            holds(&slab.aperture, &f.at, &mut hit);
-            if drop_rays {
-                f.alive = hit;
-            } else {
-                *ok = and(*ok, hit);
-            }
-            f.alive.iter().any(|&a| a)
-        };
-        // One crossing of a ray: the lanes it declines are lost where the ray is on its way.
-        let through = |c: &Carrier<W>, crossing: &Crossing, alive: &Mask<W>, ok: &mut Mask<W>| {
-            let mut fine = [true; W];
-            let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
-            *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
-            beyond
-        };
         for f in flights.iter() {
             let mut f = *f;
             let entered = match &slab.entry {
                 Entry::Outside(crossing) => {
-                    if !to_face(&mut f, &slab.front, &mut ok) {
+                    if !to_plane(&mut f, &slab.front, &slab.aperture, drop_rays, &mut ok) {
                         continue;
                     }
-                    through(&f.carrier, crossing, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok)
                 }
-                Entry::Contact(first, None) => through(&f.carrier, first, &f.alive, &mut ok),
+                Entry::Contact(first, None) => cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok),
                 Entry::Contact(first, Some(second)) => {
-                    let [Some(in_film), None] = through(&f.carrier, first, &f.alive, &mut ok) else {
+                    let [Some(in_film), None] = cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok)
+                    else {
                         return out.ok = [false; W];
                     };
-                    through(&in_film, second, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&in_film, second, ideal, &f.alive, &mut ok)
                 }
             };
             for (k, carrier) in entered.into_iter().enumerate() {
@@ -1019,12 +1000,12 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
                     label: (f.label << 1) | k as u32,
                     ..f
                 };
-                if !to_face(&mut g, &slab.back, &mut ok) {
+                if !to_plane(&mut g, &slab.back, &slab.aperture, drop_rays, &mut ok) {
                     continue;
                 }
                 match &slab.exit {
                     Some(exit) => {
-                        let [Some(c), None] = through(&g.carrier, exit, &g.alive, &mut ok) else {
+                        let [Some(c), None] = cross_alive::<ISA, W>(&g.carrier, exit, ideal, &g.alive, &mut ok) else {
                             return out.ok = [false; W];
                         };
                         next.push(Flight {
@@ -1069,6 +1050,44 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
         out.count += 1;
     }
     out.ok = ok;
+}
+
+/// A ray's way to a face `plane` of a slab of aperture `aperture`: where it misses, dropped
+/// (`drop_rays`) or its lane lost; false when it is dropped in every lane. (This and
+/// [`cross_alive`] are functions, not closures of [`trace_block`]: a closure there was compiled
+/// apart from the kernel's build and not inlined, an eighth of the lanes' time, profiled.)
+#[inline(always)]
+fn to_plane<const W: usize>(
+    f: &mut Flight<W>,
+    plane: &Plane,
+    aperture: &Option<Aperture>,
+    drop_rays: bool,
+    ok: &mut Mask<W>,
+) -> bool {
+    let mut hit = f.alive;
+    travel(f, plane, &mut hit);
+    holds(aperture, &f.at, &mut hit);
+    if drop_rays {
+        f.alive = hit;
+    } else {
+        *ok = and(*ok, hit);
+    }
+    f.alive.iter().any(|&a| a)
+}
+
+/// One crossing of a ray: the lanes it declines are lost where the ray is on its way (`alive`).
+#[inline(always)]
+fn cross_alive<const ISA: u8, const W: usize>(
+    c: &Carrier<W>,
+    crossing: &Crossing,
+    ideal: bool,
+    alive: &Mask<W>,
+    ok: &mut Mask<W>,
+) -> Beyond<W> {
+    let mut fine = [true; W];
+    let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
+    *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
+    beyond
 }
 
 /// The rays of lane `lane` of a block, as [`PlannedTrace::trace`] lists them, into `into`.
