@@ -1,4 +1,5 @@
-//! Native benchmarks of the core, run by `cargo bench --bench core` (see `scripts/bench.sh`).
+//! Native benchmarks of the core, run by `cargo bench --bench core` (see `scripts/bench.sh`);
+//! `cargo bench --bench core -- splitter` runs the two-wedge splitter's whole traces alone.
 //!
 //! Figures are wall-clock medians over repeated runs on this machine, printed as one JSON line
 //! for the comparison script; they are reported, never asserted (speed targets are met in
@@ -147,9 +148,123 @@ fn lc_curve(n: usize) -> Vec<f64> {
     retardance_curve(&lc, &cell, 0.633, &voltage_grid(10.0, n), LC_SUBLAYERS)
 }
 
+/// Incidences of the two-wedge benchmark.
+const SPLITTER_SAMPLES: usize = 100_000;
+
+/// The two-wedge splitter of the benchmark, resolved.
+fn two_wedge_splitter() -> doublespar::Stack {
+    Scenario::from_json_str(include_str!("../scripts/bench/two-wedge-splitter.json"))
+        .unwrap()
+        .resolve()
+        .unwrap()
+        .0
+}
+
+/// The machine's threads for the splitter rows (at most 8).
+fn splitter_threads() -> usize {
+    std::thread::available_parallelism().map_or(1, |t| t.get()).min(8)
+}
+
+/// The splitter's whole traces: by the planned trace one by one, in lanes, and by the general
+/// tracer alone, on one thread and on the machine's threads, with their checksums checked.
+struct WholeTraces {
+    threads: usize,
+    planned: (f64, f64),
+    planned_threads: f64,
+    lanes: (f64, f64),
+    lanes_threads: f64,
+    general: (f64, f64),
+    declined: usize,
+    alone: usize,
+}
+
+impl WholeTraces {
+    fn run(splitter: &doublespar::Stack) -> WholeTraces {
+        let n = SPLITTER_SAMPLES;
+        let threads = splitter_threads();
+        let on = |work, threads| doublespar::run_workload_on(black_box(splitter), n, work, threads);
+        let planned = time(5, || on(Workload::Trace, 1));
+        let lanes = time(9, || on(Workload::LaneTrace, 1));
+        let general = time(3, || on(Workload::GeneralTrace, 1));
+        for (what, (_, sum)) in [("planned", planned), ("lanes", lanes)] {
+            assert!(
+                (sum - general.1).abs() < 1e-12 * general.1.abs(),
+                "{what} {sum} vs general {}",
+                general.1
+            );
+        }
+        // The same samples split over the machine's threads: the same sums but for the order of
+        // the additions.
+        let planned_threads = time(5, || on(Workload::Trace, threads));
+        let lanes_threads = time(9, || on(Workload::LaneTrace, threads));
+        for (one, many) in [(planned.1, planned_threads.1), (lanes.1, lanes_threads.1)] {
+            assert!(
+                (one - many).abs() < 1e-9 * one.abs(),
+                "one thread {one} vs {threads} threads {many}"
+            );
+        }
+        WholeTraces {
+            threads,
+            planned,
+            planned_threads: planned_threads.0,
+            lanes,
+            lanes_threads: lanes_threads.0,
+            general,
+            declined: doublespar::declined_samples(splitter, n),
+            alone: doublespar::samples_traced_alone(splitter, n),
+        }
+    }
+
+    fn print(&self) {
+        let threads = self.threads;
+        println!(
+            "two-wedge splitter, 10^5 whole traces (4 rays each): {:.1} ms on one thread, {:.1} ms on {threads}, {:.0} traces/s on {threads} (checksum {:.12e}; {} samples declined by the plan); by the general tracer alone {:.1} ms on one thread (checksum {:.12e})",
+            self.planned.0 * 1e3,
+            self.planned_threads * 1e3,
+            SPLITTER_SAMPLES as f64 / self.planned_threads,
+            self.planned.1,
+            self.declined,
+            self.general.0 * 1e3,
+            self.general.1
+        );
+        println!(
+            "two-wedge splitter, 10^5 whole traces in lanes ({} side by side): {:.1} ms on one thread, {:.1} ms on {threads} (checksum {:.12e}; {} samples traced one by one)",
+            doublespar::PLANNED_LANES,
+            self.lanes.0 * 1e3,
+            self.lanes_threads * 1e3,
+            self.lanes.1,
+            self.alone
+        );
+    }
+
+    /// Its fields of the JSON line, without braces.
+    fn json_fields(&self) -> String {
+        format!(
+            "\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{:e},\"splitter_trace_declined\":{},\"splitter_general_trace_1e5_ms\":{:.4},\"splitter_lane_trace_1e5_ms\":{:.4},\"splitter_lane_trace_threads_1e5_ms\":{:.4},\"splitter_lane_trace_checksum\":{:e},\"splitter_lane_trace_alone\":{},\"splitter_threads\":{},\"splitter_trace_threads_1e5_ms\":{:.4}",
+            self.planned.0 * 1e3,
+            self.planned.1,
+            self.declined,
+            self.general.0 * 1e3,
+            self.lanes.0 * 1e3,
+            self.lanes_threads * 1e3,
+            self.lanes.1,
+            self.alone,
+            self.threads,
+            self.planned_threads * 1e3
+        )
+    }
+}
+
 fn main() {
     if !std::env::args().any(|a| a == "--bench") {
         smoke();
+        return;
+    }
+    // `cargo bench --bench core -- splitter`: the two-wedge splitter's whole traces alone.
+    if std::env::args().any(|a| a == "splitter") {
+        let whole = WholeTraces::run(&two_wedge_splitter());
+        whole.print();
+        println!("{{\"bench\":\"doublespar-native\",{}}}", whole.json_fields());
         return;
     }
     let sc = Scenario::from_json_str(STACK).unwrap();
@@ -194,49 +309,18 @@ fn main() {
             .unwrap()
     });
 
-    let (splitter, _) = Scenario::from_json_str(include_str!("../scripts/bench/two-wedge-splitter.json"))
-        .unwrap()
-        .resolve()
-        .unwrap();
-    let n = 100_000;
-    let (t_wedges, wedges_sum) = time(5, || doublespar::run_workload(black_box(&splitter), n, Workload::Trace));
-    let (t_lanes, lanes_sum) = time(9, || {
-        doublespar::run_workload(black_box(&splitter), n, Workload::LaneTrace)
-    });
+    let splitter = two_wedge_splitter();
+    let n = SPLITTER_SAMPLES;
+    let threads = splitter_threads();
+    let whole = WholeTraces::run(&splitter);
     let (t_split, split_sum) = time(7, || doublespar::run_workload(black_box(&splitter), n, Workload::Split));
-    let (t_wedges_general, general_sum) = time(3, || {
-        doublespar::run_workload(black_box(&splitter), n, Workload::GeneralTrace)
-    });
-    for (what, sum) in [("planned", wedges_sum), ("lanes", lanes_sum)] {
-        assert!(
-            (sum - general_sum).abs() < 1e-12 * general_sum.abs(),
-            "{what} {sum} vs general {general_sum}"
-        );
-    }
-    let declined = doublespar::declined_samples(&splitter, n);
-    let alone = doublespar::samples_traced_alone(&splitter, n);
-    // The same samples split over the machine's threads: the same sums but for the order of the
-    // additions.
-    let threads = std::thread::available_parallelism().map_or(1, |t| t.get()).min(8);
-    let (t_wedges_threads, wedges_sum_threads) = time(5, || {
-        doublespar::run_workload_on(black_box(&splitter), n, Workload::Trace, threads)
-    });
-    let (t_lanes_threads, lanes_sum_threads) = time(9, || {
-        doublespar::run_workload_on(black_box(&splitter), n, Workload::LaneTrace, threads)
-    });
     let (t_split_threads, split_sum_threads) = time(7, || {
         doublespar::run_workload_on(black_box(&splitter), n, Workload::Split, threads)
     });
-    for (one, many) in [
-        (wedges_sum, wedges_sum_threads),
-        (lanes_sum, lanes_sum_threads),
-        (split_sum, split_sum_threads),
-    ] {
-        assert!(
-            (one - many).abs() < 1e-9 * one.abs(),
-            "one thread {one} vs {threads} threads {many}"
-        );
-    }
+    assert!(
+        (split_sum - split_sum_threads).abs() < 1e-9 * split_sum.abs(),
+        "one thread {split_sum} vs {threads} threads {split_sum_threads}"
+    );
     let splitter_request =
         r#"{"kind": "angular-splitter", "material": "calcite", "split_angle_deg": 10, "samples": 100000, "seed": 1}"#;
     let (t_splitter_mc, _) = time(7, || {
@@ -279,19 +363,7 @@ fn main() {
         per_call_ns(t_same),
         per_call_ns(t_general)
     );
-    println!(
-        "two-wedge splitter, 10^5 whole traces (4 rays each): {:.1} ms on one thread, {:.1} ms on {threads}, {:.0} traces/s on {threads} (checksum {wedges_sum:.12e}; {declined} samples declined by the plan); by the general tracer alone {:.1} ms on one thread (checksum {general_sum:.12e})",
-        t_wedges * 1e3,
-        t_wedges_threads * 1e3,
-        n as f64 / t_wedges_threads,
-        t_wedges_general * 1e3
-    );
-    println!(
-        "two-wedge splitter, 10^5 whole traces in lanes ({} side by side): {:.1} ms on one thread, {:.1} ms on {threads} (checksum {lanes_sum:.12e}; {alone} samples traced one by one)",
-        doublespar::PLANNED_LANES,
-        t_lanes * 1e3,
-        t_lanes_threads * 1e3
-    );
+    whole.print();
     println!(
         "two-wedge splitter, 10^5 split angles by wave-vector chains: {:.2} ms on one thread, {:.2} ms on {threads} (checksum {split_sum:.12e})",
         t_split * 1e3,
@@ -314,18 +386,14 @@ fn main() {
     println!("exact-mode walk-off sweep, 10^5 points: {:.2} ms", t_exact * 1e3);
     println!("Monte Carlo displacer, 10^5 samples: {:.1} ms", t_mc * 1e3);
     println!(
-        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},\"splitter_trace_1e5_ms\":{:.4},\"splitter_trace_checksum\":{wedges_sum:e},\"splitter_trace_declined\":{declined},\"splitter_general_trace_1e5_ms\":{:.4},\"splitter_lane_trace_1e5_ms\":{:.4},\"splitter_lane_trace_threads_1e5_ms\":{:.4},\"splitter_lane_trace_checksum\":{lanes_sum:e},\"splitter_lane_trace_alone\":{alone},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_threads\":{threads},\"splitter_trace_threads_1e5_ms\":{:.4},\"splitter_split_threads_1e5_ms\":{:.4},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e},\"lc_curve_200_ms\":{:.4},\"lc_curve_checksum\":{lc_sum:e}}}",
+        "{{\"bench\":\"doublespar-native\",\"trace_per_s\":{traces_per_s:.1},\"walkoff_sweep_1e6_ms\":{:.4},\"walkoff_sweep_pointwise_1e6_ms\":{:.4},\"walkoff_sweep_one_thread_1e6_ms\":{:.4},\"walkoff_sweep_checksum\":{sum:e},\"exact_sweep_1e5_ms\":{:.4},\"monte_carlo_1e5_ms\":{:.4},{},\"splitter_split_1e5_ms\":{:.4},\"splitter_split_checksum\":{split_sum:e},\"splitter_split_threads_1e5_ms\":{:.4},\"splitter_monte_carlo_1e5_ms\":{:.4},\"mode_solve_closed_ns\":{:.1},\"mode_solve_general_ns\":{:.1},\"mode_solve_biaxial_chiral_ns\":{:.1},\"spectrum_2000_ms\":{:.4},\"spectrum_checksum\":{spectrum_sum:e},\"lc_curve_200_ms\":{:.4},\"lc_curve_checksum\":{lc_sum:e}}}",
         t_sweep * 1e3,
         t_pointwise * 1e3,
         t_single * 1e3,
         t_exact * 1e3,
         t_mc * 1e3,
-        t_wedges * 1e3,
-        t_wedges_general * 1e3,
-        t_lanes * 1e3,
-        t_lanes_threads * 1e3,
+        whole.json_fields(),
         t_split * 1e3,
-        t_wedges_threads * 1e3,
         t_split_threads * 1e3,
         t_splitter_mc * 1e3,
         per_call_ns(t_closed),

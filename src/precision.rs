@@ -70,9 +70,11 @@ pub const PLANNED_CRITICAL_MARGIN: f64 = 1e-9;
 
 /// How closely the planned whole trace agrees with the general tracer on each ray that leaves
 /// forward: power and direction components absolutely (both are at most 1), exit points relative
-/// to 1 mm plus their distance from the origin. It repeats the general tracer's operations on
-/// real numbers; what differs is the rounding of the phase factors the general tracer multiplies
-/// into each ray (|e^{iφ}| = 1 to ~10⁻¹⁶ per step) and the order of a power's sum, ~10⁻¹⁵ in all.
+/// to 1 mm plus their distance from the origin. It repeats the general tracer's wave vectors on
+/// real numbers; what differs is the rounding of its fields and transmissions (products by
+/// reciprocals, a 2×2 inverse for the 4×4 elimination), of the phase factors the general tracer
+/// multiplies into each ray (|e^{iφ}| = 1 to ~10⁻¹⁶ per step) and of the order of a power's sum,
+/// ~10⁻¹⁴ in all.
 pub const PLANNED_TRACE_AGREEMENT: f64 = 1e-12;
 
 /// A power lost at an element that is smaller than this fraction of the power entering it is

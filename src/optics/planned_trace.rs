@@ -9,7 +9,9 @@
 //! Optics*, 7th ed., §15.2–15.3), each scaled to unit power flux across the face; the 4×4
 //! boundary problem (E_x, E_y, Z0 H_x, Z0 H_y continuous; P. Yeh, *Optical Waves in Layered
 //! Media*, 1988, ch. 9; D. W. Berreman, J. Opt. Soc. Am. 62, 502 (1972)) gives the transmission T,
-//! of which ideal faces take the unitary polar factor (K. Fan and A. J. Hoffman, Proc. AMS 6, 111
+//! here by the power orthogonality of the waves on each side ([`transmission`]: the two forward
+//! waves of each side and a 2×2 inverse, without the reflected waves and the 4×4 elimination of
+//! the general tracer, which took two fifths of the time), of which ideal faces take the unitary polar factor (K. Fan and A. J. Hoffman, Proc. AMS 6, 111
 //! (1955); [`crate::optics::interface::lossless_part`]) and uncoated faces T itself. Rays follow
 //! their Poynting direction from face to face; apertures, contacts (outside medium, cement
 //! film, direct) and the screen are met as the general tracer meets them.
@@ -23,17 +25,28 @@
 //! medium: its field on its own beam basis), and its power for an input of coherency C is
 //! tr(M C Mᵀ). Every face and medium is found once per stack (the plan: frames, rotated crystals
 //! and their matrices, which bodies meet at which face); per incidence only the work is left:
-//! seven face crossings for two wedges (one, two, four rays), each three mode pairs and one real
-//! 4×4 solve, no allocation.
+//! seven face crossings for two wedges (one, two, four rays), each two forward mode pairs and one
+//! real 2×2 inverse, no allocation.
 //!
-//! Many incidences at once: `optics::planned_lanes::BlockedTrace` traces them in blocks side by
-//! side, the same operations on a vector of incidences, and hands back to
-//! [`PlannedTrace::trace`] the ones a block cannot finish (natively; the design worker's
-//! WebAssembly has the planned trace without the lanes, the page's module neither).
+//! One kernel at any lane width. The work per incidence is written once, on a block of W
+//! incidences side by side, each number held as one f64 per incidence ([`F`]): W = 1 is
+//! [`PlannedTrace::trace`] (natively and in the design worker's WebAssembly; the page's module
+//! has neither), W = 8 is `optics::planned_lanes::BlockedTrace`, natively, where the compiler
+//! turns every operation into one vector instruction. Every branch that depends on the numbers
+//! is a per-lane choice: the root of the extraordinary quadratic taken without cancellation, a
+//! mode's scale, the sign that matches a ray to its incident mode, the polar factor's rank-one
+//! case, and whether a ray meets a plane, an aperture or the screen (one by one, a ray that
+//! misses is dropped and the others kept; in blocks, its lane is left to the one-by-one trace).
+//! What the structure of the plan fixes (which bodies meet at a face, which mode a ray is in, how
+//! many rays there are) is the same in every lane and stays a branch. At one lane the kernel
+//! takes less time than the scalar trace it replaced, at eight about as much as the lanes it
+//! replaced (10⁵ splitter traces, fastest runs in interleaved pairs at load 2.8: one by one
+//! 106–111 ms against 117–121 ms; in lanes 26.7–27.4 ms against 25.7–27.0 ms, medians 27.6–28.5
+//! against 27.1–28.6 ms).
 //!
 //! One plate alone: [`parallel_plate`] gives a plane-parallel plate's two face couplings in
-//! real numbers from the same modes (the faces solved by eliminating the reflected waves, a 2×2
-//! inverse, rather than by the 4×4 elimination), for convergent light
+//! real numbers from the same modes and the same 2×2 face solve ([`transmission`], one lane wide),
+//! for convergent light
 //! ([`crate::optics::conoscope`]), which asks for them at every direction and wavelength.
 //!
 //! What is not planned. A stack with ideal elements, liquid-crystal cells or general (biaxial,
@@ -45,23 +58,28 @@
 //! incidence ([`PlannedTrace::trace`] returns `None`) and the caller traces it with the general
 //! tracer.
 //!
-//! Rounding. The modes, their rotation into the lab, the 4×4 elimination (same pivots) and the
-//! polar factor are written to repeat the general tracer's operations on real numbers, so that
-//! directions and exit points come out equal and powers differ only by the rounding of the
-//! phase factors the general tracer multiplies in (|e^{iφ}| = 1 to about 10⁻¹⁶ per step) and of
-//! the order of a power's sum: [`PLANNED_TRACE_AGREEMENT`] bounds the difference
-//! (`tests/planned_trace.rs` holds it over generated stacks and incidences). The quotients are
-//! kept as the complex ones round on purpose: written as products by reciprocals, they parted the
-//! directions by 2·10⁻¹² at incidences just inside the critical margin, where
-//! q_z = √(n² − |q_t|²) magnifies a last-place difference in q_t some ten-thousandfold.
+//! Rounding. The wave vectors, hence the directions in isotropic bodies and every decision to
+//! decline, are rounded as the general tracer rounds them: the quotients are kept as the complex
+//! ones round on purpose (written as products by reciprocals, they parted the directions by
+//! 2·10⁻¹² at incidences just inside the critical margin, where q_z = √(n² − |q_t|²) magnifies a
+//! last-place difference in q_t some ten-thousandfold). The fields, transmissions, amplitudes and
+//! the rays' directions in crystals (which only powers and exit points read) take fewer
+//! divisions and square roots, the slowest vector instructions: products by one reciprocal where
+//! the general tracer divides each component, the 2×2 inverse for its 4×4 elimination, the
+//! ordinary field q × c without its rounding-sized part along q. Powers and exit points so differ
+//! from the general tracer's by rounding (about 10⁻¹⁴), and by the rounding of the phase factors
+//! it multiplies in (|e^{iφ}| = 1 to about 10⁻¹⁶ per step) and of the order of a power's sum:
+//! [`PLANNED_TRACE_AGREEMENT`] bounds the difference (`tests/planned_trace.rs` holds it over
+//! generated stacks and incidences).
 
 use crate::optics::geometry::{Plane, face_frame};
 use crate::optics::interface::Losses;
-use crate::optics::modes::{CrystalSurfaces, beam_basis};
+use crate::optics::modes::CrystalSurfaces;
 use crate::optics::stack::{Aperture, Contact, Element, Medium, Stack};
 use crate::optics::uniaxial::Uniaxial;
-use crate::precision::{DEGENERATE_DIRECTION, PLANNED_CRITICAL_MARGIN};
+use crate::precision::{DEGENERATE_DIRECTION, ON_PLANE, PLANNED_CRITICAL_MARGIN};
 use nalgebra::{Matrix2, Matrix3, Vector3};
+use std::ops::{Add, Div, Mul, Neg, Sub};
 
 #[cfg(doc)]
 use crate::precision::PLANNED_TRACE_AGREEMENT;
@@ -105,237 +123,6 @@ impl Frame {
     }
 }
 
-/// A propagating mode in a face's frame: wave vector, field E and Z0 H (unit power flux across
-/// the face), unit ray direction.
-#[derive(Debug, Clone, Copy)]
-struct Wave {
-    q: V3,
-    e: V3,
-    h: V3,
-    ray: V3,
-}
-
-/// `Mode::build` of [`crate::optics::modes`] for a propagating wave, in real numbers; its ray is
-/// made a unit vector only when `rays` asks (the waves beyond a face: the others' rays are not read).
-#[inline(always)]
-fn wave(q: V3, e: V3, ray: V3, rays: bool) -> Wave {
-    let h = q.cross(&e);
-    let sz = (e.x * h.y - e.y * h.x).abs();
-    let scale = if sz > 0.0 { 1.0 / sz.sqrt() } else { 1.0 };
-    Wave {
-        q,
-        e: e * scale,
-        h: h * scale,
-        ray: if rays { ray / ray.norm() } else { ray },
-    }
-}
-
-/// √x, or `None` when the wave whose q_z² is x is evanescent or within the critical margin of it
-/// (`scale` is n², the size of x's terms).
-#[inline(always)]
-fn propagating_root(x: f64, scale: f64) -> Option<f64> {
-    (x > PLANNED_CRITICAL_MARGIN * scale).then(|| x.sqrt())
-}
-
-/// Both modes of `body` at tangential wave vector `qt`, travelling forward (`[0]`) and backward
-/// (`[1]`), in the face frame, as `isotropic_modes` and `crystal_modes_with` find them (the roots
-/// shared by the two travels taken once); `None` when one is not safely propagating or a wave
-/// runs along an optic axis. `backward` false leaves the backward pair out (a copy of the forward
-/// one).
-#[inline(always)]
-fn modes(body: &Local, qt: [f64; 2], backward: bool, rays: bool) -> Option<[[Wave; 2]; 2]> {
-    let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
-    match body {
-        Local::Isotropic(n) => {
-            let n = *n;
-            let qz = propagating_root((n - qt_norm) * (n + qt_norm), n * n)?;
-            let q = V3::new(qt[0], qt[1], qz);
-            let (e1, e2) = beam_basis(V3::new(qt[0] / n, qt[1] / n, qz / n));
-            let forward = [wave(q, e1, q, rays), wave(q, e2, q, rays)];
-            if !backward {
-                return Some([forward, forward]);
-            }
-            let mirror = |e: V3| V3::new(e.x, e.y, -e.z);
-            let qb = V3::new(qt[0], qt[1], -qz);
-            Some([
-                forward,
-                [wave(qb, mirror(e1), qb, rays), wave(qb, mirror(e2), qb, rays)],
-            ])
-        }
-        Local::Uniaxial(crystal, surfaces) => {
-            let no = crystal.indices.no;
-            let m = &surfaces.surface;
-            let qz_o = propagating_root((no - qt_norm) * (no + qt_norm), no * no)?;
-            let a = m[(2, 2)];
-            let b = m[(2, 0)] * qt[0] + m[(2, 1)] * qt[1];
-            let c0 = m[(0, 0)] * qt[0] * qt[0] + 2.0 * m[(0, 1)] * qt[0] * qt[1] + m[(1, 1)] * qt[1] * qt[1] - 1.0;
-            let disc = b * b - a * c0;
-            if disc <= PLANNED_CRITICAL_MARGIN * (b * b + (a * c0).abs()) {
-                return None;
-            }
-            let r = disc.sqrt();
-            // Root (−b + s·r)/a, computed without cancellation.
-            let e_root = |s: f64| {
-                if s * b <= 0.0 {
-                    (-b + s * r) / a
-                } else {
-                    c0 / (-b - s * r)
-                }
-            };
-            let c = crystal.axis.unit();
-            let pair = |s: f64| {
-                crystal_pair(
-                    &c,
-                    surfaces,
-                    V3::new(qt[0], qt[1], s * qz_o),
-                    V3::new(qt[0], qt[1], e_root(s)),
-                    rays,
-                )
-            };
-            let forward = pair(1.0)?;
-            Some([forward, if backward { pair(-1.0)? } else { forward }])
-        }
-    }
-}
-
-/// The ordinary and extraordinary waves of wave vectors `q_o`, `q_e` in the crystal of optic axis
-/// `c` and matrices `surfaces` (face frame), as `crystal_modes_with` forms them; `None` when a
-/// wave runs along the optic axis.
-#[inline(always)]
-fn crystal_pair(c: &V3, surfaces: &CrystalSurfaces, q_o: V3, q_e: V3, rays: bool) -> Option<[Wave; 2]> {
-    // Ordinary D ∥ q × c made transverse (as the closed form does; the complex quotient q·d / q·q
-    // of zero imaginary parts is (q·d)(q·q) / (q·q)²).
-    let d_o_of = |q: &V3| -> Option<V3> {
-        let d = q.cross(c);
-        let qq = q.dot(q);
-        if d.dot(&d) <= DEGENERATE_DIRECTION * DEGENERATE_DIRECTION * qq {
-            return None;
-        }
-        let qd = q.dot(&d);
-        Some(d - q * ((qd * qq) / (qq * qq)))
-    };
-    let inv_eps = &surfaces.inverse_permittivity;
-    let d_o = d_o_of(&q_o)?;
-    let d_e = d_o_of(&q_e)?.cross(&q_e);
-    Some([
-        wave(q_o, inv_eps * d_o, q_o, rays),
-        wave(
-            q_e,
-            inv_eps * d_e,
-            if rays { surfaces.surface * q_e } else { q_e },
-            rays,
-        ),
-    ])
-}
-
-/// Solves m·x = b for two right-hand sides by the elimination of `interface::solve4` (the
-/// largest pivot, the last of equals; the quotients of complex numbers with zero imaginary
-/// parts written as they round); `None` when a pivot is zero or a result is not finite.
-// Written with indices as the elimination it repeats is, row and column alike.
-#[allow(clippy::needless_range_loop)]
-fn solve4(mut m: [[f64; 4]; 4], b: [[f64; 4]; 2]) -> Option<[[f64; 4]; 2]> {
-    let mut x = b;
-    for col in 0..4 {
-        let mut pivot = col;
-        for row in col + 1..4 {
-            if m[row][col].abs() >= m[pivot][col].abs() {
-                pivot = row;
-            }
-        }
-        if m[pivot][col] == 0.0 {
-            return None;
-        }
-        if pivot != col {
-            m.swap(pivot, col);
-            for v in &mut x {
-                v.swap(pivot, col);
-            }
-        }
-        let p = m[col][col];
-        let inv = p / (p * p);
-        for row in col + 1..4 {
-            let f = m[row][col] * inv;
-            if f == 0.0 {
-                continue;
-            }
-            for k in col + 1..4 {
-                let a = m[col][k];
-                m[row][k] -= f * a;
-            }
-            for v in &mut x {
-                let a = v[col];
-                v[row] -= f * a;
-            }
-        }
-    }
-    for v in &mut x {
-        for row in (0..4).rev() {
-            let mut acc = v[row];
-            for k in row + 1..4 {
-                acc -= m[row][k] * v[k];
-            }
-            let d = m[row][row];
-            v[row] = (acc * d) / (d * d);
-        }
-    }
-    x.iter().flatten().all(|z| z.is_finite()).then_some(x)
-}
-
-/// [`crate::optics::interface::lossless_part`] of a real T, in real numbers.
-fn lossless_part(t: &Matrix2<f64>) -> Matrix2<f64> {
-    let norm = t.norm();
-    if norm.is_nan() || norm <= 0.0 || norm.is_infinite() {
-        return Matrix2::zeros();
-    }
-    let t = t.map(|z| (z * norm) / (norm * norm));
-    let det = t[(0, 0)] * t[(1, 1)] - t[(0, 1)] * t[(1, 0)];
-    if det.abs() <= 1e-14 {
-        return t;
-    }
-    // |det| / conj(det) of a real det, as the complex quotient rounds.
-    let k = (det.abs() * det) / (det * det);
-    let adj_h = Matrix2::new(t[(1, 1)], -t[(1, 0)], -t[(0, 1)], t[(0, 0)]);
-    let m = t + adj_h * k;
-    m * (2f64.sqrt() / m.norm())
-}
-
-/// `e`/|e|, as the complex quotient of zero imaginary parts rounds.
-fn unit_field(e: &V3) -> V3 {
-    let n = e.norm();
-    if n > 0.0 { e.map(|z| (z * n) / (n * n)) } else { *e }
-}
-
-/// Where a ray's light is (lab frame), without its phase factor (module header).
-#[derive(Debug, Clone, Copy)]
-enum Carrier {
-    /// In an isotropic body of index `n` along `u`: field on the basis of `u` is M·J_in.
-    Free { n: f64, u: V3, m: Matrix2<f64> },
-    /// In a crystal, in mode `kind` of wave vector `q`, ray `ray` and field `e`:
-    /// amplitude `amp`·J_in.
-    Bound {
-        q: V3,
-        ray: V3,
-        e: V3,
-        kind: usize,
-        amp: [f64; 2],
-    },
-}
-
-impl Carrier {
-    fn q(&self) -> V3 {
-        match self {
-            Carrier::Free { n, u, .. } => u * *n,
-            Carrier::Bound { q, .. } => *q,
-        }
-    }
-
-    fn direction(&self) -> V3 {
-        match self {
-            Carrier::Free { u, .. } | Carrier::Bound { ray: u, .. } => *u,
-        }
-    }
-}
-
 /// One crossing's bodies: where the light comes from and where it goes, in the face's frame.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct Crossing {
@@ -369,16 +156,6 @@ pub(crate) struct PlannedSlab {
     pub(crate) exit: Option<Crossing>,
 }
 
-/// A ray in flight.
-#[derive(Debug, Clone, Copy)]
-struct Flight {
-    at: V3,
-    exit: V3,
-    carrier: Carrier,
-    /// Its label's letters so far as bits (mode 1 = 1), first crystal highest.
-    label: u32,
-}
-
 /// One ray that left the stack forward: what the workload's checksum reads of a traced path.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PlannedRay {
@@ -405,8 +182,8 @@ pub struct PlannedTrace {
     slabs: Vec<PlannedSlab>,
     letters: Vec<[char; 2]>,
     screen: Plane,
-    flights: Vec<Flight>,
-    next: Vec<Flight>,
+    /// The kernel's buffers at one lane (taken while it runs).
+    buffers: Option<LaneBuffers<1>>,
     rays: Vec<PlannedRay>,
 }
 
@@ -494,34 +271,28 @@ impl PlannedTrace {
             slabs,
             letters,
             screen: Plane::across_z(z + stack.screen_mm),
-            flights: Vec::with_capacity(1 << MAX_SLABS),
-            next: Vec::with_capacity(1 << MAX_SLABS),
+            buffers: Some(LaneBuffers::default()),
             rays: Vec::with_capacity(1 << MAX_SLABS),
         })
     }
 
-    // What the lanes (native only) read of the plan.
-    #[cfg(not(target_arch = "wasm32"))]
+    // What the kernel reads of the plan.
     pub(crate) fn ideal(&self) -> bool {
         self.losses == Losses::Ideal
     }
 
-    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn outside(&self) -> f64 {
         self.outside
     }
 
-    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn slabs(&self) -> &[PlannedSlab] {
         &self.slabs
     }
 
-    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn coherency(&self) -> [f64; 3] {
         self.coherency
     }
 
-    #[cfg(not(target_arch = "wasm32"))]
     pub(crate) fn screen(&self) -> &Plane {
         &self.screen
     }
@@ -540,89 +311,14 @@ impl PlannedTrace {
     /// (u_z > 0), or `None` when the plan declines this incidence (module header): the caller
     /// then traces it with the general tracer.
     pub fn trace(&mut self, u: V3) -> Option<&[PlannedRay]> {
-        self.flights.clear();
-        self.rays.clear();
-        self.flights.push(Flight {
-            at: V3::zeros(),
-            exit: V3::zeros(),
-            carrier: Carrier::Free {
-                n: self.outside,
-                u,
-                m: Matrix2::identity(),
-            },
-            label: 0,
-        });
-        let ideal = self.losses == Losses::Ideal;
-        for slab in &self.slabs {
-            self.next.clear();
-            for f in &self.flights {
-                let mut f = *f;
-                let entered = match &slab.entry {
-                    Entry::Outside(crossing) => {
-                        if !travel(&mut f, &slab.front) || slab.aperture.is_some_and(|a| !a.holds(f.at)) {
-                            continue;
-                        }
-                        cross(&f.carrier, crossing, ideal)?
-                    }
-                    Entry::Contact(first, None) => cross(&f.carrier, first, ideal)?,
-                    Entry::Contact(first, Some(second)) => {
-                        let [Some(in_film), None] = cross(&f.carrier, first, ideal)? else {
-                            return None;
-                        };
-                        cross(&in_film, second, ideal)?
-                    }
-                };
-                for (k, carrier) in entered.into_iter().enumerate() {
-                    let Some(carrier) = carrier else { continue };
-                    let mut g = Flight {
-                        exit: f.at,
-                        carrier,
-                        label: (f.label << 1) | k as u32,
-                        ..f
-                    };
-                    if !travel(&mut g, &slab.back) || slab.aperture.is_some_and(|a| !a.holds(g.at)) {
-                        continue;
-                    }
-                    match &slab.exit {
-                        Some(out) => {
-                            let [Some(c), None] = cross(&g.carrier, out, ideal)? else {
-                                return None;
-                            };
-                            self.next.push(Flight {
-                                exit: g.at,
-                                carrier: c,
-                                ..g
-                            });
-                        }
-                        None => self.next.push(g),
-                    }
-                }
-            }
-            std::mem::swap(&mut self.flights, &mut self.next);
+        let mut buffers = self.buffers.take().unwrap_or_default();
+        trace_block::<PORTABLE, 1>(self, &mut buffers, &[u], true);
+        let traced = buffers.rays.ok[0];
+        if traced {
+            lane_rays(&buffers.rays, 0, &mut self.rays);
         }
-        let [c11, c22, c12] = self.coherency;
-        for f in &self.flights {
-            let Carrier::Free { u, m, .. } = f.carrier else {
-                continue;
-            };
-            // The screen is met along the ray's whole line (as the general tracer meets it).
-            if self.screen.normal.dot(&u).abs() < 1e-15 {
-                continue;
-            }
-            let power = (0..2)
-                .map(|i| {
-                    let (a, b) = (m[(i, 0)], m[(i, 1)]);
-                    a * a * c11 + b * b * c22 + 2.0 * a * b * c12
-                })
-                .sum();
-            self.rays.push(PlannedRay {
-                label: f.label,
-                power,
-                direction: u,
-                exit_point_mm: f.exit,
-            });
-        }
-        Some(&self.rays)
+        self.buffers = Some(buffers);
+        traced.then_some(&self.rays[..])
     }
 }
 
@@ -636,64 +332,423 @@ fn exit_crossing(medium: &Medium, normal: V3, outside: f64) -> Option<Crossing> 
     })
 }
 
-/// Moves a ray along its direction to `plane`; false when it cannot get there.
-fn travel(f: &mut Flight, plane: &Plane) -> bool {
-    let dir = f.carrier.direction();
-    match plane.meet(f.at, dir) {
-        Some(s) => {
-            f.at += dir * s;
-            true
+/// One number per lane.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct F<const W: usize>(pub [f64; W]);
+
+/// A yes or no per lane.
+pub(crate) type Mask<const W: usize> = [bool; W];
+
+/// `[f(0), f(1), …]` by a plain loop, which is inlined into the vector builds (the standard
+/// arrays' `map` and `from_fn` stayed calls, compiled without the vector instructions).
+#[inline(always)]
+fn lanes<T: Copy + Default, const W: usize>(f: impl Fn(usize) -> T) -> [T; W] {
+    let mut out = [T::default(); W];
+    for (i, o) in out.iter_mut().enumerate() {
+        *o = f(i);
+    }
+    out
+}
+
+macro_rules! lanewise {
+    ($trait:ident, $method:ident, $op:tt) => {
+        impl<const W: usize> $trait for F<W> {
+            type Output = F<W>;
+            #[inline(always)]
+            fn $method(self, o: F<W>) -> F<W> {
+                F(lanes(|i| self.0[i] $op o.0[i]))
+            }
         }
-        None => false,
+        impl<const W: usize> $trait<f64> for F<W> {
+            type Output = F<W>;
+            #[inline(always)]
+            fn $method(self, o: f64) -> F<W> {
+                F(lanes(|i| self.0[i] $op o))
+            }
+        }
+    };
+}
+lanewise!(Add, add, +);
+lanewise!(Sub, sub, -);
+lanewise!(Mul, mul, *);
+lanewise!(Div, div, /);
+
+impl<const W: usize> Neg for F<W> {
+    type Output = F<W>;
+    #[inline(always)]
+    fn neg(self) -> F<W> {
+        F(lanes(|i| -self.0[i]))
     }
 }
 
-/// The transmission of a face in real numbers (entry (i, j) the amplitude of transmitted wave i
-/// for unit incident wave j; its unitary polar factor when `ideal`, as `parallel::slab_couplings`
-/// takes it), by eliminating the reflected waves instead of the 4×4 elimination of [`cross`]:
-/// with the tangential fields of each pair of waves as 2×2 matrices (columns the waves, E = (E_x,
-/// E_y), H = (Z0 H_x, Z0 H_y)), continuity E_I + E_R r = E_T t and H_I + H_R r = H_T t give, with
-/// the reflected waves' admittance Y = H_R E_R⁻¹,
-///
-/// ```text
-/// t = (H_T − Y E_T)⁻¹ (H_I − Y E_I),
-/// ```
-///
-/// the same t to rounding (`optics::conoscope` tests it against the complex 4×4 solve), at a
-/// fraction of the work. `None` when E_R or H_T − Y E_T is singular or nearly so (a determinant
-/// under 10⁻⁹ of its columns' norms' product), where the pivoted elimination is the safer one.
-#[inline(always)]
-fn block_transmission(
-    incident: &[Wave; 2],
-    reflected: &[Wave; 2],
-    transmitted: &[Wave; 2],
-    ideal: bool,
-) -> Option<Matrix2<f64>> {
-    let e = |w: &[Wave; 2]| Matrix2::new(w[0].e.x, w[1].e.x, w[0].e.y, w[1].e.y);
-    let h = |w: &[Wave; 2]| Matrix2::new(w[0].h.x, w[1].h.x, w[0].h.y, w[1].h.y);
-    let y = h(reflected) * safe_inverse(&e(reflected))?;
-    let t = safe_inverse(&(h(transmitted) - y * e(transmitted)))? * (h(incident) - y * e(incident));
-    Some(if ideal { lossless_part(&t) } else { t })
+impl<const W: usize> F<W> {
+    #[inline(always)]
+    fn splat(x: f64) -> F<W> {
+        F([x; W])
+    }
+    #[inline(always)]
+    fn map(self, f: impl Fn(f64) -> f64) -> F<W> {
+        F(lanes(|i| f(self.0[i])))
+    }
+    #[inline(always)]
+    fn sqrt(self) -> F<W> {
+        self.map(f64::sqrt)
+    }
+    #[inline(always)]
+    fn abs(self) -> F<W> {
+        self.map(f64::abs)
+    }
+    #[inline(always)]
+    fn test(self, o: F<W>, f: impl Fn(f64, f64) -> bool) -> Mask<W> {
+        lanes(|i| f(self.0[i], o.0[i]))
+    }
+    /// `a` where `m` holds, else `b`.
+    #[inline(always)]
+    fn pick(m: Mask<W>, a: F<W>, b: F<W>) -> F<W> {
+        F(lanes(|i| if m[i] { a.0[i] } else { b.0[i] }))
+    }
 }
 
-/// The inverse of a 2×2 matrix by its adjugate, `None` when its determinant is under 10⁻⁹ of the
-/// product of its columns' norms (nearly parallel columns).
+/// `x.is_finite()` as a floating-point test, x − x = 0 (NaN for ±∞ and NaN), which stays a
+/// vector subtraction and comparison: `is_finite`, an integer test of the bits, was compiled
+/// lane by lane in scalar registers.
+// The same operand on purpose: x − x is 0 exactly when x is finite.
+#[allow(clippy::eq_op)]
 #[inline(always)]
-fn safe_inverse(m: &Matrix2<f64>) -> Option<Matrix2<f64>> {
-    let det = m[(0, 0)] * m[(1, 1)] - m[(0, 1)] * m[(1, 0)];
-    let scale = m.column(0).norm() * m.column(1).norm();
-    (det.abs() > 1e-9 * scale).then(|| Matrix2::new(m[(1, 1)], -m[(0, 1)], -m[(1, 0)], m[(0, 0)]) / det)
+fn finite(x: f64) -> bool {
+    x - x == 0.0
 }
 
-/// The outside medium's waves at one tangential wave vector, forward then backward, as
-/// [`parallel_plate`] takes them: found once for every plate and wavelength of a direction.
+#[inline(always)]
+fn and<const W: usize>(a: Mask<W>, b: Mask<W>) -> Mask<W> {
+    lanes(|i| a[i] & b[i])
+}
+
+/// A vector per lane.
 #[derive(Debug, Clone, Copy)]
-pub(crate) struct OutsideWaves([[Wave; 2]; 2]);
+struct V<const W: usize> {
+    x: F<W>,
+    y: F<W>,
+    z: F<W>,
+}
 
-/// The waves of the outside medium of index `outside` at tangential wave vector `qt`, as
+impl<const W: usize> V<W> {
+    #[inline(always)]
+    fn splat(v: &Vector3<f64>) -> V<W> {
+        V {
+            x: F::splat(v.x),
+            y: F::splat(v.y),
+            z: F::splat(v.z),
+        }
+    }
+    #[inline(always)]
+    fn dot(&self, o: &V<W>) -> F<W> {
+        self.x * o.x + self.y * o.y + self.z * o.z
+    }
+    #[inline(always)]
+    fn cross(&self, o: &V<W>) -> V<W> {
+        V {
+            x: self.y * o.z - self.z * o.y,
+            y: self.z * o.x - self.x * o.z,
+            z: self.x * o.y - self.y * o.x,
+        }
+    }
+    #[inline(always)]
+    fn norm(&self) -> F<W> {
+        self.dot(self).sqrt()
+    }
+    #[inline(always)]
+    fn scale(&self, s: F<W>) -> V<W> {
+        V {
+            x: self.x * s,
+            y: self.y * s,
+            z: self.z * s,
+        }
+    }
+    #[inline(always)]
+    fn over(&self, s: F<W>) -> V<W> {
+        V {
+            x: self.x / s,
+            y: self.y / s,
+            z: self.z / s,
+        }
+    }
+    #[inline(always)]
+    fn sub(&self, o: &V<W>) -> V<W> {
+        V {
+            x: self.x - o.x,
+            y: self.y - o.y,
+            z: self.z - o.z,
+        }
+    }
+    #[inline(always)]
+    fn add(&self, o: &V<W>) -> V<W> {
+        V {
+            x: self.x + o.x,
+            y: self.y + o.y,
+            z: self.z + o.z,
+        }
+    }
+    /// m·v, summed as nalgebra sums it.
+    #[inline(always)]
+    fn rotated(&self, m: &Matrix3<f64>) -> V<W> {
+        let row = |i: usize| self.x * m[(i, 0)] + self.y * m[(i, 1)] + self.z * m[(i, 2)];
+        V {
+            x: row(0),
+            y: row(1),
+            z: row(2),
+        }
+    }
+    #[inline(always)]
+    fn lane(&self, i: usize) -> Vector3<f64> {
+        Vector3::new(self.x.0[i], self.y.0[i], self.z.0[i])
+    }
+}
+
+/// [`crate::optics::modes::beam_basis`] per lane.
+#[inline(always)]
+fn beam_basis<const W: usize>(u: &V<W>) -> (V<W>, V<W>) {
+    // Fields only (module header): products by one reciprocal.
+    let r = F::splat(1.0) / (u.z + 1.0);
+    let one = F::splat(1.0);
+    let xy = -u.x * u.y * r;
+    (
+        V {
+            x: one - u.x * u.x * r,
+            y: xy,
+            z: -u.x,
+        },
+        V {
+            x: xy,
+            y: one - u.y * u.y * r,
+            z: -u.y,
+        },
+    )
+}
+
+/// A propagating mode per lane: wave vector, field E and Z0 H (unit power flux across the face),
+/// ray direction (a unit vector where asked).
+#[derive(Debug, Clone, Copy)]
+struct Wave<const W: usize> {
+    q: V<W>,
+    e: V<W>,
+    h: V<W>,
+    ray: V<W>,
+}
+
+#[inline(always)]
+fn wave<const W: usize>(q: V<W>, e: V<W>, ray: V<W>, rays: bool) -> Wave<W> {
+    let h = q.cross(&e);
+    let sz = (e.x * h.y - e.y * h.x).abs();
+    let zero = F::splat(0.0);
+    let scale = F::pick(sz.test(zero, |a, b| a > b), F::splat(1.0) / sz.sqrt(), F::splat(1.0));
+    Wave {
+        q,
+        e: e.scale(scale),
+        h: h.scale(scale),
+        ray: if rays {
+            ray.scale(F::splat(1.0) / ray.norm())
+        } else {
+            ray
+        },
+    }
+}
+
+/// √x where the wave is safely propagating; `ok` loses the lanes where it is not.
+#[inline(always)]
+fn propagating_root<const W: usize>(x: F<W>, scale: f64, ok: &mut Mask<W>) -> F<W> {
+    *ok = and(*ok, x.test(F::splat(PLANNED_CRITICAL_MARGIN * scale), |a, b| a > b));
+    x.sqrt()
+}
+
+/// Both forward modes of `body` at tangential wave vector `qt`, in the face frame, as
+/// `isotropic_modes` and `crystal_modes_with` of [`crate::optics::modes`] find them; `ok` loses the
+/// lanes where one is not safely propagating or a wave runs along an optic axis. The backward
+/// modes are not made (the boundary problem is solved without them, [`transmission`]);
+/// `backward` keeps the general tracer's tests of their wave vectors, so that the plan declines
+/// what it declines.
+#[inline(always)]
+fn modes<const W: usize>(body: &Local, qt: [F<W>; 2], backward: bool, rays: bool, ok: &mut Mask<W>) -> [Wave<W>; 2] {
+    let qt_norm = (qt[0] * qt[0] + qt[1] * qt[1]).sqrt();
+    match body {
+        Local::Isotropic(n) => {
+            let n = *n;
+            let nn = F::splat(n);
+            let qz = propagating_root((nn - qt_norm) * (qt_norm + n), n * n, ok);
+            let q = V {
+                x: qt[0],
+                y: qt[1],
+                z: qz,
+            };
+            let (e1, e2) = beam_basis(&q.scale(F::splat(1.0 / n)));
+            // Both waves run along q: its unit vector made once.
+            let ray = if rays { q.over(q.norm()) } else { q };
+            // (The backward waves of an isotropic body meet no test of their own.)
+            let _ = backward;
+            [wave(q, e1, ray, false), wave(q, e2, ray, false)]
+        }
+        Local::Uniaxial(crystal, surfaces) => {
+            let no = crystal.indices.no;
+            let m = &surfaces.surface;
+            let qz_o = propagating_root((F::splat(no) - qt_norm) * (qt_norm + no), no * no, ok);
+            let a = m[(2, 2)];
+            let b = qt[0] * m[(2, 0)] + qt[1] * m[(2, 1)];
+            // The general tracer's sum's products, in its order (m₀₀ q_x) q_x + ((2 m₀₁) q_x) q_y + (m₁₁ q_y) q_y.
+            let c0 = qt[0] * m[(0, 0)] * qt[0] + qt[0] * (2.0 * m[(0, 1)]) * qt[1] + qt[1] * m[(1, 1)] * qt[1] - 1.0;
+            let ac0 = c0 * a;
+            let disc = b * b - ac0;
+            *ok = and(
+                *ok,
+                disc.test((b * b + ac0.abs()) * PLANNED_CRITICAL_MARGIN, |d, t| d > t),
+            );
+            let r = disc.sqrt();
+            let c = V::splat(&crystal.axis.unit());
+            let along = |z: F<W>| V { x: qt[0], y: qt[1], z };
+            if backward {
+                transverse_ordinary(&along(-qz_o), &c, ok);
+                transverse_ordinary(&along(e_root(a, b, c0, r, -1.0)), &c, ok);
+            }
+            crystal_pair(&c, surfaces, along(qz_o), along(e_root(a, b, c0, r, 1.0)), rays, ok)
+        }
+    }
+}
+
+/// The extraordinary root (−b + s·r)/a of a q_z² + 2 b q_z + c0 = 0 (r² = b² − a c0), computed
+/// without cancellation: one quotient per lane.
+#[inline(always)]
+fn e_root<const W: usize>(a: f64, b: F<W>, c0: F<W>, r: F<W>, s: f64) -> F<W> {
+    let plain = (b * s).test(F::splat(0.0), |x, z| x <= z);
+    let num = F::pick(plain, -b + r * s, c0);
+    let den = F::pick(plain, F::splat(a), -b - r * s);
+    num / den
+}
+
+/// The ordinary D ∥ q × c; `ok` loses the lanes where q runs along c. (The closed form also
+/// removes its component along q, which is rounding: a field, module header.)
+#[inline(always)]
+fn transverse_ordinary<const W: usize>(q: &V<W>, c: &V<W>, ok: &mut Mask<W>) -> V<W> {
+    let d = q.cross(c);
+    let qq = q.dot(q);
+    *ok = and(
+        *ok,
+        d.dot(&d)
+            .test(qq * (DEGENERATE_DIRECTION * DEGENERATE_DIRECTION), |a, b| a > b),
+    );
+    d
+}
+
+/// The ordinary and extraordinary waves of wave vectors `q_o`, `q_e` in the crystal of optic axis
+/// `c` and matrices `surfaces` (face frame), as `crystal_modes_with` forms them.
+#[inline(always)]
+fn crystal_pair<const W: usize>(
+    c: &V<W>,
+    surfaces: &crate::optics::modes::CrystalSurfaces,
+    q_o: V<W>,
+    q_e: V<W>,
+    rays: bool,
+    ok: &mut Mask<W>,
+) -> [Wave<W>; 2] {
+    let inv_eps = &surfaces.inverse_permittivity;
+    let d_o = transverse_ordinary(&q_o, c, ok);
+    let d_e = transverse_ordinary(&q_e, c, ok).cross(&q_e);
+    [
+        wave(q_o, d_o.rotated(inv_eps), q_o, rays),
+        wave(
+            q_e,
+            d_e.rotated(inv_eps),
+            if rays { q_e.rotated(&surfaces.surface) } else { q_e },
+            rays,
+        ),
+    ]
+}
+
+/// The transmission T of a face (`T[j][k]`: the amplitude of the transmitted wave `j` for unit
+/// amplitude of the incident wave `k`) from the forward waves on its two sides, `from` and `into`,
+/// by the flux form instead of the general tracer's 4×4 elimination.
+///
+/// Formula. With ⟨a, b⟩ = ẑ·(E_a × H_b + E_b × H_a) (tangential fields, face frame), waves of one
+/// lossless medium at one tangential wave vector with different q_z are orthogonal, ⟨a, b⟩ = 0 (the
+/// boundary problem's 4×4 system matrix for a real symmetric permittivity is self-adjoint under
+/// this form: Berreman, J. Opt. Soc. Am. 62, 502 (1972); P. Yeh, *Optical Waves in Layered
+/// Media*, 1988, ch. 9, for the power orthogonality of modes), and ⟨a, a⟩ = 2 for a forward wave
+/// of unit power flux. Applied to the boundary condition a_k + Σ r_jk a′_j = Σ t_jk b_j (a′: the
+/// reflected waves), ⟨a_i, ·⟩ leaves G t = 2 I with G_ij = ⟨a_i, b_j⟩, so T = 2 G⁻¹: two forward
+/// waves per side and a 2×2 inverse, where the general tracer makes the two reflected waves too
+/// and eliminates a 4×4 system (in exact arithmetic the same T; here to rounding, 10⁻¹⁵). The
+/// reflected waves and the elimination took two fifths of the time (10⁵ splitter traces in
+/// lanes, fastest of 15 in three interleaved pairs at load 2.8–4.4: 46–50 ms with them, 27–29 ms
+/// without; one by one 191–219 ms against 115–123 ms on-CPU; the same checksum).
+///
+/// `ok` loses the lanes where det G is not finite or within 10⁻¹² of zero relative to |G|²: the
+/// system is then singular or nearly so, as where that elimination meets a zero pivot. A
+/// passive face keeps |t| ≤ 1 in these units, so |G⁻¹| ≤ ½ and a propagating face never comes near.
+#[inline(always)]
+fn transmission<const W: usize>(from: &[Wave<W>; 2], into: &[Wave<W>; 2], ok: &mut Mask<W>) -> M2<W> {
+    let form = |a: &Wave<W>, b: &Wave<W>| a.e.x * b.h.y - a.e.y * b.h.x + (b.e.x * a.h.y - b.e.y * a.h.x);
+    let g = [
+        [form(&from[0], &into[0]), form(&from[0], &into[1])],
+        [form(&from[1], &into[0]), form(&from[1], &into[1])],
+    ];
+    let det = g[0][0] * g[1][1] - g[0][1] * g[1][0];
+    let size = norm2(&g);
+    *ok = and(
+        *ok,
+        lanes(|i| finite(det.0[i]) & (det.0[i].abs() > 1e-12 * size.0[i] * size.0[i])),
+    );
+    let s = F::splat(2.0) / det;
+    [[g[1][1] * s, -g[0][1] * s], [-g[1][0] * s, g[0][0] * s]]
+}
+
+/// A real 2×2 matrix per lane, rows first.
+type M2<const W: usize> = [[F<W>; 2]; 2];
+
+/// Frobenius norm, summed in nalgebra's (column) order.
+#[inline(always)]
+fn norm2<const W: usize>(t: &M2<W>) -> F<W> {
+    (t[0][0] * t[0][0] + t[1][0] * t[1][0] + t[0][1] * t[0][1] + t[1][1] * t[1][1]).sqrt()
+}
+
+/// [`crate::optics::interface::lossless_part`] of a real T per lane.
+#[inline(always)]
+fn lossless_part<const W: usize>(t: &M2<W>) -> M2<W> {
+    let norm = norm2(t);
+    let zero = F::splat(0.0);
+    let usable: Mask<W> = lanes(|i| {
+        let n = norm.0[i];
+        // Neither NaN, nor ≤ 0, nor infinite.
+        (n > 0.0) & finite(n)
+    });
+    let r = norm / (norm * norm);
+    let t = [[t[0][0] * r, t[0][1] * r], [t[1][0] * r, t[1][1] * r]];
+    let det = t[0][0] * t[1][1] - t[0][1] * t[1][0];
+    let rank_one = det.abs().test(F::splat(1e-14), |a, b| a <= b);
+    let k = (det.abs() * det) / (det * det);
+    let m = [
+        [t[0][0] + t[1][1] * k, t[0][1] + (-t[1][0]) * k],
+        [t[1][0] + (-t[0][1]) * k, t[1][1] + t[0][0] * k],
+    ];
+    let s = F::splat(2f64.sqrt()) / norm2(&m);
+    let entry = |r: usize, c: usize| F::pick(usable, F::pick(rank_one, t[r][c], m[r][c] * s), zero);
+    [[entry(0, 0), entry(0, 1)], [entry(1, 0), entry(1, 1)]]
+}
+
+/// The outside medium's forward waves at one tangential wave vector, as [`parallel_plate`] takes
+/// them: found once for every plate and wavelength of a direction.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct OutsideWaves([Wave<1>; 2]);
+
+/// The forward waves of the outside medium of index `outside` at tangential wave vector `qt`, as
 /// `isotropic_modes` gives them; `None` when they are not safely propagating.
 pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> {
-    modes(&Local::Isotropic(outside), qt, true, false).map(OutsideWaves)
+    let mut ok = [true];
+    let waves = modes(
+        &Local::Isotropic(outside),
+        [F([qt[0]]), F([qt[1]])],
+        true,
+        false,
+        &mut ok,
+    );
+    ok[0].then_some(OutsideWaves(waves))
 }
 
 /// A plane-parallel plate of `crystal` (lab frame, both faces across z) between half-spaces of
@@ -701,8 +756,10 @@ pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> 
 /// its entry coupling (outside beam basis to the crystal's modes, o then e), its exit coupling
 /// (the modes to the outside beam basis) and its forward modes' q_z, as
 /// `parallel::slab_couplings` and `crystal_modes` give them for propagating modes, to rounding
-/// (`optics::conoscope` tests the agreement). `None` where this module declines an incidence: a
-/// wave not safely propagating, a wave along the optic axis, a singular face.
+/// (`optics::conoscope` tests the agreement). Each face is solved by [`transmission`], the
+/// kernel's 2×2 flux-form solve, one lane wide. `None` where this module declines an incidence: a
+/// wave not safely propagating (backward waves included), a wave along the optic axis, a
+/// singular face.
 pub(crate) fn parallel_plate(
     crystal: &Uniaxial,
     surfaces: &CrystalSurfaces,
@@ -710,94 +767,451 @@ pub(crate) fn parallel_plate(
     qt: [f64; 2],
     ideal: bool,
 ) -> Option<(Matrix2<f64>, Matrix2<f64>, [f64; 2])> {
-    let [out_fwd, out_back] = &outside.0;
-    let [fwd, back] = modes(&Local::Uniaxial(*crystal, *surfaces), qt, true, false)?;
-    let t_in = block_transmission(out_fwd, out_back, &fwd, ideal)?;
-    let t_out = block_transmission(&fwd, &back, out_fwd, ideal)?;
-    Some((t_in, t_out, [fwd[0].q.z, fwd[1].q.z]))
+    let mut ok = [true];
+    let inside = modes(
+        &Local::Uniaxial(*crystal, *surfaces),
+        [F([qt[0]]), F([qt[1]])],
+        true,
+        false,
+        &mut ok,
+    );
+    let mut t_in = transmission(&outside.0, &inside, &mut ok);
+    let mut t_out = transmission(&inside, &outside.0, &mut ok);
+    if ideal {
+        t_in = lossless_part(&t_in);
+        t_out = lossless_part(&t_out);
+    }
+    let real = |t: &M2<1>| Matrix2::new(t[0][0].0[0], t[0][1].0[0], t[1][0].0[0], t[1][1].0[0]);
+    ok[0].then(|| (real(&t_in), real(&t_out), [inside[0].q.z.0[0], inside[1].q.z.0[0]]))
 }
 
-/// Crosses one face for one ray (the general tracer's `Tracer::cross` for propagating modes):
-/// the rays beyond it, at most one per mode (into an isotropic body, one ray in slot 0); `None`
-/// when a mode is not safely propagating, the carrier's modes share their wave vector, or the
-/// boundary problem is singular.
-fn cross(carrier: &Carrier, crossing: &Crossing, ideal: bool) -> Option<[Option<Carrier>; 2]> {
-    let Frame { frame, to_face } = &crossing.frame;
-    let q_face = to_face * carrier.q();
+/// `e`/|e| per lane, as the complex quotient of zero imaginary parts rounds.
+#[inline(always)]
+fn unit_field<const W: usize>(e: &V<W>) -> V<W> {
+    let n = e.norm();
+    let r = n / (n * n);
+    let has = n.test(F::splat(0.0), |a, b| a > b);
+    let f = |z: F<W>| F::pick(has, z * r, z);
+    V {
+        x: f(e.x),
+        y: f(e.y),
+        z: f(e.z),
+    }
+}
+
+/// Where a ray's light is, per lane (without its phase factor, module header); the kind of a ray's mode is
+/// the plan's, the same in every lane.
+// Made and copied by value at every crossing, in buffers kept between blocks: boxing the larger
+// variant would add an allocation per ray and crossing.
+#[allow(clippy::large_enum_variant)]
+#[derive(Debug, Clone, Copy)]
+enum Carrier<const W: usize> {
+    Free {
+        n: f64,
+        u: V<W>,
+        m: M2<W>,
+    },
+    Bound {
+        q: V<W>,
+        ray: V<W>,
+        e: V<W>,
+        kind: usize,
+        amp: [F<W>; 2],
+    },
+}
+
+impl<const W: usize> Carrier<W> {
+    #[inline(always)]
+    fn q(&self) -> V<W> {
+        match self {
+            Carrier::Free { n, u, .. } => u.scale(F::splat(*n)),
+            Carrier::Bound { q, .. } => *q,
+        }
+    }
+    #[inline(always)]
+    fn direction(&self) -> V<W> {
+        match self {
+            Carrier::Free { u, .. } | Carrier::Bound { ray: u, .. } => *u,
+        }
+    }
+}
+
+/// A ray in flight per lane.
+#[derive(Debug, Clone, Copy)]
+struct Flight<const W: usize> {
+    at: V<W>,
+    exit: V<W>,
+    carrier: Carrier<W>,
+    label: u32,
+    /// The lanes where the ray is still on its way (all, unless rays are dropped).
+    alive: Mask<W>,
+}
+
+/// Crosses one face for one ray per lane (the general tracer's `Tracer::cross` for propagating
+/// modes): the rays beyond it (one into an isotropic body, one per mode into a crystal); `ok`
+/// loses the lanes where a mode is not safely propagating, the carrier's modes share their wave
+/// vector, or the boundary problem is singular.
+///
+/// One copy per instruction set, called (not inlined) from each crossing of the plan: inlined,
+/// a block's five kinds of crossing made a kernel too large for the instruction cache.
+#[inline(always)]
+fn cross_with<const W: usize>(carrier: &Carrier<W>, crossing: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+    let frame = &crossing.frame.frame;
+    let q_face = carrier.q().rotated(&crossing.frame.to_face);
     let qt = [q_face.x, q_face.y];
-    let [a_fwd, a_back] = modes(&crossing.from, qt, true, false)?;
-    let [b_fwd, _] = modes(&crossing.into, qt, false, true)?;
-    // The carrier as amplitudes of the incident modes (rows), each a functional of J_in.
-    let mut a_in = Matrix2::zeros();
+    let a_fwd = modes(&crossing.from, qt, true, false, ok);
+    let b_fwd = modes(&crossing.into, qt, false, true, ok);
+    let zero = F::splat(0.0);
+    let mut a_in = [[zero; 2]; 2];
     match carrier {
         Carrier::Free { u, m, .. } => {
-            let (e1, e2) = beam_basis(*u);
+            let (e1, e2) = beam_basis(u);
             for (j, mode) in a_fwd.iter().enumerate() {
-                let ej = unit_field(&(frame * mode.e));
+                let ej = unit_field(&mode.e.rotated(frame));
                 let p = [ej.dot(&e1), ej.dot(&e2)];
                 for c in 0..2 {
-                    a_in[(j, c)] = p[0] * m[(0, c)] + p[1] * m[(1, c)];
+                    a_in[j][c] = p[0] * m[0][c] + p[1] * m[1][c];
                 }
             }
         }
         Carrier::Bound { e, kind, amp, .. } => {
-            // (Their distance in the face's frame: the same as in the lab's, a rotation apart.)
-            if (a_fwd[0].q - a_fwd[1].q).norm() <= DEGENERATE_DIRECTION {
-                return None;
-            }
-            // The ray is the incident mode of its own kind, up to the sign of the projection of
-            // its field on that mode's (the general tracer's unit-modulus p/|p|).
-            let p = (frame * a_fwd[*kind].e).dot(e);
-            if p != 0.0 {
-                let s = p.signum();
-                for c in 0..2 {
-                    a_in[(*kind, c)] = s * amp[c];
-                }
+            let apart = a_fwd[0].q.sub(&a_fwd[1].q).norm();
+            *ok = and(*ok, apart.test(F::splat(DEGENERATE_DIRECTION), |a, b| a > b));
+            let p = a_fwd[*kind].e.rotated(frame).dot(e);
+            // ±amp by the sign of p, nothing where p = 0 (a choice per lane, not a branch).
+            let (plus, minus) = (p.test(zero, |a, b| a > b), p.test(zero, |a, b| a < b));
+            for c in 0..2 {
+                a_in[*kind][c] = F::pick(plus, amp[c], F::pick(minus, -amp[c], zero));
             }
         }
     }
-    let tangential = |w: &Wave| [w.e.x, w.e.y, w.h.x, w.h.y];
-    let mut m = [[0.0; 4]; 4];
-    for (col, w) in [(0, &a_back[0]), (1, &a_back[1]), (2, &b_fwd[0]), (3, &b_fwd[1])] {
-        let f = tangential(w);
-        let sign = if col < 2 { -1.0 } else { 1.0 };
-        for row in 0..4 {
-            m[row][col] = sign * f[row];
-        }
-    }
-    let x = solve4(m, [tangential(&a_fwd[0]), tangential(&a_fwd[1])])?;
-    let t = Matrix2::new(x[0][2], x[1][2], x[0][3], x[1][3]);
+    let t = transmission(&a_fwd, &b_fwd, ok);
     let t = if ideal { lossless_part(&t) } else { t };
-    let out = t * a_in;
-    let lab = |w: &Wave| (frame * w.q, frame * w.ray, frame * w.e);
+    let entry = |k: usize, c: usize| t[k][0] * a_in[0][c] + t[k][1] * a_in[1][c];
+    let out: M2<W> = [[entry(0, 0), entry(0, 1)], [entry(1, 0), entry(1, 1)]];
     match crossing.into {
         Local::Isotropic(n) => {
-            let (_, u, _) = lab(&b_fwd[0]);
-            let (e1, e2) = beam_basis(u);
-            let mut m = Matrix2::zeros();
+            let u = b_fwd[0].ray.rotated(frame);
+            let (e1, e2) = beam_basis(&u);
+            let mut m = [[zero; 2]; 2];
             for (k, w) in b_fwd.iter().enumerate() {
-                let ek = unit_field(&(frame * w.e));
+                let ek = unit_field(&w.e.rotated(frame));
                 let d = [e1.dot(&ek), e2.dot(&ek)];
                 for i in 0..2 {
                     for c in 0..2 {
-                        m[(i, c)] += d[i] * out[(k, c)];
+                        m[i][c] = m[i][c] + d[i] * out[k][c];
                     }
                 }
             }
-            Some([Some(Carrier::Free { n, u, m }), None])
+            [Some(Carrier::Free { n, u, m }), None]
         }
-        Local::Uniaxial(..) => {
-            let bound = |k: usize| {
-                let (q, ray, e) = lab(&b_fwd[k]);
-                Carrier::Bound {
-                    q,
-                    ray,
-                    e,
-                    kind: k,
-                    amp: [out[(k, 0)], out[(k, 1)]],
-                }
-            };
-            Some([Some(bound(0)), Some(bound(1))])
+        Local::Uniaxial(..) => [
+            Some(bound(&b_fwd[0], frame, 0, out[0])),
+            Some(bound(&b_fwd[1], frame, 1, out[1])),
+        ],
+    }
+}
+
+/// A ray in mode `kind` of the wave `w` (face frame `frame`), of amplitudes `amp`.
+#[inline(always)]
+fn bound<const W: usize>(w: &Wave<W>, frame: &Matrix3<f64>, kind: usize, amp: [F<W>; 2]) -> Carrier<W> {
+    Carrier::Bound {
+        q: w.q.rotated(frame),
+        ray: w.ray.rotated(frame),
+        e: w.e.rotated(frame),
+        kind,
+        amp,
+    }
+}
+
+/// [`Plane::meet`] per lane, the ray moved there; `ok` loses the lanes where it cannot get there.
+#[inline(always)]
+fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
+    let dir = f.carrier.direction();
+    let to = V::splat(&plane.point).sub(&f.at);
+    let n = V::splat(&plane.normal);
+    let gap = n.dot(&to);
+    let scale = to.norm() + 1.0;
+    let on = gap.abs().test(scale * ON_PLANE, |a, b| a <= b);
+    let along = n.dot(&dir);
+    let s = gap / along;
+    // (`|` and `&`, not `||` and `&&`: no branch per lane.)
+    let ahead: Mask<W> = lanes(|i| on[i] | ((along.0[i].abs() >= 1e-15) & (s.0[i] >= -ON_PLANE * scale.0[i])));
+    *ok = and(*ok, ahead);
+    let s = F::pick(on, F::splat(0.0), s.map(|s| s.max(0.0)));
+    f.at = f.at.add(&dir.scale(s));
+}
+
+/// [`Aperture::holds`] per lane.
+#[inline(always)]
+fn holds<const W: usize>(aperture: &Option<Aperture>, at: &V<W>, ok: &mut Mask<W>) {
+    if let Some(a) = aperture {
+        let d = at.sub(&V::splat(&a.centre));
+        let axis = V::splat(&a.axis);
+        let off = d.sub(&axis.scale(d.dot(&axis)));
+        *ok = and(
+            *ok,
+            off.norm().test(F::splat(a.radius_mm * (1.0 + 1e-12)), |a, b| a <= b),
+        );
+    }
+}
+
+/// Buffers of a lane trace, kept between blocks, and the last block's rays.
+#[derive(Debug, Clone)]
+pub(crate) struct LaneBuffers<const W: usize> {
+    flights: Vec<Flight<W>>,
+    next: Vec<Flight<W>>,
+    pub(crate) rays: Box<LaneRays<W>>,
+}
+
+impl<const W: usize> Default for LaneBuffers<W> {
+    fn default() -> LaneBuffers<W> {
+        LaneBuffers {
+            flights: Vec::new(),
+            next: Vec::new(),
+            rays: Box::new(LaneRays {
+                ok: [false; W],
+                count: 0,
+                label: [0; 64],
+                alive: [[false; W]; 64],
+                power: [[0.0; W]; 64],
+                direction: [[Vector3::zeros(); W]; 64],
+                exit: [[Vector3::zeros(); W]; 64],
+            }),
         }
     }
+}
+
+/// The rays of one block: per ray (in the order [`PlannedTrace::trace`] lists them) its label,
+/// and per lane whether it left (`alive`), its power, direction and exit point; `ok` marks the
+/// lanes traced here.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct LaneRays<const W: usize> {
+    pub ok: Mask<W>,
+    pub count: usize,
+    pub label: [u32; 64],
+    pub alive: [Mask<W>; 64],
+    pub power: [[f64; W]; 64],
+    pub direction: [[Vector3<f64>; W]; 64],
+    pub exit: [[Vector3<f64>; W]; 64],
+}
+
+/// Traces one block of incidences `dirs` (unit, u_z > 0) through `plan`. A ray that misses a
+/// plane, an aperture or the screen is dropped in its lane where `drop_rays` (the one-by-one
+/// trace's rule, [`PlannedTrace::trace`]), else its lane is left to be traced alone.
+#[inline(always)]
+pub(crate) fn trace_block<const ISA: u8, const W: usize>(
+    plan: &PlannedTrace,
+    buffers: &mut LaneBuffers<W>,
+    dirs: &[Vector3<f64>; W],
+    drop_rays: bool,
+) {
+    let mut ok = [true; W];
+    let ideal = plan.ideal();
+    let identity = [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]];
+    let LaneBuffers {
+        flights,
+        next,
+        rays: out,
+    } = buffers;
+    flights.clear();
+    flights.push(Flight {
+        at: V::splat(&Vector3::zeros()),
+        exit: V::splat(&Vector3::zeros()),
+        carrier: Carrier::Free {
+            n: plan.outside(),
+            u: V {
+                x: F(lanes(|i| dirs[i].x)),
+                y: F(lanes(|i| dirs[i].y)),
+                z: F(lanes(|i| dirs[i].z)),
+            },
+            m: identity,
+        },
+        label: 0,
+        alive: [true; W],
+    });
+    for slab in plan.slabs() {
+        next.clear();
+        for f in flights.iter() {
+            let mut f = *f;
+            let entered = match &slab.entry {
+                Entry::Outside(crossing) => {
+                    if !to_plane(&mut f, &slab.front, &slab.aperture, drop_rays, &mut ok) {
+                        continue;
+                    }
+                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok)
+                }
+                Entry::Contact(first, None) => cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok),
+                Entry::Contact(first, Some(second)) => {
+                    let [Some(in_film), None] = cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok)
+                    else {
+                        return out.ok = [false; W];
+                    };
+                    cross_alive::<ISA, W>(&in_film, second, ideal, &f.alive, &mut ok)
+                }
+            };
+            for (k, carrier) in entered.into_iter().enumerate() {
+                let Some(carrier) = carrier else { continue };
+                let mut g = Flight {
+                    exit: f.at,
+                    carrier,
+                    label: (f.label << 1) | k as u32,
+                    ..f
+                };
+                if !to_plane(&mut g, &slab.back, &slab.aperture, drop_rays, &mut ok) {
+                    continue;
+                }
+                match &slab.exit {
+                    Some(exit) => {
+                        let [Some(c), None] = cross_alive::<ISA, W>(&g.carrier, exit, ideal, &g.alive, &mut ok) else {
+                            return out.ok = [false; W];
+                        };
+                        next.push(Flight {
+                            exit: g.at,
+                            carrier: c,
+                            ..g
+                        });
+                    }
+                    None => next.push(g),
+                }
+            }
+        }
+        std::mem::swap(flights, next);
+    }
+    let [c11, c22, c12] = plan.coherency();
+    let screen = plan.screen().normal;
+    out.count = 0;
+    for f in flights.iter() {
+        let Carrier::Free { u, m, .. } = f.carrier else {
+            continue;
+        };
+        // The screen is met along the ray's whole line (as the general tracer meets it).
+        let along = V::splat(&screen).dot(&u);
+        let meets = along.abs().test(F::splat(1e-15), |a, b| a >= b);
+        let alive = if drop_rays {
+            and(f.alive, meets)
+        } else {
+            ok = and(ok, meets);
+            f.alive
+        };
+        let term = |i: usize| {
+            let (a, b) = (m[i][0], m[i][1]);
+            a * a * c11 + b * b * c22 + a * b * 2.0 * c12
+        };
+        let power = term(0) + term(1);
+        let r = out.count;
+        out.label[r] = f.label;
+        out.alive[r] = alive;
+        out.power[r] = power.0;
+        out.direction[r] = std::array::from_fn(|i| u.lane(i));
+        out.exit[r] = std::array::from_fn(|i| f.exit.lane(i));
+        out.count += 1;
+    }
+    out.ok = ok;
+}
+
+/// A ray's way to a face `plane` of a slab of aperture `aperture`: where it misses, dropped
+/// (`drop_rays`) or its lane lost; false when it is dropped in every lane. (This and
+/// [`cross_alive`] are functions, not closures of [`trace_block`]: a closure there was compiled
+/// apart from the kernel's build and not inlined, an eighth of the lanes' time, profiled.)
+#[inline(always)]
+fn to_plane<const W: usize>(
+    f: &mut Flight<W>,
+    plane: &Plane,
+    aperture: &Option<Aperture>,
+    drop_rays: bool,
+    ok: &mut Mask<W>,
+) -> bool {
+    let mut hit = f.alive;
+    travel(f, plane, &mut hit);
+    holds(aperture, &f.at, &mut hit);
+    if drop_rays {
+        f.alive = hit;
+    } else {
+        *ok = and(*ok, hit);
+    }
+    f.alive.iter().any(|&a| a)
+}
+
+/// One crossing of a ray: the lanes it declines are lost where the ray is on its way (`alive`).
+#[inline(always)]
+fn cross_alive<const ISA: u8, const W: usize>(
+    c: &Carrier<W>,
+    crossing: &Crossing,
+    ideal: bool,
+    alive: &Mask<W>,
+    ok: &mut Mask<W>,
+) -> Beyond<W> {
+    let mut fine = [true; W];
+    let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
+    *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
+    beyond
+}
+
+/// The rays of lane `lane` of a block, as [`PlannedTrace::trace`] lists them, into `into`.
+pub(crate) fn lane_rays<const W: usize>(rays: &LaneRays<W>, lane: usize, into: &mut Vec<PlannedRay>) {
+    into.clear();
+    into.extend((0..rays.count).filter(|&r| rays.alive[r][lane]).map(|r| PlannedRay {
+        label: rays.label[r],
+        power: rays.power[r][lane],
+        direction: rays.direction[r][lane],
+        exit_point_mm: rays.exit[r][lane],
+    }));
+}
+
+/// The rays beyond a face: one into an isotropic body (slot 0), one per mode into a crystal.
+type Beyond<const W: usize> = [Option<Carrier<W>>; 2];
+
+/// The builds of the kernel, by instruction set (a const parameter of [`trace_block`]).
+pub(crate) const PORTABLE: u8 = 0;
+#[cfg(target_arch = "x86_64")]
+pub(crate) const AVX2: u8 = 1;
+#[cfg(target_arch = "x86_64")]
+pub(crate) const AVX512: u8 = 2;
+
+/// [`cross_with`] compiled for AVX2 (and FMA, which it leaves unused: no product is fused).
+///
+/// # Safety
+/// The processor must have AVX2 and FMA.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2,fma")]
+#[inline(never)]
+unsafe fn cross_avx2<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+    cross_with(c, at, ideal, ok)
+}
+
+/// [`cross_with`] compiled for AVX-512 (one register per lane number).
+///
+/// # Safety
+/// The processor must have AVX-512 F, DQ and VL.
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx512f,avx512dq,avx512vl,avx2,fma")]
+#[inline(never)]
+unsafe fn cross_avx512<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+    cross_with(c, at, ideal, ok)
+}
+
+/// [`cross_with`] as the target's baseline instructions compile it.
+#[inline(never)]
+fn cross_portable<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+    cross_with(c, at, ideal, ok)
+}
+
+/// One crossing by the build `ISA` of the kernel that calls it.
+#[inline(always)]
+fn cross<const ISA: u8, const W: usize>(
+    carrier: &Carrier<W>,
+    crossing: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+) -> Beyond<W> {
+    // SAFETY (both calls): a kernel of build `ISA` runs only after `trace_lanes` has found its
+    // instruction sets on the processor, the one requirement of the crossing of that build.
+    #[cfg(target_arch = "x86_64")]
+    match ISA {
+        AVX512 => return unsafe { cross_avx512(carrier, crossing, ideal, ok) },
+        AVX2 => return unsafe { cross_avx2(carrier, crossing, ideal, ok) },
+        _ => {}
+    }
+    cross_portable(carrier, crossing, ideal, ok)
 }
