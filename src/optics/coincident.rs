@@ -19,7 +19,7 @@
 use crate::optics::conoscope::{conoscope_stack_ok, set_up_matrix};
 use crate::optics::modes::Travel;
 use crate::optics::spots::power_of;
-use crate::optics::stack::{Element, Stack};
+use crate::optics::stack::{Element, Medium, Stack};
 use crate::precision::SITE_FRACTION_OF_RADIUS;
 
 /// The total forward power of `stack` when all its rays leave from one point (see the module's
@@ -31,14 +31,27 @@ pub fn coincident_power(stack: &Stack) -> Option<f64> {
     let qt = stack.tangential();
     let tolerance = SITE_FRACTION_OF_RADIUS * 0.5 * stack.input.diameter_mm;
     let mut spread = 0.0;
+    // The parting of a plate's two rays per unit thickness depends on its medium alone, and a
+    // filter repeats one medium plate after plate: each medium's modes are solved once.
+    let mut last: Option<(Medium, Option<f64>)> = None;
     for layer in &stack.layers {
         let Element::Slab(slab) = layer.element else {
             continue;
         };
-        let [a, b] = slab.medium.modes(qt, Travel::Forward);
-        if let (Some(s), Some(t)) = (a.ray_direction(), b.ray_direction()) {
-            let l = slab.thickness_mm;
-            spread += l * (s.x / s.z - t.x / t.z).hypot(s.y / s.z - t.y / t.z);
+        let per_mm = match last {
+            Some((medium, per_mm)) if medium == slab.medium => per_mm,
+            _ => {
+                let [a, b] = slab.medium.modes(qt, Travel::Forward);
+                let per_mm = match (a.ray_direction(), b.ray_direction()) {
+                    (Some(s), Some(t)) => Some((s.x / s.z - t.x / t.z).hypot(s.y / s.z - t.y / t.z)),
+                    _ => None,
+                };
+                last = Some((slab.medium, per_mm));
+                per_mm
+            }
+        };
+        if let Some(per_mm) = per_mm {
+            spread += slab.thickness_mm * per_mm;
         }
     }
     (spread <= tolerance).then(|| power_of(&set_up_matrix(stack, qt), &stack.input.stokes))
