@@ -230,7 +230,7 @@ pub fn declined_samples(stack: &Stack, n: usize) -> usize {
 }
 
 /// How many of the `n` whole-trace samples of `stack` the planned trace in lanes traces one by one
-/// ([`BlockedTrace::trace_each`]: lanes it could not take to their end, declined samples
+/// (`BlockedTrace::trace_each`, native only: lanes it could not take to their end, declined samples
 /// included): all of them when the stack gets no plan.
 pub fn samples_traced_alone(stack: &Stack, n: usize) -> usize {
     lane_part(stack, n, 0..n).2

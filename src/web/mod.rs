@@ -518,7 +518,7 @@ impl Session {
     }
 
     /// Gives the convergent-light view `view` (`conoscope` or `acceptance`) what the page's worker
-    /// found for the session's scenario: its map as [`convergent_map`] returns it (`pixels` per
+    /// found for the session's scenario: its map as the design worker's `convergentMap` returns it (`pixels` per
     /// side, `values` row-major from the top row with NaN outside the cone, their `min` and
     /// `max`), or, when `message` is not empty, the error `{field, message}` it met. Drawing the
     /// view then shows it, until the next scenario is traced.
