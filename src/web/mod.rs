@@ -281,7 +281,8 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
 /// and the numpy baseline).
 ///
 /// # Errors
-/// The scenario's first error, naming its field; an unknown `work`.
+/// `{field, message}`: the scenario's first error, naming its field; `work` when it is none of
+/// the three.
 #[cfg(feature = "design-worker")]
 #[wasm_bindgen(js_name = benchSplitter)]
 pub fn bench_splitter(doc: &str, n: usize, work: &str) -> Result<f64, JsValue> {
@@ -290,7 +291,7 @@ pub fn bench_splitter(doc: &str, n: usize, work: &str) -> Result<f64, JsValue> {
         "trace" => Workload::Trace,
         "general" => Workload::GeneralTrace,
         "split" => Workload::Split,
-        _ => return Err(JsValue::from_str("work: one of trace, general, split")),
+        _ => return Err(js_error(Error::new("work", "one of trace, general, split"))),
     };
     let (stack, _) = Scenario::from_json_str(doc)
         .and_then(|s| s.resolve())
