@@ -8,7 +8,9 @@
 //! angle θ_in by Γ ≈ d (n_e − n_o) sin²θ_in (a length); between crossed polarizers at wavelength λ
 //! the first dark ring lies where Γ = λ, and outside sin θ = n_o sin θ_in.
 
-use doublespar::{Colour, Scenario, trace_scenario, white_light_at, white_light_note, white_light_of};
+use doublespar::{
+    Colour, Scenario, trace_scenario, white_light_at, white_light_note, white_light_of, white_light_part,
+};
 use serde_json::Value;
 
 /// A c-cut quartz plate of `mm` (no optical activity) between polarizers at 0° and `analyser_deg`.
@@ -65,6 +67,50 @@ fn each_direction_s_colour_is_the_whole_trace_s() {
     let rgba = map.rgba();
     assert_eq!(rgba.len(), 100);
     assert_eq!(&rgba[0..4], &[0, 0, 0, 0], "transparent outside the cone");
+}
+
+/// A figure shared among workers: the parts' rows put together are the whole figure bit for
+/// bit (natively the whole is itself computed on the machine's threads, in other parts), each
+/// part's other rows are empty, and a bad split names its field.
+#[test]
+fn a_figure_s_parts_put_together_are_the_whole_figure() {
+    let sc = scenario(&c_cut(2.0, 90.0));
+    let side = 37;
+    let whole = white_light_of(&sc, 30.0, side).unwrap();
+    assert_eq!(
+        whole.colours[18 * side + 18],
+        Some(white_light_at(&sc, 0.0, 0.0).unwrap())
+    );
+    for parts in [1, 2, 3, 5] {
+        let mut joined = vec![None; side * side];
+        for part in 0..parts {
+            let map = white_light_part(&sc, 30.0, side, part, parts).unwrap();
+            assert_eq!((map.pixels, map.colours.len()), (side, side * side));
+            let rows = side * part / parts..side * (part + 1) / parts;
+            for (row, line) in map.colours.chunks(side).enumerate() {
+                if rows.contains(&row) {
+                    joined[row * side..(row + 1) * side].copy_from_slice(line);
+                } else {
+                    assert!(
+                        line.iter().all(Option::is_none),
+                        "part {part} of {parts} drew row {row}"
+                    );
+                }
+            }
+        }
+        assert!(
+            joined == whole.colours,
+            "{parts} parts put together differ from the whole figure"
+        );
+    }
+    for (part, parts, field) in [
+        (0, 0, "conoscope.parts"),
+        (0, 17, "conoscope.parts"),
+        (3, 3, "conoscope.part"),
+    ] {
+        let e = white_light_part(&sc, 30.0, side, part, parts).unwrap_err();
+        assert_eq!(e.field, field, "{part} of {parts}: {}", e.message);
+    }
 }
 
 /// The centre of a c-cut plate's figure (light along the optic axis, no retardance) is black

@@ -18,7 +18,11 @@
 // White light: with the switch #conoscope-white on, each request also asks for the conoscopic
 // figure in white light (the request's white_pixels, WHITE_PIXELS per side: every direction at
 // the colour tables' 81 wavelengths), which the worker sends last; it is drawn as one ImageData on
-// its own canvas, with the core's note of the sampling below it.
+// its own canvas, with the core's note of the sampling below it. The figure is 81 times a map's
+// work, so its rows are shared among WHITE_PARTS workers (as many as the machine has cores, at
+// most 4): the views' worker computes the first part after its maps, and helper workers (started
+// with the first white-light request and kept) the others; the parts are put together by the
+// core's rule (part k of n: rows ⌊side·k/n⌋ to ⌊side·(k+1)/n⌋) and drawn when all have arrived.
 //
 // Contract: views.js sets state.convergent.drawByName(name) (redraws one view) and calls
 // lacksConvergent and needConvergent; the test hook reads state.convergent's busy and ms (for
@@ -30,6 +34,7 @@ import { startCoreWorker } from './core-worker.js';
 const PIXELS = 256;
 const WHITE_PIXELS = 256;
 const VIEWS = ['conoscope', 'acceptance'];
+const WHITE_PARTS = Math.min(4, Math.max(1, navigator.hardwareConcurrency || 1));
 
 const whiteOn = () => document.getElementById('conoscope-white')?.checked === true;
 
@@ -47,13 +52,28 @@ function wireWhite(state) {
   });
 }
 
-/** Draws the worker's white-light figure (RGBA bytes) and its note. */
-function drawWhite(colour) {
+/**
+ * Draws the workers' white-light figure from its parts (each `{colour}` or `{error}`, in order:
+ * RGBA bytes of the whole figure with only the part's rows drawn) and its note, or the first
+ * part's error.
+ */
+function drawWhite(parts) {
+  const note = document.getElementById('conoscope-white-note');
+  const bad = parts.find((p) => !p.colour);
+  if (bad) {
+    setText(note, `White light not drawn: ${bad.error?.message} (${bad.error?.field}).`);
+    return;
+  }
+  const { pixels } = parts[0].colour;
+  const rgba = new Uint8ClampedArray(pixels * pixels * 4);
+  parts.forEach(({ colour }, k) => {
+    const [from, to] = [k, k + 1].map((i) => Math.floor((pixels * i) / parts.length) * pixels * 4);
+    rgba.set(colour.rgba.subarray(from, to), from);
+  });
   const canvas = document.getElementById('conoscope-white-canvas');
-  canvas.width = canvas.height = colour.pixels;
-  const rgba = new Uint8ClampedArray(colour.rgba.buffer, colour.rgba.byteOffset, colour.rgba.length);
-  canvas.getContext('2d').putImageData(new ImageData(rgba, colour.pixels, colour.pixels), 0, 0);
-  setText(document.getElementById('conoscope-white-note'), `White light: ${colour.note}.`);
+  canvas.width = canvas.height = pixels;
+  canvas.getContext('2d').putImageData(new ImageData(rgba, pixels, pixels), 0, 0);
+  setText(note, `White light: ${parts[0].colour.note}.`);
 }
 
 /**
@@ -70,22 +90,27 @@ function setBusy(busy, text) {
   setText(document.getElementById('convergent-status'), text);
 }
 
-/** Ends the worker (a new one starts with the next request) and says why. */
+/** Ends the workers (new ones start with the next request) and says why. */
 function failed(c, why) {
   c.worker?.terminate();
+  c.helpers?.forEach((w) => w.terminate());
   c.worker = c.busy = null;
+  c.helpers = [];
   setBusy(false, `Convergent light could not be computed: ${why}`);
 }
+
+/** Whether `w` is one of the convergent views' current workers. */
+const ours = (c, w) => w === c.worker || (c.helpers ?? []).includes(w);
 
 function startWorker(state) {
   const c = state.convergent;
   const w = startCoreWorker();
-  w.onmessage = (ev) => w === c.worker && onAnswer(state, ev.data);
+  w.onmessage = (ev) => ours(c, w) && onAnswer(state, ev.data);
   w.onerror = (ev) => {
     ev.preventDefault();
-    if (w === c.worker) failed(c, ev.message || 'the worker stopped');
+    if (ours(c, w)) failed(c, ev.message || 'the worker stopped');
   };
-  return (c.worker = w);
+  return w;
 }
 
 /**
@@ -101,23 +126,29 @@ export function needConvergent(state) {
     c.again ||= c.busy.text !== text;
     return;
   }
+  const white = whiteOn() ? WHITE_PIXELS : 0;
+  const parts = white ? WHITE_PARTS : 1;
   let w;
   try {
-    w = c.worker ?? startWorker(state);
+    w = c.worker ??= startWorker(state);
+    c.helpers ??= [];
+    while (c.helpers.length < parts - 1) c.helpers.push(startWorker(state));
   } catch (e) {
     failed(c, e?.message ?? e);
     return;
   }
   c.have.clear();
   c.nextId += 1;
-  c.busy = { id: c.nextId, text, posted: performance.now() };
+  // Each worker asked sends one answer marked `last`; the white-light parts gather in `white`.
+  c.busy = { id: c.nextId, text, posted: performance.now(), waiting: parts, parts, white: white ? [] : null };
   c.again = false;
   // A set-up with a liquid-crystal cell is computed at fewer directions (the core's cap): the
   // status names what was computed once the maps arrive.
   c.pixels = 0;
   setBusy(true, `Computing up to ${PIXELS} × ${PIXELS} directions in the background…`);
-  const white = whiteOn() ? WHITE_PIXELS : 0;
-  w.postMessage({ type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, views: VIEWS, white_pixels: white });
+  const ask = { type: 'convergent', id: c.nextId, scenario: text, pixels: PIXELS, white_pixels: white };
+  w.postMessage({ ...ask, views: VIEWS, white_part: [0, parts] });
+  for (let k = 1; k < parts; k += 1) c.helpers[k - 1].postMessage({ ...ask, views: [], white_part: [k, parts] });
 }
 
 function onAnswer(state, msg) {
@@ -125,11 +156,14 @@ function onAnswer(state, msg) {
   const { busy } = c;
   if (msg?.type !== 'convergent' || msg.id !== busy?.id) return;
   const current = state.session.scenarioJson() === busy.text;
-  if (current && msg.view === 'white') {
-    if (msg.colour) drawWhite(msg.colour);
-    else setText(document.getElementById('conoscope-white-note'), `White light not drawn: ${msg.error?.message} (${msg.error?.field}).`);
-    c.have.add(`white ${busy.text}`);
-    c.ms.white = performance.now() - busy.posted;
+  if (msg.view === 'white') {
+    busy.white[msg.part >>> 0] = msg;
+    const parts = [...busy.white];
+    if (current && parts.length === busy.parts && parts.every(Boolean)) {
+      drawWhite(parts);
+      c.have.add(`white ${busy.text}`);
+      c.ms.white = performance.now() - busy.posted;
+    }
   } else if (current) {
     const { map = {}, error = {} } = msg;
     try {
@@ -144,7 +178,7 @@ function onAnswer(state, msg) {
     c.ms[msg.view] = performance.now() - busy.posted;
   }
   if (msg.internal) failed(c, msg.error.message);
-  else if (msg.last) {
+  else if (msg.last && --busy.waiting === 0) {
     c.busy = null;
     if (c.again || !current) needConvergent(state);
     const n = c.pixels || PIXELS;

@@ -14,18 +14,21 @@
 //                                                          run: with monte_carlo filled in)
 //                   {type: 'error', id, error: {field, message}, internal}
 //                   {type: 'failed', message}              the core could not be loaded
-//   page -> worker  {type: 'convergent', id, scenario, pixels, views, white_pixels}
-//                   scenario: JSON text; views: some of 'conoscope', 'acceptance';
+//   page -> worker  {type: 'convergent', id, scenario, pixels, views, white_pixels, white_part}
+//                   scenario: JSON text; views: some of 'conoscope', 'acceptance' (or none);
 //                   white_pixels (optional, 0 or absent for none): also the conoscopic figure in
-//                   white light at that many pixels per side (1 to 256), after the views
+//                   white light at that many pixels per side (1 to 256), after the views;
+//                   white_part (optional, [0, 1] when absent): [k, n], only the k-th of n
+//                   parts of its rows, so that n workers share the figure
 //   worker -> page  {type: 'convergent', id, view, last, map: {pixels, min, max, values}}
 //                   or {type: 'convergent', id, view, last, error: {field, message}, internal}
 //                   one per view, in the order asked, `last` on the last; values a Float64Array
 //                   (transferred) row-major from the top row, NaN outside the cone
-//   worker -> page  {type: 'convergent', id, view: 'white', last: true, colour: {pixels, rgba, note}}
-//                   or {…, error: {field, message}}: the white-light figure, when white_pixels
-//                   asked for it (the last answer then); rgba a Uint8Array (transferred) of
-//                   pixels × pixels × 4 bytes for an ImageData, transparent outside the cone
+//   worker -> page  {type: 'convergent', id, view: 'white', part, last: true, colour: {pixels, rgba, note}}
+//                   or {…, error: {field, message}}: the white-light figure (its part `part`),
+//                   when white_pixels asked for it (the last answer then); rgba a Uint8Array
+//                   (transferred) of pixels × pixels × 4 bytes for an ImageData, with only the
+//                   part's rows drawn (the core's part_rows), transparent outside the cone
 //                   (fewer pixels than asked for a set-up with a liquid-crystal cell: the core's
 //                   cap); note: the illuminant, observer and wavelengths sampled
 //
@@ -97,9 +100,10 @@ function convergent(msg) {
     }
   });
   if (!white) return;
-  const answer = { type: 'convergent', id: msg.id, view: 'white', last: true };
+  const [part, parts] = Array.isArray(msg.white_part) ? msg.white_part.map((v) => v >>> 0) : [0, 1];
+  const answer = { type: 'convergent', id: msg.id, view: 'white', part, last: true };
   try {
-    const rgba = convergentWhite(String(msg.scenario), white);
+    const rgba = convergentWhite(String(msg.scenario), white, part, parts);
     const pixels = Math.round(Math.sqrt(rgba.length / 4));
     self.postMessage({ ...answer, colour: { pixels, rgba, note: convergentWhiteNote(pixels) } }, [rgba.buffer]);
   } catch (e) {

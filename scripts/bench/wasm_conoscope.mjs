@@ -4,12 +4,15 @@
 // (convergentMap; its checksum is the sum of the values inside the cone), and, for the page's own
 // build (size-tuned), the time to build the `conoscope` view's scene from such a map handed to
 // the session (session.setConvergent + session.scene), the page's share of the work; and the
-// white-light figure (convergentWhite) at 128 and 256 per side. Medians of 9 runs (3 in white
-// light); prints one JSON line.
+// white-light figure (convergentWhite) at 128 and 256 per side, and at 256 shared as the page
+// shares it between two workers (two worker threads here, each loading the module, each drawing
+// half the rows; timed from asking to both halves back, the modules loaded beforehand). Medians
+// of 9 runs (3 in white light); prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 import { performance } from 'node:perf_hooks';
+import { Worker } from 'node:worker_threads';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const doc = readFileSync(join(root, 'scripts', 'bench', 'conoscope.json'), 'utf8');
@@ -46,8 +49,36 @@ for (const v of values) {
 const cell = readFileSync(join(root, 'examples', 'twisted-nematic-cell.json'), 'utf8');
 const [msCell48] = median(() => worker.convergentMap(cell, 'conoscope', 48));
 const [msCell128, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 128), 3);
-const [msWhite128] = median(() => worker.convergentWhite(doc, 128), 3);
-const [msWhite256] = median(() => worker.convergentWhite(doc, 256), 3);
+const [msWhite128] = median(() => worker.convergentWhite(doc, 128, 0, 1), 3);
+const [msWhite256] = median(() => worker.convergentWhite(doc, 256, 0, 1), 3);
+// The page's split: part k of 2 in each of two threads.
+const threadCode = `
+  const { parentPort, workerData } = require('node:worker_threads');
+  const { readFileSync } = require('node:fs');
+  import(workerData.glue).then((glue) => {
+    glue.initSync({ module: readFileSync(workerData.wasm) });
+    parentPort.on('message', ({ part, parts }) => {
+      const rgba = glue.convergentWhite(workerData.doc, 256, part, parts);
+      parentPort.postMessage(rgba.length);
+    });
+    parentPort.postMessage('ready');
+  });`;
+const threads = [0, 1].map(() => new Worker(threadCode, {
+  eval: true,
+  workerData: { doc, glue: join(root, 'www', 'pkg-design', 'doublespar.js'), wasm: join(root, 'www', 'pkg-design', 'doublespar_bg.wasm') },
+}));
+const answer = (w) => new Promise((resolve) => w.once('message', resolve));
+await Promise.all(threads.map(answer));
+const msWhiteTwo = [];
+for (let i = 0; i < 3; i++) {
+  const t = performance.now();
+  const done = threads.map(answer);
+  threads.forEach((w, part) => w.postMessage({ part, parts: 2 }));
+  await Promise.all(done);
+  msWhiteTwo.push(performance.now() - t);
+}
+msWhiteTwo.sort((a, b) => a - b);
+await Promise.all(threads.map((w) => w.terminate()));
 const page = await load('pkg');
 const session = new page.Session();
 session.updateJson(doc);
@@ -66,4 +97,5 @@ console.log(JSON.stringify({
   cell_conoscope_128_values: cellValues.length,
   white_conoscope_128_worker_build_ms: msWhite128,
   white_conoscope_256_worker_build_ms: msWhite256,
+  white_conoscope_256_two_threads_ms: msWhiteTwo[1],
 }));

@@ -237,29 +237,119 @@ fn colour_at(stacks: &[Stack], polar: f64, azimuth: f64) -> Colour {
 
 /// The conoscopic figure of `sc` in white light over a cone of `cone_deg` at `pixels` per side
 /// (at most [`MAX_PIXELS_WHITE_WITH_CELL`] when the set-up holds a liquid-crystal cell; the map
-/// says how many).
+/// says how many). Natively its rows are computed on the machine's threads (at most 8), in
+/// contiguous parts as [`white_light_part`] gives them: every direction is independent, so the
+/// colours do not depend on the split.
 ///
 /// # Errors
 /// `conoscope.cone_deg` outside (0, 80]; `conoscope.pixels` outside 1 to [`MAX_PIXELS_WHITE`];
 /// from [`Scenario::resolve`] at any of the tables' wavelengths (the message names it);
 /// `elements[i]` for an element convergent light is not solved for.
 pub fn white_light_of(sc: &Scenario, cone_deg: f64, pixels: usize) -> Result<ColourMap, Error> {
+    let (stacks, grid) = white_light_grid(sc, cone_deg, pixels)?;
+    let threads = if cfg!(target_arch = "wasm32") {
+        1
+    } else {
+        std::thread::available_parallelism().map_or(1, |n| n.get()).min(8)
+    };
+    let colours = if threads == 1 || grid.pixels < 16 {
+        colours_of_rows(&stacks, grid, 0..grid.pixels)
+    } else {
+        std::thread::scope(|scope| {
+            let parts: Vec<_> = (0..threads)
+                .map(|k| {
+                    let stacks = &stacks;
+                    scope.spawn(move || colours_of_rows(stacks, grid, part_rows(grid.pixels, k, threads)))
+                })
+                .collect();
+            let mut colours = Vec::with_capacity(grid.pixels * grid.pixels);
+            for (k, part) in parts.into_iter().enumerate() {
+                // A part's thread cannot panic (the colour of a direction is infallible); were it
+                // to, its rows are computed here instead.
+                colours.extend(
+                    part.join()
+                        .unwrap_or_else(|_| colours_of_rows(&stacks, grid, part_rows(grid.pixels, k, threads))),
+                );
+            }
+            colours
+        })
+    };
+    Ok(ColourMap {
+        cone_deg,
+        pixels: grid.pixels,
+        colours,
+    })
+}
+
+/// The most parts a white-light figure may be split into ([`white_light_part`]).
+pub const MAX_PARTS: usize = 16;
+
+/// The rows of part `part` (from 0) of `parts` of a figure of `pixels` rows: from
+/// ⌊pixels·part/parts⌋ up to ⌊pixels·(part + 1)/parts⌋, so the parts in order tile the rows (the
+/// page's worker parts are put together by the same rule, `www/convergent.js`).
+pub fn part_rows(pixels: usize, part: usize, parts: usize) -> std::ops::Range<usize> {
+    let parts = parts.max(1);
+    pixels * part / parts..pixels * (part + 1) / parts
+}
+
+/// Part `part` (from 0) of `parts` of [`white_light_of`]'s figure, so that several workers can
+/// share it: the whole figure's size, with the colours of the part's rows ([`part_rows`]) alone
+/// and `None` in every other row. The parts' rows put together are the whole figure, bit for
+/// bit (tested).
+///
+/// # Errors
+/// As [`white_light_of`]; `conoscope.parts` outside 1 to [`MAX_PARTS`]; `conoscope.part` not
+/// below `parts`.
+pub fn white_light_part(
+    sc: &Scenario,
+    cone_deg: f64,
+    pixels: usize,
+    part: usize,
+    parts: usize,
+) -> Result<ColourMap, Error> {
+    if !(1..=MAX_PARTS).contains(&parts) {
+        return Err(Error::new(
+            "conoscope.parts",
+            format!("a white-light figure is split into 1 to {MAX_PARTS} parts, got {parts}"),
+        ));
+    }
+    if part >= parts {
+        return Err(Error::new(
+            "conoscope.part",
+            format!("the part must be from 0 to {} (parts − 1), got {part}", parts - 1),
+        ));
+    }
+    let (stacks, grid) = white_light_grid(sc, cone_deg, pixels)?;
+    let rows = part_rows(grid.pixels, part, parts);
+    let mut colours = vec![None; rows.start * grid.pixels];
+    colours.extend(colours_of_rows(&stacks, grid, rows));
+    colours.resize(grid.pixels * grid.pixels, None);
+    Ok(ColourMap {
+        cone_deg,
+        pixels: grid.pixels,
+        colours,
+    })
+}
+
+/// The stacks of a white-light figure ([`white_light_stacks`]) and its grid, the cap for a
+/// set-up with a liquid-crystal cell applied.
+fn white_light_grid(sc: &Scenario, cone_deg: f64, pixels: usize) -> Result<(Vec<Stack>, Grid), Error> {
     check_grid(cone_deg, pixels, MAX_PIXELS_WHITE)?;
     let stacks = white_light_stacks(sc)?;
     let cell = stacks.iter().any(|s| !s.cells.is_empty());
     let grid = grid_of(cone_deg, pixels, cell.then_some(MAX_PIXELS_WHITE_WITH_CELL));
-    let pixels = grid.pixels;
-    let mut colours = Vec::with_capacity(pixels * pixels);
-    for row in 0..pixels {
-        for column in 0..pixels {
-            colours.push(grid.direction(column, row).map(|(p, a)| colour_at(&stacks, p, a)));
+    Ok((stacks, grid))
+}
+
+/// The colours of `rows` of `grid`, row-major, through the white-light stacks.
+fn colours_of_rows(stacks: &[Stack], grid: Grid, rows: std::ops::Range<usize>) -> Vec<Option<Colour>> {
+    let mut colours = Vec::with_capacity(rows.len() * grid.pixels);
+    for row in rows {
+        for column in 0..grid.pixels {
+            colours.push(grid.direction(column, row).map(|(p, a)| colour_at(stacks, p, a)));
         }
     }
-    Ok(ColourMap {
-        cone_deg,
-        pixels,
-        colours,
-    })
+    colours
 }
 
 /// The white-light colour of `sc` at one direction (`polar_deg`, `azimuth_deg`) in the outside

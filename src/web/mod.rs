@@ -328,21 +328,24 @@ pub fn convergent_map(doc: &str, view: &str, pixels: usize) -> Result<Vec<f64>, 
     Ok(map.values.iter().map(|v| v.unwrap_or(f64::NAN)).collect())
 }
 
-/// The conoscopic figure in white light of the scenario `doc` (JSON text) over the views' 30° cone
-/// at `pixels` per side (fewer for a set-up with a liquid-crystal cell: the core's cap), for the
-/// page's worker: RGBA bytes row-major from the top row, transparent outside the cone, ready for
-/// an ImageData (its side is the square root of a quarter of its length); what it shows and its
-/// sampling are [`convergent_white_note`]'s.
+/// Part `part` (from 0) of `parts` of the conoscopic figure in white light of the scenario `doc`
+/// (JSON text) over the views' 30° cone at `pixels` per side (fewer for a set-up with a
+/// liquid-crystal cell: the core's cap), for the page's workers, which share the figure's rows:
+/// RGBA bytes of the whole figure, row-major from the top row, with only the part's rows drawn
+/// (`contract::conoscope::part_rows`; every other pixel transparent) and transparent outside the
+/// cone; its side is the square root of a quarter of its length. What it shows and its sampling
+/// are [`convergent_white_note`]'s.
 ///
 /// # Errors
-/// `{field, message}`: `conoscope.pixels` outside 1 to 256, the scenario's first error at any
-/// wavelength of the colour tables, or the element convergent light is not solved for.
+/// `{field, message}`: `conoscope.pixels` outside 1 to 256, `conoscope.parts` outside 1 to 16,
+/// `conoscope.part` not below it, the scenario's first error at any wavelength of the colour
+/// tables, or the element convergent light is not solved for.
 #[cfg(feature = "design-worker")]
 #[wasm_bindgen(js_name = convergentWhite)]
-pub fn convergent_white(doc: &str, pixels: usize) -> Result<Vec<u8>, JsValue> {
-    use crate::contract::conoscope::white_light_of;
+pub fn convergent_white(doc: &str, pixels: usize, part: usize, parts: usize) -> Result<Vec<u8>, JsValue> {
+    use crate::contract::conoscope::white_light_part;
     let map = Scenario::from_json_str(doc)
-        .and_then(|s| white_light_of(&s, CONE_DEG, pixels))
+        .and_then(|s| white_light_part(&s, CONE_DEG, pixels, part, parts))
         .map_err(js_error)?;
     Ok(map.rgba())
 }

@@ -186,8 +186,13 @@ test('white light: the switch draws the interference colours computed in the wor
       for (let i = 0; i < d.length; i += 4) {
         if (d[i + 3] === 255) chroma = Math.max(chroma, Math.max(d[i], d[i + 1], d[i + 2]) - Math.min(d[i], d[i + 1], d[i + 2]));
       }
+      // The middle column lies inside the cone in every row: a part of the rows that no worker
+      // drew would leave it transparent there.
+      const blankRows = [];
+      for (let y = 0; y < c.height; y += 1) if (at(c.width / 2, y)[3] !== 255) blankRows.push(y);
       return {
         side: [c.width, c.height],
+        blankRows,
         hidden: document.getElementById('conoscope-white-box').hidden,
         centre: at(c.width / 2, c.height / 2),
         corner: at(0, 0),
@@ -196,8 +201,9 @@ test('white light: the switch draws the interference colours computed in the wor
         ms: window.doublespar.convergent().ms.white,
       };
     });
-    console.log(`white-light figure, 256 × 256, in the worker (with the two 256 × 256 maps): ${Math.round(shown.ms)} ms`);
+    console.log(`white-light figure, 256 × 256, in the workers (with the two 256 × 256 maps): ${Math.round(shown.ms)} ms`);
     assert.deepEqual(shown.side, [256, 256]);
+    assert.deepEqual(shown.blankRows, [], 'every part of the rows is drawn');
     assert.equal(shown.hidden, false);
     assert.deepEqual(shown.corner, [0, 0, 0, 0], 'transparent outside the cone');
     // Along the axis there is no retardance: black between crossed polarizers (common practice).
