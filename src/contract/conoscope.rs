@@ -293,13 +293,13 @@ pub fn part_rows(pixels: usize, part: usize, parts: usize) -> std::ops::Range<us
 }
 
 /// Part `part` (from 0) of `parts` of [`white_light_of`]'s figure, so that several workers can
-/// share it: the whole figure's size, with the colours of the part's rows (⌊pixels·part/parts⌋ up to ⌊pixels·(part + 1)/parts⌋) alone
-/// and `None` in every other row. The parts' rows put together are the whole figure, bit for
-/// bit (tested).
+/// share it: the whole figure's size, with the colours of the part's rows (⌊pixels·part/parts⌋
+/// up to ⌊pixels·(part + 1)/parts⌋) alone and `None` in every other row. The parts' rows put
+/// together are the whole figure, bit for bit (tested).
 ///
 /// # Errors
-/// As [`white_light_of`]; `conoscope.parts` outside 1 to 16; `conoscope.part` not
-/// below `parts`.
+/// As [`white_light_of`]; `conoscope.parts` outside 1 to 16; `conoscope.part` not below
+/// `parts`.
 pub fn white_light_part(
     sc: &Scenario,
     cone_deg: f64,
