@@ -154,6 +154,12 @@ export function needConvergent(state) {
 function onAnswer(state, msg) {
   const c = state.convergent;
   const { busy } = c;
+  // A worker that could not load the core answers nothing more: without this, the request
+  // would wait for it for ever.
+  if (msg?.type === 'failed') {
+    failed(c, msg.message);
+    return;
+  }
   if (msg?.type !== 'convergent' || msg.id !== busy?.id) return;
   const current = state.session.scenarioJson() === busy.text;
   if (msg.view === 'white') {
