@@ -66,6 +66,7 @@ assert abs(n["splitter_lane_trace_checksum"] - sb["splitter_trace_checksum"]) < 
 for key in ("splitter_trace_checksum", "splitter_split_checksum"):
     assert abs(n[key] - sb[key]) < 1e-9 * abs(sb[key]), f"native and numpy disagree on {key}: {n[key]} vs {sb[key]}"
     assert abs(n[key] - w[key]) < 1e-9 * abs(w[key]), f"native and wasm disagree on {key}"
+assert abs(n["splitter_trace_checksum"] - w["splitter_trace_each_checksum"]) < 1e-9 * abs(w["splitter_trace_each_checksum"]), "native and wasm one by one disagree on the whole traces"
 assert abs(n["walkoff_sweep_checksum"] - b["walkoff_sweep_checksum"]) < 1e-6 * abs(b["walkoff_sweep_checksum"]), "the two sweeps disagree"
 assert abs(n["walkoff_sweep_checksum"] - w["walkoff_sweep_checksum"]) < 1e-9 * abs(w["walkoff_sweep_checksum"]), "native and wasm sweeps disagree"
 one, two, base = n["walkoff_sweep_one_thread_1e6_ms"], n["walkoff_sweep_1e6_ms"], b["walkoff_sweep_1e6_ms"]
@@ -80,7 +81,7 @@ for label, key, threads_key in (("whole traces (4 rays, fields and powers)", "sp
     nn, nt, ww, bb = n[key], n[threads_key], w[key], sb[key]
     print(f"  two-wedge splitter, 10^5 {label}: native on {n['splitter_threads']} threads {nt:.1f} ms ({1e5 / nt * 1e3:.0f}/s), on one {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm (one thread) {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nt:.1f}x on {n['splitter_threads']} threads, {bb / nn:.1f}x on one, wasm {bb / ww:.1f}x numpy (target 20x)")
 ln1, lnt, bb = n["splitter_lane_trace_1e5_ms"], n["splitter_lane_trace_threads_1e5_ms"], sb["splitter_trace_1e5_ms"]
-print(f"  two-wedge splitter, 10^5 whole traces in lanes (blocks of incidences side by side; {n['splitter_lane_trace_alone']} samples traced one by one): native on {n['splitter_threads']} threads {lnt:.1f} ms ({1e5 / lnt * 1e3:.0f}/s), on one {ln1:.1f} ms ({1e5 / ln1 * 1e3:.0f}/s), numpy {bb:.1f} ms: native {bb / lnt:.1f}x on {n['splitter_threads']} threads, {bb / ln1:.1f}x on one (target 20x)")
+print(f"  two-wedge splitter, 10^5 whole traces in lanes (blocks of incidences side by side; {n['splitter_lane_trace_alone']} samples traced one by one): native on {n['splitter_threads']} threads {lnt:.1f} ms ({1e5 / lnt * 1e3:.0f}/s), on one {ln1:.1f} ms ({1e5 / ln1 * 1e3:.0f}/s), numpy {bb:.1f} ms: native {bb / lnt:.1f}x on {n['splitter_threads']} threads, {bb / ln1:.1f}x on one (target 20x); wasm (one thread) in lanes {w['splitter_trace_1e5_ms']:.1f} ms, one by one {w['splitter_trace_each_1e5_ms']:.1f} ms: {bb / w['splitter_trace_1e5_ms']:.1f}x and {bb / w['splitter_trace_each_1e5_ms']:.1f}x numpy")
 g = n["splitter_general_trace_1e5_ms"]
 print(f"  two-wedge splitter, whole traces by the planned trace ({n['splitter_trace_declined']} of 10^5 samples declined to the general tracer); by the general tracer alone {g:.1f} ms on one thread, native {sb['splitter_trace_1e5_ms'] / g:.1f}x numpy that way")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")

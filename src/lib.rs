@@ -63,9 +63,9 @@ pub use optics::material::{
     keys as material_keys, optical_activity, spread as source_spread, standard_air_index, vacuum_from_air,
 };
 pub use optics::modes::{Mode, Travel, crystal_modes};
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub use optics::planned_lanes::{BlockedTrace, LANES as PLANNED_LANES, LaneBuild};
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub use optics::planned_trace::{PlannedRay, PlannedTrace};
 pub use optics::plate::{plate_optics, tangential};
 pub use optics::stack::{Element as StackElement, Medium as StackMedium, Stack};

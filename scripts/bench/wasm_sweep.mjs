@@ -1,7 +1,8 @@
 // The core's benchmarks in WebAssembly under Node (the design module's build), for
 // scripts/bench.sh to set beside the native figures: the dense 10^6-point walk-off sweep, and
-// the two-wedge splitter's 10^5 whole traces (by the planned trace, and by the general tracer for
-// comparison) and 10^5 split angles (scripts/bench/
+// the two-wedge splitter's 10^5 whole traces (by the planned trace in blocks of incidences side
+// by side, by the same one incidence at a time, and by the general tracer for comparison) and
+// 10^5 split angles (scripts/bench/
 // two-wedge-splitter.json, the workload of src/optics/workload.rs). Prints one JSON line.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -34,6 +35,7 @@ function median(times, f) {
 }
 const splitter = readFileSync(join(root, 'scripts', 'bench', 'two-wedge-splitter.json'), 'utf8');
 const [traceMs, traceSum] = median(5, () => glue.benchSplitter(splitter, 100_000, 'trace'));
+const [eachMs, eachSum] = median(5, () => glue.benchSplitter(splitter, 100_000, 'each'));
 const [generalMs, generalSum] = median(3, () => glue.benchSplitter(splitter, 100_000, 'general'));
 const [splitMs, splitSum] = median(7, () => glue.benchSplitter(splitter, 100_000, 'split'));
 console.log(JSON.stringify({
@@ -43,6 +45,8 @@ console.log(JSON.stringify({
   walkoff_sweep_checksum: sum,
   splitter_trace_1e5_ms: traceMs,
   splitter_trace_checksum: traceSum,
+  splitter_trace_each_1e5_ms: eachMs,
+  splitter_trace_each_checksum: eachSum,
   splitter_general_trace_1e5_ms: generalMs,
   splitter_general_trace_checksum: generalSum,
   splitter_split_1e5_ms: splitMs,

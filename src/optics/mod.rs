@@ -18,12 +18,10 @@ pub mod material;
 pub mod modes;
 pub mod parallel;
 pub mod planar;
-// The planned trace natively and in the design worker's WebAssembly (its workload and
-// benchmark); the page's own module, which has no room for it, traces every sample with the
-// general tracer. The lanes natively only: in the worker they took a third less time than the
-// planned trace alone but grew its module by 82 KB (the single offline file by 38 KiB) for the
-// benchmark alone, since the worker's tolerance run perturbs the stack at every sample.
-#[cfg(not(target_arch = "wasm32"))]
+// The planned trace, one by one and in lanes, natively and in the design worker's WebAssembly
+// (its workload and benchmark); the page's own module, which has no room for them, traces every
+// sample with the general tracer.
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub mod planned_lanes;
 #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub mod planned_trace;

@@ -18,16 +18,25 @@
 //! compiled for AVX2 or AVX-512 ([`trace_lanes`] picks one at run time) and the portable build
 //! give the same bits. Eight lanes rather than four: one AVX-512 register per number took about a
 //! tenth less time than one AVX2 register on this kind of processor, and sixteen (two registers)
-//! no less. Natively only: the kernel's portable build at eight lanes grew the design worker's
-//! WebAssembly by 82 KB.
+//! no less.
+//!
+//! In the design worker's WebAssembly (built with its 128-bit SIMD, two f64 per register) a block
+//! is four lanes. At eight, LLVM turns the kernel's lane loops into f64x2 instructions all the
+//! same (four per operation), but the engine's code for them keeps a number in four of its sixteen
+//! vector registers and spends a third of the crossings' time moving values to and from the stack
+//! (profiled under Node with `perf`); at four the spills are fewer and the blocks took about a tenth
+//! less time (10⁵ splitter traces, least CPU time of 11–15 interleaved runs at load 2.6–3.5: 80–89
+//! ms against 92–99 ms; two lanes 103 ms, one by one 135 ms), and the module grows by 35 KB
+//! instead of 59 KB.
 
 #[cfg(target_arch = "x86_64")]
 use crate::optics::planned_trace::{AVX2, AVX512};
 use crate::optics::planned_trace::{LaneBuffers, PORTABLE, PlannedRay, PlannedTrace, lane_rays, trace_block};
 use nalgebra::Vector3;
 
-/// Incidences per block: eight f64 fill one AVX-512 register (two AVX2 registers).
-pub const LANES: usize = 8;
+/// Incidences per block: eight f64 fill one AVX-512 register (two AVX2 registers); four in
+/// WebAssembly (module header).
+pub const LANES: usize = if cfg!(target_arch = "wasm32") { 4 } else { 8 };
 
 /// [`trace_block`] compiled for AVX2.
 ///

@@ -31,8 +31,9 @@
 //! One kernel at any lane width. The work per incidence is written once, on a block of W
 //! incidences side by side, each number held as one f64 per incidence ([`F`]): W = 1 is
 //! [`PlannedTrace::trace`] (natively and in the design worker's WebAssembly; the page's module
-//! has neither), W = 8 is `optics::planned_lanes::BlockedTrace`, natively, where the compiler
-//! turns every operation into one vector instruction. Every branch that depends on the numbers
+//! has neither), W = 8 is `optics::planned_lanes::BlockedTrace` natively (W = 4 in the design
+//! worker's WebAssembly), where the compiler turns every operation into vector instructions (one
+//! AVX-512 instruction natively, two of WebAssembly's f64x2 in the worker). Every branch that depends on the numbers
 //! is a per-lane choice: the root of the extraordinary quadratic taken without cancellation, a
 //! mode's scale, the sign that matches a ray to its incident mode, the polar factor's rank-one
 //! case, and whether a ray meets a plane, an aperture or the screen (one by one, a ray that

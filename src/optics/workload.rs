@@ -11,8 +11,8 @@
 //!   declines by the general tracer (natively and in the design worker's WebAssembly; the page's
 //!   module holds no plan and traces every sample by the general tracer); [`Workload::LaneTrace`]
 //!   the same sum with the planned trace run on blocks of incidences side by side
-//!   ([`BlockedTrace::trace_each`]: the same rays, the same checksum to rounding; natively only:
-//!   WebAssembly holds no lanes and runs it as `Trace`);
+//!   ([`BlockedTrace::trace_each`]: the same rays to the bit, so the same checksum; natively and
+//!   in the design worker's WebAssembly: the page's module holds no lanes and runs it as `Trace`);
 //!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
 //!   are measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
@@ -22,7 +22,7 @@
 use crate::optics::chain::ChainPlan;
 use crate::optics::geometry::direction;
 use crate::optics::planar::PlanarTracer;
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 use crate::optics::planned_lanes::BlockedTrace;
 #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 use crate::optics::planned_trace::PlannedTrace;
@@ -164,13 +164,13 @@ fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
 }
 
 /// Incidences per call of [`BlockedTrace::trace_each`]: a few thousand bytes of directions.
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 const LANE_CALL: usize = 256;
 
 /// The whole-trace checksum of samples `part` of `n` by the planned trace in lanes, how many
 /// samples it declined (traced by the general tracer instead) and how many it traced one by one
 /// (declined ones included).
-#[cfg(not(target_arch = "wasm32"))]
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
     let Some(plan) = PlannedTrace::new(stack) else {
         let (sum, declined) = general_part(stack, n, part);
@@ -202,8 +202,8 @@ fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize)
     (sum, declined, alone)
 }
 
-/// WebAssembly holds no lanes: the lanes' workload is the planned one's.
-#[cfg(target_arch = "wasm32")]
+/// The page's WebAssembly holds no lanes: the lanes' workload is the planned one's.
+#[cfg(all(target_arch = "wasm32", not(feature = "design-worker")))]
 fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize) {
     let (sum, declined) = planned_part(stack, n, part);
     (sum, declined, declined)
@@ -230,8 +230,8 @@ pub fn declined_samples(stack: &Stack, n: usize) -> usize {
 }
 
 /// How many of the `n` whole-trace samples of `stack` the planned trace in lanes traces one by one
-/// (`BlockedTrace::trace_each`, native only: lanes it could not take to their end, declined samples
-/// included): all of them when the stack gets no plan.
+/// (`BlockedTrace::trace_each`: lanes it could not take to their end, declined samples included):
+/// all of them when the stack gets no plan.
 pub fn samples_traced_alone(stack: &Stack, n: usize) -> usize {
     lane_part(stack, n, 0..n).2
 }

@@ -276,22 +276,24 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
 
 /// Benchmark hook: the two-wedge workload of [`crate::optics::workload`] on the scenario `doc`
 /// (JSON text; scripts/bench/two-wedge-splitter.json), `n` samples of `work`: `"trace"` (whole
-/// traces by the planned trace), `"general"` (the same by the general tracer) or `"split"` (split
+/// traces by the planned trace in blocks of incidences side by side), `"each"` (the same one
+/// incidence at a time), `"general"` (the same by the general tracer) or `"split"` (split
 /// angles), returning its checksum (scripts/bench.sh runs it under Node beside the native build
 /// and the numpy baseline).
 ///
 /// # Errors
 /// `{field, message}`: the scenario's first error, naming its field; `work` when it is none of
-/// the three.
+/// the four.
 #[cfg(feature = "design-worker")]
 #[wasm_bindgen(js_name = benchSplitter)]
 pub fn bench_splitter(doc: &str, n: usize, work: &str) -> Result<f64, JsValue> {
     use crate::optics::workload::{Workload, run};
     let work = match work {
-        "trace" => Workload::Trace,
+        "trace" => Workload::LaneTrace,
+        "each" => Workload::Trace,
         "general" => Workload::GeneralTrace,
         "split" => Workload::Split,
-        _ => return Err(js_error(Error::new("work", "one of trace, general, split"))),
+        _ => return Err(js_error(Error::new("work", "one of trace, each, general, split"))),
     };
     let (stack, _) = Scenario::from_json_str(doc)
         .and_then(|s| s.resolve())
