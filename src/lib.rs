@@ -45,7 +45,7 @@ pub use optics::colorimetry::Colour;
 
 // Physics.
 pub use optics::anisotropic::{Anisotropic, ModeLetters, orientation};
-pub use optics::coincident::coincident_power;
+pub use optics::coincident::coincident_stokes;
 pub use optics::conoscope::Quantity as ConoscopeQuantity;
 pub use optics::general_modes::general_modes;
 pub use optics::jones::{Jones, JonesMatrix, retarder as retarder_matrix, stokes as jones_stokes};

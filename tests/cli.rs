@@ -16,7 +16,12 @@ use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 
-const TABLES: [&str; 3] = ["demo", "recombiner", "partial-polarization-three-elements"];
+const TABLES: [&str; 4] = [
+    "demo",
+    "recombiner",
+    "partial-polarization-three-elements",
+    "spectrum-quartz-plate",
+];
 
 fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_doublespar"))

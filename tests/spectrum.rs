@@ -1,9 +1,10 @@
 //! Spectra through the whole contract: `spectrum` {from_nm, to_nm, points} read, checked and
-//! written back, and the result's transmission against wavelength compared with textbook
-//! closed forms evaluated here from the catalogue's cited dispersion formula (quartz: G. Ghosh,
-//! Opt. Commun. 163, 95 (1999)).
+//! written back, and the result's transmission and output Stokes vector against wavelength
+//! compared with textbook closed forms evaluated here from the catalogue's cited dispersion
+//! formula (quartz: G. Ghosh, Opt. Commun. 163, 95 (1999)) and with Jones computations written
+//! here.
 
-use doublespar::{Scenario, coincident_power, trace_scenario};
+use doublespar::{Scenario, coincident_stokes, trace_scenario};
 use serde_json::Value;
 use std::f64::consts::PI;
 
@@ -49,6 +50,108 @@ fn spectrum_of(doc: &str) -> (Vec<f64>, Vec<Option<f64>>, Vec<String>) {
         nums(&s["transmission"]),
         warnings,
     )
+}
+
+/// The spectrum's `stokes` [S0, S1, S2, S3] | null and `degree_of_polarization` of `doc`, from
+/// the result's JSON.
+fn stokes_of(doc: &str) -> (Vec<Option<[f64; 4]>>, Vec<Option<f64>>) {
+    let r = serde_json::to_value(trace_scenario(&Scenario::from_json_str(doc).unwrap()).unwrap()).unwrap();
+    let s = &r["spectrum"];
+    let stokes = s["stokes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_array().map(|a| std::array::from_fn(|k| a[k].as_f64().unwrap())))
+        .collect();
+    let dop = s["degree_of_polarization"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(Value::as_f64)
+        .collect();
+    (stokes, dop)
+}
+
+#[test]
+fn a_plate_at_45_degrees_turns_linear_light_through_the_ellipses_of_its_retardance() {
+    // Textbook Jones result (Born & Wolf §1.4.2 / §10.8, from memory), with the conventions of
+    // ../shared/CONVENTIONS.md: time dependence exp(i(k·r − ωt)), so the slow e-wave of quartz
+    // (n_e > n_o), polarized along the axis at +45°, picks up e^{+iΓ}, Γ = 2πΔn·d/λ. Light linear
+    // along x, E = [(1, 1)/√2 · e^{iΓ} + (1, −1)/√2] / √2 = ½ (e^{iΓ} + 1, e^{iΓ} − 1), so
+    // S1 = |E1|² − |E2|² = cos Γ, S2 = 2 Re(E1 E2*) = 0, S3 = 2 Im(E1 E2*) = −sin Γ
+    // (S3 > 0 right-handed). Lossless faces: S0 = 1.
+    let d_mm = 0.5;
+    let doc = format!(
+        r#"{{"version": 2, "wavelength_nm": 600, "beam": {{"polarization": {{"kind": "linear", "azimuth_deg": 0}}}},
+        "elements": [{{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": {d_mm}, "axis": {{"tilt_deg": 90, "azimuth_deg": 45}}}}],
+        "spectrum": {{"from_nm": 450, "to_nm": 900, "points": 901}}}}"#
+    );
+    let (nm, t, warnings) = spectrum_of(&doc);
+    assert!(warnings.is_empty(), "{warnings:?}");
+    let (stokes, dop) = stokes_of(&doc);
+    assert_eq!(stokes.len(), nm.len());
+    let mut worst = 0.0f64;
+    let mut s3_seen = [false, false];
+    for (i, l) in nm.iter().enumerate() {
+        let s = stokes[i].unwrap();
+        // The transmission is S0, the same number.
+        assert_eq!(t[i], Some(s[0]), "at {l} nm");
+        let g = 2.0 * PI * quartz_dn(*l) * d_mm * 1e6 / l;
+        let want = [1.0, g.cos(), 0.0, -g.sin()];
+        for k in 0..4 {
+            worst = worst.max((s[k] - want[k]).abs());
+        }
+        assert!(
+            (dop[i].unwrap() - 1.0).abs() < 1e-12,
+            "degree of polarization {:?} at {l} nm",
+            dop[i]
+        );
+        s3_seen[usize::from(s[3] > 0.5)] |= s[3].abs() > 0.5;
+    }
+    // The exact trace and the closed form agree to rounding (Γ ≈ 30-40 rad).
+    assert!(
+        worst < 1e-9,
+        "largest difference {worst:.2e} (Ghosh 1999 indices, closed form above)"
+    );
+    assert_eq!(s3_seen, [true, true], "both handednesses occur over the range");
+}
+
+#[test]
+fn a_displacer_s_two_spots_add_as_powers_not_as_fields() {
+    // A calcite displacer (axis at 45° in the x–z plane) parts light linear at α into an e-spot
+    // polarized along x with power cos²α and an o-spot along y with sin²α (lossless faces;
+    // Jones: the projections of (cos α, sin α) onto x and y, written here). Spots at different
+    // places add incoherently: S = (1, cos 2α, 0, 0), degree of polarization |cos 2α|, where the
+    // coherent sum would have kept the input's S2 = sin 2α. At 45° the forward light is
+    // unpolarized as a detector taking in both spots sees it.
+    for alpha_deg in [45.0f64, 30.0, -70.0] {
+        let doc = format!(
+            r#"{{"version": 2, "wavelength_nm": 600, "beam": {{"diameter_mm": 0.02, "polarization": {{"kind": "linear", "azimuth_deg": {alpha_deg}}}}},
+            "elements": [{{"kind": "crystal", "material": "calcite", "thickness_mm": 1, "axis": {{"tilt_deg": 45, "azimuth_deg": 0}}}}],
+            "spectrum": {{"from_nm": 500, "to_nm": 800, "points": 7}}}}"#
+        );
+        let sc = Scenario::from_json_str(&doc).unwrap();
+        let r = trace_scenario(&sc).unwrap();
+        assert_eq!(r.spots.len(), 2, "two spots at {alpha_deg}°");
+        assert!(coincident_stokes(&sc.resolve().unwrap().0).is_none());
+        let a = alpha_deg.to_radians();
+        let (ex, ey) = (a.cos(), a.sin());
+        let e_spot = [ex * ex, ex * ex, 0.0, 0.0];
+        let o_spot = [ey * ey, -ey * ey, 0.0, 0.0];
+        let want: [f64; 4] = std::array::from_fn(|k| e_spot[k] + o_spot[k]);
+        let (stokes, dop) = stokes_of(&doc);
+        for (s, p) in stokes.iter().zip(&dop) {
+            let s = s.unwrap();
+            for k in 0..4 {
+                assert!((s[k] - want[k]).abs() < 1e-12, "{alpha_deg}°: {s:?} against {want:?}");
+            }
+            let p_want = (2.0 * a).cos().abs();
+            assert!(
+                (p.unwrap() - p_want).abs() < 1e-12,
+                "{alpha_deg}°: degree {p:?} against {p_want}"
+            );
+        }
+    }
 }
 
 #[test]
@@ -201,7 +304,7 @@ fn a_spectrum_that_would_trace_too_many_rays_is_refused_on_its_points() {
 /// computed: by the set-up's matrix where every ray leaves from one point (a filter at normal
 /// incidence, a c-cut plate, a cell behind a plate, uncoated faces with partly polarized light),
 /// or by the trace and its spots where the rays part (a displacer, a filter lit obliquely), which
-/// `coincident_power` declines. The trace enumerates every path and groups their beams into
+/// `coincident_stokes` declines; and so is its Stokes vector, the sum of the whole trace's spots'. The trace enumerates every path and groups their beams into
 /// spots (`optics::parallel`, `optics::spots`); the matrix multiplies one 2×2 per element: two
 /// computations that share only the per-face solve.
 #[test]
@@ -245,10 +348,11 @@ fn every_point_is_the_whole_trace_s_power_whether_or_not_the_rays_coincide() {
     for (name, d, coincide) in cases {
         let sc = Scenario::from_json_str(&d).unwrap_or_else(|e| panic!("{name}: {e:?}"));
         let (stack, _) = sc.resolve().unwrap();
-        assert_eq!(coincident_power(&stack).is_some(), coincide, "{name}");
+        assert_eq!(coincident_stokes(&stack).is_some(), coincide, "{name}");
         let with_spectrum = d.replacen('{', r#"{"spectrum": {"from_nm": 590, "to_nm": 610, "points": 5},"#, 1);
         let (nm, t, _) = spectrum_of(&with_spectrum);
-        for (l, t) in nm.iter().zip(&t) {
+        let (stokes, _) = stokes_of(&with_spectrum);
+        for ((l, t), s) in nm.iter().zip(&t).zip(&stokes) {
             let at = d.replacen("\"wavelength_nm\": 600", &format!("\"wavelength_nm\": {l}"), 1);
             let r = serde_json::to_value(trace_scenario(&Scenario::from_json_str(&at).unwrap()).unwrap()).unwrap();
             let whole = r["total_power"].as_f64().unwrap();
@@ -257,6 +361,16 @@ fn every_point_is_the_whole_trace_s_power_whether_or_not_the_rays_coincide() {
                 "{name} at {l} nm: {} against {whole}",
                 t.unwrap()
             );
+            let spots = r["spots"].as_array().unwrap();
+            let summed: [f64; 4] =
+                std::array::from_fn(|k| spots.iter().map(|p| p["stokes"][k].as_f64().unwrap()).sum());
+            let s = s.unwrap();
+            for k in 0..4 {
+                assert!(
+                    (s[k] - summed[k]).abs() < 1e-12,
+                    "{name} at {l} nm: Stokes {s:?} against the spots' {summed:?}"
+                );
+            }
         }
     }
 }

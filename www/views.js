@@ -14,7 +14,7 @@
 // them all, describeViews(state) writes their descriptions, and redraw(state) does both.
 
 import { h, setAttr, setText } from './dom.js';
-import { fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth } from './format.js';
+import { NO_POWER, fixed, fmt, lengthIn, lengthUnitFor, lengthUnitForValues, showsAzimuth } from './format.js';
 import { toFieldError } from './field-error.js';
 import { materialName } from './state.js';
 import { modeLetters } from './results.js';
@@ -251,6 +251,8 @@ export function describeViews(state) {
     texts['transmission-wavelength'] = traced.length === 0
       ? `Transmission against wavelength: none of the ${n} wavelengths could be traced.`
       : `Transmission of the whole set-up from ${nm(spectrum.wavelength_nm[0])} to ${nm(spectrum.wavelength_nm[n - 1])} nm, ${n} points: between ${num(low, 3)} and ${num(high, 3)}.`;
+    const s3 = spectrum.stokes.filter((s) => s && s[0] > NO_POWER).map((s) => s[3] / s[0]);
+    if (s3.length > 0) texts['transmission-wavelength'] += ` Dashed: the output's circular part S3/S0 (+1 right-handed, −1 left), between ${num(Math.min(...s3), 3)} and ${num(Math.max(...s3), 3)}.`;
     const w = spectrum.white_light;
     if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }

@@ -590,7 +590,7 @@ pub fn trace_scenario(sc: &Scenario) -> Result<TraceResult, Error> {
     if let Some(range) = &sc.spectrum {
         let rays = traced.paths.len() + result.rejected.len();
         crate::contract::spectrum::check_work(range, rays)?;
-        let (mut s, warning) = spectrum(range, |nm| transmission_at(sc, nm));
+        let (mut s, warning) = spectrum(range, |nm| stokes_at(sc, nm));
         result.warnings.extend(warning);
         if rays.saturating_mul(colorimetry::POINTS) > MAX_RAY_TRACES {
             result.warnings.push(format!(
@@ -874,32 +874,36 @@ pub fn report(sc: &Scenario, stack: &Stack, traced: &Trace, warnings: Vec<Warnin
     }
 }
 
-/// The total forward power of `sc` traced at `nm`, in its wavelength basis (vacuum, or standard
-/// air converted to vacuum as the scenario's own wavelength is).
-fn transmission_at(sc: &Scenario, nm: f64) -> Result<f64, Error> {
+/// The Stokes vector of the forward light of `sc` traced at `nm`, in its wavelength basis
+/// (vacuum, or standard air converted to vacuum as the scenario's own wavelength is).
+fn stokes_at(sc: &Scenario, nm: f64) -> Result<[f64; 4], Error> {
     let wavelength = match sc.air_wavelength_nm {
         Some(_) => crate::optics::material::vacuum_from_air(nm)?.vacuum,
         None => Wavelength::from_nm(nm)?,
     };
-    transmission_at_wavelength(sc, wavelength)
+    forward_stokes(sc, wavelength)
 }
 
 /// The forward transmission of `sc` at `air_nm` nanometres in standard air, whatever the
 /// scenario's own wavelength basis (the CIE colour tables' wavelengths are in air).
 fn transmission_at_air(sc: &Scenario, air_nm: f64) -> Result<f64, Error> {
-    transmission_at_wavelength(sc, crate::optics::material::vacuum_from_air(air_nm)?.vacuum)
+    Ok(forward_stokes(sc, crate::optics::material::vacuum_from_air(air_nm)?.vacuum)?[0])
 }
 
-/// The forward transmission of `sc` traced again at the vacuum `wavelength` (the stack depends
-/// on the vacuum wavelength alone, whatever basis the document gave its own in).
-fn transmission_at_wavelength(sc: &Scenario, wavelength: Wavelength) -> Result<f64, Error> {
+/// The Stokes vector of the forward light of `sc` traced again at the vacuum `wavelength` (the
+/// stack depends on the vacuum wavelength alone, whatever basis the document gave its own in):
+/// the sum of its spots' Stokes vectors, each on its spot's beam basis (spots at different places
+/// add as powers; each spot's own vector is already the coherent sum of its rays), so that S0 is
+/// the sum the result's `total_power` takes.
+fn forward_stokes(sc: &Scenario, wavelength: Wavelength) -> Result<[f64; 4], Error> {
     let (stack, _) = sc.resolve_at(wavelength, sc.temperature_c)?;
-    // Where every ray leaves from one point, their one spot's power is the set-up's matrix's.
-    if let Some(power) = crate::optics::coincident::coincident_power(&stack) {
-        return Ok(power);
+    // Where every ray leaves from one point, their one spot's light is the set-up's matrix's.
+    if let Some(stokes) = crate::optics::coincident::coincident_stokes(&stack) {
+        return Ok(stokes);
     }
     let traced = trace(&stack);
-    Ok(spots(&stack, &traced).iter().map(|s| s.power).sum())
+    let spots = spots(&stack, &traced);
+    Ok(std::array::from_fn(|k| spots.iter().map(|s| s.stokes[k]).sum()))
 }
 
 #[cfg(test)]

@@ -1,11 +1,18 @@
-//! Spectra: the forward transmission of a scenario against wavelength, every point traced in full.
+//! Spectra: the forward transmission and polarization of a scenario against wavelength, every
+//! point traced in full.
 //!
 //! Physics. At each wavelength of the range the whole scenario is resolved again (every crystal's
 //! indices from its dispersion formula at that wavelength and the scenario's temperature) and
 //! traced; the transmission is the power that leaves forward as the result's `total_power`
 //! gives it, the sum over the spots, where rays whose beams overlap add as fields weighted by
 //! their overlap. So a plate between parallel polarizers gives cos²(πΔn·d/λ) from the coherent
-//! sum of its o- and e-rays, not the ½ that adding their powers would give.
+//! sum of its o- and e-rays, not the ½ that adding their powers would give. The output
+//! polarization is the Stokes vector of all the forward light: the sum of the spots' Stokes
+//! vectors (each spot's own already the coherent sum of its rays; separate spots add
+//! incoherently), or, where every ray leaves from one point, that of M C_in Mᴴ for the set-up's
+//! Jones matrix M (`optics::coincident`). Its S0 is the transmission, the same number to the bit.
+//! Light that leaves in two spots of orthogonal polarization (a displacer) so reads as partly
+//! polarized or unpolarized, as a detector that takes in both spots sees it.
 //!
 //! Conventions. `spectrum` {`from_nm`, `to_nm`, `points`} (`../shared/CONVENTIONS.md`, "Spectra"):
 //! `points` wavelengths evenly spaced from `from_nm` to `to_nm` inclusive, in the scenario's own
@@ -13,16 +20,27 @@
 //! to vacuum as the scenario's wavelength is). The scenario's `wavelength_nm` is not part of the
 //! range. A wavelength where a formula breaks down gives `null` and one warning naming the first
 //! such wavelength and the reason; out-of-range formulas are extrapolated as in a single trace,
-//! their warnings left to the trace at the scenario's own wavelength. Natively, a long range is
+//! their warnings left to the trace at the scenario's own wavelength. The result's `spectrum`
+//! holds, beside `wavelength_nm` and `transmission`, `stokes` [[S0, S1, S2, S3] | null, …]
+//! (absolute, in units of the input power like `total_power`) and `degree_of_polarization`
+//! (√(S1² + S2² + S3²)/S0, 0 where nothing is transmitted), on the Jones basis the result's rays
+//! and spots use: the beam basis (e1, e2) of the outgoing direction, x̂ and ŷ for light along z
+//! (`optics::modes::beam_basis`), with S1 = |E1|² − |E2|², S2 = 2 Re(E1 E2*),
+//! S3 = 2 Im(E1 E2*), S3 > 0 right-handed (Born & Wolf: clockwise as seen looking toward the
+//! source; `../shared/CONVENTIONS.md`, "Handedness"). Spots that leave in different directions
+//! (after wedges) add each on its own direction's basis. Natively, a long range is
 //! traced on the machine's threads, in contiguous parts: each point is independent, so the
 //! values do not depend on the split.
 //!
 //! Sources: none beyond the trace's; the checks compare with the textbook transmission of a
-//! plate between polarizers and of a stage-doubling filter (product formula) in tests/spectrum.rs.
+//! plate between polarizers and of a stage-doubling filter (product formula), and the output
+//! Stokes vector of a plate at 45° and of a displacer with an independent Jones computation, in
+//! tests/spectrum.rs.
 
 use crate::contract::fields::{Fields, ranged};
 use crate::contract::white_light::WhiteLight;
 use crate::error::Error;
+use crate::optics::stokes::degree_of_polarization;
 use serde::Serialize;
 use serde_json::{Value, json};
 
@@ -113,34 +131,39 @@ impl SpectrumRange {
     }
 }
 
-/// A scenario's spectrum: wavelengths and the forward transmission at each.
+/// A scenario's spectrum: wavelengths and the forward transmission and polarization at each.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Spectrum {
     /// The wavelengths, nm, in the scenario's wavelength basis.
     pub wavelength_nm: Vec<f64>,
     /// Forward transmission (total power of the spots) at each; `null` where a formula breaks down.
     pub transmission: Vec<Option<f64>>,
+    /// Stokes vector [S0, S1, S2, S3] of the forward light at each (S0 the transmission), on the
+    /// outgoing beam basis (x̂, ŷ along z), S3 > 0 right-handed; `null` as `transmission`.
+    pub stokes: Vec<Option<[f64; 4]>>,
+    /// Degree of polarization of the forward light at each, 0 to 1; `null` as `transmission`.
+    pub degree_of_polarization: Vec<Option<f64>>,
     /// The colour the set-up shows in white light (`contract::white_light`); `null` when a
     /// wavelength of the colour tables cannot be traced.
     pub white_light: Option<WhiteLight>,
 }
 
-/// The spectrum over `range` of a scenario whose total forward power at a wavelength (nm, in its
-/// wavelength basis) `transmission_at` gives, with a warning when some wavelengths cannot be
-/// traced.
+/// The spectrum over `range` of a scenario whose forward light's Stokes vector at a wavelength
+/// (nm, in its wavelength basis) `stokes_at` gives, with a warning when some wavelengths cannot
+/// be traced.
 pub fn spectrum(
     range: &SpectrumRange,
-    transmission_at: impl Fn(f64) -> Result<f64, Error> + Sync,
+    stokes_at: impl Fn(f64) -> Result<[f64; 4], Error> + Sync,
 ) -> (Spectrum, Option<String>) {
     let wavelength_nm = range.wavelengths_nm();
-    let traced = traced_in_parallel(&wavelength_nm, &transmission_at);
+    let traced = traced_in_parallel(&wavelength_nm, &stokes_at);
     let mut first_failure: Option<(f64, Error)> = None;
     let mut failures = 0usize;
-    let transmission = wavelength_nm
+    let stokes: Vec<Option<[f64; 4]>> = wavelength_nm
         .iter()
         .zip(traced)
-        .map(|(&nm, t)| match t {
-            Ok(t) => Some(t),
+        .map(|(&nm, s)| match s {
+            Ok(s) => Some(s),
             Err(e) => {
                 failures += 1;
                 first_failure.get_or_insert((nm, e));
@@ -157,7 +180,9 @@ pub fn spectrum(
     (
         Spectrum {
             wavelength_nm,
-            transmission,
+            transmission: stokes.iter().map(|s| s.map(|s| s[0])).collect(),
+            degree_of_polarization: stokes.iter().map(|s| s.as_ref().map(degree_of_polarization)).collect(),
+            stokes,
             white_light: None,
         },
         warning,
@@ -168,26 +193,26 @@ pub fn spectrum(
 /// thread on WebAssembly). Every point is independent, so the values are the same either way.
 pub const PARALLEL_MIN_POINTS: usize = 64;
 
-/// `transmission_at` at every wavelength, in order: on contiguous parts of the list, one per
+/// `stokes_at` at every wavelength, in order: on contiguous parts of the list, one per
 /// available thread (at most 8), natively; on the calling thread on WebAssembly or for short
 /// lists.
 fn traced_in_parallel(
     wavelength_nm: &[f64],
-    transmission_at: &(impl Fn(f64) -> Result<f64, Error> + Sync),
-) -> Vec<Result<f64, Error>> {
+    stokes_at: &(impl Fn(f64) -> Result<[f64; 4], Error> + Sync),
+) -> Vec<Result<[f64; 4], Error>> {
     let threads = if cfg!(target_arch = "wasm32") {
         1
     } else {
         std::thread::available_parallelism().map_or(1, |n| n.get()).min(8)
     };
     if threads == 1 || wavelength_nm.len() < PARALLEL_MIN_POINTS {
-        return wavelength_nm.iter().map(|&nm| transmission_at(nm)).collect();
+        return wavelength_nm.iter().map(|&nm| stokes_at(nm)).collect();
     }
     let per = wavelength_nm.len().div_ceil(threads);
     std::thread::scope(|scope| {
         let parts: Vec<_> = wavelength_nm
             .chunks(per)
-            .map(|part| scope.spawn(move || part.iter().map(|&nm| transmission_at(nm)).collect::<Vec<_>>()))
+            .map(|part| scope.spawn(move || part.iter().map(|&nm| stokes_at(nm)).collect::<Vec<_>>()))
             .collect();
         parts
             .into_iter()

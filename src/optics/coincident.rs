@@ -1,4 +1,4 @@
-//! The forward power of a stack whose rays all leave from one point: the set-up's Jones matrix.
+//! The forward light of a stack whose rays all leave from one point: the set-up's Jones matrix.
 //!
 //! Physics. In a stack of plane-parallel plates every ray shares the incident tangential wave
 //! vector and leaves along the incident direction (`optics::parallel`). Where, in addition, each
@@ -8,25 +8,28 @@
 //! matrices (`optics::spots`: rays within [`SITE_FRACTION_OF_RADIUS`] of the beam radius add with
 //! overlap 1 to the last bit), and that sum is the product of each element's matrix,
 //! t_out·diag(e^{i k0 q_z L})·t_in for a plate (`optics::conoscope::set_up_matrix`): one 2×2
-//! product per element instead of 2^N paths and their grouping. The forward power is
-//! tr(M C_in Mᴴ) for the input's coherency matrix C_in. The two agree to rounding (the sum is
-//! taken in another order); `tests/spectrum.rs` compares them on filters and on stacks where the
-//! rays part, which this module declines.
+//! product per element instead of 2^N paths and their grouping. The forward light's coherency
+//! matrix is C_out = M C_in Mᴴ for the input's coherency matrix C_in, its Stokes vector that of
+//! C_out (`optics::spots::stokes_of`) and its power S0 = tr C_out. The two agree to rounding (the
+//! sum is taken in another order); `tests/spectrum.rs` compares them on filters and on stacks
+//! where the rays part, which this module declines.
 //!
-//! Conventions: as `optics::parallel`. Used by spectra, where every wavelength needs only the
-//! forward power.
+//! Conventions: as `optics::parallel`; the Stokes vector on the beam basis (e1, e2) of the
+//! outgoing direction (`optics::modes::beam_basis`; x̂, ŷ along z), S3 > 0 right-handed, as the
+//! spots give theirs. Used by spectra, where every wavelength needs only the forward light.
 
 use crate::optics::conoscope::{conoscope_stack_ok, set_up_matrix};
 use crate::optics::modes::Travel;
-use crate::optics::spots::power_of;
+use crate::optics::spots::{coherency, stokes_of};
 use crate::optics::stack::{Element, Medium, Stack};
 use crate::precision::SITE_FRACTION_OF_RADIUS;
 
-/// The total forward power of `stack` when all its rays leave from one point (see the module's
-/// header), by the set-up's matrix; `None` when the stack has faces at an angle or a crystal this
+/// The Stokes vector [S0, S1, S2, S3] of the forward light of `stack` when all its rays leave
+/// from one point (see the module's header), by the set-up's matrix: S0 is the total forward
+/// power, the same number as tr(M C_in Mᴴ) to the bit; `None` when the stack has faces at an angle or a crystal this
 /// product cannot solve, or when some plate parts its two rays by more than the site tolerance
 /// (summed over the plates).
-pub fn coincident_power(stack: &Stack) -> Option<f64> {
+pub fn coincident_stokes(stack: &Stack) -> Option<[f64; 4]> {
     conoscope_stack_ok(stack).ok()?;
     let qt = stack.tangential();
     let tolerance = SITE_FRACTION_OF_RADIUS * 0.5 * stack.input.diameter_mm;
@@ -54,5 +57,8 @@ pub fn coincident_power(stack: &Stack) -> Option<f64> {
             spread += slab.thickness_mm * per_mm;
         }
     }
-    (spread <= tolerance).then(|| power_of(&set_up_matrix(stack, qt), &stack.input.stokes))
+    (spread <= tolerance).then(|| {
+        let m = set_up_matrix(stack, qt);
+        stokes_of(&(m * coherency(&stack.input.stokes) * m.adjoint()))
+    })
 }

@@ -26,17 +26,21 @@ fn axis_unit(unit: &str, largest: f64) -> (f64, String) {
 
 /// Builds the plot of a series.
 pub fn plot(series: &Series) -> Scene {
+    plot_with(series, &[], "")
+}
+
+/// Builds the plot of a series with a second, dashed curve `second` (points in the same units,
+/// drawn split at gaps as the first, tagged `tag`) inside the same axes, which then span both.
+pub fn plot_with(series: &Series, second: &[[f64; 2]], tag: &str) -> Scene {
     let mut scene = Scene::new(&series.title, &series.note, Aspect::Free);
-    let mut pts: Vec<[f64; 2]> = series.points.clone();
-    pts.extend(series.current.iter().chain(&series.markers));
-    if pts.is_empty() {
+    let Some(a) = PlotAxes::of(series, second) else {
         empty_panel(&mut scene, series.note.clone());
         return scene;
-    }
-    let a = PlotAxes::around(series, Rect::around(pts.iter().copied()));
+    };
     a.grid_and_ticks(&mut scene);
     a.frame_and_names(&mut scene, series);
-    a.curve(&mut scene, series);
+    a.curve(&mut scene, &series.points, vec![], "curve");
+    a.curve(&mut scene, second, vec![6.0, 4.0], tag);
     a.marked_points(&mut scene, series);
     scene.bounds = Rect {
         x0: a.x0 - 0.1 * a.w,
@@ -47,16 +51,11 @@ pub fn plot(series: &Series) -> Scene {
     scene
 }
 
-/// The data frame [`plot`] draws for `series` (x over the data, y from 0 or below to the top),
-/// in data units, so that a caller can place things relative to it; `None` for an empty series.
-pub fn frame(series: &Series) -> Option<Rect> {
-    let mut pts: Vec<[f64; 2]> = series.points.clone();
-    pts.extend(series.current.iter().chain(&series.markers));
-    if pts.is_empty() {
-        return None;
-    }
-    let a = PlotAxes::around(series, Rect::around(pts));
-    Some(Rect {
+/// The data frame [`plot_with`] draws for `series` and its `second` curve (x over the data, y
+/// from 0 or below to the top), in data units, so that a caller can place things relative to
+/// it; `None` for an empty series.
+pub fn frame(series: &Series, second: &[[f64; 2]]) -> Option<Rect> {
+    PlotAxes::of(series, second).map(|a| Rect {
         x0: a.x0,
         y0: a.y0,
         x1: a.x1,
@@ -91,6 +90,14 @@ struct PlotAxes {
 }
 
 impl PlotAxes {
+    /// Axes around every point of `series` (curve, current point, markers) and of `second`;
+    /// `None` when there is none.
+    fn of(series: &Series, second: &[[f64; 2]]) -> Option<PlotAxes> {
+        let mut pts: Vec<[f64; 2]> = series.points.clone();
+        pts.extend(series.current.iter().chain(&series.markers).chain(second));
+        (!pts.is_empty()).then(|| PlotAxes::around(series, Rect::around(pts)))
+    }
+
     /// Axes around the `data` of `series`: y always includes 0, and an empty range is widened.
     fn around(series: &Series, data: Rect) -> PlotAxes {
         let (mut y0, mut y1) = (data.y0.min(0.0), data.y1.max(0.0));
@@ -180,25 +187,25 @@ impl PlotAxes {
         );
     }
 
-    /// Draws the curve, split where samples are missing (gaps wider than twice the usual
-    /// spacing).
-    fn curve(&self, scene: &mut Scene, series: &Series) {
+    /// Draws the curve `points` with `dash`, split where samples are missing (gaps wider than
+    /// twice the usual spacing).
+    fn curve(&self, scene: &mut Scene, points: &[[f64; 2]], dash: Vec<f64>, tag: &str) {
         let mut run: Vec<[f64; 2]> = Vec::new();
-        let spacing = if series.points.len() > 1 {
-            self.w / (series.points.len() - 1) as f64
+        let spacing = if points.len() > 1 {
+            self.w / (points.len() - 1) as f64
         } else {
             self.w
         };
-        for p in &series.points {
+        for p in points {
             if let Some(last) = run.last()
                 && p[0] - last[0] > 2.5 * spacing
             {
-                scene.line(std::mem::take(&mut run), Role::Curve, vec![], 1.8, "curve");
+                scene.line(std::mem::take(&mut run), Role::Curve, dash.clone(), 1.8, tag);
             }
             run.push(*p);
         }
         if !run.is_empty() {
-            scene.line(run, Role::Curve, vec![], 1.8, "curve");
+            scene.line(run, Role::Curve, dash, 1.8, tag);
         }
     }
 

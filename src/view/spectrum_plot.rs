@@ -6,23 +6,43 @@
 //! when it lies within the range. Without a `spectrum` in the scenario the plot is empty and its
 //! note says none was asked for; points where a formula breaks down (null) are left out and
 //! counted in the note. When the result holds the set-up's colour in white light
-//! (`spectrum.white_light`), the plot shows it as a swatch below its left corner.
+//! (`spectrum.white_light`), the plot shows it as a swatch below its left corner. The output's
+//! polarization is drawn as a dashed second curve in the same axes, S3/S0 from the result's
+//! `spectrum.stokes` (the circular part: +1 right-handed, −1 left-handed, Born & Wolf's
+//! handedness as `optics::stokes` uses it), which then run from −1 to 1; a line below the plot
+//! says what the dashes are.
 
-use super::plot::{frame, plot};
+use super::plot::{frame, plot_with};
 use super::scene::{Anchor, Item, Priority, Role, Scene};
 use super::series::Series;
 use crate::contract::result::TraceResult;
 use crate::contract::scenario::Scenario;
+use crate::numfmt::NO_POWER;
 
-/// The transmission plot of the whole set-up, with its white-light colour as a swatch under the
-/// plot's left corner when the result has one.
+/// The transmission plot of the whole set-up, with the output's S3/S0 as a dashed second curve
+/// (captioned on a line below the plot) and its white-light colour as a swatch under the plot's
+/// left corner when the result has them.
 pub fn transmission_plot(sc: &Scenario, result: &TraceResult) -> Scene {
     let series = transmission_vs_wavelength(sc, result);
-    let mut scene = plot(&series);
-    let white = result.spectrum.as_ref().and_then(|s| s.white_light.as_ref());
-    if let (Some(w), Some(f)) = (white, frame(&series)) {
+    let s3 = circular_vs_wavelength(result);
+    let mut scene = plot_with(&series, &s3, "S3/S0 curve");
+    let Some(f) = frame(&series, &s3) else {
+        return scene;
+    };
+    let (width, height) = (f.width(), f.height());
+    if !s3.is_empty() {
+        scene.bounds.y0 = f.y0 - 0.4 * height;
+        scene.label(
+            [0.5 * (f.x0 + f.x1), f.y0 - 0.37 * height],
+            String::from("dashed: S3/S0 of the output, +1 right-handed circular, −1 left"),
+            10.0,
+            Anchor::Middle,
+            Role::Caption,
+            Priority::Key,
+        );
+    }
+    if let Some(w) = result.spectrum.as_ref().and_then(|s| s.white_light.as_ref()) {
         // Under the frame's left corner, on the line of the x-axis name (which is centred).
-        let (width, height) = (f.width(), f.height());
         scene.items.push(Item::Swatch {
             from: [f.x0, f.y0 - 0.29 * height],
             to: [f.x0 + 0.07 * width, f.y0 - 0.2 * height],
@@ -39,6 +59,21 @@ pub fn transmission_plot(sc: &Scenario, result: &TraceResult) -> Scene {
         );
     }
     scene
+}
+
+/// The circular part S3/S0 of the forward light against wavelength, from the result's
+/// `spectrum.stokes` (+1 right-handed circular, −1 left-handed, 0 linear or unpolarized; the
+/// wavelengths that leave no power, [`NO_POWER`], or could not be traced are left out).
+pub fn circular_vs_wavelength(result: &TraceResult) -> Vec<[f64; 2]> {
+    let Some(spectrum) = &result.spectrum else {
+        return Vec::new();
+    };
+    spectrum
+        .wavelength_nm
+        .iter()
+        .zip(&spectrum.stokes)
+        .filter_map(|(&nm, s)| s.filter(|s| s[0] > NO_POWER).map(|s| [nm, s[3] / s[0]]))
+        .collect()
 }
 
 /// The transmission of the whole set-up against wavelength, from `result.spectrum`.
@@ -114,6 +149,41 @@ mod tests {
         let plain = Scenario { spectrum: None, ..sc };
         let s = transmission_vs_wavelength(&plain, &trace_scenario(&plain).unwrap());
         assert!(s.points.is_empty() && s.note == "no spectrum asked for");
+    }
+
+    #[test]
+    fn the_output_s_circular_part_is_a_dashed_curve_of_the_result_s_stokes() {
+        // A quartz plate at 45° alone: the output runs through both handednesses over the range.
+        let doc = r#"{"version": 2, "wavelength_nm": 600, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
+            "elements": [{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 0.5, "axis": {"tilt_deg": 90, "azimuth_deg": 45}}],
+            "spectrum": {"from_nm": 550, "to_nm": 650, "points": 41}}"#;
+        let sc = Scenario::from_json_str(doc).unwrap();
+        let r = trace_scenario(&sc).unwrap();
+        let s3 = circular_vs_wavelength(&r);
+        let stokes = &r.spectrum.as_ref().unwrap().stokes;
+        assert_eq!(s3.len(), 41);
+        for (p, s) in s3.iter().zip(stokes) {
+            let s = s.unwrap();
+            assert_eq!(p[1], s[3] / s[0]);
+        }
+        assert!(s3.iter().any(|p| p[1] > 0.9) && s3.iter().any(|p| p[1] < -0.9));
+        let scene = transmission_plot(&sc, &r);
+        let Some(Item::Polyline { points, dash, .. }) = scene.tagged("S3/S0 curve").next() else {
+            panic!("no S3/S0 curve");
+        };
+        assert_eq!(points, &s3);
+        assert!(!dash.is_empty(), "dashed");
+        assert!(scene.is_finite());
+        let svg = crate::view::svg::to_svg(&scene, 480.0, 300.0, &crate::view::palette::Palette::light());
+        assert!(svg.contains("dashed: S3/S0"), "{svg}");
+        // Without a spectrum, no second curve.
+        let plain = Scenario { spectrum: None, ..sc };
+        assert!(
+            transmission_plot(&plain, &trace_scenario(&plain).unwrap())
+                .tagged("S3/S0 curve")
+                .next()
+                .is_none()
+        );
     }
 
     #[test]

@@ -5,7 +5,8 @@
 //! [`crate::numfmt`] with a table's budget of [`TABLE_CHARS`] characters: a huge or tiny value
 //! switches to m×10ⁿ instead of widening its column; a ray or spot below
 //! [`crate::numfmt::NO_POWER`] reads "no power"; circular light shows no azimuth. Elements and
-//! spots are numbered from 1, as on the page.
+//! spots are numbered from 1, as on the page. A spectrum shows its extremes and at most
+//! [`SPECTRUM_ROWS`] of its wavelengths, each with the forward light's normalized Stokes vector.
 
 use crate::contract::result::{ElementReport, TraceResult};
 use crate::numfmt::{fixed_within, power, shows_azimuth};
@@ -329,8 +330,12 @@ fn spots(out: &mut String, r: &TraceResult) {
     }
 }
 
-/// The spectrum in a few lines: its range, and where the transmission is lowest and highest (the
-/// JSON holds every point).
+/// Most wavelengths the spectrum's table lists (evenly spread over the range, both ends included).
+pub const SPECTRUM_ROWS: usize = 11;
+
+/// The spectrum in a few lines: its range, where the transmission is lowest and highest, and at
+/// most [`SPECTRUM_ROWS`] wavelengths of the range with the transmission and the forward light's
+/// normalized Stokes vector and degree of polarization (the JSON holds every point).
 fn spectrum(out: &mut String, r: &TraceResult) {
     let Some(sp) = &r.spectrum else { return };
     let points: Vec<(f64, f64)> = sp
@@ -372,6 +377,7 @@ fn spectrum(out: &mut String, r: &TraceResult) {
     if missing > 0 {
         let _ = writeln!(out, "  {missing} wavelengths could not be traced (see the warnings)");
     }
+    spectrum_rows(out, sp);
     if let Some(w) = &sp.white_light {
         let _ = writeln!(
             out,
@@ -380,6 +386,47 @@ fn spectrum(out: &mut String, r: &TraceResult) {
             w.observer,
             colour_words(w)
         );
+    }
+}
+
+/// The spectrum's sampled rows: wavelength, transmission, S1/S0, S2/S0, S3/S0 and the degree of
+/// polarization of all the forward light ("no power" where nothing leaves, "—" where the point
+/// could not be traced).
+fn spectrum_rows(out: &mut String, sp: &crate::contract::spectrum::Spectrum) {
+    let n = sp.wavelength_nm.len();
+    let rows = n.min(SPECTRUM_ROWS);
+    if rows == 0 {
+        return;
+    }
+    // The caption and the column heads in one write.
+    let _ = writeln!(
+        out,
+        "  forward light, {rows} of the {n} wavelengths (Stokes on the beam basis e1, e2: x, y along z; S3 > 0 right-handed):\n  {:>11} {:>12} {:>9} {:>9} {:>9} {:>9}",
+        "λ/nm", "transmission", "S1/S0", "S2/S0", "S3/S0", "DoP"
+    );
+    for k in 0..rows {
+        let i = if rows == 1 {
+            0
+        } else {
+            (k * (n - 1) + (rows - 1) / 2) / (rows - 1)
+        };
+        let nm = crate::numfmt::sig(sp.wavelength_nm[i], 6);
+        let cells = match (
+            sp.stokes.get(i).copied().flatten(),
+            sp.degree_of_polarization.get(i).copied().flatten(),
+        ) {
+            (Some(st), _) if power_text(st[0]) == "no power" => format!("{:>12}", "no power"),
+            (Some(st), Some(p)) => format!(
+                "{:>12} {:>9} {:>9} {:>9} {:>9}",
+                num(st[0], 4),
+                signed(st[1] / st[0], 4),
+                signed(st[2] / st[0], 4),
+                signed(st[3] / st[0], 4),
+                num(p, 4)
+            ),
+            _ => format!("{:>12}", "—"),
+        };
+        let _ = writeln!(out, "  {nm:>11} {cells}");
     }
 }
 
@@ -426,6 +473,23 @@ mod tests {
         );
         assert!(
             t.contains("lowest transmission   0.0000") && t.contains("highest transmission  0.9999"),
+            "{t}"
+        );
+        // Eleven rows of the 201, every 20 nm, both ends included; behind the polarizer at 0°
+        // the forward light is linear along x: S1/S0 = +1, fully polarized.
+        assert!(t.contains("forward light, 11 of the 201 wavelengths"), "{t}");
+        let rows: Vec<&str> = t
+            .lines()
+            .filter(|l| l.trim_start().starts_with(['5', '6', '7']))
+            .collect();
+        assert_eq!(rows.len(), 11, "{t}");
+        assert!(
+            rows[0].starts_with("      500.000") && rows[10].starts_with("      700.000"),
+            "{t}"
+        );
+        assert!(
+            rows.iter()
+                .all(|r| r.ends_with("+1.0000    0.0000    0.0000    1.0000")),
             "{t}"
         );
         assert!(!table(include_str!("../../examples/demo.json")).contains("Spectrum"));

@@ -1,6 +1,7 @@
 // End-to-end tests of the spectrum on the page: the Spectrum control below the stack adds a
 // wavelength range to the set-up, the transmission plot is drawn from the result's spectrum,
-// every point and the colour in white light equal the command line's trace of the same document,
+// every point, its output Stokes vector (drawn as a dashed S3/S0 curve) and the colour in white
+// light equal the command line's trace of the same document,
 // the colour shows as a swatch in the summary, the range is kept while the
 // spectrum is off, and a bad point count is named beside its field with the entries kept.
 //
@@ -44,6 +45,28 @@ test('a spectrum turned on is traced as the command line traces it and drawn', {
       .test(document.querySelector('canvas[data-view="transmission-wavelength"]').getAttribute('aria-label')));
     const stats = (await page.evaluate(canvasStats)).find((s) => s.view === 'transmission-wavelength');
     assert.ok(drawn(stats), `the plot is drawn: ${JSON.stringify(stats)}`);
+    // The output polarization: the page's Stokes vectors are the command line's, and the plot's
+    // dashed second curve is their S3/S0 at every wavelength that leaves power, named in the
+    // plot's text alternative.
+    shown.stokes.forEach((s, i) => s.forEach((v, k) => {
+      const c = cli.spectrum.stokes[i][k];
+      assert.ok(Math.abs(v - c) <= 1e-12, `Stokes ${i}[${k}]: page ${v}, command line ${c}`);
+    }));
+    const want = cli.spectrum.wavelength_nm
+      .map((l, i) => [l, cli.spectrum.stokes[i]])
+      .filter(([, s]) => s && s[0] > 1e-12)
+      .map(([l, s]) => [l, s[3] / s[0]]);
+    const dashed = await page.evaluate(() => window.doublespar.session.scene('transmission-wavelength').items
+      .filter((i) => i.tag === 'S3/S0 curve'));
+    assert.ok(dashed.length > 0 && dashed.every((c) => c.type === 'polyline' && c.dash.length > 0), 'a dashed S3/S0 curve');
+    const points = dashed.flatMap((c) => c.points);
+    assert.equal(points.length, want.length);
+    points.forEach(([x, y], i) => {
+      assert.equal(x, want[i][0]);
+      assert.ok(Math.abs(y - want[i][1]) <= 1e-12, `S3/S0 at ${x} nm: drawn ${y}, command line ${want[i][1]}`);
+    });
+    const label = await page.evaluate(() => document.querySelector('canvas[data-view="transmission-wavelength"]').getAttribute('aria-label'));
+    assert.match(label, /Dashed: the output's circular part S3\/S0/, label);
     // Off: the document has no spectrum; on again: the range entered is still there.
     await page.selectOption(SPECTRUM, 'off');
     await waitScenario(page, (s) => s.spectrum === undefined, 'spectrum off');
