@@ -60,17 +60,33 @@ impl Scenario {
         let (p, a) = (self.beam.polar_deg.to_radians(), self.beam.azimuth_deg.to_radians());
         let u = direction(p, a);
         let qt = [self.outside_index * u.x, self.outside_index * u.y];
+        // A filter repeats one crystal, cut alike, plate after plate, and a spectrum resolves the
+        // scenario at every wavelength: a plate cut as the last crystal was (the same material,
+        // axes and activity; any thickness and placement) takes its medium as solved for that
+        // one, the same numbers to the bit.
+        let mut last: Option<(CrystalPlate, Medium, f64, Vec<String>)> = None;
         for (idx, el) in self.elements.iter().enumerate() {
             z += el.gap_mm;
             let element = match el.kind {
                 ElementKind::Crystal(plate) => {
-                    let (mut medium, thickness_mm, found) =
-                        crystal_medium(&plate, wavelength, temperature_c).map_err(|e| match e.field.as_str() {
-                            "wavelength_nm" | "temperature_c" => {
-                                Error::new(e.field, format!("{} (elements[{idx}])", e.message))
-                            }
-                            _ => e.within(&format!("elements[{idx}]")),
-                        })?;
+                    let (mut medium, expansion, found) = match &last {
+                        Some((cut, medium, expansion, found)) if cut_alike(cut, &plate) => {
+                            (*medium, *expansion, found.clone())
+                        }
+                        _ => {
+                            let solved = crystal_medium(&plate, wavelength, temperature_c).map_err(|e| {
+                                match e.field.as_str() {
+                                    "wavelength_nm" | "temperature_c" => {
+                                        Error::new(e.field, format!("{} (elements[{idx}])", e.message))
+                                    }
+                                    _ => e.within(&format!("elements[{idx}]")),
+                                }
+                            })?;
+                            last = Some((plate, solved.0, solved.1, solved.2.clone()));
+                            solved
+                        }
+                    };
+                    let thickness_mm = plate.thickness_mm * expansion;
                     warnings.extend(found.into_iter().map(|w| Warning {
                         element: idx,
                         text: format!("elements[{idx}]: {w}"),
@@ -142,12 +158,22 @@ impl Scenario {
     }
 }
 
-/// A crystal's medium at `wavelength` and `temperature_c` in its element frame, its thickness at
-/// that temperature and the catalogue's warnings. The thickness is the document's (at 20 °C)
-/// times 1 + α_z (T − 20 °C), α_z the expansion coefficient along the element's z axis from the
-/// principal axes (CONVENTIONS.md, "Temperature"; exactly the document's at 20 °C). The
-/// medium is: the
-/// uniaxial closed form for a uniaxial crystal without optical activity (catalogued, `no` + `ne`,
+/// Whether two plates are cut alike: the same material, axes and optical activity, so the same
+/// medium at any wavelength and temperature and the same expansion along z (their thickness and
+/// placement may differ).
+fn cut_alike(a: &CrystalPlate, b: &CrystalPlate) -> bool {
+    a.medium == b.medium
+        && a.tilt_deg == b.tilt_deg
+        && a.azimuth_deg == b.azimuth_deg
+        && a.roll_deg == b.roll_deg
+        && a.chirality == b.chirality
+}
+
+/// A crystal's medium at `wavelength` and `temperature_c` in its element frame, the factor its
+/// thickness takes at that temperature and the catalogue's warnings. The thickness is the
+/// document's (at 20 °C) times 1 + α_z (T − 20 °C), α_z the expansion coefficient along the
+/// element's z axis from the principal axes (CONVENTIONS.md, "Temperature"; exactly the
+/// document's at 20 °C). The medium is: the uniaxial closed form for a uniaxial crystal without optical activity (catalogued, `no` + `ne`,
 /// or `nx`/`ny`/`nz` with two equal), the general crystal otherwise (biaxial, or quartz with its
 /// optical activity). Orientation R = Rz(azimuth)·Ry(tilt)·Rz(roll) (CONVENTIONS.md, "More
 /// media"); a chiral crystal's gyration [g11, g11, g33] is negated for a left-handed one and
@@ -170,7 +196,7 @@ fn crystal_medium(
         plate.roll_deg.to_radians(),
     );
     let alpha = plate.medium.expansion_along_z(&rotation);
-    let thickness_mm = plate.thickness_mm * (1.0 + alpha * (temperature_c - material::REFERENCE_C));
+    let expansion = 1.0 + alpha * (temperature_c - material::REFERENCE_C);
     let medium = match principal {
         PrincipalIndices::Uniaxial(ix) => match plate.chirality.filter(|c| c.active) {
             None => Medium::Uniaxial(Uniaxial::new(ix, axis)),
@@ -199,7 +225,7 @@ fn crystal_medium(
             }
         }
     };
-    Ok((medium, thickness_mm, warnings))
+    Ok((medium, expansion, warnings))
 }
 
 /// The optic axis from its tilt from +z (`tilt_deg`, 0–180°) and the azimuth of its projection
@@ -241,6 +267,36 @@ fn input_state(p: &Polarization) -> (Option<Jones>, [f64; 4]) {
 mod tests {
     use super::*;
     use nalgebra::Vector3;
+
+    /// Plates cut alike share the medium solved for the first of them; each plate's medium and
+    /// thickness are still exactly what solving it alone gives, warmed away from 20 °C too, and
+    /// a plate cut otherwise between them is solved for itself.
+    #[test]
+    fn plates_cut_alike_resolve_as_each_alone() {
+        let sc = Scenario::from_json_str(
+            r#"{"version": 2, "wavelength_nm": 633, "temperature_c": 61.5,
+                "elements": [{"kind": "crystal", "material": "quartz", "thickness_mm": 1.3, "axis": {"tilt_deg": 90, "azimuth_deg": 45}},
+                             {"kind": "crystal", "material": "quartz", "thickness_mm": 2.7, "axis": {"tilt_deg": 90, "azimuth_deg": 45}},
+                             {"kind": "crystal", "material": "quartz", "thickness_mm": 2.7, "axis": {"tilt_deg": 90, "azimuth_deg": 30}},
+                             {"kind": "polarizer", "transmission_axis_deg": 0},
+                             {"kind": "crystal", "material": "quartz", "thickness_mm": 0.4, "axis": {"tilt_deg": 90, "azimuth_deg": 30}}]}"#,
+        )
+        .unwrap();
+        let wavelength = Wavelength::from_nm(633.0).unwrap();
+        let (stack, _) = sc.resolve_at(wavelength, 61.5).unwrap();
+        let mut plates = 0;
+        for (el, layer) in sc.elements.iter().zip(&stack.layers) {
+            let (ElementKind::Crystal(plate), Element::Slab(slab)) = (el.kind, layer.element) else {
+                continue;
+            };
+            let (medium, expansion, _) = crystal_medium(&plate, wavelength, 61.5).unwrap();
+            assert!(slab.medium == medium, "plate {plates}: its medium");
+            assert_eq!(slab.thickness_mm.to_bits(), (plate.thickness_mm * expansion).to_bits());
+            assert!(expansion != 1.0, "warmed plates expand");
+            plates += 1;
+        }
+        assert_eq!(plates, 4);
+    }
 
     #[test]
     fn axis_validation_names_the_field() {
