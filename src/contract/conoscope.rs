@@ -35,13 +35,14 @@ pub const MAX_CONE_DEG: f64 = 80.0;
 /// The largest number of pixels per side.
 pub const MAX_PIXELS: usize = 512;
 /// The largest number of pixels per side of a set-up holding a liquid-crystal cell: every
-/// direction solves the cell's 100 slices again (each by its closed-form exponential,
-/// `optics::lc::slice`: about 25 µs a direction natively for a 90° twisted cell, against about
-/// 2 µs for a crystal plate), so a cell's map is computed at most 128 × 128 (measured on a busy
-/// machine: 0.35 s natively, 0.5–0.7 s in the page's worker's build, and 1.29 s natively at
-/// 256 × 256; its note states the directions). A thin cell's figure varies slowly across the
-/// cone, so little is lost.
-pub const MAX_PIXELS_WITH_CELL: usize = 128;
+/// direction solves the cell's 100 slices again (several directions at a time,
+/// `optics::lc::transfer_lanes`: about 11 µs a direction natively for a 90° twisted cell, against
+/// about 2 µs for a crystal plate), so a cell's map is computed at most 192 × 192, which keeps
+/// the wait of the former 128 × 128 (measured on a busy machine, load about 2: 0.45–0.49 s in
+/// the page's worker's build, 0.76–1.08 s at 256 × 256, 0.60–0.69 s natively at 256 × 256; its
+/// note states the directions). A thin cell's figure varies slowly across the cone, so little
+/// is lost.
+pub const MAX_PIXELS_WITH_CELL: usize = 192;
 
 /// The largest number of pixels per side of a white-light figure: each direction is solved at
 /// the 81 wavelengths of the colour tables, 81 times a monochromatic figure's work.
