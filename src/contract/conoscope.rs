@@ -36,12 +36,11 @@ pub const MAX_CONE_DEG: f64 = 80.0;
 pub const MAX_PIXELS: usize = 512;
 /// The largest number of pixels per side of a set-up holding a liquid-crystal cell: every
 /// direction solves the cell's 100 slices again (several directions at a time,
-/// `optics::lc::transfer_lanes`: about 11 µs a direction natively for a 90° twisted cell, against
-/// about 2 µs for a crystal plate), so a cell's map is computed at most 192 × 192, which keeps
-/// the wait of the former 128 × 128 (measured on a busy machine, load about 2: 0.45–0.49 s in
-/// the page's worker's build, 0.76–1.08 s at 256 × 256, 0.60–0.69 s natively at 256 × 256; its
-/// note states the directions). A thin cell's figure varies slowly across the cone, so little
-/// is lost.
+/// `optics::lc::transfer_lanes`: about 8 µs a direction natively for a 90° twisted cell, against
+/// about 2 µs for a crystal plate), so a cell's map is computed at most 192 × 192, about the
+/// wait of the former 128 × 128 (measured at load below 1: 0.34–0.36 s in the page's worker's
+/// build, where 128 × 128 took 0.28–0.29 s before; 0.24 s natively; its note states the
+/// directions). A thin cell's figure varies slowly across the cone, so little is lost.
 pub const MAX_PIXELS_WITH_CELL: usize = 192;
 
 /// The largest number of pixels per side of a white-light figure: each direction is solved at

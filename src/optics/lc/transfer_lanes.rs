@@ -1,33 +1,36 @@
-//! A liquid-crystal cell's transfer matrix at several directions side by side: the product of
-//! its slices' closed-form exponentials ([`crate::optics::lc::slice`]) in its reciprocal form,
-//! with each number held as one f64 per direction, so that the compiler turns the work of a
-//! slice into vector instructions. This is what a conoscopic figure of a cell spends its time on.
+//! A liquid-crystal cell's slices crossed at several directions side by side: for each direction
+//! H = M⁻¹ X, the inverse of the slices' transfer matrix M = P_N ⋯ P_1 (each P = exp(iθΔ) in
+//! the closed form of [`crate::optics::lc::slice`]) applied to two columns X (the exit face's
+//! two forward waves), with each number held as one f64 per direction, so that the compiler
+//! turns the work of a slice into vector instructions. This is what a conoscopic figure of a cell
+//! spends its time on.
 //!
 //! Physics. For a slice of real symmetric ε at real tangential wave vector, Berreman's Δ obeys
-//! J Δ = Δᵀ J with the reciprocity form Jψ = (ψ3, −ψ2, −ψ1, ψ0) (for ψ = (E_x, E_y, Z0H_x,
-//! Z0H_y): ψ_aᵀ J ψ_b = E_a·(ẑ × H_b) − E_b·(ẑ × H_a), the Lorentz reciprocity integrand; J = Jᵀ =
-//! J⁻¹). So A = JΔ is symmetric, and so are J f(Δ) = f(Δ)ᵀ J for any power series f:
+//! J Δ = Δᵀ J with Jψ = (ψ3, −ψ2, −ψ1, ψ0) (for ψ = (E_x, E_y, Z0H_x, Z0H_y); ψ†Jψ is twice the
+//! Poynting flux along z; J = Jᵀ = J⁻¹). So A = JΔ is symmetric, and so is
 //! S = J exp(iθΔ) = c0 J + c1 A + c2 A J A + c3 A J A J A (the powers' coefficients of the slice's
-//! header), and K = J M for the product M = P_N ⋯ P_1 (J P = Pᵀ J slice by slice). The product
-//! is carried as K_{n+1} = S_{n+1} (J K_n), K_0 = J, and M = J K_N at the end: each step costs
-//! the ten entries of a symmetric matrix (40 complex products instead of 64), and S needs the
-//! ten entries of A, AJA and AJAJA (80 real products instead of Δ² and Δ³'s 128). The
-//! coefficients are [`crate::optics::lc::slice`]'s (Newton's divided differences of e^{iθλ} at
-//! the four q_z, ordered o₊, e₊, o₋, e₋), with the o wave's e^{iθ o₊} solved once a direction
-//! (it is the same in every slice) and each slice's two half-angle sines and cosines by their
-//! Taylor polynomials, exact to rounding for the arguments allowed (|x| ≤ 1.5).
+//! header): its ten entries need those of A, AJA and AJAJA (80 real products instead of Δ² and
+//! Δ³'s 128). Since Δ is real, P⁻¹ = exp(−iθΔ) = J S̄ (the coefficients conjugated), and
+//! M⁻¹ X = P_1⁻¹ ⋯ P_N⁻¹ X costs two columns a slice (32 complex products instead of the 64 of
+//! the whole product). The interior transmission then follows from F a + B r = H t
+//! ([`crate::optics::lc::stratified::solve_inverse`]), which is M (F a + B r) = F_out t
+//! multiplied by M⁻¹. The coefficients are [`crate::optics::lc::slice`]'s (Newton's divided
+//! differences of e^{iθλ} at the four q_z, ordered o₊, e₊, o₋, e₋), with the o wave's e^{iθ o₊}
+//! solved once a direction (it is the same in every slice) and each slice's two half-angle sines
+//! and cosines by their Taylor polynomials, exact to rounding for the arguments allowed.
 //!
-//! What is left to the one-by-one product ([`crate::optics::lc::slice::slice_exp`]). A direction
-//! is declined, and the caller solves it slice by slice, when any slice would leave the closed
-//! form's plain path there: an evanescent wave, waves within [`SLICE_ROOTS_APART`] of each other,
-//! a slice to halve (θ·max|q_z| above [`SLICE_STEP_PHASE`]), an e wave at exactly the o wave's
-//! q_z, or e₊ and o₋ so close that their difference needs a series. The two agree to rounding
-//! (tested: 10⁻¹³ of the matrix's size).
+//! What is left to the slice-by-slice product ([`Slices::transfer`]). A direction is declined,
+//! and the caller solves it slice by slice, when any slice would leave the closed form's plain
+//! path there: an evanescent wave, waves within [`SLICE_ROOTS_APART`] of each other, a slice to
+//! halve (θ·max|q_z| above [`SLICE_STEP_PHASE`]), an e wave at exactly the o wave's q_z, e₊ and o₋
+//! so close that their difference needs a series, or a half phase between o and e waves above
+//! [`HALF_GAP`]. The two agree to rounding (tested: 10⁻¹² of the columns' size; the
+//! twisted-nematic example's figure at 256 × 256 to 10⁻¹⁵).
 //!
 //! Builds. Rust neither fuses a product with a sum nor reorders sums unless asked, so a lane
-//! gives the same bits at any width: [`Slices::transfer`] is this kernel at one lane. Natively
-//! and in the design worker's module; the page's size-tuned module keeps the slices' series
-//! ([`crate::optics::lc::slice`], Builds).
+//! gives the same bits at any width: [`inverse`] (one direction) is this kernel at one lane.
+//! Natively and in the design worker's module; the page's size-tuned module keeps the slices'
+//! series ([`crate::optics::lc::slice`], Builds) and declines every direction.
 
 use crate::optics::lc::slice::Slices;
 use crate::precision::{SLICE_ROOTS_APART, SLICE_STEP_PHASE};
