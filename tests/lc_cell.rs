@@ -389,7 +389,7 @@ fn a_cell_s_conoscopic_figure_is_the_equal_plate_s_and_the_trace_s() {
     let fine = conoscope_of(&cell, ConoscopeQuantity::Transmission, 40.0, 256).unwrap();
     assert_eq!(
         (fine.pixels, fine.values.len()),
-        (doublespar::MAX_PIXELS_WITH_CELL, 128 * 128)
+        (doublespar::MAX_PIXELS_WITH_CELL, 192 * 192)
     );
     assert_eq!(
         conoscope_of(&plate, ConoscopeQuantity::Transmission, 40.0, 64)

@@ -48,7 +48,7 @@ for (const v of values) {
 }
 const cell = readFileSync(join(root, 'examples', 'twisted-nematic-cell.json'), 'utf8');
 const [msCell48] = median(() => worker.convergentMap(cell, 'conoscope', 48));
-const [msCell128, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 128), 3);
+const [msCell192, cellValues] = median(() => worker.convergentMap(cell, 'conoscope', 192), 3);
 const [msWhite128] = median(() => worker.convergentWhite(doc, 128, 0, 1), 3);
 const [msWhite256] = median(() => worker.convergentWhite(doc, 256, 0, 1), 3);
 // The page's split: part k of 2 in each of two threads.
@@ -93,8 +93,8 @@ console.log(JSON.stringify({
   conoscope_checksum: sum,
   conoscope_scene_256_page_build_ms: msScene,
   cell_conoscope_48_worker_build_ms: msCell48,
-  cell_conoscope_128_worker_build_ms: msCell128,
-  cell_conoscope_128_values: cellValues.length,
+  cell_conoscope_192_worker_build_ms: msCell192,
+  cell_conoscope_192_values: cellValues.length,
   white_conoscope_128_worker_build_ms: msWhite128,
   white_conoscope_256_worker_build_ms: msWhite256,
   white_conoscope_256_two_threads_ms: msWhiteTwo[1],

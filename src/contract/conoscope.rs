@@ -35,13 +35,13 @@ pub const MAX_CONE_DEG: f64 = 80.0;
 /// The largest number of pixels per side.
 pub const MAX_PIXELS: usize = 512;
 /// The largest number of pixels per side of a set-up holding a liquid-crystal cell: every
-/// direction solves the cell's 100 slices again (each by its closed-form exponential,
-/// `optics::lc::slice`: about 25 µs a direction natively for a 90° twisted cell, against about
-/// 2 µs for a crystal plate), so a cell's map is computed at most 128 × 128 (measured on a busy
-/// machine: 0.35 s natively, 0.5–0.7 s in the page's worker's build, and 1.29 s natively at
-/// 256 × 256; its note states the directions). A thin cell's figure varies slowly across the
-/// cone, so little is lost.
-pub const MAX_PIXELS_WITH_CELL: usize = 128;
+/// direction solves the cell's 100 slices again (several directions at a time,
+/// `optics::lc::transfer_lanes`: about 8 µs a direction natively for a 90° twisted cell, against
+/// about 2 µs for a crystal plate), so a cell's map is computed at most 192 × 192, about the
+/// wait of the former 128 × 128 (measured at load below 1: 0.34–0.36 s in the page's worker's
+/// build, where 128 × 128 took 0.28–0.29 s before; 0.24 s natively; its note states the
+/// directions). A thin cell's figure varies slowly across the cone, so little is lost.
+pub const MAX_PIXELS_WITH_CELL: usize = 192;
 
 /// The largest number of pixels per side of a white-light figure: each direction is solved at
 /// the 81 wavelengths of the colour tables, 81 times a monochromatic figure's work.

@@ -44,11 +44,11 @@
 
 use crate::optics::interface::CMatrix2;
 use crate::optics::jones::JonesMatrix;
-use crate::optics::lc::stratified::cell_jones_at;
+use crate::optics::lc::stratified::{cell_jones_at, cell_jones_by, layered_jones_each};
 use crate::optics::modes::{Mode, Travel, isotropic_modes};
 use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
-use crate::optics::stack::{Element, Slab, Stack};
+use crate::optics::stack::{CellLayer, Element, Slab, Stack};
 use num_complex::Complex64;
 use std::f64::consts::TAU;
 
@@ -137,6 +137,16 @@ pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> Outside {
 /// As [`set_up_matrix`], with the outside medium's modes at `qt` given ([`outside_modes`] of the
 /// stack's outside index).
 pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &Outside) -> JonesMatrix {
+    set_up_matrix_by(stack, qt, outside, |c| cell_jones_at(stack, c, qt))
+}
+
+/// As [`set_up_matrix_with`], each liquid-crystal cell's matrix at `qt` given by `cell`.
+fn set_up_matrix_by(
+    stack: &Stack,
+    qt: [f64; 2],
+    outside: &Outside,
+    cell: impl Fn(&CellLayer) -> JonesMatrix,
+) -> JonesMatrix {
     let mut m = JonesMatrix::identity();
     for layer in &stack.layers {
         match layer.element {
@@ -148,7 +158,7 @@ pub fn set_up_matrix_with(stack: &Stack, qt: [f64; 2], outside: &Outside) -> Jon
                 m = plate * m;
             }
             Element::Ideal(jm) => m = jm * m,
-            Element::Cell(c) => m = cell_jones_at(stack, &c, qt) * m,
+            Element::Cell(c) => m = cell(&c) * m,
         }
     }
     m
@@ -230,6 +240,12 @@ pub fn first_retardance_at(stack: &Stack, polar: f64, azimuth: f64) -> Option<f6
 /// The map of `quantity` over `grid`, row-major (row 0 at the top), `None` outside the disc and
 /// where the quantity is undefined (no slab, an evanescent mode).
 pub fn conoscope_map(stack: &Stack, grid: Grid, quantity: Quantity) -> Vec<Option<f64>> {
+    // The rows of cells solved together where the slices' lane kernel is built (not in the
+    // page's size-tuned module, which computes no figure).
+    let lanes = cfg!(any(not(target_arch = "wasm32"), feature = "design-worker"));
+    if lanes && quantity == Quantity::Transmission && !stack.cells.is_empty() {
+        return (0..grid.pixels).flat_map(|row| cells_row(stack, grid, row)).collect();
+    }
     let normal = first_retardance_at(stack, 0.0, 0.0);
     let mut out = Vec::with_capacity(grid.pixels * grid.pixels);
     for row in 0..grid.pixels {
@@ -241,6 +257,34 @@ pub fn conoscope_map(stack: &Stack, grid: Grid, quantity: Quantity) -> Vec<Optio
         }
     }
     out
+}
+
+/// One row of the transmission map of a stack holding liquid-crystal cells: each cell's matrix
+/// at the row's directions solved together ([`layered_jones_each`], the same numbers as
+/// [`transmission_at`] gives one by one).
+fn cells_row(stack: &Stack, grid: Grid, row: usize) -> Vec<Option<f64>> {
+    let directions: Vec<Option<[f64; 2]>> = (0..grid.pixels)
+        .map(|column| grid.direction(column, row).map(|(p, a)| tangential_of(stack, p, a)))
+        .collect();
+    let qts: Vec<[f64; 2]> = directions.iter().flatten().copied().collect();
+    let cells: Vec<Vec<JonesMatrix>> = stack
+        .cells
+        .iter()
+        .map(|cell| layered_jones_each(cell, stack.outside_index, &qts))
+        .collect();
+    let mut next = 0;
+    directions
+        .iter()
+        .map(|qt| {
+            let qt = (*qt)?;
+            let k = next;
+            next += 1;
+            let m = set_up_matrix_by(stack, qt, &outside_modes(stack.outside_index, qt), |c| {
+                cell_jones_by(stack, c, qt, |_| cells[c.optics][k])
+            });
+            Some(power_of(&m, &stack.input.stokes))
+        })
+        .collect()
 }
 
 #[cfg(test)]

@@ -5,7 +5,7 @@
 // at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
 // edit wins over an answer under way, the figure says it is computing, a set-up the figure
 // cannot be solved for names its element, and a liquid-crystal cell's figure comes at the core's
-// 128 × 128; an embedded <spar-figure> computes its own in a worker; the white-light switch
+// 192 × 192; an embedded <spar-figure> computes its own in a worker; the white-light switch
 // draws a c-cut plate's interference colours (black centre between crossed polarizers, coloured
 // isochromes), computed in the worker at 256 × 256, with the sampling noted.
 //
@@ -145,20 +145,20 @@ test('a newer edit wins over an answer under way, the figure says it is computin
     const texts = (await page.evaluate(() => window.doublespar.session.scene('conoscope'))).items.filter((i) => i.type === 'text').map((i) => i.text);
     assert.ok(texts.some((t) => t.includes('not drawn') && t.includes('elements[0]')), JSON.stringify(texts));
 
-    // A liquid-crystal cell is solved at every direction, at the core's cap of 128 × 128, and the
+    // A liquid-crystal cell is solved at every direction, at the core's cap of 192 × 192, and the
     // status and the figure's note say so.
     await page.evaluate(() => window.doublespar.applyScenario({
       version: 2, wavelength_nm: 550, beam: { polarization: { kind: 'linear', azimuth_deg: 0 } },
       elements: [{ kind: 'lc_cell', thickness_um: 2.52, lc: '5cb', twist_deg: 90, pretilt_deg: 2 },
         { kind: 'polarizer', gap_mm: 1, transmission_axis_deg: 90 }],
     }));
-    await page.waitForFunction(() => window.doublespar.session.scene('conoscope').items.some((i) => i.type === 'raster' && i.columns === 128), null, { timeout: 60000, polling: 200 });
+    await page.waitForFunction(() => window.doublespar.session.scene('conoscope').items.some((i) => i.type === 'raster' && i.columns === 192), null, { timeout: 60000, polling: 200 });
     await settled(page);
     const cellScene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
     const cellMap = cellScene.items.find((i) => i.type === 'raster');
-    assert.deepEqual([cellMap?.columns, cellMap?.rows], [128, 128], 'the cell\'s map at the cap');
-    assert.ok(cellScene.items.some((i) => i.type === 'text' && i.text.includes('128 × 128 directions')), 'the note says how many');
-    assert.match(await page.textContent('#convergent-status'), /^128 × 128 directions computed in \d+ ms \(fewer for a liquid-crystal cell, which is solved again at every direction\)/);
+    assert.deepEqual([cellMap?.columns, cellMap?.rows], [192, 192], 'the cell\'s map at the cap');
+    assert.ok(cellScene.items.some((i) => i.type === 'text' && i.text.includes('192 × 192 directions')), 'the note says how many');
+    assert.match(await page.textContent('#convergent-status'), /^192 × 192 directions computed in \d+ ms \(fewer for a liquid-crystal cell, which is solved again at every direction\)/);
   });
 });
 

@@ -3,7 +3,8 @@
 //!
 //! One file per concept: the material's constants ([`nematic`]), the banded solve the director
 //! solver needs ([`banded`]), the director profile from the Oseen–Frank and electric energy
-//! ([`director`]), one uniform slice crossed exactly in closed form ([`slice`]), the light through
+//! ([`director`]), one uniform slice crossed exactly in closed form ([`slice`]), the slices' product at several
+//! directions side by side ([`transfer_lanes`]), the light through
 //! the stratified layer by Berreman's 4×4 method ([`stratified`]), the retardance against voltage by continuation ([`curve`]), and the
 //! catalogue of published nematics ([`catalogue`]).
 
@@ -14,3 +15,4 @@ pub mod director;
 pub mod nematic;
 pub mod slice;
 pub mod stratified;
+pub mod transfer_lanes;

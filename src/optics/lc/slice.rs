@@ -47,7 +47,10 @@
 //!
 //! Speed. [`Slices`] keeps each slice's ε (which does not depend on the light's direction), so a
 //! direction costs per slice Δ, two roots, three sines and cosines, Δ², Δ³ and one complex 4×4
-//! product.
+//! product. Where many directions are wanted (a conoscopic figure), or a cell is solved at a ray's
+//! direction, [`crate::optics::lc::transfer_lanes`] crosses the same slices for less: the
+//! inverse applied to two columns, several directions side by side; this product is what it
+//! falls back to and is checked against.
 
 use crate::optics::lc::director::Profile;
 use crate::optics::lc::nematic::Nematic;
