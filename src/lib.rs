@@ -22,6 +22,7 @@ mod numfmt;
 mod optics;
 mod precision;
 mod random;
+mod small_sort;
 mod view;
 #[cfg(target_arch = "wasm32")]
 mod web;

@@ -123,7 +123,7 @@ impl<'a> Fields<'a> {
         for key in self.map.keys() {
             if !self.taken.iter().any(|t| t == key) {
                 let mut known: Vec<&str> = self.taken.clone();
-                known.sort_unstable();
+                crate::small_sort::sort_by_less(&mut known, |a, b| a < b);
                 known.dedup();
                 return Err(Error::new(
                     self.path_of(key),

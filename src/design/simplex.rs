@@ -59,7 +59,9 @@ pub fn polish(f: impl Fn(&[f64]) -> f64, bounds: &[(f64, f64)], start: &[f64], e
         used += n;
         while used < evaluations {
             let mut order: Vec<usize> = (0..=n).collect();
-            order.sort_by(|&a, &b| values[a].total_cmp(&values[b]));
+            crate::small_sort::sort_by_less(&mut order, |&a, &b| {
+                values[a].total_cmp(&values[b]).then(a.cmp(&b)).is_lt()
+            });
             let (lo_i, hi_i, next_i) = (order[0], order[n], order[n - 1]);
             let (lo_v, hi_v) = (values[lo_i], values[hi_i]);
             if hi_v - lo_v <= FLAT * lo_v.abs().max(1e-300) {

@@ -113,7 +113,7 @@ pub fn quantile_sorted(sorted: &[f64], q: f64) -> f64 {
 /// Summarizes `samples` (non-finite values are dropped) with `bins` histogram bins.
 pub fn summarize(samples: &[f64], bins: usize) -> Summary {
     let mut v: Vec<f64> = samples.iter().copied().filter(|x| x.is_finite()).collect();
-    v.sort_by(|a, b| a.total_cmp(b));
+    crate::small_sort::sort_by_less(&mut v, |a, b| a.total_cmp(b).is_lt());
     let n = v.len();
     if n == 0 {
         return Summary {

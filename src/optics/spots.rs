@@ -30,6 +30,7 @@ use crate::optics::jones::{Jones, JonesMatrix};
 use crate::optics::jones::{JonesJson, to_json};
 use crate::optics::stokes::{self, Ellipse};
 use crate::precision::{OVERLAP_NEGLIGIBLE_EXPONENT, SITE_FRACTION_OF_RADIUS, SPOT_LINK_EXPONENT};
+use crate::small_sort::sort_by_less;
 use num_complex::Complex64;
 use serde::Serialize;
 use std::f64::consts::PI;
@@ -141,40 +142,14 @@ fn same_direction_overlap(beam: &GaussianBeam, p: [f64; 2], q: [f64; 2]) -> f64 
     (-beam.overlap_exponent([p[0] - q[0], p[1] - q[1]], [0.0, 0.0])).exp()
 }
 
-/// Orders (x, y, index) triples by x, then y, then index (heapsort). The one sort of this
-/// module, written out rather than taken from the standard library: each of its generic sorts
-/// adds kilobytes to the page's WebAssembly, and this adds a few hundred bytes.
+/// Orders (x, y, index) triples by x, then y, then index.
 fn sort_keyed(v: &mut [(f64, f64, usize)]) {
-    fn less(a: &(f64, f64, usize), b: &(f64, f64, usize)) -> bool {
+    sort_by_less(v, |a, b| {
         a.0.total_cmp(&b.0)
             .then(a.1.total_cmp(&b.1))
             .then(a.2.cmp(&b.2))
             .is_lt()
-    }
-    fn sift(v: &mut [(f64, f64, usize)], mut root: usize, end: usize) {
-        loop {
-            let mut child = 2 * root + 1;
-            if child >= end {
-                return;
-            }
-            if child + 1 < end && less(&v[child], &v[child + 1]) {
-                child += 1;
-            }
-            if !less(&v[root], &v[child]) {
-                return;
-            }
-            v.swap(root, child);
-            root = child;
-        }
-    }
-    let n = v.len();
-    for start in (0..n / 2).rev() {
-        sift(v, start, n);
-    }
-    for end in (1..n).rev() {
-        v.swap(0, end);
-        sift(v, 0, end);
-    }
+    });
 }
 
 fn root(parent: &mut [usize], mut i: usize) -> usize {

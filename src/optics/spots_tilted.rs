@@ -20,6 +20,7 @@ use crate::optics::jones::{Jones, JonesMatrix, to_json};
 use crate::optics::spots::{Spot, coherency, power_of, stokes_of};
 use crate::optics::stokes;
 use crate::precision::SPOT_LINK_EXPONENT;
+use crate::small_sort::sort_by_less;
 use nalgebra::Vector3;
 use num_complex::Complex64;
 
@@ -70,7 +71,7 @@ pub fn group_tilted(rays: &[ScreenRay], s_in: &[f64; 4], j_in: Option<&Jones>, b
             }
             k += 1;
         }
-        members.sort_unstable();
+        sort_by_less(&mut members, |a, b| a < b);
         spots.push(members);
     }
     spots.iter().map(|m| spot(rays, m, s_in, j_in, beam)).collect()

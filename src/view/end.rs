@@ -19,6 +19,7 @@ use crate::contract::result::TraceResult;
 use crate::numfmt::{LengthUnit, NO_POWER, length, length_auto, power, sig};
 use crate::optics::spots::Spot;
 use crate::optics::stokes::{Handedness, ellipse};
+use crate::small_sort::sort_by_less;
 use crate::view::scene::{Anchor, Aspect, Item, Point, Priority, Rect, Role, Scene, nice_step};
 
 /// Builds the end view of a traced result for a beam of `diameter_mm`, on the screen
@@ -211,7 +212,13 @@ pub fn convex_hull(pts: &[Point]) -> Vec<usize> {
     if idx.len() <= 3 {
         return idx;
     }
-    idx.sort_unstable_by(|&a, &b| pts[a][0].total_cmp(&pts[b][0]).then(pts[a][1].total_cmp(&pts[b][1])));
+    sort_by_less(&mut idx, |&a, &b| {
+        pts[a][0]
+            .total_cmp(&pts[b][0])
+            .then(pts[a][1].total_cmp(&pts[b][1]))
+            .then(a.cmp(&b))
+            .is_lt()
+    });
     let cross = |o: usize, a: usize, b: usize| {
         (pts[a][0] - pts[o][0]) * (pts[b][1] - pts[o][1]) - (pts[a][1] - pts[o][1]) * (pts[b][0] - pts[o][0])
     };
