@@ -33,7 +33,9 @@
 //! [`PlannedTrace::trace`] (natively and in the design worker's WebAssembly; the page's module
 //! has neither), W = 8 is `optics::planned_lanes::BlockedTrace` natively (W = 4 in the design
 //! worker's WebAssembly), where the compiler turns every operation into vector instructions (one
-//! AVX-512 instruction natively, two of WebAssembly's f64x2 in the worker). Every branch that depends on the numbers
+//! AVX-512 instruction natively, two of WebAssembly's f64x2 in the worker, written out as such
+//! by the private `pairs` module, since LLVM left many of them lane by lane there). Every branch
+//! that depends on the numbers
 //! is a per-lane choice: the root of the extraordinary quadratic taken without cancellation, a
 //! mode's scale, the sign that matches a ray to its incident mode, the polar factor's rank-one
 //! case, and whether a ray meets a plane, an aperture or the screen (one by one, a ray that
@@ -351,12 +353,60 @@ fn lanes<T: Copy + Default, const W: usize>(f: impl Fn(usize) -> T) -> [T; W] {
     out
 }
 
+/// The lanes' arithmetic as explicit f64x2 instructions, two lanes to an instruction, in the design
+/// worker's WebAssembly (built with 128-bit SIMD) at an even lane width. Left to itself, LLVM
+/// vectorized the plain lane loops only in part there: many products were computed one lane at a
+/// time and the halves put together again lane by lane (`f64x2.replace_lane`), and a lane's
+/// maximum was a call. IEEE arithmetic rounds alike lane by lane and pair by pair: the same bits.
+#[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+mod pairs {
+    use core::arch::wasm32::{f64x2_splat, v128, v128_load, v128_store};
+
+    /// `f` on each pair of lanes of `a` and `b` (W even).
+    #[inline(always)]
+    pub(super) fn zip<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [f64; W] {
+        let mut out = [0.0; W];
+        for k in (0..W - W % 2).step_by(2) {
+            // SAFETY: lanes k and k + 1 are within each array (k + 1 < W); WebAssembly's v128 loads
+            // and stores take any alignment.
+            unsafe {
+                let r = f(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
+                v128_store(out.as_mut_ptr().add(k).cast(), r);
+            }
+        }
+        out
+    }
+
+    /// `f` on each pair of lanes of `a` and the number `b` in both (W even).
+    #[inline(always)]
+    pub(super) fn with<const W: usize>(a: &[f64; W], b: f64, f: impl Fn(v128, v128) -> v128) -> [f64; W] {
+        let b = f64x2_splat(b);
+        zip(a, a, |x, _| f(x, b))
+    }
+
+    /// `f` on each pair of lanes of `a` (W even).
+    #[inline(always)]
+    pub(super) fn each<const W: usize>(a: &[f64; W], f: impl Fn(v128) -> v128) -> [f64; W] {
+        zip(a, a, |x, _| f(x))
+    }
+}
+
+/// Whether the lanes' arithmetic goes by [`pairs`] (its header).
+#[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+const fn by_pairs(w: usize) -> bool {
+    w.is_multiple_of(2)
+}
+
 macro_rules! lanewise {
-    ($trait:ident, $method:ident, $op:tt) => {
+    ($trait:ident, $method:ident, $op:tt, $pair:ident) => {
         impl<const W: usize> $trait for F<W> {
             type Output = F<W>;
             #[inline(always)]
             fn $method(self, o: F<W>) -> F<W> {
+                #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+                if by_pairs(W) {
+                    return F(pairs::zip(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b)));
+                }
                 F(lanes(|i| self.0[i] $op o.0[i]))
             }
         }
@@ -364,20 +414,28 @@ macro_rules! lanewise {
             type Output = F<W>;
             #[inline(always)]
             fn $method(self, o: f64) -> F<W> {
+                #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+                if by_pairs(W) {
+                    return F(pairs::with(&self.0, o, |a, b| core::arch::wasm32::$pair(a, b)));
+                }
                 F(lanes(|i| self.0[i] $op o))
             }
         }
     };
 }
-lanewise!(Add, add, +);
-lanewise!(Sub, sub, -);
-lanewise!(Mul, mul, *);
-lanewise!(Div, div, /);
+lanewise!(Add, add, +, f64x2_add);
+lanewise!(Sub, sub, -, f64x2_sub);
+lanewise!(Mul, mul, *, f64x2_mul);
+lanewise!(Div, div, /, f64x2_div);
 
 impl<const W: usize> Neg for F<W> {
     type Output = F<W>;
     #[inline(always)]
     fn neg(self) -> F<W> {
+        #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+        if by_pairs(W) {
+            return F(pairs::each(&self.0, |a| core::arch::wasm32::f64x2_neg(a)));
+        }
         F(lanes(|i| -self.0[i]))
     }
 }
@@ -393,11 +451,26 @@ impl<const W: usize> F<W> {
     }
     #[inline(always)]
     fn sqrt(self) -> F<W> {
+        #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+        if by_pairs(W) {
+            return F(pairs::each(&self.0, |a| core::arch::wasm32::f64x2_sqrt(a)));
+        }
         self.map(f64::sqrt)
     }
     #[inline(always)]
     fn abs(self) -> F<W> {
+        #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+        if by_pairs(W) {
+            return F(pairs::each(&self.0, |a| core::arch::wasm32::f64x2_abs(a)));
+        }
         self.map(f64::abs)
+    }
+    /// max(x, 0) per lane as a comparison and a choice (0 for NaN and −0, as `f64::max` gives
+    /// on WebAssembly), not `f64::max`, which was a call per lane there.
+    #[inline(always)]
+    fn at_least_zero(self) -> F<W> {
+        let zero = F::splat(0.0);
+        F::pick(self.test(zero, |a, b| a > b), self, zero)
     }
     #[inline(always)]
     fn test(self, o: F<W>, f: impl Fn(f64, f64) -> bool) -> Mask<W> {
@@ -939,7 +1012,7 @@ fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
     // (`|` and `&`, not `||` and `&&`: no branch per lane.)
     let ahead: Mask<W> = lanes(|i| on[i] | ((along.0[i].abs() >= 1e-15) & (s.0[i] >= -ON_PLANE * scale.0[i])));
     *ok = and(*ok, ahead);
-    let s = F::pick(on, F::splat(0.0), s.map(|s| s.max(0.0)));
+    let s = F::pick(on, F::splat(0.0), s.at_least_zero());
     f.at = f.at.add(&dir.scale(s));
 }
 
