@@ -11,7 +11,9 @@
 //! plane, an aperture or the screen (one by one, that ray is dropped and the others kept; a block
 //! keeps only incidences where every ray goes through, so that its rays are the same in every
 //! lane). So the blocks give the rays of the one-by-one trace for the incidences they keep, in
-//! the same order and with the same bits.
+//! the same order and with the same bits. [`BlockedTrace::trace_each`] hands on each incidence's
+//! rays as a list; [`BlockedTrace::sum_each`] sums a term of them straight from the block's
+//! numbers, in the same order, for a workload that needs only the sum (the benchmark's checksum).
 //!
 //! Builds. Rust does not fuse a product and a sum unless asked (no `mul_add` in the kernel), and
 //! IEEE division and square root are correctly rounded on every instruction set: the kernel
@@ -124,6 +126,47 @@ impl BlockedTrace {
                     alone += 1;
                     each(b * LANES + i, self.plan.trace(u), true);
                 }
+            }
+        }
+        alone
+    }
+
+    /// What [`BlockedTrace::trace_each`] gives, summed: adds to `total`, incidence by incidence
+    /// in order, the sum of `term(power, direction, exit point)` over its rays in order, or
+    /// `declined(index)` where the plan declines it. The same additions in the same order as
+    /// summing what `trace_each` hands on, so the same bits, without listing any lane's rays.
+    /// Returns how many were traced one by one, declined ones included.
+    pub fn sum_each(
+        &mut self,
+        dirs: &[Vector3<f64>],
+        total: &mut f64,
+        term: impl Fn(f64, &Vector3<f64>, &Vector3<f64>) -> f64,
+        mut declined: impl FnMut(usize) -> f64,
+    ) -> usize {
+        let mut alone = 0;
+        for (b, chunk) in dirs.chunks(LANES).enumerate() {
+            let block: [Vector3<f64>; LANES] = std::array::from_fn(|i| chunk[i.min(chunk.len() - 1)]);
+            trace_lanes(&self.plan, &mut self.lanes, &block, self.build);
+            let rays = &self.lanes.rays;
+            for (i, &u) in chunk.iter().enumerate() {
+                // (An iterator's sum starts from −0, which adds nothing to the first term.)
+                let mut sum = -0.0;
+                if rays.ok[i] {
+                    for r in (0..rays.count).filter(|&r| rays.alive[r][i]) {
+                        sum += term(rays.power[r][i], &rays.direction[r][i], &rays.exit[r][i]);
+                    }
+                } else {
+                    alone += 1;
+                    match self.plan.trace(u) {
+                        Some(one) => {
+                            for r in one {
+                                sum += term(r.power, &r.direction, &r.exit_point_mm);
+                            }
+                        }
+                        None => sum = declined(b * LANES + i),
+                    }
+                }
+                *total += sum;
             }
         }
         alone

@@ -11,8 +11,9 @@
 //!   declines by the general tracer (natively and in the design worker's WebAssembly; the page's
 //!   module holds no plan and traces every sample by the general tracer); [`Workload::LaneTrace`]
 //!   the same sum with the planned trace run on blocks of incidences side by side
-//!   ([`BlockedTrace::trace_each`]: the same rays to the bit, so the same checksum; natively and
-//!   in the design worker's WebAssembly: the page's module holds no lanes and runs it as `Trace`);
+//!   ([`BlockedTrace::sum_each`]: the same rays to the bit, summed as they leave the lanes, so the
+//!   same checksum; natively and in the design worker's WebAssembly: the page's module holds no
+//!   lanes and runs it as `Trace`);
 //!   [`Workload::GeneralTrace`] is the same sum by the general tracer alone, the reference they
 //!   are measured against.
 //! - *Splits* ([`Workload::Split`]): the beams "oe" and "eo" by their wave-vector chains
@@ -163,7 +164,7 @@ fn planned_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize) {
     (sum, declined)
 }
 
-/// Incidences per call of [`BlockedTrace::trace_each`]: a few thousand bytes of directions.
+/// Incidences per call of [`BlockedTrace::sum_each`]: a few thousand bytes of directions.
 #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 const LANE_CALL: usize = 256;
 
@@ -185,18 +186,15 @@ fn lane_part(stack: &Stack, n: usize, part: Range<usize>) -> (f64, usize, usize)
         let end = (start + LANE_CALL).min(part.end);
         dirs.clear();
         dirs.extend((start..end).map(|i| incidence(i, n)));
-        alone += plan.trace_each(&dirs, |k, rays, _| match rays {
-            Some(rays) => {
-                sum += rays
-                    .iter()
-                    .map(|r| ray_term(r.power, &r.direction, r.exit_point_mm.x, r.exit_point_mm.y))
-                    .sum::<f64>()
-            }
-            None => {
+        alone += plan.sum_each(
+            &dirs,
+            &mut sum,
+            |power, d, exit| ray_term(power, d, exit.x, exit.y),
+            |k| {
                 declined += 1;
-                sum += general.checksum(dirs[k]);
-            }
-        });
+                general.checksum(dirs[k])
+            },
+        );
         start = end;
     }
     (sum, declined, alone)
