@@ -1178,8 +1178,8 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
                     cross_alive::<ISA, W>(&in_film, second, ideal, &f.alive, &mut ok)
                 }
             };
-            for (k, carrier) in entered.into_iter().enumerate() {
-                let Some(carrier) = carrier else { continue };
+            for (k, carrier) in entered.iter().enumerate() {
+                let &Some(carrier) = carrier else { continue };
                 next.push(Flight {
                     at: f.at,
                     exit: f.at,
