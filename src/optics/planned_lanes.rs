@@ -29,7 +29,11 @@
 //! (profiled under Node with `perf`); at four the spills are fewer and the blocks took about a tenth
 //! less time (10⁵ splitter traces, least CPU time of 11–15 interleaved runs at load 2.6–3.5: 80–89
 //! ms against 92–99 ms; two lanes 103 ms, one by one 135 ms), and the module grows by 35 KB
-//! instead of 59 KB.
+//! instead of 59 KB. Latest, with the kernel's arithmetic, comparisons and choices written out as
+//! f64x2 pairs there (`planned_trace`'s `pairs`), the flights moved on in place and the checksum
+//! summed straight from the blocks ([`BlockedTrace::sum_each`]): least CPU time of 11 runs, in
+//! interleaved sets at load 1.4–3, 52–55 ms in blocks of four against 64–70 ms before; eight
+//! lanes took 62–64 ms and two 69–73 ms with the pairs, so four stays.
 
 #[cfg(target_arch = "x86_64")]
 use crate::optics::planned_trace::{AVX2, AVX512};
