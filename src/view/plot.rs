@@ -239,7 +239,8 @@ impl PlotAxes {
     }
 
     /// Draws the curve `c` dashed against its own axis on the right edge of the frame: a tick
-    /// and its number at round values (about five), and the axis' name above its top end.
+    /// and its number at round values (about five), and the axis' name above its top end (short:
+    /// it shares the line with the left axis' name, and a caption says what the dashes are).
     fn right_axis(&self, scene: &mut Scene, c: &RightCurve) {
         let f = Rect {
             x0: self.x0,
@@ -270,7 +271,7 @@ impl PlotAxes {
         }
         scene.label(
             [self.x1, self.y1 + 0.04 * self.h],
-            format!("{}, dashed", c.name),
+            c.name.to_string(),
             11.0,
             Anchor::End,
             Role::Label,

@@ -103,7 +103,7 @@ test('S3/S0 is drawn on its own axis and downloaded beside the transmission as t
     const frameYs = scene.items.find((i) => i.tag === 'frame').points.map((p) => p[1]);
     const [y0, y1] = [Math.min(...frameYs), Math.max(...frameYs)];
     assert.equal(scene.items.filter((i) => i.tag === 'right tick').length, 5, 'ticks at −1, −0.5, 0, 0.5 and 1');
-    assert.ok(scene.items.some((i) => i.type === 'text' && i.text === 'S3/S0, dashed'), 'the right axis is named');
+    assert.ok(scene.items.some((i) => i.type === 'text' && i.text === 'S3/S0'), 'the right axis is named');
     const points = dashed.flatMap((c) => c.points);
     assert.equal(points.length, want.length);
     points.forEach(([x, y], i) => {
