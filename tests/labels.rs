@@ -48,7 +48,8 @@ fn presets() -> Vec<(String, String)> {
         })
         .collect();
     // Awkward set-ups: tiny and huge lengths, a blocked beam, circular light, a beam with almost
-    // no walk-off, an oblique beam through a long stack.
+    // no walk-off, an oblique beam through a long stack, a spectrum whose S3/S0 curve runs
+    // through both handednesses on its right-hand axis.
     for (name, doc) in [
         (
             "thin film",
@@ -77,6 +78,10 @@ fn presets() -> Vec<(String, String)> {
         (
             "oblique long stack",
             r#"{"beam": {"diameter_mm": 0.05, "incidence": {"polar_deg": 40, "azimuth_deg": 30}}, "elements": [{"kind": "crystal", "material": "yvo4", "thickness_mm": 30, "axis": {"tilt_deg": 45, "azimuth_deg": 10}}, {"kind": "retarder", "retardance_waves": 1234.5678, "fast_axis_deg": 22.5}, {"kind": "crystal", "material": "calcite", "thickness_mm": 0.002, "axis": {"tilt_deg": 80, "azimuth_deg": 70}}]}"#,
+        ),
+        (
+            "spectrum with S3/S0",
+            r#"{"version": 2, "wavelength_nm": 600, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}}, "elements": [{"kind": "crystal", "material": "quartz", "optical_activity": false, "thickness_mm": 0.5, "axis": {"tilt_deg": 90, "azimuth_deg": 45}}], "spectrum": {"from_nm": 400, "to_nm": 800, "points": 81}}"#,
         ),
         (
             "unpolarized",

@@ -14,6 +14,7 @@
 import { h } from './dom.js';
 import { minus } from './format.js';
 import { toFieldError } from './field-error.js';
+import { circularPart } from './views.js';
 
 const PLOT_VIEWS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength', 'split-wavelength', 'split-incidence', 'retardance-temperature', 'separation-temperature', 'transmission-wavelength', 'retardance-voltage'];
 const VIEW_TITLES = {
@@ -65,12 +66,37 @@ function withUnit(label, unit) {
 }
 
 /** A plot's data as CSV: a header naming the columns with units, the samples, then the
- * scenario's own operating point marked "current" in the third column. */
+ * scenario's own operating point marked "current" in the third column. A plot with a second
+ * curve on its own axis (`s.second`, see withSecond) adds its values as a fourth column, on the
+ * samples of the same x (empty where it has none, and on the current row). */
 function seriesCsv(s) {
-  const lines = [csvLine([withUnit(s.x_label, s.x_unit), withUnit(s.y_label, s.y_unit), 'point'])];
-  for (const [x, y] of s.points) lines.push(csvLine([x, y, 'sample']));
+  const header = [withUnit(s.x_label, s.x_unit), withUnit(s.y_label, s.y_unit), 'point'];
+  const second = s.second ? new Map(s.second.points) : null;
+  if (second) header.push(withUnit(s.second.label, s.second.unit));
+  const lines = [csvLine(header)];
+  for (const [x, y] of s.points) lines.push(csvLine(second ? [x, y, 'sample', second.get(x)] : [x, y, 'sample']));
   if (s.current) lines.push(csvLine([s.current[0], s.current[1], 'current']));
   return lines.join('\r\n') + '\r\n';
+}
+
+/**
+ * The series of a plot as exported: the core's series, and for the transmission plot its
+ * dashed curve as `second` {label, unit, axis, about, points} (the output's S3/S0 from the
+ * result's spectrum, on the plot's right-hand axis from −1 to 1).
+ */
+function withSecond(state, view, s) {
+  const spectrum = view === 'transmission-wavelength' ? state.session.result()?.spectrum : null;
+  if (!spectrum) return s;
+  return {
+    ...s,
+    second: {
+      label: 'S3/S0',
+      unit: '',
+      axis: [-1, 1],
+      about: 'the output\'s circular part: +1 right-handed circular, −1 left-handed, 0 linear; left out where no power leaves',
+      points: circularPart(spectrum),
+    },
+  };
 }
 
 /** The results as CSV: one row per output ray, then one per crystal of the stack. */
@@ -110,11 +136,12 @@ function exportView(state, view, format) {
       else exportStatus(`Could not make ${name}: the view has no picture yet.`, true);
     }, 'image/png');
   } else {
-    const s = state.session.series(view);
-    if (!s) {
+    const core = state.session.series(view);
+    if (!core) {
       exportStatus(`The ${VIEW_TITLES[view] ?? view} has no data series.`, true);
       return;
     }
+    const s = withSecond(state, view, core);
     if (format === 'csv') download(name, new Blob([seriesCsv(s)], { type: 'text/csv' }));
     else download(name, jsonBlob(s));
   }

@@ -107,6 +107,18 @@ function nm(v) {
   return num(v, 3).replace(/\.?0+$/, '');
 }
 
+/**
+ * The output's circular part against wavelength, from a result's spectrum: [nm, S3/S0] at every
+ * wavelength that was traced and leaves power (above NO_POWER), the transmission plot's dashed
+ * curve (the core's view::spectrum_plot::circular_vs_wavelength) and the plot's exported column.
+ */
+export function circularPart(spectrum) {
+  return spectrum.wavelength_nm
+    .map((l, i) => [l, spectrum.stokes[i]])
+    .filter(([, s]) => s && s[0] > NO_POWER)
+    .map(([l, s]) => [l, s[3] / s[0]]);
+}
+
 /** A length alone in its sentence, in its own unit. */
 function lengthText(v) {
   return v === null || v === undefined ? '—' : lengthIn(v, lengthUnitFor(v), 3);
@@ -251,8 +263,8 @@ export function describeViews(state) {
     texts['transmission-wavelength'] = traced.length === 0
       ? `Transmission against wavelength: none of the ${n} wavelengths could be traced.`
       : `Transmission of the whole set-up from ${nm(spectrum.wavelength_nm[0])} to ${nm(spectrum.wavelength_nm[n - 1])} nm, ${n} points: between ${num(low, 3)} and ${num(high, 3)}.`;
-    const s3 = spectrum.stokes.filter((s) => s && s[0] > NO_POWER).map((s) => s[3] / s[0]);
-    if (s3.length > 0) texts['transmission-wavelength'] += ` Dashed: the output's circular part S3/S0 (+1 right-handed, −1 left), between ${num(Math.min(...s3), 3)} and ${num(Math.max(...s3), 3)}.`;
+    const s3 = circularPart(spectrum).map((p) => p[1]);
+    if (s3.length > 0) texts['transmission-wavelength'] += ` Dashed, on the right-hand axis from −1 to 1: the output's circular part S3/S0 (+1 right-handed, −1 left), between ${num(Math.min(...s3), 3)} and ${num(Math.max(...s3), 3)}.`;
     const w = spectrum.white_light;
     if (w) texts['transmission-wavelength'] += ` In white light (D65) it shows ${w.srgb}${w.chromaticity ? `, chromaticity x ${num(w.chromaticity[0], 3)}, y ${num(w.chromaticity[1], 3)}` : ''}, luminous transmittance ${num(w.xyz[1], 3)}.`;
   }

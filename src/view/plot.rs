@@ -26,36 +26,65 @@ fn axis_unit(unit: &str, largest: f64) -> (f64, String) {
 
 /// Builds the plot of a series.
 pub fn plot(series: &Series) -> Scene {
-    plot_with(series, &[], "")
+    plot_with(series, None)
 }
 
-/// Builds the plot of a series with a second, dashed curve `second` (points in the same units,
-/// drawn split at gaps as the first, tagged `tag`) inside the same axes, which then span both.
-pub fn plot_with(series: &Series, second: &[[f64; 2]], tag: &str) -> Scene {
+/// A second curve drawn dashed against an axis of its own on the right of the frame: `points`
+/// in the series' x units and the curve's own y units, `range` [bottom, top] the span of that
+/// axis (the frame's height), `name` the axis's name, `tag` the curve's.
+pub struct RightCurve<'a> {
+    /// The samples [x, y], x in the series' units, y in the right axis'.
+    pub points: &'a [[f64; 2]],
+    /// The values at the bottom and at the top of the frame.
+    pub range: [f64; 2],
+    /// The right axis' name, written above its top end.
+    pub name: &'a str,
+    /// The curve's tag.
+    pub tag: &'a str,
+}
+
+impl RightCurve<'_> {
+    /// Where the value `v` of the right axis stands in the left axis' units, for the data
+    /// `frame` of [`frame`].
+    ///
+    /// Formula: y = y0 + (v − bottom)·(y1 − y0)/(top − bottom).
+    pub fn y_in(&self, frame: &Rect, v: f64) -> f64 {
+        let [lo, hi] = self.range;
+        frame.y0 + (v - lo) * (frame.height() / (hi - lo))
+    }
+}
+
+/// Builds the plot of a series with, when given, a `second` curve on its own right-hand axis
+/// (dashed, split at gaps as the first; the left axis spans the series alone).
+pub fn plot_with(series: &Series, second: Option<&RightCurve>) -> Scene {
     let mut scene = Scene::new(&series.title, &series.note, Aspect::Free);
-    let Some(a) = PlotAxes::of(series, second) else {
+    let Some(a) = PlotAxes::of(series) else {
         empty_panel(&mut scene, series.note.clone());
         return scene;
     };
     a.grid_and_ticks(&mut scene);
     a.frame_and_names(&mut scene, series);
     a.curve(&mut scene, &series.points, vec![], "curve");
-    a.curve(&mut scene, second, vec![6.0, 4.0], tag);
+    let mut right = 0.03;
+    if let Some(c) = second.filter(|c| !c.points.is_empty()) {
+        a.right_axis(&mut scene, c);
+        right = 0.12;
+    }
     a.marked_points(&mut scene, series);
     scene.bounds = Rect {
         x0: a.x0 - 0.1 * a.w,
         y0: a.y0 - 0.31 * a.h,
-        x1: a.x1 + 0.03 * a.w,
+        x1: a.x1 + right * a.w,
         y1: a.y1 + 0.1 * a.h,
     };
     scene
 }
 
-/// The data frame [`plot_with`] draws for `series` and its `second` curve (x over the data, y
-/// from 0 or below to the top), in data units, so that a caller can place things relative to
-/// it; `None` for an empty series.
-pub fn frame(series: &Series, second: &[[f64; 2]]) -> Option<Rect> {
-    PlotAxes::of(series, second).map(|a| Rect {
+/// The data frame [`plot_with`] draws for `series` (x over the data, y from 0 or below to the
+/// top), in data units, so that a caller can place things relative to it; `None` for an empty
+/// series.
+pub fn frame(series: &Series) -> Option<Rect> {
+    PlotAxes::of(series).map(|a| Rect {
         x0: a.x0,
         y0: a.y0,
         x1: a.x1,
@@ -90,11 +119,11 @@ struct PlotAxes {
 }
 
 impl PlotAxes {
-    /// Axes around every point of `series` (curve, current point, markers) and of `second`;
-    /// `None` when there is none.
-    fn of(series: &Series, second: &[[f64; 2]]) -> Option<PlotAxes> {
+    /// Axes around every point of `series` (curve, current point, markers); `None` when there
+    /// is none.
+    fn of(series: &Series) -> Option<PlotAxes> {
         let mut pts: Vec<[f64; 2]> = series.points.clone();
-        pts.extend(series.current.iter().chain(&series.markers).chain(second));
+        pts.extend(series.current.iter().chain(&series.markers));
         (!pts.is_empty()).then(|| PlotAxes::around(series, Rect::around(pts)))
     }
 
@@ -207,6 +236,49 @@ impl PlotAxes {
         if !run.is_empty() {
             scene.line(run, Role::Curve, dash, 1.8, tag);
         }
+    }
+
+    /// Draws the curve `c` dashed against its own axis on the right edge of the frame: a tick
+    /// and its number at round values (about five), and the axis' name above its top end (short:
+    /// it shares the line with the left axis' name, and a caption says what the dashes are).
+    fn right_axis(&self, scene: &mut Scene, c: &RightCurve) {
+        let f = Rect {
+            x0: self.x0,
+            y0: self.y0,
+            x1: self.x1,
+            y1: self.y1,
+        };
+        let [lo, hi] = c.range;
+        let step = nice_step_at_least((hi - lo).abs() / 5.0);
+        let mut t = (lo.min(hi) / step).ceil() * step;
+        while t <= lo.max(hi) + 1e-9 * step {
+            let y = c.y_in(&f, t);
+            scene.line(
+                vec![[self.x1, y], [self.x1 + 0.015 * self.w, y]],
+                Role::Frame,
+                vec![],
+                1.0,
+                "right tick",
+            );
+            scene.fixed_label(
+                [self.x1 + 0.025 * self.w, y - 0.02 * self.h],
+                tick(t, step),
+                10.0,
+                Anchor::Start,
+                Role::Caption,
+            );
+            t += step;
+        }
+        scene.label(
+            [self.x1, self.y1 + 0.04 * self.h],
+            c.name.to_string(),
+            11.0,
+            Anchor::End,
+            Role::Label,
+            Priority::Normal,
+        );
+        let drawn: Vec<[f64; 2]> = c.points.iter().map(|p| [p[0], c.y_in(&f, p[1])]).collect();
+        self.curve(scene, &drawn, vec![6.0, 4.0], c.tag);
     }
 
     /// Draws the current point and the series' markers, each with its value beside it.

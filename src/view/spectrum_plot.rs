@@ -7,12 +7,12 @@
 //! note says none was asked for; points where a formula breaks down (null) are left out and
 //! counted in the note. When the result holds the set-up's colour in white light
 //! (`spectrum.white_light`), the plot shows it as a swatch below its left corner. The output's
-//! polarization is drawn as a dashed second curve in the same axes, S3/S0 from the result's
+//! polarization is drawn as a dashed second curve against its own right-hand axis from −1 to 1
+//! (the transmission keeps the left axis and its own scale), S3/S0 from the result's
 //! `spectrum.stokes` (the circular part: +1 right-handed, −1 left-handed, Born & Wolf's
-//! handedness as `optics::stokes` uses it), which then run from −1 to 1; a line below the plot
-//! says what the dashes are.
+//! handedness as `optics::stokes` uses it); a line below the plot says what the dashes are.
 
-use super::plot::{frame, plot_with};
+use super::plot::{RightCurve, frame, plot_with};
 use super::scene::{Anchor, Item, Priority, Role, Scene};
 use super::series::Series;
 use crate::contract::result::TraceResult;
@@ -20,13 +20,13 @@ use crate::contract::scenario::Scenario;
 use crate::numfmt::NO_POWER;
 
 /// The transmission plot of the whole set-up, with the output's S3/S0 as a dashed second curve
-/// (captioned on a line below the plot) and its white-light colour as a swatch under the plot's
+/// on a right-hand axis from −1 to 1 ([`CIRCULAR_AXIS`], captioned on a line below the plot) and its white-light colour as a swatch under the plot's
 /// left corner when the result has them.
 pub fn transmission_plot(sc: &Scenario, result: &TraceResult) -> Scene {
     let series = transmission_vs_wavelength(sc, result);
     let s3 = circular_vs_wavelength(result);
-    let mut scene = plot_with(&series, &s3, "S3/S0 curve");
-    let Some(f) = frame(&series, &s3) else {
+    let mut scene = plot_with(&series, Some(&circular_axis(&s3)));
+    let Some(f) = frame(&series) else {
         return scene;
     };
     let (width, height) = (f.width(), f.height());
@@ -59,6 +59,20 @@ pub fn transmission_plot(sc: &Scenario, result: &TraceResult) -> Scene {
         );
     }
     scene
+}
+
+/// The right-hand axis of the transmission plot's S3/S0 curve: −1 at the bottom of the frame,
+/// +1 at the top, whatever the transmission's own scale.
+const CIRCULAR_AXIS: [f64; 2] = [-1.0, 1.0];
+
+/// The S3/S0 curve `s3` ([`circular_vs_wavelength`]) as the plot draws it, on its own axis.
+fn circular_axis(s3: &[[f64; 2]]) -> RightCurve<'_> {
+    RightCurve {
+        points: s3,
+        range: CIRCULAR_AXIS,
+        name: "S3/S0",
+        tag: "S3/S0 curve",
+    }
 }
 
 /// The circular part S3/S0 of the forward light against wavelength, from the result's
@@ -171,8 +185,29 @@ mod tests {
         let Some(Item::Polyline { points, dash, .. }) = scene.tagged("S3/S0 curve").next() else {
             panic!("no S3/S0 curve");
         };
-        assert_eq!(points, &s3);
+        // On its own axis: −1 at the frame's bottom, +1 at its top, read back through the frame
+        // the transmission alone sets (0 to its largest value).
+        let f = frame(&transmission_vs_wavelength(&sc, &r)).unwrap();
+        assert_eq!(f.y0, 0.0);
+        assert_eq!(points.len(), s3.len());
+        for (p, want) in points.iter().zip(&s3) {
+            let back = -1.0 + 2.0 * (p[1] - f.y0) / f.height();
+            assert_eq!(p[0], want[0]);
+            assert!(
+                (back - want[1]).abs() <= 1e-12,
+                "S3/S0 at {} nm: drawn {back}, result {}",
+                p[0],
+                want[1]
+            );
+        }
         assert!(!dash.is_empty(), "dashed");
+        // The right axis: ticks at −1, −0.5, 0, 0.5 and 1, and its name.
+        let texts = scene.texts();
+        let ticks = [-1.0, -0.5, 0.5, 1.0].map(|t| crate::numfmt::tick(t, 0.5));
+        for t in ticks.iter().map(String::as_str).chain(["S3/S0"]) {
+            assert!(texts.contains(&t), "{t} in {texts:?}");
+        }
+        assert_eq!(scene.tagged("right tick").count(), 5);
         assert!(scene.is_finite());
         let svg = crate::view::svg::to_svg(&scene, 480.0, 300.0, &crate::view::palette::Palette::light());
         assert!(svg.contains("dashed: S3/S0"), "{svg}");

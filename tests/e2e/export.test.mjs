@@ -9,7 +9,7 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'node:fs';
 import path from 'node:path';
-import { ARTIFACTS, useBrowser, withPage as openAt, solveDesign } from './support.mjs';
+import { ARTIFACTS, useBrowser, withPage as openAt, solveDesign, exported, parseCsv } from './support.mjs';
 
 const VIEWS = ['side', 'end', 'poincare', 'walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
 const PLOTS = ['walkoff-tilt', 'separation-wavelength', 'retardance-wavelength'];
@@ -19,40 +19,6 @@ const env = useBrowser({ cli: false });
 
 /** Opens the page (demo set-up), runs `body(page)`, then checks it as every test page (support.mjs). */
 const withPage = (body, options = {}) => openAt(env, '/', ({ page }) => body(page), { acceptDownloads: true, ...options });
-
-/** Clicks the export button `what` and returns {name, body: Buffer} of the download. */
-async function exported(page, what) {
-  const button = page.locator(`button[data-export="${what}"]`);
-  assert.equal(await button.count(), 1, `one button data-export="${what}"`);
-  const label = await button.getAttribute('aria-label');
-  assert.match(label ?? '', /^Download the /, `${what} has an aria-label saying what it downloads`);
-  const [download] = await Promise.all([page.waitForEvent('download'), button.click()]);
-  assert.ok(download.url().startsWith('blob:'), `${what} is downloaded from a Blob URL, not ${download.url()}`);
-  const file = await download.path();
-  return { name: download.suggestedFilename(), body: fs.readFileSync(file) };
-}
-
-/** Splits CSV text into rows of fields (no field here holds a newline). */
-function parseCsv(text) {
-  return text
-    .split(/\r?\n/)
-    .filter((l, i, all) => !(l === '' && i === all.length - 1))
-    .map((line) => {
-      const out = [];
-      let cur = '';
-      let quoted = false;
-      for (let i = 0; i < line.length; i++) {
-        const c = line[i];
-        if (quoted) {
-          if (c === '"' && line[i + 1] === '"') { cur += '"'; i++; } else if (c === '"') quoted = false;
-          else cur += c;
-        } else if (c === '"') quoted = true;
-        else if (c === ',') { out.push(cur); cur = ''; } else cur += c;
-      }
-      out.push(cur);
-      return out;
-    });
-}
 
 test('every view exports as SVG that parses, with the side view tracing the e-ray', async () => {
   await withPage(async (page) => {

@@ -1,6 +1,6 @@
 // Shared by the end-to-end tests and scripts/bench-web.mjs: a static file server for www/, the
 // Chromium launch, one way to open a page and check what every test must hold, the command line
-// as reference, the contract's result paths, and pixel counts of canvases.
+// as reference, the contract's result paths, pixel counts of canvases, and the page's downloads.
 //
 // Nothing here reaches the network: the server listens on 127.0.0.1 at a free port, and every
 // page opened through openPage() has each request it makes logged and, unless it goes to that
@@ -494,4 +494,41 @@ export async function waitError(page, path, attr = 'data-error-for', timeout = 1
     if (Date.now() > end) assert.fail(`no message shown in [${attr}="${path}"]`);
     await page.waitForTimeout(40);
   }
+}
+
+/**
+ * Clicks the page's export button `what` (on a page opened with acceptDownloads) and returns
+ * {name, body: Buffer} of the download.
+ */
+export async function exported(page, what) {
+  const button = page.locator(`button[data-export="${what}"]`);
+  assert.equal(await button.count(), 1, `one button data-export="${what}"`);
+  const label = await button.getAttribute('aria-label');
+  assert.match(label ?? '', /^Download the /, `${what} has an aria-label saying what it downloads`);
+  const [download] = await Promise.all([page.waitForEvent('download'), button.click()]);
+  assert.ok(download.url().startsWith('blob:'), `${what} is downloaded from a Blob URL, not ${download.url()}`);
+  const file = await download.path();
+  return { name: download.suggestedFilename(), body: fs.readFileSync(file) };
+}
+
+/** Splits CSV text into rows of fields (no field here holds a newline). */
+export function parseCsv(text) {
+  return text
+    .split(/\r?\n/)
+    .filter((l, i, all) => !(l === '' && i === all.length - 1))
+    .map((line) => {
+      const out = [];
+      let cur = '';
+      let quoted = false;
+      for (let i = 0; i < line.length; i++) {
+        const c = line[i];
+        if (quoted) {
+          if (c === '"' && line[i + 1] === '"') { cur += '"'; i++; } else if (c === '"') quoted = false;
+          else cur += c;
+        } else if (c === '"') quoted = true;
+        else if (c === ',') { out.push(cur); cur = ''; } else cur += c;
+      }
+      out.push(cur);
+      return out;
+    });
 }
