@@ -279,26 +279,37 @@ pub fn bench_walkoff_sweep(n: usize) -> f64 {
 /// traces by the planned trace in blocks of incidences side by side), `"each"` (the same one
 /// incidence at a time), `"general"` (the same by the general tracer) or `"split"` (split
 /// angles), returning its checksum (scripts/bench.sh runs it under Node beside the native build
-/// and the numpy baseline).
+/// and the numpy baseline); or, for `"alone"` and `"declined"`, how many of the whole traces the
+/// lanes gave back to be traced one by one and how many the plan declined
+/// ([`crate::optics::workload::samples_traced_alone`], [`crate::optics::workload::declined_samples`];
+/// tests/worker_lanes.mjs checks that both are 0 there, as natively).
 ///
 /// # Errors
 /// `{field, message}`: the scenario's first error, naming its field; `work` when it is none of
-/// the four.
+/// the six.
 #[cfg(feature = "design-worker")]
 #[wasm_bindgen(js_name = benchSplitter)]
 pub fn bench_splitter(doc: &str, n: usize, work: &str) -> Result<f64, JsValue> {
     use crate::optics::workload::{Workload, run};
+    let resolved = || Scenario::from_json_str(doc).and_then(|s| s.resolve()).map_err(js_error);
+    match work {
+        "alone" => return Ok(crate::optics::workload::samples_traced_alone(&resolved()?.0, n) as f64),
+        "declined" => return Ok(crate::optics::workload::declined_samples(&resolved()?.0, n) as f64),
+        _ => {}
+    }
     let work = match work {
         "trace" => Workload::LaneTrace,
         "each" => Workload::Trace,
         "general" => Workload::GeneralTrace,
         "split" => Workload::Split,
-        _ => return Err(js_error(Error::new("work", "one of trace, each, general, split"))),
+        _ => {
+            return Err(js_error(Error::new(
+                "work",
+                "one of trace, each, general, split, alone, declined",
+            )));
+        }
     };
-    let (stack, _) = Scenario::from_json_str(doc)
-        .and_then(|s| s.resolve())
-        .map_err(js_error)?;
-    Ok(run(&stack, n, work))
+    Ok(run(&resolved()?.0, n, work))
 }
 
 /// The quantity of a convergent-light view, and its slot in a [`Session`].
