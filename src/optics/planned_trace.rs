@@ -339,8 +339,20 @@ fn exit_crossing(medium: &Medium, normal: V3, outside: f64) -> Option<Crossing> 
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct F<const W: usize>(pub [f64; W]);
 
-/// A yes or no per lane.
-pub(crate) type Mask<const W: usize> = [bool; W];
+/// A yes or no per lane, as every bit of the lane set (yes) or clear (no): the form in which a
+/// vector comparison gives it and a vector choice takes it. (As `bool`s, each comparison's lanes
+/// were packed into bytes and each choice unpacked them again: in the design worker's WebAssembly
+/// that took a tenth of the crossings' instructions.)
+pub(crate) type Mask<const W: usize> = [u64; W];
+
+/// The lane of a [`Mask`] that says yes.
+const YES: u64 = u64::MAX;
+
+/// A [`Mask`] as one `bool` per lane.
+#[inline(always)]
+fn says_yes<const W: usize>(m: &Mask<W>) -> [bool; W] {
+    lanes(|i| m[i] != 0)
+}
 
 /// `[f(0), f(1), …]` by a plain loop, which is inlined into the vector builds (the standard
 /// arrays' `map` and `from_fn` stayed calls, compiled without the vector instructions).
@@ -363,7 +375,7 @@ fn lanes<T: Copy + Default, const W: usize>(f: impl Fn(usize) -> T) -> [T; W] {
 /// arithmetic rounds alike lane by lane and pair by pair: the same bits.
 #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
 mod pairs {
-    use core::arch::wasm32::{f64x2_splat, i64x2, i64x2_bitmask, v128, v128_bitselect, v128_load, v128_store};
+    use core::arch::wasm32::{f64x2_splat, v128, v128_and, v128_bitselect, v128_load, v128_store};
 
     /// `f` on each pair of lanes of `a` and `b` (W even).
     #[inline(always)]
@@ -387,37 +399,46 @@ mod pairs {
         zip(a, a, |x, _| f(x, b))
     }
 
-    /// The comparison `f` of each pair of lanes of `a` and `b`, as a yes or no per lane (W even):
-    /// the two lanes' signs at once (`i64x2.bitmask`), not one lane at a time.
+    /// The comparison `f` of each pair of lanes of `a` and `b`, as its mask of set or clear
+    /// lanes (W even).
     #[inline(always)]
-    pub(super) fn mask<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [bool; W] {
-        let mut out = [false; W];
+    pub(super) fn mask<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [u64; W] {
+        let mut out = [0; W];
         for k in (0..W - W % 2).step_by(2) {
             // SAFETY: as in `zip`.
-            let bits = unsafe {
-                i64x2_bitmask(f(
-                    v128_load(a.as_ptr().add(k).cast()),
-                    v128_load(b.as_ptr().add(k).cast()),
-                ))
-            };
-            out[k] = bits & 1 != 0;
-            out[k + 1] = bits & 2 != 0;
+            unsafe {
+                let r = f(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
+                v128_store(out.as_mut_ptr().add(k).cast(), r);
+            }
         }
         out
     }
 
-    /// `a` where `m` holds, else `b`, per pair of lanes (W even).
+    /// Both masks' yes, per pair of lanes (W even).
     #[inline(always)]
-    pub(super) fn pick<const W: usize>(m: &[bool; W], a: &[f64; W], b: &[f64; W]) -> [f64; W] {
+    pub(super) fn both<const W: usize>(a: &[u64; W], b: &[u64; W]) -> [u64; W] {
+        let mut out = [0; W];
+        for k in (0..W - W % 2).step_by(2) {
+            // SAFETY: as in `zip`.
+            unsafe {
+                let r = v128_and(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
+                v128_store(out.as_mut_ptr().add(k).cast(), r);
+            }
+        }
+        out
+    }
+
+    /// `a` where `m` says yes, else `b`, per pair of lanes (W even).
+    #[inline(always)]
+    pub(super) fn pick<const W: usize>(m: &[u64; W], a: &[f64; W], b: &[f64; W]) -> [f64; W] {
         let mut out = [0.0; W];
         for k in (0..W - W % 2).step_by(2) {
-            let choose = i64x2(-i64::from(m[k]), -i64::from(m[k + 1]));
             // SAFETY: as in `zip`.
             unsafe {
                 let r = v128_bitselect(
                     v128_load(a.as_ptr().add(k).cast()),
                     v128_load(b.as_ptr().add(k).cast()),
-                    choose,
+                    v128_load(m.as_ptr().add(k).cast()),
                 );
                 v128_store(out.as_mut_ptr().add(k).cast(), r);
             }
@@ -449,7 +470,7 @@ macro_rules! comparisons {
                     if by_pairs(W) {
                         return pairs::mask(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b));
                     }
-                    lanes(|i| self.0[i] $op o.0[i])
+                    lanes(|i| if self.0[i] $op o.0[i] { YES } else { 0 })
                 }
             )*
         }
@@ -545,7 +566,7 @@ impl<const W: usize> F<W> {
         if by_pairs(W) {
             return F(pairs::pick(&m, &a.0, &b.0));
         }
-        F(lanes(|i| if m[i] { a.0[i] } else { b.0[i] }))
+        F(lanes(|i| if m[i] != 0 { a.0[i] } else { b.0[i] }))
     }
 }
 
@@ -561,6 +582,10 @@ fn finite<const W: usize>(x: F<W>) -> Mask<W> {
 
 #[inline(always)]
 fn and<const W: usize>(a: Mask<W>, b: Mask<W>) -> Mask<W> {
+    #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+    if by_pairs(W) {
+        return pairs::both(&a, &b);
+    }
     lanes(|i| a[i] & b[i])
 }
 
@@ -867,7 +892,7 @@ pub(crate) struct OutsideWaves([Wave<1>; 2]);
 /// The forward waves of the outside medium of index `outside` at tangential wave vector `qt`, as
 /// `isotropic_modes` gives them; `None` when they are not safely propagating.
 pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> {
-    let mut ok = [true];
+    let mut ok = [YES];
     let waves = modes(
         &Local::Isotropic(outside),
         [F([qt[0]]), F([qt[1]])],
@@ -875,7 +900,7 @@ pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> 
         false,
         &mut ok,
     );
-    ok[0].then_some(OutsideWaves(waves))
+    (ok[0] != 0).then_some(OutsideWaves(waves))
 }
 
 /// A plane-parallel plate of `crystal` (lab frame, both faces across z) between half-spaces of
@@ -894,7 +919,7 @@ pub(crate) fn parallel_plate(
     qt: [f64; 2],
     ideal: bool,
 ) -> Option<(Matrix2<f64>, Matrix2<f64>, [f64; 2])> {
-    let mut ok = [true];
+    let mut ok = [YES];
     let inside = modes(
         &Local::Uniaxial(*crystal, *surfaces),
         [F([qt[0]]), F([qt[1]])],
@@ -909,7 +934,7 @@ pub(crate) fn parallel_plate(
         t_out = lossless_part(&t_out);
     }
     let real = |t: &M2<1>| Matrix2::new(t[0][0].0[0], t[0][1].0[0], t[1][0].0[0], t[1][1].0[0]);
-    ok[0].then(|| (real(&t_in), real(&t_out), [inside[0].q.z.0[0], inside[1].q.z.0[0]]))
+    (ok[0] != 0).then(|| (real(&t_in), real(&t_out), [inside[0].q.z.0[0], inside[1].q.z.0[0]]))
 }
 
 /// `e`/|e| per lane, as the complex quotient of zero imaginary parts rounds.
@@ -1113,10 +1138,10 @@ impl<const W: usize> Default for LaneBuffers<W> {
 /// lanes traced here.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct LaneRays<const W: usize> {
-    pub ok: Mask<W>,
+    pub ok: [bool; W],
     pub count: usize,
     pub label: [u32; 64],
-    pub alive: [Mask<W>; 64],
+    pub alive: [[bool; W]; 64],
     pub power: [[f64; W]; 64],
     pub direction: [[Vector3<f64>; W]; 64],
     pub exit: [[Vector3<f64>; W]; 64],
@@ -1132,7 +1157,7 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
     dirs: &[Vector3<f64>; W],
     drop_rays: bool,
 ) {
-    let mut ok = [true; W];
+    let mut ok = [YES; W];
     let ideal = plan.ideal();
     let identity = [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]];
     let LaneBuffers {
@@ -1154,7 +1179,7 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
             m: identity,
         },
         label: 0,
-        alive: [true; W],
+        alive: [YES; W],
     });
     for slab in plan.slabs() {
         next.clear();
@@ -1226,13 +1251,13 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
         let power = term(0) + term(1);
         let r = out.count;
         out.label[r] = f.label;
-        out.alive[r] = alive;
+        out.alive[r] = says_yes(&alive);
         out.power[r] = power.0;
         out.direction[r] = std::array::from_fn(|i| u.lane(i));
         out.exit[r] = std::array::from_fn(|i| f.exit.lane(i));
         out.count += 1;
     }
-    out.ok = ok;
+    out.ok = says_yes(&ok);
 }
 
 /// A ray's way to a face `plane` of a slab of aperture `aperture`: where it misses, dropped
@@ -1255,7 +1280,7 @@ fn to_plane<const W: usize>(
     } else {
         *ok = and(*ok, hit);
     }
-    f.alive.iter().any(|&a| a)
+    f.alive.iter().any(|&a| a != 0)
 }
 
 /// One crossing of a ray: the lanes it declines are lost where the ray is on its way (`alive`).
@@ -1267,7 +1292,7 @@ fn cross_alive<const ISA: u8, const W: usize>(
     alive: &Mask<W>,
     ok: &mut Mask<W>,
 ) -> Beyond<W> {
-    let mut fine = [true; W];
+    let mut fine = [YES; W];
     let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
     *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
     beyond
