@@ -134,6 +134,17 @@ pub(crate) struct Crossing {
     pub(crate) into: Local,
 }
 
+impl Crossing {
+    /// How many rays leave the face forward: one into an isotropic body, one per mode into a
+    /// crystal.
+    fn rays_beyond(&self) -> usize {
+        match self.into {
+            Local::Isotropic(_) => 1,
+            Local::Uniaxial(..) => 2,
+        }
+    }
+}
+
 /// How rays reach a slab's front face.
 // One per crystal of a plan, made once: boxing the larger variant would only add a pointer to
 // follow at every crossing.
@@ -973,6 +984,19 @@ enum Carrier<const W: usize> {
 }
 
 impl<const W: usize> Carrier<W> {
+    /// A place for a carrier, before a crossing writes one there.
+    fn empty() -> Carrier<W> {
+        let zero = F::splat(0.0);
+        Carrier::Free {
+            n: 1.0,
+            u: V {
+                x: zero,
+                y: zero,
+                z: zero,
+            },
+            m: [[zero; 2]; 2],
+        }
+    }
     #[inline(always)]
     fn q(&self) -> V<W> {
         match self {
@@ -999,15 +1023,45 @@ struct Flight<const W: usize> {
     alive: Mask<W>,
 }
 
+impl<const W: usize> Flight<W> {
+    /// A place for a flight, before a block writes one there.
+    fn empty() -> Flight<W> {
+        let zero = F::splat(0.0);
+        let at = V {
+            x: zero,
+            y: zero,
+            z: zero,
+        };
+        Flight {
+            at,
+            exit: at,
+            carrier: Carrier::empty(),
+            label: 0,
+            alive: [0; W],
+        }
+    }
+}
+
 /// Crosses one face for one ray per lane (the general tracer's `Tracer::cross` for propagating
-/// modes): the rays beyond it (one into an isotropic body, one per mode into a crystal); `ok`
-/// loses the lanes where a mode is not safely propagating, the carrier's modes share their wave
-/// vector, or the boundary problem is singular.
+/// modes), writing the rays beyond it into `beyond` (one into an isotropic body, one per mode into
+/// a crystal, [`Crossing::rays_beyond`]); `ok` loses the lanes where a mode is not safely
+/// propagating, the carrier's modes share their wave vector, or the boundary problem is singular,
+/// and every lane if `beyond` has too few places.
+///
+/// The rays are written where they will fly, not returned: a carrier is some 360 bytes at four
+/// lanes, and in the design worker's WebAssembly each carrier returned and moved into its flight
+/// was a `memory.copy`, a call out of the module (a tenth of the blocks' time, profiled).
 ///
 /// One copy per instruction set, called (not inlined) from each crossing of the plan: inlined,
 /// a block's five kinds of crossing made a kernel too large for the instruction cache.
 #[inline(always)]
-fn cross_with<const W: usize>(carrier: &Carrier<W>, crossing: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+fn cross_with<const W: usize>(
+    carrier: &Carrier<W>,
+    crossing: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
     let frame = &crossing.frame.frame;
     let q_face = carrier.q().rotated(&crossing.frame.to_face);
     let qt = [q_face.x, q_face.y];
@@ -1055,12 +1109,18 @@ fn cross_with<const W: usize>(carrier: &Carrier<W>, crossing: &Crossing, ideal: 
                     }
                 }
             }
-            [Some(Carrier::Free { n, u, m }), None]
+            match beyond {
+                [free, ..] => *free = Carrier::Free { n, u, m },
+                [] => *ok = [0; W],
+            }
         }
-        Local::Uniaxial(..) => [
-            Some(bound(&b_fwd[0], frame, 0, out[0])),
-            Some(bound(&b_fwd[1], frame, 1, out[1])),
-        ],
+        Local::Uniaxial(..) => match beyond {
+            [o, e, ..] => {
+                *o = bound(&b_fwd[0], frame, 0, out[0]);
+                *e = bound(&b_fwd[1], frame, 1, out[1]);
+            }
+            _ => *ok = [0; W],
+        },
     }
 }
 
@@ -1076,16 +1136,15 @@ fn bound<const W: usize>(w: &Wave<W>, frame: &Matrix3<f64>, kind: usize, amp: [F
     }
 }
 
-/// [`Plane::meet`] per lane, the ray moved there; `ok` loses the lanes where it cannot get there.
+/// [`Plane::meet`] per lane from `at` along `dir`, `at` moved there; `ok` loses the lanes where it cannot get there.
 #[inline(always)]
-fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
-    let dir = f.carrier.direction();
-    let to = V::splat(&plane.point).sub(&f.at);
+fn travel<const W: usize>(at: &mut V<W>, dir: &V<W>, plane: &Plane, ok: &mut Mask<W>) {
+    let to = V::splat(&plane.point).sub(at);
     let n = V::splat(&plane.normal);
     let gap = n.dot(&to);
     let scale = to.norm() + 1.0;
     let on = gap.abs().le(scale * ON_PLANE);
-    let along = n.dot(&dir);
+    let along = n.dot(dir);
     let s = gap / along;
     // (`|` and `&`, not `||` and `&&`: no branch per lane.)
     let steep = along.abs().ge(F::splat(1e-15));
@@ -1093,7 +1152,7 @@ fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
     let ahead: Mask<W> = lanes(|i| on[i] | (steep[i] & forward[i]));
     *ok = and(*ok, ahead);
     let s = F::pick(on, F::splat(0.0), s.at_least_zero());
-    f.at = f.at.add(&dir.scale(s));
+    *at = at.add(&dir.scale(s));
 }
 
 /// [`Aperture::holds`] per lane.
@@ -1112,6 +1171,11 @@ fn holds<const W: usize>(aperture: &Option<Aperture>, at: &V<W>, ok: &mut Mask<W
 pub(crate) struct LaneBuffers<const W: usize> {
     flights: Vec<Flight<W>>,
     next: Vec<Flight<W>>,
+    /// The ray in a cement film, between its two crossings.
+    film: [Carrier<W>; 1],
+    /// The rays beyond a slab's front face (one into an isotropic body, one per mode into a
+    /// crystal).
+    entered: [Carrier<W>; 2],
     pub(crate) rays: Box<LaneRays<W>>,
 }
 
@@ -1120,6 +1184,8 @@ impl<const W: usize> Default for LaneBuffers<W> {
         LaneBuffers {
             flights: Vec::new(),
             next: Vec::new(),
+            film: [Carrier::empty()],
+            entered: [Carrier::empty(); 2],
             rays: Box::new(LaneRays {
                 ok: [false; W],
                 count: 0,
@@ -1159,79 +1225,108 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
 ) {
     let mut ok = [YES; W];
     let ideal = plan.ideal();
-    let identity = [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]];
     let LaneBuffers {
         flights,
         next,
+        film,
+        entered,
         rays: out,
     } = buffers;
-    flights.clear();
-    flights.push(Flight {
-        at: V::splat(&Vector3::zeros()),
-        exit: V::splat(&Vector3::zeros()),
-        carrier: Carrier::Free {
-            n: plan.outside(),
-            u: V {
-                x: F(lanes(|i| dirs[i].x)),
-                y: F(lanes(|i| dirs[i].y)),
-                z: F(lanes(|i| dirs[i].z)),
-            },
-            m: identity,
+    // The flights are written in place, slot by slot (the vectors only grow, to the most rays a
+    // block has had), and the rays beyond a face where they will fly: a flight is some 560 bytes
+    // at four lanes, and copies of it took a good part of the blocks' time in the design
+    // worker's WebAssembly.
+    let Some(first) = slot(flights, 0) else {
+        return out.ok = [false; W];
+    };
+    first.at = V::splat(&Vector3::zeros());
+    first.exit = first.at;
+    first.carrier = Carrier::Free {
+        n: plan.outside(),
+        u: V {
+            x: F(lanes(|i| dirs[i].x)),
+            y: F(lanes(|i| dirs[i].y)),
+            z: F(lanes(|i| dirs[i].z)),
         },
-        label: 0,
-        alive: [YES; W],
-    });
+        m: [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]],
+    };
+    first.label = 0;
+    first.alive = [YES; W];
+    let mut flying = 1;
     for slab in plan.slabs() {
-        next.clear();
-        // The flights are moved on in place and the rays beyond a face written where they will
-        // fly: a flight is some 560 bytes at four lanes, and copies of it took a good part of
-        // the blocks' time in the design worker's WebAssembly.
-        for f in flights.iter_mut() {
-            let entered = match &slab.entry {
+        let mut made = 0;
+        for f in flights.iter_mut().take(flying) {
+            let into = match &slab.entry {
                 Entry::Outside(crossing) => {
-                    if !to_plane(f, &slab.front, &slab.aperture, drop_rays, &mut ok) {
+                    if !to_plane(
+                        &mut f.at,
+                        &mut f.alive,
+                        &f.carrier.direction(),
+                        &slab.front,
+                        &slab.aperture,
+                        drop_rays,
+                        &mut ok,
+                    ) {
                         continue;
                     }
-                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    crossing
                 }
-                Entry::Contact(first, None) => cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok),
+                Entry::Contact(first, None) => {
+                    cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    first
+                }
                 Entry::Contact(first, Some(second)) => {
-                    let [Some(in_film), None] = cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok)
-                    else {
-                        return out.ok = [false; W];
-                    };
-                    cross_alive::<ISA, W>(&in_film, second, ideal, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok, &mut film[..]);
+                    cross_alive::<ISA, W>(&film[0], second, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    second
                 }
             };
-            for (k, carrier) in entered.iter().enumerate() {
-                let &Some(carrier) = carrier else { continue };
-                next.push(Flight {
-                    at: f.at,
-                    exit: f.at,
-                    carrier,
-                    label: (f.label << 1) | k as u32,
-                    alive: f.alive,
-                });
-                let Some(g) = next.last_mut() else { continue };
-                if !to_plane(g, &slab.back, &slab.aperture, drop_rays, &mut ok) {
-                    next.pop();
+            for (k, carrier) in entered.iter().enumerate().take(into.rays_beyond()) {
+                let Some(g) = slot(next, made) else {
+                    return out.ok = [false; W];
+                };
+                g.at = f.at;
+                g.label = (f.label << 1) | k as u32;
+                g.alive = f.alive;
+                if !to_plane(
+                    &mut g.at,
+                    &mut g.alive,
+                    &carrier.direction(),
+                    &slab.back,
+                    &slab.aperture,
+                    drop_rays,
+                    &mut ok,
+                ) {
                     continue;
                 }
-                if let Some(exit) = &slab.exit {
-                    let [Some(c), None] = cross_alive::<ISA, W>(&g.carrier, exit, ideal, &g.alive, &mut ok) else {
-                        return out.ok = [false; W];
-                    };
-                    g.exit = g.at;
-                    g.carrier = c;
+                match &slab.exit {
+                    Some(exit) => {
+                        cross_alive::<ISA, W>(
+                            carrier,
+                            exit,
+                            ideal,
+                            &g.alive,
+                            &mut ok,
+                            std::slice::from_mut(&mut g.carrier),
+                        );
+                        g.exit = g.at;
+                    }
+                    None => {
+                        g.carrier = *carrier;
+                        g.exit = f.at;
+                    }
                 }
+                made += 1;
             }
         }
         std::mem::swap(flights, next);
+        flying = made;
     }
     let [c11, c22, c12] = plan.coherency();
     let screen = plan.screen().normal;
     out.count = 0;
-    for f in flights.iter() {
+    for f in flights.iter().take(flying) {
         let Carrier::Free { u, m, .. } = f.carrier else {
             continue;
         };
@@ -1250,6 +1345,9 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
         };
         let power = term(0) + term(1);
         let r = out.count;
+        if r >= out.label.len() {
+            return out.ok = [false; W];
+        }
         out.label[r] = f.label;
         out.alive[r] = says_yes(&alive);
         out.power[r] = power.0;
@@ -1260,30 +1358,44 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
     out.ok = says_yes(&ok);
 }
 
-/// A ray's way to a face `plane` of a slab of aperture `aperture`: where it misses, dropped
-/// (`drop_rays`) or its lane lost; false when it is dropped in every lane. (This and
-/// [`cross_alive`] are functions, not closures of [`trace_block`]: a closure there was compiled
-/// apart from the kernel's build and not inlined, an eighth of the lanes' time, profiled.)
+/// The flight in place `k` of `flights`, made when it is the next new one (a vector of flights
+/// only grows); `None` beyond that, which a plan never asks for.
+#[inline(always)]
+fn slot<const W: usize>(flights: &mut Vec<Flight<W>>, k: usize) -> Option<&mut Flight<W>> {
+    if k == flights.len() {
+        flights.push(Flight::empty());
+    }
+    flights.get_mut(k)
+}
+
+/// A ray's way from `at` along `dir` to a face `plane` of a slab of aperture `aperture`: where it
+/// misses, dropped from `alive` (`drop_rays`) or its lane lost; false when it is dropped in every
+/// lane. (This and [`cross_alive`] are functions, not closures of [`trace_block`]: a closure
+/// there was compiled apart from the kernel's build and not inlined, an eighth of the lanes'
+/// time, profiled.)
 #[inline(always)]
 fn to_plane<const W: usize>(
-    f: &mut Flight<W>,
+    at: &mut V<W>,
+    alive: &mut Mask<W>,
+    dir: &V<W>,
     plane: &Plane,
     aperture: &Option<Aperture>,
     drop_rays: bool,
     ok: &mut Mask<W>,
 ) -> bool {
-    let mut hit = f.alive;
-    travel(f, plane, &mut hit);
-    holds(aperture, &f.at, &mut hit);
+    let mut hit = *alive;
+    travel(at, dir, plane, &mut hit);
+    holds(aperture, at, &mut hit);
     if drop_rays {
-        f.alive = hit;
+        *alive = hit;
     } else {
         *ok = and(*ok, hit);
     }
-    f.alive.iter().any(|&a| a != 0)
+    alive.iter().any(|&a| a != 0)
 }
 
-/// One crossing of a ray: the lanes it declines are lost where the ray is on its way (`alive`).
+/// One crossing of a ray, its rays beyond written into `beyond`: the lanes it declines are lost
+/// where the ray is on its way (`alive`).
 #[inline(always)]
 fn cross_alive<const ISA: u8, const W: usize>(
     c: &Carrier<W>,
@@ -1291,11 +1403,11 @@ fn cross_alive<const ISA: u8, const W: usize>(
     ideal: bool,
     alive: &Mask<W>,
     ok: &mut Mask<W>,
-) -> Beyond<W> {
+    beyond: &mut [Carrier<W>],
+) {
     let mut fine = [YES; W];
-    let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
+    cross::<ISA, W>(c, crossing, ideal, &mut fine, beyond);
     *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
-    beyond
 }
 
 /// The rays of lane `lane` of a block, as [`PlannedTrace::trace`] lists them, into `into`.
@@ -1308,9 +1420,6 @@ pub(crate) fn lane_rays<const W: usize>(rays: &LaneRays<W>, lane: usize, into: &
         exit_point_mm: rays.exit[r][lane],
     }));
 }
-
-/// The rays beyond a face: one into an isotropic body (slot 0), one per mode into a crystal.
-type Beyond<const W: usize> = [Option<Carrier<W>>; 2];
 
 /// The builds of the kernel, by instruction set (a const parameter of [`trace_block`]).
 pub(crate) const PORTABLE: u8 = 0;
@@ -1326,8 +1435,14 @@ pub(crate) const AVX512: u8 = 2;
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]
 #[inline(never)]
-unsafe fn cross_avx2<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+unsafe fn cross_avx2<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// [`cross_with`] compiled for AVX-512 (one register per lane number).
@@ -1337,14 +1452,26 @@ unsafe fn cross_avx2<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool,
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx512dq,avx512vl,avx2,fma")]
 #[inline(never)]
-unsafe fn cross_avx512<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+unsafe fn cross_avx512<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// [`cross_with`] as the target's baseline instructions compile it.
 #[inline(never)]
-fn cross_portable<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+fn cross_portable<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// One crossing by the build `ISA` of the kernel that calls it.
@@ -1354,14 +1481,15 @@ fn cross<const ISA: u8, const W: usize>(
     crossing: &Crossing,
     ideal: bool,
     ok: &mut Mask<W>,
-) -> Beyond<W> {
+    beyond: &mut [Carrier<W>],
+) {
     // SAFETY (both calls): a kernel of build `ISA` runs only after `trace_lanes` has found its
     // instruction sets on the processor, the one requirement of the crossing of that build.
     #[cfg(target_arch = "x86_64")]
     match ISA {
-        AVX512 => return unsafe { cross_avx512(carrier, crossing, ideal, ok) },
-        AVX2 => return unsafe { cross_avx2(carrier, crossing, ideal, ok) },
+        AVX512 => return unsafe { cross_avx512(carrier, crossing, ideal, ok, beyond) },
+        AVX2 => return unsafe { cross_avx2(carrier, crossing, ideal, ok, beyond) },
         _ => {}
     }
-    cross_portable(carrier, crossing, ideal, ok)
+    cross_portable(carrier, crossing, ideal, ok, beyond)
 }
