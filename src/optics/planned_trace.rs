@@ -952,14 +952,9 @@ pub(crate) fn parallel_plate(
 #[inline(always)]
 fn unit_field<const W: usize>(e: &V<W>) -> V<W> {
     let n = e.norm();
-    let r = n / (n * n);
-    let has = n.gt(F::splat(0.0));
-    let f = |z: F<W>| F::pick(has, z * r, z);
-    V {
-        x: f(e.x),
-        y: f(e.y),
-        z: f(e.z),
-    }
+    // One choice of the factor, not one per component: z · 1 is z.
+    let r = F::pick(n.gt(F::splat(0.0)), n / (n * n), F::splat(1.0));
+    e.scale(r)
 }
 
 /// Where a ray's light is, per lane (without its phase factor, module header); the kind of a ray's mode is
