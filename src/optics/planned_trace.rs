@@ -388,13 +388,19 @@ fn lanes<T: Copy + Default, const W: usize>(f: impl Fn(usize) -> T) -> [T; W] {
 mod pairs {
     use core::arch::wasm32::{f64x2_splat, v128, v128_and, v128_bitselect, v128_load, v128_store};
 
-    /// `f` on each pair of lanes of `a` and `b` (W even).
+    /// `f` on each pair of lanes of `a` and `b` (W even), numbers or masks alike: every lane
+    /// 8 bytes (`f64` or `u64`, checked as the code is compiled).
     #[inline(always)]
-    pub(super) fn zip<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [f64; W] {
-        let mut out = [0.0; W];
+    pub(super) fn zip<A: Copy, B: Copy, O: Copy + Default, const W: usize>(
+        a: &[A; W],
+        b: &[B; W],
+        f: impl Fn(v128, v128) -> v128,
+    ) -> [O; W] {
+        const { assert!(size_of::<A>() == 8 && size_of::<B>() == 8 && size_of::<O>() == 8) };
+        let mut out = [O::default(); W];
         for k in (0..W - W % 2).step_by(2) {
-            // SAFETY: lanes k and k + 1 are within each array (k + 1 < W); WebAssembly's v128 loads
-            // and stores take any alignment.
+            // SAFETY: lanes k and k + 1 are within each array (k + 1 < W), of 8 bytes each;
+            // WebAssembly's v128 loads and stores take any alignment.
             unsafe {
                 let r = f(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
                 v128_store(out.as_mut_ptr().add(k).cast(), r);
@@ -410,33 +416,10 @@ mod pairs {
         zip(a, a, |x, _| f(x, b))
     }
 
-    /// The comparison `f` of each pair of lanes of `a` and `b`, as its mask of set or clear
-    /// lanes (W even).
-    #[inline(always)]
-    pub(super) fn mask<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [u64; W] {
-        let mut out = [0; W];
-        for k in (0..W - W % 2).step_by(2) {
-            // SAFETY: as in `zip`.
-            unsafe {
-                let r = f(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
-                v128_store(out.as_mut_ptr().add(k).cast(), r);
-            }
-        }
-        out
-    }
-
     /// Both masks' yes, per pair of lanes (W even).
     #[inline(always)]
     pub(super) fn both<const W: usize>(a: &[u64; W], b: &[u64; W]) -> [u64; W] {
-        let mut out = [0; W];
-        for k in (0..W - W % 2).step_by(2) {
-            // SAFETY: as in `zip`.
-            unsafe {
-                let r = v128_and(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
-                v128_store(out.as_mut_ptr().add(k).cast(), r);
-            }
-        }
-        out
+        zip(a, b, |x, y| v128_and(x, y))
     }
 
     /// `a` where `m` says yes, else `b`, per pair of lanes (W even).
@@ -479,7 +462,7 @@ macro_rules! comparisons {
                 fn $method(self, o: F<W>) -> Mask<W> {
                     #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
                     if by_pairs(W) {
-                        return pairs::mask(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b));
+                        return pairs::zip(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b));
                     }
                     lanes(|i| if self.0[i] $op o.0[i] { YES } else { 0 })
                 }
