@@ -7,7 +7,9 @@
 # conoscopic figure natively, under Node and in numpy (benches/conoscope.rs,
 # scripts/bench/wasm_conoscope.mjs, scripts/bench/conoscope_numpy.py; their checksums must agree),
 # and the page in headless Chromium (scripts/bench-web.mjs: recompute and redraw,
-# first complete render, wasm size, the design worker's Monte Carlo run). Ends with a summary.
+# first complete render, wasm size, the design worker's Monte Carlo run; and
+# scripts/bench/browser_splitter.mjs: the splitter's whole traces by the design worker's build in
+# the page, the engine it runs in there). Ends with a summary.
 # Figures are reported, never asserted, except the page's two budgets (first render, wasm size),
 # whose excess makes the exit status 1 as it does in scripts/test.sh.
 # numpy is installed into the venv under target/ (as the reference tests do).
@@ -44,20 +46,23 @@ echo "$conoscope_wasm"
 conoscope_baseline=$(env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE "$venv/bin/python" scripts/bench/conoscope_numpy.py)
 echo "$conoscope_baseline"
 web='{}'
+browser='{}'
 status=0
 if [ "$page" = 1 ]; then
   if [ ! -d tests/e2e/node_modules/playwright-core ]; then
     (cd tests/e2e && npm ci --no-audit --no-fund --loglevel=error)
   fi
+  browser=$(node scripts/bench/browser_splitter.mjs)
+  echo "$browser"
   web_out=$(node scripts/bench-web.mjs) || status=$?
   echo "$web_out"
   web=$(printf '%s\n' "$web_out" | tail -1)
   case "$web" in \{*) ;; *) web='{}' ;; esac
 fi
 echo
-python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" "$spectrum_baseline" "$lc_baseline" "$conoscope_native" "$conoscope_wasm" "$conoscope_baseline" <<'PY'
+python3 - "$native" "$baseline" "$wasm" "$web" "$splitter_baseline" "$spectrum_baseline" "$lc_baseline" "$conoscope_native" "$conoscope_wasm" "$conoscope_baseline" "$browser" <<'PY'
 import json, sys
-n, b, w, p, sb, spb, lcb, cn, cw, cb = (json.loads(a) for a in sys.argv[1:11])
+n, b, w, p, sb, spb, lcb, cn, cw, cb, bw = (json.loads(a) for a in sys.argv[1:12])
 assert abs(n["spectrum_checksum"] - spb["spectrum_checksum"]) < 1e-9 * abs(spb["spectrum_checksum"]), "native and numpy spectra disagree"
 assert abs(n["lc_curve_checksum"] - lcb["lc_curve_checksum"]) < 1e-9 * abs(lcb["lc_curve_checksum"]), f"native and numpy retardance curves disagree: {n['lc_curve_checksum']} vs {lcb['lc_curve_checksum']}"
 for other, what in ((cw, "wasm"), (cb, "numpy")):
@@ -82,6 +87,11 @@ for label, key, threads_key in (("whole traces (4 rays, fields and powers)", "sp
     print(f"  two-wedge splitter, 10^5 {label}: native on {n['splitter_threads']} threads {nt:.1f} ms ({1e5 / nt * 1e3:.0f}/s), on one {nn:.1f} ms ({1e5 / nn * 1e3:.0f}/s), wasm (one thread) {ww:.1f} ms ({1e5 / ww * 1e3:.0f}/s), numpy {bb:.1f} ms ({1e5 / bb * 1e3:.0f}/s): native {bb / nt:.1f}x on {n['splitter_threads']} threads, {bb / nn:.1f}x on one, wasm {bb / ww:.1f}x numpy (target 20x)")
 ln1, lnt, bb = n["splitter_lane_trace_1e5_ms"], n["splitter_lane_trace_threads_1e5_ms"], sb["splitter_trace_1e5_ms"]
 print(f"  two-wedge splitter, 10^5 whole traces in lanes (blocks of incidences side by side; {n['splitter_lane_trace_alone']} samples traced one by one): native on {n['splitter_threads']} threads {lnt:.1f} ms ({1e5 / lnt * 1e3:.0f}/s), on one {ln1:.1f} ms ({1e5 / ln1 * 1e3:.0f}/s), numpy {bb:.1f} ms: native {bb / lnt:.1f}x on {n['splitter_threads']} threads, {bb / ln1:.1f}x on one (target 20x); wasm (one thread) in lanes {w['splitter_trace_1e5_ms']:.1f} ms, one by one {w['splitter_trace_each_1e5_ms']:.1f} ms: {bb / w['splitter_trace_1e5_ms']:.1f}x and {bb / w['splitter_trace_each_1e5_ms']:.1f}x numpy")
+if bw:
+    for key in ("splitter_trace_checksum", "splitter_trace_each_checksum"):
+        assert bw[key] == w[key], f"wasm in Chromium and under Node disagree on {key}"
+    bt, be = bw["splitter_trace_1e5_ms"], bw["splitter_trace_each_1e5_ms"]
+    print(f"  two-wedge splitter, 10^5 whole traces, wasm in headless Chromium {bw['chromium']} (the design worker's build in the page, one thread): in lanes {bt:.1f} ms (least {bw['splitter_trace_least_1e5_ms']:.1f}; {1e5 / bt * 1e3:.0f}/s), one by one {be:.1f} ms: {bb / bt:.1f}x and {bb / be:.1f}x numpy (target 20x)")
 g = n["splitter_general_trace_1e5_ms"]
 print(f"  two-wedge splitter, whole traces by the planned trace ({n['splitter_trace_declined']} of 10^5 samples declined to the general tracer); by the general tracer alone {g:.1f} ms on one thread, native {sb['splitter_trace_1e5_ms'] / g:.1f}x numpy that way")
 print(f"  Monte Carlo, angular splitter, 10^5 samples, native: {n['splitter_monte_carlo_1e5_ms']:.1f} ms (target 150 ms)")

@@ -21,10 +21,12 @@ for (let i = 0; i < 9; i++) {
 }
 runs.sort((a, b) => a - b);
 
-/** Median time of `times` runs of `f`, in ms, and its last value. */
+/** Median time of `times` runs of `f`, in ms, and its last value, after one run not timed: the
+ * engine first runs a function by its baseline compiler and tiers it up in the background, and a
+ * loop already running keeps its code, so a first long call is timed at the baseline's speed. */
 function median(times, f) {
   const ts = [];
-  let value;
+  let value = f();
   for (let i = 0; i < times; i++) {
     const t = performance.now();
     value = f();

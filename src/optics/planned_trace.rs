@@ -134,6 +134,17 @@ pub(crate) struct Crossing {
     pub(crate) into: Local,
 }
 
+impl Crossing {
+    /// How many rays leave the face forward: one into an isotropic body, one per mode into a
+    /// crystal.
+    fn rays_beyond(&self) -> usize {
+        match self.into {
+            Local::Isotropic(_) => 1,
+            Local::Uniaxial(..) => 2,
+        }
+    }
+}
+
 /// How rays reach a slab's front face.
 // One per crystal of a plan, made once: boxing the larger variant would only add a pointer to
 // follow at every crossing.
@@ -339,8 +350,20 @@ fn exit_crossing(medium: &Medium, normal: V3, outside: f64) -> Option<Crossing> 
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct F<const W: usize>(pub [f64; W]);
 
-/// A yes or no per lane.
-pub(crate) type Mask<const W: usize> = [bool; W];
+/// A yes or no per lane, as every bit of the lane set (yes) or clear (no): the form in which a
+/// vector comparison gives it and a vector choice takes it. (As `bool`s, each comparison's lanes
+/// were packed into bytes and each choice unpacked them again: in the design worker's WebAssembly
+/// that took a tenth of the crossings' instructions.)
+pub(crate) type Mask<const W: usize> = [u64; W];
+
+/// The lane of a [`Mask`] that says yes.
+const YES: u64 = u64::MAX;
+
+/// A [`Mask`] as one `bool` per lane.
+#[inline(always)]
+fn says_yes<const W: usize>(m: &Mask<W>) -> [bool; W] {
+    lanes(|i| m[i] != 0)
+}
 
 /// `[f(0), f(1), …]` by a plain loop, which is inlined into the vector builds (the standard
 /// arrays' `map` and `from_fn` stayed calls, compiled without the vector instructions).
@@ -363,15 +386,21 @@ fn lanes<T: Copy + Default, const W: usize>(f: impl Fn(usize) -> T) -> [T; W] {
 /// arithmetic rounds alike lane by lane and pair by pair: the same bits.
 #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
 mod pairs {
-    use core::arch::wasm32::{f64x2_splat, i64x2, i64x2_bitmask, v128, v128_bitselect, v128_load, v128_store};
+    use core::arch::wasm32::{f64x2_splat, v128, v128_and, v128_bitselect, v128_load, v128_store};
 
-    /// `f` on each pair of lanes of `a` and `b` (W even).
+    /// `f` on each pair of lanes of `a` and `b` (W even), numbers or masks alike: every lane
+    /// 8 bytes (`f64` or `u64`, checked as the code is compiled).
     #[inline(always)]
-    pub(super) fn zip<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [f64; W] {
-        let mut out = [0.0; W];
+    pub(super) fn zip<A: Copy, B: Copy, O: Copy + Default, const W: usize>(
+        a: &[A; W],
+        b: &[B; W],
+        f: impl Fn(v128, v128) -> v128,
+    ) -> [O; W] {
+        const { assert!(size_of::<A>() == 8 && size_of::<B>() == 8 && size_of::<O>() == 8) };
+        let mut out = [O::default(); W];
         for k in (0..W - W % 2).step_by(2) {
-            // SAFETY: lanes k and k + 1 are within each array (k + 1 < W); WebAssembly's v128 loads
-            // and stores take any alignment.
+            // SAFETY: lanes k and k + 1 are within each array (k + 1 < W), of 8 bytes each;
+            // WebAssembly's v128 loads and stores take any alignment.
             unsafe {
                 let r = f(v128_load(a.as_ptr().add(k).cast()), v128_load(b.as_ptr().add(k).cast()));
                 v128_store(out.as_mut_ptr().add(k).cast(), r);
@@ -387,37 +416,23 @@ mod pairs {
         zip(a, a, |x, _| f(x, b))
     }
 
-    /// The comparison `f` of each pair of lanes of `a` and `b`, as a yes or no per lane (W even):
-    /// the two lanes' signs at once (`i64x2.bitmask`), not one lane at a time.
+    /// Both masks' yes, per pair of lanes (W even).
     #[inline(always)]
-    pub(super) fn mask<const W: usize>(a: &[f64; W], b: &[f64; W], f: impl Fn(v128, v128) -> v128) -> [bool; W] {
-        let mut out = [false; W];
-        for k in (0..W - W % 2).step_by(2) {
-            // SAFETY: as in `zip`.
-            let bits = unsafe {
-                i64x2_bitmask(f(
-                    v128_load(a.as_ptr().add(k).cast()),
-                    v128_load(b.as_ptr().add(k).cast()),
-                ))
-            };
-            out[k] = bits & 1 != 0;
-            out[k + 1] = bits & 2 != 0;
-        }
-        out
+    pub(super) fn both<const W: usize>(a: &[u64; W], b: &[u64; W]) -> [u64; W] {
+        zip(a, b, |x, y| v128_and(x, y))
     }
 
-    /// `a` where `m` holds, else `b`, per pair of lanes (W even).
+    /// `a` where `m` says yes, else `b`, per pair of lanes (W even).
     #[inline(always)]
-    pub(super) fn pick<const W: usize>(m: &[bool; W], a: &[f64; W], b: &[f64; W]) -> [f64; W] {
+    pub(super) fn pick<const W: usize>(m: &[u64; W], a: &[f64; W], b: &[f64; W]) -> [f64; W] {
         let mut out = [0.0; W];
         for k in (0..W - W % 2).step_by(2) {
-            let choose = i64x2(-i64::from(m[k]), -i64::from(m[k + 1]));
             // SAFETY: as in `zip`.
             unsafe {
                 let r = v128_bitselect(
                     v128_load(a.as_ptr().add(k).cast()),
                     v128_load(b.as_ptr().add(k).cast()),
-                    choose,
+                    v128_load(m.as_ptr().add(k).cast()),
                 );
                 v128_store(out.as_mut_ptr().add(k).cast(), r);
             }
@@ -447,9 +462,9 @@ macro_rules! comparisons {
                 fn $method(self, o: F<W>) -> Mask<W> {
                     #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
                     if by_pairs(W) {
-                        return pairs::mask(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b));
+                        return pairs::zip(&self.0, &o.0, |a, b| core::arch::wasm32::$pair(a, b));
                     }
-                    lanes(|i| self.0[i] $op o.0[i])
+                    lanes(|i| if self.0[i] $op o.0[i] { YES } else { 0 })
                 }
             )*
         }
@@ -545,7 +560,7 @@ impl<const W: usize> F<W> {
         if by_pairs(W) {
             return F(pairs::pick(&m, &a.0, &b.0));
         }
-        F(lanes(|i| if m[i] { a.0[i] } else { b.0[i] }))
+        F(lanes(|i| if m[i] != 0 { a.0[i] } else { b.0[i] }))
     }
 }
 
@@ -561,6 +576,10 @@ fn finite<const W: usize>(x: F<W>) -> Mask<W> {
 
 #[inline(always)]
 fn and<const W: usize>(a: Mask<W>, b: Mask<W>) -> Mask<W> {
+    #[cfg(all(target_arch = "wasm32", target_feature = "simd128"))]
+    if by_pairs(W) {
+        return pairs::both(&a, &b);
+    }
     lanes(|i| a[i] & b[i])
 }
 
@@ -867,7 +886,7 @@ pub(crate) struct OutsideWaves([Wave<1>; 2]);
 /// The forward waves of the outside medium of index `outside` at tangential wave vector `qt`, as
 /// `isotropic_modes` gives them; `None` when they are not safely propagating.
 pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> {
-    let mut ok = [true];
+    let mut ok = [YES];
     let waves = modes(
         &Local::Isotropic(outside),
         [F([qt[0]]), F([qt[1]])],
@@ -875,7 +894,7 @@ pub(crate) fn outside_waves(outside: f64, qt: [f64; 2]) -> Option<OutsideWaves> 
         false,
         &mut ok,
     );
-    ok[0].then_some(OutsideWaves(waves))
+    (ok[0] != 0).then_some(OutsideWaves(waves))
 }
 
 /// A plane-parallel plate of `crystal` (lab frame, both faces across z) between half-spaces of
@@ -894,7 +913,7 @@ pub(crate) fn parallel_plate(
     qt: [f64; 2],
     ideal: bool,
 ) -> Option<(Matrix2<f64>, Matrix2<f64>, [f64; 2])> {
-    let mut ok = [true];
+    let mut ok = [YES];
     let inside = modes(
         &Local::Uniaxial(*crystal, *surfaces),
         [F([qt[0]]), F([qt[1]])],
@@ -909,21 +928,16 @@ pub(crate) fn parallel_plate(
         t_out = lossless_part(&t_out);
     }
     let real = |t: &M2<1>| Matrix2::new(t[0][0].0[0], t[0][1].0[0], t[1][0].0[0], t[1][1].0[0]);
-    ok[0].then(|| (real(&t_in), real(&t_out), [inside[0].q.z.0[0], inside[1].q.z.0[0]]))
+    (ok[0] != 0).then(|| (real(&t_in), real(&t_out), [inside[0].q.z.0[0], inside[1].q.z.0[0]]))
 }
 
 /// `e`/|e| per lane, as the complex quotient of zero imaginary parts rounds.
 #[inline(always)]
 fn unit_field<const W: usize>(e: &V<W>) -> V<W> {
     let n = e.norm();
-    let r = n / (n * n);
-    let has = n.gt(F::splat(0.0));
-    let f = |z: F<W>| F::pick(has, z * r, z);
-    V {
-        x: f(e.x),
-        y: f(e.y),
-        z: f(e.z),
-    }
+    // One choice of the factor, not one per component: z · 1 is z.
+    let r = F::pick(n.gt(F::splat(0.0)), n / (n * n), F::splat(1.0));
+    e.scale(r)
 }
 
 /// Where a ray's light is, per lane (without its phase factor, module header); the kind of a ray's mode is
@@ -948,6 +962,19 @@ enum Carrier<const W: usize> {
 }
 
 impl<const W: usize> Carrier<W> {
+    /// A place for a carrier, before a crossing writes one there.
+    fn empty() -> Carrier<W> {
+        let zero = F::splat(0.0);
+        Carrier::Free {
+            n: 1.0,
+            u: V {
+                x: zero,
+                y: zero,
+                z: zero,
+            },
+            m: [[zero; 2]; 2],
+        }
+    }
     #[inline(always)]
     fn q(&self) -> V<W> {
         match self {
@@ -974,15 +1001,45 @@ struct Flight<const W: usize> {
     alive: Mask<W>,
 }
 
+impl<const W: usize> Flight<W> {
+    /// A place for a flight, before a block writes one there.
+    fn empty() -> Flight<W> {
+        let zero = F::splat(0.0);
+        let at = V {
+            x: zero,
+            y: zero,
+            z: zero,
+        };
+        Flight {
+            at,
+            exit: at,
+            carrier: Carrier::empty(),
+            label: 0,
+            alive: [0; W],
+        }
+    }
+}
+
 /// Crosses one face for one ray per lane (the general tracer's `Tracer::cross` for propagating
-/// modes): the rays beyond it (one into an isotropic body, one per mode into a crystal); `ok`
-/// loses the lanes where a mode is not safely propagating, the carrier's modes share their wave
-/// vector, or the boundary problem is singular.
+/// modes), writing the rays beyond it into `beyond` (one into an isotropic body, one per mode into
+/// a crystal, [`Crossing::rays_beyond`]); `ok` loses the lanes where a mode is not safely
+/// propagating, the carrier's modes share their wave vector, or the boundary problem is singular,
+/// and every lane if `beyond` has too few places.
+///
+/// The rays are written where they will fly, not returned: a carrier is some 360 bytes at four
+/// lanes, and in the design worker's WebAssembly each carrier returned and moved into its flight
+/// was a `memory.copy`, a call out of the module (a tenth of the blocks' time, profiled).
 ///
 /// One copy per instruction set, called (not inlined) from each crossing of the plan: inlined,
 /// a block's five kinds of crossing made a kernel too large for the instruction cache.
 #[inline(always)]
-fn cross_with<const W: usize>(carrier: &Carrier<W>, crossing: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
+fn cross_with<const W: usize>(
+    carrier: &Carrier<W>,
+    crossing: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
     let frame = &crossing.frame.frame;
     let q_face = carrier.q().rotated(&crossing.frame.to_face);
     let qt = [q_face.x, q_face.y];
@@ -1030,12 +1087,18 @@ fn cross_with<const W: usize>(carrier: &Carrier<W>, crossing: &Crossing, ideal: 
                     }
                 }
             }
-            [Some(Carrier::Free { n, u, m }), None]
+            match beyond {
+                [free, ..] => *free = Carrier::Free { n, u, m },
+                [] => *ok = [0; W],
+            }
         }
-        Local::Uniaxial(..) => [
-            Some(bound(&b_fwd[0], frame, 0, out[0])),
-            Some(bound(&b_fwd[1], frame, 1, out[1])),
-        ],
+        Local::Uniaxial(..) => match beyond {
+            [o, e, ..] => {
+                *o = bound(&b_fwd[0], frame, 0, out[0]);
+                *e = bound(&b_fwd[1], frame, 1, out[1]);
+            }
+            _ => *ok = [0; W],
+        },
     }
 }
 
@@ -1051,16 +1114,15 @@ fn bound<const W: usize>(w: &Wave<W>, frame: &Matrix3<f64>, kind: usize, amp: [F
     }
 }
 
-/// [`Plane::meet`] per lane, the ray moved there; `ok` loses the lanes where it cannot get there.
+/// [`Plane::meet`] per lane from `at` along `dir`, `at` moved there; `ok` loses the lanes where it cannot get there.
 #[inline(always)]
-fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
-    let dir = f.carrier.direction();
-    let to = V::splat(&plane.point).sub(&f.at);
+fn travel<const W: usize>(at: &mut V<W>, dir: &V<W>, plane: &Plane, ok: &mut Mask<W>) {
+    let to = V::splat(&plane.point).sub(at);
     let n = V::splat(&plane.normal);
     let gap = n.dot(&to);
     let scale = to.norm() + 1.0;
     let on = gap.abs().le(scale * ON_PLANE);
-    let along = n.dot(&dir);
+    let along = n.dot(dir);
     let s = gap / along;
     // (`|` and `&`, not `||` and `&&`: no branch per lane.)
     let steep = along.abs().ge(F::splat(1e-15));
@@ -1068,7 +1130,7 @@ fn travel<const W: usize>(f: &mut Flight<W>, plane: &Plane, ok: &mut Mask<W>) {
     let ahead: Mask<W> = lanes(|i| on[i] | (steep[i] & forward[i]));
     *ok = and(*ok, ahead);
     let s = F::pick(on, F::splat(0.0), s.at_least_zero());
-    f.at = f.at.add(&dir.scale(s));
+    *at = at.add(&dir.scale(s));
 }
 
 /// [`Aperture::holds`] per lane.
@@ -1087,6 +1149,11 @@ fn holds<const W: usize>(aperture: &Option<Aperture>, at: &V<W>, ok: &mut Mask<W
 pub(crate) struct LaneBuffers<const W: usize> {
     flights: Vec<Flight<W>>,
     next: Vec<Flight<W>>,
+    /// The ray in a cement film, between its two crossings.
+    film: [Carrier<W>; 1],
+    /// The rays beyond a slab's front face (one into an isotropic body, one per mode into a
+    /// crystal).
+    entered: [Carrier<W>; 2],
     pub(crate) rays: Box<LaneRays<W>>,
 }
 
@@ -1095,6 +1162,8 @@ impl<const W: usize> Default for LaneBuffers<W> {
         LaneBuffers {
             flights: Vec::new(),
             next: Vec::new(),
+            film: [Carrier::empty()],
+            entered: [Carrier::empty(); 2],
             rays: Box::new(LaneRays {
                 ok: [false; W],
                 count: 0,
@@ -1113,10 +1182,10 @@ impl<const W: usize> Default for LaneBuffers<W> {
 /// lanes traced here.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct LaneRays<const W: usize> {
-    pub ok: Mask<W>,
+    pub ok: [bool; W],
     pub count: usize,
     pub label: [u32; 64],
-    pub alive: [Mask<W>; 64],
+    pub alive: [[bool; W]; 64],
     pub power: [[f64; W]; 64],
     pub direction: [[Vector3<f64>; W]; 64],
     pub exit: [[Vector3<f64>; W]; 64],
@@ -1132,81 +1201,110 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
     dirs: &[Vector3<f64>; W],
     drop_rays: bool,
 ) {
-    let mut ok = [true; W];
+    let mut ok = [YES; W];
     let ideal = plan.ideal();
-    let identity = [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]];
     let LaneBuffers {
         flights,
         next,
+        film,
+        entered,
         rays: out,
     } = buffers;
-    flights.clear();
-    flights.push(Flight {
-        at: V::splat(&Vector3::zeros()),
-        exit: V::splat(&Vector3::zeros()),
-        carrier: Carrier::Free {
-            n: plan.outside(),
-            u: V {
-                x: F(lanes(|i| dirs[i].x)),
-                y: F(lanes(|i| dirs[i].y)),
-                z: F(lanes(|i| dirs[i].z)),
-            },
-            m: identity,
+    // The flights are written in place, slot by slot (the vectors only grow, to the most rays a
+    // block has had), and the rays beyond a face where they will fly: a flight is some 560 bytes
+    // at four lanes, and copies of it took a good part of the blocks' time in the design
+    // worker's WebAssembly.
+    let Some(first) = slot(flights, 0) else {
+        return out.ok = [false; W];
+    };
+    first.at = V::splat(&Vector3::zeros());
+    first.exit = first.at;
+    first.carrier = Carrier::Free {
+        n: plan.outside(),
+        u: V {
+            x: F(lanes(|i| dirs[i].x)),
+            y: F(lanes(|i| dirs[i].y)),
+            z: F(lanes(|i| dirs[i].z)),
         },
-        label: 0,
-        alive: [true; W],
-    });
+        m: [[F::splat(1.0), F::splat(0.0)], [F::splat(0.0), F::splat(1.0)]],
+    };
+    first.label = 0;
+    first.alive = [YES; W];
+    let mut flying = 1;
     for slab in plan.slabs() {
-        next.clear();
-        // The flights are moved on in place and the rays beyond a face written where they will
-        // fly: a flight is some 560 bytes at four lanes, and copies of it took a good part of
-        // the blocks' time in the design worker's WebAssembly.
-        for f in flights.iter_mut() {
-            let entered = match &slab.entry {
+        let mut made = 0;
+        for f in flights.iter_mut().take(flying) {
+            let into = match &slab.entry {
                 Entry::Outside(crossing) => {
-                    if !to_plane(f, &slab.front, &slab.aperture, drop_rays, &mut ok) {
+                    if !to_plane(
+                        &mut f.at,
+                        &mut f.alive,
+                        &f.carrier.direction(),
+                        &slab.front,
+                        &slab.aperture,
+                        drop_rays,
+                        &mut ok,
+                    ) {
                         continue;
                     }
-                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&f.carrier, crossing, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    crossing
                 }
-                Entry::Contact(first, None) => cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok),
+                Entry::Contact(first, None) => {
+                    cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    first
+                }
                 Entry::Contact(first, Some(second)) => {
-                    let [Some(in_film), None] = cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok)
-                    else {
-                        return out.ok = [false; W];
-                    };
-                    cross_alive::<ISA, W>(&in_film, second, ideal, &f.alive, &mut ok)
+                    cross_alive::<ISA, W>(&f.carrier, first, ideal, &f.alive, &mut ok, &mut film[..]);
+                    cross_alive::<ISA, W>(&film[0], second, ideal, &f.alive, &mut ok, &mut entered[..]);
+                    second
                 }
             };
-            for (k, carrier) in entered.iter().enumerate() {
-                let &Some(carrier) = carrier else { continue };
-                next.push(Flight {
-                    at: f.at,
-                    exit: f.at,
-                    carrier,
-                    label: (f.label << 1) | k as u32,
-                    alive: f.alive,
-                });
-                let Some(g) = next.last_mut() else { continue };
-                if !to_plane(g, &slab.back, &slab.aperture, drop_rays, &mut ok) {
-                    next.pop();
+            for (k, carrier) in entered.iter().enumerate().take(into.rays_beyond()) {
+                let Some(g) = slot(next, made) else {
+                    return out.ok = [false; W];
+                };
+                g.at = f.at;
+                g.label = (f.label << 1) | k as u32;
+                g.alive = f.alive;
+                if !to_plane(
+                    &mut g.at,
+                    &mut g.alive,
+                    &carrier.direction(),
+                    &slab.back,
+                    &slab.aperture,
+                    drop_rays,
+                    &mut ok,
+                ) {
                     continue;
                 }
-                if let Some(exit) = &slab.exit {
-                    let [Some(c), None] = cross_alive::<ISA, W>(&g.carrier, exit, ideal, &g.alive, &mut ok) else {
-                        return out.ok = [false; W];
-                    };
-                    g.exit = g.at;
-                    g.carrier = c;
+                match &slab.exit {
+                    Some(exit) => {
+                        cross_alive::<ISA, W>(
+                            carrier,
+                            exit,
+                            ideal,
+                            &g.alive,
+                            &mut ok,
+                            std::slice::from_mut(&mut g.carrier),
+                        );
+                        g.exit = g.at;
+                    }
+                    None => {
+                        g.carrier = *carrier;
+                        g.exit = f.at;
+                    }
                 }
+                made += 1;
             }
         }
         std::mem::swap(flights, next);
+        flying = made;
     }
     let [c11, c22, c12] = plan.coherency();
     let screen = plan.screen().normal;
     out.count = 0;
-    for f in flights.iter() {
+    for f in flights.iter().take(flying) {
         let Carrier::Free { u, m, .. } = f.carrier else {
             continue;
         };
@@ -1225,40 +1323,57 @@ pub(crate) fn trace_block<const ISA: u8, const W: usize>(
         };
         let power = term(0) + term(1);
         let r = out.count;
+        if r >= out.label.len() {
+            return out.ok = [false; W];
+        }
         out.label[r] = f.label;
-        out.alive[r] = alive;
+        out.alive[r] = says_yes(&alive);
         out.power[r] = power.0;
         out.direction[r] = std::array::from_fn(|i| u.lane(i));
         out.exit[r] = std::array::from_fn(|i| f.exit.lane(i));
         out.count += 1;
     }
-    out.ok = ok;
+    out.ok = says_yes(&ok);
 }
 
-/// A ray's way to a face `plane` of a slab of aperture `aperture`: where it misses, dropped
-/// (`drop_rays`) or its lane lost; false when it is dropped in every lane. (This and
-/// [`cross_alive`] are functions, not closures of [`trace_block`]: a closure there was compiled
-/// apart from the kernel's build and not inlined, an eighth of the lanes' time, profiled.)
+/// The flight in place `k` of `flights`, made when it is the next new one (a vector of flights
+/// only grows); `None` beyond that, which a plan never asks for.
+#[inline(always)]
+fn slot<const W: usize>(flights: &mut Vec<Flight<W>>, k: usize) -> Option<&mut Flight<W>> {
+    if k == flights.len() {
+        flights.push(Flight::empty());
+    }
+    flights.get_mut(k)
+}
+
+/// A ray's way from `at` along `dir` to a face `plane` of a slab of aperture `aperture`: where it
+/// misses, dropped from `alive` (`drop_rays`) or its lane lost; false when it is dropped in every
+/// lane. (This and [`cross_alive`] are functions, not closures of [`trace_block`]: a closure
+/// there was compiled apart from the kernel's build and not inlined, an eighth of the lanes'
+/// time, profiled.)
 #[inline(always)]
 fn to_plane<const W: usize>(
-    f: &mut Flight<W>,
+    at: &mut V<W>,
+    alive: &mut Mask<W>,
+    dir: &V<W>,
     plane: &Plane,
     aperture: &Option<Aperture>,
     drop_rays: bool,
     ok: &mut Mask<W>,
 ) -> bool {
-    let mut hit = f.alive;
-    travel(f, plane, &mut hit);
-    holds(aperture, &f.at, &mut hit);
+    let mut hit = *alive;
+    travel(at, dir, plane, &mut hit);
+    holds(aperture, at, &mut hit);
     if drop_rays {
-        f.alive = hit;
+        *alive = hit;
     } else {
         *ok = and(*ok, hit);
     }
-    f.alive.iter().any(|&a| a)
+    alive.iter().any(|&a| a != 0)
 }
 
-/// One crossing of a ray: the lanes it declines are lost where the ray is on its way (`alive`).
+/// One crossing of a ray, its rays beyond written into `beyond`: the lanes it declines are lost
+/// where the ray is on its way (`alive`).
 #[inline(always)]
 fn cross_alive<const ISA: u8, const W: usize>(
     c: &Carrier<W>,
@@ -1266,11 +1381,11 @@ fn cross_alive<const ISA: u8, const W: usize>(
     ideal: bool,
     alive: &Mask<W>,
     ok: &mut Mask<W>,
-) -> Beyond<W> {
-    let mut fine = [true; W];
-    let beyond = cross::<ISA, W>(c, crossing, ideal, &mut fine);
+    beyond: &mut [Carrier<W>],
+) {
+    let mut fine = [YES; W];
+    cross::<ISA, W>(c, crossing, ideal, &mut fine, beyond);
     *ok = lanes(|i| ok[i] & (fine[i] | !alive[i]));
-    beyond
 }
 
 /// The rays of lane `lane` of a block, as [`PlannedTrace::trace`] lists them, into `into`.
@@ -1283,9 +1398,6 @@ pub(crate) fn lane_rays<const W: usize>(rays: &LaneRays<W>, lane: usize, into: &
         exit_point_mm: rays.exit[r][lane],
     }));
 }
-
-/// The rays beyond a face: one into an isotropic body (slot 0), one per mode into a crystal.
-type Beyond<const W: usize> = [Option<Carrier<W>>; 2];
 
 /// The builds of the kernel, by instruction set (a const parameter of [`trace_block`]).
 pub(crate) const PORTABLE: u8 = 0;
@@ -1301,8 +1413,14 @@ pub(crate) const AVX512: u8 = 2;
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]
 #[inline(never)]
-unsafe fn cross_avx2<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+unsafe fn cross_avx2<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// [`cross_with`] compiled for AVX-512 (one register per lane number).
@@ -1312,14 +1430,26 @@ unsafe fn cross_avx2<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool,
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx512dq,avx512vl,avx2,fma")]
 #[inline(never)]
-unsafe fn cross_avx512<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+unsafe fn cross_avx512<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// [`cross_with`] as the target's baseline instructions compile it.
 #[inline(never)]
-fn cross_portable<const W: usize>(c: &Carrier<W>, at: &Crossing, ideal: bool, ok: &mut Mask<W>) -> Beyond<W> {
-    cross_with(c, at, ideal, ok)
+fn cross_portable<const W: usize>(
+    c: &Carrier<W>,
+    at: &Crossing,
+    ideal: bool,
+    ok: &mut Mask<W>,
+    beyond: &mut [Carrier<W>],
+) {
+    cross_with(c, at, ideal, ok, beyond)
 }
 
 /// One crossing by the build `ISA` of the kernel that calls it.
@@ -1329,14 +1459,15 @@ fn cross<const ISA: u8, const W: usize>(
     crossing: &Crossing,
     ideal: bool,
     ok: &mut Mask<W>,
-) -> Beyond<W> {
+    beyond: &mut [Carrier<W>],
+) {
     // SAFETY (both calls): a kernel of build `ISA` runs only after `trace_lanes` has found its
     // instruction sets on the processor, the one requirement of the crossing of that build.
     #[cfg(target_arch = "x86_64")]
     match ISA {
-        AVX512 => return unsafe { cross_avx512(carrier, crossing, ideal, ok) },
-        AVX2 => return unsafe { cross_avx2(carrier, crossing, ideal, ok) },
+        AVX512 => return unsafe { cross_avx512(carrier, crossing, ideal, ok, beyond) },
+        AVX2 => return unsafe { cross_avx2(carrier, crossing, ideal, ok, beyond) },
         _ => {}
     }
-    cross_portable(carrier, crossing, ideal, ok)
+    cross_portable(carrier, crossing, ideal, ok, beyond)
 }

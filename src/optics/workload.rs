@@ -78,8 +78,18 @@ pub fn run_on(stack: &Stack, n: usize, work: Workload, threads: usize) -> f64 {
 /// The incident direction of sample `i` of `n` (module header).
 fn incidence(i: usize, n: usize) -> Vector3<f64> {
     let polar = (5.0 * (i as f64 + 0.5) / n as f64).to_radians();
-    let azimuth = (137.507_764_05 * i as f64).rem_euclid(360.0).to_radians();
+    let azimuth = degrees_in_turn(137.507_764_05 * i as f64).to_radians();
     direction(polar, azimuth)
+}
+
+/// `x.rem_euclid(360.0)` for finite x ≥ 0, the same number by arithmetic instead of a call to
+/// `fmod` (one per sample, a seventieth of the splitter's whole-trace time in WebAssembly,
+/// profiled). Every step is exact: 360 k is (k < 2⁴⁷); x − 360 k is (Sterbenz: 360 k ≤ x < 2·360 k
+/// for k ≥ 1); x/360 rounds up to k at most where x is just below 360 k, and then r is that tiny
+/// negative remainder, and r + 360 the representable one `fmod` gives.
+fn degrees_in_turn(x: f64) -> f64 {
+    let r = x - 360.0 * (x / 360.0).floor();
+    if r < 0.0 { r + 360.0 } else { r }
 }
 
 /// The checksum of samples `part` of `n`.
@@ -244,6 +254,19 @@ mod tests {
     use crate::optics::stack::{Contact, Element, Faces, InputBeam, Layer, Medium, Slab};
     use crate::optics::uniaxial::{OpticAxis, Uniaxial};
     use crate::optics::wavelength::Wavelength;
+
+    #[test]
+    fn the_azimuths_are_the_remainders_fmod_gives() {
+        // Every sample's azimuth of a run of 10⁶, and numbers just below and at multiples of 360.
+        let mut xs: Vec<f64> = (0..1_000_000).map(|i| 137.507_764_05 * i as f64).collect();
+        for k in 1..2000u32 {
+            let m = 360.0 * f64::from(k);
+            xs.extend([m, m.next_down(), m.next_up(), m.next_down().next_down()]);
+        }
+        for x in xs {
+            assert_eq!(degrees_in_turn(x).to_bits(), x.rem_euclid(360.0).to_bits(), "{x}");
+        }
+    }
 
     /// Two calcite-like wedges with crossed axes, contacted on a face tilted by 27°: the
     /// benchmark's kind of splitter.
