@@ -34,8 +34,9 @@ pub use precision::{LC_SUBLAYERS, PLANNED_TRACE_AGREEMENT, assert_within};
 
 // Documents.
 pub use contract::conoscope::{
-    ColourMap, ConoscopeMap, MAX_PIXELS_WHITE, MAX_PIXELS_WHITE_WITH_CELL, MAX_PIXELS_WITH_CELL, conoscope_at,
-    conoscope_of, white_light_at, white_light_note, white_light_of, white_light_part,
+    ColourMap, ConoscopeMap, MAX_PIXELS_GENERAL, MAX_PIXELS_WHITE, MAX_PIXELS_WHITE_GENERAL,
+    MAX_PIXELS_WHITE_WITH_CELL, MAX_PIXELS_WITH_CELL, conoscope_at, conoscope_of, white_light_at, white_light_note,
+    white_light_of, white_light_part,
 };
 pub use contract::resolve::axis_from_degrees;
 /// A ray that did not leave forward, as the result reports it (the property tests match them).

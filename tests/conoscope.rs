@@ -11,8 +11,9 @@
 //! (3/2)(n_e − n_o)/n plus O(sin²θ_in) in Γ, half of that in a ring's radius: under 0.5 % for
 //! quartz out to 17°, so the check allows 1 %.
 
+mod common;
+
 use doublespar::{ConoscopeQuantity, Scenario, conoscope_at, conoscope_of, trace_scenario};
-use serde_json::Value;
 
 /// A c-cut quartz plate of `mm` (no optical activity) between crossed polarizers.
 fn c_cut(mm: f64) -> Scenario {
@@ -105,15 +106,6 @@ fn isogyres_lie_along_the_polarizer_axes() {
     assert!(map.min >= 0.0 && map.max > 0.9 && map.max <= 1.0 + 1e-12);
 }
 
-/// The same scenario lit at one incidence, with a beam so wide that the o and e rays' spots
-/// overlap fully: its total power is the plane wave's transmission.
-fn at_incidence(doc: &str, polar_deg: f64, azimuth_deg: f64) -> Scenario {
-    let mut v: Value = serde_json::from_str(doc).unwrap();
-    v["beam"]["incidence"] = serde_json::json!({"polar_deg": polar_deg, "azimuth_deg": azimuth_deg});
-    v["beam"]["diameter_mm"] = serde_json::json!(1000);
-    Scenario::from_json_str(&v.to_string()).unwrap()
-}
-
 const SET_UPS: [&str; 3] = [
     // A thin c-cut plate between crossed polarizers.
     r#"{"version": 2, "wavelength_nm": 633, "beam": {"polarization": {"kind": "linear", "azimuth_deg": 0}},
@@ -142,38 +134,12 @@ const DIRECTIONS: [(f64, f64); 6] = [
 
 #[test]
 fn every_direction_agrees_with_a_whole_trace_at_that_incidence() {
-    for doc in SET_UPS {
-        let sc = Scenario::from_json_str(doc).unwrap();
-        for (polar, azimuth) in DIRECTIONS {
-            let fast = transmission(&sc, polar, azimuth);
-            let whole = trace_scenario(&at_incidence(doc, polar, azimuth)).unwrap().total_power;
-            assert!(
-                (fast - whole).abs() < 1e-9,
-                "{polar}°, {azimuth}°: {fast} against {whole}\n{doc}"
-            );
-        }
-    }
+    common::convergent::transmission_agrees_with_whole_traces(&SET_UPS, &DIRECTIONS);
 }
 
 #[test]
 fn the_acceptance_map_is_the_traced_retardance_against_direction() {
-    for doc in SET_UPS {
-        let sc = Scenario::from_json_str(doc).unwrap();
-        let normal = serde_json::to_value(trace_scenario(&sc).unwrap()).unwrap()["elements"][0]["retardance_waves"]
-            .as_f64()
-            .unwrap();
-        for (polar, azimuth) in DIRECTIONS {
-            let error = conoscope_at(&sc, ConoscopeQuantity::RetardanceError, polar, azimuth)
-                .unwrap()
-                .unwrap();
-            let r = serde_json::to_value(trace_scenario(&at_incidence(doc, polar, azimuth)).unwrap()).unwrap();
-            let traced = r["elements"][0]["retardance_waves"].as_f64().unwrap() - normal;
-            assert!(
-                (error - traced).abs() < 1e-9,
-                "{polar}°, {azimuth}°: {error} against {traced}"
-            );
-        }
-    }
+    common::convergent::retardance_agrees_with_whole_traces(&SET_UPS, &DIRECTIONS);
     // A c-cut plate: no retardance on axis, growing with the angle, the same at every azimuth.
     let sc = c_cut(1.0);
     let map = conoscope_of(&sc, ConoscopeQuantity::RetardanceError, 20.0, 33).unwrap();

@@ -174,7 +174,7 @@ fn the_note_states_the_sampling() {
     );
 }
 
-/// Bad grids name their field; a cell's figure is computed at the cap.
+/// Bad grids name their field; a cell's figure is computed at the cap; a wedge is refused.
 #[test]
 fn bad_requests_name_their_field_and_a_cell_is_capped() {
     let sc = scenario(&c_cut(1.0, 90.0));
@@ -188,8 +188,14 @@ fn bad_requests_name_their_field_and_a_cell_is_capped() {
     );
     let map = white_light_of(&cell, 30.0, 64).unwrap();
     assert_eq!(map.pixels, doublespar::MAX_PIXELS_WHITE_WITH_CELL);
+    // A biaxial plate is solved at every direction too (tests/conoscope_general.rs); faces at
+    // an angle are not.
     let ktp = scenario(
         r#"{"version": 2, "elements": [{"kind": "crystal", "material": "ktp", "thickness_mm": 1, "axis": {"tilt_deg": 0, "azimuth_deg": 0}}]}"#,
     );
-    assert_eq!(white_light_of(&ktp, 30.0, 8).unwrap_err().field, "elements[0]");
+    assert_eq!(white_light_of(&ktp, 30.0, 8).unwrap().pixels, 8);
+    let wedge = scenario(
+        r#"{"version": 2, "elements": [{"kind": "crystal", "material": "quartz", "thickness_mm": 5, "axis": {"tilt_deg": 90, "azimuth_deg": 0}, "faces": {"back": {"tilt_deg": 10}}, "aperture_mm": 10}]}"#,
+    );
+    assert_eq!(white_light_of(&wedge, 30.0, 8).unwrap_err().field, "elements[0]");
 }

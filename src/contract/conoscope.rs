@@ -43,12 +43,39 @@ pub const MAX_PIXELS: usize = 512;
 /// directions). A thin cell's figure varies slowly across the cone, so little is lost.
 pub const MAX_PIXELS_WITH_CELL: usize = 192;
 
+/// The largest number of pixels per side of a set-up holding a general crystal (biaxial, or
+/// quartz with its optical activity): each direction solves its modes by the 4×4 solver, about
+/// 12 times a uniaxial plate's work (natively at 256 × 256: 0.30-0.35 s for a KTP plate and an
+/// active quartz plate against 0.026 s for the same quartz without activity), so its map is
+/// computed at most 192 × 192, as a cell's is (in the worker's build under Node: 195 ms).
+pub const MAX_PIXELS_GENERAL: usize = 192;
+
 /// The largest number of pixels per side of a white-light figure: each direction is solved at
 /// the 81 wavelengths of the colour tables, 81 times a monochromatic figure's work.
 pub const MAX_PIXELS_WHITE: usize = 256;
 /// The largest number of pixels per side of a white-light figure of a set-up holding a
 /// liquid-crystal cell (81 cell solves a direction).
 pub const MAX_PIXELS_WHITE_WITH_CELL: usize = 24;
+/// The largest number of pixels per side of a white-light figure of a set-up holding a general
+/// crystal (81 general solves a direction: in the worker's build under Node 64 × 64 took 1.64 s
+/// for a KTP plate, above the aim of about 1 s that a uniaxial plate's 256 × 256 meets, so 48 ×
+/// 48, about 0.9 s).
+pub const MAX_PIXELS_WHITE_GENERAL: usize = 48;
+
+/// The cap on pixels per side for `stack`: `cell` with a liquid-crystal cell, `general` with a
+/// general crystal, the smaller with both; none for plates of uniaxial crystals.
+fn cap_for(stack: &Stack, cell: usize, general: usize) -> Option<usize> {
+    use crate::optics::stack::{Element, Medium};
+    let has_general = stack
+        .layers
+        .iter()
+        .any(|l| matches!(l.element, Element::Slab(s) if matches!(s.medium, Medium::Anisotropic(_))));
+    let caps = [
+        (!stack.cells.is_empty()).then_some(cell),
+        has_general.then_some(general),
+    ];
+    caps.into_iter().flatten().min()
+}
 
 /// A computed conoscopic map.
 #[derive(Debug, Clone, PartialEq)]
@@ -68,20 +95,21 @@ pub struct ConoscopeMap {
 }
 
 /// The map of `quantity` for `sc` over a cone of `cone_deg` at `pixels` per side (at most
-/// `MAX_PIXELS_WITH_CELL` when the set-up holds a liquid-crystal cell; the map says how many).
+/// `MAX_PIXELS_WITH_CELL` when the set-up holds a liquid-crystal cell, `MAX_PIXELS_GENERAL` a
+/// general crystal; the map says how many).
 ///
 /// # Errors
 /// `conoscope.cone_deg` outside (0, 80]; `conoscope.pixels` outside 1 to 512; from
-/// [`Scenario::resolve`]; `elements[i]` for an element with faces at an angle, a general crystal
-/// (liquid-crystal cells are solved at every direction); `elements` for a retardance error
-/// without a crystal.
+/// [`Scenario::resolve`]; `elements[i]` for an element with faces at an angle (crystals of every
+/// kind and liquid-crystal cells are solved at every direction); `elements` for a retardance
+/// error without a crystal.
 pub fn conoscope_of(sc: &Scenario, quantity: Quantity, cone_deg: f64, pixels: usize) -> Result<ConoscopeMap, Error> {
     check_grid(cone_deg, pixels, MAX_PIXELS)?;
     let stack = resolved(sc)?;
     let grid = grid_of(
         cone_deg,
         pixels,
-        (!stack.cells.is_empty()).then_some(MAX_PIXELS_WITH_CELL),
+        cap_for(&stack, MAX_PIXELS_WITH_CELL, MAX_PIXELS_GENERAL),
     );
     let pixels = grid.pixels;
     let values = conoscope_map(&stack, grid, quantity);
@@ -156,7 +184,7 @@ fn resolved(sc: &Scenario) -> Result<Stack, Error> {
     conoscope_stack_ok(&stack).map_err(|i| {
         Error::new(
             format!("elements[{i}]"),
-            "convergent light is solved for plane-parallel plates of uniaxial crystals and ideal elements only",
+            "convergent light is solved for plane-parallel plates, ideal elements and liquid-crystal cells only",
         )
     })?;
     Ok(stack)
@@ -236,8 +264,8 @@ fn colour_at(stacks: &[Stack], polar: f64, azimuth: f64) -> Colour {
 }
 
 /// The conoscopic figure of `sc` in white light over a cone of `cone_deg` at `pixels` per side
-/// (at most [`MAX_PIXELS_WHITE_WITH_CELL`] when the set-up holds a liquid-crystal cell; the map
-/// says how many). Natively its rows are computed on the machine's threads (at most 8), in
+/// (at most [`MAX_PIXELS_WHITE_WITH_CELL`] when the set-up holds a liquid-crystal cell,
+/// [`MAX_PIXELS_WHITE_GENERAL`] a general crystal; the map says how many). Natively its rows are computed on the machine's threads (at most 8), in
 /// contiguous parts as [`white_light_part`] gives them: every direction is independent, so the
 /// colours do not depend on the split.
 ///
@@ -332,12 +360,15 @@ pub fn white_light_part(
 }
 
 /// The stacks of a white-light figure ([`white_light_stacks`]) and its grid, the cap for a
-/// set-up with a liquid-crystal cell applied.
+/// set-up with a liquid-crystal cell or a general crystal applied.
 fn white_light_grid(sc: &Scenario, cone_deg: f64, pixels: usize) -> Result<(Vec<Stack>, Grid), Error> {
     check_grid(cone_deg, pixels, MAX_PIXELS_WHITE)?;
     let stacks = white_light_stacks(sc)?;
-    let cell = stacks.iter().any(|s| !s.cells.is_empty());
-    let grid = grid_of(cone_deg, pixels, cell.then_some(MAX_PIXELS_WHITE_WITH_CELL));
+    let cap = stacks
+        .iter()
+        .filter_map(|s| cap_for(s, MAX_PIXELS_WHITE_WITH_CELL, MAX_PIXELS_WHITE_GENERAL))
+        .min();
+    let grid = grid_of(cone_deg, pixels, cap);
     Ok((stacks, grid))
 }
 

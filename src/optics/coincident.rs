@@ -31,6 +31,11 @@ use crate::precision::SITE_FRACTION_OF_RADIUS;
 /// (summed over the plates).
 pub fn coincident_stokes(stack: &Stack) -> Option<[f64; 4]> {
     conoscope_stack_ok(stack).ok()?;
+    // General crystals take the spots' path, as they always have.
+    let general = |l: &crate::optics::stack::Layer| matches!(l.element, Element::Slab(s) if matches!(s.medium, Medium::Anisotropic(_)));
+    if stack.layers.iter().any(general) {
+        return None;
+    }
     let qt = stack.tangential();
     let tolerance = SITE_FRACTION_OF_RADIUS * 0.5 * stack.input.diameter_mm;
     let mut spread = 0.0;

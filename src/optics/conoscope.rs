@@ -35,9 +35,11 @@
 //! (`planned_trace::parallel_plate`: the modes' fields are then real, so are the faces'
 //! couplings; each face by the planned trace's 2×2 flux-form solve), the same matrix to 1e-13 (tested
 //! against the complex solution) in a third of the instructions; elsewhere in complex numbers
-//! with 4×4 face solves. A stack that holds a general crystal, a liquid-crystal cell (its
-//! matrix is solved for the beam's own direction only) or faces at an angle is not a
-//! plane-parallel stack of this kind: [`conoscope_stack_ok`] says so.
+//! with 4×4 face solves. A general crystal (biaxial, or optically active: its modes from the
+//! 4×4 solver of [`crate::optics::general_modes`], elliptical near an optic axis) is always solved
+//! in complex numbers; its retardance is k0 (q_z,2 − q_z,1) L with its modes in their own order
+//! (fast first, so never negative; zero along an optic axis of a biaxial crystal). A stack with
+//! faces at an angle is not a plane-parallel stack: [`conoscope_stack_ok`] says so.
 //!
 //! Sources: Born & Wolf, *Principles of Optics*, §15.4.4 (interference figures of crystal plates
 //! in convergent light); the sine condition, Born & Wolf §4.5.
@@ -86,12 +88,14 @@ impl Grid {
 }
 
 /// Whether `stack` is a stack of plane-parallel plates whose every direction this module can
-/// solve: `Err(index)` names the first element that is not (a slab with faces at an angle or of a
-/// general crystal). Liquid-crystal cells are solved at every direction (their layered optics).
+/// solve: `Err(index)` names the first element that is not (a slab with faces at an angle).
+/// Crystals of every kind are solved (uniaxial by the closed form, biaxial and optically active
+/// by the general mode solver), and liquid-crystal cells at every direction (their layered
+/// optics).
 pub fn conoscope_stack_ok(stack: &Stack) -> Result<(), usize> {
     for (i, layer) in stack.layers.iter().enumerate() {
         let ok = match layer.element {
-            Element::Slab(s) => s.faces.is_none() && matches!(s.medium, crate::optics::stack::Medium::Uniaxial(_)),
+            Element::Slab(s) => s.faces.is_none(),
             Element::Ideal(_) | Element::Cell(_) => true,
         };
         if !ok {

@@ -2,6 +2,7 @@
 #![allow(dead_code)]
 
 pub mod berreman;
+pub mod convergent;
 
 use doublespar::Scenario;
 use doublespar::{ElementReport, TraceResult, trace_scenario as trace};
