@@ -246,9 +246,10 @@ mod tests {
     #[test]
     fn an_unsolvable_stack_says_why() {
         let sc = Scenario::from_json_str(
-            r#"{"version": 2, "elements": [{"kind": "crystal", "material": "ktp", "thickness_mm": 1, "axis": {"tilt_deg": 0, "azimuth_deg": 0}}]}"#,
+            r#"{"version": 2, "elements": [{"kind": "crystal", "material": "quartz", "thickness_mm": 5, "axis": {"tilt_deg": 90, "azimuth_deg": 0}, "faces": {"back": {"tilt_deg": 10}}, "aperture_mm": 10}]}"#,
         )
         .unwrap();
+        // A wedge: faces at an angle are not solved in convergent light.
         let scene = conoscope_view(&sc);
         assert!(scene.tagged("map").next().is_none());
         assert!(
