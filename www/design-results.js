@@ -611,7 +611,7 @@ export function rotatorResults(state, d) {
       ['by the exact trace', 'traced_rotation_deg', formats.deg],
       ['rotatory power', 'rotatory_power_deg_per_mm', formats.sig('°/mm', 5)],
       ['dθ/dλ', 'dispersion_deg_per_nm', formats.sig('°/nm', 4)],
-    ], { note: 'From x toward y. The rotatory power is from the catalogue\'s cited formula (g11 = 0, stated); its temperature change is not known, so dθ/dT (Temperature card) is the expansion alone.' }),
+    ], { note: 'From x toward y. The rotatory power is from the catalogue\'s cited formula (g11 = 0, stated); dθ/dT (Temperature card) carries its measured change with temperature and the plate\'s expansion.' }),
     bandCard(d, 'rotation', 'rotation_deg'),
     resultCard(d, 'Acceptance', [
       ['angle of incidence', 'acceptance_deg', formats.angle],

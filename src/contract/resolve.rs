@@ -203,7 +203,7 @@ fn crystal_medium(
             Some(chirality) => {
                 let activity = material::optical_activity(plate.medium.key())
                     .ok_or_else(|| Error::new("optical_activity", "this crystal has no optical activity data"))?
-                    .at(wavelength)?;
+                    .at_temperature(wavelength, temperature_c)?;
                 warnings.extend(activity.warnings);
                 let sign = if chirality.right_handed { 1.0 } else { -1.0 };
                 let kappa = Anisotropic::chirality_from_gyration(activity.gyration.map(|g| sign * g));

@@ -804,9 +804,10 @@ mod tests {
                 && w[1].starts_with("band_nm[1]: 1600 nm"),
             "{w:?}"
         );
-        // Its own notes come before the shop's, and say what it cannot give.
+        // Its own notes come before the shop's, and say where its temperature figure comes from.
         assert!(
-            strings(&d["notes"])[0].starts_with("the temperature sensitivity dθ/dT is the plate's expansion alone")
+            strings(&d["notes"])[0]
+                .starts_with("the temperature sensitivity dθ/dT carries the rotatory power's own change")
         );
         assert_eq!(
             field_of(r#"{"kind": "quartz-rotator", "rotation_deg": 45, "thickness_mm": 3}"#),

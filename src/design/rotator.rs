@@ -15,9 +15,9 @@
 //! difference.
 //!
 //! Temperature: the plate works at the request's `temperature_c` T, where its length along the
-//! axis is L₂₀(1 + α∥(T − 20 °C)) ([`crate::design::thermal`]); the thickness quoted is L₂₀. No
-//! temperature data exist for the catalogue's rotatory power, so dθ/dT = ±ρ L₂₀ α∥ is the
-//! expansion's alone (the answer says so).
+//! axis is L₂₀(1 + α∥(T − 20 °C)) ([`crate::design::thermal`]) and its rotatory power
+//! ρ(T) = ρ₂₀(1 + c (T − 20 °C)) ([`OpticalActivity::at_temperature`]); the thickness quoted is
+//! L₂₀, so dθ/dT = ±L₂₀ d(ρ(T)(1 + α∥(T − 20)))/dT, about ±θ (c + α∥) = ±θ · 1.456e-4 /K.
 //!
 //! Acceptance. Off the axis the plate is birefringent as well as active: its modes become
 //! elliptical and then nearly linear within a few degrees, so a linear input leaves elliptical
@@ -100,6 +100,8 @@ pub struct RotatorDesign {
     pub rotatory_power_deg_per_mm: f64,
     /// The source of the rotatory power (formula, citation, g11 = 0).
     pub rotatory_power_source: &'static str,
+    /// The source of the rotatory power's change with temperature.
+    pub rotatory_power_temperature_source: &'static str,
     /// The design wavelength, nm.
     pub wavelength_nm: f64,
     /// Rotation over the band.
@@ -173,9 +175,9 @@ fn part(wavelength: Wavelength, right_handed: bool, thickness_mm: f64, t_c: f64)
 }
 
 /// Quartz's rotatory power, degrees per mm, at `nm`, for `field`'s errors.
-fn power_deg(activity: &OpticalActivity, nm: f64, field: &str) -> Result<f64, Error> {
+fn power_deg(activity: &OpticalActivity, nm: f64, t_c: f64, field: &str) -> Result<f64, Error> {
     let a = activity
-        .at(Wavelength::from_nm(nm)?)
+        .at_temperature(Wavelength::from_nm(nm)?, t_c)
         .map_err(|e| Error::new(field, e.message))?;
     Ok(a.rotatory_power_rad_per_mm.to_degrees())
 }
@@ -190,10 +192,10 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
     let activity =
         material::optical_activity("quartz").ok_or_else(|| Error::new("", "the catalogue has no optical activity"))?;
     let nm = req.wavelength.nm();
-    let rho = power_deg(activity, nm, "wavelength_nm")?;
+    let t_c = req.temperature_c;
+    let rho = power_deg(activity, nm, t_c, "wavelength_nm")?;
     // Degrees per millimetre made at 20 °C, working at the design temperature (a c-cut plate
     // grows by α∥ along its axis).
-    let t_c = req.temperature_c;
     let quartz =
         Medium::Catalogue(material::find("quartz").ok_or_else(|| Error::new("", "the catalogue has no quartz"))?);
     let grown = growth(&quartz, 0.0, 0.0, t_c);
@@ -256,7 +258,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         } else {
             lo + (hi - lo) * k as f64 / n as f64
         };
-        let Ok(r) = power_deg(activity, w, "band_nm") else {
+        let Ok(r) = power_deg(activity, w, t_c, "band_nm") else {
             continue;
         };
         let th = sense * r * thickness_mm * grown;
@@ -269,7 +271,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
     let dispersion_deg_per_nm = sense
         * thickness_mm
         * grown
-        * (power_deg(activity, nm + h, "wavelength_nm")? - power_deg(activity, nm - h, "wavelength_nm")?)
+        * (power_deg(activity, nm + h, t_c, "wavelength_nm")? - power_deg(activity, nm - h, t_c, "wavelength_nm")?)
         / (2.0 * h);
 
     // Acceptance on the exact trace.
@@ -323,13 +325,16 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         coarse
     };
     notes.push(
-        "the temperature sensitivity dθ/dT is the plate's expansion alone: the catalogue's rotatory power of quartz is at room temperature (about 20 °C) and has no temperature data yet".to_string(),
+        "the temperature sensitivity dθ/dT carries the rotatory power's own change, from the measured rotation of quartz control plates (1.456e-4 /K about 20 °C, the plate's expansion included), taken as the same at every wavelength".to_string(),
     );
     let temperature = Temperature::of(
         t_c,
         vec![(
             "rotation_deg",
-            Box::new(|t| Some(sense * rho * thickness_mm * growth(&quartz, 0.0, 0.0, t))),
+            Box::new(|t| {
+                let r = power_deg(activity, nm, t, "temperature_c").ok()?;
+                Some(sense * r * thickness_mm * growth(&quartz, 0.0, 0.0, t))
+            }),
         )],
     );
     Ok(RotatorDesign {
@@ -347,6 +352,7 @@ pub fn design(req: &RotatorRequest) -> Result<RotatorDesign, Error> {
         },
         rotatory_power_deg_per_mm: rho,
         rotatory_power_source: activity.citation,
+        rotatory_power_temperature_source: activity.temperature_source,
         wavelength_nm: nm,
         band,
         dispersion_deg_per_nm,

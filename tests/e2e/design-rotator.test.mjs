@@ -50,7 +50,7 @@ test('a 90° quartz rotator agrees with the command line, draws its curves, fill
     assert.ok(label.includes(`acceptance ${fig(design.acceptance_deg)}°`), label);
     // The temperature note is there, in the panel's words.
     const notes = await page.$$eval('[data-design-advice="notes"] li', (els) => els.map((e) => e.textContent));
-    assert.ok(notes.some((n) => n.startsWith('The temperature sensitivity dθ/dT is the plate\'s expansion alone')), notes.join(' | '));
+    assert.ok(notes.some((n) => n.startsWith('The temperature sensitivity dθ/dT carries the rotatory power\'s own change')), notes.join(' | '));
 
     const sheet = await orderSheet(page);
     assert.ok(sheet.Material?.toLowerCase().includes('quartz'), `the order sheet names the material: ${sheet.Material}`);
@@ -60,7 +60,7 @@ test('a 90° quartz rotator agrees with the command line, draws its curves, fill
     expectRow(sheet, 'Wavelength band', ['600 nm to 680 nm', `rotation from ${fig(b[lo])}° to ${fig(b[hi])}°`], 'rotator');
     expectRow(sheet, 'Performance', [`rotation 90° from x toward y at 632.8 nm`, `dθ/dλ ${fig(design.dispersion_deg_per_nm, 3)}°/nm`,
       `acceptance ${fig(design.acceptance_deg, 3)}° of incidence (set by the ellipticity)`], 'rotator');
-    expectRow(sheet, 'Shop notes', ['The temperature sensitivity dθ/dT is the plate\'s expansion alone'], 'rotator');
+    expectRow(sheet, 'Shop notes', ['The temperature sensitivity dθ/dT carries the rotatory power\'s own change'], 'rotator');
 
     // In the set-up: the page's own exact trace of the plate, lit by linear light along x,
     // leaves linear light at the requested azimuth (modulo 180°).

@@ -33,6 +33,7 @@ pub(super) fn rotator(r: &mut Report) {
     r.quantity("ellipticity by the exact trace", "traced_ellipticity_deg", "°");
     r.quantity("rotatory power", "rotatory_power_deg_per_mm", "°/mm");
     r.text_line("rotatory power from", "rotatory_power_source");
+    r.text_line("its change with temperature", "rotatory_power_temperature_source");
     r.quantity("dispersion dθ/dλ", "dispersion_deg_per_nm", "°/nm");
     if let (Some(th), Some(band)) = (span(r, "band.rotation_deg", "°"), span(r, "band.wavelength_nm", "nm")) {
         r.line("rotation over the band", format!("{th} over {band}"));

@@ -22,7 +22,16 @@
 //! (1927). Form and constants are from memory; they reproduce the handbook values 21.72 °/mm at
 //! 589.3 nm and 48.95 °/mm at 404.7 nm to 0.2 % (tests below). Range: the span of those
 //! measurements as we recall it, 0.23-1.5 µm (from memory); outside it the formula is evaluated
-//! with a warning. Temperature: room temperature (about 20 °C).
+//! with a warning.
+//!
+//! Temperature: ρ(λ, T) = ρ(λ) (1 + c (T − 20 °C)), and g with it. A quartz plate's rotation grows
+//! by a_t = a_0 (1 + 0.000146 t) (t in °C, 0-100 °C, in angular measure: H. W. Wiley, Principles
+//! and Practice of Agricultural Analysis, vol. 3, the saccharimeter's quartz control plates, §79;
+//! the edition's year not checked), that is by 1.4557e-4 /K about 20 °C; the plate's own growth
+//! along the axis, α∥ = 7.1e-6 /K ([`super::thermal`]), leaves c = 1.38475e-4 /K to the rotatory
+//! power. The rate is taken as the same at every wavelength (the control plates are read in
+//! sodium or mercury-green light). The value used in sugar analysis today, 1.44e-4 /K for the
+//! plate (ICUMSA, common practice, from memory), is 1 % lower.
 //!
 //! Perpendicular to the axis: quartz's g11 has the opposite sign to g33 and about half its size
 //! in published measurements, but we could not confirm a value with its source, so the catalogue
@@ -54,6 +63,10 @@ pub struct OpticalActivity {
     pub gyration_ratio: f64,
     /// The source of the formula and of the ratio.
     pub citation: &'static str,
+    /// c = (1/ρ) dρ/dT about 20 °C, 1/K (see the module header).
+    pub relative_per_k: f64,
+    /// The source of `relative_per_k`.
+    pub temperature_source: &'static str,
 }
 
 /// A crystal's optical activity at one wavelength, for a right-handed crystal.
@@ -121,6 +134,21 @@ impl OpticalActivity {
     }
 }
 
+impl OpticalActivity {
+    /// As [`OpticalActivity::at`] at `t_c` °C: ρ and g scaled by 1 + c (T − 20 °C), identical to
+    /// it at 20 °C.
+    ///
+    /// # Errors
+    /// As [`OpticalActivity::at`].
+    pub fn at_temperature(&self, wavelength: Wavelength, t_c: f64) -> Result<Activity, Error> {
+        let mut a = self.at(wavelength)?;
+        let f = 1.0 + self.relative_per_k * (t_c - super::REFERENCE_C);
+        a.rotatory_power_rad_per_mm *= f;
+        a.gyration = a.gyration.map(|g| g * f);
+        Ok(a)
+    }
+}
+
 /// The optical activity of the catalogued crystal `key` (any ASCII case), if it is optically
 /// active: `quartz` only.
 pub fn optical_activity(key: &str) -> Option<&'static OpticalActivity> {
@@ -139,6 +167,13 @@ static ACTIVE: [OpticalActivity; 1] = [OpticalActivity {
                lambda0^2)^2, k = 7.186 deg um^2/mm, lambda0 = 0.0926 um, fitted to Lowry and \
                Coode-Adams (1927); room temperature; constants from memory. g11 = 0 (not \
                measured here: taken as zero and stated)",
+    // Wiley's 0.000146 /K from 0 °C is 0.000146/(1 + 0.000146·20) = 1.4557e-4 /K about 20 °C for
+    // the plate, less α∥ = 7.1e-6 /K for its length.
+    relative_per_k: 1.384_75e-4,
+    temperature_source: "a quartz plate's rotation a_t = a_0 (1 + 0.000146 t), 0-100 °C: H. W. Wiley, \
+                         Principles and Practice of Agricultural Analysis, vol. 3 (quartz control plates), less \
+                         the plate's expansion along its axis, 7.1e-6 /K: (1/rho) drho/dT = 1.38475e-4 /K, taken \
+                         as the same at every wavelength",
 }];
 
 #[cfg(test)]
