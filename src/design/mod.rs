@@ -29,6 +29,9 @@
 //!   warning is prefixed by the field that names the material, and so is the warning of
 //!   unverified thermo-optic data, since every answer states figures per kelvin.
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
+//! - *Wavelength basis.* `wavelength_in` (`"vacuum"` or `"air"`, as in a scenario): the request's
+//!   wavelengths are turned into vacuum ones before its reader sees them, and the answer echoes
+//!   the basis ([`crate::contract::request::WavelengthBasis`]).
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
@@ -421,8 +424,9 @@ fn sources_used(crystals: &[(Medium, f64)]) -> Value {
 /// Solves a design request given as a parsed JSON value.
 ///
 /// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header),
-/// `notes` (shop guidance) and `sources` (the dispersion source of each catalogue crystal used)
-/// added.
+/// `notes` (shop guidance), `sources` (the dispersion source of each catalogue crystal used) and
+/// the wavelength basis (`wavelength_in`, the request's wavelengths in vacuum and, for air, as
+/// given) added.
 ///
 /// # Errors
 /// The path of the first offending field of the request, or a solver's error.
