@@ -160,6 +160,12 @@ export function adviceLists(advice) {
 
 // --- results by kind -------------------------------------------------------------------------
 
+/** Rows of each mode's group index (`modes.o.group_index` …), in the trace's order: o, e or f, s. */
+function groupIndexRows(d) {
+  return ['o', 'e', 'f', 's'].filter((m) => d.modes?.[m] !== undefined)
+    .map((m) => [`${m} group index`, `modes.${m}.group_index`, formats.index]);
+}
+
 export function displacerResults(state, d, run) {
   const s = d;
   const headline = h(
@@ -198,6 +204,7 @@ export function displacerResults(state, d, run) {
       ['o–e exit phase', 'exit_phase_rad', formats.rad],
       ['… reduced to (−π, π]', 'exit_phase_mod_2pi_rad', formats.rad],
       ['group delay, e pulse after o pulse', 'group_delay_ps', formats.delay],
+      ...groupIndexRows(d),
     ]),
     resultCard(d, 'Crystal', [
       ['wavelength', 'wavelength_nm', formats.nm],
@@ -296,6 +303,7 @@ export function waveplateResults(state, d) {
       ['fast axis', 'fast_axis', formats.text],
       ...indexRows,
       [d.cut ? 'group delay, slow pulse after fast' : 'group delay, axis pulse after across', 'group_delay_ps', formats.delay],
+      ...groupIndexRows(d),
     ], { note: d.cut ? 'The slow axis lies at the plate\'s azimuth; the group delay is of the pulse polarized along it.' : 'Signed: positive when the optic axis is the slow axis; the group delay likewise, for the pulse polarized along it.' }),
     resultCard(d, 'Angle of incidence', [
       ['acceptance (worst plane)', 'acceptance_deg', formats.angle],

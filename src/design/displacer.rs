@@ -31,7 +31,7 @@ use crate::contract::request::principal::{AXIS_LETTERS, is_principal};
 use crate::contract::request::{DisplacerRequest, PrincipalPlane, Tolerances};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::Medium;
-use crate::design::part::{Part, crystal, oriented_crystal};
+use crate::design::part::{ModeGroups, Part, crystal, oriented_crystal};
 use crate::design::principal::{plane_indices, plane_orientation, widest_plane};
 use crate::design::statistics::{Summary, summarize};
 use crate::design::thermal::{Temperature, growth, growth_along_z, indices_at, principal_at};
@@ -142,6 +142,10 @@ pub struct DisplacerDesign {
     /// Group delay of the e-beam's pulse after the o-beam's across the plate, picoseconds
     /// (negative when the e-pulse leads; [`Part::group_delay_ps`]).
     pub group_delay_ps: Option<f64>,
+    /// The group index of each mode at the design wavelength and temperature, at normal
+    /// incidence, under the letters a trace gives the modes (`o`, `e`; `f`, `s` for a biaxial
+    /// crystal), as the trace of `scenario` reports them ([`Part::mode_groups`]).
+    pub modes: Option<ModeGroups>,
     /// Linearized sensitivities.
     pub sensitivities: Sensitivities,
     /// The error standard deviations used.
@@ -494,6 +498,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
     )
     .at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
+    let modes = scenario.mode_groups();
     Ok(DisplacerDesign {
         material: m.key().to_string(),
         no: ix.no,
@@ -534,6 +539,7 @@ pub fn design(req: &DisplacerRequest) -> Result<DisplacerDesign, Error> {
             reduced
         },
         group_delay_ps,
+        modes,
         sensitivities: Sensitivities {
             tilt_mm_per_deg: s_tilt,
             tilt_second_order_mm_per_deg2: s_tilt_2,

@@ -29,11 +29,15 @@
 //!   warning is prefixed by the field that names the material, and so is the warning of
 //!   unverified thermo-optic data, since every answer states figures per kelvin.
 //! - *Shop notes.* `notes` lists guidance on parts a shop would question ([`crate::design::notes`]).
+//! - *Wavelength basis.* `wavelength_in` (`"vacuum"` or `"air"`, as in a scenario): the request's
+//!   wavelengths are turned into vacuum ones before its reader sees them, and the answer echoes
+//!   the basis ([`crate::contract::request::WavelengthBasis`]).
 
 use crate::contract::fields::Fields;
 use crate::contract::request::{
     AchromatRequest, AthermalRequest, BroadbandRequest, DisplacerRequest, FilterRequest, LcVoltageRequest,
-    PolarizerRequest, RecombinerRequest, RotatorRequest, SplitterRequest, TiltRequest, WaveplateRequest,
+    PolarizerRequest, RecombinerRequest, RotatorRequest, SplitterRequest, TiltRequest, WavelengthBasis,
+    WaveplateRequest,
 };
 use crate::contract::scenario::Medium;
 use crate::error::Error;
@@ -420,8 +424,9 @@ fn sources_used(crystals: &[(Medium, f64)]) -> Value {
 /// Solves a design request given as a parsed JSON value.
 ///
 /// The answer is the solver's, with `kind`, `warnings` (as the trace's, see the module header),
-/// `notes` (shop guidance) and `sources` (the dispersion source of each catalogue crystal used)
-/// added.
+/// `notes` (shop guidance), `sources` (the dispersion source of each catalogue crystal used) and
+/// the wavelength basis (`wavelength_in`, the request's wavelengths in vacuum and, for air, as
+/// given) added.
 ///
 /// # Errors
 /// The path of the first offending field of the request, or a solver's error.
@@ -430,26 +435,31 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
     let kind = f
         .string("kind")?
         .ok_or_else(|| Error::new("kind", format!("is required: one of {}", KINDS.join(", "))))?;
+    // Every wavelength in vacuum before the kind's reader sees it (`wavelength_in`).
+    let basis = WavelengthBasis::read(kind, request)?;
+    let request = &basis.request;
+    let mut f = Fields::new("", request)?;
+    f.string("kind")?;
     check_applies(kind, request)?;
-    let (mut out, warnings, crystals) = match kind {
-        "displacer" => answer(kind, f, DisplacerRequest::from_json, displacer_uses, displacer::design)?,
-        "waveplate" => answer(kind, f, WaveplateRequest::from_json, waveplate_uses, waveplate::design)?,
-        "achromat" => answer(kind, f, AchromatRequest::from_json, achromat_uses, waveplate::achromat)?,
+    let answered = match kind {
+        "displacer" => answer(kind, f, DisplacerRequest::from_json, displacer_uses, displacer::design),
+        "waveplate" => answer(kind, f, WaveplateRequest::from_json, waveplate_uses, waveplate::design),
+        "achromat" => answer(kind, f, AchromatRequest::from_json, achromat_uses, waveplate::achromat),
         "recombiner" => answer(
             kind,
             f,
             RecombinerRequest::from_json,
             recombiner_uses,
             recombiner::check,
-        )?,
-        "angular-splitter" => answer(kind, f, SplitterRequest::from_json, splitter_uses, splitter::design)?,
-        "prism-polarizer" => answer(kind, f, PolarizerRequest::from_json, polarizer_uses, polarizer::design)?,
-        "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design)?,
-        "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design)?,
-        "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal)?,
-        "birefringent-filter" => answer(kind, f, FilterRequest::from_json, filter_uses, filter::design)?,
-        "broadband-retarder" => answer(kind, f, BroadbandRequest::from_json, broadband_uses, broadband::design)?,
-        "lc-voltage" => answer(kind, f, LcVoltageRequest::from_json, lc_uses, lc::design)?,
+        ),
+        "angular-splitter" => answer(kind, f, SplitterRequest::from_json, splitter_uses, splitter::design),
+        "prism-polarizer" => answer(kind, f, PolarizerRequest::from_json, polarizer_uses, polarizer::design),
+        "tilt-tuning" => answer(kind, f, TiltRequest::from_json, tilt_uses, tilt::design),
+        "quartz-rotator" => answer(kind, f, RotatorRequest::from_json, rotator_uses, rotator::design),
+        "athermal-waveplate" => answer(kind, f, AthermalRequest::from_json, athermal_uses, athermal::athermal),
+        "birefringent-filter" => answer(kind, f, FilterRequest::from_json, filter_uses, filter::design),
+        "broadband-retarder" => answer(kind, f, BroadbandRequest::from_json, broadband_uses, broadband::design),
+        "lc-voltage" => answer(kind, f, LcVoltageRequest::from_json, lc_uses, lc::design),
         other => {
             return Err(Error::new(
                 "kind",
@@ -457,6 +467,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
             ));
         }
     };
+    let (mut out, warnings, crystals) = answered.map_err(|e| basis.explain(e))?;
     let notes = notes::notes(&crystals, out["clear_aperture_mm"].as_f64());
     if let Value::Object(m) = &mut out {
         // A solver's own warnings (what the audit cannot see) come before the audit's.
@@ -469,6 +480,7 @@ pub fn solve(request: &Value) -> Result<Value, Error> {
         all.extend(notes.into_iter().map(Value::String));
         m.insert("notes".into(), Value::Array(all));
     }
+    basis.echo(&mut out);
     Ok(out)
 }
 

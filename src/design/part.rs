@@ -12,7 +12,7 @@
 //! plane-parallel plates in air at 20 °C stay version 1.
 
 use crate::contract::geometry::{Contact, Placement};
-use crate::contract::group::groups;
+use crate::contract::group::{Group, groups};
 use crate::contract::request::principal::is_principal;
 use crate::contract::scenario::{
     Beam, Chirality, CrystalPlate, Element, ElementKind, Medium, Polarization, Scenario, element_json,
@@ -22,7 +22,7 @@ use crate::design::principal::Oriented;
 use crate::error::Error;
 use crate::optics::interface::Losses;
 use crate::optics::spots::power_of;
-use crate::optics::stack::Stack;
+use crate::optics::stack::{Element as StackElement, Stack};
 use crate::optics::trace::{Trace, trace};
 use crate::optics::traced::Path;
 use crate::optics::wavelength::Wavelength;
@@ -165,14 +165,22 @@ impl Part {
 }
 
 impl Part {
+    /// The part resolved, with each element's group indices and delay
+    /// ([`crate::contract::group::groups`], as a trace of the part reports them); `None` when the
+    /// part does not resolve.
+    fn groups(&self) -> Option<(Stack, Vec<Option<Group>>)> {
+        let (stack, _) = self.scenario.resolve().ok()?;
+        let g = groups(&self.scenario, &stack);
+        Some((stack, g))
+    }
+
     /// Group delay between the part's two polarizations, picoseconds: the delay of the
     /// e-polarization of its first crystal after the o-polarization, summed over crystals whose
     /// axes lie along or across the first's (a crossed plate's e is the first's o), each from
     /// [`crate::contract::group`]. `None` when a crystal has no single delay (a wedge, an
     /// evanescent mode) or its axis is neither along nor across the first's.
     pub fn group_delay_ps(&self) -> Option<f64> {
-        let (stack, _) = self.scenario.resolve().ok()?;
-        let delays = groups(&self.scenario, &stack);
+        let (_, delays) = self.groups()?;
         let mut first_azimuth = None;
         let mut total = 0.0;
         for (el, group) in self.scenario.elements.iter().zip(delays) {
@@ -189,6 +197,48 @@ impl Part {
             };
         }
         first_azimuth.map(|_| total)
+    }
+
+    /// The group index of each mode of the part's first crystal at its wavelength and
+    /// temperature, for its incident beam, labelled by the mode letters a trace gives them; the
+    /// very numbers a trace of the part's `scenario` reports as `elements[i].o.group_index` and
+    /// so on. `None` when the part holds no crystal or does not resolve.
+    pub fn mode_groups(&self) -> Option<ModeGroups> {
+        let (stack, groups) = self.groups()?;
+        stack
+            .layers
+            .iter()
+            .zip(groups)
+            .find_map(|(layer, group)| match (&layer.element, group) {
+                (StackElement::Slab(slab), Some(g)) => Some(ModeGroups {
+                    letters: slab.medium.letters(),
+                    group_index: g.indices,
+                }),
+                _ => None,
+            })
+    }
+}
+
+/// The group indices of a crystal's two modes, first mode first (o then e; f then s for a
+/// biaxial crystal), written as a trace's element report writes them per mode:
+/// `{"o": {"group_index": …}, "e": {"group_index": …}}` (null where a mode is evanescent).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ModeGroups {
+    /// The modes' letters, as in ray labels and element reports.
+    pub letters: [char; 2],
+    /// Group index g = ξ − λ dξ/dλ of each mode along the face normal (n − λ dn/dλ at normal
+    /// incidence; [`crate::contract::group`]).
+    pub group_index: [Option<f64>; 2],
+}
+
+impl Serialize for ModeGroups {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        let mut map = s.serialize_map(Some(2))?;
+        for (letter, g) in self.letters.iter().zip(self.group_index) {
+            map.serialize_entry(&letter.to_string(), &json!({ "group_index": g }))?;
+        }
+        map.end()
     }
 }
 

@@ -45,7 +45,7 @@
 use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
 use crate::contract::scenario::{Medium, PrincipalIndices};
-use crate::design::part::{Part, crystal, oriented_crystal};
+use crate::design::part::{ModeGroups, Part, crystal, oriented_crystal};
 use crate::design::principal::{BiaxialCut, CutReport, Oriented, biaxial_cut};
 use crate::design::thermal::{PerKelvin, Temperature, growth, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::error::Error;
@@ -164,6 +164,11 @@ pub struct WaveplateDesign {
     /// it, at the design wavelength and normal incidence, picoseconds (signed like
     /// `retardance_waves`; [`Part::group_delay_ps`]).
     pub group_delay_ps: Option<f64>,
+    /// The group index of each mode of the first plate at the design wavelength and temperature,
+    /// at normal incidence, under the letters a trace gives the modes (`o`, `e`; `f`, `s` for a
+    /// biaxial crystal), as the trace of `scenario` reports them ([`Part::mode_groups`]); a
+    /// compound plate's second plate has the same two modes, crossed.
+    pub modes: Option<ModeGroups>,
     /// Retardance against wavelength [nm, waves].
     pub wavelength_curve: Vec<[f64; 2]>,
     /// Retardance against angle of incidence, per plane.
@@ -419,6 +424,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .collect();
     let scenario = Part::new(req.wavelength, None, elements).at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
+    let modes = scenario.mode_groups();
     Ok(WaveplateDesign {
         wavelength_nm: nm,
         max_incidence_deg: req.max_incidence_deg,
@@ -436,6 +442,7 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
             .map_or_else(|| sign_word(ix).into(), |b| b.fast_axis.clone()),
         biaxial: biaxial.as_ref().map(BiaxialCut::report),
         group_delay_ps,
+        modes,
         wavelength_curve,
         angular,
         acceptance_deg,

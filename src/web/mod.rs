@@ -13,7 +13,7 @@ use crate::contract::conoscope::{ConoscopeMap, MAX_PIXELS};
 #[cfg(feature = "design-worker")]
 use crate::contract::fields::Fields;
 #[cfg(feature = "design-worker")]
-use crate::contract::request::DisplacerRequest;
+use crate::contract::request::{DisplacerRequest, WavelengthBasis};
 use crate::contract::result::{TraceResult, trace_scenario as trace};
 use crate::contract::scenario::Scenario;
 use crate::design::statistics as statistics_summary;
@@ -175,7 +175,9 @@ impl DesignRun {
             m.insert("samples".into(), serde_json::Value::from(0));
         }
         let nominal = design::solve(&without)?;
-        let mut f = Fields::new("", &value)?;
+        // The Monte Carlo run reads the request as the solver does: in vacuum wavelengths.
+        let vacuum = WavelengthBasis::read("displacer", &value)?.request;
+        let mut f = Fields::new("", &vacuum)?;
         f.string("kind")?;
         let mut req = DisplacerRequest::from_json(&mut f)?;
         f.finish()?;

@@ -56,7 +56,7 @@ test('a KTP waveplate agrees with the command line and, loaded, retards as desig
     assert.equal(await page.locator(field('plane')).isVisible(), false, 'a waveplate has no principal plane');
     await solveDesign(page);
     await expectRequest(page, request, 'KTP waveplate');
-    await expectYCut(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps'],
+    await expectYCut(page, design, ['plates.0.thickness_mm', 'retardance_waves', 'no', 'ne', 'birefringence', 'acceptance_deg', 'group_delay_ps', 'modes.f.group_index', 'modes.s.group_index'],
       'y-cut: principal y along the face normal; plate 1 slow axis at 0°', 'KTP waveplate');
     const sc = await useDesign(page, design, 'KTP waveplate');
     assert.equal(sc.elements[0].material, 'ktp');
@@ -110,7 +110,7 @@ test('an LBO displacer agrees with the command line and, loaded, separates the b
     assert.equal(await page.locator(field('cut')).isVisible(), false, 'a displacer has no waveplate cut');
     await solveDesign(page, 90000);
     await expectRequest(page, request, 'LBO displacer');
-    await expectDesign(page, design, ['length_mm', 'cut_tilt_deg', 'separation_mm', 'walkoff_deg', 'no', 'ne', 'straight_index', 'group_delay_ps'], 'LBO displacer');
+    await expectDesign(page, design, ['length_mm', 'cut_tilt_deg', 'separation_mm', 'walkoff_deg', 'no', 'ne', 'straight_index', 'group_delay_ps', 'modes.f.group_index', 'modes.s.group_index'], 'LBO displacer');
     const sheet = await orderSheet(page);
     assert.ok(sheet.Cut?.startsWith('principal z at ') && sheet.Cut.includes('in the xz principal plane'), `the order sheet's cut: ${sheet.Cut}`);
     const sc = await useDesign(page, design, 'LBO displacer');

@@ -122,6 +122,65 @@ impl<'a> Report<'a> {
         }
     }
 
+    /// Each mode's group index (`modes.o.group_index` …), under the trace's mode letters.
+    fn group_indices(&mut self) {
+        for m in ["o", "e", "f", "s"] {
+            self.quantity(&format!("group index, {m}"), &format!("modes.{m}.group_index"), "");
+        }
+    }
+
+    /// The request's wavelength basis (`wavelength_in`): for standard air, each wavelength as
+    /// given beside its vacuum equivalent, which the rest of the report quotes. The vacuum
+    /// echoes of the request's wavelength fields are the request's own numbers and are not
+    /// repeated.
+    fn basis(&mut self) -> Option<String> {
+        let air = self.s("wavelength_in").as_deref() == Some("air");
+        let fields = [
+            "wavelength_nm",
+            "band_nm",
+            "wavelengths_nm",
+            "made_for_nm",
+            "bandwidth_nm",
+        ];
+        let mut given = Vec::new();
+        for f in fields.into_iter().chain(["tolerances.wavelength_nm"]) {
+            let (parent, name) = f.rsplit_once('.').map_or(("", f), |(p, n)| (p, n));
+            let twin = if parent.is_empty() {
+                format!("air_{name}")
+            } else {
+                format!("{parent}.air_{name}")
+            };
+            let Some(a) = self.at(&twin).cloned() else {
+                self.used.insert(f.to_string());
+                continue;
+            };
+            // To 0.1 pm: air and vacuum wavelengths differ in the fourth significant digit.
+            let nm = |x: f64| format!("{}", (x * 1e4).round() / 1e4);
+            let words = |v: Option<&Value>| match v {
+                Some(Value::Array(l)) => l
+                    .iter()
+                    .filter_map(Value::as_f64)
+                    .map(nm)
+                    .collect::<Vec<_>>()
+                    .join(" to "),
+                Some(v) => v.as_f64().map_or_else(String::new, nm),
+                None => String::new(),
+            };
+            let vacuum = words(self.at(f));
+            given.push(format!("{f} {} nm in air is {vacuum} nm in vacuum", words(Some(&a))));
+        }
+        if !air {
+            return None;
+        }
+        let n = self
+            .f("air_index")
+            .map_or_else(String::new, |n| format!(" (n = {})", doublespar::sig_within(n, 9, 14)));
+        Some(format!(
+            "wavelengths given in standard air{n}, converted to vacuum by Ciddor (1996): {}; every other wavelength here is in vacuum",
+            given.join("; ")
+        ))
+    }
+
     /// The design temperature, the lengths at it and each figure's change per kelvin
     /// (`temperature.per_kelvin`), the unit read from the figure's name; a figure a kind's own
     /// lines have shown is not repeated.
@@ -184,7 +243,7 @@ impl<'a> Report<'a> {
     /// (`sources`), the listed text fields and any `warnings` / `notes` list.
     fn notes(&mut self, texts: &[&str]) {
         self.temperature();
-        let mut items: Vec<String> = Vec::new();
+        let mut items: Vec<String> = self.basis().into_iter().collect();
         for s in self.at("sources").and_then(Value::as_array).into_iter().flatten() {
             let text = |k: &str| s.get(k).and_then(Value::as_str).unwrap_or_default();
             items.push(format!(
@@ -445,6 +504,7 @@ fn displacer_performance(r: &mut Report) {
     r.quantity(phase, "exit_phase_rad", "rad");
     r.quantity("  the same, modulo 2π", "exit_phase_mod_2pi_rad", "rad");
     r.quantity(delay, "group_delay_ps", "ps");
+    r.group_indices();
 }
 
 /// A biaxial design's principal indices at the design wavelength, on one line.
@@ -604,6 +664,7 @@ fn waveplate(r: &mut Report) {
         "group delay, e after o"
     };
     r.quantity(delay, "group_delay_ps", "ps");
+    r.group_indices();
     if let Some((a, b, lo, hi)) = range_of(r.v.get("wavelength_curve")) {
         r.line(
             "retardance over the band",

@@ -12,6 +12,7 @@
 
 pub mod achromat;
 pub mod athermal;
+pub mod basis;
 pub mod broadband;
 pub mod displacer;
 pub mod filter;
@@ -26,6 +27,7 @@ pub mod waveplate;
 
 pub use achromat::AchromatRequest;
 pub use athermal::AthermalRequest;
+pub use basis::WavelengthBasis;
 pub use broadband::BroadbandRequest;
 pub use displacer::{DisplacerRequest, Tolerances};
 pub use filter::{FilterRequest, Layout};
