@@ -1,10 +1,15 @@
-//! The athermal waveplate: two plates of different crystals, axes in the faces, whose retardance
-//! at the design wavelength does not change with temperature to first order.
+//! The athermal waveplate: two plates of different crystals, axes in the faces (or, for a biaxial
+//! crystal, cut along a principal axis), whose retardance at the design wavelength does not
+//! change with temperature to first order.
 //!
 //! Physics. A plate of crystal i, thickness L_i (given at 20 °C) with its axis in the faces,
 //! retards by L_i g_i(T) waves at normal incidence, where g_i = (n_e − n_o)(T)·(1 + α⊥ΔT)/λ per
 //! millimetre (its indices at T from the catalogue's thermo-optic data, its thickness grown by
-//! its expansion across the axis: [`crate::design::waveplate`]'s Γ(T)). Two plates in contact,
+//! its expansion across the axis: [`crate::design::waveplate`]'s Γ(T)). A biaxial plate cut
+//! along principal axis c (its own `cut` in `first` or `second`, [`crate::design::principal`];
+//! default the cut of largest birefringence) has g_i = (n_slow − n_fast)(T)·(1 + α_c ΔT)/λ with
+//! its two in-face principal indices, its slow axis at the plate's azimuth and its thickness grown
+//! by the expansion along c, the same exact plate the waveplate traces. Two plates in contact,
 //! the second's axis along or across the first's (signed thickness), retard by
 //! Γ(T) = L₁ g₁(T) + L₂ g₂(T). The pair is athermal at the request's `temperature_c` T₀
 //! (default 20 °C) when

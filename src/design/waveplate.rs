@@ -31,16 +31,17 @@
 //! n_slow − n_fast; away from normal incidence (the angular curves) its exact retardance
 //! k0 (q_z,s − q_z,f) L comes from the general mode solver
 //! ([`crate::optics::general_plate`]), and its thickness grows by the expansion along the cut's
-//! axis. The achromatic pair stays uniaxial: its two-wavelength system assumes each plate's
-//! birefringence has one sign over the band, which the catalogue's biaxial crystals do keep, but
-//! its crossed-plate reading of a negative thickness would need a cut per plate, which its
-//! request has no field for.
+//! axis. Every plate carries its own cut ([`Plate`]), so the two-crystal pairs (the achromat
+//! below, [`crate::design::athermal`]) may mix a biaxial plate with a uniaxial one.
 //!
 //! Achromatic pair: plates of two materials A and B with parallel (or crossed, a negative
 //! thickness) axes retard by Γ(λ) = 2π [L_A Δn_A(λ) + L_B Δn_B(λ)] / λ; requiring the target at
 //! two wavelengths is a 2×2 linear system for L_A and L_B. The two-material method is described
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
-//! memory).
+//! memory). A biaxial plate's Δn is n_slow − n_fast of its own cut (`first.cut`, `second.cut`),
+//! its slow and fast axes chosen at the first wavelength and kept over the band: the system
+//! assumes each plate's birefringence keeps one sign there, which the catalogue's biaxial crystals
+//! do; a negative thickness is that plate crossed, its slow axis at 90°.
 
 use crate::contract::request::{AchromatRequest, Order, PrincipalCut, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
