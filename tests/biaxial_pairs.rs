@@ -15,15 +15,8 @@ use doublespar::{ElementReport, Scenario, orientation, solve_design_str, trace_s
 use nalgebra::Vector3;
 use serde_json::{Value, json};
 
-fn design(doc: &str) -> Value {
-    solve_design_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))
-}
-
-fn num(v: &Value, path: &str) -> f64 {
-    v.pointer(path)
-        .and_then(Value::as_f64)
-        .unwrap_or_else(|| panic!("{path} in {v}"))
-}
+mod common;
+use common::{design, num};
 
 /// The lab azimuth (degrees, modulo 180) of the direction whose polarization a traced plate's
 /// retardance counts as the slower: a uniaxial plate's optic axis (`axis`, its e-wave), a biaxial
