@@ -21,17 +21,8 @@ use nalgebra::{Matrix3, Vector3};
 
 mod common;
 use common::berreman::{berreman, eigenvalues};
+use common::{design, num};
 use serde_json::{Value, json};
-
-fn design(doc: &str) -> Value {
-    solve_design_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))
-}
-
-fn num(v: &Value, path: &str) -> f64 {
-    v.pointer(path)
-        .and_then(Value::as_f64)
-        .unwrap_or_else(|| panic!("{path} in {v}"))
-}
 
 /// The answer's part traced whole by the general tracer, at the temperature it carries or at
 /// `t_c`, and at the wavelength it carries or at `nm`.

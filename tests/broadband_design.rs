@@ -9,17 +9,8 @@ use num_complex::Complex64 as C;
 use serde_json::{Value, json};
 use std::f64::consts::PI;
 
-fn design(doc: &str) -> Value {
-    solve_design_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))
-}
-
-fn num(v: &Value, path: &str) -> f64 {
-    v.pointer(path)
-        .and_then(Value::as_f64)
-        .unwrap_or_else(|| panic!("{path} in {v}"))
-}
-
 mod common;
+use common::{design, num};
 
 /// (n_e − n_o) of MgF2 at `nm`, 20 °C.
 fn mgf2_dn(nm: f64) -> f64 {

@@ -358,7 +358,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 27] = [
+const FLAG_CASES: [FlagCase; 30] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -392,6 +392,22 @@ const FLAG_CASES: [FlagCase; 27] = [
         flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40",
         json: r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"},
                  "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001, "temperature_c": 40}"#,
+    },
+    FlagCase {
+        flags: "athermal-waveplate --first-material ktp --first-cut x --second-material lbo --second-cut y --retardance-waves 0.25 --wavelength-nm 1064",
+        json: r#"{"kind": "athermal-waveplate", "first": {"material": "ktp", "cut": "x"}, "second": {"material": "lbo", "cut": "y"},
+                 "retardance_waves": 0.25, "wavelength_nm": 1064}"#,
+    },
+    FlagCase {
+        flags: "achromat --first-material quartz --second-material lbo --second-cut z --retardance-waves 0.5 --wavelengths-nm 500,900",
+        json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "lbo", "cut": "z"},
+                 "retardance_waves": 0.5, "wavelengths_nm": [500, 900]}"#,
+    },
+    FlagCase {
+        // A cut for a uniaxial plate: the same error on the same field from both forms.
+        flags: "achromat --first-material quartz --first-cut x --second-material ktp --retardance-waves 0.25 --wavelengths-nm 500,900",
+        json: r#"{"kind": "achromat", "first": {"material": "quartz", "cut": "x"}, "second": {"material": "ktp"},
+                 "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
     },
     FlagCase {
         flags: "birefringent-filter --material quartz --layout stage-doubling --stages 3 --wavelength-nm 656.3 --bandwidth-nm 1 --band-nm 640,670 --temperature-c 30",

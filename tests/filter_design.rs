@@ -10,17 +10,10 @@
 
 use doublespar::{Wavelength, find_uniaxial_source, solve_design_str};
 use serde_json::Value;
+
+mod common;
+use common::{design, num};
 use std::f64::consts::PI;
-
-fn design(doc: &str) -> Value {
-    solve_design_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))
-}
-
-fn num(v: &Value, path: &str) -> f64 {
-    v.pointer(path)
-        .and_then(Value::as_f64)
-        .unwrap_or_else(|| panic!("{path} in {v}"))
-}
 
 /// Δn = n_e − n_o of a catalogue crystal's default formula at `nm` (20 °C).
 fn birefringence(key: &str, source: &str, nm: f64) -> f64 {

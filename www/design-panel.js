@@ -85,11 +85,22 @@ function setGroupHint(box, text) {
 
 // The kinds whose solver takes a biaxial crystal (src/contract/request/principal.rs): a
 // waveplate or a tilt-tuned plate cut along a principal axis, a displacer cut in a principal
-// plane. The other kinds' lists hide the biaxial crystals (a chosen one stays, and the core names
-// the field).
+// plane, and either plate of a two-crystal pair, each with its own cut (`first.cut`,
+// `second.cut`). The other kinds' lists hide the biaxial crystals (a chosen one stays, and the
+// core names the field).
 const BIAXIAL_KINDS = new Set(['waveplate', 'tilt-tuning', 'displacer']);
+const PAIR_KINDS = new Set(['achromat', 'athermal-waveplate']);
 // The kinds whose plate is cut along a principal axis (the select `cut`).
 const CUT_KINDS = new Set(['waveplate', 'tilt-tuning']);
+
+/** The select of a biaxial plate's cut, the principal axis along the beam (empty: the core's default). */
+function cutField(state, path, spoken) {
+  return addField(state, path, {
+    label: 'Principal axis along the beam', spoken, kind: 'select',
+    options: [['', 'largest birefringence'], ['x', 'x'], ['y', 'y'], ['z', 'z']],
+    hint: 'The plate\'s faces are normal to this principal axis; its slower in-face axis lies at azimuth 0.',
+  });
+}
 const isBiaxial = (state, key) => key === 'principal' || state.materialList.some((m) => m.key === key && m.kind === 'biaxial');
 
 /** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
@@ -106,7 +117,10 @@ function mediumFields(state, prefix, fallback, whose) {
   const no = addField(state, `${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
   const ne = addField(state, `${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
-  if (prefix) return { material, custom, nodes: [material.row, custom] };
+  if (prefix) {
+    const cut = cutField(state, `${prefix}cut`, `Cut of the ${whose}`);
+    return { material, custom, nodes: [material.row, custom, cut.row] };
+  }
   // A biaxial crystal by its three principal indices (n_x < n_y < n_z by convention, not required).
   const start = { nx: 1.74, ny: 1.75, nz: 1.83 };
   const principal = h('div', { className: 'subgroup custom-indices' }, ...['nx', 'ny', 'nz'].map((k) =>
@@ -133,11 +147,7 @@ function buildDesignFields(state) {
   ], { pair: true });
   const separation = addField(state, 'separation_mm', { label: 'Separation of the beams', unit: 'mm', value: 1 });
   const beam = addField(state, 'beam_diameter_mm', { label: 'Beam diameter (1/e²)', unit: 'mm', value: 1 });
-  const principalCut = addField(state, 'cut', {
-    label: 'Principal axis along the beam', spoken: 'Cut of the biaxial plate', kind: 'select',
-    options: [['', 'largest birefringence'], ['x', 'x'], ['y', 'y'], ['z', 'z']],
-    hint: 'The plate\'s faces are normal to this principal axis; its slower in-face axis lies at azimuth 0.',
-  });
+  const principalCut = cutField(state, 'cut', 'Cut of the biaxial plate');
   const plane = addField(state, 'plane', {
     label: 'Principal plane', spoken: 'Principal plane of the displacer', kind: 'select',
     options: [['', 'largest walk-off'], ['xy', 'x y'], ['xz', 'x z'], ['yz', 'y z']],
@@ -353,11 +363,14 @@ function layoutDesignFields(state) {
   const mainKey = state.design.fields.material.value;
   for (const [prefix] of state.design.mediumBoxes) {
     const select = state.design.fields[`${prefix}material`].input;
-    const takes = !prefix && BIAXIAL_KINDS.has(kind);
+    const takes = prefix ? PAIR_KINDS.has(kind) : BIAXIAL_KINDS.has(kind);
     for (const o of select.options) {
       const hide = !takes && isBiaxial(state, o.value) && o.value !== select.value;
       if (o.hidden !== hide) o.hidden = hide;
     }
+    // A pair's plate shows its own cut while its crystal is biaxial.
+    const plateCut = prefix && state.design.fields[`${prefix}cut`].row;
+    if (plateCut && plateCut.hidden !== !isBiaxial(state, select.value)) plateCut.hidden = !isBiaxial(state, select.value);
   }
   const biaxial = isBiaxial(state, mainKey);
   if (state.design.principalBox.hidden !== (mainKey !== 'principal')) state.design.principalBox.hidden = mainKey !== 'principal';
@@ -391,6 +404,9 @@ function designRequest(state) {
     } else {
       out.material = m;
     }
+    // A pair's biaxial plate sends its cut when one is chosen (empty: the core's default).
+    const cut = prefix && state.design.fields[`${prefix}cut`];
+    if (cut && !cut.row.hidden && cut.value) out.cut = cut.value;
     return out;
   };
   const pair = (name) => {

@@ -318,13 +318,17 @@ export function worstPlane(d) {
   return d.angular.reduce((a, b) => (b.acceptance_deg < a.acceptance_deg ? b : a), d.angular[0]);
 }
 
+/** What lies in a pair's faces: optic axes, or principal axes once a plate is biaxial. */
+const axesWord = (d) => (d.plates.some((p) => p.cut) ? 'axes' : 'optic axes');
+
 /**
  * A pair of plates of two crystals (achromat, athermal pair): the headline naming both with their
  * thicknesses and axes (`tail` ends it), and the order card's rows (`thickness` labels each).
  */
 function platePair(state, d, tail, thickness) {
   const p = d.plates;
-  const axis = (q) => (q.axis_azimuth_deg === 90 ? 'axis crossed (90°)' : 'axis at 0°');
+  // A biaxial plate is cut along a principal axis, its slow in-face axis at the plate's azimuth.
+  const axis = (q) => `${q.cut ? `${q.cut}-cut, slow ` : ''}axis ${q.axis_azimuth_deg === 90 ? 'crossed (90°)' : 'at 0°'}`;
   const headline = h(
     'p',
     { className: 'design-headline' },
@@ -339,15 +343,16 @@ function platePair(state, d, tail, thickness) {
 
 /** The order card's rows of every plate of `d.plates`: material, thickness (`thickness` labels it), axis. */
 function plateRows(state, d, thickness) {
-  return d.plates.flatMap((_, i) => [
+  return d.plates.flatMap((p, i) => [
     [`plate ${i + 1}: material`, `plates.${i}.material`, (v) => designMaterialName(state, v)],
+    ...(p.cut ? [[`plate ${i + 1}: principal axis along the beam`, `plates.${i}.cut`, formats.text]] : []),
     [`plate ${i + 1}: ${thickness}`, `plates.${i}.thickness_mm`, formats.length],
-    [`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg],
+    [`plate ${i + 1}: ${p.cut ? 'slow axis azimuth' : 'axis azimuth'}`, `plates.${i}.axis_azimuth_deg`, formats.deg],
   ]);
 }
 
 export function achromatResults(state, d) {
-  const { headline, rows } = platePair(state, d, 'optic axes in the faces.', 'thickness');
+  const { headline, rows } = platePair(state, d, `${axesWord(d)} in the faces.`, 'thickness');
   return [
     headline,
     resultCard(d, 'What to order', rows, { className: 'design-main' }),
@@ -367,7 +372,7 @@ export function achromatResults(state, d) {
  * left and the temperature band, against a zero-order plate of the first crystal alone.
  */
 export function athermalResults(state, d) {
-  const { headline, rows } = platePair(state, d, `optic axes in the faces, thicknesses as made at 20${NBSP}°C.`, 'thickness at 20 °C');
+  const { headline, rows } = platePair(state, d, `${axesWord(d)} in the faces, thicknesses as made at 20${NBSP}°C.`, 'thickness at 20 °C');
   return [
     headline,
     resultCard(d, 'What to order', rows, { className: 'design-main' }),

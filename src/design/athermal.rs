@@ -1,10 +1,15 @@
-//! The athermal waveplate: two plates of different crystals, axes in the faces, whose retardance
-//! at the design wavelength does not change with temperature to first order.
+//! The athermal waveplate: two plates of different crystals, axes in the faces (or, for a biaxial
+//! crystal, cut along a principal axis), whose retardance at the design wavelength does not
+//! change with temperature to first order.
 //!
 //! Physics. A plate of crystal i, thickness L_i (given at 20 °C) with its axis in the faces,
 //! retards by L_i g_i(T) waves at normal incidence, where g_i = (n_e − n_o)(T)·(1 + α⊥ΔT)/λ per
 //! millimetre (its indices at T from the catalogue's thermo-optic data, its thickness grown by
-//! its expansion across the axis: [`crate::design::waveplate`]'s Γ(T)). Two plates in contact,
+//! its expansion across the axis: [`crate::design::waveplate`]'s Γ(T)). A biaxial plate cut
+//! along principal axis c (its own `cut` in `first` or `second`, [`crate::design::principal`];
+//! default the cut of largest birefringence) has g_i = (n_slow − n_fast)(T)·(1 + α_c ΔT)/λ with
+//! its two in-face principal indices, its slow axis at the plate's azimuth and its thickness grown
+//! by the expansion along c, the same exact plate the waveplate traces. Two plates in contact,
 //! the second's axis along or across the first's (signed thickness), retard by
 //! Γ(T) = L₁ g₁(T) + L₂ g₂(T). The pair is athermal at the request's `temperature_c` T₀
 //! (default 20 °C) when
@@ -20,11 +25,12 @@
 //! temperatures that keeps Γ within the acceptance error (bisected on the exact Γ(T)), and, for
 //! comparison, the band of a zero-order plate of the first crystal alone.
 
-use crate::contract::request::{AthermalRequest, TEMPERATURE_RANGE_C};
+use crate::contract::request::{AthermalRequest, PairPlate, TEMPERATURE_RANGE_C};
 use crate::contract::scenario::Medium;
-use crate::design::part::{Part, crystal};
+use crate::design::part::Part;
 use crate::design::waveplate::{
-    PlateCut, PlateSpec, TemperatureSensitivity, plate_specs, stack_retardance_at, temperature_sensitivity,
+    Plate, PlateCut, PlateSpec, TemperatureSensitivity, cut_of, plate_specs, stack_retardance_at,
+    temperature_sensitivity, with_cuts,
 };
 use crate::error::Error;
 use crate::precision::{SINGULAR_DETERMINANT, TEMPERATURE_STEP_K};
@@ -78,16 +84,17 @@ pub struct AthermalDesign {
     pub scenario: Part,
 }
 
-/// Waves per millimetre at `t` °C of a plate of `m` with its axis along x.
-fn per_mm(m: &Medium, nm: f64, t: f64) -> Option<f64> {
-    stack_retardance_at(&[(*m, 1.0, 0.0)], PlateCut::Axis, nm, [0.0, 0.0], t).map(|g| g / TAU)
+/// Waves per millimetre at `t` °C of a plate of `m` cut as `cut` at azimuth 0 (a uniaxial
+/// plate's optic axis, a biaxial plate's slow axis along x).
+fn per_mm(m: &Medium, cut: PlateCut, nm: f64, t: f64) -> Option<f64> {
+    stack_retardance_at(&[Plate::new(*m, 1.0, 0.0, cut)], nm, [0.0, 0.0], t).map(|g| g / TAU)
 }
 
-/// (g, g′) of `m` at `t0` °C, or an error on `field`.
-fn rate(m: &Medium, (nm, t0): (f64, f64), field: &'static str) -> Result<(f64, f64), Error> {
+/// (g, g′) of `m` cut as `cut` at `t0` °C, or an error on `field`.
+fn rate(m: &Medium, cut: PlateCut, (nm, t0): (f64, f64), field: &'static str) -> Result<(f64, f64), Error> {
     let h = TEMPERATURE_STEP_K;
     let at = |t: f64| {
-        per_mm(m, nm, t).ok_or_else(|| {
+        per_mm(m, cut, nm, t).ok_or_else(|| {
             Error::new(
                 field,
                 "this crystal's indices cannot be evaluated at the wavelength and temperatures needed",
@@ -100,21 +107,34 @@ fn rate(m: &Medium, (nm, t0): (f64, f64), field: &'static str) -> Result<(f64, f
 /// Solves an athermal waveplate request.
 ///
 /// # Errors
-/// `first.no` or `second.no` for fixed indices, which carry no thermal data;
+/// `first.no` or `second.no` (`first.nx`, `second.nx`) for fixed indices, which carry no
+/// thermal data; `first.cut` or `second.cut` for a biaxial cut without birefringence;
 /// `first.material` or `second.material` where a crystal cannot be evaluated; `second` when
 /// the two crystals' retardances change with temperature in proportion (no athermal pair).
 pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
-    for (m, field) in [(&req.a, "first.no"), (&req.b, "second.no")] {
-        if matches!(m, Medium::Custom(_) | Medium::Principal(_)) {
-            return Err(Error::new(
-                field,
-                "fixed indices carry no thermal data: an athermal pair needs catalogue crystals",
-            ));
-        }
+    for (m, plate) in [(&req.a.medium, "first"), (&req.b.medium, "second")] {
+        let field = match m {
+            Medium::Custom(_) => "no",
+            Medium::Principal(_) => "nx",
+            _ => continue,
+        };
+        return Err(Error::new(
+            format!("{plate}.{field}"),
+            "fixed indices carry no thermal data: an athermal pair needs catalogue crystals",
+        ));
     }
     let (nm, t0) = (req.wavelength.nm(), req.temperature_c);
-    let (g1, s1) = rate(&req.a, (nm, t0), "first.material")?;
-    let (g2, s2) = rate(&req.b, (nm, t0), "second.material")?;
+    // Each plate's cut at the design wavelength and temperature.
+    let cut = |p: &PairPlate, plate: &'static str| {
+        cut_of(&p.medium, p.cut, req.wavelength, t0).map_err(|e| match e.field.as_str() {
+            "cut" => e.within(plate),
+            _ => Error::new(format!("{plate}.material"), e.message),
+        })
+    };
+    let ((bi_a, cut_a), (bi_b, cut_b)) = (cut(&req.a, "first")?, cut(&req.b, "second")?);
+    let (ma, mb) = (req.a.medium, req.b.medium);
+    let (g1, s1) = rate(&ma, cut_a, (nm, t0), "first.material")?;
+    let (g2, s2) = rate(&mb, cut_b, (nm, t0), "second.material")?;
     let det = g1 * s2 - g2 * s1;
     if det.abs() < SINGULAR_DETERMINANT * (g1 * s2).abs().max((g2 * s1).abs()).max(1e-300) {
         return Err(Error::new(
@@ -129,8 +149,8 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     if l1 < 0.0 {
         (l1, l2) = (-l1, -l2);
     }
-    let plates: Vec<(Medium, f64, f64)> = vec![(req.a, l1, 0.0), (req.b, l2.abs(), if l2 < 0.0 { 90.0 } else { 0.0 })];
-    let at = |t: f64| stack_retardance_at(&plates, PlateCut::Axis, nm, [0.0, 0.0], t).map(|g| g / TAU);
+    let plates = [Plate::new(ma, l1, 0.0, cut_a), Plate::signed(mb, l2, cut_b)];
+    let at = |t: f64| stack_retardance_at(&plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
     let no_value = || {
         Error::new(
             "second.material",
@@ -140,8 +160,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     let g0 = at(t0).ok_or_else(no_value)?;
     let k = CURVATURE_STEP_K;
     let curvature = (at(t0 + k).ok_or_else(no_value)? + at(t0 - k).ok_or_else(no_value)? - 2.0 * g0) / (k * k);
-    let temperature =
-        temperature_sensitivity(&plates, PlateCut::Axis, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?;
+    let temperature = temperature_sensitivity(&plates, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?;
     let (c0, c1) = (
         CURVE_C.0.min(t0 - CURVE_REACH_K).max(TEMPERATURE_RANGE_C.0),
         CURVE_C.1.max(t0 + CURVE_REACH_K).min(TEMPERATURE_RANGE_C.1),
@@ -152,21 +171,17 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
             at(t).map(|g| [t, g])
         })
         .collect();
-    let alone = vec![(req.a, (f / g1).abs(), 0.0)];
+    let alone = [Plate::new(ma, (f / g1).abs(), 0.0, cut_a)];
     let single_plate = SinglePlate {
-        material: req.a.key().to_string(),
+        material: ma.key().to_string(),
         thickness_mm: (f / g1).abs(),
-        temperature: temperature_sensitivity(&alone, PlateCut::Axis, (nm, t0), req.acceptance_error_waves)
-            .ok_or_else(no_value)?,
+        temperature: temperature_sensitivity(&alone, (nm, t0), req.acceptance_error_waves).ok_or_else(no_value)?,
     };
-    let elements = plates
-        .iter()
-        .map(|(m, l, az)| crystal(*m, *l, 90.0, *az, 0.0))
-        .collect();
+    let elements = plates.iter().map(Plate::element).collect();
     Ok(AthermalDesign {
         wavelength_nm: nm,
         acceptance_error_waves: req.acceptance_error_waves,
-        plates: plate_specs(&plates, PlateCut::Axis, t0),
+        plates: with_cuts(plate_specs(&plates, t0), [bi_a.as_ref(), bi_b.as_ref()]),
         retardance_waves: g0,
         temperature,
         curvature_waves_per_k2: curvature,

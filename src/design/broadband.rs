@@ -48,7 +48,7 @@
 use super::evolution::{Minimum, minimize};
 use super::part::{Part, crystal};
 use super::simplex::polish;
-use super::waveplate::{PlateCut, stack_retardance_at};
+use super::waveplate::{Plate, PlateCut, stack_retardance_at};
 use crate::contract::request::BroadbandRequest;
 use crate::contract::scenario::Medium;
 use crate::error::Error;
@@ -215,7 +215,7 @@ struct Model<'a> {
 
 /// Waves per millimetre (signed: positive when the optic axis is slow) of `m` at `nm`, `t_c`.
 fn waves_per_mm(m: &Medium, nm: f64, t_c: f64) -> Option<f64> {
-    stack_retardance_at(&[(*m, 1.0, 0.0)], PlateCut::Axis, nm, [0.0, 0.0], t_c).map(|g| g / TAU)
+    stack_retardance_at(&[Plate::new(*m, 1.0, 0.0, PlateCut::Axis)], nm, [0.0, 0.0], t_c).map(|g| g / TAU)
 }
 
 fn grid(lo: f64, hi: f64, n: usize) -> Vec<f64> {

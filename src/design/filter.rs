@@ -27,7 +27,7 @@
 //! polarizer (x), so the peak transmission is 1 with ideal faces (½ for unpolarized light).
 
 use super::part::{Part, crystal};
-use super::waveplate::{PlateCut, stack_retardance_at};
+use super::waveplate::{Plate, PlateCut, stack_retardance_at};
 use crate::contract::geometry::Contact;
 use crate::contract::request::{FilterRequest, Layout};
 use crate::contract::result::trace_scenario;
@@ -139,7 +139,13 @@ struct Model<'a> {
 impl Model<'_> {
     /// The crystal's birefringence in waves per millimetre (of 20 °C thickness) at `nm` and `t_c`.
     fn waves_per_mm(&self, nm: f64, t_c: f64) -> Option<f64> {
-        stack_retardance_at(&[(self.req.medium, 1.0, 45.0)], PlateCut::Axis, nm, [0.0, 0.0], t_c).map(|g| g.abs() / TAU)
+        stack_retardance_at(
+            &[Plate::new(self.req.medium, 1.0, 45.0, PlateCut::Axis)],
+            nm,
+            [0.0, 0.0],
+            t_c,
+        )
+        .map(|g| g.abs() / TAU)
     }
 
     /// Transmission at `nm` of the filter whose thinnest plate is `d` mm.

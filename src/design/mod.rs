@@ -318,7 +318,7 @@ fn waveplate_uses(r: &WaveplateRequest) -> Uses {
 fn achromat_uses(r: &AchromatRequest) -> Uses {
     let (w1, w2) = r.wavelengths_nm;
     Uses {
-        media: vec![("first.material", r.a), ("second.material", r.b)],
+        media: vec![("first.material", r.a.medium), ("second.material", r.b.medium)],
         wavelengths: vec![("wavelengths_nm[0]", w1), ("wavelengths_nm[1]", w2)],
         band: Some((r.band(), r.band_nm.is_some())),
         activity: false,
@@ -328,7 +328,7 @@ fn achromat_uses(r: &AchromatRequest) -> Uses {
 
 fn athermal_uses(r: &AthermalRequest) -> Uses {
     Uses {
-        media: vec![("first.material", r.a), ("second.material", r.b)],
+        media: vec![("first.material", r.a.medium), ("second.material", r.b.medium)],
         wavelengths: vec![("wavelength_nm", r.wavelength.nm())],
         band: None,
         activity: false,

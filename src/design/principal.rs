@@ -145,7 +145,8 @@ pub fn plane_orientation(plane: PrincipalPlane, theta_deg: f64) -> Oriented {
 }
 
 /// A biaxial plate's cut as design answers report it, flattened into the answer (left out for a
-/// uniaxial crystal): the waveplate's and the tilt-tuned plate's.
+/// uniaxial crystal): the waveplate's, the tilt-tuned plate's and each biaxial plate's of a
+/// two-crystal pair.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct CutReport {
     /// The principal axis along the plate normal (`x`, `y` or `z`).

@@ -31,21 +31,22 @@
 //! n_slow − n_fast; away from normal incidence (the angular curves) its exact retardance
 //! k0 (q_z,s − q_z,f) L comes from the general mode solver
 //! ([`crate::optics::general_plate`]), and its thickness grows by the expansion along the cut's
-//! axis. The achromatic pair stays uniaxial: its two-wavelength system assumes each plate's
-//! birefringence has one sign over the band, which the catalogue's biaxial crystals do keep, but
-//! its crossed-plate reading of a negative thickness would need a cut per plate, which its
-//! request has no field for.
+//! axis. Every plate carries its own cut ([`Plate`]), so the two-crystal pairs (the achromat
+//! below, [`crate::design::athermal`]) may mix a biaxial plate with a uniaxial one.
 //!
 //! Achromatic pair: plates of two materials A and B with parallel (or crossed, a negative
 //! thickness) axes retard by Γ(λ) = 2π [L_A Δn_A(λ) + L_B Δn_B(λ)] / λ; requiring the target at
 //! two wavelengths is a 2×2 linear system for L_A and L_B. The two-material method is described
 //! by J. M. Beckers, "Achromatic linear retarders", Appl. Opt. 10, 973 (1971) (citation from
-//! memory).
+//! memory). A biaxial plate's Δn is n_slow − n_fast of its own cut (`first.cut`, `second.cut`),
+//! its slow and fast axes chosen at the first wavelength and kept over the band: the system
+//! assumes each plate's birefringence keeps one sign there, which the catalogue's biaxial crystals
+//! do; a negative thickness is that plate crossed, its slow axis at 90°.
 
-use crate::contract::request::{AchromatRequest, Order, TEMPERATURE_RANGE_C, WaveplateRequest};
+use crate::contract::request::{AchromatRequest, Order, PrincipalCut, TEMPERATURE_RANGE_C, WaveplateRequest};
 use crate::contract::resolve::axis_from_degrees;
-use crate::contract::scenario::{Medium, PrincipalIndices};
-use crate::design::part::{ModeGroups, Part, crystal, oriented_crystal};
+use crate::contract::scenario::{Element, Medium, PrincipalIndices};
+use crate::design::part::{ModeGroups, Part, oriented_crystal};
 use crate::design::principal::{BiaxialCut, CutReport, Oriented, biaxial_cut};
 use crate::design::thermal::{PerKelvin, Temperature, growth, growth_along_z, indices_at, per_kelvin, principal_at};
 use crate::error::Error;
@@ -100,6 +101,10 @@ pub struct PlateSpec {
     /// Optic-axis azimuth in the face, degrees (the axis lies in the face: tilt 90°); for a
     /// biaxial plate, the azimuth of its slow in-face principal axis.
     pub axis_azimuth_deg: f64,
+    /// For a biaxial plate of a two-crystal pair, its cut (`cut`, `cut_note`,
+    /// `principal_indices`), as a waveplate reports its one cut; left out otherwise.
+    #[serde(flatten)]
+    pub biaxial: Option<CutReport>,
 }
 
 /// How the plates of a design are oriented.
@@ -124,6 +129,104 @@ impl PlateCut {
             PlateCut::Principal(o) => o.turned(azimuth_deg),
         }
     }
+}
+
+/// A plate of a design, each with its own cut: its crystal, thickness as made at 20 °C, azimuth
+/// (a uniaxial plate's optic axis, a biaxial plate's slow in-face axis) and cut.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Plate {
+    /// The crystal.
+    pub medium: Medium,
+    /// Thickness as made at 20 °C, mm.
+    pub thickness_mm: f64,
+    /// Azimuth in the faces, degrees.
+    pub azimuth_deg: f64,
+    /// How the crystal is cut.
+    pub cut: PlateCut,
+}
+
+impl Plate {
+    /// A plate of `medium` and `cut`, `thickness_mm` thick at azimuth `azimuth_deg`.
+    pub fn new(medium: Medium, thickness_mm: f64, azimuth_deg: f64, cut: PlateCut) -> Plate {
+        Plate {
+            medium,
+            thickness_mm,
+            azimuth_deg,
+            cut,
+        }
+    }
+
+    /// A plate of a signed thickness: a negative one is the plate crossed (azimuth 90°), its slow
+    /// axis across the azimuth-0 plates'.
+    pub fn signed(medium: Medium, thickness_mm: f64, cut: PlateCut) -> Plate {
+        let crossed = thickness_mm < 0.0;
+        Plate::new(medium, thickness_mm.abs(), if crossed { 90.0 } else { 0.0 }, cut)
+    }
+
+    /// Its principal axes.
+    pub fn oriented(&self) -> Oriented {
+        self.cut.at(self.azimuth_deg)
+    }
+
+    /// The plate as a scenario element, after no gap.
+    pub fn element(&self) -> Element {
+        oriented_crystal(self.medium, self.thickness_mm, self.oriented(), 0.0)
+    }
+
+    /// The thickness, signed negative for a plate crossed with `first`.
+    pub fn signed_thickness(&self, first: &Plate) -> f64 {
+        if self.crossed_with(first) {
+            -self.thickness_mm
+        } else {
+            self.thickness_mm
+        }
+    }
+
+    /// Whether the plate's axis is crossed (turned by 90°) with `first`'s.
+    fn crossed_with(&self, first: &Plate) -> bool {
+        ((self.azimuth_deg - first.azimuth_deg).abs() - 90.0).abs() < SAME_ANGLE_DEG
+    }
+
+    /// The plate's exact retardance (radians) at `wl` and tangential wave vector `qt`, working at
+    /// `t_c` °C: its indices at that temperature and its thickness grown by its expansion along z.
+    /// A uniaxial plate's is signed (positive when the optic axis is slow); a biaxial plate's is
+    /// |Γ|, its slow axis lying at its azimuth whichever letter the slower wave has.
+    fn retardance_rad(&self, wl: Wavelength, qt: [f64; 2], t_c: f64) -> Option<f64> {
+        let (medium, az) = (&self.medium, self.azimuth_deg);
+        match self.cut {
+            PlateCut::Axis => {
+                let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
+                    return None;
+                };
+                let l = self.thickness_mm * growth(medium, 90.0, az, t_c);
+                Some(plate_optics(ix, axis_from_degrees(90.0, az).ok()?, l, wl, qt)?.retardance_rad)
+            }
+            PlateCut::Principal(_) => {
+                let o = self.oriented();
+                let crystal = o.crystal(principal_at(medium, wl, t_c).ok()?).ok()?;
+                let l = self.thickness_mm * growth_along_z(medium, &o.axes(), t_c);
+                Some(general_plate_optics(&crystal, l, wl, qt)?.retardance_rad.abs())
+            }
+        }
+    }
+}
+
+/// A plate of a request's crystal: its cut ([`biaxial_cut`] at `wavelength` and `t_c` °C, `None`
+/// for a uniaxial crystal) and the cut it is designed with.
+///
+/// # Errors
+/// As [`biaxial_cut`].
+pub(super) fn cut_of(
+    medium: &Medium,
+    cut: Option<PrincipalCut>,
+    wavelength: Wavelength,
+    t_c: f64,
+) -> Result<(Option<BiaxialCut>, PlateCut), Error> {
+    let biaxial = biaxial_cut(medium, cut, wavelength, t_c)?;
+    let plate = biaxial
+        .as_ref()
+        .map_or(PlateCut::Axis, |b| PlateCut::Principal(b.oriented));
+    Ok((biaxial, plate))
 }
 
 /// A solved waveplate.
@@ -207,18 +310,26 @@ pub struct TemperatureSensitivity {
     pub band_bound: [Bound; 2],
 }
 
-/// The plates (medium, thickness made at 20 °C, axis azimuth) as the answer states them, working
-/// at `t_c` °C.
-pub(super) fn plate_specs(plates: &[(Medium, f64, f64)], cut: PlateCut, t_c: f64) -> Vec<PlateSpec> {
+/// The plates as the answer states them, working at `t_c` °C.
+pub(super) fn plate_specs(plates: &[Plate], t_c: f64) -> Vec<PlateSpec> {
     plates
         .iter()
-        .map(|(md, l, az)| PlateSpec {
-            material: md.key().to_string(),
-            thickness_mm: *l,
-            thickness_at_temperature_mm: l * growth_along_z(md, &cut.at(*az).axes(), t_c),
-            axis_azimuth_deg: *az,
+        .map(|p| PlateSpec {
+            material: p.medium.key().to_string(),
+            thickness_mm: p.thickness_mm,
+            thickness_at_temperature_mm: p.thickness_mm * growth_along_z(&p.medium, &p.oriented().axes(), t_c),
+            axis_azimuth_deg: p.azimuth_deg,
+            biaxial: None,
         })
         .collect()
+}
+
+/// A two-crystal pair's plates with each biaxial plate's cut reported.
+pub(super) fn with_cuts(mut specs: Vec<PlateSpec>, cuts: [Option<&BiaxialCut>; 2]) -> Vec<PlateSpec> {
+    for (spec, cut) in specs.iter_mut().zip(cuts) {
+        spec.biaxial = cut.map(BiaxialCut::report);
+    }
+    specs
 }
 
 fn sign_word(ix: Indices) -> &'static str {
@@ -229,56 +340,30 @@ fn sign_word(ix: Indices) -> &'static str {
 }
 
 /// Retardance (radians) of the plates (thicknesses made at 20 °C) at one wavelength and
-/// tangential wave vector, working at `t_c` °C: each plate's exact retardance with its indices at
-/// that temperature and its thickness grown by its expansion along z, counted negative for plates
-/// whose axis is crossed (azimuth 90°) with the first's.
-pub(super) fn stack_retardance_at(
-    plates: &[(Medium, f64, f64)],
-    cut: PlateCut,
-    nm: f64,
-    qt: [f64; 2],
-    t_c: f64,
-) -> Option<f64> {
+/// tangential wave vector, working at `t_c` °C: each plate's exact retardance
+/// ([`Plate::retardance_rad`], in its own cut), counted negative for plates whose axis is crossed
+/// (turned by 90°) with the first's.
+pub(super) fn stack_retardance_at(plates: &[Plate], nm: f64, qt: [f64; 2], t_c: f64) -> Option<f64> {
     let wl = Wavelength::from_nm(nm).ok()?;
-    let mut total = 0.0;
-    for (medium, l, az) in plates {
-        let retardance = match cut {
-            PlateCut::Axis => {
-                let PrincipalIndices::Uniaxial(ix) = medium.principal_at(wl, t_c).ok()?.0 else {
-                    return None;
-                };
-                let l = l * growth(medium, 90.0, *az, t_c);
-                plate_optics(ix, axis_from_degrees(90.0, *az).ok()?, l, wl, qt)?.retardance_rad
-            }
-            PlateCut::Principal(_) => {
-                // The slow axis at the plate's azimuth: |Γ|, whichever letter the slower wave has.
-                let o = cut.at(*az);
-                let crystal = o.crystal(principal_at(medium, wl, t_c).ok()?).ok()?;
-                let l = l * growth_along_z(medium, &o.axes(), t_c);
-                general_plate_optics(&crystal, l, wl, qt)?.retardance_rad.abs()
-            }
-        };
-        let crossed = ((az - plates[0].2).abs() - 90.0).abs() < SAME_ANGLE_DEG;
-        total += if crossed { -retardance } else { retardance };
-    }
-    Some(total)
+    let first = plates.first()?;
+    plates.iter().try_fold(0.0, |total, p| {
+        let retardance = p.retardance_rad(wl, qt, t_c)?;
+        Some(if p.crossed_with(first) {
+            total - retardance
+        } else {
+            total + retardance
+        })
+    })
 }
 
-fn angular_curves(
-    plates: &[(Medium, f64, f64)],
-    cut: PlateCut,
-    (nm, t_c): (f64, f64),
-    max_deg: f64,
-    err_waves: f64,
-) -> Vec<AngularCurve> {
-    let axis_az = plates.first().map_or(0.0, |p| p.2);
+fn angular_curves(plates: &[Plate], (nm, t_c): (f64, f64), max_deg: f64, err_waves: f64) -> Vec<AngularCurve> {
+    let axis_az = plates.first().map_or(0.0, |p| p.azimuth_deg);
     [0.0, 45.0, 90.0]
         .iter()
         .map(|&plane| {
             let at = |deg: f64| {
                 stack_retardance_at(
                     plates,
-                    cut,
                     nm,
                     tangential(1.0, deg.to_radians(), (axis_az + plane).to_radians()),
                     t_c,
@@ -322,12 +407,11 @@ fn angular_curves(
 /// The retardance's temperature sensitivity and band of `plates` at `nm` about `t_c` °C for an
 /// error of `err_waves` (see the module header); `None` where the plates cannot be evaluated.
 pub(super) fn temperature_sensitivity(
-    plates: &[(Medium, f64, f64)],
-    cut: PlateCut,
+    plates: &[Plate],
     (nm, t_c): (f64, f64),
     err_waves: f64,
 ) -> Option<TemperatureSensitivity> {
-    let at = |t: f64| stack_retardance_at(plates, cut, nm, [0.0, 0.0], t).map(|g| g / TAU);
+    let at = |t: f64| stack_retardance_at(plates, nm, [0.0, 0.0], t).map(|g| g / TAU);
     let g0 = at(t_c)?;
     let slope = per_kelvin(at, t_c)?;
     let inside = |t: f64| at(t).is_some_and(|g| (g - g0).abs() <= err_waves);
@@ -365,10 +449,10 @@ pub(super) fn temperature_sensitivity(
 /// birefringence.
 pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let t_c = req.temperature_c;
-    let biaxial = biaxial_cut(&req.medium, req.cut, req.wavelength, t_c)?;
-    let (ix, cut) = match &biaxial {
-        Some(b) => (b.indices, PlateCut::Principal(b.oriented)),
-        None => (indices_at(&req.medium, req.wavelength, t_c)?, PlateCut::Axis),
+    let (biaxial, cut) = cut_of(&req.medium, req.cut, req.wavelength, t_c)?;
+    let ix = match &biaxial {
+        Some(b) => b.indices,
+        None => indices_at(&req.medium, req.wavelength, t_c)?,
     };
     let dn = ix.ne - ix.no;
     if dn.abs() < NO_BIREFRINGENCE {
@@ -378,17 +462,18 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let lam_mm = req.wavelength.mm() / growth_along_z(&req.medium, &cut.at(0.0).axes(), t_c);
     let zero = req.retardance_waves * lam_mm / dn.abs();
     let m = &req.medium;
-    let (order, order_number, plates): (&str, u32, Vec<(Medium, f64, f64)>) = match req.order {
-        Order::Zero => ("zero", 0, vec![(*m, zero, 0.0)]),
+    let plate = |l: f64, az: f64| Plate::new(*m, l, az, cut);
+    let (order, order_number, plates): (&str, u32, Vec<Plate>) = match req.order {
+        Order::Zero => ("zero", 0, vec![plate(zero, 0.0)]),
         Order::Multiple(k) => (
             "multiple",
             k,
-            vec![(*m, (k as f64 + req.retardance_waves) * lam_mm / dn.abs(), 0.0)],
+            vec![plate((k as f64 + req.retardance_waves) * lam_mm / dn.abs(), 0.0)],
         ),
-        Order::Compound { base_mm } => ("compound", 0, vec![(*m, base_mm + zero, 0.0), (*m, base_mm, 90.0)]),
+        Order::Compound { base_mm } => ("compound", 0, vec![plate(base_mm + zero, 0.0), plate(base_mm, 90.0)]),
     };
     let nm = req.wavelength.nm();
-    let g = stack_retardance_at(&plates, cut, nm, [0.0, 0.0], t_c)
+    let g = stack_retardance_at(&plates, nm, [0.0, 0.0], t_c)
         .ok_or_else(|| Error::new("retardance_waves", "the plate model cannot be evaluated"))?
         / TAU;
     let (lo, hi) = req.band();
@@ -396,16 +481,10 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
     let wavelength_curve = (0..=n)
         .filter_map(|i| {
             let w = lo + (hi - lo) * i as f64 / n as f64;
-            stack_retardance_at(&plates, cut, w, [0.0, 0.0], t_c).map(|r| [w, r / TAU])
+            stack_retardance_at(&plates, w, [0.0, 0.0], t_c).map(|r| [w, r / TAU])
         })
         .collect();
-    let angular = angular_curves(
-        &plates,
-        cut,
-        (nm, t_c),
-        req.max_incidence_deg,
-        req.acceptance_error_waves,
-    );
+    let angular = angular_curves(&plates, (nm, t_c), req.max_incidence_deg, req.acceptance_error_waves);
     // The worst plane decides; its bound is the answer's (a plane that never left the limit has
     // the curve's end as its acceptance, never below a plane that did leave it).
     let worst = angular
@@ -413,15 +492,9 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         .min_by(|a, b| a.acceptance_deg.total_cmp(&b.acceptance_deg))
         .ok_or_else(|| Error::new("max_incidence_deg", "no angular curve could be computed"))?;
     let (acceptance_deg, acceptance_bound) = (worst.acceptance_deg, worst.acceptance_bound);
-    let temperature = temperature_sensitivity(&plates, cut, (nm, t_c), req.acceptance_error_waves)
+    let temperature = temperature_sensitivity(&plates, (nm, t_c), req.acceptance_error_waves)
         .ok_or_else(|| Error::new("material", "the crystal's temperature data cannot be evaluated"))?;
-    let elements = plates
-        .iter()
-        .map(|(md, l, az)| match cut {
-            PlateCut::Axis => crystal(*md, *l, 90.0, *az, 0.0),
-            PlateCut::Principal(_) => oriented_crystal(*md, *l, cut.at(*az), 0.0),
-        })
-        .collect();
+    let elements = plates.iter().map(Plate::element).collect();
     let scenario = Part::new(req.wavelength, None, elements).at_temperature(t_c);
     let group_delay_ps = scenario.group_delay_ps();
     let modes = scenario.mode_groups();
@@ -434,8 +507,8 @@ pub fn design(req: &WaveplateRequest) -> Result<WaveplateDesign, Error> {
         birefringence: dn,
         order: order.into(),
         order_number,
-        plates: plate_specs(&plates, cut, t_c),
-        effective_thickness_mm: plates.iter().map(|(_, l, az)| if *az == 90.0 { -l } else { *l }).sum(),
+        plates: plate_specs(&plates, t_c),
+        effective_thickness_mm: plates.iter().map(|p| p.signed_thickness(&plates[0])).sum(),
         retardance_waves: g,
         fast_axis: biaxial
             .as_ref()
@@ -507,21 +580,30 @@ fn largest_error(curve: &[[f64; 2]], err: impl Fn(f64) -> Option<f64>, target: f
 pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     let (w1, w2) = req.wavelengths_nm;
     let t_c = req.temperature_c;
-    // Δn(λ, T) per millimetre made at 20 °C.
-    let dn = |m: &Medium, nm: f64| -> Result<f64, Error> {
-        let ix = indices_at(m, Wavelength::from_nm(nm)?, t_c).map_err(|e| match e.field.as_str() {
+    // A formula's failure is the wavelengths' (the request's checks have named which); a cut's
+    // is its plate's.
+    let on_field = |plate: &'static str| {
+        move |e: Error| match e.field.as_str() {
             "temperature_c" => e,
+            "cut" => e.within(plate),
             _ => Error::new("wavelengths_nm", e.message),
-        })?;
-        Ok((ix.ne - ix.no) * growth(m, 90.0, 0.0, t_c))
+        }
     };
-    // Rows: Δn(λ)/λ for each material, in waves per mm.
-    let (l1, l2) = (w1 * 1e-6, w2 * 1e-6);
+    // Each plate's cut, chosen at the first design wavelength (its slow and fast axes stay so).
+    let wl1 = Wavelength::from_nm(w1)?;
+    let (bi_a, cut_a) = cut_of(&req.a.medium, req.a.cut, wl1, t_c).map_err(on_field("first"))?;
+    let (bi_b, cut_b) = cut_of(&req.b.medium, req.b.cut, wl1, t_c).map_err(on_field("second"))?;
+    // Rows: Δn(λ)/λ for each plate, in waves per mm made at 20 °C.
+    let rate = |m: &Medium, cut: &Option<BiaxialCut>, nm: f64, field: &'static str| -> Result<f64, Error> {
+        let dn = birefringence_per_mm(m, cut.as_ref(), Wavelength::from_nm(nm)?, t_c).map_err(on_field(field))?;
+        Ok(dn / (nm * 1e-6))
+    };
+    let (ma, mb) = (&req.a.medium, &req.b.medium);
     let (a11, a12, a21, a22) = (
-        dn(&req.a, w1)? / l1,
-        dn(&req.b, w1)? / l1,
-        dn(&req.a, w2)? / l2,
-        dn(&req.b, w2)? / l2,
+        rate(ma, &bi_a, w1, "first")?,
+        rate(mb, &bi_b, w1, "second")?,
+        rate(ma, &bi_a, w2, "first")?,
+        rate(mb, &bi_b, w2, "second")?,
     );
     let det = a11 * a22 - a12 * a21;
     if det.abs() < SINGULAR_DETERMINANT * (a11 * a22).abs().max((a12 * a21).abs()).max(1e-300) {
@@ -533,31 +615,12 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
     let f = req.retardance_waves;
     let la = (f * a22 - a12 * f) / det;
     let lb = (a11 * f - a21 * f) / det;
-    // A negative thickness is a plate with its axis crossed (rotated by 90°).
-    let plates: Vec<(Medium, f64, f64)> = vec![
-        (req.a, la.abs(), if la < 0.0 { 90.0 } else { 0.0 }),
-        (req.b, lb.abs(), if lb < 0.0 { 90.0 } else { 0.0 }),
-    ];
-    // Each plate's retardance at `t` °C, negative for a crossed plate (axis at 90°).
-    let signed = |m: &Medium, l: f64, az: f64, nm: f64, t: f64| -> Option<f64> {
-        let wl = Wavelength::from_nm(nm).ok()?;
-        let ix = indices_at(m, wl, t).ok()?;
-        let l = l * growth(m, 90.0, 0.0, t);
-        let p = plate_optics(ix, axis_from_degrees(90.0, 0.0).ok()?, l, wl, [0.0, 0.0])?;
-        Some(
-            if az == 90.0 {
-                -p.retardance_rad
-            } else {
-                p.retardance_rad
-            } / TAU,
-        )
-    };
-    let total_at = |nm: f64, t: f64| -> Option<f64> {
-        plates
-            .iter()
-            .map(|(m, l, az)| signed(m, *l, *az, nm, t))
-            .sum::<Option<f64>>()
-    };
+    // A negative thickness is a plate crossed (its slow axis, or optic axis, turned by 90°).
+    let plates = [Plate::signed(*ma, la, cut_a), Plate::signed(*mb, lb, cut_b)];
+    // The pair's retardance at `t` °C, counted along azimuth 0 (the first plate may be the
+    // crossed one).
+    let along_x = if plates[0].azimuth_deg == 0.0 { 1.0 } else { -1.0 };
+    let total_at = |nm: f64, t: f64| stack_retardance_at(&plates, nm, [0.0, 0.0], t).map(|g| along_x * g / TAU);
     let total = |nm: f64| total_at(nm, t_c);
     let g1 = total(w1).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
     let g2 = total(w2).ok_or_else(|| Error::new("wavelengths_nm", "cannot evaluate the pair"))?;
@@ -577,17 +640,38 @@ pub fn achromat(req: &AchromatRequest) -> Result<AchromatDesign, Error> {
             ("retardance_second_wavelength_waves", Box::new(|t| total_at(w2, t))),
         ],
     );
-    let elements = plates
-        .iter()
-        .map(|(md, l, az)| crystal(*md, *l, 90.0, *az, 0.0))
-        .collect();
     Ok(AchromatDesign {
-        plates: plate_specs(&plates, PlateCut::Axis, t_c),
+        plates: with_cuts(plate_specs(&plates, t_c), [bi_a.as_ref(), bi_b.as_ref()]),
         at_design_wavelengths: [[w1, g1], [w2, g2]],
         wavelength_curve: curve,
         max_error_waves,
         temperature,
-        scenario: Part::new(Wavelength::from_nm(w1)?, None, elements).at_temperature(t_c),
+        scenario: Part::new(wl1, None, plates.iter().map(Plate::element).collect()).at_temperature(t_c),
+    })
+}
+
+/// A plate's birefringence at `wl` and `t_c` °C per millimetre made at 20 °C, Δn (1 + α_z ΔT): a
+/// uniaxial plate's n_e − n_o (its optic axis in the faces), a biaxial plate's n_slow − n_fast
+/// with the slow and fast axes of its cut.
+///
+/// # Errors
+/// As [`principal_at`].
+pub(super) fn birefringence_per_mm(
+    medium: &Medium,
+    cut: Option<&BiaxialCut>,
+    wl: Wavelength,
+    t_c: f64,
+) -> Result<f64, Error> {
+    Ok(match cut {
+        None => {
+            let ix = indices_at(medium, wl, t_c)?;
+            (ix.ne - ix.no) * growth(medium, 90.0, 0.0, t_c)
+        }
+        Some(b) => {
+            let n = principal_at(medium, wl, t_c)?;
+            let (slow, fast) = b.slow_fast;
+            (n[slow] - n[fast]) * growth_along_z(medium, &b.oriented.axes(), t_c)
+        }
     })
 }
 

@@ -5,7 +5,20 @@ pub mod berreman;
 pub mod convergent;
 
 use doublespar::Scenario;
-use doublespar::{ElementReport, TraceResult, trace_scenario as trace};
+use doublespar::{ElementReport, TraceResult, solve_design_str, trace_scenario as trace};
+use serde_json::Value;
+
+/// A design request's answer, panicking with the request and the error on failure.
+pub fn design(doc: &str) -> Value {
+    solve_design_str(doc).unwrap_or_else(|e| panic!("{doc}: {e}"))
+}
+
+/// The number at JSON pointer `path` of `v`, panicking with both when there is none.
+pub fn num(v: &Value, path: &str) -> f64 {
+    v.pointer(path)
+        .and_then(Value::as_f64)
+        .unwrap_or_else(|| panic!("{path} in {v}"))
+}
 
 /// Parses and traces a scenario document, panicking with the error on failure.
 pub fn run(doc: &str) -> TraceResult {

@@ -6,7 +6,8 @@
 // tests/cli/design/golden/*.json (written by `doublespar design`, native build). "Use this part"
 // loads the part into the set-up, where the page's own trace gives the design's retardance or
 // separation; bad values put the core's message beside their field and keep every entry; the
-// kinds whose solver stays uniaxial do not offer the biaxial crystals.
+// kinds whose solver stays uniaxial do not offer the biaxial crystals, and a two-crystal pair's
+// biaxial plate shows and sends its own cut.
 //
 // Run: `cd tests/e2e && node --test design-biaxial.test.mjs` (after scripts/build-web.sh).
 
@@ -150,6 +151,30 @@ test('the kinds that stay uniaxial do not offer the biaxial crystals', { timeout
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `the tilt tuning offers ${k}`);
     await page.selectOption(field('kind'), 'prism-polarizer');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok(!(await shown()).includes(k), `the polarizer hides ${k}`);
+  });
+});
+
+test('a pair\'s biaxial plate shows and sends its own cut', { timeout: 120000 }, async () => {
+  await withPage(async (page) => {
+    const shown = async (prefix) => page.$$eval(`${field(`${prefix}material`)} option`, (os) => os.filter((o) => !o.hidden).map((o) => o.value));
+    for (const kind of ['achromat', 'athermal-waveplate']) {
+      await page.selectOption(field('kind'), kind);
+      for (const prefix of ['first.', 'second.']) {
+        for (const k of ['ktp', 'lbo', 'bibo']) assert.ok((await shown(prefix)).includes(k), `${kind}: the ${prefix} plate offers ${k}`);
+      }
+      assert.equal(await page.locator(field('first.cut')).isVisible(), false, `${kind}: quartz has no cut`);
+    }
+    // An athermal KTP + quartz pair: the first plate's cut shows, is sent, and the answer's
+    // order card names it.
+    await fill(page, 'athermal-waveplate', [['first.material', 'ktp'], ['first.cut', 'x'], ['second.material', 'quartz'], ['wavelength_nm', 1064]]);
+    assert.ok(await page.locator(field('first.cut')).isVisible(), 'a biaxial plate shows its cut');
+    assert.equal(await page.locator(field('second.cut')).isVisible(), false, 'the quartz plate has none');
+    const said = await page.evaluate(() => window.doublespar.designRequest());
+    assert.deepEqual(said.first, { material: 'ktp', cut: 'x' }, JSON.stringify(said));
+    assert.deepEqual(said.second, { material: 'quartz' }, JSON.stringify(said));
+    await solveDesign(page);
+    const headline = await page.textContent('.design-headline');
+    assert.ok(headline.includes('x-cut, slow axis'), headline);
   });
 });
 

@@ -211,7 +211,7 @@ const WAVEPLATE: [Flag; 16] = [
     DESIGN_TEMPERATURE,
 ];
 
-const ACHROMAT: [Flag; 10] = [
+const ACHROMAT: [Flag; 12] = [
     flag("first-material", "first.material", T, "first plate's catalogue key"),
     flag(
         "first-no",
@@ -225,6 +225,12 @@ const ACHROMAT: [Flag; 10] = [
         N,
         "first plate's extraordinary index, instead of a material",
     ),
+    flag(
+        "first-cut",
+        "first.cut",
+        T,
+        "first plate (biaxial): principal axis along its normal, x, y or z [largest Δn]",
+    ),
     flag("second-material", "second.material", T, "second plate's catalogue key"),
     flag(
         "second-no",
@@ -237,6 +243,12 @@ const ACHROMAT: [Flag; 10] = [
         "second.ne",
         N,
         "second plate's extraordinary index, instead of a material",
+    ),
+    flag(
+        "second-cut",
+        "second.cut",
+        T,
+        "second plate (biaxial): principal axis along its normal, x, y or z [largest Δn]",
     ),
     flag(
         "retardance-waves",
@@ -254,7 +266,7 @@ const ACHROMAT: [Flag; 10] = [
     DESIGN_TEMPERATURE,
 ];
 
-const ATHERMAL: [Flag; 10] = [
+const ATHERMAL: [Flag; 12] = [
     ACHROMAT[0],
     ACHROMAT[1],
     ACHROMAT[2],
@@ -262,6 +274,8 @@ const ATHERMAL: [Flag; 10] = [
     ACHROMAT[4],
     ACHROMAT[5],
     ACHROMAT[6],
+    ACHROMAT[7],
+    ACHROMAT[8],
     flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]"),
     flag(
         "acceptance-error-waves",

@@ -1,19 +1,18 @@
 //! The achromat request: two crystals (`first`, `second`) whose plates together hold a target
 //! retardance at two wavelengths.
 
-use super::{band, temperature_field, two_media};
+use super::{PairPlate, band, temperature_field, two_plates};
 use crate::contract::fields::{Fields, number_list};
-use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
 use crate::precision::SAME_WAVELENGTH_NM;
 
 /// A two-material achromatic request.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AchromatRequest {
-    /// First crystal.
-    pub a: Medium,
-    /// Second crystal.
-    pub b: Medium,
+    /// First plate: its crystal and, for a biaxial crystal, its cut.
+    pub a: PairPlate,
+    /// Second plate.
+    pub b: PairPlate,
     /// Target retardance, waves.
     pub retardance_waves: f64,
     /// The two wavelengths where the target must hold, nm.
@@ -27,12 +26,13 @@ pub struct AchromatRequest {
 
 impl AchromatRequest {
     /// Reads a request object (`"kind": "achromat"` checked by the caller): `first` and `second`
-    /// hold a `material` (or `no`/`ne`) each.
+    /// hold a `material` (or `no`/`ne`, or `nx`/`ny`/`nz`)
+    /// each and, for a biaxial crystal, an optional `cut` (as a waveplate's).
     ///
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<AchromatRequest, Error> {
-        let (a, b) = two_media(f)?;
+        let (a, b) = two_plates(f)?;
         let path = f.path_of("wavelengths_nm");
         let w = f
             .get("wavelengths_nm")
@@ -84,6 +84,14 @@ mod tests {
             (
                 format!(r#"{{"first": {{"material": "quartz", "tilt": 1}}, "second": {{"material": "mgf2"}}, {pair}}}"#),
                 "first.tilt",
+            ),
+            (
+                format!(r#"{{"first": {{"material": "quartz"}}, "second": {{"no": 1.5, "ne": 1.6, "cut": "z"}}, {pair}}}"#),
+                "second.cut",
+            ),
+            (
+                format!(r#"{{"first": {{"material": "lbo", "cut": 2}}, "second": {{"material": "mgf2"}}, {pair}}}"#),
+                "first.cut",
             ),
             (
                 r#"{"first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0.25, "wavelengths_nm": [700, 700]}"#.to_string(),

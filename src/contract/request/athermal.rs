@@ -1,20 +1,19 @@
 //! The athermal waveplate request: two crystals (`first`, `second`) whose plates together give a
 //! target retardance at one wavelength with no first-order change with temperature.
 
-use super::{temperature_field, two_media, wavelength_field};
+use super::{PairPlate, temperature_field, two_plates, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::contract::request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES;
-use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
 use crate::optics::wavelength::Wavelength;
 
 /// An athermal waveplate request.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AthermalRequest {
-    /// First crystal.
-    pub a: Medium,
-    /// Second crystal.
-    pub b: Medium,
+    /// First plate: its crystal and, for a biaxial crystal, its cut.
+    pub a: PairPlate,
+    /// Second plate.
+    pub b: PairPlate,
     /// Target retardance, waves.
     pub retardance_waves: f64,
     /// Design wavelength.
@@ -28,12 +27,13 @@ pub struct AthermalRequest {
 
 impl AthermalRequest {
     /// Reads a request object (`"kind": "athermal-waveplate"` checked by the caller): `first` and
-    /// `second` hold a `material` (or `no`/`ne`) each.
+    /// `second` hold a `material` (or `no`/`ne`, or `nx`/`ny`/`nz`) each and, for a biaxial crystal,
+    /// an optional `cut` (as a waveplate's).
     ///
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<AthermalRequest, Error> {
-        let (a, b) = two_media(f)?;
+        let (a, b) = two_plates(f)?;
         Ok(AthermalRequest {
             a,
             b,
@@ -60,8 +60,17 @@ mod tests {
         for (doc, field) in [
             (r#"{"second": {"material": "mgf2"}, "retardance_waves": 0.25}"#, "first"),
             (
-                r#"{"first": {"material": "quartz"}, "second": {"material": "ktp"}, "retardance_waves": 0.25}"#,
+                r#"{"first": {"material": "quartz"}, "second": {"material": "glass"}, "retardance_waves": 0.25}"#,
                 "second.material",
+            ),
+            // A cut is a biaxial plate's: refused for quartz, and only x, y or z.
+            (
+                r#"{"first": {"material": "quartz", "cut": "x"}, "second": {"material": "ktp"}, "retardance_waves": 0.25}"#,
+                "first.cut",
+            ),
+            (
+                r#"{"first": {"material": "quartz"}, "second": {"material": "ktp", "cut": "w"}, "retardance_waves": 0.25}"#,
+                "second.cut",
             ),
             (
                 r#"{"first": {"material": "quartz"}, "second": {"material": "mgf2"}, "retardance_waves": 0}"#,

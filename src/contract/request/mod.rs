@@ -168,23 +168,36 @@ fn parse_crystal(f: &mut Fields, biaxial: bool) -> Result<Medium, Error> {
 }
 
 /// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
-/// The crystals `first` and `second` of a two-plate request, each an object holding a
-/// `material` (or `no`/`ne`).
+/// One plate of a two-plate request (`first` or `second`): its crystal and, for a biaxial
+/// crystal, its cut, read as a waveplate's `material` and `cut`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairPlate {
+    /// The crystal (uniaxial, or biaxial cut along a principal axis).
+    pub medium: Medium,
+    /// For a biaxial crystal, the principal axis along the plate normal (`cut`); `None` for a
+    /// uniaxial crystal, or to take the cut of largest birefringence.
+    pub cut: Option<PrincipalCut>,
+}
+
+/// The plates `first` and `second` of a two-plate request, each an object holding a `material`
+/// (or `no`/`ne`, or `nx`/`ny`/`nz`) and, for a biaxial crystal, an optional `cut`.
 ///
 /// # Errors
-/// `first` or `second` when missing; the path of the first offending field inside them.
-fn two_media(f: &mut Fields) -> Result<(Medium, Medium), Error> {
-    let mut medium = |name: &'static str| -> Result<Medium, Error> {
+/// `first` or `second` when missing; the path of the first offending field inside them
+/// (`first.cut` for a cut given to a uniaxial crystal).
+fn two_plates(f: &mut Fields) -> Result<(PairPlate, PairPlate), Error> {
+    let mut plate = |name: &'static str| -> Result<PairPlate, Error> {
         let path = f.path_of(name);
         let v = f
             .get(name)
             .ok_or_else(|| Error::new(&path, "is required: {\"material\": …}"))?;
         let mut g = Fields::new(&path, v)?;
-        let m = parse_medium(&mut g)?;
+        let medium = parse_any_crystal(&mut g)?;
+        let cut = principal::read_cut(&mut g, &medium)?;
         g.finish()?;
-        Ok(m)
+        Ok(PairPlate { medium, cut })
     };
-    Ok((medium("first")?, medium("second")?))
+    Ok((plate("first")?, plate("second")?))
 }
 
 fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, hi: f64) -> Result<f64, Error> {
