@@ -358,13 +358,13 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 30] = [
+const FLAG_CASES: [FlagCase; 32] = [
     FlagCase {
-        flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35",
+        flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35 --wavelength-in air",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
                  "separation_mm": 1.5, "beam_diameter_mm": 0.5, "cut_tilt_deg": 40, "aperture_factor": 3,
                  "tolerances": {"tilt_deg": 0.2, "incidence_deg": 0.05, "thickness_mm": 0.02, "wavelength_nm": 1},
-                 "samples": 3000, "seed": 7, "bins": 20, "temperature_c": 35}"#,
+                 "samples": 3000, "seed": 7, "bins": 20, "temperature_c": 35, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "displacer --no=1.6 --ne=1.5 --separation-mm=1 --samples=0",
@@ -375,10 +375,10 @@ const FLAG_CASES: [FlagCase; 30] = [
         json: r#"{"kind": "displacer", "nx": 1.6, "ny": 1.65, "nz": 1.8, "plane": "yz", "separation_mm": 1, "samples": 0}"#,
     },
     FlagCase {
-        flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02 --temperature-c -10",
+        flags: "waveplate --material QUARTZ --wavelength-nm 1064 --retardance-waves 0.25 --order multiple --order-number 3 --band-nm 1000,1100 --max-incidence-deg 5 --acceptance-error-waves 0.02 --temperature-c -10 --wavelength-in air",
         json: r#"{"kind": "waveplate", "material": "QUARTZ", "wavelength_nm": 1064, "retardance_waves": 0.25,
                  "order": "multiple", "order_number": 3, "band_nm": [1000, 1100], "max_incidence_deg": 5,
-                 "acceptance_error_waves": 0.02, "temperature_c": -10}"#,
+                 "acceptance_error_waves": 0.02, "temperature_c": -10, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "waveplate --no 1.5 --ne 1.51 --retardance-waves 0.5 --order compound --base-mm 0.5",
@@ -389,9 +389,9 @@ const FLAG_CASES: [FlagCase; 30] = [
         json: r#"{"kind": "waveplate", "nx": 1.5, "ny": 1.52, "nz": 1.6, "cut": "z", "retardance_waves": 0.25}"#,
     },
     FlagCase {
-        flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40",
+        flags: "athermal-waveplate --first-material quartz --second-material mgf2 --retardance-waves 0.5 --wavelength-nm 1064 --acceptance-error-waves 0.001 --temperature-c 40 --wavelength-in air",
         json: r#"{"kind": "athermal-waveplate", "first": {"material": "quartz"}, "second": {"material": "mgf2"},
-                 "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001, "temperature_c": 40}"#,
+                 "retardance_waves": 0.5, "wavelength_nm": 1064, "acceptance_error_waves": 0.001, "temperature_c": 40, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-material ktp --first-cut x --second-material lbo --second-cut y --retardance-waves 0.25 --wavelength-nm 1064",
@@ -410,27 +410,27 @@ const FLAG_CASES: [FlagCase; 30] = [
                  "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
     },
     FlagCase {
-        flags: "birefringent-filter --material quartz --layout stage-doubling --stages 3 --wavelength-nm 656.3 --bandwidth-nm 1 --band-nm 640,670 --temperature-c 30",
+        flags: "birefringent-filter --material quartz --layout stage-doubling --stages 3 --wavelength-nm 656.3 --bandwidth-nm 1 --band-nm 640,670 --temperature-c 30 --wavelength-in air",
         json: r#"{"kind": "birefringent-filter", "material": "quartz", "layout": "stage-doubling", "stages": 3,
-                 "wavelength_nm": 656.3, "bandwidth_nm": 1, "band_nm": [640, 670], "temperature_c": 30}"#,
+                 "wavelength_nm": 656.3, "bandwidth_nm": 1, "band_nm": [640, 670], "temperature_c": 30, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "birefringent-filter --no 1.5 --ne 1.51 --layout folded --stages 4 --bandwidth-nm 5",
         json: r#"{"kind": "birefringent-filter", "no": 1.5, "ne": 1.51, "layout": "folded", "stages": 4, "bandwidth_nm": 5}"#,
     },
     FlagCase {
-        flags: "broadband-retarder --material mgf2 --plates 2 --retardance-waves 0.25 --fast-axis-deg 10 --band-nm 500,700 --max-thickness-mm 0.1 --generations 40 --seed 3 --temperature-c 25",
+        flags: "broadband-retarder --material mgf2 --plates 2 --retardance-waves 0.25 --fast-axis-deg 10 --band-nm 500,700 --max-thickness-mm 0.1 --generations 40 --seed 3 --temperature-c 25 --wavelength-in air",
         json: r#"{"kind": "broadband-retarder", "material": "mgf2", "plates": 2, "retardance_waves": 0.25, "fast_axis_deg": 10,
-                 "band_nm": [500, 700], "max_thickness_mm": 0.1, "generations": 40, "seed": 3, "temperature_c": 25}"#,
+                 "band_nm": [500, 700], "max_thickness_mm": 0.1, "generations": 40, "seed": 3, "temperature_c": 25, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "broadband-retarder --no 1.5 --ne 1.51 --retardance-waves 0.5 --band-nm 500,700 --generations 20",
         json: r#"{"kind": "broadband-retarder", "no": 1.5, "ne": 1.51, "retardance_waves": 0.5, "band_nm": [500, 700], "generations": 20}"#,
     },
     FlagCase {
-        flags: "lc-voltage --thickness-um 5 --lc 5CB --rubbing-azimuth-deg 45 --twist-deg 0 --pretilt-deg 3 --wavelength-nm 633 --retardance-waves 0.3 --retardance-range-waves 0.05,1 --max-voltage-v 15 --temperature-c 27",
+        flags: "lc-voltage --thickness-um 5 --lc 5CB --rubbing-azimuth-deg 45 --twist-deg 0 --pretilt-deg 3 --wavelength-nm 633 --retardance-waves 0.3 --retardance-range-waves 0.05,1 --max-voltage-v 15 --temperature-c 27 --wavelength-in air",
         json: r#"{"kind": "lc-voltage", "thickness_um": 5, "lc": "5CB", "rubbing_azimuth_deg": 45, "twist_deg": 0, "pretilt_deg": 3,
-                 "wavelength_nm": 633, "retardance_waves": 0.3, "retardance_range_waves": [0.05, 1], "max_voltage_v": 15, "temperature_c": 27}"#,
+                 "wavelength_nm": 633, "retardance_waves": 0.3, "retardance_range_waves": [0.05, 1], "max_voltage_v": 15, "temperature_c": 27, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "athermal-waveplate --first-no 1.6 --first-ne 1.5 --second-no 1.4 --second-ne 1.41 --retardance-waves 0.25",
@@ -438,9 +438,9 @@ const FLAG_CASES: [FlagCase; 30] = [
                  "retardance_waves": 0.25}"#,
     },
     FlagCase {
-        flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100 --temperature-c 45",
+        flags: "achromat --first-material quartz --second-material MgF2 --retardance-waves 0.5 --wavelengths-nm 600,1000 --band-nm 500,1100 --temperature-c 45 --wavelength-in air",
         json: r#"{"kind": "achromat", "first": {"material": "quartz"}, "second": {"material": "MgF2"},
-                 "retardance_waves": 0.5, "wavelengths_nm": [600, 1000], "band_nm": [500, 1100], "temperature_c": 45}"#,
+                 "retardance_waves": 0.5, "wavelengths_nm": [600, 1000], "band_nm": [500, 1100], "temperature_c": 45, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "achromat --first-no 1.6 --first-ne 1.5 --second-material mgf2 --retardance-waves 0.25 --wavelengths-nm 500,900",
@@ -460,37 +460,37 @@ const FLAG_CASES: [FlagCase; 30] = [
                  "retardance_waves": 0.25, "wavelengths_nm": [500, 900]}"#,
     },
     FlagCase {
-        flags: "recombiner --material YVO4 --wavelength-nm 1064 --length-mm 8 --cut-tilt-deg 45 --beam-diameter-mm 0.5 --middle rotator --rotator-deg 90 --length-mismatch-mm 0.01 --tilt-mismatch-deg 0.001 --temperature-c 60",
+        flags: "recombiner --material YVO4 --wavelength-nm 1064 --length-mm 8 --cut-tilt-deg 45 --beam-diameter-mm 0.5 --middle rotator --rotator-deg 90 --length-mismatch-mm 0.01 --tilt-mismatch-deg 0.001 --temperature-c 60 --wavelength-in air",
         json: r#"{"kind": "recombiner", "material": "YVO4", "wavelength_nm": 1064, "length_mm": 8, "cut_tilt_deg": 45,
                  "beam_diameter_mm": 0.5, "middle": "rotator", "rotator_deg": 90, "length_mismatch_mm": 0.01,
-                 "tilt_mismatch_deg": 0.001, "temperature_c": 60}"#,
+                 "tilt_mismatch_deg": 0.001, "temperature_c": 60, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "recombiner --no 1.6 --ne 1.5 --length-mm 5 --middle half-wave",
         json: r#"{"kind": "recombiner", "no": 1.6, "ne": 1.5, "length_mm": 5, "middle": "half-wave"}"#,
     },
     FlagCase {
-        flags: "angular-splitter --material calcite --wavelength-nm 633 --band-nm 500,800 --split-angle-deg 8 --aperture-mm 12 --cement-index 1.5 --tol-wedge-deg 0.1 --tol-axis-deg 1 --tol-incidence-deg 0.2 --samples 50 --seed 4 --temperature-c 0",
+        flags: "angular-splitter --material calcite --wavelength-nm 633 --band-nm 500,800 --split-angle-deg 8 --aperture-mm 12 --cement-index 1.5 --tol-wedge-deg 0.1 --tol-axis-deg 1 --tol-incidence-deg 0.2 --samples 50 --seed 4 --temperature-c 0 --wavelength-in air",
         json: r#"{"kind": "angular-splitter", "material": "calcite", "wavelength_nm": 633, "band_nm": [500, 800],
                  "split_angle_deg": 8, "aperture_mm": 12, "cement_index": 1.5,
-                 "tolerances": {"wedge_deg": 0.1, "axis_deg": 1, "incidence_deg": 0.2}, "samples": 50, "seed": 4, "temperature_c": 0}"#,
+                 "tolerances": {"wedge_deg": 0.1, "axis_deg": 1, "incidence_deg": 0.2}, "samples": 50, "seed": 4, "temperature_c": 0, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "angular-splitter --no 1.6 --ne 1.5 --split-angle-deg 3 --samples 0",
         json: r#"{"kind": "angular-splitter", "no": 1.6, "ne": 1.5, "split_angle_deg": 3, "samples": 0}"#,
     },
     FlagCase {
-        flags: "prism-polarizer --material calcite --wavelength-nm 1064 --cement-index 1.45 --aperture-mm 12 --temperature-c 80",
-        json: r#"{"kind": "prism-polarizer", "material": "calcite", "wavelength_nm": 1064, "cement_index": 1.45, "aperture_mm": 12, "temperature_c": 80}"#,
+        flags: "prism-polarizer --material calcite --wavelength-nm 1064 --cement-index 1.45 --aperture-mm 12 --temperature-c 80 --wavelength-in air",
+        json: r#"{"kind": "prism-polarizer", "material": "calcite", "wavelength_nm": 1064, "cement_index": 1.45, "aperture_mm": 12, "temperature_c": 80, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "prism-polarizer --no 1.7 --ne 1.5",
         json: r#"{"kind": "prism-polarizer", "no": 1.7, "ne": 1.5}"#,
     },
     FlagCase {
-        flags: "tilt-tuning --material quartz --wavelength-nm 633 --retardance-waves 0.25 --order-number 3 --made-for-nm 650 --axis-azimuth-deg 0 --tilt-azimuth-deg 0 --max-tilt-deg 45 --temperature-c 30",
+        flags: "tilt-tuning --material quartz --wavelength-nm 633 --retardance-waves 0.25 --order-number 3 --made-for-nm 650 --axis-azimuth-deg 0 --tilt-azimuth-deg 0 --max-tilt-deg 45 --temperature-c 30 --wavelength-in air",
         json: r#"{"kind": "tilt-tuning", "material": "quartz", "wavelength_nm": 633, "retardance_waves": 0.25, "order_number": 3,
-                 "made_for_nm": 650, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 0, "max_tilt_deg": 45, "temperature_c": 30}"#,
+                 "made_for_nm": 650, "axis_azimuth_deg": 0, "tilt_azimuth_deg": 0, "max_tilt_deg": 45, "temperature_c": 30, "wavelength_in": "air"}"#,
     },
     FlagCase {
         flags: "tilt-tuning --no 1.54 --ne 1.55 --thickness-mm 0.5 --retardance-waves 0.25 --tilt-azimuth-deg 90",
@@ -502,9 +502,18 @@ const FLAG_CASES: [FlagCase; 30] = [
                  "tilt_azimuth_deg": 90}"#,
     },
     FlagCase {
-        flags: "quartz-rotator --rotation-deg -45 --wavelength-nm 1064 --band-nm 1000,1100 --handedness left --min-thickness-mm 2 --rotation-tolerance-deg 0.2 --ellipticity-tolerance-deg 1 --max-incidence-deg 5 --temperature-c 50",
+        flags: "quartz-rotator --rotation-deg -45 --wavelength-nm 1064 --band-nm 1000,1100 --handedness left --min-thickness-mm 2 --rotation-tolerance-deg 0.2 --ellipticity-tolerance-deg 1 --max-incidence-deg 5 --temperature-c 50 --wavelength-in air",
         json: r#"{"kind": "quartz-rotator", "rotation_deg": -45, "wavelength_nm": 1064, "band_nm": [1000, 1100], "handedness": "left",
-                 "min_thickness_mm": 2, "rotation_tolerance_deg": 0.2, "ellipticity_tolerance_deg": 1, "max_incidence_deg": 5, "temperature_c": 50}"#,
+                 "min_thickness_mm": 2, "rotation_tolerance_deg": 0.2, "ellipticity_tolerance_deg": 1, "max_incidence_deg": 5, "temperature_c": 50, "wavelength_in": "air"}"#,
+    },
+    FlagCase {
+        flags: "prism-polarizer --no 1.7 --ne 1.5 --wavelength-nm 532 --wavelength-in vacuum",
+        json: r#"{"kind": "prism-polarizer", "no": 1.7, "ne": 1.5, "wavelength_nm": 532, "wavelength_in": "vacuum"}"#,
+    },
+    FlagCase {
+        // A basis neither vacuum nor air: the same error on `wavelength_in` from both forms.
+        flags: "waveplate --material quartz --retardance-waves 0.25 --wavelength-in sea-level",
+        json: r#"{"kind": "waveplate", "material": "quartz", "retardance_waves": 0.25, "wavelength_in": "sea-level"}"#,
     },
 ];
 
@@ -587,7 +596,7 @@ fn design_flags_give_byte_identical_answers_to_the_json_request() {
 
 #[test]
 fn a_bad_flag_value_names_the_flag_and_the_request_field() {
-    let cases: [(&[&str], &str, &str); 5] = [
+    let cases: [(&[&str], &str, &str); 6] = [
         (
             &["displacer", "--material", "calcite", "--separation-mm", "abc"],
             "separation_mm",
@@ -630,6 +639,11 @@ fn a_bad_flag_value_names_the_flag_and_the_request_field() {
             ],
             "wavelengths_nm",
             "--wavelengths-nm",
+        ),
+        (
+            &["prism-polarizer", "--material", "calcite", "--wavelength-in", "argon"],
+            "wavelength_in",
+            "--wavelength-in",
         ),
     ];
     for (args, field, flag) in cases {

@@ -79,6 +79,14 @@ const PRINCIPAL_HELP: [Flag; 3] = [
 
 const DESIGN_WAVELENGTH: Flag = flag("wavelength-nm", "wavelength_nm", N, "design wavelength, nm [632.8]");
 
+/// The basis of every wavelength the request gives (DEVELOPERS.md, "Design requests").
+const WAVELENGTH_IN: Flag = flag(
+    "wavelength-in",
+    "wavelength_in",
+    T,
+    "vacuum or air: the request's wavelengths are in vacuum or in standard air (Ciddor 1996) [vacuum]",
+);
+
 const DESIGN_TEMPERATURE: Flag = flag(
     "temperature-c",
     "temperature_c",
@@ -95,7 +103,7 @@ const TOL_INCIDENCE: Flag = flag(
 
 const SEED: Flag = flag("seed", "seed", N, "Monte Carlo seed, a whole number [1]");
 
-const DISPLACER: [Flag; 21] = [
+const DISPLACER: [Flag; 22] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -156,6 +164,7 @@ const DISPLACER: [Flag; 21] = [
     flag("samples", "samples", N, "Monte Carlo samples, 0 to 1000000 [100000]"),
     SEED,
     flag("bins", "bins", N, "histogram bins [40]"),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
@@ -167,7 +176,7 @@ const CUT: Flag = flag(
     "biaxial crystal: principal axis along the normal, x, y or z [largest birefringence]",
 );
 
-const WAVEPLATE: [Flag; 16] = [
+const WAVEPLATE: [Flag; 17] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -208,10 +217,11 @@ const WAVEPLATE: [Flag; 16] = [
         N,
         "retardance error that ends the acceptance, waves [0.01]",
     ),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const ACHROMAT: [Flag; 12] = [
+const ACHROMAT: [Flag; 13] = [
     flag("first-material", "first.material", T, "first plate's catalogue key"),
     flag(
         "first-no",
@@ -263,10 +273,11 @@ const ACHROMAT: [Flag; 12] = [
         "the two wavelengths made exact, A,B in nm (required)",
     ),
     flag("band-nm", "band_nm", P, "band to plot, SHORTEST,LONGEST in nm"),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const ATHERMAL: [Flag; 12] = [
+const ATHERMAL: [Flag; 13] = [
     ACHROMAT[0],
     ACHROMAT[1],
     ACHROMAT[2],
@@ -283,10 +294,11 @@ const ATHERMAL: [Flag; 12] = [
         N,
         "retardance error that bounds the temperature band, waves [0.01]",
     ),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const LC_VOLTAGE: [Flag; 10] = [
+const LC_VOLTAGE: [Flag; 11] = [
     flag("thickness-um", "thickness_um", N, "cell gap, µm (required)"),
     flag("lc", "lc", T, "nematic, a catalogue key: 5cb (required)"),
     flag(
@@ -311,10 +323,11 @@ const LC_VOLTAGE: [Flag; 10] = [
         "range LOW,HIGH in waves the thinnest cell must span [none]",
     ),
     flag("max-voltage-v", "max_voltage_v", N, "highest RMS drive voltage, V [20]"),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const RECOMBINER: [Flag; 12] = [
+const RECOMBINER: [Flag; 13] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -346,10 +359,11 @@ const RECOMBINER: [Flag; 12] = [
         N,
         "second displacer's cut off by, ° [0]",
     ),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const SPLITTER: [Flag; 14] = [
+const SPLITTER: [Flag; 15] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -388,20 +402,22 @@ const SPLITTER: [Flag; 14] = [
     TOL_INCIDENCE,
     flag("samples", "samples", N, "Monte Carlo samples, 0 to 200000 [2000]"),
     SEED,
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const POLARIZER: [Flag; 7] = [
+const POLARIZER: [Flag; 8] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
     DESIGN_WAVELENGTH,
     flag("cement-index", "cement_index", N, "cement in the gap [air]"),
     flag("aperture-mm", "aperture_mm", N, "clear aperture, mm [10]"),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const TILT: [Flag; 16] = [
+const TILT: [Flag; 17] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -447,10 +463,11 @@ const TILT: [Flag; 16] = [
         "plane of the mount tilt, ° from x [0]",
     ),
     flag("max-tilt-deg", "max_tilt_deg", N, "largest tilt searched, ° [30]"),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const ROTATOR: [Flag; 9] = [
+const ROTATOR: [Flag; 10] = [
     flag(
         "rotation-deg",
         "rotation_deg",
@@ -494,10 +511,11 @@ const ROTATOR: [Flag; 9] = [
         N,
         "largest incidence searched, ° [10]",
     ),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const FILTER: [Flag; 9] = [
+const FILTER: [Flag; 10] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -526,10 +544,11 @@ const FILTER: [Flag; 9] = [
         P,
         "band of the transmission curve, SHORTEST,LONGEST in nm [out to the neighbouring peaks]",
     ),
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
-const BROADBAND: [Flag; 11] = [
+const BROADBAND: [Flag; 12] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
@@ -560,6 +579,7 @@ const BROADBAND: [Flag; 11] = [
         "generations of the search, 10 to 5000 [1000]",
     ),
     SEED,
+    WAVELENGTH_IN,
     DESIGN_TEMPERATURE,
 ];
 
