@@ -28,7 +28,7 @@ import { minus, significant } from './format.js';
 import { Field, FieldErrors, errorSlot, toFieldError } from './field-error.js';
 import { updateOrderSheet } from './export.js';
 import { NEMATICS, materialName } from './state.js';
-import { achromatResults, adviceLists, adviceOf, athermalResults, broadbandResults, displacerResults, filterResults, lcResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
+import { achromatResults, adviceLists, adviceOf, athermalResults, basisLine, broadbandResults, displacerResults, filterResults, lcResults, mcKey, polarizerResults, recombinerResults, rotatorResults, splitterResults, temperatureCard, tiltResults, trimmed, waveplateResults, worstPlane } from './design-results.js';
 import { startCoreWorker } from './core-worker.js';
 
 const DESIGN_KINDS = [
@@ -259,6 +259,13 @@ function buildDesignFields(state) {
     hint: 'The part is designed to work at this temperature; its thicknesses are given as made at 20 °C.',
   });
 
+  // Every kind: the basis of the request's wavelengths, in the set-up's words (written only for air).
+  const basis = addField(state, 'wavelength_in', {
+    label: 'Wavelength measured in', spoken: 'Wavelength of the part measured in', kind: 'select',
+    options: [['vacuum', 'vacuum'], ['air', 'standard air']],
+    hint: 'Air wavelengths are converted to vacuum by the standard-air index (Ciddor 1996).',
+  });
+
   const fieldsBox = document.getElementById('design-fields');
   fieldsBox.replaceChildren(kind.row, h('div', { className: 'fields', id: 'design-kind-fields' }));
   state.design.layout.displacer = [...medium.nodes, plane.row, wl.row, separation.row, beam.row, cut.row, aperture.row, band, tolerances, samples.row, seed.row];
@@ -272,10 +279,12 @@ function buildDesignFields(state) {
   state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
   state.design.layout['birefringent-filter'] = [...medium.nodes, layout.row, stages.row, wl.row, bandwidth.row, band];
   state.design.layout['broadband-retarder'] = [...medium.nodes, alternate.row, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
-  // The temperature beside the wavelength, as in the set-up (after the design wavelengths of a pair).
+  // The wavelength's basis, then the temperature, beside the wavelength as in the set-up (after
+  // the design wavelengths of a pair; a broadband retarder's only wavelengths are its band).
   for (const nodes of Object.values(state.design.layout)) {
     const at = nodes.findIndex((n) => n === wl.row || n === wavelengths);
-    nodes.splice(at < 0 ? nodes.length : at + 1, 0, temperature.row);
+    nodes.splice((at < 0 ? nodes.indexOf(band) : at) + 1, 0, basis.row);
+    nodes.splice(at < 0 ? nodes.length : at + 2, 0, temperature.row);
   }
   // The cell's voltage (src/contract/request/lc.rs). A catalogued nematic's constants move with
   // the temperature through its order parameter (refused at the clearing point, warned away from
@@ -290,7 +299,7 @@ function buildDesignFields(state) {
     addField(state, 'retardance_range_waves[0]', { label: 'From', spoken: 'Retardance range from', unit: 'waves', placeholder: 'none' }).row,
     addField(state, 'retardance_range_waves[1]', { label: 'to', spoken: 'Retardance range to', unit: 'waves', placeholder: 'none' }).row,
   ], { pair: true, hint: 'The thinnest cell of this construction that spans it.' });
-  state.design.layout['lc-voltage'] = [cellThickness.row, nematic.row, rubbing.row, twist.row, pretilt.row, wl.row, temperature.row, retardance.row, maxVolt.row, range];
+  state.design.layout['lc-voltage'] = [cellThickness.row, nematic.row, rubbing.row, twist.row, pretilt.row, wl.row, basis.row, temperature.row, retardance.row, maxVolt.row, range];
 
   const cutHint = 'Optic axis from the face normal; empty: the cut of largest walk-off, where a cut error matters least.';
   const lim = state.design.limits;
@@ -544,6 +553,8 @@ function designRequest(state) {
   // The core's default is 20 °C: a request states another temperature (or text that is none).
   const t = state.design.fields.temperature_c;
   if (!t.blank && t.value !== 20) req.temperature_c = t.value;
+  // Vacuum is the core's default: a request states air alone, as the set-up's document does.
+  if (state.design.fields.wavelength_in.value === 'air') req.wavelength_in = 'air';
   return req;
 }
 
@@ -893,7 +904,7 @@ function renderDesign(state) {
   const name = DESIGN_KINDS.find(([k]) => k === kind)?.[1] ?? kind;
   const head = h('h3', { className: 'design-for', text: `${name.charAt(0).toUpperCase()}${name.slice(1)}${s.complete ? '' : ': nominal design, tolerance run not finished'}` });
   const advice = adviceOf(state, d);
-  results.replaceChildren(...[head, adviceLists(advice), parts[0]].filter(Boolean));
+  results.replaceChildren(...[head, adviceLists(advice), parts[0], basisLine(d)].filter(Boolean));
   cardBox.replaceChildren(...parts.slice(1), temperatureCard(d));
 
   for (const p of state.design.plots) state.design.resize.unobserve(p.box);

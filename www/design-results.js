@@ -158,6 +158,42 @@ export function adviceLists(advice) {
   return warnings || notes || sources ? h('div', { className: 'design-advice', role: 'status' }, warnings, notes, sources) : null;
 }
 
+// --- the wavelength basis --------------------------------------------------------------------
+
+// A request field given in air, as the panel names it (the answer's `air_<name>` beside its
+// vacuum `<name>`; src/contract/request/basis.rs).
+const AIR_WORDS = {
+  wavelength_nm: 'wavelength',
+  band_nm: 'band',
+  wavelengths_nm: 'design wavelengths',
+  made_for_nm: 'made for',
+  bandwidth_nm: 'pass band',
+  'tolerances.wavelength_nm': 'wavelength error',
+};
+
+/**
+ * A design asked in air wavelengths: each value as given beside the vacuum value the design used
+ * (every other wavelength of the results and curves is in vacuum), as the set-up's summary shows
+ * a scenario's vacuum wavelength; null for a design in vacuum.
+ */
+export function basisLine(d) {
+  if (d.wavelength_in !== 'air') return null;
+  const vacuum = (v) => `${significant(v, 7)}${NBSP}nm`;
+  const airNames = (o, prefix) => Object.keys(o ?? {}).filter((k) => k.startsWith('air_') && k !== 'air_index').map((k) => `${prefix}${k}`);
+  const line = h('p', { className: 'design-basis' }, 'In standard air');
+  if (typeof d.air_index === 'number') line.append(' (index ', dq(d, 'air_index', (v) => fixed(v, 7)), ')');
+  line.append(': ');
+  airNames(d, '').concat(airNames(d.tolerances, 'tolerances.')).forEach((path, i) => {
+    const name = path.replace('air_', '');
+    // One value or a pair [a, b], each end shown as given and in vacuum.
+    const ends = Array.isArray(valueAt(d, path)) ? ['.0', '.1'] : [''];
+    const pair = (p, format) => ends.flatMap((e, k) => [k ? '–' : '', dq(d, `${p}${e}`, format)]);
+    line.append(...[i ? '; ' : '', `${AIR_WORDS[name] ?? name.replace(/_nm$/, '').replace(/[._]/g, ' ')} `, ...pair(path, formats.nm), ', in vacuum ', ...pair(name, vacuum)].filter((x) => x !== null));
+  });
+  line.append('. The other wavelengths below are in vacuum.');
+  return line;
+}
+
 // --- results by kind -------------------------------------------------------------------------
 
 /** Rows of each mode's group index (`modes.o.group_index` …), in the trace's order: o, e or f, s. */

@@ -349,6 +349,39 @@ test('a zero-order quartz quarter-wave plate is λ/(4|nₑ − nₒ|) thick; plo
     await page.setViewportSize({ width: 700, height: 900 });
     await page.waitForFunction((w) => document.querySelector('canvas[data-design-plot="retardance-wavelength"]').width !== w, w0, { timeout: 15000 });
     await expectPlots(page, plots, 'waveplate, after a resize');
+
+    // The same plate asked in standard air: the request says so, the answer echoes it with the
+    // vacuum wavelength the command line finds for the same request, and the panel shows both.
+    await choose(page, 'wavelength_in', 'air');
+    await solve(page);
+    const { request, cli } = await expectAgreement(page, [
+      'design.plates.0.thickness_mm', 'design.wavelength_nm', 'design.air_wavelength_nm', 'design.air_index',
+    ], 'quartz quarter-wave in air');
+    assert.equal(request.wavelength_in, 'air', `the request states air: ${JSON.stringify(request)}`);
+    const { design } = await page.evaluate(() => window.doublespar.designShown());
+    assert.equal(design.wavelength_in, 'air', 'the answer echoes the basis');
+    assert.equal(design.air_wavelength_nm, 632.8, 'and the wavelength as given');
+    assert.ok(close(design.wavelength_nm, cli.wavelength_nm, 1e-12), `vacuum wavelength ${design.wavelength_nm}, command line ${cli.wavelength_nm}`);
+    assert.ok(design.wavelength_nm > 632.9 && design.wavelength_nm < 633, `a vacuum wavelength about 0.17 nm longer: ${design.wavelength_nm}`);
+    const basis = await page.textContent('.design-basis');
+    assert.match(basis, /^In standard air \(index 1\.00027\d+\): wavelength 632\.8\u00a0nm, in vacuum 632\.97\d*\u00a0nm\. The other wavelengths below are in vacuum\.$/, `the basis is shown: ${basis}`);
+    // The part loads in air; Undo brings back the set-up it replaced, in vacuum. The panel's own
+    // fields are not steps of the set-up's history (DEVELOPERS.md, "History") and keep air.
+    const setupBasis = '[data-field="wavelength_in"]';
+    await page.click('#design-use');
+    await waitScenario(page, (s) => s.wavelength_in === 'air' && s.wavelength_nm === 632.8, 'the designed part loads in air');
+    assert.equal(await page.inputValue(setupBasis), 'air', 'the set-up\'s control says air');
+    await page.click('#undo');
+    await waitScenario(page, (s) => (s.wavelength_in ?? 'vacuum') === 'vacuum', 'Undo brings back the set-up in vacuum');
+    assert.equal(await page.inputValue(setupBasis), 'vacuum', 'Undo restores the set-up\'s control to vacuum');
+    assert.equal(await page.inputValue(field('wavelength_in')), 'air', 'the design field keeps its value');
+    // The link carries the basis and restores it.
+    const link = await page.evaluate(() => location.hash);
+    assert.equal(JSON.parse(decodeURIComponent(link.split('&design=')[1])).wavelength_in, 'air', `the link's design part: ${link}`);
+    await page.goto(`${env.server.origin}/${link}`);
+    await page.reload();
+    await page.waitForFunction(() => window.doublespar && document.querySelector('[data-design-field="wavelength_in"]')?.value === 'air', null, { timeout: 20000 });
+    assert.equal((await page.evaluate(() => window.doublespar.designRequest())).wavelength_in, 'air', 'the request from the link states air');
   });
 });
 
