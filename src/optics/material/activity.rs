@@ -63,9 +63,10 @@ pub struct OpticalActivity {
     pub gyration_ratio: f64,
     /// The source of the formula and of the ratio.
     pub citation: &'static str,
-    /// c = (1/ρ) dρ/dT about 20 °C, 1/K (see the module header).
-    pub relative_per_k: f64,
-    /// The source of `relative_per_k`.
+    /// A plate's measured rate of rotation with temperature, a_t = a_0 (1 + r t) with t in °C
+    /// from 0 °C, 1/K (see the module header): its own growth along the axis included.
+    pub plate_rate_from_0c: f64,
+    /// The source of `plate_rate_from_0c`.
     pub temperature_source: &'static str,
 }
 
@@ -135,6 +136,15 @@ impl OpticalActivity {
 }
 
 impl OpticalActivity {
+    /// c = (1/ρ) dρ/dT about 20 °C, 1/K: the plate's rate about 20 °C, r/(1 + 20 r), less the
+    /// crystal's expansion along its optic axis ([`super::thermal`]; every active crystal has
+    /// temperature data, tested).
+    pub fn relative_per_k(&self) -> f64 {
+        let r = self.plate_rate_from_0c;
+        let along_axis = super::thermal(self.key).map_or(0.0, |t| t.expansion[2]);
+        r / (1.0 + r * super::REFERENCE_C) - along_axis
+    }
+
     /// As [`OpticalActivity::at`] at `t_c` °C: ρ and g scaled by 1 + c (T − 20 °C), identical to
     /// it at 20 °C.
     ///
@@ -142,7 +152,7 @@ impl OpticalActivity {
     /// As [`OpticalActivity::at`].
     pub fn at_temperature(&self, wavelength: Wavelength, t_c: f64) -> Result<Activity, Error> {
         let mut a = self.at(wavelength)?;
-        let f = 1.0 + self.relative_per_k * (t_c - super::REFERENCE_C);
+        let f = 1.0 + self.relative_per_k() * (t_c - super::REFERENCE_C);
         a.rotatory_power_rad_per_mm *= f;
         a.gyration = a.gyration.map(|g| g * f);
         Ok(a)
@@ -167,9 +177,9 @@ static ACTIVE: [OpticalActivity; 1] = [OpticalActivity {
                lambda0^2)^2, k = 7.186 deg um^2/mm, lambda0 = 0.0926 um, fitted to Lowry and \
                Coode-Adams (1927); room temperature; constants from memory. g11 = 0 (not \
                measured here: taken as zero and stated)",
-    // Wiley's 0.000146 /K from 0 °C is 0.000146/(1 + 0.000146·20) = 1.4557e-4 /K about 20 °C for
-    // the plate, less α∥ = 7.1e-6 /K for its length.
-    relative_per_k: 1.384_75e-4,
+    // Wiley's 0.000146 /K from 0 °C: 1.4557e-4 /K about 20 °C for the plate, of which its own
+    // length takes α∥ = 7.1e-6 /K (`OpticalActivity::relative_per_k`).
+    plate_rate_from_0c: 0.000146,
     temperature_source: "a quartz plate's rotation a_t = a_0 (1 + 0.000146 t), 0-100 °C: H. W. Wiley, \
                          Principles and Practice of Agricultural Analysis, vol. 3 (quartz control plates), less \
                          the plate's expansion along its axis, 7.1e-6 /K: (1/rho) drho/dT = 1.38475e-4 /K, taken \
@@ -179,6 +189,21 @@ static ACTIVE: [OpticalActivity; 1] = [OpticalActivity {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_rotatory_power_s_rate_is_the_plate_s_less_its_growth() {
+        // Every active crystal has temperature data, so its expansion along the axis is known.
+        let a = optical_activity("quartz").expect("quartz is active");
+        let alpha = super::super::thermal("quartz")
+            .expect("quartz has temperature data")
+            .expansion[2];
+        crate::precision::assert_within(
+            a.relative_per_k() + alpha,
+            0.000146 / 1.00292,
+            1e-18,
+            "plate rate at 20 °C",
+        );
+    }
     use crate::optics::anisotropic::Anisotropic;
 
     fn quartz(nm: f64) -> Activity {
