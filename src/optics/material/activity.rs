@@ -137,7 +137,7 @@ impl OpticalActivity {
 
 impl OpticalActivity {
     /// c = (1/ρ) dρ/dT about 20 °C, 1/K: the plate's rate about 20 °C, r/(1 + 20 r), less the
-    /// crystal's expansion along its optic axis ([`super::thermal`]; every active crystal has
+    /// crystal's expansion along its optic axis (the temperature data of `thermal.rs`; every active crystal has
     /// temperature data, tested).
     pub fn relative_per_k(&self) -> f64 {
         let r = self.plate_rate_from_0c;
