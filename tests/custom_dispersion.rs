@@ -230,19 +230,123 @@ fn x_y_z_formulas_label_modes_as_fixed_principal_indices_do() {
 }
 
 #[test]
-fn away_from_20_c_the_formula_holds_with_a_warning() {
+fn away_from_20_c_a_formula_without_temperature_data_holds_with_a_warning() {
     let mut doc = scenario(&json!({"dispersion": catalogue_dispersion("calcite")}), 632.8, 0.0);
     let at_20 = trace(&doc);
     doc["temperature_c"] = json!(80);
     let at_80 = trace(&doc);
     assert_eq!(at_20["elements"][0]["no"], at_80["elements"][0]["no"]);
-    assert_eq!(at_20["elements"][0]["thickness_at_temperature_mm"], json!(3.0));
+    assert_eq!(at_80["elements"][0]["thickness_at_temperature_mm"], json!(3.0));
+    let warnings = at_80["warnings"].to_string();
     assert!(
-        at_80["warnings"].to_string().contains("no thermo-optic data"),
-        "{}",
-        at_80["warnings"]
+        warnings.contains("no thermo-optic data (dn_dt_per_k) for o, e"),
+        "{warnings}"
+    );
+    assert!(
+        warnings.contains("no thermal expansion (expansion_per_k) for o, e"),
+        "{warnings}"
     );
     assert!(!at_20["warnings"].to_string().contains("thermo-optic"));
+}
+
+/// Catalogue calcite's formulas with its temperature data re-entered by hand: dn/dT 3e-6 (o) and
+/// 13e-6 (e) /K, expansion −5.8e-6 /K across the axis and 25e-6 /K along it (the constants of
+/// src/optics/material/thermal.rs).
+fn calcite_with_temperature_data() -> Value {
+    let mut d = catalogue_dispersion("calcite");
+    d["o"]["dn_dt_per_k"] = json!(3e-6);
+    d["e"]["dn_dt_per_k"] = json!(13e-6);
+    d["o"]["expansion_per_k"] = json!(-5.8e-6);
+    d["e"]["expansion_per_k"] = json!(25e-6);
+    d
+}
+
+#[test]
+fn temperature_data_entered_by_hand_give_the_catalogues_trace_at_temperature_bit_for_bit() {
+    // Independent of the custom path: the catalogue's own temperature laws applied to the same
+    // constants (calcite; BiBO, V. Petrov et al., Laser & Photonics Reviews 4, 53 (2010), Table 3,
+    // with the catalogue's expansions). Rays, element reports (indices, group indices, thickness
+    // at temperature, retardance) and spots equal to the last bit at 60 °C and at −10 °C.
+    let bibo = doublespar::find_biaxial("bibo").expect("catalogued");
+    let mut bibo_doc = json!({"range_nm": [bibo.range_nm.0, bibo.range_nm.1]});
+    let bibo_dn = [3.5e-6, -5.6e-6, -6.8e-6];
+    let bibo_alpha = [4.8e-6, 4.4e-6, -26.7e-6];
+    for (i, axis) in ["x", "y", "z"].into_iter().enumerate() {
+        bibo_doc[axis] = formula(&bibo.formulas[i]);
+        bibo_doc[axis]["dn_dt_per_k"] = json!(bibo_dn[i]);
+        bibo_doc[axis]["expansion_per_k"] = json!(bibo_alpha[i]);
+    }
+    for (key, d) in [("calcite", calcite_with_temperature_data()), ("bibo", bibo_doc)] {
+        for (t, nm, polar) in [(60.0, 632.8, 0.0), (-10.0, 1064.0, 12.0), (60.0, 450.0, -25.0)] {
+            let mut custom = scenario(&json!({"dispersion": d}), nm, polar);
+            let mut catalogue = scenario(&json!({"material": key}), nm, polar);
+            custom["temperature_c"] = json!(t);
+            catalogue["temperature_c"] = json!(t);
+            let (a, b) = (without_source(trace(&custom)), without_source(trace(&catalogue)));
+            for part in ["rays", "elements", "spots", "total_power", "rejected"] {
+                assert_eq!(a[part], b[part], "{key} at {t} °C, {nm} nm: {part}");
+            }
+            assert_ne!(a["elements"][0]["thickness_at_temperature_mm"], json!(3.0));
+            // Every axis has its data: no warning of missing ones (the catalogue alone warns at
+            // −10 °C, outside its data's 0-100 °C).
+            assert!(!a["warnings"].to_string().contains("_per_k"), "{}", a["warnings"]);
+        }
+    }
+}
+
+#[test]
+fn an_a_cut_plates_retardance_at_temperature_is_the_closed_form() {
+    // Normal incidence on a plate whose optic axis lies in its faces: Γ = Δn(T) L(T) / λ with
+    // Δn(T) = Δn(20 °C) + (dn_e/dT − dn_o/dT)(T − 20) and L(T) = L (1 + α⊥ (T − 20)), the axis
+    // across the beam (textbook, e.g. A. Yariv and P. Yeh, Optical Waves in Crystals (1984),
+    // §4.1, from memory). Fixed indices stand in for the formula's value at 20 °C.
+    let d = json!({"range_nm": [400, 1000], "o": {"a": 2.4, "dn_dt_per_k": -4e-6, "expansion_per_k": 7e-6},
+                   "e": {"a": 2.2, "dn_dt_per_k": 9e-6, "expansion_per_k": 1.3e-5}});
+    for t in [-40.0, 20.0, 95.0, 300.0] {
+        let doc = json!({"version": 2, "wavelength_nm": 600, "screen_mm": 20, "temperature_c": t,
+            "elements": [{"kind": "crystal", "dispersion": d, "thickness_mm": 2.0,
+                          "axis": {"tilt_deg": 90, "azimuth_deg": 30}}]});
+        let r = trace(&doc);
+        let dt = t - 20.0;
+        let (no, ne) = (2.4_f64.sqrt() - 4e-6 * dt, 2.2_f64.sqrt() + 9e-6 * dt);
+        let l = 2.0 * (1.0 + 7e-6 * dt);
+        let e = &r["elements"][0];
+        assert!((e["no"].as_f64().expect("no") - no).abs() <= 1e-15, "{t} °C: {e}");
+        assert!((e["ne"].as_f64().expect("ne") - ne).abs() <= 1e-15, "{t} °C: {e}");
+        assert!((e["thickness_at_temperature_mm"].as_f64().expect("thickness") - l).abs() <= 1e-15);
+        let want = (ne - no) * l / 600e-6;
+        let got = e["retardance_waves"].as_f64().expect("retardance");
+        assert!((got - want).abs() <= 1e-12 * want.abs(), "{t} °C: {got} against {want}");
+        // A non-dispersive formula with a constant dn/dT: each group index is its phase index.
+        for (mode, n) in [("o", no), ("e", ne)] {
+            let g = e[mode]["group_index"].as_f64().expect("group index");
+            assert!((g - n).abs() <= 1e-9, "{t} °C {mode}: {g} against {n}");
+        }
+        // Every axis has its data and no range is stated: no warning at any temperature.
+        assert!(r["warnings"].as_array().is_none_or(Vec::is_empty), "{}", r["warnings"]);
+    }
+}
+
+#[test]
+fn the_temperature_data_are_echoed_and_missing_ones_named() {
+    let mut d = calcite_with_temperature_data();
+    d["e"].as_object_mut().expect("object").remove("dn_dt_per_k");
+    d["o"].as_object_mut().expect("object").remove("expansion_per_k");
+    let mut doc = scenario(&json!({"dispersion": d}), 632.8, 0.0);
+    doc["temperature_c"] = json!(45);
+    let r = trace(&doc);
+    let echo = &r["elements"][0]["dispersion"];
+    assert_eq!(echo["o"]["dn_dt_per_k"], json!(3e-6));
+    assert_eq!(echo["e"]["expansion_per_k"], json!(25e-6));
+    assert!(echo["e"].get("dn_dt_per_k").is_none() && echo["o"].get("expansion_per_k").is_none());
+    let w = r["warnings"].to_string();
+    assert!(w.contains("(dn_dt_per_k) for e:"), "{w}");
+    assert!(w.contains("(expansion_per_k) for o:"), "{w}");
+    // The echo reads back as the same crystal.
+    let sc = Scenario::from_json(&doc).expect("valid");
+    let again = Scenario::from_json(&sc.to_json()).expect("its own document reads");
+    assert_eq!(trace(&sc.to_json())["elements"], r["elements"]);
+    assert_eq!(again.to_json(), sc.to_json());
 }
 
 #[test]
@@ -308,6 +412,26 @@ fn every_bad_field_is_named() {
         (&["citation"], json!(7), "elements[0].dispersion.citation"),
         (&["citation"], json!("é".repeat(241)), "elements[0].dispersion.citation"),
         (&["colour"], json!("blue"), "elements[0].dispersion.colour"),
+        (
+            &["o", "dn_dt_per_k"],
+            json!(0.01),
+            "elements[0].dispersion.o.dn_dt_per_k",
+        ),
+        (
+            &["e", "dn_dt_per_k"],
+            json!("1e-5"),
+            "elements[0].dispersion.e.dn_dt_per_k",
+        ),
+        (
+            &["e", "expansion_per_k"],
+            json!(1e-3),
+            "elements[0].dispersion.e.expansion_per_k",
+        ),
+        (
+            &["temperature_range_c"],
+            json!([0, 100]),
+            "elements[0].dispersion.temperature_range_c",
+        ),
         (&[], json!([1, 2]), "elements[0].dispersion"),
     ];
     for (at, value, field) in cases {
@@ -405,4 +529,43 @@ fn a_design_request_takes_the_crystals_own_formulas() {
     assert_eq!(e.field, "dispersion");
     let e = doublespar::solve_design(&json!({"kind": "waveplate", "retardance_waves": 0.25, "dispersion": {"range_nm": [400, 1000], "o": {"a": -1}, "e": {"a": 2.2}}})).unwrap_err();
     assert!(e.field.starts_with("dispersion.o"), "{}: {}", e.field, e.message);
+}
+
+#[test]
+fn design_temperature_figures_follow_the_formulas_own_temperature_data() {
+    // A waveplate and an athermal pair whose calcite is given by its formulas and its temperature
+    // data (re-entered by hand) answer as the catalogue's calcite does: the same temperature
+    // slope and band, the same athermal thicknesses and residual curvature.
+    let d = calcite_with_temperature_data();
+    let waveplate = |medium: Value| {
+        let mut req = json!({"kind": "waveplate", "retardance_waves": 0.25, "wavelength_nm": 633,
+                             "order": "multiple", "order_number": 5, "temperature_c": 35});
+        for (k, v) in medium.as_object().expect("object") {
+            req[k] = v.clone();
+        }
+        doublespar::solve_design(&req).expect("designed")
+    };
+    let (a, b) = (
+        waveplate(json!({"dispersion": d})),
+        waveplate(json!({"material": "calcite"})),
+    );
+    assert_eq!(a["temperature"], b["temperature"]);
+    assert_eq!(a["plates"][0]["thickness_mm"], b["plates"][0]["thickness_mm"]);
+    assert!(
+        a["temperature"]["retardance_per_kelvin_waves"]
+            .as_f64()
+            .expect("slope")
+            .abs()
+            > 1e-5
+    );
+    let pair = |first: Value| {
+        doublespar::solve_design(&json!({"kind": "athermal-waveplate", "first": first,
+            "second": {"material": "quartz"}, "retardance_waves": 0.25, "wavelength_nm": 633}))
+        .expect("designed")
+    };
+    let (a, b) = (pair(json!({"dispersion": d})), pair(json!({"material": "calcite"})));
+    for key in ["plates", "curvature_waves_per_k2"] {
+        let strip = |v: &Value| v.to_string().replace("custom dispersion", "calcite");
+        assert_eq!(strip(&a[key]), strip(&b[key]), "{key}");
+    }
 }

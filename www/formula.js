@@ -1,7 +1,8 @@
 // Doublespar page: a stack card's custom dispersion formula (the crystal's `dispersion`), entered
 // compactly: the validity range, the form (uniaxial: o and e; biaxial: principal axes x, y, z)
 // and for each axis of the form the constant A, up to three Sellmeier terms (B, C) and the
-// infrared term D of n² = A + Σ B λ²/(λ² − C) − D λ² (λ in µm, C in µm²). The values stay in the
+// infrared term D of n² = A + Σ B λ²/(λ² − C) − D λ² (λ in µm, C in µm²), with the axis's
+// temperature data (a constant dn/dT and the linear expansion along it, both optional). The values stay in the
 // card while another material or the other form is chosen, so nothing entered is lost; a form
 // chosen for the first time starts from the other's formulas (x and y from o, z from e; back, o
 // from x and e from z), so that it traces at once. A loaded formula the compact entry cannot show
@@ -21,6 +22,8 @@ const NAMES = AXES.map(([axis]) => axis);
 // Where a form chosen with all its fields blank takes its formulas from: axis -> other form's axis.
 const START_FROM = { x: 'o', y: 'o', z: 'e', o: 'x', e: 'z' };
 const TERMS = 3;
+// Each axis's optional temperature data, 1/K: a constant dn/dT and the expansion along the axis.
+const THERMAL = ['dn_dt_per_k', 'expansion_per_k'];
 // A starting formula that traces at once: calcite's published coefficients (G. Ghosh, Opt.
 // Commun. 163, 95 (1999)), as the catalogue holds them.
 const START = {
@@ -52,7 +55,7 @@ function fits(d) {
   return NAMES.every((axis) => {
     const f = d[axis];
     if (f === undefined) return true;
-    if (!isObject(f) || !only(f, ['a', 'sellmeier', 'ir'])) return false;
+    if (!isObject(f) || !only(f, ['a', 'sellmeier', 'ir', ...THERMAL])) return false;
     const s = f.sellmeier ?? [];
     return Array.isArray(s) && s.length <= TERMS && s.every((p) => Array.isArray(p) && p.length === 2);
   });
@@ -82,17 +85,20 @@ export class CardFormula {
         terms.push([num(`${p}.sellmeier[${i}][0]`, `B${i + 1}`, `${axis}: B${i + 1}`), num(`${p}.sellmeier[${i}][1]`, `C${i + 1}`, `${axis}: C${i + 1}`, 'µm²')]);
       }
       const ir = num(`${p}.ir`, 'D', `${axis}: D, infrared term`, 'µm⁻²');
-      this.axes[axis] = { a, terms, ir, fields: [a, ir, ...terms.flat()] };
+      const dnDt = new Field({ key: `${p}.dn_dt_per_k`, label: 'dn/dT', spoken: `${axis}: dn/dT, per kelvin`, unit: '/K', step: 1e-6, placeholder: 'none' });
+      const alpha = new Field({ key: `${p}.expansion_per_k`, label: 'Expansion', spoken: `${axis}: linear expansion along the axis, per kelvin`, unit: '/K', step: 1e-6, placeholder: 'none' });
+      const thermal = { dn_dt_per_k: dnDt, expansion_per_k: alpha };
+      this.axes[axis] = { a, terms, ir, thermal, fields: [a, ir, ...terms.flat(), dnDt, alpha] };
       this.slots[p] = errorSlot(null);
       this.slots[`${p}.sellmeier`] = errorSlot(null);
       this.groups[axis] = h('div', { className: 'subgroup formula-axis' },
         h('p', { className: 'subgroup-title', text: title }),
-        h('div', { className: 'pair-grid' }, a.row, ir.row, ...terms.flat().map((f) => f.row)),
+        h('div', { className: 'pair-grid' }, a.row, ir.row, ...terms.flat().map((f) => f.row), dnDt.row, alpha.row),
         this.slots[`${p}.sellmeier`], this.slots[p]);
     }
     this.fields = [this.lo, this.hi, this.form, ...Object.values(this.axes).flatMap((x) => x.fields)];
     this.entry = h('div', {},
-      h('p', { className: 'hint', text: 'n² = A + Σ B λ²/(λ² − C) − D λ², λ in µm; blank terms are left out.' }),
+      h('p', { className: 'hint', text: 'n² = A + Σ B λ²/(λ² − C) − D λ², λ in µm; blank terms are left out. dn/dT and the expansion along each axis move the crystal away from 20 °C; blank: none.' }),
       h('div', { className: 'pair-grid' }, this.lo.row, this.hi.row), this.slots['dispersion.range_nm'], this.form.row,
       ...Object.values(this.groups));
     this.keptNote = h('p', { className: 'hint', text: 'The formula as loaded (both o, e and x, y, z, poles or more terms than shown here) is kept and sent as it is.' });
@@ -164,6 +170,7 @@ export class CardFormula {
         b.set(pair[0]);
         c.set(pair[1]);
       });
+      for (const k of THERMAL) x.thermal[k].set(f[k] ?? '');
     }
     this.showForm();
   }
@@ -179,6 +186,7 @@ export class CardFormula {
       const used = x.terms.map(([b, c]) => !b.blank || !c.blank).lastIndexOf(true) + 1;
       if (used > 0) f.sellmeier = x.terms.slice(0, used).map(([b, c]) => [b.value, c.value]);
       if (!x.ir.blank) f.ir = x.ir.value;
+      for (const k of THERMAL) if (!x.thermal[k].blank) f[k] = x.thermal[k].value;
       d[axis] = f;
     }
     return { ...d, ...this.extra };

@@ -16,14 +16,25 @@
 //! `fitted_in` ("vacuum" by default, or "air") records what the source's λ was and is echoed, but
 //! no air-to-vacuum correction is applied (see the catalogue's uniaxial module on why). Outside
 //! `range_nm` the formula is extrapolated with the catalogue's warning; where it breaks down
-//! (n² ≤ 0, a pole, n < 1) the error names the axis's field, e.g. `dispersion.e`. A custom formula
-//! carries no thermo-optic data: at any temperature it gives the same indices, with a warning.
+//! (n² ≤ 0, a pole, n < 1) the error names the axis's field, e.g. `dispersion.e`.
 //!
-//! Sources: the form is that of the catalogue's entries (src/optics/material/dispersion.rs);
-//! the coefficients and their citation are the document's.
+//! Temperature. Each formula may carry the source's constant thermo-optic coefficient
+//! (`dn_dt_per_k`, 1/K) and the crystal's linear expansion along that principal axis
+//! (`expansion_per_k`, 1/K; for `o` the coefficient across the optic axis, α⊥, for `e` along it,
+//! α∥). At temperature T the index is n(λ) + dn/dT (T − 20 °C), the formula taken to hold at
+//! 20 °C as the catalogue's do, and its group index moves by the same amount (a constant dn/dT
+//! has no wavelength derivative). The thickness along the element's z axis grows as a catalogue
+//! crystal's, α_z = Σ α_i (a_i·ẑ)². An axis without `dn_dt_per_k` keeps its 20 °C index and one
+//! without `expansion_per_k` adds no expansion, each with a warning away from 20 °C. The data are
+//! taken to hold at every temperature the document allows: a constant dn/dT is the source's
+//! linearisation, and its range is the user's to respect.
+//!
+//! Sources: the form is that of the catalogue's entries (src/optics/material/dispersion.rs) and
+//! the temperature laws those of its constant entries (src/optics/material/thermal.rs); the
+//! coefficients and their citation are the document's.
 
 use crate::contract::fields::{Fields, number_list, type_name};
-use crate::error::Error;
+use crate::error::{Error, in_range};
 use crate::numfmt::quote_text;
 use crate::optics::material::dispersion::Formula;
 use crate::optics::material::{self, Quantity};
@@ -36,6 +47,21 @@ pub const MAX_CITATION_CHARS: usize = 240;
 /// The name the catalogue's messages give a custom formula, and the element report's `material`.
 pub const CUSTOM_DISPERSION: &str = "custom dispersion";
 
+/// Largest |dn/dT| a formula may carry, 1/K: ten times that of any catalogued crystal.
+pub const MAX_DN_DT_PER_K: f64 = 1e-3;
+
+/// Largest |α| a formula may carry, 1/K: several times that of any catalogued crystal.
+pub const MAX_EXPANSION_PER_K: f64 = 2e-4;
+
+/// One principal axis's temperature data as the document gives them (`None`: not given).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct AxisThermal {
+    /// dn/dT, 1/K (`dn_dt_per_k`).
+    pub dn_dt_per_k: Option<f64>,
+    /// Linear expansion along the axis, 1/K (`expansion_per_k`).
+    pub expansion_per_k: Option<f64>,
+}
+
 /// A crystal's own dispersion: its formulas, their validity range, what they were fitted in and
 /// where they come from.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -47,6 +73,8 @@ pub struct CustomDispersion {
     formulas: [Formula; 3],
     /// Whether they were given as `o` and `e`.
     uniaxial_form: bool,
+    /// Each principal axis's temperature data, in the order of `formulas`.
+    thermal: [AxisThermal; 3],
     /// Whether the source fitted the formulas to wavelengths in air (`fitted_in`: "air").
     pub fitted_in_air: bool,
     // Characters rather than UTF-8 bytes: writing them back needs no validation.
@@ -60,8 +88,8 @@ impl CustomDispersion {
     /// # Errors
     /// The exact field: `range_nm` (not two numbers, not positive, reversed), `o`/`e`/`x`/`y`/`z`
     /// (missing, mixed forms) and within a formula `a`, `ir`, `sellmeier[i][j]`, `poles[i][j]`
-    /// (not finite, C < 0, more than six terms), `fitted_in`, `citation`, or an unknown
-    /// member.
+    /// (not finite, C < 0, more than six terms), `dn_dt_per_k`, `expansion_per_k`, `fitted_in`,
+    /// `citation`, or an unknown member.
     pub fn read(path: &str, v: &Value) -> Result<CustomDispersion, Error> {
         let mut f = Fields::new(path, v)?;
         let range_path = f.path_of("range_nm");
@@ -87,19 +115,21 @@ impl CustomDispersion {
                 "give \"o\" and \"e\" (uniaxial) or \"x\", \"y\" and \"z\" (biaxial), not both",
             ));
         }
-        let mut formula = |name: &'static str| -> Result<Formula, Error> {
+        let mut formula = |name: &'static str| -> Result<(Formula, AxisThermal), Error> {
             let p = f.path_of(name);
             let v = f
                 .get(name)
                 .ok_or_else(|| Error::new(&p, "is required: {\"a\": …, \"sellmeier\": [[B, C], …], …}"))?;
             read_formula(&p, v)
         };
-        let formulas = if biaxial {
+        let read = if biaxial {
             [formula("x")?, formula("y")?, formula("z")?]
         } else {
             let o = formula("o")?;
             [o, o, formula("e")?]
         };
+        let formulas = read.map(|(formula, _)| formula);
+        let thermal = read.map(|(_, thermal)| thermal);
         for name in ["o", "e", "x", "y", "z"] {
             let _ = f.get(name);
         }
@@ -131,6 +161,7 @@ impl CustomDispersion {
             range_nm: (r[0], r[1]),
             formulas,
             uniaxial_form: !biaxial,
+            thermal,
             fitted_in_air,
             citation,
             citation_len,
@@ -154,8 +185,8 @@ impl CustomDispersion {
         let mut v = Map::new();
         v.insert("range_nm".into(), Value::from(vec![self.range_nm.0, self.range_nm.1]));
         v.insert("fitted_in".into(), self.fitted_in().into());
-        for (name, f) in self.named() {
-            v.insert(name.into(), formula_json(f));
+        for (name, f, t) in self.named() {
+            v.insert(name.into(), formula_json(f, t));
         }
         if let Some(c) = self.citation() {
             v.insert("citation".into(), c.into());
@@ -168,15 +199,23 @@ impl CustomDispersion {
         self.uniaxial_form
     }
 
-    /// Each formula with its field name, in document order.
-    fn named(&self) -> impl Iterator<Item = (&'static str, &Formula)> {
-        let [a, b, c] = &self.formulas;
-        let all = if self.uniaxial_form {
-            [("o", a), ("e", c), ("", c)]
+    /// The field names of the principal axes, in the order of the formulas: `o`, `o`, `e` or
+    /// `x`, `y`, `z`.
+    fn axis_names(&self) -> [&'static str; 3] {
+        if self.uniaxial_form {
+            ["o", "o", "e"]
         } else {
-            [("x", a), ("y", b), ("z", c)]
-        };
-        all.into_iter().filter(|(name, _)| !name.is_empty())
+            ["x", "y", "z"]
+        }
+    }
+
+    /// Each formula with its field name and temperature data, in document order.
+    fn named(&self) -> impl Iterator<Item = (&'static str, &Formula, &AxisThermal)> {
+        let names = self.axis_names();
+        let skip = usize::from(self.uniaxial_form); // `o` is held twice
+        (0..3)
+            .filter(move |&i| i != skip || !self.uniaxial_form)
+            .map(move |i| (names[i], &self.formulas[i], &self.thermal[i]))
     }
 
     /// The principal values of `q` at `wavelength`, `[n_o, n_o, n_e]` for the `o`/`e` form and
@@ -188,11 +227,7 @@ impl CustomDispersion {
     pub fn principal(&self, q: Quantity, wavelength: Wavelength) -> Result<([f64; 3], Vec<String>), Error> {
         // Messages read "the custom dispersion formula …", as the catalogue's name theirs.
         let name = "custom";
-        let names = if self.uniaxial_form {
-            ["o", "o", "e"]
-        } else {
-            ["x", "y", "z"]
-        };
+        let names = self.axis_names();
         let [a, b, c] = &self.formulas;
         let values = material::principal_values(
             name,
@@ -213,20 +248,67 @@ impl CustomDispersion {
         })
     }
 
-    /// The warning a temperature other than 20 °C brings: the formulas have no thermo-optic data.
-    pub fn temperature_warning(&self, temperature_c: f64) -> Option<String> {
-        (temperature_c != material::REFERENCE_C).then(|| {
-            format!(
-                "the custom dispersion formula has no thermo-optic data: its indices at \
-                 {temperature_c} °C are those at 20 °C"
-            )
-        })
+    /// The principal phase indices at `wavelength` and `temperature_c` (°C): those of
+    /// [`CustomDispersion::principal`] moved by each axis's dn/dT, identical to them at 20 °C;
+    /// with the warnings of the range and of temperature data not given.
+    ///
+    /// # Errors
+    /// As [`CustomDispersion::principal`].
+    pub fn principal_at(&self, wavelength: Wavelength, temperature_c: f64) -> Result<([f64; 3], Vec<String>), Error> {
+        let (mut p, mut warnings) = self.principal(Quantity::Phase, wavelength)?;
+        let dt = temperature_c - material::REFERENCE_C;
+        for (v, t) in p.iter_mut().zip(&self.thermal) {
+            *v += t.dn_dt_per_k.unwrap_or(0.0) * dt;
+        }
+        warnings.extend(self.temperature_warnings(temperature_c));
+        Ok((p, warnings))
+    }
+
+    /// The linear expansion coefficient (1/K) along the element's z axis for principal axes
+    /// `axes` (columns, element frame; the `o`/`e` form's optic axis is the third): α_z = Σ α_i
+    /// (a_i·ẑ)², an axis without `expansion_per_k` counting 0.
+    pub fn expansion_along_z(&self, axes: &nalgebra::Matrix3<f64>) -> f64 {
+        (0..3)
+            .map(|i| self.thermal[i].expansion_per_k.unwrap_or(0.0) * axes[(2, i)].powi(2))
+            .sum()
+    }
+
+    /// The warnings a temperature other than 20 °C brings: the axes without dn/dT or expansion.
+    pub fn temperature_warnings(&self, temperature_c: f64) -> Vec<String> {
+        let mut out = Vec::new();
+        if temperature_c == material::REFERENCE_C {
+            return out;
+        }
+        // The axes lacking each datum, e.g. "o, e".
+        let (mut no_dn, mut no_alpha) = (String::new(), String::new());
+        for (name, _, t) in self.named() {
+            for (list, given) in [(&mut no_dn, t.dn_dt_per_k), (&mut no_alpha, t.expansion_per_k)] {
+                if given.is_none() {
+                    list.push_str(if list.is_empty() { "" } else { ", " });
+                    list.push_str(name);
+                }
+            }
+        }
+        let start = "the custom dispersion formula has no";
+        if !no_dn.is_empty() {
+            out.push(format!(
+                "{start} thermo-optic data (dn_dt_per_k) for {no_dn}: those indices at {temperature_c} °C \
+                 are the ones at 20 °C"
+            ));
+        }
+        if !no_alpha.is_empty() {
+            out.push(format!(
+                "{start} thermal expansion (expansion_per_k) for {no_alpha}: the thickness takes no \
+                 expansion along those axes"
+            ));
+        }
+        out
     }
 }
 
 /// A formula as its document: `a`, and `sellmeier`, `poles` and `ir` where they are not empty or
-/// zero.
-fn formula_json(f: &Formula) -> Value {
+/// zero, and the temperature data given.
+fn formula_json(f: &Formula, t: &AxisThermal) -> Value {
     let mut v = Map::new();
     v.insert("a".into(), f.a().into());
     for (name, terms) in [("sellmeier", f.sellmeier()), ("poles", f.poles())] {
@@ -238,11 +320,16 @@ fn formula_json(f: &Formula) -> Value {
     if f.ir() != 0.0 {
         v.insert("ir".into(), f.ir().into());
     }
+    for (name, value) in [("dn_dt_per_k", t.dn_dt_per_k), ("expansion_per_k", t.expansion_per_k)] {
+        if let Some(x) = value {
+            v.insert(name.into(), x.into());
+        }
+    }
     Value::Object(v)
 }
 
-/// One formula object at `path`.
-fn read_formula(path: &str, v: &Value) -> Result<Formula, Error> {
+/// One formula object at `path`, with its temperature data.
+fn read_formula(path: &str, v: &Value) -> Result<(Formula, AxisThermal), Error> {
     let mut f = Fields::new(path, v)?;
     let a = f.required_number("a")?;
     let mut terms = |name: &'static str| -> Result<Vec<(f64, f64)>, Error> {
@@ -266,8 +353,17 @@ fn read_formula(path: &str, v: &Value) -> Result<Formula, Error> {
     let sellmeier = terms("sellmeier")?;
     let poles = terms("poles")?;
     let ir = f.number_or("ir", 0.0)?;
+    let mut bounded = |name: &'static str, limit: f64| -> Result<Option<f64>, Error> {
+        let p = f.path_of(name);
+        f.number(name)?.map(|x| in_range(&p, x, -limit, limit)).transpose()
+    };
+    let thermal = AxisThermal {
+        dn_dt_per_k: bounded("dn_dt_per_k", MAX_DN_DT_PER_K)?,
+        expansion_per_k: bounded("expansion_per_k", MAX_EXPANSION_PER_K)?,
+    };
     f.finish()?;
-    Formula::new(a, &sellmeier, &poles, ir).map_err(|e| e.within(path))
+    let formula = Formula::new(a, &sellmeier, &poles, ir).map_err(|e| e.within(path))?;
+    Ok((formula, thermal))
 }
 
 #[cfg(test)]

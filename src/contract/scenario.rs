@@ -177,8 +177,8 @@ impl Medium {
 
     /// The principal indices at `wavelength` and `temperature_c` (°C): the catalogue's
     /// thermo-optic data applied ([`Material::indices_at`], [`BiaxialMaterial::principal_at`]);
-    /// fixed indices and custom formulas are taken to hold at every temperature (a custom formula
-    /// with a warning, as it has no thermo-optic data). At 20 °C identical to
+    /// a custom formula's own dn/dT ([`CustomDispersion::principal_at`], warned where an axis
+    /// has none); fixed indices are taken to hold at every temperature. At 20 °C identical to
     /// [`Medium::principal`].
     ///
     /// # Errors
@@ -197,24 +197,29 @@ impl Medium {
                 let p = m.principal_at(wavelength, temperature_c)?;
                 Ok((PrincipalIndices::Triple(p.principal), p.warnings))
             }
-            _ => {
-                let (p, mut warnings) = self.principal(wavelength)?;
-                if let Medium::Formula(d) = self {
-                    warnings.extend(d.temperature_warning(temperature_c));
-                }
+            Medium::Formula(d) => {
+                let (p, warnings) = d.principal_at(wavelength, temperature_c)?;
+                let p = if d.is_uniaxial_form() {
+                    PrincipalIndices::Uniaxial(Indices::new(p[0], p[2])?)
+                } else {
+                    PrincipalIndices::Triple(p)
+                };
                 Ok((p, warnings))
             }
+            Medium::Custom(_) | Medium::Principal(_) => self.principal(wavelength),
         }
     }
 
     /// The linear thermal expansion coefficient (1/K) along the element's z axis for principal
     /// axes `axes` (columns, element frame; for a uniaxial crystal the optic axis is the third):
-    /// α_z = Σ α_i (a_i·ẑ)² from the catalogue's data; 0 for fixed indices, which carry none.
+    /// α_z = Σ α_i (a_i·ẑ)² from the catalogue's data or a custom formula's own; 0 for fixed
+    /// indices, which carry none.
     pub fn expansion_along_z(&self, axes: &nalgebra::Matrix3<f64>) -> f64 {
         let key = match self {
             Medium::Catalogue(m) => m.key,
             Medium::Biaxial(m) => m.key,
-            Medium::Custom(_) | Medium::Principal(_) | Medium::Formula(_) => return 0.0,
+            Medium::Formula(d) => return d.expansion_along_z(axes),
+            Medium::Custom(_) | Medium::Principal(_) => return 0.0,
         };
         material::thermal(key).map_or(0.0, |t| t.expansion_along(axes, &nalgebra::Vector3::z()))
     }

@@ -184,3 +184,29 @@ test('a loaded biaxial formula in the compact form is shown in the entry, round-
     assert.deepEqual(edited.elements[0].dispersion, { ...dispersion, x: { ...dispersion.x, a: 2.9 } });
   });
 });
+
+test('a custom formula\'s temperature data: entered per axis, traced at temperature as the command line traces it, a bad value named beside its field', { timeout: 90000 }, async () => {
+  await withPage('/', async (page) => {
+    await page.selectOption(MATERIAL, 'custom-formula');
+    await waitScenario(page, (s) => s.elements[0].dispersion !== undefined, 'a custom formula');
+    await enterValue(page, input('o.dn_dt_per_k'), '3e-6');
+    await enterValue(page, input('e.dn_dt_per_k'), '0.000013');
+    await enterValue(page, input('o.expansion_per_k'), '-5.8e-6');
+    await enterValue(page, input('e.expansion_per_k'), '25e-6');
+    await enterValue(page, 'input.num[data-field="temperature_c"]', '60');
+    const sc = await waitScenario(page, (s) => s.temperature_c === 60 && s.elements[0].dispersion.e.expansion_per_k === 25e-6, 'the temperature data at 60 °C');
+    assert.equal(sc.elements[0].dispersion.o.dn_dt_per_k, 3e-6);
+    assert.equal(sc.elements[0].dispersion.e.dn_dt_per_k, 13e-6);
+    const cli = cliTrace(sc);
+    // Calcite's coefficients with calcite's temperature constants: catalogue calcite at 60 °C.
+    const calcite = cliTrace({ ...sc, elements: [{ ...sc.elements[0], dispersion: undefined, material: 'calcite' }] });
+    for (const k of ['no', 'ne', 'thickness_at_temperature_mm']) assert.equal(cli.elements[0][k], calcite.elements[0][k], k);
+    await expectAgreement(page, cli, ['elements[0].no', 'elements[0].ne', 'elements[0].thickness_at_temperature_mm', 'elements[0].separation_mm'], 'custom formula at 60 °C');
+    // A dn/dT beyond any crystal's: named on its own field, every entry kept.
+    await enterValue(page, input('e.dn_dt_per_k'), '0.01');
+    const msg = await waitError(page, 'elements[0].dispersion.e.dn_dt_per_k');
+    assert.match(msg, /0\.001|1e-3|0\.01/, msg);
+    assert.equal(await page.inputValue(input('e.dn_dt_per_k')), '0.01');
+    assert.equal(await page.inputValue(input('o.expansion_per_k')), '-5.8e-6');
+  });
+});
