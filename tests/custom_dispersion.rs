@@ -569,3 +569,63 @@ fn design_temperature_figures_follow_the_formulas_own_temperature_data() {
         assert_eq!(strip(&a[key]), strip(&b[key]), "{key}");
     }
 }
+
+#[test]
+fn a_design_answer_warns_as_its_trace_does_and_names_the_temperature_data_it_lacks() {
+    // Outside the formula's range: the design answer carries the warning its own scenario's
+    // trace gives.
+    let mut d = catalogue_dispersion("calcite");
+    d["range_nm"] = json!([400, 600]);
+    let a = doublespar::solve_design(
+        &json!({"kind": "waveplate", "retardance_waves": 0.25, "dispersion": d, "wavelength_nm": 633}),
+    )
+    .expect("designed");
+    let traced = trace(&a["scenario"]);
+    let w = a["warnings"].to_string();
+    assert!(
+        w.contains("633 nm is outside the 400-600 nm range of the custom dispersion formula"),
+        "{w}"
+    );
+    assert!(
+        traced["warnings"]
+            .to_string()
+            .contains("633 nm is outside the 400-600 nm range")
+    );
+    // The temperature figures of a formula without temperature data are zero by construction:
+    // the answer says which data it lacks, at 20 °C too; with every axis's data, no such warning.
+    assert!(
+        w.contains(
+            "dispersion: the custom dispersion formula has no dn_dt_per_k for o, e and expansion_per_k for o, e"
+        ),
+        "{w}"
+    );
+    let mut half = calcite_with_temperature_data();
+    half["e"].as_object_mut().expect("object").remove("dn_dt_per_k");
+    let b = doublespar::solve_design(
+        &json!({"kind": "waveplate", "retardance_waves": 0.25, "dispersion": half, "wavelength_nm": 633}),
+    )
+    .expect("designed");
+    assert!(
+        b["warnings"].to_string().contains("no dn_dt_per_k for e:"),
+        "{}",
+        b["warnings"]
+    );
+    let full = calcite_with_temperature_data();
+    let c = doublespar::solve_design(
+        &json!({"kind": "waveplate", "retardance_waves": 0.25, "dispersion": full, "wavelength_nm": 633}),
+    )
+    .expect("designed");
+    assert!(!c["warnings"].to_string().contains("_per_k"), "{}", c["warnings"]);
+    // Fixed indices say their temperature figures count them as constant.
+    let e = doublespar::solve_design(
+        &json!({"kind": "waveplate", "retardance_waves": 0.25, "no": 1.6, "ne": 1.5, "wavelength_nm": 633}),
+    )
+    .expect("designed");
+    assert!(
+        e["warnings"]
+            .to_string()
+            .contains("no: fixed indices carry no temperature data"),
+        "{}",
+        e["warnings"]
+    );
+}

@@ -279,16 +279,7 @@ impl CustomDispersion {
         if temperature_c == material::REFERENCE_C {
             return out;
         }
-        // The axes lacking each datum, e.g. "o, e".
-        let (mut no_dn, mut no_alpha) = (String::new(), String::new());
-        for (name, _, t) in self.named() {
-            for (list, given) in [(&mut no_dn, t.dn_dt_per_k), (&mut no_alpha, t.expansion_per_k)] {
-                if given.is_none() {
-                    list.push_str(if list.is_empty() { "" } else { ", " });
-                    list.push_str(name);
-                }
-            }
-        }
+        let (no_dn, no_alpha) = self.missing_temperature_data();
         let start = "the custom dispersion formula has no";
         if !no_dn.is_empty() {
             out.push(format!(
@@ -303,6 +294,36 @@ impl CustomDispersion {
             ));
         }
         out
+    }
+
+    /// The warning a design answer carries, whatever its temperature, when its changes per kelvin
+    /// and temperature bands leave out data the formula lacks; `None` when every axis has both.
+    pub fn design_temperature_warning(&self) -> Option<String> {
+        let (no_dn, no_alpha) = self.missing_temperature_data();
+        let lacks = match (no_dn.is_empty(), no_alpha.is_empty()) {
+            (true, true) => return None,
+            (false, true) => format!("dn_dt_per_k for {no_dn}"),
+            (true, false) => format!("expansion_per_k for {no_alpha}"),
+            (false, false) => format!("dn_dt_per_k for {no_dn} and expansion_per_k for {no_alpha}"),
+        };
+        Some(format!(
+            "the custom dispersion formula has no {lacks}: this answer's changes per kelvin and \
+             temperature bands count them as zero"
+        ))
+    }
+
+    /// The axes without dn/dT and those without expansion, each as a list such as "o, e".
+    fn missing_temperature_data(&self) -> (String, String) {
+        let (mut no_dn, mut no_alpha) = (String::new(), String::new());
+        for (name, _, t) in self.named() {
+            for (list, given) in [(&mut no_dn, t.dn_dt_per_k), (&mut no_alpha, t.expansion_per_k)] {
+                if given.is_none() {
+                    list.push_str(if list.is_empty() { "" } else { ", " });
+                    list.push_str(name);
+                }
+            }
+        }
+        (no_dn, no_alpha)
     }
 }
 

@@ -119,6 +119,12 @@ fn check_applies(kind: &str, request: &Value) -> Result<(), Error> {
     Ok(())
 }
 
+/// The warning of a design from fixed indices (`no`/`ne`, `nx`/`ny`/`nz`): they hold at every
+/// temperature, so the answer's temperature figures count them as constant.
+const FIXED_INDICES_TEMPERATURE: &str = "fixed indices carry no temperature data: this answer's \
+     changes per kelvin count the indices and the thickness as constant; give a catalogue crystal, \
+     or a dispersion formula with dn_dt_per_k and expansion_per_k, for real ones";
+
 /// The crystals and wavelengths a request uses, for the checks of [`audit`].
 struct Uses {
     /// Each crystal with the path of the field that names it.
@@ -154,18 +160,39 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
         }
     };
     for (material_path, medium) in &uses.media {
-        // Catalogue crystals, uniaxial or biaxial (their indices and warnings by
-        // [`Medium::principal`], as the trace takes them).
-        let (key, name, data) = match medium {
-            Medium::Catalogue(m) => (m.key, m.name, m.data_warning()),
-            Medium::Biaxial(m) => (m.key, m.name, None),
-            _ => continue,
+        // Catalogue crystals, uniaxial or biaxial, and a crystal's own formulas (their indices
+        // and warnings by [`Medium::principal`], as the trace takes them). Every answer states
+        // temperature figures: a formula without temperature data, and fixed indices, say what
+        // those figures leave out.
+        // A crystal given by its own numbers is named by the field that holds them.
+        let prefix = material_path.strip_suffix("material").unwrap_or_default();
+        let (key, data) = match medium {
+            Medium::Catalogue(m) => (Some((m.key, m.name)), m.data_warning()),
+            Medium::Biaxial(m) => (Some((m.key, m.name)), None),
+            Medium::Formula(d) => (None, d.design_temperature_warning()),
+            Medium::Custom(_) | Medium::Principal(_) => {
+                let first = if matches!(medium, Medium::Custom(_)) {
+                    "no"
+                } else {
+                    "nx"
+                };
+                push(format!("{prefix}{first}: {FIXED_INDICES_TEMPERATURE}"));
+                continue;
+            }
+        };
+        let formula = matches!(medium, Medium::Formula(_));
+        let material_path = if formula {
+            format!("{prefix}dispersion")
+        } else {
+            material_path.to_string()
         };
         // Provenance first, once per material, on the field that names it.
         if let Some(w) = &data {
             push(format!("{material_path}: {w}"));
         }
-        if let Some(th) = material::thermal(key) {
+        if let Some((key, name)) = key
+            && let Some(th) = material::thermal(key)
+        {
             // Every answer states temperature figures: unverified thermo-optic data say so.
             if let Some(w) = th.data_warning(name) {
                 push(format!("{material_path}: {w}"));
@@ -179,7 +206,9 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
                 push(format!("{field}: {w}"));
             }
         };
-        let activity = material::optical_activity(key).filter(|_| uses.activity);
+        let activity = key
+            .and_then(|(key, _)| material::optical_activity(key))
+            .filter(|_| uses.activity);
         let at = |nm: f64| {
             let w = Wavelength::from_nm(nm)?;
             let mut ws = medium.principal(w)?.1;
@@ -189,7 +218,15 @@ fn audit(uses: &Uses) -> Result<Vec<String>, Error> {
             Ok::<_, Error>(ws)
         };
         for (field, nm) in &uses.wavelengths {
-            let ws = at(*nm).map_err(|e| Error::new(*field, e.message))?;
+            // A formula that breaks down is named on its axis (`dispersion.o`), as a trace names it;
+            // a catalogue formula's breakdown, on the wavelength that reaches it.
+            let ws = at(*nm).map_err(|e| {
+                if formula {
+                    Error::new(format!("{prefix}{}", e.field), e.message)
+                } else {
+                    Error::new(*field, e.message)
+                }
+            })?;
             note(field, ws);
         }
         let Some(((lo, hi), given)) = uses.band else { continue };
