@@ -358,7 +358,7 @@ struct FlagCase {
     json: &'static str,
 }
 
-const FLAG_CASES: [FlagCase; 32] = [
+const FLAG_CASES: [FlagCase; 36] = [
     FlagCase {
         flags: "displacer --material Calcite --wavelength-nm 632.8 --band-nm 600,700 --separation-mm 1.5 --beam-diameter-mm 0.5 --cut-tilt-deg 40 --aperture-factor 3 --tol-tilt-deg 0.2 --tol-incidence-deg 0.05 --tol-thickness-mm 0.02 --tol-wavelength-nm 1 --samples 3000 --seed 7 --bins 20 --temperature-c 35 --wavelength-in air",
         json: r#"{"kind": "displacer", "material": "Calcite", "wavelength_nm": 632.8, "band_nm": [600, 700],
@@ -417,6 +417,24 @@ const FLAG_CASES: [FlagCase; 32] = [
     FlagCase {
         flags: "birefringent-filter --no 1.5 --ne 1.51 --layout folded --stages 4 --bandwidth-nm 5",
         json: r#"{"kind": "birefringent-filter", "no": 1.5, "ne": 1.51, "layout": "folded", "stages": 4, "bandwidth_nm": 5}"#,
+    },
+    FlagCase {
+        flags: "birefringent-filter --nx 1.74 --ny 1.75 --nz 1.83 --cut x --stages 3 --wavelength-nm 1064 --bandwidth-nm 4",
+        json: r#"{"kind": "birefringent-filter", "nx": 1.74, "ny": 1.75, "nz": 1.83, "cut": "x", "stages": 3, "wavelength_nm": 1064, "bandwidth_nm": 4}"#,
+    },
+    FlagCase {
+        // A cut for a uniaxial crystal: the same error on the same field from both forms.
+        flags: "birefringent-filter --material quartz --cut y --bandwidth-nm 1",
+        json: r#"{"kind": "birefringent-filter", "material": "quartz", "cut": "y", "bandwidth_nm": 1}"#,
+    },
+    FlagCase {
+        flags: "broadband-retarder --nx 1.56 --ny 1.59 --nz 1.61 --cut z --plates 2 --retardance-waves 0.25 --band-nm 700,900 --generations 40",
+        json: r#"{"kind": "broadband-retarder", "nx": 1.56, "ny": 1.59, "nz": 1.61, "cut": "z", "plates": 2, "retardance_waves": 0.25,
+                 "band_nm": [700, 900], "generations": 40}"#,
+    },
+    FlagCase {
+        flags: "broadband-retarder --material ktp --cut w --plates 2 --retardance-waves 0.25 --band-nm 700,900",
+        json: r#"{"kind": "broadband-retarder", "material": "ktp", "cut": "w", "plates": 2, "retardance_waves": 0.25, "band_nm": [700, 900]}"#,
     },
     FlagCase {
         flags: "broadband-retarder --material mgf2 --plates 2 --retardance-waves 0.25 --fast-axis-deg 10 --band-nm 500,700 --max-thickness-mm 0.1 --generations 40 --seed 3 --temperature-c 25 --wavelength-in air",
@@ -718,6 +736,8 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "filter-calcite-folded",
         "broadband-quartz-half",
         "broadband-quartz-mgf2-half",
+        "filter-ktp-folded-x-cut",
+        "broadband-ktp-quarter",
         "waveplate-ktp-half",
         "displacer-lbo-xz",
     ] {

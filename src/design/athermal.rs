@@ -25,7 +25,7 @@
 //! temperatures that keeps Γ within the acceptance error (bisected on the exact Γ(T)), and, for
 //! comparison, the band of a zero-order plate of the first crystal alone.
 
-use crate::contract::request::{AthermalRequest, PairPlate, TEMPERATURE_RANGE_C};
+use crate::contract::request::{AthermalRequest, PlateCrystal, TEMPERATURE_RANGE_C};
 use crate::contract::scenario::Medium;
 use crate::design::part::Part;
 use crate::design::waveplate::{
@@ -125,7 +125,7 @@ pub fn athermal(req: &AthermalRequest) -> Result<AthermalDesign, Error> {
     }
     let (nm, t0) = (req.wavelength.nm(), req.temperature_c);
     // Each plate's cut at the design wavelength and temperature.
-    let cut = |p: &PairPlate, plate: &'static str| {
+    let cut = |p: &PlateCrystal, plate: &'static str| {
         cut_of(&p.medium, p.cut, req.wavelength, t0).map_err(|e| match e.field.as_str() {
             "cut" => e.within(plate),
             _ => Error::new(format!("{plate}.material"), e.message),

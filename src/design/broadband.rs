@@ -42,16 +42,25 @@
 //! valley of the classic they contain. The distance falls with N; the largest retardance error,
 //! which the search does not minimize, need not (six plates can end a few thousandths above five).
 //!
+//! Biaxial crystals: a plate cut along a principal axis (its own `cut`,
+//! [`crate::design::principal`], chosen at the band's centre) is the same linear retarder with
+//! Γ = 2π (n_slow − n_fast) L / λ and its slower in-face principal axis at the plate's azimuth,
+//! where a uniaxial plate has its optic axis; its slow and fast axes are kept over the band (the
+//! model assumes its birefringence keeps one sign there, as the catalogue's biaxial crystals'
+//! does; [`crate::design::waveplate`]'s achromat assumes the same).
+//!
 //! Conventions: azimuths from x toward y, degrees; the fast axis of the equivalent retarder is
 //! the one whose light leads by δ.
 
 use super::evolution::{Minimum, minimize};
-use super::part::{Part, crystal};
+use super::part::{Part, oriented_crystal};
+use super::principal::{BiaxialCut, CutReport};
 use super::simplex::polish;
-use super::waveplate::{Plate, PlateCut, stack_retardance_at};
+use super::waveplate::{Plate, PlateCut, cut_of, stack_retardance_at};
 use crate::contract::request::BroadbandRequest;
 use crate::contract::scenario::Medium;
 use crate::error::Error;
+use crate::optics::wavelength::Wavelength;
 use num_complex::Complex64;
 use serde::Serialize;
 use std::f64::consts::TAU;
@@ -147,10 +156,15 @@ pub struct BroadbandPlate {
     pub material: String,
     /// Thickness at 20 °C, mm.
     pub thickness_mm: f64,
-    /// Optic-axis azimuth, degrees from x (the axis lies in the faces).
+    /// Optic-axis azimuth, degrees from x (the axis lies in the faces); for a biaxial plate, the
+    /// azimuth of its slower in-face principal axis.
     pub axis_azimuth_deg: f64,
     /// Retardance at the band's centre, waves.
     pub retardance_waves: f64,
+    /// For a biaxial plate, its cut (`cut`, `cut_note`, `principal_indices` at the band's centre
+    /// and the design temperature), as a waveplate reports its one cut; left out otherwise.
+    #[serde(flatten)]
+    pub biaxial: Option<CutReport>,
 }
 
 /// A stack compared with the result (the published classic, a single plate).
@@ -207,15 +221,20 @@ pub struct BroadbandDesign {
 /// The model of one request: each plate's birefringence across the band.
 struct Model<'a> {
     req: &'a BroadbandRequest,
+    /// Each plate's cut (a uniaxial plate's axis in its faces, a biaxial plate's principal cut)
+    /// and what an answer reports of a biaxial one.
+    cuts: Vec<(PlateCut, Option<CutReport>)>,
     /// Waves per millimetre of each plate's crystal at each search wavelength.
     search_w: Vec<Vec<f64>>,
     /// Waves per millimetre of each plate's crystal at the band's centre.
     centre_w: Vec<f64>,
 }
 
-/// Waves per millimetre (signed: positive when the optic axis is slow) of `m` at `nm`, `t_c`.
-fn waves_per_mm(m: &Medium, nm: f64, t_c: f64) -> Option<f64> {
-    stack_retardance_at(&[Plate::new(*m, 1.0, 0.0, PlateCut::Axis)], nm, [0.0, 0.0], t_c).map(|g| g / TAU)
+/// Waves per millimetre of `m` cut as `cut` at `nm`, `t_c` (signed: positive when the axis at
+/// the plate's azimuth, a uniaxial plate's optic axis or a biaxial plate's slower in-face axis,
+/// is slow).
+fn waves_per_mm(m: &Medium, cut: PlateCut, nm: f64, t_c: f64) -> Option<f64> {
+    stack_retardance_at(&[Plate::new(*m, 1.0, 0.0, cut)], nm, [0.0, 0.0], t_c).map(|g| g / TAU)
 }
 
 fn grid(lo: f64, hi: f64, n: usize) -> Vec<f64> {
@@ -278,7 +297,8 @@ impl Model<'_> {
             .req
             .media
             .iter()
-            .map(|m| waves_per_mm(m, nm, self.req.temperature_c))
+            .zip(&self.cuts)
+            .map(|(m, (cut, _))| waves_per_mm(&m.medium, *cut, nm, self.req.temperature_c))
             .collect::<Option<_>>()?;
         let (delta, axis, omega) = equivalent(&self.stack(&w, plates));
         // Within 90° of the target's axis (a retarder's axis is a line).
@@ -476,11 +496,13 @@ impl Model<'_> {
             .iter()
             .zip(&self.req.media)
             .zip(&self.centre_w)
-            .map(|((&(t, az), m), w)| BroadbandPlate {
-                material: m.key().to_string(),
+            .zip(&self.cuts)
+            .map(|(((&(t, az), m), w), (_, cut))| BroadbandPlate {
+                material: m.medium.key().to_string(),
                 thickness_mm: t,
                 axis_azimuth_deg: az,
                 retardance_waves: w * t,
+                biaxial: cut.clone(),
             })
             .collect()
     }
@@ -490,26 +512,40 @@ impl Model<'_> {
 ///
 /// # Errors
 /// `band_nm` where a crystal's formula fails inside the band; `material` (or `materials[i]`) for
-/// a crystal without birefringence at the band's centre.
+/// a crystal without birefringence at the band's centre; `cut` (or `materials[i].cut`) for a
+/// biaxial cut whose two in-face indices are equal.
 pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
     let (lo, hi) = req.band_nm;
     let centre = 0.5 * (lo + hi);
     let t_c = req.temperature_c;
-    let field = |i: usize| {
-        if req.media.iter().all(|m| *m == req.media[0]) {
-            "material".to_string()
-        } else {
-            format!("materials[{i}]")
-        }
-    };
-    let centre_w: Vec<f64> = req
+    // A request of one crystal names it by `material` (its cut by `cut`); a list, by its entry
+    // (`materials[i]`, `materials[i].cut`).
+    let one = req.media.iter().all(|m| *m == req.media[0]);
+    let entry = |i: usize| if one { String::new() } else { format!("materials[{i}]") };
+    let material_field = |i: usize| if one { "material".to_string() } else { entry(i) };
+    // Each plate's cut at the band's centre and the design temperature.
+    let centre_wl = Wavelength::from_nm(centre)?;
+    let cuts: Vec<(PlateCut, Option<CutReport>)> = req
         .media
         .iter()
         .enumerate()
         .map(|(i, m)| {
-            waves_per_mm(m, centre, t_c)
+            let (biaxial, cut) = cut_of(&m.medium, m.cut, centre_wl, t_c).map_err(|e| match e.field.as_str() {
+                "cut" => e.within(&entry(i)),
+                _ => Error::new(material_field(i), e.message),
+            })?;
+            Ok::<_, Error>((cut, biaxial.as_ref().map(BiaxialCut::report)))
+        })
+        .collect::<Result<_, _>>()?;
+    let centre_w: Vec<f64> = req
+        .media
+        .iter()
+        .zip(&cuts)
+        .enumerate()
+        .map(|(i, (m, (cut, _)))| {
+            waves_per_mm(&m.medium, *cut, centre, t_c)
                 .filter(|w| w.abs() > 0.0)
-                .ok_or_else(|| Error::new(field(i), "this crystal has no birefringence at the band's centre"))
+                .ok_or_else(|| Error::new(material_field(i), "this crystal has no birefringence at the band's centre"))
         })
         .collect::<Result<_, _>>()?;
     let search_w: Vec<Vec<f64>> = grid(lo, hi, SEARCH_POINTS)
@@ -517,13 +553,15 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         .map(|&nm| {
             req.media
                 .iter()
-                .map(|m| waves_per_mm(m, nm, t_c))
+                .zip(&cuts)
+                .map(|(m, (cut, _))| waves_per_mm(&m.medium, *cut, nm, t_c))
                 .collect::<Option<Vec<f64>>>()
                 .ok_or_else(|| Error::new("band_nm", format!("a crystal's formula fails at {nm} nm")))
         })
         .collect::<Result<_, _>>()?;
     let model = Model {
         req,
+        cuts,
         search_w,
         centre_w,
     };
@@ -553,6 +591,7 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
             media: vec![req.media[0]],
             ..req.clone()
         },
+        cuts: vec![model.cuts[0].clone()],
         search_w: model.search_w.iter().map(|w| vec![w[0]]).collect(),
         centre_w: vec![w0],
     };
@@ -561,13 +600,16 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         departures: single_model.judge(&single)?.0,
         plates: single_model.plates_out(&single),
     };
+    // Each plate oriented by its cut: a uniaxial plate's optic axis, a biaxial plate's slower
+    // in-face axis at its azimuth.
     let elements = plates
         .iter()
         .zip(&req.media)
-        .map(|(&(t, az), m)| crystal(*m, t, 90.0, az, GAP_MM))
+        .zip(&model.cuts)
+        .map(|((&(t, az), m), (cut, _))| oriented_crystal(m.medium, t, cut.at(az), GAP_MM))
         .collect();
     let mut scenario =
-        Part::new(crate::optics::wavelength::Wavelength::from_nm(centre)?, None, elements).at_temperature(t_c);
+        Part::new(centre_wl, None, elements).at_temperature(t_c);
     scenario.scenario.beam.polarization = crate::contract::scenario::Polarization::Linear { azimuth_deg: 45.0 };
     Ok(BroadbandDesign {
         target_retardance_waves: req.retardance_waves,
@@ -637,6 +679,7 @@ mod tests {
                     .collect();
                 let model = Model {
                     req: &r,
+                    cuts: vec![(PlateCut::Axis, None); n],
                     search_w: ws.clone(),
                     centre_w: ws[0].clone(),
                 };

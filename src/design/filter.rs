@@ -23,11 +23,19 @@
 //! gives the width closest to the request (by ratio). Orders are whole, so the width met is the
 //! nearest of a discrete set; the answer states it and the width asked.
 //!
+//! Biaxial crystals: every plate is cut along the request's principal axis (`cut`,
+//! [`crate::design::principal`], chosen at the centre wavelength and the design temperature;
+//! default the cut of largest birefringence). At normal incidence such a plate is a linear
+//! retarder with Γ = 2π (n_slow − n_fast) L / λ about its slower in-face principal axis, which
+//! takes the place a uniaxial plate's optic axis has (the azimuths below), so the design is the
+//! same with the in-face birefringence; the scenario orients each plate by `axes`.
+//!
 //! Conventions: azimuths from x toward y, degrees; the input is linear along the first
 //! polarizer (x), so the peak transmission is 1 with ideal faces (½ for unpolarized light).
 
-use super::part::{Part, crystal};
-use super::waveplate::{Plate, PlateCut, stack_retardance_at};
+use super::part::{Part, oriented_crystal};
+use super::principal::{BiaxialCut, CutReport};
+use super::waveplate::{Plate, PlateCut, cut_of, stack_retardance_at};
 use crate::contract::geometry::Contact;
 use crate::contract::request::{FilterRequest, Layout};
 use crate::contract::result::trace_scenario;
@@ -53,7 +61,8 @@ const STEP_K: f64 = 5.0;
 pub struct FilterPlate {
     /// Thickness at 20 °C, mm.
     pub thickness_mm: f64,
-    /// Optic-axis azimuth (the axis lies in the faces), degrees.
+    /// Optic-axis azimuth (the axis lies in the faces), degrees; for a biaxial plate, the
+    /// azimuth of its slower in-face principal axis.
     pub axis_azimuth_deg: f64,
     /// Retardance at the centre wavelength, waves.
     pub retardance_waves: f64,
@@ -83,6 +92,11 @@ pub struct FilterDesign {
     pub centre_shift_nm_per_k: Option<f64>,
     /// The plates in order.
     pub plates: Vec<FilterPlate>,
+    /// For a biaxial crystal, the plates' cut (`cut`, `cut_note`, `principal_indices` at the
+    /// centre wavelength and the design temperature), as a waveplate reports its cut; left out
+    /// for a uniaxial crystal.
+    #[serde(flatten)]
+    pub biaxial: Option<CutReport>,
     /// The polarizers' transmission axes in order, degrees.
     pub polarizers_deg: Vec<f64>,
     /// Sum of the plates' thicknesses, mm.
@@ -134,13 +148,16 @@ fn jones_transmission(layout: Layout, plates: &[(f64, f64)]) -> f64 {
 /// The filter model of one request: the crystal's birefringence and the layout.
 struct Model<'a> {
     req: &'a FilterRequest,
+    /// How every plate is cut: a uniaxial plate's axis in its faces, or a biaxial plate's
+    /// principal cut.
+    cut: PlateCut,
 }
 
 impl Model<'_> {
     /// The crystal's birefringence in waves per millimetre (of 20 °C thickness) at `nm` and `t_c`.
     fn waves_per_mm(&self, nm: f64, t_c: f64) -> Option<f64> {
         stack_retardance_at(
-            &[Plate::new(self.req.medium, 1.0, 45.0, PlateCut::Axis)],
+            &[Plate::new(self.req.medium, 1.0, 45.0, self.cut)],
             nm,
             [0.0, 0.0],
             t_c,
@@ -236,12 +253,16 @@ impl Model<'_> {
 ///
 /// # Errors
 /// `material` where the crystal has no birefringence at the centre wavelength or its formula
-/// fails near it; `bandwidth_nm` wider than the lowest order gives, or so narrow that the plates
-/// would exceed 500 mm in all.
+/// fails near it; `cut` for a biaxial cut whose two in-face indices are equal; `bandwidth_nm`
+/// wider than the lowest order gives, or so narrow that the plates would exceed 500 mm in all.
 pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
-    let model = Model { req };
     let nm0 = req.wavelength.nm();
     let t0 = req.temperature_c;
+    let (biaxial, cut) = cut_of(&req.medium, req.cut, req.wavelength, t0).map_err(|e| match e.field.as_str() {
+        "cut" => e,
+        _ => Error::new("material", e.message),
+    })?;
+    let model = Model { req, cut };
     let w0 = model.waves_per_mm(nm0, t0).filter(|w| *w > 0.0).ok_or_else(|| {
         let field = if matches!(req.medium, Medium::Custom(_)) {
             "ne"
@@ -323,7 +344,7 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
     let d = thickness(order);
     let q = model.waves_of(order);
     let (plates, polarizers_deg) = layout_of(req.layout, req.stages, d);
-    let scenario = filter_part(req, &plates, &polarizers_deg);
+    let scenario = filter_part(req, cut, &plates, &polarizers_deg);
     let (lo, hi) = req.band_nm.unwrap_or_else(|| {
         // Out to the neighbouring peaks and a little beyond, so that the curve shows the
         // free spectral range.
@@ -350,7 +371,12 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
             .then(|| model.where_waves(d, q - 1.0, nm0, false, t0))
             .flatten(),
     ];
-    let thermal = matches!(req.medium, Medium::Catalogue(m) if material::thermal(m.key).is_some());
+    let key = match req.medium {
+        Medium::Catalogue(m) => Some(m.key),
+        Medium::Biaxial(m) => Some(m.key),
+        _ => None,
+    };
+    let thermal = key.and_then(material::thermal).is_some();
     let centre_shift_nm_per_k = thermal
         .then(|| {
             let at = |t: f64| model.where_waves(d, q, nm0, model.waves_per_mm(nm0, t)? * d < q, t);
@@ -387,6 +413,7 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
                 retardance_waves: w0 * t,
             })
             .collect(),
+        biaxial: biaxial.as_ref().map(BiaxialCut::report),
         polarizers_deg,
         total_thickness_mm: plates.iter().map(|p| p.0).sum(),
         curve,
@@ -410,8 +437,9 @@ fn neighbours_text(width_of: &dyn Fn(u32) -> Result<f64, Error>, order: u32, low
 }
 
 /// The answer's set-up: polarizers and plates in order, 1 mm apart, lit along the first
-/// polarizer.
-fn filter_part(req: &FilterRequest, plates: &[(f64, f64)], polarizers_deg: &[f64]) -> Part {
+/// polarizer; each plate cut as `cut` at its azimuth (a uniaxial plate's optic axis, a biaxial
+/// plate's slower in-face axis there).
+fn filter_part(req: &FilterRequest, cut: PlateCut, plates: &[(f64, f64)], polarizers_deg: &[f64]) -> Part {
     let polarizer = |deg: f64| Element {
         gap_mm: GAP_MM,
         kind: ElementKind::Polarizer {
@@ -419,7 +447,7 @@ fn filter_part(req: &FilterRequest, plates: &[(f64, f64)], polarizers_deg: &[f64
         },
         contact: Contact::Air,
     };
-    let plate = |&(t, az): &(f64, f64)| crystal(req.medium, t, 90.0, az, GAP_MM);
+    let plate = |&(t, az): &(f64, f64)| oriented_crystal(req.medium, t, cut.at(az), GAP_MM);
     let mut elements = vec![polarizer(polarizers_deg[0])];
     match req.layout {
         Layout::StageDoubling => {

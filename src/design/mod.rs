@@ -407,7 +407,7 @@ fn filter_uses(r: &FilterRequest) -> Uses {
 }
 
 fn broadband_uses(r: &BroadbandRequest) -> Uses {
-    let one = r.media.iter().all(|m| *m == r.media[0]);
+    let one = r.media.iter().all(|m| m.medium == r.media[0].medium);
     let names = [
         "materials[0]",
         "materials[1]",
@@ -419,9 +419,9 @@ fn broadband_uses(r: &BroadbandRequest) -> Uses {
     ];
     Uses {
         media: if one {
-            vec![("material", r.media[0])]
+            vec![("material", r.media[0].medium)]
         } else {
-            names.iter().copied().zip(r.media.iter().copied()).collect()
+            names.iter().copied().zip(r.media.iter().map(|p| p.medium)).collect()
         },
         wavelengths: vec![],
         band: Some((r.band_nm, true)),

@@ -168,7 +168,8 @@ const DISPLACER: [Flag; 22] = [
     DESIGN_TEMPERATURE,
 ];
 
-/// A biaxial plate's principal axis along its normal (waveplate, tilt-tuning).
+/// A biaxial plate's principal axis along its normal (waveplate, tilt-tuning; every plate of a
+/// birefringent filter or of a broadband retarder of one crystal).
 const CUT: Flag = flag(
     "cut",
     "cut",
@@ -515,10 +516,14 @@ const ROTATOR: [Flag; 10] = [
     DESIGN_TEMPERATURE,
 ];
 
-const FILTER: [Flag; 10] = [
+const FILTER: [Flag; 14] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
+    PRINCIPAL_HELP[0],
+    PRINCIPAL_HELP[1],
+    PRINCIPAL_HELP[2],
+    CUT,
     flag(
         "layout",
         "layout",
@@ -548,10 +553,14 @@ const FILTER: [Flag; 10] = [
     DESIGN_TEMPERATURE,
 ];
 
-const BROADBAND: [Flag; 12] = [
+const BROADBAND: [Flag; 16] = [
     MEDIUM_HELP[0],
     MEDIUM_HELP[1],
     MEDIUM_HELP[2],
+    PRINCIPAL_HELP[0],
+    PRINCIPAL_HELP[1],
+    PRINCIPAL_HELP[2],
+    CUT,
     flag("plates", "plates", N, "number of plates of --material, 2 to 7 [3]"),
     flag(
         "retardance-waves",

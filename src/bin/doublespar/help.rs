@@ -138,7 +138,8 @@ A flag's value may follow it or an = sign: --separation-mm 1 or --separation-mm=
 KIND is displacer, waveplate, achromat, recombiner, angular-splitter, prism-polarizer,
 tilt-tuning, quartz-rotator, athermal-waveplate, birefringent-filter, broadband-retarder or
 lc-voltage. A file named like a kind is read as ./NAME. A broadband retarder of plates of
-different crystals is asked in a JSON file (\"materials\": [\"quartz\", \"mgf2\", \"quartz\"]).
+different crystals, or of biaxial plates cut each its own way, is asked in a JSON file
+(\"materials\": [\"quartz\", {\"material\": \"ktp\", \"cut\": \"x\"}, \"quartz\"]).
 ",
     );
     for kind in doublespar::DESIGN_KINDS {

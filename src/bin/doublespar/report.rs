@@ -583,11 +583,47 @@ fn plate_lines(r: &mut Report, material: bool, where_: &str) {
         let w = r
             .f(&format!("plates.{i}.retardance_waves"))
             .map_or_else(String::new, num);
-        r.line(
-            &format!("plate {}", i + 1),
-            format!("{m}{t} mm, optic axis in the faces at {a} ° from x, {w} waves {where_}"),
-        );
+        let axis = plate_axis_words(r, i, &a);
+        r.line(&format!("plate {}", i + 1), format!("{m}{t} mm, {axis}, {w} waves {where_}"));
     }
+}
+
+/// Plate `i`'s orientation in words, its azimuth `a` in degrees: a biaxial plate's cut (its own
+/// `plates.i.cut`, or the answer's one `cut`) and slow axis, or a uniaxial plate's optic axis in
+/// the faces.
+fn plate_axis_words(r: &mut Report, i: usize, a: &str) -> String {
+    match r.s(&format!("plates.{i}.cut")).or_else(|| r.s("cut")) {
+        Some(c) => format!("{c}-cut (light along principal {c}), slow axis at {a} ° from x"),
+        None => format!("optic axis in the faces at {a} ° from x"),
+    }
+}
+
+/// The cuts of the biaxial plates that carry their own (a two-crystal pair's, a broadband
+/// retarder's): a line of principal indices for each crystal, once, and the paths of their cut
+/// notes, each text once, for [`Report::notes`].
+fn plate_cuts(r: &mut Report) -> Vec<String> {
+    let (mut crystals, mut notes, mut paths) = (Vec::new(), Vec::new(), Vec::new());
+    for i in 0..plate_count(r) {
+        let Some(note) = r.s(&format!("plates.{i}.cut_note")) else {
+            continue;
+        };
+        let m = plate_material(r, i);
+        let n: Vec<String> = (0..3)
+            .filter_map(|k| r.f(&format!("plates.{i}.principal_indices.{k}")).map(num))
+            .collect();
+        r.used.insert(format!("plates.{i}.principal_indices"));
+        if let [x, y, z] = n.as_slice()
+            && !crystals.contains(&m)
+        {
+            r.line(&format!("principal indices, {m}"), format!("n_x {x}, n_y {y}, n_z {z}"));
+            crystals.push(m);
+        }
+        if !notes.contains(&note) {
+            notes.push(note);
+            paths.push(format!("plates.{i}.cut_note"));
+        }
+    }
+    paths
 }
 
 /// How many plates the answer's `plates` lists.
@@ -616,10 +652,7 @@ fn plates(r: &mut Report) {
         let a = r
             .f(&format!("plates.{i}.axis_azimuth_deg"))
             .map_or_else(String::new, num);
-        let axis = match r.s("cut") {
-            Some(c) => format!("{c}-cut (light along principal {c}), slow axis at {a} ° from x"),
-            None => format!("optic axis in the faces at {a} ° from x"),
-        };
+        let axis = plate_axis_words(r, i, &a);
         r.line(&label, format!("{m}, {t} mm thick, {axis}"));
     }
 }
@@ -803,6 +836,7 @@ fn athermal(r: &mut Report) {
         "waves (positive: the first plate's axis is slow)",
     );
     r.quantity("curvature d²Γ/dT²", "curvature_waves_per_k2", "waves/K²");
+    let cut_notes = plate_cuts(r);
     if let Some((lo_t, hi_t, lo, hi)) = range_of(r.v.get("temperature_curve")) {
         r.line(
             "retardance over temperature",
@@ -819,7 +853,7 @@ fn athermal(r: &mut Report) {
         format!("a zero-order plate of {alone} alone, {single} mm"),
     );
     temperature_lines(r, &err, "single_plate.temperature", "  alone: ");
-    r.notes(&[]);
+    r.notes(&cut_notes.iter().map(String::as_str).collect::<Vec<_>>());
 }
 
 fn achromat(r: &mut Report) {
@@ -834,6 +868,7 @@ fn achromat(r: &mut Report) {
     r.line("aperture", "as the beam needs (not set by this design)");
 
     r.section("Performance");
+    let cut_notes = plate_cuts(r);
     let n =
         r.v.get("at_design_wavelengths")
             .and_then(Value::as_array)
@@ -861,7 +896,7 @@ fn achromat(r: &mut Report) {
 
     r.section("Tolerances");
     r.quantity("largest error over the band", "max_error_waves", "waves");
-    r.notes(&[]);
+    r.notes(&cut_notes.iter().map(String::as_str).collect::<Vec<_>>());
 }
 
 /// A recombiner check's report: the parts, whether the beams recombine, and the mismatches it

@@ -3,7 +3,7 @@
 //! in the order of every design report. The curves are summarized by their worst values; the
 //! JSON holds them.
 
-use super::{Report, num, plate_count, plate_lines};
+use super::{Report, num, plate_count, plate_cuts, plate_lines};
 
 /// The departures at `path` in one line.
 fn departures(r: &mut Report, path: &str) -> String {
@@ -25,12 +25,15 @@ pub(super) fn broadband(r: &mut Report) {
     r.title(&format!("Broadband retarder · {target} waves · {lo} to {hi} nm"));
     r.section("What to order");
     let n = plate_count(r);
-    r.line(
-        "part",
-        format!("{n} plates stacked in this order, optic axes in the faces"),
-    );
+    let faces = if (0..n).any(|i| r.v.pointer(&format!("/plates/{i}/cut")).is_some()) {
+        "each plate's optic axis or slow axis in its faces"
+    } else {
+        "optic axes in the faces"
+    };
+    r.line("part", format!("{n} plates stacked in this order, {faces}"));
     plate_lines(r, true, "at the band's centre");
     r.section("Performance");
+    let cut_notes = plate_cuts(r);
     r.quantity("target fast axis", "target_fast_axis_deg", "° from x");
     let this = departures(r, "departures");
     r.line("over the band", this);
@@ -53,5 +56,5 @@ pub(super) fn broadband(r: &mut Report) {
         "found by",
         format!("{method}, {pop} candidates over {gens} generations, seed {seed}"),
     );
-    r.notes(&[]);
+    r.notes(&cut_notes.iter().map(String::as_str).collect::<Vec<_>>());
 }

@@ -2,7 +2,7 @@
 //! met against the one asked, the neighbouring peaks and the centre's drift with temperature, in
 //! the order of every design report. The curve is summarized by its range; the JSON holds it.
 
-use super::{Report, num, plate_count, plate_lines, range_of};
+use super::{Report, num, plate_count, plate_lines, principal_indices, range_of};
 
 /// A birefringent filter.
 pub(super) fn filter(r: &mut Report) {
@@ -11,6 +11,11 @@ pub(super) fn filter(r: &mut Report) {
     let material = r
         .s("scenario.elements.1.material")
         .unwrap_or_else(|| "custom crystal".into());
+    // A biaxial crystal's plates are all cut alike: the cut goes with the material.
+    let material = match r.s("cut") {
+        Some(c) => format!("{material} ({c}-cut)"),
+        None => material,
+    };
     r.title(&format!("Birefringent filter · {layout} · {material} · {wl} nm"));
     r.section("What to order");
     let n = plate_count(r);
@@ -41,6 +46,7 @@ pub(super) fn filter(r: &mut Report) {
     r.quantity("crystal in all", "total_thickness_mm", "mm");
 
     r.section("Performance");
+    principal_indices(r);
     r.quantity("centre wavelength", "wavelength_nm", "nm");
     r.quantity("pass band (FWHM) met", "fwhm_nm", "nm");
     r.quantity("pass band asked", "bandwidth_nm", "nm");
@@ -78,5 +84,5 @@ pub(super) fn filter(r: &mut Report) {
         Some(_) => r.quantity("centre drift with temperature", "centre_shift_nm_per_k", "nm/K"),
         None => r.line("centre drift with temperature", "no thermal data for this crystal"),
     }
-    r.notes(&[]);
+    r.notes(&["cut_note"]);
 }

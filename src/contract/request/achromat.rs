@@ -1,7 +1,7 @@
 //! The achromat request: two crystals (`first`, `second`) whose plates together hold a target
 //! retardance at two wavelengths.
 
-use super::{PairPlate, band, temperature_field, two_plates};
+use super::{PlateCrystal, band, temperature_field, two_plates};
 use crate::contract::fields::{Fields, number_list};
 use crate::error::{Error, in_range};
 use crate::precision::SAME_WAVELENGTH_NM;
@@ -10,9 +10,9 @@ use crate::precision::SAME_WAVELENGTH_NM;
 #[derive(Debug, Clone, PartialEq)]
 pub struct AchromatRequest {
     /// First plate: its crystal and, for a biaxial crystal, its cut.
-    pub a: PairPlate,
+    pub a: PlateCrystal,
     /// Second plate.
-    pub b: PairPlate,
+    pub b: PlateCrystal,
     /// Target retardance, waves.
     pub retardance_waves: f64,
     /// The two wavelengths where the target must hold, nm.

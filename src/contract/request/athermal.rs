@@ -1,7 +1,7 @@
 //! The athermal waveplate request: two crystals (`first`, `second`) whose plates together give a
 //! target retardance at one wavelength with no first-order change with temperature.
 
-use super::{PairPlate, temperature_field, two_plates, wavelength_field};
+use super::{PlateCrystal, temperature_field, two_plates, wavelength_field};
 use crate::contract::fields::Fields;
 use crate::contract::request::waveplate::DEFAULT_ACCEPTANCE_ERROR_WAVES;
 use crate::error::{Error, in_range};
@@ -11,9 +11,9 @@ use crate::optics::wavelength::Wavelength;
 #[derive(Debug, Clone, PartialEq)]
 pub struct AthermalRequest {
     /// First plate: its crystal and, for a biaxial crystal, its cut.
-    pub a: PairPlate,
+    pub a: PlateCrystal,
     /// Second plate.
-    pub b: PairPlate,
+    pub b: PlateCrystal,
     /// Target retardance, waves.
     pub retardance_waves: f64,
     /// Design wavelength.

@@ -8,8 +8,14 @@
 //! the exact trace of the answer follows, so at most 8 stage-doubling stages (256 rays) and 10
 //! folded plates (1 024 rays) are designed; a filter of more would be traced more slowly than a
 //! page should wait.
+//!
+//! The crystal may be biaxial (a catalogue key such as `ktp`, `nx`/`ny`/`nz`, or `x`/`y`/`z`
+//! formulas): every plate is then cut along the principal axis `cut` (`"x"`, `"y"` or `"z"`,
+//! default the cut of largest birefringence, as a waveplate's) and its slower in-face principal
+//! axis stands where a uniaxial plate's optic axis does.
 
-use super::{band, parse_medium, temperature_field, wavelength_field, whole};
+use super::principal::PrincipalCut;
+use super::{band, plate_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -46,8 +52,11 @@ impl Layout {
 /// A birefringent-filter request.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FilterRequest {
-    /// The crystal of every plate.
+    /// The crystal of every plate (uniaxial, or biaxial cut along a principal axis).
     pub medium: Medium,
+    /// For a biaxial crystal, the principal axis along every plate's normal (`cut`); `None` for
+    /// a uniaxial crystal, or to take the cut of largest birefringence.
+    pub cut: Option<PrincipalCut>,
     /// The layout.
     pub layout: Layout,
     /// Number of plates.
@@ -68,9 +77,10 @@ impl FilterRequest {
     /// # Errors
     /// The path of the first offending field: `layout` unknown, `stages` not a whole number in
     /// the layout's range, `bandwidth_nm` missing or not between 0.001 nm and the centre
-    /// wavelength, a crystal or band field as elsewhere.
+    /// wavelength, `cut` unknown or given for a uniaxial crystal, a crystal or band field as
+    /// elsewhere.
     pub fn from_json(f: &mut Fields) -> Result<FilterRequest, Error> {
-        let medium = parse_medium(f)?;
+        let crystal = plate_crystal(f)?;
         let layout = match f.string("layout")? {
             None | Some("stage-doubling") => Layout::StageDoubling,
             Some("folded") => Layout::Folded,
@@ -98,7 +108,8 @@ impl FilterRequest {
             wavelength.nm(),
         )?;
         Ok(FilterRequest {
-            medium,
+            medium: crystal.medium,
+            cut: crystal.cut,
             layout,
             stages,
             wavelength,
@@ -133,7 +144,12 @@ mod tests {
                 r#"{"material": "quartz", "bandwidth_nm": 1, "layout": "folded", "stages": 11}"#,
                 "stages",
             ),
-            (r#"{"material": "ktp", "bandwidth_nm": 1}"#, "material"),
+            // A cut is a biaxial crystal's, and only x, y or z.
+            (r#"{"material": "quartz", "bandwidth_nm": 1, "cut": "x"}"#, "cut"),
+            (r#"{"no": 1.5, "ne": 1.6, "bandwidth_nm": 1, "cut": "z"}"#, "cut"),
+            (r#"{"material": "ktp", "bandwidth_nm": 1, "cut": "xz"}"#, "cut"),
+            (r#"{"nx": 1.5, "ny": 1.6, "nz": 1.7, "bandwidth_nm": 1, "cut": 2}"#, "cut"),
+            (r#"{"nx": 1.5, "ny": 1.6, "nz": 0.7, "bandwidth_nm": 1}"#, "nz"),
             (
                 r#"{"material": "quartz", "bandwidth_nm": 1, "band_nm": [700, 600]}"#,
                 "band_nm",

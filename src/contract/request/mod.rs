@@ -167,16 +167,39 @@ fn parse_crystal(f: &mut Fields, biaxial: bool) -> Result<Medium, Error> {
     }
 }
 
-/// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
-/// One plate of a two-plate request (`first` or `second`): its crystal and, for a biaxial
-/// crystal, its cut, read as a waveplate's `material` and `cut`.
+/// One plate's crystal: a crystal and, for a biaxial crystal, its cut (a plate of a two-plate
+/// request, `first` or `second`; every plate of a birefringent filter; a plate of a broadband
+/// retarder), read as a waveplate's `material` and `cut`.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct PairPlate {
+pub struct PlateCrystal {
     /// The crystal (uniaxial, or biaxial cut along a principal axis).
     pub medium: Medium,
     /// For a biaxial crystal, the principal axis along the plate normal (`cut`); `None` for a
     /// uniaxial crystal, or to take the cut of largest birefringence.
     pub cut: Option<PrincipalCut>,
+}
+
+/// A plate's crystal from the fields of `f`: `material` (or `no`/`ne`, `nx`/`ny`/`nz`,
+/// `dispersion`) and, for a biaxial crystal, an optional `cut`.
+///
+/// # Errors
+/// As [`parse_any_crystal`] and [`principal::read_cut`] (`cut` for a uniaxial crystal).
+fn plate_crystal(f: &mut Fields) -> Result<PlateCrystal, Error> {
+    let medium = parse_any_crystal(f)?;
+    let cut = principal::read_cut(f, &medium)?;
+    Ok(PlateCrystal { medium, cut })
+}
+
+/// A plate's crystal given as an object of its own at `path` (`first`, `materials[2]`), read by
+/// [`plate_crystal`] and finished, so that an unknown member is named within `path`.
+///
+/// # Errors
+/// `path` when `v` is not an object; the path of the first offending member inside it.
+fn plate_object(path: &str, v: &serde_json::Value) -> Result<PlateCrystal, Error> {
+    let mut g = Fields::new(path, v)?;
+    let plate = plate_crystal(&mut g)?;
+    g.finish()?;
+    Ok(plate)
 }
 
 /// The plates `first` and `second` of a two-plate request, each an object holding a `material`
@@ -185,21 +208,18 @@ pub struct PairPlate {
 /// # Errors
 /// `first` or `second` when missing; the path of the first offending field inside them
 /// (`first.cut` for a cut given to a uniaxial crystal).
-fn two_plates(f: &mut Fields) -> Result<(PairPlate, PairPlate), Error> {
-    let mut plate = |name: &'static str| -> Result<PairPlate, Error> {
+fn two_plates(f: &mut Fields) -> Result<(PlateCrystal, PlateCrystal), Error> {
+    let mut plate = |name: &'static str| -> Result<PlateCrystal, Error> {
         let path = f.path_of(name);
         let v = f
             .get(name)
             .ok_or_else(|| Error::new(&path, "is required: {\"material\": …}"))?;
-        let mut g = Fields::new(&path, v)?;
-        let medium = parse_any_crystal(&mut g)?;
-        let cut = principal::read_cut(&mut g, &medium)?;
-        g.finish()?;
-        Ok(PairPlate { medium, cut })
+        plate_object(&path, v)
     };
     Ok((plate("first")?, plate("second")?))
 }
 
+/// A whole number field (a count or a seed): refused, not truncated, when it has a fraction.
 fn whole(f: &mut Fields, name: &'static str, default: f64, lo: f64, hi: f64) -> Result<f64, Error> {
     let path = f.path_of(name);
     let v = in_range(&path, f.number_or(name, default)?, lo, hi)?;
