@@ -298,7 +298,7 @@ fn plates_of_two_crystals_and_bad_requests() {
             "band_nm",
         ),
         (
-            r#"{"kind": "broadband-retarder", "materials": ["quartz", "lbo"], "retardance_waves": 0.25, "band_nm": [500, 600]}"#,
+            r#"{"kind": "broadband-retarder", "materials": ["quartz", "glass"], "retardance_waves": 0.25, "band_nm": [500, 600]}"#,
             "materials[1]",
         ),
         (

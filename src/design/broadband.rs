@@ -214,7 +214,10 @@ pub struct BroadbandDesign {
     pub single_plate: Reference,
     /// How the search ran.
     pub search: Search,
-    /// The stack, ready to load.
+    /// What the solver left out or assumed (a plate that came out of no thickness).
+    pub notes: Vec<String>,
+    /// The stack, ready to load: the plates in order, those of no thickness left out (a scenario
+    /// has no crystal of no thickness; such a plate changes nothing).
     pub scenario: Part,
 }
 
@@ -601,12 +604,25 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         plates: single_model.plates_out(&single),
     };
     // Each plate oriented by its cut: a uniaxial plate's optic axis, a biaxial plate's slower
-    // in-face axis at its azimuth.
+    // in-face axis at its azimuth. The search may leave a plate of no thickness (its lower
+    // bound): it changes nothing and a scenario cannot hold it, so the part leaves it out.
     let elements = plates
         .iter()
         .zip(&req.media)
         .zip(&model.cuts)
+        .filter(|((p, _), _)| p.0 > 0.0)
         .map(|((&(t, az), m), (cut, _))| oriented_crystal(m.medium, t, cut.at(az), GAP_MM))
+        .collect();
+    let notes = plates
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.0 <= 0.0)
+        .map(|(i, _)| {
+            format!(
+                "plate {} came out of no thickness: the stack is made of the other plates, and the scenario leaves it out",
+                i + 1
+            )
+        })
         .collect();
     let mut scenario =
         Part::new(centre_wl, None, elements).at_temperature(t_c);
@@ -626,6 +642,7 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
             generations,
             seed: req.seed,
         },
+        notes,
         scenario,
     })
 }

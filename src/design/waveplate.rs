@@ -53,6 +53,7 @@ use crate::error::Error;
 use crate::optics::general_plate::general_plate_optics;
 use crate::optics::material::{Indices, OpticalSign};
 use crate::optics::plate::{plate_optics, tangential};
+use crate::optics::uniaxial::OpticAxis;
 use crate::optics::wavelength::Wavelength;
 use crate::precision::{
     ACHROMAT_CURVE_INTERVALS, ANGULAR_CURVE_INTERVALS, BAND_CURVE_INTERVALS, BISECTION_STEPS, GOLDEN_SECTION_STEPS,
@@ -203,8 +204,18 @@ impl Plate {
             }
             PlateCut::Principal(_) => {
                 let o = self.oriented();
-                let crystal = o.crystal(principal_at(medium, wl, t_c).ok()?).ok()?;
+                let n = principal_at(medium, wl, t_c).ok()?;
+                let crystal = o.crystal(n).ok()?;
                 let l = self.thickness_mm * growth_along_z(medium, &o.axes(), t_c);
+                // Two equal principal indices make a uniaxial crystal, optic axis along the third
+                // principal axis: evaluated by the uniaxial closed form, as the trace resolves
+                // such a crystal (`contract::resolve`), so that a tensor with n_x = n_y designs
+                // the very part its n_o, n_e form does.
+                if let Some(k) = crystal.uniaxial_axis() {
+                    let ix = Indices::new(n[(k + 1) % 3], n[k]).ok()?;
+                    let axis = OpticAxis::from_vector(o.axes().column(k).into()).ok()?;
+                    return Some(plate_optics(ix, axis, l, wl, qt)?.retardance_rad.abs());
+                }
                 Some(general_plate_optics(&crystal, l, wl, qt)?.retardance_rad.abs())
             }
         }
