@@ -4,10 +4,15 @@
 //! An air request must be the vacuum request at Ciddor's vacuum wavelength (the conversion
 //! itself is checked against published air/vacuum pairs in `src/optics/material/air.rs`, and for
 //! scenarios in `tests/spectrum.rs`); the answer reports both wavelengths, and its scenario reads
-//! back to the very vacuum wavelength the design used. The group indices the answers give must be
+//! back to the very vacuum wavelength the design used. A filter's own widths (its pass band met,
+//! the next orders' pass bands, the centre's drift) are vacuum widths with `air_` twins beside
+//! them, each the vacuum width times dλ_air/dλ_vac at the centre, taken here by a central
+//! difference of the standard-air conversion itself. The group indices the answers give must be
 //! those a trace of the answer's own scenario reports, and the group delay (g₂ − g₁)·L/c.
 
-use doublespar::{DESIGN_KINDS, ElementReport, Scenario, solve_design, trace_scenario, vacuum_from_air};
+use doublespar::{
+    DESIGN_KINDS, ElementReport, Scenario, Wavelength, air_from_vacuum, solve_design, trace_scenario, vacuum_from_air,
+};
 use serde_json::{Value, json};
 
 /// Speed of light in vacuum, mm/ps: 299 792 458 m/s exactly (SI definition of the metre).
@@ -298,4 +303,64 @@ fn waveplate_and_displacer_answers_give_the_group_indices_of_the_trace() {
         json!({"kind": "waveplate", "material": "quartz", "retardance_waves": 0.25, "wavelength_nm": 632.816, "wavelength_in": "air"}),
         ["o", "e"],
     );
+}
+
+#[test]
+fn a_filter_asked_in_air_gives_its_widths_in_air_beside_the_vacuum_ones() {
+    // dλ_air/dλ_vac at the vacuum centre, by a central difference over ±0.01 nm of λ_air =
+    // λ_vac / n_air(λ_vac) (Ciddor 1996, `air_from_vacuum`): its truncation error, of order
+    // (n − 1)(h/λ)², and its rounding, 1e-16 λ / h, are both below 1e-10 here.
+    let slope = |vac_nm: f64| {
+        let air = |nm: f64| air_from_vacuum(Wavelength::from_nm(nm).unwrap()).expect("in range");
+        let h = 0.01;
+        (air(vac_nm + h) - air(vac_nm - h)) / (2.0 * h)
+    };
+    // The last, at the folded filter's lowest order, has no order below it.
+    for (material, air_nm, layout, stages, width_nm) in [
+        ("quartz", 656.28, "stage-doubling", 4, 2.0),
+        ("ktp", 1064.0, "folded", 5, 2.0),
+        ("mgf2", 589.0, "stage-doubling", 1, 2.0),
+        ("quartz", 656.28, "folded", 2, 300.0),
+    ] {
+        let request = json!({"kind": "birefringent-filter", "material": material, "layout": layout, "stages": stages,
+                             "wavelength_nm": air_nm, "bandwidth_nm": width_nm, "wavelength_in": "air"});
+        let a = solved(&request);
+        let vac = a["wavelength_nm"].as_f64().unwrap();
+        let k = slope(vac);
+        assert!((k - 1.0).abs() < 1e-3 && k != 1.0, "{request}: dλ_air/dλ_vac = {k}");
+        let mut twins = 0;
+        for name in ["fwhm_nm", "neighbour_orders_fwhm_nm", "centre_shift_nm_per_k"] {
+            let (v, t) = (&a[name], &a[format!("air_{name}")]);
+            let pairs: Vec<(&Value, &Value)> = match (v, t) {
+                (Value::Array(v), Value::Array(t)) => v.iter().zip(t).collect(),
+                _ => vec![(v, t)],
+            };
+            for (v, t) in pairs {
+                match (v.as_f64(), t.as_f64()) {
+                    (Some(v), Some(t)) => {
+                        twins += 1;
+                        println!("{material} {layout}: air_{name} / ({name} × dλ_air/dλ_vac) − 1 = {:e}", t / (v * k) - 1.0);
+                        assert!(
+                            (t - v * k).abs() <= 1e-9 * (v * k).abs(),
+                            "{request}: air_{name} {t} against {v} × {k} = {}",
+                            v * k
+                        );
+                    }
+                    // A figure the answer does not have (the order below the lowest) has no twin.
+                    (None, twin) => assert!(twin.is_none(), "{request}: air_{name} {t} of no {name}"),
+                    (Some(v), None) => panic!("{request}: {name} {v} has no air twin: {t}"),
+                }
+            }
+        }
+        assert!(twins >= 3, "{request}: {twins} twins");
+        // The same filter asked in vacuum has none: its widths are the vacuum ones.
+        let mut vacuum = request.clone();
+        vacuum["wavelength_nm"] = json!(vac);
+        vacuum["bandwidth_nm"] = a["bandwidth_nm"].clone();
+        vacuum.as_object_mut().unwrap().remove("wavelength_in");
+        let v = solved(&vacuum);
+        assert!(v.get("air_fwhm_nm").is_none(), "{vacuum}");
+        let (fv, fa) = (v["fwhm_nm"].as_f64().unwrap(), a["fwhm_nm"].as_f64().unwrap());
+        assert!((fv - fa).abs() <= 1e-12 * fa, "{request}: fwhm_nm {fa}, the vacuum request's {fv}");
+    }
 }

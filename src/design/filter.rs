@@ -85,6 +85,9 @@ pub struct FilterDesign {
     /// The nearest transmission peaks of the same height on either side of the centre, nm
     /// (shorter, longer; `null` where none is within the crystal's formula).
     pub neighbour_peaks_nm: [Option<f64>; 2],
+    /// The pass band's width (FWHM) the thinnest plate's order one lower and one higher would
+    /// give, nm (`null` below the lowest order): the widths next to the one met.
+    pub neighbour_orders_fwhm_nm: [Option<f64>; 2],
     /// Transmission at the centre wavelength of light polarized along the first polarizer,
     /// from the whole trace.
     pub peak_transmission: f64,
@@ -383,11 +386,20 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
             Some((at(t0 + STEP_K)? - at(t0 - STEP_K)?) / (2.0 * STEP_K))
         })
         .flatten();
+    let neighbour_orders_fwhm_nm = [
+        (order > lowest).then(|| width_of(order - 1).ok()).flatten(),
+        width_of(order + 1).ok(),
+    ];
+    let next: Vec<String> = neighbour_orders_fwhm_nm
+        .iter()
+        .flatten()
+        .map(|w| format!("{w:.4} nm"))
+        .collect();
     let mut notes = vec![format!(
         "orders are whole, so the pass band is {:.4} nm for the {:.4} nm asked (the next orders give {})",
         fwhm_nm,
         req.bandwidth_nm,
-        neighbours_text(&width_of, order, lowest)
+        next.join(" and ")
     )];
     if req.layout == Layout::StageDoubling {
         notes.push("every polarizer is parallel to the first; unpolarized light loses half at the first".into());
@@ -403,6 +415,7 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
         fwhm_nm,
         order,
         neighbour_peaks_nm,
+        neighbour_orders_fwhm_nm,
         peak_transmission: result.total_power,
         centre_shift_nm_per_k,
         plates: plates
@@ -420,20 +433,6 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
         notes,
         scenario,
     })
-}
-
-/// The widths of the orders either side of `order`, in words.
-fn neighbours_text(width_of: &dyn Fn(u32) -> Result<f64, Error>, order: u32, lowest: u32) -> String {
-    let mut parts = Vec::new();
-    if order > lowest
-        && let Ok(w) = width_of(order - 1)
-    {
-        parts.push(format!("{w:.4} nm"));
-    }
-    if let Ok(w) = width_of(order + 1) {
-        parts.push(format!("{w:.4} nm"));
-    }
-    parts.join(" and ")
 }
 
 /// The answer's set-up: polarizers and plates in order, 1 mm apart, lit along the first

@@ -48,7 +48,7 @@ pub(super) fn filter(r: &mut Report) {
     r.section("Performance");
     principal_indices(r);
     r.quantity("centre wavelength", "wavelength_nm", "nm");
-    r.quantity("pass band (FWHM) met", "fwhm_nm", "nm");
+    width(r, "pass band (FWHM) met", "fwhm_nm");
     r.quantity("pass band asked", "bandwidth_nm", "nm");
     r.quantity(
         "thinnest plate's order",
@@ -71,6 +71,11 @@ pub(super) fn filter(r: &mut Report) {
         })
         .collect();
     r.line("neighbouring peaks", format!("{} and {}", peaks[0], peaks[1]));
+    let orders: Vec<String> = (0..2)
+        .filter_map(|i| r.f(&format!("neighbour_orders_fwhm_nm.{i}")).map(|v| format!("{} nm", num(v))))
+        .collect();
+    r.line("next orders' pass bands", orders.join(" and "));
+    air_twin(r, "neighbour_orders_fwhm_nm");
     if let Some((lo_nm, hi_nm, lo, hi)) = range_of(r.v.get("curve")) {
         r.line(
             "transmission over the curve",
@@ -81,8 +86,34 @@ pub(super) fn filter(r: &mut Report) {
 
     r.section("Tolerances");
     match r.f("centre_shift_nm_per_k") {
-        Some(_) => r.quantity("centre drift with temperature", "centre_shift_nm_per_k", "nm/K"),
+        Some(_) => {
+            r.quantity("centre drift with temperature", "centre_shift_nm_per_k", "nm/K");
+            air_twin(r, "centre_shift_nm_per_k");
+        }
         None => r.line("centre drift with temperature", "no thermal data for this crystal"),
     }
     r.notes(&["cut_note"]);
+}
+
+/// A width `path` in nm with, for a request in standard air, its air twin beside it.
+fn width(r: &mut Report, label: &str, path: &str) {
+    let Some(v) = r.f(path) else { return };
+    let air = r
+        .f(&format!("air_{path}"))
+        .map_or_else(String::new, |a| format!(" ({} nm in standard air)", num(a)));
+    r.line(label, format!("{} nm{air}", num(v)));
+}
+
+/// The air twin of a width already shown in vacuum (lists and rates are stated on a line of
+/// their own), as "  in standard air".
+fn air_twin(r: &mut Report, path: &str) {
+    let Some(v) = r.at(&format!("air_{path}")).cloned() else {
+        return;
+    };
+    let unit = if path.ends_with("_per_k") { "nm/K" } else { "nm" };
+    let text: Vec<String> = match &v {
+        serde_json::Value::Array(l) => l.iter().filter_map(serde_json::Value::as_f64).map(num).collect(),
+        other => other.as_f64().map(num).into_iter().collect(),
+    };
+    r.line("  in standard air", format!("{} {unit}", text.join(" and ")));
 }

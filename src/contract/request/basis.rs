@@ -18,8 +18,12 @@
 //! `air_band_nm`, `air_wavelengths_nm`, `air_made_for_nm`, `air_bandwidth_nm`,
 //! `tolerances.air_wavelength_nm`), as a trace result writes `air_wavelength_nm` beside its
 //! vacuum `wavelength_nm`, with `air_index` (the index of standard air at the design
-//! wavelength) where the kind has a `wavelength_nm`. The answer's curves and every other
-//! wavelength in it are vacuum wavelengths. The answer's `scenario` documents are written in the
+//! wavelength) where the kind has a `wavelength_nm`. A width the answer reports of its own (a
+//! filter's `fwhm_nm`, listed in [`ANSWER_WIDTHS`]) is a vacuum width, and for `"air"` it gets an
+//! `air_` twin beside it scaled by dλ_air/dλ_vac at the request's `wavelength_nm` (the reciprocal
+//! of the scale above, at the same point), so that it is the width between the air wavelengths of
+//! its two ends to first order. The answer's curves and every other wavelength in it are vacuum
+//! wavelengths. The answer's `scenario` documents are written in the
 //! request's basis: for `"air"`, the air wavelength with `"wavelength_in": "air"`, so that the
 //! page shows the number the designer typed and reading the scenario back converts it to the
 //! very vacuum wavelength the design used (bit for bit where the scenario's wavelength is one the
@@ -76,6 +80,16 @@ const FIELDS: &[(&str, &str, Form)] = &[
     ("lc-voltage", "wavelength_nm", Form::Single(Some(DEFAULT_NM))),
 ];
 
+/// Widths that answers report of their own, nm (kind, path with `.` between names): each a
+/// number, or a list whose `null`s stay `null`. For an air request each gets an `air_` twin in
+/// standard air (see the module header); a `null` figure gets none.
+pub const ANSWER_WIDTHS: &[(&str, &str)] = &[
+    ("birefringent-filter", "fwhm_nm"),
+    ("birefringent-filter", "neighbour_orders_fwhm_nm"),
+    // A drift of the centre wavelength is a width per kelvin.
+    ("birefringent-filter", "centre_shift_nm_per_k"),
+];
+
 /// One wavelength field of the request as given and in vacuum.
 #[derive(Debug, Clone, PartialEq)]
 struct Converted {
@@ -101,6 +115,9 @@ pub struct WavelengthBasis {
     converted: Vec<Converted>,
     /// The index of standard air at the request's `wavelength_nm` (air requests with one).
     air_index: Option<f64>,
+    /// The answer's own widths ([`ANSWER_WIDTHS`] of the request's kind) and dλ_air/dλ_vac at its
+    /// `wavelength_nm` (air requests with one).
+    air_widths: Option<(Vec<&'static str>, f64)>,
     /// The conversion's warnings, each prefixed by its field.
     warnings: Vec<String>,
 }
@@ -129,6 +146,18 @@ fn vacuum_nm(path: &str, air_nm: f64, warnings: &mut Vec<String>) -> Result<(f64
     let c = vacuum_from_air(air_nm).map_err(|e| Error::new(path, e.message))?;
     warnings.extend(c.warnings.iter().map(|w| format!("{path}: {w}")));
     Ok((c.vacuum.nm(), c.air_index))
+}
+
+/// A vacuum width `v` (a number, or a list of numbers and `null`s) in standard air, each number
+/// times `scale` (dλ_air/dλ_vac); `None` for anything else (a `null` figure).
+fn in_air(v: &Value, scale: f64) -> Option<Value> {
+    match v {
+        Value::Number(n) => n.as_f64().map(|x| json!(x * scale)),
+        Value::Array(list) => Some(Value::Array(
+            list.iter().map(|x| in_air(x, scale).unwrap_or(Value::Null)).collect(),
+        )),
+        _ => None,
+    }
 }
 
 /// dλ_vac/dλ_air at `air_nm` (see the module header).
@@ -166,6 +195,7 @@ impl WavelengthBasis {
             air,
             converted: Vec::new(),
             air_index: None,
+            air_widths: None,
             warnings: Vec::new(),
         };
         if let Some(m) = out.request.as_object_mut() {
@@ -194,6 +224,20 @@ impl WavelengthBasis {
                 given,
                 vacuum,
             });
+        }
+        let widths: Vec<&'static str> = ANSWER_WIDTHS
+            .iter()
+            .filter(|(k, _)| *k == kind)
+            .map(|(_, p)| *p)
+            .collect();
+        let centre = out
+            .converted
+            .iter()
+            .find(|c| c.path == "wavelength_nm")
+            .and_then(|c| c.given.as_f64());
+        if air && !widths.is_empty() {
+            // The centre converted above, so its scale exists; a failure leaves the twins out.
+            out.air_widths = centre.and_then(|c| width_scale(c).ok()).map(|s| (widths, 1.0 / s));
         }
         Ok(out)
     }
@@ -274,6 +318,16 @@ impl WavelengthBasis {
         }
         if !self.air {
             return;
+        }
+        if let Some((widths, scale)) = &self.air_widths {
+            for path in widths {
+                let Some(twin) = at(answer, path).and_then(|v| in_air(v, *scale)) else {
+                    continue;
+                };
+                if let Some((obj, name)) = place(answer, path) {
+                    obj.insert(format!("air_{name}"), twin);
+                }
+            }
         }
         if let Some(m) = answer.as_object_mut() {
             if let Some(n) = self.air_index {
