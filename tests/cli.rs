@@ -737,6 +737,7 @@ fn design_reports_read_top_down_and_match_their_golden_text() {
         "broadband-quartz-half",
         "broadband-quartz-mgf2-half",
         "filter-ktp-folded-x-cut",
+        "filter-quartz-air",
         "broadband-ktp-quarter",
         "waveplate-ktp-half",
         "displacer-lbo-xz",
