@@ -615,7 +615,7 @@ fn plate_cuts(r: &mut Report) -> Vec<String> {
         if let [x, y, z] = n.as_slice()
             && !crystals.contains(&m)
         {
-            r.line(&format!("principal indices, {m}"), format!("n_x {x}, n_y {y}, n_z {z}"));
+            r.line("principal indices", format!("{m}: n_x {x}, n_y {y}, n_z {z}"));
             crystals.push(m);
         }
         if !notes.contains(&note) {
