@@ -144,7 +144,9 @@ fn closed_form(layout: &str, stages: usize, d: f64, dn: f64, nm: f64) -> f64 {
         let chi = ((2.0 * rho).cos() * (gamma / 2.0).sin()).acos();
         ((2.0 * rho).tan() * chi.cos() * (stages as f64 * chi).sin() / chi.sin()).powi(2)
     } else {
-        (0..stages).map(|k| (0.5 * gamma * f64::from(1 << k)).cos().powi(2)).product()
+        (0..stages)
+            .map(|k| (0.5 * gamma * f64::from(1 << k)).cos().powi(2))
+            .product()
     }
 }
 
@@ -190,7 +192,12 @@ fn biaxial_filters_traced_whole_peak_at_their_centre_with_the_width_they_report(
         // Whole plates of waves (half waves, folded) at the centre: the trace passes everything.
         let peak = traced_transmission(&a, nm0);
         close(peak, 1.0, 1e-12, &format!("{doc}: traced transmission at the centre"));
-        close(num(&a, "/peak_transmission"), peak, 1e-12, &format!("{doc}: answer's peak"));
+        close(
+            num(&a, "/peak_transmission"),
+            peak,
+            1e-12,
+            &format!("{doc}: answer's peak"),
+        );
         // ... and peaks there.
         let at = traced_peak(&a, nm0, 0.25 * fwhm);
         close(at, nm0, 1e-6 * fwhm, &format!("{doc}: traced peak"));
@@ -230,7 +237,11 @@ fn biaxial_filters_traced_whole_peak_at_their_centre_with_the_width_they_report(
 fn traced_jones(answer: &Value, nm: f64) -> [[Complex64; 2]; 2] {
     let column = |jones: Value| {
         let r = trace_scenario(&scenario_at(answer, nm, Some(json!({"kind": "jones", "jones": jones})))).unwrap();
-        assert_eq!(r.spots.len(), 1, "the plates' rays meet in one spot at normal incidence");
+        assert_eq!(
+            r.spots.len(),
+            1,
+            "the plates' rays meet in one spot at normal incidence"
+        );
         let j = r.spots[0].jones.expect("a fully polarized input");
         [Complex64::new(j[0][0], j[0][1]), Complex64::new(j[1][0], j[1][1])]
     };
@@ -269,16 +280,32 @@ fn biaxial_broadband_retarders_traced_whole_give_the_retardance_they_report() {
             .filter(|&i| num(&plates[i], "/thickness_mm") > 0.0)
             .collect();
         let left_out = plates.len() - elements.len();
-        assert_eq!(a["scenario"]["elements"].as_array().unwrap().len(), elements.len(), "{doc}");
-        let said = a["notes"].as_array().unwrap().iter().filter(|n| n.as_str().unwrap().contains("no thickness")).count();
+        assert_eq!(
+            a["scenario"]["elements"].as_array().unwrap().len(),
+            elements.len(),
+            "{doc}"
+        );
+        let said = a["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|n| n.as_str().unwrap().contains("no thickness"))
+            .count();
         assert_eq!(said, left_out, "{doc}: {}", a["notes"]);
         for &i in biaxial.iter().filter(|i| elements.contains(i)) {
             let e = &a["scenario"]["elements"][elements.iter().position(|&k| k == i).unwrap()];
             let (cut, slow) = cut_and_slow_azimuth(e, indices(&plates[i]));
-            assert_eq!(plates[i]["cut"], "xyz".chars().nth(cut).unwrap().to_string(), "{doc}: plate {i}");
+            assert_eq!(
+                plates[i]["cut"],
+                "xyz".chars().nth(cut).unwrap().to_string(),
+                "{doc}: plate {i}"
+            );
             let want = num(&plates[i], "/axis_azimuth_deg").rem_euclid(180.0);
             let d = (slow - want + 90.0).rem_euclid(180.0) - 90.0;
-            assert!(d.abs() < 1e-9, "{doc}: plate {i}: slow axis at {slow}°, reported {want}°");
+            assert!(
+                d.abs() < 1e-9,
+                "{doc}: plate {i}: slow axis at {slow}°, reported {want}°"
+            );
         }
         for p in a["curve"].as_array().unwrap() {
             let nm = num(p, "/wavelength_nm");
@@ -310,7 +337,9 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
         for layout in ["stage-doubling", "folded"] {
             let filter = |crystal: Value| {
                 let mut doc = json!({"kind": "birefringent-filter", "layout": layout, "stages": 4, "wavelength_nm": 589.3, "bandwidth_nm": 2});
-                doc.as_object_mut().unwrap().extend(crystal.as_object().unwrap().clone());
+                doc.as_object_mut()
+                    .unwrap()
+                    .extend(crystal.as_object().unwrap().clone());
                 design(&doc.to_string())
             };
             let (t, i) = (
@@ -318,7 +347,13 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
                 filter(json!({"no": no, "ne": ne})),
             );
             let what = format!("({no}, {ne}) {layout}");
-            for path in ["/fwhm_nm", "/total_thickness_mm", "/neighbour_peaks_nm/0", "/neighbour_peaks_nm/1", "/peak_transmission"] {
+            for path in [
+                "/fwhm_nm",
+                "/total_thickness_mm",
+                "/neighbour_peaks_nm/0",
+                "/neighbour_peaks_nm/1",
+                "/peak_transmission",
+            ] {
                 relative(num(&t, path), num(&i, path), &format!("{what} {path}"));
             }
             assert_eq!(t["order"], i["order"], "{what}");
@@ -328,7 +363,10 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
                     num(&i, &format!("/plates/{k}/thickness_mm")),
                     &format!("{what} plate {k}"),
                 );
-                assert_eq!(t["plates"][k]["axis_azimuth_deg"], i["plates"][k]["axis_azimuth_deg"], "{what}");
+                assert_eq!(
+                    t["plates"][k]["axis_azimuth_deg"], i["plates"][k]["axis_azimuth_deg"],
+                    "{what}"
+                );
             }
             // The curves are traced by one mode solver for both forms (the trace resolves the
             // tensor as uniaxial too); allowed besides 1e-15 of each plate's phase, some hundreds
@@ -337,7 +375,12 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
             let (ct, ci) = (t["curve"].as_array().unwrap(), i["curve"].as_array().unwrap());
             assert_eq!(ct.len(), ci.len());
             for (p, q) in ct.iter().zip(ci) {
-                same(num(p, "/1"), num(q, "/1"), 1e-12 + 1e-15 * phase, &format!("{what} curve at {}", num(p, "/0")));
+                same(
+                    num(p, "/1"),
+                    num(q, "/1"),
+                    1e-12 + 1e-15 * phase,
+                    &format!("{what} curve at {}", num(p, "/0")),
+                );
             }
         }
     }
@@ -347,7 +390,9 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
     // runs in a landscape turned by 90° and takes another path.
     let retarder = |crystal: Value| {
         let mut doc = json!({"kind": "broadband-retarder", "plates": 3, "retardance_waves": 0.25, "band_nm": [500, 800], "generations": 300});
-        doc.as_object_mut().unwrap().extend(crystal.as_object().unwrap().clone());
+        doc.as_object_mut()
+            .unwrap()
+            .extend(crystal.as_object().unwrap().clone());
         design(&doc.to_string())
     };
     let (t, i) = (
@@ -364,16 +409,26 @@ fn a_tensor_with_two_equal_indices_designs_what_its_no_ne_form_designs() {
         let path = format!("/departures/{f}");
         relative(num(&t, &path), num(&i, &path), &format!("broadband {path}"));
     }
-    for (p, q) in t["curve"].as_array().unwrap().iter().zip(i["curve"].as_array().unwrap()) {
-        relative(num(p, "/retardance_waves"), num(q, "/retardance_waves"), "broadband curve");
+    for (p, q) in t["curve"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(i["curve"].as_array().unwrap())
+    {
+        relative(
+            num(p, "/retardance_waves"),
+            num(q, "/retardance_waves"),
+            "broadband curve",
+        );
     }
 }
 
 #[test]
 fn bad_biaxial_filter_and_retarder_requests_name_the_cut() {
     let filter = |crystal: &str| format!(r#"{{"kind": "birefringent-filter", {crystal}, "bandwidth_nm": 1}}"#);
-    let retarder =
-        |crystal: &str| format!(r#"{{"kind": "broadband-retarder", {crystal}, "retardance_waves": 0.25, "band_nm": [500, 700]}}"#);
+    let retarder = |crystal: &str| {
+        format!(r#"{{"kind": "broadband-retarder", {crystal}, "retardance_waves": 0.25, "band_nm": [500, 700]}}"#)
+    };
     for (doc, field, words) in [
         // A cut is a biaxial crystal's.
         (filter(r#""material": "quartz", "cut": "x""#), "cut", "biaxial"),
@@ -381,10 +436,22 @@ fn bad_biaxial_filter_and_retarder_requests_name_the_cut() {
         (retarder(r#""material": "calcite", "cut": "y""#), "cut", "biaxial"),
         // Only x, y or z.
         (filter(r#""material": "ktp", "cut": "xy""#), "cut", "expected x, y or z"),
-        (retarder(r#""material": "lbo", "cut": "a""#), "cut", "expected x, y or z"),
+        (
+            retarder(r#""material": "lbo", "cut": "a""#),
+            "cut",
+            "expected x, y or z",
+        ),
         // A cut whose two in-face indices are equal cannot retard.
-        (filter(r#""nx": 1.5, "ny": 1.5, "nz": 1.6, "cut": "z""#), "cut", "no birefringence"),
-        (retarder(r#""nx": 1.5, "ny": 1.5, "nz": 1.6, "cut": "z""#), "cut", "no birefringence"),
+        (
+            filter(r#""nx": 1.5, "ny": 1.5, "nz": 1.6, "cut": "z""#),
+            "cut",
+            "no birefringence",
+        ),
+        (
+            retarder(r#""nx": 1.5, "ny": 1.5, "nz": 1.6, "cut": "z""#),
+            "cut",
+            "no birefringence",
+        ),
         // In a list of plates, each entry names its own cut; a cut beside the list is refused.
         (
             retarder(r#""materials": ["quartz", {"material": "quartz", "cut": "x"}]"#),
@@ -396,7 +463,11 @@ fn bad_biaxial_filter_and_retarder_requests_name_the_cut() {
             "materials[0].cut",
             "no birefringence",
         ),
-        (retarder(r#""materials": ["ktp", "quartz"], "cut": "x""#), "cut", "its own entry"),
+        (
+            retarder(r#""materials": ["ktp", "quartz"], "cut": "x""#),
+            "cut",
+            "its own entry",
+        ),
     ] {
         let e = solve_design_str(&doc).expect_err(&doc);
         assert_eq!(e.field, field, "{doc}: {e}");

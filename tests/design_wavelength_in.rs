@@ -339,7 +339,10 @@ fn a_filter_asked_in_air_gives_its_widths_in_air_beside_the_vacuum_ones() {
                 match (v.as_f64(), t.as_f64()) {
                     (Some(v), Some(t)) => {
                         twins += 1;
-                        println!("{material} {layout}: air_{name} / ({name} × dλ_air/dλ_vac) − 1 = {:e}", t / (v * k) - 1.0);
+                        println!(
+                            "{material} {layout}: air_{name} / ({name} × dλ_air/dλ_vac) − 1 = {:e}",
+                            t / (v * k) - 1.0
+                        );
                         assert!(
                             (t - v * k).abs() <= 1e-9 * (v * k).abs(),
                             "{request}: air_{name} {t} against {v} × {k} = {}",
@@ -361,6 +364,9 @@ fn a_filter_asked_in_air_gives_its_widths_in_air_beside_the_vacuum_ones() {
         let v = solved(&vacuum);
         assert!(v.get("air_fwhm_nm").is_none(), "{vacuum}");
         let (fv, fa) = (v["fwhm_nm"].as_f64().unwrap(), a["fwhm_nm"].as_f64().unwrap());
-        assert!((fv - fa).abs() <= 1e-12 * fa, "{request}: fwhm_nm {fa}, the vacuum request's {fv}");
+        assert!(
+            (fv - fa).abs() <= 1e-12 * fa,
+            "{request}: fwhm_nm {fa}, the vacuum request's {fv}"
+        );
     }
 }

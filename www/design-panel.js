@@ -84,14 +84,15 @@ function setGroupHint(box, text) {
 }
 
 // The kinds whose solver takes a biaxial crystal (src/contract/request/principal.rs): a
-// waveplate or a tilt-tuned plate cut along a principal axis, a displacer cut in a principal
-// plane, and either plate of a two-crystal pair, each with its own cut (`first.cut`,
-// `second.cut`). The other kinds' lists hide the biaxial crystals (a chosen one stays, and the
-// core names the field).
-const BIAXIAL_KINDS = new Set(['waveplate', 'tilt-tuning', 'displacer']);
+// waveplate, a tilt-tuned plate and the plates of a birefringent filter or a broadband retarder
+// cut along a principal axis, a displacer cut in a principal plane, and either plate of a
+// two-crystal pair, each with its own cut (`first.cut`, `second.cut`) and, like the single
+// plate, custom principal indices of its own (`first.nx` …). The other kinds' lists hide the
+// biaxial crystals (a chosen one stays, and the core names the field).
+const BIAXIAL_KINDS = new Set(['waveplate', 'tilt-tuning', 'displacer', 'birefringent-filter', 'broadband-retarder']);
 const PAIR_KINDS = new Set(['achromat', 'athermal-waveplate']);
-// The kinds whose plate is cut along a principal axis (the select `cut`).
-const CUT_KINDS = new Set(['waveplate', 'tilt-tuning']);
+// The kinds whose plates are cut along a principal axis (the select `cut`).
+const CUT_KINDS = new Set(['waveplate', 'tilt-tuning', 'birefringent-filter', 'broadband-retarder']);
 
 /** The select of a biaxial plate's cut, the principal axis along the beam (empty: the core's default). */
 function cutField(state, path, spoken) {
@@ -103,13 +104,17 @@ function cutField(state, path, spoken) {
 }
 const isBiaxial = (state, key) => key === 'principal' || state.materialList.some((m) => m.key === key && m.kind === 'biaxial');
 
-/** Material select (catalogue and custom indices) with its n_o / n_e fields, for one prefix. */
+/**
+ * Material select (catalogue, custom indices, custom principal indices) with its n_o / n_e and
+ * n_x / n_y / n_z fields, for one prefix ('' for the part's one crystal, `first.` or `second.`
+ * for a pair's plate, which also has its own cut).
+ */
 function mediumFields(state, prefix, fallback, whose) {
   // The page's name of each material, which marks a formula without a journal source
   // ("unverified data").
   const options = state.materialList.map((m) => [m.key, materialName(state, m.key)]);
   options.push(['custom', 'custom indices']);
-  if (!prefix) options.push(['principal', 'custom principal indices (biaxial)']);
+  options.push(['principal', 'custom principal indices (biaxial)']);
   const of = whose ? ` of the ${whose}` : '';
   const material = addField(state, `${prefix}material`, { label: 'Material', spoken: `Material${whose ? of : ' of the part'}`, kind: 'select', options });
   const key = state.materialList.some((m) => m.key === fallback) ? fallback : (state.materialList[0]?.key ?? 'custom');
@@ -117,14 +122,14 @@ function mediumFields(state, prefix, fallback, whose) {
   const no = addField(state, `${prefix}no`, { label: 'nₒ, ordinary index', spoken: `Ordinary index${whose ? of : ' of the part'}`, value: 1.6584, step: 0.001 });
   const ne = addField(state, `${prefix}ne`, { label: 'nₑ, extraordinary index', spoken: `Extraordinary index${whose ? of : ' of the part'}`, value: 1.4864, step: 0.001 });
   const custom = h('div', { className: 'subgroup custom-indices' }, no.row, ne.row);
-  if (prefix) {
-    const cut = cutField(state, `${prefix}cut`, `Cut of the ${whose}`);
-    return { material, custom, nodes: [material.row, custom, cut.row] };
-  }
   // A biaxial crystal by its three principal indices (n_x < n_y < n_z by convention, not required).
   const start = { nx: 1.74, ny: 1.75, nz: 1.83 };
   const principal = h('div', { className: 'subgroup custom-indices' }, ...['nx', 'ny', 'nz'].map((k) =>
-    addField(state, k, { label: `n${k[1]}, principal index`, spoken: `Principal index n ${k[1]} of the part`, value: start[k], step: 0.001 }).row));
+    addField(state, `${prefix}${k}`, { label: `n${k[1]}, principal index`, spoken: `Principal index n ${k[1]}${whose ? of : ' of the part'}`, value: start[k], step: 0.001 }).row));
+  if (prefix) {
+    const cut = cutField(state, `${prefix}cut`, `Cut of the ${whose}`);
+    return { material, custom, principal, nodes: [material.row, custom, principal, cut.row] };
+  }
   return { material, custom, principal, nodes: [material.row, custom, principal] };
 }
 
@@ -246,8 +251,8 @@ function buildDesignFields(state) {
   // catalogue key per plate; other orders are asked in a JSON request).
   const alternate = addField(state, 'materials', {
     label: 'Alternate with', spoken: 'Second crystal of the retarder, alternating plate by plate', kind: 'select',
-    options: [['', 'no second crystal'], ...state.materialList.filter((m) => m.kind !== 'biaxial').map((m) => [m.key, materialName(state, m.key)])],
-    hint: 'Plates 1, 3, 5 … of the first crystal, 2, 4 … of this one; catalogue crystals only.',
+    options: [['', 'no second crystal'], ...state.materialList.map((m) => [m.key, materialName(state, m.key)])],
+    hint: 'Plates 1, 3, 5 … of the first crystal, 2, 4 … of this one, a biaxial one at its cut of largest birefringence; catalogue crystals only.',
   });
   const fastAxis = addField(state, 'fast_axis_deg', { label: 'Fast axis', spoken: 'Fast axis of the retarder', unit: '°', value: 0 });
   const maxThick = addField(state, 'max_thickness_mm', { label: 'Thickest plate', spoken: 'Thickest plate searched', unit: 'mm', placeholder: 'two full waves' });
@@ -277,8 +282,8 @@ function buildDesignFields(state) {
   state.design.layout['quartz-rotator'] = [rotation.row, wl.row, band, hand.row, minThick.row, rotTol.row, ellTol.row, maxInc.row];
   state.design.layout['tilt-tuning'] = [...medium.nodes, principalCut.row, wl.row, retardance.row, size.row, thickness.row, orderNumber.row, madeFor.row, axisAz.row, tiltAz.row, maxTilt.row];
   state.design.layout['athermal-waveplate'] = [firstBox, secondBox, retardance.row, wl.row, accErr.row];
-  state.design.layout['birefringent-filter'] = [...medium.nodes, layout.row, stages.row, wl.row, bandwidth.row, band];
-  state.design.layout['broadband-retarder'] = [...medium.nodes, alternate.row, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
+  state.design.layout['birefringent-filter'] = [...medium.nodes, principalCut.row, layout.row, stages.row, wl.row, bandwidth.row, band];
+  state.design.layout['broadband-retarder'] = [...medium.nodes, principalCut.row, alternate.row, plateCount.row, retardance.row, fastAxis.row, band, maxThick.row, generations.row, seed.row];
   // The wavelength's basis, then the temperature, beside the wavelength as in the set-up (after
   // the design wavelengths of a pair; a broadband retarder's only wavelengths are its band).
   for (const nodes of Object.values(state.design.layout)) {
@@ -326,8 +331,7 @@ function buildDesignFields(state) {
   state.design.hints.recombiner = { cut_tilt_deg: `Of both displacers. ${cutHint}` };
   state.design.bandBox = band;
   state.design.tolBox = tolerances;
-  state.design.mediumBoxes = [['', medium.custom], ['first.', first.custom], ['second.', second.custom]];
-  state.design.principalBox = medium.principal;
+  state.design.mediumBoxes = [['', medium.custom, medium.principal], ['first.', first.custom, first.principal], ['second.', second.custom, second.principal]];
 }
 
 /** Shows the fields of the chosen kind, in its order, and the ones its selects call for. */
@@ -359,10 +363,11 @@ function layoutDesignFields(state) {
     const row = state.design.fields[`tolerances.${k}`].row;
     if (row.hidden !== !tols.includes(k)) row.hidden = !tols.includes(k);
   }
-  for (const [prefix, custom] of state.design.mediumBoxes) {
+  for (const [prefix, custom, principal] of state.design.mediumBoxes) {
     const key = state.design.fields[`${prefix}material`].value;
     const hide = key !== 'custom';
     if (custom.hidden !== hide) custom.hidden = hide;
+    if (principal.hidden !== (key !== 'principal')) principal.hidden = key !== 'principal';
     // A formula without a journal source says so beside its select, where a narrow select
     // would cut the "(unverified data)" of its option text.
     const unverified = state.materialList.some((m) => m.key === key && m.verified === false);
@@ -382,7 +387,6 @@ function layoutDesignFields(state) {
     if (plateCut && plateCut.hidden !== !isBiaxial(state, select.value)) plateCut.hidden = !isBiaxial(state, select.value);
   }
   const biaxial = isBiaxial(state, mainKey);
-  if (state.design.principalBox.hidden !== (mainKey !== 'principal')) state.design.principalBox.hidden = mainKey !== 'principal';
   state.design.fields.cut.row.hidden = !(biaxial && CUT_KINDS.has(kind));
   state.design.fields.plane.row.hidden = !(biaxial && kind === 'displacer');
   const order = state.design.fields.order.value;
@@ -413,9 +417,10 @@ function designRequest(state) {
     } else {
       out.material = m;
     }
-    // A pair's biaxial plate sends its cut when one is chosen (empty: the core's default).
-    const cut = prefix && state.design.fields[`${prefix}cut`];
-    if (cut && !cut.row.hidden && cut.value) out.cut = cut.value;
+    // A biaxial plate sends its cut when one is chosen and shown (empty: the core's default):
+    // a pair's plate its own, the single-crystal kinds that cut their plates the panel's.
+    const cut = state.design.fields[`${prefix}cut`];
+    if (!cut.row.hidden && cut.value) out.cut = cut.value;
     return out;
   };
   const pair = (name) => {
@@ -460,7 +465,6 @@ function designRequest(state) {
     put('aperture_mm');
   } else if (kind === 'tilt-tuning') {
     Object.assign(req, medium(''));
-    if (!state.design.fields.cut.row.hidden && state.design.fields.cut.value) put('cut');
     put('wavelength_nm');
     put('retardance_waves');
     if (state.design.fields.size.value === 'order') {
@@ -483,7 +487,6 @@ function designRequest(state) {
     put('max_incidence_deg');
   } else if (kind === 'waveplate') {
     Object.assign(req, medium(''));
-    if (!state.design.fields.cut.row.hidden && state.design.fields.cut.value) put('cut');
     put('wavelength_nm');
     put('retardance_waves');
     req.order = state.design.fields.order.value;
@@ -513,11 +516,14 @@ function designRequest(state) {
     pair('band_nm');
   } else if (kind === 'broadband-retarder') {
     // Two crystals alternate when a second is chosen and the plate count is one the core takes;
-    // otherwise the request names the plates, so that the core's error lands on that field.
+    // otherwise the request names the plates, so that the core's error lands on that field. The
+    // first crystal is its catalogue key, or its own entry where it has more to say (custom
+    // indices, a chosen cut): {"nx": …, "cut": …}.
     const second = state.design.fields.materials.value;
     const n = state.design.fields.plates;
     if (second && !n.blank && Number.isInteger(n.value) && n.value >= 2 && n.value <= 7) {
-      const first = state.design.fields.material.value;
+      const own = medium('');
+      const first = Object.keys(own).length === 1 && typeof own.material === 'string' ? own.material : own;
       req.materials = Array.from({ length: n.value }, (_, i) => (i % 2 ? second : first));
     } else {
       Object.assign(req, medium(''));
@@ -943,18 +949,38 @@ function requestLeaves(obj, prefix = '', out = []) {
 }
 
 /**
+ * A broadband retarder's `materials` as the panel's fields say them: a list that alternates two
+ * crystals, the second a catalogue key, becomes the first crystal's own fields (`material`, or
+ * `nx` … with `cut`), the select `materials` (the second) and `plates` (the list's length), as
+ * designRequest builds it. Any other list the panel cannot hold is left out, with a problem on
+ * `materials`.
+ */
+function panelMaterials(req) {
+  if (req.kind !== 'broadband-retarder' || !Array.isArray(req.materials)) return { req, problems: [] };
+  const { materials, ...rest } = req;
+  const [first, second] = materials;
+  const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
+  const own = typeof first === 'string' ? { material: first } : first;
+  if (materials.length < 2 || typeof second !== 'string' || !own || typeof own !== 'object' || Array.isArray(own)
+    || !materials.every((m, i) => same(m, i % 2 ? second : first))) {
+    return { req: rest, problems: [{ field: 'materials', message: 'the panel alternates two crystals, the second a catalogue key; this list of plates was left out: ask it in a JSON request' }] };
+  }
+  return { req: { ...rest, ...own, materials: second, plates: materials.length }, problems: [] };
+}
+
+/**
  * Fills the fields from a design request (the design part of a link). A field the panel does not
  * have, or a value it cannot hold, is named beside its field (or in the panel's general slot)
  * and left out; every other field is filled.
  */
-function setDesignInputs(state, req) {
+function setDesignInputs(state, linked) {
   state.design.errors.clear();
-  if (!req || typeof req !== 'object' || Array.isArray(req)) {
+  if (!linked || typeof linked !== 'object' || Array.isArray(linked)) {
     state.design.errors.show({ field: '', message: 'The design part of this link is not a JSON object; the design fields were kept.' });
     return;
   }
+  const { req, problems } = panelMaterials(linked);
   const leaves = requestLeaves(req);
-  const problems = [];
   // The kind first: it decides which fields show; custom indices choose the custom material.
   leaves.sort(([a], [b]) => (b === 'kind') - (a === 'kind'));
   for (const [path, v] of leaves) {
@@ -1106,11 +1132,26 @@ function onDesignMessage(state, msg) {
       startDesignWorker(state);
     }
     document.getElementById('design-run').hidden = true;
-    state.design.errors.show(msg.error);
+    const err = panelError(a.request, msg.error);
+    state.design.errors.show(err);
     setDesignState('error');
-    setStatus(`Not solved: ${msg.error.field ? state.design.errors.summary(msg.error) : 'see the message above'}.`);
+    setStatus(`Not solved: ${err.field ? state.design.errors.summary(err) : 'see the message above'}.`);
     updateDesignStale(state, true);
   }
+}
+
+/**
+ * A core error about the request the panel built, on the panel's own field: a broadband
+ * retarder's alternating plates carry the first crystal's fields in `materials[0]`,
+ * `materials[2]` …, which the panel shows as the part's own (`materials[2].nz` → `nz`,
+ * `materials[0]` → `material`), and the second crystal as the "Alternate with" select
+ * (`materials[1]` → `materials`). Every other error is the core's as it is.
+ */
+function panelError(request, err) {
+  if (request?.kind !== 'broadband-retarder' || !Array.isArray(request.materials)) return err;
+  const m = /^materials\[(\d+)\](?:\.(.+))?$/.exec(err.field ?? '');
+  if (!m) return err;
+  return { ...err, field: Number(m[1]) % 2 ? 'materials' : (m[2] ?? 'material') };
 }
 
 // What an empty band or pair of wavelengths means, by kind (see state.design.hints), for a one-sided one.

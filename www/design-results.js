@@ -169,7 +169,13 @@ const AIR_WORDS = {
   made_for_nm: 'made for',
   bandwidth_nm: 'pass band',
   'tolerances.wavelength_nm': 'wavelength error',
+  // A filter's own widths (the core's ANSWER_WIDTHS, src/contract/request/basis.rs).
+  fwhm_nm: 'pass band met',
+  neighbour_orders_fwhm_nm: 'the next orders\' pass bands',
+  centre_shift_nm_per_k: 'centre drift',
 };
+// Lists of two separate figures (not a range from one end to the other).
+const AIR_LISTS = new Set(['neighbour_orders_fwhm_nm']);
 
 /**
  * A design asked in air wavelengths: each value as given beside the vacuum value the design used
@@ -178,7 +184,7 @@ const AIR_WORDS = {
  */
 export function basisLine(d) {
   if (d.wavelength_in !== 'air') return null;
-  const vacuum = (v) => `${significant(v, 7)}${NBSP}nm`;
+  const vacuum = (unit) => (v) => `${significant(v, 7)}${NBSP}${unit}`;
   const airNames = (o, prefix) => Object.keys(o ?? {}).filter((k) => k.startsWith('air_') && k !== 'air_index').map((k) => `${prefix}${k}`);
   const line = h('p', { className: 'design-basis' }, 'In standard air');
   if (typeof d.air_index === 'number') line.append(' (index ', dq(d, 'air_index', (v) => fixed(v, 7)), ')');
@@ -187,8 +193,12 @@ export function basisLine(d) {
     const name = path.replace('air_', '');
     // One value or a pair [a, b], each end shown as given and in vacuum.
     const ends = Array.isArray(valueAt(d, path)) ? ['.0', '.1'] : [''];
-    const pair = (p, format) => ends.flatMap((e, k) => [k ? '–' : '', dq(d, `${p}${e}`, format)]);
-    line.append(...[i ? '; ' : '', `${AIR_WORDS[name] ?? name.replace(/_nm$/, '').replace(/[._]/g, ' ')} `, ...pair(path, formats.nm), ', in vacuum ', ...pair(name, vacuum)].filter((x) => x !== null));
+    const sep = AIR_LISTS.has(name) ? ' and ' : '–';
+    const pair = (p, format) => ends.flatMap((e, k) => [k ? sep : '', dq(d, `${p}${e}`, format)]);
+    // A drift of a wavelength per kelvin (`…_nm_per_k`) keeps its unit.
+    const unit = name.endsWith('_per_k') ? 'nm/K' : 'nm';
+    const given = unit === 'nm' ? formats.nm : formats.sig(unit, 4);
+    line.append(...[i ? '; ' : '', `${AIR_WORDS[name] ?? name.replace(/_nm$/, '').replace(/[._]/g, ' ')} `, ...pair(path, given), ', in vacuum ', ...pair(name, vacuum(unit))].filter((x) => x !== null));
   });
   line.append('. The other wavelengths below are in vacuum.');
   return line;
@@ -677,20 +687,30 @@ export function rotatorResults(state, d) {
  */
 export function filterResults(state, d) {
   const p = d.plates;
+  // A biaxial crystal's plates are all cut along one principal axis, the slow in-face axis at
+  // each plate's azimuth.
+  const cut = d.cut ? ` ${d.cut}-cut (light along principal ${d.cut})` : '';
   const headline = h(
     'p',
     { className: 'design-headline' },
-    `${p.length} ${designMaterialName(state, d.scenario.elements[1]?.material ?? 'custom')} plates, the thinnest `,
+    `${p.length} ${designMaterialName(state, d.scenario.elements[1]?.material ?? 'custom')} plates,${cut ? `${cut},` : ''} the thinnest `,
     dq(d, 'plates.0.thickness_mm', formats.length, 'strong'),
     d.layout === 'folded' ? ' each, between crossed polarizers; pass band ' : ' and each next one twice as thick, each behind a polarizer parallel to the first; pass band ',
     dq(d, 'fwhm_nm', formats.nm, 'strong'),
     ' wide.',
   );
   const rows = p.map((_, i) => [`plate ${i + 1}`, `plates.${i}.thickness_mm`, formats.length]);
-  p.forEach((_, i) => rows.push([`plate ${i + 1}: axis azimuth`, `plates.${i}.axis_azimuth_deg`, formats.deg]));
+  p.forEach((_, i) => rows.push([`plate ${i + 1}: ${d.cut ? 'slow axis azimuth' : 'axis azimuth'}`, `plates.${i}.axis_azimuth_deg`, formats.deg]));
+  const biaxialRows = d.cut ? [
+    ['principal axis along the beam', 'cut', formats.text],
+    ...['x', 'y', 'z'].map((a, k) => [`n${a}`, `principal_indices.${k}`, formats.index]),
+  ] : [];
   return [
     headline,
-    resultCard(d, 'What to order', [...rows, ['crystal in all', 'total_thickness_mm', formats.length]], { className: 'design-main', note: 'Optic axes in the faces; the polarizers are in the order sheet.' }),
+    resultCard(d, 'What to order', [...biaxialRows, ...rows, ['crystal in all', 'total_thickness_mm', formats.length]], {
+      className: 'design-main',
+      note: d.cut ? [dq(d, 'cut_note', formats.text, 'span', { className: 'cut-note' }), ' The polarizers are in the order sheet.'] : 'Optic axes in the faces; the polarizers are in the order sheet.',
+    }),
     resultCard(d, 'Pass band', [
       ['centre', 'wavelength_nm', formats.nm],
       ['width met (FWHM)', 'fwhm_nm', formats.nm],
@@ -699,6 +719,8 @@ export function filterResults(state, d) {
       ['peak transmission', 'peak_transmission', formats.fraction],
       ['next peak, shorter', 'neighbour_peaks_nm.0', formats.nm],
       ['next peak, longer', 'neighbour_peaks_nm.1', formats.nm],
+      ['next order down: width', 'neighbour_orders_fwhm_nm.0', formats.nm],
+      ['next order up: width', 'neighbour_orders_fwhm_nm.1', formats.nm],
       ['centre drift', 'centre_shift_nm_per_k', formats.sig('nm/K', 3)],
     ], { note: 'Orders are whole, so the width met is the nearest the filter can give; peak transmission of light along the first polarizer.' }),
   ];
@@ -725,7 +747,7 @@ export function broadbandResults(state, d) {
   ];
   const cards = [
     headline,
-    resultCard(d, 'What to order', rows, { className: 'design-main', note: 'Plates stacked in this order, optic axes in the faces.' }),
+    resultCard(d, 'What to order', rows, { className: 'design-main', note: `Plates stacked in this order, ${axesWord(d)} in the faces${d.plates.some((q) => q.cut) ? ' (a biaxial plate\'s slow axis at its azimuth)' : ''}.` }),
     resultCard(d, 'Over the band', departures('departures'), { note: 'The stack as one equivalent retarder; a half-wave target reports no rotation (a rotation and a turn of the axis are then the same).' }),
   ];
   if (d.classic) cards.push(resultCard(d, 'The classic design', departures('classic.departures'), { note: d.classic.name }));

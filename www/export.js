@@ -377,6 +377,20 @@ function rotatorRows(d, materialList) {
   return rows;
 }
 
+/**
+ * How the plates of `plates` are cut, in words: a biaxial plate (`cut`, its own or the design's
+ * one `cut`) along its principal axis with its slow axis at its azimuth, a uniaxial one with its
+ * optic axis in the face at its azimuth.
+ */
+function plateCuts(plates, cut) {
+  return plates.map((p, i) => {
+    const c = p.cut ?? cut;
+    return c
+      ? `plate ${i + 1} ${c}-cut (principal ${c} along the face normal), slow axis at ${deg(p.axis_azimuth_deg)}`
+      : `plate ${i + 1} optic axis in the face at ${deg(p.axis_azimuth_deg)}`;
+  }).join('; ');
+}
+
 /** The sheet's rows [term, text] for a solved design of each kind. */
 function orderRows(shown, materialList) {
   const { design: d, request: r, kindName } = shown;
@@ -410,7 +424,8 @@ function orderRows(shown, materialList) {
     rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)} thick`).join('; ')}; ${tolText}`]);
     rows.push(['Cut', d.cut
       ? `${d.cut}-cut: principal ${d.cut} along the face normal; ${plates.map((p, i) => `plate ${i + 1} slow axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`
-      : `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`]);
+      : plates.some((p) => p.cut) ? plateCuts(plates)
+        : `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}${plates.length > 1 ? ' (crossed)' : ''}`]);
     rows.push(['Clear aperture', 'to suit the beam (the request sets none)']);
     rows.push(['Wavelength band', bandText(d.wavelength_curve, wl)]);
     if (d.kind === 'waveplate') {
@@ -445,13 +460,13 @@ function orderRows(shown, materialList) {
     const plates = d.plates ?? [];
     rows.push(...materialRows(d.scenario?.elements?.[1]?.material ?? 'custom', 'Material', materialList));
     rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)}`).join('; ')} (as made at 20 °C)`]);
-    rows.push(['Cut', `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}; polarizers at ${(d.polarizers_deg ?? []).map((v) => deg(v)).join(', ')}, in order (${d.layout})`]);
+    rows.push(['Cut', `${d.cut ? `${d.cut}-cut: principal ${d.cut} along the face normal, slow axes in the faces at` : 'optic axes in the faces at'} ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}; polarizers at ${(d.polarizers_deg ?? []).map((v) => deg(v)).join(', ')}, in order (${d.layout})`]);
     rows.push(['Performance', `pass band ${sheetNumber(d.fwhm_nm, 4)} nm wide (FWHM) at ${nm(d.wavelength_nm)}; neighbouring peaks at ${(d.neighbour_peaks_nm ?? []).map((v) => (typeof v === 'number' ? nm(v) : 'none')).join(' and ')}`]);
   } else if (d.kind === 'broadband-retarder') {
     const plates = d.plates ?? [];
     plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));
     rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)}`).join('; ')} (as made at 20 °C), stacked in this order`]);
-    rows.push(['Cut', `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}`]);
+    rows.push(['Cut', plates.some((p) => p.cut) ? plateCuts(plates) : `optic axes in the faces at ${plates.map((p) => deg(p.axis_azimuth_deg)).join(', ')}`]);
     const dep = d.departures ?? {};
     rows.push(['Performance', `retardance ${sheetNumber(d.target_retardance_waves, 4)} waves within ±${sheetNumber(dep.retardance_waves, 3)} waves and fast axis within ±${sheetNumber(dep.fast_axis_deg, 3)}° from ${nm(d.band_nm?.[0])} to ${nm(d.band_nm?.[1])}`]);
   } else if (d.kind === 'lc-voltage') {
@@ -463,7 +478,7 @@ function orderRows(shown, materialList) {
     const plates = d.plates ?? [];
     plates.forEach((p, i) => rows.push(...materialRows(p.material, `Material, plate ${i + 1}`, materialList)));
     rows.push(['Dimensions', `${plates.map((p, i) => `plate ${i + 1}: ${mm(p.thickness_mm)} thick`).join('; ')} (as made at 20 °C)`]);
-    rows.push(['Cut', `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}`]);
+    rows.push(['Cut', plates.some((p) => p.cut) ? plateCuts(plates) : `optic axis in the face (90° to the face normal); ${plates.map((p, i) => `plate ${i + 1} axis at ${deg(p.axis_azimuth_deg)}`).join(', ')}`]);
     const [lo, hi] = d.temperature?.band_c ?? [];
     rows.push(['Performance', `retardance ${sheetNumber(d.retardance_waves, 5)} waves at ${nm(d.wavelength_nm)}; within ±${sheetNumber(d.acceptance_error_waves, 2)} waves from ${sheetNumber(lo, 4)} to ${sheetNumber(hi, 4)} °C`]);
   }

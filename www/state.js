@@ -80,7 +80,7 @@ export function createState({ darkQuery }) {
       hints: {}, // kind -> {path or group: hint text, start: {path: starting value of an untouched field}}
       bandBox: null, // the band's group (its hint depends on the kind)
       tolBox: null, // the tolerances' group (its rows and hint depend on the kind)
-      mediumBoxes: [], // [prefix, custom-indices box] of each material choice
+      mediumBoxes: [], // [prefix, custom-indices box, principal-indices box] of each material choice
       errors: null, // FieldErrors of the panel
       defaultRequestText: '', // the request of the fields as the panel starts
       worker: null, // the design worker (design-worker.js)

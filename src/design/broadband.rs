@@ -548,7 +548,12 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
         .map(|(i, (m, (cut, _)))| {
             waves_per_mm(&m.medium, *cut, centre, t_c)
                 .filter(|w| w.abs() > 0.0)
-                .ok_or_else(|| Error::new(material_field(i), "this crystal has no birefringence at the band's centre"))
+                .ok_or_else(|| {
+                    Error::new(
+                        material_field(i),
+                        "this crystal has no birefringence at the band's centre",
+                    )
+                })
         })
         .collect::<Result<_, _>>()?;
     let search_w: Vec<Vec<f64>> = grid(lo, hi, SEARCH_POINTS)
@@ -624,8 +629,7 @@ pub fn design(req: &BroadbandRequest) -> Result<BroadbandDesign, Error> {
             )
         })
         .collect();
-    let mut scenario =
-        Part::new(centre_wl, None, elements).at_temperature(t_c);
+    let mut scenario = Part::new(centre_wl, None, elements).at_temperature(t_c);
     scenario.scenario.beam.polarization = crate::contract::scenario::Polarization::Linear { azimuth_deg: 45.0 };
     Ok(BroadbandDesign {
         target_retardance_waves: req.retardance_waves,

@@ -159,13 +159,8 @@ struct Model<'a> {
 impl Model<'_> {
     /// The crystal's birefringence in waves per millimetre (of 20 °C thickness) at `nm` and `t_c`.
     fn waves_per_mm(&self, nm: f64, t_c: f64) -> Option<f64> {
-        stack_retardance_at(
-            &[Plate::new(self.req.medium, 1.0, 45.0, self.cut)],
-            nm,
-            [0.0, 0.0],
-            t_c,
-        )
-        .map(|g| g.abs() / TAU)
+        stack_retardance_at(&[Plate::new(self.req.medium, 1.0, 45.0, self.cut)], nm, [0.0, 0.0], t_c)
+            .map(|g| g.abs() / TAU)
     }
 
     /// Transmission at `nm` of the filter whose thinnest plate is `d` mm.

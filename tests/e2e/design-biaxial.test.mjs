@@ -1,19 +1,21 @@
 // End-to-end tests of the design panel with biaxial crystals (www/design-panel.js): a KTP
-// waveplate and a tilt-tuned KTP plate cut along a principal axis and an LBO displacer cut in a
-// principal plane, filled in
+// waveplate, a tilt-tuned KTP plate and a KTP birefringent filter cut along a principal axis, an
+// LBO displacer cut in a principal plane, and an achromatic pair whose first plate is given by its
+// own principal indices n_x, n_y, n_z, filled in
 // through the panel's controls and solved in its worker. The numbers shown are checked against
 // the command line's answer to the same request, as kept in the golden files
 // tests/cli/design/golden/*.json (written by `doublespar design`, native build). "Use this part"
 // loads the part into the set-up, where the page's own trace gives the design's retardance or
 // separation; bad values put the core's message beside their field and keep every entry; the
-// kinds whose solver stays uniaxial do not offer the biaxial crystals, and a two-crystal pair's
-// biaxial plate shows and sends its own cut.
+// kinds whose solver stays uniaxial do not offer the biaxial crystals, a two-crystal pair's
+// biaxial plate shows and sends its own cut, and a bad principal index of a pair's plate, or of
+// a broadband retarder's first crystal alternating with a second, is named on its own field.
 //
 // Run: `cd tests/e2e && node --test design-biaxial.test.mjs` (after scripts/build-web.sh).
 
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
-import { useBrowser, withPage as openAt, close, solveDesign, enterValue } from './support.mjs';
+import { useBrowser, withPage as openAt, close, solveDesign, enterValue, waitError, waitScenario } from './support.mjs';
 import { golden, field, fill, expectDesign, expectFieldError, useDesign, orderSheet } from './design-support.mjs';
 
 const env = useBrowser({ cli: false });
@@ -142,13 +144,23 @@ test('bad biaxial values show the core\'s message beside their field and keep ev
   });
 });
 
-test('the kinds that stay uniaxial do not offer the biaxial crystals', { timeout: 60000 }, async () => {
+test('the kinds that take biaxial crystals offer them with their cut, those that stay uniaxial do not', { timeout: 60000 }, async () => {
   await withPage(async (page) => {
     const shown = async () => page.$$eval(`${field('material')} option`, (os) => os.filter((o) => !o.hidden).map((o) => o.value));
     await page.selectOption(field('kind'), 'waveplate');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `waveplate offers ${k}`);
     await page.selectOption(field('kind'), 'tilt-tuning');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `the tilt tuning offers ${k}`);
+    // The filter and the broadband retarder cut every plate of a biaxial crystal alike.
+    for (const kind of ['birefringent-filter', 'broadband-retarder']) {
+      await page.selectOption(field('kind'), kind);
+      for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok((await shown()).includes(k), `${kind} offers ${k}`);
+      await page.selectOption(field('material'), 'quartz');
+      assert.equal(await page.locator(field('cut')).isVisible(), false, `${kind}: quartz has no cut`);
+      await page.selectOption(field('material'), 'bibo');
+      assert.ok(await page.locator(field('cut')).isVisible(), `${kind}: a biaxial crystal shows its cut`);
+    }
+    await page.selectOption(field('material'), 'quartz');
     await page.selectOption(field('kind'), 'prism-polarizer');
     for (const k of ['ktp', 'lbo', 'bibo', 'principal']) assert.ok(!(await shown()).includes(k), `the polarizer hides ${k}`);
   });
@@ -178,11 +190,95 @@ test('a pair\'s biaxial plate shows and sends its own cut', { timeout: 120000 },
   });
 });
 
+test('a KTP filter agrees with the command line and, loaded, passes its centre wavelength', { timeout: 120000 }, async () => {
+  const { request, design } = golden('filter-ktp-folded-x-cut');
+  await withPage(async (page) => {
+    await fill(page, 'birefringent-filter', [
+      ['material', 'ktp'], ['cut', 'x'], ['layout', 'folded'], ['stages', 4], ['wavelength_nm', 1064], ['bandwidth_nm', 3],
+    ]);
+    await solveDesign(page);
+    assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), request, 'the request the fields say');
+    await expectDesign(page, design, ['plates.0.thickness_mm', 'plates.1.axis_azimuth_deg', 'fwhm_nm', 'order', 'cut',
+      'principal_indices.0', 'principal_indices.2', 'neighbour_orders_fwhm_nm.1', 'centre_shift_nm_per_k'], 'KTP filter');
+    const headline = await page.textContent('.design-headline');
+    assert.ok(headline.includes('x-cut'), headline);
+    const sheet = await orderSheet(page);
+    assert.ok(sheet.Cut?.startsWith('x-cut: principal x along the face normal, slow axes'), `the order sheet's cut: ${sheet.Cut}`);
+    await page.click('#design-use');
+    const kinds = design.scenario.elements.map((e) => e.kind).join();
+    const sc = await waitScenario(page, (x) => x.elements.map((e) => e.kind).join() === kinds, 'the set-up holds the plates and polarizers');
+    sc.elements.forEach((e, i) => {
+      if (e.kind !== 'crystal') return;
+      // The set-up writes a roll of 0 as `axis` (CONVENTIONS.md "More media": the same orientation).
+      const [got, want] = [e.axes ?? e.axis, design.scenario.elements[i].axes];
+      assert.ok(close(e.thickness_mm, design.scenario.elements[i].thickness_mm) && close(got.tilt_deg, want.tilt_deg)
+        && close(got.azimuth_deg, want.azimuth_deg) && (got.roll_deg ?? 0) === want.roll_deg, `element ${i}: ${JSON.stringify(e)}`);
+    });
+    // The page's own trace of the filter passes everything at the centre (whole half-wave plates).
+    const t = await page.evaluate(() => window.doublespar.session.result().total_power);
+    assert.ok(Math.abs(t - 1) < 1e-9, `traced transmission at the centre ${t}`);
+  });
+});
+
+test('a pair with a plate of custom principal indices agrees with the command line', { timeout: 120000 }, async () => {
+  const { request, design } = golden('achromat-principal-quartz');
+  await withPage(async (page) => {
+    await page.selectOption(field('kind'), 'achromat');
+    for (const prefix of ['first.', 'second.']) {
+      const offered = await page.$$eval(`${field(`${prefix}material`)} option`, (os) => os.filter((o) => !o.hidden).map((o) => o.value));
+      assert.ok(offered.includes('principal'), `the ${prefix} plate offers custom principal indices`);
+    }
+    assert.equal(await page.locator(field('first.nx')).isVisible(), false, 'no principal indices until chosen');
+    await fill(page, 'achromat', [
+      ['first.material', 'principal'], ['first.nx', 1.52], ['first.ny', 1.56], ['first.nz', 1.61], ['first.cut', 'z'],
+      ['second.material', 'quartz'], ['retardance_waves', 0.25], ['wavelengths_nm[0]', 500], ['wavelengths_nm[1]', 900],
+    ]);
+    assert.equal(await page.locator(field('first.no')).isVisible(), false, 'no uniaxial indices beside them');
+    assert.equal(await page.locator(field('second.nx')).isVisible(), false, 'the quartz plate has none');
+    await solveDesign(page);
+    assert.deepEqual(await page.evaluate(() => window.doublespar.designRequest()), request, 'the request the fields say');
+    await expectDesign(page, design, ['plates.0.thickness_mm', 'plates.1.thickness_mm', 'plates.0.cut', 'at_design_wavelengths.0.1', 'max_error_waves'], 'custom pair');
+    const headline = await page.textContent('.design-headline');
+    assert.ok(headline.includes('z-cut, slow axis'), headline);
+  });
+});
+
+test('a bad principal index of a pair\'s plate or of an alternating crystal is named on its field, every entry kept', { timeout: 120000 }, async () => {
+  await withPage(async (page) => {
+    await fill(page, 'achromat', [['first.material', 'principal'], ['first.nx', 1.52], ['first.ny', 1.52], ['second.material', 'quartz']]);
+    const range = await expectFieldError(page, ['first.nz', 0.5], 'first.nz', 'an index below 1');
+    assert.ok(range.includes('from 1 to 10'), range);
+    const iso = await expectFieldError(page, ['first.nz', 1.52], 'first.nz', 'three equal indices');
+    assert.ok(range !== iso && iso.includes('isotropic'), iso);
+    // An athermal pair needs thermal data: fixed indices are refused on the plate's first index.
+    await page.selectOption(field('kind'), 'athermal-waveplate');
+    await enterValue(page, field('first.nz'), 1.61);
+    await page.click('#design-solve');
+    const thermal = await waitError(page, 'first.nx', 'data-design-error-for', 10000);
+    assert.ok(thermal.includes('thermal'), thermal);
+    // A broadband retarder's first crystal alternating with quartz travels in `materials`; its
+    // bad index is shown on the panel's own field.
+    await fill(page, 'broadband-retarder', [['material', 'principal'], ['materials', 'quartz'], ['plates', 3],
+      ['retardance_waves', 0.25], ['band_nm[0]', 500], ['band_nm[1]', 700]]);
+    const said = await page.evaluate(() => window.doublespar.designRequest());
+    assert.deepEqual(said.materials[0], { nx: 1.74, ny: 1.75, nz: 1.83 }, JSON.stringify(said));
+    assert.equal(said.materials[1], 'quartz', JSON.stringify(said));
+    const alternating = await expectFieldError(page, ['nz', 12], 'nz', 'an alternating crystal\'s index above 10');
+    assert.ok(alternating.includes('from 1 to 10'), alternating);
+  });
+});
+
 test('a link carries a biaxial design\'s crystal and its cut or plane', { timeout: 120000 }, async () => {
   for (const [kind, entries, select] of [
     ['waveplate', [['material', 'principal'], ['nx', 1.5], ['ny', 1.52], ['nz', 1.6], ['cut', 'z'], ['retardance_waves', 0.25]], 'cut'],
     ['displacer', [['material', 'bibo'], ['plane', 'yz'], ['separation_mm', 2], ['samples', 0]], 'plane'],
     ['tilt-tuning', [['material', 'lbo'], ['cut', 'x'], ['wavelength_nm', 532], ['retardance_waves', 0.25], ['size', 'order'], ['order_number', 3], ['made_for_nm', 540], ['tilt_azimuth_deg', 0]], 'cut'],
+    ['achromat', [['first.material', 'principal'], ['first.nx', 1.52], ['first.ny', 1.56], ['first.nz', 1.61], ['first.cut', 'z'], ['second.material', 'quartz']], 'first.nz'],
+    ['birefringent-filter', [['material', 'lbo'], ['cut', 'z'], ['wavelength_nm', 800], ['bandwidth_nm', 2]], 'cut'],
+    // A retarder's first crystal by its own indices and cut, alternating with quartz: the link's
+    // `materials` list comes back as the panel's fields.
+    ['broadband-retarder', [['material', 'principal'], ['nx', 1.52], ['ny', 1.56], ['nz', 1.61], ['cut', 'z'], ['materials', 'quartz'], ['plates', 3],
+      ['retardance_waves', 0.25], ['band_nm[0]', 500], ['band_nm[1]', 700], ['generations', 100]], 'materials'],
   ]) {
     let link = '';
     let said = null;

@@ -584,7 +584,10 @@ fn plate_lines(r: &mut Report, material: bool, where_: &str) {
             .f(&format!("plates.{i}.retardance_waves"))
             .map_or_else(String::new, num);
         let axis = plate_axis_words(r, i, &a);
-        r.line(&format!("plate {}", i + 1), format!("{m}{t} mm, {axis}, {w} waves {where_}"));
+        r.line(
+            &format!("plate {}", i + 1),
+            format!("{m}{t} mm, {axis}, {w} waves {where_}"),
+        );
     }
 }
 

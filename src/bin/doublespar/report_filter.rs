@@ -72,7 +72,10 @@ pub(super) fn filter(r: &mut Report) {
         .collect();
     r.line("neighbouring peaks", format!("{} and {}", peaks[0], peaks[1]));
     let orders: Vec<String> = (0..2)
-        .filter_map(|i| r.f(&format!("neighbour_orders_fwhm_nm.{i}")).map(|v| format!("{} nm", num(v))))
+        .filter_map(|i| {
+            r.f(&format!("neighbour_orders_fwhm_nm.{i}"))
+                .map(|v| format!("{} nm", num(v)))
+        })
         .collect();
     r.line("next orders' pass bands", orders.join(" and "));
     air_twin(r, "neighbour_orders_fwhm_nm");

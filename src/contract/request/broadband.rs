@@ -56,10 +56,12 @@ impl BroadbandRequest {
     pub fn from_json(f: &mut Fields) -> Result<BroadbandRequest, Error> {
         let media = if f.has("materials") {
             let path = f.path_of("materials");
-            let list = f
-                .get("materials")
-                .and_then(|v| v.as_array().cloned())
-                .ok_or_else(|| Error::new(&path, "must be a list with one entry per plate: a catalogue key or {\"material\": …, \"cut\": …}"))?;
+            let list = f.get("materials").and_then(|v| v.as_array().cloned()).ok_or_else(|| {
+                Error::new(
+                    &path,
+                    "must be a list with one entry per plate: a catalogue key or {\"material\": …, \"cut\": …}",
+                )
+            })?;
             if !(2..=MAX_PLATES).contains(&list.len()) {
                 return Err(Error::new(
                     &path,
@@ -176,7 +178,10 @@ mod tests {
             ),
             (format!(r#"{{"material": "quartz", {base}, "plates": 8}}"#), "plates"),
             (format!(r#"{{"material": "quartz", {base}, "plates": 1}}"#), "plates"),
-            (format!(r#"{{"materials": ["quartz", "glass"], {base}}}"#), "materials[1]"),
+            (
+                format!(r#"{{"materials": ["quartz", "glass"], {base}}}"#),
+                "materials[1]",
+            ),
             (format!(r#"{{"materials": ["quartz", 7], {base}}}"#), "materials[1]"),
             (
                 format!(r#"{{"materials": ["quartz", {{"material": "quartz", "cut": "x"}}], {base}}}"#),

@@ -148,7 +148,10 @@ mod tests {
             (r#"{"material": "quartz", "bandwidth_nm": 1, "cut": "x"}"#, "cut"),
             (r#"{"no": 1.5, "ne": 1.6, "bandwidth_nm": 1, "cut": "z"}"#, "cut"),
             (r#"{"material": "ktp", "bandwidth_nm": 1, "cut": "xz"}"#, "cut"),
-            (r#"{"nx": 1.5, "ny": 1.6, "nz": 1.7, "bandwidth_nm": 1, "cut": 2}"#, "cut"),
+            (
+                r#"{"nx": 1.5, "ny": 1.6, "nz": 1.7, "bandwidth_nm": 1, "cut": 2}"#,
+                "cut",
+            ),
             (r#"{"nx": 1.5, "ny": 1.6, "nz": 0.7, "bandwidth_nm": 1}"#, "nz"),
             (
                 r#"{"material": "quartz", "bandwidth_nm": 1, "band_nm": [700, 600]}"#,
