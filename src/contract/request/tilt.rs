@@ -3,8 +3,8 @@
 //! target retardance. A biaxial crystal's plate is cut along a principal axis (`cut`, as a
 //! waveplate's: [`super::principal`]), its slower in-face principal axis at `axis_azimuth_deg`.
 
-use super::principal::{PrincipalCut, read_cut};
-use super::{parse_any_crystal, temperature_field, wavelength_field, whole};
+use super::principal::PrincipalCut;
+use super::{PlateCrystal, plate_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, above, in_range};
@@ -58,8 +58,7 @@ impl TiltRequest {
     /// `cut` when it is not `"x"`, `"y"` or `"z"` or is given for a uniaxial crystal; the path of the first offending field; `thickness_mm` when both or neither of it and
     /// `order_number` are given; `made_for_nm` without `order_number`.
     pub fn from_json(f: &mut Fields) -> Result<TiltRequest, Error> {
-        let medium = parse_any_crystal(f)?;
-        let cut = read_cut(f, &medium)?;
+        let PlateCrystal { medium, cut } = plate_crystal(f)?;
         let wavelength = wavelength_field(f)?;
         let retardance_waves = in_range("retardance_waves", f.required_number("retardance_waves")?, 0.0, 1.0)?;
         let size = match (f.has("thickness_mm"), f.has("order_number")) {

@@ -1,8 +1,8 @@
 //! The waveplate request: a crystal, a target retardance and the order that reaches it, with the
 //! band and the cone of incidence over which the plate is reported.
 
-use super::principal::{PrincipalCut, read_cut};
-use super::{band, parse_any_crystal, temperature_field, wavelength_field, whole};
+use super::principal::PrincipalCut;
+use super::{PlateCrystal, band, plate_crystal, temperature_field, wavelength_field, whole};
 use crate::contract::fields::Fields;
 use crate::contract::scenario::Medium;
 use crate::error::{Error, in_range};
@@ -58,8 +58,7 @@ impl WaveplateRequest {
     /// # Errors
     /// The path of the first offending field.
     pub fn from_json(f: &mut Fields) -> Result<WaveplateRequest, Error> {
-        let medium = parse_any_crystal(f)?;
-        let cut = read_cut(f, &medium)?;
+        let PlateCrystal { medium, cut } = plate_crystal(f)?;
         let wavelength = wavelength_field(f)?;
         let retardance_waves = in_range("retardance_waves", f.required_number("retardance_waves")?, 1e-6, 1e4)?;
         let order = match f.string("order")? {
