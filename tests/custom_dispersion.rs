@@ -563,6 +563,20 @@ fn design_temperature_figures_follow_the_formulas_own_temperature_data() {
             "second": {"material": "quartz"}, "retardance_waves": 0.25, "wavelength_nm": 633}))
         .expect("designed")
     };
+    let filter = |medium: Value| {
+        let mut req = json!({"kind": "birefringent-filter", "bandwidth_nm": 2, "wavelength_nm": 633});
+        for (k, v) in medium.as_object().expect("object") {
+            req[k] = v.clone();
+        }
+        doublespar::solve_design(&req).expect("designed")
+    };
+    let (a, b) = (filter(json!({"dispersion": d})), filter(json!({"material": "calcite"})));
+    assert_eq!(a["centre_shift_nm_per_k"], b["centre_shift_nm_per_k"]);
+    assert!(
+        a["centre_shift_nm_per_k"].as_f64().is_some(),
+        "{}",
+        a["centre_shift_nm_per_k"]
+    );
     let (a, b) = (pair(json!({"dispersion": d})), pair(json!({"material": "calcite"})));
     for key in ["plates", "curvature_waves_per_k2"] {
         let strip = |v: &Value| v.to_string().replace("custom dispersion", "calcite");

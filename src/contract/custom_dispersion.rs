@@ -296,6 +296,11 @@ impl CustomDispersion {
         out
     }
 
+    /// Whether any axis carries a dn/dT: a design's temperature figures then say something.
+    pub fn has_thermo_optic_data(&self) -> bool {
+        self.thermal.iter().any(|t| t.dn_dt_per_k.is_some())
+    }
+
     /// The warning a design answer carries, whatever its temperature, when its changes per kelvin
     /// and temperature bands leave out data the formula lacks; `None` when every axis has both.
     pub fn design_temperature_warning(&self) -> Option<String> {

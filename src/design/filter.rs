@@ -374,7 +374,9 @@ pub fn design(req: &FilterRequest) -> Result<FilterDesign, Error> {
         Medium::Biaxial(m) => Some(m.key),
         _ => None,
     };
-    let thermal = key.and_then(material::thermal).is_some();
+    // Crystals with temperature data: the catalogue's, or formulas carrying their own dn/dT.
+    let thermal = key.and_then(material::thermal).is_some()
+        || matches!(req.medium, Medium::Formula(f) if f.has_thermo_optic_data());
     let centre_shift_nm_per_k = thermal
         .then(|| {
             let at = |t: f64| model.where_waves(d, q, nm0, model.waves_per_mm(nm0, t)? * d < q, t);
