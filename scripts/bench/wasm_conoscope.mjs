@@ -6,8 +6,12 @@
 // the session (session.setConvergent + session.scene), the page's share of the work; and the
 // white-light figure (convergentWhite) at 128 and 256 per side, and at 256 shared as the page
 // shares it between two workers (two worker threads here, each loading the module, each drawing
-// half the rows; timed from asking to both halves back, the modules loaded beforehand). Medians
-// of 9 runs (3 in white light); prints one JSON line.
+// half the rows; timed from asking to both halves back, the modules loaded beforehand); and general
+// crystals, each direction's modes from the 4×4 system (a KTP plate with its axes turned and the
+// quartz plate with its optical activity, as benches/conoscope.rs has them), asked for at 256 per
+// side and in white light at 128, so drawn at the core's caps (the side is the square root of
+// the map's length). Medians of 9 runs (3 in white light); prints one JSON line. With the
+// argument `general`, the general crystals alone.
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
@@ -36,6 +40,31 @@ const load = async (dir) => {
   return glue;
 };
 const worker = await load('pkg-design');
+
+/** The general crystals' figures in the worker's build: fields of the JSON line. */
+function generalCrystals() {
+  const ktp = JSON.stringify({
+    version: 2, wavelength_nm: 1064, beam: { polarization: { kind: 'linear', azimuth_deg: 0 } },
+    elements: [{ kind: 'crystal', material: 'ktp', thickness_mm: 0.2, axes: { tilt_deg: 30, azimuth_deg: 20, roll_deg: 15 } },
+      { kind: 'polarizer', transmission_axis_deg: 90 }],
+  });
+  const active = doc.replace('"optical_activity": false, ', '');
+  const out = {};
+  for (const [name, d] of [['ktp', ktp], ['active_quartz', active]]) {
+    const [ms, map] = median(() => worker.convergentMap(d, 'conoscope', 256));
+    const side = Math.round(Math.sqrt(map.length));
+    out[`${name}_conoscope_${side}_worker_build_ms`] = ms;
+    const [msAcc] = median(() => worker.convergentMap(d, 'acceptance', 256));
+    out[`${name}_acceptance_${side}_worker_build_ms`] = msAcc;
+    const [msWhite, rgba] = median(() => worker.convergentWhite(d, 128, 0, 1), 3);
+    out[`${name}_white_${Math.round(Math.sqrt(rgba.length / 4))}_worker_build_ms`] = msWhite;
+  }
+  return out;
+}
+if (process.argv.includes('general')) {
+  console.log(JSON.stringify({ bench: 'doublespar-wasm-conoscope-general', node: process.version, ...generalCrystals() }));
+  process.exit(0);
+}
 const [ms256, values] = median(() => worker.convergentMap(doc, 'conoscope', 256));
 let sum = 0;
 let min = Infinity;
@@ -98,4 +127,5 @@ console.log(JSON.stringify({
   white_conoscope_128_worker_build_ms: msWhite128,
   white_conoscope_256_worker_build_ms: msWhite256,
   white_conoscope_256_two_threads_ms: msWhiteTwo[1],
+  ...generalCrystals(),
 }));
