@@ -30,6 +30,26 @@ pub const EVANESCENT_ROOT: f64 = 1e-10;
 /// Within it the phase the two waves gather apart over a 10 mm crystal is below 10⁻⁹ rad.
 pub const DEGENERATE_MODES: f64 = 1e-14;
 
+/// The largest residual |Δψ − q_z ψ| of a general crystal's forward wave found from the forward
+/// factor of its characteristic quartic (`forward_waves.rs`), relative to |ψ| times the largest
+/// modulus of an entry of Δ; beyond it the general solver answers. Both leave about 10⁻¹⁵.
+pub const FORWARD_RESIDUAL: f64 = 1e-12;
+
+/// The smallest gap between the forward pair's lower q_z and the backward pair's upper one,
+/// relative to the largest modulus of an entry of Δ, for the forward factor (`forward_waves.rs`)
+/// to answer. The pair's
+/// subspace is the null space of a quadratic in Δ, found to about ε (|Δ|/gap)²: 10⁻¹³ at this
+/// gap, which a plate lit from air at any angle of the cone keeps far above (its forward q_z are
+/// near n cos θ, the gap near twice that); waves near grazing inside the crystal go to the general
+/// solver.
+pub const FORWARD_SEPARATION: f64 = 0.05;
+
+/// The smallest determinant of the flux form on the forward subspace (an orthonormal basis of
+/// it), relative to its squared trace, for the two waves to count as forward: a quarter for two
+/// waves of equal flux, near 0 where a wave grazes the face, negative for a forward and a
+/// backward wave.
+pub const FORWARD_DEFINITE: f64 = 1e-8;
+
 /// Sweeps of the Schur and SVD iterations of the general mode solver before they are given up
 /// (a 4×4 needs a few dozen); a fallback then keeps the answer finite.
 pub const EIGEN_SWEEPS: usize = 10_000;

@@ -75,11 +75,11 @@ use num_complex::Complex64;
 // reach, and generic matrix code for one more element type weighs several times as much.
 type C = Complex64;
 /// Tangential fields ψ = (E_x, E_y, h_x, h_y).
-type V4 = [C; 4];
+pub(crate) type V4 = [C; 4];
 /// A 4×4 matrix, rows first.
-type M4 = [[C; 4]; 4];
+pub(crate) type M4 = [[C; 4]; 4];
 
-fn mul(a: &M4, b: &M4) -> M4 {
+pub(crate) fn mul(a: &M4, b: &M4) -> M4 {
     let mut out = [[C::ZERO; 4]; 4];
     for (row, a_row) in out.iter_mut().zip(a) {
         for (aik, b_row) in a_row.iter().zip(b) {
@@ -95,7 +95,7 @@ fn dot(row: &V4, v: &V4) -> C {
     row[0] * v[0] + row[1] * v[1] + row[2] * v[2] + row[3] * v[3]
 }
 
-fn apply(a: &M4, v: &V4) -> V4 {
+pub(crate) fn apply(a: &M4, v: &V4) -> V4 {
     [dot(&a[0], v), dot(&a[1], v), dot(&a[2], v), dot(&a[3], v)]
 }
 
@@ -118,19 +118,19 @@ fn combine(a: &V4, x: C, b: &V4, y: C) -> V4 {
     ]
 }
 
-fn norm(v: &V4) -> f64 {
+pub(crate) fn norm(v: &V4) -> f64 {
     v.iter().map(|z| z.norm_sqr()).sum::<f64>().sqrt()
 }
 
 /// The flux form F(a, b) = aᴴ J b, with S_z = F(ψ, ψ) = Re(E_x h_y* − E_y h_x*).
-fn flux(a: &V4, b: &V4) -> C {
+pub(crate) fn flux(a: &V4, b: &V4) -> C {
     0.5 * (a[0].conj() * b[3] + a[3].conj() * b[0] - a[1].conj() * b[2] - a[2].conj() * b[1])
 }
 
 /// The medium's first-order system at one tangential wave vector (face frame).
-struct System {
+pub(crate) struct System {
     /// q_z ψ = Δ ψ.
-    delta: M4,
+    pub(crate) delta: M4,
     /// (E_z, h_z) = lift · ψ.
     lift: [V4; 2],
     eps: Matrix3<f64>,
@@ -139,7 +139,7 @@ struct System {
 }
 
 impl System {
-    fn new(m: &Anisotropic, qt: [f64; 2]) -> System {
+    pub(crate) fn new(m: &Anisotropic, qt: [f64; 2]) -> System {
         let eps = m.permittivity();
         let kappa = m.chirality_tensor();
         let i = C::i();
@@ -318,7 +318,7 @@ fn csqrt(z: C) -> C {
 /// matrix, whose other singular values are far from zero), back substitution with each free
 /// unknown set to 1 in turn, then Gram–Schmidt. Never NaN (a pivot that is exactly zero ends the
 /// elimination early).
-fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
+pub(crate) fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
     let mut col = [0usize, 1, 2, 3];
     let mut rank = 0;
     for k in 0..4 - dim {
@@ -378,10 +378,10 @@ fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
 
 /// One wave: its q_z, tangential fields and whether it propagates.
 #[derive(Debug, Clone, Copy)]
-struct Wave {
-    qz: C,
-    psi: V4,
-    propagating: bool,
+pub(crate) struct Wave {
+    pub(crate) qz: C,
+    pub(crate) psi: V4,
+    pub(crate) propagating: bool,
 }
 
 /// The two waves of `sys` travelling along `travel`, not yet in slots: (waves, whether they were
@@ -457,7 +457,12 @@ fn first_of_pair(sys: &System, u: &[V4; 2]) -> [C; 2] {
 /// The two propagating waves of roots λ₀, λ₁ (travelling the way of sign `s`): flux-orthonormal
 /// eigenvectors of the 2×2 Hermitian problem on their invariant subspace.
 fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
-    let u = null_basis(pair_product(sys, l0, l1), 2);
+    pair_in(sys, &null_basis(pair_product(sys, l0, l1), 2), s)
+}
+
+/// The two propagating waves whose invariant subspace `u` spans (travelling the way of sign `s`),
+/// as [`propagating_pair`] finds them: (waves, whether they were taken as one degenerate pair).
+pub(crate) fn pair_in(sys: &System, u: &[V4; 2], s: f64) -> ([Wave; 2], bool) {
     let du = [apply(&sys.delta, &u[0]), apply(&sys.delta, &u[1])];
     // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U, both Hermitian (their Hermitian parts taken,
     // which rounding aside they are already).
@@ -490,7 +495,7 @@ fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
     };
     if half <= DEGENERATE_MODES * (1.0 + mean.abs()) {
         // One q_z: the documented basis, the second flux-orthogonal to the first (G f)ᴴ x = 0.
-        let f = first_of_pair(sys, &u);
+        let f = first_of_pair(sys, u);
         let gf = [g00 * f[0] + g10.conj() * f[1], g10 * f[0] + g11 * f[1]];
         return ([wave(mean, f), wave(mean, [gf[1].conj(), -gf[0].conj()])], true);
     }
@@ -534,7 +539,7 @@ fn first_letter(medium: &Anisotropic) -> (bool, Option<f64>) {
 }
 
 /// Puts two waves in their slots (module header): returns whether to swap them.
-fn swapped(medium: &Anisotropic, qt: [f64; 2], w: &[Wave; 2]) -> bool {
+pub(crate) fn swapped(medium: &Anisotropic, qt: [f64; 2], w: &[Wave; 2]) -> bool {
     let (first_inner, no) = first_letter(medium);
     let q_of = |x: &Wave| Vector3::new(qt[0], qt[1], x.qz.re);
     match (w[0].propagating, w[1].propagating) {

@@ -8,6 +8,10 @@ pub mod chain;
 pub mod coincident;
 pub mod colorimetry;
 pub mod conoscope;
+// A general crystal's forward waves alone, for convergent light where the figures are computed
+// (natively and in the design worker), not in the page's own module.
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+pub mod forward_waves;
 pub mod general_modes;
 pub mod general_plate;
 pub mod geometry;

@@ -1,0 +1,325 @@
+//! The two forward waves of a general crystal alone, found from the forward factor of its
+//! characteristic quartic: what a plate in convergent light needs at each direction, without the
+//! backward waves and without the shifted QR iteration of [`crate::optics::general_modes`].
+//!
+//! Physics. At tangential wave vector q_t the crystal's four waves are the eigenpairs of the 4×4
+//! matrix Δ of [`crate::optics::general_modes`] (q_z ψ = Δ ψ). For a lossless medium J Δ is
+//! Hermitian (J the flux form), so Δ is self-adjoint under J and its characteristic polynomial
+//! det(x − Δ) = x⁴ + c₃x³ + c₂x² + c₁x + c₀ has real coefficients, the optical activity included
+//! (its roots come in conjugate pairs). Where all four waves propagate the four roots are real, and
+//! the two forward waves, those carrying energy along +z, are in a plate lit from air the two
+//! largest. Their sum S and product P follow from the largest root u₁ of the resolvent cubic of
+//! Ferrari's method (Euler's form): with x = y − c₃/4 and y⁴ + p y² + q y + r the depressed
+//! quartic,
+//!
+//! ```text
+//! u³ + 2p u² + (p² − 4r) u − q² = 0,   u₁ = (y₁ + y₂)²,
+//! y² − √u₁ y + B,   B = (p + u₁ + q/√u₁) / 2      (the factor of the two largest roots),
+//! ```
+//!
+//! u₁ the largest root by Viète's trigonometric form, polished by a Newton step. S and P are
+//! well conditioned even where the two forward waves coincide (along an optic axis), unlike the
+//! roots themselves, whose split a polynomial fixes only to √ε there. The waves' invariant
+//! subspace is then the null space of Δ² − S Δ + P (a polynomial in Δ: the same invariant
+//! subspaces, and this one is found to rounding whatever the split), and the waves themselves and
+//! their q_z come from the 2×2 Hermitian problem on it in the flux metric, by the very routine
+//! the general solver uses ([`crate::optics::general_modes`], Rayleigh–Ritz), so that they are
+//! flux-orthonormal: F(ψᵢ, ψⱼ) = δᵢⱼ. The q_z are Rayleigh quotients on an exact subspace,
+//! correct to rounding however inexact S and P (tested against the general solver).
+//!
+//! Which answer is trusted. The answer is `None`, and the caller solves the direction by the
+//! general solver, unless (a) the resolvent has three real roots (four real roots of the
+//! quartic), the two forward ones well above the two backward ones
+//! ([`crate::precision::FORWARD_SEPARATION`]), (b) the flux form is positive definite on the
+//! subspace found, so that both waves carry energy forward (a pair holding a backward or an
+//! evanescent wave is indefinite or neutral), with a margin ([`crate::precision::FORWARD_DEFINITE`]),
+//! and (c) each wave solves Δψ = q_z ψ to [`crate::precision::FORWARD_RESIDUAL`] of |Δ| |ψ|. So
+//! a wave running backward in q_z, a wave near grazing, an evanescent wave or any rounding
+//! trouble falls back to the general path.
+//!
+//! Sources: the characteristic quartic of the 4×4 method: D. W. Berreman, J. Opt. Soc. Am. 62,
+//! 502 (1972); Ferrari's method in Euler's form and Viète's trigonometric roots of a cubic with
+//! three real roots: standard algebra (e.g. Abramowitz & Stegun §3.8.2–3.8.3, from memory); the
+//! Rayleigh–Ritz step: Golub & Van Loan, *Matrix Computations*, §8.1.
+
+use crate::optics::anisotropic::Anisotropic;
+use crate::optics::general_modes::{M4, System, V4, Wave, apply, flux, mul, norm, null_basis, pair_in, swapped};
+use crate::precision::{FORWARD_DEFINITE, FORWARD_RESIDUAL, FORWARD_SEPARATION};
+use num_complex::Complex64;
+
+type C = Complex64;
+
+/// The two forward waves of a crystal at one tangential wave vector.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ForwardWaves {
+    /// The normal components q_z of the two waves (propagating, so real), larger first.
+    pub qz: [f64; 2],
+    /// Their tangential fields ψ = (E_x, E_y, Z0 H_x, Z0 H_y), orthonormal under the flux form F
+    /// of [`crate::optics::general_modes`]: F(ψᵢ, ψⱼ) = δᵢⱼ (unit power each, no cross flux).
+    pub psi: [V4; 2],
+    /// Whether the two are one degenerate pair (along an optic axis), in the general solver's
+    /// documented basis.
+    pub degenerate: bool,
+}
+
+/// The characteristic polynomial det(x − Δ) = x⁴ + c₃x³ + c₂x² + c₁x + c₀ of `delta` as
+/// [c₃, c₂, c₁, c₀], real parts (its coefficients are real for a lossless medium, see the header):
+/// c₃ = −tr Δ, c₂ the sum of the principal 2×2 minors, c₁ minus that of the 3×3 ones, c₀ = det Δ
+/// (Laplace's expansion by the 2×2 minors of rows 0, 1 and 2, 3).
+fn characteristic(a: &M4) -> [f64; 4] {
+    let minor = |r: [usize; 2], c: [usize; 2]| a[r[0]][c[0]] * a[r[1]][c[1]] - a[r[0]][c[1]] * a[r[1]][c[0]];
+    let trace = a[0][0] + a[1][1] + a[2][2] + a[3][3];
+    let mut c2 = C::ZERO;
+    for i in 0..4 {
+        for j in i + 1..4 {
+            c2 += minor([i, j], [i, j]);
+        }
+    }
+    // Principal 3×3 minors, each by its first row.
+    let mut c1 = C::ZERO;
+    for skip in 0..4 {
+        let [i, j, k] = match skip {
+            0 => [1, 2, 3],
+            1 => [0, 2, 3],
+            2 => [0, 1, 3],
+            _ => [0, 1, 2],
+        };
+        c1 += a[i][i] * minor([j, k], [j, k]) - a[i][j] * minor([j, k], [i, k]) + a[i][k] * minor([j, k], [i, j]);
+    }
+    let s = |i, j| minor([0, 1], [i, j]);
+    let t = |i, j| minor([2, 3], [i, j]);
+    let det = s(0, 1) * t(2, 3) - s(0, 2) * t(1, 3) + s(0, 3) * t(1, 2) + s(1, 2) * t(0, 3) - s(1, 3) * t(0, 2)
+        + s(2, 3) * t(0, 1);
+    [-trace.re, c2.re, -c1.re, det.re]
+}
+
+/// The two largest roots of a real quartic as one quadratic factor x² − S x + P, and the larger
+/// root of the other factor (the top of the backward pair).
+#[derive(Debug, Clone, Copy)]
+struct Factors {
+    sum: f64,
+    product: f64,
+    backward_top: f64,
+}
+
+/// The factors of the real quartic x⁴ + c₃x³ + c₂x² + c₁x + c₀ (see the header), or `None`
+/// unless its resolvent cubic has three real roots, the largest positive (so that the quartic's
+/// four roots are real to rounding).
+fn factors([c3, c2, c1, c0]: [f64; 4]) -> Option<Factors> {
+    // Depressed quartic y⁴ + p y² + q y + r, x = y + a.
+    let a = -0.25 * c3;
+    let p = c2 - 0.375 * c3 * c3;
+    let q = c1 - 0.5 * c3 * c2 + 0.125 * c3 * c3 * c3;
+    let r = c0 - 0.25 * c3 * c1 + c3 * c3 * c2 / 16.0 - 3.0 * c3.powi(4) / 256.0;
+    // Resolvent u³ + 2p u² + (p² − 4r) u − q², depressed by u = t − 2p/3: t³ + P t + Q.
+    let (b, c, d) = (2.0 * p, p * p - 4.0 * r, -q * q);
+    let big_p = c - b * b / 3.0;
+    let big_q = 2.0 * b * b * b / 27.0 - b * c / 3.0 + d;
+    (big_p < 0.0).then_some(())?;
+    let m = 2.0 * (-big_p / 3.0).sqrt();
+    let cos3 = (3.0 * big_q / (big_p * m)).clamp(-1.0, 1.0);
+    let mut u = m * (cos3.acos() / 3.0).cos() - b / 3.0;
+    // One Newton step on the resolvent, kept where it lowers the residual.
+    let resolvent = |u: f64| ((u + b) * u + c) * u + d;
+    let slope = (3.0 * u + 2.0 * b) * u + c;
+    if slope != 0.0 {
+        let polished = u - resolvent(u) / slope;
+        if resolvent(polished).abs() < resolvent(u).abs() {
+            u = polished;
+        }
+    }
+    (u > 0.0 && u.is_finite()).then_some(())?;
+    // y² − √u y + B and y² + √u y + C, B + C = p + u, √u (B − C) = q.
+    let root = u.sqrt();
+    let (big_b, big_c) = (0.5 * (p + u + q / root), 0.5 * (p + u - q / root));
+    Some(Factors {
+        sum: root + 2.0 * a,
+        product: big_b + a * root + a * a,
+        backward_top: 0.5 * (-root + (u - 4.0 * big_c).max(0.0).sqrt()) + a,
+    })
+}
+
+/// The two forward waves of `medium` (face frame, face ⊥ z) at tangential wave vector `qt` from
+/// the forward factor of the characteristic quartic (module header); `None` where that answer is
+/// not trusted (a wave evanescent, grazing or running backward in q_z, or rounding trouble), for
+/// the general solver to answer.
+pub fn forward_waves(medium: &Anisotropic, qt: [f64; 2]) -> Option<ForwardWaves> {
+    let sys = System::new(medium, qt);
+    let delta = &sys.delta;
+    let f = factors(characteristic(delta))?;
+    let scale = delta.iter().flatten().map(|z| z.norm_sqr()).fold(0.0, f64::max).sqrt();
+    // The forward pair well apart from the backward one (its lower root is at least S/2 minus
+    // half the split, S/2 − √(S²/4 − P)).
+    let lower = 0.5 * f.sum - (0.25 * f.sum * f.sum - f.product).max(0.0).sqrt();
+    (lower - f.backward_top > FORWARD_SEPARATION * scale).then_some(())?;
+    // Δ² − S Δ + P: null on the forward pair's invariant subspace.
+    let mut pair = mul(delta, delta);
+    for (i, (row, drow)) in pair.iter_mut().zip(delta).enumerate() {
+        for (x, d) in row.iter_mut().zip(drow) {
+            *x -= f.sum * d;
+        }
+        row[i] += f.product;
+    }
+    let u = null_basis(pair, 2);
+    // The flux form on the subspace: positive definite, with a margin.
+    let (g00, g11) = (flux(&u[0], &u[0]).re, flux(&u[1], &u[1]).re);
+    let g10 = flux(&u[1], &u[0]);
+    let trace = g00 + g11;
+    (g00 > 0.0 && g11 > 0.0 && g00 * g11 - g10.norm_sqr() > FORWARD_DEFINITE * trace * trace).then_some(())?;
+    let (waves, degenerate) = pair_in(&sys, &u, 1.0);
+    let mut out = ForwardWaves {
+        qz: [0.0; 2],
+        psi: [[C::ZERO; 4]; 2],
+        degenerate,
+    };
+    for (k, w) in waves.iter().enumerate() {
+        // Unit flux (the degenerate pair's second wave is only flux-orthogonal to the first).
+        let f = flux(&w.psi, &w.psi).re;
+        (f > 0.0).then_some(())?;
+        let psi = w.psi.map(|z| z / f.sqrt());
+        let moved = apply(delta, &psi);
+        let residual: V4 = std::array::from_fn(|i| moved[i] - w.qz * psi[i]);
+        (norm(&residual) <= FORWARD_RESIDUAL * scale * norm(&psi)).then_some(())?;
+        out.qz[k] = w.qz.re;
+        out.psi[k] = psi;
+    }
+    Some(out)
+}
+
+/// The forward waves' q_z in the medium's slots (its first letter first, as
+/// [`crate::optics::general_modes::general_modes`] puts them), where [`forward_waves`] answers.
+pub fn forward_qz_in_slots(medium: &Anisotropic, qt: [f64; 2]) -> Option<[f64; 2]> {
+    let w = forward_waves(medium, qt)?;
+    let waves = [0, 1].map(|k| Wave {
+        qz: C::from(w.qz[k]),
+        psi: w.psi[k],
+        propagating: true,
+    });
+    Some(if !w.degenerate && swapped(medium, qt, &waves) {
+        [w.qz[1], w.qz[0]]
+    } else {
+        w.qz
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::optics::anisotropic::orientation;
+    use crate::optics::general_modes::general_modes;
+    use crate::optics::modes::Travel;
+    use crate::random::Rng;
+
+    fn medium(principal: [f64; 3], r: nalgebra::Matrix3<f64>, chirality: [f64; 3]) -> Anisotropic {
+        Anisotropic::new(principal, r, chirality).unwrap()
+    }
+
+    /// Independent method: against the general solver (its shifted QR iteration and the scores of
+    /// all four waves) over generated crystals, biaxial, uniaxial and chiral, near and on optic
+    /// axes, and directions out to the largest |q_t| below every index: the same two q_z to
+    /// 1e-12, and each of the general solver's forward waves (unit flux) inside the span of the
+    /// two found here to 1e-12 (its coefficients on them, by the flux form, rebuild it), and the
+    /// q_z in the solver's slots. Where an answer is given the general solver's waves propagate.
+    #[test]
+    fn the_forward_waves_are_the_general_solver_s() {
+        let mut rng = Rng::new(0xf0_7a7d);
+        let (mut answered, mut worst_q, mut worst_psi) = (0, 0.0f64, 0.0f64);
+        let cases = 6000;
+        for case in 0..cases {
+            let principal = match case % 4 {
+                0 => {
+                    let no = 1.4 + 0.8 * rng.uniform();
+                    [no, no, 1.4 + 0.8 * rng.uniform()]
+                }
+                _ => [0; 3].map(|_| 1.4 + 0.8 * rng.uniform()),
+            };
+            let chirality = if case % 3 == 0 {
+                [0; 3].map(|_| 1e-3 * rng.normal())
+            } else {
+                [0.0; 3]
+            };
+            let m = medium(
+                principal,
+                orientation(3.0 * rng.uniform(), 6.0 * rng.uniform(), 6.0 * rng.uniform()),
+                chirality,
+            );
+            // Along an optic axis now and then (the degenerate pair), else a random direction
+            // with |q_t| up to the smallest index.
+            let qt = match (case % 7, m.optic_axes()) {
+                (0, Some([axis, _])) => {
+                    let n = m.indices_along(axis).0;
+                    let axis = if axis.z < 0.0 { -axis } else { axis };
+                    [n * axis.x, n * axis.y]
+                }
+                _ => {
+                    let smallest = principal.iter().copied().fold(f64::INFINITY, f64::min);
+                    let (r, a) = (smallest * rng.uniform().sqrt(), std::f64::consts::TAU * rng.uniform());
+                    [r * a.cos(), r * a.sin()]
+                }
+            };
+            let want = general_modes(&m, qt, Travel::Forward);
+            let Some(got) = forward_waves(&m, qt) else {
+                continue;
+            };
+            answered += 1;
+            assert!(
+                want.iter().all(|w| w.propagating),
+                "case {case}: answered an evanescent pair"
+            );
+            let mut wq = [want[0].qz().re, want[1].qz().re];
+            wq.sort_by(|a, b| b.total_cmp(a));
+            for (w, g) in wq.iter().zip(&got.qz) {
+                worst_q = worst_q.max((w - g).abs());
+                assert!((w - g).abs() < 1e-12, "case {case}: q_z {w} against {g}");
+            }
+            for w in &want {
+                let psi = w.tangential();
+                let coeffs = got.psi.map(|g| flux(&g, &psi));
+                let rebuilt: V4 = std::array::from_fn(|i| coeffs[0] * got.psi[0][i] + coeffs[1] * got.psi[1][i]);
+                let off = norm(&std::array::from_fn(|i| psi[i] - rebuilt[i])) / norm(&psi);
+                worst_psi = worst_psi.max(off);
+                assert!(off < 1e-12, "case {case}: a wave {off} outside the span");
+            }
+            let slots = forward_qz_in_slots(&m, qt).unwrap();
+            for (w, g) in want.iter().zip(&slots) {
+                assert!(
+                    (w.qz().re - g).abs() < 1e-12,
+                    "case {case}: slot q_z {} against {g}",
+                    w.qz().re
+                );
+            }
+            for i in 0..2 {
+                for j in 0..2 {
+                    let f = flux(&got.psi[i], &got.psi[j]);
+                    let want = if i == j { 1.0 } else { 0.0 };
+                    assert!((f - want).norm() < 1e-13, "case {case}: F({i}, {j}) = {f}");
+                }
+            }
+        }
+        eprintln!("{answered} of {cases} answered; worst q_z {worst_q:.1e}, span {worst_psi:.1e}");
+        assert!(answered > cases * 9 / 10, "{answered} of {cases} answered");
+    }
+
+    /// The characteristic polynomial's roots are Δ's eigenvalues: checked against the general
+    /// solver's q_z (its shifted QR iteration) by the polynomial's value there.
+    #[test]
+    fn the_characteristic_polynomial_vanishes_at_the_waves() {
+        let mut rng = Rng::new(21);
+        for _ in 0..200 {
+            let m = medium(
+                [0; 3].map(|_| 1.4 + 0.8 * rng.uniform()),
+                orientation(3.0 * rng.uniform(), 6.0 * rng.uniform(), 6.0 * rng.uniform()),
+                [0; 3].map(|_| 1e-3 * rng.normal()),
+            );
+            let qt = [rng.uniform() - 0.5, rng.uniform() - 0.5];
+            let c = characteristic(&System::new(&m, qt).delta);
+            for travel in [Travel::Forward, Travel::Backward] {
+                for mode in general_modes(&m, qt, travel) {
+                    let x = mode.qz().re;
+                    let value = (((x + c[0]) * x + c[1]) * x + c[2]) * x + c[3];
+                    assert!(value.abs() < 1e-12, "p({x}) = {value}");
+                }
+            }
+        }
+    }
+}
