@@ -33,6 +33,8 @@ pub const DEGENERATE_MODES: f64 = 1e-14;
 /// The largest residual |Δψ − q_z ψ| of a general crystal's forward wave found from the forward
 /// factor of its characteristic quartic (`forward_waves.rs`), relative to |ψ| times the largest
 /// modulus of an entry of Δ; beyond it the general solver answers. Both leave about 10⁻¹⁵.
+/// (Native builds and the design worker's, as the forward waves.)
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub const FORWARD_RESIDUAL: f64 = 1e-12;
 
 /// The smallest gap between the forward pair's lower q_z and the backward pair's upper one,
@@ -42,12 +44,14 @@ pub const FORWARD_RESIDUAL: f64 = 1e-12;
 /// gap, which a plate lit from air at any angle of the cone keeps far above (its forward q_z are
 /// near n cos θ, the gap near twice that); waves near grazing inside the crystal go to the general
 /// solver.
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub const FORWARD_SEPARATION: f64 = 0.05;
 
 /// The smallest determinant of the flux form on the forward subspace (an orthonormal basis of
 /// it), relative to its squared trace, for the two waves to count as forward: a quarter for two
 /// waves of equal flux, near 0 where a wave grazes the face, negative for a forward and a
 /// backward wave.
+#[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
 pub const FORWARD_DEFINITE: f64 = 1e-8;
 
 /// Sweeps of the Schur and SVD iterations of the general mode solver before they are given up

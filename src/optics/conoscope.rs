@@ -52,6 +52,7 @@ use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
 use crate::optics::stack::{CellLayer, Element, Slab, Stack};
 use num_complex::Complex64;
+use std::cell::OnceCell;
 use std::f64::consts::TAU;
 
 /// What a conoscopic map shows at each direction.
@@ -117,24 +118,51 @@ pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
 }
 
 /// The outside medium's forward and backward modes at one tangential wave vector ([`outside_modes`]),
-/// and where the planned trace is built, the same waves in real numbers for the plates it solves.
-#[derive(Debug, Clone, Copy)]
+/// and where the planned trace is built, the same waves in real numbers for the plates it solves:
+/// each solved when first asked for, since a stack of plates of one kind needs only some of them
+/// (a general crystal's plate the forward modes, a uniaxial plate the real waves).
+#[derive(Debug, Clone)]
 pub struct Outside {
-    modes: ([Mode; 2], [Mode; 2]),
+    n_out: f64,
+    qt: [f64; 2],
+    forward: OnceCell<[Mode; 2]>,
+    backward: OnceCell<[Mode; 2]>,
     #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
-    waves: Option<crate::optics::planned_trace::OutsideWaves>,
+    waves: OnceCell<Option<crate::optics::planned_trace::OutsideWaves>>,
 }
 
-/// The outside medium's forward and backward modes at `qt` (index `n_out`): they depend on
-/// neither the wavelength nor the stack, so a direction's spectrum solves them once.
+impl Outside {
+    /// The forward modes.
+    fn forward(&self) -> &[Mode; 2] {
+        self.forward
+            .get_or_init(|| isotropic_modes(self.n_out, self.qt, Travel::Forward))
+    }
+
+    /// The backward modes.
+    fn backward(&self) -> &[Mode; 2] {
+        self.backward
+            .get_or_init(|| isotropic_modes(self.n_out, self.qt, Travel::Backward))
+    }
+
+    /// The waves in real numbers, `None` where the planned trace does not take them.
+    #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
+    fn waves(&self) -> Option<&crate::optics::planned_trace::OutsideWaves> {
+        self.waves
+            .get_or_init(|| crate::optics::planned_trace::outside_waves(self.n_out, self.qt))
+            .as_ref()
+    }
+}
+
+/// The outside medium's modes at `qt` (index `n_out`), each solved when first needed: they depend
+/// on neither the wavelength nor the stack, so a direction's spectrum solves them once.
 pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> Outside {
     Outside {
-        modes: (
-            isotropic_modes(n_out, qt, Travel::Forward),
-            isotropic_modes(n_out, qt, Travel::Backward),
-        ),
+        n_out,
+        qt,
+        forward: OnceCell::new(),
+        backward: OnceCell::new(),
         #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
-        waves: crate::optics::planned_trace::outside_waves(n_out, qt),
+        waves: OnceCell::new(),
     }
 }
 
@@ -176,7 +204,7 @@ fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) ->
     let k0 = stack.wavelength.k0_per_mm();
     let fwd = slab.medium.modes(qt, Travel::Forward);
     let back = slab.medium.modes(qt, Travel::Backward);
-    let (t_in, t_out) = slab_couplings((&outside.modes.0, &outside.modes.1), (&fwd, &back), stack.losses)?;
+    let (t_in, t_out) = slab_couplings((outside.forward(), outside.backward()), (&fwd, &back), stack.losses)?;
     let mut phase = CMatrix2::zeros();
     for (k, mode) in fwd.iter().enumerate() {
         if mode.propagating {
@@ -202,7 +230,7 @@ fn real_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) -> Op
     };
     let surfaces = CrystalSurfaces::of(&crystal);
     let ideal = stack.losses == Losses::Ideal;
-    let (t_in, t_out, qz) = parallel_plate(&crystal, &surfaces, outside.waves.as_ref()?, qt, ideal)?;
+    let (t_in, t_out, qz) = parallel_plate(&crystal, &surfaces, outside.waves()?, qt, ideal)?;
     let k0 = stack.wavelength.k0_per_mm();
     let mut m = JonesMatrix::zeros();
     for (k, qz) in qz.iter().enumerate() {
@@ -238,7 +266,7 @@ fn general_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) ->
     let Medium::Anisotropic(medium) = slab.medium else {
         return None;
     };
-    let [a, b] = &outside.modes.0;
+    let [a, b] = outside.forward();
     if !(a.propagating && b.propagating) {
         return None;
     }

@@ -43,7 +43,7 @@
 //! Rayleigh–Ritz step: Golub & Van Loan, *Matrix Computations*, §8.1.
 
 use crate::optics::anisotropic::Anisotropic;
-use crate::optics::general_modes::{M4, System, V4, Wave, apply, flux, mul, norm, null_basis, pair_in, swapped};
+use crate::optics::general_modes::{M4, System, V4, Wave, apply, flux, mul, norm, pair_coefficients, swapped};
 use crate::precision::{FORWARD_DEFINITE, FORWARD_RESIDUAL, FORWARD_SEPARATION};
 use num_complex::Complex64;
 
@@ -63,34 +63,25 @@ pub struct ForwardWaves {
 }
 
 /// The characteristic polynomial det(x − Δ) = x⁴ + c₃x³ + c₂x² + c₁x + c₀ of `delta` as
-/// [c₃, c₂, c₁, c₀], real parts (its coefficients are real for a lossless medium, see the header):
-/// c₃ = −tr Δ, c₂ the sum of the principal 2×2 minors, c₁ minus that of the 3×3 ones, c₀ = det Δ
-/// (Laplace's expansion by the 2×2 minors of rows 0, 1 and 2, 3).
-fn characteristic(a: &M4) -> [f64; 4] {
-    let minor = |r: [usize; 2], c: [usize; 2]| a[r[0]][c[0]] * a[r[1]][c[1]] - a[r[0]][c[1]] * a[r[1]][c[0]];
-    let trace = a[0][0] + a[1][1] + a[2][2] + a[3][3];
-    let mut c2 = C::ZERO;
+/// [c₃, c₂, c₁, c₀] (real parts: its coefficients are real for a lossless medium, see the header),
+/// from the power sums tₖ = tr Δᵏ by Newton's identities, Δ² (`square`) given:
+/// c₃ = −t₁, c₂ = −(c₃t₁ + t₂)/2, c₁ = −(c₂t₁ + c₃t₂ + t₃)/3, c₀ = −(c₁t₁ + c₂t₂ + c₃t₃ + t₄)/4,
+/// with t₃ = Σ (Δ²)ᵢⱼ Δⱼᵢ and t₄ = Σ (Δ²)ᵢⱼ (Δ²)ⱼᵢ.
+fn characteristic(delta: &M4, square: &M4) -> [f64; 4] {
+    let (mut t1, mut t2, mut t3, mut t4) = (0.0, 0.0, 0.0, 0.0);
     for i in 0..4 {
-        for j in i + 1..4 {
-            c2 += minor([i, j], [i, j]);
+        t1 += delta[i][i].re;
+        t2 += square[i][i].re;
+        for j in 0..4 {
+            t3 += (square[i][j] * delta[j][i]).re;
+            t4 += (square[i][j] * square[j][i]).re;
         }
     }
-    // Principal 3×3 minors, each by its first row.
-    let mut c1 = C::ZERO;
-    for skip in 0..4 {
-        let [i, j, k] = match skip {
-            0 => [1, 2, 3],
-            1 => [0, 2, 3],
-            2 => [0, 1, 3],
-            _ => [0, 1, 2],
-        };
-        c1 += a[i][i] * minor([j, k], [j, k]) - a[i][j] * minor([j, k], [i, k]) + a[i][k] * minor([j, k], [i, j]);
-    }
-    let s = |i, j| minor([0, 1], [i, j]);
-    let t = |i, j| minor([2, 3], [i, j]);
-    let det = s(0, 1) * t(2, 3) - s(0, 2) * t(1, 3) + s(0, 3) * t(1, 2) + s(1, 2) * t(0, 3) - s(1, 3) * t(0, 2)
-        + s(2, 3) * t(0, 1);
-    [-trace.re, c2.re, -c1.re, det.re]
+    let c3 = -t1;
+    let c2 = -(c3 * t1 + t2) / 2.0;
+    let c1 = -(c2 * t1 + c3 * t2 + t3) / 3.0;
+    let c0 = -(c1 * t1 + c2 * t2 + c3 * t3 + t4) / 4.0;
+    [c3, c2, c1, c0]
 }
 
 /// The two largest roots of a real quartic as one quadratic factor x² − S x + P, and the larger
@@ -139,6 +130,64 @@ fn factors([c3, c2, c1, c0]: [f64; 4]) -> Option<Factors> {
     })
 }
 
+/// The three indices of 0..4 other than `k`, in order.
+fn others(k: usize) -> [usize; 3] {
+    match k {
+        0 => [1, 2, 3],
+        1 => [0, 2, 3],
+        2 => [0, 1, 3],
+        _ => [0, 1, 2],
+    }
+}
+
+/// An orthonormal basis of the null space of `a`, a 4×4 matrix of rank 2 to rounding, as the
+/// general solver's null basis finds it (Gaussian elimination with complete pivoting, back
+/// substitution with each free unknown set to 1 in turn, then Gram–Schmidt), written out for
+/// this one case: rows and columns are taken by index rather than moved, and each pivot inverted
+/// once. `None` when a pivot is zero.
+fn null_pair(a: &M4) -> Option<[V4; 2]> {
+    let largest = |size: usize, at: &dyn Fn(usize, usize) -> C| {
+        let (mut best, mut pos) = (0.0, (0, 0));
+        for i in 0..size {
+            for j in 0..size {
+                let m = at(i, j).norm_sqr();
+                if m > best {
+                    (best, pos) = (m, (i, j));
+                }
+            }
+        }
+        (best > 0.0).then_some(pos)
+    };
+    let (r0, c0) = largest(4, &|i, j| a[i][j])?;
+    let inv0 = a[r0][c0].inv();
+    let (rows, cols) = (others(r0), others(c0));
+    // The 3×3 left once row r0 has eliminated column c0.
+    let mut b = [[C::ZERO; 3]; 3];
+    for (brow, &r) in b.iter_mut().zip(&rows) {
+        let f = a[r][c0] * inv0;
+        for (x, &c) in brow.iter_mut().zip(&cols) {
+            *x = a[r][c] - f * a[r0][c];
+        }
+    }
+    let (r1, c1) = largest(3, &|i, j| b[i][j])?;
+    let inv1 = b[r1][c1].inv();
+    let mut out = [[C::ZERO; 4]; 2];
+    for (v, free) in out.iter_mut().zip((0..3).filter(|&j| j != c1)) {
+        v[cols[free]] = C::ONE;
+        v[cols[c1]] = -b[r1][free] * inv1;
+        let sum = a[r0][cols[free]] + a[r0][cols[c1]] * v[cols[c1]];
+        v[c0] = -sum * inv0;
+    }
+    // Gram–Schmidt (Hermitian).
+    let [first, second] = out;
+    let n0 = norm(&first);
+    let first = first.map(|z| z / n0);
+    let p: C = first.iter().zip(&second).map(|(x, y)| x.conj() * y).sum();
+    let second: V4 = std::array::from_fn(|i| second[i] - p * first[i]);
+    let n1 = norm(&second);
+    (n1 > 0.0).then(|| [first, second.map(|z| z / n1)])
+}
+
 /// The two forward waves of `medium` (face frame, face ⊥ z) at tangential wave vector `qt` from
 /// the forward factor of the characteristic quartic (module header); `None` where that answer is
 /// not trusted (a wave evanescent, grazing or running backward in q_z, or rounding trouble), for
@@ -146,42 +195,44 @@ fn factors([c3, c2, c1, c0]: [f64; 4]) -> Option<Factors> {
 pub fn forward_waves(medium: &Anisotropic, qt: [f64; 2]) -> Option<ForwardWaves> {
     let sys = System::new(medium, qt);
     let delta = &sys.delta;
-    let f = factors(characteristic(delta))?;
+    let square = mul(delta, delta);
+    let f = factors(characteristic(delta, &square))?;
     let scale = delta.iter().flatten().map(|z| z.norm_sqr()).fold(0.0, f64::max).sqrt();
     // The forward pair well apart from the backward one (its lower root is at least S/2 minus
     // half the split, S/2 − √(S²/4 − P)).
     let lower = 0.5 * f.sum - (0.25 * f.sum * f.sum - f.product).max(0.0).sqrt();
     (lower - f.backward_top > FORWARD_SEPARATION * scale).then_some(())?;
     // Δ² − S Δ + P: null on the forward pair's invariant subspace.
-    let mut pair = mul(delta, delta);
+    let mut pair = square;
     for (i, (row, drow)) in pair.iter_mut().zip(delta).enumerate() {
         for (x, d) in row.iter_mut().zip(drow) {
             *x -= f.sum * d;
         }
         row[i] += f.product;
     }
-    let u = null_basis(pair, 2);
+    let u = null_pair(&pair)?;
     // The flux form on the subspace: positive definite, with a margin.
     let (g00, g11) = (flux(&u[0], &u[0]).re, flux(&u[1], &u[1]).re);
     let g10 = flux(&u[1], &u[0]);
     let trace = g00 + g11;
     (g00 > 0.0 && g11 > 0.0 && g00 * g11 - g10.norm_sqr() > FORWARD_DEFINITE * trace * trace).then_some(())?;
-    let (waves, degenerate) = pair_in(&sys, &u, 1.0);
+    let du = [apply(delta, &u[0]), apply(delta, &u[1])];
+    let (waves, degenerate) = pair_coefficients(&sys, &u, &du, 1.0);
     let mut out = ForwardWaves {
         qz: [0.0; 2],
         psi: [[C::ZERO; 4]; 2],
         degenerate,
     };
-    for (k, w) in waves.iter().enumerate() {
-        // Unit flux (the degenerate pair's second wave is only flux-orthogonal to the first).
-        let f = flux(&w.psi, &w.psi).re;
-        (f > 0.0).then_some(())?;
-        let psi = w.psi.map(|z| z / f.sqrt());
-        let moved = apply(delta, &psi);
-        let residual: V4 = std::array::from_fn(|i| moved[i] - w.qz * psi[i]);
+    for (k, (qz, c)) in waves.iter().enumerate() {
+        let psi: V4 = std::array::from_fn(|i| c[0] * u[0][i] + c[1] * u[1][i]);
+        let moved: V4 = std::array::from_fn(|i| c[0] * du[0][i] + c[1] * du[1][i]);
+        let residual: V4 = std::array::from_fn(|i| moved[i] - qz * psi[i]);
         (norm(&residual) <= FORWARD_RESIDUAL * scale * norm(&psi)).then_some(())?;
-        out.qz[k] = w.qz.re;
-        out.psi[k] = psi;
+        // Unit flux (the degenerate pair's second wave is only flux-orthogonal to the first).
+        let f = flux(&psi, &psi).re;
+        (f > 0.0).then_some(())?;
+        out.qz[k] = *qz;
+        out.psi[k] = psi.map(|z| z / f.sqrt());
     }
     Some(out)
 }
@@ -312,7 +363,8 @@ mod tests {
                 [0; 3].map(|_| 1e-3 * rng.normal()),
             );
             let qt = [rng.uniform() - 0.5, rng.uniform() - 0.5];
-            let c = characteristic(&System::new(&m, qt).delta);
+            let delta = System::new(&m, qt).delta;
+            let c = characteristic(&delta, &mul(&delta, &delta));
             for travel in [Travel::Forward, Travel::Backward] {
                 for mode in general_modes(&m, qt, travel) {
                     let x = mode.qz().re;

@@ -141,7 +141,12 @@ pub(crate) struct System {
 impl System {
     pub(crate) fn new(m: &Anisotropic, qt: [f64; 2]) -> System {
         let eps = m.permittivity();
-        let kappa = m.chirality_tensor();
+        // Without optical activity κ is zero (as the product would give it, exactly).
+        let kappa = if m.is_chiral() {
+            m.chirality_tensor()
+        } else {
+            Matrix3::zeros()
+        };
         let i = C::i();
         // [q_t ×] for q_t = (q_x, q_y, 0).
         let cross = Matrix3::new(0.0, 0.0, qt[1], 0.0, 0.0, -qt[0], -qt[1], qt[0], 0.0);
@@ -322,11 +327,12 @@ pub(crate) fn null_basis(mut a: M4, dim: usize) -> [V4; 2] {
     let mut col = [0usize, 1, 2, 3];
     let mut rank = 0;
     for k in 0..4 - dim {
+        // The largest modulus, compared by its square (the same order, no square roots).
         let (mut pi, mut pj, mut best) = (k, k, 0.0);
         for (i, row) in a.iter().enumerate().skip(k) {
             for (j, x) in row.iter().enumerate().skip(k) {
-                if x.norm_sqr().sqrt() > best {
-                    (pi, pj, best) = (i, j, x.norm_sqr().sqrt());
+                if x.norm_sqr() > best {
+                    (pi, pj, best) = (i, j, x.norm_sqr());
                 }
             }
         }
@@ -464,6 +470,18 @@ fn propagating_pair(sys: &System, l0: C, l1: C, s: f64) -> ([Wave; 2], bool) {
 /// as [`propagating_pair`] finds them: (waves, whether they were taken as one degenerate pair).
 pub(crate) fn pair_in(sys: &System, u: &[V4; 2], s: f64) -> ([Wave; 2], bool) {
     let du = [apply(&sys.delta, &u[0]), apply(&sys.delta, &u[1])];
+    let (pair, degenerate) = pair_coefficients(sys, u, &du, s);
+    let wave = |(qz, c): (f64, [C; 2])| Wave {
+        qz: C::from(qz),
+        psi: combine(&u[0], c[0], &u[1], c[1]),
+        propagating: true,
+    };
+    (pair.map(wave), degenerate)
+}
+
+/// The two waves of [`pair_in`] as their q_z and their coefficients on the basis `u` (whose
+/// images under Δ are `du`), and whether they were taken as one degenerate pair.
+pub(crate) fn pair_coefficients(sys: &System, u: &[V4; 2], du: &[V4; 2], s: f64) -> ([(f64, [C; 2]); 2], bool) {
     // G = Uᴴ J U (definite, sign s), A = Uᴴ J Δ U, both Hermitian (their Hermitian parts taken,
     // which rounding aside they are already).
     let herm = |f: &dyn Fn(usize, usize) -> C| {
@@ -488,11 +506,7 @@ pub(crate) fn pair_in(sys: &System, u: &[V4; 2], s: f64) -> ([Wave; 2], bool) {
         let x1 = w[1] / l22;
         [(w[0] - l21.conj() * x1) / l11, x1]
     };
-    let wave = |qz: f64, c: [C; 2]| Wave {
-        qz: C::from(qz),
-        psi: combine(&u[0], c[0], &u[1], c[1]),
-        propagating: true,
-    };
+    let wave = |qz: f64, c: [C; 2]| (qz, c);
     if half <= DEGENERATE_MODES * (1.0 + mean.abs()) {
         // One q_z: the documented basis, the second flux-orthogonal to the first (G f)ᴴ x = 0.
         let f = first_of_pair(sys, u);
