@@ -1,5 +1,6 @@
 //! Convergent light through general crystals: biaxial plates and optically active quartz, whose
-//! modes come from the 4×4 solver at every direction of the cone.
+//! two forward waves come from the forward factor of the 4×4 system's characteristic quartic at
+//! every direction of the cone (the full 4×4 solve where it declines), each face by the flux form.
 //!
 //! Independent checks: every direction against a whole trace of the scenario with the beam at
 //! that incidence (the spots' path sum of the general tracer, not the set-up's matrix product);
@@ -153,18 +154,20 @@ fn an_active_c_cut_plate_rotates_the_light_on_axis() {
 
 #[test]
 fn a_general_crystal_s_figures_are_capped_and_say_so() {
-    // The 4×4 solve of every direction costs about 12 times the uniaxial closed form's, so a
-    // figure with a general crystal is computed at most 192 × 192, and in white light 48 × 48
-    // (one sixteenth of it computed here, the part's size that of the whole).
+    // Each direction solves the crystal's two forward waves (about twice a uniaxial plate's
+    // work), so a figure with a general crystal is computed at most 256 × 256, the page's size,
+    // and in white light 128 × 128 (one sixteenth of it computed here, the part's size that of
+    // the whole).
     let sc = Scenario::from_json_str(SET_UPS[0]).unwrap();
-    let map = conoscope_of(&sc, ConoscopeQuantity::Transmission, 30.0, 256).unwrap();
+    let map = conoscope_of(&sc, ConoscopeQuantity::Transmission, 30.0, 300).unwrap();
     assert_eq!(map.pixels, doublespar::MAX_PIXELS_GENERAL);
-    assert_eq!(map.values.len(), 192 * 192);
+    assert_eq!(doublespar::MAX_PIXELS_GENERAL, 256);
+    assert_eq!(map.values.len(), 256 * 256);
     let white = doublespar::white_light_part(&sc, 30.0, 256, 0, 16).unwrap();
     assert_eq!(white.pixels, doublespar::MAX_PIXELS_WHITE_GENERAL);
-    assert_eq!(doublespar::MAX_PIXELS_WHITE_GENERAL, 48);
-    assert!(white.colours[..3 * 48].iter().any(Option::is_some));
-    assert!(white.colours[3 * 48..].iter().all(Option::is_none));
+    assert_eq!(doublespar::MAX_PIXELS_WHITE_GENERAL, 128);
+    assert!(white.colours[..8 * 128].iter().any(Option::is_some));
+    assert!(white.colours[8 * 128..].iter().all(Option::is_none));
     // Below the cap, the size asked for.
     assert_eq!(
         conoscope_of(&sc, ConoscopeQuantity::Transmission, 30.0, 40)

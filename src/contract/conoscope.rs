@@ -44,11 +44,13 @@ pub const MAX_PIXELS: usize = 512;
 pub const MAX_PIXELS_WITH_CELL: usize = 192;
 
 /// The largest number of pixels per side of a set-up holding a general crystal (biaxial, or
-/// quartz with its optical activity): each direction solves its modes by the 4×4 solver, about
-/// 12 times a uniaxial plate's work (natively at 256 × 256: 0.30-0.35 s for a KTP plate and an
-/// active quartz plate against 0.026 s for the same quartz without activity), so its map is
-/// computed at most 192 × 192, as a cell's is (in the worker's build under Node: 195 ms).
-pub const MAX_PIXELS_GENERAL: usize = 192;
+/// quartz with its optical activity): each direction solves the crystal's two forward waves from
+/// the forward factor of its characteristic quartic (`optics::forward_waves`, about twice a
+/// uniaxial plate's work; before, its four waves by the 4×4 solver's QR iteration took about 12
+/// times), so its map is computed at the page's 256 × 256 (measured on a two-core machine at load
+/// 2.4–3.3: 61–63 ms for a KTP plate and an active quartz plate in the worker's build under Node,
+/// 50–54 ms natively, against 345–367 ms and 301–338 ms before; the aim is about 100 ms).
+pub const MAX_PIXELS_GENERAL: usize = 256;
 
 /// The largest number of pixels per side of a white-light figure: each direction is solved at
 /// the 81 wavelengths of the colour tables, 81 times a monochromatic figure's work.
@@ -57,10 +59,11 @@ pub const MAX_PIXELS_WHITE: usize = 256;
 /// liquid-crystal cell (81 cell solves a direction).
 pub const MAX_PIXELS_WHITE_WITH_CELL: usize = 24;
 /// The largest number of pixels per side of a white-light figure of a set-up holding a general
-/// crystal (81 general solves a direction: in the worker's build under Node 64 × 64 took 1.64 s
-/// for a KTP plate, above the aim of about 1 s that a uniaxial plate's 256 × 256 meets, so 48 ×
-/// 48, about 0.9 s).
-pub const MAX_PIXELS_WHITE_GENERAL: usize = 48;
+/// crystal (81 forward-wave solves a direction: 128 × 128 took 1.06–1.11 s for a KTP plate and an
+/// active quartz plate in the worker's build under Node, about the aim of 1 s that a uniaxial
+/// plate's 256 × 256 meets, and the page shares it among its workers; 0.83–0.85 s natively on two
+/// threads; 6.6–6.9 s and 5.6–5.9 s before, when 48 × 48 was the cap).
+pub const MAX_PIXELS_WHITE_GENERAL: usize = 128;
 
 /// The cap on pixels per side for `stack`: `cell` with a liquid-crystal cell, `general` with a
 /// general crystal, the smaller with both; none for plates of uniaxial crystals.

@@ -4,10 +4,11 @@
 // equals, shade for shade, the command line's `doublespar draw conoscope` of the same document
 // at its 128 × 128 (whose SVG embeds the map as a PNG, decoded here with node's zlib); a newer
 // edit wins over an answer under way, the figure says it is computing, a set-up the figure
-// cannot be solved for names its element, and a liquid-crystal cell's figure comes at the core's
-// 192 × 192; an embedded <spar-figure> computes its own in a worker; the white-light switch
+// cannot be solved for names its element, a KTP plate's figure comes at 256 × 256 too and a
+// liquid-crystal cell's at the core's 192 × 192; an embedded <spar-figure> computes its own in a worker; the white-light switch
 // draws a c-cut plate's interference colours (black centre between crossed polarizers, coloured
-// isochromes), computed in the worker at 256 × 256, with the sampling noted.
+// isochromes), computed in the worker at 256 × 256, with the sampling noted, and an active
+// quartz plate's at the core's 128 × 128 for a general crystal.
 //
 // Run: `cd tests/e2e && node --test conoscope.test.mjs` (after scripts/build-web.sh and
 // `cargo build --release --bin doublespar`).
@@ -137,17 +138,26 @@ test('a newer edit wins over an answer under way, the figure says it is computin
     const fresh = await ownMap(page, 'conoscope', 256);
     assert.deepEqual(drawnMap.grey, fresh.grey, 'the map drawn is the last edit\'s');
 
-    // A biaxial crystal is solved at every direction by the general solver, at the core's cap of
-    // 192 × 192, and the figure's note says so.
+    // A biaxial crystal is solved at every direction from its two forward waves, at the page's
+    // 256 × 256 (the core's cap for a general crystal), and the figure's note says so. The
+    // quartz plate's map above is 256 × 256 too, so the wait is for a map other than it.
+    const shadeSum = (raster) => raster.grey.reduce((a, g) => a + (g ?? -1), 0);
+    const quartzSum = shadeSum(drawnMap);
     await page.evaluate(() => window.doublespar.applyScenario({
       version: 2, beam: { polarization: { kind: 'linear', azimuth_deg: 45 } },
       elements: [{ kind: 'crystal', material: 'ktp', thickness_mm: 1, axes: { tilt_deg: 0, azimuth_deg: 0, roll_deg: 0 } },
         { kind: 'polarizer', gap_mm: 1, transmission_axis_deg: -45 }],
     }));
-    await page.waitForFunction(() => window.doublespar.session.scene('conoscope').items.some((i) => i.type === 'raster' && i.columns === 192), null, { timeout: 60000, polling: 200 });
+    await page.waitForFunction((before) => {
+      const r = window.doublespar.session.scene('conoscope').items.find((i) => i.type === 'raster');
+      return r !== undefined && r.columns === 256 && r.grey.reduce((a, g) => a + (g ?? -1), 0) !== before;
+    }, quartzSum, { timeout: 60000, polling: 200 });
     await settled(page);
     const ktpScene = await page.evaluate(() => window.doublespar.session.scene('conoscope'));
-    assert.ok(ktpScene.items.some((i) => i.type === 'text' && i.text.includes('192 × 192 directions')), 'the note says how many');
+    assert.ok(ktpScene.items.some((i) => i.type === 'text' && i.text.includes('256 × 256 directions')), 'the note says how many');
+    const ktpStatus = await page.textContent('#convergent-status');
+    console.log(`KTP plate's figure: ${ktpStatus}`);
+    assert.match(ktpStatus, /^256 × 256 directions computed in \d+ ms\.$/, 'no remark of fewer directions');
 
     // A crystal with faces at an angle is not solved in convergent light: the figure names it.
     await page.evaluate(() => window.doublespar.applyScenario({
@@ -222,6 +232,25 @@ test('white light: the switch draws the interference colours computed in the wor
     assert.ok(shown.centre[3] === 255 && shown.centre.slice(0, 3).every((v) => v <= 3), `centre ${shown.centre}`);
     assert.ok(shown.chroma > 100, `the isochromes are coloured: ${shown.chroma}`);
     assert.match(shown.note, /D65 white light \(CIE 1931 2° observer\): 81 wavelengths, 380–780 nm in air at 5 nm; 256 × 256 directions/);
+
+    // The same plate with its optical activity is a general crystal: its white-light figure
+    // comes at the core's cap of 128 × 128, and its centre, where the plate turns the plane of
+    // polarization by about 43° in yellow light, is not black.
+    await page.evaluate(() => window.doublespar.applyScenario({
+      version: 2, wavelength_nm: 589.3, beam: { polarization: { kind: 'linear', azimuth_deg: 0 } },
+      elements: [{ kind: 'crystal', material: 'quartz', thickness_mm: 2, axis: { tilt_deg: 0, azimuth_deg: 0 } },
+        { kind: 'polarizer', transmission_axis_deg: 90 }],
+    }));
+    await page.waitForFunction(() => !window.doublespar.convergent().busy
+      && document.getElementById('conoscope-white-note').textContent.includes('128 × 128 directions'), null, { timeout: 180000, polling: 250 });
+    const active = await page.evaluate(() => {
+      const c = document.getElementById('conoscope-white-canvas');
+      const d = c.getContext('2d').getImageData(c.width / 2, c.height / 2, 1, 1).data;
+      return { side: [c.width, c.height], centre: Array.from(d), ms: window.doublespar.convergent().ms.white };
+    });
+    console.log(`white-light figure of an active quartz plate, 128 × 128, in the workers (with the two 256 × 256 maps): ${Math.round(active.ms)} ms`);
+    assert.deepEqual(active.side, [128, 128]);
+    assert.ok(active.centre[3] === 255 && Math.max(...active.centre.slice(0, 3)) > 60, `centre ${active.centre}`);
   });
 });
 
