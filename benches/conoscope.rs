@@ -18,36 +18,42 @@ use doublespar::{ConoscopeQuantity, MAX_PIXELS_WITH_CELL, Scenario, conoscope_of
 use std::hint::black_box;
 use std::time::Instant;
 
-/// Median time (ms) of 9 maps of `sc` at `pixels` per side, the last map's checksum and its
-/// side (below `pixels` where the core caps it).
-fn time(sc: &Scenario, pixels: usize) -> (f64, f64, usize) {
+/// A timed figure of a scenario at a size: its median time (ms), checksum and side.
+type Timer = fn(&Scenario, usize) -> (f64, f64, usize);
+
+/// Median time (ms) of `runs` runs of `figure`, which returns its checksum and its side, and
+/// the last run's checksum and side.
+fn median(runs: usize, mut figure: impl FnMut() -> (f64, usize)) -> (f64, f64, usize) {
     let mut times = Vec::new();
     let (mut sum, mut side) = (0.0, 0);
-    for _ in 0..9 {
+    for _ in 0..runs {
         let t = Instant::now();
-        let map = conoscope_of(black_box(sc), ConoscopeQuantity::Transmission, 30.0, pixels).unwrap();
+        (sum, side) = figure();
         times.push(t.elapsed().as_secs_f64() * 1e3);
-        sum = map.values.iter().flatten().sum::<f64>();
-        side = map.pixels;
     }
     times.sort_by(f64::total_cmp);
-    (times[times.len() / 2], sum, side)
+    (times[runs / 2], sum, side)
+}
+
+/// Median time (ms) of 9 maps of `sc` at `pixels` per side, the last map's checksum (the sum of
+/// its values) and its side (below `pixels` where the core caps it).
+fn time(sc: &Scenario, pixels: usize) -> (f64, f64, usize) {
+    median(9, || {
+        let map = conoscope_of(black_box(sc), ConoscopeQuantity::Transmission, 30.0, pixels).unwrap();
+        (map.values.iter().flatten().sum::<f64>(), map.pixels)
+    })
 }
 
 /// Median time (ms) of 3 white-light figures of `sc` at `pixels` per side, the last one's
 /// checksum (the sum of its colours' XYZ) and its side.
 fn time_white(sc: &Scenario, pixels: usize) -> (f64, f64, usize) {
-    let mut times = Vec::new();
-    let (mut sum, mut side) = (0.0, 0);
-    for _ in 0..3 {
-        let t = Instant::now();
+    median(3, || {
         let map = white_light_of(black_box(sc), 30.0, pixels).unwrap();
-        times.push(t.elapsed().as_secs_f64() * 1e3);
-        sum = map.colours.iter().flatten().flat_map(|c| c.xyz).sum::<f64>();
-        side = map.pixels;
-    }
-    times.sort_by(f64::total_cmp);
-    (times[1], sum, side)
+        (
+            map.colours.iter().flatten().flat_map(|c| c.xyz).sum::<f64>(),
+            map.pixels,
+        )
+    })
 }
 
 /// A KTP plate with its principal axes turned, between crossed polarizers (as in
@@ -71,22 +77,19 @@ fn general_crystals(full: bool) -> String {
     };
     let mut general = String::new();
     for (name, sc) in [("ktp", &ktp), ("active_quartz", &active)] {
-        let mut done = Vec::new();
-        for &pixels in mono {
-            let (ms, sum, side) = time(sc, pixels);
-            if !done.contains(&side) {
-                println!("{name} figure, {side}x{side}: {ms:.2} ms (checksum {sum:.12e})");
-                general += &format!(",\"{name}_conoscope_{side}_ms\":{ms:.4},\"{name}_checksum_{side}\":{sum:e}");
-                done.push(side);
-            }
-        }
-        let mut done = Vec::new();
-        for &pixels in white {
-            let (ms, sum, side) = time_white(sc, pixels);
-            if !done.contains(&side) {
-                println!("{name} white-light figure, {side}x{side}: {ms:.2} ms (checksum of XYZ {sum:.12e})");
-                general += &format!(",\"{name}_white_{side}_ms\":{ms:.4},\"{name}_white_checksum_{side}\":{sum:e}");
-                done.push(side);
+        let kinds: [(&str, &str, &[usize], Timer); 2] = [
+            ("figure", "conoscope", mono, time),
+            ("white-light figure", "white", white, time_white),
+        ];
+        for (what, key, sizes, timer) in kinds {
+            let mut done = Vec::new();
+            for &pixels in sizes {
+                let (ms, sum, side) = timer(sc, pixels);
+                if !done.contains(&side) {
+                    println!("{name} {what}, {side}x{side}: {ms:.2} ms (checksum {sum:.12e})");
+                    general += &format!(",\"{name}_{key}_{side}_ms\":{ms:.4},\"{name}_{key}_checksum_{side}\":{sum:e}");
+                    done.push(side);
+                }
             }
         }
     }

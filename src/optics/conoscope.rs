@@ -35,11 +35,25 @@
 //! (`planned_trace::parallel_plate`: the modes' fields are then real, so are the faces'
 //! couplings; each face by the planned trace's 2×2 flux-form solve), the same matrix to 1e-13 (tested
 //! against the complex solution) in a third of the instructions; elsewhere in complex numbers
-//! with 4×4 face solves. A general crystal (biaxial, or optically active: its modes from the
-//! 4×4 solver of [`crate::optics::general_modes`], elliptical near an optic axis) is always solved
-//! in complex numbers; its retardance is k0 (q_z,2 − q_z,1) L with its modes in their own order
-//! (fast first, so never negative; zero along an optic axis of a biaxial crystal). A stack with
-//! faces at an angle is not a plane-parallel stack: [`conoscope_stack_ok`] says so.
+//! with 4×4 face solves. A general crystal (biaxial, or optically active: elliptical waves near
+//! an optic axis) is solved in complex numbers from its two forward waves alone
+//! ([`crate::optics::forward_waves`]): a plate between half-spaces of the outside medium needs no
+//! backward wave, since the waves of one lossless medium at one tangential wave vector carry no
+//! cross flux under F(a, b) = aᴴ J b, forward with backward, and the outside medium's two forward
+//! waves are flux-orthonormal as the crystal's are. Taking F of the boundary conditions with the
+//! outside forward waves at the entry face and with the crystal's forward waves at the exit face
+//! leaves
+//!
+//! ```text
+//! T_entry = G⁻¹,   T_exit = (Gᴴ)⁻¹ = T_entryᴴ,   G_il = F(outside wave i, crystal wave l),
+//! ```
+//!
+//! (for ideal faces their lossless parts, U and Uᴴ), the 4×4 face solves' T to rounding. Where the
+//! forward waves are not found that way (a wave evanescent or grazing) the general crystal takes
+//! the 4×4 solver of [`crate::optics::general_modes`], all four waves and 4×4 face solves. Its
+//! retardance is k0 (q_z,2 − q_z,1) L with its modes in their own order (fast first, so never
+//! negative; zero along an optic axis of a biaxial crystal). A stack with faces at an angle is
+//! not a plane-parallel stack: [`conoscope_stack_ok`] says so.
 //!
 //! Sources: Born & Wolf, *Principles of Optics*, §15.4.4 (interference figures of crystal plates
 //! in convergent light); the sine condition, Born & Wolf §4.5.
@@ -452,6 +466,23 @@ mod tests {
         }
     }
 
+    /// A plate of `medium` 0.01 to 5 mm thick and a stack of no elements around it at 400 to
+    /// 800 nm, in an outside medium of index 1.33 when `immersed` (else air), with ideal or bare
+    /// faces: the cross-checks' generated cases.
+    fn random_plate(rng: &mut crate::random::Rng, medium: Medium, immersed: bool, ideal: bool) -> (Slab, Stack) {
+        let slab = Slab {
+            medium,
+            thickness_mm: 0.01 + rng.uniform() * 5.0,
+            faces: None,
+        };
+        let stack = bare_stack(
+            400.0 + rng.uniform() * 400.0,
+            if immersed { 1.33 } else { 1.0 },
+            if ideal { Losses::Ideal } else { Losses::Uncoated },
+        );
+        (slab, stack)
+    }
+
     /// Independent method: the real-number plate of the planned trace against the complex
     /// modes and 4×4 face solves of the trace, over random crystals, directions up to 60° in
     /// air and both face treatments; and the complex one taking over where a wave runs along
@@ -467,16 +498,7 @@ mod tests {
                 Indices::new(no, ne).unwrap(),
                 OpticAxis::from_angles(rng.uniform() * std::f64::consts::PI, rng.uniform() * TAU),
             );
-            let slab = Slab {
-                medium: Medium::Uniaxial(crystal),
-                thickness_mm: 0.01 + rng.uniform() * 5.0,
-                faces: None,
-            };
-            let stack = bare_stack(
-                400.0 + rng.uniform() * 400.0,
-                if case % 3 == 0 { 1.33 } else { 1.0 },
-                if case % 2 == 0 { Losses::Ideal } else { Losses::Uncoated },
-            );
+            let (slab, stack) = random_plate(&mut rng, Medium::Uniaxial(crystal), case % 3 == 0, case % 2 == 0);
             let qt = tangential_of(&stack, rng.uniform() * 60f64.to_radians(), rng.uniform() * TAU);
             let outside = outside_modes(stack.outside_index, qt);
             let complex = complex_plate(&stack, &slab, qt, &outside).unwrap();
@@ -535,16 +557,7 @@ mod tests {
                 chirality,
             )
             .unwrap();
-            let slab = Slab {
-                medium: Medium::Anisotropic(medium),
-                thickness_mm: 0.01 + rng.uniform() * 5.0,
-                faces: None,
-            };
-            let stack = bare_stack(
-                400.0 + rng.uniform() * 400.0,
-                if case % 4 == 0 { 1.33 } else { 1.0 },
-                if case % 2 == 0 { Losses::Ideal } else { Losses::Uncoated },
-            );
+            let (slab, stack) = random_plate(&mut rng, Medium::Anisotropic(medium), case % 4 == 0, case % 2 == 0);
             // Now and then along an optic axis inside the crystal (where the medium has one and
             // the outside medium can reach it).
             let qt = match (case % 6, medium.optic_axes()) {
