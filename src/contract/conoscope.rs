@@ -62,7 +62,8 @@ pub const MAX_PIXELS_WHITE_WITH_CELL: usize = 24;
 /// crystal (81 forward-wave solves a direction: 128 × 128 took 1.06–1.11 s for a KTP plate and an
 /// active quartz plate in the worker's build under Node, about the aim of 1 s that a uniaxial
 /// plate's 256 × 256 meets, and the page shares it among its workers; 0.83–0.85 s natively on two
-/// threads; 6.6–6.9 s and 5.6–5.9 s before, when 48 × 48 was the cap).
+/// threads at load 2.2–3.3, 0.42–0.43 s at load 1; 6.6–6.9 s and 5.6–5.9 s before, when 48 × 48
+/// was the cap).
 pub const MAX_PIXELS_WHITE_GENERAL: usize = 128;
 
 /// The cap on pixels per side for `stack`: `cell` with a liquid-crystal cell, `general` with a
