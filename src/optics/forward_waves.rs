@@ -28,9 +28,8 @@
 //! correct to rounding however inexact S and P (tested against the general solver).
 //!
 //! Which answer is trusted. The answer is `None`, and the caller solves the direction by the
-//! general solver, unless (a) the resolvent has three real roots (four real roots of the
-//! quartic), the two forward ones well above the two backward ones
-//! ([`crate::precision::FORWARD_SEPARATION`]), (b) the flux form is positive definite on the
+//! general solver, unless (a) the resolvent's largest root is found positive and the two
+//! forward roots lie well above the two backward ones ([`crate::precision::FORWARD_SEPARATION`]), (b) the flux form is positive definite on the
 //! subspace found, so that both waves carry energy forward (a pair holding a backward or an
 //! evanescent wave is indefinite or neutral), with a margin ([`crate::precision::FORWARD_DEFINITE`]),
 //! and (c) each wave solves Δψ = q_z ψ to [`crate::precision::FORWARD_RESIDUAL`] of |Δ| |ψ|. So
@@ -93,9 +92,11 @@ struct Factors {
     backward_top: f64,
 }
 
-/// The factors of the real quartic x⁴ + c₃x³ + c₂x² + c₁x + c₀ (see the header), or `None`
-/// unless its resolvent cubic has three real roots, the largest positive (so that the quartic's
-/// four roots are real to rounding).
+/// The factors of the real quartic x⁴ + c₃x³ + c₂x² + c₁x + c₀ (see the header) from the
+/// largest root of its resolvent cubic, or `None` unless the depressed resolvent t³ + P t + Q has
+/// P < 0 and that root is positive. Where the quartic has complex roots the cubic has one real
+/// root, the trigonometric form (its argument clamped) gives a number that is not one, and the
+/// factor found is no factor: [`forward_waves`]'s checks decline it.
 fn factors([c3, c2, c1, c0]: [f64; 4]) -> Option<Factors> {
     // Depressed quartic y⁴ + p y² + q y + r, x = y + a.
     let a = -0.25 * c3;
@@ -349,6 +350,41 @@ mod tests {
         }
         eprintln!("{answered} of {cases} answered; worst q_z {worst_q:.1e}, span {worst_psi:.1e}");
         assert!(answered > cases * 9 / 10, "{answered} of {cases} answered");
+    }
+
+    /// Declined, for the general solver: waves evanescent (|q_t| beyond an index, or beyond
+    /// them all), a wave grazing the face (q_z = 0.005, found by bisection on the general
+    /// solver's), and an isotropic chiral crystal exactly at its critical angle; answered well
+    /// inside every index.
+    #[test]
+    fn evanescent_and_grazing_waves_are_left_to_the_general_solver() {
+        let m = medium([1.74, 1.75, 1.83], orientation(0.4, 1.1, -0.6), [0.0; 3]);
+        for qt in [[2.0, 0.3], [0.0, 1.79], [0.0, 1.9]] {
+            assert!(general_modes(&m, qt, Travel::Forward).iter().any(|w| !w.propagating));
+            assert_eq!(forward_waves(&m, qt), None, "{qt:?}");
+        }
+        // The lower forward q_z along x: falls to 0 where that wave turns evanescent.
+        let lowest = |x: f64| {
+            let waves = general_modes(&m, [x, 0.0], Travel::Forward);
+            waves
+                .iter()
+                .map(|w| if w.propagating { w.qz().re } else { -1.0 })
+                .fold(f64::INFINITY, f64::min)
+        };
+        let (mut inside, mut beyond) = (1.0, 2.0);
+        for _ in 0..60 {
+            let mid = 0.5 * (inside + beyond);
+            if lowest(mid) > 0.005 {
+                inside = mid;
+            } else {
+                beyond = mid;
+            }
+        }
+        assert!((lowest(inside) - 0.005).abs() < 1e-6);
+        assert_eq!(forward_waves(&m, [inside, 0.0]), None, "grazing at q_x = {inside}");
+        let isotropic = medium([1.6; 3], orientation(0.3, 0.2, 0.1), [2e-3; 3]);
+        assert_eq!(forward_waves(&isotropic, [1.6, 0.0]), None);
+        assert!(forward_waves(&m, [0.5, -0.3]).is_some());
     }
 
     /// The characteristic polynomial's roots are Δ's eigenvalues: checked against the general
