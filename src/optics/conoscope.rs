@@ -66,7 +66,6 @@ use crate::optics::parallel::slab_couplings;
 use crate::optics::spots::power_of;
 use crate::optics::stack::{CellLayer, Element, Slab, Stack};
 use num_complex::Complex64;
-use std::cell::OnceCell;
 use std::f64::consts::TAU;
 
 /// What a conoscopic map shows at each direction.
@@ -131,33 +130,20 @@ pub fn set_up_matrix(stack: &Stack, qt: [f64; 2]) -> JonesMatrix {
     set_up_matrix_with(stack, qt, &outside_modes(stack.outside_index, qt))
 }
 
-/// The outside medium's forward and backward modes at one tangential wave vector ([`outside_modes`]),
-/// and where the planned trace is built, the same waves in real numbers for the plates it solves:
-/// each solved when first asked for, since a stack of plates of one kind needs only some of them
-/// (a general crystal's plate the forward modes, a uniaxial plate the real waves).
+/// The outside medium's forward modes at one tangential wave vector ([`outside_modes`]), and
+/// where the planned trace is built, the same waves in real numbers for the plates it solves,
+/// solved when a uniaxial plate first asks for them (a general crystal's plate needs the forward
+/// modes alone). The backward modes, which only the full complex solution needs, are solved there.
 #[derive(Debug, Clone)]
 pub struct Outside {
     n_out: f64,
     qt: [f64; 2],
-    forward: OnceCell<[Mode; 2]>,
-    backward: OnceCell<[Mode; 2]>,
+    forward: [Mode; 2],
     #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
-    waves: OnceCell<Option<crate::optics::planned_trace::OutsideWaves>>,
+    waves: std::cell::OnceCell<Option<crate::optics::planned_trace::OutsideWaves>>,
 }
 
 impl Outside {
-    /// The forward modes.
-    fn forward(&self) -> &[Mode; 2] {
-        self.forward
-            .get_or_init(|| isotropic_modes(self.n_out, self.qt, Travel::Forward))
-    }
-
-    /// The backward modes.
-    fn backward(&self) -> &[Mode; 2] {
-        self.backward
-            .get_or_init(|| isotropic_modes(self.n_out, self.qt, Travel::Backward))
-    }
-
     /// The waves in real numbers, `None` where the planned trace does not take them.
     #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
     fn waves(&self) -> Option<&crate::optics::planned_trace::OutsideWaves> {
@@ -167,16 +153,15 @@ impl Outside {
     }
 }
 
-/// The outside medium's modes at `qt` (index `n_out`), each solved when first needed: they depend
-/// on neither the wavelength nor the stack, so a direction's spectrum solves them once.
+/// The outside medium's modes at `qt` (index `n_out`): they depend on neither the wavelength
+/// nor the stack, so a direction's spectrum solves them once.
 pub fn outside_modes(n_out: f64, qt: [f64; 2]) -> Outside {
     Outside {
         n_out,
         qt,
-        forward: OnceCell::new(),
-        backward: OnceCell::new(),
+        forward: isotropic_modes(n_out, qt, Travel::Forward),
         #[cfg(any(not(target_arch = "wasm32"), feature = "design-worker"))]
-        waves: OnceCell::new(),
+        waves: std::cell::OnceCell::new(),
     }
 }
 
@@ -218,7 +203,8 @@ fn complex_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) ->
     let k0 = stack.wavelength.k0_per_mm();
     let fwd = slab.medium.modes(qt, Travel::Forward);
     let back = slab.medium.modes(qt, Travel::Backward);
-    let (t_in, t_out) = slab_couplings((outside.forward(), outside.backward()), (&fwd, &back), stack.losses)?;
+    let outside_back = isotropic_modes(outside.n_out, outside.qt, Travel::Backward);
+    let (t_in, t_out) = slab_couplings((&outside.forward, &outside_back), (&fwd, &back), stack.losses)?;
     let mut phase = CMatrix2::zeros();
     for (k, mode) in fwd.iter().enumerate() {
         if mode.propagating {
@@ -280,7 +266,7 @@ fn general_plate(stack: &Stack, slab: &Slab, qt: [f64; 2], outside: &Outside) ->
     let Medium::Anisotropic(medium) = slab.medium else {
         return None;
     };
-    let [a, b] = outside.forward();
+    let [a, b] = &outside.forward;
     if !(a.propagating && b.propagating) {
         return None;
     }
